@@ -1,0 +1,69 @@
+"""The one exception root of groundcheck and the plan locations errors point at."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["Location", "GroundcheckError", "PlanError", "PlanErrors", "LimitError"]
+
+
+@dataclass(frozen=True, order=True)
+class Location:
+    """A place in a plan file: 1-based line and column."""
+
+    file: str
+    line: int = 0
+    column: int = 0
+
+    def __str__(self) -> str:
+        return f"{self.file}:{self.line}:{self.column}"
+
+    def as_dict(self) -> dict:
+        return {"file": self.file, "line": self.line, "column": self.column}
+
+
+class GroundcheckError(Exception):
+    """Root of every error groundcheck raises on purpose."""
+
+
+class PlanError(GroundcheckError):
+    """One problem with a plan, at a location, with a hint on how to mend it."""
+
+    def __init__(self, message: str, location: Location, hint: str = "", source_line: str | None = None):
+        super().__init__(message)
+        self.message = message
+        self.location = location
+        self.hint = hint
+        self.source_line = source_line
+
+    def one_line(self) -> str:
+        hint = f" ({self.hint})" if self.hint else ""
+        return f"{self.location}: error: {self.message}{hint}"
+
+    def render(self) -> str:
+        """The one-line message, then the offending line with a caret under the spot."""
+        out = [self.one_line()]
+        if self.source_line is not None:
+            line = self.source_line.rstrip("\n").replace("\t", " ")
+            out.append("    " + line)
+            out.append("    " + " " * max(0, self.location.column - 1) + "^")
+        return "\n".join(out)
+
+    def __str__(self) -> str:
+        return self.one_line()
+
+
+class LimitError(PlanError):
+    """A plan over one of groundcheck's size limits (file size, elements, nesting)."""
+
+
+class PlanErrors(GroundcheckError):
+    """Every error found in a plan, in file order."""
+
+    def __init__(self, errors: list[PlanError]):
+        errors = sorted(errors, key=lambda e: (e.location.file, e.location.line, e.location.column))
+        super().__init__("\n".join(e.one_line() for e in errors))
+        self.errors = errors
+
+    def render(self) -> str:
+        return "\n".join(e.render() for e in self.errors)

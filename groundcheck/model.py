@@ -1,0 +1,244 @@
+"""The plan model: immutable records of everything a ground wiring plan holds.
+
+All quantities are SI (m, m², Ω, A, V, Hz, T, F, s), temperatures in °C,
+positions in metres in one plan-wide frame (x to the right, y away from the
+front panel, looking down on the chassis).  Every record keeps the
+:class:`~groundcheck.errors.Location` of the statement that made it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from .errors import Location
+
+__all__ = [
+    "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
+    "Heater", "Stage", "FieldSource", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS",
+]
+
+#: the implicit point of the mains inlet's protective-earth terminal
+PE_POINT = "mains.pe"
+
+#: what a conductor is for
+ROLES = ("protective", "return", "signal", "shield", "bond", "heater")
+
+CONDUCTOR_KINDS = ("wire", "trace", "busbar", "bolt", "strap", "shield", "interconnect", "lift", "switch")
+
+XY = tuple[float, float]
+
+
+@dataclass(frozen=True)
+class Mains:
+    """The mains supply: nominal voltage (V rms), frequency (Hz) and its protection."""
+
+    voltage: float
+    frequency: float
+    fuse: float | None = None            # rating, A
+    fuse_kind: str = "slow"              # slow | fast | breaker-B | breaker-C | breaker-D
+    fuse_i2t: float | None = None        # let-through I²t, A²s, when the plan states it
+    clear_time: float | None = None      # clearing time, s, when the plan states it
+    line_area: float | None = None       # line-conductor cross-section, m²
+    loop_impedance: float = 0.8          # supply earth-fault loop impedance, Ω
+    cord_length: float = 2.0             # mains cord, m
+    cord_area: float | None = None       # mains cord conductor area, m² (default: line_area)
+    inlet: XY | None = None
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Listening:
+    """Where the hum ends up: rated output level (V rms at the plan's output) and the chain after it."""
+
+    rated_output: float = 1.0            # V rms at the plan's output for full signal
+    amp_gain: float = 0.0                # dB voltage gain from the plan's output to the speaker
+    sensitivity: float | None = None     # dB SPL at 1 W, 1 m
+    impedance: float = 8.0               # speaker nominal impedance, Ω
+    distance: float = 3.0                # listening distance, m
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Metal:
+    """A metal part: chassis deck, cover, panel, transformer frame, rack ear."""
+
+    name: str
+    material: str = "aluminium"
+    thickness: float = 1.5e-3
+    size: XY | None = None               # width (x) and depth (y), m
+    origin: XY = (0.0, 0.0)              # lower-left corner in the plan frame, m
+    touchable: bool = False
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+    def contains(self, p: XY, slack: float = 1e-6) -> bool:
+        """Whether the plan-frame position ``p`` lies on the part (always true when its size is unknown)."""
+        if self.size is None:
+            return True
+        (x0, y0), (w, h) = self.origin, self.size
+        return (min(x0, x0 + w) - slack <= p[0] <= max(x0, x0 + w) + slack
+                and min(y0, y0 + h) - slack <= p[1] <= max(y0, y0 + h) + slack)
+
+
+@dataclass(frozen=True)
+class Point:
+    """A named junction: stud, star, tag, jack sleeve, pad, capacitor negative ..."""
+
+    name: str
+    kind: str = "junction"
+    pos: XY | None = None
+    on: str | None = None                # the metal part it sits on
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Conductor:
+    """Anything that carries current between two nodes (points or metal parts).
+
+    ``kind`` is one of :data:`CONDUCTOR_KINDS`; ``role`` one of :data:`ROLES`.
+    Geometry that does not apply to a kind is None.
+    """
+
+    name: str
+    kind: str
+    a: str
+    b: str
+    role: str = "signal"
+    material: str = "copper"
+    length: float | None = None          # m
+    area: float | None = None            # m²
+    diameter: float | None = None        # m, round conductors (from AWG or area)
+    width: float | None = None           # m, traces, bus bars, straps
+    thickness: float | None = None       # m, traces, bus bars, straps
+    route: tuple[XY, ...] = ()           # waypoints between the two ends
+    resistance: float | None = None      # Ω, stated (overrides geometry)
+    contact: float | None = None         # Ω, contact resistance (bolts, straps, switches)
+    capacitance: float | None = None     # F, lift networks
+    closed: bool = True                  # switches
+    terminated: str = "both"             # shields: a | b | both
+    insulation: str = "pvc"              # pvc | xlpe | bare
+    in_cable: bool = True                # a core of a cable (adiabatic k) or a separate conductor
+    channel: str | None = None
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+    @property
+    def connects(self) -> bool:
+        """Whether it joins its two ends electrically (an open switch or a one-end shield does not)."""
+        if self.kind == "switch" and not self.closed:
+            return False
+        if self.kind in ("shield", "interconnect") and self.terminated != "both":
+            return False
+        return True
+
+
+@dataclass(frozen=True)
+class Rectifier:
+    """A capacitor-input rectifier whose charging current returns from ``a`` to ``b``.
+
+    topology: ``full-wave`` (centre-tapped secondary, one diode drop), ``bridge``
+    (two diode drops) or ``half-wave``.  ``secondary`` is the rms voltage of
+    the (half-)winding, ``winding`` the series resistance of winding and diode.
+    """
+
+    name: str
+    a: str
+    b: str
+    topology: str = "full-wave"
+    secondary: float = 250.0
+    winding: float = 50.0
+    diode_drop: float = 0.7
+    capacitance: float = 47e-6
+    load_current: float | None = None
+    load_resistance: float | None = None
+    channel: str | None = None
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Current:
+    """A stated current flowing in the ground system from ``a`` to ``b``.
+
+    ``parts`` are (rms amperes, hertz) pairs; 0 Hz is DC.  ``role``:
+    return, load, heater, leakage, or signal (an output stage's signal
+    return, used for crosstalk).
+    """
+
+    name: str
+    a: str
+    b: str
+    parts: tuple[tuple[float, float], ...] = ()
+    role: str = "return"
+    channel: str | None = None
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Heater:
+    """A valve heater supply: its current, AC or DC, and how it is referenced to ground."""
+
+    name: str
+    current: float
+    ac: bool = True
+    reference: str | None = None         # point the heater supply is referenced at
+    a: str | None = None                 # when its return flows in the ground system: from a ...
+    b: str | None = None                 # ... to b
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Stage:
+    """An amplifying stage that sees the voltage between ``a`` and ``b`` as signal."""
+
+    name: str
+    a: str
+    b: str
+    gain: float = 0.0                    # dB, from the pair to the output
+    channel: str = "main"
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class FieldSource:
+    """A source of stray magnetic field: flux density ``b_ref`` (T rms) at ``r_ref`` (m)."""
+
+    name: str
+    kind: str
+    pos: XY
+    b_ref: float
+    r_ref: float
+    harmonics: tuple[tuple[int, float], ...] = ()   # (harmonic number, fraction of the fundamental)
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Plan:
+    """A whole plan after includes and blocks are expanded and every name is resolved."""
+
+    title: str
+    file: str
+    mains: Mains | None = None
+    ambient: float = 20.0
+    listening: Listening | None = None
+    metals: tuple[Metal, ...] = ()
+    points: tuple[Point, ...] = ()
+    conductors: tuple[Conductor, ...] = ()
+    rectifiers: tuple[Rectifier, ...] = ()
+    currents: tuple[Current, ...] = ()
+    heaters: tuple[Heater, ...] = ()
+    stages: tuple[Stage, ...] = ()
+    fields: tuple[FieldSource, ...] = ()
+    files: tuple[str, ...] = ()
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+    @property
+    def frequency(self) -> float:
+        return self.mains.frequency if self.mains else 50.0
+
+    def metal(self, name: str) -> Metal | None:
+        return next((m for m in self.metals if m.name == name), None)
+
+    def point(self, name: str) -> Point | None:
+        return next((p for p in self.points if p.name == name), None)
+
+    @property
+    def channels(self) -> tuple[str, ...]:
+        return tuple(sorted({s.channel for s in self.stages}))
