@@ -1,0 +1,431 @@
+"""Topology rules: loops, stars, chassis bonds, shields, heaters and the protective earth.
+
+Each rule is a pure function of an :class:`AuditContext` returning findings.
+:func:`audit` runs them all.
+"""
+
+from __future__ import annotations
+
+from collections import deque
+from dataclasses import dataclass, field
+from functools import cached_property
+
+import networkx as nx
+
+from .errors import Location
+from .findings import Finding
+from .model import PE_POINT, Conductor, Plan
+from .network import Loop, build_graph, fundamental_loops, loop_count, loop_polygon, polygon_area
+
+__all__ = ["AuditContext", "audit", "LoopInfo", "classify_loop", "LOOP_LIST_LIMIT"]
+
+#: how many loops are listed one by one (the count is always exact)
+LOOP_LIST_LIMIT = 500
+
+LOOP_CLASSES = {
+    "mains-cords": "an interconnect shield and the protective earth through two mains cords",
+    "shield-both-ends": "a shield terminated at both ends",
+    "channel-returns": "the returns of two channels tied in two places",
+    "second-chassis-bond": "a second bond of the signal ground to a metal part",
+    "metal-return": "a metal part used as a return path",
+    "chassis-structure": "metal parts and their fastenings only",
+    "parallel-wiring": "two wires in parallel",
+}
+
+
+@dataclass(frozen=True)
+class LoopInfo:
+    """A listed loop: members in order, what closes it, its area (None without positions)."""
+
+    loop: Loop
+    closed_by: str
+    area: float | None                      # m²
+    open_at: str                            # the conductor to open to break it
+    polygon: tuple | None = None
+
+    def as_dict(self) -> dict:
+        return {"members": list(self.loop.nodes), "conductors": list(self.loop.edges), "closed_by": self.closed_by,
+                "area_mm2": None if self.area is None else round(self.area * 1e6, 3), "open_at": self.open_at}
+
+
+@dataclass
+class AuditContext:
+    """What the rules read: the plan, its graph, and facts derived once."""
+
+    plan: Plan
+    G: nx.MultiGraph = field(default=None)
+
+    def __post_init__(self):
+        if self.G is None:
+            self.G = build_graph(self.plan)
+
+    @cached_property
+    def conductors(self) -> dict[str, Conductor]:
+        return {c.name: c for c in self.plan.conductors}
+
+    @cached_property
+    def metals(self) -> set[str]:
+        return {m.name for m in self.plan.metals}
+
+    @cached_property
+    def chassis_side(self) -> set[str]:
+        """Metal parts, points fastened to one, and the inlet's protective terminal."""
+        side = set(self.metals)
+        for c in self.plan.conductors:
+            if c.connects and c.kind in ("bolt", "strap"):
+                if c.a in self.metals:
+                    side.add(c.b)
+                if c.b in self.metals:
+                    side.add(c.a)
+        if PE_POINT in self.G:
+            side.add(PE_POINT)
+        return side
+
+    @cached_property
+    def signal_points(self) -> set[str]:
+        pts = set()
+        for s in self.plan.stages:
+            pts.update((s.a, s.b))
+        for r in (*self.plan.rectifiers, *self.plan.currents):
+            pts.update((r.a, r.b))
+        pts.update(p.name for p in self.plan.points if p.kind == "star")
+        return pts
+
+    @cached_property
+    def source_pairs(self) -> set[frozenset]:
+        """The two ends of each rectifier and stated current: joined on purpose."""
+        return {frozenset((r.a, r.b)) for r in (*self.plan.rectifiers, *self.plan.currents)}
+
+    @cached_property
+    def loop_total(self) -> int:
+        return loop_count(self.G)
+
+    @cached_property
+    def loops(self) -> list[LoopInfo]:
+        out = []
+        for lp in fundamental_loops(self.G, limit=LOOP_LIST_LIMIT):
+            closed_by = classify_loop(self, lp)
+            poly = loop_polygon(self.G, lp)
+            area = polygon_area(poly) if poly is not None else None
+            out.append(LoopInfo(lp, closed_by, area, _open_at(self, lp, closed_by), tuple(poly) if poly else None))
+        return out
+
+    def loc(self, name: str) -> Location:
+        c = self.conductors.get(name)
+        if c is not None:
+            return c.location
+        n = self.G.nodes.get(name, {})
+        obj = n.get("point") or n.get("metal")
+        return obj.location if obj is not None else self.plan.location
+
+
+def classify_loop(ctx: AuditContext, lp: Loop) -> str:
+    """What closes a loop: one of :data:`LOOP_CLASSES`."""
+    cs = [ctx.conductors[e] for e in lp.edges]
+    kinds = {c.kind for c in cs}
+    roles = {c.role for c in cs}
+    has_metal = any(n in ctx.metals for n in lp.nodes)
+    if "interconnect" in kinds and "protective" in roles:
+        return "mains-cords"
+    if kinds & {"shield", "interconnect"}:
+        return "shield-both-ends"
+    known = set(ctx.plan.channels)
+    channels = {c.channel for c in cs if c.channel in known} | {_node_channel(n) for n in lp.nodes} & known
+    if len(channels) >= 2:
+        return "channel-returns"
+    if has_metal and roles <= {"bond", "protective"}:
+        return "chassis-structure"
+    if has_metal and "signal" in roles:
+        return "second-chassis-bond"
+    if has_metal:
+        return "metal-return"
+    return "parallel-wiring"
+
+
+def _node_channel(name: str) -> str | None:
+    return name.split(".", 1)[0] if "." in name and not name.startswith("mains.") else None
+
+
+def _open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
+    """The conductor to open: never a protective conductor or a fastening of metal parts."""
+    cs = [ctx.conductors[e] for e in lp.edges]
+    candidates = [c for c in cs if c.role != "protective" and not (c.kind == "bolt" and c.role == "bond"
+                                                                    and (c.a in ctx.metals and c.b in ctx.metals))]
+    if not candidates:
+        return ""
+    if closed_by == "shield-both-ends":
+        sh = [c for c in candidates if c.kind in ("shield", "interconnect")]
+        if sh:
+            return sh[0].name
+    if closed_by == "channel-returns":
+        ties = [c for c in candidates if not c.channel and _node_channel(c.a) and _node_channel(c.b)
+                and _node_channel(c.a) != _node_channel(c.b)]
+        if ties:
+            return ties[0].name
+    if closed_by == "second-chassis-bond":
+        # the bond that is not the one nearest the protective earth: prefer a fastening of a signal point
+        bonds = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)
+                 or (c.kind == "bolt" and (c.a in ctx.metals or c.b in ctx.metals))]
+        far = [c for c in bonds if (c.a in ctx.signal_points or c.b in ctx.signal_points)]
+        if far:
+            return far[0].name
+        if bonds:
+            return bonds[0].name
+    return candidates[-1].name
+
+
+def _loop_text(lp: Loop) -> str:
+    return " → ".join(lp.nodes + lp.nodes[:1])
+
+
+def rule_loops(ctx: AuditContext) -> list[Finding]:
+    out = []
+    for info in ctx.loops:
+        if info.closed_by == "chassis-structure":
+            continue
+        figures = {"conductors": len(info.loop.edges)}
+        if info.area is not None:
+            figures["area_mm2"] = round(info.area * 1e6, 1)
+        fix = (f"open the loop at {info.open_at}" if info.open_at else "open the loop") + \
+            {"shield-both-ends": " (terminate the shield at one end only)",
+             "channel-returns": " (join the channels at one point only)",
+             "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
+             "metal-return": " (return currents by wire, not through the metal)",
+             "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal side; never lift the protective earth)"}.get(info.closed_by, "")
+        out.append(Finding("GC101", "warning",
+                           f"ground loop closed by {LOOP_CLASSES[info.closed_by]}: {_loop_text(info.loop)}",
+                           ctx.loc(info.open_at or info.loop.edges[-1]), info.loop.edges, figures, fix))
+    extra = ctx.loop_total - len(ctx.loops) - sum(1 for c in ctx.plan.conductors if c.connects and c.a == c.b)
+    if extra > 0:
+        out.append(Finding("GC101", "note", f"{extra} more independent loops not listed (limit {LOOP_LIST_LIMIT})",
+                           ctx.plan.location, (), {"loops_total": ctx.loop_total}, "open the loops listed first"))
+    return out
+
+
+def _bfs(G, sources, allowed=None):
+    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed``."""
+    dist, parent = {}, {}
+    q = deque()
+    for s in sources:
+        dist[s], parent[s] = 0, None
+        q.append(s)
+    while q:
+        u = q.popleft()
+        for v in G.adj[u]:
+            if v not in dist and (allowed is None or allowed(v)):
+                dist[v], parent[v] = dist[u] + 1, u
+                q.append(v)
+    return dist, parent
+
+
+def rule_stars(ctx: AuditContext) -> list[Finding]:
+    out = []
+    stars = [p for p in ctx.plan.points if p.kind == "star" and p.name in ctx.G]
+    if not stars:
+        return out
+    terminals = {t for t in ctx.signal_points if t in ctx.G and t not in ctx.chassis_side}
+    star_names = {s.name for s in stars}
+    allowed = lambda v: v not in ctx.metals  # noqa: E731
+    for s in stars:
+        degree = ctx.G.degree(s.name)
+        if degree == 1:
+            (u, v, k), = ctx.G.edges(s.name, keys=True)
+            out.append(Finding("GC104", "note", f"star {s.name} has a single branch ({k})", s.location, (s.name, k),
+                               {"branches": 1}, "connect the returns that should gather there, or call it a junction"))
+    # each terminal belongs to its nearest star; a chain is a terminal whose path passes another terminal
+    dist, parent = _bfs(ctx.G, sorted(star_names), allowed)
+    chains: dict[str, list[tuple[str, str]]] = {}
+    for t in sorted(terminals - star_names):
+        if t not in dist:
+            continue
+        path = [t]
+        while parent[path[-1]] is not None:
+            path.append(parent[path[-1]])
+        star = path[-1]
+        via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in ctx.source_pairs]
+        if via:
+            chains.setdefault(star, []).append((t, via[0]))
+    for star, pairs in sorted(chains.items()):
+        desc = "; ".join(f"{t} reaches it through {u}" for t, u in pairs)
+        elements = tuple(sorted({star, *(x for p in pairs for x in p)}))
+        first = min((ctx.loc(t) for t, _ in pairs))
+        out.append(Finding("GC103", "warning", f"star {star} is partly a chain: {desc}", first, elements,
+                           {"chained_returns": len(pairs)},
+                           "; ".join(f"run {t} to {star} by a wire of its own" for t, _ in pairs)))
+    return out
+
+
+def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
+    out = []
+    G = ctx.G
+    side = ctx.chassis_side
+    H = nx.Graph()
+    for n in G.nodes:
+        if n not in side:
+            H.add_node(n)
+    for u, v, k, d in G.edges(keys=True, data=True):
+        if u not in side and v not in side and d["conductor"].role != "protective":
+            H.add_edge(u, v)
+    for comp in sorted((sorted(c) for c in nx.connected_components(H)), key=lambda c: c[0]):
+        comp_set = set(comp)
+        if not comp_set & ctx.signal_points:
+            continue
+        places: dict[str, list[str]] = {}
+        for n in comp:
+            for v, keys in G.adj[n].items():
+                if v in side:
+                    places.setdefault(v, []).extend(sorted(keys))
+        name = _component_name(ctx, comp)
+        if len(places) > 1:
+            desc = ", ".join(f"{p} (by {', '.join(ks)})" for p, ks in sorted(places.items()))
+            bonds = sorted(places)
+            # keep the bond nearest the protective earth
+            keep = _nearest_pe(ctx, bonds)
+            others = [b for b in bonds if b != keep]
+            first_other = places[others[0]][0]
+            out.append(Finding("GC105", "warning", f"signal ground {name} is bonded to the chassis at {len(places)} places: {desc}",
+                               ctx.loc(first_other), tuple(k for p in bonds for k in places[p]),
+                               {"bonds": len(places)},
+                               f"keep the bond at {keep}; isolate the signal ground from {', '.join(others)} "
+                               "(insulated jack or insulating washers)"))
+        elif not places:
+            first = min(ctx.loc(n) for n in comp)
+            out.append(Finding("GC106", "warning", f"signal ground {name} is floating: it reaches neither the chassis nor the protective earth",
+                               first, tuple(comp[:12]), {"points": len(comp)},
+                               "bond the signal star to the chassis at one place near the protective-earth stud"))
+    return out
+
+
+def _component_name(ctx: AuditContext, comp: list[str]) -> str:
+    stars = [n for n in comp if n in ctx.G and ctx.G.nodes[n].get("point") is not None and ctx.G.nodes[n]["point"].kind == "star"]
+    if stars:
+        return "around " + ", ".join(stars[:3]) + ("…" if len(stars) > 3 else "")
+    return "at " + ", ".join(comp[:3]) + ("…" if len(comp) > 3 else "")
+
+
+def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
+    if PE_POINT not in ctx.G:
+        return candidates[0]
+    dist, _ = _bfs(ctx.G, [PE_POINT], lambda v: v in ctx.chassis_side)
+    return min(candidates, key=lambda c: (dist.get(c, 10 ** 9), c))
+
+
+def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
+    plan = ctx.plan
+    out: list[Finding] = []
+    if plan.mains is None:
+        return out
+    G = ctx.G
+    mloc = plan.mains.location
+    pe_ok = lambda c: c.role in ("protective", "bond") and c.kind not in ("lift", "switch", "shield", "interconnect")  # noqa: E731
+    # BFS from the inlet over protective conductors and fastenings only
+    seen = {PE_POINT}
+    q = deque([PE_POINT])
+    while q:
+        u = q.popleft()
+        for v, keys in G.adj[u].items():
+            if v not in seen and any(pe_ok(G.edges[u, v, k]["conductor"]) for k in keys):
+                seen.add(v)
+                q.append(v)
+    bonded = seen & ctx.metals
+    if not bonded:
+        reach = nx.node_connected_component(G, PE_POINT) & ctx.metals
+        if reach:
+            target = sorted(reach)[0]
+            path = nx.shortest_path(G, PE_POINT, target)
+            bad = []
+            for u, v in zip(path, path[1:]):
+                for k, d in G[u][v].items():
+                    if not pe_ok(d["conductor"]):
+                        bad.append(k)
+            out.append(Finding("GC203", "danger",
+                               f"the protective earth reaches {target} only through {', '.join(bad)}, which is not a protective conductor",
+                               ctx.loc(bad[0]) if bad else mloc, tuple(bad), {},
+                               "connect the inlet's protective terminal straight to the chassis with a protective conductor; "
+                               "lift networks and switches belong between signal ground and chassis, never in the protective path"))
+        else:
+            out.append(Finding("GC201", "danger", "the mains inlet's protective terminal reaches no metal part",
+                               mloc, (PE_POINT,), {},
+                               "run a green-and-yellow protective conductor from the inlet's earth terminal straight to a chassis stud of its own"))
+    # own fastener: the first fastened point on the protective path
+    for v, keys in G.adj[PE_POINT].items():
+        for k in keys:
+            c = G.edges[PE_POINT, v, k]["conductor"]
+            if c.role != "protective" or v in ctx.metals:
+                continue
+            others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
+            fastenings = [kk for kk in others if ctx.conductors[kk].kind == "bolt"
+                          and (ctx.conductors[kk].a in ctx.metals) != (ctx.conductors[kk].b in ctx.metals)
+                          and ctx.conductors[kk].role in ("bond", "protective")]
+            holds = [kk for kk in others if kk not in fastenings[:1]]
+            if holds:
+                out.append(Finding("GC202", "fault",
+                                   f"the protective earth lands on {v}, a fastener that also holds {', '.join(sorted(holds))}",
+                                   c.location, (c.name, v, *sorted(holds)), {"other_items": len(holds)},
+                                   f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to another fastener"))
+    # cross-section
+    line = plan.mains.line_area
+    if line is not None:
+        for c in plan.conductors:
+            if c.role == "protective" and c.kind in ("wire", "busbar", "strap") and c.area is not None and c.area < line * (1 - 1e-6):
+                out.append(Finding("GC204", "danger",
+                                   f"protective conductor {c.name} is {c.area * 1e6:.3g} mm², thinner than the line conductor ({line * 1e6:.3g} mm²)",
+                                   c.location, (c.name,), {"area_mm2": round(c.area * 1e6, 4), "line_area_mm2": round(line * 1e6, 4)},
+                                   f"use at least {line * 1e6:.3g} mm² (IEC 60364-5-54 Table 54.2)"))
+    for m in plan.metals:
+        if m.touchable and m.name not in bonded:
+            out.append(Finding("GC205", "danger", f"touchable part {m.name} is not bonded to the protective earth by protective conductors",
+                               m.location, (m.name,), {},
+                               f"bond {m.name} to the protective-earth stud with a protective conductor or a fastening rated for it"))
+    return out
+
+
+def rule_heaters(ctx: AuditContext) -> list[Finding]:
+    return [Finding("GC107", "warning", f"heater supply {h.name} has no reference to ground", h.location, (h.name,),
+                    {"current_a": h.current},
+                    "reference it: centre tap or two equal resistors to ground, or an elevated DC reference")
+            for h in ctx.plan.heaters if h.reference is None]
+
+
+def rule_shields(ctx: AuditContext) -> list[Finding]:
+    out = []
+    stars = [p.name for p in ctx.plan.points if p.kind == "star" and p.name in ctx.G]
+    refs = set(stars) | {s.b for s in ctx.plan.stages}
+    dist, _ = _bfs(ctx.G, sorted(refs)) if refs else ({}, {})
+    for c in ctx.plan.conductors:
+        if c.kind == "shield" and c.terminated == "both":
+            da, db = dist.get(c.a, 10 ** 9), dist.get(c.b, 10 ** 9)
+            keep, lift = (c.a, c.b) if da <= db else (c.b, c.a)
+            out.append(Finding("GC108", "warning", f"shield {c.name} is terminated at both ends ({c.a} and {c.b})",
+                               c.location, (c.name,), {},
+                               f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected"))
+    return out
+
+
+def rule_unconnected(ctx: AuditContext) -> list[Finding]:
+    out = []
+    for comp in nx.connected_components(ctx.G):
+        if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points:
+            continue
+        names = sorted(comp)
+        out.append(Finding("GC109", "warning", f"{', '.join(names[:6])}{'…' if len(names) > 6 else ''} reach no ground",
+                           min(ctx.loc(n) for n in names), tuple(names[:20]), {"points": len(names)},
+                           "connect these points, or remove them from the plan"))
+    for c in ctx.plan.conductors:
+        if c.a == c.b:
+            out.append(Finding("GC110", "warning", f"{c.kind} {c.name} has both ends at {c.a}", c.location, (c.name,), {},
+                               "name the conductor's real ends"))
+    return out
+
+
+TOPOLOGY_RULES = (rule_loops, rule_stars, rule_signal_bonds, rule_protective_earth, rule_heaters, rule_shields,
+                  rule_unconnected)
+
+
+def audit(plan: Plan, ctx: AuditContext | None = None) -> tuple[list[Finding], AuditContext]:
+    """Run every topology rule; returns the findings and the context (graph, loops) they used."""
+    ctx = ctx or AuditContext(plan)
+    findings: list[Finding] = []
+    for rule in TOPOLOGY_RULES:
+        findings.extend(rule(ctx))
+    return findings, ctx

@@ -1,0 +1,138 @@
+"""Spreading resistance of a metal plate between its fastening points.
+
+The plate is a finite-volume grid of sheet resistance ρ/t; each fastener is a
+disc of radius :data:`~groundcheck.impedance.FASTENER_RADIUS` whose grid
+nodes are joined into one node.  Kron reduction (Schur complement of the
+interior nodes) leaves the exact equivalent network between the fasteners for
+that grid.  The grid's error is estimated by solving again on a grid twice as
+coarse (Richardson: for this second-order scheme the fine result is off by
+about a third of the difference).
+
+References: G. Kron, *Tensor Analysis of Networks*, 1939 (network reduction);
+finite-volume discretisation of Laplace's equation, e.g. Patankar, *Numerical
+Heat Transfer and Fluid Flow*, 1980, ch. 4.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .impedance import FASTENER_RADIUS
+
+__all__ = ["PlateResult", "reduce_plate", "grid_laplacian"]
+
+#: grid nodes per plate at most (keeps one plate's solve well under a second)
+MAX_GRID_NODES = 40_000
+
+
+@dataclass(frozen=True)
+class PlateResult:
+    """Kron-reduced conductance matrix (S) between the fasteners, in the order given."""
+
+    names: tuple[str, ...]
+    conductance: np.ndarray          # k × k Laplacian: −G[i, j] is the conductance between i and j
+    step: float                      # grid step used, m
+    error: float                     # estimated relative error of the resistances
+
+    def resistance(self, i: int, j: int) -> float:
+        """Two-point resistance between fasteners i and j, Ω (the others left floating)."""
+        keep = [m for m in range(len(self.names)) if m != j]
+        e = np.zeros(len(keep))
+        e[keep.index(i)] = 1.0
+        v = np.linalg.solve(self.conductance[np.ix_(keep, keep)], e)
+        return float(v[keep.index(i)])
+
+
+def grid_laplacian(width: float, depth: float, sheet_conductance: float, nx: int, ny: int) -> sp.csr_matrix:
+    """Finite-volume conductance Laplacian of an nx × ny node grid on a w × d plate (S).
+
+    Boundary nodes own half a cell, so a strip with full-width contacts has
+    exactly the resistance ρL/(wt) on any grid.
+    """
+    hx, hy = width / (nx - 1), depth / (ny - 1)
+    idx = np.arange(nx * ny).reshape(ny, nx)
+    wy = np.full(ny, hy)
+    wy[0] = wy[-1] = hy / 2
+    wx = np.full(nx, hx)
+    wx[0] = wx[-1] = hx / 2
+    rows, cols, vals = [], [], []
+    gx = sheet_conductance * wy[:, None] / hx * np.ones((ny, nx - 1))
+    rows.append(idx[:, :-1].ravel()), cols.append(idx[:, 1:].ravel()), vals.append(gx.ravel())
+    gy = sheet_conductance * wx[None, :] / hy * np.ones((ny - 1, nx))
+    rows.append(idx[:-1, :].ravel()), cols.append(idx[1:, :].ravel()), vals.append(gy.ravel())
+    r = np.concatenate(rows)
+    c = np.concatenate(cols)
+    g = np.concatenate(vals)
+    n = nx * ny
+    off = sp.coo_matrix((-g, (r, c)), shape=(n, n))
+    off = off + off.T
+    diag = -np.asarray(off.sum(axis=1)).ravel()
+    return (off + sp.diags(diag)).tocsr()
+
+
+def _reduce(width, depth, sheet_g, contacts, radius, step):
+    nx = max(3, int(round(width / step)) + 1)
+    ny = max(3, int(round(depth / step)) + 1)
+    L = grid_laplacian(width, depth, sheet_g, nx, ny)
+    xs = np.linspace(0, width, nx)
+    ys = np.linspace(0, depth, ny)
+    X, Y = np.meshgrid(xs, ys)
+    X, Y = X.ravel(), Y.ravel()
+    n = nx * ny
+    group = np.full(n, -1)
+    for k, (cx, cy) in enumerate(contacts):
+        d2 = (X - cx) ** 2 + (Y - cy) ** 2
+        inside = np.flatnonzero((d2 <= radius * radius) & (group < 0))
+        if inside.size == 0:
+            inside = np.array([int(np.argmin(d2))])
+        group[inside] = k
+    k = len(contacts)
+    # merge each contact's nodes: P maps grid nodes to (contacts + interior) nodes
+    interior = np.flatnonzero(group < 0)
+    new_index = np.empty(n, dtype=int)
+    new_index[group >= 0] = group[group >= 0]
+    new_index[interior] = k + np.arange(interior.size)
+    P = sp.coo_matrix((np.ones(n), (np.arange(n), new_index)), shape=(n, k + interior.size)).tocsr()
+    Lm = (P.T @ L @ P).tocsc()
+    Lff = Lm[:k, :k].toarray()
+    Lfi = Lm[:k, k:]
+    Lii = Lm[k:, k:].tocsc()
+    if Lii.shape[0] == 0:
+        return Lff, step
+    solve = spla.splu(Lii)
+    X_ = solve.solve(Lfi.T.toarray())
+    red = Lff - (Lfi @ X_)
+    return 0.5 * (red + red.T), max(width / (nx - 1), depth / (ny - 1))
+
+
+def reduce_plate(width: float, depth: float, thickness: float, rho: float,
+                 contacts: list[tuple[float, float]], names: list[str],
+                 radius: float = FASTENER_RADIUS, step: float | None = None,
+                 estimate_error: bool = True) -> PlateResult:
+    """Equivalent conductance network of a plate between its fastening points.
+
+    ``contacts`` are positions relative to the plate's lower-left corner, m.
+    ``step`` defaults to half the fastener radius, coarsened so the grid holds
+    at most :data:`MAX_GRID_NODES` nodes.
+    """
+    width, depth = abs(width), abs(depth)
+    sheet_g = thickness / rho
+    if step is None:
+        step = max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES))
+    red, used = _reduce(width, depth, sheet_g, contacts, radius, step)
+    err = 0.0
+    if estimate_error and len(contacts) >= 2:
+        coarse, _ = _reduce(width, depth, sheet_g, contacts, radius, 2 * step)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            off_f = -red[~np.eye(len(contacts), dtype=bool)]
+            off_c = -coarse[~np.eye(len(contacts), dtype=bool)]
+            mask = np.abs(off_f) > 1e-12 * np.abs(off_f).max()
+            if mask.any():
+                # relative change of the pairwise conductances, a third of it (second order)
+                err = float(np.max(np.abs(off_c[mask] - off_f[mask]) / np.abs(off_f[mask])) / 3.0)
+    return PlateResult(tuple(names), red, used, err)
