@@ -139,14 +139,8 @@ class Circuit:
                 ref[labels[i]] = i
         return ref
 
-    def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
-        """Node voltages and branch currents at frequency f for each column of sources.
-
-        ``injections``: (nodes × k) complex currents entering each node, A.
-        ``emf``: optional (branches × k) EMF in series with each branch, V,
-        positive from n1 to n2 (it drives current from n1 to n2 through the branch).
-        Voltages are relative to each part's reference node.
-        """
+    def at(self, f: float) -> "Factored":
+        """The admittance matrix at frequency f (Hz), factorised once for any number of solves."""
         n1, n2, *_ = self._arrays
         n = len(self.nodes)
         z = self.impedance(f)
@@ -155,25 +149,52 @@ class Circuit:
         cols = np.concatenate([n1, n2, n2, n1])
         vals = np.concatenate([y, y, -y, -y])
         Y = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsc()
+        keep = np.ones(n, dtype=bool)
+        keep[self.references] = False
+        lu = spla.splu(Y[keep][:, keep].tocsc()) if keep.any() else None
+        return Factored(self, f, z, y, keep, lu)
+
+    def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
+        """Shorthand for ``self.at(f).solve(injections, emf)``."""
+        return self.at(f).solve(injections, emf)
+
+
+@dataclass
+class Factored:
+    """A circuit's admittance matrix at one frequency with its sparse LU factors."""
+
+    circuit: Circuit
+    frequency: float
+    z: np.ndarray
+    y: np.ndarray
+    keep: np.ndarray
+    lu: object
+
+    def solve(self, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
+        """Node voltages and branch currents for each column of sources.
+
+        ``injections``: (nodes × k) complex currents entering each node, A.
+        ``emf``: optional (branches × k) EMF in series with each branch, V; it
+        drives current from n1 to n2 through the branch.  Voltages are
+        relative to each connected part's reference node.
+        """
+        n1, n2, *_ = self.circuit._arrays
+        n = len(self.circuit.nodes)
+        y = self.y
         J = np.array(injections, dtype=complex).reshape(n, -1).copy()
         k = J.shape[1]
         if emf is not None:
-            emf = np.asarray(emf, dtype=complex).reshape(len(z), k)
+            emf = np.asarray(emf, dtype=complex).reshape(len(y), k)
             inj = emf * y[:, None]          # Norton equivalent of an EMF in series with the branch
             np.add.at(J, n2, inj)
             np.add.at(J, n1, -inj)
-        keep = np.ones(n, dtype=bool)
-        keep[self.references] = False
         V = np.zeros((n, k), dtype=complex)
-        if keep.any():
-            Yr = Y[keep][:, keep].tocsc()
-            lu = spla.splu(Yr)
-            V[keep] = lu.solve(J[keep])
+        if self.lu is not None:
+            V[self.keep] = self.lu.solve(J[self.keep])
         dv = V[n1] - V[n2]
         if emf is not None:
             dv = dv + emf
-        I = dv * y[:, None]
-        return Solution(self, f, V, I)
+        return Solution(self.circuit, self.frequency, V, dv * y[:, None])
 
 
 @dataclass

@@ -62,6 +62,7 @@ class Loop:
 
     nodes: tuple[str, ...]
     edges: tuple[str, ...]          # conductor names; edges[i] joins nodes[i] and nodes[i+1 mod n]
+    chord: int = -1                 # index in edges of the conductor outside the spanning forest
 
 
 def fundamental_loops(G: nx.MultiGraph, limit: int | None = None) -> list[Loop]:
@@ -111,7 +112,7 @@ def fundamental_loops(G: nx.MultiGraph, limit: int | None = None) -> list[Loop]:
         nodes = list(reversed(left_n)) + right_n[:-1]
         edges = list(reversed(left_e)) + [key] + right_e
         # edges[i] joins nodes[i] and nodes[i+1]; rotate so the closing edge is last
-        loops.append(Loop(tuple(nodes), tuple(edges[: len(nodes)])))
+        loops.append(Loop(tuple(nodes), tuple(edges[: len(nodes)]), len(left_e)))
         if limit is not None and len(loops) >= limit:
             break
     return loops

@@ -1,0 +1,204 @@
+"""The ``groundcheck`` command: a thin layer over the library.
+
+Exit status: 0 clean, 1 findings at or above ``--fail-on``, 2 the plan or the
+command could not be used.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+from pathlib import Path
+
+from . import __version__
+from .errors import GroundcheckError, PlanErrors
+from .findings import RULES, SEVERITIES, severity_rank
+from .units import UnitError, parse_quantity
+
+__all__ = ["main"]
+
+EPILOG = "Exit status: 0 clean, 1 findings at or above --fail-on, 2 the plan or the command could not be used."
+
+
+class UsageError(GroundcheckError):
+    """A command line that cannot be used."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, exit 2, no traceback
+        self.exit(2, f"groundcheck: error: {message} (see 'groundcheck {self.prog.split()[-1]} --help')\n"
+                  if " " in self.prog else f"groundcheck: error: {message} (see 'groundcheck --help')\n")
+
+
+def _quantity(kind: str, unit: str):
+    def conv(text: str) -> float:
+        t = text.strip()
+        num = t.rstrip("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZµΩ°²/ ")
+        rest = t[len(num):].strip()
+        try:
+            if not rest:
+                return float(num)
+            value, k = parse_quantity(num, rest)
+        except (ValueError, UnitError) as e:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a {kind} ({e})") from None
+        if k != kind:
+            raise argparse.ArgumentTypeError(f"{text!r} is a {k}, not a {kind}")
+        return value
+    conv.__name__ = kind
+    return conv
+
+
+def _add_analysis_options(p):
+    g = p.add_argument_group("analysis")
+    g.add_argument("--pe-limit", type=_quantity("resistance", "ohm"), default=0.1, metavar="OHM",
+                   help="protective-path resistance limit (default 0.1 ohm, the usual product-safety bonding limit)")
+    g.add_argument("--max-frequency", type=_quantity("frequency", "Hz"), default=5000.0, metavar="HZ",
+                   help="highest harmonic analysed (default 5 kHz)")
+    g.add_argument("--hum-level", type=float, default=-100.0, metavar="DBV",
+                   help="report hum contributors above this level at the output (default -100 dBV)")
+    g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
+
+
+def _options(args):
+    from .analysis import Options
+    return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
+                   hum=not args.no_hum)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = _Parser(prog="groundcheck", description="Audit the ground (earthing) wiring plan of mains-powered audio "
+                "equipment before anyone solders.", epilog=EPILOG)
+    p.add_argument("--version", action="version", version=f"groundcheck {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+
+    c = sub.add_parser("check", help="audit plans and print the findings",
+                       description="Audit plans: loops, shared returns, stars, chassis bonds, protective earth, hum and buzz.\n\n"
+                       "Example:\n  groundcheck check examples/monoblock-power-amp.gplan --format json",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+    c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files ('-' reads standard input)")
+    c.add_argument("--format", choices=("text", "json", "sarif"), default="text", help="output format (default text)")
+    c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
+    c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    _add_analysis_options(c)
+
+    e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
+                       description="Example:\n  groundcheck explain GC102", formatter_class=argparse.RawDescriptionHelpFormatter)
+    e.add_argument("code", metavar="CODE", nargs="?", help="rule code, e.g. GC102 (none: list every rule)")
+
+    x = sub.add_parser("export", help="write the ground network in another format",
+                       description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o ground.cir",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+    x.add_argument("plan", metavar="PLAN")
+    x.add_argument("--spice", action="store_true", required=True, help="a plain SPICE netlist (R, L, C, current sources)")
+    x.add_argument("--frequency", type=_quantity("frequency", "Hz"), metavar="HZ",
+                   help="AC analysis at this frequency (default: DC operating point)")
+    x.add_argument("-o", "--output", metavar="FILE")
+    return p
+
+
+def _load(path: str):
+    from .loader import load
+    return load(path)
+
+
+def _write(text: str, output: str | None, inputs: list[str]) -> None:
+    if output is None or output == "-":
+        sys.stdout.write(text)
+        return
+    from .output import write_atomic
+    write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
+
+
+def cmd_check(args) -> int:
+    from .analysis import analyze
+    results = []
+    for path in args.plans:
+        plan = _load(path)
+        results.append(analyze(plan, _options(args)))
+    threshold = severity_rank(args.fail_on)
+    failing = any(severity_rank(f.severity) <= threshold for r in results for f in r.findings)
+    if args.format == "json":
+        from .render_json import render_json, result_document
+        if len(results) == 1:
+            text = render_json(results[0])
+        else:
+            import json
+            text = json.dumps({"plans": [result_document(r) for r in results]}, indent=2, ensure_ascii=False) + "\n"
+    elif args.format == "sarif":
+        from .render_sarif import render_sarif
+        text = render_sarif(results)
+    else:
+        from .render_text import print_report, text_report
+        if args.output:
+            text = "\n".join(text_report(r) for r in results)
+        else:
+            from rich.console import Console
+            console = Console(highlight=False)
+            for i, r in enumerate(results):
+                print_report(r, console, caution=i == 0)
+            return 1 if failing else 0
+    _write(text, args.output, args.plans)
+    return 1 if failing else 0
+
+
+def cmd_explain(args) -> int:
+    if not args.code:
+        for code, r in RULES.items():
+            print(f"{code}  {r.severity:<8} {r.name}")
+        return 0
+    code = args.code.upper()
+    if code not in RULES:
+        raise UsageError(f"unknown rule code {args.code!r} (run 'groundcheck explain' to list the rules)")
+    r = RULES[code]
+    print(f"{r.code} {r.name} ({r.severity})\n")
+    print(f"Checks:  {r.checks}\n")
+    print(f"Why:     {r.why}\n")
+    print(f"Fix:     {r.fix}\n")
+    print(f"References: {r.references}")
+    return 0
+
+
+def cmd_export(args) -> int:
+    from .circuit import build_circuit
+    from .spice import to_spice
+    plan = _load(args.plan)
+    circuit = build_circuit(plan)
+    if args.frequency:
+        text = to_spice(circuit, plan.title, frequency=args.frequency, analysis="ac")
+    else:
+        text = to_spice(circuit, plan.title)
+    _write(text, args.output, [args.plan])
+    return 0
+
+
+COMMANDS = {"check": cmd_check, "explain": cmd_explain, "export": cmd_export}
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not args.command:
+        parser.print_help()
+        return 2
+    try:
+        return COMMANDS[args.command](args)
+    except PlanErrors as e:
+        sys.stderr.write(e.render() + "\n")
+        return 2
+    except GroundcheckError as e:
+        sys.stderr.write(f"groundcheck: error: {e}\n")
+        return 2
+    except KeyboardInterrupt:
+        sys.stderr.write("groundcheck: interrupted\n")
+        return 130
+    except BrokenPipeError:
+        try:
+            sys.stdout = open(os.devnull, "w")
+        except OSError:
+            pass
+        return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,130 @@
+"""Common-impedance coupling: how a current in the ground system reaches a sensitive pair.
+
+By reciprocity (Tellegen's theorem), the voltage a source current I_s puts
+across a pair (P, Q) is the sum over branches of Z_b · I_b(s) · I_b(test),
+where I_b(test) is the branch current when 1 A is injected at P and taken out
+at Q.  Each term is that branch's share, so the conductors that couple a
+supply return into a stage are named with their exact contribution.
+
+References: B. D. H. Tellegen, "A general network theorem, with
+applications", Philips Res. Rep. 7, 1952.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.csgraph as csgraph
+
+from .circuit import Circuit, Factored, Solution
+
+__all__ = ["Source", "plan_sources", "pair_tests", "contributions", "branch_owner", "pair_path", "path_drop",
+           "SHARE_THRESHOLD"]
+
+#: a branch counts as carrying a current when it carries at least this fraction of it
+SHARE_THRESHOLD = 0.01
+
+
+@dataclass(frozen=True)
+class Source:
+    """A current in the ground system: from ``a`` to ``b``, complex rms phasors per frequency."""
+
+    name: str
+    kind: str                        # rectifier | current | heater | signal
+    a: str
+    b: str
+    parts: dict                      # frequency (Hz) -> complex rms A
+    channel: str | None = None
+    location: object = None
+
+
+def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[Source]:
+    """Every current source of a plan with its spectrum (rectifiers from their simulation)."""
+    from .rectifier import harmonic_phasors
+    f0 = plan.frequency
+    out = []
+    for r in plan.rectifiers:
+        res = rectifier_results[r.name]
+        nmax = int(max_frequency // f0)
+        ph = harmonic_phasors(res.current, nmax)
+        parts = {k * f0: ph[k] for k in range(0, nmax + 1) if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)}
+        out.append(Source(r.name, "rectifier", r.a, r.b, parts, r.channel, r.location))
+    for c in plan.currents:
+        parts: dict = {}
+        for amp, f in c.parts:
+            parts[f] = parts.get(f, 0) + complex(amp)
+        out.append(Source(c.name, "signal" if c.role == "signal" else "current", c.a, c.b, parts, c.channel, c.location))
+    for h in plan.heaters:
+        if h.a is not None and h.b is not None:
+            out.append(Source(h.name, "heater", h.a, h.b, {f0 if h.ac else 0.0: complex(h.current)}, None, h.location))
+    return out
+
+
+def pair_tests(circuit: Circuit, pairs) -> np.ndarray:
+    """Injection columns: 1 A into the first point of each pair, out of the second."""
+    J = np.zeros((len(circuit.nodes), len(pairs)), dtype=complex)
+    for k, (a, b) in enumerate(pairs):
+        J[circuit.point_node[a], k] += 1.0
+        J[circuit.point_node[b], k] -= 1.0
+    return J
+
+
+def source_injections(circuit: Circuit, sources, f: float) -> np.ndarray:
+    J = np.zeros((len(circuit.nodes), len(sources)), dtype=complex)
+    for k, s in enumerate(sources):
+        i = s.parts.get(f, 0)
+        J[circuit.point_node[s.a], k] += i
+        J[circuit.point_node[s.b], k] -= i
+    return J
+
+
+def contributions(fac: Factored, src: Solution, test: Solution) -> np.ndarray:
+    """(branches × sources × pairs) complex share of each branch in each pair voltage: Z_b·I_b(s)·I_b(test)."""
+    return fac.z[:, None, None] * src.I[:, :, None] * test.I[:, None, :]
+
+
+def branch_owner(circuit: Circuit) -> list[str]:
+    """The plan element each branch belongs to: its conductor, or the metal part of a plate branch."""
+    return [b.conductor if b.conductor else b.name.split(":")[1] for b in circuit.branches]
+
+
+def pair_path(circuit: Circuit, a: str, b: str) -> list[tuple[int, float]]:
+    """Branches (index, ±1 orientation from a to b) of the least-resistance path between two points."""
+    n1, n2, r, *_ = circuit._arrays
+    n = len(circuit.nodes)
+    w = np.maximum(np.abs(r), 1e-9)
+    # keep the least-resistance branch between each node pair
+    order = np.argsort(w, kind="stable")
+    best: dict[tuple[int, int], int] = {}
+    for idx in order:
+        key = (min(n1[idx], n2[idx]), max(n1[idx], n2[idx]))
+        if key not in best:
+            best[key] = int(idx)
+    rows = [k[0] for k in best] + [k[1] for k in best]
+    cols = [k[1] for k in best] + [k[0] for k in best]
+    vals = [w[i] for i in best.values()] * 2
+    A = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsr()
+    ia, ib = circuit.point_node[a], circuit.point_node[b]
+    _, pred = csgraph.dijkstra(A, directed=False, indices=ia, return_predecessors=True)
+    if ib != ia and pred[ib] < 0:
+        return []
+    path = []
+    v = ib
+    while v != ia:
+        u = pred[v]
+        idx = best[(min(u, v), max(u, v))]
+        # orientation: +1 when the branch runs n1 -> n2 in the direction a -> b
+        path.append((idx, 1.0 if (n1[idx] == u and n2[idx] == v) else -1.0))
+        v = u
+    path.reverse()
+    return path
+
+
+def path_drop(fac: Factored, sol: Solution, path) -> np.ndarray:
+    """Drop Z·I along a path from its first point to its last, for every source column (V)."""
+    total = np.zeros(sol.I.shape[1], dtype=complex)
+    for idx, sgn in path:
+        total += sgn * fac.z[idx] * sol.I[idx]
+    return total

@@ -1,0 +1,56 @@
+"""Levels and hearing: dBV, dBu, sound pressure at the listening position, the threshold of hearing.
+
+References: ISO 226:2003 *Acoustics — Normal equal-loudness-level contours*,
+Table 1, threshold of hearing T_f (free field, binaural, otologically normal
+listeners 18–25 years); ISO 226:2023 changes only the 20 Hz value (78.1 dB).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "dbv", "dbu_from_dbv", "spl_at_listener"]
+
+#: ISO 226:2003 Table 1 frequencies (Hz) and threshold of hearing T_f (dB SPL)
+ISO226_FREQ = (20, 25, 31.5, 40, 50, 63, 80, 100, 125, 160, 200, 250, 315, 400, 500, 630, 800, 1000,
+               1250, 1600, 2000, 2500, 3150, 4000, 5000, 6300, 8000, 10000, 12500)
+ISO226_TF = (78.5, 68.7, 59.5, 51.1, 44.0, 37.5, 31.5, 26.5, 22.1, 17.9, 14.4, 11.4, 8.6, 6.2, 4.4, 3.0,
+             2.2, 2.4, 3.5, 1.7, -1.3, -4.2, -6.0, -5.4, -1.5, 6.0, 12.6, 13.9, 12.3)
+
+#: 0 dBu in volts (√0.6 V: 1 mW into 600 Ω)
+DBU_REF = math.sqrt(0.6)
+
+
+def threshold_of_hearing(f: float) -> float:
+    """T_f (dB SPL) at frequency f: the ISO 226:2003 table, linear in log-frequency between its rows.
+
+    Outside 20 Hz – 12.5 kHz the end value is held (the standard gives no value there).
+    """
+    lf = math.log10(min(max(f, ISO226_FREQ[0]), ISO226_FREQ[-1]))
+    return float(np.interp(lf, np.log10(ISO226_FREQ), ISO226_TF))
+
+
+def dbv(volts: float) -> float:
+    """Level in dBV (0 dBV = 1 V rms); −inf for zero."""
+    return 20 * math.log10(volts) if volts > 0 else -math.inf
+
+
+def dbu_from_dbv(level_dbv: float) -> float:
+    """dBu from dBV: +20·log10(1/√0.6) = +2.2185 dB."""
+    return level_dbv - 20 * math.log10(DBU_REF)
+
+
+def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, impedance: float, distance: float) -> float:
+    """Sound pressure level (dB SPL) at the listener of a voltage at the plan's output.
+
+    V at the speaker = v_out·10^(gain/20); electrical power P = V²/Z; SPL =
+    sensitivity (dB SPL at 1 W, 1 m) + 10·log10(P / 1 W) − 20·log10(d / 1 m):
+    one speaker, free field, inverse-square law (common practice).
+    """
+    if v_out <= 0:
+        return -math.inf
+    v = v_out * 10 ** (amp_gain_db / 20)
+    p = v * v / impedance
+    return sensitivity_db + 10 * math.log10(p) - 20 * math.log10(distance)

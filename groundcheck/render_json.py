@@ -1,0 +1,66 @@
+"""The JSON document of a result: stable keys, no NaN or infinity, the same bytes on every run.
+
+The layout is documented in ``docs/json.md``.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import numpy as np
+
+from .analysis import Result
+
+__all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]
+
+#: bumped when a key is renamed or removed (adding keys does not bump it)
+SCHEMA_VERSION = 1
+
+
+def clean(x, digits: int = 9):
+    """JSON-safe copy: numpy scalars to Python, non-finite floats to None, floats to ``digits`` significant digits."""
+    if isinstance(x, dict):
+        return {str(k): clean(v, digits) for k, v in x.items()}
+    if isinstance(x, (list, tuple)):
+        return [clean(v, digits) for v in x]
+    if isinstance(x, (np.bool_, bool)):
+        return bool(x)
+    if isinstance(x, (np.integer, int)):
+        return int(x)
+    if isinstance(x, (np.floating, float)):
+        x = float(x)
+        if not math.isfinite(x):
+            return None
+        return float(f"{x:.{digits}g}")
+    if isinstance(x, complex):
+        return clean(abs(x), digits)
+    return x
+
+
+def result_document(result: Result) -> dict:
+    """The result as plain data (the JSON document before serialisation)."""
+    plan = result.plan
+    doc = {
+        "groundcheck": {"schema": SCHEMA_VERSION},
+        "plan": {"title": plan.title, "file": plan.file, "files": list(plan.files),
+                 "mains": None if plan.mains is None else {"voltage_v": plan.mains.voltage, "frequency_hz": plan.mains.frequency},
+                 "ambient_c": plan.ambient, "points": len(plan.points), "metal_parts": len(plan.metals),
+                 "conductors": len(plan.conductors), "stages": len(plan.stages), "channels": list(plan.channels)},
+        "summary": {**result.counts(), "worst": result.worst(), "loops_total": result.loop_total},
+        "findings": [f.as_dict() for f in result.findings],
+        "loops": [lp.as_dict() for lp in result.loops],
+        "protective_earth": None if result.safety is None else result.safety.as_dict(),
+        "hum": None if result.hum is None else result.hum.as_dict(),
+        "coupling": result.coupling,
+        "network": None,
+    }
+    if result.circuit is not None:
+        doc["network"] = {"nodes": len(result.circuit.nodes), "branches": len(result.circuit.branches),
+                          "metal_parts": result.circuit.plate_notes,
+                          "sources": result.hum.network if result.hum is not None else []}
+    return clean(doc)
+
+
+def render_json(result: Result) -> str:
+    return json.dumps(result_document(result), indent=2, ensure_ascii=False) + "\n"
