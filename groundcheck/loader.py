@@ -103,6 +103,7 @@ class _Loader:
         self.files: list[str] = []
         self.count = 0
         self._local_cache: dict[str, set[str]] = {}
+        self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
 
     # ---- files and includes ------------------------------------------------
     def read_items(self, text: str, shown: str, stack: tuple[Path, ...]) -> list:
@@ -229,6 +230,10 @@ class _Loader:
                     continue
                 if st.keyword not in BUILDERS:
                     raise PlanError(f"unknown keyword {st.keyword!r}", st.loc, suggest_keyword(st.keyword, KEYWORDS))
+                if st.broken:
+                    if st.label:
+                        self.broken.add(prefix + st.label)
+                    continue
                 if prefix and st.keyword in HEADER_KEYWORDS:
                     raise PlanError(f"'{st.keyword}' belongs at the top level, not inside a block", st.loc, "move it out of the block")
                 record, refs = build(st)
@@ -239,6 +244,8 @@ class _Loader:
                 out.append((st, self.place(record, st, prefix, tf, scopes), refs))
             except PlanError as e:
                 self.errors.append(e)
+                if st.label:
+                    self.broken.add(prefix + st.label)
                 if isinstance(e, LimitError):
                     return
 
@@ -334,7 +341,7 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
     nodes = set(points) | set(metals)
 
     def check(name, loc, what, pool):
-        if name is not None and name not in pool:
+        if name is not None and name not in pool and name not in ld.broken:
             if name == PE_POINT:
                 hint = "declare the supply with 'mains 230 V 50 Hz, ...' to get the inlet's mains.pe"
             else:

@@ -37,6 +37,7 @@ class Statement:
     label: str | None = None
     label_loc: Location | None = None
     phrases: list[list[Item]] = field(default_factory=list)
+    broken: bool = False          # an error was already reported inside it
 
 
 def make_items(tokens, file: str, errors: list[PlanError]) -> list[Item]:

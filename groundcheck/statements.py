@@ -249,7 +249,7 @@ def conductor(stmt: Statement):
             kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
         elif first.kind == "word" and first.value in ROLE_WORDS:
             kw["role"] = r.word()
-        elif first.kind == "word" and first.value in MATERIALS:
+        elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
             kw["material"] = _material(r.word())
         elif first.kind == "word" and first.value in named:
             word = r.word()

@@ -117,6 +117,7 @@ def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dic
 def _statement(tree: Tree, file: str, errors: list[PlanError]) -> Statement:
     kw: Token = tree.children[0]
     st = Statement(str(kw), Location(file, kw.line, kw.column))
+    before = len(errors)
     for child in tree.children[1:]:
         if isinstance(child, Token) and child.type == "LABEL":
             st.label = child.value.rstrip(": \t")
@@ -124,6 +125,7 @@ def _statement(tree: Tree, file: str, errors: list[PlanError]) -> Statement:
         elif isinstance(child, Tree) and child.data == "attr":
             st.phrases.append(make_items(child.children, file, errors))
     st.phrases = [p for p in st.phrases if p]
+    st.broken = len(errors) > before
     return st
 
 

@@ -1,0 +1,29 @@
+"""Helpers shared by the tests (imported as ``helpers``)."""
+
+from __future__ import annotations
+
+import shutil
+import textwrap
+from pathlib import Path
+
+import pytest
+
+from groundcheck import load_text
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLES = sorted((ROOT / "examples").glob("*.gplan"))
+
+needs_ngspice = pytest.mark.skipif(shutil.which("ngspice") is None,
+                                   reason="ngspice is not installed (Debian package 'ngspice'; .ci/run installs it)")
+
+HEADER = """plan "test"
+mains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2
+"""
+
+
+def plan(text: str, header: bool = True, name: str = "t.gplan"):
+    """A plan from inline text (with a mains header unless ``header`` is False)."""
+    body = textwrap.dedent(text)
+    return load_text((HEADER if header else "") + body, name)
+
+

@@ -1,0 +1,69 @@
+"""Units to SI, and the AWG sizes against ASTM B258 and the handbook wire tables."""
+
+import math
+
+import pytest
+
+from groundcheck.impedance import resistivity
+from groundcheck.units import UnitError, awg_area, awg_diameter, format_si, parse_quantity
+
+# ASTM B258 diameters and areas as tabulated in REFERENCE.md (which checks them against
+# NBS Handbook 100, *Copper Wire Tables*, within 0.1 %).
+AWG_TABLE = [  # AWG, d (mm), A (mm²), Ω/km at 20 °C
+    (10, 2.588, 5.261, 3.277),
+    (12, 2.053, 3.309, 5.211),
+    (14, 1.628, 2.081, 8.286),
+    (16, 1.291, 1.309, 13.17),
+    (18, 1.024, 0.8231, 20.95),
+    (20, 0.8118, 0.5176, 33.31),
+    (22, 0.6438, 0.3255, 52.96),
+    (24, 0.5106, 0.2047, 84.22),
+]
+
+
+@pytest.mark.parametrize("n,d,a,rkm", AWG_TABLE)
+def test_awg_against_astm_b258_table(n, d, a, rkm):
+    assert awg_diameter(n) * 1e3 == pytest.approx(d, rel=1e-3)
+    assert awg_area(n) * 1e6 == pytest.approx(a, rel=1e-3)
+    # resistance per km of annealed copper (IEC 60028 resistivity) against the handbook table
+    assert resistivity("copper") / awg_area(n) * 1e3 == pytest.approx(rkm, rel=2e-3)
+
+
+def test_awg_formula_definition():
+    # ASTM B258: 36 AWG is 0.127 mm exactly and 39 gauges make a factor of 92 in diameter
+    assert awg_diameter(36) == pytest.approx(0.127e-3)
+    assert awg_diameter(-3) / awg_diameter(36) == pytest.approx(92.0)
+
+
+@pytest.mark.parametrize("num,unit,value,kind", [
+    ("80", "mm", 0.08, "length"), ("2", "cm", 0.02, "length"), ("1", "in", 0.0254, "length"),
+    ("0.75", "mm2", 0.75e-6, "area"), ("1.5", "mm²", 1.5e-6, "area"),
+    ("0.5", "mohm", 0.5e-3, "resistance"), ("10", "Ω", 10.0, "resistance"), ("4.7", "kohm", 4700.0, "resistance"),
+    ("500", "mA", 0.5, "current"), ("230", "V", 230.0, "voltage"), ("50", "Hz", 50.0, "frequency"),
+    ("40", "uT", 40e-6, "flux density"), ("40", "µT", 40e-6, "flux density"), ("47", "uF", 47e-6, "capacitance"),
+    ("100", "nF", 100e-9, "capacitance"), ("30", "dB", 30.0, "level"), ("25", "C", 25.0, "temperature"),
+    ("25", "°C", 25.0, "temperature"), ("300", "K", 300 - 273.15, "temperature"), ("18", "AWG", awg_area(18), "area"),
+])
+def test_parse_quantity(num, unit, value, kind):
+    v, k = parse_quantity(num, unit)
+    assert k == kind
+    assert v == pytest.approx(value)
+
+
+def test_unknown_unit_has_hint():
+    with pytest.raises(UnitError) as e:
+        parse_quantity("3", "MM")
+    assert "did you mean 'mm'" in e.value.hint
+    with pytest.raises(UnitError):
+        parse_quantity("3", "furlong")
+
+
+def test_copper_temperature_coefficient():
+    # IEC 60028: α20 = 0.00393 /K for annealed copper
+    assert resistivity("copper", 70.0) / resistivity("copper", 20.0) == pytest.approx(1 + 0.00393 * 50)
+
+
+def test_format_si():
+    assert format_si(0.0123, "Ω") == "12.3 mΩ"
+    assert format_si(4.7e-6, "F") == "4.7 µF"
+    assert math.isfinite(parse_quantity("1e-3", "V")[0])
