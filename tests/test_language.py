@@ -52,7 +52,7 @@ def test_header_and_elements_in_si():
     assert p.currents[0].parts == ((pytest.approx(0.2e-3), 50.0),) and p.currents[0].role == "leakage"
     assert p.heaters[0].reference == "pe_stud"
     # every element keeps its location
-    assert c["pe_lead"].location.line == 8 and c["pe_lead"].location.column == 1
+    assert c["pe_lead"].location.line == 9 and c["pe_lead"].location.column == 1
 
 
 def test_awg_and_routes():
