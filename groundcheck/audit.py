@@ -163,15 +163,27 @@ def _open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         if ties:
             return ties[0].name
     if closed_by == "second-chassis-bond":
-        # the bond that is not the one nearest the protective earth: prefer a fastening of a signal point
-        bonds = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)
-                 or (c.kind == "bolt" and (c.a in ctx.metals or c.b in ctx.metals))]
-        far = [c for c in bonds if (c.a in ctx.signal_points or c.b in ctx.signal_points)]
-        if far:
-            return far[0].name
-        if bonds:
-            return bonds[0].name
+        # a signal point fastened to the metal (an uninsulated jack, say) is the bond to remove
+        ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {x for r in ctx.plan.currents for x in (r.a, r.b)}
+        bolts = [c for c in candidates if c.kind == "bolt" and ((c.a in ctx.metals and c.b in ends)
+                                                                or (c.b in ctx.metals and c.a in ends))]
+        if bolts:
+            return bolts[0].name
+        # otherwise keep the bond nearest the protective earth and open the farthest
+        crossing = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)]
+        if crossing:
+            return max(crossing, key=lambda c: (_pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name)).name
     return candidates[-1].name
+
+
+def _pe_distance(ctx: AuditContext, node: str) -> float:
+    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when unknown)."""
+    pe = [v for v in ctx.G.adj.get(PE_POINT, {}) if ctx.G.nodes[v].get("pos") is not None]
+    here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
+    if not pe or here is None:
+        return 0.0
+    p = ctx.G.nodes[pe[0]]["pos"]
+    return ((p[0] - here[0]) ** 2 + (p[1] - here[1]) ** 2) ** 0.5
 
 
 def _loop_text(lp: Loop) -> str:

@@ -1,0 +1,185 @@
+"""Topology rules: each fires on its trigger plan and stays quiet on its near miss; loop invariants."""
+
+import networkx as nx
+import numpy as np
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from groundcheck import load
+from groundcheck.analysis import analyze
+from groundcheck.audit import audit
+from groundcheck.network import fundamental_loops, loop_count
+
+from helpers import EXAMPLES, plan
+
+BASE = """
+metal deck: aluminium 2 mm, 300 x 200 mm, touchable
+point pe_stud: stud, at 20,180 on deck
+wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective
+bolt pe_bolt: pe_stud to deck
+point gnd: stud, at 60,180 on deck
+bolt gnd_bolt: gnd to deck
+point star: star, at 150,100 on deck
+point sleeve: sleeve, at 290,50 on deck
+point k: pad, at 200,60 on deck
+wire in_gnd: sleeve to star, 150 mm, 0.5 mm2, signal
+wire k_gnd: k to star, 60 mm, 0.5 mm2, signal
+wire bond: star to gnd, 120 mm, 0.75 mm2, signal
+stage v1: sleeve to k, gain 30 dB
+"""
+
+
+def codes(text, header=True, full=False):
+    p = plan(text, header=header)
+    found = analyze(p).findings if full else audit(p)[0]
+    return sorted({f.code for f in found if f.severity != "note" or f.code in ("GC104", "GC401")})
+
+
+def test_base_plan_is_clean():
+    assert codes(BASE, full=True) == []
+
+
+# (code, trigger plan, near miss); each pair differs by the mistake alone
+CASES = [
+    ("GC101", BASE + "wire extra: sleeve to star, 150 mm, 0.5 mm2, signal\n", BASE),
+    ("GC103", BASE.replace("wire in_gnd: sleeve to star", "wire in_gnd: sleeve to k"), BASE),
+    ("GC104", BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\n",
+     BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\npoint p2: pad\nwire l2: lonely to p2, 10 mm, 0.5 mm2\n"),
+    ("GC105", BASE + "bolt jack_nut: sleeve to deck\n", BASE),
+    ("GC106", BASE.replace("wire bond: star to gnd, 120 mm, 0.75 mm2, signal\n", ""), BASE),
+    ("GC107", BASE + "heater h: 6.3 V, 2 A, ac, floating\n", BASE + "heater h: 6.3 V, 2 A, ac, reference gnd\n"),
+    ("GC108", BASE + "shield sh: sleeve to star, 150 mm, 0.2 mm2, terminated both\n",
+     BASE + "shield sh: sleeve to star, 150 mm, 0.2 mm2, terminated star\n"),
+    ("GC109", BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\n",
+     BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\nwire bg: b to gnd, 10 mm, 0.5 mm2\n"),
+    ("GC110", BASE + "wire self: k to k, 10 mm, 0.5 mm2\n", BASE),
+    # protective earth (IEC 60364-5-54 and the product-safety bonding clauses named in the rule catalogue)
+    ("GC201", BASE.replace("wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective\n", ""), BASE),
+    ("GC202", BASE.replace("wire bond: star to gnd", "wire bond: star to pe_stud"), BASE),
+    ("GC203", BASE.replace("wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective",
+                           "lift pe_lift: mains.pe to pe_stud, 10 ohm, 47 nF"), BASE),
+    ("GC204", BASE.replace("50 mm, 1.0 mm2, protective", "50 mm, 0.5 mm2, protective"),
+     BASE.replace("50 mm, 1.0 mm2, protective", "50 mm, 0.75 mm2, protective")),
+    ("GC205", BASE + "metal cover: steel 1 mm, 300 x 200 mm, touchable\n",
+     BASE + "metal cover: steel 1 mm, 300 x 200 mm, touchable\nbolt cover_screws: cover to deck, protective\n"),
+]
+
+
+@pytest.mark.parametrize("code,trigger,near_miss", CASES, ids=[c[0] for c in CASES])
+def test_rule_fires_on_trigger_not_on_near_miss(code, trigger, near_miss):
+    assert code in codes(trigger)
+    assert code not in codes(near_miss)
+
+
+def test_shared_return_electrical_rule():
+    trig = (BASE + """
+point res_neg: cap, at 100,150 on deck
+point ct: centre-tap, at 60,150 on deck
+wire k_gnd2: k to res_neg, 90 mm, 0.5 mm2, signal
+wire sup: res_neg to star, 60 mm, 0.75 mm2, return
+wire ctw: ct to star, 100 mm, 0.5 mm2, return
+rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, load 30 mA
+""").replace("wire k_gnd: k to star, 60 mm, 0.5 mm2, signal\n", "")
+    near = BASE + """
+point res_neg: cap, at 100,150 on deck
+point ct: centre-tap, at 60,150 on deck
+wire sup: res_neg to star, 60 mm, 0.75 mm2, return
+wire ctw: ct to res_neg, 50 mm, 0.5 mm2, return
+rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, load 30 mA
+"""
+    p = plan(trig)
+    shared = [f for f in analyze(p).findings if f.code == "GC102"]
+    assert len(shared) == 1 and "sup" in shared[0].elements
+    # transfer resistance = the shared wire's resistance ρL/A (IEC 60028 copper at 20 °C), worked by hand
+    assert shared[0].figures["transfer_resistance_mohm"] == pytest.approx(1.7241e-8 * 0.06 / 0.75e-6 * 1e3, rel=1e-6)
+    assert "GC102" not in codes(near, full=True)
+
+
+def test_pe_limits_and_fault_rules():
+    over = BASE.replace("bolt pe_bolt: pe_stud to deck", "bolt pe_bolt: pe_stud to deck, contact 150 mohm")
+    assert "GC206" in codes(over, full=True) and "GC206" not in codes(BASE, full=True)
+    hdr = 'plan "t"\nmains 230 V 50 Hz, fuse 16 A slow, i2t 100000 A2s, line-conductor 0.75 mm2\n'
+    assert "GC207" in codes(hdr + BASE.replace("1.0 mm2, protective", "0.75 mm2, protective"), header=False, full=True)
+    hdr_ok = 'plan "t"\nmains 230 V 50 Hz, fuse 16 A slow, i2t 10 A2s, line-conductor 0.75 mm2\n'
+    assert "GC207" not in codes(hdr_ok + BASE, header=False, full=True)
+    weak = 'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, loop-impedance 100 ohm\n'
+    assert "GC208" in codes(weak + BASE, header=False, full=True)
+    assert "GC208" not in codes(BASE, full=True)
+
+
+def test_loop_classes_and_areas():
+    p = plan(BASE + "bolt jack_nut: sleeve to deck\nshield sh: sleeve to star, 150 mm, 0.2 mm2, terminated both\n")
+    _, ctx = audit(p)
+    classes = sorted(lp.closed_by for lp in ctx.loops)
+    assert classes == ["second-chassis-bond", "shield-both-ends"] or "shield-both-ends" in classes
+    chassis = next(lp for lp in ctx.loops if lp.closed_by == "second-chassis-bond")
+    # the loop sleeve -> star -> gnd -> (deck, straight line) -> sleeve, worked by the shoelace formula
+    pts = [(0.29, 0.05), (0.15, 0.10), (0.06, 0.18)]
+    x, y = np.array(pts).T
+    area = abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2
+    assert chassis.area == pytest.approx(area)
+    assert chassis.open_at == "jack_nut"
+
+
+def test_examples_mistakes_are_found_with_fixes():
+    by_name = {p.name: analyze(load(p)) for p in EXAMPLES}
+    dm = by_name["dual-mono-line-stage.gplan"]
+    found = {(f.code, e) for f in dm.findings for e in f.elements}
+    assert ("GC102", "left.sup_gnd") in found and ("GC102", "right.sup_gnd") in found      # mistake 1
+    assert ("GC101", "channel_tie") in found                                               # mistake 2
+    assert all(f.fix for f in dm.findings)
+    mb = by_name["monoblock-power-amp.gplan"]
+    got = {f.code for f in mb.findings}
+    assert {"GC202", "GC105", "GC108"} <= got                                               # mistakes 1, 2, 3
+    assert not {"GC201", "GC203", "GC204", "GC205", "GC206", "GC207"} & got                 # the clean parts stay quiet
+
+
+# --- loop invariants -------------------------------------------------------------------------------
+
+@st.composite
+def multigraphs(draw):
+    n = draw(st.integers(1, 12))
+    edges = draw(st.lists(st.tuples(st.integers(0, n - 1), st.integers(0, n - 1)), max_size=30))
+    G = nx.MultiGraph()
+    G.add_nodes_from(range(n))
+    for i, (u, v) in enumerate(edges):
+        G.add_edge(u, v, key=f"e{i:03d}")
+    return G
+
+
+def _gf2_rank(rows):
+    m = np.array(rows, dtype=np.uint8) % 2
+    rank = 0
+    for c in range(m.shape[1] if m.size else 0):
+        piv = [r for r in range(rank, m.shape[0]) if m[r, c]]
+        if not piv:
+            continue
+        m[[rank, piv[0]]] = m[[piv[0], rank]]
+        for r in range(m.shape[0]):
+            if r != rank and m[r, c]:
+                m[r] ^= m[rank]
+        rank += 1
+    return rank
+
+
+@settings(max_examples=150, deadline=None)
+@given(multigraphs())
+def test_loop_count_is_cycle_rank_and_basis_is_independent(G):
+    E, V, C = G.number_of_edges(), G.number_of_nodes(), nx.number_connected_components(G)
+    assert loop_count(G) == E - V + C
+    loops = fundamental_loops(G)
+    selfloops = nx.number_of_selfloops(G)
+    assert len(loops) + selfloops == E - V + C
+    keys = sorted(k for _, _, k in G.edges(keys=True))
+    col = {k: i for i, k in enumerate(keys)}
+    rows = []
+    for lp in loops:
+        n = len(lp.nodes)
+        for i, k in enumerate(lp.edges):            # consecutive members are joined by the named conductor
+            u, v = lp.nodes[i], lp.nodes[(i + 1) % n]
+            assert G.has_edge(u, v, key=k)
+        row = [0] * len(keys)
+        for k in lp.edges:
+            row[col[k]] += 1
+        rows.append(row)
+    assert _gf2_rank(rows) == len(loops)           # independent over GF(2): a basis of the cycle space
