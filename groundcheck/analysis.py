@@ -88,7 +88,7 @@ def _shared_returns(plan: Plan, circuit: Circuit) -> tuple[list[Finding], list[d
                 "GC102", "fault",
                 f"{s.kind} return {s.name} ({s.a} → {s.b}) shares {', '.join(shared)} with stage {st.name} ({st.a} – {st.b})",
                 s.location, (s.name, st.name, *shared),
-                {"transfer_resistance_mohm": round(transfer * 1e3, 4), "stage_gain_db": st.gain},
+                {"transfer_resistance_mohm": float(f"{transfer * 1e3:.6g}"), "stage_gain_db": st.gain},
                 f"join {s.a} and {s.b} by a short wire of their own, then one wire to the star; "
                 f"take {st.b} and {st.a} to the signal star by wires that carry no supply current"))
     return findings, rows
