@@ -4,9 +4,13 @@ The plate is a finite-volume grid of sheet resistance ρ/t; each fastener is a
 disc of radius :data:`~groundcheck.impedance.FASTENER_RADIUS` whose grid
 nodes are joined into one node.  Kron reduction (Schur complement of the
 interior nodes) leaves the exact equivalent network between the fasteners for
-that grid.  The grid's error is estimated by solving again on a grid twice as
-coarse (Richardson: for this second-order scheme the fine result is off by
-about a third of the difference).
+that grid.
+
+Accuracy: the grid step defaults to half the fastener radius.  The disc's
+staircase outline makes convergence irregular; in the tests the default grid
+is within 6 % of a grid four times finer.  Each plate also reports the
+relative change against a grid twice as coarse, as an indication.  Against
+the milliohms of the wiring, a plate's microohms are rarely what matters.
 
 References: G. Kron, *Tensor Analysis of Networks*, 1939 (network reduction);
 finite-volume discretisation of Laplace's equation, e.g. Patankar, *Numerical
@@ -37,7 +41,7 @@ class PlateResult:
     names: tuple[str, ...]
     conductance: np.ndarray          # k × k Laplacian: −G[i, j] is the conductance between i and j
     step: float                      # grid step used, m
-    error: float                     # estimated relative error of the resistances
+    error: float                     # relative change against a grid twice as coarse (an indication)
 
     def resistance(self, i: int, j: int) -> float:
         """Two-point resistance between fasteners i and j, Ω (the others left floating)."""
@@ -133,6 +137,6 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
             off_c = -coarse[~np.eye(len(contacts), dtype=bool)]
             mask = np.abs(off_f) > 1e-12 * np.abs(off_f).max()
             if mask.any():
-                # relative change of the pairwise conductances, a third of it (second order)
-                err = float(np.max(np.abs(off_c[mask] - off_f[mask]) / np.abs(off_f[mask])) / 3.0)
+                # relative change of the pairwise conductances against the coarser grid
+                err = float(np.max(np.abs(off_c[mask] - off_f[mask]) / np.abs(off_f[mask])))
     return PlateResult(tuple(names), red, used, err)
