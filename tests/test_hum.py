@@ -1,0 +1,191 @@
+"""Hum and buzz: rectifier simulation, pickup, levels and hearing, against outside references."""
+
+import math
+import subprocess
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from groundcheck import load
+from groundcheck.analysis import analyze
+from groundcheck.hearing import ISO226_FREQ, ISO226_TF, dbu_from_dbv, dbv, spl_at_listener, threshold_of_hearing
+from groundcheck.model import FieldSource, Rectifier
+from groundcheck.network import polygon_area
+from groundcheck.pickup import emf, loop_flux
+from groundcheck.rectifier import harmonic_phasors, simulate
+
+from helpers import EXAMPLES, needs_ngspice, plan
+
+
+def _ngspice_rectifier(vrms, rw, c, iload, f):
+    """Transient analysis of a centre-tapped full-wave rectifier in ngspice; last 5 mains periods."""
+    vpk = vrms * math.sqrt(2)
+    text = f"""rect
+V1 a 0 SIN(0 {vpk} {f})
+V2 0 b SIN(0 {vpk} {f})
+R1 a a2 {rw}
+R2 b b2 {rw}
+D1 a2 out dmod
+D2 b2 out dmod
+C1 out 0 {c}
+I1 out 0 DC {iload}
+.model dmod D(IS=1e-14 N=1)
+.control
+set numdgt=10
+tran 2u 1.5 {1.5 - 5 / f} 2u
+linearize
+wrdata OUT v(out) i(V1) i(V2)
+.endc
+.end
+"""
+    with tempfile.TemporaryDirectory() as d:
+        out = Path(d) / "r.out"
+        cir = Path(d) / "r.cir"
+        cir.write_text(text.replace("OUT", str(out)))
+        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=120, check=False)
+        data = np.loadtxt(out)
+    v = data[:, 1]
+    i = np.abs(data[:, 3]) + np.abs(data[:, 5])
+    return v.mean(), math.sqrt(np.mean(i * i)), i.max()
+
+
+@needs_ngspice
+@pytest.mark.parametrize("vrms,rw,c,iload,f", [(250, 120, 47e-6, 0.025, 50), (330, 60, 100e-6, 0.12, 60),
+                                               (30, 2, 4700e-6, 1.0, 50)])
+def test_rectifier_against_ngspice_transient(vrms, rw, c, iload, f):
+    """DC voltage and RMS charging current of our simulation vs an ngspice transient analysis of the same
+    circuit (diode IS=1e-14, N=1, whose drop at these currents is about 0.7–0.8 V; ours uses 0.75 V)."""
+    ours = simulate(Rectifier("r", "a", "b", "full-wave", vrms, rw, 0.75, c, load_current=iload), f)
+    v_dc, i_rms, i_pk = _ngspice_rectifier(vrms, rw, c, iload, f)
+    assert ours.dc_voltage == pytest.approx(v_dc, rel=0.01)
+    assert ours.rms_current == pytest.approx(i_rms, rel=0.03)
+    assert ours.peak_current == pytest.approx(i_pk, rel=0.05)
+
+
+def test_ripple_against_textbook_approximation():
+    # Horowitz & Hill §1.6.3A: ΔVpp ≈ I/(2fC) for full-wave, slightly conservative; I/(fC) for half-wave
+    for topo, div in (("full-wave", 2), ("half-wave", 1)):
+        r = simulate(Rectifier("r", "a", "b", topo, 250, 1.0, 0.7, 470e-6, load_current=0.05), 50)
+        approx = 0.05 / (div * 50 * 470e-6)
+        assert 0.8 * approx < r.ripple_pp <= approx
+
+
+def test_ripple_fundamental_is_twice_mains_for_full_wave():
+    # common practice: full-wave rectification puts the ripple at 2f; half-wave at f
+    fw = simulate(Rectifier("r", "a", "b", "full-wave", 250, 100, 0.7, 47e-6, load_current=0.03), 50)
+    ph = np.abs(harmonic_phasors(fw.current, 10))
+    assert ph[1] < 1e-9 * ph[2] and ph[3] < 1e-9 * ph[2] and ph[2] > 0
+    hw = simulate(Rectifier("r", "a", "b", "half-wave", 250, 100, 0.7, 47e-6, load_current=0.03), 50)
+    assert np.abs(harmonic_phasors(hw.current, 2))[1] > 0
+    assert fw.dc_current == pytest.approx(0.03, rel=1e-3)          # charge balance: mean charging = load current
+
+
+def test_fft_of_pulse_train_matches_fourier_series():
+    # rectangular pulses of height A and duty d: rms of harmonic n = √2·A·d·|sinc(n·d)| (Fourier series);
+    # 4096 samples: the discrete transform differs from the series only by aliasing, below 1e-5
+    n, A, d = 4096, 2.0, 0.125
+    x = np.where(np.arange(n) < d * n, A, 0.0)
+    ph = harmonic_phasors(x, 20)
+    assert ph[0].real == pytest.approx(A * d)
+    for k in range(1, 21):
+        assert abs(ph[k]) == pytest.approx(math.sqrt(2) * A * d * abs(np.sinc(k * d)), rel=1e-5)
+
+
+def test_polygon_areas():
+    assert polygon_area([(0, 0), (1, 0), (1, 1), (0, 1)]) == pytest.approx(1.0)
+    assert polygon_area([(0, 0), (0, 1), (1, 1), (1, 0)]) == pytest.approx(1.0)       # either orientation
+    assert polygon_area([(0, 0), (4, 0), (0, 3)]) == pytest.approx(6.0)
+    assert polygon_area([(0, 0), (2, 0), (2, 1), (1, 1), (1, 2), (0, 2)]) == pytest.approx(3.0)   # L shape
+    assert polygon_area([(0, 0), (1, 1), (2, 2)]) == 0.0                                         # collinear
+
+
+def test_faraday_worked_example():
+    # REFERENCE.md: 1 µT over 100 cm² at 50 Hz → 3.14 µV; a distant dipole is uniform over the loop
+    src = FieldSource("t", "transformer", (0.0, 0.0), b_ref=1e-6 * (100.0 ** 3), r_ref=0.01)   # 1 µT at 1 m
+    side = 0.1
+    sq = [(1 - side / 2, -side / 2), (1 + side / 2, -side / 2), (1 + side / 2, side / 2), (1 - side / 2, side / 2)]
+    phi = loop_flux(src, sq)
+    assert abs(phi) == pytest.approx(1e-6 * 1e-2, rel=0.01)
+    assert emf(1e-6 * 1e-2, 50) == pytest.approx(3.14159e-6, rel=1e-5)
+
+
+def test_dipole_falls_as_inverse_cube():
+    # doubling the distance: −18.1 dB (REFERENCE.md, magnetic dipole)
+    src = FieldSource("t", "transformer", (0.0, 0.0), b_ref=1e-5, r_ref=0.05)
+    def small_loop(r):
+        e = 1e-3
+        return [(r - e, -e), (r + e, -e), (r + e, e), (r - e, e)]
+    ratio = loop_flux(src, small_loop(0.4)) / loop_flux(src, small_loop(0.2))
+    assert 20 * math.log10(abs(ratio)) == pytest.approx(-18.06, abs=0.05)
+
+
+def test_single_loop_solved_by_hand():
+    # a rectangular loop of two wires with stated resistances (no inductance), far from a transformer:
+    # I = EMF / (R1 + R2) and the stage across wire 1 sees I·R1 (Faraday's law and Ohm's law by hand)
+    p = plan("""
+        listening output 1 V
+        point a: pad, at 0,0
+        point b: pad, at 100,0
+        wire w1: a to b, 100 mm, resistance 10 mohm
+        wire w2: b to a, 300 mm, resistance 30 mohm, via 100,100 0,100
+        stage s: a to b, gain 20 dB
+        field t: transformer, at 1000,50, 1 uT at 100 mm
+        """)
+    r = analyze(p)
+    src = p.fields[0]
+    phi = loop_flux(src, [(0, 0), (0.1, 0), (0.1, 0.1), (0, 0.1)])
+    e = emf(phi, 50)
+    i = e / 0.040
+    v_out = i * 0.010 * 10
+    ch = r.hum.channels["main"]
+    assert ch.total_v == pytest.approx(v_out, rel=1e-6)
+    loop = r.hum.loops[0]["sources"]["t"]["per_frequency"][0]
+    assert loop["emf_v"] == pytest.approx(e, rel=1e-9) and loop["current_a"] == pytest.approx(i, rel=1e-6)
+
+
+def test_levels():
+    # 0 dBV = 1 V rms; 0 dBu = √0.6 V; 0 dBV = +2.2185 dBu
+    assert dbv(1.0) == 0.0 and dbv(0.1) == pytest.approx(-20.0)
+    assert dbu_from_dbv(0.0) == pytest.approx(2.2185, abs=1e-4)
+    # 2.83 V into 8 Ω is 1 W: SPL at 1 m equals the sensitivity; at 2 m, 6.02 dB less (inverse-square law)
+    assert spl_at_listener(math.sqrt(8), 0, 90, 8, 1.0) == pytest.approx(90.0)
+    assert spl_at_listener(math.sqrt(8), 0, 90, 8, 2.0) == pytest.approx(90 - 6.0206, abs=1e-3)
+
+
+@pytest.mark.parametrize("f,tf", list(zip(ISO226_FREQ, ISO226_TF)))
+def test_threshold_of_hearing_iso226_table(f, tf):
+    # values from ISO 226:2003 Table 1 (reproduced in REFERENCE.md), read at the tabulated frequencies
+    assert threshold_of_hearing(f) == pytest.approx(tf)
+
+
+def test_threshold_interpolates_on_log_frequency():
+    mid = math.sqrt(100 * 125)                 # halfway between 100 and 125 Hz on a log axis
+    assert threshold_of_hearing(mid) == pytest.approx((26.5 + 22.1) / 2)
+    assert threshold_of_hearing(10) == 78.5 and threshold_of_hearing(20000) == 12.3   # held at the ends
+
+
+def test_symmetric_dual_mono_gives_identical_channels():
+    r = analyze(load(next(e for e in EXAMPLES if e.name.startswith("dual-mono"))))
+    left, right = r.hum.channels["left"], r.hum.channels["right"]
+    assert left.total_v == pytest.approx(right.total_v, rel=1e-9)
+    for a, b in zip(left.spectrum, right.spectrum):
+        assert a["volts"] == pytest.approx(b["volts"], rel=1e-6, abs=1e-15)
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
+def test_examples_report_budget_with_contributors_and_verdict(path):
+    r = analyze(load(path))
+    assert r.hum is not None and r.hum.channels
+    for ch in r.hum.channels.values():
+        assert ch.spectrum and ch.contributors and ch.audible in (True, False)
+        assert all(math.isfinite(x["volts"]) for x in ch.spectrum)
+
+
+def test_audible_hum_is_a_fault_with_contributors():
+    r = analyze(load(next(e for e in EXAMPLES if e.name.startswith("dual-mono"))))
+    audible = [f for f in r.findings if f.code == "GC303"]
+    assert {f.elements[0] for f in audible} == {"left", "right"}
+    assert all(f.severity == "fault" for f in audible)
+    assert any(f.code == "GC301" and "left.sup_gnd" in f.elements for f in r.findings)
