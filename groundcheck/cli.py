@@ -177,7 +177,10 @@ COMMANDS = {"check": cmd_check, "explain": cmd_explain, "export": cmd_export}
 
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as e:           # --help, --version and usage errors end here
+        return e.code if isinstance(e.code, int) else 2
     if not args.command:
         parser.print_help()
         return 2

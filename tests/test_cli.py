@@ -1,0 +1,108 @@
+"""The command, through main(argv): exit status, output, files, documentation."""
+
+import io
+import json
+import re
+
+import pytest
+
+from groundcheck.cli import COMMANDS, build_parser
+from groundcheck.findings import RULES
+
+from helpers import EXAMPLES, ROOT
+
+DUAL = str(next(e for e in EXAMPLES if e.name.startswith("dual-mono")))
+MONO = str(next(e for e in EXAMPLES if e.name.startswith("monoblock")))
+
+
+def test_check_text_report(cli):
+    code, out, err = cli("check", MONO)
+    assert code == 1 and err == ""
+    for text in ("GC202", "GC105", "GC108", "Protective earth", "Hum and buzz", "Never lift the protective earth"):
+        assert text in out
+
+
+def test_fail_on_threshold(cli):
+    assert cli("check", MONO, "--fail-on", "danger")[0] == 0
+    assert cli("check", MONO, "--fail-on", "warning")[0] == 1
+
+
+def test_clean_plan_exits_zero(cli, tmp_path):
+    p = tmp_path / "clean.gplan"
+    p.write_text('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2\n'
+                 'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
+                 'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n')
+    assert cli("check", str(p))[0] == 0
+
+
+def test_json_document(cli):
+    code, out, _ = cli("check", DUAL, "--format", "json")
+    doc = json.loads(out)
+    assert set(doc) >= {"plan", "findings", "loops", "summary", "protective_earth", "hum", "network"}
+    f = doc["findings"][0]
+    assert set(f) >= {"code", "severity", "message", "location", "elements", "figures", "fix"}
+    assert set(f["location"]) == {"file", "line", "column"}
+    assert doc["summary"]["fault"] == sum(1 for x in doc["findings"] if x["severity"] == "fault")
+    assert doc["loops"][0]["closed_by"] == "channel-returns" and doc["loops"][0]["area_mm2"] == 3800.0
+    assert "NaN" not in out and "Infinity" not in out
+    # the same plan gives the same bytes
+    assert cli("check", DUAL, "--format", "json")[1] == out
+
+
+def test_stdin(cli, monkeypatch):
+    monkeypatch.setattr("sys.stdin", io.StringIO(open(MONO).read()))
+    code, out, _ = cli("check", "-", "--format", "json")
+    assert code == 1 and json.loads(out)["plan"]["file"] == "<stdin>"
+
+
+def test_explain(cli):
+    code, out, _ = cli("explain", "GC102")
+    assert code == 0 and "shared-return" in out and "Fix:" in out
+    code, out, _ = cli("explain")
+    assert code == 0 and all(c in out for c in RULES)
+    code, _, err = cli("explain", "GC999")
+    assert code == 2 and "unknown rule code" in err
+
+
+def test_export_spice(cli, tmp_path):
+    out_file = tmp_path / "g.cir"
+    code, out, _ = cli("export", DUAL, "--spice", "-o", str(out_file))
+    assert code == 0
+    text = out_file.read_text()
+    assert text.startswith("* groundcheck ground network") and text.rstrip().endswith(".end") and ".op" in text
+    code, out, _ = cli("export", DUAL, "--spice", "--frequency", "1kHz")
+    assert ".ac lin 1 1000 1000" in out
+
+
+def test_refuses_to_overwrite_input(cli, tmp_path):
+    plan = tmp_path / "p.gplan"
+    text = open(MONO).read()
+    plan.write_text(text)
+    code, _, err = cli("check", str(plan), "--format", "json", "-o", str(plan))
+    assert code == 2 and "refusing to write over the input plan" in err
+    assert plan.read_text() == text
+
+
+def test_usage_errors_are_one_line_exit_2(cli):
+    code, _, err = cli("check", MONO, "--pe-limit", "5 mm")
+    assert code == 2 and "is a length, not a resistance" in err and "Traceback" not in err
+    with pytest.raises(SystemExit) as e:
+        build_parser().parse_args(["frobnicate"])
+    assert e.value.code == 2
+
+
+def test_version(cli, capsys):
+    with pytest.raises(SystemExit) as e:
+        build_parser().parse_args(["--version"])
+    assert e.value.code == 0
+    assert re.match(r"groundcheck \d+\.\d+", capsys.readouterr().out)
+
+
+def test_every_command_has_help_with_example_and_is_in_readme():
+    readme = (ROOT / "README.md").read_text()
+    parser = build_parser()
+    sub = next(a for a in parser._actions if a.dest == "command")
+    assert set(sub.choices) == set(COMMANDS)
+    for name, p in sub.choices.items():
+        assert f"groundcheck {name}" in readme, name
+        assert "Example" in (p.description or ""), name
