@@ -86,6 +86,28 @@ def build_parser() -> argparse.ArgumentParser:
                        description="Example:\n  groundcheck explain GC102", formatter_class=argparse.RawDescriptionHelpFormatter)
     e.add_argument("code", metavar="CODE", nargs="?", help="rule code, e.g. GC102 (none: list every rule)")
 
+    d = sub.add_parser("draw", help="draw the plan with every problem marked",
+                       description="Draw the physical view (metal parts, points at their positions, conductors by role, "
+                       "loops and problems marked) or the topology view.\n\nExample:\n"
+                       "  groundcheck draw examples/monoblock-power-amp.gplan -o monoblock.svg",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+    d.add_argument("plan", metavar="PLAN")
+    d.add_argument("-o", "--output", metavar="FILE", required=True, help="FILE.svg, FILE.png or FILE.dot")
+    d.add_argument("--view", choices=("physical", "topology"), default="physical",
+                   help="physical (needs positions; default) or topology (laid out automatically)")
+    d.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
+                   help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
+
+    h = sub.add_parser("report", help="write a self-contained HTML report",
+                       description="One HTML file with the summary, findings, drawings, hum spectrum and protective-earth "
+                       "table; no network fetches.\n\nExample:\n  groundcheck report examples/dual-mono-line-stage.gplan -o report.html",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+    h.add_argument("plan", metavar="PLAN")
+    h.add_argument("-o", "--output", metavar="FILE", required=True)
+    h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto")
+    h.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
+    _add_analysis_options(h)
+
     x = sub.add_parser("export", help="write the ground network in another format",
                        description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o ground.cir",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
@@ -172,7 +194,56 @@ def cmd_export(args) -> int:
     return 0
 
 
-COMMANDS = {"check": cmd_check, "explain": cmd_explain, "export": cmd_export}
+def _drawings(result, renderer: str, fmt: str = "svg"):
+    from .drawing import render_dot
+    from .render_dot import physical_dot, topology_dot
+    phys = render_dot(physical_dot(result), fmt, "neato", renderer)
+    topo = render_dot(topology_dot(result), fmt, "dot", renderer)
+    return phys, topo
+
+
+def cmd_draw(args) -> int:
+    from .analysis import Options, analyze
+    from .drawing import render_dot
+    from .render_dot import physical_dot, topology_dot
+    out = Path(args.output)
+    fmt = out.suffix.lower().lstrip(".")
+    if fmt not in ("svg", "png", "dot", "gv"):
+        raise UsageError(f"cannot tell the drawing format from {args.output!r} (end it in .svg, .png or .dot)")
+    fmt = "dot" if fmt == "gv" else fmt
+    plan = _load(args.plan)
+    result = analyze(plan, Options(hum=False))
+    has_pos = any(p.pos is not None for p in plan.points)
+    view = args.view if (args.view == "topology" or has_pos) else "topology"
+    source = physical_dot(result) if view == "physical" else topology_dot(result)
+    data, how = render_dot(source, fmt, "neato" if view == "physical" else "dot", args.renderer)
+    from .output import write_atomic
+    write_atomic(out, data, protect=[Path(args.plan)])
+    note = "" if view == args.view else " (the plan has no positions: topology view)"
+    sys.stderr.write(f"groundcheck: wrote the {view} view to {out} with {how}{note}\n")
+    return 0
+
+
+def cmd_report(args) -> int:
+    from .analysis import analyze
+    from .drawing import DrawingError
+    from .render_html import html_report
+    plan = _load(args.plan)
+    result = analyze(plan, _options(args))
+    try:
+        (phys, how), (topo, _) = _drawings(result, args.renderer)
+    except DrawingError as e:
+        sys.stderr.write(f"groundcheck: warning: {e}; the report has no drawings\n")
+        phys = topo = None
+        how = ""
+    from .output import write_atomic
+    write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
+    sys.stderr.write(f"groundcheck: wrote {args.output}\n")
+    threshold = severity_rank(args.fail_on)
+    return 1 if any(severity_rank(f.severity) <= threshold for f in result.findings) else 0
+
+
+COMMANDS = {"check": cmd_check, "explain": cmd_explain, "draw": cmd_draw, "report": cmd_report, "export": cmd_export}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -179,8 +179,13 @@ def topology_dot(result: Result) -> str:
                  "color": "#e03030" if m.name in marks else "#9a9a9a"}
         lines.append(f"  {dot_quote(m.name)} [{_attrs(style)}];")
     for p in plan.points:
-        style = {"shape": "star" if p.kind == "star" else ("triangle" if p.name == "mains.pe" else "ellipse"),
-                 "label": p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")}
+        label = p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")
+        style = {"shape": "ellipse", "label": label}
+        if p.kind == "star":
+            style.update(shape="star", width="0.4", height="0.4", fixedsize="true", label="", xlabel=label,
+                         style="filled", fillcolor="#ffd54f")
+        elif p.name == "mains.pe":
+            style.update(shape="triangle", style="filled", fillcolor="#bfe3c0")
         if p.name in marks:
             style.update(color="#e03030", penwidth="2")
         lines.append(f"  {dot_quote(p.name)} [{_attrs(style)}];")
