@@ -132,12 +132,21 @@ def _write(text: str, output: str | None, inputs: list[str]) -> None:
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
 
 
+def _analyze_with_progress(analyze, plan, options, label: str):
+    """Run the analysis with a transient progress line on an interactive terminal."""
+    if not sys.stderr.isatty():
+        return analyze(plan, options)
+    from rich.console import Console
+    with Console(stderr=True).status(f"analysing {label} ({len(plan.conductors)} conductors)…"):
+        return analyze(plan, options)
+
+
 def cmd_check(args) -> int:
     from .analysis import analyze
     results = []
     for path in args.plans:
         plan = _load(path)
-        results.append(analyze(plan, _options(args)))
+        results.append(_analyze_with_progress(analyze, plan, _options(args), path))
     threshold = severity_rank(args.fail_on)
     failing = any(severity_rank(f.severity) <= threshold for r in results for f in r.findings)
     if args.format == "json":
@@ -229,7 +238,7 @@ def cmd_report(args) -> int:
     from .drawing import DrawingError
     from .render_html import html_report
     plan = _load(args.plan)
-    result = analyze(plan, _options(args))
+    result = _analyze_with_progress(analyze, plan, _options(args), args.plan)
     try:
         (phys, how), (topo, _) = _drawings(result, args.renderer)
     except DrawingError as e:

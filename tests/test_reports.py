@@ -1,0 +1,142 @@
+"""Reports: terminal text, DOT drawings, real renders, the HTML report in headless Chromium, SARIF."""
+
+import json
+import re
+import shutil
+import subprocess
+
+import pytest
+
+from groundcheck import load, load_text
+from groundcheck.analysis import analyze
+from groundcheck.drawing import available_renderers, render_dot
+from groundcheck.render_dot import physical_dot, topology_dot
+from groundcheck.render_html import html_report
+from groundcheck.render_json import render_json
+from groundcheck.render_sarif import sarif_document
+from groundcheck.render_text import text_report
+
+from helpers import EXAMPLES
+
+RESULTS = {p.name: analyze(load(p)) for p in EXAMPLES}
+MONO = RESULTS["monoblock-power-amp.gplan"]
+DUAL = RESULTS["dual-mono-line-stage.gplan"]
+
+
+@pytest.mark.parametrize("name", sorted(RESULTS))
+def test_terminal_report_as_text(name):
+    r = RESULTS[name]
+    text = text_report(r, width=120)
+    assert text.splitlines()[0].startswith(r.plan.title)
+    assert "Verdict:" in text.split("\n\n")[0]               # the summary comes first
+    assert " ".join(text.split()).count("Never lift the protective earth") == 1
+    for f in r.findings:
+        assert f.code in text
+    assert "Hum and buzz at the output" in text and "Protective earth (line-to-part fault)" in text
+    assert "\x1b[" not in text                               # no colour codes when not a terminal
+    coloured = text_report(r, width=120, color=True)
+    assert "\x1b[" in coloured
+
+
+def test_physical_dot_marks_problems():
+    src = physical_dot(MONO)
+    assert '"ptx_bolt"' in src and "ptx_bolt [GC202]" in src
+    shield_line = next(line for line in src.splitlines() if "in_shield [" in line)
+    assert "#e0303088" in shield_line                       # problem halo
+    assert "#f5a80066" in shield_line                       # loop band
+    assert "loop 2 through chassis" in src
+    assert "legend" in src
+
+
+def test_topology_dot_has_every_conductor():
+    src = topology_dot(DUAL)
+    for c in DUAL.plan.conductors:
+        assert c.name in src
+
+
+@pytest.mark.parametrize("renderer", ["system", "wasm"])
+def test_real_render_to_svg(renderer, tmp_path):
+    if renderer not in available_renderers():
+        pytest.skip(f"{renderer} Graphviz renderer not available here")
+    svg, how = render_dot(physical_dot(MONO), "svg", "neato", renderer)
+    assert svg.lstrip().startswith(b"<?xml") and b"<svg" in svg and b"ptx_bolt [GC202]" in svg
+    assert ("WebAssembly" in how) == (renderer == "wasm")
+
+
+def test_draw_command(cli, tmp_path):
+    out = tmp_path / "m.svg"
+    code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(out))
+    assert code == 0 and out.read_bytes().count(b"<svg") == 1 and "wrote the physical view" in err
+    code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(tmp_path / "m.dot"), "--view", "topology")
+    assert code == 0 and (tmp_path / "m.dot").read_text().startswith("graph topology")
+    code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(tmp_path / "m.xyz"))
+    assert code == 2 and "cannot tell the drawing format" in err
+
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (Debian package 'chromium'; .ci/run installs it)")
+@pytest.mark.parametrize("name", sorted(RESULTS))
+def test_html_report_in_headless_chromium(name, tmp_path, cli):
+    html = tmp_path / "report.html"
+    code, _, _ = cli("report", str(next(p for p in EXAMPLES if p.name == name)), "-o", str(html), "--fail-on", "danger")
+    assert code == 0
+    text = html.read_text()
+    assert not re.search(r'(src|href)\s*=\s*"https?:', text)      # no network fetches
+    flags = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+             "--disable-background-networking", "--disable-component-update", "--disable-sync",
+             f"--user-data-dir={tmp_path / 'profile'}", "--enable-logging=stderr", "--v=0"]
+    shot = tmp_path / "report.png"
+    proc = subprocess.run([CHROMIUM, *flags, f"--screenshot={shot}", "--window-size=1200,3000", html.as_uri()],
+                          capture_output=True, text=True, timeout=120)
+    assert shot.exists() and shot.stat().st_size > 10_000          # a screenshot written for inspection
+    assert "CONSOLE" not in proc.stderr and "Uncaught" not in proc.stderr
+    dom = subprocess.run([CHROMIUM, *flags, "--dump-dom", html.as_uri()], capture_output=True, text=True, timeout=120).stdout
+    assert 'id="physical"' in dom and 'id="topology"' in dom and dom.count("<svg") >= 3
+    assert 'id="findings"' in dom and 'id="protective-earth"' in dom and 'class="chart"' in dom
+    assert "threshold of hearing" in dom
+
+
+def test_sarif_required_fields():
+    # SARIF 2.1.0 (OASIS): required properties of sarifLog, run, tool.driver, result, location
+    doc = sarif_document([MONO, DUAL])
+    assert doc["version"] == "2.1.0" and doc["$schema"].endswith("sarif-2.1.0.json")
+    run = doc["runs"][0]
+    driver = run["tool"]["driver"]
+    assert driver["name"] == "groundcheck"
+    ids = [r["id"] for r in driver["rules"]]
+    assert len(ids) == len(set(ids))
+    assert len(run["results"]) == len(MONO.findings) + len(DUAL.findings)
+    for res in run["results"]:
+        assert res["message"]["text"]
+        assert res["level"] in ("error", "warning", "note", "none")
+        assert driver["rules"][res["ruleIndex"]]["id"] == res["ruleId"]
+        loc = res["locations"][0]["physicalLocation"]
+        assert loc["artifactLocation"]["uri"].endswith(".gplan")
+        assert loc["region"]["startLine"] >= 1 and loc["region"]["startColumn"] >= 1
+
+
+HOSTILE = 'plan "<script>alert(1)</script> & \'quoted\' \\\\ {x}"\n' + \
+    "mains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2\n" \
+    "metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n" \
+    "wire pe_lead: mains.pe to pe, 50 mm, 0.5 mm2, protective\nbolt b: pe to deck\n" \
+    "point s: star, at 50,50 on deck\nwire w: s to s, 10 mm, 0.5 mm2\n"
+
+
+def test_hostile_strings_are_escaped_everywhere(tmp_path):
+    name = str(tmp_path / 'x<script>&"\'.gplan')
+    r = analyze(load_text(HOSTILE, name))
+    assert r.findings
+    html = html_report(r, *[render_dot(src, "svg", eng)[0] for src, eng in ((physical_dot(r), "neato"), (topology_dot(r), "dot"))])
+    assert "<script>" not in html and "&lt;script&gt;" in html
+    doc = json.loads(render_json(r))
+    assert doc["plan"]["title"].startswith("<script>")          # JSON keeps the text, escaped by the encoder
+    sarif = sarif_document([r])
+    assert "<script>" in sarif["runs"][0]["results"][0]["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+    json.dumps(sarif)
+    for src in (physical_dot(r), topology_dot(r)):
+        label = next(line for line in src.splitlines() if "labelloc=t" in line)
+        assert '\\"' not in label or label.count('"') % 2 == 0
+        svg, _ = render_dot(src, "svg", "neato")
+        assert b"<script>" not in svg
