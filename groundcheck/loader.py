@@ -353,7 +353,7 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
         return True
 
     for p, refs, *_ in groups[Point]:
-        if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals):
+        if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
             m = metals[p.on]
             if p.pos is not None and not m.contains(p.pos):
                 errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
