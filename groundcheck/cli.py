@@ -108,6 +108,27 @@ def build_parser() -> argparse.ArgumentParser:
     h.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     _add_analysis_options(h)
 
+    s = sub.add_parser("suggest", help="propose changes that fix the findings, ranked by their predicted gain",
+                       description="Try candidate changes on the plan (lift a shield end, remove a redundant bond, re-route "
+                       "a return, join a rectifier's ends, give the protective earth its own stud ...), re-run the analysis for "
+                       "each and rank them. Changes that would weaken the protective earth are never proposed.\n\nExample:\n"
+                       "  groundcheck suggest examples/dual-mono-line-stage.gplan --apply fixed.gplan",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+    s.add_argument("plan", metavar="PLAN")
+    s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
+    s.add_argument("--pick", type=int, metavar="N", help="with --apply: apply suggestion N instead of the combined set")
+    s.add_argument("--format", choices=("text", "json"), default="text")
+    _add_analysis_options(s)
+
+    cp = sub.add_parser("compare", help="compare two plans: findings, loops, hum per harmonic, protective earth",
+                        description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o changes.html",
+                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+    cp.add_argument("before", metavar="BEFORE")
+    cp.add_argument("after", metavar="AFTER")
+    cp.add_argument("--format", choices=("text", "json", "html"), default="text")
+    cp.add_argument("-o", "--output", metavar="FILE")
+    _add_analysis_options(cp)
+
     x = sub.add_parser("export", help="write the ground network in another format",
                        description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o ground.cir",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
@@ -252,7 +273,86 @@ def cmd_report(args) -> int:
     return 1 if any(severity_rank(f.severity) <= threshold for f in result.findings) else 0
 
 
-COMMANDS = {"check": cmd_check, "explain": cmd_explain, "draw": cmd_draw, "report": cmd_report, "export": cmd_export}
+def _hum_words(ch, h) -> str:
+    import math
+    level = f"{20 * math.log10(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
+    verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
+    return f"{ch} {level} ({verdict})"
+
+
+def cmd_suggest(args) -> int:
+    import json
+    from .repair import apply_edits, greedy, suggest, unified_diff
+    from .render_text import CAUTION
+    if args.plan == "-":
+        raise UsageError("suggest needs a plan file, not standard input (its edits are shown against the file)")
+    path = Path(args.plan)
+    plan = _load(args.plan)
+    text = path.read_text(encoding="utf-8").lstrip("\ufeff")
+    root, resolved = path.resolve().parent, path.resolve()
+    before, evs = suggest(plan, text, _options(args), root, resolved)
+    chosen, final, final_text = greedy(plan, text, _options(args), root, resolved)
+    name = path.name
+    useful = [e for e in evs if not e.rejected]
+    rejected = [e for e in evs if e.rejected]
+    if args.format == "json":
+        doc = {"plan": plan.file, "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in useful],
+               "rejected": [e.as_dict() for e in rejected],
+               "combined": {"search": "greedy forward selection, every remaining change re-analysed at each step",
+                            "changes": [e.candidate.title for e in chosen],
+                            "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
+                            "diff": "".join(__import__("difflib").unified_diff(text.splitlines(True), final_text.splitlines(True),
+                                                                               f"a/{name}", f"b/{name}", n=1))}}
+        from .render_json import clean
+        sys.stdout.write(json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n")
+    else:
+        out = [f"Suggestions for {plan.file} (each re-analysed; best first)", CAUTION, ""]
+        if not useful:
+            out.append("No change found that improves the plan.")
+        for i, e in enumerate(useful, 1):
+            hum = ", ".join(f"{ch} {d:+.1f} dB" for ch, d in e.hum_change_db.items())
+            out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
+            out.append(f"   predicted: hum {hum or 'n/a'}; clears {len(e.cleared)} finding(s)"
+                       + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
+            out.append("   " + unified_diff(text, e.candidate.edits, name).replace("\n", "\n   ").rstrip())
+            out.append("")
+        if rejected:
+            out.append("Considered and rejected:")
+            for e in rejected:
+                out.append(f"  - {e.candidate.title}: {e.rejected}")
+            out.append("")
+        out.append(f"Combined (greedy search): {len(chosen)} change(s): " + "; ".join(e.candidate.title for e in chosen))
+        left = [f.code for f in final.findings if f.severity in ("danger", "fault")]
+        out.append("  leaves no fault or danger" if not left else f"  leaves: {', '.join(left)}")
+        if final.hum is not None:
+            out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
+        sys.stdout.write("\n".join(out) + "\n")
+    if args.apply:
+        if args.pick is not None:
+            if not 1 <= args.pick <= len(useful):
+                raise UsageError(f"--pick takes 1 to {len(useful)}")
+            new_text = apply_edits(text, useful[args.pick - 1].candidate.edits)
+        else:
+            new_text = final_text
+        target = Path(args.apply)
+        if target.exists():
+            raise UsageError(f"{args.apply} exists; --apply writes a new file and never replaces one")
+        from .output import write_atomic
+        write_atomic(target, new_text, protect=[path])
+        sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
+    return 0
+
+
+def cmd_compare(args) -> int:
+    from .analysis import analyze
+    from .compare import compare, compare_html, compare_json, compare_text
+    d = compare(analyze(_load(args.before), _options(args)), analyze(_load(args.after), _options(args)))
+    text = {"text": compare_text, "json": compare_json, "html": compare_html}[args.format](d)
+    _write(text, args.output, [args.before, args.after])
+    return 0
+
+
+COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain, "draw": cmd_draw, "report": cmd_report, "export": cmd_export}
 
 
 def main(argv: list[str] | None = None) -> int:
