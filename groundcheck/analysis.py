@@ -70,6 +70,7 @@ def _shared_returns(plan: Plan, circuit: Circuit) -> tuple[list[Finding], list[d
     src = fac.solve(source_injections(circuit, sources, 0.0))
     test = fac.solve(pair_tests(circuit, [(s.a, s.b) for s in stages]))
     owners = branch_owner(circuit)
+    plan_conductors = {c.name: c for c in plan.conductors}
     findings, rows = [], []
     for si, s in enumerate(sources):
         for k, st in enumerate(stages):
@@ -80,17 +81,33 @@ def _shared_returns(plan: Plan, circuit: Circuit) -> tuple[list[Finding], list[d
             shares = fac.z * src.I[:, si] * test.I[:, k]
             transfer = abs(shares.sum())
             carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(test.I[:, k]) >= SHARE_THRESHOLD)
-            shared = sorted({owners[b] for b in np.flatnonzero(carrying)})
-            if transfer <= 1e-6 or not shared:
+            if transfer <= 1e-6 or not carrying.any():
                 continue
+            # name the conductors that make up most of the coupling (largest shares first, at most five)
+            idx = [b for b in np.argsort(-np.abs(shares)) if carrying[b]]
+            total = np.abs(shares[idx]).sum()
+            shared, acc = [], 0.0
+            for b in idx:
+                if owners[b] not in shared:
+                    shared.append(owners[b])
+                acc += abs(shares[b])
+                if acc >= 0.9 * total or len(shared) >= 5:
+                    break
+            via_ic = [x for x in shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
             rows.append({"source": s.name, "stage": st.name, "transfer_ohm": float(transfer), "shared": shared})
+            if via_ic:
+                fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
+                       "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
+            elif s.kind == "current" and any(c.name == s.name and c.role == "leakage" for c in plan.currents):
+                fix = f"keep {st.a} and {st.b} off the conductors that carry {s.name}; give the stage its own reference wire"
+            else:
+                fix = (f"join {s.a} and {s.b} by a short wire of their own, then one wire to the star; "
+                       f"take {st.b} and {st.a} to the signal star by wires that carry no supply current")
             findings.append(Finding(
                 "GC102", "fault",
                 f"{s.kind} return {s.name} ({s.a} → {s.b}) shares {', '.join(shared)} with stage {st.name} ({st.a} – {st.b})",
                 s.location, (s.name, st.name, *shared),
-                {"transfer_resistance_mohm": float(f"{transfer * 1e3:.6g}"), "stage_gain_db": st.gain},
-                f"join {s.a} and {s.b} by a short wire of their own, then one wire to the star; "
-                f"take {st.b} and {st.a} to the signal star by wires that carry no supply current"))
+                {"transfer_resistance_mohm": float(f"{transfer * 1e3:.6g}"), "stage_gain_db": st.gain}, fix))
     return findings, rows
 
 
@@ -147,12 +164,17 @@ def _hum_findings(plan: Plan, hum: HumResult, opts: Options) -> list[Finding]:
                 continue
             if c["kind"] == "conductor":
                 cond = conductors.get(c["element"])
+                if cond is not None and cond.role == "protective":
+                    fix = (f"the drop along protective conductor {c['element']} reaches the stage through a loop: break "
+                           "the loop on the signal side (balanced interconnect or ground-lift network); never lift the "
+                           "protective earth")
+                else:
+                    fix = f"move the {c['source']} current off {c['element']}: give it a return path of its own"
                 out.append(Finding("GC301", "warning",
                                    f"{c['element']} puts {c['dbv']:.1f} dBV of {c['source']} hum and buzz at the {ch} output "
                                    f"({c['share_pct']:.0f} % of the channel's total)",
                                    cond.location if cond else loc, (c["element"], c["source"]),
-                                   {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
-                                   f"move the {c['source']} current off {c['element']}: give it a return path of its own"))
+                                   {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch}, fix))
             else:
                 out.append(Finding("GC302", "warning",
                                    f"{c['element']} picks up {c['dbv']:.1f} dBV from {c['source']} at the {ch} output "

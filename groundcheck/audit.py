@@ -86,10 +86,38 @@ class AuditContext:
         pts = set()
         for s in self.plan.stages:
             pts.update((s.a, s.b))
-        for r in (*self.plan.rectifiers, *self.plan.currents):
+        for r in (*self.plan.rectifiers, *(c for c in self.plan.currents if c.role != "leakage")):
             pts.update((r.a, r.b))
         pts.update(p.name for p in self.plan.points if p.kind == "star")
         return pts
+
+    @cached_property
+    def inlets(self) -> list[str]:
+        """Protective terminals of mains inlets: the plan's own and those of placed devices."""
+        return sorted(n for n in self.G.nodes if n == PE_POINT or n.endswith("." + PE_POINT))
+
+    @cached_property
+    def protective_path(self) -> set[str]:
+        """Conductors on the protective route from an inlet to a metal part: never to be opened."""
+        ok = lambda c: c.role in ("protective", "bond") and c.kind not in ("lift", "switch", "shield", "interconnect")  # noqa: E731
+        keep: set[str] = set()
+        for inlet in self.inlets:
+            parent = {inlet: None}
+            q = deque([inlet])
+            while q:
+                u = q.popleft()
+                for v, keys in self.G.adj[u].items():
+                    good = sorted(k for k in keys if ok(self.G.edges[u, v, k]["conductor"]))
+                    if v not in parent and good:
+                        parent[v] = (u, good[0])
+                        q.append(v)
+            for m in self.metals & parent.keys():
+                v = m
+                while parent[v] is not None:
+                    u, k = parent[v]
+                    keep.add(k)
+                    v = u
+        return keep
 
     @cached_property
     def source_pairs(self) -> set[frozenset]:
@@ -149,10 +177,14 @@ def _node_channel(name: str) -> str | None:
 def _open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
     """The conductor to open: never a protective conductor or a fastening of metal parts."""
     cs = [ctx.conductors[e] for e in lp.edges]
-    candidates = [c for c in cs if c.role != "protective" and not (c.kind == "bolt" and c.role == "bond"
-                                                                    and (c.a in ctx.metals and c.b in ctx.metals))]
+    candidates = [c for c in cs if c.role != "protective" and c.name not in ctx.protective_path
+                  and not (c.kind == "bolt" and c.role == "bond" and (c.a in ctx.metals and c.b in ctx.metals))]
     if not candidates:
         return ""
+    if closed_by == "mains-cords":
+        ic = [c for c in candidates if c.kind == "interconnect"]
+        if ic:
+            return ic[0].name
     if closed_by == "shield-both-ends":
         sh = [c for c in candidates if c.kind in ("shield", "interconnect")]
         if sh:
@@ -285,7 +317,8 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
         places: dict[str, list[str]] = {}
         for n in comp:
             for v, keys in G.adj[n].items():
-                if v in side:
+                keys = [k for k in keys if G.edges[n, v, k]["conductor"].kind != "interconnect"]
+                if v in side and keys:
                     places.setdefault(v, []).extend(sorted(keys))
         name = _component_name(ctx, comp)
         if len(places) > 1:

@@ -12,7 +12,9 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from .errors import LimitError, Location, PlanError, PlanErrors
-from .model import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
+import os
+
+from .model import PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
 from .syntax import BlockDef, parse_text, suggest_keyword
@@ -31,7 +33,10 @@ LIMITS = {
     "elements": 3_000_000,
 }
 
-HEADER_KEYWORDS = ("plan", "mains", "ambient", "listening")
+HEADER_KEYWORDS = ("plan", "mains", "ambient", "listening", "library", "device")
+
+#: devices placed inside devices, at most this deep
+MAX_DEVICE_DEPTH = 8
 
 
 @dataclass(frozen=True)
@@ -50,11 +55,16 @@ class Transform:
         return Transform(outer.ox + outer.sx * self.ox, outer.oy + outer.sy * self.oy, outer.sx * self.sx, outer.sy * self.sy)
 
 
-def load(path: str | Path, *, stdin_text: str | None = None) -> Plan:
-    """Load the plan at ``path`` (``"-"`` reads standard input) and return the resolved model."""
+def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[str, ...] = (),
+         _devices: tuple[Path, ...] = ()) -> Plan:
+    """Load the plan at ``path`` (``"-"`` reads standard input) and return the resolved model.
+
+    ``libraries``: extra folders searched for device plans (after the plan's own ``library``
+    statements; the environment variable ``GROUNDCHECK_LIBRARY`` adds more).
+    """
     if str(path) == "-":
         text = stdin_text if stdin_text is not None else sys.stdin.read()
-        return load_text(text, "<stdin>", root=Path.cwd())
+        return load_text(text, "<stdin>", root=Path.cwd(), libraries=libraries)
     p = Path(path)
     loc = Location(str(path), 0, 0)
     if not p.exists():
@@ -62,7 +72,8 @@ def load(path: str | Path, *, stdin_text: str | None = None) -> Plan:
     if p.is_dir():
         raise PlanErrors([PlanError(f"{path} is a folder, not a plan file", loc, f"name a {PLAN_SUFFIX} file")])
     text = _read(p, str(path))
-    return load_text(text, str(path), root=p.resolve().parent, _resolved=p.resolve())
+    return load_text(text, str(path), root=p.resolve().parent, _resolved=p.resolve(), libraries=libraries,
+                     _devices=_devices)
 
 
 def _read(p: Path, shown: str) -> str:
@@ -288,10 +299,13 @@ class _Loader:
         return record
 
 
-def load_text(text: str, file: str = "<plan>", *, root: Path | None = None, _resolved: Path | None = None) -> Plan:
+def load_text(text: str, file: str = "<plan>", *, root: Path | None = None, _resolved: Path | None = None,
+              libraries: tuple[str, ...] = (), _devices: tuple[Path, ...] = ()) -> Plan:
     """Load a plan from its text.  ``file`` is the name shown in messages; includes resolve under ``root``."""
     root = (root or Path.cwd()).resolve()
     ld = _Loader(root)
+    ld.libraries = tuple(libraries)
+    ld.device_stack = _devices + ((_resolved,) if _resolved is not None else ())
     stack = (_resolved,) if _resolved is not None else ()
     items = ld.read_items(text, file, stack)
     if not ld.errors and not any(isinstance(i, Statement) for i in items) and not ld.blocks:
@@ -316,7 +330,19 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
     header: dict = {}
     groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage, FieldSource)}
     names: dict[str, Location] = {}
+    devices: list = []
+    library_dirs: list[str] = []
     for st, record, refs in built:
+        if st.keyword == "library":
+            library_dirs.append(record)
+            continue
+        if st.keyword == "device":
+            if record.name in names:
+                errors.append(PlanError(f"duplicate name {record.name!r}", st.label_loc or st.loc, f"first defined at {names[record.name]}"))
+                continue
+            names[record.name] = st.label_loc or st.loc
+            devices.append((record, refs))
+            continue
         if st.keyword in HEADER_KEYWORDS:
             key = {"plan": "title", "mains": "mains", "ambient": "ambient", "listening": "listening"}[st.keyword]
             if key in header:
@@ -338,7 +364,13 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
     points = {p.name: p for p, *_ in groups[Point]}
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
+    for dev, refs in devices:
+        _merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
     nodes = set(points) | set(metals)
+    for dev, refs in devices:
+        if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
+            errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
+                                    f"define it with 'point {dev.plugged}: outlet'"))
 
     def check(name, loc, what, pool):
         if name is not None and name not in pool and name not in ld.broken:
@@ -375,6 +407,11 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
     for h, refs, *_ in groups[Heater]:
         for f in ("a", "b", "reference"):
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)
+    stages = [r for r, *_ in groups[Stage]]
+    for c in conductors:
+        if c.kind == "interconnect" and c.gain is not None:
+            gain = c.gain - (c.cmrr if c.balanced else 0.0)
+            stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location))
     return Plan(
         title=header.get("title") or Path(file).stem,
         file=file,
@@ -387,8 +424,101 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
         rectifiers=tuple(r for r, *_ in groups[Rectifier]),
         currents=tuple(r for r, *_ in groups[Current]),
         heaters=tuple(r for r, *_ in groups[Heater]),
-        stages=tuple(r for r, *_ in groups[Stage]),
+        stages=tuple(stages),
         fields=tuple(r for r, *_ in groups[FieldSource]),
         files=tuple(ld.files),
         location=Location(file, 1, 1),
+    )
+
+
+def _find_device(source: str, dev: Device, ld: _Loader, library_dirs: list[str]) -> Path | None:
+    here = ld.root
+    candidates = [here / source]
+    env = os.environ.get("GROUNDCHECK_LIBRARY", "")
+    for lib in [*library_dirs, *ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
+        candidates.append((here / lib / source) if not Path(lib).is_absolute() else Path(lib) / source)
+    for c in candidates:
+        if c.is_file():
+            return c.resolve()
+    return None
+
+
+def _simple_device(dev: Device) -> Plan:
+    """A built-in device: a touchable chassis, the inlet's protective terminal bonded to it, and a
+    signal ground joined to the chassis directly, through a lift network, or not at all."""
+    n = dev.name
+    loc = dev.location
+    metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), True, loc),)
+    points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, loc), Point(f"{n}.gnd", "terminal", None, None, loc))
+    conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective", contact=0.5e-3,
+                            location=loc)]
+    if dev.signal_ground == "chassis":
+        conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3, location=loc))
+    elif dev.signal_ground == "lift":
+        conductors.append(Conductor(f"{n}.gnd_lift", "lift", f"{n}.gnd", f"{n}.chassis", resistance=10.0,
+                                    capacitance=47e-9, location=loc))
+    return Plan(title=n, file=str(loc.file), metals=metals, points=points, conductors=tuple(conductors), location=loc)
+
+
+def _merge_device(dev: Device, refs: dict, ld: _Loader, library_dirs: list[str], groups: dict, metals: dict,
+                  points: dict, names: dict) -> None:
+    """Add a device's elements to the installation, prefixed with its name and moved to its place."""
+    errors = ld.errors
+    if dev.source == "simple":
+        sub = _simple_device(dev)
+        cord_default = (2.0, 0.75e-6)
+    else:
+        path = _find_device(dev.source, dev, ld, library_dirs)
+        if path is None:
+            errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
+                                    "looked beside the plan and in the library folders (library \"DIR\", GROUNDCHECK_LIBRARY)"))
+            return
+        if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
+            errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,
+                                    "a device plan cannot place itself, directly or not"))
+            return
+        try:
+            loaded = load(path, libraries=ld.libraries, _devices=ld.device_stack)
+        except PlanErrors as e:
+            errors.extend(e.errors)
+            return
+        prefix = dev.name + "."
+        sub = _prefixed(loaded, prefix)
+        m = loaded.mains
+        cord_default = (m.cord_length if m else 2.0, (m.cord_area or m.line_area or 0.75e-6) if m else 0.75e-6)
+    tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
+    for x in sub.metals:
+        size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
+        metals[x.name] = replace(x, origin=tf(x.origin), size=size)
+    for x in sub.points:
+        points[x.name] = replace(x, pos=tf(x.pos))
+    for x in sub.conductors:
+        groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
+    for kind in (Rectifier, Current, Heater):
+        for x in getattr(sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]):
+            groups[kind].append((x, {}))
+    for x in sub.stages:
+        groups[Stage].append((x, {}))
+    for x in sub.fields:
+        groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
+    pe = f"{dev.name}.{PE_POINT}"
+    if dev.plugged is not None and pe in points:
+        groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
+                                            length=dev.cord_length or cord_default[0], area=dev.cord_area or cord_default[1],
+                                            location=dev.location), {}))
+
+
+def _prefixed(p: Plan, prefix: str) -> Plan:
+    """A device plan with every name prefixed (channels too, so each device keeps its own)."""
+    pre = lambda n: None if n is None else prefix + n  # noqa: E731
+    return replace(
+        p,
+        metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
+        points=tuple(replace(x, name=pre(x.name), on=pre(x.on)) for x in p.points),
+        conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=pre(c.channel)) for c in p.conductors),
+        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.rectifiers),
+        currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.currents),
+        heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b), reference=pre(h.reference)) for h in p.heaters),
+        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel)) for s in p.stages),
+        fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
     )

@@ -14,7 +14,7 @@ from .errors import Location
 
 __all__ = [
     "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
-    "Heater", "Stage", "FieldSource", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS",
+    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS",
 ]
 
 #: the implicit point of the mains inlet's protective-earth terminal
@@ -118,6 +118,9 @@ class Conductor:
     insulation: str = "pvc"              # pvc | xlpe | bare
     in_cable: bool = True                # a core of a cable (adiabatic k) or a separate conductor
     channel: str | None = None
+    balanced: bool = False               # interconnects: balanced (the shield is not the signal return)
+    gain: float | None = None            # interconnects: dB from the receiving input to the output
+    cmrr: float = 50.0                   # interconnects, balanced: common-mode rejection, dB
     location: Location = field(default=Location("<plan>"), compare=False)
 
     @property
@@ -206,6 +209,25 @@ class FieldSource:
     b_ref: float
     r_ref: float
     harmonics: tuple[tuple[int, float], ...] = ()   # (harmonic number, fraction of the fundamental)
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Device:
+    """Another plan (or a built-in simple device) placed in an installation under a name.
+
+    ``source`` is a plan file path as written, or ``simple``.  ``plugged`` names the outlet its
+    mains cord goes to; ``signal_ground`` (simple devices) is chassis, lift or floating.
+    """
+
+    name: str
+    source: str
+    at: XY = (0.0, 0.0)
+    mirror: bool = False
+    plugged: str | None = None
+    cord_length: float | None = None
+    cord_area: float | None = None
+    signal_ground: str = "chassis"
     location: Location = field(default=Location("<plan>"), compare=False)
 
 

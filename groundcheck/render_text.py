@@ -56,8 +56,9 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
     if result.hum is not None:
         for ch, h in result.hum.channels.items():
             verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
-            console.print(f"Hum, {escape(ch)}: {_fmt(h.total_dbv, ' dBV', 4)} at the output, signal-to-hum "
-                          f"{_fmt(h.signal_to_hum, ' dB', 3)}, {verdict}"
+            level = _fmt(h.total_dbv, ' dBV', 4) if h.total_v > 0 else "none computed (below 1 pV)"
+            console.print(f"Hum, {escape(ch)}: {level} at the output, signal-to-hum "
+                          f"{_fmt(h.signal_to_hum, ' dB', 3) if h.total_v > 0 else 'unlimited'}, {verdict}"
                           + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else ""))
     if caution:
         console.print(Text(CAUTION, style="dim italic"))

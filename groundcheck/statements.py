@@ -11,7 +11,7 @@ from __future__ import annotations
 import difflib
 
 from .errors import Location, PlanError
-from .model import (Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point,
+from .model import (Conductor, Current, Device, FieldSource, Heater, Listening, Mains, Metal, Point,
                     Rectifier, Stage)
 from .phrases import Reader, Statement, check_quantity
 from .units import awg_diameter
@@ -21,7 +21,7 @@ __all__ = ["BUILDERS", "KEYWORDS", "MATERIALS", "build"]
 MATERIALS = ("copper", "aluminium", "aluminum", "brass", "steel", "stainless", "tinned-copper", "silver")
 ROLE_WORDS = ("protective", "return", "signal", "shield", "bond", "heater")
 POINT_KINDS = ("junction", "stud", "star", "busbar", "tag", "sleeve", "jack", "pot", "pad", "cap",
-               "centre-tap", "center-tap", "terminal", "inlet", "lug")
+               "centre-tap", "center-tap", "terminal", "inlet", "lug", "outlet")
 FIELD_KINDS = ("transformer", "toroid", "choke", "mains-wiring", "motor", "other")
 FUSE_KINDS = {"slow": "slow", "time-lag": "slow", "T": "slow", "fast": "fast", "quick": "fast", "F": "fast"}
 CONDUCTOR_DEFAULT_ROLE = {"bolt": "bond", "strap": "bond", "shield": "shield", "interconnect": "shield",
@@ -226,7 +226,7 @@ def conductor(stmt: Statement):
     if kind == "trace":
         kw["thickness"] = 35e-6
     named = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
-             "terminated", "separate", "in-cable", "open", "closed", "diameter")
+             "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced", "gain", "cmrr")
     for ph in stmt.phrases[1:]:
         r = Reader(ph, stmt)
         first = r.peek()
@@ -277,6 +277,10 @@ def conductor(stmt: Statement):
                 kw["in_cable"] = True
             elif word in ("open", "closed"):
                 kw["closed"] = word == "closed"
+            elif word in ("balanced", "unbalanced"):
+                kw["balanced"] = word == "balanced"
+            elif word in ("gain", "cmrr"):
+                kw[word] = r.quantity("level", word, positive=False)
         else:
             raise _unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
         r.finish()
@@ -435,12 +439,53 @@ def field_source(stmt: Statement):
     return FieldSource(name=name, harmonics=tuple(harmonics), location=stmt.loc, **kw), {}
 
 
+def device(stmt: Statement):
+    name = _need_label(stmt)
+    if not stmt.phrases:
+        raise PlanError("device needs its plan file or 'simple'", stmt.loc, 'e.g. device amp: "amp.gplan", plugged wall1')
+    first = stmt.phrases[0]
+    if len(first) != 1 or first[0].kind not in ("string", "word") or (first[0].kind == "word" and first[0].value != "simple"):
+        raise PlanError("device: first give a quoted plan file or the word simple", first[0].loc,
+                        'e.g. device amp: "amp.gplan" or device mixer: simple')
+    kw: dict = {"source": first[0].value}
+    refs: Refs = {}
+    for ph in stmt.phrases[1:]:
+        r = Reader(ph, stmt)
+        it = r.peek()
+        word = r.word("an attribute")
+        if word == "at":
+            kw["at"] = r.coord()
+        elif word == "mirror":
+            kw["mirror"] = True
+        elif word == "plugged":
+            r.keyword("into")
+            kw["plugged"], refs["plugged"] = r.name("an outlet")
+        elif word == "cord":
+            kw["cord_length"] = r.quantity("length", "cord length")
+            if not r.done:
+                kw["cord_area"] = r.quantity("area", "cord conductor area")
+        elif word == "signal-ground":
+            kw["signal_ground"] = r.word("chassis, lift or floating", ("chassis", "lift", "floating"))
+        else:
+            raise _unknown(stmt, it, ("at", "mirror", "plugged", "cord", "signal-ground"))
+        r.finish()
+    return Device(name=name, location=stmt.loc, **kw), refs
+
+
+def library(stmt: Statement):
+    _no_label(stmt)
+    if len(stmt.phrases) != 1 or len(stmt.phrases[0]) != 1 or stmt.phrases[0][0].kind != "string":
+        raise PlanError("library takes one quoted folder", stmt.loc, 'e.g. library "devices"')
+    return stmt.phrases[0][0].value, {}
+
+
 BUILDERS = {
     "plan": plan_header, "mains": mains, "ambient": ambient, "listening": listening,
     "metal": metal, "point": point,
     "wire": conductor, "trace": conductor, "busbar": conductor, "bolt": conductor, "strap": conductor,
     "shield": conductor, "interconnect": conductor, "lift": conductor, "switch": conductor,
     "rectifier": rectifier, "current": current, "heater": heater, "stage": stage, "field": field_source,
+    "device": device, "library": library,
 }
 
 #: every keyword of the language, including those the loader handles itself
