@@ -1,0 +1,81 @@
+"""Installations: devices, library folders, interconnect loops through protective earths."""
+
+import pytest
+
+from groundcheck import PlanErrors, load, load_text
+from groundcheck.analysis import analyze
+
+from helpers import ROOT
+
+STUDIO = ROOT / "examples" / "studio" / "project-studio.gplan"
+PREAMP = ROOT / "examples" / "studio" / "devices" / "valve-line-preamp.gplan"
+
+
+def test_studio_loop_through_two_cords_and_a_shield_is_found_and_quantified():
+    r = analyze(load(STUDIO))
+    loops = [lp for lp in r.loops if lp.closed_by == "mains-cords"]
+    assert loops
+    mix = next(lp for lp in loops if "mix_out" in lp.loop.edges)
+    assert {"monitors.cord", "mixer.cord", "run_a", "run_b", "strip_cord"} <= set(mix.loop.edges) | {"mixer.cord"}
+    names = {c.name: c for c in r.plan.conductors}
+    assert names[mix.open_at].kind == "interconnect"       # opened on the signal side, never in the protective earth
+    mon = r.hum.channels["monitors"]
+    assert mon.audible is True and mon.contributors
+    # the leakage current's odd harmonics are in the spectrum
+    assert {150.0, 250.0} <= {x["frequency_hz"] for x in mon.spectrum if x["volts"] > 0}
+    assert any(f.code == "GC102" and "mix_out" in f.elements for f in r.findings)
+
+
+def test_loop_open_at_never_a_protective_route():
+    r = analyze(load(STUDIO))
+    names = {c.name: c for c in r.plan.conductors}
+    for lp in r.loops:
+        if lp.open_at:
+            assert names[lp.open_at].role != "protective"
+            assert lp.open_at not in ("pre.pe_nut", "pre.pe_lead")
+
+
+def test_device_reuse_gives_the_same_figures_as_alone(tmp_path):
+    alone = analyze(load(PREAMP))
+    (tmp_path / "devices").mkdir()
+    (tmp_path / "devices" / PREAMP.name).write_text(PREAMP.read_text())
+    inst = tmp_path / "rack.gplan"
+    inst.write_text('plan "rack"\nlibrary "devices"\npoint wall: outlet\n'
+                    f'device pre: "{PREAMP.name}", at 500,0, plugged wall\n')
+    placed = analyze(load(inst))
+    a, b = alone.hum.channels["main"], placed.hum.channels["pre.main"]
+    assert b.total_v == pytest.approx(a.total_v, rel=1e-9, abs=1e-15)
+    assert [x["volts"] for x in b.spectrum] == pytest.approx([x["volts"] for x in a.spectrum], rel=1e-9, abs=1e-15)
+    assert placed.loop_total == alone.loop_total
+    assert sorted(f.code for f in placed.findings) == sorted(f.code for f in alone.findings if not f.code.startswith("GC2"))
+    p = placed.plan.point("pre.star")
+    assert p.pos == pytest.approx((0.5 + 0.13, 0.08))        # moved by the device's place
+
+
+def test_library_from_environment(tmp_path, monkeypatch):
+    lib = tmp_path / "lib"
+    lib.mkdir()
+    (lib / "box.gplan").write_text(PREAMP.read_text())
+    monkeypatch.setenv("GROUNDCHECK_LIBRARY", str(lib))
+    p = load_text('plan "x"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n', "x.gplan", root=tmp_path / "elsewhere")
+    assert any(c.name == "b.cord" for c in p.conductors)
+
+
+def test_device_errors(tmp_path):
+    with pytest.raises(PlanErrors) as e:
+        load_text('plan "x"\npoint wall: outlet\ndevice b: "nope.gplan", plugged wall\n', "x.gplan", root=tmp_path)
+    assert "device plan 'nope.gplan' not found" in str(e.value)
+    with pytest.raises(PlanErrors) as e:
+        load_text('plan "x"\ndevice b: simple, plugged nowhere\n', "x.gplan", root=tmp_path)
+    assert "undefined outlet 'nowhere'" in str(e.value)
+    (tmp_path / "self.gplan").write_text('plan "s"\ndevice me: "self.gplan"\n')
+    with pytest.raises(PlanErrors) as e:
+        load(tmp_path / "self.gplan")
+    assert "contains itself" in str(e.value)
+
+
+def test_balanced_interconnect_rejects_the_shield_drop():
+    text = STUDIO.read_text().replace("terminated both, unbalanced, gain 26 dB", "terminated both, balanced, gain 26 dB, cmrr 60 dB")
+    unbal = analyze(load(STUDIO)).hum.channels["monitors"].total_v
+    bal = analyze(load_text(text, str(STUDIO), root=STUDIO.parent)).hum.channels["monitors"].total_v
+    assert bal == pytest.approx(unbal * 10 ** (-60 / 20), rel=1e-6)
