@@ -202,6 +202,12 @@ def _hum_findings(plan: Plan, hum: HumResult, opts: Options) -> list[Finding]:
 
 def analyze(plan: Plan, options: Options = Options()) -> Result:
     """Audit a plan's topology, solve its network, and compute its protective-earth and hum figures."""
+    from .loader import no_gc
+    with no_gc():
+        return _analyze(plan, options)
+
+
+def _analyze(plan: Plan, options: Options) -> Result:
     findings, ctx = audit(plan)
     result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options)
     if not plan.points and not plan.metals:

@@ -151,7 +151,8 @@ class Circuit:
         Y = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsc()
         keep = np.ones(n, dtype=bool)
         keep[self.references] = False
-        lu = spla.splu(Y[keep][:, keep].tocsc()) if keep.any() else None
+        # minimum-degree ordering on the symmetric pattern: about half the fill of the default on ground networks
+        lu = spla.splu(Y[keep][:, keep].tocsc(), permc_spec="MMD_AT_PLUS_A") if keep.any() else None
         return Factored(self, f, z, y, keep, lu)
 
     def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":

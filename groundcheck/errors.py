@@ -2,14 +2,13 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from typing import NamedTuple
 
 __all__ = ["Location", "GroundcheckError", "PlanError", "PlanErrors", "LimitError"]
 
 
-@dataclass(frozen=True, order=True)
-class Location:
-    """A place in a plan file: 1-based line and column."""
+class Location(NamedTuple):
+    """A place in a plan file: 1-based line and column (an immutable, ordered tuple)."""
 
     file: str
     line: int = 0

@@ -34,6 +34,9 @@ __all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]
 #: output voltages below this (V) are numerical noise and shown as zero (−240 dBV)
 FLOOR_V = 1e-12
 
+#: conductors named per source and stage as hum contributors (the rest are summed)
+TOP_SHARES = 10
+
 #: crosstalk is not shown below this (dB)
 CROSSTALK_FLOOR_DB = -200.0
 
@@ -95,9 +98,10 @@ class HumResult:
                 "crosstalk": self.crosstalk, "notes": self.notes}
 
 
-def _emf_columns(circuit, loops, fields, f0, f):
+def _emf_columns(circuit, loops, fields, f0, f, names=None, flux_cache=None):
     """Series-EMF columns (branches × k) at frequency f: one per (loop, field source) with a harmonic at f."""
-    names = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
+    names = names if names is not None else {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
+    flux_cache = flux_cache if flux_cache is not None else {}
     cols, meta = [], []
     for li, info in enumerate(loops):
         if info.polygon is None:
@@ -115,7 +119,10 @@ def _emf_columns(circuit, loops, fields, f0, f):
             for n, ratio in scale.items():
                 if abs(n * f0 - f) > 1e-9:
                     continue
-                phi = loop_flux(src, info.polygon) * ratio
+                key = (li, src.name)
+                if key not in flux_cache:
+                    flux_cache[key] = loop_flux(src, info.polygon)
+                phi = flux_cache[key] * ratio
                 e = np.zeros(len(circuit.branches), dtype=complex)
                 e[bi] = -1j * 2 * math.pi * f * phi * (1.0 if forward else -1.0)
                 cols.append(e)
@@ -134,6 +141,8 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     listening = plan.listening
     rated = listening.rated_output if listening else 1.0
     owners = branch_owner(circuit)
+    branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
+    fields = {x.name: x for x in plan.fields}
     notes = []
     if listening is None:
         notes.append("no listening context: levels are against a rated output of 1 V and no audibility verdict is given")
@@ -156,6 +165,7 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     gains = np.array([10 ** (s.gain / 20) for s in stages])
     stage_ch = [s.channel for s in stages]
     crosstalk_raw = defaultdict(complex)
+    flux_cache: dict = {}
 
     for f in sorted(set(freqs) | (set(xt_freqs) if signal_sources and len(channels) > 1 else set())):
         fac = circuit.at(f)
@@ -173,9 +183,15 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                     v_out = vpair[si, k] * gains[k]
                     out[st.channel][f][group] += v_out
                     shares = C[:, si, k] * gains[k]
-                    big = np.flatnonzero(np.abs(shares) > 1e-3 * max(np.abs(shares).max(), 1e-300))
-                    for bi in big:
+                    mags = np.abs(shares)
+                    # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
+                    top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
+                    top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
+                    for bi in top:
                         contrib[st.channel][("conductor", owners[bi], group)][f] += shares[bi]
+                    rest = v_out - shares[top].sum()
+                    if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
+                        contrib[st.channel][("conductor", "other conductors", group)][f] += rest
                     if abs(vpair[si, k]) > 0:
                         key = (s.name, st.name)
                         row = coupling_rows.setdefault(key, {"source": s.name, "stage": st.name, "channel": st.channel,
@@ -187,28 +203,34 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                     network_rows.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
                                          "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
                                                          "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
-        E, meta = _emf_columns(circuit, loops, plan.fields, f0, f) if (loops and f in freqs) else (None, [])
+        E, meta = _emf_columns(circuit, loops, plan.fields, f0, f, branch_index, flux_cache) if (loops and f in freqs) else (None, [])
         if meta:
             sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
+            drops = np.zeros((len(stages), E.shape[1]), dtype=complex)
+            for k in range(len(stages)):
+                if valid_stage[k]:
+                    drops[k] = path_drop(fac, sol, paths[k]) * gains[k]
             for col, (li, src_name, phi) in enumerate(meta):
                 info = loops[li]
-                chord_i = next(i for i, b in enumerate(circuit.branches) if b.conductor == info.loop.edges[info.loop.chord])
+                chord_i = branch_index[info.loop.edges[info.loop.chord]]
                 row = loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
                                                 "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
                                                 "sources": {}})
-                src = next(x for x in plan.fields if x.name == src_name)
-                entry = row["sources"].setdefault(src_name, {"flux_density_equiv_t": None, "per_frequency": []})
-                e_mag = emf_of(phi, f)
-                entry["per_frequency"].append({"frequency_hz": f, "emf_v": e_mag, "current_a": float(abs(sol.I[chord_i, col]))})
-                if info.area:
-                    entry["flux_density_equiv_t"] = abs(loop_flux(src, info.polygon)) / info.area
-                entry["closest_mm"] = round(min_distance(src, info.polygon) * 1e3, 1)
+                entry = row["sources"].get(src_name)
+                if entry is None:
+                    src = fields[src_name]
+                    entry = row["sources"][src_name] = {
+                        "flux_density_equiv_t": abs(loop_flux(src, info.polygon)) / info.area if info.area else None,
+                        "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
+                entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_of(phi, f),
+                                               "current_a": float(abs(sol.I[chord_i, col]))})
+                group = f"field:{src_name}"
+                label = ("loop", f"loop {li + 1}", group)
                 for k, st in enumerate(stages):
-                    if not valid_stage[k]:
-                        continue
-                    v = path_drop(fac, sol, paths[k])[col] * gains[k]
-                    out[st.channel][f][f"field:{src_name}"] += v
-                    contrib[st.channel][("loop", f"loop {li + 1}", f"field:{src_name}")][f] += v
+                    if valid_stage[k]:
+                        v = drops[k, col]
+                        out[st.channel][f][group] += v
+                        contrib[st.channel][label][f] += v
         if signal_sources and len(channels) > 1 and f in xt_freqs and stages:
             J = np.zeros((len(circuit.nodes), len(signal_sources)), dtype=complex)
             for k, s in enumerate(signal_sources):

@@ -12,7 +12,9 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from .errors import LimitError, Location, PlanError, PlanErrors
+import gc
 import os
+from contextlib import contextmanager
 
 from .model import PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
@@ -302,6 +304,24 @@ class _Loader:
 def load_text(text: str, file: str = "<plan>", *, root: Path | None = None, _resolved: Path | None = None,
               libraries: tuple[str, ...] = (), _devices: tuple[Path, ...] = ()) -> Plan:
     """Load a plan from its text.  ``file`` is the name shown in messages; includes resolve under ``root``."""
+    with no_gc():
+        return _load_text(text, file, root=root, _resolved=_resolved, libraries=libraries, _devices=_devices)
+
+
+@contextmanager
+def no_gc():
+    """Pause Python's cyclic garbage collector: loading makes millions of small acyclic objects, and
+    its repeated full collections would otherwise make a large plan's load grow faster than linearly."""
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
+
+
+def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices) -> Plan:
     root = (root or Path.cwd()).resolve()
     ld = _Loader(root)
     ld.libraries = tuple(libraries)

@@ -8,8 +8,9 @@ toolkit to read phrases with precise error locations.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, NamedTuple
 
 from .errors import Location, PlanError
 from .units import UnitError, parse_quantity, unit_kind
@@ -17,8 +18,7 @@ from .units import UnitError, parse_quantity, unit_kind
 __all__ = ["Item", "Statement", "make_items", "Reader"]
 
 
-@dataclass(frozen=True)
-class Item:
+class Item(NamedTuple):
     """One item of a phrase: ``kind`` is word, number, qty, coord or string."""
 
     kind: str
@@ -40,41 +40,88 @@ class Statement:
     broken: bool = False          # an error was already reported inside it
 
 
-def make_items(tokens, file: str, errors: list[PlanError]) -> list[Item]:
-    """Items of one phrase from its lark tokens: a number followed by a unit becomes a quantity."""
+_ITEM = re.compile(r"""
+    (?P<ws>[ \t\r]+)
+  | (?P<nl>\n)
+  | (?P<comma>,)
+  | (?P<STRING>"[^"\n]*")
+  | (?P<COORD>[+-]?(?:\d+(?:\.\d*)?|\.\d+),[+-]?(?:\d+(?:\.\d*)?|\.\d+))
+  | (?P<NUMBER>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)
+  | (?P<WORD>(?:[^\W\d]|\u00b0)[\w.\-/\u00b0]*)
+  | (?P<bad>.)
+""", re.X)
+
+
+def split_phrases(text: str, line: int, column: int, file: str, errors: list[PlanError]) -> list[list[Item]]:
+    """The comma-separated phrases of a statement's rest (a lark ``REST`` token starting at line:column).
+
+    A comma between two numbers with no space (25,200) is a coordinate, not a separator.
+    """
+    phrases: list[list[tuple]] = [[]]
+    line_start = -column + 1          # offset in ``text`` of the current line's column 1
+    for m in _ITEM.finditer(text):
+        kind = m.lastgroup
+        if kind == "ws":
+            continue
+        if kind == "nl":
+            line += 1
+            line_start = m.end()
+            continue
+        col = m.start() - line_start + 1
+        if kind == "comma":
+            if not phrases[-1]:
+                errors.append(PlanError("unexpected ','", Location(file, line, col), "an attribute is missing here"))
+                return []
+            phrases.append([])
+            continue
+        if kind == "bad":
+            errors.append(PlanError(f"unexpected character {m.group()!r}", Location(file, line, col),
+                                    "names start with a letter; positions are x,y with no space; strings use double quotes"))
+            return []
+        phrases[-1].append((kind, m.group(), line, col))
+    if not phrases[-1] and len(phrases) > 1:
+        errors.append(PlanError("the statement ends with a comma", Location(file, line, len(text) - line_start + 1),
+                                "remove the comma, or continue the attributes on the next line"))
+        return []
+    return [make_items(p, file, errors) for p in phrases if p]
+
+
+def make_items(tokens: list[tuple], file: str, errors: list[PlanError]) -> list[Item]:
+    """Items of one phrase from (kind, text, line, column) tuples: a number followed by a unit becomes a quantity."""
     out: list[Item] = []
     i = 0
-    while i < len(tokens):
-        t = tokens[i]
-        loc = Location(file, t.line, t.column)
-        nxt = tokens[i + 1] if i + 1 < len(tokens) else None
-        if t.type == "NUMBER":
-            if nxt is not None and nxt.type == "WORD" and nxt.value not in ("x", "to", "at", "on"):
+    n = len(tokens)
+    while i < n:
+        kind, value, line, col = tokens[i]
+        loc = Location(file, line, col)
+        nxt = tokens[i + 1] if i + 1 < n else None
+        if kind == "NUMBER":
+            if nxt is not None and nxt[0] == "WORD" and nxt[1] not in ("x", "to", "at", "on"):
                 try:
-                    value, kind = parse_quantity(t.value, nxt.value)
+                    qv, qk = parse_quantity(value, nxt[1])
                 except UnitError as e:
-                    errors.append(PlanError(str(e), Location(file, nxt.line, nxt.column), e.hint))
+                    errors.append(PlanError(str(e), Location(file, nxt[2], nxt[3]), e.hint))
                     i += 2
                     continue
-                out.append(Item("qty", f"{t.value} {nxt.value}", loc, value, kind))
+                out.append(Item("qty", f"{value} {nxt[1]}", loc, qv, qk))
                 i += 2
                 continue
-            out.append(Item("number", t.value, loc, float(t.value)))
-        elif t.type == "COORD":
-            xs, ys = t.value.split(",")
+            out.append(Item("number", value, loc, float(value)))
+        elif kind == "COORD":
+            xs, ys = value.split(",")
             scale = 1e-3
-            if nxt is not None and nxt.type == "WORD" and unit_kind(nxt.value) == "length":
-                scale = parse_quantity("1", nxt.value)[0]
+            if nxt is not None and nxt[0] == "WORD" and unit_kind(nxt[1]) == "length":
+                scale = parse_quantity("1", nxt[1])[0]
                 i += 1
-            elif nxt is not None and nxt.type == "WORD" and unit_kind(nxt.value) is not None:
-                errors.append(PlanError(f"a position is a length, not a {unit_kind(nxt.value)}",
-                                        Location(file, nxt.line, nxt.column), "positions are in mm, or give a length unit"))
+            elif nxt is not None and nxt[0] == "WORD" and unit_kind(nxt[1]) is not None:
+                errors.append(PlanError(f"a position is a length, not a {unit_kind(nxt[1])}",
+                                        Location(file, nxt[2], nxt[3]), "positions are in mm, or give a length unit"))
                 i += 1
-            out.append(Item("coord", t.value, loc, (float(xs) * scale, float(ys) * scale)))
-        elif t.type == "STRING":
-            out.append(Item("string", t.value[1:-1], loc, t.value[1:-1]))
+            out.append(Item("coord", value, loc, (float(xs) * scale, float(ys) * scale)))
+        elif kind == "STRING":
+            out.append(Item("string", value[1:-1], loc, value[1:-1]))
         else:
-            out.append(Item("word", t.value, loc, t.value))
+            out.append(Item("word", value, loc, value))
         i += 1
     return out
 

@@ -11,18 +11,18 @@ from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 
-from lark import Lark, Token, Tree
+from lark import Lark, Token, Transformer
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from .errors import Location, PlanError
-from .phrases import Statement, make_items
+from .phrases import Statement, split_phrases
 
 __all__ = ["parse_text", "BlockDef", "grammar_text"]
 
 #: the most syntax errors reported for one file before giving up
 MAX_SYNTAX_ERRORS = 20
 
-_FRIENDLY = {"WORD": "a word", "NUMBER": "a number", "COORD": "a position x,y", "STRING": "a quoted string",
+_FRIENDLY = {"WORD": "a keyword", "REST": "attributes", "NUMBER": "a number", "COORD": "a position x,y", "STRING": "a quoted string",
              "LABEL": "a name with a colon", "_NL": "the end of the line", "COMMA": "a comma",
              "LBRACE": "'{'", "RBRACE": "'}'", "BLOCK": "'block'", "$END": "the end of the file"}
 
@@ -35,16 +35,48 @@ def grammar_text() -> str:
         return (Path(__file__).resolve().parent.parent / "grammar" / "plan.lark").read_text(encoding="utf-8")
 
 
-@lru_cache(maxsize=1)
-def _parser() -> Lark:
-    return Lark(grammar_text(), parser="lalr", propagate_positions=True, maybe_placeholders=False)
-
-
 class BlockDef:
     """A block definition: its name, location and statements (still unexpanded)."""
 
     def __init__(self, name: str, loc: Location, body: list[Statement]):
         self.name, self.loc, self.body = name, loc, body
+
+
+class _Build(Transformer):
+    """Turns the parse into :class:`Statement` records as the LALR parser reduces (no tree is built).
+
+    Rule names match the grammar's: ``statement``, ``attr``, ``block``, ``start``.
+    """
+
+    file = "<plan>"
+    errors: list = []
+
+    def statement(self, children):
+        kw: Token = children[0]
+        st = Statement(str(kw), Location(self.file, kw.line, kw.column))
+        rest = children[1:]
+        if rest and rest[0].type == "LABEL":
+            st.label = rest[0].value.rstrip(": \t")
+            st.label_loc = Location(self.file, rest[0].line, rest[0].column)
+            rest = rest[1:]
+        if rest:
+            st.phrases = split_phrases(str(rest[0]), rest[0].line, rest[0].column, self.file, self.errors)
+        return st
+
+    def block(self, children):
+        name_tok = children[0]
+        return BlockDef(str(name_tok), Location(self.file, name_tok.line, name_tok.column), list(children[1:]))
+
+    def start(self, children):
+        return children
+
+
+_BUILD = _Build()
+
+
+@lru_cache(maxsize=1)
+def _parser() -> Lark:
+    return Lark(grammar_text(), parser="lalr", transformer=_BUILD, maybe_placeholders=False)
 
 
 def _syntax_error(e: UnexpectedInput, file: str, lines: list[str]) -> PlanError:
@@ -79,11 +111,13 @@ def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dic
     and parsing starts again, so that several errors of one file are reported.
     """
     lines = text.split("\n")
-    tree = None
+    items = None
     work = list(lines)
+    _BUILD.file = file
     for _ in range(MAX_SYNTAX_ERRORS):
+        _BUILD.errors = []
         try:
-            tree = _parser().parse("\n".join(work) + "\n")
+            items = _parser().parse("\n".join(work) + "\n")
             break
         except UnexpectedInput as e:
             err = _syntax_error(e, file, lines)
@@ -95,38 +129,34 @@ def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dic
                 work[ln] = ""
             else:
                 return [], {}
-    if tree is None:
+    if items is None:
         return [], {}
+    item_errors = _BUILD.errors
+    errors.extend(item_errors)
+    # a statement with an error inside it is marked broken, so that it makes no follow-on errors
+    bad_lines = {(e.location.line) for e in item_errors}
     out: list = []
     blocks: dict[str, BlockDef] = {}
-    for child in tree.children:
-        if isinstance(child, Tree) and child.data == "block":
-            name_tok = child.children[0]
-            loc = Location(file, name_tok.line, name_tok.column)
-            body = [_statement(s, file, errors) for s in child.children[1:]]
-            bd = BlockDef(str(name_tok), loc, body)
-            if bd.name in blocks:
-                errors.append(PlanError(f"block {bd.name!r} is defined twice", loc, f"first defined at {blocks[bd.name].loc}"))
-            blocks[bd.name] = bd
-            out.append(("block", bd))
-        elif isinstance(child, Tree) and child.data == "statement":
-            out.append(_statement(child, file, errors))
+    for child in items:
+        if isinstance(child, BlockDef):
+            for st in child.body:
+                _mark(st, bad_lines)
+            if child.name in blocks:
+                errors.append(PlanError(f"block {child.name!r} is defined twice", child.loc, f"first defined at {blocks[child.name].loc}"))
+            blocks[child.name] = child
+            out.append(("block", child))
+        else:
+            _mark(child, bad_lines)
+            out.append(child)
     return out, blocks
 
 
-def _statement(tree: Tree, file: str, errors: list[PlanError]) -> Statement:
-    kw: Token = tree.children[0]
-    st = Statement(str(kw), Location(file, kw.line, kw.column))
-    before = len(errors)
-    for child in tree.children[1:]:
-        if isinstance(child, Token) and child.type == "LABEL":
-            st.label = child.value.rstrip(": \t")
-            st.label_loc = Location(file, child.line, child.column)
-        elif isinstance(child, Tree) and child.data == "attr":
-            st.phrases.append(make_items(child.children, file, errors))
-    st.phrases = [p for p in st.phrases if p]
-    st.broken = len(errors) > before
-    return st
+def _mark(st: Statement, bad_lines: set[int]) -> None:
+    if not bad_lines:
+        return
+    last = max((it.loc.line for ph in st.phrases for it in ph), default=st.loc.line)
+    if any(st.loc.line <= ln <= last for ln in bad_lines):
+        st.broken = True
 
 
 def suggest_keyword(word: str, keywords) -> str:

@@ -154,7 +154,7 @@ def test_comments_continuation_and_crlf():
 
 BAD = [
     ("syntax", 'plan "x"\nmetal deck: aluminium 2 mm,, touchable\n',
-     "bad.gplan:2:28: error: unexpected ',' (expected a number or a position x,y or a quoted string or a word)"),
+     "bad.gplan:2:28: error: unexpected ',' (an attribute is missing here)"),
     ("keyword", 'plan "x"\nwier w: a to b, 10 mm, 1 mm2\n',
      "bad.gplan:2:1: error: unknown keyword 'wier' (did you mean 'wire'?)"),
     ("unit", 'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 10 mmm, 1 mm2\n',
