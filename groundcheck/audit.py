@@ -11,6 +11,9 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 import networkx as nx
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.csgraph as csgraph
 
 from .errors import Location
 from .findings import Finding
@@ -303,21 +306,29 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     out = []
     G = ctx.G
     side = ctx.chassis_side
-    H = nx.Graph()
-    for n in G.nodes:
-        if n not in side:
-            H.add_node(n)
-    for u, v, k, d in G.edges(keys=True, data=True):
+    # signal-ground networks: connected parts of the graph without the chassis side and protective conductors
+    order = list(G.nodes)
+    idx = {n: i for i, n in enumerate(order)}
+    rows, cols = [], []
+    for u, v, d in G.edges(data=True):
         if u not in side and v not in side and d["conductor"].role != "protective":
-            H.add_edge(u, v)
-    for comp in sorted((sorted(c) for c in nx.connected_components(H)), key=lambda c: c[0]):
-        comp_set = set(comp)
-        if not comp_set & ctx.signal_points:
+            rows.append(idx[u])
+            cols.append(idx[v])
+    n = len(order)
+    A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
+    _, labels = csgraph.connected_components(A, directed=False)
+    members: dict[int, list[str]] = {}
+    for name in order:
+        if name not in side:
+            members.setdefault(int(labels[idx[name]]), []).append(name)
+    for label in sorted(members, key=lambda k: sorted(members[k])[0]):
+        comp = sorted(members[label])
+        if not set(comp) & ctx.signal_points:
             continue
         places: dict[str, list[str]] = {}
-        for n in comp:
-            for v, keys in G.adj[n].items():
-                keys = [k for k in keys if G.edges[n, v, k]["conductor"].kind != "interconnect"]
+        for node in comp:
+            for v, keys in G.adj[node].items():
+                keys = [k for k in keys if G.edges[node, v, k]["conductor"].kind != "interconnect"]
                 if v in side and keys:
                     places.setdefault(v, []).extend(sorted(keys))
         name = _component_name(ctx, comp)

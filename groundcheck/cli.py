@@ -80,6 +80,7 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--format", choices=("text", "json", "sarif"), default="text", help="output format (default text)")
     c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
+    c.add_argument("--jobs", type=int, default=1, metavar="N", help="check several plans in N processes at once (default 1)")
     _add_analysis_options(c)
 
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
@@ -153,6 +154,19 @@ def _write(text: str, output: str | None, inputs: list[str]) -> None:
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
 
 
+class _Rendered(GroundcheckError):
+    """Plan errors already rendered to text (from a worker process)."""
+
+
+def _check_one(path: str, options):
+    """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors)."""
+    from .analysis import analyze
+    try:
+        return True, analyze(_load(path), options)
+    except PlanErrors as e:
+        return False, e.render()
+
+
 def _analyze_with_progress(analyze, plan, options, label: str):
     """Run the analysis with a transient progress line on an interactive terminal."""
     if not sys.stderr.isatty():
@@ -165,9 +179,18 @@ def _analyze_with_progress(analyze, plan, options, label: str):
 def cmd_check(args) -> int:
     from .analysis import analyze
     results = []
-    for path in args.plans:
-        plan = _load(path)
-        results.append(_analyze_with_progress(analyze, plan, _options(args), path))
+    if args.jobs > 1 and len(args.plans) > 1:
+        from concurrent.futures import ProcessPoolExecutor
+        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
+            outcomes = list(pool.map(_check_one, args.plans, [_options(args)] * len(args.plans)))
+        for ok, value in outcomes:
+            if not ok:
+                raise _Rendered(value)
+            results.append(value)
+    else:
+        for path in args.plans:
+            plan = _load(path)
+            results.append(_analyze_with_progress(analyze, plan, _options(args), path))
     threshold = severity_rank(args.fail_on)
     failing = any(severity_rank(f.severity) <= threshold for r in results for f in r.findings)
     if args.format == "json":
@@ -368,6 +391,9 @@ def main(argv: list[str] | None = None) -> int:
         return COMMANDS[args.command](args)
     except PlanErrors as e:
         sys.stderr.write(e.render() + "\n")
+        return 2
+    except _Rendered as e:
+        sys.stderr.write(str(e) + "\n")
         return 2
     except GroundcheckError as e:
         sys.stderr.write(f"groundcheck: error: {e}\n")

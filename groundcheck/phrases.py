@@ -75,8 +75,10 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
             phrases.append([])
             continue
         if kind == "bad":
-            errors.append(PlanError(f"unexpected character {m.group()!r}", Location(file, line, col),
-                                    "names start with a letter; positions are x,y with no space; strings use double quotes"))
+            hint = ("only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
+                    if m.group() == ":" else
+                    "names start with a letter; positions are x,y with no space; strings use double quotes")
+            errors.append(PlanError(f"unexpected character {m.group()!r}", Location(file, line, col), hint))
             return []
         phrases[-1].append((kind, m.group(), line, col))
     if not phrases[-1] and len(phrases) > 1:
@@ -91,9 +93,10 @@ def make_items(tokens: list[tuple], file: str, errors: list[PlanError]) -> list[
     out: list[Item] = []
     i = 0
     n = len(tokens)
+    new = tuple.__new__
     while i < n:
         kind, value, line, col = tokens[i]
-        loc = Location(file, line, col)
+        loc = new(Location, (file, line, col))
         nxt = tokens[i + 1] if i + 1 < n else None
         if kind == "NUMBER":
             if nxt is not None and nxt[0] == "WORD" and nxt[1] not in ("x", "to", "at", "on"):
@@ -103,10 +106,10 @@ def make_items(tokens: list[tuple], file: str, errors: list[PlanError]) -> list[
                     errors.append(PlanError(str(e), Location(file, nxt[2], nxt[3]), e.hint))
                     i += 2
                     continue
-                out.append(Item("qty", f"{value} {nxt[1]}", loc, qv, qk))
+                out.append(new(Item, ("qty", f"{value} {nxt[1]}", loc, qv, qk)))
                 i += 2
                 continue
-            out.append(Item("number", value, loc, float(value)))
+            out.append(new(Item, ("number", value, loc, float(value), None)))
         elif kind == "COORD":
             xs, ys = value.split(",")
             scale = 1e-3
@@ -121,7 +124,7 @@ def make_items(tokens: list[tuple], file: str, errors: list[PlanError]) -> list[
         elif kind == "STRING":
             out.append(Item("string", value[1:-1], loc, value[1:-1]))
         else:
-            out.append(Item("word", value, loc, value))
+            out.append(new(Item, ("word", value, loc, value, None)))
         i += 1
     return out
 

@@ -23,7 +23,7 @@ __all__ = ["parse_text", "BlockDef", "grammar_text"]
 MAX_SYNTAX_ERRORS = 20
 
 _FRIENDLY = {"WORD": "a keyword", "REST": "attributes", "NUMBER": "a number", "COORD": "a position x,y", "STRING": "a quoted string",
-             "LABEL": "a name with a colon", "_NL": "the end of the line", "COMMA": "a comma",
+             "HEAD": "a keyword and a name", "_NL": "the end of the line", "COMMA": "a comma",
              "LBRACE": "'{'", "RBRACE": "'}'", "BLOCK": "'block'", "$END": "the end of the file"}
 
 
@@ -52,13 +52,17 @@ class _Build(Transformer):
     errors: list = []
 
     def statement(self, children):
-        kw: Token = children[0]
-        st = Statement(str(kw), Location(self.file, kw.line, kw.column))
+        head: Token = children[0]
         rest = children[1:]
-        if rest and rest[0].type == "LABEL":
-            st.label = rest[0].value.rstrip(": \t")
-            st.label_loc = Location(self.file, rest[0].line, rest[0].column)
-            rest = rest[1:]
+        if head.type == "HEAD":
+            text = head.value
+            kw_text = text.split(None, 1)[0]
+            label_start = len(kw_text) + (len(text) - len(kw_text) - len(text[len(kw_text):].lstrip()))
+            st = Statement(kw_text, Location(self.file, head.line, head.column))
+            st.label = text[label_start:].rstrip(": \t")
+            st.label_loc = Location(self.file, head.line, head.column + label_start)
+        else:
+            st = Statement(str(head), Location(self.file, head.line, head.column))
         if rest:
             st.phrases = split_phrases(str(rest[0]), rest[0].line, rest[0].column, self.file, self.errors)
         return st
@@ -95,9 +99,9 @@ def _syntax_error(e: UnexpectedInput, file: str, lines: list[str]) -> PlanError:
     assert isinstance(e, UnexpectedToken)
     tok = e.token
     expected = sorted({_FRIENDLY.get(t, t) for t in e.expected if not t.startswith("__")})
-    what = {"LABEL": f"name {tok.value.rstrip(': ')!r} with a colon", "_NL": "end of line"}.get(tok.type, repr(str(tok)))
+    what = {"HEAD": repr(str(tok).rstrip(": \t")), "_NL": "end of line"}.get(tok.type, repr(str(tok)))
     hint = "expected " + " or ".join(expected[:4]) if expected else ""
-    if tok.type == "LABEL":
+    if tok.type == "HEAD":
         hint = "a statement starts with its keyword, e.g. 'wire NAME: A to B, ...'"
     if tok.type == "RBRACE":
         hint = "'}' closes a block and stands alone on its line"

@@ -79,3 +79,22 @@ def test_balanced_interconnect_rejects_the_shield_drop():
     unbal = analyze(load(STUDIO)).hum.channels["monitors"].total_v
     bal = analyze(load_text(text, str(STUDIO), root=STUDIO.parent)).hum.channels["monitors"].total_v
     assert bal == pytest.approx(unbal * 10 ** (-60 / 20), rel=1e-6)
+
+
+def test_generated_plans_parse_and_check():
+    import sys
+    sys.path.insert(0, str(ROOT / "benchmarks"))
+    from generate import chassis, installation
+    big = load_text(chassis(400), "chassis.gplan")
+    r = analyze(big)
+    assert r.loop_total == len(big.conductors) - len(big.points) - len(big.metals) + 1
+    inst = analyze(load_text(installation(12), "inst.gplan"))
+    assert any(lp.closed_by == "mains-cords" for lp in inst.loops)
+    assert inst.hum.channels
+
+
+def test_jobs_give_the_same_result(cli):
+    plans = [str(ROOT / "examples" / "dual-mono-line-stage.gplan"), str(STUDIO)]
+    one = cli("check", *plans, "--format", "json")
+    two = cli("check", *plans, "--format", "json", "--jobs", "2")
+    assert one == two
