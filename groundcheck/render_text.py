@@ -96,9 +96,22 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
             if h.contributors:
                 top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %" for c in h.contributors[:3])
                 console.print(f"  main contributors, {escape(ch)}: {top}")
+        xt = [r for r in result.hum.crosstalk if r["frequency_hz"] == 1000.0]
+        for r in xt:
+            console.print(f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} at 1 kHz: "
+                          + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB"))
         for note in result.hum.notes:
             console.print(Text(f"  note: {note}", style="dim"))
         console.print()
+        if result.hum.rectifiers:
+            t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
+            for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °"):
+                t.add_column(col, justify="right" if col != "rectifier" else "left")
+            for r in result.hum.rectifiers:
+                t.add_row(escape(r.name), f"{r.dc_voltage:.1f}", f"{r.ripple_pp:.3g}", f"{r.peak_current:.3g}",
+                          f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
+            console.print(t)
+            console.print()
 
     if result.safety is not None and result.safety.parts:
         t = Table(title="Protective earth (line-to-part fault)", title_justify="left")
