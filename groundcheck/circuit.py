@@ -139,20 +139,34 @@ class Circuit:
                 ref[labels[i]] = i
         return ref
 
-    def at(self, f: float) -> "Factored":
-        """The admittance matrix at frequency f (Hz), factorised once for any number of solves."""
+    @cached_property
+    def _pattern(self):
+        """Entries of the admittance matrix among the non-reference nodes: (reduced index of every node,
+        rows, cols, which branch each entry comes from, its sign, the reduced size)."""
         n1, n2, *_ = self._arrays
         n = len(self.nodes)
-        z = self.impedance(f)
-        y = 1.0 / z
-        rows = np.concatenate([n1, n2, n1, n2])
-        cols = np.concatenate([n1, n2, n2, n1])
-        vals = np.concatenate([y, y, -y, -y])
-        Y = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsc()
         keep = np.ones(n, dtype=bool)
         keep[self.references] = False
-        # minimum-degree ordering on the symmetric pattern: about half the fill of the default on ground networks
-        lu = spla.splu(Y[keep][:, keep].tocsc(), permc_spec="MMD_AT_PLUS_A") if keep.any() else None
+        ridx = np.cumsum(keep) - 1
+        ridx[~keep] = -1
+        b = np.arange(len(n1))
+        rows = np.concatenate([n1, n2, n1, n2])
+        cols = np.concatenate([n1, n2, n2, n1])
+        branch = np.concatenate([b, b, b, b])
+        sign = np.concatenate([np.ones(len(b)), np.ones(len(b)), -np.ones(len(b)), -np.ones(len(b))])
+        ok = keep[rows] & keep[cols]
+        return keep, ridx[rows[ok]], ridx[cols[ok]], branch[ok], sign[ok], int(keep.sum())
+
+    def at(self, f: float) -> "Factored":
+        """The admittance matrix at frequency f (Hz), factorised once for any number of solves."""
+        z = self.impedance(f)
+        y = 1.0 / z
+        keep, rows, cols, branch, sign, m = self._pattern
+        lu = None
+        if m:
+            Y = sp.csc_matrix((y[branch] * sign, (rows, cols)), shape=(m, m))
+            # minimum-degree ordering on the symmetric pattern: about half the fill of the default on ground networks
+            lu = spla.splu(Y, permc_spec="MMD_AT_PLUS_A")
         return Factored(self, f, z, y, keep, lu)
 
     def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
