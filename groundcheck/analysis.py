@@ -9,7 +9,7 @@ import numpy as np
 
 from .audit import AuditContext, LoopInfo, audit
 from .circuit import Circuit, build_circuit
-from .coupling import SHARE_THRESHOLD, branch_owner, pair_tests, plan_sources, source_injections
+from .coupling import SHARE_THRESHOLD, Source, branch_owner, pair_tests, source_injections
 from .findings import Finding, severity_rank
 from .hum import HumOptions, HumResult, hum_budget
 from .model import Plan
@@ -17,6 +17,9 @@ from .rectifier import simulate
 from .safety import DEFAULT_PE_LIMIT, TOUCH_LIMIT, SafetyResult, protective_figures
 
 __all__ = ["Options", "Result", "analyze"]
+
+#: shared-return findings listed at the most (the strongest couplings first)
+MAX_SHARED_FINDINGS = 200
 
 
 @dataclass(frozen=True)
@@ -56,9 +59,7 @@ class Result:
 
 def _shared_returns(plan: Plan, circuit: Circuit) -> tuple[list[Finding], list[dict]]:
     """GC102: supply-return currents whose path shares conductors with a sensitive pair (resistive, DC)."""
-    sources = [s for s in plan_sources(plan, {}, 0) if s.kind != "signal"] if not plan.rectifiers else None
-    # rectifiers need no simulation here: a unit current between their ends shows the sharing
-    from .coupling import Source
+    # a unit current between each source's ends shows the sharing: rectifiers need no simulation here
     sources = [Source(r.name, "rectifier", r.a, r.b, {0.0: 1.0}, r.channel, r.location) for r in plan.rectifiers]
     sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel, c.location) for c in plan.currents if c.role != "signal"]
     sources += [Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location) for h in plan.heaters if h.a and h.b]
@@ -68,46 +69,53 @@ def _shared_returns(plan: Plan, circuit: Circuit) -> tuple[list[Finding], list[d
     _, labels = circuit.components
     fac = circuit.at(0.0)
     src = fac.solve(source_injections(circuit, sources, 0.0))
-    test = fac.solve(pair_tests(circuit, [(s.a, s.b) for s in stages]))
+    test_J = pair_tests(circuit, [(s.a, s.b) for s in stages])
+    split = [labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages]
+    test_J[:, split] = 0.0                      # a stage across two islands has no defined pair voltage
+    test = fac.solve(test_J)
     owners = branch_owner(circuit)
     plan_conductors = {c.name: c for c in plan.conductors}
+    W = fac.z[:, None] * src.I                                       # branches × sources
+    transfer = np.abs(test.I.T @ W)                                  # stages × sources, V per A (reciprocity)
+    pairs = np.argwhere(transfer > 1e-6)
+    if len(pairs) > MAX_SHARED_FINDINGS:
+        order = np.argsort(-transfer[pairs[:, 0], pairs[:, 1]], kind="stable")[:MAX_SHARED_FINDINGS]
+        pairs = pairs[np.sort(order)]
     findings, rows = [], []
-    for si, s in enumerate(sources):
-        for k, st in enumerate(stages):
-            if labels[circuit.point_node[s.a]] != labels[circuit.point_node[st.a]]:
-                continue
-            if labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]]:
-                continue
-            shares = fac.z * src.I[:, si] * test.I[:, k]
-            transfer = abs(shares.sum())
-            carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(test.I[:, k]) >= SHARE_THRESHOLD)
-            if transfer <= 1e-6 or not carrying.any():
-                continue
-            # name the conductors that make up most of the coupling (largest shares first, at most five)
-            idx = [b for b in np.argsort(-np.abs(shares)) if carrying[b]]
-            total = np.abs(shares[idx]).sum()
-            shared, acc = [], 0.0
-            for b in idx:
-                if owners[b] not in shared:
-                    shared.append(owners[b])
-                acc += abs(shares[b])
-                if acc >= 0.9 * total or len(shared) >= 5:
-                    break
-            via_ic = [x for x in shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
-            rows.append({"source": s.name, "stage": st.name, "transfer_ohm": float(transfer), "shared": shared})
-            if via_ic:
-                fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
-                       "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
-            elif s.kind == "current" and any(c.name == s.name and c.role == "leakage" for c in plan.currents):
-                fix = f"keep {st.a} and {st.b} off the conductors that carry {s.name}; give the stage its own reference wire"
-            else:
-                fix = (f"join {s.a} and {s.b} by a short wire of their own, then one wire to the star; "
-                       f"take {st.b} and {st.a} to the signal star by wires that carry no supply current")
-            findings.append(Finding(
-                "GC102", "fault",
-                f"{s.kind} return {s.name} ({s.a} → {s.b}) shares {', '.join(shared)} with stage {st.name} ({st.a} – {st.b})",
-                s.location, (s.name, st.name, *shared),
-                {"transfer_resistance_mohm": float(f"{transfer * 1e3:.6g}"), "stage_gain_db": st.gain}, fix))
+    for k, si in pairs:
+        s, st = sources[si], stages[k]
+        if labels[circuit.point_node[s.a]] != labels[circuit.point_node[st.a]]:
+            continue
+        shares = W[:, si] * test.I[:, k]
+        carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(test.I[:, k]) >= SHARE_THRESHOLD)
+        if not carrying.any():
+            continue
+        tr = float(transfer[k, si])
+        # name the conductors that make up most of the coupling (largest shares first, at most five)
+        idx = [b for b in np.argsort(-np.abs(shares), kind="stable") if carrying[b]]
+        total = np.abs(shares[idx]).sum()
+        shared, acc = [], 0.0
+        for b in idx:
+            if owners[b] not in shared:
+                shared.append(owners[b])
+            acc += abs(shares[b])
+            if acc >= 0.9 * total or len(shared) >= 5:
+                break
+        via_ic = [x for x in shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
+        rows.append({"source": s.name, "stage": st.name, "transfer_ohm": tr, "shared": shared})
+        if via_ic:
+            fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
+                   "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
+        elif s.kind == "current" and any(c.name == s.name and c.role == "leakage" for c in plan.currents):
+            fix = f"keep {st.a} and {st.b} off the conductors that carry {s.name}; give the stage its own reference wire"
+        else:
+            fix = (f"join {s.a} and {s.b} by a short wire of their own, then one wire to the star; "
+                   f"take {st.b} and {st.a} to the signal star by wires that carry no supply current")
+        findings.append(Finding(
+            "GC102", "fault",
+            f"{s.kind} return {s.name} ({s.a} → {s.b}) shares {', '.join(shared)} with stage {st.name} ({st.a} – {st.b})",
+            s.location, (s.name, st.name, *shared),
+            {"transfer_resistance_mohm": float(f"{tr * 1e3:.6g}"), "stage_gain_db": st.gain}, fix))
     return findings, rows
 
 

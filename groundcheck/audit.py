@@ -101,25 +101,29 @@ class AuditContext:
 
     @cached_property
     def protective_path(self) -> set[str]:
-        """Conductors on the protective route from an inlet to a metal part: never to be opened."""
+        """Conductors on the protective route from the nearest inlet to each metal part: never to be opened.
+
+        One breadth-first search from every inlet at once, over protective conductors and fastenings.
+        """
         ok = lambda c: c.role in ("protective", "bond") and c.kind not in ("lift", "switch", "shield", "interconnect")  # noqa: E731
+        parent: dict = {inlet: None for inlet in self.inlets}
+        q = deque(self.inlets)
+        while q:
+            u = q.popleft()
+            for v, keys in self.G.adj[u].items():
+                if v in parent:
+                    continue
+                good = [k for k in keys if ok(keys[k]["conductor"])]
+                if good:
+                    parent[v] = (u, min(good))
+                    q.append(v)
         keep: set[str] = set()
-        for inlet in self.inlets:
-            parent = {inlet: None}
-            q = deque([inlet])
-            while q:
-                u = q.popleft()
-                for v, keys in self.G.adj[u].items():
-                    good = sorted(k for k in keys if ok(self.G.edges[u, v, k]["conductor"]))
-                    if v not in parent and good:
-                        parent[v] = (u, good[0])
-                        q.append(v)
-            for m in self.metals & parent.keys():
-                v = m
-                while parent[v] is not None:
-                    u, k = parent[v]
-                    keep.add(k)
-                    v = u
+        for m in self.metals & parent.keys():
+            v = m
+            while parent[v] is not None and parent[v][1] not in keep:
+                u, k = parent[v]
+                keep.add(k)
+                v = u
         return keep
 
     @cached_property

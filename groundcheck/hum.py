@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .coupling import branch_owner, contributions, pair_path, pair_tests, path_drop, plan_sources, source_injections
+from .coupling import branch_owner, pair_path, pair_tests, path_drop, plan_sources, source_injections
 from .hearing import dbv, spl_at_listener, threshold_of_hearing
 from .pickup import emf as emf_of, loop_flux, min_distance
 
@@ -36,6 +36,9 @@ FLOOR_V = 1e-12
 
 #: conductors named per source and stage as hum contributors (the rest are summed)
 TOP_SHARES = 10
+
+#: conductors listed per source in the JSON ``network`` section (the largest currents)
+NETWORK_ROWS = 50
 
 #: crosstalk is not shown below this (dB)
 CROSSTALK_FLOOR_DB = -200.0
@@ -88,7 +91,6 @@ class HumResult:
     loops: list[dict]
     crosstalk: list[dict]
     frequencies: list[float]
-    coupling: list[dict] = field(default_factory=list)    # per source and stage: transfer and shared conductors
     network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
     notes: list[str] = field(default_factory=list)
 
@@ -160,9 +162,12 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}
     contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}   # (label) -> f -> phasor
     loop_rows: dict[int, dict] = {}
-    coupling_rows: dict[tuple, dict] = {}
     network_rows: list[dict] = []
     gains = np.array([10 ** (s.gain / 20) for s in stages])
+    valid_idx = np.flatnonzero(valid_stage) if stages else np.zeros(0, dtype=int)
+    member = np.zeros((len(valid_idx), len(channels)))
+    for row, k in enumerate(valid_idx):
+        member[row, channels.index(stages[k].channel)] = 1.0
     stage_ch = [s.channel for s in stages]
     crosstalk_raw = defaultdict(complex)
     flux_cache: dict = {}
@@ -171,35 +176,35 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         fac = circuit.at(f)
         test = fac.solve(pair_tests(circuit, [(s.a, s.b) for s in stages])) if stages else None
         active = [s for s in hum_sources if s.parts.get(f, 0) != 0] if f in freqs else []
-        if active and stages:
+        if active and stages and valid_idx.size:
             sol = fac.solve(source_injections(circuit, active, f))
-            C = contributions(fac, sol, test)                      # branches × sources × stages
-            vpair = C.sum(axis=0)                                  # sources × stages
-            for si, s in enumerate(active):
-                group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
-                for k, st in enumerate(stages):
-                    if not valid_stage[k]:
+            W = fac.z[:, None] * sol.I                                   # branches × sources: Z_b·I_b(s)
+            # per channel, the gain-weighted test currents of its stages (stages in phase, see the module doc)
+            TC = (test.I[:, valid_idx] * gains[valid_idx]) @ member      # branches × channels
+            for ci, ch in enumerate(channels):
+                shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
+                v_all = shares_all.sum(axis=0)
+                for si, s in enumerate(active):
+                    group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
+                    v_out = v_all[si]
+                    if v_out == 0:
                         continue
-                    v_out = vpair[si, k] * gains[k]
-                    out[st.channel][f][group] += v_out
-                    shares = C[:, si, k] * gains[k]
+                    out[ch][f][group] += v_out
+                    shares = shares_all[:, si]
                     mags = np.abs(shares)
                     # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
                     top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
                     top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
                     for bi in top:
-                        contrib[st.channel][("conductor", owners[bi], group)][f] += shares[bi]
+                        contrib[ch][("conductor", owners[bi], group)][f] += shares[bi]
                     rest = v_out - shares[top].sum()
                     if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
-                        contrib[st.channel][("conductor", "other conductors", group)][f] += rest
-                    if abs(vpair[si, k]) > 0:
-                        key = (s.name, st.name)
-                        row = coupling_rows.setdefault(key, {"source": s.name, "stage": st.name, "channel": st.channel,
-                                                             "frequencies": {}})
-                        row["frequencies"][f] = abs(vpair[si, k]) / abs(s.parts[f])
+                        contrib[ch][("conductor", "other conductors", group)][f] += rest
+            for si, s in enumerate(active):
                 if s.kind == "rectifier" and abs(f - 2 * f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
                     I = sol.I[:, si]
                     sig = np.flatnonzero(np.abs(I) > 1e-3 * abs(s.parts[f]))
+                    sig = sig[np.argsort(-np.abs(I[sig]), kind="stable")][:NETWORK_ROWS]
                     network_rows.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
                                          "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
                                                          "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
@@ -283,10 +288,5 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                           "db": _r(max(CROSSTALK_FLOOR_DB, 20 * math.log10(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
     if len(channels) > 1 and not signal_sources:
         notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
-    coupling = []
-    for row in coupling_rows.values():
-        fr = row.pop("frequencies")
-        f_low = min(fr)
-        coupling.append({**row, "frequency_hz": f_low, "transfer_ohm": fr[f_low]})
     return HumResult(result_channels, list(rectifier_results.values()), [loop_rows[k] for k in sorted(loop_rows)],
-                     crosstalk, freqs, coupling, network_rows, notes)
+                     crosstalk, freqs, network_rows, notes)
