@@ -2,12 +2,11 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from .audit import AuditContext, LoopInfo, audit
+from .audit import LoopInfo, audit
 from .circuit import Circuit, build_circuit
 from .coupling import SHARE_THRESHOLD, Source, branch_owner, pair_tests, source_injections
 from .findings import Finding, severity_rank

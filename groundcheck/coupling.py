@@ -20,7 +20,7 @@ import scipy.sparse.csgraph as csgraph
 
 from .circuit import Circuit, Factored, Solution
 
-__all__ = ["Source", "plan_sources", "pair_tests", "contributions", "branch_owner", "pair_path", "path_drop",
+__all__ = ["Source", "plan_sources", "pair_tests", "branch_owner", "pair_path", "path_drop",
            "SHARE_THRESHOLD"]
 
 #: a branch counts as carrying a current when it carries at least this fraction of it
@@ -78,11 +78,6 @@ def source_injections(circuit: Circuit, sources, f: float) -> np.ndarray:
         J[circuit.point_node[s.a], k] += i
         J[circuit.point_node[s.b], k] -= i
     return J
-
-
-def contributions(fac: Factored, src: Solution, test: Solution) -> np.ndarray:
-    """(branches × sources × pairs) complex share of each branch in each pair voltage: Z_b·I_b(s)·I_b(test)."""
-    return fac.z[:, None, None] * src.I[:, :, None] * test.I[:, None, :]
 
 
 def branch_owner(circuit: Circuit) -> list[str]:

@@ -168,7 +168,6 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     member = np.zeros((len(valid_idx), len(channels)))
     for row, k in enumerate(valid_idx):
         member[row, channels.index(stages[k].channel)] = 1.0
-    stage_ch = [s.channel for s in stages]
     crosstalk_raw = defaultdict(complex)
     flux_cache: dict = {}
 

@@ -420,7 +420,7 @@ def _assemble(built: list, file: str, ld: _Loader) -> Plan:
             auto[base] = auto.get(base, 0) + 1
             c = replace(c, name=base if auto[base] == 1 else f"{base}#{auto[base]}")
         conductors.append(c)
-    for group, what in ((Rectifier, "rectifier"), (Current, "current"), (Stage, "stage")):
+    for group in (Rectifier, Current, Stage):
         for r, refs, *_ in groups[group]:
             check(r.a, refs.get("a", r.location), "point", nodes)
             check(r.b, refs.get("b", r.location), "point", nodes)

@@ -102,12 +102,12 @@ def fundamental_loops(G: nx.MultiGraph, limit: int | None = None) -> list[Loop]:
         left_n, left_e, right_n, right_e = [u], [], [v], []
         a, b = u, v
         while depth[a] > depth[b]:
-            left_e.append(parent_edge[a]); a = parent[a]; left_n.append(a)
+            a = _climb(a, parent, parent_edge, left_n, left_e)
         while depth[b] > depth[a]:
-            right_e.append(parent_edge[b]); b = parent[b]; right_n.append(b)
+            b = _climb(b, parent, parent_edge, right_n, right_e)
         while a != b:
-            left_e.append(parent_edge[a]); a = parent[a]; left_n.append(a)
-            right_e.append(parent_edge[b]); b = parent[b]; right_n.append(b)
+            a = _climb(a, parent, parent_edge, left_n, left_e)
+            b = _climb(b, parent, parent_edge, right_n, right_e)
         # loop: lca ... u (reversed left), then key to v, then v ... up to just before lca
         nodes = list(reversed(left_n)) + right_n[:-1]
         edges = list(reversed(left_e)) + [key] + right_e
@@ -116,6 +116,13 @@ def fundamental_loops(G: nx.MultiGraph, limit: int | None = None) -> list[Loop]:
         if limit is not None and len(loops) >= limit:
             break
     return loops
+
+
+def _climb(x, parent, parent_edge, nodes, edges):
+    """One step up the spanning tree from x, recording the edge taken and the node reached."""
+    edges.append(parent_edge[x])
+    nodes.append(parent[x])
+    return parent[x]
 
 
 def polygon_area(pts) -> float:

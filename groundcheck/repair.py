@@ -26,9 +26,9 @@ from .analysis import Options, Result, analyze
 from .errors import PlanErrors
 from .findings import severity_rank
 from .loader import load_text
-from .model import PE_POINT, Plan
+from .model import Plan
 
-__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits", "MAX_STEPS"]
+__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits", "unified_diff", "MAX_STEPS"]
 
 MAX_STEPS = 8
 
@@ -383,8 +383,3 @@ def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | Non
         current_text = apply_edits(current_text, best.candidate.edits)
         current_plan, current = best.result.plan, best.result
     return chosen, current, current_text
-
-
-def plan_edges_protective(plan: Plan) -> set[str]:
-    """Names of conductors on the protective path (for tests and messages)."""
-    return {c.name for c in plan.conductors if c.role == "protective" or PE_POINT in (c.a, c.b)}

@@ -162,11 +162,11 @@ def protective_figures(plan: Plan, limit: float = DEFAULT_PE_LIMIT) -> SafetyRes
     conductors = []
     if worst_i is not None and worst_i[1] is not None:
         i2t = worst_i[1]
-        checks = [("mains cord (protective core)", cord_area, adiabatic_k("pvc", True), None)]
+        checks = [("mains cord (protective core)", cord_area, adiabatic_k("pvc", True))]
         for c in pplan.conductors:
             if c.role == "protective" and c.area is not None and c.kind in ("wire", "strap", "busbar"):
-                checks.append((c.name, c.area, adiabatic_k(c.insulation, c.in_cable), c))
-        for name, area, k, c in checks:
+                checks.append((c.name, c.area, adiabatic_k(c.insulation, c.in_cable)))
+        for name, area, k in checks:
             need = math.sqrt(i2t) / k * 1e-6
             conductors.append({"conductor": name, "area_mm2": round(area * 1e6, 4), "k": k,
                                "required_mm2": round(need * 1e6, 4), "survives": bool(area >= need)})

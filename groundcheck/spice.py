@@ -52,7 +52,7 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
             lines.append(f"R{k} {a} {c} {z[k].real:.12g}")
     for r in sorted(refs - {main_ref}):
         lines.append(f"RISL{r} {name[r]} 0 1e9")
-    for k, (sname, a, b, amps) in enumerate(sources):
+    for k, (_, a, b, amps) in enumerate(sources):
         ia, ib = name[circuit.point_node[a]], name[circuit.point_node[b]]
         # SPICE current source I n+ n-: current flows from n+ through the source to n-;
         # to inject into a (and draw from b) the source runs from b to a.

@@ -9,7 +9,7 @@ from hypothesis import given, settings, strategies as st
 
 from groundcheck import load
 from groundcheck.circuit import Branch, Circuit, build_circuit
-from groundcheck.impedance import resistivity, skin_depth, skin_ratio, strip_inductance, wire_inductance
+from groundcheck.impedance import skin_depth, skin_ratio, strip_inductance, wire_inductance
 from groundcheck.plate import grid_laplacian, reduce_plate
 from groundcheck.spice import to_spice
 
@@ -134,8 +134,12 @@ def test_kcl_linearity_superposition_reciprocity(n, extra, seed, f):
     assert np.allclose(both.V[:, 0], 2.5 * sol.V[:, 0] + sol.V[:, 1], rtol=1e-9, atol=1e-12)
     # reciprocity: transfer impedance from (a→b) to (c→d) equals that from (c→d) to (a→b)
     a, b, cc, d = rng.choice(n, 4, replace=True)
-    e1 = np.zeros(n, complex); e1[a] += 1; e1[b] -= 1
-    e2 = np.zeros(n, complex); e2[cc] += 1; e2[d] -= 1
+    e1 = np.zeros(n, complex)
+    e1[a] += 1
+    e1[b] -= 1
+    e2 = np.zeros(n, complex)
+    e2[cc] += 1
+    e2[d] -= 1
     s = fac.solve(np.stack([e1, e2], axis=1))
     z12 = s.V[cc, 0] - s.V[d, 0]
     z21 = s.V[a, 1] - s.V[b, 1]

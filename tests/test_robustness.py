@@ -15,9 +15,7 @@ from groundcheck import PlanErrors, load, load_text
 from groundcheck.analysis import analyze
 from groundcheck.circuit import build_circuit
 from groundcheck.loader import LIMITS
-from groundcheck.render_dot import physical_dot, topology_dot
 from groundcheck.render_json import render_json
-from groundcheck.render_sarif import render_sarif
 from groundcheck.safety import protective_figures
 
 from helpers import EXAMPLES, ROOT, plan
