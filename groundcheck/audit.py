@@ -314,10 +314,15 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     order = list(G.nodes)
     idx = {n: i for i, n in enumerate(order)}
     rows, cols = [], []
-    for u, v, d in G.edges(data=True):
-        if u not in side and v not in side and d["conductor"].role != "protective":
-            rows.append(idx[u])
-            cols.append(idx[v])
+    crossing = []            # (signal-side node, chassis-side node, conductor): the bonds
+    for u, v, k, d in G.edges(keys=True, data=True):
+        us, vs = u in side, v in side
+        if not us and not vs:
+            if d["conductor"].role != "protective":
+                rows.append(idx[u])
+                cols.append(idx[v])
+        elif us != vs and d["conductor"].kind != "interconnect":
+            crossing.append((v, u, k) if us else (u, v, k))
     n = len(order)
     A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
     _, labels = csgraph.connected_components(A, directed=False)
@@ -325,16 +330,14 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     for name in order:
         if name not in side:
             members.setdefault(int(labels[idx[name]]), []).append(name)
-    for label in sorted(members, key=lambda k: sorted(members[k])[0]):
+    bonds_of: dict[int, dict[str, list[str]]] = {}
+    for node, chassis, k in crossing:
+        bonds_of.setdefault(int(labels[idx[node]]), {}).setdefault(chassis, []).append(k)
+    for label in sorted(members, key=lambda k: min(members[k])):
         comp = sorted(members[label])
         if not set(comp) & ctx.signal_points:
             continue
-        places: dict[str, list[str]] = {}
-        for node in comp:
-            for v, keys in G.adj[node].items():
-                keys = [k for k in keys if G.edges[node, v, k]["conductor"].kind != "interconnect"]
-                if v in side and keys:
-                    places.setdefault(v, []).extend(sorted(keys))
+        places = {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}
         name = _component_name(ctx, comp)
         if len(places) > 1:
             desc = ", ".join(f"{p} (by {', '.join(ks)})" for p, ks in sorted(places.items()))
