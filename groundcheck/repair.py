@@ -134,7 +134,7 @@ class _Ctx:
 
 def _delete(ctx: _Ctx, name: str, title: str, reason: str) -> Candidate | None:
     c = ctx.cond.get(name)
-    if c is None or not ctx.in_main(c) or _statement(ctx.lines, c.location.line) is None:
+    if c is None or c.kind == "interconnect" or not ctx.in_main(c) or _statement(ctx.lines, c.location.line) is None:
         return None
     return Candidate(title, reason, (Edit(c.location.line, None),), c.role == "protective")
 
@@ -142,7 +142,7 @@ def _delete(ctx: _Ctx, name: str, title: str, reason: str) -> Candidate | None:
 def _reroute(ctx: _Ctx, name: str, end: str, to: str, title: str, reason: str) -> Candidate | None:
     """Move the ``end`` of conductor ``name`` to point ``to``."""
     c = ctx.cond.get(name)
-    if c is None or not ctx.in_main(c) or to == end:
+    if c is None or c.kind in ("interconnect", "shield") or not ctx.in_main(c) or to == end:
         return None
     m = _statement(ctx.lines, c.location.line)
     if m is None:
@@ -264,6 +264,26 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
             if m:
                 add(_replace_in_line(ctx, c.name, m.group(0), f"{line_area:g} mm2",
                                      f"use {line_area:g} mm² for protective conductor {c.name}", "GC204", protective=False))
+    # between pieces of equipment: a balanced interconnect, or a lift network on a device's signal side
+    for name in sorted(_installation_interconnects(plan, result)):
+        c = ctx.cond[name]
+        if not ctx.in_main(c):
+            continue
+        line = ctx.lines[c.location.line - 1]
+        if "unbalanced" in line and not line.rstrip().endswith(","):
+            add(Candidate(f"use a balanced interconnect for {name}", "GC101", (Edit(c.location.line, line.replace("unbalanced", "balanced", 1)),)))
+        for end in (c.a, c.b):
+            dev = end.split(".", 1)[0]
+            bond = ctx.cond.get(f"{dev}.gnd_bond")
+            if bond is None or bond.kind != "bolt" or not ctx.in_main(bond):
+                continue
+            dline = ctx.lines[bond.location.line - 1]
+            if dline.rstrip().endswith(","):
+                continue
+            new = dline.replace("signal-ground chassis", "signal-ground lift") if "signal-ground chassis" in dline \
+                else dline.rstrip() + ", signal-ground lift"
+            add(Candidate(f"give {dev} a ground-lift network between its signal ground and chassis (never the protective earth)",
+                          "GC101", (Edit(bond.location.line, new),)))
     # shared returns: join the rectifier's ends directly, and re-route the stage's reference to the star
     for row in result.coupling:
         src = next((r for r in (*plan.rectifiers, *plan.currents) if r.name == row["source"]), None)
@@ -297,6 +317,14 @@ HUM_FLOOR_DBV = -140.0
 #: a protective path may change by this much (relative) before a change counts as weakening it: the
 #: plate model's own accuracy (see groundcheck.plate)
 PE_TOLERANCE = 0.06
+
+
+def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
+    """Interconnects in loops through mains cords, or sharing a supply or leakage current with a stage."""
+    kinds = {c.name: c.kind for c in plan.conductors}
+    names = {e for lp in result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges if kinds.get(e) == "interconnect"}
+    names |= {e for row in result.coupling for e in row["shared"] if kinds.get(e) == "interconnect"}
+    return names
 
 
 def _hum_db(r: Result) -> dict[str, float]:
