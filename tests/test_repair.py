@@ -132,3 +132,15 @@ def test_suggest_apply_and_compare_commands(cli, tmp_path):
     code, text, _ = cli("suggest", str(MONO), "--format", "json")
     doc = json.loads(text)
     assert doc["suggestions"] and all(s["diff"].startswith("--- a/") for s in doc["suggestions"])
+
+
+def test_installation_suggestions_work_on_the_signal_side():
+    studio = DUAL.parent / "studio" / "project-studio.gplan"
+    before, evs = _suggest(studio)
+    useful = [e for e in evs if not e.rejected]
+    bal = next(e for e in useful if e.candidate.title == "use a balanced interconnect for mix_out")
+    assert bal.hum_change_db["monitors"] < -40                 # 50 dB common-mode rejection assumed
+    for e in useful:                                             # nothing re-routes or removes a cable or a protective conductor
+        assert "cord" not in e.candidate.title and "run_" not in e.candidate.title
+    chosen, final, _ = greedy(load(studio), studio.read_text(), Options(), studio.resolve().parent, studio.resolve())
+    assert all(h.audible is not True for h in final.hum.channels.values())
