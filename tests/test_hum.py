@@ -48,7 +48,9 @@ wrdata OUT v(out) i(V1) i(V2)
         data = np.loadtxt(out)
     v = data[:, 1]
     i = np.abs(data[:, 3]) + np.abs(data[:, 5])
-    return v.mean(), math.sqrt(np.mean(i * i)), i.max()
+    conducting = i > 1e-3 * i.max()
+    angle = 360.0 * conducting.mean() / 2          # per charging pulse: two pulses per mains period
+    return v.mean(), math.sqrt(np.mean(i * i)), i.max(), angle
 
 
 @needs_ngspice
@@ -58,10 +60,11 @@ def test_rectifier_against_ngspice_transient(vrms, rw, c, iload, f):
     """DC voltage and RMS charging current of our simulation vs an ngspice transient analysis of the same
     circuit (diode IS=1e-14, N=1, whose drop at these currents is about 0.7–0.8 V; ours uses 0.75 V)."""
     ours = simulate(Rectifier("r", "a", "b", "full-wave", vrms, rw, 0.75, c, load_current=iload), f)
-    v_dc, i_rms, i_pk = _ngspice_rectifier(vrms, rw, c, iload, f)
+    v_dc, i_rms, i_pk, angle = _ngspice_rectifier(vrms, rw, c, iload, f)
     assert ours.dc_voltage == pytest.approx(v_dc, rel=0.01)
     assert ours.rms_current == pytest.approx(i_rms, rel=0.03)
     assert ours.peak_current == pytest.approx(i_pk, rel=0.05)
+    assert ours.conduction_angle == pytest.approx(angle, rel=0.08)
 
 
 def test_ripple_against_textbook_approximation():
@@ -143,6 +146,28 @@ def test_single_loop_solved_by_hand():
     assert ch.total_v == pytest.approx(v_out, rel=1e-6)
     loop = r.hum.loops[0]["sources"]["t"]["per_frequency"][0]
     assert loop["emf_v"] == pytest.approx(e, rel=1e-9) and loop["current_a"] == pytest.approx(i, rel=1e-6)
+
+
+def test_crosstalk_through_a_shared_return_by_hand():
+    # channel a's signal return (10 mA) and channel b's stage share one wire of stated resistance R:
+    # b's output sees 10 mA · R · gain, against a's rated output of 2 V (Ohm's law by hand)
+    p = plan("""
+        listening output 2 V
+        point sa: pad
+        point sb: pad
+        point common: star
+        point far: pad
+        wire own_a: sa to common, 10 mm, resistance 5 mohm
+        wire shared: common to far, 10 mm, resistance 20 mohm
+        wire own_b: sb to far, 10 mm, resistance 5 mohm
+        current ret_a: sa to far, 10 mA, signal, channel a
+        stage ga: sa to common, gain 0 dB, channel a
+        stage gb: common to sb, gain 40 dB, channel b
+        """)
+    r = analyze(p)
+    row = next(x for x in r.hum.crosstalk if x["from"] == "a" and x["to"] == "b" and x["frequency_hz"] == 1000.0)
+    assert row["volts"] == pytest.approx(0.010 * 0.020 * 100, rel=1e-9)
+    assert row["db"] == pytest.approx(20 * math.log10(0.010 * 0.020 * 100 / 2.0), abs=0.01)
 
 
 def test_levels():
