@@ -106,3 +106,15 @@ def test_every_command_has_help_with_example_and_is_in_readme():
     for name, p in sub.choices.items():
         assert f"groundcheck {name}" in readme, name
         assert "Example" in (p.description or ""), name
+
+
+def test_library_entry_points():
+    import groundcheck
+    r = groundcheck.analyze(groundcheck.load(MONO))
+    assert json.loads(groundcheck.render(r, "json"))["summary"]["fault"] >= 1
+    assert groundcheck.render(r, "sarif").lstrip().startswith("{")
+    assert "GC202" in groundcheck.render(r, "text")
+    assert groundcheck.render(r, "dot").startswith("graph physical")
+    assert groundcheck.render(r, "html").startswith("<!DOCTYPE html>")
+    with pytest.raises(ValueError):
+        groundcheck.render(r, "pdf")
