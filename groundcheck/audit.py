@@ -293,6 +293,8 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
         while parent[path[-1]] is not None:
             path.append(parent[path[-1]])
         star = path[-1]
+        if "." in star and t.split(".", 1)[0] != star.split(".", 1)[0]:
+            continue          # a star placed in a block or device gathers that placement's returns only
         via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in ctx.source_pairs]
         if via:
             chains.setdefault(star, []).append((t, via[0]))
