@@ -20,6 +20,7 @@ import difflib
 import math
 import re
 from dataclasses import dataclass, field
+from functools import cached_property
 from pathlib import Path
 
 from .analysis import Options, Result, analyze
@@ -117,10 +118,14 @@ class _Ctx:
     def in_main(self, c) -> bool:
         return c.location.file == self.plan.file
 
+    @cached_property
+    def G(self):
+        from .network import build_graph
+        return build_graph(self.plan)
+
     def nearest_star(self, node: str) -> str | None:
         import networkx as nx
-        from .network import build_graph
-        G = build_graph(self.plan)
+        G = self.G
         best = None
         for s in self.stars:
             try:
@@ -222,8 +227,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
                     add(_delete(ctx, e, f"remove the second chassis bond {e}", "GC105"))
         elif f.code == "GC103":
             import networkx as nx
-            from .network import build_graph
-            G = build_graph(plan)
+            G = ctx.G
             stars = [e for e in f.elements if e in ctx.stars]
             if not stars:
                 continue
