@@ -13,6 +13,7 @@ References:
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 __all__ = ["KINDS", "UnitError", "parse_quantity", "awg_diameter", "awg_area", "unit_kind"]
 
@@ -85,6 +86,7 @@ for _k, _v in _TABLE.items():
     _LOWER.setdefault(_k.lower(), []).append(_k)
 
 
+@lru_cache(maxsize=1024)
 def unit_kind(unit: str) -> str | None:
     """The kind of quantity a unit word measures, or None when it is not a unit."""
     if unit in _TABLE:
@@ -112,6 +114,7 @@ def awg_area(n: float) -> float:
     return math.pi * d * d / 4.0
 
 
+@lru_cache(maxsize=8192)
 def parse_quantity(number: str, unit: str) -> tuple[float, str]:
     """Convert ``number`` with ``unit`` to ``(SI value, kind)``.
 
