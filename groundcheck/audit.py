@@ -165,7 +165,7 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
     if kinds & {"shield", "interconnect"}:
         return "shield-both-ends"
     known = set(ctx.plan.channels)
-    channels = {c.channel for c in cs if c.channel in known} | {_node_channel(n) for n in lp.nodes} & known
+    channels = {c.channel for c in cs if c.channel in known} | {_node_channel(ctx, n) for n in lp.nodes} & known
     if len(channels) >= 2:
         return "channel-returns"
     if has_metal and roles <= {"bond", "protective"}:
@@ -177,8 +177,11 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
     return "parallel-wiring"
 
 
-def _node_channel(name: str) -> str | None:
-    return name.split(".", 1)[0] if "." in name and not name.startswith("mains.") else None
+def _node_channel(ctx: "AuditContext", name: str) -> str | None:
+    """The placement (block or device) a point was placed by: in a dual-mono plan, its channel."""
+    data = ctx.G.nodes[name] if name in ctx.G else {}
+    point = data.get("point")
+    return point.group.split(".", 1)[0] if point is not None and point.group else None
 
 
 def _open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
@@ -197,8 +200,8 @@ def _open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         if sh:
             return sh[0].name
     if closed_by == "channel-returns":
-        ties = [c for c in candidates if not c.channel and _node_channel(c.a) and _node_channel(c.b)
-                and _node_channel(c.a) != _node_channel(c.b)]
+        ties = [c for c in candidates if not c.channel and _node_channel(ctx, c.a) and _node_channel(ctx, c.b)
+                and _node_channel(ctx, c.a) != _node_channel(ctx, c.b)]
         if ties:
             return ties[0].name
     if closed_by == "second-chassis-bond":
@@ -285,6 +288,7 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
                                {"branches": 1}, "connect the returns that should gather there, or call it a junction"))
     # each terminal belongs to its nearest star; a chain is a terminal whose path passes another terminal
     dist, parent = _bfs(ctx.G, sorted(star_names), allowed)
+    groups = {p.name: p.group for p in ctx.plan.points}
     chains: dict[str, list[tuple[str, str]]] = {}
     for t in sorted(terminals - star_names):
         if t not in dist:
@@ -293,7 +297,7 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
         while parent[path[-1]] is not None:
             path.append(parent[path[-1]])
         star = path[-1]
-        if "." in star and t.split(".", 1)[0] != star.split(".", 1)[0]:
+        if groups.get(star) and groups.get(t) != groups.get(star):
             continue          # a star placed in a block or device gathers that placement's returns only
         via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in ctx.source_pairs]
         if via:

@@ -283,7 +283,7 @@ class _Loader:
             size = None if record.size is None else (record.size[0] * tf.sx, record.size[1] * tf.sy)
             return replace(record, name=prefix + record.name, origin=tf(record.origin), size=size)
         if isinstance(record, Point):
-            return replace(record, name=prefix + record.name, pos=tf(record.pos), on=res(record.on))
+            return replace(record, name=prefix + record.name, pos=tf(record.pos), on=res(record.on), group=prefix.rstrip("."))
         if isinstance(record, Conductor):
             return replace(record, name=prefix + record.name if record.name else "", a=res(record.a), b=res(record.b),
                            route=tuple(tf(p) for p in record.route),
@@ -469,7 +469,7 @@ def _simple_device(dev: Device) -> Plan:
     n = dev.name
     loc = dev.location
     metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), True, loc),)
-    points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, loc), Point(f"{n}.gnd", "terminal", None, None, loc))
+    points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc), Point(f"{n}.gnd", "terminal", None, None, n, loc))
     conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective", contact=0.5e-3,
                             location=loc)]
     if dev.signal_ground == "chassis":
@@ -534,7 +534,8 @@ def _prefixed(p: Plan, prefix: str) -> Plan:
     return replace(
         p,
         metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
-        points=tuple(replace(x, name=pre(x.name), on=pre(x.on)) for x in p.points),
+        points=tuple(replace(x, name=pre(x.name), on=pre(x.on), group=pre(x.group) if x.group else prefix.rstrip("."))
+                     for x in p.points),
         conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=pre(c.channel)) for c in p.conductors),
         rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.rectifiers),
         currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.currents),

@@ -87,6 +87,7 @@ class Point:
     kind: str = "junction"
     pos: XY | None = None
     on: str | None = None                # the metal part it sits on
+    group: str | None = None             # the block placement or device it was placed by (e.g. "left")
     location: Location = field(default=Location("<plan>"), compare=False)
 
 

@@ -334,6 +334,7 @@ def test_renaming_points_changes_no_figure(path):
     for a, b in zip(s1.parts, s2.parts):
         assert b.path_resistance == pytest.approx(a.path_resistance, rel=1e-12)
     assert r1.loop_total == r2.loop_total
+    assert sorted(lp.closed_by for lp in r1.loops) == sorted(lp.closed_by for lp in r2.loops)
     assert sorted(f.code for f in r1.findings) == sorted(f.code for f in r2.findings)
 
 
