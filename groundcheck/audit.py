@@ -97,7 +97,8 @@ class AuditContext:
     @cached_property
     def inlets(self) -> list[str]:
         """Protective terminals of mains inlets: the plan's own and those of placed devices."""
-        return sorted(n for n in self.G.nodes if n == PE_POINT or n.endswith("." + PE_POINT))
+        return sorted(n for n, d in self.G.nodes(data=True)
+                      if n == PE_POINT or (d.get("point") is not None and d["point"].kind == "inlet"))
 
     @cached_property
     def protective_path(self) -> set[str]:

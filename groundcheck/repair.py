@@ -277,7 +277,10 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
         if "unbalanced" in line and not line.rstrip().endswith(","):
             add(Candidate(f"use a balanced interconnect for {name}", "GC101", (Edit(c.location.line, line.replace("unbalanced", "balanced", 1)),)))
         for end in (c.a, c.b):
-            dev = end.split(".", 1)[0]
+            pt = plan.point(end)
+            if pt is None or not pt.group:
+                continue
+            dev = pt.group.split(".", 1)[0]
             bond = ctx.cond.get(f"{dev}.gnd_bond")
             if bond is None or bond.kind != "bolt" or not ctx.in_main(bond):
                 continue
