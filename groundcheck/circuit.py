@@ -120,6 +120,23 @@ class Circuit:
         return z
 
     @cached_property
+    def least_resistance_graph(self):
+        """The least-resistance branch between each pair of joined nodes, and those resistances as a
+        symmetric sparse matrix (for shortest paths): ({(low node, high node): branch}, csr matrix)."""
+        n1, n2, r, *_ = self._arrays
+        n = len(self.nodes)
+        w = np.maximum(np.abs(r), 1e-9)
+        best: dict[tuple[int, int], int] = {}
+        for idx in np.argsort(w, kind="stable"):
+            key = (min(n1[idx], n2[idx]), max(n1[idx], n2[idx]))
+            if key not in best:
+                best[key] = int(idx)
+        rows = [k[0] for k in best] + [k[1] for k in best]
+        cols = [k[1] for k in best] + [k[0] for k in best]
+        vals = [w[i] for i in best.values()] * 2
+        return best, sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsr()
+
+    @cached_property
     def components(self) -> tuple[int, np.ndarray]:
         n1, n2, *_ = self._arrays
         n = len(self.nodes)

@@ -296,17 +296,11 @@ def cmd_report(args) -> int:
     return 1 if any(severity_rank(f.severity) <= threshold for f in result.findings) else 0
 
 
-def _hum_words(ch, h) -> str:
-    import math
-    level = f"{20 * math.log10(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
-    verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
-    return f"{ch} {level} ({verdict})"
-
-
 def cmd_suggest(args) -> int:
     import json
-    from .repair import apply_edits, greedy, suggest, unified_diff
+    from .render_json import clean
     from .render_text import CAUTION
+    from .repair import apply_edits, greedy, suggest, suggestions_document, suggestions_text
     if args.plan == "-":
         raise UsageError("suggest needs a plan file, not standard input (its edits are shown against the file)")
     path = Path(args.plan)
@@ -317,39 +311,11 @@ def cmd_suggest(args) -> int:
     chosen, final, final_text = greedy(plan, text, _options(args), root, resolved)
     name = path.name
     useful = [e for e in evs if not e.rejected]
-    rejected = [e for e in evs if e.rejected]
     if args.format == "json":
-        doc = {"plan": plan.file, "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in useful],
-               "rejected": [e.as_dict() for e in rejected],
-               "combined": {"search": "greedy forward selection, every remaining change re-analysed at each step",
-                            "changes": [e.candidate.title for e in chosen],
-                            "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
-                            "diff": "".join(__import__("difflib").unified_diff(text.splitlines(True), final_text.splitlines(True),
-                                                                               f"a/{name}", f"b/{name}", n=1))}}
-        from .render_json import clean
+        doc = suggestions_document(plan, text, name, evs, chosen, final, final_text)
         sys.stdout.write(json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n")
     else:
-        out = [f"Suggestions for {plan.file} (each re-analysed; best first)", CAUTION, ""]
-        if not useful:
-            out.append("No change found that improves the plan.")
-        for i, e in enumerate(useful, 1):
-            hum = ", ".join(f"{ch} {d:+.1f} dB" for ch, d in e.hum_change_db.items())
-            out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
-            out.append(f"   predicted: hum {hum or 'n/a'}; clears {len(e.cleared)} finding(s)"
-                       + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
-            out.append("   " + unified_diff(text, e.candidate.edits, name).replace("\n", "\n   ").rstrip())
-            out.append("")
-        if rejected:
-            out.append("Considered and rejected:")
-            for e in rejected:
-                out.append(f"  - {e.candidate.title}: {e.rejected}")
-            out.append("")
-        out.append(f"Combined (greedy search): {len(chosen)} change(s): " + "; ".join(e.candidate.title for e in chosen))
-        left = [f.code for f in final.findings if f.severity in ("danger", "fault")]
-        out.append("  leaves no fault or danger" if not left else f"  leaves: {', '.join(left)}")
-        if final.hum is not None:
-            out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
-        sys.stdout.write("\n".join(out) + "\n")
+        sys.stdout.write(suggestions_text(plan, text, name, evs, chosen, final, CAUTION))
     if args.apply:
         if args.pick is not None:
             if not 1 <= args.pick <= len(useful):

@@ -15,7 +15,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse as sp
 import scipy.sparse.csgraph as csgraph
 
 from .circuit import Circuit, Factored, Solution
@@ -87,20 +86,8 @@ def branch_owner(circuit: Circuit) -> list[str]:
 
 def pair_path(circuit: Circuit, a: str, b: str) -> list[tuple[int, float]]:
     """Branches (index, ±1 orientation from a to b) of the least-resistance path between two points."""
-    n1, n2, r, *_ = circuit._arrays
-    n = len(circuit.nodes)
-    w = np.maximum(np.abs(r), 1e-9)
-    # keep the least-resistance branch between each node pair
-    order = np.argsort(w, kind="stable")
-    best: dict[tuple[int, int], int] = {}
-    for idx in order:
-        key = (min(n1[idx], n2[idx]), max(n1[idx], n2[idx]))
-        if key not in best:
-            best[key] = int(idx)
-    rows = [k[0] for k in best] + [k[1] for k in best]
-    cols = [k[1] for k in best] + [k[0] for k in best]
-    vals = [w[i] for i in best.values()] * 2
-    A = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsr()
+    n1, n2, *_ = circuit._arrays
+    best, A = circuit.least_resistance_graph
     ia, ib = circuit.point_node[a], circuit.point_node[b]
     _, pred = csgraph.dijkstra(A, directed=False, indices=ia, return_predecessors=True)
     if ib != ia and pred[ib] < 0:

@@ -29,7 +29,8 @@ from .findings import severity_rank
 from .loader import load_text
 from .model import Plan
 
-__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits", "unified_diff", "MAX_STEPS"]
+__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits", "unified_diff",
+           "text_diff", "suggestions_document", "suggestions_text", "MAX_STEPS"]
 
 MAX_STEPS = 8
 
@@ -80,9 +81,13 @@ def apply_edits(text: str, edits) -> str:
     return "\n".join(out)
 
 
+def text_diff(old: str, new: str, name: str) -> str:
+    """A unified diff of a plan file's text (paths a/NAME and b/NAME, one line of context)."""
+    return "".join(difflib.unified_diff(old.splitlines(True), new.splitlines(True), f"a/{name}", f"b/{name}", n=1))
+
+
 def unified_diff(text: str, edits, name: str) -> str:
-    new = apply_edits(text, edits)
-    return "".join(difflib.unified_diff(text.splitlines(True), new.splitlines(True), f"a/{name}", f"b/{name}", n=1))
+    return text_diff(text, apply_edits(text, edits), name)
 
 
 # --- reading and writing single statements --------------------------------------------------------
@@ -418,3 +423,48 @@ def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | Non
         current_text = apply_edits(current_text, best.candidate.edits)
         current_plan, current = best.result.plan, best.result
     return chosen, current, current_text
+
+
+def _hum_words(ch: str, h) -> str:
+    level = f"{20 * math.log10(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
+    verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
+    return f"{ch} {level} ({verdict})"
+
+
+def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
+                         final: Result, final_text: str) -> dict:
+    """The suggestions as plain data (``groundcheck suggest --format json``)."""
+    return {"plan": plan.file,
+            "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in evs if not e.rejected],
+            "rejected": [e.as_dict() for e in evs if e.rejected],
+            "combined": {"search": "greedy forward selection, every remaining change re-analysed at each step",
+                         "changes": [e.candidate.title for e in chosen],
+                         "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
+                         "diff": text_diff(text, final_text, name)}}
+
+
+def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
+                     final: Result, caution: str) -> str:
+    """The suggestions as the terminal shows them: each with its predicted effect and its diff."""
+    useful = [e for e in evs if not e.rejected]
+    rejected = [e for e in evs if e.rejected]
+    out = [f"Suggestions for {plan.file} (each re-analysed; best first)", caution, ""]
+    if not useful:
+        out.append("No change found that improves the plan.")
+    for i, e in enumerate(useful, 1):
+        hum = ", ".join(f"{ch} {d:+.1f} dB" for ch, d in e.hum_change_db.items())
+        out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
+        out.append(f"   predicted: hum {hum or 'n/a'}; clears {len(e.cleared)} finding(s)"
+                   + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
+        out.append("   " + unified_diff(text, e.candidate.edits, name).replace("\n", "\n   ").rstrip())
+        out.append("")
+    if rejected:
+        out.append("Considered and rejected:")
+        out.extend(f"  - {e.candidate.title}: {e.rejected}" for e in rejected)
+        out.append("")
+    out.append(f"Combined (greedy search): {len(chosen)} change(s): " + "; ".join(e.candidate.title for e in chosen))
+    left = [f.code for f in final.findings if f.severity in ("danger", "fault")]
+    out.append("  leaves no fault or danger" if not left else f"  leaves: {', '.join(left)}")
+    if final.hum is not None:
+        out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
+    return "\n".join(out) + "\n"
