@@ -75,3 +75,19 @@ def test_parallel_protective_conductor_never_raises_resistance():
 def test_no_mains_no_protective_figures():
     p = plan('plan "battery unit"\npoint a: pad\n', header=False)
     assert protective_figures(p) is None
+
+
+def test_touch_voltage_held_too_long_is_a_danger():
+    # a 1 Ω fastening in the protective path: I = U0/(Zs + 2 R_cord + R_path) lies between 4 and 10 times a 16 A
+    # slow fuse's rating, so it may take up to 3 s (IEC 60127-2 sheet 3 limits, from memory) while the part
+    # sits at I·(R_path + R_cord) > 50 V, the conventional touch-voltage limit of IEC 60364-4-41
+    hdr = 'plan "t"\nmains 230 V 50 Hz, fuse 16 A slow, line-conductor 0.75 mm2, cord 2 m 0.75 mm2\n'
+    text = hdr + PE_PLAN.replace("contact 0.5 mohm", "contact 1 ohm")
+    found = [f for f in analyze(plan(text, header=False)).findings if f.code == "GC208"]
+    assert len(found) == 1 and found[0].severity == "danger"
+    r_path = 1.7241e-8 / 1e-6 + 1.0
+    cord = 1.7241e-8 * 2.0 / 0.75e-6
+    i_f = 230 / (0.8 + 2 * cord + r_path)
+    assert 4 * 16 <= i_f < 10 * 16
+    assert found[0].figures["touch_voltage_v"] == pytest.approx(i_f * (r_path + cord), abs=0.01)
+    assert found[0].figures["clear_time_s"] == 3.0
