@@ -15,7 +15,7 @@ from typing import Any, NamedTuple
 from .errors import Location, PlanError
 from .units import UnitError, parse_quantity, unit_kind
 
-__all__ = ["Item", "Statement", "make_items", "Reader"]
+__all__ = ["Item", "Statement", "split_phrases", "Reader"]
 
 
 class Item(NamedTuple):
@@ -40,93 +40,113 @@ class Statement:
     broken: bool = False          # an error was already reported inside it
 
 
-_ITEM = re.compile(r"""
-    (?P<ws>[ \t\r]+)
-  | (?P<nl>\n)
-  | (?P<comma>,)
-  | (?P<STRING>"[^"\n]*")
-  | (?P<COORD>[+-]?(?:\d+(?:\.\d*)?|\.\d+),[+-]?(?:\d+(?:\.\d*)?|\.\d+))
-  | (?P<NUMBER>[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)
-  | (?P<WORD>(?:[^\W\d]|\u00b0)[\w.\-/\u00b0]*)
-  | (?P<bad>.)
-""", re.X)
+_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)"
+_TOK = re.compile(rf"""[ \t\r]*(?:
+    (\n)
+  | (,)
+  | ("[^"\n]*")
+  | ({_NUM},{_NUM})
+  | ({_NUM}(?:[eE][+-]?\d+)?)
+  | ((?:[^\W\d]|\u00b0)[\w.\-/\u00b0]*)
+  | ([^ \t\r\n])
+)""", re.X)
+NL, COMMA, STRING, COORD, NUMBER, WORD, BAD = range(1, 8)
+_NOT_UNITS = frozenset(("x", "to", "at", "on"))
+_new = tuple.__new__
 
 
 def split_phrases(text: str, line: int, column: int, file: str, errors: list[PlanError]) -> list[list[Item]]:
-    """The comma-separated phrases of a statement's rest (a lark ``REST`` token starting at line:column).
-
-    A comma between two numbers with no space (25,200) is a coordinate, not a separator.
+    """The comma-separated phrases of a statement's rest (a lark ``REST`` token starting at line:column),
+    read into items in one pass: a number followed by a unit becomes a quantity, a position followed by a
+    length unit is scaled by it.  A comma between two numbers with no space (25,200) is a position, not a
+    separator.  Errors are appended to ``errors`` (and the statement gives no phrases).
     """
-    phrases: list[list[tuple]] = [[]]
-    line_start = -column + 1          # offset in ``text`` of the current line's column 1
-    for m in _ITEM.finditer(text):
-        kind = m.lastgroup
-        if kind == "ws":
-            continue
-        if kind == "nl":
+    phrases: list[list[Item]] = []
+    cur = []
+    pend = None                      # a number or coordinate waiting to see whether a unit follows
+    line_start = -column + 1
+    for m in _TOK.finditer(text):
+        g = m.lastindex
+        if g == NL:
             line += 1
             line_start = m.end()
             continue
-        col = m.start() - line_start + 1
-        if kind == "comma":
-            if not phrases[-1]:
+        start = m.start(g)
+        col = start - line_start + 1
+        if g == COMMA:
+            if pend is not None:
+                cur.append(_plain(pend))
+                pend = None
+            if not cur:
                 errors.append(PlanError("unexpected ','", Location(file, line, col), "an attribute is missing here"))
                 return []
-            phrases.append([])
+            phrases.append(cur)
+            cur = []
             continue
-        if kind == "bad":
+        value = m.group(g)
+        if g == WORD:
+            if pend is not None:
+                if pend[0] == NUMBER and value not in _NOT_UNITS:
+                    try:
+                        qv, qk = parse_quantity(pend[1], value)
+                    except UnitError as e:
+                        errors.append(PlanError(str(e), Location(file, line, col), e.hint))
+                        pend = None
+                        continue
+                    cur.append(_new(Item, ("qty", f"{pend[1]} {value}", pend[2], qv, qk)))
+                    pend = None
+                    continue
+                if pend[0] == COORD:
+                    k = unit_kind(value)
+                    if k == "length":
+                        cur.append(_coord(pend, parse_quantity("1", value)[0]))
+                        pend = None
+                        continue
+                    if k is not None:
+                        errors.append(PlanError(f"a position is a length, not a {k}", Location(file, line, col),
+                                                "positions are in mm, or give a length unit"))
+                        cur.append(_coord(pend, 1e-3))
+                        pend = None
+                        continue
+                cur.append(_plain(pend))
+                pend = None
+            cur.append(_new(Item, ("word", value, _new(Location, (file, line, col)), value, None)))
+            continue
+        if pend is not None:
+            cur.append(_plain(pend))
+            pend = None
+        loc = _new(Location, (file, line, col))
+        if g == NUMBER or g == COORD:
+            pend = (g, value, loc)
+        elif g == STRING:
+            cur.append(_new(Item, ("string", value[1:-1], loc, value[1:-1], None)))
+        else:
             hint = ("only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
-                    if m.group() == ":" else
+                    if value == ":" else
                     "names start with a letter; positions are x,y with no space; strings use double quotes")
-            errors.append(PlanError(f"unexpected character {m.group()!r}", Location(file, line, col), hint))
+            errors.append(PlanError(f"unexpected character {value!r}", loc, hint))
             return []
-        phrases[-1].append((kind, m.group(), line, col))
-    if not phrases[-1] and len(phrases) > 1:
+    if pend is not None:
+        cur.append(_plain(pend))
+    if cur:
+        phrases.append(cur)
+    elif phrases:
         errors.append(PlanError("the statement ends with a comma", Location(file, line, len(text) - line_start + 1),
                                 "remove the comma, or continue the attributes on the next line"))
         return []
-    return [make_items(p, file, errors) for p in phrases if p]
+    return phrases
 
 
-def make_items(tokens: list[tuple], file: str, errors: list[PlanError]) -> list[Item]:
-    """Items of one phrase from (kind, text, line, column) tuples: a number followed by a unit becomes a quantity."""
-    out: list[Item] = []
-    i = 0
-    n = len(tokens)
-    new = tuple.__new__
-    while i < n:
-        kind, value, line, col = tokens[i]
-        loc = new(Location, (file, line, col))
-        nxt = tokens[i + 1] if i + 1 < n else None
-        if kind == "NUMBER":
-            if nxt is not None and nxt[0] == "WORD" and nxt[1] not in ("x", "to", "at", "on"):
-                try:
-                    qv, qk = parse_quantity(value, nxt[1])
-                except UnitError as e:
-                    errors.append(PlanError(str(e), Location(file, nxt[2], nxt[3]), e.hint))
-                    i += 2
-                    continue
-                out.append(new(Item, ("qty", f"{value} {nxt[1]}", loc, qv, qk)))
-                i += 2
-                continue
-            out.append(new(Item, ("number", value, loc, float(value), None)))
-        elif kind == "COORD":
-            xs, ys = value.split(",")
-            scale = 1e-3
-            if nxt is not None and nxt[0] == "WORD" and unit_kind(nxt[1]) == "length":
-                scale = parse_quantity("1", nxt[1])[0]
-                i += 1
-            elif nxt is not None and nxt[0] == "WORD" and unit_kind(nxt[1]) is not None:
-                errors.append(PlanError(f"a position is a length, not a {unit_kind(nxt[1])}",
-                                        Location(file, nxt[2], nxt[3]), "positions are in mm, or give a length unit"))
-                i += 1
-            out.append(Item("coord", value, loc, (float(xs) * scale, float(ys) * scale)))
-        elif kind == "STRING":
-            out.append(Item("string", value[1:-1], loc, value[1:-1]))
-        else:
-            out.append(new(Item, ("word", value, loc, value, None)))
-        i += 1
-    return out
+def _plain(pend) -> Item:
+    g, value, loc = pend
+    if g == NUMBER:
+        return _new(Item, ("number", value, loc, float(value), None))
+    return _coord(pend, 1e-3)
+
+
+def _coord(pend, scale: float) -> Item:
+    xs, ys = pend[1].split(",")
+    return _new(Item, ("coord", pend[1], pend[2], (float(xs) * scale, float(ys) * scale), None))
 
 
 class Reader:
