@@ -79,5 +79,7 @@ def installation(n_devices: int, seed: int = 1) -> str:
 
 
 if __name__ == "__main__":
+    if len(sys.argv) != 3 or sys.argv[1] not in ("chassis", "installation") or not sys.argv[2].isdigit():
+        sys.exit("usage: python benchmarks/generate.py chassis|installation SIZE > plan.gplan")
     kind, n = sys.argv[1], int(sys.argv[2])
     sys.stdout.write(chassis(n) if kind == "chassis" else installation(n))

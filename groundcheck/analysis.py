@@ -30,6 +30,7 @@ class Options:
     contributor_level: float = -100.0        # dBV at the output
     crosstalk_limit: float = -60.0           # dB
     hum: bool = True                         # run the electrical hum budget
+    jobs: int = 1                            # processes for the hum budget's frequencies
 
 
 @dataclass
@@ -237,7 +238,8 @@ def _analyze(plan: Plan, options: Options) -> Result:
     if options.hum and plan.stages:
         rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
         hum = hum_budget(plan, circuit, ctx.loops, rr,
-                         HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit))
+                         HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
+                         jobs=options.jobs)
         result.hum = hum
         findings.extend(_hum_findings(plan, hum, options))
     return _finish(result)

@@ -9,6 +9,7 @@ from __future__ import annotations
 import argparse
 import os
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 from . import __version__
@@ -63,7 +64,7 @@ def _add_analysis_options(p):
 def _options(args):
     from .analysis import Options
     return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
-                   hum=not args.no_hum)
+                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1))
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -80,7 +81,8 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--format", choices=("text", "json", "sarif"), default="text", help="output format (default text)")
     c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
-    c.add_argument("--jobs", type=int, default=1, metavar="N", help="check several plans in N processes at once (default 1)")
+    c.add_argument("--jobs", type=int, default=1, metavar="N", help="use N processes: several plans are checked side by side; one plan's hum budget shares "
+                   "its frequencies among them (Linux; default 1)")
     _add_analysis_options(c)
 
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
@@ -182,7 +184,7 @@ def cmd_check(args) -> int:
     if args.jobs > 1 and len(args.plans) > 1:
         from concurrent.futures import ProcessPoolExecutor
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            outcomes = list(pool.map(_check_one, args.plans, [_options(args)] * len(args.plans)))
+            outcomes = list(pool.map(_check_one, args.plans, [replace(_options(args), jobs=1)] * len(args.plans)))
         for ok, value in outcomes:
             if not ok:
                 raise _Rendered(value)

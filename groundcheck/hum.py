@@ -27,6 +27,7 @@ import numpy as np
 from .coupling import branch_owner, pair_path, pair_tests, path_drop, plan_sources, source_injections
 from .hearing import dbv, spl_at_listener, threshold_of_hearing
 from .pickup import emf as emf_of, loop_flux, min_distance
+from .sweep import map_frequencies
 
 __all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]
 
@@ -100,10 +101,10 @@ class HumResult:
                 "crosstalk": self.crosstalk, "notes": self.notes}
 
 
-def _emf_columns(circuit, loops, fields, f0, f, names=None, flux_cache=None):
-    """Series-EMF columns (branches × k) at frequency f: one per (loop, field source) with a harmonic at f."""
-    names = names if names is not None else {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
-    flux_cache = flux_cache if flux_cache is not None else {}
+def _emf_columns(circuit, loops, fields, f0, f, names, flux):
+    """Series-EMF columns (branches × k) at frequency f: one per (loop, field source) with a harmonic at f.
+
+    ``names``: conductor name -> branch index; ``flux``: (loop index, source name) -> the source's flux through the loop, Wb rms."""
     cols, meta = [], []
     for li, info in enumerate(loops):
         if info.polygon is None:
@@ -121,10 +122,7 @@ def _emf_columns(circuit, loops, fields, f0, f, names=None, flux_cache=None):
             for n, ratio in scale.items():
                 if abs(n * f0 - f) > 1e-9:
                     continue
-                key = (li, src.name)
-                if key not in flux_cache:
-                    flux_cache[key] = loop_flux(src, info.polygon)
-                phi = flux_cache[key] * ratio
+                phi = flux[(li, src.name)] * ratio
                 e = np.zeros(len(circuit.branches), dtype=complex)
                 e[bi] = -1j * 2 * math.pi * f * phi * (1.0 if forward else -1.0)
                 cols.append(e)
@@ -132,8 +130,23 @@ def _emf_columns(circuit, loops, fields, f0, f, names=None, flux_cache=None):
     return (np.array(cols).T if cols else np.zeros((len(circuit.branches), 0))), meta
 
 
-def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOptions = HumOptions()) -> HumResult:
-    """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk."""
+@dataclass
+class _FrequencyPart:
+    """What one frequency adds to the budget (merged in frequency order by :func:`hum_budget`)."""
+
+    out: list = field(default_factory=list)          # (channel, source group, phasor at the output)
+    contrib: list = field(default_factory=list)      # (channel, contributor label, phasor)
+    loops: list = field(default_factory=list)        # (loop index, field source, emf V, loop current A, per-stage phasors)
+    network: list = field(default_factory=list)      # rows of the JSON ``network`` section
+    crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
+
+
+def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOptions = HumOptions(), jobs: int = 1) -> HumResult:
+    """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk.
+
+    Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
+    are shared among that many processes (:mod:`groundcheck.sweep`), with the same result.
+    """
     f0 = plan.frequency
     sources = plan_sources(plan, rectifier_results, options.max_frequency)
     hum_sources = [s for s in sources if s.kind != "signal"]
@@ -157,29 +170,26 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                    ({n * f0 for src in plan.fields for n in [1] + [h for h, _ in src.harmonics]} if loops else set()))
     freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
     xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else options.max_frequency})
-
-    # per channel, per frequency: group -> phasor at the output
-    out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}
-    contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}   # (label) -> f -> phasor
-    loop_rows: dict[int, dict] = {}
-    network_rows: list[dict] = []
+    crosstalk_wanted = bool(signal_sources) and len(channels) > 1 and bool(stages)
     gains = np.array([10 ** (s.gain / 20) for s in stages])
     valid_idx = np.flatnonzero(valid_stage) if stages else np.zeros(0, dtype=int)
     member = np.zeros((len(valid_idx), len(channels)))
     for row, k in enumerate(valid_idx):
         member[row, channels.index(stages[k].channel)] = 1.0
-    crosstalk_raw = defaultdict(complex)
-    flux_cache: dict = {}
+    # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the
+    # module doc).  By linearity its branch currents are the gain-weighted sum of the stages' own test currents.
+    channel_tests = (pair_tests(circuit, [(stages[k].a, stages[k].b) for k in valid_idx]) * gains[valid_idx]) @ member
+    flux = {(li, src.name): loop_flux(src, info.polygon)
+            for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
 
-    for f in sorted(set(freqs) | (set(xt_freqs) if signal_sources and len(channels) > 1 else set())):
+    def at_frequency(f: float) -> _FrequencyPart:
+        part = _FrequencyPart()
         fac = circuit.at(f)
-        test = fac.solve(pair_tests(circuit, [(s.a, s.b) for s in stages])) if stages else None
         active = [s for s in hum_sources if s.parts.get(f, 0) != 0] if f in freqs else []
         if active and stages and valid_idx.size:
-            sol = fac.solve(source_injections(circuit, active, f))
-            W = fac.z[:, None] * sol.I                                   # branches × sources: Z_b·I_b(s)
-            # per channel, the gain-weighted test currents of its stages (stages in phase, see the module doc)
-            TC = (test.I[:, valid_idx] * gains[valid_idx]) @ member      # branches × channels
+            both = fac.solve(np.hstack([source_injections(circuit, active, f), channel_tests]))
+            W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
+            TC = both.I[:, len(active):]                                 # branches × channels
             for ci, ch in enumerate(channels):
                 shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
                 v_all = shares_all.sum(axis=0)
@@ -188,26 +198,26 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                     v_out = v_all[si]
                     if v_out == 0:
                         continue
-                    out[ch][f][group] += v_out
+                    part.out.append((ch, group, v_out))
                     shares = shares_all[:, si]
                     mags = np.abs(shares)
                     # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
                     top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
                     top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
                     for bi in top:
-                        contrib[ch][("conductor", owners[bi], group)][f] += shares[bi]
+                        part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
                     rest = v_out - shares[top].sum()
                     if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
-                        contrib[ch][("conductor", "other conductors", group)][f] += rest
+                        part.contrib.append((ch, ("conductor", "other conductors", group), rest))
             for si, s in enumerate(active):
                 if s.kind == "rectifier" and abs(f - 2 * f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
-                    I = sol.I[:, si]
+                    I = both.I[:, si]
                     sig = np.flatnonzero(np.abs(I) > 1e-3 * abs(s.parts[f]))
                     sig = sig[np.argsort(-np.abs(I[sig]), kind="stable")][:NETWORK_ROWS]
-                    network_rows.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
+                    part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
                                          "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
                                                          "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
-        E, meta = _emf_columns(circuit, loops, plan.fields, f0, f, branch_index, flux_cache) if (loops and f in freqs) else (None, [])
+        E, meta = _emf_columns(circuit, loops, plan.fields, f0, f, branch_index, flux) if (loops and f in freqs) else (None, [])
         if meta:
             sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
             drops = np.zeros((len(stages), E.shape[1]), dtype=complex)
@@ -215,27 +225,9 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                 if valid_stage[k]:
                     drops[k] = path_drop(fac, sol, paths[k]) * gains[k]
             for col, (li, src_name, phi) in enumerate(meta):
-                info = loops[li]
-                chord_i = branch_index[info.loop.edges[info.loop.chord]]
-                row = loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
-                                                "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
-                                                "sources": {}})
-                entry = row["sources"].get(src_name)
-                if entry is None:
-                    src = fields[src_name]
-                    entry = row["sources"][src_name] = {
-                        "flux_density_equiv_t": abs(loop_flux(src, info.polygon)) / info.area if info.area else None,
-                        "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
-                entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_of(phi, f),
-                                               "current_a": float(abs(sol.I[chord_i, col]))})
-                group = f"field:{src_name}"
-                label = ("loop", f"loop {li + 1}", group)
-                for k, st in enumerate(stages):
-                    if valid_stage[k]:
-                        v = drops[k, col]
-                        out[st.channel][f][group] += v
-                        contrib[st.channel][label][f] += v
-        if signal_sources and len(channels) > 1 and f in xt_freqs and stages:
+                chord_i = branch_index[loops[li].loop.edges[loops[li].loop.chord]]
+                part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
+        if crosstalk_wanted and f in xt_freqs:
             J = np.zeros((len(circuit.nodes), len(signal_sources)), dtype=complex)
             for k, s in enumerate(signal_sources):
                 amp = sum(abs(v) for v in s.parts.values())
@@ -245,8 +237,42 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
             for si, s in enumerate(signal_sources):
                 for k, st in enumerate(stages):
                     if valid_stage[k] and st.channel != (s.channel or ""):
-                        v = sol.between(st.a, st.b)[si] * gains[k]
-                        crosstalk_raw[(s.channel, st.channel, f)] += v
+                        part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k]))
+        return part
+
+    # merge the frequencies in ascending order: per channel, per frequency: group -> phasor at the output
+    out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}
+    contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}   # (label) -> f -> phasor
+    loop_rows: dict[int, dict] = {}
+    network_rows: list[dict] = []
+    crosstalk_raw = defaultdict(complex)
+    solve_at = sorted(set(freqs) | (set(xt_freqs) if crosstalk_wanted else set()))
+    for f, part in zip(solve_at, map_frequencies(at_frequency, solve_at, jobs)):
+        for ch, group, v in part.out:
+            out[ch][f][group] += v
+        for ch, label, v in part.contrib:
+            contrib[ch][label][f] += v
+        network_rows.extend(part.network)
+        for li, src_name, emf_v, current, drops in part.loops:
+            info = loops[li]
+            row = loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
+                                            "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
+                                            "sources": {}})
+            entry = row["sources"].get(src_name)
+            if entry is None:
+                src = fields[src_name]
+                entry = row["sources"][src_name] = {
+                    "flux_density_equiv_t": abs(flux[(li, src_name)]) / info.area if info.area else None,
+                    "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
+            entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
+            group = f"field:{src_name}"
+            label = ("loop", f"loop {li + 1}", group)
+            for k, st in enumerate(stages):
+                if valid_stage[k]:
+                    out[st.channel][f][group] += drops[k]
+                    contrib[st.channel][label][f] += drops[k]
+        for src_ch, dst_ch, v in part.crosstalk:
+            crosstalk_raw[(src_ch, dst_ch, f)] += v
 
     result_channels = {}
     for ch in channels:
