@@ -18,7 +18,7 @@ import scipy.sparse.csgraph as csgraph
 from .errors import Location
 from .findings import Finding
 from .model import PE_POINT, Conductor, Plan
-from .network import Loop, build_graph, fundamental_loops, loop_count, loop_polygon, polygon_area
+from .network import Loop, build_graph, edges_of, fundamental_loops, loop_count, loop_polygon, polygon_area
 
 __all__ = ["AuditContext", "audit", "LoopInfo", "classify_loop", "LOOP_LIST_LIMIT"]
 
@@ -264,9 +264,10 @@ def _bfs(G, sources, allowed=None):
     for s in sources:
         dist[s], parent[s] = 0, None
         q.append(s)
+    adj = dict(G.adjacency())
     while q:
         u = q.popleft()
-        for v in G.adj[u]:
+        for v in adj[u]:
             if v not in dist and (allowed is None or allowed(v)):
                 dist[v], parent[v] = dist[u] + 1, u
                 q.append(v)
@@ -322,7 +323,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     idx = {n: i for i, n in enumerate(order)}
     rows, cols = [], []
     crossing = []            # (signal-side node, chassis-side node, conductor): the bonds
-    for u, v, k, d in G.edges(keys=True, data=True):
+    for u, v, k, d in edges_of(G):
         us, vs = u in side, v in side
         if not us and not vs:
             if d["conductor"].role != "protective":

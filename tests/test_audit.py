@@ -8,7 +8,7 @@ from hypothesis import given, settings, strategies as st
 from groundcheck import load
 from groundcheck.analysis import analyze
 from groundcheck.audit import audit
-from groundcheck.network import fundamental_loops, loop_count
+from groundcheck.network import edges_of, fundamental_loops, loop_count
 
 from helpers import EXAMPLES, plan
 
@@ -183,3 +183,10 @@ def test_loop_count_is_cycle_rank_and_basis_is_independent(G):
             row[col[k]] += 1
         rows.append(row)
     assert _gf2_rank(rows) == len(loops)           # independent over GF(2): a basis of the cycle space
+
+
+@settings(max_examples=100, deadline=None)
+@given(multigraphs())
+def test_edges_read_from_the_adjacency_match_networkx_edge_view(G):
+    # the fast edge list must give networkx's own edges, order and orientation (self-loops once)
+    assert edges_of(G) == list(G.edges(keys=True, data=True))
