@@ -39,9 +39,21 @@ def _best(repeat: int, fn):
 
 
 def one(size: int, kind: str, ngspice: bool, full_limit: int, repeat: int, jobs: int) -> dict:
+    from generate import chassis, installation
+
+    from groundcheck.loader import no_gc
+
+    text = chassis(size) if kind == "chassis" else installation(size)
+    row = {"kind": kind, "size": size}
+    with no_gc():       # as load() and analyze() run: Python's cyclic collector paused
+        _stages(row, text, size, ngspice, full_limit, repeat, jobs)
+    row["peak_mib"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+    return row
+
+
+def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
     import numpy as np
 
-    from generate import chassis, installation
     from groundcheck import load_text
     from groundcheck.analysis import Options, analyze
     from groundcheck.audit import AuditContext, audit
@@ -51,8 +63,6 @@ def one(size: int, kind: str, ngspice: bool, full_limit: int, repeat: int, jobs:
     from groundcheck.spice import to_spice
     from groundcheck.sweep import map_frequencies
 
-    text = chassis(size) if kind == "chassis" else installation(size)
-    row = {"kind": kind, "size": size}
     row["parse_s"], plan = _best(repeat, lambda: load_text(text, "bench.gplan"))
     row["conductors"] = len(plan.conductors)
     row["network_s"], (G, circuit) = _best(repeat, lambda: (build_graph(plan), build_circuit(plan)))
@@ -88,8 +98,6 @@ def one(size: int, kind: str, ngspice: bool, full_limit: int, repeat: int, jobs:
             t = time.perf_counter()
             subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=3600)
             row["ngspice_op_s"] = time.perf_counter() - t
-    row["peak_mib"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
-    return row
 
 
 def main() -> None:

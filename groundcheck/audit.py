@@ -18,7 +18,7 @@ import scipy.sparse.csgraph as csgraph
 from .errors import Location
 from .findings import Finding
 from .model import PE_POINT, Conductor, Plan
-from .network import Loop, build_graph, edges_of, fundamental_loops, loop_count, loop_polygon, polygon_area
+from .network import Loop, build_graph, components, edges_of, fundamental_loops, loop_polygon, polygon_area
 
 __all__ = ["AuditContext", "audit", "LoopInfo", "classify_loop", "LOOP_LIST_LIMIT"]
 
@@ -111,7 +111,7 @@ class AuditContext:
         q = deque(self.inlets)
         while q:
             u = q.popleft()
-            for v, keys in self.G.adj[u].items():
+            for v, keys in self.adj[u].items():
                 if v in parent:
                     continue
                 good = [k for k in keys if ok(keys[k]["conductor"])]
@@ -133,13 +133,29 @@ class AuditContext:
         return {frozenset((r.a, r.b)) for r in (*self.plan.rectifiers, *self.plan.currents)}
 
     @cached_property
+    def edges(self) -> list[tuple]:
+        """Every edge once as (u, v, conductor name, data)."""
+        return edges_of(self.G)
+
+    @cached_property
+    def adj(self) -> dict:
+        """The graph's adjacency as plain dicts: node -> neighbour -> conductor name -> data."""
+        return dict(self.G.adjacency())
+
+    @cached_property
+    def parts(self) -> tuple[list, np.ndarray, int]:
+        """Connected parts of the graph: (nodes, part label of each, number of parts)."""
+        return components(self.G, self.edges)
+
+    @cached_property
     def loop_total(self) -> int:
-        return loop_count(self.G)
+        order, _, ncomp = self.parts
+        return len(self.edges) - len(order) + ncomp if order else 0
 
     @cached_property
     def loops(self) -> list[LoopInfo]:
         out = []
-        for lp in fundamental_loops(self.G, limit=LOOP_LIST_LIMIT):
+        for lp in fundamental_loops(self.G, limit=LOOP_LIST_LIMIT, edges=self.edges):
             closed_by = classify_loop(self, lp)
             poly = loop_polygon(self.G, lp)
             area = polygon_area(poly) if poly is not None else None
@@ -257,14 +273,13 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
     return out
 
 
-def _bfs(G, sources, allowed=None):
-    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed``."""
+def _bfs(adj: dict, sources, allowed=None):
+    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed`` (``adj``: node -> neighbours)."""
     dist, parent = {}, {}
     q = deque()
     for s in sources:
         dist[s], parent[s] = 0, None
         q.append(s)
-    adj = dict(G.adjacency())
     while q:
         u = q.popleft()
         for v in adj[u]:
@@ -289,7 +304,7 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
             out.append(Finding("GC104", "note", f"star {s.name} has a single branch ({k})", s.location, (s.name, k),
                                {"branches": 1}, "connect the returns that should gather there, or call it a junction"))
     # each terminal belongs to its nearest star; a chain is a terminal whose path passes another terminal
-    dist, parent = _bfs(ctx.G, sorted(star_names), allowed)
+    dist, parent = _bfs(ctx.adj, sorted(star_names), allowed)
     groups = {p.name: p.group for p in ctx.plan.points}
     chains: dict[str, list[tuple[str, str]]] = {}
     for t in sorted(terminals - star_names):
@@ -323,7 +338,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     idx = {n: i for i, n in enumerate(order)}
     rows, cols = [], []
     crossing = []            # (signal-side node, chassis-side node, conductor): the bonds
-    for u, v, k, d in edges_of(G):
+    for u, v, k, d in ctx.edges:
         us, vs = u in side, v in side
         if not us and not vs:
             if d["conductor"].role != "protective":
@@ -377,7 +392,7 @@ def _component_name(ctx: AuditContext, comp: list[str]) -> str:
 def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
     if PE_POINT not in ctx.G:
         return candidates[0]
-    dist, _ = _bfs(ctx.G, [PE_POINT], lambda v: v in ctx.chassis_side)
+    dist, _ = _bfs(ctx.adj, [PE_POINT], lambda v: v in ctx.chassis_side)
     return min(candidates, key=lambda c: (dist.get(c, 10 ** 9), c))
 
 
@@ -460,22 +475,28 @@ def rule_heaters(ctx: AuditContext) -> list[Finding]:
 
 def rule_shields(ctx: AuditContext) -> list[Finding]:
     out = []
+    both = [c for c in ctx.plan.conductors if c.kind == "shield" and c.terminated == "both"]
+    if not both:
+        return out
     stars = [p.name for p in ctx.plan.points if p.kind == "star" and p.name in ctx.G]
     refs = set(stars) | {s.b for s in ctx.plan.stages}
-    dist, _ = _bfs(ctx.G, sorted(refs)) if refs else ({}, {})
-    for c in ctx.plan.conductors:
-        if c.kind == "shield" and c.terminated == "both":
-            da, db = dist.get(c.a, 10 ** 9), dist.get(c.b, 10 ** 9)
-            keep, lift = (c.a, c.b) if da <= db else (c.b, c.a)
-            out.append(Finding("GC108", "warning", f"shield {c.name} is terminated at both ends ({c.a} and {c.b})",
-                               c.location, (c.name,), {},
-                               f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected"))
+    dist, _ = _bfs(ctx.adj, sorted(refs)) if refs else ({}, {})
+    for c in both:
+        da, db = dist.get(c.a, 10 ** 9), dist.get(c.b, 10 ** 9)
+        keep, lift = (c.a, c.b) if da <= db else (c.b, c.a)
+        out.append(Finding("GC108", "warning", f"shield {c.name} is terminated at both ends ({c.a} and {c.b})",
+                           c.location, (c.name,), {},
+                           f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected"))
     return out
 
 
 def rule_unconnected(ctx: AuditContext) -> list[Finding]:
     out = []
-    for comp in nx.connected_components(ctx.G):
+    order, labels, _ = ctx.parts
+    members: dict[int, set] = {}
+    for name, label in zip(order, labels.tolist()):
+        members.setdefault(label, set()).add(name)
+    for comp in members.values():
         if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points:
             continue
         names = sorted(comp)

@@ -18,7 +18,7 @@ import scipy.sparse.csgraph as csgraph
 
 from .model import Plan
 
-__all__ = ["build_graph", "edges_of", "loop_count", "fundamental_loops", "Loop", "loop_polygon", "polygon_area"]
+__all__ = ["build_graph", "edges_of", "components", "loop_count", "fundamental_loops", "Loop", "loop_polygon", "polygon_area"]
 
 
 def build_graph(plan: Plan) -> nx.MultiGraph:
@@ -61,14 +61,21 @@ def _csgraph(G: nx.MultiGraph, edges: list[tuple]):
     return order, idx, A
 
 
-def loop_count(G: nx.MultiGraph) -> int:
-    """Number of independent loops, E − V + C (the cycle rank), in near-linear time."""
-    edges = edges_of(G)
-    order, _, A = _csgraph(G, edges)
+def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list, np.ndarray, int]:
+    """Connected parts: (nodes in graph order, the part label of each, number of parts), by scipy's csgraph.
+    ``edges`` is :func:`edges_of` ``(G)`` when the caller already has it."""
+    order, _, A = _csgraph(G, edges_of(G) if edges is None else edges)
     if not order:
-        return 0
-    ncomp, _ = csgraph.connected_components(A, directed=False)
-    return len(edges) - len(order) + ncomp
+        return order, np.zeros(0, dtype=np.int32), 0
+    ncomp, labels = csgraph.connected_components(A, directed=False)
+    return order, labels, int(ncomp)
+
+
+def loop_count(G: nx.MultiGraph, edges: list[tuple] | None = None) -> int:
+    """Number of independent loops, E − V + C (the cycle rank), in near-linear time."""
+    edges = edges_of(G) if edges is None else edges
+    order, _, ncomp = components(G, edges)
+    return len(edges) - len(order) + ncomp if order else 0
 
 
 @dataclass(frozen=True)
@@ -80,7 +87,7 @@ class Loop:
     chord: int = -1                 # index in edges of the conductor outside the spanning forest
 
 
-def fundamental_loops(G: nx.MultiGraph, limit: int | None = None) -> list[Loop]:
+def fundamental_loops(G: nx.MultiGraph, limit: int | None = None, edges: list[tuple] | None = None) -> list[Loop]:
     """Loops of a cycle basis: one per conductor outside a breadth-first spanning forest.
 
     Breadth-first trees keep the fundamental loops short.  Self-loops (a
@@ -111,7 +118,7 @@ def fundamental_loops(G: nx.MultiGraph, limit: int | None = None) -> list[Loop]:
                 tree_edges.add(key)
                 q.append(v)
     loops: list[Loop] = []
-    for u, v, key, _ in sorted(edges_of(G), key=lambda e: e[2]):
+    for u, v, key, _ in sorted(edges_of(G) if edges is None else edges, key=lambda e: e[2]):
         if key in tree_edges or u == v:
             continue
         # walk both ends up to their lowest common ancestor

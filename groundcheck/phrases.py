@@ -152,6 +152,8 @@ def _coord(pend, scale: float) -> Item:
 class Reader:
     """Reads the items of one phrase left to right, raising :class:`PlanError` at the offending item."""
 
+    __slots__ = ("items", "stmt", "i")
+
     def __init__(self, items: list[Item], stmt: Statement):
         self.items = items
         self.stmt = stmt
@@ -162,7 +164,8 @@ class Reader:
         return self.i >= len(self.items)
 
     def peek(self) -> Item | None:
-        return self.items[self.i] if self.i < len(self.items) else None
+        i = self.i
+        return self.items[i] if i < len(self.items) else None
 
     def _end_loc(self) -> Location:
         if self.items:
@@ -171,12 +174,12 @@ class Reader:
         return self.stmt.loc
 
     def next(self, what: str) -> Item:
-        it = self.peek()
-        if it is None:
+        i, items = self.i, self.items
+        if i >= len(items):
             raise PlanError(f"{self.stmt.keyword}: expected {what} here", self._end_loc(),
                             f"see the '{self.stmt.keyword}' entry of the language reference")
-        self.i += 1
-        return it
+        self.i = i + 1
+        return items[i]
 
     def word(self, what: str = "a name", choices: tuple[str, ...] | None = None) -> str:
         it = self.next(what)
@@ -224,8 +227,8 @@ class Reader:
         return it.value
 
     def finish(self) -> None:
-        it = self.peek()
-        if it is not None:
+        if self.i < len(self.items):
+            it = self.items[self.i]
             raise PlanError(f"{self.stmt.keyword}: unexpected {it.text!r}", it.loc,
                             "separate attributes with commas")
 

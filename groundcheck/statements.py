@@ -216,6 +216,13 @@ def point(stmt: Statement):
     return Point(name=name, location=stmt.loc, **kw), refs
 
 
+#: attributes of a conductor that start with a word of their own
+CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
+                   "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced", "gain", "cmrr")
+#: the field a bare quantity of each kind sets on a conductor
+_CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
+
+
 def conductor(stmt: Statement):
     kind = stmt.keyword
     refs: Refs = {}
@@ -225,15 +232,13 @@ def conductor(stmt: Statement):
         kw["contact"] = 0.5e-3
     if kind == "trace":
         kw["thickness"] = 35e-6
-    named = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
-             "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced", "gain", "cmrr")
+    named = CONDUCTOR_NAMED
     for ph in stmt.phrases[1:]:
         r = Reader(ph, stmt)
-        first = r.peek()
+        first = ph[0]                    # phrases are never empty
         if first.kind == "qty":
             it = r.next("")
-            field = {"length": "length", "area": "area", "resistance": "resistance",
-                     "capacitance": "capacitance"}.get(it.qkind)
+            field = _CONDUCTOR_QTY.get(it.qkind)
             if field is None or (field == "capacitance" and kind != "lift"):
                 raise PlanError(f"{kind}: a {it.qkind} is not expected here", it.loc,
                                 "give lengths, areas (mm2 or AWG) and resistances; a capacitance only on a lift")
