@@ -7,6 +7,7 @@ the package as ``groundcheck.grammar``.
 from __future__ import annotations
 
 import difflib
+import re
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -42,6 +43,10 @@ class BlockDef:
         self.name, self.loc, self.body = name, loc, body
 
 
+#: a LINE token's keyword, name, and where its attributes start (the grammar's HEAD and the blanks after it)
+_LINE_PARTS = re.compile(r"([^\W\d][\w.\-/]*)[ \t]+([^\W\d][\w.\-]*)[ \t]*:[ \t]*")
+
+
 class _Build(Transformer):
     """Turns the parse into :class:`Statement` records as the LALR parser reduces (no tree is built).
 
@@ -53,6 +58,14 @@ class _Build(Transformer):
 
     def statement(self, children):
         head: Token = children[0]
+        if head.type == "LINE":
+            text = head.value
+            m = _LINE_PARTS.match(text)
+            st = Statement(m.group(1), Location(self.file, head.line, head.column))
+            st.label = m.group(2)
+            st.label_loc = Location(self.file, head.line, head.column + m.start(2))
+            st.phrases = split_phrases(text[m.end():], head.line, head.column + m.end(), self.file, self.errors)
+            return st
         rest = children[1:]
         if head.type == "HEAD":
             text = head.value
@@ -108,10 +121,11 @@ def _syntax_error(e: UnexpectedInput, file: str, lines: list[str]) -> PlanError:
         return PlanError(f"unexpected character {ch!r}", Location(file, line, col), hint)
     assert isinstance(e, UnexpectedToken)
     tok = e.token
-    expected = sorted({_FRIENDLY.get(t, t) for t in e.expected if not t.startswith("__")})
-    what = {"HEAD": repr(str(tok).rstrip(": \t")), "_NL": "end of line"}.get(tok.type, repr(str(tok)))
+    expected = sorted({_FRIENDLY.get(t, t) for t in e.expected if not t.startswith("__") and t != "LINE"})
+    what = {"HEAD": repr(str(tok).rstrip(": \t")), "LINE": repr(str(tok).split(":", 1)[0].rstrip()),
+            "_NL": "end of line"}.get(tok.type, repr(str(tok)))
     hint = "expected " + " or ".join(expected[:4]) if expected else ""
-    if tok.type == "HEAD":
+    if tok.type in ("HEAD", "LINE"):
         hint = "a statement starts with its keyword, e.g. 'wire NAME: A to B, ...'"
     if tok.type == "RBRACE":
         hint = "'}' closes a block and stands alone on its line"
