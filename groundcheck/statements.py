@@ -12,7 +12,7 @@ import difflib
 
 from .errors import Location, PlanError
 from .model import (Conductor, Current, Device, FieldSource, Heater, Listening, Mains, Metal, Point,
-                    Rectifier, Stage)
+                    Rectifier, Stage, make)
 from .phrases import Reader, Statement, check_quantity
 from .units import awg_diameter
 
@@ -213,7 +213,7 @@ def point(stmt: Statement):
         else:
             raise _unknown(stmt, first, POINT_KINDS + ("at", "on"))
         r.finish()
-    return Point(name=name, location=stmt.loc, **kw), refs
+    return make(Point, name=name, location=stmt.loc, **kw), refs
 
 
 #: attributes of a conductor that start with a word of their own
@@ -298,7 +298,7 @@ def conductor(stmt: Statement):
         raise PlanError(f"{kind} needs a width (or an area, or a stated resistance)", stmt.loc, "e.g. ', width 2 mm'")
     if kind == "lift" and "resistance" not in kw:
         raise PlanError("lift needs its resistor", stmt.loc, "e.g. ', 10 ohm, 47 nF'")
-    return Conductor(name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+    return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
 
 
 def rectifier(stmt: Statement):

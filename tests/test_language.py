@@ -238,3 +238,24 @@ def test_block_placing_itself(tmp_path, monkeypatch, cli):
     Path("r.gplan").write_text('plan "x"\nblock b {\n  place b as again\n}\nplace b as one\n')
     code, _, err = cli("check", "r.gplan")
     assert code == 2 and "block 'b' places itself" in err
+
+
+def test_fast_records_equal_the_constructor_and_stay_immutable():
+    import dataclasses
+
+    from groundcheck.errors import Location
+    from groundcheck.model import Conductor, Point, make
+
+    loc = Location("t.gplan", 3, 1)
+    for cls, values in ((Conductor, dict(name="w", kind="wire", a="x", b="y", location=loc, length=0.1, area=1e-6)),
+                        (Conductor, dict(name="f", kind="bolt", a="x", b="deck", contact=5e-4, role="bond")),
+                        (Point, dict(name="p", location=loc, pos=(0.01, 0.02), on="deck", kind="star"))):
+        fast, slow = make(cls, **values), cls(**values)
+        assert fast == slow and type(fast) is cls
+        assert dataclasses.asdict(fast) == dataclasses.asdict(slow)      # every field, location included
+        with pytest.raises(dataclasses.FrozenInstanceError):
+            fast.name = "other"
+    with pytest.raises(TypeError, match="colour"):
+        make(Point, name="p", colour="red")
+    with pytest.raises(TypeError, match="kind"):
+        make(Conductor, name="w", a="x", b="y")
