@@ -6,9 +6,12 @@
 
 Each size runs in a fresh process (so peak memory is that size's own). Prints a Markdown table:
 parse (text -> model), network (graph + electrical network), audit (topology rules), solve at ten
-frequencies (one factorisation each, every source and stage as a column), full check (everything,
-hum budget included) where the size allows, peak memory, and ngspice's operating point on the
-exported netlist timed as a whole process, with the ratio of groundcheck's one solve to it.
+frequencies (one factorisation each; as the hum budget solves: every rectifier and one gain-weighted
+test column per channel) in one process and in --jobs processes, their sum, the full check
+(everything, hum budget included) where the size allows, peak memory, and ngspice's operating point
+on the exported netlist timed as a whole process, with the ratio of groundcheck's one solve to it.
+Each stage runs --repeat times and the fastest run is reported (the machine is shared and noisy);
+all run with Python's cyclic garbage collector paused, as load() and analyze() run them.
 """
 
 from __future__ import annotations
@@ -58,7 +61,7 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
     from groundcheck.analysis import Options, analyze
     from groundcheck.audit import AuditContext, audit
     from groundcheck.circuit import build_circuit
-    from groundcheck.coupling import pair_tests
+    from groundcheck.coupling import channel_tests, pair_tests
     from groundcheck.network import build_graph
     from groundcheck.spice import to_spice
     from groundcheck.sweep import map_frequencies
@@ -72,11 +75,8 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
     # the columns the hum budget solves at each frequency: every rectifier's charging current, and per
     # channel one test injection (its stages' 1 A tests weighted by their gains)
     stages = list(plan.stages)
-    channels = sorted({s.channel for s in stages})
-    gains = np.array([10 ** (s.gain / 20) for s in stages])
-    member = np.array([[1.0 if s.channel == ch else 0.0 for ch in channels] for s in stages]).reshape(len(stages), len(channels))
     J = np.hstack([pair_tests(circuit, [(r.a, r.b) for r in plan.rectifiers]),
-                   (pair_tests(circuit, [(s.a, s.b) for s in stages]) * gains) @ member])
+                   channel_tests(circuit, stages, sorted({s.channel for s in stages}))])
     if J.shape[1] == 0:
         J = np.zeros((len(circuit.nodes), 1))
     ends = [circuit.point_node[p] for s in stages for p in (s.a, s.b)]

@@ -69,25 +69,32 @@ def _shared_returns(plan: Plan, circuit: Circuit) -> tuple[list[Finding], list[d
     _, labels = circuit.components
     fac = circuit.at(0.0)
     src = fac.solve(source_injections(circuit, sources, 0.0))
-    test_J = pair_tests(circuit, [(s.a, s.b) for s in stages])
-    split = [labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages]
-    test_J[:, split] = 0.0                      # a stage across two islands has no defined pair voltage
-    test = fac.solve(test_J)
-    owners = branch_owner(circuit)
-    plan_conductors = {c.name: c for c in plan.conductors}
-    W = fac.z[:, None] * src.I                                       # branches × sources
-    transfer = np.abs(test.I.T @ W)                                  # stages × sources, V per A (reciprocity)
+    split = np.array([labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages])
+    ia = np.array([circuit.point_node[st.a] for st in stages])
+    ib = np.array([circuit.point_node[st.b] for st in stages])
+    # stages × sources, V per A: each stage's pair voltage from each source's unit current, which by
+    # reciprocity equals Σ Z·I_source·I_test over the branches (the shares below)
+    transfer = np.abs(src.V[ia] - src.V[ib])
+    transfer[split] = 0.0                        # a stage across two islands has no defined pair voltage
     pairs = np.argwhere(transfer > 1e-6)
     if len(pairs) > MAX_SHARED_FINDINGS:
         order = np.argsort(-transfer[pairs[:, 0], pairs[:, 1]], kind="stable")[:MAX_SHARED_FINDINGS]
         pairs = pairs[np.sort(order)]
+    # test currents only for the stages that share (not one column for every stage of a large installation)
+    need = sorted({int(k) for k, _ in pairs})
+    column = {k: i for i, k in enumerate(need)}
+    test = fac.solve(pair_tests(circuit, [(stages[k].a, stages[k].b) for k in need]))
+    owners = branch_owner(circuit)
+    plan_conductors = {c.name: c for c in plan.conductors}
+    W = fac.z[:, None] * src.I                                       # branches × sources
     findings, rows = [], []
     for k, si in pairs:
         s, st = sources[si], stages[k]
         if labels[circuit.point_node[s.a]] != labels[circuit.point_node[st.a]]:
             continue
-        shares = W[:, si] * test.I[:, k]
-        carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(test.I[:, k]) >= SHARE_THRESHOLD)
+        t_k = test.I[:, column[int(k)]]
+        shares = W[:, si] * t_k
+        carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
         if not carrying.any():
             continue
         tr = float(transfer[k, si])

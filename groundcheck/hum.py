@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .coupling import branch_owner, pair_path, pair_tests, path_drop, plan_sources, source_injections
+from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .hearing import dbv, spl_at_listener, threshold_of_hearing
 from .pickup import emf as emf_of, loop_flux, min_distance
 from .sweep import map_frequencies
@@ -165,7 +165,8 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         notes.append("listening context has no speaker sensitivity: no audibility verdict is given")
     _, labels = circuit.components
     valid_stage = [labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages]
-    paths = [pair_path(circuit, s.a, s.b) if ok else [] for s, ok in zip(stages, valid_stage)]
+    # least-resistance paths of the stages: only loop pickup reads them (one shortest-path search each)
+    paths = [pair_path(circuit, s.a, s.b) if ok and loops and plan.fields else [] for s, ok in zip(stages, valid_stage)]
     freqs = sorted({f for s in hum_sources for f in s.parts if f > 0} |
                    ({n * f0 for src in plan.fields for n in [1] + [h for h, _ in src.harmonics]} if loops else set()))
     freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
@@ -173,12 +174,8 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     crosstalk_wanted = bool(signal_sources) and len(channels) > 1 and bool(stages)
     gains = np.array([10 ** (s.gain / 20) for s in stages])
     valid_idx = np.flatnonzero(valid_stage) if stages else np.zeros(0, dtype=int)
-    member = np.zeros((len(valid_idx), len(channels)))
-    for row, k in enumerate(valid_idx):
-        member[row, channels.index(stages[k].channel)] = 1.0
-    # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the
-    # module doc).  By linearity its branch currents are the gain-weighted sum of the stages' own test currents.
-    channel_tests = (pair_tests(circuit, [(stages[k].a, stages[k].b) for k in valid_idx]) * gains[valid_idx]) @ member
+    # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the module doc)
+    tests = channel_tests(circuit, [stages[k] for k in valid_idx], channels)
     flux = {(li, src.name): loop_flux(src, info.polygon)
             for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
 
@@ -187,7 +184,7 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         fac = circuit.at(f)
         active = [s for s in hum_sources if s.parts.get(f, 0) != 0] if f in freqs else []
         if active and stages and valid_idx.size:
-            both = fac.solve(np.hstack([source_injections(circuit, active, f), channel_tests]))
+            both = fac.solve(np.hstack([source_injections(circuit, active, f), tests]))
             W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
             TC = both.I[:, len(active):]                                 # branches × channels
             for ci, ch in enumerate(channels):
