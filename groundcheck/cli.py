@@ -143,9 +143,9 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
-def _load(path: str):
+def _load(path: str, jobs: int = 1):
     from .loader import load
-    return load(path)
+    return load(path, jobs=jobs)
 
 
 def _write(text: str, output: str | None, inputs: list[str]) -> None:
@@ -191,7 +191,7 @@ def cmd_check(args) -> int:
             results.append(value)
     else:
         for path in args.plans:
-            plan = _load(path)
+            plan = _load(path, args.jobs)
             results.append(_analyze_with_progress(analyze, plan, _options(args), path))
     threshold = severity_rank(args.fail_on)
     failing = any(severity_rank(f.severity) <= threshold for r in results for f in r.findings)

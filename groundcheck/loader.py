@@ -7,15 +7,15 @@ Public entry points: :func:`load` (a path, or ``-`` for standard input) and
 
 from __future__ import annotations
 
+import gc
+import os
 import sys
+from contextlib import contextmanager
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+from .bigfile import can_split, read_split, split_point
 from .errors import LimitError, Location, PlanError, PlanErrors
-import gc
-import os
-from contextlib import contextmanager
-
 from .model import PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
@@ -58,15 +58,16 @@ class Transform:
 
 
 def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[str, ...] = (),
-         _devices: tuple[Path, ...] = ()) -> Plan:
+         _devices: tuple[Path, ...] = (), jobs: int = 1) -> Plan:
     """Load the plan at ``path`` (``"-"`` reads standard input) and return the resolved model.
 
     ``libraries``: extra folders searched for device plans (after the plan's own ``library``
-    statements; the environment variable ``GROUNDCHECK_LIBRARY`` adds more).
+    statements; the environment variable ``GROUNDCHECK_LIBRARY`` adds more).  ``jobs``: see
+    :func:`load_text`.
     """
     if str(path) == "-":
         text = stdin_text if stdin_text is not None else sys.stdin.read()
-        return load_text(text, "<stdin>", root=Path.cwd(), libraries=libraries)
+        return load_text(text, "<stdin>", root=Path.cwd(), libraries=libraries, jobs=jobs)
     p = Path(path)
     loc = Location(str(path), 0, 0)
     if not p.exists():
@@ -75,7 +76,7 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
         raise PlanErrors([PlanError(f"{path} is a folder, not a plan file", loc, f"name a {PLAN_SUFFIX} file")])
     text = _read(p, str(path))
     return load_text(text, str(path), root=p.resolve().parent, _resolved=p.resolve(), libraries=libraries,
-                     _devices=_devices)
+                     _devices=_devices, jobs=jobs)
 
 
 def _read(p: Path, shown: str) -> str:
@@ -302,10 +303,13 @@ class _Loader:
 
 
 def load_text(text: str, file: str = "<plan>", *, root: Path | None = None, _resolved: Path | None = None,
-              libraries: tuple[str, ...] = (), _devices: tuple[Path, ...] = ()) -> Plan:
-    """Load a plan from its text.  ``file`` is the name shown in messages; includes resolve under ``root``."""
+              libraries: tuple[str, ...] = (), _devices: tuple[Path, ...] = (), jobs: int = 1) -> Plan:
+    """Load a plan from its text.  ``file`` is the name shown in messages; includes resolve under ``root``.
+
+    ``jobs`` > 1 lets a large flat file be read by two processes (:mod:`groundcheck.bigfile`), with
+    the same plan and the same errors."""
     with no_gc():
-        return _load_text(text, file, root=root, _resolved=_resolved, libraries=libraries, _devices=_devices)
+        return _load_text(text, file, root=root, _resolved=_resolved, libraries=libraries, _devices=_devices, jobs=jobs)
 
 
 @contextmanager
@@ -321,17 +325,24 @@ def no_gc():
             gc.enable()
 
 
-def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices) -> Plan:
+def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jobs: int = 1) -> Plan:
     root = (root or Path.cwd()).resolve()
     ld = _Loader(root)
     ld.libraries = tuple(libraries)
     ld.device_stack = _devices + ((_resolved,) if _resolved is not None else ())
     stack = (_resolved,) if _resolved is not None else ()
-    items = ld.read_items(text, file, stack)
-    if not ld.errors and not any(isinstance(i, Statement) for i in items) and not ld.blocks:
-        ld.errors.append(PlanError("the plan is empty", Location(file, 1, 1), 'start with: plan "Title"'))
-    built: list = []
-    ld.expand(items, "", Transform(), (), 0, (), built)
+    at = split_point(text) if jobs > 1 and can_split() and len(text) <= LIMITS["file_bytes"] else None
+    if at is not None:
+        # a large flat file: the second part is parsed and built by a forked worker (see bigfile.py)
+        fresh = _Loader(root)
+        fresh.libraries, fresh.device_stack = ld.libraries, ld.device_stack
+        built = read_split(ld, text, file, at, fresh)
+    else:
+        items = ld.read_items(text, file, stack)
+        if not ld.errors and not any(isinstance(i, Statement) for i in items) and not ld.blocks:
+            ld.errors.append(PlanError("the plan is empty", Location(file, 1, 1), 'start with: plan "Title"'))
+        built = []
+        ld.expand(items, "", Transform(), (), 0, (), built)
     plan = None
     if not any(isinstance(e, LimitError) for e in ld.errors):
         plan = _assemble(built, file, ld)

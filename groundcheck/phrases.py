@@ -64,6 +64,7 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
     phrases: list[list[Item]] = []
     cur = []
     pend = None                      # a number or coordinate waiting to see whether a unit follows
+    dropped = False                  # the current phrase lost a quantity to a unit error (already reported)
     line_start = -column + 1
     for m in _TOK.finditer(text):
         g = m.lastindex
@@ -77,11 +78,12 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
             if pend is not None:
                 cur.append(_plain(pend))
                 pend = None
-            if not cur:
+            if not cur and not dropped:
                 errors.append(PlanError("unexpected ','", Location(file, line, col), "an attribute is missing here"))
                 return []
             phrases.append(cur)
             cur = []
+            dropped = False
             continue
         value = m.group(g)
         if g == WORD:
@@ -92,6 +94,7 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
                     except UnitError as e:
                         errors.append(PlanError(str(e), Location(file, line, col), e.hint))
                         pend = None
+                        dropped = True
                         continue
                     cur.append(_new(Item, ("qty", f"{pend[1]} {value}", pend[2], qv, qk)))
                     pend = None
@@ -128,7 +131,7 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
             return []
     if pend is not None:
         cur.append(_plain(pend))
-    if cur:
+    if cur or dropped:
         phrases.append(cur)
     elif phrases:
         errors.append(PlanError("the statement ends with a comma", Location(file, line, len(text) - line_start + 1),

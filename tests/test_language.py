@@ -259,3 +259,10 @@ def test_fast_records_equal_the_constructor_and_stay_immutable():
         make(Point, name="p", colour="red")
     with pytest.raises(TypeError, match="kind"):
         make(Conductor, name="w", a="x", b="y")
+
+
+def test_a_bad_unit_is_one_error_not_a_follow_on_comma_error():
+    with pytest.raises(PlanErrors) as e:
+        plan("point a: star\npoint b: star\nwire w: a to b, 10 furlongs, 0.5 mm2\n")
+    assert [x.message for x in e.value.errors] == ["unknown unit 'furlongs'"]
+    assert e.value.errors[0].location.column == 20
