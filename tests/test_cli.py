@@ -118,3 +118,9 @@ def test_library_entry_points():
     assert groundcheck.render(r, "html").startswith("<!DOCTYPE html>")
     with pytest.raises(ValueError):
         groundcheck.render(r, "pdf")
+
+
+def test_jobs_on_one_plan_gives_the_same_document(cli):
+    one = json.loads(cli("check", DUAL, "--format", "json")[1])
+    two = json.loads(cli("check", DUAL, "--format", "json", "--jobs", "2")[1])
+    assert one == two and one["hum"]
