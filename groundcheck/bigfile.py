@@ -17,8 +17,8 @@ or library folders is read whole (those need the whole file's context).
 from __future__ import annotations
 
 import dataclasses
-import multiprocessing
 import marshal
+import multiprocessing
 import operator
 import os
 import re
