@@ -50,6 +50,17 @@ def _quantity(kind: str, unit: str):
     return conv
 
 
+def _processes(text: str) -> int:
+    """A number of processes: a whole number from 1 up."""
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of processes") from None
+    if n < 1:
+        raise argparse.ArgumentTypeError(f"{text!r}: give at least 1 process")
+    return n
+
+
 def _add_analysis_options(p):
     g = p.add_argument_group("analysis")
     g.add_argument("--pe-limit", type=_quantity("resistance", "ohm"), default=0.1, metavar="OHM",
@@ -81,8 +92,8 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--format", choices=("text", "json", "sarif"), default="text", help="output format (default text)")
     c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
-    c.add_argument("--jobs", type=int, default=1, metavar="N", help="use N processes: several plans are checked side by side; one plan's hum budget shares "
-                   "its frequencies among them (Linux; default 1)")
+    c.add_argument("--jobs", type=_processes, default=1, metavar="N", help="use N processes: several plans are checked side by side; for one plan, a large flat "
+                   "file is read by two and the hum budget's frequencies are shared among N (Linux; default 1)")
     _add_analysis_options(c)
 
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",

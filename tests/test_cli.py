@@ -124,3 +124,9 @@ def test_jobs_on_one_plan_gives_the_same_document(cli):
     one = json.loads(cli("check", DUAL, "--format", "json")[1])
     two = json.loads(cli("check", DUAL, "--format", "json", "--jobs", "2")[1])
     assert one == two and one["hum"]
+
+
+@pytest.mark.parametrize("value", ["0", "-2", "two"])
+def test_jobs_must_be_a_whole_number_from_one(cli, value):
+    code, out, err = cli("check", DUAL, "--jobs", value)
+    assert code == 2 and "--jobs" in err and "Traceback" not in err
