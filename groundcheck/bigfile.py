@@ -26,7 +26,7 @@ import re
 from .errors import LimitError, Location, PlanError
 from .model import Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point, Rectifier, Stage
 from .phrases import Statement
-from .sweep import can_fork
+from .sweep import can_fork, quiet_child
 
 __all__ = ["split_point", "MIN_LINES"]
 
@@ -86,14 +86,14 @@ def _pack(built: list, ld) -> bytes:
     return marshal.dumps((rows, errors, sorted(ld.broken), ld.count))
 
 
-def _worker(conn, loader, text: str, file: str, first_line: int) -> None:
+def _worker(conn, loader, transform, text: str, file: str, first_line: int) -> None:
+    quiet_child()
     try:
-        from .loader import Transform
         ld = loader
         # blank lines in front keep the line numbers of the whole file
         items = ld.read_items("\n" * first_line + text, file, ())
         built: list = []
-        ld.expand(items, "", Transform(), (), 0, (), built)
+        ld.expand(items, "", transform, (), 0, (), built)
         conn.send_bytes(_pack(built, ld))
     except BaseException as e:  # pragma: no cover - reported by the parent, which then reads the part itself
         conn.send_bytes(marshal.dumps(repr(e)))
@@ -136,7 +136,7 @@ def read_split(ld, text: str, file: str, at: int, fresh_loader) -> list:
     head, tail = "\n".join(rows[:at]) + "\n", "\n".join(rows[at:])
     ctx = multiprocessing.get_context("fork")
     receive, send = ctx.Pipe(duplex=False)
-    proc = ctx.Process(target=_worker, args=(send, fresh_loader, tail, file, at), daemon=True)
+    proc = ctx.Process(target=_worker, args=(send, fresh_loader, Transform(), tail, file, at), daemon=True)
     proc.start()
     send.close()
     items = ld.read_items(head, file, ())

@@ -23,10 +23,11 @@ from __future__ import annotations
 
 import gc
 import multiprocessing
+import os
 import sys
 from typing import Callable, Sequence, TypeVar
 
-__all__ = ["map_frequencies", "can_fork"]
+__all__ = ["map_frequencies", "can_fork", "quiet_child"]
 
 T = TypeVar("T")
 
@@ -40,13 +41,27 @@ def can_fork() -> bool:
     return sys.platform.startswith("linux") and not multiprocessing.current_process().daemon
 
 
+try:        # imported here, before any fork: a forked child should not need the import machinery
+    from threadpoolctl import threadpool_limits
+except ImportError:  # pragma: no cover - a dependency; without it the BLAS keeps its threads
+    threadpool_limits = None
+
+
+def quiet_child() -> None:
+    """First steps of a forked worker: standard output and error go to the null device.
+
+    Only the forking thread lives on in a child; had another thread of the parent (the progress
+    spinner on a terminal) held the lock of ``sys.stderr`` at the moment of the fork, the child's
+    final flush of it would wait forever.  Workers report through their return values instead.
+    """
+    sys.stdout = sys.stderr = open(os.devnull, "w")  # noqa: SIM115 - lives as long as the worker
+
+
 def _start_worker() -> None:
+    quiet_child()
     gc.disable()
-    try:
-        from threadpoolctl import threadpool_limits
-    except ImportError:  # pragma: no cover - a dependency; without it the BLAS keeps its threads
-        return
-    threadpool_limits(1)
+    if threadpool_limits is not None:
+        threadpool_limits(1)
 
 
 def _run(indices: list[int]) -> list:
