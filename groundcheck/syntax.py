@@ -43,8 +43,8 @@ class BlockDef:
         self.name, self.loc, self.body = name, loc, body
 
 
-#: a LINE token's keyword, name, and where its attributes start (the grammar's HEAD and the blanks after it)
-_LINE_PARTS = re.compile(r"([^\W\d][\w.\-/]*)[ \t]+([^\W\d][\w.\-]*)[ \t]*:[ \t]*")
+#: the keyword, the name, and where the attributes start, in a HEAD or LINE token (HEAD and the blanks after it)
+_HEAD_PARTS = re.compile(r"([^\W\d][\w.\-/]*)[ \t]+([^\W\d][\w.\-]*)[ \t]*:[ \t]*")
 
 
 class _Build(Transformer):
@@ -58,26 +58,19 @@ class _Build(Transformer):
 
     def statement(self, children):
         head: Token = children[0]
-        if head.type == "LINE":
+        loc = Location(self.file, head.line, head.column)
+        if head.type == "WORD":
+            st = Statement(str(head), loc)
+        else:                                   # HEAD or LINE: keyword, name and colon (and, for LINE, the rest)
             text = head.value
-            m = _LINE_PARTS.match(text)
-            st = Statement(m.group(1), Location(self.file, head.line, head.column))
-            st.label = m.group(2)
-            st.label_loc = Location(self.file, head.line, head.column + m.start(2))
-            st.phrases = split_phrases(text[m.end():], head.line, head.column + m.end(), self.file, self.errors)
-            return st
-        rest = children[1:]
-        if head.type == "HEAD":
-            text = head.value
-            kw_text = text.split(None, 1)[0]
-            label_start = len(kw_text) + (len(text) - len(kw_text) - len(text[len(kw_text):].lstrip()))
-            st = Statement(kw_text, Location(self.file, head.line, head.column))
-            st.label = text[label_start:].rstrip(": \t")
-            st.label_loc = Location(self.file, head.line, head.column + label_start)
-        else:
-            st = Statement(str(head), Location(self.file, head.line, head.column))
-        if rest:
-            st.phrases = split_phrases(str(rest[0]), rest[0].line, rest[0].column, self.file, self.errors)
+            m = _HEAD_PARTS.match(text)
+            st = Statement(m.group(1), loc, m.group(2), Location(self.file, head.line, head.column + m.start(2)))
+            if head.type == "LINE":
+                st.phrases = split_phrases(text[m.end():], head.line, head.column + m.end(), self.file, self.errors)
+                return st
+        if len(children) > 1:
+            rest = children[1]
+            st.phrases = split_phrases(str(rest), rest.line, rest.column, self.file, self.errors)
         return st
 
     def block(self, children):
