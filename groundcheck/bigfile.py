@@ -24,9 +24,9 @@ import os
 import re
 
 from .errors import LimitError, Location, PlanError
-from .model import Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point, Rectifier, Stage
+from .model import Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point, Rectifier, Stage, from_values
 from .phrases import Statement
-from .sweep import can_fork, quiet_child
+from .sweep import quiet_child
 
 __all__ = ["split_point", "MIN_LINES"]
 
@@ -114,8 +114,7 @@ def _unpack(data: bytes, ld) -> list | None:
         st = Statement(keyword, new(Location, loc), label, None if label_loc is None else new(Location, label_loc))
         if kind in _FIELDS:
             k = _LOCATION_AT[kind]
-            record = object.__new__(_RECORDS[kind])
-            record.__dict__.update(zip(_FIELDS[kind], values[:k] + (new(Location, values[k]),) + values[k + 1:]))
+            record = from_values(_RECORDS[kind], _FIELDS[kind], values[:k] + (new(Location, values[k]),) + values[k + 1:])
         else:
             record = values               # a header value (the plan's title or ambient temperature)
         built.append((st, record, {name: new(Location, where) for name, where in refs}))
@@ -161,8 +160,3 @@ def read_split(ld, text: str, file: str, at: int, fresh_loader) -> list:
         ld.errors.append(LimitError(f"plan expands to more than {LIMITS['elements']} elements", Location(file, 1, 1),
                                     "split the installation into several plans"))
     return built + rest
-
-
-def can_split() -> bool:
-    """Whether a worker can be forked here."""
-    return can_fork()

@@ -14,11 +14,12 @@ from contextlib import contextmanager
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from .bigfile import can_split, read_split, split_point
+from .bigfile import read_split, split_point
 from .errors import LimitError, Location, PlanError, PlanErrors
 from .model import PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
+from .sweep import can_fork
 from .syntax import BlockDef, parse_text, suggest_keyword
 
 __all__ = ["load", "load_text", "LIMITS", "PLAN_SUFFIX"]
@@ -331,7 +332,7 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
     ld.libraries = tuple(libraries)
     ld.device_stack = _devices + ((_resolved,) if _resolved is not None else ())
     stack = (_resolved,) if _resolved is not None else ()
-    at = split_point(text) if jobs > 1 and can_split() and len(text) <= LIMITS["file_bytes"] else None
+    at = split_point(text) if jobs > 1 and can_fork() and len(text) <= LIMITS["file_bytes"] else None
     if at is not None:
         # a large flat file: the second part is parsed and built by a forked worker (see bigfile.py)
         fresh = _Loader(root)

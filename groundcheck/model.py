@@ -14,7 +14,7 @@ from .errors import Location
 
 __all__ = [
     "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
-    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "make",
+    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "make", "from_values",
 ]
 
 #: the implicit point of the mains inlet's protective-earth terminal
@@ -292,4 +292,15 @@ def make(cls, **values):
     d = obj.__dict__
     d.update(defaults)
     d.update(values)
+    return obj
+
+
+def from_values(cls, names: tuple[str, ...], values: tuple):
+    """A record of ``cls`` from the value of every field, ``names`` being all its fields in order.
+
+    The bulk counterpart of :func:`make` for records sent back by a worker process
+    (:mod:`groundcheck.bigfile`): nothing is defaulted or checked, as the values came from a record.
+    """
+    obj = object.__new__(cls)
+    obj.__dict__.update(zip(names, values))
     return obj

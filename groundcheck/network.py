@@ -48,25 +48,15 @@ def edges_of(G: nx.MultiGraph) -> list[tuple]:
     return out
 
 
-def _csgraph(G: nx.MultiGraph, edges: list[tuple]):
-    order = list(G.nodes)
-    idx = {n: i for i, n in enumerate(order)}
-    edges = [(idx[e[0]], idx[e[1]]) for e in edges]
-    n = len(order)
-    if edges:
-        a = np.array(edges, dtype=np.int64)
-        A = sp.coo_matrix((np.ones(len(a)), (a[:, 0], a[:, 1])), shape=(n, n))
-    else:
-        A = sp.coo_matrix((n, n))
-    return order, idx, A
-
-
 def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list, np.ndarray, int]:
     """Connected parts: (nodes in graph order, the part label of each, number of parts), by scipy's csgraph.
     ``edges`` is :func:`edges_of` ``(G)`` when the caller already has it."""
-    order, _, A = _csgraph(G, edges_of(G) if edges is None else edges)
+    order = list(G.nodes)
     if not order:
         return order, np.zeros(0, dtype=np.int32), 0
+    idx = {n: i for i, n in enumerate(order)}
+    pairs = np.array([(idx[e[0]], idx[e[1]]) for e in (edges_of(G) if edges is None else edges)], dtype=np.int64).reshape(-1, 2)
+    A = sp.coo_matrix((np.ones(len(pairs)), (pairs[:, 0], pairs[:, 1])), shape=(len(order), len(order)))
     ncomp, labels = csgraph.connected_components(A, directed=False)
     return order, labels, int(ncomp)
 
