@@ -44,10 +44,7 @@ def _best(repeat: int, fn):
 
 def one(size: int, kind: str, ngspice: bool, full_limit: int, repeat: int, jobs: int) -> dict:
     from generate import chassis, installation
-
-    from groundcheck.loader import no_gc
-
-    from groundcheck.loader import LIMITS
+    from groundcheck.loader import LIMITS, no_gc
 
     text = chassis(size) if kind == "chassis" else installation(size)
     row = {"kind": kind, "size": size}
