@@ -17,6 +17,8 @@ import scipy.sparse.csgraph as csgraph
 
 from .errors import Location
 from .findings import Finding
+from .earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
+from .kinds import PROTECTIVE_ROLES, bonds_metal, can_carry_protective, cross_section, is_fastening, section_checked
 from .model import PE_POINT, Conductor, Plan
 from .network import Loop, build_graph, components, edges_of, fundamental_loops, loop_polygon, polygon_area
 
@@ -72,60 +74,36 @@ class AuditContext:
 
     @cached_property
     def chassis_side(self) -> set[str]:
-        """Metal parts, points fastened to one, and the inlet's protective terminal."""
+        """Metal parts, points fastened or strapped to one, and the earth terminals."""
         side = set(self.metals)
         for c in self.plan.conductors:
-            if c.connects and c.kind in ("bolt", "strap"):
+            if c.connects and bonds_metal(c):
                 if c.a in self.metals:
                     side.add(c.b)
                 if c.b in self.metals:
                     side.add(c.a)
-        if PE_POINT in self.G:
-            side.add(PE_POINT)
+        side.update(n for n in self.earth_terminals if n in self.G)
         return side
 
     @cached_property
     def signal_points(self) -> set[str]:
-        pts = set()
-        for s in self.plan.stages:
-            pts.update((s.a, s.b))
-        for r in (*self.plan.rectifiers, *(c for c in self.plan.currents if c.role != "leakage")):
-            pts.update((r.a, r.b))
-        pts.update(p.name for p in self.plan.points if p.kind == "star")
-        return pts
+        return signal_points(self.plan)
 
     @cached_property
-    def inlets(self) -> list[str]:
-        """Protective terminals of mains inlets: the plan's own and those of placed devices."""
-        return sorted(n for n, d in self.G.nodes(data=True)
-                      if n == PE_POINT or (d.get("point") is not None and d["point"].kind == "inlet"))
+    def earth_terminals(self) -> list[str]:
+        """Every earth terminal of the plan: main earthing terminals, outlets, inlets (mains.pe and devices')."""
+        terms = earth_terminals(self.plan)
+        return sorted(n for k in terms for n in terms[k])
 
     @cached_property
-    def protective_path(self) -> set[str]:
-        """Conductors on the protective route from the nearest inlet to each metal part: never to be opened.
+    def route(self) -> ProtectiveRoute:
+        """The protective route (:mod:`groundcheck.earthing`): what is protective by topology or role."""
+        return protective_route(self.plan, self.adj)
 
-        One breadth-first search from every inlet at once, over protective conductors and fastenings.
-        """
-        ok = lambda c: c.role in ("protective", "bond") and c.kind not in ("lift", "switch", "shield", "interconnect")  # noqa: E731
-        parent: dict = {inlet: None for inlet in self.inlets}
-        q = deque(self.inlets)
-        while q:
-            u = q.popleft()
-            for v, keys in self.adj[u].items():
-                if v in parent:
-                    continue
-                good = [k for k in keys if ok(keys[k]["conductor"])]
-                if good:
-                    parent[v] = (u, min(good))
-                    q.append(v)
-        keep: set[str] = set()
-        for m in self.metals & parent.keys():
-            v = m
-            while parent[v] is not None and parent[v][1] not in keep:
-                u, k = parent[v]
-                keep.add(k)
-                v = u
-        return keep
+    @cached_property
+    def protective_path(self) -> frozenset:
+        """Conductors that are protective by topology or by role: never to be opened."""
+        return self.route.conductors
 
     @cached_property
     def source_pairs(self) -> set[frozenset]:
@@ -205,7 +183,7 @@ def _open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
     """The conductor to open: never a protective conductor or a fastening of metal parts."""
     cs = [ctx.conductors[e] for e in lp.edges]
     candidates = [c for c in cs if c.role != "protective" and c.name not in ctx.protective_path
-                  and not (c.kind == "bolt" and c.role == "bond" and (c.a in ctx.metals and c.b in ctx.metals))]
+                  and not (bonds_metal(c) and c.role == "bond" and (c.a in ctx.metals and c.b in ctx.metals))]
     if not candidates:
         return ""
     if closed_by == "mains-cords":
@@ -397,72 +375,124 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
 
 
 def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
+    """GC201–GC205, GC209, GC210: the protective route of a class I plan with a mains inlet."""
     plan = ctx.plan
+    if plan.mains is None or plan.mains.equipment_class == "II" or PE_POINT not in ctx.G:
+        return []
+    route = ctx.route
+    bonded = route.reached & ctx.metals
     out: list[Finding] = []
-    if plan.mains is None:
-        return out
-    G = ctx.G
-    mloc = plan.mains.location
-    pe_ok = lambda c: c.role in ("protective", "bond") and c.kind not in ("lift", "switch", "shield", "interconnect")  # noqa: E731
-    # BFS from the inlet over protective conductors and fastenings only
-    seen = {PE_POINT}
-    q = deque([PE_POINT])
-    while q:
-        u = q.popleft()
-        for v, keys in G.adj[u].items():
-            if v not in seen and any(pe_ok(G.edges[u, v, k]["conductor"]) for k in keys):
-                seen.add(v)
-                q.append(v)
-    bonded = seen & ctx.metals
     if not bonded:
-        reach = nx.node_connected_component(G, PE_POINT) & ctx.metals
-        if reach:
-            target = sorted(reach)[0]
-            path = nx.shortest_path(G, PE_POINT, target)
-            bad = []
-            for u, v in zip(path, path[1:]):
-                for k, d in G[u][v].items():
-                    if not pe_ok(d["conductor"]):
-                        bad.append(k)
-            out.append(Finding("GC203", "danger",
-                               f"the protective earth reaches {target} only through {', '.join(bad)}, which is not a protective conductor",
-                               ctx.loc(bad[0]) if bad else mloc, tuple(bad), {},
-                               "connect the inlet's protective terminal straight to the chassis with a protective conductor; "
-                               "lift networks and switches belong between signal ground and chassis, never in the protective path"))
-        else:
-            out.append(Finding("GC201", "danger", "the mains inlet's protective terminal reaches no metal part",
-                               mloc, (PE_POINT,), {},
-                               "run a green-and-yellow protective conductor from the inlet's earth terminal straight to a chassis stud of its own"))
-    # own fastener: the first fastened point on the protective path
+        out.append(_pe_not_reaching(ctx))
+    out.extend(_pe_fastener(ctx))
+    out.extend(_pe_terminal_other_use(ctx))
+    out.extend(_pe_unmarked(ctx))
+    out.extend(_pe_sections(ctx))
+    for m in plan.metals:
+        if m.touchable and m.name not in bonded:
+            out.append(Finding("GC205", "danger", f"touchable part {m.name} is not bonded to the protective earth by protective conductors",
+                               m.location, (m.name,), {},
+                               f"bond {m.name} to the protective-earth stud with a protective conductor or a fastening rated for it"))
+    return out
+
+
+def _pe_not_reaching(ctx: AuditContext) -> Finding:
+    """GC203 when the inlet reaches metal only through something that cannot be protective, else GC201."""
+    G, mloc = ctx.G, ctx.plan.mains.location
+    reach = nx.node_connected_component(G, PE_POINT) & ctx.metals
+    if not reach:
+        return Finding("GC201", "danger", "the mains inlet's protective terminal reaches no metal part", mloc, (PE_POINT,), {},
+                       "run a green-and-yellow protective conductor from the inlet's earth terminal straight to a chassis stud of its own")
+    target = sorted(reach)[0]
+    path = nx.shortest_path(G, PE_POINT, target)
+    bad = [k for u, v in zip(path, path[1:]) for k, d in G[u][v].items()
+           if not can_carry_protective(d["conductor"]) or (v in ctx.signal_points and v != target)]
+    return Finding("GC203", "danger",
+                   f"the protective earth reaches {target} only through {', '.join(bad) or 'the signal circuit'}, "
+                   "which is not a protective conductor",
+                   ctx.loc(bad[0]) if bad else mloc, tuple(bad), {},
+                   "connect the inlet's protective terminal straight to the chassis with a protective conductor; "
+                   "lift networks and switches belong between signal ground and chassis, never in the protective path")
+
+
+def _pe_fastener(ctx: AuditContext) -> list[Finding]:
+    """GC202: the protective conductor from the inlet lands on a fastener that holds something else."""
+    out = []
+    G = ctx.G
     for v, keys in G.adj[PE_POINT].items():
         for k in keys:
             c = G.edges[PE_POINT, v, k]["conductor"]
-            if c.role != "protective" or v in ctx.metals:
+            if k not in ctx.route or v in ctx.metals:
                 continue
             others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
-            fastenings = [kk for kk in others if ctx.conductors[kk].kind == "bolt"
-                          and (ctx.conductors[kk].a in ctx.metals) != (ctx.conductors[kk].b in ctx.metals)
-                          and ctx.conductors[kk].role in ("bond", "protective")]
+            fastenings = [kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
+                          and ctx.conductors[kk].role in PROTECTIVE_ROLES]
             holds = [kk for kk in others if kk not in fastenings[:1]]
             if holds:
                 out.append(Finding("GC202", "fault",
                                    f"the protective earth lands on {v}, a fastener that also holds {', '.join(sorted(holds))}",
                                    c.location, (c.name, v, *sorted(holds)), {"other_items": len(holds)},
                                    f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to another fastener"))
-    # cross-section
-    line = plan.mains.line_area
-    if line is not None:
-        for c in plan.conductors:
-            if c.role == "protective" and c.kind in ("wire", "busbar", "strap") and c.area is not None and c.area < line * (1 - 1e-6):
-                out.append(Finding("GC204", "danger",
-                                   f"protective conductor {c.name} is {c.area * 1e6:.3g} mm², thinner than the line conductor ({line * 1e6:.3g} mm²)",
-                                   c.location, (c.name,), {"area_mm2": round(c.area * 1e6, 4), "line_area_mm2": round(line * 1e6, 4)},
-                                   f"use at least {line * 1e6:.3g} mm² (IEC 60364-5-54 Table 54.2)"))
-    for m in plan.metals:
-        if m.touchable and m.name not in bonded:
-            out.append(Finding("GC205", "danger", f"touchable part {m.name} is not bonded to the protective earth by protective conductors",
-                               m.location, (m.name,), {},
-                               f"bond {m.name} to the protective-earth stud with a protective conductor or a fastening rated for it"))
+    return out
+
+
+def _pe_terminal_other_use(ctx: AuditContext) -> list[Finding]:
+    """GC210: a conductor on the inlet's protective terminal that is not part of the protective route."""
+    out = []
+    for keys in ctx.G.adj[PE_POINT].values():
+        for k in sorted(keys):
+            if k in ctx.route:
+                continue
+            c = ctx.conductors[k]
+            out.append(Finding("GC210", "fault",
+                               f"{c.kind} {c.name} ({c.role}) lands on the inlet's protective terminal",
+                               c.location, (c.name, PE_POINT), {},
+                               f"take {c.name} to its own place (a signal ground bonds to the chassis near the protective-earth "
+                               "stud, not on the inlet's terminal); only the protective conductor belongs on the inlet's earth terminal"))
+    return out
+
+
+def _pe_unmarked(ctx: AuditContext) -> list[Finding]:
+    """GC209: conductors the protective earth relies on whose role does not say protective."""
+    return [Finding("GC209", "warning",
+                    f"{ctx.conductors[k].kind} {k} carries the protective earth but is written as {ctx.conductors[k].role}",
+                    ctx.loc(k), (k,), {},
+                    f"write {k} as 'protective' and use green-and-yellow wire of at least the line conductor's size; "
+                    "groundcheck treats it as protective and never suggests removing it")
+            for k in ctx.route.unmarked]
+
+
+def _pe_sections(ctx: AuditContext) -> list[Finding]:
+    """GC204: a conductor on the protective route thinner than the line conductor."""
+    line = ctx.plan.mains.line_area
+    if line is None:
+        return []
+    out = []
+    for c in ctx.plan.conductors:
+        area = cross_section(c)
+        if c.name in ctx.route and section_checked(c) and area is not None and area < line * (1 - 1e-6):
+            out.append(Finding("GC204", "danger",
+                               f"protective conductor {c.name} is {area * 1e6:.3g} mm², thinner than the line conductor ({line * 1e6:.3g} mm²)",
+                               c.location, (c.name,), {"area_mm2": round(area * 1e6, 4), "line_area_mm2": round(line * 1e6, 4)},
+                               f"use at least {line * 1e6:.3g} mm² (IEC 60364-5-54 Table 54.2)"))
+    return out
+
+
+def rule_class_ii(ctx: AuditContext) -> list[Finding]:
+    """GC212, GC213: a class II plan has no protective earth to check, and must not have an earth terminal in use."""
+    m = ctx.plan.mains
+    if m is None or m.equipment_class != "II":
+        return []
+    out = [Finding("GC213", "note", "class II equipment: safety rests on double or reinforced insulation, which the plan "
+                   "does not describe; protective-earth figures are skipped", m.location, ("mains",), {},
+                   "have the insulation checked against the product-safety standard by a qualified person")]
+    if PE_POINT in ctx.G:
+        for _, v, k in sorted(ctx.G.edges(PE_POINT, keys=True)):
+            c = ctx.conductors[k]
+            out.append(Finding("GC212", "fault", f"{c.kind} {k} joins {v} to the earth terminal of class II equipment, which has none",
+                               c.location, (k, v), {},
+                               "make the equipment class I (three-core cord, protective earth to every touchable part), "
+                               "or remove the connection"))
     return out
 
 
@@ -510,8 +540,8 @@ def rule_unconnected(ctx: AuditContext) -> list[Finding]:
     return out
 
 
-TOPOLOGY_RULES = (rule_loops, rule_stars, rule_signal_bonds, rule_protective_earth, rule_heaters, rule_shields,
-                  rule_unconnected)
+TOPOLOGY_RULES = (rule_loops, rule_stars, rule_signal_bonds, rule_protective_earth, rule_class_ii, rule_heaters,
+                  rule_shields, rule_unconnected)
 
 
 def audit(plan: Plan, ctx: AuditContext | None = None) -> tuple[list[Finding], AuditContext]:

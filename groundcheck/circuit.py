@@ -77,6 +77,12 @@ class Branch:
     cap: float | None = None         # F, lift networks: R ∥ C
     path: tuple[XY, ...] = ()        # geometry from n1 to n2 (for induced EMF), empty when unknown
     conductor: str | None = None     # the plan conductor it models
+    metal: str | None = None         # or the metal part whose plate it belongs to
+
+    @property
+    def owner(self) -> str:
+        """The plan element the branch models: its conductor or its metal part."""
+        return self.conductor or self.metal or self.name
 
 
 @dataclass
@@ -88,6 +94,11 @@ class Circuit:
     positions: dict[str, XY] = field(default_factory=dict)
     plate_notes: dict[str, dict] = field(default_factory=dict)
     point_node: dict[str, int] = field(default_factory=dict)   # plan point/part name -> node index
+    metal_nodes: dict[str, tuple[int, ...]] = field(default_factory=dict)   # metal part -> its contact nodes
+
+    def nodes_of_metal(self, name: str) -> tuple[int, ...]:
+        """The nodes of metal part ``name``: its contact spots on a plate grid, else its one node."""
+        return self.metal_nodes.get(name, ())
 
     @cached_property
     def index(self) -> dict[str, int]:
@@ -312,12 +323,14 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
     branches: list[Branch] = []
     plate_notes: dict[str, dict] = {}
     metal_contact: dict[tuple[str, str], int] = {}      # (metal, conductor) -> node
+    metal_nodes: dict[str, tuple[int, ...]] = {}
     for name, m in metals.items():
         fs = fasteners[name]
         gridable = (plates and m.size is not None and m.material in MATERIALS and len(fs) >= 2
                     and all(w is not None for _, w in fs) and len(fs) <= 60)
         if not gridable:
             point_node[name] = node(name)
+            metal_nodes[name] = (point_node[name],)
             for cname, _ in fs:
                 metal_contact[(name, cname)] = point_node[name]
             plate_notes[name] = {"model": "ideal node", "fasteners": len(fs)}
@@ -335,6 +348,7 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
                 spots.append(w)
         spot_nodes = [node(f"{name}@{i + 1}", s) for i, s in enumerate(spots)]
         point_node[name] = spot_nodes[0]
+        metal_nodes[name] = tuple(spot_nodes)
         for cname, _ in fs:
             metal_contact[(name, cname)] = spot_nodes[spot_of[cname]]
         if len(spots) >= 2:
@@ -349,7 +363,7 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
                     g = -G[i, j]
                     if g > 1e-12 * abs(G[i, i]):
                         branches.append(Branch(spot_nodes[i], spot_nodes[j], f"plate:{name}:{i + 1}~{j + 1}",
-                                               1.0 / g, path=(spots[i], spots[j])))
+                                               1.0 / g, path=(spots[i], spots[j]), metal=name))
             plate_notes[name] = {"model": "plate grid", "fasteners": len(spots), "grid_step_mm": res.step * 1e3,
                                  "estimated_error": res.error}
         else:
@@ -369,4 +383,4 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
                 path = (pa, pb)
         branches.append(Branch(ends[0], ends[1], c.name, r, ind, radius, rho,
                                c.capacitance if c.kind == "lift" else None, path, c.name))
-    return Circuit(nodes, branches, positions, plate_notes, point_node)
+    return Circuit(nodes, branches, positions, plate_notes, point_node, metal_nodes)

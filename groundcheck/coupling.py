@@ -97,7 +97,7 @@ def source_injections(circuit: Circuit, sources, f: float) -> np.ndarray:
 
 def branch_owner(circuit: Circuit) -> list[str]:
     """The plan element each branch belongs to: its conductor, or the metal part of a plate branch."""
-    return [b.conductor if b.conductor else b.name.split(":")[1] for b in circuit.branches]
+    return [b.owner for b in circuit.branches]
 
 
 def pair_path(circuit: Circuit, a: str, b: str) -> list[tuple[int, float]]:

@@ -116,7 +116,7 @@ def _emf_columns(circuit, loops, fields, f0, f, names, flux):
             continue
         b = circuit.branches[bi]
         start = lp.nodes[lp.chord]
-        forward = circuit.nodes[b.n1] == start or circuit.nodes[b.n1].startswith(start + "@")
+        forward = b.n1 == circuit.point_node.get(start) or b.n1 in circuit.nodes_of_metal(start)
         for src in fields:
             scale = {1: 1.0, **{n: ratio for n, ratio in src.harmonics}}
             for n, ratio in scale.items():

@@ -16,7 +16,7 @@ from pathlib import Path
 
 from .bigfile import read_split, split_point
 from .errors import LimitError, Location, PlanError, PlanErrors
-from .model import PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
+from .model import DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
 from .sweep import can_fork
@@ -498,7 +498,7 @@ def _merge_device(dev: Device, refs: dict, ld: _Loader, library_dirs: list[str],
     errors = ld.errors
     if dev.source == "simple":
         sub = _simple_device(dev)
-        cord_default = (2.0, 0.75e-6)
+        cord_default = DEFAULT_CORD
     else:
         path = _find_device(dev.source, dev, ld, library_dirs)
         if path is None:
@@ -517,7 +517,7 @@ def _merge_device(dev: Device, refs: dict, ld: _Loader, library_dirs: list[str],
         prefix = dev.name + "."
         sub = _prefixed(loaded, prefix)
         m = loaded.mains
-        cord_default = (m.cord_length if m else 2.0, (m.cord_area or m.line_area or 0.75e-6) if m else 0.75e-6)
+        cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
     tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
     for x in sub.metals:
         size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)

@@ -11,10 +11,12 @@ from __future__ import annotations
 from dataclasses import MISSING, dataclass, field, fields
 
 from .errors import Location
+from .kinds import CONDUCTOR_KINDS
 
 __all__ = [
     "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
-    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "make", "from_values",
+    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD", "make",
+    "from_values",
 ]
 
 #: the implicit point of the mains inlet's protective-earth terminal
@@ -23,14 +25,20 @@ PE_POINT = "mains.pe"
 #: what a conductor is for
 ROLES = ("protective", "return", "signal", "shield", "bond", "heater")
 
-CONDUCTOR_KINDS = ("wire", "trace", "busbar", "bolt", "strap", "shield", "interconnect", "lift", "switch")
 
 XY = tuple[float, float]
 
 
+#: the mains cord when neither the plan nor the device says: 2 m of 0.75 mm² (common practice for
+#: equipment up to 6 A, IEC 60335-1's smallest cord for that current — see tests/reference/protection.md)
+DEFAULT_CORD = (2.0, 0.75e-6)
+
+
 @dataclass(frozen=True)
 class Mains:
-    """The mains supply: nominal voltage (V rms), frequency (Hz) and its protection."""
+    """The mains supply: nominal voltage U0 (V rms), frequency (Hz), earthing system, protection, and
+    the equipment's protection class.  Optional figures left None take the documented defaults of
+    :mod:`groundcheck.protection`."""
 
     voltage: float
     frequency: float
@@ -39,11 +47,26 @@ class Mains:
     fuse_i2t: float | None = None        # let-through I²t, A²s, when the plan states it
     clear_time: float | None = None      # clearing time, s, when the plan states it
     line_area: float | None = None       # line-conductor cross-section, m²
-    loop_impedance: float = 0.8          # supply earth-fault loop impedance, Ω
-    cord_length: float = 2.0             # mains cord, m
-    cord_area: float | None = None       # mains cord conductor area, m² (default: line_area)
+    loop_impedance: float | None = None  # external earth-fault loop impedance Ze at the origin, Ω
+    cord_length: float = DEFAULT_CORD[0]  # mains cord, m
+    cord_area: float | None = None       # mains cord conductor area, m² (default: line_area, else DEFAULT_CORD)
     inlet: XY | None = None
+    system: str = "TN-S"                 # TN-S | TN-C-S | TT (IEC 60364-1)
+    rcd: float | None = None             # rated residual operating current IΔn, A
+    circuit_length: float | None = None  # final circuit from the origin to the socket, m
+    circuit_area: float | None = None    # its line conductor, m²
+    cpc_area: float | None = None        # its circuit protective conductor, m² (default: circuit_area)
+    electrode: float | None = None       # TT: the installation's earth-electrode resistance R_A, Ω
+    equipment_class: str = "I"           # I | II
+    breaking: str | None = None          # low | enhanced | high (IEC 60127 categories)
+    breaking_current: float | None = None  # stated breaking capacity, A
+    fuse_resistance: float | None = None   # stated cold resistance of the fuse, Ω
     location: Location = field(default=Location("<plan>"), compare=False)
+
+    @property
+    def cord_section(self) -> float:
+        """The cord's conductor area, m²: stated, else the line conductor's, else the default cord's."""
+        return self.cord_area or self.line_area or DEFAULT_CORD[1]
 
 
 @dataclass(frozen=True)

@@ -23,6 +23,7 @@ CSS = """
 body{font-family:system-ui,Helvetica,Arial,sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}
 h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.15em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
 .caution{background:#fff6e0;border-left:4px solid #e0a000;padding:.5em .8em;font-size:.9em}
+.notice{background:#ffe8e0;border-left:4px solid #c03000;padding:.4em .8em}
 table{border-collapse:collapse;margin:.5em 0;font-size:.9em}td,th{border:1px solid #ccc;padding:.25em .6em;text-align:left}
 th{background:#f2f2f2}td.num{text-align:right;font-variant-numeric:tabular-nums}
 .sev{font-weight:bold;padding:0 .4em;border-radius:3px;color:#fff}.danger{background:#b00020}.fault{background:#d9480f}
@@ -122,6 +123,8 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
     verdict = "clean" if worst is None else f"worst finding: {worst}"
     parts.append(f'<p><b>Verdict:</b> <span class="{"ok" if worst is None else "bad"}">{e(verdict)}</span>. '
                  + ", ".join(f"{counts[s]} {s}" for s in SEVERITIES) + f"; {result.loop_total} independent ground loops.</p>")
+    for notice in result.notices:
+        parts.append(f'<p class="notice"><b>Notice:</b> {e(notice)}</p>')
     if result.safety is not None and result.safety.parts:
         w = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = w.path_resistance <= result.safety.limit
@@ -162,18 +165,24 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
                              f"<td class=num>{_f(r.get('margin_db'), '{:+.1f}')}</td></tr>")
             parts.append("</table>")
     if result.safety is not None and result.safety.parts:
-        parts.append('<h2>Protective earth</h2><table id="protective-earth"><tr><th>part</th><th>path resistance</th>'
-                     "<th>fault current</th><th>touch voltage</th><th>clears in</th><th>I²t</th></tr>")
+        sup = result.safety.supply
+        parts.append(f"<h2>Protective earth</h2><p>{e(sup.system)}, external loop {sup.ze:.3g} Ω "
+                     f"({'stated' if sup.ze_stated else 'default'}); maximum disconnection time "
+                     f"{'none below 50 V' if sup.max_time is None else f'{sup.max_time:g} s'} (IEC 60364-4-41 Table 41.1).</p>"
+                     '<table id="protective-earth"><tr><th>part</th><th>path resistance</th>'
+                     "<th>fault current</th><th>touch voltage to earth</th><th>cleared by</th><th>in</th><th>I²t</th></tr>")
         for p in result.safety.parts:
+            device = "nothing assured" if p.device is None else ("stated in plan" if p.device == "stated" else p.device)
             parts.append(f"<tr><td>{e(p.part)}</td><td class=num>{p.path_resistance * 1e3:.3g} mΩ</td>"
                          f"<td class=num>{_f(p.fault_current, '{:.4g} A')}</td><td class=num>{_f(p.touch_voltage, '{:.3g} V')}</td>"
-                         f"<td class=num>{_f(p.clear_time, '{:.2g} s')}</td><td class=num>{_f(p.i2t, '{:.3g} A²s')}</td></tr>")
+                         f"<td>{e(device)}</td><td class=num>{_f(p.clear_time, '{:.2g} s')}</td>"
+                         f"<td class=num>{_f(p.i2t, '{:.3g} A²s')}</td></tr>")
         parts.append("</table>")
         if result.safety.conductors:
             parts.append("<table><tr><th>protective conductor</th><th>area</th><th>k</th><th>needs</th><th>survives</th></tr>")
             for c in result.safety.conductors:
-                parts.append(f"<tr><td>{e(c['conductor'])}</td><td class=num>{c['area_mm2']} mm²</td><td class=num>{c['k']:g}</td>"
-                             f"<td class=num>{c['required_mm2']} mm²</td><td>{'yes' if c['survives'] else 'NO'}</td></tr>")
+                parts.append(f"<tr><td>{e(c.conductor)}</td><td class=num>{c.area * 1e6:.4g} mm²</td><td class=num>{c.k:g}</td>"
+                             f"<td class=num>{c.required * 1e6:.4g} mm²</td><td>{'yes' if c.survives else 'NO'}</td></tr>")
             parts.append("</table>")
     if result.loops:
         parts.append('<h2>Ground loops</h2><table id="loops"><tr><th>#</th><th>closed by</th><th>area</th><th>open at</th><th>members</th></tr>')

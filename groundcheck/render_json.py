@@ -47,12 +47,14 @@ def result_document(result: Result) -> dict:
                  "mains": None if plan.mains is None else {"voltage_v": plan.mains.voltage, "frequency_hz": plan.mains.frequency},
                  "ambient_c": plan.ambient, "points": len(plan.points), "metal_parts": len(plan.metals),
                  "conductors": len(plan.conductors), "stages": len(plan.stages), "channels": list(plan.channels)},
-        "summary": {**result.counts(), "worst": result.worst(), "loops_total": result.loop_total},
+        "summary": {**result.counts(), "worst": result.worst(), "loops_total": result.loop_total,
+                    "notices": list(result.notices)},
         "findings": [f.as_dict() for f in result.findings],
         "loops": [lp.as_dict() for lp in result.loops],
         "protective_earth": None if result.safety is None else result.safety.as_dict(),
         "hum": None if result.hum is None else result.hum.as_dict(),
         "coupling": result.coupling,
+        "device_earths": None if result.device_earths is None else [d.as_dict() for d in result.device_earths],
         "network": None,
     }
     if result.circuit is not None:

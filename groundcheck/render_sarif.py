@@ -48,6 +48,7 @@ def sarif_document(results: list[Result]) -> dict:
                   "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
                                                 "semanticVersion": __version__, "rules": rules}},
                             "columnKind": "unicodeCodePoints",
+                            "properties": {"notices": [n for res in results for n in res.notices]},
                             "results": out}]})
 
 

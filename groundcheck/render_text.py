@@ -45,6 +45,8 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
     line.append("   " + "  ".join(f"{counts[s]} {s}" for s in SEVERITIES))
     line.append(f"   loops: {result.loop_total}")
     console.print(line)
+    for notice in result.notices:
+        console.print(Text(f"Notice: {notice}", style="bold yellow"))
     if result.safety is not None and result.safety.parts:
         worst_pe = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = worst_pe.path_resistance <= result.safety.limit
@@ -114,12 +116,25 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
             console.print()
 
     if result.safety is not None and result.safety.parts:
-        t = Table(title="Protective earth (line-to-part fault)", title_justify="left")
-        for col in ("part", "path mΩ", "fault A", "touch V", "clears in", "I²t A²s"):
-            t.add_column(col, justify="right" if col != "part" else "left")
+        sup = result.safety.supply
+        limit = "none set below 50 V" if sup.max_time is None else f"{sup.max_time:g} s"
+        t = Table(title=f"Protective earth (line-to-part fault; {sup.system}, external loop {sup.ze:.3g} Ω"
+                        f"{' stated' if sup.ze_stated else ' by default'}; disconnection limit {limit})", title_justify="left")
+        for col in ("part", "path mΩ", "fault A", "touch V to earth", "cleared by", "in", "I²t A²s"):
+            t.add_column(col, justify="right" if col not in ("part", "cleared by") else "left")
         for p in result.safety.parts:
+            device = "nothing assured" if p.device is None else ("stated in plan" if p.device == "stated" else p.device)
+            i2t = _fmt(p.i2t, "", 3) + (" (stated in plan)" if "i2t" in p.stated else "")
             t.add_row(escape(p.part), f"{p.path_resistance * 1e3:.3g}", _fmt(p.fault_current, "", 4),
-                      _fmt(p.touch_voltage, "", 3), _fmt(p.clear_time, " s", 2), _fmt(p.i2t, "", 3))
+                      _fmt(p.touch_voltage, "", 3), device, _fmt(p.clear_time, " s", 2), i2t)
+        console.print(t)
+        console.print()
+    if result.device_earths:
+        t = Table(title="Device earth paths to the main earthing terminal", title_justify="left")
+        for col in ("device", "earth pin", "resistance"):
+            t.add_column(col)
+        for d in result.device_earths:
+            t.add_row(escape(d.device), escape(d.inlet), "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
         console.print(t)
         console.print()
 

@@ -11,9 +11,11 @@ from __future__ import annotations
 import difflib
 
 from .errors import Location, PlanError
+from .kinds import KINDS, default_role
 from .model import (Conductor, Current, Device, FieldSource, Heater, Listening, Mains, Metal, Point,
                     Rectifier, Stage, make)
 from .phrases import Reader, Statement, check_quantity
+from .protection import SYSTEMS
 from .units import awg_diameter
 
 __all__ = ["BUILDERS", "KEYWORDS", "MATERIALS", "build"]
@@ -21,11 +23,21 @@ __all__ = ["BUILDERS", "KEYWORDS", "MATERIALS", "build"]
 MATERIALS = ("copper", "aluminium", "aluminum", "brass", "steel", "stainless", "tinned-copper", "silver")
 ROLE_WORDS = ("protective", "return", "signal", "shield", "bond", "heater")
 POINT_KINDS = ("junction", "stud", "star", "busbar", "tag", "sleeve", "jack", "pot", "pad", "cap",
-               "centre-tap", "center-tap", "terminal", "inlet", "lug", "outlet")
+               "centre-tap", "center-tap", "terminal", "inlet", "lug", "outlet", "earthing-terminal")
 FIELD_KINDS = ("transformer", "toroid", "choke", "mains-wiring", "motor", "other")
 FUSE_KINDS = {"slow": "slow", "time-lag": "slow", "T": "slow", "fast": "fast", "quick": "fast", "F": "fast"}
-CONDUCTOR_DEFAULT_ROLE = {"bolt": "bond", "strap": "bond", "shield": "shield", "interconnect": "shield",
-                          "lift": "signal", "switch": "signal", "busbar": "return"}
+#: mains attributes that take one quantity: word -> (field, what, quantity kind)
+MAINS_ATTRIBUTES = {
+    "i2t": ("fuse_i2t", "fuse I²t", "energy integral"),
+    "clears": ("clear_time", "clearing time", "time"),
+    "line-conductor": ("line_area", "line-conductor cross-section", "area"),
+    "loop-impedance": ("loop_impedance", "external earth-fault loop impedance", "resistance"),
+    "rcd": ("rcd", "RCD rated residual current", "current"),
+    "cpc": ("cpc_area", "circuit protective conductor area", "area"),
+    "electrode": ("electrode", "earth-electrode resistance", "resistance"),
+    "fuse-resistance": ("fuse_resistance", "fuse cold resistance", "resistance"),
+}
+MAINS_WORDS = ("fuse", "breaker", "cord", "circuit", "system", "class", "breaking", "inlet", *MAINS_ATTRIBUTES)
 
 Refs = dict[str, Location]
 
@@ -95,23 +107,32 @@ def mains(stmt: Statement):
             else:
                 kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
                 kw["fuse_kind"] = f"breaker-{kind}"
-        elif word == "i2t":
-            kw["fuse_i2t"] = r.quantity("energy integral", "fuse I²t")
-        elif word == "clears":
-            kw["clear_time"] = r.quantity("time", "clearing time")
-        elif word == "line-conductor":
-            kw["line_area"] = r.quantity("area", "line-conductor cross-section")
-        elif word == "loop-impedance":
-            kw["loop_impedance"] = r.quantity("resistance", "supply loop impedance", allow_zero=True)
+        elif word in MAINS_ATTRIBUTES:
+            field, what, kind = MAINS_ATTRIBUTES[word]
+            kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
         elif word == "cord":
             kw["cord_length"] = r.quantity("length", "cord length", allow_zero=True)
             if not r.done:
                 kw["cord_area"] = r.quantity("area", "cord conductor area")
+        elif word == "circuit":
+            kw["circuit_length"] = r.quantity("length", "final-circuit length", allow_zero=True)
+            if not r.done:
+                kw["circuit_area"] = r.quantity("area", "final-circuit line-conductor area")
+        elif word == "system":
+            kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+        elif word == "class":
+            kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
+        elif word == "breaking":
+            it = r.peek()
+            if it is not None and it.kind == "qty":
+                kw["breaking_current"] = r.quantity("current", "breaking capacity")
+            else:
+                kw["breaking"] = r.word("a breaking capacity (low, enhanced, high, or a current)", ("low", "enhanced", "high"))
         elif word == "inlet":
             r.expect("at")
             kw["inlet"] = r.coord()
         else:
-            raise _unknown(stmt, ph[0], ("fuse", "breaker", "i2t", "clears", "line-conductor", "loop-impedance", "cord", "inlet"))
+            raise _unknown(stmt, ph[0], MAINS_WORDS)
         r.finish()
     for need, example in (("voltage", "230 V"), ("frequency", "50 Hz")):
         if need not in kw:
@@ -227,7 +248,7 @@ def conductor(stmt: Statement):
     kind = stmt.keyword
     refs: Refs = {}
     a, b = _first_phrase_ends(stmt, refs)
-    kw: dict = {"role": CONDUCTOR_DEFAULT_ROLE.get(kind, "signal")}
+    kw: dict = {"role": default_role(kind)}
     if kind == "bolt":
         kw["contact"] = 0.5e-3
     if kind == "trace":
@@ -289,16 +310,26 @@ def conductor(stmt: Statement):
         else:
             raise _unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
         r.finish()
-    if kind in ("wire", "busbar", "shield", "interconnect", "trace", "strap") and "length" not in kw and "resistance" not in kw:
-        raise PlanError(f"{kind} {stmt.label or ''} needs a length (or a stated resistance)".replace("  ", " "),
-                        stmt.loc, "e.g. ', 120 mm'")
-    if kind in ("wire", "shield", "interconnect") and "area" not in kw and "resistance" not in kw:
-        raise PlanError(f"{kind} needs a cross-section (mm2 or AWG) or a stated resistance", stmt.loc, "e.g. ', 0.5 mm2' or ', AWG 20'")
-    if kind in ("trace", "busbar", "strap") and "width" not in kw and "area" not in kw and "resistance" not in kw:
-        raise PlanError(f"{kind} needs a width (or an area, or a stated resistance)", stmt.loc, "e.g. ', width 2 mm'")
-    if kind == "lift" and "resistance" not in kw:
-        raise PlanError("lift needs its resistor", stmt.loc, "e.g. ', 10 ohm, 47 nF'")
+    _check_geometry(stmt, kind, kw)
     return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+#: what to say when a kind's required geometry is missing: field -> (what it needs, an example)
+_GEOMETRY_HINTS = {
+    "length": ("a length (or a stated resistance)", "e.g. ', 120 mm'"),
+    "area": ("a cross-section (mm2 or AWG) or a stated resistance", "e.g. ', 0.5 mm2' or ', AWG 20'"),
+    "width": ("a width (or an area, or a stated resistance)", "e.g. ', width 2 mm'"),
+    "resistance": ("its resistor", "e.g. ', 10 ohm, 47 nF'"),
+}
+
+
+def _check_geometry(stmt: Statement, kind: str, kw: dict) -> None:
+    """The geometry the kinds table says a kind needs (a stated resistance satisfies any of it)."""
+    for options in KINDS[kind].needs:
+        if not any(f in kw for f in options) and "resistance" not in kw:
+            what, example = _GEOMETRY_HINTS[options[0]]
+            label = f" {stmt.label}" if stmt.label and options[0] == "length" else ""
+            raise PlanError(f"{kind}{label} needs {what}", stmt.loc, example)
 
 
 def rectifier(stmt: Statement):

@@ -17,7 +17,7 @@ needs_ngspice = pytest.mark.skipif(shutil.which("ngspice") is None,
                                    reason="ngspice is not installed (Debian package 'ngspice'; .ci/run installs it)")
 
 HEADER = """plan "test"
-mains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2
+mains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2
 """
 
 

@@ -29,7 +29,7 @@ def test_fail_on_threshold(cli):
 
 def test_clean_plan_exits_zero(cli, tmp_path):
     p = tmp_path / "clean.gplan"
-    p.write_text('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2\n'
+    p.write_text('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
                  'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
                  'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n')
     assert cli("check", str(p))[0] == 0

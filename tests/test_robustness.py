@@ -16,10 +16,15 @@ from groundcheck.analysis import analyze
 from groundcheck.circuit import build_circuit
 from groundcheck.loader import LIMITS
 from groundcheck.render_json import render_json
-from groundcheck.safety import protective_figures
+from groundcheck.audit import AuditContext
+from groundcheck.safety import protective_figures as _figures
 
 from helpers import EXAMPLES, ROOT, plan
 from planfuzz import mutated_plans, valid_plans
+
+
+def protective_figures(p):
+    return _figures(p, AuditContext(p).route)
 
 
 def _outcome(text):
