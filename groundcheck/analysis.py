@@ -48,6 +48,7 @@ class Result:
     options: Options = field(default_factory=Options)
     device_earths: tuple[DeviceEarth, ...] | None = None
     notices: list[str] = field(default_factory=list)      # what was relaxed or skipped: shown in every output
+    protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
 
     def counts(self) -> dict[str, int]:
         out = {"danger": 0, "fault": 0, "warning": 0, "note": 0}
@@ -323,7 +324,8 @@ def analyze(plan: Plan, options: Options = Options()) -> Result:
 
 def _analyze(plan: Plan, options: Options) -> Result:
     findings, ctx = audit(plan)
-    result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options, notices=_notices(plan, options))
+    result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options, notices=_notices(plan, options),
+                    protective=ctx.route.conductors)
     if not plan.points and not plan.metals:
         return _finish(result)
     circuit = build_circuit(plan)

@@ -347,17 +347,33 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
             keep = _nearest_pe(ctx, bonds)
             others = [b for b in bonds if b != keep]
             first_other = places[others[0]][0]
+            actions = _unbond_actions(ctx, others, places)
+            words = "; ".join(("insulate " + k + " from the metal (insulated socket or shoulder washers)") if verb == "insulate"
+                              else f"remove {k}" for verb, k in actions)
             out.append(Finding("GC105", "warning", f"signal ground {name} is bonded to the chassis at {len(places)} places: {desc}",
                                ctx.loc(first_other), tuple(k for p in bonds for k in places[p]),
                                {"bonds": len(places)},
-                               f"keep the bond at {keep}; isolate the signal ground from {', '.join(others)} "
-                               "(insulated jack or insulating washers)"))
+                               f"keep the bond at {keep}, nearest the protective earth; {words}", actions))
         elif not places:
             first = min(ctx.loc(n) for n in comp)
             out.append(Finding("GC106", "warning", f"signal ground {name} is floating: it reaches neither the chassis nor the protective earth",
                                first, tuple(comp[:12]), {"points": len(comp)},
                                "bond the signal star to the chassis at one place near the protective-earth stud"))
     return out
+
+
+def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple:
+    """How to undo each extra bond: a point of the signal circuit fastened to the metal (a socket) is
+    insulated from it, keeping its own ground wire; any other bond conductor is removed."""
+    actions = []
+    for p in others:
+        fastenings = [c.name for c in ctx.plan.conductors
+                      if p in (c.a, c.b) and is_fastening(c, ctx.metals) and p in ctx.signal_points]
+        if fastenings:
+            actions.extend(("insulate", k) for k in sorted(fastenings))
+        else:
+            actions.extend(("remove", k) for k in places[p])
+    return tuple(actions)
 
 
 def _component_name(ctx: AuditContext, comp: list[str]) -> str:

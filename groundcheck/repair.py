@@ -61,6 +61,15 @@ class Evaluation:
     cleared: list = field(default_factory=list)
     introduced: list = field(default_factory=list)
     rejected: str = ""
+    hum_before_dbv: dict = field(default_factory=dict)  # channel -> dBV (floored at HUM_FLOOR_DBV)
+    hum_after_dbv: dict = field(default_factory=dict)
+
+    def rank_key(self, before: Result | None = None):
+        """Sort key, best first: dangers cleared, faults cleared, hum gain, findings introduced, size of the change."""
+        sev = lambda items, s: sum(1 for x in items if x.split(" ", 1)[0] in _CODES_BY_SEVERITY[s])  # noqa: E731
+        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0, d) for d in self.hum_change_db.values())
+        return (bool(self.rejected), -sev(self.cleared, "danger"), -sev(self.cleared, "fault"), -round(gain, 1),
+                len(self.introduced), len(self.candidate.edits), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
         return {"title": self.candidate.title, "answers": self.candidate.reason, "score": round(self.score, 3),
@@ -120,6 +129,10 @@ class _Ctx:
         self.stars = [p.name for p in plan.points if p.kind == "star"]
         self.metals = {m.name for m in plan.metals}
 
+    def protective(self, c) -> bool:
+        """Protective by topology or by role (groundcheck.earthing): never removed, re-routed or lifted."""
+        return c.name in self.result.protective or c.role == "protective"
+
     def in_main(self, c) -> bool:
         return c.location.file == self.plan.file
 
@@ -146,7 +159,7 @@ def _delete(ctx: _Ctx, name: str, title: str, reason: str) -> Candidate | None:
     c = ctx.cond.get(name)
     if c is None or c.kind == "interconnect" or not ctx.in_main(c) or _statement(ctx.lines, c.location.line) is None:
         return None
-    return Candidate(title, reason, (Edit(c.location.line, None),), c.role == "protective")
+    return Candidate(title, reason, (Edit(c.location.line, None),), ctx.protective(c))
 
 
 def _reroute(ctx: _Ctx, name: str, end: str, to: str, title: str, reason: str) -> Candidate | None:
@@ -171,7 +184,7 @@ def _reroute(ctx: _Ctx, name: str, end: str, to: str, title: str, reason: str) -
     if a == b:
         return None
     new = f"{m['indent']}{m['kw']} {label}: {a} to {b}{m['rest']}"
-    return Candidate(title + _block_note(c.name, label), reason, (Edit(c.location.line, new),), c.role == "protective")
+    return Candidate(title + _block_note(c.name, label), reason, (Edit(c.location.line, new),), ctx.protective(c))
 
 
 def _block_note(model_name: str, label: str) -> str:
@@ -186,7 +199,7 @@ def _replace_in_line(ctx: _Ctx, name: str, old: str, new: str, title: str, reaso
     line = ctx.lines[c.location.line - 1]
     if old not in line or line.rstrip().endswith(","):
         return None
-    touches = (c.role == "protective") if protective is None else protective
+    touches = ctx.protective(c) if protective is None else protective
     return Candidate(title, reason, (Edit(c.location.line, line.replace(old, new, 1)),), touches)
 
 
@@ -206,13 +219,14 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
         if lp.closed_by == "shield-both-ends" and c.kind == "shield":
             continue          # answered by lifting one end, below
         what = "insulate" if c.kind == "bolt" else "remove"
-        add(_delete(ctx, lp.open_at, f"{what} {lp.open_at} to open the loop closed by {lp.closed_by}", "GC101"))
+        how = " from the metal (insulated socket or shoulder washers)" if what == "insulate" else ""
+        add(_delete(ctx, lp.open_at, f"{what} {lp.open_at}{how} to open the loop closed by {lp.closed_by}", "GC101"))
         if lp.closed_by in ("second-chassis-bond", "mains-cords") and c.kind == "wire":
             m = _statement(ctx.lines, c.location.line)
             if m is not None and ctx.in_main(c):
                 new = f"{m['indent']}lift {m['label']}: {m['a']} to {m['b']}, 10 ohm, 47 nF"
                 add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101",
-                              (Edit(c.location.line, new),), c.role == "protective"))
+                              (Edit(c.location.line, new),), ctx.protective(c)))
     for f in result.findings:
         if f.code == "GC108":
             c = ctx.cond[f.elements[0]]
@@ -222,12 +236,12 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
                 add(_replace_in_line(ctx, c.name, "terminated both", f"terminated {_local(c.name, m['label'], keep)}",
                                      f"terminate shield {c.name} at {keep} only", "GC108"))
         elif f.code == "GC105":
-            for e in f.elements:
+            for verb, e in f.actions:
                 c = ctx.cond.get(e)
                 if c is None or c.kind in ("shield", "interconnect"):
                     continue          # a shield is lifted at one end (GC108), not removed
-                if c.kind == "bolt":
-                    add(_delete(ctx, e, f"insulate {e} (an insulated jack or insulating washers)", "GC105"))
+                if verb == "insulate":
+                    add(_delete(ctx, e, f"insulate {e} from the metal (insulated socket or shoulder washers)", "GC105"))
                 else:
                     add(_delete(ctx, e, f"remove the second chassis bond {e}", "GC105"))
         elif f.code == "GC103":
@@ -238,7 +252,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
                 continue
             dist = nx.single_source_shortest_path_length(G, stars[0])
             for c in plan.conductors:
-                if c.a in f.elements and c.b in f.elements and c.role != "protective" and stars[0] not in (c.a, c.b):
+                if c.a in f.elements and c.b in f.elements and not ctx.protective(c) and stars[0] not in (c.a, c.b):
                     near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
                     far = c.b if near == c.a else c.a
                     add(_reroute(ctx, c.name, near, stars[0], f"run {far} to {stars[0]} by its own wire ({c.name})", "GC103"))
@@ -308,7 +322,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
                 continue
             for end, other in ((src.a, src.b), (src.b, src.a)):
                 for d in plan.conductors:
-                    if other in (d.a, d.b) and d.name != shared and d.role != "protective":
+                    if other in (d.a, d.b) and d.name != shared and not ctx.protective(d):
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
                             add(_reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
@@ -316,12 +330,23 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
             for p in (stage.b, stage.a):
                 star = ctx.nearest_star(p)
                 for d in plan.conductors:
-                    if p in (d.a, d.b) and d.role != "protective":
+                    if p in (d.a, d.b) and not ctx.protective(d):
                         far = d.b if d.a == p else d.a
                         if star and far != star and far in (c.a, c.b):
                             add(_reroute(ctx, d.name, far, star, f"take {p} to {star} by its own wire ({d.name})", "GC102"))
     return out
 
+
+_CODES_BY_SEVERITY: dict[str, set[str]] = {}
+
+
+def _codes_by_severity():
+    from .findings import RULES
+    for code, rule in RULES.items():
+        _CODES_BY_SEVERITY.setdefault(rule.severity, set()).add(code)
+
+
+_codes_by_severity()
 
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
 HUM_FLOOR_DBV = -140.0
@@ -366,6 +391,10 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return Evaluation(cand, None, rejected=f"the edited plan does not load ({e.errors[0].one_line()})")
     after = analyze(p, options)
     ev = Evaluation(cand, after)
+    lost = sorted(before.protective - after.protective)
+    if lost:
+        ev.rejected = f"it would take {', '.join(lost[:3])} off the protective route"
+        return ev
     pe0, pe1 = _pe(before), _pe(after)
     if any(part not in pe1 or pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 for part, r in pe0.items()):
         ev.rejected = "it would weaken the protective-earth path"
@@ -381,7 +410,8 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         ev.rejected = "it would leave part of the signal ground unconnected"
         return ev
     h0, h1 = _hum_db(before), _hum_db(after)
-    ev.hum_change_db = {ch: h1.get(ch, -240.0) - h0[ch] for ch in h0}
+    ev.hum_before_dbv, ev.hum_after_dbv = h0, {ch: h1.get(ch, HUM_FLOOR_DBV) for ch in h0}
+    ev.hum_change_db = {ch: ev.hum_after_dbv[ch] - h0[ch] for ch in h0}
     weight = {0: 30.0, 1: 10.0, 2: 3.0, 3: 0.5}
     score = sum(max(0.0, -d) for d in ev.hum_change_db.values()) - sum(max(0.0, d) for d in ev.hum_change_db.values())
     score += sum(weight[severity_rank(k0[k].severity)] for k in k0.keys() - k1.keys())
@@ -395,13 +425,8 @@ def suggest(plan: Plan, text: str, options: Options = Options(), root: Path | No
     """Every candidate evaluated; the useful ones first (best score), the rejected ones last."""
     before = analyze(plan, options)
     evs = [evaluate(text, plan, before, c, options, root, resolved) for c in candidates(plan, before, text)]
-    evs.sort(key=lambda e: (bool(e.rejected), -e.score, e.candidate.title))
+    evs.sort(key=lambda e: e.rank_key())
     return before, evs
-
-
-def _goal(r: Result) -> bool:
-    quiet = r.hum is None or all(h.audible is not True for h in r.hum.channels.values())
-    return quiet and not any(f.severity in ("danger", "fault") for f in r.findings)
 
 
 def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | None = None,
@@ -411,7 +436,7 @@ def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | Non
     current = analyze(plan, options)
     chosen: list[Evaluation] = []
     for _ in range(MAX_STEPS):
-        if _goal(current):
+        if not current.findings:
             break
         evs = [evaluate(current_text, current_plan, current, c, options, root, resolved)
                for c in candidates(current_plan, current, current_text)]
@@ -423,6 +448,19 @@ def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | Non
         current_text = apply_edits(current_text, best.candidate.edits)
         current_plan, current = best.result.plan, best.result
     return chosen, current, current_text
+
+
+def _level(dbv: float) -> str:
+    return f"below {HUM_FLOOR_DBV:.0f} dBV" if dbv <= HUM_FLOOR_DBV else f"{dbv:.1f} dBV"
+
+
+def _hum_change_words(ch: str, before: float, after: float) -> str:
+    """'left: −47.1 → −96.3 dBV (49.2 dB quieter)': real levels, and the change in words."""
+    d = after - before
+    change = "unchanged" if abs(d) < 0.05 else (f"{-d:.1f} dB quieter" if d < 0 else f"{d:.1f} dB louder")
+    if after <= HUM_FLOOR_DBV:
+        change = "hum removed from this channel" if before > HUM_FLOOR_DBV else "unchanged"
+    return f"hum {ch}: {_level(before)} → {_level(after)} ({change})"
 
 
 def _hum_words(ch: str, h) -> str:
@@ -452,9 +490,10 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
     if not useful:
         out.append("No change found that improves the plan.")
     for i, e in enumerate(useful, 1):
-        hum = ", ".join(f"{ch} {d:+.1f} dB" for ch, d in e.hum_change_db.items())
+        hum = "; ".join(_hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch]) for ch in e.hum_change_db)
         out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
-        out.append(f"   predicted: hum {hum or 'n/a'}; clears {len(e.cleared)} finding(s)"
+        cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")
+        out.append(f"   predicted: {hum or 'no hum figures'}; {cleared}"
                    + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
         out.append("   " + unified_diff(text, e.candidate.edits, name).replace("\n", "\n   ").rstrip())
         out.append("")
@@ -463,8 +502,8 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
         out.extend(f"  - {e.candidate.title}: {e.rejected}" for e in rejected)
         out.append("")
     out.append(f"Combined (greedy search): {len(chosen)} change(s): " + "; ".join(e.candidate.title for e in chosen))
-    left = [f.code for f in final.findings if f.severity in ("danger", "fault")]
-    out.append("  leaves no fault or danger" if not left else f"  leaves: {', '.join(left)}")
+    left = [f"{f.code} {f.severity}" for f in final.findings]
+    out.append("  leaves no finding" if not left else f"  leaves: {', '.join(left)}")
     if final.hum is not None:
         out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
     return "\n".join(out) + "\n"

@@ -144,3 +144,74 @@ def test_installation_suggestions_work_on_the_signal_side():
         assert "cord" not in e.candidate.title and "run_" not in e.candidate.title
     chosen, final, _ = greedy(load(studio), studio.read_text(), Options(), studio.resolve().parent, studio.resolve())
     assert all(h.audible is not True for h in final.hum.channels.values())
+
+
+ROLELESS_PE = """plan "Headphone amplifier, role-less earth lead"
+mains 230 V 50 Hz, fuse 500 mA slow, breaking high, line-conductor 0.75 mm2
+metal case: aluminium 2 mm, 200 x 150 mm, touchable
+point pe_stud: stud, at 20,130 on case
+wire pe_lead: mains.pe to pe_stud, 60 mm, 0.75 mm2
+bolt pe_nut: pe_stud to case
+point star: star, at 100,60 on case
+point gnd_lug: lug, at 40,130 on case
+bolt lug_nut: gnd_lug to case
+wire star_bond: star to gnd_lug, 70 mm, 0.5 mm2
+point in_sleeve: sleeve, at 180,60 on case
+bolt jack_nut: in_sleeve to case
+wire in_gnd: in_sleeve to star, 80 mm, 0.5 mm2
+point k1: pad
+wire k_ret: k1 to star, 40 mm, 0.5 mm2
+stage amp: in_sleeve to k1, gain 20 dB, channel main
+"""
+
+
+def _evs(text, tmp_path, name="plan.gplan"):
+    f = tmp_path / name
+    f.write_text(text)
+    return suggest(load(f), text, Options(), tmp_path, f.resolve())
+
+
+def test_role_less_protective_wire_is_never_touched(tmp_path):
+    before, evs = _evs(ROLELESS_PE, tmp_path)
+    assert "pe_lead" in before.protective
+    assert any(f.code == "GC209" for f in before.findings)
+    pe_line = ROLELESS_PE.split("\n").index("wire pe_lead: mains.pe to pe_stud, 60 mm, 0.75 mm2") + 1
+    for e in evs:
+        if any(ed.line == pe_line for ed in e.candidate.edits):
+            assert e.rejected, e.candidate.title
+    # the second chassis bond (the uninsulated jack) is still answered
+    assert any(not e.rejected and "jack_nut" in e.candidate.title for e in evs)
+
+
+def test_role_less_building_runs_stay_on_the_protective_route(tmp_path):
+    studio = EXAMPLES[0].parent / "studio" / "project-studio.gplan"
+    text = studio.read_text().replace(", protective\n", "\n")
+    (tmp_path / "devices").mkdir()
+    for f in (studio.parent / "devices").iterdir():
+        (tmp_path / "devices" / f.name).write_text(f.read_text())
+    before, evs = _evs(text, tmp_path, "studio.gplan")
+    assert {"run_a", "run_b", "strip_cord"} <= before.protective
+    for e in evs:
+        if not e.rejected:
+            assert e.result.plan is not None
+            assert {"run_a", "run_b", "strip_cord"} <= e.result.protective, e.candidate.title
+            assert not any(f.code == "GC215" for f in e.result.findings), e.candidate.title
+
+
+def test_suggestions_read_as_levels(tmp_path):
+    from groundcheck.repair import suggestions_text
+    before, evs = _evs(ROLELESS_PE, tmp_path)
+    text = suggestions_text(before.plan, ROLELESS_PE, "plan.gplan", evs, [], before, "caution")
+    assert "finding(s)" not in text
+
+
+def test_uninsulated_socket_is_insulated_not_unwired(tmp_path):
+    # the trade's fix for a socket bonded to the chassis: insulate the socket, keep its ground wire and the
+    # one bond next to the protective-earth stud (common practice)
+    before, evs = _evs(ROLELESS_PE, tmp_path)
+    (f,) = [f for f in before.findings if f.code == "GC105"]
+    assert f.actions == (("insulate", "jack_nut"),)
+    assert "keep the bond at gnd_lug" in f.fix and "insulate jack_nut" in f.fix
+    useful = [e for e in evs if not e.rejected]
+    assert useful[0].candidate.title.startswith("insulate jack_nut")
+    assert not any("in_gnd" in e.candidate.title or "star_bond" in e.candidate.title for e in useful)
