@@ -15,7 +15,7 @@ from .analysis import Result
 __all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]
 
 #: bumped when a key is renamed or removed (adding keys does not bump it)
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 
 
 def clean(x, digits: int = 9):
