@@ -130,3 +130,22 @@ def test_jobs_on_one_plan_gives_the_same_document(cli):
 def test_jobs_must_be_a_whole_number_from_one(cli, value):
     code, out, err = cli("check", DUAL, "--jobs", value)
     assert code == 2 and "--jobs" in err and "Traceback" not in err
+
+
+def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
+    # a 150 mΩ fastening: over the 0.1 Ω bonding limit (IEC 61010-1 6.5.2.4), passed only under --pe-limit 10
+    p = tmp_path / "loose.gplan"
+    p.write_text('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
+                 'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
+                 'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck, contact 150 mohm\n')
+    assert cli("check", str(p))[0] == 1
+    code, out, _ = cli("check", str(p), "--pe-limit", "10 ohm")
+    assert code == 0 and "Notice: protective-path limit relaxed" in out and "GC206" in out
+    doc = json.loads(cli("check", str(p), "--pe-limit", "10 ohm", "--format", "json")[1])
+    assert doc["summary"]["notices"] and doc["protective_earth"]["limit_relaxed"] is True
+    assert [f["severity"] for f in doc["findings"] if f["code"] == "GC206"] == ["note"]
+    sarif = json.loads(cli("check", str(p), "--pe-limit", "10 ohm", "--format", "sarif")[1])
+    assert any("relaxed" in n for n in sarif["runs"][0]["properties"]["notices"])
+    html = tmp_path / "r.html"
+    cli("report", str(p), "--pe-limit", "10 ohm", "-o", str(html))
+    assert 'class="notice"' in html.read_text() and "relaxed" in html.read_text()
