@@ -235,7 +235,14 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
         figures = {"conductors": len(info.loop.edges)}
         if info.area is not None:
             figures["area_mm2"] = round(info.area * 1e6, 1)
-        fix = (f"open the loop at {info.open_at}" if info.open_at else "open the loop") + \
+        opener = ctx.conductors.get(info.open_at)
+        if opener is not None and is_fastening(opener, ctx.metals):
+            where, actions = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)", (("insulate", info.open_at),)
+        elif opener is not None:
+            where, actions = f"open the loop at {info.open_at}", (("open", info.open_at),)
+        else:
+            where, actions = "open the loop outside the protective earth", ()
+        fix = where + \
             {"shield-both-ends": " (terminate the shield at one end only)",
              "channel-returns": " (join the channels at one point only)",
              "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
@@ -243,7 +250,7 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
              "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal side; never lift the protective earth)"}.get(info.closed_by, "")
         out.append(Finding("GC101", "warning",
                            f"ground loop closed by {LOOP_CLASSES[info.closed_by]}: {_loop_text(info.loop)}",
-                           ctx.loc(info.open_at or info.loop.edges[-1]), info.loop.edges, figures, fix))
+                           ctx.loc(info.open_at or info.loop.edges[-1]), info.loop.edges, figures, fix, actions))
     extra = ctx.loop_total - len(ctx.loops) - sum(1 for c in ctx.plan.conductors if c.connects and c.a == c.b)
     if extra > 0:
         out.append(Finding("GC101", "note", f"{extra} more independent loops not listed (limit {LOOP_LIST_LIMIT})",
@@ -532,7 +539,8 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
         keep, lift = (c.a, c.b) if da <= db else (c.b, c.a)
         out.append(Finding("GC108", "warning", f"shield {c.name} is terminated at both ends ({c.a} and {c.b})",
                            c.location, (c.name,), {},
-                           f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected"))
+                           f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
+                           (("terminate-at", c.name, keep),)))
     return out
 
 

@@ -188,7 +188,7 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
         parts.append('<h2>Ground loops</h2><table id="loops"><tr><th>#</th><th>closed by</th><th>area</th><th>open at</th><th>members</th></tr>')
         for i, lp in enumerate(result.loops[:200], 1):
             parts.append(f"<tr><td>{i}</td><td>{e(lp.closed_by)}</td><td class=num>{_f(None if lp.area is None else lp.area * 1e6, '{:.0f} mm²')}</td>"
-                         f"<td>{e(lp.open_at)}</td><td>{e(' → '.join(lp.loop.nodes))}</td></tr>")
+                         f"<td>{e(lp.open_at or 'protective: keep closed')}</td><td>{e(' → '.join(lp.loop.nodes))}</td></tr>")
         parts.append("</table>")
     parts.append("</body></html>")
     return "\n".join(parts) + "\n"

@@ -143,7 +143,7 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
         for col in ("#", "closed by", "area mm²", "open at", "members"):
             t.add_column(col)
         for i, lp in enumerate(result.loops[:50], 1):
-            t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at),
+            t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at or 'protective: keep closed'),
                       escape(" → ".join(lp.loop.nodes)))
         console.print(t)
 

@@ -229,8 +229,8 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
                               (Edit(c.location.line, new),), ctx.protective(c)))
     for f in result.findings:
         if f.code == "GC108":
-            c = ctx.cond[f.elements[0]]
-            keep = f.fix.split(" at ", 1)[1].split(" only")[0]
+            (_, shield, keep), = f.actions
+            c = ctx.cond[shield]
             m = _statement(ctx.lines, c.location.line)
             if m is not None:
                 add(_replace_in_line(ctx, c.name, "terminated both", f"terminated {_local(c.name, m['label'], keep)}",
