@@ -98,3 +98,20 @@ def test_jobs_give_the_same_result(cli):
     one = cli("check", *plans, "--format", "json")
     two = cli("check", *plans, "--format", "json", "--jobs", "2")
     assert one == two
+
+
+def test_device_earth_paths_to_the_main_earthing_terminal(tmp_path):
+    r = analyze(load(STUDIO))
+    got = {d.device: d.resistance for d in r.device_earths}
+    # mixer: its 2 m 0.75 mm² cord and the 8 m 2.5 mm² run, ρL/A with IEC 60028 copper at 20 °C (worked by hand)
+    assert got["mixer"] == pytest.approx(1.7241e-8 * (2 / 0.75e-6 + 8 / 2.5e-6), rel=1e-9)
+    assert not any(f.code == "GC215" for f in r.findings)
+    # unplug the mixer: its earth pin reaches nothing
+    text = STUDIO.read_text().replace("device mixer: simple, plugged wall_a, ", "device mixer: simple, ")
+    f = tmp_path / "studio.gplan"
+    f.write_text(text)
+    (tmp_path / "devices").mkdir()
+    for d in (STUDIO.parent / "devices").iterdir():
+        (tmp_path / "devices" / d.name).write_text(d.read_text())
+    r = analyze(load(f))
+    assert [(x.severity, x.elements[0]) for x in r.findings if x.code == "GC215"] == [("danger", "mixer")]
