@@ -44,7 +44,7 @@ def _best(repeat: int, fn):
 
 def one(size: int, kind: str, ngspice: bool, full_limit: int, repeat: int, jobs: int) -> dict:
     from generate import chassis, installation
-    from groundcheck.loader import LIMITS, no_gc
+    from groundcheck.language.loader import LIMITS, no_gc
 
     text = chassis(size) if kind == "chassis" else installation(size)
     row = {"kind": kind, "size": size}
@@ -64,12 +64,12 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
 
     from groundcheck import load_text
     from groundcheck.analysis import Options, analyze
-    from groundcheck.audit import AuditContext, audit
-    from groundcheck.circuit import build_circuit
-    from groundcheck.coupling import channel_tests, pair_tests
-    from groundcheck.network import build_graph
-    from groundcheck.spice import to_spice
-    from groundcheck.sweep import map_frequencies
+    from groundcheck.rules.topology import AuditContext, audit
+    from groundcheck.physics.circuit import build_circuit
+    from groundcheck.physics.coupling import channel_tests, pair_tests
+    from groundcheck.network.graph import build_graph
+    from groundcheck.renderers.spice import to_spice
+    from groundcheck.physics.sweep import map_frequencies
 
     # the two-process parse first, on a fresh heap as in a `groundcheck check --jobs N` run: a forked worker
     # that allocates into pages freed by earlier work copies them (copy-on-write), which a fresh process avoids

@@ -20,7 +20,7 @@ from hypothesis import HealthCheck, given, settings  # noqa: E402
 
 from groundcheck import PlanErrors, load_text  # noqa: E402
 from groundcheck.analysis import analyze  # noqa: E402
-from groundcheck.render_json import render_json  # noqa: E402
+from groundcheck.renderers.jsondoc import render_json  # noqa: E402
 from planfuzz import mutated_plans, valid_plans  # noqa: E402
 
 

@@ -9,10 +9,10 @@ Library entry points, one per stage of the pipeline::
 The figures are estimates from the plan, not a substitute for measurement.
 """
 
-from .errors import GroundcheckError, Location, PlanError, PlanErrors
-from .loader import load, load_text
+from .core.errors import GroundcheckError, Location, PlanError, PlanErrors
+from .language.loader import load, load_text
 
-__version__ = "0.1.0"
+from .core.version import __version__
 __all__ = ["load", "load_text", "analyze", "render", "GroundcheckError", "PlanError", "PlanErrors", "Location",
            "__version__"]
 
@@ -27,21 +27,21 @@ def render(result, fmt: str = "text") -> str:
     """A report of a result as text: ``text``, ``json``, ``sarif``, ``html`` (drawings when a renderer is
     available) or ``dot`` (the physical drawing's source)."""
     if fmt == "text":
-        from .render_text import text_report
+        from .renderers.text import text_report
         return text_report(result)
     if fmt == "json":
-        from .render_json import render_json
+        from .renderers.jsondoc import render_json
         return render_json(result)
     if fmt == "sarif":
-        from .render_sarif import render_sarif
+        from .renderers.sarif import render_sarif
         return render_sarif([result])
     if fmt == "dot":
-        from .render_dot import physical_dot
+        from .renderers.dot import physical_dot
         return physical_dot(result)
     if fmt == "html":
-        from .drawing import DrawingError, render_dot
-        from .render_dot import physical_dot, topology_dot
-        from .render_html import html_report
+        from .renderers.drawing import DrawingError, render_dot
+        from .renderers.dot import physical_dot, topology_dot
+        from .renderers.html import html_report
         try:
             phys, how = render_dot(physical_dot(result), "svg", "neato")
             topo, _ = render_dot(topology_dot(result), "svg", "dot")

@@ -6,14 +6,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .audit import LoopInfo, audit
-from .circuit import Circuit, build_circuit
-from .coupling import SHARE_THRESHOLD, Source, branch_owner, pair_tests, source_injections
-from .findings import Finding, severity_rank
-from .hum import HumOptions, HumResult, hum_budget
-from .model import Plan
-from .rectifier import simulate
-from .safety import DEFAULT_PE_LIMIT, STANDARD_PE_LIMIT, DeviceEarth, SafetyResult, installation_earths, protective_figures
+from .rules.topology import LoopInfo, audit
+from .physics.circuit import Circuit, build_circuit
+from .physics.coupling import SHARE_THRESHOLD, Source, branch_owner, pair_tests, source_injections
+from .rules.catalogue import Finding, severity_rank
+from .physics.hum import HumOptions, HumResult, hum_budget
+from .model.records import Plan
+from .physics.rectifier import simulate
+from .physics.safety import DEFAULT_PE_LIMIT, STANDARD_PE_LIMIT, DeviceEarth, SafetyResult, installation_earths, protective_figures
 
 __all__ = ["Options", "Result", "analyze"]
 
@@ -242,7 +242,7 @@ def _disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
 
 def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
     """GC214: a clearing time or I²t stated in the plan that the fuse table contradicts by more than 2×."""
-    from .protection import breaker_clearing, fuse_clearing
+    from .physics.protection import breaker_clearing, fuse_clearing
     m = plan.mains
     if m.fuse is None or (m.clear_time is None and m.fuse_i2t is None) or not safety.parts:
         return []
@@ -317,7 +317,7 @@ def _hum_findings(plan: Plan, hum: HumResult, opts: Options) -> list[Finding]:
 
 def analyze(plan: Plan, options: Options = Options()) -> Result:
     """Audit a plan's topology, solve its network, and compute its protective-earth and hum figures."""
-    from .loader import no_gc
+    from .core.runtime import no_gc
     with no_gc():
         return _analyze(plan, options)
 

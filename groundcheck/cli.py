@@ -12,10 +12,10 @@ import sys
 from dataclasses import replace
 from pathlib import Path
 
-from . import __version__
-from .errors import GroundcheckError, PlanErrors
-from .findings import RULES, SEVERITIES, severity_rank
-from .units import UnitError, parse_quantity
+from .core.version import __version__
+from .core.errors import GroundcheckError, PlanErrors
+from .rules.catalogue import RULES, SEVERITIES, severity_rank
+from .core.units import UnitError, parse_quantity
 
 __all__ = ["main"]
 
@@ -155,7 +155,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _load(path: str, jobs: int = 1):
-    from .loader import load
+    from .language.loader import load
     return load(path, jobs=jobs)
 
 
@@ -163,7 +163,7 @@ def _write(text: str, output: str | None, inputs: list[str]) -> None:
     if output is None or output == "-":
         sys.stdout.write(text)
         return
-    from .output import write_atomic
+    from .renderers.output import write_atomic
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
 
 
@@ -207,17 +207,17 @@ def cmd_check(args) -> int:
     threshold = severity_rank(args.fail_on)
     failing = any(severity_rank(f.severity) <= threshold for r in results for f in r.findings)
     if args.format == "json":
-        from .render_json import render_json, result_document
+        from .renderers.jsondoc import render_json, result_document
         if len(results) == 1:
             text = render_json(results[0])
         else:
             import json
             text = json.dumps({"plans": [result_document(r) for r in results]}, indent=2, ensure_ascii=False) + "\n"
     elif args.format == "sarif":
-        from .render_sarif import render_sarif
+        from .renderers.sarif import render_sarif
         text = render_sarif(results)
     else:
-        from .render_text import print_report, text_report
+        from .renderers.text import print_report, text_report
         if args.output:
             text = "\n".join(text_report(r) for r in results)
         else:
@@ -248,8 +248,8 @@ def cmd_explain(args) -> int:
 
 
 def cmd_export(args) -> int:
-    from .circuit import build_circuit
-    from .spice import to_spice
+    from .physics.circuit import build_circuit
+    from .renderers.spice import to_spice
     plan = _load(args.plan)
     circuit = build_circuit(plan)
     if args.frequency:
@@ -261,8 +261,8 @@ def cmd_export(args) -> int:
 
 
 def _drawings(result, renderer: str, fmt: str = "svg"):
-    from .drawing import render_dot
-    from .render_dot import physical_dot, topology_dot
+    from .renderers.drawing import render_dot
+    from .renderers.dot import physical_dot, topology_dot
     phys = render_dot(physical_dot(result), fmt, "neato", renderer)
     topo = render_dot(topology_dot(result), fmt, "dot", renderer)
     return phys, topo
@@ -270,8 +270,8 @@ def _drawings(result, renderer: str, fmt: str = "svg"):
 
 def cmd_draw(args) -> int:
     from .analysis import Options, analyze
-    from .drawing import render_dot
-    from .render_dot import physical_dot, topology_dot
+    from .renderers.drawing import render_dot
+    from .renderers.dot import physical_dot, topology_dot
     out = Path(args.output)
     fmt = out.suffix.lower().lstrip(".")
     if fmt not in ("svg", "png", "dot", "gv"):
@@ -283,7 +283,7 @@ def cmd_draw(args) -> int:
     view = args.view if (args.view == "topology" or has_pos) else "topology"
     source = physical_dot(result) if view == "physical" else topology_dot(result)
     data, how = render_dot(source, fmt, "neato" if view == "physical" else "dot", args.renderer)
-    from .output import write_atomic
+    from .renderers.output import write_atomic
     write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
     sys.stderr.write(f"groundcheck: wrote the {view} view to {out} with {how}{note}\n")
@@ -292,8 +292,8 @@ def cmd_draw(args) -> int:
 
 def cmd_report(args) -> int:
     from .analysis import analyze
-    from .drawing import DrawingError
-    from .render_html import html_report
+    from .renderers.drawing import DrawingError
+    from .renderers.html import html_report
     plan = _load(args.plan)
     result = _analyze_with_progress(analyze, plan, _options(args), args.plan)
     try:
@@ -302,7 +302,7 @@ def cmd_report(args) -> int:
         sys.stderr.write(f"groundcheck: warning: {e}; the report has no drawings\n")
         phys = topo = None
         how = ""
-    from .output import write_atomic
+    from .renderers.output import write_atomic
     write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
     threshold = severity_rank(args.fail_on)
@@ -311,9 +311,9 @@ def cmd_report(args) -> int:
 
 def cmd_suggest(args) -> int:
     import json
-    from .render_json import clean
-    from .render_text import CAUTION
-    from .repair import apply_edits, greedy, suggest, suggestions_document, suggestions_text
+    from .core.plain import clean
+    from .renderers.text import CAUTION
+    from .advice.repair import apply_edits, greedy, suggest, suggestions_document, suggestions_text
     if args.plan == "-":
         raise UsageError("suggest needs a plan file, not standard input (its edits are shown against the file)")
     path = Path(args.plan)
@@ -339,7 +339,7 @@ def cmd_suggest(args) -> int:
         target = Path(args.apply)
         if target.exists():
             raise UsageError(f"{args.apply} exists; --apply writes a new file and never replaces one")
-        from .output import write_atomic
+        from .renderers.output import write_atomic
         write_atomic(target, new_text, protect=[path])
         sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
     return 0
@@ -347,7 +347,7 @@ def cmd_suggest(args) -> int:
 
 def cmd_compare(args) -> int:
     from .analysis import analyze
-    from .compare import compare, compare_html, compare_json, compare_text
+    from .advice.compare import compare, compare_html, compare_json, compare_text
     d = compare(analyze(_load(args.before), _options(args)), analyze(_load(args.after), _options(args)))
     text = {"text": compare_text, "json": compare_json, "html": compare_html}[args.format](d)
     _write(text, args.output, [args.before, args.after])

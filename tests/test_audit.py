@@ -7,8 +7,8 @@ from hypothesis import given, settings, strategies as st
 
 from groundcheck import load
 from groundcheck.analysis import analyze
-from groundcheck.audit import audit
-from groundcheck.network import edges_of, fundamental_loops, loop_count
+from groundcheck.rules.topology import audit
+from groundcheck.network.graph import edges_of, fundamental_loops, loop_count
 
 from helpers import EXAMPLES, plan
 

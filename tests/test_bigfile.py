@@ -4,8 +4,9 @@ import dataclasses
 
 import pytest
 
-from groundcheck import PlanErrors, bigfile, load_text
-from groundcheck.sweep import can_fork
+from groundcheck import PlanErrors, load_text
+from groundcheck.language import bigfile
+from groundcheck.physics.sweep import can_fork
 
 pytestmark = pytest.mark.skipif(not can_fork(), reason="the worker is forked on Linux only")
 
@@ -41,7 +42,7 @@ def small_threshold(monkeypatch):
     monkeypatch.setattr(bigfile, "MIN_LINES", 100)
     calls = []
     real = bigfile.read_split
-    monkeypatch.setattr("groundcheck.loader.read_split", lambda *a: calls.append(1) or real(*a))
+    monkeypatch.setattr("groundcheck.language.loader.read_split", lambda *a: calls.append(1) or real(*a))
     return calls
 
 

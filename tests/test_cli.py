@@ -7,7 +7,7 @@ import re
 import pytest
 
 from groundcheck.cli import COMMANDS, build_parser
-from groundcheck.findings import RULES
+from groundcheck.rules.catalogue import RULES
 
 from helpers import EXAMPLES, ROOT
 

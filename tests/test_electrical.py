@@ -8,10 +8,10 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 from groundcheck import load
-from groundcheck.circuit import Branch, Circuit, build_circuit
-from groundcheck.impedance import skin_depth, skin_ratio, strip_inductance, wire_inductance
-from groundcheck.plate import grid_laplacian, reduce_plate
-from groundcheck.spice import to_spice
+from groundcheck.physics.circuit import Branch, Circuit, build_circuit
+from groundcheck.physics.impedance import skin_depth, skin_ratio, strip_inductance, wire_inductance
+from groundcheck.physics.plate import grid_laplacian, reduce_plate
+from groundcheck.renderers.spice import to_spice
 
 import spicetools
 from helpers import EXAMPLES, needs_ngspice, plan

@@ -10,11 +10,11 @@ import pytest
 
 from groundcheck import load
 from groundcheck.analysis import analyze
-from groundcheck.hearing import ISO226_FREQ, ISO226_TF, dbu_from_dbv, dbv, spl_at_listener, threshold_of_hearing
-from groundcheck.model import FieldSource, Rectifier
-from groundcheck.network import polygon_area
-from groundcheck.pickup import emf, loop_flux
-from groundcheck.rectifier import harmonic_phasors, simulate
+from groundcheck.physics.hearing import ISO226_FREQ, ISO226_TF, dbu_from_dbv, dbv, spl_at_listener, threshold_of_hearing
+from groundcheck.model.records import FieldSource, Rectifier
+from groundcheck.network.graph import polygon_area
+from groundcheck.physics.pickup import emf, loop_flux
+from groundcheck.physics.rectifier import harmonic_phasors, simulate
 
 from helpers import EXAMPLES, needs_ngspice, plan
 

@@ -5,7 +5,7 @@ from pathlib import Path
 import pytest
 
 from groundcheck import PlanErrors, load, load_text
-from groundcheck.model import PE_POINT
+from groundcheck.model.records import PE_POINT
 
 from helpers import EXAMPLES, plan
 
@@ -243,8 +243,8 @@ def test_block_placing_itself(tmp_path, monkeypatch, cli):
 def test_fast_records_equal_the_constructor_and_stay_immutable():
     import dataclasses
 
-    from groundcheck.errors import Location
-    from groundcheck.model import Conductor, Point, make
+    from groundcheck.core.errors import Location
+    from groundcheck.model.records import Conductor, Point, make
 
     loc = Location("t.gplan", 3, 1)
     for cls, values in ((Conductor, dict(name="w", kind="wire", a="x", b="y", location=loc, length=0.1, area=1e-6)),

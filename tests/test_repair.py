@@ -8,8 +8,8 @@ import pytest
 
 from groundcheck import load, load_text
 from groundcheck.analysis import Options, analyze
-from groundcheck.compare import compare
-from groundcheck.repair import apply_edits, candidates, greedy, suggest, unified_diff
+from groundcheck.advice.compare import compare
+from groundcheck.advice.repair import apply_edits, candidates, greedy, suggest, unified_diff
 
 from helpers import EXAMPLES
 
@@ -199,7 +199,7 @@ def test_role_less_building_runs_stay_on_the_protective_route(tmp_path):
 
 
 def test_suggestions_read_as_levels(tmp_path):
-    from groundcheck.repair import suggestions_text
+    from groundcheck.advice.repair import suggestions_text
     before, evs = _evs(ROLELESS_PE, tmp_path)
     text = suggestions_text(before.plan, ROLELESS_PE, "plan.gplan", evs, [], before, "caution")
     assert "finding(s)" not in text

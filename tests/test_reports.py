@@ -9,12 +9,12 @@ import pytest
 
 from groundcheck import load, load_text
 from groundcheck.analysis import analyze
-from groundcheck.drawing import available_renderers, render_dot
-from groundcheck.render_dot import physical_dot, topology_dot
-from groundcheck.render_html import html_report
-from groundcheck.render_json import render_json
-from groundcheck.render_sarif import sarif_document
-from groundcheck.render_text import text_report
+from groundcheck.renderers.drawing import available_renderers, render_dot
+from groundcheck.renderers.dot import physical_dot, topology_dot
+from groundcheck.renderers.html import html_report
+from groundcheck.renderers.jsondoc import render_json
+from groundcheck.renderers.sarif import sarif_document
+from groundcheck.renderers.text import text_report
 
 from helpers import EXAMPLES
 

@@ -13,11 +13,11 @@ from hypothesis import HealthCheck, given, settings, strategies as st
 
 from groundcheck import PlanErrors, load, load_text
 from groundcheck.analysis import analyze
-from groundcheck.circuit import build_circuit
-from groundcheck.loader import LIMITS
-from groundcheck.render_json import render_json
-from groundcheck.audit import AuditContext
-from groundcheck.safety import protective_figures as _figures
+from groundcheck.physics.circuit import build_circuit
+from groundcheck.language.loader import LIMITS
+from groundcheck.renderers.jsondoc import render_json
+from groundcheck.rules.topology import AuditContext
+from groundcheck.physics.safety import protective_figures as _figures
 
 from helpers import EXAMPLES, ROOT, plan
 from planfuzz import mutated_plans, valid_plans
@@ -232,9 +232,9 @@ SCRIPT = """
 import sys
 from groundcheck import load
 from groundcheck.analysis import analyze
-from groundcheck.render_json import render_json
-from groundcheck.render_sarif import render_sarif
-from groundcheck.render_dot import physical_dot, topology_dot
+from groundcheck.renderers.jsondoc import render_json
+from groundcheck.renderers.sarif import render_sarif
+from groundcheck.renderers.dot import physical_dot, topology_dot
 r = analyze(load(sys.argv[1]))
 sys.stdout.write(render_json(r) + render_sarif([r]) + physical_dot(r) + topology_dot(r))
 """

@@ -3,7 +3,7 @@
 import re
 from pathlib import Path
 
-from groundcheck.findings import RULES, SEVERITIES
+from groundcheck.rules.catalogue import RULES, SEVERITIES
 
 PACKAGE = Path(__file__).resolve().parent.parent / "groundcheck"
 
@@ -11,9 +11,9 @@ PACKAGE = Path(__file__).resolve().parent.parent / "groundcheck"
 def _producers():
     """code -> modules that construct a Finding with that code (read from the source text)."""
     out: dict[str, set[str]] = {}
-    for f in PACKAGE.glob("*.py"):
+    for f in PACKAGE.rglob("*.py"):
         for code in re.findall(r'Finding\(\s*"(GC\d{3})"', f.read_text(encoding="utf-8")):
-            out.setdefault(code, set()).add(f.name)
+            out.setdefault(code, set()).add(str(f.relative_to(PACKAGE)))
     return out
 
 

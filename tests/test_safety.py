@@ -7,10 +7,10 @@ from pathlib import Path
 
 import pytest
 
-from groundcheck import protection
+from groundcheck.physics import protection
 from groundcheck.analysis import Options, analyze
-from groundcheck.audit import AuditContext
-from groundcheck.safety import ADIABATIC_K, protective_figures
+from groundcheck.rules.topology import AuditContext
+from groundcheck.physics.safety import ADIABATIC_K, protective_figures
 
 from helpers import plan
 

@@ -8,9 +8,9 @@ import pytest
 
 from groundcheck import load
 from groundcheck.analysis import Options, analyze
-from groundcheck.coupling import pair_tests
-from groundcheck.render_json import render_json
-from groundcheck.sweep import can_fork, map_frequencies
+from groundcheck.physics.coupling import pair_tests
+from groundcheck.renderers.jsondoc import render_json
+from groundcheck.physics.sweep import can_fork, map_frequencies
 
 from helpers import EXAMPLES, ROOT
 

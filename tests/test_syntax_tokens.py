@@ -6,7 +6,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings, strategies as st
 from lark import Lark
 
-from groundcheck import syntax
+from groundcheck.language import syntax
 
 from helpers import EXAMPLES, ROOT
 from planfuzz import mutated_plans, valid_plans

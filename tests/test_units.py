@@ -4,8 +4,8 @@ import math
 
 import pytest
 
-from groundcheck.impedance import resistivity
-from groundcheck.units import UnitError, awg_area, awg_diameter, format_si, parse_quantity
+from groundcheck.physics.impedance import resistivity
+from groundcheck.core.units import UnitError, awg_area, awg_diameter, format_si, parse_quantity
 
 # ASTM B258 diameters and areas as tabulated in REFERENCE.md (which checks them against
 # NBS Handbook 100, *Copper Wire Tables*, within 0.1 %).

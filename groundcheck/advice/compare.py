@@ -1,0 +1,120 @@
+"""Before/after comparison of two analyses: findings, loops, hum per harmonic, protective earth."""
+
+from __future__ import annotations
+
+import json
+import math
+from html import escape
+
+from ..analysis import Result
+from ..core.plain import clean
+
+__all__ = ["compare", "compare_text", "compare_json", "compare_html"]
+
+
+def _fkey(f):
+    return (f.code, tuple(sorted(f.elements)))
+
+
+def _db(v):
+    return 20 * math.log10(v) if v and v > 0 else None
+
+
+def compare(before: Result, after: Result) -> dict:
+    """What changed from ``before`` to ``after`` (plain data)."""
+    fb = {_fkey(f): f for f in before.findings}
+    fa = {_fkey(f): f for f in after.findings}
+    row = lambda f: {"code": f.code, "severity": f.severity, "message": f.message}  # noqa: E731
+    lb = {frozenset(lp.loop.edges): lp for lp in before.loops}
+    la = {frozenset(lp.loop.edges): lp for lp in after.loops}
+    hum = {}
+    chans = sorted(set(before.hum.channels if before.hum else ()) | set(after.hum.channels if after.hum else ()))
+    for ch in chans:
+        hb = before.hum.channels.get(ch) if before.hum else None
+        ha = after.hum.channels.get(ch) if after.hum else None
+        sb = {r["frequency_hz"]: r["volts"] for r in (hb.spectrum if hb else [])}
+        sa = {r["frequency_hz"]: r["volts"] for r in (ha.spectrum if ha else [])}
+        rows = []
+        for f in sorted(set(sb) | set(sa)):
+            b, a = _db(sb.get(f)), _db(sa.get(f))
+            if b is None and a is None:
+                continue
+            rows.append({"frequency_hz": f, "before_dbv": b, "after_dbv": a,
+                         "change_db": None if b is None or a is None else a - b})
+        tb, ta = _db(hb.total_v) if hb else None, _db(ha.total_v) if ha else None
+        hum[ch] = {"before_dbv": tb, "after_dbv": ta, "change_db": None if tb is None or ta is None else ta - tb,
+                   "audible_before": hb.audible if hb else None, "audible_after": ha.audible if ha else None,
+                   "spectrum": rows}
+    pb = {p.part: p for p in (before.safety.parts if before.safety else ())}
+    pa = {p.part: p for p in (after.safety.parts if after.safety else ())}
+    pe = [{"part": k, "before_ohm": pb[k].path_resistance if k in pb else None,
+           "after_ohm": pa[k].path_resistance if k in pa else None,
+           "touch_before_v": pb[k].touch_voltage if k in pb else None,
+           "touch_after_v": pa[k].touch_voltage if k in pa else None} for k in sorted(set(pb) | set(pa))]
+    return clean({
+        "before": before.plan.file, "after": after.plan.file,
+        "findings": {"fixed": [row(fb[k]) for k in sorted(fb.keys() - fa.keys())],
+                     "kept": [row(fa[k]) for k in sorted(fb.keys() & fa.keys())],
+                     "introduced": [row(fa[k]) for k in sorted(fa.keys() - fb.keys())]},
+        "loops": {"removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
+                  "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
+                  "total_before": before.loop_total, "total_after": after.loop_total},
+        "hum": hum, "protective_earth": pe})
+
+
+def _f(x, fmt):
+    return "–" if x is None else fmt.format(x)
+
+
+def compare_text(d: dict) -> str:
+    out = [f"Compare {d['before']} → {d['after']}", ""]
+    fnd = d["findings"]
+    out.append(f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept, {len(fnd['introduced'])} introduced")
+    for tag in ("fixed", "introduced", "kept"):
+        for f in fnd[tag]:
+            out.append(f"  {tag:<10} {f['code']} {f['severity']:<8} {f['message']}")
+    lp = d["loops"]
+    out.append(f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, {len(lp['added'])} added)")
+    for k in lp["removed"]:
+        out.append(f"  removed   {', '.join(k)}")
+    for k in lp["added"]:
+        out.append(f"  added     {', '.join(k)}")
+    for ch, h in d["hum"].items():
+        out.append(f"Hum, {ch}: {_f(h['before_dbv'], '{:.1f}')} → {_f(h['after_dbv'], '{:.1f}')} dBV "
+                   f"({_f(h['change_db'], '{:+.1f}')} dB); audible {h['audible_before']} → {h['audible_after']}")
+        for r in h["spectrum"][:12]:
+            out.append(f"  {r['frequency_hz']:>7g} Hz  {_f(r['before_dbv'], '{:8.1f}')} → {_f(r['after_dbv'], '{:8.1f}')} dBV  "
+                       f"{_f(r['change_db'], '{:+.1f}')} dB")
+    for p in d["protective_earth"]:
+        out.append(f"Protective path to {p['part']}: {_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
+                   f"{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')} mΩ; touch voltage "
+                   f"{_f(p['touch_before_v'], '{:.3g}')} → {_f(p['touch_after_v'], '{:.3g}')} V")
+    return "\n".join(out) + "\n"
+
+
+def compare_json(d: dict) -> str:
+    return json.dumps(d, indent=2, ensure_ascii=False) + "\n"
+
+
+def compare_html(d: dict) -> str:
+    e = escape
+    rows = []
+    for tag in ("fixed", "introduced", "kept"):
+        for f in d["findings"][tag]:
+            rows.append(f"<tr><td>{tag}</td><td>{e(f['code'])}</td><td>{e(f['severity'])}</td><td>{e(f['message'])}</td></tr>")
+    hum = []
+    for ch, h in d["hum"].items():
+        for r in h["spectrum"]:
+            hum.append(f"<tr><td>{e(ch)}</td><td>{r['frequency_hz']:g}</td><td>{_f(r['before_dbv'], '{:.1f}')}</td>"
+                       f"<td>{_f(r['after_dbv'], '{:.1f}')}</td><td>{_f(r['change_db'], '{:+.1f}')}</td></tr>")
+    pe = [f"<tr><td>{e(p['part'])}</td><td>{_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')}</td>"
+          f"<td>{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')}</td></tr>" for p in d["protective_earth"]]
+    return ("<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>groundcheck compare</title>"
+            "<style>body{font-family:system-ui,sans-serif;max-width:1000px;margin:2em auto}table{border-collapse:collapse}"
+            "td,th{border:1px solid #ccc;padding:.2em .5em}</style></head><body>"
+            f"<h1>{e(d['before'])} → {e(d['after'])}</h1><h2>Findings</h2><table><tr><th>change</th><th>code</th>"
+            f"<th>severity</th><th>finding</th></tr>{''.join(rows)}</table>"
+            f"<h2>Loops</h2><p>{d['loops']['total_before']} → {d['loops']['total_after']}</p>"
+            f"<h2>Hum per harmonic (dBV)</h2><table><tr><th>channel</th><th>Hz</th><th>before</th><th>after</th><th>change dB</th></tr>"
+            f"{''.join(hum)}</table><h2>Protective earth (mΩ)</h2><table><tr><th>part</th><th>before</th><th>after</th></tr>"
+            f"{''.join(pe)}</table></body></html>\n")

@@ -1,0 +1,30 @@
+"""Plain data for JSON documents: numbers rounded to significant digits, numeric-library scalars made
+Python numbers, non-finite values made None.  No numeric library is imported here: a scalar of one is
+recognised by its ``item()`` method."""
+
+from __future__ import annotations
+
+import math
+
+__all__ = ["clean"]
+
+
+def clean(x, digits: int = 9):
+    """JSON-safe copy: numpy scalars to Python, non-finite floats to None, floats to ``digits`` significant digits."""
+    if isinstance(x, dict):
+        return {str(k): clean(v, digits) for k, v in x.items()}
+    if isinstance(x, (list, tuple)):
+        return [clean(v, digits) for v in x]
+    if not isinstance(x, (bool, int, float, complex, str)) and hasattr(x, "item") and type(x).__module__ == "numpy":
+        x = x.item()
+    if isinstance(x, bool):
+        return x
+    if isinstance(x, int):
+        return int(x)
+    if isinstance(x, float):
+        if not math.isfinite(x):
+            return None
+        return float(f"{x:.{digits}g}")
+    if isinstance(x, complex):
+        return clean(abs(x), digits)
+    return x

@@ -1,0 +1,261 @@
+"""Attribute phrases: the comma-separated parts of a plan statement, read into typed items.
+
+The grammar (``grammar/plan.lark``) only splits a statement into words,
+numbers, coordinates and strings.  This module joins a number with the unit
+that follows it into a quantity, and gives the statement builders a small
+toolkit to read phrases with precise error locations.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from typing import Any, NamedTuple
+
+from ..core.errors import Location, PlanError
+from ..core.units import UnitError, parse_quantity, unit_kind
+
+__all__ = ["Item", "Statement", "split_phrases", "Reader"]
+
+
+class Item(NamedTuple):
+    """One item of a phrase: ``kind`` is word, number, qty, coord or string."""
+
+    kind: str
+    text: str
+    loc: Location
+    value: Any = None
+    qkind: str | None = None     # for qty: the kind of quantity
+
+
+@dataclass
+class Statement:
+    """One plan statement: keyword, optional label (the element's name) and phrases."""
+
+    keyword: str
+    loc: Location
+    label: str | None = None
+    label_loc: Location | None = None
+    phrases: list[list[Item]] = field(default_factory=list)
+    broken: bool = False          # an error was already reported inside it
+
+
+_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)"
+_TOK = re.compile(rf"""[ \t\r]*(?:
+    (\n)
+  | (,)
+  | ("[^"\n]*")
+  | ({_NUM},{_NUM})
+  | ({_NUM}(?:[eE][+-]?\d+)?)
+  | ((?:[^\W\d]|\u00b0)[\w.\-/\u00b0]*)
+  | ([^ \t\r\n])
+)""", re.X)
+NL, COMMA, STRING, COORD, NUMBER, WORD, BAD = range(1, 8)
+_NOT_UNITS = frozenset(("x", "to", "at", "on"))
+_new = tuple.__new__
+
+
+def split_phrases(text: str, line: int, column: int, file: str, errors: list[PlanError]) -> list[list[Item]]:
+    """The comma-separated phrases of a statement's rest (a lark ``REST`` token starting at line:column),
+    read into items in one pass: a number followed by a unit becomes a quantity, a position followed by a
+    length unit is scaled by it.  A comma between two numbers with no space (25,200) is a position, not a
+    separator.  Errors are appended to ``errors`` (and the statement gives no phrases).
+    """
+    phrases: list[list[Item]] = []
+    cur = []
+    pend = None                      # a number or coordinate waiting to see whether a unit follows
+    dropped = False                  # the current phrase lost a quantity to a unit error (already reported)
+    line_start = -column + 1
+    for m in _TOK.finditer(text):
+        g = m.lastindex
+        if g == NL:
+            line += 1
+            line_start = m.end()
+            continue
+        start = m.start(g)
+        col = start - line_start + 1
+        if g == COMMA:
+            if pend is not None:
+                cur.append(_plain(pend))
+                pend = None
+            if not cur and not dropped:
+                errors.append(PlanError("unexpected ','", Location(file, line, col), "an attribute is missing here"))
+                return []
+            phrases.append(cur)
+            cur = []
+            dropped = False
+            continue
+        value = m.group(g)
+        if g == WORD:
+            if pend is not None:
+                if pend[0] == NUMBER and value not in _NOT_UNITS:
+                    try:
+                        qv, qk = parse_quantity(pend[1], value)
+                    except UnitError as e:
+                        errors.append(PlanError(str(e), Location(file, line, col), e.hint))
+                        pend = None
+                        dropped = True
+                        continue
+                    cur.append(_new(Item, ("qty", f"{pend[1]} {value}", pend[2], qv, qk)))
+                    pend = None
+                    continue
+                if pend[0] == COORD:
+                    k = unit_kind(value)
+                    if k == "length":
+                        cur.append(_coord(pend, parse_quantity("1", value)[0]))
+                        pend = None
+                        continue
+                    if k is not None:
+                        errors.append(PlanError(f"a position is a length, not a {k}", Location(file, line, col),
+                                                "positions are in mm, or give a length unit"))
+                        cur.append(_coord(pend, 1e-3))
+                        pend = None
+                        continue
+                cur.append(_plain(pend))
+                pend = None
+            cur.append(_new(Item, ("word", value, _new(Location, (file, line, col)), value, None)))
+            continue
+        if pend is not None:
+            cur.append(_plain(pend))
+            pend = None
+        loc = _new(Location, (file, line, col))
+        if g == NUMBER or g == COORD:
+            pend = (g, value, loc)
+        elif g == STRING:
+            cur.append(_new(Item, ("string", value[1:-1], loc, value[1:-1], None)))
+        else:
+            hint = ("only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
+                    if value == ":" else
+                    "names start with a letter; positions are x,y with no space; strings use double quotes")
+            errors.append(PlanError(f"unexpected character {value!r}", loc, hint))
+            return []
+    if pend is not None:
+        cur.append(_plain(pend))
+    if cur or dropped:
+        phrases.append(cur)
+    elif phrases:
+        errors.append(PlanError("the statement ends with a comma", Location(file, line, len(text) - line_start + 1),
+                                "remove the comma, or continue the attributes on the next line"))
+        return []
+    return phrases
+
+
+def _plain(pend) -> Item:
+    g, value, loc = pend
+    if g == NUMBER:
+        return _new(Item, ("number", value, loc, float(value), None))
+    return _coord(pend, 1e-3)
+
+
+def _coord(pend, scale: float) -> Item:
+    xs, ys = pend[1].split(",")
+    return _new(Item, ("coord", pend[1], pend[2], (float(xs) * scale, float(ys) * scale), None))
+
+
+class Reader:
+    """Reads the items of one phrase left to right, raising :class:`PlanError` at the offending item."""
+
+    __slots__ = ("items", "stmt", "i")
+
+    def __init__(self, items: list[Item], stmt: Statement):
+        self.items = items
+        self.stmt = stmt
+        self.i = 0
+
+    @property
+    def done(self) -> bool:
+        return self.i >= len(self.items)
+
+    def peek(self) -> Item | None:
+        i = self.i
+        return self.items[i] if i < len(self.items) else None
+
+    def _end_loc(self) -> Location:
+        if self.items:
+            last = self.items[-1]
+            return Location(last.loc.file, last.loc.line, last.loc.column + len(last.text))
+        return self.stmt.loc
+
+    def next(self, what: str) -> Item:
+        i, items = self.i, self.items
+        if i >= len(items):
+            raise PlanError(f"{self.stmt.keyword}: expected {what} here", self._end_loc(),
+                            f"see the '{self.stmt.keyword}' entry of the language reference")
+        self.i = i + 1
+        return items[i]
+
+    def word(self, what: str = "a name", choices: tuple[str, ...] | None = None) -> str:
+        it = self.next(what)
+        if it.kind != "word":
+            raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "")
+        if choices is not None and it.value not in choices:
+            raise PlanError(f"{self.stmt.keyword}: unknown {what} {it.value!r}", it.loc,
+                            "expected one of: " + ", ".join(choices))
+        return it.value
+
+    def name(self, what: str = "a name") -> tuple[str, Location]:
+        it = self.next(what)
+        if it.kind != "word":
+            raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "names start with a letter")
+        return it.value, it.loc
+
+    def keyword(self, word: str) -> bool:
+        it = self.peek()
+        if it is not None and it.kind == "word" and it.value == word:
+            self.i += 1
+            return True
+        return False
+
+    def expect(self, word: str) -> None:
+        if not self.keyword(word):
+            it = self.peek()
+            loc = it.loc if it else self._end_loc()
+            found = f", found {it.text!r}" if it else ""
+            raise PlanError(f"{self.stmt.keyword}: expected '{word}'{found}", loc, "")
+
+    def quantity(self, kind: str, what: str, positive: bool = True, allow_zero: bool = False) -> float:
+        it = self.next(f"{what} ({kind})")
+        return check_quantity(it, kind, what, positive=positive, allow_zero=allow_zero)
+
+    def number(self, what: str) -> float:
+        it = self.next(what)
+        if it.kind != "number":
+            raise PlanError(f"expected a plain number for {what}, found {it.text!r}", it.loc, "")
+        return it.value
+
+    def coord(self, what: str = "a position x,y") -> tuple[float, float]:
+        it = self.next(what)
+        if it.kind != "coord":
+            raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "write x,y in mm with no space, e.g. 25,200")
+        return it.value
+
+    def finish(self) -> None:
+        if self.i < len(self.items):
+            it = self.items[self.i]
+            raise PlanError(f"{self.stmt.keyword}: unexpected {it.text!r}", it.loc,
+                            "separate attributes with commas")
+
+
+def check_quantity(it: Item, kind: str, what: str, positive: bool = True, allow_zero: bool = False) -> float:
+    """The SI value of ``it`` if it is a quantity of ``kind``, else a :class:`PlanError` at the item."""
+    if it.kind == "number":
+        raise PlanError(f"{what} needs a unit", it.loc, f"give a {kind}, e.g. with {_example_unit(kind)}")
+    if it.kind != "qty":
+        raise PlanError(f"expected {what} ({kind}), found {it.text!r}", it.loc, "")
+    if it.qkind != kind:
+        raise PlanError(f"{what} must be a {kind}, not a {it.qkind}", it.loc, f"use a {kind} unit such as {_example_unit(kind)}")
+    v = it.value
+    if kind == "temperature":
+        if v < -273.15:
+            raise PlanError(f"temperature {it.text} is below absolute zero", it.loc, "")
+        return v
+    if positive and (v < 0 or (v == 0 and not allow_zero)):
+        raise PlanError(f"{what} must be {'zero or more' if allow_zero else 'more than zero'}, got {it.text}", it.loc, "")
+    return v
+
+
+def _example_unit(kind: str) -> str:
+    return {"length": "mm", "area": "mm2 or AWG", "resistance": "ohm or mohm", "current": "A or mA",
+            "voltage": "V", "frequency": "Hz", "flux density": "uT", "capacitance": "uF",
+            "level": "dB", "temperature": "C", "time": "s or ms", "energy integral": "A2s",
+            "inductance": "uH", "resistance per length": "mohm/m"}.get(kind, "a unit")

@@ -1,0 +1,386 @@
+"""The electrical network of a plan: nodes, branches with impedance per frequency, complex nodal solve.
+
+Nodes are the plan's points plus, for each metal part, either one node (when
+the plate's spreading resistance cannot or need not be computed) or one node
+per fastening point joined by the plate's Kron-reduced network
+(:mod:`groundcheck.physics.plate`).
+
+The solve is complex nodal analysis, one sparse LU factorisation per
+frequency reused for every source (columns of the right-hand side).  Each
+connected part of the network is referenced at its own node: the mains
+inlet's protective terminal where the part holds it, else its first node in
+plan order.
+
+References: C.-W. Ho, A. Ruehli, P. Brennan, "The modified nodal approach to
+network analysis", IEEE Trans. Circuits Syst. 22(6), 1975 (nodal formulation).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from functools import cached_property
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.csgraph as csgraph
+import scipy.sparse.linalg as spla
+
+from .impedance import (DEFAULT_SWITCH_CONTACT, MATERIALS, MIN_IMPEDANCE, resistivity, skin_ratio,
+                        strip_inductance, wire_inductance)
+from ..model.records import PE_POINT, Conductor, Plan
+from .plate import reduce_plate
+
+__all__ = ["Circuit", "Solution", "build_circuit", "conductor_resistance"]
+
+XY = tuple[float, float]
+
+
+def conductor_resistance(c: Conductor, temperature: float) -> tuple[float, float, float]:
+    """(R_dc in Ω, self-inductance in H, radius in m for the skin effect; 0 when not a round wire)."""
+    rho = resistivity(c.material if c.material in MATERIALS else "copper", temperature)
+    contact = c.contact or 0.0
+    if c.kind == "bolt":
+        return (c.resistance if c.resistance is not None else contact), 0.0, 0.0
+    if c.kind == "switch":
+        return (c.resistance if c.resistance is not None else (c.contact if c.contact is not None else DEFAULT_SWITCH_CONTACT)), 0.0, 0.0
+    if c.kind == "lift":
+        return c.resistance, 0.0, 0.0
+    length = c.length or 0.0
+    if c.kind in ("trace", "busbar", "strap") and c.width is not None:
+        t = c.thickness or (c.area / c.width if c.area else 1e-3)
+        r = rho * length / (c.width * t)
+        ind = strip_inductance(length, c.width, t)
+        if c.resistance is not None:
+            r = c.resistance
+        return r + contact, ind, 0.0
+    area = c.area
+    radius = (c.diameter / 2) if c.diameter else (math.sqrt(area / math.pi) if area else 0.0)
+    ind = wire_inductance(length, radius) if radius else 0.0
+    if c.resistance is not None:
+        return c.resistance + contact, ind, 0.0
+    r = rho * length / area if area else 0.0
+    return r + contact, ind, radius
+
+
+@dataclass
+class Branch:
+    """One branch of the circuit: a conductor, or one resistor of a plate's equivalent network."""
+
+    n1: int
+    n2: int
+    name: str                        # conductor name, or "plate:<part>:<a>~<b>"
+    r: float                         # Ω at the plan's temperature
+    l: float = 0.0                   # H
+    radius: float = 0.0              # m, round wire (skin effect); 0 for none
+    rho: float = 1.7241e-8           # Ω·m, for the skin effect
+    cap: float | None = None         # F, lift networks: R ∥ C
+    path: tuple[XY, ...] = ()        # geometry from n1 to n2 (for induced EMF), empty when unknown
+    conductor: str | None = None     # the plan conductor it models
+    metal: str | None = None         # or the metal part whose plate it belongs to
+
+    @property
+    def owner(self) -> str:
+        """The plan element the branch models: its conductor or its metal part."""
+        return self.conductor or self.metal or self.name
+
+
+@dataclass
+class Circuit:
+    """Nodes in an explicit order and branches; solve with :meth:`solve`."""
+
+    nodes: list[str]
+    branches: list[Branch]
+    positions: dict[str, XY] = field(default_factory=dict)
+    plate_notes: dict[str, dict] = field(default_factory=dict)
+    point_node: dict[str, int] = field(default_factory=dict)   # plan point/part name -> node index
+    metal_nodes: dict[str, tuple[int, ...]] = field(default_factory=dict)   # metal part -> its contact nodes
+
+    def nodes_of_metal(self, name: str) -> tuple[int, ...]:
+        """The nodes of metal part ``name``: its contact spots on a plate grid, else its one node."""
+        return self.metal_nodes.get(name, ())
+
+    @cached_property
+    def index(self) -> dict[str, int]:
+        return {n: i for i, n in enumerate(self.nodes)}
+
+    @cached_property
+    def _arrays(self):
+        b = self.branches
+        return (np.array([x.n1 for x in b], dtype=np.int64), np.array([x.n2 for x in b], dtype=np.int64),
+                np.array([x.r for x in b]), np.array([x.l for x in b]), np.array([x.radius for x in b]),
+                np.array([x.rho for x in b]), np.array([np.nan if x.cap is None else x.cap for x in b]))
+
+    def impedance(self, f: float) -> np.ndarray:
+        """Complex impedance of every branch at frequency f (Hz), never below MIN_IMPEDANCE."""
+        n1, n2, r, l, radius, rho, cap = self._arrays
+        if f > 0:
+            ratio = np.ones_like(r)
+            wire = radius > 0
+            if wire.any():
+                ratio[wire] = skin_ratio(radius[wire], rho[wire], f)
+            z = r * ratio + 2j * math.pi * f * l
+            lift = ~np.isnan(cap)
+            if lift.any():
+                w = 2 * math.pi * f
+                z[lift] = r[lift] / (1 + 1j * w * r[lift] * cap[lift])
+        else:
+            z = r.astype(complex)
+        small = np.abs(z) < MIN_IMPEDANCE
+        z[small] = MIN_IMPEDANCE
+        return z
+
+    @cached_property
+    def least_resistance_graph(self):
+        """The least-resistance branch between each pair of joined nodes, and those resistances as a
+        symmetric sparse matrix (for shortest paths): ({(low node, high node): branch}, csr matrix)."""
+        n1, n2, r, *_ = self._arrays
+        n = len(self.nodes)
+        w = np.maximum(np.abs(r), 1e-9)
+        best: dict[tuple[int, int], int] = {}
+        for idx in np.argsort(w, kind="stable"):
+            key = (min(n1[idx], n2[idx]), max(n1[idx], n2[idx]))
+            if key not in best:
+                best[key] = int(idx)
+        rows = [k[0] for k in best] + [k[1] for k in best]
+        cols = [k[1] for k in best] + [k[0] for k in best]
+        vals = [w[i] for i in best.values()] * 2
+        return best, sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsr()
+
+    @cached_property
+    def components(self) -> tuple[int, np.ndarray]:
+        n1, n2, *_ = self._arrays
+        n = len(self.nodes)
+        A = sp.coo_matrix((np.ones(len(n1)), (n1, n2)), shape=(n, n))
+        return csgraph.connected_components(A, directed=False)
+
+    @cached_property
+    def references(self) -> np.ndarray:
+        """The reference node of every connected part (the protective terminal where present)."""
+        ncomp, labels = self.components
+        ref = np.full(ncomp, -1)
+        pe = self.point_node.get(PE_POINT)
+        if pe is not None:
+            ref[labels[pe]] = pe
+        for i in range(len(self.nodes)):
+            if ref[labels[i]] < 0:
+                ref[labels[i]] = i
+        return ref
+
+    @cached_property
+    def _pattern(self):
+        """Entries of the admittance matrix among the non-reference nodes: (reduced index of every node,
+        rows, cols, which branch each entry comes from, its sign, the reduced size)."""
+        n1, n2, *_ = self._arrays
+        n = len(self.nodes)
+        keep = np.ones(n, dtype=bool)
+        keep[self.references] = False
+        ridx = np.cumsum(keep) - 1
+        ridx[~keep] = -1
+        b = np.arange(len(n1))
+        rows = np.concatenate([n1, n2, n1, n2])
+        cols = np.concatenate([n1, n2, n2, n1])
+        branch = np.concatenate([b, b, b, b])
+        sign = np.concatenate([np.ones(len(b)), np.ones(len(b)), -np.ones(len(b)), -np.ones(len(b))])
+        ok = keep[rows] & keep[cols]
+        return keep, ridx[rows[ok]], ridx[cols[ok]], branch[ok], sign[ok], int(keep.sum())
+
+    def at(self, f: float) -> "Factored":
+        """The admittance matrix at frequency f (Hz), factorised once for any number of solves."""
+        z = self.impedance(f)
+        y = 1.0 / z
+        keep, rows, cols, branch, sign, m = self._pattern
+        lu = None
+        real = False
+        if m:
+            vals = y[branch] * sign
+            if not np.iscomplexobj(vals) or not vals.imag.any():
+                vals = vals.real                 # DC, or no reactance: a real factorisation, about twice as fast
+                real = True
+            Y = sp.csc_matrix((vals, (rows, cols)), shape=(m, m))
+            # minimum-degree ordering on the symmetric pattern: about half the fill of the default on ground
+            # networks.  Symmetric mode (the elimination tree of Y + Yᵀ, diagonal pivots preferred, threshold
+            # 0.1) suits a nodal matrix: measured 1.2 times faster on a 48,000-node mesh and 15 times faster on
+            # a 16,000-node installation with a hub (same fill, same residual)
+            lu = spla.splu(Y, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.1, options={"SymmetricMode": True})
+        return Factored(self, f, z, y, keep, lu, real)
+
+    def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
+        """Shorthand for ``self.at(f).solve(injections, emf)``."""
+        return self.at(f).solve(injections, emf)
+
+
+@dataclass
+class Factored:
+    """A circuit's admittance matrix at one frequency with its sparse LU factors."""
+
+    circuit: Circuit
+    frequency: float
+    z: np.ndarray
+    y: np.ndarray
+    keep: np.ndarray
+    lu: object
+    real: bool = False                   # the factors are real (DC or a purely resistive network)
+
+    def solve(self, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
+        """Node voltages and branch currents for each column of sources.
+
+        ``injections``: (nodes × k) complex currents entering each node, A.
+        ``emf``: optional (branches × k) EMF in series with each branch, V; it
+        drives current from n1 to n2 through the branch.  Voltages are
+        relative to each connected part's reference node.
+        """
+        n1, n2, *_ = self.circuit._arrays
+        n = len(self.circuit.nodes)
+        y = self.y
+        J = np.array(injections, dtype=complex).reshape(n, -1).copy()
+        k = J.shape[1]
+        if emf is not None:
+            emf = np.asarray(emf, dtype=complex).reshape(len(y), k)
+            inj = emf * y[:, None]          # Norton equivalent of an EMF in series with the branch
+            np.add.at(J, n2, inj)
+            np.add.at(J, n1, -inj)
+        V = np.zeros((n, k), dtype=complex)
+        if self.lu is not None:
+            rhs = J[self.keep]
+            if self.real:                        # real factors: solve the real and imaginary parts apart
+                V[self.keep] = self.lu.solve(np.ascontiguousarray(rhs.real))
+                if rhs.imag.any():
+                    V[self.keep] += 1j * self.lu.solve(np.ascontiguousarray(rhs.imag))
+            else:
+                V[self.keep] = self.lu.solve(rhs)
+        dv = V[n1] - V[n2]
+        if emf is not None:
+            dv = dv + emf
+        return Solution(self.circuit, self.frequency, V, dv * y[:, None])
+
+
+@dataclass
+class Solution:
+    """Node voltages (nodes × k) and branch currents from n1 to n2 (branches × k) at one frequency."""
+
+    circuit: Circuit
+    frequency: float
+    V: np.ndarray
+    I: np.ndarray
+
+    def between(self, a: str, b: str) -> np.ndarray:
+        """Voltage of point a relative to point b for every source column (NaN when not connected)."""
+        c = self.circuit
+        ia, ib = c.point_node[a], c.point_node[b]
+        _, labels = c.components
+        if labels[ia] != labels[ib]:
+            return np.full(self.V.shape[1], np.nan + 0j)
+        return self.V[ia] - self.V[ib]
+
+
+def _segment_path(plan: Plan, c: Conductor, pos: dict[str, XY]) -> tuple[XY, ...]:
+    pa, pb = pos.get(c.a), pos.get(c.b)
+    if pa is None or pb is None:
+        return ()
+    return (pa,) + tuple(c.route) + (pb,)
+
+
+def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
+    """The electrical network of a plan at its ambient temperature.
+
+    With ``plates`` (default), a metal part of known size and material with
+    two or more positioned fasteners is replaced by its Kron-reduced plate
+    network; otherwise each part is one ideal node.
+    """
+    T = plan.ambient
+    nodes: list[str] = []
+    index: dict[str, int] = {}
+    positions: dict[str, XY] = {}
+
+    def node(name: str, p: XY | None = None) -> int:
+        if name not in index:
+            index[name] = len(nodes)
+            nodes.append(name)
+            if p is not None:
+                positions[name] = p
+        return index[name]
+
+    point_node: dict[str, int] = {}
+    for p in plan.points:
+        point_node[p.name] = node(p.name, p.pos)
+    pos = {p.name: p.pos for p in plan.points if p.pos is not None}
+    metals = {m.name: m for m in plan.metals}
+    conductors = [c for c in plan.conductors if c.connects]
+
+    # fastening positions on each metal part
+    fasteners: dict[str, list[tuple[str, XY]]] = {m: [] for m in metals}
+    for c in conductors:
+        for end, other in ((c.a, c.b), (c.b, c.a)):
+            if end in metals:
+                where = pos.get(other) if other not in metals else (c.route[0] if c.route else None)
+                if where is None and other in metals:
+                    m = metals[end]
+                    if m.size is not None:
+                        where = (m.origin[0] + m.size[0] / 2, m.origin[1] + m.size[1] / 2)
+                fasteners[end].append((c.name, where))
+
+    branches: list[Branch] = []
+    plate_notes: dict[str, dict] = {}
+    metal_contact: dict[tuple[str, str], int] = {}      # (metal, conductor) -> node
+    metal_nodes: dict[str, tuple[int, ...]] = {}
+    for name, m in metals.items():
+        fs = fasteners[name]
+        gridable = (plates and m.size is not None and m.material in MATERIALS and len(fs) >= 2
+                    and all(w is not None for _, w in fs) and len(fs) <= 60)
+        if not gridable:
+            point_node[name] = node(name)
+            metal_nodes[name] = (point_node[name],)
+            for cname, _ in fs:
+                metal_contact[(name, cname)] = point_node[name]
+            plate_notes[name] = {"model": "ideal node", "fasteners": len(fs)}
+            continue
+        # distinct contact positions (fasteners at one spot share a node)
+        spots: list[XY] = []
+        spot_of: dict[str, int] = {}
+        for cname, w in fs:
+            for i, s in enumerate(spots):
+                if math.dist(s, w) < 1e-6:
+                    spot_of[cname] = i
+                    break
+            else:
+                spot_of[cname] = len(spots)
+                spots.append(w)
+        spot_nodes = [node(f"{name}@{i + 1}", s) for i, s in enumerate(spots)]
+        point_node[name] = spot_nodes[0]
+        metal_nodes[name] = tuple(spot_nodes)
+        for cname, _ in fs:
+            metal_contact[(name, cname)] = spot_nodes[spot_of[cname]]
+        if len(spots) >= 2:
+            x0 = min(m.origin[0], m.origin[0] + m.size[0])
+            y0 = min(m.origin[1], m.origin[1] + m.size[1])
+            rho = resistivity(m.material, T)
+            res = reduce_plate(m.size[0], m.size[1], m.thickness, rho,
+                               [(s[0] - x0, s[1] - y0) for s in spots], [nodes[i] for i in spot_nodes])
+            G = res.conductance
+            for i in range(len(spots)):
+                for j in range(i + 1, len(spots)):
+                    g = -G[i, j]
+                    if g > 1e-12 * abs(G[i, i]):
+                        branches.append(Branch(spot_nodes[i], spot_nodes[j], f"plate:{name}:{i + 1}~{j + 1}",
+                                               1.0 / g, path=(spots[i], spots[j]), metal=name))
+            plate_notes[name] = {"model": "plate grid", "fasteners": len(spots), "grid_step_mm": res.step * 1e3,
+                                 "estimated_error": res.error}
+        else:
+            plate_notes[name] = {"model": "one fastening spot", "fasteners": len(fs)}
+
+    for c in conductors:
+        r, ind, radius = conductor_resistance(c, T)
+        ends = []
+        for end in (c.a, c.b):
+            ends.append(metal_contact[(end, c.name)] if end in metals else point_node[end])
+        rho = resistivity(c.material if c.material in MATERIALS else "copper", T)
+        path = _segment_path(plan, c, pos)
+        if not path:
+            pa = positions.get(nodes[ends[0]])
+            pb = positions.get(nodes[ends[1]])
+            if pa is not None and pb is not None and c.kind == "bolt":
+                path = (pa, pb)
+        branches.append(Branch(ends[0], ends[1], c.name, r, ind, radius, rho,
+                               c.capacitance if c.kind == "lift" else None, path, c.name))
+    return Circuit(nodes, branches, positions, plate_notes, point_node, metal_nodes)

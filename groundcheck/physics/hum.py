@@ -1,0 +1,314 @@
+"""Hum and buzz budget: what each source puts at each channel's output, and whether it is heard.
+
+Sources: rectifier charging currents (simulated, all harmonics up to the set
+limit), stated currents, AC heater returns through the ground system, and the
+EMF that each field source induces in each listed loop.  For every frequency
+the circuit is factorised once and solved for all sources together.
+
+Combining: rectifiers on the same mains have phases computed from the same
+mains reference, so they add as phasors; every other source (each stated
+current, each heater, each field source) has a phase unknown relative to the
+rest and adds in power.  Within one field source the loops add as phasors.
+A stage's output share is its pair voltage times its gain; the stages of a
+channel are taken in phase (worst case).
+
+References: ISO 226:2003 (threshold of hearing); see :mod:`groundcheck.physics.coupling`
+(reciprocity) and :mod:`groundcheck.physics.pickup` (Faraday's law, dipole field).
+"""
+
+from __future__ import annotations
+
+import math
+from collections import defaultdict
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
+from .hearing import dbv, spl_at_listener, threshold_of_hearing
+from .pickup import emf as emf_of, loop_flux, min_distance
+from .sweep import map_frequencies
+
+__all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]
+
+
+#: output voltages below this (V) are numerical noise and shown as zero (−240 dBV)
+FLOOR_V = 1e-12
+
+#: conductors named per source and stage as hum contributors (the rest are summed)
+TOP_SHARES = 10
+
+#: conductors listed per source in the JSON ``network`` section (the largest currents)
+NETWORK_ROWS = 50
+
+#: crosstalk is not shown below this (dB)
+CROSSTALK_FLOOR_DB = -200.0
+
+
+@dataclass(frozen=True)
+class HumOptions:
+    max_frequency: float = 5000.0        # Hz, highest harmonic analysed
+    contributor_level: float = -100.0    # dBV at the output: contributors above it become findings
+    crosstalk_limit: float = -60.0       # dB at 1 kHz: worse is a finding
+
+
+@dataclass
+class ChannelHum:
+    channel: str
+    spectrum: list[dict]                 # per frequency: volts, dbv, spl, threshold, margin
+    total_v: float
+    rated_output: float
+    contributors: list[dict]
+    audible: bool | None
+    margin_db: float | None              # worst SPL − threshold, dB (positive: audible)
+
+    @property
+    def total_dbv(self) -> float:
+        return dbv(self.total_v)
+
+    @property
+    def signal_to_hum(self) -> float:
+        return math.inf if self.total_v <= 0 else 20 * math.log10(self.rated_output / self.total_v)
+
+    def as_dict(self) -> dict:
+        return {"channel": self.channel, "total_v": self.total_v, "total_dbv": _r(self.total_dbv),
+                "signal_to_hum_db": _r(self.signal_to_hum), "rated_output_v": self.rated_output,
+                "audible": self.audible, "margin_db": _r(self.margin_db), "spectrum": self.spectrum,
+                "contributors": self.contributors}
+
+
+def _r(x, d=2):
+    if x is None:
+        return None
+    if isinstance(x, float) and not math.isfinite(x):
+        return None
+    return round(float(x), d)
+
+
+@dataclass
+class HumResult:
+    channels: dict[str, ChannelHum]
+    rectifiers: list
+    loops: list[dict]
+    crosstalk: list[dict]
+    frequencies: list[float]
+    network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
+    notes: list[str] = field(default_factory=list)
+
+    def as_dict(self) -> dict:
+        return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
+                "rectifiers": [r.as_dict() for r in self.rectifiers], "loops": self.loops,
+                "crosstalk": self.crosstalk, "notes": self.notes}
+
+
+def _emf_columns(circuit, loops, fields, f0, f, names, flux):
+    """Series-EMF columns (branches × k) at frequency f: one per (loop, field source) with a harmonic at f.
+
+    ``names``: conductor name -> branch index; ``flux``: (loop index, source name) -> the source's flux through the loop, Wb rms."""
+    cols, meta = [], []
+    for li, info in enumerate(loops):
+        if info.polygon is None:
+            continue
+        lp = info.loop
+        chord = lp.edges[lp.chord]
+        bi = names.get(chord)
+        if bi is None:
+            continue
+        b = circuit.branches[bi]
+        start = lp.nodes[lp.chord]
+        forward = b.n1 == circuit.point_node.get(start) or b.n1 in circuit.nodes_of_metal(start)
+        for src in fields:
+            scale = {1: 1.0, **{n: ratio for n, ratio in src.harmonics}}
+            for n, ratio in scale.items():
+                if abs(n * f0 - f) > 1e-9:
+                    continue
+                phi = flux[(li, src.name)] * ratio
+                e = np.zeros(len(circuit.branches), dtype=complex)
+                e[bi] = -1j * 2 * math.pi * f * phi * (1.0 if forward else -1.0)
+                cols.append(e)
+                meta.append((li, src.name, phi))
+    return (np.array(cols).T if cols else np.zeros((len(circuit.branches), 0))), meta
+
+
+@dataclass
+class _FrequencyPart:
+    """What one frequency adds to the budget (merged in frequency order by :func:`hum_budget`)."""
+
+    out: list = field(default_factory=list)          # (channel, source group, phasor at the output)
+    contrib: list = field(default_factory=list)      # (channel, contributor label, phasor)
+    loops: list = field(default_factory=list)        # (loop index, field source, emf V, loop current A, per-stage phasors)
+    network: list = field(default_factory=list)      # rows of the JSON ``network`` section
+    crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
+
+
+def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOptions = HumOptions(), jobs: int = 1) -> HumResult:
+    """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk.
+
+    Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
+    are shared among that many processes (:mod:`groundcheck.physics.sweep`), with the same result.
+    """
+    f0 = plan.frequency
+    sources = plan_sources(plan, rectifier_results, options.max_frequency)
+    hum_sources = [s for s in sources if s.kind != "signal"]
+    signal_sources = [s for s in sources if s.kind == "signal"]
+    stages = list(plan.stages)
+    channels = sorted({s.channel for s in stages})
+    listening = plan.listening
+    rated = listening.rated_output if listening else 1.0
+    owners = branch_owner(circuit)
+    branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
+    fields = {x.name: x for x in plan.fields}
+    notes = []
+    if listening is None:
+        notes.append("no listening context: levels are against a rated output of 1 V and no audibility verdict is given")
+    elif listening.sensitivity is None:
+        notes.append("listening context has no speaker sensitivity: no audibility verdict is given")
+    _, labels = circuit.components
+    valid_stage = [labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages]
+    # least-resistance paths of the stages: only loop pickup reads them (one shortest-path search each)
+    paths = [pair_path(circuit, s.a, s.b) if ok and loops and plan.fields else [] for s, ok in zip(stages, valid_stage)]
+    freqs = sorted({f for s in hum_sources for f in s.parts if f > 0} |
+                   ({n * f0 for src in plan.fields for n in [1] + [h for h, _ in src.harmonics]} if loops else set()))
+    freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
+    xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else options.max_frequency})
+    crosstalk_wanted = bool(signal_sources) and len(channels) > 1 and bool(stages)
+    gains = np.array([10 ** (s.gain / 20) for s in stages])
+    valid_idx = np.flatnonzero(valid_stage) if stages else np.zeros(0, dtype=int)
+    # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the module doc)
+    tests = channel_tests(circuit, [stages[k] for k in valid_idx], channels)
+    flux = {(li, src.name): loop_flux(src, info.polygon)
+            for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
+
+    def at_frequency(f: float) -> _FrequencyPart:
+        part = _FrequencyPart()
+        fac = circuit.at(f)
+        active = [s for s in hum_sources if s.parts.get(f, 0) != 0] if f in freqs else []
+        if active and stages and valid_idx.size:
+            both = fac.solve(np.hstack([source_injections(circuit, active, f), tests]))
+            W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
+            TC = both.I[:, len(active):]                                 # branches × channels
+            for ci, ch in enumerate(channels):
+                shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
+                v_all = shares_all.sum(axis=0)
+                for si, s in enumerate(active):
+                    group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
+                    v_out = v_all[si]
+                    if v_out == 0:
+                        continue
+                    part.out.append((ch, group, v_out))
+                    shares = shares_all[:, si]
+                    mags = np.abs(shares)
+                    # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
+                    top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
+                    top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
+                    for bi in top:
+                        part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
+                    rest = v_out - shares[top].sum()
+                    if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
+                        part.contrib.append((ch, ("conductor", "other conductors", group), rest))
+            for si, s in enumerate(active):
+                if s.kind == "rectifier" and abs(f - 2 * f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
+                    I = both.I[:, si]
+                    sig = np.flatnonzero(np.abs(I) > 1e-3 * abs(s.parts[f]))
+                    sig = sig[np.argsort(-np.abs(I[sig]), kind="stable")][:NETWORK_ROWS]
+                    part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
+                                         "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
+                                                         "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
+        E, meta = _emf_columns(circuit, loops, plan.fields, f0, f, branch_index, flux) if (loops and f in freqs) else (None, [])
+        if meta:
+            sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
+            drops = np.zeros((len(stages), E.shape[1]), dtype=complex)
+            for k in range(len(stages)):
+                if valid_stage[k]:
+                    drops[k] = path_drop(fac, sol, paths[k]) * gains[k]
+            for col, (li, src_name, phi) in enumerate(meta):
+                chord_i = branch_index[loops[li].loop.edges[loops[li].loop.chord]]
+                part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
+        if crosstalk_wanted and f in xt_freqs:
+            J = np.zeros((len(circuit.nodes), len(signal_sources)), dtype=complex)
+            for k, s in enumerate(signal_sources):
+                amp = sum(abs(v) for v in s.parts.values())
+                J[circuit.point_node[s.a], k] += amp
+                J[circuit.point_node[s.b], k] -= amp
+            sol = fac.solve(J)
+            for si, s in enumerate(signal_sources):
+                for k, st in enumerate(stages):
+                    if valid_stage[k] and st.channel != (s.channel or ""):
+                        part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k]))
+        return part
+
+    # merge the frequencies in ascending order: per channel, per frequency: group -> phasor at the output
+    out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}
+    contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}   # (label) -> f -> phasor
+    loop_rows: dict[int, dict] = {}
+    network_rows: list[dict] = []
+    crosstalk_raw = defaultdict(complex)
+    solve_at = sorted(set(freqs) | (set(xt_freqs) if crosstalk_wanted else set()))
+    for f, part in zip(solve_at, map_frequencies(at_frequency, solve_at, jobs)):
+        for ch, group, v in part.out:
+            out[ch][f][group] += v
+        for ch, label, v in part.contrib:
+            contrib[ch][label][f] += v
+        network_rows.extend(part.network)
+        for li, src_name, emf_v, current, drops in part.loops:
+            info = loops[li]
+            row = loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
+                                            "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
+                                            "sources": {}})
+            entry = row["sources"].get(src_name)
+            if entry is None:
+                src = fields[src_name]
+                entry = row["sources"][src_name] = {
+                    "flux_density_equiv_t": abs(flux[(li, src_name)]) / info.area if info.area else None,
+                    "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
+            entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
+            group = f"field:{src_name}"
+            label = ("loop", f"loop {li + 1}", group)
+            for k, st in enumerate(stages):
+                if valid_stage[k]:
+                    out[st.channel][f][group] += drops[k]
+                    contrib[st.channel][label][f] += drops[k]
+        for src_ch, dst_ch, v in part.crosstalk:
+            crosstalk_raw[(src_ch, dst_ch, f)] += v
+
+    result_channels = {}
+    for ch in channels:
+        spectrum = []
+        total2 = 0.0
+        worst = None
+        for f in freqs:
+            groups = out[ch].get(f, {})
+            v = math.sqrt(sum(abs(p) ** 2 for p in groups.values()))
+            v = v if v >= FLOOR_V else 0.0
+            total2 += v * v
+            row = {"frequency_hz": f, "volts": v, "dbv": _r(dbv(v))}
+            if listening is not None and listening.sensitivity is not None:
+                spl = spl_at_listener(v, listening.amp_gain, listening.sensitivity, listening.impedance, listening.distance)
+                thr = threshold_of_hearing(f)
+                row.update(spl_db=_r(spl), threshold_db=thr, margin_db=_r(spl - thr))
+                if math.isfinite(spl) and (worst is None or spl - thr > worst):
+                    worst = spl - thr
+            spectrum.append(row)
+        total = math.sqrt(total2)
+        clist = []
+        for (kind, name, group), per_f in contrib[ch].items():
+            lvl = math.sqrt(sum(abs(p) ** 2 for p in per_f.values()))
+            if lvl < FLOOR_V:
+                continue
+            clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl, "dbv": _r(dbv(lvl))})
+        tot_c = sum(c["volts"] ** 2 for c in clist) or 1.0
+        for c in clist:
+            c["share_pct"] = round(100 * c["volts"] ** 2 / tot_c, 1)
+        clist.sort(key=lambda c: (-c["volts"], c["element"]))
+        audible = None if worst is None else worst > 0
+        if listening is not None and listening.sensitivity is not None and worst is None:
+            audible, worst = False, None
+        result_channels[ch] = ChannelHum(ch, spectrum, total, rated, clist, audible, worst)
+    crosstalk = []
+    for (src_ch, dst_ch, f), v in sorted(crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])):
+        crosstalk.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
+                          "db": _r(max(CROSSTALK_FLOOR_DB, 20 * math.log10(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
+    if len(channels) > 1 and not signal_sources:
+        notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
+    return HumResult(result_channels, list(rectifier_results.values()), [loop_rows[k] for k in sorted(loop_rows)],
+                     crosstalk, freqs, network_rows, notes)

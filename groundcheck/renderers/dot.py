@@ -1,0 +1,203 @@
+"""Drawings of a plan as Graphviz DOT source: the physical view and the topology view.
+
+Visual scheme (groundcheck's own):
+
+- metal parts: pale rounded outlines at their size and place;
+- points: small discs; a point fastened to metal is a filled square ("stud"); a star point is a
+  star; the inlet's protective terminal is a green triangle;
+- conductors by role: protective green-and-yellow striped (the trade's colours), supply return
+  orange, signal reference blue, shield grey dashed, fastening bond dark dotted, lift network
+  purple dashed, heater ochre;
+- each ground loop is underlaid with a translucent amber band; where it runs through a metal part
+  the straight line between the two fastenings is drawn dashed;
+- a conductor or point named in a finding is haloed red and labelled with the finding codes;
+- a legend sits beside the drawing.
+
+Every string from the plan is quoted for DOT (and Graphviz escapes it again in SVG).
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+
+from ..analysis import Result
+
+__all__ = ["physical_dot", "topology_dot", "dot_quote", "ROLE_STYLE"]
+
+ROLE_STYLE = {
+    "protective": {"color": "#2f7d32:#f2c200:#2f7d32", "penwidth": "2.2"},
+    "return": {"color": "#d2691e", "penwidth": "2.0"},
+    "signal": {"color": "#1f5fa8", "penwidth": "1.6"},
+    "shield": {"color": "#7a7a7a", "penwidth": "1.4", "style": "dashed"},
+    "bond": {"color": "#404040", "penwidth": "1.2", "style": "dotted"},
+    "heater": {"color": "#b8860b", "penwidth": "1.6"},
+}
+LIFT_STYLE = {"color": "#7b3fa0", "penwidth": "1.8", "style": "dashed"}
+LOOP_HALO = "#f5a80066"
+PROBLEM_HALO = "#e0303088"
+
+
+def dot_quote(text: str) -> str:
+    """A DOT double-quoted string: backslashes and quotes escaped, line breaks flattened."""
+    s = str(text).replace("\\", "\\\\").replace('"', '\\"').replace("\r", " ").replace("\n", " ")
+    return f'"{s}"'
+
+
+def _attrs(d: dict) -> str:
+    return ", ".join(f"{k}={dot_quote(v)}" for k, v in d.items())
+
+
+def _problems(result: Result):
+    """Finding codes per element name (conductors, points, parts), sorted."""
+    marks: dict[str, set[str]] = defaultdict(set)
+    for f in result.findings:
+        if f.severity == "note":
+            continue
+        for e in f.elements:
+            marks[e].add(f.code)
+    return {k: sorted(v) for k, v in marks.items()}
+
+
+def _legend(x: float, y: float) -> str:
+    rows = [("#2f7d32", "protective earth (green-and-yellow)"), ("#d2691e", "supply return"),
+            ("#1f5fa8", "signal reference"), ("#7a7a7a", "shield (dashed)"), ("#404040", "fastening (dotted)"),
+            ("#7b3fa0", "lift network (dashed)"), ("#f5a800", "ground loop (band)"), ("#e03030", "problem (halo, codes)")]
+    cells = "".join(f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows)
+    label = f'<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999"><TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}</TABLE>>'
+    return f'  legend [shape=plaintext, fontsize=9, pos="{x:.1f},{y:.1f}!", label={label}];'
+
+
+def physical_dot(result: Result) -> str:
+    """The physical view: metal parts, points at their positions, conductors along their routes (neato)."""
+    plan = result.plan
+    marks = _problems(result)
+    positioned = {p.name: p.pos for p in plan.points if p.pos is not None}
+    xs = [q[0] for q in positioned.values()] + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
+    ys = [q[1] for q in positioned.values()] + [m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])]
+    if not xs:
+        return topology_dot(result)
+    x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
+    extent = max(x1 - x0, y1 - y0, 1e-3)
+    scale = 720.0 / extent                      # points per metre: the drawing is about 10 in across
+
+    def P(q):
+        return ((q[0] - x0) * scale + 20, (q[1] - y0) * scale + 20)
+
+    lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
+             'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72];',
+             '  node [fontname=Helvetica, fontsize=8];', '  edge [fontname=Helvetica, fontsize=8];']
+    for m in plan.metals:
+        if m.size is None:
+            continue
+        w, h = abs(m.size[0]) * scale / 72, abs(m.size[1]) * scale / 72
+        cx = m.origin[0] + m.size[0] / 2
+        cy = m.origin[1] + m.size[1] / 2
+        px, py = P((cx, cy))
+        style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8" if m.touchable else "#ebebeb",
+                 "color": "#e03030" if m.name in marks else "#9a9a9a", "width": f"{w:.3f}", "height": f"{h:.3f}",
+                 "fixedsize": "true", "label": m.name + (" [" + ", ".join(marks[m.name]) + "]" if m.name in marks else ""),
+                 "labelloc": "b", "fontcolor": "#666666", "pos": f"{px:.1f},{py:.1f}!"}
+        lines.append(f"  {dot_quote('metal:' + m.name)} [{_attrs(style)}];")
+    fastened = {c.a if c.b in {m.name for m in plan.metals} else c.b
+                for c in plan.conductors if c.kind == "bolt" and ((c.a in {m.name for m in plan.metals}) != (c.b in {m.name for m in plan.metals}))}
+    for name, q in positioned.items():
+        p = plan.point(name)
+        px, py = P(q)
+        style = {"shape": "circle", "width": "0.09", "height": "0.09", "style": "filled", "fillcolor": "#ffffff",
+                 "color": "#333333", "label": "", "xlabel": name, "pos": f"{px:.1f},{py:.1f}!"}
+        if p.kind == "star":
+            style.update(shape="star", width="0.22", height="0.22", fillcolor="#ffd54f")
+        elif name == "mains.pe":
+            style.update(shape="triangle", width="0.18", height="0.18", fillcolor="#2f7d32")
+        elif name in fastened:
+            style.update(shape="square", width="0.11", height="0.11", fillcolor="#555555")
+        if name in marks:
+            style.update(color="#e03030", penwidth="2.5", xlabel=f"{name} [{', '.join(marks[name])}]", fontcolor="#b00000")
+        lines.append(f"  {dot_quote(name)} [{_attrs(style)}];")
+    loop_members = defaultdict(int)
+    for lp in result.loops:
+        for e in lp.loop.edges:
+            loop_members[e] += 1
+    way = 0
+    for c in plan.conductors:
+        if c.kind == "bolt" or not c.connects and c.kind != "shield":
+            continue
+        if c.a not in positioned or c.b not in positioned:
+            continue
+        chain = [c.a]
+        for w_ in c.route:
+            way += 1
+            wname = f"via:{c.name}:{way}"
+            px, py = P(w_)
+            lines.append(f"  {dot_quote(wname)} [shape=point, width=0.01, label=\"\", pos=\"{px:.1f},{py:.1f}!\"];")
+            chain.append(wname)
+        chain.append(c.b)
+        style = dict(LIFT_STYLE if c.kind == "lift" else ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
+        if c.kind == "shield" and not c.connects:
+            style["style"] = "dotted"
+        # halos are stripes of one edge (a colour list), so they overlay the conductor exactly
+        base = style["color"]
+        if c.name in marks:
+            base = f"{PROBLEM_HALO}:{base}:{PROBLEM_HALO}"
+        if loop_members.get(c.name):
+            base = f"{LOOP_HALO}:{base}:{LOOP_HALO}"
+        style["color"] = base
+        for k, (u, v) in enumerate(zip(chain, chain[1:])):
+            seg = dict(style)
+            if k == (len(chain) - 2) // 2:
+                label = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
+                seg.update(label=label, fontcolor="#b00000" if c.name in marks else "#333333")
+            lines.append(f"  {dot_quote(u)} -- {dot_quote(v)} [{_attrs(seg)}];")
+    # loops through a metal part: the straight line between the fastenings it enters and leaves by
+    metals = {m.name for m in plan.metals}
+    for i, lp in enumerate(result.loops, 1):
+        n = len(lp.loop.nodes)
+        for j, node in enumerate(lp.loop.nodes):
+            if node in metals:
+                before, after = lp.loop.nodes[j - 1], lp.loop.nodes[(j + 1) % n]
+                if before in positioned and after in positioned:
+                    lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} [color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
+                                 f"label={dot_quote(f'loop {i} through {node}')}, fontcolor=\"#a06000\"];")
+    for f in plan.fields:
+        px, py = P(f.pos)
+        lines.append(f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, style=filled, "
+                     f"fillcolor=\"#fde3e3\", color=\"#c04040\", label=\"\", xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
+                     f"pos=\"{px:.1f},{py:.1f}!\"];")
+    lines.append(_legend((x1 - x0) * scale + 150, 80))
+    lines.append("}")
+    return "\n".join(lines) + "\n"
+
+
+def topology_dot(result: Result) -> str:
+    """The topology view, laid out automatically: every point, part and conductor, for plans without positions."""
+    plan = result.plan
+    marks = _problems(result)
+    lines = ["graph topology {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
+             "rankdir=LR, overlap=false];", "  node [fontname=Helvetica, fontsize=9];", "  edge [fontname=Helvetica, fontsize=8];"]
+    for m in plan.metals:
+        style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8", "label": m.name,
+                 "color": "#e03030" if m.name in marks else "#9a9a9a"}
+        lines.append(f"  {dot_quote(m.name)} [{_attrs(style)}];")
+    for p in plan.points:
+        label = p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")
+        style = {"shape": "ellipse", "label": label}
+        if p.kind == "star":
+            style.update(shape="star", width="0.4", height="0.4", fixedsize="true", label="", xlabel=label,
+                         style="filled", fillcolor="#ffd54f")
+        elif p.name == "mains.pe":
+            style.update(shape="triangle", style="filled", fillcolor="#bfe3c0")
+        if p.name in marks:
+            style.update(color="#e03030", penwidth="2")
+        lines.append(f"  {dot_quote(p.name)} [{_attrs(style)}];")
+    for c in plan.conductors:
+        style = dict(LIFT_STYLE if c.kind == "lift" else ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
+        style["label"] = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
+        if not c.connects:
+            style["style"] = "dotted"
+        if c.name in marks:
+            style["fontcolor"] = "#b00000"
+            style["color"] = f"{PROBLEM_HALO}:{style['color']}:{PROBLEM_HALO}"
+        lines.append(f"  {dot_quote(c.a)} -- {dot_quote(c.b)} [{_attrs(style)}];")
+    lines.append(_legend(0, 0).replace(', pos="0.0,0.0!"', ""))
+    lines.append("}")
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,194 @@
+"""The HTML report: one self-contained file (no network fetches) to read, print and share.
+
+Summary, findings, both drawings inline (SVG), a hum spectrum chart per channel (output level per
+harmonic against the audibility limit) and the protective-earth table.  Every string from the plan
+is escaped; the drawings' text is escaped by Graphviz.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from html import escape
+
+from ..core.version import __version__
+from ..analysis import Result
+from ..rules.catalogue import SEVERITIES
+from ..physics.hearing import threshold_of_hearing
+from .text import CAUTION
+
+__all__ = ["html_report", "spectrum_svg"]
+
+CSS = """
+body{font-family:system-ui,Helvetica,Arial,sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}
+h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.15em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
+.caution{background:#fff6e0;border-left:4px solid #e0a000;padding:.5em .8em;font-size:.9em}
+.notice{background:#ffe8e0;border-left:4px solid #c03000;padding:.4em .8em}
+table{border-collapse:collapse;margin:.5em 0;font-size:.9em}td,th{border:1px solid #ccc;padding:.25em .6em;text-align:left}
+th{background:#f2f2f2}td.num{text-align:right;font-variant-numeric:tabular-nums}
+.sev{font-weight:bold;padding:0 .4em;border-radius:3px;color:#fff}.danger{background:#b00020}.fault{background:#d9480f}
+.warning{background:#b08800}.note{background:#1f6f8b}.fix{color:#225522}.fig{color:#555;font-size:.85em}
+.drawing svg{max-width:100%;height:auto}.ok{color:#227722}.bad{color:#b00020;font-weight:bold}
+@media print{body{margin:0;max-width:none}.drawing{page-break-inside:avoid}h2{page-break-after:avoid}}
+"""
+
+
+def _f(x, fmt="{:.3g}", dash="–"):
+    if x is None or (isinstance(x, float) and not math.isfinite(x)):
+        return dash
+    return fmt.format(x)
+
+
+def _inline_svg(svg: bytes | str | None) -> str:
+    if not svg:
+        return "<p>(no drawing: no renderer available)</p>"
+    text = svg.decode("utf-8") if isinstance(svg, bytes) else svg
+    text = re.sub(r"<\?xml[^>]*\?>", "", text)
+    text = re.sub(r"<!DOCTYPE[^>]*>", "", text)
+    text = re.sub(r"<!--.*?-->", "", text, flags=re.S)
+    return text.strip()
+
+
+def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
+    """A chart of one channel's hum: a stem per harmonic, and the threshold of hearing as a line.
+
+    With a listening context the axis is dB SPL at the listener; otherwise dBV at the output.
+    """
+    W, H, L, R, T, B = 640, 260, 50, 10, 15, 35
+    rows = [r for r in channel.spectrum if r["volts"] > 0]
+    key = "spl_db" if listening else "dbv"
+    vals = [r[key] for r in rows if r.get(key) is not None]
+    thr = [threshold_of_hearing(f) for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000)]
+    lo_f, hi_f = 20.0, max(1000.0, max_freq * 1.2)
+    if listening:
+        top = max(vals + thr[:3] + [20.0])
+        bottom = min(vals + [-10.0]) if vals else -10.0
+        bottom = max(bottom, top - 120)
+    else:
+        top = max(vals + [-40.0]) + 5
+        bottom = top - 120
+
+    def X(f):
+        return L + (math.log10(f) - math.log10(lo_f)) / (math.log10(hi_f) - math.log10(lo_f)) * (W - L - R)
+
+    def Y(v):
+        v = min(max(v, bottom), top)
+        return T + (top - v) / (top - bottom) * (H - T - B)
+
+    out = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" role="img" '
+           f'aria-label="hum spectrum of channel {escape(channel.channel)}">',
+           f'<rect x="{L}" y="{T}" width="{W - L - R}" height="{H - T - B}" fill="#fbfbfb" stroke="#bbb"/>']
+    for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000):
+        if f <= hi_f:
+            out.append(f'<line x1="{X(f):.1f}" y1="{T}" x2="{X(f):.1f}" y2="{H - B}" stroke="#e4e4e4"/>'
+                       f'<text x="{X(f):.1f}" y="{H - B + 14}" font-size="10" text-anchor="middle">{f if f < 1000 else str(f // 1000) + "k"}</text>')
+    step = 20
+    v = math.ceil(bottom / step) * step
+    while v <= top:
+        out.append(f'<line x1="{L}" y1="{Y(v):.1f}" x2="{W - R}" y2="{Y(v):.1f}" stroke="#eee"/>'
+                   f'<text x="{L - 4}" y="{Y(v) + 3:.1f}" font-size="10" text-anchor="end">{v:.0f}</text>')
+        v += step
+    out.append(f'<text x="{(W + L) / 2:.0f}" y="{H - 4}" font-size="11" text-anchor="middle">frequency, Hz</text>')
+    out.append(f'<text x="12" y="{(H - B + T) / 2:.0f}" font-size="11" text-anchor="middle" '
+               f'transform="rotate(-90 12 {(H - B + T) / 2:.0f})">{"dB SPL at the listener" if listening else "dBV at the output"}</text>')
+    if listening:
+        fs = [lo_f * (hi_f / lo_f) ** (i / 60) for i in range(61)]
+        pts = " ".join(f"{X(f):.1f},{Y(threshold_of_hearing(f)):.1f}" for f in fs)
+        out.append(f'<polyline points="{pts}" fill="none" stroke="#2a8a2a" stroke-width="2" stroke-dasharray="5,3"/>'
+                   f'<text x="{W - R - 4}" y="{T + 12}" font-size="10" text-anchor="end" fill="#2a8a2a">threshold of hearing (ISO 226)</text>')
+    for r in rows:
+        if r.get(key) is None:
+            continue
+        audible = listening and r.get("margin_db") is not None and r["margin_db"] > 0
+        color = "#c0392b" if audible else "#2c6fbb"
+        out.append(f'<line x1="{X(r["frequency_hz"]):.1f}" y1="{Y(bottom):.1f}" x2="{X(r["frequency_hz"]):.1f}" '
+                   f'y2="{Y(r[key]):.1f}" stroke="{color}" stroke-width="3"><title>{r["frequency_hz"]:g} Hz: '
+                   f'{r[key]:.1f}{" dB SPL" if listening else " dBV"}</title></line>')
+    out.append("</svg>")
+    return "".join(out)
+
+
+def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes | None, renderer: str = "") -> str:
+    plan = result.plan
+    counts = result.counts()
+    worst = result.worst()
+    e = escape
+    parts = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
+             f"<title>groundcheck: {e(plan.title)}</title>",
+             '<meta name="viewport" content="width=device-width, initial-scale=1">',
+             f"<style>{CSS}</style></head><body>",
+             f"<h1>{e(plan.title)}</h1>",
+             f"<p>Plan <code>{e(plan.file)}</code> — checked by groundcheck {e(__version__)}.</p>",
+             f'<p class="caution">{e(CAUTION)}</p>', "<h2>Summary</h2>"]
+    verdict = "clean" if worst is None else f"worst finding: {worst}"
+    parts.append(f'<p><b>Verdict:</b> <span class="{"ok" if worst is None else "bad"}">{e(verdict)}</span>. '
+                 + ", ".join(f"{counts[s]} {s}" for s in SEVERITIES) + f"; {result.loop_total} independent ground loops.</p>")
+    for notice in result.notices:
+        parts.append(f'<p class="notice"><b>Notice:</b> {e(notice)}</p>')
+    if result.safety is not None and result.safety.parts:
+        w = max(result.safety.parts, key=lambda p: p.path_resistance)
+        ok = w.path_resistance <= result.safety.limit
+        parts.append(f'<p><b>Protective earth:</b> <span class="{"ok" if ok else "bad"}">worst path '
+                     f"{w.path_resistance * 1e3:.2f} mΩ to {e(w.part)} (limit {result.safety.limit * 1e3:.0f} mΩ)</span>.</p>")
+    if result.hum is not None:
+        parts.append('<table id="hum-summary"><tr><th>channel</th><th>hum at output</th><th>signal-to-hum</th>'
+                     "<th>verdict</th><th>margin</th><th>main contributor</th></tr>")
+        for ch, h in result.hum.channels.items():
+            verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
+            top = h.contributors[0]["element"] if h.contributors else "–"
+            parts.append(f"<tr><td>{e(ch)}</td><td class=num>{_f(h.total_dbv, '{:.1f} dBV')}</td>"
+                         f"<td class=num>{_f(h.signal_to_hum, '{:.1f} dB')}</td><td>{verdict}</td>"
+                         f"<td class=num>{_f(h.margin_db, '{:+.1f} dB')}</td><td>{e(top)}</td></tr>")
+        parts.append("</table>")
+    parts.append('<h2>Findings</h2><table id="findings"><tr><th>severity</th><th>code</th><th>where</th><th>finding</th></tr>')
+    for f in result.findings:
+        figs = ", ".join(f"{e(str(k))} = {e(str(v))}" for k, v in f.figures.items())
+        parts.append(f'<tr><td><span class="sev {f.severity}">{f.severity}</span></td><td>{f.code}</td>'
+                     f"<td>{e(str(f.location))}</td><td>{e(f.message)}"
+                     + (f'<div class="fig">{figs}</div>' if figs else "")
+                     + (f'<div class="fix">fix: {e(f.fix)}</div>' if f.fix else "") + "</td></tr>")
+    parts.append("</table>")
+    parts.append(f'<h2>Physical drawing</h2><div class="drawing" id="physical">{_inline_svg(physical_svg)}</div>')
+    parts.append(f'<h2>Topology</h2><div class="drawing" id="topology">{_inline_svg(topology_svg)}</div>')
+    if renderer:
+        parts.append(f'<p class="fig">Drawings rendered by {e(renderer)}.</p>')
+    if result.hum is not None and result.hum.channels:
+        listening = plan.listening is not None and plan.listening.sensitivity is not None
+        parts.append("<h2>Hum and buzz spectrum</h2>")
+        for ch, h in result.hum.channels.items():
+            parts.append(f'<h3>{e(ch)}</h3><div class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>')
+            rows = [r for r in h.spectrum if r["volts"] > 0][:20]
+            parts.append('<table class="spectrum"><tr><th>Hz</th><th>dBV</th><th>dB SPL</th><th>threshold</th><th>margin</th></tr>')
+            for r in rows:
+                parts.append(f"<tr><td class=num>{r['frequency_hz']:g}</td><td class=num>{_f(r['dbv'], '{:.1f}')}</td>"
+                             f"<td class=num>{_f(r.get('spl_db'), '{:.1f}')}</td><td class=num>{_f(r.get('threshold_db'), '{:.1f}')}</td>"
+                             f"<td class=num>{_f(r.get('margin_db'), '{:+.1f}')}</td></tr>")
+            parts.append("</table>")
+    if result.safety is not None and result.safety.parts:
+        sup = result.safety.supply
+        parts.append(f"<h2>Protective earth</h2><p>{e(sup.system)}, external loop {sup.ze:.3g} Ω "
+                     f"({'stated' if sup.ze_stated else 'default'}); maximum disconnection time "
+                     f"{'none below 50 V' if sup.max_time is None else f'{sup.max_time:g} s'} (IEC 60364-4-41 Table 41.1).</p>"
+                     '<table id="protective-earth"><tr><th>part</th><th>path resistance</th>'
+                     "<th>fault current</th><th>touch voltage to earth</th><th>cleared by</th><th>in</th><th>I²t</th></tr>")
+        for p in result.safety.parts:
+            device = "nothing assured" if p.device is None else ("stated in plan" if p.device == "stated" else p.device)
+            parts.append(f"<tr><td>{e(p.part)}</td><td class=num>{p.path_resistance * 1e3:.3g} mΩ</td>"
+                         f"<td class=num>{_f(p.fault_current, '{:.4g} A')}</td><td class=num>{_f(p.touch_voltage, '{:.3g} V')}</td>"
+                         f"<td>{e(device)}</td><td class=num>{_f(p.clear_time, '{:.2g} s')}</td>"
+                         f"<td class=num>{_f(p.i2t, '{:.3g} A²s')}</td></tr>")
+        parts.append("</table>")
+        if result.safety.conductors:
+            parts.append("<table><tr><th>protective conductor</th><th>area</th><th>k</th><th>needs</th><th>survives</th></tr>")
+            for c in result.safety.conductors:
+                parts.append(f"<tr><td>{e(c.conductor)}</td><td class=num>{c.area * 1e6:.4g} mm²</td><td class=num>{c.k:g}</td>"
+                             f"<td class=num>{c.required * 1e6:.4g} mm²</td><td>{'yes' if c.survives else 'NO'}</td></tr>")
+            parts.append("</table>")
+    if result.loops:
+        parts.append('<h2>Ground loops</h2><table id="loops"><tr><th>#</th><th>closed by</th><th>area</th><th>open at</th><th>members</th></tr>')
+        for i, lp in enumerate(result.loops[:200], 1):
+            parts.append(f"<tr><td>{i}</td><td>{e(lp.closed_by)}</td><td class=num>{_f(None if lp.area is None else lp.area * 1e6, '{:.0f} mm²')}</td>"
+                         f"<td>{e(lp.open_at or 'protective: keep closed')}</td><td>{e(' → '.join(lp.loop.nodes))}</td></tr>")
+        parts.append("</table>")
+    parts.append("</body></html>")
+    return "\n".join(parts) + "\n"

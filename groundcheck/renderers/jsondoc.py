@@ -1,0 +1,46 @@
+"""The JSON document of a result: stable keys, no NaN or infinity, the same bytes on every run.
+
+The layout is documented in ``docs/json.md``.
+"""
+
+from __future__ import annotations
+
+import json
+
+from ..analysis import Result
+from ..core.plain import clean
+
+__all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]
+
+#: bumped when a key is renamed or removed (adding keys does not bump it)
+SCHEMA_VERSION = 2
+
+
+def result_document(result: Result) -> dict:
+    """The result as plain data (the JSON document before serialisation)."""
+    plan = result.plan
+    doc = {
+        "groundcheck": {"schema": SCHEMA_VERSION},
+        "plan": {"title": plan.title, "file": plan.file, "files": list(plan.files),
+                 "mains": None if plan.mains is None else {"voltage_v": plan.mains.voltage, "frequency_hz": plan.mains.frequency},
+                 "ambient_c": plan.ambient, "points": len(plan.points), "metal_parts": len(plan.metals),
+                 "conductors": len(plan.conductors), "stages": len(plan.stages), "channels": list(plan.channels)},
+        "summary": {**result.counts(), "worst": result.worst(), "loops_total": result.loop_total,
+                    "notices": list(result.notices)},
+        "findings": [f.as_dict() for f in result.findings],
+        "loops": [lp.as_dict() for lp in result.loops],
+        "protective_earth": None if result.safety is None else result.safety.as_dict(),
+        "hum": None if result.hum is None else result.hum.as_dict(),
+        "coupling": result.coupling,
+        "device_earths": None if result.device_earths is None else [d.as_dict() for d in result.device_earths],
+        "network": None,
+    }
+    if result.circuit is not None:
+        doc["network"] = {"nodes": len(result.circuit.nodes), "branches": len(result.circuit.branches),
+                          "metal_parts": result.circuit.plate_notes,
+                          "sources": result.hum.network if result.hum is not None else []}
+    return clean(doc)
+
+
+def render_json(result: Result) -> str:
+    return json.dumps(result_document(result), indent=2, ensure_ascii=False) + "\n"

@@ -1,0 +1,49 @@
+"""Writing output files safely: atomically, never over an input plan, only where the user said."""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+from ..core.errors import GroundcheckError
+
+__all__ = ["write_atomic", "OutputError"]
+
+
+class OutputError(GroundcheckError):
+    """An output file that may not or cannot be written."""
+
+
+def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> None:
+    """Write ``data`` to ``path`` through a temporary file in the same folder and a rename.
+
+    Refuses to write over any file in ``protect`` (the input plans), and to
+    write into a folder that does not exist.
+    """
+    path = Path(path)
+    target = path.resolve()
+    for p in protect:
+        try:
+            if p.exists() and target.exists() and os.path.samefile(p, target):
+                raise OutputError(f"refusing to write over the input plan {p} (name another output file)")
+        except OSError:
+            continue
+    if target.is_dir():
+        raise OutputError(f"{path} is a folder (name an output file)")
+    folder = target.parent
+    if not folder.is_dir():
+        raise OutputError(f"folder {path.parent} does not exist")
+    mode = "wb" if isinstance(data, bytes) else "w"
+    fd, tmp = tempfile.mkstemp(prefix=".groundcheck-", dir=folder)
+    try:
+        with os.fdopen(fd, mode, **({} if isinstance(data, bytes) else {"encoding": "utf-8", "newline": "\n"})) as fh:
+            fh.write(data)
+        os.chmod(tmp, 0o644)
+        os.replace(tmp, target)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise

@@ -1,0 +1,56 @@
+"""SARIF 2.1.0 output, the open standard for analysis results, so review systems show findings on plan lines.
+
+References: OASIS *Static Analysis Results Interchange Format (SARIF) Version
+2.1.0*, 2020 (sections 3.13 run, 3.19 tool component, 3.27 result, 3.28 location).
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+from ..core.version import __version__
+from ..analysis import Result
+from ..rules.catalogue import RULES
+from .jsondoc import clean
+
+__all__ = ["sarif_document", "render_sarif", "SARIF_SCHEMA"]
+
+SARIF_SCHEMA = "https://json.schemastore.org/sarif-2.1.0.json"
+LEVEL = {"danger": "error", "fault": "error", "warning": "warning", "note": "note"}
+
+
+def _uri(path: str) -> str:
+    if path.startswith("<"):
+        return path.strip("<>")
+    return Path(path).as_posix()
+
+
+def sarif_document(results: list[Result]) -> dict:
+    codes = list(RULES)
+    rules = [{"id": r.code, "name": r.name,
+              "shortDescription": {"text": r.checks.split(".")[0] + "."},
+              "fullDescription": {"text": r.checks},
+              "help": {"text": f"{r.why} Fix: {r.fix} References: {r.references}."},
+              "defaultConfiguration": {"level": LEVEL[r.severity]},
+              "properties": {"severity": r.severity}} for r in RULES.values()]
+    out = []
+    for res in results:
+        for f in res.findings:
+            loc = {"physicalLocation": {"artifactLocation": {"uri": _uri(f.location.file)},
+                                        "region": {"startLine": max(1, f.location.line),
+                                                   "startColumn": max(1, f.location.column)}}}
+            out.append({"ruleId": f.code, "ruleIndex": codes.index(f.code), "level": LEVEL[f.severity],
+                        "message": {"text": f"{f.message}. Fix: {f.fix}" if f.fix else f.message},
+                        "locations": [loc],
+                        "properties": {"severity": f.severity, "elements": list(f.elements), "figures": f.figures}})
+    return clean({"$schema": SARIF_SCHEMA, "version": "2.1.0",
+                  "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
+                                                "semanticVersion": __version__, "rules": rules}},
+                            "columnKind": "unicodeCodePoints",
+                            "properties": {"notices": [n for res in results for n in res.notices]},
+                            "results": out}]})
+
+
+def render_sarif(results: list[Result]) -> str:
+    return json.dumps(sarif_document(results), indent=2, ensure_ascii=False) + "\n"

@@ -1,0 +1,157 @@
+"""The terminal report (rich): summary first, then findings by severity, hum, protective earth, loops.
+
+Colour only when writing to a terminal; plain text when piped or with
+``NO_COLOR`` set (rich honours both).
+"""
+
+from __future__ import annotations
+
+import io
+import math
+
+from rich.console import Console
+from rich.markup import escape
+from rich.table import Table
+from rich.text import Text
+
+from ..analysis import Result
+from ..rules.catalogue import SEVERITIES
+
+__all__ = ["print_report", "text_report", "CAUTION"]
+
+CAUTION = ("Caution: mains and valve circuits carry lethal voltages, and filter capacitors hold a charge after "
+           "switch-off. Never lift the protective earth. These figures are estimates from the plan, not "
+           "measurements; follow local electrical codes and have mains work checked by a qualified person.")
+
+STYLE = {"danger": "bold white on red", "fault": "bold red", "warning": "yellow", "note": "cyan"}
+LABEL = {"danger": "DANGER", "fault": "FAULT", "warning": "WARNING", "note": "NOTE"}
+
+
+def _fmt(x, unit="", digits=3):
+    if x is None or (isinstance(x, float) and not math.isfinite(x)):
+        return "–"
+    return f"{x:.{digits}g}{unit}"
+
+
+def print_report(result: Result, console: Console, *, caution: bool = True) -> None:
+    plan = result.plan
+    counts = result.counts()
+    worst = result.worst()
+    console.print(Text(plan.title, style="bold"), Text(f"  ({plan.file})", style="dim"))
+    verdict = "clean" if worst is None else f"worst finding: {LABEL[worst]}"
+    vstyle = "bold green" if worst is None else STYLE[worst]
+    line = Text("Verdict: ")
+    line.append(verdict, style=vstyle)
+    line.append("   " + "  ".join(f"{counts[s]} {s}" for s in SEVERITIES))
+    line.append(f"   loops: {result.loop_total}")
+    console.print(line)
+    for notice in result.notices:
+        console.print(Text(f"Notice: {notice}", style="bold yellow"))
+    if result.safety is not None and result.safety.parts:
+        worst_pe = max(result.safety.parts, key=lambda p: p.path_resistance)
+        ok = worst_pe.path_resistance <= result.safety.limit
+        console.print(Text(f"Protective earth: worst path {worst_pe.path_resistance * 1e3:.2f} mΩ to {worst_pe.part} "
+                           f"(limit {result.safety.limit * 1e3:.0f} mΩ) — " + ("within limit" if ok else "OVER LIMIT"),
+                           style="green" if ok else "bold red"))
+    elif plan.mains is None:
+        console.print(Text("Protective earth: no mains statement, not checked", style="dim"))
+    if result.hum is not None:
+        for ch, h in result.hum.channels.items():
+            verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
+            level = _fmt(h.total_dbv, ' dBV', 4) if h.total_v > 0 else "none computed (below 1 pV)"
+            console.print(f"Hum, {escape(ch)}: {level} at the output, signal-to-hum "
+                          f"{_fmt(h.signal_to_hum, ' dB', 3) if h.total_v > 0 else 'unlimited'}, {verdict}"
+                          + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else ""))
+    if caution:
+        console.print(Text(CAUTION, style="dim italic"))
+    console.print()
+
+    for sev in SEVERITIES:
+        group = [f for f in result.findings if f.severity == sev]
+        if not group:
+            continue
+        console.print(Text(f"{LABEL[sev]} ({len(group)})", style=STYLE[sev]))
+        for f in group:
+            head = Text(f"  {f.code} ", style="bold")
+            head.append(f"{f.location}  ", style="dim")
+            head.append(f.message)
+            console.print(head)
+            if f.figures:
+                figs = ", ".join(f"{k} = {v}" for k, v in f.figures.items())
+                console.print(Text(f"      figures: {figs}", style="dim"))
+            if f.fix:
+                console.print(Text(f"      fix: {f.fix}", style="green"))
+        console.print()
+
+    if result.hum is not None and result.hum.channels:
+        t = Table(title="Hum and buzz at the output", title_justify="left")
+        for col in ("channel", "Hz", "dBV", "dB SPL", "threshold", "margin"):
+            t.add_column(col, justify="right" if col != "channel" else "left")
+        for ch, h in result.hum.channels.items():
+            rows = [r for r in h.spectrum if r["volts"] > 0][:12]
+            for r in rows:
+                t.add_row(escape(ch), f"{r['frequency_hz']:g}", _fmt(r["dbv"], "", 4), _fmt(r.get("spl_db"), "", 3),
+                          _fmt(r.get("threshold_db"), "", 3), _fmt(r.get("margin_db"), "", 3))
+            t.add_row(escape(ch), "total", _fmt(h.total_dbv, "", 4), "", "", _fmt(h.margin_db, "", 3), style="bold")
+        console.print(t)
+        for ch, h in result.hum.channels.items():
+            if h.contributors:
+                top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %" for c in h.contributors[:3])
+                console.print(f"  main contributors, {escape(ch)}: {top}")
+        xt = [r for r in result.hum.crosstalk if r["frequency_hz"] == 1000.0]
+        for r in xt:
+            console.print(f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} at 1 kHz: "
+                          + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB"))
+        for note in result.hum.notes:
+            console.print(Text(f"  note: {note}", style="dim"))
+        console.print()
+        if result.hum.rectifiers:
+            t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
+            for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °"):
+                t.add_column(col, justify="right" if col != "rectifier" else "left")
+            for r in result.hum.rectifiers:
+                t.add_row(escape(r.name), f"{r.dc_voltage:.1f}", f"{r.ripple_pp:.3g}", f"{r.peak_current:.3g}",
+                          f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
+            console.print(t)
+            console.print()
+
+    if result.safety is not None and result.safety.parts:
+        sup = result.safety.supply
+        limit = "none set below 50 V" if sup.max_time is None else f"{sup.max_time:g} s"
+        t = Table(title=f"Protective earth (line-to-part fault; {sup.system}, external loop {sup.ze:.3g} Ω"
+                        f"{' stated' if sup.ze_stated else ' by default'}; disconnection limit {limit})", title_justify="left")
+        for col in ("part", "path mΩ", "fault A", "touch V to earth", "cleared by", "in", "I²t A²s"):
+            t.add_column(col, justify="right" if col not in ("part", "cleared by") else "left")
+        for p in result.safety.parts:
+            device = "nothing assured" if p.device is None else ("stated in plan" if p.device == "stated" else p.device)
+            i2t = _fmt(p.i2t, "", 3) + (" (stated in plan)" if "i2t" in p.stated else "")
+            t.add_row(escape(p.part), f"{p.path_resistance * 1e3:.3g}", _fmt(p.fault_current, "", 4),
+                      _fmt(p.touch_voltage, "", 3), device, _fmt(p.clear_time, " s", 2), i2t)
+        console.print(t)
+        console.print()
+    if result.device_earths:
+        t = Table(title="Device earth paths to the main earthing terminal", title_justify="left")
+        for col in ("device", "earth pin", "resistance"):
+            t.add_column(col)
+        for d in result.device_earths:
+            t.add_row(escape(d.device), escape(d.inlet), "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
+        console.print(t)
+        console.print()
+
+    if result.loops:
+        t = Table(title=f"Ground loops ({result.loop_total} independent)", title_justify="left")
+        for col in ("#", "closed by", "area mm²", "open at", "members"):
+            t.add_column(col)
+        for i, lp in enumerate(result.loops[:50], 1):
+            t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at or 'protective: keep closed'),
+                      escape(" → ".join(lp.loop.nodes)))
+        console.print(t)
+
+
+def text_report(result: Result, width: int = 110, color: bool = False) -> str:
+    """The report as a string (for tests and files)."""
+    buf = io.StringIO()
+    console = Console(file=buf, width=width, force_terminal=color, no_color=not color, highlight=False,
+                      color_system="standard" if color else None)
+    print_report(result, console)
+    return buf.getvalue()
