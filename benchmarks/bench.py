@@ -64,7 +64,8 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
 
     from groundcheck import load_text
     from groundcheck.analysis import Options, analyze
-    from groundcheck.rules.topology import AuditContext, audit
+    from groundcheck.analysis import audit
+    from groundcheck.rules.context import AuditContext
     from groundcheck.physics.circuit import build_circuit
     from groundcheck.physics.coupling import channel_tests, pair_tests
     from groundcheck.network.graph import build_graph

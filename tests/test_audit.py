@@ -7,7 +7,7 @@ from hypothesis import given, settings, strategies as st
 
 from groundcheck import load
 from groundcheck.analysis import analyze
-from groundcheck.rules.topology import audit
+from groundcheck.analysis import audit
 from groundcheck.network.graph import edges_of, fundamental_loops, loop_count
 
 from helpers import EXAMPLES, plan

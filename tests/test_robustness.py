@@ -16,7 +16,7 @@ from groundcheck.analysis import analyze
 from groundcheck.physics.circuit import build_circuit
 from groundcheck.language.loader import LIMITS
 from groundcheck.renderers.jsondoc import render_json
-from groundcheck.rules.topology import AuditContext
+from groundcheck.rules.context import AuditContext
 from groundcheck.physics.safety import protective_figures as _figures
 
 from helpers import EXAMPLES, ROOT, plan

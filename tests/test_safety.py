@@ -9,7 +9,7 @@ import pytest
 
 from groundcheck.physics import protection
 from groundcheck.analysis import Options, analyze
-from groundcheck.rules.topology import AuditContext
+from groundcheck.rules.context import AuditContext
 from groundcheck.physics.safety import ADIABATIC_K, protective_figures
 
 from helpers import plan

@@ -312,11 +312,11 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
                           "GC101", (Edit(bond.location.line, new),)))
     # shared returns: join the rectifier's ends directly, and re-route the stage's reference to the star
     for row in result.coupling:
-        src = next((r for r in (*plan.rectifiers, *plan.currents) if r.name == row["source"]), None)
-        stage = next((s for s in plan.stages if s.name == row["stage"]), None)
+        src = next((r for r in (*plan.rectifiers, *plan.currents) if r.name == row.source), None)
+        stage = next((s for s in plan.stages if s.name == row.stage), None)
         if src is None or stage is None:
             continue
-        for shared in row["shared"]:
+        for shared in row.shared:
             c = ctx.cond.get(shared)
             if c is None:
                 continue
@@ -360,7 +360,7 @@ def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
     """Interconnects in loops through mains cords, or sharing a supply or leakage current with a stage."""
     kinds = {c.name: c.kind for c in plan.conductors}
     names = {e for lp in result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges if kinds.get(e) == "interconnect"}
-    names |= {e for row in result.coupling for e in row["shared"] if kinds.get(e) == "interconnect"}
+    names |= {e for row in result.coupling for e in row.shared if kinds.get(e) == "interconnect"}
     return names
 
 

@@ -17,9 +17,10 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse.csgraph as csgraph
 
+from ..core.errors import Location
 from .circuit import Circuit, Factored, Solution
 
-__all__ = ["Source", "plan_sources", "pair_tests", "branch_owner", "pair_path", "path_drop",
+__all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner", "pair_path", "path_drop",
            "SHARE_THRESHOLD"]
 
 #: a branch counts as carrying a current when it carries at least this fraction of it
@@ -126,3 +127,84 @@ def path_drop(fac: Factored, sol: Solution, path) -> np.ndarray:
     for idx, sgn in path:
         total += sgn * fac.z[idx] * sol.I[idx]
     return total
+
+
+#: shared-return rows kept at the most (the strongest couplings first)
+MAX_SHARED_ROWS = 200
+
+
+@dataclass(frozen=True)
+class SharedReturn:
+    """A supply-return current whose path shares conductors with a stage's sensitive pair."""
+
+    source: str
+    kind: str                        # rectifier | current | heater
+    a: str
+    b: str
+    location: Location
+    stage: str
+    stage_a: str
+    stage_b: str
+    stage_gain: float                # dB
+    stage_location: Location
+    transfer: float                  # Ω: the stage's pair voltage per ampere of the source
+    shared: tuple[str, ...]          # the conductors (or metal parts) that make up most of it
+
+    def as_dict(self) -> dict:
+        return {"source": self.source, "stage": self.stage, "transfer_ohm": self.transfer, "shared": list(self.shared)}
+
+
+def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
+    """Supply-return currents whose path shares conductors with a sensitive pair (resistive, DC): one row per
+    (source, stage) pair that shares, naming the conductors that make up most of the coupling."""
+    # a unit current between each source's ends shows the sharing: rectifiers need no simulation here
+    sources = [Source(r.name, "rectifier", r.a, r.b, {0.0: 1.0}, r.channel, r.location) for r in plan.rectifiers]
+    sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel, c.location) for c in plan.currents if c.role != "signal"]
+    sources += [Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location) for h in plan.heaters if h.a and h.b]
+    stages = list(plan.stages)
+    if not sources or not stages:
+        return []
+    _, labels = circuit.components
+    fac = circuit.at(0.0)
+    src = fac.solve(source_injections(circuit, sources, 0.0))
+    split = np.array([labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages])
+    ia = np.array([circuit.point_node[st.a] for st in stages])
+    ib = np.array([circuit.point_node[st.b] for st in stages])
+    # stages × sources, V per A: each stage's pair voltage from each source's unit current, which by
+    # reciprocity equals Σ Z·I_source·I_test over the branches (the shares below)
+    transfer = np.abs(src.V[ia] - src.V[ib])
+    transfer[split] = 0.0                        # a stage across two islands has no defined pair voltage
+    pairs = np.argwhere(transfer > 1e-6)
+    if len(pairs) > MAX_SHARED_ROWS:
+        order = np.argsort(-transfer[pairs[:, 0], pairs[:, 1]], kind="stable")[:MAX_SHARED_ROWS]
+        pairs = pairs[np.sort(order)]
+    # test currents only for the stages that share (not one column for every stage of a large installation)
+    need = sorted({int(k) for k, _ in pairs})
+    column = {k: i for i, k in enumerate(need)}
+    test = fac.solve(pair_tests(circuit, [(stages[k].a, stages[k].b) for k in need]))
+    owners = branch_owner(circuit)
+    W = fac.z[:, None] * src.I                                       # branches × sources
+    rows = []
+    for k, si in pairs:
+        s, st = sources[si], stages[k]
+        if labels[circuit.point_node[s.a]] != labels[circuit.point_node[st.a]]:
+            continue
+        t_k = test.I[:, column[int(k)]]
+        shares = W[:, si] * t_k
+        carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
+        if not carrying.any():
+            continue
+        tr = float(transfer[k, si])
+        # name the conductors that make up most of the coupling (largest shares first, at most five)
+        idx = [b for b in np.argsort(-np.abs(shares), kind="stable") if carrying[b]]
+        total = np.abs(shares[idx]).sum()
+        shared, acc = [], 0.0
+        for b in idx:
+            if owners[b] not in shared:
+                shared.append(owners[b])
+            acc += abs(shares[b])
+            if acc >= 0.9 * total or len(shared) >= 5:
+                break
+        rows.append(SharedReturn(s.name, s.kind, s.a, s.b, s.location, st.name, st.a, st.b, st.gain, st.location, tr,
+                                 tuple(shared)))
+    return rows

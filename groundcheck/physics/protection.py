@@ -9,12 +9,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TIMES", "DISCONNECTION_LIMITS", "SYSTEMS", "DEFAULT_ZE",
+__all__ = ["STANDARD_PE_LIMIT", "FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TIMES", "DISCONNECTION_LIMITS", "SYSTEMS", "DEFAULT_ZE",
            "BREAKING_CAPACITY", "CORD_CLASS5", "FIXED_CLASS2", "Clearing", "fuse_clearing", "breaker_clearing",
            "rcd_clearing", "max_disconnection_time", "breaking_capacity", "fuse_cold_resistance", "cable_resistance",
            "DEFAULT_CIRCUIT"]
 
 from ..model.records import SYSTEMS
+
+#: protective bonding limit, Ω, supply cord excluded (IEC 62368-1 5.6.6.2, from memory; IEC 61010-1 6.5.2.4;
+#: IEC 60335-1 27.5)
+STANDARD_PE_LIMIT = 0.1
 
 #: default external earth-fault loop impedance Ze at the origin of the installation, Ω: typical maximum
 #: values declared by distributors (TN-S 0.8 Ω, TN-C-S 0.35 Ω, TT 21 Ω including the installation's

@@ -31,15 +31,13 @@ from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
-from .protection import (DEFAULT_CIRCUIT, DEFAULT_ZE, Clearing, breaker_clearing, breaking_capacity, cable_resistance,
+from .protection import (STANDARD_PE_LIMIT, DEFAULT_CIRCUIT, DEFAULT_ZE, Clearing, breaker_clearing, breaking_capacity, cable_resistance,
                          fuse_clearing, fuse_cold_resistance, max_disconnection_time, rcd_clearing)
 
 __all__ = ["SafetyResult", "PartFigures", "ConductorCheck", "Supply", "protective_figures", "adiabatic_k",
            "DEFAULT_PE_LIMIT", "STANDARD_PE_LIMIT", "TOUCH_LIMIT", "supply_figures",
            "DeviceEarth", "installation_earths"]
 
-#: protective bonding limit, Ω (IEC 62368-1 5.6.6.2, from memory; IEC 61010-1 6.5.2.4; IEC 60335-1 27.5)
-STANDARD_PE_LIMIT = 0.1
 DEFAULT_PE_LIMIT = STANDARD_PE_LIMIT
 
 #: conventional touch-voltage limit for AC in normal conditions, V (IEC 60364-4-41, U_L = 50 V)

@@ -1,0 +1,236 @@
+"""What the rules read: the plan, its graph, its loops and the protective route, each derived once.
+
+:class:`AuditContext` is built once per plan and shared by every rule; :func:`classify_loop` says what
+closes a loop and :func:`open_at` which conductor to open (never one the protective earth relies on).
+"""
+
+from __future__ import annotations
+
+from collections import deque
+from dataclasses import dataclass, field
+from functools import cached_property
+
+import networkx as nx
+import numpy as np
+
+from ..core.errors import Location
+from ..model.kinds import bonds_metal
+from ..model.records import PE_POINT, Conductor, Plan
+from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
+from ..network.graph import Loop, build_graph, components, edges_of, fundamental_loops, loop_polygon, polygon_area
+
+__all__ = ["AuditContext", "LoopInfo", "classify_loop", "open_at", "node_channel", "bfs", "LOOP_LIST_LIMIT", "LOOP_CLASSES"]
+
+#: how many loops are listed one by one (the count is always exact)
+LOOP_LIST_LIMIT = 500
+
+LOOP_CLASSES = {
+    "mains-cords": "an interconnect shield and the protective earth through two mains cords",
+    "shield-both-ends": "a shield terminated at both ends",
+    "channel-returns": "the returns of two channels tied in two places",
+    "second-chassis-bond": "a second bond of the signal ground to a metal part",
+    "metal-return": "a metal part used as a return path",
+    "chassis-structure": "metal parts and their fastenings only",
+    "parallel-wiring": "two wires in parallel",
+}
+
+
+@dataclass(frozen=True)
+class LoopInfo:
+    """A listed loop: members in order, what closes it, its area (None without positions)."""
+
+    loop: Loop
+    closed_by: str
+    area: float | None                      # m²
+    open_at: str                            # the conductor to open to break it
+    polygon: tuple | None = None
+
+    def as_dict(self) -> dict:
+        return {"members": list(self.loop.nodes), "conductors": list(self.loop.edges), "closed_by": self.closed_by,
+                "area_mm2": None if self.area is None else round(self.area * 1e6, 3), "open_at": self.open_at}
+
+
+@dataclass
+class AuditContext:
+    """What the rules read: the plan, its graph, and facts derived once."""
+
+    plan: Plan
+    G: nx.MultiGraph = field(default=None)
+
+    def __post_init__(self):
+        if self.G is None:
+            self.G = build_graph(self.plan)
+
+    @cached_property
+    def conductors(self) -> dict[str, Conductor]:
+        return {c.name: c for c in self.plan.conductors}
+
+    @cached_property
+    def metals(self) -> set[str]:
+        return {m.name for m in self.plan.metals}
+
+    @cached_property
+    def chassis_side(self) -> set[str]:
+        """Metal parts, points fastened or strapped to one, and the earth terminals."""
+        side = set(self.metals)
+        for c in self.plan.conductors:
+            if c.connects and bonds_metal(c):
+                if c.a in self.metals:
+                    side.add(c.b)
+                if c.b in self.metals:
+                    side.add(c.a)
+        side.update(n for n in self.earth_terminals if n in self.G)
+        return side
+
+    @cached_property
+    def signal_points(self) -> set[str]:
+        return signal_points(self.plan)
+
+    @cached_property
+    def earth_terminals(self) -> list[str]:
+        """Every earth terminal of the plan: main earthing terminals, outlets, inlets (mains.pe and devices')."""
+        terms = earth_terminals(self.plan)
+        return sorted(n for k in terms for n in terms[k])
+
+    @cached_property
+    def route(self) -> ProtectiveRoute:
+        """The protective route (:mod:`groundcheck.network.earthing`): what is protective by topology or role."""
+        return protective_route(self.plan, self.adj)
+
+    @cached_property
+    def protective_path(self) -> frozenset:
+        """Conductors that are protective by topology or by role: never to be opened."""
+        return self.route.conductors
+
+    @cached_property
+    def source_pairs(self) -> set[frozenset]:
+        """The two ends of each rectifier and stated current: joined on purpose."""
+        return {frozenset((r.a, r.b)) for r in (*self.plan.rectifiers, *self.plan.currents)}
+
+    @cached_property
+    def edges(self) -> list[tuple]:
+        """Every edge once as (u, v, conductor name, data)."""
+        return edges_of(self.G)
+
+    @cached_property
+    def adj(self) -> dict:
+        """The graph's adjacency as plain dicts: node -> neighbour -> conductor name -> data."""
+        return dict(self.G.adjacency())
+
+    @cached_property
+    def parts(self) -> tuple[list, np.ndarray, int]:
+        """Connected parts of the graph: (nodes, part label of each, number of parts)."""
+        return components(self.G, self.edges)
+
+    @cached_property
+    def loop_total(self) -> int:
+        order, _, ncomp = self.parts
+        return len(self.edges) - len(order) + ncomp if order else 0
+
+    @cached_property
+    def loops(self) -> list[LoopInfo]:
+        out = []
+        for lp in fundamental_loops(self.G, limit=LOOP_LIST_LIMIT, edges=self.edges):
+            closed_by = classify_loop(self, lp)
+            poly = loop_polygon(self.G, lp)
+            area = polygon_area(poly) if poly is not None else None
+            out.append(LoopInfo(lp, closed_by, area, open_at(self, lp, closed_by), tuple(poly) if poly else None))
+        return out
+
+    def loc(self, name: str) -> Location:
+        c = self.conductors.get(name)
+        if c is not None:
+            return c.location
+        n = self.G.nodes.get(name, {})
+        obj = n.get("point") or n.get("metal")
+        return obj.location if obj is not None else self.plan.location
+
+
+def classify_loop(ctx: AuditContext, lp: Loop) -> str:
+    """What closes a loop: one of :data:`LOOP_CLASSES`."""
+    cs = [ctx.conductors[e] for e in lp.edges]
+    kinds = {c.kind for c in cs}
+    roles = {c.role for c in cs}
+    has_metal = any(n in ctx.metals for n in lp.nodes)
+    if "interconnect" in kinds and "protective" in roles:
+        return "mains-cords"
+    if kinds & {"shield", "interconnect"}:
+        return "shield-both-ends"
+    known = set(ctx.plan.channels)
+    channels = {c.channel for c in cs if c.channel in known} | {node_channel(ctx, n) for n in lp.nodes} & known
+    if len(channels) >= 2:
+        return "channel-returns"
+    if has_metal and roles <= {"bond", "protective"}:
+        return "chassis-structure"
+    if has_metal and "signal" in roles:
+        return "second-chassis-bond"
+    if has_metal:
+        return "metal-return"
+    return "parallel-wiring"
+
+
+def node_channel(ctx: "AuditContext", name: str) -> str | None:
+    """The placement (block or device) a point was placed by: in a dual-mono plan, its channel."""
+    data = ctx.G.nodes[name] if name in ctx.G else {}
+    point = data.get("point")
+    return point.group.split(".", 1)[0] if point is not None and point.group else None
+
+
+def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
+    """The conductor to open: never a protective conductor or a fastening of metal parts."""
+    cs = [ctx.conductors[e] for e in lp.edges]
+    candidates = [c for c in cs if c.role != "protective" and c.name not in ctx.protective_path
+                  and not (bonds_metal(c) and c.role == "bond" and (c.a in ctx.metals and c.b in ctx.metals))]
+    if not candidates:
+        return ""
+    if closed_by == "mains-cords":
+        ic = [c for c in candidates if c.kind == "interconnect"]
+        if ic:
+            return ic[0].name
+    if closed_by == "shield-both-ends":
+        sh = [c for c in candidates if c.kind in ("shield", "interconnect")]
+        if sh:
+            return sh[0].name
+    if closed_by == "channel-returns":
+        ties = [c for c in candidates if not c.channel and node_channel(ctx, c.a) and node_channel(ctx, c.b)
+                and node_channel(ctx, c.a) != node_channel(ctx, c.b)]
+        if ties:
+            return ties[0].name
+    if closed_by == "second-chassis-bond":
+        # a signal point fastened to the metal (an uninsulated jack, say) is the bond to remove
+        ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {x for r in ctx.plan.currents for x in (r.a, r.b)}
+        bolts = [c for c in candidates if c.kind == "bolt" and ((c.a in ctx.metals and c.b in ends)
+                                                                or (c.b in ctx.metals and c.a in ends))]
+        if bolts:
+            return bolts[0].name
+        # otherwise keep the bond nearest the protective earth and open the farthest
+        crossing = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)]
+        if crossing:
+            return max(crossing, key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name)).name
+    return candidates[-1].name
+
+
+def pe_distance(ctx: AuditContext, node: str) -> float:
+    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when unknown)."""
+    pe = [v for v in ctx.G.adj.get(PE_POINT, {}) if ctx.G.nodes[v].get("pos") is not None]
+    here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
+    if not pe or here is None:
+        return 0.0
+    p = ctx.G.nodes[pe[0]]["pos"]
+    return ((p[0] - here[0]) ** 2 + (p[1] - here[1]) ** 2) ** 0.5
+
+
+def bfs(adj: dict, sources, allowed=None):
+    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed`` (``adj``: node -> neighbours)."""
+    dist, parent = {}, {}
+    q = deque()
+    for s in sources:
+        dist[s], parent[s] = 0, None
+        q.append(s)
+    while q:
+        u = q.popleft()
+        for v in adj[u]:
+            if v not in dist and (allowed is None or allowed(v)):
+                dist[v], parent[v] = dist[u] + 1, u
+                q.append(v)
+    return dist, parent

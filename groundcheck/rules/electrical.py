@@ -1,0 +1,124 @@
+"""Rules on the electrical results: shared returns (GC102), hum contributors, loop pickup, audibility and
+crosstalk (GC301–GC304), and network islands (GC401).  Each is a pure function of :class:`Solved`."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+from .catalogue import Finding
+from .context import AuditContext
+from .registry import rule
+from .results import Options
+
+if TYPE_CHECKING:
+    from ..model.records import Plan
+    from ..physics.circuit import Circuit
+    from ..physics.coupling import SharedReturn
+    from ..physics.hum import HumResult
+    from ..physics.safety import DeviceEarth, SafetyResult
+
+__all__ = ["Solved", "rule_shared_returns", "rule_islands", "rule_hum"]
+
+
+@dataclass(frozen=True)
+class Solved:
+    """What the rules on electrical results read: the plan, its audit context and every analysis result."""
+
+    plan: Plan
+    ctx: AuditContext
+    circuit: Circuit
+    coupling: list[SharedReturn]
+    safety: SafetyResult | None
+    device_earths: tuple[DeviceEarth, ...] | None
+    hum: HumResult | None
+    options: Options
+
+
+@rule("GC102", needs="solve")
+def rule_shared_returns(s: Solved) -> list[Finding]:
+    """GC102: a supply-return current that shares conductors with a stage's sensitive pair."""
+    plan_conductors = {c.name: c for c in s.plan.conductors}
+    leak = {c.name for c in s.plan.currents if c.role == "leakage"}
+    out = []
+    for row in s.coupling:
+        via_ic = [x for x in row.shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
+        if via_ic:
+            fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
+                   "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
+        elif row.kind == "current" and row.source in leak:
+            fix = f"keep {row.stage_a} and {row.stage_b} off the conductors that carry {row.source}; give the stage its own reference wire"
+        else:
+            fix = (f"join {row.a} and {row.b} by a short wire of their own, then one wire to the star; "
+                   f"take {row.stage_b} and {row.stage_a} to the signal star by wires that carry no supply current")
+        out.append(Finding(
+            "GC102", "fault",
+            f"{row.kind} return {row.source} ({row.a} → {row.b}) shares {', '.join(row.shared)} with stage {row.stage} "
+            f"({row.stage_a} – {row.stage_b})",
+            row.location, (row.source, row.stage, *row.shared),
+            {"transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"), "stage_gain_db": row.stage_gain}, fix))
+    return out
+
+
+@rule("GC401", needs="solve")
+def rule_islands(s: Solved) -> list[Finding]:
+    """GC401: a stage whose two points lie in parts of the network that are not connected."""
+    _, labels = s.circuit.components
+    node = s.circuit.point_node
+    return [Finding("GC401", "note", f"stage {st.name}: {st.a} and {st.b} are not connected to each other",
+                    st.location, (st.name, st.a, st.b), {}, "connect both points of the stage to the ground system")
+            for st in s.plan.stages if labels[node[st.a]] != labels[node[st.b]]]
+
+
+@rule("GC301", "GC302", "GC303", "GC304", needs="solve")
+def rule_hum(s: Solved) -> list[Finding]:
+    """GC301–GC304: hum contributors, loop pickup, audibility and crosstalk from the hum budget."""
+    if s.hum is None:
+        return []
+    plan, hum, opts = s.plan, s.hum, s.options
+    out = []
+    conductors = {c.name: c for c in plan.conductors}
+    stages_by_ch: dict[str, list] = {}
+    for s in plan.stages:
+        stages_by_ch.setdefault(s.channel, []).append(s)
+    for ch, h in hum.channels.items():
+        loc = stages_by_ch[ch][0].location
+        for c in h.contributors:
+            if c["dbv"] is None or c["dbv"] < opts.contributor_level or c["share_pct"] < 10:
+                continue
+            if c["kind"] == "conductor":
+                cond = conductors.get(c["element"])
+                if cond is not None and cond.role == "protective":
+                    fix = (f"the drop along protective conductor {c['element']} reaches the stage through a loop: break "
+                           "the loop on the signal side (balanced interconnect or ground-lift network); never lift the "
+                           "protective earth")
+                else:
+                    fix = f"move the {c['source']} current off {c['element']}: give it a return path of its own"
+                out.append(Finding("GC301", "warning",
+                                   f"{c['element']} puts {c['dbv']:.1f} dBV of {c['source']} hum and buzz at the {ch} output "
+                                   f"({c['share_pct']:.0f} % of the channel's total)",
+                                   cond.location if cond else loc, (c["element"], c["source"]),
+                                   {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch}, fix))
+            else:
+                out.append(Finding("GC302", "warning",
+                                   f"{c['element']} picks up {c['dbv']:.1f} dBV from {c['source']} at the {ch} output "
+                                   f"({c['share_pct']:.0f} % of the channel's total)",
+                                   loc, (c["element"], c["source"]), {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
+                                   "open the loop, or make it smaller and move it away from the field source"))
+        if h.audible:
+            top = ", ".join(c["element"] for c in h.contributors[:3])
+            out.append(Finding("GC303", "fault",
+                               f"hum in the {ch} channel is audible at the listening position: {h.margin_db:.1f} dB above the "
+                               f"threshold of hearing (total {h.total_dbv:.1f} dBV at the output)",
+                               loc, (ch, *[c["element"] for c in h.contributors[:3]]),
+                               {"margin_db": round(h.margin_db, 2), "total_dbv": round(h.total_dbv, 2),
+                                "signal_to_hum_db": round(h.signal_to_hum, 2)},
+                               f"fix the main contributors: {top}"))
+    for row in hum.crosstalk:
+        if row["frequency_hz"] == 1000.0 and row["db"] is not None and row["db"] > opts.crosstalk_limit:
+            loc = stages_by_ch[row["to"]][0].location
+            out.append(Finding("GC304", "warning",
+                               f"crosstalk from {row['from']} into {row['to']} is {row['db']:.1f} dB at 1 kHz",
+                               loc, (str(row["from"]), row["to"]), {"crosstalk_db": row["db"]},
+                               "give each channel its own return to the star; join the channels at one point only"))
+    return out

@@ -1,0 +1,59 @@
+"""The rule registry: every rule function registered under the codes it makes, with what it needs.
+
+A rule is a pure function returning findings.  ``needs="topology"`` rules take the
+:class:`~groundcheck.rules.context.AuditContext`; ``needs="solve"`` rules take the
+:class:`~groundcheck.rules.electrical.Solved` results of the electrical analyses.  Every code of the
+catalogue (:mod:`groundcheck.rules.catalogue`) is registered to exactly one function (tested), so the
+catalogue and the code cannot drift apart.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable
+
+from .catalogue import RULES
+
+__all__ = ["RuleFunction", "REGISTRY", "rule", "functions", "codes_registered"]
+
+
+@dataclass(frozen=True)
+class RuleFunction:
+    codes: tuple[str, ...]
+    needs: str
+    func: Callable
+
+    @property
+    def name(self) -> str:
+        return f"{self.func.__module__}.{self.func.__qualname__}"
+
+
+#: every registered rule function, in registration order (the order findings are made in)
+REGISTRY: list[RuleFunction] = []
+
+
+def rule(*codes: str, needs: str = "topology"):
+    """Register the decorated function as the maker of ``codes``."""
+    unknown = [c for c in codes if c not in RULES]
+    if unknown:
+        raise ValueError(f"rule codes not in the catalogue: {unknown}")
+
+    def deco(func):
+        REGISTRY.append(RuleFunction(tuple(codes), needs, func))
+        return func
+    return deco
+
+
+def functions(needs: str) -> list[RuleFunction]:
+    """The registered functions that need ``needs`` (the families register themselves when imported:
+    :mod:`groundcheck.rules.families` imports them all)."""
+    return [r for r in REGISTRY if r.needs == needs]
+
+
+def codes_registered() -> dict[str, list[str]]:
+    """Each code -> the names of the functions registered for it (exactly one each, when all is well)."""
+    out: dict[str, list[str]] = {}
+    for r in REGISTRY:
+        for c in r.codes:
+            out.setdefault(c, []).append(r.name)
+    return out

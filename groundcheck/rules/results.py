@@ -1,0 +1,61 @@
+"""The typed results of an analysis run: its options and everything found and computed.
+
+Nothing here imports a numeric library: renderers and the advisor read results through these types.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING
+
+from ..model.records import Plan
+from ..physics.protection import STANDARD_PE_LIMIT
+from .catalogue import Finding, severity_rank
+
+if TYPE_CHECKING:  # annotations only
+    from ..physics.circuit import Circuit
+    from ..physics.coupling import SharedReturn
+    from ..physics.hum import HumResult
+    from ..physics.safety import DeviceEarth, SafetyResult
+    from .context import LoopInfo
+
+__all__ = ["Options", "Result"]
+
+
+@dataclass(frozen=True)
+class Options:
+    """Settings of an analysis run (each has a command-line option of the same meaning)."""
+
+    pe_limit: float = STANDARD_PE_LIMIT      # Ω
+    max_frequency: float = 5000.0            # Hz
+    contributor_level: float = -100.0        # dBV at the output
+    crosstalk_limit: float = -60.0           # dB
+    hum: bool = True                         # run the electrical hum budget
+    jobs: int = 1                            # processes for the hum budget's frequencies
+
+
+@dataclass
+class Result:
+    """Everything groundcheck found and computed for one plan."""
+
+    plan: Plan
+    findings: list[Finding]
+    loops: list[LoopInfo]
+    loop_total: int
+    circuit: Circuit | None = None
+    safety: SafetyResult | None = None
+    hum: HumResult | None = None
+    coupling: list[SharedReturn] = field(default_factory=list)
+    options: Options = field(default_factory=Options)
+    device_earths: tuple[DeviceEarth, ...] | None = None
+    notices: list[str] = field(default_factory=list)      # what was relaxed or skipped: shown in every output
+    protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
+
+    def counts(self) -> dict[str, int]:
+        out = {"danger": 0, "fault": 0, "warning": 0, "note": 0}
+        for f in self.findings:
+            out[f.severity] += 1
+        return out
+
+    def worst(self) -> str | None:
+        return min((f.severity for f in self.findings), key=severity_rank, default=None)
