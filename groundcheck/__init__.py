@@ -25,28 +25,6 @@ def analyze(plan, options=None):
 
 def render(result, fmt: str = "text") -> str:
     """A report of a result as text: ``text``, ``json``, ``sarif``, ``html`` (drawings when a renderer is
-    available) or ``dot`` (the physical drawing's source)."""
-    if fmt == "text":
-        from .renderers.text import text_report
-        return text_report(result)
-    if fmt == "json":
-        from .renderers.jsondoc import render_json
-        return render_json(result)
-    if fmt == "sarif":
-        from .renderers.sarif import render_sarif
-        return render_sarif([result])
-    if fmt == "dot":
-        from .renderers.dot import physical_dot
-        return physical_dot(result)
-    if fmt == "html":
-        from .renderers.drawing import DrawingError, render_dot
-        from .renderers.dot import physical_dot, topology_dot
-        from .renderers.html import html_report
-        try:
-            phys, how = render_dot(physical_dot(result), "svg", "neato")
-            topo, _ = render_dot(topology_dot(result), "svg", "dot")
-        except DrawingError:
-            phys = topo = None
-            how = ""
-        return html_report(result, phys, topo, how)
-    raise ValueError(f"unknown format {fmt!r} (text, json, sarif, html, dot)")
+    available) or ``dot`` (the physical drawing's source); see :mod:`groundcheck.renderers.formats`."""
+    from .renderers.formats import render_results
+    return render_results([result], fmt)

@@ -14,7 +14,8 @@ from pathlib import Path
 
 from .core.version import __version__
 from .core.errors import GroundcheckError, PlanErrors
-from .rules.catalogue import RULES, SEVERITIES, severity_rank
+from .rules.catalogue import RULES, SEVERITIES
+from .renderers.formats import CHECK_FORMATS
 from .core.units import UnitError, parse_quantity
 
 __all__ = ["main"]
@@ -89,7 +90,7 @@ def build_parser() -> argparse.ArgumentParser:
                        "Example:\n  groundcheck check examples/monoblock-power-amp.gplan --format json",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files ('-' reads standard input)")
-    c.add_argument("--format", choices=("text", "json", "sarif"), default="text", help="output format (default text)")
+    c.add_argument("--format", choices=CHECK_FORMATS, default="text", help="output format (default text)")
     c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     c.add_argument("--jobs", type=_processes, default=1, metavar="N", help="use N processes: several plans are checked side by side; for one plan, a large flat "
@@ -204,29 +205,16 @@ def cmd_check(args) -> int:
         for path in args.plans:
             plan = _load(path, args.jobs)
             results.append(_analyze_with_progress(analyze, plan, _options(args), path))
-    threshold = severity_rank(args.fail_on)
-    failing = any(severity_rank(f.severity) <= threshold for r in results for f in r.findings)
-    if args.format == "json":
-        from .renderers.jsondoc import render_json, result_document
-        if len(results) == 1:
-            text = render_json(results[0])
-        else:
-            import json
-            text = json.dumps({"plans": [result_document(r) for r in results]}, indent=2, ensure_ascii=False) + "\n"
-    elif args.format == "sarif":
-        from .renderers.sarif import render_sarif
-        text = render_sarif(results)
-    else:
-        from .renderers.text import print_report, text_report
-        if args.output:
-            text = "\n".join(text_report(r) for r in results)
-        else:
-            from rich.console import Console
-            console = Console(highlight=False)
-            for i, r in enumerate(results):
-                print_report(r, console, caution=i == 0)
-            return 1 if failing else 0
-    _write(text, args.output, args.plans)
+    failing = any(r.fails(args.fail_on) for r in results)
+    if args.format == "text" and not args.output:
+        from rich.console import Console
+        from .renderers.text import print_report
+        console = Console(highlight=False)
+        for i, r in enumerate(results):
+            print_report(r, console, caution=i == 0)
+        return 1 if failing else 0
+    from .renderers.formats import render_results
+    _write(render_results(results, args.format), args.output, args.plans)
     return 1 if failing else 0
 
 
@@ -305,8 +293,7 @@ def cmd_report(args) -> int:
     from .renderers.output import write_atomic
     write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
-    threshold = severity_rank(args.fail_on)
-    return 1 if any(severity_rank(f.severity) <= threshold for f in result.findings) else 0
+    return 1 if result.fails(args.fail_on) else 0
 
 
 def cmd_suggest(args) -> int:

@@ -6,7 +6,7 @@ import json
 import math
 from html import escape
 
-from ..analysis import Result
+from ..rules.results import Result
 from ..core.plain import clean
 
 __all__ = ["compare", "compare_text", "compare_json", "compare_html"]

@@ -1,15 +1,14 @@
-"""Levels and hearing: dBV, dBu, sound pressure at the listening position, the threshold of hearing.
+"""Levels and hearing: dBV, dBu, sound pressure at the listener's seat, the threshold of hearing.
 
 References: ISO 226:2003 *Acoustics — Normal equal-loudness-level contours*,
 Table 1, threshold of hearing T_f (free field, binaural, otologically normal
-listeners 18–25 years); ISO 226:2023 changes only the 20 Hz value (78.1 dB).
+listeners 18–25 years).  (ISO 226:2023 revised the table; this module keeps the 2003 values.)
 """
 
 from __future__ import annotations
 
 import math
-
-import numpy as np
+from bisect import bisect_right
 
 __all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "dbv", "dbu_from_dbv", "spl_at_listener"]
 
@@ -28,8 +27,11 @@ def threshold_of_hearing(f: float) -> float:
 
     Outside 20 Hz – 12.5 kHz the end value is held (the standard gives no value there).
     """
-    lf = math.log10(min(max(f, ISO226_FREQ[0]), ISO226_FREQ[-1]))
-    return float(np.interp(lf, np.log10(ISO226_FREQ), ISO226_TF))
+    f = min(max(f, ISO226_FREQ[0]), ISO226_FREQ[-1])
+    i = min(max(bisect_right(ISO226_FREQ, f) - 1, 0), len(ISO226_FREQ) - 2)
+    f0, f1 = ISO226_FREQ[i], ISO226_FREQ[i + 1]
+    t = (math.log10(f) - math.log10(f0)) / (math.log10(f1) - math.log10(f0))
+    return ISO226_TF[i] + t * (ISO226_TF[i + 1] - ISO226_TF[i])
 
 
 def dbv(volts: float) -> float:

@@ -20,7 +20,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 
-from ..analysis import Result
+from ..rules.results import Result
 
 __all__ = ["physical_dot", "topology_dot", "dot_quote", "ROLE_STYLE"]
 

@@ -12,7 +12,7 @@ import re
 from html import escape
 
 from ..core.version import __version__
-from ..analysis import Result
+from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 from ..physics.hearing import threshold_of_hearing
 from .text import CAUTION

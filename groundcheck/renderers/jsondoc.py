@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import json
 
-from ..analysis import Result
+from ..rules.results import Result
 from ..core.plain import clean
 
 __all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]

@@ -10,7 +10,7 @@ import json
 from pathlib import Path
 
 from ..core.version import __version__
-from ..analysis import Result
+from ..rules.results import Result
 from ..rules.catalogue import RULES
 from .jsondoc import clean
 

@@ -14,7 +14,7 @@ from rich.markup import escape
 from rich.table import Table
 from rich.text import Text
 
-from ..analysis import Result
+from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 
 __all__ = ["print_report", "text_report", "CAUTION"]

@@ -59,3 +59,8 @@ class Result:
 
     def worst(self) -> str | None:
         return min((f.severity for f in self.findings), key=severity_rank, default=None)
+
+    def fails(self, fail_on: str) -> bool:
+        """Whether a finding is at least as severe as ``fail_on`` (the command's exit status 1)."""
+        threshold = severity_rank(fail_on)
+        return any(severity_rank(f.severity) <= threshold for f in self.findings)
