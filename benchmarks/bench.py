@@ -44,7 +44,8 @@ def _best(repeat: int, fn):
 
 def one(size: int, kind: str, ngspice: bool, full_limit: int, repeat: int, jobs: int) -> dict:
     from generate import chassis, installation
-    from groundcheck.language.loader import LIMITS, no_gc
+    from groundcheck.core.runtime import no_gc
+    from groundcheck.language.loader import LIMITS
 
     text = chassis(size) if kind == "chassis" else installation(size)
     row = {"kind": kind, "size": size}

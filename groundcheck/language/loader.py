@@ -7,14 +7,15 @@ Public entry points: :func:`load` (a path, or ``-`` for standard input) and
 
 from __future__ import annotations
 
-import os
 import sys
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from pathlib import Path
 
 from .bigfile import read_split, split_point
+from .assemble import HEADER_KEYWORDS, assemble
+from .placement import Transform
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
-from ..model.records import DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
+from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
 from ..core.runtime import can_fork, no_gc
@@ -34,26 +35,8 @@ LIMITS = {
     "elements": 3_000_000,
 }
 
-HEADER_KEYWORDS = ("plan", "mains", "ambient", "listening", "library", "device")
 
 #: devices placed inside devices, at most this deep
-MAX_DEVICE_DEPTH = 8
-
-
-@dataclass(frozen=True)
-class Transform:
-    """Placement of a block: p' = (ox + sx·x, oy + sy·y); sx, sy are ±1 (mirroring)."""
-
-    ox: float = 0.0
-    oy: float = 0.0
-    sx: float = 1.0
-    sy: float = 1.0
-
-    def __call__(self, p):
-        return None if p is None else (self.ox + self.sx * p[0], self.oy + self.sy * p[1])
-
-    def then(self, outer: "Transform") -> "Transform":
-        return Transform(outer.ox + outer.sx * self.ox, outer.oy + outer.sy * self.oy, outer.sx * self.sx, outer.sy * self.sy)
 
 
 def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[str, ...] = (),
@@ -119,6 +102,10 @@ class _Loader:
         self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
 
     # ---- files and includes ------------------------------------------------
+    def load_device(self, path: Path) -> Plan:
+        """A device's own plan, loaded with this plan's library folders and the devices placing it."""
+        return load(path, libraries=self.libraries, _devices=self.device_stack)
+
     def read_items(self, text: str, shown: str, stack: tuple[Path, ...]) -> list:
         if len(text) > LIMITS["file_bytes"]:
             self.errors.append(LimitError(f"plan text is over the limit of {LIMITS['file_bytes']} bytes",
@@ -331,7 +318,7 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
         ld.expand(items, "", Transform(), (), 0, (), built)
     plan = None
     if not any(isinstance(e, LimitError) for e in ld.errors):
-        plan = _assemble(built, file, ld)
+        plan = assemble(built, file, ld)
     if ld.errors:
         for e in ld.errors:
             lines = ld.sources.get(e.location.file)
@@ -340,203 +327,3 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
         raise PlanErrors(ld.errors)
     assert plan is not None
     return plan
-
-
-def _assemble(built: list, file: str, ld: _Loader) -> Plan:
-    errors = ld.errors
-    header: dict = {}
-    groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage, FieldSource)}
-    names: dict[str, Location] = {}
-    devices: list = []
-    library_dirs: list[str] = []
-    for st, record, refs in built:
-        if st.keyword == "library":
-            library_dirs.append(record)
-            continue
-        if st.keyword == "device":
-            if record.name in names:
-                errors.append(PlanError(f"duplicate name {record.name!r}", st.label_loc or st.loc, f"first defined at {names[record.name]}"))
-                continue
-            names[record.name] = st.label_loc or st.loc
-            devices.append((record, refs))
-            continue
-        if st.keyword in HEADER_KEYWORDS:
-            key = {"plan": "title", "mains": "mains", "ambient": "ambient", "listening": "listening"}[st.keyword]
-            if key in header:
-                errors.append(PlanError(f"'{st.keyword}' is given twice", st.loc, "keep one"))
-            header[key] = record
-            continue
-        name = getattr(record, "name", "")
-        if name:
-            if name in names or name == PE_POINT:
-                first = names.get(name)
-                errors.append(PlanError(f"duplicate name {name!r}", st.label_loc or st.loc,
-                                        f"first defined at {first}" if first else "mains.pe is the mains inlet's protective terminal"))
-                continue
-            names[name] = st.label_loc or st.loc
-        groups[type(record)].append((record, refs))
-
-    mains = header.get("mains")
-    metals = {m.name: m for m, *_ in groups[Metal]}
-    points = {p.name: p for p, *_ in groups[Point]}
-    if mains is not None:
-        points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
-    for dev, refs in devices:
-        _merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
-    nodes = set(points) | set(metals)
-    for dev, refs in devices:
-        if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
-            errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
-                                    f"define it with 'point {dev.plugged}: outlet'"))
-
-    def check(name, loc, what, pool):
-        if name is not None and name not in pool and name not in ld.broken:
-            if name == PE_POINT:
-                hint = "declare the supply with 'mains 230 V 50 Hz, ...' to get the inlet's mains.pe"
-            else:
-                import difflib
-                close = difflib.get_close_matches(name, list(pool), n=1)
-                hint = f"did you mean {close[0]!r}?" if close else f"define it with 'point {name}: ...'"
-            errors.append(PlanError(f"undefined {what} {name!r}", loc, hint))
-            return False
-        return True
-
-    for p, refs, *_ in groups[Point]:
-        if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
-            m = metals[p.on]
-            if p.pos is not None and not m.contains(p.pos):
-                errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
-                                        p.location, "positions are in the plan frame, in mm"))
-    conductors = []
-    auto: dict[str, int] = {}
-    for c, refs, *_ in groups[Conductor]:
-        ok = check(c.a, refs.get("a", c.location), "point or metal part", nodes)
-        ok = check(c.b, refs.get("b", c.location), "point or metal part", nodes) and ok
-        if not c.name:
-            base = f"{c.kind}:{c.a}-{c.b}"
-            auto[base] = auto.get(base, 0) + 1
-            c = replace(c, name=base if auto[base] == 1 else f"{base}#{auto[base]}")
-        conductors.append(c)
-    for group in (Rectifier, Current, Stage):
-        for r, refs, *_ in groups[group]:
-            check(r.a, refs.get("a", r.location), "point", nodes)
-            check(r.b, refs.get("b", r.location), "point", nodes)
-    for h, refs, *_ in groups[Heater]:
-        for f in ("a", "b", "reference"):
-            check(getattr(h, f), refs.get(f, h.location), "point", nodes)
-    stages = [r for r, *_ in groups[Stage]]
-    for c in conductors:
-        if c.kind == "interconnect" and c.gain is not None:
-            gain = c.gain - (c.cmrr if c.balanced else 0.0)
-            stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location))
-    return Plan(
-        title=header.get("title") or Path(file).stem,
-        file=file,
-        mains=mains,
-        ambient=header.get("ambient", 20.0),
-        listening=header.get("listening"),
-        metals=tuple(metals.values()),
-        points=tuple(points.values()),
-        conductors=tuple(conductors),
-        rectifiers=tuple(r for r, *_ in groups[Rectifier]),
-        currents=tuple(r for r, *_ in groups[Current]),
-        heaters=tuple(r for r, *_ in groups[Heater]),
-        stages=tuple(stages),
-        fields=tuple(r for r, *_ in groups[FieldSource]),
-        files=tuple(ld.files),
-        location=Location(file, 1, 1),
-    )
-
-
-def _find_device(source: str, dev: Device, ld: _Loader, library_dirs: list[str]) -> Path | None:
-    here = ld.root
-    candidates = [here / source]
-    env = os.environ.get("GROUNDCHECK_LIBRARY", "")
-    for lib in [*library_dirs, *ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
-        candidates.append((here / lib / source) if not Path(lib).is_absolute() else Path(lib) / source)
-    for c in candidates:
-        if c.is_file():
-            return c.resolve()
-    return None
-
-
-def _simple_device(dev: Device) -> Plan:
-    """A built-in device: a touchable chassis, the inlet's protective terminal bonded to it, and a
-    signal ground joined to the chassis directly, through a lift network, or not at all."""
-    n = dev.name
-    loc = dev.location
-    metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), True, loc),)
-    points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc), Point(f"{n}.gnd", "terminal", None, None, n, loc))
-    conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective", contact=0.5e-3,
-                            location=loc)]
-    if dev.signal_ground == "chassis":
-        conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3, location=loc))
-    elif dev.signal_ground == "lift":
-        conductors.append(Conductor(f"{n}.gnd_lift", "lift", f"{n}.gnd", f"{n}.chassis", resistance=10.0,
-                                    capacitance=47e-9, location=loc))
-    return Plan(title=n, file=str(loc.file), metals=metals, points=points, conductors=tuple(conductors), location=loc)
-
-
-def _merge_device(dev: Device, refs: dict, ld: _Loader, library_dirs: list[str], groups: dict, metals: dict,
-                  points: dict, names: dict) -> None:
-    """Add a device's elements to the installation, prefixed with its name and moved to its place."""
-    errors = ld.errors
-    if dev.source == "simple":
-        sub = _simple_device(dev)
-        cord_default = DEFAULT_CORD
-    else:
-        path = _find_device(dev.source, dev, ld, library_dirs)
-        if path is None:
-            errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
-                                    "looked beside the plan and in the library folders (library \"DIR\", GROUNDCHECK_LIBRARY)"))
-            return
-        if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
-            errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,
-                                    "a device plan cannot place itself, directly or not"))
-            return
-        try:
-            loaded = load(path, libraries=ld.libraries, _devices=ld.device_stack)
-        except PlanErrors as e:
-            errors.extend(e.errors)
-            return
-        prefix = dev.name + "."
-        sub = _prefixed(loaded, prefix)
-        m = loaded.mains
-        cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
-    tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
-    for x in sub.metals:
-        size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
-        metals[x.name] = replace(x, origin=tf(x.origin), size=size)
-    for x in sub.points:
-        points[x.name] = replace(x, pos=tf(x.pos))
-    for x in sub.conductors:
-        groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
-    for kind in (Rectifier, Current, Heater):
-        for x in getattr(sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]):
-            groups[kind].append((x, {}))
-    for x in sub.stages:
-        groups[Stage].append((x, {}))
-    for x in sub.fields:
-        groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
-    pe = f"{dev.name}.{PE_POINT}"
-    if dev.plugged is not None and pe in points:
-        groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
-                                            length=dev.cord_length or cord_default[0], area=dev.cord_area or cord_default[1],
-                                            location=dev.location), {}))
-
-
-def _prefixed(p: Plan, prefix: str) -> Plan:
-    """A device plan with every name prefixed (channels too, so each device keeps its own)."""
-    pre = lambda n: None if n is None else prefix + n  # noqa: E731
-    return replace(
-        p,
-        metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
-        points=tuple(replace(x, name=pre(x.name), on=pre(x.on), group=pre(x.group) if x.group else prefix.rstrip("."))
-                     for x in p.points),
-        conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=pre(c.channel)) for c in p.conductors),
-        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.rectifiers),
-        currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.currents),
-        heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b), reference=pre(h.reference)) for h in p.heaters),
-        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel)) for s in p.stages),
-        fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
-    )

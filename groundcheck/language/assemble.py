@@ -1,0 +1,143 @@
+"""Assembling a plan from its built statements: header records, names (each defined once), devices
+merged in, every reference resolved (with "did you mean" hints), automatic names for unnamed
+conductors, and the receiving stages of interconnects."""
+
+from __future__ import annotations
+
+import difflib
+from dataclasses import replace
+from pathlib import Path
+
+from ..core.errors import Location, PlanError
+from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
+from .devices import merge_device
+
+__all__ = ["assemble", "HEADER_KEYWORDS"]
+
+#: keywords of the plan header (one each per file; not allowed inside a block)
+HEADER_KEYWORDS = ("plan", "mains", "ambient", "listening", "library", "device")
+
+_HEADER_FIELD = {"plan": "title", "mains": "mains", "ambient": "ambient", "listening": "listening"}
+
+
+def _collect(built: list, ld):
+    """Sort built records into the header, groups by record type, devices and library folders; names once."""
+    errors = ld.errors
+    header: dict = {}
+    groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage, FieldSource)}
+    names: dict[str, Location] = {}
+    devices: list = []
+    library_dirs: list[str] = []
+    for st, record, refs in built:
+        if st.keyword == "library":
+            library_dirs.append(record)
+            continue
+        if st.keyword == "device":
+            if record.name in names:
+                errors.append(PlanError(f"duplicate name {record.name!r}", st.label_loc or st.loc, f"first defined at {names[record.name]}"))
+                continue
+            names[record.name] = st.label_loc or st.loc
+            devices.append((record, refs))
+            continue
+        if st.keyword in HEADER_KEYWORDS:
+            key = _HEADER_FIELD[st.keyword]
+            if key in header:
+                errors.append(PlanError(f"'{st.keyword}' is given twice", st.loc, "keep one"))
+            header[key] = record
+            continue
+        name = getattr(record, "name", "")
+        if name:
+            if name in names or name == PE_POINT:
+                first = names.get(name)
+                errors.append(PlanError(f"duplicate name {name!r}", st.label_loc or st.loc,
+                                        f"first defined at {first}" if first else "mains.pe is the mains inlet's protective terminal"))
+                continue
+            names[name] = st.label_loc or st.loc
+        groups[type(record)].append((record, refs))
+    return header, groups, names, devices, library_dirs
+
+
+class _Resolver:
+    """Checks that each name a record uses is defined, reporting the undefined ones with a hint."""
+
+    def __init__(self, ld):
+        self.ld = ld
+
+    def __call__(self, name, loc, what, pool) -> bool:
+        if name is None or name in pool or name in self.ld.broken:
+            return True
+        if name == PE_POINT:
+            hint = "declare the supply with 'mains 230 V 50 Hz, ...' to get the inlet's mains.pe"
+        else:
+            close = difflib.get_close_matches(name, list(pool), n=1)
+            hint = f"did you mean {close[0]!r}?" if close else f"define it with 'point {name}: ...'"
+        self.ld.errors.append(PlanError(f"undefined {what} {name!r}", loc, hint))
+        return False
+
+
+def _check_points(groups, metals, check, errors) -> None:
+    for p, refs, *_ in groups[Point]:
+        if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
+            m = metals[p.on]
+            if p.pos is not None and not m.contains(p.pos):
+                errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
+                                        p.location, "positions are in the plan frame, in mm"))
+
+
+def _conductors(groups, nodes, check) -> list[Conductor]:
+    """The conductors with their ends checked; an unnamed conductor is named by its kind and ends."""
+    conductors = []
+    auto: dict[str, int] = {}
+    for c, refs, *_ in groups[Conductor]:
+        ok = check(c.a, refs.get("a", c.location), "point or metal part", nodes)
+        ok = check(c.b, refs.get("b", c.location), "point or metal part", nodes) and ok
+        if not c.name:
+            base = f"{c.kind}:{c.a}-{c.b}"
+            auto[base] = auto.get(base, 0) + 1
+            c = replace(c, name=base if auto[base] == 1 else f"{base}#{auto[base]}")
+        conductors.append(c)
+    return conductors
+
+
+def _check_sources(groups, nodes, check) -> None:
+    for group in (Rectifier, Current, Stage):
+        for r, refs, *_ in groups[group]:
+            check(r.a, refs.get("a", r.location), "point", nodes)
+            check(r.b, refs.get("b", r.location), "point", nodes)
+    for h, refs, *_ in groups[Heater]:
+        for f in ("a", "b", "reference"):
+            check(getattr(h, f), refs.get(f, h.location), "point", nodes)
+
+
+def assemble(built: list, file: str, ld) -> Plan:
+    """The plan of a file's built ``(statement, record, refs)`` list; errors are added to ``ld.errors``."""
+    header, groups, names, devices, library_dirs = _collect(built, ld)
+    mains = header.get("mains")
+    metals = {m.name: m for m, *_ in groups[Metal]}
+    points = {p.name: p for p, *_ in groups[Point]}
+    if mains is not None:
+        points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
+    for dev, refs in devices:
+        merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
+    nodes = set(points) | set(metals)
+    for dev, refs in devices:
+        if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
+            ld.errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
+                                       f"define it with 'point {dev.plugged}: outlet'"))
+    check = _Resolver(ld)
+    _check_points(groups, metals, check, ld.errors)
+    conductors = _conductors(groups, nodes, check)
+    _check_sources(groups, nodes, check)
+    stages = [r for r, *_ in groups[Stage]]
+    for c in conductors:
+        if c.kind == "interconnect" and c.gain is not None:
+            gain = c.gain - (c.cmrr if c.balanced else 0.0)
+            stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location))
+    return Plan(
+        title=header.get("title") or Path(file).stem, file=file, mains=mains,
+        ambient=header.get("ambient", 20.0), listening=header.get("listening"),
+        metals=tuple(metals.values()), points=tuple(points.values()), conductors=tuple(conductors),
+        rectifiers=tuple(r for r, *_ in groups[Rectifier]), currents=tuple(r for r, *_ in groups[Current]),
+        heaters=tuple(r for r, *_ in groups[Heater]), stages=tuple(stages),
+        fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
+    )

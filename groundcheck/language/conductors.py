@@ -1,0 +1,107 @@
+"""The conductor statements (wire, trace, busbar, bolt, strap, shield, interconnect, lift, switch):
+one builder for every kind, the geometry each kind needs coming from :mod:`groundcheck.model.kinds`."""
+
+from __future__ import annotations
+
+from ..core.errors import PlanError
+from ..core.units import awg_diameter
+from ..model.kinds import KINDS, default_role
+from ..model.records import Conductor, make
+from .phrases import Reader, Statement, check_quantity
+from .reading import MATERIALS, ROLE_WORDS, Refs, first_phrase_ends, it_number, material, unknown
+
+__all__ = ["conductor", "CONDUCTOR_NAMED"]
+
+
+CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
+                   "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced", "gain", "cmrr")
+#: the field a bare quantity of each kind sets on a conductor
+_CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
+
+
+def conductor(stmt: Statement):
+    kind = stmt.keyword
+    refs: Refs = {}
+    a, b = first_phrase_ends(stmt, refs)
+    kw: dict = {"role": default_role(kind)}
+    if kind == "bolt":
+        kw["contact"] = 0.5e-3
+    if kind == "trace":
+        kw["thickness"] = 35e-6
+    named = CONDUCTOR_NAMED
+    for ph in stmt.phrases[1:]:
+        r = Reader(ph, stmt)
+        first = ph[0]                    # phrases are never empty
+        if first.kind == "qty":
+            it = r.next("")
+            field = _CONDUCTOR_QTY.get(it.qkind)
+            if field is None or (field == "capacitance" and kind != "lift"):
+                raise PlanError(f"{kind}: a {it.qkind} is not expected here", it.loc,
+                                "give lengths, areas (mm2 or AWG) and resistances; a capacitance only on a lift")
+            kw[field] = check_quantity(it, it.qkind, field, allow_zero=field == "resistance")
+            if field == "area" and it.text.upper().endswith("AWG"):
+                kw["diameter"] = awg_diameter(it_number(it))
+        elif first.kind == "word" and first.value.upper() == "AWG":
+            r.next("")
+            n = r.number("an AWG size")
+            if n != int(n) or not -3 <= n <= 46:
+                raise PlanError(f"AWG size {n:g} is not a whole gauge", first.loc, "use a size from 0000 (-3) to 46")
+            d = awg_diameter(n)
+            kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
+        elif first.kind == "word" and first.value in ROLE_WORDS:
+            kw["role"] = r.word()
+        elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
+            kw["material"] = material(r.word())
+        elif first.kind == "word" and first.value in named:
+            word = r.word()
+            if word == "via":
+                pts = [r.coord()]
+                while not r.done:
+                    pts.append(r.coord())
+                kw["route"] = tuple(pts)
+            elif word in ("width", "thickness", "copper", "diameter"):
+                kw[{"copper": "thickness"}.get(word, word)] = r.quantity("length", word)
+            elif word in ("contact", "resistance"):
+                kw[word] = r.quantity("resistance", word, allow_zero=True)
+            elif word == "insulation":
+                kw["insulation"] = r.word("an insulation (pvc, xlpe, bare)", ("pvc", "xlpe", "bare"))
+            elif word == "channel":
+                kw["channel"] = r.word("a channel name")
+            elif word == "terminated":
+                it = r.next("which end is terminated")
+                if it.kind != "word" or it.value not in ("both", a, b):
+                    raise PlanError(f"terminated takes 'both' or one of the ends ({a}, {b})", it.loc, "")
+                kw["terminated"] = "both" if it.value == "both" else ("a" if it.value == a else "b")
+            elif word == "separate":
+                kw["in_cable"] = False
+            elif word == "in-cable":
+                kw["in_cable"] = True
+            elif word in ("open", "closed"):
+                kw["closed"] = word == "closed"
+            elif word in ("balanced", "unbalanced"):
+                kw["balanced"] = word == "balanced"
+            elif word in ("gain", "cmrr"):
+                kw[word] = r.quantity("level", word, positive=False)
+        else:
+            raise unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
+        r.finish()
+    _check_geometry(stmt, kind, kw)
+    return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+#: what to say when a kind's required geometry is missing: field -> (what it needs, an example)
+_GEOMETRY_HINTS = {
+    "length": ("a length (or a stated resistance)", "e.g. ', 120 mm'"),
+    "area": ("a cross-section (mm2 or AWG) or a stated resistance", "e.g. ', 0.5 mm2' or ', AWG 20'"),
+    "width": ("a width (or an area, or a stated resistance)", "e.g. ', width 2 mm'"),
+    "resistance": ("its resistor", "e.g. ', 10 ohm, 47 nF'"),
+}
+
+
+def _check_geometry(stmt: Statement, kind: str, kw: dict) -> None:
+    """The geometry the kinds table says a kind needs (a stated resistance satisfies any of it)."""
+    for options in KINDS[kind].needs:
+        if not any(f in kw for f in options) and "resistance" not in kw:
+            what, example = _GEOMETRY_HINTS[options[0]]
+            label = f" {stmt.label}" if stmt.label and options[0] == "length" else ""
+            raise PlanError(f"{kind}{label} needs {what}", stmt.loc, example)

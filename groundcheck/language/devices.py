@@ -1,0 +1,113 @@
+"""Devices in an installation: finding a device's plan, the built-in simple device, and merging a
+device's elements into the installation under its name (prefixed, moved to its place, its mains cord
+joined to the outlet it is plugged into)."""
+
+from __future__ import annotations
+
+import os
+from dataclasses import replace
+from pathlib import Path
+
+from ..core.errors import PlanError, PlanErrors
+from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point,
+                             Rectifier, Stage)
+from .placement import Transform
+
+__all__ = ["find_device", "simple_device", "merge_device", "prefixed", "MAX_DEVICE_DEPTH"]
+
+#: devices placed inside devices, at the most
+MAX_DEVICE_DEPTH = 8
+
+
+def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path | None:
+    here = ld.root
+    candidates = [here / source]
+    env = os.environ.get("GROUNDCHECK_LIBRARY", "")
+    for lib in [*library_dirs, *ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
+        candidates.append((here / lib / source) if not Path(lib).is_absolute() else Path(lib) / source)
+    for c in candidates:
+        if c.is_file():
+            return c.resolve()
+    return None
+
+
+def simple_device(dev: Device) -> Plan:
+    """A built-in device: a touchable chassis, the inlet's protective terminal bonded to it, and a
+    signal ground joined to the chassis directly, through a lift network, or not at all."""
+    n = dev.name
+    loc = dev.location
+    metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), True, loc),)
+    points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc), Point(f"{n}.gnd", "terminal", None, None, n, loc))
+    conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective", contact=0.5e-3,
+                            location=loc)]
+    if dev.signal_ground == "chassis":
+        conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3, location=loc))
+    elif dev.signal_ground == "lift":
+        conductors.append(Conductor(f"{n}.gnd_lift", "lift", f"{n}.gnd", f"{n}.chassis", resistance=10.0,
+                                    capacitance=47e-9, location=loc))
+    return Plan(title=n, file=str(loc.file), metals=metals, points=points, conductors=tuple(conductors), location=loc)
+
+
+def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: dict, metals: dict,
+                  points: dict, names: dict) -> None:
+    """Add a device's elements to the installation, prefixed with its name and moved to its place."""
+    errors = ld.errors
+    if dev.source == "simple":
+        sub = simple_device(dev)
+        cord_default = DEFAULT_CORD
+    else:
+        path = find_device(dev.source, dev, ld, library_dirs)
+        if path is None:
+            errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
+                                    "looked beside the plan and in the library folders (library \"DIR\", GROUNDCHECK_LIBRARY)"))
+            return
+        if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
+            errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,
+                                    "a device plan cannot place itself, directly or not"))
+            return
+        try:
+            loaded = ld.load_device(path)
+        except PlanErrors as e:
+            errors.extend(e.errors)
+            return
+        prefix = dev.name + "."
+        sub = prefixed(loaded, prefix)
+        m = loaded.mains
+        cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
+    tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
+    for x in sub.metals:
+        size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
+        metals[x.name] = replace(x, origin=tf(x.origin), size=size)
+    for x in sub.points:
+        points[x.name] = replace(x, pos=tf(x.pos))
+    for x in sub.conductors:
+        groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
+    for kind in (Rectifier, Current, Heater):
+        for x in getattr(sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]):
+            groups[kind].append((x, {}))
+    for x in sub.stages:
+        groups[Stage].append((x, {}))
+    for x in sub.fields:
+        groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
+    pe = f"{dev.name}.{PE_POINT}"
+    if dev.plugged is not None and pe in points:
+        groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
+                                            length=dev.cord_length or cord_default[0], area=dev.cord_area or cord_default[1],
+                                            location=dev.location), {}))
+
+
+def prefixed(p: Plan, prefix: str) -> Plan:
+    """A device plan with every name prefixed (channels too, so each device keeps its own)."""
+    pre = lambda n: None if n is None else prefix + n  # noqa: E731
+    return replace(
+        p,
+        metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
+        points=tuple(replace(x, name=pre(x.name), on=pre(x.on), group=pre(x.group) if x.group else prefix.rstrip("."))
+                     for x in p.points),
+        conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=pre(c.channel)) for c in p.conductors),
+        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.rectifiers),
+        currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.currents),
+        heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b), reference=pre(h.reference)) for h in p.heaters),
+        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel)) for s in p.stages),
+        fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
+    )

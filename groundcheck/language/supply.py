@@ -1,0 +1,172 @@
+"""The supply statements: the mains supply and its protection, rectifiers, stated currents and heaters."""
+
+from __future__ import annotations
+
+from ..core.errors import PlanError
+from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier
+from .phrases import Reader, Statement, check_quantity
+from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
+
+__all__ = ["mains", "rectifier", "current", "heater", "MAINS_ATTRIBUTES", "MAINS_WORDS"]
+
+#: mains attributes that take one quantity: word -> (field, what, quantity kind)
+MAINS_ATTRIBUTES = {
+    "i2t": ("fuse_i2t", "fuse I²t", "energy integral"),
+    "clears": ("clear_time", "clearing time", "time"),
+    "line-conductor": ("line_area", "line-conductor cross-section", "area"),
+    "loop-impedance": ("loop_impedance", "external earth-fault loop impedance", "resistance"),
+    "rcd": ("rcd", "RCD rated residual current", "current"),
+    "cpc": ("cpc_area", "circuit protective conductor area", "area"),
+    "electrode": ("electrode", "earth-electrode resistance", "resistance"),
+    "fuse-resistance": ("fuse_resistance", "fuse cold resistance", "resistance"),
+}
+MAINS_WORDS = ("fuse", "breaker", "cord", "circuit", "system", "class", "breaking", "inlet", *MAINS_ATTRIBUTES)
+
+
+def mains(stmt: Statement):
+    no_label(stmt)
+    kw: dict = {}
+    for ph in stmt.phrases:
+        r = Reader(ph, stmt)
+        first = r.peek()
+        if first.kind == "qty":
+            while not r.done:
+                it = r.next("a quantity")
+                if it.kind == "qty" and it.qkind == "voltage":
+                    kw["voltage"] = check_quantity(it, "voltage", "mains voltage")
+                elif it.kind == "qty" and it.qkind == "frequency":
+                    kw["frequency"] = check_quantity(it, "frequency", "mains frequency")
+                else:
+                    raise PlanError(f"mains: unexpected {it.text!r}", it.loc, "write e.g. 'mains 230 V 50 Hz'")
+            continue
+        word = r.word("an attribute")
+        if word in ("fuse", "breaker"):
+            kw["fuse"] = r.quantity("current", f"{word} rating")
+            if word == "fuse":
+                kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
+                kw["fuse_kind"] = FUSE_KINDS[kind]
+            else:
+                kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
+                kw["fuse_kind"] = f"breaker-{kind}"
+        elif word in MAINS_ATTRIBUTES:
+            field, what, kind = MAINS_ATTRIBUTES[word]
+            kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
+        elif word == "cord":
+            kw["cord_length"] = r.quantity("length", "cord length", allow_zero=True)
+            if not r.done:
+                kw["cord_area"] = r.quantity("area", "cord conductor area")
+        elif word == "circuit":
+            kw["circuit_length"] = r.quantity("length", "final-circuit length", allow_zero=True)
+            if not r.done:
+                kw["circuit_area"] = r.quantity("area", "final-circuit line-conductor area")
+        elif word == "system":
+            kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+        elif word == "class":
+            kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
+        elif word == "breaking":
+            it = r.peek()
+            if it is not None and it.kind == "qty":
+                kw["breaking_current"] = r.quantity("current", "breaking capacity")
+            else:
+                kw["breaking"] = r.word("a breaking capacity (low, enhanced, high, or a current)", ("low", "enhanced", "high"))
+        elif word == "inlet":
+            r.expect("at")
+            kw["inlet"] = r.coord()
+        else:
+            raise unknown(stmt, ph[0], MAINS_WORDS)
+        r.finish()
+    for need, example in (("voltage", "230 V"), ("frequency", "50 Hz")):
+        if need not in kw:
+            raise PlanError(f"mains needs its {need}", stmt.loc, f"e.g. 'mains 230 V 50 Hz'; missing {example}")
+    return Mains(location=stmt.loc, **kw), {}
+
+
+def rectifier(stmt: Statement):
+    name = need_label(stmt)
+    refs: Refs = {}
+    a, b = first_phrase_ends(stmt, refs)
+    kw: dict = {}
+    spec = {"secondary": ("secondary", "voltage"), "winding": ("winding", "resistance"),
+            "diode": ("diode_drop", "voltage"), "reservoir": ("capacitance", "capacitance")}
+    for ph in stmt.phrases[1:]:
+        r = Reader(ph, stmt)
+        first = r.peek()
+        if first.kind == "word" and first.value in ("full-wave", "bridge", "half-wave"):
+            kw["topology"] = r.word()
+        elif first.kind == "word" and first.value in spec:
+            word = r.word()
+            field, kind = spec[word]
+            kw[field] = r.quantity(kind, word, allow_zero=word == "diode")
+        elif first.kind == "word" and first.value == "load":
+            r.word()
+            it = r.next("a load current or resistance")
+            if it.kind == "qty" and it.qkind == "resistance":
+                kw["load_resistance"] = check_quantity(it, "resistance", "load")
+            else:
+                kw["load_current"] = check_quantity(it, "current", "load", allow_zero=True)
+        elif first.kind == "word" and first.value == "channel":
+            r.word()
+            kw["channel"] = r.word("a channel name")
+        else:
+            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel") + tuple(spec))
+        r.finish()
+    if "load_current" not in kw and "load_resistance" not in kw:
+        raise PlanError("rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'")
+    return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+def current(stmt: Statement):
+    name = need_label(stmt)
+    refs: Refs = {}
+    a, b = first_phrase_ends(stmt, refs)
+    parts = []
+    kw: dict = {}
+    for ph in stmt.phrases[1:]:
+        r = Reader(ph, stmt)
+        first = r.peek()
+        if first.kind == "qty":
+            amp = r.quantity("current", "current", allow_zero=True)
+            freq = r.quantity("frequency", "frequency", allow_zero=True) if not r.done else 0.0
+            parts.append((amp, freq))
+        elif first.kind == "word" and first.value in ("return", "load", "heater", "leakage", "signal"):
+            kw["role"] = r.word()
+        elif first.kind == "word" and first.value == "channel":
+            r.word()
+            kw["channel"] = r.word("a channel name")
+        else:
+            raise unknown(stmt, first, ("return", "load", "heater", "leakage", "signal", "channel", "120 mA 100 Hz"))
+        r.finish()
+    if not parts:
+        raise PlanError("current needs its size", stmt.loc, "e.g. ', 20 mA 100 Hz' (no frequency means DC)")
+    return Current(name=name, a=a, b=b, parts=tuple(parts), location=stmt.loc, **kw), refs
+
+
+def heater(stmt: Statement):
+    name = need_label(stmt)
+    refs: Refs = {}
+    kw: dict = {}
+    phrases = stmt.phrases
+    if phrases and any(it.kind == "word" and it.value == "to" for it in phrases[0]):
+        kw["a"], kw["b"] = ends(stmt, Reader(phrases[0], stmt), refs)
+        phrases = phrases[1:]
+    for ph in phrases:
+        r = Reader(ph, stmt)
+        first = r.peek()
+        if first.kind == "qty" and first.qkind == "voltage":
+            r.quantity("voltage", "heater voltage")
+        elif first.kind == "qty":
+            kw["current"] = r.quantity("current", "heater current")
+        elif first.kind == "word" and first.value in ("ac", "dc"):
+            kw["ac"] = r.word() == "ac"
+        elif first.kind == "word" and first.value == "reference":
+            r.word()
+            kw["reference"], refs["reference"] = r.name("the reference point")
+        elif first.kind == "word" and first.value == "floating":
+            r.word()
+            kw["reference"] = None
+        else:
+            raise unknown(stmt, first, ("ac", "dc", "reference", "floating", "A to B", "2.4 A"))
+        r.finish()
+    if "current" not in kw:
+        raise PlanError("heater needs its current", stmt.loc, "e.g. ', 2.4 A'")
+    return Heater(name=name, location=stmt.loc, **kw), refs
