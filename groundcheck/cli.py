@@ -300,7 +300,8 @@ def cmd_suggest(args) -> int:
     import json
     from .core.plain import clean
     from .renderers.text import CAUTION
-    from .advice.repair import apply_edits, greedy, suggest, suggestions_document, suggestions_text
+    from .advice.repair import apply_edits, greedy, suggest
+    from .advice.report import suggestions_document, suggestions_text
     if args.plan == "-":
         raise UsageError("suggest needs a plan file, not standard input (its edits are shown against the file)")
     path = Path(args.plan)

@@ -199,7 +199,7 @@ def test_role_less_building_runs_stay_on_the_protective_route(tmp_path):
 
 
 def test_suggestions_read_as_levels(tmp_path):
-    from groundcheck.advice.repair import suggestions_text
+    from groundcheck.advice.report import suggestions_text
     before, evs = _evs(ROLELESS_PE, tmp_path)
     text = suggestions_text(before.plan, ROLELESS_PE, "plan.gplan", evs, [], before, "caution")
     assert "finding(s)" not in text
@@ -215,3 +215,35 @@ def test_uninsulated_socket_is_insulated_not_unwired(tmp_path):
     useful = [e for e in evs if not e.rejected]
     assert useful[0].candidate.title.startswith("insulate jack_nut")
     assert not any("in_gnd" in e.candidate.title or "star_bond" in e.candidate.title for e in useful)
+
+
+def test_statement_over_two_lines_is_edited_by_its_spans(tmp_path):
+    # the shield statement continues on a second line: the 'terminate at one end' candidate still appears,
+    # and only the words 'terminated both' change
+    text = MONO.read_text()
+    line = next(x for x in text.split("\n") if x.startswith("shield in_shield:"))
+    head, tail = line.split(", ", 1)
+    text = text.replace(line, head + ",\n    " + tail)
+    before, evs = _evs(text, tmp_path, "mono.gplan")
+    (e,) = [e for e in evs if e.candidate.title.startswith("terminate shield in_shield")]
+    assert not e.rejected and "GC108" not in _codes_after(e)
+    new = apply_edits(text, e.candidate.edits)
+    assert new.count("\n") == text.count("\n") and "terminated v1_grid_gnd" in new
+
+
+def test_new_protective_stud_is_clear_of_the_transformer(tmp_path):
+    before, evs = _suggest(MONO)
+    (e,) = [e for e in evs if "stud of its own" in e.candidate.title]
+    new = apply_edits(MONO.read_text(), e.candidate.edits)
+    p = load_text(new, str(tmp_path / "m.gplan"), root=MONO.parent)
+    stud = p.point("pe_stud")
+    frame = p.metal("ptx_frame")
+    assert p.metal("chassis").contains(stud.pos) and not frame.contains(stud.pos)
+    others = [q for q in p.points if q.pos is not None and q.name != "pe_stud"]
+    assert min(((q.pos[0] - stud.pos[0]) ** 2 + (q.pos[1] - stud.pos[1]) ** 2) ** 0.5 for q in others) >= 15e-3
+    lead = next(c for c in p.conductors if c.name == "pe_lead")
+    # straight line from the inlet (15,180) to the stud, plus the stated 20 % allowance
+    inlet = p.point("mains.pe").pos
+    assert lead.length == pytest.approx(round(((inlet[0] - stud.pos[0]) ** 2 + (inlet[1] - stud.pos[1]) ** 2) ** 0.5 * 1.2, 3),
+                                        abs=1e-3)
+    assert "# mistake 1" not in next(x for x in new.split("\n") if x.startswith("wire pe_lead"))

@@ -1,0 +1,150 @@
+"""Edits of a plan's text, placed by the parser's own spans (never a second reading of the text).
+
+:class:`PlanText` parses the main plan file once with the language's parser and finds each statement,
+its lines (a statement may continue over several) and the exact column of each item, so that an edit
+replaces just the words it means to, wherever the statement is written.  :class:`Edit` replaces a range
+of lines; :func:`apply_edits` applies several, and :func:`text_diff` shows them as a unified diff.
+"""
+
+from __future__ import annotations
+
+import difflib
+import re
+from dataclasses import dataclass
+
+from ..language.phrases import Item, Statement
+from ..language.syntax import parse_text
+
+__all__ = ["Edit", "apply_edits", "text_diff", "unified_diff", "PlanText", "REMOVED_MARK"]
+
+#: the note a statement commented out by the advisor carries
+REMOVED_MARK = "# removed by groundcheck suggest"
+
+
+@dataclass(frozen=True)
+class Edit:
+    """Replace lines ``line`` to ``last`` (1-based; ``last`` None: that one line) of the main plan file by
+    ``new``; ``new`` None comments them out; ``extra`` lines are added after them."""
+
+    line: int
+    new: str | None
+    extra: tuple[str, ...] = ()
+    last: int | None = None
+
+
+def apply_edits(text: str, edits) -> str:
+    lines = text.split("\n")
+    out = list(lines)
+    for e in sorted(edits, key=lambda e: -e.line):
+        i, j = e.line - 1, (e.last or e.line)
+        old = lines[i: j]
+        indent = old[0][: len(old[0]) - len(old[0].lstrip())]
+        if e.new is None:
+            new = [f"{x[: len(x) - len(x.lstrip())]}# {x.strip()}" for x in old]
+            new[-1] += f"   {REMOVED_MARK}"
+        else:
+            new = [e.new]
+        out[i: j] = new + [indent + x for x in e.extra]
+    return "\n".join(out)
+
+
+def text_diff(old: str, new: str, name: str) -> str:
+    """A unified diff of a plan file's text (paths a/NAME and b/NAME, one line of context)."""
+    return "".join(difflib.unified_diff(old.splitlines(True), new.splitlines(True), f"a/{name}", f"b/{name}", n=1))
+
+
+def unified_diff(text: str, edits, name: str) -> str:
+    return text_diff(text, apply_edits(text, edits), name)
+
+
+_QTY_SPAN = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?[ \t]*[^\s,#]*")
+
+
+class PlanText:
+    """A plan file's text with its statements, as the parser read them."""
+
+    def __init__(self, text: str, file: str):
+        self.text = text
+        self.lines = text.split("\n")
+        errors: list = []
+        top, _ = parse_text(text, file, errors)
+        self.by_line: dict[int, Statement] = {}
+        self.block_of: dict[int, str] = {}
+        for entry in top:
+            if isinstance(entry, tuple):
+                for st in entry[1].body:
+                    self.by_line[st.loc.line] = st
+                    self.block_of[st.loc.line] = entry[1].name
+            else:
+                self.by_line[entry.loc.line] = entry
+
+    def statement(self, line: int) -> Statement | None:
+        """The statement that starts on ``line``."""
+        return self.by_line.get(line)
+
+    @staticmethod
+    def last_line(st: Statement) -> int:
+        return max((it.loc.line for ph in st.phrases for it in ph), default=st.loc.line)
+
+    def delete(self, st: Statement) -> Edit:
+        """Comment the whole statement out (every line it spans)."""
+        return Edit(st.loc.line, None, (), self.last_line(st))
+
+    def span(self, it: Item) -> tuple[int, int, int]:
+        """(line, start, end) of an item in the text: 0-based columns, end exclusive."""
+        line = self.lines[it.loc.line - 1]
+        start = it.loc.column - 1
+        if it.kind == "qty":
+            m = _QTY_SPAN.match(line, start)
+            end = m.end() if m else start + len(it.text)
+        else:
+            end = start + len(it.text)
+        return it.loc.line, start, end
+
+    def replace(self, st: Statement, changes: list[tuple[Item, str]], drop_comment: bool = False) -> Edit:
+        """Replace items of a statement by new texts (several on one line are fine); the statement's lines
+        are rewritten, and with ``drop_comment`` their trailing comments go (they may describe the old)."""
+        first, last = st.loc.line, self.last_line(st)
+        rows = {n: self.lines[n - 1] for n in range(first, last + 1)}
+        for it, new in sorted(changes, key=lambda c: (-c[0].loc.line, -c[0].loc.column)):
+            n, a, b = self.span(it)
+            rows[n] = rows[n][:a] + new + rows[n][b:]
+        if drop_comment:
+            rows = {n: _without_comment(r) for n, r in rows.items()}
+        return Edit(first, "\n".join(rows[n] for n in range(first, last + 1)), (), last)
+
+    @staticmethod
+    def ends(st: Statement) -> tuple[Item, Item] | None:
+        """The two end items of a conductor statement's first phrase (``A to B``)."""
+        ph = st.phrases[0] if st.phrases else []
+        if len(ph) == 3 and ph[1].kind == "word" and ph[1].value == "to":
+            return ph[0], ph[2]
+        return None
+
+    @staticmethod
+    def find(st: Statement, *words: str) -> list[Item] | None:
+        """The items of the phrase that starts with the given words (e.g. ``terminated``, ``both``)."""
+        for ph in st.phrases:
+            if len(ph) >= len(words) and all(it.kind == "word" and it.value == w for it, w in zip(ph, words)):
+                return ph
+        return None
+
+    @staticmethod
+    def quantity(st: Statement, kind: str) -> Item | None:
+        """The first item of a statement that is a quantity of ``kind`` (length, area, ...), or an AWG size."""
+        for ph in st.phrases[1:]:
+            for it in ph:
+                if it.kind == "qty" and it.qkind == kind:
+                    return it
+        return None
+
+
+def _without_comment(row: str) -> str:
+    """A line without its trailing comment (a ``#`` outside a quoted string)."""
+    quoted = False
+    for i, ch in enumerate(row):
+        if ch == '"':
+            quoted = not quoted
+        elif ch == "#" and not quoted:
+            return row[:i].rstrip()
+    return row

@@ -1,0 +1,74 @@
+"""The suggestions as people read them: the terminal text and the JSON document of ``groundcheck suggest``.
+
+Hum is shown as real levels before and after with the change in words, never as a clamped number.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..model.records import Plan
+from ..rules.results import Result
+from .edits import text_diff, unified_diff
+from .repair import HUM_FLOOR_DBV, Evaluation
+
+__all__ = ["suggestions_document", "suggestions_text"]
+
+
+def _level(dbv: float) -> str:
+    return f"below {HUM_FLOOR_DBV:.0f} dBV" if dbv <= HUM_FLOOR_DBV else f"{dbv:.1f} dBV"
+
+
+def _hum_change_words(ch: str, before: float, after: float) -> str:
+    """'left: −47.1 → −96.3 dBV (49.2 dB quieter)': real levels, and the change in words."""
+    d = after - before
+    change = "unchanged" if abs(d) < 0.05 else (f"{-d:.1f} dB quieter" if d < 0 else f"{d:.1f} dB louder")
+    if after <= HUM_FLOOR_DBV:
+        change = "hum removed from this channel" if before > HUM_FLOOR_DBV else "unchanged"
+    return f"hum {ch}: {_level(before)} → {_level(after)} ({change})"
+
+
+def _hum_words(ch: str, h) -> str:
+    level = f"{20 * math.log10(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
+    verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
+    return f"{ch} {level} ({verdict})"
+
+
+def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
+                         final: Result, final_text: str) -> dict:
+    """The suggestions as plain data (``groundcheck suggest --format json``)."""
+    return {"plan": plan.file,
+            "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in evs if not e.rejected],
+            "rejected": [e.as_dict() for e in evs if e.rejected],
+            "combined": {"search": "greedy forward selection, every remaining change re-analysed at each step",
+                         "changes": [e.candidate.title for e in chosen],
+                         "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
+                         "diff": text_diff(text, final_text, name)}}
+
+
+def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
+                     final: Result, caution: str) -> str:
+    """The suggestions as the terminal shows them: each with its predicted effect and its diff."""
+    useful = [e for e in evs if not e.rejected]
+    rejected = [e for e in evs if e.rejected]
+    out = [f"Suggestions for {plan.file} (each re-analysed; best first)", caution, ""]
+    if not useful:
+        out.append("No change found that improves the plan.")
+    for i, e in enumerate(useful, 1):
+        hum = "; ".join(_hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch]) for ch in e.hum_change_db)
+        out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
+        cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")
+        out.append(f"   predicted: {hum or 'no hum figures'}; {cleared}"
+                   + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
+        out.append("   " + unified_diff(text, e.candidate.edits, name).replace("\n", "\n   ").rstrip())
+        out.append("")
+    if rejected:
+        out.append("Considered and rejected:")
+        out.extend(f"  - {e.candidate.title}: {e.rejected}" for e in rejected)
+        out.append("")
+    out.append(f"Combined (greedy search): {len(chosen)} change(s): " + "; ".join(e.candidate.title for e in chosen))
+    left = [f"{f.code} {f.severity}" for f in final.findings]
+    out.append("  leaves no finding" if not left else f"  leaves: {', '.join(left)}")
+    if final.hum is not None:
+        out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
+    return "\n".join(out) + "\n"
