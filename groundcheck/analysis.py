@@ -48,8 +48,8 @@ def _analyze(plan: Plan, options: Options) -> Result:
     circuit = build_circuit(plan)
     result.circuit = circuit
     result.coupling = shared_returns(plan, circuit)
-    result.safety = protective_figures(plan, ctx.route, options.pe_limit)
-    result.device_earths = installation_earths(plan, ctx.route)
+    result.safety = protective_figures(plan, ctx.route, options.pe_limit, circuit)
+    result.device_earths = installation_earths(plan, ctx.route, circuit)
     if options.hum and plan.stages:
         rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
         result.hum = hum_budget(plan, circuit, ctx.loops, rr,

@@ -42,7 +42,7 @@ def small_threshold(monkeypatch):
     monkeypatch.setattr(bigfile, "MIN_LINES", 100)
     calls = []
     real = bigfile.read_split
-    monkeypatch.setattr("groundcheck.language.loader.read_split", lambda *a: calls.append(1) or real(*a))
+    monkeypatch.setattr("groundcheck.language.bigfile.read_split", lambda *a: calls.append(1) or real(*a))
     return calls
 
 

@@ -7,12 +7,11 @@ processes of its own).
 from __future__ import annotations
 
 import gc
-import multiprocessing
 import os
 import sys
 from contextlib import contextmanager
 
-__all__ = ["no_gc", "can_fork", "quiet_child", "threadpool_limits"]
+__all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas"]
 
 
 @contextmanager
@@ -30,13 +29,22 @@ def no_gc():
 
 def can_fork() -> bool:
     """Whether worker processes can be forked here (Linux, and not already a daemonic worker)."""
-    return sys.platform.startswith("linux") and not multiprocessing.current_process().daemon
+    if not sys.platform.startswith("linux"):
+        return False
+    import multiprocessing
+    return not multiprocessing.current_process().daemon
 
 
-try:        # imported here, before any fork: a forked child should not need the import machinery
-    from threadpoolctl import threadpool_limits
-except ImportError:  # pragma: no cover - a dependency; without it the BLAS keeps its threads
-    threadpool_limits = None
+def single_threaded_blas():
+    """A function that makes the numerical libraries of this process single-threaded, or None.
+
+    Call it in the parent before forking: the import then happens once, there, and a forked child does not
+    need the import machinery."""
+    try:
+        from threadpoolctl import threadpool_limits
+    except ImportError:  # pragma: no cover - a dependency; without it the BLAS keeps its threads
+        return None
+    return lambda: threadpool_limits(1)
 
 
 def quiet_child() -> None:

@@ -11,7 +11,6 @@ import sys
 from dataclasses import replace
 from pathlib import Path
 
-from .bigfile import read_split, split_point
 from .assemble import HEADER_KEYWORDS, assemble
 from .placement import Transform
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
@@ -304,11 +303,15 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
     ld.libraries = tuple(libraries)
     ld.device_stack = _devices + ((_resolved,) if _resolved is not None else ())
     stack = (_resolved,) if _resolved is not None else ()
-    at = split_point(text) if jobs > 1 and can_fork() and len(text) <= LIMITS["file_bytes"] else None
+    at = None
+    if jobs > 1 and can_fork() and len(text) <= LIMITS["file_bytes"]:
+        from .bigfile import split_point        # imported only for a two-process read
+        at = split_point(text)
     if at is not None:
         # a large flat file: the second part is parsed and built by a forked worker (see bigfile.py)
         fresh = _Loader(root)
         fresh.libraries, fresh.device_stack = ld.libraries, ld.device_stack
+        from .bigfile import read_split
         built = read_split(ld, text, file, at, fresh, Transform, LIMITS["elements"])
     else:
         items = ld.read_items(text, file, stack)

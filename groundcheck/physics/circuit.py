@@ -96,6 +96,12 @@ class Circuit:
     point_node: dict[str, int] = field(default_factory=dict)   # plan point/part name -> node index
     metal_nodes: dict[str, tuple[int, ...]] = field(default_factory=dict)   # metal part -> its contact nodes
 
+    def restricted(self, conductors) -> "Circuit":
+        """The same network with only the named conductors (every plate branch kept): a plate node that loses
+        its conductors stays as an inner node of the plate network, which is the same as Kron-reducing it."""
+        keep = [b for b in self.branches if b.conductor is None or b.conductor in conductors]
+        return Circuit(self.nodes, keep, self.positions, self.plate_notes, self.point_node, self.metal_nodes)
+
     def nodes_of_metal(self, name: str) -> tuple[int, ...]:
         """The nodes of metal part ``name``: its contact spots on a plate grid, else its one node."""
         return self.metal_nodes.get(name, ())

@@ -23,7 +23,7 @@ to break the prospective current; each protective conductor must survive the let
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -187,16 +187,17 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
     return min(options, key=lambda o: o[0].time)
 
 
-def _protective_plan(plan: Plan, route: ProtectiveRoute) -> Plan:
-    keep = tuple(c for c in plan.conductors
-                 if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES))
-    return replace(plan, conductors=keep)
+def protective_circuit(plan: Plan, route: ProtectiveRoute, circuit=None):
+    """The protective network: conductors protective by topology or role (of a kind that may carry protective
+    current) with every metal part's plate network; from the plan's full circuit when given."""
+    keep = {c.name for c in plan.conductors if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES)}
+    if circuit is None:
+        circuit = build_circuit(plan)
+    return circuit.restricted(keep)
 
 
-def _path_resistances(plan: Plan, route: ProtectiveRoute) -> dict[str, float]:
+def _path_resistances(plan: Plan, circ) -> dict[str, float]:
     """DC resistance from the inlet's protective terminal to each touchable part it reaches (worst spot)."""
-    pplan = _protective_plan(plan, route)
-    circ = build_circuit(pplan)
     _, labels = circ.components
     if PE_POINT not in circ.point_node:
         return {}
@@ -221,14 +222,15 @@ def _path_resistances(plan: Plan, route: ProtectiveRoute) -> dict[str, float]:
     return rpart
 
 
-def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAULT_PE_LIMIT) -> SafetyResult | None:
+def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAULT_PE_LIMIT,
+                       circuit=None) -> SafetyResult | None:
     """Protective-earth figures of every touchable part bonded to the inlet; None without a mains supply
     or for class II equipment (which has no protective earth)."""
     m = plan.mains
     if m is None or m.equipment_class == "II":
         return None
     sup = supply_figures(plan)
-    rpart = _path_resistances(plan, route)
+    rpart = _path_resistances(plan, protective_circuit(plan, route, circuit))
     parts = []
     for part in plan.metals:
         if part.name not in rpart:
@@ -282,14 +284,14 @@ class DeviceEarth:
                 "resistance_ohm": None if self.resistance is None else round(self.resistance, 6)}
 
 
-def installation_earths(plan: Plan, route: ProtectiveRoute) -> tuple[DeviceEarth, ...] | None:
+def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tuple[DeviceEarth, ...] | None:
     """Each placed device's earth-pin path to the main earthing terminal; None when the plan has no
     placed device or no point of kind ``earthing-terminal``."""
     inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT)
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
     if not inlets or not mets:
         return None
-    circ = build_circuit(_protective_plan(plan, route))
+    circ = protective_circuit(plan, route, circuit)
     _, labels = circ.components
     met = circ.point_node[mets[0]]
     reach = [n for n in inlets if labels[circ.point_node[n]] == labels[met] and n in route.reached]

@@ -25,7 +25,7 @@ import gc
 import multiprocessing
 from typing import Callable, Sequence, TypeVar
 
-from ..core.runtime import can_fork, quiet_child, threadpool_limits
+from ..core.runtime import can_fork, quiet_child, single_threaded_blas
 
 __all__ = ["map_frequencies"]
 
@@ -34,13 +34,14 @@ T = TypeVar("T")
 #: the work of the sweep in progress, inherited by the forked workers
 _WORK: Callable | None = None
 _FREQS: Sequence[float] = ()
+_LIMIT_THREADS: Callable | None = None
 
 
 def _start_worker() -> None:
     quiet_child()
     gc.disable()
-    if threadpool_limits is not None:
-        threadpool_limits(1)
+    if _LIMIT_THREADS is not None:
+        _LIMIT_THREADS()
 
 
 def _run(indices: list[int]) -> list:
@@ -59,8 +60,8 @@ def map_frequencies(work: Callable[[float], T], freqs: Sequence[float], jobs: in
     jobs = min(max(1, int(jobs)), len(freqs))
     if jobs <= 1 or not can_fork():
         return [work(f) for f in freqs]
-    global _WORK, _FREQS
-    _WORK, _FREQS = work, freqs
+    global _WORK, _FREQS, _LIMIT_THREADS
+    _WORK, _FREQS, _LIMIT_THREADS = work, freqs, single_threaded_blas()
     try:
         deals = [list(range(k, len(freqs), jobs)) for k in range(jobs)]
         with multiprocessing.get_context("fork").Pool(jobs, initializer=_start_worker) as pool:
