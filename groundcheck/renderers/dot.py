@@ -20,6 +20,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 
+from ..model.kinds import is_fastening
 from ..rules.results import Result
 
 __all__ = ["physical_dot", "topology_dot", "dot_quote", "ROLE_STYLE"]
@@ -86,6 +87,17 @@ def physical_dot(result: Result) -> str:
     lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
              'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72];',
              '  node [fontname=Helvetica, fontsize=8];', '  edge [fontname=Helvetica, fontsize=8];']
+    _metals(plan, marks, scale, P, lines)
+    _points(plan, marks, positioned, P, lines)
+    _conductors(result, marks, positioned, P, lines)
+    _metal_loops(result, positioned, lines)
+    _fields(plan, P, lines)
+    lines.append(_legend((x1 - x0) * scale + 150, 80))
+    lines.append("}")
+    return "\n".join(lines) + "\n"
+
+
+def _metals(plan, marks, scale, P, lines) -> None:
     for m in plan.metals:
         if m.size is None:
             continue
@@ -98,8 +110,11 @@ def physical_dot(result: Result) -> str:
                  "fixedsize": "true", "label": m.name + (" [" + ", ".join(marks[m.name]) + "]" if m.name in marks else ""),
                  "labelloc": "b", "fontcolor": "#666666", "pos": f"{px:.1f},{py:.1f}!"}
         lines.append(f"  {dot_quote('metal:' + m.name)} [{_attrs(style)}];")
-    fastened = {c.a if c.b in {m.name for m in plan.metals} else c.b
-                for c in plan.conductors if c.kind == "bolt" and ((c.a in {m.name for m in plan.metals}) != (c.b in {m.name for m in plan.metals}))}
+
+
+def _points(plan, marks, positioned, P, lines) -> None:
+    metal_names = {m.name for m in plan.metals}
+    fastened = {c.a if c.b in metal_names else c.b for c in plan.conductors if is_fastening(c, metal_names)}
     for name, q in positioned.items():
         p = plan.point(name)
         px, py = P(q)
@@ -114,6 +129,10 @@ def physical_dot(result: Result) -> str:
         if name in marks:
             style.update(color="#e03030", penwidth="2.5", xlabel=f"{name} [{', '.join(marks[name])}]", fontcolor="#b00000")
         lines.append(f"  {dot_quote(name)} [{_attrs(style)}];")
+
+
+def _conductors(result, marks, positioned, P, lines) -> None:
+    plan = result.plan
     loop_members = defaultdict(int)
     for lp in result.loops:
         for e in lp.loop.edges:
@@ -148,6 +167,10 @@ def physical_dot(result: Result) -> str:
                 label = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
                 seg.update(label=label, fontcolor="#b00000" if c.name in marks else "#333333")
             lines.append(f"  {dot_quote(u)} -- {dot_quote(v)} [{_attrs(seg)}];")
+
+
+def _metal_loops(result, positioned, lines) -> None:
+    plan = result.plan
     # loops through a metal part: the straight line between the fastenings it enters and leaves by
     metals = {m.name for m in plan.metals}
     for i, lp in enumerate(result.loops, 1):
@@ -158,14 +181,14 @@ def physical_dot(result: Result) -> str:
                 if before in positioned and after in positioned:
                     lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} [color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
                                  f"label={dot_quote(f'loop {i} through {node}')}, fontcolor=\"#a06000\"];")
+
+
+def _fields(plan, P, lines) -> None:
     for f in plan.fields:
         px, py = P(f.pos)
         lines.append(f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, style=filled, "
                      f"fillcolor=\"#fde3e3\", color=\"#c04040\", label=\"\", xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
                      f"pos=\"{px:.1f},{py:.1f}!\"];")
-    lines.append(_legend((x1 - x0) * scale + 150, 80))
-    lines.append("}")
-    return "\n".join(lines) + "\n"
 
 
 def topology_dot(result: Result) -> str:

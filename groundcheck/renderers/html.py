@@ -140,6 +140,16 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
                          f"<td class=num>{_f(h.signal_to_hum, '{:.1f} dB')}</td><td>{verdict}</td>"
                          f"<td class=num>{_f(h.margin_db, '{:+.1f} dB')}</td><td>{e(top)}</td></tr>")
         parts.append("</table>")
+    _findings_section(result, parts, physical_svg, topology_svg, renderer)
+    _hum_section(result, parts)
+    _protective_section(result, parts)
+    _loops_section(result, parts)
+    parts.append("</body></html>")
+    return "\n".join(parts) + "\n"
+
+
+def _findings_section(result: Result, parts: list[str], physical_svg, topology_svg, renderer: str, e=escape) -> None:
+    """The findings table and both drawings."""
     parts.append('<h2>Findings</h2><table id="findings"><tr><th>severity</th><th>code</th><th>where</th><th>finding</th></tr>')
     for f in result.findings:
         figs = ", ".join(f"{e(str(k))} = {e(str(v))}" for k, v in f.figures.items())
@@ -152,7 +162,12 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
     parts.append(f'<h2>Topology</h2><div class="drawing" id="topology">{_inline_svg(topology_svg)}</div>')
     if renderer:
         parts.append(f'<p class="fig">Drawings rendered by {e(renderer)}.</p>')
+
+
+def _hum_section(result: Result, parts: list[str], e=escape) -> None:
+    """The hum tables and spectrum charts of each channel."""
     if result.hum is not None and result.hum.channels:
+        plan = result.plan
         listening = plan.listening is not None and plan.listening.sensitivity is not None
         parts.append("<h2>Hum and buzz spectrum</h2>")
         for ch, h in result.hum.channels.items():
@@ -164,6 +179,10 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
                              f"<td class=num>{_f(r.get('spl_db'), '{:.1f}')}</td><td class=num>{_f(r.get('threshold_db'), '{:.1f}')}</td>"
                              f"<td class=num>{_f(r.get('margin_db'), '{:+.1f}')}</td></tr>")
             parts.append("</table>")
+
+
+def _protective_section(result: Result, parts: list[str], e=escape) -> None:
+    """The protective-earth tables."""
     if result.safety is not None and result.safety.parts:
         sup = result.safety.supply
         parts.append(f"<h2>Protective earth</h2><p>{e(sup.system)}, external loop {sup.ze:.3g} Ω "
@@ -184,11 +203,13 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
                 parts.append(f"<tr><td>{e(c.conductor)}</td><td class=num>{c.area * 1e6:.4g} mm²</td><td class=num>{c.k:g}</td>"
                              f"<td class=num>{c.required * 1e6:.4g} mm²</td><td>{'yes' if c.survives else 'NO'}</td></tr>")
             parts.append("</table>")
+
+
+def _loops_section(result: Result, parts: list[str], e=escape) -> None:
+    """The table of listed ground loops."""
     if result.loops:
         parts.append('<h2>Ground loops</h2><table id="loops"><tr><th>#</th><th>closed by</th><th>area</th><th>open at</th><th>members</th></tr>')
         for i, lp in enumerate(result.loops[:200], 1):
             parts.append(f"<tr><td>{i}</td><td>{e(lp.closed_by)}</td><td class=num>{_f(None if lp.area is None else lp.area * 1e6, '{:.0f} mm²')}</td>"
                          f"<td>{e(lp.open_at or 'protective: keep closed')}</td><td>{e(' → '.join(lp.loop.nodes))}</td></tr>")
         parts.append("</table>")
-    parts.append("</body></html>")
-    return "\n".join(parts) + "\n"

@@ -34,6 +34,17 @@ def _fmt(x, unit="", digits=3):
 
 
 def print_report(result: Result, console: Console, *, caution: bool = True) -> None:
+    """The whole terminal report: summary, findings, hum tables, protective-earth tables, loops."""
+    _summary(result, console, caution)
+    _findings(result, console)
+    if result.hum is not None and result.hum.channels:
+        _hum_tables(result, console)
+    _protective_tables(result, console)
+    if result.loops:
+        _loop_table(result, console)
+
+
+def _summary(result: Result, console: Console, caution: bool) -> None:
     plan = result.plan
     counts = result.counts()
     worst = result.worst()
@@ -63,9 +74,11 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
                           f"{_fmt(h.signal_to_hum, ' dB', 3) if h.total_v > 0 else 'unlimited'}, {verdict}"
                           + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else ""))
     if caution:
-        console.print(Text(CAUTION, style="dim italic"))
+        console.print(Text(CAUTION, style="bold yellow"))
     console.print()
 
+
+def _findings(result: Result, console: Console) -> None:
     for sev in SEVERITIES:
         group = [f for f in result.findings if f.severity == sev]
         if not group:
@@ -83,38 +96,41 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
                 console.print(Text(f"      fix: {f.fix}", style="green"))
         console.print()
 
-    if result.hum is not None and result.hum.channels:
-        t = Table(title="Hum and buzz at the output", title_justify="left")
-        for col in ("channel", "Hz", "dBV", "dB SPL", "threshold", "margin"):
-            t.add_column(col, justify="right" if col != "channel" else "left")
-        for ch, h in result.hum.channels.items():
-            rows = [r for r in h.spectrum if r["volts"] > 0][:12]
-            for r in rows:
-                t.add_row(escape(ch), f"{r['frequency_hz']:g}", _fmt(r["dbv"], "", 4), _fmt(r.get("spl_db"), "", 3),
-                          _fmt(r.get("threshold_db"), "", 3), _fmt(r.get("margin_db"), "", 3))
-            t.add_row(escape(ch), "total", _fmt(h.total_dbv, "", 4), "", "", _fmt(h.margin_db, "", 3), style="bold")
-        console.print(t)
-        for ch, h in result.hum.channels.items():
-            if h.contributors:
-                top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %" for c in h.contributors[:3])
-                console.print(f"  main contributors, {escape(ch)}: {top}")
-        xt = [r for r in result.hum.crosstalk if r["frequency_hz"] == 1000.0]
-        for r in xt:
-            console.print(f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} at 1 kHz: "
-                          + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB"))
-        for note in result.hum.notes:
-            console.print(Text(f"  note: {note}", style="dim"))
-        console.print()
-        if result.hum.rectifiers:
-            t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
-            for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °"):
-                t.add_column(col, justify="right" if col != "rectifier" else "left")
-            for r in result.hum.rectifiers:
-                t.add_row(escape(r.name), f"{r.dc_voltage:.1f}", f"{r.ripple_pp:.3g}", f"{r.peak_current:.3g}",
-                          f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
-            console.print(t)
-            console.print()
 
+def _hum_tables(result: Result, console: Console) -> None:
+    t = Table(title="Hum and buzz at the output", title_justify="left")
+    for col in ("channel", "Hz", "dBV", "dB SPL", "threshold", "margin"):
+        t.add_column(col, justify="right" if col != "channel" else "left")
+    for ch, h in result.hum.channels.items():
+        rows = [r for r in h.spectrum if r["volts"] > 0][:12]
+        for r in rows:
+            t.add_row(escape(ch), f"{r['frequency_hz']:g}", _fmt(r["dbv"], "", 4), _fmt(r.get("spl_db"), "", 3),
+                      _fmt(r.get("threshold_db"), "", 3), _fmt(r.get("margin_db"), "", 3))
+        t.add_row(escape(ch), "total", _fmt(h.total_dbv, "", 4), "", "", _fmt(h.margin_db, "", 3), style="bold")
+    console.print(t)
+    for ch, h in result.hum.channels.items():
+        if h.contributors:
+            top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %" for c in h.contributors[:3])
+            console.print(f"  main contributors, {escape(ch)}: {top}")
+    xt = [r for r in result.hum.crosstalk if r["frequency_hz"] == 1000.0]
+    for r in xt:
+        console.print(f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} at 1 kHz: "
+                      + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB"))
+    for note in result.hum.notes:
+        console.print(Text(f"  note: {note}", style="dim"))
+    console.print()
+    if result.hum.rectifiers:
+        t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
+        for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °"):
+            t.add_column(col, justify="right" if col != "rectifier" else "left")
+        for r in result.hum.rectifiers:
+            t.add_row(escape(r.name), f"{r.dc_voltage:.1f}", f"{r.ripple_pp:.3g}", f"{r.peak_current:.3g}",
+                      f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
+        console.print(t)
+        console.print()
+
+
+def _protective_tables(result: Result, console: Console) -> None:
     if result.safety is not None and result.safety.parts:
         sup = result.safety.supply
         limit = "none set below 50 V" if sup.max_time is None else f"{sup.max_time:g} s"
@@ -138,14 +154,15 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
         console.print(t)
         console.print()
 
-    if result.loops:
-        t = Table(title=f"Ground loops ({result.loop_total} independent)", title_justify="left")
-        for col in ("#", "closed by", "area mm²", "open at", "members"):
-            t.add_column(col)
-        for i, lp in enumerate(result.loops[:50], 1):
-            t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at or 'protective: keep closed'),
-                      escape(" → ".join(lp.loop.nodes)))
-        console.print(t)
+
+def _loop_table(result: Result, console: Console) -> None:
+    t = Table(title=f"Ground loops ({result.loop_total} independent)", title_justify="left")
+    for col in ("#", "closed by", "area mm²", "open at", "members"):
+        t.add_column(col)
+    for i, lp in enumerate(result.loops[:50], 1):
+        t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at or 'protective: keep closed'),
+                  escape(" → ".join(lp.loop.nodes)))
+    console.print(t)
 
 
 def text_report(result: Result, width: int = 110, color: bool = False) -> str:
