@@ -84,7 +84,17 @@ def build_parser() -> argparse.ArgumentParser:
                 "equipment before anyone solders.", epilog=EPILOG)
     p.add_argument("--version", action="version", version=f"groundcheck {__version__}")
     sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    _check_command(sub)
+    _explain_command(sub)
+    _draw_command(sub)
+    _report_command(sub)
+    _suggest_command(sub)
+    _compare_command(sub)
+    _export_command(sub)
+    return p
 
+
+def _check_command(sub) -> None:
     c = sub.add_parser("check", help="audit plans and print the findings",
                        description="Audit plans: loops, shared returns, stars, chassis bonds, protective earth, hum and buzz.\n\n"
                        "Example:\n  groundcheck check examples/monoblock-power-amp.gplan --format json",
@@ -97,10 +107,14 @@ def build_parser() -> argparse.ArgumentParser:
                    "file is read by two and the hum budget's frequencies are shared among N (Linux; default 1)")
     _add_analysis_options(c)
 
+
+def _explain_command(sub) -> None:
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
                        description="Example:\n  groundcheck explain GC102", formatter_class=argparse.RawDescriptionHelpFormatter)
     e.add_argument("code", metavar="CODE", nargs="?", help="rule code, e.g. GC102 (none: list every rule)")
 
+
+def _draw_command(sub) -> None:
     d = sub.add_parser("draw", help="draw the plan with every problem marked",
                        description="Draw the physical view (metal parts, points at their positions, conductors by role, "
                        "loops and problems marked) or the topology view.\n\nExample:\n"
@@ -113,16 +127,21 @@ def build_parser() -> argparse.ArgumentParser:
     d.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
 
+
+def _report_command(sub) -> None:
     h = sub.add_parser("report", help="write a self-contained HTML report",
                        description="One HTML file with the summary, findings, drawings, hum spectrum and protective-earth "
                        "table; no network fetches.\n\nExample:\n  groundcheck report examples/dual-mono-line-stage.gplan -o report.html",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     h.add_argument("plan", metavar="PLAN")
-    h.add_argument("-o", "--output", metavar="FILE", required=True)
-    h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto")
+    h.add_argument("-o", "--output", metavar="FILE", required=True, help="the HTML file to write (FILE.html)")
+    h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
+                   help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
     h.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     _add_analysis_options(h)
 
+
+def _suggest_command(sub) -> None:
     s = sub.add_parser("suggest", help="propose changes that fix the findings, ranked by their predicted gain",
                        description="Try candidate changes on the plan (lift a shield end, remove a redundant bond, re-route "
                        "a return, join a rectifier's ends, give the protective earth its own stud ...), re-run the analysis for "
@@ -132,18 +151,22 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("plan", metavar="PLAN")
     s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
     s.add_argument("--pick", type=int, metavar="N", help="with --apply: apply suggestion N instead of the combined set")
-    s.add_argument("--format", choices=("text", "json"), default="text")
+    s.add_argument("--format", choices=("text", "json"), default="text", help="output format (default text)")
     _add_analysis_options(s)
 
+
+def _compare_command(sub) -> None:
     cp = sub.add_parser("compare", help="compare two plans: findings, loops, hum per harmonic, protective earth",
                         description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o changes.html",
                         formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     cp.add_argument("before", metavar="BEFORE")
     cp.add_argument("after", metavar="AFTER")
-    cp.add_argument("--format", choices=("text", "json", "html"), default="text")
-    cp.add_argument("-o", "--output", metavar="FILE")
+    cp.add_argument("--format", choices=("text", "json", "html"), default="text", help="output format (default text)")
+    cp.add_argument("-o", "--output", metavar="FILE", help="write the comparison to FILE instead of standard output")
     _add_analysis_options(cp)
 
+
+def _export_command(sub) -> None:
     x = sub.add_parser("export", help="write the ground network in another format",
                        description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o ground.cir",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
@@ -151,8 +174,7 @@ def build_parser() -> argparse.ArgumentParser:
     x.add_argument("--spice", action="store_true", required=True, help="a plain SPICE netlist (R, L, C, current sources)")
     x.add_argument("--frequency", type=_quantity("frequency", "Hz"), metavar="HZ",
                    help="AC analysis at this frequency (default: DC operating point)")
-    x.add_argument("-o", "--output", metavar="FILE")
-    return p
+    x.add_argument("-o", "--output", metavar="FILE", help="write the netlist to FILE instead of standard output")
 
 
 def _load(path: str, jobs: int = 1):

@@ -19,6 +19,38 @@ CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance
 _CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
 
 
+def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
+    """A conductor attribute that starts with a word of :data:`CONDUCTOR_NAMED`."""
+    if word == "via":
+        pts = [r.coord()]
+        while not r.done:
+            pts.append(r.coord())
+        kw["route"] = tuple(pts)
+    elif word in ("width", "thickness", "copper", "diameter"):
+        kw[{"copper": "thickness"}.get(word, word)] = r.quantity("length", word)
+    elif word in ("contact", "resistance"):
+        kw[word] = r.quantity("resistance", word, allow_zero=True)
+    elif word == "insulation":
+        kw["insulation"] = r.word("an insulation (pvc, xlpe, bare)", ("pvc", "xlpe", "bare"))
+    elif word == "channel":
+        kw["channel"] = r.word("a channel name")
+    elif word == "terminated":
+        it = r.next("which end is terminated")
+        if it.kind != "word" or it.value not in ("both", a, b):
+            raise PlanError(f"terminated takes 'both' or one of the ends ({a}, {b})", it.loc, "")
+        kw["terminated"] = "both" if it.value == "both" else ("a" if it.value == a else "b")
+    elif word == "separate":
+        kw["in_cable"] = False
+    elif word == "in-cable":
+        kw["in_cable"] = True
+    elif word in ("open", "closed"):
+        kw["closed"] = word == "closed"
+    elif word in ("balanced", "unbalanced"):
+        kw["balanced"] = word == "balanced"
+    elif word in ("gain", "cmrr"):
+        kw[word] = r.quantity("level", word, positive=False)
+
+
 def conductor(stmt: Statement):
     kind = stmt.keyword
     refs: Refs = {}
@@ -53,35 +85,7 @@ def conductor(stmt: Statement):
         elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
             kw["material"] = material(r.word())
         elif first.kind == "word" and first.value in named:
-            word = r.word()
-            if word == "via":
-                pts = [r.coord()]
-                while not r.done:
-                    pts.append(r.coord())
-                kw["route"] = tuple(pts)
-            elif word in ("width", "thickness", "copper", "diameter"):
-                kw[{"copper": "thickness"}.get(word, word)] = r.quantity("length", word)
-            elif word in ("contact", "resistance"):
-                kw[word] = r.quantity("resistance", word, allow_zero=True)
-            elif word == "insulation":
-                kw["insulation"] = r.word("an insulation (pvc, xlpe, bare)", ("pvc", "xlpe", "bare"))
-            elif word == "channel":
-                kw["channel"] = r.word("a channel name")
-            elif word == "terminated":
-                it = r.next("which end is terminated")
-                if it.kind != "word" or it.value not in ("both", a, b):
-                    raise PlanError(f"terminated takes 'both' or one of the ends ({a}, {b})", it.loc, "")
-                kw["terminated"] = "both" if it.value == "both" else ("a" if it.value == a else "b")
-            elif word == "separate":
-                kw["in_cable"] = False
-            elif word == "in-cable":
-                kw["in_cable"] = True
-            elif word in ("open", "closed"):
-                kw["closed"] = word == "closed"
-            elif word in ("balanced", "unbalanced"):
-                kw["balanced"] = word == "balanced"
-            elif word in ("gain", "cmrr"):
-                kw[word] = r.quantity("level", word, positive=False)
+            _named(r, r.word(), kw, a, b)
         else:
             raise unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
         r.finish()

@@ -294,27 +294,20 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
     two or more positioned fasteners is replaced by its Kron-reduced plate
     network; otherwise each part is one ideal node.
     """
-    T = plan.ambient
-    nodes: list[str] = []
-    index: dict[str, int] = {}
-    positions: dict[str, XY] = {}
-
-    def node(name: str, p: XY | None = None) -> int:
-        if name not in index:
-            index[name] = len(nodes)
-            nodes.append(name)
-            if p is not None:
-                positions[name] = p
-        return index[name]
-
-    point_node: dict[str, int] = {}
-    for p in plan.points:
-        point_node[p.name] = node(p.name, p.pos)
-    pos = {p.name: p.pos for p in plan.points if p.pos is not None}
+    bld = _Builder(plan)
     metals = {m.name: m for m in plan.metals}
     conductors = [c for c in plan.conductors if c.connects]
+    fasteners = _fasteners(plan, metals, conductors)
+    for name, m in metals.items():
+        bld.metal(m, fasteners[name], plates)
+    for c in conductors:
+        bld.conductor(c, metals)
+    return Circuit(bld.nodes, bld.branches, bld.positions, bld.plate_notes, bld.point_node, bld.metal_nodes)
 
-    # fastening positions on each metal part
+
+def _fasteners(plan: Plan, metals: dict, conductors) -> dict[str, list[tuple[str, XY]]]:
+    """Fastening positions on each metal part: (conductor, position or None)."""
+    pos = {p.name: p.pos for p in plan.points if p.pos is not None}
     fasteners: dict[str, list[tuple[str, XY]]] = {m: [] for m in metals}
     for c in conductors:
         for end, other in ((c.a, c.b), (c.b, c.a)):
@@ -325,22 +318,46 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
                     if m.size is not None:
                         where = (m.origin[0] + m.size[0] / 2, m.origin[1] + m.size[1] / 2)
                 fasteners[end].append((c.name, where))
+    return fasteners
 
-    branches: list[Branch] = []
-    plate_notes: dict[str, dict] = {}
-    metal_contact: dict[tuple[str, str], int] = {}      # (metal, conductor) -> node
-    metal_nodes: dict[str, tuple[int, ...]] = {}
-    for name, m in metals.items():
-        fs = fasteners[name]
+
+class _Builder:
+    """Nodes and branches of a circuit as they are added."""
+
+    def __init__(self, plan: Plan):
+        self.plan, self.T = plan, plan.ambient
+        self.nodes: list[str] = []
+        self.index: dict[str, int] = {}
+        self.positions: dict[str, XY] = {}
+        self.branches: list[Branch] = []
+        self.plate_notes: dict[str, dict] = {}
+        self.metal_contact: dict[tuple[str, str], int] = {}      # (metal, conductor) -> node
+        self.metal_nodes: dict[str, tuple[int, ...]] = {}
+        self.point_node: dict[str, int] = {}
+        for p in plan.points:
+            self.point_node[p.name] = self.node(p.name, p.pos)
+        self.pos = {p.name: p.pos for p in plan.points if p.pos is not None}
+
+    def node(self, name: str, p: XY | None = None) -> int:
+        if name not in self.index:
+            self.index[name] = len(self.nodes)
+            self.nodes.append(name)
+            if p is not None:
+                self.positions[name] = p
+        return self.index[name]
+
+    def metal(self, m, fs: list, plates: bool) -> None:
+        """A metal part: one ideal node, or its contact spots joined by the Kron-reduced plate network."""
+        name = m.name
         gridable = (plates and m.size is not None and m.material in MATERIALS and len(fs) >= 2
                     and all(w is not None for _, w in fs) and len(fs) <= 60)
         if not gridable:
-            point_node[name] = node(name)
-            metal_nodes[name] = (point_node[name],)
+            self.point_node[name] = self.node(name)
+            self.metal_nodes[name] = (self.point_node[name],)
             for cname, _ in fs:
-                metal_contact[(name, cname)] = point_node[name]
-            plate_notes[name] = {"model": "ideal node", "fasteners": len(fs)}
-            continue
+                self.metal_contact[(name, cname)] = self.point_node[name]
+            self.plate_notes[name] = {"model": "ideal node", "fasteners": len(fs)}
+            return
         # distinct contact positions (fasteners at one spot share a node)
         spots: list[XY] = []
         spot_of: dict[str, int] = {}
@@ -352,41 +369,41 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
             else:
                 spot_of[cname] = len(spots)
                 spots.append(w)
-        spot_nodes = [node(f"{name}@{i + 1}", s) for i, s in enumerate(spots)]
-        point_node[name] = spot_nodes[0]
-        metal_nodes[name] = tuple(spot_nodes)
+        spot_nodes = [self.node(f"{name}@{i + 1}", s) for i, s in enumerate(spots)]
+        self.point_node[name] = spot_nodes[0]
+        self.metal_nodes[name] = tuple(spot_nodes)
         for cname, _ in fs:
-            metal_contact[(name, cname)] = spot_nodes[spot_of[cname]]
+            self.metal_contact[(name, cname)] = spot_nodes[spot_of[cname]]
         if len(spots) >= 2:
-            x0 = min(m.origin[0], m.origin[0] + m.size[0])
-            y0 = min(m.origin[1], m.origin[1] + m.size[1])
-            rho = resistivity(m.material, T)
-            res = reduce_plate(m.size[0], m.size[1], m.thickness, rho,
-                               [(s[0] - x0, s[1] - y0) for s in spots], [nodes[i] for i in spot_nodes])
-            G = res.conductance
-            for i in range(len(spots)):
-                for j in range(i + 1, len(spots)):
-                    g = -G[i, j]
-                    if g > 1e-12 * abs(G[i, i]):
-                        branches.append(Branch(spot_nodes[i], spot_nodes[j], f"plate:{name}:{i + 1}~{j + 1}",
-                                               1.0 / g, path=(spots[i], spots[j]), metal=name))
-            plate_notes[name] = {"model": "plate grid", "fasteners": len(spots), "grid_step_mm": res.step * 1e3,
-                                 "estimated_error": res.error}
+            self.plate(m, spots, spot_nodes)
         else:
-            plate_notes[name] = {"model": "one fastening spot", "fasteners": len(fs)}
+            self.plate_notes[name] = {"model": "one fastening spot", "fasteners": len(fs)}
 
-    for c in conductors:
-        r, ind, radius = conductor_resistance(c, T)
-        ends = []
-        for end in (c.a, c.b):
-            ends.append(metal_contact[(end, c.name)] if end in metals else point_node[end])
-        rho = resistivity(c.material if c.material in MATERIALS else "copper", T)
-        path = _segment_path(plan, c, pos)
+    def plate(self, m, spots: list, spot_nodes: list[int]) -> None:
+        x0 = min(m.origin[0], m.origin[0] + m.size[0])
+        y0 = min(m.origin[1], m.origin[1] + m.size[1])
+        rho = resistivity(m.material, self.T)
+        res = reduce_plate(m.size[0], m.size[1], m.thickness, rho,
+                           [(s[0] - x0, s[1] - y0) for s in spots], [self.nodes[i] for i in spot_nodes])
+        G = res.conductance
+        for i in range(len(spots)):
+            for j in range(i + 1, len(spots)):
+                g = -G[i, j]
+                if g > 1e-12 * abs(G[i, i]):
+                    self.branches.append(Branch(spot_nodes[i], spot_nodes[j], f"plate:{m.name}:{i + 1}~{j + 1}",
+                                                1.0 / g, path=(spots[i], spots[j]), metal=m.name))
+        self.plate_notes[m.name] = {"model": "plate grid", "fasteners": len(spots), "grid_step_mm": res.step * 1e3,
+                                    "estimated_error": res.error}
+
+    def conductor(self, c, metals: dict) -> None:
+        r, ind, radius = conductor_resistance(c, self.T)
+        ends = [self.metal_contact[(end, c.name)] if end in metals else self.point_node[end] for end in (c.a, c.b)]
+        rho = resistivity(c.material if c.material in MATERIALS else "copper", self.T)
+        path = _segment_path(self.plan, c, self.pos)
         if not path:
-            pa = positions.get(nodes[ends[0]])
-            pb = positions.get(nodes[ends[1]])
+            pa = self.positions.get(self.nodes[ends[0]])
+            pb = self.positions.get(self.nodes[ends[1]])
             if pa is not None and pb is not None and c.kind == "bolt":
                 path = (pa, pb)
-        branches.append(Branch(ends[0], ends[1], c.name, r, ind, radius, rho,
-                               c.capacitance if c.kind == "lift" else None, path, c.name))
-    return Circuit(nodes, branches, positions, plate_notes, point_node, metal_nodes)
+        self.branches.append(Branch(ends[0], ends[1], c.name, r, ind, radius, rho,
+                                    c.capacitance if c.kind == "lift" else None, path, c.name))
