@@ -147,137 +147,181 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
     are shared among that many processes (:mod:`groundcheck.physics.sweep`), with the same result.
     """
-    f0 = plan.frequency
-    sources = plan_sources(plan, rectifier_results, options.max_frequency)
-    hum_sources = [s for s in sources if s.kind != "signal"]
-    signal_sources = [s for s in sources if s.kind == "signal"]
-    stages = list(plan.stages)
-    channels = sorted({s.channel for s in stages})
-    listening = plan.listening
-    rated = listening.rated_output if listening else 1.0
-    owners = branch_owner(circuit)
-    branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
-    fields = {x.name: x for x in plan.fields}
-    notes = []
-    if listening is None:
-        notes.append("no listening context: levels are against a rated output of 1 V and no audibility verdict is given")
-    elif listening.sensitivity is None:
-        notes.append("listening context has no speaker sensitivity: no audibility verdict is given")
-    _, labels = circuit.components
-    valid_stage = [labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages]
-    # least-resistance paths of the stages: only loop pickup reads them (one shortest-path search each)
-    paths = [pair_path(circuit, s.a, s.b) if ok and loops and plan.fields else [] for s, ok in zip(stages, valid_stage)]
-    freqs = sorted({f for s in hum_sources for f in s.parts if f > 0} |
-                   ({n * f0 for src in plan.fields for n in [1] + [h for h, _ in src.harmonics]} if loops else set()))
-    freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
-    xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else options.max_frequency})
-    crosstalk_wanted = bool(signal_sources) and len(channels) > 1 and bool(stages)
-    gains = np.array([10 ** (s.gain / 20) for s in stages])
-    valid_idx = np.flatnonzero(valid_stage) if stages else np.zeros(0, dtype=int)
-    # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the module doc)
-    tests = channel_tests(circuit, [stages[k] for k in valid_idx], channels)
-    flux = {(li, src.name): loop_flux(src, info.polygon)
-            for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
+    b = _Budget(plan, circuit, loops, rectifier_results, options)
+    merged = _Merged(b)
+    for f, part in zip(b.solve_at, map_frequencies(b.at_frequency, b.solve_at, jobs)):
+        merged.add(f, part)
+    channels = {ch: merged.channel(ch) for ch in b.channels}
+    if len(b.channels) > 1 and not b.signal_sources:
+        b.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
+    return HumResult(channels, list(rectifier_results.values()), [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
+                     merged.crosstalk(), b.freqs, merged.network_rows, b.notes)
 
-    def at_frequency(f: float) -> _FrequencyPart:
+
+class _Budget:
+    """What every frequency's solve needs, set up once: sources, stages, tests, loop fluxes, frequencies."""
+
+    def __init__(self, plan, circuit, loops, rectifier_results: dict, options: HumOptions):
+        self.plan, self.circuit, self.loops = plan, circuit, loops
+        f0 = self.f0 = plan.frequency
+        sources = plan_sources(plan, rectifier_results, options.max_frequency)
+        self.hum_sources = [s for s in sources if s.kind != "signal"]
+        self.signal_sources = [s for s in sources if s.kind == "signal"]
+        stages = self.stages = list(plan.stages)
+        channels = self.channels = sorted({s.channel for s in stages})
+        self.listening = listening = plan.listening
+        self.rated = listening.rated_output if listening else 1.0
+        self.owners = branch_owner(circuit)
+        self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
+        self.fields = {x.name: x for x in plan.fields}
+        self.notes = []
+        if listening is None:
+            self.notes.append("no listening context: levels are against a rated output of 1 V and no audibility verdict is given")
+        elif listening.sensitivity is None:
+            self.notes.append("listening context has no speaker sensitivity: no audibility verdict is given")
+        _, labels = circuit.components
+        self.valid_stage = [labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages]
+        # least-resistance paths of the stages: only loop pickup reads them (one shortest-path search each)
+        self.paths = [pair_path(circuit, s.a, s.b) if ok and loops and plan.fields else []
+                      for s, ok in zip(stages, self.valid_stage)]
+        freqs = sorted({f for s in self.hum_sources for f in s.parts if f > 0} |
+                       ({n * f0 for src in plan.fields for n in [1] + [h for h, _ in src.harmonics]} if loops else set()))
+        self.freqs = freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
+        self.xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else options.max_frequency})
+        self.crosstalk_wanted = bool(self.signal_sources) and len(channels) > 1 and bool(stages)
+        self.gains = np.array([10 ** (s.gain / 20) for s in stages])
+        self.valid_idx = np.flatnonzero(self.valid_stage) if stages else np.zeros(0, dtype=int)
+        # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the module doc)
+        self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
+        self.flux = {(li, src.name): loop_flux(src, info.polygon)
+                     for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
+        self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
+
+    def at_frequency(self, f: float) -> _FrequencyPart:
         part = _FrequencyPart()
-        fac = circuit.at(f)
-        active = [s for s in hum_sources if s.parts.get(f, 0) != 0] if f in freqs else []
-        if active and stages and valid_idx.size:
-            both = fac.solve(np.hstack([source_injections(circuit, active, f), tests]))
-            W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
-            TC = both.I[:, len(active):]                                 # branches × channels
-            for ci, ch in enumerate(channels):
-                shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
-                v_all = shares_all.sum(axis=0)
-                for si, s in enumerate(active):
-                    group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
-                    v_out = v_all[si]
-                    if v_out == 0:
-                        continue
-                    part.out.append((ch, group, v_out))
-                    shares = shares_all[:, si]
-                    mags = np.abs(shares)
-                    # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
-                    top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
-                    top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
-                    for bi in top:
-                        part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
-                    rest = v_out - shares[top].sum()
-                    if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
-                        part.contrib.append((ch, ("conductor", "other conductors", group), rest))
-            for si, s in enumerate(active):
-                if s.kind == "rectifier" and abs(f - 2 * f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
-                    I = both.I[:, si]
-                    sig = np.flatnonzero(np.abs(I) > 1e-3 * abs(s.parts[f]))
-                    sig = sig[np.argsort(-np.abs(I[sig]), kind="stable")][:NETWORK_ROWS]
-                    part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
-                                         "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
-                                                         "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
-        E, meta = _emf_columns(circuit, loops, plan.fields, f0, f, branch_index, flux) if (loops and f in freqs) else (None, [])
-        if meta:
-            sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
-            drops = np.zeros((len(stages), E.shape[1]), dtype=complex)
-            for k in range(len(stages)):
-                if valid_stage[k]:
-                    drops[k] = path_drop(fac, sol, paths[k]) * gains[k]
-            for col, (li, src_name, phi) in enumerate(meta):
-                chord_i = branch_index[loops[li].loop.edges[loops[li].loop.chord]]
-                part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
-        if crosstalk_wanted and f in xt_freqs:
-            J = np.zeros((len(circuit.nodes), len(signal_sources)), dtype=complex)
-            for k, s in enumerate(signal_sources):
-                amp = sum(abs(v) for v in s.parts.values())
-                J[circuit.point_node[s.a], k] += amp
-                J[circuit.point_node[s.b], k] -= amp
-            sol = fac.solve(J)
-            for si, s in enumerate(signal_sources):
-                for k, st in enumerate(stages):
-                    if valid_stage[k] and st.channel != (s.channel or ""):
-                        part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k]))
+        fac = self.circuit.at(f)
+        active = [s for s in self.hum_sources if s.parts.get(f, 0) != 0] if f in self.freqs else []
+        if active and self.stages and self.valid_idx.size:
+            self._sources(f, fac, active, part)
+        if self.loops and f in self.freqs:
+            self._pickup(f, fac, part)
+        if self.crosstalk_wanted and f in self.xt_freqs:
+            self._crosstalk(fac, part)
         return part
 
-    # merge the frequencies in ascending order: per channel, per frequency: group -> phasor at the output
-    out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}
-    contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in channels}   # (label) -> f -> phasor
-    loop_rows: dict[int, dict] = {}
-    network_rows: list[dict] = []
-    crosstalk_raw = defaultdict(complex)
-    solve_at = sorted(set(freqs) | (set(xt_freqs) if crosstalk_wanted else set()))
-    for f, part in zip(solve_at, map_frequencies(at_frequency, solve_at, jobs)):
-        for ch, group, v in part.out:
-            out[ch][f][group] += v
-        for ch, label, v in part.contrib:
-            contrib[ch][label][f] += v
-        network_rows.extend(part.network)
-        for li, src_name, emf_v, current, drops in part.loops:
-            info = loops[li]
-            row = loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
-                                            "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
-                                            "sources": {}})
-            entry = row["sources"].get(src_name)
-            if entry is None:
-                src = fields[src_name]
-                entry = row["sources"][src_name] = {
-                    "flux_density_equiv_t": abs(flux[(li, src_name)]) / info.area if info.area else None,
-                    "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
-            entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
-            group = f"field:{src_name}"
-            label = ("loop", f"loop {li + 1}", group)
-            for k, st in enumerate(stages):
-                if valid_stage[k]:
-                    out[st.channel][f][group] += drops[k]
-                    contrib[st.channel][label][f] += drops[k]
-        for src_ch, dst_ch, v in part.crosstalk:
-            crosstalk_raw[(src_ch, dst_ch, f)] += v
+    def _sources(self, f, fac, active, part) -> None:
+        """Each stated or simulated current's voltage at each channel's output, with the conductors' shares."""
+        circuit, owners = self.circuit, self.owners
+        both = fac.solve(np.hstack([source_injections(circuit, active, f), self.tests]))
+        W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
+        TC = both.I[:, len(active):]                                 # branches × channels
+        for ci, ch in enumerate(self.channels):
+            shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
+            v_all = shares_all.sum(axis=0)
+            for si, s in enumerate(active):
+                group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
+                v_out = v_all[si]
+                if v_out == 0:
+                    continue
+                part.out.append((ch, group, v_out))
+                shares = shares_all[:, si]
+                mags = np.abs(shares)
+                # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
+                top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
+                top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
+                for bi in top:
+                    part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
+                rest = v_out - shares[top].sum()
+                if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
+                    part.contrib.append((ch, ("conductor", "other conductors", group), rest))
+        for si, s in enumerate(active):
+            if s.kind == "rectifier" and abs(f - 2 * self.f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
+                I = both.I[:, si]
+                sig = np.flatnonzero(np.abs(I) > 1e-3 * abs(s.parts[f]))
+                sig = sig[np.argsort(-np.abs(I[sig]), kind="stable")][:NETWORK_ROWS]
+                part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
+                                     "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
+                                                     "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
 
-    result_channels = {}
-    for ch in channels:
+    def _pickup(self, f, fac, part) -> None:
+        """Each loop's EMF from each field source, the current it drives and the drop it leaves across each stage."""
+        loops, circuit = self.loops, self.circuit
+        E, meta = _emf_columns(circuit, loops, self.plan.fields, self.f0, f, self.branch_index, self.flux)
+        if not meta:
+            return
+        sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
+        drops = np.zeros((len(self.stages), E.shape[1]), dtype=complex)
+        for k in range(len(self.stages)):
+            if self.valid_stage[k]:
+                drops[k] = path_drop(fac, sol, self.paths[k]) * self.gains[k]
+        for col, (li, src_name, phi) in enumerate(meta):
+            chord_i = self.branch_index[loops[li].loop.edges[loops[li].loop.chord]]
+            part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
+
+    def _crosstalk(self, fac, part) -> None:
+        circuit = self.circuit
+        J = np.zeros((len(circuit.nodes), len(self.signal_sources)), dtype=complex)
+        for k, s in enumerate(self.signal_sources):
+            amp = sum(abs(v) for v in s.parts.values())
+            J[circuit.point_node[s.a], k] += amp
+            J[circuit.point_node[s.b], k] -= amp
+        sol = fac.solve(J)
+        for si, s in enumerate(self.signal_sources):
+            for k, st in enumerate(self.stages):
+                if self.valid_stage[k] and st.channel != (s.channel or ""):
+                    part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * self.gains[k]))
+
+
+class _Merged:
+    """The frequencies' parts merged in ascending order: per channel, per frequency, group -> phasor at the output."""
+
+    def __init__(self, b: _Budget):
+        self.b = b
+        self.out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}
+        self.contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}   # (label) -> f -> phasor
+        self.loop_rows: dict[int, dict] = {}
+        self.network_rows: list[dict] = []
+        self.crosstalk_raw = defaultdict(complex)
+
+    def add(self, f: float, part: _FrequencyPart) -> None:
+        for ch, group, v in part.out:
+            self.out[ch][f][group] += v
+        for ch, label, v in part.contrib:
+            self.contrib[ch][label][f] += v
+        self.network_rows.extend(part.network)
+        for li, src_name, emf_v, current, drops in part.loops:
+            self._loop(f, li, src_name, emf_v, current, drops)
+        for src_ch, dst_ch, v in part.crosstalk:
+            self.crosstalk_raw[(src_ch, dst_ch, f)] += v
+
+    def _loop(self, f, li, src_name, emf_v, current, drops) -> None:
+        b = self.b
+        info = b.loops[li]
+        row = self.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
+                                             "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
+                                             "sources": {}})
+        entry = row["sources"].get(src_name)
+        if entry is None:
+            src = b.fields[src_name]
+            entry = row["sources"][src_name] = {
+                "flux_density_equiv_t": abs(b.flux[(li, src_name)]) / info.area if info.area else None,
+                "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
+        entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
+        group = f"field:{src_name}"
+        label = ("loop", f"loop {li + 1}", group)
+        for k, st in enumerate(b.stages):
+            if b.valid_stage[k]:
+                self.out[st.channel][f][group] += drops[k]
+                self.contrib[st.channel][label][f] += drops[k]
+
+    def channel(self, ch: str) -> ChannelHum:
+        """A channel's spectrum (power sum of its groups per frequency), total, contributors and verdict."""
+        listening = self.b.listening
         spectrum = []
         total2 = 0.0
         worst = None
-        for f in freqs:
-            groups = out[ch].get(f, {})
+        for f in self.b.freqs:
+            groups = self.out[ch].get(f, {})
             v = math.sqrt(sum(abs(p) ** 2 for p in groups.values()))
             v = v if v >= FLOOR_V else 0.0
             total2 += v * v
@@ -290,8 +334,15 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                     worst = spl - thr
             spectrum.append(row)
         total = math.sqrt(total2)
+        clist = self._contributors(ch)
+        audible = None if worst is None else worst > 0
+        if listening is not None and listening.sensitivity is not None and worst is None:
+            audible, worst = False, None
+        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst)
+
+    def _contributors(self, ch: str) -> list[dict]:
         clist = []
-        for (kind, name, group), per_f in contrib[ch].items():
+        for (kind, name, group), per_f in self.contrib[ch].items():
             lvl = math.sqrt(sum(abs(p) ** 2 for p in per_f.values()))
             if lvl < FLOOR_V:
                 continue
@@ -300,15 +351,12 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         for c in clist:
             c["share_pct"] = round(100 * c["volts"] ** 2 / tot_c, 1)
         clist.sort(key=lambda c: (-c["volts"], c["element"]))
-        audible = None if worst is None else worst > 0
-        if listening is not None and listening.sensitivity is not None and worst is None:
-            audible, worst = False, None
-        result_channels[ch] = ChannelHum(ch, spectrum, total, rated, clist, audible, worst)
-    crosstalk = []
-    for (src_ch, dst_ch, f), v in sorted(crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])):
-        crosstalk.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
-                          "db": _r(max(CROSSTALK_FLOOR_DB, 20 * math.log10(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
-    if len(channels) > 1 and not signal_sources:
-        notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
-    return HumResult(result_channels, list(rectifier_results.values()), [loop_rows[k] for k in sorted(loop_rows)],
-                     crosstalk, freqs, network_rows, notes)
+        return clist
+
+    def crosstalk(self) -> list[dict]:
+        rated = self.b.rated
+        out = []
+        for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])):
+            out.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
+                        "db": _r(max(CROSSTALK_FLOOR_DB, 20 * math.log10(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
+        return out
