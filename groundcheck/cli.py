@@ -15,7 +15,9 @@ from pathlib import Path
 from .core.version import __version__
 from .core.errors import GroundcheckError, PlanErrors
 from .rules.catalogue import RULES, SEVERITIES
+from .language.loader import load
 from .renderers.formats import CHECK_FORMATS
+from .renderers.output import write_atomic
 from .core.units import UnitError, parse_quantity
 
 __all__ = ["main"]
@@ -178,7 +180,6 @@ def _export_command(sub) -> None:
 
 
 def _load(path: str, jobs: int = 1):
-    from .language.loader import load
     return load(path, jobs=jobs)
 
 
@@ -186,7 +187,6 @@ def _write(text: str, output: str | None, inputs: list[str]) -> None:
     if output is None or output == "-":
         sys.stdout.write(text)
         return
-    from .renderers.output import write_atomic
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
 
 
@@ -293,7 +293,6 @@ def cmd_draw(args) -> int:
     view = args.view if (args.view == "topology" or has_pos) else "topology"
     source = physical_dot(result) if view == "physical" else topology_dot(result)
     data, how = render_dot(source, fmt, "neato" if view == "physical" else "dot", args.renderer)
-    from .renderers.output import write_atomic
     write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
     sys.stderr.write(f"groundcheck: wrote the {view} view to {out} with {how}{note}\n")
@@ -312,7 +311,6 @@ def cmd_report(args) -> int:
         sys.stderr.write(f"groundcheck: warning: {e}; the report has no drawings\n")
         phys = topo = None
         how = ""
-    from .renderers.output import write_atomic
     write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
     return 1 if result.fails(args.fail_on) else 0
@@ -349,7 +347,6 @@ def cmd_suggest(args) -> int:
         target = Path(args.apply)
         if target.exists():
             raise UsageError(f"{args.apply} exists; --apply writes a new file and never replaces one")
-        from .renderers.output import write_atomic
         write_atomic(target, new_text, protect=[path])
         sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
     return 0

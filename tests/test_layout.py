@@ -71,3 +71,16 @@ def test_only_public_names_cross_a_package():
             if target.split(".")[:2] != module.split(".")[:2]:
                 bad += [f"{path.relative_to(PACKAGE)}:{line} {n}" for n in imported if n.startswith("_") and n != "__version__"]
     assert bad == []
+
+
+def test_modules_and_functions_stay_readable_in_one_sitting():
+    # the contributor guide's limits: a module under 400 lines, a function under 60
+    long_modules, long_functions = [], []
+    for _, path in _modules():
+        text = path.read_text(encoding="utf-8")
+        if len(text.splitlines()) > 400:
+            long_modules.append(path.name)
+        for node in ast.walk(ast.parse(text)):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)) and node.end_lineno - node.lineno + 1 > 60:
+                long_functions.append(f"{path.relative_to(PACKAGE)}:{node.name}")
+    assert long_modules == [] and long_functions == []

@@ -56,11 +56,9 @@ _new = tuple.__new__
 
 
 def split_phrases(text: str, line: int, column: int, file: str, errors: list[PlanError]) -> list[list[Item]]:
-    """The comma-separated phrases of a statement's rest (a lark ``REST`` token starting at line:column),
-    read into items in one pass: a number followed by a unit becomes a quantity, a position followed by a
-    length unit is scaled by it.  A comma between two numbers with no space (25,200) is a position, not a
-    separator.  Errors are appended to ``errors`` (and the statement gives no phrases).
-    """
+    """The comma-separated phrases of a statement's rest (from line:column) in one pass: a number and its unit
+    make a quantity, a position and a length unit a scaled position; 25,200 (no space) is a position, not two
+    phrases.  Errors are appended to ``errors`` (and the statement gives no phrases)."""
     phrases: list[list[Item]] = []
     cur = []
     pend = None                      # a number or coordinate waiting to see whether a unit follows
@@ -88,31 +86,11 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
         value = m.group(g)
         if g == WORD:
             if pend is not None:
-                if pend[0] == NUMBER and value not in _NOT_UNITS:
-                    try:
-                        qv, qk = parse_quantity(pend[1], value)
-                    except UnitError as e:
-                        errors.append(PlanError(str(e), Location(file, line, col), e.hint))
-                        pend = None
-                        dropped = True
-                        continue
-                    cur.append(_new(Item, ("qty", f"{pend[1]} {value}", pend[2], qv, qk)))
-                    pend = None
-                    continue
-                if pend[0] == COORD:
-                    k = unit_kind(value)
-                    if k == "length":
-                        cur.append(_coord(pend, parse_quantity("1", value)[0]))
-                        pend = None
-                        continue
-                    if k is not None:
-                        errors.append(PlanError(f"a position is a length, not a {k}", Location(file, line, col),
-                                                "positions are in mm, or give a length unit"))
-                        cur.append(_coord(pend, 1e-3))
-                        pend = None
-                        continue
-                cur.append(_plain(pend))
+                took = _take_unit(pend, value, file, line, col, cur, errors)
                 pend = None
+                if took:
+                    dropped = dropped or took == _DROPPED
+                    continue
             cur.append(_new(Item, ("word", value, _new(Location, (file, line, col)), value, None)))
             continue
         if pend is not None:
@@ -131,13 +109,39 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
             return []
     if pend is not None:
         cur.append(_plain(pend))
-    if cur or dropped:
-        phrases.append(cur)
-    elif phrases:
+    if not (cur or dropped) and phrases:        # a trailing comma
         errors.append(PlanError("the statement ends with a comma", Location(file, line, len(text) - line_start + 1),
                                 "remove the comma, or continue the attributes on the next line"))
         return []
-    return phrases
+    return phrases + [cur] if (cur or dropped) else phrases
+
+
+_TAKEN, _DROPPED = 1, 2
+
+
+def _take_unit(pend, value: str, file: str, line: int, col: int, cur: list, errors: list) -> int:
+    """A word after a pending number or position: its unit (the quantity goes into ``cur``: _TAKEN), a bad
+    unit (reported: _DROPPED), or not a unit at all (the number goes into ``cur`` as it is: 0)."""
+    if pend[0] == NUMBER and value not in _NOT_UNITS:
+        try:
+            qv, qk = parse_quantity(pend[1], value)
+        except UnitError as e:
+            errors.append(PlanError(str(e), Location(file, line, col), e.hint))
+            return _DROPPED
+        cur.append(_new(Item, ("qty", f"{pend[1]} {value}", pend[2], qv, qk)))
+        return _TAKEN
+    if pend[0] == COORD:
+        k = unit_kind(value)
+        if k == "length":
+            cur.append(_coord(pend, parse_quantity("1", value)[0]))
+            return _TAKEN
+        if k is not None:
+            errors.append(PlanError(f"a position is a length, not a {k}", Location(file, line, col),
+                                    "positions are in mm, or give a length unit"))
+            cur.append(_coord(pend, 1e-3))
+            return _TAKEN
+    cur.append(_plain(pend))
+    return 0
 
 
 def _plain(pend) -> Item:

@@ -26,41 +26,12 @@ import scipy.sparse as sp
 import scipy.sparse.csgraph as csgraph
 import scipy.sparse.linalg as spla
 
-from .impedance import (DEFAULT_SWITCH_CONTACT, MATERIALS, MIN_IMPEDANCE, resistivity, skin_ratio,
-                        strip_inductance, wire_inductance)
-from ..model.records import PE_POINT, Conductor, Plan
+from ..model.records import PE_POINT, Plan
+from .impedance import MATERIALS, MIN_IMPEDANCE, conductor_resistance, resistivity, skin_ratio
 from .plate import reduce_plate
 
 __all__ = ["Circuit", "Solution", "build_circuit", "conductor_resistance"]
-
 XY = tuple[float, float]
-
-
-def conductor_resistance(c: Conductor, temperature: float) -> tuple[float, float, float]:
-    """(R_dc in Ω, self-inductance in H, radius in m for the skin effect; 0 when not a round wire)."""
-    rho = resistivity(c.material if c.material in MATERIALS else "copper", temperature)
-    contact = c.contact or 0.0
-    if c.kind == "bolt":
-        return (c.resistance if c.resistance is not None else contact), 0.0, 0.0
-    if c.kind == "switch":
-        return (c.resistance if c.resistance is not None else (c.contact if c.contact is not None else DEFAULT_SWITCH_CONTACT)), 0.0, 0.0
-    if c.kind == "lift":
-        return c.resistance, 0.0, 0.0
-    length = c.length or 0.0
-    if c.kind in ("trace", "busbar", "strap") and c.width is not None:
-        t = c.thickness or (c.area / c.width if c.area else 1e-3)
-        r = rho * length / (c.width * t)
-        ind = strip_inductance(length, c.width, t)
-        if c.resistance is not None:
-            r = c.resistance
-        return r + contact, ind, 0.0
-    area = c.area
-    radius = (c.diameter / 2) if c.diameter else (math.sqrt(area / math.pi) if area else 0.0)
-    ind = wire_inductance(length, radius) if radius else 0.0
-    if c.resistance is not None:
-        return c.resistance + contact, ind, 0.0
-    r = rho * length / area if area else 0.0
-    return r + contact, ind, radius
 
 
 @dataclass
@@ -280,7 +251,7 @@ class Solution:
         return self.V[ia] - self.V[ib]
 
 
-def _segment_path(plan: Plan, c: Conductor, pos: dict[str, XY]) -> tuple[XY, ...]:
+def _segment_path(plan: Plan, c, pos: dict[str, XY]) -> tuple[XY, ...]:
     pa, pb = pos.get(c.a), pos.get(c.b)
     if pa is None or pb is None:
         return ()

@@ -11,8 +11,11 @@ import math
 import numpy as np
 from scipy import special
 
+from ..model.kinds import KINDS
+
 __all__ = ["MATERIALS", "resistivity", "wire_inductance", "strip_inductance", "skin_depth",
-           "skin_ratio", "MU0", "MIN_IMPEDANCE", "DEFAULT_SWITCH_CONTACT", "FASTENER_RADIUS"]
+           "skin_ratio", "MU0", "MIN_IMPEDANCE", "DEFAULT_SWITCH_CONTACT", "FASTENER_RADIUS",
+           "conductor_resistance"]
 
 MU0 = 4e-7 * math.pi
 
@@ -100,3 +103,34 @@ def skin_ratio(radius, rho, frequency):
     kr_safe = np.where(small, 1.0 + 0j, kr)
     ratio = (kr_safe / 2.0) * special.jve(0, kr_safe) / special.jve(1, kr_safe)
     return np.where(small, 1.0, np.real(ratio))
+
+
+def conductor_resistance(c, temperature: float) -> tuple[float, float, float]:
+    """(R_dc in Ω, self-inductance in H, radius in m for the skin effect; 0 when not a round wire) of a
+    conductor, by its kind's impedance model (:data:`groundcheck.model.kinds.KINDS`): a contact, a switch
+    contact, a lift network's resistor, a flat strip (ρL/(w·t), Grover's strip inductance) or a round wire
+    (ρL/A, Rosa's wire inductance).  A stated resistance replaces the geometry's."""
+    model = KINDS[c.kind].impedance
+    rho = resistivity(c.material if c.material in MATERIALS else "copper", temperature)
+    contact = c.contact or 0.0
+    if model == "contact":
+        return (c.resistance if c.resistance is not None else contact), 0.0, 0.0
+    if model == "switch":
+        return (c.resistance if c.resistance is not None else (c.contact if c.contact is not None else DEFAULT_SWITCH_CONTACT)), 0.0, 0.0
+    if model == "lift":
+        return c.resistance, 0.0, 0.0
+    length = c.length or 0.0
+    if model == "strip" and c.width is not None:
+        t = c.thickness or (c.area / c.width if c.area else 1e-3)
+        r = rho * length / (c.width * t)
+        ind = strip_inductance(length, c.width, t)
+        if c.resistance is not None:
+            r = c.resistance
+        return r + contact, ind, 0.0
+    area = c.area
+    radius = (c.diameter / 2) if c.diameter else (math.sqrt(area / math.pi) if area else 0.0)
+    ind = wire_inductance(length, radius) if radius else 0.0
+    if c.resistance is not None:
+        return c.resistance + contact, ind, 0.0
+    r = rho * length / area if area else 0.0
+    return r + contact, ind, radius
