@@ -118,9 +118,13 @@ def test_greedy_search_reaches_the_goal_on_examples():
 def test_suggest_apply_and_compare_commands(cli, tmp_path):
     out = tmp_path / "fixed.gplan"
     code, text, err = cli("suggest", str(DUAL), "--apply", str(out))
-    assert code == 0 and "Combined (greedy search)" in text and out.exists()
+    assert code == 0 and "Combined" in text and out.exists()
     code, _, err = cli("suggest", str(DUAL), "--apply", str(out))
-    assert code == 2 and "never replaces one" in err
+    assert code == 2 and "--force" in err                       # refused before any analysis
+    code, _, err = cli("suggest", str(DUAL), "--apply", str(DUAL), "--force")
+    assert code == 2 and DUAL.read_text().startswith("#")      # never over the plan itself, even with --force
+    code, _, err = cli("suggest", str(DUAL), "--pick", "1")
+    assert code == 2 and "--apply" in err
     code, text, _ = cli("compare", str(DUAL), str(out), "--format", "json")
     d = json.loads(text)
     assert code == 0 and any(f["code"] == "GC102" for f in d["findings"]["fixed"])

@@ -9,14 +9,15 @@ Safety: a candidate that deletes or re-routes a protective conductor is never tr
 whose re-analysis raises any protective path's resistance, leaves a touchable part unbonded or
 adds a danger is rejected; both are listed as considered and rejected.
 
-The combined search is greedy forward selection: at each step every remaining candidate is tried
-on the plan as changed so far, the best is kept, and the search stops when every channel is
-inaudible and no fault or danger is left, when nothing improves, or after :data:`MAX_STEPS` steps.
+The combined search takes the useful candidates best first and tries each on the plan as changed so
+far, keeping it when it still improves the plan; it stops after :data:`MAX_STEPS` kept changes, when no
+finding is left, or when the time budget runs out (the untried candidates are listed as such).
 """
 
 from __future__ import annotations
 
 import math
+import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -29,7 +30,7 @@ from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
 
 __all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits", "unified_diff",
-           "text_diff", "MAX_STEPS", "HUM_FLOOR_DBV"]
+           "text_diff", "MAX_STEPS", "HUM_FLOOR_DBV", "NOT_TRIED"]
 
 MAX_STEPS = 8
 
@@ -135,31 +136,72 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     return ev
 
 
+#: the reason given for a candidate the time budget left untried
+NOT_TRIED = "not tried: the time budget ran out (raise --budget to try it)"
+
+#: severities of the findings a candidate answers, for the order candidates are tried in (dangers first)
+_ORDER = {"GC202": 1, "GC204": 0, "GC102": 1, "GC101": 2, "GC105": 2, "GC108": 2, "GC103": 2}
+
+
+def _deadline(budget: float | None) -> float | None:
+    return None if budget is None else time.monotonic() + budget
+
+
+def _late(deadline: float | None) -> bool:
+    return deadline is not None and time.monotonic() > deadline
+
+
 def suggest(plan: Plan, text: str, options: Options = Options(), root: Path | None = None,
-            resolved: Path | None = None) -> tuple[Result, list[Evaluation]]:
-    """Every candidate evaluated; the useful ones first (best score), the rejected ones last."""
-    before = analyze(plan, options)
-    evs = [evaluate(text, plan, before, c, options, root, resolved) for c in candidates(plan, before, text)]
+            resolved: Path | None = None, *, budget: float | None = None, progress=None,
+            before: Result | None = None) -> tuple[Result, list[Evaluation]]:
+    """Every candidate evaluated (answers to the most serious findings first), the useful ones first in the
+    result, then the rejected ones.  With a ``budget`` (seconds), candidates not reached in time are listed
+    as untried; ``progress(done, total)`` is called after each evaluation."""
+    before = before or analyze(plan, options)
+    deadline = _deadline(budget)
+    cands = sorted(candidates(plan, before, text), key=lambda c: _ORDER.get(c.reason, 3))
+    evs = []
+    for i, c in enumerate(cands):
+        if _late(deadline):
+            evs.append(Evaluation(c, None, rejected=NOT_TRIED))
+            continue
+        evs.append(evaluate(text, plan, before, c, options, root, resolved))
+        if progress is not None:
+            progress(i + 1, len(cands))
     evs.sort(key=lambda e: e.rank_key())
     return before, evs
 
 
+def _overlaps(edits, more) -> bool:
+    taken = {n for e in edits for n in range(e.line, (e.last or e.line) + 1)}
+    return any(n in taken for e in more for n in range(e.line, (e.last or e.line) + 1))
+
+
 def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | None = None,
-           resolved: Path | None = None) -> tuple[list[Evaluation], Result, str]:
-    """The smallest set of changes found by greedy forward selection (see the module's docstring)."""
-    current_text, current_plan = text, plan
-    current = analyze(plan, options)
+           resolved: Path | None = None, *, evs: list[Evaluation] | None = None, before: Result | None = None,
+           budget: float | None = None) -> tuple[list[Evaluation], Result, str]:
+    """The combined set: the useful candidates, best first, each tried on the plan as changed so far and kept
+    when it still improves it (re-analysed, with every safety rejection of :func:`evaluate`), until
+    :data:`MAX_STEPS` are kept, nothing is left, or the ``budget`` (seconds) runs out.  Candidates' edits all
+    refer to the original text, so the kept ones are applied to it together; overlapping ones are skipped."""
+    deadline = _deadline(budget)
+    if evs is None:
+        before, evs = suggest(plan, text, options, root, resolved, budget=budget, before=before)
+    current = before or analyze(plan, options)
     chosen: list[Evaluation] = []
-    for _ in range(MAX_STEPS):
-        if not current.findings:
+    edits: list = []
+    for e in [e for e in evs if not e.rejected and e.score > 1e-9]:
+        if len(chosen) >= MAX_STEPS or not current.findings or _late(deadline):
             break
-        evs = [evaluate(current_text, current_plan, current, c, options, root, resolved)
-               for c in candidates(current_plan, current, current_text)]
-        good = [e for e in evs if not e.rejected and e.score > 1e-9]
-        if not good:
-            break
-        best = max(good, key=lambda e: (e.score, e.candidate.title))
-        chosen.append(best)
-        current_text = apply_edits(current_text, best.candidate.edits)
-        current_plan, current = best.result.plan, best.result
-    return chosen, current, current_text
+        if _overlaps(edits, e.candidate.edits):
+            continue
+        combined = Candidate(e.candidate.title, e.candidate.reason, tuple(edits) + e.candidate.edits,
+                             e.candidate.touches_protective)
+        ev = evaluate(text, plan, current, combined, options, root, resolved)
+        if ev.rejected or ev.score <= 1e-9:
+            continue
+        ev.candidate = e.candidate
+        chosen.append(ev)
+        edits.extend(e.candidate.edits)
+        current = ev.result
+    return chosen, current, apply_edits(text, edits)

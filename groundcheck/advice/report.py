@@ -10,7 +10,7 @@ import math
 from ..model.records import Plan
 from ..rules.results import Result
 from .edits import text_diff, unified_diff
-from .repair import HUM_FLOOR_DBV, Evaluation
+from .repair import HUM_FLOOR_DBV, NOT_TRIED, Evaluation
 
 __all__ = ["suggestions_document", "suggestions_text"]
 
@@ -34,13 +34,22 @@ def _hum_words(ch: str, h) -> str:
     return f"{ch} {level} ({verdict})"
 
 
+def _counted(items: list[str]) -> str:
+    """'GC101 warning ×3, GC102 fault': repeated items counted, in order of first appearance."""
+    counts: dict[str, int] = {}
+    for x in items:
+        counts[x] = counts.get(x, 0) + 1
+    return ", ".join(k if v == 1 else f"{k} ×{v}" for k, v in counts.items())
+
+
 def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
                          final: Result, final_text: str) -> dict:
     """The suggestions as plain data (``groundcheck suggest --format json``)."""
     return {"plan": plan.file,
             "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in evs if not e.rejected],
-            "rejected": [e.as_dict() for e in evs if e.rejected],
-            "combined": {"search": "greedy forward selection, every remaining change re-analysed at each step",
+            "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
+            "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
+            "combined": {"search": "useful changes best first, each re-analysed on the plan as changed so far and kept if it still helps",
                          "changes": [e.candidate.title for e in chosen],
                          "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
                          "diff": text_diff(text, final_text, name)}}
@@ -50,7 +59,8 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
                      final: Result, caution: str) -> str:
     """The suggestions as the terminal shows them: each with its predicted effect and its diff."""
     useful = [e for e in evs if not e.rejected]
-    rejected = [e for e in evs if e.rejected]
+    rejected = [e for e in evs if e.rejected and e.rejected != NOT_TRIED]
+    untried = [e for e in evs if e.rejected == NOT_TRIED]
     out = [f"Suggestions for {plan.file} (each re-analysed; best first)", caution, ""]
     if not useful:
         out.append("No change found that improves the plan.")
@@ -65,10 +75,15 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
     if rejected:
         out.append("Considered and rejected:")
         out.extend(f"  - {e.candidate.title}: {e.rejected}" for e in rejected)
+    if untried:
+        out.append(f"Not tried within the time budget: {len(untried)} candidate" + ("" if len(untried) == 1 else "s")
+                   + " (raise --budget to try them), first: " + "; ".join(e.candidate.title for e in untried[:3]))
         out.append("")
-    out.append(f"Combined (greedy search): {len(chosen)} change(s): " + "; ".join(e.candidate.title for e in chosen))
+    n = len(chosen)
+    out.append(f"Combined (best first, each re-checked on the plan as changed so far): {n} change" + ("" if n == 1 else "s")
+               + (": " + "; ".join(e.candidate.title for e in chosen) if chosen else ""))
     left = [f"{f.code} {f.severity}" for f in final.findings]
-    out.append("  leaves no finding" if not left else f"  leaves: {', '.join(left)}")
+    out.append("  leaves no finding" if not left else f"  leaves {len(left)}: " + _counted(left))
     if final.hum is not None:
         out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
     return "\n".join(out) + "\n"

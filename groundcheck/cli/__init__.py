@@ -12,80 +12,25 @@ import sys
 from dataclasses import replace
 from pathlib import Path
 
-from .core.version import __version__
-from .core.errors import GroundcheckError, PlanErrors
-from .rules.catalogue import RULES, SEVERITIES
-from .language.loader import load
-from .renderers.formats import CHECK_FORMATS
-from .renderers.output import write_atomic
-from .core.units import UnitError, parse_quantity
+from ..core.version import __version__
+from ..core.errors import GroundcheckError, PlanErrors
+from ..rules.catalogue import RULES, SEVERITIES
+from ..renderers.formats import CHECK_FORMATS
+from ..renderers.output import write_atomic
+from .advice import cmd_compare, cmd_suggest
+from .common import (Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type, quantity_type,
+                     seconds_type, write_output)
 
 __all__ = ["main"]
 
 EPILOG = "Exit status: 0 clean, 1 findings at or above --fail-on, 2 the plan or the command could not be used."
 
 
-class UsageError(GroundcheckError):
-    """A command line that cannot be used."""
-
-
-class _Parser(argparse.ArgumentParser):
-    def error(self, message):  # one line, exit 2, no traceback
-        self.exit(2, f"groundcheck: error: {message} (see 'groundcheck {self.prog.split()[-1]} --help')\n"
-                  if " " in self.prog else f"groundcheck: error: {message} (see 'groundcheck --help')\n")
-
-
-def _quantity(kind: str, unit: str):
-    def conv(text: str) -> float:
-        t = text.strip()
-        num = t.rstrip("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZµΩ°²/ ")
-        rest = t[len(num):].strip()
-        try:
-            if not rest:
-                return float(num)
-            value, k = parse_quantity(num, rest)
-        except (ValueError, UnitError) as e:
-            raise argparse.ArgumentTypeError(f"{text!r} is not a {kind} ({e})") from None
-        if k != kind:
-            raise argparse.ArgumentTypeError(f"{text!r} is a {k}, not a {kind}")
-        return value
-    conv.__name__ = kind
-    return conv
-
-
-def _processes(text: str) -> int:
-    """A number of processes: a whole number from 1 up."""
-    try:
-        n = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of processes") from None
-    if n < 1:
-        raise argparse.ArgumentTypeError(f"{text!r}: give at least 1 process")
-    return n
-
-
-def _add_analysis_options(p):
-    g = p.add_argument_group("analysis")
-    g.add_argument("--pe-limit", type=_quantity("resistance", "ohm"), default=0.1, metavar="OHM",
-                   help="protective-path resistance limit (default 0.1 ohm, the usual product-safety bonding limit)")
-    g.add_argument("--max-frequency", type=_quantity("frequency", "Hz"), default=5000.0, metavar="HZ",
-                   help="highest harmonic analysed (default 5 kHz)")
-    g.add_argument("--hum-level", type=float, default=-100.0, metavar="DBV",
-                   help="report hum contributors above this level at the output (default -100 dBV)")
-    g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
-
-
-def _options(args):
-    from .analysis import Options
-    return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
-                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1))
-
-
 def build_parser() -> argparse.ArgumentParser:
-    p = _Parser(prog="groundcheck", description="Audit the ground (earthing) wiring plan of mains-powered audio "
+    p = Parser(prog="groundcheck", description="Audit the ground (earthing) wiring plan of mains-powered audio "
                 "equipment before anyone solders.", epilog=EPILOG)
     p.add_argument("--version", action="version", version=f"groundcheck {__version__}")
-    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=Parser)
     _check_command(sub)
     _explain_command(sub)
     _draw_command(sub)
@@ -105,9 +50,9 @@ def _check_command(sub) -> None:
     c.add_argument("--format", choices=CHECK_FORMATS, default="text", help="output format (default text)")
     c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
-    c.add_argument("--jobs", type=_processes, default=1, metavar="N", help="use N processes: several plans are checked side by side; for one plan, a large flat "
+    c.add_argument("--jobs", type=processes_type, default=1, metavar="N", help="use N processes: several plans are checked side by side; for one plan, a large flat "
                    "file is read by two and the hum budget's frequencies are shared among N (Linux; default 1)")
-    _add_analysis_options(c)
+    add_analysis_options(c)
 
 
 def _explain_command(sub) -> None:
@@ -140,7 +85,7 @@ def _report_command(sub) -> None:
     h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
     h.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
-    _add_analysis_options(h)
+    add_analysis_options(h)
 
 
 def _suggest_command(sub) -> None:
@@ -153,8 +98,11 @@ def _suggest_command(sub) -> None:
     s.add_argument("plan", metavar="PLAN")
     s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
     s.add_argument("--pick", type=int, metavar="N", help="with --apply: apply suggestion N instead of the combined set")
+    s.add_argument("--force", action="store_true", help="with --apply: replace NEW_PLAN if it exists (never the plan itself)")
+    s.add_argument("--budget", type=seconds_type, default=25.0, metavar="SECONDS",
+                   help="time for trying candidates and combining them (default 25 s); what is not tried is listed")
     s.add_argument("--format", choices=("text", "json"), default="text", help="output format (default text)")
-    _add_analysis_options(s)
+    add_analysis_options(s)
 
 
 def _compare_command(sub) -> None:
@@ -165,7 +113,7 @@ def _compare_command(sub) -> None:
     cp.add_argument("after", metavar="AFTER")
     cp.add_argument("--format", choices=("text", "json", "html"), default="text", help="output format (default text)")
     cp.add_argument("-o", "--output", metavar="FILE", help="write the comparison to FILE instead of standard output")
-    _add_analysis_options(cp)
+    add_analysis_options(cp)
 
 
 def _export_command(sub) -> None:
@@ -174,20 +122,9 @@ def _export_command(sub) -> None:
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     x.add_argument("plan", metavar="PLAN")
     x.add_argument("--spice", action="store_true", required=True, help="a plain SPICE netlist (R, L, C, current sources)")
-    x.add_argument("--frequency", type=_quantity("frequency", "Hz"), metavar="HZ",
+    x.add_argument("--frequency", type=quantity_type("frequency", "Hz"), metavar="HZ",
                    help="AC analysis at this frequency (default: DC operating point)")
     x.add_argument("-o", "--output", metavar="FILE", help="write the netlist to FILE instead of standard output")
-
-
-def _load(path: str, jobs: int = 1):
-    return load(path, jobs=jobs)
-
-
-def _write(text: str, output: str | None, inputs: list[str]) -> None:
-    if output is None or output == "-":
-        sys.stdout.write(text)
-        return
-    write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
 
 
 class _Rendered(GroundcheckError):
@@ -196,9 +133,9 @@ class _Rendered(GroundcheckError):
 
 def _check_one(path: str, options):
     """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors)."""
-    from .analysis import analyze
+    from ..analysis import analyze
     try:
-        return True, analyze(_load(path), options)
+        return True, analyze(load_plan(path), options)
     except PlanErrors as e:
         return False, e.render()
 
@@ -213,30 +150,30 @@ def _analyze_with_progress(analyze, plan, options, label: str):
 
 
 def cmd_check(args) -> int:
-    from .analysis import analyze
+    from ..analysis import analyze
     results = []
     if args.jobs > 1 and len(args.plans) > 1:
         from concurrent.futures import ProcessPoolExecutor
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            outcomes = list(pool.map(_check_one, args.plans, [replace(_options(args), jobs=1)] * len(args.plans)))
+            outcomes = list(pool.map(_check_one, args.plans, [replace(options_of(args), jobs=1)] * len(args.plans)))
         for ok, value in outcomes:
             if not ok:
                 raise _Rendered(value)
             results.append(value)
     else:
         for path in args.plans:
-            plan = _load(path, args.jobs)
-            results.append(_analyze_with_progress(analyze, plan, _options(args), path))
+            plan = load_plan(path, args.jobs)
+            results.append(_analyze_with_progress(analyze, plan, options_of(args), path))
     failing = any(r.fails(args.fail_on) for r in results)
     if args.format == "text" and not args.output:
         from rich.console import Console
-        from .renderers.text import print_report
+        from ..renderers.text import print_report
         console = Console(highlight=False)
         for i, r in enumerate(results):
             print_report(r, console, caution=i == 0)
         return 1 if failing else 0
-    from .renderers.formats import render_results
-    _write(render_results(results, args.format), args.output, args.plans)
+    from ..renderers.formats import render_results
+    write_output(render_results(results, args.format), args.output, args.plans)
     return 1 if failing else 0
 
 
@@ -258,36 +195,36 @@ def cmd_explain(args) -> int:
 
 
 def cmd_export(args) -> int:
-    from .physics.circuit import build_circuit
-    from .renderers.spice import to_spice
-    plan = _load(args.plan)
+    from ..physics.circuit import build_circuit
+    from ..renderers.spice import to_spice
+    plan = load_plan(args.plan)
     circuit = build_circuit(plan)
     if args.frequency:
         text = to_spice(circuit, plan.title, frequency=args.frequency, analysis="ac")
     else:
         text = to_spice(circuit, plan.title)
-    _write(text, args.output, [args.plan])
+    write_output(text, args.output, [args.plan])
     return 0
 
 
 def _drawings(result, renderer: str, fmt: str = "svg"):
-    from .renderers.drawing import render_dot
-    from .renderers.dot import physical_dot, topology_dot
+    from ..renderers.drawing import render_dot
+    from ..renderers.dot import physical_dot, topology_dot
     phys = render_dot(physical_dot(result), fmt, "neato", renderer)
     topo = render_dot(topology_dot(result), fmt, "dot", renderer)
     return phys, topo
 
 
 def cmd_draw(args) -> int:
-    from .analysis import Options, analyze
-    from .renderers.drawing import render_dot
-    from .renderers.dot import physical_dot, topology_dot
+    from ..analysis import Options, analyze
+    from ..renderers.drawing import render_dot
+    from ..renderers.dot import physical_dot, topology_dot
     out = Path(args.output)
     fmt = out.suffix.lower().lstrip(".")
     if fmt not in ("svg", "png", "dot", "gv"):
         raise UsageError(f"cannot tell the drawing format from {args.output!r} (end it in .svg, .png or .dot)")
     fmt = "dot" if fmt == "gv" else fmt
-    plan = _load(args.plan)
+    plan = load_plan(args.plan)
     result = analyze(plan, Options(hum=False))
     has_pos = any(p.pos is not None for p in plan.points)
     view = args.view if (args.view == "topology" or has_pos) else "topology"
@@ -300,11 +237,11 @@ def cmd_draw(args) -> int:
 
 
 def cmd_report(args) -> int:
-    from .analysis import analyze
-    from .renderers.drawing import DrawingError
-    from .renderers.html import html_report
-    plan = _load(args.plan)
-    result = _analyze_with_progress(analyze, plan, _options(args), args.plan)
+    from ..analysis import analyze
+    from ..renderers.drawing import DrawingError
+    from ..renderers.html import html_report
+    plan = load_plan(args.plan)
+    result = _analyze_with_progress(analyze, plan, options_of(args), args.plan)
     try:
         (phys, how), (topo, _) = _drawings(result, args.renderer)
     except DrawingError as e:
@@ -314,51 +251,6 @@ def cmd_report(args) -> int:
     write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
     return 1 if result.fails(args.fail_on) else 0
-
-
-def cmd_suggest(args) -> int:
-    import json
-    from .core.plain import clean
-    from .renderers.text import CAUTION
-    from .advice.repair import apply_edits, greedy, suggest
-    from .advice.report import suggestions_document, suggestions_text
-    if args.plan == "-":
-        raise UsageError("suggest needs a plan file, not standard input (its edits are shown against the file)")
-    path = Path(args.plan)
-    plan = _load(args.plan)
-    text = path.read_text(encoding="utf-8").lstrip("\ufeff")
-    root, resolved = path.resolve().parent, path.resolve()
-    before, evs = suggest(plan, text, _options(args), root, resolved)
-    chosen, final, final_text = greedy(plan, text, _options(args), root, resolved)
-    name = path.name
-    useful = [e for e in evs if not e.rejected]
-    if args.format == "json":
-        doc = suggestions_document(plan, text, name, evs, chosen, final, final_text)
-        sys.stdout.write(json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n")
-    else:
-        sys.stdout.write(suggestions_text(plan, text, name, evs, chosen, final, CAUTION))
-    if args.apply:
-        if args.pick is not None:
-            if not 1 <= args.pick <= len(useful):
-                raise UsageError(f"--pick takes 1 to {len(useful)}")
-            new_text = apply_edits(text, useful[args.pick - 1].candidate.edits)
-        else:
-            new_text = final_text
-        target = Path(args.apply)
-        if target.exists():
-            raise UsageError(f"{args.apply} exists; --apply writes a new file and never replaces one")
-        write_atomic(target, new_text, protect=[path])
-        sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
-    return 0
-
-
-def cmd_compare(args) -> int:
-    from .analysis import analyze
-    from .advice.compare import compare, compare_html, compare_json, compare_text
-    d = compare(analyze(_load(args.before), _options(args)), analyze(_load(args.after), _options(args)))
-    text = {"text": compare_text, "json": compare_json, "html": compare_html}[args.format](d)
-    _write(text, args.output, [args.before, args.after])
-    return 0
 
 
 COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain, "draw": cmd_draw, "report": cmd_report, "export": cmd_export}

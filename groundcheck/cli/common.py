@@ -1,0 +1,93 @@
+"""What every command shares: the usage error, option types with units, the analysis options, loading a
+plan and writing an output."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from ..core.errors import GroundcheckError
+from ..core.units import UnitError, parse_quantity
+from ..language.loader import load
+from ..renderers.output import write_atomic
+
+__all__ = ["UsageError", "Parser", "quantity_type", "seconds_type", "processes_type", "add_analysis_options",
+           "options_of", "load_plan", "write_output"]
+
+
+class UsageError(GroundcheckError):
+    """A command line that cannot be used."""
+
+
+class Parser(argparse.ArgumentParser):
+    def error(self, message):  # one line, exit 2, no traceback
+        self.exit(2, f"groundcheck: error: {message} (see 'groundcheck {self.prog.split()[-1]} --help')\n"
+                  if " " in self.prog else f"groundcheck: error: {message} (see 'groundcheck --help')\n")
+
+
+def quantity_type(kind: str, unit: str):
+    def conv(text: str) -> float:
+        t = text.strip()
+        num = t.rstrip("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZµΩ°²/ ")
+        rest = t[len(num):].strip()
+        try:
+            if not rest:
+                return float(num)
+            value, k = parse_quantity(num, rest)
+        except (ValueError, UnitError) as e:
+            raise argparse.ArgumentTypeError(f"{text!r} is not a {kind} ({e})") from None
+        if k != kind:
+            raise argparse.ArgumentTypeError(f"{text!r} is a {k}, not a {kind}")
+        return value
+    conv.__name__ = kind
+    return conv
+
+
+def seconds_type(text: str) -> float:
+    try:
+        value = float(text.rstrip("s").strip())
+    except ValueError:
+        value = float("nan")
+    if not value > 0 or value == float("inf"):
+        raise argparse.ArgumentTypeError(f"expected a time in seconds above 0, got {text!r}")
+    return value
+
+
+def processes_type(text: str) -> int:
+    """A number of processes: a whole number from 1 up."""
+    try:
+        n = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of processes") from None
+    if n < 1:
+        raise argparse.ArgumentTypeError(f"{text!r}: give at least 1 process")
+    return n
+
+
+def add_analysis_options(p):
+    g = p.add_argument_group("analysis")
+    g.add_argument("--pe-limit", type=quantity_type("resistance", "ohm"), default=0.1, metavar="OHM",
+                   help="protective-path resistance limit (default 0.1 ohm, the usual product-safety bonding limit)")
+    g.add_argument("--max-frequency", type=quantity_type("frequency", "Hz"), default=5000.0, metavar="HZ",
+                   help="highest harmonic analysed (default 5 kHz)")
+    g.add_argument("--hum-level", type=float, default=-100.0, metavar="DBV",
+                   help="report hum contributors above this level at the output (default -100 dBV)")
+    g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
+
+
+def options_of(args):
+    from ..analysis import Options
+    return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
+                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1))
+
+
+def load_plan(path: str, jobs: int = 1):
+    return load(path, jobs=jobs)
+
+
+def write_output(text: str, output: str | None, inputs: list[str]) -> None:
+    if output is None or output == "-":
+        sys.stdout.write(text)
+        return
+    write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
