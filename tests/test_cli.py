@@ -61,7 +61,28 @@ def test_explain(cli):
     code, out, _ = cli("explain")
     assert code == 0 and all(c in out for c in RULES)
     code, _, err = cli("explain", "GC999")
-    assert code == 2 and "unknown rule code" in err
+    assert code == 2 and "unknown rule 'GC999'" in err
+    code, out, _ = cli("explain", "shared-return")
+    assert code == 0 and out.startswith("GC102 shared-return")
+
+
+def test_the_caution_is_in_every_output(cli, tmp_path):
+    from groundcheck.core.caution import CAUTION, MAINS_WORK
+    outputs = {fmt: cli("check", MONO, "--format", fmt)[1] for fmt in ("text", "json", "sarif")}
+    outputs["explain"] = cli("explain", "GC201")[1]
+    outputs["explain list"] = cli("explain")[1]
+    outputs["suggest"] = cli("suggest", MONO)[1]
+    outputs["suggest json"] = cli("suggest", MONO, "--format", "json")[1]
+    for fmt in ("text", "json", "html"):
+        outputs[f"compare {fmt}"] = cli("compare", MONO, MONO, "--format", fmt)[1]
+    report = tmp_path / "r.html"
+    cli("report", MONO, "-o", str(report))
+    outputs["report"] = report.read_text()
+    plain = {k: " ".join(v.split()) for k, v in outputs.items()}
+    assert [k for k, v in plain.items() if "Never lift the protective earth" not in v] == []
+    assert json.loads(outputs["json"])["caution"] == CAUTION
+    assert json.loads(outputs["sarif"])["runs"][0]["properties"]["caution"] == CAUTION
+    assert " ".join(MAINS_WORK.split()) in plain["explain"]
 
 
 def test_export_spice(cli, tmp_path):

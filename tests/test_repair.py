@@ -29,12 +29,12 @@ def test_dual_mono_best_suggestion_clears_the_shared_return():
     before, evs = _suggest(DUAL)
     best = evs[0]
     assert not best.rejected
-    assert "GC102" not in _codes_after(best) and "GC303" not in _codes_after(best)      # seeded mistake 1
+    assert "GC102" not in _codes_after(best) and "GC303" not in _codes_after(best)      # planted mistake 1
     assert any(not e.rejected and "channel_tie" in e.candidate.title and
-               not any(f.code == "GC101" for f in e.result.findings) for e in evs)           # seeded mistake 2
+               not any(f.code == "GC101" for f in e.result.findings) for e in evs)           # planted mistake 2
 
 
-def test_monoblock_suggestions_clear_each_seeded_mistake():
+def test_monoblock_suggestions_clear_each_planted_mistake():
     before, evs = _suggest(MONO)
     useful = [e for e in evs if not e.rejected]
     assert any("GC202" not in _codes_after(e) for e in useful)                 # mistake 1: own protective stud

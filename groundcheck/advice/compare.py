@@ -7,6 +7,7 @@ import math
 from html import escape
 
 from ..rules.results import Result
+from ..core.caution import CAUTION
 from ..core.plain import clean
 
 __all__ = ["compare", "compare_text", "compare_json", "compare_html"]
@@ -52,7 +53,7 @@ def compare(before: Result, after: Result) -> dict:
            "touch_before_v": pb[k].touch_voltage if k in pb else None,
            "touch_after_v": pa[k].touch_voltage if k in pa else None} for k in sorted(set(pb) | set(pa))]
     return clean({
-        "before": before.plan.file, "after": after.plan.file,
+        "caution": CAUTION, "before": before.plan.file, "after": after.plan.file,
         "findings": {"fixed": [row(fb[k]) for k in sorted(fb.keys() - fa.keys())],
                      "kept": [row(fa[k]) for k in sorted(fb.keys() & fa.keys())],
                      "introduced": [row(fa[k]) for k in sorted(fa.keys() - fb.keys())]},
@@ -67,7 +68,7 @@ def _f(x, fmt):
 
 
 def compare_text(d: dict) -> str:
-    out = [f"Compare {d['before']} → {d['after']}", ""]
+    out = [f"Compare {d['before']} → {d['after']}", d["caution"], ""]
     fnd = d["findings"]
     out.append(f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept, {len(fnd['introduced'])} introduced")
     for tag in ("fixed", "introduced", "kept"):
@@ -112,7 +113,7 @@ def compare_html(d: dict) -> str:
     return ("<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>groundcheck compare</title>"
             "<style>body{font-family:system-ui,sans-serif;max-width:1000px;margin:2em auto}table{border-collapse:collapse}"
             "td,th{border:1px solid #ccc;padding:.2em .5em}</style></head><body>"
-            f"<h1>{e(d['before'])} → {e(d['after'])}</h1><h2>Findings</h2><table><tr><th>change</th><th>code</th>"
+            f"<h1>{e(d['before'])} → {e(d['after'])}</h1><p><b>{e(d['caution'])}</b></p><h2>Findings</h2><table><tr><th>change</th><th>code</th>"
             f"<th>severity</th><th>finding</th></tr>{''.join(rows)}</table>"
             f"<h2>Loops</h2><p>{d['loops']['total_before']} → {d['loops']['total_after']}</p>"
             f"<h2>Hum per harmonic (dBV)</h2><table><tr><th>channel</th><th>Hz</th><th>before</th><th>after</th><th>change dB</th></tr>"

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import math
 
+from ..core.caution import CAUTION
 from ..model.records import Plan
 from ..rules.results import Result
 from .edits import text_diff, unified_diff
@@ -45,7 +46,7 @@ def _counted(items: list[str]) -> str:
 def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
                          final: Result, final_text: str) -> dict:
     """The suggestions as plain data (``groundcheck suggest --format json``)."""
-    return {"plan": plan.file,
+    return {"caution": CAUTION, "plan": plan.file,
             "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in evs if not e.rejected],
             "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
             "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],

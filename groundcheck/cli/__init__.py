@@ -13,6 +13,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from ..core.version import __version__
+from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors
 from ..rules.catalogue import RULES, SEVERITIES
 from ..renderers.formats import CHECK_FORMATS
@@ -58,7 +59,7 @@ def _check_command(sub) -> None:
 def _explain_command(sub) -> None:
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
                        description="Example:\n  groundcheck explain GC102", formatter_class=argparse.RawDescriptionHelpFormatter)
-    e.add_argument("code", metavar="CODE", nargs="?", help="rule code, e.g. GC102 (none: list every rule)")
+    e.add_argument("code", metavar="RULE", nargs="?", help="rule code or name, e.g. GC102 or shared-return (none: list every rule)")
 
 
 def _draw_command(sub) -> None:
@@ -180,17 +181,23 @@ def cmd_check(args) -> int:
 def cmd_explain(args) -> int:
     if not args.code:
         for code, r in RULES.items():
-            print(f"{code}  {r.severity:<8} {r.name}")
+            print(f"{code}  {r.severity:<8} {r.name:<28} {r.checks.split('. ')[0].rstrip('.')}")
+        print(f"\n{CAUTION}")
         return 0
-    code = args.code.upper()
-    if code not in RULES:
-        raise UsageError(f"unknown rule code {args.code!r} (run 'groundcheck explain' to list the rules)")
+    by_name = {r.name: c for c, r in RULES.items()}
+    code = args.code.upper() if args.code.upper() in RULES else by_name.get(args.code.lower())
+    if code is None:
+        raise UsageError(f"unknown rule {args.code!r} (a code such as GC102 or a name such as shared-return; "
+                         "run 'groundcheck explain' to list the rules)")
     r = RULES[code]
     print(f"{r.code} {r.name} ({r.severity})\n")
     print(f"Checks:  {r.checks}\n")
     print(f"Why:     {r.why}\n")
     print(f"Fix:     {r.fix}\n")
-    print(f"References: {r.references}")
+    if code.startswith("GC2"):
+        print(f"         {MAINS_WORK}\n")
+    print(f"References: {r.references}\n")
+    print(CAUTION)
     return 0
 
 

@@ -7,6 +7,7 @@ import json
 import sys
 from pathlib import Path
 
+from ..core.caution import CAUTION
 from ..core.plain import clean
 from ..renderers.output import write_atomic
 from .common import UsageError, load_plan, options_of, write_output
@@ -39,7 +40,6 @@ class _progress:
 
 
 def cmd_suggest(args) -> int:
-    from ..renderers.text import CAUTION
     from ..advice.repair import apply_edits, greedy, suggest
     from ..advice.report import suggestions_document, suggestions_text
     if args.plan == "-":

@@ -6,8 +6,8 @@ where I_b(test) is the branch current when 1 A is injected at P and taken out
 at Q.  Each term is that branch's share, so the conductors that couple a
 supply return into a stage are named with their exact contribution.
 
-References: B. D. H. Tellegen, "A general network theorem, with
-applications", Philips Res. Rep. 7, 1952.
+References: P. Penfield, R. Spence and S. Duinker, *Tellegen's Theorem and Electrical Networks*,
+MIT Press, 1970 (reciprocity and the sensitivity of a network to each branch).
 """
 
 from __future__ import annotations

@@ -8,6 +8,7 @@ from __future__ import annotations
 import json
 
 from ..rules.results import Result
+from ..core.caution import CAUTION
 from ..core.plain import clean
 
 __all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]
@@ -21,6 +22,7 @@ def result_document(result: Result) -> dict:
     plan = result.plan
     doc = {
         "groundcheck": {"schema": SCHEMA_VERSION},
+        "caution": CAUTION,
         "plan": {"title": plan.title, "file": plan.file, "files": list(plan.files),
                  "mains": None if plan.mains is None else {"voltage_v": plan.mains.voltage, "frequency_hz": plan.mains.frequency},
                  "ambient_c": plan.ambient, "points": len(plan.points), "metal_parts": len(plan.metals),

@@ -12,7 +12,8 @@ from pathlib import Path
 from ..core.version import __version__
 from ..rules.results import Result
 from ..rules.catalogue import RULES
-from .jsondoc import clean
+from ..core.caution import CAUTION
+from ..core.plain import clean
 
 __all__ = ["sarif_document", "render_sarif", "SARIF_SCHEMA"]
 
@@ -48,7 +49,7 @@ def sarif_document(results: list[Result]) -> dict:
                   "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
                                                 "semanticVersion": __version__, "rules": rules}},
                             "columnKind": "unicodeCodePoints",
-                            "properties": {"notices": [n for res in results for n in res.notices]},
+                            "properties": {"caution": CAUTION, "notices": [n for res in results for n in res.notices]},
                             "results": out}]})
 
 

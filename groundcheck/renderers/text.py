@@ -14,14 +14,13 @@ from rich.markup import escape
 from rich.table import Table
 from rich.text import Text
 
+from ..core.caution import CAUTION
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 
 __all__ = ["print_report", "text_report", "CAUTION"]
 
-CAUTION = ("Caution: mains and valve circuits carry lethal voltages, and filter capacitors hold a charge after "
-           "switch-off. Never lift the protective earth. These figures are estimates from the plan, not "
-           "measurements; follow local electrical codes and have mains work checked by a qualified person.")
+
 
 STYLE = {"danger": "bold white on red", "fault": "bold red", "warning": "yellow", "note": "cyan"}
 LABEL = {"danger": "DANGER", "fault": "FAULT", "warning": "WARNING", "note": "NOTE"}

@@ -106,14 +106,20 @@ def rule_hum(s: Solved) -> list[Finding]:
                                    loc, (c["element"], c["source"]), {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
                                    "open the loop, or make it smaller and move it away from the field source"))
         if h.audible:
-            top = ", ".join(c["element"] for c in h.contributors[:3])
+            top: list[str] = []
+            for c in h.contributors:
+                label = f"{c['element']} ({c['source']}, {c['share_pct']:.0f} %)"
+                if c["element"] not in [t.split(" (")[0] for t in top]:
+                    top.append(label)
+                if len(top) == 3:
+                    break
             out.append(Finding("GC303", "fault",
-                               f"hum in the {ch} channel is audible at the listening position: {h.margin_db:.1f} dB above the "
-                               f"threshold of hearing (total {h.total_dbv:.1f} dBV at the output)",
-                               loc, (ch, *[c["element"] for c in h.contributors[:3]]),
+                               f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's seat by "
+                               f"{h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
+                               loc, (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
                                {"margin_db": round(h.margin_db, 2), "total_dbv": round(h.total_dbv, 2),
                                 "signal_to_hum_db": round(h.signal_to_hum, 2)},
-                               f"fix the main contributors: {top}"))
+                               "fix the main contributors first: " + "; ".join(top)))
     for row in hum.crosstalk:
         if row["frequency_hz"] == 1000.0 and row["db"] is not None and row["db"] > opts.crosstalk_limit:
             loc = stages_by_ch[row["to"]][0].location
