@@ -49,10 +49,12 @@ def main() -> None:
         atheris.Fuzz()
         return
     t = time.perf_counter()
-    for strategy in (valid_plans(), mutated_plans()):
+    for name, strategy in (("valid", valid_plans()), ("mutated", mutated_plans())):
+        def phase(text: str) -> None:       # a fresh function per phase: Hypothesis settings apply once per function
+            one(text)
         given(strategy)(settings(max_examples=args.examples, deadline=None, database=None,
-                                 suppress_health_check=list(HealthCheck))(one))()
-    print(f"{2 * args.examples} plans, no failure, {time.perf_counter() - t:.1f} s")
+                                 suppress_health_check=list(HealthCheck))(phase))()
+        print(f"{name} plans: {args.examples}, no failure, {time.perf_counter() - t:.1f} s so far")
 
 
 if __name__ == "__main__":

@@ -174,7 +174,7 @@ BAD = [
     ("zero frequency", 'plan "x"\nmains 230 V 0 Hz\n',
      "bad.gplan:2:13: error: mains frequency must be more than zero, got 0 Hz"),
     ("below absolute zero", 'plan "x"\nambient -300 C\n',
-     "bad.gplan:2:9: error: temperature -300 C is below absolute zero"),
+     "bad.gplan:2:9: error: ambient temperature -300 C is below -200 C (give a temperature from -200 C to 1000 C)"),
     ("empty", "", "bad.gplan:1:1: error: the plan is empty (start with: plan \"Title\")"),
     ("only comments", "# nothing\n\n", "bad.gplan:1:1: error: the plan is empty (start with: plan \"Title\")"),
     ("unclosed block", 'plan "x"\nblock b {\npoint a: stud\n',

@@ -292,6 +292,15 @@ def main(argv: list[str] | None = None) -> int:
         except OSError:
             pass
         return 0
+    except OSError as e:              # a full disk, an unwritable folder, a file that vanished
+        sys.stderr.write(f"groundcheck: error: {e.strerror or e}{f' ({e.filename})' if e.filename else ''}\n")
+        return 2
+    except Exception as e:  # noqa: BLE001 - the last line of defence: never a traceback, never exit 1
+        if os.environ.get("GROUNDCHECK_DEBUG") or getattr(args, "debug", False):
+            raise
+        sys.stderr.write(f"groundcheck: internal error: {type(e).__name__}: {e} — please report it with the plan; "
+                         "run with GROUNDCHECK_DEBUG=1 for the traceback\n")
+        return 2
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -124,7 +124,9 @@ def parse_quantity(number: str, unit: str) -> tuple[float, str]:
     """
     value = float(number)
     if unit.upper() == "AWG":
-        if value != int(value) or not -3 <= value <= 46:
+        if number.strip() in ("00", "000", "0000"):          # 2/0, 3/0, 4/0 written as repeated zeros
+            value = -(len(number.strip()) - 1)
+        if not math.isfinite(value) or value != int(value) or not -3 <= value <= 46:
             raise UnitError(f"AWG size {number} is not a whole gauge", "use a size from 0000 (-3) to 46")
         return awg_area(value), "area"
     if unit == "K":

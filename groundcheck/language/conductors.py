@@ -8,7 +8,7 @@ from ..core.units import awg_diameter
 from ..model.kinds import KINDS, default_role
 from ..model.records import Conductor, make
 from .phrases import Reader, Statement, check_quantity
-from .reading import MATERIALS, ROLE_WORDS, Refs, first_phrase_ends, it_number, material, unknown
+from .reading import MATERIALS, ROLE_WORDS, Refs, first_phrase_ends, material, unknown
 
 __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
@@ -72,7 +72,7 @@ def conductor(stmt: Statement):
                                 "give lengths, areas (mm2 or AWG) and resistances; a capacitance only on a lift")
             kw[field] = check_quantity(it, it.qkind, field, allow_zero=field == "resistance")
             if field == "area" and it.text.upper().endswith("AWG"):
-                kw["diameter"] = awg_diameter(it_number(it))
+                kw["diameter"] = (4 * kw["area"] / 3.141592653589793) ** 0.5    # the area is AWG 0000-aware
         elif first.kind == "word" and first.value.upper() == "AWG":
             r.next("")
             n = r.number("an AWG size")

@@ -225,12 +225,15 @@ class Reader:
         it = self.next(what)
         if it.kind != "number":
             raise PlanError(f"expected a plain number for {what}, found {it.text!r}", it.loc, "")
+        check_range(it.value, "number", what, it.loc, it.text)
         return it.value
 
     def coord(self, what: str = "a position x,y") -> tuple[float, float]:
         it = self.next(what)
         if it.kind != "coord":
             raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "write x,y in mm with no space, e.g. 25,200")
+        for v in it.value:
+            check_range(v, "position", what, it.loc, it.text)
         return it.value
 
     def finish(self) -> None:
@@ -249,13 +252,39 @@ def check_quantity(it: Item, kind: str, what: str, positive: bool = True, allow_
     if it.qkind != kind:
         raise PlanError(f"{what} must be a {kind}, not a {it.qkind}", it.loc, f"use a {kind} unit such as {_example_unit(kind)}")
     v = it.value
+    check_range(v, kind, what, it.loc, it.text)
     if kind == "temperature":
-        if v < -273.15:
-            raise PlanError(f"temperature {it.text} is below absolute zero", it.loc, "")
         return v
     if positive and (v < 0 or (v == 0 and not allow_zero)):
         raise PlanError(f"{what} must be {'zero or more' if allow_zero else 'more than zero'}, got {it.text}", it.loc, "")
     return v
+
+
+#: the physical range of each kind of quantity, SI: (smallest magnitude other than zero, largest magnitude).
+#: Wide enough for any audio installation, narrow enough that no analysis meets an infinity, a NaN, an
+#: overflow or an absurd allocation (common practice for input validation; the bounds are the project's own)
+RANGES = {
+    "length": (1e-7, 5e3), "area": (1e-13, 1e-2), "resistance": (1e-15, 1e15), "current": (1e-12, 1e5),
+    "voltage": (1e-9, 1e6), "frequency": (1e-2, 1e6), "flux density": (1e-12, 10.0), "capacitance": (1e-15, 10.0),
+    "inductance": (1e-12, 1e4), "level": (0.0, 300.0), "temperature": (0.0, 1000.0), "time": (1e-9, 1e6),
+    "energy integral": (1e-9, 1e12), "resistance per length": (1e-9, 1e9),
+    "number": (0.0, 1e9), "position": (0.0, 1e4),
+}
+#: the lowest temperature accepted, °C (copper's resistivity would vanish near −234.5 °C)
+MIN_TEMPERATURE = -200.0
+
+
+def check_range(v: float, kind: str, what: str, loc: Location, text: str) -> None:
+    """A :class:`PlanError` at ``loc`` unless ``v`` is finite and within the physical range of ``kind``."""
+    if v != v or v in (float("inf"), float("-inf")):
+        raise PlanError(f"{what} must be a finite number, got {text}", loc, "write the value in ordinary digits")
+    lo, hi = RANGES.get(kind, (0.0, 1e12))
+    unit = _example_unit(kind)
+    if kind == "temperature" and v < MIN_TEMPERATURE:
+        raise PlanError(f"{what} {text} is below {MIN_TEMPERATURE:g} C", loc, "give a temperature from -200 C to 1000 C")
+    if abs(v) > hi or (v != 0 and abs(v) < lo):
+        raise PlanError(f"{what} {text} is outside the range groundcheck accepts for a {kind} "
+                        f"({lo:g} to {hi:g} in SI units)", loc, f"check the number and its unit ({unit})")
 
 
 def _example_unit(kind: str) -> str:

@@ -16,7 +16,10 @@ from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_en
                       unknown)
 from .supply import current, heater, mains, rectifier
 
-__all__ = ["BUILDERS", "KEYWORDS", "build"]
+__all__ = ["BUILDERS", "KEYWORDS", "build", "MAX_PART_SIDE"]
+
+#: the largest metal part, m: a rack or a bench is a few metres (the plate model's grid is sized for parts)
+MAX_PART_SIDE = 10.0
 
 
 
@@ -74,6 +77,10 @@ def metal(stmt: Statement):
             scale = d / it_number(it)
             if w <= 0:
                 raise PlanError("width must be more than zero", first.loc, "")
+            for side, text in ((w * scale, first.text), (d, it.text)):
+                if side > MAX_PART_SIDE:
+                    raise PlanError(f"a metal part {text} across is larger than groundcheck models ({MAX_PART_SIDE:g} m)",
+                                    first.loc, "describe chassis parts, panels and racks, each under 10 m")
             kw["size"] = (w * scale, d)
         elif first.kind == "qty":
             kw["thickness"] = r.quantity("length", "thickness")

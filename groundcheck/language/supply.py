@@ -7,7 +7,10 @@ from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier
 from .phrases import Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
 
-__all__ = ["mains", "rectifier", "current", "heater", "MAINS_ATTRIBUTES", "MAINS_WORDS"]
+#: mains frequencies accepted, Hz: 50 and 60 Hz supplies, 16.7 Hz railway and 400 Hz aircraft supplies fit
+MAINS_FREQUENCY = (1.0, 1000.0)
+
+__all__ = ["MAINS_FREQUENCY", "mains", "rectifier", "current", "heater", "MAINS_ATTRIBUTES", "MAINS_WORDS"]
 
 #: mains attributes that take one quantity: word -> (field, what, quantity kind)
 MAINS_ATTRIBUTES = {
@@ -36,6 +39,9 @@ def mains(stmt: Statement):
                     kw["voltage"] = check_quantity(it, "voltage", "mains voltage")
                 elif it.kind == "qty" and it.qkind == "frequency":
                     kw["frequency"] = check_quantity(it, "frequency", "mains frequency")
+                    if not MAINS_FREQUENCY[0] <= kw["frequency"] <= MAINS_FREQUENCY[1]:
+                        raise PlanError(f"mains frequency {it.text} is outside {MAINS_FREQUENCY[0]:g}–{MAINS_FREQUENCY[1]:g} Hz",
+                                        it.loc, "mains is 50 or 60 Hz (aircraft 400 Hz)")
                 else:
                     raise PlanError(f"mains: unexpected {it.text!r}", it.loc, "write e.g. 'mains 230 V 50 Hz'")
             continue

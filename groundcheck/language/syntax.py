@@ -66,11 +66,18 @@ class _Build(Transformer):
             m = _HEAD_PARTS.match(text)
             st = Statement(m.group(1), loc, m.group(2), Location(self.file, head.line, head.column + m.start(2)))
             if head.type == "LINE":
-                st.phrases = split_phrases(text[m.end():], head.line, head.column + m.end(), self.file, self.errors)
-                return st
+                return self._phrases(st, text[m.end():], head.line, head.column + m.end())
         if len(children) > 1:
             rest = children[1]
-            st.phrases = split_phrases(str(rest), rest.line, rest.column, self.file, self.errors)
+            return self._phrases(st, str(rest), rest.line, rest.column)
+        return st
+
+    def _phrases(self, st: Statement, text: str, line: int, column: int) -> Statement:
+        """The statement's phrases; an error inside them (a bad unit, say) marks it broken, so that its
+        builder does not run on what is left and report errors that follow from the first."""
+        before = len(self.errors)
+        st.phrases = split_phrases(text, line, column, self.file, self.errors)
+        st.broken = len(self.errors) > before
         return st
 
     def block(self, children):

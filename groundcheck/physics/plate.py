@@ -32,6 +32,8 @@ __all__ = ["PlateResult", "reduce_plate", "grid_laplacian"]
 
 #: grid nodes per plate at most (keeps one plate's solve well under a second)
 MAX_GRID_NODES = 40_000
+#: nodes along the longest side of a plate, at the most
+MAX_GRID_SIDE = 2_000
 
 
 @dataclass(frozen=True)
@@ -127,7 +129,8 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
     width, depth = abs(width), abs(depth)
     sheet_g = thickness / rho
     if step is None:
-        step = max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES))
+        # at most MAX_GRID_NODES nodes, and no side longer than MAX_GRID_SIDE nodes (a long thin strip)
+        step = max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES), max(width, depth) / MAX_GRID_SIDE)
     red, used = _reduce(width, depth, sheet_g, contacts, radius, step)
     err = 0.0
     if estimate_error and len(contacts) >= 2:
