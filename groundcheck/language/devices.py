@@ -5,6 +5,7 @@ joined to the outlet it is plugged into)."""
 from __future__ import annotations
 
 import os
+import stat
 from dataclasses import replace
 from pathlib import Path
 
@@ -20,14 +21,19 @@ MAX_DEVICE_DEPTH = 8
 
 
 def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path | None:
+    """A device's plan file: beside the plan, then in the library folders (the plan's ``library`` statements,
+    the caller's, ``GROUNDCHECK_LIBRARY``).  Only a regular ``.gplan`` file inside one of those folders (after
+    resolving links) is taken, so a device can never read a system file, a device node or a FIFO."""
     here = ld.root
-    candidates = [here / source]
+    folders = [here]
     env = os.environ.get("GROUNDCHECK_LIBRARY", "")
     for lib in [*library_dirs, *ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
-        candidates.append((here / lib / source) if not Path(lib).is_absolute() else Path(lib) / source)
-    for c in candidates:
-        if c.is_file():
-            return c.resolve()
+        folders.append((here / lib) if not Path(lib).is_absolute() else Path(lib))
+    for folder in folders:
+        c = (folder / source).resolve()
+        base = folder.resolve()
+        if c.suffix == ".gplan" and (c == base or base in c.parents) and c.is_file() and stat.S_ISREG(c.stat().st_mode):
+            return c
     return None
 
 
@@ -59,7 +65,8 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         path = find_device(dev.source, dev, ld, library_dirs)
         if path is None:
             errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
-                                    "looked beside the plan and in the library folders (library \"DIR\", GROUNDCHECK_LIBRARY)"))
+                                    "a device is a .gplan file beside the plan or in a library folder "
+                                    "(library \"DIR\", GROUNDCHECK_LIBRARY); nothing outside them is read"))
             return
         if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
             errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,

@@ -32,6 +32,7 @@ LIMITS = {
     "include_depth": 16,
     "block_depth": 8,
     "elements": 3_000_000,
+    "placed_elements": 200_000,
 }
 
 
@@ -97,6 +98,8 @@ class _Loader:
         self.blocks: dict[str, BlockDef] = {}
         self.files: list[str] = []
         self.count = 0
+        self.placed = 0                       # elements made by block placements, counted before expanding
+        self._size_cache: dict[str, int] = {}
         self._local_cache: dict[str, set[str]] = {}
         self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
 
@@ -162,6 +165,28 @@ class _Loader:
         return self.read_items(text, str(target.relative_to(self.root)), stack + (target,))
 
     # ---- blocks --------------------------------------------------------------
+    def block_size(self, block: str, seen: tuple[str, ...] = ()) -> int:
+        """How many elements one placement of ``block`` makes, counted without expanding it (memoised)."""
+        if block in self._size_cache:
+            return self._size_cache[block]
+        bd = self.blocks.get(block)
+        if bd is None or block in seen:
+            return 0
+        n = 0
+        for st in bd.body:
+            if isinstance(st, tuple):
+                continue
+            if st.keyword != "place":
+                n += 1
+                continue
+            try:
+                inner, _, _ = self.parse_place(st)
+            except PlanError:
+                continue
+            n += self.block_size(inner, seen + (block,))
+        self._size_cache[block] = n
+        return n
+
     def local_names(self, block: str, seen: tuple[str, ...] = ()) -> set[str]:
         if block in self._local_cache:
             return self._local_cache[block]
@@ -223,6 +248,12 @@ class _Loader:
                         raise PlanError(f"block {block!r} places itself", st.loc, "a block cannot contain itself, directly or not")
                     if depth + 1 > LIMITS["block_depth"]:
                         raise LimitError(f"blocks placed more than {LIMITS['block_depth']} deep", st.loc, "flatten the blocks")
+                    if depth == 0:                 # a top-level placement: its size counts every nested one
+                        self.placed += self.block_size(block)
+                    if self.placed > LIMITS["placed_elements"]:
+                        raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit of "
+                                         f"{LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
+                                         "a block placed inside blocks multiplies; place fewer, or write a large flat plan")
                     new_prefix = f"{prefix}{sub}."
                     self.expand(self.blocks[block].body, new_prefix, inner_tf.then(tf),
                                 ((new_prefix, self.local_names(block)),) + scopes, depth + 1, path + (block,), out)
