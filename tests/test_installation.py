@@ -115,3 +115,30 @@ def test_device_earth_paths_to_the_main_earthing_terminal(tmp_path):
         (tmp_path / "devices" / d.name).write_text(d.read_text())
     r = analyze(load(f))
     assert [(x.severity, x.elements[0]) for x in r.findings if x.code == "GC215"] == [("danger", "mixer")]
+
+
+def _installation(tmp_path, devices: str):
+    lib = ROOT / "examples"
+    f = tmp_path / "room.gplan"
+    f.write_text(f'plan "room"\nlibrary "{lib}"\npoint met: earthing-terminal\npoint wall: outlet\n'
+                 "wire run: wall to met, 10 m, 2.5 mm2, protective\n" + devices)
+    return f
+
+
+def test_a_60_hz_device_keeps_its_supply_when_placed(tmp_path):
+    f = _installation(tmp_path, 'device amp: "monoblock-power-amp.gplan", plugged wall\n')
+    placed = analyze(load(f))
+    alone = analyze(load(ROOT / "examples" / "monoblock-power-amp.gplan"))
+    assert load(f).frequency == 60.0
+    assert placed.hum.frequencies[:3] == [60.0, 120.0, 240.0] == alone.hum.frequencies[:3]   # induction at 60 Hz, charging at 120, 240
+    (r_placed,) = placed.hum.rectifiers
+    (r_alone,) = alone.hum.rectifiers
+    assert r_placed.ripple_pp == pytest.approx(r_alone.ripple_pp, rel=1e-9)
+
+
+def test_devices_for_50_and_60_hz_cannot_share_an_installation(tmp_path):
+    f = _installation(tmp_path, 'device amp: "monoblock-power-amp.gplan", plugged wall\n'
+                                'device pre: "dual-mono-line-stage.gplan", plugged wall\n')
+    with pytest.raises(PlanErrors) as e:
+        load(f)
+    assert "one mains frequency" in e.value.errors[0].one_line()

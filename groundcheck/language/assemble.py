@@ -109,6 +109,18 @@ def _check_sources(groups, nodes, check) -> None:
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)
 
 
+def _check_supplies(supplies: list, mains, ld) -> None:
+    """Devices of one installation share one supply: 50 and 60 Hz devices cannot be plugged into it together
+    (a building has one mains frequency; a device for the other needs a frequency converter, which is then
+    the device's own supply)."""
+    freqs = {s[2] for s, _ in supplies} | ({mains.frequency} if mains is not None else set())
+    if len(freqs) > 1:
+        (name, _, f), loc = next((s, loc) for s, loc in supplies if s[2] != (mains.frequency if mains else supplies[0][0][2]))
+        ld.errors.append(PlanError(f"device {name} is for a {f:g} Hz supply, but the installation's other devices are on "
+                                   f"{', '.join(f'{x:g}' for x in sorted(freqs - {f}))} Hz", loc,
+                                   "one installation has one mains frequency; place the device in a plan of its own supply"))
+
+
 def assemble(built: list, file: str, ld) -> Plan:
     """The plan of a file's built ``(statement, record, refs)`` list; errors are added to ``ld.errors``."""
     header, groups, names, devices, library_dirs = _collect(built, ld)
@@ -117,8 +129,12 @@ def assemble(built: list, file: str, ld) -> Plan:
     points = {p.name: p for p, *_ in groups[Point]}
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
+    supplies = []
     for dev, refs in devices:
-        merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
+        supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
+        if supply is not None:
+            supplies.append((supply, dev.location))
+    _check_supplies(supplies, mains, ld)
     nodes = set(points) | set(metals)
     for dev, refs in devices:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
@@ -140,4 +156,5 @@ def assemble(built: list, file: str, ld) -> Plan:
         rectifiers=tuple(r for r, *_ in groups[Rectifier]), currents=tuple(r for r, *_ in groups[Current]),
         heaters=tuple(r for r, *_ in groups[Heater]), stages=tuple(stages),
         fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
+        device_supplies=tuple(s for s, _ in supplies),
     )

@@ -55,9 +55,11 @@ def simple_device(dev: Device) -> Plan:
 
 
 def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: dict, metals: dict,
-                  points: dict, names: dict) -> None:
-    """Add a device's elements to the installation, prefixed with its name and moved to its place."""
+                  points: dict, names: dict) -> tuple | None:
+    """Add a device's elements to the installation, prefixed with its name and moved to its place.
+    Returns the device's supply (name, volts, hertz) when its plan states one."""
     errors = ld.errors
+    supply = None
     if dev.source == "simple":
         sub = simple_device(dev)
         cord_default = DEFAULT_CORD
@@ -81,6 +83,7 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         sub = prefixed(loaded, prefix)
         m = loaded.mains
         cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
+        supply = (dev.name, m.voltage, m.frequency) if m else None
     tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
     for x in sub.metals:
         size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
@@ -101,6 +104,7 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
                                             length=dev.cord_length or cord_default[0], area=dev.cord_area or cord_default[1],
                                             location=dev.location), {}))
+    return supply
 
 
 def prefixed(p: Plan, prefix: str) -> Plan:

@@ -277,10 +277,15 @@ class Plan:
     fields: tuple[FieldSource, ...] = ()
     files: tuple[str, ...] = ()
     location: Location = field(default=Location("<plan>"), compare=False)
+    device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
 
     @property
     def frequency(self) -> float:
-        return self.mains.frequency if self.mains else 50.0
+        """The mains frequency: the plan's own supply, else that of the devices it places (one installation has
+        one; the loader refuses a mixture), else 50 Hz (a plan with neither describes no mains at all)."""
+        if self.mains:
+            return self.mains.frequency
+        return self.device_supplies[0][2] if self.device_supplies else 50.0
 
     def metal(self, name: str) -> Metal | None:
         return next((m for m in self.metals if m.name == name), None)
