@@ -140,3 +140,14 @@ def test_hostile_strings_are_escaped_everywhere(tmp_path):
         assert '\\"' not in label or label.count('"') % 2 == 0
         svg, _ = render_dot(src, "svg", "neato")
         assert b"<script>" not in svg
+
+
+def test_text_to_a_file_or_pipe_is_not_wrapped(cli):
+    code, out, _ = cli("check", str(EXAMPLES[0]))
+    lines = out.splitlines()
+    heads = [ln for ln in lines if ln.startswith("  GC")]
+    assert heads and all(re.match(r"  GC\d{3} \S+:\d+:\d+  \S", ln) for ln in heads)
+    assert len(heads) == sum(1 for ln in lines if ln.startswith("      fix: "))
+    # each finding is one line, its figures and fix indented on their own lines, nothing ends in blanks
+    assert all(not ln.endswith(" ") for ln in lines)
+    assert "_mohm" not in out and " = " not in out.split("Caution")[1].split("Hum and buzz")[0]

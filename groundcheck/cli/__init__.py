@@ -166,7 +166,7 @@ def cmd_check(args) -> int:
             plan = load_plan(path, args.jobs)
             results.append(_analyze_with_progress(analyze, plan, options_of(args), path))
     failing = any(r.fails(args.fail_on) for r in results)
-    if args.format == "text" and not args.output:
+    if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console
         from ..renderers.text import print_report
         console = Console(highlight=False)

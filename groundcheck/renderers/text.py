@@ -18,7 +18,7 @@ from ..core.caution import CAUTION
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 
-__all__ = ["print_report", "text_report", "CAUTION"]
+__all__ = ["print_report", "text_report", "figure_words", "CAUTION"]
 
 
 
@@ -89,8 +89,7 @@ def _findings(result: Result, console: Console) -> None:
             head.append(f.message)
             console.print(head)
             if f.figures:
-                figs = ", ".join(f"{k} = {v}" for k, v in f.figures.items())
-                console.print(Text(f"      figures: {figs}", style="dim"))
+                console.print(Text(f"      figures: {figure_words(f.figures)}", style="dim"))
             if f.fix:
                 console.print(Text(f"      fix: {f.fix}", style="green"))
         console.print()
@@ -164,10 +163,35 @@ def _loop_table(result: Result, console: Console) -> None:
     console.print(t)
 
 
-def text_report(result: Result, width: int = 110, color: bool = False) -> str:
-    """The report as a string (for tests and files)."""
+def text_report(result: Result, width: int | None = None, color: bool = False) -> str:
+    """The report as a string, for files and pipes: with no ``width`` nothing is wrapped (one finding per line,
+    its details indented below it) and no line ends in blanks."""
     buf = io.StringIO()
-    console = Console(file=buf, width=width, force_terminal=color, no_color=not color, highlight=False,
+    console = Console(file=buf, width=width or 100_000, force_terminal=color, no_color=not color, highlight=False,
                       color_system="standard" if color else None)
     print_report(result, console)
-    return buf.getvalue()
+    return "\n".join(line.rstrip() for line in buf.getvalue().split("\n"))
+
+
+#: unit suffixes of figure keys and how they are shown
+_UNITS = (("_mohm", "mΩ"), ("_ohm", "Ω"), ("_mm2", "mm²"), ("_a2s", "A²s"), ("_dbv", "dBV"), ("_db", "dB"),
+          ("_pct", "%"), ("_hz", "Hz"), ("_mm", "mm"), ("_a", "A"), ("_v", "V"), ("_s", "s"), ("_t", "T"))
+
+
+def figure_words(figures: dict) -> str:
+    """'transfer resistance 2.628 mΩ, stage gain 30 dB': a finding's figures in words, with their units."""
+    out = []
+    for key, value in figures.items():
+        name, unit = key, ""
+        for suffix, symbol in _UNITS:
+            if key.endswith(suffix):
+                name, unit = key[: -len(suffix)], symbol
+                break
+        if isinstance(value, bool):
+            shown = "yes" if value else "no"
+        elif isinstance(value, float):
+            shown = f"{value:.4g}"
+        else:
+            shown = str(value)
+        out.append(f"{name.replace('_', ' ')} {shown}{' ' + unit if unit else ''}")
+    return ", ".join(out)
