@@ -100,7 +100,7 @@ def test_refuses_to_overwrite_input(cli, tmp_path):
     text = open(MONO).read()
     plan.write_text(text)
     code, _, err = cli("check", str(plan), "--format", "json", "-o", str(plan))
-    assert code == 2 and "refusing to write over the input plan" in err
+    assert code == 2 and "refusing to write over" in err and "a plan this run read" in err
     assert plan.read_text() == text
 
 

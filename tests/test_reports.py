@@ -1,6 +1,7 @@
 """Reports: terminal text, DOT drawings, real renders, the HTML report in headless Chromium, SARIF."""
 
 import json
+from urllib.parse import unquote
 import re
 import shutil
 import subprocess
@@ -133,7 +134,8 @@ def test_hostile_strings_are_escaped_everywhere(tmp_path):
     doc = json.loads(render_json(r))
     assert doc["plan"]["title"].startswith("<script>")          # JSON keeps the text, escaped by the encoder
     sarif = sarif_document([r])
-    assert "<script>" in sarif["runs"][0]["results"][0]["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+    uri = sarif["runs"][0]["results"][0]["locations"][0]["physicalLocation"]["artifactLocation"]["uri"]
+    assert "<" not in uri and unquote(uri).endswith("x<script>&\"'.gplan")       # percent-encoded (RFC 3986)
     json.dumps(sarif)
     for src in (physical_dot(r), topology_dot(r)):
         label = next(line for line in src.splitlines() if "labelloc=t" in line)

@@ -40,16 +40,21 @@ class PlanError(GroundcheckError):
         return f"{self.location}: error: {self.message}{hint}"
 
     def render(self) -> str:
-        """The one-line message, then the offending line with a caret under the spot."""
-        out = [self.one_line()]
+        """The one-line message, then the offending line with a caret under the spot; control characters of the
+        plan (escape sequences among them) are shown as \\xNN, never sent to the terminal."""
+        out = [self.one_line().translate(_CONTROL)]
         if self.source_line is not None:
-            line = self.source_line.rstrip("\n").replace("\t", " ")
+            line = self.source_line.rstrip("\n").replace("\t", " ").translate(_CONTROL)
             out.append("    " + line)
             out.append("    " + " " * max(0, self.location.column - 1) + "^")
         return "\n".join(out)
 
     def __str__(self) -> str:
         return self.one_line()
+
+
+#: control characters (but tab and newline) as they are shown: \xNN
+_CONTROL = {c: f"\\x{c:02x}" for c in (*range(0, 9), *range(11, 32), 127)}
 
 
 class LimitError(PlanError):

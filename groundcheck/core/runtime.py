@@ -11,7 +11,19 @@ import os
 import sys
 from contextlib import contextmanager
 
-__all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas"]
+__all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas", "note_read", "files_read"]
+
+#: every plan file this process has read (resolved): outputs may never be written over one of them
+_READ: set = set()
+
+
+def note_read(path) -> None:
+    """Remember that a plan file was read (the loader calls it for the plan, its includes and device plans)."""
+    _READ.add(path.resolve())
+
+
+def files_read() -> tuple:
+    return tuple(sorted(_READ))
 
 
 @contextmanager

@@ -17,7 +17,7 @@ from ..core.errors import LimitError, Location, PlanError, PlanErrors
 from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
-from ..core.runtime import can_fork, no_gc
+from ..core.runtime import can_fork, no_gc, note_read
 from .syntax import BlockDef, parse_text, suggest_keyword
 
 __all__ = ["load", "load_text", "LIMITS", "PLAN_SUFFIX"]
@@ -69,6 +69,7 @@ def _read(p: Path, shown: str) -> str:
             raise PlanErrors([LimitError(f"plan file is {size} bytes, over the limit of {LIMITS['file_bytes']}", loc,
                                          "split it with include")])
         data = p.read_bytes()
+        note_read(p)
     except OSError as e:
         raise PlanErrors([PlanError(f"cannot read {shown}: {e.strerror}", loc, "check the path and permissions")]) from None
     return _decode(data, shown)

@@ -7,6 +7,7 @@ import tempfile
 from pathlib import Path
 
 from ..core.errors import GroundcheckError
+from ..core.runtime import files_read
 
 __all__ = ["write_atomic", "OutputError"]
 
@@ -23,14 +24,17 @@ def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> Non
     """
     path = Path(path)
     target = path.resolve()
+    protect = [*protect, *files_read()]
     for p in protect:
         try:
             if p.exists() and target.exists() and os.path.samefile(p, target):
-                raise OutputError(f"refusing to write over the input plan {p} (name another output file)")
+                raise OutputError(f"refusing to write over {p}, a plan this run read (name another output file)")
         except OSError:
             continue
     if target.is_dir():
         raise OutputError(f"{path} is a folder (name an output file)")
+    if target.exists() and not target.is_file():
+        raise OutputError(f"{path} is not a regular file (a device, a FIFO or a socket): name an output file, or write to standard output with -o -")
     folder = target.parent
     if not folder.is_dir():
         raise OutputError(f"folder {path.parent} does not exist")

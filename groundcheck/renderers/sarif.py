@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import json
 from pathlib import Path
+from urllib.parse import quote
 
 from ..core.version import __version__
 from ..rules.results import Result
@@ -22,9 +23,11 @@ LEVEL = {"danger": "error", "fault": "error", "warning": "warning", "note": "not
 
 
 def _uri(path: str) -> str:
+    """A relative URI reference for a plan file (RFC 3986): the path percent-encoded, so that a name with
+    '#', '%', a space or a non-ASCII letter stays one path (SARIF 2.1.0 3.10, artifactLocation.uri)."""
     if path.startswith("<"):
-        return path.strip("<>")
-    return Path(path).as_posix()
+        return quote(path.strip("<>"), safe="")
+    return quote(Path(path).as_posix(), safe="/")
 
 
 def sarif_document(results: list[Result]) -> dict:

@@ -10,7 +10,7 @@ import io
 import math
 
 from rich.console import Console
-from rich.markup import escape
+from rich.markup import escape as _escape
 from rich.table import Table
 from rich.text import Text
 
@@ -24,6 +24,20 @@ __all__ = ["print_report", "text_report", "figure_words", "CAUTION"]
 
 STYLE = {"danger": "bold white on red", "fault": "bold red", "warning": "yellow", "note": "cyan"}
 LABEL = {"danger": "DANGER", "fault": "FAULT", "warning": "WARNING", "note": "NOTE"}
+
+
+_CONTROL = {c: f"\\x{c:02x}" for c in (*range(0, 9), *range(11, 32), 127)}
+
+
+def shown(text: str) -> str:
+    """Text from the plan as the terminal shows it: control characters (escape sequences among them) written
+    as \\xNN, so a plan can never drive the terminal."""
+    return str(text).translate(_CONTROL)
+
+
+def escape(text) -> str:
+    """Rich markup escaped, control characters shown (:func:`shown`)."""
+    return _escape(shown(text))
 
 
 def _fmt(x, unit="", digits=3):
@@ -47,7 +61,7 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
     plan = result.plan
     counts = result.counts()
     worst = result.worst()
-    console.print(Text(plan.title, style="bold"), Text(f"  ({plan.file})", style="dim"))
+    console.print(Text(shown(plan.title), style="bold"), Text(f"  ({shown(plan.file)})", style="dim"))
     verdict = "clean" if worst is None else f"worst finding: {LABEL[worst]}"
     vstyle = "bold green" if worst is None else STYLE[worst]
     line = Text("Verdict: ")
@@ -85,13 +99,13 @@ def _findings(result: Result, console: Console) -> None:
         console.print(Text(f"{LABEL[sev]} ({len(group)})", style=STYLE[sev]))
         for f in group:
             head = Text(f"  {f.code} ", style="bold")
-            head.append(f"{f.location}  ", style="dim")
-            head.append(f.message)
+            head.append(f"{shown(f.location)}  ", style="dim")
+            head.append(shown(f.message))
             console.print(head)
             if f.figures:
-                console.print(Text(f"      figures: {figure_words(f.figures)}", style="dim"))
+                console.print(Text(shown(f"      figures: {figure_words(f.figures)}"), style="dim"))
             if f.fix:
-                console.print(Text(f"      fix: {f.fix}", style="green"))
+                console.print(Text(shown(f"      fix: {f.fix}"), style="green"))
         console.print()
 
 
