@@ -170,3 +170,18 @@ def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
     html = tmp_path / "r.html"
     cli("report", str(p), "--pe-limit", "10 ohm", "-o", str(html))
     assert 'class="notice"' in html.read_text() and "relaxed" in html.read_text()
+
+
+def test_compare_fails_a_review_when_the_after_plan_introduces_findings(cli, tmp_path):
+    worse = tmp_path / "worse.gplan"
+    worse.write_text(open(MONO).read().replace("shield in_shield:", "shield in_shield2: in_sleeve to v1_grid_gnd, 60 mm, "
+                                                                    "0.2 mm2\nshield in_shield:", 1))
+    assert cli("compare", MONO, str(worse))[0] == 0
+    assert cli("compare", MONO, str(worse), "--fail-on", "introduced")[0] == 1
+    assert cli("compare", MONO, MONO, "--fail-on", "introduced")[0] == 0
+
+
+def test_option_values_are_checked(cli):
+    for args in (("--max-frequency", "-100"), ("--pe-limit", "0"), ("--hum-level", "nan"), ("--max-frequency", "1e309")):
+        code, _, err = cli("check", MONO, *args)
+        assert code == 2 and "error: argument" in err

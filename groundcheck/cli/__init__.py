@@ -114,6 +114,9 @@ def _compare_command(sub) -> None:
     cp.add_argument("after", metavar="AFTER")
     cp.add_argument("--format", choices=("text", "json", "html"), default="text", help="output format (default text)")
     cp.add_argument("-o", "--output", metavar="FILE", help="write the comparison to FILE instead of standard output")
+    cp.add_argument("--fail-on", choices=("never", "introduced", "worse"), default="never",
+                    help="exit 1 when the after-plan introduces a finding (introduced) or a finding at least as "
+                         "severe as the worst before (worse); default never")
     add_analysis_options(cp)
 
 

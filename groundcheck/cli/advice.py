@@ -82,4 +82,18 @@ def cmd_compare(args) -> int:
     d = compare(analyze(load_plan(args.before), options_of(args)), analyze(load_plan(args.after), options_of(args)))
     text = {"text": compare_text, "json": compare_json, "html": compare_html}[args.format](d)
     write_output(text, args.output, [args.before, args.after])
-    return 0
+    return 1 if _compare_fails(d, args.fail_on) else 0
+
+
+def _compare_fails(d: dict, fail_on: str) -> bool:
+    """Whether the comparison fails a review pipeline: a finding introduced, or one introduced that is at least
+    as severe as the worst finding before."""
+    from ..rules.catalogue import severity_rank
+    new = d["findings"]["introduced"]
+    if fail_on == "introduced":
+        return bool(new)
+    if fail_on == "worse":
+        before = [f["severity"] for f in d["findings"]["fixed"] + d["findings"]["kept"]]
+        worst = min((severity_rank(s) for s in before), default=len(("danger", "fault", "warning", "note")))
+        return any(severity_rank(f["severity"]) <= worst for f in new)
+    return False

@@ -26,22 +26,45 @@ class Parser(argparse.ArgumentParser):
                   if " " in self.prog else f"groundcheck: error: {message} (see 'groundcheck --help')\n")
 
 
-def quantity_type(kind: str, unit: str):
+def _checked(value: float, text: str, kind: str, positive: bool) -> float:
+    if value != value or abs(value) == float("inf") or abs(value) > 1e9:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a finite {kind}")
+    if positive and value <= 0:
+        raise argparse.ArgumentTypeError(f"{text!r}: the {kind} must be more than zero")
+    return value
+
+
+def quantity_type(kind: str, unit: str, positive: bool = True):
     def conv(text: str) -> float:
         t = text.strip()
         num = t.rstrip("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZµΩ°²/ ")
         rest = t[len(num):].strip()
         try:
             if not rest:
-                return float(num)
+                return _checked(float(num), text, kind, positive)
             value, k = parse_quantity(num, rest)
         except (ValueError, UnitError) as e:
             raise argparse.ArgumentTypeError(f"{text!r} is not a {kind} ({e})") from None
         if k != kind:
             raise argparse.ArgumentTypeError(f"{text!r} is a {k}, not a {kind}")
-        return value
+        return _checked(value, text, kind, positive)
     conv.__name__ = kind
     return conv
+
+
+def level_type(text: str) -> float:
+    """A level in dB(V): a finite number, an optional 'dBV' or 'dB' after it."""
+    t = text.strip()
+    for suffix in ("dBV", "dB"):
+        if t.endswith(suffix):
+            t = t[: -len(suffix)].strip()
+    try:
+        value = float(t)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a level in dBV") from None
+    if value != value or abs(value) > 300:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a level from -300 to 300 dBV")
+    return value
 
 
 def seconds_type(text: str) -> float:
@@ -71,7 +94,7 @@ def add_analysis_options(p):
                    help="protective-path resistance limit (default 0.1 ohm, the usual product-safety bonding limit)")
     g.add_argument("--max-frequency", type=quantity_type("frequency", "Hz"), default=5000.0, metavar="HZ",
                    help="highest harmonic analysed (default 5 kHz)")
-    g.add_argument("--hum-level", type=float, default=-100.0, metavar="DBV",
+    g.add_argument("--hum-level", type=level_type, default=-100.0, metavar="DBV",
                    help="report hum contributors above this level at the output (default -100 dBV)")
     g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
 

@@ -15,7 +15,7 @@ class Location(NamedTuple):
     column: int = 0
 
     def __str__(self) -> str:
-        return f"{self.file}:{self.line}:{self.column}"
+        return f"{self.file}:{self.line}:{self.column}" if self.line else self.file
 
     def as_dict(self) -> dict:
         return {"file": self.file, "line": self.line, "column": self.column}
@@ -65,7 +65,9 @@ class PlanErrors(GroundcheckError):
     """Every error found in a plan, in file order."""
 
     def __init__(self, errors: list[PlanError]):
-        errors = sorted(errors, key=lambda e: (e.location.file, e.location.line, e.location.column))
+        # an error inside a block placed twice is the same error at the same place: said once
+        unique = {(e.location, e.message): e for e in reversed(errors)}
+        errors = sorted(unique.values(), key=lambda e: (e.location.file, e.location.line, e.location.column))
         super().__init__("\n".join(e.one_line() for e in errors))
         self.errors = errors
 
