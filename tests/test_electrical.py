@@ -1,6 +1,8 @@
 """Electrical engine against outside references: handbook tables, worked formulas, and ngspice."""
 
 import math
+import tomllib
+from pathlib import Path
 
 import networkx as nx
 import numpy as np
@@ -47,9 +49,12 @@ def test_strip_inductance_against_geometric_mean_distance():
         assert strip_inductance(l, w, t) == pytest.approx(2e-7 * l * (math.log(2 * l / g) - 1), rel=0.01)
 
 
-@pytest.mark.parametrize("f,delta_mm", [(50, 9.35), (60, 8.53), (100, 6.61), (1000, 2.09), (10000, 0.661)])
+_SKIN = tomllib.loads((Path(__file__).parent / "reference" / "hearing.toml").read_text())["skin_depth"]
+
+
+@pytest.mark.parametrize("f,delta_mm", list(zip(_SKIN["frequencies_hz"], _SKIN["depth_mm"])))
 def test_skin_depth_copper(f, delta_mm):
-    # REFERENCE.md worked values, matching published skin-depth tables for copper
+    # worked values (tests/reference/hearing.toml), matching published skin-depth tables for copper
     assert skin_depth(1.7241e-8, f) * 1e3 == pytest.approx(delta_mm, rel=3e-3)
 
 
