@@ -251,3 +251,27 @@ def test_new_protective_stud_is_clear_of_the_transformer(tmp_path):
     assert lead.length == pytest.approx(round(((inlet[0] - stud.pos[0]) ** 2 + (inlet[1] - stud.pos[1]) ** 2) ** 0.5 * 1.2, 3),
                                         abs=1e-3)
     assert "# mistake 1" not in next(x for x in new.split("\n") if x.startswith("wire pe_lead"))
+
+
+HEAD_PLAN = """plan "Guitar head, TT supply (trial)"
+mains 120 V 60 Hz, fuse 3.15 A slow, line-conductor 18 AWG, cord 2.5 m 18 AWG, system TT, loop-impedance 12 ohm, inlet at 10,150
+metal chassis: steel 1.2 mm, 450 x 180 mm, touchable
+metal back_panel: steel 1 mm, 450 x 60 mm, touchable
+point pe_stud: stud, at 30,160 on chassis
+wire pe_lead: mains.pe to pe_stud, 40 mm, 18 AWG, protective
+bolt pe_nut: pe_stud to chassis, contact 0.5 mohm
+wire panel_lead: pe_stud to back_panel, 150 mm, 22 AWG
+"""
+
+
+def test_protective_fixes_are_proposed_and_applied(tmp_path):
+    # a role-less, thin bonding lead sharing the protective stud: the advisor thickens it to the next standard
+    # size (IEC 60228 series) at least the line conductor's, and gives the protective earth a stud of its own
+    # (the bonding path grows by a few milliohms, still far within the 0.1 ohm limit)
+    before, evs = _evs(HEAD_PLAN, tmp_path, "head.gplan")
+    useful = {e.candidate.reason: e for e in evs if not e.rejected}
+    assert "use 1 mm²" in useful["GC204"].candidate.title and "GC204" not in _codes_after(useful["GC204"])
+    assert "GC202" not in _codes_after(useful["GC202"])
+    assert all(p.path_resistance < 0.1 for p in useful["GC202"].result.safety.parts)
+    # panel_lead is protective by topology: never removed, whatever else is tried
+    assert all("panel_lead" not in e.candidate.title or e.candidate.reason == "GC204" for e in evs)

@@ -27,6 +27,8 @@ STUD_CLEARANCE = 15e-3
 #: a field source's own footprint, for placing a new stud clear of a transformer, m (from memory: small mains
 #: transformers are 50–100 mm across)
 SOURCE_CLEARANCE = 40e-3
+#: standard conductor cross-sections, mm² (IEC 60228's series)
+STANDARD_SECTIONS_MM2 = (0.5, 0.75, 1.0, 1.5, 2.5, 4.0, 6.0, 10.0, 16.0, 25.0, 35.0, 50.0)
 #: a re-routed wire's length: its straight-line length plus this share for dress and strain relief (common practice)
 ROUTE_ALLOWANCE = 0.2
 
@@ -278,8 +280,9 @@ def _thicker(ctx: _Ctx, f) -> Candidate | None:
     st = ctx.statement(c)
     if st is None or ctx.plan.mains is None or ctx.plan.mains.line_area is None:
         return None
-    area = ctx.plan.mains.line_area * 1e6
-    new = f"{area:.3g} mm2"
+    line = ctx.plan.mains.line_area * 1e6
+    area = next((a for a in STANDARD_SECTIONS_MM2 if a >= line * (1 - 1e-9)), line)
+    new = f"{area:g} mm2"
     item = ctx.src.quantity(st, "area")
     if item is not None:
         edit = ctx.src.replace(st, [(item, new)])
@@ -291,7 +294,8 @@ def _thicker(ctx: _Ctx, f) -> Candidate | None:
         edit = Edit(edit.line, _squeeze(edit.new, new), edit.extra, edit.last)
         if ph[0].value == "width" and c.kind == "trace":
             return None            # a trace is made wider, not given an area: say so in the finding instead
-    return Candidate(f"use {area:.3g} mm² for protective conductor {c.name}", "GC204", (edit,), touches_protective=False)
+    return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for protective "
+                     f"conductor {c.name}", "GC204", (edit,), touches_protective=False)
 
 
 def _installation_interconnects(plan: Plan, result: Result) -> set[str]:

@@ -112,7 +112,12 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         ev.rejected = f"it would take {', '.join(lost[:3])} off the protective route"
         return ev
     pe0, pe1 = _pe(before), _pe(after)
-    if any(part not in pe1 or pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 for part, r in pe0.items()):
+    # a change that answers a protective-earth finding (its own stud, say) may lengthen a path a little, as long
+    # as every path stays within the limit; any other change must not weaken the protective earth at all
+    pe_fix = cand.reason.startswith("GC2")
+    limit = after.safety.limit if after.safety is not None else 0.0
+    if any(part not in pe1 or (pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 and not (pe_fix and pe1[part] <= limit))
+           for part, r in pe0.items()):
         ev.rejected = "it would weaken the protective-earth path"
         return ev
     k0, k1 = _keys(before), _keys(after)

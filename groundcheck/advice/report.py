@@ -22,6 +22,8 @@ def _level(dbv: float) -> str:
 
 def _hum_change_words(ch: str, before: float, after: float) -> str:
     """'left: −47.1 → −96.3 dBV (49.2 dB quieter)': real levels, and the change in words."""
+    if before <= HUM_FLOOR_DBV and after <= HUM_FLOOR_DBV:
+        return f"hum {ch}: none above {HUM_FLOOR_DBV:.0f} dBV before or after"
     d = after - before
     change = "unchanged" if abs(d) < 0.05 else (f"{-d:.1f} dB quieter" if d < 0 else f"{d:.1f} dB louder")
     if after <= HUM_FLOOR_DBV:
