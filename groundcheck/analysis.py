@@ -7,6 +7,8 @@ Every rule comes from the registry (:mod:`groundcheck.rules.registry`).
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from .core.runtime import no_gc
 from .model.records import Plan
 from .physics.circuit import build_circuit
@@ -19,6 +21,7 @@ from .rules import families  # noqa: F401 - every family of rules registers itse
 from .rules.context import AuditContext
 from .rules.electrical import Solved
 from .rules.registry import functions
+from .rules.catalogue import RULES
 from .rules.results import Options, Result
 
 __all__ = ["Options", "Result", "analyze", "audit"]
@@ -76,5 +79,42 @@ def _notices(plan: Plan, options: Options) -> list[str]:
 
 
 def _finish(result: Result) -> Result:
-    result.findings = sorted(result.findings, key=lambda f: f.sort_key())
+    opts = result.options
+    wanted = _codes(opts.select) if opts.select else None
+    unwanted = _codes(opts.ignore)
+    findings = [f for f in result.findings if (wanted is None or f.code in wanted) and f.code not in unwanted]
+    result.findings = sorted(_accepted(findings, result.plan, opts), key=lambda f: f.sort_key())
     return result
+
+
+def _codes(words) -> set[str]:
+    """Rule codes from codes, code prefixes (GC2: every protective-earth rule) or names; an unknown word names
+    no rule."""
+    by_name = {r.name: c for c, r in RULES.items()}
+    out: set[str] = set()
+    for w in words:
+        u = w.upper()
+        if u in RULES:
+            out.add(u)
+        elif u.startswith("GC") and u[2:].isdigit() and len(u) < 5:
+            out |= {c for c in RULES if c.startswith(u)}
+        else:
+            out.add(by_name.get(w.lower(), w))
+    return out
+
+
+def _accepted(findings: list, plan: Plan, opts: Options) -> list:
+    """Findings accepted by a '# accept CODE: reason' on their plan line; a danger only with allow_accept_danger."""
+    if not plan.acceptances:
+        return findings
+    at = {}
+    for file, line, codes, reason in plan.acceptances:
+        for code in _codes(codes):
+            at[(file, line, code)] = reason
+    out = []
+    for f in findings:
+        reason = at.get((f.location.file, f.location.line, f.code))
+        if reason is not None and (f.severity != "danger" or opts.allow_accept_danger):
+            f = replace(f, accepted=reason)
+        out.append(f)
+    return out

@@ -185,3 +185,41 @@ def test_option_values_are_checked(cli):
     for args in (("--max-frequency", "-100"), ("--pe-limit", "0"), ("--hum-level", "nan"), ("--max-frequency", "1e309")):
         code, _, err = cli("check", MONO, *args)
         assert code == 2 and "error: argument" in err
+
+
+PE_DANGER = ('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
+             'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
+             'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n'
+             'metal lid: steel 1 mm, 100 x 100 mm, touchable   # accept GC205: a test of acceptance\n')
+
+
+def test_inline_acceptance_in_every_format_and_never_for_a_danger_by_default(cli, tmp_path):
+    p = tmp_path / "a.gplan"
+    p.write_text(open(MONO).read().replace("bolt in_jack_nut: in_sleeve to chassis",
+                                           "bolt in_jack_nut: in_sleeve to chassis  # accept GC101: insulated in the build"))
+    doc = json.loads(cli("check", str(p), "--format", "json")[1])
+    acc = [f for f in doc["findings"] if f["accepted"]]
+    assert [f["code"] for f in acc] == ["GC101"] and doc["summary"]["accepted"] == 1
+    sarif = json.loads(cli("check", str(p), "--format", "sarif")[1])
+    assert any(r.get("suppressions") for r in sarif["runs"][0]["results"])
+    assert "ACCEPTED IN THE PLAN (1)" in cli("check", str(p))[1]
+    d = tmp_path / "d.gplan"
+    d.write_text(PE_DANGER)
+    code, out, _ = cli("check", str(d), "--format", "json")
+    assert code == 1 and json.loads(out)["summary"]["danger"] == 1          # a danger is never accepted by default
+    code, out, _ = cli("check", str(d), "--format", "json", "--allow-accept-danger")
+    assert code == 0 and json.loads(out)["summary"]["accepted"] == 1
+
+
+def test_select_ignore_and_the_settings_file(cli, tmp_path, monkeypatch):
+    doc = json.loads(cli("check", MONO, "--format", "json", "--select", "GC202,shield-both-ends")[1])
+    assert {f["code"] for f in doc["findings"]} == {"GC202", "GC108"}
+    doc = json.loads(cli("check", MONO, "--format", "json", "--ignore", "GC202")[1])
+    assert "GC202" not in {f["code"] for f in doc["findings"]}
+    (tmp_path / "pyproject.toml").write_text('[tool.groundcheck]\nignore = ["GC202"]\nfail-on = "danger"\n')
+    monkeypatch.chdir(tmp_path)
+    code, out, _ = cli("check", MONO, "--format", "json")
+    assert code == 0 and "GC202" not in {f["code"] for f in json.loads(out)["findings"]}
+    (tmp_path / "groundcheck.toml").write_text('colour = "red"\n')
+    code, _, err = cli("check", MONO)
+    assert code == 2 and "unknown setting 'colour'" in err

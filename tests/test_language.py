@@ -230,7 +230,7 @@ def test_missing_file_and_folder(tmp_path, cli):
     code, _, err = cli("check", str(tmp_path / "nope.gplan"))
     assert code == 2 and "error: no such plan file" in err
     code, _, err = cli("check", str(tmp_path))
-    assert code == 2 and "is a folder" in err
+    assert code == 2 and "holds no .gplan file" in err           # a folder is checked plan by plan; this one is empty
 
 
 def test_block_placing_itself(tmp_path, monkeypatch, cli):

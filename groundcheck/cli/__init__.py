@@ -19,7 +19,7 @@ from ..rules.catalogue import RULES, SEVERITIES
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import cmd_compare, cmd_suggest
-from .common import (Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type, quantity_type,
+from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type, quantity_type,
                      seconds_type, write_output)
 
 __all__ = ["main"]
@@ -47,9 +47,10 @@ def _check_command(sub) -> None:
                        description="Audit plans: loops, shared returns, stars, chassis bonds, protective earth, hum and buzz.\n\n"
                        "Example:\n  groundcheck check examples/monoblock-power-amp.gplan --format json",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
-    c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files ('-' reads standard input)")
+    c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files or folders (every .gplan below a folder is "
+                   "checked); '-' reads standard input")
     c.add_argument("--format", choices=CHECK_FORMATS, default="text", help="output format (default text)")
-    c.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
+    c.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     c.add_argument("--jobs", type=processes_type, default=1, metavar="N", help="use N processes: several plans are checked side by side; for one plan, a large flat "
                    "file is read by two and the hum budget's frequencies are shared among N (Linux; default 1)")
@@ -85,7 +86,7 @@ def _report_command(sub) -> None:
     h.add_argument("-o", "--output", metavar="FILE", required=True, help="the HTML file to write (FILE.html)")
     h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
-    h.add_argument("--fail-on", choices=SEVERITIES, default="fault", help="exit 1 when a finding is at least this severe (default fault)")
+    h.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this severe (default fault)")
     add_analysis_options(h)
 
 
@@ -153,7 +154,23 @@ def _analyze_with_progress(analyze, plan, options, label: str):
         return analyze(plan, options)
 
 
+def _plan_paths(names: list[str]) -> list[str]:
+    """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders skipped)."""
+    out = []
+    for name in names:
+        p = Path(name)
+        if name != "-" and p.is_dir():
+            found = sorted(str(f) for f in p.rglob("*.gplan") if not any(part.startswith(".") for part in f.parts))
+            if not found:
+                raise UsageError(f"folder {name} holds no .gplan file")
+            out.extend(found)
+        else:
+            out.append(name)
+    return out
+
+
 def cmd_check(args) -> int:
+    args.plans = _plan_paths(args.plans)
     from ..analysis import analyze
     results = []
     if args.jobs > 1 and len(args.plans) > 1:
@@ -168,7 +185,7 @@ def cmd_check(args) -> int:
         for path in args.plans:
             plan = load_plan(path, args.jobs)
             results.append(_analyze_with_progress(analyze, plan, options_of(args), path))
-    failing = any(r.fails(args.fail_on) for r in results)
+    failing = any(r.fails(fail_on(args)) for r in results)
     if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console
         from ..renderers.text import print_report
@@ -260,7 +277,7 @@ def cmd_report(args) -> int:
         how = ""
     write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
-    return 1 if result.fails(args.fail_on) else 0
+    return 1 if result.fails(fail_on(args)) else 0
 
 
 COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain, "draw": cmd_draw, "report": cmd_report, "export": cmd_export}

@@ -97,12 +97,67 @@ def add_analysis_options(p):
     g.add_argument("--hum-level", type=level_type, default=-100.0, metavar="DBV",
                    help="report hum contributors above this level at the output (default -100 dBV)")
     g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
+    g.add_argument("--select", type=_words, metavar="RULES", default=None,
+                   help="report only these rules (codes or names, comma-separated; default: every rule)")
+    g.add_argument("--ignore", type=_words, metavar="RULES", default=None,
+                   help="never report these rules (codes or names, comma-separated)")
+    g.add_argument("--allow-accept-danger", action="store_true", default=None,
+                   help="let a '# accept' comment accept a danger finding too (by default dangers are never accepted)")
+
+
+def _words(text: str) -> tuple[str, ...]:
+    return tuple(w.strip() for w in text.split(",") if w.strip())
+
+
+CONFIG_KEYS = ("select", "ignore", "fail-on", "allow-accept-danger")
+
+
+def load_config(start: Path | None = None) -> tuple[dict, Path | None]:
+    """Settings from ``groundcheck.toml`` (top-level keys) or the ``[tool.groundcheck]`` table of
+    ``pyproject.toml``, in the current folder or the nearest folder above it; command-line options win."""
+    import tomllib
+    here = (start or Path.cwd()).resolve()
+    for folder in (here, *here.parents):
+        for name, table in (("groundcheck.toml", None), ("pyproject.toml", ("tool", "groundcheck"))):
+            f = folder / name
+            if not f.is_file():
+                continue
+            try:
+                data = tomllib.loads(f.read_text(encoding="utf-8"))
+            except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
+                raise UsageError(f"{f}: cannot read the settings ({e})") from None
+            for key in table or ():
+                data = data.get(key, {}) if isinstance(data, dict) else {}
+            if table is not None and not data:
+                continue
+            unknown = sorted(set(data) - set(CONFIG_KEYS))
+            if unknown:
+                raise UsageError(f"{f}: unknown setting {unknown[0]!r} (settings: {', '.join(CONFIG_KEYS)})")
+            return data, f
+    return {}, None
+
+
+def _setting(args, name: str, config: dict, default):
+    value = getattr(args, name.replace("-", "_"), None)
+    if value is not None:
+        return value
+    value = config.get(name, default)
+    return tuple(value) if isinstance(value, list) else value
 
 
 def options_of(args):
     from ..analysis import Options
+    config, _ = load_config()
     return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
-                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1))
+                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1), select=_setting(args, "select", config, ()),
+                   ignore=_setting(args, "ignore", config, ()),
+                   allow_accept_danger=bool(_setting(args, "allow-accept-danger", config, False)))
+
+
+def fail_on(args) -> str:
+    """--fail-on, else the settings file's fail-on, else fault."""
+    config, _ = load_config()
+    return _setting(args, "fail-on", config, "fault")
 
 
 def load_plan(path: str, jobs: int = 1):

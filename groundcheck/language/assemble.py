@@ -5,6 +5,7 @@ conductors, and the receiving stages of interconnects."""
 from __future__ import annotations
 
 import difflib
+import re
 from dataclasses import replace
 from pathlib import Path
 
@@ -109,6 +110,22 @@ def _check_sources(groups, nodes, check) -> None:
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)
 
 
+#: an inline acceptance: '# accept GC101: the chassis-structure loop is intended' (codes or rule names, a reason)
+_ACCEPT = re.compile(r"#\s*accept\s+([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*(\S.*?)\s*$")
+
+
+def acceptances(sources: dict) -> tuple:
+    """The ``# accept CODE[, CODE]: reason`` comments of the plan's files: (file, line, codes, reason)."""
+    out = []
+    for file, lines in sources.items():
+        for i, line in enumerate(lines, 1):
+            if "accept" in line:
+                m = _ACCEPT.search(line)
+                if m:
+                    out.append((file, i, tuple(c.strip() for c in m.group(1).split(",")), m.group(2)))
+    return tuple(out)
+
+
 def _check_supplies(supplies: list, mains, ld) -> None:
     """Devices of one installation share one supply: 50 and 60 Hz devices cannot be plugged into it together
     (a building has one mains frequency; a device for the other needs a frequency converter, which is then
@@ -156,5 +173,5 @@ def assemble(built: list, file: str, ld) -> Plan:
         rectifiers=tuple(r for r, *_ in groups[Rectifier]), currents=tuple(r for r, *_ in groups[Current]),
         heaters=tuple(r for r, *_ in groups[Heater]), stages=tuple(stages),
         fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
-        device_supplies=tuple(s for s, _ in supplies),
+        device_supplies=tuple(s for s, _ in supplies), acceptances=acceptances(ld.sources),
     )

@@ -278,6 +278,7 @@ class Plan:
     files: tuple[str, ...] = ()
     location: Location = field(default=Location("<plan>"), compare=False)
     device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
+    acceptances: tuple[tuple[str, int, tuple[str, ...], str], ...] = ()   # (file, line, codes, reason) of '# accept' comments
 
     @property
     def frequency(self) -> float:

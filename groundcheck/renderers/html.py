@@ -122,7 +122,9 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
              f'<p class="caution">{e(CAUTION)}</p>', "<h2>Summary</h2>"]
     verdict = "clean" if worst is None else f"worst finding: {worst}"
     parts.append(f'<p><b>Verdict:</b> <span class="{"ok" if worst is None else "bad"}">{e(verdict)}</span>. '
-                 + ", ".join(f"{counts[s]} {s}" for s in SEVERITIES) + f"; {result.loop_total} independent ground loops.</p>")
+                 + ", ".join(f"{counts[s]} {s}" for s in SEVERITIES)
+                 + (f", {counts['accepted']} accepted in the plan" if counts["accepted"] else "")
+                 + f"; {result.loop_total} independent ground loop{'' if result.loop_total == 1 else 's'}.</p>")
     for notice in result.notices:
         parts.append(f'<p class="notice"><b>Notice:</b> {e(notice)}</p>')
     if result.safety is not None and result.safety.parts:

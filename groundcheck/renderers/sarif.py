@@ -47,7 +47,9 @@ def sarif_document(results: list[Result]) -> dict:
             out.append({"ruleId": f.code, "ruleIndex": codes.index(f.code), "level": LEVEL[f.severity],
                         "message": {"text": f"{f.message}. Fix: {f.fix}" if f.fix else f.message},
                         "locations": [loc],
-                        "properties": {"severity": f.severity, "elements": list(f.elements), "figures": f.figures}})
+                        "properties": {"severity": f.severity, "elements": list(f.elements), "figures": f.figures},
+                        **({"suppressions": [{"kind": "inSource", "justification": f.accepted}]}
+                           if f.accepted is not None else {})})
     return clean({"$schema": SARIF_SCHEMA, "version": "2.1.0",
                   "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
                                                 "semanticVersion": __version__, "rules": rules}},

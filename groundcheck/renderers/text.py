@@ -66,7 +66,8 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
     vstyle = "bold green" if worst is None else STYLE[worst]
     line = Text("Verdict: ")
     line.append(verdict, style=vstyle)
-    line.append("   " + "  ".join(f"{counts[s]} {s}" for s in SEVERITIES))
+    line.append("   " + "  ".join(f"{counts[s]} {s}" for s in SEVERITIES) + (f"  {counts['accepted']} accepted"
+                                                                               if counts["accepted"] else ""))
     line.append(f"   loops: {result.loop_total}")
     console.print(line)
     for notice in result.notices:
@@ -92,11 +93,12 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
 
 
 def _findings(result: Result, console: Console) -> None:
-    for sev in SEVERITIES:
-        group = [f for f in result.findings if f.severity == sev]
+    groups = [(LABEL[sev], STYLE[sev], [f for f in result.open_findings() if f.severity == sev]) for sev in SEVERITIES]
+    groups.append(("ACCEPTED IN THE PLAN", "dim", [f for f in result.findings if f.accepted is not None]))
+    for label, style, group in groups:
         if not group:
             continue
-        console.print(Text(f"{LABEL[sev]} ({len(group)})", style=STYLE[sev]))
+        console.print(Text(f"{label} ({len(group)})", style=style))
         for f in group:
             head = Text(f"  {f.code} ", style="bold")
             head.append(f"{shown(f.location)}  ", style="dim")
@@ -104,7 +106,9 @@ def _findings(result: Result, console: Console) -> None:
             console.print(head)
             if f.figures:
                 console.print(Text(shown(f"      figures: {figure_words(f.figures)}"), style="dim"))
-            if f.fix:
+            if f.accepted is not None:
+                console.print(Text(shown(f"      accepted ({f.severity}): {f.accepted}"), style="dim"))
+            elif f.fix:
                 console.print(Text(shown(f"      fix: {f.fix}"), style="green"))
         console.print()
 

@@ -34,6 +34,7 @@ class Finding:
     figures: dict = field(default_factory=dict)
     fix: str = ""
     actions: tuple = ()          # structured repair: (verb, element[, where]), e.g. ("insulate", "jack_nut")
+    accepted: str | None = None  # the reason of an inline '# accept' on its plan line
 
     @property
     def rule(self) -> "Rule":
@@ -47,7 +48,8 @@ class Finding:
         return {"code": self.code, "rule": self.rule.name, "severity": self.severity, "message": self.message,
                 "location": self.location.as_dict(), "elements": list(self.elements),
                 "figures": self.figures, "fix": self.fix,
-                "actions": [{"action": a[0], "element": a[1], **({"at": a[2]} if len(a) > 2 else {})} for a in self.actions]}
+                "actions": [{"action": a[0], "element": a[1], **({"at": a[2]} if len(a) > 2 else {})} for a in self.actions],
+                "accepted": self.accepted}
 
 
 @dataclass(frozen=True)

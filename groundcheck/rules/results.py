@@ -32,6 +32,9 @@ class Options:
     crosstalk_limit: float = -60.0           # dB
     hum: bool = True                         # run the electrical hum budget
     jobs: int = 1                            # processes for the hum budget's frequencies
+    select: tuple[str, ...] = ()             # rule codes or names to report (empty: all)
+    ignore: tuple[str, ...] = ()             # rule codes or names never to report
+    allow_accept_danger: bool = False        # whether '# accept' may accept a danger
 
 
 @dataclass
@@ -51,16 +54,21 @@ class Result:
     notices: list[str] = field(default_factory=list)      # what was relaxed or skipped: shown in every output
     protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
 
+    def open_findings(self) -> list[Finding]:
+        """The findings not accepted in the plan."""
+        return [f for f in self.findings if f.accepted is None]
+
     def counts(self) -> dict[str, int]:
-        out = {"danger": 0, "fault": 0, "warning": 0, "note": 0}
+        """Open findings per severity, and how many were accepted in the plan."""
+        out = {"danger": 0, "fault": 0, "warning": 0, "note": 0, "accepted": 0}
         for f in self.findings:
-            out[f.severity] += 1
+            out["accepted" if f.accepted is not None else f.severity] += 1
         return out
 
     def worst(self) -> str | None:
-        return min((f.severity for f in self.findings), key=severity_rank, default=None)
+        return min((f.severity for f in self.open_findings()), key=severity_rank, default=None)
 
     def fails(self, fail_on: str) -> bool:
-        """Whether a finding is at least as severe as ``fail_on`` (the command's exit status 1)."""
+        """Whether an open finding is at least as severe as ``fail_on`` (the command's exit status 1)."""
         threshold = severity_rank(fail_on)
-        return any(severity_rank(f.severity) <= threshold for f in self.findings)
+        return any(severity_rank(f.severity) <= threshold for f in self.open_findings())
