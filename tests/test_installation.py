@@ -142,3 +142,13 @@ def test_devices_for_50_and_60_hz_cannot_share_an_installation(tmp_path):
     with pytest.raises(PlanErrors) as e:
         load(f)
     assert "one mains frequency" in e.value.errors[0].one_line()
+
+
+def test_drawings_of_an_installation_show_or_say_everything():
+    from groundcheck.renderers.dot import physical_dot, physical_omissions, topology_dot
+    r = analyze(load(STUDIO))
+    topo = topology_dot(r)
+    for device in ("pre", "mixer", "monitors", "pc"):
+        assert f'subgraph "cluster_{device}"' in topo and f'"{device}.mains.pe"' in topo
+    missing = physical_omissions(r)
+    assert missing[0] > 0 and f"{missing[0]} points and {missing[1]} conductors" in physical_dot(r)

@@ -245,7 +245,7 @@ def _drawings(result, renderer: str, fmt: str = "svg"):
 def cmd_draw(args) -> int:
     from ..analysis import Options, analyze
     from ..renderers.drawing import render_dot
-    from ..renderers.dot import physical_dot, topology_dot
+    from ..renderers.dot import physical_dot, physical_omissions, topology_dot
     out = Path(args.output)
     fmt = out.suffix.lower().lstrip(".")
     if fmt not in ("svg", "png", "dot", "gv"):
@@ -260,6 +260,10 @@ def cmd_draw(args) -> int:
     write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
     sys.stderr.write(f"groundcheck: wrote the {view} view to {out} with {how}{note}\n")
+    missing = physical_omissions(result) if view == "physical" else (0, 0)
+    if any(missing):
+        sys.stderr.write(f"groundcheck: note: the physical view leaves out {missing[0]} points and {missing[1]} "
+                         "conductors that have no positions; --view topology shows every one\n")
     return 0
 
 

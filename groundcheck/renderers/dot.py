@@ -92,6 +92,12 @@ def physical_dot(result: Result) -> str:
     _conductors(result, marks, positioned, P, lines)
     _metal_loops(result, positioned, lines)
     _fields(plan, P, lines)
+    missing = physical_omissions(result)
+    if any(missing):
+        note = (f"not drawn here: {missing[0]} points and {missing[1]} conductors without positions "
+                "(groundcheck draw --view topology shows every one)")
+        lines.append(f"  {dot_quote('note:omitted')} [shape=note, fontsize=9, fontcolor=\"#a04000\", color=\"#a04000\", "
+                     f"label={dot_quote(note)}, pos=\"{20:.1f},{-30:.1f}!\"];")
     lines.append(_legend((x1 - x0) * scale + 150, 80))
     lines.append("}")
     return "\n".join(lines) + "\n"
@@ -191,16 +197,38 @@ def _fields(plan, P, lines) -> None:
                      f"pos=\"{px:.1f},{py:.1f}!\"];")
 
 
+def _clusters(plan) -> dict[str, str]:
+    """Each point or metal part placed by a device or block placement -> that placement's name."""
+    out = {p.name: p.group.split(".", 1)[0] for p in plan.points if p.group}
+    groups = set(out.values())
+    for m in plan.metals:
+        head = m.name.split(".", 1)[0]
+        if "." in m.name and head in groups:
+            out[m.name] = head
+    return out
+
+
+def physical_omissions(result: Result) -> tuple[int, int]:
+    """How many points and conductors the physical view cannot draw (no position): (points, conductors)."""
+    plan = result.plan
+    positioned = {p.name for p in plan.points if p.pos is not None} | {m.name for m in plan.metals if m.size}
+    points = sum(1 for p in plan.points if p.pos is None)
+    conductors = sum(1 for c in plan.conductors if c.kind != "bolt" and not (c.a in positioned and c.b in positioned))
+    return points, conductors
+
+
 def topology_dot(result: Result) -> str:
     """The topology view, laid out automatically: every point, part and conductor, for plans without positions."""
     plan = result.plan
     marks = _problems(result)
     lines = ["graph topology {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
              "rankdir=LR, overlap=false];", "  node [fontname=Helvetica, fontsize=9];", "  edge [fontname=Helvetica, fontsize=8];"]
+    clusters = _clusters(plan)
+    node_lines: dict[str | None, list[str]] = {}
     for m in plan.metals:
         style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8", "label": m.name,
                  "color": "#e03030" if m.name in marks else "#9a9a9a"}
-        lines.append(f"  {dot_quote(m.name)} [{_attrs(style)}];")
+        node_lines.setdefault(clusters.get(m.name), []).append(f"  {dot_quote(m.name)} [{_attrs(style)}];")
     for p in plan.points:
         label = p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")
         style = {"shape": "ellipse", "label": label}
@@ -211,7 +239,16 @@ def topology_dot(result: Result) -> str:
             style.update(shape="triangle", style="filled", fillcolor="#bfe3c0")
         if p.name in marks:
             style.update(color="#e03030", penwidth="2")
-        lines.append(f"  {dot_quote(p.name)} [{_attrs(style)}];")
+        node_lines.setdefault(clusters.get(p.name), []).append(f"  {dot_quote(p.name)} [{_attrs(style)}];")
+    for key in sorted(node_lines, key=lambda k: (k is not None, k or "")):
+        if key is None:
+            lines.extend(node_lines[key])
+            continue
+        # each device or block placement in a box of its own
+        lines.append(f"  subgraph {dot_quote('cluster_' + key)} {{ label={dot_quote(key)}; style=rounded; "
+                     'color="#b0b0b0"; fontcolor="#606060"; fontsize=11;')
+        lines.extend("  " + x for x in node_lines[key])
+        lines.append("  }")
     for c in plan.conductors:
         style = dict(LIFT_STYLE if c.kind == "lift" else ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
         style["label"] = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
