@@ -190,3 +190,15 @@ def test_loop_count_is_cycle_rank_and_basis_is_independent(G):
 def test_edges_read_from_the_adjacency_match_networkx_edge_view(G):
     # the fast edge list must give networkx's own edges, order and orientation (self-loops once)
     assert edges_of(G) == list(G.edges(keys=True, data=True))
+
+
+def test_incomplete_plans_are_not_called_clean():
+    # touchable metal and no supply: a note that the protective earth is unchecked
+    p = plan('plan "x"\nmetal lid: steel 1 mm, 100 x 100 mm, touchable\npoint a: stud, at 10,10 on lid\n'
+             'bolt b: a to lid\n', header=False)
+    assert [f.code for f in analyze(p).findings] == ["GC111"]
+    # a wire stated 10 mm between points 250 mm apart (a 150-200-250 triangle: worked by hand)
+    q = plan(BASE + "point far1: pad, at 20,10 on deck\npoint far2: pad, at 170,210\n"
+             "wire short: far1 to far2, 10 mm, 0.5 mm2\nwire w9: far2 to star, 120 mm, 0.5 mm2\n")
+    (f,) = [f for f in analyze(q).findings if f.code == "GC112"]
+    assert f.figures["route_mm"] == pytest.approx(250.0, abs=0.1) and "short" in f.elements

@@ -208,6 +208,46 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
     return out
 
 
+@rule("GC111")
+def rule_mains_not_described(ctx: AuditContext) -> list[Finding]:
+    """GC111: touchable metal and no supply described: the protective earth is unchecked, not clean."""
+    plan = ctx.plan
+    if plan.mains is not None or plan.device_supplies or any(p.kind == "inlet" for p in plan.points):
+        return []
+    touchable = [m for m in plan.metals if m.touchable]
+    if not touchable:
+        return []
+    return [Finding("GC111", "note", f"{touchable[0].name} is touchable but the plan has no mains statement: the "
+                    "protective earth is not checked", touchable[0].location, tuple(m.name for m in touchable), {},
+                    "describe the supply ('mains 230 V 50 Hz, fuse 1 A slow, ...') or, for double-insulated equipment, "
+                    "'mains ..., class II'")]
+
+
+#: a stated length is implausible more than this share below the straight route (positions in a plan are drawn
+#: by hand, to a few millimetres), or above LENGTH_SLACK times it
+LENGTH_SHORT = 0.10
+LENGTH_SLACK = 3.0
+
+
+@rule("GC112")
+def rule_lengths(ctx: AuditContext) -> list[Finding]:
+    """GC112: a stated length shorter than the straight route between positioned ends, or over three times it."""
+    pos = {p.name: p.pos for p in ctx.plan.points if p.pos is not None}
+    out = []
+    for c in ctx.plan.conductors:
+        if c.length is None or c.a not in pos or c.b not in pos or c.kind in ("bolt", "interconnect"):
+            continue
+        path = [pos[c.a], *c.route, pos[c.b]]
+        route = sum(((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5 for (x0, y0), (x1, y1) in zip(path, path[1:]))
+        if route > 0 and (c.length < route * (1 - LENGTH_SHORT) or c.length > LENGTH_SLACK * route + 0.05):
+            what = "shorter than" if c.length < route else f"over {LENGTH_SLACK:g} times"
+            out.append(Finding("GC112", "note", f"{c.kind} {c.name} is {c.length * 1e3:.0f} mm long, {what} the "
+                               f"{route * 1e3:.0f} mm between its ends", c.location, (c.name,),
+                               {"length_mm": round(c.length * 1e3, 1), "route_mm": round(route * 1e3, 1)},
+                               f"measure the route of {c.name} again and correct its length"))
+    return out
+
+
 @rule("GC109", "GC110")
 def rule_unconnected(ctx: AuditContext) -> list[Finding]:
     out = []
