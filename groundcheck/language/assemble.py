@@ -9,9 +9,10 @@ import re
 from dataclasses import replace
 from pathlib import Path
 
-from ..core.errors import Location, PlanError
+from ..core.errors import LimitError, Location, PlanError
 from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .devices import merge_device
+from .limits import LIMITS
 
 __all__ = ["assemble", "HEADER_KEYWORDS"]
 
@@ -157,6 +158,11 @@ def assemble(built: list, file: str, ld) -> Plan:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
             ld.errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
                                        f"define it with 'point {dev.plugged}: outlet'"))
+    if len(groups[Rectifier]) > LIMITS["rectifiers"]:
+        r0 = groups[Rectifier][LIMITS["rectifiers"]][0]
+        ld.errors.append(LimitError(f"the plan has {len(groups[Rectifier])} rectifiers, over the limit of "
+                                    f"{LIMITS['rectifiers']} (each is simulated in time)", r0.location,
+                                    "describe a rack's identical supplies once, or split the installation"))
     check = _Resolver(ld)
     _check_points(groups, metals, check, ld.errors)
     conductors = _conductors(groups, nodes, check)

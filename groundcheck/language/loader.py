@@ -12,6 +12,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from .assemble import HEADER_KEYWORDS, assemble
+from .limits import LIMITS
 from .placement import Transform
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
 from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
@@ -25,15 +26,6 @@ __all__ = ["load", "load_text", "LIMITS", "PLAN_SUFFIX"]
 #: the file extension of groundcheck plans
 PLAN_SUFFIX = ".gplan"
 
-#: size limits; each breach is a clear error rather than a hang or a memory blow-up
-LIMITS = {
-    "file_bytes": 16 * 1024 * 1024,
-    "line_chars": 4000,
-    "include_depth": 16,
-    "block_depth": 8,
-    "elements": 3_000_000,
-    "placed_elements": 200_000,
-}
 
 
 #: devices placed inside devices, at most this deep
