@@ -85,6 +85,13 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
         supply = (dev.name, m.voltage, m.frequency) if m else None
     tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
+    taken = [x.name for x in (*sub.metals, *sub.points, *sub.conductors) if x.name in names or x.name in points
+             or x.name in metals]
+    if taken:
+        errors.append(PlanError(f"device {dev.name}'s element {taken[0]!r} has the name of an element of the plan",
+                                names.get(taken[0], dev.location),
+                                f"names starting with '{dev.name}.' belong to the device: rename the plan's element"))
+        return supply
     for x in sub.metals:
         size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
         metals[x.name] = replace(x, origin=tf(x.origin), size=size)
