@@ -57,3 +57,33 @@ def test_output_never_over_a_file_the_plan_read(cli, tmp_path):
     assert code == 2 and "a plan this run read" in err and part.read_text() == before
     code, _, err = cli("check", str(tmp_path / "main.gplan"), "-o", "/dev/null")
     assert code == 2 and "not a regular file" in err
+
+
+def test_a_lone_carriage_return_never_misplaces_an_edit(tmp_path):
+    from groundcheck import load
+    from groundcheck.advice.repair import apply_edits, suggest
+    from groundcheck.analysis import Options
+    src = HOSTILE / "suggest-lone-cr" / "plan.gplan"
+    f = tmp_path / "plan.gplan"
+    f.write_bytes(src.read_bytes())
+    text = f.read_bytes().decode("utf-8")
+    assert "\r" in text
+    _, evs = suggest(load(f), text, Options(), tmp_path, f.resolve(), budget=30)
+    for e in evs:
+        new = apply_edits(text, e.candidate.edits)
+        changed = [a for a, b in zip(text.split("\n"), new.split("\n")) if a != b]
+        # every line an edit changes belongs to the element the suggestion names
+        names = [w for w in e.candidate.title.replace("(", " ").replace(")", " ").split() if "_" in w or "." in w]
+        assert all(any(n.split(".")[-1] in line for n in names) for line in changed), e.candidate.title
+
+
+def test_a_lone_carriage_return_in_the_command(cli, tmp_path):
+    # the command reads the plan as the loader does (no newline translation), so the edit lands on the line
+    # of the element the suggestion names
+    f = tmp_path / "plan.gplan"
+    f.write_bytes((HOSTILE / "suggest-lone-cr" / "plan.gplan").read_bytes())
+    out = json.loads(cli("suggest", str(f), "--format", "json")[1])
+    for s in out["suggestions"]:
+        removed = [ln[1:] for ln in s["diff"].splitlines() if ln.startswith("-") and not ln.startswith("---")]
+        element = s["title"].split("(")[-1].split(")")[0] if "(" in s["title"] else s["title"].split()[1]
+        assert all(element.split(".")[-1] in ln for ln in removed), (s["title"], removed)

@@ -50,7 +50,14 @@ def apply_edits(text: str, edits) -> str:
 
 def text_diff(old: str, new: str, name: str) -> str:
     """A unified diff of a plan file's text (paths a/NAME and b/NAME, one line of context)."""
-    return "".join(difflib.unified_diff(old.splitlines(True), new.splitlines(True), f"a/{name}", f"b/{name}", n=1))
+    return "".join(difflib.unified_diff(_lines(old), _lines(new), f"a/{name}", f"b/{name}", n=1))
+
+
+def _lines(text: str) -> list[str]:
+    """Lines as the parser counts them: split at newlines only (a lone carriage return stays inside its line)."""
+    parts = text.split("\n")
+    out = [x + "\n" for x in parts[:-1]]
+    return out + [parts[-1]] if parts[-1] else out
 
 
 def unified_diff(text: str, edits, name: str) -> str:
