@@ -85,5 +85,6 @@ def test_a_lone_carriage_return_in_the_command(cli, tmp_path):
     out = json.loads(cli("suggest", str(f), "--format", "json")[1])
     for s in out["suggestions"]:
         removed = [ln[1:] for ln in s["diff"].splitlines() if ln.startswith("-") and not ln.startswith("---")]
-        element = s["title"].split("(")[-1].split(")")[0] if "(" in s["title"] else s["title"].split()[1]
+        words = s["title"].split()
+        element = words[1] if words[0] in ("remove", "insulate") else s["title"].split("(")[1].split(")")[0]
         assert all(element.split(".")[-1] in ln for ln in removed), (s["title"], removed)
