@@ -48,10 +48,12 @@ class Evaluation:
     hum_after_dbv: dict = field(default_factory=dict)
 
     def rank_key(self, before: Result | None = None):
-        """Sort key, best first: dangers cleared, faults cleared, hum gain, findings introduced, size of the change."""
+        """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
+        introduced, size of the change."""
         sev = lambda items, s: sum(1 for x in items if x.split(" ", 1)[0] in _CODES_BY_SEVERITY[s])  # noqa: E731
         gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0, d) for d in self.hum_change_db.values())
-        return (bool(self.rejected), -sev(self.cleared, "danger"), -sev(self.cleared, "fault"), -round(gain, 1),
+        net = lambda s: sev(self.cleared, s) - sev(self.introduced, s)  # noqa: E731
+        return (bool(self.rejected), -net("danger"), -net("fault"), -round(gain, 1),
                 len(self.introduced), len(self.candidate.edits), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
@@ -87,8 +89,24 @@ def _hum_db(r: Result) -> dict[str, float]:
             for ch, h in r.hum.channels.items()}
 
 
+def _identity(f) -> tuple:
+    """What makes a finding the same finding before and after a change: a loop is where it is to be opened, a
+    shared return or a contributor its (source, stage) or (element, source) pair, anything else its elements —
+    so that a loop that merely gains a member does not count as one cleared and one introduced."""
+    if f.code == "GC101":
+        return (f.code, f.location.file, f.location.line)
+    if f.code in ("GC102", "GC301", "GC302", "GC303"):
+        return (f.code, *f.elements[:2])
+    return (f.code, *sorted(f.elements))
+
+
 def _keys(r: Result):
-    return {(f.code, tuple(sorted(f.elements))): f for f in r.findings}
+    return {_identity(f): f for f in r.open_findings()}
+
+
+def _label(f) -> str:
+    shown = ", ".join(f.elements[:3]) + ("…" if len(f.elements) > 3 else "")
+    return f"{f.code} {shown}".strip()
 
 
 def _pe(r: Result) -> dict[str, float]:
@@ -121,13 +139,13 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         ev.rejected = "it would weaken the protective-earth path"
         return ev
     k0, k1 = _keys(before), _keys(after)
-    ev.cleared = sorted(f"{k[0]} {', '.join(k[1])}" for k in k0.keys() - k1.keys())
-    ev.introduced = sorted(f"{k[0]} {', '.join(k[1])}" for k in k1.keys() - k0.keys())
+    ev.cleared = sorted(_label(k0[k]) for k in k0.keys() - k1.keys())
+    ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
     new = k1.keys() - k0.keys()
     if any(k1[k].severity == "danger" for k in new):
         ev.rejected = "it would add a danger finding"
         return ev
-    if any(k[0] in ("GC106", "GC109", "GC401") for k in new):
+    if any(k1[k].code in ("GC106", "GC109", "GC401") for k in new):
         ev.rejected = "it would leave part of the signal ground unconnected"
         return ev
     h0, h1 = _hum_db(before), _hum_db(after)
