@@ -15,7 +15,8 @@ from ..core.version import __version__
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 from ..physics.hearing import threshold_of_hearing
-from .text import CAUTION
+from ..core.caution import CAUTION
+from .text import figure_words
 
 __all__ = ["html_report", "spectrum_svg"]
 
@@ -152,14 +153,20 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
 
 def _findings_section(result: Result, parts: list[str], physical_svg, topology_svg, renderer: str, e=escape) -> None:
     """The findings table and both drawings."""
-    parts.append('<h2>Findings</h2><table id="findings"><tr><th>severity</th><th>code</th><th>where</th><th>finding</th></tr>')
+    if not result.findings:
+        parts.append("<h2>Findings</h2><p>No findings.</p>")
+    else:
+        parts.append('<h2>Findings</h2><table id="findings"><tr><th>severity</th><th>code</th><th>where</th><th>finding</th></tr>')
     for f in result.findings:
-        figs = ", ".join(f"{e(str(k))} = {e(str(v))}" for k, v in f.figures.items())
-        parts.append(f'<tr><td><span class="sev {f.severity}">{f.severity}</span></td><td>{f.code}</td>'
+        figs = e(figure_words(f.figures))
+        severity = f"accepted ({f.severity})" if f.accepted is not None else f.severity
+        parts.append(f'<tr><td><span class="sev {f.severity}">{e(severity)}</span></td><td>{f.code}</td>'
                      f"<td>{e(str(f.location))}</td><td>{e(f.message)}"
                      + (f'<div class="fig">{figs}</div>' if figs else "")
-                     + (f'<div class="fix">fix: {e(f.fix)}</div>' if f.fix else "") + "</td></tr>")
-    parts.append("</table>")
+                     + (f'<div class="fix">accepted: {e(f.accepted)}</div>' if f.accepted is not None
+                        else f'<div class="fix">fix: {e(f.fix)}</div>' if f.fix else "") + "</td></tr>")
+    if result.findings:
+        parts.append("</table>")
     parts.append(f'<h2>Physical drawing</h2><div class="drawing" id="physical">{_inline_svg(physical_svg)}</div>')
     parts.append(f'<h2>Topology</h2><div class="drawing" id="topology">{_inline_svg(topology_svg)}</div>')
     if renderer:
@@ -174,7 +181,7 @@ def _hum_section(result: Result, parts: list[str], e=escape) -> None:
         parts.append("<h2>Hum and buzz spectrum</h2>")
         for ch, h in result.hum.channels.items():
             parts.append(f'<h3>{e(ch)}</h3><div class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>')
-            rows = [r for r in h.spectrum if r["volts"] > 0][:20]
+            rows = [r for r in h.spectrum if r["volts"] > 0]     # every harmonic the chart shows
             parts.append('<table class="spectrum"><tr><th>Hz</th><th>dBV</th><th>dB SPL</th><th>threshold</th><th>margin</th></tr>')
             for r in rows:
                 parts.append(f"<tr><td class=num>{r['frequency_hz']:g}</td><td class=num>{_f(r['dbv'], '{:.1f}')}</td>"

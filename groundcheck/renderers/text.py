@@ -40,6 +40,11 @@ def escape(text) -> str:
     return _escape(shown(text))
 
 
+#: rows of a channel's hum table (harmonics above the threshold of hearing are always shown) and loops listed
+TABLE_ROWS = 12
+TABLE_LOOPS = 50
+
+
 def _fmt(x, unit="", digits=3):
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "–"
@@ -117,13 +122,21 @@ def _hum_tables(result: Result, console: Console) -> None:
     t = Table(title="Hum and buzz at the output", title_justify="left")
     for col in ("channel", "Hz", "dBV", "dB SPL", "threshold", "margin"):
         t.add_column(col, justify="right" if col != "channel" else "left")
+    left_out = {}
     for ch, h in result.hum.channels.items():
-        rows = [r for r in h.spectrum if r["volts"] > 0][:12]
-        for r in rows:
+        rows = [r for r in h.spectrum if r["volts"] > 0]
+        # every harmonic above the threshold is shown; the others up to TABLE_ROWS, the rest counted
+        shown_rows = [r for i, r in enumerate(rows) if i < TABLE_ROWS or (r.get("margin_db") or -1) > 0]
+        left_out[ch] = len(rows) - len(shown_rows)
+        for r in shown_rows:
             t.add_row(escape(ch), f"{r['frequency_hz']:g}", _fmt(r["dbv"], "", 4), _fmt(r.get("spl_db"), "", 3),
                       _fmt(r.get("threshold_db"), "", 3), _fmt(r.get("margin_db"), "", 3))
         t.add_row(escape(ch), "total", _fmt(h.total_dbv, "", 4), "", "", _fmt(h.margin_db, "", 3), style="bold")
     console.print(t)
+    for ch, n in left_out.items():
+        if n:
+            console.print(f"  {n} more harmonics of {escape(ch)}, each below the threshold of hearing, not listed "
+                          "(every one is in --format json)")
     for ch, h in result.hum.channels.items():
         if h.contributors:
             top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %" for c in h.contributors[:3])
@@ -175,10 +188,13 @@ def _loop_table(result: Result, console: Console) -> None:
     t = Table(title=f"Ground loops ({result.loop_total} independent)", title_justify="left")
     for col in ("#", "closed by", "area mm²", "open at", "members"):
         t.add_column(col)
-    for i, lp in enumerate(result.loops[:50], 1):
+    for i, lp in enumerate(result.loops[:TABLE_LOOPS], 1):
         t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at or 'protective: keep closed'),
                   escape(" → ".join(lp.loop.nodes)))
     console.print(t)
+    if result.loop_total > min(len(result.loops), TABLE_LOOPS):
+        console.print(f"  {result.loop_total - min(len(result.loops), TABLE_LOOPS)} more loops not listed here "
+                      f"(the first {len(result.loops)} are in --format json)")
 
 
 def text_report(result: Result, width: int | None = None, color: bool = False) -> str:
