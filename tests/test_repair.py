@@ -275,3 +275,16 @@ def test_protective_fixes_are_proposed_and_applied(tmp_path):
     assert all(p.path_resistance < 0.1 for p in useful["GC202"].result.safety.parts)
     # panel_lead is protective by topology: never removed, whatever else is tried
     assert all("panel_lead" not in e.candidate.title or e.candidate.reason == "GC204" for e in evs)
+
+
+@pytest.mark.parametrize("path", [DUAL, MONO], ids=["dual", "mono"])
+def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
+    # the fix line of a finding and the advisor come from the same structured actions: for every action of every
+    # finding the advisor makes a candidate naming the same element (one source of truth)
+    before = analyze(load(path))
+    titles = [c.title for c in candidates(load(path), before, path.read_text())]
+    for f in before.findings:
+        for action in f.actions:
+            element = action[1]
+            assert any(element in t for t in titles), (f.code, action, titles)
+            assert element in f.fix
