@@ -224,12 +224,18 @@ def cmd_explain(args) -> int:
 def cmd_export(args) -> int:
     from ..physics.circuit import build_circuit
     from ..renderers.spice import to_spice
+    from ..physics.coupling import plan_sources
+    from ..physics.rectifier import simulate
     plan = load_plan(args.plan)
     circuit = build_circuit(plan)
+    f = args.frequency or 0.0
+    results = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
+    sources = [(s.name, s.a, s.b, s.parts[f]) for s in plan_sources(plan, results, max(f, plan.frequency))
+               if abs(s.parts.get(f, 0)) > 0]
     if args.frequency:
-        text = to_spice(circuit, plan.title, frequency=args.frequency, analysis="ac")
+        text = to_spice(circuit, plan.title, sources, frequency=f, analysis="ac")
     else:
-        text = to_spice(circuit, plan.title)
+        text = to_spice(circuit, plan.title, sources)
     write_output(text, args.output, [args.plan])
     return 0
 

@@ -28,7 +28,8 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
     ``sources``: (name, from point, to point, rms amperes) current sources;
     with ``analysis="ac"`` they are AC sources (magnitude √2·rms, SPICE uses
     peak) and an ``.ac`` line at ``frequency`` is added; with ``"op"`` they
-    are DC.  ``.print`` lines list every node voltage.
+    are DC.  An AC netlist has a ``.print ac`` line of every node voltage (real and imaginary parts); an
+    operating point's node voltages are printed by ngspice itself.
     """
     refs = set(int(r) for r in circuit.references)
     main_ref = int(circuit.references[circuit.components[1][circuit.point_node.get("mains.pe", 0)]]) if circuit.nodes else 0
@@ -52,17 +53,22 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
             lines.append(f"R{k} {a} {c} {z[k].real:.12g}")
     for r in sorted(refs - {main_ref}):
         lines.append(f"RISL{r} {name[r]} 0 1e9")
-    for k, (_, a, b, amps) in enumerate(sources):
+    for k, (src, a, b, amps) in enumerate(sources):
         ia, ib = name[circuit.point_node[a]], name[circuit.point_node[b]]
         # SPICE current source I n+ n-: current flows from n+ through the source to n-;
-        # to inject into a (and draw from b) the source runs from b to a.
+        # to inject into a (and draw from b) the source runs from b to a.  rms phasor -> SPICE peak and phase
+        amps = complex(amps)
+        lines.append(f"* I{k} = {_safe(src)}")
         if analysis == "ac":
-            lines.append(f"I{k} {ib} {ia} DC 0 AC {amps * math.sqrt(2):.12g}")
+            lines.append(f"I{k} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} {math.degrees(math.atan2(amps.imag, amps.real)):.12g}")
         else:
-            lines.append(f"I{k} {ib} {ia} DC {amps:.12g}")
+            lines.append(f"I{k} {ib} {ia} DC {amps.real:.12g}")
+    printed = " ".join(f"v({name[i]})" for i in range(len(circuit.nodes)) if name[i] != "0")
     if analysis == "ac":
         lines.append(f".ac lin 1 {frequency:.12g} {frequency:.12g}")
+        if printed:
+            lines.append(f".print ac {printed.replace('v(', 'vr(')} {printed.replace('v(', 'vi(')}")
     else:
-        lines.append(".op")
+        lines.append(".op")                 # ngspice prints every node voltage of an operating point by itself
     lines.append(".end")
     return "\n".join(lines) + "\n"
