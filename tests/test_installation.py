@@ -16,7 +16,10 @@ def test_studio_loop_through_two_cords_and_a_shield_is_found_and_quantified():
     loops = [lp for lp in r.loops if lp.closed_by == "mains-cords"]
     assert loops
     mix = next(lp for lp in loops if "mix_out" in lp.loop.edges)
-    assert {"monitors.cord", "mixer.cord", "run_a", "run_b", "strip_cord"} <= set(mix.loop.edges) | {"mixer.cord"}
+    # the loop through the monitors' interconnect closes through their cord, the strip and both building runs;
+    # the other listed loop closes through the mixer's cord (which loops a cycle basis lists is its own choice)
+    assert {"monitors.cord", "strip_cord", "run_a", "run_b"} <= set(mix.loop.edges)
+    assert any("mixer.cord" in lp.loop.edges for lp in loops)
     names = {c.name: c for c in r.plan.conductors}
     assert names[mix.open_at].kind == "interconnect"       # opened on the signal side, never in the protective earth
     mon = r.hum.channels["monitors"]
