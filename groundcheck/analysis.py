@@ -45,7 +45,7 @@ def analyze(plan: Plan, options: Options = Options()) -> Result:
 def _analyze(plan: Plan, options: Options) -> Result:
     findings, ctx = audit(plan)
     result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options, notices=_notices(plan, options),
-                    protective=ctx.route.conductors)
+                    protective=ctx.route.keep)
     if not plan.points and not plan.metals:
         return _finish(result)
     circuit = build_circuit(plan)

@@ -84,6 +84,10 @@ def test_loop_closed_by_the_protective_earth_gets_no_suggestion_touching_it(tmp_
     plan = load(p)
     result = analyze(plan)
     assert result.loop_total == 1
+    # both leads and both studs' nuts carry the protective earth: nothing of the loop is offered for opening
+    assert {"pe_a", "pe_b", "n1", "n2"} <= result.protective
+    assert [lp.open_at for lp in result.loops] == [""]
+    assert candidates(plan, result, PE_ONLY_LOOP) == []
     protective = {"pe_a", "pe_b"}
     for c in candidates(plan, result, PE_ONLY_LOOP):
         lines = {e.line for e in c.edits}

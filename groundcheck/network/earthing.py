@@ -37,11 +37,14 @@ class ProtectiveRoute:
     kind that may carry protective current); ``unmarked``: those on the route whose role does not say
     so; ``reached``: metal parts and earth terminals the route reaches (by conductors of any role),
     ``marked_reach``: those reached through conductors marked protective or bond alone;
-    ``parent``: node -> (previous node, conductor) of the search tree; ``roots``: where it started.
+    ``parent``: node -> (previous node, conductor) of the search tree; ``roots``: where it started;
+    ``keep``: every conductor that may carry protective current between two nodes of the protective side (the
+    nodes the search passed through), parallel paths included — what the repair advisor never touches.
     """
 
     conductors: frozenset
     unmarked: tuple
+    keep: frozenset
     reached: frozenset
     marked_reach: frozenset
     parent: dict
@@ -135,4 +138,8 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     unmarked = tuple(sorted(k for k in route if conds[k].role not in PROTECTIVE_ROLES))
     marked = {c.name for c in plan.conductors if c.role == "protective" and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
-    return ProtectiveRoute(frozenset(route | marked), unmarked, frozenset(targets), marked_reach, parent, tuple(roots))
+    side = done - (blocked - set(roots))
+    keep = {k for u in side for v, keys in adj[u].items() if v in side
+            for k in keys if can_carry_protective(keys[k]["conductor"])}
+    return ProtectiveRoute(frozenset(route | marked), unmarked, frozenset(route | marked | keep), frozenset(targets),
+                           marked_reach, parent, tuple(roots))

@@ -99,8 +99,8 @@ class AuditContext:
 
     @cached_property
     def protective_path(self) -> frozenset:
-        """Conductors that are protective by topology or by role: never to be opened."""
-        return self.route.conductors
+        """Conductors the protective earth relies on, parallel paths included: never to be opened."""
+        return self.route.keep
 
     @cached_property
     def source_pairs(self) -> set[frozenset]:
