@@ -287,13 +287,13 @@ def _thicker(ctx: _Ctx, f) -> Candidate | None:
     if item is not None:
         edit = ctx.src.replace(st, [(item, new)])
     else:
-        ph = ctx.src.find(st, "AWG") or ctx.src.find(st, "width")
+        # 'AWG 18' written word first; a trace, bus bar or strap given by its width is made wider by hand (the
+        # finding says so), never turned into a round wire by giving it an area
+        ph = ctx.src.find(st, "AWG")
         if not ph:
             return None
         edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
         edit = Edit(edit.line, _squeeze(edit.new, new), edit.extra, edit.last)
-        if ph[0].value == "width" and c.kind == "trace":
-            return None            # a trace is made wider, not given an area: say so in the finding instead
     return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for protective "
                      f"conductor {c.name}", "GC204", (edit,), touches_protective=False)
 

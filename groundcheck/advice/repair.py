@@ -23,7 +23,7 @@ from pathlib import Path
 
 from ..analysis import Options, Result, analyze
 from ..core.errors import PlanErrors
-from ..rules.catalogue import severity_rank
+from ..rules.catalogue import RULES, severity_rank
 from ..language.loader import load_text
 from ..model.records import Plan
 from .candidates import Candidate, candidates
@@ -46,14 +46,13 @@ class Evaluation:
     rejected: str = ""
     hum_before_dbv: dict = field(default_factory=dict)  # channel -> dBV (floored at HUM_FLOOR_DBV)
     hum_after_dbv: dict = field(default_factory=dict)
+    net: dict = field(default_factory=dict)              # severity -> findings cleared less those introduced
 
-    def rank_key(self, before: Result | None = None):
+    def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
         introduced, size of the change."""
-        sev = lambda items, s: sum(1 for x in items if x.split(" ", 1)[0] in _CODES_BY_SEVERITY[s])  # noqa: E731
         gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0, d) for d in self.hum_change_db.values())
-        net = lambda s: sev(self.cleared, s) - sev(self.introduced, s)  # noqa: E731
-        return (bool(self.rejected), -net("danger"), -net("fault"), -round(gain, 1),
+        return (bool(self.rejected), -self.net.get("danger", 0), -self.net.get("fault", 0), -round(gain, 1),
                 len(self.introduced), len(self.candidate.edits), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
@@ -62,17 +61,6 @@ class Evaluation:
                 "findings_cleared": self.cleared, "findings_introduced": self.introduced,
                 "rejected": self.rejected or None, "diff": diff}
 
-
-_CODES_BY_SEVERITY: dict[str, set[str]] = {}
-
-
-def _codes_by_severity():
-    from ..rules.catalogue import RULES
-    for code, rule in RULES.items():
-        _CODES_BY_SEVERITY.setdefault(rule.severity, set()).add(code)
-
-
-_codes_by_severity()
 
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
 HUM_FLOOR_DBV = -140.0
@@ -142,6 +130,10 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     ev.cleared = sorted(_label(k0[k]) for k in k0.keys() - k1.keys())
     ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
     new = k1.keys() - k0.keys()
+    for k in k0.keys() - k1.keys():                      # the findings' own severities, not their rules' defaults
+        ev.net[k0[k].severity] = ev.net.get(k0[k].severity, 0) + 1
+    for k in new:
+        ev.net[k1[k].severity] = ev.net.get(k1[k].severity, 0) - 1
     if any(k1[k].severity == "danger" for k in new):
         ev.rejected = "it would add a danger finding"
         return ev
@@ -162,8 +154,6 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
 #: the reason given for a candidate the time budget left untried
 NOT_TRIED = "not tried: the time budget ran out (raise --budget to try it)"
 
-#: severities of the findings a candidate answers, for the order candidates are tried in (dangers first)
-_ORDER = {"GC202": 1, "GC204": 0, "GC102": 1, "GC101": 2, "GC105": 2, "GC108": 2, "GC103": 2}
 
 
 def _deadline(budget: float | None) -> float | None:
@@ -182,7 +172,8 @@ def suggest(plan: Plan, text: str, options: Options = Options(), root: Path | No
     as untried; ``progress(done, total)`` is called after each evaluation."""
     before = before or analyze(plan, options)
     deadline = _deadline(budget)
-    cands = sorted(candidates(plan, before, text), key=lambda c: _ORDER.get(c.reason, 3))
+    # answers to the most serious rules first (their catalogue severity), so a short budget tries them
+    cands = sorted(candidates(plan, before, text), key=lambda c: severity_rank(RULES[c.reason].severity))
     evs = []
     for i, c in enumerate(cands):
         if _late(deadline):

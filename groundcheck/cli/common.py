@@ -145,9 +145,17 @@ def _setting(args, name: str, config: dict, default):
     return tuple(value) if isinstance(value, list) else value
 
 
+def _config(args) -> dict:
+    """The settings file's values, read once per command (``main`` stores them on ``args``)."""
+    config = getattr(args, "config", None)
+    if config is None:
+        config = args.config = load_config()[0]
+    return config
+
+
 def options_of(args):
     from ..analysis import Options
-    config, _ = load_config()
+    config = _config(args)
     return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
                    hum=not args.no_hum, jobs=getattr(args, "jobs", 1), select=_setting(args, "select", config, ()),
                    ignore=_setting(args, "ignore", config, ()),
@@ -156,8 +164,7 @@ def options_of(args):
 
 def fail_on(args) -> str:
     """--fail-on, else the settings file's fail-on, else fault."""
-    config, _ = load_config()
-    return _setting(args, "fail-on", config, "fault")
+    return _setting(args, "fail-on", _config(args), "fault")
 
 
 def load_plan(path: str, jobs: int = 1):

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import NamedTuple
 
-__all__ = ["Location", "GroundcheckError", "PlanError", "PlanErrors", "LimitError"]
+__all__ = ["Location", "GroundcheckError", "PlanError", "PlanErrors", "LimitError", "shown"]
 
 
 class Location(NamedTuple):
@@ -42,9 +42,9 @@ class PlanError(GroundcheckError):
     def render(self) -> str:
         """The one-line message, then the offending line with a caret under the spot; control characters of the
         plan (escape sequences among them) are shown as \\xNN, never sent to the terminal."""
-        out = [self.one_line().translate(_CONTROL)]
+        out = [shown(self.one_line())]
         if self.source_line is not None:
-            line = self.source_line.rstrip("\n").replace("\t", " ").translate(_CONTROL)
+            line = shown(self.source_line.rstrip("\n").replace("\t", " "))
             out.append("    " + line)
             out.append("    " + " " * max(0, self.location.column - 1) + "^")
         return "\n".join(out)
@@ -55,6 +55,12 @@ class PlanError(GroundcheckError):
 
 #: control characters (but tab and newline) as they are shown: \xNN
 _CONTROL = {c: f"\\x{c:02x}" for c in (*range(0, 9), *range(11, 32), 127)}
+
+
+def shown(text) -> str:
+    """Text from a plan as a terminal may show it: control characters (escape sequences among them) written as
+    \\xNN, so a plan can never drive the terminal."""
+    return str(text).translate(_CONTROL)
 
 
 class LimitError(PlanError):

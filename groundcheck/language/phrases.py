@@ -279,12 +279,11 @@ def check_range(v: float, kind: str, what: str, loc: Location, text: str) -> Non
     if v != v or v in (float("inf"), float("-inf")):
         raise PlanError(f"{what} must be a finite number, got {text}", loc, "write the value in ordinary digits")
     lo, hi = RANGES.get(kind, (0.0, 1e12))
-    unit = _example_unit(kind)
     if kind == "temperature" and v < MIN_TEMPERATURE:
         raise PlanError(f"{what} {text} is below {MIN_TEMPERATURE:g} C", loc, "give a temperature from -200 C to 1000 C")
     if abs(v) > hi or (v != 0 and abs(v) < lo):
         raise PlanError(f"{what} {text} is outside the range groundcheck accepts for a {kind} "
-                        f"({lo:g} to {hi:g} in SI units)", loc, f"check the number and its unit ({unit})")
+                        f"({lo:g} to {hi:g} in SI units)", loc, f"check the number and its unit ({_example_unit(kind)})")
 
 
 def _example_unit(kind: str) -> str:

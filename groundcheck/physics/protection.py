@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 __all__ = ["STANDARD_PE_LIMIT", "FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TIMES", "DISCONNECTION_LIMITS", "SYSTEMS", "DEFAULT_ZE",
            "BREAKING_CAPACITY", "CORD_CLASS5", "FIXED_CLASS2", "Clearing", "fuse_clearing", "breaker_clearing",
-           "rcd_clearing", "max_disconnection_time", "breaking_capacity", "fuse_cold_resistance", "cable_resistance",
+           "rcd_clearing", "device_clearing", "max_disconnection_time", "breaking_capacity", "fuse_cold_resistance", "cable_resistance",
            "DEFAULT_CIRCUIT"]
 
 from ..model.records import SYSTEMS
@@ -105,6 +105,13 @@ def breaker_clearing(curve: str, rating: float, current: float) -> Clearing | No
         if m >= mm:
             return Clearing(t, current * current * t)
     return None
+
+
+def device_clearing(kind: str, rating: float, current: float, frequency: float) -> Clearing | None:
+    """The fuse (``slow``/``fast``) or breaker (``breaker-B``/``-C``/``-D``) of the mains statement at a current."""
+    if kind.startswith("breaker"):
+        return breaker_clearing(kind.split("-", 1)[1], rating, current)
+    return fuse_clearing(kind, rating, current, frequency)
 
 
 def rcd_clearing(rated: float, residual: float) -> Clearing | None:

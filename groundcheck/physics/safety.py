@@ -31,8 +31,8 @@ from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
-from .protection import (STANDARD_PE_LIMIT, DEFAULT_CIRCUIT, DEFAULT_ZE, Clearing, breaker_clearing, breaking_capacity, cable_resistance,
-                         fuse_clearing, fuse_cold_resistance, max_disconnection_time, rcd_clearing)
+from .protection import (STANDARD_PE_LIMIT, DEFAULT_CIRCUIT, DEFAULT_ZE, Clearing, breaking_capacity, cable_resistance,
+                         device_clearing, fuse_cold_resistance, max_disconnection_time, rcd_clearing)
 
 __all__ = ["SafetyResult", "PartFigures", "ConductorCheck", "Supply", "protective_figures", "adiabatic_k",
            "DEFAULT_PE_LIMIT", "STANDARD_PE_LIMIT", "TOUCH_LIMIT", "supply_figures",
@@ -170,14 +170,9 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
     m = plan.mains
     options: list[tuple[Clearing, str]] = []
     if m.fuse is not None:
-        if m.fuse_kind.startswith("breaker"):
-            cl = breaker_clearing(m.fuse_kind.split("-", 1)[1], m.fuse, current)
-            name = "breaker"
-        else:
-            cl = fuse_clearing(m.fuse_kind, m.fuse, current, m.frequency)
-            name = "fuse"
+        cl = device_clearing(m.fuse_kind, m.fuse, current, m.frequency)
         if cl is not None:
-            options.append((cl, name))
+            options.append((cl, "breaker" if m.fuse_kind.startswith("breaker") else "fuse"))
     if m.rcd is not None:
         cl = rcd_clearing(m.rcd, current)
         if cl is not None:

@@ -15,6 +15,7 @@ from rich.table import Table
 from rich.text import Text
 
 from ..core.caution import CAUTION
+from ..core.errors import shown
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 
@@ -24,15 +25,6 @@ __all__ = ["print_report", "text_report", "figure_words", "CAUTION"]
 
 STYLE = {"danger": "bold white on red", "fault": "bold red", "warning": "yellow", "note": "cyan"}
 LABEL = {"danger": "DANGER", "fault": "FAULT", "warning": "WARNING", "note": "NOTE"}
-
-
-_CONTROL = {c: f"\\x{c:02x}" for c in (*range(0, 9), *range(11, 32), 127)}
-
-
-def shown(text: str) -> str:
-    """Text from the plan as the terminal shows it: control characters (escape sequences among them) written
-    as \\xNN, so a plan can never drive the terminal."""
-    return str(text).translate(_CONTROL)
 
 
 def escape(text) -> str:

@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING
 import networkx as nx
 
 from ..model.records import Plan
-from ..physics.protection import STANDARD_PE_LIMIT, breaker_clearing, fuse_clearing
+from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
 
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, is_fastening, section_checked
 from ..model.records import PE_POINT
@@ -248,10 +248,7 @@ def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
     if m.fuse is None or (m.clear_time is None and m.fuse_i2t is None) or not safety.parts:
         return []
     p = max(safety.parts, key=lambda x: x.fault_current)
-    if m.fuse_kind.startswith("breaker"):
-        cl = breaker_clearing(m.fuse_kind.split("-", 1)[1], m.fuse, p.fault_current)
-    else:
-        cl = fuse_clearing(m.fuse_kind, m.fuse, p.fault_current, m.frequency)
+    cl = device_clearing(m.fuse_kind, m.fuse, p.fault_current, m.frequency)
     out = []
     for stated, table, what, unit in ((m.clear_time, cl.time if cl else None, "clearing time", "s"),
                                       (m.fuse_i2t, cl.i2t if cl else None, "I²t", "A²s")):
