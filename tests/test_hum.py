@@ -11,7 +11,8 @@ import pytest
 
 from groundcheck import load
 from groundcheck.analysis import analyze
-from groundcheck.physics.hearing import dbu_from_dbv, dbv, spl_at_listener, threshold_of_hearing
+from groundcheck.core.units import dbv
+from groundcheck.physics.hearing import dbu_from_dbv, spl_at_listener, threshold_of_hearing
 from groundcheck.model.records import FieldSource, Rectifier
 from groundcheck.network.graph import polygon_area
 from groundcheck.physics.pickup import emf, loop_flux

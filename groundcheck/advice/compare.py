@@ -3,12 +3,12 @@
 from __future__ import annotations
 
 import json
-import math
 from html import escape
 
 from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean
+from ..core.units import dbv
 
 __all__ = ["compare", "compare_text", "compare_json", "compare_html"]
 
@@ -18,7 +18,7 @@ def _fkey(f):
 
 
 def _db(v):
-    return 20 * math.log10(v) if v and v > 0 else None
+    return dbv(v) if v and v > 0 else None
 
 
 def compare(before: Result, after: Result) -> dict:

@@ -16,13 +16,13 @@ finding is left, or when the time budget runs out (the untried candidates are li
 
 from __future__ import annotations
 
-import math
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..analysis import Options, Result, analyze
 from ..core.errors import PlanErrors
+from ..core.units import dbv
 from ..rules.catalogue import RULES, severity_rank
 from ..language.loader import load_text
 from ..model.records import Plan
@@ -73,7 +73,7 @@ PE_TOLERANCE = 0.06
 def _hum_db(r: Result) -> dict[str, float]:
     if r.hum is None:
         return {}
-    return {ch: max(HUM_FLOOR_DBV, 20 * math.log10(h.total_v) if h.total_v > 0 else HUM_FLOOR_DBV)
+    return {ch: max(HUM_FLOOR_DBV, dbv(h.total_v))
             for ch, h in r.hum.channels.items()}
 
 

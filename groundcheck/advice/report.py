@@ -5,9 +5,9 @@ Hum is shown as real levels before and after with the change in words, never as 
 
 from __future__ import annotations
 
-import math
 
 from ..core.caution import CAUTION
+from ..core.units import dbv
 from ..model.records import Plan
 from ..rules.results import Result
 from .edits import text_diff, unified_diff
@@ -32,7 +32,7 @@ def _hum_change_words(ch: str, before: float, after: float) -> str:
 
 
 def _hum_words(ch: str, h) -> str:
-    level = f"{20 * math.log10(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
+    level = f"{dbv(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
     verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
     return f"{ch} {level} ({verdict})"
 

@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 from functools import lru_cache
 
-__all__ = ["KINDS", "UnitError", "parse_quantity", "awg_diameter", "awg_area", "unit_kind"]
+__all__ = ["KINDS", "UnitError", "parse_quantity", "awg_diameter", "awg_area", "unit_kind", "db_of_ratio", "ratio_of_db", "dbv"]
 
 #: kinds of quantity, with the SI unit each is stored in
 KINDS = {
@@ -44,6 +44,29 @@ class UnitError(ValueError):
     def __init__(self, message: str, hint: str = ""):
         super().__init__(message)
         self.hint = hint
+
+
+def db_of_ratio(ratio: float) -> float:
+    """Decibels of an amplitude (voltage or current) ratio, 20·log10(ratio); −inf for zero.
+
+    Parameters:
+        ratio: a ratio of two voltages or two currents, ≥ 0.
+    Returns:
+        the level difference in dB.
+    References:
+        IEC 60027-3, *Letter symbols: logarithmic quantities* (the field-quantity decibel).
+    """
+    return 20 * math.log10(ratio) if ratio > 0 else -math.inf
+
+
+def ratio_of_db(db: float) -> float:
+    """Amplitude ratio of a level difference in dB, 10^(dB/20): the inverse of :func:`db_of_ratio`."""
+    return 10 ** (db / 20)
+
+
+def dbv(volts: float) -> float:
+    """Level in dBV (0 dBV = 1 V rms); −inf for zero."""
+    return db_of_ratio(volts)
 
 
 def _build_table() -> dict[str, tuple[float, str]]:

@@ -9,6 +9,7 @@ of that name, so an undefined name is reported where it was written.
 from __future__ import annotations
 
 from ..core.errors import PlanError
+from ..core.units import ratio_of_db
 from ..model.records import Device, FieldSource, Listening, Metal, Point, Stage, make
 from .conductors import conductor
 from .phrases import Reader, Statement, check_quantity
@@ -166,7 +167,7 @@ def field_source(stmt: Statement):
             if n != int(n) or n < 2:
                 raise PlanError("harmonic number must be a whole number of 2 or more", first.loc, "")
             level = r.quantity("level", "level relative to the fundamental", positive=False)
-            harmonics.append((int(n), 10 ** (level / 20)))
+            harmonics.append((int(n), ratio_of_db(level)))
         else:
             raise unknown(stmt, first, FIELD_KINDS + ("at", "30 uT at 5 cm", "harmonic"))
         r.finish()

@@ -18,6 +18,7 @@ import numpy as np
 import scipy.sparse.csgraph as csgraph
 
 from ..core.errors import Location
+from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
 
 __all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner", "pair_path", "path_drop",
@@ -80,7 +81,7 @@ def channel_tests(circuit: Circuit, stages, channels: list[str]) -> np.ndarray:
     J = np.zeros((len(circuit.nodes), len(channels)), dtype=complex)
     col = {ch: k for k, ch in enumerate(channels)}
     for s in stages:
-        g = 10 ** (s.gain / 20)
+        g = ratio_of_db(s.gain)
         k = col[s.channel]
         J[circuit.point_node[s.a], k] += g
         J[circuit.point_node[s.b], k] -= g

@@ -10,7 +10,9 @@ from __future__ import annotations
 import math
 from bisect import bisect_right
 
-__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "dbv", "dbu_from_dbv", "spl_at_listener"]
+from ..core.units import db_of_ratio, ratio_of_db
+
+__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "dbu_from_dbv", "spl_at_listener"]
 
 #: ISO 226:2003 Table 1 frequencies (Hz) and threshold of hearing T_f (dB SPL)
 ISO226_FREQ = (20, 25, 31.5, 40, 50, 63, 80, 100, 125, 160, 200, 250, 315, 400, 500, 630, 800, 1000,
@@ -34,14 +36,9 @@ def threshold_of_hearing(f: float) -> float:
     return ISO226_TF[i] + t * (ISO226_TF[i + 1] - ISO226_TF[i])
 
 
-def dbv(volts: float) -> float:
-    """Level in dBV (0 dBV = 1 V rms); −inf for zero."""
-    return 20 * math.log10(volts) if volts > 0 else -math.inf
-
-
 def dbu_from_dbv(level_dbv: float) -> float:
     """dBu from dBV: +20·log10(1/√0.6) = +2.2185 dB."""
-    return level_dbv - 20 * math.log10(DBU_REF)
+    return level_dbv - db_of_ratio(DBU_REF)
 
 
 def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, impedance: float, distance: float) -> float:
@@ -53,6 +50,6 @@ def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, imp
     """
     if v_out <= 0:
         return -math.inf
-    v = v_out * 10 ** (amp_gain_db / 20)
+    v = v_out * ratio_of_db(amp_gain_db)
     p = v * v / impedance
     return sensitivity_db + 10 * math.log10(p) - 20 * math.log10(distance)

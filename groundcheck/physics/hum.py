@@ -24,8 +24,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..core.units import db_of_ratio, dbv, ratio_of_db
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
-from .hearing import dbv, spl_at_listener, threshold_of_hearing
+from .humsettings import HumOptions
+from .hearing import spl_at_listener, threshold_of_hearing
 from .pickup import emf as emf_of, loop_flux, min_distance
 from .sweep import map_frequencies
 
@@ -45,13 +47,6 @@ NETWORK_ROWS = 50
 CROSSTALK_FLOOR_DB = -200.0
 
 
-@dataclass(frozen=True)
-class HumOptions:
-    max_frequency: float = 5000.0        # Hz, highest harmonic analysed
-    contributor_level: float = -100.0    # dBV at the output: contributors above it become findings
-    crosstalk_limit: float = -60.0       # dB at 1 kHz: worse is a finding
-
-
 @dataclass
 class ChannelHum:
     channel: str
@@ -68,7 +63,7 @@ class ChannelHum:
 
     @property
     def signal_to_hum(self) -> float:
-        return math.inf if self.total_v <= 0 else 20 * math.log10(self.rated_output / self.total_v)
+        return math.inf if self.total_v <= 0 else db_of_ratio(self.rated_output / self.total_v)
 
     def as_dict(self) -> dict:
         return {"channel": self.channel, "total_v": self.total_v, "total_dbv": _r(self.total_dbv),
@@ -189,7 +184,7 @@ class _Budget:
         self.freqs = freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
         self.xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else options.max_frequency})
         self.crosstalk_wanted = bool(self.signal_sources) and len(channels) > 1 and bool(stages)
-        self.gains = np.array([10 ** (s.gain / 20) for s in stages])
+        self.gains = np.array([ratio_of_db(s.gain) for s in stages])
         self.valid_idx = np.flatnonzero(self.valid_stage) if stages else np.zeros(0, dtype=int)
         # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the module doc)
         self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
@@ -358,5 +353,5 @@ class _Merged:
         out = []
         for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])):
             out.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
-                        "db": _r(max(CROSSTALK_FLOOR_DB, 20 * math.log10(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
+                        "db": _r(max(CROSSTALK_FLOOR_DB, db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
         return out

@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 from ..model.records import Plan
+from ..physics.humsettings import HumOptions
 from ..physics.protection import STANDARD_PE_LIMIT
 from .catalogue import Finding, severity_rank
 
@@ -27,9 +28,9 @@ class Options:
     """Settings of an analysis run (each has a command-line option of the same meaning)."""
 
     pe_limit: float = STANDARD_PE_LIMIT      # Ω
-    max_frequency: float = 5000.0            # Hz
-    contributor_level: float = -100.0        # dBV at the output
-    crosstalk_limit: float = -60.0           # dB
+    max_frequency: float = HumOptions.max_frequency            # Hz
+    contributor_level: float = HumOptions.contributor_level    # dBV at the output
+    crosstalk_limit: float = HumOptions.crosstalk_limit        # dB
     hum: bool = True                         # run the electrical hum budget
     jobs: int = 1                            # processes for the hum budget's frequencies
     select: tuple[str, ...] = ()             # rule codes or names to report (empty: all)
