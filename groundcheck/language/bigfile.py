@@ -26,6 +26,7 @@ import re
 from ..core.errors import LimitError, Location, PlanError
 from ..model.records import Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point, Rectifier, Stage, from_values
 from .phrases import Statement
+from .syntax import HEAD
 from ..core.runtime import quiet_child
 
 __all__ = ["split_point", "MIN_LINES"]
@@ -39,8 +40,6 @@ WORKER_SHARE = 0.38
 #: statements that need the whole file's context: a file holding any of them is read whole
 _STRUCTURE = re.compile(r"(?m)^[ \t]*(?:block|place|include|device|library)\b")
 
-#: a line that opens a statement with its keyword and name at the start of the line
-_OPENS = re.compile(r"[^\W\d][\w.\-/]*[ \t]+[^\W\d][\w.\-]*[ \t]*:")
 
 _RECORDS = {cls.__name__: cls for cls in (Conductor, Point, Metal, Rectifier, Current, Heater, Stage, FieldSource,
                                           Mains, Listening)}
@@ -58,7 +57,7 @@ def split_point(text: str, min_lines: int | None = None) -> int | None:
     start = max(1, int(len(rows) * (1 - WORKER_SHARE)))
     for i in range(start, min(len(rows), start + 2000)):
         # a statement carries on to the next line only after a trailing comma
-        if _OPENS.match(rows[i]) and not rows[i - 1].rstrip(" \t\r").endswith(","):
+        if HEAD.match(rows[i]) and not rows[i - 1].rstrip(" \t\r").endswith(","):
             return i
     return None
 

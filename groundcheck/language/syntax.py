@@ -18,7 +18,7 @@ from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput
 from ..core.errors import Location, PlanError
 from .phrases import Statement, split_phrases
 
-__all__ = ["parse_text", "BlockDef", "grammar_text"]
+__all__ = ["parse_text", "BlockDef", "grammar_text", "HEAD", "head_parts"]
 
 #: the most syntax errors reported for one file before giving up
 MAX_SYNTAX_ERRORS = 20
@@ -43,8 +43,24 @@ class BlockDef:
         self.name, self.loc, self.body = name, loc, body
 
 
-#: the keyword, the name, and where the attributes start, in a HEAD or LINE token (HEAD and the blanks after it)
-_HEAD_PARTS = re.compile(r"([^\W\d][\w.\-/]*)[ \t]+([^\W\d][\w.\-]*)[ \t]*:[ \t]*")
+def _terminal(name: str) -> str:
+    """The regular expression of one of the grammar's terminals, as written in ``plan.lark``."""
+    m = re.search(rf"^{name}(?:\.\d+)?:[ \t]*/(.+)/[ \t]*$", grammar_text(), re.M)
+    return m.group(1).replace("\\/", "/")
+
+
+#: a statement's head, "keyword name:" — the grammar's own HEAD terminal, the one definition of it
+HEAD = re.compile(_terminal("HEAD"))
+
+
+def head_parts(text: str) -> tuple[str, str, int, int]:
+    """The keyword, the name, the name's offset and the offset where the attributes start, in a text that opens
+    with a :data:`HEAD` (a HEAD or LINE token)."""
+    end = HEAD.match(text).end()
+    keyword = text.split(None, 1)[0]
+    at = len(keyword) + len(text[len(keyword):]) - len(text[len(keyword):].lstrip(" \t"))
+    name = text[at:end - 1].rstrip(" \t")
+    return keyword, name, at, len(text) - len(text[end:].lstrip(" \t"))
 
 
 class _Build(Transformer):
@@ -63,10 +79,10 @@ class _Build(Transformer):
             st = Statement(str(head), loc)
         else:                                   # HEAD or LINE: keyword, name and colon (and, for LINE, the rest)
             text = head.value
-            m = _HEAD_PARTS.match(text)
-            st = Statement(m.group(1), loc, m.group(2), Location(self.file, head.line, head.column + m.start(2)))
+            keyword, name, at, rest = head_parts(text)
+            st = Statement(keyword, loc, name, Location(self.file, head.line, head.column + at))
             if head.type == "LINE":
-                return self._phrases(st, text[m.end():], head.line, head.column + m.end())
+                return self._phrases(st, text[rest:], head.line, head.column + rest)
         if len(children) > 1:
             rest = children[1]
             return self._phrases(st, str(rest), rest.line, rest.column)

@@ -18,7 +18,7 @@ import scipy.sparse.csgraph as csgraph
 
 from ..model.records import Plan
 
-__all__ = ["build_graph", "edges_of", "components", "loop_count", "fundamental_loops", "Loop", "loop_polygon", "polygon_area"]
+__all__ = ["build_graph", "edges_of", "part_labels", "components", "loop_count", "fundamental_loops", "Loop", "loop_polygon", "polygon_area"]
 
 
 def build_graph(plan: Plan) -> nx.MultiGraph:
@@ -48,6 +48,14 @@ def edges_of(G: nx.MultiGraph) -> list[tuple]:
     return out
 
 
+def part_labels(n: int, rows, cols) -> tuple[int, np.ndarray]:
+    """Connected parts of an undirected graph of ``n`` nodes with edges ``rows[i]``–``cols[i]`` (node indices):
+    (number of parts, the part label of each node), by scipy's csgraph. The one home of connected parts."""
+    A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
+    ncomp, labels = csgraph.connected_components(A, directed=False)
+    return int(ncomp), labels
+
+
 def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list, np.ndarray, int]:
     """Connected parts: (nodes in graph order, the part label of each, number of parts), by scipy's csgraph.
     ``edges`` is :func:`edges_of` ``(G)`` when the caller already has it."""
@@ -56,9 +64,8 @@ def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list
         return order, np.zeros(0, dtype=np.int32), 0
     idx = {n: i for i, n in enumerate(order)}
     pairs = np.array([(idx[e[0]], idx[e[1]]) for e in (edges_of(G) if edges is None else edges)], dtype=np.int64).reshape(-1, 2)
-    A = sp.coo_matrix((np.ones(len(pairs)), (pairs[:, 0], pairs[:, 1])), shape=(len(order), len(order)))
-    ncomp, labels = csgraph.connected_components(A, directed=False)
-    return order, labels, int(ncomp)
+    ncomp, labels = part_labels(len(order), pairs[:, 0], pairs[:, 1])
+    return order, labels, ncomp
 
 
 def loop_count(G: nx.MultiGraph, edges: list[tuple] | None = None) -> int:

@@ -23,10 +23,10 @@ from functools import cached_property
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.csgraph as csgraph
 import scipy.sparse.linalg as spla
 
 from ..model.records import PE_POINT, Plan
+from ..network.graph import part_labels
 from .impedance import MATERIALS, MIN_IMPEDANCE, conductor_resistance, resistivity, skin_ratio
 from .plate import reduce_plate
 
@@ -128,8 +128,7 @@ class Circuit:
     def components(self) -> tuple[int, np.ndarray]:
         n1, n2, *_ = self._arrays
         n = len(self.nodes)
-        A = sp.coo_matrix((np.ones(len(n1)), (n1, n2)), shape=(n, n))
-        return csgraph.connected_components(A, directed=False)
+        return part_labels(n, n1, n2)
 
     @cached_property
     def references(self) -> np.ndarray:

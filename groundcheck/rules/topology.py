@@ -6,13 +6,10 @@ registered under the codes it makes (:mod:`groundcheck.rules.registry`).
 
 from __future__ import annotations
 
-import numpy as np
-import scipy.sparse as sp
-import scipy.sparse.csgraph as csgraph
 
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT
-from ..network.graph import Loop
+from ..network.graph import Loop, part_labels
 from .catalogue import Finding
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext, bfs
 from .registry import rule
@@ -116,8 +113,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
         elif us != vs and d["conductor"].kind != "interconnect":
             crossing.append((v, u, k) if us else (u, v, k))
     n = len(order)
-    A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
-    _, labels = csgraph.connected_components(A, directed=False)
+    _, labels = part_labels(n, rows, cols)
     members: dict[int, list[str]] = {}
     for name in order:
         if name not in side:
