@@ -117,7 +117,8 @@ def main() -> None:
     ap.add_argument("--no-ngspice", action="store_true")
     ap.add_argument("--full-limit", type=int, default=20000, help="largest size for the full check (hum budget)")
     ap.add_argument("--repeat", type=int, default=3, help="runs of each stage; the fastest is reported (default 3)")
-    ap.add_argument("--jobs", type=int, default=2, help="processes for the frequencies in the second solve column (default 2)")
+    ap.add_argument("--jobs", type=int, default=2, help="processes for the frequencies in the second solve column "
+                                                        "(default 2)")
     ap.add_argument("--child", type=int, help=argparse.SUPPRESS)
     args = ap.parse_args()
     if args.child is not None:
@@ -134,7 +135,8 @@ def main() -> None:
             print(out.stderr, file=sys.stderr)
             continue
         rows.append(json.loads(out.stdout.strip().splitlines()[-1]))
-    head = ["kind", "conductors", "nodes", "loops", "parse s", f"parse, {args.jobs} processes s", "network s", "audit s",
+    head = ["kind", "conductors", "nodes", "loops", "parse s", f"parse, {args.jobs} processes s", "network s",
+            "audit s",
             "solve ×10 s", f"solve ×10, {args.jobs} processes s", "parse+audit+solve s", "full check s", "peak MiB",
             "ngspice .op s", "one solve / ngspice"]
     print("| " + " | ".join(head) + " |")
@@ -142,8 +144,10 @@ def main() -> None:
     for r in rows:
         ratio = (f"{r['solve1_s'] / r['ngspice_op_s']:.3f}" if r.get("ngspice_op_s") else "–")
         cells = [r["kind"], f"{r['conductors']:,}", f"{r['nodes']:,}", f"{r['loops']:,}"] + \
-            [f"{r[k]:.2f}" if k in r else "–" for k in ("parse_s", "parse_jobs_s", "network_s", "audit_s", "solve10_s",
-                                                          "solve10_jobs_s", "total_s", "check_s", "peak_mib", "ngspice_op_s")] + [ratio]
+            [f"{r[k]:.2f}" if k in r else "–" for k in ("parse_s", "parse_jobs_s", "network_s", "audit_s",
+                                                          "solve10_s",
+                                                          "solve10_jobs_s", "total_s", "check_s", "peak_mib",
+                                                          "ngspice_op_s")] + [ratio]
         cells[12] = f"{r['peak_mib']:.0f}"
         print("| " + " | ".join(cells) + " |")
 

@@ -30,7 +30,8 @@ def run(path: Path, budget: float) -> dict:
     t1 = time.perf_counter()
     _, evs = suggest(plan, text, Options(), path.parent, path.resolve(), budget=budget * 0.7, before=before)
     t2 = time.perf_counter()
-    chosen, _, _ = greedy(plan, text, Options(), path.parent, path.resolve(), evs=evs, before=before, budget=budget * 0.3)
+    chosen, _, _ = greedy(plan, text, Options(), path.parent, path.resolve(), evs=evs, before=before,
+                          budget=budget * 0.3)
     t3 = time.perf_counter()
     tried = sum(1 for e in evs if e.rejected != NOT_TRIED)
     return {"plan": path.name, "conductors": len(plan.conductors), "analysis_s": t1 - t0, "candidates": len(evs),

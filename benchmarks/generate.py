@@ -36,10 +36,12 @@ def chassis(n_conductors: int, seed: int = 1) -> str:
     for i in range(side):
         for j in range(side):
             if i + 1 < side:
-                out.append(f"wire h{i}_{j}: {p(i, j)} to {p(i + 1, j)}, {pitch + rng.random() * 5:.1f} mm, 0.5 mm2, signal")
+                out.append(f"wire h{i}_{j}: {p(i, j)} to {p(i + 1, j)}, {pitch + rng.random() * 5:.1f} mm, 0.5 mm2, "
+                           "signal")
                 count += 1
             if j + 1 < side:
-                out.append(f"wire v{i}_{j}: {p(i, j)} to {p(i, j + 1)}, {pitch + rng.random() * 5:.1f} mm, 0.5 mm2, signal")
+                out.append(f"wire v{i}_{j}: {p(i, j)} to {p(i, j + 1)}, {pitch + rng.random() * 5:.1f} mm, 0.5 mm2, "
+                           "signal")
                 count += 1
     bolts = max(1, side // 4)
     for k in range(bolts):
@@ -48,7 +50,8 @@ def chassis(n_conductors: int, seed: int = 1) -> str:
         count += 1
     for k in range(min(8, side)):
         a, b = (rng.randrange(side), rng.randrange(side)), (rng.randrange(side), rng.randrange(side))
-        out.append(f"rectifier r{k}: {p(*a)} to {p(*b)}, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, load 30 mA")
+        out.append(f"rectifier r{k}: {p(*a)} to {p(*b)}, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, "
+                   "load 30 mA")
     for k in range(min(20, side)):
         a = (rng.randrange(side), rng.randrange(side))
         b = (min(side - 1, a[0] + 1), a[1])
@@ -73,8 +76,8 @@ def installation(n_devices: int, seed: int = 1) -> str:
             out.append(f"current leak{d}: d{d}.chassis to met, 0.5 mA 50 Hz, 0.2 mA 150 Hz, leakage")
     for d in range(1, n_devices):
         src = rng.randrange(d)
-        out.append(f"interconnect ic{d}: d{src}.gnd to d{d}.gnd, {1 + rng.random() * 5:.1f} m, 0.1 mm2, terminated both, "
-                   f"unbalanced, gain 20 dB, channel ch{d % 4}")
+        out.append(f"interconnect ic{d}: d{src}.gnd to d{d}.gnd, {1 + rng.random() * 5:.1f} m, 0.1 mm2, terminated "
+                   f"both, unbalanced, gain 20 dB, channel ch{d % 4}")
     return "\n".join(out) + "\n"
 
 

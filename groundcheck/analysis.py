@@ -73,8 +73,8 @@ def _notices(plan: Plan, options: Options) -> list[str]:
     if not options.hum and plan.stages:
         out.append("hum and buzz budget skipped (--no-hum): no hum figures or hum findings")
     elif plan.stages and options.max_frequency < plan.frequency:
-        out.append(f"--max-frequency {options.max_frequency:g} Hz is below the mains frequency ({plan.frequency:g} Hz): "
-                   "no hum line was computed")
+        out.append(f"--max-frequency {options.max_frequency:g} Hz is below the mains frequency ({plan.frequency:g} "
+                   "Hz): no hum line was computed")
     return out
 
 

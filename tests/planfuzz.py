@@ -46,8 +46,10 @@ def statements(draw, points):
                f"{draw(st.sampled_from(['left', 'right', 'main']))}"
     if kind == "rectifier":
         return f"rectifier r{n}: {a} to {b}, {draw(st.sampled_from(['full-wave', 'bridge', 'half-wave']))}, " \
-               f"secondary {draw(st.sampled_from(['6.3', '250', '400']))} V, winding {draw(st.sampled_from(['0.01', '50', '1000']))} ohm, " \
-               f"reservoir {draw(st.sampled_from(['1 uF', '100 uF', '10000 uF']))}, load {draw(st.sampled_from(['0 mA', '50 mA', '10 kohm']))}"
+               f"secondary {draw(st.sampled_from(['6.3', '250', '400']))} V, " \
+               f"winding {draw(st.sampled_from(['0.01', '50', '1000']))} ohm, " \
+               f"reservoir {draw(st.sampled_from(['1 uF', '100 uF', '10000 uF']))}, " \
+               f"load {draw(st.sampled_from(['0 mA', '50 mA', '10 kohm']))}"
     if kind == "heater":
         return f"heater h{n}: 6.3 V, 2 A, {draw(st.sampled_from(['ac', 'dc']))}, " \
                f"{draw(st.sampled_from(['floating', f'reference {a}']))}"
@@ -88,7 +90,8 @@ def mutated_plans(draw):
             j = min(len(text), i + draw(st.integers(1, 8)))
             text = text[:i] + text[j:]
         elif op == "insert":
-            text = text[:i] + draw(st.sampled_from([",", ":", '"', "{", "}", "#", "\n", " x ", "1e999", "µ", "\t", "to"])) + text[i:]
+            text = text[:i] + draw(st.sampled_from([",", ":", '"', "{", "}", "#", "\n", " x ", "1e999", "µ", "\t",
+                                                    "to"])) + text[i:]
         elif op == "swap":
             lines = text.split("\n")
             if len(lines) > 2:

@@ -44,7 +44,8 @@ CASES = [
     ("GC101", BASE + "wire extra: sleeve to star, 150 mm, 0.5 mm2, signal\n", BASE),
     ("GC103", BASE.replace("wire in_gnd: sleeve to star", "wire in_gnd: sleeve to k"), BASE),
     ("GC104", BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\n",
-     BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\npoint p2: pad\nwire l2: lonely to p2, 10 mm, 0.5 mm2\n"),
+     BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\npoint p2: pad\nwire l2: lonely to p2, 10 mm, "
+            "0.5 mm2\n"),
     ("GC105", BASE + "bolt jack_nut: sleeve to deck\n", BASE),
     ("GC106", BASE.replace("wire bond: star to gnd, 120 mm, 0.75 mm2, signal\n", ""), BASE),
     ("GC107", BASE + "heater h: 6.3 V, 2 A, ac, floating\n", BASE + "heater h: 6.3 V, 2 A, ac, reference gnd\n"),

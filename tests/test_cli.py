@@ -174,15 +174,16 @@ def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
 
 def test_compare_fails_a_review_when_the_after_plan_introduces_findings(cli, tmp_path):
     worse = tmp_path / "worse.gplan"
-    worse.write_text(open(MONO).read().replace("shield in_shield:", "shield in_shield2: in_sleeve to v1_grid_gnd, 60 mm, "
-                                                                    "0.2 mm2\nshield in_shield:", 1))
+    worse.write_text(open(MONO).read().replace("shield in_shield:", "shield in_shield2: in_sleeve to v1_grid_gnd, 60 "
+                                                                    "mm, 0.2 mm2\nshield in_shield:", 1))
     assert cli("compare", MONO, str(worse))[0] == 0
     assert cli("compare", MONO, str(worse), "--fail-on", "introduced")[0] == 1
     assert cli("compare", MONO, MONO, "--fail-on", "introduced")[0] == 0
 
 
 def test_option_values_are_checked(cli):
-    for args in (("--max-frequency", "-100"), ("--pe-limit", "0"), ("--hum-level", "nan"), ("--max-frequency", "1e309")):
+    for args in (("--max-frequency", "-100"), ("--pe-limit", "0"), ("--hum-level", "nan"), ("--max-frequency",
+                                                                                            "1e309")):
         code, _, err = cli("check", MONO, *args)
         assert code == 2 and "error: argument" in err
 
@@ -196,7 +197,8 @@ PE_DANGER = ('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-co
 def test_inline_acceptance_in_every_format_and_never_for_a_danger_by_default(cli, tmp_path):
     p = tmp_path / "a.gplan"
     p.write_text(open(MONO).read().replace("bolt in_jack_nut: in_sleeve to chassis",
-                                           "bolt in_jack_nut: in_sleeve to chassis  # accept GC101: insulated in the build"))
+                                           "bolt in_jack_nut: in_sleeve to chassis  # accept GC101: insulated in the "
+                                           "build"))
     doc = json.loads(cli("check", str(p), "--format", "json")[1])
     acc = [f for f in doc["findings"] if f["accepted"]]
     assert [f["code"] for f in acc] == ["GC101"] and doc["summary"]["accepted"] == 1

@@ -110,7 +110,8 @@ def test_plate_converges_as_grid_is_refined():
 
 
 def _random_circuit(rng, n, extra):
-    T = nx.random_labeled_tree(n, seed=int(rng.integers(1 << 30))) if hasattr(nx, "random_labeled_tree") else nx.random_tree(n, seed=int(rng.integers(1 << 30)))
+    tree = nx.random_labeled_tree if hasattr(nx, "random_labeled_tree") else nx.random_tree
+    T = tree(n, seed=int(rng.integers(1 << 30)))
     edges = list(T.edges()) + [tuple(rng.choice(n, 2, replace=False)) for _ in range(extra)]
     branches = [Branch(int(u), int(v), f"b{i}", float(rng.uniform(1e-4, 1.0)), float(rng.uniform(0, 2e-6)),
                        cap=(float(rng.uniform(1e-9, 1e-6)) if i % 7 == 3 else None))

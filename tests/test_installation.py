@@ -50,7 +50,8 @@ def test_device_reuse_gives_the_same_figures_as_alone(tmp_path):
     assert b.total_v == pytest.approx(a.total_v, rel=1e-9, abs=1e-15)
     assert [x["volts"] for x in b.spectrum] == pytest.approx([x["volts"] for x in a.spectrum], rel=1e-9, abs=1e-15)
     assert placed.loop_total == alone.loop_total
-    assert sorted(f.code for f in placed.findings) == sorted(f.code for f in alone.findings if not f.code.startswith("GC2"))
+    expected = sorted(f.code for f in alone.findings if not f.code.startswith("GC2"))
+    assert sorted(f.code for f in placed.findings) == expected
     p = placed.plan.point("pre.star")
     assert p.pos == pytest.approx((0.5 + 0.13, 0.08))        # moved by the device's place
 
@@ -60,7 +61,8 @@ def test_library_from_environment(tmp_path, monkeypatch):
     lib.mkdir()
     (lib / "box.gplan").write_text(PREAMP.read_text())
     monkeypatch.setenv("GROUNDCHECK_LIBRARY", str(lib))
-    p = load_text('plan "x"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n', "x.gplan", root=tmp_path / "elsewhere")
+    p = load_text('plan "x"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n', "x.gplan",
+                  root=tmp_path / "elsewhere")
     assert any(c.name == "b.cord" for c in p.conductors)
 
 
@@ -78,7 +80,8 @@ def test_device_errors(tmp_path):
 
 
 def test_balanced_interconnect_rejects_the_shield_drop():
-    text = STUDIO.read_text().replace("terminated both, unbalanced, gain 26 dB", "terminated both, balanced, gain 26 dB, cmrr 60 dB")
+    text = STUDIO.read_text().replace("terminated both, unbalanced, gain 26 dB", "terminated both, balanced, gain 26 "
+                                                                                 "dB, cmrr 60 dB")
     unbal = analyze(load(STUDIO)).hum.channels["monitors"].total_v
     bal = analyze(load_text(text, str(STUDIO), root=STUDIO.parent)).hum.channels["monitors"].total_v
     assert bal == pytest.approx(unbal * 10 ** (-60 / 20), rel=1e-6)
@@ -133,7 +136,8 @@ def test_a_60_hz_device_keeps_its_supply_when_placed(tmp_path):
     placed = analyze(load(f))
     alone = analyze(load(ROOT / "examples" / "monoblock-power-amp.gplan"))
     assert load(f).frequency == 60.0
-    assert placed.hum.frequencies[:3] == [60.0, 120.0, 240.0] == alone.hum.frequencies[:3]   # induction at 60 Hz, charging at 120, 240
+    # induction at 60 Hz, charging at 120, 240
+    assert placed.hum.frequencies[:3] == [60.0, 120.0, 240.0] == alone.hum.frequencies[:3]
     (r_placed,) = placed.hum.rectifiers
     (r_alone,) = alone.hum.rectifiers
     assert r_placed.ripple_pp == pytest.approx(r_alone.ripple_pp, rel=1e-9)

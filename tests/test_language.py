@@ -126,7 +126,8 @@ def test_include_relative_and_confined(tmp_path):
     (tmp_path / "sub").mkdir()
     (tmp_path / "sub" / "supply.gplan").write_text('point res_neg: cap\ninclude "more.gplan"\n')
     (tmp_path / "sub" / "more.gplan").write_text("point ct: centre-tap\n")
-    (tmp_path / "main.gplan").write_text('plan "m"\ninclude "sub/supply.gplan"\nwire w: res_neg to ct, 50 mm, 0.5 mm2\n')
+    (tmp_path / "main.gplan").write_text('plan "m"\ninclude "sub/supply.gplan"\n'
+                                         'wire w: res_neg to ct, 50 mm, 0.5 mm2\n')
     p = load(tmp_path / "main.gplan")
     assert {q.name for q in p.points} == {"res_neg", "ct"}
     assert len(p.files) == 3
@@ -145,7 +146,8 @@ def test_include_of_absolute_path_outside_refused(tmp_path):
 
 
 def test_comments_continuation_and_crlf():
-    text = 'plan "c"\r\n# comment\r\npoint a: stud  # trailing\r\npoint b: stud\r\nwire w: a to b,\r\n   10 mm, 1 mm2\r\n'
+    text = ('plan "c"\r\n# comment\r\npoint a: stud  # trailing\r\npoint b: stud\r\nwire w: a to b,\r\n'
+            '   10 mm, 1 mm2\r\n')
     p = load_text(text, "c.gplan")
     assert p.conductors[0].length == pytest.approx(0.01)
 
@@ -158,7 +160,8 @@ BAD = [
     ("keyword", 'plan "x"\nwier w: a to b, 10 mm, 1 mm2\n',
      "bad.gplan:2:1: error: unknown keyword 'wier' (did you mean 'wire'?)"),
     ("unit", 'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 10 mmm, 1 mm2\n',
-     "bad.gplan:4:20: error: unknown unit 'mmm' (units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; dB; C)"),
+     "bad.gplan:4:20: error: unknown unit 'mmm' (units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; "
+     "dB; C)"),
     ("wrong kind", 'plan "x"\nmetal deck: aluminium 2 mm\npoint a: stud\nbolt b: a to deck, contact 5 mm\n',
      "bad.gplan:4:28: error: contact must be a resistance, not a length (use a resistance unit such as ohm or mohm)"),
     ("length in ohms", 'plan "x"\nmetal deck: aluminium 2 ohm\n',

@@ -69,7 +69,8 @@ def test_only_public_names_cross_a_package():
     for module, path in _modules():
         for target, imported, line in _imports(module, path):
             if target.split(".")[:2] != module.split(".")[:2]:
-                bad += [f"{path.relative_to(PACKAGE)}:{line} {n}" for n in imported if n.startswith("_") and n != "__version__"]
+                bad += [f"{path.relative_to(PACKAGE)}:{line} {n}" for n in imported
+                        if n.startswith("_") and n != "__version__"]
     assert bad == []
 
 
@@ -84,3 +85,12 @@ def test_modules_and_functions_stay_readable_in_one_sitting():
             if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)) and node.end_lineno - node.lineno + 1 > 60:
                 long_functions.append(f"{path.relative_to(PACKAGE)}:{node.name}")
     assert long_modules == [] and long_functions == []
+
+
+def test_lines_stay_within_120_characters():
+    """The contributor guide's line length (also ruff's setting in pyproject.toml)."""
+    root = PACKAGE.parent
+    long_lines = [f"{path.relative_to(root)}:{i}"
+                  for folder in ("groundcheck", "tests", "benchmarks") for path in sorted((root / folder).rglob("*.py"))
+                  for i, line in enumerate(path.read_text(encoding="utf-8").split("\n"), 1) if len(line) > 120]
+    assert long_lines == []

@@ -148,7 +148,8 @@ def test_installation_suggestions_work_on_the_signal_side():
     useful = [e for e in evs if not e.rejected]
     bal = next(e for e in useful if e.candidate.title == "use a balanced interconnect for mix_out")
     assert bal.hum_change_db["monitors"] < -40                 # 50 dB common-mode rejection assumed
-    for e in useful:                                             # nothing re-routes or removes a cable or a protective conductor
+    # nothing re-routes or removes a cable or a protective conductor
+    for e in useful:
         assert "cord" not in e.candidate.title and "run_" not in e.candidate.title
     chosen, final, _ = greedy(load(studio), studio.read_text(), Options(), studio.resolve().parent, studio.resolve())
     assert all(h.audible is not True for h in final.hum.channels.values())
@@ -252,13 +253,14 @@ def test_new_protective_stud_is_clear_of_the_transformer(tmp_path):
     lead = next(c for c in p.conductors if c.name == "pe_lead")
     # straight line from the inlet (15,180) to the stud, plus the stated 20 % allowance
     inlet = p.point("mains.pe").pos
-    assert lead.length == pytest.approx(round(((inlet[0] - stud.pos[0]) ** 2 + (inlet[1] - stud.pos[1]) ** 2) ** 0.5 * 1.2, 3),
-                                        abs=1e-3)
+    straight = ((inlet[0] - stud.pos[0]) ** 2 + (inlet[1] - stud.pos[1]) ** 2) ** 0.5
+    assert lead.length == pytest.approx(round(straight * 1.2, 3), abs=1e-3)
     assert "# mistake 1" not in next(x for x in new.split("\n") if x.startswith("wire pe_lead"))
 
 
 HEAD_PLAN = """plan "Guitar head, TT supply (trial)"
-mains 120 V 60 Hz, fuse 3.15 A slow, line-conductor 18 AWG, cord 2.5 m 18 AWG, system TT, loop-impedance 12 ohm, inlet at 10,150
+mains 120 V 60 Hz, fuse 3.15 A slow, line-conductor 18 AWG, cord 2.5 m 18 AWG, system TT, loop-impedance 12 ohm,
+      inlet at 10,150
 metal chassis: steel 1.2 mm, 450 x 180 mm, touchable
 metal back_panel: steel 1 mm, 450 x 60 mm, touchable
 point pe_stud: stud, at 30,160 on chassis

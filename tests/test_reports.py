@@ -77,7 +77,8 @@ def test_draw_command(cli, tmp_path):
 CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
 
 
-@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (Debian package 'chromium'; .ci/run installs it)")
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (Debian package 'chromium'; .ci/run "
+                                             "installs it)")
 @pytest.mark.parametrize("name", sorted(RESULTS))
 def test_html_report_in_headless_chromium(name, tmp_path, cli):
     html = tmp_path / "report.html"
@@ -93,7 +94,8 @@ def test_html_report_in_headless_chromium(name, tmp_path, cli):
                           capture_output=True, text=True, timeout=120)
     assert shot.exists() and shot.stat().st_size > 10_000          # a screenshot written for inspection
     assert "CONSOLE" not in proc.stderr and "Uncaught" not in proc.stderr
-    dom = subprocess.run([CHROMIUM, *flags, "--dump-dom", html.as_uri()], capture_output=True, text=True, timeout=120).stdout
+    dom = subprocess.run([CHROMIUM, *flags, "--dump-dom", html.as_uri()], capture_output=True, text=True,
+                         timeout=120).stdout
     assert 'id="physical"' in dom and 'id="topology"' in dom and dom.count("<svg") >= 3
     assert 'id="findings"' in dom and 'id="protective-earth"' in dom and 'class="chart"' in dom
     assert "threshold of hearing" in dom
@@ -129,7 +131,8 @@ def test_hostile_strings_are_escaped_everywhere(tmp_path):
     name = str(tmp_path / 'x<script>&"\'.gplan')
     r = analyze(load_text(HOSTILE, name))
     assert r.findings
-    html = html_report(r, *[render_dot(src, "svg", eng)[0] for src, eng in ((physical_dot(r), "neato"), (topology_dot(r), "dot"))])
+    html = html_report(r, *[render_dot(src, "svg", eng)[0] for src, eng in ((physical_dot(r), "neato"),
+                                                                            (topology_dot(r), "dot"))])
     assert "<script>" not in html and "&lt;script&gt;" in html
     doc = json.loads(render_json(r))
     assert doc["plan"]["title"].startswith("<script>")          # JSON keeps the text, escaped by the encoder

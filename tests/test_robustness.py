@@ -220,7 +220,8 @@ def test_refuses_every_output_over_the_plan(cli, tmp_path):
     p = tmp_path / "p.gplan"
     p.write_text(EXAMPLES[1].read_text())
     before = p.read_bytes()
-    for argv in (["check", str(p), "--format", "sarif", "-o", str(p)], ["draw", str(p), "-o", str(tmp_path / "p.gplan.svg")],
+    for argv in (["check", str(p), "--format", "sarif", "-o", str(p)], ["draw", str(p), "-o",
+                                                                        str(tmp_path / "p.gplan.svg")],
                  ["report", str(p), "-o", str(p)], ["export", str(p), "--spice", "-o", str(p)]):
         cli(*argv)
     assert p.read_bytes() == before
@@ -317,10 +318,11 @@ def test_mirroring_swaps_channel_figures():
 def _rename(p, fn):
     def r(x):
         return None if x is None else fn(x)
+    metals = {m.name for m in p.metals}
     return replace(p,
                    points=tuple(replace(x, name=r(x.name), on=x.on) for x in p.points),
-                   conductors=tuple(replace(c, a=r(c.a) if c.a not in {m.name for m in p.metals} else c.a,
-                                            b=r(c.b) if c.b not in {m.name for m in p.metals} else c.b) for c in p.conductors),
+                   conductors=tuple(replace(c, a=r(c.a) if c.a not in metals else c.a,
+                                            b=r(c.b) if c.b not in metals else c.b) for c in p.conductors),
                    rectifiers=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.rectifiers),
                    currents=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.currents),
                    stages=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.stages),

@@ -124,7 +124,8 @@ def test_fault_current_and_touch_voltage_by_hand_tn():
 
 def test_slow_fuse_on_a_5_ohm_loop_is_too_slow_and_an_rcd_cures_it():
     # the first user case: TN at 230 V, 5 Ω loop, 6.3 A slow fuse
-    base = "230 V 50 Hz, fuse 6.3 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, loop-impedance 5 ohm"
+    base = ("230 V 50 Hz, fuse 6.3 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, "
+            "loop-impedance 5 ohm")
     r = analyze(mains_plan(base))
     z = 5 + 0.2 / 6.3 + CIRCUIT_15 + CORD_075 + R_PATH + CORD_075 + CIRCUIT_15
     i_f = 230 / z
@@ -163,12 +164,14 @@ def test_120_v_tn_allows_0_8_s():
 
 def test_glass_fuse_beyond_its_breaking_capacity():
     # 500 mA low-breaking fuse on a stiff supply: the prospective fault current is far above 35 A
-    r = analyze(mains_plan("230 V 50 Hz, fuse 500 mA slow, breaking low, line-conductor 0.75 mm2, loop-impedance 0.35 ohm"))
+    r = analyze(mains_plan("230 V 50 Hz, fuse 500 mA slow, breaking low, line-conductor 0.75 mm2, loop-impedance 0.35 "
+                           "ohm"))
     (f,) = [f for f in r.findings if f.code == "GC211"]
     assert f.severity == "danger" and f.figures["breaking_capacity_a"] == 35.0
     z = 0.35 + 0.2 / 0.5 + CIRCUIT_15 + 0.75e-6 * 0 + CORD_075 + R_PATH + CORD_075 + CIRCUIT_15
     assert f.figures["fault_current_a"] == pytest.approx(230 / z, rel=1e-4)
-    r = analyze(mains_plan("230 V 50 Hz, fuse 500 mA slow, breaking high, line-conductor 0.75 mm2, loop-impedance 0.35 ohm"))
+    r = analyze(mains_plan("230 V 50 Hz, fuse 500 mA slow, breaking high, line-conductor 0.75 mm2, loop-impedance 0.35 "
+                           "ohm"))
     assert not [f for f in r.findings if f.code == "GC211"]
 
 
@@ -205,7 +208,8 @@ def test_no_mains_no_protective_figures():
 
 def test_role_less_wire_from_the_inlet_is_protective():
     text = PE_PLAN.replace("1.0 mm2, protective", "1.0 mm2")
-    p = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text, header=False)
+    p = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text,
+             header=False)
     r = analyze(p)
     codes = {f.code for f in r.findings}
     assert "GC209" in codes and "GC205" not in codes and "GC210" not in codes
@@ -216,7 +220,8 @@ def test_role_less_wire_from_the_inlet_is_protective():
 def test_protective_trace_is_checked_for_its_section():
     text = PE_PLAN.replace("wire pe_lead: mains.pe to pe_stud, 1 m, 1.0 mm2, protective",
                            "trace pe_lead: mains.pe to pe_stud, 50 mm, width 0.3 mm, protective")
-    r = analyze(plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text, header=False))
+    r = analyze(plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text,
+                     header=False))
     (f,) = [f for f in r.findings if f.code == "GC204"]
     # 0.3 mm × 35 µm copper = 0.0105 mm²
     assert f.severity == "danger" and f.figures["area_mm2"] == pytest.approx(0.0105)
@@ -226,13 +231,15 @@ def test_signal_wire_on_the_inlet_terminal_is_flagged():
     r = analyze(plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + PE_PLAN
                      + "point star: star, at 100,100 on deck\nwire sg: mains.pe to star, 100 mm, 0.5 mm2, signal\n"
                      + "point in_s: sleeve, at 150,100 on deck\nwire w: in_s to star, 50 mm, 0.5 mm2\n"
-                     + "point k: pad\nwire w2: k to star, 50 mm, 0.5 mm2\nstage s: in_s to k, gain 20 dB\n", header=False))
+                     + "point k: pad\nwire w2: k to star, 50 mm, 0.5 mm2\nstage s: in_s to k, gain 20 dB\n",
+                     header=False))
     assert [f.elements for f in r.findings if f.code == "GC210"] == [("sg", "mains.pe")]
 
 
 def test_relaxed_limit_is_said():
     text = PE_PLAN.replace("contact 0.5 mohm", "contact 150 mohm")
-    p = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text, header=False)
+    p = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text,
+             header=False)
     strict = analyze(p)
     assert [f.severity for f in strict.findings if f.code == "GC206"] == ["danger"]
     relaxed = analyze(p, Options(pe_limit=10.0))

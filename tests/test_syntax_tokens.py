@@ -50,7 +50,8 @@ CASES = ["wire a: b to c,\n  10 mm, 1 mm2\n", "wire a:b to c\n", 'wire   a  :  "
          "wire a: b to c,\n", "wire 1a: b\n", "wire a: b to c}\n", "\tpoint p: star\r\n"]
 
 
-@pytest.mark.parametrize("text", CASES + [p.read_text() for p in EXAMPLES + sorted((ROOT / "examples").glob("*/**/*.gplan"))])
+@pytest.mark.parametrize("text",
+                         CASES + [p.read_text() for p in EXAMPLES + sorted((ROOT / "examples").glob("*/**/*.gplan"))])
 def test_same_statements_and_errors_on_chosen_text(text, monkeypatch):
     fast, slow = _both(text, monkeypatch)
     assert fast == slow

@@ -149,7 +149,8 @@ def _rephrase(ctx: _Ctx, c, words: tuple[str, ...], new: str, title: str, reason
 
 
 def _squeeze(text: str, new: str) -> str:
-    """Blanks left by items replaced with nothing after ``new`` are removed (``terminated a`` not ``terminated a  ``)."""
+    """Blanks left by items replaced with nothing after ``new`` are removed (``terminated a`` not
+    ``terminated a  ``)."""
     i = text.find(new)
     if i < 0:
         return text
@@ -238,7 +239,8 @@ def _stud_position(ctx: _Ctx, part: str, near) -> tuple[float, float] | None:
             q = (near[0] + r * math.cos(a), near[1] + r * math.sin(a))
             if not metal.contains(q) or any(m.contains(q) for m in others):
                 continue
-            if any(math.dist(q, t) < STUD_CLEARANCE for t in taken) or any(math.dist(q, s) < SOURCE_CLEARANCE for s in sources):
+            if (any(math.dist(q, t) < STUD_CLEARANCE for t in taken)
+                    or any(math.dist(q, s) < SOURCE_CLEARANCE for s in sources)):
                 continue
             return q
     return None
@@ -294,14 +296,15 @@ def _thicker(ctx: _Ctx, f) -> Candidate | None:
             return None
         edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
         edit = Edit(edit.line, _squeeze(edit.new, new), edit.extra, edit.last)
-    return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for protective "
-                     f"conductor {c.name}", "GC204", (edit,), touches_protective=False)
+    return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
+                     f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False)
 
 
 def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
     """Interconnects in loops through mains cords, or sharing a supply or leakage current with a stage."""
     kinds = {c.name: c.kind for c in plan.conductors}
-    names = {e for lp in result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges if kinds.get(e) == "interconnect"}
+    names = {e for lp in result.loops if lp.closed_by == "mains-cords"
+             for e in lp.loop.edges if kinds.get(e) == "interconnect"}
     names |= {e for row in result.coupling for e in row.shared if kinds.get(e) == "interconnect"}
     return names
 
@@ -315,7 +318,8 @@ def _installation_candidates(ctx: _Ctx, add) -> None:
             continue
         ph = ctx.src.find(st, "unbalanced")
         if ph:
-            add(Candidate(f"use a balanced interconnect for {name}", "GC101", (ctx.src.replace(st, [(ph[0], "balanced")]),)))
+            add(Candidate(f"use a balanced interconnect for {name}", "GC101", (ctx.src.replace(st, [(ph[0],
+                                                                                                     "balanced")]),)))
         for end in (c.a, c.b):
             pt = ctx.plan.point(end)
             if pt is None or not pt.group:
@@ -336,7 +340,8 @@ def _installation_candidates(ctx: _Ctx, add) -> None:
                 rows = edit.new.split("\n")
                 rows[n - dst.loc.line] = row[:b] + ", signal-ground lift" + row[b:]
                 edit = Edit(edit.line, "\n".join(rows), (), edit.last)
-            add(Candidate(f"give {dev} a ground-lift network between its signal ground and chassis (never the protective earth)",
+            add(Candidate(f"give {dev} a ground-lift network between its signal ground and chassis (never the "
+                          "protective earth)",
                           "GC101", (edit,)))
 
 
@@ -365,7 +370,8 @@ def _shared_return_candidates(ctx: _Ctx, add) -> None:
                     if p in (d.a, d.b) and not ctx.protective(d):
                         far = d.b if d.a == p else d.a
                         if star and far != star and far in (c.a, c.b):
-                            add(_reroute(ctx, d.name, far, star, f"take {p} to {star} by its own wire ({d.name})", "GC102"))
+                            add(_reroute(ctx, d.name, far, star, f"take {p} to {star} by its own wire ({d.name})",
+                                         "GC102"))
 
 
 def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:

@@ -75,7 +75,8 @@ def compare_text(d: dict) -> str:
         for f in fnd[tag]:
             out.append(f"  {tag:<10} {f['code']} {f['severity']:<8} {f['message']}")
     lp = d["loops"]
-    out.append(f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, {len(lp['added'])} added)")
+    out.append(f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, {len(lp['added'])} "
+               "added)")
     for k in lp["removed"]:
         out.append(f"  removed   {', '.join(k)}")
     for k in lp["added"]:
@@ -84,7 +85,8 @@ def compare_text(d: dict) -> str:
         out.append(f"Hum, {ch}: {_f(h['before_dbv'], '{:.1f}')} → {_f(h['after_dbv'], '{:.1f}')} dBV "
                    f"({_f(h['change_db'], '{:+.1f}')} dB); audible {h['audible_before']} → {h['audible_after']}")
         for r in h["spectrum"][:12]:
-            out.append(f"  {r['frequency_hz']:>7g} Hz  {_f(r['before_dbv'], '{:8.1f}')} → {_f(r['after_dbv'], '{:8.1f}')} dBV  "
+            out.append(f"  {r['frequency_hz']:>7g} Hz  {_f(r['before_dbv'], '{:8.1f}')} → "
+                       f"{_f(r['after_dbv'], '{:8.1f}')} dBV  "
                        f"{_f(r['change_db'], '{:+.1f}')} dB")
     for p in d["protective_earth"]:
         out.append(f"Protective path to {p['part']}: {_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
@@ -102,7 +104,8 @@ def compare_html(d: dict) -> str:
     rows = []
     for tag in ("fixed", "introduced", "kept"):
         for f in d["findings"][tag]:
-            rows.append(f"<tr><td>{tag}</td><td>{e(f['code'])}</td><td>{e(f['severity'])}</td><td>{e(f['message'])}</td></tr>")
+            rows.append(f"<tr><td>{tag}</td><td>{e(f['code'])}</td><td>{e(f['severity'])}</td>"
+                        f"<td>{e(f['message'])}</td></tr>")
     hum = []
     for ch, h in d["hum"].items():
         for r in h["spectrum"]:
@@ -111,11 +114,16 @@ def compare_html(d: dict) -> str:
     pe = [f"<tr><td>{e(p['part'])}</td><td>{_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')}</td>"
           f"<td>{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')}</td></tr>" for p in d["protective_earth"]]
     return ("<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>groundcheck compare</title>"
-            "<style>body{font-family:system-ui,sans-serif;max-width:1000px;margin:2em auto}table{border-collapse:collapse}"
+            "<style>body{font-family:system-ui,sans-serif;max-width:1000px;margin:2em "
+            "auto}table{border-collapse:collapse}"
             "td,th{border:1px solid #ccc;padding:.2em .5em}</style></head><body>"
-            f"<h1>{e(d['before'])} → {e(d['after'])}</h1><p><b>{e(d['caution'])}</b></p><h2>Findings</h2><table><tr><th>change</th><th>code</th>"
+            f"<h1>{e(d['before'])} → "
+            f"{e(d['after'])}</h1><p><b>{e(d['caution'])}</b></p><h2>Findings</h2>"
+            "<table><tr><th>change</th><th>code</th>"
             f"<th>severity</th><th>finding</th></tr>{''.join(rows)}</table>"
             f"<h2>Loops</h2><p>{d['loops']['total_before']} → {d['loops']['total_after']}</p>"
-            f"<h2>Hum per harmonic (dBV)</h2><table><tr><th>channel</th><th>Hz</th><th>before</th><th>after</th><th>change dB</th></tr>"
-            f"{''.join(hum)}</table><h2>Protective earth (mΩ)</h2><table><tr><th>part</th><th>before</th><th>after</th></tr>"
+            "<h2>Hum per harmonic "
+            "(dBV)</h2><table><tr><th>channel</th><th>Hz</th><th>before</th><th>after</th><th>change dB</th></tr>"
+            f"{''.join(hum)}</table><h2>Protective earth "
+            "(mΩ)</h2><table><tr><th>part</th><th>before</th><th>after</th></tr>"
             f"{''.join(pe)}</table></body></html>\n")

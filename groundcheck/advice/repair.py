@@ -29,7 +29,8 @@ from ..model.records import Plan
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
 
-__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits", "unified_diff",
+__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits",
+           "unified_diff",
            "text_diff", "MAX_STEPS", "HUM_FLOOR_DBV", "NOT_TRIED"]
 
 MAX_STEPS = 8
@@ -51,7 +52,8 @@ class Evaluation:
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
         introduced, size of the change."""
-        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0, d) for d in self.hum_change_db.values())
+        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0,
+                                                                                d) for d in self.hum_change_db.values())
         return (bool(self.rejected), -self.net.get("danger", 0), -self.net.get("fault", 0), -round(gain, 1),
                 len(self.introduced), len(self.candidate.edits), self.candidate.title)
 

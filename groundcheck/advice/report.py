@@ -52,7 +52,8 @@ def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation]
             "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in evs if not e.rejected],
             "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
             "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
-            "combined": {"search": "useful changes best first, each re-analysed on the plan as changed so far and kept if it still helps",
+            "combined": {"search": "useful changes best first, each re-analysed on the plan as changed so far and kept "
+                                   "if it still helps",
                          "changes": [e.candidate.title for e in chosen],
                          "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
                          "diff": text_diff(text, final_text, name)}}
@@ -83,7 +84,8 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
                    + " (raise --budget to try them), first: " + "; ".join(e.candidate.title for e in untried[:3]))
         out.append("")
     n = len(chosen)
-    out.append(f"Combined (best first, each re-checked on the plan as changed so far): {n} change" + ("" if n == 1 else "s")
+    out.append(f"Combined (best first, each re-checked on the plan as changed so far): {n} change"
+               + ("" if n == 1 else "s")
                + (": " + "; ".join(e.candidate.title for e in chosen) if chosen else ""))
     left = [f"{f.code} {f.severity}" for f in final.findings]
     out.append("  leaves no finding" if not left else f"  leaves {len(left)}: " + _counted(left))

@@ -19,8 +19,8 @@ from ..rules.catalogue import RULES, SEVERITIES
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import cmd_compare, cmd_suggest
-from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type, quantity_type,
-                     seconds_type, write_output)
+from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type,
+                     quantity_type, seconds_type, write_output)
 
 __all__ = ["main"]
 
@@ -44,29 +44,34 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _check_command(sub) -> None:
     c = sub.add_parser("check", help="audit plans and print the findings",
-                       description="Audit plans: loops, shared returns, stars, chassis bonds, protective earth, hum and buzz.\n\n"
+                       description="Audit plans: loops, shared returns, stars, chassis bonds, protective earth, hum "
+                       "and buzz.\n\n"
                        "Example:\n  groundcheck check examples/monoblock-power-amp.gplan --format json",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files or folders (every .gplan below a folder is "
                    "checked); '-' reads standard input")
     c.add_argument("--format", choices=CHECK_FORMATS, default="text", help="output format (default text)")
-    c.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this severe (default fault)")
+    c.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this "
+                                                                       "severe (default fault)")
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
-    c.add_argument("--jobs", type=processes_type, default=1, metavar="N", help="use N processes: several plans are checked side by side; for one plan, a large flat "
+    c.add_argument("--jobs", type=processes_type, default=1, metavar="N",
+                   help="use N processes: several plans are checked side by side; for one plan, a large flat "
                    "file is read by two and the hum budget's frequencies are shared among N (Linux; default 1)")
     add_analysis_options(c)
 
 
 def _explain_command(sub) -> None:
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
-                       description="Example:\n  groundcheck explain GC102", formatter_class=argparse.RawDescriptionHelpFormatter)
-    e.add_argument("code", metavar="RULE", nargs="?", help="rule code or name, e.g. GC102 or shared-return (none: list every rule)")
+                       description="Example:\n  groundcheck explain GC102",
+                       formatter_class=argparse.RawDescriptionHelpFormatter)
+    e.add_argument("code", metavar="RULE", nargs="?", help="rule code or name, e.g. GC102 or shared-return (none: list "
+                                                           "every rule)")
 
 
 def _draw_command(sub) -> None:
     d = sub.add_parser("draw", help="draw the plan with every problem marked",
-                       description="Draw the physical view (metal parts, points at their positions, conductors by role, "
-                       "loops and problems marked) or the topology view.\n\nExample:\n"
+                       description="Draw the physical view (metal parts, points at their positions, conductors by "
+                       "role, loops and problems marked) or the topology view.\n\nExample:\n"
                        "  groundcheck draw examples/monoblock-power-amp.gplan -o monoblock.svg",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     d.add_argument("plan", metavar="PLAN")
@@ -79,28 +84,32 @@ def _draw_command(sub) -> None:
 
 def _report_command(sub) -> None:
     h = sub.add_parser("report", help="write a self-contained HTML report",
-                       description="One HTML file with the summary, findings, drawings, hum spectrum and protective-earth "
-                       "table; no network fetches.\n\nExample:\n  groundcheck report examples/dual-mono-line-stage.gplan -o report.html",
+                       description="One HTML file with the summary, findings, drawings, hum spectrum and "
+                       "protective-earth table; no network fetches.\n\nExample:\n  groundcheck report "
+                       "examples/dual-mono-line-stage.gplan -o report.html",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     h.add_argument("plan", metavar="PLAN")
     h.add_argument("-o", "--output", metavar="FILE", required=True, help="the HTML file to write (FILE.html)")
     h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
-    h.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this severe (default fault)")
+    h.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this "
+                                                                       "severe (default fault)")
     add_analysis_options(h)
 
 
 def _suggest_command(sub) -> None:
     s = sub.add_parser("suggest", help="propose changes that fix the findings, ranked by their predicted gain",
-                       description="Try candidate changes on the plan (lift a shield end, remove a redundant bond, re-route "
-                       "a return, join a rectifier's ends, give the protective earth its own stud ...), re-run the analysis for "
-                       "each and rank them. Changes that would weaken the protective earth are never proposed.\n\nExample:\n"
+                       description="Try candidate changes on the plan (lift a shield end, remove a redundant bond, "
+                       "re-route a return, join a rectifier's ends, give the protective earth its own stud ...), "
+                       "re-run the analysis for each and rank them. Changes that would weaken the protective earth "
+                       "are never proposed.\n\nExample:\n"
                        "  groundcheck suggest examples/dual-mono-line-stage.gplan --apply fixed.gplan",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     s.add_argument("plan", metavar="PLAN")
     s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
     s.add_argument("--pick", type=int, metavar="N", help="with --apply: apply suggestion N instead of the combined set")
-    s.add_argument("--force", action="store_true", help="with --apply: replace NEW_PLAN if it exists (never the plan itself)")
+    s.add_argument("--force", action="store_true", help="with --apply: replace NEW_PLAN if it exists (never the plan "
+                                                        "itself)")
     s.add_argument("--budget", type=seconds_type, default=25.0, metavar="SECONDS",
                    help="time for trying candidates and combining them (default 25 s); what is not tried is listed")
     s.add_argument("--format", choices=("text", "json"), default="text", help="output format (default text)")
@@ -109,7 +118,8 @@ def _suggest_command(sub) -> None:
 
 def _compare_command(sub) -> None:
     cp = sub.add_parser("compare", help="compare two plans: findings, loops, hum per harmonic, protective earth",
-                        description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o changes.html",
+                        description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o "
+                                    "changes.html",
                         formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     cp.add_argument("before", metavar="BEFORE")
     cp.add_argument("after", metavar="AFTER")
@@ -123,10 +133,12 @@ def _compare_command(sub) -> None:
 
 def _export_command(sub) -> None:
     x = sub.add_parser("export", help="write the ground network in another format",
-                       description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o ground.cir",
+                       description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o "
+                                   "ground.cir",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     x.add_argument("plan", metavar="PLAN")
-    x.add_argument("--spice", action="store_true", required=True, help="a plain SPICE netlist (R, L, C, current sources)")
+    x.add_argument("--spice", action="store_true", required=True, help="a plain SPICE netlist (R, L, C, current "
+                                                                       "sources)")
     x.add_argument("--frequency", type=quantity_type("frequency", "Hz"), metavar="HZ",
                    help="AC analysis at this frequency (default: DC operating point)")
     x.add_argument("-o", "--output", metavar="FILE", help="write the netlist to FILE instead of standard output")
@@ -290,7 +302,8 @@ def cmd_report(args) -> int:
     return 1 if result.fails(fail_on(args)) else 0
 
 
-COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain, "draw": cmd_draw, "report": cmd_report, "export": cmd_export}
+COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain,
+            "draw": cmd_draw, "report": cmd_report, "export": cmd_export}
 
 
 def main(argv: list[str] | None = None) -> int:

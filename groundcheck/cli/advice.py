@@ -51,7 +51,8 @@ def cmd_suggest(args) -> int:
     if target is not None and target.exists() and not args.force:
         raise UsageError(f"{args.apply} exists; --apply writes a new file (add --force to replace it)")
     plan = load_plan(args.plan)
-    text = path.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")   # as the loader reads it: no newline translation
+    text = path.read_bytes().decode("utf-8",
+                                    "replace").lstrip("\ufeff")   # as the loader reads it: no newline translation
     root, resolved = path.resolve().parent, path.resolve()
     with _progress("trying candidate changes") as progress:
         before, evs = suggest(plan, text, options_of(args), root, resolved, budget=args.budget * 0.7, progress=progress)

@@ -96,12 +96,15 @@ _DEFAULT = Options()
 def add_analysis_options(p):
     g = p.add_argument_group("analysis")
     g.add_argument("--pe-limit", type=quantity_type("resistance", "ohm"), default=_DEFAULT.pe_limit, metavar="OHM",
-                   help=f"protective-path resistance limit (default {_DEFAULT.pe_limit:g} ohm, the usual product-safety "
+                   help=f"protective-path resistance limit (default {_DEFAULT.pe_limit:g} ohm, the usual "
+                        "product-safety "
                    "bonding limit)")
-    g.add_argument("--max-frequency", type=quantity_type("frequency", "Hz"), default=_DEFAULT.max_frequency, metavar="HZ",
+    g.add_argument("--max-frequency", type=quantity_type("frequency", "Hz"), default=_DEFAULT.max_frequency,
+                   metavar="HZ",
                    help=f"highest harmonic analysed (default {_DEFAULT.max_frequency:g} Hz)")
     g.add_argument("--hum-level", type=level_type, default=_DEFAULT.contributor_level, metavar="DBV",
-                   help=f"report hum contributors above this level at the output (default {_DEFAULT.contributor_level:g} dBV)")
+                   help="report hum contributors above this level at the output (default "
+                        f"{_DEFAULT.contributor_level:g} dBV)")
     g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
     g.add_argument("--select", type=_words, metavar="RULES", default=None,
                    help="report only these rules (codes or names, comma-separated; default: every rule)")
@@ -162,9 +165,11 @@ def _config(args) -> dict:
 def options_of(args):
     config = _config(args)
     return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
-                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1), select=_setting(args, "select", config, _DEFAULT.select),
+                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1), select=_setting(args, "select", config,
+                                                                                       _DEFAULT.select),
                    ignore=_setting(args, "ignore", config, _DEFAULT.ignore),
-                   allow_accept_danger=bool(_setting(args, "allow-accept-danger", config, _DEFAULT.allow_accept_danger)))
+                   allow_accept_danger=bool(_setting(args, "allow-accept-danger", config,
+                                                     _DEFAULT.allow_accept_danger)))
 
 
 def fail_on(args) -> str:

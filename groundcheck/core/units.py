@@ -15,7 +15,8 @@ from __future__ import annotations
 import math
 from functools import lru_cache
 
-__all__ = ["KINDS", "UnitError", "parse_quantity", "awg_diameter", "awg_area", "unit_kind", "db_of_ratio", "ratio_of_db", "dbv"]
+__all__ = ["KINDS", "UnitError", "parse_quantity", "awg_diameter", "awg_area", "unit_kind", "db_of_ratio",
+           "ratio_of_db", "dbv"]
 
 #: kinds of quantity, with the SI unit each is stored in
 KINDS = {
@@ -158,7 +159,8 @@ def parse_quantity(number: str, unit: str) -> tuple[float, str]:
         scale, kind = _TABLE[unit]
         return value * scale, kind
     close = _LOWER.get(unit.lower())
-    hint = f"did you mean {close[0]!r}?" if close else "units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; dB; C"
+    hint = (f"did you mean {close[0]!r}?" if close
+            else "units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; dB; C")
     raise UnitError(f"unknown unit {unit!r}", hint)
 
 

@@ -26,7 +26,8 @@ def _collect(built: list, ld):
     """Sort built records into the header, groups by record type, devices and library folders; names once."""
     errors = ld.errors
     header: dict = {}
-    groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage, FieldSource)}
+    groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage,
+                                                FieldSource)}
     names: dict[str, Location] = {}
     devices: list = []
     library_dirs: list[str] = []
@@ -36,7 +37,8 @@ def _collect(built: list, ld):
             continue
         if st.keyword == "device":
             if record.name in names:
-                errors.append(PlanError(f"duplicate name {record.name!r}", st.label_loc or st.loc, f"first defined at {names[record.name]}"))
+                errors.append(PlanError(f"duplicate name {record.name!r}", st.label_loc or st.loc,
+                                        f"first defined at {names[record.name]}"))
                 continue
             names[record.name] = st.label_loc or st.loc
             devices.append((record, refs))
@@ -52,7 +54,8 @@ def _collect(built: list, ld):
             if name in names or name == PE_POINT:
                 first = names.get(name)
                 errors.append(PlanError(f"duplicate name {name!r}", st.label_loc or st.loc,
-                                        f"first defined at {first}" if first else "mains.pe is the mains inlet's protective terminal"))
+                                        f"first defined at {first}" if first else "mains.pe is the mains inlet's "
+                                                                                  "protective terminal"))
                 continue
             names[name] = st.label_loc or st.loc
         groups[type(record)].append((record, refs))
@@ -82,7 +85,8 @@ def _check_points(groups, metals, check, errors) -> None:
         if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
             m = metals[p.on]
             if p.pos is not None and not m.contains(p.pos):
-                errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
+                errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside "
+                                        f"{m.name!r}",
                                         p.location, "positions are in the plan frame, in mm"))
 
 
@@ -133,10 +137,12 @@ def _check_supplies(supplies: list, mains, ld) -> None:
     the device's own supply)."""
     freqs = {s[2] for s, _ in supplies} | ({mains.frequency} if mains is not None else set())
     if len(freqs) > 1:
-        (name, _, f), loc = next((s, loc) for s, loc in supplies if s[2] != (mains.frequency if mains else supplies[0][0][2]))
-        ld.errors.append(PlanError(f"device {name} is for a {f:g} Hz supply, but the installation's other devices are on "
-                                   f"{', '.join(f'{x:g}' for x in sorted(freqs - {f}))} Hz", loc,
-                                   "one installation has one mains frequency; place the device in a plan of its own supply"))
+        (name, _, f), loc = next((s, loc) for s,
+                                 loc in supplies if s[2] != (mains.frequency if mains else supplies[0][0][2]))
+        ld.errors.append(PlanError(f"device {name} is for a {f:g} Hz supply, but the installation's other devices are "
+                                   f"on {', '.join(f'{x:g}' for x in sorted(freqs - {f}))} Hz", loc,
+                                   "one installation has one mains frequency; place the device in a plan of its own "
+                                   "supply"))
 
 
 def assemble(built: list, file: str, ld) -> Plan:

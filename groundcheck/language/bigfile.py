@@ -24,7 +24,8 @@ import os
 import re
 
 from ..core.errors import LimitError, Location, PlanError
-from ..model.records import Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point, Rectifier, Stage, from_values
+from ..model.records import (Conductor, Current, FieldSource, Heater, Listening, Mains, Metal, Point, Rectifier, Stage,
+                             from_values)
 from .phrases import Statement
 from .syntax import HEAD
 from ..core.runtime import quiet_child
@@ -113,7 +114,8 @@ def _unpack(data: bytes, ld) -> list | None:
         st = Statement(keyword, new(Location, loc), label, None if label_loc is None else new(Location, label_loc))
         if kind in _FIELDS:
             k = _LOCATION_AT[kind]
-            record = from_values(_RECORDS[kind], _FIELDS[kind], values[:k] + (new(Location, values[k]),) + values[k + 1:])
+            record = from_values(_RECORDS[kind], _FIELDS[kind], values[:k] + (new(Location, values[k]),
+                                                                              ) + values[k + 1:])
         else:
             record = values               # a header value (the plan's title or ambient temperature)
         built.append((st, record, {name: new(Location, where) for name, where in refs}))

@@ -14,7 +14,8 @@ __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
 
 CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
-                   "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced", "gain", "cmrr")
+                   "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced",
+                   "gain", "cmrr")
 #: the field a bare quantity of each kind sets on a conductor
 _CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
 

@@ -10,7 +10,8 @@ from dataclasses import replace
 from pathlib import Path
 
 from ..core.errors import PlanError, PlanErrors
-from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan, Point,
+from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan,
+                             Point,
                              Rectifier, Stage)
 from .placement import Transform
 
@@ -44,10 +45,12 @@ def simple_device(dev: Device) -> Plan:
     loc = dev.location
     metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), True, loc),)
     points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc), Point(f"{n}.gnd", "terminal", None, None, n, loc))
-    conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective", contact=0.5e-3,
+    conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective",
+                            contact=0.5e-3,
                             location=loc)]
     if dev.signal_ground == "chassis":
-        conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3, location=loc))
+        conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3,
+                                    location=loc))
     elif dev.signal_ground == "lift":
         conductors.append(Conductor(f"{n}.gnd_lift", "lift", f"{n}.gnd", f"{n}.chassis", resistance=10.0,
                                     capacitance=47e-9, location=loc))
@@ -109,7 +112,8 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
     pe = f"{dev.name}.{PE_POINT}"
     if dev.plugged is not None and pe in points:
         groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
-                                            length=dev.cord_length or cord_default[0], area=dev.cord_area or cord_default[1],
+                                            length=dev.cord_length or cord_default[0],
+                                            area=dev.cord_area or cord_default[1],
                                             location=dev.location), {}))
     return supply
 
@@ -122,10 +126,14 @@ def prefixed(p: Plan, prefix: str) -> Plan:
         metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
         points=tuple(replace(x, name=pre(x.name), on=pre(x.on), group=pre(x.group) if x.group else prefix.rstrip("."))
                      for x in p.points),
-        conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=pre(c.channel)) for c in p.conductors),
-        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.rectifiers),
-        currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel)) for r in p.currents),
-        heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b), reference=pre(h.reference)) for h in p.heaters),
+        conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b),
+                                 channel=pre(c.channel)) for c in p.conductors),
+        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b),
+                                 channel=pre(r.channel)) for r in p.rectifiers),
+        currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b),
+                               channel=pre(r.channel)) for r in p.currents),
+        heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b),
+                              reference=pre(h.reference)) for h in p.heaters),
         stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel)) for s in p.stages),
         fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
     )

@@ -63,7 +63,8 @@ def _read(p: Path, shown: str) -> str:
         data = p.read_bytes()
         note_read(p)
     except OSError as e:
-        raise PlanErrors([PlanError(f"cannot read {shown}: {e.strerror}", loc, "check the path and permissions")]) from None
+        raise PlanErrors([PlanError(f"cannot read {shown}: {e.strerror}", loc,
+                                    "check the path and permissions")]) from None
     return _decode(data, shown)
 
 
@@ -111,13 +112,16 @@ class _Loader:
         self.files.append(shown)
         for i, line in enumerate(lines):
             if len(line) > LIMITS["line_chars"]:
-                self.errors.append(LimitError(f"line is {len(line)} characters long, over the limit of {LIMITS['line_chars']}",
-                                              Location(shown, i + 1, LIMITS["line_chars"] + 1), "break it with a trailing comma"))
+                self.errors.append(LimitError(f"line is {len(line)} characters long, over the limit of "
+                                              f"{LIMITS['line_chars']}",
+                                              Location(shown, i + 1, LIMITS["line_chars"] + 1), "break it with a "
+                                                                                                "trailing comma"))
                 return []
         items, blocks = parse_text(text, shown, self.errors)
         for name, bd in blocks.items():
             if name in self.blocks and self.blocks[name] is not bd:
-                self.errors.append(PlanError(f"block {name!r} is defined twice", bd.loc, f"first defined at {self.blocks[name].loc}"))
+                self.errors.append(PlanError(f"block {name!r} is defined twice", bd.loc, "first defined at "
+                                                                                         f"{self.blocks[name].loc}"))
             self.blocks.setdefault(name, bd)
         out = []
         for it in items:
@@ -133,7 +137,8 @@ class _Loader:
             return []
         item = st.phrases[0][0]
         if len(stack) >= LIMITS["include_depth"]:
-            self.errors.append(LimitError(f"includes nested deeper than {LIMITS['include_depth']}", item.loc, "flatten the includes"))
+            self.errors.append(LimitError(f"includes nested deeper than {LIMITS['include_depth']}", item.loc,
+                                          "flatten the includes"))
             return []
         here = stack[-1].parent if stack else self.root
         target = (here / item.value).resolve()
@@ -145,7 +150,8 @@ class _Loader:
             return []
         if target in stack:
             chain = " -> ".join(p.name for p in stack + (target,))
-            self.errors.append(PlanError(f"include cycle: {chain}", item.loc, "a plan cannot include itself, directly or not"))
+            self.errors.append(PlanError(f"include cycle: {chain}", item.loc, "a plan cannot include itself, directly "
+                                                                              "or not"))
             return []
         if not target.is_file():
             self.errors.append(PlanError(f"included file {item.value!r} not found", item.loc, f"looked for {target}"))
@@ -206,7 +212,8 @@ class _Loader:
         r = Reader(st.phrases[0], st)
         block, bloc = r.name("a block name")
         if block not in self.blocks:
-            raise PlanError(f"undefined block {block!r}", bloc, suggest_keyword(block, self.blocks) if self.blocks else "define it with 'block NAME { ... }'")
+            hint = suggest_keyword(block, self.blocks) if self.blocks else "define it with 'block NAME { ... }'"
+            raise PlanError(f"undefined block {block!r}", bloc, hint)
         r.expect("as")
         prefix, _ = r.name("a name for this placement")
         ox = oy = 0.0
@@ -231,22 +238,26 @@ class _Loader:
         for it in items:
             if isinstance(it, tuple):          # a block definition
                 if prefix:
-                    self.errors.append(PlanError("blocks are defined at the top level of a file", it[1].loc, "move the block out"))
+                    self.errors.append(PlanError("blocks are defined at the top level of a file", it[1].loc,
+                                                 "move the block out"))
                 continue
             st: Statement = it
             try:
                 if st.keyword == "place":
                     block, sub, inner_tf = self.parse_place(st)
                     if block in path:
-                        raise PlanError(f"block {block!r} places itself", st.loc, "a block cannot contain itself, directly or not")
+                        raise PlanError(f"block {block!r} places itself", st.loc, "a block cannot contain itself, "
+                                                                                  "directly or not")
                     if depth + 1 > LIMITS["block_depth"]:
-                        raise LimitError(f"blocks placed more than {LIMITS['block_depth']} deep", st.loc, "flatten the blocks")
+                        raise LimitError(f"blocks placed more than {LIMITS['block_depth']} deep", st.loc,
+                                         "flatten the blocks")
                     if depth == 0:                 # a top-level placement: its size counts every nested one
                         self.placed += self.block_size(block)
                     if self.placed > LIMITS["placed_elements"]:
-                        raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit of "
-                                         f"{LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
-                                         "a block placed inside blocks multiplies; place fewer, or write a large flat plan")
+                        raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit "
+                                         f"of {LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
+                                         "a block placed inside blocks multiplies; place fewer, or write a large flat "
+                                         "plan")
                     new_prefix = f"{prefix}{sub}."
                     self.expand(self.blocks[block].body, new_prefix, inner_tf.then(tf),
                                 ((new_prefix, self.local_names(block)),) + scopes, depth + 1, path + (block,), out)
@@ -258,7 +269,8 @@ class _Loader:
                         self.broken.add(prefix + st.label)
                     continue
                 if prefix and st.keyword in HEADER_KEYWORDS:
-                    raise PlanError(f"'{st.keyword}' belongs at the top level, not inside a block", st.loc, "move it out of the block")
+                    raise PlanError(f"'{st.keyword}' belongs at the top level, not inside a block", st.loc,
+                                    "move it out of the block")
                 record, refs = build(st)
                 self.count += 1
                 if self.count > LIMITS["elements"]:
@@ -293,7 +305,8 @@ class _Loader:
             size = None if record.size is None else (record.size[0] * tf.sx, record.size[1] * tf.sy)
             return replace(record, name=prefix + record.name, origin=tf(record.origin), size=size)
         if isinstance(record, Point):
-            return replace(record, name=prefix + record.name, pos=tf(record.pos), on=res(record.on), group=prefix.rstrip("."))
+            return replace(record, name=prefix + record.name, pos=tf(record.pos), on=res(record.on),
+                           group=prefix.rstrip("."))
         if isinstance(record, Conductor):
             return replace(record, name=prefix + record.name if record.name else "", a=res(record.a), b=res(record.b),
                            route=tuple(tf(p) for p in record.route),
@@ -305,7 +318,8 @@ class _Loader:
             return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
                            channel=record.channel if explicit_channel else channel)
         if isinstance(record, Heater):
-            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), reference=res(record.reference))
+            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
+                           reference=res(record.reference))
         if isinstance(record, FieldSource):
             return replace(record, name=prefix + record.name, pos=tf(record.pos))
         return record

@@ -250,13 +250,15 @@ def check_quantity(it: Item, kind: str, what: str, positive: bool = True, allow_
     if it.kind != "qty":
         raise PlanError(f"expected {what} ({kind}), found {it.text!r}", it.loc, "")
     if it.qkind != kind:
-        raise PlanError(f"{what} must be a {kind}, not a {it.qkind}", it.loc, f"use a {kind} unit such as {_example_unit(kind)}")
+        raise PlanError(f"{what} must be a {kind}, not a {it.qkind}", it.loc, f"use a {kind} unit such as "
+                                                                              f"{_example_unit(kind)}")
     v = it.value
     check_range(v, kind, what, it.loc, it.text)
     if kind == "temperature":
         return v
     if positive and (v < 0 or (v == 0 and not allow_zero)):
-        raise PlanError(f"{what} must be {'zero or more' if allow_zero else 'more than zero'}, got {it.text}", it.loc, "")
+        raise PlanError(f"{what} must be {'zero or more' if allow_zero else 'more than zero'}, got {it.text}", it.loc,
+                        "")
     return v
 
 
@@ -280,10 +282,12 @@ def check_range(v: float, kind: str, what: str, loc: Location, text: str) -> Non
         raise PlanError(f"{what} must be a finite number, got {text}", loc, "write the value in ordinary digits")
     lo, hi = RANGES.get(kind, (0.0, 1e12))
     if kind == "temperature" and v < MIN_TEMPERATURE:
-        raise PlanError(f"{what} {text} is below {MIN_TEMPERATURE:g} C", loc, "give a temperature from -200 C to 1000 C")
+        raise PlanError(f"{what} {text} is below {MIN_TEMPERATURE:g} C", loc,
+                        "give a temperature from -200 C to 1000 C")
     if abs(v) > hi or (v != 0 and abs(v) < lo):
         raise PlanError(f"{what} {text} is outside the range groundcheck accepts for a {kind} "
-                        f"({lo:g} to {hi:g} in SI units)", loc, f"check the number and its unit ({_example_unit(kind)})")
+                        f"({lo:g} to {hi:g} in SI units)", loc,
+                        f"check the number and its unit ({_example_unit(kind)})")
 
 
 def _example_unit(kind: str) -> str:

@@ -20,4 +20,5 @@ class Transform:
         return None if p is None else (self.ox + self.sx * p[0], self.oy + self.sy * p[1])
 
     def then(self, outer: "Transform") -> "Transform":
-        return Transform(outer.ox + outer.sx * self.ox, outer.oy + outer.sy * self.oy, outer.sx * self.sx, outer.sy * self.sy)
+        return Transform(outer.ox + outer.sx * self.ox, outer.oy + outer.sy * self.oy, outer.sx * self.sx,
+                         outer.sy * self.sy)

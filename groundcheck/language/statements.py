@@ -13,7 +13,8 @@ from ..core.units import ratio_of_db
 from ..model.records import Device, FieldSource, Listening, Metal, Point, Stage, make
 from .conductors import conductor
 from .phrases import Reader, Statement, check_quantity
-from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_ends, it_number, material, need_label, no_label,
+from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_ends, it_number, material, need_label,
+                      no_label,
                       unknown)
 from .supply import current, heater, mains, rectifier
 
@@ -80,7 +81,8 @@ def metal(stmt: Statement):
                 raise PlanError("width must be more than zero", first.loc, "")
             for side, text in ((w * scale, first.text), (d, it.text)):
                 if side > MAX_PART_SIDE:
-                    raise PlanError(f"a metal part {text} across is larger than groundcheck models ({MAX_PART_SIDE:g} m)",
+                    raise PlanError(f"a metal part {text} across is larger than groundcheck models ({MAX_PART_SIDE:g} "
+                                    "m)",
                                     first.loc, "describe chassis parts, panels and racks, each under 10 m")
             kw["size"] = (w * scale, d)
         elif first.kind == "qty":
@@ -173,16 +175,19 @@ def field_source(stmt: Statement):
         r.finish()
     for need, ex in (("pos", "at 60,180"), ("b_ref", "30 uT at 5 cm")):
         if need not in kw:
-            raise PlanError(f"field needs {ex.split()[0] if need == 'pos' else 'its strength'}", stmt.loc, f"e.g. ', {ex}'")
+            raise PlanError(f"field needs {ex.split()[0] if need == 'pos' else 'its strength'}", stmt.loc,
+                            f"e.g. ', {ex}'")
     return FieldSource(name=name, harmonics=tuple(harmonics), location=stmt.loc, **kw), {}
 
 
 def device(stmt: Statement):
     name = need_label(stmt)
     if not stmt.phrases:
-        raise PlanError("device needs its plan file or 'simple'", stmt.loc, 'e.g. device amp: "amp.gplan", plugged wall1')
+        raise PlanError("device needs its plan file or 'simple'", stmt.loc, 'e.g. device amp: "amp.gplan", plugged '
+                                                                            'wall1')
     first = stmt.phrases[0]
-    if len(first) != 1 or first[0].kind not in ("string", "word") or (first[0].kind == "word" and first[0].value != "simple"):
+    if len(first) != 1 or first[0].kind not in ("string",
+                                                "word") or (first[0].kind == "word" and first[0].value != "simple"):
         raise PlanError("device: first give a quoted plan file or the word simple", first[0].loc,
                         'e.g. device amp: "amp.gplan" or device mixer: simple')
     kw: dict = {"source": first[0].value}

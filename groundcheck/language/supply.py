@@ -26,24 +26,29 @@ MAINS_ATTRIBUTES = {
 MAINS_WORDS = ("fuse", "breaker", "cord", "circuit", "system", "class", "breaking", "inlet", *MAINS_ATTRIBUTES)
 
 
+def _voltage_and_frequency(r: Reader, kw: dict) -> None:
+    """The phrase of quantities that opens a mains statement: '230 V 50 Hz'."""
+    while not r.done:
+        it = r.next("a quantity")
+        if it.kind == "qty" and it.qkind == "voltage":
+            kw["voltage"] = check_quantity(it, "voltage", "mains voltage")
+        elif it.kind == "qty" and it.qkind == "frequency":
+            kw["frequency"] = check_quantity(it, "frequency", "mains frequency")
+            if not MAINS_FREQUENCY[0] <= kw["frequency"] <= MAINS_FREQUENCY[1]:
+                raise PlanError(f"mains frequency {it.text} is outside "
+                                f"{MAINS_FREQUENCY[0]:g}–{MAINS_FREQUENCY[1]:g} Hz",
+                                it.loc, "mains is 50 or 60 Hz (aircraft 400 Hz)")
+        else:
+            raise PlanError(f"mains: unexpected {it.text!r}", it.loc, "write e.g. 'mains 230 V 50 Hz'")
+
+
 def mains(stmt: Statement):
     no_label(stmt)
     kw: dict = {}
     for ph in stmt.phrases:
         r = Reader(ph, stmt)
-        first = r.peek()
-        if first.kind == "qty":
-            while not r.done:
-                it = r.next("a quantity")
-                if it.kind == "qty" and it.qkind == "voltage":
-                    kw["voltage"] = check_quantity(it, "voltage", "mains voltage")
-                elif it.kind == "qty" and it.qkind == "frequency":
-                    kw["frequency"] = check_quantity(it, "frequency", "mains frequency")
-                    if not MAINS_FREQUENCY[0] <= kw["frequency"] <= MAINS_FREQUENCY[1]:
-                        raise PlanError(f"mains frequency {it.text} is outside {MAINS_FREQUENCY[0]:g}–{MAINS_FREQUENCY[1]:g} Hz",
-                                        it.loc, "mains is 50 or 60 Hz (aircraft 400 Hz)")
-                else:
-                    raise PlanError(f"mains: unexpected {it.text!r}", it.loc, "write e.g. 'mains 230 V 50 Hz'")
+        if r.peek().kind == "qty":
+            _voltage_and_frequency(r, kw)
             continue
         word = r.word("an attribute")
         if word in ("fuse", "breaker"):
@@ -74,7 +79,8 @@ def mains(stmt: Statement):
             if it is not None and it.kind == "qty":
                 kw["breaking_current"] = r.quantity("current", "breaking capacity")
             else:
-                kw["breaking"] = r.word("a breaking capacity (low, enhanced, high, or a current)", ("low", "enhanced", "high"))
+                kw["breaking"] = r.word("a breaking capacity (low, enhanced, high, or a current)",
+                                        ("low", "enhanced", "high"))
         elif word == "inlet":
             r.expect("at")
             kw["inlet"] = r.coord()

@@ -23,7 +23,8 @@ __all__ = ["parse_text", "BlockDef", "grammar_text", "HEAD", "head_parts"]
 #: the most syntax errors reported for one file before giving up
 MAX_SYNTAX_ERRORS = 20
 
-_FRIENDLY = {"WORD": "a keyword", "REST": "attributes", "NUMBER": "a number", "COORD": "a position x,y", "STRING": "a quoted string",
+_FRIENDLY = {"WORD": "a keyword", "REST": "attributes", "NUMBER": "a number", "COORD": "a position x,y",
+             "STRING": "a quoted string",
              "HEAD": "a keyword and a name", "_NL": "the end of the line", "COMMA": "a comma",
              "LBRACE": "'{'", "RBRACE": "'}'", "BLOCK": "'block'", "$END": "the end of the file"}
 
@@ -128,7 +129,8 @@ def _syntax_error(e: UnexpectedInput, file: str, lines: list[str]) -> PlanError:
     if isinstance(e, UnexpectedEOF) or (isinstance(e, UnexpectedToken) and e.token.type == "$END"):
         line = max(1, len(lines))
         col = len(lines[line - 1]) + 1 if lines else 1
-        return PlanError("unexpected end of file", Location(file, line, col), "a block opened with '{' needs its closing '}'")
+        return PlanError("unexpected end of file", Location(file, line, col), "a block opened with '{' needs its "
+                                                                              "closing '}'")
     if isinstance(e, UnexpectedCharacters):
         ch = lines[line - 1][col - 1] if line - 1 < len(lines) and col - 1 < len(lines[line - 1]) else "?"
         hint = "names start with a letter; positions are x,y with no space; strings use double quotes"
@@ -186,7 +188,8 @@ def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dic
             for st in child.body:
                 _mark(st, bad_lines)
             if child.name in blocks:
-                errors.append(PlanError(f"block {child.name!r} is defined twice", child.loc, f"first defined at {blocks[child.name].loc}"))
+                errors.append(PlanError(f"block {child.name!r} is defined twice", child.loc,
+                                        f"first defined at {blocks[child.name].loc}"))
             blocks[child.name] = child
             out.append(("block", child))
         else:

@@ -15,7 +15,8 @@ from .kinds import CONDUCTOR_KINDS
 
 __all__ = [
     "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
-    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD", "SYSTEMS", "make",
+    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD",
+    "SYSTEMS", "make",
     "from_values",
 ]
 
@@ -278,7 +279,8 @@ class Plan:
     files: tuple[str, ...] = ()
     location: Location = field(default=Location("<plan>"), compare=False)
     device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
-    acceptances: tuple[tuple[str, int, tuple[str, ...], str], ...] = ()   # (file, line, codes, reason) of '# accept' comments
+    acceptances: tuple[tuple[str, int, tuple[str, ...], str],
+                       ...] = ()   # (file, line, codes, reason) of '# accept' comments
 
     @property
     def frequency(self) -> float:

@@ -18,7 +18,8 @@ import scipy.sparse.csgraph as csgraph
 
 from ..model.records import Plan
 
-__all__ = ["build_graph", "edges_of", "part_labels", "components", "loop_count", "fundamental_loops", "Loop", "loop_polygon", "polygon_area"]
+__all__ = ["build_graph", "edges_of", "part_labels", "components", "loop_count", "fundamental_loops", "Loop",
+           "loop_polygon", "polygon_area"]
 
 
 def build_graph(plan: Plan) -> nx.MultiGraph:
@@ -63,7 +64,8 @@ def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list
     if not order:
         return order, np.zeros(0, dtype=np.int32), 0
     idx = {n: i for i, n in enumerate(order)}
-    pairs = np.array([(idx[e[0]], idx[e[1]]) for e in (edges_of(G) if edges is None else edges)], dtype=np.int64).reshape(-1, 2)
+    pairs = np.array([(idx[e[0]], idx[e[1]]) for e in (edges_of(G) if edges is None else edges)],
+                     dtype=np.int64).reshape(-1, 2)
     ncomp, labels = part_labels(len(order), pairs[:, 0], pairs[:, 1])
     return order, labels, ncomp
 

@@ -21,7 +21,8 @@ from ..core.errors import Location
 from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
 
-__all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner", "pair_path", "path_drop",
+__all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner",
+           "pair_path", "path_drop",
            "SHARE_THRESHOLD"]
 
 #: a branch counts as carrying a current when it carries at least this fraction of it
@@ -56,7 +57,8 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[So
         parts: dict = {}
         for amp, f in c.parts:
             parts[f] = parts.get(f, 0) + complex(amp)
-        out.append(Source(c.name, "signal" if c.role == "signal" else "current", c.a, c.b, parts, c.channel, c.location))
+        out.append(Source(c.name, "signal" if c.role == "signal" else "current", c.a, c.b, parts, c.channel,
+                          c.location))
     for h in plan.heaters:
         if h.a is not None and h.b is not None:
             out.append(Source(h.name, "heater", h.a, h.b, {f0 if h.ac else 0.0: complex(h.current)}, None, h.location))
@@ -160,7 +162,8 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     (source, stage) pair that shares, naming the conductors that make up most of the coupling."""
     # a unit current between each source's ends shows the sharing: rectifiers need no simulation here
     sources = [Source(r.name, "rectifier", r.a, r.b, {0.0: 1.0}, r.channel, r.location) for r in plan.rectifiers]
-    sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel, c.location) for c in plan.currents if c.role != "signal"]
+    sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel,
+                       c.location) for c in plan.currents if c.role != "signal"]
     sources += [Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location) for h in plan.heaters if h.a and h.b]
     stages = list(plan.stages)
     if not sources or not stages:

@@ -41,7 +41,8 @@ def dbu_from_dbv(level_dbv: float) -> float:
     return level_dbv - db_of_ratio(DBU_REF)
 
 
-def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, impedance: float, distance: float) -> float:
+def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, impedance: float,
+                    distance: float) -> float:
     """Sound pressure level (dB SPL) at the listener of a voltage at the plan's output.
 
     V at the speaker = v_out·10^(gain/20); electrical power P = V²/Z; SPL =

@@ -99,7 +99,8 @@ class HumResult:
 def _emf_columns(circuit, loops, fields, f0, f, names, flux):
     """Series-EMF columns (branches × k) at frequency f: one per (loop, field source) with a harmonic at f.
 
-    ``names``: conductor name -> branch index; ``flux``: (loop index, source name) -> the source's flux through the loop, Wb rms."""
+    ``names``: conductor name -> branch index; ``flux``: (loop index, source name) -> the source's flux through the
+    loop, Wb rms."""
     cols, meta = [], []
     for li, info in enumerate(loops):
         if info.polygon is None:
@@ -131,12 +132,14 @@ class _FrequencyPart:
 
     out: list = field(default_factory=list)          # (channel, source group, phasor at the output)
     contrib: list = field(default_factory=list)      # (channel, contributor label, phasor)
-    loops: list = field(default_factory=list)        # (loop index, field source, emf V, loop current A, per-stage phasors)
+    # (loop index, field source, emf V, loop current A, per-stage phasors)
+    loops: list = field(default_factory=list)
     network: list = field(default_factory=list)      # rows of the JSON ``network`` section
     crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
 
 
-def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOptions = HumOptions(), jobs: int = 1) -> HumResult:
+def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOptions = HumOptions(),
+               jobs: int = 1) -> HumResult:
     """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk.
 
     Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
@@ -149,7 +152,8 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     channels = {ch: merged.channel(ch) for ch in b.channels}
     if len(b.channels) > 1 and not b.signal_sources:
         b.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
-    return HumResult(channels, list(rectifier_results.values()), [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
+    return HumResult(channels, list(rectifier_results.values()),
+                     [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
                      merged.crosstalk(), b.freqs, merged.network_rows, b.notes)
 
 
@@ -171,7 +175,8 @@ class _Budget:
         self.fields = {x.name: x for x in plan.fields}
         self.notes = []
         if listening is None:
-            self.notes.append("no listening context: levels are against a rated output of 1 V and no audibility verdict is given")
+            self.notes.append("no listening context: levels are against a rated output of 1 V and no audibility "
+                              "verdict is given")
         elif listening.sensitivity is None:
             self.notes.append("listening context has no speaker sensitivity: no audibility verdict is given")
         _, labels = circuit.components
@@ -180,13 +185,16 @@ class _Budget:
         self.paths = [pair_path(circuit, s.a, s.b) if ok and loops and plan.fields else []
                       for s, ok in zip(stages, self.valid_stage)]
         freqs = sorted({f for s in self.hum_sources for f in s.parts if f > 0} |
-                       ({n * f0 for src in plan.fields for n in [1] + [h for h, _ in src.harmonics]} if loops else set()))
+                       ({n * f0 for src in plan.fields for n in [1] + [h for h,
+                                                                       _ in src.harmonics]} if loops else set()))
         self.freqs = freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
-        self.xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else options.max_frequency})
+        self.xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0,
+                                max(freqs) if freqs else options.max_frequency})
         self.crosstalk_wanted = bool(self.signal_sources) and len(channels) > 1 and bool(stages)
         self.gains = np.array([ratio_of_db(s.gain) for s in stages])
         self.valid_idx = np.flatnonzero(self.valid_stage) if stages else np.zeros(0, dtype=int)
-        # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the module doc)
+        # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the
+        # module doc)
         self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
         self.flux = {(li, src.name): loop_flux(src, info.polygon)
                      for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
@@ -222,7 +230,8 @@ class _Budget:
                 shares = shares_all[:, si]
                 mags = np.abs(shares)
                 # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
-                top = np.argpartition(-mags, TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
+                top = np.argpartition(-mags,
+                                      TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
                 top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
                 for bi in top:
                     part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
@@ -292,7 +301,8 @@ class _Merged:
     def _loop(self, f, li, src_name, emf_v, current, drops) -> None:
         b = self.b
         info = b.loops[li]
-        row = self.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes), "closed_by": info.closed_by,
+        row = self.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes),
+                                             "closed_by": info.closed_by,
                                              "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
                                              "sources": {}})
         entry = row["sources"].get(src_name)
@@ -322,7 +332,8 @@ class _Merged:
             total2 += v * v
             row = {"frequency_hz": f, "volts": v, "dbv": _r(dbv(v))}
             if listening is not None and listening.sensitivity is not None:
-                spl = spl_at_listener(v, listening.amp_gain, listening.sensitivity, listening.impedance, listening.distance)
+                spl = spl_at_listener(v, listening.amp_gain, listening.sensitivity, listening.impedance,
+                                      listening.distance)
                 thr = threshold_of_hearing(f)
                 row.update(spl_db=_r(spl), threshold_db=thr, margin_db=_r(spl - thr))
                 if math.isfinite(spl) and (worst is None or spl - thr > worst):
@@ -341,7 +352,8 @@ class _Merged:
             lvl = math.sqrt(sum(abs(p) ** 2 for p in per_f.values()))
             if lvl < FLOOR_V:
                 continue
-            clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl, "dbv": _r(dbv(lvl))})
+            clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl,
+                          "dbv": _r(dbv(lvl))})
         tot_c = sum(c["volts"] ** 2 for c in clist) or 1.0
         for c in clist:
             c["share_pct"] = round(100 * c["volts"] ** 2 / tot_c, 1)
@@ -351,7 +363,9 @@ class _Merged:
     def crosstalk(self) -> list[dict]:
         rated = self.b.rated
         out = []
-        for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])):
+        for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1],
+                                                                                         kv[0][2])):
             out.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
-                        "db": _r(max(CROSSTALK_FLOOR_DB, db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
+                        "db": _r(max(CROSSTALK_FLOOR_DB,
+                                     db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
         return out

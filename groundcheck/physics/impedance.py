@@ -116,7 +116,8 @@ def conductor_resistance(c, temperature: float) -> tuple[float, float, float]:
     if model == "contact":
         return (c.resistance if c.resistance is not None else contact), 0.0, 0.0
     if model == "switch":
-        return (c.resistance if c.resistance is not None else (c.contact if c.contact is not None else DEFAULT_SWITCH_CONTACT)), 0.0, 0.0
+        closed = c.contact if c.contact is not None else DEFAULT_SWITCH_CONTACT
+        return (c.resistance if c.resistance is not None else closed), 0.0, 0.0
     if model == "lift":
         return c.resistance, 0.0, 0.0
     length = c.length or 0.0

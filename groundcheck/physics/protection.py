@@ -9,9 +9,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["STANDARD_PE_LIMIT", "FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TIMES", "DISCONNECTION_LIMITS", "SYSTEMS", "DEFAULT_ZE",
+__all__ = ["STANDARD_PE_LIMIT", "FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TIMES", "DISCONNECTION_LIMITS",
+           "SYSTEMS", "DEFAULT_ZE",
            "BREAKING_CAPACITY", "CORD_CLASS5", "FIXED_CLASS2", "Clearing", "fuse_clearing", "breaker_clearing",
-           "rcd_clearing", "device_clearing", "max_disconnection_time", "breaking_capacity", "fuse_cold_resistance", "cable_resistance",
+           "rcd_clearing", "device_clearing", "max_disconnection_time", "breaking_capacity", "fuse_cold_resistance",
+           "cable_resistance",
            "DEFAULT_CIRCUIT"]
 
 from ..model.records import SYSTEMS

@@ -140,7 +140,8 @@ class SafetyResult:
         return {"limit_ohm": self.limit, "standard_limit_ohm": STANDARD_PE_LIMIT, "limit_relaxed": self.relaxed,
                 "system": s.system, "external_loop_ohm": r(s.ze), "external_loop_stated": s.ze_stated,
                 "circuit_line_ohm": r(s.circuit_line), "circuit_protective_ohm": r(s.circuit_cpc),
-                "cord_line_ohm": r(s.cord_line), "cord_pe_ohm": r(s.cord_pe), "fuse_resistance_ohm": r(s.fuse_resistance),
+                "cord_line_ohm": r(s.cord_line), "cord_pe_ohm": r(s.cord_pe),
+                "fuse_resistance_ohm": r(s.fuse_resistance),
                 "electrode_ohm": r(s.electrode), "max_disconnection_s": s.max_time,
                 "breaking_capacity_a": r(s.breaking_capacity, 3),
                 "parts": [p.as_dict() for p in self.parts], "conductors": [c.as_dict() for c in self.conductors]}
@@ -185,7 +186,8 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
 def protective_circuit(plan: Plan, route: ProtectiveRoute, circuit=None):
     """The protective network: conductors protective by topology or role (of a kind that may carry protective
     current) with every metal part's plate network; from the plan's full circuit when given."""
-    keep = {c.name for c in plan.conductors if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES)}
+    keep = {c.name for c in plan.conductors
+            if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES)}
     if circuit is None:
         circuit = build_circuit(plan)
     return circuit.restricted(keep)

@@ -62,9 +62,11 @@ def _problems(result: Result):
 def _legend(x: float, y: float) -> str:
     rows = [("#2f7d32", "protective earth (green-and-yellow)"), ("#d2691e", "supply return"),
             ("#1f5fa8", "signal reference"), ("#7a7a7a", "shield (dashed)"), ("#404040", "fastening (dotted)"),
-            ("#7b3fa0", "lift network (dashed)"), ("#f5a800", "ground loop (band)"), ("#e03030", "problem (halo, codes)")]
+            ("#7b3fa0", "lift network (dashed)"), ("#f5a800", "ground loop (band)"), ("#e03030",
+                                                                                      "problem (halo, codes)")]
     cells = "".join(f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows)
-    label = f'<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999"><TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}</TABLE>>'
+    label = (f'<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999">'
+             f'<TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}</TABLE>>')
     return f'  legend [shape=plaintext, fontsize=9, pos="{x:.1f},{y:.1f}!", label={label}];'
 
 
@@ -84,7 +86,8 @@ def physical_dot(result: Result) -> str:
     def P(q):
         return ((q[0] - x0) * scale + 20, (q[1] - y0) * scale + 20)
 
-    lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
+    lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
+                                 "fontname=Helvetica, "
              'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72];',
              '  node [fontname=Helvetica, fontsize=8];', '  edge [fontname=Helvetica, fontsize=8];']
     _metals(plan, marks, scale, P, lines)
@@ -96,7 +99,8 @@ def physical_dot(result: Result) -> str:
     if any(missing):
         note = (f"not drawn here: {missing[0]} points and {missing[1]} conductors without positions "
                 "(groundcheck draw --view topology shows every one)")
-        lines.append(f"  {dot_quote('note:omitted')} [shape=note, fontsize=9, fontcolor=\"#a04000\", color=\"#a04000\", "
+        lines.append(f"  {dot_quote('note:omitted')} [shape=note, fontsize=9, fontcolor=\"#a04000\", "
+                     "color=\"#a04000\", "
                      f"label={dot_quote(note)}, pos=\"{20:.1f},{-30:.1f}!\"];")
     lines.append(_legend((x1 - x0) * scale + 150, 80))
     lines.append("}")
@@ -113,7 +117,8 @@ def _metals(plan, marks, scale, P, lines) -> None:
         px, py = P((cx, cy))
         style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8" if m.touchable else "#ebebeb",
                  "color": "#e03030" if m.name in marks else "#9a9a9a", "width": f"{w:.3f}", "height": f"{h:.3f}",
-                 "fixedsize": "true", "label": m.name + (" [" + ", ".join(marks[m.name]) + "]" if m.name in marks else ""),
+                 "fixedsize": "true",
+                 "label": m.name + (" [" + ", ".join(marks[m.name]) + "]" if m.name in marks else ""),
                  "labelloc": "b", "fontcolor": "#666666", "pos": f"{px:.1f},{py:.1f}!"}
         lines.append(f"  {dot_quote('metal:' + m.name)} [{_attrs(style)}];")
 
@@ -133,7 +138,8 @@ def _points(plan, marks, positioned, P, lines) -> None:
         elif name in fastened:
             style.update(shape="square", width="0.11", height="0.11", fillcolor="#555555")
         if name in marks:
-            style.update(color="#e03030", penwidth="2.5", xlabel=f"{name} [{', '.join(marks[name])}]", fontcolor="#b00000")
+            style.update(color="#e03030", penwidth="2.5", xlabel=f"{name} [{', '.join(marks[name])}]",
+                         fontcolor="#b00000")
         lines.append(f"  {dot_quote(name)} [{_attrs(style)}];")
 
 
@@ -185,7 +191,8 @@ def _metal_loops(result, positioned, lines) -> None:
             if node in metals:
                 before, after = lp.loop.nodes[j - 1], lp.loop.nodes[(j + 1) % n]
                 if before in positioned and after in positioned:
-                    lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} [color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
+                    lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} "
+                                 f"[color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
                                  f"label={dot_quote(f'loop {i} through {node}')}, fontcolor=\"#a06000\"];")
 
 
@@ -193,7 +200,8 @@ def _fields(plan, P, lines) -> None:
     for f in plan.fields:
         px, py = P(f.pos)
         lines.append(f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, style=filled, "
-                     f"fillcolor=\"#fde3e3\", color=\"#c04040\", label=\"\", xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
+                     "fillcolor=\"#fde3e3\", color=\"#c04040\", label=\"\", "
+                     f"xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
                      f"pos=\"{px:.1f},{py:.1f}!\"];")
 
 
@@ -221,8 +229,10 @@ def topology_dot(result: Result) -> str:
     """The topology view, laid out automatically: every point, part and conductor, for plans without positions."""
     plan = result.plan
     marks = _problems(result)
-    lines = ["graph topology {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
-             "rankdir=LR, overlap=false];", "  node [fontname=Helvetica, fontsize=9];", "  edge [fontname=Helvetica, fontsize=8];"]
+    lines = ["graph topology {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
+                                 "fontname=Helvetica, "
+             "rankdir=LR, overlap=false];", "  node [fontname=Helvetica, fontsize=9];", "  edge [fontname=Helvetica, "
+                                                                                        "fontsize=8];"]
     clusters = _clusters(plan)
     node_lines: dict[str | None, list[str]] = {}
     for m in plan.metals:

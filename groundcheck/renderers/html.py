@@ -22,10 +22,12 @@ __all__ = ["html_report", "spectrum_svg"]
 
 CSS = """
 body{font-family:system-ui,Helvetica,Arial,sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}
-h1{font-size:1.5em;margin-bottom:.2em}h2{font-size:1.15em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
+h1{font-size:1.5em;margin-bottom:.2em}
+h2{font-size:1.15em;border-bottom:1px solid #ccc;padding-bottom:.2em;margin-top:1.6em}
 .caution{background:#fff6e0;border-left:4px solid #e0a000;padding:.5em .8em;font-size:.9em}
 .notice{background:#ffe8e0;border-left:4px solid #c03000;padding:.4em .8em}
-table{border-collapse:collapse;margin:.5em 0;font-size:.9em}td,th{border:1px solid #ccc;padding:.25em .6em;text-align:left}
+table{border-collapse:collapse;margin:.5em 0;font-size:.9em}
+td,th{border:1px solid #ccc;padding:.25em .6em;text-align:left}
 th{background:#f2f2f2}td.num{text-align:right;font-variant-numeric:tabular-nums}
 .sev{font-weight:bold;padding:0 .4em;border-radius:3px;color:#fff}.danger{background:#b00020}.fault{background:#d9480f}
 .warning{background:#b08800}.note{background:#1f6f8b}.fix{color:#225522}.fig{color:#555;font-size:.85em}
@@ -82,7 +84,8 @@ def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
     for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000):
         if f <= hi_f:
             out.append(f'<line x1="{X(f):.1f}" y1="{T}" x2="{X(f):.1f}" y2="{H - B}" stroke="#e4e4e4"/>'
-                       f'<text x="{X(f):.1f}" y="{H - B + 14}" font-size="10" text-anchor="middle">{f if f < 1000 else str(f // 1000) + "k"}</text>')
+                       f'<text x="{X(f):.1f}" y="{H - B + 14}" font-size="10" '
+                       f'text-anchor="middle">{f if f < 1000 else str(f // 1000) + "k"}</text>')
     step = 20
     v = math.ceil(bottom / step) * step
     while v <= top:
@@ -91,12 +94,14 @@ def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
         v += step
     out.append(f'<text x="{(W + L) / 2:.0f}" y="{H - 4}" font-size="11" text-anchor="middle">frequency, Hz</text>')
     out.append(f'<text x="12" y="{(H - B + T) / 2:.0f}" font-size="11" text-anchor="middle" '
-               f'transform="rotate(-90 12 {(H - B + T) / 2:.0f})">{"dB SPL at the listener" if listening else "dBV at the output"}</text>')
+               'transform="rotate(-90 12 '
+               f'{(H - B + T) / 2:.0f})">{"dB SPL at the listener" if listening else "dBV at the output"}</text>')
     if listening:
         fs = [lo_f * (hi_f / lo_f) ** (i / 60) for i in range(61)]
         pts = " ".join(f"{X(f):.1f},{Y(threshold_of_hearing(f)):.1f}" for f in fs)
         out.append(f'<polyline points="{pts}" fill="none" stroke="#2a8a2a" stroke-width="2" stroke-dasharray="5,3"/>'
-                   f'<text x="{W - R - 4}" y="{T + 12}" font-size="10" text-anchor="end" fill="#2a8a2a">threshold of hearing (ISO 226)</text>')
+                   f'<text x="{W - R - 4}" y="{T + 12}" font-size="10" text-anchor="end" fill="#2a8a2a">threshold of '
+                   'hearing (ISO 226)</text>')
     for r in rows:
         if r.get(key) is None:
             continue
@@ -132,7 +137,8 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
         w = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = w.path_resistance <= result.safety.limit
         parts.append(f'<p><b>Protective earth:</b> <span class="{"ok" if ok else "bad"}">worst path '
-                     f"{w.path_resistance * 1e3:.2f} mΩ to {e(w.part)} (limit {result.safety.limit * 1e3:.0f} mΩ)</span>.</p>")
+                     f"{w.path_resistance * 1e3:.2f} mΩ to {e(w.part)} (limit {result.safety.limit * 1e3:.0f} "
+                     "mΩ)</span>.</p>")
     if result.hum is not None:
         parts.append('<table id="hum-summary"><tr><th>channel</th><th>hum at output</th><th>signal-to-hum</th>'
                      "<th>verdict</th><th>margin</th><th>main contributor</th></tr>")
@@ -156,7 +162,8 @@ def _findings_section(result: Result, parts: list[str], physical_svg, topology_s
     if not result.findings:
         parts.append("<h2>Findings</h2><p>No findings.</p>")
     else:
-        parts.append('<h2>Findings</h2><table id="findings"><tr><th>severity</th><th>code</th><th>where</th><th>finding</th></tr>')
+        parts.append('<h2>Findings</h2><table '
+                     'id="findings"><tr><th>severity</th><th>code</th><th>where</th><th>finding</th></tr>')
     for f in result.findings:
         figs = e(figure_words(f.figures))
         severity = f"accepted ({f.severity})" if f.accepted is not None else f.severity
@@ -180,12 +187,15 @@ def _hum_section(result: Result, parts: list[str], e=escape) -> None:
         listening = plan.listening is not None and plan.listening.sensitivity is not None
         parts.append("<h2>Hum and buzz spectrum</h2>")
         for ch, h in result.hum.channels.items():
-            parts.append(f'<h3>{e(ch)}</h3><div class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>')
+            parts.append(f'<h3>{e(ch)}</h3><div '
+                         f'class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>')
             rows = [r for r in h.spectrum if r["volts"] > 0]     # every harmonic the chart shows
-            parts.append('<table class="spectrum"><tr><th>Hz</th><th>dBV</th><th>dB SPL</th><th>threshold</th><th>margin</th></tr>')
+            parts.append('<table class="spectrum"><tr><th>Hz</th><th>dBV</th><th>dB '
+                         'SPL</th><th>threshold</th><th>margin</th></tr>')
             for r in rows:
                 parts.append(f"<tr><td class=num>{r['frequency_hz']:g}</td><td class=num>{_f(r['dbv'], '{:.1f}')}</td>"
-                             f"<td class=num>{_f(r.get('spl_db'), '{:.1f}')}</td><td class=num>{_f(r.get('threshold_db'), '{:.1f}')}</td>"
+                             f"<td class=num>{_f(r.get('spl_db'), '{:.1f}')}</td><td "
+                             f"class=num>{_f(r.get('threshold_db'), '{:.1f}')}</td>"
                              f"<td class=num>{_f(r.get('margin_db'), '{:+.1f}')}</td></tr>")
             parts.append("</table>")
 
@@ -196,29 +206,38 @@ def _protective_section(result: Result, parts: list[str], e=escape) -> None:
         sup = result.safety.supply
         parts.append(f"<h2>Protective earth</h2><p>{e(sup.system)}, external loop {sup.ze:.3g} Ω "
                      f"({'stated' if sup.ze_stated else 'default'}); maximum disconnection time "
-                     f"{'none below 50 V' if sup.max_time is None else f'{sup.max_time:g} s'} (IEC 60364-4-41 Table 41.1).</p>"
+                     f"{'none below 50 V' if sup.max_time is None else f'{sup.max_time:g} s'} "
+                     "(IEC 60364-4-41 Table 41.1).</p>"
                      '<table id="protective-earth"><tr><th>part</th><th>path resistance</th>'
-                     "<th>fault current</th><th>touch voltage to earth</th><th>cleared by</th><th>in</th><th>I²t</th></tr>")
+                     "<th>fault current</th><th>touch voltage to earth</th><th>cleared "
+                     "by</th><th>in</th><th>I²t</th></tr>")
         for p in result.safety.parts:
             device = "nothing assured" if p.device is None else ("stated in plan" if p.device == "stated" else p.device)
             parts.append(f"<tr><td>{e(p.part)}</td><td class=num>{p.path_resistance * 1e3:.3g} mΩ</td>"
-                         f"<td class=num>{_f(p.fault_current, '{:.4g} A')}</td><td class=num>{_f(p.touch_voltage, '{:.3g} V')}</td>"
+                         f"<td class=num>{_f(p.fault_current, '{:.4g} A')}</td><td "
+                         f"class=num>{_f(p.touch_voltage, '{:.3g} V')}</td>"
                          f"<td>{e(device)}</td><td class=num>{_f(p.clear_time, '{:.2g} s')}</td>"
                          f"<td class=num>{_f(p.i2t, '{:.3g} A²s')}</td></tr>")
         parts.append("</table>")
         if result.safety.conductors:
-            parts.append("<table><tr><th>protective conductor</th><th>area</th><th>k</th><th>needs</th><th>survives</th></tr>")
+            parts.append("<table><tr><th>protective "
+                         "conductor</th><th>area</th><th>k</th><th>needs</th><th>survives</th></tr>")
             for c in result.safety.conductors:
-                parts.append(f"<tr><td>{e(c.conductor)}</td><td class=num>{c.area * 1e6:.4g} mm²</td><td class=num>{c.k:g}</td>"
-                             f"<td class=num>{c.required * 1e6:.4g} mm²</td><td>{'yes' if c.survives else 'NO'}</td></tr>")
+                parts.append(f"<tr><td>{e(c.conductor)}</td><td class=num>{c.area * 1e6:.4g} mm²</td><td "
+                             f"class=num>{c.k:g}</td>"
+                             f"<td class=num>{c.required * 1e6:.4g} "
+                             f"mm²</td><td>{'yes' if c.survives else 'NO'}</td></tr>")
             parts.append("</table>")
 
 
 def _loops_section(result: Result, parts: list[str], e=escape) -> None:
     """The table of listed ground loops."""
     if result.loops:
-        parts.append('<h2>Ground loops</h2><table id="loops"><tr><th>#</th><th>closed by</th><th>area</th><th>open at</th><th>members</th></tr>')
+        parts.append('<h2>Ground loops</h2><table id="loops"><tr><th>#</th><th>closed by</th><th>area</th><th>open '
+                     'at</th><th>members</th></tr>')
         for i, lp in enumerate(result.loops[:200], 1):
-            parts.append(f"<tr><td>{i}</td><td>{e(lp.closed_by)}</td><td class=num>{_f(None if lp.area is None else lp.area * 1e6, '{:.0f} mm²')}</td>"
-                         f"<td>{e(lp.open_at or 'protective: keep closed')}</td><td>{e(' → '.join(lp.loop.nodes))}</td></tr>")
+            parts.append(f"<tr><td>{i}</td><td>{e(lp.closed_by)}</td><td "
+                         f"class=num>{_f(None if lp.area is None else lp.area * 1e6, '{:.0f} mm²')}</td>"
+                         f"<td>{e(lp.open_at or 'protective: keep closed')}</td>"
+                         f"<td>{e(' → '.join(lp.loop.nodes))}</td></tr>")
         parts.append("</table>")

@@ -34,7 +34,8 @@ def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> Non
     if target.is_dir():
         raise OutputError(f"{path} is a folder (name an output file)")
     if target.exists() and not target.is_file():
-        raise OutputError(f"{path} is not a regular file (a device, a FIFO or a socket): name an output file, or write to standard output with -o -")
+        raise OutputError(f"{path} is not a regular file (a device, a FIFO or a socket): name an output file, or write "
+                          "to standard output with -o -")
     folder = target.parent
     if not folder.is_dir():
         raise OutputError(f"folder {path.parent} does not exist")

@@ -32,7 +32,8 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
     operating point's node voltages are printed by ngspice itself.
     """
     refs = set(int(r) for r in circuit.references)
-    main_ref = int(circuit.references[circuit.components[1][circuit.point_node.get("mains.pe", 0)]]) if circuit.nodes else 0
+    main_ref = int(circuit.references[circuit.components[1][circuit.point_node.get("mains.pe",
+                                                                                   0)]]) if circuit.nodes else 0
     name = {i: ("0" if i == main_ref else f"n{i}") for i in range(len(circuit.nodes))}
     lines = [f"* groundcheck ground network: {_safe(title)}"]
     for i, n in enumerate(circuit.nodes):
@@ -60,7 +61,8 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
         amps = complex(amps)
         lines.append(f"* I{k} = {_safe(src)}")
         if analysis == "ac":
-            lines.append(f"I{k} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} {math.degrees(math.atan2(amps.imag, amps.real)):.12g}")
+            lines.append(f"I{k} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} "
+                         f"{math.degrees(math.atan2(amps.imag, amps.real)):.12g}")
         else:
             lines.append(f"I{k} {ib} {ia} DC {amps.real:.12g}")
     printed = " ".join(f"v({name[i]})" for i in range(len(circuit.nodes)) if name[i] != "0")

@@ -73,7 +73,8 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
         worst_pe = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = worst_pe.path_resistance <= result.safety.limit
         console.print(Text(f"Protective earth: worst path {worst_pe.path_resistance * 1e3:.2f} mΩ to {worst_pe.part} "
-                           f"(limit {result.safety.limit * 1e3:.0f} mΩ) — " + ("within limit" if ok else "OVER LIMIT"),
+                           f"(limit {result.safety.limit * 1e3:.0f} mΩ) — "
+                           + ("within limit" if ok else "OVER LIMIT"),
                            style="green" if ok else "bold red"))
     elif plan.mains is None:
         console.print(Text("Protective earth: no mains statement, not checked", style="dim"))
@@ -131,7 +132,8 @@ def _hum_tables(result: Result, console: Console) -> None:
                           "(every one is in --format json)")
     for ch, h in result.hum.channels.items():
         if h.contributors:
-            top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %" for c in h.contributors[:3])
+            top = "; ".join(f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %"
+                            for c in h.contributors[:3])
             console.print(f"  main contributors, {escape(ch)}: {top}")
     xt = [r for r in result.hum.crosstalk if r["frequency_hz"] == 1000.0]
     for r in xt:
@@ -156,7 +158,8 @@ def _protective_tables(result: Result, console: Console) -> None:
         sup = result.safety.supply
         limit = "none set below 50 V" if sup.max_time is None else f"{sup.max_time:g} s"
         t = Table(title=f"Protective earth (line-to-part fault; {sup.system}, external loop {sup.ze:.3g} Ω"
-                        f"{' stated' if sup.ze_stated else ' by default'}; disconnection limit {limit})", title_justify="left")
+                        f"{' stated' if sup.ze_stated else ' by default'}; disconnection limit {limit})",
+                        title_justify="left")
         for col in ("part", "path mΩ", "fault A", "touch V to earth", "cleared by", "in", "I²t A²s"):
             t.add_column(col, justify="right" if col not in ("part", "cleared by") else "left")
         for p in result.safety.parts:
@@ -171,7 +174,8 @@ def _protective_tables(result: Result, console: Console) -> None:
         for col in ("device", "earth pin", "resistance"):
             t.add_column(col)
         for d in result.device_earths:
-            t.add_row(escape(d.device), escape(d.inlet), "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
+            t.add_row(escape(d.device), escape(d.inlet),
+                      "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
         console.print(t)
         console.print()
 
@@ -181,7 +185,8 @@ def _loop_table(result: Result, console: Console) -> None:
     for col in ("#", "closed by", "area mm²", "open at", "members"):
         t.add_column(col)
     for i, lp in enumerate(result.loops[:TABLE_LOOPS], 1):
-        t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}", escape(lp.open_at or 'protective: keep closed'),
+        t.add_row(str(i), lp.closed_by, "–" if lp.area is None else f"{lp.area * 1e6:.0f}",
+                  escape(lp.open_at or 'protective: keep closed'),
                   escape(" → ".join(lp.loop.nodes)))
     console.print(t)
     if result.loop_total > min(len(result.loops), TABLE_LOOPS):

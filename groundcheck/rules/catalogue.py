@@ -48,7 +48,8 @@ class Finding:
         return {"code": self.code, "rule": self.rule.name, "severity": self.severity, "message": self.message,
                 "location": self.location.as_dict(), "elements": list(self.elements),
                 "figures": self.figures, "fix": self.fix,
-                "actions": [{"action": a[0], "element": a[1], **({"at": a[2]} if len(a) > 2 else {})} for a in self.actions],
+                "actions": [{"action": a[0], "element": a[1],
+                             **({"at": a[2]} if len(a) > 2 else {})} for a in self.actions],
                 "accepted": self.accepted}
 
 
@@ -73,7 +74,8 @@ RULES: dict[str, Rule] = dict([
        "their number is E − V + C), classified by what closes it.",
        "A loop lets a changing magnetic field drive current round it (hum at the mains frequency) and "
        "lets a return current split between two paths, one of which may be a signal reference.",
-       "Open the loop at the conductor named in the finding, keeping one path only; never open it in the protective earth."),
+       "Open the loop at the conductor named in the finding, keeping one path only; never open it in the protective "
+       "earth."),
     _r("GC102", "shared-return", "fault",
        "A conductor that carries a supply-return current (rectifier charging, DC load, heater, leakage) "
        "and also lies between the two points of a sensitive pair.",
@@ -83,7 +85,8 @@ RULES: dict[str, Rule] = dict([
        "short wire of their own), and take the stage's reference to the signal star by its own wire."),
     _r("GC103", "star-chain", "warning",
        "Returns that reach a star through each other: a chain that only looks like a star.",
-       "Each return in a chain carries the currents of those behind it, so their drops add into the references further along.",
+       "Each return in a chain carries the currents of those behind it, so their drops add into the references further "
+       "along.",
        "Run each return to the star by a wire of its own."),
     _r("GC104", "star-single-branch", "note",
        "A point declared as a star that has only one conductor.",
@@ -92,16 +95,19 @@ RULES: dict[str, Rule] = dict([
     _r("GC105", "signal-ground-bonded-twice", "warning",
        "A signal-ground network bonded to the chassis (directly, through a lift network or through "
        "another chassis-bonded point) at more than one place.",
-       "Two bonds make the chassis part of a ground loop: chassis currents and induced current then flow in the signal ground.",
+       "Two bonds make the chassis part of a ground loop: chassis currents and induced current then flow in the signal "
+       "ground.",
        "Keep one bond, near the protective-earth bond; isolate the other (insulated jack, insulating washer)."),
     _r("GC106", "signal-ground-floating", "warning",
        "A signal-ground network with no connection to the chassis or the protective earth at all.",
        "A floating signal ground picks up leakage and electrostatic noise and can float to a dangerous voltage.",
-       "Bond the signal star to the chassis at one place, near the protective-earth stud, directly or through a lift network."),
+       "Bond the signal star to the chassis at one place, near the protective-earth stud, directly or through a lift "
+       "network."),
     _r("GC107", "heater-unreferenced", "warning",
        "A valve heater supply with no reference to ground.",
        "A floating heater winding couples mains-frequency hum capacitively into the cathodes.",
-       "Reference the heater supply: a centre tap or a pair of resistors (a hum-balance network) to ground, or an elevated DC reference."),
+       "Reference the heater supply: a centre tap or a pair of resistors (a hum-balance network) to ground, or an "
+       "elevated DC reference."),
     _r("GC108", "shield-both-ends", "warning",
        "A cable shield of internal wiring terminated at both ends.",
        "The shield then forms a loop with the ground wire it runs beside, and carries return current.",
@@ -117,7 +123,8 @@ RULES: dict[str, Rule] = dict([
     _r("GC111", "mains-not-described", "note",
        "Touchable metal in a plan with no mains statement and no device that brings one.",
        "Without the supply, the protective earth cannot be checked: a plan like this is not clean, only unchecked.",
-       "Describe the supply ('mains 230 V 50 Hz, fuse …') or, for double-insulated equipment, 'mains …, class II'."),
+       "Describe the supply ('mains 230 V 50 Hz, fuse …') or, for double-insulated equipment, "
+       "'mains …, class II'."),
     _r("GC112", "length-implausible", "note",
        "A conductor whose stated length is more than 10 % shorter than the straight distance between its positioned "
        "ends (or its route), or more than three times longer.",
@@ -126,20 +133,26 @@ RULES: dict[str, Rule] = dict([
     _r("GC201", "pe-missing", "danger",
        "The mains inlet's protective terminal does not reach any metal part through protective conductors.",
        "Without a protective earth a line-to-chassis fault leaves the chassis live.",
-       "Run a green-and-yellow protective conductor from the inlet's earth terminal straight to a chassis stud of its own.",
+       "Run a green-and-yellow protective conductor from the inlet's earth terminal straight to a chassis stud of its "
+       "own.",
        "IEC 60364-5-54; IEC 62368-1 (protective bonding), from memory"),
     _r("GC202", "pe-shared-fastener", "fault",
        "The protective conductor lands on a fastener that also holds something else.",
-       "Servicing the other part loosens the protective bond; a shared fastener also invites signal returns onto the protective path.",
+       "Servicing the other part loosens the protective bond; a shared fastener also invites signal returns onto the "
+       "protective path.",
        "Give the protective earth a stud of its own, with a lock washer and a second nut; nothing else under it.",
        "common practice; IEC 60335-1 cl. 28 (protective connections not used to fix other parts), from memory"),
     _r("GC203", "pe-series-element", "danger",
-       "Something that is not a protective conductor (lift network, switch, signal wire, shield) lies in series with the protective earth.",
-       "A fault current must not depend on a signal wire, a switch or a lift resistor: they may open or burn open and leave the chassis live.",
-       "Connect the protective conductor directly to the chassis; put any lift network between signal ground and chassis, never in the protective path.",
+       "Something that is not a protective conductor (lift network, switch, signal wire, shield) lies in series with "
+       "the protective earth.",
+       "A fault current must not depend on a signal wire, a switch or a lift resistor: they may open or burn open and "
+       "leave the chassis live.",
+       "Connect the protective conductor directly to the chassis; put any lift network between signal ground and "
+       "chassis, never in the protective path.",
        "IEC 60364-5-54 543.3 (no switching device in a protective conductor)"),
     _r("GC204", "pe-undersized", "danger",
-       "A conductor on the protective route (a wire, trace, bus bar or strap, whatever its written role) thinner than the line conductor.",
+       "A conductor on the protective route (a wire, trace, bus bar or strap, whatever its written role) thinner than "
+       "the line conductor.",
        "The protective conductor must carry the fault current until the fuse opens.",
        "Use a protective conductor at least as thick as the line conductor.",
        "IEC 60364-5-54 Table 54.2 (S ≤ 16 mm²: protective conductor ≥ S)"),
@@ -149,13 +162,16 @@ RULES: dict[str, Rule] = dict([
        "Bond the part to the protective-earth stud with a protective conductor or a fastening rated for it.",
        "IEC 62368-1 (protective bonding of accessible conductive parts), from memory"),
     _r("GC206", "pe-resistance", "danger",
-       "Resistance of the protective path from the inlet's earth terminal to each touchable part, against a limit (default 0.1 Ω). "
+       "Resistance of the protective path from the inlet's earth terminal to each touchable part, against a limit "
+       "(default 0.1 Ω). "
        "A limit relaxed with --pe-limit is reported in every output, and a path over 0.1 Ω is still listed as a note.",
-       "A high protective-path resistance raises the touch voltage during a fault and may keep the fuse from opening quickly.",
+       "A high protective-path resistance raises the touch voltage during a fault and may keep the fuse from opening "
+       "quickly.",
        "Shorten or thicken the protective conductor, clean and tighten its fastenings.",
        "IEC 62368-1 5.6.6.2 (from memory); IEC 61010-1 6.5.2.4; IEC 60335-1 27.5 (0.1 Ω, supply cord excluded)"),
     _r("GC207", "pe-fault-survival", "danger",
-       "Whether each protective conductor survives the let-through I²t of the device that clears the fault (adiabatic check S ≥ √(I²t)/k).",
+       "Whether each protective conductor survives the let-through I²t of the device that clears the fault (adiabatic "
+       "check S ≥ √(I²t)/k).",
        "An undersized protective conductor can melt open during a fault and leave the chassis live.",
        "Use a thicker protective conductor, or a faster fuse of a rating the equipment allows.",
        "IEC 60364-5-54 543.1.2 (adiabatic equation and k values)"),
@@ -163,9 +179,11 @@ RULES: dict[str, Rule] = dict([
        "Whether the fuse, breaker or RCD disconnects a line-to-chassis fault within the maximum time of IEC 60364-4-41 "
        "Table 41.1 for the supply voltage and earthing system (TN 0.4 s at 230 V, 0.8 s at 120 V; TT 0.2 s and 0.3 s). "
        "The fault current includes the external loop, the final circuit, the fuse's cold resistance and the cord at "
-       "their standard maximum resistances; a fuse's clearing time is its pre-arcing time plus arcing to the next current zero.",
+       "their standard maximum resistances; a fuse's clearing time is its pre-arcing time plus arcing to the next "
+       "current zero.",
        "If the protective device does not open in time, a touchable part stays at a dangerous voltage against earth.",
-       "Protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the fuse rating the equipment allows.",
+       "Protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the fuse rating the equipment "
+       "allows.",
        "IEC 60364-4-41 Table 41.1; IEC 60127-2, IEC 60898-1 and IEC 61008-1 time-current limits (from memory)"),
     _r("GC209", "pe-role-missing", "warning",
        "A conductor the protective earth relies on (on the route from the inlet's earth terminal to a metal part) "
@@ -178,7 +196,8 @@ RULES: dict[str, Rule] = dict([
        "A conductor that is not part of the protective route lands on the inlet's protective-earth terminal.",
        "The inlet's earth terminal is for the protective conductor alone; a signal or return wire there makes the "
        "protective earth part of the signal circuit and invites someone to disconnect it.",
-       "Take the other conductor to its own place: a signal ground bonds to the chassis near the protective-earth stud.",
+       "Take the other conductor to its own place: a signal ground bonds to the chassis near the "
+       "protective-earth stud.",
        "common practice"),
     _r("GC211", "breaking-capacity", "danger",
        "Whether the prospective line-to-chassis fault current exceeds the fuse's (or breaker's) breaking capacity: "
@@ -187,19 +206,22 @@ RULES: dict[str, Rule] = dict([
        "Use a high-breaking (sand-filled ceramic) fuse of the same rating and characteristic ('breaking high').",
        "IEC 60127-2 breaking-capacity categories (from memory)"),
     _r("GC212", "class-ii-earthed", "fault",
-       "A class II plan (double or reinforced insulation, no protective earth) with a conductor on the inlet's earth terminal.",
-       "Class II equipment has no earth terminal; a conductor there means the plan is class I, or that metal is joined to "
-       "an earth the supply cord does not provide.",
-       "Either make the equipment class I (a three-core cord and a protective earth to every touchable part) or remove the "
-       "connection and keep the double insulation.",
+       "A class II plan (double or reinforced insulation, no protective earth) with a conductor on the inlet's earth "
+       "terminal.",
+       "Class II equipment has no earth terminal; a conductor there means the plan is class I, or that metal is joined "
+       "to an earth the supply cord does not provide.",
+       "Either make the equipment class I (a three-core cord and a protective earth to every touchable part) or remove "
+       "the connection and keep the double insulation.",
        "IEC 61140 (protection classes), from memory"),
     _r("GC213", "class-ii-insulation", "note",
        "A class II plan: its safety rests on double or reinforced insulation, which the plan does not describe.",
        "groundcheck can check a protective earth but not insulation; the protective-earth figures are skipped.",
-       "Have the insulation (creepage, clearance, insulation of internal wiring) checked against the product-safety standard.",
+       "Have the insulation (creepage, clearance, insulation of internal wiring) checked against the product-safety "
+       "standard.",
        "IEC 61140; IEC 62368-1 (from memory)"),
     _r("GC214", "stated-figure-contradicts", "warning",
-       "A clearing time or I²t stated in the mains statement that the fuse table contradicts by more than a factor of two.",
+       "A clearing time or I²t stated in the mains statement that the fuse table contradicts by more than a factor of "
+       "two.",
        "A stated figure replaces the computed one in every protective-earth verdict; a wrong one can hide a danger.",
        "Check the stated figure against the fuse maker's data sheet, or remove it to use the standard's limits.",
        "IEC 60127-2 time-current limits (from memory)"),
@@ -218,7 +240,8 @@ RULES: dict[str, Rule] = dict([
        "Faraday's law: EMF = 2πfBA drives current round the loop; its drop across a sensitive pair is amplified.",
        "Open the loop, or make it smaller and move it away from the transformer."),
     _r("GC303", "hum-audible", "fault",
-       "A channel whose hum or buzz, as sound pressure at the listener's seat, is above the ISO 226 threshold of hearing at some frequency.",
+       "A channel whose hum or buzz, as sound pressure at the listener's seat, is above the ISO 226 threshold of "
+       "hearing at some frequency.",
        "Hum above the threshold of hearing at the listener's seat is likely to be heard in a quiet room.",
        "Fix the main contributors named in the finding.",
        "ISO 226:2003 threshold of hearing"),

@@ -19,7 +19,8 @@ from ..model.records import PE_POINT, Conductor, Plan
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
 from ..network.graph import Loop, build_graph, components, edges_of, fundamental_loops, loop_polygon, polygon_area
 
-__all__ = ["AuditContext", "LoopInfo", "classify_loop", "open_at", "node_channel", "bfs", "LOOP_LIST_LIMIT", "LOOP_CLASSES"]
+__all__ = ["AuditContext", "LoopInfo", "classify_loop", "open_at", "node_channel", "bfs", "LOOP_LIST_LIMIT",
+           "LOOP_CLASSES"]
 
 #: how many loops are listed one by one (the count is always exact)
 LOOP_LIST_LIMIT = 500
@@ -221,7 +222,8 @@ def pe_distance(ctx: AuditContext, node: str) -> float:
 
 
 def bfs(adj: dict, sources, allowed=None):
-    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed`` (``adj``: node -> neighbours)."""
+    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed``
+    (``adj``: node -> neighbours)."""
     dist, parent = {}, {}
     q = deque()
     for s in sources:

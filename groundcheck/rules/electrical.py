@@ -47,14 +47,15 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
                    "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
         elif row.kind == "current" and row.source in leak:
-            fix = f"keep {row.stage_a} and {row.stage_b} off the conductors that carry {row.source}; give the stage its own reference wire"
+            fix = (f"keep {row.stage_a} and {row.stage_b} off the conductors that carry {row.source}; "
+                   "give the stage its own reference wire")
         else:
             fix = (f"join {row.a} and {row.b} by a short wire of their own, then one wire to the star; "
                    f"take {row.stage_b} and {row.stage_a} to the signal star by wires that carry no supply current")
         out.append(Finding(
             "GC102", "fault",
-            f"{row.kind} return {row.source} ({row.a} → {row.b}) shares {', '.join(row.shared)} with stage {row.stage} "
-            f"({row.stage_a} – {row.stage_b})",
+            f"{row.kind} return {row.source} ({row.a} → {row.b}) shares {', '.join(row.shared)} "
+            f"with stage {row.stage} ({row.stage_a} – {row.stage_b})",
             row.location, (row.source, row.stage, *row.shared),
             {"transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"), "stage_gain_db": row.stage_gain}, fix))
     return out
@@ -89,21 +90,22 @@ def rule_hum(s: Solved) -> list[Finding]:
             if c["kind"] == "conductor":
                 cond = conductors.get(c["element"])
                 if cond is not None and cond.role == "protective":
-                    fix = (f"the drop along protective conductor {c['element']} reaches the stage through a loop: break "
-                           "the loop on the signal side (balanced interconnect or ground-lift network); never lift the "
-                           "protective earth")
+                    fix = (f"the drop along protective conductor {c['element']} reaches the stage through a loop: "
+                           "break the loop on the signal side (balanced interconnect or ground-lift network); never "
+                           "lift the protective earth")
                 else:
                     fix = f"move the {c['source']} current off {c['element']}: give it a return path of its own"
                 out.append(Finding("GC301", "warning",
-                                   f"{c['element']} puts {c['dbv']:.1f} dBV of {c['source']} hum and buzz at the {ch} output "
-                                   f"({c['share_pct']:.0f} % of the channel's total)",
+                                   f"{c['element']} puts {c['dbv']:.1f} dBV of {c['source']} hum and buzz at the {ch} "
+                                   f"output ({c['share_pct']:.0f} % of the channel's total)",
                                    cond.location if cond else loc, (c["element"], c["source"]),
                                    {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch}, fix))
             else:
                 out.append(Finding("GC302", "warning",
                                    f"{c['element']} picks up {c['dbv']:.1f} dBV from {c['source']} at the {ch} output "
                                    f"({c['share_pct']:.0f} % of the channel's total)",
-                                   loc, (c["element"], c["source"]), {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
+                                   loc, (c["element"], c["source"]), {"level_dbv": c["dbv"],
+                                                                      "share_pct": c["share_pct"], "channel": ch},
                                    "open the loop, or make it smaller and move it away from the field source"))
         if h.audible:
             top: list[str] = []
@@ -114,8 +116,8 @@ def rule_hum(s: Solved) -> list[Finding]:
                 if len(top) == 3:
                     break
             out.append(Finding("GC303", "fault",
-                               f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's seat by "
-                               f"{h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
+                               f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's "
+                               f"seat by {h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
                                loc, (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
                                {"margin_db": round(h.margin_db, 2), "total_dbv": round(h.total_dbv, 2),
                                 "signal_to_hum_db": round(h.signal_to_hum, 2)},

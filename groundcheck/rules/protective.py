@@ -22,7 +22,8 @@ if TYPE_CHECKING:
     from ..physics.safety import SafetyResult
     from .electrical import Solved
 
-__all__ = ["rule_protective_earth", "rule_class_ii", "rule_protective_figures", "rule_device_earths", "DEVICE_EARTH_LIMIT"]
+__all__ = ["rule_protective_earth", "rule_class_ii", "rule_protective_figures", "rule_device_earths",
+           "DEVICE_EARTH_LIMIT"]
 
 
 @rule("GC201", "GC202", "GC203", "GC204", "GC205", "GC209", "GC210")
@@ -42,9 +43,11 @@ def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
     out.extend(_pe_sections(ctx))
     for m in plan.metals:
         if m.touchable and m.name not in bonded:
-            out.append(Finding("GC205", "danger", f"touchable part {m.name} is not bonded to the protective earth by protective conductors",
+            out.append(Finding("GC205", "danger", f"touchable part {m.name} is not bonded to the protective earth by "
+                                                  "protective conductors",
                                m.location, (m.name,), {},
-                               f"bond {m.name} to the protective-earth stud with a protective conductor or a fastening rated for it"))
+                               f"bond {m.name} to the protective-earth stud with a protective conductor or a fastening "
+                               "rated for it"))
     return out
 
 
@@ -53,8 +56,10 @@ def _pe_not_reaching(ctx: AuditContext) -> Finding:
     G, mloc = ctx.G, ctx.plan.mains.location
     reach = nx.node_connected_component(G, PE_POINT) & ctx.metals
     if not reach:
-        return Finding("GC201", "danger", "the mains inlet's protective terminal reaches no metal part", mloc, (PE_POINT,), {},
-                       "run a green-and-yellow protective conductor from the inlet's earth terminal straight to a chassis stud of its own")
+        return Finding("GC201", "danger", "the mains inlet's protective terminal reaches no metal part", mloc,
+                       (PE_POINT,), {},
+                       "run a green-and-yellow protective conductor from the inlet's earth terminal straight to a "
+                       "chassis stud of its own")
     target = sorted(reach)[0]
     path = nx.shortest_path(G, PE_POINT, target)
     bad = [k for u, v in zip(path, path[1:]) for k, d in G[u][v].items()
@@ -82,9 +87,11 @@ def _pe_fastener(ctx: AuditContext) -> list[Finding]:
             holds = [kk for kk in others if kk not in fastenings[:1]]
             if holds:
                 out.append(Finding("GC202", "fault",
-                                   f"the protective earth lands on {v}, a fastener that also holds {', '.join(sorted(holds))}",
+                                   f"the protective earth lands on {v}, a fastener that also holds "
+                                   f"{', '.join(sorted(holds))}",
                                    c.location, (c.name, v, *sorted(holds)), {"other_items": len(holds)},
-                                   f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to another fastener"))
+                                   f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to "
+                                   "another fastener"))
     return out
 
 
@@ -99,15 +106,18 @@ def _pe_terminal_other_use(ctx: AuditContext) -> list[Finding]:
             out.append(Finding("GC210", "fault",
                                f"{c.kind} {c.name} ({c.role}) lands on the inlet's protective terminal",
                                c.location, (c.name, PE_POINT), {},
-                               f"take {c.name} to its own place (a signal ground bonds to the chassis near the protective-earth "
-                               "stud, not on the inlet's terminal); only the protective conductor belongs on the inlet's earth terminal"))
+                               f"take {c.name} to its own place (a signal ground bonds to the chassis near the "
+                               "protective-earth "
+                               "stud, not on the inlet's terminal); only the protective conductor belongs on the "
+                               "inlet's earth terminal"))
     return out
 
 
 def _pe_unmarked(ctx: AuditContext) -> list[Finding]:
     """GC209: conductors the protective earth relies on whose role does not say protective."""
     return [Finding("GC209", "warning",
-                    f"{ctx.conductors[k].kind} {k} carries the protective earth but is written as {ctx.conductors[k].role}",
+                    f"{ctx.conductors[k].kind} {k} carries the protective earth but is written as "
+                    f"{ctx.conductors[k].role}",
                     ctx.loc(k), (k,), {},
                     f"write {k} as 'protective' and use green-and-yellow wire of at least the line conductor's size; "
                     "groundcheck treats it as protective and never suggests removing it")
@@ -124,8 +134,10 @@ def _pe_sections(ctx: AuditContext) -> list[Finding]:
         area = cross_section(c)
         if c.name in ctx.route and section_checked(c) and area is not None and area < line * (1 - 1e-6):
             out.append(Finding("GC204", "danger",
-                               f"protective conductor {c.name} is {area * 1e6:.3g} mm², thinner than the line conductor ({line * 1e6:.3g} mm²)",
-                               c.location, (c.name,), {"area_mm2": round(area * 1e6, 4), "line_area_mm2": round(line * 1e6, 4)},
+                               f"protective conductor {c.name} is {area * 1e6:.3g} mm², thinner than the line "
+                               f"conductor ({line * 1e6:.3g} mm²)",
+                               c.location, (c.name,), {"area_mm2": round(area * 1e6, 4),
+                                                       "line_area_mm2": round(line * 1e6, 4)},
                                f"use at least {line * 1e6:.3g} mm² (IEC 60364-5-54 Table 54.2)"))
     return out
 
@@ -136,16 +148,17 @@ def rule_class_ii(ctx: AuditContext) -> list[Finding]:
     m = ctx.plan.mains
     if m is None or m.equipment_class != "II":
         return []
-    out = [Finding("GC213", "note", "class II equipment: safety rests on double or reinforced insulation, which the plan "
-                   "does not describe; protective-earth figures are skipped", m.location, ("mains",), {},
+    out = [Finding("GC213", "note", "class II equipment: safety rests on double or reinforced insulation, which the "
+                   "plan does not describe; protective-earth figures are skipped", m.location, ("mains",), {},
                    "have the insulation checked against the product-safety standard by a qualified person")]
     if PE_POINT in ctx.G:
         for _, v, k in sorted(ctx.G.edges(PE_POINT, keys=True)):
             c = ctx.conductors[k]
-            out.append(Finding("GC212", "fault", f"{c.kind} {k} joins {v} to the earth terminal of class II equipment, which has none",
+            out.append(Finding("GC212", "fault", f"{c.kind} {k} joins {v} to the earth terminal of class II equipment, "
+                                                 "which has none",
                                c.location, (k, v), {},
-                               "make the equipment class I (three-core cord, protective earth to every touchable part), "
-                               "or remove the connection"))
+                               "make the equipment class I (three-core cord, protective earth to every touchable "
+                               "part), or remove the connection"))
     return out
 
 
@@ -163,16 +176,19 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
         figs = {"path_resistance_mohm": round(p.path_resistance * 1e3, 3), "limit_mohm": safety.limit * 1e3}
         if p.path_resistance > safety.limit:
             out.append(Finding("GC206", "danger",
-                               f"protective path to {p.part} is {p.path_resistance * 1e3:.1f} mΩ, over the {safety.limit * 1e3:.0f} mΩ limit",
+                               f"protective path to {p.part} is {p.path_resistance * 1e3:.1f} mΩ, over the "
+                               f"{safety.limit * 1e3:.0f} mΩ limit",
                                part.location, (p.part,), figs,
-                               "shorten or thicken the protective conductor; clean and tighten the fastenings on its path"))
+                               "shorten or thicken the protective conductor; clean and tighten the fastenings on its "
+                               "path"))
         elif safety.relaxed and p.path_resistance > STANDARD_PE_LIMIT:
             out.append(Finding("GC206", "note",
                                f"protective path to {p.part} is {p.path_resistance * 1e3:.1f} mΩ, over the "
-                               f"{STANDARD_PE_LIMIT * 1e3:.0f} mΩ product-safety limit; passed only because --pe-limit relaxed "
-                               f"the limit to {safety.limit * 1e3:.0f} mΩ",
+                               f"{STANDARD_PE_LIMIT * 1e3:.0f} mΩ product-safety limit; passed only because "
+                               f"--pe-limit relaxed the limit to {safety.limit * 1e3:.0f} mΩ",
                                part.location, (p.part,), {**figs, "standard_limit_mohm": STANDARD_PE_LIMIT * 1e3},
-                               "shorten or thicken the protective conductor; clean and tighten the fastenings on its path"))
+                               "shorten or thicken the protective conductor; clean and tighten the fastenings on its "
+                               "path"))
         out.extend(_disconnection(plan, safety, p))
     if m.fuse is None and m.clear_time is None and m.rcd is None and safety.parts:
         out.append(Finding("GC208", "note", "no fuse, breaker or RCD in the mains statement: disconnection not checked",
@@ -183,20 +199,23 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
         device = "breaker" if m.fuse_kind.startswith("breaker") else f"{m.breaking or 'low'}-breaking fuse"
         assumed = "" if stated else " (breaking capacity not stated: a low-breaking glass fuse assumed)"
         out.append(Finding("GC211", "danger" if stated else "warning",
-                           f"a line-to-chassis fault draws up to {worst:.0f} A, beyond the {sup.breaking_capacity:.0f} A the "
-                           f"{m.fuse:g} A {device} can break: it may keep arcing or burst instead of clearing{assumed}",
-                           m.location, ("mains",), {"fault_current_a": round(worst, 2), "breaking_capacity_a": sup.breaking_capacity},
-                           "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking type) of the same "
-                           "rating and characteristic, and say so: ', breaking high'"))
+                           f"a line-to-chassis fault draws up to {worst:.0f} A, beyond the "
+                           f"{sup.breaking_capacity:.0f} A the {m.fuse:g} A {device} can break: it may keep arcing "
+                           f"or burst instead of clearing{assumed}",
+                           m.location, ("mains",), {"fault_current_a": round(worst, 2),
+                                                    "breaking_capacity_a": sup.breaking_capacity},
+                           "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking type) of "
+                           "the same rating and characteristic, and say so: ', breaking high'"))
     out.extend(_stated_contradictions(plan, safety))
     for row in safety.conductors:
         if not row.survives:
             c = plan_conductor(plan, row.conductor)
             out.append(Finding("GC207", "danger",
-                               f"{row.conductor} ({row.area * 1e6:.4g} mm²) would not survive the fault until it is cleared: "
-                               f"it needs {row.required * 1e6:.4g} mm² (k = {row.k:g})",
+                               f"{row.conductor} ({row.area * 1e6:.4g} mm²) would not survive the fault until it is "
+                               f"cleared: it needs {row.required * 1e6:.4g} mm² (k = {row.k:g})",
                                c.location if c else m.location, (row.conductor,), row.as_dict(),
-                               "use a thicker protective conductor, or a faster or lower-rated fuse the equipment allows"))
+                               "use a thicker protective conductor, or a faster or lower-rated fuse the equipment "
+                               "allows"))
     return out
 
 
@@ -207,7 +226,8 @@ def plan_conductor(plan: Plan, name: str):
 def _device_text(m) -> str:
     parts = []
     if m.fuse is not None:
-        parts.append(f"{m.fuse:g} A {m.fuse_kind.replace('breaker-', 'type ') + (' breaker' if m.fuse_kind.startswith('breaker') else ' fuse')}")
+        what = " breaker" if m.fuse_kind.startswith("breaker") else " fuse"
+        parts.append(f"{m.fuse:g} A {m.fuse_kind.replace('breaker-', 'type ') + what}")
     if m.rcd is not None:
         parts.append(f"{m.rcd * 1e3:g} mA RCD")
     return " and ".join(parts) or "stated clearing"
@@ -229,16 +249,18 @@ def _disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
                         f"a line-to-{p.part} fault draws {p.fault_current:.3g} A, too little to be sure of opening the "
                         f"{_device_text(m)}; {p.touch_voltage:.0f} V against earth would stay on {p.part}",
                         part.location, (p.part,), figs,
-                        "add a 30 mA RCD to the supply, or lower the fault loop's resistance or the fuse rating the equipment allows")]
+                        "add a 30 mA RCD to the supply, or lower the fault loop's resistance or the fuse rating the "
+                        "equipment allows")]
     if limit is not None and p.clear_time > limit:
         stated = " (stated in plan)" if p.device == "stated" else ""
         return [Finding("GC208", "danger",
-                        f"a line-to-{p.part} fault ({p.fault_current:.3g} A) is cleared by the {_device_text(m)} in up to "
-                        f"{p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows {limit:g} s ({where}), and {p.touch_voltage:.0f} V "
+                        f"a line-to-{p.part} fault ({p.fault_current:.3g} A) is cleared by the {_device_text(m)} in up "
+                        f"to {p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows {limit:g} s ({where}), and "
+                        f"{p.touch_voltage:.0f} V "
                         f"against earth is on {p.part} meanwhile",
                         part.location, (p.part,), {**figs, "clear_time_s": round(p.clear_time, 6)},
-                        "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the fuse rating so that "
-                        "the fuse clears within the limit")]
+                        "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the fuse rating "
+                        "so that the fuse clears within the limit")]
     return []
 
 
@@ -257,21 +279,24 @@ def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
         if table is None or not 0.5 <= stated / table <= 2.0:
             tab = "no assured clearing" if table is None else f"{table:.3g} {unit}"
             out.append(Finding("GC214", "warning",
-                               f"the plan states a {what} of {stated:.3g} {unit}; the {_device_text(m)}'s time-current limits "
-                               f"give {tab} at {p.fault_current:.3g} A",
+                               f"the plan states a {what} of {stated:.3g} {unit}; the {_device_text(m)}'s time-current "
+                               f"limits give {tab} at {p.fault_current:.3g} A",
                                m.location, ("mains",), {"stated": stated, "table": table},
-                               f"check the stated {what} against the fuse maker's data sheet, or remove it to use the table"))
+                               f"check the stated {what} against the fuse maker's data sheet, or remove it to use the "
+                               "table"))
     return out
 
 
 #: a device's earth path to the main earthing terminal over this is reported, Ω: a final circuit's protective
-#: conductor of 40 m of 1.5 mm² (about 0.5 Ω) plus a cord — a broken or corroded path, not a long one (common practice)
+#: conductor of 40 m of 1.5 mm² (about 0.5 Ω) plus a cord — a broken or corroded path, not a long one
+#: (common practice)
 DEVICE_EARTH_LIMIT = 1.0
 
 
 @rule("GC215", needs="solve")
 def rule_device_earths(s: Solved) -> list[Finding]:
-    """GC215: a placed device whose earth pin does not reach the main earthing terminal, or only through a high resistance."""
+    """GC215: a placed device whose earth pin does not reach the main earthing terminal, or only through a high
+    resistance."""
     if s.device_earths is None:
         return []
     out = []
@@ -279,11 +304,13 @@ def rule_device_earths(s: Solved) -> list[Finding]:
     for d in s.device_earths:
         loc = points[d.inlet].location
         if d.resistance is None:
-            out.append(Finding("GC215", "danger", f"device {d.device}: its earth pin does not reach the main earthing terminal "
-                               "through protective conductors", loc, (d.device, d.inlet), {},
-                               f"plug {d.device} into an earthed outlet and repair the protective connection on its path"))
+            out.append(Finding("GC215", "danger", f"device {d.device}: its earth pin does not reach the main earthing "
+                               "terminal through protective conductors", loc, (d.device, d.inlet), {},
+                               f"plug {d.device} into an earthed outlet and repair the protective connection on its "
+                               "path"))
         elif d.resistance > DEVICE_EARTH_LIMIT:
             out.append(Finding("GC215", "danger", f"device {d.device}: its earth path to the main earthing terminal is "
-                               f"{d.resistance:.3g} Ω", loc, (d.device, d.inlet), {"resistance_ohm": round(d.resistance, 4)},
+                               f"{d.resistance:.3g} Ω", loc, (d.device, d.inlet),
+                               {"resistance_ohm": round(d.resistance, 4)},
                                "find and repair the high-resistance joint on the path (cord, strip or building run)"))
     return out

@@ -32,7 +32,8 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
             figures["area_mm2"] = round(info.area * 1e6, 1)
         opener = ctx.conductors.get(info.open_at)
         if opener is not None and is_fastening(opener, ctx.metals):
-            where, actions = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)", (("insulate", info.open_at),)
+            where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
+            actions = (("insulate", info.open_at),)
         elif opener is not None:
             where, actions = f"open the loop at {info.open_at}", (("open", info.open_at),)
         else:
@@ -42,7 +43,8 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
              "channel-returns": " (join the channels at one point only)",
              "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
              "metal-return": " (return currents by wire, not through the metal)",
-             "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal side; never lift the protective earth)"}.get(info.closed_by, "")
+             "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal side; never lift the "
+                            "protective earth)"}.get(info.closed_by, "")
         out.append(Finding("GC101", "warning",
                            f"ground loop closed by {LOOP_CLASSES[info.closed_by]}: {_loop_text(info.loop)}",
                            ctx.loc(info.open_at or info.loop.edges[-1]), info.loop.edges, figures, fix, actions))
@@ -135,15 +137,17 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
             others = [b for b in bonds if b != keep]
             first_other = places[others[0]][0]
             actions = _unbond_actions(ctx, others, places)
-            words = "; ".join(("insulate " + k + " from the metal (insulated socket or shoulder washers)") if verb == "insulate"
-                              else f"remove {k}" for verb, k in actions)
-            out.append(Finding("GC105", "warning", f"signal ground {name} is bonded to the chassis at {len(places)} places: {desc}",
+            words = "; ".join(("insulate " + k + " from the metal (insulated socket or shoulder washers)")
+                              if verb == "insulate" else f"remove {k}" for verb, k in actions)
+            out.append(Finding("GC105", "warning", f"signal ground {name} is bonded to the chassis at {len(places)} "
+                                                   f"places: {desc}",
                                ctx.loc(first_other), tuple(k for p in bonds for k in places[p]),
                                {"bonds": len(places)},
                                f"keep the bond at {keep}, nearest the protective earth; {words}", actions))
         elif not places:
             first = min(ctx.loc(n) for n in comp)
-            out.append(Finding("GC106", "warning", f"signal ground {name} is floating: it reaches neither the chassis nor the protective earth",
+            out.append(Finding("GC106", "warning", f"signal ground {name} is floating: it reaches neither the chassis "
+                                                   "nor the protective earth",
                                first, tuple(comp[:12]), {"points": len(comp)},
                                "bond the signal star to the chassis at one place near the protective-earth stud"))
     return out
@@ -164,7 +168,8 @@ def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple
 
 
 def _component_name(ctx: AuditContext, comp: list[str]) -> str:
-    stars = [n for n in comp if n in ctx.G and ctx.G.nodes[n].get("point") is not None and ctx.G.nodes[n]["point"].kind == "star"]
+    stars = [n for n in comp
+             if n in ctx.G and ctx.G.nodes[n].get("point") is not None and ctx.G.nodes[n]["point"].kind == "star"]
     if stars:
         return "around " + ", ".join(stars[:3]) + ("…" if len(stars) > 3 else "")
     return "at " + ", ".join(comp[:3]) + ("…" if len(comp) > 3 else "")
@@ -255,11 +260,13 @@ def rule_unconnected(ctx: AuditContext) -> list[Finding]:
         if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points:
             continue
         names = sorted(comp)
-        out.append(Finding("GC109", "warning", f"{', '.join(names[:6])}{'…' if len(names) > 6 else ''} reach no ground",
+        listed = f"{', '.join(names[:6])}{'…' if len(names) > 6 else ''}"
+        out.append(Finding("GC109", "warning", f"{listed} reach no ground",
                            min(ctx.loc(n) for n in names), tuple(names[:20]), {"points": len(names)},
                            "connect these points, or remove them from the plan"))
     for c in ctx.plan.conductors:
         if c.a == c.b:
-            out.append(Finding("GC110", "warning", f"{c.kind} {c.name} has both ends at {c.a}", c.location, (c.name,), {},
+            out.append(Finding("GC110", "warning", f"{c.kind} {c.name} has both ends at {c.a}", c.location, (c.name,),
+                               {},
                                "name the conductor's real ends"))
     return out
