@@ -94,3 +94,15 @@ def test_lines_stay_within_120_characters():
                   for folder in ("groundcheck", "tests", "benchmarks") for path in sorted((root / folder).rglob("*.py"))
                   for i, line in enumerate(path.read_text(encoding="utf-8").split("\n"), 1) if len(line) > 120]
     assert long_lines == []
+
+
+def test_public_physics_and_rule_functions_document_parameters_returns_and_references():
+    undocumented = []
+    for folder in ("physics", "rules"):
+        for path in sorted((PACKAGE / folder).glob("*.py")):
+            for node in ast.parse(path.read_text(encoding="utf-8")).body:
+                if isinstance(node, ast.FunctionDef) and not node.name.startswith("_"):
+                    doc = ast.get_docstring(node) or ""
+                    if not all(f"{section}:" in doc for section in ("Parameters", "Returns", "References")):
+                        undocumented.append(f"{folder}/{path.name}:{node.name}")
+    assert undocumented == []

@@ -263,6 +263,14 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
     With ``plates`` (default), a metal part of known size and material with
     two or more positioned fasteners is replaced by its Kron-reduced plate
     network; otherwise each part is one ideal node.
+
+    Parameters:
+        plan: the plan.
+        plates: model each metal part with two or more fastening spots as a plate grid (False: a node).
+    Returns:
+        the Circuit: nodes, branches with R and L, references per connected part.
+    References:
+        C.-W. Ho, A. Ruehli, P. Brennan, the modified nodal approach (IEEE Trans. Circuits Syst., 1975).
     """
     bld = _Builder(plan)
     metals = {m.name: m for m in plan.metals}

@@ -43,7 +43,17 @@ class Source:
 
 
 def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[Source]:
-    """Every current source of a plan with its spectrum (rectifiers from their simulation)."""
+    """Every current source of a plan with its spectrum (rectifiers from their simulation).
+
+    Parameters:
+        plan: the plan.
+        rectifier_results: each rectifier's simulation.
+        max_frequency: highest harmonic kept, Hz.
+    Returns:
+        every current source (rectifier harmonics, stated currents, heaters) with its spectrum of complex rms phasors.
+    References:
+        Fourier series of a periodic current (common practice).
+    """
     from .rectifier import harmonic_phasors
     f0 = plan.frequency
     out = []
@@ -66,7 +76,16 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[So
 
 
 def pair_tests(circuit: Circuit, pairs) -> np.ndarray:
-    """Injection columns: 1 A into the first point of each pair, out of the second."""
+    """Injection columns: 1 A into the first point of each pair, out of the second.
+
+    Parameters:
+        circuit: the circuit.
+        pairs: (point a, point b) of each sensitive pair.
+    Returns:
+        a nodes × pairs matrix of 1 A test injections.
+    References:
+        Tellegen's theorem / reciprocity (Penfield, Spence, Duinker, 1970).
+    """
     J = np.zeros((len(circuit.nodes), len(pairs)), dtype=complex)
     for k, (a, b) in enumerate(pairs):
         J[circuit.point_node[a], k] += 1.0
@@ -79,7 +98,17 @@ def channel_tests(circuit: Circuit, stages, channels: list[str]) -> np.ndarray:
 
     By linearity, its branch currents are the gain-weighted sum of the stages' own test currents (the
     stages of a channel taken in phase).  Built directly, in time and memory proportional to the nodes
-    and stages, not their product."""
+    and stages, not their product.
+
+    Parameters:
+        circuit: the circuit.
+        stages: the plan's stages.
+        channels: channel names in column order.
+    Returns:
+        a nodes × channels matrix of gain-weighted test injections.
+    References:
+        reciprocity (Penfield, Spence, Duinker, 1970).
+    """
     J = np.zeros((len(circuit.nodes), len(channels)), dtype=complex)
     col = {ch: k for k, ch in enumerate(channels)}
     for s in stages:
@@ -91,6 +120,17 @@ def channel_tests(circuit: Circuit, stages, channels: list[str]) -> np.ndarray:
 
 
 def source_injections(circuit: Circuit, sources, f: float) -> np.ndarray:
+    """The injected currents of every source at one frequency.
+
+    Parameters:
+        circuit: the circuit.
+        sources: current sources with spectra.
+        f: frequency, Hz.
+    Returns:
+        a nodes × sources matrix of injected currents at f, A.
+    References:
+        nodal analysis (Ho, Ruehli, Brennan, 1975).
+    """
     J = np.zeros((len(circuit.nodes), len(sources)), dtype=complex)
     for k, s in enumerate(sources):
         i = s.parts.get(f, 0)
@@ -100,12 +140,29 @@ def source_injections(circuit: Circuit, sources, f: float) -> np.ndarray:
 
 
 def branch_owner(circuit: Circuit) -> list[str]:
-    """The plan element each branch belongs to: its conductor, or the metal part of a plate branch."""
+    """The plan element each branch belongs to: its conductor, or the metal part of a plate branch.
+
+    Parameters:
+        circuit: the circuit.
+    Returns:
+        the plan element (conductor or metal part) of each branch, by branch index.
+    References:
+        none (bookkeeping).
+    """
     return [b.owner for b in circuit.branches]
 
 
 def pair_path(circuit: Circuit, a: str, b: str) -> list[tuple[int, float]]:
-    """Branches (index, ±1 orientation from a to b) of the least-resistance path between two points."""
+    """Branches (index, ±1 orientation from a to b) of the least-resistance path between two points.
+
+    Parameters:
+        circuit: the circuit.
+        a, b: the two points.
+    Returns:
+        the branches of the least-resistance path with their orientation from a to b.
+    References:
+        Dijkstra's shortest path on resistances (scipy.sparse.csgraph).
+    """
     n1, n2, *_ = circuit._arrays
     best, A = circuit.least_resistance_graph
     ia, ib = circuit.point_node[a], circuit.point_node[b]
@@ -125,7 +182,17 @@ def pair_path(circuit: Circuit, a: str, b: str) -> list[tuple[int, float]]:
 
 
 def path_drop(fac: Factored, sol: Solution, path) -> np.ndarray:
-    """Drop Z·I along a path from its first point to its last, for every source column (V)."""
+    """Drop Z·I along a path from its first point to its last, for every source column (V).
+
+    Parameters:
+        fac: the factorised circuit.
+        sol: a solution at the same frequency.
+        path: branches with orientation.
+    Returns:
+        the drop Z·I along the path for every source column, V.
+    References:
+        Ohm's law.
+    """
     total = np.zeros(sol.I.shape[1], dtype=complex)
     for idx, sgn in path:
         total += sgn * fac.z[idx] * sol.I[idx]
@@ -159,7 +226,16 @@ class SharedReturn:
 
 def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     """Supply-return currents whose path shares conductors with a sensitive pair (resistive, DC): one row per
-    (source, stage) pair that shares, naming the conductors that make up most of the coupling."""
+    (source, stage) pair that shares, naming the conductors that make up most of the coupling.
+
+    Parameters:
+        plan: the plan.
+        circuit: the circuit.
+    Returns:
+        every supply-return current whose path shares conductors with a sensitive pair, with the shared conductors.
+    References:
+        superposition in a linear resistive network (common practice).
+    """
     # a unit current between each source's ends shows the sharing: rectifiers need no simulation here
     sources = [Source(r.name, "rectifier", r.a, r.b, {0.0: 1.0}, r.channel, r.location) for r in plan.rectifiers]
     sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel,
@@ -198,17 +274,20 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
         carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
         if not carrying.any():
             continue
-        tr = float(transfer[k, si])
-        # name the conductors that make up most of the coupling (largest shares first, at most five)
-        idx = [b for b in np.argsort(-np.abs(shares), kind="stable") if carrying[b]]
-        total = np.abs(shares[idx]).sum()
-        shared, acc = [], 0.0
-        for b in idx:
-            if owners[b] not in shared:
-                shared.append(owners[b])
-            acc += abs(shares[b])
-            if acc >= 0.9 * total or len(shared) >= 5:
-                break
-        rows.append(SharedReturn(s.name, s.kind, s.a, s.b, s.location, st.name, st.a, st.b, st.gain, st.location, tr,
-                                 tuple(shared)))
+        rows.append(SharedReturn(s.name, s.kind, s.a, s.b, s.location, st.name, st.a, st.b, st.gain, st.location,
+                                 float(transfer[k, si]), _main_sharers(shares, carrying, owners)))
     return rows
+
+
+def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -> tuple[str, ...]:
+    """The conductors that make up most of the coupling (largest shares first, 90 % of it, at most five)."""
+    idx = [b for b in np.argsort(-np.abs(shares), kind="stable") if carrying[b]]
+    total = np.abs(shares[idx]).sum()
+    shared, acc = [], 0.0
+    for b in idx:
+        if owners[b] not in shared:
+            shared.append(owners[b])
+        acc += abs(shares[b])
+        if acc >= 0.9 * total or len(shared) >= 5:
+            break
+    return tuple(shared)

@@ -28,6 +28,13 @@ def threshold_of_hearing(f: float) -> float:
     """T_f (dB SPL) at frequency f: the ISO 226:2003 table, linear in log-frequency between its rows.
 
     Outside 20 Hz – 12.5 kHz the end value is held (the standard gives no value there).
+
+    Parameters:
+        f: frequency, Hz.
+    Returns:
+        the threshold of hearing, dB SPL.
+    References:
+        ISO 226:2003, Table 1.
     """
     f = min(max(f, ISO226_FREQ[0]), ISO226_FREQ[-1])
     i = min(max(bisect_right(ISO226_FREQ, f) - 1, 0), len(ISO226_FREQ) - 2)
@@ -37,7 +44,15 @@ def threshold_of_hearing(f: float) -> float:
 
 
 def dbu_from_dbv(level_dbv: float) -> float:
-    """dBu from dBV: +20·log10(1/√0.6) = +2.2185 dB."""
+    """dBu from dBV: +20·log10(1/√0.6) = +2.2185 dB.
+
+    Parameters:
+        level_dbv: a level in dBV.
+    Returns:
+        the level in dBu.
+    References:
+        dBu reference 0.7746 V (√0.6 V), common practice.
+    """
     return level_dbv - db_of_ratio(DBU_REF)
 
 
@@ -48,6 +63,17 @@ def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, imp
     V at the speaker = v_out·10^(gain/20); electrical power P = V²/Z; SPL =
     sensitivity (dB SPL at 1 W, 1 m) + 10·log10(P / 1 W) − 20·log10(d / 1 m):
     one speaker, free field, inverse-square law (common practice).
+
+    Parameters:
+        v_out: voltage at the plan's output, V rms.
+        amp_gain_db: gain to the speaker, dB.
+        sensitivity_db: dB SPL at 1 W, 1 m.
+        impedance: speaker impedance, Ω.
+        distance: listening distance, m.
+    Returns:
+        sound pressure level at the listener, dB SPL (−inf for no voltage).
+    References:
+        inverse-square law in a free field (L. Beranek, *Acoustics*, 1954).
     """
     if v_out <= 0:
         return -math.inf

@@ -144,6 +144,18 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
 
     Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
     are shared among that many processes (:mod:`groundcheck.physics.sweep`), with the same result.
+
+    Parameters:
+        plan: the plan.
+        circuit: the circuit.
+        loops: the independent loops.
+        rectifier_results: each rectifier's simulation.
+        options: the budget's settings.
+        jobs: processes for the frequencies.
+    Returns:
+        the HumResult: per channel the spectrum, total, contributors and audibility; loop pickup; crosstalk.
+    References:
+        ISO 226:2003 (threshold); reciprocity (Penfield, Spence, Duinker, 1970); Faraday's law.
     """
     b = _Budget(plan, circuit, loops, rectifier_results, options)
     merged = _Merged(b)

@@ -45,6 +45,11 @@ FASTENER_RADIUS = 4e-3
 def resistivity(material: str, temperature: float = 20.0) -> float:
     """ρ(T) = ρ₂₀ · (1 + α₂₀ · (T − 20 °C)), in Ω·m.
 
+    Parameters:
+        material: a material name of MATERIALS.
+        temperature: °C.
+    Returns:
+        the resistivity, Ω·m.
     References: IEC 60028 (copper ρ₂₀ and α₂₀); the linear law is the one IEC 60028 states.
     """
     rho20, alpha, _ = MATERIALS[material]
@@ -56,6 +61,11 @@ def wire_inductance(length: float, radius: float) -> float:
 
     L = 2·10⁻⁷ · l · [ln(2l/r) − 0.75]   (l ≫ r; the −0.75 includes the internal inductance)
 
+    Parameters:
+        length: m.
+        radius: m.
+    Returns:
+        the self-inductance, H.
     References: E. B. Rosa (1908); F. W. Grover, *Inductance Calculations*, 1946.
     """
     if length <= 0 or radius <= 0:
@@ -69,6 +79,12 @@ def strip_inductance(length: float, width: float, thickness: float) -> float:
 
     L = 2·10⁻⁷ · l · [ln(2l/(w+t)) + 0.5 + 0.2235·(w+t)/l]
 
+    Parameters:
+        length: m.
+        width: m.
+        thickness: m.
+    Returns:
+        the self-inductance, H.
     References: F. W. Grover, *Inductance Calculations*, 1946 (rectangular bar).
     """
     if length <= 0:
@@ -78,7 +94,17 @@ def strip_inductance(length: float, width: float, thickness: float) -> float:
 
 
 def skin_depth(rho: float, frequency: float, mu_r: float = 1.0) -> float:
-    """δ = √(ρ / (π f µ₀ µr)), in m (infinite at DC)."""
+    """δ = √(ρ / (π f µ₀ µr)), in m (infinite at DC).
+
+    Parameters:
+        rho: resistivity, Ω·m.
+        frequency: Hz.
+        mu_r: relative permeability.
+    Returns:
+        the skin depth, m.
+    References:
+        S. Ramo, J. Whinnery, T. Van Duzer, *Fields and Waves in Communication Electronics*, §5.
+    """
     if frequency <= 0:
         return math.inf
     return math.sqrt(rho / (math.pi * frequency * MU0 * mu_r))
@@ -91,6 +117,12 @@ def skin_ratio(radius, rho, frequency):
     Works on numpy arrays of radii.  Exponentially scaled Bessel functions keep
     it finite for r ≫ δ, where it tends to r/(2δ) + 1/4.
 
+    Parameters:
+        radius: m.
+        rho: Ω·m.
+        frequency: Hz.
+    Returns:
+        R_ac / R_dc (1 at DC).
     References: S. Ramo, J. Whinnery, T. Van Duzer, *Fields and Waves in
     Communication Electronics*, §5.6 (internal impedance of a round wire).
     """
@@ -109,7 +141,16 @@ def conductor_resistance(c, temperature: float) -> tuple[float, float, float]:
     """(R_dc in Ω, self-inductance in H, radius in m for the skin effect; 0 when not a round wire) of a
     conductor, by its kind's impedance model (:data:`groundcheck.model.kinds.KINDS`): a contact, a switch
     contact, a lift network's resistor, a flat strip (ρL/(w·t), Grover's strip inductance) or a round wire
-    (ρL/A, Rosa's wire inductance).  A stated resistance replaces the geometry's."""
+    (ρL/A, Rosa's wire inductance).  A stated resistance replaces the geometry's.
+
+    Parameters:
+        c: a conductor record.
+        temperature: °C.
+    Returns:
+        (R_dc in Ω, self-inductance in H, radius in m or 0).
+    References:
+        IEC 60028 (resistivity); Grover, *Inductance Calculations*, 1946; ASTM B258 (AWG).
+    """
     model = KINDS[c.kind].impedance
     rho = resistivity(c.material if c.material in MATERIALS else "copper", temperature)
     contact = c.contact or 0.0

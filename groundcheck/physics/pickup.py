@@ -29,7 +29,16 @@ __all__ = ["segment_integral", "path_flux", "loop_flux", "flux_density", "emf"]
 
 
 def flux_density(src: FieldSource, p) -> float:
-    """|B| (T rms) of the source at point p in the chassis plane: B_ref·(r_ref/r)³."""
+    """|B| (T rms) of the source at point p in the chassis plane: B_ref·(r_ref/r)³.
+
+    Parameters:
+        src: a field source.
+        p: point in the chassis plane, m.
+    Returns:
+        |B|, T rms.
+    References:
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6 (dipole field, 1/r³).
+    """
     r = math.dist(src.pos, p)
     return math.inf if r == 0 else src.b_ref * (src.r_ref / r) ** 3
 
@@ -40,6 +49,13 @@ def segment_integral(p, q) -> float:
     With r(t) = p + t·d, x dy − y dx = c·dt where c = p × d is constant, and
     ∫₀¹ dt/|p + t d|³ = [(2a t + b)/(2c²·√(a t² + b t + e))]₀¹ / … in closed form
     (a = |d|², b = 2 p·d, e = |p|², 4ae − b² = 4c²).
+
+    Parameters:
+        p, q: the segment's ends relative to the dipole, m.
+    Returns:
+        the line integral, 1/m.
+    References:
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6; the integral worked in closed form here.
     """
     px, py = p
     dx, dy = q[0] - px, q[1] - py
@@ -60,7 +76,16 @@ def segment_integral(p, q) -> float:
 
 
 def path_flux(src: FieldSource, pts) -> float:
-    """∫A·dl along an open polyline (Wb): the share of a loop's flux that the path carries."""
+    """∫A·dl along an open polyline (Wb): the share of a loop's flux that the path carries.
+
+    Parameters:
+        src: a field source.
+        pts: the polyline's points, m.
+    Returns:
+        the flux share the path carries, Wb rms.
+    References:
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6 (Φ = ∮A·dl).
+    """
     ox, oy = src.pos
     k = src.b_ref * src.r_ref ** 3
     total = 0.0
@@ -70,7 +95,16 @@ def path_flux(src: FieldSource, pts) -> float:
 
 
 def loop_flux(src: FieldSource, polygon) -> float:
-    """Flux (Wb, rms) of the source through a closed polygon, counter-clockwise positive."""
+    """Flux (Wb, rms) of the source through a closed polygon, counter-clockwise positive.
+
+    Parameters:
+        src: a field source.
+        polygon: the loop's corners, m.
+    Returns:
+        the flux through the loop, Wb rms (counter-clockwise positive).
+    References:
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6 (Φ = ∮A·dl).
+    """
     pts = list(polygon)
     if len(pts) < 3:
         return 0.0
@@ -78,12 +112,30 @@ def loop_flux(src: FieldSource, polygon) -> float:
 
 
 def emf(flux: float, frequency: float) -> float:
-    """EMF magnitude (V rms) of an rms flux at a frequency: 2πfΦ (Faraday)."""
+    """EMF magnitude (V rms) of an rms flux at a frequency: 2πfΦ (Faraday).
+
+    Parameters:
+        flux: Wb rms.
+        frequency: Hz.
+    Returns:
+        the EMF, V rms.
+    References:
+        Faraday's law of induction.
+    """
     return 2 * math.pi * frequency * abs(flux)
 
 
 def min_distance(src: FieldSource, polygon) -> float:
-    """Closest approach of a polygon's edges to the source, m."""
+    """Closest approach of a polygon's edges to the source, m.
+
+    Parameters:
+        src: a field source.
+        polygon: the loop's corners, m.
+    Returns:
+        the closest approach of the polygon's edges to the source, m.
+    References:
+        elementary geometry.
+    """
     o = np.asarray(src.pos)
     best = math.inf
     pts = list(polygon)

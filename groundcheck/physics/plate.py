@@ -59,6 +59,15 @@ def grid_laplacian(width: float, depth: float, sheet_conductance: float, nx: int
 
     Boundary nodes own half a cell, so a strip with full-width contacts has
     exactly the resistance ρL/(wt) on any grid.
+
+    Parameters:
+        width, depth: plate size, m.
+        sheet_conductance: S per square.
+        nx, ny: grid nodes.
+    Returns:
+        the sparse conductance Laplacian, S.
+    References:
+        S. V. Patankar, *Numerical Heat Transfer and Fluid Flow*, 1980 (finite-volume discretisation).
     """
     hx, hy = width / (nx - 1), depth / (ny - 1)
     idx = np.arange(nx * ny).reshape(ny, nx)
@@ -125,6 +134,19 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
     ``contacts`` are positions relative to the plate's lower-left corner, m.
     ``step`` defaults to half the fastener radius, coarsened so the grid holds
     at most :data:`MAX_GRID_NODES` nodes.
+
+    Parameters:
+        width, depth, thickness: m.
+        rho: Ω·m.
+        contacts: fastening positions, m.
+        names: their node names.
+        radius: fastener contact radius, m.
+        step: grid step, m.
+        estimate_error: also solve a grid twice as coarse.
+    Returns:
+        a PlateResult: the conductance matrix between the contacts, the step used and the estimated error.
+    References:
+        G. Kron, *Tensor Analysis of Networks*, 1939 (network reduction: the Schur complement).
     """
     width, depth = abs(width), abs(depth)
     sheet_g = thickness / rho

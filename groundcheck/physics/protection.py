@@ -82,7 +82,18 @@ class Clearing:
 def fuse_clearing(kind: str, rating: float, current: float, frequency: float) -> Clearing | None:
     """Worst-case clearing of a miniature fuse: pre-arcing (IEC 60127-2 limits) plus arcing to the next
     current zero (at most half a cycle, 1/(2f)).  Above 10 × In the fuse melts adiabatically: its
-    pre-arcing I²t is at most the value at 10 × In, so t = I²t / I².  None below 2.75 × In."""
+    pre-arcing I²t is at most the value at 10 × In, so t = I²t / I².  None below 2.75 × In.
+
+    Parameters:
+        kind: slow or fast.
+        rating: In, A.
+        current: prospective current, A.
+        frequency: mains frequency, Hz.
+    Returns:
+        the worst-case Clearing (time in s, let-through I²t in A²s); None when the fuse may not open.
+    References:
+        IEC 60127-2 (pre-arcing time limits of miniature fuse-links).
+    """
     table = FUSE_PREARC_LIMITS.get(kind, FUSE_PREARC_LIMITS["slow"])
     m = current / rating
     arcing = 1.0 / (2.0 * frequency)
@@ -99,7 +110,17 @@ def fuse_clearing(kind: str, rating: float, current: float, frequency: float) ->
 
 
 def breaker_clearing(curve: str, rating: float, current: float) -> Clearing | None:
-    """Worst-case tripping of a miniature breaker of curve B, C or D (IEC 60898-1, from memory)."""
+    """Worst-case tripping of a miniature breaker of curve B, C or D (IEC 60898-1, from memory).
+
+    Parameters:
+        curve: B, C or D.
+        rating: In, A.
+        current: prospective current, A.
+    Returns:
+        the worst-case Clearing (time in s, let-through I²t in A²s); None when it may not trip.
+    References:
+        IEC 60898-1 (time-current bands of curves B, C, D; from memory).
+    """
     m = current / rating
     if m >= BREAKER_INSTANT.get(curve, 5.0):
         return Clearing(0.1, current * current * BREAKER_LET_THROUGH_TIME)
@@ -110,14 +131,34 @@ def breaker_clearing(curve: str, rating: float, current: float) -> Clearing | No
 
 
 def device_clearing(kind: str, rating: float, current: float, frequency: float) -> Clearing | None:
-    """The fuse (``slow``/``fast``) or breaker (``breaker-B``/``-C``/``-D``) of the mains statement at a current."""
+    """The fuse (``slow``/``fast``) or breaker (``breaker-B``/``-C``/``-D``) of the mains statement at a current.
+
+    Parameters:
+        kind: slow, fast or breaker-B/C/D.
+        rating: A.
+        current: A.
+        frequency: Hz.
+    Returns:
+        the worst-case Clearing of that device, or None when it may not open.
+    References:
+        IEC 60127-2; IEC 60898-1.
+    """
     if kind.startswith("breaker"):
         return breaker_clearing(kind.split("-", 1)[1], rating, current)
     return fuse_clearing(kind, rating, current, frequency)
 
 
 def rcd_clearing(rated: float, residual: float) -> Clearing | None:
-    """Worst-case break time of a general-type RCD at a residual current (None below IΔn)."""
+    """Worst-case break time of a general-type RCD at a residual current (None below IΔn).
+
+    Parameters:
+        rated: IΔn, A.
+        residual: the residual current, A.
+    Returns:
+        the worst-case break time, s, or None below IΔn.
+    References:
+        IEC 61008-1, Table 1 (general type).
+    """
     for mm, t in RCD_TIMES:
         if residual >= mm * rated:
             return Clearing(t, residual * residual * t)
@@ -126,7 +167,16 @@ def rcd_clearing(rated: float, residual: float) -> Clearing | None:
 
 def max_disconnection_time(voltage: float, system: str) -> float | None:
     """IEC 60364-4-41 Table 41.1: the longest allowed disconnection time at U0 = ``voltage`` (None at or
-    below 50 V, where the table sets none)."""
+    below 50 V, where the table sets none).
+
+    Parameters:
+        voltage: U0, V.
+        system: TN-S, TN-C-S or TT.
+    Returns:
+        the maximum disconnection time, s (None below 50 V).
+    References:
+        IEC 60364-4-41, Table 41.1.
+    """
     if voltage <= 50.0:
         return None
     for top, tn, tt in DISCONNECTION_LIMITS:
@@ -136,7 +186,18 @@ def max_disconnection_time(voltage: float, system: str) -> float | None:
 
 
 def breaking_capacity(kind: str, rating: float, category: str | None, stated: float | None) -> float:
-    """The current the device can interrupt, A: stated, else by fuse category (default low) or breaker."""
+    """The current the device can interrupt, A: stated, else by fuse category (default low) or breaker.
+
+    Parameters:
+        kind: fuse or breaker kind.
+        rating: A.
+        category: low, enhanced or high.
+        stated: a stated capacity, A.
+    Returns:
+        the breaking capacity, A.
+    References:
+        IEC 60127-2 (fuses); IEC 60898-1 (breakers).
+    """
     if stated is not None:
         return stated
     if kind.startswith("breaker"):
@@ -147,7 +208,16 @@ def breaking_capacity(kind: str, rating: float, category: str | None, stated: fl
 
 def fuse_cold_resistance(kind: str, rating: float) -> float:
     """Cold resistance of a miniature fuse, Ω: about 0.2 V / In, a rough fit to makers' data for
-    5 × 20 mm fuses (0.4 Ω at 500 mA, 2 Ω at 100 mA) — from memory.  Breakers: taken as 0."""
+    5 × 20 mm fuses (0.4 Ω at 500 mA, 2 Ω at 100 mA) — from memory.  Breakers: taken as 0.
+
+    Parameters:
+        kind: fuse kind.
+        rating: In, A.
+    Returns:
+        the cold resistance, Ω.
+    References:
+        makers' data sheets of 5 × 20 mm fuses (about 0.2 V / In, from memory).
+    """
     if kind.startswith("breaker"):
         return 0.0
     return 0.2 / rating
@@ -162,6 +232,17 @@ def _per_km(table, area: float) -> float:
 
 def cable_resistance(length: float, area: float, flexible: bool, temperature: float = 20.0) -> float:
     """Maximum resistance of one copper core, Ω: IEC 60228 class 5 (``flexible``) or class 1/2 at 20 °C,
-    corrected to ``temperature`` with IEC 60228 Annex B's factor (230 + t)/250."""
+    corrected to ``temperature`` with IEC 60228 Annex B's factor (230 + t)/250.
+
+    Parameters:
+        length: m.
+        area: mm²-class cross-section, m².
+        flexible: class 5 (True) or class 1/2.
+        temperature: °C.
+    Returns:
+        the maximum core resistance, Ω.
+    References:
+        IEC 60228 (maximum conductor resistance at 20 °C); IEC 60028 (temperature coefficient).
+    """
     per_km = _per_km(CORD_CLASS5 if flexible else FIXED_CLASS2, area)
     return per_km * length / 1000.0 * (230.0 + temperature) / 250.0

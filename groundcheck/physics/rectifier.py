@@ -101,7 +101,16 @@ def _period(s: np.ndarray, v0: float, h: float, R: float, C: float, iload: float
 
 
 def simulate(r: Rectifier, frequency: float) -> RectifierResult:
-    """Periodic steady state of the rectifier at mains ``frequency`` (Hz)."""
+    """Periodic steady state of the rectifier at mains ``frequency`` (Hz).
+
+    Parameters:
+        r: a rectifier record.
+        frequency: mains frequency, Hz.
+    Returns:
+        the periodic steady state: charging current samples, ripple, DC output.
+    References:
+        O. H. Schade, 'Analysis of rectifier operation', Proc. IRE 31, 1943 (the circuit model).
+    """
     n = STEPS_PER_PERIOD
     T = 1.0 / frequency
     h = T / n
@@ -132,6 +141,14 @@ def harmonic_phasors(samples: np.ndarray, max_harmonic: int) -> np.ndarray:
 
     Element 0 is the mean; element k is √2·X_k/N, whose magnitude is the rms
     value of harmonic k.
+
+    Parameters:
+        samples: one period, equally spaced.
+        max_harmonic: highest harmonic.
+    Returns:
+        complex rms phasors indexed by harmonic.
+    References:
+        the discrete Fourier transform (numpy.fft).
     """
     n = len(samples)
     X = np.fft.rfft(samples)

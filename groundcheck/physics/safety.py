@@ -51,7 +51,16 @@ ADIABATIC_K = {"pvc": (115.0, 143.0), "xlpe": (143.0, 176.0), "bare": (159.0, 15
 
 
 def adiabatic_k(insulation: str, in_cable: bool) -> float:
-    """k of a copper protective conductor (IEC 60364-5-54 Annex A)."""
+    """k of a copper protective conductor (IEC 60364-5-54 Annex A).
+
+    Parameters:
+        insulation: pvc or rubber or bare.
+        in_cable: whether the conductor is a core of a cable.
+    Returns:
+        k, A·√s/mm².
+    References:
+        IEC 60364-5-54, Annex A (Tables A.54.2–A.54.4).
+    """
     pair = ADIABATIC_K.get(insulation, ADIABATIC_K["pvc"])
     return pair[0] if in_cable else pair[1]
 
@@ -148,7 +157,15 @@ class SafetyResult:
 
 
 def supply_figures(plan: Plan) -> Supply:
-    """The fault loop outside the equipment's protective path, from the mains statement and defaults."""
+    """The fault loop outside the equipment's protective path, from the mains statement and defaults.
+
+    Parameters:
+        plan: the plan.
+    Returns:
+        the SupplyFigures: external loop impedance, final circuit, cord, disconnection limit.
+    References:
+        IEC 60364-4-41; IEC 60228.
+    """
     m = plan.mains
     T = plan.ambient
     cord = cable_resistance(m.cord_length, m.cord_section, True, T)
@@ -185,7 +202,17 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
 
 def protective_circuit(plan: Plan, route: ProtectiveRoute, circuit=None):
     """The protective network: conductors protective by topology or role (of a kind that may carry protective
-    current) with every metal part's plate network; from the plan's full circuit when given."""
+    current) with every metal part's plate network; from the plan's full circuit when given.
+
+    Parameters:
+        plan: the plan.
+        route: the protective route.
+        circuit: the full circuit.
+    Returns:
+        the circuit restricted to protective conductors.
+    References:
+        IEC 60364-5-54 (protective conductors).
+    """
     keep = {c.name for c in plan.conductors
             if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES)}
     if circuit is None:
@@ -222,7 +249,19 @@ def _path_resistances(plan: Plan, circ) -> dict[str, float]:
 def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAULT_PE_LIMIT,
                        circuit=None) -> SafetyResult | None:
     """Protective-earth figures of every touchable part bonded to the inlet; None without a mains supply
-    or for class II equipment (which has no protective earth)."""
+    or for class II equipment (which has no protective earth).
+
+    Parameters:
+        plan: the plan.
+        route: the protective route.
+        limit: path-resistance limit, Ω.
+        circuit: the circuit.
+    Returns:
+        a SafetyResult per touchable part, or None without a mains statement.
+    References:
+        IEC 60364-4-41 (disconnection, touch voltage); IEC 60364-5-54 (adiabatic check); IEC 62368-1 / IEC 60065 bonding
+            limit.
+    """
     m = plan.mains
     if m is None or m.equipment_class == "II":
         return None
@@ -283,7 +322,17 @@ class DeviceEarth:
 
 def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tuple[DeviceEarth, ...] | None:
     """Each placed device's earth-pin path to the main earthing terminal; None when the plan has no
-    placed device or no point of kind ``earthing-terminal``."""
+    placed device or no point of kind ``earthing-terminal``.
+
+    Parameters:
+        plan: the plan.
+        route: the protective route.
+        circuit: the circuit.
+    Returns:
+        each placed device's earth path, or None when the plan places no device.
+    References:
+        IEC 60364-5-54.
+    """
     inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT)
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
     if not inlets or not mets:

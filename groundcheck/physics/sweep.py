@@ -55,6 +55,15 @@ def map_frequencies(work: Callable[[float], T], freqs: Sequence[float], jobs: in
     The frequencies are dealt out in turn (the first to worker 1, the second
     to worker 2, ...), which balances the load when the cost varies smoothly
     with frequency.  ``work`` need not be picklable; its results must be.
+
+    Parameters:
+        work: a function of one frequency.
+        freqs: the frequencies.
+        jobs: processes.
+    Returns:
+        the results in the order of freqs.
+    References:
+        none (process pool).
     """
     freqs = list(freqs)
     jobs = min(max(1, int(jobs)), len(freqs))

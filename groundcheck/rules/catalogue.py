@@ -18,7 +18,15 @@ SEVERITIES = ("danger", "fault", "warning", "note")
 
 
 def severity_rank(sev: str) -> int:
-    """0 for danger … 3 for note."""
+    """0 for danger … 3 for note.
+
+    Parameters:
+        sev: danger, fault, warning or note.
+    Returns:
+        0 for danger … 3 for note.
+    References:
+        none (bookkeeping).
+    """
     return SEVERITIES.index(sev)
 
 

@@ -148,7 +148,16 @@ class AuditContext:
 
 
 def classify_loop(ctx: AuditContext, lp: Loop) -> str:
-    """What closes a loop: one of :data:`LOOP_CLASSES`."""
+    """What closes a loop: one of :data:`LOOP_CLASSES`.
+
+    Parameters:
+        ctx: the audit context.
+        lp: a loop.
+    Returns:
+        one of LOOP_CLASSES.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     cs = [ctx.conductors[e] for e in lp.edges]
     kinds = {c.kind for c in cs}
     roles = {c.role for c in cs}
@@ -171,14 +180,33 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
 
 
 def node_channel(ctx: "AuditContext", name: str) -> str | None:
-    """The placement (block or device) a point was placed by: in a dual-mono plan, its channel."""
+    """The placement (block or device) a point was placed by: in a dual-mono plan, its channel.
+
+    Parameters:
+        ctx: the audit context.
+        name: a point's name.
+    Returns:
+        the block or device that placed it, or None.
+    References:
+        none (bookkeeping).
+    """
     data = ctx.G.nodes[name] if name in ctx.G else {}
     point = data.get("point")
     return point.group.split(".", 1)[0] if point is not None and point.group else None
 
 
 def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
-    """The conductor to open: never a protective conductor or a fastening of metal parts."""
+    """The conductor to open: never a protective conductor or a fastening of metal parts.
+
+    Parameters:
+        ctx: the audit context.
+        lp: a loop.
+        closed_by: its class.
+    Returns:
+        the conductor to open, or None when every conductor must stay.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     cs = [ctx.conductors[e] for e in lp.edges]
     candidates = [c for c in cs if c.role != "protective" and c.name not in ctx.protective_path
                   and not (bonds_metal(c) and c.role == "bond" and (c.a in ctx.metals and c.b in ctx.metals))]
@@ -212,7 +240,16 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
 
 
 def pe_distance(ctx: AuditContext, node: str) -> float:
-    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when unknown)."""
+    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when unknown).
+
+    Parameters:
+        ctx: the audit context.
+        node: a chassis-side point.
+    Returns:
+        the straight-line distance to the protective-earth landing, m.
+    References:
+        elementary geometry.
+    """
     pe = [v for v in ctx.G.adj.get(PE_POINT, {}) if ctx.G.nodes[v].get("pos") is not None]
     here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
     if not pe or here is None:
@@ -223,7 +260,17 @@ def pe_distance(ctx: AuditContext, node: str) -> float:
 
 def bfs(adj: dict, sources, allowed=None):
     """Hop distances and parents from any of ``sources`` over nodes passing ``allowed``
-    (``adj``: node -> neighbours)."""
+    (``adj``: node -> neighbours).
+
+    Parameters:
+        adj: node -> neighbours.
+        sources: start nodes.
+        allowed: which nodes may be passed.
+    Returns:
+        (hop distance of each reached node, its parent).
+    References:
+        breadth-first search (Cormen et al., *Introduction to Algorithms*).
+    """
     dist, parent = {}, {}
     q = deque()
     for s in sources:

@@ -37,7 +37,15 @@ class Solved:
 
 @rule("GC102", needs="solve")
 def rule_shared_returns(s: Solved) -> list[Finding]:
-    """GC102: a supply-return current that shares conductors with a stage's sensitive pair."""
+    """GC102: a supply-return current that shares conductors with a stage's sensitive pair.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC102 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     plan_conductors = {c.name: c for c in s.plan.conductors}
     leak = {c.name for c in s.plan.currents if c.role == "leakage"}
     out = []
@@ -63,7 +71,15 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
 
 @rule("GC401", needs="solve")
 def rule_islands(s: Solved) -> list[Finding]:
-    """GC401: a stage whose two points lie in parts of the network that are not connected."""
+    """GC401: a stage whose two points lie in parts of the network that are not connected.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC401 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     _, labels = s.circuit.components
     node = s.circuit.point_node
     return [Finding("GC401", "note", f"stage {st.name}: {st.a} and {st.b} are not connected to each other",
@@ -73,7 +89,15 @@ def rule_islands(s: Solved) -> list[Finding]:
 
 @rule("GC301", "GC302", "GC303", "GC304", needs="solve")
 def rule_hum(s: Solved) -> list[Finding]:
-    """GC301–GC304: hum contributors, loop pickup, audibility and crosstalk from the hum budget."""
+    """GC301–GC304: hum contributors, loop pickup, audibility and crosstalk from the hum budget.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC301–GC304 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     if s.hum is None:
         return []
     plan, hum, opts = s.plan, s.hum, s.options
@@ -108,20 +132,7 @@ def rule_hum(s: Solved) -> list[Finding]:
                                                                       "share_pct": c["share_pct"], "channel": ch},
                                    "open the loop, or make it smaller and move it away from the field source"))
         if h.audible:
-            top: list[str] = []
-            for c in h.contributors:
-                label = f"{c['element']} ({c['source']}, {c['share_pct']:.0f} %)"
-                if c["element"] not in [t.split(" (")[0] for t in top]:
-                    top.append(label)
-                if len(top) == 3:
-                    break
-            out.append(Finding("GC303", "fault",
-                               f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's "
-                               f"seat by {h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
-                               loc, (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
-                               {"margin_db": round(h.margin_db, 2), "total_dbv": round(h.total_dbv, 2),
-                                "signal_to_hum_db": round(h.signal_to_hum, 2)},
-                               "fix the main contributors first: " + "; ".join(top)))
+            out.append(_audible(ch, h, loc))
     for row in hum.crosstalk:
         if row["frequency_hz"] == 1000.0 and row["db"] is not None and row["db"] > opts.crosstalk_limit:
             loc = stages_by_ch[row["to"]][0].location
@@ -130,3 +141,21 @@ def rule_hum(s: Solved) -> list[Finding]:
                                loc, (str(row["from"]), row["to"]), {"crosstalk_db": row["db"]},
                                "give each channel its own return to the star; join the channels at one point only"))
     return out
+
+
+def _audible(ch: str, h, loc) -> Finding:
+    """GC303: a channel whose hum is above the threshold of hearing, naming its three main contributors."""
+    top: list[str] = []
+    for c in h.contributors:
+        label = f"{c['element']} ({c['source']}, {c['share_pct']:.0f} %)"
+        if c["element"] not in [t.split(" (")[0] for t in top]:
+            top.append(label)
+        if len(top) == 3:
+            break
+    return Finding("GC303", "fault",
+                   f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's "
+                   f"seat by {h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
+                   loc, (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
+                   {"margin_db": round(h.margin_db, 2), "total_dbv": round(h.total_dbv, 2),
+                    "signal_to_hum_db": round(h.signal_to_hum, 2)},
+                   "fix the main contributors first: " + "; ".join(top))

@@ -28,7 +28,15 @@ __all__ = ["rule_protective_earth", "rule_class_ii", "rule_protective_figures", 
 
 @rule("GC201", "GC202", "GC203", "GC204", "GC205", "GC209", "GC210")
 def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
-    """GC201–GC205, GC209, GC210: the protective route of a class I plan with a mains inlet."""
+    """GC201–GC205, GC209, GC210: the protective route of a class I plan with a mains inlet.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC201–GC205, GC209, GC210 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     plan = ctx.plan
     if plan.mains is None or plan.mains.equipment_class == "II" or PE_POINT not in ctx.G:
         return []
@@ -144,7 +152,15 @@ def _pe_sections(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC212", "GC213")
 def rule_class_ii(ctx: AuditContext) -> list[Finding]:
-    """GC212, GC213: a class II plan has no protective earth to check, and must not have an earth terminal in use."""
+    """GC212, GC213: a class II plan has no protective earth to check, and must not have an earth terminal in use.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC212, GC213 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     m = ctx.plan.mains
     if m is None or m.equipment_class != "II":
         return []
@@ -164,13 +180,20 @@ def rule_class_ii(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC206", "GC207", "GC208", "GC211", "GC214", needs="solve")
 def rule_protective_figures(s: Solved) -> list[Finding]:
-    """GC206, GC207, GC208, GC211, GC214 from the protective-earth figures."""
+    """GC206, GC207, GC208, GC211, GC214 from the protective-earth figures.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC206–GC208, GC211, GC214 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     if s.safety is None:
         return []
     plan, safety = s.plan, s.safety
     out = []
     m = plan.mains
-    sup = safety.supply
     for p in safety.parts:
         part = plan.metal(p.part)
         figs = {"path_resistance_mohm": round(p.path_resistance * 1e3, 3), "limit_mohm": safety.limit * 1e3}
@@ -193,19 +216,7 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
     if m.fuse is None and m.clear_time is None and m.rcd is None and safety.parts:
         out.append(Finding("GC208", "note", "no fuse, breaker or RCD in the mains statement: disconnection not checked",
                            m.location, ("mains",), {}, "add e.g. ', fuse 2 A slow' to the mains statement"))
-    worst = max((p.fault_current for p in safety.parts if p.fault_current is not None), default=None)
-    if sup.breaking_capacity is not None and worst is not None and worst > sup.breaking_capacity:
-        stated = m.breaking is not None or m.breaking_current is not None or m.fuse_kind.startswith("breaker")
-        device = "breaker" if m.fuse_kind.startswith("breaker") else f"{m.breaking or 'low'}-breaking fuse"
-        assumed = "" if stated else " (breaking capacity not stated: a low-breaking glass fuse assumed)"
-        out.append(Finding("GC211", "danger" if stated else "warning",
-                           f"a line-to-chassis fault draws up to {worst:.0f} A, beyond the "
-                           f"{sup.breaking_capacity:.0f} A the {m.fuse:g} A {device} can break: it may keep arcing "
-                           f"or burst instead of clearing{assumed}",
-                           m.location, ("mains",), {"fault_current_a": round(worst, 2),
-                                                    "breaking_capacity_a": sup.breaking_capacity},
-                           "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking type) of "
-                           "the same rating and characteristic, and say so: ', breaking high'"))
+    out.extend(_breaking(plan, safety))
     out.extend(_stated_contradictions(plan, safety))
     for row in safety.conductors:
         if not row.survives:
@@ -219,7 +230,36 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
     return out
 
 
+def _breaking(plan: Plan, safety: SafetyResult) -> list[Finding]:
+    """GC211: a prospective fault current beyond what the fuse or breaker can break."""
+    m, sup, out = plan.mains, safety.supply, []
+    worst = max((p.fault_current for p in safety.parts if p.fault_current is not None), default=None)
+    if sup.breaking_capacity is not None and worst is not None and worst > sup.breaking_capacity:
+        stated = m.breaking is not None or m.breaking_current is not None or m.fuse_kind.startswith("breaker")
+        device = "breaker" if m.fuse_kind.startswith("breaker") else f"{m.breaking or 'low'}-breaking fuse"
+        assumed = "" if stated else " (breaking capacity not stated: a low-breaking glass fuse assumed)"
+        out.append(Finding("GC211", "danger" if stated else "warning",
+                           f"a line-to-chassis fault draws up to {worst:.0f} A, beyond the "
+                           f"{sup.breaking_capacity:.0f} A the {m.fuse:g} A {device} can break: it may keep arcing "
+                           f"or burst instead of clearing{assumed}",
+                           m.location, ("mains",), {"fault_current_a": round(worst, 2),
+                                                    "breaking_capacity_a": sup.breaking_capacity},
+                           "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking type) of "
+                           "the same rating and characteristic, and say so: ', breaking high'"))
+    return out
+
+
 def plan_conductor(plan: Plan, name: str):
+    """The plan's conductor of that name.
+
+    Parameters:
+        plan: the plan.
+        name: a conductor's name.
+    Returns:
+        the conductor record, or None.
+    References:
+        none (lookup).
+    """
     return next((c for c in plan.conductors if c.name == name), None)
 
 
@@ -296,7 +336,15 @@ DEVICE_EARTH_LIMIT = 1.0
 @rule("GC215", needs="solve")
 def rule_device_earths(s: Solved) -> list[Finding]:
     """GC215: a placed device whose earth pin does not reach the main earthing terminal, or only through a high
-    resistance."""
+    resistance.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC215 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     if s.device_earths is None:
         return []
     out = []

@@ -33,7 +33,16 @@ REGISTRY: list[RuleFunction] = []
 
 
 def rule(*codes: str, needs: str = "topology"):
-    """Register the decorated function as the maker of ``codes``."""
+    """Register the decorated function as the maker of ``codes``.
+
+    Parameters:
+        codes: the rule codes the function makes.
+        needs: context (the graph) or solved (the electrical solve).
+    Returns:
+        a decorator that registers the function.
+    References:
+        none (registry).
+    """
     unknown = [c for c in codes if c not in RULES]
     if unknown:
         raise ValueError(f"rule codes not in the catalogue: {unknown}")
@@ -46,12 +55,28 @@ def rule(*codes: str, needs: str = "topology"):
 
 def functions(needs: str) -> list[RuleFunction]:
     """The registered functions that need ``needs`` (the families register themselves when imported:
-    :mod:`groundcheck.rules.families` imports them all)."""
+    :mod:`groundcheck.rules.families` imports them all).
+
+    Parameters:
+        needs: context or solved.
+    Returns:
+        the registered functions that need it.
+    References:
+        none (registry).
+    """
     return [r for r in REGISTRY if r.needs == needs]
 
 
 def codes_registered() -> dict[str, list[str]]:
-    """Each code -> the names of the functions registered for it (exactly one each, when all is well)."""
+    """Each code -> the names of the functions registered for it (exactly one each, when all is well).
+
+    Parameters:
+        (none)
+    Returns:
+        each code -> the names of the functions registered for it.
+    References:
+        none (registry).
+    """
     out: dict[str, list[str]] = {}
     for r in REGISTRY:
         for c in r.codes:

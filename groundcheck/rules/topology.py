@@ -23,6 +23,15 @@ def _loop_text(lp: Loop) -> str:
 
 @rule("GC101")
 def rule_loops(ctx: AuditContext) -> list[Finding]:
+    """GC101: the ground loops, each classified by what closes it, with the conductor to open.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC101 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     out = []
     for info in ctx.loops:
         if info.closed_by == "chassis-structure":
@@ -57,6 +66,15 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC103", "GC104")
 def rule_stars(ctx: AuditContext) -> list[Finding]:
+    """GC103, GC104: stars that are chains, stars with one branch.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC103, GC104 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     out = []
     stars = [p for p in ctx.plan.points if p.kind == "star" and p.name in ctx.G]
     if not stars:
@@ -98,36 +116,17 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC105", "GC106")
 def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
+    """GC105, GC106: signal grounds bonded to the chassis twice, or floating.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC105, GC106 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     out = []
-    G = ctx.G
-    side = ctx.chassis_side
-    # signal-ground networks: connected parts of the graph without the chassis side and protective conductors
-    order = list(G.nodes)
-    idx = {n: i for i, n in enumerate(order)}
-    rows, cols = [], []
-    crossing = []            # (signal-side node, chassis-side node, conductor): the bonds
-    for u, v, k, d in ctx.edges:
-        us, vs = u in side, v in side
-        if not us and not vs:
-            if d["conductor"].role != "protective":
-                rows.append(idx[u])
-                cols.append(idx[v])
-        elif us != vs and d["conductor"].kind != "interconnect":
-            crossing.append((v, u, k) if us else (u, v, k))
-    n = len(order)
-    _, labels = part_labels(n, rows, cols)
-    members: dict[int, list[str]] = {}
-    for name in order:
-        if name not in side:
-            members.setdefault(int(labels[idx[name]]), []).append(name)
-    bonds_of: dict[int, dict[str, list[str]]] = {}
-    for node, chassis, k in crossing:
-        bonds_of.setdefault(int(labels[idx[node]]), {}).setdefault(chassis, []).append(k)
-    for label in sorted(members, key=lambda k: min(members[k])):
-        comp = sorted(members[label])
-        if not set(comp) & ctx.signal_points:
-            continue
-        places = {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}
+    for comp, places in _signal_grounds(ctx):
         name = _component_name(ctx, comp)
         if len(places) > 1:
             desc = ", ".join(f"{p} (by {', '.join(ks)})" for p, ks in sorted(places.items()))
@@ -150,6 +149,39 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
                                                    "nor the protective earth",
                                first, tuple(comp[:12]), {"points": len(comp)},
                                "bond the signal star to the chassis at one place near the protective-earth stud"))
+    return out
+
+
+def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
+    """Each signal-ground network (a connected part of the graph without the chassis side and protective
+    conductors that holds a signal point): its points, and its bonds to the chassis side by chassis point."""
+    G, side = ctx.G, ctx.chassis_side
+    order = list(G.nodes)
+    idx = {n: i for i, n in enumerate(order)}
+    rows, cols = [], []
+    crossing = []            # (signal-side node, chassis-side node, conductor): the bonds
+    for u, v, k, d in ctx.edges:
+        us, vs = u in side, v in side
+        if not us and not vs:
+            if d["conductor"].role != "protective":
+                rows.append(idx[u])
+                cols.append(idx[v])
+        elif us != vs and d["conductor"].kind != "interconnect":
+            crossing.append((v, u, k) if us else (u, v, k))
+    n = len(order)
+    _, labels = part_labels(n, rows, cols)
+    members: dict[int, list[str]] = {}
+    for name in order:
+        if name not in side:
+            members.setdefault(int(labels[idx[name]]), []).append(name)
+    bonds_of: dict[int, dict[str, list[str]]] = {}
+    for node, chassis, k in crossing:
+        bonds_of.setdefault(int(labels[idx[node]]), {}).setdefault(chassis, []).append(k)
+    out = []
+    for label in sorted(members, key=lambda k: min(members[k])):
+        comp = sorted(members[label])
+        if set(comp) & ctx.signal_points:
+            out.append((comp, {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}))
     return out
 
 
@@ -184,6 +216,15 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
 
 @rule("GC107")
 def rule_heaters(ctx: AuditContext) -> list[Finding]:
+    """GC107: heater supplies with no reference.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC107 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     return [Finding("GC107", "warning", f"heater supply {h.name} has no reference to ground", h.location, (h.name,),
                     {"current_a": h.current},
                     "reference it: centre tap or two equal resistors to ground, or an elevated DC reference")
@@ -192,6 +233,15 @@ def rule_heaters(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC108")
 def rule_shields(ctx: AuditContext) -> list[Finding]:
+    """GC108: shields of internal wiring terminated at both ends.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC108 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     out = []
     both = [c for c in ctx.plan.conductors if c.kind == "shield" and c.terminated == "both"]
     if not both:
@@ -211,7 +261,15 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC111")
 def rule_mains_not_described(ctx: AuditContext) -> list[Finding]:
-    """GC111: touchable metal and no supply described: the protective earth is unchecked, not clean."""
+    """GC111: touchable metal and no supply described: the protective earth is unchecked, not clean.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC111 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     plan = ctx.plan
     if plan.mains is not None or plan.device_supplies or any(p.kind == "inlet" for p in plan.points):
         return []
@@ -232,7 +290,15 @@ LENGTH_SLACK = 3.0
 
 @rule("GC112")
 def rule_lengths(ctx: AuditContext) -> list[Finding]:
-    """GC112: a stated length shorter than the straight route between positioned ends, or over three times it."""
+    """GC112: a stated length shorter than the straight route between positioned ends, or over three times it.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC112 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     pos = {p.name: p.pos for p in ctx.plan.points if p.pos is not None}
     out = []
     for c in ctx.plan.conductors:
@@ -251,6 +317,15 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC109", "GC110")
 def rule_unconnected(ctx: AuditContext) -> list[Finding]:
+    """GC109, GC110: points that reach no ground; conductors with both ends at one point.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC109, GC110 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
     out = []
     order, labels, _ = ctx.parts
     members: dict[int, set] = {}
