@@ -294,3 +294,15 @@ def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
             element = action[1]
             assert any(element in t for t in titles), (f.code, action, titles)
             assert element in f.fix
+
+
+@pytest.mark.parametrize("path", [DUAL, MONO], ids=["dual", "mono"])
+def test_every_fix_line_is_rechecked_by_the_advisor(path):
+    # the repair a finding's fix line names is tried by the advisor on the plan, and it clears that finding:
+    # a fix that would not clear its finding would show up here
+    from groundcheck.advice.repair import _label
+    before, evs = _suggest(path)
+    for f in before.findings:
+        for action in f.actions:
+            tried = [e for e in evs if action[1] in e.candidate.title and not e.rejected]
+            assert any(_label(f) in e.cleared for e in tried), (f.code, action, [e.candidate.title for e in tried])

@@ -11,159 +11,18 @@ candidate that would touch a conductor the protective earth relies on is marked 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
-from functools import cached_property
 
 from ..model.kinds import is_fastening
 from ..model.records import Plan
 from ..rules.results import Result
-from .edits import Edit, PlanText
+from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, STUD_CLEARANCE, Candidate,
+                      ChangeContext, delete_change, device_note, local_name, reroute, rephrase, squeeze)
+from .edits import Edit
 
-__all__ = ["Candidate", "candidates", "STUD_CLEARANCE", "ROUTE_ALLOWANCE"]
-
-#: a new stud keeps at least this distance from every other fastening and point of the part, m (common practice:
-#: room for a nut, a lock washer and a crimp lug)
-STUD_CLEARANCE = 15e-3
-#: a field source's own footprint, for placing a new stud clear of a transformer, m (from memory: small mains
-#: transformers are 50–100 mm across)
-SOURCE_CLEARANCE = 40e-3
-#: standard conductor cross-sections, mm² (IEC 60228's series)
-STANDARD_SECTIONS_MM2 = (0.5, 0.75, 1.0, 1.5, 2.5, 4.0, 6.0, 10.0, 16.0, 25.0, 35.0, 50.0)
-#: a re-routed wire's length: its straight-line length plus this share for dress and strain relief (common practice)
-ROUTE_ALLOWANCE = 0.2
+__all__ = ["Candidate", "candidates"]
 
 
-@dataclass(frozen=True)
-class Candidate:
-    title: str
-    reason: str                     # the finding code(s) it answers
-    edits: tuple[Edit, ...]
-    touches_protective: bool = False
-
-
-class _Ctx:
-    def __init__(self, plan: Plan, result: Result, text: str):
-        self.plan, self.result, self.text = plan, result, text
-        self.src = PlanText(text, plan.file)
-        self.cond = {c.name: c for c in plan.conductors}
-        self.stars = [p.name for p in plan.points if p.kind == "star"]
-        self.metals = {m.name for m in plan.metals}
-        self.points = {p.name: p for p in plan.points}
-
-    def protective(self, c) -> bool:
-        """Protective by topology or by role (groundcheck.network.earthing): never removed, re-routed or lifted."""
-        return c.name in self.result.protective or c.role == "protective"
-
-    def statement(self, c):
-        """The statement that wrote ``c`` in the main plan file, or None."""
-        if c.location.file != self.plan.file:
-            return None
-        return self.src.statement(c.location.line)
-
-    @cached_property
-    def G(self):
-        from ..network.graph import build_graph
-        return build_graph(self.plan)
-
-    def nearest_star(self, node: str) -> str | None:
-        import networkx as nx
-        best = None
-        for s in self.stars:
-            try:
-                d = nx.shortest_path_length(self.G, node, s)
-            except (nx.NetworkXNoPath, nx.NodeNotFound):
-                continue
-            if best is None or d < best[0]:
-                best = (d, s)
-        return best[1] if best else None
-
-
-def _local(model_name: str, label: str, target: str) -> str:
-    """How ``target`` is written inside the statement whose element is ``model_name`` (local label ``label``)."""
-    prefix = model_name[: len(model_name) - len(label)]
-    if prefix and target.startswith(prefix):
-        return target[len(prefix):]
-    return target
-
-
-def _block_note(model_name: str, label: str) -> str:
-    """A note when the edited statement sits in a block: the change applies to every placement."""
-    return f" — in its block, so for every placement ({label})" if model_name != label else ""
-
-
-def _delete(ctx: _Ctx, name: str, title: str, reason: str) -> Candidate | None:
-    c = ctx.cond.get(name)
-    st = ctx.statement(c) if c is not None else None
-    if c is None or c.kind == "interconnect" or st is None:
-        return None
-    return Candidate(title + _block_note(c.name, st.label or ""), reason, (ctx.src.delete(st),), ctx.protective(c))
-
-
-def _route_length(ctx: _Ctx, c, a: str, b: str) -> float | None:
-    """Straight-line (or waypoint) length between two points with positions, plus the allowance; m."""
-    pa, pb = ctx.points.get(a), ctx.points.get(b)
-    if pa is None or pb is None or pa.pos is None or pb.pos is None:
-        return None
-    path = [pa.pos, *c.route, pb.pos]
-    return sum(math.dist(p, q) for p, q in zip(path, path[1:])) * (1 + ROUTE_ALLOWANCE)
-
-
-def _reroute(ctx: _Ctx, name: str, end: str, to: str, title: str, reason: str) -> Candidate | None:
-    """Move the ``end`` of conductor ``name`` to point ``to``; its length follows the new route."""
-    c = ctx.cond.get(name)
-    st = ctx.statement(c) if c is not None else None
-    if c is None or st is None or c.kind in ("interconnect", "shield") or to == end:
-        return None
-    items = ctx.src.ends(st)
-    if items is None:
-        return None
-    label = st.label or ""
-    ia, ib = items
-    if c.b == end and ib.value == _local(c.name, label, end):
-        changes, a, b = [(ib, _local(c.name, label, to))], c.a, to
-    elif c.a == end and ia.value == _local(c.name, label, end):
-        changes, a, b = [(ia, _local(c.name, label, to))], to, c.b
-    else:
-        return None
-    if a == b:
-        return None
-    length = _route_length(ctx, c, a, b)
-    old = ctx.src.quantity(st, "length")
-    if length is not None and old is not None:
-        changes.append((old, f"{length * 1e3:.0f} mm"))
-        title += f"; new length {length * 1e3:.0f} mm (straight route + {ROUTE_ALLOWANCE:.0%})"
-    edit = ctx.src.replace(st, changes, drop_comment=True)
-    return Candidate(title + _block_note(c.name, label), reason, (edit,), ctx.protective(c))
-
-
-def _rephrase(ctx: _Ctx, c, words: tuple[str, ...], new: str, title: str, reason: str, protective=None):
-    """Replace the phrase of ``c``'s statement that starts with ``words`` by ``new``."""
-    st = ctx.statement(c)
-    ph = ctx.src.find(st, *words) if st is not None else None
-    if not ph:
-        return None
-    edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
-    edit = Edit(edit.line, _squeeze(edit.new, new), edit.extra, edit.last)
-    touches = ctx.protective(c) if protective is None else protective
-    return Candidate(title, reason, (edit,), touches)
-
-
-def _squeeze(text: str, new: str) -> str:
-    """Blanks left by items replaced with nothing after ``new`` are removed (``terminated a`` not
-    ``terminated a  ``)."""
-    i = text.find(new)
-    if i < 0:
-        return text
-    j = i + len(new)
-    k = j
-    while k < len(text) and text[k] in " \t":
-        k += 1
-    if k == len(text) or text[k] in ",#\n":
-        return text[:j] + (" " if k < len(text) and text[k] == "#" else "") + text[k:]
-    return text
-
-
-def _loop_candidates(ctx: _Ctx, add) -> None:
+def _loop_candidates(ctx: ChangeContext, add) -> None:
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure" or not lp.open_at:
             continue
@@ -171,10 +30,11 @@ def _loop_candidates(ctx: _Ctx, add) -> None:
         if lp.closed_by == "shield-both-ends" and c.kind == "shield":
             continue          # answered by terminating one end, below
         if is_fastening(c, ctx.metals):
-            add(_delete(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated socket or shoulder washers) "
-                                         f"to open the loop closed by {lp.closed_by}", "GC101"))
+            add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated socket or shoulder "
+                              f"washers) to open the loop closed by {lp.closed_by}", "GC101"))
         else:
-            add(_delete(ctx, lp.open_at, f"remove {lp.open_at} to open the loop closed by {lp.closed_by}", "GC101"))
+            add(delete_change(ctx, lp.open_at, f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
+                              "GC101"))
         st = ctx.statement(c)
         if lp.closed_by in ("second-chassis-bond", "mains-cords") and c.kind == "wire" and st is not None:
             ends = ctx.src.ends(st)
@@ -185,14 +45,14 @@ def _loop_candidates(ctx: _Ctx, add) -> None:
                               (Edit(st.loc.line, new, (), ctx.src.last_line(st)),), ctx.protective(c)))
 
 
-def _finding_candidates(ctx: _Ctx, add) -> None:
+def _finding_candidates(ctx: ChangeContext, add) -> None:
     for f in ctx.result.findings:
         if f.code == "GC108":
             (_, shield, keep), = f.actions
             c = ctx.cond[shield]
             st = ctx.statement(c)
             if st is not None:
-                add(_rephrase(ctx, c, ("terminated", "both"), f"terminated {_local(c.name, st.label or '', keep)}",
+                add(rephrase(ctx, c, ("terminated", "both"), f"terminated {local_name(c.name, st.label or '', keep)}",
                               f"terminate shield {c.name} at {keep} only", "GC108"))
         elif f.code == "GC105":
             for verb, e in f.actions:
@@ -201,7 +61,7 @@ def _finding_candidates(ctx: _Ctx, add) -> None:
                     continue          # a shield is lifted at one end (GC108), not removed
                 what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
                     else "remove the second chassis bond {e}"
-                add(_delete(ctx, e, what.format(e=e), "GC105"))
+                add(delete_change(ctx, e, what.format(e=e), "GC105"))
         elif f.code == "GC103":
             _star_candidates(ctx, f, add)
         elif f.code == "GC202":
@@ -210,7 +70,7 @@ def _finding_candidates(ctx: _Ctx, add) -> None:
             add(_thicker(ctx, f))
 
 
-def _star_candidates(ctx: _Ctx, f, add) -> None:
+def _star_candidates(ctx: ChangeContext, f, add) -> None:
     import networkx as nx
     stars = [e for e in f.elements if e in ctx.stars]
     if not stars:
@@ -220,10 +80,10 @@ def _star_candidates(ctx: _Ctx, f, add) -> None:
         if c.a in f.elements and c.b in f.elements and not ctx.protective(c) and stars[0] not in (c.a, c.b):
             near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
             far = c.b if near == c.a else c.a
-            add(_reroute(ctx, c.name, near, stars[0], f"run {far} to {stars[0]} by its own wire ({c.name})", "GC103"))
+            add(reroute(ctx, c.name, near, stars[0], f"run {far} to {stars[0]} by its own wire ({c.name})", "GC103"))
 
 
-def _stud_position(ctx: _Ctx, part: str, near) -> tuple[float, float] | None:
+def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] | None:
     """A place for a new stud on ``part`` near ``near``: on the part, outside every other part's outline and
     every field source's footprint, and at least STUD_CLEARANCE from the part's other points."""
     metal = ctx.plan.metal(part)
@@ -246,7 +106,7 @@ def _stud_position(ctx: _Ctx, part: str, near) -> tuple[float, float] | None:
     return None
 
 
-def _own_stud(ctx: _Ctx, f) -> Candidate | None:
+def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
     """GC202: the protective conductor moves to a new stud of its own, bolted to the same part."""
     pe = next((ctx.cond[e] for e in f.elements if e in ctx.cond and e in ctx.result.protective
                and ctx.cond[e].kind not in ("bolt",)), None)
@@ -276,7 +136,7 @@ def _own_stud(ctx: _Ctx, f) -> Candidate | None:
                      "other parts and fastenings)", "GC202", (edit,), touches_protective=False)
 
 
-def _thicker(ctx: _Ctx, f) -> Candidate | None:
+def _thicker(ctx: ChangeContext, f) -> Candidate | None:
     """GC204: the protective conductor at the line conductor's cross-section (a change that only strengthens it)."""
     c = ctx.cond[f.elements[0]]
     st = ctx.statement(c)
@@ -295,7 +155,7 @@ def _thicker(ctx: _Ctx, f) -> Candidate | None:
         if not ph:
             return None
         edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
-        edit = Edit(edit.line, _squeeze(edit.new, new), edit.extra, edit.last)
+        edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
     return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
                      f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False)
 
@@ -305,11 +165,14 @@ def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
     kinds = {c.name: c.kind for c in plan.conductors}
     names = {e for lp in result.loops if lp.closed_by == "mains-cords"
              for e in lp.loop.edges if kinds.get(e) == "interconnect"}
-    names |= {e for row in result.coupling for e in row.shared if kinds.get(e) == "interconnect"}
+    # a cable that shares a rectifier's charging current is a power umbilical: balancing it cures nothing (the
+    # cure is inside the supply, below), so only leakage and stated currents count here
+    names |= {e for row in result.coupling if row.kind != "rectifier" for e in row.shared
+              if kinds.get(e) == "interconnect"}
     return names
 
 
-def _installation_candidates(ctx: _Ctx, add) -> None:
+def _installation_candidates(ctx: ChangeContext, add) -> None:
     """Between pieces of equipment: a balanced interconnect, or a lift network on a device's signal side."""
     for name in sorted(_installation_interconnects(ctx.plan, ctx.result)):
         c = ctx.cond[name]
@@ -345,10 +208,28 @@ def _installation_candidates(ctx: _Ctx, add) -> None:
                           "GC101", (edit,)))
 
 
-def _shared_return_candidates(ctx: _Ctx, add) -> None:
+def _join_rectifier(ctx: ChangeContext, rect, shared: tuple[str, ...], add) -> None:
+    """A rectifier whose two return ends are not joined by a conductor of their own: move the far end of a
+    conductor leaving one end onto the other, so that the charging current circulates between them alone
+    (common practice: reservoir negative and centre tap or bridge negative joined directly)."""
+    if any({d.a, d.b} == {rect.a, rect.b} for d in ctx.plan.conductors):
+        return
+    for end, other in ((rect.a, rect.b), (rect.b, rect.a)):
+        for d in ctx.plan.conductors:
+            if other in (d.a, d.b) and d.kind not in ("interconnect", "shield") and not ctx.protective(d):
+                far = d.b if d.a == other else d.a
+                add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
+                             f"{rect.name} charging current stays between them and leaves {', '.join(shared)}",
+                             "GC102"))
+
+
+def _shared_return_candidates(ctx: ChangeContext, add) -> None:
     """Shared returns: join the rectifier's ends directly, and re-route the stage's reference to the star."""
     plan = ctx.plan
     for row in ctx.result.coupling:
+        rect = next((r for r in plan.rectifiers if r.name == row.source), None)
+        if rect is not None:
+            _join_rectifier(ctx, rect, row.shared, add)
         src = next((r for r in (*plan.rectifiers, *plan.currents) if r.name == row.source), None)
         stage = next((s for s in plan.stages if s.name == row.stage), None)
         if src is None or stage is None:
@@ -362,7 +243,7 @@ def _shared_return_candidates(ctx: _Ctx, add) -> None:
                     if other in (d.a, d.b) and d.name != shared and not ctx.protective(d):
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
-                            add(_reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
+                            add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
                                          f"so the {src.name} current leaves {shared}", "GC102"))
             for p in (stage.b, stage.a):
                 star = ctx.nearest_star(p)
@@ -370,18 +251,18 @@ def _shared_return_candidates(ctx: _Ctx, add) -> None:
                     if p in (d.a, d.b) and not ctx.protective(d):
                         far = d.b if d.a == p else d.a
                         if star and far != star and far in (c.a, c.b):
-                            add(_reroute(ctx, d.name, far, star, f"take {p} to {star} by its own wire ({d.name})",
+                            add(reroute(ctx, d.name, far, star, f"take {p} to {star} by its own wire ({d.name})",
                                          "GC102"))
 
 
 def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     """Candidate changes answering the plan's loop, shared-return, star, bonding and protective findings."""
-    ctx = _Ctx(plan, result, text)
+    ctx = ChangeContext(plan, result, text)
     out: list[Candidate] = []
 
     def add(c):
         if c is not None and all(c.edits != x.edits for x in out):
-            out.append(c)
+            out.append(device_note(c, plan.file))
 
     _loop_candidates(ctx, add)
     _finding_candidates(ctx, add)

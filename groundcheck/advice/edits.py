@@ -8,14 +8,18 @@ of lines; :func:`apply_edits` applies several, and :func:`text_diff` shows them 
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
+import os
 import re
 from dataclasses import dataclass
+from pathlib import Path
 
 from ..language.phrases import Item, Statement
 from ..language.syntax import parse_text
 
-__all__ = ["Edit", "apply_edits", "text_diff", "unified_diff", "PlanText", "REMOVED_MARK"]
+__all__ = ["Edit", "apply_edits", "edited_texts", "file_text", "shown_path", "text_diff", "unified_diff", "PlanText",
+           "PlanTexts", "REMOVED_MARK"]
 
 #: the note a statement commented out by the advisor carries
 REMOVED_MARK = "# removed by groundcheck suggest"
@@ -23,19 +27,22 @@ REMOVED_MARK = "# removed by groundcheck suggest"
 
 @dataclass(frozen=True)
 class Edit:
-    """Replace lines ``line`` to ``last`` (1-based; ``last`` None: that one line) of the main plan file by
-    ``new``; ``new`` None comments them out; ``extra`` lines are added after them."""
+    """Replace lines ``line`` to ``last`` (1-based; ``last`` None: that one line) of a plan file by ``new``;
+    ``new`` None comments them out; ``extra`` lines are added after them.  ``file`` None is the main plan
+    file; otherwise the path of a device's own plan (its edits are shown and written apart, never in place)."""
 
     line: int
     new: str | None
     extra: tuple[str, ...] = ()
     last: int | None = None
+    file: str | None = None
 
 
-def apply_edits(text: str, edits) -> str:
+def apply_edits(text: str, edits, file: str | None = None) -> str:
+    """The text of the main plan (``file`` None) or of the device plan ``file`` with its edits applied."""
     lines = text.split("\n")
     out = list(lines)
-    for e in sorted(edits, key=lambda e: -e.line):
+    for e in sorted((e for e in edits if e.file == file), key=lambda e: -e.line):
         i, j = e.line - 1, (e.last or e.line)
         old = lines[i: j]
         indent = old[0][: len(old[0]) - len(old[0].lstrip())]
@@ -60,8 +67,38 @@ def _lines(text: str) -> list[str]:
     return out + [parts[-1]] if parts[-1] else out
 
 
-def unified_diff(text: str, edits, name: str) -> str:
-    return text_diff(text, apply_edits(text, edits), name)
+def file_text(file: str) -> str:
+    """A plan file's text as the loader reads it (UTF-8, no newline translation, no byte-order mark)."""
+    return Path(file).read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
+
+
+def edited_texts(edits) -> dict[str, str]:
+    """Each device plan that ``edits`` change -> its text with them applied."""
+    files = sorted({e.file for e in edits if e.file is not None})
+    return {f: apply_edits(file_text(f), edits, f) for f in files}
+
+
+def shown_path(file: str, base: str | Path | None = None) -> str:
+    """A device plan's path as a diff shows it: relative to ``base`` (the main plan's folder) or to the current
+    folder when below it, else as it is."""
+    for folder in (base, os.getcwd()):
+        if folder is None:
+            continue
+        try:
+            rel = os.path.relpath(file, folder)
+        except ValueError:                              # another drive
+            continue
+        if not rel.startswith(".."):
+            return rel
+    return file
+
+
+def unified_diff(text: str, edits, name: str, base: str | Path | None = None) -> str:
+    """The main plan's diff, then one diff for each device plan the edits change (paths relative to ``base``)."""
+    out = text_diff(text, apply_edits(text, edits), name)
+    for f, new in edited_texts(edits).items():
+        out += text_diff(file_text(f), new, shown_path(f, base))
+    return out
 
 
 _QTY_SPAN = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?[ \t]*[^\s,#]*")
@@ -104,6 +141,8 @@ class PlanText:
         if it.kind == "qty":
             m = _QTY_SPAN.match(line, start)
             end = m.end() if m else start + len(it.text)
+        elif it.kind == "string" and line[start:start + 1] == '"':
+            end = line.index('"', start + 1) + 1          # the quotes belong to the item
         else:
             end = start + len(it.text)
         return it.loc.line, start, end
@@ -144,6 +183,44 @@ class PlanText:
                 if it.kind == "qty" and it.qkind == kind:
                     return it
         return None
+
+
+class PlanTexts:
+    """The main plan file's :class:`PlanText` and, read when first needed, those of device plans: each edit is
+    placed in the file its statement was written in."""
+
+    def __init__(self, text: str, file: str):
+        self.main = PlanText(text, file)
+        self.file = file
+        self.lines = self.main.lines
+        self.others: dict[str, PlanText] = {}
+        self.ends, self.find, self.quantity, self.last_line = (PlanText.ends, PlanText.find, PlanText.quantity,
+                                                              PlanText.last_line)
+
+    def statement(self, line: int, file: str | None = None) -> Statement | None:
+        """The statement that starts on ``line`` of the main plan, or of the device plan ``file``."""
+        if file is None or file == self.file:
+            return self.main.statement(line)
+        if file not in self.others:
+            try:
+                self.others[file] = PlanText(file_text(file), file)
+            except OSError:
+                return None
+        return self.others[file].statement(line)
+
+    def _of(self, file: str) -> tuple[PlanText, str | None]:
+        return (self.main, None) if file == self.file else (self.others[file], file)
+
+    def delete(self, st: Statement) -> Edit:
+        pt, f = self._of(st.loc.file)
+        return dataclasses.replace(pt.delete(st), file=f)
+
+    def replace(self, st: Statement, changes: list[tuple[Item, str]], drop_comment: bool = False) -> Edit:
+        pt, f = self._of(st.loc.file)
+        return dataclasses.replace(pt.replace(st, changes, drop_comment), file=f)
+
+    def span(self, it: Item) -> tuple[int, int, int]:
+        return self._of(it.loc.file)[0].span(it)
 
 
 def _without_comment(row: str) -> str:

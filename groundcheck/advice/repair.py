@@ -24,10 +24,10 @@ from ..analysis import Options, Result, analyze
 from ..core.errors import PlanErrors
 from ..core.units import dbv
 from ..rules.catalogue import RULES, severity_rank
-from ..language.loader import load_text
+from ..language.loader import load_text, substituted
 from ..model.records import Plan
 from .candidates import Candidate, candidates
-from .edits import Edit, apply_edits, text_diff, unified_diff
+from .edits import Edit, apply_edits, edited_texts, text_diff, unified_diff
 
 __all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits",
            "unified_diff",
@@ -110,7 +110,8 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return Evaluation(cand, None, rejected="it would change a protective conductor")
     text = apply_edits(base_text, cand.edits)
     try:
-        p = load_text(text, plan.file, root=root, _resolved=resolved)
+        with substituted(edited_texts(cand.edits)):
+            p = load_text(text, plan.file, root=root, _resolved=resolved)
     except PlanErrors as e:
         return Evaluation(cand, None, rejected=f"the edited plan does not load ({e.errors[0].one_line()})")
     after = analyze(p, options)

@@ -6,11 +6,13 @@ Hum is shown as real levels before and after with the change in words, never as 
 from __future__ import annotations
 
 
+from pathlib import Path
+
 from ..core.caution import CAUTION
 from ..core.units import dbv
 from ..model.records import Plan
 from ..rules.results import Result
-from .edits import text_diff, unified_diff
+from .edits import unified_diff
 from .repair import HUM_FLOOR_DBV, NOT_TRIED, Evaluation
 
 __all__ = ["suggestions_document", "suggestions_text"]
@@ -45,18 +47,25 @@ def _counted(items: list[str]) -> str:
     return ", ".join(k if v == 1 else f"{k} ×{v}" for k, v in counts.items())
 
 
+def _base(plan: Plan) -> Path:
+    """The main plan's folder: device plans' paths in diffs are shown relative to it."""
+    return Path(plan.file).parent
+
+
 def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
-                         final: Result, final_text: str) -> dict:
+                         final: Result) -> dict:
     """The suggestions as plain data (``groundcheck suggest --format json``)."""
     return {"caution": CAUTION, "plan": plan.file,
-            "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name)) for e in evs if not e.rejected],
+            "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name, _base(plan)))
+                            for e in evs if not e.rejected],
             "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
             "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
             "combined": {"search": "useful changes best first, each re-analysed on the plan as changed so far and kept "
                                    "if it still helps",
                          "changes": [e.candidate.title for e in chosen],
                          "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
-                         "diff": text_diff(text, final_text, name)}}
+                         "diff": unified_diff(text, [x for e in chosen for x in e.candidate.edits], name,
+                                                 _base(plan))}}
 
 
 def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
@@ -74,7 +83,7 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
         cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")
         out.append(f"   predicted: {hum or 'no hum figures'}; {cleared}"
                    + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
-        out.append("   " + unified_diff(text, e.candidate.edits, name).replace("\n", "\n   ").rstrip())
+        out.append("   " + unified_diff(text, e.candidate.edits, name, _base(plan)).replace("\n", "\n   ").rstrip())
         out.append("")
     if rejected:
         out.append("Considered and rejected:")

@@ -40,7 +40,8 @@ class _progress:
 
 
 def cmd_suggest(args) -> int:
-    from ..advice.repair import apply_edits, greedy, suggest
+    from ..advice.apply import applied_files, moved_references
+    from ..advice.repair import greedy, suggest
     from ..advice.report import suggestions_document, suggestions_text
     if args.plan == "-":
         raise UsageError("suggest needs a plan file, not standard input (its edits are shown against the file)")
@@ -56,12 +57,12 @@ def cmd_suggest(args) -> int:
     root, resolved = path.resolve().parent, path.resolve()
     with _progress("trying candidate changes") as progress:
         before, evs = suggest(plan, text, options_of(args), root, resolved, budget=args.budget * 0.7, progress=progress)
-        chosen, final, final_text = greedy(plan, text, options_of(args), root, resolved, evs=evs, before=before,
+        chosen, final, _ = greedy(plan, text, options_of(args), root, resolved, evs=evs, before=before,
                                            budget=args.budget * 0.3)
     name = path.name
     useful = [e for e in evs if not e.rejected]
     if args.format == "json":
-        doc = suggestions_document(plan, text, name, evs, chosen, final, final_text)
+        doc = suggestions_document(plan, text, name, evs, chosen, final)
         sys.stdout.write(json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n")
     else:
         sys.stdout.write(suggestions_text(plan, text, name, evs, chosen, final, CAUTION))
@@ -69,11 +70,26 @@ def cmd_suggest(args) -> int:
         if args.pick is not None:
             if not 1 <= args.pick <= len(useful):
                 raise UsageError(f"--pick takes 1 to {len(useful)}")
-            new_text = apply_edits(text, useful[args.pick - 1].candidate.edits)
+            edits = useful[args.pick - 1].candidate.edits
         else:
-            new_text = final_text
-        write_atomic(target, new_text, protect=[path])
+            edits = tuple(x for e in chosen for x in e.candidate.edits)
+        files = applied_files(text, edits, plan, target)
+        for out, _ in files[1:]:
+            if out.exists() and not args.force:
+                raise UsageError(f"{out} exists; --apply writes a changed copy of a device plan there "
+                                 "(add --force to replace it)")
+        originals = [path, *(Path(f) for f in plan.files), *(Path(e.file) for e in edits if e.file)]
+        for out, new_text in files:
+            write_atomic(out, new_text, protect=originals)
         sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
+        moved = moved_references(files[0][1], str(path), target)
+        if moved:
+            sys.stderr.write(f"groundcheck: note: {target} is in another folder than {path}; its relative paths "
+                             f"({', '.join(moved[:4])}) now resolve from {target.parent}: copy those files "
+                             "beside it or write the new plan beside the original\n")
+        for out, _ in files[1:]:
+            sys.stderr.write(f"groundcheck: wrote a changed copy of a device plan to {out} (the new plan names it; "
+                             "the original is unchanged)\n")
     return 0
 
 

@@ -8,6 +8,8 @@ Public entry points: :func:`load` (a path, or ``-`` for standard input) and
 from __future__ import annotations
 
 import sys
+from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import replace
 from pathlib import Path
 
@@ -21,7 +23,21 @@ from .statements import BUILDERS, KEYWORDS, build
 from ..core.runtime import can_fork, no_gc, note_read
 from .syntax import BlockDef, parse_text, suggest_keyword
 
-__all__ = ["load", "load_text", "LIMITS", "PLAN_SUFFIX"]
+__all__ = ["load", "load_text", "substituted", "LIMITS", "PLAN_SUFFIX"]
+
+#: texts that stand in for plan files while a changed plan is tried (resolved path -> text): the repair advisor
+#: edits a device's own plan this way, never on disk
+_SUBSTITUTES: ContextVar[dict[str, str] | None] = ContextVar("substitutes", default=None)
+
+
+@contextmanager
+def substituted(texts: dict[str, str]):
+    """While the block runs, reading any of these plan files (by resolved path) gives the text here instead."""
+    token = _SUBSTITUTES.set({str(Path(k).resolve()): v for k, v in texts.items()})
+    try:
+        yield
+    finally:
+        _SUBSTITUTES.reset(token)
 
 #: the file extension of groundcheck plans
 PLAN_SUFFIX = ".gplan"
@@ -55,6 +71,9 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
 
 def _read(p: Path, shown: str) -> str:
     loc = Location(shown, 0, 0)
+    stand_in = _SUBSTITUTES.get()
+    if stand_in and str(p.resolve()) in stand_in:
+        return stand_in[str(p.resolve())]
     try:
         size = p.stat().st_size
         if size > LIMITS["file_bytes"]:

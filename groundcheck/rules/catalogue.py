@@ -135,7 +135,8 @@ RULES: dict[str, Rule] = dict([
        "'mains …, class II'."),
     _r("GC112", "length-implausible", "note",
        "A conductor whose stated length is more than 10 % shorter than the straight distance between its positioned "
-       "ends (or its route), or more than three times longer.",
+       "ends (or its route), or more than three times longer (a cable between two placed devices may be any length "
+       "above the distance).",
        "A wrong length gives a wrong resistance and inductance, and so wrong hum and protective-earth figures.",
        "Measure the route again and correct the length (give 'via' points when the wire does not run straight)."),
     _r("GC201", "pe-missing", "danger",

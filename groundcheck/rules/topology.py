@@ -6,6 +6,8 @@ registered under the codes it makes (:mod:`groundcheck.rules.registry`).
 
 from __future__ import annotations
 
+import math
+
 
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT
@@ -300,13 +302,16 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     pos = {p.name: p.pos for p in ctx.plan.points if p.pos is not None}
+    placed = {p.name: (p.group or "").split(".", 1)[0] for p in ctx.plan.points}
     out = []
     for c in ctx.plan.conductors:
         if c.length is None or c.a not in pos or c.b not in pos or c.kind in ("bolt", "interconnect"):
             continue
         path = [pos[c.a], *c.route, pos[c.b]]
         route = sum(((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5 for (x0, y0), (x1, y1) in zip(path, path[1:]))
-        if route > 0 and (c.length < route * (1 - LENGTH_SHORT) or c.length > LENGTH_SLACK * route + 0.05):
+        # a cable between two pieces of equipment (an umbilical, say) runs as it likes: only too short counts
+        slack = math.inf if placed.get(c.a) != placed.get(c.b) else LENGTH_SLACK
+        if route > 0 and (c.length < route * (1 - LENGTH_SHORT) or c.length > slack * route + 0.05):
             what = "shorter than" if c.length < route else f"over {LENGTH_SLACK:g} times"
             out.append(Finding("GC112", "note", f"{c.kind} {c.name} is {c.length * 1e3:.0f} mm long, {what} the "
                                f"{route * 1e3:.0f} mm between its ends", c.location, (c.name,),

@@ -1,0 +1,177 @@
+"""The building blocks of candidate changes: a candidate, the context the candidate makers read (the plan,
+its analysis and its text by the parser's spans, device plans included), and the edits they share: delete
+a statement, move a conductor's end (its length follows the new route), rephrase an attribute."""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+from functools import cached_property
+from pathlib import Path
+
+from ..model.records import Plan
+from ..rules.results import Result
+from .edits import Edit, PlanTexts, shown_path
+
+__all__ = ["Candidate", "ChangeContext", "STUD_CLEARANCE", "SOURCE_CLEARANCE", "STANDARD_SECTIONS_MM2",
+           "ROUTE_ALLOWANCE", "local_name", "block_note", "device_note", "delete_change", "route_length", "reroute",
+           "rephrase", "squeeze"]
+
+#: a new stud keeps at least this distance from every other fastening and point of the part, m (common practice:
+#: room for a nut, a lock washer and a crimp lug)
+STUD_CLEARANCE = 15e-3
+#: a field source's own footprint, for placing a new stud clear of a transformer, m (from memory: small mains
+#: transformers are 50–100 mm across)
+SOURCE_CLEARANCE = 40e-3
+#: standard conductor cross-sections, mm² (IEC 60228's series)
+STANDARD_SECTIONS_MM2 = (0.5, 0.75, 1.0, 1.5, 2.5, 4.0, 6.0, 10.0, 16.0, 25.0, 35.0, 50.0)
+#: a re-routed wire's length: its straight-line length plus this share for dress and strain relief (common practice)
+ROUTE_ALLOWANCE = 0.2
+
+
+@dataclass(frozen=True)
+class Candidate:
+    title: str
+    reason: str                     # the finding code(s) it answers
+    edits: tuple[Edit, ...]
+    touches_protective: bool = False
+
+
+class ChangeContext:
+    def __init__(self, plan: Plan, result: Result, text: str):
+        self.plan, self.result, self.text = plan, result, text
+        self.src = PlanTexts(text, plan.file)
+        self.cond = {c.name: c for c in plan.conductors}
+        self.stars = [p.name for p in plan.points if p.kind == "star"]
+        self.metals = {m.name for m in plan.metals}
+        self.points = {p.name: p for p in plan.points}
+
+    def protective(self, c) -> bool:
+        """Protective by topology or by role (groundcheck.network.earthing): never removed, re-routed or lifted."""
+        return c.name in self.result.protective or c.role == "protective"
+
+    def statement(self, c):
+        """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan (its name
+        carries the device's prefix); None in an included file (edited in place it would change other plans)."""
+        f = c.location.file
+        if f == self.plan.file:
+            return self.src.statement(c.location.line)
+        if f in self.plan.files or "." not in c.name:
+            return None
+        return self.src.statement(c.location.line, f)
+
+    @cached_property
+    def G(self):
+        from ..network.graph import build_graph
+        return build_graph(self.plan)
+
+    def nearest_star(self, node: str) -> str | None:
+        import networkx as nx
+        best = None
+        for s in self.stars:
+            try:
+                d = nx.shortest_path_length(self.G, node, s)
+            except (nx.NetworkXNoPath, nx.NodeNotFound):
+                continue
+            if best is None or d < best[0]:
+                best = (d, s)
+        return best[1] if best else None
+
+
+def local_name(model_name: str, label: str, target: str) -> str:
+    """How ``target`` is written inside the statement whose element is ``model_name`` (local label ``label``)."""
+    prefix = model_name[: len(model_name) - len(label)]
+    if prefix and target.startswith(prefix):
+        return target[len(prefix):]
+    return target
+
+
+def block_note(model_name: str, label: str) -> str:
+    """A note when the edited statement sits in a block: the change applies to every placement.  (A device's
+    own plan gets :func:`device_note` instead.)"""
+    return f" — in its block, so for every placement ({label})" if model_name != label else ""
+
+
+def device_note(c: "Candidate", main: str) -> "Candidate":
+    """A candidate that edits a device's own plan says so: a separate diff, a changed copy on --apply."""
+    files = sorted({e.file for e in c.edits if e.file is not None})
+    if not files:
+        return c
+    where = ", ".join(shown_path(f, Path(main).parent) for f in files)
+    return dataclasses.replace(c, title=c.title + f" — in the device's own plan {where} (a separate diff; "
+                               "--apply writes a changed copy beside the new plan, never the original)")
+
+
+def delete_change(ctx: ChangeContext, name: str, title: str, reason: str) -> Candidate | None:
+    c = ctx.cond.get(name)
+    st = ctx.statement(c) if c is not None else None
+    if c is None or c.kind == "interconnect" or st is None:
+        return None
+    note = block_note(c.name, st.label or "") if st.loc.file == ctx.plan.file else ""
+    return Candidate(title + note, reason, (ctx.src.delete(st),), ctx.protective(c))
+
+
+def route_length(ctx: ChangeContext, c, a: str, b: str) -> float | None:
+    """Straight-line (or waypoint) length between two points with positions, plus the allowance; m."""
+    pa, pb = ctx.points.get(a), ctx.points.get(b)
+    if pa is None or pb is None or pa.pos is None or pb.pos is None:
+        return None
+    path = [pa.pos, *c.route, pb.pos]
+    return sum(math.dist(p, q) for p, q in zip(path, path[1:])) * (1 + ROUTE_ALLOWANCE)
+
+
+def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason: str) -> Candidate | None:
+    """Move the ``end`` of conductor ``name`` to point ``to``; its length follows the new route."""
+    c = ctx.cond.get(name)
+    st = ctx.statement(c) if c is not None else None
+    if c is None or st is None or c.kind in ("interconnect", "shield") or to == end:
+        return None
+    items = ctx.src.ends(st)
+    if items is None:
+        return None
+    label = st.label or ""
+    ia, ib = items
+    if c.b == end and ib.value == local_name(c.name, label, end):
+        changes, a, b = [(ib, local_name(c.name, label, to))], c.a, to
+    elif c.a == end and ia.value == local_name(c.name, label, end):
+        changes, a, b = [(ia, local_name(c.name, label, to))], to, c.b
+    else:
+        return None
+    if a == b:
+        return None
+    length = route_length(ctx, c, a, b)
+    old = ctx.src.quantity(st, "length")
+    if length is not None and old is not None:
+        changes.append((old, f"{length * 1e3:.0f} mm"))
+        title += f"; new length {length * 1e3:.0f} mm (straight route + {ROUTE_ALLOWANCE:.0%})"
+    edit = ctx.src.replace(st, changes, drop_comment=True)
+    note = block_note(c.name, label) if st.loc.file == ctx.plan.file else ""
+    return Candidate(title + note, reason, (edit,), ctx.protective(c))
+
+
+def rephrase(ctx: ChangeContext, c, words: tuple[str, ...], new: str, title: str, reason: str, protective=None):
+    """Replace the phrase of ``c``'s statement that starts with ``words`` by ``new``."""
+    st = ctx.statement(c)
+    ph = ctx.src.find(st, *words) if st is not None else None
+    if not ph:
+        return None
+    edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
+    edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
+    touches = ctx.protective(c) if protective is None else protective
+    return Candidate(title, reason, (edit,), touches)
+
+
+def squeeze(text: str, new: str) -> str:
+    """Blanks left by items replaced with nothing after ``new`` are removed (``terminated a`` not
+    ``terminated a  ``)."""
+    i = text.find(new)
+    if i < 0:
+        return text
+    j = i + len(new)
+    k = j
+    while k < len(text) and text[k] in " \t":
+        k += 1
+    if k == len(text) or text[k] in ",#\n":
+        return text[:j] + (" " if k < len(text) and text[k] == "#" else "") + text[k:]
+    return text

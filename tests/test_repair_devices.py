@@ -1,0 +1,53 @@
+"""The repair advisor inside a device's own plan: a phono stage whose supply box sends the rectifier's centre
+tap and reservoir negative down the umbilical on separate wires (a trial plan of our own), so that the charging
+current crosses into the phono stage and through its cathode wire.  The trade's fix is inside the supply box:
+join the two ends there (common practice)."""
+
+import json
+import shutil
+from pathlib import Path
+
+from groundcheck import load
+from groundcheck.analysis import Options
+from groundcheck.advice.repair import suggest
+
+HERE = Path(__file__).resolve().parent / "plans" / "outboard-supply"
+
+
+def _copy(tmp_path) -> Path:
+    shutil.copytree(HERE, tmp_path / "plans")
+    return tmp_path / "plans" / "phono.gplan"
+
+
+def test_the_best_suggestion_edits_the_supply_box_own_plan(tmp_path):
+    path = _copy(tmp_path)
+    before, evs = suggest(load(path), path.read_text(), Options(), path.parent, path)
+    assert {f.code for f in before.findings} >= {"GC102", "GC303"}
+    best = evs[0]
+    assert not best.rejected
+    (edit,) = best.candidate.edits
+    assert edit.file is not None and Path(edit.file).name == "supply-box.gplan"
+    assert "device's own plan devices/supply-box.gplan" in best.candidate.title
+    assert "join psu." in best.candidate.title
+    assert not {"GC102", "GC303"} & {f.code for f in best.result.findings}
+    # the umbilical carries supply current: a balanced interconnect is never the answer for it
+    assert not any("balanced" in e.candidate.title for e in evs)
+
+
+def test_apply_writes_a_changed_copy_and_never_the_device_plan(cli, tmp_path):
+    path = _copy(tmp_path)
+    device = path.parent / "devices" / "supply-box.gplan"
+    original = device.read_bytes()
+    out = tmp_path / "fixed.gplan"
+    code, text, err = cli("suggest", str(path), "--apply", str(out))
+    assert code == 0, err
+    assert "--- a/devices/supply-box.gplan" in text and "+wire ct_lead: ct to res_neg" in text
+    copy = tmp_path / "fixed.supply-box.gplan"
+    assert copy.exists() and device.read_bytes() == original
+    assert 'device psu: "fixed.supply-box.gplan"' in out.read_text()
+    shutil.copytree(path.parent / "devices", tmp_path / "devices")     # the new plan's library folder
+    code, text, _ = cli("check", str(out), "--format", "json")
+    assert code == 0 and not {"GC102", "GC303"} & {f["code"] for f in json.loads(text)["findings"]}
+    out.unlink()
+    code, _, err = cli("suggest", str(path), "--apply", str(out))
+    assert code == 2 and "fixed.supply-box.gplan exists" in err and not out.exists()
