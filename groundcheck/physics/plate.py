@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 import scipy.sparse as sp
@@ -148,7 +149,16 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
     References:
         G. Kron, *Tensor Analysis of Networks*, 1939 (network reduction: the Schur complement).
     """
-    width, depth = abs(width), abs(depth)
+    red, used, err = _reduced(abs(width), abs(depth), thickness, rho, tuple(map(tuple, contacts)), radius, step,
+                              estimate_error)
+    return PlateResult(tuple(names), red, used, err)
+
+
+@lru_cache(maxsize=64)
+def _reduced(width: float, depth: float, thickness: float, rho: float, contacts: tuple, radius: float,
+             step: float | None, estimate_error: bool) -> tuple[np.ndarray, float, float]:
+    """The reduction itself, kept for the same plate and fastenings: the repair advisor re-analyses a plan once per
+    candidate, and most candidates leave every plate as it was (the matrix is returned read-only)."""
     sheet_g = thickness / rho
     if step is None:
         # at most MAX_GRID_NODES nodes, and no side longer than MAX_GRID_SIDE nodes (a long thin strip)
@@ -164,4 +174,5 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
             if mask.any():
                 # relative change of the pairwise conductances against the coarser grid
                 err = float(np.max(np.abs(off_c[mask] - off_f[mask]) / np.abs(off_f[mask])))
-    return PlateResult(tuple(names), red, used, err)
+    red.setflags(write=False)
+    return red, used, err
