@@ -163,6 +163,12 @@ def field_source(stmt: Statement):
             kw["b_ref"] = r.quantity("flux density", "stray flux density")
             r.expect("at")
             kw["r_ref"] = r.quantity("length", "reference distance")
+        elif first.kind == "word" and first.value in ("height", "size"):
+            r.word()
+            kw[first.value] = r.quantity("length", f"the source's {first.value}", allow_zero=first.value == "height")
+        elif first.kind == "word" and first.value == "axis":
+            r.word()
+            kw["axis"] = r.word("an axis (x, y, z or worst)", ("x", "y", "z", "worst"))
         elif first.kind == "word" and first.value == "harmonic":
             r.word()
             n = r.number("a harmonic number")
@@ -171,7 +177,7 @@ def field_source(stmt: Statement):
             level = r.quantity("level", "level relative to the fundamental", positive=False)
             harmonics.append((int(n), ratio_of_db(level)))
         else:
-            raise unknown(stmt, first, FIELD_KINDS + ("at", "30 uT at 5 cm", "harmonic"))
+            raise unknown(stmt, first, FIELD_KINDS + ("at", "30 uT at 5 cm", "height", "axis", "size", "harmonic"))
         r.finish()
     for need, ex in (("pos", "at 60,180"), ("b_ref", "30 uT at 5 cm")):
         if need not in kw:

@@ -229,7 +229,8 @@ class Stage:
 
 @dataclass(frozen=True)
 class FieldSource:
-    """A source of stray magnetic field: flux density ``b_ref`` (T rms) at ``r_ref`` (m)."""
+    """A source of stray magnetic field: flux density ``b_ref`` (T rms) at ``r_ref`` (m) on its equator, its
+    centre ``height`` (m) above the chassis plane, its axis x, y, z or worst, and its size (m) when stated."""
 
     name: str
     kind: str
@@ -237,6 +238,9 @@ class FieldSource:
     b_ref: float
     r_ref: float
     harmonics: tuple[tuple[int, float], ...] = ()   # (harmonic number, fraction of the fundamental)
+    height: float = 0.0
+    axis: str = "worst"
+    size: float | None = None
     location: Location = field(default=Location("<plan>"), compare=False)
 
 

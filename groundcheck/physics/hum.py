@@ -28,7 +28,7 @@ from ..core.units import db_of_ratio, dbv, ratio_of_db
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .humsettings import HumOptions
 from .hearing import spl_at_listener, threshold_of_hearing
-from .pickup import emf as emf_of, loop_flux, min_distance
+from .pickup import emf as emf_of, loop_fluxes, min_distance
 from .sweep import map_frequencies
 
 __all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]
@@ -208,8 +208,7 @@ class _Budget:
         # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the
         # module doc)
         self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
-        self.flux = {(li, src.name): loop_flux(src, info.polygon)
-                     for li, info in enumerate(loops) if info.polygon is not None for src in plan.fields}
+        self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops)
         self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
 
     def at_frequency(self, f: float) -> _FrequencyPart:
@@ -322,7 +321,10 @@ class _Merged:
             src = b.fields[src_name]
             entry = row["sources"][src_name] = {
                 "flux_density_equiv_t": abs(b.flux[(li, src_name)]) / info.area if info.area else None,
-                "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1), "per_frequency": []}
+                "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1),
+                "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in b.orient[src_name]],
+                "axis_stated": src.axis, "model": "ring" if (li, src_name) in b.ring else "dipole",
+                "size_mm": None if src.size is None else round(src.size * 1e3, 3), "per_frequency": []}
         entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
         group = f"field:{src_name}"
         label = ("loop", f"loop {li + 1}", group)

@@ -151,6 +151,31 @@ def _hum_tables(result: Result, console: Console) -> None:
                       f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
         console.print(t)
         console.print()
+    if result.hum.loops:
+        _pickup_table(result, console)
+
+
+def axis_words(axis: list[float], stated: str) -> str:
+    """'z', or 'worst: (0.31, -0.52, 0.8)': the moment direction a loop's pickup was computed with."""
+    named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(tuple(abs(x) for x in axis))
+    shown = named or "(" + ", ".join(f"{x:.2g}" for x in axis) + ")"
+    return f"worst: {shown}" if stated == "worst" else shown
+
+
+def _pickup_table(result: Result, console: Console) -> None:
+    t = Table(title="Loop pickup (EMF at the source's fundamental)", title_justify="left")
+    for col in ("loop", "source", "height mm", "axis", "model", "closest mm", "EMF µV"):
+        t.add_column(col, justify="left" if col in ("source", "axis", "model") else "right")
+    rows = 0
+    for row in result.hum.loops[:TABLE_LOOPS]:
+        for name, e in row["sources"].items():
+            first = e["per_frequency"][0]["emf_v"] if e["per_frequency"] else None
+            t.add_row(str(row["loop"]), escape(name), f"{e['height_mm']:g}", axis_words(e["axis"], e["axis_stated"]),
+                      e["model"], f"{e['closest_mm']:g}", _fmt(None if first is None else first * 1e6, "", 3))
+            rows += 1
+    if rows:
+        console.print(t)
+        console.print()
 
 
 def _protective_tables(result: Result, console: Console) -> None:

@@ -258,6 +258,13 @@ RULES: dict[str, Rule] = dict([
        "Crosstalk between channels through shared return impedance, worse than −60 dB at 1 kHz.",
        "Shared return impedance lets one channel's signal current appear in the other's reference.",
        "Give each channel its own return to the star; join channels at one point only."),
+    _r("GC305", "loop-near-source", "note",
+       "A loop that passes closer to a field source's centre than its stated size or, with no size stated, than "
+       "the distance its strength was stated at.",
+       "Close to a transformer the point-dipole law is an extrapolation: with a size the ring model is used, "
+       "without one the figure may be off by a large factor either way.",
+       "State the source's size ('size 60 mm') and height, or route the loop's conductors away from it.",
+       "J. D. Jackson, Classical Electrodynamics, 3rd ed., §5.4 and §5.6"),
     _r("GC401", "island", "note",
        "A part of the ground network not connected to the rest: it gets its own reference in the solve.",
        "Figures between points of different parts are undefined; usually a wire is missing from the plan.",

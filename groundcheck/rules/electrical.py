@@ -18,7 +18,7 @@ if TYPE_CHECKING:
     from ..physics.hum import HumResult
     from ..physics.safety import DeviceEarth, SafetyResult
 
-__all__ = ["Solved", "rule_shared_returns", "rule_islands", "rule_hum"]
+__all__ = ["Solved", "rule_shared_returns", "rule_islands", "rule_hum", "rule_loop_near_source"]
 
 
 @dataclass(frozen=True)
@@ -159,3 +159,39 @@ def _audible(ch: str, h, loc) -> Finding:
                    {"margin_db": round(h.margin_db, 2), "total_dbv": round(h.total_dbv, 2),
                     "signal_to_hum_db": round(h.signal_to_hum, 2)},
                    "fix the main contributors first: " + "; ".join(top))
+
+
+@rule("GC305", needs="solve")
+def rule_loop_near_source(s: Solved) -> list[Finding]:
+    """GC305: a loop that passes within a field source's size (or, with no size, its reference distance).
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC305 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.hum is None:
+        return []
+    fields = {f.name: f for f in s.plan.fields}
+    out = []
+    for row in s.hum.loops:
+        for name, entry in row["sources"].items():
+            src = fields[name]
+            limit = src.size if src.size is not None else src.r_ref
+            if entry["closest_mm"] * 1e-3 >= limit:
+                continue
+            if src.size is not None:
+                what = (f"inside its size ({src.size * 1e3:g} mm): its pickup is taken from the ring model, "
+                        "exact at any distance for a round source")
+                fix = f"route the conductors of loop {row['loop']} away from {name}, or open the loop"
+            else:
+                what = (f"inside the {src.r_ref * 1e3:g} mm at which its strength is stated: the point-dipole "
+                        "law is an extrapolation there")
+                fix = f"state the size of {name} ('size 60 mm') and its height, or route the loop away from it"
+            out.append(Finding("GC305", "note", f"loop {row['loop']} passes {entry['closest_mm']:g} mm from the "
+                               f"centre of {name}, {what}", src.location, (f"loop {row['loop']}", name),
+                               {"closest_mm": entry["closest_mm"], "limit_mm": round(limit * 1e3, 3)}, fix))
+    return out
+

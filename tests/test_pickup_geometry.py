@@ -1,0 +1,116 @@
+"""Field sources with height, orientation and size against an independent Biot–Savart calculation: the source is
+a circular current loop cut into short straight pieces, its field summed over them (Biot–Savart law), and the
+flux through a rectangular loop on the deck integrated over its area by Gauss–Legendre quadrature.  Nothing of
+groundcheck's pickup code is used for the expected values.
+
+Reference: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.2 (Biot–Savart law), §5.4 (circular loop)."""
+
+import math
+
+import numpy as np
+import pytest
+
+from groundcheck import load_text
+from groundcheck.model.records import FieldSource
+from groundcheck.physics.pickup import loop_flux, orientation, path_vector, ring_path_flux
+
+MU0 = 4e-7 * math.pi
+B_REF, R_REF = 40e-6, 0.05          # 40 µT at 5 cm on the equator
+K = B_REF * R_REF ** 3              # μ0·m/4π
+
+
+def _ring_flux(centre, axis, radius, rect, pieces=720, grid=48):
+    """Flux (Wb) through the rectangle (x0, y0, x1, y1) in z = 0 of a current ring with moment K·4π/μ0."""
+    axis = np.asarray(axis, float) / np.linalg.norm(axis)
+    u = np.cross(axis, [1.0, 0, 0] if abs(axis[0]) < 0.9 else [0, 1.0, 0])
+    u /= np.linalg.norm(u)
+    v = np.cross(axis, u)
+    current = 4 * math.pi * K / MU0 / (math.pi * radius ** 2)            # m = I·πa²
+    phi = np.linspace(0, 2 * math.pi, pieces + 1)
+    ring = np.asarray(centre) + radius * (np.outer(np.cos(phi), u) + np.outer(np.sin(phi), v))
+    mid, dl = 0.5 * (ring[1:] + ring[:-1]), ring[1:] - ring[:-1]
+    t, w = np.polynomial.legendre.leggauss(grid)
+    x0, y0, x1, y1 = rect
+    xs, ys = x0 + (x1 - x0) * (t + 1) / 2, y0 + (y1 - y0) * (t + 1) / 2
+    X, Y = np.meshgrid(xs, ys)
+    P = np.stack([X.ravel(), Y.ravel(), np.zeros(X.size)], axis=1)
+    R = P[:, None, :] - mid[None, :, :]
+    B = MU0 * current / (4 * math.pi) * (np.cross(dl[None, :, :], R) / np.linalg.norm(R, axis=2)[:, :, None] ** 3)
+    Bz = B.sum(axis=1)[:, 2].reshape(X.shape)
+    return float(w @ Bz @ w) * (x1 - x0) * (y1 - y0) / 4
+
+
+def _src(pos, height=0.0, axis="z", size=None):
+    return FieldSource("t", "transformer", pos, B_REF, R_REF, height=height, axis=axis, size=size)
+
+
+RECT = (0.0, 0.0, 0.12, 0.06)
+POLY = [(0.0, 0.0), (0.12, 0.0), (0.12, 0.06), (0.0, 0.06)]
+
+
+@pytest.mark.parametrize("pos,height,axis", [
+    ((0.30, 0.03), 0.00, "z"), ((0.30, 0.03), 0.04, "z"), ((0.06, 0.25), 0.03, "x"), ((0.06, 0.25), 0.03, "y"),
+    ((0.06, 0.03), 0.35, "x"), ((0.25, 0.20), 0.10, (0.3, -0.5, 0.8)),
+])
+def test_dipole_far_from_the_loop_matches_biot_savart(pos, height, axis):
+    # at over five times the ring's size the dipole is within 2 % of the finite ring (Jackson §5.6)
+    vec = axis if isinstance(axis, tuple) else {"x": (1, 0, 0), "y": (0, 1, 0), "z": (0, 0, 1)}[axis]
+    m = np.asarray(vec, float) / np.linalg.norm(vec)
+    expected = _ring_flux((*pos, height), m, 0.005, RECT)
+    got = loop_flux(_src(pos, height), POLY, m)
+    assert got == pytest.approx(expected, rel=0.02)
+
+
+@pytest.mark.parametrize("pos,height,axis", [
+    ((0.06, 0.03), 0.035, (0, 0, 1)), ((0.06, 0.03), 0.035, (1, 0, 0)), ((0.14, 0.03), 0.02, (0, 1, 0)),
+    ((0.06, 0.09), 0.03, (0.6, 0.0, 0.8)),
+])
+def test_ring_model_near_the_loop_matches_biot_savart(pos, height, axis):
+    # a 60 mm source within its own size of the loop: the ring model against the independent sum, within 1 %
+    src = _src(pos, height, size=0.06)
+    m = np.asarray(axis, float) / np.linalg.norm(axis)
+    expected = _ring_flux((*pos, height), m, 0.03, RECT, grid=96)
+    got = ring_path_flux(src, [*POLY, POLY[0]], m)
+    assert got == pytest.approx(expected, rel=0.01)
+    dipole = loop_flux(src, POLY, m)
+    assert abs(dipole - expected) > 0.05 * abs(expected)       # where the dipole law is visibly off
+
+
+def test_worst_orientation_is_at_least_every_axis_and_is_vertical_in_the_plane():
+    raised = _src((0.2, 0.1), height=0.03, axis="worst")
+    vectors = [path_vector(raised, [*POLY, POLY[0]])]
+    m = orientation(raised, vectors)
+    worst = abs(float(vectors[0] @ m))
+    for axis in ((1, 0, 0), (0, 1, 0), (0, 0, 1)):
+        assert worst >= abs(float(vectors[0] @ np.array(axis))) - 1e-18
+    assert worst == pytest.approx(float(np.linalg.norm(vectors[0])), rel=1e-12)   # |F| by Cauchy–Schwarz
+    flat = _src((0.2, 0.1), height=0.0, axis="worst")
+    assert list(orientation(flat, [path_vector(flat, [*POLY, POLY[0]])])) == [0.0, 0.0, 1.0]
+
+
+def test_height_axis_and_size_are_read_and_checked():
+    base = ('plan "f"\nmetal deck: steel 1 mm, 100 x 100 mm\n'
+            "field t: transformer, at 50,50, 40 uT at 5 cm, {}\n")
+    p = load_text(base.format("height 35 mm, axis x, size 60 mm"), "f.gplan")
+    (f,) = p.fields
+    assert (f.height, f.axis, f.size) == (pytest.approx(0.035), "x", pytest.approx(0.06))
+    from groundcheck.core.errors import PlanErrors
+    with pytest.raises(PlanErrors) as e:
+        load_text(base.format("axis w"), "f.gplan")
+    assert "axis" in str(e.value.errors[0])
+
+
+def test_loops_near_a_source_are_noted_with_the_model_used():
+    from groundcheck import load
+    from groundcheck.analysis import analyze
+    from helpers import EXAMPLES
+    mono = next(e for e in EXAMPLES if e.name.startswith("monoblock"))
+    r = analyze(load(mono))
+    notes = [f for f in r.findings if f.code == "GC305"]
+    assert {f.elements[1] for f in notes} == {"ptx", "choke"} and all("ring model" in f.message for f in notes)
+    entry = next(row for row in r.hum.loops if row["loop"] == 2)["sources"]["choke"]
+    assert entry["model"] == "ring" and entry["height_mm"] == 30 and entry["closest_mm"] < 50
+    text = mono.read_text().replace(", size 50 mm", "")
+    bare = analyze(load_text(text, str(mono)))
+    (note,) = [f for f in bare.findings if f.code == "GC305" and f.elements[1] == "choke"]
+    assert "state the size of choke" in note.fix
