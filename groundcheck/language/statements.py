@@ -53,11 +53,26 @@ def listening(stmt: Statement):
         r = Reader(ph, stmt)
         first = r.peek()
         word = r.word("an attribute")
-        if word not in spec:
-            raise unknown(stmt, first, tuple(spec))
-        field, kind = spec[word]
-        kw[field] = r.quantity(kind, word, positive=kind != "level")
+        if word == "speakers":
+            n = r.number("the number of speakers")
+            if n != int(n) or not 1 <= n <= 16:
+                raise PlanError("speakers takes a whole number from 1 to 16", first.loc, "e.g. 'speakers 2'")
+            kw["speakers"] = int(n)
+        elif word == "room-gain":
+            kw["room_gain"] = r.quantity("level", "room gain", positive=False)
+        elif word == "headphones":
+            kw["phones"] = r.quantity("level", "headphone sensitivity", positive=False)
+            r.expect("per")
+            kw["phones_per"] = r.word("the sensitivity's reference power or voltage (mW or V)", ("mW", "V"))
+        elif word in spec:
+            field, kind = spec[word]
+            kw[field] = r.quantity(kind, word, positive=kind != "level")
+        else:
+            raise unknown(stmt, first, (*spec, "speakers", "room-gain", "headphones"))
         r.finish()
+    if "phones" in kw and "sensitivity" in kw:
+        raise PlanError("listening gives both a speaker and headphones", stmt.loc,
+                        "describe one listening chain per plan: 'speaker 88 dB' or 'headphones 100 dB per mW'")
     return Listening(location=stmt.loc, **kw), {}
 
 

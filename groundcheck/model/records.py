@@ -80,9 +80,18 @@ class Listening:
     rated_output: float = 1.0            # V rms at the plan's output for full signal
     amp_gain: float = 0.0                # dB voltage gain from the plan's output to the speaker
     sensitivity: float | None = None     # dB SPL at 1 W, 1 m
-    impedance: float = 8.0               # speaker nominal impedance, Ω
+    impedance: float = 8.0               # speaker (or headphone) nominal impedance, Ω
     distance: float = 3.0                # listening distance, m
     location: Location = field(default=Location("<plan>"), compare=False)
+    speakers: int = 1                    # speakers playing the channel's hum, coherent at hum frequencies
+    room_gain: float = 0.0               # dB added by the room at the seat
+    phones: float | None = None          # headphone sensitivity, dB SPL per mW or per V (phones_per)
+    phones_per: str = "mW"
+
+    @property
+    def verdict(self) -> bool:
+        """Whether the chain ends in a transducer of known sensitivity, so that audibility can be judged."""
+        return self.sensitivity is not None or self.phones is not None
 
 
 @dataclass(frozen=True)

@@ -12,7 +12,8 @@ from bisect import bisect_right
 
 from ..core.units import db_of_ratio, ratio_of_db
 
-__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "dbu_from_dbv", "spl_at_listener"]
+__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "speakers_gain", "headphone_spl", "spl_of",
+           "dbu_from_dbv", "spl_at_listener"]
 
 #: ISO 226:2003 Table 1 frequencies (Hz) and threshold of hearing T_f (dB SPL)
 ISO226_FREQ = (20, 25, 31.5, 40, 50, 63, 80, 100, 125, 160, 200, 250, 315, 400, 500, 630, 800, 1000,
@@ -80,3 +81,58 @@ def spl_at_listener(v_out: float, amp_gain_db: float, sensitivity_db: float, imp
     v = v_out * ratio_of_db(amp_gain_db)
     p = v * v / impedance
     return sensitivity_db + 10 * math.log10(p) - 20 * math.log10(distance)
+
+
+def speakers_gain(n: int) -> float:
+    """dB added at the seat by ``n`` speakers playing the same hum in phase (equal distances).
+
+    Parameters:
+        n: the number of speakers.
+    Returns:
+        20·log10(n), dB (6.02 dB for two).
+    References:
+        L. Beranek, *Acoustics*, 1954 (superposition of coherent sound pressures); at hum frequencies the
+        wavelength (3.4 m at 100 Hz) is long against the usual difference of path, so the speakers add in phase
+        (common practice).
+    """
+    return db_of_ratio(n)
+
+
+def headphone_spl(v: float, sensitivity: float, per: str, impedance: float) -> float:
+    """Sound pressure level (dB SPL) in a headphone driven with ``v`` volts rms.
+
+    Parameters:
+        v: voltage across the headphone, V rms.
+        sensitivity: dB SPL per mW (``per`` "mW") or per V rms (``per`` "V").
+        per: "mW" or "V".
+        impedance: the headphone's nominal impedance, Ω (used for per mW).
+    Returns:
+        the level, dB SPL (−inf for no voltage).
+    References:
+        IEC 60268-7 (headphone sensitivity for 1 mW or 1 V); P = V²/Z (Ohm's law).
+    """
+    if v <= 0:
+        return -math.inf
+    if per == "V":
+        return sensitivity + db_of_ratio(v)
+    return sensitivity + 10 * math.log10(v * v / impedance / 1e-3)
+
+
+def spl_of(v_out: float, listening) -> float:
+    """Sound pressure level (dB SPL) at the listener of a voltage at the plan's output, for the plan's listening
+    context: headphones when stated, else its speakers at the distance (with their number and the room's gain).
+
+    Parameters:
+        v_out: voltage at the plan's output, V rms.
+        listening: the plan's Listening record (a sensitivity or headphones stated).
+    Returns:
+        the level, dB SPL.
+    References:
+        :func:`spl_at_listener`, :func:`speakers_gain`, :func:`headphone_spl`.
+    """
+    if listening.phones is not None:
+        return headphone_spl(v_out * ratio_of_db(listening.amp_gain), listening.phones, listening.phones_per,
+                             listening.impedance)
+    spl = spl_at_listener(v_out, listening.amp_gain, listening.sensitivity, listening.impedance, listening.distance)
+    return spl + speakers_gain(listening.speakers) + listening.room_gain
+

@@ -27,7 +27,7 @@ import numpy as np
 from ..core.units import db_of_ratio, dbv, ratio_of_db
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .humsettings import HumOptions
-from .hearing import spl_at_listener, threshold_of_hearing
+from .hearing import spl_of, threshold_of_hearing
 from .pickup import emf as emf_of, loop_fluxes, min_distance
 from .sweep import map_frequencies
 
@@ -189,7 +189,7 @@ class _Budget:
         if listening is None:
             self.notes.append("no listening context: levels are against a rated output of 1 V and no audibility "
                               "verdict is given")
-        elif listening.sensitivity is None:
+        elif not listening.verdict:
             self.notes.append("listening context has no speaker sensitivity: no audibility verdict is given")
         _, labels = circuit.components
         self.valid_stage = [labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages]
@@ -345,9 +345,8 @@ class _Merged:
             v = v if v >= FLOOR_V else 0.0
             total2 += v * v
             row = {"frequency_hz": f, "volts": v, "dbv": _r(dbv(v))}
-            if listening is not None and listening.sensitivity is not None:
-                spl = spl_at_listener(v, listening.amp_gain, listening.sensitivity, listening.impedance,
-                                      listening.distance)
+            if listening is not None and listening.verdict:
+                spl = spl_of(v, listening)
                 thr = threshold_of_hearing(f)
                 row.update(spl_db=_r(spl), threshold_db=thr, margin_db=_r(spl - thr))
                 if math.isfinite(spl) and (worst is None or spl - thr > worst):
@@ -356,7 +355,7 @@ class _Merged:
         total = math.sqrt(total2)
         clist = self._contributors(ch)
         audible = None if worst is None else worst > 0
-        if listening is not None and listening.sensitivity is not None and worst is None:
+        if listening is not None and listening.verdict and worst is None:
             audible, worst = False, None
         return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst)
 

@@ -184,7 +184,7 @@ def _hum_section(result: Result, parts: list[str], e=escape) -> None:
     """The hum tables and spectrum charts of each channel."""
     if result.hum is not None and result.hum.channels:
         plan = result.plan
-        listening = plan.listening is not None and plan.listening.sensitivity is not None
+        listening = plan.listening is not None and plan.listening.verdict
         parts.append("<h2>Hum and buzz spectrum</h2>")
         for ch, h in result.hum.channels.items():
             parts.append(f'<h3>{e(ch)}</h3><div '
