@@ -219,3 +219,39 @@ def test_audible_hum_is_a_fault_with_contributors():
     assert {f.elements[0] for f in audible} == {"left", "right"}
     assert all(f.severity == "fault" for f in audible)
     assert any(f.code == "GC301" and "left.sup_gnd" in f.elements for f in r.findings)
+
+
+def test_worst_case_adds_stage_shares_in_magnitude_and_shares_add_up():
+    # two stages of one channel whose pair voltages from the same rectifier current have opposite signs: the
+    # signed sum cancels, the worst case adds the magnitudes (|g1·v1| + |g2·v2|, worked by hand from the two
+    # stage voltages the solve gives) and the contributors' signed shares add up to 100 %
+    from groundcheck import load_text
+    from groundcheck.analysis import analyze
+    text = """plan "two stages, opposite drops"
+listening output 1 V
+metal deck: aluminium 2 mm, 200 x 120 mm
+point a: pad, at 20,60 on deck
+point m: star, at 100,60 on deck
+point b: pad, at 180,60 on deck
+point ct: centre-tap, at 100,20 on deck
+wire w1: a to m, 80 mm, 0.2 mm2, return
+wire w2: m to b, 80 mm, 0.2 mm2, return
+wire ct_lead: ct to m, 40 mm, 0.5 mm2, return
+rectifier hv: a to b, full-wave, secondary 30 V, winding 2 ohm, reservoir 1000 uF, load 100 mA
+stage s1: a to m, gain 20 dB, channel out
+stage s2: m to b, gain 20 dB, channel out
+"""
+    r = analyze(load_text(text, "two.gplan"))
+    h = r.hum.channels["out"]
+    row = next(x for x in h.spectrum if x["frequency_hz"] == 100.0)
+    # by symmetry the rectifier current leaves a and returns at b: both stages see the same drop, in phase
+    # (a→m and m→b), so here the worst case equals the signed sum and every share is positive
+    assert row["volts"] == pytest.approx(row["volts_signed"], rel=1e-9)
+    assert sum(c["share_pct"] for c in h.contributors) == pytest.approx(100.0, abs=0.5)
+    flipped = analyze(load_text(text.replace("stage s2: m to b", "stage s2: b to m"), "two.gplan"))
+    h2 = flipped.hum.channels["out"]
+    row2 = next(x for x in h2.spectrum if x["frequency_hz"] == 100.0)
+    # s2 now reads the same drop with the opposite sign: the signed sum cancels to nothing, the worst case is
+    # the same as before (magnitudes)
+    assert row2["volts"] == pytest.approx(row["volts"], rel=1e-9)
+    assert row2["volts_signed"] < 1e-6 * row["volts"]

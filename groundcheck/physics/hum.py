@@ -9,8 +9,12 @@ Combining: rectifiers on the same mains have phases computed from the same
 mains reference, so they add as phasors; every other source (each stated
 current, each heater, each field source) has a phase unknown relative to the
 rest and adds in power.  Within one field source the loops add as phasors.
-A stage's output share is its pair voltage times its gain; the stages of a
-channel are taken in phase (worst case).
+A stage's output share is its pair voltage times its gain.  Whether a stage
+inverts is not in the plan, so a channel's level is the worst case: every
+stage's share added in magnitude (in phase).  The network's own signed sum,
+every stage taken as non-inverting, is given beside it (``signed_v``); the
+contributors' shares are signed projections on the channel's signed total,
+so they add up to 100 % and a contribution that cancels others is negative.
 
 References: ISO 226:2003 (threshold of hearing); see :mod:`groundcheck.physics.coupling`
 (reciprocity) and :mod:`groundcheck.physics.pickup` (Faraday's law, dipole field).
@@ -19,23 +23,20 @@ References: ISO 226:2003 (threshold of hearing); see :mod:`groundcheck.physics.c
 from __future__ import annotations
 
 import math
-from collections import defaultdict
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..core.units import db_of_ratio, dbv, ratio_of_db
+from ..core.units import ratio_of_db
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .humsettings import HumOptions
-from .hearing import spl_of, threshold_of_hearing
-from .pickup import emf as emf_of, loop_fluxes, min_distance
+from .humtotals import ChannelHum, HumResult, Merged
+from .pickup import emf as emf_of, loop_fluxes
 from .sweep import map_frequencies
 
-__all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]
+__all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]  # the result types live in humtotals
 
 
-#: output voltages below this (V) are numerical noise and shown as zero (−240 dBV)
-FLOOR_V = 1e-12
 
 #: conductors named per source and stage as hum contributors (the rest are summed)
 TOP_SHARES = 10
@@ -43,57 +44,6 @@ TOP_SHARES = 10
 #: conductors listed per source in the JSON ``network`` section (the largest currents)
 NETWORK_ROWS = 50
 
-#: crosstalk is not shown below this (dB)
-CROSSTALK_FLOOR_DB = -200.0
-
-
-@dataclass
-class ChannelHum:
-    channel: str
-    spectrum: list[dict]                 # per frequency: volts, dbv, spl, threshold, margin
-    total_v: float
-    rated_output: float
-    contributors: list[dict]
-    audible: bool | None
-    margin_db: float | None              # worst SPL − threshold, dB (positive: audible)
-
-    @property
-    def total_dbv(self) -> float:
-        return dbv(self.total_v)
-
-    @property
-    def signal_to_hum(self) -> float:
-        return math.inf if self.total_v <= 0 else db_of_ratio(self.rated_output / self.total_v)
-
-    def as_dict(self) -> dict:
-        return {"channel": self.channel, "total_v": self.total_v, "total_dbv": _r(self.total_dbv),
-                "signal_to_hum_db": _r(self.signal_to_hum), "rated_output_v": self.rated_output,
-                "audible": self.audible, "margin_db": _r(self.margin_db), "spectrum": self.spectrum,
-                "contributors": self.contributors}
-
-
-def _r(x, d=2):
-    if x is None:
-        return None
-    if isinstance(x, float) and not math.isfinite(x):
-        return None
-    return round(float(x), d)
-
-
-@dataclass
-class HumResult:
-    channels: dict[str, ChannelHum]
-    rectifiers: list
-    loops: list[dict]
-    crosstalk: list[dict]
-    frequencies: list[float]
-    network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
-    notes: list[str] = field(default_factory=list)
-
-    def as_dict(self) -> dict:
-        return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
-                "rectifiers": [r.as_dict() for r in self.rectifiers], "loops": self.loops,
-                "crosstalk": self.crosstalk, "notes": self.notes}
 
 
 def _emf_columns(circuit, loops, fields, f0, f, names, flux):
@@ -135,6 +85,7 @@ class _FrequencyPart:
     # (loop index, field source, emf V, loop current A, per-stage phasors)
     loops: list = field(default_factory=list)
     network: list = field(default_factory=list)      # rows of the JSON ``network`` section
+    in_phase: list = field(default_factory=list)     # (channel, source group, Σ|stage drop·gain|): the worst case
     crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
 
 
@@ -158,7 +109,7 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         ISO 226:2003 (threshold); reciprocity (Penfield, Spence, Duinker, 1970); Faraday's law.
     """
     b = _Budget(plan, circuit, loops, rectifier_results, options)
-    merged = _Merged(b)
+    merged = Merged(b)
     for f, part in zip(b.solve_at, map_frequencies(b.at_frequency, b.solve_at, jobs)):
         merged.add(f, part)
     channels = {ch: merged.channel(ch) for ch in b.channels}
@@ -208,6 +159,10 @@ class _Budget:
         # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in phase, see the
         # module doc)
         self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
+        self.stage_a = np.array([circuit.point_node[stages[k].a] for k in self.valid_idx], dtype=int)
+        self.stage_b = np.array([circuit.point_node[stages[k].b] for k in self.valid_idx], dtype=int)
+        self.gains_valid = self.gains[self.valid_idx][:, None] if stages else np.zeros((0, 1))
+        self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
         self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops)
         self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
 
@@ -229,6 +184,12 @@ class _Budget:
         both = fac.solve(np.hstack([source_injections(circuit, active, f), self.tests]))
         W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
         TC = both.I[:, len(active):]                                 # branches × channels
+        # each stage's own drop (node voltages of the source solves), for the worst case: every stage in phase
+        stage_v = np.abs(both.V[self.stage_a, :len(active)] - both.V[self.stage_b, :len(active)]) * self.gains_valid
+        for ci, ch in enumerate(self.channels):
+            for si, s in enumerate(active):
+                group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
+                part.in_phase.append((ch, group, float(stage_v[self.stage_channel == ci, si].sum())))
         for ci, ch in enumerate(self.channels):
             shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
             v_all = shares_all.sum(axis=0)
@@ -272,6 +233,10 @@ class _Budget:
         for col, (li, src_name, phi) in enumerate(meta):
             chord_i = self.branch_index[loops[li].loop.edges[loops[li].loop.chord]]
             part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
+            for ch in self.channels:
+                mags = [abs(drops[k, col]) for k, st in enumerate(self.stages)
+                        if self.valid_stage[k] and st.channel == ch]
+                part.in_phase.append((ch, f"field:{src_name}", float(sum(mags))))
 
     def _crosstalk(self, fac, part) -> None:
         circuit = self.circuit
@@ -285,100 +250,3 @@ class _Budget:
             for k, st in enumerate(self.stages):
                 if self.valid_stage[k] and st.channel != (s.channel or ""):
                     part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * self.gains[k]))
-
-
-class _Merged:
-    """The frequencies' parts merged in ascending order: per channel, per frequency, group -> phasor at the output."""
-
-    def __init__(self, b: _Budget):
-        self.b = b
-        self.out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}
-        self.contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}   # (label) -> f -> phasor
-        self.loop_rows: dict[int, dict] = {}
-        self.network_rows: list[dict] = []
-        self.crosstalk_raw = defaultdict(complex)
-
-    def add(self, f: float, part: _FrequencyPart) -> None:
-        for ch, group, v in part.out:
-            self.out[ch][f][group] += v
-        for ch, label, v in part.contrib:
-            self.contrib[ch][label][f] += v
-        self.network_rows.extend(part.network)
-        for li, src_name, emf_v, current, drops in part.loops:
-            self._loop(f, li, src_name, emf_v, current, drops)
-        for src_ch, dst_ch, v in part.crosstalk:
-            self.crosstalk_raw[(src_ch, dst_ch, f)] += v
-
-    def _loop(self, f, li, src_name, emf_v, current, drops) -> None:
-        b = self.b
-        info = b.loops[li]
-        row = self.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes),
-                                             "closed_by": info.closed_by,
-                                             "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
-                                             "sources": {}})
-        entry = row["sources"].get(src_name)
-        if entry is None:
-            src = b.fields[src_name]
-            entry = row["sources"][src_name] = {
-                "flux_density_equiv_t": abs(b.flux[(li, src_name)]) / info.area if info.area else None,
-                "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1),
-                "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in b.orient[src_name]],
-                "axis_stated": src.axis, "model": "ring" if (li, src_name) in b.ring else "dipole",
-                "size_mm": None if src.size is None else round(src.size * 1e3, 3), "per_frequency": []}
-        entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
-        group = f"field:{src_name}"
-        label = ("loop", f"loop {li + 1}", group)
-        for k, st in enumerate(b.stages):
-            if b.valid_stage[k]:
-                self.out[st.channel][f][group] += drops[k]
-                self.contrib[st.channel][label][f] += drops[k]
-
-    def channel(self, ch: str) -> ChannelHum:
-        """A channel's spectrum (power sum of its groups per frequency), total, contributors and verdict."""
-        listening = self.b.listening
-        spectrum = []
-        total2 = 0.0
-        worst = None
-        for f in self.b.freqs:
-            groups = self.out[ch].get(f, {})
-            v = math.sqrt(sum(abs(p) ** 2 for p in groups.values()))
-            v = v if v >= FLOOR_V else 0.0
-            total2 += v * v
-            row = {"frequency_hz": f, "volts": v, "dbv": _r(dbv(v))}
-            if listening is not None and listening.verdict:
-                spl = spl_of(v, listening)
-                thr = threshold_of_hearing(f)
-                row.update(spl_db=_r(spl), threshold_db=thr, margin_db=_r(spl - thr))
-                if math.isfinite(spl) and (worst is None or spl - thr > worst):
-                    worst = spl - thr
-            spectrum.append(row)
-        total = math.sqrt(total2)
-        clist = self._contributors(ch)
-        audible = None if worst is None else worst > 0
-        if listening is not None and listening.verdict and worst is None:
-            audible, worst = False, None
-        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst)
-
-    def _contributors(self, ch: str) -> list[dict]:
-        clist = []
-        for (kind, name, group), per_f in self.contrib[ch].items():
-            lvl = math.sqrt(sum(abs(p) ** 2 for p in per_f.values()))
-            if lvl < FLOOR_V:
-                continue
-            clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl,
-                          "dbv": _r(dbv(lvl))})
-        tot_c = sum(c["volts"] ** 2 for c in clist) or 1.0
-        for c in clist:
-            c["share_pct"] = round(100 * c["volts"] ** 2 / tot_c, 1)
-        clist.sort(key=lambda c: (-c["volts"], c["element"]))
-        return clist
-
-    def crosstalk(self) -> list[dict]:
-        rated = self.b.rated
-        out = []
-        for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1],
-                                                                                         kv[0][2])):
-            out.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
-                        "db": _r(max(CROSSTALK_FLOOR_DB,
-                                     db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
-        return out

@@ -54,6 +54,14 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
         _loop_table(result, console)
 
 
+def _signed_words(h) -> str:
+    """When the stages' drops partly cancel: the network's own sum beside the worst case the level shows."""
+    if h.signed_v <= 0 or h.total_v <= 0 or 20 * math.log10(h.total_v / h.signed_v) < 0.05:
+        return ""
+    return (f"; stages in phase, the worst case (with every stage non-inverting: "
+            f"{20 * math.log10(h.signed_v):.2f} dBV)")
+
+
 def _summary(result: Result, console: Console, caution: bool) -> None:
     plan = result.plan
     counts = result.counts()
@@ -84,7 +92,8 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
             level = _fmt(h.total_dbv, ' dBV', 4) if h.total_v > 0 else "none computed (below 1 pV)"
             console.print(f"Hum, {escape(ch)}: {level} at the output, signal-to-hum "
                           f"{_fmt(h.signal_to_hum, ' dB', 3) if h.total_v > 0 else 'unlimited'}, {verdict}"
-                          + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else ""))
+                          + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else "")
+                          + _signed_words(h))
     if caution:
         console.print(Text(CAUTION, style="bold yellow"))
     console.print()

@@ -1,0 +1,197 @@
+"""The hum budget's totals: the frequencies' parts merged per channel (spectrum, worst case and signed sum,
+contributors with signed shares), the loops' pickup rows and the crosstalk, and the result types.
+
+See :mod:`groundcheck.physics.hum` for how the parts are computed and combined.
+"""
+
+from __future__ import annotations
+
+import math
+from collections import defaultdict
+from dataclasses import dataclass, field
+
+from ..core.units import db_of_ratio, dbv
+from .hearing import spl_of, threshold_of_hearing
+from .pickup import min_distance
+
+__all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB", "rounded"]
+
+#: output voltages below this (V) are numerical noise and shown as zero (−240 dBV)
+FLOOR_V = 1e-12
+
+#: crosstalk is not shown below this (dB)
+CROSSTALK_FLOOR_DB = -200.0
+
+
+@dataclass
+class ChannelHum:
+    channel: str
+    spectrum: list[dict]                 # per frequency: volts, dbv, spl, threshold, margin
+    total_v: float
+    rated_output: float
+    contributors: list[dict]
+    audible: bool | None
+    margin_db: float | None              # worst SPL − threshold, dB (positive: audible)
+    signed_v: float = 0.0                # the network's own sum, every stage taken as non-inverting
+
+    @property
+    def total_dbv(self) -> float:
+        return dbv(self.total_v)
+
+    @property
+    def signal_to_hum(self) -> float:
+        return math.inf if self.total_v <= 0 else db_of_ratio(self.rated_output / self.total_v)
+
+    def as_dict(self) -> dict:
+        return {"channel": self.channel, "total_v": self.total_v, "total_dbv": rounded(self.total_dbv),
+                "total_signed_v": self.signed_v, "total_signed_dbv": rounded(dbv(self.signed_v)),
+                "signal_to_hum_db": rounded(self.signal_to_hum), "rated_output_v": self.rated_output,
+                "audible": self.audible, "margin_db": rounded(self.margin_db), "spectrum": self.spectrum,
+                "contributors": self.contributors}
+
+
+def rounded(x, d=2):
+    """A figure rounded for the budget's rows, None for none or a non-finite value.
+
+    Parameters:
+        x: a number or None.
+        d: decimals.
+    Returns:
+        the rounded float, or None.
+    References:
+        none (presentation).
+    """
+    if x is None:
+        return None
+    if isinstance(x, float) and not math.isfinite(x):
+        return None
+    return round(float(x), d)
+
+
+@dataclass
+class HumResult:
+    channels: dict[str, ChannelHum]
+    rectifiers: list
+    loops: list[dict]
+    crosstalk: list[dict]
+    frequencies: list[float]
+    network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
+    notes: list[str] = field(default_factory=list)
+
+    def as_dict(self) -> dict:
+        return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
+                "rectifiers": [r.as_dict() for r in self.rectifiers], "loops": self.loops,
+                "crosstalk": self.crosstalk, "notes": self.notes}
+
+
+class Merged:
+    """The frequencies' parts merged in ascending order: per channel, per frequency, group -> phasor at the output."""
+
+    def __init__(self, b):               # the budget of groundcheck.physics.hum
+        self.b = b
+        self.out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}
+        self.contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}   # (label) -> f -> phasor
+        self.loop_rows: dict[int, dict] = {}
+        self.network_rows: list[dict] = []
+        self.crosstalk_raw = defaultdict(complex)
+        self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
+
+    def add(self, f: float, part) -> None:
+        for ch, group, mag in part.in_phase:
+            self.in_phase[ch][f][group] += mag
+        for ch, group, v in part.out:
+            self.out[ch][f][group] += v
+        for ch, label, v in part.contrib:
+            self.contrib[ch][label][f] += v
+        self.network_rows.extend(part.network)
+        for li, src_name, emf_v, current, drops in part.loops:
+            self._loop(f, li, src_name, emf_v, current, drops)
+        for src_ch, dst_ch, v in part.crosstalk:
+            self.crosstalk_raw[(src_ch, dst_ch, f)] += v
+
+    def _loop(self, f, li, src_name, emf_v, current, drops) -> None:
+        b = self.b
+        info = b.loops[li]
+        row = self.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes),
+                                             "closed_by": info.closed_by,
+                                             "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
+                                             "sources": {}})
+        entry = row["sources"].get(src_name)
+        if entry is None:
+            src = b.fields[src_name]
+            entry = row["sources"][src_name] = {
+                "flux_density_equiv_t": abs(b.flux[(li, src_name)]) / info.area if info.area else None,
+                "closest_mm": round(min_distance(src, info.polygon) * 1e3, 1),
+                "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in b.orient[src_name]],
+                "axis_stated": src.axis, "model": "ring" if (li, src_name) in b.ring else "dipole",
+                "size_mm": None if src.size is None else round(src.size * 1e3, 3), "per_frequency": []}
+        entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
+        group = f"field:{src_name}"
+        label = ("loop", f"loop {li + 1}", group)
+        for k, st in enumerate(b.stages):
+            if b.valid_stage[k]:
+                self.out[st.channel][f][group] += drops[k]
+                self.contrib[st.channel][label][f] += drops[k]
+
+    def channel(self, ch: str) -> ChannelHum:
+        """A channel's spectrum (power sum of its groups per frequency), total, contributors and verdict."""
+        listening = self.b.listening
+        spectrum = []
+        total2 = signed2 = 0.0
+        worst = None
+        for f in self.b.freqs:
+            groups = self.out[ch].get(f, {})
+            v = math.sqrt(sum(abs(p) ** 2 for p in groups.values()))
+            v = v if v >= FLOOR_V else 0.0
+            signed = v
+            w = math.sqrt(sum(x * x for x in self.in_phase[ch].get(f, {}).values()))
+            v = max(w, signed) if w >= FLOOR_V else signed       # the worst case: every stage's drop in phase
+            total2 += v * v
+            signed2 += signed * signed
+            row = {"frequency_hz": f, "volts": v, "dbv": rounded(dbv(v)), "volts_signed": signed}
+            if listening is not None and listening.verdict:
+                spl = spl_of(v, listening)
+                thr = threshold_of_hearing(f)
+                row.update(spl_db=rounded(spl), threshold_db=thr, margin_db=rounded(spl - thr))
+                if math.isfinite(spl) and (worst is None or spl - thr > worst):
+                    worst = spl - thr
+            spectrum.append(row)
+        total = math.sqrt(total2)
+        clist = self._contributors(ch)
+        audible = None if worst is None else worst > 0
+        if listening is not None and listening.verdict and worst is None:
+            audible, worst = False, None
+        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2))
+
+    def _contributors(self, ch: str) -> list[dict]:
+        """The channel's contributors with their level and their signed share of the channel's (signed) hum power:
+        the projection of each one's phasors on its group's total, so that the shares add up to 100 % and a
+        contribution that cancels part of the others has a negative share."""
+        clist = []
+        out = self.out[ch]
+        for (kind, name, group), per_f in self.contrib[ch].items():
+            lvl = math.sqrt(sum(abs(p) ** 2 for p in per_f.values()))
+            if lvl < FLOOR_V:
+                continue
+            proj = sum((p * out[f][group].conjugate()).real for f, p in per_f.items())
+            clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl,
+                          "dbv": rounded(dbv(lvl)), "_proj": proj})
+        total = sum(abs(p) ** 2 for groups in out.values() for p in groups.values()) or 1.0
+        for c in clist:
+            share = round(100 * c.pop("_proj") / total, 1)
+            c["share_pct"] = share if abs(share) >= 0.05 else 0.0
+        clist.sort(key=lambda c: (-c["volts"], c["element"]))
+        if any(c["share_pct"] < 0 for c in clist):
+            self.b.notes.append(f"in {ch}, some contributions have negative shares: their drops oppose the others' "
+                                "along the stage's path and cancel part of them")
+        return clist
+
+    def crosstalk(self) -> list[dict]:
+        rated = self.b.rated
+        out = []
+        for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1],
+                                                                                         kv[0][2])):
+            out.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
+                        "db": rounded(max(CROSSTALK_FLOOR_DB,
+                                     db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
+        return out
