@@ -105,10 +105,16 @@ def rectifier(stmt: Statement):
         first = r.peek()
         if first.kind == "word" and first.value in ("full-wave", "bridge", "half-wave"):
             kw["topology"] = r.word()
+        elif first.kind == "word" and first.value == "diode" and len(ph) > 1 and ph[1].kind == "word":
+            r.word()
+            kw["diode_law"] = r.word("a diode law (a drop such as '1 V', or shockley)", ("shockley",))
         elif first.kind == "word" and first.value in spec:
             word = r.word()
             field, kind = spec[word]
             kw[field] = r.quantity(kind, word, allow_zero=word == "diode")
+        elif first.kind == "word" and first.value == "leakage":
+            r.word()
+            kw["leakage"] = r.quantity("inductance", "leakage inductance", allow_zero=True)
         elif first.kind == "word" and first.value == "load":
             r.word()
             it = r.next("a load current or resistance")
@@ -120,7 +126,7 @@ def rectifier(stmt: Statement):
             r.word()
             kw["channel"] = r.word("a channel name")
         else:
-            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel") + tuple(spec))
+            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel", "leakage") + tuple(spec))
         r.finish()
     if "load_current" not in kw and "load_resistance" not in kw:
         raise PlanError("rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'")

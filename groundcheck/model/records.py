@@ -191,6 +191,8 @@ class Rectifier:
     load_resistance: float | None = None
     channel: str | None = None
     location: Location = field(default=Location("<plan>"), compare=False)
+    diode_law: str = "constant"          # constant (diode_drop per diode) or shockley (exponential, with Rs)
+    leakage: float = 0.0                 # transformer leakage inductance per conducting (half-)winding, H
 
 
 @dataclass(frozen=True)
