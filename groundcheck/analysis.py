@@ -53,8 +53,9 @@ def _analyze(plan: Plan, options: Options) -> Result:
     result.coupling = shared_returns(plan, circuit)
     result.safety = protective_figures(plan, ctx.route, options.pe_limit, circuit)
     result.device_earths = installation_earths(plan, ctx.route, circuit)
+    rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers} if options.hum else {}
+    result.rectifiers = list(rr.values())
     if options.hum and plan.stages:
-        rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
         result.hum = hum_budget(plan, circuit, ctx.loops, rr,
                                 HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
                                 jobs=options.jobs)

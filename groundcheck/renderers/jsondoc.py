@@ -34,6 +34,7 @@ def result_document(result: Result) -> dict:
         "loops": [lp.as_dict() for lp in result.loops],
         "protective_earth": None if result.safety is None else result.safety.as_dict(),
         "hum": None if result.hum is None else result.hum.as_dict(),
+        "rectifiers": [r.as_dict() for r in result.rectifiers],
         "coupling": [row.as_dict() for row in result.coupling],
         "device_earths": None if result.device_earths is None else [d.as_dict() for d in result.device_earths],
         "network": None,

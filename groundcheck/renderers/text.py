@@ -49,6 +49,7 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
     _findings(result, console)
     if result.hum is not None and result.hum.channels:
         _hum_tables(result, console)
+    _rectifier_table(result, console)
     _protective_tables(result, console)
     if result.loops:
         _loop_table(result, console)
@@ -151,17 +152,20 @@ def _hum_tables(result: Result, console: Console) -> None:
     for note in result.hum.notes:
         console.print(Text(f"  note: {note}", style="dim"))
     console.print()
-    if result.hum.rectifiers:
+    if result.hum.loops:
+        _pickup_table(result, console)
+
+
+def _rectifier_table(result: Result, console: Console) -> None:
+    if result.rectifiers:
         t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
         for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °"):
             t.add_column(col, justify="right" if col != "rectifier" else "left")
-        for r in result.hum.rectifiers:
+        for r in result.rectifiers:
             t.add_row(escape(r.name), f"{r.dc_voltage:.1f}", f"{r.ripple_pp:.3g}", f"{r.peak_current:.3g}",
                       f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
         console.print(t)
         console.print()
-    if result.hum.loops:
-        _pickup_table(result, console)
 
 
 def axis_words(axis: list[float], stated: str) -> str:

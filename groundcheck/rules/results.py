@@ -54,6 +54,7 @@ class Result:
     device_earths: tuple[DeviceEarth, ...] | None = None
     notices: list[str] = field(default_factory=list)      # what was relaxed or skipped: shown in every output
     protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
+    rectifiers: list = field(default_factory=list)         # each rectifier's steady state, with or without stages
 
     def open_findings(self) -> list[Finding]:
         """The findings not accepted in the plan."""
