@@ -114,3 +114,28 @@ def test_loops_near_a_source_are_noted_with_the_model_used():
     bare = analyze(load_text(text, str(mono)))
     (note,) = [f for f in bare.findings if f.code == "GC305" and f.elements[1] == "choke"]
     assert "state the size of choke" in note.fix
+
+
+def _raster_enclosed_area(poly, lo, hi, n=2201):
+    """∫|winding number| dA on a fine grid: the winding number of each grid point by counting signed edge
+    crossings of a ray to the right (the crossing-number rule)."""
+    g = np.linspace(lo, hi, n)
+    X, Y = np.meshgrid(g, g)
+    w = np.zeros_like(X)
+    for k in range(len(poly)):
+        (x0, y0), (x1, y1) = poly[k], poly[(k + 1) % len(poly)]
+        up, down = (y0 <= Y) & (y1 > Y), (y0 > Y) & (y1 <= Y)
+        side = (x1 - x0) * (Y - y0) - (X - x0) * (y1 - y0)
+        w += np.where(up & (side > 0), 1, 0) - np.where(down & (side < 0), 1, 0)
+    return float(np.abs(w).sum() * (g[1] - g[0]) ** 2)
+
+
+@pytest.mark.parametrize("poly", [
+    [(0, 0), (4, 0), (4, 3), (1, 3), (1, 1), (3, 1), (3, 2), (0, 2)],     # a lobe crossing back over itself
+    [(0, 0), (2, 2), (2, 0), (0, 2)],                                       # a figure of eight: net area 0
+    [(0, 0), (6, 0), (6, 4), (0, 4)],                                       # simple: the shoelace formula
+    [(1.2, 7.5), (9.1, 2.2), (3.3, 0.4), (8.8, 8.9), (0.3, 3.1), (5.5, 9.6), (7.7, 0.9)],
+])
+def test_loop_area_counts_every_lobe_once(poly):
+    from groundcheck.network.graph import polygon_area
+    assert polygon_area(poly) == pytest.approx(_raster_enclosed_area(poly, -0.5, 10.5), rel=2e-3)

@@ -148,12 +148,71 @@ def _climb(x, parent, parent_edge, nodes, edges):
 
 
 def polygon_area(pts) -> float:
-    """Area enclosed by a polygon (shoelace formula), m²; 0 for fewer than three points."""
+    """Area enclosed by a polygon, m²: the integral of |winding number| over the plane, so that each lobe of a
+    self-intersecting outline counts once whatever its sense (the shoelace formula's net area would subtract a
+    lobe wound the other way); 0 for fewer than three points.
+
+    Exact: the plane is cut into vertical slabs at every vertex and crossing, inside which no two edges cross;
+    the edges through a slab are sorted by height and each trapezoid between neighbours carries the winding
+    number accumulated below it (edge directions upward count +1, downward −1)."""
     if len(pts) < 3:
         return 0.0
     a = np.asarray(pts, dtype=float)
-    x, y = a[:, 0], a[:, 1]
-    return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
+    if not _crosses_itself(a):                          # the usual case: the shoelace formula, exact
+        x, y = a[:, 0], a[:, 1]
+        return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
+    edges = [(a[k], a[(k + 1) % len(a)]) for k in range(len(a)) if a[k][0] != a[(k + 1) % len(a)][0]]
+    xs = set(a[:, 0].tolist())
+    for i in range(len(edges)):
+        for j in range(i + 1, len(edges)):
+            x = _crossing_x(edges[i], edges[j])
+            if x is not None:
+                xs.add(x)
+    cuts = sorted(xs)
+    total = 0.0
+    for x0, x1 in zip(cuts, cuts[1:]):
+        if x1 - x0 <= 0:
+            continue
+        xm = 0.5 * (x0 + x1)
+        rows = []
+        for p, q in edges:
+            lo, hi = min(p[0], q[0]), max(p[0], q[0])
+            if lo <= xm <= hi:
+                t0, t1 = (x0 - p[0]) / (q[0] - p[0]), (x1 - p[0]) / (q[0] - p[0])
+                rows.append((p[1] + (q[1] - p[1]) * 0.5 * (t0 + t1), p[1] + (q[1] - p[1]) * t0,
+                             p[1] + (q[1] - p[1]) * t1, 1 if q[0] > p[0] else -1))
+        rows.sort()
+        w = 0
+        for (_, a0, a1, d), (_, b0, b1, _) in zip(rows, rows[1:]):
+            w += d
+            total += abs(w) * (x1 - x0) * ((b0 - a0) + (b1 - a1)) / 2
+    return float(total)
+
+
+def _crosses_itself(a: np.ndarray) -> bool:
+    """Whether any two edges of the closed polygon cross inside both (all pairs at once)."""
+    p, q = a, np.roll(a, -1, axis=0)
+    d = q - p
+    r = p[None, :, :] - p[:, None, :]                               # r[i, j] = p_j − p_i
+    den = d[:, None, 0] * d[None, :, 1] - d[:, None, 1] * d[None, :, 0]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = (r[..., 0] * d[None, :, 1] - r[..., 1] * d[None, :, 0]) / den
+        u = (r[..., 0] * d[:, None, 1] - r[..., 1] * d[:, None, 0]) / den
+    inside = (den != 0) & (t > 1e-12) & (t < 1 - 1e-12) & (u > 1e-12) & (u < 1 - 1e-12)
+    return bool(inside.any())
+
+
+def _crossing_x(e, f) -> float | None:
+    """The x of the crossing of two segments inside both, or None."""
+    (p, q), (r, s) = e, f
+    d = (q[0] - p[0]) * (s[1] - r[1]) - (q[1] - p[1]) * (s[0] - r[0])
+    if d == 0:
+        return None
+    t = ((r[0] - p[0]) * (s[1] - r[1]) - (r[1] - p[1]) * (s[0] - r[0])) / d
+    u = ((r[0] - p[0]) * (q[1] - p[1]) - (r[1] - p[1]) * (q[0] - p[0])) / d
+    if 1e-12 < t < 1 - 1e-12 and 1e-12 < u < 1 - 1e-12:
+        return float(p[0] + t * (q[0] - p[0]))
+    return None
 
 
 def loop_polygon(G: nx.MultiGraph, loop: Loop):
