@@ -159,3 +159,19 @@ def test_drawings_of_an_installation_show_or_say_everything():
         assert f'subgraph "cluster_{device}"' in topo and f'"{device}.mains.pe"' in topo
     missing = physical_omissions(r)
     assert missing[0] > 0 and f"{missing[0]} points and {missing[1]} conductors" in physical_dot(r)
+
+
+def test_balanced_rejection_from_the_source_impedance_imbalance():
+    # CMRR = 20·log10((Zcm + ΔZ)/ΔZ): 10 Ω of imbalance against 20 kΩ per leg gives 66.02 dB, worked by hand;
+    # against 10 kΩ, 20·log10(1001) = 60.0087 dB; a stated CMRR lower than that wins; nothing stated: the 50 dB assumption
+    from groundcheck import load_text
+    head = ('plan "balanced"\npoint a: terminal\npoint b: terminal\nwire g: a to b, 1 m, 1 mm2\n'
+            "interconnect lead: a to b, 3 m, 0.1 mm2, balanced, gain 30 dB, channel main, {}\n")
+    def gain(extra):
+        (st,) = load_text(head.format(extra), "b.gplan").stages
+        return st.gain
+    assert gain("imbalance 10 ohm") == pytest.approx(30 - 66.0249, abs=1e-3)
+    assert gain("imbalance 10 ohm, common-mode 10 kohm") == pytest.approx(30 - 60.0087, abs=1e-3)
+    assert gain("imbalance 10 ohm, cmrr 40 dB") == pytest.approx(30 - 40, abs=1e-9)
+    assert gain("cmrr 55 dB") == pytest.approx(30 - 55, abs=1e-9)
+    assert gain("channel main") == pytest.approx(30 - 50, abs=1e-9)

@@ -176,7 +176,7 @@ def assemble(built: list, file: str, ld) -> Plan:
     stages = [r for r, *_ in groups[Stage]]
     for c in conductors:
         if c.kind == "interconnect" and c.gain is not None:
-            gain = c.gain - (c.cmrr if c.balanced else 0.0)
+            gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)
             stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location))
     return Plan(
         title=header.get("title") or Path(file).stem, file=file, mains=mains,
@@ -187,3 +187,25 @@ def assemble(built: list, file: str, ld) -> Plan:
         fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
         device_supplies=tuple(s for s, _ in supplies), acceptances=acceptances(ld.sources),
     )
+
+
+#: a balanced input's common-mode rejection when neither it nor the imbalance is stated, dB (an assumption)
+DEFAULT_CMRR = 50.0
+#: no balanced input rejects better than this, dB (a perfectly matched source still leaves the input's own)
+MAX_CMRR = 200.0
+
+
+def balanced_rejection(c) -> float:
+    """The common-mode rejection (dB) of a balanced interconnect's receiving input: from the source-impedance
+    imbalance ΔZ against the input's common-mode impedance Zcm per leg when stated, CMRR = 20·log10((Zcm + ΔZ)/ΔZ)
+    (the common-mode voltage divides unequally between the legs; B. Whitlock, "Balanced lines in audio systems",
+    J. Audio Eng. Soc. 43(6), 1995, from memory); the lower of that and the input's own stated CMRR when both are
+    given; else the stated CMRR, else :data:`DEFAULT_CMRR`."""
+    own = c.cmrr
+    if c.imbalance is None:
+        return DEFAULT_CMRR if own is None else own
+    from math import log10
+    by_imbalance = MAX_CMRR if c.imbalance == 0 else min(MAX_CMRR, 20 * log10((c.common_mode + c.imbalance)
+                                                                              / c.imbalance))
+    return by_imbalance if own is None else min(own, by_imbalance)
+

@@ -15,7 +15,7 @@ __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
 CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
                    "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced",
-                   "gain", "cmrr")
+                   "gain", "cmrr", "imbalance", "common-mode")
 #: the field a bare quantity of each kind sets on a conductor
 _CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
 
@@ -50,6 +50,10 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
         kw["balanced"] = word == "balanced"
     elif word in ("gain", "cmrr"):
         kw[word] = r.quantity("level", word, positive=False)
+    elif word == "imbalance":
+        kw["imbalance"] = r.quantity("resistance", "source impedance imbalance", allow_zero=True)
+    elif word == "common-mode":
+        kw["common_mode"] = r.quantity("resistance", "common-mode input impedance")
 
 
 def conductor(stmt: Statement):

@@ -157,8 +157,10 @@ class Conductor:
     channel: str | None = None
     balanced: bool = False               # interconnects: balanced (the shield is not the signal return)
     gain: float | None = None            # interconnects: dB from the receiving input to the output
-    cmrr: float = 50.0                   # interconnects, balanced: common-mode rejection, dB
+    cmrr: float | None = None            # interconnects, balanced: the input's own common-mode rejection, dB
     location: Location = field(default=Location("<plan>"), compare=False)
+    imbalance: float | None = None       # interconnects, balanced: source impedance imbalance between the legs, Ω
+    common_mode: float = 20e3            # interconnects, balanced: the input's common-mode impedance per leg, Ω
 
     @property
     def connects(self) -> bool:
