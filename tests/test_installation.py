@@ -163,7 +163,8 @@ def test_drawings_of_an_installation_show_or_say_everything():
 
 def test_balanced_rejection_from_the_source_impedance_imbalance():
     # CMRR = 20·log10((Zcm + ΔZ)/ΔZ): 10 Ω of imbalance against 20 kΩ per leg gives 66.02 dB, worked by hand;
-    # against 10 kΩ, 20·log10(1001) = 60.0087 dB; a stated CMRR lower than that wins; nothing stated: the 50 dB assumption
+    # against 10 kΩ, 20·log10(1001) = 60.0087 dB; a stated CMRR lower than that wins; nothing stated: the 50 dB
+    # assumption
     from groundcheck import load_text
     head = ('plan "balanced"\npoint a: terminal\npoint b: terminal\nwire g: a to b, 1 m, 1 mm2\n'
             "interconnect lead: a to b, 3 m, 0.1 mm2, balanced, gain 30 dB, channel main, {}\n")
