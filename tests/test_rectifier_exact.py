@@ -13,7 +13,8 @@ import pytest
 
 from groundcheck import load_text
 from groundcheck.model.records import Rectifier
-from groundcheck.physics.rectifier import SHOCKLEY_IS, SHOCKLEY_N, SHOCKLEY_RS, harmonic_phasors, simulate
+from groundcheck.physics.rectifier import harmonic_phasors, simulate
+from groundcheck.physics.rectifier_exact import SHOCKLEY_IS, SHOCKLEY_N, SHOCKLEY_RS
 
 from helpers import needs_ngspice
 
@@ -96,3 +97,82 @@ def test_diode_law_and_leakage_are_read():
                   '1 mm2\n', "r.gplan")
     (r,) = p.rectifiers
     assert r.diode_law == "shockley" and r.leakage == pytest.approx(0.2)
+
+
+def _ngspice_crc(vrms, rw, c1, rf, c2, iload, f):
+    """Full-wave rectifier (Shockley diodes), reservoir, then R and a second capacitor with the load across it;
+    the charging current and the second capacitor's current over the last PERIODS periods."""
+    vpk = vrms * math.sqrt(2)
+    text = f"""crc supply
+V1 a 0 SIN(0 {vpk} {f})
+V2 0 b SIN(0 {vpk} {f})
+R1 a a2 {rw}
+R2 b b2 {rw}
+D1 a2 v1 dmod
+D2 b2 v1 dmod
+C1 v1 0 {c1}
+RF v1 v2 {rf}
+C2 v2 c2n {c2}
+VC2 c2n 0 DC 0
+I1 v2 0 DC {iload}
+.model dmod D(IS={SHOCKLEY_IS} N={SHOCKLEY_N} RS={SHOCKLEY_RS})
+.options temp=27
+.control
+set numdgt=12
+tran 1u 2.4 {2.4 - PERIODS / f} 1u
+linearize
+wrdata OUT v(v1) i(V1) i(V2) i(VC2)
+.endc
+.end
+"""
+    with tempfile.TemporaryDirectory() as d:
+        out, cir = Path(d) / "r.out", Path(d) / "r.cir"
+        cir.write_text(text.replace("OUT", str(out)))
+        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=300, check=False)
+        data = np.loadtxt(out)
+    n = int(round(PERIODS / f / 1e-6))
+    return np.abs(data[-n:, 3]) + np.abs(data[-n:, 5]), data[-n:, 7]
+
+
+@needs_ngspice
+def test_crc_filter_capacitor_current_against_ngspice():
+    # 250 V, 120 Ω, 47 µF, then 1 kΩ and 47 µF with 25 mA drawn from the second capacitor: the second capacitor's
+    # ripple current (which returns through the ground system) harmonic by harmonic to 2 kHz within 3 %, and the
+    # charging current's rms
+    r = Rectifier("r", "a", "b", "full-wave", 250, 120, 0.0, 47e-6, load_current=0.025, diode_law="shockley",
+                  filter_resistance=1000.0, filter_capacitance=47e-6, filter_point="x")
+    ours = simulate(r, 50)
+    i, i_c2 = _ngspice_crc(250, 120, 47e-6, 1000.0, 47e-6, 0.025, 50)
+    assert ours.rms_current == pytest.approx(math.sqrt(np.mean(i * i)), rel=0.03)
+    theirs = np.abs(np.fft.rfft(i_c2)[::PERIODS][:41]) * math.sqrt(2) / len(i_c2)
+    mine = np.abs(harmonic_phasors(ours.filter_current, 40))
+    for k in range(2, 41, 2):
+        if theirs[k] > 0.02 * theirs[2]:
+            assert mine[k] == pytest.approx(theirs[k], rel=0.03), (k * 50, mine[k], theirs[k])
+
+
+def test_a_crc_supply_is_a_source_in_the_hum_budget():
+    # the second capacitor's negative lands on the stage's cathode pad, its ripple current returns over the
+    # cathode wire to the reservoir: the budget names it
+    text = """plan "CRC supply, filter return on the cathode wire (trial)"
+listening output 1 V
+metal deck: aluminium 2 mm, 200 x 120 mm
+point star: star, at 100,60 on deck
+point k: pad, at 150,60 on deck
+point in_gnd: sleeve, at 190,60 on deck
+point res_neg: cap, at 40,60 on deck
+point ct: centre-tap, at 20,60 on deck
+wire ct_lead: ct to res_neg, 20 mm, 0.5 mm2, return
+wire sup_gnd: res_neg to star, 60 mm, 0.5 mm2, return
+wire k_gnd: k to star, 50 mm, 0.3 mm2, signal
+wire in_lead: in_gnd to k, 40 mm, 0.3 mm2, signal
+stage v1: in_gnd to star, gain 30 dB, channel main
+rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 120 ohm, diode shockley, reservoir 47 uF,
+    filter 1 kohm 47 uF to k, load 25 mA
+"""
+    from groundcheck.analysis import analyze
+    result = analyze(load_text(text, "crc.gplan"))
+    assert "k_gnd" in {c["element"] for c in result.hum.channels["main"].contributors}
+    rows = [row for row in result.coupling if row.source == "hv.filter"]
+    assert rows and "k_gnd" in rows[0].shared
+    assert any(f.code == "GC102" and "hv.filter" in f.message for f in result.findings)

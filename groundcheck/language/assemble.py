@@ -110,6 +110,8 @@ def _check_sources(groups, nodes, check) -> None:
         for r, refs, *_ in groups[group]:
             check(r.a, refs.get("a", r.location), "point", nodes)
             check(r.b, refs.get("b", r.location), "point", nodes)
+    for r, refs, *_ in groups[Rectifier]:
+        check(r.filter_point, refs.get("filter_point", r.location), "point", nodes)
     for h, refs, *_ in groups[Heater]:
         for f in ("a", "b", "reference"):
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)

@@ -330,7 +330,11 @@ class _Loader:
             return replace(record, name=prefix + record.name if record.name else "", a=res(record.a), b=res(record.b),
                            route=tuple(tf(p) for p in record.route),
                            channel=record.channel if explicit_channel else channel)
-        if isinstance(record, (Rectifier, Current)):
+        if isinstance(record, Rectifier):
+            ch = record.channel if explicit_channel else channel
+            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch,
+                           filter_point=res(record.filter_point))
+        if isinstance(record, Current):
             ch = record.channel if explicit_channel else channel
             return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch)
         if isinstance(record, Stage):

@@ -112,6 +112,8 @@ def rectifier(stmt: Statement):
             word = r.word()
             field, kind = spec[word]
             kw[field] = r.quantity(kind, word, allow_zero=word == "diode")
+        elif first.kind == "word" and first.value == "filter":
+            _filter(r, kw, refs)
         elif first.kind == "word" and first.value == "leakage":
             r.word()
             kw["leakage"] = r.quantity("inductance", "leakage inductance", allow_zero=True)
@@ -126,11 +128,33 @@ def rectifier(stmt: Statement):
             r.word()
             kw["channel"] = r.word("a channel name")
         else:
-            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel", "leakage") + tuple(spec))
+            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel", "leakage", "filter")
+                          + tuple(spec))
         r.finish()
     if "load_current" not in kw and "load_resistance" not in kw:
         raise PlanError("rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'")
     return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+def _filter(r: Reader, kw: dict, refs: Refs) -> None:
+    """'filter 1 kohm 47 uF to FILT_NEG' (CRC) or 'filter 5 H 80 ohm 47 uF to FILT_NEG' (CLC): a filter section
+    after the reservoir, its capacitor's negative landing on a point of the ground system."""
+    r.word()
+    while r.peek() is not None and r.peek().kind == "qty" and r.peek().qkind in ("resistance", "inductance"):
+        it = r.next("a resistance or inductance")
+        field = "filter_resistance" if it.qkind == "resistance" else "filter_inductance"
+        kw[field] = check_quantity(it, it.qkind, "filter " + it.qkind, allow_zero=True)
+    kw["filter_capacitance"] = r.quantity("capacitance", "filter capacitor")
+    r.expect("to")
+    it = r.next("the point the filter capacitor's negative lands on")
+    if it.kind != "word":
+        raise PlanError("filter ... to POINT: name the point the filter capacitor's negative lands on", it.loc,
+                        "e.g. 'filter 1 kohm 47 uF to filt_neg'")
+    kw["filter_point"] = it.value
+    refs["filter_point"] = it.loc
+    if kw.get("filter_resistance", 0.0) == 0.0 and kw.get("filter_inductance", 0.0) == 0.0:
+        raise PlanError("a filter section needs its series resistance or choke", it.loc,
+                        "e.g. 'filter 1 kohm 47 uF to filt_neg' or 'filter 5 H 80 ohm 47 uF to filt_neg'")
 
 
 def current(stmt: Statement):

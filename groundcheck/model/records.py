@@ -195,6 +195,10 @@ class Rectifier:
     location: Location = field(default=Location("<plan>"), compare=False)
     diode_law: str = "constant"          # constant (diode_drop per diode) or shockley (exponential, with Rs)
     leakage: float = 0.0                 # transformer leakage inductance per conducting (half-)winding, H
+    filter_resistance: float = 0.0       # a filter section after the reservoir: series resistance, Ω
+    filter_inductance: float = 0.0       # ... series inductance (a choke), H
+    filter_capacitance: float | None = None   # ... its capacitor, F (None: no filter section)
+    filter_point: str | None = None      # ... the point its capacitor's negative lands on
 
 
 @dataclass(frozen=True)

@@ -63,6 +63,11 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[So
         ph = harmonic_phasors(res.current, nmax)
         parts = {k * f0: ph[k] for k in range(0, nmax + 1) if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)}
         out.append(Source(r.name, "rectifier", r.a, r.b, parts, r.channel, r.location))
+        if res.filter_current is not None and r.filter_point is not None:
+            # the filter capacitor's ripple current leaves its negative and returns to the reservoir's
+            ph = harmonic_phasors(res.filter_current, nmax)
+            parts = {k * f0: ph[k] for k in range(1, nmax + 1) if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)}
+            out.append(Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, parts, r.channel, r.location))
     for c in plan.currents:
         parts: dict = {}
         for amp, f in c.parts:
@@ -238,6 +243,8 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     """
     # a unit current between each source's ends shows the sharing: rectifiers need no simulation here
     sources = [Source(r.name, "rectifier", r.a, r.b, {0.0: 1.0}, r.channel, r.location) for r in plan.rectifiers]
+    sources += [Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, {0.0: 1.0}, r.channel, r.location)
+                for r in plan.rectifiers if r.filter_point is not None]
     sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel,
                        c.location) for c in plan.currents if c.role != "signal"]
     sources += [Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location) for h in plan.heaters if h.a and h.b]

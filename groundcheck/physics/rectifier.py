@@ -35,16 +35,10 @@ from ..model.records import Rectifier
 
 __all__ = ["RectifierResult", "simulate", "harmonic_phasors", "STEPS_PER_PERIOD"]
 
+
 #: integration steps per mains period
 STEPS_PER_PERIOD = 4096
 
-#: the Shockley diode of ``diode shockley``: saturation current (A), emission coefficient and series resistance (Ω)
-#: of a common 1 A silicon rectifier's SPICE model (1N4007 class, from memory), at 27 °C (SPICE's default
-#: temperature, thermal voltage kT/q = 25.865 mV)
-SHOCKLEY_IS = 7.03e-9
-SHOCKLEY_N = 1.81
-SHOCKLEY_RS = 0.034
-THERMAL_VOLTAGE = 1.380649e-23 * 300.15 / 1.602176634e-19
 
 
 @dataclass(frozen=True)
@@ -62,11 +56,18 @@ class RectifierResult:
     rms_current: float
     dc_current: float
     conduction_angle: float          # degrees per charging pulse
+    filter_current: np.ndarray | None = None     # a filter section's capacitor current, out of its negative, A
+    output_dc: float | None = None               # the filter section's output, V
+    output_ripple_pp: float | None = None
 
     def as_dict(self) -> dict:
-        return {"name": self.name, "dc_voltage_v": round(self.dc_voltage, 4), "ripple_pp_v": round(self.ripple_pp, 5),
-                "peak_current_a": round(self.peak_current, 5), "rms_current_a": round(self.rms_current, 5),
-                "dc_current_a": round(self.dc_current, 6), "conduction_angle_deg": round(self.conduction_angle, 2)}
+        out = {"name": self.name, "dc_voltage_v": round(self.dc_voltage, 4), "ripple_pp_v": round(self.ripple_pp, 5),
+               "peak_current_a": round(self.peak_current, 5), "rms_current_a": round(self.rms_current, 5),
+               "dc_current_a": round(self.dc_current, 6), "conduction_angle_deg": round(self.conduction_angle, 2)}
+        if self.filter_current is not None:
+            out.update(output_dc_v=round(self.output_dc, 4), output_ripple_pp_v=round(self.output_ripple_pp, 6),
+                       filter_rms_current_a=round(float(np.sqrt(np.mean(self.filter_current ** 2))), 6))
+        return out
 
 
 def _source(r: Rectifier, t: np.ndarray, f: float) -> np.ndarray:
@@ -116,82 +117,6 @@ def _period(s: np.ndarray, v0: float, h: float, R: float, C: float, iload: float
     return v, i, dvdv0
 
 
-class _Exact:
-    """The exact model's constants: total series resistance, the diode law, and the trapezoidal-rule coefficients
-    of the reservoir's equation (v1 = base + beta·i1/(1 + a))."""
-
-    def __init__(self, r: Rectifier, h: float):
-        nd = 2 if r.topology == "bridge" else 1
-        self.shockley = r.diode_law == "shockley"
-        self.rt = max(r.winding, 1e-3) + (nd * SHOCKLEY_RS if self.shockley else 0.0)
-        self.nvt, self.drop = nd * SHOCKLEY_N * THERMAL_VOLTAGE, nd * r.diode_drop
-        self.lh = r.leakage / h
-        g = 1.0 / r.load_resistance if r.load_resistance else 0.0
-        self.a, self.beta, self.b = h * g / (2 * r.capacitance), h / (2 * r.capacitance), \
-            h * (r.load_current or 0.0) / r.capacitance
-
-    def vd(self, x: float) -> float:
-        return self.nvt * math.log1p(x / SHOCKLEY_IS) if self.shockley else self.drop
-
-    def dvd(self, x: float) -> float:
-        return self.nvt / (SHOCKLEY_IS + x) if self.shockley else 0.0
-
-    def residual(self, x: float, i0: float, d0: float, s1: float, base: float) -> tuple[float, float]:
-        """The step's equation in the end current x, and its slope: the inductor's trapezoidal rule, or with no
-        leakage the winding's own equation (its drive across R, diode and reservoir is zero)."""
-        c = self.beta / (1 + self.a)
-        drive = s1 - self.rt * x - self.vd(x) - (base + c * x)
-        slope = self.rt + self.dvd(x) + c
-        if self.lh > 0:
-            return self.lh * (x - i0) - 0.5 * (d0 + drive), self.lh + 0.5 * slope
-        return -drive, slope
-
-    def step(self, i0: float, vk: float, s0: float, s1: float) -> tuple[float, float]:
-        base = (vk * (1 - self.a) + self.beta * i0 - self.b) / (1 + self.a)
-        d0 = (s0 - self.rt * i0 - self.vd(i0) - vk) if i0 > 0 else 0.0     # inductor voltage at the start
-        x = 0.0
-        if self.residual(0.0, i0, d0, s1, base)[0] < 0.0:             # else the diode blocks
-            x = max(i0, 1e-6)
-            for _ in range(60):
-                f, df = self.residual(x, i0, d0, s1, base)
-                x_new = x - f / df
-                x_new = x / 2 if x_new <= 0 else x_new
-                done = abs(x_new - x) <= 1e-12 + 1e-10 * x
-                x = x_new
-                if done:
-                    break
-        return x, base + self.beta * x / (1 + self.a)
-
-
-def _exact_period(s: np.ndarray, v0: float, h: float, r: Rectifier):
-    """One period of the exact model from reservoir voltage v0 and zero current; returns voltages and currents."""
-    model = _Exact(r, h)
-    n = len(s)
-    v = np.empty(n + 1)
-    i = np.zeros(n + 1)
-    v[0] = v0
-    s_ext = np.append(s, s[0])
-    for k in range(n):
-        i[k + 1], v[k + 1] = model.step(i[k], v[k], s_ext[k], s_ext[k + 1])
-    return v, i
-
-
-def _simulate_exact(r: Rectifier, s: np.ndarray, h: float) -> tuple[np.ndarray, np.ndarray]:
-    """Steady state of the exact model by the secant method on the reservoir voltage at the zero crossing."""
-    peak = float(s.max())
-    x0, x1 = 0.9 * peak, 0.95 * peak
-    g0 = _exact_period(s, x0, h, r)[0][-1] - x0
-    v, i = _exact_period(s, x1, h, r)
-    g1 = v[-1] - x1
-    for _ in range(60):
-        if abs(g1) < 1e-9 * max(1.0, peak) or g1 == g0:
-            break
-        x0, x1, g0 = x1, min(max(x1 - g1 * (x1 - x0) / (g1 - g0), 0.0), peak), g1
-        v, i = _exact_period(s, x1, h, r)
-        g1 = v[-1] - x1
-    return v[:-1], i[:-1]
-
-
 def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     """Periodic steady state of the rectifier at mains ``frequency`` (Hz).
 
@@ -207,10 +132,11 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     T = 1.0 / frequency
     h = T / n
     t = np.arange(n) * h
-    if r.diode_law == "shockley" or r.leakage > 0:
+    if r.diode_law == "shockley" or r.leakage > 0 or r.filter_capacitance is not None:
+        from .rectifier_exact import steady_state
         w = math.sqrt(2) * r.secondary * np.sin(2 * math.pi * frequency * t)
-        v, i = _simulate_exact(r, w if r.topology == "half-wave" else np.abs(w), h)
-        return _result(r, frequency, t, v, i)
+        v, i, out, i_filter = steady_state(r, w if r.topology == "half-wave" else np.abs(w), h)
+        return _result(r, frequency, t, v, i, out, i_filter)
     s = _source(r, t, frequency)
     iload = r.load_current or 0.0
     gload = 1.0 / r.load_resistance if r.load_resistance else 0.0
@@ -227,12 +153,15 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     return _result(r, frequency, t, v[:-1], i[:-1])
 
 
-def _result(r: Rectifier, frequency: float, t: np.ndarray, v: np.ndarray, i: np.ndarray) -> RectifierResult:
+def _result(r: Rectifier, frequency: float, t: np.ndarray, v: np.ndarray, i: np.ndarray,
+            out: np.ndarray | None = None, i_filter: np.ndarray | None = None) -> RectifierResult:
     on = i > 1e-9 * max(float(i.max()), 1e-30)
     pulses = 2 if r.topology != "half-wave" else 1
     angle = 360.0 * float(on.sum()) / pulses / len(t)
     return RectifierResult(r.name, frequency, t, i, v, float(v.mean()), float(v.max() - v.min()), float(i.max()),
-                           float(np.sqrt(np.mean(i * i))), float(i.mean()), angle)
+                           float(np.sqrt(np.mean(i * i))), float(i.mean()), angle, i_filter,
+                           None if out is None else float(out.mean()),
+                           None if out is None else float(out.max() - out.min()))
 
 
 def harmonic_phasors(samples: np.ndarray, max_harmonic: int) -> np.ndarray:

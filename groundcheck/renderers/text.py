@@ -159,11 +159,15 @@ def _hum_tables(result: Result, console: Console) -> None:
 def _rectifier_table(result: Result, console: Console) -> None:
     if result.rectifiers:
         t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
-        for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °"):
+        filters = any(r.filter_current is not None for r in result.rectifiers)
+        for col in ("rectifier", "DC V", "ripple Vpp", "peak A", "rms A", "conduction °",
+                    *(("filter out V", "out ripple Vpp") if filters else ())):
             t.add_column(col, justify="right" if col != "rectifier" else "left")
         for r in result.rectifiers:
+            extra = () if not filters else ("–", "–") if r.output_dc is None else (f"{r.output_dc:.1f}",
+                                                                                 f"{r.output_ripple_pp:.3g}")
             t.add_row(escape(r.name), f"{r.dc_voltage:.1f}", f"{r.ripple_pp:.3g}", f"{r.peak_current:.3g}",
-                      f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}")
+                      f"{r.rms_current:.3g}", f"{r.conduction_angle:.1f}", *extra)
         console.print(t)
         console.print()
 
