@@ -120,6 +120,35 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                      merged.crosstalk(), b.freqs, merged.network_rows, b.notes)
 
 
+def _passages(plan, circuit, loops) -> dict:
+    """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter, leave), where the
+    loop's outline takes the straight chord between the two spots (a bolt at each, no route)."""
+    from .plate_paths import MAX_PLATE_CONTACTS
+    metals = {m.name: m for m in plan.metals}
+    pos = {p.name: p.pos for p in plan.points if p.pos is not None}
+    routed = {c.name for c in plan.conductors if c.route}
+    out: dict = {}
+    for li, info in enumerate(loops):
+        lp, n = info.loop, len(info.loop.nodes)
+        for i, node in enumerate(lp.nodes):
+            spot_nodes = circuit.nodes_of_metal(node) if node in metals else ()
+            if (circuit.plate_notes.get(node, {}).get("model") != "plate grid" or info.polygon is None
+                    or len(spot_nodes) > MAX_PLATE_CONTACTS or n < 3 or {lp.edges[i - 1], lp.edges[i]} & routed):
+                continue
+            spots = [circuit.positions[circuit.nodes[k]] for k in spot_nodes]
+            ends = [_spot_at(spots, pos.get(lp.nodes[i - 1])), _spot_at(spots, pos.get(lp.nodes[(i + 1) % n]))]
+            if None not in ends and ends[0] != ends[1]:
+                out.setdefault(li, []).append((metals[node], spots, ends[0], ends[1]))
+    return out
+
+
+def _spot_at(spots: list, p) -> int | None:
+    """The index of the fastening spot at position p (a bolt's point sits on its spot), or None."""
+    if p is None:
+        return None
+    return next((k for k, s in enumerate(spots) if math.dist(s, p) < 1e-6), None)
+
+
 class _Budget:
     """What every frequency's solve needs, set up once: sources, stages, tests, loop fluxes, frequencies."""
 
@@ -163,7 +192,7 @@ class _Budget:
         self.stage_b = np.array([circuit.point_node[stages[k].b] for k in self.valid_idx], dtype=int)
         self.gains_valid = self.gains[self.valid_idx][:, None] if stages else np.zeros((0, 1))
         self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
-        self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops)
+        self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, _passages(plan, circuit, loops))
         self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
 
     def at_frequency(self, f: float) -> _FrequencyPart:

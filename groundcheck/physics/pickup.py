@@ -26,9 +26,10 @@ import math
 import numpy as np
 
 from ..model.records import FieldSource
+from .plate_paths import passage_vector
 
 __all__ = ["segment_integral", "segment_vector", "path_vector", "path_flux", "loop_flux", "flux_density", "emf",
-           "orientation", "min_distance", "ring_path_flux", "loop_fluxes", "AXES"]
+           "orientation", "min_distance", "ring_path_flux", "ring_passage_flux", "loop_fluxes", "AXES"]
 
 #: the axes a source can be given, as unit vectors (x and y in the chassis plane, z normal to it)
 AXES = {"x": (1.0, 0.0, 0.0), "y": (0.0, 1.0, 0.0), "z": (0.0, 0.0, 1.0)}
@@ -230,6 +231,34 @@ def ring_path_flux(src: FieldSource, pts, m) -> float:
     return total
 
 
+def ring_passage_flux(src: FieldSource, metal, spots: list, enter: int, leave: int, m) -> float:
+    """The ring model's flux (Wb) along a loop's passage through a plate, the current spread over the plate (see
+    :func:`groundcheck.physics.plate_paths.passage_vector`, the dipole's).
+
+    Parameters:
+        src: a field source with a size.
+        metal: the metal part.
+        spots: the plate's fastening positions, m.
+        enter, leave: the passage's spots.
+        m: the ring's unit axis.
+    Returns:
+        the flux, Wb rms.
+    References:
+        :func:`ring_path_flux`; :mod:`groundcheck.physics.plate_paths`.
+    """
+    from .plate_paths import plate_flow
+    x0 = min(metal.origin[0], metal.origin[0] + metal.size[0])
+    y0 = min(metal.origin[1], metal.origin[1] + metal.size[1])
+    rel = tuple((float(p[0] - x0), float(p[1] - y0)) for p in spots)
+    mids, vecs, currents = plate_flow(abs(metal.size[0]), abs(metal.size[1]), rel)
+    radius = src.size / 2
+    centre = np.array([src.pos[0], src.pos[1], src.height])
+    pts = np.column_stack([mids[:, 0] + x0, mids[:, 1] + y0, np.zeros(len(mids))]) - centre
+    A = _ring_potential(pts, radius, 4 * src.b_ref * src.r_ref ** 3 / radius ** 2, np.asarray(m, float))
+    flow = currents[:, enter] - currents[:, leave]
+    return float(flow @ (A[:, 0] * vecs[:, 0] + A[:, 1] * vecs[:, 1]))
+
+
 def _segment_distance(p3: np.ndarray, q3: np.ndarray) -> float:
     d = q3 - p3
     L2 = float(d @ d)
@@ -267,12 +296,14 @@ def min_distance(src: FieldSource, polygon) -> float:
     return min((_segment_distance(p, q) for p, q in zip(pts, pts[1:] + pts[:1])), default=math.inf)
 
 
-def loop_fluxes(fields, loops) -> tuple[dict, dict, set]:
+def loop_fluxes(fields, loops, passages: dict | None = None) -> tuple[dict, dict, set]:
     """Each (loop, source)'s flux, each source's moment direction, and the pairs taken with the ring model.
 
     Parameters:
         fields: the plan's field sources.
         loops: the loops (each with its ``polygon``, or None when its conductors have no positions).
+        passages: loop index -> its passages through plates, (metal, spots, enter, leave): their flux is taken
+            along the plate's spread current instead of the straight chord between the two spots.
     Returns:
         (loop index, source name) -> flux, Wb rms; source name -> unit moment vector (its axis, or the worst for
         the plan's loops together); the set of (loop index, source name) computed with the ring model (a loop
@@ -284,10 +315,19 @@ def loop_fluxes(fields, loops) -> tuple[dict, dict, set]:
     for src in fields:
         closed = {li: [*info.polygon, info.polygon[0]] for li, info in enumerate(loops) if info.polygon is not None}
         vectors = {li: path_vector(src, pts) for li, pts in closed.items()}
+        for li, items in (passages or {}).items():
+            if li in vectors:
+                for metal, spots, enter, leave in items:
+                    vectors[li] = (vectors[li] + passage_vector(src, metal, spots, enter, leave)
+                                   - path_vector(src, [spots[enter], spots[leave]]))
         m = orient[src.name] = orientation(src, vectors.values())
         for li, v in vectors.items():
             flux[(li, src.name)] = float(v @ m)
             if src.size is not None and min_distance(src, loops[li].polygon) < src.size:
-                flux[(li, src.name)] = ring_path_flux(src, closed[li], m)
+                phi = ring_path_flux(src, closed[li], m)
+                for metal, spots, enter, leave in (passages or {}).get(li, ()):
+                    phi += (ring_passage_flux(src, metal, spots, enter, leave, m)
+                            - ring_path_flux(src, [spots[enter], spots[leave]], m))
+                flux[(li, src.name)] = phi
                 ring.add((li, src.name))
     return flux, orient, ring

@@ -29,7 +29,7 @@ import scipy.sparse.linalg as spla
 
 from .impedance import FASTENER_RADIUS
 
-__all__ = ["PlateResult", "reduce_plate", "grid_laplacian"]
+__all__ = ["PlateResult", "reduce_plate", "grid_laplacian", "grid_step"]
 
 #: grid nodes per plate at most (keeps one plate's solve well under a second)
 MAX_GRID_NODES = 40_000
@@ -89,6 +89,21 @@ def grid_laplacian(width: float, depth: float, sheet_conductance: float, nx: int
     off = off + off.T
     diag = -np.asarray(off.sum(axis=1)).ravel()
     return (off + sp.diags(diag)).tocsr()
+
+
+def grid_step(width: float, depth: float, radius: float) -> float:
+    """The grid step of a plate: half the fastener radius, coarsened so that the grid holds at most
+    :data:`MAX_GRID_NODES` nodes and no side more than :data:`MAX_GRID_SIDE`.
+
+    Parameters:
+        width, depth: the plate's size, m.
+        radius: a fastener's contact radius, m.
+    Returns:
+        the step, m.
+    References:
+        none (the solver's budget; the error is estimated against a grid twice as coarse).
+    """
+    return max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES), max(width, depth) / MAX_GRID_SIDE)
 
 
 def _reduce(width, depth, sheet_g, contacts, radius, step):
@@ -161,8 +176,7 @@ def _reduced(width: float, depth: float, thickness: float, rho: float, contacts:
     candidate, and most candidates leave every plate as it was (the matrix is returned read-only)."""
     sheet_g = thickness / rho
     if step is None:
-        # at most MAX_GRID_NODES nodes, and no side longer than MAX_GRID_SIDE nodes (a long thin strip)
-        step = max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES), max(width, depth) / MAX_GRID_SIDE)
+        step = grid_step(width, depth, radius)
     red, used = _reduce(width, depth, sheet_g, contacts, radius, step)
     err = 0.0
     if estimate_error and len(contacts) >= 2:
