@@ -319,6 +319,11 @@ def main(argv: list[str] | None = None) -> int:
         return COMMANDS[args.command](args)
     except PlanErrors as e:
         sys.stderr.write(e.render() + "\n")
+        if args.command == "check" and getattr(args, "format", None) == "sarif":
+            import json
+            from ..renderers.sarif import sarif_errors
+            write_output(json.dumps(sarif_errors(e.errors), indent=2, ensure_ascii=False) + "\n", args.output,
+                         [p for p in args.plans if p != "-"])
         return 2
     except _Rendered as e:
         sys.stderr.write(str(e) + "\n")

@@ -16,7 +16,10 @@ from ..rules.catalogue import RULES
 from ..core.caution import CAUTION
 from ..core.plain import clean
 
-__all__ = ["sarif_document", "render_sarif", "SARIF_SCHEMA"]
+__all__ = ["sarif_document", "render_sarif", "sarif_errors", "SARIF_SCHEMA", "PLAN_ERROR_RULE"]
+
+#: the rule id of a plan that cannot be read (a syntax or model error): not a check of the catalogue
+PLAN_ERROR_RULE = "plan-error"
 
 SARIF_SCHEMA = "https://json.schemastore.org/sarif-2.1.0.json"
 LEVEL = {"danger": "error", "fault": "error", "warning": "warning", "note": "note"}
@@ -30,20 +33,41 @@ def _uri(path: str) -> str:
     return quote(Path(path).as_posix(), safe="/")
 
 
-def sarif_document(results: list[Result]) -> dict:
-    codes = list(RULES)
-    rules = [{"id": r.code, "name": r.name,
+def _rules() -> list[dict]:
+    return [{"id": r.code, "name": r.name,
               "shortDescription": {"text": r.checks.split(".")[0] + "."},
               "fullDescription": {"text": r.checks},
               "help": {"text": f"{r.why} Fix: {r.fix} References: {r.references}."},
               "defaultConfiguration": {"level": LEVEL[r.severity]},
               "properties": {"severity": r.severity}} for r in RULES.values()]
+
+
+def _location(loc) -> dict:
+    return {"physicalLocation": {"artifactLocation": {"uri": _uri(loc.file)},
+                                 "region": {"startLine": max(1, loc.line), "startColumn": max(1, loc.column)}}}
+
+
+def sarif_errors(errors) -> dict:
+    """A SARIF log for a plan that could not be read: one error result per plan error, at its location, and an
+    invocation that did not succeed (SARIF 2.1.0 §3.20)."""
+    results = [{"ruleId": PLAN_ERROR_RULE, "level": "error",
+                "message": {"text": e.message + (f" ({e.hint})" if e.hint else "")},
+                "locations": [_location(e.location)]} for e in errors]
+    return clean({"$schema": SARIF_SCHEMA, "version": "2.1.0",
+                  "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
+                                                "semanticVersion": __version__, "rules": _rules()}},
+                            "columnKind": "unicodeCodePoints",
+                            "invocations": [{"executionSuccessful": False}],
+                            "properties": {"caution": CAUTION}, "results": results}]})
+
+
+def sarif_document(results: list[Result]) -> dict:
+    codes = list(RULES)
+    rules = _rules()
     out = []
     for res in results:
         for f in res.findings:
-            loc = {"physicalLocation": {"artifactLocation": {"uri": _uri(f.location.file)},
-                                        "region": {"startLine": max(1, f.location.line),
-                                                   "startColumn": max(1, f.location.column)}}}
+            loc = _location(f.location)
             out.append({"ruleId": f.code, "ruleIndex": codes.index(f.code), "level": LEVEL[f.severity],
                         "message": {"text": f"{f.message}. Fix: {f.fix}" if f.fix else f.message},
                         "locations": [loc],
