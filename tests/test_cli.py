@@ -225,3 +225,15 @@ def test_select_ignore_and_the_settings_file(cli, tmp_path, monkeypatch):
     (tmp_path / "groundcheck.toml").write_text('colour = "red"\n')
     code, _, err = cli("check", MONO)
     assert code == 2 and "unknown setting 'colour'" in err
+
+
+def test_draw_writes_to_standard_output(capfd):
+    from groundcheck.cli import main
+    from helpers import EXAMPLES
+    assert main(["draw", str(EXAMPLES[0]), "-o", "-", "--as", "dot"]) == 0
+    out, err = capfd.readouterr()
+    assert out.startswith("graph physical") and "standard output" in err
+    if __import__("shutil").which("dot"):
+        assert main(["draw", str(EXAMPLES[0]), "-o", "-"]) == 0
+        out, _ = capfd.readouterr()
+        assert "<svg" in out

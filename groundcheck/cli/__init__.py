@@ -75,7 +75,10 @@ def _draw_command(sub) -> None:
                        "  groundcheck draw examples/monoblock-power-amp.gplan -o monoblock.svg",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     d.add_argument("plan", metavar="PLAN")
-    d.add_argument("-o", "--output", metavar="FILE", required=True, help="FILE.svg, FILE.png or FILE.dot")
+    d.add_argument("-o", "--output", metavar="FILE", required=True,
+                   help="FILE.svg, FILE.png or FILE.dot; '-' writes to standard output (SVG, or --as dot or png)")
+    d.add_argument("--as", dest="as_format", choices=("svg", "png", "dot"), default=None,
+                   help="the drawing format, when the output's name does not tell it (default svg for '-')")
     d.add_argument("--view", choices=("physical", "topology"), default="physical",
                    help="physical (needs positions; default) or topology (laid out automatically)")
     d.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
@@ -264,10 +267,12 @@ def cmd_draw(args) -> int:
     from ..analysis import Options, analyze
     from ..renderers.drawing import render_dot
     from ..renderers.dot import physical_dot, physical_omissions, topology_dot
+    to_stdout = args.output == "-"
     out = Path(args.output)
-    fmt = out.suffix.lower().lstrip(".")
+    fmt = args.as_format or ("svg" if to_stdout else out.suffix.lower().lstrip("."))
     if fmt not in ("svg", "png", "dot", "gv"):
-        raise UsageError(f"cannot tell the drawing format from {args.output!r} (end it in .svg, .png or .dot)")
+        raise UsageError(f"cannot tell the drawing format from {args.output!r} (end it in .svg, .png or .dot, "
+                         "or give --as svg|png|dot)")
     fmt = "dot" if fmt == "gv" else fmt
     plan = load_plan(args.plan)
     result = analyze(plan, Options(hum=False))
@@ -275,9 +280,15 @@ def cmd_draw(args) -> int:
     view = args.view if (args.view == "topology" or has_pos) else "topology"
     source = physical_dot(result) if view == "physical" else topology_dot(result)
     data, how = render_dot(source, fmt, "neato" if view == "physical" else "dot", args.renderer)
-    write_atomic(out, data, protect=[Path(args.plan)])
+    if to_stdout:
+        stream = sys.stdout.buffer
+        stream.write(data if isinstance(data, bytes) else data.encode("utf-8"))
+        stream.flush()
+    else:
+        write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
-    sys.stderr.write(f"groundcheck: wrote the {view} view to {out} with {how}{note}\n")
+    sys.stderr.write(f"groundcheck: wrote the {view} view to {'standard output' if to_stdout else out} with "
+                     f"{how}{note}\n")
     missing = physical_omissions(result) if view == "physical" else (0, 0)
     if any(missing):
         sys.stderr.write(f"groundcheck: note: the physical view leaves out {missing[0]} points and {missing[1]} "
