@@ -156,3 +156,26 @@ def test_text_to_a_file_or_pipe_is_not_wrapped(cli):
     # each finding is one line, its figures and fix indented on their own lines, nothing ends in blanks
     assert all(not ln.endswith(" ") for ln in lines)
     assert "_mohm" not in out and " = " not in out.split("Caution")[1].split("Hum and buzz")[0]
+
+
+@pytest.mark.skipif(shutil.which("neato") is None, reason="needs Graphviz")
+@pytest.mark.parametrize("path", [*EXAMPLES, EXAMPLES[0].parent / "studio" / "project-studio.gplan"],
+                         ids=lambda p: p.stem)
+def test_drawing_labels_do_not_overlap(cli, path, tmp_path):
+    # every text of the SVG as a box (Helvetica at about half the font size per character, 0.8 size above the
+    # baseline and 0.2 below); no two boxes may meet
+    import itertools
+    import xml.etree.ElementTree as ET
+    out = tmp_path / "d.svg"
+    code, _, _ = cli("draw", str(path), "-o", str(out))
+    assert code == 0
+    boxes = []
+    for t in ET.parse(out).getroot().iter("{http://www.w3.org/2000/svg}text"):
+        size, text = float(t.get("font-size", "8")), "".join(t.itertext())
+        w, x = 0.5 * size * len(text), float(t.get("x"))
+        x0 = {"middle": x - w / 2, "end": x - w}.get(t.get("text-anchor", "start"), x)
+        y = float(t.get("y"))
+        boxes.append((x0, y - 0.8 * size, x0 + w, y + 0.2 * size, text))
+    hits = [(a[4], b[4]) for a, b in itertools.combinations(boxes, 2)
+            if a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]]
+    assert hits == []

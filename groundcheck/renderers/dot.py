@@ -88,7 +88,7 @@ def physical_dot(result: Result) -> str:
 
     lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
                                  "fontname=Helvetica, "
-             'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72];',
+             'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72, forcelabels=true];',
              '  node [fontname=Helvetica, fontsize=8];', '  edge [fontname=Helvetica, fontsize=8];']
     _metals(plan, marks, scale, P, lines)
     _points(plan, marks, positioned, P, lines)
@@ -108,9 +108,17 @@ def physical_dot(result: Result) -> str:
 
 
 def _metals(plan, marks, scale, P, lines) -> None:
+    # parts stacked on one outline (a cover over its deck) share one label, so that neither hides the other
+    shared: dict = {}
+    for m in plan.metals:
+        if m.size is not None:
+            key = (round(m.origin[0] + m.size[0] / 2, 6), round(min(m.origin[1], m.origin[1] + m.size[1]), 6))
+            shared.setdefault(key, []).append(m)
     for m in plan.metals:
         if m.size is None:
             continue
+        key = (round(m.origin[0] + m.size[0] / 2, 6), round(min(m.origin[1], m.origin[1] + m.size[1]), 6))
+        group = shared[key]
         w, h = abs(m.size[0]) * scale / 72, abs(m.size[1]) * scale / 72
         cx = m.origin[0] + m.size[0] / 2
         cy = m.origin[1] + m.size[1] / 2
@@ -118,7 +126,8 @@ def _metals(plan, marks, scale, P, lines) -> None:
         style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8" if m.touchable else "#ebebeb",
                  "color": "#e03030" if m.name in marks else "#9a9a9a", "width": f"{w:.3f}", "height": f"{h:.3f}",
                  "fixedsize": "true",
-                 "label": m.name + (" [" + ", ".join(marks[m.name]) + "]" if m.name in marks else ""),
+                 "label": " + ".join(x.name + (" [" + ", ".join(marks[x.name]) + "]" if x.name in marks else "")
+                                     for x in group) if m is group[0] else "",
                  "labelloc": "b", "fontcolor": "#666666", "pos": f"{px:.1f},{py:.1f}!"}
         lines.append(f"  {dot_quote('metal:' + m.name)} [{_attrs(style)}];")
 
@@ -177,7 +186,8 @@ def _conductors(result, marks, positioned, P, lines) -> None:
             seg = dict(style)
             if k == (len(chain) - 2) // 2:
                 label = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
-                seg.update(label=label, fontcolor="#b00000" if c.name in marks else "#333333")
+                # an external label, which Graphviz places clear of the others (forcelabels)
+                seg.update(xlabel=label, fontcolor="#b00000" if c.name in marks else "#333333")
             lines.append(f"  {dot_quote(u)} -- {dot_quote(v)} [{_attrs(seg)}];")
 
 
@@ -185,15 +195,19 @@ def _metal_loops(result, positioned, lines) -> None:
     plan = result.plan
     # loops through a metal part: the straight line between the fastenings it enters and leaves by
     metals = {m.name for m in plan.metals}
+    passages: dict = {}                  # one dashed line per passage, naming every loop that takes it
     for i, lp in enumerate(result.loops, 1):
         n = len(lp.loop.nodes)
         for j, node in enumerate(lp.loop.nodes):
             if node in metals:
                 before, after = lp.loop.nodes[j - 1], lp.loop.nodes[(j + 1) % n]
                 if before in positioned and after in positioned:
-                    lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} "
-                                 f"[color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
-                                 f"label={dot_quote(f'loop {i} through {node}')}, fontcolor=\"#a06000\"];")
+                    passages.setdefault((frozenset((before, after)), node), (before, after, []))[2].append(i)
+    for (_, node), (before, after, numbers) in passages.items():
+        words = f"loop {numbers[0]}" if len(numbers) == 1 else "loops " + ", ".join(map(str, numbers))
+        lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} "
+                     f"[color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
+                     f"label={dot_quote(f'{words} through {node}')}, fontcolor=\"#a06000\"];")
 
 
 def _fields(plan, P, lines) -> None:
