@@ -91,8 +91,12 @@ def test_export_spice(cli, tmp_path):
     assert code == 0
     text = out_file.read_text()
     assert text.startswith("* groundcheck ground network") and text.rstrip().endswith(".end") and ".op" in text
-    code, out, _ = cli("export", DUAL, "--spice", "--frequency", "1kHz")
+    code, out, _ = cli("export", DUAL, "--format", "spice", "--frequency", "1kHz")
     assert ".ac lin 1 1000 1000" in out
+    # elements named after the plan's conductors; a name taken twice gets a suffix, never a clash
+    names = [line.split()[0] for line in out.splitlines() if line and line[0] in "RLCI"]
+    assert "R_left_sup_gnd" in names and "L_left_sup_gnd" in names and "R_plate_deck_1_2" in names
+    assert len({n.lower() for n in names}) == len(names)
 
 
 def test_refuses_to_overwrite_input(cli, tmp_path):

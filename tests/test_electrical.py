@@ -240,7 +240,7 @@ def test_exported_netlist_reproduces_the_rectifier_hum_in_ngspice(cli, tmp_path)
     voltages for the same currents to 1e-6 of the largest."""
     path = next(e for e in EXAMPLES if e.name.startswith("dual-mono"))
     out = tmp_path / "g.cir"
-    assert cli("export", str(path), "--spice", "--frequency", "100 Hz", "-o", str(out))[0] == 0
+    assert cli("export", str(path), "--format", "spice", "--frequency", "100 Hz", "-o", str(out))[0] == 0
     net = out.read_text()
     assert net.count("\nI") == 2 and ".print ac" in net
     from groundcheck.physics.coupling import plan_sources, source_injections

@@ -136,12 +136,14 @@ def _compare_command(sub) -> None:
 
 def _export_command(sub) -> None:
     x = sub.add_parser("export", help="write the ground network in another format",
-                       description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --spice -o "
-                                   "ground.cir",
+                       description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --format spice "
+                                   "-o ground.cir",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     x.add_argument("plan", metavar="PLAN")
-    x.add_argument("--spice", action="store_true", required=True, help="a plain SPICE netlist (R, L, C, current "
-                                                                       "sources)")
+    x.add_argument("--format", choices=("spice",), default="spice",
+                   help="spice: a plain SPICE netlist, elements named after the plan's conductors (R, L, C and the "
+                   "plan's current sources; the default)")
+    x.add_argument("--spice", action="store_true", help="the same as --format spice")
     x.add_argument("--frequency", type=quantity_type("frequency", "Hz"), metavar="HZ",
                    help="AC analysis at this frequency (default: DC operating point)")
     x.add_argument("-o", "--output", metavar="FILE", help="write the netlist to FILE instead of standard output")

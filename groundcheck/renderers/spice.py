@@ -1,7 +1,9 @@
 """Export of the ground network as a plain SPICE netlist (resistors, inductors, capacitors, current sources).
 
 Node names are ``n<index>`` in the circuit's node order, with a comment
-mapping each to the plan's name; the reference node of the part holding the
+mapping each to the plan's name; each element is named after its conductor
+(``R_left_sup_gnd``, letters other than A–Z, a–z, 0–9 and _ made _), a plate
+branch after its part (``R_plate_deck_1_2``); the reference node of the part holding the
 mains inlet's protective terminal is SPICE ground ``0``.  Every other
 connected part gets a 1 GΩ resistor to ground so the netlist is never
 singular; groundcheck references each island on its own, which that resistor
@@ -11,10 +13,27 @@ reproduces to within its leakage.
 from __future__ import annotations
 
 import math
+import re
 
 from ..physics.circuit import Circuit
 
 __all__ = ["to_spice"]
+
+
+class _Names:
+    """SPICE element names after the plan's names, sanitised and made unique."""
+
+    def __init__(self):
+        self.used: set[str] = set()
+
+    def __call__(self, kind: str, name: str) -> str:
+        base = f"{kind}_{re.sub(r'[^A-Za-z0-9_]', '_', name) or 'x'}"
+        out, n = base, 1
+        while out.lower() in self.used:          # SPICE names are not case-sensitive
+            n += 1
+            out = f"{base}_{n}"
+        self.used.add(out.lower())
+        return out
 
 
 def _safe(text: str) -> str:
@@ -41,30 +60,33 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
     ac = analysis == "ac"
     z = circuit.impedance(frequency if ac else 0.0)
     w = 2 * math.pi * frequency if ac else 0.0
+    el = _Names()
     for k, b in enumerate(circuit.branches):
         a, c = name[b.n1], name[b.n2]
+        label = b.name or f"branch{k}"
         if b.cap is not None and ac:
-            lines.append(f"R{k} {a} {c} {max(b.r, 1e-9):.12g}")
-            lines.append(f"C{k} {a} {c} {b.cap:.12g}")
+            lines.append(f"{el('R', label)} {a} {c} {max(b.r, 1e-9):.12g}")
+            lines.append(f"{el('C', label)} {a} {c} {b.cap:.12g}")
         elif ac and z[k].imag > 0:
             # resistance at this frequency (skin effect included) in series with the self-inductance
-            lines.append(f"R{k} {a} m{k} {z[k].real:.12g}")
-            lines.append(f"L{k} m{k} {c} {z[k].imag / w:.12g}")
+            lines.append(f"{el('R', label)} {a} m{k} {z[k].real:.12g}")
+            lines.append(f"{el('L', label)} m{k} {c} {z[k].imag / w:.12g}")
         else:
-            lines.append(f"R{k} {a} {c} {z[k].real:.12g}")
+            lines.append(f"{el('R', label)} {a} {c} {z[k].real:.12g}")
     for r in sorted(refs - {main_ref}):
-        lines.append(f"RISL{r} {name[r]} 0 1e9")
-    for k, (src, a, b, amps) in enumerate(sources):
+        lines.append(f"{el('R', f'island{r}')} {name[r]} 0 1e9")
+    for src, a, b, amps in sources:
         ia, ib = name[circuit.point_node[a]], name[circuit.point_node[b]]
         # SPICE current source I n+ n-: current flows from n+ through the source to n-;
         # to inject into a (and draw from b) the source runs from b to a.  rms phasor -> SPICE peak and phase
         amps = complex(amps)
-        lines.append(f"* I{k} = {_safe(src)}")
+        element = el("I", src)
+        lines.append(f"* {element} = {_safe(src)}")
         if analysis == "ac":
-            lines.append(f"I{k} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} "
+            lines.append(f"{element} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} "
                          f"{math.degrees(math.atan2(amps.imag, amps.real)):.12g}")
         else:
-            lines.append(f"I{k} {ib} {ia} DC {amps.real:.12g}")
+            lines.append(f"{element} {ib} {ia} DC {amps.real:.12g}")
     printed = " ".join(f"v({name[i]})" for i in range(len(circuit.nodes)) if name[i] != "0")
     if analysis == "ac":
         lines.append(f".ac lin 1 {frequency:.12g} {frequency:.12g}")
