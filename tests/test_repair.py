@@ -306,3 +306,34 @@ def test_every_fix_line_is_rechecked_by_the_advisor(path):
         for action in f.actions:
             tried = [e for e in evs if action[1] in e.candidate.title and not e.rejected]
             assert any(_label(f) in e.cleared for e in tried), (f.code, action, [e.candidate.title for e in tried])
+
+
+def test_filter_capacitor_return_is_joined_to_the_reservoir(tmp_path):
+    # a CRC supply whose second capacitor's negative lands on the cathode pad: the trade's fix is a wire of its
+    # own from the filter capacitor's negative to the reservoir's (common practice), and it clears GC102
+    text = """plan "CRC head (trial)"
+listening output 5 V, speaker 100 dB, distance 1 m, impedance 16 ohm
+metal chassis: steel 1.2 mm, 400 x 200 mm, touchable
+point ct: centre-tap, at 80,120 on chassis
+point res_neg: cap, at 140,120 on chassis
+point filt_neg: cap, at 200,120 on chassis
+point star: star, at 250,100 on chassis
+point in_sleeve: sleeve, at 380,40 on chassis
+point v1_k: pad, at 330,60 on chassis
+wire ct_lead: ct to res_neg, 70 mm, 0.5 mm2, return
+wire res_star: res_neg to star, 120 mm, 0.75 mm2, return
+wire filt_lead: filt_neg to v1_k, 140 mm, 0.5 mm2, return
+wire k_gnd: v1_k to star, 90 mm, 0.5 mm2, signal
+wire in_gnd: in_sleeve to star, 150 mm, 0.5 mm2, signal
+bolt star_bond: star to chassis
+rectifier hv: res_neg to ct, full-wave, secondary 280 V, winding 90 ohm, reservoir 32 uF,
+    filter 2.2 kohm 22 uF to filt_neg, load 30 mA
+stage v1: in_sleeve to v1_k, gain 34 dB, channel guitar
+"""
+    path = tmp_path / "crc.gplan"
+    path.write_text(text)
+    before, evs = _suggest(path)
+    assert any(f.code == "GC102" and "hv.filter" in f.message for f in before.findings)
+    best = evs[0]
+    assert "join filt_neg straight to res_neg (filt_lead)" in best.candidate.title
+    assert "GC102" not in _codes_after(best)

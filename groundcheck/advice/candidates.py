@@ -11,6 +11,7 @@ candidate that would touch a conductor the protective earth relies on is marked 
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 from ..model.kinds import is_fastening
 from ..model.records import Plan
@@ -219,18 +220,31 @@ def _join_rectifier(ctx: ChangeContext, rect, shared: tuple[str, ...], add) -> N
             if other in (d.a, d.b) and d.kind not in ("interconnect", "shield") and not ctx.protective(d):
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
-                             f"{rect.name} charging current stays between them and leaves {', '.join(shared)}",
+                             f"{rect.name} current stays between them and leaves {', '.join(shared)}",
                              "GC102"))
+
+
+@dataclass(frozen=True)
+class _FilterReturn:
+    """A filter capacitor's ripple-current return, from its negative (a) to the reservoir's negative (b)."""
+
+    name: str
+    a: str
+    b: str
 
 
 def _shared_return_candidates(ctx: ChangeContext, add) -> None:
     """Shared returns: join the rectifier's ends directly, and re-route the stage's reference to the star."""
     plan = ctx.plan
     for row in ctx.result.coupling:
-        rect = next((r for r in plan.rectifiers if r.name == row.source), None)
+        # a rectifier's charging current, or its filter capacitor's ripple current (from the filter capacitor's
+        # negative back to the reservoir's): both are cured by joining their two ends directly
+        rect = next((r for r in plan.rectifiers if r.name == row.source), None) or next(
+            (_FilterReturn(row.source, r.filter_point, r.a) for r in plan.rectifiers
+             if r.filter_point is not None and f"{r.name}.filter" == row.source), None)
         if rect is not None:
             _join_rectifier(ctx, rect, row.shared, add)
-        src = next((r for r in (*plan.rectifiers, *plan.currents) if r.name == row.source), None)
+        src = rect or next((r for r in plan.currents if r.name == row.source), None)
         stage = next((s for s in plan.stages if s.name == row.stage), None)
         if src is None or stage is None:
             continue
