@@ -104,7 +104,7 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
     for kind in (Rectifier, Current, Heater):
         for x in getattr(sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]):
-            groups[kind].append((x, {}))
+            groups[kind].append((replace(x, route=tuple(tf(q) for q in x.route)) if kind is Heater else x, {}))
     for x in sub.stages:
         groups[Stage].append((x, {}))
     for x in sub.fields:

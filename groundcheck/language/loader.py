@@ -342,7 +342,7 @@ class _Loader:
                            channel=record.channel if explicit_channel else channel)
         if isinstance(record, Heater):
             return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
-                           reference=res(record.reference))
+                           reference=res(record.reference), route=tuple(tf(p) for p in record.route))
         if isinstance(record, FieldSource):
             return replace(record, name=prefix + record.name, pos=tf(record.pos))
         return record

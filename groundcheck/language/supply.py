@@ -206,8 +206,24 @@ def heater(stmt: Statement):
         elif first.kind == "word" and first.value == "floating":
             r.word()
             kw["reference"] = None
+        elif first.kind == "word" and first.value == "wiring":
+            r.word()
+            pts = [r.coord()]
+            while not r.done:
+                pts.append(r.coord())
+            if len(pts) < 2:
+                raise PlanError("heater wiring needs at least two points", first.loc, "e.g. 'wiring 40,150 200,150'")
+            kw["route"] = tuple(pts)
+        elif first.kind == "word" and first.value in ("spacing", "height"):
+            r.word()
+            kw["spacing" if first.value == "spacing" else "wiring_height"] = r.quantity(
+                "length", f"heater wiring {first.value}", allow_zero=first.value == "height")
+        elif first.kind == "word" and first.value == "twisted":
+            r.word()
+            kw["twisted"] = True
         else:
-            raise unknown(stmt, first, ("ac", "dc", "reference", "floating", "A to B", "2.4 A"))
+            raise unknown(stmt, first, ("ac", "dc", "reference", "floating", "wiring", "spacing", "height", "twisted",
+                                        "A to B", "2.4 A"))
         r.finish()
     if "current" not in kw:
         raise PlanError("heater needs its current", stmt.loc, "e.g. ', 2.4 A'")

@@ -230,6 +230,10 @@ class Heater:
     a: str | None = None                 # when its return flows in the ground system: from a ...
     b: str | None = None                 # ... to b
     location: Location = field(default=Location("<plan>"), compare=False)
+    route: tuple[XY, ...] = ()           # the heater pair's centre line on the deck (AC: a field source)
+    spacing: float | None = None         # the distance between the pair's two wires, m
+    wiring_height: float | None = None   # the pair's height above the deck, m
+    twisted: bool = False                # a twisted pair: no field source
 
 
 @dataclass(frozen=True)
@@ -258,6 +262,7 @@ class FieldSource:
     height: float = 0.0
     axis: str = "worst"
     size: float | None = None
+    route: tuple[XY, ...] = ()                      # an AC heater pair taken as a source: its centre line
     location: Location = field(default=Location("<plan>"), compare=False)
 
 

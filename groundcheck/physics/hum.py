@@ -31,6 +31,7 @@ from ..core.units import ratio_of_db
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
+from .heater_field import pair_path_flux
 from .pickup import emf as emf_of, loop_fluxes
 from .sweep import map_frequencies
 
@@ -120,6 +121,20 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                      merged.crosstalk(), b.freqs, merged.network_rows, b.notes)
 
 
+def _heater_wirings(plan) -> list:
+    """The AC heater pairs with a stated route, as field sources of the budget (their pickup computed by
+    :func:`groundcheck.physics.heater_field.pair_path_flux`; ``size`` holds the wires' spacing)."""
+    from ..model.records import FieldSource
+    from .heater_field import DEFAULT_HEIGHT, DEFAULT_SPACING
+    out = []
+    for h in plan.heaters:
+        if h.ac and len(h.route) >= 2 and not h.twisted:
+            out.append(FieldSource(f"{h.name}.wiring", "heater-wiring", h.route[0], 0.0, 1.0, (),
+                                   DEFAULT_HEIGHT if h.wiring_height is None else h.wiring_height, "pair",
+                                   DEFAULT_SPACING if h.spacing is None else h.spacing, route=h.route))
+    return out
+
+
 def _passages(plan, circuit, loops) -> dict:
     """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter, leave), where the
     loop's outline takes the straight chord between the two spots (a bolt at each, no route)."""
@@ -164,7 +179,9 @@ class _Budget:
         self.rated = listening.rated_output if listening else 1.0
         self.owners = branch_owner(circuit)
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
-        self.fields = {x.name: x for x in plan.fields}
+        self.wirings = _heater_wirings(plan)
+        self.sources = [*plan.fields, *self.wirings]           # field sources and AC heater pairs
+        self.fields = {x.name: x for x in self.sources}
         self.notes = []
         if listening is None:
             self.notes.append("no listening context: levels are against a rated output of 1 V and no audibility "
@@ -174,10 +191,10 @@ class _Budget:
         _, labels = circuit.components
         self.valid_stage = [labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages]
         # least-resistance paths of the stages: only loop pickup reads them (one shortest-path search each)
-        self.paths = [pair_path(circuit, s.a, s.b) if ok and loops and plan.fields else []
+        self.paths = [pair_path(circuit, s.a, s.b) if ok and loops and self.sources else []
                       for s, ok in zip(stages, self.valid_stage)]
         freqs = sorted({f for s in self.hum_sources for f in s.parts if f > 0} |
-                       ({n * f0 for src in plan.fields for n in [1] + [h for h,
+                       ({n * f0 for src in self.sources for n in [1] + [h for h,
                                                                        _ in src.harmonics]} if loops else set()))
         self.freqs = freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
         self.xt_freqs = sorted({1000.0, min(freqs) if freqs else 2 * f0,
@@ -193,6 +210,13 @@ class _Budget:
         self.gains_valid = self.gains[self.valid_idx][:, None] if stages else np.zeros((0, 1))
         self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
         self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, _passages(plan, circuit, loops))
+        for src in self.wirings:
+            h = next(x for x in plan.heaters if f"{x.name}.wiring" == src.name)
+            for li, info in enumerate(loops):
+                if info.polygon is not None:
+                    self.flux[(li, src.name)] = pair_path_flux(h.route, src.size, src.height, h.current,
+                                                               [*info.polygon, info.polygon[0]])
+            self.orient[src.name] = np.zeros(3)
         self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
 
     def at_frequency(self, f: float) -> _FrequencyPart:
@@ -251,7 +275,7 @@ class _Budget:
     def _pickup(self, f, fac, part) -> None:
         """Each loop's EMF from each field source, the current it drives and the drop it leaves across each stage."""
         loops, circuit = self.loops, self.circuit
-        E, meta = _emf_columns(circuit, loops, self.plan.fields, self.f0, f, self.branch_index, self.flux)
+        E, meta = _emf_columns(circuit, loops, self.sources, self.f0, f, self.branch_index, self.flux)
         if not meta:
             return
         sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)

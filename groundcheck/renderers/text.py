@@ -174,6 +174,8 @@ def _rectifier_table(result: Result, console: Console) -> None:
 
 def axis_words(axis: list[float], stated: str) -> str:
     """'z', or 'worst: (0.31, -0.52, 0.8)': the moment direction a loop's pickup was computed with."""
+    if stated == "pair":
+        return "heater pair"
     named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(tuple(abs(x) for x in axis))
     shown = named or "(" + ", ".join(f"{x:.2g}" for x in axis) + ")"
     return f"worst: {shown}" if stated == "worst" else shown

@@ -178,7 +178,9 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
     out = []
     for row in s.hum.loops:
         for name, entry in row["sources"].items():
-            src = fields[name]
+            src = fields.get(name)
+            if src is None:                   # an AC heater pair: no size to be inside
+                continue
             limit = src.size if src.size is not None else src.r_ref
             if entry["closest_mm"] * 1e-3 >= limit:
                 continue
