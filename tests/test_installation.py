@@ -176,3 +176,23 @@ def test_balanced_rejection_from_the_source_impedance_imbalance():
     assert gain("imbalance 10 ohm, cmrr 40 dB") == pytest.approx(30 - 40, abs=1e-9)
     assert gain("cmrr 55 dB") == pytest.approx(30 - 55, abs=1e-9)
     assert gain("channel main") == pytest.approx(30 - 50, abs=1e-9)
+
+
+def test_interconnect_input_reads_the_shield_transfer_impedance():
+    # 10 mA at 5 kHz driven along a 10 m shield of 0.5 Ω (the only path between its ends): the receiving input
+    # reads R·I = 5 mV, times its gain of 20 dB = 50 mV, worked by hand; the shield's own inductance (about
+    # 22 µH, 0.7 Ω of reactance at 5 kHz) cancels against the centre conductor's mutual inductance and adds
+    # nothing (a coaxial cable's transfer impedance at low frequency is its shield's resistance)
+    from groundcheck import load_text
+    from groundcheck.analysis import analyze
+    text = """plan "a long shield above its cut-off (trial)"
+listening output 1 V
+point a: terminal
+point b: terminal
+interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, gain 20 dB,
+    channel main
+current leak: a to b, 10 mA 5000 Hz, leakage
+"""
+    r = analyze(load_text(text, "lead.gplan"))
+    row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 5000.0)
+    assert row["volts"] == pytest.approx(0.05, rel=1e-6)

@@ -179,7 +179,7 @@ def assemble(built: list, file: str, ld) -> Plan:
     for c in conductors:
         if c.kind == "interconnect" and c.gain is not None:
             gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)
-            stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location))
+            stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location, across=c.name))
     return Plan(
         title=header.get("title") or Path(file).stem, file=file, mains=mains,
         ambient=header.get("ambient", 20.0), listening=header.get("listening"),

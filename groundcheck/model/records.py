@@ -246,6 +246,7 @@ class Stage:
     gain: float = 0.0                    # dB, from the pair to the output
     channel: str = "main"
     location: Location = field(default=Location("<plan>"), compare=False)
+    across: str | None = None            # an interconnect's input: the shield whose transfer impedance it reads
 
 
 @dataclass(frozen=True)

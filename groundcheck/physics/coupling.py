@@ -98,7 +98,7 @@ def pair_tests(circuit: Circuit, pairs) -> np.ndarray:
     return J
 
 
-def channel_tests(circuit: Circuit, stages, channels: list[str]) -> np.ndarray:
+def channel_tests(circuit: Circuit, stages, channels: list[str], weights=None) -> np.ndarray:
     """One injection column per channel: each of its stages' 1 A pair test, weighted by the stage's gain.
 
     By linearity, its branch currents are the gain-weighted sum of the stages' own test currents (the
@@ -109,6 +109,7 @@ def channel_tests(circuit: Circuit, stages, channels: list[str]) -> np.ndarray:
         circuit: the circuit.
         stages: the plan's stages.
         channels: channel names in column order.
+        weights: each stage's (complex) weight instead of its gain as a ratio.
     Returns:
         a nodes × channels matrix of gain-weighted test injections.
     References:
@@ -116,8 +117,8 @@ def channel_tests(circuit: Circuit, stages, channels: list[str]) -> np.ndarray:
     """
     J = np.zeros((len(circuit.nodes), len(channels)), dtype=complex)
     col = {ch: k for k, ch in enumerate(channels)}
-    for s in stages:
-        g = ratio_of_db(s.gain)
+    for i, s in enumerate(stages):
+        g = ratio_of_db(s.gain) if weights is None else weights[i]
         k = col[s.channel]
         J[circuit.point_node[s.a], k] += g
         J[circuit.point_node[s.b], k] -= g

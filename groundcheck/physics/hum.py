@@ -207,8 +207,8 @@ class _Budget:
         self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
         self.stage_a = np.array([circuit.point_node[stages[k].a] for k in self.valid_idx], dtype=int)
         self.stage_b = np.array([circuit.point_node[stages[k].b] for k in self.valid_idx], dtype=int)
-        self.gains_valid = self.gains[self.valid_idx][:, None] if stages else np.zeros((0, 1))
         self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
+        self.across = [self.branch_index.get(s.across) if s.across else None for s in stages]
         self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, _passages(plan, circuit, loops))
         for src in self.wirings:
             h = next(x for x in plan.heaters if f"{x.name}.wiring" == src.name)
@@ -231,14 +231,30 @@ class _Budget:
             self._crosstalk(fac, part)
         return part
 
+    def gains_at(self, fac) -> np.ndarray:
+        """Each stage's gain as a (complex) ratio at the factorisation's frequency: an interconnect's input reads its
+        shield's drop through the cable's transfer impedance, R_s·I_s, not (R_s + jωL_s)·I_s — the centre
+        conductor's mutual inductance with the shield equals the shield's own (F. M. Tesche, M. V. Ianoz,
+        T. Karlsson, *EMC Analysis Methods and Computational Models*, 1997, §8: a coaxial cable's transfer
+        impedance at low frequency is its shield's DC resistance)."""
+        g = self.gains.astype(complex)
+        for k, b in enumerate(self.across):
+            if b is not None and fac.z[b] != 0:
+                g[k] *= fac.z[b].real / fac.z[b]
+        return g
+
     def _sources(self, f, fac, active, part) -> None:
         """Each stated or simulated current's voltage at each channel's output, with the conductors' shares."""
         circuit, owners = self.circuit, self.owners
-        both = fac.solve(np.hstack([source_injections(circuit, active, f), self.tests]))
+        gains = self.gains_at(fac)
+        tests = self.tests if not any(b is not None for b in self.across) else channel_tests(
+            circuit, [self.stages[k] for k in self.valid_idx], self.channels, gains[self.valid_idx])
+        both = fac.solve(np.hstack([source_injections(circuit, active, f), tests]))
         W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
         TC = both.I[:, len(active):]                                 # branches × channels
         # each stage's own drop (node voltages of the source solves), for the worst case: every stage in phase
-        stage_v = np.abs(both.V[self.stage_a, :len(active)] - both.V[self.stage_b, :len(active)]) * self.gains_valid
+        stage_v = (np.abs(both.V[self.stage_a, :len(active)] - both.V[self.stage_b, :len(active)])
+                   * np.abs(gains[self.valid_idx])[:, None])
         for ci, ch in enumerate(self.channels):
             for si, s in enumerate(active):
                 group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
@@ -280,9 +296,10 @@ class _Budget:
             return
         sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
         drops = np.zeros((len(self.stages), E.shape[1]), dtype=complex)
+        gains = self.gains_at(fac)
         for k in range(len(self.stages)):
             if self.valid_stage[k]:
-                drops[k] = path_drop(fac, sol, self.paths[k]) * self.gains[k]
+                drops[k] = path_drop(fac, sol, self.paths[k]) * gains[k]
         for col, (li, src_name, phi) in enumerate(meta):
             chord_i = self.branch_index[loops[li].loop.edges[loops[li].loop.chord]]
             part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
@@ -292,7 +309,7 @@ class _Budget:
                 part.in_phase.append((ch, f"field:{src_name}", float(sum(mags))))
 
     def _crosstalk(self, fac, part) -> None:
-        circuit = self.circuit
+        circuit, gains = self.circuit, self.gains_at(fac)
         J = np.zeros((len(circuit.nodes), len(self.signal_sources)), dtype=complex)
         for k, s in enumerate(self.signal_sources):
             amp = sum(abs(v) for v in s.parts.values())
@@ -302,4 +319,4 @@ class _Budget:
         for si, s in enumerate(self.signal_sources):
             for k, st in enumerate(self.stages):
                 if self.valid_stage[k] and st.channel != (s.channel or ""):
-                    part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * self.gains[k]))
+                    part.crosstalk.append((s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k]))
