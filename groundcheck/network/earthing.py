@@ -96,6 +96,8 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     roots = [r for r in roots if r in adj]
     blocked = signal_points(plan)
     metals = {m.name for m in plan.metals}
+    # each conductor's cost once: 0 marked protective, 1 any other kind that may carry protective current
+    cost = {c.name: (0 if c.role in PROTECTIVE_ROLES else 1) for c in plan.conductors if can_carry_protective(c)}
     dist: dict[str, int] = {r: 0 for r in roots}
     parent: dict = {r: None for r in roots}
     q = deque(roots)
@@ -109,12 +111,9 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
             continue            # reached, but the route never passes through the signal circuit
         for v, keys in adj[u].items():
             best = None
-            for k in sorted(keys):
-                c = keys[k]["conductor"]
-                if not can_carry_protective(c):
-                    continue
-                w = 0 if c.role in PROTECTIVE_ROLES else 1
-                if best is None or w < best[0]:
+            for k in (keys if len(keys) == 1 else sorted(keys)):
+                w = cost.get(k)
+                if w is not None and (best is None or w < best[0]):
                     best = (w, k)
             if best is None:
                 continue
@@ -139,7 +138,6 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     marked = {c.name for c in plan.conductors if c.role == "protective" and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
     side = done - (blocked - set(roots))
-    keep = {k for u in side for v, keys in adj[u].items() if v in side
-            for k in keys if can_carry_protective(keys[k]["conductor"])}
+    keep = {k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost}
     return ProtectiveRoute(frozenset(route | marked), unmarked, frozenset(route | marked | keep), frozenset(targets),
                            marked_reach, parent, tuple(roots))

@@ -157,6 +157,11 @@ def polygon_area(pts) -> float:
     number accumulated below it (edge directions upward count +1, downward −1)."""
     if len(pts) < 3:
         return 0.0
+    if len(pts) <= SMALL_POLYGON:                       # most loops: plain floats beat array set-up
+        if len(pts) == 3 or not _crosses_itself_small(pts):
+            n = len(pts)
+            return abs(sum(pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1]
+                           for k in range(n))) / 2.0
     a = np.asarray(pts, dtype=float)
     if not _crosses_itself(a):                          # the usual case: the shoelace formula, exact
         x, y = a[:, 0], a[:, 1]
@@ -187,6 +192,18 @@ def polygon_area(pts) -> float:
             w += d
             total += abs(w) * (x1 - x0) * ((b0 - a0) + (b1 - a1)) / 2
     return float(total)
+
+
+#: polygons with at most this many corners are checked for crossings with plain floats
+SMALL_POLYGON = 12
+
+
+def _crosses_itself_small(pts) -> bool:
+    """:func:`_crosses_itself` for a short outline, pair by pair."""
+    n = len(pts)
+    edges = [(pts[k], pts[(k + 1) % n]) for k in range(n)]
+    return any(_crossing_x(edges[i], edges[j]) is not None for i in range(n) for j in range(i + 2, n)
+               if not (i == 0 and j == n - 1))
 
 
 def _crosses_itself(a: np.ndarray) -> bool:

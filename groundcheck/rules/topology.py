@@ -191,9 +191,15 @@ def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple
     """How to undo each extra bond: a point of the signal circuit fastened to the metal (a socket) is
     insulated from it, keeping its own ground wire; any other bond conductor is removed."""
     actions = []
+    wanted = {p for p in others if p in ctx.signal_points}
+    fastened: dict[str, list[str]] = {}
+    if wanted:                                  # one pass over the conductors, not one per bond
+        for c in ctx.plan.conductors:
+            for p in {c.a, c.b} & wanted:
+                if is_fastening(c, ctx.metals):
+                    fastened.setdefault(p, []).append(c.name)
     for p in others:
-        fastenings = [c.name for c in ctx.plan.conductors
-                      if p in (c.a, c.b) and is_fastening(c, ctx.metals) and p in ctx.signal_points]
+        fastenings = fastened.get(p, [])
         if fastenings:
             actions.extend(("insulate", k) for k in sorted(fastenings))
         else:
