@@ -114,6 +114,12 @@ def rectifier(stmt: Statement):
             kw[field] = r.quantity(kind, word, allow_zero=word == "diode")
         elif first.kind == "word" and first.value == "filter":
             _filter(r, kw, refs)
+        elif first.kind == "word" and first.value == "valve":
+            r.word()
+            kw["diode_law"] = "valve"
+            kw["valve_drop"] = r.quantity("voltage", "valve rectifier drop")
+            r.expect("at")
+            kw["valve_current"] = r.quantity("current", "the current of that drop")
         elif first.kind == "word" and first.value == "leakage":
             r.word()
             kw["leakage"] = r.quantity("inductance", "leakage inductance", allow_zero=True)
@@ -128,7 +134,8 @@ def rectifier(stmt: Statement):
             r.word()
             kw["channel"] = r.word("a channel name")
         else:
-            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel", "leakage", "filter")
+            raise unknown(stmt, first, ("full-wave", "bridge", "half-wave", "load", "channel", "leakage", "filter",
+                                        "valve")
                           + tuple(spec))
         r.finish()
     if "load_current" not in kw and "load_resistance" not in kw:

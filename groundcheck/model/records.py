@@ -193,7 +193,9 @@ class Rectifier:
     load_resistance: float | None = None
     channel: str | None = None
     location: Location = field(default=Location("<plan>"), compare=False)
-    diode_law: str = "constant"          # constant (diode_drop per diode) or shockley (exponential, with Rs)
+    diode_law: str = "constant"          # constant (diode_drop per diode), shockley (exponential, with Rs) or valve
+    valve_drop: float = 50.0             # valve rectifiers: the drop (V) at valve_current (A), Child's law between
+    valve_current: float = 0.25
     leakage: float = 0.0                 # transformer leakage inductance per conducting (half-)winding, H
     filter_resistance: float = 0.0       # a filter section after the reservoir: series resistance, Ω
     filter_inductance: float = 0.0       # ... series inductance (a choke), H

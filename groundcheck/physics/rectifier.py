@@ -132,7 +132,7 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     T = 1.0 / frequency
     h = T / n
     t = np.arange(n) * h
-    if r.diode_law == "shockley" or r.leakage > 0 or r.filter_capacitance is not None:
+    if r.diode_law in ("shockley", "valve") or r.leakage > 0 or r.filter_capacitance is not None:
         from .rectifier_exact import steady_state
         w = math.sqrt(2) * r.secondary * np.sin(2 * math.pi * frequency * t)
         v, i, out, i_filter = steady_state(r, w if r.topology == "half-wave" else np.abs(w), h)

@@ -58,15 +58,22 @@ class _Model:
         self.M, self.N, self.K = P @ (np.eye(len(B)) + 0.5 * h * A), P @ (0.5 * h * B), P @ (h * s)
         nd = 2 if r.topology == "bridge" else 1
         self.shockley = r.diode_law == "shockley"
+        self.valve = r.diode_law == "valve"
+        # Child's law, I = K·V^(3/2), through the stated point; a bridge of valves has two in series
+        self.k_valve = r.valve_current / r.valve_drop ** 1.5 if self.valve else 0.0
         self.rt = max(r.winding, 1e-3) + (nd * SHOCKLEY_RS if self.shockley else 0.0)
-        self.nvt, self.drop = nd * SHOCKLEY_N * THERMAL_VOLTAGE, nd * r.diode_drop
+        self.nvt, self.drop, self.nd = nd * SHOCKLEY_N * THERMAL_VOLTAGE, nd * r.diode_drop, nd
         self.lh = r.leakage / h
         self.r = r
 
     def vd(self, x: float) -> float:
+        if self.valve:
+            return self.nd * (x / self.k_valve) ** (2 / 3) if x > 0 else 0.0
         return self.nvt * math.log1p(x / SHOCKLEY_IS) if self.shockley else self.drop
 
     def dvd(self, x: float) -> float:
+        if self.valve:
+            return self.nd * (2 / 3) * self.k_valve ** (-2 / 3) * max(x, 1e-9) ** (-1 / 3)
         return self.nvt / (SHOCKLEY_IS + x) if self.shockley else 0.0
 
     def residual(self, x: float, i0: float, d0: float, s1: float, base: float) -> tuple[float, float]:
