@@ -69,3 +69,16 @@ def test_a_chain_with_both_speaker_and_headphones_is_refused():
     with pytest.raises(PlanErrors) as e:
         load_text(PLAN.format(chain="speaker 88 dB, headphones 100 dB per mW"), "x.gplan")
     assert "both a speaker and headphones" in str(e.value.errors[0])
+
+
+def test_background_noise_masks_hum_below_it():
+    # a room with 40 dB SPL of noise in each third-octave band: a tone is heard only above 40 − 4 = 36 dB SPL
+    # (the critical ratio, from memory) where the quiet threshold is lower (26.5 dB at 100 Hz, ISO 226), and
+    # above the quiet threshold where that is higher (44 dB at 50 Hz)
+    quiet = analyze(load_text(PLAN.format(chain="headphones 100 dB per mW, impedance 32 ohm"), "q.gplan"))
+    noisy = analyze(load_text(PLAN.format(chain="headphones 100 dB per mW, impedance 32 ohm, background 40 dB"),
+                              "n.gplan"))
+    for q, n in zip(quiet.hum.channels["phones"].spectrum, noisy.hum.channels["phones"].spectrum):
+        if "spl_db" in q:
+            assert n["threshold_db"] == pytest.approx(max(q["threshold_db"], 36.0), abs=1e-9)
+            assert n["margin_db"] == pytest.approx(n["spl_db"] - n["threshold_db"], abs=0.011)

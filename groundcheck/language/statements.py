@@ -60,6 +60,8 @@ def listening(stmt: Statement):
             kw["speakers"] = int(n)
         elif word == "room-gain":
             kw["room_gain"] = r.quantity("level", "room gain", positive=False)
+        elif word == "background":
+            kw["background"] = r.quantity("level", "background noise per third-octave band", positive=False)
         elif word == "headphones":
             kw["phones"] = r.quantity("level", "headphone sensitivity", positive=False)
             r.expect("per")
@@ -68,7 +70,7 @@ def listening(stmt: Statement):
             field, kind = spec[word]
             kw[field] = r.quantity(kind, word, positive=kind != "level")
         else:
-            raise unknown(stmt, first, (*spec, "speakers", "room-gain", "headphones"))
+            raise unknown(stmt, first, (*spec, "speakers", "room-gain", "headphones", "background"))
         r.finish()
     if "phones" in kw and "sensitivity" in kw:
         raise PlanError("listening gives both a speaker and headphones", stmt.loc,

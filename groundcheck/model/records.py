@@ -87,6 +87,7 @@ class Listening:
     room_gain: float = 0.0               # dB added by the room at the seat
     phones: float | None = None          # headphone sensitivity, dB SPL per mW or per V (phones_per)
     phones_per: str = "mW"
+    background: float | None = None      # the room's noise, dB SPL in each third-octave band (flat): it masks hum
 
     @property
     def verdict(self) -> bool:

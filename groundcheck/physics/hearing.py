@@ -12,7 +12,8 @@ from bisect import bisect_right
 
 from ..core.units import db_of_ratio, ratio_of_db
 
-__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "speakers_gain", "headphone_spl", "spl_of",
+__all__ = ["ISO226_FREQ", "ISO226_TF", "threshold_of_hearing", "heard_threshold", "MASKING_MARGIN_DB",
+           "speakers_gain", "headphone_spl", "spl_of",
            "dbu_from_dbv", "spl_at_listener"]
 
 #: ISO 226:2003 Table 1 frequencies (Hz) and threshold of hearing T_f (dB SPL)
@@ -135,4 +136,26 @@ def spl_of(v_out: float, listening) -> float:
                              listening.impedance)
     spl = spl_at_listener(v_out, listening.amp_gain, listening.sensitivity, listening.impedance, listening.distance)
     return spl + speakers_gain(listening.speakers) + listening.room_gain
+
+
+#: a tone in broadband noise is just heard about this many dB below the noise's level in the critical band
+#: around it (Fletcher's critical ratio; E. Zwicker, H. Fastl, *Psychoacoustics*, 1990, from memory); a
+#: third-octave band stands in for the critical band
+MASKING_MARGIN_DB = 4.0
+
+
+def heard_threshold(f: float, background: float | None) -> float:
+    """The level (dB SPL) a tone at f must pass to be heard: the ISO 226 threshold, or in a room whose noise is
+    ``background`` dB SPL per third-octave band, that level less :data:`MASKING_MARGIN_DB` when higher.
+
+    Parameters:
+        f: frequency, Hz.
+        background: the room's noise per third-octave band, dB SPL, or None for a quiet room.
+    Returns:
+        the threshold, dB SPL.
+    References:
+        ISO 226:2003; E. Zwicker, H. Fastl, *Psychoacoustics*, 1990 (masking by noise, from memory).
+    """
+    quiet = threshold_of_hearing(f)
+    return quiet if background is None else max(quiet, background - MASKING_MARGIN_DB)
 

@@ -11,7 +11,7 @@ from collections import defaultdict
 from dataclasses import dataclass, field
 
 from ..core.units import db_of_ratio, dbv
-from .hearing import spl_of, threshold_of_hearing
+from .hearing import heard_threshold, spl_of
 from .pickup import min_distance
 
 __all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB", "rounded"]
@@ -152,7 +152,7 @@ class Merged:
             row = {"frequency_hz": f, "volts": v, "dbv": rounded(dbv(v)), "volts_signed": signed}
             if listening is not None and listening.verdict:
                 spl = spl_of(v, listening)
-                thr = threshold_of_hearing(f)
+                thr = heard_threshold(f, listening.background)
                 row.update(spl_db=rounded(spl), threshold_db=thr, margin_db=rounded(spl - thr))
                 if math.isfinite(spl) and (worst is None or spl - thr > worst):
                     worst = spl - thr
