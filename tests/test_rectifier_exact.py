@@ -103,7 +103,7 @@ def test_diode_law_and_leakage_are_read():
     assert (r.diode_law, r.valve_drop, r.valve_current) == ("valve", pytest.approx(50.0), pytest.approx(0.25))
 
 
-def _ngspice_crc(vrms, rw, c1, rf, c2, iload, f):
+def _ngspice_crc(vrms, rw, c1, rf, c2, iload, f, lf=0.0):
     """Full-wave rectifier (Shockley diodes), reservoir, then R and a second capacitor with the load across it;
     the charging current and the second capacitor's current over the last PERIODS periods."""
     vpk = vrms * math.sqrt(2)
@@ -115,7 +115,8 @@ R2 b b2 {rw}
 D1 a2 v1 dmod
 D2 b2 v1 dmod
 C1 v1 0 {c1}
-RF v1 v2 {rf}
+{f"LF v1 vx {lf}" if lf else "RX v1 vx 0"}
+RF vx v2 {rf}
 C2 v2 c2n {c2}
 VC2 c2n 0 DC 0
 I1 v2 0 DC {iload}
@@ -225,6 +226,22 @@ def test_valve_rectifier_against_ngspice():
     assert ours.rms_current == pytest.approx(math.sqrt(np.mean(i * i)), rel=0.03)
     theirs = np.abs(np.fft.rfft(i)[::PERIODS][:41]) * math.sqrt(2) / len(i)
     mine = np.abs(harmonic_phasors(ours.current, 40))
+    for k in range(2, 41, 2):
+        if theirs[k] > 0.02 * theirs[2]:
+            assert mine[k] == pytest.approx(theirs[k], rel=0.03), (k * 50, mine[k], theirs[k])
+
+
+@needs_ngspice
+def test_clc_filter_capacitor_current_against_ngspice():
+    # the same supply with a 5 H, 80 Ω choke instead of the resistor (a CLC filter): the second capacitor's current
+    # harmonic by harmonic to 2 kHz within 3 % of ngspice
+    r = Rectifier("r", "a", "b", "full-wave", 250, 120, 0.0, 47e-6, load_current=0.025, diode_law="shockley",
+                  filter_resistance=80.0, filter_inductance=5.0, filter_capacitance=47e-6, filter_point="x")
+    ours = simulate(r, 50)
+    i, i_c2 = _ngspice_crc(250, 120, 47e-6, 80.0, 47e-6, 0.025, 50, lf=5.0)
+    assert ours.rms_current == pytest.approx(math.sqrt(np.mean(i * i)), rel=0.03)
+    theirs = np.abs(np.fft.rfft(i_c2)[::PERIODS][:41]) * math.sqrt(2) / len(i_c2)
+    mine = np.abs(harmonic_phasors(ours.filter_current, 40))
     for k in range(2, 41, 2):
         if theirs[k] > 0.02 * theirs[2]:
             assert mine[k] == pytest.approx(theirs[k], rel=0.03), (k * 50, mine[k], theirs[k])
