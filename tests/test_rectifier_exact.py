@@ -21,6 +21,16 @@ from helpers import needs_ngspice
 PERIODS = 5
 
 
+def _last_periods(text: str, f: float) -> np.ndarray:
+    """Run a netlist whose wrdata line writes to OUT; the rows of its last PERIODS mains periods (1 µs steps)."""
+    with tempfile.TemporaryDirectory() as d:
+        out, cir = Path(d) / "r.out", Path(d) / "r.cir"
+        cir.write_text(text.replace("OUT", str(out)))
+        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=300, check=False)
+        data = np.loadtxt(out)
+    return data[-int(round(PERIODS / f / 1e-6)):]
+
+
 def _ngspice(vrms, rw, leak, c, iload, f, law):
     """Centre-tapped full-wave rectifier, each half-winding with its resistance and leakage inductance; the last
     PERIODS mains periods of the reservoir voltage and the charging current, sampled evenly."""
@@ -48,14 +58,9 @@ wrdata OUT v(out) i(V1) i(V2)
 .endc
 .end
 """
-    with tempfile.TemporaryDirectory() as d:
-        out, cir = Path(d) / "r.out", Path(d) / "r.cir"
-        cir.write_text(text.replace("OUT", str(out)))
-        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=300, check=False)
-        data = np.loadtxt(out)
-    n = int(round(PERIODS / f / 1e-6))
-    v = data[-n:, 1]
-    i = np.abs(data[-n:, 3]) + np.abs(data[-n:, 5])
+    data = _last_periods(text, f)
+    v = data[:, 1]
+    i = np.abs(data[:, 3]) + np.abs(data[:, 5])
     return v, i
 
 
@@ -130,13 +135,8 @@ wrdata OUT v(v1) i(V1) i(V2) i(VC2)
 .endc
 .end
 """
-    with tempfile.TemporaryDirectory() as d:
-        out, cir = Path(d) / "r.out", Path(d) / "r.cir"
-        cir.write_text(text.replace("OUT", str(out)))
-        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=300, check=False)
-        data = np.loadtxt(out)
-    n = int(round(PERIODS / f / 1e-6))
-    return np.abs(data[-n:, 3]) + np.abs(data[-n:, 5]), data[-n:, 7]
+    data = _last_periods(text, f)
+    return np.abs(data[:, 3]) + np.abs(data[:, 5]), data[:, 7]
 
 
 @needs_ngspice
@@ -205,13 +205,8 @@ wrdata OUT v(out) i(V1) i(V2)
 .endc
 .end
 """
-    with tempfile.TemporaryDirectory() as d:
-        out, cir = Path(d) / "r.out", Path(d) / "r.cir"
-        cir.write_text(text.replace("OUT", str(out)))
-        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=300, check=False)
-        data = np.loadtxt(out)
-    n = int(round(PERIODS / f / 1e-6))
-    return data[-n:, 1], np.abs(data[-n:, 3]) + np.abs(data[-n:, 5])
+    data = _last_periods(text, f)
+    return data[:, 1], np.abs(data[:, 3]) + np.abs(data[:, 5])
 
 
 @needs_ngspice
