@@ -323,7 +323,8 @@ def _rename(p, fn):
                    points=tuple(replace(x, name=r(x.name), on=x.on) for x in p.points),
                    conductors=tuple(replace(c, a=r(c.a) if c.a not in metals else c.a,
                                             b=r(c.b) if c.b not in metals else c.b) for c in p.conductors),
-                   rectifiers=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.rectifiers),
+                   rectifiers=tuple(replace(x, a=r(x.a), b=r(x.b), filter_point=r(x.filter_point))
+                                    for x in p.rectifiers),
                    currents=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.currents),
                    stages=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.stages),
                    heaters=tuple(replace(x, a=r(x.a), b=r(x.b), reference=r(x.reference)) for x in p.heaters))
