@@ -3,6 +3,8 @@
 import io
 import json
 import re
+import shutil
+import subprocess
 
 import pytest
 
@@ -241,3 +243,17 @@ def test_draw_writes_to_standard_output(capfd):
         assert main(["draw", str(EXAMPLES[0]), "-o", "-"]) == 0
         out, _ = capfd.readouterr()
         assert "<svg" in out
+
+
+@pytest.mark.skipif(shutil.which("bash") is None, reason="needs bash")
+def test_shell_completion_script_completes(cli, tmp_path):
+    code, script, _ = cli("completion", "bash")
+    assert code == 0
+    path = tmp_path / "c.sh"
+    path.write_text(script)
+    probe = ('source "$1"; for case in "1|groundcheck ch" "2|groundcheck check --fa" "3|groundcheck check --format s" '
+             '"3|groundcheck draw --view t"; do n="${case%%|*}"; read -ra COMP_WORDS <<< "${case#*|}"; '
+             'COMP_CWORD=$n; [ ${#COMP_WORDS[@]} -le $n ] && COMP_WORDS+=(""); _groundcheck; '
+             'echo "${COMPREPLY[*]}"; done')
+    out = subprocess.run(["bash", "-c", probe, "probe", str(path)], capture_output=True, text=True).stdout.split("\n")
+    assert out[:4] == ["check", "--fail-on", "sarif", "topology"]

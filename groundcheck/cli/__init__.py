@@ -39,6 +39,11 @@ def build_parser() -> argparse.ArgumentParser:
     _suggest_command(sub)
     _compare_command(sub)
     _export_command(sub)
+    sub.add_parser("completion", help="print a shell completion script",
+                   description="Example:\n  eval \"$(groundcheck completion bash)\"   (zsh: run "
+                   "'autoload -U bashcompinit && bashcompinit' first)",
+                   formatter_class=argparse.RawDescriptionHelpFormatter).add_argument(
+        "shell", choices=("bash", "zsh"), help="bash, or zsh (through its bash compatibility)")
     return p
 
 
@@ -315,8 +320,14 @@ def cmd_report(args) -> int:
     return 1 if result.fails(fail_on(args)) else 0
 
 
+def cmd_completion(args) -> int:
+    from .completion import bash_completion
+    sys.stdout.write(bash_completion(build_parser()))
+    return 0
+
+
 COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain,
-            "draw": cmd_draw, "report": cmd_report, "export": cmd_export}
+            "draw": cmd_draw, "report": cmd_report, "export": cmd_export, "completion": cmd_completion}
 
 
 def main(argv: list[str] | None = None) -> int:
