@@ -255,3 +255,6 @@ stage s2: m to b, gain 20 dB, channel out
     # the same as before (magnitudes)
     assert row2["volts"] == pytest.approx(row["volts"], rel=1e-9)
     assert row2["volts_signed"] < 1e-6 * row["volts"]
+    from groundcheck.renderers.text import text_report
+    assert "with every stage non-inverting" in text_report(flipped)          # the summary says both
+    assert "with every stage non-inverting" not in text_report(r)

@@ -204,3 +204,10 @@ field t: transformer, at 100,70, 40 uT at 5 cm, axis z
     assert got == pytest.approx(expected, rel=0.05)
     chord = abs(loop_flux(_src(src, 0.0, "z"), [s1, (0.03, -0.04), (0.17, -0.04), s2]))
     assert abs(chord - expected) > 0.2 * expected     # the straight chord is visibly off
+
+
+def test_closest_approach_counts_the_source_height():
+    # a source 40 mm up, 40 mm beyond the loop's top edge (y = 60 mm) in the plane: √(40² + 40²) = 56.57 mm,
+    # worked by hand; GC305 and the pickup table print this figure
+    from groundcheck.physics.pickup import min_distance
+    assert min_distance(_src((0.06, 0.10), height=0.04), POLY) == pytest.approx(0.056569, abs=1e-6)

@@ -131,12 +131,12 @@ I1 v2 0 DC {iload}
 set numdgt=12
 tran 1u 2.4 {2.4 - PERIODS / f} 1u
 linearize
-wrdata OUT v(v1) i(V1) i(V2) i(VC2)
+wrdata OUT v(v1) i(V1) i(V2) i(VC2) v(v2)
 .endc
 .end
 """
     data = _last_periods(text, f)
-    return np.abs(data[:, 3]) + np.abs(data[:, 5]), data[:, 7]
+    return np.abs(data[:, 3]) + np.abs(data[:, 5]), data[:, 7], data[:, 9]
 
 
 @needs_ngspice
@@ -147,7 +147,9 @@ def test_crc_filter_capacitor_current_against_ngspice():
     r = Rectifier("r", "a", "b", "full-wave", 250, 120, 0.0, 47e-6, load_current=0.025, diode_law="shockley",
                   filter_resistance=1000.0, filter_capacitance=47e-6, filter_point="x")
     ours = simulate(r, 50)
-    i, i_c2 = _ngspice_crc(250, 120, 47e-6, 1000.0, 47e-6, 0.025, 50)
+    i, i_c2, v2 = _ngspice_crc(250, 120, 47e-6, 1000.0, 47e-6, 0.025, 50)
+    assert ours.output_dc == pytest.approx(v2.mean(), rel=0.01)               # the filter's output, as printed
+    assert ours.output_ripple_pp == pytest.approx(v2.max() - v2.min(), rel=0.05)
     assert ours.rms_current == pytest.approx(math.sqrt(np.mean(i * i)), rel=0.03)
     theirs = np.abs(np.fft.rfft(i_c2)[::PERIODS][:41]) * math.sqrt(2) / len(i_c2)
     mine = np.abs(harmonic_phasors(ours.filter_current, 40))
@@ -233,7 +235,8 @@ def test_clc_filter_capacitor_current_against_ngspice():
     r = Rectifier("r", "a", "b", "full-wave", 250, 120, 0.0, 47e-6, load_current=0.025, diode_law="shockley",
                   filter_resistance=80.0, filter_inductance=5.0, filter_capacitance=47e-6, filter_point="x")
     ours = simulate(r, 50)
-    i, i_c2 = _ngspice_crc(250, 120, 47e-6, 80.0, 47e-6, 0.025, 50, lf=5.0)
+    i, i_c2, v2 = _ngspice_crc(250, 120, 47e-6, 80.0, 47e-6, 0.025, 50, lf=5.0)
+    assert ours.output_dc == pytest.approx(v2.mean(), rel=0.01)
     assert ours.rms_current == pytest.approx(math.sqrt(np.mean(i * i)), rel=0.03)
     theirs = np.abs(np.fft.rfft(i_c2)[::PERIODS][:41]) * math.sqrt(2) / len(i_c2)
     mine = np.abs(harmonic_phasors(ours.filter_current, 40))

@@ -11,7 +11,6 @@ candidate that would touch a conductor the protective earth relies on is marked 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from ..model.kinds import is_fastening
 from ..model.records import Plan
@@ -209,56 +208,43 @@ def _installation_candidates(ctx: ChangeContext, add) -> None:
                           "GC101", (edit,)))
 
 
-def _join_rectifier(ctx: ChangeContext, rect, shared: tuple[str, ...], add) -> None:
-    """A rectifier whose two return ends are not joined by a conductor of their own: move the far end of a
-    conductor leaving one end onto the other, so that the charging current circulates between them alone
-    (common practice: reservoir negative and centre tap or bridge negative joined directly)."""
-    if any({d.a, d.b} == {rect.a, rect.b} for d in ctx.plan.conductors):
+def _join_ends(ctx: ChangeContext, row, add) -> None:
+    """A rectifier's return (its charging current, or its filter capacitor's ripple current) whose two ends are
+    not joined by a conductor of their own: move the far end of a conductor leaving one end onto the other, so
+    that the current circulates between them alone (common practice: reservoir negative and centre tap or bridge
+    negative joined directly; a filter capacitor's negative to the reservoir's)."""
+    if any({d.a, d.b} == {row.a, row.b} for d in ctx.plan.conductors):
         return
-    for end, other in ((rect.a, rect.b), (rect.b, rect.a)):
+    for end, other in ((row.a, row.b), (row.b, row.a)):
         for d in ctx.plan.conductors:
             if other in (d.a, d.b) and d.kind not in ("interconnect", "shield") and not ctx.protective(d):
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
-                             f"{rect.name} current stays between them and leaves {', '.join(shared)}",
+                             f"{row.source} current stays between them and leaves {', '.join(row.shared)}",
                              "GC102"))
 
 
-@dataclass(frozen=True)
-class _FilterReturn:
-    """A filter capacitor's ripple-current return, from its negative (a) to the reservoir's negative (b)."""
-
-    name: str
-    a: str
-    b: str
-
-
 def _shared_return_candidates(ctx: ChangeContext, add) -> None:
-    """Shared returns: join the rectifier's ends directly, and re-route the stage's reference to the star."""
+    """Shared returns: join the rectifier's ends directly, and re-route the stage's reference to the star.  Each
+    row names its source's two ends (a rectifier's, its filter's, or a stated current's)."""
     plan = ctx.plan
     for row in ctx.result.coupling:
-        # a rectifier's charging current, or its filter capacitor's ripple current (from the filter capacitor's
-        # negative back to the reservoir's): both are cured by joining their two ends directly
-        rect = next((r for r in plan.rectifiers if r.name == row.source), None) or next(
-            (_FilterReturn(row.source, r.filter_point, r.a) for r in plan.rectifiers
-             if r.filter_point is not None and f"{r.name}.filter" == row.source), None)
-        if rect is not None:
-            _join_rectifier(ctx, rect, row.shared, add)
-        src = rect or next((r for r in plan.currents if r.name == row.source), None)
+        if row.kind == "rectifier":
+            _join_ends(ctx, row, add)
         stage = next((s for s in plan.stages if s.name == row.stage), None)
-        if src is None or stage is None:
+        if row.kind not in ("rectifier", "current") or stage is None:
             continue
         for shared in row.shared:
             c = ctx.cond.get(shared)
             if c is None:
                 continue
-            for end, other in ((src.a, src.b), (src.b, src.a)):
+            for end, other in ((row.a, row.b), (row.b, row.a)):
                 for d in plan.conductors:
                     if other in (d.a, d.b) and d.name != shared and not ctx.protective(d):
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
                             add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
-                                         f"so the {src.name} current leaves {shared}", "GC102"))
+                                         f"so the {row.source} current leaves {shared}", "GC102"))
             for p in (stage.b, stage.a):
                 star = ctx.nearest_star(p)
                 for d in plan.conductors:

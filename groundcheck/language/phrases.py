@@ -193,7 +193,8 @@ class Reader:
         if it.kind != "word":
             raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "")
         if choices is not None and it.value not in choices:
-            raise PlanError(f"{self.stmt.keyword}: unknown {what} {it.value!r}", it.loc,
+            bare = what.split(" ", 1)[1] if what.split(" ", 1)[0] in ("a", "an", "the") else what
+            raise PlanError(f"{self.stmt.keyword}: unknown {bare} {it.value!r}", it.loc,
                             "expected one of: " + ", ".join(choices))
         return it.value
 

@@ -56,18 +56,20 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[So
     """
     from .rectifier import harmonic_phasors
     f0 = plan.frequency
+    nmax = int(max_frequency // f0)
+
+    def spectrum(samples, first: int) -> dict:
+        ph = harmonic_phasors(samples, nmax)
+        return {k * f0: ph[k] for k in range(first, nmax + 1) if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)}
+
     out = []
     for r in plan.rectifiers:
         res = rectifier_results[r.name]
-        nmax = int(max_frequency // f0)
-        ph = harmonic_phasors(res.current, nmax)
-        parts = {k * f0: ph[k] for k in range(0, nmax + 1) if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)}
-        out.append(Source(r.name, "rectifier", r.a, r.b, parts, r.channel, r.location))
+        out.append(Source(r.name, "rectifier", r.a, r.b, spectrum(res.current, 0), r.channel, r.location))
         if res.filter_current is not None and r.filter_point is not None:
-            # the filter capacitor's ripple current leaves its negative and returns to the reservoir's
-            ph = harmonic_phasors(res.filter_current, nmax)
-            parts = {k * f0: ph[k] for k in range(1, nmax + 1) if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)}
-            out.append(Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, parts, r.channel, r.location))
+            # the filter capacitor's ripple current (no DC) leaves its negative and returns to the reservoir's
+            out.append(Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, spectrum(res.filter_current, 1),
+                              r.channel, r.location))
     for c in plan.currents:
         parts: dict = {}
         for amp, f in c.parts:

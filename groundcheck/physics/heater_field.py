@@ -19,7 +19,8 @@ import math
 
 import numpy as np
 
-__all__ = ["pair_wires", "pair_path_flux", "MU0_4PI", "DEFAULT_SPACING", "DEFAULT_HEIGHT"]
+__all__ = ["pair_wires", "pair_path_flux", "pair_sources", "pair_geometry", "pair_closest", "MU0_4PI",
+           "DEFAULT_SPACING", "DEFAULT_HEIGHT"]
 
 MU0_4PI = 1e-7                      # μ₀/4π, H/m
 #: the centre distance of two heater wires laid side by side when the plan does not say, m (two 0.75 mm² PVC
@@ -111,3 +112,55 @@ def pair_path_flux(route, spacing: float, height: float, current: float, pts) ->
         dl = (q3 - p3) / pieces
         total += float(np.sum((A @ dl).reshape(pieces, _POINTS) * w[None, :])) * 0.5
     return MU0_4PI * current * total
+
+
+def pair_geometry(heater) -> tuple[float, float]:
+    """(spacing, height) of a heater's pair, m: as stated, else the defaults.
+
+    Parameters:
+        heater: a Heater record.
+    Returns:
+        the spacing between the wires and their height above the deck, m.
+    References:
+        :data:`DEFAULT_SPACING`, :data:`DEFAULT_HEIGHT` (from memory).
+    """
+    return (DEFAULT_SPACING if heater.spacing is None else heater.spacing,
+            DEFAULT_HEIGHT if heater.wiring_height is None else heater.wiring_height)
+
+
+def pair_sources(heaters) -> list:
+    """The AC heater pairs with a stated route that are not twisted, as field sources of the hum budget, each
+    with its heater: (FieldSource named ``NAME.wiring``, kind ``heater-wiring``, at its height; Heater).
+
+    Parameters:
+        heaters: the plan's Heater records.
+    Returns:
+        (source, heater) for each pair that is a field source.
+    References:
+        the module's references.
+    """
+    from ..model.records import FieldSource
+    return [(FieldSource(f"{h.name}.wiring", "heater-wiring", h.route[0], 0.0, 1.0, (), pair_geometry(h)[1], "pair",
+                         route=h.route), h)
+            for h in heaters if h.ac and len(h.route) >= 2 and not h.twisted]
+
+
+def pair_closest(heater, polygon, samples: int = 32) -> float:
+    """The closest approach of a loop's outline to either wire of a heater's pair, m (each edge of the outline
+    sampled at ``samples`` pieces, the wires taken exactly).
+
+    Parameters:
+        heater: a Heater record with a route.
+        polygon: the loop's corners on the deck, m.
+        samples: pieces per edge of the outline.
+    Returns:
+        the distance, m.
+    References:
+        plane and solid geometry.
+    """
+    spacing, height = pair_geometry(heater)
+    corners = np.array([[p[0], p[1], 0.0] for p in [*polygon, polygon[0]]])
+    t = np.linspace(0, 1, samples + 1)[:, None]
+    points = np.concatenate([p + t * (q - p) for p, q in zip(corners[:-1], corners[1:])])
+    return min(_distance(points, wire) for wire in pair_wires(heater.route, spacing, height))
+

@@ -31,8 +31,8 @@ from ..core.units import ratio_of_db
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
-from .heater_field import pair_path_flux
-from .pickup import emf as emf_of, loop_fluxes
+from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
+from .pickup import emf as emf_of, loop_fluxes, min_distance
 from .sweep import map_frequencies
 
 __all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]  # the result types live in humtotals
@@ -121,20 +121,6 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                      merged.crosstalk(), b.freqs, merged.network_rows, b.notes)
 
 
-def _heater_wirings(plan) -> list:
-    """The AC heater pairs with a stated route, as field sources of the budget (their pickup computed by
-    :func:`groundcheck.physics.heater_field.pair_path_flux`; ``size`` holds the wires' spacing)."""
-    from ..model.records import FieldSource
-    from .heater_field import DEFAULT_HEIGHT, DEFAULT_SPACING
-    out = []
-    for h in plan.heaters:
-        if h.ac and len(h.route) >= 2 and not h.twisted:
-            out.append(FieldSource(f"{h.name}.wiring", "heater-wiring", h.route[0], 0.0, 1.0, (),
-                                   DEFAULT_HEIGHT if h.wiring_height is None else h.wiring_height, "pair",
-                                   DEFAULT_SPACING if h.spacing is None else h.spacing, route=h.route))
-    return out
-
-
 def _passages(plan, circuit, loops) -> dict:
     """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter, leave), where the
     loop's outline takes the straight chord between the two spots (a bolt at each, no route)."""
@@ -179,8 +165,8 @@ class _Budget:
         self.rated = listening.rated_output if listening else 1.0
         self.owners = branch_owner(circuit)
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
-        self.wirings = _heater_wirings(plan)
-        self.sources = [*plan.fields, *self.wirings]           # field sources and AC heater pairs
+        self.pairs = {src.name: (src, h) for src, h in pair_sources(plan.heaters)}     # AC heater pairs
+        self.sources = [*plan.fields, *(src for src, _ in self.pairs.values())]
         self.fields = {x.name: x for x in self.sources}
         self.notes = []
         if listening is None:
@@ -210,14 +196,20 @@ class _Budget:
         self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
         self.across = [self.branch_index.get(s.across) if s.across else None for s in stages]
         self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, _passages(plan, circuit, loops))
-        for src in self.wirings:
-            h = next(x for x in plan.heaters if f"{x.name}.wiring" == src.name)
+        for name, (_, h) in self.pairs.items():
+            spacing, height = pair_geometry(h)
             for li, info in enumerate(loops):
                 if info.polygon is not None:
-                    self.flux[(li, src.name)] = pair_path_flux(h.route, src.size, src.height, h.current,
-                                                               [*info.polygon, info.polygon[0]])
-            self.orient[src.name] = np.zeros(3)
+                    self.flux[(li, name)] = pair_path_flux(h.route, spacing, height, h.current,
+                                                           [*info.polygon, info.polygon[0]])
+            self.orient[name] = np.zeros(3)
         self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
+
+    def closest(self, name: str, polygon) -> float:
+        """A loop's closest approach to a field source's centre, or to an AC heater pair's wires, m."""
+        if name in self.pairs:
+            return pair_closest(self.pairs[name][1], polygon)
+        return min_distance(self.fields[name], polygon)
 
     def at_frequency(self, f: float) -> _FrequencyPart:
         part = _FrequencyPart()

@@ -12,7 +12,6 @@ from dataclasses import dataclass, field
 
 from ..core.units import db_of_ratio, dbv
 from .hearing import heard_threshold, spl_of
-from .pickup import min_distance
 
 __all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB", "rounded"]
 
@@ -121,7 +120,7 @@ class Merged:
             src = b.fields[src_name]
             entry = row["sources"][src_name] = {
                 "flux_density_equiv_t": abs(b.flux[(li, src_name)]) / info.area if info.area else None,
-                "closest_mm": round(_closest(src, info.polygon) * 1e3, 1),
+                "closest_mm": round(b.closest(src_name, info.polygon) * 1e3, 1),
                 "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in b.orient[src_name]],
                 "axis_stated": src.axis, "model": ("two-wire line" if src.kind == "heater-wiring" else
                           "ring" if (li, src_name) in b.ring else "dipole"),
@@ -196,28 +195,3 @@ class Merged:
                         "db": rounded(max(CROSSTALK_FLOOR_DB,
                                      db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
         return out
-
-
-def _closest(src, polygon) -> float:
-    """The loop's closest approach to a field source's centre, or to an AC heater pair's wires, m."""
-    if src.kind != "heater-wiring":
-        return min_distance(src, polygon)
-    import numpy as np
-    from .heater_field import pair_wires
-    pts = np.array([[p[0], p[1], 0.0] for p in [*polygon, polygon[0]]])
-    best = float("inf")
-    for wire in pair_wires(src.route, src.size, src.height):
-        for a, b in zip(wire[:-1], wire[1:]):
-            for p, q in zip(pts[:-1], pts[1:]):
-                best = min(best, _segments_distance(a, b, p, q))
-    return best
-
-
-def _segments_distance(a, b, p, q, steps: int = 32) -> float:
-    """The least distance between two segments, sampled (good to a fraction of the segments' length/steps)."""
-    import numpy as np
-    t = np.linspace(0, 1, steps + 1)
-    u = a + np.outer(t, b - a)
-    v = p + np.outer(t, q - p)
-    return float(np.min(np.linalg.norm(u[:, None, :] - v[None, :, :], axis=2)))
-

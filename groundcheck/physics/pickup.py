@@ -26,7 +26,7 @@ import math
 import numpy as np
 
 from ..model.records import FieldSource
-from .plate_paths import passage_vector
+from .plate_paths import passage_flow, passage_vector
 
 __all__ = ["segment_integral", "segment_vector", "path_vector", "path_flux", "loop_flux", "flux_density", "emf",
            "orientation", "min_distance", "ring_path_flux", "ring_passage_flux", "loop_fluxes", "AXES"]
@@ -246,16 +246,11 @@ def ring_passage_flux(src: FieldSource, metal, spots: list, enter: int, leave: i
     References:
         :func:`ring_path_flux`; :mod:`groundcheck.physics.plate_paths`.
     """
-    from .plate_paths import plate_flow
-    x0 = min(metal.origin[0], metal.origin[0] + metal.size[0])
-    y0 = min(metal.origin[1], metal.origin[1] + metal.size[1])
-    rel = tuple((float(p[0] - x0), float(p[1] - y0)) for p in spots)
-    mids, vecs, currents = plate_flow(abs(metal.size[0]), abs(metal.size[1]), rel)
+    mids, vecs, flow = passage_flow(metal, spots, enter, leave)
     radius = src.size / 2
     centre = np.array([src.pos[0], src.pos[1], src.height])
-    pts = np.column_stack([mids[:, 0] + x0, mids[:, 1] + y0, np.zeros(len(mids))]) - centre
+    pts = np.column_stack([mids, np.zeros(len(mids))]) - centre
     A = _ring_potential(pts, radius, 4 * src.b_ref * src.r_ref ** 3 / radius ** 2, np.asarray(m, float))
-    flow = currents[:, enter] - currents[:, leave]
     return float(flow @ (A[:, 0] * vecs[:, 0] + A[:, 1] * vecs[:, 1]))
 
 
@@ -312,8 +307,8 @@ def loop_fluxes(fields, loops, passages: dict | None = None) -> tuple[dict, dict
         :func:`path_vector`, :func:`orientation`, :func:`ring_path_flux`.
     """
     flux, orient, ring = {}, {}, set()
+    closed = {li: [*info.polygon, info.polygon[0]] for li, info in enumerate(loops) if info.polygon is not None}
     for src in fields:
-        closed = {li: [*info.polygon, info.polygon[0]] for li, info in enumerate(loops) if info.polygon is not None}
         vectors = {li: path_vector(src, pts) for li, pts in closed.items()}
         for li, items in (passages or {}).items():
             if li in vectors:

@@ -24,7 +24,7 @@ import scipy.sparse.linalg as spla
 from .impedance import FASTENER_RADIUS
 from .plate import grid_laplacian, grid_step
 
-__all__ = ["plate_flow", "passage_vector", "MAX_PLATE_CONTACTS"]
+__all__ = ["plate_flow", "passage_flow", "passage_vector", "MAX_PLATE_CONTACTS"]
 
 #: fastenings of one plate taken with their spreading paths at most; beyond, passages keep the straight chord
 MAX_PLATE_CONTACTS = 64
@@ -90,6 +90,26 @@ def _potential_dot(src, mids: np.ndarray, vecs: np.ndarray) -> np.ndarray:
     return np.stack([h * dy / r3, -h * dx / r3, (X * dy - Y * dx) / r3], axis=1)
 
 
+def passage_flow(metal, spots: list, enter: int, leave: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A loop's passage through a plate as grid edges in the plan's frame: their midpoints (E × 2, m), vectors
+    (E × 2, m) and the share of a unit current entering at spot ``enter`` and leaving at ``leave`` (E).
+
+    Parameters:
+        metal: the metal part (its origin and size).
+        spots: the plate's fastening positions taken as contacts, m.
+        enter, leave: the passage's spots.
+    Returns:
+        (midpoints, vectors, currents).
+    References:
+        :func:`plate_flow`; superposition of the unit injections.
+    """
+    x0 = min(metal.origin[0], metal.origin[0] + metal.size[0])
+    y0 = min(metal.origin[1], metal.origin[1] + metal.size[1])
+    rel = tuple((float(p[0] - x0), float(p[1] - y0)) for p in spots)
+    mids, vecs, currents = plate_flow(abs(metal.size[0]), abs(metal.size[1]), rel)
+    return mids + np.array([x0, y0]), vecs, currents[:, enter] - currents[:, leave]
+
+
 def passage_vector(src, metal, spots: list, enter: int, leave: int) -> np.ndarray:
     """K·(Fx, Fy, Fz) (Wb): the flux a source puts along a loop's passage through a plate, from spot ``enter`` to
     spot ``leave`` (indices in ``spots``, absolute positions), the current spread over the plate.
@@ -104,12 +124,6 @@ def passage_vector(src, metal, spots: list, enter: int, leave: int) -> np.ndarra
     References:
         the module's references.
     """
-    x0 = min(metal.origin[0], metal.origin[0] + metal.size[0])
-    y0 = min(metal.origin[1], metal.origin[1] + metal.size[1])
-    rel = tuple((float(p[0] - x0), float(p[1] - y0)) for p in spots)
-    mids, vecs, currents = plate_flow(abs(metal.size[0]), abs(metal.size[1]), rel)
-    shifted = mids + np.array([x0, y0])
-    flow = currents[:, enter] - currents[:, leave]
-    per_edge = _potential_dot(src, shifted, vecs)
-    return src.b_ref * src.r_ref ** 3 * (flow @ per_edge)
+    mids, vecs, flow = passage_flow(metal, spots, enter, leave)
+    return src.b_ref * src.r_ref ** 3 * (flow @ _potential_dot(src, mids, vecs))
 

@@ -64,9 +64,13 @@ _TEXT = re.compile(rb'<text([^>]*?) x="(-?[\d.]+)" y="(-?[\d.]+)"([^>]*)>([^<]*)
 CHAR_WIDTH = 0.55
 
 
+def _size(m) -> float:
+    return float((re.search(rb'font-size="([\d.]+)"', m.group(1) + m.group(4)) or [b"", b"8"])[1])
+
+
 def _box(m, dy: float = 0.0) -> tuple[float, float, float, float]:
     attrs = m.group(1) + m.group(4)
-    size = float((re.search(rb'font-size="([\d.]+)"', attrs) or [b"", b"8"])[1])
+    size = _size(m)
     width = CHAR_WIDTH * size * len(m.group(5).decode("utf-8", "replace"))
     x, y = float(m.group(2)), float(m.group(3)) + dy
     anchor = (re.search(rb'text-anchor="(\w+)"', attrs) or [b"", b"start"])[1]
@@ -81,7 +85,7 @@ def declutter_svg(svg: bytes) -> bytes:
     placed: list[tuple[float, float, float, float]] = []
     shifts = {}
     for k, m in enumerate(matches):
-        size = float((re.search(rb'font-size="([\d.]+)"', m.group(1) + m.group(4)) or [b"", b"8"])[1])
+        size = _size(m)
         dy = 0.0
         for _ in range(8):
             box = _box(m, dy)

@@ -16,6 +16,7 @@ from rich.text import Text
 
 from ..core.caution import CAUTION
 from ..core.errors import shown
+from ..core.units import db_of_ratio, dbv
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 
@@ -57,10 +58,10 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
 
 def _signed_words(h) -> str:
     """When the stages' drops partly cancel: the network's own sum beside the worst case the level shows."""
-    if h.signed_v <= 0 or h.total_v <= 0 or 20 * math.log10(h.total_v / h.signed_v) < 0.05:
+    if h.total_v <= 0 or (h.signed_v > 0 and db_of_ratio(h.total_v / h.signed_v) < 0.05):
         return ""
-    return (f"; stages in phase, the worst case (with every stage non-inverting: "
-            f"{20 * math.log10(h.signed_v):.2f} dBV)")
+    signed = f"{dbv(h.signed_v):.2f} dBV" if h.signed_v > 0 else "they cancel"
+    return f"; stages in phase, the worst case (with every stage non-inverting: {signed})"
 
 
 def _summary(result: Result, console: Console, caution: bool) -> None:
