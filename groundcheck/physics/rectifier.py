@@ -39,6 +39,11 @@ __all__ = ["RectifierResult", "simulate", "harmonic_phasors", "STEPS_PER_PERIOD"
 #: integration steps per mains period
 STEPS_PER_PERIOD = 4096
 
+#: steady states already found in this process, by the rectifier's figures and the mains frequency: a long-running
+#: process (the live view, the advisor trying candidates) re-analyses plans whose rectifiers have not changed
+_SOLVED: dict[tuple[Rectifier, float], "RectifierResult"] = {}
+_SOLVED_MAX = 64
+
 
 
 @dataclass(frozen=True)
@@ -128,6 +133,20 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     References:
         O. H. Schade, 'Analysis of rectifier operation', Proc. IRE 31, 1943 (the circuit model).
     """
+    key = (r, float(frequency))                # a record's location does not take part in its equality
+    if key not in _SOLVED:
+        if len(_SOLVED) >= _SOLVED_MAX:
+            _SOLVED.pop(next(iter(_SOLVED)))
+        result = _simulate(r, frequency)
+        for a in (result.t, result.current, result.voltage, result.filter_current):
+            if a is not None:
+                a.flags.writeable = False      # shared between analyses: nobody may change it in place
+        _SOLVED[key] = result
+    return _SOLVED[key]
+
+
+def _simulate(r: Rectifier, frequency: float) -> RectifierResult:
+    """The steady state, solved (see :func:`simulate`)."""
     n = STEPS_PER_PERIOD
     T = 1.0 / frequency
     h = T / n
