@@ -19,6 +19,7 @@ from ..rules.catalogue import RULES, SEVERITIES
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import cmd_compare, cmd_suggest
+from .watch import add_watch_command, cmd_watch
 from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type,
                      quantity_type, seconds_type, write_output)
 
@@ -39,6 +40,7 @@ def build_parser() -> argparse.ArgumentParser:
     _suggest_command(sub)
     _compare_command(sub)
     _export_command(sub)
+    add_watch_command(sub)
     sub.add_parser("completion", help="print a shell completion script",
                    description="Example:\n  eval \"$(groundcheck completion bash)\"   (zsh: run "
                    "'autoload -U bashcompinit && bashcompinit' first)",
@@ -327,7 +329,8 @@ def cmd_completion(args) -> int:
 
 
 COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain,
-            "draw": cmd_draw, "report": cmd_report, "export": cmd_export, "completion": cmd_completion}
+            "draw": cmd_draw, "report": cmd_report, "export": cmd_export, "completion": cmd_completion,
+            "watch": cmd_watch}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -23,7 +23,7 @@ from collections import defaultdict
 from ..model.kinds import is_fastening
 from ..rules.results import Result
 
-__all__ = ["physical_dot", "topology_dot", "dot_quote", "ROLE_STYLE"]
+__all__ = ["physical_dot", "topology_dot", "dot_quote", "element_class", "ROLE_STYLE"]
 
 ROLE_STYLE = {
     "protective": {"color": "#2f7d32:#f2c200:#2f7d32", "penwidth": "2.2"},
@@ -42,6 +42,15 @@ def dot_quote(text: str) -> str:
     """A DOT double-quoted string: backslashes and quotes escaped, line breaks flattened."""
     s = str(text).replace("\\", "\\\\").replace('"', '\\"').replace("\r", " ").replace("\n", " ")
     return f'"{s}"'
+
+
+def element_class(name: str) -> str:
+    """The SVG class that marks a plan element's shapes in both drawings (the live view highlights by it).
+
+    Letters and digits are kept; every other character becomes ``_`` and its code in hex, so the class is one
+    token that no other name maps to.
+    """
+    return "gc-" + "".join(ch if ch.isascii() and ch.isalnum() else f"_{ord(ch):x}_" for ch in name)
 
 
 def _attrs(d: dict) -> str:
@@ -129,6 +138,7 @@ def _metals(plan, marks, scale, P, lines) -> None:
                  "label": " + ".join(x.name + (" [" + ", ".join(marks[x.name]) + "]" if x.name in marks else "")
                                      for x in group) if m is group[0] else "",
                  "labelloc": "b", "fontcolor": "#666666", "pos": f"{px:.1f},{py:.1f}!"}
+        style["class"] = element_class(m.name)
         lines.append(f"  {dot_quote('metal:' + m.name)} [{_attrs(style)}];")
 
 
@@ -149,6 +159,7 @@ def _points(plan, marks, positioned, P, lines) -> None:
         if name in marks:
             style.update(color="#e03030", penwidth="2.5", xlabel=f"{name} [{', '.join(marks[name])}]",
                          fontcolor="#b00000")
+        style["class"] = element_class(name)
         lines.append(f"  {dot_quote(name)} [{_attrs(style)}];")
 
 
@@ -182,6 +193,7 @@ def _conductors(result, marks, positioned, P, lines) -> None:
         if loop_members.get(c.name):
             base = f"{LOOP_HALO}:{base}:{LOOP_HALO}"
         style["color"] = base
+        style["class"] = element_class(c.name)
         for k, (u, v) in enumerate(zip(chain, chain[1:])):
             seg = dict(style)
             if k == (len(chain) - 2) // 2:
@@ -251,11 +263,11 @@ def topology_dot(result: Result) -> str:
     node_lines: dict[str | None, list[str]] = {}
     for m in plan.metals:
         style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8", "label": m.name,
-                 "color": "#e03030" if m.name in marks else "#9a9a9a"}
+                 "color": "#e03030" if m.name in marks else "#9a9a9a", "class": element_class(m.name)}
         node_lines.setdefault(clusters.get(m.name), []).append(f"  {dot_quote(m.name)} [{_attrs(style)}];")
     for p in plan.points:
         label = p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")
-        style = {"shape": "ellipse", "label": label}
+        style = {"shape": "ellipse", "label": label, "class": element_class(p.name)}
         if p.kind == "star":
             style.update(shape="star", width="0.4", height="0.4", fixedsize="true", label="", xlabel=label,
                          style="filled", fillcolor="#ffd54f")
@@ -276,6 +288,7 @@ def topology_dot(result: Result) -> str:
     for c in plan.conductors:
         style = dict(LIFT_STYLE if c.kind == "lift" else ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
         style["label"] = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
+        style["class"] = element_class(c.name)
         if not c.connects:
             style["style"] = "dotted"
         if c.name in marks:

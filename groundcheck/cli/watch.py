@@ -1,0 +1,263 @@
+"""``groundcheck watch``: a live view of a plan in the browser, re-analysed in this process whenever the plan (or
+a file it includes or places) is saved.
+
+The server is the standard library's threaded HTTP server, bound to 127.0.0.1 only and answering only requests
+addressed to this computer by name (``127.0.0.1`` or ``localhost``, so a web page elsewhere cannot reach it
+through a name of its own); the page learns of a new state by server-sent events.  Files are watched with
+``watchfiles`` (the folders holding the plan's files, so editors that save by renaming are seen).  Nothing is
+written to disk.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import secrets
+import signal
+import sys
+import threading
+import time
+from concurrent.futures import ThreadPoolExecutor
+from http.server import BaseHTTPRequestHandler, ThreadingHTTPServer
+from pathlib import Path
+
+from ..core.caution import CAUTION
+from ..core.errors import GroundcheckError, PlanErrors
+from .common import UsageError, add_analysis_options, load_plan, options_of
+
+__all__ = ["add_watch_command", "cmd_watch", "LiveView", "LiveHandler"]
+
+#: the port the view is served on unless --port says otherwise
+DEFAULT_PORT = 8470
+#: how often (s) an idle event stream sends a comment, so a closed browser tab is noticed
+KEEP_ALIVE = 10.0
+
+
+def add_watch_command(sub) -> None:
+    w = sub.add_parser("watch", help="show the plan live in the browser, re-checked whenever it is saved",
+                       description="Serve a page on this computer (127.0.0.1 only) with the drawings, findings, hum "
+                       "and protective-earth tables; it refreshes by itself within a fraction of a second of the "
+                       "plan, or a file it includes or places, being saved.  Ctrl-C stops.\n\n"
+                       "Example:\n  groundcheck watch examples/guitar-head.gplan --open",
+                       formatter_class=argparse.RawDescriptionHelpFormatter)
+    w.add_argument("plan", metavar="PLAN")
+    w.add_argument("--port", type=int, default=DEFAULT_PORT, metavar="N",
+                   help=f"the local port to serve on (default {DEFAULT_PORT}; 0 picks a free one)")
+    w.add_argument("--open", action="store_true", help="open the page in the default web browser")
+    w.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
+                   help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
+    add_analysis_options(w)
+
+
+class LiveView:
+    """The plan's latest state, re-made on demand, and the condition the event streams wait on."""
+
+    def __init__(self, plan: str, options, renderer: str = "auto", log=sys.stderr):
+        self.plan, self.options, self.renderer, self.log = plan, options, renderer, log
+        self.changed = threading.Condition()
+        self.version = 0
+        self.state = b"{}"
+        self.files: set[Path] = {Path(plan).resolve()}
+        self._good_result = None
+        self._good_state: dict | None = None
+        self._pool = ThreadPoolExecutor(max_workers=2)
+
+    def refresh(self) -> None:
+        """Load, analyse and draw the plan again; publish the new state (or the errors) to every page."""
+        from ..analysis import analyze
+        from ..renderers.live import error_state, live_state, status_line
+        t0 = time.perf_counter()
+        try:
+            plan = load_plan(self.plan)
+            result = analyze(plan, self.options)
+        except PlanErrors as e:
+            self._publish(error_state(e.errors, self._good_state))
+            self._say(f"plan error: {e.errors[0].one_line()}"
+                      + (f" (and {len(e.errors) - 1} more)" if len(e.errors) > 1 else ""))
+            return
+        except GroundcheckError as e:     # a file that vanished while the editor saved it, an unreadable include
+            self._publish(error_state([], self._good_state) | {"error": [{"where": self.plan, "message": str(e),
+                                                                           "hint": "", "line": ""}]})
+            self._say(f"error: {e}")
+            return
+        self.files = {Path(f).resolve() for f in plan.files} | {Path(self.plan).resolve()}
+        physical, topology = self._drawings(result)
+        seconds = time.perf_counter() - t0
+        state = live_state(result, physical, topology, self._good_result, _lines(plan.files), seconds)
+        self._good_result, self._good_state = result, state
+        self._publish(state)
+        self._say(status_line(result, seconds))
+
+    def _drawings(self, result):
+        """Both drawings as SVG text, drawn side by side (None for one that cannot be drawn)."""
+        from ..renderers.dot import physical_dot, topology_dot
+        from ..renderers.drawing import DrawingError, render_dot
+
+        def draw(source, engine):
+            try:
+                return render_dot(source, "svg", engine, self.renderer)[0].decode("utf-8")
+            except DrawingError:
+                return None
+        has_pos = any(p.pos is not None for p in result.plan.points)
+        phys = self._pool.submit(draw, physical_dot(result), "neato") if has_pos else None
+        topo = self._pool.submit(draw, topology_dot(result), "dot")
+        return (phys.result() if phys else None), topo.result()
+
+    def _publish(self, state: dict) -> None:
+        data = json.dumps(state, ensure_ascii=False, allow_nan=False, default=str).encode("utf-8")
+        with self.changed:
+            self.version += 1
+            self.state = data
+            self.changed.notify_all()
+
+    def _say(self, text: str) -> None:
+        from ..core.errors import shown
+        self.log.write(f"{time.strftime('%H:%M:%S')}  {shown(text)}\n")
+        self.log.flush()
+
+    def close(self) -> None:
+        self._pool.shutdown(wait=False, cancel_futures=True)
+
+
+def _lines(files) -> dict[str, list[str]]:
+    out = {}
+    for f in files:
+        try:
+            out[f] = Path(f).read_text(encoding="utf-8", errors="replace").splitlines()
+        except OSError:
+            out[f] = []
+    return out
+
+
+class LiveHandler(BaseHTTPRequestHandler):
+    """Answers the page, its state and its event stream; made for one view by :func:`make_handler`."""
+
+    view: LiveView
+    stop: threading.Event
+    server_version = "groundcheck-live"
+    protocol_version = "HTTP/1.1"
+
+    def log_message(self, *args) -> None:      # the terminal shows one line per change, not per request
+        pass
+
+    def _local(self) -> bool:
+        port = self.server.server_address[1]
+        host = (self.headers.get("Host") or "").strip().lower()
+        return self.client_address[0] == "127.0.0.1" and host in (f"127.0.0.1:{port}", f"localhost:{port}")
+
+    def _send(self, code: int, body: bytes, kind: str, extra: dict | None = None) -> None:
+        self.send_response(code)
+        for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",
+                     "X-Content-Type-Options": "nosniff", **(extra or {})}.items():
+            self.send_header(k, v)
+        self.end_headers()
+        self.wfile.write(body)
+
+    def do_GET(self) -> None:  # noqa: N802 - the standard library's name
+        if not self._local():
+            self._send(403, b"groundcheck's live view answers this computer only (127.0.0.1)\n", "text/plain")
+            return
+        path = self.path.split("?", 1)[0]
+        if path == "/":
+            from ..renderers.live_page import live_page
+            nonce = secrets.token_urlsafe(16)
+            csp = (f"default-src 'none'; script-src 'nonce-{nonce}'; style-src 'unsafe-inline'; "
+                   "connect-src 'self'; img-src data:; base-uri 'none'; form-action 'none'")
+            self._send(200, live_page(nonce, CAUTION).encode("utf-8"), "text/html; charset=utf-8",
+                       {"Content-Security-Policy": csp, "Referrer-Policy": "no-referrer"})
+        elif path == "/state":
+            with self.view.changed:            # the first analysis may still be running
+                self.view.changed.wait_for(lambda: self.view.version > 0 or self.stop.is_set(), timeout=60)
+                body = self.view.state
+            self._send(200, body, "application/json; charset=utf-8")
+        elif path == "/events":
+            self._events()
+        else:
+            self._send(404, b"not found\n", "text/plain")
+
+    def _events(self) -> None:
+        self.send_response(200)
+        self.send_header("Content-Type", "text/event-stream")
+        self.send_header("Cache-Control", "no-store")
+        self.end_headers()
+        self.close_connection = True
+        seen = -1
+        try:
+            while not self.stop.is_set():
+                with self.view.changed:            # version 0: no state yet, nothing to announce
+                    if self.view.version in (seen, 0):
+                        self.view.changed.wait(KEEP_ALIVE)
+                    version = self.view.version
+                if version not in (seen, 0):
+                    self.wfile.write(f"event: state\ndata: {version}\n\n".encode())
+                    seen = version
+                else:
+                    self.wfile.write(b": still here\n\n")
+                self.wfile.flush()
+        except (BrokenPipeError, ConnectionResetError):
+            pass
+
+
+def make_handler(view: LiveView, stop: threading.Event) -> type:
+    """The request handler class of one live view."""
+    return type("Handler", (LiveHandler,), {"view": view, "stop": stop})
+
+
+def _watch_files(view: LiveView, stop: threading.Event) -> None:
+    """Re-check the plan whenever one of its files is saved (until ``stop``); the folders watched follow the
+    files the plan includes or places."""
+    from watchfiles import watch
+    while not stop.is_set():
+        files = set(view.files)
+        folders = sorted({str(f.parent) for f in files if f.parent.is_dir()})
+        if not folders:
+            stop.wait(0.5)
+            continue
+        for changes in watch(*folders, stop_event=stop, debounce=40, step=20, rust_timeout=500,
+                             yield_on_timeout=True, raise_interrupt=False):
+            if any(Path(p).resolve() in files for _, p in changes):
+                view.refresh()
+            if view.files != files:
+                break
+
+
+def cmd_watch(args) -> int:
+    if not Path(args.plan).is_file():
+        raise UsageError(f"cannot watch {args.plan!r}: no such file (give a plan file, not '-' or a folder)")
+    if not 0 <= args.port <= 65535:
+        raise UsageError(f"port {args.port} is out of range (0 to 65535; 0 picks a free one)")
+    view = LiveView(args.plan, options_of(args), args.renderer)
+    stop = threading.Event()
+    try:
+        server = ThreadingHTTPServer(("127.0.0.1", args.port), make_handler(view, stop))
+    except OSError as e:
+        raise UsageError(f"cannot serve on 127.0.0.1:{args.port}: {e.strerror or e} (give another --port, or 0 "
+                         "for a free one)") from None
+    server.daemon_threads = True
+    url = f"http://127.0.0.1:{server.server_address[1]}/"
+    sys.stderr.write(f"groundcheck: live view of {args.plan} at {url} (this computer only; Ctrl-C stops)\n"
+                     f"groundcheck: {CAUTION}\n")
+    threads = [threading.Thread(target=server.serve_forever, kwargs={"poll_interval": 0.2}, daemon=True),
+               threading.Thread(target=_watch_files, args=(view, stop), daemon=True)]
+    for t in threads:                 # watching before the first analysis: a save during it is not missed
+        t.start()
+    view.refresh()
+    if args.open:
+        import webbrowser
+        webbrowser.open(url)
+    previous = signal.signal(signal.SIGTERM, lambda *_: stop.set())
+    try:
+        while not stop.wait(0.5):
+            pass
+    except KeyboardInterrupt:
+        pass
+    finally:
+        stop.set()
+        with view.changed:
+            view.changed.notify_all()
+        server.shutdown()
+        server.server_close()
+        view.close()
+        signal.signal(signal.SIGTERM, previous)
+    sys.stderr.write("groundcheck: live view stopped\n")
+    return 0

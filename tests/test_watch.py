@@ -1,0 +1,180 @@
+"""The live view (``groundcheck watch``) in a real headless Chromium: the page follows the plan's edits, shows a
+plan error with its place over the greyed last good result, highlights a finding's elements, shows a conductor's
+figures; the server answers this computer only and stops cleanly on SIGTERM, leaving no file behind."""
+
+from __future__ import annotations
+
+import json
+import queue
+import re
+import signal
+import socket
+import subprocess
+import sys
+import threading
+import time
+import urllib.error
+import urllib.request
+
+import pytest
+
+from browser import CHROMIUM, Browser
+from helpers import ROOT
+
+pytestmark = pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (Debian package "
+                                                         "'chromium'; .ci/run installs it)")
+
+EXAMPLE = ROOT / "examples" / "guitar-head.gplan"
+MISTAKE = "wire filt_lead: filt_neg to v1_k, 140 mm, 0.5 mm2, return"
+MENDED = "wire filt_lead: filt_neg to res_neg, 72 mm, 0.5 mm2, return"
+
+
+def _start(plan, *extra):
+    proc = subprocess.Popen([sys.executable, "-m", "groundcheck", "watch", str(plan), "--port", "0", *extra],
+                            stderr=subprocess.PIPE, stdout=subprocess.DEVNULL, text=True, cwd=plan.parent)
+    proc.lines = queue.Queue()                 # its standard error, line by line, read by a thread of its own
+    proc.reader = threading.Thread(target=lambda: [proc.lines.put(x) for x in proc.stderr], daemon=True)
+    proc.reader.start()
+    first = _line(proc)
+    m = re.search(r"http://127\.0\.0\.1:(\d+)/", first)
+    assert m, first
+    return proc, int(m.group(1))
+
+
+def _line(proc, timeout: float = 30.0) -> str:
+    return proc.lines.get(timeout=timeout)
+
+
+def _stop(proc, how=signal.SIGTERM) -> str:
+    """A signal (SIGTERM, or SIGINT as Ctrl-C sends), then everything it wrote to standard error not read yet."""
+    proc.send_signal(how)
+    proc.wait(20)
+    proc.reader.join(10)
+    out = []
+    while not proc.lines.empty():
+        out.append(proc.lines.get())
+    return "".join(out)
+
+
+def _edit(path, old, new):
+    text = path.read_text()
+    assert old in text
+    path.write_text(text.replace(old, new))
+
+
+def _page_verdict(browser) -> str:
+    return browser.js("document.getElementById('badge').textContent")
+
+
+@pytest.fixture
+def watched(tmp_path):
+    plan = tmp_path / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    proc, port = _start(plan)
+    browser = Browser(f"http://127.0.0.1:{port}/", str(tmp_path.parent / f"{tmp_path.name}-profile"))
+    yield plan, proc, port, browser
+    browser.close()
+    if proc.poll() is None:
+        proc.kill()
+        proc.wait()
+
+
+def test_the_page_follows_edits_errors_and_clicks(watched, tmp_path):
+    plan, proc, port, browser = watched
+    browser.wait_for("document.getElementById('badge').textContent === 'worst finding: fault'")
+    assert browser.js("document.querySelectorAll('#physical svg, #topology svg').length") == 2
+    # hovering a finding marks its elements in both drawings and shows its plan line
+    browser.js("document.querySelector('tr.finding').dispatchEvent(new MouseEvent('mouseenter'))")
+    assert browser.js("document.querySelectorAll('#physical .hl').length") >= 1
+    assert browser.js("document.querySelectorAll('#topology .hl').length") >= 1
+    assert "head.gplan:" in browser.js("document.getElementById('planline').textContent")
+    # clicking a conductor in the drawing shows its figures
+    browser.js("document.querySelector('#physical g.edge.gc-k_5f_gnd').dispatchEvent(new MouseEvent('click'))")
+    inspect = browser.js("document.getElementById('inspect').textContent")
+    assert "k_gnd" in inspect and "resistance" in inspect and "mΩ" in inspect
+
+    # a plan error: its place on the page, the last good drawing kept and greyed
+    plan.write_text(plan.read_text() + "wire broken: star to\n")
+    browser.wait_for("document.getElementById('badge').textContent === 'plan error'")
+    errors = browser.js("document.getElementById('errors').textContent")
+    assert re.search(r"head\.gplan:\d+:\d+", errors), errors
+    assert browser.js("document.body.classList.contains('stale')")
+    assert browser.js("document.querySelectorAll('#physical svg').length") == 1
+
+    # the mend: the filter's return joined to the reservoir clears the shared-return finding
+    plan.write_text(plan.read_text().replace("wire broken: star to\n", "").replace(MISTAKE, MENDED))
+    expected = json.loads(subprocess.run([sys.executable, "-m", "groundcheck", "check", str(plan), "--format",
+                                          "json"], capture_output=True, text=True).stdout)
+    worst = expected["summary"]["worst"]
+    want = "clean" if worst is None else f"worst finding: {worst}"
+    browser.wait_for("!document.body.classList.contains('stale')")
+    assert _page_verdict(browser) == want
+    changes = browser.js("document.getElementById('sec-changes').textContent")
+    assert "cleared GC102" in changes and "dBV" in changes
+    assert "GC102" not in browser.js("document.getElementById('sec-findings').textContent")
+    browser.screenshot(tmp_path / "live.png")
+
+    err = _stop(proc)
+    assert proc.returncode == 0 and "live view stopped" in err and "Traceback" not in err
+    # one status line per change: the first analysis, the error, the mend
+    assert len(re.findall(r"^\d\d:\d\d:\d\d  ", err, flags=re.M)) >= 2
+    assert "plan error: " in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["head.gplan", "live.png"]
+
+
+def test_the_server_answers_this_computer_only(tmp_path):
+    plan = tmp_path / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    proc, port = _start(plan)
+    try:
+        with urllib.request.urlopen(f"http://127.0.0.1:{port}/state", timeout=10) as r:
+            assert json.loads(r.read())["ok"] is True
+        # a request naming another host (a page elsewhere rebinding its name to 127.0.0.1) is refused
+        req = urllib.request.Request(f"http://127.0.0.1:{port}/state", headers={"Host": f"example.test:{port}"})
+        with pytest.raises(urllib.error.HTTPError) as e:
+            urllib.request.urlopen(req, timeout=10)
+        assert e.value.code == 403
+        # bound to 127.0.0.1 only: another address of this computer is not served
+        with pytest.raises(OSError):
+            socket.create_connection(("127.0.0.2", port), timeout=2).close()
+        with urllib.request.urlopen(f"http://127.0.0.1:{port}/", timeout=10) as r:
+            csp = r.headers["Content-Security-Policy"]
+            page = r.read().decode()
+        assert "script-src 'nonce-" in csp and "default-src 'none'" in csp
+        assert not re.search(r'(src|href)\s*=\s*"https?:', page)          # no network fetches
+        assert "Never lift the protective earth" in page
+    finally:
+        err = _stop(proc)
+    assert proc.returncode == 0 and "Traceback" not in err
+
+
+def test_watch_refuses_what_it_cannot_watch(tmp_path, cli):
+    code, _, err = cli("watch", str(tmp_path / "missing.gplan"))
+    assert code == 2 and "no such file" in err and "\n" == err[-1] and err.count("\n") == 1
+    code, _, err = cli("watch", str(EXAMPLE), "--port", "70000")
+    assert code == 2 and "out of range" in err
+    busy = socket.socket()
+    busy.bind(("127.0.0.1", 0))
+    busy.listen()
+    try:
+        code, _, err = cli("watch", str(EXAMPLE), "--port", str(busy.getsockname()[1]))
+        assert code == 2 and "cannot serve on 127.0.0.1" in err and "another --port" in err
+    finally:
+        busy.close()
+
+
+def test_status_line_follows_a_save_quickly(tmp_path):
+    """The terminal's status line after a save: the new verdict and hum (latency is measured in benchmarks/)."""
+    plan = tmp_path / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    proc, port = _start(plan)
+    try:
+        assert "GC102" in _line(proc) + _line(proc)
+        time.sleep(0.5)
+        _edit(plan, MISTAKE, MENDED)
+        line = _line(proc)
+        assert re.match(r"\d\d:\d\d:\d\d  ", line) and "GC102" not in line and "dBV" in line and " ms" in line
+    finally:
+        err = _stop(proc, signal.SIGINT)
+    assert proc.returncode == 0 and "live view stopped" in err and "Traceback" not in err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["head.gplan"]
