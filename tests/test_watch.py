@@ -7,6 +7,7 @@ from __future__ import annotations
 import json
 import queue
 import re
+import shutil
 import signal
 import socket
 import subprocess
@@ -178,3 +179,18 @@ def test_status_line_follows_a_save_quickly(tmp_path):
         err = _stop(proc, signal.SIGINT)
     assert proc.returncode == 0 and "live view stopped" in err and "Traceback" not in err
     assert sorted(p.name for p in tmp_path.iterdir()) == ["head.gplan"]
+
+
+def test_a_placed_device_plan_is_watched_too(tmp_path):
+    shutil.copytree(ROOT / "examples" / "studio", tmp_path / "studio")
+    device = tmp_path / "studio" / "devices" / "valve-line-preamp.gplan"
+    proc, _ = _start(tmp_path / "studio" / "project-studio.gplan")
+    try:
+        _line(proc), _line(proc)                         # the caution, the first analysis
+        time.sleep(0.5)
+        device.write_text(device.read_text() + "oops here\n")
+        line = _line(proc)
+        assert "plan error: " in line and "valve-line-preamp.gplan:" in line
+    finally:
+        _stop(proc)
+    assert proc.returncode == 0

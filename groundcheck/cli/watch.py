@@ -71,6 +71,8 @@ class LiveView:
             plan = load_plan(self.plan)
             result = analyze(plan, self.options)
         except PlanErrors as e:
+            # the files the errors are in are watched too (a device plan broken since the start, say)
+            self.files |= {Path(x.location.file).resolve() for x in e.errors if Path(x.location.file).is_file()}
             self._publish(error_state(e.errors, self._good_state))
             self._say(f"plan error: {e.errors[0].one_line()}"
                       + (f" (and {len(e.errors) - 1} more)" if len(e.errors) > 1 else ""))
@@ -80,10 +82,11 @@ class LiveView:
                                                                            "hint": "", "line": ""}]})
             self._say(f"error: {e}")
             return
-        self.files = {Path(f).resolve() for f in plan.files} | {Path(self.plan).resolve()}
+        read = (*plan.files, *plan.device_files)
+        self.files = {Path(f).resolve() for f in read} | {Path(self.plan).resolve()}
         physical, topology = self._drawings(result)
         seconds = time.perf_counter() - t0
-        state = live_state(result, physical, topology, self._good_result, _lines(plan.files), seconds)
+        state = live_state(result, physical, topology, self._good_result, _lines(read), seconds)
         self._good_result, self._good_state = result, state
         self._publish(state)
         self._say(status_line(result, seconds))

@@ -188,6 +188,7 @@ def assemble(built: list, file: str, ld) -> Plan:
         heaters=tuple(r for r, *_ in groups[Heater]), stages=tuple(stages),
         fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
         device_supplies=tuple(s for s, _ in supplies), acceptances=acceptances(ld.sources),
+        device_files=tuple(ld.device_files),
     )
 
 

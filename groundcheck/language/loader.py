@@ -110,6 +110,7 @@ class _Loader:
         self.sources: dict[str, list[str]] = {}
         self.blocks: dict[str, BlockDef] = {}
         self.files: list[str] = []
+        self.device_files: list[str] = []
         self.count = 0
         self.placed = 0                       # elements made by block placements, counted before expanding
         self._size_cache: dict[str, int] = {}
@@ -119,7 +120,9 @@ class _Loader:
     # ---- files and includes ------------------------------------------------
     def load_device(self, path: Path) -> Plan:
         """A device's own plan, loaded with this plan's library folders and the devices placing it."""
-        return load(path, libraries=self.libraries, _devices=self.device_stack)
+        plan = load(path, libraries=self.libraries, _devices=self.device_stack)
+        self.device_files.extend(f for f in (*plan.files, *plan.device_files) if f not in self.device_files)
+        return plan
 
     def read_items(self, text: str, shown: str, stack: tuple[Path, ...]) -> list:
         if len(text) > LIMITS["file_bytes"]:

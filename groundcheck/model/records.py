@@ -311,6 +311,7 @@ class Plan:
     device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
     acceptances: tuple[tuple[str, int, tuple[str, ...], str],
                        ...] = ()   # (file, line, codes, reason) of '# accept' comments
+    device_files: tuple[str, ...] = ()   # the files of placed devices' own plans (and what they include)
 
     @property
     def frequency(self) -> float:
