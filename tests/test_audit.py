@@ -124,15 +124,24 @@ def test_loop_classes_and_areas():
 
 def test_examples_mistakes_are_found_with_fixes():
     by_name = {p.name: analyze(load(p)) for p in EXAMPLES}
-    dm = by_name["dual-mono-line-stage.gplan"]
+    dm = by_name["dual-mono-phono-stage.gplan"]
     found = {(f.code, e) for f in dm.findings for e in f.elements}
-    assert ("GC102", "left.sup_gnd") in found and ("GC102", "right.sup_gnd") in found      # mistake 1
-    assert ("GC101", "channel_tie") in found                                               # mistake 2
+    assert ("GC105", "arm_gnd") in found and ("GC101", "arm_gnd") in found                  # mistake 1
+    assert ("GC103", "right.out_sleeve") in found and ("GC103", "left.out_sleeve") not in found   # mistake 2
+    assert ("GC102", "filt_gnd") in found and ("GC102", "right.v2") in found                # mistake 3
+    assert not any(e.startswith("left.") for f in dm.findings if f.code == "GC102" for e in f.elements)
     assert all(f.fix for f in dm.findings)
-    mb = by_name["monoblock-power-amp.gplan"]
+    # the one bond kept is the supply star's stud, nearer the protective earth's stud on the base than the post
+    bond = next(f for f in dm.findings if f.code == "GC105")
+    assert "keep the bond at sig_stud" in bond.fix and ("remove", "arm_gnd") in bond.actions
+    mb = by_name["headphone-amp-100v.gplan"]
     got = {f.code for f in mb.findings}
-    assert {"GC202", "GC105", "GC108"} <= got                                               # mistakes 1, 2, 3
-    assert not {"GC201", "GC203", "GC204", "GC205", "GC206", "GC207"} & got                 # the clean parts stay quiet
+    assert {"GC206", "GC102", "GC304"} <= got                                                # mistakes 1, 2, 3
+    pe = next(f for f in mb.findings if f.code == "GC206")
+    assert pe.elements == ("front",) or "front" in pe.elements
+    shared = {e for f in mb.findings if f.code == "GC102" for e in f.elements}
+    assert "in_gnd" in shared
+    assert not {"GC201", "GC202", "GC203", "GC204", "GC205", "GC207", "GC211"} & got        # the clean parts stay quiet
 
 
 # --- loop invariants -------------------------------------------------------------------------------
@@ -203,3 +212,25 @@ def test_incomplete_plans_are_not_called_clean():
              "wire short: far1 to far2, 10 mm, 0.5 mm2\nwire w9: far2 to star, 120 mm, 0.5 mm2\n")
     (f,) = [f for f in analyze(q).findings if f.code == "GC112"]
     assert f.figures["route_mm"] == pytest.approx(250.0, abs=0.1) and "short" in f.elements
+
+
+def test_the_bond_kept_is_the_one_nearer_the_protective_earth_on_the_plate():
+    # two studs equally many hops from the inlet's earth terminal (both bolted to the deck): the one kept is the
+    # one nearer the protective-earth stud on the deck, by hand: z_stud 30 mm away, a_stud 250 mm (by name alone,
+    # a_stud would have been kept)
+    p = plan("""
+    metal deck: aluminium 2 mm, 300 x 200 mm, touchable
+    point pe: stud, at 10,10 on deck
+    wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective
+    bolt pe_nut: pe to deck
+    point z_stud: stud, at 10,40 on deck
+    point a_stud: stud, at 260,10 on deck
+    bolt z_nut: z_stud to deck
+    bolt a_nut: a_stud to deck
+    point star: star, at 150,100 on deck
+    wire z_bond: star to z_stud, 160 mm, 0.5 mm2, signal
+    wire a_bond: star to a_stud, 160 mm, 0.5 mm2, signal
+    """)
+    result, _ = audit(p)
+    (f,) = [f for f in result if f.code == "GC105"]
+    assert "keep the bond at z_stud" in f.fix and ("remove", "a_bond") in f.actions

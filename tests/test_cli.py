@@ -14,19 +14,20 @@ from groundcheck.rules.catalogue import RULES
 from helpers import EXAMPLES, ROOT
 
 DUAL = str(next(e for e in EXAMPLES if e.name.startswith("dual-mono")))
-MONO = str(next(e for e in EXAMPLES if e.name.startswith("monoblock")))
+MONO = str(next(e for e in EXAMPLES if e.name.startswith("headphone")))
 
 
 def test_check_text_report(cli):
     code, out, err = cli("check", MONO)
     assert code == 1 and err == ""
-    for text in ("GC202", "GC105", "GC108", "Protective earth", "Hum and buzz", "Never lift the protective earth"):
+    for text in ("GC206", "GC102", "GC304", "Protective earth", "Hum and buzz", "Never lift the protective earth"):
         assert text in out
 
 
 def test_fail_on_threshold(cli):
-    assert cli("check", MONO, "--fail-on", "danger")[0] == 0
-    assert cli("check", MONO, "--fail-on", "warning")[0] == 1
+    assert cli("check", DUAL, "--fail-on", "danger")[0] == 0          # a fault, no danger
+    assert cli("check", DUAL, "--fail-on", "fault")[0] == 1
+    assert cli("check", MONO, "--fail-on", "danger")[0] == 1          # the front panel's protective path
 
 
 def test_clean_plan_exits_zero(cli, tmp_path):
@@ -45,7 +46,11 @@ def test_json_document(cli):
     assert set(f) >= {"code", "severity", "message", "location", "elements", "figures", "fix"}
     assert set(f["location"]) == {"file", "line", "column"}
     assert doc["summary"]["fault"] == sum(1 for x in doc["findings"] if x["severity"] == "fault")
-    assert doc["loops"][0]["closed_by"] == "channel-returns" and doc["loops"][0]["area_mm2"] == 3800.0
+    # the loop base -> gnd_post -> left.in_sleeve -> left.star -> psu_star -> sig_stud -> base, by the shoelace
+    # formula on the plan's positions (mm): (350,205) (345,35) (260,90) (150,160) (175,195)
+    pts = [(350, 205), (345, 35), (260, 90), (150, 160), (175, 195)]
+    area = abs(sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(pts, pts[1:] + pts[:1]))) / 2
+    assert doc["loops"][0]["closed_by"] == "second-chassis-bond" and doc["loops"][0]["area_mm2"] == pytest.approx(area)
     assert "NaN" not in out and "Infinity" not in out
     # the same plan gives the same bytes
     assert cli("check", DUAL, "--format", "json")[1] == out
@@ -97,7 +102,7 @@ def test_export_spice(cli, tmp_path):
     assert ".ac lin 1 1000 1000" in out
     # elements named after the plan's conductors; a name taken twice gets a suffix, never a clash
     names = [line.split()[0] for line in out.splitlines() if line and line[0] in "RLCI"]
-    assert "R_left_sup_gnd" in names and "L_left_sup_gnd" in names and "R_plate_deck_1_2" in names
+    assert "R_left_in_gnd" in names and "L_left_in_gnd" in names and "R_plate_base_1_2" in names
     assert len({n.lower() for n in names}) == len(names)
 
 
@@ -140,7 +145,7 @@ def test_library_entry_points():
     r = groundcheck.analyze(groundcheck.load(MONO))
     assert json.loads(groundcheck.render(r, "json"))["summary"]["fault"] >= 1
     assert groundcheck.render(r, "sarif").lstrip().startswith("{")
-    assert "GC202" in groundcheck.render(r, "text")
+    assert "GC206" in groundcheck.render(r, "text")
     assert groundcheck.render(r, "dot").startswith("graph physical")
     assert groundcheck.render(r, "html").startswith("<!DOCTYPE html>")
     with pytest.raises(ValueError):
@@ -180,8 +185,7 @@ def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
 
 def test_compare_fails_a_review_when_the_after_plan_introduces_findings(cli, tmp_path):
     worse = tmp_path / "worse.gplan"
-    worse.write_text(open(MONO).read().replace("shield in_shield:", "shield in_shield2: in_sleeve to v1_grid_gnd, 60 "
-                                                                    "mm, 0.2 mm2\nshield in_shield:", 1))
+    worse.write_text(open(MONO).read() + "shield in_shield: in_l to in_gnd_pad, 30 mm, 0.2 mm2, terminated both\n")
     assert cli("compare", MONO, str(worse))[0] == 0
     assert cli("compare", MONO, str(worse), "--fail-on", "introduced")[0] == 1
     assert cli("compare", MONO, MONO, "--fail-on", "introduced")[0] == 0
@@ -202,9 +206,9 @@ PE_DANGER = ('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-co
 
 def test_inline_acceptance_in_every_format_and_never_for_a_danger_by_default(cli, tmp_path):
     p = tmp_path / "a.gplan"
-    p.write_text(open(MONO).read().replace("bolt in_jack_nut: in_sleeve to chassis",
-                                           "bolt in_jack_nut: in_sleeve to chassis  # accept GC101: insulated in the "
-                                           "build"))
+    p.write_text(open(DUAL).read().replace("wire arm_gnd: gnd_post to left.in_sleeve, 175 mm, 0.5 mm2, signal",
+                                           "wire arm_gnd: gnd_post to left.in_sleeve, 175 mm, 0.5 mm2, signal  "
+                                           "# accept GC101: the arm's lead, to be lifted at the turntable"))
     doc = json.loads(cli("check", str(p), "--format", "json")[1])
     acc = [f for f in doc["findings"] if f["accepted"]]
     assert [f["code"] for f in acc] == ["GC101"] and doc["summary"]["accepted"] == 1
@@ -220,14 +224,14 @@ def test_inline_acceptance_in_every_format_and_never_for_a_danger_by_default(cli
 
 
 def test_select_ignore_and_the_settings_file(cli, tmp_path, monkeypatch):
-    doc = json.loads(cli("check", MONO, "--format", "json", "--select", "GC202,shield-both-ends")[1])
-    assert {f["code"] for f in doc["findings"]} == {"GC202", "GC108"}
-    doc = json.loads(cli("check", MONO, "--format", "json", "--ignore", "GC202")[1])
-    assert "GC202" not in {f["code"] for f in doc["findings"]}
-    (tmp_path / "pyproject.toml").write_text('[tool.groundcheck]\nignore = ["GC202"]\nfail-on = "danger"\n')
+    doc = json.loads(cli("check", MONO, "--format", "json", "--select", "GC206,crosstalk")[1])
+    assert {f["code"] for f in doc["findings"]} == {"GC206", "GC304"}
+    doc = json.loads(cli("check", MONO, "--format", "json", "--ignore", "GC206")[1])
+    assert "GC206" not in {f["code"] for f in doc["findings"]}
+    (tmp_path / "pyproject.toml").write_text('[tool.groundcheck]\nignore = ["GC206"]\nfail-on = "danger"\n')
     monkeypatch.chdir(tmp_path)
     code, out, _ = cli("check", MONO, "--format", "json")
-    assert code == 0 and "GC202" not in {f["code"] for f in json.loads(out)["findings"]}
+    assert code == 0 and "GC206" not in {f["code"] for f in json.loads(out)["findings"]}
     (tmp_path / "groundcheck.toml").write_text('colour = "red"\n')
     code, _, err = cli("check", MONO)
     assert code == 2 and "unknown setting 'colour'" in err

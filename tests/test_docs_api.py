@@ -20,4 +20,4 @@ def test_api_guide_examples_run(capsys):
     finally:
         os.chdir(here)
     out = capsys.readouterr().out
-    assert "Monoblock valve power amplifier" in out and "unknown unit" in out and "2.1.0" in out
+    assert "Headphone amplifier, 100 V / 60 Hz" in out and "unknown unit" in out and "2.1.0" in out

@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from groundcheck import load
+from groundcheck import load, load_text
 from groundcheck.analysis import analyze
 from groundcheck.core.units import dbv
 from groundcheck.physics.hearing import dbu_from_dbv, spl_at_listener, threshold_of_hearing
@@ -197,9 +197,19 @@ def test_threshold_interpolates_on_log_frequency():
 
 
 def test_symmetric_dual_mono_gives_identical_channels():
-    r = analyze(load(next(e for e in EXAMPLES if e.name.startswith("dual-mono"))))
+    # the phono example with its channels made alike: both equalisation grounds on the filter capacitor's
+    # negative (a shared return each), both outputs to their own star, links of one length, no ground post wire
+    text = next(e for e in EXAMPLES if e.name.startswith("dual-mono")).read_text()
+    for old, new in (("left.eq_gnd to left.star, 35 mm", "left.eq_gnd to filt_neg, 110 mm"),
+                     ("right.out_sleeve to right.v2_k, 125 mm", "right.out_sleeve to right.star, 95 mm"),
+                     ("left.star to psu_star, 160 mm", "left.star to psu_star, 150 mm"),
+                     ("right.star to psu_star, 140 mm", "right.star to psu_star, 150 mm"),
+                     ("wire arm_gnd:", "# wire arm_gnd:")):
+        assert old in text
+        text = text.replace(old, new)
+    r = analyze(load_text(text, "symmetric.gplan"))
     left, right = r.hum.channels["left"], r.hum.channels["right"]
-    assert left.total_v == pytest.approx(right.total_v, rel=1e-9)
+    assert left.total_v > 0 and left.total_v == pytest.approx(right.total_v, rel=1e-9)
     for a, b in zip(left.spectrum, right.spectrum):
         assert a["volts"] == pytest.approx(b["volts"], rel=1e-6, abs=1e-15)
 
@@ -214,11 +224,11 @@ def test_examples_report_budget_with_contributors_and_verdict(path):
 
 
 def test_audible_hum_is_a_fault_with_contributors():
-    r = analyze(load(next(e for e in EXAMPLES if e.name.startswith("dual-mono"))))
+    r = analyze(load(next(e for e in EXAMPLES if e.name.startswith("headphone"))))
     audible = [f for f in r.findings if f.code == "GC303"]
     assert {f.elements[0] for f in audible} == {"left", "right"}
     assert all(f.severity == "fault" for f in audible)
-    assert any(f.code == "GC301" and "left.sup_gnd" in f.elements for f in r.findings)
+    assert any(f.code == "GC301" and "in_gnd" in f.elements for f in r.findings)
 
 
 def test_worst_case_adds_stage_shares_in_magnitude_and_shares_add_up():

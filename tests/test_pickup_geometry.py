@@ -101,17 +101,18 @@ def test_height_axis_and_size_are_read_and_checked():
 
 
 def test_loops_near_a_source_are_noted_with_the_model_used():
-    from groundcheck import load
     from groundcheck.analysis import analyze
     from helpers import EXAMPLES
-    mono = next(e for e in EXAMPLES if e.name.startswith("monoblock"))
-    r = analyze(load(mono))
+    head = next(e for e in EXAMPLES if e.name.startswith("guitar-head"))
+    # the transformer moved onto the chassis loop's wire bond_stud -> star, and a choke added beside star -> in_sleeve
+    text = head.read_text().replace("field ptx: transformer, at 90,60,", "field ptx: transformer, at 150,126,")
+    text += "field choke: choke, at 300,80, 20 uT at 5 cm, height 30 mm, size 50 mm\n"
+    r = analyze(load_text(text, str(head)))
     notes = [f for f in r.findings if f.code == "GC305"]
     assert {f.elements[1] for f in notes} == {"ptx", "choke"} and all("ring model" in f.message for f in notes)
-    entry = next(row for row in r.hum.loops if row["loop"] == 2)["sources"]["choke"]
+    entry = next(row for row in r.hum.loops if row["loop"] == 1)["sources"]["choke"]
     assert entry["model"] == "ring" and entry["height_mm"] == 30 and entry["closest_mm"] < 50
-    text = mono.read_text().replace(", size 50 mm", "")
-    bare = analyze(load_text(text, str(mono)))
+    bare = analyze(load_text(text.replace(", size 50 mm", ""), str(head)))
     (note,) = [f for f in bare.findings if f.code == "GC305" and f.elements[1] == "choke"]
     assert "state the size of choke" in note.fix
 

@@ -259,8 +259,8 @@ def test_scaling_impedances_scales_induced_voltages(k, f):
     p = load(EXAMPLES[0])
     c = build_circuit(p)
     J = np.zeros((len(c.nodes), 1), complex)
-    J[c.point_node["left.res_neg"]] = 1
-    J[c.point_node["left.ct"]] = -1
+    J[c.point_node["res_neg"]] = 1
+    J[c.point_node["br_neg"]] = -1
     v1 = c.solve(f, J).between("left.in_sleeve", "left.v1_k")
     for b in c.branches:
         b.r *= k

@@ -255,6 +255,24 @@ def _shared_return_candidates(ctx: ChangeContext, add) -> None:
                                          "GC102"))
 
 
+def _crosstalk_candidates(ctx: ChangeContext, add) -> None:
+    """GC304: a channel's signal return (its stated load current) that crosses another channel's reference: the
+    wire leaving the return's far end is taken straight to where the current goes (its star), so the return no
+    longer runs along the other channel's ground (common practice: each channel's load return to the star on a
+    wire of its own)."""
+    talkers = {f.elements[0] for f in ctx.result.findings if f.code == "GC304" and f.elements}
+    for cur in ctx.plan.currents:
+        if cur.role != "signal" or cur.channel not in talkers:
+            continue
+        goal = cur.b if cur.b in ctx.stars else ctx.nearest_star(cur.b)
+        for d in ctx.plan.conductors:
+            if cur.a in (d.a, d.b) and d.kind not in ("interconnect", "shield") and not ctx.protective(d):
+                far = d.b if d.a == cur.a else d.a
+                if goal and far != goal:
+                    add(reroute(ctx, d.name, far, goal, f"take {cur.a} to {goal} by its own wire ({d.name}), so "
+                                 f"the {cur.channel} channel's return leaves the other channel's ground", "GC304"))
+
+
 def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     """Candidate changes answering the plan's loop, shared-return, star, bonding and protective findings."""
     ctx = ChangeContext(plan, result, text)
@@ -268,4 +286,5 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     _finding_candidates(ctx, add)
     _installation_candidates(ctx, add)
     _shared_return_candidates(ctx, add)
+    _crosstalk_candidates(ctx, add)
     return out

@@ -67,9 +67,13 @@ class ChangeContext:
         return build_graph(self.plan)
 
     def nearest_star(self, node: str) -> str | None:
+        """The star a return from ``node`` should go to: the star of its own block placement or device when it
+        has one (a channel's returns gather at the channel's star), else the nearest star in the network."""
         import networkx as nx
+        group = self.points[node].group if node in self.points else None
+        own = [s for s in self.stars if group and self.points[s].group == group]
         best = None
-        for s in self.stars:
+        for s in own or self.stars:
             try:
                 d = nx.shortest_path_length(self.G, node, s)
             except (nx.NetworkXNoPath, nx.NodeNotFound):

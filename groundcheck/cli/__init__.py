@@ -53,7 +53,7 @@ def _check_command(sub) -> None:
     c = sub.add_parser("check", help="audit plans and print the findings",
                        description="Audit plans: loops, shared returns, stars, chassis bonds, protective earth, hum "
                        "and buzz.\n\n"
-                       "Example:\n  groundcheck check examples/monoblock-power-amp.gplan --format json",
+                       "Example:\n  groundcheck check examples/headphone-amp-100v.gplan --format json",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files or folders (every .gplan below a folder is "
                    "checked); '-' reads standard input")
@@ -79,7 +79,7 @@ def _draw_command(sub) -> None:
     d = sub.add_parser("draw", help="draw the plan with every problem marked",
                        description="Draw the physical view (metal parts, points at their positions, conductors by "
                        "role, loops and problems marked) or the topology view.\n\nExample:\n"
-                       "  groundcheck draw examples/monoblock-power-amp.gplan -o monoblock.svg",
+                       "  groundcheck draw examples/headphone-amp-100v.gplan -o monoblock.svg",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     d.add_argument("plan", metavar="PLAN")
     d.add_argument("-o", "--output", metavar="FILE", required=True,
@@ -96,7 +96,7 @@ def _report_command(sub) -> None:
     h = sub.add_parser("report", help="write a self-contained HTML report",
                        description="One HTML file with the summary, findings, drawings, hum spectrum and "
                        "protective-earth table; no network fetches.\n\nExample:\n  groundcheck report "
-                       "examples/dual-mono-line-stage.gplan -o report.html",
+                       "examples/dual-mono-phono-stage.gplan -o report.html",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     h.add_argument("plan", metavar="PLAN")
     h.add_argument("-o", "--output", metavar="FILE", required=True, help="the HTML file to write (FILE.html)")
@@ -113,7 +113,7 @@ def _suggest_command(sub) -> None:
                        "re-route a return, join a rectifier's ends, give the protective earth its own stud ...), "
                        "re-run the analysis for each and rank them. Changes that would weaken the protective earth "
                        "are never proposed.\n\nExample:\n"
-                       "  groundcheck suggest examples/dual-mono-line-stage.gplan --apply fixed.gplan",
+                       "  groundcheck suggest examples/dual-mono-phono-stage.gplan --apply fixed.gplan",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     s.add_argument("plan", metavar="PLAN")
     s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
@@ -143,7 +143,7 @@ def _compare_command(sub) -> None:
 
 def _export_command(sub) -> None:
     x = sub.add_parser("export", help="write the ground network in another format",
-                       description="Example:\n  groundcheck export examples/dual-mono-line-stage.gplan --format spice "
+                       description="Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format spice "
                                    "-o ground.cir",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     x.add_argument("plan", metavar="PLAN")

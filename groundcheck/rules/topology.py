@@ -219,7 +219,17 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
     if PE_POINT not in ctx.G:
         return candidates[0]
     dist, _ = bfs(ctx.adj, [PE_POINT], lambda v: v in ctx.chassis_side)
-    return min(candidates, key=lambda c: (dist.get(c, 10 ** 9), c))
+    # equal hop counts (two studs on the same plate, say) are told apart by the distance on the plate from the
+    # protective earth's own landing point, then by name
+    landings = [q.pos for q in ctx.plan.points if q.pos is not None and dist.get(q.name) == 1]
+
+    def metres(c: str) -> float:
+        point = ctx.plan.point(c)
+        pos = None if point is None else point.pos
+        if pos is None or not landings:
+            return math.inf
+        return min(math.dist(pos, q) for q in landings)
+    return min(candidates, key=lambda c: (dist.get(c, 10 ** 9), metres(c), c))
 
 
 @rule("GC107")
