@@ -98,6 +98,7 @@ def test_export_spice(cli, tmp_path):
     assert code == 0
     text = out_file.read_text()
     assert text.startswith("* groundcheck ground network") and text.rstrip().endswith(".end") and ".op" in text
+    assert "Never lift the protective earth" in " ".join(x.lstrip("* ") for x in text.splitlines()[:5])
     code, out, _ = cli("export", DUAL, "--format", "spice", "--frequency", "1kHz")
     assert ".ac lin 1 1000 1000" in out
     # elements named after the plan's conductors; a name taken twice gets a suffix, never a clash

@@ -68,6 +68,7 @@ def test_draw_command(cli, tmp_path):
     out = tmp_path / "m.svg"
     code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(out))
     assert code == 0 and out.read_bytes().count(b"<svg") == 1 and "wrote the physical view" in err
+    assert b"never lift the protective earth" in out.read_bytes()              # the caution, under the legend
     code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(tmp_path / "m.dot"), "--view", "topology")
     assert code == 0 and (tmp_path / "m.dot").read_text().startswith("graph topology")
     code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(tmp_path / "m.xyz"))

@@ -19,6 +19,7 @@ Every string from the plan is quoted for DOT (and Graphviz escapes it again in S
 from __future__ import annotations
 
 from collections import defaultdict
+from html import escape
 
 from ..model.kinds import is_fastening
 from ..rules.results import Result
@@ -35,6 +36,9 @@ ROLE_STYLE = {
 }
 LIFT_STYLE = {"color": "#7b3fa0", "penwidth": "1.8", "style": "dashed"}
 LOOP_HALO = "#f5a80066"
+#: the caution as the drawings carry it (short lines under the legend); every other output has it whole
+DRAWING_CAUTION = ("Caution: lethal voltages in mains and valve circuits;", "never lift the protective earth.",
+                   "Estimates from the plan, not measurements;", "follow local codes, have mains work checked.")
 PROBLEM_HALO = "#e0303088"
 
 
@@ -74,8 +78,10 @@ def _legend(x: float, y: float) -> str:
             ("#7b3fa0", "lift network (dashed)"), ("#f5a800", "ground loop (band)"), ("#e03030",
                                                                                       "problem (halo, codes)")]
     cells = "".join(f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows)
+    caution = "<BR/>".join(escape(x) for x in DRAWING_CAUTION)
     label = (f'<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999">'
-             f'<TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}</TABLE>>')
+             f'<TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}'
+             f'<TR><TD COLSPAN="2" ALIGN="LEFT"><FONT COLOR="#8a4b00">{caution}</FONT></TD></TR></TABLE>>')
     return f'  legend [shape=plaintext, fontsize=9, pos="{x:.1f},{y:.1f}!", label={label}];'
 
 

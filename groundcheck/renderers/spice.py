@@ -14,7 +14,9 @@ from __future__ import annotations
 
 import math
 import re
+import textwrap
 
+from ..core.caution import CAUTION
 from ..physics.circuit import Circuit
 
 __all__ = ["to_spice"]
@@ -55,6 +57,7 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
                                                                                    0)]]) if circuit.nodes else 0
     name = {i: ("0" if i == main_ref else f"n{i}") for i in range(len(circuit.nodes))}
     lines = [f"* groundcheck ground network: {_safe(title)}"]
+    lines += ["* " + part for part in textwrap.wrap(CAUTION, 100)]
     for i, n in enumerate(circuit.nodes):
         lines.append(f"* {name[i]} = {_safe(n)}")
     ac = analysis == "ac"
