@@ -137,6 +137,11 @@ def test_examples_mistakes_are_found_with_fixes():
     mb = by_name["headphone-amp-100v.gplan"]
     got = {f.code for f in mb.findings}
     assert {"GC206", "GC102", "GC304"} <= got                                                # mistakes 1, 2, 3
+    gh = by_name["guitar-head.gplan"]
+    found = {(f.code, e) for f in gh.findings for e in f.elements}
+    assert ("GC102", "k_gnd") in found and ("GC102", "hv.filter") in found                  # mistake 1
+    assert ("GC101", "jack_nut") in found and ("GC105", "in_gnd") in found                  # mistake 2
+    assert ("GC211", "mains") in found                                                      # mistake 3
     pe = next(f for f in mb.findings if f.code == "GC206")
     assert pe.elements == ("front",) or "front" in pe.elements
     shared = {e for f in mb.findings if f.code == "GC102" for e in f.elements}

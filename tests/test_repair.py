@@ -61,6 +61,15 @@ def test_headphone_suggestions_clear_the_planted_mistakes_they_can():
     assert all("GC206" in _codes_after(e) for e in useful)
 
 
+def test_guitar_head_suggestions_answer_its_planted_mistakes():
+    before, evs = _suggest(HEAD)
+    useful = [e for e in evs if not e.rejected]
+    assert any(e.candidate.title.startswith("join filt_neg straight to res_neg") and "GC102" not in _codes_after(e)
+               for e in useful)                                                            # mistake 1
+    assert any(e.candidate.title.startswith("insulate jack_nut") and not {"GC101", "GC105"} & _codes_after(e)
+               for e in useful)                                                            # mistake 2
+
+
 def test_advisor_gives_the_protective_earth_its_own_stud_and_lifts_a_shield(tmp_path):
     before, evs = _evs(_head_variant(), tmp_path, "head.gplan")
     assert {"GC202", "GC108"} <= {f.code for f in before.findings}
