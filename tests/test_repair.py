@@ -51,14 +51,29 @@ def test_dual_mono_best_suggestion_clears_the_shared_return():
     assert any("take right.eq_gnd to right.star" in e.candidate.title for e in evs)
 
 
-def test_headphone_suggestions_clear_the_planted_mistakes_they_can():
+def test_headphone_suggestions_clear_each_planted_mistake():
     before, evs = _suggest(MONO)
     useful = [e for e in evs if not e.rejected]
-    assert useful[0].candidate.title.startswith("join br_neg straight to res_0v")       # mistake 2
-    assert not {"GC102", "GC301", "GC303"} & _codes_after(useful[0])
+    assert useful[0].candidate.reason == "GC206"                          # a danger cleared ranks first (mistake 1)
+    join = next(e for e in useful if e.candidate.title.startswith("join br_neg straight to res_0v"))   # mistake 2
+    assert not {"GC102", "GC301", "GC303"} & _codes_after(join)
     assert any("hp_gnd" in e.candidate.title and "GC304" not in _codes_after(e) for e in useful)   # mistake 3
-    # mistake 1 (the front panel's protective contact) is mechanical: no wire of the plan is offered for it
-    assert all("GC206" in _codes_after(e) for e in useful)
+
+
+def test_a_poorly_bonded_panel_gets_a_protective_wire_of_its_own(tmp_path):
+    # mistake 1 of the headphone amplifier: the front panel's only protective path is 4 ohm of anodised threads
+    before, evs = _suggest(MONO)
+    (e,) = [e for e in evs if e.candidate.title.startswith("bond front by a protective wire")]
+    assert not e.rejected and e.candidate.reason == "GC206"
+    after = _codes_after(e)
+    assert "GC206" not in after and "GC202" not in after           # the inlet's stud keeps its fastener to itself
+    new = load_text(apply_edits(MONO.read_text(), e.candidate.edits), str(tmp_path / "h.gplan"), root=MONO.parent)
+    wire = next(c for c in new.conductors if c.name == "front_pe_bond")
+    assert wire.role == "protective" and wire.area >= new.mains.line_area
+    front = next(p for p in analyze(new).safety.parts if p.part == "front")
+    assert front.path_resistance < 0.1                               # the default limit, 0.1 ohm
+    # the old contact stays: nothing protective is removed
+    assert any(c.name == "front_screws" for c in new.conductors)
 
 
 def test_guitar_head_suggestions_answer_its_planted_mistakes():
@@ -150,8 +165,7 @@ def test_greedy_search_reaches_the_goal_on_examples():
     for path in (DUAL, MONO):
         chosen, final, text = greedy(load(path), path.read_text(), Options(), path.resolve().parent, path.resolve())
         assert chosen
-        # all but the headphone amplifier's front-panel contact, which is no wiring change (GC206)
-        assert {f.code for f in final.findings if f.severity in ("danger", "fault")} <= {"GC206"}
+        assert not any(f.severity in ("danger", "fault") for f in final.findings)
         assert all(h.audible is not True for h in final.hum.channels.values())
         load_text(text, path.name, root=path.resolve().parent)
 
@@ -375,3 +389,23 @@ stage v1: in_sleeve to v1_k, gain 34 dB, channel guitar
     best = evs[0]
     assert "join filt_neg straight to res_neg (filt_lead)" in best.candidate.title
     assert "GC102" not in _codes_after(best)
+
+
+UNBONDED_LID = """plan "an unbonded lid"
+mains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2
+metal deck: aluminium 2 mm, 100 x 100 mm, touchable
+metal lid: steel 1 mm, 100 x 60 mm, at 0,100, touchable
+point pe: stud, at 10,10 on deck
+wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective
+bolt b: pe to deck
+"""
+
+
+def test_an_unbonded_touchable_part_gets_a_protective_wire(tmp_path):
+    before, evs = _evs(UNBONDED_LID, tmp_path)
+    assert any(f.code == "GC205" for f in before.findings)
+    (e,) = [e for e in evs if e.candidate.reason == "GC205"]
+    assert not e.rejected and not any(f.severity == "danger" for f in e.result.findings)
+    new = apply_edits(UNBONDED_LID, e.candidate.edits)
+    assert "wire lid_pe_bond: deck_bond to lid_pe" in new
+    assert [x for x in new.split("\n") if x in UNBONDED_LID.split("\n")] == UNBONDED_LID.split("\n")   # only added

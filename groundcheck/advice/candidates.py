@@ -13,7 +13,7 @@ from __future__ import annotations
 import math
 
 from ..model.kinds import is_fastening
-from ..model.records import Plan
+from ..model.records import PE_POINT, Plan
 from ..rules.results import Result
 from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, STUD_CLEARANCE, Candidate,
                       ChangeContext, delete_change, device_note, local_name, reroute, rephrase, squeeze)
@@ -68,6 +68,8 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
             add(_own_stud(ctx, f))
         elif f.code == "GC204":
             add(_thicker(ctx, f))
+        elif f.code in ("GC205", "GC206"):
+            add(_bonding_wire(ctx, f))
 
 
 def _star_candidates(ctx: ChangeContext, f, add) -> None:
@@ -134,6 +136,47 @@ def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
                                       f"bolt {new_pt}_nut: {new_pt} to {part}"), edit.last)
     return Candidate(f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, clear of "
                      "other parts and fastenings)", "GC202", (edit,), touches_protective=False)
+
+
+def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
+    """GC205, GC206: a touchable part with no protective path, or one through a poor contact (hinges, paint,
+    anodised threads), gets a protective wire of its own from a new bonding stud beside the protective earth's
+    stud (the protective earth keeps its fastener to itself, GC202) to a new stud on the part (common practice:
+    each touchable part bonded by a conductor, never through its fixings)."""
+    part = next((e for e in f.elements if e in ctx.metals), None)
+    lead = next((c for c in ctx.plan.conductors if PE_POINT in (c.a, c.b) and c.kind == "wire"
+                 and ctx.protective(c)), None)
+    if part is None or lead is None or ctx.plan.mains is None:
+        return None
+    landing = ctx.points.get(lead.b if lead.a == PE_POINT else lead.a)
+    st = ctx.statement(lead)
+    metal = ctx.plan.metal(part)
+    if landing is None or landing.pos is None or st is None or metal is None or metal.size is None:
+        return None
+    home = next((k.b if k.b in ctx.metals else k.a for k in ctx.plan.conductors
+                 if is_fastening(k, ctx.metals) and landing.name in (k.a, k.b)), None)
+    if home is None or home == part:
+        return None                    # the path is the part itself: GC206's own fix (fastenings, the lead)
+    start = _stud_position(ctx, home, landing.pos)
+    (x0, y0), (w, h) = metal.origin, metal.size
+    near = (min(max(landing.pos[0], x0), x0 + w), min(max(landing.pos[1], y0), y0 + h))
+    end = _stud_position(ctx, part, near)
+    if start is None or end is None:
+        return None
+    a = next(n for n in (f"{home}_bond", f"{home}_bond2", f"{home}_bond3") if ctx.plan.point(n) is None)
+    b = next(n for n in (f"{part}_pe", f"{part}_pe2", f"{part}_pe3") if ctx.plan.point(n) is None)
+    area = max(lead.area or 0.0, ctx.plan.mains.line_area or 0.0) * 1e6
+    area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
+    length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), 10e-3) * 1e3
+    mm = [round(v * 1e3) for v in (*start, *end)]
+    same = ctx.src.replace(st, [])
+    edit = Edit(same.line, same.new, (f"point {a}: stud, at {mm[0]},{mm[1]} on {home}", f"bolt {a}_nut: {a} to {home}",
+                                      f"point {b}: stud, at {mm[2]},{mm[3]} on {part}", f"bolt {b}_nut: {b} to {part}",
+                                      f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective"),
+                same.last)
+    return Candidate(f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud {a} on "
+                     f"{home} beside {landing.name} to a new stud {b} on {part}; bare metal under toothed washers)",
+                     f.code, (edit,), touches_protective=False)
 
 
 def _thicker(ctx: ChangeContext, f) -> Candidate | None:
