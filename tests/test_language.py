@@ -269,3 +269,13 @@ def test_a_bad_unit_is_one_error_not_a_follow_on_comma_error():
         plan("point a: star\npoint b: star\nwire w: a to b, 10 furlongs, 0.5 mm2\n")
     assert [x.message for x in e.value.errors] == ["unknown unit 'furlongs'"]
     assert e.value.errors[0].location.column == 20
+
+
+def test_an_error_in_a_block_placed_twice_is_said_once_with_its_placements():
+    text = ('plan "b"\nmetal deck: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point s: star, at 10,10 on deck\n'
+            "  wire w: s to nowhere, 10 mm, 0.5 mm2\n}\nplace ch as left at 0,0\nplace ch as right at 0,50\n")
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "b.gplan")
+    (err,) = e.value.errors
+    assert (err.location.line, err.location.column) == (5, 16)
+    assert "'nowhere'" in err.message and err.message.endswith("(in placements left, right)")

@@ -15,7 +15,7 @@ from pathlib import Path
 
 from .assemble import HEADER_KEYWORDS, assemble
 from .limits import LIMITS
-from .placement import Transform
+from .placement import Transform, name_placements
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
 from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .phrases import Reader, Statement
@@ -113,6 +113,7 @@ class _Loader:
         self.device_files: list[str] = []
         self.count = 0
         self.placed = 0                       # elements made by block placements, counted before expanding
+        self.placed_at: dict[tuple[str, int], list[str]] = {}   # a block statement's (file, line): its placements
         self._size_cache: dict[str, int] = {}
         self._local_cache: dict[str, set[str]] = {}
         self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
@@ -264,6 +265,8 @@ class _Loader:
                                                  "move the block out"))
                 continue
             st: Statement = it
+            if prefix:
+                self.placed_at.setdefault((st.loc.file, st.loc.line), []).append(prefix.rstrip("."))
             try:
                 if st.keyword == "place":
                     block, sub, inner_tf = self.parse_place(st)
@@ -388,6 +391,7 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
         plan = assemble(built, file, ld)
     if ld.errors:
         for e in ld.errors:
+            name_placements(e, ld.placed_at)
             lines = ld.sources.get(e.location.file)
             if e.source_line is None and lines and 1 <= e.location.line <= len(lines):
                 e.source_line = lines[e.location.line - 1]

@@ -1,10 +1,11 @@
-"""Placement of a block or device: a translation and an optional mirror of the plan frame."""
+"""Placement of a block or device: a translation and an optional mirror of the plan frame; errors named by
+their placements."""
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Transform"]
+__all__ = ["Transform", "name_placements"]
 
 
 @dataclass(frozen=True)
@@ -22,3 +23,13 @@ class Transform:
     def then(self, outer: "Transform") -> "Transform":
         return Transform(outer.ox + outer.sx * self.ox, outer.oy + outer.sy * self.oy, outer.sx * self.sx,
                          outer.sy * self.sy)
+
+
+def name_placements(e, placed_at: dict) -> None:
+    """An error in a block's statement says which placements it is in (said once for all of them).
+
+    ``e``: a PlanError; ``placed_at``: (file, line) of each statement expanded in a placement -> the placements.
+    """
+    where = list(dict.fromkeys(placed_at.get((e.location.file, e.location.line), ())))
+    if where and "(in placement" not in e.message:
+        e.message += f" (in placement{'s' if len(where) > 1 else ''} {', '.join(where)})"
