@@ -180,3 +180,17 @@ def test_drawing_labels_do_not_overlap(cli, path, tmp_path):
     hits = [(a[4], b[4]) for a, b in itertools.combinations(boxes, 2)
             if a[0] < b[2] and b[0] < a[2] and a[1] < b[3] and b[1] < a[3]]
     assert hits == []
+
+
+def test_html_report_shows_each_findings_plan_line_coloured(tmp_path, cli):
+    html = tmp_path / "r.html"
+    head = next(p for p in EXAMPLES if p.name == "guitar-head.gplan")
+    cli("report", str(head), "-o", str(html))
+    text = html.read_text()
+    # GC102 points at the rectifier statement (line 35): shown under the finding, its keyword coloured
+    assert text.count('<pre class="planline">') == len(RESULTS["guitar-head.gplan"].findings)
+    row = next(r for r in text.split("<tr>") if ">GC102<" in r)
+    assert '<pre class="planline"><span style="' in row and ">rectifier</span>" in row and "res_neg" in row
+    # the drawings' note names the program of each view
+    assert "the physical view by" in text and "the topology by" in text and "(dot)" in text
+    assert 'class="drawing natural" id="topology"' in text        # the topology at full size, scrolled

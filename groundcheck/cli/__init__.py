@@ -264,14 +264,6 @@ def cmd_export(args) -> int:
     return 0
 
 
-def _drawings(result, renderer: str, fmt: str = "svg"):
-    from ..renderers.drawing import render_dot
-    from ..renderers.dot import physical_dot, topology_dot
-    phys = render_dot(physical_dot(result), fmt, "neato", renderer)
-    topo = render_dot(topology_dot(result), fmt, "dot", renderer)
-    return phys, topo
-
-
 def cmd_draw(args) -> int:
     from ..analysis import Options, analyze
     from ..renderers.drawing import render_dot
@@ -307,17 +299,13 @@ def cmd_draw(args) -> int:
 
 def cmd_report(args) -> int:
     from ..analysis import analyze
-    from ..renderers.drawing import DrawingError
-    from ..renderers.html import html_report
+    from ..renderers.formats import html_document
     plan = load_plan(args.plan)
     result = _analyze_with_progress(analyze, plan, options_of(args), args.plan)
-    try:
-        (phys, how), (topo, _) = _drawings(result, args.renderer)
-    except DrawingError as e:
-        sys.stderr.write(f"groundcheck: warning: {e}; the report has no drawings\n")
-        phys = topo = None
-        how = ""
-    write_atomic(Path(args.output), html_report(result, phys, topo, how), protect=[Path(args.plan)])
+    html, warning = html_document(result, args.renderer)
+    if warning:
+        sys.stderr.write(f"groundcheck: warning: {warning}\n")
+    write_atomic(Path(args.output), html, protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
     return 1 if result.fails(fail_on(args)) else 0
 

@@ -65,6 +65,7 @@ class LiveView:
     def refresh(self) -> None:
         """Load, analyse and draw the plan again; publish the new state (or the errors) to every page."""
         from ..analysis import analyze
+        from ..renderers.formats import source_lines
         from ..renderers.live import error_state, live_state, status_line
         t0 = time.perf_counter()
         try:
@@ -86,7 +87,7 @@ class LiveView:
         self.files = {Path(f).resolve() for f in read} | {Path(self.plan).resolve()}
         physical, topology = self._drawings(result)
         seconds = time.perf_counter() - t0
-        state = live_state(result, physical, topology, self._good_result, _lines(read), seconds)
+        state = live_state(result, physical, topology, self._good_result, source_lines(plan), seconds)
         self._good_result, self._good_state = result, state
         self._publish(state)
         self._say(status_line(result, seconds))
@@ -120,16 +121,6 @@ class LiveView:
 
     def close(self) -> None:
         self._pool.shutdown(wait=False, cancel_futures=True)
-
-
-def _lines(files) -> dict[str, list[str]]:
-    out = {}
-    for f in files:
-        try:
-            out[f] = Path(f).read_text(encoding="utf-8", errors="replace").splitlines()
-        except OSError:
-            out[f] = []
-    return out
 
 
 class LiveHandler(BaseHTTPRequestHandler):

@@ -45,17 +45,35 @@ def _dot(results: list[Result]) -> str:
     return physical_dot(results[0])
 
 
-def _html(results: list[Result]) -> str:
+def source_lines(plan) -> dict[str, list[str]]:
+    """Each file the plan was read from (its own, includes, placed devices' plans) as lines; an unreadable one
+    as none."""
+    out = {}
+    for f in (*plan.files, *plan.device_files):
+        try:
+            with open(f, encoding="utf-8", errors="replace") as fh:
+                out[f] = fh.read().splitlines()
+        except OSError:
+            out[f] = []
+    return out
+
+
+def html_document(result: Result, renderer: str = "auto") -> tuple[str, str | None]:
+    """The HTML report with both drawings, and a warning when they could not be drawn (None when they were)."""
     from .dot import physical_dot, topology_dot
     from .drawing import DrawingError, render_dot
     from .html import html_report
     try:
-        phys, how = render_dot(physical_dot(results[0]), "svg", "neato")
-        topo, _ = render_dot(topology_dot(results[0]), "svg", "dot")
-    except DrawingError:
-        phys = topo = None
-        how = ""
-    return html_report(results[0], phys, topo, how)
+        phys, how_p = render_dot(physical_dot(result), "svg", "neato", renderer)
+        topo, how_t = render_dot(topology_dot(result), "svg", "dot", renderer)
+    except DrawingError as e:
+        return html_report(result, None, None, "", source_lines(result.plan)), f"{e}; the report has no drawings"
+    how = f"the physical view by {how_p}, the topology by {how_t}"
+    return html_report(result, phys, topo, how, source_lines(result.plan)), None
+
+
+def _html(results: list[Result]) -> str:
+    return html_document(results[0])[0]
 
 
 FORMATS: dict[str, Format] = {f.name: f for f in (

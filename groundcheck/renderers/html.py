@@ -31,7 +31,10 @@ td,th{border:1px solid #ccc;padding:.25em .6em;text-align:left}
 th{background:#f2f2f2}td.num{text-align:right;font-variant-numeric:tabular-nums}
 .sev{font-weight:bold;padding:0 .4em;border-radius:3px;color:#fff}.danger{background:#b00020}.fault{background:#d9480f}
 .warning{background:#b08800}.note{background:#1f6f8b}.fix{color:#225522}.fig{color:#555;font-size:.85em}
-.drawing svg{max-width:100%;height:auto}.ok{color:#227722}.bad{color:#b00020;font-weight:bold}
+.drawing svg{max-width:100%;height:auto}.drawing.natural{overflow:auto;max-height:90vh;border:1px solid #ddd}
+.drawing.natural svg{max-width:none}
+pre.planline{margin:.3em 0;padding:.2em .4em;background:#f7f7f2;white-space:pre-wrap;font-size:.85em}
+.ok{color:#227722}.bad{color:#b00020;font-weight:bold}
 @media print{body{margin:0;max-width:none}.drawing{page-break-inside:avoid}h2{page-break-after:avoid}}
 """
 
@@ -114,7 +117,13 @@ def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
     return "".join(out)
 
 
-def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes | None, renderer: str = "") -> str:
+def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes | None, renderer: str = "",
+                lines: dict[str, list[str]] | None = None) -> str:
+    """The report as one HTML document.
+
+    ``lines``: each plan file's lines, to show (coloured by the plan language's lexer) the line each finding
+    points at; none shown without them.
+    """
     plan = result.plan
     counts = result.counts()
     worst = result.worst()
@@ -149,7 +158,7 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
                          f"<td class=num>{_f(h.signal_to_hum, '{:.1f} dB')}</td><td>{verdict}</td>"
                          f"<td class=num>{_f(h.margin_db, '{:+.1f} dB')}</td><td>{e(top)}</td></tr>")
         parts.append("</table>")
-    _findings_section(result, parts, physical_svg, topology_svg, renderer)
+    _findings_section(result, parts, physical_svg, topology_svg, renderer, lines or {})
     _hum_section(result, parts)
     _protective_section(result, parts)
     _loops_section(result, parts)
@@ -157,8 +166,17 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
     return "\n".join(parts) + "\n"
 
 
-def _findings_section(result: Result, parts: list[str], physical_svg, topology_svg, renderer: str, e=escape) -> None:
-    """The findings table and both drawings."""
+def plan_line_html(text: str) -> str:
+    """One plan line as HTML, coloured by the plan language's lexer (inline styles: the report stands alone)."""
+    from pygments import highlight
+    from pygments.formatters import HtmlFormatter
+    from .lexer import PlanLexer
+    return highlight(text, PlanLexer(), HtmlFormatter(nowrap=True, noclasses=True)).rstrip("\n")
+
+
+def _findings_section(result: Result, parts: list[str], physical_svg, topology_svg, renderer: str,
+                      lines: dict[str, list[str]], e=escape) -> None:
+    """The findings table (with each finding's plan line) and both drawings."""
     if not result.findings:
         parts.append("<h2>Findings</h2><p>No findings.</p>")
     else:
@@ -167,17 +185,21 @@ def _findings_section(result: Result, parts: list[str], physical_svg, topology_s
     for f in result.findings:
         figs = e(figure_words(f.figures))
         severity = f"accepted ({f.severity})" if f.accepted is not None else f.severity
+        text = lines.get(f.location.file, [])
+        line = text[f.location.line - 1] if 0 < f.location.line <= len(text) else ""
+        shown = f'<pre class="planline">{plan_line_html(line)}</pre>' if line.strip() else ""
         parts.append(f'<tr><td><span class="sev {f.severity}">{e(severity)}</span></td><td>{f.code}</td>'
-                     f"<td>{e(str(f.location))}</td><td>{e(f.message)}"
+                     f"<td>{e(str(f.location))}</td><td>{e(f.message)}{shown}"
                      + (f'<div class="fig">{figs}</div>' if figs else "")
                      + (f'<div class="fix">accepted: {e(f.accepted)}</div>' if f.accepted is not None
                         else f'<div class="fix">fix: {e(f.fix)}</div>' if f.fix else "") + "</td></tr>")
     if result.findings:
         parts.append("</table>")
     parts.append(f'<h2>Physical drawing</h2><div class="drawing" id="physical">{_inline_svg(physical_svg)}</div>')
-    parts.append(f'<h2>Topology</h2><div class="drawing" id="topology">{_inline_svg(topology_svg)}</div>')
+    parts.append('<h2>Topology</h2><p class="fig">At full size: scroll to see all of it.</p><div class="drawing '
+                 f'natural" id="topology">{_inline_svg(topology_svg)}</div>')
     if renderer:
-        parts.append(f'<p class="fig">Drawings rendered by {e(renderer)}.</p>')
+        parts.append(f'<p class="fig">Drawings: {e(renderer)}.</p>')
 
 
 def _hum_section(result: Result, parts: list[str], e=escape) -> None:
