@@ -194,3 +194,20 @@ def test_html_report_shows_each_findings_plan_line_coloured(tmp_path, cli):
     # the drawings' note names the program of each view
     assert "the physical view by" in text and "the topology by" in text and "(dot)" in text
     assert 'class="drawing natural" id="topology"' in text        # the topology at full size, scrolled
+
+
+def test_compare_page_has_totals_charts_and_both_drawings(tmp_path, cli):
+    mono = next(p for p in EXAMPLES if p.name == "headphone-amp-100v.gplan")
+    fixed = tmp_path / "fixed.gplan"
+    assert cli("suggest", str(mono), "--apply", str(fixed))[0] == 0
+    code, page, _ = cli("compare", str(mono), str(fixed), "--format", "html")
+    assert code == 0 and page.startswith("<!DOCTYPE html>") and "<style>" in page
+    totals = page[page.index('id="totals"'):page.index("</table>", page.index('id="totals"'))]
+    # the headphone amplifier's planted mistakes: one danger (GC206) and four faults (GC102 and GC303 per channel)
+    assert "<td>danger</td><td class=num>1</td><td class=num>0</td>" in totals
+    assert "<td>fault</td><td class=num>4</td><td class=num>0</td>" in totals
+    assert "hum, left" in totals and "(removed)" in totals
+    assert page.count('aria-label="hum of channel') == 2                     # a before/after chart per channel
+    assert 'id="before"' in page and 'id="after"' in page and page.count("<svg") >= 4
+    assert "<td class=num>4 Ω</td>" in page                                  # the front panel's 4 ohm contact
+    assert "Never lift the protective earth" in page

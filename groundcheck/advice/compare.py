@@ -3,14 +3,13 @@
 from __future__ import annotations
 
 import json
-from html import escape
 
 from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean
 from ..core.units import dbv
 
-__all__ = ["compare", "compare_text", "compare_json", "compare_html"]
+__all__ = ["compare", "compare_text", "compare_json"]
 
 
 def _fkey(f):
@@ -97,33 +96,3 @@ def compare_text(d: dict) -> str:
 
 def compare_json(d: dict) -> str:
     return json.dumps(d, indent=2, ensure_ascii=False) + "\n"
-
-
-def compare_html(d: dict) -> str:
-    e = escape
-    rows = []
-    for tag in ("fixed", "introduced", "kept"):
-        for f in d["findings"][tag]:
-            rows.append(f"<tr><td>{tag}</td><td>{e(f['code'])}</td><td>{e(f['severity'])}</td>"
-                        f"<td>{e(f['message'])}</td></tr>")
-    hum = []
-    for ch, h in d["hum"].items():
-        for r in h["spectrum"]:
-            hum.append(f"<tr><td>{e(ch)}</td><td>{r['frequency_hz']:g}</td><td>{_f(r['before_dbv'], '{:.1f}')}</td>"
-                       f"<td>{_f(r['after_dbv'], '{:.1f}')}</td><td>{_f(r['change_db'], '{:+.1f}')}</td></tr>")
-    pe = [f"<tr><td>{e(p['part'])}</td><td>{_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')}</td>"
-          f"<td>{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')}</td></tr>" for p in d["protective_earth"]]
-    return ("<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>groundcheck compare</title>"
-            "<style>body{font-family:system-ui,sans-serif;max-width:1000px;margin:2em "
-            "auto}table{border-collapse:collapse}"
-            "td,th{border:1px solid #ccc;padding:.2em .5em}</style></head><body>"
-            f"<h1>{e(d['before'])} → "
-            f"{e(d['after'])}</h1><p><b>{e(d['caution'])}</b></p><h2>Findings</h2>"
-            "<table><tr><th>change</th><th>code</th>"
-            f"<th>severity</th><th>finding</th></tr>{''.join(rows)}</table>"
-            f"<h2>Loops</h2><p>{d['loops']['total_before']} → {d['loops']['total_after']}</p>"
-            "<h2>Hum per harmonic "
-            "(dBV)</h2><table><tr><th>channel</th><th>Hz</th><th>before</th><th>after</th><th>change dB</th></tr>"
-            f"{''.join(hum)}</table><h2>Protective earth "
-            "(mΩ)</h2><table><tr><th>part</th><th>before</th><th>after</th></tr>"
-            f"{''.join(pe)}</table></body></html>\n")

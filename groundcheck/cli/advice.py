@@ -95,11 +95,29 @@ def cmd_suggest(args) -> int:
 
 def cmd_compare(args) -> int:
     from ..analysis import analyze
-    from ..advice.compare import compare, compare_html, compare_json, compare_text
-    d = compare(analyze(load_plan(args.before), options_of(args)), analyze(load_plan(args.after), options_of(args)))
-    text = {"text": compare_text, "json": compare_json, "html": compare_html}[args.format](d)
+    from ..advice.compare import compare, compare_json, compare_text
+    before = analyze(load_plan(args.before), options_of(args))
+    after = analyze(load_plan(args.after), options_of(args))
+    d = compare(before, after)
+    if args.format == "html":
+        text = _compare_html(d, before, after)
+    else:
+        text = {"text": compare_text, "json": compare_json}[args.format](d)
     write_output(text, args.output, [args.before, args.after])
     return 1 if _compare_fails(d, args.fail_on) else 0
+
+
+def _compare_html(d: dict, before, after) -> str:
+    """The comparison page, with both physical drawings when they can be drawn."""
+    from ..renderers.compare_page import compare_page
+    from ..renderers.dot import physical_dot
+    from ..renderers.drawing import DrawingError, render_dot
+    try:
+        drawings = tuple(render_dot(physical_dot(r), "svg", "neato")[0] for r in (before, after))
+    except DrawingError as e:
+        sys.stderr.write(f"groundcheck: warning: {e}; the comparison has no drawings\n")
+        drawings = None
+    return compare_page(d, before, after, drawings)
 
 
 def _compare_fails(d: dict, fail_on: str) -> bool:
