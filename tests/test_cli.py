@@ -262,3 +262,13 @@ def test_shell_completion_script_completes(cli, tmp_path):
              'echo "${COMPREPLY[*]}"; done')
     out = subprocess.run(["bash", "-c", probe, "probe", str(path)], capture_output=True, text=True).stdout.split("\n")
     assert out[:4] == ["check", "--fail-on", "sarif", "topology"]
+
+
+def test_readme_tutorial_quotes_its_example_line_for_line():
+    readme = (ROOT / "README.md").read_text()
+    part = readme[readme.index("## Tutorial"):]
+    excerpt = part[part.index("```\n") + 4:]
+    excerpt = excerpt[:excerpt.index("```")]
+    text = (ROOT / "examples" / "headphone-amp-100v.gplan").read_text()
+    example = [x.split("#")[0].rstrip() for x in text.splitlines()]
+    assert [x for x in excerpt.splitlines() if x and x != "..." and x not in example] == []

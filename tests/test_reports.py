@@ -46,6 +46,9 @@ def test_physical_dot_marks_problems():
     assert "#e0303088" in arm_line                          # problem halo
     assert "#f5a80066" in arm_line                          # loop band
     assert "loop 1 through base" in src
+    # the front panel's side (the plan frame's y = 0) and a scale bar: the shortest round length at least a sixth
+    # of the drawing's width, 100 mm for the 360 mm base (60 mm and over)
+    assert "▼ front panel ▼" in src and 'label="100 mm"' in src
     assert "legend" in src
 
 

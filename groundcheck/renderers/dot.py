@@ -106,6 +106,7 @@ def physical_dot(result: Result) -> str:
              'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72, forcelabels=true];',
              '  node [fontname=Helvetica, fontsize=8];', '  edge [fontname=Helvetica, fontsize=8];']
     _metals(plan, marks, scale, P, lines)
+    _frame_marks((x1 - x0) * scale, scale, lines)
     _points(plan, marks, positioned, P, lines)
     _conductors(result, marks, positioned, P, lines)
     _metal_loops(result, positioned, lines)
@@ -120,6 +121,24 @@ def physical_dot(result: Result) -> str:
     lines.append(_legend((x1 - x0) * scale + 150, 80))
     lines.append("}")
     return "\n".join(lines) + "\n"
+
+
+#: scale bar lengths to choose from, m
+SCALE_BARS = (0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 50.0)
+
+
+def _frame_marks(width: float, scale: float, lines: list[str]) -> None:
+    """Under the drawing: which side is the front panel (the plan frame's y = 0 side, docs/language.md), and a
+    scale bar of a round length, about a sixth of the drawing's width."""
+    lines.append(f'  "frame:front" [shape=plaintext, fontsize=9, fontcolor="#555555", label="▼ front panel ▼", '
+                 f'pos="{20 + width / 2:.1f},6!"];')
+    bar = next((b for b in SCALE_BARS if b * scale >= width / 6), SCALE_BARS[-1])
+    length = bar * scale
+    lines.append('  "frame:bar0" [shape=point, width=0.03, color="#333333", pos="20,-10!"];')
+    lines.append(f'  "frame:bar1" [shape=point, width=0.03, color="#333333", pos="{20 + length:.1f},-10!"];')
+    lines.append('  "frame:bar0" -- "frame:bar1" [penwidth=2.5, color="#333333"];')
+    lines.append(f'  "frame:barlabel" [shape=plaintext, fontsize=9, label="{bar * 1e3:g} mm", '
+                 f'pos="{20 + length + 24:.1f},-10!"];')
 
 
 def _metals(plan, marks, scale, P, lines) -> None:
