@@ -108,3 +108,44 @@ def mutated_plans(draw):
         else:
             text = text[:i] + draw(st.text(max_size=6)) + text[i:]
     return text
+
+
+#: values put in place of each number of a plan (the extreme-value grid): zero, signs, the largest and smallest
+#: floats, overflow to infinity, subnormals, long digit strings and values just outside a usual range
+EXTREMES = ("0", "-1", "-0", "1e308", "1e309", "-1e308", "1e-320", "4.9e-324", "1e-300", "1e21", "999999999999",
+            "0.000000001", "6000", "-7000", "1e6", "273", "-234.5")
+
+#: a number as the language writes it: digits with an optional fraction and exponent, not inside a name
+NUMBER = r"(?<![\w.])[+-]?\d+(?:\.\d*)?(?:[eE][+-]?\d+)?(?![\w.])"
+
+
+def extreme_variants(text: str):
+    """(description, plan text) for every number of ``text`` replaced by each value of EXTREMES in turn."""
+    import re
+    for m in re.finditer(NUMBER, text):
+        line = text.count("\n", 0, m.start()) + 1
+        for v in EXTREMES:
+            yield f"line {line}: {m.group(0)} -> {v}", text[:m.start()] + v + text[m.end():]
+
+
+def token_mutants(text: str, n: int, seed: int = 1):
+    """``n`` mutants of ``text``, each with one token deleted, duplicated, swapped with its neighbour or
+    replaced by a token from elsewhere in the plan (tokens: words, numbers, punctuation)."""
+    import random
+    import re
+    rng = random.Random(seed)
+    spans = [m.span() for m in re.finditer(r"[\w.\-]+|[^\s\w]", text)]
+    for _ in range(n):
+        i = rng.randrange(len(spans))
+        a, b = spans[i]
+        op = rng.randrange(4)
+        if op == 0:
+            yield text[:a] + text[b:]
+        elif op == 1:
+            yield text[:b] + " " + text[a:b] + text[b:]
+        elif op == 2 and i + 1 < len(spans):
+            c, d = spans[i + 1]
+            yield text[:a] + text[c:d] + text[b:c] + text[a:b] + text[d:]
+        else:
+            c, d = spans[rng.randrange(len(spans))]
+            yield text[:a] + text[c:d] + text[b:]

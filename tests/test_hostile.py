@@ -88,3 +88,42 @@ def test_a_lone_carriage_return_in_the_command(cli, tmp_path):
         words = s["title"].split()
         element = words[1] if words[0] in ("remove", "insulate") else s["title"].split("(")[1].split(")")[0]
         assert all(element.split(".")[-1] in ln for ln in removed), (s["title"], removed)
+
+
+def test_sigterm_during_a_write_leaves_no_temporary_file(tmp_path):
+    import signal
+    import subprocess
+    import sys
+    import time
+    from helpers import EXAMPLES
+    out = tmp_path / "report.json"
+    # the rename that ends the write is held up, so SIGTERM lands while the temporary file exists
+    code = ("import os, sys, time\nos.replace = lambda *a: time.sleep(60)\nfrom groundcheck.cli import main\n"
+            f"sys.exit(main(['check', {str(EXAMPLES[0])!r}, '--format', 'json', '-o', {str(out)!r}]))\n")
+    proc = subprocess.Popen([sys.executable, "-c", code], stderr=subprocess.PIPE, text=True)
+    deadline = time.monotonic() + 60
+    while not list(tmp_path.glob(".groundcheck-*")) and time.monotonic() < deadline:
+        time.sleep(0.05)
+    assert list(tmp_path.glob(".groundcheck-*")), "the write never started"
+    proc.send_signal(signal.SIGTERM)
+    _, err = proc.communicate(timeout=30)
+    assert proc.returncode == 128 + signal.SIGTERM and "Traceback" not in err
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_a_dying_worker_is_an_error_not_a_wait():
+    import os
+    from groundcheck.physics.sweep import WorkerError, map_frequencies
+
+    def work(f):
+        if f == 200.0:
+            os._exit(9)                    # a worker killed mid-way (out of memory, a signal)
+        return f
+    with pytest.raises(WorkerError, match="--jobs 1"):
+        map_frequencies(work, [50.0, 100.0, 150.0, 200.0], jobs=2)
+    assert map_frequencies(lambda f: 2 * f, [50.0, 100.0, 150.0], jobs=2) == [100.0, 200.0, 300.0]
+
+
+def test_jobs_is_capped_at_the_processors_available():
+    from groundcheck.cli.common import available_cpus, processes_type
+    assert processes_type("500") == available_cpus() and processes_type("1") == 1

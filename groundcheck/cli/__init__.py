@@ -193,15 +193,28 @@ def _plan_paths(names: list[str]) -> list[str]:
     return out
 
 
+def _check_side_by_side(args) -> list:
+    """Each plan checked in a worker process: (True, result) or (False, rendered errors) per plan, in order.  A
+    worker that dies is an error, never a wait; no process to start means one process checks them all."""
+    from concurrent.futures import ProcessPoolExecutor
+    from concurrent.futures.process import BrokenProcessPool
+    options = [replace(options_of(args), jobs=1)] * len(args.plans)
+    try:
+        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
+            return list(pool.map(_check_one, args.plans, options))
+    except BrokenProcessPool:
+        raise GroundcheckError("a worker process of --jobs died before it finished (killed, or out of memory); "
+                               "run with --jobs 1") from None
+    except OSError:
+        return [_check_one(p, o) for p, o in zip(args.plans, options)]
+
+
 def cmd_check(args) -> int:
     args.plans = _plan_paths(args.plans)
     from ..analysis import analyze
     results = []
     if args.jobs > 1 and len(args.plans) > 1:
-        from concurrent.futures import ProcessPoolExecutor
-        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            outcomes = list(pool.map(_check_one, args.plans, [replace(options_of(args), jobs=1)] * len(args.plans)))
-        for ok, value in outcomes:
+        for ok, value in _check_side_by_side(args):
             if not ok:
                 raise _Rendered(value)
             results.append(value)
@@ -321,6 +334,20 @@ COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, 
             "watch": cmd_watch}
 
 
+def _terminate_cleanly() -> None:
+    """SIGTERM ends the run as an exception does (status 143), so a half-written output's temporary file is
+    removed by the writer's own clean-up rather than left behind."""
+    import signal
+
+    def stop(signum, frame):
+        raise SystemExit(128 + signum)
+    try:
+        if signal.getsignal(signal.SIGTERM) == signal.SIG_DFL:
+            signal.signal(signal.SIGTERM, stop)
+    except ValueError:                    # not the main thread (a library caller's worker): leave it be
+        pass
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
     try:
@@ -330,6 +357,7 @@ def main(argv: list[str] | None = None) -> int:
     if not args.command:
         parser.print_help()
         return 2
+    _terminate_cleanly()
     try:
         return COMMANDS[args.command](args)
     except PlanErrors as e:

@@ -4,6 +4,7 @@ plan and writing an output."""
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 
@@ -86,7 +87,15 @@ def processes_type(text: str) -> int:
         raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of processes") from None
     if n < 1:
         raise argparse.ArgumentTypeError(f"{text!r}: give at least 1 process")
-    return n
+    return min(n, available_cpus())
+
+
+def available_cpus() -> int:
+    """The processors this process may run on (--jobs is capped there: more processes only compete)."""
+    try:
+        return max(1, len(os.sched_getaffinity(0)))
+    except (AttributeError, OSError):
+        return max(1, os.cpu_count() or 1)
 
 
 #: the analysis defaults, read from their one home (the Options record)

@@ -138,16 +138,20 @@ def read_split(ld, text: str, file: str, at: int, fresh_loader, Transform, limit
     ctx = multiprocessing.get_context("fork")
     receive, send = ctx.Pipe(duplex=False)
     proc = ctx.Process(target=_worker, args=(send, fresh_loader, Transform(), tail, file, at), daemon=True)
-    proc.start()
+    try:
+        proc.start()
+    except OSError:                       # no process could be started (a process limit): the tail is read here
+        proc = None
     send.close()
     items = ld.read_items(head, file, ())
     built: list = []
     ld.expand(items, "", Transform(), (), 0, (), built)
     try:
-        data = receive.recv_bytes()
-    except EOFError:                      # pragma: no cover - the worker died without a word
+        data = receive.recv_bytes() if proc is not None else marshal.dumps("no worker")
+    except EOFError:                      # the worker died without a word: the tail is read here
         data = marshal.dumps("no answer")
-    proc.join()
+    if proc is not None:
+        proc.join()
     rest = _unpack(data, ld)
     if rest is None:                      # pragma: no cover - see _worker
         other = fresh_loader

@@ -23,8 +23,11 @@ from __future__ import annotations
 
 import gc
 import multiprocessing
+from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures.process import BrokenProcessPool
 from typing import Callable, Sequence, TypeVar
 
+from ..core.errors import GroundcheckError
 from ..core.runtime import can_fork, quiet_child, single_threaded_blas
 
 __all__ = ["map_frequencies"]
@@ -34,6 +37,10 @@ T = TypeVar("T")
 #: the work of the sweep in progress, inherited by the forked workers
 _WORK: Callable | None = None
 _FREQS: Sequence[float] = ()
+
+
+class WorkerError(GroundcheckError):
+    """A worker process that died before giving its results."""
 _LIMIT_THREADS: Callable | None = None
 
 
@@ -71,10 +78,17 @@ def map_frequencies(work: Callable[[float], T], freqs: Sequence[float], jobs: in
         return [work(f) for f in freqs]
     global _WORK, _FREQS, _LIMIT_THREADS
     _WORK, _FREQS, _LIMIT_THREADS = work, freqs, single_threaded_blas()
+    deals = [list(range(k, len(freqs), jobs)) for k in range(jobs)]
     try:
-        deals = [list(range(k, len(freqs), jobs)) for k in range(jobs)]
-        with multiprocessing.get_context("fork").Pool(jobs, initializer=_start_worker) as pool:
-            parts = pool.map(_run, deals, chunksize=1)
+        # a process pool that notices a worker dying (killed, out of memory) instead of waiting for it for ever
+        with ProcessPoolExecutor(jobs, mp_context=multiprocessing.get_context("fork"),
+                                 initializer=_start_worker) as pool:
+            parts = list(pool.map(_run, deals))
+    except BrokenProcessPool:
+        raise WorkerError("a worker process of --jobs died before it finished (killed, or out of memory); "
+                          "run with --jobs 1") from None
+    except OSError:                     # no process could be started (a process limit): one process does it all
+        parts = [_run(d) for d in deals]
     finally:
         _WORK, _FREQS = None, ()
     out: list = [None] * len(freqs)
