@@ -127,3 +127,18 @@ def test_a_dying_worker_is_an_error_not_a_wait():
 def test_jobs_is_capped_at_the_processors_available():
     from groundcheck.cli.common import available_cpus, processes_type
     assert processes_type("500") == available_cpus() and processes_type("1") == 1
+
+
+def test_absurd_rectifier_figures_give_a_located_error_not_absurd_volts():
+    from groundcheck import PlanErrors, load_text
+    from groundcheck.analysis import analyze
+    from helpers import EXAMPLES
+    head = next(p for p in EXAMPLES if p.name == "guitar-head.gplan").read_text()
+    # a valve "rated" at a nanoampere: refused where it is written
+    with pytest.raises(PlanErrors) as e:
+        load_text(head.replace("valve 50 V at 250 mA", "valve 50 V at 0.000001 mA"), "h.gplan")
+    assert e.value.errors[0].location.line == 35 and "0.1 to 10000 mA" in e.value.errors[0].message
+    # a secondary of a nanovolt behind a 50 V valve: no steady state is claimed (it once gave 1.1 MV)
+    with pytest.raises(PlanErrors) as e:
+        analyze(load_text(head.replace("secondary 280 V", "secondary 0.000000001 V"), "h.gplan"))
+    assert e.value.errors[0].location.line == 35 and "no steady state" in e.value.errors[0].message

@@ -120,6 +120,7 @@ def rectifier(stmt: Statement):
             kw["valve_drop"] = r.quantity("voltage", "valve rectifier drop")
             r.expect("at")
             kw["valve_current"] = r.quantity("current", "the current of that drop")
+            _valve_figures(kw["valve_drop"], kw["valve_current"], stmt)
         elif first.kind == "word" and first.value == "leakage":
             r.word()
             kw["leakage"] = r.quantity("inductance", "leakage inductance", allow_zero=True)
@@ -235,3 +236,20 @@ def heater(stmt: Statement):
     if "current" not in kw:
         raise PlanError("heater needs its current", stmt.loc, "e.g. ', 2.4 A'")
     return Heater(name=name, location=stmt.loc, **kw), refs
+
+
+#: a valve rectifier's stated drop (V) and the current it is stated at (A): the range of real rectifier valves,
+#: with a wide margin (data sheets give drops of tens of volts at tens to hundreds of milliamperes; from memory)
+VALVE_DROP = (0.5, 1000.0)
+VALVE_CURRENT = (1e-4, 10.0)
+
+
+def _valve_figures(drop: float, current: float, stmt) -> None:
+    """A located error for a valve rectifier's drop or current outside what a rectifier valve can be."""
+    for value, (lo, hi), what, unit, scale in ((drop, VALVE_DROP, "drop", "V", 1.0),
+                                               (current, VALVE_CURRENT, "current", "mA", 1e3)):
+        if not lo <= value <= hi:
+            raise PlanError(f"a valve rectifier's {what} of {value * scale:g} {unit} is outside {lo * scale:g} to "
+                            f"{hi * scale:g} {unit}", stmt.loc,
+                            "give the drop a data sheet states and the current it is stated at, e.g. 'valve 50 V at "
+                            "250 mA'")

@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..core.errors import PlanError, PlanErrors
 from ..model.records import Rectifier
 
 __all__ = ["RectifierResult", "simulate", "harmonic_phasors", "STEPS_PER_PERIOD"]
@@ -137,12 +138,26 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     if key not in _SOLVED:
         if len(_SOLVED) >= _SOLVED_MAX:
             _SOLVED.pop(next(iter(_SOLVED)))
-        result = _simulate(r, frequency)
+        result = _checked(r, _simulate(r, frequency))
         for a in (result.t, result.current, result.voltage, result.filter_current):
             if a is not None:
                 a.flags.writeable = False      # shared between analyses: nobody may change it in place
         _SOLVED[key] = result
     return _SOLVED[key]
+
+
+def _checked(r: Rectifier, result: RectifierResult) -> RectifierResult:
+    """The steady state, unless it is not finite or its reservoir holds well over the secondary's peak (no passive
+    rectifier can; the margin of a quarter leaves room for the overshoot a leakage inductance gives): then a
+    located error, never an absurd figure."""
+    peak = math.sqrt(2) * r.secondary * 1.25 + 1.0
+    values = (result.dc_voltage, result.ripple_pp, result.peak_current, result.rms_current)
+    if not all(math.isfinite(v) for v in values) or abs(result.dc_voltage) > peak or (
+            result.output_dc is not None and (not math.isfinite(result.output_dc) or abs(result.output_dc) > peak)):
+        raise PlanErrors([PlanError(f"rectifier {r.name}: no steady state could be found with these figures (the "
+                                    f"result would exceed the secondary's {math.sqrt(2) * r.secondary:.4g} V peak)",
+                                    r.location, "check the rectifier's figures and their units")])
+    return result
 
 
 def _simulate(r: Rectifier, frequency: float) -> RectifierResult:
