@@ -1,6 +1,8 @@
 """A longer fuzz campaign than the test suite runs: grammar-aware plans, valid and mutated.
 
     python benchmarks/fuzz_campaign.py --examples 5000          # hypothesis, grammar-aware
+    python benchmarks/fuzz_campaign.py --grid                   # every number of every example, 17 extreme values
+    python benchmarks/fuzz_campaign.py --mutants 5000           # token mutants of every example
     python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   # coverage-guided, if atheris installs
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
@@ -35,11 +37,41 @@ def one(text: str) -> None:
     assert "NaN" not in out and "Infinity" not in out
 
 
+def examples(grid: bool, mutants: int) -> None:
+    """The extreme-value grid and/or token mutants of every example: cases, crashes (with the first case of each
+    kind), the slowest case; a crash or a case over 20 s is a regression to keep in tests/."""
+    from planfuzz import extreme_variants, token_mutants
+    root = Path(__file__).resolve().parent.parent / "examples"
+    for path in sorted(root.glob("*.gplan")):
+        text = path.read_text()
+        runs = ([("grid", d, t) for d, t in extreme_variants(text)] if grid else []) + \
+            [("mutant", f"#{i}", t) for i, t in enumerate(token_mutants(text, mutants, seed=7))]
+        crashes: dict[str, str] = {}
+        slowest = (0.0, "")
+        t0 = time.perf_counter()
+        for kind, desc, t in runs:
+            s = time.perf_counter()
+            try:
+                one(t)
+            except Exception as e:  # noqa: BLE001 - every crash is recorded
+                crashes.setdefault(f"{type(e).__name__}: {str(e)[:100]}", f"{kind} {desc}")
+            slowest = max(slowest, (time.perf_counter() - s, f"{kind} {desc}"))
+        print(f"{path.name}: {len(runs)} cases in {time.perf_counter() - t0:.0f} s, {len(crashes)} kinds of crash, "
+              f"slowest {slowest[0]:.1f} s ({slowest[1]})", flush=True)
+        for k, where in crashes.items():
+            print(f"  {k}  (first: {where})")
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--examples", type=int, default=2000)
     ap.add_argument("--atheris", action="store_true")
+    ap.add_argument("--grid", action="store_true", help="the extreme-value grid over every example's numbers")
+    ap.add_argument("--mutants", type=int, default=0, metavar="N", help="N token mutants of every example")
     args, rest = ap.parse_known_args()
+    if args.grid or args.mutants:
+        examples(args.grid, args.mutants)
+        return
     if args.atheris:
         import atheris  # type: ignore
 

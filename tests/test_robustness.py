@@ -376,3 +376,31 @@ def test_regression_point_on_a_broken_metal_part():
     with pytest.raises(PlanErrors) as e:
         load_text(text, "fuzz.gplan")
     assert len(e.value.errors) == 1 and "unknown attribute 'luminium'" in str(e.value)
+
+
+# --- the extreme-value grid and token mutants, sampled (the full runs: benchmarks/fuzz_campaign.py) ------------
+
+def _survives(text: str, name: str) -> None:
+    """A plan ends in a result with finite figures or in located errors; nothing else."""
+    try:
+        out = render_json(analyze(load_text(text, name)))
+    except PlanErrors as e:
+        assert all(": error: " in err.one_line() and err.location.line >= 1 for err in e.errors)
+        return
+    assert "NaN" not in out and "Infinity" not in out
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
+def test_extreme_values_in_place_of_numbers_sampled(path):
+    import random
+    from planfuzz import extreme_variants
+    cases = list(extreme_variants(path.read_text()))
+    for _desc, text in random.Random(11).sample(cases, 150):
+        _survives(text, path.name)
+
+
+@pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
+def test_token_mutants_sampled(path):
+    from planfuzz import token_mutants
+    for text in token_mutants(path.read_text(), 150, seed=3):
+        _survives(text, path.name)
