@@ -279,3 +279,12 @@ def test_an_error_in_a_block_placed_twice_is_said_once_with_its_placements():
     (err,) = e.value.errors
     assert (err.location.line, err.location.column) == (5, 16)
     assert "'nowhere'" in err.message and err.message.endswith("(in placements left, right)")
+
+
+def test_an_error_names_the_block_name_that_hides_an_outer_one():
+    text = ('plan "b"\nmetal panel: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point panel: pad, at 10,10\n'
+            "  point p: pad, at 20,20 on panel\n}\nplace ch as left at 0,0\n")
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "b.gplan")
+    (err,) = e.value.errors
+    assert err.location.line == 5 and "'panel' here is the block's own, which hides the name outside it" in err.hint

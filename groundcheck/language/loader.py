@@ -10,14 +10,13 @@ from __future__ import annotations
 import sys
 from contextlib import contextmanager
 from contextvars import ContextVar
-from dataclasses import replace
 from pathlib import Path
 
 from .assemble import HEADER_KEYWORDS, assemble
 from .limits import LIMITS
-from .placement import Transform, name_placements
+from .placement import Transform, name_placements, place
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
-from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
+from ..model.records import Plan
 from .phrases import Reader, Statement
 from .statements import BUILDERS, KEYWORDS, build
 from ..core.runtime import can_fork, no_gc, note_read
@@ -114,6 +113,8 @@ class _Loader:
         self.count = 0
         self.placed = 0                       # elements made by block placements, counted before expanding
         self.placed_at: dict[tuple[str, int], list[str]] = {}   # a block statement's (file, line): its placements
+        self.outer_names: set[str] = set()    # names written at the top level (a block's own name may hide one)
+        self.shadowed: dict[tuple[str, int], set[str]] = {}     # a block statement's (file, line): names it hides
         self._size_cache: dict[str, int] = {}
         self._local_cache: dict[str, set[str]] = {}
         self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
@@ -301,57 +302,13 @@ class _Loader:
                 if self.count > LIMITS["elements"]:
                     raise LimitError(f"plan expands to more than {LIMITS['elements']} elements", st.loc,
                                      "a block placed inside blocks multiplies; place fewer")
-                out.append((st, self.place(record, st, prefix, tf, scopes), refs))
+                out.append((st, place(record, st, prefix, tf, scopes, self.outer_names, self.shadowed), refs))
             except PlanError as e:
                 self.errors.append(e)
                 if st.label:
                     self.broken.add(prefix + st.label)
                 if isinstance(e, LimitError):
                     return
-
-    def place(self, record, st: Statement, prefix: str, tf: Transform, scopes: tuple):
-        """Rename and move a record built inside a block placement.
-
-        A name is looked up in the innermost block first, then in each
-        enclosing block, then at the top level.
-        """
-        if not prefix:
-            return record
-        channel = prefix.split(".")[0]
-        explicit_channel = any(ph and ph[0].kind == "word" and ph[0].value == "channel" for ph in st.phrases)
-
-        def res(name):
-            for pfx, local in scopes:
-                if name in local:
-                    return pfx + name
-            return name
-
-        if isinstance(record, Metal):
-            size = None if record.size is None else (record.size[0] * tf.sx, record.size[1] * tf.sy)
-            return replace(record, name=prefix + record.name, origin=tf(record.origin), size=size)
-        if isinstance(record, Point):
-            return replace(record, name=prefix + record.name, pos=tf(record.pos), on=res(record.on),
-                           group=prefix.rstrip("."))
-        if isinstance(record, Conductor):
-            return replace(record, name=prefix + record.name if record.name else "", a=res(record.a), b=res(record.b),
-                           route=tuple(tf(p) for p in record.route),
-                           channel=record.channel if explicit_channel else channel)
-        if isinstance(record, Rectifier):
-            ch = record.channel if explicit_channel else channel
-            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch,
-                           filter_point=res(record.filter_point))
-        if isinstance(record, Current):
-            ch = record.channel if explicit_channel else channel
-            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch)
-        if isinstance(record, Stage):
-            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
-                           channel=record.channel if explicit_channel else channel)
-        if isinstance(record, Heater):
-            return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
-                           reference=res(record.reference), route=tuple(tf(p) for p in record.route))
-        if isinstance(record, FieldSource):
-            return replace(record, name=prefix + record.name, pos=tf(record.pos))
-        return record
 
 
 def load_text(text: str, file: str = "<plan>", *, root: Path | None = None, _resolved: Path | None = None,
@@ -385,13 +342,14 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
         if not ld.errors and not any(isinstance(i, Statement) for i in items) and not ld.blocks:
             ld.errors.append(PlanError("the plan is empty", Location(file, 1, 1), 'start with: plan "Title"'))
         built = []
+        ld.outer_names = {it.label for it in items if isinstance(it, Statement) and it.label}
         ld.expand(items, "", Transform(), (), 0, (), built)
     plan = None
     if not any(isinstance(e, LimitError) for e in ld.errors):
         plan = assemble(built, file, ld)
     if ld.errors:
         for e in ld.errors:
-            name_placements(e, ld.placed_at)
+            name_placements(e, ld.placed_at, ld.shadowed)
             lines = ld.sources.get(e.location.file)
             if e.source_line is None and lines and 1 <= e.location.line <= len(lines):
                 e.source_line = lines[e.location.line - 1]

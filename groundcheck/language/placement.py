@@ -3,9 +3,11 @@ their placements."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
-__all__ = ["Transform", "name_placements"]
+from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Point, Rectifier, Stage
+
+__all__ = ["Transform", "name_placements", "place"]
 
 
 @dataclass(frozen=True)
@@ -25,11 +27,68 @@ class Transform:
                          outer.sy * self.sy)
 
 
-def name_placements(e, placed_at: dict) -> None:
-    """An error in a block's statement says which placements it is in (said once for all of them).
+def name_placements(e, placed_at: dict, shadowed: dict | None = None) -> None:
+    """An error in a block's statement says which placements it is in (said once for all of them), and which of
+    its names are the block's own that hide a name outside it.
 
-    ``e``: a PlanError; ``placed_at``: (file, line) of each statement expanded in a placement -> the placements.
+    ``e``: a PlanError; ``placed_at``: (file, line) of each statement expanded in a placement -> the placements;
+    ``shadowed``: (file, line) -> the names there that hide outer ones.
     """
-    where = list(dict.fromkeys(placed_at.get((e.location.file, e.location.line), ())))
+    key = (e.location.file, e.location.line)
+    where = list(dict.fromkeys(placed_at.get(key, ())))
     if where and "(in placement" not in e.message:
         e.message += f" (in placement{'s' if len(where) > 1 else ''} {', '.join(where)})"
+    hidden = sorted((shadowed or {}).get(key, ()))
+    if hidden and "hides" not in e.hint:
+        said = ", ".join(repr(n) for n in hidden)
+        e.hint = (e.hint + "; " if e.hint else "") + (f"{said} here is the block's own, which hides the "
+                                                        f"{'name' if len(hidden) == 1 else 'names'} outside it")
+
+
+def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str], shadowed: dict):
+    """Rename and move a record built inside a block placement (``outer``: the top level's names; a name of the
+    block's own that hides one of them, or one of an enclosing block, is noted in ``shadowed`` for the errors of
+    that statement).
+
+    A name is looked up in the innermost block first, then in each
+    enclosing block, then at the top level.
+    """
+    if not prefix:
+        return record
+    channel = prefix.split(".")[0]
+    explicit_channel = any(ph and ph[0].kind == "word" and ph[0].value == "channel" for ph in st.phrases)
+
+    def res(name):
+        for k, (pfx, local) in enumerate(scopes):
+            if name in local:
+                if name in outer or any(name in inner for _, inner in scopes[k + 1:]):
+                    shadowed.setdefault((st.loc.file, st.loc.line), set()).add(name)
+                return pfx + name
+        return name
+
+    if isinstance(record, Metal):
+        size = None if record.size is None else (record.size[0] * tf.sx, record.size[1] * tf.sy)
+        return replace(record, name=prefix + record.name, origin=tf(record.origin), size=size)
+    if isinstance(record, Point):
+        return replace(record, name=prefix + record.name, pos=tf(record.pos), on=res(record.on),
+                       group=prefix.rstrip("."))
+    if isinstance(record, Conductor):
+        return replace(record, name=prefix + record.name if record.name else "", a=res(record.a), b=res(record.b),
+                       route=tuple(tf(p) for p in record.route),
+                       channel=record.channel if explicit_channel else channel)
+    if isinstance(record, Rectifier):
+        ch = record.channel if explicit_channel else channel
+        return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch,
+                       filter_point=res(record.filter_point))
+    if isinstance(record, Current):
+        ch = record.channel if explicit_channel else channel
+        return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch)
+    if isinstance(record, Stage):
+        return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
+                       channel=record.channel if explicit_channel else channel)
+    if isinstance(record, Heater):
+        return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
+                       reference=res(record.reference), route=tuple(tf(p) for p in record.route))
+    if isinstance(record, FieldSource):
+        return replace(record, name=prefix + record.name, pos=tf(record.pos))
+    return record
