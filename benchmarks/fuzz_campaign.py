@@ -38,11 +38,12 @@ def one(text: str) -> None:
 
 
 def examples(grid: bool, mutants: int) -> None:
-    """The extreme-value grid and/or token mutants of every example: cases, crashes (with the first case of each
+    """The extreme-value grid and/or token mutants of every example and of the plan that uses every statement:
+    cases, crashes (with the first case of each
     kind), the slowest case; a crash or a case over 20 s is a regression to keep in tests/."""
     from planfuzz import extreme_variants, token_mutants
-    root = Path(__file__).resolve().parent.parent / "examples"
-    for path in sorted(root.glob("*.gplan")):
+    root = Path(__file__).resolve().parent.parent
+    for path in [*sorted((root / "examples").glob("*.gplan")), root / "tests" / "plans" / "every-statement.gplan"]:
         text = path.read_text()
         runs = ([("grid", d, t) for d, t in extreme_variants(text)] if grid else []) + \
             [("mutant", f"#{i}", t) for i, t in enumerate(token_mutants(text, mutants, seed=7))]

@@ -390,7 +390,10 @@ def _survives(text: str, name: str) -> None:
     assert "NaN" not in out and "Infinity" not in out
 
 
-@pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
+FUZZED = [*EXAMPLES, ROOT / "tests" / "plans" / "every-statement.gplan"]
+
+
+@pytest.mark.parametrize("path", FUZZED, ids=[e.name for e in FUZZED])
 def test_extreme_values_in_place_of_numbers_sampled(path):
     import random
     from planfuzz import extreme_variants
@@ -399,7 +402,7 @@ def test_extreme_values_in_place_of_numbers_sampled(path):
         _survives(text, path.name)
 
 
-@pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
+@pytest.mark.parametrize("path", FUZZED, ids=[e.name for e in FUZZED])
 def test_token_mutants_sampled(path):
     from planfuzz import token_mutants
     for text in token_mutants(path.read_text(), 150, seed=3):
