@@ -198,13 +198,15 @@ class Factored:
     lu: object
     real: bool = False                   # the factors are real (DC or a purely resistive network)
 
-    def solve(self, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
+    def solve(self, injections: np.ndarray, emf: np.ndarray | None = None, currents: bool = True) -> "Solution":
         """Node voltages and branch currents for each column of sources.
 
         ``injections``: (nodes × k) complex currents entering each node, A.
         ``emf``: optional (branches × k) EMF in series with each branch, V; it
         drives current from n1 to n2 through the branch.  Voltages are
-        relative to each connected part's reference node.
+        relative to each connected part's reference node.  ``currents`` False
+        leaves the branch currents out (an empty array): for many columns they
+        are the largest part of the work and of the memory.
         """
         n1, n2, *_ = self.circuit._arrays
         n = len(self.circuit.nodes)
@@ -225,6 +227,8 @@ class Factored:
                     V[self.keep] += 1j * self.lu.solve(np.ascontiguousarray(rhs.imag))
             else:
                 V[self.keep] = self.lu.solve(rhs)
+        if not currents:
+            return Solution(self.circuit, self.frequency, V, np.zeros((len(y), 0), dtype=complex))
         dv = V[n1] - V[n2]
         if emf is not None:
             dv = dv + emf

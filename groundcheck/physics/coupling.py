@@ -256,7 +256,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
         return []
     _, labels = circuit.components
     fac = circuit.at(0.0)
-    src = fac.solve(source_injections(circuit, sources, 0.0))
+    src = fac.solve(source_injections(circuit, sources, 0.0), currents=False)   # the voltages tell who shares
     split = np.array([labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages])
     ia = np.array([circuit.point_node[st.a] for st in stages])
     ib = np.array([circuit.point_node[st.b] for st in stages])
@@ -273,15 +273,19 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     column = {k: i for i, k in enumerate(need)}
     test = fac.solve(pair_tests(circuit, [(stages[k].a, stages[k].b) for k in need]))
     owners = branch_owner(circuit)
-    W = fac.z[:, None] * src.I                                       # branches × sources
+    # branch currents only for the sources that share (not one column for every source of a large installation)
+    used = sorted({int(si) for _, si in pairs})
+    scol = {si: i for i, si in enumerate(used)}
+    I = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).I
+    W = fac.z[:, None] * I                                           # branches × sharing sources
     rows = []
     for k, si in pairs:
         s, st = sources[si], stages[k]
         if labels[circuit.point_node[s.a]] != labels[circuit.point_node[st.a]]:
             continue
         t_k = test.I[:, column[int(k)]]
-        shares = W[:, si] * t_k
-        carrying = (np.abs(src.I[:, si]) >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
+        shares = W[:, scol[int(si)]] * t_k
+        carrying = (np.abs(I[:, scol[int(si)]]) >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
         if not carrying.any():
             continue
         rows.append(SharedReturn(s.name, s.kind, s.a, s.b, s.location, st.name, st.a, st.b, st.gain, st.location,
