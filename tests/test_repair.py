@@ -43,6 +43,10 @@ def test_dual_mono_best_suggestion_clears_the_shared_return():
     best = evs[0]
     assert not best.rejected
     assert "GC102" not in _codes_after(best)                                                # planted mistake 3
+    # of the changes that gain as much, the smaller one ranks first: the equalisation ground's own 36 mm wire
+    # to its star, not a 54 mm re-route of the supply's wiring (lengths: straight route + 20 %, by hand from
+    # right.eq_gnd 255,170 to right.star 260,200: 30.4 mm x 1.2 = 36 mm)
+    assert best.candidate.title.startswith("take right.eq_gnd to right.star") and round(best.candidate.wire, 3) == 0.036
     assert any(not e.rejected and e.candidate.title.startswith("remove arm_gnd") and
                not {"GC101", "GC105"} & _codes_after(e) for e in evs)                        # planted mistake 1
     assert any(not e.rejected and "right_out" in e.candidate.title and "GC103" not in _codes_after(e)

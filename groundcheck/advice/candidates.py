@@ -176,7 +176,7 @@ def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
                 same.last)
     return Candidate(f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud {a} on "
                      f"{home} beside {landing.name} to a new stud {b} on {part}; bare metal under toothed washers)",
-                     f.code, (edit,), touches_protective=False)
+                     f.code, (edit,), touches_protective=False, wire=length / 1e3)
 
 
 def _thicker(ctx: ChangeContext, f) -> Candidate | None:

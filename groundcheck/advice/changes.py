@@ -36,6 +36,7 @@ class Candidate:
     reason: str                     # the finding code(s) it answers
     edits: tuple[Edit, ...]
     touches_protective: bool = False
+    wire: float = 0.0               # metres of wire the change lays (a re-routed wire's new length): its size
 
 
 class ChangeContext:
@@ -151,7 +152,7 @@ def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason
         title += f"; new length {length * 1e3:.0f} mm (straight route + {ROUTE_ALLOWANCE:.0%})"
     edit = ctx.src.replace(st, changes, drop_comment=True)
     note = block_note(c.name, label) if st.loc.file == ctx.plan.file else ""
-    return Candidate(title + note, reason, (edit,), ctx.protective(c))
+    return Candidate(title + note, reason, (edit,), ctx.protective(c), wire=length or 0.0)
 
 
 def rephrase(ctx: ChangeContext, c, words: tuple[str, ...], new: str, title: str, reason: str, protective=None):

@@ -51,11 +51,11 @@ class Evaluation:
 
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
-        introduced, size of the change."""
+        introduced, size of the change (statements edited, then metres of wire laid)."""
         gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0,
                                                                                 d) for d in self.hum_change_db.values())
         return (bool(self.rejected), -self.net.get("danger", 0), -self.net.get("fault", 0), -round(gain, 1),
-                len(self.introduced), len(self.candidate.edits), self.candidate.title)
+                len(self.introduced), len(self.candidate.edits), round(self.candidate.wire, 4), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
         return {"title": self.candidate.title, "answers": self.candidate.reason, "score": round(self.score, 3),
