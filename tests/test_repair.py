@@ -413,3 +413,21 @@ def test_an_unbonded_touchable_part_gets_a_protective_wire(tmp_path):
     new = apply_edits(UNBONDED_LID, e.candidate.edits)
     assert "wire lid_pe_bond: deck_bond to lid_pe" in new
     assert [x for x in new.split("\n") if x in UNBONDED_LID.split("\n")] == UNBONDED_LID.split("\n")   # only added
+
+
+def test_a_channel_star_chained_through_the_other_channels_star(tmp_path):
+    # the phono stage with its right channel's star wired to the left channel's star instead of the supply star
+    text = DUAL.read_text().replace("wire right_link: right.star to psu_star, 140 mm, 0.75 mm2, signal",
+                                    "wire right_link: right.star to left.star, 120 mm, 0.75 mm2, signal")
+    before, evs = _evs(text, tmp_path, "chain.gplan")
+    (f,) = [f for f in before.findings if f.code == "GC103" and "left.star" in f.elements]
+    assert f.location.line == text.split("\n").index(next(x for x in text.split("\n")
+                                                           if x.startswith("wire right_link"))) + 1
+    assert "right.star reaches psu_star only through left.star" in f.message
+    assert f.actions == (("reroute", "right_link", "psu_star"),)
+    (e,) = [e for e in evs if e.candidate.title.startswith("run right.star to psu_star by its own wire")]
+    assert not e.rejected and not any(g.code == "GC103" and "left.star" in g.elements for g in e.result.findings)
+    # its new length: right.star (260,200) to psu_star (150,160), 117.0 mm straight, + 20 %: 140 mm
+    assert "right_link: right.star to psu_star, 140 mm" in apply_edits(text, e.candidate.edits)
+    # the phono stage as written (each channel star on its own wire to the supply star) has no such finding
+    assert not any(g.code == "GC103" and "left.star" in g.elements for g in analyze(load(DUAL)).findings)

@@ -74,6 +74,16 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
 
 def _star_candidates(ctx: ChangeContext, f, add) -> None:
     import networkx as nx
+    for verb, name, *where in f.actions:     # a star reaching the common star through another channel's
+        c = ctx.cond.get(name)
+        if verb != "reroute" or c is None or not where:
+            continue
+        dist = nx.single_source_shortest_path_length(ctx.G, where[0])
+        near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
+        far = c.b if near == c.a else c.a
+        add(reroute(ctx, name, near, where[0], f"run {far} to {where[0]} by its own wire ({name})", "GC103"))
+    if f.actions:
+        return
     stars = [e for e in f.elements if e in ctx.stars]
     if not stars:
         return

@@ -92,10 +92,11 @@ RULES: dict[str, Rule] = dict([
        "Take the supply return straight to the supply star (reservoir negative and centre tap joined by a "
        "short wire of their own), and take the stage's reference to the signal star by its own wire."),
     _r("GC103", "star-chain", "warning",
-       "Returns that reach a star through each other: a chain that only looks like a star.",
+       "Returns that reach a star through each other: a chain that only looks like a star. Also a channel's star "
+       "(a block placement's) that reaches the plan's own star only through another channel's star.",
        "Each return in a chain carries the currents of those behind it, so their drops add into the references further "
-       "along.",
-       "Run each return to the star by a wire of its own."),
+       "along; a channel star chained through another puts one channel's returns in the other's wiring.",
+       "Run each return (or each channel's star) to the star by a wire of its own."),
     _r("GC104", "star-single-branch", "note",
        "A point declared as a star that has only one conductor.",
        "A star with one branch gathers nothing; the plan probably misses wires or the star is misnamed.",

@@ -113,6 +113,37 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
         out.append(Finding("GC103", "warning", f"star {star} is partly a chain: {desc}", first, elements,
                            {"chained_returns": len(pairs)},
                            "; ".join(f"run {t} to {star} by a wire of its own" for t, _ in pairs)))
+    out += _stars_through_other_placements(ctx, stars, groups, allowed)
+    return out
+
+
+def _stars_through_other_placements(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
+    """GC103 for a star of one placement (a channel) that reaches the plan's own star only through the star of
+    another placement: its returns then flow in the other channel's star wire (dual-mono practice: each channel's
+    star on a wire of its own to the common star, common practice)."""
+    own = sorted(s.name for s in stars if not groups.get(s.name))
+    placed = [s for s in stars if groups.get(s.name)]
+    if not own or not placed:
+        return []
+    _, parent = bfs(ctx.adj, own, allowed)
+    out = []
+    for s in placed:
+        if s.name not in parent:
+            continue
+        path = [s.name]
+        while parent[path[-1]] is not None:
+            path.append(parent[path[-1]])
+        via = next((n for n in path[1:-1] if groups.get(n) and groups.get(n) != groups.get(s.name)
+                    and ctx.plan.point(n).kind == "star"), None)
+        if via is None:
+            continue
+        root, link = path[-1], next((k for k in ctx.G[s.name].get(via, {}) if path[1] == via), None)
+        out.append(Finding("GC103", "warning", f"star {s.name} reaches {root} only through {via}, the star of "
+                                               f"{groups[via]}: the returns of {groups[s.name]} flow in its wiring",
+                           ctx.loc(link) if link else s.location,
+                           tuple(sorted({s.name, via, root} | ({link} if link else set()))),
+                           {"chained_returns": 1}, f"run {s.name} to {root} by a wire of its own",
+                           (("reroute", link, root),) if link else ()))
     return out
 
 
