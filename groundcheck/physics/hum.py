@@ -45,6 +45,9 @@ TOP_SHARES = 10
 #: conductors listed per source in the JSON ``network`` section (the largest currents)
 NETWORK_ROWS = 50
 
+#: sources solved together in the hum budget (their branches × sources arrays bound the memory)
+SOURCE_CHUNK = 128
+
 
 
 def _emf_columns(circuit, loops, fields, f0, f, names, flux):
@@ -236,17 +239,22 @@ class _Budget:
         return g
 
     def _sources(self, f, fac, active, part) -> None:
-        """Each stated or simulated current's voltage at each channel's output, with the conductors' shares."""
-        circuit, owners = self.circuit, self.owners
+        """Each stated or simulated current's voltage at each channel's output, with the conductors' shares; the
+        sources are solved SOURCE_CHUNK at a time, so a large installation's branches × sources arrays stay small
+        (the channels' test currents are solved once)."""
         gains = self.gains_at(fac)
         tests = self.tests if not any(b is not None for b in self.across) else channel_tests(
-            circuit, [self.stages[k] for k in self.valid_idx], self.channels, gains[self.valid_idx])
-        both = fac.solve(np.hstack([source_injections(circuit, active, f), tests]))
-        W = fac.z[:, None] * both.I[:, :len(active)]                 # branches × sources: Z_b·I_b(s)
-        TC = both.I[:, len(active):]                                 # branches × channels
+            self.circuit, [self.stages[k] for k in self.valid_idx], self.channels, gains[self.valid_idx])
+        TC = fac.solve(tests).I                                      # branches × channels
+        for lo in range(0, len(active), SOURCE_CHUNK):
+            self._source_chunk(f, fac, active[lo:lo + SOURCE_CHUNK], gains, TC, part)
+
+    def _source_chunk(self, f, fac, active, gains, TC, part) -> None:
+        circuit, owners = self.circuit, self.owners
+        both = fac.solve(source_injections(circuit, active, f))
+        W = fac.z[:, None] * both.I                                  # branches × sources: Z_b·I_b(s)
         # each stage's own drop (node voltages of the source solves), for the worst case: every stage in phase
-        stage_v = (np.abs(both.V[self.stage_a, :len(active)] - both.V[self.stage_b, :len(active)])
-                   * np.abs(gains[self.valid_idx])[:, None])
+        stage_v = (np.abs(both.V[self.stage_a] - both.V[self.stage_b]) * np.abs(gains[self.valid_idx])[:, None])
         for ci, ch in enumerate(self.channels):
             for si, s in enumerate(active):
                 group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
