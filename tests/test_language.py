@@ -271,20 +271,22 @@ def test_a_bad_unit_is_one_error_not_a_follow_on_comma_error():
     assert e.value.errors[0].location.column == 20
 
 
-def test_an_error_in_a_block_placed_twice_is_said_once_with_its_placements():
-    text = ('plan "b"\nmetal deck: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point s: star, at 10,10 on deck\n'
-            "  wire w: s to nowhere, 10 mm, 0.5 mm2\n}\nplace ch as left at 0,0\nplace ch as right at 0,50\n")
+def _the_one_error(text: str):
     with pytest.raises(PlanErrors) as e:
         load_text(text, "b.gplan")
     (err,) = e.value.errors
+    return err
+
+
+def test_an_error_in_a_block_placed_twice_is_said_once_with_its_placements():
+    err = _the_one_error('plan "b"\nmetal deck: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point s: star, at 10,10 '
+                         "on deck\n  wire w: s to nowhere, 10 mm, 0.5 mm2\n}\nplace ch as left at 0,0\nplace ch as "
+                         "right at 0,50\n")
     assert (err.location.line, err.location.column) == (5, 16)
     assert "'nowhere'" in err.message and err.message.endswith("(in placements left, right)")
 
 
 def test_an_error_names_the_block_name_that_hides_an_outer_one():
-    text = ('plan "b"\nmetal panel: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point panel: pad, at 10,10\n'
-            "  point p: pad, at 20,20 on panel\n}\nplace ch as left at 0,0\n")
-    with pytest.raises(PlanErrors) as e:
-        load_text(text, "b.gplan")
-    (err,) = e.value.errors
+    err = _the_one_error('plan "b"\nmetal panel: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point panel: pad, at '
+                         "10,10\n  point p: pad, at 20,20 on panel\n}\nplace ch as left at 0,0\n")
     assert err.location.line == 5 and "'panel' here is the block's own, which hides the name outside it" in err.hint

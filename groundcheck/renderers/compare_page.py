@@ -11,7 +11,7 @@ from html import escape
 from ..core.version import __version__
 from ..rules.catalogue import SEVERITIES
 from ..rules.results import Result
-from .html import CSS, _inline_svg
+from .html import CSS, _inline_svg, chart_frame
 
 __all__ = ["compare_page", "pair_chart"]
 
@@ -49,16 +49,9 @@ def pair_chart(channel: str, rows: list[dict], max_freq: float) -> str:
     def Y(v):
         return T + (top - min(max(v, bottom), top)) / (top - bottom) * (H - T - B)
 
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" role="img" '
-           f'aria-label="hum of channel {escape(channel)} before and after">',
-           f'<rect x="{L}" y="{T}" width="{W - L - R}" height="{H - T - B}" fill="#fbfbfb" stroke="#bbb"/>',
-           f'<text x="{L + 4}" y="14" font-size="10" fill="{BEFORE_COLOUR}">■ before</text>'
-           f'<text x="{L + 64}" y="14" font-size="10" fill="{AFTER_COLOUR}">■ after</text>']
-    for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000):
-        if f <= hi_f:
-            out.append(f'<line x1="{X(f):.1f}" y1="{T}" x2="{X(f):.1f}" y2="{H - B}" stroke="#e4e4e4"/>'
-                       f'<text x="{X(f):.1f}" y="{H - B + 14}" font-size="10" text-anchor="middle">'
-                       f'{f if f < 1000 else str(f // 1000) + "k"}</text>')
+    out = chart_frame((W, H, L, R, T, B), X, hi_f, f"hum of channel {channel} before and after")
+    out.append(f'<text x="{L + 4}" y="14" font-size="10" fill="{BEFORE_COLOUR}">■ before</text>'
+               f'<text x="{L + 64}" y="14" font-size="10" fill="{AFTER_COLOUR}">■ after</text>')
     v = math.ceil(bottom / 20) * 20
     while v <= top:
         out.append(f'<text x="{L - 4}" y="{Y(v) + 3:.1f}" font-size="10" text-anchor="end">{v:.0f}</text>')

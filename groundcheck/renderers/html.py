@@ -18,7 +18,7 @@ from ..physics.hearing import threshold_of_hearing
 from ..core.caution import CAUTION
 from .text import figure_words
 
-__all__ = ["html_report", "spectrum_svg"]
+__all__ = ["html_report", "spectrum_svg", "chart_frame", "plan_line_html"]
 
 CSS = """
 body{font-family:system-ui,Helvetica,Arial,sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}
@@ -55,6 +55,22 @@ def _inline_svg(svg: bytes | str | None) -> str:
     return text.strip()
 
 
+def chart_frame(box: tuple, X, hi_f: float, label: str) -> list[str]:
+    """The start of a spectrum chart: the SVG element (``label`` for screen readers), its plot area and the
+    frequency grid with its labels.  ``box``: width, height and the left, right, top and bottom margins;
+    ``X``: frequency -> x."""
+    W, H, L, R, T, B = box
+    out = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" role="img" '
+           f'aria-label="{escape(label)}">',
+           f'<rect x="{L}" y="{T}" width="{W - L - R}" height="{H - T - B}" fill="#fbfbfb" stroke="#bbb"/>']
+    for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000):
+        if f <= hi_f:
+            out.append(f'<line x1="{X(f):.1f}" y1="{T}" x2="{X(f):.1f}" y2="{H - B}" stroke="#e4e4e4"/>'
+                       f'<text x="{X(f):.1f}" y="{H - B + 14}" font-size="10" '
+                       f'text-anchor="middle">{f if f < 1000 else str(f // 1000) + "k"}</text>')
+    return out
+
+
 def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
     """A chart of one channel's hum: a stem per harmonic, and the threshold of hearing as a line.
 
@@ -81,14 +97,7 @@ def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
         v = min(max(v, bottom), top)
         return T + (top - v) / (top - bottom) * (H - T - B)
 
-    out = [f'<svg xmlns="http://www.w3.org/2000/svg" width="{W}" height="{H}" viewBox="0 0 {W} {H}" role="img" '
-           f'aria-label="hum spectrum of channel {escape(channel.channel)}">',
-           f'<rect x="{L}" y="{T}" width="{W - L - R}" height="{H - T - B}" fill="#fbfbfb" stroke="#bbb"/>']
-    for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000):
-        if f <= hi_f:
-            out.append(f'<line x1="{X(f):.1f}" y1="{T}" x2="{X(f):.1f}" y2="{H - B}" stroke="#e4e4e4"/>'
-                       f'<text x="{X(f):.1f}" y="{H - B + 14}" font-size="10" '
-                       f'text-anchor="middle">{f if f < 1000 else str(f // 1000) + "k"}</text>')
+    out = chart_frame((W, H, L, R, T, B), X, hi_f, f"hum spectrum of channel {channel.channel}")
     step = 20
     v = math.ceil(bottom / step) * step
     while v <= top:
