@@ -1,6 +1,7 @@
 """Repair advisor and comparison."""
 
 import json
+import math
 import shutil
 import subprocess
 
@@ -74,6 +75,10 @@ def test_a_poorly_bonded_panel_gets_a_protective_wire_of_its_own(tmp_path):
     new = load_text(apply_edits(MONO.read_text(), e.candidate.edits), str(tmp_path / "h.gplan"), root=MONO.parent)
     wire = next(c for c in new.conductors if c.name == "front_pe_bond")
     assert wire.role == "protective" and wire.area >= new.mains.line_area
+    # its length: the straight line between its two new studs plus the stated 20 %, to the millimetre
+    a, b = new.point("case_bond").pos, new.point("front_pe").pos
+    assert wire.length == pytest.approx(round(math.dist(a, b) * 1.2, 3), abs=1e-3)
+    assert new.point("case_bond").on == "case" and new.point("front_pe").on == "front"
     front = next(p for p in analyze(new).safety.parts if p.part == "front")
     assert front.path_resistance < 0.1                               # the default limit, 0.1 ohm
     # the old contact stays: nothing protective is removed

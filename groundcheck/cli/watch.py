@@ -17,7 +17,6 @@ import signal
 import sys
 import threading
 import time
-from concurrent.futures import ThreadPoolExecutor
 from http.server import BaseHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
 
@@ -60,7 +59,6 @@ class LiveView:
         self.files: set[Path] = {Path(plan).resolve()}
         self._good_result = None
         self._good_state: dict | None = None
-        self._pool = ThreadPoolExecutor(max_workers=2)
 
     def refresh(self) -> None:
         """Load, analyse and draw the plan again; publish the new state (or the errors) to every page."""
@@ -93,19 +91,10 @@ class LiveView:
         self._say(status_line(result, seconds))
 
     def _drawings(self, result):
-        """Both drawings as SVG text, drawn side by side (None for one that cannot be drawn)."""
-        from ..renderers.dot import physical_dot, topology_dot
-        from ..renderers.drawing import DrawingError, render_dot
-
-        def draw(source, engine):
-            try:
-                return render_dot(source, "svg", engine, self.renderer)[0].decode("utf-8")
-            except DrawingError:
-                return None
-        has_pos = any(p.pos is not None for p in result.plan.points)
-        phys = self._pool.submit(draw, physical_dot(result), "neato") if has_pos else None
-        topo = self._pool.submit(draw, topology_dot(result), "dot")
-        return (phys.result() if phys else None), topo.result()
+        """Both drawings as SVG text (None for one that cannot be drawn; no physical view without positions)."""
+        from ..renderers.formats import both_views
+        views, _ = both_views(result, self.renderer, physical=any(p.pos is not None for p in result.plan.points))
+        return tuple(None if v is None else v[0].decode("utf-8") for v in views)
 
     def _publish(self, state: dict) -> None:
         data = json.dumps(state, ensure_ascii=False, allow_nan=False, default=str).encode("utf-8")
@@ -118,9 +107,6 @@ class LiveView:
         from ..core.errors import shown
         self.log.write(f"{time.strftime('%H:%M:%S')}  {shown(text)}\n")
         self.log.flush()
-
-    def close(self) -> None:
-        self._pool.shutdown(wait=False, cancel_futures=True)
 
 
 class LiveHandler(BaseHTTPRequestHandler):
@@ -251,7 +237,6 @@ def cmd_watch(args) -> int:
             view.changed.notify_all()
         server.shutdown()
         server.server_close()
-        view.close()
         signal.signal(signal.SIGTERM, previous)
     sys.stderr.write("groundcheck: live view stopped\n")
     return 0

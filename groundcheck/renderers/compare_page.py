@@ -11,15 +11,11 @@ from html import escape
 from ..core.version import __version__
 from ..rules.catalogue import SEVERITIES
 from ..rules.results import Result
-from .html import CSS, _inline_svg, chart_frame
+from .html import CSS, _f, _inline_svg, chart_frame
 
 __all__ = ["compare_page", "pair_chart"]
 
 BEFORE_COLOUR, AFTER_COLOUR = "#9a9a9a", "#2c6fbb"
-
-
-def _f(x, fmt: str) -> str:
-    return "–" if x is None else fmt.format(x)
 
 
 def _ohms(x) -> str:
@@ -75,8 +71,10 @@ def _totals(d: dict, before: Result, after: Result, e=escape) -> list[str]:
     rows.append(f"<tr><td>ground loops</td><td class=num>{d['loops']['total_before']}</td>"
                 f"<td class=num>{d['loops']['total_after']}</td></tr>")
     for ch, h in d["hum"].items():
-        change = _f(h["change_db"], " ({:+.1f} dB)") if h["change_db"] is not None else (
-            " (removed)" if h["after_dbv"] is None and h["before_dbv"] is not None else "")
+        if h["change_db"] is not None:
+            change = f" ({h['change_db']:+.1f} dB)"
+        else:
+            change = " (removed)" if h["after_dbv"] is None and h["before_dbv"] is not None else ""
         rows.append(f"<tr><td>hum, {e(ch)}</td><td class=num>{_hum(h['before_dbv'])}</td>"
                     f"<td class=num>{_hum(h['after_dbv'])}{change}</td></tr>")
     return ['<h2>Totals</h2><table id="totals"><tr><th></th><th>before</th><th>after</th></tr>', *rows, "</table>"]

@@ -58,18 +58,39 @@ def source_lines(plan) -> dict[str, list[str]]:
     return out
 
 
-def html_document(result: Result, renderer: str = "auto") -> tuple[str, str | None]:
-    """The HTML report with both drawings, and a warning when they could not be drawn (None when they were)."""
+def both_views(result: Result, renderer: str = "auto", physical: bool = True) -> tuple[list, list[str]]:
+    """The physical and topology drawings as SVG, drawn side by side (two Graphviz runs at once).
+
+    Returns ([(svg, what drew it) or None for each view], [why a view could not be drawn]); ``physical`` False
+    leaves the physical view out (None, no reason given).
+    """
+    from concurrent.futures import ThreadPoolExecutor
     from .dot import physical_dot, topology_dot
     from .drawing import DrawingError, render_dot
+    jobs = [(physical_dot(result), "neato")] if physical else []
+    jobs.append((topology_dot(result), "dot"))
+    problems: list[str] = []
+
+    def draw(job):
+        try:
+            return render_dot(job[0], "svg", job[1], renderer)
+        except DrawingError as e:
+            problems.append(str(e))
+            return None
+    with ThreadPoolExecutor(len(jobs)) as pool:
+        views = list(pool.map(draw, jobs))
+    return ([None] if not physical else []) + views, problems
+
+
+def html_document(result: Result, renderer: str = "auto") -> tuple[str, str | None]:
+    """The HTML report with both drawings, and a warning when they could not be drawn (None when they were)."""
     from .html import html_report
-    try:
-        phys, how_p = render_dot(physical_dot(result), "svg", "neato", renderer)
-        topo, how_t = render_dot(topology_dot(result), "svg", "dot", renderer)
-    except DrawingError as e:
-        return html_report(result, None, None, "", source_lines(result.plan)), f"{e}; the report has no drawings"
-    how = f"the physical view by {how_p}, the topology by {how_t}"
-    return html_report(result, phys, topo, how, source_lines(result.plan)), None
+    (phys, topo), problems = both_views(result, renderer)
+    if problems or phys is None or topo is None:
+        return html_report(result, None, None, "", source_lines(result.plan)), \
+            f"{problems[0]}; the report has no drawings"
+    how = f"the physical view by {phys[1]}, the topology by {topo[1]}"
+    return html_report(result, phys[0], topo[0], how, source_lines(result.plan)), None
 
 
 def _html(results: list[Result]) -> str:
