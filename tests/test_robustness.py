@@ -28,16 +28,18 @@ def protective_figures(p):
 
 
 def _outcome(text):
-    """Either a full analysis rendered to JSON, or PlanErrors with file:line:col messages."""
+    """Either a full analysis rendered to JSON, or PlanErrors with file:line:col messages (from loading, or from the
+    analysis: a rectifier whose figures have no steady state, such as a load current its winding cannot supply)."""
     try:
         p = load_text(text, "fuzz.gplan")
+        result = analyze(p)
     except PlanErrors as e:
         for err in e.errors:
             assert err.one_line().startswith("fuzz.gplan:")
             assert ": error: " in err.one_line()
         e.render()
         return None
-    out = render_json(analyze(p))
+    out = render_json(result)
     assert "NaN" not in out and "Infinity" not in out
     json.loads(out)
     return out

@@ -268,7 +268,7 @@ def cmd_export(args) -> int:
     circuit = build_circuit(plan)
     f = args.frequency or 0.0
     results = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
-    sources = [(s.name, s.a, s.b, s.parts[f]) for s in plan_sources(plan, results, max(f, plan.frequency))
+    sources = [(s.name, s.a, s.b, s.parts[f]) for s in plan_sources(plan, results, max(f, plan.frequency), circuit)
                if abs(s.parts.get(f, 0)) > 0]
     if args.frequency:
         text = to_spice(circuit, plan.title, sources, frequency=f, analysis="ac")

@@ -12,14 +12,16 @@ from pathlib import Path
 from ..core.errors import LimitError, Location, PlanError
 from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .devices import merge_device
+from .installation import check_bundles, check_supplies, land_shields, leakage_currents
 from .limits import LIMITS
 
 __all__ = ["assemble", "HEADER_KEYWORDS"]
 
 #: keywords of the plan header (one each per file; not allowed inside a block)
-HEADER_KEYWORDS = ("plan", "mains", "ambient", "listening", "library", "device")
+HEADER_KEYWORDS = ("plan", "mains", "supply", "ambient", "listening", "library", "device")
 
-_HEADER_FIELD = {"plan": "title", "mains": "mains", "ambient": "ambient", "listening": "listening"}
+_HEADER_FIELD = {"plan": "title", "mains": "mains", "supply": "supply", "ambient": "ambient",
+                 "listening": "listening"}
 
 
 def _collect(built: list, ld):
@@ -133,20 +135,6 @@ def acceptances(sources: dict) -> tuple:
     return tuple(out)
 
 
-def _check_supplies(supplies: list, mains, ld) -> None:
-    """Devices of one installation share one supply: 50 and 60 Hz devices cannot be plugged into it together
-    (a building has one mains frequency; a device for the other needs a frequency converter, which is then
-    the device's own supply)."""
-    freqs = {s[2] for s, _ in supplies} | ({mains.frequency} if mains is not None else set())
-    if len(freqs) > 1:
-        (name, _, f), loc = next((s, loc) for s,
-                                 loc in supplies if s[2] != (mains.frequency if mains else supplies[0][0][2]))
-        ld.errors.append(PlanError(f"device {name} is for a {f:g} Hz supply, but the installation's other devices are "
-                                   f"on {', '.join(f'{x:g}' for x in sorted(freqs - {f}))} Hz", loc,
-                                   "one installation has one mains frequency; place the device in a plan of its own "
-                                   "supply"))
-
-
 def assemble(built: list, file: str, ld) -> Plan:
     """The plan of a file's built ``(statement, record, refs)`` list; errors are added to ``ld.errors``."""
     header, groups, names, devices, library_dirs = _collect(built, ld)
@@ -160,7 +148,10 @@ def assemble(built: list, file: str, ld) -> Plan:
         supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
         if supply is not None:
             supplies.append((supply, dev.location))
-    _check_supplies(supplies, mains, ld)
+    check_supplies(supplies, mains, header.get("supply"), ld.errors)
+    placed = {d.name: d for d, _ in devices}
+    groups[Current] += [(x, {}) for x in leakage_currents(list(placed.values()), {s[0]: s[1:] for s, _ in supplies},
+                                                          header.get("supply"), points)]
     nodes = set(points) | set(metals)
     for dev, refs in devices:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
@@ -180,6 +171,9 @@ def assemble(built: list, file: str, ld) -> Plan:
         if c.kind == "interconnect" and c.gain is not None:
             gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)
             stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location, across=c.name))
+    if placed:
+        conductors = land_shields(conductors, placed, metals, ld.errors)
+    check_bundles(conductors, ld.errors)
     return Plan(
         title=header.get("title") or Path(file).stem, file=file, mains=mains,
         ambient=header.get("ambient", 20.0), listening=header.get("listening"),
@@ -188,7 +182,7 @@ def assemble(built: list, file: str, ld) -> Plan:
         heaters=tuple(r for r, *_ in groups[Heater]), stages=tuple(stages),
         fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
         device_supplies=tuple(s for s, _ in supplies), acceptances=acceptances(ld.sources),
-        device_files=tuple(ld.device_files),
+        device_files=tuple(ld.device_files), supply=header.get("supply"), devices=tuple(placed.values()),
     )
 
 

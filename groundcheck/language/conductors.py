@@ -1,4 +1,4 @@
-"""The conductor statements (wire, trace, busbar, bolt, strap, shield, interconnect, lift, switch):
+"""The conductor statements (wire, trace, busbar, bolt, strap, cable, core, shield, interconnect, lift, switch):
 one builder for every kind, the geometry each kind needs coming from :mod:`groundcheck.model.kinds`."""
 
 from __future__ import annotations
@@ -6,7 +6,7 @@ from __future__ import annotations
 from ..core.errors import PlanError
 from ..core.units import awg_diameter
 from ..model.kinds import KINDS, default_role
-from ..model.records import Conductor, make
+from ..model.records import CABLE_CORES, Conductor, make
 from .phrases import Reader, Statement, check_quantity
 from .reading import MATERIALS, ROLE_WORDS, Refs, first_phrase_ends, material, unknown
 
@@ -15,7 +15,11 @@ __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
 CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
                    "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced",
-                   "gain", "cmrr", "imbalance", "common-mode")
+                   "gain", "cmrr", "imbalance", "common-mode", "load", "cores", "shield-to", "in")
+#: the named attributes that belong to one kind only
+_ONLY = {"load": "cable", "cores": "cable", "shield-to": "interconnect", "in": "core"}
+#: where an interconnect's shield end can land
+SHIELD_LANDINGS = ("chassis", "signal")
 #: the field a bare quantity of each kind sets on a conductor
 _CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
 
@@ -54,6 +58,17 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
         kw["imbalance"] = r.quantity("resistance", "source impedance imbalance", allow_zero=True)
     elif word == "common-mode":
         kw["common_mode"] = r.quantity("resistance", "common-mode input impedance")
+    elif word == "load":
+        amps = r.quantity("current", "load current", allow_zero=True)
+        hz = r.quantity("frequency", "load current's frequency") if not r.done else 0.0
+        kw["loads"] = kw.get("loads", ()) + ((amps, hz),)
+    elif word == "cores":
+        kw["cores"] = r.word("how the cores lie (L-N-PE, L-PE-N or round)", CABLE_CORES)
+    elif word == "shield-to":
+        first = r.word("where the shield lands (chassis or signal)", SHIELD_LANDINGS)
+        kw["shield_ends"] = (first, r.word("where the B end lands", SHIELD_LANDINGS) if not r.done else first)
+    elif word == "in":
+        kw["bundle"] = r.word("the umbilical's name")
 
 
 def conductor(stmt: Statement):
@@ -90,12 +105,21 @@ def conductor(stmt: Statement):
         elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
             kw["material"] = material(r.word())
         elif first.kind == "word" and first.value in named:
+            if _ONLY.get(first.value, kind) != kind:
+                raise PlanError(f"{first.value} is an attribute of a{'n' if _ONLY[first.value][0] in 'aeiou' else ''} "
+                                f"{_ONLY[first.value]}, not of a {kind}", first.loc, _HINTS[first.value])
             _named(r, r.word(), kw, a, b)
         else:
             raise unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
         r.finish()
     _check_geometry(stmt, kind, kw)
     return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+_HINTS = {"load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",
+          "cores": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, cores L-N-PE'",
+          "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
+          "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'"}
 
 
 #: what to say when a kind's required geometry is missing: field -> (what it needs, an example)

@@ -40,14 +40,16 @@ def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path |
 
 def simple_device(dev: Device) -> Plan:
     """A built-in device: a touchable chassis, the inlet's protective terminal bonded to it, and a
-    signal ground joined to the chassis directly, through a lift network, or not at all."""
+    signal ground joined to the chassis directly, through a lift network, or not at all.  A class II device
+    has no protective terminal (its chassis is not earthed through its cord)."""
     n = dev.name
     loc = dev.location
-    metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), True, loc),)
-    points = (Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc), Point(f"{n}.gnd", "terminal", None, None, n, loc))
+    class_i = dev.equipment_class == "I"
+    metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), class_i, loc),)
+    points = ((Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc),) if class_i else ()) + (
+        Point(f"{n}.gnd", "terminal", None, None, n, loc),)
     conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective",
-                            contact=0.5e-3,
-                            location=loc)]
+                            contact=0.5e-3, location=loc)] if class_i else []
     if dev.signal_ground == "chassis":
         conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3,
                                     location=loc))

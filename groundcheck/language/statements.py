@@ -16,7 +16,7 @@ from .phrases import Reader, Statement, check_quantity
 from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_ends, it_number, material, need_label,
                       no_label,
                       unknown)
-from .supply import current, heater, mains, rectifier
+from .supply import current, heater, mains, rectifier, supply
 
 __all__ = ["BUILDERS", "KEYWORDS", "build", "MAX_PART_SIDE"]
 
@@ -232,9 +232,22 @@ def device(stmt: Statement):
                 kw["cord_area"] = r.quantity("area", "cord conductor area")
         elif word == "signal-ground":
             kw["signal_ground"] = r.word("chassis, lift or floating", ("chassis", "lift", "floating"))
+        elif word == "leakage":
+            kw["leakage"] = r.quantity("current", "protective-conductor (leakage) current", allow_zero=True)
+        elif word == "y-capacitor":
+            kw["y_capacitance"] = r.quantity("capacitance", "line-to-chassis capacitance", allow_zero=True)
+        elif word == "class":
+            kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
         else:
-            raise unknown(stmt, it, ("at", "mirror", "plugged", "cord", "signal-ground"))
+            raise unknown(stmt, it, ("at", "mirror", "plugged", "cord", "signal-ground", "leakage", "y-capacitor",
+                                     "class"))
         r.finish()
+    if kw.get("equipment_class") == "II" and kw["source"] != "simple":
+        raise PlanError("class II is an attribute of a simple device", stmt.loc,
+                        "a device with a plan of its own states 'class II' in that plan's mains statement")
+    if "leakage" in kw and "y_capacitance" in kw:
+        raise PlanError("device gives both its leakage and its Y capacitance", stmt.loc, "keep one: the leakage "
+                        "current is the supply voltage times 2·π·f·C")
     return Device(name=name, location=stmt.loc, **kw), refs
 
 
@@ -246,10 +259,11 @@ def library(stmt: Statement):
 
 
 BUILDERS = {
-    "plan": plan_header, "mains": mains, "ambient": ambient, "listening": listening,
+    "plan": plan_header, "mains": mains, "supply": supply, "ambient": ambient, "listening": listening,
     "metal": metal, "point": point,
     "wire": conductor, "trace": conductor, "busbar": conductor, "bolt": conductor, "strap": conductor,
-    "shield": conductor, "interconnect": conductor, "lift": conductor, "switch": conductor,
+    "cable": conductor, "core": conductor, "shield": conductor, "interconnect": conductor, "lift": conductor,
+    "switch": conductor,
     "rectifier": rectifier, "current": current, "heater": heater, "stage": stage, "field": field_source,
     "device": device, "library": library,
 }

@@ -3,14 +3,14 @@
 from __future__ import annotations
 
 from ..core.errors import PlanError
-from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier
+from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier, Supply
 from .phrases import Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
 
 #: mains frequencies accepted, Hz: 50 and 60 Hz supplies, 16.7 Hz railway and 400 Hz aircraft supplies fit
 MAINS_FREQUENCY = (1.0, 1000.0)
 
-__all__ = ["MAINS_FREQUENCY", "mains", "rectifier", "current", "heater", "MAINS_ATTRIBUTES", "MAINS_WORDS"]
+__all__ = ["MAINS_FREQUENCY", "mains", "supply", "rectifier", "current", "heater", "MAINS_ATTRIBUTES", "MAINS_WORDS"]
 
 #: mains attributes that take one quantity: word -> (field, what, quantity kind)
 MAINS_ATTRIBUTES = {
@@ -39,7 +39,7 @@ def _voltage_and_frequency(r: Reader, kw: dict) -> None:
                                 f"{MAINS_FREQUENCY[0]:g}–{MAINS_FREQUENCY[1]:g} Hz",
                                 it.loc, "mains is 50 or 60 Hz (aircraft 400 Hz)")
         else:
-            raise PlanError(f"mains: unexpected {it.text!r}", it.loc, "write e.g. 'mains 230 V 50 Hz'")
+            raise PlanError(f"unexpected {it.text!r}", it.loc, "write the voltage and frequency, e.g. '230 V 50 Hz'")
 
 
 def mains(stmt: Statement):
@@ -91,6 +91,26 @@ def mains(stmt: Statement):
         if need not in kw:
             raise PlanError(f"mains needs its {need}", stmt.loc, f"e.g. 'mains 230 V 50 Hz'; missing {example}")
     return Mains(location=stmt.loc, **kw), {}
+
+
+def supply(stmt: Statement):
+    """An installation's supply: 'supply 230 V 50 Hz, system TN-S'."""
+    no_label(stmt)
+    kw: dict = {}
+    for ph in stmt.phrases:
+        r = Reader(ph, stmt)
+        if r.peek().kind == "qty":
+            _voltage_and_frequency(r, kw)
+            continue
+        first = r.peek()
+        if r.word("an attribute") != "system":
+            raise unknown(stmt, first, ("230 V 50 Hz", "system"))
+        kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+        r.finish()
+    for need, example in (("voltage", "230 V"), ("frequency", "50 Hz")):
+        if need not in kw:
+            raise PlanError(f"supply needs its {need}", stmt.loc, f"e.g. 'supply 230 V 50 Hz'; missing {example}")
+    return Supply(location=stmt.loc, **kw), {}
 
 
 def rectifier(stmt: Statement):

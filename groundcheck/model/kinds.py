@@ -53,6 +53,8 @@ KINDS: dict[str, Kind] = {k.name: k for k in (
     Kind("busbar", "return", (("length",), ("width", "area")), "strip", True, True),
     Kind("bolt", "bond", (), "contact", True, False, fastening=True, bonds_metal=True),
     Kind("strap", "bond", (("length",), ("width", "area")), "strip", True, True, bonds_metal=True),
+    Kind("cable", "protective", (("length",), ("area",)), "round", True, True),
+    Kind("core", "return", (("length",), ("area",)), "round", True, True),
     Kind("shield", "shield", (("length",), ("area",)), "round", False, False),
     Kind("interconnect", "shield", (("length",), ("area",)), "round", False, False),
     Kind("lift", "signal", (("resistance",),), "lift", False, False),

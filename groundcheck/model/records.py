@@ -15,7 +15,8 @@ from .kinds import CONDUCTOR_KINDS
 
 __all__ = [
     "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
-    "Heater", "Stage", "FieldSource", "Device", "Plan", "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD",
+    "Heater", "Stage", "FieldSource", "Device", "Plan", "Supply", "CABLE_CORES",
+    "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD",
     "SYSTEMS", "make",
     "from_values",
 ]
@@ -71,6 +72,22 @@ class Mains:
     def cord_section(self) -> float:
         """The cord's conductor area, m²: stated, else the line conductor's, else the default cord's."""
         return self.cord_area or self.line_area or DEFAULT_CORD[1]
+
+
+@dataclass(frozen=True)
+class Supply:
+    """An installation's supply (the building's mains): nominal voltage U0 (V rms), frequency (Hz) and earthing
+    system.  Devices placed in the installation take it unless their own plan states a ``mains``."""
+
+    voltage: float
+    frequency: float
+    system: str = "TN-S"
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+#: how a building cable's three cores lie (see :mod:`groundcheck.physics.induction`): flat with the protective
+#: core at the side or in the middle, or round (three cores touching)
+CABLE_CORES = ("L-N-PE", "L-PE-N", "round")
 
 
 @dataclass(frozen=True)
@@ -162,6 +179,10 @@ class Conductor:
     location: Location = field(default=Location("<plan>"), compare=False)
     imbalance: float | None = None       # interconnects, balanced: source impedance imbalance between the legs, Ω
     common_mode: float = 20e3            # interconnects, balanced: the input's common-mode impedance per leg, Ω
+    loads: tuple[tuple[float, float], ...] = ()   # cables: (rms A, Hz; 0 = the mains frequency) in line and neutral
+    cores: str = "round"                 # cables: how the cores lie (CABLE_CORES)
+    shield_ends: tuple[str, str] | None = None   # interconnects: where each end of the shield lands, as stated
+    bundle: str | None = None            # umbilical cores: the umbilical (multi-core cable) they run in
 
     @property
     def connects(self) -> bool:
@@ -287,6 +308,9 @@ class Device:
     cord_area: float | None = None
     signal_ground: str = "chassis"
     location: Location = field(default=Location("<plan>"), compare=False)
+    leakage: float | None = None         # stated protective-conductor (leakage) current at the mains frequency, A
+    y_capacitance: float | None = None   # stated line-to-chassis capacitance of its mains filter, F
+    equipment_class: str = "I"           # simple devices: I (earthed chassis) or II (no protective conductor)
 
 
 @dataclass(frozen=True)
@@ -312,13 +336,18 @@ class Plan:
     acceptances: tuple[tuple[str, int, tuple[str, ...], str],
                        ...] = ()   # (file, line, codes, reason) of '# accept' comments
     device_files: tuple[str, ...] = ()   # the files of placed devices' own plans (and what they include)
+    supply: Supply | None = None         # an installation's stated supply
+    devices: tuple[Device, ...] = ()     # the devices an installation places
 
     @property
     def frequency(self) -> float:
-        """The mains frequency: the plan's own supply, else that of the devices it places (one installation has
-        one; the loader refuses a mixture), else 50 Hz (a plan with neither describes no mains at all)."""
+        """The mains frequency: the plan's own ``mains``, else the installation's stated ``supply``, else that of
+        the devices it places (one installation has one; the loader refuses a mixture), else 50 Hz (a plan with
+        none of them describes no mains at all)."""
         if self.mains:
             return self.mains.frequency
+        if self.supply:
+            return self.supply.frequency
         return self.device_supplies[0][2] if self.device_supplies else 50.0
 
     def metal(self, name: str) -> Metal | None:

@@ -20,6 +20,7 @@ import scipy.sparse.csgraph as csgraph
 from ..core.errors import Location
 from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
+from .induction import induced_currents
 
 __all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner",
            "pair_path", "path_drop",
@@ -34,7 +35,7 @@ class Source:
     """A current in the ground system: from ``a`` to ``b``, complex rms phasors per frequency."""
 
     name: str
-    kind: str                        # rectifier | current | heater | signal
+    kind: str                        # rectifier | current | heater | signal | induced
     a: str
     b: str
     parts: dict                      # frequency (Hz) -> complex rms A
@@ -42,15 +43,18 @@ class Source:
     location: object = None
 
 
-def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[Source]:
+def plan_sources(plan, rectifier_results: dict, max_frequency: float, circuit: Circuit | None = None) -> list[Source]:
     """Every current source of a plan with its spectrum (rectifiers from their simulation).
 
     Parameters:
         plan: the plan.
         rectifier_results: each rectifier's simulation.
         max_frequency: highest harmonic kept, Hz.
+        circuit: the circuit, for the EMF that loaded cables induce (:mod:`groundcheck.physics.induction`,
+            as equivalent currents); without it they are left out.
     Returns:
-        every current source (rectifier harmonics, stated currents, heaters) with its spectrum of complex rms phasors.
+        every current source (rectifier harmonics, stated currents, heaters, induced EMFs) with its spectrum of
+        complex rms phasors.
     References:
         Fourier series of a periodic current (common practice).
     """
@@ -79,6 +83,9 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float) -> list[So
     for h in plan.heaters:
         if h.a is not None and h.b is not None:
             out.append(Source(h.name, "heater", h.a, h.b, {f0 if h.ac else 0.0: complex(h.current)}, None, h.location))
+    if circuit is not None:
+        out += [Source(name, "induced", a, b, parts, None, loc)
+                for name, a, b, parts, loc in induced_currents(plan, circuit, max_frequency)]
     return out
 
 

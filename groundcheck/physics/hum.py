@@ -159,7 +159,7 @@ class _Budget:
     def __init__(self, plan, circuit, loops, rectifier_results: dict, options: HumOptions):
         self.plan, self.circuit, self.loops = plan, circuit, loops
         f0 = self.f0 = plan.frequency
-        sources = plan_sources(plan, rectifier_results, options.max_frequency)
+        sources = plan_sources(plan, rectifier_results, options.max_frequency, circuit)
         self.hum_sources = [s for s in sources if s.kind != "signal"]
         self.signal_sources = [s for s in sources if s.kind == "signal"]
         stages = self.stages = list(plan.stages)

@@ -26,6 +26,9 @@ def result_document(result: Result) -> dict:
         "plan": {"title": plan.title, "file": plan.file, "files": list(plan.files),
                  "mains": None if plan.mains is None else {"voltage_v": plan.mains.voltage,
                                                            "frequency_hz": plan.mains.frequency},
+                 "supply": None if plan.supply is None else {"voltage_v": plan.supply.voltage,
+                                                             "frequency_hz": plan.supply.frequency,
+                                                             "system": plan.supply.system},
                  "ambient_c": plan.ambient, "points": len(plan.points), "metal_parts": len(plan.metals),
                  "conductors": len(plan.conductors), "stages": len(plan.stages), "channels": list(plan.channels)},
         "summary": {**result.counts(), "worst": result.worst(), "loops_total": result.loop_total,
@@ -37,6 +40,7 @@ def result_document(result: Result) -> dict:
         "rectifiers": [r.as_dict() for r in result.rectifiers],
         "coupling": [row.as_dict() for row in result.coupling],
         "device_earths": None if result.device_earths is None else [d.as_dict() for d in result.device_earths],
+        "outlets": None if result.outlets is None else _outlets(result.outlets),
         "network": None,
     }
     if result.circuit is not None:
@@ -44,6 +48,18 @@ def result_document(result: Result) -> dict:
                           "metal_parts": result.circuit.plate_notes,
                           "sources": result.hum.network if result.hum is not None else []}
     return clean(doc)
+
+
+def _outlets(o) -> dict:
+    """The outlet-pair voltages of an installation and each loaded cable's EMF."""
+    def spectrum(d: dict) -> list:
+        return [{"frequency_hz": f, "volts": v} for f, v in sorted(d.items())]
+    return {"pairs": [{"interconnect": p.interconnect, "a": p.a, "b": p.b, "unplugged_v": p.open_total,
+                       "planned_v": p.planned_total, "unplugged": spectrum(p.open), "planned": spectrum(p.planned),
+                       "drivers": [{"source": n, "kind": k, "volts": v} for n, k, v in p.drivers]}
+                      for p in o.pairs],
+            "induced": [{"cable": c, "frequency_hz": f, "emf_v": e, "mutual_h_per_m": m} for c, f, e, m in o.emfs],
+            "notes": list(o.notes)}
 
 
 def render_json(result: Result) -> str:

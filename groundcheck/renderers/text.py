@@ -16,7 +16,7 @@ from rich.text import Text
 
 from ..core.caution import CAUTION
 from ..core.errors import shown
-from ..core.units import db_of_ratio, dbv
+from ..core.units import db_of_ratio, dbv, format_si
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 
@@ -52,6 +52,7 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
         _hum_tables(result, console)
     _rectifier_table(result, console)
     _protective_tables(result, console)
+    _outlet_table(result, console)
     if result.loops:
         _loop_table(result, console)
 
@@ -86,6 +87,11 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
                            f"(limit {result.safety.limit * 1e3:.0f} mΩ) — "
                            + ("within limit" if ok else "OVER LIMIT"),
                            style="green" if ok else "bold red"))
+    elif plan.mains is None and result.device_earths:
+        broken = [d for d in result.device_earths if d.resistance is None or d.resistance > 1.0]
+        console.print(Text(f"Protective earth: installation — {len(result.device_earths)} devices' earth paths to the "
+                           f"main earthing terminal, {len(broken)} broken or over 1 Ω (each device's own wiring is "
+                           "checked with its own plan)", style="bold red" if broken else "green"))
     elif plan.mains is None:
         console.print(Text("Protective earth: no mains statement, not checked", style="dim"))
     if result.hum is not None:
@@ -223,6 +229,28 @@ def _protective_tables(result: Result, console: Console) -> None:
                       "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
         console.print(t)
         console.print()
+
+
+def _outlet_table(result: Result, console: Console) -> None:
+    """Each outlet pair an interconnect spans: the voltage between their earths, unplugged and as planned."""
+    o = result.outlets
+    if o is None or not (o.pairs or o.emfs):
+        return
+    if o.pairs:
+        t = Table(title="Voltage between the outlets' earths that each interconnect joins", title_justify="left")
+        for col in ("interconnect", "between", "unplugged", "as planned", "drivers (unplugged)"):
+            t.add_column(col)
+        for p in o.pairs:
+            drivers = "; ".join(f"{n} {format_si(v, 'V')}" for n, _, v in p.drivers) or "none"
+            t.add_row(escape(p.interconnect), escape(f"{p.a} – {p.b}"), format_si(p.open_total, "V"),
+                      format_si(p.planned_total, "V"), escape(drivers))
+        console.print(t)
+    for c, f, e, m in o.emfs:
+        console.print(f"  {escape(c)}: its load induces {format_si(e, 'V')} at {f:g} Hz along its protective core "
+                      f"(M' {m * 1e9:.4g} nH/m)")
+    for note in o.notes:
+        console.print(f"  note: {escape(note)}")
+    console.print()
 
 
 def _loop_table(result: Result, console: Console) -> None:

@@ -140,6 +140,18 @@ RULES: dict[str, Rule] = dict([
        "above the distance).",
        "A wrong length gives a wrong resistance and inductance, and so wrong hum and protective-earth figures.",
        "Measure the route again and correct the length (give 'via' points when the wire does not run straight)."),
+    _r("GC113", "shield-on-signal-ground", "warning",
+       "An interconnect shield joined at both ends whose end lands on a device's signal ground inside the device "
+       "rather than on its chassis where the cable enters (a balanced link's default is the chassis; state the "
+       "landing with 'shield-to chassis|signal').",
+       "Whatever current the shield carries (leakage, loop current from the outlets' earth voltage) then flows "
+       "through the device's signal-ground wiring on its way to the chassis, and its drop there is added to every "
+       "stage referenced to that wiring, however good the link's own rejection.",
+       "Land the shield on the chassis at the entry and keep the signal ground's one bond to the chassis; an "
+       "unbalanced link's shield is its signal return: use a balanced link, or a ground-lift network on the signal "
+       "side. Never lift the protective earth.",
+       "AES48-2005, interconnections and grounding of shields in audio equipment: a shield terminates on the "
+       "enclosure at its point of entry (from memory); common-impedance coupling (see GC102)."),
     _r("GC201", "pe-missing", "danger",
        "The mains inlet's protective terminal does not reach any metal part through protective conductors.",
        "Without a protective earth a line-to-chassis fault leaves the chassis live.",

@@ -17,6 +17,7 @@ if TYPE_CHECKING:  # annotations only
     from ..physics.circuit import Circuit
     from ..physics.coupling import SharedReturn
     from ..physics.hum import HumResult
+    from ..physics.outlets import OutletVoltages
     from ..physics.safety import DeviceEarth, SafetyResult
     from .context import LoopInfo
 
@@ -55,6 +56,7 @@ class Result:
     notices: list[str] = field(default_factory=list)      # what was relaxed or skipped: shown in every output
     protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
     rectifiers: list = field(default_factory=list)         # each rectifier's steady state, with or without stages
+    outlets: OutletVoltages | None = None                  # an installation's outlet-pair voltages
 
     def open_findings(self) -> list[Finding]:
         """The findings not accepted in the plan."""

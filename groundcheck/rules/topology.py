@@ -356,8 +356,9 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
             continue
         path = [pos[c.a], *c.route, pos[c.b]]
         route = sum(((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5 for (x0, y0), (x1, y1) in zip(path, path[1:]))
-        # a cable between two pieces of equipment (an umbilical, say) runs as it likes: only too short counts
-        slack = math.inf if placed.get(c.a) != placed.get(c.b) else LENGTH_SLACK
+        # a cable between two pieces of equipment, or an umbilical's core between two boxes, runs as it likes: only
+        # too short counts
+        slack = math.inf if placed.get(c.a) != placed.get(c.b) or c.bundle else LENGTH_SLACK
         if route > 0 and (c.length < route * (1 - LENGTH_SHORT) or c.length > slack * route + 0.05):
             what = "shorter than" if c.length < route else f"over {LENGTH_SLACK:g} times"
             out.append(Finding("GC112", "note", f"{c.kind} {c.name} is {c.length * 1e3:.0f} mm long, {what} the "

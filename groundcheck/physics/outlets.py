@@ -1,0 +1,142 @@
+"""The voltage between the earths of two outlets that an interconnect joins: what drives current round the
+loop that the interconnect's shield closes through the building's protective wiring.
+
+For every interconnect whose two ends belong to devices plugged into different points (outlets or strips),
+the voltage between those points is solved at every frequency of the installation's sources — the devices'
+leakage currents, the EMF that loaded cables induce in their protective cores, and any stated current —
+twice: with every interconnect unplugged (what a meter between the two earth pins reads before the cable is
+connected: the loop's driving voltage) and with the installation as planned.  Sources of unknown relative
+phase add in power, as in the hum budget (:mod:`groundcheck.physics.hum`).
+
+References: nodal analysis and superposition (common practice); the sources are those of
+:func:`groundcheck.physics.coupling.plan_sources`.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .coupling import plan_sources, source_injections
+
+__all__ = ["OutletPair", "OutletVoltages", "outlet_voltages", "MAX_DRIVERS"]
+
+#: drivers named per outlet pair (the largest first)
+MAX_DRIVERS = 5
+
+#: sources solved together (their nodes × sources arrays bound the memory)
+CHUNK = 128
+
+
+@dataclass(frozen=True)
+class OutletPair:
+    """The voltage between the plug points of an interconnect's two devices, rms V per frequency."""
+
+    interconnect: str
+    a: str                                   # the point the A end's device is plugged into
+    b: str
+    open: dict                               # Hz -> rms V, every interconnect unplugged
+    planned: dict                            # Hz -> rms V, the installation as planned
+    drivers: tuple                           # (source name, kind, rms V unplugged), the largest first
+
+    @property
+    def open_total(self) -> float:
+        return math.sqrt(sum(v * v for v in self.open.values()))
+
+    @property
+    def planned_total(self) -> float:
+        return math.sqrt(sum(v * v for v in self.planned.values()))
+
+
+@dataclass
+class OutletVoltages:
+    """Every outlet pair an interconnect spans, and the EMF of every loaded cable (cable, Hz, V, H/m)."""
+
+    pairs: list = field(default_factory=list)
+    emfs: list = field(default_factory=list)
+    notes: list = field(default_factory=list)
+
+
+def _plug(point: str, devices: dict) -> str | None:
+    head = point.split(".", 1)[0]
+    dev = devices.get(head) if "." in point else None
+    return dev.plugged if dev is not None else None
+
+
+def _pair_volts(circuit, sources, pairs, freqs) -> tuple[dict, dict]:
+    """Per (pair, frequency) the power sum over sources, and per (pair, source) each source's rms voltage."""
+    _, labels = circuit.components
+    idx = [(circuit.point_node[a], circuit.point_node[b]) for a, b in pairs]
+    joined = np.array([labels[i] == labels[j] for i, j in idx], dtype=bool)
+    ia = np.array([i for i, _ in idx], dtype=int)
+    ib = np.array([j for _, j in idx], dtype=int)
+    per_f: dict = {}
+    per_s = np.zeros((len(pairs), len(sources)))
+    for f in freqs:
+        active = [k for k, s in enumerate(sources) if s.parts.get(f, 0) != 0]
+        if not active:
+            continue
+        fac = circuit.at(f)
+        power = np.zeros(len(pairs))
+        for lo in range(0, len(active), CHUNK):
+            cols = active[lo:lo + CHUNK]
+            sol = fac.solve(source_injections(circuit, [sources[k] for k in cols], f), currents=False)
+            v2 = np.abs(sol.V[ia] - sol.V[ib]) ** 2                  # pairs × chunk
+            v2[~joined] = 0.0
+            power += v2.sum(axis=1)
+            per_s[:, cols] += v2
+        per_f[f] = np.sqrt(power)
+    return per_f, np.sqrt(per_s)
+
+
+def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float) -> OutletVoltages:
+    """The outlet-pair voltages of an installation's interconnects, unplugged and as planned.
+
+    Parameters:
+        plan: the plan (an installation: its ``devices`` and interconnects).
+        circuit: its circuit.
+        rectifier_results: each rectifier's simulation.
+        max_frequency: the highest frequency kept, Hz.
+    Returns:
+        one pair per interconnect between two plug points, with its drivers, and each loaded
+        cable's EMF; empty for a plan without devices.
+    References:
+        superposition; sources adding in power (see the module's text).
+    """
+    from .induction import cable_emfs, mutual_per_metre
+    out = OutletVoltages()
+    devices = {d.name: d for d in plan.devices}
+    if not devices:
+        return out
+    for c in plan.conductors:
+        if c.kind == "cable" and c.loads:
+            for f, e in sorted(cable_emfs(c, plan.frequency).items()):
+                out.emfs.append((c.name, f, e, mutual_per_metre(c.cores)))
+    pairs, names = [], []
+    for c in plan.conductors:
+        if c.kind != "interconnect":
+            continue
+        ends = [_plug(x, devices) for x in (c.a, c.b)]
+        if None in ends or ends[0] == ends[1]:
+            continue
+        pairs.append((ends[0], ends[1]))
+        names.append(c.name)
+    if not pairs:
+        return out
+    if plan.supply is None and not plan.device_supplies and any(d.source == "simple" for d in devices.values()):
+        out.notes.append("no 'supply' stated: the simple devices' default leakage is not computed")
+    sources = [s for s in plan_sources(plan, rectifier_results, max_frequency, circuit) if s.kind != "signal"]
+    freqs = sorted({f for s in sources for f in s.parts if 0 < f <= max_frequency + 1e-9})
+    unplugged = circuit.restricted({c.name for c in plan.conductors if c.kind != "interconnect"})
+    open_f, open_s = _pair_volts(unplugged, sources, pairs, freqs)
+    plan_f, _ = _pair_volts(circuit, sources, pairs, freqs)
+    roles = {c.name: c.role for c in plan.currents}
+    for k, ((a, b), name) in enumerate(zip(pairs, names)):
+        order = np.argsort(-open_s[k], kind="stable")[:MAX_DRIVERS]
+        drivers = tuple((sources[i].name, roles.get(sources[i].name, sources[i].kind), float(open_s[k, i]))
+                        for i in order if open_s[k, i] > 1e-6 * max(open_s[k].max(), 1e-300))
+        out.pairs.append(OutletPair(name, a, b, {f: float(v[k]) for f, v in open_f.items()},
+                                    {f: float(v[k]) for f, v in plan_f.items()}, drivers))
+    return out

@@ -1,0 +1,105 @@
+"""Installation rules: how the devices of an installation meet each other.
+
+Each rule is a pure function of an :class:`~groundcheck.rules.context.AuditContext` returning findings,
+registered under the codes it makes (:mod:`groundcheck.rules.registry`).
+"""
+
+from __future__ import annotations
+
+from collections import deque
+
+from ..language.installation import device_chassis, device_of, shield_ends
+from ..model.kinds import is_fastening
+from .catalogue import Finding
+from .context import AuditContext
+from .registry import rule
+
+__all__ = ["rule_shield_on_signal_ground", "signal_ground_path"]
+
+
+def signal_ground_path(conductors, start: str, chassis: str, dev: str, metals) -> list[str]:
+    """The device's signal-ground wiring between a point and its chassis.
+
+    Parameters:
+        conductors: the device's own conductors.
+        start: the point (where a shield lands).
+        chassis: the device's chassis (a metal part).
+        dev: the device's name (its conductors' prefix).
+        metals: the plan's metal parts by name.
+    Returns:
+        the device's own conductors on the path of fewest conductors from ``start`` to the chassis, protective
+        conductors and fastenings left out of the answer (not of the search); [] when fastenings alone join
+        them, or they are not joined.
+    References:
+        breadth-first search (Cormen et al., *Introduction to Algorithms*).
+    """
+    adj: dict = {}
+    for c in conductors:
+        if c.connects and c.name.startswith(dev + ".") and c.kind not in ("interconnect", "lift"):
+            adj.setdefault(c.a, []).append((c.b, c))
+            adj.setdefault(c.b, []).append((c.a, c))
+    parent: dict = {start: None}
+    q = deque([start])
+    while q:
+        u = q.popleft()
+        if u == chassis:
+            break
+        for v, c in adj.get(u, ()):
+            if v not in parent:
+                parent[v] = (u, c)
+                q.append(v)
+    if chassis not in parent:
+        return []
+    out, v = [], chassis
+    while parent[v] is not None:
+        u, c = parent[v]
+        if c.role not in ("protective", "bond") and not is_fastening(c, metals):
+            out.append(c.name)
+        v = u
+    return out[::-1]
+
+
+@rule("GC113")
+def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
+    """GC113: an interconnect's shield, conducting at both ends, lands on a device's signal ground inside the
+    device, so the current it carries crosses the device's signal-ground wiring to reach the chassis.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC113 findings, one per shield end.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    plan = ctx.plan
+    devices = {d.name: d for d in plan.devices}
+    if not devices:
+        return []
+    metals = {m.name: m for m in plan.metals}
+    own: dict = {}
+    for c in plan.conductors:
+        dev = device_of(c.name, devices)
+        if dev is not None:
+            own.setdefault(dev, []).append(c)
+    out = []
+    for c in plan.conductors:
+        if c.kind != "interconnect" or not c.connects:
+            continue
+        for end, landing in zip((c.a, c.b), shield_ends(c)):
+            dev = device_of(end, devices) if landing == "signal" else None
+            chassis = device_chassis(dev, own.get(dev, []), metals, end) if dev else None
+            if chassis is None:
+                continue
+            path = signal_ground_path(own.get(dev, []), end, chassis, dev, metals)
+            if not path:
+                continue
+            advice = ("land the shield on the chassis where the cable enters ('shield-to chassis'), leaving "
+                      f"{dev}'s signal ground one bond of its own" if c.balanced else
+                      "an unbalanced link's shield is its signal return and must reach the signal ground: make the "
+                      "link balanced with its shield on the chassis at the entry, or break the loop with a ground-lift "
+                      "network on the signal side")
+            out.append(Finding("GC113", "warning", f"the shield of {c.name} lands on {dev}'s signal ground at {end}: "
+                               f"the current it carries crosses {', '.join(path)} on its way to {chassis}",
+                               c.location, (c.name, end, *path), {"conductors": len(path)},
+                               f"{advice}; never lift the protective earth", (("shield-to", c.name, end),)))
+    return out

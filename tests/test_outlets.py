@@ -1,0 +1,181 @@
+"""Installations as they hum: the stated supply, device leakage, the EMF a loaded cable induces in its protective
+core, the voltage between the outlets an interconnect joins (by hand and against ngspice), shield landings
+(GC113), class II devices and umbilicals."""
+
+import math
+import re
+from pathlib import Path
+
+import pytest
+
+from groundcheck import PlanErrors, load, load_text
+from groundcheck.analysis import analyze
+from groundcheck.physics.circuit import build_circuit
+from groundcheck.physics.coupling import plan_sources
+from groundcheck.renderers.spice import to_spice
+
+import spicetools
+from helpers import needs_ngspice
+
+#: two outlets on their own cables back to the main earthing terminal; the far one's cable carries a load
+TWO_OUTLETS = """plan "two outlets"
+{supply}
+point met: earthing-terminal
+point wall_a: outlet
+point wall_b: outlet
+cable run_a: wall_a to met, 8 m, 2.5 mm2
+cable run_b: wall_b to met, 25 m, 2.5 mm2, load 10 A, cores {cores}
+device mixer: simple, plugged wall_a{leak}
+device amp: simple, plugged wall_b{leak}
+interconnect link: mixer.gnd to amp.gnd, 4 m, 0.1 mm2, {ends}, unbalanced, gain 26 dB, channel amp
+"""
+
+
+def _plan(supply="", cores="L-N-PE", leak=", leakage 0 mA", ends="terminated both"):
+    return load_text(TWO_OUTLETS.format(supply=supply, cores=cores, leak=leak, ends=ends), "two.gplan")
+
+
+# hand calculation: M' = (μ0/2π)·ln 2 = 2e-7 × 0.693147 = 1.386294e-7 H/m (flat cable, protective core beside the
+# neutral: d_PN = p, d_PL = 2p; Ramo, Whinnery, Van Duzer §2.4, from memory); E = 2π·50 Hz × 1.386294e-7 H/m × 25 m
+# × 10 A = 314.1593 × 1.386294e-7 × 250 = 1.088793e-2 V
+HAND_EMF = 1.088793e-2
+
+
+def test_a_loaded_flat_cable_induces_the_hand_calculated_emf_in_its_protective_core():
+    o = analyze(_plan()).outlets
+    (cable, f, emf, m), = o.emfs
+    assert (cable, f) == ("run_b", 50.0)
+    assert m == pytest.approx(1.386294e-7, rel=1e-6)
+    assert emf == pytest.approx(HAND_EMF, rel=1e-5)
+
+
+def test_a_cable_with_its_protective_core_between_line_and_neutral_induces_none():
+    for cores in ("L-PE-N", "round"):
+        o = analyze(_plan(cores=cores)).outlets
+        assert o.emfs == [] and o.pairs[0].open_total == 0.0
+
+
+def test_unplugged_the_outlet_pair_voltage_is_the_cables_emf():
+    """With the interconnect unplugged no current flows round the loop: the meter between the two earth pins reads
+    the EMF itself (no leakage stated here)."""
+    (pair,) = analyze(_plan()).outlets.pairs
+    assert (pair.interconnect, pair.a, pair.b) == ("link", "wall_a", "wall_b")
+    assert pair.open[50.0] == pytest.approx(HAND_EMF, rel=1e-5)
+    assert pair.drivers[0][:2] == ("run_b.induced", "induced")
+    assert pair.planned_total < pair.open_total          # the loop current's drop in the cables lowers it
+
+
+@needs_ngspice
+def test_the_planned_outlet_pair_voltage_matches_ngspice_with_the_emf_as_a_series_source():
+    """The exported network with the cable's EMF written as a voltage source in series with its protective core
+    (not the equivalent current groundcheck solves with): ngspice's voltage between the outlets agrees to 1e-6."""
+    plan = _plan()
+    got = analyze(plan).outlets.pairs[0].planned[50.0]
+    c = build_circuit(plan)
+    sources = [(s.name, s.a, s.b, s.parts[50.0]) for s in plan_sources(plan, {}, 50.0, c) if s.kind != "induced"]
+    net = to_spice(c, plan.title, sources, frequency=50.0, analysis="ac")
+    # run_b's inductor ends on the main earthing terminal (node 0): put the EMF (peak = √2 × rms) between them
+    net, n = re.subn(r"^(L_run_b \S+) 0 ", r"\1 emf 0 ", net, flags=re.M)
+    assert n == 1
+    net = net.replace(".ac lin", f"Vemf emf 0 DC 0 AC {HAND_EMF * math.sqrt(2):.12g} 0\n.ac lin")
+    na, nb = (f"n{c.point_node[x]}" for x in ("wall_a", "wall_b"))
+    v = spicetools.run(net, "ac lin 1 50 50\nprint all > OUT")
+    spice = abs(v[f"v({na})" if f"v({na})" in v else na] - v[f"v({nb})" if f"v({nb})" in v else nb]) / math.sqrt(2)
+    assert spice == pytest.approx(got, rel=1e-6)
+
+
+def test_device_leakage_from_the_default_y_capacitor_at_the_stated_supply():
+    """A class I simple device leaks U0·2πf·C through its 2.2 nF line-to-chassis capacitor: by hand 230 V × 314.1593
+    × 2.2e-9 F = 1.589645e-4 A at 230 V 50 Hz; 120 V × 376.9911 × 2.2e-9 = 9.952565e-5 A at 120 V 60 Hz."""
+    for supply, amps, hz in (("supply 230 V 50 Hz", 1.589645e-4, 50.0), ("supply 120 V 60 Hz", 9.952565e-5, 60.0)):
+        plan = _plan(supply=supply, leak="")
+        leaks = {c.name: c.parts for c in plan.currents if c.role == "leakage"}
+        assert set(leaks) == {"mixer.leakage", "amp.leakage"}
+        ((i, f),) = leaks["amp.leakage"]
+        assert i == pytest.approx(amps, rel=1e-6) and f == hz
+    stated = _plan(supply="supply 230 V 50 Hz", leak=", y-capacitor 4.7 nF")
+    assert stated.currents[0].parts[0][0] == pytest.approx(230 * 2 * math.pi * 50 * 4.7e-9, rel=1e-9)
+    assert not [c for c in _plan(leak="").currents]          # no supply stated: no default leakage
+
+
+def test_studio_type_outlet_voltages_name_every_driver():
+    plan = _plan(supply="supply 230 V 50 Hz", leak="")
+    (pair,) = analyze(plan).outlets.pairs
+    assert {d[0] for d in pair.drivers} == {"run_b.induced", "mixer.leakage", "amp.leakage"}
+    assert 10e-3 <= pair.open_total <= 1.0
+
+
+@pytest.mark.parametrize("supply, message", [
+    ("supply 230 V 50 Hz\nmains 230 V 50 Hz", "both 'mains' and 'supply'"),
+    ("supply 230 V 60 Hz", None),
+])
+def test_supply_errors(supply, message):
+    if message is None:
+        _plan(supply=supply)        # simple devices take the stated supply
+        return
+    with pytest.raises(PlanErrors) as e:
+        _plan(supply=supply)
+    assert message in str(e.value)
+
+
+def test_a_device_for_another_supply_is_refused(tmp_path):
+    (tmp_path / "us.gplan").write_text('plan "us"\nmains 120 V 60 Hz\nmetal case: steel 1 mm, touchable\n'
+                                       'wire pe: mains.pe to case, 30 mm, 1 mm2, protective\n')
+    text = 'plan "i"\nsupply 230 V 50 Hz\npoint w: outlet\ndevice us: "us.gplan", plugged w\n'
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, str(tmp_path / "i.gplan"), root=tmp_path)
+    assert "for a 120 V 60 Hz supply, but the installation's supply is 230 V 50 Hz" in str(e.value)
+
+
+def test_cable_attributes_belong_to_cables():
+    with pytest.raises(PlanErrors) as e:
+        load_text('plan "x"\npoint a: outlet\npoint b: outlet\nwire w: a to b, 1 m, 1 mm2, load 3 A\n', "x.gplan")
+    assert "load is an attribute of a cable, not of a wire" in str(e.value)
+
+
+ROOM = Path(__file__).resolve().parent.parent / "examples" / "studio" / "recording-room.gplan"
+
+
+def test_the_recording_room_reports_outlet_voltages_from_its_loads_and_leakage_with_every_driver_named():
+    r = analyze(load(ROOM))
+    pairs = {p.interconnect: p for p in r.outlets.pairs}
+    assert set(pairs) == {"pre_out", "desk_out"}            # the USB cable's ends share the desk's outlet
+    p = pairs["desk_out"]
+    assert 10e-3 <= p.open_total <= 1.0
+    # by hand: 2π·50·1.386294e-7·25·10 = 10.888 mV and 2π·150·1.386294e-7·25·2 = 6.533 mV, in power 12.698 mV; the
+    # leakage drops (tens of µV, in quadrature) add under 0.01 %
+    assert p.open_total == pytest.approx(math.hypot(10.88793e-3, 6.532758e-3), rel=1e-3)
+    assert {d[0] for d in p.drivers} == {"run_rack.induced", "monitors.leakage", "desk.leakage"}
+
+
+def test_a_shield_landed_on_the_signal_ground_is_found_and_landing_it_on_the_chassis_removes_its_hum():
+    r = analyze(load(ROOM))
+    (f,) = [f for f in r.findings if f.code == "GC113"]
+    assert "micpre.in_gnd" in f.elements and f.actions == (("shield-to", "pre_out", "micpre.out_pin1"),)
+    assert r.hum.channels["micpre.main"].total_v > 1e-3
+    fixed = ROOM.read_text().replace("shield-to signal chassis", "shield-to chassis")
+    r2 = analyze(load_text(fixed, str(ROOM), root=ROOM.parent))
+    assert not [f for f in r2.findings if f.code == "GC113"]
+    assert r2.hum.channels["micpre.main"].total_v < 1e-9
+
+
+def test_a_class_ii_device_has_no_protective_terminal_and_leaks_through_its_interconnect():
+    plan = load(ROOM)
+    names = {p.name for p in plan.points}
+    assert "laptop.mains.pe" not in names and "desk.mains.pe" in names
+    (leak,) = [c for c in plan.currents if c.name == "laptop.leakage"]
+    assert leak.a == "laptop.gnd"
+    # 230 V × 2π·50 Hz × 1 nF = 72.257 µA (by hand)
+    assert leak.parts[0][0] == pytest.approx(72.2566e-6, rel=1e-5)
+
+
+def test_umbilical_cores_are_conductors_of_their_own_kind_and_must_share_a_length(tmp_path):
+    plan = load(ROOM)
+    cores = {c.name: c for c in plan.conductors if c.kind == "core"}
+    assert set(cores) == {"micpre.ub_0v", "micpre.ub_pe"}
+    assert cores["micpre.ub_pe"].role == "protective" and cores["micpre.ub_0v"].role == "return"
+    text = ('plan "u"\npoint a: tag\npoint b: tag\npoint c: tag\npoint d: tag\n'
+            'core x: a to b, in ub, 1.5 m, 0.5 mm2\ncore y: c to d, in ub, 2 m, 0.5 mm2\n')
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "u.gplan")
+    assert "core y is 2 m but x, in the same umbilical ub, is 1.5 m" in str(e.value)
