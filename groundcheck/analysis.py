@@ -14,7 +14,7 @@ from .model.records import Plan
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
 from .physics.hum import HumOptions, hum_budget
-from .physics.outlets import outlet_voltages
+from .physics.outlets import outlet_pairs, outlet_voltages
 from .physics.protection import STANDARD_PE_LIMIT
 from .physics.rectifier import simulate
 from .physics.safety import installation_earths, protective_figures
@@ -56,12 +56,14 @@ def _analyze(plan: Plan, options: Options) -> Result:
     result.device_earths = installation_earths(plan, ctx.route, circuit)
     rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers} if options.hum else {}
     result.rectifiers = list(rr.values())
-    if options.hum and plan.devices:
-        result.outlets = outlet_voltages(plan, circuit, rr, options.max_frequency)
+    probes = outlet_pairs(plan)[0] if options.hum and plan.devices else []
     if options.hum and plan.stages:
         result.hum = hum_budget(plan, circuit, ctx.loops, rr,
                                 HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
-                                jobs=options.jobs)
+                                jobs=options.jobs, probes=probes)
+    if options.hum and plan.devices:
+        result.outlets = outlet_voltages(plan, circuit, rr, options.max_frequency,
+                                         result.hum.probes if result.hum is not None else None)
     solved = Solved(plan, ctx, circuit, result.coupling, result.safety, result.device_earths, result.hum, options)
     for r in functions("solve"):
         findings.extend(r.func(solved))

@@ -154,13 +154,22 @@ def test_devices_for_50_and_60_hz_cannot_share_an_installation(tmp_path):
 
 
 def test_drawings_of_an_installation_show_or_say_everything():
-    from groundcheck.renderers.dot import physical_dot, physical_omissions, topology_dot
+    from groundcheck.renderers.dot import element_class, physical_dot, physical_omissions, topology_dot
     r = analyze(load(STUDIO))
     topo = topology_dot(r)
     for device in ("pre", "mixer", "monitors", "pc"):
         assert f'subgraph "cluster_{device}"' in topo and f'"{device}.mains.pe"' in topo
-    missing = physical_omissions(r)
-    assert missing[0] > 0 and f"{missing[0]} points and {missing[1]} conductors" in physical_dot(r)
+    # the physical view draws the whole system: every device as a box, every outlet, strip, building run, cord and
+    # interconnect, and says that a device's own wiring is in its own drawing
+    assert physical_omissions(r) == (0, 0)
+    phys = physical_dot(r)
+    for device in ("pre", "mixer", "monitors", "pc"):
+        assert f'"device:{device}" [label="{device}' in phys
+    for point in ("met", "wall_a", "wall_b", "strip"):
+        assert f'"{point}" [shape=' in phys
+    for c in ("run_a", "run_b", "strip_cord", "pre.cord", "mixer.cord", "pre_out", "mix_out"):
+        assert f'class="{element_class(c)}"' in phys
+    assert "its own wiring is in its own plan's drawing" in phys
 
 
 def test_balanced_rejection_from_the_source_impedance_imbalance():

@@ -179,3 +179,33 @@ def test_umbilical_cores_are_conductors_of_their_own_kind_and_must_share_a_lengt
     with pytest.raises(PlanErrors) as e:
         load_text(text, "u.gplan")
     assert "core y is 2 m but x, in the same umbilical ub, is 1.5 m" in str(e.value)
+
+
+def test_the_reports_show_the_outlet_voltages(cli, tmp_path):
+    code, out, _ = cli("check", str(ROOM))
+    assert "Voltage between the outlets' earths that each interconnect joins" in out
+    assert "desk_out" in out and "12.7 mV" in out and "run_rack.induced 12.7 mV" in out
+    assert "run_rack: its load induces 10.9 mV at 50 Hz along its protective core" in out
+    page = tmp_path / "room.html"
+    cli("report", str(ROOM), "-o", str(page))
+    html = page.read_text()
+    assert 'id="outlet-voltages"' in html and "12.7 mV" in html and 'id="device-earths"' in html
+
+
+def test_the_advice_lands_the_shield_on_the_chassis_first(cli):
+    code, out, _ = cli("suggest", str(ROOM))
+    first = out.split("\n2. ")[0]
+    assert "1. land the shield of pre_out on the chassis where it enters" in first and "[answers GC113]" in first
+    assert "-    shield-to signal chassis\n   +    shield-to chassis" in first
+    assert "hum micpre.main: -46.2 dBV → below -140 dBV" in first
+
+
+def test_the_planned_outlet_voltages_read_from_the_hum_solves_equal_their_own_solve():
+    from groundcheck.physics.outlets import outlet_voltages
+    plan = load(ROOM)
+    r = analyze(plan)
+    own = outlet_voltages(plan, r.circuit, {rr.name: rr for rr in r.rectifiers}, r.options.max_frequency)
+    for a, b in zip(r.outlets.pairs, own.pairs):
+        assert a.planned.keys() == b.planned.keys()
+        for f in a.planned:
+            assert a.planned[f] == pytest.approx(b.planned[f], rel=1e-9, abs=1e-15)

@@ -163,7 +163,8 @@ def test_text_to_a_file_or_pipe_is_not_wrapped(cli):
 
 
 @pytest.mark.skipif(shutil.which("neato") is None, reason="needs Graphviz")
-@pytest.mark.parametrize("path", [*EXAMPLES, EXAMPLES[0].parent / "studio" / "project-studio.gplan"],
+@pytest.mark.parametrize("path", [*EXAMPLES, EXAMPLES[0].parent / "studio" / "project-studio.gplan",
+                                  EXAMPLES[0].parent / "studio" / "recording-room.gplan"],
                          ids=lambda p: p.stem)
 def test_drawing_labels_do_not_overlap(cli, path, tmp_path):
     # every text of the SVG as a box (Helvetica at about half the font size per character, 0.8 size above the

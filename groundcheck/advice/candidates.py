@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 
+from ..language.installation import shield_ends
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT, Plan
 from ..rules.results import Result
@@ -70,6 +71,8 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
             add(_thicker(ctx, f))
         elif f.code in ("GC205", "GC206"):
             add(_bonding_wire(ctx, f))
+        elif f.code == "GC113":
+            add(_shield_to_chassis(ctx, f))
 
 
 def _star_candidates(ctx: ChangeContext, f, add) -> None:
@@ -246,19 +249,37 @@ def _installation_candidates(ctx: ChangeContext, add) -> None:
             if dst is None:
                 continue
             ph = ctx.src.find(dst, "signal-ground")
-            if ph and len(ph) > 1:
-                edit = ctx.src.replace(dst, [(ph[1], "lift")])
-            else:
-                last = dst.phrases[-1][-1]
-                n, _, b = ctx.src.span(last)
-                row = ctx.src.lines[n - 1]
-                edit = ctx.src.replace(dst, [])
-                rows = edit.new.split("\n")
-                rows[n - dst.loc.line] = row[:b] + ", signal-ground lift" + row[b:]
-                edit = Edit(edit.line, "\n".join(rows), (), edit.last)
+            edit = ctx.src.replace(dst, [(ph[1], "lift")]) if ph and len(ph) > 1 else _appended(ctx, dst,
+                                                                                                 "signal-ground lift")
             add(Candidate(f"give {dev} a ground-lift network between its signal ground and chassis (never the "
                           "protective earth)",
                           "GC101", (edit,)))
+
+
+def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
+    """An edit of statement ``st`` with ``, phrase`` after its last item (before any comment)."""
+    n, _, b = ctx.src.span(st.phrases[-1][-1])
+    row = ctx.src.lines[n - 1]
+    edit = ctx.src.replace(st, [])
+    rows = edit.new.split("\n")
+    rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
+    return Edit(edit.line, "\n".join(rows), (), edit.last)
+
+
+def _shield_to_chassis(ctx: ChangeContext, f):
+    """GC113: land the interconnect's shield on the chassis at the end where it lands on a signal ground."""
+    (_, name, end), = f.actions
+    c = ctx.cond.get(name)
+    st = ctx.statement(c) if c is not None else None
+    if st is None:
+        return None
+    ends = list(shield_ends(c))
+    ends[0 if end == c.a else 1] = "chassis"
+    new = "shield-to chassis" if ends == ["chassis", "chassis"] else f"shield-to {ends[0]} {ends[1]}"
+    ph = ctx.src.find(st, "shield-to")
+    edit = (ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]]) if ph else _appended(ctx, st, new))
+    return Candidate(f"land the shield of {name} on the chassis where it enters, not on the signal ground at {end}",
+                     "GC113", (Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last),))
 
 
 def _join_ends(ctx: ChangeContext, row, add) -> None:

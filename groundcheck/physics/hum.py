@@ -91,10 +91,11 @@ class _FrequencyPart:
     network: list = field(default_factory=list)      # rows of the JSON ``network`` section
     in_phase: list = field(default_factory=list)     # (channel, source group, Σ|stage drop·gain|): the worst case
     crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
+    probes: object = None                            # per probe pair: Σ over sources of |V_a − V_b|², V²
 
 
 def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOptions = HumOptions(),
-               jobs: int = 1) -> HumResult:
+               jobs: int = 1, probes=()) -> HumResult:
     """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk.
 
     Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
@@ -107,12 +108,17 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         rectifier_results: each rectifier's simulation.
         options: the budget's settings.
         jobs: processes for the frequencies.
+        probes: (point, point) pairs whose voltage from the sources is wanted too (an installation's outlet
+            pairs): read from the same solves, as the power sum over the sources per frequency.
     Returns:
-        the HumResult: per channel the spectrum, total, contributors and audibility; loop pickup; crosstalk.
+        the HumResult: per channel the spectrum, total, contributors and audibility; loop pickup; crosstalk;
+        the probes' power sums.
     References:
         ISO 226:2003 (threshold); reciprocity (Penfield, Spence, Duinker, 1970); Faraday's law.
     """
     b = _Budget(plan, circuit, loops, rectifier_results, options)
+    b.probe_a = np.array([circuit.point_node[x] for x, _ in probes], dtype=int)
+    b.probe_b = np.array([circuit.point_node[y] for _, y in probes], dtype=int)
     merged = Merged(b)
     for f, part in zip(b.solve_at, map_frequencies(b.at_frequency, b.solve_at, jobs)):
         merged.add(f, part)
@@ -121,7 +127,7 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
         b.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
     return HumResult(channels, list(rectifier_results.values()),
                      [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
-                     merged.crosstalk(), b.freqs, merged.network_rows, b.notes)
+                     merged.crosstalk(), b.freqs, merged.network_rows, b.notes, merged.probes)
 
 
 def _passages(plan, circuit, loops) -> dict:
@@ -252,6 +258,9 @@ class _Budget:
     def _source_chunk(self, f, fac, active, gains, TC, part) -> None:
         circuit, owners = self.circuit, self.owners
         both = fac.solve(source_injections(circuit, active, f))
+        if self.probe_a.size:
+            power = (np.abs(both.V[self.probe_a] - both.V[self.probe_b]) ** 2).sum(axis=1)
+            part.probes = power if part.probes is None else part.probes + power
         W = fac.z[:, None] * both.I                                  # branches × sources: Z_b·I_b(s)
         # each stage's own drop (node voltages of the source solves), for the worst case: every stage in phase
         stage_v = (np.abs(both.V[self.stage_a] - both.V[self.stage_b]) * np.abs(gains[self.valid_idx])[:, None])

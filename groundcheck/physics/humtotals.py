@@ -76,6 +76,7 @@ class HumResult:
     frequencies: list[float]
     network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
     notes: list[str] = field(default_factory=list)
+    probes: dict = field(default_factory=dict)    # frequency -> power sum over the sources of each probe pair, V²
 
     def as_dict(self) -> dict:
         return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
@@ -92,6 +93,7 @@ class Merged:
         self.contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}   # (label) -> f -> phasor
         self.loop_rows: dict[int, dict] = {}
         self.network_rows: list[dict] = []
+        self.probes: dict = {}
         self.crosstalk_raw = defaultdict(complex)
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
 
@@ -103,6 +105,8 @@ class Merged:
         for ch, label, v in part.contrib:
             self.contrib[ch][label][f] += v
         self.network_rows.extend(part.network)
+        if part.probes is not None:
+            self.probes[f] = self.probes.get(f, 0.0) + part.probes
         for li, src_name, emf_v, current, drops in part.loops:
             self._loop(f, li, src_name, emf_v, current, drops)
         for src_ch, dst_ch, v in part.crosstalk:

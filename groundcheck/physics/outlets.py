@@ -21,7 +21,7 @@ import numpy as np
 
 from .coupling import plan_sources, source_injections
 
-__all__ = ["OutletPair", "OutletVoltages", "outlet_voltages", "MAX_DRIVERS"]
+__all__ = ["OutletPair", "OutletVoltages", "outlet_voltages", "outlet_pairs", "MAX_DRIVERS"]
 
 #: drivers named per outlet pair (the largest first)
 MAX_DRIVERS = 5
@@ -91,7 +91,31 @@ def _pair_volts(circuit, sources, pairs, freqs) -> tuple[dict, dict]:
     return per_f, np.sqrt(per_s)
 
 
-def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float) -> OutletVoltages:
+def outlet_pairs(plan) -> tuple[list, list]:
+    """The plug points of every interconnect's two devices, where they differ.
+
+    Parameters:
+        plan: the plan (an installation).
+    Returns:
+        ([(plug point of the A end's device, of the B end's)], [the interconnect of each pair]).
+    References:
+        none (bookkeeping).
+    """
+    devices = {d.name: d for d in plan.devices}
+    pairs, names = [], []
+    for c in plan.conductors:
+        if c.kind != "interconnect":
+            continue
+        ends = [_plug(x, devices) for x in (c.a, c.b)]
+        if None in ends or ends[0] == ends[1]:
+            continue
+        pairs.append((ends[0], ends[1]))
+        names.append(c.name)
+    return pairs, names
+
+
+def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float,
+                    planned: dict | None = None) -> OutletVoltages:
     """The outlet-pair voltages of an installation's interconnects, unplugged and as planned.
 
     Parameters:
@@ -99,6 +123,8 @@ def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float
         circuit: its circuit.
         rectifier_results: each rectifier's simulation.
         max_frequency: the highest frequency kept, Hz.
+        planned: the power sums of :func:`outlet_pairs`' pairs as planned per frequency, when the hum budget
+            has read them from its own solves (:func:`groundcheck.physics.hum.hum_budget`'s ``probes``).
     Returns:
         one pair per interconnect between two plug points, with its drivers, and each loaded
         cable's EMF; empty for a plan without devices.
@@ -114,15 +140,7 @@ def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float
         if c.kind == "cable" and c.loads:
             for f, e in sorted(cable_emfs(c, plan.frequency).items()):
                 out.emfs.append((c.name, f, e, mutual_per_metre(c.cores)))
-    pairs, names = [], []
-    for c in plan.conductors:
-        if c.kind != "interconnect":
-            continue
-        ends = [_plug(x, devices) for x in (c.a, c.b)]
-        if None in ends or ends[0] == ends[1]:
-            continue
-        pairs.append((ends[0], ends[1]))
-        names.append(c.name)
+    pairs, names = outlet_pairs(plan)
     if not pairs:
         return out
     if plan.supply is None and not plan.device_supplies and any(d.source == "simple" for d in devices.values()):
@@ -131,7 +149,12 @@ def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float
     freqs = sorted({f for s in sources for f in s.parts if 0 < f <= max_frequency + 1e-9})
     unplugged = circuit.restricted({c.name for c in plan.conductors if c.kind != "interconnect"})
     open_f, open_s = _pair_volts(unplugged, sources, pairs, freqs)
-    plan_f, _ = _pair_volts(circuit, sources, pairs, freqs)
+    if planned is not None and all(f in planned for f in freqs):
+        _, labels = circuit.components
+        joined = np.array([labels[circuit.point_node[a]] == labels[circuit.point_node[b]] for a, b in pairs])
+        plan_f = {f: np.where(joined, np.sqrt(planned[f]), 0.0) for f in freqs}
+    else:
+        plan_f, _ = _pair_volts(circuit, sources, pairs, freqs)
     roles = {c.name: c.role for c in plan.currents}
     for k, ((a, b), name) in enumerate(zip(pairs, names)):
         order = np.argsort(-open_s[k], kind="stable")[:MAX_DRIVERS]

@@ -19,75 +19,21 @@ Every string from the plan is quoted for DOT (and Graphviz escapes it again in S
 from __future__ import annotations
 
 from collections import defaultdict
-from html import escape
 
 from ..model.kinds import is_fastening
 from ..rules.results import Result
+from .dotbase import (DRAWING_CAUTION, LIFT_STYLE, LOOP_HALO, PROBLEM_HALO, ROLE_STYLE, attrs as _attrs,  # noqa: F401
+                      dot_quote, element_class, legend as _legend, problems as _problems)
+from .system import system_dot
 
 __all__ = ["physical_dot", "topology_dot", "dot_quote", "element_class", "ROLE_STYLE"]
-
-ROLE_STYLE = {
-    "protective": {"color": "#2f7d32:#f2c200:#2f7d32", "penwidth": "2.2"},
-    "return": {"color": "#d2691e", "penwidth": "2.0"},
-    "signal": {"color": "#1f5fa8", "penwidth": "1.6"},
-    "shield": {"color": "#7a7a7a", "penwidth": "1.4", "style": "dashed"},
-    "bond": {"color": "#404040", "penwidth": "1.2", "style": "dotted"},
-    "heater": {"color": "#b8860b", "penwidth": "1.6"},
-}
-LIFT_STYLE = {"color": "#7b3fa0", "penwidth": "1.8", "style": "dashed"}
-LOOP_HALO = "#f5a80066"
-#: the caution as the drawings carry it (short lines under the legend); every other output has it whole
-DRAWING_CAUTION = ("Caution: lethal voltages in mains and valve circuits;", "never lift the protective earth.",
-                   "Estimates from the plan, not measurements;", "follow local codes, have mains work checked.")
-PROBLEM_HALO = "#e0303088"
-
-
-def dot_quote(text: str) -> str:
-    """A DOT double-quoted string: backslashes and quotes escaped, line breaks flattened."""
-    s = str(text).replace("\\", "\\\\").replace('"', '\\"').replace("\r", " ").replace("\n", " ")
-    return f'"{s}"'
-
-
-def element_class(name: str) -> str:
-    """The SVG class that marks a plan element's shapes in both drawings (the live view highlights by it).
-
-    Letters and digits are kept; every other character becomes ``_`` and its code in hex, so the class is one
-    token that no other name maps to.
-    """
-    return "gc-" + "".join(ch if ch.isascii() and ch.isalnum() else f"_{ord(ch):x}_" for ch in name)
-
-
-def _attrs(d: dict) -> str:
-    return ", ".join(f"{k}={dot_quote(v)}" for k, v in d.items())
-
-
-def _problems(result: Result):
-    """Finding codes per element name (conductors, points, parts), sorted."""
-    marks: dict[str, set[str]] = defaultdict(set)
-    for f in result.findings:
-        if f.severity == "note":
-            continue
-        for e in f.elements:
-            marks[e].add(f.code)
-    return {k: sorted(v) for k, v in marks.items()}
-
-
-def _legend(x: float, y: float) -> str:
-    rows = [("#2f7d32", "protective earth (green-and-yellow)"), ("#d2691e", "supply return"),
-            ("#1f5fa8", "signal reference"), ("#7a7a7a", "shield (dashed)"), ("#404040", "fastening (dotted)"),
-            ("#7b3fa0", "lift network (dashed)"), ("#f5a800", "ground loop (band)"), ("#e03030",
-                                                                                      "problem (halo, codes)")]
-    cells = "".join(f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows)
-    caution = "<BR/>".join(escape(x) for x in DRAWING_CAUTION)
-    label = (f'<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999">'
-             f'<TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}'
-             f'<TR><TD COLSPAN="2" ALIGN="LEFT"><FONT COLOR="#8a4b00">{caution}</FONT></TD></TR></TABLE>>')
-    return f'  legend [shape=plaintext, fontsize=9, pos="{x:.1f},{y:.1f}!", label={label}];'
 
 
 def physical_dot(result: Result) -> str:
     """The physical view: metal parts, points at their positions, conductors along their routes (neato)."""
     plan = result.plan
+    if plan.devices:
+        return system_dot(result)
     marks = _problems(result)
     positioned = {p.name: p.pos for p in plan.points if p.pos is not None}
     xs = [q[0] for q in positioned.values()] + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
@@ -268,8 +214,11 @@ def _clusters(plan) -> dict[str, str]:
 
 
 def physical_omissions(result: Result) -> tuple[int, int]:
-    """How many points and conductors the physical view cannot draw (no position): (points, conductors)."""
+    """How many points and conductors the physical view cannot draw (no position): (points, conductors); an
+    installation's view draws every device as a box and every point and conductor outside them."""
     plan = result.plan
+    if plan.devices:
+        return 0, 0
     positioned = {p.name for p in plan.points if p.pos is not None} | {m.name for m in plan.metals if m.size}
     points = sum(1 for p in plan.points if p.pos is None)
     conductors = sum(1 for c in plan.conductors if c.kind != "bolt" and not (c.a in positioned and c.b in positioned))

@@ -16,6 +16,7 @@ from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 from ..physics.hearing import threshold_of_hearing
 from ..core.caution import CAUTION
+from ..core.units import format_si
 from .text import figure_words
 
 __all__ = ["html_report", "spectrum_svg", "chart_frame", "plan_line_html"]
@@ -170,6 +171,7 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
     _findings_section(result, parts, physical_svg, topology_svg, renderer, lines or {})
     _hum_section(result, parts)
     _protective_section(result, parts)
+    _installation_section(result, parts)
     _loops_section(result, parts)
     parts.append("</body></html>")
     return "\n".join(parts) + "\n"
@@ -259,6 +261,31 @@ def _protective_section(result: Result, parts: list[str], e=escape) -> None:
                              f"<td class=num>{c.required * 1e6:.4g} "
                              f"mm²</td><td>{'yes' if c.survives else 'NO'}</td></tr>")
             parts.append("</table>")
+
+
+def _installation_section(result: Result, parts: list[str], e=escape) -> None:
+    """An installation's device earth paths and the voltage between the outlets each interconnect joins."""
+    if result.device_earths:
+        parts.append('<h2>Installation</h2><table id="device-earths"><tr><th>device</th><th>earth pin</th>'
+                     "<th>path to the main earthing terminal</th></tr>")
+        for d in result.device_earths:
+            shown = "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ"
+            parts.append(f"<tr><td>{e(d.device)}</td><td>{e(d.inlet)}</td><td class=num>{shown}</td></tr>")
+        parts.append("</table>")
+    o = result.outlets
+    if o is not None and o.pairs:
+        parts.append('<table id="outlet-voltages"><tr><th>interconnect</th><th>between</th><th>unplugged</th>'
+                     "<th>as planned</th><th>drivers (unplugged)</th></tr>")
+        for p in o.pairs:
+            drivers = "; ".join(f"{n} {format_si(v, 'V')}" for n, _, v in p.drivers) or "none"
+            parts.append(f"<tr><td>{e(p.interconnect)}</td><td>{e(p.a)} – {e(p.b)}</td>"
+                         f"<td class=num>{format_si(p.open_total, 'V')}</td>"
+                         f"<td class=num>{format_si(p.planned_total, 'V')}</td><td>{e(drivers)}</td></tr>")
+        parts.append("</table>")
+    if o is not None:
+        for c, f, emf, m in o.emfs:
+            parts.append(f"<p>{e(c)}: its load induces {format_si(emf, 'V')} at {f:g} Hz along its protective core "
+                         f"(M′ {m * 1e9:.4g} nH/m).</p>")
 
 
 def _loops_section(result: Result, parts: list[str], e=escape) -> None:
