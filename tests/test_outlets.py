@@ -209,3 +209,17 @@ def test_the_planned_outlet_voltages_read_from_the_hum_solves_equal_their_own_so
         assert a.planned.keys() == b.planned.keys()
         for f in a.planned:
             assert a.planned[f] == pytest.approx(b.planned[f], rel=1e-9, abs=1e-15)
+
+
+def test_an_umbilicals_0v_core_gets_the_advice_of_any_return(cli):
+    """The supply box's umbilical written as cores ('core … in umb') gets the same first suggestion, with the same
+    predicted figures, as the same umbilical written as plain wires: its 0 V core is a return like any other."""
+    plans = Path(__file__).resolve().parent / "plans" / "outboard-supply"
+    firsts = []
+    for name in ("phono.gplan", "phono-cores.gplan"):
+        _, out, _ = cli("suggest", str(plans / name))
+        firsts.append(out.split("\n1. ")[1].split("\n   ---")[0])
+    assert firsts[0] == firsts[1] and "[answers GC102]" in firsts[0]
+    plan = load(plans / "phono-cores.gplan")
+    assert {c.name: (c.kind, c.bundle) for c in plan.conductors if c.bundle} == {
+        "umb_0v": ("core", "umb"), "umb_ct": ("core", "umb")}

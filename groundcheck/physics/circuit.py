@@ -27,10 +27,12 @@ import scipy.sparse.linalg as spla
 
 from ..model.records import PE_POINT, Plan
 from ..network.graph import part_labels
+from .factored import Factored, Solution
 from .impedance import MATERIALS, MIN_IMPEDANCE, conductor_resistance, resistivity, skin_ratio
 from .plate import reduce_plate
 
-__all__ = ["Circuit", "Solution", "build_circuit", "conductor_resistance"]
+__all__ = ["Circuit", "Factored", "Solution", "build_circuit", "conductor_resistance"]
+
 XY = tuple[float, float]
 
 
@@ -184,74 +186,6 @@ class Circuit:
     def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
         """Shorthand for ``self.at(f).solve(injections, emf)``."""
         return self.at(f).solve(injections, emf)
-
-
-@dataclass
-class Factored:
-    """A circuit's admittance matrix at one frequency with its sparse LU factors."""
-
-    circuit: Circuit
-    frequency: float
-    z: np.ndarray
-    y: np.ndarray
-    keep: np.ndarray
-    lu: object
-    real: bool = False                   # the factors are real (DC or a purely resistive network)
-
-    def solve(self, injections: np.ndarray, emf: np.ndarray | None = None, currents: bool = True) -> "Solution":
-        """Node voltages and branch currents for each column of sources.
-
-        ``injections``: (nodes × k) complex currents entering each node, A.
-        ``emf``: optional (branches × k) EMF in series with each branch, V; it
-        drives current from n1 to n2 through the branch.  Voltages are
-        relative to each connected part's reference node.  ``currents`` False
-        leaves the branch currents out (an empty array): for many columns they
-        are the largest part of the work and of the memory.
-        """
-        n1, n2, *_ = self.circuit._arrays
-        n = len(self.circuit.nodes)
-        y = self.y
-        J = np.array(injections, dtype=complex).reshape(n, -1).copy()
-        k = J.shape[1]
-        if emf is not None:
-            emf = np.asarray(emf, dtype=complex).reshape(len(y), k)
-            inj = emf * y[:, None]          # Norton equivalent of an EMF in series with the branch
-            np.add.at(J, n2, inj)
-            np.add.at(J, n1, -inj)
-        V = np.zeros((n, k), dtype=complex)
-        if self.lu is not None:
-            rhs = J[self.keep]
-            if self.real:                        # real factors: solve the real and imaginary parts apart
-                V[self.keep] = self.lu.solve(np.ascontiguousarray(rhs.real))
-                if rhs.imag.any():
-                    V[self.keep] += 1j * self.lu.solve(np.ascontiguousarray(rhs.imag))
-            else:
-                V[self.keep] = self.lu.solve(rhs)
-        if not currents:
-            return Solution(self.circuit, self.frequency, V, np.zeros((len(y), 0), dtype=complex))
-        dv = V[n1] - V[n2]
-        if emf is not None:
-            dv = dv + emf
-        return Solution(self.circuit, self.frequency, V, dv * y[:, None])
-
-
-@dataclass
-class Solution:
-    """Node voltages (nodes × k) and branch currents from n1 to n2 (branches × k) at one frequency."""
-
-    circuit: Circuit
-    frequency: float
-    V: np.ndarray
-    I: np.ndarray
-
-    def between(self, a: str, b: str) -> np.ndarray:
-        """Voltage of point a relative to point b for every source column (NaN when not connected)."""
-        c = self.circuit
-        ia, ib = c.point_node[a], c.point_node[b]
-        _, labels = c.components
-        if labels[ia] != labels[ib]:
-            return np.full(self.V.shape[1], np.nan + 0j)
-        return self.V[ia] - self.V[ib]
 
 
 def _segment_path(plan: Plan, c, pos: dict[str, XY]) -> tuple[XY, ...]:

@@ -263,14 +263,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
         return []
     _, labels = circuit.components
     fac = circuit.at(0.0)
-    src = fac.solve(source_injections(circuit, sources, 0.0), currents=False)   # the voltages tell who shares
-    split = np.array([labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages])
-    ia = np.array([circuit.point_node[st.a] for st in stages])
-    ib = np.array([circuit.point_node[st.b] for st in stages])
-    # stages × sources, V per A: each stage's pair voltage from each source's unit current, which by
-    # reciprocity equals Σ Z·I_source·I_test over the branches (the shares below)
-    transfer = np.abs(src.V[ia] - src.V[ib])
-    transfer[split] = 0.0                        # a stage across two islands has no defined pair voltage
+    transfer = _transfers(circuit, fac, sources, stages)
     pairs = np.argwhere(transfer > 1e-6)
     if len(pairs) > MAX_SHARED_ROWS:
         order = np.argsort(-transfer[pairs[:, 0], pairs[:, 1]], kind="stable")[:MAX_SHARED_ROWS]
@@ -300,10 +293,32 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     return rows
 
 
+def _transfers(circuit: Circuit, fac: Factored, sources: list, stages: list) -> np.ndarray:
+    """Stages × sources, V per A: each stage's pair voltage from each source's unit current (only the stages' node
+    voltages are kept: the voltages tell who shares), which by reciprocity equals Σ Z·I_source·I_test over the
+    branches (the shares of :func:`shared_returns`); 0 for a stage across two islands (no defined voltage)."""
+    _, labels = circuit.components
+    split = np.array([labels[circuit.point_node[st.a]] != labels[circuit.point_node[st.b]] for st in stages])
+    ia = np.array([circuit.point_node[st.a] for st in stages])
+    ib = np.array([circuit.point_node[st.b] for st in stages])
+    rows, where = np.unique(np.concatenate([ia, ib]), return_inverse=True)
+    V = np.concatenate([fac.voltages(source_injections(circuit, sources[lo:lo + 128], 0.0), rows)
+                        for lo in range(0, len(sources), 128)], axis=1)
+    transfer = np.abs(V[where[:len(ia)]] - V[where[len(ia):]])
+    transfer[split] = 0.0
+    return transfer
+
+
 def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -> tuple[str, ...]:
     """The conductors that make up most of the coupling (largest shares first, 90 % of it, at most five)."""
-    idx = [b for b in np.argsort(-np.abs(shares), kind="stable") if carrying[b]]
-    total = np.abs(shares[idx]).sum()
+    mags = np.abs(shares)
+    cand = np.flatnonzero(carrying)
+    total = mags[cand].sum()
+    if len(cand) > 64:          # the few largest decide; the full sort only when they do not reach 90 %
+        first = np.sort(cand[np.argpartition(-mags[cand], 63)[:64]])
+        if mags[first].sum() >= 0.9 * total:
+            cand = first
+    idx = list(cand[np.argsort(-mags[cand], kind="stable")])
     shared, acc = [], 0.0
     for b in idx:
         if owners[b] not in shared:

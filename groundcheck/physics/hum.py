@@ -271,6 +271,11 @@ class _Budget:
         for ci, ch in enumerate(self.channels):
             shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
             v_all = shares_all.sum(axis=0)
+            mags_all = np.abs(shares_all)
+            # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
+            many = len(mags_all) > TOP_SHARES
+            tops = np.argpartition(-mags_all, TOP_SHARES - 1, axis=0)[:TOP_SHARES] if many else None
+            peak = mags_all.max(axis=0) if len(mags_all) else np.zeros(len(active))
             for si, s in enumerate(active):
                 group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
                 v_out = v_all[si]
@@ -278,11 +283,9 @@ class _Budget:
                     continue
                 part.out.append((ch, group, v_out))
                 shares = shares_all[:, si]
-                mags = np.abs(shares)
-                # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
-                top = np.argpartition(-mags,
-                                      TOP_SHARES - 1)[:TOP_SHARES] if len(mags) > TOP_SHARES else np.arange(len(mags))
-                top = top[mags[top] > 1e-3 * max(mags.max(), 1e-300)]
+                mags = mags_all[:, si]
+                top = tops[:, si] if many else np.arange(len(mags))
+                top = top[mags[top] > 1e-3 * max(peak[si], 1e-300)]
                 for bi in top:
                     part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
                 rest = v_out - shares[top].sum()
