@@ -42,7 +42,9 @@ def _voltage_and_frequency(r: Reader, kw: dict) -> None:
             raise PlanError(f"unexpected {it.text!r}", it.loc, "write the voltage and frequency, e.g. '230 V 50 Hz'")
 
 
-def mains(stmt: Statement):
+def _supply_statement(stmt: Statement, attribute) -> dict:
+    """The fields of a mains or supply statement: the phrase of voltage and frequency, each other phrase read by
+    ``attribute(reader, phrase, fields)``; both voltage and frequency are required."""
     no_label(stmt)
     kw: dict = {}
     for ph in stmt.phrases:
@@ -50,67 +52,65 @@ def mains(stmt: Statement):
         if r.peek().kind == "qty":
             _voltage_and_frequency(r, kw)
             continue
-        word = r.word("an attribute")
-        if word in ("fuse", "breaker"):
-            kw["fuse"] = r.quantity("current", f"{word} rating")
-            if word == "fuse":
-                kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
-                kw["fuse_kind"] = FUSE_KINDS[kind]
-            else:
-                kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
-                kw["fuse_kind"] = f"breaker-{kind}"
-        elif word in MAINS_ATTRIBUTES:
-            field, what, kind = MAINS_ATTRIBUTES[word]
-            kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
-        elif word == "cord":
-            kw["cord_length"] = r.quantity("length", "cord length", allow_zero=True)
-            if not r.done:
-                kw["cord_area"] = r.quantity("area", "cord conductor area")
-        elif word == "circuit":
-            kw["circuit_length"] = r.quantity("length", "final-circuit length", allow_zero=True)
-            if not r.done:
-                kw["circuit_area"] = r.quantity("area", "final-circuit line-conductor area")
-        elif word == "system":
-            kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
-        elif word == "class":
-            kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
-        elif word == "breaking":
-            it = r.peek()
-            if it is not None and it.kind == "qty":
-                kw["breaking_current"] = r.quantity("current", "breaking capacity")
-            else:
-                kw["breaking"] = r.word("a breaking capacity (low, enhanced, high, or a current)",
-                                        ("low", "enhanced", "high"))
-        elif word == "inlet":
-            r.expect("at")
-            kw["inlet"] = r.coord()
-        else:
-            raise unknown(stmt, ph[0], MAINS_WORDS)
+        attribute(r, ph, kw)
         r.finish()
     for need, example in (("voltage", "230 V"), ("frequency", "50 Hz")):
         if need not in kw:
-            raise PlanError(f"mains needs its {need}", stmt.loc, f"e.g. 'mains 230 V 50 Hz'; missing {example}")
-    return Mains(location=stmt.loc, **kw), {}
+            raise PlanError(f"{stmt.keyword} needs its {need}", stmt.loc,
+                            f"e.g. '{stmt.keyword} 230 V 50 Hz'; missing {example}")
+    return kw
+
+
+def mains(stmt: Statement):
+    return Mains(location=stmt.loc, **_supply_statement(stmt, lambda r, ph, kw: _mains_attribute(stmt, r, ph, kw))), {}
+
+
+def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
+    word = r.word("an attribute")
+    if word in ("fuse", "breaker"):
+        kw["fuse"] = r.quantity("current", f"{word} rating")
+        if word == "fuse":
+            kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
+            kw["fuse_kind"] = FUSE_KINDS[kind]
+        else:
+            kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
+            kw["fuse_kind"] = f"breaker-{kind}"
+    elif word in MAINS_ATTRIBUTES:
+        field, what, kind = MAINS_ATTRIBUTES[word]
+        kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
+    elif word == "cord":
+        kw["cord_length"] = r.quantity("length", "cord length", allow_zero=True)
+        if not r.done:
+            kw["cord_area"] = r.quantity("area", "cord conductor area")
+    elif word == "circuit":
+        kw["circuit_length"] = r.quantity("length", "final-circuit length", allow_zero=True)
+        if not r.done:
+            kw["circuit_area"] = r.quantity("area", "final-circuit line-conductor area")
+    elif word == "system":
+        kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+    elif word == "class":
+        kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
+    elif word == "breaking":
+        it = r.peek()
+        if it is not None and it.kind == "qty":
+            kw["breaking_current"] = r.quantity("current", "breaking capacity")
+        else:
+            kw["breaking"] = r.word("a breaking capacity (low, enhanced, high, or a current)",
+                                    ("low", "enhanced", "high"))
+    elif word == "inlet":
+        r.expect("at")
+        kw["inlet"] = r.coord()
+    else:
+        raise unknown(stmt, ph[0], MAINS_WORDS)
 
 
 def supply(stmt: Statement):
     """An installation's supply: 'supply 230 V 50 Hz, system TN-S'."""
-    no_label(stmt)
-    kw: dict = {}
-    for ph in stmt.phrases:
-        r = Reader(ph, stmt)
-        if r.peek().kind == "qty":
-            _voltage_and_frequency(r, kw)
-            continue
-        first = r.peek()
+    def attribute(r: Reader, ph, kw: dict) -> None:
         if r.word("an attribute") != "system":
-            raise unknown(stmt, first, ("230 V 50 Hz", "system"))
+            raise unknown(stmt, ph[0], ("230 V 50 Hz", "system"))
         kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
-        r.finish()
-    for need, example in (("voltage", "230 V"), ("frequency", "50 Hz")):
-        if need not in kw:
-            raise PlanError(f"supply needs its {need}", stmt.loc, f"e.g. 'supply 230 V 50 Hz'; missing {example}")
-    return Supply(location=stmt.loc, **kw), {}
+    return Supply(location=stmt.loc, **_supply_statement(stmt, attribute)), {}
 
 
 def rectifier(stmt: Statement):
