@@ -256,41 +256,48 @@ class _Budget:
             self._source_chunk(f, fac, active[lo:lo + SOURCE_CHUNK], gains, TC, part)
 
     def _source_chunk(self, f, fac, active, gains, TC, part) -> None:
-        circuit, owners = self.circuit, self.owners
+        circuit = self.circuit
         both = fac.solve(source_injections(circuit, active, f))
+        self._network_rows(f, fac, active, both, part)
         if self.probe_a.size:
             power = (np.abs(both.V[self.probe_a] - both.V[self.probe_b]) ** 2).sum(axis=1)
             part.probes = power if part.probes is None else part.probes + power
-        W = fac.z[:, None] * both.I                                  # branches × sources: Z_b·I_b(s)
+        WT = np.ascontiguousarray((fac.z[:, None] * both.I).T)      # sources × branches: Z_b·I_b(s)
         # each stage's own drop (node voltages of the source solves), for the worst case: every stage in phase
         stage_v = (np.abs(both.V[self.stage_a] - both.V[self.stage_b]) * np.abs(gains[self.valid_idx])[:, None])
+        groups = ["rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}" for s in active]
         for ci, ch in enumerate(self.channels):
-            for si, s in enumerate(active):
-                group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
-                part.in_phase.append((ch, group, float(stage_v[self.stage_channel == ci, si].sum())))
+            worst = stage_v[self.stage_channel == ci].sum(axis=0)
+            part.in_phase.extend((ch, g, float(w)) for g, w in zip(groups, worst))
         for ci, ch in enumerate(self.channels):
-            shares_all = W * TC[:, [ci]]                             # reciprocity: each branch's share
-            v_all = shares_all.sum(axis=0)
-            mags_all = np.abs(shares_all)
-            # the largest shares are named; the rest (each below the tenth largest) are summed as "other"
-            many = len(mags_all) > TOP_SHARES
-            tops = np.argpartition(-mags_all, TOP_SHARES - 1, axis=0)[:TOP_SHARES] if many else None
-            peak = mags_all.max(axis=0) if len(mags_all) else np.zeros(len(active))
-            for si, s in enumerate(active):
-                group = "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}"
-                v_out = v_all[si]
-                if v_out == 0:
-                    continue
-                part.out.append((ch, group, v_out))
-                shares = shares_all[:, si]
-                mags = mags_all[:, si]
-                top = tops[:, si] if many else np.arange(len(mags))
-                top = top[mags[top] > 1e-3 * max(peak[si], 1e-300)]
-                for bi in top:
-                    part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
-                rest = v_out - shares[top].sum()
-                if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
-                    part.contrib.append((ch, ("conductor", "other conductors", group), rest))
+            self._shares(ch, WT * TC[:, ci][None, :], groups, part)
+
+    def _shares(self, ch, shares_all, groups, part) -> None:
+        """Each source's output in one channel and its largest conductor shares (``shares_all``: sources ×
+        branches, by reciprocity each branch's share); the rest, each below the tenth largest, summed as other."""
+        owners = self.owners
+        v_all = shares_all.sum(axis=1)
+        mags_all = np.abs(shares_all)
+        many = mags_all.shape[1] > TOP_SHARES
+        tops = np.argpartition(-mags_all, TOP_SHARES - 1, axis=1)[:, :TOP_SHARES] if many else None
+        peak = mags_all.max(axis=1) if mags_all.shape[1] else np.zeros(len(groups))
+        for si, group in enumerate(groups):
+            v_out = v_all[si]
+            if v_out == 0:
+                continue
+            part.out.append((ch, group, v_out))
+            shares, mags = shares_all[si], mags_all[si]
+            top = tops[si] if many else np.arange(len(mags))
+            top = top[mags[top] > 1e-3 * max(peak[si], 1e-300)]
+            for bi in top:
+                part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
+            rest = v_out - shares[top].sum()
+            if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
+                part.contrib.append((ch, ("conductor", "other conductors", group), rest))
+
+    def _network_rows(self, f, fac, active, both, part) -> None:
+        """The JSON network section's rows: each source's largest branch currents at its first frequency."""
+        circuit = self.circuit
         for si, s in enumerate(active):
             if s.kind == "rectifier" and abs(f - 2 * self.f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
                 I = both.I[:, si]
