@@ -223,3 +223,23 @@ def test_an_umbilicals_0v_core_gets_the_advice_of_any_return(cli):
     plan = load(plans / "phono-cores.gplan")
     assert {c.name: (c.kind, c.bundle) for c in plan.conductors if c.bundle} == {
         "umb_0v": ("core", "umb"), "umb_ct": ("core", "umb")}
+
+
+def test_loop_currents_get_loop_advice_not_return_path_advice():
+    """A leakage current or a cable's induced EMF reaches a stage only round a loop: the advice breaks the loop or
+    moves the shield, never 'give it a return path', and never asks for a balanced link that already is one."""
+    r = analyze(load(ROOM))
+    fixes = {f.elements[0]: f.fix for f in r.findings if f.code == "GC301"}
+    assert "shield-to chassis" in fixes["micpre.in_gnd"]
+    assert "balanced interconnect" not in fixes["pre_out"] and "shield-to chassis" in fixes["pre_out"]
+    assert "use a balanced interconnect" in fixes["desk_out"]
+    assert all("return path of its own" not in x and "never lift the protective earth" in x for x in fixes.values())
+    assert all(f.message.startswith("leakage current ") for f in r.findings
+               if f.code == "GC102" and f.elements[0].endswith(".leakage"))
+
+
+def test_the_live_view_shows_the_installation_tables():
+    from groundcheck.renderers.live import live_state
+    st = live_state(analyze(load(ROOM)), None, None, None, {}, 0.1)
+    panel = st["sections"]["protective"]
+    assert 'id="device-earths"' in panel and 'id="outlet-voltages"' in panel and "12.7 mV" in panel

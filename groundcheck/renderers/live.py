@@ -18,7 +18,7 @@ from ..core.errors import PlanError
 from ..core.units import dbv
 from ..rules.results import Result
 from .dot import element_class
-from .html import _hum_section, _inline_svg, _protective_section
+from .html import _hum_section, _inline_svg, _installation_section, _protective_section
 from .text import figure_words
 
 __all__ = ["live_state", "error_state", "status_line", "main_hum_line"]
@@ -147,6 +147,7 @@ def live_state(result: Result, physical: str | None, topology: str | None, befor
     _hum_section(result, hum)
     pe: list[str] = []
     _protective_section(result, pe)
+    _installation_section(result, pe)         # an installation's device earth paths and outlet voltages
     hum_html, pe_html = (re.sub(r"<h2>[^<]*</h2>", "", "".join(x)) for x in (hum, pe))   # the page has its own
     sections = {"summary": _summary(result), "findings": findings,
                 "hum": hum_html or "<p>No hum budget (no sources or stages).</p>",

@@ -62,7 +62,8 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
                    f"take {row.stage_b} and {row.stage_a} to the signal star by wires that carry no supply current")
         out.append(Finding(
             "GC102", "fault",
-            f"{row.kind} return {row.source} ({row.a} → {row.b}) shares {', '.join(row.shared)} "
+            f"{'leakage current' if row.source in leak else f'{row.kind} return'} {row.source} ({row.a} → {row.b}) "
+            f"shares {', '.join(row.shared)} "
             f"with stage {row.stage} ({row.stage_a} – {row.stage_b})",
             row.location, (row.source, row.stage, *row.shared),
             {"transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"), "stage_gain_db": row.stage_gain}, fix))
@@ -103,6 +104,9 @@ def rule_hum(s: Solved) -> list[Finding]:
     plan, hum, opts = s.plan, s.hum, s.options
     out = []
     conductors = {c.name: c for c in plan.conductors}
+    # currents that reach a stage only round a loop through the installation: leakage, and the EMF of loaded cables
+    loop_driven = ({c.name for c in plan.currents if c.role == "leakage"}
+                   | {f"{c.name}.induced" for c in plan.conductors if c.kind == "cable" and c.loads})
     stages_by_ch: dict[str, list] = {}
     for s in plan.stages:
         stages_by_ch.setdefault(s.channel, []).append(s)
@@ -113,12 +117,7 @@ def rule_hum(s: Solved) -> list[Finding]:
                 continue
             if c["kind"] == "conductor":
                 cond = conductors.get(c["element"])
-                if cond is not None and cond.role == "protective":
-                    fix = (f"the drop along protective conductor {c['element']} reaches the stage through a loop: "
-                           "break the loop on the signal side (balanced interconnect or ground-lift network); never "
-                           "lift the protective earth")
-                else:
-                    fix = f"move the {c['source']} current off {c['element']}: give it a return path of its own"
+                fix = _contributor_fix(c["element"], c["source"], cond, loop_driven)
                 out.append(Finding("GC301", "warning",
                                    f"{c['element']} puts {c['dbv']:.1f} dBV of {c['source']} hum and buzz at the {ch} "
                                    f"output ({c['share_pct']:.0f} % of the channel's total)",
@@ -141,6 +140,26 @@ def rule_hum(s: Solved) -> list[Finding]:
                                loc, (str(row["from"]), row["to"]), {"crosstalk_db": row["db"]},
                                "give each channel its own return to the star; join the channels at one point only"))
     return out
+
+
+def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
+    """What to do about a conductor that carries a hum source's current to a stage (GC301)."""
+    if cond is not None and cond.role == "protective":
+        return (f"the drop along protective conductor {element} reaches the stage through a loop: break the loop on "
+                "the signal side (balanced interconnect or ground-lift network); never lift the protective earth")
+    if source in loop_driven and cond is not None and cond.kind == "interconnect":
+        if cond.balanced:
+            return (f"{source} drives current round the loop along the shield of {element}: land the shield on the "
+                    "chassis where it enters at both ends ('shield-to chassis'), so that it stays out of the signal "
+                    "grounds; never lift the protective earth")
+        return (f"{source} drives current round the loop along the shield of {element}: use a balanced interconnect "
+                "(its shield on the chassis where it enters), or a ground-lift network on the signal side; never lift "
+                "the protective earth")
+    if source in loop_driven:
+        return (f"{source} drives current round a loop through {element}, between an interconnect's shield and the "
+                "protective earth: land that shield on the chassis where it enters ('shield-to chassis'), or break the "
+                "loop on the signal side; never lift the protective earth")
+    return f"move the {source} current off {element}: give it a return path of its own"
 
 
 def _audible(ch: str, h, loc) -> Finding:
