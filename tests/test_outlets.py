@@ -243,3 +243,12 @@ def test_the_live_view_shows_the_installation_tables():
     st = live_state(analyze(load(ROOM)), None, None, None, {}, 0.1)
     panel = st["sections"]["protective"]
     assert 'id="device-earths"' in panel and 'id="outlet-voltages"' in panel and "12.7 mV" in panel
+
+
+def test_an_installation_without_positions_is_drawn_as_the_whole_system(cli, tmp_path):
+    plan = tmp_path / "two.gplan"
+    plan.write_text(TWO_OUTLETS.format(supply="supply 120 V 60 Hz", cores="L-N-PE", leak="", ends="terminated both"))
+    code, _, err = cli("draw", str(plan), "-o", str(tmp_path / "two.svg"))
+    assert code == 0 and "wrote the physical view" in err and "topology view" not in err
+    svg = (tmp_path / "two.svg").read_text()
+    assert all(name in svg for name in ("mixer", "amp", "wall_a", "wall_b", "met", "run_b", "link"))

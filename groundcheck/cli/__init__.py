@@ -281,7 +281,7 @@ def cmd_export(args) -> int:
 def cmd_draw(args) -> int:
     from ..analysis import Options, analyze
     from ..renderers.drawing import render_dot
-    from ..renderers.dot import physical_dot, physical_omissions, topology_dot
+    from ..renderers.dot import has_physical_view, physical_dot, physical_omissions, topology_dot
     to_stdout = args.output == "-"
     out = Path(args.output)
     fmt = args.as_format or ("svg" if to_stdout else out.suffix.lower().lstrip("."))
@@ -291,8 +291,7 @@ def cmd_draw(args) -> int:
     fmt = "dot" if fmt == "gv" else fmt
     plan = load_plan(args.plan)
     result = analyze(plan, Options(hum=False))
-    has_pos = any(p.pos is not None for p in plan.points)
-    view = args.view if (args.view == "topology" or has_pos) else "topology"
+    view = args.view if (args.view == "topology" or has_physical_view(plan)) else "topology"
     source = physical_dot(result) if view == "physical" else topology_dot(result)
     data, how = render_dot(source, fmt, "neato" if view == "physical" else "dot", args.renderer)
     if to_stdout:

@@ -91,9 +91,11 @@ class LiveView:
         self._say(status_line(result, seconds))
 
     def _drawings(self, result):
-        """Both drawings as SVG text (None for one that cannot be drawn; no physical view without positions)."""
+        """Both drawings as SVG text (None for one that cannot be drawn: no physical view without positions or
+        devices)."""
+        from ..renderers.dot import has_physical_view
         from ..renderers.formats import both_views
-        views, _ = both_views(result, self.renderer, physical=any(p.pos is not None for p in result.plan.points))
+        views, _ = both_views(result, self.renderer, physical=has_physical_view(result.plan))
         return tuple(None if v is None else v[0].decode("utf-8") for v in views)
 
     def _publish(self, state: dict) -> None:

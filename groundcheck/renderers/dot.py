@@ -26,7 +26,12 @@ from .dotbase import (DRAWING_CAUTION, LIFT_STYLE, LOOP_HALO, PROBLEM_HALO, ROLE
                       dot_quote, element_class, legend as _legend, problems as _problems)
 from .system import system_dot
 
-__all__ = ["physical_dot", "topology_dot", "dot_quote", "element_class", "ROLE_STYLE"]
+__all__ = ["physical_dot", "topology_dot", "dot_quote", "element_class", "ROLE_STYLE", "has_physical_view"]
+
+
+def has_physical_view(plan) -> bool:
+    """Whether the plan can be drawn physically: it places devices (the system view) or gives positions."""
+    return bool(plan.devices) or any(p.pos is not None for p in plan.points)
 
 
 def physical_dot(result: Result) -> str:

@@ -89,9 +89,12 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
                            style="green" if ok else "bold red"))
     elif plan.mains is None and result.device_earths:
         broken = [d for d in result.device_earths if d.resistance is None or d.resistance > 1.0]
-        console.print(Text(f"Protective earth: installation — {len(result.device_earths)} devices' earth paths to the "
-                           f"main earthing terminal, {len(broken)} broken or over 1 Ω (each device's own wiring is "
-                           "checked with its own plan)", style="bold red" if broken else "green"))
+        n = len(result.device_earths)
+        paths = "1 device's earth path" if n == 1 else f"{n} devices' earth paths"
+        console.print(Text(f"Protective earth: installation — {paths} to the main earthing terminal, "
+                           f"{len(broken)} broken or over 1 Ω "
+                           "(each device's own wiring is checked with its own plan)",
+                           style="bold red" if broken else "green"))
     elif plan.mains is None:
         console.print(Text("Protective earth: no mains statement, not checked", style="dim"))
     if result.hum is not None:

@@ -51,7 +51,12 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     out = []
     for row in s.coupling:
         via_ic = [x for x in row.shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
-        if via_ic:
+        if via_ic and all(plan_conductors[x].balanced for x in via_ic):
+            fix = (f"the current reaches the stage along the shield of {', '.join(via_ic)}, which the balanced "
+                   "input rejects by its common-mode rejection (the hum budget gives what is left); if it is heard, "
+                   "use an input of better rejection or a ground-lift network on the signal side; never lift the "
+                   "protective earth")
+        elif via_ic:
             fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
                    "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
         elif row.kind == "current" and row.source in leak:
