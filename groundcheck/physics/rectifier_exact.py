@@ -65,6 +65,9 @@ class _Model:
         self.nvt, self.drop, self.nd = nd * SHOCKLEY_N * THERMAL_VOLTAGE, nd * r.diode_drop, nd
         self.lh = r.leakage / h
         self.r = r
+        self.m, self.n, self.k = self.M.tolist(), self.N.tolist(), self.K.tolist()
+        self.n0, self.rows = self.n[0], range(len(self.n))
+        self.linear = not (self.shockley or self.valve) and self.lh == 0
 
     def vd(self, x: float) -> float:
         if self.valve:
@@ -79,16 +82,24 @@ class _Model:
     def residual(self, x: float, i0: float, d0: float, s1: float, base: float) -> tuple[float, float]:
         """The step's equation in the end current x, and its slope: the inductor's trapezoidal rule, or with no
         leakage the winding's own equation (its drive across R, diode and reservoir is zero)."""
-        c = self.N[0]
+        c = self.n0
         drive = s1 - self.rt * x - self.vd(x) - (base + c * x)
         slope = self.rt + self.dvd(x) + c
         if self.lh > 0:
             return self.lh * (x - i0) - 0.5 * (d0 + drive), self.lh + 0.5 * slope
         return -drive, slope
 
-    def step(self, i0: float, x0: np.ndarray, s0: float, s1: float) -> tuple[float, np.ndarray]:
-        free = self.M @ x0 + self.N * i0 + self.K
+    def step(self, i0: float, x0: list, s0: float, s1: float) -> tuple[float, list]:
+        """One time step in plain floats (the state is one to three numbers: numpy's per-call cost would be most
+        of the work): the end current and the end state."""
+        M, N, K, rows = self.m, self.n, self.k, self.rows
+        free = [sum(M[r][c] * x0[c] for c in rows) + N[r] * i0 + K[r] for r in rows]
         base = free[0]
+        if self.linear:
+            # constant-drop diodes, no leakage: the equation is linear in x (the root Newton's iteration would find)
+            num = s1 - self.drop - base
+            x = num / (self.rt + self.n0) if num > 0.0 else 0.0
+            return x, [free[r] + N[r] * x for r in rows]
         d0 = (s0 - self.rt * i0 - self.vd(i0) - x0[0]) if i0 > 0 else 0.0     # inductor voltage at the start
         x = 0.0
         if self.residual(0.0, i0, d0, s1, base)[0] < 0.0:             # else the diodes block
@@ -101,18 +112,21 @@ class _Model:
                 x = x_new
                 if done:
                     break
-        return x, free + self.N * x
+        return x, [free[r] + N[r] * x for r in rows]
 
     def period(self, s: np.ndarray, x0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """One period from state x0 and zero winding current: states (n+1 × dim) and currents (n+1)."""
         n = len(s)
-        xs = np.empty((n + 1, len(x0)))
-        i = np.zeros(n + 1)
-        xs[0] = x0
-        s_ext = np.append(s, s[0])
+        src = s.tolist()
+        src.append(src[0])
+        xs = [np.asarray(x0, dtype=float).tolist()]
+        cur = [0.0] * (n + 1)
+        x, i = xs[0], 0.0
         for k in range(n):
-            i[k + 1], xs[k + 1] = self.step(i[k], xs[k], s_ext[k], s_ext[k + 1])
-        return xs, i
+            i, x = self.step(i, x, src[k], src[k + 1])
+            xs.append(x)
+            cur[k + 1] = i
+        return np.array(xs), np.array(cur)
 
 
 def _start(r: Rectifier, peak: float) -> np.ndarray:
