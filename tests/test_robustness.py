@@ -382,10 +382,10 @@ def test_regression_point_on_a_broken_metal_part():
 
 # --- the extreme-value grid and token mutants, sampled (the full runs: benchmarks/fuzz_campaign.py) ------------
 
-def _survives(text: str, name: str) -> None:
+def _survives(text: str, name: str, root=None) -> None:
     """A plan ends in a result with finite figures or in located errors; nothing else."""
     try:
-        out = render_json(analyze(load_text(text, name)))
+        out = render_json(analyze(load_text(text, name, root=root)))
     except PlanErrors as e:
         assert all(": error: " in err.one_line() and err.location.line >= 1 for err in e.errors)
         return
@@ -409,3 +409,16 @@ def test_token_mutants_sampled(path):
     from planfuzz import token_mutants
     for text in token_mutants(path.read_text(), 150, seed=3):
         _survives(text, path.name)
+
+
+#: an installation with device plans of its own (found beside it), sampled more lightly: each case places them
+ROOM = ROOT / "examples" / "studio" / "recording-room.gplan"
+
+
+def test_an_installations_extreme_values_and_token_mutants_sampled():
+    import random
+    from planfuzz import extreme_variants, token_mutants
+    text = ROOM.read_text()
+    cases = [t for _d, t in random.Random(13).sample(list(extreme_variants(text)), 40)]
+    for t in cases + list(token_mutants(text, 40, seed=17)):
+        _survives(t, str(ROOM), ROOM.parent)
