@@ -252,3 +252,24 @@ def test_an_installation_without_positions_is_drawn_as_the_whole_system(cli, tmp
     assert code == 0 and "wrote the physical view" in err and "topology view" not in err
     svg = (tmp_path / "two.svg").read_text()
     assert all(name in svg for name in ("mixer", "amp", "wall_a", "wall_b", "met", "run_b", "link"))
+
+
+def test_compare_shows_the_outlet_voltage_change_of_a_cable_with_its_protective_core_in_the_middle(cli, tmp_path):
+    """The same room with the rack circuit's cable laid L-PE-N: no EMF along its protective core, so only the
+    leakage drops remain between the outlets and the monitors' hum falls by more than 40 dB."""
+    after = tmp_path / "l-pe-n.gplan"
+    after.write_text(ROOM.read_text().replace("cores L-N-PE, load 10 A", "cores L-PE-N, load 10 A")
+                     .replace('library "devices"', f'library "{ROOM.parent / "devices"}"'))
+    code, out, _ = cli("compare", str(ROOM), str(after))
+    cli("compare", str(ROOM), str(after), "--format", "html", "-o", str(tmp_path / "c.html"))
+    page = (tmp_path / "c.html").read_text()
+    assert 'id="outlet-voltages"' in page and "12.7 mV" in page
+    line = next(x for x in out.splitlines() if x.startswith("Outlet voltage across desk_out"))
+    # by hand, from annealed copper's 1.7241e-8 Ω·m (IEC 60028) at 20 °C: the monitors' 0.15896 mA over the strip cord
+    # (1.5 m of 1 mm², 25.862 mΩ) and the rack cable (25 m of 2.5 mm², 172.41 mΩ) gives 31.52 µV; the desk's 0.33961 mA
+    # (230 V × 2π·50 Hz × 4.7 nF) over its cable (12 m of 2.5 mm², 82.757 mΩ) 28.11 µV; in power 42.23 µV.  The
+    # cables' reactance at 50 Hz adds under 1 %.
+    before, after_mv = line.split("unplugged ")[1].split(" mV")[0].split(" → ")
+    assert before == "12.7" and float(after_mv) * 1e-3 == pytest.approx(42.23e-6, rel=0.01)
+    hum = next(x for x in out.splitlines() if x.startswith("Hum, monitors:"))
+    assert float(hum.split("(")[1].split(" dB")[0]) < -40

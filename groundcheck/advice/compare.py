@@ -1,4 +1,5 @@
-"""Before/after comparison of two analyses: findings, loops, hum per harmonic, protective earth."""
+"""Before/after comparison of two analyses: findings, loops, hum per harmonic, protective earth, and an installation's
+outlet-pair voltages."""
 
 from __future__ import annotations
 
@@ -59,7 +60,18 @@ def compare(before: Result, after: Result) -> dict:
         "loops": {"removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
                   "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
                   "total_before": before.loop_total, "total_after": after.loop_total},
-        "hum": hum, "protective_earth": pe})
+        "hum": hum, "protective_earth": pe, "outlets": _outlets(before, after)})
+
+
+def _outlets(before: Result, after: Result) -> list[dict]:
+    """Each interconnect's outlet-pair voltage, unplugged and as planned, before and after (installations)."""
+    ob = {p.interconnect: p for p in (before.outlets.pairs if before.outlets else ())}
+    oa = {p.interconnect: p for p in (after.outlets.pairs if after.outlets else ())}
+    return [{"interconnect": k, "between": f"{(oa.get(k) or ob[k]).a} – {(oa.get(k) or ob[k]).b}",
+             "unplugged_before_v": ob[k].open_total if k in ob else None,
+             "unplugged_after_v": oa[k].open_total if k in oa else None,
+             "planned_before_v": ob[k].planned_total if k in ob else None,
+             "planned_after_v": oa[k].planned_total if k in oa else None} for k in sorted(set(ob) | set(oa))]
 
 
 def _f(x, fmt):
@@ -91,6 +103,11 @@ def compare_text(d: dict) -> str:
         out.append(f"Protective path to {p['part']}: {_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
                    f"{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')} mΩ; touch voltage "
                    f"{_f(p['touch_before_v'], '{:.3g}')} → {_f(p['touch_after_v'], '{:.3g}')} V")
+    for o in d.get("outlets", []):
+        mv = (lambda v: _f(None if v is None else v * 1e3, "{:.3g}"))  # noqa: E731
+        out.append(f"Outlet voltage across {o['interconnect']} ({o['between']}): unplugged "
+                   f"{mv(o['unplugged_before_v'])} → {mv(o['unplugged_after_v'])} mV, as planned "
+                   f"{mv(o['planned_before_v'])} → {mv(o['planned_after_v'])} mV")
     return "\n".join(out) + "\n"
 
 

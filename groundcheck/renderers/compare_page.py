@@ -8,6 +8,7 @@ from __future__ import annotations
 import math
 from html import escape
 
+from ..core.units import format_si
 from ..core.version import __version__
 from ..rules.catalogue import SEVERITIES
 from ..rules.results import Result
@@ -115,6 +116,15 @@ def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None 
                      f"<td class=num>{_f(p['touch_before_v'], '{:.3g} V')}</td>"
                      f"<td class=num>{_f(p['touch_after_v'], '{:.3g} V')}</td></tr>")
     parts.append("</table>")
+    if d.get("outlets"):
+        parts.append('<h2>Voltage between the outlets each interconnect joins</h2><table id="outlet-voltages"><tr>'
+                     "<th>interconnect</th><th>between</th><th>unplugged before</th><th>after</th>"
+                     "<th>as planned before</th><th>after</th></tr>")
+        for o in d["outlets"]:
+            cells = "".join(f"<td class=num>{'–' if o[k] is None else format_si(o[k], 'V')}</td>"
+                            for k in ("unplugged_before_v", "unplugged_after_v", "planned_before_v", "planned_after_v"))
+            parts.append(f"<tr><td>{e(o['interconnect'])}</td><td>{e(o['between'])}</td>{cells}</tr>")
+        parts.append("</table>")
     if drawings:
         parts.append('<h2>Physical drawings</h2><div style="display:flex;gap:1em;flex-wrap:wrap">'
                      f'<div class="drawing" id="before" style="flex:1 1 400px"><h3>before</h3>'
