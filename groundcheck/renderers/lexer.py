@@ -22,7 +22,8 @@ ATTRIBUTE_WORDS = ("protective", "return", "signal", "shield", "bond", "to", "at
                    "class", "breaking", "speaker", "speakers", "headphones", "per", "room-gain", "background",
                    "distance", "impedance", "output", "amp-gain", "wiring", "spacing", "twisted", "reference",
                    "floating", "ac", "dc", "plugged", "simple", "signal-ground", "mirror", "as", "lift", "open",
-                   "closed", "contact", "resistance", "width", "thickness", "library")
+                   "closed", "contact", "resistance", "width", "thickness", "library", "cores", "shield-to", "chassis",
+                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round")
 
 
 class PlanLexer(RegexLexer):
