@@ -314,16 +314,16 @@ def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -
     mags = np.abs(shares)
     cand = np.flatnonzero(carrying)
     total = mags[cand].sum()
-    if len(cand) > 64:          # the few largest decide; the full sort only when they do not reach 90 %
-        first = np.sort(cand[np.argpartition(-mags[cand], 63)[:64]])
-        if mags[first].sum() >= 0.9 * total:
-            cand = first
-    idx = list(cand[np.argsort(-mags[cand], kind="stable")])
-    shared, acc = [], 0.0
-    for b in idx:
-        if owners[b] not in shared:
-            shared.append(owners[b])
-        acc += abs(shares[b])
-        if acc >= 0.9 * total or len(shared) >= 5:
+    # the largest 64 nearly always decide (five owners, or 90 %): the full sort only when they do not
+    first = np.sort(cand[np.argpartition(-mags[cand], 63)[:64]]) if len(cand) > 64 else cand
+    for pool in (first, cand):
+        shared, acc = [], 0.0
+        for b in pool[np.argsort(-mags[pool], kind="stable")]:
+            if owners[b] not in shared:
+                shared.append(owners[b])
+            acc += mags[b]
+            if acc >= 0.9 * total or len(shared) >= 5:
+                return tuple(shared)
+        if len(pool) == len(cand):
             break
     return tuple(shared)
