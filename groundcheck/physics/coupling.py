@@ -315,7 +315,7 @@ def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -
     cand = np.flatnonzero(carrying)
     total = mags[cand].sum()
     # the largest 64 nearly always decide (five owners, or 90 %): the full sort only when they do not
-    first = np.sort(cand[np.argpartition(-mags[cand], 63)[:64]]) if len(cand) > 64 else cand
+    first = cand[mags[cand] >= -np.partition(-mags[cand], 63)[63]] if len(cand) > 64 else cand   # ties kept
     for pool in (first, cand):
         shared, acc = [], 0.0
         for b in pool[np.argsort(-mags[pool], kind="stable")]:

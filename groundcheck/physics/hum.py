@@ -301,8 +301,12 @@ class _Budget:
         for si, s in enumerate(active):
             if s.kind == "rectifier" and abs(f - 2 * self.f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
                 I = both.I[:, si]
-                sig = np.flatnonzero(np.abs(I) > 1e-3 * abs(s.parts[f]))
-                sig = sig[np.argsort(-np.abs(I[sig]), kind="stable")][:NETWORK_ROWS]
+                mags = np.abs(I)
+                sig = np.flatnonzero(mags > 1e-3 * abs(s.parts[f]))
+                if len(sig) > NETWORK_ROWS:       # those down to the row limit's value (ties kept), not every branch
+                    cut = -np.partition(-mags[sig], NETWORK_ROWS - 1)[NETWORK_ROWS - 1]
+                    sig = sig[mags[sig] >= cut]
+                sig = sig[np.argsort(-mags[sig], kind="stable")][:NETWORK_ROWS]
                 part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
                                      "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
                                                      "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
