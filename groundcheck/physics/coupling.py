@@ -266,8 +266,11 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     transfer = _transfers(circuit, fac, sources, stages)
     pairs = np.argwhere(transfer > 1e-6)
     if len(pairs) > MAX_SHARED_ROWS:
-        order = np.argsort(-transfer[pairs[:, 0], pairs[:, 1]], kind="stable")[:MAX_SHARED_ROWS]
-        pairs = pairs[np.sort(order)]
+        # the strongest rows: all above the cut, then those at it in order (as a stable sort would keep them)
+        vals = transfer[pairs[:, 0], pairs[:, 1]]
+        cut = -np.partition(-vals, MAX_SHARED_ROWS - 1)[MAX_SHARED_ROWS - 1]
+        above, at = np.flatnonzero(vals > cut), np.flatnonzero(vals == cut)
+        pairs = pairs[np.sort(np.concatenate([above, at[:MAX_SHARED_ROWS - len(above)]]))]
     # test currents only for the stages that share (not one column for every stage of a large installation)
     need = sorted({int(k) for k, _ in pairs})
     column = {k: i for i, k in enumerate(need)}

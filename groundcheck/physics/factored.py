@@ -41,7 +41,7 @@ class Factored:
         n1, n2, *_ = self.circuit._arrays
         n = len(self.circuit.nodes)
         y = self.y
-        J = np.array(injections, dtype=complex).reshape(n, -1).copy()
+        J = np.array(injections, dtype=complex).reshape(n, -1)        # a copy: an EMF adds to it below
         k = J.shape[1]
         if emf is not None:
             emf = np.asarray(emf, dtype=complex).reshape(len(y), k)

@@ -158,8 +158,11 @@ def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float
     else:
         plan_f, _ = _pair_volts(circuit, sources, pairs, freqs)
     roles = {c.name: c.role for c in plan.currents}
+    many = open_s.shape[1] > MAX_DRIVERS
+    cuts = -np.partition(-open_s, MAX_DRIVERS - 1, axis=1)[:, MAX_DRIVERS - 1] if many else None
     for k, ((a, b), name) in enumerate(zip(pairs, names)):
-        order = np.argsort(-open_s[k], kind="stable")[:MAX_DRIVERS]
+        cand = np.flatnonzero(open_s[k] >= cuts[k]) if many else np.arange(open_s.shape[1])   # ties at the cut kept
+        order = cand[np.argsort(-open_s[k, cand], kind="stable")][:MAX_DRIVERS]
         drivers = tuple((sources[i].name, roles.get(sources[i].name, sources[i].kind), float(open_s[k, i]))
                         for i in order if open_s[k, i] > 1e-6 * max(open_s[k].max(), 1e-300))
         out.pairs.append(OutletPair(name, a, b, {f: float(v[k]) for f, v in open_f.items()},
