@@ -250,6 +250,7 @@ def test_an_installation_without_positions_is_drawn_as_the_whole_system(cli, tmp
     plan.write_text(TWO_OUTLETS.format(supply="supply 120 V 60 Hz", cores="L-N-PE", leak="", ends="terminated both"))
     code, _, err = cli("draw", str(plan), "-o", str(tmp_path / "two.svg"))
     assert code == 0 and "wrote the physical view" in err and "topology view" not in err
+    assert "note: devices are drawn as boxes; a device's own wiring is in the drawing of its own plan" in err
     svg = (tmp_path / "two.svg").read_text()
     assert all(name in svg for name in ("mixer", "amp", "wall_a", "wall_b", "met", "run_b", "link"))
 

@@ -303,10 +303,12 @@ def cmd_draw(args) -> int:
     note = "" if view == args.view else " (the plan has no positions: topology view)"
     sys.stderr.write(f"groundcheck: wrote the {view} view to {'standard output' if to_stdout else out} with "
                      f"{how}{note}\n")
-    missing = physical_omissions(result) if view == "physical" else (0, 0)
-    if any(missing):
+    if any(missing := physical_omissions(result) if view == "physical" else (0, 0)):
         sys.stderr.write(f"groundcheck: note: the physical view leaves out {missing[0]} points and {missing[1]} "
                          "conductors that have no positions; --view topology shows every one\n")
+    if view == "physical" and plan.devices:   # an installation: its devices as boxes
+        sys.stderr.write("groundcheck: note: devices are drawn as boxes; a device's own wiring is in the drawing of "
+                         "its own plan, and --view topology shows every element\n")
     return 0
 
 
