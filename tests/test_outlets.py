@@ -146,6 +146,13 @@ def test_the_recording_room_reports_outlet_voltages_from_its_loads_and_leakage_w
     # leakage drops (tens of µV, in quadrature) add under 0.01 %
     assert p.open_total == pytest.approx(math.hypot(10.88793e-3, 6.532758e-3), rel=1e-3)
     assert {d[0] for d in p.drivers} == {"run_rack.induced", "monitors.leakage", "desk.leakage"}
+    # each leakage's own drop, by hand from annealed copper's 1.7241e-8 Ω·m (IEC 60028) at 20 °C: the monitors'
+    # 230 V × 2π·50 Hz × 2.2 nF = 0.15896 mA over the strip cord (1.5 m of 1 mm², 25.862 mΩ) and the rack cable (25 m
+    # of 2.5 mm², 172.41 mΩ) is 31.52 µV; the desk's 0.33961 mA (4.7 nF) over its cable (12 m, 82.757 mΩ) 28.11 µV
+    # (the cables' reactance at 50 Hz adds under 1 %)
+    volts = {name: v for name, _, v in p.drivers}
+    assert volts["monitors.leakage"] == pytest.approx(31.52e-6, rel=0.01)
+    assert volts["desk.leakage"] == pytest.approx(28.11e-6, rel=0.01)
 
 
 def test_a_shield_landed_on_the_signal_ground_is_found_and_landing_it_on_the_chassis_removes_its_hum():
@@ -274,3 +281,11 @@ def test_compare_shows_the_outlet_voltage_change_of_a_cable_with_its_protective_
     assert before == "12.7" and float(after_mv) * 1e-3 == pytest.approx(42.23e-6, rel=0.01)
     hum = next(x for x in out.splitlines() if x.startswith("Hum, monitors:"))
     assert float(hum.split("(")[1].split(" dB")[0]) < -40
+
+
+def test_an_attribute_of_another_kind_is_named_with_its_article():
+    text = ('plan "x"\npoint a: outlet\npoint b: outlet\ninterconnect i: a to b, 1 m, 0.1 mm2,\n'
+            '    in ub\n')
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "x.gplan")
+    assert "x.gplan:5:5: error: in is an attribute of a core, not of an interconnect" in str(e.value)

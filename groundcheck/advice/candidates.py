@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 
-from ..language.installation import shield_ends
+from ..model.installation import shield_ends
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT, Plan
 from ..rules.results import Result

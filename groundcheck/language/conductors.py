@@ -106,14 +106,18 @@ def conductor(stmt: Statement):
             kw["material"] = material(r.word())
         elif first.kind == "word" and first.value in named:
             if _ONLY.get(first.value, kind) != kind:
-                raise PlanError(f"{first.value} is an attribute of a{'n' if _ONLY[first.value][0] in 'aeiou' else ''} "
-                                f"{_ONLY[first.value]}, not of a {kind}", first.loc, _HINTS[first.value])
+                raise PlanError(f"{first.value} is an attribute of {_a(_ONLY[first.value])}, not of {_a(kind)}",
+                                first.loc, _HINTS[first.value])
             _named(r, r.word(), kw, a, b)
         else:
             raise unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
         r.finish()
     _check_geometry(stmt, kind, kw)
     return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+def _a(word: str) -> str:
+    return ("an " if word[0] in "aeiou" else "a ") + word
 
 
 _HINTS = {"load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",

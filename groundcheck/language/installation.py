@@ -9,14 +9,14 @@ protective wiring (for class II equipment, through whatever earths its signal gr
 from __future__ import annotations
 
 import math
-from collections import deque
 from dataclasses import replace
 
 from ..core.errors import PlanError
-from ..model.records import PE_POINT, Conductor, Current, Device, Metal
+from ..model.installation import conductors_by_device, device_chassis, device_of, shield_ends
+from ..model.records import PE_POINT, Conductor, Current, Device
 
-__all__ = ["DEFAULT_Y_CAPACITANCE", "VOLTAGE_TOLERANCE", "check_supplies", "leakage_currents", "device_of",
-           "device_chassis", "land_shields", "shield_ends", "check_bundles"]
+__all__ = ["DEFAULT_Y_CAPACITANCE", "VOLTAGE_TOLERANCE", "check_supplies", "leakage_currents", "land_shields",
+           "check_bundles"]
 
 #: a simple device's line-to-chassis capacitance when not stated, F, by protection class: class I equipment's
 #: mains filter has Y capacitors of 1–4.7 nF from line to earth (2.2 nF taken); a class II switch-mode supply
@@ -87,51 +87,10 @@ def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict
     return out
 
 
-def device_of(point: str, devices: dict) -> str | None:
-    """The placed device a point belongs to (its name's prefix), or None."""
-    head = point.split(".", 1)[0]
-    return head if "." in point and head in devices else None
-
-
-def device_chassis(dev: str, conductors: list[Conductor], metals: dict, near: str | None = None) -> str | None:
-    """A device's chassis: the metal part of the device nearest to ``near`` (fewest conductors, over the device's
-    own conductors), else the one its inlet's protective terminal reaches first (a simple device's
-    ``NAME.chassis``)."""
-    adj: dict = {}
-    for c in conductors:
-        if c.name.startswith(dev + ".") and c.kind not in ("interconnect", "lift") and c.connects:
-            adj.setdefault(c.a, []).append(c.b)
-            adj.setdefault(c.b, []).append(c.a)
-    for start in ((near,) if near else ()) + (f"{dev}.{PE_POINT}",):
-        seen, todo = {start}, deque([start])
-        while todo:
-            node = todo.popleft()
-            if node in metals and isinstance(metals[node], Metal) and node.startswith(dev + "."):
-                return node
-            for n in adj.get(node, ()):
-                if n not in seen:
-                    seen.add(n)
-                    todo.append(n)
-    return None
-
-
-def shield_ends(c: Conductor) -> tuple[str, str]:
-    """Where each end of an interconnect's shield lands: as stated, else on the chassis at the entry for a
-    balanced link (AES48-2005, from memory: a shield terminates on the enclosure where it enters) and on the
-    signal ground for an unbalanced one (its shield is the signal return)."""
-    if c.shield_ends is not None:
-        return c.shield_ends
-    return ("chassis", "chassis") if c.balanced else ("signal", "signal")
-
-
 def land_shields(conductors: list[Conductor], devices: dict, metals: dict, errors: list) -> list[Conductor]:
     """Each interconnect with its shield's ends moved to the device chassis where they land on it (the receiving
     input still reads between the two signal grounds it names)."""
-    own: dict = {}
-    for c in conductors:
-        dev = device_of(c.name, devices)
-        if dev is not None:
-            own.setdefault(dev, []).append(c)
+    own = conductors_by_device(conductors, devices)
     out = []
     for c in conductors:
         if c.kind == "interconnect":

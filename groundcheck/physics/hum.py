@@ -116,9 +116,7 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     References:
         ISO 226:2003 (threshold); reciprocity (Penfield, Spence, Duinker, 1970); Faraday's law.
     """
-    b = _Budget(plan, circuit, loops, rectifier_results, options)
-    b.probe_a = np.array([circuit.point_node[x] for x, _ in probes], dtype=int)
-    b.probe_b = np.array([circuit.point_node[y] for _, y in probes], dtype=int)
+    b = _Budget(plan, circuit, loops, rectifier_results, options, probes)
     merged = Merged(b)
     for f, part in zip(b.solve_at, map_frequencies(b.at_frequency, b.solve_at, jobs)):
         merged.add(f, part)
@@ -162,8 +160,10 @@ def _spot_at(spots: list, p) -> int | None:
 class _Budget:
     """What every frequency's solve needs, set up once: sources, stages, tests, loop fluxes, frequencies."""
 
-    def __init__(self, plan, circuit, loops, rectifier_results: dict, options: HumOptions):
+    def __init__(self, plan, circuit, loops, rectifier_results: dict, options: HumOptions, probes=()):
         self.plan, self.circuit, self.loops = plan, circuit, loops
+        self.probe_a = np.array([circuit.point_node[x] for x, _ in probes], dtype=int)
+        self.probe_b = np.array([circuit.point_node[y] for _, y in probes], dtype=int)
         f0 = self.f0 = plan.frequency
         sources = plan_sources(plan, rectifier_results, options.max_frequency, circuit)
         self.hum_sources = [s for s in sources if s.kind != "signal"]

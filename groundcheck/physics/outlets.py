@@ -19,6 +19,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..model.installation import device_of
 from .coupling import plan_sources, source_injections
 
 __all__ = ["OutletPair", "OutletVoltages", "outlet_voltages", "outlet_pairs", "MAX_DRIVERS"]
@@ -57,12 +58,6 @@ class OutletVoltages:
     pairs: list = field(default_factory=list)
     emfs: list = field(default_factory=list)
     notes: list = field(default_factory=list)
-
-
-def _plug(point: str, devices: dict) -> str | None:
-    head = point.split(".", 1)[0]
-    dev = devices.get(head) if "." in point else None
-    return dev.plugged if dev is not None else None
 
 
 def _pair_volts(circuit, sources, pairs, freqs) -> tuple[dict, dict]:
@@ -108,7 +103,7 @@ def outlet_pairs(plan) -> tuple[list, list]:
     for c in plan.conductors:
         if c.kind != "interconnect":
             continue
-        ends = [_plug(x, devices) for x in (c.a, c.b)]
+        ends = [devices[d].plugged if (d := device_of(x, devices)) else None for x in (c.a, c.b)]
         if None in ends or ends[0] == ends[1]:
             continue
         pairs.append((ends[0], ends[1]))

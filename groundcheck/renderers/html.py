@@ -17,7 +17,7 @@ from ..rules.catalogue import SEVERITIES
 from ..physics.hearing import threshold_of_hearing
 from ..core.caution import CAUTION
 from ..core.units import format_si
-from .text import figure_words
+from .text import driver_words, figure_words
 
 __all__ = ["html_report", "spectrum_svg", "chart_frame", "plan_line_html"]
 
@@ -277,10 +277,9 @@ def _installation_section(result: Result, parts: list[str], e=escape) -> None:
         parts.append('<table id="outlet-voltages"><tr><th>interconnect</th><th>between</th><th>unplugged</th>'
                      "<th>as planned</th><th>drivers (unplugged)</th></tr>")
         for p in o.pairs:
-            drivers = "; ".join(f"{n} {format_si(v, 'V')}" for n, _, v in p.drivers) or "none"
             parts.append(f"<tr><td>{e(p.interconnect)}</td><td>{e(p.a)} – {e(p.b)}</td>"
                          f"<td class=num>{format_si(p.open_total, 'V')}</td>"
-                         f"<td class=num>{format_si(p.planned_total, 'V')}</td><td>{e(drivers)}</td></tr>")
+                         f"<td class=num>{format_si(p.planned_total, 'V')}</td><td>{e(driver_words(p))}</td></tr>")
         parts.append("</table>")
     if o is not None:
         for c, f, emf, m in o.emfs:

@@ -10,6 +10,7 @@ touched by a finding is outlined red with its codes.  A device's own wiring is d
 
 from __future__ import annotations
 
+from ..model.installation import device_of
 from ..rules.results import Result
 from .dotbase import LOOP_HALO, PROBLEM_HALO, ROLE_STYLE, attrs as _attrs, dot_quote, element_class
 from .dotbase import legend as _legend, problems as _problems
@@ -106,12 +107,13 @@ def box_width(d, codes=()) -> float:
 
 def _device_marks(plan, marks: dict) -> dict:
     """Finding codes per device: those of its own elements."""
+    devices = {d.name for d in plan.devices}
     out: dict = {}
-    for d in plan.devices:
-        codes = sorted({code for name, cs in marks.items() if name.startswith(d.name + ".") for code in cs})
-        if codes:
-            out[d.name] = codes
-    return out
+    for name, codes in marks.items():
+        dev = device_of(name, devices)
+        if dev is not None:
+            out.setdefault(dev, set()).update(codes)
+    return {dev: sorted(codes) for dev, codes in out.items()}
 
 
 #: interconnects run below the device boxes, each on a lane of its own (points below the boxes' centres)
@@ -121,25 +123,21 @@ LANE = 22.0
 
 def _lanes(plan, pos: dict) -> dict:
     """Each interconnect between two drawn boxes: its lane (index) and where it leaves each box (x offsets),
-    the ends of one box spread across its width so that no two run down the same line."""
+    the ends of one box spread across its width (one slot per end) so that no two run down the same line."""
     icons = [c for c in plan.conductors if c.kind == "interconnect"]
     devices = {d.name for d in plan.devices}
-    per_box: dict = {}
-    for c in icons:
-        for e in (c.a, c.b):
-            dev = _owner(e, devices)
-            if dev:
-                per_box.setdefault(dev, []).append(c.name)
+    ends = [[device_of(e, devices) for e in (c.a, c.b)] for c in icons]
+    slots: dict = {}
+    for pair in ends:
+        for dev in pair:
+            slots[dev] = slots.get(dev, 0) + 1
+    taken: dict = {}
     out = {}
-    for k, c in enumerate(icons):
+    for k, (c, pair) in enumerate(zip(icons, ends)):
         offs = []
-        for e in (c.a, c.b):
-            dev = _owner(e, devices)
-            names = per_box.get(dev, [c.name])
-            i = names.index(c.name) if c.name in names else 0
-            offs.append(-50 + 100 * (i + 0.5) / len(names))
-            if c.name in names:
-                names[i] = None               # an interconnect with both ends on one box takes two slots
+        for dev in pair:
+            i = taken[dev] = taken.get(dev, -1) + 1
+            offs.append(-50 + 100 * (i + 0.5) / slots[dev])
         out[c.name] = (k, offs)
     return out
 
@@ -157,11 +155,6 @@ def _lane(c, ends, style, label, lanes, pos, lines) -> None:
     lines.append(f"  {dot_quote(tb)} -- {dot_quote(ends[1])} [{_attrs(plain)}];")
     middle = dict(style, xlabel=label, fontcolor="#b00000" if "[" in label else "#333333")
     lines.append(f"  {dot_quote(ta)} -- {dot_quote(tb)} [{_attrs(middle)}];")
-
-
-def _owner(point: str, devices: dict) -> str | None:
-    head = point.split(".", 1)[0]
-    return head if "." in point and head in devices else None
 
 
 def _nodes(plan, pos: dict, marks: dict, dev_marks: dict, lines: list) -> None:
@@ -194,7 +187,7 @@ def _edges(result, pos: dict, marks: dict, lanes: dict, lines: list) -> None:
     devices = {d.name for d in plan.devices}
     loops = {e for lp in result.loops for e in lp.loop.edges}
     for c in plan.conductors:
-        ends = [e if e in pos else (f"device:{_owner(e, devices)}" if _owner(e, devices) else None) for e in (c.a, c.b)]
+        ends = [e if e in pos else (f"device:{d}" if (d := device_of(e, devices)) else None) for e in (c.a, c.b)]
         if None in ends or ends[0] == ends[1] or (not c.connects and c.kind != "interconnect"):
             continue
         style = dict(ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))

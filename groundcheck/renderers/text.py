@@ -234,6 +234,11 @@ def _protective_tables(result: Result, console: Console) -> None:
         console.print()
 
 
+def driver_words(pair) -> str:
+    """An outlet pair's drivers in words: 'run_rack.induced 12.7 mV; desk.leakage 28.2 µV'."""
+    return "; ".join(f"{n} {format_si(v, 'V')}" for n, _, v in pair.drivers) or "none"
+
+
 def _outlet_table(result: Result, console: Console) -> None:
     """Each outlet pair an interconnect spans: the voltage between their earths, unplugged and as planned."""
     o = result.outlets
@@ -244,9 +249,8 @@ def _outlet_table(result: Result, console: Console) -> None:
         for col in ("interconnect", "between", "unplugged", "as planned", "drivers (unplugged)"):
             t.add_column(col)
         for p in o.pairs:
-            drivers = "; ".join(f"{n} {format_si(v, 'V')}" for n, _, v in p.drivers) or "none"
             t.add_row(escape(p.interconnect), escape(f"{p.a} – {p.b}"), format_si(p.open_total, "V"),
-                      format_si(p.planned_total, "V"), escape(drivers))
+                      format_si(p.planned_total, "V"), escape(driver_words(p)))
         console.print(t)
     for c, f, e, m in o.emfs:
         console.print(f"  {escape(c)}: its load induces {format_si(e, 'V')} at {f:g} Hz along its protective core "

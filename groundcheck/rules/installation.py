@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from collections import deque
 
-from ..language.installation import device_chassis, device_of, shield_ends
+from ..model.installation import conductors_by_device, device_chassis, device_of, shield_ends
 from ..model.kinds import is_fastening
 from .catalogue import Finding
 from .context import AuditContext
@@ -76,11 +76,7 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
     if not devices:
         return []
     metals = {m.name: m for m in plan.metals}
-    own: dict = {}
-    for c in plan.conductors:
-        dev = device_of(c.name, devices)
-        if dev is not None:
-            own.setdefault(dev, []).append(c)
+    own = conductors_by_device(plan.conductors, devices)
     out = []
     for c in plan.conductors:
         if c.kind != "interconnect" or not c.connects:
