@@ -84,10 +84,11 @@ def test_the_page_follows_edits_errors_and_clicks(watched, tmp_path):
     plan, proc, port, browser = watched
     browser.wait_for("document.getElementById('badge').textContent === 'worst finding: fault'")
     assert browser.js("document.querySelectorAll('#physical svg, #topology svg').length") == 2
-    # hovering a finding marks its elements in both drawings and shows its plan line
-    browser.js("document.querySelector('tr.finding').dispatchEvent(new MouseEvent('mouseenter'))")
-    assert browser.js("document.querySelectorAll('#physical .hl').length") >= 1
-    assert browser.js("document.querySelectorAll('#topology .hl').length") >= 1
+    # hovering a finding marks its elements in both drawings and shows its plan line (hovered again until it holds:
+    # a state the server sends meanwhile, on a busy machine, redraws the page and clears the marks)
+    browser.wait_for("(document.querySelector('tr.finding').dispatchEvent(new MouseEvent('mouseenter')), "
+                     "document.querySelectorAll('#physical .hl').length >= 1 "
+                     "&& document.querySelectorAll('#topology .hl').length >= 1)")
     assert "head.gplan:" in browser.js("document.getElementById('planline').textContent")
     # clicking a conductor in the drawing shows its figures
     browser.js("document.querySelector('#physical g.edge.gc-k_5f_gnd').dispatchEvent(new MouseEvent('click'))")
