@@ -8,16 +8,18 @@ Every rule comes from the registry (:mod:`groundcheck.rules.registry`).
 from __future__ import annotations
 
 from dataclasses import replace
+from functools import partial
 
 from .core.runtime import no_gc
 from .model.records import Plan
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
-from .physics.hum import HumOptions, hum_budget
-from .physics.outlets import outlet_pairs, outlet_voltages
+from .physics.hum import HumBudget, HumOptions
+from .physics.outlets import OutletWork, outlet_pairs
 from .physics.protection import STANDARD_PE_LIMIT
 from .physics.rectifier import simulate
 from .physics.safety import installation_earths, protective_figures
+from .physics.sweep import run_tasks
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext
 from .rules.electrical import Solved
@@ -51,23 +53,46 @@ def _analyze(plan: Plan, options: Options) -> Result:
         return _finish(result)
     circuit = build_circuit(plan)
     result.circuit = circuit
-    result.coupling = shared_returns(plan, circuit)
     result.safety = protective_figures(plan, ctx.route, options.pe_limit, circuit)
     result.device_earths = installation_earths(plan, ctx.route, circuit)
     rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers} if options.hum else {}
     result.rectifiers = list(rr.values())
-    probes = outlet_pairs(plan)[0] if options.hum and plan.devices else []
-    if options.hum and plan.stages:
-        result.hum = hum_budget(plan, circuit, ctx.loops, rr,
-                                HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
-                                jobs=options.jobs, probes=probes)
-    if options.hum and plan.devices:
-        result.outlets = outlet_voltages(plan, circuit, rr, options.max_frequency,
-                                         result.hum.probes if result.hum is not None else None)
+    _solve(plan, ctx, circuit, rr, options, result)
     solved = Solved(plan, ctx, circuit, result.coupling, result.safety, result.device_earths, result.hum, options)
     for r in functions("solve"):
         findings.extend(r.func(solved))
     return _finish(result)
+
+
+def _solve(plan: Plan, ctx: AuditContext, circuit, rr: dict, options: Options, result: Result) -> None:
+    """The shared returns, the hum budget and the outlet voltages: their solves as one set of independent tasks,
+    so that with ``jobs`` > 1 the processes share all of them (the costliest first), not only the hum budget's
+    frequencies.  The results are the same for any number of processes."""
+    probes = outlet_pairs(plan)[0] if options.hum and plan.devices else []
+    budget = outlets = None
+    tasks, costs = [partial(shared_returns, plan, circuit)], [_coupling_cost(plan, circuit)]
+    if options.hum and plan.stages:
+        budget = HumBudget(plan, circuit, ctx.loops, rr,
+                           HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
+                           probes)
+        hum_tasks, hum_costs = budget.tasks(options.jobs)
+        tasks += hum_tasks
+        costs += hum_costs
+    if options.hum and plan.devices:
+        outlets = OutletWork(plan, circuit, rr, options.max_frequency)
+        tasks.append(outlets.unplugged)
+        costs.append(len(outlets.sources) * len(circuit.nodes) * len(outlets.freqs) / 4)
+    done = run_tasks(tasks, options.jobs, costs)
+    result.coupling = done[0]
+    if budget is not None:
+        result.hum = budget.result(done[1:1 + len(hum_tasks)])
+    if outlets is not None:
+        result.outlets = outlets.result(done[-1], result.hum.probes if result.hum is not None else None)
+
+
+def _coupling_cost(plan: Plan, circuit) -> float:
+    """The shared-return test's cost, in the hum budget's unit (sources × nodes): one real solve per source."""
+    return (len(plan.rectifiers) + len(plan.currents) + len(plan.heaters)) * len(circuit.nodes) * 1.5
 
 
 def _notices(plan: Plan, options: Options) -> list[str]:

@@ -90,6 +90,15 @@ class Circuit:
                 np.array([x.r for x in b]), np.array([x.l for x in b]), np.array([x.radius for x in b]),
                 np.array([x.rho for x in b]), np.array([np.nan if x.cap is None else x.cap for x in b]))
 
+    @cached_property
+    def incidence(self) -> sp.csr_matrix:
+        """Branches × nodes, +1 at each branch's n1 and −1 at its n2: ``incidence @ V`` is every branch's voltage
+        V[n1] − V[n2] (the same values as the row gathers, faster for many columns)."""
+        n1, n2, *_ = self._arrays
+        b = np.arange(len(n1))
+        return sp.csr_matrix((np.r_[np.ones(len(b)), -np.ones(len(b))], (np.r_[b, b], np.r_[n1, n2])),
+                             shape=(len(n1), len(self.nodes)))
+
     def impedance(self, f: float) -> np.ndarray:
         """Complex impedance of every branch at frequency f (Hz), never below MIN_IMPEDANCE."""
         n1, n2, r, l, radius, rho, cap = self._arrays

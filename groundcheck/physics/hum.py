@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import partial
 
 import numpy as np
 
@@ -33,9 +34,9 @@ from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
 from .pickup import emf as emf_of, loop_fluxes, min_distance
-from .sweep import map_frequencies
+from .sweep import run_tasks
 
-__all__ = ["HumOptions", "HumResult", "ChannelHum", "hum_budget"]  # the result types live in humtotals
+__all__ = ["HumOptions", "HumResult", "ChannelHum", "HumBudget", "hum_budget"]  # the result types live in humtotals
 
 
 
@@ -47,6 +48,9 @@ NETWORK_ROWS = 50
 
 #: sources solved together in the hum budget (their branches × sources arrays bound the memory)
 SOURCE_CHUNK = 128
+
+#: sources of one frequency per task when several processes share the budget (see HumBudget.tasks)
+TASK_SOURCES = 512
 
 
 
@@ -98,8 +102,9 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
                jobs: int = 1, probes=()) -> HumResult:
     """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk.
 
-    Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies
-    are shared among that many processes (:mod:`groundcheck.physics.sweep`), with the same result.
+    Every frequency is solved on its own (one factorisation each); with ``jobs`` > 1 the frequencies, a
+    large one cut into slices of its sources, are shared among that many processes
+    (:func:`groundcheck.physics.sweep.run_tasks`), with the same result to rounding.
 
     Parameters:
         plan: the plan.
@@ -116,16 +121,9 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     References:
         ISO 226:2003 (threshold); reciprocity (Penfield, Spence, Duinker, 1970); Faraday's law.
     """
-    b = _Budget(plan, circuit, loops, rectifier_results, options, probes)
-    merged = Merged(b)
-    for f, part in zip(b.solve_at, map_frequencies(b.at_frequency, b.solve_at, jobs)):
-        merged.add(f, part)
-    channels = {ch: merged.channel(ch) for ch in b.channels}
-    if len(b.channels) > 1 and not b.signal_sources:
-        b.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
-    return HumResult(channels, list(rectifier_results.values()),
-                     [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
-                     merged.crosstalk(), b.freqs, merged.network_rows, b.notes, merged.probes)
+    b = HumBudget(plan, circuit, loops, rectifier_results, options, probes)
+    tasks, costs = b.tasks(jobs)
+    return b.result(run_tasks(tasks, jobs, costs))
 
 
 def _passages(plan, circuit, loops) -> dict:
@@ -157,11 +155,15 @@ def _spot_at(spots: list, p) -> int | None:
     return next((k for k, s in enumerate(spots) if math.dist(s, p) < 1e-6), None)
 
 
-class _Budget:
-    """What every frequency's solve needs, set up once: sources, stages, tests, loop fluxes, frequencies."""
+class HumBudget:
+    """What every frequency's solve needs, set up once: sources, stages, tests, loop fluxes, frequencies.
+
+    :meth:`tasks` gives the independent pieces of work (a frequency, or part of its sources), :meth:`result`
+    merges what they return; :func:`hum_budget` runs them, and the analysis runs them among its other solves."""
 
     def __init__(self, plan, circuit, loops, rectifier_results: dict, options: HumOptions, probes=()):
         self.plan, self.circuit, self.loops = plan, circuit, loops
+        self.rectifier_results = rectifier_results
         self.probe_a = np.array([circuit.point_node[x] for x, _ in probes], dtype=int)
         self.probe_b = np.array([circuit.point_node[y] for _, y in probes], dtype=int)
         f0 = self.f0 = plan.frequency
@@ -220,17 +222,55 @@ class _Budget:
             return pair_closest(self.pairs[name][1], polygon)
         return min_distance(self.fields[name], polygon)
 
-    def at_frequency(self, f: float) -> _FrequencyPart:
+    def tasks(self, jobs: int = 1) -> tuple[list, list]:
+        """The budget's work as independent tasks, with an estimate of each one's cost: one per frequency, its
+        sources cut into slices of TASK_SOURCES when several processes share the work (each slice factorises
+        the matrix again, which costs far less than its solves).
+
+        Parameters:
+            jobs: the processes that will run them.
+        Returns:
+            (functions of no arguments giving (frequency, part), their estimated costs).
+        References:
+            none (bookkeeping).
+        """
+        tasks, costs = [], []
+        for f in self.solve_at:
+            n = len(self._active(f))
+            step = TASK_SOURCES if jobs > 1 else max(n, 1)
+            for lo in range(0, max(n, 1), step):
+                tasks.append(partial(self.at_frequency, f, lo, lo + step))
+                costs.append((1 + min(step, n - lo)) * len(self.circuit.nodes))
+        return tasks, costs
+
+    def result(self, parts) -> HumResult:
+        """The budget's result from what its tasks returned, merged in frequency order."""
+        merged = Merged(self)
+        for f, part in sorted(parts, key=lambda fp: fp[0]):
+            merged.add(f, part)
+        channels = {ch: merged.channel(ch) for ch in self.channels}
+        if len(self.channels) > 1 and not self.signal_sources:
+            self.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
+        return HumResult(channels, list(self.rectifier_results.values()),
+                         [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
+                         merged.crosstalk(), self.freqs, merged.network_rows, self.notes, merged.probes)
+
+    def _active(self, f: float) -> list:
+        return [s for s in self.hum_sources if s.parts.get(f, 0) != 0] if f in self.freqs else []
+
+    def at_frequency(self, f: float, lo: int = 0, hi: int | None = None) -> tuple[float, _FrequencyPart]:
+        """The part of frequency f from its active sources lo:hi (the loops' pickup and the crosstalk with the
+        first slice)."""
         part = _FrequencyPart()
         fac = self.circuit.at(f)
-        active = [s for s in self.hum_sources if s.parts.get(f, 0) != 0] if f in self.freqs else []
+        active = self._active(f)[lo:hi]
         if active and self.stages and self.valid_idx.size:
             self._sources(f, fac, active, part)
-        if self.loops and f in self.freqs:
+        if lo == 0 and self.loops and f in self.freqs:
             self._pickup(f, fac, part)
-        if self.crosstalk_wanted and f in self.xt_freqs:
+        if lo == 0 and self.crosstalk_wanted and f in self.xt_freqs:
             self._crosstalk(fac, part)
-        return part
+        return f, part
 
     def gains_at(self, fac) -> np.ndarray:
         """Each stage's gain as a (complex) ratio at the factorisation's frequency: an interconnect's input reads its
@@ -258,58 +298,69 @@ class _Budget:
     def _source_chunk(self, f, fac, active, gains, TC, part) -> None:
         circuit = self.circuit
         both = fac.solve(source_injections(circuit, active, f))
-        self._network_rows(f, fac, active, both, part)
         if self.probe_a.size:
             power = (np.abs(both.V[self.probe_a] - both.V[self.probe_b]) ** 2).sum(axis=1)
             part.probes = power if part.probes is None else part.probes + power
-        WT = np.ascontiguousarray((fac.z[:, None] * both.I).T)      # sources × branches: Z_b·I_b(s)
         # each stage's own drop (node voltages of the source solves), for the worst case: every stage in phase
         stage_v = (np.abs(both.V[self.stage_a] - both.V[self.stage_b]) * np.abs(gains[self.valid_idx])[:, None])
         groups = ["rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}" for s in active]
         for ci, ch in enumerate(self.channels):
             worst = stage_v[self.stage_channel == ci].sum(axis=0)
             part.in_phase.extend((ch, g, float(w)) for g, w in zip(groups, worst))
+        # by reciprocity a branch's share of a channel is its drop Z_b·I_b(s) (both.dv: no EMF here) times the
+        # channel's test current in it; each source's output is their sum (one product for every source and channel)
+        drops = np.ascontiguousarray(np.abs(both.dv).T)                # |Z_b·I_b|, sources × branches
+        self._network_rows(f, fac, active, both, drops, part)
+        v_all = both.dv.T @ TC                                          # sources × channels
+        mags = np.empty_like(drops)
         for ci, ch in enumerate(self.channels):
-            self._shares(ch, WT * TC[:, ci][None, :], groups, part)
+            np.multiply(drops, np.abs(TC[:, ci])[None, :], out=mags)
+            self._shares(ch, mags, both.dv, TC[:, ci], v_all[:, ci], groups, part)
 
-    def _shares(self, ch, shares_all, groups, part) -> None:
-        """Each source's output in one channel and its largest conductor shares (``shares_all``: sources ×
-        branches, by reciprocity each branch's share); the rest, each below the tenth largest, summed as other."""
+    def _shares(self, ch, mags_all, zi, tc, v_all, groups, part) -> None:
+        """Each source's output in one channel and its largest conductor shares (``mags_all``: sources ×
+        branches, each branch's |share|; the share itself is zi·tc, ``zi`` branches × sources); the rest, each
+        below the tenth largest, summed as other."""
         owners = self.owners
-        v_all = shares_all.sum(axis=1)
-        mags_all = np.abs(shares_all)
-        many = mags_all.shape[1] > TOP_SHARES
-        tops = np.argpartition(-mags_all, TOP_SHARES - 1, axis=1)[:, :TOP_SHARES] if many else None
-        peak = mags_all.max(axis=1) if mags_all.shape[1] else np.zeros(len(groups))
+        nb = mags_all.shape[1]
+        if nb > TOP_SHARES:
+            tops = np.argpartition(mags_all, nb - TOP_SHARES, axis=1)[:, nb - TOP_SHARES:]
+        else:
+            tops = np.broadcast_to(np.arange(nb), (len(groups), nb))
+        rows = np.arange(len(groups))[:, None]
+        top_mags = mags_all[rows, tops]
+        peak = top_mags.max(axis=1) if nb else np.zeros(len(groups))   # the largest share is among the tops
+        top_shares = zi[tops, rows] * tc[tops]                          # sources × TOP_SHARES
+        kept = top_mags > 1e-3 * np.maximum(peak, 1e-300)[:, None]
+        rests = v_all - np.where(kept, top_shares, 0).sum(axis=1)
         for si, group in enumerate(groups):
             v_out = v_all[si]
             if v_out == 0:
                 continue
             part.out.append((ch, group, v_out))
-            shares, mags = shares_all[si], mags_all[si]
-            top = tops[si] if many else np.arange(len(mags))
-            top = top[mags[top] > 1e-3 * max(peak[si], 1e-300)]
-            for bi in top:
-                part.contrib.append((ch, ("conductor", owners[bi], group), shares[bi]))
-            rest = v_out - shares[top].sum()
-            if abs(rest) > 1e-3 * abs(v_out) and len(mags) > TOP_SHARES:
+            for bi, share in zip(tops[si][kept[si]], top_shares[si][kept[si]]):
+                part.contrib.append((ch, ("conductor", owners[bi], group), share))
+            rest = rests[si]
+            if abs(rest) > 1e-3 * abs(v_out) and nb > TOP_SHARES:
                 part.contrib.append((ch, ("conductor", "other conductors", group), rest))
 
-    def _network_rows(self, f, fac, active, both, part) -> None:
-        """The JSON network section's rows: each source's largest branch currents at its first frequency."""
+    def _network_rows(self, f, fac, active, both, drops, part) -> None:
+        """The JSON network section's rows: each source's largest branch currents at its first frequency
+        (``drops``: sources × branches, |Z·I|)."""
         circuit = self.circuit
+        admittance = np.abs(fac.y)
         for si, s in enumerate(active):
             if s.kind == "rectifier" and abs(f - 2 * self.f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
-                I = both.I[:, si]
-                mags = np.abs(I)
+                mags = drops[si] * admittance                           # |I|
                 sig = np.flatnonzero(mags > 1e-3 * abs(s.parts[f]))
                 if len(sig) > NETWORK_ROWS:       # those down to the row limit's value (ties kept), not every branch
                     cut = -np.partition(-mags[sig], NETWORK_ROWS - 1)[NETWORK_ROWS - 1]
                     sig = sig[mags[sig] >= cut]
                 sig = sig[np.argsort(-mags[sig], kind="stable")][:NETWORK_ROWS]
+                I = both.dv[sig, si] * fac.y[sig]
                 part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
-                                     "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(I[b])),
-                                                     "drop_v": float(abs(I[b] * fac.z[b]))} for b in sig]})
+                                     "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(i)),
+                                                     "drop_v": float(abs(i * fac.z[b]))} for b, i in zip(sig, I)]})
 
     def _pickup(self, f, fac, part) -> None:
         """Each loop's EMF from each field source, the current it drives and the drop it leaves across each stage."""

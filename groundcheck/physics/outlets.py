@@ -22,7 +22,7 @@ import numpy as np
 from ..model.installation import device_of
 from .coupling import plan_sources, source_injections
 
-__all__ = ["OutletPair", "OutletVoltages", "outlet_voltages", "outlet_pairs", "MAX_DRIVERS"]
+__all__ = ["OutletPair", "OutletVoltages", "OutletWork", "outlet_voltages", "outlet_pairs", "MAX_DRIVERS"]
 
 #: drivers named per outlet pair (the largest first)
 MAX_DRIVERS = 5
@@ -128,38 +128,75 @@ def outlet_voltages(plan, circuit, rectifier_results: dict, max_frequency: float
     References:
         superposition; sources adding in power (see the module's text).
     """
-    from .induction import cable_emfs, mutual_per_metre
-    out = OutletVoltages()
-    devices = {d.name: d for d in plan.devices}
-    if not devices:
+    work = OutletWork(plan, circuit, rectifier_results, max_frequency)
+    return work.result(work.unplugged(), planned)
+
+
+class OutletWork:
+    """An installation's outlet pairs and sources, set up once: :meth:`unplugged` solves the pairs with every
+    interconnect unplugged (the heavy part, a task of its own in the analysis), :meth:`result` adds the planned
+    voltages and assembles the :class:`OutletVoltages`."""
+
+    def __init__(self, plan, circuit, rectifier_results: dict, max_frequency: float):
+        from .induction import cable_emfs, mutual_per_metre
+        self.plan, self.circuit = plan, circuit
+        self.emfs, self.notes = [], []
+        self.pairs, self.names, self.sources, self.freqs = [], [], [], []
+        devices = {d.name: d for d in plan.devices}
+        if not devices:
+            return
+        for c in plan.conductors:
+            if c.kind == "cable" and c.loads:
+                for f, e in sorted(cable_emfs(c, plan.frequency).items()):
+                    self.emfs.append((c.name, f, e, mutual_per_metre(c.cores)))
+        self.pairs, self.names = outlet_pairs(plan)
+        if not self.pairs:
+            return
+        if plan.supply is None and not plan.device_supplies and any(d.source == "simple" for d in devices.values()):
+            self.notes.append("no 'supply' stated: the simple devices' default leakage is not computed")
+        self.sources = [s for s in plan_sources(plan, rectifier_results, max_frequency, circuit) if s.kind != "signal"]
+        self.freqs = sorted({f for s in self.sources for f in s.parts if 0 < f <= max_frequency + 1e-9})
+
+    def unplugged(self) -> tuple[dict, list]:
+        """Every pair's voltage with the interconnects unplugged, per frequency, and its drivers: (Hz -> rms V per
+        pair, per pair (source index, rms V) the largest first).
+
+        Returns:
+            the unplugged voltages and drivers (small enough to travel back from a worker process).
+        References:
+            superposition (common practice).
+        """
+        if not self.pairs:
+            return {}, []
+        plan = self.plan
+        unplugged = self.circuit.restricted({c.name for c in plan.conductors if c.kind != "interconnect"})
+        open_f, open_s = _pair_volts(unplugged, self.sources, self.pairs, self.freqs)
+        many = open_s.shape[1] > MAX_DRIVERS
+        cuts = -np.partition(-open_s, MAX_DRIVERS - 1, axis=1)[:, MAX_DRIVERS - 1] if many else None
+        drivers = []
+        for k in range(len(self.pairs)):
+            cand = np.flatnonzero(open_s[k] >= cuts[k]) if many else np.arange(open_s.shape[1])   # ties at the cut
+            order = cand[np.argsort(-open_s[k, cand], kind="stable")][:MAX_DRIVERS]
+            drivers.append([(int(i), float(open_s[k, i])) for i in order
+                            if open_s[k, i] > 1e-6 * max(open_s[k].max(), 1e-300)])
+        return open_f, drivers
+
+    def result(self, unplugged: tuple[dict, list], planned: dict | None = None) -> OutletVoltages:
+        """The outlet voltages from :meth:`unplugged`'s result and the planned power sums (None: solved here)."""
+        out = OutletVoltages(emfs=self.emfs, notes=self.notes)
+        if not self.pairs:
+            return out
+        circuit, pairs, sources = self.circuit, self.pairs, self.sources
+        open_f, drivers = unplugged
+        if planned is not None and all(f in planned for f in self.freqs):
+            _, labels = circuit.components
+            joined = np.array([labels[circuit.point_node[a]] == labels[circuit.point_node[b]] for a, b in pairs])
+            plan_f = {f: np.where(joined, np.sqrt(planned[f]), 0.0) for f in self.freqs}
+        else:
+            plan_f, _ = _pair_volts(circuit, sources, pairs, self.freqs)
+        roles = {c.name: c.role for c in self.plan.currents}
+        for k, ((a, b), name) in enumerate(zip(pairs, self.names)):
+            named = tuple((sources[i].name, roles.get(sources[i].name, sources[i].kind), v) for i, v in drivers[k])
+            out.pairs.append(OutletPair(name, a, b, {f: float(v[k]) for f, v in open_f.items()},
+                                        {f: float(v[k]) for f, v in plan_f.items()}, named))
         return out
-    for c in plan.conductors:
-        if c.kind == "cable" and c.loads:
-            for f, e in sorted(cable_emfs(c, plan.frequency).items()):
-                out.emfs.append((c.name, f, e, mutual_per_metre(c.cores)))
-    pairs, names = outlet_pairs(plan)
-    if not pairs:
-        return out
-    if plan.supply is None and not plan.device_supplies and any(d.source == "simple" for d in devices.values()):
-        out.notes.append("no 'supply' stated: the simple devices' default leakage is not computed")
-    sources = [s for s in plan_sources(plan, rectifier_results, max_frequency, circuit) if s.kind != "signal"]
-    freqs = sorted({f for s in sources for f in s.parts if 0 < f <= max_frequency + 1e-9})
-    unplugged = circuit.restricted({c.name for c in plan.conductors if c.kind != "interconnect"})
-    open_f, open_s = _pair_volts(unplugged, sources, pairs, freqs)
-    if planned is not None and all(f in planned for f in freqs):
-        _, labels = circuit.components
-        joined = np.array([labels[circuit.point_node[a]] == labels[circuit.point_node[b]] for a, b in pairs])
-        plan_f = {f: np.where(joined, np.sqrt(planned[f]), 0.0) for f in freqs}
-    else:
-        plan_f, _ = _pair_volts(circuit, sources, pairs, freqs)
-    roles = {c.name: c.role for c in plan.currents}
-    many = open_s.shape[1] > MAX_DRIVERS
-    cuts = -np.partition(-open_s, MAX_DRIVERS - 1, axis=1)[:, MAX_DRIVERS - 1] if many else None
-    for k, ((a, b), name) in enumerate(zip(pairs, names)):
-        cand = np.flatnonzero(open_s[k] >= cuts[k]) if many else np.arange(open_s.shape[1])   # ties at the cut kept
-        order = cand[np.argsort(-open_s[k, cand], kind="stable")][:MAX_DRIVERS]
-        drivers = tuple((sources[i].name, roles.get(sources[i].name, sources[i].kind), float(open_s[k, i]))
-                        for i in order if open_s[k, i] > 1e-6 * max(open_s[k].max(), 1e-300))
-        out.pairs.append(OutletPair(name, a, b, {f: float(v[k]) for f, v in open_f.items()},
-                                    {f: float(v[k]) for f, v in plan_f.items()}, drivers))
-    return out

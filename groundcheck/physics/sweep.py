@@ -3,11 +3,11 @@
 Each frequency of a hum budget or a benchmark sweep needs its own
 factorisation of the admittance matrix, and nothing passes from one
 frequency to the next: the work is a pure function of the frequency.  With
-``jobs`` > 1 the frequencies are dealt out to forked worker processes, which
-inherit the circuit and every other input from the parent (nothing large is
-pickled); only each frequency's result travels back.  The results come back
-in the order of the frequencies given, so the outcome does not depend on the
-number of processes.
+``jobs`` > 1 the frequencies (or any independent tasks, :func:`run_tasks`) go to
+forked worker processes, which inherit the circuit and every other input from
+the parent (nothing large is pickled); only each task's result travels back.
+The results come back in the order of the tasks given, so the outcome does not
+depend on the number of processes.
 
 Each worker runs its numerical libraries single-threaded (threadpoolctl): the sparse LU gains
 nothing from OpenBLAS threads, and two processes each spinning two BLAS threads on two cores
@@ -25,18 +25,18 @@ import gc
 import multiprocessing
 from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
+from functools import partial
 from typing import Callable, Sequence, TypeVar
 
 from ..core.errors import GroundcheckError
 from ..core.runtime import can_fork, quiet_child, single_threaded_blas
 
-__all__ = ["map_frequencies"]
+__all__ = ["map_frequencies", "run_tasks", "WorkerError"]
 
 T = TypeVar("T")
 
-#: the work of the sweep in progress, inherited by the forked workers
-_WORK: Callable | None = None
-_FREQS: Sequence[float] = ()
+#: the tasks of the run in progress, inherited by the forked workers
+_TASKS: Sequence[Callable] = ()
 
 
 class WorkerError(GroundcheckError):
@@ -51,17 +51,56 @@ def _start_worker() -> None:
         _LIMIT_THREADS()
 
 
-def _run(indices: list[int]) -> list:
-    assert _WORK is not None
-    return [_WORK(_FREQS[i]) for i in indices]
+def _run(index: int):
+    return _TASKS[index]()
+
+
+def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[float] | None = None) -> list[T]:
+    """``[task() for task in tasks]``, computed by up to ``jobs`` processes.
+
+    Each worker takes the next task as soon as it is free, the costliest first (by ``costs``, an estimate in
+    any unit; the given order where equal), which keeps both cores busy when the tasks differ in size.  The
+    tasks need not be picklable (the workers inherit them); their results must be.
+
+    Parameters:
+        tasks: functions of no arguments, independent of each other.
+        jobs: processes.
+        costs: each task's estimated cost (None: the given order).
+    Returns:
+        the results in the order of the tasks.
+    References:
+        longest-processing-time-first scheduling (R. L. Graham, "Bounds on multiprocessing timing anomalies",
+        SIAM J. Appl. Math. 17, 1969).
+    """
+    tasks = list(tasks)
+    jobs = min(max(1, int(jobs)), len(tasks))
+    if jobs <= 1 or not can_fork():
+        return [task() for task in tasks]
+    global _TASKS, _LIMIT_THREADS
+    _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
+    order = sorted(range(len(tasks)), key=lambda i: -costs[i]) if costs is not None else range(len(tasks))
+    out: list = [None] * len(tasks)
+    try:
+        # a process pool that notices a worker dying (killed, out of memory) instead of waiting for it for ever
+        with ProcessPoolExecutor(jobs, mp_context=multiprocessing.get_context("fork"),
+                                 initializer=_start_worker) as pool:
+            futures = {i: pool.submit(_run, i) for i in order}
+            for i, fut in futures.items():
+                out[i] = fut.result()
+    except BrokenProcessPool:
+        raise WorkerError("a worker process of --jobs died before it finished (killed, or out of memory); "
+                          "run with --jobs 1") from None
+    except OSError:                     # no process could be started (a process limit): one process does it all
+        out = [task() for task in tasks]
+    finally:
+        _TASKS = ()
+    return out
 
 
 def map_frequencies(work: Callable[[float], T], freqs: Sequence[float], jobs: int = 1) -> list[T]:
-    """``[work(f) for f in freqs]``, computed by up to ``jobs`` processes.
+    """``[work(f) for f in freqs]``, computed by up to ``jobs`` processes (see :func:`run_tasks`).
 
-    The frequencies are dealt out in turn (the first to worker 1, the second
-    to worker 2, ...), which balances the load when the cost varies smoothly
-    with frequency.  ``work`` need not be picklable; its results must be.
+    ``work`` need not be picklable; its results must be.
 
     Parameters:
         work: a function of one frequency.
@@ -72,27 +111,4 @@ def map_frequencies(work: Callable[[float], T], freqs: Sequence[float], jobs: in
     References:
         none (process pool).
     """
-    freqs = list(freqs)
-    jobs = min(max(1, int(jobs)), len(freqs))
-    if jobs <= 1 or not can_fork():
-        return [work(f) for f in freqs]
-    global _WORK, _FREQS, _LIMIT_THREADS
-    _WORK, _FREQS, _LIMIT_THREADS = work, freqs, single_threaded_blas()
-    deals = [list(range(k, len(freqs), jobs)) for k in range(jobs)]
-    try:
-        # a process pool that notices a worker dying (killed, out of memory) instead of waiting for it for ever
-        with ProcessPoolExecutor(jobs, mp_context=multiprocessing.get_context("fork"),
-                                 initializer=_start_worker) as pool:
-            parts = list(pool.map(_run, deals))
-    except BrokenProcessPool:
-        raise WorkerError("a worker process of --jobs died before it finished (killed, or out of memory); "
-                          "run with --jobs 1") from None
-    except OSError:                     # no process could be started (a process limit): one process does it all
-        parts = [_run(d) for d in deals]
-    finally:
-        _WORK, _FREQS = None, ()
-    out: list = [None] * len(freqs)
-    for deal, part in zip(deals, parts):
-        for i, value in zip(deal, part):
-            out[i] = value
-    return out
+    return run_tasks([partial(work, f) for f in freqs], jobs)
