@@ -289,3 +289,27 @@ def test_an_attribute_of_another_kind_is_named_with_its_article():
     with pytest.raises(PlanErrors) as e:
         load_text(text, "x.gplan")
     assert "x.gplan:5:5: error: in is an attribute of a core, not of an interconnect" in str(e.value)
+
+
+def test_the_text_report_lists_the_largest_outlet_pairs_and_counts_the_rest(cli, tmp_path):
+    """Sixty devices on sixty outlets, each linked to the first: 59 outlet pairs, of which the text lists the 50
+    largest as planned (largest first) and counts the other 9; the JSON keeps all 59."""
+    lines = ['plan "long bench"', "supply 230 V 50 Hz, system TN-S", "point met: earthing-terminal"]
+    for k in range(60):
+        lines += [f"point o{k}: outlet", f"wire run{k}: o{k} to met, {5 + k * 0.5:g} m, 2.5 mm2, protective",
+                  f"device d{k}: simple, plugged o{k}"]
+    lines += [f"interconnect ic{k}: d0.gnd to d{k}.gnd, 2 m, 0.1 mm2, terminated both, unbalanced, gain 0 dB, "
+              f"channel c{k % 2}" for k in range(1, 60)]
+    path = tmp_path / "bench.gplan"
+    path.write_text("\n".join(lines) + "\n")
+    code, out, _ = cli("check", str(path))
+    assert "(the 50 largest as planned)" in out
+    assert "9 more outlet pairs not listed here (all 59 are in --format json)" in out
+    table = out.split("(the 50 largest as planned)")[1].split("more outlet pairs")[0]
+    rows = re.findall(r"│ (ic\d+) +│", table)
+    assert len(rows) == 50
+    doc = analyze(load(path))
+    planned = {p.interconnect: p.planned_total for p in doc.outlets.pairs}
+    assert len(planned) == 59
+    assert [planned[r] for r in rows] == sorted((planned[r] for r in rows), reverse=True)
+    assert min(planned[r] for r in rows) >= max(v for k, v in planned.items() if k not in rows)

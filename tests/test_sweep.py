@@ -10,11 +10,12 @@ from groundcheck import load
 from groundcheck.analysis import Options, analyze
 from groundcheck.physics.coupling import pair_tests
 from groundcheck.renderers.jsondoc import render_json
-from groundcheck.physics.sweep import can_fork, map_frequencies
+from groundcheck.physics.sweep import can_fork, map_frequencies, run_tasks
 
 from helpers import EXAMPLES, ROOT
 
 STUDIO = ROOT / "examples" / "studio" / "project-studio.gplan"
+ROOM = ROOT / "examples" / "studio" / "recording-room.gplan"
 forking = pytest.mark.skipif(not can_fork(), reason="worker processes are forked on Linux only")
 
 
@@ -46,3 +47,50 @@ def test_factorisations_in_workers_match_the_parent():
     there = map_frequencies(lambda f: c.at(f).solve(J).V, freqs, jobs=2)
     for a, b in zip(here, there):
         assert np.array_equal(a, b)
+
+
+def test_tasks_come_back_in_their_order_whatever_their_costs_and_processes():
+    scale = 3                                   # closures again: the tasks need not be picklable
+    tasks = [lambda k=k: k * scale for k in range(7)]
+    for jobs in (1, 2, 3):
+        for costs in (None, [1, 9, 2, 8, 3, 7, 4], [5] * 7):
+            assert run_tasks(tasks, jobs, costs) == [k * scale for k in range(7)]
+    assert run_tasks([], 2) == []
+
+
+def _close(a, b, path=""):
+    """Two JSON documents alike: the same structure and strings, numbers within 1e-9 (sums taken in another
+    order by the processes)."""
+    if isinstance(a, dict):
+        assert a.keys() == b.keys(), path
+        for k in a:
+            _close(a[k], b[k], f"{path}.{k}")
+    elif isinstance(a, list):
+        assert len(a) == len(b), path
+        for k, (x, y) in enumerate(zip(a, b)):
+            _close(x, y, f"{path}[{k}]")
+    elif isinstance(a, float) and isinstance(b, float):
+        assert a == pytest.approx(b, rel=1e-9, abs=1e-15), path
+    else:
+        assert a == b, path
+
+
+@forking
+def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_process_budget(monkeypatch):
+    """With every frequency's sources cut into slices of one (as a large installation's are cut into slices of
+    TASK_SOURCES), the shared returns, the hum budget and the outlet voltages, run as tasks of two processes, give
+    the one-process figures (the recording room: leakage, a cable's EMF and a rectifier)."""
+    from groundcheck import analysis
+    from groundcheck.physics import hum
+    plan = load(ROOM)
+    one = json.loads(render_json(analyze(plan, Options(jobs=1))))
+    monkeypatch.setattr(hum, "TASK_SOURCES", 1)
+    counted = []
+
+    def counting(tasks, jobs=1, costs=None):
+        counted.append(len(tasks))
+        return run_tasks(tasks, jobs, costs)
+    monkeypatch.setattr(analysis, "run_tasks", counting)
+    two = json.loads(render_json(analyze(plan, Options(jobs=2))))
+    assert counted[0] > 10                   # the shared returns, the outlets and many slices of the budget
+    _close(one, two)

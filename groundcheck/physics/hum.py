@@ -332,16 +332,20 @@ class HumBudget:
         peak = top_mags.max(axis=1) if nb else np.zeros(len(groups))   # the largest share is among the tops
         top_shares = zi[tops, rows] * tc[tops]                          # sources × TOP_SHARES
         kept = top_mags > 1e-3 * np.maximum(peak, 1e-300)[:, None]
-        rests = v_all - np.where(kept, top_shares, 0).sum(axis=1)
+        rests = (v_all - np.where(kept, top_shares, 0).sum(axis=1)).tolist()
+        # plain Python numbers from here: the merge adds tens of thousands of them one by one
+        v_list, tops_list, shares_list, kept_list = v_all.tolist(), tops.tolist(), top_shares.tolist(), kept.tolist()
+        many = nb > TOP_SHARES
         for si, group in enumerate(groups):
-            v_out = v_all[si]
+            v_out = v_list[si]
             if v_out == 0:
                 continue
             part.out.append((ch, group, v_out))
-            for bi, share in zip(tops[si][kept[si]], top_shares[si][kept[si]]):
-                part.contrib.append((ch, ("conductor", owners[bi], group), share))
+            for bi, share, keep in zip(tops_list[si], shares_list[si], kept_list[si]):
+                if keep:
+                    part.contrib.append((ch, ("conductor", owners[bi], group), share))
             rest = rests[si]
-            if abs(rest) > 1e-3 * abs(v_out) and nb > TOP_SHARES:
+            if many and abs(rest) > 1e-3 * abs(v_out):
                 part.contrib.append((ch, ("conductor", "other conductors", group), rest))
 
     def _network_rows(self, f, fac, active, both, drops, part) -> None:

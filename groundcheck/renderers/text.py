@@ -37,6 +37,9 @@ def escape(text) -> str:
 TABLE_ROWS = 12
 TABLE_LOOPS = 50
 
+#: outlet pairs listed in the text report (the largest as planned when there are more)
+TABLE_OUTLETS = 50
+
 
 def _fmt(x, unit="", digits=3):
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
@@ -248,10 +251,17 @@ def _outlet_table(result: Result, console: Console) -> None:
         t = Table(title="Voltage between the outlets' earths that each interconnect joins", title_justify="left")
         for col in ("interconnect", "between", "unplugged", "as planned", "drivers (unplugged)"):
             t.add_column(col)
-        for p in o.pairs:
+        shown = o.pairs
+        if len(shown) > TABLE_OUTLETS:          # the largest as planned, in that order; every pair is in the JSON
+            shown = sorted(shown, key=lambda p: -p.planned_total)[:TABLE_OUTLETS]
+            t.title += f" (the {TABLE_OUTLETS} largest as planned)"
+        for p in shown:
             t.add_row(escape(p.interconnect), escape(f"{p.a} – {p.b}"), format_si(p.open_total, "V"),
                       format_si(p.planned_total, "V"), escape(driver_words(p)))
         console.print(t)
+        if len(o.pairs) > len(shown):
+            console.print(f"  {len(o.pairs) - len(shown)} more outlet pairs not listed here (all {len(o.pairs)} "
+                          "are in --format json)")
     for c, f, e, m in o.emfs:
         console.print(f"  {escape(c)}: its load induces {format_si(e, 'V')} at {f:g} Hz along its protective core "
                       f"(M' {m * 1e9:.4g} nH/m)")
