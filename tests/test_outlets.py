@@ -313,3 +313,36 @@ def test_the_text_report_lists_the_largest_outlet_pairs_and_counts_the_rest(cli,
     assert len(planned) == 59
     assert [planned[r] for r in rows] == sorted((planned[r] for r in rows), reverse=True)
     assert min(planned[r] for r in rows) >= max(v for k, v in planned.items() if k not in rows)
+
+
+LEAKY = """plan "leaky rack"
+supply 230 V 50 Hz, system TN-S
+point met: earthing-terminal
+point wall: outlet
+wire run: wall to met, 10 m, 2.5 mm2, protective
+device psu: simple, plugged wall, y-capacitor 50 nF
+device mixer: simple, plugged wall, y-capacitor 47 nF
+device laptop: simple, plugged wall, class II, y-capacitor 4.7 nF
+device tablet: simple, plugged wall, class II
+device desk: simple, plugged wall, leakage 4 mA
+interconnect a: mixer.gnd to psu.gnd, 2 m, 0.1 mm2, terminated both, balanced, gain 0 dB, channel main
+interconnect b: laptop.gnd to mixer.gnd, 2 m, 0.1 mm2, terminated both, unbalanced, gain 0 dB, channel main
+interconnect c: tablet.gnd to mixer.gnd, 2 m, 0.1 mm2, terminated both, unbalanced, gain 0 dB, channel main
+"""
+
+
+def test_leakage_above_the_product_safety_limits_is_a_fault():
+    """GC216 against hand calculations of U0·2πf·C at 230 V 50 Hz (2πf = 314.159 s⁻¹) and the limits of IEC 60950-1:2005
+    (5.1.7: 3.5 mA for a plug-connected class I device; Table 5A: 0.25 mA for a class II device):
+    psu 50 nF -> 230 × 314.159 × 50e-9 = 3.6128 mA, over; mixer 47 nF -> 3.3960 mA, under; laptop (class II)
+    4.7 nF -> 0.33960 mA, over; tablet (class II, the 1 nF default) -> 0.072257 mA, under; desk stated 4 mA, over."""
+    found = {f.elements[0]: f for f in analyze(load_text(LEAKY, "leaky.gplan"), ).findings if f.code == "GC216"}
+    assert set(found) == {"psu", "laptop", "desk"}
+    assert found["psu"].figures["leakage_a"] == pytest.approx(3.6128e-3, rel=1e-4)
+    assert found["psu"].figures["limit_a"] == 3.5e-3 and "3.61 mA (from its Y capacitance" in found["psu"].message
+    assert found["laptop"].figures["leakage_a"] == pytest.approx(0.33960e-3, rel=1e-4)
+    assert found["laptop"].figures["limit_a"] == 0.25e-3 and "class II" in found["laptop"].message
+    assert "4 mA (stated)" in found["desk"].message
+    for f in found.values():
+        assert f.severity == "fault" and f.location.line in (6, 8, 10)
+        assert "never lift" in f.fix or "do not earth it yourself" in f.fix

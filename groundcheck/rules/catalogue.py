@@ -253,6 +253,20 @@ RULES: dict[str, Rule] = dict([
        "A device whose protective path is broken has no protective earth at all, whatever its own wiring.",
        "Plug the device into an earthed outlet and repair the broken protective connection named in the finding.",
        "IEC 60364-6 (continuity of protective conductors), from memory"),
+    _r("GC216", "leakage-above-limit", "fault",
+       "In an installation, each device's leakage (protective-conductor) current, stated or computed from its Y "
+       "capacitance at its supply, against the product-safety limits: 3.5 mA for a class I device on an ordinary "
+       "plug, 0.25 mA for a class II device, whose leakage has no protective conductor to take it.",
+       "Above 3.5 mA a class I device needs a permanent connection or an industrial plug and a warning label, because "
+       "the current flows through whoever touches the chassis if its earth is ever lost; a class II device over "
+       "0.25 mA gives a touch current above the limit for parts not earthed. Either figure also tells of a wrong "
+       "plan figure (a Y capacitance typed in µF).",
+       "Check the figure against the maker's data or a measurement; a device that truly leaks this much needs the "
+       "permanent or industrial connection its standard asks for — have it checked by a qualified person. Never "
+       "lift its protective earth.",
+       "IEC 60950-1:2005, 5.1.7 (equipment with a protective conductor current over 3.5 mA) and Table 5A (touch "
+       "current of parts not connected to protective earth, 0.25 mA), as quoted in IECEE test-report forms; from "
+       "memory for IEC 62368-1, which keeps both figures."),
     _r("GC301", "hum-contributor", "warning",
        "A conductor whose shared impedance puts hum or buzz above the set level at a channel's output.",
        "Common-impedance coupling: a supply current's drop appears across a sensitive pair.",

@@ -14,7 +14,11 @@ from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
 
-__all__ = ["rule_shield_on_signal_ground", "signal_ground_path"]
+__all__ = ["rule_shield_on_signal_ground", "rule_leakage_limit", "signal_ground_path", "LEAKAGE_LIMIT"]
+
+#: the largest leakage current of a plug-connected class I device and of a class II device, A (IEC 60950-1:2005,
+#: 5.1.7 and Table 5A; see GC216 in the catalogue)
+LEAKAGE_LIMIT = {"I": 3.5e-3, "II": 0.25e-3}
 
 
 def signal_ground_path(conductors, start: str, chassis: str, dev: str, metals) -> list[str]:
@@ -98,4 +102,44 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
                                f"the current it carries crosses {', '.join(path)} on its way to {chassis}",
                                c.location, (c.name, end, *path), {"conductors": len(path)},
                                f"{advice}; never lift the protective earth", (("shield-to", c.name, end),)))
+    return out
+
+
+@rule("GC216")
+def rule_leakage_limit(ctx: AuditContext) -> list[Finding]:
+    """GC216: a device whose leakage current (stated, or from its Y capacitance at its supply) is above the limit of
+    its protection class.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC216 findings, one per device over its limit.
+    References:
+        IEC 60950-1:2005, 5.1.7 and Table 5A (LEAKAGE_LIMIT).
+    """
+    plan = ctx.plan
+    leaks = {c.name: c for c in plan.currents if c.role == "leakage"}
+    out = []
+    for dev in plan.devices:
+        cur = leaks.get(f"{dev.name}.leakage")
+        limit = LEAKAGE_LIMIT.get(dev.equipment_class)
+        if cur is None or limit is None:
+            continue
+        amps = max(abs(a) for a, _ in cur.parts)
+        if amps <= limit:
+            continue
+        how = "stated" if dev.leakage is not None else "from its Y capacitance at its supply"
+        if dev.equipment_class == "I":
+            what = (f"a plug-connected class I device may leak at most {limit * 1e3:g} mA into its protective "
+                    "conductor, and with its earth lost this current flows through whoever touches the chassis")
+        else:
+            what = (f"a class II device may give at most {limit * 1e3:g} mA to parts that are touched: it has no "
+                    "protective conductor to take it")
+        then = ("needs a permanent or industrial connection and a qualified person's check; never lift its "
+                "protective earth" if dev.equipment_class == "I" else
+                "is not safe to touch as built: have it checked by a qualified person, and do not earth it yourself")
+        out.append(Finding("GC216", "fault", f"{dev.name} leaks {amps * 1e3:.3g} mA ({how}): {what}",
+                           dev.location, (dev.name,), {"leakage_a": amps, "limit_a": limit},
+                           "check the figure against the maker's data or a measurement (a Y capacitance in nF, not "
+                           f"µF); a device that truly leaks this much {then}"))
     return out
