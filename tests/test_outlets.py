@@ -108,6 +108,8 @@ def test_studio_type_outlet_voltages_name_every_driver():
 @pytest.mark.parametrize("supply, message", [
     ("supply 230 V 50 Hz\nmains 230 V 50 Hz", "both 'mains' and 'supply'"),
     ("supply 230 V 60 Hz", None),
+    ("supply 1e309 V 50 Hz", "supply voltage must be a finite number"),
+    ("supply 230 V 2000 Hz", "supply frequency 2000 Hz is outside"),
 ])
 def test_supply_errors(supply, message):
     if message is None:

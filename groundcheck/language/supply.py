@@ -26,16 +26,16 @@ MAINS_ATTRIBUTES = {
 MAINS_WORDS = ("fuse", "breaker", "cord", "circuit", "system", "class", "breaking", "inlet", *MAINS_ATTRIBUTES)
 
 
-def _voltage_and_frequency(r: Reader, kw: dict) -> None:
-    """The phrase of quantities that opens a mains statement: '230 V 50 Hz'."""
+def _voltage_and_frequency(r: Reader, kw: dict, keyword: str = "mains") -> None:
+    """The phrase of quantities that opens a mains or supply statement: '230 V 50 Hz'."""
     while not r.done:
         it = r.next("a quantity")
         if it.kind == "qty" and it.qkind == "voltage":
-            kw["voltage"] = check_quantity(it, "voltage", "mains voltage")
+            kw["voltage"] = check_quantity(it, "voltage", f"{keyword} voltage")
         elif it.kind == "qty" and it.qkind == "frequency":
-            kw["frequency"] = check_quantity(it, "frequency", "mains frequency")
+            kw["frequency"] = check_quantity(it, "frequency", f"{keyword} frequency")
             if not MAINS_FREQUENCY[0] <= kw["frequency"] <= MAINS_FREQUENCY[1]:
-                raise PlanError(f"mains frequency {it.text} is outside "
+                raise PlanError(f"{keyword} frequency {it.text} is outside "
                                 f"{MAINS_FREQUENCY[0]:g}–{MAINS_FREQUENCY[1]:g} Hz",
                                 it.loc, "mains is 50 or 60 Hz (aircraft 400 Hz)")
         else:
@@ -50,7 +50,7 @@ def _supply_statement(stmt: Statement, attribute) -> dict:
     for ph in stmt.phrases:
         r = Reader(ph, stmt)
         if r.peek().kind == "qty":
-            _voltage_and_frequency(r, kw)
+            _voltage_and_frequency(r, kw, stmt.keyword)
             continue
         attribute(r, ph, kw)
         r.finish()
