@@ -25,8 +25,11 @@ def test_check_text_report(cli):
 
 
 def test_fail_on_threshold(cli):
-    assert cli("check", DUAL, "--fail-on", "danger")[0] == 0          # a fault, no danger
-    assert cli("check", DUAL, "--fail-on", "fault")[0] == 1
+    guitar = str(next(e for e in EXAMPLES if e.name.startswith("guitar")))
+    assert cli("check", guitar, "--fail-on", "danger")[0] == 0        # a fault, no danger
+    assert cli("check", guitar, "--fail-on", "fault")[0] == 1
+    assert cli("check", DUAL, "--fail-on", "fault")[0] == 0           # warnings and a note only
+    assert cli("check", DUAL, "--fail-on", "warning")[0] == 1
     assert cli("check", MONO, "--fail-on", "danger")[0] == 1          # the front panel's protective path
 
 

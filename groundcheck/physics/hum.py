@@ -34,6 +34,7 @@ from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
 from .pickup import emf as emf_of, loop_fluxes, min_distance
+from .plate_paths import loop_passages
 from .sweep import run_tasks
 
 __all__ = ["HumOptions", "HumResult", "ChannelHum", "HumBudget", "hum_budget"]  # the result types live in humtotals
@@ -126,35 +127,6 @@ def hum_budget(plan, circuit, loops, rectifier_results: dict, options: HumOption
     return b.result(run_tasks(tasks, jobs, costs))
 
 
-def _passages(plan, circuit, loops) -> dict:
-    """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter, leave), where the
-    loop's outline takes the straight chord between the two spots (a bolt at each, no route)."""
-    from .plate_paths import MAX_PLATE_CONTACTS
-    metals = {m.name: m for m in plan.metals}
-    pos = {p.name: p.pos for p in plan.points if p.pos is not None}
-    routed = {c.name for c in plan.conductors if c.route}
-    out: dict = {}
-    for li, info in enumerate(loops):
-        lp, n = info.loop, len(info.loop.nodes)
-        for i, node in enumerate(lp.nodes):
-            spot_nodes = circuit.nodes_of_metal(node) if node in metals else ()
-            if (circuit.plate_notes.get(node, {}).get("model") != "plate grid" or info.polygon is None
-                    or len(spot_nodes) > MAX_PLATE_CONTACTS or n < 3 or {lp.edges[i - 1], lp.edges[i]} & routed):
-                continue
-            spots = [circuit.positions[circuit.nodes[k]] for k in spot_nodes]
-            ends = [_spot_at(spots, pos.get(lp.nodes[i - 1])), _spot_at(spots, pos.get(lp.nodes[(i + 1) % n]))]
-            if None not in ends and ends[0] != ends[1]:
-                out.setdefault(li, []).append((metals[node], spots, ends[0], ends[1]))
-    return out
-
-
-def _spot_at(spots: list, p) -> int | None:
-    """The index of the fastening spot at position p (a bolt's point sits on its spot), or None."""
-    if p is None:
-        return None
-    return next((k for k, s in enumerate(spots) if math.dist(s, p) < 1e-6), None)
-
-
 class HumBudget:
     """What every frequency's solve needs, set up once: sources, stages, tests, loop fluxes, frequencies.
 
@@ -206,7 +178,7 @@ class HumBudget:
         self.stage_b = np.array([circuit.point_node[stages[k].b] for k in self.valid_idx], dtype=int)
         self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
         self.across = [self.branch_index.get(s.across) if s.across else None for s in stages]
-        self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, _passages(plan, circuit, loops))
+        self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, loop_passages(plan, circuit, loops))
         for name, (_, h) in self.pairs.items():
             spacing, height = pair_geometry(h)
             for li, info in enumerate(loops):
@@ -253,7 +225,8 @@ class HumBudget:
             self.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
         return HumResult(channels, list(self.rectifier_results.values()),
                          [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
-                         merged.crosstalk(), self.freqs, merged.network_rows, self.notes, merged.probes)
+                         merged.crosstalk(), self.freqs, merged.network_rows, self.notes, merged.probes,
+                         merged.levels())
 
     def _active(self, f: float) -> list:
         return [s for s in self.hum_sources if s.parts.get(f, 0) != 0] if f in self.freqs else []

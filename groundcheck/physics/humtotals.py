@@ -77,6 +77,10 @@ class HumResult:
     network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
     notes: list[str] = field(default_factory=list)
     probes: dict = field(default_factory=dict)    # frequency -> power sum over the sources of each probe pair, V²
+    # channel -> source group -> its worst-case level at the output, V: per frequency the larger of its stages'
+    # drops added in magnitude and its signed sum, power-summed over frequencies ('rectifier charging' or
+    # 'KIND:NAME', as in the contributors)
+    levels: dict = field(default_factory=dict)
 
     def as_dict(self) -> dict:
         return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
@@ -166,6 +170,18 @@ class Merged:
         if listening is not None and listening.verdict and worst is None:
             audible, worst = False, None
         return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2))
+
+    def levels(self) -> dict:
+        """Each source group's worst-case level at each channel's output, V (see :attr:`HumResult.levels`)."""
+        out: dict = {}
+        for ch in self.b.channels:
+            power: dict = defaultdict(float)
+            for f in self.b.freqs:
+                signed, worst = self.out[ch].get(f, {}), self.in_phase[ch].get(f, {})
+                for group in signed.keys() | worst.keys():
+                    power[group] += max(abs(signed.get(group, 0.0)), worst.get(group, 0.0)) ** 2
+            out[ch] = {g: math.sqrt(p) for g, p in power.items()}
+        return out
 
     def _contributors(self, ch: str) -> list[dict]:
         """The channel's contributors with their level and their signed share of the channel's (signed) hum power:

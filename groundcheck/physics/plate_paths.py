@@ -15,6 +15,7 @@ distributed current, Φ = ∫A·J dV / I).
 
 from __future__ import annotations
 
+import math
 from functools import lru_cache
 
 import numpy as np
@@ -24,7 +25,7 @@ import scipy.sparse.linalg as spla
 from .impedance import FASTENER_RADIUS
 from .plate import grid_laplacian, grid_step
 
-__all__ = ["plate_flow", "passage_flow", "passage_vector", "MAX_PLATE_CONTACTS"]
+__all__ = ["plate_flow", "passage_flow", "passage_vector", "loop_passages", "MAX_PLATE_CONTACTS"]
 
 #: fastenings of one plate taken with their spreading paths at most; beyond, passages keep the straight chord
 MAX_PLATE_CONTACTS = 64
@@ -127,3 +128,40 @@ def passage_vector(src, metal, spots: list, enter: int, leave: int) -> np.ndarra
     mids, vecs, flow = passage_flow(metal, spots, enter, leave)
     return src.b_ref * src.r_ref ** 3 * (flow @ _potential_dot(src, mids, vecs))
 
+
+def loop_passages(plan, circuit, loops) -> dict:
+    """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter, leave), where the
+    loop's outline takes the straight chord between the two spots (a bolt at each, no route).
+
+    Parameters:
+        plan: the plan.
+        circuit: its circuit (plate grids and their contact spots).
+        loops: the independent loops.
+    Returns:
+        loop index -> [(metal part, contact spots, entering spot, leaving spot)].
+    References:
+        none (geometry bookkeeping).
+    """
+    metals = {m.name: m for m in plan.metals}
+    pos = {p.name: p.pos for p in plan.points if p.pos is not None}
+    routed = {c.name for c in plan.conductors if c.route}
+    out: dict = {}
+    for li, info in enumerate(loops):
+        lp, n = info.loop, len(info.loop.nodes)
+        for i, node in enumerate(lp.nodes):
+            spot_nodes = circuit.nodes_of_metal(node) if node in metals else ()
+            if (circuit.plate_notes.get(node, {}).get("model") != "plate grid" or info.polygon is None
+                    or len(spot_nodes) > MAX_PLATE_CONTACTS or n < 3 or {lp.edges[i - 1], lp.edges[i]} & routed):
+                continue
+            spots = [circuit.positions[circuit.nodes[k]] for k in spot_nodes]
+            ends = [_spot_at(spots, pos.get(lp.nodes[i - 1])), _spot_at(spots, pos.get(lp.nodes[(i + 1) % n]))]
+            if None not in ends and ends[0] != ends[1]:
+                out.setdefault(li, []).append((metals[node], spots, ends[0], ends[1]))
+    return out
+
+
+def _spot_at(spots: list, p) -> int | None:
+    """The index of the fastening spot at position p (a bolt's point sits on its spot), or None."""
+    if p is None:
+        return None
+    return next((k for k, s in enumerate(spots) if math.dist(s, p) < 1e-6), None)

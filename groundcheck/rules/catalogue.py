@@ -86,7 +86,9 @@ RULES: dict[str, Rule] = dict([
        "earth."),
     _r("GC102", "shared-return", "fault",
        "A conductor that carries a supply-return current (rectifier charging, DC load, heater, leakage) "
-       "and also lies between the two points of a sensitive pair.",
+       "and also lies between the two points of a sensitive pair. A note instead of a fault when the hum budget "
+       "puts that source's worst-case level at the stage's channel output below the contributor level ('--hum-level', "
+       "-100 dBV by default).",
        "The current's voltage drop across the shared conductor appears at the stage's input as if it were "
        "signal: rectifier charging current gives hum at twice the mains frequency and a buzz of its harmonics.",
        "Take the supply return straight to the supply star (reservoir negative and centre tap joined by a "

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from ..core.units import dbv
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -48,31 +49,57 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     """
     plan_conductors = {c.name: c for c in s.plan.conductors}
     leak = {c.name for c in s.plan.currents if c.role == "leakage"}
+    channels = {st.name: st.channel for st in s.plan.stages}
     out = []
     for row in s.coupling:
-        via_ic = [x for x in row.shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
-        if via_ic and all(plan_conductors[x].balanced for x in via_ic):
-            fix = (f"the current reaches the stage along the shield of {', '.join(via_ic)}, which the balanced "
-                   "input rejects by its common-mode rejection (the hum budget gives what is left); if it is heard, "
-                   "use an input of better rejection or a ground-lift network on the signal side; never lift the "
-                   "protective earth")
-        elif via_ic:
-            fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
-                   "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
-        elif row.kind == "current" and row.source in leak:
-            fix = (f"keep {row.stage_a} and {row.stage_b} off the conductors that carry {row.source}; "
-                   "give the stage its own reference wire")
-        else:
-            fix = (f"join {row.a} and {row.b} by a short wire of their own, then one wire to the star; "
-                   f"take {row.stage_b} and {row.stage_a} to the signal star by wires that carry no supply current")
+        fix = _shared_fix(row, plan_conductors, leak)
+        figures = {"transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"), "stage_gain_db": row.stage_gain}
+        severity, heard = "fault", ""
+        level = _source_level(s, row, channels.get(row.stage))
+        if level is not None:
+            figures["level_dbv"] = round(dbv(level), 1) if level > 0 else None
+            if level <= 0 or dbv(level) < s.options.contributor_level:
+                severity = "note"
+                heard = (f"; the hum budget puts it at {dbv(level):.1f} dBV at the {channels[row.stage]} output, "
+                         f"below the {s.options.contributor_level:g} dBV contributor level" if level > 0 else
+                         f"; the hum budget finds none of it at the {channels[row.stage]} output")
         out.append(Finding(
-            "GC102", "fault",
+            "GC102", severity,
             f"{'leakage current' if row.source in leak else f'{row.kind} return'} {row.source} ({row.a} → {row.b}) "
             f"shares {', '.join(row.shared)} "
-            f"with stage {row.stage} ({row.stage_a} – {row.stage_b})",
-            row.location, (row.source, row.stage, *row.shared),
-            {"transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"), "stage_gain_db": row.stage_gain}, fix))
+            f"with stage {row.stage} ({row.stage_a} – {row.stage_b}){heard}",
+            row.location, (row.source, row.stage, *row.shared), figures, fix))
     return out
+
+
+def _shared_fix(row, plan_conductors: dict, leak: set) -> str:
+    """What to do about one shared return: by where its current meets the stage (an interconnect's shield,
+    balanced or not; a leakage current; a supply return)."""
+    via_ic = [x for x in row.shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
+    if via_ic and all(plan_conductors[x].balanced for x in via_ic):
+        fix = (f"the current reaches the stage along the shield of {', '.join(via_ic)}, which the balanced "
+               "input rejects by its common-mode rejection (the hum budget gives what is left); if it is heard, "
+               "use an input of better rejection or a ground-lift network on the signal side; never lift the "
+               "protective earth")
+    elif via_ic:
+        fix = (f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a balanced "
+               "interconnect, or a ground-lift network on the signal side; never lift the protective earth")
+    elif row.kind == "current" and row.source in leak:
+        fix = (f"keep {row.stage_a} and {row.stage_b} off the conductors that carry {row.source}; "
+               "give the stage its own reference wire")
+    else:
+        fix = (f"join {row.a} and {row.b} by a short wire of their own, then one wire to the star; "
+               f"take {row.stage_b} and {row.stage_a} to the signal star by wires that carry no supply current")
+    return fix
+
+
+def _source_level(s: Solved, row, channel: str | None) -> float | None:
+    """The worst-case level (V) that a shared return's source puts at its stage's channel output, from the hum
+    budget; None without one (no hum budget, or the channel not in it)."""
+    if s.hum is None or channel not in s.hum.levels:
+        return None
+    group = "rectifier charging" if row.kind == "rectifier" else f"{row.kind}:{row.source}"
+    return s.hum.levels[channel].get(group, 0.0)
 
 
 @rule("GC401", needs="solve")
