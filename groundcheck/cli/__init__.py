@@ -63,8 +63,8 @@ def _check_command(sub) -> None:
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     c.add_argument("--jobs", type=processes_type, default=1, metavar="N",
                    help="use N processes: several plans are checked side by side; for one plan, a large flat "
-                   "file is read by two and the hum budget's frequencies are shared among N (Linux; default 1; at most "
-                   "the processors available)")
+                   "file is read by two and the solves (the hum budget's frequencies, the shared returns, the outlet "
+                   "voltages) are shared among N (Linux; default 1; at most the processors available)")
     add_analysis_options(c)
 
 

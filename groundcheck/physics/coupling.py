@@ -279,8 +279,8 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     # branch currents only for the sources that share (not one column for every source of a large installation)
     used = sorted({int(si) for _, si in pairs})
     scol = {si: i for i, si in enumerate(used)}
-    I = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).I
-    W = fac.z[:, None] * I                                           # branches × sharing sources
+    W = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).dv   # Z·I, branches × sources
+    admittance = np.abs(fac.y)
     rows = []
     for k, si in pairs:
         s, st = sources[si], stages[k]
@@ -288,7 +288,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
             continue
         t_k = test.I[:, column[int(k)]]
         shares = W[:, scol[int(si)]] * t_k
-        carrying = (np.abs(I[:, scol[int(si)]]) >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
+        carrying = (np.abs(W[:, scol[int(si)]]) * admittance >= SHARE_THRESHOLD) & (np.abs(t_k) >= SHARE_THRESHOLD)
         if not carrying.any():
             continue
         rows.append(SharedReturn(s.name, s.kind, s.a, s.b, s.location, st.name, st.a, st.b, st.gain, st.location,
