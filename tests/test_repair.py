@@ -438,3 +438,30 @@ def test_a_channel_star_chained_through_the_other_channels_star(tmp_path):
     assert "right_link: right.star to psu_star, 140 mm" in apply_edits(text, e.candidate.edits)
     # the phono stage as written (each channel star on its own wire to the supply star) has no such finding
     assert not any(g.code == "GC103" and "left.star" in g.elements for g in analyze(load(DUAL)).findings)
+
+
+BOOTH = EXAMPLES[0].parents[1] / "tests" / "plans" / "booth" / "podcast-booth.gplan"
+
+
+def test_advice_that_makes_a_channel_hum_louder_or_gains_nothing_is_rejected_not_suggested():
+    """The podcast booth (two preamps on one outlet, the mixer and a class II laptop on another): a ground-lift
+    network in the mixer breaks its shields' loops but sends the flat cable's induced current through its signal
+    ground (louder); one in the class II laptop changes nothing. Both are listed as considered and rejected."""
+    before, evs = _suggest(BOOTH)
+    by_title = {e.candidate.title: e for e in evs}
+    mixer = by_title["give mixer a ground-lift network between its signal ground and chassis (never the protective "
+                     "earth)"]
+    assert mixer.rejected.startswith("it would make the host hum") and max(mixer.hum_change_db.values()) > 0.5
+    laptop = by_title["give laptop a ground-lift network between its signal ground and chassis (never the "
+                      "protective earth)"]
+    assert laptop.rejected.startswith("no predicted gain")
+    for e in evs:
+        if not e.rejected:
+            assert e.score > 0 and max(e.hum_change_db.values()) <= 0.5
+
+
+def test_a_loop_through_two_outlets_closed_by_a_balanced_link_is_not_told_to_use_a_balanced_link():
+    r = analyze(load(BOOTH))
+    loops = [f for f in r.findings if f.code == "GC101"]
+    assert loops and all(f.elements and "is balanced: its input rejects" in f.fix for f in loops)
+    assert not any("use a balanced interconnect" in f.fix for f in loops)

@@ -67,6 +67,9 @@ class Evaluation:
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
 HUM_FLOOR_DBV = -140.0
 
+#: a change that makes a channel's hum louder by more than this (dB), clearing no danger or fault, is rejected
+LOUDER_DB = 0.5
+
 #: a protective path may change by this much (relative) before a change counts as weakening it: the
 #: plate model's own accuracy (see groundcheck.plate)
 PE_TOLERANCE = 0.06
@@ -151,6 +154,13 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     score += sum(weight[severity_rank(k0[k].severity)] for k in k0.keys() - k1.keys())
     score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
     ev.score = score
+    louder = {ch: d for ch, d in ev.hum_change_db.items() if d > LOUDER_DB}
+    if louder and ev.net.get("danger", 0) <= 0 and ev.net.get("fault", 0) <= 0:
+        # advice that makes a channel hum more is no advice, unless it clears a danger or a fault
+        ch, d = max(louder.items(), key=lambda kv: kv[1])
+        ev.rejected = f"it would make the {ch} hum {d:.1f} dB louder"
+    elif score <= 1e-9:
+        ev.rejected = "no predicted gain: no hum removed and no finding cleared on balance"
     return ev
 
 

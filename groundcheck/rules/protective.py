@@ -22,8 +22,8 @@ if TYPE_CHECKING:
     from ..physics.safety import SafetyResult
     from .electrical import Solved
 
-__all__ = ["rule_protective_earth", "rule_class_ii", "rule_protective_figures", "rule_device_earths",
-           "DEVICE_EARTH_LIMIT"]
+__all__ = ["rule_mains_not_described", "rule_protective_earth", "rule_class_ii", "rule_protective_figures",
+           "rule_device_earths", "DEVICE_EARTH_LIMIT"]
 
 
 @rule("GC201", "GC202", "GC203", "GC204", "GC205", "GC209", "GC210")
@@ -362,3 +362,26 @@ def rule_device_earths(s: Solved) -> list[Finding]:
                                {"resistance_ohm": round(d.resistance, 4)},
                                "find and repair the high-resistance joint on the path (cord, strip or building run)"))
     return out
+
+
+@rule("GC111")
+def rule_mains_not_described(ctx: AuditContext) -> list[Finding]:
+    """GC111: touchable metal and no supply described: the protective earth is unchecked, not clean.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC111 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    plan = ctx.plan
+    if plan.mains is not None or plan.device_supplies or any(p.kind == "inlet" for p in plan.points):
+        return []
+    touchable = [m for m in plan.metals if m.touchable]
+    if not touchable:
+        return []
+    return [Finding("GC111", "note", f"{touchable[0].name} is touchable but the plan has no mains statement: the "
+                    "protective earth is not checked", touchable[0].location, tuple(m.name for m in touchable), {},
+                    "describe the supply ('mains 230 V 50 Hz, fuse 1 A slow, ...') or, for double-insulated equipment, "
+                    "'mains ..., class II'")]

@@ -41,21 +41,7 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
         figures = {"conductors": len(info.loop.edges)}
         if info.area is not None:
             figures["area_mm2"] = round(info.area * 1e6, 1)
-        opener = ctx.conductors.get(info.open_at)
-        if opener is not None and is_fastening(opener, ctx.metals):
-            where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
-            actions = (("insulate", info.open_at),)
-        elif opener is not None:
-            where, actions = f"open the loop at {info.open_at}", (("open", info.open_at),)
-        else:
-            where, actions = "open the loop outside the protective earth", ()
-        fix = where + \
-            {"shield-both-ends": " (terminate the shield at one end only)",
-             "channel-returns": " (join the channels at one point only)",
-             "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
-             "metal-return": " (return currents by wire, not through the metal)",
-             "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal side; never lift the "
-                            "protective earth)"}.get(info.closed_by, "")
+        fix, actions = _loop_fix(info, ctx.conductors.get(info.open_at), ctx)
         out.append(Finding("GC101", "warning",
                            f"ground loop closed by {LOOP_CLASSES[info.closed_by]}: {_loop_text(info.loop)}",
                            ctx.loc(info.open_at or info.loop.edges[-1]), info.loop.edges, figures, fix, actions))
@@ -64,6 +50,27 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
         out.append(Finding("GC101", "note", f"{extra} more independent loops not listed (limit {LOOP_LIST_LIMIT})",
                            ctx.plan.location, (), {"loops_total": ctx.loop_total}, "open the loops listed first"))
     return out
+
+
+def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
+    """What to do about a loop, by what closes it and where it opens: (the fix, its structured actions)."""
+    if info.closed_by == "mains-cords" and opener is not None and opener.kind == "interconnect" and opener.balanced:
+        return (f"{info.open_at} is balanced: its input rejects the loop's current by its common-mode rejection (the "
+                "hum budget gives what is left); if hum remains, plug the devices into one outlet or strip, or use an "
+                "input of better rejection; never lift the protective earth"), ()
+    if opener is not None and is_fastening(opener, ctx.metals):
+        where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
+        actions = (("insulate", info.open_at),)
+    elif opener is not None:
+        where, actions = f"open the loop at {info.open_at}", (("open", info.open_at),)
+    else:
+        where, actions = "open the loop outside the protective earth", ()
+    return where + {"shield-both-ends": " (terminate the shield at one end only)",
+                    "channel-returns": " (join the channels at one point only)",
+                    "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
+                    "metal-return": " (return currents by wire, not through the metal)",
+                    "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal side; never "
+                                   "lift the protective earth)"}.get(info.closed_by, ""), actions
 
 
 @rule("GC103", "GC104")
@@ -306,29 +313,6 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
                            f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
                            (("terminate-at", c.name, keep),)))
     return out
-
-
-@rule("GC111")
-def rule_mains_not_described(ctx: AuditContext) -> list[Finding]:
-    """GC111: touchable metal and no supply described: the protective earth is unchecked, not clean.
-
-    Parameters:
-        ctx: the audit context.
-    Returns:
-        GC111 findings.
-    References:
-        the rule catalogue (rules/catalogue.py), which names each code's sources.
-    """
-    plan = ctx.plan
-    if plan.mains is not None or plan.device_supplies or any(p.kind == "inlet" for p in plan.points):
-        return []
-    touchable = [m for m in plan.metals if m.touchable]
-    if not touchable:
-        return []
-    return [Finding("GC111", "note", f"{touchable[0].name} is touchable but the plan has no mains statement: the "
-                    "protective earth is not checked", touchable[0].location, tuple(m.name for m in touchable), {},
-                    "describe the supply ('mains 230 V 50 Hz, fuse 1 A slow, ...') or, for double-insulated equipment, "
-                    "'mains ..., class II'")]
 
 
 #: a stated length is implausible more than this share below the straight route (positions in a plan are drawn
