@@ -201,12 +201,15 @@ def test_the_reports_show_the_outlet_voltages(cli, tmp_path):
     assert 'id="outlet-voltages"' in html and "12.7 mV" in html and 'id="device-earths"' in html
 
 
-def test_the_advice_lands_the_shield_on_the_chassis_first(cli):
+def test_the_advice_plugs_the_desk_in_beside_the_preamp_then_lands_the_shield_on_the_chassis(cli):
     code, out, _ = cli("suggest", str(ROOM))
-    first = out.split("\n2. ")[0]
-    assert "1. land the shield of pre_out on the chassis where it enters" in first and "[answers GC113]" in first
-    assert "-    shield-to signal chassis\n   +    shield-to chassis" in first
-    assert "hum micpre.main: -46.2 dBV → below -140 dBV" in first
+    first, second = out.split("\n2. ")[0], out.split("\n2. ")[1].split("\n3. ")[0]
+    assert "1. plug desk in at strip, beside micpre" in first and "[answers GC101]" in first
+    assert "-device desk: simple, plugged wall_desk" in first and "+device desk: simple, plugged strip" in first
+    assert "hum monitors: -17.6 dBV → -70.4 dBV (52.7 dB quieter)" in first
+    assert "land the shield of pre_out on the chassis where it enters" in second and "[answers GC113]" in second
+    assert "-    shield-to signal chassis\n   +    shield-to chassis" in second
+    assert "hum micpre.main: -46.2 dBV → below -140 dBV" in second
 
 
 def test_the_planned_outlet_voltages_read_from_the_hum_solves_equal_their_own_solve():

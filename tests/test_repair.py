@@ -465,3 +465,17 @@ def test_a_loop_through_two_outlets_closed_by_a_balanced_link_is_not_told_to_use
     loops = [f for f in r.findings if f.code == "GC101"]
     assert loops and all(f.elements and "is balanced: its input rejects" in f.fix for f in loops)
     assert not any("use a balanced interconnect" in f.fix for f in loops)
+
+
+def test_a_loop_through_two_outlets_is_answered_by_plugging_the_devices_in_together():
+    """The booth's mixer plugged in beside the preamps: the loops of its balanced links no longer run through the
+    building's protective wiring, where the loaded flat cable induces 4.7 mV, so both channels lose most of their
+    hum; the edit changes only the plug point (the mixer's earth path is checked again, GC215)."""
+    before, evs = _suggest(BOOTH)
+    best = evs[0]
+    assert not best.rejected and best.candidate.moves_plug
+    assert best.candidate.title.startswith("plug mixer in at wall_l, beside pre_")
+    assert best.hum_change_db["guest"] < -20 and best.hum_change_db["host"] < -10
+    (edit,) = best.candidate.edits
+    assert edit.new.strip() == "device mixer: simple, plugged wall_l"
+    assert "GC215" not in _codes_after(best)

@@ -4,7 +4,8 @@ results, each as edits placed by the parser's spans (:mod:`groundcheck.advice.ed
 The vocabulary is the trade's (common practice): insulate a socket from the chassis, remove a second
 chassis bond, terminate a shield at one end, re-route a return to its star, join a rectifier's return
 ends directly, give the protective earth a stud of its own, thicken a protective conductor, turn a second
-bond into a lift network, a balanced interconnect, or a lift network on a device's signal side.  A
+bond into a lift network, a balanced interconnect, a lift network on a device's signal side, or plug two
+devices an interconnect joins into one outlet or strip.  A
 candidate that would touch a conductor the protective earth relies on is marked and never tried.
 """
 
@@ -256,6 +257,28 @@ def _installation_candidates(ctx: ChangeContext, add) -> None:
                           "GC101", (edit,)))
 
 
+def _replug_candidates(ctx: ChangeContext, add) -> None:
+    """An interconnect in a loop through two outlets' earths: plug either device in where the other is (one outlet
+    or strip for both), so that the loop no longer runs through the building's protective wiring."""
+    from ..physics.outlets import outlet_pairs
+    devices = {d.name: d for d in ctx.plan.devices}
+    looped = {e for lp in ctx.result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges}
+    pairs, names = outlet_pairs(ctx.plan)
+    for (a, b), name in zip(pairs, names):
+        c = ctx.cond[name]
+        if name not in looped:
+            continue
+        for end, there, other in ((c.b, a, c.a), (c.a, b, c.b)):
+            dev = devices.get(end.split(".", 1)[0])
+            mate = other.split(".", 1)[0]
+            st = ctx.src.statement(dev.location.line) if dev and dev.location.file == ctx.plan.file else None
+            ph = ctx.src.find(st, "plugged") if st is not None else None
+            if ph and len(ph) == 2:
+                add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both: the "
+                              f"loop of {name} no longer runs through the building's earth wiring)", "GC101",
+                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True))
+
+
 def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
     """An edit of statement ``st`` with ``, phrase`` after its last item (before any comment)."""
     n, _, b = ctx.src.span(st.phrases[-1][-1])
@@ -359,6 +382,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     _loop_candidates(ctx, add)
     _finding_candidates(ctx, add)
     _installation_candidates(ctx, add)
+    _replug_candidates(ctx, add)
     _shared_return_candidates(ctx, add)
     _crosstalk_candidates(ctx, add)
     return out

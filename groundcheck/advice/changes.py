@@ -37,6 +37,7 @@ class Candidate:
     edits: tuple[Edit, ...]
     touches_protective: bool = False
     wire: float = 0.0               # metres of wire the change lays (a re-routed wire's new length): its size
+    moves_plug: bool = False        # it plugs a device in elsewhere: the building's runs its earth used may change
 
 
 class ChangeContext:
