@@ -274,8 +274,9 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
             st = ctx.src.statement(dev.location.line) if dev and dev.location.file == ctx.plan.file else None
             ph = ctx.src.find(st, "plugged") if st is not None else None
             if ph and len(ph) == 2:
-                add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both: the "
-                              f"loop of {name} no longer runs through the building's earth wiring)", "GC101",
+                add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both, within "
+                              f"its current rating: the loop of {name} no longer runs through the building's earth "
+                              "wiring)", "GC101",
                               (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True))
 
 
