@@ -318,6 +318,12 @@ def test_the_text_report_lists_the_largest_outlet_pairs_and_counts_the_rest(cli,
     assert len(planned) == 59
     assert [planned[r] for r in rows] == sorted((planned[r] for r in rows), reverse=True)
     assert min(planned[r] for r in rows) >= max(v for k, v in planned.items() if k not in rows)
+    # the sixty devices' earth paths: the 50 highest listed (run lengths 5 m + 0.5 m per outlet: d59's first)
+    assert "Device earth paths to the main earthing terminal (broken and highest first, 50 of 60)" in out
+    assert "10 more devices not listed here (all are in --format json)" in out
+    earths = out.split("(broken and highest first, 50 of 60)")[1].split("more devices")[0]
+    listed = re.findall(r"│ (d\d+) +│", earths)
+    assert len(listed) == 50 and listed[0] == "d59" and "d0" not in listed
 
 
 LEAKY = """plan "leaky rack"

@@ -37,7 +37,7 @@ def escape(text) -> str:
 TABLE_ROWS = 12
 TABLE_LOOPS = 50
 
-#: outlet pairs listed in the text report (the largest as planned when there are more)
+#: outlet pairs and device earth paths listed in the text report (the largest first when there are more)
 TABLE_OUTLETS = 50
 
 
@@ -227,14 +227,26 @@ def _protective_tables(result: Result, console: Console) -> None:
         console.print(t)
         console.print()
     if result.device_earths:
-        t = Table(title="Device earth paths to the main earthing terminal", title_justify="left")
-        for col in ("device", "earth pin", "resistance"):
-            t.add_column(col)
-        for d in result.device_earths:
-            t.add_row(escape(d.device), escape(d.inlet),
-                      "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
-        console.print(t)
-        console.print()
+        _device_earth_table(result.device_earths, console)
+
+
+def _device_earth_table(earths, console: Console) -> None:
+    """Each device's earth-pin path: all of them, or the broken and the highest first when there are many."""
+    title = "Device earth paths to the main earthing terminal"
+    shown = list(earths)
+    if len(shown) > TABLE_OUTLETS:
+        shown = sorted(shown, key=lambda d: -math.inf if d.resistance is None else -d.resistance)[:TABLE_OUTLETS]
+        title += f" (broken and highest first, {TABLE_OUTLETS} of {len(earths)})"
+    t = Table(title=title, title_justify="left", min_width=len(title))     # the title on one line
+    for col in ("device", "earth pin", "resistance"):
+        t.add_column(col)
+    for d in shown:
+        t.add_row(escape(d.device), escape(d.inlet),
+                  "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ")
+    console.print(t)
+    if len(earths) > len(shown):
+        console.print(f"  {len(earths) - len(shown)} more devices not listed here (all are in --format json)")
+    console.print()
 
 
 def driver_words(pair) -> str:
