@@ -189,11 +189,16 @@ class Merged:
         contribution that cancels part of the others has a negative share."""
         clist = []
         out = self.out[ch]
+        sqrt = math.sqrt
         for (kind, name, group), per_f in self.contrib[ch].items():
-            lvl = math.sqrt(sum(abs(p) ** 2 for p in per_f.values()))
+            # the sums written out (most contributors have one or two frequencies; the same arithmetic as sum())
+            power = proj = 0.0
+            for f, p in per_f.items():
+                power += abs(p) ** 2
+                proj += (p * out[f][group].conjugate()).real
+            lvl = sqrt(power)
             if lvl < FLOOR_V:
                 continue
-            proj = sum((p * out[f][group].conjugate()).real for f, p in per_f.items())
             clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl,
                           "dbv": rounded(dbv(lvl)), "_proj": proj})
         total = sum(abs(p) ** 2 for groups in out.values() for p in groups.values()) or 1.0
