@@ -357,3 +357,27 @@ def test_leakage_above_the_product_safety_limits_is_a_fault():
     for f in found.values():
         assert f.severity == "fault" and f.location.line in (6, 8, 10)
         assert "never lift" in f.fix or "do not earth it yourself" in f.fix
+
+
+def test_a_device_whose_own_plan_is_class_ii_has_no_earth_pin_and_leaks_through_its_interconnect(tmp_path):
+    """A placed device whose plan says 'class II': its cord has no protective conductor (no earth path to check, no
+    unconnected-inlet warning); its stated 0.5 mA leaves through the interconnect's shield, and is over the class II
+    limit of 0.25 mA (IEC 60950-1:2005, Table 5A)."""
+    (tmp_path / "box.gplan").write_text('plan "class II box"\nmains 230 V 50 Hz, class II\n'
+                                        "metal case: steel 1 mm, 100 x 100 mm\npoint gnd: star, at 10,10 on case\n")
+    (tmp_path / "room.gplan").write_text(
+        'plan "room"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\npoint wall: outlet\n'
+        "wire run: wall to met, 10 m, 2.5 mm2, protective\n"
+        'device box: "box.gplan", plugged wall, leakage 0.5 mA\ndevice amp: simple, plugged wall\n'
+        "interconnect l: box.gnd to amp.gnd, 2 m, 0.1 mm2, terminated both, unbalanced, gain 0 dB, channel main\n")
+    plan = load(tmp_path / "room.gplan")
+    assert {d.name: d.equipment_class for d in plan.devices} == {"box": "II", "amp": "I"}
+    assert "box.cord" not in {c.name for c in plan.conductors} and "amp.cord" in {c.name for c in plan.conductors}
+    (leak,) = [c for c in plan.currents if c.name == "box.leakage"]
+    assert leak.a == "box.gnd"                       # where its interconnect lands, not its (unwired) inlet
+    r = analyze(plan)
+    assert [d.device for d in r.device_earths] == ["amp"]
+    codes = {f.code for f in r.findings}
+    assert "GC109" not in codes and {"GC102", "GC301", "GC216"} <= codes
+    (limit,) = [f for f in r.findings if f.code == "GC216"]
+    assert limit.figures["limit_a"] == 0.25e-3 and limit.figures["leakage_a"] == 0.5e-3

@@ -144,14 +144,20 @@ def assemble(built: list, file: str, ld) -> Plan:
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
     supplies = []
+    classes: dict = {}
     for dev, refs in devices:
-        supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names)
+        supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names, classes)
         if supply is not None:
             supplies.append((supply, dev.location))
     check_supplies(supplies, mains, header.get("supply"), ld.errors)
-    placed = {d.name: d for d, _ in devices}
+    placed = {d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class)) for d, _ in devices}
+    landings = {}                        # device -> the first point of it an interconnect lands on
+    for c, *_ in groups[Conductor]:
+        if c.kind == "interconnect":
+            for end in (c.a, c.b):
+                landings.setdefault(end.split(".", 1)[0], end)
     groups[Current] += [(x, {}) for x in leakage_currents(list(placed.values()), {s[0]: s[1:] for s, _ in supplies},
-                                                          header.get("supply"), points)]
+                                                          header.get("supply"), points, landings)]
     nodes = set(points) | set(metals)
     for dev, refs in devices:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:

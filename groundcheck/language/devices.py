@@ -59,36 +59,47 @@ def simple_device(dev: Device) -> Plan:
     return Plan(title=n, file=str(loc.file), metals=metals, points=points, conductors=tuple(conductors), location=loc)
 
 
+def _device_plan(dev: Device, ld, library_dirs: list[str]) -> Plan | None:
+    """A device's own plan, loaded; None (its error added to ``ld.errors``) when it is missing, places itself or
+    nests too deep, or does not load."""
+    path = find_device(dev.source, dev, ld, library_dirs)
+    if path is None:
+        ld.errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
+                                   "a device is a .gplan file beside the plan or in a library folder "
+                                   "(library \"DIR\", GROUNDCHECK_LIBRARY); nothing outside them is read"))
+        return None
+    if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
+        ld.errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,
+                                   "a device plan cannot place itself, directly or not"))
+        return None
+    try:
+        return ld.load_device(path)
+    except PlanErrors as e:
+        ld.errors.extend(e.errors)
+        return None
+
+
 def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: dict, metals: dict,
-                  points: dict, names: dict) -> tuple | None:
+                  points: dict, names: dict, classes: dict) -> tuple | None:
     """Add a device's elements to the installation, prefixed with its name and moved to its place.
-    Returns the device's supply (name, volts, hertz) when its plan states one."""
+    Returns the device's supply (name, volts, hertz) when its plan states one; a device whose own plan is class II
+    is entered in ``classes`` (device name -> "II") and gets no protective conductor in its cord."""
     errors = ld.errors
     supply = None
     if dev.source == "simple":
         sub = simple_device(dev)
         cord_default = DEFAULT_CORD
     else:
-        path = find_device(dev.source, dev, ld, library_dirs)
-        if path is None:
-            errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
-                                    "a device is a .gplan file beside the plan or in a library folder "
-                                    "(library \"DIR\", GROUNDCHECK_LIBRARY); nothing outside them is read"))
-            return
-        if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
-            errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,
-                                    "a device plan cannot place itself, directly or not"))
-            return
-        try:
-            loaded = ld.load_device(path)
-        except PlanErrors as e:
-            errors.extend(e.errors)
+        loaded = _device_plan(dev, ld, library_dirs)
+        if loaded is None:
             return
         prefix = dev.name + "."
         sub = prefixed(loaded, prefix)
         m = loaded.mains
         cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
         supply = (dev.name, m.voltage, m.frequency) if m else None
+        if m is not None and m.equipment_class == "II":
+            classes[dev.name] = "II"         # its cord has no protective conductor, as a class II simple device's
     tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
     taken = [x.name for x in (*sub.metals, *sub.points, *sub.conductors) if x.name in names or x.name in points
              or x.name in metals]
@@ -112,7 +123,7 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
     for x in sub.fields:
         groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
     pe = f"{dev.name}.{PE_POINT}"
-    if dev.plugged is not None and pe in points:
+    if dev.plugged is not None and pe in points and classes.get(dev.name, dev.equipment_class) == "I":
         groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
                                             length=dev.cord_length or cord_default[0],
                                             area=dev.cord_area or cord_default[1],

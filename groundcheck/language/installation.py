@@ -58,12 +58,15 @@ def check_supplies(supplies: list, mains, supply, errors: list) -> None:
                                 "supply"))
 
 
-def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict) -> list[Current]:
+def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict,
+                     landings: dict | None = None) -> list[Current]:
     """The leakage current of every device, from its stated leakage, its stated Y capacitance or its class's
     default (simple devices), as a stated current from the device's chassis side to the main earthing terminal.
 
     ``supplies``: device name -> (V, Hz) of a device's own plan; ``supply``: the installation's.  A device whose
-    supply voltage is unknown (no ``supply`` and no plan of its own) gets no default leakage."""
+    supply voltage is unknown (no ``supply`` and no plan of its own) gets no default leakage.  A class II device
+    leaks from its signal ground (a simple device's ``gnd``; for a device with a plan of its own, the first point
+    of it an interconnect lands on, from ``landings``)."""
     met = next((p.name for p in points.values() if p.kind == "earthing-terminal"), None)
     if met is None:
         return []
@@ -80,7 +83,8 @@ def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict
             if c is None and dev.source == "simple":
                 c = DEFAULT_Y_CAPACITANCE[dev.equipment_class]
             amps = volts * 2 * math.pi * hz * c if c else 0.0
-        start = f"{dev.name}.{PE_POINT}" if dev.equipment_class == "I" else f"{dev.name}.gnd"
+        start = (f"{dev.name}.{PE_POINT}" if dev.equipment_class == "I" else
+                 f"{dev.name}.gnd" if dev.source == "simple" else (landings or {}).get(dev.name, ""))
         if amps > 0 and start in points:
             out.append(Current(f"{dev.name}.leakage", start, met, ((amps, hz or 0.0),), "leakage", None,
                                dev.location))

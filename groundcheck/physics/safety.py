@@ -333,7 +333,9 @@ def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tup
     References:
         IEC 60364-5-54.
     """
-    inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT)
+    class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}     # no earth pin to check
+    inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT
+                    and p.name.split(".", 1)[0] not in class_ii)
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
     if not inlets or not mets:
         return None

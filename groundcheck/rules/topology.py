@@ -368,12 +368,14 @@ def rule_unconnected(ctx: AuditContext) -> list[Finding]:
     members: dict[int, set] = {}
     for name, label in zip(order, labels.tolist()):
         members.setdefault(label, set()).add(name)
+    # a class II device's inlet has no protective conductor in its cord: left on its own, it is as it should be
+    idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"}
     for comp in members.values():
-        if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points:
+        if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points or comp <= idle:
             continue
         names = sorted(comp)
         listed = f"{', '.join(names[:6])}{'…' if len(names) > 6 else ''}"
-        out.append(Finding("GC109", "warning", f"{listed} reach no ground",
+        out.append(Finding("GC109", "warning", f"{listed} {'reaches' if len(names) == 1 else 'reach'} no ground",
                            min(ctx.loc(n) for n in names), tuple(names[:20]), {"points": len(names)},
                            "connect these points, or remove them from the plan"))
     for c in ctx.plan.conductors:
