@@ -479,3 +479,22 @@ def test_a_loop_through_two_outlets_is_answered_by_plugging_the_devices_in_toget
     (edit,) = best.candidate.edits
     assert edit.new.strip() == "device mixer: simple, plugged wall_l"
     assert "GC215" not in _codes_after(best)
+
+
+def test_a_device_on_an_unwired_outlet_is_plugged_in_where_the_earth_path_is_sound_first(tmp_path):
+    """The amplifier's outlet has no protective wiring (GC215, a danger); the first suggestion plugs it in beside
+    the keyboard, whose earth path is sound, and says the broken outlet still needs repair. Its hum also falls, as
+    its leakage no longer reaches the earth through the interconnect's shield."""
+    path = tmp_path / "corner.gplan"
+    path.write_text('plan "rehearsal corner"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
+                    "point wall: outlet\npoint spare: outlet\nwire run: wall to met, 15 m, 2.5 mm2, protective\n"
+                    "device amp: simple, plugged spare\ndevice keys: simple, plugged wall\n"
+                    "interconnect k: keys.gnd to amp.gnd, 3 m, 0.1 mm2, terminated both, unbalanced, gain 10 dB, "
+                    "channel main\n")
+    before, evs = _suggest(path)
+    assert any(f.code == "GC215" and f.severity == "danger" for f in before.findings)
+    best = evs[0]
+    assert not best.rejected and best.candidate.reason == "GC215" and best.candidate.moves_plug
+    assert best.candidate.title.startswith("plug amp in at wall, whose earth path is sound")
+    assert "have the protective connection of spare repaired" in best.candidate.title
+    assert "GC215" not in _codes_after(best) and best.hum_change_db["main"] < 0

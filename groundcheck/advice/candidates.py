@@ -13,13 +13,13 @@ from __future__ import annotations
 
 import math
 
-from ..model.installation import shield_ends
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT, Plan
 from ..rules.results import Result
 from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, STUD_CLEARANCE, Candidate,
                       ChangeContext, delete_change, device_note, local_name, reroute, rephrase, squeeze)
 from .edits import Edit
+from .installation_changes import installation_candidates, shield_to_chassis
 
 __all__ = ["Candidate", "candidates"]
 
@@ -73,7 +73,7 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
         elif f.code in ("GC205", "GC206"):
             add(_bonding_wire(ctx, f))
         elif f.code == "GC113":
-            add(_shield_to_chassis(ctx, f))
+            add(shield_to_chassis(ctx, f))
 
 
 def _star_candidates(ctx: ChangeContext, f, add) -> None:
@@ -217,95 +217,6 @@ def _thicker(ctx: ChangeContext, f) -> Candidate | None:
                      f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False)
 
 
-def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
-    """Interconnects in loops through mains cords, or sharing a supply or leakage current with a stage."""
-    kinds = {c.name: c.kind for c in plan.conductors}
-    names = {e for lp in result.loops if lp.closed_by == "mains-cords"
-             for e in lp.loop.edges if kinds.get(e) == "interconnect"}
-    # a cable that shares a rectifier's charging current is a power umbilical: balancing it cures nothing (the
-    # cure is inside the supply, below), so only leakage and stated currents count here
-    names |= {e for row in result.coupling if row.kind != "rectifier" for e in row.shared
-              if kinds.get(e) == "interconnect"}
-    return names
-
-
-def _installation_candidates(ctx: ChangeContext, add) -> None:
-    """Between pieces of equipment: a balanced interconnect, or a lift network on a device's signal side."""
-    for name in sorted(_installation_interconnects(ctx.plan, ctx.result)):
-        c = ctx.cond[name]
-        st = ctx.statement(c)
-        if st is None:
-            continue
-        ph = ctx.src.find(st, "unbalanced")
-        if ph:
-            add(Candidate(f"use a balanced interconnect for {name}", "GC101", (ctx.src.replace(st, [(ph[0],
-                                                                                                     "balanced")]),)))
-        for end in (c.a, c.b):
-            pt = ctx.plan.point(end)
-            if pt is None or not pt.group:
-                continue
-            dev = pt.group.split(".", 1)[0]
-            bond = ctx.cond.get(f"{dev}.gnd_bond")
-            dst = ctx.statement(bond) if bond is not None and bond.kind == "bolt" else None
-            if dst is None:
-                continue
-            ph = ctx.src.find(dst, "signal-ground")
-            edit = ctx.src.replace(dst, [(ph[1], "lift")]) if ph and len(ph) > 1 else _appended(ctx, dst,
-                                                                                                 "signal-ground lift")
-            add(Candidate(f"give {dev} a ground-lift network between its signal ground and chassis (never the "
-                          "protective earth)",
-                          "GC101", (edit,)))
-
-
-def _replug_candidates(ctx: ChangeContext, add) -> None:
-    """An interconnect in a loop through two outlets' earths: plug either device in where the other is (one outlet
-    or strip for both), so that the loop no longer runs through the building's protective wiring."""
-    from ..physics.outlets import outlet_pairs
-    devices = {d.name: d for d in ctx.plan.devices}
-    looped = {e for lp in ctx.result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges}
-    pairs, names = outlet_pairs(ctx.plan)
-    for (a, b), name in zip(pairs, names):
-        c = ctx.cond[name]
-        if name not in looped:
-            continue
-        for end, there, other in ((c.b, a, c.a), (c.a, b, c.b)):
-            dev = devices.get(end.split(".", 1)[0])
-            mate = other.split(".", 1)[0]
-            st = ctx.src.statement(dev.location.line) if dev and dev.location.file == ctx.plan.file else None
-            ph = ctx.src.find(st, "plugged") if st is not None else None
-            if ph and len(ph) == 2:
-                add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both, within "
-                              f"its current rating: the loop of {name} no longer runs through the building's earth "
-                              "wiring)", "GC101",
-                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True))
-
-
-def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
-    """An edit of statement ``st`` with ``, phrase`` after its last item (before any comment)."""
-    n, _, b = ctx.src.span(st.phrases[-1][-1])
-    row = ctx.src.lines[n - 1]
-    edit = ctx.src.replace(st, [])
-    rows = edit.new.split("\n")
-    rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
-    return Edit(edit.line, "\n".join(rows), (), edit.last)
-
-
-def _shield_to_chassis(ctx: ChangeContext, f):
-    """GC113: land the interconnect's shield on the chassis at the end where it lands on a signal ground."""
-    (_, name, end), = f.actions
-    c = ctx.cond.get(name)
-    st = ctx.statement(c) if c is not None else None
-    if st is None:
-        return None
-    ends = list(shield_ends(c))
-    ends[0 if end == c.a else 1] = "chassis"
-    new = "shield-to chassis" if ends == ["chassis", "chassis"] else f"shield-to {ends[0]} {ends[1]}"
-    ph = ctx.src.find(st, "shield-to")
-    edit = (ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]]) if ph else _appended(ctx, st, new))
-    return Candidate(f"land the shield of {name} on the chassis where it enters, not on the signal ground at {end}",
-                     "GC113", (Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last),))
-
-
 def _join_ends(ctx: ChangeContext, row, add) -> None:
     """A rectifier's return (its charging current, or its filter capacitor's ripple current) whose two ends are
     not joined by a conductor of their own: move the far end of a conductor leaving one end onto the other, so
@@ -382,8 +293,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
 
     _loop_candidates(ctx, add)
     _finding_candidates(ctx, add)
-    _installation_candidates(ctx, add)
-    _replug_candidates(ctx, add)
+    installation_candidates(ctx, add)
     _shared_return_candidates(ctx, add)
     _crosstalk_candidates(ctx, add)
     return out

@@ -368,8 +368,10 @@ def rule_unconnected(ctx: AuditContext) -> list[Finding]:
     members: dict[int, set] = {}
     for name, label in zip(order, labels.tolist()):
         members.setdefault(label, set()).add(name)
-    # a class II device's inlet has no protective conductor in its cord: left on its own, it is as it should be
-    idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"}
+    # a class II device's inlet has no protective conductor in its cord, and an outlet nothing is plugged into is
+    # no part of the ground system: left on their own, they are as they should be (GC215 checks what is plugged in)
+    idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"} | {
+        p.name for p in ctx.plan.points if p.kind == "outlet"}
     for comp in members.values():
         if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points or comp <= idle:
             continue
