@@ -498,3 +498,6 @@ def test_a_device_on_an_unwired_outlet_is_plugged_in_where_the_earth_path_is_sou
     assert best.candidate.title.startswith("plug amp in at wall, whose earth path is sound")
     assert "have the protective connection of spare repaired" in best.candidate.title
     assert "GC215" not in _codes_after(best) and best.hum_change_db["main"] < 0
+    # the outlet left empty is still reported as unwired, as an outlet
+    (left,) = [f for f in best.result.findings if f.code == "GC109"]
+    assert left.message == "outlet spare does not reach the main earthing terminal" and "repaired" in left.fix

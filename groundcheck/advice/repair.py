@@ -145,9 +145,19 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     if any(k1[k].severity == "danger" for k in new):
         ev.rejected = "it would add a danger finding"
         return ev
-    if any(k1[k].code in ("GC106", "GC109", "GC401") for k in new):
+    outlets = {p.name for p in after.plan.points if p.kind == "outlet"}
+    # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the signal ground
+    if any(k1[k].code in ("GC106", "GC109", "GC401") and not (cand.moves_plug and set(k1[k].elements) <= outlets)
+           for k in new):
         ev.rejected = "it would leave part of the signal ground unconnected"
         return ev
+    _score(ev, before, after, k0, k1)
+    return ev
+
+
+def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:
+    """The hum change and score of a candidate that passed the safety checks; rejected when it makes a channel
+    louder without clearing a danger or fault, or gains nothing."""
     h0, h1 = _hum_db(before), _hum_db(after)
     ev.hum_before_dbv, ev.hum_after_dbv = h0, {ch: h1.get(ch, HUM_FLOOR_DBV) for ch in h0}
     ev.hum_change_db = {ch: ev.hum_after_dbv[ch] - h0[ch] for ch in h0}
@@ -163,7 +173,6 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         ev.rejected = f"it would make the {ch} hum {d:.1f} dB louder"
     elif score <= 1e-9:
         ev.rejected = "no predicted gain: no hum removed and no finding cleared on balance"
-    return ev
 
 
 #: the reason given for a candidate the time budget left untried

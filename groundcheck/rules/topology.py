@@ -368,15 +368,20 @@ def rule_unconnected(ctx: AuditContext) -> list[Finding]:
     members: dict[int, set] = {}
     for name, label in zip(order, labels.tolist()):
         members.setdefault(label, set()).add(name)
-    # a class II device's inlet has no protective conductor in its cord, and an outlet nothing is plugged into is
-    # no part of the ground system: left on their own, they are as they should be (GC215 checks what is plugged in)
-    idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"} | {
-        p.name for p in ctx.plan.points if p.kind == "outlet"}
+    # a class II device's inlet has no protective conductor in its cord: left on its own, it is as it should be
+    idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"}
+    outlets = {p.name for p in ctx.plan.points if p.kind == "outlet"}
     for comp in members.values():
         if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points or comp <= idle:
             continue
         names = sorted(comp)
         listed = f"{', '.join(names[:6])}{'…' if len(names) > 6 else ''}"
+        if comp <= outlets:              # nothing plugged in (GC215 checks what is), but unwired all the same
+            out.append(Finding("GC109", "warning", f"outlet {listed} does not reach the main earthing terminal",
+                               min(ctx.loc(n) for n in names), tuple(names[:20]), {"points": len(names)},
+                               "have its protective wiring repaired by a qualified person before anything is plugged "
+                               "into it"))
+            continue
         out.append(Finding("GC109", "warning", f"{listed} {'reaches' if len(names) == 1 else 'reach'} no ground",
                            min(ctx.loc(n) for n in names), tuple(names[:20]), {"points": len(names)},
                            "connect these points, or remove them from the plan"))
