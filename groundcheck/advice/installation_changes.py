@@ -38,7 +38,7 @@ def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
     names = {e for lp in result.loops if lp.closed_by == "mains-cords"
              for e in lp.loop.edges if kinds.get(e) == "interconnect"}
     # a cable that shares a rectifier's charging current is a power umbilical: balancing it cures nothing (the
-    # cure is inside the supply, below), so only leakage and stated currents count here
+    # cure is inside the supply: the shared-return changes of candidates.py), so only leakage and stated currents count
     names |= {e for row in result.coupling if row.kind != "rectifier" for e in row.shared
               if kinds.get(e) == "interconnect"}
     return names
