@@ -15,7 +15,7 @@ from .model.records import Plan
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
 from .physics.hum import HumBudget, HumOptions
-from .physics.outlets import OutletWork, outlet_pairs
+from .physics.outlets import OutletWork
 from .physics.protection import STANDARD_PE_LIMIT
 from .physics.rectifier import simulate
 from .physics.safety import installation_earths, protective_figures
@@ -68,18 +68,18 @@ def _solve(plan: Plan, ctx: AuditContext, circuit, rr: dict, options: Options, r
     """The shared returns, the hum budget and the outlet voltages: their solves as one set of independent tasks,
     so that with ``jobs`` > 1 the processes share all of them (the costliest first), not only the hum budget's
     frequencies.  The results are the same for any number of processes."""
-    probes = outlet_pairs(plan)[0] if options.hum and plan.devices else []
     budget = outlets = None
     tasks, costs = [partial(shared_returns, plan, circuit)], [_coupling_cost(plan, circuit)]
+    if options.hum and plan.devices:
+        outlets = OutletWork(plan, circuit, rr, options.max_frequency)
     if options.hum and plan.stages:
         budget = HumBudget(plan, circuit, ctx.loops, rr,
                            HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
-                           probes)
+                           outlets.pairs if outlets is not None else ())
         hum_tasks, hum_costs = budget.tasks(options.jobs)
         tasks += hum_tasks
         costs += hum_costs
-    if options.hum and plan.devices:
-        outlets = OutletWork(plan, circuit, rr, options.max_frequency)
+    if outlets is not None:
         tasks.append(outlets.unplugged)
         costs.append(len(outlets.sources) * len(circuit.nodes) * len(outlets.freqs) / 4)
     done = run_tasks(tasks, options.jobs, costs)

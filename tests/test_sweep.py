@@ -94,3 +94,11 @@ def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_proc
     two = json.loads(render_json(analyze(plan, Options(jobs=2))))
     assert counted[0] > 10                   # the shared returns, the outlets and many slices of the budget
     _close(one, two)
+
+
+def test_the_largest_few_are_those_of_a_full_stable_sort_ties_included():
+    from groundcheck.physics.ranking import largest
+    rng = np.random.default_rng(3)
+    for n, k in ((1000, 5), (1000, 64), (7, 10), (50, 50), (3, 0)):
+        values = rng.integers(0, 20, n).astype(float)          # many ties at every cut
+        assert list(largest(values, k)) == list(np.argsort(-values, kind="stable")[:k])

@@ -21,6 +21,7 @@ from ..core.errors import Location
 from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
 from .induction import induced_currents
+from .ranking import largest
 
 __all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner",
            "pair_path", "path_drop",
@@ -265,12 +266,8 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     fac = circuit.at(0.0)
     transfer = _transfers(circuit, fac, sources, stages)
     pairs = np.argwhere(transfer > 1e-6)
-    if len(pairs) > MAX_SHARED_ROWS:
-        # the strongest rows: all above the cut, then those at it in order (as a stable sort would keep them)
-        vals = transfer[pairs[:, 0], pairs[:, 1]]
-        cut = -np.partition(-vals, MAX_SHARED_ROWS - 1)[MAX_SHARED_ROWS - 1]
-        above, at = np.flatnonzero(vals > cut), np.flatnonzero(vals == cut)
-        pairs = pairs[np.sort(np.concatenate([above, at[:MAX_SHARED_ROWS - len(above)]]))]
+    if len(pairs) > MAX_SHARED_ROWS:             # the strongest rows, kept in their order
+        pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
     # test currents only for the stages that share (not one column for every stage of a large installation)
     need = sorted({int(k) for k, _ in pairs})
     column = {k: i for i, k in enumerate(need)}
@@ -318,15 +315,14 @@ def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -
     cand = np.flatnonzero(carrying)
     total = mags[cand].sum()
     # the largest 64 nearly always decide (five owners, or 90 %): the full sort only when they do not
-    first = cand[mags[cand] >= -np.partition(-mags[cand], 63)[63]] if len(cand) > 64 else cand   # ties kept
-    for pool in (first, cand):
+    for k in (64, len(cand)):
         shared, acc = [], 0.0
-        for b in pool[np.argsort(-mags[pool], kind="stable")]:
+        for b in cand[largest(mags[cand], k)]:
             if owners[b] not in shared:
                 shared.append(owners[b])
             acc += mags[b]
             if acc >= 0.9 * total or len(shared) >= 5:
                 return tuple(shared)
-        if len(pool) == len(cand):
+        if k >= len(cand):
             break
     return tuple(shared)

@@ -35,6 +35,7 @@ from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
 from .pickup import emf as emf_of, loop_fluxes, min_distance
 from .plate_paths import loop_passages
+from .ranking import largest
 from .sweep import run_tasks
 
 __all__ = ["HumOptions", "HumResult", "ChannelHum", "HumBudget", "hum_budget"]  # the result types live in humtotals
@@ -330,10 +331,7 @@ class HumBudget:
             if s.kind == "rectifier" and abs(f - 2 * self.f0) < 1e-9 or (s.kind != "rectifier" and f == min(s.parts)):
                 mags = drops[si] * admittance                           # |I|
                 sig = np.flatnonzero(mags > 1e-3 * abs(s.parts[f]))
-                if len(sig) > NETWORK_ROWS:       # those down to the row limit's value (ties kept), not every branch
-                    cut = -np.partition(-mags[sig], NETWORK_ROWS - 1)[NETWORK_ROWS - 1]
-                    sig = sig[mags[sig] >= cut]
-                sig = sig[np.argsort(-mags[sig], kind="stable")][:NETWORK_ROWS]
+                sig = sig[largest(mags[sig], NETWORK_ROWS)]
                 I = both.dv[sig, si] * fac.y[sig]
                 part.network.append({"source": s.name, "frequency_hz": f, "source_current_a": abs(s.parts[f]),
                                      "conductors": [{"branch": circuit.branches[b].name, "current_a": float(abs(i)),

@@ -21,6 +21,7 @@ import numpy as np
 
 from ..model.installation import device_of
 from .coupling import plan_sources, source_injections
+from .ranking import largest
 
 __all__ = ["OutletPair", "OutletVoltages", "OutletWork", "outlet_voltages", "outlet_pairs", "MAX_DRIVERS"]
 
@@ -171,13 +172,9 @@ class OutletWork:
         plan = self.plan
         unplugged = self.circuit.restricted({c.name for c in plan.conductors if c.kind != "interconnect"})
         open_f, open_s = _pair_volts(unplugged, self.sources, self.pairs, self.freqs)
-        many = open_s.shape[1] > MAX_DRIVERS
-        cuts = -np.partition(-open_s, MAX_DRIVERS - 1, axis=1)[:, MAX_DRIVERS - 1] if many else None
         drivers = []
         for k in range(len(self.pairs)):
-            cand = np.flatnonzero(open_s[k] >= cuts[k]) if many else np.arange(open_s.shape[1])   # ties at the cut
-            order = cand[np.argsort(-open_s[k, cand], kind="stable")][:MAX_DRIVERS]
-            drivers.append([(int(i), float(open_s[k, i])) for i in order
+            drivers.append([(int(i), float(open_s[k, i])) for i in largest(open_s[k], MAX_DRIVERS)
                             if open_s[k, i] > 1e-6 * max(open_s[k].max(), 1e-300)])
         return open_f, drivers
 
