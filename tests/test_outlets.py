@@ -381,3 +381,8 @@ def test_a_device_whose_own_plan_is_class_ii_has_no_earth_pin_and_leaks_through_
     assert "GC109" not in codes and {"GC102", "GC301", "GC216"} <= codes
     (limit,) = [f for f in r.findings if f.code == "GC216"]
     assert limit.figures["limit_a"] == 0.25e-3 and limit.figures["leakage_a"] == 0.5e-3
+    # all of it crosses the shield, whose resistance the input reads (gain 0 dB): by hand from IEC 60028 copper,
+    # R = 1.7241e-8 Ω·m × 2 m / 0.1e-6 m² = 0.34482 Ω, V = 0.5 mA × 0.34482 Ω = 172.41 µV = -75.27 dBV
+    (shared,) = [f for f in r.findings if f.code == "GC102"]
+    assert shared.severity == "fault" and shared.figures["level_dbv"] == -75.3
+    assert r.hum.channels["main"].total_v == pytest.approx(172.41e-6, rel=2e-3)
