@@ -18,7 +18,8 @@ from .physics.hum import HumBudget, HumOptions
 from .physics.outlets import OutletWork
 from .physics.protection import STANDARD_PE_LIMIT
 from .physics.rectifier import simulate
-from .physics.safety import installation_earths, protective_figures
+from .physics.device_earth import installation_earths
+from .physics.safety import protective_figures
 from .physics.sweep import run_tasks
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext

@@ -135,11 +135,21 @@ def acceptances(sources: dict) -> tuple:
     return tuple(out)
 
 
+def _exposed(m: Metal, mains) -> Metal:
+    """A metal part with its accessibility settled: as written, else touchable in class I equipment with a mains
+    supply (a part nobody wrote as ``internal`` is treated as one a hand can reach, the safe default) and internal
+    elsewhere; a ``signal-only`` part is never held to protective bonding, so it defaults to internal."""
+    if m.touchable is not None:
+        return m
+    class_i = mains is not None and mains.equipment_class == "I" and not m.signal_only
+    return replace(m, touchable=class_i)
+
+
 def assemble(built: list, file: str, ld) -> Plan:
     """The plan of a file's built ``(statement, record, refs)`` list; errors are added to ``ld.errors``."""
     header, groups, names, devices, library_dirs = _collect(built, ld)
     mains = header.get("mains")
-    metals = {m.name: m for m, *_ in groups[Metal]}
+    metals = {m.name: _exposed(m, mains) for m, *_ in groups[Metal]}
     points = {p.name: p for p, *_ in groups[Point]}
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)

@@ -113,9 +113,13 @@ def metal(stmt: Statement):
         elif first.kind == "word" and first.value == "internal":
             r.next("")
             kw["touchable"] = False
+        elif first.kind == "word" and first.value == "signal-only":
+            r.next("")
+            kw["signal_only"] = True
         else:
-            raise unknown(stmt, first, MATERIALS + ("W x D mm", "at", "touchable", "internal"))
+            raise unknown(stmt, first, MATERIALS + ("W x D mm", "at", "touchable", "internal", "signal-only"))
         r.finish()
+    kw.setdefault("touchable", None)
     return Metal(name=name, location=stmt.loc, **kw), {}
 
 

@@ -22,6 +22,8 @@ MAINS_ATTRIBUTES = {
     "cpc": ("cpc_area", "circuit protective conductor area", "area"),
     "electrode": ("electrode", "earth-electrode resistance", "resistance"),
     "fuse-resistance": ("fuse_resistance", "fuse cold resistance", "resistance"),
+    "cable-temperature": ("cable_temperature", "installation cables' operating temperature", "temperature"),
+    "short-circuit": ("short_circuit", "prospective short-circuit current at the origin", "current"),
 }
 MAINS_WORDS = ("fuse", "breaker", "cord", "circuit", "system", "class", "breaking", "inlet", *MAINS_ATTRIBUTES)
 
@@ -62,7 +64,34 @@ def _supply_statement(stmt: Statement, attribute) -> dict:
 
 
 def mains(stmt: Statement):
-    return Mains(location=stmt.loc, **_supply_statement(stmt, lambda r, ph, kw: _mains_attribute(stmt, r, ph, kw))), {}
+    kw = _supply_statement(stmt, lambda r, ph, kw: _mains_attribute(stmt, r, ph, kw))
+    _check_earth_electrode(stmt, kw)
+    return Mains(location=stmt.loc, **kw), {}
+
+
+def _check_earth_electrode(stmt: Statement, kw: dict) -> None:
+    """An earth electrode belongs to a TT supply, and lies inside the external loop that a TT plan states."""
+    electrode, loop = kw.get("electrode"), kw.get("loop_impedance")
+    if electrode is None:
+        return
+    loc = _phrase_loc(stmt, "electrode")
+    if kw.get("system", "TN-S") != "TT":
+        raise PlanError(f"an earth electrode is stated for a {kw.get('system', 'TN-S')} supply", loc,
+                        "the installation's own electrode is in the fault loop of a TT supply only: add "
+                        "'system TT', or remove 'electrode'")
+    if loop is not None and electrode > loop * (1 + 1e-12):
+        raise PlanError(f"the earth electrode ({electrode:g} Ω) is larger than the whole external loop "
+                        f"({loop:g} Ω) that includes it", loc,
+                        "in a TT supply the external loop runs through the installation's electrode: state a loop "
+                        "at least as large as the electrode, or state the electrode alone")
+
+
+def _phrase_loc(stmt: Statement, word: str):
+    """Where the phrase that opens with ``word`` starts (the statement's own place when it has none)."""
+    for ph in stmt.phrases:
+        if ph and ph[0].kind == "word" and ph[0].value == word:
+            return ph[0].loc
+    return stmt.loc
 
 
 def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:

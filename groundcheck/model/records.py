@@ -13,13 +13,9 @@ from dataclasses import MISSING, dataclass, field, fields
 from ..core.errors import Location
 from .kinds import CONDUCTOR_KINDS
 
-__all__ = [
-    "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
-    "Heater", "Stage", "FieldSource", "Device", "Plan", "Supply", "CABLE_CORES",
-    "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD",
-    "SYSTEMS", "make",
-    "from_values",
-]
+__all__ = ["Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current", "Heater", "Stage",
+           "FieldSource", "Device", "Plan", "Supply", "CABLE_CORES", "PE_POINT", "ROLES", "CONDUCTOR_KINDS",
+           "DEFAULT_CORD", "SYSTEMS", "make", "from_values"]
 
 #: the implicit point of the mains inlet's protective-earth terminal
 PE_POINT = "mains.pe"
@@ -66,6 +62,8 @@ class Mains:
     breaking: str | None = None          # low | enhanced | high (IEC 60127 categories)
     breaking_current: float | None = None  # stated breaking capacity, A
     fuse_resistance: float | None = None   # stated cold resistance of the fuse, Ω
+    cable_temperature: float | None = None  # °C, the installation cables' operating temperature (default 70 °C)
+    short_circuit: float | None = None     # A, prospective line-to-neutral short-circuit current at the origin
     location: Location = field(default=Location("<plan>"), compare=False)
 
     @property
@@ -121,8 +119,9 @@ class Metal:
     thickness: float = 1.5e-3
     size: XY | None = None               # width (x) and depth (y), m
     origin: XY = (0.0, 0.0)              # lower-left corner in the plan frame, m
-    touchable: bool = False
+    touchable: bool | None = False       # None when unwritten: settled by the plan's assembly
     location: Location = field(default=Location("<plan>"), compare=False)
+    signal_only: bool = False            # holds no mains circuit, cannot become live: no protective bonding
 
     def contains(self, p: XY, slack: float = 1e-6) -> bool:
         """Whether the plan-frame position ``p`` lies on the part (always true when its size is unknown)."""

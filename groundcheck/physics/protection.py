@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 __all__ = ["STANDARD_PE_LIMIT", "FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TIMES", "DISCONNECTION_LIMITS",
-           "SYSTEMS", "DEFAULT_ZE",
+           "SYSTEMS", "DEFAULT_ZE", "TT_SOURCE_LOOP", "DEFAULT_LINE_NEUTRAL_LOOP", "CABLE_OPERATING_TEMPERATURE",
            "BREAKING_CAPACITY", "CORD_CLASS5", "FIXED_CLASS2", "Clearing", "fuse_clearing", "breaker_clearing",
            "rcd_clearing", "device_clearing", "max_disconnection_time", "breaking_capacity", "fuse_cold_resistance",
            "cable_resistance",
@@ -26,6 +26,21 @@ STANDARD_PE_LIMIT = 0.1
 #: values declared by distributors (TN-S 0.8 Ω, TN-C-S 0.35 Ω, TT 21 Ω including the installation's
 #: own earth electrode) — from memory
 DEFAULT_ZE = {"TN-S": 0.8, "TN-C-S": 0.35, "TT": 21.0}
+
+#: TT: the supply's own part of the fault loop (the line from the source and the source's earth electrode R_B)
+#: when the plan states the installation's electrode R_A but not the whole loop, Ω — from memory: distributors
+#: keep R_B to a few ohms; the whole loop is then R_A plus this
+TT_SOURCE_LOOP = 1.0
+
+#: the external line-to-neutral loop at the origin when the plan states no prospective short-circuit current,
+#: Ω: the typical declared value of a TN-C-S supply (0.35 Ω, from memory), or the stated external loop when
+#: that is lower; the neutral never runs through an earth electrode, so a TT supply has it too
+DEFAULT_LINE_NEUTRAL_LOOP = 0.35
+
+#: the operating temperature of the installation's cables (the final circuit and the mains cord) at which the
+#: fault loop is verified, °C: 70 °C, the maximum operating temperature of PVC-insulated cable (IEC 60364-5-52
+#: Table 52.1), common practice for loop verification (from memory); the equipment's own wiring stays at ambient
+CABLE_OPERATING_TEMPERATURE = 70.0
 
 #: the final circuit feeding the socket when the plan does not describe it: 20 m of 1.5 mm² line and
 #: protective conductor — common practice for a socket-outlet circuit (from memory)
@@ -44,9 +59,10 @@ FUSE_PREARC_LIMITS = {
 #: 60 s (In ≤ 32 A), at 1.45 In within 1 h
 BREAKER_INSTANT = {"B": 5.0, "C": 10.0, "D": 20.0}
 BREAKER_THERMAL = ((2.55, 60.0), (1.45, 3600.0))
-#: a breaker in its instantaneous region opens within one half cycle: the let-through is taken as I²·10 ms
-#: (from memory; energy-limiting classes let through less)
-BREAKER_LET_THROUGH_TIME = 0.01
+#: a breaker in its instantaneous region is taken to open at the upper end of its band, 0.1 s, and its let-through
+#: as I² over that same time — consistent with the clearing time reported, and on the safe side (real breakers
+#: of an energy-limiting class let through much less, from memory)
+BREAKER_INSTANT_TIME = 0.1
 
 #: RCD maximum break times, general type, IEC 61008-1 / 61009-1 (from memory): (multiple of IΔn, s)
 RCD_TIMES = ((5.0, 0.04), (2.0, 0.15), (1.0, 0.3))
@@ -123,7 +139,7 @@ def breaker_clearing(curve: str, rating: float, current: float) -> Clearing | No
     """
     m = current / rating
     if m >= BREAKER_INSTANT.get(curve, 5.0):
-        return Clearing(0.1, current * current * BREAKER_LET_THROUGH_TIME)
+        return Clearing(BREAKER_INSTANT_TIME, current * current * BREAKER_INSTANT_TIME)
     for mm, t in BREAKER_THERMAL:
         if m >= mm:
             return Clearing(t, current * current * t)

@@ -31,12 +31,13 @@ from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
-from .protection import (STANDARD_PE_LIMIT, DEFAULT_CIRCUIT, DEFAULT_ZE, Clearing, breaking_capacity, cable_resistance,
-                         device_clearing, fuse_cold_resistance, max_disconnection_time, rcd_clearing)
+from .protection import (STANDARD_PE_LIMIT, CABLE_OPERATING_TEMPERATURE, DEFAULT_CIRCUIT, DEFAULT_LINE_NEUTRAL_LOOP,
+                         DEFAULT_ZE, TT_SOURCE_LOOP, Clearing, breaking_capacity, cable_resistance, device_clearing,
+                         fuse_cold_resistance, max_disconnection_time, rcd_clearing)
 
 __all__ = ["SafetyResult", "PartFigures", "ConductorCheck", "Supply", "protective_figures", "adiabatic_k",
            "DEFAULT_PE_LIMIT", "STANDARD_PE_LIMIT", "TOUCH_LIMIT", "supply_figures",
-           "DeviceEarth", "installation_earths"]
+]
 
 DEFAULT_PE_LIMIT = STANDARD_PE_LIMIT
 
@@ -67,10 +68,12 @@ def adiabatic_k(insulation: str, in_cable: bool) -> float:
 
 @dataclass(frozen=True)
 class Supply:
-    """The fault loop outside the protective path, with where each figure came from."""
+    """The fault loop outside the protective path, with where each figure came from.  The cables' resistances
+    are at their operating temperature (``cable_temperature``); the prospective currents, which the breaking
+    capacity must cover, at the lowest temperature (``cold_temperature``)."""
 
     system: str
-    ze: float                        # Ω, external loop impedance at the origin
+    ze: float                        # Ω, external loop impedance at the origin (TT: through the electrode)
     ze_stated: bool
     circuit_line: float              # Ω
     circuit_cpc: float               # Ω
@@ -80,6 +83,16 @@ class Supply:
     electrode: float                 # Ω, TT only (0 otherwise)
     max_time: float | None           # s, IEC 60364-4-41 Table 41.1
     breaking_capacity: float | None  # A
+    cable_temperature: float = 20.0  # °C, the cables' temperature in the figures above
+    cold_temperature: float = 20.0   # °C, the cables' temperature for the prospective currents
+    earth_fault_max: float = 0.0     # A, the largest line-to-protective fault (at the inlet, cables cold)
+    short_circuit: float = 0.0       # A, the largest line-to-neutral fault inside the equipment (cables cold)
+    short_circuit_stated: bool = False
+
+    @property
+    def prospective(self) -> float:
+        """The largest current the fuse or breaker may have to break, A."""
+        return max(self.earth_fault_max, self.short_circuit)
 
 
 @dataclass(frozen=True)
@@ -152,35 +165,74 @@ class SafetyResult:
                 "cord_line_ohm": r(s.cord_line), "cord_pe_ohm": r(s.cord_pe),
                 "fuse_resistance_ohm": r(s.fuse_resistance),
                 "electrode_ohm": r(s.electrode), "max_disconnection_s": s.max_time,
+                "cable_temperature_c": s.cable_temperature, "earth_fault_max_a": r(s.earth_fault_max, 3),
+                "short_circuit_a": r(s.short_circuit, 3), "short_circuit_stated": s.short_circuit_stated,
                 "breaking_capacity_a": r(s.breaking_capacity, 3),
                 "parts": [p.as_dict() for p in self.parts], "conductors": [c.as_dict() for c in self.conductors]}
 
 
+def external_loop(m) -> tuple[float, float]:
+    """The external earth-fault loop Ze at the origin and, in a TT supply, the installation's electrode R_A in it.
+
+    TT: the fault current returns through the earth, so the loop holds R_A.  A stated loop includes it (the
+    electrode alone, when not stated, is taken as the whole loop: the worst case for the touch voltage); a stated
+    electrode without a loop adds the supply's own part (:data:`TT_SOURCE_LOOP`).
+
+    Parameters:
+        m: the mains record.
+    Returns:
+        (Ze, R_A) in Ω; R_A is 0 outside TT.
+    References:
+        IEC 60364-4-41 411.5 (TT systems: the fault loop through R_A).
+    """
+    if m.system != "TT":
+        return (m.loop_impedance if m.loop_impedance is not None else DEFAULT_ZE[m.system]), 0.0
+    if m.loop_impedance is not None:
+        return m.loop_impedance, (m.electrode if m.electrode is not None else m.loop_impedance)
+    if m.electrode is not None:
+        return m.electrode + TT_SOURCE_LOOP, m.electrode
+    return DEFAULT_ZE["TT"], DEFAULT_ZE["TT"]
+
+
+def _cables(m, temperature: float) -> tuple[float, float, float]:
+    """(circuit line, circuit protective conductor, cord core) resistances at ``temperature``, Ω."""
+    c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]
+    c_area = m.circuit_area or DEFAULT_CIRCUIT[1]
+    return (cable_resistance(c_len, c_area, False, temperature),
+            cable_resistance(c_len, m.cpc_area or c_area, False, temperature),
+            cable_resistance(m.cord_length, m.cord_section, True, temperature))
+
+
 def supply_figures(plan: Plan) -> Supply:
-    """The fault loop outside the equipment's protective path, from the mains statement and defaults.
+    """The fault loop outside the equipment's protective path, from the mains statement and defaults: the
+    installation's cables at their operating temperature, and the prospective currents with them cold.
 
     Parameters:
         plan: the plan.
     Returns:
-        the SupplyFigures: external loop impedance, final circuit, cord, disconnection limit.
+        the Supply: external loop impedance, final circuit, cord, disconnection limit, prospective currents.
     References:
-        IEC 60364-4-41; IEC 60228.
+        IEC 60364-4-41; IEC 60228; IEC 60364-5-52 Table 52.1 (PVC 70 °C).
     """
     m = plan.mains
-    T = plan.ambient
-    cord = cable_resistance(m.cord_length, m.cord_section, True, T)
-    c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]
-    c_area = m.circuit_area or DEFAULT_CIRCUIT[1]
-    line = cable_resistance(c_len, c_area, False, T)
-    cpc = cable_resistance(c_len, m.cpc_area or c_area, False, T)
-    ze = m.loop_impedance if m.loop_impedance is not None else DEFAULT_ZE[m.system]
+    hot_t = m.cable_temperature if m.cable_temperature is not None else CABLE_OPERATING_TEMPERATURE
+    cold_t = min(plan.ambient, 20.0)
+    line, cpc, cord = _cables(m, hot_t)
+    ze, electrode = external_loop(m)
     fuse_r = 0.0
     if m.fuse is not None:
         fuse_r = m.fuse_resistance if m.fuse_resistance is not None else fuse_cold_resistance(m.fuse_kind, m.fuse)
-    electrode = (m.electrode if m.electrode is not None else ze) if m.system == "TT" else 0.0
     cap = breaking_capacity(m.fuse_kind, m.fuse, m.breaking, m.breaking_current) if m.fuse is not None else None
+    c_line, c_cpc, c_cord = _cables(m, cold_t)
+    earth_fault = m.voltage / (ze + fuse_r + c_line + c_cord + c_cord + c_cpc)
+    if m.short_circuit is not None:
+        short = m.short_circuit
+    else:
+        zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
+        short = m.voltage / (zln + fuse_r + 2 * c_line + 2 * c_cord)
     return Supply(m.system, ze, m.loop_impedance is not None, line, cpc, cord, cord, fuse_r, electrode,
-                  max_disconnection_time(m.voltage, m.system), cap)
+                  max_disconnection_time(m.voltage, m.system), cap, hot_t, cold_t, earth_fault, short,
+                  m.short_circuit is not None)
 
 
 def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | None]:
@@ -228,7 +280,7 @@ def _path_resistances(plan: Plan, circ) -> dict[str, float]:
     pe = circ.point_node[PE_POINT]
     cols: list[tuple[str, int]] = []
     for part in plan.metals:
-        if not part.touchable:
+        if not part.touchable or part.signal_only:
             continue
         for s in circ.nodes_of_metal(part.name):
             if labels[s] == labels[pe]:
@@ -267,31 +319,50 @@ def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAUL
         return None
     sup = supply_figures(plan)
     rpart = _path_resistances(plan, protective_circuit(plan, route, circuit))
-    parts = []
-    for part in plan.metals:
-        if part.name not in rpart:
-            continue
-        r = rpart[part.name]
-        z = sup.ze + sup.fuse_resistance + sup.circuit_line + sup.cord_line + r + sup.cord_pe + sup.circuit_cpc
-        i_f = m.voltage / z
-        touch = i_f * (r + sup.cord_pe + sup.circuit_cpc + sup.electrode)
-        cl, device = _first_to_open(plan, i_f)
-        stated = []
-        t = cl.time if cl else None
-        i2t = cl.i2t if cl else None
-        if m.clear_time is not None:
-            t, device = m.clear_time, "stated"
-            stated.append("clear_time")
-            i2t = i_f * i_f * m.clear_time
-        if m.fuse_i2t is not None:
-            i2t = m.fuse_i2t
-            stated.append("i2t")
-        if m.loop_impedance is not None:
-            stated.append("external_loop")
-        parts.append(PartFigures(part.name, r, i_f, touch, t, i2t, device,
-                                 cl.prearc if cl and device == "fuse" else None,
-                                 cl.arcing if cl and device == "fuse" else None, tuple(stated)))
+    parts = [_part_figures(plan, sup, name, r) for name, r in
+             ((part.name, rpart[part.name]) for part in plan.metals if part.name in rpart)]
     return SafetyResult(limit, tuple(parts), sup, _survival(plan, route, parts, sup))
+
+
+def _stricter(stated: float | None, computed: float | None, assured: bool) -> float | None:
+    """A stated figure may make a verdict stricter, never looser: the larger of the two; when a protective
+    device exists but is not assured to open (``computed`` None, ``assured`` False) nothing stated replaces that."""
+    if computed is None:
+        return stated if assured else None
+    return computed if stated is None else max(stated, computed)
+
+
+def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
+    """A line-to-part fault at one part whose protective path is ``r``: its current and touch voltage with the
+    cables at their operating temperature; the let-through I²t the larger of the hot and the cold case."""
+    m = plan.mains
+    outside = sup.ze + sup.fuse_resistance + sup.circuit_line + sup.cord_line
+    i_f = m.voltage / (outside + r + sup.cord_pe + sup.circuit_cpc)
+    touch = i_f * (r + sup.cord_pe + sup.circuit_cpc + sup.electrode)
+    cl, device = _first_to_open(plan, i_f)
+    line_c, cpc_c, cord_c = _cables(m, sup.cold_temperature)
+    i_cold = m.voltage / (sup.ze + sup.fuse_resistance + line_c + cord_c + r + cord_c + cpc_c)
+    cl_cold, _ = _first_to_open(plan, i_cold)
+    no_device = m.fuse is None and m.rcd is None
+    t = _stricter(m.clear_time, cl.time if cl else None, no_device)
+    i2t = None
+    if cl is not None:
+        i2t = max(cl.i2t, cl_cold.i2t if cl_cold is not None else 0.0)
+    if t is not None:
+        i2t = max(i2t or 0.0, i_f * i_f * t) if (cl is None or t > cl.time) else i2t
+    i2t = _stricter(m.fuse_i2t, i2t, no_device)
+    stated = []
+    if m.clear_time is not None:
+        stated.append("clear_time")
+        if cl is None or m.clear_time > cl.time:
+            device = "stated" if t is not None else device
+    if m.fuse_i2t is not None:
+        stated.append("i2t")
+    if m.loop_impedance is not None:
+        stated.append("external_loop")
+    fuse = cl is not None and device == "fuse"
+    return PartFigures(name, r, i_f, touch, t, i2t, device, cl.prearc if fuse else None,
+                       cl.arcing if fuse else None, tuple(stated))
 
 
 def _survival(plan: Plan, route: ProtectiveRoute, parts: list[PartFigures], sup: Supply) -> tuple[ConductorCheck, ...]:
@@ -305,52 +376,3 @@ def _survival(plan: Plan, route: ProtectiveRoute, parts: list[PartFigures], sup:
         if c.name in route and section_checked(c) and area is not None:
             checks.append((c.name, area, adiabatic_k(c.insulation, c.in_cable)))
     return tuple(ConductorCheck(name, area, k, math.sqrt(worst) / k * 1e-6) for name, area, k in checks)
-
-
-@dataclass(frozen=True)
-class DeviceEarth:
-    """An installation device's protective path from its earth pin to the main earthing terminal."""
-
-    device: str
-    inlet: str
-    resistance: float | None         # Ω, None when the path is broken
-
-    def as_dict(self) -> dict:
-        return {"device": self.device, "inlet": self.inlet,
-                "resistance_ohm": None if self.resistance is None else round(self.resistance, 6)}
-
-
-def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tuple[DeviceEarth, ...] | None:
-    """Each placed device's earth-pin path to the main earthing terminal; None when the plan has no
-    placed device or no point of kind ``earthing-terminal``.
-
-    Parameters:
-        plan: the plan.
-        route: the protective route.
-        circuit: the circuit.
-    Returns:
-        each placed device's earth path, or None when the plan places no device.
-    References:
-        IEC 60364-5-54.
-    """
-    class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}     # no earth pin to check
-    inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT
-                    and p.name.split(".", 1)[0] not in class_ii)
-    mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
-    if not inlets or not mets:
-        return None
-    circ = protective_circuit(plan, route, circuit)
-    _, labels = circ.components
-    met = circ.point_node[mets[0]]
-    reach = [n for n in inlets if labels[circ.point_node[n]] == labels[met] and n in route.reached]
-    R: dict[str, float] = {}
-    if reach:
-        J = np.zeros((len(circ.nodes), len(reach)), dtype=complex)
-        for k, n in enumerate(reach):
-            J[circ.point_node[n], k] += 1.0
-            J[met, k] -= 1.0
-        sol = circ.at(0.0).solve(J)
-        for k, n in enumerate(reach):
-            R[n] = float(abs(sol.V[circ.point_node[n], k] - sol.V[met, k]))
-    group = {p.name: p.group for p in plan.points}
-    return tuple(DeviceEarth(group.get(n) or n, n, R.get(n)) for n in inlets)

@@ -23,7 +23,7 @@ ATTRIBUTE_WORDS = ("protective", "return", "signal", "shield", "bond", "to", "at
                    "distance", "impedance", "output", "amp-gain", "wiring", "spacing", "twisted", "reference",
                    "floating", "ac", "dc", "plugged", "simple", "signal-ground", "mirror", "as", "lift", "open",
                    "closed", "contact", "resistance", "width", "thickness", "library", "cores", "shield-to", "chassis",
-                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round")
+                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round", "signal-only")
 
 
 class PlanLexer(RegexLexer):

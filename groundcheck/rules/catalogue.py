@@ -246,7 +246,8 @@ RULES: dict[str, Rule] = dict([
     _r("GC214", "stated-figure-contradicts", "warning",
        "A clearing time or I²t stated in the mains statement that the fuse table contradicts by more than a factor of "
        "two.",
-       "A stated figure replaces the computed one in every protective-earth verdict; a wrong one can hide a danger.",
+       "A stated figure can only make a verdict stricter (the larger of the stated and the computed figure is used); "
+       "one far from the table still tells of a wrong fuse or a wrong figure.",
        "Check the stated figure against the fuse maker's data sheet, or remove it to use the standard's limits.",
        "IEC 60127-2 time-current limits (from memory)"),
     _r("GC215", "device-earth-path", "danger",
@@ -269,6 +270,27 @@ RULES: dict[str, Rule] = dict([
        "IEC 60950-1:2005, 5.1.7 (equipment with a protective conductor current over 3.5 mA) and Table 5A (touch "
        "current of parts not connected to protective earth, 0.25 mA), as quoted in IECEE test-report forms; from "
        "memory for IEC 62368-1, which keeps both figures."),
+    _r("GC220", "tt-electrode-rcd", "danger",
+       "In a TT supply protected by an RCD, whether the installation's earth electrode R_A times the RCD's rated "
+       "residual current IΔn stays within 50 V.",
+       "A fault current just below IΔn does not trip the RCD, and it leaves R_A × IΔn on every earthed part; above "
+       "50 V that is a dangerous touch voltage that nothing clears.",
+       "Improve the earth electrode (a qualified electrician measures and repairs it), or use a more sensitive RCD.",
+       "IEC 60364-4-41 411.5.3 (R_A × IΔn ≤ 50 V), from memory"),
+    _r("GC221", "tt-overcurrent-only", "note",
+       "A TT supply whose disconnection rests on a fuse or breaker alone, with no RCD.",
+       "The fault loop of a TT supply runs through the earth electrodes, whose resistance changes with soil and "
+       "season; an overcurrent device alone clears only while that loop stays low.",
+       "Protect the circuit with an RCD, as TT installations usually are.",
+       "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory"),
+    _r("GC222", "signal-only-metal", "note",
+       "Metal written signal-only (a footswitch box on a signal lead, a reverb pan): it is not held to protective "
+       "bonding, and every output says so.",
+       "Metal that holds no mains circuit and cannot become live under a single fault needs no protective bonding; "
+       "the plan's word for it is what exempts it, so the exemption is shown rather than silent.",
+       "Check that nothing in the part connects to mains; if anything does, bond it like any touchable part.",
+       "IEC 61140 (protection against electric shock: a part that cannot become live needs no protective "
+       "bonding), from memory"),
     _r("GC301", "hum-contributor", "warning",
        "A conductor whose shared impedance puts hum or buzz above the set level at a channel's output.",
        "Common-impedance coupling: a supply current's drop appears across a sensitive pair.",

@@ -17,7 +17,8 @@ if TYPE_CHECKING:
     from ..physics.circuit import Circuit
     from ..physics.coupling import SharedReturn
     from ..physics.hum import HumResult
-    from ..physics.safety import DeviceEarth, SafetyResult
+    from ..physics.device_earth import DeviceEarth
+    from ..physics.safety import SafetyResult
 
 __all__ = ["Solved", "rule_shared_returns", "rule_islands", "rule_hum", "rule_loop_near_source"]
 

@@ -1,5 +1,5 @@
 """Imports every family of rules, so that each registers its functions (:mod:`groundcheck.rules.registry`)."""
 
-from . import electrical, installation, protective, topology  # noqa: F401 - imported for their registrations
+from . import earthing_system, electrical, installation, protective, topology  # noqa: F401 - registrations
 
 __all__: list[str] = []

@@ -11,6 +11,7 @@ import networkx as nx
 
 from ..model.records import Plan
 from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
+from ..physics.safety import supply_figures
 
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, is_fastening, section_checked
 from ..model.records import PE_POINT
@@ -50,7 +51,7 @@ def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
     out.extend(_pe_unmarked(ctx))
     out.extend(_pe_sections(ctx))
     for m in plan.metals:
-        if m.touchable and m.name not in bonded:
+        if m.touchable and not m.signal_only and m.name not in bonded:
             out.append(Finding("GC205", "danger", f"touchable part {m.name} is not bonded to the protective earth by "
                                                   "protective conductors",
                                m.location, (m.name,), {},
@@ -134,16 +135,16 @@ def _pe_unmarked(ctx: AuditContext) -> list[Finding]:
 
 def _pe_sections(ctx: AuditContext) -> list[Finding]:
     """GC204: a conductor on the protective route thinner than the line conductor."""
-    line = ctx.plan.mains.line_area
-    if line is None:
-        return []
+    m = ctx.plan.mains
+    line = m.line_area or m.cord_section          # the cord's cores are the line conductor when none is stated
+    stated = m.line_area is not None
     out = []
     for c in ctx.plan.conductors:
         area = cross_section(c)
         if c.name in ctx.route and section_checked(c) and area is not None and area < line * (1 - 1e-6):
             out.append(Finding("GC204", "danger",
                                f"protective conductor {c.name} is {area * 1e6:.3g} mm², thinner than the line "
-                               f"conductor ({line * 1e6:.3g} mm²)",
+                               f"conductor ({line * 1e6:.3g} mm²{'' if stated else ', the mains cord'})",
                                c.location, (c.name,), {"area_mm2": round(area * 1e6, 4),
                                                        "line_area_mm2": round(line * 1e6, 4)},
                                f"use at least {line * 1e6:.3g} mm² (IEC 60364-5-54 Table 54.2)"))
@@ -190,7 +191,8 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     if s.safety is None:
-        return []
+        m = s.plan.mains
+        return _breaking(s.plan, supply_figures(s.plan)) if m is not None and m.fuse is not None else []
     plan, safety = s.plan, s.safety
     out = []
     m = plan.mains
@@ -216,7 +218,7 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
     if m.fuse is None and m.clear_time is None and m.rcd is None and safety.parts:
         out.append(Finding("GC208", "note", "no fuse, breaker or RCD in the mains statement: disconnection not checked",
                            m.location, ("mains",), {}, "add e.g. ', fuse 2 A slow' to the mains statement"))
-    out.extend(_breaking(plan, safety))
+    out.extend(_breaking(plan, safety.supply))
     out.extend(_stated_contradictions(plan, safety))
     for row in safety.conductors:
         if not row.survives:
@@ -230,19 +232,24 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
     return out
 
 
-def _breaking(plan: Plan, safety: SafetyResult) -> list[Finding]:
-    """GC211: a prospective fault current beyond what the fuse or breaker can break."""
-    m, sup, out = plan.mains, safety.supply, []
-    worst = max((p.fault_current for p in safety.parts if p.fault_current is not None), default=None)
-    if sup.breaking_capacity is not None and worst is not None and worst > sup.breaking_capacity:
+def _breaking(plan: Plan, sup) -> list[Finding]:
+    """GC211: a prospective current — a line-to-protective fault at the inlet or a line-to-neutral short inside the
+    equipment, the cables cold — beyond what the fuse or breaker can break, whatever is touchable."""
+    m, out = plan.mains, []
+    worst = sup.prospective
+    if sup.breaking_capacity is not None and worst > sup.breaking_capacity:
         stated = m.breaking is not None or m.breaking_current is not None or m.fuse_kind.startswith("breaker")
         device = "breaker" if m.fuse_kind.startswith("breaker") else f"{m.breaking or 'low'}-breaking fuse"
         assumed = "" if stated else " (breaking capacity not stated: a low-breaking glass fuse assumed)"
+        what = ("a line-to-neutral short inside the equipment" if sup.short_circuit >= sup.earth_fault_max
+                else "a line-to-protective fault at the inlet")
         out.append(Finding("GC211", "danger" if stated else "warning",
-                           f"a line-to-chassis fault draws up to {worst:.0f} A, beyond the "
-                           f"{sup.breaking_capacity:.0f} A the {m.fuse:g} A {device} can break: it may keep arcing "
-                           f"or burst instead of clearing{assumed}",
+                           f"{what} draws up to {worst:.0f} A, beyond the {sup.breaking_capacity:.0f} A the "
+                           f"{m.fuse:g} A {device} can break: it may keep arcing or burst instead of "
+                           f"clearing{assumed}",
                            m.location, ("mains",), {"fault_current_a": round(worst, 2),
+                                                    "earth_fault_a": round(sup.earth_fault_max, 2),
+                                                    "short_circuit_a": round(sup.short_circuit, 2),
                                                     "breaking_capacity_a": sup.breaking_capacity},
                            "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking type) of "
                            "the same rating and characteristic, and say so: ', breaking high'"))

@@ -18,7 +18,8 @@ if TYPE_CHECKING:  # annotations only
     from ..physics.coupling import SharedReturn
     from ..physics.hum import HumResult
     from ..physics.outlets import OutletVoltages
-    from ..physics.safety import DeviceEarth, SafetyResult
+    from ..physics.device_earth import DeviceEarth
+    from ..physics.safety import SafetyResult
     from .context import LoopInfo
 
 __all__ = ["Options", "Result"]

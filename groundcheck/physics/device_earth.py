@@ -1,0 +1,63 @@
+"""An installation's device earth paths: each placed device's protective path from its earth pin to the main
+earthing terminal (cord, strips, the building's protective wiring), for GC215."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..model.records import PE_POINT, Plan
+from ..network.earthing import ProtectiveRoute
+from .safety import protective_circuit
+
+__all__ = ["DeviceEarth", "installation_earths"]
+
+
+@dataclass(frozen=True)
+class DeviceEarth:
+    """An installation device's protective path from its earth pin to the main earthing terminal."""
+
+    device: str
+    inlet: str
+    resistance: float | None         # Ω, None when the path is broken
+
+    def as_dict(self) -> dict:
+        return {"device": self.device, "inlet": self.inlet,
+                "resistance_ohm": None if self.resistance is None else round(self.resistance, 6)}
+
+
+def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tuple[DeviceEarth, ...] | None:
+    """Each placed device's earth-pin path to the main earthing terminal; None when the plan has no
+    placed device or no point of kind ``earthing-terminal``.
+
+    Parameters:
+        plan: the plan.
+        route: the protective route.
+        circuit: the circuit.
+    Returns:
+        each placed device's earth path, or None when the plan places no device.
+    References:
+        IEC 60364-5-54.
+    """
+    class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}     # no earth pin to check
+    inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT
+                    and p.name.split(".", 1)[0] not in class_ii)
+    mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
+    if not inlets or not mets:
+        return None
+    circ = protective_circuit(plan, route, circuit)
+    _, labels = circ.components
+    met = circ.point_node[mets[0]]
+    reach = [n for n in inlets if labels[circ.point_node[n]] == labels[met] and n in route.reached]
+    R: dict[str, float] = {}
+    if reach:
+        J = np.zeros((len(circ.nodes), len(reach)), dtype=complex)
+        for k, n in enumerate(reach):
+            J[circ.point_node[n], k] += 1.0
+            J[met, k] -= 1.0
+        sol = circ.at(0.0).solve(J)
+        for k, n in enumerate(reach):
+            R[n] = float(abs(sol.V[circ.point_node[n], k] - sol.V[met, k]))
+    group = {p.name: p.group for p in plan.points}
+    return tuple(DeviceEarth(group.get(n) or n, n, R.get(n)) for n in inlets)
