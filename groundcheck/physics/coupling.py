@@ -17,6 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse.csgraph as csgraph
 
+from ..model.kinds import SIGNAL
 from ..core.errors import Location
 from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
@@ -79,7 +80,8 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float, circuit: C
         parts: dict = {}
         for amp, f in c.parts:
             parts[f] = parts.get(f, 0) + complex(amp)
-        out.append(Source(c.name, "signal" if c.role == "signal" else "current", c.a, c.b, parts, c.channel,
+        what = "signal" if c.role == SIGNAL else "current"
+        out.append(Source(c.name, what, c.a, c.b, parts, c.channel,
                           c.location))
     for h in plan.heaters:
         if h.a is not None and h.b is not None:
@@ -257,7 +259,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     sources += [Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, {0.0: 1.0}, r.channel, r.location)
                 for r in plan.rectifiers if r.filter_point is not None]
     sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel,
-                       c.location) for c in plan.currents if c.role != "signal"]
+                       c.location) for c in plan.currents if c.role != SIGNAL]
     sources += [Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location) for h in plan.heaters if h.a and h.b]
     stages = list(plan.stages)
     if not sources or not stages:
