@@ -1,8 +1,10 @@
-"""Kinds and roles are asked, never spelled: a conductor's kind or role is named as a string only in the kinds
-table (groundcheck/model/kinds.py); every other module asks the table what a kind can do.
+"""Kinds and roles are asked, never spelled: a conductor's kind or role is named as a string only
+in the kinds table (groundcheck/model/kinds.py); every other module asks the table what a kind
+can do.
 
-The scan reads the source with :mod:`ast` and flags a kind or role name written as a string where it decides
-something: compared with a kind or role, given as one, or listed with others of its vocabulary."""
+The scan reads the source with :mod:`ast` and flags a kind or role name written as a string where
+it decides something: compared with a kind or role, given as one, or listed with others of its
+vocabulary."""
 
 from __future__ import annotations
 
@@ -17,7 +19,8 @@ HOME = PACKAGE / "model" / "kinds.py"
 
 
 def _mentions(node: ast.AST, words: tuple[str, ...]) -> bool:
-    """Whether an expression reads a kind (or a role): ``c.kind``, ``kind``, ``kinds``, ``kinds.get(e)``."""
+    """Whether an expression reads a kind (or a role): ``c.kind``, ``kind``, ``kinds``,
+    ``kinds.get(e)``."""
     for n in ast.walk(node):
         if isinstance(n, ast.Attribute) and n.attr in words:
             return True
@@ -47,18 +50,30 @@ def scan(source: str, kinds: set[str], roles: set[str]) -> list[tuple[int, str]]
             for kw in node.keywords:
                 for words, names in vocab:
                     if kw.arg in words:
-                        out += [(s.lineno, s.value) for s in _strings(kw.value) if s.value in names]
-            if isinstance(node.func, ast.Name) and node.func.id == "Conductor" and len(node.args) > 1:
+                        out += [
+                            (s.lineno, s.value) for s in _strings(kw.value) if s.value in names
+                        ]
+            if (
+                isinstance(node.func, ast.Name)
+                and node.func.id == "Conductor"
+                and len(node.args) > 1
+            ):
                 out += [(s.lineno, s.value) for s in _strings(node.args[1]) if s.value in kinds]
-        elif isinstance(node, ast.AnnAssign) and isinstance(node.target, ast.Name) and node.value is not None:
+        elif (
+            isinstance(node, ast.AnnAssign)
+            and isinstance(node.target, ast.Name)
+            and node.value is not None
+        ):
             for words, names in vocab:
                 if node.target.id in words:
                     out += [(s.lineno, s.value) for s in _strings(node.value) if s.value in names]
         elif isinstance(node, (ast.Tuple, ast.List, ast.Set, ast.Dict)):
             items = node.keys if isinstance(node, ast.Dict) else node.elts
-            words = {n.value for n in items if isinstance(n, ast.Constant) and isinstance(n.value, str)}
+            words = {
+                n.value for n in items if isinstance(n, ast.Constant) and isinstance(n.value, str)
+            }
             for names in (kinds, roles):
-                if len(words & names) >= 3:          # a vocabulary listed again
+                if len(words & names) >= 3:  # a vocabulary listed again
                     out += [(node.lineno, w) for w in sorted(words & names)]
     return out
 
@@ -70,7 +85,7 @@ def _vocabulary() -> tuple[set[str], set[str]]:
 def test_the_scan_finds_what_it_looks_for():
     """The scan is not blind: each way of spelling a kind or role is found in a made-up module."""
     kinds, roles = _vocabulary()
-    src = '''
+    src = """
 if c.kind == "bolt": pass
 if c.kind in ("shield", "interconnect"): pass
 if kinds.get(e) == "interconnect": pass
@@ -82,10 +97,20 @@ WORDS = ("protective", "return", "signal")
 BY = {"wire": 1, "trace": 2, "cable": 3}
 class C:
     role: str = "signal"
-'''
+"""
     found = scan(src, kinds, roles)
-    assert {w for _, w in found} == {"bolt", "shield", "interconnect", "protective", "signal", "bond", "wire",
-                                     "return", "trace", "cable"}
+    assert {w for _, w in found} == {
+        "bolt",
+        "shield",
+        "interconnect",
+        "protective",
+        "signal",
+        "bond",
+        "wire",
+        "return",
+        "trace",
+        "cable",
+    }
     assert {line for line, _ in found} == set(range(2, 13)) - {11}
     # words of other vocabularies that happen to be compared with a kind are not kinds
     assert scan('if first.kind == "word" and s.kind != "signal": pass', kinds, roles) == []
@@ -97,6 +122,8 @@ def test_no_kind_or_role_is_spelled_outside_the_table():
     for path in sorted(PACKAGE.rglob("*.py")):
         if path == HOME:
             continue
-        found += [f"{path.relative_to(PACKAGE.parent)}:{line}: {word!r}"
-                  for line, word in scan(path.read_text(encoding="utf-8"), kinds, roles)]
+        found += [
+            f"{path.relative_to(PACKAGE.parent)}:{line}: {word!r}"
+            for line, word in scan(path.read_text(encoding="utf-8"), kinds, roles)
+        ]
     assert not found, "ask groundcheck.model.kinds instead of spelling:\n" + "\n".join(found)
