@@ -63,7 +63,7 @@ def blocks(draw, axis: str) -> Block:
     if n > 2 and draw(st.booleans()):  # and maybe a second path (a loop)
         i, j = draw(st.lists(st.integers(0, n - 1), min_size=2, max_size=2, unique=True))
         wires.append((i, j, draw(st.integers(0, 30)), draw(st.sampled_from(AREAS))))
-    bolted = tuple(sorted(draw(st.sets(st.integers(0, n - 1), min_size=0, max_size=2))))
+    bolted = tuple(sorted(draw(st.sets(st.integers(0, n - 1), min_size=1, max_size=2))))
     a, b = draw(st.lists(st.integers(0, n - 1), min_size=2, max_size=2, unique=True))
     stage = (a, b, draw(st.sampled_from([0, 20, 34, 40])))
     current = None
@@ -187,7 +187,9 @@ class Resistive:
 @st.composite
 def resistive_plans(draw) -> Resistive:
     n = draw(st.integers(3, 7))
-    ohms = st.sampled_from([0.001, 0.01, 0.05, 0.2, 1.0])
+    # no two values 1000 times apart: the hum budget lists a conductor whose share is above 1e-3
+    # of its source's largest, and at exactly 1e-3 rounding decides (scaled or not)
+    ohms = st.sampled_from([0.0012, 0.01, 0.047, 0.22, 1.0])
     res = [(i, draw(st.integers(0, i - 1)), draw(ohms)) for i in range(1, n)]
     for _ in range(draw(st.integers(0, 3))):
         a, b = draw(st.lists(st.integers(0, n - 1), min_size=2, max_size=2, unique=True))

@@ -26,7 +26,7 @@ from .ranking import largest
 
 __all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner",
            "pair_path", "path_drop",
-           "SHARE_THRESHOLD"]
+           "SHARE_THRESHOLD", "LISTED_TRANSFER"]
 
 #: a branch counts as carrying a current when it carries at least this fraction of it
 SHARE_THRESHOLD = 0.01
@@ -217,6 +217,9 @@ def path_drop(fac: Factored, sol: Solution, path) -> np.ndarray:
     return total
 
 
+#: a shared return is listed when its transfer resistance is above this, Ω (1 µΩ: 1 A of supply
+#: current leaves 1 µV on the stage's pair)
+LISTED_TRANSFER = 1e-6
 #: shared-return rows kept at the most (the strongest couplings first)
 MAX_SHARED_ROWS = 200
 
@@ -267,7 +270,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     _, labels = circuit.components
     fac = circuit.at(0.0)
     transfer = _transfers(circuit, fac, sources, stages)
-    pairs = np.argwhere(transfer > 1e-6)
+    pairs = np.argwhere(transfer > LISTED_TRANSFER)
     if len(pairs) > MAX_SHARED_ROWS:             # the strongest rows, kept in their order
         pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
     # test currents only for the stages that share (not one column for every stage of a large installation)
