@@ -118,7 +118,18 @@ def contact_groups(X: np.ndarray, Y: np.ndarray, contacts, radius: float, h: flo
     """Which contact each grid node belongs to (-1: none): a node within a contact's radius belongs
     to the nearest such contact (one as near as another belongs to neither, whatever their order);
     a contact whose disc keeps no node takes the free nodes nearest its centre (all of them when
-    several are as near)."""
+    several are as near).
+
+    Parameters:
+        X, Y: the grid nodes' coordinates, m.
+        contacts: the fastenings' centres, m.
+        radius: a fastener's contact radius, m.
+        h: the grid step, m (nodes within ON_CIRCLE of a step of the circle are on it).
+    Returns:
+        per node, the index of its contact or -1.
+    References:
+        none (bookkeeping: symmetric geometry meshes symmetrically, whatever the contacts' order).
+    """
     tol = ON_CIRCLE * h
     group = np.full(X.size, -1)
     best = np.full(X.size, np.inf)
