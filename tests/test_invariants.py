@@ -183,17 +183,17 @@ def drops_scale_with_resistance(r, k) -> None:
 #: each property, its strategies and how many plans the default suite gives it (the campaign,
 #: benchmarks/fuzz_campaign.py --invariants N, gives each N)
 PROPERTIES = {
-    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 40),
-    "names change no figure": (names_change_nothing, (mirrored_plans(),), 15),
+    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 150),
+    "names change no figure": (names_change_nothing, (mirrored_plans(),), 40),
     "an unconnected element changes no figure": (
         unconnected_changes_nothing,
         (mirrored_plans(), st.sampled_from(["point alone: pad\n", ISLAND])),
-        15,
+        40,
     ),
     "drops scale with resistance": (
         drops_scale_with_resistance,
         (resistive_plans(), st.sampled_from([0.5, 2.0, 10.0, 0.03])),
-        40,
+        200,
     ),
 }
 
