@@ -219,7 +219,15 @@ def kinds_with(attribute: str) -> tuple[str, ...]:
     return tuple(k.name for k in KINDS.values() if attribute in k.attributes)
 
 
+_OWNERS: dict = {}
+
+
 def owners() -> dict[str, tuple[str, ...]]:
-    """Each kind-only attribute word -> the kinds that accept it."""
-    words = sorted({w for k in KINDS.values() for w in k.attributes})
-    return {w: kinds_with(w) for w in words}
+    """Each kind-only attribute word -> the kinds that accept it (kept while the table's rows are
+    the same objects: the reader asks once per conductor statement)."""
+    key = tuple(map(id, KINDS.values()))
+    if key not in _OWNERS:
+        words = sorted({w for k in KINDS.values() for w in k.attributes})
+        _OWNERS.clear()
+        _OWNERS[key] = {w: kinds_with(w) for w in words}
+    return _OWNERS[key]
