@@ -53,12 +53,12 @@ def scan(source: str, kinds: set[str], roles: set[str]) -> list[tuple[int, str]]
                         out += [
                             (s.lineno, s.value) for s in _strings(kw.value) if s.value in names
                         ]
-            if (
-                isinstance(node.func, ast.Name)
-                and node.func.id == "Conductor"
-                and len(node.args) > 1
-            ):
-                out += [(s.lineno, s.value) for s in _strings(node.args[1]) if s.value in kinds]
+            # the positional kind of a Conductor, the positional role of a Current
+            name = node.func.id if isinstance(node.func, ast.Name) else ""
+            where = {"Conductor": (1, kinds), "Current": (4, roles)}.get(name)
+            if where and len(node.args) > where[0]:
+                at, names = where
+                out += [(s.lineno, s.value) for s in _strings(node.args[at]) if s.value in names]
         elif (
             isinstance(node, ast.AnnAssign)
             and isinstance(node.target, ast.Name)
@@ -97,6 +97,7 @@ WORDS = ("protective", "return", "signal")
 BY = {"wire": 1, "trace": 2, "cable": 3}
 class C:
     role: str = "signal"
+z = Current("n.leakage", "a", "b", ((1e-3, 50.0),), "leakage", None)
 """
     found = scan(src, kinds, roles)
     assert {w for _, w in found} == {
@@ -110,8 +111,9 @@ class C:
         "return",
         "trace",
         "cable",
+        "leakage",
     }
-    assert {line for line, _ in found} == set(range(2, 13)) - {11}
+    assert {line for line, _ in found} == set(range(2, 14)) - {11}
     # words of other vocabularies that happen to be compared with a kind are not kinds
     assert scan('if first.kind == "word" and s.kind != "signal": pass', kinds, roles) == []
 
