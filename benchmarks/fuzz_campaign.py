@@ -4,9 +4,12 @@
     python benchmarks/fuzz_campaign.py --grid                   # every number of every example, 17 extreme values
     python benchmarks/fuzz_campaign.py --mutants 5000           # token mutants of every example
     python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   # coverage-guided, if atheris installs
+    python benchmarks/fuzz_campaign.py --invariants 10000   # invariant properties, N plans each
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
-crash to record as a regression test in tests/test_robustness.py.
+crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
+tests/test_invariants.py (mirrored channels equal, names, unconnected elements, resistance scaling)
+run on N generated plans each with --invariants N; a failure is shrunk and printed by Hypothesis.
 """
 
 from __future__ import annotations
@@ -63,13 +66,29 @@ def examples(grid: bool, mutants: int) -> None:
             print(f"  {k}  (first: {where})")
 
 
+def invariants(n: int) -> None:
+    """Every property of tests/test_invariants.py on ``n`` generated plans each."""
+    from test_invariants import PROPERTIES
+    t = time.perf_counter()
+    for name, (check, strategies, _) in PROPERTIES.items():
+        run = given(*strategies)(check)
+        settings(max_examples=n, deadline=None, database=None,
+                 suppress_health_check=list(HealthCheck))(run)()
+        print(f"{name}: {n} plans, no failure, {time.perf_counter() - t:.0f} s so far", flush=True)
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--examples", type=int, default=2000)
     ap.add_argument("--atheris", action="store_true")
     ap.add_argument("--grid", action="store_true", help="the extreme-value grid over every example's numbers")
     ap.add_argument("--mutants", type=int, default=0, metavar="N", help="N token mutants of every example")
+    ap.add_argument("--invariants", type=int, default=0, metavar="N",
+                    help="the invariant properties, N plans each")
     args, rest = ap.parse_known_args()
+    if args.invariants:
+        invariants(args.invariants)
+        return
     if args.grid or args.mutants:
         examples(args.grid, args.mutants)
         return

@@ -111,6 +111,39 @@ def test_sigterm_during_a_write_leaves_no_temporary_file(tmp_path):
     assert list(tmp_path.iterdir()) == []
 
 
+def test_main_leaves_no_signal_handler_behind(tmp_path, monkeypatch):
+    """main() is callable from tests and other programs: SIGTERM is turned into an exit only
+    while an output file is written; afterwards the process has the handler it had before."""
+    import os
+    import signal
+    from groundcheck.cli import main
+    from helpers import EXAMPLES
+    seen = []
+    real_replace = os.replace
+
+    def spy(src, dst):
+        seen.append(signal.getsignal(signal.SIGTERM))
+        return real_replace(src, dst)
+    monkeypatch.setattr(os, "replace", spy)
+    previous = signal.signal(signal.SIGTERM, signal.SIG_DFL)        # as a fresh process has it
+    try:
+        out = tmp_path / "report.json"
+        assert main(["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out)]) in (0, 1)
+        assert out.exists() and len(seen) == 1
+        # held while the file was written, and gone afterwards
+        assert seen[0] not in (signal.SIG_DFL, signal.SIG_IGN, None)
+        assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL
+        main(["check", str(EXAMPLES[0]), "--format", "json"])    # to standard output: nothing held
+        assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL and len(seen) == 1
+        # a caller's own handler is kept, during the write too
+        own = lambda signum, frame: None                                 # noqa: E731
+        signal.signal(signal.SIGTERM, own)
+        main(["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out)])
+        assert seen[1] is own and signal.getsignal(signal.SIGTERM) is own
+    finally:
+        signal.signal(signal.SIGTERM, previous)
+
+
 def test_a_dying_worker_is_an_error_not_a_wait():
     import os
     from groundcheck.physics.sweep import WorkerError, map_frequencies

@@ -13,7 +13,8 @@ from __future__ import annotations
 
 import math
 
-from ..model.kinds import is_fastening
+from ..model.kinds import (SIGNAL, is_fastening, is_fastening_kind, is_hookup, joins_devices,
+                           shield_like)
 from ..model.records import PE_POINT, Plan
 from ..rules.results import Result
 from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, STUD_CLEARANCE, Candidate,
@@ -29,7 +30,7 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
         if lp.closed_by == "chassis-structure" or not lp.open_at:
             continue
         c = ctx.cond[lp.open_at]
-        if lp.closed_by == "shield-both-ends" and c.kind == "shield":
+        if lp.closed_by == "shield-both-ends" and shield_like(c) and not joins_devices(c):
             continue          # answered by terminating one end, below
         if is_fastening(c, ctx.metals):
             add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated socket or shoulder "
@@ -38,7 +39,8 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
             add(delete_change(ctx, lp.open_at, f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
                               "GC101"))
         st = ctx.statement(c)
-        if lp.closed_by in ("second-chassis-bond", "mains-cords") and c.kind == "wire" and st is not None:
+        if (lp.closed_by in ("second-chassis-bond", "mains-cords") and is_hookup(c)
+                and st is not None):
             ends = ctx.src.ends(st)
             if ends is not None:
                 indent = ctx.src.lines[st.loc.line - 1][: st.loc.column - 1]
@@ -59,7 +61,7 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
         elif f.code == "GC105":
             for verb, e in f.actions:
                 c = ctx.cond.get(e)
-                if c is None or c.kind in ("shield", "interconnect"):
+                if c is None or shield_like(c):
                     continue          # a shield is lifted at one end (GC108), not removed
                 what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
                     else "remove the second chassis bond {e}"
@@ -125,7 +127,7 @@ def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] |
 def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
     """GC202: the protective conductor moves to a new stud of its own, bolted to the same part."""
     pe = next((ctx.cond[e] for e in f.elements if e in ctx.cond and e in ctx.result.protective
-               and ctx.cond[e].kind not in ("bolt",)), None)
+               and not is_fastening_kind(ctx.cond[e].kind)), None)
     old_pt = ctx.plan.point(f.elements[1]) if len(f.elements) > 1 else None
     st = ctx.statement(pe) if pe is not None else None
     if st is None or old_pt is None or old_pt.pos is None:
@@ -158,7 +160,7 @@ def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     stud (the protective earth keeps its fastener to itself, GC202) to a new stud on the part (common practice:
     each touchable part bonded by a conductor, never through its fixings)."""
     part = next((e for e in f.elements if e in ctx.metals), None)
-    lead = next((c for c in ctx.plan.conductors if PE_POINT in (c.a, c.b) and c.kind == "wire"
+    lead = next((c for c in ctx.plan.conductors if PE_POINT in (c.a, c.b) and is_hookup(c)
                  and ctx.protective(c)), None)
     if part is None or lead is None or ctx.plan.mains is None:
         return None
@@ -226,7 +228,7 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
         return
     for end, other in ((row.a, row.b), (row.b, row.a)):
         for d in ctx.plan.conductors:
-            if other in (d.a, d.b) and d.kind not in ("interconnect", "shield") and not ctx.protective(d):
+            if other in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
                              f"{row.source} current stays between them and leaves {', '.join(row.shared)}",
@@ -271,11 +273,11 @@ def _crosstalk_candidates(ctx: ChangeContext, add) -> None:
     wire of its own)."""
     talkers = {f.elements[0] for f in ctx.result.findings if f.code == "GC304" and f.elements}
     for cur in ctx.plan.currents:
-        if cur.role != "signal" or cur.channel not in talkers:
+        if cur.role != SIGNAL or cur.channel not in talkers:
             continue
         goal = cur.b if cur.b in ctx.stars else ctx.nearest_star(cur.b)
         for d in ctx.plan.conductors:
-            if cur.a in (d.a, d.b) and d.kind not in ("interconnect", "shield") and not ctx.protective(d):
+            if cur.a in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
                 far = d.b if d.a == cur.a else d.a
                 if goal and far != goal:
                     add(reroute(ctx, d.name, far, goal, f"take {cur.a} to {goal} by its own wire ({d.name}), so "

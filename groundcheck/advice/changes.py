@@ -10,6 +10,7 @@ from dataclasses import dataclass
 from functools import cached_property
 from pathlib import Path
 
+from ..model.kinds import PROTECTIVE, joins_devices, shield_like
 from ..model.records import Plan
 from ..rules.results import Result
 from .edits import Edit, PlanTexts, shown_path
@@ -51,7 +52,7 @@ class ChangeContext:
 
     def protective(self, c) -> bool:
         """Protective by topology or by role (groundcheck.network.earthing): never removed, re-routed or lifted."""
-        return c.name in self.result.protective or c.role == "protective"
+        return c.name in self.result.protective or c.role == PROTECTIVE
 
     def statement(self, c):
         """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan (its name
@@ -112,7 +113,7 @@ def device_note(c: "Candidate", main: str) -> "Candidate":
 def delete_change(ctx: ChangeContext, name: str, title: str, reason: str) -> Candidate | None:
     c = ctx.cond.get(name)
     st = ctx.statement(c) if c is not None else None
-    if c is None or c.kind == "interconnect" or st is None:
+    if c is None or joins_devices(c) or st is None:
         return None
     note = block_note(c.name, st.label or "") if st.loc.file == ctx.plan.file else ""
     return Candidate(title + note, reason, (ctx.src.delete(st),), ctx.protective(c))
@@ -131,7 +132,7 @@ def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason
     """Move the ``end`` of conductor ``name`` to point ``to``; its length follows the new route."""
     c = ctx.cond.get(name)
     st = ctx.statement(c) if c is not None else None
-    if c is None or st is None or c.kind in ("interconnect", "shield") or to == end:
+    if c is None or st is None or shield_like(c) or to == end:
         return None
     items = ctx.src.ends(st)
     if items is None:

@@ -6,6 +6,7 @@ sound).  See :mod:`groundcheck.advice.candidates` for the rest.
 
 from __future__ import annotations
 
+from ..model.kinds import is_fastening_kind, joins_devices
 from ..model.installation import shield_ends
 from ..model.records import Plan
 from ..rules.protective import DEVICE_EARTH_LIMIT
@@ -34,13 +35,13 @@ def installation_candidates(ctx: ChangeContext, add) -> None:
 
 def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
     """Interconnects in loops through mains cords, or sharing a supply or leakage current with a stage."""
-    kinds = {c.name: c.kind for c in plan.conductors}
+    links = {c.name for c in plan.conductors if joins_devices(c)}
     names = {e for lp in result.loops if lp.closed_by == "mains-cords"
-             for e in lp.loop.edges if kinds.get(e) == "interconnect"}
+             for e in lp.loop.edges if e in links}
     # a cable that shares a rectifier's charging current is a power umbilical: balancing it cures nothing (the
     # cure is inside the supply: the shared-return changes of candidates.py), so only leakage and stated currents count
     names |= {e for row in result.coupling if row.kind != "rectifier" for e in row.shared
-              if kinds.get(e) == "interconnect"}
+              if e in links}
     return names
 
 
@@ -61,7 +62,8 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
                 continue
             dev = pt.group.split(".", 1)[0]
             bond = ctx.cond.get(f"{dev}.gnd_bond")
-            dst = ctx.statement(bond) if bond is not None and bond.kind == "bolt" else None
+            fastened = bond is not None and is_fastening_kind(bond.kind)
+            dst = ctx.statement(bond) if fastened else None
             if dst is None:
                 continue
             ph = ctx.src.find(dst, "signal-ground")
@@ -107,7 +109,7 @@ def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
         if f.code != "GC215" or f.elements[0] not in devices:
             continue
         dev = devices[f.elements[0]]
-        mates = [x.split(".", 1)[0] for c in ctx.plan.conductors if c.kind == "interconnect"
+        mates = [x.split(".", 1)[0] for c in ctx.plan.conductors if joins_devices(c)
                  for x, y in ((c.a, c.b), (c.b, c.a)) if y.split(".", 1)[0] == dev.name]
         near = [devices[m].plugged for m in mates if m in devices and devices[m].plugged in sound]
         st = ctx.src.statement(dev.location.line) if dev.location.file == ctx.plan.file else None

@@ -336,20 +336,6 @@ COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, 
             "watch": cmd_watch}
 
 
-def _terminate_cleanly() -> None:
-    """SIGTERM ends the run as an exception does (status 143), so a half-written output's temporary file is
-    removed by the writer's own clean-up rather than left behind."""
-    import signal
-
-    def stop(signum, frame):
-        raise SystemExit(128 + signum)
-    try:
-        if signal.getsignal(signal.SIGTERM) == signal.SIG_DFL:
-            signal.signal(signal.SIGTERM, stop)
-    except ValueError:                    # not the main thread (a library caller's worker): leave it be
-        pass
-
-
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
     try:
@@ -359,7 +345,8 @@ def main(argv: list[str] | None = None) -> int:
     if not args.command:
         parser.print_help()
         return 2
-    _terminate_cleanly()
+    # no process-wide handler here: SIGTERM is turned into an exit only while an output is written
+    # (renderers.output.write_atomic), so main() leaves a caller's process as it found it
     try:
         return COMMANDS[args.command](args)
     except PlanErrors as e:

@@ -1,4 +1,5 @@
-"""Process-level helpers shared by every stage: the garbage-collector pause and forking primitives.
+"""Process-level helpers shared by every stage: the garbage-collector pause, forking primitives and
+the SIGTERM handler held only while an output file is written.
 
 Forking is used on Linux only, and never from inside a daemonic worker (which may not start
 processes of its own).
@@ -8,10 +9,13 @@ from __future__ import annotations
 
 import gc
 import os
+import signal
 import sys
+import threading
 from contextlib import contextmanager
 
-__all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas", "note_read", "files_read"]
+__all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas", "note_read", "files_read",
+           "terminate_as_exit"]
 
 #: every plan file this process has read (resolved): outputs may never be written over one of them
 _READ: set = set()
@@ -67,3 +71,26 @@ def quiet_child() -> None:
     final flush of it would wait forever.  Workers report through their return values instead.
     """
     sys.stdout = sys.stderr = open(os.devnull, "w")  # noqa: SIM115 - lives as long as the worker
+
+
+def _exit_on_signal(signum, frame):
+    raise SystemExit(128 + signum)
+
+
+@contextmanager
+def terminate_as_exit():
+    """While the block runs, SIGTERM ends the run as an exception does (status 143), so the block's
+    own clean-up (a half-written output's temporary file) runs; the previous handler is back
+    afterwards.
+
+    Only in the main thread and only over the default handler: a program that set its own keeps it,
+    and nothing is left installed in the process once the block is done."""
+    if threading.current_thread() is not threading.main_thread() \
+            or signal.getsignal(signal.SIGTERM) != signal.SIG_DFL:
+        yield
+        return
+    previous = signal.signal(signal.SIGTERM, _exit_on_signal)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)

@@ -10,6 +10,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from ..core.errors import LimitError, Location, PlanError
+from ..model.kinds import joins_devices
 from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .devices import merge_device
 from .installation import check_bundles, check_supplies, land_shields, leakage_currents
@@ -163,7 +164,7 @@ def assemble(built: list, file: str, ld) -> Plan:
     placed = {d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class)) for d, _ in devices}
     landings = {}                        # device -> the first point of it an interconnect lands on
     for c, *_ in groups[Conductor]:
-        if c.kind == "interconnect":
+        if joins_devices(c):
             for end in (c.a, c.b):
                 landings.setdefault(end.split(".", 1)[0], end)
     groups[Current] += [(x, {}) for x in leakage_currents(list(placed.values()), {s[0]: s[1:] for s, _ in supplies},
@@ -184,7 +185,7 @@ def assemble(built: list, file: str, ld) -> Plan:
     _check_sources(groups, nodes, check)
     stages = [r for r, *_ in groups[Stage]]
     for c in conductors:
-        if c.kind == "interconnect" and c.gain is not None:
+        if joins_devices(c) and c.gain is not None:
             gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)
             stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location, across=c.name))
     if placed:

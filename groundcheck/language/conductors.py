@@ -5,10 +5,10 @@ from __future__ import annotations
 
 from ..core.errors import PlanError
 from ..core.units import awg_diameter
-from ..model.kinds import KINDS, default_role
+from ..model.kinds import KINDS, ROLES, default_role, owners
 from ..model.records import CABLE_CORES, Conductor, make
 from .phrases import Reader, Statement, check_quantity
-from .reading import MATERIALS, ROLE_WORDS, Refs, first_phrase_ends, material, unknown
+from .reading import MATERIALS, Refs, first_phrase_ends, material, unknown
 
 __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
@@ -16,8 +16,6 @@ __all__ = ["conductor", "CONDUCTOR_NAMED"]
 CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
                    "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced",
                    "gain", "cmrr", "imbalance", "common-mode", "load", "cores", "shield-to", "in")
-#: the named attributes that belong to one kind only
-_ONLY = {"load": "cable", "cores": "cable", "shield-to": "interconnect", "in": "core"}
 #: where an interconnect's shield end can land
 SHIELD_LANDINGS = ("chassis", "signal")
 #: the field a bare quantity of each kind sets on a conductor
@@ -75,11 +73,13 @@ def conductor(stmt: Statement):
     kind = stmt.keyword
     refs: Refs = {}
     a, b = first_phrase_ends(stmt, refs)
+    row = KINDS[kind]
     kw: dict = {"role": default_role(kind)}
-    if kind == "bolt":
-        kw["contact"] = 0.5e-3
-    if kind == "trace":
-        kw["thickness"] = 35e-6
+    if row.contact is not None:
+        kw["contact"] = row.contact
+    if row.thickness is not None:
+        kw["thickness"] = row.thickness
+    only = owners()              # the attribute words that belong to some kinds only
     named = CONDUCTOR_NAMED
     for ph in stmt.phrases[1:]:
         r = Reader(ph, stmt)
@@ -87,9 +87,11 @@ def conductor(stmt: Statement):
         if first.kind == "qty":
             it = r.next("")
             field = _CONDUCTOR_QTY.get(it.qkind)
-            if field is None or (field == "capacitance" and kind != "lift"):
+            if field is None or (field in only and field not in row.attributes):
+                lifts = _a(" or ".join(only.get("capacitance", ())))
                 raise PlanError(f"{kind}: a {it.qkind} is not expected here", it.loc,
-                                "give lengths, areas (mm2 or AWG) and resistances; a capacitance only on a lift")
+                                "give lengths, areas (mm2 or AWG) and resistances; "
+                                f"a capacitance only on {lifts}")
             kw[field] = check_quantity(it, it.qkind, field, allow_zero=field == "resistance")
             if field == "area" and it.text.upper().endswith("AWG"):
                 kw["diameter"] = (4 * kw["area"] / 3.141592653589793) ** 0.5    # the area is AWG 0000-aware
@@ -100,17 +102,18 @@ def conductor(stmt: Statement):
                 raise PlanError(f"AWG size {n:g} is not a whole gauge", first.loc, "use a size from 0000 (-3) to 46")
             d = awg_diameter(n)
             kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
-        elif first.kind == "word" and first.value in ROLE_WORDS:
+        elif first.kind == "word" and first.value in ROLES:
             kw["role"] = r.word()
         elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
             kw["material"] = material(r.word())
         elif first.kind == "word" and first.value in named:
-            if _ONLY.get(first.value, kind) != kind:
-                raise PlanError(f"{first.value} is an attribute of {_a(_ONLY[first.value])}, not of {_a(kind)}",
+            if first.value in only and first.value not in row.attributes:
+                owner = _a(" or ".join(only[first.value]))
+                raise PlanError(f"{first.value} is an attribute of {owner}, not of {_a(kind)}",
                                 first.loc, _HINTS[first.value])
             _named(r, r.word(), kw, a, b)
         else:
-            raise unknown(stmt, first, ROLE_WORDS + MATERIALS + named + ("AWG",))
+            raise unknown(stmt, first, ROLES + MATERIALS + named + ("AWG",))
         r.finish()
     _check_geometry(stmt, kind, kw)
     return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs

@@ -10,6 +10,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from ..core.errors import PlanError, PlanErrors
+from ..model.kinds import BOND, CORD_KIND, DEVICE_BOND_KIND, KINDS, LIFT_KIND, PROTECTIVE
 from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan,
                              Point,
                              Rectifier, Stage)
@@ -48,14 +49,15 @@ def simple_device(dev: Device) -> Plan:
     metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), class_i, loc),)
     points = ((Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc),) if class_i else ()) + (
         Point(f"{n}.gnd", "terminal", None, None, n, loc),)
-    conductors = [Conductor(f"{n}.pe_bond", "bolt", f"{n}.{PE_POINT}", f"{n}.chassis", role="protective",
-                            contact=0.5e-3, location=loc)] if class_i else []
+    contact = KINDS[DEVICE_BOND_KIND].contact
+    conductors = [Conductor(f"{n}.pe_bond", DEVICE_BOND_KIND, f"{n}.{PE_POINT}", f"{n}.chassis",
+                            role=PROTECTIVE, contact=contact, location=loc)] if class_i else []
     if dev.signal_ground == "chassis":
-        conductors.append(Conductor(f"{n}.gnd_bond", "bolt", f"{n}.gnd", f"{n}.chassis", role="bond", contact=0.5e-3,
-                                    location=loc))
+        conductors.append(Conductor(f"{n}.gnd_bond", DEVICE_BOND_KIND, f"{n}.gnd", f"{n}.chassis",
+                                    role=BOND, contact=contact, location=loc))
     elif dev.signal_ground == "lift":
-        conductors.append(Conductor(f"{n}.gnd_lift", "lift", f"{n}.gnd", f"{n}.chassis", resistance=10.0,
-                                    capacitance=47e-9, location=loc))
+        conductors.append(Conductor(f"{n}.gnd_lift", LIFT_KIND, f"{n}.gnd", f"{n}.chassis",
+                                    resistance=10.0, capacitance=47e-9, location=loc))
     return Plan(title=n, file=str(loc.file), metals=metals, points=points, conductors=tuple(conductors), location=loc)
 
 
@@ -124,7 +126,8 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
     pe = f"{dev.name}.{PE_POINT}"
     if dev.plugged is not None and pe in points and classes.get(dev.name, dev.equipment_class) == "I":
-        groups[Conductor].append((Conductor(f"{dev.name}.cord", "wire", pe, dev.plugged, role="protective",
+        groups[Conductor].append((Conductor(f"{dev.name}.cord", CORD_KIND, pe, dev.plugged,
+                                            role=PROTECTIVE,
                                             length=dev.cord_length or cord_default[0],
                                             area=dev.cord_area or cord_default[1],
                                             location=dev.location), {}))

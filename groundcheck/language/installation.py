@@ -13,6 +13,7 @@ from dataclasses import replace
 
 from ..core.errors import PlanError
 from ..model.installation import conductors_by_device, device_chassis, device_of, shield_ends
+from ..model.kinds import LEAKAGE, joins_devices
 from ..model.records import PE_POINT, Conductor, Current, Device
 
 __all__ = ["DEFAULT_Y_CAPACITANCE", "VOLTAGE_TOLERANCE", "check_supplies", "leakage_currents", "land_shields",
@@ -86,8 +87,8 @@ def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict
         start = (f"{dev.name}.{PE_POINT}" if dev.equipment_class == "I" else
                  f"{dev.name}.gnd" if dev.source == "simple" else (landings or {}).get(dev.name, ""))
         if amps > 0 and start in points:
-            out.append(Current(f"{dev.name}.leakage", start, met, ((amps, hz or 0.0),), "leakage", None,
-                               dev.location))
+            out.append(Current(f"{dev.name}.leakage", start, met, ((amps, hz or 0.0),), LEAKAGE,
+                               None, dev.location))
     return out
 
 
@@ -97,7 +98,7 @@ def land_shields(conductors: list[Conductor], devices: dict, metals: dict, error
     own = conductors_by_device(conductors, devices)
     out = []
     for c in conductors:
-        if c.kind == "interconnect":
+        if joins_devices(c):
             ends = []
             for end, landing in zip((c.a, c.b), shield_ends(c)):
                 dev = device_of(end, devices)

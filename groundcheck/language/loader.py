@@ -18,7 +18,7 @@ from .placement import Transform, name_placements, place
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
 from ..model.records import Plan
 from .phrases import Reader, Statement
-from .statements import BUILDERS, KEYWORDS, build
+from .statements import KEYWORDS, build, builder_of
 from ..core.runtime import can_fork, no_gc, note_read
 from .syntax import BlockDef, parse_text, suggest_keyword
 
@@ -288,7 +288,7 @@ class _Loader:
                     self.expand(self.blocks[block].body, new_prefix, inner_tf.then(tf),
                                 ((new_prefix, self.local_names(block)),) + scopes, depth + 1, path + (block,), out)
                     continue
-                if st.keyword not in BUILDERS:
+                if builder_of(st.keyword) is None:
                     raise PlanError(f"unknown keyword {st.keyword!r}", st.loc, suggest_keyword(st.keyword, KEYWORDS))
                 if st.broken:
                     if st.label:

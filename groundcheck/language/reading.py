@@ -8,11 +8,11 @@ import difflib
 from ..core.errors import Location, PlanError
 from .phrases import Reader, Statement
 
-__all__ = ["MATERIALS", "ROLE_WORDS", "POINT_KINDS", "FIELD_KINDS", "FUSE_KINDS", "Refs", "unknown", "need_label",
+__all__ = ["MATERIALS", "POINT_KINDS", "FIELD_KINDS", "FUSE_KINDS", "Refs", "unknown",
+           "need_label",
            "no_label", "ends", "first_phrase_ends", "it_number", "material"]
 
 MATERIALS = ("copper", "aluminium", "aluminum", "brass", "steel", "stainless", "tinned-copper", "silver")
-ROLE_WORDS = ("protective", "return", "signal", "shield", "bond", "heater")
 POINT_KINDS = ("junction", "stud", "star", "busbar", "tag", "sleeve", "jack", "pot", "pad", "cap",
                "centre-tap", "center-tap", "terminal", "inlet", "lug", "outlet", "earthing-terminal")
 FIELD_KINDS = ("transformer", "toroid", "choke", "mains-wiring", "motor", "other")

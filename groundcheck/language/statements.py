@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from ..core.errors import PlanError
 from ..core.units import ratio_of_db
+from ..model.kinds import CONDUCTOR_KINDS, KINDS
 from ..model.records import Device, FieldSource, Listening, Metal, Point, Stage, make
 from .conductors import conductor
 from .phrases import Reader, Statement, check_quantity
@@ -18,7 +19,7 @@ from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_en
                       unknown)
 from .supply import current, heater, mains, rectifier, supply
 
-__all__ = ["BUILDERS", "KEYWORDS", "build", "MAX_PART_SIDE"]
+__all__ = ["BUILDERS", "KEYWORDS", "build", "builder_of", "MAX_PART_SIDE"]
 
 #: the largest metal part, m: a rack or a bench is a few metres (the plate model's grid is sized for parts)
 MAX_PART_SIDE = 10.0
@@ -265,9 +266,7 @@ def library(stmt: Statement):
 BUILDERS = {
     "plan": plan_header, "mains": mains, "supply": supply, "ambient": ambient, "listening": listening,
     "metal": metal, "point": point,
-    "wire": conductor, "trace": conductor, "busbar": conductor, "bolt": conductor, "strap": conductor,
-    "cable": conductor, "core": conductor, "shield": conductor, "interconnect": conductor, "lift": conductor,
-    "switch": conductor,
+    **{k: conductor for k in CONDUCTOR_KINDS},
     "rectifier": rectifier, "current": current, "heater": heater, "stage": stage, "field": field_source,
     "device": device, "library": library,
 }
@@ -276,6 +275,11 @@ BUILDERS = {
 KEYWORDS = tuple(BUILDERS) + ("include", "place", "block")
 
 
+def builder_of(keyword: str):
+    """The builder of a keyword, or None: every row of the kinds table is a conductor keyword."""
+    return conductor if keyword in KINDS else BUILDERS.get(keyword)
+
+
 def build(stmt: Statement):
     """Build the record of one statement: ``(record, refs)``; raises :class:`PlanError`."""
-    return BUILDERS[stmt.keyword](stmt)
+    return builder_of(stmt.keyword)(stmt)

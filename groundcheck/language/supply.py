@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from ..core.errors import PlanError
+from ..model.kinds import CURRENT_ROLES
 from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier, Supply
 from .phrases import Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
@@ -227,13 +228,13 @@ def current(stmt: Statement):
             amp = r.quantity("current", "current", allow_zero=True)
             freq = r.quantity("frequency", "frequency", allow_zero=True) if not r.done else 0.0
             parts.append((amp, freq))
-        elif first.kind == "word" and first.value in ("return", "load", "heater", "leakage", "signal"):
+        elif first.kind == "word" and first.value in CURRENT_ROLES:
             kw["role"] = r.word()
         elif first.kind == "word" and first.value == "channel":
             r.word()
             kw["channel"] = r.word("a channel name")
         else:
-            raise unknown(stmt, first, ("return", "load", "heater", "leakage", "signal", "channel", "120 mA 100 Hz"))
+            raise unknown(stmt, first, CURRENT_ROLES + ("channel", "120 mA 100 Hz"))
         r.finish()
     if not parts:
         raise PlanError("current needs its size", stmt.loc, "e.g. ', 20 mA 100 Hz' (no frequency means DC)")

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from collections import deque
 
+from .kinds import in_device_ground
 from .records import PE_POINT, Conductor
 
 __all__ = ["device_of", "conductors_by_device", "device_chassis", "shield_ends"]
@@ -32,7 +33,7 @@ def device_chassis(dev: str, conductors: list[Conductor], metals: dict, near: st
     ``NAME.chassis``)."""
     adj: dict = {}
     for c in conductors:
-        if c.name.startswith(dev + ".") and c.kind not in ("interconnect", "lift") and c.connects:
+        if c.name.startswith(dev + ".") and in_device_ground(c) and c.connects:
             adj.setdefault(c.a, []).append(c.b)
             adj.setdefault(c.b, []).append(c.a)
     for start in ((near,) if near else ()) + (f"{dev}.{PE_POINT}",):

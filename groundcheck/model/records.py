@@ -11,7 +11,7 @@ from __future__ import annotations
 from dataclasses import MISSING, dataclass, field, fields
 
 from ..core.errors import Location
-from .kinds import CONDUCTOR_KINDS
+from .kinds import CONDUCTOR_KINDS, RETURN, ROLES, SIGNAL, can_open, shield_like
 
 __all__ = ["Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current", "Heater", "Stage",
            "FieldSource", "Device", "Plan", "Supply", "CABLE_CORES", "PE_POINT", "ROLES", "CONDUCTOR_KINDS",
@@ -19,9 +19,6 @@ __all__ = ["Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Cu
 
 #: the implicit point of the mains inlet's protective-earth terminal
 PE_POINT = "mains.pe"
-
-#: what a conductor is for
-ROLES = ("protective", "return", "signal", "shield", "bond", "heater")
 
 
 XY = tuple[float, float]
@@ -156,7 +153,7 @@ class Conductor:
     kind: str
     a: str
     b: str
-    role: str = "signal"
+    role: str = SIGNAL
     material: str = "copper"
     length: float | None = None          # m
     area: float | None = None            # m²
@@ -186,9 +183,9 @@ class Conductor:
     @property
     def connects(self) -> bool:
         """Whether it joins its two ends electrically (an open switch or a one-end shield does not)."""
-        if self.kind == "switch" and not self.closed:
+        if can_open(self) and not self.closed:
             return False
-        if self.kind in ("shield", "interconnect") and self.terminated != "both":
+        if shield_like(self) and self.terminated != "both":
             return False
         return True
 
@@ -237,7 +234,7 @@ class Current:
     a: str
     b: str
     parts: tuple[tuple[float, float], ...] = ()
-    role: str = "return"
+    role: str = RETURN
     channel: str | None = None
     location: Location = field(default=Location("<plan>"), compare=False)
 

@@ -20,7 +20,7 @@ from __future__ import annotations
 from collections import deque
 from dataclasses import dataclass
 
-from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective
+from ..model.kinds import LEAKAGE, PROTECTIVE, PROTECTIVE_ROLES, can_carry_protective
 from ..model.records import PE_POINT, Plan
 
 __all__ = ["EARTH_TERMINAL_KINDS", "ProtectiveRoute", "earth_terminals", "protective_route", "signal_points"]
@@ -67,7 +67,7 @@ def signal_points(plan: Plan) -> set[str]:
     pts = set()
     for s in plan.stages:
         pts.update((s.a, s.b))
-    for r in (*plan.rectifiers, *(c for c in plan.currents if c.role != "leakage")):
+    for r in (*plan.rectifiers, *(c for c in plan.currents if c.role != LEAKAGE)):
         pts.update((r.a, r.b))
     pts.update(p.name for p in plan.points if p.kind == "star")
     return pts
@@ -135,7 +135,7 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
             v = u
     conds = {c.name: c for c in plan.conductors}
     unmarked = tuple(sorted(k for k in route if conds[k].role not in PROTECTIVE_ROLES))
-    marked = {c.name for c in plan.conductors if c.role == "protective" and can_carry_protective(c)}
+    marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
     side = done - (blocked - set(roots))
     keep = {k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost}

@@ -25,6 +25,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
+from ..model.kinds import is_fastening_kind, is_lift
 from ..model.records import PE_POINT, Plan
 from ..network.graph import part_labels
 from .factored import Factored, Solution
@@ -328,7 +329,7 @@ class _Builder:
         if not path:
             pa = self.positions.get(self.nodes[ends[0]])
             pb = self.positions.get(self.nodes[ends[1]])
-            if pa is not None and pb is not None and c.kind == "bolt":
+            if pa is not None and pb is not None and is_fastening_kind(c.kind):
                 path = (pa, pb)
         self.branches.append(Branch(ends[0], ends[1], c.name, r, ind, radius, rho,
-                                    c.capacitance if c.kind == "lift" else None, path, c.name))
+                                    c.capacitance if is_lift(c) else None, path, c.name))

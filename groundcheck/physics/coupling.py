@@ -17,6 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse.csgraph as csgraph
 
+from ..model.kinds import SIGNAL
 from ..core.errors import Location
 from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
@@ -25,7 +26,7 @@ from .ranking import largest
 
 __all__ = ["SharedReturn", "shared_returns", "MAX_SHARED_ROWS", "Source", "plan_sources", "pair_tests", "branch_owner",
            "pair_path", "path_drop",
-           "SHARE_THRESHOLD"]
+           "SHARE_THRESHOLD", "LISTED_TRANSFER"]
 
 #: a branch counts as carrying a current when it carries at least this fraction of it
 SHARE_THRESHOLD = 0.01
@@ -79,7 +80,8 @@ def plan_sources(plan, rectifier_results: dict, max_frequency: float, circuit: C
         parts: dict = {}
         for amp, f in c.parts:
             parts[f] = parts.get(f, 0) + complex(amp)
-        out.append(Source(c.name, "signal" if c.role == "signal" else "current", c.a, c.b, parts, c.channel,
+        what = "signal" if c.role == SIGNAL else "current"
+        out.append(Source(c.name, what, c.a, c.b, parts, c.channel,
                           c.location))
     for h in plan.heaters:
         if h.a is not None and h.b is not None:
@@ -215,6 +217,9 @@ def path_drop(fac: Factored, sol: Solution, path) -> np.ndarray:
     return total
 
 
+#: a shared return is listed when its transfer resistance is above this, Ω (1 µΩ: 1 A of supply
+#: current leaves 1 µV on the stage's pair)
+LISTED_TRANSFER = 1e-6
 #: shared-return rows kept at the most (the strongest couplings first)
 MAX_SHARED_ROWS = 200
 
@@ -257,7 +262,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     sources += [Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, {0.0: 1.0}, r.channel, r.location)
                 for r in plan.rectifiers if r.filter_point is not None]
     sources += [Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel,
-                       c.location) for c in plan.currents if c.role != "signal"]
+                       c.location) for c in plan.currents if c.role != SIGNAL]
     sources += [Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location) for h in plan.heaters if h.a and h.b]
     stages = list(plan.stages)
     if not sources or not stages:
@@ -265,7 +270,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     _, labels = circuit.components
     fac = circuit.at(0.0)
     transfer = _transfers(circuit, fac, sources, stages)
-    pairs = np.argwhere(transfer > 1e-6)
+    pairs = np.argwhere(transfer > LISTED_TRANSFER)
     if len(pairs) > MAX_SHARED_ROWS:             # the strongest rows, kept in their order
         pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
     # test currents only for the stages that share (not one column for every stage of a large installation)

@@ -26,6 +26,8 @@ from __future__ import annotations
 
 import math
 
+from ..model.kinds import carries_load
+
 __all__ = ["MU0_OVER_2PI", "CORE_LOG_RATIO", "mutual_per_metre", "cable_emfs", "induced_currents"]
 
 #: μ0 / 2π, H/m (exact to the SI's 2019 revision within 1e-9)
@@ -90,7 +92,7 @@ def induced_currents(plan, circuit, max_frequency: float) -> list[tuple]:
     z_at: dict = {}
     out = []
     for c in plan.conductors:
-        if c.kind != "cable" or not c.loads or c.name not in index:
+        if not carries_load(c) or c.name not in index:
             continue
         emfs = {f: e for f, e in cable_emfs(c, plan.frequency).items() if f <= max_frequency + 1e-9}
         parts = {}

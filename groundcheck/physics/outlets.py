@@ -19,6 +19,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ..model.kinds import carries_load, joins_devices
 from ..model.installation import device_of
 from .coupling import plan_sources, source_injections
 from .ranking import largest
@@ -102,7 +103,7 @@ def outlet_pairs(plan) -> tuple[list, list]:
     devices = {d.name: d for d in plan.devices}
     pairs, names = [], []
     for c in plan.conductors:
-        if c.kind != "interconnect":
+        if not joins_devices(c):
             continue
         ends = [devices[d].plugged if (d := device_of(x, devices)) else None for x in (c.a, c.b)]
         if None in ends or ends[0] == ends[1]:
@@ -147,7 +148,7 @@ class OutletWork:
         if not devices:
             return
         for c in plan.conductors:
-            if c.kind == "cable" and c.loads:
+            if carries_load(c):
                 for f, e in sorted(cable_emfs(c, plan.frequency).items()):
                     self.emfs.append((c.name, f, e, mutual_per_metre(c.cores)))
         self.pairs, self.names = outlet_pairs(plan)
@@ -170,7 +171,8 @@ class OutletWork:
         if not self.pairs:
             return {}, []
         plan = self.plan
-        unplugged = self.circuit.restricted({c.name for c in plan.conductors if c.kind != "interconnect"})
+        wired = {c.name for c in plan.conductors if not joins_devices(c)}
+        unplugged = self.circuit.restricted(wired)
         open_f, open_s = _pair_volts(unplugged, self.sources, self.pairs, self.freqs)
         drivers = []
         for k in range(len(self.pairs)):

@@ -2,7 +2,9 @@
 
 The plate is a finite-volume grid of sheet resistance ρ/t; each fastener is a
 disc of radius :data:`~groundcheck.impedance.FASTENER_RADIUS` whose grid
-nodes are joined into one node.  Kron reduction (Schur complement of the
+nodes are joined into one node (a node on the disc's circle belongs to it,
+whatever the rounding of its coordinates: mirrored fastenings take mirrored
+nodes, so symmetric geometry meshes symmetrically).  Kron reduction (Schur complement of the
 interior nodes) leaves the exact equivalent network between the fasteners for
 that grid.
 
@@ -29,7 +31,7 @@ import scipy.sparse.linalg as spla
 
 from .impedance import FASTENER_RADIUS
 
-__all__ = ["PlateResult", "reduce_plate", "grid_laplacian", "grid_step"]
+__all__ = ["PlateResult", "reduce_plate", "grid_laplacian", "grid_step", "contact_groups"]
 
 #: grid nodes per plate at most (keeps one plate's solve well under a second)
 MAX_GRID_NODES = 40_000
@@ -106,6 +108,51 @@ def grid_step(width: float, depth: float, radius: float) -> float:
     return max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES), max(width, depth) / MAX_GRID_SIDE)
 
 
+#: a grid node this share of the grid step (or less) outside a contact's circle is on it: the
+#: nodes on the circle are taken whatever the rounding of their coordinates, so that mirrored
+#: contacts take mirrored nodes
+ON_CIRCLE = 1e-6
+
+
+def contact_groups(X: np.ndarray, Y: np.ndarray, contacts, radius: float, h: float) -> np.ndarray:
+    """Which contact each grid node belongs to (-1: none): a node within a contact's radius belongs
+    to the nearest such contact (one as near as another belongs to neither, whatever their order);
+    a contact whose disc keeps no node takes the free nodes nearest its centre (all of them when
+    several are as near).
+
+    Parameters:
+        X, Y: the grid nodes' coordinates, m.
+        contacts: the fastenings' centres, m.
+        radius: a fastener's contact radius, m.
+        h: the grid step, m (nodes within ON_CIRCLE of a step of the circle are on it).
+    Returns:
+        per node, the index of its contact or -1.
+    References:
+        none (bookkeeping: symmetric geometry meshes symmetrically, whatever the contacts' order).
+    """
+    tol = ON_CIRCLE * h
+    group = np.full(X.size, -1)
+    best = np.full(X.size, np.inf)
+    tie = np.zeros(X.size, dtype=bool)
+    for k, (cx, cy) in enumerate(contacts):
+        d = np.hypot(X - cx, Y - cy)
+        inside = d <= radius + tol
+        closer = inside & (d < best - tol)
+        tie |= inside & ~closer & (d <= best + tol)
+        tie[closer] = False
+        group[closer] = k
+        best[closer] = d[closer]
+    group[tie] = -1
+    for k in sorted(set(range(len(contacts))) - set(group.tolist())):
+        cx, cy = contacts[k]
+        d = np.hypot(X - cx, Y - cy)
+        free = group < 0
+        near = d[free].min() if free.any() else d.min()
+        inside = np.flatnonzero((d <= near + tol) & free)
+        group[inside if inside.size else [int(np.argmin(d))]] = k
+    return group
+
+
 def _reduce(width, depth, sheet_g, contacts, radius, step):
     nx = max(3, int(round(width / step)) + 1)
     ny = max(3, int(round(depth / step)) + 1)
@@ -115,13 +162,7 @@ def _reduce(width, depth, sheet_g, contacts, radius, step):
     X, Y = np.meshgrid(xs, ys)
     X, Y = X.ravel(), Y.ravel()
     n = nx * ny
-    group = np.full(n, -1)
-    for k, (cx, cy) in enumerate(contacts):
-        d2 = (X - cx) ** 2 + (Y - cy) ** 2
-        inside = np.flatnonzero((d2 <= radius * radius) & (group < 0))
-        if inside.size == 0:
-            inside = np.array([int(np.argmin(d2))])
-        group[inside] = k
+    group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
     k = len(contacts)
     # merge each contact's nodes: P maps grid nodes to (contacts + interior) nodes
     interior = np.flatnonzero(group < 0)

@@ -23,7 +23,7 @@ import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
 from .impedance import FASTENER_RADIUS
-from .plate import grid_laplacian, grid_step
+from .plate import contact_groups, grid_laplacian, grid_step
 
 __all__ = ["plate_flow", "passage_flow", "passage_vector", "loop_passages", "MAX_PLATE_CONTACTS"]
 
@@ -53,11 +53,7 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
     X, Y = np.meshgrid(xs, ys)
     X, Y = X.ravel(), Y.ravel()
     n, k = nx * ny, len(contacts)
-    group = np.full(n, -1)
-    for c, (cx, cy) in enumerate(contacts):
-        d2 = (X - cx) ** 2 + (Y - cy) ** 2
-        inside = np.flatnonzero((d2 <= radius * radius) & (group < 0))
-        group[inside if inside.size else [int(np.argmin(d2))]] = c
+    group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
     # merge each contact's nodes into one, ground contact 0, inject 1 A at each other contact
     free = np.flatnonzero(group < 0)
     index = np.empty(n, dtype=int)

@@ -20,7 +20,8 @@ from __future__ import annotations
 
 from collections import defaultdict
 
-from ..model.kinds import is_fastening
+from ..model.kinds import (SIGNAL, is_fastening, is_fastening_kind, is_lift, joins_devices,
+                           shield_like)
 from ..rules.results import Result
 from .dotbase import (DRAWING_CAUTION, LIFT_STYLE, LOOP_HALO, PROBLEM_HALO, ROLE_STYLE, attrs as _attrs,  # noqa: F401
                       dot_quote, element_class, legend as _legend, problems as _problems)
@@ -139,6 +140,12 @@ def _points(plan, marks, positioned, P, lines) -> None:
         lines.append(f"  {dot_quote(name)} [{_attrs(style)}];")
 
 
+def _one_end_shield(c) -> bool:
+    """A shield within a box terminated at one end: drawn dotted (an interconnect is drawn between
+    boxes)."""
+    return shield_like(c) and not joins_devices(c) and not c.connects
+
+
 def _conductors(result, marks, positioned, P, lines) -> None:
     plan = result.plan
     loop_members = defaultdict(int)
@@ -147,7 +154,7 @@ def _conductors(result, marks, positioned, P, lines) -> None:
             loop_members[e] += 1
     way = 0
     for c in plan.conductors:
-        if c.kind == "bolt" or not c.connects and c.kind != "shield":
+        if is_fastening_kind(c.kind) or not c.connects and not _one_end_shield(c):
             continue
         if c.a not in positioned or c.b not in positioned:
             continue
@@ -159,8 +166,8 @@ def _conductors(result, marks, positioned, P, lines) -> None:
             lines.append(f"  {dot_quote(wname)} [shape=point, width=0.01, label=\"\", pos=\"{px:.1f},{py:.1f}!\"];")
             chain.append(wname)
         chain.append(c.b)
-        style = dict(LIFT_STYLE if c.kind == "lift" else ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
-        if c.kind == "shield" and not c.connects:
+        style = dict(LIFT_STYLE if is_lift(c) else ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
+        if _one_end_shield(c):
             style["style"] = "dotted"
         # halos are stripes of one edge (a colour list), so they overlay the conductor exactly
         base = style["color"]
@@ -226,7 +233,8 @@ def physical_omissions(result: Result) -> tuple[int, int]:
         return 0, 0
     positioned = {p.name for p in plan.points if p.pos is not None} | {m.name for m in plan.metals if m.size}
     points = sum(1 for p in plan.points if p.pos is None)
-    conductors = sum(1 for c in plan.conductors if c.kind != "bolt" and not (c.a in positioned and c.b in positioned))
+    conductors = sum(1 for c in plan.conductors if not is_fastening_kind(c.kind)
+                     and not (c.a in positioned and c.b in positioned))
     return points, conductors
 
 
@@ -265,7 +273,7 @@ def topology_dot(result: Result) -> str:
         lines.extend("  " + x for x in node_lines[key])
         lines.append("  }")
     for c in plan.conductors:
-        style = dict(LIFT_STYLE if c.kind == "lift" else ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
+        style = dict(LIFT_STYLE if is_lift(c) else ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
         style["label"] = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
         style["class"] = element_class(c.name)
         if not c.connects:

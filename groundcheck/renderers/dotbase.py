@@ -6,18 +6,19 @@ from __future__ import annotations
 from collections import defaultdict
 from html import escape
 
+from ..model.kinds import BOND, HEATER, PROTECTIVE, RETURN, SHIELD, SIGNAL
 from ..rules.results import Result
 
 __all__ = ["ROLE_STYLE", "LIFT_STYLE", "LOOP_HALO", "PROBLEM_HALO", "DRAWING_CAUTION", "dot_quote", "element_class",
            "attrs", "problems", "legend"]
 
 ROLE_STYLE = {
-    "protective": {"color": "#2f7d32:#f2c200:#2f7d32", "penwidth": "2.2"},
-    "return": {"color": "#d2691e", "penwidth": "2.0"},
-    "signal": {"color": "#1f5fa8", "penwidth": "1.6"},
-    "shield": {"color": "#7a7a7a", "penwidth": "1.4", "style": "dashed"},
-    "bond": {"color": "#404040", "penwidth": "1.2", "style": "dotted"},
-    "heater": {"color": "#b8860b", "penwidth": "1.6"},
+    PROTECTIVE: {"color": "#2f7d32:#f2c200:#2f7d32", "penwidth": "2.2"},
+    RETURN: {"color": "#d2691e", "penwidth": "2.0"},
+    SIGNAL: {"color": "#1f5fa8", "penwidth": "1.6"},
+    SHIELD: {"color": "#7a7a7a", "penwidth": "1.4", "style": "dashed"},
+    BOND: {"color": "#404040", "penwidth": "1.2", "style": "dotted"},
+    HEATER: {"color": "#b8860b", "penwidth": "1.6"},
 }
 LIFT_STYLE = {"color": "#7b3fa0", "penwidth": "1.8", "style": "dashed"}
 LOOP_HALO = "#f5a80066"

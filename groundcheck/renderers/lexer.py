@@ -10,12 +10,13 @@ from __future__ import annotations
 from pygments.lexer import RegexLexer, bygroups, words
 from pygments.token import Comment, Keyword, Name, Number, Operator, Punctuation, String, Text, Whitespace
 
+from ..model.kinds import ROLES
 from ..language.statements import KEYWORDS
 
 __all__ = ["PlanLexer"]
 
 #: fixed words inside statements: roles, kinds of point, terminations and the like (common to many statements)
-ATTRIBUTE_WORDS = ("protective", "return", "signal", "shield", "bond", "to", "at", "on", "via", "touchable",
+ATTRIBUTE_WORDS = ROLES + ("to", "at", "on", "via", "touchable",
                    "terminated", "both", "balanced", "unbalanced", "channel", "gain", "full-wave", "bridge",
                    "half-wave", "secondary", "winding", "reservoir", "load", "diode", "leakage", "filter", "valve",
                    "shockley", "height", "axis", "size", "harmonic", "fuse", "breaker", "cord", "inlet", "system",

@@ -7,7 +7,7 @@ import tempfile
 from pathlib import Path
 
 from ..core.errors import GroundcheckError
-from ..core.runtime import files_read
+from ..core.runtime import files_read, terminate_as_exit
 
 __all__ = ["write_atomic", "OutputError"]
 
@@ -39,6 +39,11 @@ def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> Non
     folder = target.parent
     if not folder.is_dir():
         raise OutputError(f"folder {path.parent} does not exist")
+    with terminate_as_exit():            # SIGTERM while the temporary file exists removes it
+        _write_through_temporary(target, folder, data)
+
+
+def _write_through_temporary(target: Path, folder: Path, data: str | bytes) -> None:
     mode = "wb" if isinstance(data, bytes) else "w"
     fd, tmp = tempfile.mkstemp(prefix=".groundcheck-", dir=folder)
     try:

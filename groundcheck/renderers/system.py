@@ -10,6 +10,7 @@ touched by a finding is outlined red with its codes.  A device's own wiring is d
 
 from __future__ import annotations
 
+from ..model.kinds import SIGNAL, joins_devices
 from ..model.installation import device_of
 from ..rules.results import Result
 from .dotbase import LOOP_HALO, PROBLEM_HALO, ROLE_STYLE, attrs as _attrs, dot_quote, element_class
@@ -124,7 +125,7 @@ LANE = 22.0
 def _lanes(plan, pos: dict) -> dict:
     """Each interconnect between two drawn boxes: its lane (index) and where it leaves each box (x offsets),
     the ends of one box spread across its width (one slot per end) so that no two run down the same line."""
-    icons = [c for c in plan.conductors if c.kind == "interconnect"]
+    icons = [c for c in plan.conductors if joins_devices(c)]
     devices = {d.name for d in plan.devices}
     ends = [[device_of(e, devices) for e in (c.a, c.b)] for c in icons]
     slots: dict = {}
@@ -188,10 +189,10 @@ def _edges(result, pos: dict, marks: dict, lanes: dict, lines: list) -> None:
     loops = {e for lp in result.loops for e in lp.loop.edges}
     for c in plan.conductors:
         ends = [e if e in pos else (f"device:{d}" if (d := device_of(e, devices)) else None) for e in (c.a, c.b)]
-        if None in ends or ends[0] == ends[1] or (not c.connects and c.kind != "interconnect"):
+        if None in ends or ends[0] == ends[1] or (not c.connects and not joins_devices(c)):
             continue
-        style = dict(ROLE_STYLE.get(c.role, ROLE_STYLE["signal"]))
-        if c.kind == "interconnect" and not c.connects:
+        style = dict(ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
+        if joins_devices(c) and not c.connects:
             style["style"] = "dotted"
         if c.name in marks:
             style["color"] = f"{PROBLEM_HALO}:{style['color']}:{PROBLEM_HALO}"
@@ -199,7 +200,7 @@ def _edges(result, pos: dict, marks: dict, lanes: dict, lines: list) -> None:
             style["color"] = f"{LOOP_HALO}:{style['color']}:{LOOP_HALO}"
         label = c.name + (f" [{', '.join(marks[c.name])}]" if c.name in marks else "")
         style["class"] = element_class(c.name)
-        if c.kind == "interconnect":
+        if joins_devices(c):
             _lane(c, ends, style, label, lanes, pos, lines)
             continue
         if not c.name.endswith(".cord"):

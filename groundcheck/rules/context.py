@@ -14,7 +14,8 @@ import networkx as nx
 import numpy as np
 
 from ..core.errors import Location
-from ..model.kinds import bonds_metal
+from ..model.kinds import (BOND, PROTECTIVE, PROTECTIVE_ROLES, SIGNAL, bonds_metal,
+                           is_fastening_kind, joins_devices, shield_like)
 from ..model.records import PE_POINT, Conductor, Plan
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
 from ..network.graph import Loop, build_graph, components, edges_of, fundamental_loops, loop_polygon, polygon_area
@@ -159,20 +160,19 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     cs = [ctx.conductors[e] for e in lp.edges]
-    kinds = {c.kind for c in cs}
     roles = {c.role for c in cs}
     has_metal = any(n in ctx.metals for n in lp.nodes)
-    if "interconnect" in kinds and "protective" in roles:
+    if any(joins_devices(c) for c in cs) and PROTECTIVE in roles:
         return "mains-cords"
-    if kinds & {"shield", "interconnect"}:
+    if any(shield_like(c) for c in cs):
         return "shield-both-ends"
     known = set(ctx.plan.channels)
     channels = {c.channel for c in cs if c.channel in known} | {node_channel(ctx, n) for n in lp.nodes} & known
     if len(channels) >= 2:
         return "channel-returns"
-    if has_metal and roles <= {"bond", "protective"}:
+    if has_metal and roles <= set(PROTECTIVE_ROLES):
         return "chassis-structure"
-    if has_metal and "signal" in roles:
+    if has_metal and SIGNAL in roles:
         return "second-chassis-bond"
     if has_metal:
         return "metal-return"
@@ -208,16 +208,17 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     cs = [ctx.conductors[e] for e in lp.edges]
-    candidates = [c for c in cs if c.role != "protective" and c.name not in ctx.protective_path
-                  and not (bonds_metal(c) and c.role == "bond" and (c.a in ctx.metals and c.b in ctx.metals))]
+    candidates = [c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
+                  and not (bonds_metal(c) and c.role == BOND
+                           and (c.a in ctx.metals and c.b in ctx.metals))]
     if not candidates:
         return ""
     if closed_by == "mains-cords":
-        ic = [c for c in candidates if c.kind == "interconnect"]
+        ic = [c for c in candidates if joins_devices(c)]
         if ic:
             return ic[0].name
     if closed_by == "shield-both-ends":
-        sh = [c for c in candidates if c.kind in ("shield", "interconnect")]
+        sh = [c for c in candidates if shield_like(c)]
         if sh:
             return sh[0].name
     if closed_by == "channel-returns":
@@ -228,8 +229,8 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
     if closed_by == "second-chassis-bond":
         # a signal point fastened to the metal (an uninsulated jack, say) is the bond to remove
         ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {x for r in ctx.plan.currents for x in (r.a, r.b)}
-        bolts = [c for c in candidates if c.kind == "bolt" and ((c.a in ctx.metals and c.b in ends)
-                                                                or (c.b in ctx.metals and c.a in ends))]
+        bolts = [c for c in candidates if is_fastening_kind(c.kind)
+                 and ((c.a in ctx.metals and c.b in ends) or (c.b in ctx.metals and c.a in ends))]
         if bolts:
             return bolts[0].name
         # otherwise keep the bond nearest the protective earth and open the farthest

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from ..model.kinds import LEAKAGE, PROTECTIVE, carries_load, joins_devices
 from ..core.units import dbv
 from .catalogue import Finding
 from .context import AuditContext
@@ -49,7 +50,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     plan_conductors = {c.name: c for c in s.plan.conductors}
-    leak = {c.name for c in s.plan.currents if c.role == "leakage"}
+    leak = {c.name for c in s.plan.currents if c.role == LEAKAGE}
     channels = {st.name: st.channel for st in s.plan.stages}
     out = []
     for row in s.coupling:
@@ -76,7 +77,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
 def _shared_fix(row, plan_conductors: dict, leak: set) -> str:
     """What to do about one shared return: by where its current meets the stage (an interconnect's shield,
     balanced or not; a leakage current; a supply return)."""
-    via_ic = [x for x in row.shared if x in plan_conductors and plan_conductors[x].kind == "interconnect"]
+    via_ic = [x for x in row.shared if x in plan_conductors and joins_devices(plan_conductors[x])]
     if via_ic and all(plan_conductors[x].balanced for x in via_ic):
         fix = (f"the current reaches the stage along the shield of {', '.join(via_ic)}, which the balanced "
                "input rejects by its common-mode rejection (the hum budget gives what is left); if it is heard, "
@@ -138,8 +139,8 @@ def rule_hum(s: Solved) -> list[Finding]:
     out = []
     conductors = {c.name: c for c in plan.conductors}
     # currents that reach a stage only round a loop through the installation: leakage, and the EMF of loaded cables
-    loop_driven = ({c.name for c in plan.currents if c.role == "leakage"}
-                   | {f"{c.name}.induced" for c in plan.conductors if c.kind == "cable" and c.loads})
+    loop_driven = ({c.name for c in plan.currents if c.role == LEAKAGE}
+                   | {f"{c.name}.induced" for c in plan.conductors if carries_load(c)})
     stages_by_ch: dict[str, list] = {}
     for s in plan.stages:
         stages_by_ch.setdefault(s.channel, []).append(s)
@@ -177,10 +178,10 @@ def rule_hum(s: Solved) -> list[Finding]:
 
 def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
     """What to do about a conductor that carries a hum source's current to a stage (GC301)."""
-    if cond is not None and cond.role == "protective":
+    if cond is not None and cond.role == PROTECTIVE:
         return (f"the drop along protective conductor {element} reaches the stage through a loop: break the loop on "
                 "the signal side (balanced interconnect or ground-lift network); never lift the protective earth")
-    if source in loop_driven and cond is not None and cond.kind == "interconnect":
+    if source in loop_driven and cond is not None and joins_devices(cond):
         if cond.balanced:
             return (f"{source} drives current round the loop along the shield of {element}: land the shield on the "
                     "chassis where it enters at both ends ('shield-to chassis'), so that it stays out of the signal "

@@ -9,7 +9,7 @@ from __future__ import annotations
 from collections import deque
 
 from ..model.installation import conductors_by_device, device_chassis, device_of, shield_ends
-from ..model.kinds import is_fastening
+from ..model.kinds import LEAKAGE, PROTECTIVE_ROLES, in_device_ground, is_fastening, joins_devices
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -39,7 +39,7 @@ def signal_ground_path(conductors, start: str, chassis: str, dev: str, metals) -
     """
     adj: dict = {}
     for c in conductors:
-        if c.connects and c.name.startswith(dev + ".") and c.kind not in ("interconnect", "lift"):
+        if c.connects and c.name.startswith(dev + ".") and in_device_ground(c):
             adj.setdefault(c.a, []).append((c.b, c))
             adj.setdefault(c.b, []).append((c.a, c))
     parent: dict = {start: None}
@@ -57,7 +57,7 @@ def signal_ground_path(conductors, start: str, chassis: str, dev: str, metals) -
     out, v = [], chassis
     while parent[v] is not None:
         u, c = parent[v]
-        if c.role not in ("protective", "bond") and not is_fastening(c, metals):
+        if c.role not in PROTECTIVE_ROLES and not is_fastening(c, metals):
             out.append(c.name)
         v = u
     return out[::-1]
@@ -83,7 +83,7 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
     own = conductors_by_device(plan.conductors, devices)
     out = []
     for c in plan.conductors:
-        if c.kind != "interconnect" or not c.connects:
+        if not joins_devices(c) or not c.connects:
             continue
         for end, landing in zip((c.a, c.b), shield_ends(c)):
             dev = device_of(end, devices) if landing == "signal" else None
@@ -118,7 +118,7 @@ def rule_leakage_limit(ctx: AuditContext) -> list[Finding]:
         IEC 60950-1:2005, 5.1.7 and Table 5A (LEAKAGE_LIMIT).
     """
     plan = ctx.plan
-    leaks = {c.name: c for c in plan.currents if c.role == "leakage"}
+    leaks = {c.name: c for c in plan.currents if c.role == LEAKAGE}
     out = []
     for dev in plan.devices:
         cur = leaks.get(f"{dev.name}.leakage")

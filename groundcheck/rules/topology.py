@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 
 
-from ..model.kinds import is_fastening
+from ..model.kinds import PROTECTIVE, is_fastening, is_fastening_kind, joins_devices, shield_like
 from ..model.records import PE_POINT
 from ..network.graph import Loop, part_labels
 from .catalogue import Finding
@@ -54,7 +54,8 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
 
 def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
     """What to do about a loop, by what closes it and where it opens: (the fix, its structured actions)."""
-    if info.closed_by == "mains-cords" and opener is not None and opener.kind == "interconnect" and opener.balanced:
+    if (info.closed_by == "mains-cords" and opener is not None and joins_devices(opener)
+            and opener.balanced):
         return (f"{info.open_at} is balanced: its input rejects the loop's current by its common-mode rejection (the "
                 "hum budget gives what is left); if hum remains, plug the devices into one outlet or strip, or use an "
                 "input of better rejection; never lift the protective earth"), ()
@@ -203,10 +204,10 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
     for u, v, k, d in ctx.edges:
         us, vs = u in side, v in side
         if not us and not vs:
-            if d["conductor"].role != "protective":
+            if d["conductor"].role != PROTECTIVE:
                 rows.append(idx[u])
                 cols.append(idx[v])
-        elif us != vs and d["conductor"].kind != "interconnect":
+        elif us != vs and not joins_devices(d["conductor"]):
             crossing.append((v, u, k) if us else (u, v, k))
     n = len(order)
     _, labels = part_labels(n, rows, cols)
@@ -299,7 +300,8 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     out = []
-    both = [c for c in ctx.plan.conductors if c.kind == "shield" and c.terminated == "both"]
+    both = [c for c in ctx.plan.conductors
+            if shield_like(c) and not joins_devices(c) and c.terminated == "both"]
     if not both:
         return out
     stars = [p.name for p in ctx.plan.points if p.kind == "star" and p.name in ctx.G]
@@ -336,7 +338,8 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
     placed = {p.name: (p.group or "").split(".", 1)[0] for p in ctx.plan.points}
     out = []
     for c in ctx.plan.conductors:
-        if c.length is None or c.a not in pos or c.b not in pos or c.kind in ("bolt", "interconnect"):
+        if (c.length is None or c.a not in pos or c.b not in pos or is_fastening_kind(c.kind)
+                or joins_devices(c)):
             continue
         path = [pos[c.a], *c.route, pos[c.b]]
         route = sum(((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5 for (x0, y0), (x1, y1) in zip(path, path[1:]))

@@ -1,0 +1,213 @@
+"""Invariants that prove the model has no favourites, as property tests over generated plans
+(tests/invariantplans.py; benchmarks/fuzz_campaign.py --invariants N runs many more):
+
+- a block placed twice, mirrored in x or in y, gives the two channels identical figures;
+- renaming every element changes no figure;
+- adding an element connected to nothing changes no figure;
+- scaling every resistance by k scales every drop by k (plans of stated resistances).
+
+"Identical" is to 1e-9 relative (with a floor of 1e-15 V or Ω, far below any figure printed)."""
+
+from __future__ import annotations
+
+
+import numpy as np
+from hypothesis import HealthCheck, given, settings, strategies as st
+
+from groundcheck import analyze, load_text
+from groundcheck.physics.coupling import LISTED_TRANSFER
+from groundcheck.physics.humtotals import FLOOR_V
+from groundcheck.physics.plate import contact_groups, reduce_plate
+from invariantplans import mirrored_plans, mirrored_text, resistive_plans, resistive_text
+
+REL, FLOOR = 1e-9, 1e-15
+#: a modest count in the default suite; the campaign runs thousands
+EXAMPLES = dict(deadline=None, database=None, suppress_health_check=[HealthCheck.too_slow])
+
+
+def _close(a: float, b: float) -> bool:
+    return abs(a - b) <= REL * max(abs(a), abs(b)) + FLOOR
+
+
+def _same(got: dict, want: dict) -> list[str]:
+    """The keys where two figure dicts differ (a missing key is a difference)."""
+    return [
+        f"{k}: {got.get(k)!r} != {want.get(k)!r}"
+        for k in sorted(set(got) | set(want), key=str)
+        if k not in got or k not in want or not _close(got[k], want[k])
+    ]
+
+
+def _swap(name: str) -> str:
+    """The element of the other channel: left <-> right."""
+    for a, b in (("left", "right"), ("right", "left")):
+        if name.startswith(a):
+            return b + name[len(a) :]
+    return name
+
+
+def _channel_figures(result, ch: str, swap=lambda s: s) -> dict:
+    """A channel's hum (total, signed, per frequency, per contributor) and its stages' transfer
+    resistances, keyed by names passed through ``swap``."""
+    h = result.hum.channels[ch]
+
+    def element(name: str):
+        """An element by its name, a listed loop ("loop N") by its conductors."""
+        if name.startswith("loop ") and name[5:].isdigit():
+            return frozenset(swap(e) for e in result.loops[int(name[5:]) - 1].loop.edges)
+        return swap(name)
+
+    out = {"total": h.total_v, "signed": h.signed_v}
+    out |= {("f", s["frequency_hz"]): s["volts"] for s in h.spectrum}
+    out |= {("c", element(c["element"]), swap(c["source"])): c["volts"] for c in h.contributors}
+    out |= {
+        ("t", swap(c.stage), swap(c.source)): c.transfer
+        for c in result.coupling
+        if c.stage.startswith(ch + ".")
+    }
+    return out
+
+
+def _all_figures(result) -> list[float]:
+    """Every figure of a result with the names left out, in order of size: hum totals, spectra and
+    contributors, transfer resistances, protective path resistances."""
+    out = []
+    for h in result.hum.channels.values():
+        out += (
+            [h.total_v, h.signed_v]
+            + [s["volts"] for s in h.spectrum]
+            + [c["volts"] for c in h.contributors]
+        )
+    out += [c.transfer for c in result.coupling]
+    if result.safety is not None:
+        out += [p.path_resistance for p in result.safety.parts]
+    return sorted(out)
+
+
+def _same_lists(a: list[float], b: list[float]) -> bool:
+    return len(a) == len(b) and all(_close(x, y) for x, y in zip(a, b))
+
+
+def test_disc_on_the_grid_takes_the_nodes_on_its_circle():
+    """A 4 mm fastening on a 2 mm grid holds the lattice points with i² + j² <= 2² — 1 + 4 + 4
+    + 4 = 13, counted by hand — wherever it sits; the exact d² <= r² took 11 at (380, 40), 9 at
+    its mirror image (380, 160) and 13 at (20, 40) on this grid."""
+    w, d, h = 0.4, 0.2, 0.002
+    xs, ys = np.linspace(0, w, 201), np.linspace(0, d, 101)
+    X, Y = (a.ravel() for a in np.meshgrid(xs, ys))
+    for c in ((0.38, 0.04), (0.38, 0.16), (0.02, 0.04), (0.02, 0.16), (0.2, 0.1), (0.123, 0.077)):
+        g = contact_groups(X, Y, [c], 4e-3, h)
+        want = 13 if all(abs(v / h - round(v / h)) < 1e-9 for v in c) else None
+        if want:
+            assert np.count_nonzero(g == 0) == want, c
+    # two discs that share nodes: a node belongs to the nearer centre, one as near to both to
+    # neither,
+    # whatever the order the contacts are given in
+    two = [(0.1, 0.1), (0.106, 0.1)]
+    a, b = contact_groups(X, Y, two, 4e-3, h), contact_groups(X, Y, two[::-1], 4e-3, h)
+    assert np.array_equal(a == 0, b == 1) and np.array_equal(a == 1, b == 0)
+    assert np.count_nonzero(a == 0) == np.count_nonzero(a == 1)
+
+
+def test_mirrored_fastenings_have_mirrored_resistances():
+    """On a 400 x 200 mm plate, the resistance from a fastening at (380, 40) mm to the centre
+    equals its mirror image's at (380, 160) and at (20, 40) (before, 3.5-4.8 % apart)."""
+    args = (0.4, 0.2, 2e-3, 2.65e-8)
+    r = [
+        reduce_plate(*args, [c, (0.2, 0.1)], ["a", "b"], estimate_error=False).resistance(0, 1)
+        for c in ((0.38, 0.04), (0.38, 0.16), (0.02, 0.04), (0.02, 0.16))
+    ]
+    assert all(_close(x, r[0]) for x in r[1:]), r
+
+
+def mirrored_channels_are_equal(m) -> None:
+    result = analyze(load_text(mirrored_text(m), "mirrored.gplan"))
+    left = _channel_figures(result, "left")
+    right = _channel_figures(result, "right", _swap)
+    assert not _same(right, left), (mirrored_text(m), _same(right, left))
+
+
+def _renamed(name: str) -> str:
+    return "q" + name[::-1]
+
+
+def names_change_nothing(m) -> None:
+    before = analyze(load_text(mirrored_text(m), "named.gplan"))
+    after = analyze(load_text(mirrored_text(m, _renamed), "named.gplan"))
+    assert _same_lists(_all_figures(after), _all_figures(before))
+    assert sorted(f.code for f in after.findings) == sorted(f.code for f in before.findings)
+
+
+ISLAND = (
+    "point island_a: pad\npoint island_b: pad\n"
+    "wire island: island_a to island_b, 40 mm, 0.5 mm2, signal\n"
+)
+
+
+def unconnected_changes_nothing(m, extra) -> None:
+    before = analyze(load_text(mirrored_text(m), "plain.gplan"))
+    after = analyze(load_text(mirrored_text(m, extra=extra), "plain.gplan"))
+    assert _same_lists(_all_figures(after), _all_figures(before))
+    for ch in before.hum.channels:
+        assert not _same(_channel_figures(after, ch), _channel_figures(before, ch))
+
+
+def _listed_alike(was: dict, now: dict, k: float, floor: float) -> list:
+    """The figures that do not scale by k: both listed and not k times as large, or listed on one
+    side only though the other side's figure would have been above the listing floor."""
+    bad = []
+    for key in set(was) | set(now):
+        if key in was and key in now:
+            ok = _close(now[key], k * was[key])
+        else:
+            ok = (now[key] / k if key in now else was[key] * k) <= floor
+        bad += [] if ok else [(key, was.get(key), now.get(key))]
+    return bad
+
+
+def drops_scale_with_resistance(r, k) -> None:
+    """Stated currents through stated resistances: every drop, so every hum figure and transfer
+    resistance, is k times as large when every resistance is (Ohm's law, the network being
+    linear). A contributor is listed above 1e-12 V and a shared return above 1 µΩ, so a row may
+    appear or go only where its figure on the other side is under that floor."""
+    before = analyze(load_text(resistive_text(r), "scaled.gplan"))
+    after = analyze(load_text(resistive_text(r, k), "scaled.gplan"))
+    for ch in before.hum.channels:
+        was, now = _channel_figures(before, ch), _channel_figures(after, ch)
+        assert not _listed_alike(was, now, k, FLOOR_V), resistive_text(r)
+    was = {(c.stage, c.source): c.transfer for c in before.coupling}
+    now = {(c.stage, c.source): c.transfer for c in after.coupling}
+    assert not _listed_alike(was, now, k, LISTED_TRANSFER), resistive_text(r)
+
+
+#: each property, its strategies and how many plans the default suite gives it (the campaign,
+#: benchmarks/fuzz_campaign.py --invariants N, gives each N)
+PROPERTIES = {
+    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 150),
+    "names change no figure": (names_change_nothing, (mirrored_plans(),), 40),
+    "an unconnected element changes no figure": (
+        unconnected_changes_nothing,
+        (mirrored_plans(), st.sampled_from(["point alone: pad\n", ISLAND])),
+        40,
+    ),
+    "drops scale with resistance": (
+        drops_scale_with_resistance,
+        (resistive_plans(), st.sampled_from([0.5, 2.0, 10.0, 0.03])),
+        200,
+    ),
+}
+
+
+def _suite(name: str):
+    check, strategies, count = PROPERTIES[name]
+    return settings(max_examples=count, **EXAMPLES)(given(*strategies)(check))
+
+
+test_a_block_placed_twice_mirrored_gives_both_channels_the_same_figures = _suite(
+    "mirrored channels are equal"
+)
+test_renaming_every_element_changes_no_figure = _suite("names change no figure")
+test_an_element_connected_to_nothing_changes_no_figure = _suite(
+    "an unconnected element changes no figure"
+)
+test_scaling_every_resistance_scales_every_drop = _suite("drops scale with resistance")
