@@ -15,13 +15,14 @@ from pathlib import Path
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors
-from ..rules.catalogue import RULES, SEVERITIES
+from ..rules.catalogue import RULES
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import cmd_compare, cmd_suggest
 from .watch import add_watch_command, cmd_watch
-from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type,
-                     quantity_type, seconds_type, write_output)
+from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_analysis_options,
+                     load_plan, options_of, processes_type, quantity_type, seconds_type,
+                     write_output)
 
 __all__ = ["main"]
 
@@ -58,8 +59,7 @@ def _check_command(sub) -> None:
     c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files or folders (every .gplan below a folder is "
                    "checked); '-' reads standard input")
     c.add_argument("--format", choices=CHECK_FORMATS, default="text", help="output format (default text)")
-    c.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this "
-                                                                       "severe (default fault)")
+    c.add_argument("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP)
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     c.add_argument("--jobs", type=processes_type, default=1, metavar="N",
                    help="use N processes: several plans are checked side by side; for one plan, a large flat "
@@ -103,8 +103,7 @@ def _report_command(sub) -> None:
     h.add_argument("-o", "--output", metavar="FILE", required=True, help="the HTML file to write (FILE.html)")
     h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
-    h.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this "
-                                                                       "severe (default fault)")
+    h.add_argument("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP)
     add_analysis_options(h)
 
 

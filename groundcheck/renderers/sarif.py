@@ -78,8 +78,35 @@ def sarif_document(results: list[Result]) -> dict:
                   "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
                                                 "semanticVersion": __version__, "rules": rules}},
                             "columnKind": "unicodeCodePoints",
+                            "invocations": [_invocation(results)],
                             "properties": {"caution": CAUTION, "notices": [n for res in results for n in res.notices]},
                             "results": out}]})
+
+
+def _invocation(results: list[Result]) -> dict:
+    """The run's invocation (SARIF 2.1.0 §3.20): each rule left out by selection or settings as a
+    configuration override that disables it (§3.51), and every plan's verdict, what it left out and
+    what it accepted as a notification (§3.58), so that a review screen shows what was not
+    checked."""
+    codes = list(RULES)
+    left_out = sorted({c for res in results for n in res.not_checked if n.location is None
+                       for c in n.codes}, key=codes.index)
+    notes = []
+    for res in results:
+        level = "note" if res.clean() else "warning"
+        verdict = f"{res.plan.file}: verdict: {res.verdict()}"
+        notes.append({"level": level, "message": {"text": verdict}})
+        for n in res.not_checked:
+            note = {"level": "warning", "message": {"text": n.sentence()}}
+            if n.location is not None:
+                note["locations"] = [_location(n.location)]
+                note["associatedRule"] = {"id": n.codes[0], "index": codes.index(n.codes[0])}
+            notes.append(note)
+    return {"executionSuccessful": True,
+            "ruleConfigurationOverrides": [
+                {"descriptor": {"id": c, "index": codes.index(c)},
+                 "configuration": {"enabled": False}} for c in left_out],
+            "toolExecutionNotifications": notes}
 
 
 def render_sarif(results: list[Result]) -> str:
