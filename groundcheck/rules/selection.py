@@ -81,12 +81,14 @@ def codes_of(words, where: str = "") -> set[str]:
 
 
 def _distance(a: str, b: str) -> float:
-    """Edit distance (Levenshtein) with a look-alike substitution (O for 0 …) costing a quarter."""
+    """Edit distance (Levenshtein), letters of either case the same, a look-alike substitution
+    (O for 0, l for 1 …) costing a quarter."""
     prev = [float(j) for j in range(len(b) + 1)]
     for i, ca in enumerate(a, 1):
         cur = [float(i)]
         for j, cb in enumerate(b, 1):
-            sub = 0.0 if ca == cb else (0.25 if frozenset((ca, cb)) in _LOOKALIKE else 1.0)
+            same = ca.upper() == cb.upper()
+            sub = 0.0 if same else (0.25 if frozenset((ca, cb)) in _LOOKALIKE else 1.0)
             cur.append(min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + sub))
         prev = cur
     return prev[-1]
@@ -98,14 +100,14 @@ def nearest(word: str) -> str | None:
     Parameters:
         word: a word that names no rule.
     Returns:
-        the nearest code (compared in capitals) or name (in small letters), or None when none is
-        within a third of the word's length plus one edit.
+        the nearest code or name (letters of either case alike), or None when none is within a
+        third of the word's length plus one edit.
     References:
         Levenshtein edit distance (common practice), look-alike characters cheaper (from memory).
     """
     w = word.strip()
     families = {f"GC{d}" for c in RULES for d in (c[2], c[2:4])}
-    cands = [(_distance(w.upper(), c), c) for c in (*RULES, *sorted(families))]
+    cands = [(_distance(w, c), c) for c in (*RULES, *sorted(families))]
     cands += [(_distance(w.lower(), r.name), r.name) for r in RULES.values()]
     best, name = min(cands, key=lambda t: (t[0], t[1]))
     return name if best <= 1 + len(w) / 3 else None
