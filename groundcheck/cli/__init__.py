@@ -16,6 +16,7 @@ from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors
 from ..rules.catalogue import RULES
+from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import cmd_compare, cmd_suggest
@@ -236,16 +237,16 @@ def cmd_check(args) -> int:
 
 
 def cmd_explain(args) -> int:
-    if not args.code:
-        for code, r in RULES.items():
+    codes = rule_codes(args.code) if args.code else tuple(RULES)   # a family lists its rules
+    if codes is None:
+        raise UsageError(str(UnknownRule(args.code)))
+    if len(codes) > 1:
+        for code in codes:
+            r = RULES[code]
             print(f"{code}  {r.severity:<8} {r.name:<28} {r.checks.split('. ')[0].rstrip('.')}")
         print(f"\n{CAUTION}")
         return 0
-    by_name = {r.name: c for c, r in RULES.items()}
-    code = args.code.upper() if args.code.upper() in RULES else by_name.get(args.code.lower())
-    if code is None:
-        raise UsageError(f"unknown rule {args.code!r} (a code such as GC102 or a name such as shared-return; "
-                         "run 'groundcheck explain' to list the rules)")
+    code = codes[0]
     r = RULES[code]
     print(f"{r.code} {r.name} ({r.severity})\n")
     print(f"Checks:  {r.checks}\n")
