@@ -244,6 +244,15 @@ def test_an_accepted_danger_is_still_a_danger_in_every_output(cli, plan):
     )
     code, doc = _json(cli, str(p))
     assert code == 1 and doc["summary"]["worst"] == "danger"
+    log = json.loads(cli("check", str(p), "--format", "sarif")[1])
+    (result,) = log["runs"][0]["results"]
+    assert result["level"] == "error" and result["suppressions"][0]["kind"] == "inSource"
+    assert "it still counts as a danger" in result["message"]["text"]
+    from groundcheck.renderers.html import html_report
+
+    page = html_report(analyze(load(str(p)), Options(allow_accept_danger=True)), None, None)
+    assert "worst finding: danger (accepted in the plan, still counted)" in _verdict_html(page)
+    assert "a danger was accepted in the plan" in page
 
 
 def test_an_accepted_warning_is_listed_as_not_checked(cli, tmp_path, monkeypatch):
@@ -453,7 +462,7 @@ def _baseline_dangers() -> set[str]:
 BASELINE_DANGERS = _baseline_dangers()
 
 
-@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(runs())
 def test_no_selection_settings_or_acceptance_turns_a_danger_into_clean(r):
     with tempfile.TemporaryDirectory() as tmp:

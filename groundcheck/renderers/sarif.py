@@ -61,6 +61,16 @@ def sarif_errors(errors) -> dict:
                             "properties": {"caution": CAUTION}, "results": results}]})
 
 
+def _message(f) -> str:
+    """A result's text; a danger accepted in the plan says that it still counts as a danger (a
+    review screen may hide a suppressed result's level, never its words)."""
+    text = f"{f.message}. Fix: {f.fix}" if f.fix else f.message
+    if f.accepted is not None and f.severity == "danger":
+        text += (f" (a danger accepted in the plan: {f.accepted}; it still counts as a danger: "
+                 "exit status 1 unless --fail-on never)")
+    return text
+
+
 def sarif_document(results: list[Result]) -> dict:
     codes = list(RULES)
     rules = _rules()
@@ -69,7 +79,7 @@ def sarif_document(results: list[Result]) -> dict:
         for f in res.findings:
             loc = _location(f.location)
             out.append({"ruleId": f.code, "ruleIndex": codes.index(f.code), "level": LEVEL[f.severity],
-                        "message": {"text": f"{f.message}. Fix: {f.fix}" if f.fix else f.message},
+                        "message": {"text": _message(f)},
                         "locations": [loc],
                         "properties": {"severity": f.severity, "elements": list(f.elements), "figures": f.figures},
                         **({"suppressions": [{"kind": "inSource", "justification": f.accepted}]}
