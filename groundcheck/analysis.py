@@ -25,8 +25,10 @@ from .rules import families  # noqa: F401 - every family of rules registers itse
 from .rules.context import AuditContext
 from .rules.electrical import Solved
 from .rules.registry import functions
+from .core.errors import Location, PlanError, PlanErrors
 from .rules.catalogue import RULES
 from .rules.results import Options, Result
+from .rules.selection import NotChecked, UnknownRule, codes_of, rule_codes
 
 __all__ = ["Options", "Result", "analyze", "audit"]
 
@@ -47,6 +49,9 @@ def analyze(plan: Plan, options: Options = Options()) -> Result:
 
 
 def _analyze(plan: Plan, options: Options) -> Result:
+    errors = _acceptance_errors(plan)
+    if errors:
+        raise PlanErrors(errors)
     findings, ctx = audit(plan)
     result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options, notices=_notices(plan, options),
                     protective=ctx.route.keep)
@@ -111,42 +116,66 @@ def _notices(plan: Plan, options: Options) -> list[str]:
 
 
 def _finish(result: Result) -> Result:
+    """The findings of the rules the run checks, acceptances applied; what was left out is said as
+    not checked."""
     opts = result.options
-    wanted = _codes(opts.select) if opts.select else None
-    unwanted = _codes(opts.ignore)
-    findings = [f for f in result.findings if (wanted is None or f.code in wanted) and f.code not in unwanted]
-    result.findings = sorted(_accepted(findings, result.plan, opts), key=lambda f: f.sort_key())
+    wanted = codes_of(opts.only_rules, opts.only_rules_origin) if opts.only_rules else set(RULES)
+    unwanted = codes_of(opts.leave_out, opts.leave_out_origin)
+    if set(RULES) - wanted:
+        result.not_checked.append(NotChecked(
+            tuple(c for c in RULES if c not in wanted),
+            f"not among the rules chosen by {opts.only_rules_origin}"))
+    if unwanted & wanted:
+        result.not_checked.append(NotChecked(
+            tuple(c for c in RULES if c in unwanted and c in wanted),
+            f"left out by {opts.leave_out_origin}"))
+    findings = [f for f in result.findings if f.code in wanted and f.code not in unwanted]
+    result.findings = sorted(_accepted(findings, result, opts), key=lambda f: f.sort_key())
+    result.notices += [n.sentence() for n in result.not_checked]
+    for f in result.accepted_dangers():
+        result.notices.append(
+            f"a danger was accepted in the plan at {f.location.file}:{f.location.line}: "
+            f"{f.code} {f.rule.name} — it still counts as a danger (worst finding, exit status 1 "
+            "unless --fail-on never)")
     return result
 
 
-def _codes(words) -> set[str]:
-    """Rule codes from codes, code prefixes (GC2: every protective-earth rule) or names; an unknown word names
-    no rule."""
-    by_name = {r.name: c for c, r in RULES.items()}
-    out: set[str] = set()
-    for w in words:
-        u = w.upper()
-        if u in RULES:
-            out.add(u)
-        elif u.startswith("GC") and u[2:].isdigit() and len(u) < 5:
-            out |= {c for c in RULES if c.startswith(u)}
-        else:
-            out.add(by_name.get(w.lower(), w))
-    return out
+def _acceptance_errors(plan: Plan) -> list[PlanError]:
+    """An accept comment's word that names no rule: an error at the word, with the nearest rule
+    suggested."""
+    errors = []
+    for file, line, codes, _reason, *columns in plan.acceptances:
+        for i, word in enumerate(codes):
+            if rule_codes(word) is None:
+                col = columns[0][i] if columns else 1
+                errors.append(PlanError(f"unknown rule {word!r} in an accept comment",
+                                        Location(file, line, col), UnknownRule(word).hint))
+    return errors
 
 
-def _accepted(findings: list, plan: Plan, opts: Options) -> list:
-    """Findings accepted by a '# accept CODE: reason' on their plan line; a danger only with allow_accept_danger."""
+def _accepted(findings: list, result: Result, opts: Options) -> list:
+    """Findings accepted by a '# accept CODE: reason' on their plan line; a danger only with
+    allow_accept_danger (and then it still counts as a danger).  Each acceptance is listed as not
+    checked; an accept comment that names a danger without allow_accept_danger is said in a notice,
+    the danger staying open."""
+    plan = result.plan
     if not plan.acceptances:
         return findings
     at = {}
-    for file, line, codes, reason in plan.acceptances:
-        for code in _codes(codes):
+    for file, line, codes, reason, *_ in plan.acceptances:
+        for code in codes_of(codes):
             at[(file, line, code)] = reason
     out = []
     for f in findings:
         reason = at.get((f.location.file, f.location.line, f.code))
         if reason is not None and (f.severity != "danger" or opts.allow_accept_danger):
             f = replace(f, accepted=reason)
+            result.not_checked.append(NotChecked((f.code,), f"accepted in the plan: {reason}",
+                                                 f.location, f.severity))
+        elif reason is not None:
+            result.notices.append(
+                f"the accept comment at {f.location.file}:{f.location.line} names a danger "
+                f"({f.code}): a danger is accepted only with --allow-accept-danger, so it stays "
+                "open")
         out.append(f)
     return out

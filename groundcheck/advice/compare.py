@@ -54,6 +54,10 @@ def compare(before: Result, after: Result) -> dict:
            "touch_after_v": pa[k].touch_voltage if k in pa else None} for k in sorted(set(pb) | set(pa))]
     return clean({
         "caution": CAUTION, "before": before.plan.file, "after": after.plan.file,
+        "verdict": {"before": before.verdict(), "after": after.verdict()},
+        "not_checked": {"before": [n.as_dict() for n in before.not_checked],
+                        "after": [n.as_dict() for n in after.not_checked]},
+        "notices": {"before": list(before.notices), "after": list(after.notices)},
         "findings": {"fixed": [row(fb[k]) for k in sorted(fb.keys() - fa.keys())],
                      "kept": [row(fa[k]) for k in sorted(fb.keys() & fa.keys())],
                      "introduced": [row(fa[k]) for k in sorted(fa.keys() - fb.keys())]},
@@ -79,7 +83,11 @@ def _f(x, fmt):
 
 
 def compare_text(d: dict) -> str:
-    out = [f"Compare {d['before']} → {d['after']}", d["caution"], ""]
+    out = [f"Compare {d['before']} → {d['after']}", d["caution"],
+           f"Verdict before: {d['verdict']['before']}", f"Verdict after: {d['verdict']['after']}"]
+    for when in ("before", "after"):
+        out += [f"Notice ({when}): {n}" for n in d["notices"][when]]
+    out.append("")
     fnd = d["findings"]
     out.append(f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept, {len(fnd['introduced'])} introduced")
     for tag in ("fixed", "introduced", "kept"):

@@ -64,6 +64,8 @@ def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation]
                                    "if it still helps",
                          "changes": [e.candidate.title for e in chosen],
                          "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
+                         "verdict": final.verdict(),
+                         "not_checked": [n.as_dict() for n in final.not_checked],
                          "diff": unified_diff(text, [x for e in chosen for x in e.candidate.edits], name,
                                                  _base(plan))}}
 
@@ -74,7 +76,10 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
     useful = [e for e in evs if not e.rejected]
     rejected = [e for e in evs if e.rejected and e.rejected != NOT_TRIED]
     untried = [e for e in evs if e.rejected == NOT_TRIED]
-    out = [f"Suggestions for {plan.file} (each re-analysed; best first)", caution, ""]
+    out = [f"Suggestions for {plan.file} (each re-analysed; best first)", caution]
+    out += [f"{n.sentence()[0].upper()}{n.sentence()[1:]} (no suggestion answers a rule not "
+            "checked)" for n in final.not_checked if n.location is None]
+    out.append("")
     if not useful:
         out.append("No change found that improves the plan.")
     for i, e in enumerate(useful, 1):
@@ -97,7 +102,11 @@ def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], ch
                + ("" if n == 1 else "s")
                + (": " + "; ".join(e.candidate.title for e in chosen) if chosen else ""))
     left = [f"{f.code} {f.severity}" for f in final.findings]
-    out.append("  leaves no finding" if not left else f"  leaves {len(left)}: " + _counted(left))
+    partial = any(n.location is None for n in final.not_checked)
+    among = " among the rules checked" if partial else ""
+    out.append(f"  leaves no finding{among}" if not left
+               else f"  leaves {len(left)}{among}: " + _counted(left))
+    out.append(f"  verdict after: {final.verdict()}")
     if final.hum is not None:
         out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
     return "\n".join(out) + "\n"

@@ -15,13 +15,15 @@ from pathlib import Path
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors
-from ..rules.catalogue import RULES, SEVERITIES
+from ..rules.catalogue import RULES
+from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import cmd_compare, cmd_suggest
 from .watch import add_watch_command, cmd_watch
-from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, processes_type,
-                     quantity_type, seconds_type, write_output)
+from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_analysis_options,
+                     load_plan, options_of, processes_type, quantity_type, seconds_type,
+                     write_output)
 
 __all__ = ["main"]
 
@@ -58,8 +60,7 @@ def _check_command(sub) -> None:
     c.add_argument("plans", nargs="+", metavar="PLAN", help="plan files or folders (every .gplan below a folder is "
                    "checked); '-' reads standard input")
     c.add_argument("--format", choices=CHECK_FORMATS, default="text", help="output format (default text)")
-    c.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this "
-                                                                       "severe (default fault)")
+    c.add_argument("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP)
     c.add_argument("-o", "--output", metavar="FILE", help="write the report to FILE instead of standard output")
     c.add_argument("--jobs", type=processes_type, default=1, metavar="N",
                    help="use N processes: several plans are checked side by side; for one plan, a large flat "
@@ -103,8 +104,7 @@ def _report_command(sub) -> None:
     h.add_argument("-o", "--output", metavar="FILE", required=True, help="the HTML file to write (FILE.html)")
     h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
-    h.add_argument("--fail-on", choices=SEVERITIES, default=None, help="exit 1 when an open finding is at least this "
-                                                                       "severe (default fault)")
+    h.add_argument("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP)
     add_analysis_options(h)
 
 
@@ -237,16 +237,16 @@ def cmd_check(args) -> int:
 
 
 def cmd_explain(args) -> int:
-    if not args.code:
-        for code, r in RULES.items():
+    codes = rule_codes(args.code) if args.code else tuple(RULES)   # a family lists its rules
+    if codes is None:
+        raise UsageError(str(UnknownRule(args.code)))
+    if len(codes) > 1:
+        for code in codes:
+            r = RULES[code]
             print(f"{code}  {r.severity:<8} {r.name:<28} {r.checks.split('. ')[0].rstrip('.')}")
         print(f"\n{CAUTION}")
         return 0
-    by_name = {r.name: c for c, r in RULES.items()}
-    code = args.code.upper() if args.code.upper() in RULES else by_name.get(args.code.lower())
-    if code is None:
-        raise UsageError(f"unknown rule {args.code!r} (a code such as GC102 or a name such as shared-return; "
-                         "run 'groundcheck explain' to list the rules)")
+    code = codes[0]
     r = RULES[code]
     print(f"{r.code} {r.name} ({r.severity})\n")
     print(f"Checks:  {r.checks}\n")

@@ -12,10 +12,12 @@ from ..core.errors import GroundcheckError
 from ..core.units import UnitError, parse_quantity
 from ..language.loader import load
 from ..renderers.output import write_atomic
-from ..rules.results import Options
+from ..rules.results import FAIL_LEVELS, Options
+from ..rules.selection import UnknownRule, codes_of
+from .settings import load_settings, shown_value
 
-__all__ = ["UsageError", "Parser", "quantity_type", "seconds_type", "processes_type", "add_analysis_options",
-           "options_of", "load_plan", "write_output"]
+__all__ = ["FAIL_HELP", "FAIL_LEVELS", "UsageError", "Parser", "quantity_type", "seconds_type",
+           "processes_type", "add_analysis_options", "options_of", "load_plan", "write_output"]
 
 
 class UsageError(GroundcheckError):
@@ -98,6 +100,10 @@ def available_cpus() -> int:
         return max(1, os.cpu_count() or 1)
 
 
+#: --fail-on of check and report
+FAIL_HELP = ("exit 1 when an open finding, or a danger accepted in the plan, is at least this "
+             "severe (default fault; never: exit 0 whatever is found)")
+
 #: the analysis defaults, read from their one home (the Options record)
 _DEFAULT = Options()
 
@@ -115,44 +121,28 @@ def add_analysis_options(p):
                    help="report hum contributors above this level at the output (default "
                         f"{_DEFAULT.contributor_level:g} dBV)")
     g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
-    g.add_argument("--select", type=_words, metavar="RULES", default=None,
-                   help="report only these rules (codes or names, comma-separated; default: every rule)")
-    g.add_argument("--ignore", type=_words, metavar="RULES", default=None,
-                   help="never report these rules (codes or names, comma-separated)")
+    g.add_argument("--only-rules", type=_words, metavar="RULES", default=None,
+                   help="check only these rules: codes (GC206), families (GC2: every "
+                        "protective-earth rule) or names, comma-separated; every rule left out is "
+                        "listed as not checked (default: every rule)")
+    g.add_argument("--leave-out", type=_words, metavar="RULES", default=None,
+                   help="do not check these rules (codes, families or names, comma-separated); "
+                        "each is listed as not checked in every output")
     g.add_argument("--allow-accept-danger", action="store_true", default=None,
-                   help="let a '# accept' comment accept a danger finding too (by default dangers are never accepted)")
+                   help="let a '# accept' comment accept a danger finding too; it still counts "
+                        "as a danger (exit status 1 unless --fail-on never), and every output "
+                        "says so")
 
 
 def _words(text: str) -> tuple[str, ...]:
-    return tuple(w.strip() for w in text.split(",") if w.strip())
-
-
-CONFIG_KEYS = ("select", "ignore", "fail-on", "allow-accept-danger")
-
-
-def load_config(start: Path | None = None) -> tuple[dict, Path | None]:
-    """Settings from ``groundcheck.toml`` (top-level keys) or the ``[tool.groundcheck]`` table of
-    ``pyproject.toml``, in the current folder or the nearest folder above it; command-line options win."""
-    import tomllib
-    here = (start or Path.cwd()).resolve()
-    for folder in (here, *here.parents):
-        for name, table in (("groundcheck.toml", None), ("pyproject.toml", ("tool", "groundcheck"))):
-            f = folder / name
-            if not f.is_file():
-                continue
-            try:
-                data = tomllib.loads(f.read_text(encoding="utf-8"))
-            except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
-                raise UsageError(f"{f}: cannot read the settings ({e})") from None
-            for key in table or ():
-                data = data.get(key, {}) if isinstance(data, dict) else {}
-            if table is not None and not data:
-                continue
-            unknown = sorted(set(data) - set(CONFIG_KEYS))
-            if unknown:
-                raise UsageError(f"{f}: unknown setting {unknown[0]!r} (settings: {', '.join(CONFIG_KEYS)})")
-            return data, f
-    return {}, None
+    words = tuple(w.strip() for w in text.split(",") if w.strip())
+    if not words:
+        raise argparse.ArgumentTypeError("give at least one rule code, family or name")
+    try:
+        codes_of(words)
+    except UnknownRule as e:
+        raise argparse.ArgumentTypeError(str(e)) from None
+    return words
 
 
 def _setting(args, name: str, config: dict, default):
@@ -163,22 +153,39 @@ def _setting(args, name: str, config: dict, default):
     return tuple(value) if isinstance(value, list) else value
 
 
+def _rules(args, name: str, config: dict) -> tuple[tuple[str, ...], str]:
+    """A rule selection and where it came from, as the outputs name it."""
+    value = getattr(args, name.replace("-", "_"), None)
+    if value is not None:
+        return tuple(value), f"--{name} {','.join(value)}"
+    if name in config:
+        where = getattr(args, "config_file", None) or "the settings file"
+        return tuple(config[name]), f"{name} = {shown_value(config[name])} in {where}"
+    return (), f"--{name}"
+
+
 def _config(args) -> dict:
-    """The settings file's values, read once per command (``main`` stores them on ``args``)."""
+    """The settings file's values, read once per command (stored on ``args``)."""
     config = getattr(args, "config", None)
     if config is None:
-        config = args.config = load_config()[0]
+        try:
+            config, args.config_file = load_settings()
+        except GroundcheckError as e:
+            raise UsageError(str(e)) from None
+        args.config = config
     return config
 
 
 def options_of(args):
     config = _config(args)
-    return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency, contributor_level=args.hum_level,
-                   hum=not args.no_hum, jobs=getattr(args, "jobs", 1), select=_setting(args, "select", config,
-                                                                                       _DEFAULT.select),
-                   ignore=_setting(args, "ignore", config, _DEFAULT.ignore),
-                   allow_accept_danger=bool(_setting(args, "allow-accept-danger", config,
-                                                     _DEFAULT.allow_accept_danger)))
+    only, only_origin = _rules(args, "only-rules", config)
+    leave, leave_origin = _rules(args, "leave-out", config)
+    allow = _setting(args, "allow-accept-danger", config, _DEFAULT.allow_accept_danger)
+    return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency,
+                   contributor_level=args.hum_level, hum=not args.no_hum,
+                   jobs=getattr(args, "jobs", 1), only_rules=only, leave_out=leave,
+                   only_rules_origin=only_origin, leave_out_origin=leave_origin,
+                   allow_accept_danger=bool(allow))
 
 
 def fail_on(args) -> str:

@@ -125,14 +125,19 @@ _ACCEPT = re.compile(r"#\s*accept\s+([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*(\S.*?)\s*$
 
 
 def acceptances(sources: dict) -> tuple:
-    """The ``# accept CODE[, CODE]: reason`` comments of the plan's files: (file, line, codes, reason)."""
+    """The ``# accept CODE[, CODE]: reason`` comments of the plan's files:
+    (file, line, codes, reason, columns), ``columns`` the 1-based column of each code (an error
+    points at a word that names no rule)."""
     out = []
     for file, lines in sources.items():
         for i, line in enumerate(lines, 1):
             if "accept" in line:
                 m = _ACCEPT.search(line)
                 if m:
-                    out.append((file, i, tuple(c.strip() for c in m.group(1).split(",")), m.group(2)))
+                    words = [(w.group(), m.start(1) + w.start() + 1)
+                             for w in re.finditer(r"[\w-]+", m.group(1))]
+                    out.append((file, i, tuple(w for w, _ in words), m.group(2),
+                                tuple(c for _, c in words)))
     return tuple(out)
 
 

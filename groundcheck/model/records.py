@@ -329,8 +329,8 @@ class Plan:
     files: tuple[str, ...] = ()
     location: Location = field(default=Location("<plan>"), compare=False)
     device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
-    acceptances: tuple[tuple[str, int, tuple[str, ...], str],
-                       ...] = ()   # (file, line, codes, reason) of '# accept' comments
+    acceptances: tuple[tuple[str, int, tuple[str, ...], str, tuple[int, ...]],
+                       ...] = ()   # '# accept' comments: (file, line, codes, reason, code columns)
     device_files: tuple[str, ...] = ()   # the files of placed devices' own plans (and what they include)
     supply: Supply | None = None         # an installation's stated supply
     devices: tuple[Device, ...] = ()     # the devices an installation places

@@ -81,6 +81,18 @@ def _totals(d: dict, before: Result, after: Result, e=escape) -> list[str]:
     return ['<h2>Totals</h2><table id="totals"><tr><th></th><th>before</th><th>after</th></tr>', *rows, "</table>"]
 
 
+def _verdicts(d: dict, e=escape) -> list[str]:
+    """Each plan's verdict, and what each run relaxed, left out or accepted."""
+    out = []
+    for when in ("before", "after"):
+        cls = "ok" if d["verdict"][when] == "clean" else "bad"
+        out.append(f'<p><b>Verdict {when}:</b> <span class="{cls}">'
+                   f'{e(d["verdict"][when])}</span></p>')
+        out += [f'<p class="notice"><b>Notice ({when}):</b> {e(n)}</p>'
+                for n in d["notices"][when]]
+    return out
+
+
 def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None = None) -> str:
     """The comparison page.
 
@@ -95,7 +107,8 @@ def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None 
     parts = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8"><title>groundcheck: '
              f"{e(d['before'])} → {e(d['after'])}</title><style>{CSS}</style></head><body>",
              f"<h1>{e(d['before'])} → {e(d['after'])}</h1><p>Compared by groundcheck {e(__version__)}.</p>",
-             f'<p class="caution">{e(d["caution"])}</p>', *_totals(d, before, after)]
+             f'<p class="caution">{e(d["caution"])}</p>', *_verdicts(d),
+             *_totals(d, before, after)]
     parts.append('<h2>Findings</h2><table id="changes"><tr><th>change</th><th>severity</th><th>code</th>'
                  "<th>finding</th></tr>")
     for tag in ("introduced", "fixed", "kept"):

@@ -136,7 +136,6 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
     """
     plan = result.plan
     counts = result.counts()
-    worst = result.worst()
     e = escape
     parts = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
              f"<title>groundcheck: {e(plan.title)}</title>",
@@ -145,8 +144,9 @@ def html_report(result: Result, physical_svg: bytes | None, topology_svg: bytes 
              f"<h1>{e(plan.title)}</h1>",
              f"<p>Plan <code>{e(plan.file)}</code> — checked by groundcheck {e(__version__)}.</p>",
              f'<p class="caution">{e(CAUTION)}</p>', "<h2>Summary</h2>"]
-    verdict = "clean" if worst is None else f"worst finding: {worst}"
-    parts.append(f'<p><b>Verdict:</b> <span class="{"ok" if worst is None else "bad"}">{e(verdict)}</span>. '
+    verdict = result.verdict()
+    ok = "ok" if result.clean() else "bad"
+    parts.append(f'<p><b>Verdict:</b> <span class="{ok}">{e(verdict)}</span>. '
                  + ", ".join(f"{counts[s]} {s}" for s in SEVERITIES)
                  + (f", {counts['accepted']} accepted in the plan" if counts["accepted"] else "")
                  + f"; {result.loop_total} independent ground loop{'' if result.loop_total == 1 else 's'}.</p>")

@@ -31,8 +31,7 @@ def main_hum_line(result: Result) -> float | None:
 
 
 def _verdict(result: Result) -> str:
-    worst = result.worst()
-    return "clean" if worst is None else f"worst finding: {worst}"
+    return result.verdict()
 
 
 def _findings(result: Result, lines: dict[str, list[str]], e=escape) -> tuple[str, list[dict]]:
@@ -58,7 +57,8 @@ def _findings(result: Result, lines: dict[str, list[str]], e=escape) -> tuple[st
 
 def _summary(result: Result, e=escape) -> str:
     counts = result.counts()
-    out = [f'<p><b id="verdict" class="{"ok" if result.worst() is None else "bad"}">{e(_verdict(result))}</b> — '
+    ok = "ok" if result.clean() else "bad"
+    out = [f'<p><b id="verdict" class="{ok}">{e(_verdict(result))}</b> — '
            + ", ".join(f"{counts[s]} {s}" for s in ("danger", "fault", "warning", "note"))
            + f"; {result.loop_total} independent ground loop{'' if result.loop_total == 1 else 's'}.</p>"]
     out += [f'<p class="notice">{e(n)}</p>' for n in result.notices]
@@ -153,7 +153,9 @@ def live_state(result: Result, physical: str | None, topology: str | None, befor
                 "hum": hum_html or "<p>No hum budget (no sources or stages).</p>",
                 "protective": pe_html or "<p>No protective-earth figures.</p>", "changes": _changes(before, result)}
     return {"ok": True, "title": result.plan.title, "file": result.plan.file, "verdict": _verdict(result),
-            "worst": result.worst(), "seconds": round(seconds, 3), "caution": CAUTION, "sections": sections,
+            "worst": result.worst(), "clean": result.clean(), "seconds": round(seconds, 3),
+            "caution": CAUTION,
+            "not_checked": [n.as_dict() for n in result.not_checked], "sections": sections,
             "physical": _inline_svg(physical) if physical else None,
             "topology": _inline_svg(topology) if topology else None,
             "marks": marks, "conductors": conductor_figures(result), "error": None}

@@ -20,7 +20,8 @@ header{display:flex;gap:1em;align-items:center;padding:.6em 1em;background:#2632
 top:0;z-index:2}
 header h1{font-size:1.1em;margin:0;flex:1;white-space:nowrap;overflow:hidden;text-overflow:ellipsis}
 #badge{font-weight:bold;padding:.15em .7em;border-radius:1em;background:#6b7b86}
-#badge.clean{background:#2d7a3a}#badge.note{background:#1f6f8b}#badge.warning{background:#a07800}
+#badge.clean{background:#2d7a3a}#badge.partial{background:#6b5a00}
+#badge.note{background:#1f6f8b}#badge.warning{background:#a07800}
 #badge.fault{background:#c4500f}#badge.danger{background:#b00020}#badge.error{background:#7a1fa2}
 #status{font-size:.85em;color:#c9d3d9}
 .caution{margin:0;padding:.5em 1em;background:#fff1c9;border-bottom:2px solid #d89b00;font-weight:600}
@@ -102,7 +103,7 @@ SCRIPT = r"""
     document.title = 'groundcheck live: ' + (s.title || s.file);
     setText('title', (s.title || '') + (s.file ? ' — ' + s.file : ''));
     setText('badge', s.verdict);
-    $('badge').className = s.ok ? (s.worst || 'clean') : 'error';
+    $('badge').className = s.ok ? (s.worst || (s.clean ? 'clean' : 'partial')) : 'error';
     setText('status', s.ok ? 'updated ' + new Date().toLocaleTimeString() + ' (' + Math.round(s.seconds * 1000) +
       ' ms)' : 'the plan has errors: the last good result is shown greyed');
     var err = $('errors');

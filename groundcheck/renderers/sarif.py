@@ -61,6 +61,16 @@ def sarif_errors(errors) -> dict:
                             "properties": {"caution": CAUTION}, "results": results}]})
 
 
+def _message(f) -> str:
+    """A result's text; a danger accepted in the plan says that it still counts as a danger (a
+    review screen may hide a suppressed result's level, never its words)."""
+    text = f"{f.message}. Fix: {f.fix}" if f.fix else f.message
+    if f.accepted is not None and f.severity == "danger":
+        text += (f" (a danger accepted in the plan: {f.accepted}; it still counts as a danger: "
+                 "exit status 1 unless --fail-on never)")
+    return text
+
+
 def sarif_document(results: list[Result]) -> dict:
     codes = list(RULES)
     rules = _rules()
@@ -69,7 +79,7 @@ def sarif_document(results: list[Result]) -> dict:
         for f in res.findings:
             loc = _location(f.location)
             out.append({"ruleId": f.code, "ruleIndex": codes.index(f.code), "level": LEVEL[f.severity],
-                        "message": {"text": f"{f.message}. Fix: {f.fix}" if f.fix else f.message},
+                        "message": {"text": _message(f)},
                         "locations": [loc],
                         "properties": {"severity": f.severity, "elements": list(f.elements), "figures": f.figures},
                         **({"suppressions": [{"kind": "inSource", "justification": f.accepted}]}
@@ -78,8 +88,35 @@ def sarif_document(results: list[Result]) -> dict:
                   "runs": [{"tool": {"driver": {"name": "groundcheck", "version": __version__,
                                                 "semanticVersion": __version__, "rules": rules}},
                             "columnKind": "unicodeCodePoints",
+                            "invocations": [_invocation(results)],
                             "properties": {"caution": CAUTION, "notices": [n for res in results for n in res.notices]},
                             "results": out}]})
+
+
+def _invocation(results: list[Result]) -> dict:
+    """The run's invocation (SARIF 2.1.0 §3.20): each rule left out by selection or settings as a
+    configuration override that disables it (§3.51), and every plan's verdict, what it left out and
+    what it accepted as a notification (§3.58), so that a review screen shows what was not
+    checked."""
+    codes = list(RULES)
+    left_out = sorted({c for res in results for n in res.not_checked if n.location is None
+                       for c in n.codes}, key=codes.index)
+    notes = []
+    for res in results:
+        level = "note" if res.clean() else "warning"
+        verdict = f"{res.plan.file}: verdict: {res.verdict()}"
+        notes.append({"level": level, "message": {"text": verdict}})
+        for n in res.not_checked:
+            note = {"level": "warning", "message": {"text": n.sentence()}}
+            if n.location is not None:
+                note["locations"] = [_location(n.location)]
+                note["associatedRule"] = {"id": n.codes[0], "index": codes.index(n.codes[0])}
+            notes.append(note)
+    return {"executionSuccessful": True,
+            "ruleConfigurationOverrides": [
+                {"descriptor": {"id": c, "index": codes.index(c)},
+                 "configuration": {"enabled": False}} for c in left_out],
+            "toolExecutionNotifications": notes}
 
 
 def render_sarif(results: list[Result]) -> str:

@@ -73,8 +73,8 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
     counts = result.counts()
     worst = result.worst()
     console.print(Text(shown(plan.title), style="bold"), Text(f"  ({shown(plan.file)})", style="dim"))
-    verdict = "clean" if worst is None else f"worst finding: {LABEL[worst]}"
-    vstyle = "bold green" if worst is None else STYLE[worst]
+    verdict = shown(result.verdict(LABEL.get))
+    vstyle = "bold green" if result.clean() else STYLE.get(worst, "bold yellow")
     line = Text("Verdict: ")
     line.append(verdict, style=vstyle)
     line.append("   " + "  ".join(f"{counts[s]} {s}" for s in SEVERITIES) + (f"  {counts['accepted']} accepted"
