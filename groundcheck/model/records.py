@@ -17,8 +17,7 @@ __all__ = [
     "Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current",
     "Heater", "Stage", "FieldSource", "Device", "Plan", "Supply", "CABLE_CORES",
     "PE_POINT", "ROLES", "CONDUCTOR_KINDS", "DEFAULT_CORD",
-    "SYSTEMS", "make",
-    "from_values",
+    "SYSTEMS", "make", "from_values",
 ]
 
 #: the implicit point of the mains inlet's protective-earth terminal
@@ -26,7 +25,6 @@ PE_POINT = "mains.pe"
 
 #: what a conductor is for
 ROLES = ("protective", "return", "signal", "shield", "bond", "heater")
-
 
 XY = tuple[float, float]
 
@@ -271,6 +269,8 @@ class Stage:
     channel: str = "main"
     location: Location = field(default=Location("<plan>"), compare=False)
     across: str | None = None            # an interconnect's input: the shield whose transfer impedance it reads
+    reference: str | None = None         # the input's reference (its sleeve): stated or inferred
+    named: str | None = None             # with a reference (then a): the first point written
 
 
 @dataclass(frozen=True)
