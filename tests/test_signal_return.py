@@ -235,3 +235,16 @@ def test_the_dual_mono_feedback_against_ngspice():
                 if x["source"] == "right_spk_i" and x["frequency_hz"] == 1000.0)
     assert ours["db"] == pytest.approx(spice_db, abs=0.01)
     assert spice_db == pytest.approx(-41.7, abs=0.1)                   # the verdict's figure
+
+
+def test_a_device_plan_keeps_its_stage_reference_when_placed(tmp_path):
+    # the same input as above in a device plan of its own: placed, its stage still reads the sleeve,
+    # and the channel's hum is the hand figure
+    (tmp_path / "box.gplan").write_text('plan "box"\n' + INPUT
+                                        + "stage v1: pad to k, gain 40 dB, reference sleeve\n")
+    inst = tmp_path / "rack.gplan"
+    inst.write_text('plan "rack"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n')
+    r = analyze(load(inst))
+    (st,) = r.plan.stages
+    assert (st.a, st.b, st.named) == ("b.sleeve", "b.k", "b.pad")
+    assert r.hum.channels["b.main"].total_v == pytest.approx(HAND, rel=1e-6)
