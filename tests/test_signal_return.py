@@ -238,8 +238,8 @@ def test_the_dual_mono_feedback_against_ngspice():
 
 
 def test_a_device_plan_keeps_its_stage_reference_when_placed(tmp_path):
-    # the same input as above in a device plan of its own: placed, its stage still reads the sleeve,
-    # and the channel's hum is the hand figure
+    # the same input as above in a device plan of its own: placed, its stage still reads the
+    # sleeve, and the channel's hum is the hand figure
     (tmp_path / "box.gplan").write_text('plan "box"\n' + INPUT
                                         + "stage v1: pad to k, gain 40 dB, reference sleeve\n")
     inst = tmp_path / "rack.gplan"
