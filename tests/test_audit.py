@@ -55,6 +55,10 @@ CASES = [
     ("GC109", BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\n",
      BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\nwire bg: b to gnd, 10 mm, 0.5 mm2\n"),
     ("GC110", BASE + "wire self: k to k, 10 mm, 0.5 mm2\n", BASE),
+    # the input socket grounded only by its fastening: its return runs through the deck
+    ("GC114", BASE.replace("wire in_gnd: sleeve to star, 150 mm, 0.5 mm2, signal\n",
+                           "bolt jack_nut: sleeve to deck\n"),
+     BASE + "bolt jack_nut: sleeve to deck\n"),
     # protective earth (IEC 60364-5-54 and the product-safety bonding clauses named in the rule catalogue)
     ("GC201", BASE.replace("wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective\n", ""), BASE),
     ("GC202", BASE.replace("wire bond: star to gnd", "wire bond: star to pe_stud"), BASE),

@@ -207,9 +207,10 @@ def test_compare_page_has_totals_charts_and_both_drawings(tmp_path, cli):
     code, page, _ = cli("compare", str(mono), str(fixed), "--format", "html")
     assert code == 0 and page.startswith("<!DOCTYPE html>") and "<style>" in page
     totals = page[page.index('id="totals"'):page.index("</table>", page.index('id="totals"'))]
-    # the headphone amplifier's planted mistakes: one danger (GC206) and four faults (GC102 and GC303 per channel)
+    # the headphone amplifier's planted mistakes: one danger (GC206) and six faults (GC102, GC303
+    # and GC306, each load return read back by its own input, per channel)
     assert "<td>danger</td><td class=num>1</td><td class=num>0</td>" in totals
-    assert "<td>fault</td><td class=num>4</td><td class=num>0</td>" in totals
+    assert "<td>fault</td><td class=num>6</td><td class=num>0</td>" in totals
     assert "hum, left" in totals and "(removed)" in totals
     assert page.count('aria-label="hum of channel') == 2                     # a before/after chart per channel
     assert 'id="before"' in page and 'id="after"' in page and page.count("<svg") >= 4

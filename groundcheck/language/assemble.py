@@ -15,6 +15,7 @@ from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, M
 from .devices import merge_device
 from .installation import check_bundles, check_supplies, land_shields, leakage_currents
 from .limits import LIMITS
+from .stage_inputs import stage_inputs
 
 __all__ = ["assemble", "HEADER_KEYWORDS"]
 
@@ -113,11 +114,24 @@ def _check_sources(groups, nodes, check) -> None:
         for r, refs, *_ in groups[group]:
             check(r.a, refs.get("a", r.location), "point", nodes)
             check(r.b, refs.get("b", r.location), "point", nodes)
+    for st, refs, *_ in groups[Stage]:
+        check(st.reference, refs.get("reference", st.location), "point", nodes)
     for r, refs, *_ in groups[Rectifier]:
         check(r.filter_point, refs.get("filter_point", r.location), "point", nodes)
     for h, refs, *_ in groups[Heater]:
         for f in ("a", "b", "reference"):
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)
+
+
+def _own_references(stages, errors) -> list[Stage]:
+    """The stages; a stated reference that is the stage's second point is reported (the input would
+    read nothing) and dropped."""
+    for st, refs, *_ in stages:
+        if st.reference is not None and st.reference == st.b:
+            errors.append(PlanError(f"stage {st.name!r}: its reference is its own second point "
+                                    f"{st.b!r}", refs.get("reference", st.location),
+                                    "name the input socket's sleeve (or the stage's first point)"))
+    return [st if st.reference != st.b else replace(st, reference=None) for st, *_ in stages]
 
 
 #: an inline acceptance: '# accept GC101: the chassis-structure loop is intended' (codes or rule names, a reason)
@@ -188,7 +202,8 @@ def assemble(built: list, file: str, ld) -> Plan:
     _check_points(groups, metals, check, ld.errors)
     conductors = _conductors(groups, nodes, check)
     _check_sources(groups, nodes, check)
-    stages = [r for r, *_ in groups[Stage]]
+    stages = stage_inputs(_own_references(groups[Stage], ld.errors), points, conductors,
+                          [r for g in (Current, Rectifier) for r, *_ in groups[g]])
     for c in conductors:
         if joins_devices(c) and c.gain is not None:
             gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)

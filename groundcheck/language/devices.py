@@ -150,6 +150,7 @@ def prefixed(p: Plan, prefix: str) -> Plan:
                                channel=pre(r.channel)) for r in p.currents),
         heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b),
                               reference=pre(h.reference)) for h in p.heaters),
-        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel)) for s in p.stages),
+        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel),
+                             reference=pre(s.reference), named=pre(s.named)) for s in p.stages),
         fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
     )

@@ -85,6 +85,7 @@ def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str]
         return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch)
     if isinstance(record, Stage):
         return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),
+                       reference=res(record.reference),
                        channel=record.channel if explicit_channel else channel)
     if isinstance(record, Heater):
         return replace(record, name=prefix + record.name, a=res(record.a), b=res(record.b),

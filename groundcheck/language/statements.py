@@ -163,8 +163,11 @@ def stage(stmt: Statement):
         elif first.kind == "word" and first.value == "channel":
             r.word()
             kw["channel"] = r.word("a channel name")
+        elif first.kind == "word" and first.value == "reference":
+            r.word()
+            kw["reference"], refs["reference"] = r.name("the input's reference point")
         else:
-            raise unknown(stmt, first, ("gain", "channel"))
+            raise unknown(stmt, first, ("gain", "channel", "reference"))
         r.finish()
     return Stage(name=name, a=a, b=b, location=stmt.loc, **kw), refs
 

@@ -267,6 +267,8 @@ class Stage:
     channel: str = "main"
     location: Location = field(default=Location("<plan>"), compare=False)
     across: str | None = None            # an interconnect's input: the shield whose transfer impedance it reads
+    reference: str | None = None         # the input's reference (its sleeve): stated or inferred
+    named: str | None = None             # with a reference (then a): the first point written
 
 
 @dataclass(frozen=True)

@@ -29,6 +29,7 @@ from functools import partial
 import numpy as np
 
 from ..core.units import ratio_of_db
+from .feedback import FEEDBACK_AT, feedback_sources, own_feedback
 from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources, source_injections
 from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
@@ -97,6 +98,7 @@ class _FrequencyPart:
     network: list = field(default_factory=list)      # rows of the JSON ``network`` section
     in_phase: list = field(default_factory=list)     # (channel, source group, Σ|stage drop·gain|): the worst case
     crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
+    feedback: list = field(default_factory=list)     # (source, channel, phasor, input part)
     probes: object = None                            # per probe pair: Σ over sources of |V_a − V_b|², V²
 
 
@@ -187,7 +189,11 @@ class HumBudget:
                     self.flux[(li, name)] = pair_path_flux(h.route, spacing, height, h.current,
                                                            [*info.polygon, info.polygon[0]])
             self.orient[name] = np.zeros(3)
-        self.solve_at = sorted(set(freqs) | (set(self.xt_freqs) if self.crosstalk_wanted else set()))
+        # a channel's own signal currents read by its own stages: at 1 kHz and the hum harmonics
+        self.fb_sources = feedback_sources(self.signal_sources, stages)
+        self.fb_freqs = set(freqs) | {FEEDBACK_AT} if self.fb_sources else set()
+        xt = set(self.xt_freqs) if self.crosstalk_wanted else set()
+        self.solve_at = sorted(set(freqs) | xt | self.fb_freqs)
 
     def closest(self, name: str, polygon) -> float:
         """A loop's closest approach to a field source's centre, or to an AC heater pair's wires, m."""
@@ -227,7 +233,7 @@ class HumBudget:
         return HumResult(channels, list(self.rectifier_results.values()),
                          [merged.loop_rows[k] for k in sorted(merged.loop_rows)],
                          merged.crosstalk(), self.freqs, merged.network_rows, self.notes, merged.probes,
-                         merged.levels())
+                         merged.levels(), merged.feedback())
 
     def _active(self, f: float) -> list:
         return [s for s in self.hum_sources if s.parts.get(f, 0) != 0] if f in self.freqs else []
@@ -244,6 +250,9 @@ class HumBudget:
             self._pickup(f, fac, part)
         if lo == 0 and self.crosstalk_wanted and f in self.xt_freqs:
             self._crosstalk(fac, part)
+        if lo == 0 and f in self.fb_freqs:
+            part.feedback = own_feedback(self.circuit, fac, self.fb_sources, self.stages,
+                                         self.valid_stage, self.gains_at(fac))
         return f, part
 
     def gains_at(self, fac) -> np.ndarray:

@@ -11,6 +11,7 @@ from collections import defaultdict
 from dataclasses import dataclass, field
 
 from ..core.units import db_of_ratio, dbv
+from .feedback import feedback_rows
 from .hearing import heard_threshold, spl_of
 
 __all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB", "rounded"]
@@ -81,11 +82,13 @@ class HumResult:
     # drops added in magnitude and its signed sum, power-summed over frequencies ('rectifier charging' or
     # 'KIND:NAME', as in the contributors)
     levels: dict = field(default_factory=dict)
+    # per signal current and frequency: its own channel's stages reading it (physics/feedback.py)
+    feedback: list[dict] = field(default_factory=list)
 
     def as_dict(self) -> dict:
         return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
                 "rectifiers": [r.as_dict() for r in self.rectifiers], "loops": self.loops,
-                "crosstalk": self.crosstalk, "notes": self.notes}
+                "crosstalk": self.crosstalk, "feedback": self.feedback, "notes": self.notes}
 
 
 class Merged:
@@ -99,6 +102,7 @@ class Merged:
         self.network_rows: list[dict] = []
         self.probes: dict = {}
         self.crosstalk_raw = defaultdict(complex)
+        self.feedback_raw: dict = {}
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
 
     def add(self, f: float, part) -> None:
@@ -115,6 +119,8 @@ class Merged:
             self._loop(f, li, src_name, emf_v, current, drops)
         for src_ch, dst_ch, v in part.crosstalk:
             self.crosstalk_raw[(src_ch, dst_ch, f)] += v
+        for name, ch, total, ahead in part.feedback:
+            self.feedback_raw[(name, ch, f)] = (total, ahead)
 
     def _loop(self, f, li, src_name, emf_v, current, drops) -> None:
         b = self.b
@@ -210,6 +216,9 @@ class Merged:
             self.b.notes.append(f"in {ch}, some contributions have negative shares: their drops oppose the others' "
                                 "along the stage's path and cancel part of them")
         return clist
+
+    def feedback(self) -> list[dict]:
+        return feedback_rows(self.feedback_raw, self.b.rated)
 
     def crosstalk(self) -> list[dict]:
         rated = self.b.rated

@@ -162,6 +162,11 @@ def _hum_tables(result: Result, console: Console) -> None:
     for r in xt:
         console.print(f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} at 1 kHz: "
                       + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB"))
+    for r in result.hum.feedback:
+        if r["frequency_hz"] == 1000.0 and r["input_db"] > -200:
+            console.print(f"  ground feedback of {escape(r['source'])} into its own "
+                          f"{escape(str(r['channel']))} output at 1 kHz: {r['db']:.1f} dB "
+                          f"({r['input_db']:.1f} dB through its input stages)")
     for note in result.hum.notes:
         console.print(Text(f"  note: {note}", style="dim"))
     console.print()

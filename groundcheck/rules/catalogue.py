@@ -154,6 +154,16 @@ RULES: dict[str, Rule] = dict([
        "side. Never lift the protective earth.",
        "AES48-2005, interconnections and grounding of shields in audio equipment: a shield terminates on the "
        "enclosure at its point of entry (from memory); common-impedance coupling (see GC102)."),
+    _r("GC114", "signal-return-through-metal", "warning",
+       "A stage whose input reference (its socket's sleeve, or the first point it names) reaches "
+       "the stage's ground only through metal parts: a socket grounded only by its fastening to "
+       "the chassis, say.",
+       "The signal's own return then runs through the chassis, shared with every current the "
+       "chassis carries (leakage, loop currents, the protective earth's), and through contact "
+       "resistances that change with corrosion and torque; the drop is amplified as signal.",
+       "Wire the socket's ground to the input ground by a wire of its own and insulate the socket "
+       "from the chassis (an insulated socket or shoulder washers); the chassis keeps its one "
+       "bond to the signal ground."),
     _r("GC201", "pe-missing", "danger",
        "The mains inlet's protective terminal does not reach any metal part through protective conductors.",
        "Without a protective earth a line-to-chassis fault leaves the chassis live.",
@@ -316,6 +326,23 @@ RULES: dict[str, Rule] = dict([
        "without one the figure may be off by a large factor either way.",
        "State the source's size ('size 60 mm') and height, or route the loop's conductors away from it.",
        "J. D. Jackson, Classical Electrodynamics, 3rd ed., §5.4 and §5.6"),
+    _r("GC306", "ground-feedback", "fault",
+       "A channel's own output or load current (a 'signal' current of that channel) flowing in "
+       "the ground that one of its stages reads, other than the stages at the current's own ends. "
+       "The feedback is the current's drop across each of the channel's stages times the stage's "
+       "gain, summed with signs as the crosstalk is, against the rated output, at 1 kHz and at "
+       "the hum budget's frequencies. A fault when the part read by those other stages (the input "
+       "stages) is above -60 dB (0.1 %) at any of them, a note from -100 dB to -60 dB.",
+       "The output current's drop in the input ground is fed back to the input ahead of the whole "
+       "gain: a second, unplanned feedback path through the ground, which changes the gain, adds "
+       "the load current's distortion (a class AB stage's half-wave currents, a speaker's "
+       "reactive current) to the output and, large enough, makes the amplifier oscillate. 0.1 % "
+       "is the distortion a power amplifier is commonly held to (common practice), so a ground "
+       "feedback above it is an error of that size at the output.",
+       "Take the load or output return straight to the channel's star (the supply's centre) by a "
+       "wire of its own, so that it shares nothing with the input ground.",
+       "common-impedance coupling (see GC102); 0.1 % as a power amplifier's distortion figure: "
+       "common practice"),
     _r("GC401", "island", "note",
        "A part of the ground network not connected to the rest: it gets its own reference in the solve.",
        "Figures between points of different parts are undefined; usually a wire is missing from the plan.",

@@ -1,5 +1,6 @@
 """Imports every family of rules, so that each registers its functions (:mod:`groundcheck.rules.registry`)."""
 
-from . import earthing_system, electrical, installation, protective, topology  # noqa: F401 - registrations
+# imported for their registrations
+from . import earthing_system, electrical, installation, protective, signal, topology  # noqa: F401
 
 __all__: list[str] = []
