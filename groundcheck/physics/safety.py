@@ -29,6 +29,7 @@ import numpy as np
 
 from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
+from ..model.installation import separated_devices
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
 from .protection import (STANDARD_PE_LIMIT, DEFAULT_CIRCUIT, DEFAULT_ZE, Clearing, breaking_capacity, cable_resistance,
@@ -334,6 +335,7 @@ def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tup
         IEC 60364-5-54.
     """
     class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}     # no earth pin to check
+    class_ii |= separated_devices(plan)   # on a floating secondary: no earth path by design
     inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT
                     and p.name.split(".", 1)[0] not in class_ii)
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]

@@ -1,5 +1,6 @@
 """Imports every family of rules, so that each registers its functions (:mod:`groundcheck.rules.registry`)."""
 
-from . import electrical, installation, protective, topology  # noqa: F401 - imported for their registrations
+from . import (  # noqa: F401 - imported for their registrations
+    electrical, installation, protective, topology, transformers)
 
 __all__: list[str] = []
