@@ -209,13 +209,15 @@ def test_the_devices_behind_a_transformer_against_its_rating(tmp_path, draws, fa
     body = ("transformer sd: plugged wall, primary 220 V, secondary 120 V, rating 200 VA\n"
             f"device a: simple, plugged sd, draws {draws[0]} VA\n"
             f"device b: simple, plugged sd, draws {draws[1]} VA\n"
-            "device c: simple, plugged wall, draws 500 VA\n")    # on the wall: not behind it
+            "device c: simple, plugged wall, draws 500 VA\n"     # on the wall: not behind it
+            "device d: simple, plugged sd\n")                     # states no draw: not counted
     got = [f for f in _room(tmp_path, body).findings if f.code == "GC219"]
     if not fault:
         assert got == []            # 150 + 40 = 190 VA ≤ 200 VA
         return
     (f,) = got                      # 150 + 100 = 250 VA > 200 VA
     assert f.severity == "fault" and f.figures == {"draws_va": 250.0, "rating_va": 200.0}
+    assert "draw 250 VA, over its rating of 200 VA; d states no draw" in f.message
 
 
 def test_a_strip_behind_a_transformer_gives_its_secondary(tmp_path):

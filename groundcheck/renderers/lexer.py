@@ -23,7 +23,8 @@ ATTRIBUTE_WORDS = ("protective", "return", "signal", "shield", "bond", "to", "at
                    "distance", "impedance", "output", "amp-gain", "wiring", "spacing", "twisted", "reference",
                    "floating", "ac", "dc", "plugged", "simple", "signal-ground", "mirror", "as", "lift", "open",
                    "closed", "contact", "resistance", "width", "thickness", "library", "cores", "shield-to", "chassis",
-                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round")
+                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round",
+                   "primary", "rating", "earthed", "isolating", "draws")
 
 
 class PlanLexer(RegexLexer):
@@ -44,7 +45,7 @@ class PlanLexer(RegexLexer):
              bygroups(Whitespace, Keyword.Declaration)),
             (r"([^\W\d][\w.\-]*)([ \t]*)(:)", bygroups(Name.Variable, Whitespace, Punctuation)),
             (r"[+-]?\d+(\.\d*)?([eE][+-]?\d+)?[ \t]*(mm2|mm|cm|m|in|AWG|mohm|kohm|ohm|mA|A|kV|mV|V|kHz|Hz|uT|mT|"
-             r"T|uF|nF|pF|F|mH|uH|H|dB|C|s|ms)?\b", Number),
+             r"T|uF|nF|pF|F|mH|uH|H|dB|C|s|ms|kVA|VA)?\b", Number),
             (r"\d+(\.\d*)?,\d+(\.\d*)?", Number),
             (words(ATTRIBUTE_WORDS, suffix=r"\b"), Name.Attribute),
             (r"[{}]", Punctuation),
