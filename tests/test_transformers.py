@@ -283,3 +283,12 @@ def test_a_transformer_belongs_to_the_installation_not_to_a_device_plan(tmp_path
     with pytest.raises(PlanErrors) as e:
         load_text(text, str(tmp_path / "room.gplan"), root=tmp_path)
     assert "device box's plan has a transformer" in str(e.value)
+
+
+def test_a_large_flat_file_with_a_transformer_is_read_whole():
+    from groundcheck.language.bigfile import split_point
+    body = "".join(f"point p{i}: junction\n" for i in range(200))
+    text = ROOM.format(supply="230 V 50 Hz") + body
+    assert split_point(text, min_lines=10) is not None           # a flat file is cut in two
+    xf = "transformer sd: plugged wall, primary 230 V, secondary 120 V\n"
+    assert split_point(text + xf, min_lines=10) is None          # one with a transformer is not
