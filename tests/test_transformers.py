@@ -292,3 +292,24 @@ def test_a_large_flat_file_with_a_transformer_is_read_whole():
     assert split_point(text, min_lines=10) is not None           # a flat file is cut in two
     xf = "transformer sd: plugged wall, primary 230 V, secondary 120 V\n"
     assert split_point(text + xf, min_lines=10) is None          # one with a transformer is not
+
+
+def test_the_json_document_lists_the_transformers_and_validates(cli, tmp_path):
+    import json
+
+    import jsonschema
+    from helpers import ROOT
+    schema = json.loads((ROOT / "docs" / "schema" / "groundcheck-result.schema.json").read_text())
+    f = tmp_path / "room.gplan"
+    f.write_text(ROOM.format(supply="230 V 50 Hz")
+                 + "transformer sd: plugged wall, primary 230 V, secondary 120 V, rating 1 kVA\n"
+                 "transformer iso: plugged wall, primary 230 V, secondary 230 V, isolating\n"
+                 "device a: simple, plugged sd\n")
+    code, out, _ = cli("check", str(f), "--format", "json")
+    doc = json.loads(out)
+    jsonschema.validate(doc, schema, cls=jsonschema.Draft202012Validator)
+    assert doc["plan"]["transformers"] == [
+        {"name": "sd", "plugged": "wall", "primary_v": 230.0, "secondary_v": 120.0,
+         "rating_va": 1000.0, "isolating": False},
+        {"name": "iso", "plugged": "wall", "primary_v": 230.0, "secondary_v": 230.0,
+         "rating_va": None, "isolating": True}]
