@@ -142,7 +142,7 @@ def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) 
     """The installation's transformers placed (their outlets and cords), and each device's leakage
     current at the supply where it is plugged in (added to the currents)."""
     transformers = [t for t, *_ in groups[Transformer]]
-    place_transformers(transformers, points, groups[Conductor], supply, errors)
+    place_transformers(groups[Transformer], points, groups[Conductor], supply, errors)
     feeds = transformer_feeds(transformers, [c for c, *_ in groups[Conductor]], placed)
     landings = {}                        # device -> the first point of it an interconnect lands on
     for c, *_ in groups[Conductor]:
@@ -174,7 +174,8 @@ def assemble(built: list, file: str, ld) -> Plan:
     transformers = _transformers_and_leakage(groups, header.get("supply"), points, placed, supplies,
                                              ld.errors)
     nodes = set(points) | set(metals)
-    for dev, refs in [*devices, *((t, r) for t, r, *_ in groups[Transformer])]:
+    isolating = [(t, r) for t, r, *_ in groups[Transformer] if t.isolating]   # no cord to check
+    for dev, refs in [*devices, *isolating]:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
             ld.errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
                                        f"define it with 'point {dev.plugged}: outlet'"))

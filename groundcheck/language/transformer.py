@@ -62,11 +62,16 @@ def transformer(stmt: Statement):
 
 def place_transformers(transformers: list, points: dict, conductors: list, supply,
                        errors: list) -> None:
-    """Each transformer's secondary outlet as a point of kind ``outlet`` under its name; an
-    earthed secondary's outlet joined to the outlet its primary is plugged into by the cord's
-    protective conductor (``NAME.cord``), as a device's earth pin is.  Needs the installation's
-    ``supply``; a stated secondary frequency must be the supply's."""
-    for t in transformers:
+    """Each transformer (``(record, refs)``) with its secondary outlet as a point of kind
+    ``outlet`` under its name; an earthed secondary's outlet joined to the outlet its primary is
+    plugged into by the cord's protective conductor (``NAME.cord``), as a device's earth pin is.
+    Needs the installation's ``supply``; a stated secondary frequency must be the supply's."""
+    for t, refs, *_ in transformers:
+        if t.plugged == t.name:
+            errors.append(PlanError(f"transformer {t.name} is plugged into its own secondary",
+                                    refs.get("plugged", t.location),
+                                    "plug its primary into an outlet or strip of the supply"))
+            continue
         if supply is None:
             errors.append(PlanError(f"transformer {t.name} needs the installation's supply",
                                     t.location, "state it with 'supply 230 V 50 Hz, system TN-S'"))
@@ -83,4 +88,4 @@ def place_transformers(transformers: list, points: dict, conductors: list, suppl
             cord = Conductor(f"{t.name}.cord", "wire", t.name, t.plugged, role="protective",
                              length=t.cord_length or DEFAULT_CORD[0],
                              area=t.cord_area or DEFAULT_CORD[1], location=t.location)
-            conductors.append((cord, {}))
+            conductors.append((cord, {"b": refs.get("plugged", t.location)}))
