@@ -7,7 +7,7 @@ sound).  See :mod:`groundcheck.advice.candidates` for the rest.
 from __future__ import annotations
 
 from ..model.kinds import is_fastening_kind, joins_devices
-from ..model.installation import shield_ends
+from ..model.installation import rated_voltage, shield_ends, suits, supply_at, transformer_feeds
 from ..model.records import Plan
 from ..rules.protective import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
@@ -81,6 +81,7 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
     devices = {d.name: d for d in ctx.plan.devices}
     looped = {e for lp in ctx.result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges}
     pairs, names = outlet_pairs(ctx.plan)
+    fits = _fits(ctx.plan)
     for (a, b), name in zip(pairs, names):
         c = ctx.cond[name]
         if name not in looped:
@@ -90,7 +91,7 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
             mate = other.split(".", 1)[0]
             st = ctx.src.statement(dev.location.line) if dev and dev.location.file == ctx.plan.file else None
             ph = ctx.src.find(st, "plugged") if st is not None else None
-            if ph and len(ph) == 2:
+            if ph and len(ph) == 2 and fits(dev, there):
                 add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both, within "
                               f"its current rating: the loop of {name} no longer runs through the building's earth "
                               "wiring)", "GC101",
@@ -103,6 +104,7 @@ def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
     first.  The broken path still needs repair; this takes the device off it."""
     earths = ctx.result.device_earths or ()
     devices = {d.name: d for d in ctx.plan.devices}
+    fits = _fits(ctx.plan)
     sound = [devices[e.device].plugged for e in earths if e.resistance is not None
              and e.resistance <= DEVICE_EARTH_LIMIT and e.device in devices and devices[e.device].plugged]
     for f in ctx.result.findings:
@@ -115,10 +117,22 @@ def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
         st = ctx.src.statement(dev.location.line) if dev.location.file == ctx.plan.file else None
         ph = ctx.src.find(st, "plugged") if st is not None else None
         for there in list(dict.fromkeys(near + sound))[:3]:
-            if ph and len(ph) == 2 and there != dev.plugged:
+            if ph and len(ph) == 2 and there != dev.plugged and fits(dev, there):
                 add(Candidate(f"plug {dev.name} in at {there}, whose earth path is sound (and have the protective "
                               f"connection of {dev.plugged} repaired before anything is plugged into it)", "GC215",
                               (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True))
+
+
+def _fits(plan: Plan):
+    """Whether a device may be plugged in at a point: the voltage there suits the one it is for
+    (its own plan's, else where the plan plugs it in), within IEC 60038's ±10 %: never a 230 V
+    device behind a 120 V transformer, nor the reverse."""
+    devices = {d.name: d for d in plan.devices}
+    feeds = transformer_feeds(plan.transformers, plan.conductors, devices)
+    if not feeds:
+        return lambda dev, there: True
+    return lambda dev, there: suits(rated_voltage(plan, dev, feeds),
+                                    supply_at(there, feeds, plan.supply))
 
 
 def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:

@@ -34,6 +34,7 @@ KINDS = {
     "temperature": "°C",
     "time": "s",
     "energy integral": "A²s",
+    "apparent power": "VA",
 }
 
 _PREFIX = {"": 1.0, "k": 1e3, "M": 1e6, "m": 1e-3, "u": 1e-6, "µ": 1e-6, "μ": 1e-6, "n": 1e-9, "p": 1e-12}
@@ -101,6 +102,7 @@ def _build_table() -> dict[str, tuple[float, str]]:
     add(["s"], "time", ("", "m", "u", "µ", "μ"))
     for sym in ("A2s", "A²s"):
         t[sym] = (1.0, "energy integral")
+    add(["VA"], "apparent power", ("", "k", "m"))
     return t
 
 

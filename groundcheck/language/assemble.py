@@ -11,16 +11,19 @@ from pathlib import Path
 
 from ..core.errors import LimitError, Location, PlanError
 from ..model.kinds import joins_devices
+from ..model.installation import Transformer, transformer_feeds
 from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
 from .devices import merge_device
 from .installation import check_bundles, check_supplies, land_shields, leakage_currents
 from .limits import LIMITS
 from .stage_inputs import stage_inputs
+from .transformer import place_transformers
 
 __all__ = ["assemble", "HEADER_KEYWORDS"]
 
 #: keywords of the plan header (one each per file; not allowed inside a block)
-HEADER_KEYWORDS = ("plan", "mains", "supply", "ambient", "listening", "library", "device")
+HEADER_KEYWORDS = ("plan", "mains", "supply", "ambient", "listening", "library", "device",
+                   "transformer")
 
 _HEADER_FIELD = {"plan": "title", "mains": "mains", "supply": "supply", "ambient": "ambient",
                  "listening": "listening"}
@@ -31,7 +34,7 @@ def _collect(built: list, ld):
     errors = ld.errors
     header: dict = {}
     groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage,
-                                                FieldSource)}
+                                                FieldSource, Transformer)}
     names: dict[str, Location] = {}
     devices: list = []
     library_dirs: list[str] = []
@@ -47,7 +50,7 @@ def _collect(built: list, ld):
             names[record.name] = st.label_loc or st.loc
             devices.append((record, refs))
             continue
-        if st.keyword in HEADER_KEYWORDS:
+        if st.keyword in HEADER_KEYWORDS and st.keyword != "transformer":
             key = _HEADER_FIELD[st.keyword]
             if key in header:
                 errors.append(PlanError(f"'{st.keyword}' is given twice", st.loc, "keep one"))
@@ -165,6 +168,23 @@ def _exposed(m: Metal, mains) -> Metal:
     return replace(m, touchable=class_i)
 
 
+def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) -> list:
+    """The installation's transformers placed (their outlets and cords), and each device's leakage
+    current at the supply where it is plugged in (added to the currents)."""
+    transformers = [t for t, *_ in groups[Transformer]]
+    place_transformers(groups[Transformer], points, groups[Conductor], supply, errors)
+    feeds = transformer_feeds(transformers, [c for c, *_ in groups[Conductor]], placed)
+    landings = {}                        # device -> the first point of it an interconnect lands on
+    for c, *_ in groups[Conductor]:
+        if joins_devices(c):
+            for end in (c.a, c.b):
+                landings.setdefault(end.split(".", 1)[0], end)
+    own = {s[0]: s[1:] for s, _ in supplies}
+    groups[Current] += [(x, {}) for x in leakage_currents(list(placed.values()), own, supply,
+                                                          points, landings, feeds)]
+    return transformers
+
+
 def assemble(built: list, file: str, ld) -> Plan:
     """The plan of a file's built ``(statement, record, refs)`` list; errors are added to ``ld.errors``."""
     header, groups, names, devices, library_dirs = _collect(built, ld)
@@ -181,15 +201,11 @@ def assemble(built: list, file: str, ld) -> Plan:
             supplies.append((supply, dev.location))
     check_supplies(supplies, mains, header.get("supply"), ld.errors)
     placed = {d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class)) for d, _ in devices}
-    landings = {}                        # device -> the first point of it an interconnect lands on
-    for c, *_ in groups[Conductor]:
-        if joins_devices(c):
-            for end in (c.a, c.b):
-                landings.setdefault(end.split(".", 1)[0], end)
-    groups[Current] += [(x, {}) for x in leakage_currents(list(placed.values()), {s[0]: s[1:] for s, _ in supplies},
-                                                          header.get("supply"), points, landings)]
+    transformers = _transformers_and_leakage(groups, header.get("supply"), points, placed, supplies,
+                                             ld.errors)
     nodes = set(points) | set(metals)
-    for dev, refs in devices:
+    isolating = [(t, r) for t, r, *_ in groups[Transformer] if t.isolating]   # no cord to check
+    for dev, refs in [*devices, *isolating]:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
             ld.errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
                                        f"define it with 'point {dev.plugged}: outlet'"))
@@ -220,6 +236,7 @@ def assemble(built: list, file: str, ld) -> Plan:
         fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
         device_supplies=tuple(s for s, _ in supplies), acceptances=acceptances(ld.sources),
         device_files=tuple(ld.device_files), supply=header.get("supply"), devices=tuple(placed.values()),
+        transformers=tuple(transformers),
     )
 
 

@@ -10,8 +10,8 @@ Names are resolved and checked afterwards on the whole plan, as always, so
 the plan and every error message are the same as a one-process load
 (``tests/test_bigfile.py`` compares them).
 
-Only flat files are split: a file with blocks, placements, includes, devices
-or library folders is read whole (those need the whole file's context).
+Only flat files are split: a file with blocks, placements, includes, devices,
+transformers or library folders is read whole (those need the whole file's context).
 """
 
 from __future__ import annotations
@@ -39,7 +39,7 @@ MIN_LINES = 30_000
 WORKER_SHARE = 0.38
 
 #: statements that need the whole file's context: a file holding any of them is read whole
-_STRUCTURE = re.compile(r"(?m)^[ \t]*(?:block|place|include|device|library)\b")
+_STRUCTURE = re.compile(r"(?m)^[ \t]*(?:block|place|include|device|library|transformer)\b")
 
 
 _RECORDS = {cls.__name__: cls for cls in (Conductor, Point, Metal, Rectifier, Current, Heater, Stage, FieldSource,

@@ -75,10 +75,15 @@ def _device_plan(dev: Device, ld, library_dirs: list[str]) -> Plan | None:
                                    "a device plan cannot place itself, directly or not"))
         return None
     try:
-        return ld.load_device(path)
+        loaded = ld.load_device(path)
     except PlanErrors as e:
         ld.errors.extend(e.errors)
         return None
+    if loaded.transformers:
+        ld.errors.append(PlanError(f"device {dev.name}'s plan has a transformer", dev.location,
+                                   "a transformer stands between the wall and devices: write it "
+                                   "in the installation, and plug the device into it"))
+    return loaded
 
 
 def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: dict, metals: dict,

@@ -12,7 +12,8 @@ import math
 from dataclasses import replace
 
 from ..core.errors import PlanError
-from ..model.installation import conductors_by_device, device_chassis, device_of, shield_ends
+from ..model.installation import (VOLTAGE_TOLERANCE, conductors_by_device, device_chassis,
+                                  device_of, shield_ends, supply_at)
 from ..model.kinds import LEAKAGE, joins_devices
 from ..model.records import PE_POINT, Conductor, Current, Device
 
@@ -27,15 +28,14 @@ __all__ = ["DEFAULT_Y_CAPACITANCE", "VOLTAGE_TOLERANCE", "check_supplies", "leak
 #: leaks tens of µA through its transformer's inter-winding capacitance).
 DEFAULT_Y_CAPACITANCE = {"I": 2.2e-9, "II": 1.0e-9}
 
-#: a device's own mains voltage may differ from the installation's stated supply by this fraction (IEC 60038's
-#: supply tolerance is ±10 %); more is a device for another supply
-VOLTAGE_TOLERANCE = 0.10
 
 
 def check_supplies(supplies: list, mains, supply, errors: list) -> None:
     """Devices of one installation share one supply.  50 and 60 Hz devices cannot be plugged into it together
     (a building has one mains frequency; a device for the other needs a frequency converter, which is then
-    the device's own supply), and a stated supply must suit every device's own mains statement."""
+    the device's own supply), and a stated supply's frequency must be every device's own.  A
+    device for another voltage is no error: it may be plugged in behind a transformer (a
+    mismatch where it is plugged is GC217)."""
     if mains is not None and supply is not None:
         errors.append(PlanError("a plan gives both 'mains' and 'supply'", supply.location,
                                 "'mains' describes one piece of equipment's supply, 'supply' an installation's: "
@@ -43,11 +43,13 @@ def check_supplies(supplies: list, mains, supply, errors: list) -> None:
         return
     if supply is not None:
         for (name, volts, hz), loc in supplies:
-            if abs(hz - supply.frequency) > 1e-9 or abs(volts - supply.voltage) > VOLTAGE_TOLERANCE * supply.voltage:
+            if abs(hz - supply.frequency) > 1e-9:
                 errors.append(PlanError(f"device {name} is for a {volts:g} V {hz:g} Hz supply, but the installation's "
                                         f"supply is {supply.voltage:g} V {supply.frequency:g} Hz", loc,
-                                        "a device for another supply needs a converter or transformer, which is then "
-                                        "its supply: describe it in the device's plan"))
+                                        "a transformer changes the voltage, not the frequency: a "
+                                        "device rated for both frequencies states the supply's in "
+                                        "its plan; one for the other only needs a frequency "
+                                        "converter, which is then its supply"))
         return
     freqs = {s[2] for s, _ in supplies} | ({mains.frequency} if mains is not None else set())
     if len(freqs) > 1:
@@ -60,14 +62,21 @@ def check_supplies(supplies: list, mains, supply, errors: list) -> None:
 
 
 def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict,
-                     landings: dict | None = None) -> list[Current]:
+                     landings: dict | None = None, feeds: dict | None = None) -> list[Current]:
     """The leakage current of every device, from its stated leakage, its stated Y capacitance or its class's
     default (simple devices), as a stated current from the device's chassis side to the main earthing terminal.
 
     ``supplies``: device name -> (V, Hz) of a device's own plan; ``supply``: the installation's.  A device whose
     supply voltage is unknown (no ``supply`` and no plan of its own) gets no default leakage.  A class II device
     leaks from its signal ground (a simple device's ``gnd``; for a device with a plan of its own, the first point
-    of it an interconnect lands on, from ``landings``)."""
+    of it an interconnect lands on, from ``landings``).
+
+    ``feeds``: plug point -> the transformer it is behind
+    (:func:`~groundcheck.model.installation.transformer_feeds`).  With a stated supply, each
+    device leaks at the voltage where it is plugged in (the wall's, or a transformer's
+    secondary), whatever its own plan is for; behind an isolating transformer, none of it
+    reaches the main earthing terminal (its floating secondary has no connection to earth: the
+    Y capacitors' current returns to the secondary winding, first principles)."""
     met = next((p.name for p in points.values() if p.kind == "earthing-terminal"), None)
     if met is None:
         return []
@@ -75,6 +84,11 @@ def leakage_currents(devices: list[Device], supplies: dict, supply, points: dict
     for dev in devices:
         own = supplies.get(dev.name)
         volts, hz = own if own else ((supply.voltage, supply.frequency) if supply else (None, None))
+        behind = (feeds or {}).get(dev.plugged)
+        if behind is not None and behind.isolating:
+            continue
+        if supply is not None:
+            volts, hz = supply_at(dev.plugged, feeds or {}, supply)
         if dev.leakage is not None:
             amps = dev.leakage
         elif volts is None:

@@ -271,6 +271,7 @@ RANGES = {
     "voltage": (1e-9, 1e6), "frequency": (1e-2, 1e6), "flux density": (1e-12, 10.0), "capacitance": (1e-15, 10.0),
     "inductance": (1e-12, 1e4), "level": (0.0, 300.0), "temperature": (0.0, 1000.0), "time": (1e-9, 1e6),
     "energy integral": (1e-9, 1e12), "resistance per length": (1e-9, 1e9),
+    "apparent power": (1e-3, 1e8),
     "number": (0.0, 1e9), "position": (0.0, 1e4),
 }
 #: the lowest temperature accepted, °C (copper's resistivity would vanish near −234.5 °C)
@@ -295,4 +296,5 @@ def _example_unit(kind: str) -> str:
     return {"length": "mm", "area": "mm2 or AWG", "resistance": "ohm or mohm", "current": "A or mA",
             "voltage": "V", "frequency": "Hz", "flux density": "uT", "capacitance": "uF",
             "level": "dB", "temperature": "C", "time": "s or ms", "energy integral": "A2s",
-            "inductance": "uH", "resistance per length": "mohm/m"}.get(kind, "a unit")
+            "inductance": "uH", "resistance per length": "mohm/m",
+            "apparent power": "VA or kVA"}.get(kind, "a unit")

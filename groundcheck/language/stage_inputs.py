@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from ..model.kinds import bonds_metal
+from ..model.kinds import bonds_metal, is_lift, joins_devices
 from ..model.records import Conductor, Point, Stage
 
 __all__ = ["stage_inputs", "SOCKET_KINDS"]
@@ -27,7 +27,7 @@ def _inferred(stages, points: dict[str, Point], conductors, taken: set[str]) -> 
     names; a socket two stages could claim, or a stage with two such sockets, gets none."""
     joined: dict[str, set[str]] = {}
     for c in conductors:
-        if bonds_metal(c) or c.kind in ("interconnect", "lift"):
+        if bonds_metal(c) or joins_devices(c) or is_lift(c):
             continue
         for x, y in ((c.a, c.b), (c.b, c.a)):
             px, py = points.get(x), points.get(y)

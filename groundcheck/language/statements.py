@@ -18,6 +18,7 @@ from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_en
                       no_label,
                       unknown)
 from .supply import current, heater, mains, rectifier, supply
+from .transformer import transformer
 
 __all__ = ["BUILDERS", "KEYWORDS", "build", "builder_of", "MAX_PART_SIDE"]
 
@@ -246,9 +247,11 @@ def device(stmt: Statement):
             kw["y_capacitance"] = r.quantity("capacitance", "line-to-chassis capacitance", allow_zero=True)
         elif word == "class":
             kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
+        elif word == "draws":
+            kw["draws"] = r.quantity("apparent power", "apparent power drawn")
         else:
             raise unknown(stmt, it, ("at", "mirror", "plugged", "cord", "signal-ground", "leakage", "y-capacitor",
-                                     "class"))
+                                     "class", "draws"))
         r.finish()
     if kw.get("equipment_class") == "II" and kw["source"] != "simple":
         raise PlanError("class II is an attribute of a simple device", stmt.loc,
@@ -271,7 +274,7 @@ BUILDERS = {
     "metal": metal, "point": point,
     **{k: conductor for k in CONDUCTOR_KINDS},
     "rectifier": rectifier, "current": current, "heater": heater, "stage": stage, "field": field_source,
-    "device": device, "library": library,
+    "device": device, "library": library, "transformer": transformer,
 }
 
 #: every keyword of the language, including those the loader handles itself

@@ -309,6 +309,7 @@ class Device:
     leakage: float | None = None         # stated protective-conductor (leakage) current at the mains frequency, A
     y_capacitance: float | None = None   # stated line-to-chassis capacitance of its mains filter, F
     equipment_class: str = "I"           # simple devices: I (earthed chassis) or II (no protective conductor)
+    draws: float | None = None           # stated apparent power it draws from its supply, VA
 
 
 @dataclass(frozen=True)
@@ -336,6 +337,7 @@ class Plan:
     device_files: tuple[str, ...] = ()   # the files of placed devices' own plans (and what they include)
     supply: Supply | None = None         # an installation's stated supply
     devices: tuple[Device, ...] = ()     # the devices an installation places
+    transformers: tuple = ()             # an installation's (model.installation.Transformer)
 
     @property
     def frequency(self) -> float:

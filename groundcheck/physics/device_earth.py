@@ -7,6 +7,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..model.installation import separated_devices
 from ..model.records import PE_POINT, Plan
 from ..network.earthing import ProtectiveRoute
 from .safety import protective_circuit
@@ -41,6 +42,7 @@ def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tup
         IEC 60364-5-54.
     """
     class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}     # no earth pin to check
+    class_ii |= separated_devices(plan)   # on a floating secondary: no earth path by design
     inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT
                     and p.name.split(".", 1)[0] not in class_ii)
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]

@@ -20,7 +20,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..model.kinds import carries_load, joins_devices
-from ..model.installation import device_of
+from ..model.installation import device_of, separated_devices
 from .coupling import plan_sources, source_injections
 from .ranking import largest
 
@@ -91,7 +91,8 @@ def _pair_volts(circuit, sources, pairs, freqs) -> tuple[dict, dict]:
 
 
 def outlet_pairs(plan) -> tuple[list, list]:
-    """The plug points of every interconnect's two devices, where they differ.
+    """The plug points of every interconnect's two devices, where they differ (a device on an
+    isolating transformer's floating secondary has no earth at its plug point: no pair).
 
     Parameters:
         plan: the plan (an installation).
@@ -101,11 +102,13 @@ def outlet_pairs(plan) -> tuple[list, list]:
         none (bookkeeping).
     """
     devices = {d.name: d for d in plan.devices}
+    floating = separated_devices(plan)
     pairs, names = [], []
     for c in plan.conductors:
         if not joins_devices(c):
             continue
-        ends = [devices[d].plugged if (d := device_of(x, devices)) else None for x in (c.a, c.b)]
+        ends = [devices[d].plugged if (d := device_of(x, devices)) and d not in floating else None
+                for x in (c.a, c.b)]
         if None in ends or ends[0] == ends[1]:
             continue
         pairs.append((ends[0], ends[1]))

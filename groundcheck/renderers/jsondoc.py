@@ -17,6 +17,11 @@ __all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]
 SCHEMA_VERSION = 2
 
 
+def _transformer(t) -> dict:
+    return {"name": t.name, "plugged": t.plugged, "primary_v": t.primary, "secondary_v": t.secondary,
+            "rating_va": t.rating, "isolating": t.isolating}
+
+
 def result_document(result: Result) -> dict:
     """The result as plain data (the JSON document before serialisation)."""
     plan = result.plan
@@ -29,6 +34,7 @@ def result_document(result: Result) -> dict:
                  "supply": None if plan.supply is None else {"voltage_v": plan.supply.voltage,
                                                              "frequency_hz": plan.supply.frequency,
                                                              "system": plan.supply.system},
+                 "transformers": [_transformer(t) for t in plan.transformers],
                  "ambient_c": plan.ambient, "points": len(plan.points), "metal_parts": len(plan.metals),
                  "conductors": len(plan.conductors), "stages": len(plan.stages), "channels": list(plan.channels)},
         "summary": {**result.counts(), "worst": result.worst(), "loops_total": result.loop_total,

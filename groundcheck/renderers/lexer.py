@@ -24,7 +24,8 @@ ATTRIBUTE_WORDS = ROLES + ("to", "at", "on", "via", "touchable",
                    "distance", "impedance", "output", "amp-gain", "wiring", "spacing", "twisted", "reference",
                    "floating", "ac", "dc", "plugged", "simple", "signal-ground", "mirror", "as", "lift", "open",
                    "closed", "contact", "resistance", "width", "thickness", "library", "cores", "shield-to", "chassis",
-                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round", "signal-only")
+                   "in", "y-capacitor", "earthing-terminal", "outlet", "L-N-PE", "L-PE-N", "round", "signal-only",
+                   "primary", "rating", "earthed", "isolating", "draws")
 
 
 class PlanLexer(RegexLexer):
@@ -45,7 +46,7 @@ class PlanLexer(RegexLexer):
              bygroups(Whitespace, Keyword.Declaration)),
             (r"([^\W\d][\w.\-]*)([ \t]*)(:)", bygroups(Name.Variable, Whitespace, Punctuation)),
             (r"[+-]?\d+(\.\d*)?([eE][+-]?\d+)?[ \t]*(mm2|mm|cm|m|in|AWG|mohm|kohm|ohm|mA|A|kV|mV|V|kHz|Hz|uT|mT|"
-             r"T|uF|nF|pF|F|mH|uH|H|dB|C|s|ms)?\b", Number),
+             r"T|uF|nF|pF|F|mH|uH|H|dB|C|s|ms|kVA|VA)?\b", Number),
             (r"\d+(\.\d*)?,\d+(\.\d*)?", Number),
             (words(ATTRIBUTE_WORDS, suffix=r"\b"), Name.Attribute),
             (r"[{}]", Punctuation),

@@ -161,6 +161,8 @@ def _lane(c, ends, style, label, lanes, pos, lines) -> None:
 def _nodes(plan, pos: dict, marks: dict, dev_marks: dict, lines: list) -> None:
     """Each device as a labelled box, each building point as a small symbol with its name and kind."""
     devices = {d.name: d for d in plan.devices}
+    kinds = {t.name: f"transformer {t.primary:g}/{t.secondary:g} V"
+             + (", isolating" if t.isolating else "") for t in plan.transformers}
     for name, (x, y) in pos.items():
         if name.startswith("device:"):
             d = devices[name[7:]]
@@ -178,7 +180,8 @@ def _nodes(plan, pos: dict, marks: dict, dev_marks: dict, lines: list) -> None:
         label = name + (f" [{', '.join(marks[name])}]" if name in marks else "")
         shape = {"earthing-terminal": "invtriangle", "outlet": "square"}.get(p.kind, "circle")
         lines.append(f"  {dot_quote(name)} [shape={shape}, width=0.16, height=0.16, fixedsize=true, style=filled, "
-                     f"fillcolor=\"#2f7d32\", label=\"\", xlabel={dot_quote(f'{label} ({p.kind})')}, "
+                     f"fillcolor=\"#2f7d32\", label=\"\", "
+                     f"xlabel={dot_quote(f'{label} ({kinds.get(name, p.kind)})')}, "
                      f"pos=\"{x:.1f},{y:.1f}!\", class={dot_quote(element_class(name))}];")
 
 

@@ -313,7 +313,8 @@ def text_report(result: Result, width: int | None = None, color: bool = False) -
 
 #: unit suffixes of figure keys and how they are shown
 _UNITS = (("_mohm", "mΩ"), ("_ohm", "Ω"), ("_mm2", "mm²"), ("_a2s", "A²s"), ("_dbv", "dBV"), ("_db", "dB"),
-          ("_pct", "%"), ("_hz", "Hz"), ("_mm", "mm"), ("_a", "A"), ("_v", "V"), ("_s", "s"), ("_t", "T"))
+          ("_pct", "%"), ("_hz", "Hz"), ("_mm", "mm"), ("_va", "VA"), ("_a", "A"), ("_v", "V"),
+          ("_s", "s"), ("_t", "T"))
 
 
 def figure_words(figures: dict) -> str:

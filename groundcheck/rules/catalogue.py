@@ -239,14 +239,17 @@ RULES: dict[str, Rule] = dict([
        "A fuse asked to break more than it is rated for may keep arcing or burst instead of clearing the fault.",
        "Use a high-breaking (sand-filled ceramic) fuse of the same rating and characteristic ('breaking high').",
        "IEC 60127-2 breaking-capacity categories (from memory)"),
-    _r("GC212", "class-ii-earthed", "fault",
-       "A class II plan (double or reinforced insulation, no protective earth) with a conductor on the inlet's earth "
-       "terminal.",
-       "Class II equipment has no earth terminal; a conductor there means the plan is class I, or that metal is joined "
-       "to an earth the supply cord does not provide.",
-       "Either make the equipment class I (a three-core cord and a protective earth to every touchable part) or remove "
-       "the connection and keep the double insulation.",
-       "IEC 61140 (protection classes), from memory"),
+    _r("GC212", "class-ii-earthed", "note",
+       "A class II plan (double or reinforced insulation, no protective earth) with a conductor "
+       "on the inlet's earth terminal: a functional earth.",
+       "Class II equipment may have a functional earth (for screening or a signal reference, not "
+       "for safety): its protection still rests on its insulation, so the earth conductor must "
+       "not be counted on as protective, nor may a touchable part rely on it.",
+       "Keep the functional earth separate from the protection: the double or reinforced "
+       "insulation must protect on its own. If the metal relies on the earth for safety, the "
+       "equipment is class I: give it a three-core cord and a protective earth to every "
+       "touchable part.",
+       "IEC 61140 (protection classes; functional earthing of class II equipment), from memory"),
     _r("GC213", "class-ii-insulation", "note",
        "A class II plan: its safety rests on double or reinforced insulation, which the plan does not describe.",
        "groundcheck can check a protective earth but not insulation; the protective-earth figures are skipped.",
@@ -280,6 +283,42 @@ RULES: dict[str, Rule] = dict([
        "IEC 60950-1:2005, 5.1.7 (equipment with a protective conductor current over 3.5 mA) and Table 5A (touch "
        "current of parts not connected to protective earth, 0.25 mA), as quoted in IECEE test-report forms; from "
        "memory for IEC 62368-1, which keeps both figures."),
+    _r("GC217", "supply-voltage", "danger",
+       "In an installation, each device whose own plan states its mains voltage against what the "
+       "point it is plugged into gives (the installation's supply, or a transformer's "
+       "secondary), and each transformer's primary against its outlet: more than 10 % apart is a "
+       "device for another supply.",
+       "A device fed twice its rated voltage overheats, arcs or bursts its capacitors; one fed "
+       "half of it may stall motors and overheat its supply. A transformer's primary on the "
+       "wrong voltage gives the wrong voltage to everything behind it.",
+       "Plug the device in where the supply suits it (the finding names such outlets), or behind "
+       "a transformer from the supply's voltage to the device's, and have it checked before it "
+       "is used again.",
+       "IEC 60038 (standard voltages; ±10 % supply tolerance), from memory"),
+    _r("GC218", "isolating-secondary", "danger",
+       "In an installation, the devices on an isolating transformer's floating secondary: one "
+       "device alone (a note), a device whose chassis reaches the main earthing terminal all the "
+       "same through its interconnects (a warning), two or more class I devices sharing the "
+       "secondary (a danger).",
+       "A floating secondary has no fault loop to earth: a single fault to a device's chassis "
+       "drives no current through a person touching it and earth (the danger electrical "
+       "separation removes), but nothing trips either. With two devices on one secondary a "
+       "second fault, on the other pole in the other device, puts the full secondary voltage "
+       "between their chassis, and nothing in the plan clears it; a chassis earthed through a "
+       "shield loses the separation.",
+       "Give each device its own isolating transformer and keep its chassis off every earth, or "
+       "plug the devices into earthed outlets. Never lift a protective earth.",
+       "IEC 60364-4-41 clause 413 (electrical separation: one item of equipment per source for "
+       "ordinary persons; more only under a skilled person's design, with an unearthed bond), "
+       "from memory"),
+    _r("GC219", "transformer-rating", "fault",
+       "In an installation, the apparent power the devices behind a transformer state they draw "
+       "('draws 60 VA'), added, against the transformer's rating.",
+       "A transformer loaded beyond its rating runs beyond its temperature rise: its insulation "
+       "ages fast, its thermal cut-out trips, or it burns.",
+       "Use a transformer rated for what the devices draw, or plug some of them in elsewhere at "
+       "their own voltage.",
+       "IEC 61558-1 (rated output of transformers), from memory"),
     _r("GC220", "tt-electrode-rcd", "danger",
        "In a TT supply protected by an RCD, whether the installation's earth electrode R_A times the RCD's rated "
        "residual current IΔn stays within 50 V.",

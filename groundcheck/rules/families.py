@@ -1,6 +1,6 @@
 """Imports every family of rules, so that each registers its functions (:mod:`groundcheck.rules.registry`)."""
 
-# imported for their registrations
-from . import earthing_system, electrical, installation, protective, signal, topology  # noqa: F401
+from . import (  # noqa: F401 - imported for their registrations
+    earthing_system, electrical, installation, protective, signal, topology, transformers)
 
 __all__: list[str] = []

@@ -153,7 +153,8 @@ def _pe_sections(ctx: AuditContext) -> list[Finding]:
 
 @rule("GC212", "GC213")
 def rule_class_ii(ctx: AuditContext) -> list[Finding]:
-    """GC212, GC213: a class II plan has no protective earth to check, and must not have an earth terminal in use.
+    """GC212, GC213: a class II plan has no protective earth to check; a conductor on its earth
+    terminal is a functional earth (a note).
 
     Parameters:
         ctx: the audit context.
@@ -171,11 +172,12 @@ def rule_class_ii(ctx: AuditContext) -> list[Finding]:
     if PE_POINT in ctx.G:
         for _, v, k in sorted(ctx.G.edges(PE_POINT, keys=True)):
             c = ctx.conductors[k]
-            out.append(Finding("GC212", "fault", f"{c.kind} {k} joins {v} to the earth terminal of class II equipment, "
-                                                 "which has none",
+            out.append(Finding("GC212", "note", f"{c.kind} {k} joins {v} to the earth terminal "
+                               "of class II equipment: a functional earth, not a protective one",
                                c.location, (k, v), {},
-                               "make the equipment class I (three-core cord, protective earth to every touchable "
-                               "part), or remove the connection"))
+                               "keep it functional: the double or reinforced insulation must "
+                               "protect on its own; if the metal relies on this earth for safety, "
+                               "the equipment is class I"))
     return out
 
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import networkx as nx
 
+from ..model.kinds import shield_like
 from .catalogue import Finding
 from .context import AuditContext, bfs
 from .electrical import Solved
@@ -58,6 +59,8 @@ def rule_return_through_metal(ctx: AuditContext) -> list[Finding]:
             continue
         fastenings = [next(iter(ctx.adj[u][v])) for u, v in zip(route, route[1:])
                       if u in ctx.metals or v in ctx.metals]
+        if not fastenings:
+            continue
         target = st.named or st.b
         metal = list(dict.fromkeys(n for n in route if n in ctx.metals))
         out.append(Finding(
@@ -76,7 +79,7 @@ def _return_wire(s: Solved, cur) -> tuple[str, str] | None:
     where it should go instead (the current's own second point, its star); None when there is no
     single such conductor."""
     wires = [c for c in s.plan.conductors if cur.a in (c.a, c.b) and c.connects
-             and c.kind not in ("interconnect", "shield") and c.name not in s.ctx.protective_path]
+             and not shield_like(c) and c.name not in s.ctx.protective_path]
     if len(wires) != 1:
         return None
     c = wires[0]

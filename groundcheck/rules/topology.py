@@ -373,6 +373,7 @@ def rule_unconnected(ctx: AuditContext) -> list[Finding]:
         members.setdefault(label, set()).add(name)
     # a class II device's inlet has no protective conductor in its cord: left on its own, it is as it should be
     idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"}
+    idle |= {t.name for t in ctx.plan.transformers if t.isolating}   # floating secondaries
     outlets = {p.name for p in ctx.plan.points if p.kind == "outlet"}
     for comp in members.values():
         if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points or comp <= idle:
