@@ -269,6 +269,19 @@ RULES: dict[str, Rule] = dict([
        "IEC 60950-1:2005, 5.1.7 (equipment with a protective conductor current over 3.5 mA) and Table 5A (touch "
        "current of parts not connected to protective earth, 0.25 mA), as quoted in IECEE test-report forms; from "
        "memory for IEC 62368-1, which keeps both figures."),
+    _r("GC217", "pe-bonding-test", "danger",
+       "Whether every conductor of the protective path carries the product standard's "
+       "bonding-test current without passing its insulation's short-time temperature limit: "
+       "25 A for 60 s (or 1.5 × the fuse rating when more), and 200 % of the fuse's rating for "
+       "120 s. The temperature is bounded by the smaller of the adiabatic rise and the steady "
+       "state in still air.",
+       "A protective conductor that overheats in the bonding test can damage its insulation or "
+       "open, and would do the same carrying a real fault current until the fuse opens.",
+       "Use a thicker protective conductor (the finding names the smallest nominal size that "
+       "passes).",
+       "IEC 60065 15.2 and IEC 61010-1 6.5.2.4 (25 A, 1 min); IEC 60950-1:2005 2.6.3.4 (200 %, "
+       "2 min); IEC 60335-1 27.5 and IEC 62368-1 5.6.6.2 (from memory); IEC 60949 (adiabatic "
+       "temperature); IEC 60364-5-54 Annex A (final temperatures)"),
     _r("GC301", "hum-contributor", "warning",
        "A conductor whose shared impedance puts hum or buzz above the set level at a channel's output.",
        "Common-impedance coupling: a supply current's drop appears across a sensitive pair.",

@@ -14,6 +14,7 @@ from ..physics.protection import STANDARD_PE_LIMIT
 from .catalogue import Finding, severity_rank
 
 if TYPE_CHECKING:  # annotations only
+    from ..physics.bonding_test import BondingResult
     from ..physics.circuit import Circuit
     from ..physics.coupling import SharedReturn
     from ..physics.hum import HumResult
@@ -57,6 +58,7 @@ class Result:
     protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
     rectifiers: list = field(default_factory=list)         # each rectifier's steady state, with or without stages
     outlets: OutletVoltages | None = None                  # an installation's outlet-pair voltages
+    bonding: BondingResult | None = None                   # the product bonding test's figures
 
     def open_findings(self) -> list[Finding]:
         """The findings not accepted in the plan."""

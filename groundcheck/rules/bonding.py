@@ -1,0 +1,49 @@
+"""The product bonding test's verdict (GC217): a conductor of the protective path that would pass
+its insulation's short-time temperature limit carrying the test current (figures from
+:mod:`groundcheck.physics.bonding_test`)."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from .catalogue import Finding
+from .registry import rule
+
+if TYPE_CHECKING:
+    from .electrical import Solved
+
+__all__ = ["rule_bonding_test"]
+
+
+@rule("GC217", needs="solve")
+def rule_bonding_test(s: Solved) -> list[Finding]:
+    """GC217: a protective conductor that overheats in a product bonding test.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC217 findings, one per conductor and test.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.bonding is None:
+        return []
+    tests = {t.name: t for t in s.bonding.tests}
+    where = {c.name: c.location for c in s.plan.conductors}
+    out = []
+    for row in s.bonding.failures():
+        t = tests[row.test]
+        reached = ("would melt" if row.reached == float("inf")
+                   else f"would reach {row.reached:.0f} °C")
+        size = (f"use at least {row.thicker * 1e6:g} mm²" if row.thicker is not None
+                else "use a thicker protective conductor, or several in parallel")
+        out.append(Finding(
+            "GC217", "danger",
+            f"{row.conductor} ({row.area * 1e6:.3g} mm²) {reached} in the {t.name} bonding test "
+            f"({row.current:.3g} A for {t.duration:g} s), over the {row.limit:g} °C short-time "
+            f"limit of its {row.insulation} insulation",
+            where.get(row.conductor, s.plan.mains.location), (row.conductor,),
+            {k: v for k, v in row.as_dict().items() if v is not None and k != "conductor"},
+            f"{size} for {row.conductor}, so that it carries the test current "
+            f"({t.basis}) within its limit"))
+    return out
