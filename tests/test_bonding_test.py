@@ -219,3 +219,23 @@ def test_figures_reach_json_and_text():
     assert [t["current_a"] for t in doc["tests"]] == [25.0, 4.0]
     text = text_report(r)
     assert "Bonding test" in text and "OVER" in text
+
+
+def test_path_voltage_limit_above_16_a():
+    # IEC 60950-1:2005 2.6.3.4: with a protective device above 16 A, at most 2.5 V at 200 % of its
+    # rating.  20 A fuse: 40 A; pe_lead 2.5 mm², 50 mm: 1.7241e-8 × 0.05 / 2.5e-6 = 0.34482 mΩ
+    hdr = 'plan "t"\nmains 230 V 50 Hz, fuse {} A slow, breaking high, line-conductor 2.5 mm2\n'
+    box = BOX.format(area="2.5 mm2").replace("contact 2 mohm", "contact {}")
+    over = analyze(plan(hdr.format(20) + box.format("70 mohm"), header=False))
+    found = [f for f in over.findings if f.code == "GC217"]
+    # 40 A × (0.34482 + 70) mΩ = 2.81379 V > 2.5 V, although the path is under 0.1 Ω (no GC206)
+    assert len(found) == 1 and found[0].elements == ("box",)
+    assert found[0].figures["path_voltage_v"] == pytest.approx(2.8138, abs=1e-4)
+    assert not [f for f in over.findings if f.code == "GC206"]
+    # 40 A × 50.34482 mΩ = 2.01379 V: within the limit
+    near = analyze(plan(hdr.format(20) + box.format("50 mohm"), header=False))
+    assert not [f for f in near.findings if f.code == "GC217"]
+    # a 16 A device is not above 16 A: the 0.1 Ω limit alone applies (32 A × 70.34 mΩ = 2.25 V)
+    at16 = analyze(plan(hdr.format(16) + box.format("70 mohm"), header=False))
+    assert not [f for f in at16.findings if f.code == "GC217"]
+    assert all(p.limit is None for p in at16.bonding.parts)

@@ -29,9 +29,11 @@ it, not judged.
 
 Fastenings (bolts, screws) have no cross-section: the power their contact dissipates and the
 voltage across it are reported without a temperature verdict (there is no model of a joint's heat
-path). The voltage across each part's path at the test current is reported too; IEC 60065 and IEC
-60335-1 limit the test source's open-circuit voltage to 12 V (from memory), a limit on the test set
-rather than on the equipment, which is not checked (the path's resistance is GC206's)."""
+path). The voltage across each part's path at the test current is reported too, and for a
+protective device above 16 A held to 2.5 V at the long test's current (IEC 60950-1:2005 2.6.3.4,
+which sets that limit instead of 0.1 Ω there). IEC 60065 and IEC 60335-1 limit the test source's
+open-circuit voltage to 12 V (from memory), a limit on the test set rather than on the equipment,
+which is not checked (the path's resistance is GC206's)."""
 
 from __future__ import annotations
 
@@ -49,7 +51,7 @@ from .safety import protective_circuit
 
 __all__ = ["BondTest", "ConductorHeat", "PartDrop", "BondingResult", "bonding_tests",
            "bonding_figures", "conductor_heat", "SHORT_TEST", "LONG_TEST", "SHORT_LIMIT",
-           "CONTINUOUS_LIMIT", "SECTIONS"]
+           "CONTINUOUS_LIMIT", "SECTIONS", "DROP_LIMIT"]
 
 #: the short test: current (A), duration (s), and the rated-current factor of IEC 60335-1 27.5
 #: (IEC 60065 15.2 and IEC 61010-1 6.5.2.4 for 25 A, 1 min; the factor from memory)
@@ -57,6 +59,10 @@ SHORT_TEST = (25.0, 60.0, 1.5)
 #: the long test: multiple of the protective device's rating and duration, s (IEC 60950-1:2005
 #: 2.6.3.4; IEC 62368-1 5.6.6.2 from memory)
 LONG_TEST = (2.0, 120.0)
+
+#: above this protective-device rating (A), IEC 60950-1:2005 2.6.3.4 limits the path's voltage
+#: (V) at the long test's current instead of its resistance
+DROP_LIMIT = (16.0, 2.5)
 
 #: short-time temperature limit θf, °C, by insulation: IEC 60364-5-54 Tables A.54.2–A.54.5 (bare:
 #: 200 °C, the "normal conditions" column, from memory, as physics.safety's k of 159)
@@ -132,14 +138,17 @@ class ConductorHeat:
 
 @dataclass(frozen=True)
 class PartDrop:
-    """The voltage across a touchable part's protective path (its worst spot) in a test."""
+    """The voltage across a touchable part's protective path (its worst spot) in a test, with the
+    limit IEC 60950-1 sets on it for a protective device above 16 A (None otherwise)."""
 
     part: str
     test: str
     voltage: float
+    limit: float | None = None
 
     def as_dict(self) -> dict:
-        return {"part": self.part, "test": self.test, "path_voltage_v": round(self.voltage, 5)}
+        return {"part": self.part, "test": self.test, "path_voltage_v": round(self.voltage, 5),
+                "limit_v": self.limit}
 
 
 @dataclass(frozen=True)
@@ -153,6 +162,9 @@ class BondingResult:
 
     def failures(self) -> list[ConductorHeat]:
         return [c for c in self.conductors if c.passes is False]
+
+    def drops_over(self) -> list[PartDrop]:
+        return [p for p in self.parts if p.limit is not None and p.voltage > p.limit]
 
     def as_dict(self) -> dict:
         return {"ambient_c": self.ambient, "tests": [t.as_dict() for t in self.tests],
@@ -300,6 +312,8 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
                 r = conductor_resistance(c, plan.ambient)[0]
                 rows.append(ConductorHeat(name, test.name, amps, None, None, None, None, None,
                                           None, None, power=amps * amps * r, drop=amps * r))
-    parts = tuple(PartDrop(p, t.name, t.current * r)
+    rating, volts = DROP_LIMIT
+    big = plan.mains.fuse is not None and plan.mains.fuse > rating
+    parts = tuple(PartDrop(p, t.name, t.current * r, volts if big and t.name == "long" else None)
                   for t in tests for p, r in sorted(rpart.items()))
     return BondingResult(tests, tuple(rows), parts, plan.ambient)

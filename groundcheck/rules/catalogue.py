@@ -274,11 +274,12 @@ RULES: dict[str, Rule] = dict([
        "bonding-test current without passing its insulation's short-time temperature limit: "
        "25 A for 60 s (or 1.5 × the fuse rating when more), and 200 % of the fuse's rating for "
        "120 s. The temperature is bounded by the smaller of the adiabatic rise and the steady "
-       "state in still air.",
+       "state in still air. With a protective device above 16 A, the path's voltage at the "
+       "long test's current is held to 2.5 V.",
        "A protective conductor that overheats in the bonding test can damage its insulation or "
        "open, and would do the same carrying a real fault current until the fuse opens.",
        "Use a thicker protective conductor (the finding names the smallest nominal size that "
-       "passes).",
+       "passes); for a path over 2.5 V, lower its resistance.",
        "IEC 60065 15.2 and IEC 61010-1 6.5.2.4 (25 A, 1 min); IEC 60950-1:2005 2.6.3.4 (200 %, "
        "2 min); IEC 60335-1 27.5 and IEC 62368-1 5.6.6.2 (from memory); IEC 60949 (adiabatic "
        "temperature); IEC 60364-5-54 Annex A (final temperatures)"),
