@@ -12,6 +12,7 @@ the test currents of IEC 60065 15.2 and IEC 61010-1 6.5.2.4 (25 A, 1 min), IEC 6
 import math
 
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from groundcheck.analysis import analyze
 from groundcheck.physics.heat import adiabatic_temperature, steady_temperature
@@ -239,3 +240,23 @@ def test_path_voltage_limit_above_16_a():
     at16 = analyze(plan(hdr.format(16) + box.format("70 mohm"), header=False))
     assert not [f for f in at16.findings if f.code == "GC217"]
     assert all(p.limit is None for p in at16.bonding.parts)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.floats(0.05, 10.0), st.floats(0.1, 60.0), st.floats(-20.0, 60.0),
+       st.sampled_from(["pvc", "xlpe", "bare"]))
+def test_a_thicker_wire_never_runs_hotter(s_mm2, amps, ambient, ins):
+    # invariants of the heat balance: more copper at the same current makes less heat per metre and
+    # has more surface, so neither figure rises; a larger current never cools; none falls below
+    # the ambient
+    def temps(s, i):
+        d = math.sqrt(4 * s * 1e-6 / math.pi)
+        wall = 0.0 if ins == "bare" else 0.6e-3
+        return (adiabatic_temperature("copper", i, 60.0, s * 1e-6, ambient),
+                steady_temperature(i, s * 1e-6, d, wall, ins, RHO20, ALPHA20, ambient))
+    ad, ss = temps(s_mm2, amps)
+    ad2, ss2 = temps(s_mm2 * 1.5, amps)
+    ad3, ss3 = temps(s_mm2, amps * 1.5)
+    assert ad2 <= ad and ss2 <= ss + 1e-6
+    assert ad3 >= ad and ss3 >= ss - 1e-6
+    assert min(ad, ss) >= ambient - 1e-6
