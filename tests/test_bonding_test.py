@@ -19,7 +19,8 @@ from groundcheck.physics.heat import adiabatic_temperature, steady_temperature
 from groundcheck.renderers.jsondoc import result_document
 from groundcheck.renderers.text import text_report
 
-from helpers import plan
+from groundcheck import load
+from helpers import EXAMPLES, ROOT, plan
 
 RHO20, ALPHA20 = 1.7241e-8, 0.00393          # IEC 60028 annealed copper
 
@@ -260,3 +261,15 @@ def test_a_thicker_wire_never_runs_hotter(s_mm2, amps, ambient, ins):
     assert ad2 <= ad and ss2 <= ss + 1e-6
     assert ad3 >= ad and ss3 >= ss - 1e-6
     assert min(ad, ss) >= ambient - 1e-6
+
+
+DEVICE_PLANS = sorted((ROOT / "examples" / "studio" / "devices").glob("*.gplan"))
+
+
+@pytest.mark.parametrize("path", [*EXAMPLES, *DEVICE_PLANS], ids=lambda p: p.name)
+def test_bundled_examples_pass_the_bonding_test(path):
+    # their protective leads are 0.75–1 mm² PVC: about 104–140 °C in the 25 A test, under 160 °C
+    r = analyze(load(path))
+    assert r.bonding is not None
+    assert not [f for f in r.findings if f.code == "GC217"]
+    assert all(c.passes is not False for c in r.bonding.conductors)
