@@ -12,6 +12,7 @@ from functools import partial
 
 from .core.runtime import no_gc
 from .model.records import Plan
+from .physics.bonding_test import bonding_figures
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
 from .physics.hum import HumBudget, HumOptions
@@ -61,10 +62,12 @@ def _analyze(plan: Plan, options: Options) -> Result:
     result.circuit = circuit
     result.safety = protective_figures(plan, ctx.route, options.pe_limit, circuit)
     result.device_earths = installation_earths(plan, ctx.route, circuit)
+    result.bonding = bonding_figures(plan, ctx.route, circuit)
     rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers} if options.hum else {}
     result.rectifiers = list(rr.values())
     _solve(plan, ctx, circuit, rr, options, result)
-    solved = Solved(plan, ctx, circuit, result.coupling, result.safety, result.device_earths, result.hum, options)
+    solved = Solved(plan, ctx, circuit, result.coupling, result.safety, result.device_earths,
+                    result.hum, options, result.bonding)
     for r in functions("solve"):
         findings.extend(r.func(solved))
     return _finish(result)

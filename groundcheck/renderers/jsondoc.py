@@ -46,6 +46,7 @@ def result_document(result: Result) -> dict:
         "hum": None if result.hum is None else result.hum.as_dict(),
         "rectifiers": [r.as_dict() for r in result.rectifiers],
         "coupling": [row.as_dict() for row in result.coupling],
+        "bonding_test": None if result.bonding is None else result.bonding.as_dict(),
         "device_earths": None if result.device_earths is None else [d.as_dict() for d in result.device_earths],
         "outlets": None if result.outlets is None else _outlets(result.outlets),
         "network": None,

@@ -55,6 +55,7 @@ def print_report(result: Result, console: Console, *, caution: bool = True) -> N
         _hum_tables(result, console)
     _rectifier_table(result, console)
     _protective_tables(result, console)
+    _bonding_table(result, console)
     _outlet_table(result, console)
     if result.loops:
         _loop_table(result, console)
@@ -233,6 +234,41 @@ def _protective_tables(result: Result, console: Console) -> None:
         console.print()
     if result.device_earths:
         _device_earth_table(result.device_earths, console)
+
+
+#: conductors listed in the bonding-test table (the closest to their limit first; all in the JSON)
+TABLE_BONDING = 8
+
+
+def _bonding_table(result: Result, console: Console) -> None:
+    """The product bonding test: the conductors closest to their temperature limit, per test."""
+    b = result.bonding
+    rows = [] if b is None else [c for c in b.conductors if c.passes is not None]
+    if not rows:
+        return
+    tests = {t.name: t for t in b.tests}
+    said = "; ".join(f"{t.name} {t.current:.3g} A for {t.duration:g} s" for t in b.tests)
+    title = f"Bonding test ({said}; from {b.ambient:g} °C)"
+    rows.sort(key=lambda c: -c.reached / c.limit)
+    t = Table(title=title, title_justify="left")
+    for col in ("conductor", "test", "A", "mm²", "adiabatic °C", "steady °C", "at most °C",
+                "limit °C"):
+        t.add_column(col, justify="left" if col in ("conductor", "test") else "right")
+    for c in rows[:TABLE_BONDING]:
+        at_most = "melts" if math.isinf(c.reached) else f"{c.reached:.0f}"
+        over = " OVER" if not c.passes else ""
+        t.add_row(escape(c.conductor), tests[c.test].name, _fmt(c.current, "", 3),
+                  f"{c.area * 1e6:.3g}", _deg(c.adiabatic), _deg(c.steady), at_most + over,
+                  f"{c.limit:g}")
+    console.print(t)
+    if len(rows) > TABLE_BONDING:
+        console.print(f"  {len(rows) - TABLE_BONDING} more rows not listed here "
+                      "(all are in --format json)")
+    console.print()
+
+
+def _deg(x) -> str:
+    return "–" if x is None else ("melts" if math.isinf(x) else f"{x:.0f}")
 
 
 def _device_earth_table(earths, console: Console) -> None:

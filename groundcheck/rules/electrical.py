@@ -15,6 +15,7 @@ from .results import Options
 
 if TYPE_CHECKING:
     from ..model.records import Plan
+    from ..physics.bonding_test import BondingResult
     from ..physics.circuit import Circuit
     from ..physics.coupling import SharedReturn
     from ..physics.hum import HumResult
@@ -36,6 +37,7 @@ class Solved:
     device_earths: tuple[DeviceEarth, ...] | None
     hum: HumResult | None
     options: Options
+    bonding: BondingResult | None = None       # the product bonding test (physics.bonding_test)
 
 
 @rule("GC102", needs="solve")

@@ -15,6 +15,7 @@ from .catalogue import Finding, severity_rank
 from .selection import NotChecked, codes_of
 
 if TYPE_CHECKING:  # annotations only
+    from ..physics.bonding_test import BondingResult
     from ..physics.circuit import Circuit
     from ..physics.coupling import SharedReturn
     from ..physics.hum import HumResult
@@ -72,6 +73,7 @@ class Result:
     rectifiers: list = field(default_factory=list)         # each rectifier's steady state, with or without stages
     outlets: OutletVoltages | None = None                  # an installation's outlet-pair voltages
     not_checked: list[NotChecked] = field(default_factory=list)  # left out, accepted: said always
+    bonding: BondingResult | None = None                   # the product bonding test's figures
 
     def open_findings(self) -> list[Finding]:
         """The findings not accepted in the plan."""

@@ -1,0 +1,75 @@
+"""The product bonding test's verdict (GC223): a conductor of the protective path that would pass
+its insulation's short-time temperature limit carrying the test current, and a path whose voltage
+at the long test's current is over IEC 60950-1's limit for a protective device above 16 A (figures
+from :mod:`groundcheck.physics.bonding_test`)."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from .catalogue import Finding
+from .registry import rule
+
+if TYPE_CHECKING:
+    from .electrical import Solved
+
+__all__ = ["rule_bonding_test"]
+
+INSULATION_WORDS = {"pvc": "of its PVC insulation", "xlpe": "of its XLPE insulation",
+                    "bare": "for bare copper"}
+
+
+@rule("GC223", needs="solve")
+def rule_bonding_test(s: Solved) -> list[Finding]:
+    """GC223: a protective conductor that overheats in a product bonding test, or a path whose
+    voltage is over its limit.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC223 findings, one per conductor and test.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.bonding is None:
+        return []
+    tests = {t.name: t for t in s.bonding.tests}
+    where = {c.name: c.location for c in s.plan.conductors}
+    out = []
+    for row in s.bonding.failures():
+        t = tests[row.test]
+        reached = ("would melt" if row.reached == float("inf")
+                   else f"would reach {row.reached:.0f} °C")
+        size = (f"use at least {row.thicker * 1e6:g} mm²" if row.thicker is not None
+                else "use a thicker protective conductor, or several in parallel")
+        out.append(Finding(
+            "GC223", "danger",
+            f"{row.conductor} ({row.area * 1e6:.3g} mm²) {reached} in the {t.name} bonding test "
+            f"({row.current:.3g} A for {t.duration:g} s), over the {row.limit:g} °C short-time "
+            f"limit {INSULATION_WORDS.get(row.insulation, row.insulation)}",
+            where.get(row.conductor, s.plan.mains.location), (row.conductor,),
+            {k: v for k, v in row.as_dict().items() if v is not None and k != "conductor"},
+            f"{size} for {row.conductor}, so that it carries the test current "
+            f"({t.basis}) within its limit"))
+    out.extend(_drops(s))
+    return out
+
+
+def _drops(s: Solved) -> list[Finding]:
+    """A part whose path drops more than IEC 60950-1's 2.5 V at the long test's current."""
+    tests = {t.name: t for t in s.bonding.tests}
+    metals = {m.name: m.location for m in s.plan.metals}
+    out = []
+    for p in s.bonding.drops_over():
+        t = tests[p.test]
+        out.append(Finding(
+            "GC223", "danger",
+            f"the protective path to {p.part} drops {p.voltage:.3g} V at the {t.name} bonding "
+            f"test's {t.current:.3g} A, over the {p.limit:g} V IEC 60950-1 allows for a "
+            f"protective device above 16 A",
+            metals.get(p.part, s.plan.mains.location), (p.part,),
+            {"test": p.test, "current_a": round(t.current, 4),
+             "path_voltage_v": round(p.voltage, 4), "limit_v": p.limit},
+            f"lower the path's resistance to {p.limit / t.current * 1e3:.3g} mΩ or less: shorten "
+            "or thicken the protective conductor, clean and tighten the fastenings on its path"))
+    return out
