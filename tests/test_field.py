@@ -1,0 +1,236 @@
+"""The field corpus: plans written by builders who are not groundcheck's authors (tests/field/, copied unchanged
+from the shared corpus, and three of our own), each with a ``verdict.md`` by an experienced builder and safety
+reviewer.  Each verdict becomes assertions here: the findings it must find (codes and elements), the first fix
+the builder makes (the first suggestion's action and element), and the fixes that must never be offered (in
+the suggestions, the combined set or a ``fix:`` line of ``check``).  The plans are never edited to pass.
+"""
+
+from __future__ import annotations
+
+import functools
+import re
+from pathlib import Path
+
+import pytest
+
+from groundcheck import load
+from groundcheck.analysis import Options
+from groundcheck.advice.fixes import advised_fixes
+from groundcheck.advice.repair import HUM_FLOOR_DBV, greedy, suggest
+from groundcheck.rules.catalogue import severity_rank
+
+FIELD = Path(__file__).resolve().parent / "field"
+
+
+@functools.lru_cache(maxsize=None)
+def _advised(rel: str):
+    """(plan, findings before, evaluations best first, combined set, result after it, fix lines) of a field plan."""
+    path = FIELD / rel
+    plan, text = load(path), path.read_text(encoding="utf-8")
+    root, resolved = path.resolve().parent, path.resolve()
+    before, evs = suggest(plan, text, Options(), root, resolved)
+    chosen, final, _ = greedy(plan, text, Options(), root, resolved, evs=evs, before=before)
+    return plan, before, evs, chosen, final, advised_fixes(before, evs)
+
+
+def _local(name: str | None) -> str:
+    return (name or "").rsplit(".", 1)[-1]
+
+
+def _useful(evs):
+    return [e for e in evs if not e.rejected]
+
+
+def _offered(rel: str):
+    """Every change the advisor offers: its suggestions and the combined set."""
+    _, _, evs, chosen, _, _ = _advised(rel)
+    return _useful(evs) + list(chosen)
+
+
+def _touches(plan, ev, names: set[str]) -> bool:
+    """Whether a change edits the statement of a conductor whose local name is in ``names``."""
+    where = {(c.location.file, c.location.line) for c in plan.conductors if _local(c.name) in names}
+    for e in ev.candidate.edits:
+        file = e.file or plan.file
+        if any((file, n) in where for n in range(e.line, (e.last or e.line) + 1)):
+            return True
+    return False
+
+
+def _finds(rel: str, code: str, *elements: str, worst: str = "note") -> bool:
+    _, before, *_ = _advised(rel)
+    return any(f.code == code and set(elements) <= set(f.elements) and severity_rank(f.severity) <= severity_rank(worst)
+               for f in before.findings)
+
+
+def _never(rel: str, action: str, element: str) -> None:
+    bad = [e.candidate.title for e in _offered(rel) if e.candidate.action == action
+           and _local(e.candidate.element) == element]
+    assert bad == [], bad
+
+
+def _no_load_errors(rel: str) -> None:
+    _, _, evs, *_ = _advised(rel)
+    assert not [e.candidate.title for e in evs if "does not load" in e.rejected]
+
+
+def _fix_lines_avoid(rel: str, *patterns: str) -> None:
+    _, before, _, _, _, fixes = _advised(rel)
+    for f, fix in zip(before.findings, fixes):
+        for p in patterns:
+            assert not re.search(p, fix), (f.code, fix)
+
+
+def _never_louder(rel: str) -> None:
+    for e in _offered(rel):
+        louder = {ch: d for ch, d in e.hum_change_db.items() if d > 0.05}
+        assert not louder, (e.candidate.title, louder)
+
+
+# ---- headphone-se-valve-rectifier -------------------------------------------------------------------------------
+
+HP = "headphone-se-valve-rectifier/plan.gplan"
+HP_PE = {"pe_lead", "pe_nut", "bottom_screws"}
+
+
+def test_headphone_finds_each_channels_socket_bolted_to_the_chassis():
+    # verdict, must find: a loop per channel closed by a second chassis bond (in_nut)
+    assert _finds(HP, "GC101", "left.in_nut", worst="warning")
+    assert _finds(HP, "GC101", "right.in_nut", worst="warning")
+
+
+def test_headphone_finds_the_charging_current_through_the_star():
+    # verdict, must find: ct and the reservoir negative meet only at the star (an expected warning)
+    _, before, *_ = _advised(HP)
+    assert any(f.code in ("GC102", "GC103") and {"ct_lead", "sup_gnd"} & set(f.elements)
+               and severity_rank(f.severity) <= severity_rank("warning") for f in before.findings)
+
+
+def test_headphone_first_fix_insulates_the_input_socket_in_the_block():
+    _, _, evs, *_ = _advised(HP)
+    first = _useful(evs)[0].candidate
+    assert (first.action, _local(first.element)) == ("insulate", "in_nut"), first.title
+    assert "every placement" in first.title
+
+
+def test_headphone_never_unwires_the_input_nor_lifts_its_return():
+    _never(HP, "remove", "in_gnd")
+    for name in ("in_gnd", "pot_ret"):
+        _never(HP, "lift-network", name)
+    plan, *_ = _advised(HP)
+    assert not [e.candidate.title for e in _offered(HP) if _touches(plan, e, HP_PE)]
+    _fix_lines_avoid(HP, r"remove (left|right)\.in_gnd", r"open the loop at (left|right)\.in_gnd",
+                     r"lift network")
+
+
+# ---- phono-two-box ----------------------------------------------------------------------------------------------
+
+PH = "phono-two-box/hifi-bad.gplan"
+PH_GOOD = "phono-two-box/hifi.gplan"
+PH_PE = {"pe_lead", "pe_nut", "run", "cord", "pe_bond"}
+
+
+def test_phono_finds_the_loop_through_the_supply_boxs_bond_and_two_cords():
+    assert _finds(PH, "GC101", "psu.gnd_nut", "umbilical", "phono_out", "psu.cord", "amp.cord", worst="warning")
+    # the supply's ripple return shares the umbilical with that loop
+    assert _finds(PH, "GC102", "umbilical", worst="warning") or _finds(PH, "GC301", "umbilical", worst="warning")
+
+
+def test_phono_first_fix_removes_the_supply_boxs_own_bond_in_its_own_plan():
+    _, _, evs, *_ = _advised(PH)
+    first = _useful(evs)[0]
+    assert (first.candidate.action, first.candidate.element) == ("remove", "psu.gnd_nut"), first.candidate.title
+    assert [e.file for e in first.candidate.edits] == [str((FIELD / "phono-two-box/lib/psu-box-bad.gplan")
+                                                           .resolve())] or \
+        all(e.file and e.file.endswith("psu-box-bad.gplan") for e in first.candidate.edits)
+    # the verdict's compare: the hum goes from -63.9 dBV to none, nothing introduced (figures by the tool's own
+    # compare, as the reviewer ran it)
+    assert round(first.hum_before_dbv["amp"], 1) == -63.9
+    assert first.hum_after_dbv["amp"] <= HUM_FLOOR_DBV and first.introduced == []
+
+
+def test_phono_never_touches_the_bought_amplifier_its_sockets_or_the_protective_earth():
+    plan, _, evs, *_ = _advised(PH)
+    offered = _offered(PH)
+    assert not [e.candidate.title for e in offered if e.candidate.action in ("device-lift", "balance")]
+    assert not [e.candidate.title for e in offered if e.candidate.action == "shield-to-chassis"]
+    assert not [e.candidate.title for e in offered if _touches(plan, e, PH_PE)]
+    _never_louder(PH)
+    _no_load_errors(PH)
+    _fix_lines_avoid(PH, r"balanced", r"lift network", r"on the chassis")
+
+
+def test_phono_corrected_build_has_nothing_above_a_note_and_no_advice_that_hurts():
+    _, before, *_ = _advised(PH_GOOD)
+    assert [f.code for f in before.findings if severity_rank(f.severity) < severity_rank("note")] == []
+    assert not [e.candidate.title for e in _offered(PH_GOOD) if e.candidate.action == "shield-to-chassis"]
+    _never_louder(PH_GOOD)
+    _no_load_errors(PH_GOOD)
+
+
+# ---- se-power-triode --------------------------------------------------------------------------------------------
+
+SE = "se-power-triode/plan.gplan"
+
+
+def test_se_triode_finds_the_output_stages_return_to_the_filter():
+    assert _finds(SE, "GC102", "left.out_dc") and _finds(SE, "GC102", "right.out_dc")
+
+
+def test_se_triode_screened_lead_that_is_its_own_return_is_never_opened():
+    _never(SE, "terminate-at", "in_scr")
+    _fix_lines_avoid(SE, r"terminate (left|right)\.in_scr at", r"leave the end at .* unconnected")
+
+
+def test_se_triode_filter_return_is_never_run_to_the_star_by_itself():
+    # the ripple current of the choke-input filter must stay off the star: snub_neg (or ct) never goes to psu_star
+    bad = [e.candidate.title for e in _offered(SE) if e.candidate.action == "move"
+           and _local(e.candidate.element) in ("snub_lead", "ct_lead") and "psu_star" in e.candidate.title]
+    assert bad == []
+    _fix_lines_avoid(SE, r"run (snub_neg|ct) to psu_star")
+    plan, *_ = _advised(SE)
+    assert not [e.candidate.title for e in _offered(SE) if _touches(plan, e, {"pe_lead", "pe_nut", "bottom_screws"})]
+
+
+# ---- dual-mono-class-ab -----------------------------------------------------------------------------------------
+
+DM = "dual-mono-class-ab/plan.gplan"
+DM_PE = {"pe_lead", "pe_nut", "rear_screws", "cover_screws", "sink_l_bolts", "sink_r_bolts"}
+
+
+def test_dual_mono_finds_both_sockets_bolted_to_the_rear_panel():
+    assert _finds(DM, "GC101", "left_sock_nut", worst="warning")
+    assert _finds(DM, "GC101", "right_sock_nut", worst="warning")
+
+
+@pytest.mark.xfail(strict=True, reason="the rule for a channel's own load current in its own input ground is "
+                   "issue 29 item 1, another engineer's work (a new rules module)")
+def test_dual_mono_finds_the_speaker_return_on_its_own_input_ground_as_a_fault():
+    _, before, *_ = _advised(DM)
+    assert any(f.code != "GC304" and {"right_spk", "right.in_pad"} & set(f.elements)
+               and severity_rank(f.severity) <= severity_rank("fault") for f in before.findings)
+
+
+@pytest.mark.xfail(strict=True, reason="moving the speaker return ranks first once item 1's rule reports the "
+                   "channel's own load current in its input ground as a fault (another engineer's work); until "
+                   "then the move gains only 0.1 dB and the sockets' insulation ranks first")
+def test_dual_mono_first_fix_moves_the_speaker_return_to_its_star():
+    _, _, evs, *_ = _advised(DM)
+    first = _useful(evs)[0].candidate
+    assert (first.action, first.element) == ("move", "right_spk") and "right.res_0v" in first.title
+
+
+def test_dual_mono_moves_the_speaker_return_and_insulates_both_sockets():
+    # the builder's fixes are all offered and all kept in the combined set
+    _, _, evs, chosen, *_ = _advised(DM)
+    offered = {(e.candidate.action, e.candidate.element) for e in _useful(evs)}
+    assert {("move", "right_spk"), ("insulate", "left_sock_nut"), ("insulate", "right_sock_nut")} <= offered
+    assert {("insulate", "left_sock_nut"), ("insulate", "right_sock_nut")} <= \
+        {(e.candidate.action, e.candidate.element) for e in chosen}
+
+
+def test_dual_mono_never_unwires_an_input_nor_touches_the_protective_bonding():
+    _never(DM, "remove", "sock_gnd")
+    plan, *_ = _advised(DM)
+    assert not [e.candidate.title for e in _offered(DM) if _touches(plan, e, DM_PE)]
+    _fix_lines_avoid(DM, r"remove (left|right)\.sock_gnd")
