@@ -20,6 +20,7 @@ from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, 
                       ChangeContext, delete_change, device_note, local_name, reroute, rephrase, squeeze)
 from .edits import Edit
 from .installation_changes import installation_candidates, shield_to_chassis
+from .returns import insulate_candidates
 
 __all__ = ["Candidate", "candidates"]
 
@@ -33,7 +34,7 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
             continue          # answered by terminating one end, below
         if is_fastening(c, ctx.metals):
             add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated socket or shoulder "
-                              f"washers) to open the loop closed by {lp.closed_by}", "GC101"))
+                              f"washers) to open the loop closed by {lp.closed_by}", "GC101", "insulate"))
         else:
             add(delete_change(ctx, lp.open_at, f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
                               "GC101"))
@@ -41,21 +42,24 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
         if lp.closed_by in ("second-chassis-bond", "mains-cords") and c.kind == "wire" and st is not None:
             ends = ctx.src.ends(st)
             if ends is not None:
-                indent = ctx.src.lines[st.loc.line - 1][: st.loc.column - 1]
+                indent = ctx.src.lines_of(st.loc.file)[st.loc.line - 1][: st.loc.column - 1]
                 new = f"{indent}lift {st.label}: {ends[0].text} to {ends[1].text}, 10 ohm, 47 nF"
-                add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101",
-                              (Edit(st.loc.line, new, (), ctx.src.last_line(st)),), ctx.protective(c)))
+                edit = Edit(st.loc.line, new, (), ctx.src.last_line(st), None if st.loc.file == ctx.plan.file
+                            else st.loc.file)
+                add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101", (edit,),
+                              ctx.protective(c), action="lift-network", element=lp.open_at))
+    insulate_candidates(ctx, add)
 
 
 def _finding_candidates(ctx: ChangeContext, add) -> None:
     for f in ctx.result.findings:
-        if f.code == "GC108":
+        if f.code == "GC108" and f.actions:        # none when the shield is an end's only return
             (_, shield, keep), = f.actions
             c = ctx.cond[shield]
             st = ctx.statement(c)
             if st is not None:
                 add(rephrase(ctx, c, ("terminated", "both"), f"terminated {local_name(c.name, st.label or '', keep)}",
-                              f"terminate shield {c.name} at {keep} only", "GC108"))
+                             f"terminate shield {c.name} at {keep} only", "GC108"))
         elif f.code == "GC105":
             for verb, e in f.actions:
                 c = ctx.cond.get(e)
@@ -63,7 +67,7 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
                     continue          # a shield is lifted at one end (GC108), not removed
                 what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
                     else "remove the second chassis bond {e}"
-                add(delete_change(ctx, e, what.format(e=e), "GC105"))
+                add(delete_change(ctx, e, what.format(e=e), "GC105", "insulate" if verb == "insulate" else "remove"))
         elif f.code == "GC103":
             _star_candidates(ctx, f, add)
         elif f.code == "GC202":
@@ -80,12 +84,17 @@ def _star_candidates(ctx: ChangeContext, f, add) -> None:
     import networkx as nx
     for verb, name, *where in f.actions:     # a star reaching the common star through another channel's
         c = ctx.cond.get(name)
-        if verb != "reroute" or c is None or not where:
+        if verb not in ("reroute", "join") or c is None or not where:
             continue
         dist = nx.single_source_shortest_path_length(ctx.G, where[0])
         near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
         far = c.b if near == c.a else c.a
-        add(reroute(ctx, name, near, where[0], f"run {far} to {where[0]} by its own wire ({name})", "GC103"))
+        if verb == "join":                    # a supply's two returns meeting only at the star
+            add(reroute(ctx, name, near, where[0], f"join {far} straight to {where[0]} ({name}), so the "
+                        "supply's current circulates between them and leaves the star", "GC103", "join"))
+        else:
+            add(reroute(ctx, name, near, where[0], f"run {far} to {where[0]} by its own wire ({name})",
+                        "GC103"))
     if f.actions:
         return
     stars = [e for e in f.elements if e in ctx.stars]

@@ -132,3 +132,25 @@ def _compare_fails(d: dict, fail_on: str) -> bool:
         worst = min((severity_rank(s) for s in before), default=len(("danger", "fault", "warning", "note")))
         return any(severity_rank(f["severity"]) <= worst for f in new)
     return False
+
+
+def add_fix_option(parser) -> None:
+    """--advice-budget: the time the advisor may take to check each finding's fix line (check, report)."""
+    parser.add_argument("--advice-budget", type=float, default=10.0, metavar="SECONDS",
+                        help="time the advisor may take to try each finding's fix on the plan, so that "
+                        "a fix line is a change it accepts (default 10 s; 0: the rules' own fix lines)")
+
+
+def advised(result, path: str, budget: float):
+    """``result`` with each finding's fix line from the advisor (groundcheck.advice.fixes): its best accepted
+    change for the finding, or what it considered and why not.  A plan read from standard input, or a budget
+    of 0, keeps the rules' own lines."""
+    if not budget or budget <= 0 or path == "-" or not result.findings:
+        return result
+    from ..advice.fixes import advised_result
+    from ..advice.repair import suggest
+    p = Path(path)
+    text = p.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
+    _, evs = suggest(result.plan, text, result.options, p.resolve().parent, p.resolve(),
+                     budget=budget, before=result)
+    return advised_result(result, evs)

@@ -15,7 +15,7 @@ from ..renderers.output import write_atomic
 from ..rules.results import Options
 
 __all__ = ["UsageError", "Parser", "quantity_type", "seconds_type", "processes_type", "add_analysis_options",
-           "options_of", "load_plan", "write_output"]
+           "options_of", "load_plan", "write_output", "plan_paths"]
 
 
 class UsageError(GroundcheckError):
@@ -195,3 +195,18 @@ def write_output(text: str, output: str | None, inputs: list[str]) -> None:
         sys.stdout.write(text)
         return
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
+
+
+def plan_paths(names: list[str]) -> list[str]:
+    """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders skipped)."""
+    out = []
+    for name in names:
+        p = Path(name)
+        if name != "-" and p.is_dir():
+            found = sorted(str(f) for f in p.rglob("*.gplan") if not any(part.startswith(".") for part in f.parts))
+            if not found:
+                raise UsageError(f"folder {name} holds no .gplan file")
+            out.extend(found)
+        else:
+            out.append(name)
+    return out
