@@ -77,8 +77,9 @@ def _no_load_errors(rel: str) -> None:
 def _fix_lines_avoid(rel: str, *patterns: str) -> None:
     _, before, _, _, _, fixes = _advised(rel)
     for f, fix in zip(before.findings, fixes):
+        offered = fix.split("considered and rejected")[0]          # what was considered and why not is no offer
         for p in patterns:
-            assert not re.search(p, fix), (f.code, fix)
+            assert not re.search(p, offered), (f.code, fix)
 
 
 def _never_louder(rel: str) -> None:
