@@ -235,3 +235,90 @@ def test_dual_mono_never_unwires_an_input_nor_touches_the_protective_bonding():
     plan, *_ = _advised(DM)
     assert not [e.candidate.title for e in _offered(DM) if _touches(plan, e, DM_PE)]
     _fix_lines_avoid(DM, r"remove (left|right)\.sock_gnd")
+
+
+# ---- one source of truth for fixes; the exit status of suggest --------------------------------------------------
+
+FIELD_PLANS = [HP, PH, PH_GOOD, SE, DM]
+
+
+@pytest.mark.parametrize("rel", FIELD_PLANS)
+def test_every_fix_line_is_an_accepted_change_or_says_what_was_rejected(rel):
+    from groundcheck.advice.fixes import NONE_ACCEPTED, identity
+    _, before, evs, _, _, fixes = _advised(rel)
+    tail = " (groundcheck suggest shows the change and its predicted effect)"
+    for f, fix in zip(before.findings, fixes):
+        if fix.endswith(tail):
+            (ev,) = [e for e in evs if e.candidate.title == fix[: -len(tail)]]
+            assert not ev.rejected and identity(f) in ev.cleared_keys, (f.code, fix)
+        elif fix.startswith(NONE_ACCEPTED):
+            assert all(e.rejected for e in evs if e.candidate.title in fix), (f.code, fix)
+        else:       # the rule's own line: only when no change cleared the finding
+            assert fix == f.fix and not [e for e in evs if not e.rejected and identity(f) in e.cleared_keys]
+
+
+def test_check_prints_the_advisors_fix_lines(cli):
+    import json
+    _, before, _, _, _, fixes = _advised(HP)
+    code, text, _ = cli("check", str(FIELD / HP), "--format", "json")
+    doc = json.loads(text)
+    assert [f["fix"] for f in doc["findings"]] == fixes
+    assert any(f["fix"].startswith("insulate left.in_sleeve") for f in doc["findings"] if f["code"] == "GC101")
+    # 0 keeps the rules' own lines
+    code, text, _ = cli("check", str(FIELD / HP), "--format", "json", "--advice-budget", "0")
+    assert [f["fix"] for f in json.loads(text)["findings"]] == [f.fix for f in before.findings]
+
+
+def test_findings_keep_their_identity_when_lines_move(tmp_path):
+    # two comment lines inserted above the block: the same loops, not one cleared and one introduced
+    from groundcheck.advice.compare import compare
+    from groundcheck.advice.fixes import identity
+    from groundcheck.analysis import analyze
+    text = (FIELD / HP).read_text(encoding="utf-8")
+    moved = tmp_path / "moved.gplan"
+    moved.write_text(text.replace("block channel {", "# moved\n# down two lines\nblock channel {"))
+    _, before, *_ = _advised(HP)
+    after = analyze(load(moved))
+    assert sorted(map(identity, before.findings)) == sorted(map(identity, after.findings))
+    assert {f.location.line for f in after.findings if f.code == "GC101"} != \
+        {f.location.line for f in before.findings if f.code == "GC101"}
+    d = compare(before, after)
+    assert d["findings"]["introduced"] == [] and d["findings"]["fixed"] == []
+
+
+def test_suggest_exits_1_while_a_danger_remains_and_0_otherwise(cli, tmp_path):
+    plan = tmp_path / "no-pe.gplan"
+    plan.write_text('plan "no protective earth"\n'
+                    "mains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2, inlet at 10,10\n"
+                    "metal chassis: aluminium 2 mm, 300 x 200 mm, touchable\n"
+                    "point star: star, at 100,100 on chassis\npoint in_sleeve: sleeve, at 280,40 on chassis\n"
+                    "point k: pad, at 200,60 on chassis\n"
+                    "wire in_gnd: in_sleeve to star, 300 mm, 0.5 mm2, signal\n"
+                    "wire k_gnd: k to star, 150 mm, 0.5 mm2, signal\n"
+                    "stage v1: in_sleeve to k, gain 30 dB, channel main\n")
+    code, text, _ = cli("suggest", str(plan))
+    assert code == 1 and "GC201 danger" in text.split("Combined")[1]
+    code, text, _ = cli("suggest", str(FIELD / HP))
+    assert code == 0 and "danger" not in text.split("Combined")[1]
+
+
+def test_a_protective_wire_moved_to_its_own_stud_keeps_its_section_and_comment_and_says_protective(tmp_path):
+    # GC202's fix is the one change suggest makes to a conductor on the protective route (README, docs)
+    plan = tmp_path / "shared.gplan"
+    plan.write_text('plan "shared stud"\n'
+                    "mains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2, inlet at 10,10\n"
+                    "metal chassis: aluminium 2 mm, 300 x 200 mm, touchable\n"
+                    "metal ptx_frame: steel 1 mm, 80 x 70 mm, at 150,100, internal\n"
+                    "point pe_stud: stud, at 20,20 on chassis\n"
+                    "wire pe_lead: mains.pe to pe_stud, 30 mm, 0.75 mm2   # green/yellow from the inlet\n"
+                    "bolt pe_nut: pe_stud to chassis\n"
+                    "bolt ptx_clamp: ptx_frame to pe_stud, contact 1 mohm\n")
+    _, evs = suggest(load(plan), plan.read_text(), Options(), tmp_path, plan.resolve())
+    (ev,) = [e for e in evs if e.candidate.action == "own-stud"]
+    assert not ev.rejected and ev.candidate.element == "pe_lead"
+    (edit,) = ev.candidate.edits
+    line = edit.new
+    assert line.startswith("wire pe_lead: mains.pe to pe_stud2, ") and "0.75 mm2, protective" in line
+    assert line.endswith("# green/yellow from the inlet")
+    after = {c.name: c for c in ev.result.plan.conductors}
+    assert after["pe_lead"].area == pytest.approx(0.75e-6) and after["pe_lead"].role == "protective"

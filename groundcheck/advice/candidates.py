@@ -153,12 +153,29 @@ def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
     if other is not None and other.pos is not None and old_len is not None:
         length = math.dist(other.pos, where) * (1 + ROUTE_ALLOWANCE)
         changes.append((old_len, f"{max(length, 10e-3) * 1e3:.0f} mm"))
-    edit = ctx.src.replace(st, changes, drop_comment=True)
+    edit = ctx.src.replace(st, _written_protective(ctx, st, changes))     # its comment stays
     x, y = where[0] * 1e3, where[1] * 1e3
     edit = Edit(edit.line, edit.new, (f"point {new_pt}: stud, at {x:.0f},{y:.0f} on {part}",
-                                      f"bolt {new_pt}_nut: {new_pt} to {part}"), edit.last)
+                                      f"bolt {new_pt}_nut: {new_pt} to {part}"), edit.last, edit.file)
     return Candidate(f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, clear of "
-                     "other parts and fastenings)", "GC202", (edit,), touches_protective=False)
+                     f"other parts and fastenings): {pe.name}'s end moves there, its section and comment kept",
+                     "GC202", (edit,), touches_protective=False, action="own-stud", element=pe.name)
+
+
+def _written_protective(ctx: ChangeContext, st, changes: list) -> list:
+    """``changes`` of a protective conductor's statement, with its role written ``protective``: a role word
+    it has is replaced, else ``, protective`` follows its last item (its section is never changed)."""
+    if ctx.src.find(st, "protective"):
+        return changes
+    for word in ("signal", "return", "shield", "bond", "heater"):
+        ph = ctx.src.find(st, word)
+        if ph and len(ph) == 1:
+            return changes + [(ph[0], "protective")]
+    last = st.phrases[-1][-1]
+    mine = dict((id(it), new) for it, new in changes)
+    n, a, b = ctx.src.span(last)
+    text = mine.get(id(last), ctx.src.lines_of(st.loc.file)[n - 1][a:b])
+    return [c for c in changes if c[0] is not last] + [(last, text + ", protective")]
 
 
 def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
@@ -199,7 +216,7 @@ def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
                 same.last)
     return Candidate(f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud {a} on "
                      f"{home} beside {landing.name} to a new stud {b} on {part}; bare metal under toothed washers)",
-                     f.code, (edit,), touches_protective=False, wire=length / 1e3)
+                     f.code, (edit,), touches_protective=False, wire=length / 1e3, action="bond", element=part)
 
 
 def _thicker(ctx: ChangeContext, f) -> Candidate | None:
@@ -223,7 +240,8 @@ def _thicker(ctx: ChangeContext, f) -> Candidate | None:
         edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
         edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
     return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
-                     f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False)
+                     f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False,
+                     action="thicken", element=c.name)
 
 
 def _join_ends(ctx: ChangeContext, row, add) -> None:

@@ -18,7 +18,7 @@ from ..core.errors import GroundcheckError, PlanErrors
 from ..rules.catalogue import RULES, SEVERITIES
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
-from .advice import add_fix_option, advised, cmd_compare, cmd_suggest
+from .advice import SUGGEST_EPILOG, add_fix_option, advised, cmd_compare, cmd_suggest
 from .watch import add_watch_command, cmd_watch
 from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, plan_paths,
                      processes_type, quantity_type, seconds_type, write_output)
@@ -116,7 +116,7 @@ def _suggest_command(sub) -> None:
                        "re-run the analysis for each and rank them. Changes that would weaken the protective earth "
                        "are never proposed.\n\nExample:\n"
                        "  groundcheck suggest examples/dual-mono-phono-stage.gplan --apply fixed.gplan",
-                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=SUGGEST_EPILOG)
     s.add_argument("plan", metavar="PLAN")
     s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
     s.add_argument("--pick", type=int, metavar="N", help="with --apply: apply suggestion N instead of the combined set")

@@ -12,7 +12,11 @@ from ..core.plain import clean
 from ..renderers.output import write_atomic
 from .common import UsageError, load_plan, options_of, write_output
 
-__all__ = ["cmd_suggest", "cmd_compare"]
+__all__ = ["cmd_suggest", "cmd_compare", "add_fix_option", "advised", "SUGGEST_EPILOG"]
+
+#: the exit status of ``suggest``
+SUGGEST_EPILOG = ("Exit status: 0 no danger left after the combined set of changes, 1 a danger remains after it, "
+                  "2 the plan or the command could not be used.")
 
 
 class _progress:
@@ -90,7 +94,8 @@ def cmd_suggest(args) -> int:
         for out, _ in files[1:]:
             sys.stderr.write(f"groundcheck: wrote a changed copy of a device plan to {out} (the new plan names it; "
                              "the original is unchanged)\n")
-    return 0
+    # a danger left after the best combined set fails, as check fails on it
+    return 1 if final.fails("danger") else 0
 
 
 def cmd_compare(args) -> int:
