@@ -209,14 +209,24 @@ def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
     length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), 10e-3) * 1e3
     mm = [round(v * 1e3) for v in (*start, *end)]
-    same = ctx.src.replace(st, [])
-    edit = Edit(same.line, same.new, (f"point {a}: stud, at {mm[0]},{mm[1]} on {home}", f"bolt {a}_nut: {a} to {home}",
-                                      f"point {b}: stud, at {mm[2]},{mm[3]} on {part}", f"bolt {b}_nut: {b} to {part}",
-                                      f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective"),
-                same.last)
+    extra = (f"point {a}: stud, at {mm[0]},{mm[1]} on {home}", f"bolt {a}_nut: {a} to {home}",
+             f"point {b}: stud, at {mm[2]},{mm[3]} on {part}", f"bolt {b}_nut: {b} to {part}",
+             f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective")
+    edit = _at_end(ctx, st, extra)
     return Candidate(f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud {a} on "
                      f"{home} beside {landing.name} to a new stud {b} on {part}; bare metal under toothed washers)",
                      f.code, (edit,), touches_protective=False, wire=length / 1e3, action="bond", element=part)
+
+
+def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
+    """New statements at the end of the file ``st`` is in (top level), so that they never share lines with
+    another change's edit (the combined set keeps both)."""
+    lines = ctx.src.lines_of(st.loc.file)
+    file = None if st.loc.file == ctx.plan.file else st.loc.file
+    n = len(lines)
+    if lines[-1] == "":
+        return Edit(n, "\n".join(extra) + "\n", (), n, file)
+    return Edit(n, lines[-1], extra, n, file)
 
 
 def _thicker(ctx: ChangeContext, f) -> Candidate | None:
@@ -257,7 +267,7 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
                              f"{row.source} current stays between them and leaves {', '.join(row.shared)}",
-                             "GC102"))
+                             "GC102", "join"))
 
 
 def _shared_return_candidates(ctx: ChangeContext, add) -> None:
@@ -280,7 +290,7 @@ def _shared_return_candidates(ctx: ChangeContext, add) -> None:
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
                             add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
-                                         f"so the {row.source} current leaves {shared}", "GC102"))
+                                         f"so the {row.source} current leaves {shared}", "GC102", "join"))
             for p in (stage.b, stage.a):
                 star = ctx.nearest_star(p)
                 for d in plan.conductors:

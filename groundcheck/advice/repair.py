@@ -118,6 +118,9 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
                           "(the signal would return through the chassis, or not at all)")
     after = analyze(p, options)
     ev = Evaluation(cand, after)
+    if _through_star(cand, after):
+        ev.rejected = "it would send a supply's charging or ripple current through the star"
+        return ev
     # a device plugged in elsewhere leaves the building runs it used, but no conductor: its earth path is checked
     # again below (a broken or long one is a danger, GC215)
     lost = sorted(before.protective - after.protective) if not cand.moves_plug else []
@@ -153,6 +156,16 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return ev
     _score(ev, before, after, k0, k1)
     return ev
+
+
+def _through_star(cand: Candidate, after: Result) -> bool:
+    """Whether a moved conductor lands where a supply's two returns then meet only at the star (GC103's
+    'join' finding names the star and both returns' points): the trade joins them before it."""
+    if cand.action not in ("move", "join"):
+        return False
+    c = next((c for c in after.plan.conductors if c.name == cand.element), None)
+    return c is not None and any(f.code == "GC103" and f.actions and f.actions[0][0] == "join"
+                                 and {c.a, c.b} <= set(f.elements) for f in after.findings)
 
 
 def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:
