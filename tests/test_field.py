@@ -1,8 +1,9 @@
-"""The field corpus: plans written by builders who are not groundcheck's authors (tests/field/, copied unchanged
-from the shared corpus, and three of our own), each with a ``verdict.md`` by an experienced builder and safety
-reviewer.  Each verdict becomes assertions here: the findings it must find (codes and elements), the first fix
-the builder makes (the first suggestion's action and element), and the fixes that must never be offered (in
-the suggestions, the combined set or a ``fix:`` line of ``check``).  The plans are never edited to pass.
+"""The field corpus: plans written by builders who are not groundcheck's authors (tests/field/,
+copied unchanged from the shared corpus, and three of our own), each with a ``verdict.md`` by an
+experienced builder and safety reviewer.  Each verdict becomes assertions here: the findings it
+must find (codes and elements), the first fix the builder makes (the first suggestion's action and
+element), and the fixes that must never be offered (in the suggestions, the combined set or a
+``fix:`` line of ``check``).  The plans are never edited to pass.
 """
 
 from __future__ import annotations
@@ -24,7 +25,8 @@ FIELD = Path(__file__).resolve().parent / "field"
 
 @functools.lru_cache(maxsize=None)
 def _advised(rel: str):
-    """(plan, findings before, evaluations best first, combined set, result after it, fix lines) of a field plan."""
+    """(plan, findings before, evaluations best first, combined set, result after it, fix lines)
+    of a field plan."""
     path = FIELD / rel
     plan, text = load(path), path.read_text(encoding="utf-8")
     root, resolved = path.resolve().parent, path.resolve()
@@ -59,8 +61,8 @@ def _touches(plan, ev, names: set[str]) -> bool:
 
 def _finds(rel: str, code: str, *elements: str, worst: str = "note") -> bool:
     _, before, *_ = _advised(rel)
-    return any(f.code == code and set(elements) <= set(f.elements) and severity_rank(f.severity) <= severity_rank(worst)
-               for f in before.findings)
+    return any(f.code == code and set(elements) <= set(f.elements)
+               and severity_rank(f.severity) <= severity_rank(worst) for f in before.findings)
 
 
 def _never(rel: str, action: str, element: str) -> None:
@@ -77,7 +79,8 @@ def _no_load_errors(rel: str) -> None:
 def _fix_lines_avoid(rel: str, *patterns: str) -> None:
     _, before, _, _, _, fixes = _advised(rel)
     for f, fix in zip(before.findings, fixes):
-        offered = fix.split("considered and rejected")[0]          # what was considered and why not is no offer
+        # what was considered and why not is no offer
+        offered = fix.split("considered and rejected")[0]
         for p in patterns:
             assert not re.search(p, offered), (f.code, fix)
 
@@ -88,7 +91,7 @@ def _never_louder(rel: str) -> None:
         assert not louder, (e.candidate.title, louder)
 
 
-# ---- headphone-se-valve-rectifier -------------------------------------------------------------------------------
+# ---- headphone-se-valve-rectifier ---------------------------------------------------------------
 
 HP = "headphone-se-valve-rectifier/plan.gplan"
 HP_PE = {"pe_lead", "pe_nut", "bottom_screws"}
@@ -124,7 +127,7 @@ def test_headphone_never_unwires_the_input_nor_lifts_its_return():
                      r"lift network")
 
 
-# ---- phono-two-box ----------------------------------------------------------------------------------------------
+# ---- phono-two-box ------------------------------------------------------------------------------
 
 PH = "phono-two-box/hifi-bad.gplan"
 PH_GOOD = "phono-two-box/hifi.gplan"
@@ -169,7 +172,7 @@ def test_phono_corrected_build_has_nothing_above_a_note_and_no_advice_that_hurts
     _no_load_errors(PH_GOOD)
 
 
-# ---- se-power-triode --------------------------------------------------------------------------------------------
+# ---- se-power-triode ----------------------------------------------------------------------------
 
 SE = "se-power-triode/plan.gplan"
 
@@ -193,7 +196,7 @@ def test_se_triode_filter_return_is_never_run_to_the_star_by_itself():
     assert not [e.candidate.title for e in _offered(SE) if _touches(plan, e, {"pe_lead", "pe_nut", "bottom_screws"})]
 
 
-# ---- dual-mono-class-ab -----------------------------------------------------------------------------------------
+# ---- dual-mono-class-ab -------------------------------------------------------------------------
 
 DM = "dual-mono-class-ab/plan.gplan"
 DM_PE = {"pe_lead", "pe_nut", "rear_screws", "cover_screws", "sink_l_bolts", "sink_r_bolts"}
@@ -237,7 +240,7 @@ def test_dual_mono_never_unwires_an_input_nor_touches_the_protective_bonding():
     _fix_lines_avoid(DM, r"remove (left|right)\.sock_gnd")
 
 
-# ---- our own: valve-phono-dc-heaters ---------------------------------------------------------------------------
+# ---- our own: valve-phono-dc-heaters ------------------------------------------------------------
 
 VP = "valve-phono-dc-heaters/plan.gplan"
 
@@ -268,7 +271,7 @@ def test_phono_dc_heaters_never_runs_the_heater_return_to_the_star_by_itself():
     _fix_lines_avoid(VP, r"run h_res to star")
 
 
-# ---- our own: guitar-combo-reverb -------------------------------------------------------------------------------
+# ---- our own: guitar-combo-reverb ---------------------------------------------------------------
 
 GC = "guitar-combo-reverb/plan.gplan"
 
@@ -307,7 +310,7 @@ def test_guitar_combo_keeps_every_screen_that_is_a_return_and_the_stud_in_the_co
     _fix_lines_avoid(GC, r"terminate (send_lead|ret_lead|fsw_lead) at")
 
 
-# ---- our own: balanced-preamp-rack -----------------------------------------------------------------------------
+# ---- our own: balanced-preamp-rack --------------------------------------------------------------
 
 BR = "balanced-preamp-rack/rack.gplan"
 # (a device's cord is written in its 'device' statement, which plugging it in elsewhere edits: not a change
@@ -346,7 +349,7 @@ def test_balanced_rack_never_opens_bought_equipment_nor_touches_the_protective_e
     _no_load_errors(BR)
 
 
-# ---- one source of truth for fixes; the exit status of suggest --------------------------------------------------
+# ---- one source of truth for fixes; the exit status of suggest ----------------------------------
 
 FIELD_PLANS = [HP, PH, PH_GOOD, SE, DM, VP, GC, BR]
 
@@ -355,7 +358,7 @@ FIELD_PLANS = [HP, PH, PH_GOOD, SE, DM, VP, GC, BR]
 def test_every_fix_line_is_an_accepted_change_or_says_what_was_rejected(rel):
     from groundcheck.advice.fixes import NONE_ACCEPTED, identity
     _, before, evs, _, _, fixes = _advised(rel)
-    tail = " (groundcheck suggest shows the change and its predicted effect)"
+    from groundcheck.advice.fixes import SHOWN_BY_SUGGEST as tail
     for f, fix in zip(before.findings, fixes):
         if fix.endswith(tail):
             (ev,) = [e for e in evs if e.candidate.title == fix[: -len(tail)]]

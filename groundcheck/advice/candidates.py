@@ -329,8 +329,8 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
             out.append(device_note(c, plan.file))
 
     _loop_candidates(ctx, add)
+    _shared_return_candidates(ctx, add)      # before the star's: the same join answers a shared return first
     _finding_candidates(ctx, add)
     installation_candidates(ctx, add)
-    _shared_return_candidates(ctx, add)
     _crosstalk_candidates(ctx, add)
     return out

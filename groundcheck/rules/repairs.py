@@ -10,9 +10,8 @@ from __future__ import annotations
 import networkx as nx
 
 from ..model.kinds import is_fastening
-from .catalogue import Finding
 
-__all__ = ["only_return_end", "shield_fix", "supply_ends", "supply_through_star"]
+__all__ = ["only_return_end", "shield_fix", "supply_ends", "supply_meetings"]
 
 
 def only_return_end(ctx, c) -> str | None:
@@ -77,15 +76,15 @@ def supply_ends(plan) -> set[frozenset]:
     return out
 
 
-def supply_through_star(ctx) -> list[Finding]:
-    """GC103 for a rectifier whose two ends (or whose filter's return and reservoir) meet only at a
-    star: its charging or ripple current flows through the star itself, every return's reference.
+def supply_meetings(ctx) -> list[tuple]:
+    """Rectifiers whose two ends (or whose filter's return and reservoir) meet only at a star: the
+    charging or ripple current flows through the star itself, every return's reference (GC103).
 
     Parameters:
         ctx: the audit context.
     Returns:
-        GC103 findings, with the action ("join", conductor, point): move the conductor's star end
-        to the point.
+        (rectifier, point, other point, star, conductor): moving the conductor's star end to the
+        other point joins them before the star.
     References:
         common practice (join them by a short wire of their own, then one wire to the star).
     """
@@ -105,13 +104,6 @@ def supply_through_star(ctx) -> list[Finding]:
             except nx.NetworkXNoPath:
                 continue
             star = next((n for n in path[1:-1] if n in stars), None)
-            if star is None or any(n in ctx.metals for n in path):
-                continue
-            link = next(iter(ctx.G[path[0]][path[1]]))
-            out.append(Finding(
-                "GC103", "warning", f"the current of {r.name} between {x} and {y} flows through star "
-                f"{star}: they meet only there", r.location, (star, x, y, link),
-                {"chained_returns": 1},
-                f"join {x} to {y} by a short wire of their own ({link}), then one wire to {star}",
-                (("join", link, y),)))
+            if star is not None and not any(n in ctx.metals for n in path):
+                out.append((r, x, y, star, next(iter(ctx.G[path[0]][path[1]]))))
     return out

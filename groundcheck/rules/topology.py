@@ -15,7 +15,7 @@ from ..network.graph import Loop, part_labels
 from .catalogue import Finding
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext, bfs
 from .registry import rule
-from .repairs import shield_fix, supply_ends, supply_through_star
+from .repairs import shield_fix, supply_ends, supply_meetings
 
 __all__ = ["rule_loops", "rule_stars", "rule_signal_bonds", "rule_heaters", "rule_shields", "rule_unconnected"]
 
@@ -122,7 +122,12 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
         out.append(Finding("GC103", "warning", f"star {star} is partly a chain: {desc}", first, elements,
                            {"chained_returns": len(pairs)},
                            "; ".join(f"run {t} to {star} by a wire of its own" for t, _ in pairs)))
-    out += _stars_through_other_placements(ctx, stars, groups, allowed) + supply_through_star(ctx)
+    out += _stars_through_other_placements(ctx, stars, groups, allowed)
+    for r, x, y, star, link in supply_meetings(ctx):
+        out.append(Finding("GC103", "warning", f"the current of {r.name} between {x} and {y} flows through star "
+                           f"{star}: they meet only there", r.location, (star, x, y, link), {"chained_returns": 1},
+                           f"join {x} to {y} by a short wire of their own ({link}), then one wire to {star}",
+                           (("join", link, y),)))
     return out
 
 
