@@ -375,7 +375,7 @@ def test_check_prints_the_advisors_fix_lines(cli):
     code, text, _ = cli("check", str(FIELD / HP), "--format", "json")
     doc = json.loads(text)
     assert [f["fix"] for f in doc["findings"]] == fixes
-    assert any(f["fix"].startswith("insulate left.in_sleeve") for f in doc["findings"] if f["code"] == "GC101")
+    assert any(f["fix"].startswith("insulate left.in_nut") for f in doc["findings"] if f["code"] == "GC101")
     # 0 keeps the rules' own lines
     code, text, _ = cli("check", str(FIELD / HP), "--format", "json", "--advice-budget", "0")
     assert [f["fix"] for f in json.loads(text)["findings"]] == [f.fix for f in before.findings]

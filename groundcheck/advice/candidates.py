@@ -26,6 +26,7 @@ __all__ = ["Candidate", "candidates"]
 
 
 def _loop_candidates(ctx: ChangeContext, add) -> None:
+    insulate_candidates(ctx, add)         # a fastened socket first: the same edit keeps its words
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure" or not lp.open_at:
             continue
@@ -48,7 +49,6 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
                             else st.loc.file)
                 add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101", (edit,),
                               ctx.protective(c), action="lift-network", element=lp.open_at))
-    insulate_candidates(ctx, add)
 
 
 def _finding_candidates(ctx: ChangeContext, add) -> None:

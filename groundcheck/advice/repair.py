@@ -61,7 +61,8 @@ class Evaluation:
                 len(self.introduced), len(self.candidate.edits), round(self.candidate.wire, 4), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
-        return {"title": self.candidate.title, "answers": self.candidate.reason, "score": round(self.score, 3),
+        return {"title": self.candidate.title, "answers": self.candidate.reason, "action": self.candidate.action,
+                "element": self.candidate.element, "score": round(self.score, 3),
                 "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
                 "findings_cleared": self.cleared, "findings_introduced": self.introduced,
                 "rejected": self.rejected or None, "diff": diff}

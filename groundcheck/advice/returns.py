@@ -45,8 +45,8 @@ def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: 
             f"the protective earth does not run through it), to open the loop closed by "
             f"{closed_by}", "GC101", "remove")
     return delete_change(
-        ctx, name, f"insulate {point} from {metal} (an insulated socket or shoulder washers: "
-        f"remove {name}), keeping its wired return, to open the loop closed by {closed_by}",
+        ctx, name, f"insulate {name}: {point} off {metal} (an insulated socket or shoulder "
+        f"washers), keeping its wired return, to open the loop closed by {closed_by}",
         "GC101", "insulate")
 
 
