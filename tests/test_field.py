@@ -196,6 +196,13 @@ def test_se_triode_filter_return_is_never_run_to_the_star_by_itself():
     assert not [e.candidate.title for e in _offered(SE) if _touches(plan, e, {"pe_lead", "pe_nut", "bottom_screws"})]
 
 
+def test_se_triode_hum_verdict_says_it_covers_ground_borne_hum_only(cli):
+    # verdict, scope note: about 1.1 V of ripple feeds the output stages; "inaudible" covers ground-borne
+    # hum only, and says so
+    code, text, _ = cli("check", str(FIELD / SE), "--advice-budget", "0")
+    assert "inaudible" in text and "ground-borne hum only" in text
+
+
 # ---- dual-mono-class-ab -------------------------------------------------------------------------
 
 DM = "dual-mono-class-ab/plan.gplan"
@@ -434,3 +441,19 @@ def test_a_protective_wire_moved_to_its_own_stud_keeps_its_section_and_comment_a
     assert line.endswith("# green/yellow from the inlet")
     after = {c.name: c for c in ev.result.plan.conductors}
     assert after["pe_lead"].area == pytest.approx(0.75e-6) and after["pe_lead"].role == "protective"
+
+
+def test_a_rules_structured_actions_become_candidates_whatever_its_code():
+    # a rule added later (the signal's own return, say) needs no advisor code: its ("reroute", conductor,
+    # point) action is tried like any candidate
+    import dataclasses
+    from groundcheck.advice.candidates import candidates
+    from groundcheck.rules.catalogue import Finding
+    plan, before, *_ = _advised(DM)
+    f = Finding("GC305", "note", "test", before.findings[0].location, ("right_spk",),
+                actions=(("reroute", "right_spk", "right.res_0v"),))
+    result = dataclasses.replace(before, findings=[*before.findings, f])
+    made = [c for c in candidates(plan, result, (FIELD / DM).read_text(encoding="utf-8"))
+            if c.reason == "GC305"]
+    assert [(c.action, c.element) for c in made] == [("move", "right_spk")]
+    assert "right.spk_neg to right.res_0v" in made[0].title

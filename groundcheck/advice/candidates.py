@@ -15,6 +15,7 @@ import math
 
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT, Plan
+from ..rules.catalogue import RULES
 from ..rules.results import Result
 from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, STUD_CLEARANCE, Candidate,
                       ChangeContext, delete_change, device_note, local_name, reroute, rephrase, squeeze)
@@ -78,6 +79,27 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
             add(_bonding_wire(ctx, f))
         elif f.code == "GC113":
             add(shield_to_chassis(ctx, f))
+        elif f.code not in ("GC101", "GC102", "GC304"):
+            _action_candidates(ctx, f, add)
+
+
+def _action_candidates(ctx: ChangeContext, f, add) -> None:
+    """Any other rule's structured actions (a rule added later needs no code here): ("reroute",
+    conductor, point) moves the conductor's end nearer the point onto it; ("remove", conductor) and
+    ("insulate", fastening) delete it.  Each is evaluated like every candidate."""
+    import networkx as nx
+    for verb, name, *where in f.actions:
+        c = ctx.cond.get(name)
+        if c is None or f.code not in RULES:
+            continue
+        if verb in ("reroute", "move", "join") and where and where[0] in ctx.G:
+            dist = nx.single_source_shortest_path_length(ctx.G, where[0])
+            near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
+            far = c.b if near == c.a else c.a
+            add(reroute(ctx, name, near, where[0], f"take {far} to {where[0]} by its own wire ({name})",
+                        f.code, "join" if verb == "join" else "move"))
+        elif verb in ("remove", "insulate"):
+            add(delete_change(ctx, name, f"{verb} {name}", f.code, verb))
 
 
 def _star_candidates(ctx: ChangeContext, f, add) -> None:
