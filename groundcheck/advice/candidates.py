@@ -35,8 +35,9 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
         if lp.closed_by == "shield-both-ends" and c.kind == "shield":
             continue          # answered by terminating one end, below
         if is_fastening(c, ctx.metals):
-            add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated socket or shoulder "
-                              f"washers) to open the loop closed by {lp.closed_by}", "GC101", "insulate"))
+            add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated "
+                              f"socket or shoulder washers) to open the loop closed by "
+                              f"{lp.closed_by}", "GC101", "insulate"))
         else:
             add(delete_change(ctx, lp.open_at, f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
                               "GC101"))
@@ -46,10 +47,11 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
             if ends is not None:
                 indent = ctx.src.lines_of(st.loc.file)[st.loc.line - 1][: st.loc.column - 1]
                 new = f"{indent}lift {st.label}: {ends[0].text} to {ends[1].text}, 10 ohm, 47 nF"
-                edit = Edit(st.loc.line, new, (), ctx.src.last_line(st), None if st.loc.file == ctx.plan.file
-                            else st.loc.file)
-                add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101", (edit,),
-                              ctx.protective(c), action="lift-network", element=lp.open_at))
+                file = None if st.loc.file == ctx.plan.file else st.loc.file
+                edit = Edit(st.loc.line, new, (), ctx.src.last_line(st), file)
+                add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101",
+                              (edit,), ctx.protective(c), action="lift-network",
+                              element=lp.open_at))
 
 
 def _finding_candidates(ctx: ChangeContext, add) -> None:
@@ -68,7 +70,8 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
                     continue          # a shield is lifted at one end (GC108), not removed
                 what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
                     else "remove the second chassis bond {e}"
-                add(delete_change(ctx, e, what.format(e=e), "GC105", "insulate" if verb == "insulate" else "remove"))
+                action = "insulate" if verb == "insulate" else "remove"
+                add(delete_change(ctx, e, what.format(e=e), "GC105", action))
         elif f.code == "GC103":
             _star_candidates(ctx, f, add)
         elif f.code == "GC202":
@@ -96,8 +99,9 @@ def _action_candidates(ctx: ChangeContext, f, add) -> None:
             dist = nx.single_source_shortest_path_length(ctx.G, where[0])
             near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
             far = c.b if near == c.a else c.a
-            add(reroute(ctx, name, near, where[0], f"take {far} to {where[0]} by its own wire ({name})",
-                        f.code, "join" if verb == "join" else "move"))
+            add(reroute(ctx, name, near, where[0],
+                        f"take {far} to {where[0]} by its own wire ({name})", f.code,
+                        "join" if verb == "join" else "move"))
         elif verb in ("remove", "insulate"):
             add(delete_change(ctx, name, f"{verb} {name}", f.code, verb))
 
@@ -112,11 +116,12 @@ def _star_candidates(ctx: ChangeContext, f, add) -> None:
         near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
         far = c.b if near == c.a else c.a
         if verb == "join":                    # a supply's two returns meeting only at the star
-            add(reroute(ctx, name, near, where[0], f"join {far} straight to {where[0]} ({name}), so the "
-                        "supply's current circulates between them and leaves the star", "GC103", "join"))
+            add(reroute(ctx, name, near, where[0],
+                        f"join {far} straight to {where[0]} ({name}), so the supply's current "
+                        "circulates between them and leaves the star", "GC103", "join"))
         else:
-            add(reroute(ctx, name, near, where[0], f"run {far} to {where[0]} by its own wire ({name})",
-                        "GC103"))
+            add(reroute(ctx, name, near, where[0],
+                        f"run {far} to {where[0]} by its own wire ({name})", "GC103"))
     if f.actions:
         return
     stars = [e for e in f.elements if e in ctx.stars]
@@ -178,15 +183,18 @@ def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
     edit = ctx.src.replace(st, _written_protective(ctx, st, changes))     # its comment stays
     x, y = where[0] * 1e3, where[1] * 1e3
     edit = Edit(edit.line, edit.new, (f"point {new_pt}: stud, at {x:.0f},{y:.0f} on {part}",
-                                      f"bolt {new_pt}_nut: {new_pt} to {part}"), edit.last, edit.file)
-    return Candidate(f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, clear of "
-                     f"other parts and fastenings): {pe.name}'s end moves there, its section and comment kept",
-                     "GC202", (edit,), touches_protective=False, action="own-stud", element=pe.name)
+                                      f"bolt {new_pt}_nut: {new_pt} to {part}"),
+                edit.last, edit.file)
+    return Candidate(f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} "
+                     f"on {part}, clear of other parts and fastenings): {pe.name}'s end moves "
+                     "there, its section and comment kept", "GC202", (edit,), touches_protective=False,
+                     action="own-stud", element=pe.name)
 
 
 def _written_protective(ctx: ChangeContext, st, changes: list) -> list:
-    """``changes`` of a protective conductor's statement, with its role written ``protective``: a role word
-    it has is replaced, else ``, protective`` follows its last item (its section is never changed)."""
+    """``changes`` of a protective conductor's statement, with its role written ``protective``: a
+    role word it has is replaced, else ``, protective`` follows its last item (its section is
+    never changed)."""
     if ctx.src.find(st, "protective"):
         return changes
     for word in ("signal", "return", "shield", "bond", "heater"):
@@ -237,12 +245,13 @@ def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     edit = _at_end(ctx, st, extra)
     return Candidate(f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud {a} on "
                      f"{home} beside {landing.name} to a new stud {b} on {part}; bare metal under toothed washers)",
-                     f.code, (edit,), touches_protective=False, wire=length / 1e3, action="bond", element=part)
+                     f.code, (edit,), touches_protective=False, wire=length / 1e3, action="bond",
+                     element=part)
 
 
 def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
-    """New statements at the end of the file ``st`` is in (top level), so that they never share lines with
-    another change's edit (the combined set keeps both)."""
+    """New statements at the end of the file ``st`` is in (top level), so that they never share
+    lines with another change's edit (the combined set keeps both)."""
     lines = ctx.src.lines_of(st.loc.file)
     file = None if st.loc.file == ctx.plan.file else st.loc.file
     n = len(lines)
@@ -312,7 +321,8 @@ def _shared_return_candidates(ctx: ChangeContext, add) -> None:
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
                             add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
-                                         f"so the {row.source} current leaves {shared}", "GC102", "join"))
+                                         f"so the {row.source} current leaves {shared}", "GC102",
+                                         "join"))
             for p in (stage.b, stage.a):
                 star = ctx.nearest_star(p)
                 for d in plan.conductors:
@@ -351,7 +361,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
             out.append(device_note(c, plan.file))
 
     _loop_candidates(ctx, add)
-    _shared_return_candidates(ctx, add)      # before the star's: the same join answers a shared return first
+    _shared_return_candidates(ctx, add)   # before the star's: the same join answers GC102 first
     _finding_candidates(ctx, add)
     installation_candidates(ctx, add)
     _crosstalk_candidates(ctx, add)

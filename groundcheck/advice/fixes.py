@@ -65,7 +65,8 @@ def advised_fixes(result, evs) -> list[str]:
 
 
 def advised_result(result, evs):
-    """``result`` with each finding's fix line replaced by the advisor's (:func:`advised_fixes`)."""
+    """``result`` with each finding's fix line replaced by the advisor's
+    (:func:`advised_fixes`)."""
     fixes = advised_fixes(result, evs)
     findings = [dataclasses.replace(f, fix=x) for f, x in zip(result.findings, fixes)]
     return dataclasses.replace(result, findings=findings)

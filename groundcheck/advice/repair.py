@@ -50,7 +50,7 @@ class Evaluation:
     hum_before_dbv: dict = field(default_factory=dict)  # channel -> dBV (floored at HUM_FLOOR_DBV)
     hum_after_dbv: dict = field(default_factory=dict)
     net: dict = field(default_factory=dict)              # severity -> findings cleared less those introduced
-    cleared_keys: set = field(default_factory=set)       # identities of the findings it clears (fixes.identity)
+    cleared_keys: set = field(default_factory=set)       # identities it clears (fixes.identity)
 
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
@@ -61,8 +61,9 @@ class Evaluation:
                 len(self.introduced), len(self.candidate.edits), round(self.candidate.wire, 4), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
-        return {"title": self.candidate.title, "answers": self.candidate.reason, "action": self.candidate.action,
-                "element": self.candidate.element, "score": round(self.score, 3),
+        c = self.candidate
+        return {"title": c.title, "answers": c.reason, "action": c.action, "element": c.element,
+                "score": round(self.score, 3),
                 "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
                 "findings_cleared": self.cleared, "findings_introduced": self.introduced,
                 "rejected": self.rejected or None, "diff": diff}
@@ -71,8 +72,8 @@ class Evaluation:
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
 HUM_FLOOR_DBV = -140.0
 
-#: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding), clearing no
-#: danger or fault, is rejected
+#: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding),
+#: clearing no danger or fault, is rejected
 LOUDER_DB = 0.05
 
 #: a protective path may change by this much (relative) before a change counts as weakening it: the
@@ -115,8 +116,9 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return Evaluation(cand, None, rejected=f"the edited plan does not load ({e.errors[0].one_line()})")
     unwired = lost_wired_returns(plan, p)
     if unwired:
-        return Evaluation(cand, None, rejected=f"it would leave {', '.join(unwired[:3])} without a wired return "
-                          "(the signal would return through the chassis, or not at all)")
+        return Evaluation(cand, None, rejected=f"it would leave {', '.join(unwired[:3])} without "
+                          "a wired return (the signal would return through the chassis, or not "
+                          "at all)")
     after = analyze(p, options)
     ev = Evaluation(cand, after)
     if _through_star(cand, after):
@@ -160,8 +162,9 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
 
 
 def _through_star(cand: Candidate, after: Result) -> bool:
-    """Whether a moved conductor lands where a supply's two returns then meet only at the star (GC103's
-    'join' finding names the star and both returns' points): the trade joins them before it."""
+    """Whether a moved conductor lands where a supply's two returns then meet only at the star
+    (GC103's 'join' finding names the star and both returns' points): the trade joins them
+    before it."""
     if cand.action not in ("move", "join"):
         return False
     c = next((c for c in after.plan.conductors if c.name == cand.element), None)

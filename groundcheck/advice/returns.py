@@ -128,5 +128,6 @@ def lost_wired_returns(before: Plan, after: Plan) -> list[str]:
 
 
 def refuse(c: Candidate | None, why: str) -> Candidate | None:
-    """``c`` marked as considered but never tried, for ``why`` (unchanged when ``why`` is empty)."""
+    """``c`` marked as considered but never tried, for ``why`` (unchanged when ``why`` is
+    empty)."""
     return c if c is None or not why else dataclasses.replace(c, refused=why)

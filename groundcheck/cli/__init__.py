@@ -20,8 +20,8 @@ from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import SUGGEST_EPILOG, add_fix_option, advised, cmd_compare, cmd_suggest
 from .watch import add_watch_command, cmd_watch
-from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of, plan_paths,
-                     processes_type, quantity_type, seconds_type, write_output)
+from .common import (fail_on, Parser, UsageError, add_analysis_options, load_plan, options_of,
+                     plan_paths, processes_type, quantity_type, seconds_type, write_output)
 
 __all__ = ["main"]
 
@@ -73,7 +73,8 @@ def _explain_command(sub) -> None:
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
                        description="Example:\n  groundcheck explain GC102",
                        formatter_class=argparse.RawDescriptionHelpFormatter)
-    e.add_argument("code", metavar="RULE", nargs="?", help="rule code or name (none: list every rule)")
+    e.add_argument("code", metavar="RULE", nargs="?",
+                   help="rule code or name (none: list every rule)")
 
 
 def _draw_command(sub) -> None:
@@ -188,7 +189,8 @@ def _check_side_by_side(args) -> list:
     options = [replace(options_of(args), jobs=1)] * len(args.plans)
     try:
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            return list(pool.map(_check_one, args.plans, options, [args.advice_budget] * len(options)))
+            budgets = [args.advice_budget] * len(options)
+            return list(pool.map(_check_one, args.plans, options, budgets))
     except BrokenProcessPool:
         raise GroundcheckError("a worker process of --jobs died before it finished (killed, or out of memory); "
                                "run with --jobs 1") from None
@@ -208,8 +210,8 @@ def cmd_check(args) -> int:
     else:
         for path in args.plans:
             plan = load_plan(path, args.jobs)
-            results.append(advised(_analyze_with_progress(analyze, plan, options_of(args), path), path,
-                                   args.advice_budget))
+            result = _analyze_with_progress(analyze, plan, options_of(args), path)
+            results.append(advised(result, path, args.advice_budget))
     failing = any(r.fails(fail_on(args)) for r in results)
     if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console

@@ -15,8 +15,8 @@ from .common import UsageError, load_plan, options_of, write_output
 __all__ = ["cmd_suggest", "cmd_compare", "add_fix_option", "advised", "SUGGEST_EPILOG"]
 
 #: the exit status of ``suggest``
-SUGGEST_EPILOG = ("Exit status: 0 no danger left after the combined set of changes, 1 a danger remains after it, "
-                  "2 the plan or the command could not be used.")
+SUGGEST_EPILOG = ("Exit status: 0 no danger left after the combined set of changes, 1 a danger "
+                  "remains after it, 2 the plan or the command could not be used.")
 
 
 class _progress:
@@ -140,16 +140,18 @@ def _compare_fails(d: dict, fail_on: str) -> bool:
 
 
 def add_fix_option(parser) -> None:
-    """--advice-budget: the time the advisor may take to check each finding's fix line (check, report)."""
+    """--advice-budget: the time the advisor may take to check each finding's fix line (check,
+    report)."""
     parser.add_argument("--advice-budget", type=float, default=10.0, metavar="SECONDS",
-                        help="time the advisor may take to try each finding's fix on the plan, so that "
-                        "a fix line is a change it accepts (default 10 s; 0: the rules' own fix lines)")
+                        help="time the advisor may take to try each finding's fix on the plan, so "
+                        "that a fix line is a change it accepts (default 10 s; 0: the rules' own "
+                        "fix lines)")
 
 
 def advised(result, path: str, budget: float):
-    """``result`` with each finding's fix line from the advisor (groundcheck.advice.fixes): its best accepted
-    change for the finding, or what it considered and why not.  A plan read from standard input, or a budget
-    of 0, keeps the rules' own lines."""
+    """``result`` with each finding's fix line from the advisor (groundcheck.advice.fixes): its
+    best accepted change for the finding, or what it considered and why not.  A plan read from
+    standard input, or a budget of 0, keeps the rules' own lines."""
     if not budget or budget <= 0 or path == "-" or not result.findings:
         return result
     from ..advice.fixes import advised_result

@@ -198,12 +198,14 @@ def write_output(text: str, output: str | None, inputs: list[str]) -> None:
 
 
 def plan_paths(names: list[str]) -> list[str]:
-    """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders skipped)."""
+    """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders
+    skipped)."""
     out = []
     for name in names:
         p = Path(name)
         if name != "-" and p.is_dir():
-            found = sorted(str(f) for f in p.rglob("*.gplan") if not any(part.startswith(".") for part in f.parts))
+            found = sorted(str(f) for f in p.rglob("*.gplan")
+                           if not any(part.startswith(".") for part in f.parts))
             if not found:
                 raise UsageError(f"folder {name} holds no .gplan file")
             out.extend(found)

@@ -144,13 +144,13 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
 
 
 def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:
-    """The protective side less its dead ends: a point (not a metal part or earth terminal) joined to the rest of
-    the side by one conductor carries no fault current to any part (a socket's sleeve fastened to the chassis
-    whose other wiring runs into the signal circuit), so its fastening is no protective path; pruned until none
-    is left."""
+    """The protective side less its dead ends: a point (not a metal part or earth terminal)
+    joined to the rest of the side by one conductor carries no fault current to any part (a
+    socket's sleeve fastened to the chassis whose other wiring runs into the signal circuit), so
+    its fastening is no protective path; pruned until none is left."""
     side = set(side)
-    degree = {u: sum(len([k for k in keys if k in cost]) for v, keys in adj[u].items() if v in side and v != u)
-              for u in side}
+    degree = {u: sum(len([k for k in keys if k in cost])
+                     for v, keys in adj[u].items() if v in side and v != u) for u in side}
     stack = [u for u in side if u not in ends and degree[u] <= 1]
     while stack:
         u = stack.pop()

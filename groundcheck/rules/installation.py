@@ -84,7 +84,7 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
     out = []
     for c in plan.conductors:
         if c.kind != "interconnect" or not c.connects or not c.balanced:
-            continue          # an unbalanced link's shield is its signal return: on the signal ground it belongs
+            continue          # an unbalanced link's shield is its signal return: it belongs there
         for end, landing in zip((c.a, c.b), shield_ends(c)):
             dev = device_of(end, devices) if landing == "signal" else None
             chassis = device_chassis(dev, own.get(dev, []), metals, end) if dev else None

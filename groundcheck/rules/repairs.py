@@ -54,8 +54,8 @@ def shield_fix(ctx, c, keep: str, lift: str) -> tuple[str, tuple]:
         return (f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
                 (("terminate-at", c.name, keep),))
     return (f"keep both ends: {c.name} is the only return of {alone} (opened at either end, "
-            f"{alone} would float); to keep other currents off the signal's return, use a screened "
-            f"pair whose second core is the return, with the screen at {keep} only", ())
+            f"{alone} would float); to keep other currents off the signal's return, use a "
+            f"screened pair whose second core is the return, with the screen at {keep} only", ())
 
 
 def supply_ends(plan) -> set[frozenset]:
@@ -83,8 +83,8 @@ def supply_meetings(ctx) -> list[tuple]:
     Parameters:
         ctx: the audit context.
     Returns:
-        (rectifier, point, other point, star, conductor): moving the conductor's star end to the
-        other point joins them before the star.
+        (location, elements, message, fix, actions) of each: the action ("join", conductor,
+        point) moves the conductor's star end to the point, joining them before the star.
     References:
         common practice (join them by a short wire of their own, then one wire to the star).
     """
@@ -104,6 +104,12 @@ def supply_meetings(ctx) -> list[tuple]:
             except nx.NetworkXNoPath:
                 continue
             star = next((n for n in path[1:-1] if n in stars), None)
-            if star is not None and not any(n in ctx.metals for n in path):
-                out.append((r, x, y, star, next(iter(ctx.G[path[0]][path[1]]))))
+            if star is None or any(n in ctx.metals for n in path):
+                continue
+            link = next(iter(ctx.G[path[0]][path[1]]))
+            out.append((r.location, (star, x, y, link),
+                        f"the current of {r.name} between {x} and {y} flows through star {star}: "
+                        "they meet only there",
+                        f"join {x} to {y} by a short wire of their own ({link}), then one wire "
+                        f"to {star}", (("join", link, y),)))
     return out

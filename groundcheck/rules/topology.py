@@ -112,7 +112,8 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
         star = path[-1]
         if groups.get(star) and groups.get(t) != groups.get(star):
             continue          # a star placed in a block or device gathers that placement's returns only
-        via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in ctx.source_pairs | supplies]
+        via = [n for n in path[1:-1]
+               if n in terminals and frozenset((t, n)) not in ctx.source_pairs | supplies]
         if via:
             chains.setdefault(star, []).append((t, via[0]))
     for star, pairs in sorted(chains.items()):
@@ -123,11 +124,8 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
                            {"chained_returns": len(pairs)},
                            "; ".join(f"run {t} to {star} by a wire of its own" for t, _ in pairs)))
     out += _stars_through_other_placements(ctx, stars, groups, allowed)
-    for r, x, y, star, link in supply_meetings(ctx):
-        out.append(Finding("GC103", "warning", f"the current of {r.name} between {x} and {y} flows through star "
-                           f"{star}: they meet only there", r.location, (star, x, y, link), {"chained_returns": 1},
-                           f"join {x} to {y} by a short wire of their own ({link}), then one wire to {star}",
-                           (("join", link, y),)))
+    out += [Finding("GC103", "warning", msg, loc, elements, {"chained_returns": 1}, fix, acts)
+            for loc, elements, msg, fix, acts in supply_meetings(ctx)]
     return out
 
 
