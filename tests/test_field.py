@@ -182,6 +182,7 @@ def test_phono_first_fix_removes_the_supply_boxs_own_bond_in_its_own_plan():
     # compare, as the reviewer ran it)
     assert round(first.hum_before_dbv["amp"], 1) == -63.9
     assert first.hum_after_dbv["amp"] <= HUM_FLOOR_DBV and first.introduced == []
+    assert len(first.cleared) == 5
 
 
 def test_phono_never_touches_the_bought_amplifier_its_sockets_or_the_protective_earth():
