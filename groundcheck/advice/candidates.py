@@ -13,19 +13,22 @@ from __future__ import annotations
 
 import math
 
-from ..model.kinds import (SIGNAL, is_fastening, is_fastening_kind, is_hookup, joins_devices,
+from ..model.kinds import (PROTECTIVE, ROLES, SIGNAL, is_fastening, is_fastening_kind, is_hookup, joins_devices,
                            shield_like)
 from ..model.records import PE_POINT, Plan
+from ..rules.catalogue import RULES
 from ..rules.results import Result
 from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, STUD_CLEARANCE, Candidate,
                       ChangeContext, delete_change, device_note, local_name, reroute, rephrase, squeeze)
 from .edits import Edit
 from .installation_changes import installation_candidates, shield_to_chassis
+from .returns import insulate_candidates
 
 __all__ = ["Candidate", "candidates"]
 
 
 def _loop_candidates(ctx: ChangeContext, add) -> None:
+    insulate_candidates(ctx, add)         # a fastened socket first: the same edit keeps its words
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure" or not lp.open_at:
             continue
@@ -33,8 +36,9 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
         if lp.closed_by == "shield-both-ends" and shield_like(c) and not joins_devices(c):
             continue          # answered by terminating one end, below
         if is_fastening(c, ctx.metals):
-            add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated socket or shoulder "
-                              f"washers) to open the loop closed by {lp.closed_by}", "GC101"))
+            add(delete_change(ctx, lp.open_at, f"insulate {lp.open_at} from the metal (insulated "
+                              f"socket or shoulder washers) to open the loop closed by "
+                              f"{lp.closed_by}", "GC101", "insulate"))
         else:
             add(delete_change(ctx, lp.open_at, f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
                               "GC101"))
@@ -43,21 +47,24 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
                 and st is not None):
             ends = ctx.src.ends(st)
             if ends is not None:
-                indent = ctx.src.lines[st.loc.line - 1][: st.loc.column - 1]
+                indent = ctx.src.lines_of(st.loc.file)[st.loc.line - 1][: st.loc.column - 1]
                 new = f"{indent}lift {st.label}: {ends[0].text} to {ends[1].text}, 10 ohm, 47 nF"
+                file = None if st.loc.file == ctx.plan.file else st.loc.file
+                edit = Edit(st.loc.line, new, (), ctx.src.last_line(st), file)
                 add(Candidate(f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)", "GC101",
-                              (Edit(st.loc.line, new, (), ctx.src.last_line(st)),), ctx.protective(c)))
+                              (edit,), ctx.protective(c), action="lift-network",
+                              element=lp.open_at))
 
 
 def _finding_candidates(ctx: ChangeContext, add) -> None:
     for f in ctx.result.findings:
-        if f.code == "GC108":
+        if f.code == "GC108" and f.actions:        # none when the shield is an end's only return
             (_, shield, keep), = f.actions
             c = ctx.cond[shield]
             st = ctx.statement(c)
             if st is not None:
                 add(rephrase(ctx, c, ("terminated", "both"), f"terminated {local_name(c.name, st.label or '', keep)}",
-                              f"terminate shield {c.name} at {keep} only", "GC108"))
+                             f"terminate shield {c.name} at {keep} only", "GC108"))
         elif f.code == "GC105":
             for verb, e in f.actions:
                 c = ctx.cond.get(e)
@@ -65,7 +72,8 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
                     continue          # a shield is lifted at one end (GC108), not removed
                 what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
                     else "remove the second chassis bond {e}"
-                add(delete_change(ctx, e, what.format(e=e), "GC105"))
+                action = "insulate" if verb == "insulate" else "remove"
+                add(delete_change(ctx, e, what.format(e=e), "GC105", action))
         elif f.code == "GC103":
             _star_candidates(ctx, f, add)
         elif f.code == "GC202":
@@ -76,18 +84,46 @@ def _finding_candidates(ctx: ChangeContext, add) -> None:
             add(_bonding_wire(ctx, f))
         elif f.code == "GC113":
             add(shield_to_chassis(ctx, f))
+        elif f.code not in ("GC101", "GC102", "GC304"):
+            _action_candidates(ctx, f, add)
+
+
+def _action_candidates(ctx: ChangeContext, f, add) -> None:
+    """Any other rule's structured actions (a rule added later needs no code here): ("reroute",
+    conductor, point) moves the conductor's end nearer the point onto it; ("remove", conductor) and
+    ("insulate", fastening) delete it.  Each is evaluated like every candidate."""
+    import networkx as nx
+    for verb, name, *where in f.actions:
+        c = ctx.cond.get(name)
+        if c is None or f.code not in RULES:
+            continue
+        if verb in ("reroute", "move", "join") and where and where[0] in ctx.G:
+            dist = nx.single_source_shortest_path_length(ctx.G, where[0])
+            near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
+            far = c.b if near == c.a else c.a
+            add(reroute(ctx, name, near, where[0],
+                        f"take {far} to {where[0]} by its own wire ({name})", f.code,
+                        "join" if verb == "join" else "move"))
+        elif verb in ("remove", "insulate"):
+            add(delete_change(ctx, name, f"{verb} {name}", f.code, verb))
 
 
 def _star_candidates(ctx: ChangeContext, f, add) -> None:
     import networkx as nx
     for verb, name, *where in f.actions:     # a star reaching the common star through another channel's
         c = ctx.cond.get(name)
-        if verb != "reroute" or c is None or not where:
+        if verb not in ("reroute", "join") or c is None or not where:
             continue
         dist = nx.single_source_shortest_path_length(ctx.G, where[0])
         near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
         far = c.b if near == c.a else c.a
-        add(reroute(ctx, name, near, where[0], f"run {far} to {where[0]} by its own wire ({name})", "GC103"))
+        if verb == "join":                    # a supply's two returns meeting only at the star
+            add(reroute(ctx, name, near, where[0],
+                        f"join {far} straight to {where[0]} ({name}), so the supply's current "
+                        "circulates between them and leaves the star", "GC103", "join"))
+        else:
+            add(reroute(ctx, name, near, where[0],
+                        f"run {far} to {where[0]} by its own wire ({name})", "GC103"))
     if f.actions:
         return
     stars = [e for e in f.elements if e in ctx.stars]
@@ -146,12 +182,32 @@ def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
     if other is not None and other.pos is not None and old_len is not None:
         length = math.dist(other.pos, where) * (1 + ROUTE_ALLOWANCE)
         changes.append((old_len, f"{max(length, 10e-3) * 1e3:.0f} mm"))
-    edit = ctx.src.replace(st, changes, drop_comment=True)
+    edit = ctx.src.replace(st, _written_protective(ctx, st, changes))     # its comment stays
     x, y = where[0] * 1e3, where[1] * 1e3
     edit = Edit(edit.line, edit.new, (f"point {new_pt}: stud, at {x:.0f},{y:.0f} on {part}",
-                                      f"bolt {new_pt}_nut: {new_pt} to {part}"), edit.last)
-    return Candidate(f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, clear of "
-                     "other parts and fastenings)", "GC202", (edit,), touches_protective=False)
+                                      f"bolt {new_pt}_nut: {new_pt} to {part}"),
+                edit.last, edit.file)
+    return Candidate(f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} "
+                     f"on {part}, clear of other parts and fastenings): {pe.name}'s end moves "
+                     "there, its section and comment kept", "GC202", (edit,), touches_protective=False,
+                     action="own-stud", element=pe.name)
+
+
+def _written_protective(ctx: ChangeContext, st, changes: list) -> list:
+    """``changes`` of a protective conductor's statement, with its role written ``protective``: a
+    role word it has is replaced, else ``, protective`` follows its last item (its section is
+    never changed)."""
+    if ctx.src.find(st, PROTECTIVE):
+        return changes
+    for word in (r for r in ROLES if r != PROTECTIVE):
+        ph = ctx.src.find(st, word)
+        if ph and len(ph) == 1:
+            return changes + [(ph[0], "protective")]
+    last = st.phrases[-1][-1]
+    mine = dict((id(it), new) for it, new in changes)
+    n, a, b = ctx.src.span(last)
+    text = mine.get(id(last), ctx.src.lines_of(st.loc.file)[n - 1][a:b])
+    return [c for c in changes if c[0] is not last] + [(last, text + ", protective")]
 
 
 def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
@@ -185,14 +241,25 @@ def _bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
     length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), 10e-3) * 1e3
     mm = [round(v * 1e3) for v in (*start, *end)]
-    same = ctx.src.replace(st, [])
-    edit = Edit(same.line, same.new, (f"point {a}: stud, at {mm[0]},{mm[1]} on {home}", f"bolt {a}_nut: {a} to {home}",
-                                      f"point {b}: stud, at {mm[2]},{mm[3]} on {part}", f"bolt {b}_nut: {b} to {part}",
-                                      f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective"),
-                same.last)
+    extra = (f"point {a}: stud, at {mm[0]},{mm[1]} on {home}", f"bolt {a}_nut: {a} to {home}",
+             f"point {b}: stud, at {mm[2]},{mm[3]} on {part}", f"bolt {b}_nut: {b} to {part}",
+             f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective")
+    edit = _at_end(ctx, st, extra)
     return Candidate(f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud {a} on "
                      f"{home} beside {landing.name} to a new stud {b} on {part}; bare metal under toothed washers)",
-                     f.code, (edit,), touches_protective=False, wire=length / 1e3)
+                     f.code, (edit,), touches_protective=False, wire=length / 1e3, action="bond",
+                     element=part)
+
+
+def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
+    """New statements at the end of the file ``st`` is in (top level), so that they never share
+    lines with another change's edit (the combined set keeps both)."""
+    lines = ctx.src.lines_of(st.loc.file)
+    file = None if st.loc.file == ctx.plan.file else st.loc.file
+    n = len(lines)
+    if lines[-1] == "":
+        return Edit(n, "\n".join(extra) + "\n", (), n, file)
+    return Edit(n, lines[-1], extra, n, file)
 
 
 def _thicker(ctx: ChangeContext, f) -> Candidate | None:
@@ -216,7 +283,8 @@ def _thicker(ctx: ChangeContext, f) -> Candidate | None:
         edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
         edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
     return Candidate(f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
-                     f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False)
+                     f"protective conductor {c.name}", "GC204", (edit,), touches_protective=False,
+                     action="thicken", element=c.name)
 
 
 def _join_ends(ctx: ChangeContext, row, add) -> None:
@@ -232,7 +300,7 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
                              f"{row.source} current stays between them and leaves {', '.join(row.shared)}",
-                             "GC102"))
+                             "GC102", "join"))
 
 
 def _shared_return_candidates(ctx: ChangeContext, add) -> None:
@@ -255,7 +323,8 @@ def _shared_return_candidates(ctx: ChangeContext, add) -> None:
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
                             add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), "
-                                         f"so the {row.source} current leaves {shared}", "GC102"))
+                                         f"so the {row.source} current leaves {shared}", "GC102",
+                                         "join"))
             for p in (stage.b, stage.a):
                 star = ctx.nearest_star(p)
                 for d in plan.conductors:
@@ -294,8 +363,8 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
             out.append(device_note(c, plan.file))
 
     _loop_candidates(ctx, add)
+    _shared_return_candidates(ctx, add)   # before the star's: the same join answers GC102 first
     _finding_candidates(ctx, add)
     installation_candidates(ctx, add)
-    _shared_return_candidates(ctx, add)
     _crosstalk_candidates(ctx, add)
     return out

@@ -16,8 +16,8 @@ from ..rules.results import Result
 from .edits import Edit, PlanTexts, shown_path
 
 __all__ = ["Candidate", "ChangeContext", "STUD_CLEARANCE", "SOURCE_CLEARANCE", "STANDARD_SECTIONS_MM2",
-           "ROUTE_ALLOWANCE", "local_name", "block_note", "device_note", "delete_change", "route_length", "reroute",
-           "rephrase", "squeeze"]
+           "ROUTE_ALLOWANCE", "ACTIONS", "local_name", "block_note", "device_note",
+           "delete_change", "route_length", "reroute", "rephrase", "squeeze"]
 
 #: a new stud keeps at least this distance from every other fastening and point of the part, m (common practice:
 #: room for a nut, a lock washer and a crimp lug)
@@ -31,6 +31,16 @@ STANDARD_SECTIONS_MM2 = (0.5, 0.75, 1.0, 1.5, 2.5, 4.0, 6.0, 10.0, 16.0, 25.0, 3
 ROUTE_ALLOWANCE = 0.2
 
 
+#: the actions of candidates (Candidate.action), each a trade's change: insulate a fastened
+#: socket, jack, pot or terminal from the metal; remove a conductor; replace one by a lift network;
+#: move a conductor's end; join two returns' ends; terminate a shield at one end; land a shield on
+#: the chassis; use a balanced link; give a device a ground-lift network; plug a device in
+#: elsewhere; give the protective earth its own stud; thicken a protective conductor; bond a part
+#: by a protective wire of its own
+ACTIONS = ("insulate", "remove", "lift-network", "move", "join", "terminate-at",
+           "shield-to-chassis", "balance", "device-lift", "replug", "own-stud", "thicken", "bond")
+
+
 @dataclass(frozen=True)
 class Candidate:
     title: str
@@ -39,6 +49,9 @@ class Candidate:
     touches_protective: bool = False
     wire: float = 0.0               # metres of wire the change lays (a re-routed wire's new length): its size
     moves_plug: bool = False        # it plugs a device in elsewhere: the building's runs its earth used may change
+    action: str = ""                # what it does, in one word of :data:`ACTIONS`
+    element: str = ""               # the element it changes (model name), or the one it answers
+    refused: str = ""               # why it is considered, never tried (bought equipment, say)
 
 
 class ChangeContext:
@@ -53,6 +66,14 @@ class ChangeContext:
     def protective(self, c) -> bool:
         """Protective by topology or by role (groundcheck.network.earthing): never removed, re-routed or lifted."""
         return c.name in self.result.protective or c.role == PROTECTIVE
+
+    def same_file(self, st, point: str) -> bool:
+        """Whether point ``point`` can be named in statement ``st``: any point in the main plan;
+        in a device's own plan, only a point written in that plan."""
+        if st.loc.file == self.plan.file:
+            return True
+        p = self.points.get(point)
+        return p is not None and p.location.file == st.loc.file
 
     def statement(self, c):
         """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan (its name
@@ -110,13 +131,15 @@ def device_note(c: "Candidate", main: str) -> "Candidate":
                                "--apply writes a changed copy beside the new plan, never the original)")
 
 
-def delete_change(ctx: ChangeContext, name: str, title: str, reason: str) -> Candidate | None:
+def delete_change(ctx: ChangeContext, name: str, title: str, reason: str,
+                  action: str = "remove") -> Candidate | None:
     c = ctx.cond.get(name)
     st = ctx.statement(c) if c is not None else None
-    if c is None or joins_devices(c) or st is None:
-        return None
+    if c is None or joins_devices(c) or st is None or st.keyword != c.kind:
+        return None     # (a conductor a 'device ...: simple' statement makes: bought equipment's)
     note = block_note(c.name, st.label or "") if st.loc.file == ctx.plan.file else ""
-    return Candidate(title + note, reason, (ctx.src.delete(st),), ctx.protective(c))
+    return Candidate(title + note, reason, (ctx.src.delete(st),), ctx.protective(c),
+                     action=action, element=name)
 
 
 def route_length(ctx: ChangeContext, c, a: str, b: str) -> float | None:
@@ -128,11 +151,16 @@ def route_length(ctx: ChangeContext, c, a: str, b: str) -> float | None:
     return sum(math.dist(p, q) for p, q in zip(path, path[1:])) * (1 + ROUTE_ALLOWANCE)
 
 
-def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason: str) -> Candidate | None:
-    """Move the ``end`` of conductor ``name`` to point ``to``; its length follows the new route."""
+def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason: str,
+            action: str = "move") -> Candidate | None:
+    """Move the ``end`` of conductor ``name`` to point ``to``; its length follows the new route.
+    None when the statement is in a device's own plan and ``to`` is not in that plan (one
+    statement never names points of two files)."""
     c = ctx.cond.get(name)
     st = ctx.statement(c) if c is not None else None
     if c is None or st is None or shield_like(c) or to == end:
+        return None
+    if not ctx.same_file(st, to):
         return None
     items = ctx.src.ends(st)
     if items is None:
@@ -154,10 +182,12 @@ def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason
         title += f"; new length {length * 1e3:.0f} mm (straight route + {ROUTE_ALLOWANCE:.0%})"
     edit = ctx.src.replace(st, changes, drop_comment=True)
     note = block_note(c.name, label) if st.loc.file == ctx.plan.file else ""
-    return Candidate(title + note, reason, (edit,), ctx.protective(c), wire=length or 0.0)
+    return Candidate(title + note, reason, (edit,), ctx.protective(c), wire=length or 0.0,
+                     action=action, element=name)
 
 
-def rephrase(ctx: ChangeContext, c, words: tuple[str, ...], new: str, title: str, reason: str, protective=None):
+def rephrase(ctx: ChangeContext, c, words: tuple[str, ...], new: str, title: str, reason: str,
+             protective=None, action: str = "terminate-at"):
     """Replace the phrase of ``c``'s statement that starts with ``words`` by ``new``."""
     st = ctx.statement(c)
     ph = ctx.src.find(st, *words) if st is not None else None
@@ -166,7 +196,7 @@ def rephrase(ctx: ChangeContext, c, words: tuple[str, ...], new: str, title: str
     edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
     edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
     touches = ctx.protective(c) if protective is None else protective
-    return Candidate(title, reason, (edit,), touches)
+    return Candidate(title, reason, (edit,), touches, action=action, element=c.name)
 
 
 def squeeze(text: str, new: str) -> str:

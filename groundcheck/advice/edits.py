@@ -208,6 +208,10 @@ class PlanTexts:
                 return None
         return self.others[file].statement(line)
 
+    def lines_of(self, file: str) -> list[str]:
+        """The lines of the main plan or of a device plan already read."""
+        return self._of(file)[0].lines
+
     def _of(self, file: str) -> tuple[PlanText, str | None]:
         return (self.main, None) if file == self.file else (self.others[file], file)
 

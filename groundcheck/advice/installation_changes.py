@@ -13,6 +13,7 @@ from ..rules.protective import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
 from .changes import Candidate, ChangeContext, squeeze
 from .edits import Edit
+from .returns import refuse, refused_balanced
 
 __all__ = ["installation_candidates", "shield_to_chassis"]
 
@@ -54,8 +55,9 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
             continue
         ph = ctx.src.find(st, "unbalanced")
         if ph:
-            add(Candidate(f"use a balanced interconnect for {name}", "GC101", (ctx.src.replace(st, [(ph[0],
-                                                                                                     "balanced")]),)))
+            edit = ctx.src.replace(st, [(ph[0], "balanced")])
+            add(refuse(Candidate(f"use a balanced interconnect for {name}", "GC101", (edit,),
+                                 action="balance", element=name), refused_balanced(ctx, c)))
         for end in (c.a, c.b):
             pt = ctx.plan.point(end)
             if pt is None or not pt.group:
@@ -69,9 +71,13 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
             ph = ctx.src.find(dst, "signal-ground")
             edit = ctx.src.replace(dst, [(ph[1], "lift")]) if ph and len(ph) > 1 else _appended(ctx, dst,
                                                                                                  "signal-ground lift")
-            add(Candidate(f"give {dev} a ground-lift network between its signal ground and chassis (never the "
-                          "protective earth)",
-                          "GC101", (edit,)))
+            # a device placed by a 'device ...: simple' statement is bought equipment: its inside
+            # is its maker's
+            lift = Candidate(f"give {dev} a ground-lift network between its signal ground and "
+                             "chassis (never the protective earth)", "GC101", (edit,),
+                             action="device-lift", element=dev)
+            add(refuse(lift, f"{dev} is bought equipment: a ground-lift switch of its maker's, or "
+                       "a qualified technician, only"))
 
 
 def _replug_candidates(ctx: ChangeContext, add) -> None:
@@ -95,7 +101,8 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
                 add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both, within "
                               f"its current rating: the loop of {name} no longer runs through the building's earth "
                               "wiring)", "GC101",
-                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True))
+                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True,
+                              action="replug", element=dev.name))
 
 
 def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
@@ -120,7 +127,8 @@ def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
             if ph and len(ph) == 2 and there != dev.plugged and fits(dev, there):
                 add(Candidate(f"plug {dev.name} in at {there}, whose earth path is sound (and have the protective "
                               f"connection of {dev.plugged} repaired before anything is plugged into it)", "GC215",
-                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True))
+                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True,
+                              action="replug", element=dev.name))
 
 
 def _fits(plan: Plan):
@@ -157,5 +165,11 @@ def shield_to_chassis(ctx: ChangeContext, f):
     new = "shield-to chassis" if ends == ["chassis", "chassis"] else f"shield-to {ends[0]} {ends[1]}"
     ph = ctx.src.find(st, "shield-to")
     edit = (ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]]) if ph else _appended(ctx, st, new))
-    return Candidate(f"land the shield of {name} on the chassis where it enters, not on the signal ground at {end}",
-                     "GC113", (Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last),))
+    edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
+    cand = Candidate(f"land the shield of {name} on the chassis where it enters, not on the "
+                     f"signal ground at {end}", "GC113", (edit,), action="shield-to-chassis",
+                     element=name)
+    # an unbalanced link's shield is its signal return: on the chassis, the signal would return
+    # through it
+    return refuse(cand, f"{name} is not balanced: its shield is the return of what it carries "
+                  "and stays on the ground it returns to" if not c.balanced else "")

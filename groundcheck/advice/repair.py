@@ -28,6 +28,8 @@ from ..language.loader import load_text, substituted
 from ..model.records import Plan
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, edited_texts, text_diff, unified_diff
+from .fixes import identity
+from .returns import lost_wired_returns
 
 __all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits",
            "unified_diff",
@@ -48,6 +50,7 @@ class Evaluation:
     hum_before_dbv: dict = field(default_factory=dict)  # channel -> dBV (floored at HUM_FLOOR_DBV)
     hum_after_dbv: dict = field(default_factory=dict)
     net: dict = field(default_factory=dict)              # severity -> findings cleared less those introduced
+    cleared_keys: set = field(default_factory=set)       # identities it clears (fixes.identity)
 
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
@@ -58,7 +61,9 @@ class Evaluation:
                 len(self.introduced), len(self.candidate.edits), round(self.candidate.wire, 4), self.candidate.title)
 
     def as_dict(self, diff: str = "") -> dict:
-        return {"title": self.candidate.title, "answers": self.candidate.reason, "score": round(self.score, 3),
+        c = self.candidate
+        return {"title": c.title, "answers": c.reason, "action": c.action, "element": c.element,
+                "score": round(self.score, 3),
                 "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
                 "findings_cleared": self.cleared, "findings_introduced": self.introduced,
                 "rejected": self.rejected or None, "diff": diff}
@@ -67,8 +72,9 @@ class Evaluation:
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
 HUM_FLOOR_DBV = -140.0
 
-#: a change that makes a channel's hum louder by more than this (dB), clearing no danger or fault, is rejected
-LOUDER_DB = 0.5
+#: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding),
+#: clearing no danger or fault, is rejected
+LOUDER_DB = 0.05
 
 #: a protective path may change by this much (relative) before a change counts as weakening it: the
 #: plate model's own accuracy (see groundcheck.plate)
@@ -82,19 +88,8 @@ def _hum_db(r: Result) -> dict[str, float]:
             for ch, h in r.hum.channels.items()}
 
 
-def _identity(f) -> tuple:
-    """What makes a finding the same finding before and after a change: a loop is where it is to be opened, a
-    shared return or a contributor its (source, stage) or (element, source) pair, anything else its elements —
-    so that a loop that merely gains a member does not count as one cleared and one introduced."""
-    if f.code == "GC101":
-        return (f.code, f.location.file, f.location.line)
-    if f.code in ("GC102", "GC301", "GC302", "GC303"):
-        return (f.code, *f.elements[:2])
-    return (f.code, *sorted(f.elements))
-
-
 def _keys(r: Result):
-    return {_identity(f): f for f in r.open_findings()}
+    return {identity(f): f for f in r.open_findings()}
 
 
 def _label(f) -> str:
@@ -111,14 +106,24 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     """Apply a candidate to the text, re-analyse, and score it against ``before``."""
     if cand.touches_protective:
         return Evaluation(cand, None, rejected="it would change a protective conductor")
+    if cand.refused:
+        return Evaluation(cand, None, rejected=cand.refused)
     text = apply_edits(base_text, cand.edits)
     try:
         with substituted(edited_texts(cand.edits)):
             p = load_text(text, plan.file, root=root, _resolved=resolved)
     except PlanErrors as e:
         return Evaluation(cand, None, rejected=f"the edited plan does not load ({e.errors[0].one_line()})")
+    unwired = lost_wired_returns(plan, p)
+    if unwired:
+        return Evaluation(cand, None, rejected=f"it would leave {', '.join(unwired[:3])} without "
+                          "a wired return (the signal would return through the chassis, or not "
+                          "at all)")
     after = analyze(p, options)
     ev = Evaluation(cand, after)
+    if _through_star(cand, after):
+        ev.rejected = "it would send a supply's charging or ripple current through the star"
+        return ev
     # a device plugged in elsewhere leaves the building runs it used, but no conductor: its earth path is checked
     # again below (a broken or long one is a danger, GC215)
     lost = sorted(before.protective - after.protective) if not cand.moves_plug else []
@@ -135,7 +140,8 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         ev.rejected = "it would weaken the protective-earth path"
         return ev
     k0, k1 = _keys(before), _keys(after)
-    ev.cleared = sorted(_label(k0[k]) for k in k0.keys() - k1.keys())
+    ev.cleared_keys = set(k0.keys() - k1.keys())
+    ev.cleared = sorted(_label(k0[k]) for k in ev.cleared_keys)
     ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
     new = k1.keys() - k0.keys()
     for k in k0.keys() - k1.keys():                      # the findings' own severities, not their rules' defaults
@@ -153,6 +159,17 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return ev
     _score(ev, before, after, k0, k1)
     return ev
+
+
+def _through_star(cand: Candidate, after: Result) -> bool:
+    """Whether a moved conductor lands where a supply's two returns then meet only at the star
+    (GC103's 'join' finding names the star and both returns' points): the trade joins them
+    before it."""
+    if cand.action not in ("move", "join"):
+        return False
+    c = next((c for c in after.plan.conductors if c.name == cand.element), None)
+    return c is not None and any(f.code == "GC103" and f.actions and f.actions[0][0] == "join"
+                                 and {c.a, c.b} <= set(f.elements) for f in after.findings)
 
 
 def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:

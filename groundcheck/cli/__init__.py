@@ -19,10 +19,10 @@ from ..rules.catalogue import RULES
 from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
-from .advice import cmd_compare, cmd_suggest
+from .advice import SUGGEST_EPILOG, add_fix_option, advised, cmd_compare, cmd_suggest
 from .watch import add_watch_command, cmd_watch
 from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_analysis_options,
-                     load_plan, options_of, processes_type, quantity_type, seconds_type,
+                     load_plan, options_of, plan_paths, processes_type, quantity_type, seconds_type,
                      write_output)
 
 __all__ = ["main"]
@@ -66,6 +66,7 @@ def _check_command(sub) -> None:
                    help="use N processes: several plans are checked side by side; for one plan, a large flat "
                    "file is read by two and the solves (the hum budget's frequencies, the shared returns, the outlet "
                    "voltages) are shared among N (Linux; default 1; at most the processors available)")
+    add_fix_option(c)
     add_analysis_options(c)
 
 
@@ -73,8 +74,8 @@ def _explain_command(sub) -> None:
     e = sub.add_parser("explain", help="say what a rule checks, why, and how to fix it",
                        description="Example:\n  groundcheck explain GC102",
                        formatter_class=argparse.RawDescriptionHelpFormatter)
-    e.add_argument("code", metavar="RULE", nargs="?", help="rule code or name, e.g. GC102 or shared-return (none: list "
-                                                           "every rule)")
+    e.add_argument("code", metavar="RULE", nargs="?",
+                   help="rule code or name (none: list every rule)")
 
 
 def _draw_command(sub) -> None:
@@ -105,6 +106,7 @@ def _report_command(sub) -> None:
     h.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
                    help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
     h.add_argument("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP)
+    add_fix_option(h)
     add_analysis_options(h)
 
 
@@ -115,7 +117,7 @@ def _suggest_command(sub) -> None:
                        "re-run the analysis for each and rank them. Changes that would weaken the protective earth "
                        "are never proposed.\n\nExample:\n"
                        "  groundcheck suggest examples/dual-mono-phono-stage.gplan --apply fixed.gplan",
-                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=SUGGEST_EPILOG)
     s.add_argument("plan", metavar="PLAN")
     s.add_argument("--apply", metavar="NEW_PLAN", help="write the plan with the changes applied to this new file")
     s.add_argument("--pick", type=int, metavar="N", help="with --apply: apply suggestion N instead of the combined set")
@@ -161,11 +163,11 @@ class _Rendered(GroundcheckError):
     """Plan errors already rendered to text (from a worker process)."""
 
 
-def _check_one(path: str, options):
+def _check_one(path: str, options, budget: float = 0.0):
     """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors)."""
     from ..analysis import analyze
     try:
-        return True, analyze(load_plan(path), options)
+        return True, advised(analyze(load_plan(path), options), path, budget)
     except PlanErrors as e:
         return False, e.render()
 
@@ -179,21 +181,6 @@ def _analyze_with_progress(analyze, plan, options, label: str):
         return analyze(plan, options)
 
 
-def _plan_paths(names: list[str]) -> list[str]:
-    """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders skipped)."""
-    out = []
-    for name in names:
-        p = Path(name)
-        if name != "-" and p.is_dir():
-            found = sorted(str(f) for f in p.rglob("*.gplan") if not any(part.startswith(".") for part in f.parts))
-            if not found:
-                raise UsageError(f"folder {name} holds no .gplan file")
-            out.extend(found)
-        else:
-            out.append(name)
-    return out
-
-
 def _check_side_by_side(args) -> list:
     """Each plan checked in a worker process: (True, result) or (False, rendered errors) per plan, in order.  A
     worker that dies is an error, never a wait; no process to start means one process checks them all."""
@@ -202,16 +189,17 @@ def _check_side_by_side(args) -> list:
     options = [replace(options_of(args), jobs=1)] * len(args.plans)
     try:
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
-            return list(pool.map(_check_one, args.plans, options))
+            budgets = [args.advice_budget] * len(options)
+            return list(pool.map(_check_one, args.plans, options, budgets))
     except BrokenProcessPool:
         raise GroundcheckError("a worker process of --jobs died before it finished (killed, or out of memory); "
                                "run with --jobs 1") from None
     except OSError:
-        return [_check_one(p, o) for p, o in zip(args.plans, options)]
+        return [_check_one(p, o, args.advice_budget) for p, o in zip(args.plans, options)]
 
 
 def cmd_check(args) -> int:
-    args.plans = _plan_paths(args.plans)
+    args.plans = plan_paths(args.plans)
     from ..analysis import analyze
     results = []
     if args.jobs > 1 and len(args.plans) > 1:
@@ -222,7 +210,8 @@ def cmd_check(args) -> int:
     else:
         for path in args.plans:
             plan = load_plan(path, args.jobs)
-            results.append(_analyze_with_progress(analyze, plan, options_of(args), path))
+            result = _analyze_with_progress(analyze, plan, options_of(args), path)
+            results.append(advised(result, path, args.advice_budget))
     failing = any(r.fails(fail_on(args)) for r in results)
     if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console
@@ -316,7 +305,8 @@ def cmd_report(args) -> int:
     from ..analysis import analyze
     from ..renderers.formats import html_document
     plan = load_plan(args.plan)
-    result = _analyze_with_progress(analyze, plan, options_of(args), args.plan)
+    result = advised(_analyze_with_progress(analyze, plan, options_of(args), args.plan), args.plan,
+                     args.advice_budget)
     html, warning = html_document(result, args.renderer)
     if warning:
         sys.stderr.write(f"groundcheck: warning: {warning}\n")

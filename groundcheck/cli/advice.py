@@ -12,7 +12,11 @@ from ..core.plain import clean
 from ..renderers.output import write_atomic
 from .common import UsageError, load_plan, options_of, write_output
 
-__all__ = ["cmd_suggest", "cmd_compare"]
+__all__ = ["cmd_suggest", "cmd_compare", "add_fix_option", "advised", "SUGGEST_EPILOG"]
+
+#: the exit status of ``suggest``
+SUGGEST_EPILOG = ("Exit status: 0 no danger left after the combined set of changes, 1 a danger "
+                  "remains after it, 2 the plan or the command could not be used.")
 
 
 class _progress:
@@ -90,7 +94,8 @@ def cmd_suggest(args) -> int:
         for out, _ in files[1:]:
             sys.stderr.write(f"groundcheck: wrote a changed copy of a device plan to {out} (the new plan names it; "
                              "the original is unchanged)\n")
-    return 0
+    # a danger left after the best combined set fails, as check fails on it
+    return 1 if final.fails("danger") else 0
 
 
 def cmd_compare(args) -> int:
@@ -132,3 +137,27 @@ def _compare_fails(d: dict, fail_on: str) -> bool:
         worst = min((severity_rank(s) for s in before), default=len(("danger", "fault", "warning", "note")))
         return any(severity_rank(f["severity"]) <= worst for f in new)
     return False
+
+
+def add_fix_option(parser) -> None:
+    """--advice-budget: the time the advisor may take to check each finding's fix line (check,
+    report)."""
+    parser.add_argument("--advice-budget", type=float, default=10.0, metavar="SECONDS",
+                        help="time the advisor may take to try each finding's fix on the plan, so "
+                        "that a fix line is a change it accepts (default 10 s; 0: the rules' own "
+                        "fix lines)")
+
+
+def advised(result, path: str, budget: float):
+    """``result`` with each finding's fix line from the advisor (groundcheck.advice.fixes): its
+    best accepted change for the finding, or what it considered and why not.  A plan read from
+    standard input, or a budget of 0, keeps the rules' own lines."""
+    if not budget or budget <= 0 or path == "-" or not result.findings:
+        return result
+    from ..advice.fixes import advised_result
+    from ..advice.repair import suggest
+    p = Path(path)
+    text = p.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
+    _, evs = suggest(result.plan, text, result.options, p.resolve().parent, p.resolve(),
+                     budget=budget, before=result)
+    return advised_result(result, evs)

@@ -17,7 +17,7 @@ from ..rules.selection import UnknownRule, codes_of
 from .settings import load_settings, shown_value
 
 __all__ = ["FAIL_HELP", "FAIL_LEVELS", "UsageError", "Parser", "quantity_type", "seconds_type",
-           "processes_type", "add_analysis_options", "options_of", "load_plan", "write_output"]
+           "processes_type", "add_analysis_options", "options_of", "load_plan", "write_output", "plan_paths"]
 
 
 class UsageError(GroundcheckError):
@@ -202,3 +202,20 @@ def write_output(text: str, output: str | None, inputs: list[str]) -> None:
         sys.stdout.write(text)
         return
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
+
+
+def plan_paths(names: list[str]) -> list[str]:
+    """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders
+    skipped)."""
+    out = []
+    for name in names:
+        p = Path(name)
+        if name != "-" and p.is_dir():
+            found = sorted(str(f) for f in p.rglob("*.gplan")
+                           if not any(part.startswith(".") for part in f.parts))
+            if not found:
+                raise UsageError(f"folder {name} holds no .gplan file")
+            out.extend(found)
+        else:
+            out.append(name)
+    return out

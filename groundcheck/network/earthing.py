@@ -137,7 +137,29 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     unmarked = tuple(sorted(k for k in route if conds[k].role not in PROTECTIVE_ROLES))
     marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
-    side = done - (blocked - set(roots))
+    side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)
     keep = {k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost}
     return ProtectiveRoute(frozenset(route | marked), unmarked, frozenset(route | marked | keep), frozenset(targets),
                            marked_reach, parent, tuple(roots))
+
+
+def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:
+    """The protective side less its dead ends: a point (not a metal part or earth terminal)
+    joined to the rest of the side by one conductor carries no fault current to any part (a
+    socket's sleeve fastened to the chassis whose other wiring runs into the signal circuit), so
+    its fastening is no protective path; pruned until none is left."""
+    side = set(side)
+    degree = {u: sum(len([k for k in keys if k in cost])
+                     for v, keys in adj[u].items() if v in side and v != u) for u in side}
+    stack = [u for u in side if u not in ends and degree[u] <= 1]
+    while stack:
+        u = stack.pop()
+        if u not in side:
+            continue
+        side.discard(u)
+        for v, keys in adj[u].items():
+            if v in side and v != u:
+                degree[v] -= len([k for k in keys if k in cost])
+                if v not in ends and degree[v] <= 1:
+                    stack.append(v)
+    return side

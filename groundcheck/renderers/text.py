@@ -109,6 +109,10 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
                           f"{_fmt(h.signal_to_hum, ' dB', 3) if h.total_v > 0 else 'unlimited'}, {verdict}"
                           + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else "")
                           + _signed_words(h))
+        if result.rectifiers:
+            console.print(Text("  (ground-borne hum only: a supply's ripple through the stages' "
+                               "own supply rejection is not in these figures; see the rectifier "
+                               "table)", style="dim"))
     if caution:
         console.print(Text(CAUTION, style="bold yellow"))
     console.print()

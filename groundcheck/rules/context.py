@@ -229,6 +229,9 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
     if closed_by == "second-chassis-bond":
         # a signal point fastened to the metal (an uninsulated jack, say) is the bond to remove
         ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {x for r in ctx.plan.currents for x in (r.a, r.b)}
+        # a socket, jack, pot or terminal fastened to the metal too: insulating it keeps its return
+        sockets = ("sleeve", "jack", "pot", "terminal")
+        ends |= {p.name for p in ctx.plan.points if p.kind in sockets}
         bolts = [c for c in candidates if is_fastening_kind(c.kind)
                  and ((c.a in ctx.metals and c.b in ends) or (c.b in ctx.metals and c.a in ends))]
         if bolts:

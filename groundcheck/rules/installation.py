@@ -83,8 +83,8 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
     own = conductors_by_device(plan.conductors, devices)
     out = []
     for c in plan.conductors:
-        if not joins_devices(c) or not c.connects:
-            continue
+        if not joins_devices(c) or not c.connects or not c.balanced:
+            continue          # an unbalanced link's shield is its signal return: it belongs there
         for end, landing in zip((c.a, c.b), shield_ends(c)):
             dev = device_of(end, devices) if landing == "signal" else None
             chassis = device_chassis(dev, own.get(dev, []), metals, end) if dev else None
@@ -94,10 +94,7 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
             if not path:
                 continue
             advice = ("land the shield on the chassis where the cable enters ('shield-to chassis'), leaving "
-                      f"{dev}'s signal ground one bond of its own" if c.balanced else
-                      "an unbalanced link's shield is its signal return and must reach the signal ground: make the "
-                      "link balanced with its shield on the chassis at the entry, or break the loop with a ground-lift "
-                      "network on the signal side")
+                      f"{dev}'s signal ground one bond of its own")
             out.append(Finding("GC113", "warning", f"the shield of {c.name} lands on {dev}'s signal ground at {end}: "
                                f"the current it carries crosses {', '.join(path)} on its way to {chassis}",
                                c.location, (c.name, end, *path), {"conductors": len(path)},

@@ -15,6 +15,7 @@ from ..network.graph import Loop, part_labels
 from .catalogue import Finding
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext, bfs
 from .registry import rule
+from .repairs import shield_fix, supply_ends, supply_meetings
 
 __all__ = ["rule_loops", "rule_stars", "rule_signal_bonds", "rule_heaters", "rule_shields", "rule_unconnected"]
 
@@ -102,6 +103,7 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
     dist, parent = bfs(ctx.adj, sorted(star_names), allowed)
     groups = {p.name: p.group for p in ctx.plan.points}
     chains: dict[str, list[tuple[str, str]]] = {}
+    supplies = supply_ends(ctx.plan)
     for t in sorted(terminals - star_names):
         if t not in dist:
             continue
@@ -111,7 +113,8 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
         star = path[-1]
         if groups.get(star) and groups.get(t) != groups.get(star):
             continue          # a star placed in a block or device gathers that placement's returns only
-        via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in ctx.source_pairs]
+        via = [n for n in path[1:-1]
+               if n in terminals and frozenset((t, n)) not in ctx.source_pairs | supplies]
         if via:
             chains.setdefault(star, []).append((t, via[0]))
     for star, pairs in sorted(chains.items()):
@@ -122,6 +125,8 @@ def rule_stars(ctx: AuditContext) -> list[Finding]:
                            {"chained_returns": len(pairs)},
                            "; ".join(f"run {t} to {star} by a wire of its own" for t, _ in pairs)))
     out += _stars_through_other_placements(ctx, stars, groups, allowed)
+    out += [Finding("GC103", "warning", msg, loc, elements, {"chained_returns": 1}, fix, acts)
+            for loc, elements, msg, fix, acts in supply_meetings(ctx)]
     return out
 
 
@@ -311,9 +316,7 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
         da, db = dist.get(c.a, 10 ** 9), dist.get(c.b, 10 ** 9)
         keep, lift = (c.a, c.b) if da <= db else (c.b, c.a)
         out.append(Finding("GC108", "warning", f"shield {c.name} is terminated at both ends ({c.a} and {c.b})",
-                           c.location, (c.name,), {},
-                           f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
-                           (("terminate-at", c.name, keep),)))
+                           c.location, (c.name,), {}, *shield_fix(ctx, c, keep, lift)))
     return out
 
 

@@ -1,0 +1,72 @@
+"""One source of truth for fixes.
+
+The ``fix:`` line of each finding in ``check`` is the advisor's best accepted candidate for it
+(the best-ranked suggestion whose re-analysis clears that finding), or, when the advisor considered
+changes for it and rejected them all, a sentence saying what was considered and why not.  Only a
+finding the advisor has no change for (a fuse's breaking capacity, a length to measure again)
+keeps its rule's own text, which describes no change of the plan that the advisor rejects.
+
+A finding is the same finding before and after a change by its identity (:func:`identity`): its
+code and elements (a loop by its conductors), never a line number.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+__all__ = ["identity", "advised_fixes", "advised_result", "NONE_ACCEPTED", "SHOWN_BY_SUGGEST"]
+
+#: how a fix line begins when every change the advisor considered for the finding was rejected
+NONE_ACCEPTED = "no change accepted by the advisor"
+
+#: what follows an accepted change's title in a fix line
+SHOWN_BY_SUGGEST = " (groundcheck suggest shows the change and its predicted effect)"
+
+
+def identity(f) -> tuple:
+    """What makes a finding the same finding before and after a change: a loop is its conductors
+    (in any order); a shared return or a contributor its (source, stage) or (element, source)
+    pair; anything else its elements."""
+    if f.code in ("GC102", "GC301", "GC302", "GC303"):
+        return (f.code, *f.elements[:2])
+    return (f.code, *sorted(f.elements))
+
+
+def _local(name: str) -> str:
+    return name.rsplit(".", 1)[-1]
+
+
+def _answers(ev, f) -> bool:
+    """Whether a candidate was made for finding ``f``: it answers ``f``'s rule and names one of its
+    elements (a change in a block is made once for every placement: it answers each one's)."""
+    c = ev.candidate
+    if f.code not in c.reason.split(","):
+        return False
+    return (_local(c.element) in {_local(e) for e in f.elements}
+            or any(e and e in c.title for e in f.elements))
+
+
+def _fix(f, evs) -> str:
+    key = identity(f)
+    for ev in evs:
+        if not ev.rejected and key in ev.cleared_keys:
+            return ev.candidate.title + SHOWN_BY_SUGGEST
+    tried = [ev for ev in evs if ev.rejected and _answers(ev, f)]
+    if tried:
+        why = "; ".join(f"{ev.candidate.title}: {ev.rejected}" for ev in tried[:3])
+        return f"{NONE_ACCEPTED} — considered and rejected: {why}"
+    return f.fix
+
+
+def advised_fixes(result, evs) -> list[str]:
+    """The fix line of each of ``result``'s findings (in order), from the advisor's evaluations
+    ``evs`` (groundcheck.advice.repair.suggest)."""
+    return [_fix(f, evs) for f in result.findings]
+
+
+def advised_result(result, evs):
+    """``result`` with each finding's fix line replaced by the advisor's
+    (:func:`advised_fixes`)."""
+    fixes = advised_fixes(result, evs)
+    findings = [dataclasses.replace(f, fix=x) for f, x in zip(result.findings, fixes)]
+    return dataclasses.replace(result, findings=findings)

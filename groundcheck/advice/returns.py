@@ -1,0 +1,133 @@
+"""The signal's own wired returns, as the advisor guards them, and the trade's fix for a socket
+bolted to the chassis.
+
+A socket's sleeve, jack, pot or terminal fastened to the chassis and also wired to the signal
+ground closes a loop through the metal; the trade's fix is to insulate it from the chassis (an
+insulated socket, or shoulder washers), keeping its wired return, never to unwire it (common
+practice).  Every such fastening in a loop is a candidate, inside blocks and device plans too.
+
+A change that leaves a socket or a stage's end that had a wired return without one (its signal
+would then return through chassis metal, or not at all) is refused by
+:func:`lost_wired_returns`: the wired return is what the signal flows in; the chassis is not a
+signal conductor.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+import networkx as nx
+
+from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
+from ..model.records import PE_POINT, Plan
+from .changes import Candidate, ChangeContext, delete_change
+
+__all__ = ["SOCKET_KINDS", "insulate_candidates", "refused_balanced", "wired_graph",
+           "lost_wired_returns", "refuse"]
+
+#: point kinds of a socket or part mounted through the metal: insulated from it by an insulated
+#: socket or shoulder washers (common practice)
+SOCKET_KINDS = ("sleeve", "jack", "pot", "terminal")
+
+
+def _socket_end(c, ctx: ChangeContext) -> str | None:
+    """The point a fastening holds to the metal, when it is a socket, jack, pot or terminal."""
+    if not is_fastening(c, ctx.metals):
+        return None
+    pt = ctx.points.get(c.b if c.a in ctx.metals else c.a)
+    return pt.name if pt is not None and pt.kind in SOCKET_KINDS else None
+
+
+def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str):
+    if ctx.points[point].kind == "terminal":
+        return delete_change(
+            ctx, name, f"remove {name}, the bond of {point} (0 V) to {metal} (not protective: "
+            f"the protective earth does not run through it), to open the loop closed by "
+            f"{closed_by}", "GC101", "remove")
+    return delete_change(
+        ctx, name, f"insulate {name}: {point} off {metal} (an insulated socket or shoulder "
+        f"washers), keeping its wired return, to open the loop closed by {closed_by}",
+        "GC101", "insulate")
+
+
+def insulate_candidates(ctx: ChangeContext, add) -> None:
+    """Every non-protective fastening of a socket, jack, pot or terminal in a loop: insulate it
+    from the metal (a terminal carrying 0 V: remove its bond to the case).  In a block the change
+    is made once for every placement; in a device's own plan, in that plan."""
+    seen = set()
+    for lp in ctx.result.loops:
+        if lp.closed_by == "chassis-structure":
+            continue
+        for name in lp.loop.edges:
+            c = ctx.cond.get(name)
+            if c is None or name in seen or ctx.protective(c):
+                continue
+            point = _socket_end(c, ctx)
+            if point is not None:
+                seen.add(name)
+                metal = c.a if c.a in ctx.metals else c.b
+                add(_insulate(ctx, name, point, metal, lp.closed_by))
+
+
+def refused_balanced(ctx: ChangeContext, c) -> str:
+    """Why a balanced link is not offered for interconnect ``c`` (empty when it may be): an end on
+    a sleeve is an unbalanced socket's return, so the equipment has no balanced socket there."""
+    for end in (c.a, c.b):
+        pt = ctx.points.get(end)
+        if pt is not None and pt.kind == "sleeve":
+            return (f"{end} is an unbalanced socket's sleeve: the equipment has no balanced "
+                    "socket there")
+    return ""
+
+
+def wired_graph(plan: Plan) -> nx.Graph:
+    """The signal ground's wiring alone: conductors that join two points (never metal, the mains
+    earth, a lift network or a switch), shields only when they conduct at both ends."""
+    metals = {m.name for m in plan.metals}
+    G = nx.Graph()
+    G.add_nodes_from(p.name for p in plan.points)
+    for c in plan.conductors:
+        if c.a in metals or c.b in metals or PE_POINT in (c.a, c.b):
+            continue
+        if not is_lift(c) and not can_open(c) and c.connects and c.role != PROTECTIVE:
+            G.add_edge(c.a, c.b)
+    return G
+
+
+def _guarded(plan: Plan, after: Plan) -> set[str]:
+    """Sockets' returns and stages' ends: the points whose wired return the advisor never
+    removes.  A balanced link's input (after the change) is no such stage: its signal returns in
+    the link's own pair."""
+    balanced = {f"{c.name}.input" for c in after.conductors
+                if joins_devices(c) and c.balanced}
+    out = {p.name for p in plan.points if p.kind in ("sleeve", "jack")}
+    for s in plan.stages:
+        if s.name not in balanced:
+            out |= {s.a, s.b}
+    return out
+
+
+def _components(G: nx.Graph) -> dict[str, frozenset]:
+    return {n: comp for comp in map(frozenset, nx.connected_components(G)) for n in comp}
+
+
+def lost_wired_returns(before: Plan, after: Plan) -> list[str]:
+    """Sockets and stage ends wired to another point before a change and to none after it, or
+    wired to a star before and to none after (their signal would return through the chassis, or
+    not at all)."""
+    c0, c1 = _components(wired_graph(before)), _components(wired_graph(after))
+    stars = {p.name for p in (*before.points, *after.points) if p.kind == "star"}
+    lost = []
+    for p in sorted(_guarded(before, after)):
+        if p not in c0 or len(c0[p]) < 2:
+            continue
+        comp = c1.get(p, frozenset((p,)))
+        if len(comp) < 2 or (c0[p] & stars and not comp & stars):
+            lost.append(p)
+    return lost
+
+
+def refuse(c: Candidate | None, why: str) -> Candidate | None:
+    """``c`` marked as considered but never tried, for ``why`` (unchanged when ``why`` is
+    empty)."""
+    return c if c is None or not why else dataclasses.replace(c, refused=why)

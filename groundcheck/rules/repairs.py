@@ -1,0 +1,115 @@
+"""Fix texts and exemptions the rules share with the advisor (:mod:`groundcheck.advice`), so that
+a finding never tells the user to make a change the advisor rejects: a shield that is the only
+return of one of its ends is kept at both ends; a rectifier's or filter's returns joined together
+and taken to the star by one wire are no chain; returns that meet only at the star are joined
+before it.
+"""
+
+from __future__ import annotations
+
+import networkx as nx
+
+from ..model.kinds import is_fastening
+
+__all__ = ["only_return_end", "shield_fix", "supply_ends", "supply_meetings"]
+
+
+def only_return_end(ctx, c) -> str | None:
+    """The end of a shield for which it is the only wired connection.
+
+    Parameters:
+        ctx: the audit context.
+        c: a shield conductor.
+    Returns:
+        the end with no other conductor than the shield (fastenings to metal aside), or None.
+    References:
+        common practice (a screen that is a socket's only return carries its signal).
+    """
+    for end in (c.a, c.b):
+        if end not in ctx.G:
+            continue
+        others = [k for _, _, k in ctx.G.edges(end, keys=True)
+                  if k != c.name and not is_fastening(ctx.conductors[k], ctx.metals)]
+        if not others:
+            return end
+    return None
+
+
+def shield_fix(ctx, c, keep: str, lift: str) -> tuple[str, tuple]:
+    """GC108's fix line and actions for a shield terminated at both ends.
+
+    Parameters:
+        ctx: the audit context.
+        c: the shield.
+        keep: the end nearer a star or stage reference.
+        lift: the other end.
+    Returns:
+        (fix line, actions): terminate it at ``keep`` only — unless it is the only return of
+        one end (opened, that end would float, GC106): then it stays, no action.
+    References:
+        common practice (a screened pair whose second core is the return, screen at one end).
+    """
+    alone = only_return_end(ctx, c)
+    if alone is None:
+        return (f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
+                (("terminate-at", c.name, keep),))
+    return (f"keep both ends: {c.name} is the only return of {alone} (opened at either end, "
+            f"{alone} would float); to keep other currents off the signal's return, use a "
+            f"screened pair whose second core is the return, with the screen at {keep} only", ())
+
+
+def supply_ends(plan) -> set[frozenset]:
+    """Pairs of points a rectifier's or its filter's currents circulate between on purpose.
+
+    Parameters:
+        plan: the plan.
+    Returns:
+        each rectifier's two ends, and its filter capacitor's return with each of them.
+    References:
+        common practice (reservoir, centre tap and filter negatives joined before the star).
+    """
+    out = set()
+    for r in plan.rectifiers:
+        out.add(frozenset((r.a, r.b)))
+        if r.filter_point:
+            out |= {frozenset((r.filter_point, r.a)), frozenset((r.filter_point, r.b))}
+    return out
+
+
+def supply_meetings(ctx) -> list[tuple]:
+    """Rectifiers whose two ends (or whose filter's return and reservoir) meet only at a star: the
+    charging or ripple current flows through the star itself, every return's reference (GC103).
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        (location, elements, message, fix, actions) of each: the action ("join", conductor,
+        point) moves the conductor's star end to the point, joining them before the star.
+    References:
+        common practice (join them by a short wire of their own, then one wire to the star).
+    """
+    stars = {p.name for p in ctx.plan.points if p.kind == "star"}
+    if not stars:
+        return []
+    H = nx.Graph((u, v) for u, v in ctx.G.edges() if not {u, v} & (stars | ctx.metals))
+    out = []
+    for r in ctx.plan.rectifiers:
+        for x, y in ((r.b, r.a), (r.filter_point, r.a)):
+            if not x or x not in ctx.G or y not in ctx.G:
+                continue
+            if x in H and y in H and nx.has_path(H, x, y):
+                continue
+            try:
+                path = nx.shortest_path(ctx.G, x, y)
+            except nx.NetworkXNoPath:
+                continue
+            star = next((n for n in path[1:-1] if n in stars), None)
+            if star is None or any(n in ctx.metals for n in path):
+                continue
+            link = next(iter(ctx.G[path[0]][path[1]]))
+            out.append((r.location, (star, x, y, link),
+                        f"the current of {r.name} between {x} and {y} flows through star {star}: "
+                        "they meet only there",
+                        f"join {x} to {y} by a short wire of their own ({link}), then one wire "
+                        f"to {star}", (("join", link, y),)))
+    return out
