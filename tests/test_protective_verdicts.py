@@ -74,7 +74,11 @@ def test_tt_electrode_times_residual_current_over_50_v_is_a_danger(rcd_ma, elect
     # IEC 60364-4-41 411.5.3: R_A × IΔn ≤ 50 V; each case is 60 V
     r = run(f"230 V 50 Hz, system TT, electrode {electrode} ohm, fuse 2 A slow, breaking high, rcd {rcd_ma} mA")
     (f,) = found(r, "GC220")
-    assert f.severity == "danger" and f.figures["ra_idn_v"] == pytest.approx(60.0)
+    assert f.severity == "danger" and f.figures["electrode_times_rcd_v"] == pytest.approx(60.0)
+    # the fix names the electrode to reach (50 V / IΔn) and the largest preferred RCD rating the electrode as it is
+    # allows (IEC 61008-1's 10, 30, 100, 300 mA, from memory): 2 kΩ → 10 mA, 600 Ω → 30 mA, 200 Ω → 100 mA
+    assert f"{50 / (rcd_ma * 1e-3):.4g} Ω" in f.fix
+    assert {30: "10 mA RCD", 100: "30 mA RCD", 300: "100 mA RCD"}[rcd_ma] in f.fix
     # the neighbour at 45 V passes
     ok = run(f"230 V 50 Hz, system TT, electrode {electrode * 0.75:g} ohm, fuse 2 A slow, breaking high, "
              f"rcd {rcd_ma} mA")

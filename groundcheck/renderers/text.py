@@ -220,12 +220,23 @@ def _pickup_table(result: Result, console: Console) -> None:
         console.print()
 
 
+def _loop_origin(result: Result) -> str:
+    """Where the external loop's figure came from: stated, the TT electrode plus the supply's part, or default."""
+    sup, m = result.safety.supply, result.plan.mains
+    if sup.ze_stated:
+        return " stated"
+    if sup.system == "TT" and m is not None and m.electrode is not None:
+        return f": the stated electrode {sup.electrode:.4g} Ω and the supply's own {sup.ze - sup.electrode:.3g} Ω"
+    return " by default"
+
+
 def _protective_tables(result: Result, console: Console) -> None:
     if result.safety is not None and result.safety.parts:
         sup = result.safety.supply
         limit = "none set below 50 V" if sup.max_time is None else f"{sup.max_time:g} s"
-        t = Table(title=f"Protective earth (line-to-part fault; {sup.system}, external loop {sup.ze:.3g} Ω"
-                        f"{' stated' if sup.ze_stated else ' by default'}; disconnection limit {limit})",
+        t = Table(title=f"Protective earth (line-to-part fault; {sup.system}, external loop {sup.ze:.4g} Ω"
+                        f"{_loop_origin(result)}; cables at {sup.cable_temperature:g} °C; disconnection limit "
+                        f"{limit})",
                         title_justify="left")
         for col in ("part", "path mΩ", "fault A", "touch V to earth", "cleared by", "in", "I²t A²s"):
             t.add_column(col, justify="right" if col not in ("part", "cleared by") else "left")
@@ -354,7 +365,7 @@ def text_report(result: Result, width: int | None = None, color: bool = False) -
 #: unit suffixes of figure keys and how they are shown
 _UNITS = (("_mohm", "mΩ"), ("_ohm", "Ω"), ("_mm2", "mm²"), ("_a2s", "A²s"), ("_dbv", "dBV"), ("_db", "dB"),
           ("_pct", "%"), ("_hz", "Hz"), ("_mm", "mm"), ("_va", "VA"), ("_a", "A"), ("_v", "V"),
-          ("_s", "s"), ("_t", "T"))
+          ("_s", "s"), ("_t", "T"), ("_c", "°C"))
 
 
 def figure_words(figures: dict) -> str:

@@ -42,10 +42,8 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
                             f"({m.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a fault below the RCD's "
                             "rating can leave the metal above the touch-voltage limit",
                             m.location, ("mains",), {"electrode_ohm": r_a, "rcd_a": m.rcd,
-                                                     "touch_limit_v": TOUCH_LIMIT, "ra_idn_v": round(u, 3)},
-                            f"have the installation's earth electrode improved to at most "
-                            f"{TOUCH_LIMIT / m.rcd:.4g} Ω, or protect the circuit with a more sensitive RCD "
-                            "(e.g. 30 mA); a qualified electrician measures and repairs the electrode")]
+                                                     "touch_limit_v": TOUCH_LIMIT, "electrode_times_rcd_v": round(u, 3)},
+                            _tt_fix(r_a, m.rcd))]
         return []
     if m.fuse is None:
         return []
@@ -55,6 +53,21 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
                     m.location, ("mains",), {"external_loop_ohm": s.safety.supply.ze},
                     "protect the circuit with an RCD (30 mA for socket outlets), as TT installations usually are; "
                     "have the loop measured by a qualified electrician")]
+
+
+#: rated residual currents of general-purpose RCDs, A (IEC 61008-1 preferred values, from memory)
+RCD_RATINGS = (0.006, 0.01, 0.03, 0.1, 0.3, 0.5)
+
+
+def _tt_fix(r_a: float, rated: float) -> str:
+    """GC220's fix: the electrode to reach with this RCD, and the largest standard RCD rating that the electrode
+    as it is allows (none when even 6 mA does not)."""
+    fix = (f"have the installation's earth electrode improved to at most {TOUCH_LIMIT / rated:.4g} Ω "
+           "(a qualified electrician measures and repairs it)")
+    fits = [x for x in RCD_RATINGS if x < rated and r_a * x <= TOUCH_LIMIT]
+    if fits:
+        fix += f", or protect the circuit with a {max(fits) * 1e3:g} mA RCD ({r_a * max(fits):.3g} V at its rating)"
+    return fix + "; follow local electrical codes"
 
 
 @rule("GC222")
