@@ -41,8 +41,9 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
                             f"TT supply: the earth electrode ({r_a:g} Ω) times the RCD's rated residual current "
                             f"({m.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a fault below the RCD's "
                             "rating can leave the metal above the touch-voltage limit",
-                            m.location, ("mains",), {"electrode_ohm": r_a, "rcd_a": m.rcd,
-                                                     "touch_limit_v": TOUCH_LIMIT, "electrode_times_rcd_v": round(u, 3)},
+                            m.location, ("mains",),
+                            {"electrode_ohm": r_a, "rcd_a": m.rcd, "touch_limit_v": TOUCH_LIMIT,
+                             "electrode_times_rcd_v": round(u, 3)},
                             _tt_fix(r_a, m.rcd))]
         return []
     if m.fuse is None:
