@@ -43,7 +43,8 @@ def _strings(node: ast.AST, scope: ast.AST, slot: int | None = None) -> set[str]
                         if isinstance(e, ast.Name) and e.id == node.id:
                             out |= _strings(a.value.elts[i], scope)
         return out
-    raise AssertionError(f"a severity written as {ast.dump(node)[:80]}: name a variant of the entry")
+    raise AssertionError(f"a severity written as {ast.dump(node)[:80]}: name a variant of the "
+                         "entry")
 
 
 def _constructions():
@@ -51,13 +52,14 @@ def _constructions():
     out = []
     for path in sorted(PACKAGE.rglob("*.py")):
         tree = ast.parse(path.read_text(encoding="utf-8"))
-        funcs = [n for n in ast.walk(tree) if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef))]
+        funcs = [n for n in ast.walk(tree)
+                 if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef))]
         for call in ast.walk(tree):
             if not (isinstance(call, ast.Call) and getattr(call.func, "id", "") == "Finding"):
                 continue
             where = f"{path.relative_to(PACKAGE)}:{call.lineno}"
             code, sev = call.args[0], call.args[1]
-            assert isinstance(code, ast.Constant), f"{where}: the code must be written as a literal"
+            assert isinstance(code, ast.Constant), f"{where}: write the code as a literal"
             scope = min((f for f in funcs if f.lineno <= call.lineno <= f.end_lineno),
                         key=lambda f: f.end_lineno - f.lineno, default=tree)
             out.append((where, code.value, _strings(sev, scope)))
@@ -125,7 +127,8 @@ def test_no_module_reads_a_family_from_a_code():
     for path in PACKAGE.rglob("*.py"):
         text = path.read_text(encoding="utf-8")
         for digit in "1234":
-            for spelled in (f'startswith("GC{digit}', f"startswith('GC{digit}", f'[2] == "{digit}"'):
+            spellings = (f'startswith("GC{digit}', f"startswith('GC{digit}", f'[2] == "{digit}"')
+            for spelled in spellings:
                 assert spelled not in text, f"{path.relative_to(PACKAGE)}: {spelled}"
 
 

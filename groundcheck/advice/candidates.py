@@ -372,7 +372,8 @@ FINDING_GENERATORS = {
 #: the generators of actions answered over the whole result (each loop of the loop list, each
 #: coupling row, the installation), called once: those before the findings' own, and after
 BEFORE_FINDINGS = {"open-loop": _loop_candidates, "own-return": _shared_return_candidates}
-AFTER_FINDINGS = {"between-devices": installation_candidates, "own-crosstalk-return": _crosstalk_candidates}
+AFTER_FINDINGS = {"between-devices": installation_candidates,
+                  "own-crosstalk-return": _crosstalk_candidates}
 
 
 def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
@@ -384,8 +385,9 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
         if c is not None and all(c.edits != x.edits for x in out):
             out.append(device_note(c, plan.file))
 
-    for generate in BEFORE_FINDINGS.values():     # a shared return's join before the star's: the same
-        generate(ctx, add)                          # join answers GC102 first
+    # a shared return's join before the star's: the same join answers GC102 first
+    for generate in BEFORE_FINDINGS.values():
+        generate(ctx, add)
     _finding_candidates(ctx, add)
     for generate in AFTER_FINDINGS.values():
         generate(ctx, add)

@@ -96,7 +96,8 @@ class Rule:
 def _r(code, name, family, severity, checks, why, fix, references="common practice", *,
        variants=(), identity="elements", actions=("carried",)) -> tuple[str, Rule]:
     variants = variants or (severity,)
-    if variants[0] != severity or not set(variants) <= set(SEVERITIES) or identity not in IDENTITIES:
+    if (variants[0] != severity or not set(variants) <= set(SEVERITIES)
+            or identity not in IDENTITIES):
         raise ValueError(f"{code}: variants {variants} (default {severity}), identity {identity}")
     return code, Rule(code, name, family, severity, checks, why, fix, references, variants,
                       identity, actions)
