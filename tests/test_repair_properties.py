@@ -9,6 +9,8 @@ from hypothesis import strategies as st
 from groundcheck import load_text
 from groundcheck.analysis import Options
 from groundcheck.advice.repair import suggest
+from groundcheck.rules.catalogue import RULES
+from groundcheck.rules.rule_families import PROTECTIVE_EARTH
 
 
 @st.composite
@@ -69,4 +71,5 @@ def test_no_suggestion_changes_a_protective_conductor(text):
             new = after[name]
             assert new.kind == c.kind and (new.area or 0.0) >= (c.area or 0.0), ev.candidate.title
             if frozenset((new.a, new.b)) != frozenset((c.a, c.b)):
-                assert ev.candidate.reason.startswith("GC2") and name in ev.result.protective, ev.candidate.title
+                pe_fix = RULES[ev.candidate.reason].family == PROTECTIVE_EARTH
+                assert pe_fix and name in ev.result.protective, ev.candidate.title

@@ -24,7 +24,7 @@ from .edits import Edit
 from .installation_changes import installation_candidates, shield_to_chassis
 from .returns import insulate_candidates
 
-__all__ = ["Candidate", "candidates"]
+__all__ = ["Candidate", "candidates", "FINDING_GENERATORS", "BEFORE_FINDINGS", "AFTER_FINDINGS"]
 
 
 def _loop_candidates(ctx: ChangeContext, add) -> None:
@@ -57,35 +57,38 @@ def _loop_candidates(ctx: ChangeContext, add) -> None:
 
 
 def _finding_candidates(ctx: ChangeContext, add) -> None:
+    """Each finding's candidates from the generators of the repair actions its rule's entry names
+    (``Rule.actions``); an action answered over the whole result has none here."""
     for f in ctx.result.findings:
-        if f.code == "GC108" and f.actions:        # none when the shield is an end's only return
-            (_, shield, keep), = f.actions
-            c = ctx.cond[shield]
-            st = ctx.statement(c)
-            if st is not None:
-                add(rephrase(ctx, c, ("terminated", "both"), f"terminated {local_name(c.name, st.label or '', keep)}",
-                             f"terminate shield {c.name} at {keep} only", "GC108"))
-        elif f.code == "GC105":
-            for verb, e in f.actions:
-                c = ctx.cond.get(e)
-                if c is None or shield_like(c):
-                    continue          # a shield is lifted at one end (GC108), not removed
-                what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
-                    else "remove the second chassis bond {e}"
-                action = "insulate" if verb == "insulate" else "remove"
-                add(delete_change(ctx, e, what.format(e=e), "GC105", action))
-        elif f.code == "GC103":
-            _star_candidates(ctx, f, add)
-        elif f.code == "GC202":
-            add(_own_stud(ctx, f))
-        elif f.code == "GC204":
-            add(_thicker(ctx, f))
-        elif f.code in ("GC205", "GC206"):
-            add(_bonding_wire(ctx, f))
-        elif f.code == "GC113":
-            add(shield_to_chassis(ctx, f))
-        elif f.code not in ("GC101", "GC102", "GC304"):
-            _action_candidates(ctx, f, add)
+        for action in RULES[f.code].actions:
+            if action in FINDING_GENERATORS:
+                FINDING_GENERATORS[action](ctx, f, add)
+
+
+def _terminate_shield(ctx: ChangeContext, f, add) -> None:
+    """GC108: the shield terminated at the end the finding keeps (no action when the shield is
+    an end's only return)."""
+    if not f.actions:
+        return
+    (_, shield, keep), = f.actions
+    c = ctx.cond[shield]
+    st = ctx.statement(c)
+    if st is not None:
+        add(rephrase(ctx, c, ("terminated", "both"), f"terminated {local_name(c.name, st.label or '', keep)}",
+                     f"terminate shield {c.name} at {keep} only", f.code))
+
+
+def _second_bond(ctx: ChangeContext, f, add) -> None:
+    """GC105: each second chassis bond insulated (a fastening) or removed; a shield is lifted at
+    one end instead (GC108), never removed."""
+    for verb, e in f.actions:
+        c = ctx.cond.get(e)
+        if c is None or shield_like(c):
+            continue
+        what = "insulate {e} from the metal (insulated socket or shoulder washers)" if verb == "insulate" \
+            else "remove the second chassis bond {e}"
+        action = "insulate" if verb == "insulate" else "remove"
+        add(delete_change(ctx, e, what.format(e=e), f.code, action))
 
 
 def _action_candidates(ctx: ChangeContext, f, add) -> None:
@@ -120,10 +123,10 @@ def _star_candidates(ctx: ChangeContext, f, add) -> None:
         if verb == "join":                    # a supply's two returns meeting only at the star
             add(reroute(ctx, name, near, where[0],
                         f"join {far} straight to {where[0]} ({name}), so the supply's current "
-                        "circulates between them and leaves the star", "GC103", "join"))
+                        "circulates between them and leaves the star", f.code, "join"))
         else:
             add(reroute(ctx, name, near, where[0],
-                        f"run {far} to {where[0]} by its own wire ({name})", "GC103"))
+                        f"run {far} to {where[0]} by its own wire ({name})", f.code))
     if f.actions:
         return
     stars = [e for e in f.elements if e in ctx.stars]
@@ -134,7 +137,7 @@ def _star_candidates(ctx: ChangeContext, f, add) -> None:
         if c.a in f.elements and c.b in f.elements and not ctx.protective(c) and stars[0] not in (c.a, c.b):
             near = c.a if dist.get(c.a, 10 ** 9) < dist.get(c.b, 10 ** 9) else c.b
             far = c.b if near == c.a else c.a
-            add(reroute(ctx, c.name, near, stars[0], f"run {far} to {stars[0]} by its own wire ({c.name})", "GC103"))
+            add(reroute(ctx, c.name, near, stars[0], f"run {far} to {stars[0]} by its own wire ({c.name})", f.code))
 
 
 def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] | None:
@@ -353,6 +356,26 @@ def _crosstalk_candidates(ctx: ChangeContext, add) -> None:
                                  f"the {cur.channel} channel's return leaves the other channel's ground", "GC304"))
 
 
+#: the advisor's generator of each repair action a catalogue entry names (``Rule.actions``),
+#: called with (context, finding, add) for every finding of a rule that names it
+FINDING_GENERATORS = {
+    "star-return": _star_candidates,
+    "second-bond": _second_bond,
+    "terminate-shield": _terminate_shield,
+    "shield-to-chassis": lambda ctx, f, add: add(shield_to_chassis(ctx, f)),
+    "own-stud": lambda ctx, f, add: add(_own_stud(ctx, f)),
+    "thicken": lambda ctx, f, add: add(_thicker(ctx, f)),
+    "bond": lambda ctx, f, add: add(_bonding_wire(ctx, f)),
+    "carried": _action_candidates,
+}
+
+#: the generators of actions answered over the whole result (each loop of the loop list, each
+#: coupling row, the installation), called once: those before the findings' own, and after
+BEFORE_FINDINGS = {"open-loop": _loop_candidates, "own-return": _shared_return_candidates}
+AFTER_FINDINGS = {"between-devices": installation_candidates,
+                  "own-crosstalk-return": _crosstalk_candidates}
+
+
 def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     """Candidate changes answering the plan's loop, shared-return, star, bonding and protective findings."""
     ctx = ChangeContext(plan, result, text)
@@ -362,9 +385,10 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
         if c is not None and all(c.edits != x.edits for x in out):
             out.append(device_note(c, plan.file))
 
-    _loop_candidates(ctx, add)
-    _shared_return_candidates(ctx, add)   # before the star's: the same join answers GC102 first
+    # a shared return's join before the star's: the same join answers GC102 first
+    for generate in BEFORE_FINDINGS.values():
+        generate(ctx, add)
     _finding_candidates(ctx, add)
-    installation_candidates(ctx, add)
-    _crosstalk_candidates(ctx, add)
+    for generate in AFTER_FINDINGS.values():
+        generate(ctx, add)
     return out

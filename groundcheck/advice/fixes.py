@@ -14,6 +14,8 @@ from __future__ import annotations
 
 import dataclasses
 
+from ..rules.catalogue import RULES
+
 __all__ = ["identity", "advised_fixes", "advised_result", "NONE_ACCEPTED", "SHOWN_BY_SUGGEST"]
 
 #: how a fix line begins when every change the advisor considered for the finding was rejected
@@ -24,10 +26,10 @@ SHOWN_BY_SUGGEST = " (groundcheck suggest shows the change and its predicted eff
 
 
 def identity(f) -> tuple:
-    """What makes a finding the same finding before and after a change: a loop is its conductors
-    (in any order); a shared return or a contributor its (source, stage) or (element, source)
-    pair; anything else its elements."""
-    if f.code in ("GC102", "GC301", "GC302", "GC303"):
+    """What makes a finding the same finding before and after a change, as its rule's entry
+    states (``Rule.identity``): a loop is its conductors (in any order); a shared return or a
+    contributor its (source, stage) or (element, source) pair; anything else its elements."""
+    if RULES[f.code].identity == "pair":
         return (f.code, *f.elements[:2])
     return (f.code, *sorted(f.elements))
 

@@ -24,6 +24,7 @@ from ..analysis import Options, Result, analyze
 from ..core.errors import PlanErrors
 from ..core.units import dbv
 from ..rules.catalogue import RULES, severity_rank
+from ..rules.rule_families import PROTECTIVE_EARTH
 from ..language.loader import load_text, substituted
 from ..model.records import Plan
 from .candidates import Candidate, candidates
@@ -133,7 +134,7 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     pe0, pe1 = _pe(before), _pe(after)
     # a change that answers a protective-earth finding (its own stud, say) may lengthen a path a little, as long
     # as every path stays within the limit; any other change must not weaken the protective earth at all
-    pe_fix = cand.reason.startswith("GC2")
+    pe_fix = RULES[cand.reason.split(",")[0]].family == PROTECTIVE_EARTH
     limit = after.safety.limit if after.safety is not None else 0.0
     if any(part not in pe1 or (pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 and not (pe_fix and pe1[part] <= limit))
            for part, r in pe0.items()):

@@ -11,8 +11,9 @@ from dataclasses import dataclass, field
 
 from ..core.errors import Location
 from .catalogue_pe import PROTECTIVE_ENTRIES
+from .rule_families import HUM, MODEL, TOPOLOGY, Family
 
-__all__ = ["Finding", "Rule", "RULES", "SEVERITIES", "severity_rank"]
+__all__ = ["Finding", "Rule", "RULES", "SEVERITIES", "severity_rank", "IDENTITIES"]
 
 #: severities from the most to the least serious
 SEVERITIES = ("danger", "fault", "warning", "note")
@@ -45,6 +46,11 @@ class Finding:
     actions: tuple = ()          # structured repair: (verb, element[, where]), e.g. ("insulate", "jack_nut")
     accepted: str | None = None  # the reason of an inline '# accept' on its plan line
 
+    def __post_init__(self):
+        if self.severity not in RULES[self.code].variants:
+            raise ValueError(f"{self.code} makes no {self.severity} finding: its entry lists "
+                             f"{', '.join(RULES[self.code].variants)}")
+
     @property
     def rule(self) -> "Rule":
         return RULES[self.code]
@@ -62,30 +68,52 @@ class Finding:
                 "accepted": self.accepted}
 
 
+#: what identifies a finding before and after a change: its elements in any order, or the first
+#: two in order (a source and the stage it reaches, an element and its source)
+IDENTITIES = ("elements", "pair")
+
+
 @dataclass(frozen=True)
 class Rule:
+    """A catalogue entry: the rule's words, and what follows from it — its family, the severities
+    its findings may have (``variants``, the default first), what identifies a finding
+    (:data:`IDENTITIES`) and the advisor's repair actions for it (``advice/candidates.py``
+    registers a generator under each; ``carried``: the finding's own structured actions)."""
+
     code: str
     name: str
+    family: Family
     severity: str
     checks: str
     why: str
     fix: str
     references: str = "common practice"
+    variants: tuple[str, ...] = ()
+    identity: str = "elements"
+    actions: tuple[str, ...] = ("carried",)
 
 
-def _r(code, name, severity, checks, why, fix, references="common practice") -> tuple[str, Rule]:
-    return code, Rule(code, name, severity, checks, why, fix, references)
+def _r(code, name, family, severity, checks, why, fix, references="common practice", *,
+       variants=(), identity="elements", actions=("carried",)) -> tuple[str, Rule]:
+    variants = variants or (severity,)
+    if (variants[0] != severity or not set(variants) <= set(SEVERITIES)
+            or identity not in IDENTITIES):
+        raise ValueError(f"{code}: variants {variants} (default {severity}), identity {identity}")
+    return code, Rule(code, name, family, severity, checks, why, fix, references, variants,
+                      identity, actions)
 
 
 RULES: dict[str, Rule] = dict([
-    _r("GC101", "ground-loop", "warning",
+    _r("GC101", "ground-loop", TOPOLOGY, "warning",
        "Every independent loop of the ground network (one per conductor outside a spanning tree; "
        "their number is E − V + C), classified by what closes it.",
        "A loop lets a changing magnetic field drive current round it (hum at the mains frequency) and "
        "lets a return current split between two paths, one of which may be a signal reference.",
        "Open the loop at the conductor named in the finding, keeping one path only; never open it in the protective "
-       "earth."),
-    _r("GC102", "shared-return", "fault",
+       "earth.",
+       variants=("warning", "note"),
+       actions=("open-loop", "between-devices")),
+    _r("GC102", "shared-return", TOPOLOGY, "fault",
        "A conductor that carries a supply-return current (rectifier charging, DC load, heater, leakage) "
        "and also lies between the two points of a sensitive pair. A note instead of a fault when the hum budget "
        "puts that source's worst-case level at the stage's channel output below the contributor level ('--hum-level', "
@@ -93,57 +121,63 @@ RULES: dict[str, Rule] = dict([
        "The current's voltage drop across the shared conductor appears at the stage's input as if it were "
        "signal: rectifier charging current gives hum at twice the mains frequency and a buzz of its harmonics.",
        "Take the supply return straight to the supply star (reservoir negative and centre tap joined by a "
-       "short wire of their own), and take the stage's reference to the signal star by its own wire."),
-    _r("GC103", "star-chain", "warning",
+       "short wire of their own), and take the stage's reference to the signal star by its own wire.",
+       variants=("fault", "note"),
+       identity="pair",
+       actions=("own-return",)),
+    _r("GC103", "star-chain", TOPOLOGY, "warning",
        "Returns that reach a star through each other: a chain that only looks like a star. Also a channel's star "
        "(a block placement's) that reaches the plan's own star only through another channel's star.",
        "Each return in a chain carries the currents of those behind it, so their drops add into the references further "
        "along; a channel star chained through another puts one channel's returns in the other's wiring.",
-       "Run each return (or each channel's star) to the star by a wire of its own."),
-    _r("GC104", "star-single-branch", "note",
+       "Run each return (or each channel's star) to the star by a wire of its own.",
+       actions=("star-return",)),
+    _r("GC104", "star-single-branch", TOPOLOGY, "note",
        "A point declared as a star that has only one conductor.",
        "A star with one branch gathers nothing; the plan probably misses wires or the star is misnamed.",
        "Connect the returns that should gather there, or declare the point as a plain junction."),
-    _r("GC105", "signal-ground-bonded-twice", "warning",
+    _r("GC105", "signal-ground-bonded-twice", TOPOLOGY, "warning",
        "A signal-ground network bonded to the chassis (directly, through a lift network or through "
        "another chassis-bonded point) at more than one place.",
        "Two bonds make the chassis part of a ground loop: chassis currents and induced current then flow in the signal "
        "ground.",
-       "Keep one bond, near the protective-earth bond; isolate the other (insulated jack, insulating washer)."),
-    _r("GC106", "signal-ground-floating", "warning",
+       "Keep one bond, near the protective-earth bond; isolate the other (insulated jack, insulating washer).",
+       actions=("second-bond",)),
+    _r("GC106", "signal-ground-floating", TOPOLOGY, "warning",
        "A signal-ground network with no connection to the chassis or the protective earth at all.",
        "A floating signal ground picks up leakage and electrostatic noise and can float to a dangerous voltage.",
        "Bond the signal star to the chassis at one place, near the protective-earth stud, directly or through a lift "
        "network."),
-    _r("GC107", "heater-unreferenced", "warning",
+    _r("GC107", "heater-unreferenced", TOPOLOGY, "warning",
        "A valve heater supply with no reference to ground.",
        "A floating heater winding couples mains-frequency hum capacitively into the cathodes.",
        "Reference the heater supply: a centre tap or a pair of resistors (a hum-balance network) to ground, or an "
        "elevated DC reference."),
-    _r("GC108", "shield-both-ends", "warning",
+    _r("GC108", "shield-both-ends", TOPOLOGY, "warning",
        "A cable shield of internal wiring terminated at both ends.",
        "The shield then forms a loop with the ground wire it runs beside, and carries return current.",
-       "Terminate the shield at one end only: the end named in the finding."),
-    _r("GC109", "no-ground", "warning",
+       "Terminate the shield at one end only: the end named in the finding.",
+       actions=("terminate-shield",)),
+    _r("GC109", "no-ground", TOPOLOGY, "warning",
        "Points that reach neither a metal part nor the protective earth.",
        "Something is not wired: a point of the plan is left floating.",
        "Connect the point, or remove it from the plan."),
-    _r("GC110", "self-loop", "warning",
+    _r("GC110", "self-loop", TOPOLOGY, "warning",
        "A conductor whose two ends are the same point.",
        "It carries no current and is almost certainly a typing mistake in the plan.",
        "Name the conductor's real ends."),
-    _r("GC111", "mains-not-described", "note",
+    _r("GC111", "mains-not-described", TOPOLOGY, "note",
        "Touchable metal in a plan with no mains statement and no device that brings one.",
        "Without the supply, the protective earth cannot be checked: a plan like this is not clean, only unchecked.",
        "Describe the supply ('mains 230 V 50 Hz, fuse …') or, for double-insulated equipment, "
        "'mains …, class II'."),
-    _r("GC112", "length-implausible", "note",
+    _r("GC112", "length-implausible", TOPOLOGY, "note",
        "A conductor whose stated length is more than 10 % shorter than the straight distance between its positioned "
        "ends (or its route), or more than three times longer (a cable between two placed devices may be any length "
        "above the distance).",
        "A wrong length gives a wrong resistance and inductance, and so wrong hum and protective-earth figures.",
        "Measure the route again and correct the length (give 'via' points when the wire does not run straight)."),
-    _r("GC113", "shield-on-signal-ground", "warning",
+    _r("GC113", "shield-on-signal-ground", TOPOLOGY, "warning",
        "An interconnect shield joined at both ends whose end lands on a device's signal ground inside the device "
        "rather than on its chassis where the cable enters (a balanced link's default is the chassis; state the "
        "landing with 'shield-to chassis|signal').",
@@ -154,8 +188,9 @@ RULES: dict[str, Rule] = dict([
        "unbalanced link's shield is its signal return: use a balanced link, or a ground-lift network on the signal "
        "side. Never lift the protective earth.",
        "AES48-2005, interconnections and grounding of shields in audio equipment: a shield terminates on the "
-       "enclosure at its point of entry (from memory); common-impedance coupling (see GC102)."),
-    _r("GC114", "signal-return-through-metal", "warning",
+       "enclosure at its point of entry (from memory); common-impedance coupling (see GC102).",
+       actions=("shield-to-chassis",)),
+    _r("GC114", "signal-return-through-metal", TOPOLOGY, "warning",
        "A stage whose input reference (its socket's sleeve, or the first point it names) reaches "
        "the stage's ground only through metal parts: a socket grounded only by its fastening to "
        "the chassis, say.",
@@ -165,33 +200,37 @@ RULES: dict[str, Rule] = dict([
        "Wire the socket's ground to the input ground by a wire of its own and insulate the socket "
        "from the chassis (an insulated socket or shoulder washers); the chassis keeps its one "
        "bond to the signal ground."),
-    *(_r(*entry) for entry in PROTECTIVE_ENTRIES),
-    _r("GC301", "hum-contributor", "warning",
+    *(_r(*fields, **declared) for fields, declared in PROTECTIVE_ENTRIES),
+    _r("GC301", "hum-contributor", HUM, "warning",
        "A conductor whose shared impedance puts hum or buzz above the set level at a channel's output.",
        "Common-impedance coupling: a supply current's drop appears across a sensitive pair.",
-       "Move the supply return off the conductor named, as the fix says."),
-    _r("GC302", "loop-pickup", "warning",
+       "Move the supply return off the conductor named, as the fix says.",
+       identity="pair"),
+    _r("GC302", "loop-pickup", HUM, "warning",
        "A ground loop in which a stray magnetic field induces a hum voltage above the set level at a channel's output.",
        "Faraday's law: EMF = 2πfBA drives current round the loop; its drop across a sensitive pair is amplified.",
-       "Open the loop, or make it smaller and move it away from the transformer."),
-    _r("GC303", "hum-audible", "fault",
+       "Open the loop, or make it smaller and move it away from the transformer.",
+       identity="pair"),
+    _r("GC303", "hum-audible", HUM, "fault",
        "A channel whose hum or buzz, as sound pressure at the listener's seat, is above the ISO 226 threshold of "
        "hearing at some frequency.",
        "Hum above the threshold of hearing at the listener's seat is likely to be heard in a quiet room.",
        "Fix the main contributors named in the finding.",
-       "ISO 226:2003 threshold of hearing"),
-    _r("GC304", "crosstalk", "warning",
+       "ISO 226:2003 threshold of hearing",
+       identity="pair"),
+    _r("GC304", "crosstalk", HUM, "warning",
        "Crosstalk between channels through shared return impedance, worse than −60 dB at 1 kHz.",
        "Shared return impedance lets one channel's signal current appear in the other's reference.",
-       "Give each channel its own return to the star; join channels at one point only."),
-    _r("GC305", "loop-near-source", "note",
+       "Give each channel its own return to the star; join channels at one point only.",
+       actions=("own-crosstalk-return",)),
+    _r("GC305", "loop-near-source", HUM, "note",
        "A loop that passes closer to a field source's centre than its stated size or, with no size stated, than "
        "the distance its strength was stated at.",
        "Close to a transformer the point-dipole law is an extrapolation: with a size the ring model is used, "
        "without one the figure may be off by a large factor either way.",
        "State the source's size ('size 60 mm') and height, or route the loop's conductors away from it.",
        "J. D. Jackson, Classical Electrodynamics, 3rd ed., §5.4 and §5.6"),
-    _r("GC306", "ground-feedback", "fault",
+    _r("GC306", "ground-feedback", HUM, "fault",
        "A channel's own output or load current (a 'signal' current of that channel) flowing in "
        "the ground that one of its stages reads, other than the stages at the current's own ends. "
        "The feedback is the current's drop across each of the channel's stages times the stage's "
@@ -207,8 +246,9 @@ RULES: dict[str, Rule] = dict([
        "Take the load or output return straight to the channel's star (the supply's centre) by a "
        "wire of its own, so that it shares nothing with the input ground.",
        "common-impedance coupling (see GC102); 0.1 % as a power amplifier's distortion figure: "
-       "common practice"),
-    _r("GC401", "island", "note",
+       "common practice",
+       variants=("fault", "note")),
+    _r("GC401", "island", MODEL, "note",
        "A part of the ground network not connected to the rest: it gets its own reference in the solve.",
        "Figures between points of different parts are undefined; usually a wire is missing from the plan.",
        "Connect the island, or confirm it is meant to float."),

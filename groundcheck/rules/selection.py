@@ -13,12 +13,10 @@ from dataclasses import dataclass
 
 from ..core.errors import GroundcheckError, Location
 from .catalogue import RULES
+from .rule_families import FAMILIES
 
-__all__ = ["UnknownRule", "NotChecked", "rule_codes", "codes_of", "nearest", "rule_list",
-           "FAMILIES"]
+__all__ = ["UnknownRule", "NotChecked", "rule_codes", "codes_of", "nearest", "rule_list"]
 
-#: the families of codes by their first digit (DEVELOPERS.md, "Adding a rule")
-FAMILIES = {"1": "topology", "2": "protective earth", "3": "hum", "4": "electrical model"}
 
 #: characters people type for one another (a letter O for a zero, …): a cheap substitution when
 #: ranking the nearest code, so that GC2O6 suggests GC206 rather than GC216 (common practice)
@@ -51,6 +49,9 @@ def rule_codes(word: str) -> tuple[str, ...] | None:
     u = w.upper()
     if u in RULES:
         return (u,)
+    family = next((f for f in FAMILIES if f.word == u), None)
+    if family is not None:
+        return tuple(c for c, r in RULES.items() if r.family == family) or None
     if u.startswith("GC") and u[2:].isdigit() and len(u) < 5:
         found = tuple(c for c in RULES if c.startswith(u))
         return found or None
@@ -106,7 +107,7 @@ def nearest(word: str) -> str | None:
         Levenshtein edit distance (common practice), look-alike characters cheaper (from memory).
     """
     w = word.strip()
-    families = {f"GC{d}" for c in RULES for d in (c[2], c[2:4])}
+    families = {f.word for f in FAMILIES} | {c[:4] for c in RULES}     # GC2, and GC21 …
     cands = [(_distance(w, c), c) for c in (*RULES, *sorted(families))]
     cands += [(_distance(w.lower(), r.name), r.name) for r in RULES.values()]
     best, name = min(cands, key=lambda t: (t[0], t[1]))
@@ -125,14 +126,14 @@ def rule_list(codes) -> str:
     """
     codes = sorted(set(codes))
     parts = []
-    for digit, family in FAMILIES.items():
-        mine = [c for c in codes if c[2] == digit]
-        whole = [c for c in RULES if c[2] == digit]
+    for family in FAMILIES:
+        mine = [c for c in codes if c in RULES and RULES[c].family == family]
+        whole = [c for c in RULES if RULES[c].family == family]
         if mine and mine == whole:
-            parts.append(f"every GC{digit}xx rule ({family})")
+            parts.append(f"every {family.word}xx rule ({family.name})")
         else:
             parts.extend(mine)
-    parts.extend(c for c in codes if c[2] not in FAMILIES)
+    parts.extend(c for c in codes if c not in RULES)
     return ", ".join(parts)
 
 

@@ -1,0 +1,151 @@
+"""Rules declare what follows from them: every Finding construction tied to its catalogue entry.
+
+Each ``Finding(...)`` in the package names its code as a literal and a severity its entry lists
+(``Rule.variants``); every variant an entry lists is made somewhere; each entry states its family,
+what identifies a finding and its repair actions, and the advisor has a generator for each action.
+These are checks of the code against the catalogue (bookkeeping; no published source applies).
+"""
+
+from __future__ import annotations
+
+import ast
+import dataclasses
+from pathlib import Path
+
+import pytest
+
+from groundcheck.advice.candidates import AFTER_FINDINGS, BEFORE_FINDINGS, FINDING_GENERATORS
+from groundcheck.advice.fixes import identity
+from groundcheck.core.errors import Location
+from groundcheck.rules.catalogue import IDENTITIES, RULES, SEVERITIES, Finding
+from groundcheck.rules.rule_families import FAMILIES, PROTECTIVE_EARTH
+
+PACKAGE = Path(__file__).resolve().parent.parent / "groundcheck"
+
+
+def _strings(node: ast.AST, scope: ast.AST, slot: int | None = None) -> set[str]:
+    """The string values an expression can take: a literal, either branch of a conditional, or
+    every value assigned to a name in the enclosing function (a tuple assignment by position)."""
+    if isinstance(node, ast.Constant) and isinstance(node.value, str):
+        return {node.value}
+    if isinstance(node, ast.IfExp):
+        return _strings(node.body, scope) | _strings(node.orelse, scope)
+    if isinstance(node, ast.Name):
+        out: set[str] = set()
+        for a in ast.walk(scope):
+            if not isinstance(a, ast.Assign):
+                continue
+            for t in a.targets:
+                if isinstance(t, ast.Name) and t.id == node.id:
+                    out |= _strings(a.value, scope)
+                elif isinstance(t, ast.Tuple) and isinstance(a.value, ast.Tuple):
+                    for i, e in enumerate(t.elts):
+                        if isinstance(e, ast.Name) and e.id == node.id:
+                            out |= _strings(a.value.elts[i], scope)
+        return out
+    raise AssertionError(f"a severity written as {ast.dump(node)[:80]}: name a variant of the "
+                         "entry")
+
+
+def _constructions():
+    """(file:line, code, the severities the call can give) of every Finding(...) in the package."""
+    out = []
+    for path in sorted(PACKAGE.rglob("*.py")):
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        funcs = [n for n in ast.walk(tree)
+                 if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef))]
+        for call in ast.walk(tree):
+            if not (isinstance(call, ast.Call) and getattr(call.func, "id", "") == "Finding"):
+                continue
+            where = f"{path.relative_to(PACKAGE)}:{call.lineno}"
+            code, sev = call.args[0], call.args[1]
+            assert isinstance(code, ast.Constant), f"{where}: write the code as a literal"
+            scope = min((f for f in funcs if f.lineno <= call.lineno <= f.end_lineno),
+                        key=lambda f: f.end_lineno - f.lineno, default=tree)
+            out.append((where, code.value, _strings(sev, scope)))
+    return out
+
+
+CONSTRUCTIONS = _constructions()
+
+
+def test_the_package_constructs_findings_of_most_rules():
+    # the scan sees the calls (a scan that found none would pass every check below)
+    assert len(CONSTRUCTIONS) >= 40
+    assert len({code for _, code, _ in CONSTRUCTIONS}) >= 40
+
+
+@pytest.mark.parametrize("where,code,severities", CONSTRUCTIONS, ids=[c[0] for c in CONSTRUCTIONS])
+def test_every_finding_construction_names_a_variant_of_its_entry(where, code, severities):
+    assert code in RULES, where
+    assert severities, f"{where}: no severity found"
+    assert severities <= set(RULES[code].variants), (
+        f"{where}: {code} made as {sorted(severities)}; its entry lists {RULES[code].variants}")
+
+
+def test_every_variant_an_entry_lists_is_made_somewhere():
+    made: dict[str, set[str]] = {}
+    for _, code, sev in CONSTRUCTIONS:
+        made.setdefault(code, set()).update(sev)
+    for code, rule in RULES.items():
+        assert set(rule.variants) <= made.get(code, set()), (code, rule.variants, made.get(code))
+
+
+def test_the_entries_that_make_more_than_one_severity():
+    # the variants the catalogue's own text describes (GC206's note past the standard's limit,
+    # GC218's one device / earthed through an interconnect / shared secondary, ...)
+    several = {c: set(r.variants) for c, r in RULES.items() if len(r.variants) > 1}
+    assert several == {
+        "GC101": {"warning", "note"}, "GC102": {"fault", "note"}, "GC206": {"danger", "note"},
+        "GC208": {"danger", "note"}, "GC211": {"danger", "warning"},
+        "GC218": {"danger", "warning", "note"}, "GC306": {"fault", "note"},
+    }
+    for code, rule in RULES.items():
+        assert rule.variants[0] == rule.severity and set(rule.variants) <= set(SEVERITIES), code
+
+
+def test_a_finding_of_a_severity_its_entry_does_not_list_is_refused():
+    loc = Location("plan.gplan", 1, 1)
+    assert Finding("GC206", "note", "m", loc).severity == "note"
+    with pytest.raises(ValueError, match="GC101 makes no danger finding"):
+        Finding("GC101", "danger", "m", loc)
+    with pytest.raises(ValueError):
+        Finding("GC206", "warning", "m", loc)
+
+
+def test_each_entry_states_a_family_numbered_as_its_word():
+    # the one place a code's digits are compared with anything: the entries' stated families
+    # agree with the rule words that select them (DEVELOPERS.md: 1xx topology, 2xx protective
+    # earth, 3xx hum, 4xx electrical model)
+    assert [f.word for f in FAMILIES] == ["GC1", "GC2", "GC3", "GC4"]
+    for code, rule in RULES.items():
+        assert rule.family in FAMILIES and code[:3] == rule.family.word, code
+    assert RULES["GC218"].family == PROTECTIVE_EARTH and RULES["GC306"].family.name == "hum"
+
+
+def test_no_module_reads_a_family_from_a_code():
+    for path in PACKAGE.rglob("*.py"):
+        text = path.read_text(encoding="utf-8")
+        for digit in "1234":
+            spellings = (f'startswith("GC{digit}', f"startswith('GC{digit}", f'[2] == "{digit}"')
+            for spelled in spellings:
+                assert spelled not in text, f"{path.relative_to(PACKAGE)}: {spelled}"
+
+
+def test_every_repair_action_an_entry_names_has_one_generator():
+    registered = [*FINDING_GENERATORS, *BEFORE_FINDINGS, *AFTER_FINDINGS]
+    assert len(registered) == len(set(registered))
+    named = {a for r in RULES.values() for a in r.actions}
+    assert named == set(registered)
+    assert RULES["GC202"].actions == ("own-stud",) and RULES["GC305"].actions == ("carried",)
+
+
+def test_identity_reads_the_entry():
+    loc = Location("plan.gplan", 1, 1)
+    pair = [c for c, r in RULES.items() if r.identity == "pair"]
+    assert set(pair) == {"GC102", "GC301", "GC302", "GC303"}
+    assert {r.identity for r in RULES.values()} <= set(IDENTITIES)
+    f = Finding("GC102", "fault", "m", loc, ("rect", "v1", "c2", "c1"))
+    assert identity(f) == ("GC102", "rect", "v1")
+    g = dataclasses.replace(f, code="GC101", severity="warning")
+    assert identity(g) == ("GC101", "c1", "c2", "rect", "v1")
