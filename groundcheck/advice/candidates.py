@@ -23,6 +23,7 @@ from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, 
 from .edits import Edit
 from .installation_changes import installation_candidates, shield_to_chassis
 from .returns import insulate_candidates
+from .supply_changes import supply_candidates
 
 __all__ = ["Candidate", "candidates"]
 
@@ -366,5 +367,6 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     _shared_return_candidates(ctx, add)   # before the star's: the same join answers GC102 first
     _finding_candidates(ctx, add)
     installation_candidates(ctx, add)
+    supply_candidates(ctx, add)
     _crosstalk_candidates(ctx, add)
     return out
