@@ -82,8 +82,8 @@ def invariants(n: int) -> None:
 
 
 def advice(n: int) -> None:
-    """The advisor's promises (tests/test_repair_properties.py) on ``n`` generated plans; the count of
-    accepted suggestions seen, by action."""
+    """The advisor's promises (tests/test_repair_properties.py) on ``n`` generated plans; the
+    count of accepted suggestions seen, by action."""
     from collections import Counter
 
     from test_repair_properties import advisor_promises, chassis_plans

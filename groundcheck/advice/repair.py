@@ -169,7 +169,8 @@ def _left_stud(cand: Candidate, plan: Plan, after: Plan) -> set[str]:
     wire no longer runs through them, and its new stud's own fastening carries it instead."""
     if cand.action != "own-stud":
         return set()
-    c0, c1 = (next((c for c in x.conductors if c.name == cand.element), None) for x in (plan, after))
+    c0, c1 = (next((c for c in x.conductors if c.name == cand.element), None)
+              for x in (plan, after))
     if c0 is None or c1 is None:
         return set()
     left = {c0.a, c0.b} - {c1.a, c1.b}

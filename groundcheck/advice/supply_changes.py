@@ -94,8 +94,8 @@ def supply_candidates(ctx: ChangeContext, add) -> None:
             add(_rcd(ctx, st, finer[-1], "GC220", f"electrode × rating within {TOUCH_LIMIT:g} V"))
         target = electrode_target(m.rcd)
         if r_a is None or target < r_a:
-            add(Candidate(f"have the installation's earth electrode measured and improved to at most "
-                          f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
+            add(Candidate(f"have the installation's earth electrode measured and improved to "
+                          f"at most {target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
                           f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states "
                           f"'electrode {target:g} ohm'", "GC220",
                           (_set(ctx, st, "electrode", f"{target:g} ohm"),), action="electrode",
