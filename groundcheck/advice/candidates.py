@@ -297,7 +297,9 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
         return
     for end, other in ((row.a, row.b), (row.b, row.a)):
         for d in ctx.plan.conductors:
-            if other in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
+            # a wire written 'signal' is a stage's reference, never a supply's return to join
+            if other in (d.a, d.b) and not shield_like(d) and not ctx.protective(d) \
+                    and d.role != SIGNAL:
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
                              f"{row.source} current stays between them and leaves {', '.join(row.shared)}",
