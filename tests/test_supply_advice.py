@@ -8,7 +8,7 @@ import pytest
 from groundcheck import load_text
 from groundcheck.advice.edits import apply_edits
 from groundcheck.advice.fixes import SHOWN_BY_SUGGEST, advised_fixes
-from groundcheck.advice.repair import suggest
+from groundcheck.advice.repair import greedy, suggest
 from groundcheck.analysis import Options
 
 BODY = """metal deck: steel 1 mm, 300 x 200 mm, touchable
@@ -108,3 +108,23 @@ def test_no_installation_change_lifts_or_thins_the_protective_earth():
             assert [e.line for e in ev.candidate.edits] == [2]  # the mains statement alone
             pe = next(c for c in ev.result.plan.conductors if c.name == "pe_lead")
             assert (pe.a, pe.b, pe.area) == ("mains.pe", "pe_stud", pytest.approx(0.75e-6))
+
+
+def test_own_stud_is_accepted_when_the_old_stud_keeps_only_the_star_bond():
+    # the star bond shares the protective earth's stud (GC202): moving the protective wire to a stud of
+    # its own leaves the old stud's bolt holding the star bond alone, off the protective route, which is
+    # the point of the fix (common practice), not a protective conductor taken away
+    text = ('plan "shared stud"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, '
+            "breaking high, inlet at 10,100\n"
+            + BODY.replace("star to bond_stud", "star to pe_stud"))
+    plan = load_text(text, "shared.gplan")
+    before, evs = suggest(plan, text, OPTIONS)
+    assert "GC202" in {f.code for f in before.findings}
+    top = _accepted(evs)[0]
+    assert top.candidate.action == "own-stud" and top.candidate.element == "pe_lead"
+    pe = next(c for c in top.result.plan.conductors if c.name == "pe_lead")
+    assert pe.a == "mains.pe" and pe.b != "pe_stud" and pe.area == pytest.approx(0.75e-6)
+    assert pe.role == "protective" and "# green-yellow" in top.candidate.edits[0].new
+    chosen, after, _ = greedy(plan, text, OPTIONS, evs=evs, before=before)
+    assert [ev.candidate.action for ev in chosen][:1] == ["own-stud"]
+    assert "GC202" not in {f.code for f in after.findings}
