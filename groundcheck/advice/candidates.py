@@ -351,7 +351,10 @@ def _crosstalk_candidates(ctx: ChangeContext, add) -> None:
         for d in ctx.plan.conductors:
             if cur.a in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
                 far = d.b if d.a == cur.a else d.a
-                if goal and far != goal:
+                # a wire that lands on a socket is the lead plugged into it (a headphone lead's common):
+                # its end stays on the socket
+                socket = far in ctx.points and ctx.points[far].kind in ("sleeve", "jack")
+                if goal and far != goal and not socket:
                     add(reroute(ctx, d.name, far, goal, f"take {cur.a} to {goal} by its own wire ({d.name}), so "
                                  f"the {cur.channel} channel's return leaves the other channel's ground", "GC304"))
 
