@@ -5,11 +5,15 @@
     python benchmarks/fuzz_campaign.py --mutants 5000           # token mutants of every example
     python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   # coverage-guided, if atheris installs
     python benchmarks/fuzz_campaign.py --invariants 10000   # invariant properties, N plans each
+    python benchmarks/fuzz_campaign.py --advice 1000        # the advisor's promises, N plans
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
 crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
 tests/test_invariants.py (mirrored channels equal, names, unconnected elements, resistance scaling)
 run on N generated plans each with --invariants N; a failure is shrunk and printed by Hypothesis.
+The advisor's promises of tests/test_repair_properties.py (no protective conductor changed but by
+the own-stud fix, no wired return removed, predictions equal a fresh check, fix lines agree) run on
+N generated chassis plans with --advice N.
 """
 
 from __future__ import annotations
@@ -77,6 +81,28 @@ def invariants(n: int) -> None:
         print(f"{name}: {n} plans, no failure, {time.perf_counter() - t:.0f} s so far", flush=True)
 
 
+def advice(n: int) -> None:
+    """The advisor's promises (tests/test_repair_properties.py) on ``n`` generated plans; the
+    count of accepted suggestions seen, by action."""
+    from collections import Counter
+
+    from test_repair_properties import advisor_promises, chassis_plans
+
+    from groundcheck.advice.repair import suggest
+    from groundcheck.analysis import Options
+    seen: Counter = Counter()
+    t = time.perf_counter()
+
+    def run(text: str) -> None:
+        advisor_promises(text)
+        _, evs = suggest(load_text(text, "generated.gplan"), text, Options(max_frequency=1000.0))
+        seen.update(ev.candidate.action for ev in evs if not ev.rejected)
+    settings(max_examples=n, deadline=None, database=None,
+             suppress_health_check=list(HealthCheck))(given(chassis_plans())(run))()
+    print(f"advisor's promises: {n} plans, no failure, {time.perf_counter() - t:.0f} s; "
+          f"accepted suggestions by action: {dict(sorted(seen.items()))}", flush=True)
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--examples", type=int, default=2000)
@@ -85,7 +111,12 @@ def main() -> None:
     ap.add_argument("--mutants", type=int, default=0, metavar="N", help="N token mutants of every example")
     ap.add_argument("--invariants", type=int, default=0, metavar="N",
                     help="the invariant properties, N plans each")
+    ap.add_argument("--advice", type=int, default=0, metavar="N",
+                    help="the advisor's promises on N generated chassis plans")
     args, rest = ap.parse_known_args()
+    if args.advice:
+        advice(args.advice)
+        return
     if args.invariants:
         invariants(args.invariants)
         return

@@ -130,6 +130,13 @@ def test_headphone_first_fix_insulates_the_input_socket_in_the_block():
     assert "every placement" in first.title
 
 
+def test_headphone_lead_common_stays_on_its_jack():
+    # common practice: the headphone lead's common lands on the jack it plugs into; moving it to the
+    # star inside the chassis is no change a builder can make, so it is not even considered
+    _, _, evs, *_ = _advised(HP)
+    assert not [e.candidate.title for e in evs if e.candidate.element == "hp_common"]
+
+
 def test_headphone_never_unwires_the_input_nor_lifts_its_return():
     _never(HP, "remove", "in_gnd")
     for name in ("in_gnd", "pot_ret"):

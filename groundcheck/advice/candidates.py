@@ -23,6 +23,7 @@ from .changes import (ROUTE_ALLOWANCE, SOURCE_CLEARANCE, STANDARD_SECTIONS_MM2, 
 from .edits import Edit
 from .installation_changes import installation_candidates, shield_to_chassis
 from .returns import insulate_candidates
+from .supply_changes import supply_candidates
 
 __all__ = ["Candidate", "candidates", "FINDING_GENERATORS", "BEFORE_FINDINGS", "AFTER_FINDINGS"]
 
@@ -299,7 +300,9 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
         return
     for end, other in ((row.a, row.b), (row.b, row.a)):
         for d in ctx.plan.conductors:
-            if other in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
+            # a wire written 'signal' is a stage's reference, never a supply's return to join
+            if other in (d.a, d.b) and not shield_like(d) and not ctx.protective(d) \
+                    and d.role != SIGNAL:
                 far = d.b if d.a == other else d.a
                 add(reroute(ctx, d.name, far, end, f"join {other} straight to {end} ({d.name}), so the "
                              f"{row.source} current stays between them and leaves {', '.join(row.shared)}",
@@ -351,7 +354,10 @@ def _crosstalk_candidates(ctx: ChangeContext, add) -> None:
         for d in ctx.plan.conductors:
             if cur.a in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
                 far = d.b if d.a == cur.a else d.a
-                if goal and far != goal:
+                # a wire that lands on a socket is the lead plugged into it (a headphone lead's common):
+                # its end stays on the socket
+                socket = far in ctx.points and ctx.points[far].kind in ("sleeve", "jack")
+                if goal and far != goal and not socket:
                     add(reroute(ctx, d.name, far, goal, f"take {cur.a} to {goal} by its own wire ({d.name}), so "
                                  f"the {cur.channel} channel's return leaves the other channel's ground", "GC304"))
 
@@ -372,7 +378,7 @@ FINDING_GENERATORS = {
 #: the generators of actions answered over the whole result (each loop of the loop list, each
 #: coupling row, the installation), called once: those before the findings' own, and after
 BEFORE_FINDINGS = {"open-loop": _loop_candidates, "own-return": _shared_return_candidates}
-AFTER_FINDINGS = {"between-devices": installation_candidates,
+AFTER_FINDINGS = {"between-devices": installation_candidates, "installation-side": supply_candidates,
                   "own-crosstalk-return": _crosstalk_candidates}
 
 

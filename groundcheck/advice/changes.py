@@ -36,9 +36,11 @@ ROUTE_ALLOWANCE = 0.2
 #: move a conductor's end; join two returns' ends; terminate a shield at one end; land a shield on
 #: the chassis; use a balanced link; give a device a ground-lift network; plug a device in
 #: elsewhere; give the protective earth its own stud; thicken a protective conductor; bond a part
-#: by a protective wire of its own
+#: by a protective wire of its own; on the installation's side (a qualified electrician's work), an
+#: RCD on the supply circuit or a lower earth-electrode resistance
 ACTIONS = ("insulate", "remove", "lift-network", "move", "join", "terminate-at",
-           "shield-to-chassis", "balance", "device-lift", "replug", "own-stud", "thicken", "bond")
+           "shield-to-chassis", "balance", "device-lift", "replug", "own-stud", "thicken", "bond",
+           "rcd", "electrode")
 
 
 @dataclass(frozen=True)

@@ -16,6 +16,7 @@ finding is left, or when the time budget runs out (the untried candidates are li
 
 from __future__ import annotations
 
+import dataclasses
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -26,6 +27,7 @@ from ..core.units import dbv
 from ..rules.catalogue import RULES, severity_rank
 from ..rules.rule_families import PROTECTIVE_EARTH
 from ..language.loader import load_text, substituted
+from ..model.kinds import is_fastening_kind
 from ..model.records import Plan
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, edited_texts, text_diff, unified_diff
@@ -127,7 +129,8 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return ev
     # a device plugged in elsewhere leaves the building runs it used, but no conductor: its earth path is checked
     # again below (a broken or long one is a danger, GC215)
-    lost = sorted(before.protective - after.protective) if not cand.moves_plug else []
+    lost = sorted(before.protective - after.protective - _left_stud(cand, plan, p)) \
+        if not cand.moves_plug else []
     if lost:
         ev.rejected = f"it would take {', '.join(lost[:3])} off the protective route"
         return ev
@@ -160,6 +163,19 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         return ev
     _score(ev, before, after, k0, k1)
     return ev
+
+
+def _left_stud(cand: Candidate, plan: Plan, after: Plan) -> set[str]:
+    """The fastenings of the stud a protective wire left for a stud of its own (GC202's fix): the
+    wire no longer runs through them, and its new stud's own fastening carries it instead."""
+    if cand.action != "own-stud":
+        return set()
+    c0, c1 = (next((c for c in x.conductors if c.name == cand.element), None)
+              for x in (plan, after))
+    if c0 is None or c1 is None:
+        return set()
+    left = {c0.a, c0.b} - {c1.a, c1.b}
+    return {c.name for c in plan.conductors if is_fastening_kind(c.kind) and left & {c.a, c.b}}
 
 
 def _through_star(cand: Candidate, after: Result) -> bool:
@@ -251,8 +267,8 @@ def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | Non
             break
         if _overlaps(edits, e.candidate.edits):
             continue
-        combined = Candidate(e.candidate.title, e.candidate.reason, tuple(edits) + e.candidate.edits,
-                             e.candidate.touches_protective)
+        # the candidate's own action and element, with the kept edits before its own
+        combined = dataclasses.replace(e.candidate, edits=tuple(edits) + e.candidate.edits)
         ev = evaluate(text, plan, current, combined, options, root, resolved)
         if ev.rejected or ev.score <= 1e-9:
             continue

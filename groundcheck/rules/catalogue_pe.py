@@ -80,7 +80,7 @@ PROTECTIVE_ENTRIES = [
        "Protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the fuse rating the equipment "
        "allows.",
        "IEC 60364-4-41 Table 41.1; IEC 60127-2, IEC 60898-1 and IEC 61008-1 time-current limits (from memory)",
-       variants=("danger", "note")),
+       variants=("danger", "note"), actions=("installation-side",)),
     _e("GC209", "pe-role-missing", PROTECTIVE_EARTH, "warning",
        "A conductor the protective earth relies on (on the route from the inlet's earth terminal to a metal part) "
        "that the plan does not write as protective.",
@@ -190,13 +190,13 @@ PROTECTIVE_ENTRIES = [
        "A fault current just below IΔn does not trip the RCD, and it leaves R_A × IΔn on every earthed part; above "
        "50 V that is a dangerous touch voltage that nothing clears.",
        "Improve the earth electrode (a qualified electrician measures and repairs it), or use a more sensitive RCD.",
-       "IEC 60364-4-41 411.5.3 (R_A × IΔn ≤ 50 V), from memory"),
+       "IEC 60364-4-41 411.5.3 (R_A × IΔn ≤ 50 V), from memory", actions=("installation-side",)),
     _e("GC221", "tt-overcurrent-only", PROTECTIVE_EARTH, "note",
        "A TT supply whose disconnection rests on a fuse or breaker alone, with no RCD.",
        "The fault loop of a TT supply runs through the earth electrodes, whose resistance changes with soil and "
        "season; an overcurrent device alone clears only while that loop stays low.",
        "Protect the circuit with an RCD, as TT installations usually are.",
-       "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory"),
+       "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory", actions=("installation-side",)),
     _e("GC222", "signal-only-metal", PROTECTIVE_EARTH, "note",
        "Metal written signal-only (a footswitch box on a signal lead, a reverb pan): it is not held to protective "
        "bonding, and every output says so.",

@@ -1,0 +1,102 @@
+"""Installation-side changes for a protective-earth danger that the equipment's own wiring cannot
+cure: a residual-current device (RCD) on the supply circuit, a more sensitive one, or a lower
+earth-electrode resistance on a TT supply.  Each is an edit of the plan's ``mains`` statement (the
+plan then states the installation as it would be), evaluated like every candidate; each title says
+that the work is a qualified electrician's, to the local wiring rules, and never a change to the
+protective earth of the equipment (none lifts, removes or thins a protective conductor).
+
+Answers: GC208 (a fault not disconnected in time), GC220 (TT: electrode × the RCD's rating over
+50 V), GC221 (TT protected by a fuse or breaker alone).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..physics.safety import TOUCH_LIMIT
+from .changes import Candidate, ChangeContext
+from .edits import Edit
+
+__all__ = ["supply_candidates", "RCD_RATINGS", "SOCKET_RCD", "electrode_target"]
+
+#: rated residual operating currents IΔn of general-type RCDs, A (IEC 61008-1's preferred values,
+#: from memory)
+RCD_RATINGS = (0.01, 0.03, 0.1, 0.3, 0.5)
+#: the rating used for socket-outlet circuits, A (IEC 60364-4-41 411.3.3's additional protection:
+#: IΔn at most 30 mA, from memory)
+SOCKET_RCD = 0.03
+
+_DEFER = ("installation work for a qualified electrician, to the local wiring rules; the "
+          "equipment's protective earth stays as it is")
+
+
+def electrode_target(rcd: float) -> float:
+    """The largest electrode resistance R_A, Ω, at two significant figures rounded down, for which
+    R_A × IΔn stays within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A × IΔn ≤ 50 V)."""
+    r = TOUCH_LIMIT / rcd
+    step = 10.0 ** (math.floor(math.log10(r)) - 1)
+    return math.floor(r / step + 1e-9) * step
+
+
+def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
+    """The statement with ``, phrase`` after its last item (before any comment)."""
+    n, _, b = ctx.src.span(st.phrases[-1][-1])
+    edit = ctx.src.replace(st, [])
+    rows = edit.new.split("\n")
+    row = rows[n - st.loc.line]
+    rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
+    return Edit(edit.line, "\n".join(rows), (), edit.last)
+
+
+def _set(ctx: ChangeContext, st, word: str, value: str) -> Edit:
+    """The statement's ``word`` phrase given ``value`` (added when the statement has none)."""
+    ph = ctx.src.find(st, word)
+    if ph and len(ph) == 2:
+        return ctx.src.replace(st, [(ph[1], value)])
+    return _appended(ctx, st, f"{word} {value}")
+
+
+def _rcd(ctx: ChangeContext, st, rating: float, reason: str, why: str) -> Candidate:
+    ma = f"{rating * 1e3:g} mA"
+    return Candidate(f"have the supply circuit protected by a {ma} RCD ({why}): {_DEFER}; the "
+                     f"mains statement then states 'rcd {ma}'", reason,
+                     (_set(ctx, st, "rcd", ma),), action="rcd", element="mains")
+
+
+def supply_candidates(ctx: ChangeContext, add) -> None:
+    """The installation-side candidates for the plan's GC208, GC220 and GC221 findings, passed to
+    ``add``.
+
+    Parameters:
+        ctx: the change context.
+        add: takes a candidate.
+    Returns:
+        nothing (the candidates go to ``add``).
+    References:
+        IEC 60364-4-41 411.3.3 and 411.5.3 (from memory); the ratings of :data:`RCD_RATINGS`.
+    """
+    m = ctx.plan.mains
+    if m is None or m.location.file != ctx.plan.file:
+        return
+    st = ctx.src.statement(m.location.line)
+    codes = {f.code for f in ctx.result.findings if f.code in ("GC208", "GC220", "GC221")
+             and (f.code != "GC208" or f.severity == "danger")}
+    if st is None or not codes:
+        return
+    if ("GC208" in codes or "GC221" in codes) and (m.rcd is None or m.rcd > SOCKET_RCD):
+        reason = "GC208" if "GC208" in codes else "GC221"
+        add(_rcd(ctx, st, SOCKET_RCD, reason, "it disconnects a fault to the metal within "
+                 "the time allowed, whatever the fault loop"))
+    if "GC220" in codes and m.rcd is not None:
+        r_a = ctx.result.safety.supply.electrode if ctx.result.safety is not None else None
+        finer = [r for r in RCD_RATINGS if r < m.rcd and (r_a is None or r_a * r <= TOUCH_LIMIT)]
+        if finer:
+            add(_rcd(ctx, st, finer[-1], "GC220", f"electrode × rating within {TOUCH_LIMIT:g} V"))
+        target = electrode_target(m.rcd)
+        if r_a is None or target < r_a:
+            add(Candidate(f"have the installation's earth electrode measured and improved to "
+                          f"at most {target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
+                          f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states "
+                          f"'electrode {target:g} ohm'", "GC220",
+                          (_set(ctx, st, "electrode", f"{target:g} ohm"),), action="electrode",
+                          element="mains"))
