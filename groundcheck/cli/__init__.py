@@ -15,6 +15,7 @@ from pathlib import Path
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors
+from ..core.runtime import files_read, note_read
 from ..rules.catalogue import RULES
 from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
@@ -164,12 +165,13 @@ class _Rendered(GroundcheckError):
 
 
 def _check_one(path: str, options, budget: float = 0.0):
-    """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors)."""
+    """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors), and every
+    file the worker read (the parent protects them from its output too)."""
     from ..analysis import analyze
     try:
-        return True, advised(analyze(load_plan(path), options), path, budget)
+        return True, advised(analyze(load_plan(path), options), path, budget), files_read()
     except PlanErrors as e:
-        return False, e.render()
+        return False, e.render(), files_read()
 
 
 def _analyze_with_progress(analyze, plan, options, label: str):
@@ -203,7 +205,9 @@ def cmd_check(args) -> int:
     from ..analysis import analyze
     results = []
     if args.jobs > 1 and len(args.plans) > 1:
-        for ok, value in _check_side_by_side(args):
+        for ok, value, read in _check_side_by_side(args):
+            for f in read:                 # a worker's includes and device plans: never an output
+                note_read(f)
             if not ok:
                 raise _Rendered(value)
             results.append(value)

@@ -13,6 +13,7 @@ import signal
 import sys
 import threading
 from contextlib import contextmanager
+from pathlib import Path
 
 __all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas", "note_read", "files_read",
            "terminate_as_exit"]
@@ -23,7 +24,7 @@ _READ: set = set()
 
 def note_read(path) -> None:
     """Remember that a plan file was read (the loader calls it for the plan, its includes and device plans)."""
-    _READ.add(path.resolve())
+    _READ.add(Path(path).resolve())
 
 
 def files_read() -> tuple:
