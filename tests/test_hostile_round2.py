@@ -41,3 +41,24 @@ def test_jobs_never_write_over_an_included_plan(tmp_path, how):
                             limit_gb=3)
         assert code == 2 and "a plan this run read" in err, err[-500:]
         assert part.read_bytes() == before
+
+
+LIMITS_CASES = sorted((ROUND2 / "03-unclosed-block-bypasses-limit").glob("*.gplan"))
+
+
+@pytest.mark.parametrize("path", LIMITS_CASES, ids=lambda p: p.stem)
+def test_a_broken_block_is_still_bounded(path):
+    # one deleted '}' or one duplicated 'place' line once ran to gigabytes of memory or of error text; under a
+    # 1 GiB address-space cap it is now a short list of located errors
+    code, out, err = _run("check", str(path), timeout=60)
+    assert code == 2 and "Traceback" not in err and "internal error" not in err, err[-500:]
+    assert len(err) < 20_000 and err.startswith(f"{path}:")
+    assert "more)" in err or "rectifiers" in err      # a placement list is cut short, never 10,000 long
+
+
+def test_error_output_is_capped(cli, tmp_path):
+    f = tmp_path / "many.gplan"
+    f.write_text('plan "x"\nmetal m: steel 1 mm, 10 x 10 mm\n' + "".join(f"point p{i}: bogus\n" for i in range(120)))
+    code, _, err = cli("check", str(f))
+    assert code == 2
+    assert err.count(": error: ") == 50 and "and 70 more errors" in err

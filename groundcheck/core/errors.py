@@ -74,8 +74,13 @@ class PlanErrors(GroundcheckError):
         # an error inside a block placed twice is the same error at the same place: said once
         unique = {(e.location, e.message): e for e in reversed(errors)}
         errors = sorted(unique.values(), key=lambda e: (e.location.file, e.location.line, e.location.column))
-        super().__init__("\n".join(e.one_line() for e in errors))
+        super().__init__("\n".join(e.one_line() for e in errors[:50]))
         self.errors = errors
 
-    def render(self) -> str:
-        return "\n".join(e.render() for e in self.errors)
+    def render(self, limit: int = 50) -> str:
+        """The first ``limit`` errors in full, then how many more there are."""
+        shown_errors = [e.render() for e in self.errors[:limit]]
+        if len(self.errors) > limit:
+            shown_errors.append(f"... and {len(self.errors) - limit:,} more errors (the first {limit} are shown; "
+                                "mend them and check again)")
+        return "\n".join(shown_errors)

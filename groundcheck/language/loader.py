@@ -116,6 +116,12 @@ class _Loader:
         self.outer_names: set[str] = set()    # names written at the top level (a block's own name may hide one)
         self.shadowed: dict[tuple[str, int], set[str]] = {}     # a block statement's (file, line): names it hides
         self._size_cache: dict[str, int] = {}
+        self._walk_cache: dict[str, int] = {}
+        self.rectifiers = 0
+        self.stopped = False
+        self._place_cache: dict[int, object] = {}
+        self.walked = 0                       # statements walked inside placements, counted before expanding
+        self._said: set = set()               # (location, message) of the errors a placement already gave
         self._local_cache: dict[str, set[str]] = {}
         self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
 
@@ -210,6 +216,26 @@ class _Loader:
         self._size_cache[block] = n
         return n
 
+    def block_walk(self, block: str, seen: tuple[str, ...] = ()) -> int:
+        """How many statements one placement of ``block`` walks, those that fail included (a placement of an
+        undefined block, or of a block already being placed, is one): bounds the work even of a broken plan."""
+        if block in self._walk_cache:
+            return self._walk_cache[block]
+        bd = self.blocks.get(block)
+        if bd is None or block in seen:
+            return 1
+        n = 0
+        for st in bd.body:
+            n += 1
+            if not isinstance(st, tuple) and st.keyword == "place":
+                try:
+                    inner, _, _ = self.parse_place(st)
+                except PlanError:
+                    continue
+                n += self.block_walk(inner, seen + (block,))
+        self._walk_cache[block] = n
+        return n
+
     def local_names(self, block: str, seen: tuple[str, ...] = ()) -> set[str]:
         if block in self._local_cache:
             return self._local_cache[block]
@@ -231,6 +257,19 @@ class _Loader:
         return names
 
     def parse_place(self, st: Statement) -> tuple[str, str, Transform]:
+        """A place statement read once (its error too): a block placed many times walks it many times."""
+        got = self._place_cache.get(id(st))
+        if got is None:
+            try:
+                got = self._parse_place(st)
+            except PlanError as e:
+                got = e
+            self._place_cache[id(st)] = got
+        if isinstance(got, PlanError):
+            raise got.with_traceback(None)
+        return got
+
+    def _parse_place(self, st: Statement) -> tuple[str, str, Transform]:
         if not st.phrases:
             raise PlanError("place needs a block and a name", st.loc, "e.g. 'place channel as left at 0,0'")
         r = Reader(st.phrases[0], st)
@@ -260,6 +299,8 @@ class _Loader:
     def expand(self, items: list, prefix: str, tf: Transform, scopes: tuple, depth: int,
                path: tuple[str, ...], out: list) -> None:
         for it in items:
+            if self.stopped:                   # a limit was reached: nothing more is expanded
+                return
             if isinstance(it, tuple):          # a block definition
                 if prefix:
                     self.errors.append(PlanError("blocks are defined at the top level of a file", it[1].loc,
@@ -279,6 +320,11 @@ class _Loader:
                                          "flatten the blocks")
                     if depth == 0:                 # a top-level placement: its size counts every nested one
                         self.placed += self.block_size(block)
+                        self.walked += self.block_walk(block)
+                    if self.walked > LIMITS["placed_statements"]:
+                        raise LimitError(f"block placements walk {self.walked:,} statements or more, over the limit "
+                                         f"of {LIMITS['placed_statements']:,} (counted before expanding)", st.loc,
+                                         "a block placed inside blocks multiplies, its errors too; place fewer")
                     if self.placed > LIMITS["placed_elements"]:
                         raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit "
                                          f"of {LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
@@ -297,6 +343,12 @@ class _Loader:
                 if prefix and st.keyword in HEADER_KEYWORDS:
                     raise PlanError(f"'{st.keyword}' belongs at the top level, not inside a block", st.loc,
                                     "move it out of the block")
+                if st.keyword == "rectifier":
+                    self.rectifiers += 1       # each is simulated in time: refused before the rest is built
+                    if self.rectifiers > LIMITS["rectifiers"]:
+                        raise LimitError(f"the plan has more than {LIMITS['rectifiers']} rectifiers, the limit (each "
+                                         "is simulated in time)", st.loc,
+                                         "describe a rack's identical supplies once, or split the installation")
                 record, refs = build(st)
                 self.count += 1
                 if self.count > LIMITS["elements"]:
@@ -304,10 +356,13 @@ class _Loader:
                                      "a block placed inside blocks multiplies; place fewer")
                 out.append((st, place(record, st, prefix, tf, scopes, self.outer_names, self.shadowed), refs))
             except PlanError as e:
-                self.errors.append(e)
+                if not prefix or (e.location, e.message) not in self._said:   # once, not once per placement
+                    self._said.add((e.location, e.message))
+                    self.errors.append(e)
                 if st.label:
                     self.broken.add(prefix + st.label)
                 if isinstance(e, LimitError):
+                    self.stopped = True
                     return
 
 
@@ -348,8 +403,9 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
     if not any(isinstance(e, LimitError) for e in ld.errors):
         plan = assemble(built, file, ld)
     if ld.errors:
+        worded: dict = {}
         for e in ld.errors:
-            name_placements(e, ld.placed_at, ld.shadowed)
+            name_placements(e, ld.placed_at, ld.shadowed, worded)
             lines = ld.sources.get(e.location.file)
             if e.source_line is None and lines and 1 <= e.location.line <= len(lines):
                 e.source_line = lines[e.location.line - 1]
