@@ -62,3 +62,102 @@ def test_error_output_is_capped(cli, tmp_path):
     code, _, err = cli("check", str(f))
     assert code == 2
     assert err.count(": error: ") == 50 and "and 70 more errors" in err
+
+
+def test_only_regular_files_are_plans(tmp_path):
+    fifo = tmp_path / "fifo.gplan"
+    os.mkfifo(fifo)
+    for path in (fifo, Path("/dev/zero")):
+        code, _, err = _run("check", str(path), timeout=30)
+        assert code == 2 and "not a regular file" in err and "Traceback" not in err
+
+
+def test_standard_input_is_bounded_and_utf8(tmp_path):
+    with open("/dev/zero", "rb") as zero:
+        code, _, err = _run("check", "-", stdin=zero, timeout=60)
+    assert code == 2 and "over the limit of 16777216 bytes" in err
+    with open(ROUND2 / "05-stdin" / "stdin-invalid-utf8.gplan", "rb") as f:
+        code, out, err = _run("check", "-", stdin=f, timeout=60)
+    assert code == 2 and err.startswith("<stdin>:1:8: error: the file is not UTF-8 text") and out == ""
+
+
+def test_a_folder_check_reads_no_link_and_no_special_file(tmp_path):
+    from helpers import EXAMPLES
+    head = next(p for p in EXAMPLES if p.name == "guitar-head.gplan").read_bytes()
+    (tmp_path / "a.gplan").write_bytes(head)
+    (tmp_path / "b.gplan").symlink_to("/etc/passwd")
+    (tmp_path / "z.gplan").symlink_to("/dev/zero")
+    os.mkfifo(tmp_path / "f.gplan")
+    outside = tmp_path.parent / (tmp_path.name + "-outside")
+    outside.mkdir()
+    (outside / "secret.gplan").write_text("SECRET-LINE\n")
+    (tmp_path / "linked").symlink_to(outside, target_is_directory=True)
+    code, out, err = _run("check", str(tmp_path), "--format", "json", timeout=120, limit_gb=3)
+    assert code in (0, 1) and "Traceback" not in err
+    assert "root:" not in out + err and "SECRET" not in out + err and "/etc/passwd" not in out + err
+    assert err.count("passed over") == 3
+
+
+def test_library_and_include_stay_in_the_plan_folder(tmp_path):
+    from groundcheck import PlanErrors, load_text
+    for line, said in (('library "/"', "outside the plan's folder"), ('library "../x"', "outside the plan's folder"),
+                       ('include "/etc/x.gplan"', "absolute path"), ('include "../x.gplan"', "outside")):
+        with pytest.raises(PlanErrors) as e:
+            load_text(f'plan "x"\n{line}\nmetal m: steel 1 mm, 10 x 10 mm\n', "p.gplan", root=tmp_path)
+        assert said in e.value.errors[0].message and e.value.errors[0].location.line == 2
+    # a library folder inside the plan's folder that is a link out of it is not searched
+    (tmp_path / "proj").mkdir()
+    (tmp_path / "elsewhere").mkdir()
+    (tmp_path / "elsewhere" / "secret.gplan").write_text('plan "s"\nSECRET-LINE-42\n')
+    (tmp_path / "proj" / "lib").symlink_to(tmp_path / "elsewhere", target_is_directory=True)
+    with pytest.raises(PlanErrors) as e:
+        load_text('plan "d"\nsupply 230 V 50 Hz\nlibrary "lib"\npoint met: earthing-terminal\npoint o: outlet\n'
+                  'wire r: o to met, 5 m, 2.5 mm2, protective\ndevice d: "secret.gplan", plugged o\n', "p.gplan",
+                  root=tmp_path / "proj")
+    assert "SECRET" not in str(e.value) and "not found" in str(e.value)
+
+
+def test_tt_loop_smaller_than_its_electrode_is_refused():
+    from groundcheck import PlanErrors, load
+    with pytest.raises(PlanErrors) as e:
+        load(ROUND2 / "02-tt-danger-passed" / "plan.gplan")
+    err = e.value.errors[0]
+    assert err.location.line == 2 and "larger than the whole external loop" in err.message
+
+
+def test_tt_electrode_alone_keeps_the_danger():
+    from groundcheck import load
+    from groundcheck.analysis import analyze
+    r = analyze(load(ROUND2 / "13-implausible-ratings" / "electrode-alone.gplan"))
+    (p,) = r.safety.parts
+    # Ohm's law by hand: the 100 Ω electrode alone bounds the fault current at 120 V / 100 Ω = 1.2 A, far under
+    # what trips a 16 A type B breaker (3 × 16 = 48 A, IEC 60898-1); the touch voltage stays under the 120 V supply
+    assert 120 / 105 < p.fault_current <= 120 / 100 and p.touch_voltage <= 120
+    assert p.clear_time is None
+    assert any(f.code == "GC208" and f.severity == "danger" for f in r.findings)
+
+
+@pytest.mark.parametrize("name, column, said", [
+    ("breaker-1nA.gplan", 28, "500 mA to 125 A"), ("fuse-1pA.gplan", 25, "1 mA to 125 A"),
+    ("tt-ze-0.gplan", 106, "more than zero")])
+def test_implausible_ratings_are_located_errors(name, column, said):
+    from groundcheck import PlanErrors, load
+    with pytest.raises(PlanErrors) as e:
+        load(ROUND2 / "13-implausible-ratings" / name)
+    err = e.value.errors[0]
+    assert (err.location.line, err.location.column) == (2, column) and said in err.message
+
+
+@pytest.mark.parametrize("phrase, said", [
+    ("breaker 200 A", "500 mA to 125 A"), ("rcd 1 mA", "4 mA to 3 A"), ("rcd 30 A", "4 mA to 3 A"),
+    ("loop-impedance 1 mohm", "10 mΩ to 100 kΩ"), ("loop-impedance 1 Mohm", "10 mΩ to 100 kΩ"),
+    ("fuse 500 A", "1 mA to 125 A")])
+def test_rating_ranges(phrase, said):
+    from groundcheck import PlanErrors, load_text
+    with pytest.raises(PlanErrors) as e:
+        load_text(f'plan "x"\nmains 230 V 50 Hz, {phrase}\nmetal m: steel 1 mm, 10 x 10 mm\n', "p.gplan")
+    err = e.value.errors[0]
+    assert err.location.line == 2 and said in err.message and "plausible" in err.message
+    # the edges themselves are accepted
+    for ok in ("breaker 0.5 A", "breaker 125 A", "rcd 4 mA", "rcd 3 A", "loop-impedance 10 mohm", "fuse 1 mA"):
+        load_text(f'plan "x"\nmains 230 V 50 Hz, {ok}\nmetal m: steel 1 mm, 10 x 10 mm\n', "p.gplan")

@@ -7,6 +7,7 @@ Public entry points: :func:`load` (a path, or ``-`` for standard input) and
 
 from __future__ import annotations
 
+import stat
 import sys
 from contextlib import contextmanager
 from contextvars import ContextVar
@@ -55,7 +56,7 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
     :func:`load_text`.
     """
     if str(path) == "-":
-        text = stdin_text if stdin_text is not None else sys.stdin.read()
+        text = stdin_text if stdin_text is not None else _read_stdin()
         return load_text(text, "<stdin>", root=Path.cwd(), libraries=libraries, jobs=jobs)
     p = Path(path)
     loc = Location(str(path), 0, 0)
@@ -74,16 +75,36 @@ def _read(p: Path, shown: str) -> str:
     if stand_in and str(p.resolve()) in stand_in:
         return stand_in[str(p.resolve())]
     try:
-        size = p.stat().st_size
-        if size > LIMITS["file_bytes"]:
-            raise PlanErrors([LimitError(f"plan file is {size} bytes, over the limit of {LIMITS['file_bytes']}", loc,
-                                         "split it with include")])
-        data = p.read_bytes()
+        st = p.stat()
+        if not stat.S_ISREG(st.st_mode):     # a FIFO would hang, a device never end
+            raise PlanErrors([PlanError(f"{shown} is not a regular file (a folder, a device, a FIFO or a socket)",
+                                        loc, f"name a {PLAN_SUFFIX} file")])
+        if st.st_size > LIMITS["file_bytes"]:
+            raise PlanErrors([LimitError(f"plan file is {st.st_size} bytes, over the limit of "
+                                         f"{LIMITS['file_bytes']}", loc, "split it with include")])
+        with open(p, "rb") as fh:            # bounded even if the file grows while it is read
+            data = fh.read(LIMITS["file_bytes"] + 1)
         note_read(p)
+        if len(data) > LIMITS["file_bytes"]:
+            raise PlanErrors([LimitError(f"plan file is over the limit of {LIMITS['file_bytes']} bytes", loc,
+                                         "split it with include")])
     except OSError as e:
         raise PlanErrors([PlanError(f"cannot read {shown}: {e.strerror}", loc,
                                     "check the path and permissions")]) from None
     return _decode(data, shown)
+
+
+def _read_stdin() -> str:
+    """Standard input, read no further than the size limit, and UTF-8 like a file."""
+    stream = getattr(sys.stdin, "buffer", None)
+    if stream is None:                       # a text stream put in place by a caller
+        data = sys.stdin.read(LIMITS["file_bytes"] + 1).encode("utf-8", "surrogateescape")
+    else:
+        data = stream.read(LIMITS["file_bytes"] + 1)
+    if len(data) > LIMITS["file_bytes"]:
+        raise PlanErrors([LimitError(f"standard input is over the limit of {LIMITS['file_bytes']} bytes",
+                                     Location("<stdin>", 0, 0), "split the plan with include")])
+    return _decode(data, "<stdin>")
 
 
 def _decode(data: bytes, shown: str) -> str:
@@ -171,6 +192,11 @@ class _Loader:
                                           "flatten the includes"))
             return []
         here = stack[-1].parent if stack else self.root
+        if Path(item.value).is_absolute():
+            self.errors.append(PlanError(f"include {item.value!r} is an absolute path, outside the plan's folder",
+                                         item.loc, "write a path relative to the including file, inside the "
+                                                   "plan's folder"))
+            return []
         target = (here / item.value).resolve()
         try:
             target.relative_to(self.root)

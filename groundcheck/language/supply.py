@@ -5,7 +5,7 @@ from __future__ import annotations
 from ..core.errors import PlanError
 from ..model.kinds import CURRENT_ROLES
 from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier, Supply
-from .phrases import Reader, Statement, check_quantity
+from .phrases import PLAUSIBLE, Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
 
 #: mains frequencies accepted, Hz: 50 and 60 Hz supplies, 16.7 Hz railway and 400 Hz aircraft supplies fit
@@ -98,7 +98,7 @@ def _phrase_loc(stmt: Statement, word: str):
 def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
     word = r.word("an attribute")
     if word in ("fuse", "breaker"):
-        kw["fuse"] = r.quantity("current", f"{word} rating")
+        kw["fuse"] = r.rating(word, f"{word} rating")
         if word == "fuse":
             kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
             kw["fuse_kind"] = FUSE_KINDS[kind]
@@ -107,7 +107,10 @@ def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
             kw["fuse_kind"] = f"breaker-{kind}"
     elif word in MAINS_ATTRIBUTES:
         field, what, kind = MAINS_ATTRIBUTES[word]
-        kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
+        if word in PLAUSIBLE:
+            kw[field] = r.rating(word, what)
+        else:
+            kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
     elif word == "cord":
         kw["cord_length"] = r.quantity("length", "cord length", allow_zero=True)
         if not r.done:
