@@ -161,3 +161,115 @@ def test_rating_ranges(phrase, said):
     # the edges themselves are accepted
     for ok in ("breaker 0.5 A", "breaker 125 A", "rcd 4 mA", "rcd 3 A", "loop-impedance 10 mohm", "fuse 1 mA"):
         load_text(f'plan "x"\nmains 230 V 50 Hz, {ok}\nmetal m: steel 1 mm, 10 x 10 mm\n', "p.gplan")
+
+
+RAW = ("\x9b", "\x9d", "\x85", "\u202e", "\u202c", "\u200b", "\x1b")
+
+
+def test_controls_never_reach_the_terminal_nor_a_page(cli, tmp_path):
+    title = ROUND2 / "10-terminal-controls" / "title.gplan"
+    code, out, err = cli("check", str(title))
+    assert not any(c in out + err for c in RAW) and "\\x9b" in out
+    code, out, err = cli("check", str(ROUND2 / "10-terminal-controls" / "errline.gplan"))
+    assert code == 2 and not any(c in err for c in RAW) and "\\u202e" in err
+    cli("compare", str(title), str(title), "--format", "html", "-o", str(tmp_path / "r.html"))
+    page = (tmp_path / "r.html").read_text()
+    assert not any(c in page for c in RAW) and "\\x9b" in page
+
+
+def test_a_file_name_with_escape_sequences_is_shown_escaped(tmp_path):
+    import shutil
+    if shutil.which("script") is None:
+        pytest.skip("needs script(1) for a terminal")
+    name = tmp_path / "f\x1b[2J\x1b]0;PWNED.gplan"
+    name.write_bytes((ROUND2 / "10-terminal-controls" / "title.gplan").read_bytes())
+    env = {**os.environ, "PYTHONPATH": str(Path(__file__).parents[1])}
+    cmd = f"{sys.executable} -m groundcheck check {tmp_path}/f*PWNED.gplan"
+    r = subprocess.run(["script", "-qc", cmd, "/dev/null"], capture_output=True, env=env, timeout=120)
+    assert b"analysing" in r.stdout and b"\x1b[2J" not in r.stdout and b"\x1b]0;" not in r.stdout
+
+
+@pytest.mark.parametrize("path, line, column, char", [
+    ("11-homoglyph-names/homoglyph.gplan", 48, 9, "U+0430"),
+    ("15-unicode-digits/fuse-fullwidth-5.gplan", 2, 25, "U+FF15"),
+    ("15-unicode-digits/secondary-arabic-indic-12.gplan", 28, 51, "U+0661")])
+def test_look_alike_letters_and_foreign_digits_are_errors(path, line, column, char):
+    from groundcheck import PlanErrors, load
+    with pytest.raises(PlanErrors) as e:
+        load(ROUND2 / path)
+    err = e.value.errors[0]
+    assert (err.location.line, err.location.column) == (line, column) and char in err.message
+
+
+def test_unit_signs_stay_readable():
+    from groundcheck import load_text
+    p = load_text('plan "x"\nmetal m: steel 1 mm, 10 x 10 mm\npoint a: stud, at 1,1 on m\n'
+                  "wire w: a to m, 10 mm, resistance 5 mΩ\nambient 25 °C\n", "p.gplan")
+    assert p.conductors[0].resistance == pytest.approx(5e-3)
+
+
+@pytest.mark.parametrize("mask, mode", [(0o077, 0o600), (0o022, 0o644), (0o002, 0o664)])
+def test_outputs_respect_the_umask(cli, tmp_path, mask, mode):
+    from helpers import EXAMPLES
+    old = os.umask(mask)
+    try:
+        cli("check", str(EXAMPLES[0]), "--format", "json", "-o", str(tmp_path / "out.json"))
+    finally:
+        os.umask(old)
+    assert (tmp_path / "out.json").stat().st_mode & 0o777 == mode     # 0666 less the mask, as open(2) does
+
+
+@pytest.mark.parametrize("name, peak, needed", [
+    # by hand: Child's law through the stated point (50 V at 250 mA) gives 50·(30/250)^(2/3) = 12.16 V at the
+    # 30 mA load, and the 2.2 kΩ filter resistor 66 V: 78.16 V, over the secondary's √2·4 = 5.657 V peak
+    ("secondary-4V.gplan", "5.657 V peak", "78.16 V"),
+    ("secondary-1e-7V.gplan", "1.414e-07 V peak", "78.16 V")])
+def test_a_valve_rectifier_below_its_drop_is_refused_as_read(name, peak, needed):
+    from groundcheck import PlanErrors, load
+    with pytest.raises(PlanErrors) as e:
+        load(ROUND2 / "14-valve-rectifier-slow" / name)
+    err = e.value.errors[0]
+    assert err.location.line == 28 and peak in err.message and needed in err.message
+
+
+def test_the_filter_resistor_counts_in_what_a_rectifier_can_deliver():
+    from groundcheck import PlanErrors, load
+    with pytest.raises(PlanErrors) as e:
+        load(ROUND2 / "14-valve-rectifier-slow" / "filter-4.3Gohm.gplan")
+    assert "cannot deliver 0.03 A" in e.value.errors[0].message
+
+
+def test_sigterm_stops_a_jobs_run_and_its_workers(tmp_path):
+    import signal
+    import time
+    plan = ROUND2 / "09-sigterm-jobs" / "jobsplan.gplan"
+    env = {**os.environ, "PYTHONPATH": str(Path(__file__).parents[1])}
+    out = tmp_path / "out.json"
+    proc = subprocess.Popen([sys.executable, "-m", "groundcheck", "check", str(plan), "--jobs", "2", "--format",
+                             "json", "-o", str(out)], env=env, stderr=subprocess.PIPE)
+
+    def children():
+        try:
+            return [int(p) for p in Path(f"/proc/{proc.pid}/task/{proc.pid}/children").read_text().split()]
+        except OSError:
+            return []
+    deadline = time.monotonic() + 120
+    while len(children()) < 2 and proc.poll() is None and time.monotonic() < deadline:
+        time.sleep(0.1)
+    workers = children()
+    if proc.poll() is not None or len(workers) < 2:
+        pytest.skip("the run ended before its workers started")
+    proc.send_signal(signal.SIGTERM)
+    proc.wait(timeout=10)
+    def running(w):
+        try:
+            return Path(f"/proc/{w}/stat").read_text().rsplit(")", 1)[1].split()[0] != "Z"
+        except (OSError, IndexError):
+            return False
+    deadline = time.monotonic() + 5
+    while any(map(running, workers)) and time.monotonic() < deadline:
+        time.sleep(0.1)
+    alive = [w for w in workers if running(w)]
+    for w in alive:                      # never left behind by the test itself
+        os.kill(w, signal.SIGKILL)
+    assert not alive and not out.exists() and not list(tmp_path.glob(".groundcheck-*"))

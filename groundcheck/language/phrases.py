@@ -40,17 +40,24 @@ class Statement:
     broken: bool = False          # an error was already reported inside it
 
 
-_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)"
+# numbers are ASCII digits only, and words ASCII letters, digits, '_', '.', '-', '/' with the unit signs µ, μ,
+# Ω, Ω and °: a digit of another script or a look-alike letter is an error where it stands, never a value or a
+# second name that looks like the first
+_NUM = r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)"
+_UNIT_SIGNS = "\u00b5\u03bc\u03a9\u2126\u00b0"
 _TOK = re.compile(rf"""[ \t\r]*(?:
     (\n)
   | (,)
   | ("[^"\n]*")
   | ({_NUM},{_NUM})
-  | ({_NUM}(?:[eE][+-]?\d+)?)
-  | ((?:[^\W\d]|\u00b0)[\w.\-/\u00b0]*)
+  | ({_NUM}(?:[eE][+-]?[0-9]+)?)
+  | ((?:[A-Za-z_{_UNIT_SIGNS}])[A-Za-z0-9_.\-/{_UNIT_SIGNS}]*)
   | ([^ \t\r\n])
 )""", re.X)
 NL, COMMA, STRING, COORD, NUMBER, WORD, BAD = range(1, 8)
+#: the hint for a letter or digit outside ASCII
+NOT_ASCII = ("names and numbers are ASCII letters, digits, '_', '-' and '.' (a look-alike letter or a digit of "
+             "another script would read as something else); only quoted text may hold other characters")
 _NOT_UNITS = frozenset(("x", "to", "at", "on"))
 _new = tuple.__new__
 
@@ -103,9 +110,10 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
             cur.append(_new(Item, ("string", value[1:-1], loc, value[1:-1], None)))
         else:
             hint = ("only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
-                    if value == ":" else
+                    if value == ":" else NOT_ASCII if not value.isascii() else
                     "names start with a letter; positions are x,y with no space; strings use double quotes")
-            errors.append(PlanError(f"unexpected character {value!r}", loc, hint))
+            code = "" if value.isascii() else f" (U+{ord(value):04X})"
+            errors.append(PlanError(f"unexpected character {value!r}{code}", loc, hint))
             return []
     if pend is not None:
         cur.append(_plain(pend))
@@ -200,8 +208,9 @@ class Reader:
 
     def name(self, what: str = "a name") -> tuple[str, Location]:
         it = self.next(what)
-        if it.kind != "word":
-            raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "names start with a letter")
+        if it.kind != "word" or not it.value.isascii():
+            raise PlanError(f"expected {what}, found {it.text!r}", it.loc,
+                            "names start with a letter" if it.kind != "word" else NOT_ASCII)
         return it.value, it.loc
 
     def keyword(self, word: str) -> bool:

@@ -194,7 +194,32 @@ def rectifier(stmt: Statement):
         r.finish()
     if "load_current" not in kw and "load_resistance" not in kw:
         raise PlanError("rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'")
+    _check_can_deliver(kw, stmt)
     return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+def _check_can_deliver(kw: dict, stmt: Statement) -> None:
+    """A load current the rectifier cannot deliver is refused before any simulation (which would search for a
+    steady state that does not exist): its rectifiers pass at least the load current at some instant, so the
+    secondary's peak must exceed their drop at that current (Child's law for valves, I = K·V^1.5 through the
+    stated point; the stated drop for diodes) plus the load current times the filter resistor."""
+    load = kw.get("load_current") or 0.0
+    if load <= 0:
+        return
+    in_series = 2 if kw.get("topology") == "bridge" else 1
+    law = kw.get("diode_law", "constant")
+    if law == "valve":
+        drop = in_series * kw["valve_drop"] * (load / kw["valve_current"]) ** (2 / 3)
+    elif law == "constant":
+        drop = in_series * kw.get("diode_drop", 0.7)
+    else:
+        drop = 0.0
+    needed = drop + load * kw.get("filter_resistance", 0.0)
+    peak = 2 ** 0.5 * kw.get("secondary", 250.0)
+    if needed >= peak:
+        raise PlanError(f"rectifier {stmt.label}: the secondary's {peak:.4g} V peak cannot deliver {load:g} A: the "
+                        f"rectifiers' drop and the filter resistor take {needed:.4g} V at that current",
+                        stmt.loc, "check the secondary voltage, the load and the filter resistor, and their units")
 
 
 def _filter(r: Reader, kw: dict, refs: Refs) -> None:

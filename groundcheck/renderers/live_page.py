@@ -9,7 +9,7 @@ a shape of a conductor shows its figures.  While the plan has errors the last go
 
 from __future__ import annotations
 
-from html import escape
+from ..core.errors import html_text as escape
 
 __all__ = ["live_page"]
 
