@@ -7,10 +7,6 @@ Public entry points: :func:`load` (a path, or ``-`` for standard input) and
 
 from __future__ import annotations
 
-import stat
-import sys
-from contextlib import contextmanager
-from contextvars import ContextVar
 from pathlib import Path
 
 from .assemble import HEADER_KEYWORDS, assemble
@@ -20,31 +16,11 @@ from ..core.errors import LimitError, Location, PlanError, PlanErrors
 from ..model.records import Plan
 from .phrases import Reader, Statement
 from .statements import KEYWORDS, build, builder_of
-from ..core.runtime import can_fork, no_gc, note_read
+from ..core.runtime import can_fork, no_gc
 from .syntax import BlockDef, parse_text, suggest_keyword
+from .planfile import PLAN_SUFFIX, read_plan_file, read_stdin, substituted
 
 __all__ = ["load", "load_text", "substituted", "LIMITS", "PLAN_SUFFIX"]
-
-#: texts that stand in for plan files while a changed plan is tried (resolved path -> text): the repair advisor
-#: edits a device's own plan this way, never on disk
-_SUBSTITUTES: ContextVar[dict[str, str] | None] = ContextVar("substitutes", default=None)
-
-
-@contextmanager
-def substituted(texts: dict[str, str]):
-    """While the block runs, reading any of these plan files (by resolved path) gives the text here instead."""
-    token = _SUBSTITUTES.set({str(Path(k).resolve()): v for k, v in texts.items()})
-    try:
-        yield
-    finally:
-        _SUBSTITUTES.reset(token)
-
-#: the file extension of groundcheck plans
-PLAN_SUFFIX = ".gplan"
-
-
-
-#: devices placed inside devices, at most this deep
 
 
 def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[str, ...] = (),
@@ -56,7 +32,7 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
     :func:`load_text`.
     """
     if str(path) == "-":
-        text = stdin_text if stdin_text is not None else _read_stdin()
+        text = stdin_text if stdin_text is not None else read_stdin()
         return load_text(text, "<stdin>", root=Path.cwd(), libraries=libraries, jobs=jobs)
     p = Path(path)
     loc = Location(str(path), 0, 0)
@@ -64,63 +40,9 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
         raise PlanErrors([PlanError(f"no such plan file: {path}", loc, "check the path")])
     if p.is_dir():
         raise PlanErrors([PlanError(f"{path} is a folder, not a plan file", loc, f"name a {PLAN_SUFFIX} file")])
-    text = _read(p, str(path))
+    text = read_plan_file(p, str(path))
     return load_text(text, str(path), root=p.resolve().parent, _resolved=p.resolve(), libraries=libraries,
                      _devices=_devices, jobs=jobs)
-
-
-def _read(p: Path, shown: str) -> str:
-    loc = Location(shown, 0, 0)
-    stand_in = _SUBSTITUTES.get()
-    if stand_in and str(p.resolve()) in stand_in:
-        return stand_in[str(p.resolve())]
-    try:
-        st = p.stat()
-        if not stat.S_ISREG(st.st_mode):     # a FIFO would hang, a device never end
-            raise PlanErrors([PlanError(f"{shown} is not a regular file (a folder, a device, a FIFO or a socket)",
-                                        loc, f"name a {PLAN_SUFFIX} file")])
-        if st.st_size > LIMITS["file_bytes"]:
-            raise PlanErrors([LimitError(f"plan file is {st.st_size} bytes, over the limit of "
-                                         f"{LIMITS['file_bytes']}", loc, "split it with include")])
-        with open(p, "rb") as fh:            # bounded even if the file grows while it is read
-            data = fh.read(LIMITS["file_bytes"] + 1)
-        note_read(p)
-        if len(data) > LIMITS["file_bytes"]:
-            raise PlanErrors([LimitError(f"plan file is over the limit of {LIMITS['file_bytes']} bytes", loc,
-                                         "split it with include")])
-    except OSError as e:
-        raise PlanErrors([PlanError(f"cannot read {shown}: {e.strerror}", loc,
-                                    "check the path and permissions")]) from None
-    return _decode(data, shown)
-
-
-def _read_stdin() -> str:
-    """Standard input, read no further than the size limit, and UTF-8 like a file."""
-    stream = getattr(sys.stdin, "buffer", None)
-    if stream is None:                       # a text stream put in place by a caller
-        data = sys.stdin.read(LIMITS["file_bytes"] + 1).encode("utf-8", "surrogateescape")
-    else:
-        data = stream.read(LIMITS["file_bytes"] + 1)
-    if len(data) > LIMITS["file_bytes"]:
-        raise PlanErrors([LimitError(f"standard input is over the limit of {LIMITS['file_bytes']} bytes",
-                                     Location("<stdin>", 0, 0), "split the plan with include")])
-    return _decode(data, "<stdin>")
-
-
-def _decode(data: bytes, shown: str) -> str:
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as e:
-        before = data[: e.start]
-        line = before.count(b"\n") + 1
-        col = e.start - (before.rfind(b"\n") + 1) + 1
-        raise PlanErrors([PlanError("the file is not UTF-8 text", Location(shown, line, col),
-                                    "save the plan as UTF-8 text")]) from None
-    if "\x00" in text:
-        line = text[: text.index("\x00")].count("\n") + 1
-        raise PlanErrors([PlanError("the file holds a NUL character: not a text plan", Location(shown, line, 1),
-                                    "save the plan as UTF-8 text")])
-    return text.lstrip("\ufeff")
 
 
 class _Loader:
@@ -213,7 +135,7 @@ class _Loader:
             self.errors.append(PlanError(f"included file {item.value!r} not found", item.loc, f"looked for {target}"))
             return []
         try:
-            text = _read(target, str(target.relative_to(self.root)))
+            text = read_plan_file(target, str(target.relative_to(self.root)))
         except PlanErrors as e:
             self.errors.extend(e.errors)
             return []
@@ -322,6 +244,22 @@ class _Loader:
         return block, prefix, Transform(ox, oy, sx, sy)
 
     # ---- expansion -----------------------------------------------------------
+    def count_placement(self, block: str, st: Statement, depth: int) -> None:
+        """A top-level placement's elements and statements walked, counted before it is expanded (every nested
+        placement included); a LimitError when either total is over its limit."""
+        if depth == 0:
+            self.placed += self.block_size(block)
+            self.walked += self.block_walk(block)
+        if self.walked > LIMITS["placed_statements"]:
+            raise LimitError(f"block placements walk {self.walked:,} statements or more, over the limit "
+                             f"of {LIMITS['placed_statements']:,} (counted before expanding)", st.loc,
+                             "a block placed inside blocks multiplies, its errors too; place fewer")
+        if self.placed > LIMITS["placed_elements"]:
+            raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit "
+                             f"of {LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
+                             "a block placed inside blocks multiplies; place fewer, or write a large flat "
+                             "plan")
+
     def expand(self, items: list, prefix: str, tf: Transform, scopes: tuple, depth: int,
                path: tuple[str, ...], out: list) -> None:
         for it in items:
@@ -344,18 +282,7 @@ class _Loader:
                     if depth + 1 > LIMITS["block_depth"]:
                         raise LimitError(f"blocks placed more than {LIMITS['block_depth']} deep", st.loc,
                                          "flatten the blocks")
-                    if depth == 0:                 # a top-level placement: its size counts every nested one
-                        self.placed += self.block_size(block)
-                        self.walked += self.block_walk(block)
-                    if self.walked > LIMITS["placed_statements"]:
-                        raise LimitError(f"block placements walk {self.walked:,} statements or more, over the limit "
-                                         f"of {LIMITS['placed_statements']:,} (counted before expanding)", st.loc,
-                                         "a block placed inside blocks multiplies, its errors too; place fewer")
-                    if self.placed > LIMITS["placed_elements"]:
-                        raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit "
-                                         f"of {LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
-                                         "a block placed inside blocks multiplies; place fewer, or write a large flat "
-                                         "plan")
+                    self.count_placement(block, st, depth)
                     new_prefix = f"{prefix}{sub}."
                     self.expand(self.blocks[block].body, new_prefix, inner_tf.then(tf),
                                 ((new_prefix, self.local_names(block)),) + scopes, depth + 1, path + (block,), out)
