@@ -127,9 +127,11 @@ def test_device_earth_paths_to_the_main_earthing_terminal(tmp_path):
 
 
 def _installation(tmp_path, devices: str):
-    lib = ROOT / "examples"
+    (tmp_path / "lib").mkdir()          # a plan's library lies inside its own folder
+    for g in (ROOT / "examples").glob("*.gplan"):
+        (tmp_path / "lib" / g.name).write_bytes(g.read_bytes())
     f = tmp_path / "room.gplan"
-    f.write_text(f'plan "room"\nlibrary "{lib}"\npoint met: earthing-terminal\npoint wall: outlet\n'
+    f.write_text('plan "room"\nlibrary "lib"\npoint met: earthing-terminal\npoint wall: outlet\n'
                  "wire run: wall to met, 10 m, 2.5 mm2, protective\n" + devices)
     return f
 

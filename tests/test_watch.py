@@ -37,8 +37,9 @@ def _start(plan, *extra):
     proc.reader = threading.Thread(target=lambda: [proc.lines.put(x) for x in proc.stderr], daemon=True)
     proc.reader.start()
     first = _line(proc)
-    m = re.search(r"http://127\.0\.0\.1:(\d+)/", first)
+    m = re.search(r"http://127\.0\.0\.1:(\d+)/([\w-]+)/", first)
     assert m, first
+    proc.token = m.group(2)
     return proc, int(m.group(1))
 
 
@@ -72,7 +73,7 @@ def watched(tmp_path):
     plan = tmp_path / "head.gplan"
     plan.write_text(EXAMPLE.read_text())
     proc, port = _start(plan)
-    browser = Browser(f"http://127.0.0.1:{port}/", str(tmp_path.parent / f"{tmp_path.name}-profile"))
+    browser = Browser(f"http://127.0.0.1:{port}/{proc.token}/", str(tmp_path.parent / f"{tmp_path.name}-profile"))
     yield plan, proc, port, browser
     browser.close()
     if proc.poll() is None:
@@ -130,17 +131,24 @@ def test_the_server_answers_this_computer_only(tmp_path):
     plan.write_text(EXAMPLE.read_text())
     proc, port = _start(plan)
     try:
-        with urllib.request.urlopen(f"http://127.0.0.1:{port}/state", timeout=10) as r:
+        base = f"http://127.0.0.1:{port}/{proc.token}"
+        with urllib.request.urlopen(f"{base}/state", timeout=10) as r:
             assert json.loads(r.read())["ok"] is True
+        # without the token of the printed address (another user or process of this computer): refused, the
+        # page, the state and the event stream alike
+        for path in ("/", "/state", "/events", f"/{proc.token[:-1]}/state"):
+            with pytest.raises(urllib.error.HTTPError) as e:
+                urllib.request.urlopen(f"http://127.0.0.1:{port}{path}", timeout=10)
+            assert e.value.code == 403
         # a request naming another host (a page elsewhere rebinding its name to 127.0.0.1) is refused
-        req = urllib.request.Request(f"http://127.0.0.1:{port}/state", headers={"Host": f"example.test:{port}"})
+        req = urllib.request.Request(f"{base}/state", headers={"Host": f"example.test:{port}"})
         with pytest.raises(urllib.error.HTTPError) as e:
             urllib.request.urlopen(req, timeout=10)
         assert e.value.code == 403
         # bound to 127.0.0.1 only: another address of this computer is not served
         with pytest.raises(OSError):
             socket.create_connection(("127.0.0.2", port), timeout=2).close()
-        with urllib.request.urlopen(f"http://127.0.0.1:{port}/", timeout=10) as r:
+        with urllib.request.urlopen(f"{base}/", timeout=10) as r:
             csp = r.headers["Content-Security-Policy"]
             page = r.read().decode()
         assert "script-src 'nonce-" in csp and "default-src 'none'" in csp
@@ -196,3 +204,28 @@ def test_a_placed_device_plan_is_watched_too(tmp_path):
     finally:
         _stop(proc)
     assert proc.returncode == 0
+
+
+def test_a_link_swapped_in_is_refused_and_early_closes_are_quiet(tmp_path):
+    (tmp_path / "proj").mkdir()
+    plan = tmp_path / "proj" / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    (tmp_path / "secret.gplan").write_text('plan "s"\nSECRET-LINE-42\n')
+    proc, port = _start(plan)
+    try:
+        _line(proc), _line(proc)                         # the caution, the first analysis
+        for _ in range(3):                               # a client that closes before reading the answer
+            s = socket.create_connection(("127.0.0.1", port))
+            s.send(f"GET /{proc.token}/state HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\n\r\n".encode())
+            s.close()
+        time.sleep(0.5)
+        plan.unlink()
+        plan.symlink_to(tmp_path / "secret.gplan")
+        line = _line(proc)
+        while "link out of the plan's folder" not in line:
+            line = _line(proc)
+        with urllib.request.urlopen(f"http://127.0.0.1:{port}/{proc.token}/state", timeout=10) as r:
+            assert "SECRET" not in r.read().decode()
+    finally:
+        err = _stop(proc)
+    assert "Traceback" not in err and "SECRET" not in err

@@ -14,7 +14,8 @@ from pathlib import Path
 
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
-from ..core.errors import GroundcheckError, PlanErrors
+from ..core.errors import GroundcheckError, PlanErrors, shown
+from ..core.runtime import die_with_parent, files_read, note_read
 from ..rules.catalogue import RULES
 from ..rules.rule_families import PROTECTIVE_EARTH
 from ..rules.selection import UnknownRule, rule_codes
@@ -165,12 +166,13 @@ class _Rendered(GroundcheckError):
 
 
 def _check_one(path: str, options, budget: float = 0.0):
-    """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors)."""
+    """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors), and every
+    file the worker read (the parent protects them from its output too)."""
     from ..analysis import analyze
     try:
-        return True, advised(analyze(load_plan(path), options), path, budget)
+        return True, advised(analyze(load_plan(path), options), path, budget), files_read()
     except PlanErrors as e:
-        return False, e.render()
+        return False, e.render(), files_read()
 
 
 def _analyze_with_progress(analyze, plan, options, label: str):
@@ -178,7 +180,8 @@ def _analyze_with_progress(analyze, plan, options, label: str):
     if not sys.stderr.isatty():
         return analyze(plan, options)
     from rich.console import Console
-    with Console(stderr=True).status(f"analysing {label} ({len(plan.conductors)} conductors)…"):
+    from ..renderers.text import escape
+    with Console(stderr=True).status(f"analysing {escape(label)} ({len(plan.conductors)} conductors)…"):
         return analyze(plan, options)
 
 
@@ -189,7 +192,7 @@ def _check_side_by_side(args) -> list:
     from concurrent.futures.process import BrokenProcessPool
     options = [replace(options_of(args), jobs=1)] * len(args.plans)
     try:
-        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
+        with ProcessPoolExecutor(max_workers=args.jobs, initializer=die_with_parent) as pool:
             budgets = [args.advice_budget] * len(options)
             return list(pool.map(_check_one, args.plans, options, budgets))
     except BrokenProcessPool:
@@ -204,7 +207,9 @@ def cmd_check(args) -> int:
     from ..analysis import analyze
     results = []
     if args.jobs > 1 and len(args.plans) > 1:
-        for ok, value in _check_side_by_side(args):
+        for ok, value, read in _check_side_by_side(args):
+            for f in read:                 # a worker's includes and device plans: never an output
+                note_read(f)
             if not ok:
                 raise _Rendered(value)
             results.append(value)
@@ -291,7 +296,7 @@ def cmd_draw(args) -> int:
     else:
         write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
-    sys.stderr.write(f"groundcheck: wrote the {view} view to {'standard output' if to_stdout else out} with "
+    sys.stderr.write(f"groundcheck: wrote the {view} view to {'standard output' if to_stdout else shown(out)} with "
                      f"{how}{note}\n")
     if any(missing := physical_omissions(result) if view == "physical" else (0, 0)):
         sys.stderr.write(f"groundcheck: note: the physical view leaves out {missing[0]} points and {missing[1]} "
@@ -352,7 +357,7 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.write(str(e) + "\n")
         return 2
     except GroundcheckError as e:
-        sys.stderr.write(f"groundcheck: error: {e}\n")
+        sys.stderr.write(f"groundcheck: error: {shown(e)}\n")
         return 2
     except KeyboardInterrupt:
         sys.stderr.write("groundcheck: interrupted\n")
@@ -364,13 +369,14 @@ def main(argv: list[str] | None = None) -> int:
             pass
         return 0
     except OSError as e:              # a full disk, an unwritable folder, a file that vanished
-        sys.stderr.write(f"groundcheck: error: {e.strerror or e}{f' ({e.filename})' if e.filename else ''}\n")
+        sys.stderr.write(shown(f"groundcheck: error: {e.strerror or e}{f' ({e.filename})' if e.filename else ''}")
+                         + "\n")
         return 2
     except Exception as e:  # noqa: BLE001 - the last line of defence: never a traceback, never exit 1
         if os.environ.get("GROUNDCHECK_DEBUG") or getattr(args, "debug", False):
             raise
-        sys.stderr.write(f"groundcheck: internal error: {type(e).__name__}: {e} — please report it with the plan; "
-                         "run with GROUNDCHECK_DEBUG=1 for the traceback\n")
+        sys.stderr.write(f"groundcheck: internal error: {type(e).__name__}: {shown(e)} — please report it with "
+                         "the plan; run with GROUNDCHECK_DEBUG=1 for the traceback\n")
         return 2
 
 

@@ -8,7 +8,7 @@ import os
 import sys
 from pathlib import Path
 
-from ..core.errors import GroundcheckError
+from ..core.errors import GroundcheckError, shown
 from ..core.units import UnitError, parse_quantity
 from ..language.loader import load
 from ..renderers.output import write_atomic
@@ -204,6 +204,24 @@ def write_output(text: str, output: str | None, inputs: list[str]) -> None:
     write_atomic(Path(output), text, protect=[Path(i) for i in inputs if i != "-"])
 
 
+def _plans_in(folder: Path) -> list[str]:
+    """The regular .gplan files below ``folder``, sorted: hidden folders, links and special files are passed over
+    (a note names each link, never its target), so a folder check never reads outside the folder."""
+    found = []
+    for here, dirs, files in os.walk(folder):          # never descends through a linked folder
+        dirs[:] = sorted(d for d in dirs if not d.startswith(".") and not os.path.islink(os.path.join(here, d)))
+        for f in files:
+            path = os.path.join(here, f)
+            if not f.endswith(".gplan") or f.startswith("."):
+                continue
+            if os.path.islink(path) or not os.path.isfile(path):
+                sys.stderr.write(f"groundcheck: note: passed over {shown(path)}: "
+                                 f"{'a link' if os.path.islink(path) else 'not a regular file'}\n")
+                continue
+            found.append(path)
+    return sorted(found)
+
+
 def plan_paths(names: list[str]) -> list[str]:
     """The plans named: a folder stands for every .gplan file below it (sorted; hidden folders
     skipped)."""
@@ -211,8 +229,7 @@ def plan_paths(names: list[str]) -> list[str]:
     for name in names:
         p = Path(name)
         if name != "-" and p.is_dir():
-            found = sorted(str(f) for f in p.rglob("*.gplan")
-                           if not any(part.startswith(".") for part in f.parts))
+            found = _plans_in(p)
             if not found:
                 raise UsageError(f"folder {name} holds no .gplan file")
             out.extend(found)

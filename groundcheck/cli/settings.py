@@ -10,6 +10,7 @@ import re
 from pathlib import Path
 
 from ..core.errors import GroundcheckError
+from ..core.runtime import note_read
 from ..rules.results import FAIL_LEVELS
 from ..rules.selection import UnknownRule, codes_of
 
@@ -47,6 +48,7 @@ def load_settings(start: Path | None = None) -> tuple[dict, Path | None]:
                 continue
             try:
                 text = f.read_text(encoding="utf-8")
+                note_read(f)                  # never an output of this run
                 data = tomllib.loads(text)
             except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
                 raise SettingsError(f"{f}: cannot read the settings ({e})") from None

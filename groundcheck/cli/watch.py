@@ -57,6 +57,9 @@ class LiveView:
         self.version = 0
         self.state = b"{}"
         self.files: set[Path] = {Path(plan).resolve()}
+        self.token = secrets.token_urlsafe(24)     # in the address printed: other users and processes lack it
+        self.folder = Path(plan).resolve().parent
+        self.path = Path(plan).absolute()          # the name watched: a link swapped in for it is seen
         self._good_result = None
         self._good_state: dict | None = None
 
@@ -67,6 +70,7 @@ class LiveView:
         from ..renderers.live import error_state, live_state, status_line
         t0 = time.perf_counter()
         try:
+            self._check_still_a_plan()
             plan = load_plan(self.plan)
             result = analyze(plan, self.options)
         except PlanErrors as e:
@@ -89,6 +93,15 @@ class LiveView:
         self._good_result, self._good_state = result, state
         self._publish(state)
         self._say(status_line(result, seconds))
+
+    def _check_still_a_plan(self) -> None:
+        """The watched file is still a regular file inside the plan's folder: a link swapped in for it (to a file
+        elsewhere) is refused, so no line of another file reaches the page."""
+        p = Path(self.plan)
+        if p.is_symlink() and not (p.resolve().parent == self.folder or self.folder in p.resolve().parents):
+            raise GroundcheckError(f"{self.plan} is now a link out of the plan's folder: not read")
+        if p.resolve().parent != self.folder:
+            raise GroundcheckError(f"{self.plan} now lies outside the plan's folder: not read")
 
     def _drawings(self, result):
         """Both drawings as SVG text (None for one that cannot be drawn: no physical view without positions or
@@ -128,18 +141,27 @@ class LiveHandler(BaseHTTPRequestHandler):
         return self.client_address[0] == "127.0.0.1" and host in (f"127.0.0.1:{port}", f"localhost:{port}")
 
     def _send(self, code: int, body: bytes, kind: str, extra: dict | None = None) -> None:
-        self.send_response(code)
-        for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",
-                     "X-Content-Type-Options": "nosniff", **(extra or {})}.items():
-            self.send_header(k, v)
-        self.end_headers()
-        self.wfile.write(body)
+        try:
+            self.send_response(code)
+            for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",
+                         "X-Content-Type-Options": "nosniff", **(extra or {})}.items():
+                self.send_header(k, v)
+            self.end_headers()
+            self.wfile.write(body)
+        except (BrokenPipeError, ConnectionResetError):    # the client went away: nothing to tell anyone
+            self.close_connection = True
 
     def do_GET(self) -> None:  # noqa: N802 - the standard library's name
         if not self._local():
             self._send(403, b"groundcheck's live view answers this computer only (127.0.0.1)\n", "text/plain")
             return
         path = self.path.split("?", 1)[0]
+        prefix = f"/{self.view.token}/"
+        if not secrets.compare_digest(path[:len(prefix)].encode(), prefix.encode()):
+            self._send(403, b"groundcheck's live view answers the address it printed (with its token) only\n",
+                       "text/plain")
+            return
+        path = path[len(prefix) - 1:]
         if path == "/":
             from ..renderers.live_page import live_page
             nonce = secrets.token_urlsafe(16)
@@ -176,7 +198,7 @@ class LiveHandler(BaseHTTPRequestHandler):
                 else:
                     self.wfile.write(b": still here\n\n")
                 self.wfile.flush()
-        except (BrokenPipeError, ConnectionResetError):
+        except (BrokenPipeError, ConnectionResetError, ConnectionAbortedError):
             pass
 
 
@@ -197,7 +219,7 @@ def _watch_files(view: LiveView, stop: threading.Event) -> None:
             continue
         for changes in watch(*folders, stop_event=stop, debounce=40, step=20, rust_timeout=500,
                              yield_on_timeout=True, raise_interrupt=False):
-            if any(Path(p).resolve() in files for _, p in changes):
+            if any(Path(p).resolve() in files or Path(p).absolute() == view.path for _, p in changes):
                 view.refresh()
             if view.files != files:
                 break
@@ -216,7 +238,7 @@ def cmd_watch(args) -> int:
         raise UsageError(f"cannot serve on 127.0.0.1:{args.port}: {e.strerror or e} (give another --port, or 0 "
                          "for a free one)") from None
     server.daemon_threads = True
-    url = f"http://127.0.0.1:{server.server_address[1]}/"
+    url = f"http://127.0.0.1:{server.server_address[1]}/{view.token}/"
     sys.stderr.write(f"groundcheck: live view of {args.plan} at {url} (this computer only; Ctrl-C stops)\n"
                      f"groundcheck: {CAUTION}\n")
     threads = [threading.Thread(target=server.serve_forever, kwargs={"poll_interval": 0.2}, daemon=True),

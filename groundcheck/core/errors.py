@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import NamedTuple
 
-__all__ = ["Location", "GroundcheckError", "PlanError", "PlanErrors", "LimitError", "shown"]
+__all__ = ["Location", "GroundcheckError", "PlanError", "PlanErrors", "LimitError", "shown", "html_text"]
 
 
 class Location(NamedTuple):
@@ -53,14 +53,26 @@ class PlanError(GroundcheckError):
         return self.one_line()
 
 
-#: control characters (but tab and newline) as they are shown: \xNN
-_CONTROL = {c: f"\\x{c:02x}" for c in (*range(0, 9), *range(11, 32), 127)}
+#: control characters (but tab and newline) as they are shown: C0, DEL and C1 as \xNN; the bidirectional
+#: overrides, embeddings, isolates and marks, the zero-width characters and the line and paragraph separators as
+#: \uNNNN (Unicode's Bidi_Control and Default_Ignorable format characters: they reorder or hide what is shown)
+_CONTROL = {c: f"\\x{c:02x}" for c in (*range(0, 9), *range(11, 32), *range(127, 160))}
+_CONTROL.update({c: f"\\u{c:04x}" for c in (0x061C, 0x180E, 0x200B, 0x200C, 0x200D, 0x200E, 0x200F,
+                                             *range(0x2028, 0x202F), *range(0x2060, 0x2070), 0xFEFF,
+                                             *range(0xFFF9, 0xFFFC))})
 
 
 def shown(text) -> str:
-    """Text from a plan as a terminal may show it: control characters (escape sequences among them) written as
-    \\xNN, so a plan can never drive the terminal."""
+    """Text from a plan as a terminal may show it: control characters (escape sequences, C1 controls, bidi
+    overrides and zero-width characters among them) written as \\xNN or \\uNNNN, so a plan or a file name can
+    never drive the terminal nor hide or reorder what it shows."""
     return str(text).translate(_CONTROL)
+
+
+def html_text(text, quote: bool = True) -> str:
+    """Text for an HTML page: control characters shown as in :func:`shown`, then markup escaped."""
+    from html import escape
+    return escape(shown(text), quote)
 
 
 class LimitError(PlanError):
@@ -74,8 +86,13 @@ class PlanErrors(GroundcheckError):
         # an error inside a block placed twice is the same error at the same place: said once
         unique = {(e.location, e.message): e for e in reversed(errors)}
         errors = sorted(unique.values(), key=lambda e: (e.location.file, e.location.line, e.location.column))
-        super().__init__("\n".join(e.one_line() for e in errors))
+        super().__init__("\n".join(e.one_line() for e in errors[:50]))
         self.errors = errors
 
-    def render(self) -> str:
-        return "\n".join(e.render() for e in self.errors)
+    def render(self, limit: int = 50) -> str:
+        """The first ``limit`` errors in full, then how many more there are."""
+        shown_errors = [e.render() for e in self.errors[:limit]]
+        if len(self.errors) > limit:
+            shown_errors.append(f"... and {len(self.errors) - limit:,} more errors (the first {limit} are shown; "
+                                "mend them and check again)")
+        return "\n".join(shown_errors)

@@ -13,8 +13,9 @@ import signal
 import sys
 import threading
 from contextlib import contextmanager
+from pathlib import Path
 
-__all__ = ["no_gc", "can_fork", "quiet_child", "single_threaded_blas", "note_read", "files_read",
+__all__ = ["no_gc", "can_fork", "quiet_child", "die_with_parent", "single_threaded_blas", "note_read", "files_read",
            "terminate_as_exit"]
 
 #: every plan file this process has read (resolved): outputs may never be written over one of them
@@ -23,7 +24,7 @@ _READ: set = set()
 
 def note_read(path) -> None:
     """Remember that a plan file was read (the loader calls it for the plan, its includes and device plans)."""
-    _READ.add(path.resolve())
+    _READ.add(Path(path).resolve())
 
 
 def files_read() -> tuple:
@@ -71,6 +72,21 @@ def quiet_child() -> None:
     final flush of it would wait forever.  Workers report through their return values instead.
     """
     sys.stdout = sys.stderr = open(os.devnull, "w")  # noqa: SIM115 - lives as long as the worker
+    die_with_parent()
+
+
+def die_with_parent() -> None:
+    """Linux: this worker gets SIGTERM when the process that started it ends (a SIGTERM or Ctrl-C to the run
+    stops its workers within a moment instead of leaving them to finish their queue)."""
+    parent = os.getppid()
+    try:
+        import ctypes
+        libc = ctypes.CDLL(None, use_errno=True)
+        libc.prctl(1, signal.SIGTERM, 0, 0, 0)          # PR_SET_PDEATHSIG
+    except (OSError, AttributeError):                  # pragma: no cover - not Linux
+        return
+    if os.getppid() != parent:                         # the parent ended before the request was made
+        os._exit(128 + signal.SIGTERM)
 
 
 def _exit_on_signal(signum, frame):

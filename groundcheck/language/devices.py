@@ -27,9 +27,12 @@ def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path |
     the caller's, ``GROUNDCHECK_LIBRARY``).  Only a regular ``.gplan`` file inside one of those folders (after
     resolving links) is taken, so a device can never read a system file, a device node or a FIFO."""
     here = ld.root
-    folders = [here]
+    # the plan's own library folders stay inside its folder (links resolved); the caller's and the environment's
+    # are the user's choice
+    folders = [here, *(f for f in ((here / lib).resolve() for lib in library_dirs)
+                       if f == here.resolve() or here.resolve() in f.parents)]
     env = os.environ.get("GROUNDCHECK_LIBRARY", "")
-    for lib in [*library_dirs, *ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
+    for lib in [*ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
         folders.append((here / lib) if not Path(lib).is_absolute() else Path(lib))
     for folder in folders:
         c = (folder / source).resolve()

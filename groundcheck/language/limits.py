@@ -10,5 +10,6 @@ LIMITS = {
     "block_depth": 8,
     "elements": 3_000_000,
     "placed_elements": 200_000,
+    "placed_statements": 400_000,
     "rectifiers": 256,
 }

@@ -7,9 +7,6 @@ Public entry points: :func:`load` (a path, or ``-`` for standard input) and
 
 from __future__ import annotations
 
-import sys
-from contextlib import contextmanager
-from contextvars import ContextVar
 from pathlib import Path
 
 from .assemble import HEADER_KEYWORDS, assemble
@@ -19,31 +16,11 @@ from ..core.errors import LimitError, Location, PlanError, PlanErrors
 from ..model.records import Plan
 from .phrases import Reader, Statement
 from .statements import KEYWORDS, build, builder_of
-from ..core.runtime import can_fork, no_gc, note_read
+from ..core.runtime import can_fork, no_gc
 from .syntax import BlockDef, parse_text, suggest_keyword
+from .planfile import PLAN_SUFFIX, read_plan_file, read_stdin, substituted
 
 __all__ = ["load", "load_text", "substituted", "LIMITS", "PLAN_SUFFIX"]
-
-#: texts that stand in for plan files while a changed plan is tried (resolved path -> text): the repair advisor
-#: edits a device's own plan this way, never on disk
-_SUBSTITUTES: ContextVar[dict[str, str] | None] = ContextVar("substitutes", default=None)
-
-
-@contextmanager
-def substituted(texts: dict[str, str]):
-    """While the block runs, reading any of these plan files (by resolved path) gives the text here instead."""
-    token = _SUBSTITUTES.set({str(Path(k).resolve()): v for k, v in texts.items()})
-    try:
-        yield
-    finally:
-        _SUBSTITUTES.reset(token)
-
-#: the file extension of groundcheck plans
-PLAN_SUFFIX = ".gplan"
-
-
-
-#: devices placed inside devices, at most this deep
 
 
 def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[str, ...] = (),
@@ -55,7 +32,7 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
     :func:`load_text`.
     """
     if str(path) == "-":
-        text = stdin_text if stdin_text is not None else sys.stdin.read()
+        text = stdin_text if stdin_text is not None else read_stdin()
         return load_text(text, "<stdin>", root=Path.cwd(), libraries=libraries, jobs=jobs)
     p = Path(path)
     loc = Location(str(path), 0, 0)
@@ -63,43 +40,9 @@ def load(path: str | Path, *, stdin_text: str | None = None, libraries: tuple[st
         raise PlanErrors([PlanError(f"no such plan file: {path}", loc, "check the path")])
     if p.is_dir():
         raise PlanErrors([PlanError(f"{path} is a folder, not a plan file", loc, f"name a {PLAN_SUFFIX} file")])
-    text = _read(p, str(path))
+    text = read_plan_file(p, str(path))
     return load_text(text, str(path), root=p.resolve().parent, _resolved=p.resolve(), libraries=libraries,
                      _devices=_devices, jobs=jobs)
-
-
-def _read(p: Path, shown: str) -> str:
-    loc = Location(shown, 0, 0)
-    stand_in = _SUBSTITUTES.get()
-    if stand_in and str(p.resolve()) in stand_in:
-        return stand_in[str(p.resolve())]
-    try:
-        size = p.stat().st_size
-        if size > LIMITS["file_bytes"]:
-            raise PlanErrors([LimitError(f"plan file is {size} bytes, over the limit of {LIMITS['file_bytes']}", loc,
-                                         "split it with include")])
-        data = p.read_bytes()
-        note_read(p)
-    except OSError as e:
-        raise PlanErrors([PlanError(f"cannot read {shown}: {e.strerror}", loc,
-                                    "check the path and permissions")]) from None
-    return _decode(data, shown)
-
-
-def _decode(data: bytes, shown: str) -> str:
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as e:
-        before = data[: e.start]
-        line = before.count(b"\n") + 1
-        col = e.start - (before.rfind(b"\n") + 1) + 1
-        raise PlanErrors([PlanError("the file is not UTF-8 text", Location(shown, line, col),
-                                    "save the plan as UTF-8 text")]) from None
-    if "\x00" in text:
-        line = text[: text.index("\x00")].count("\n") + 1
-        raise PlanErrors([PlanError("the file holds a NUL character: not a text plan", Location(shown, line, 1),
-                                    "save the plan as UTF-8 text")])
-    return text.lstrip("\ufeff")
 
 
 class _Loader:
@@ -116,6 +59,12 @@ class _Loader:
         self.outer_names: set[str] = set()    # names written at the top level (a block's own name may hide one)
         self.shadowed: dict[tuple[str, int], set[str]] = {}     # a block statement's (file, line): names it hides
         self._size_cache: dict[str, int] = {}
+        self._walk_cache: dict[str, int] = {}
+        self.rectifiers = 0
+        self.stopped = False
+        self._place_cache: dict[int, object] = {}
+        self.walked = 0                       # statements walked inside placements, counted before expanding
+        self._said: set = set()               # (location, message) of the errors a placement already gave
         self._local_cache: dict[str, set[str]] = {}
         self.broken: set[str] = set()     # names of statements that failed: no follow-on errors for them
 
@@ -165,6 +114,11 @@ class _Loader:
                                           "flatten the includes"))
             return []
         here = stack[-1].parent if stack else self.root
+        if Path(item.value).is_absolute():
+            self.errors.append(PlanError(f"include {item.value!r} is an absolute path, outside the plan's folder",
+                                         item.loc, "write a path relative to the including file, inside the "
+                                                   "plan's folder"))
+            return []
         target = (here / item.value).resolve()
         try:
             target.relative_to(self.root)
@@ -181,7 +135,7 @@ class _Loader:
             self.errors.append(PlanError(f"included file {item.value!r} not found", item.loc, f"looked for {target}"))
             return []
         try:
-            text = _read(target, str(target.relative_to(self.root)))
+            text = read_plan_file(target, str(target.relative_to(self.root)))
         except PlanErrors as e:
             self.errors.extend(e.errors)
             return []
@@ -210,6 +164,26 @@ class _Loader:
         self._size_cache[block] = n
         return n
 
+    def block_walk(self, block: str, seen: tuple[str, ...] = ()) -> int:
+        """How many statements one placement of ``block`` walks, those that fail included (a placement of an
+        undefined block, or of a block already being placed, is one): bounds the work even of a broken plan."""
+        if block in self._walk_cache:
+            return self._walk_cache[block]
+        bd = self.blocks.get(block)
+        if bd is None or block in seen:
+            return 1
+        n = 0
+        for st in bd.body:
+            n += 1
+            if not isinstance(st, tuple) and st.keyword == "place":
+                try:
+                    inner, _, _ = self.parse_place(st)
+                except PlanError:
+                    continue
+                n += self.block_walk(inner, seen + (block,))
+        self._walk_cache[block] = n
+        return n
+
     def local_names(self, block: str, seen: tuple[str, ...] = ()) -> set[str]:
         if block in self._local_cache:
             return self._local_cache[block]
@@ -231,6 +205,19 @@ class _Loader:
         return names
 
     def parse_place(self, st: Statement) -> tuple[str, str, Transform]:
+        """A place statement read once (its error too): a block placed many times walks it many times."""
+        got = self._place_cache.get(id(st))
+        if got is None:
+            try:
+                got = self._parse_place(st)
+            except PlanError as e:
+                got = e
+            self._place_cache[id(st)] = got
+        if isinstance(got, PlanError):
+            raise got.with_traceback(None)
+        return got
+
+    def _parse_place(self, st: Statement) -> tuple[str, str, Transform]:
         if not st.phrases:
             raise PlanError("place needs a block and a name", st.loc, "e.g. 'place channel as left at 0,0'")
         r = Reader(st.phrases[0], st)
@@ -257,9 +244,27 @@ class _Loader:
         return block, prefix, Transform(ox, oy, sx, sy)
 
     # ---- expansion -----------------------------------------------------------
+    def count_placement(self, block: str, st: Statement, depth: int) -> None:
+        """A top-level placement's elements and statements walked, counted before it is expanded (every nested
+        placement included); a LimitError when either total is over its limit."""
+        if depth == 0:
+            self.placed += self.block_size(block)
+            self.walked += self.block_walk(block)
+        if self.walked > LIMITS["placed_statements"]:
+            raise LimitError(f"block placements walk {self.walked:,} statements or more, over the limit "
+                             f"of {LIMITS['placed_statements']:,} (counted before expanding)", st.loc,
+                             "a block placed inside blocks multiplies, its errors too; place fewer")
+        if self.placed > LIMITS["placed_elements"]:
+            raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit "
+                             f"of {LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
+                             "a block placed inside blocks multiplies; place fewer, or write a large flat "
+                             "plan")
+
     def expand(self, items: list, prefix: str, tf: Transform, scopes: tuple, depth: int,
                path: tuple[str, ...], out: list) -> None:
         for it in items:
+            if self.stopped:                   # a limit was reached: nothing more is expanded
+                return
             if isinstance(it, tuple):          # a block definition
                 if prefix:
                     self.errors.append(PlanError("blocks are defined at the top level of a file", it[1].loc,
@@ -277,13 +282,7 @@ class _Loader:
                     if depth + 1 > LIMITS["block_depth"]:
                         raise LimitError(f"blocks placed more than {LIMITS['block_depth']} deep", st.loc,
                                          "flatten the blocks")
-                    if depth == 0:                 # a top-level placement: its size counts every nested one
-                        self.placed += self.block_size(block)
-                    if self.placed > LIMITS["placed_elements"]:
-                        raise LimitError(f"block placements expand to {self.placed:,} elements or more, over the limit "
-                                         f"of {LIMITS['placed_elements']:,} (counted before expanding)", st.loc,
-                                         "a block placed inside blocks multiplies; place fewer, or write a large flat "
-                                         "plan")
+                    self.count_placement(block, st, depth)
                     new_prefix = f"{prefix}{sub}."
                     self.expand(self.blocks[block].body, new_prefix, inner_tf.then(tf),
                                 ((new_prefix, self.local_names(block)),) + scopes, depth + 1, path + (block,), out)
@@ -297,6 +296,12 @@ class _Loader:
                 if prefix and st.keyword in HEADER_KEYWORDS:
                     raise PlanError(f"'{st.keyword}' belongs at the top level, not inside a block", st.loc,
                                     "move it out of the block")
+                if st.keyword == "rectifier":
+                    self.rectifiers += 1       # each is simulated in time: refused before the rest is built
+                    if self.rectifiers > LIMITS["rectifiers"]:
+                        raise LimitError(f"the plan has more than {LIMITS['rectifiers']} rectifiers, the limit (each "
+                                         "is simulated in time)", st.loc,
+                                         "describe a rack's identical supplies once, or split the installation")
                 record, refs = build(st)
                 self.count += 1
                 if self.count > LIMITS["elements"]:
@@ -304,10 +309,13 @@ class _Loader:
                                      "a block placed inside blocks multiplies; place fewer")
                 out.append((st, place(record, st, prefix, tf, scopes, self.outer_names, self.shadowed), refs))
             except PlanError as e:
-                self.errors.append(e)
+                if not prefix or (e.location, e.message) not in self._said:   # once, not once per placement
+                    self._said.add((e.location, e.message))
+                    self.errors.append(e)
                 if st.label:
                     self.broken.add(prefix + st.label)
                 if isinstance(e, LimitError):
+                    self.stopped = True
                     return
 
 
@@ -348,8 +356,9 @@ def _load_text(text: str, file: str, *, root, _resolved, libraries, _devices, jo
     if not any(isinstance(e, LimitError) for e in ld.errors):
         plan = assemble(built, file, ld)
     if ld.errors:
+        worded: dict = {}
         for e in ld.errors:
-            name_placements(e, ld.placed_at, ld.shadowed)
+            name_placements(e, ld.placed_at, ld.shadowed, worded)
             lines = ld.sources.get(e.location.file)
             if e.source_line is None and lines and 1 <= e.location.line <= len(lines):
                 e.source_line = lines[e.location.line - 1]

@@ -40,17 +40,24 @@ class Statement:
     broken: bool = False          # an error was already reported inside it
 
 
-_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)"
+# numbers are ASCII digits only, and words ASCII letters, digits, '_', '.', '-', '/' with the unit signs µ, μ,
+# Ω, Ω and °: a digit of another script or a look-alike letter is an error where it stands, never a value or a
+# second name that looks like the first
+_NUM = r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)"
+_UNIT_SIGNS = "\u00b5\u03bc\u03a9\u2126\u00b0"
 _TOK = re.compile(rf"""[ \t\r]*(?:
     (\n)
   | (,)
   | ("[^"\n]*")
   | ({_NUM},{_NUM})
-  | ({_NUM}(?:[eE][+-]?\d+)?)
-  | ((?:[^\W\d]|\u00b0)[\w.\-/\u00b0]*)
+  | ({_NUM}(?:[eE][+-]?[0-9]+)?)
+  | ((?:[A-Za-z_{_UNIT_SIGNS}])[A-Za-z0-9_.\-/{_UNIT_SIGNS}]*)
   | ([^ \t\r\n])
 )""", re.X)
 NL, COMMA, STRING, COORD, NUMBER, WORD, BAD = range(1, 8)
+#: the hint for a letter or digit outside ASCII
+NOT_ASCII = ("names and numbers are ASCII letters, digits, '_', '-' and '.' (a look-alike letter or a digit of "
+             "another script would read as something else); only quoted text may hold other characters")
 _NOT_UNITS = frozenset(("x", "to", "at", "on"))
 _new = tuple.__new__
 
@@ -103,9 +110,10 @@ def split_phrases(text: str, line: int, column: int, file: str, errors: list[Pla
             cur.append(_new(Item, ("string", value[1:-1], loc, value[1:-1], None)))
         else:
             hint = ("only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
-                    if value == ":" else
+                    if value == ":" else NOT_ASCII if not value.isascii() else
                     "names start with a letter; positions are x,y with no space; strings use double quotes")
-            errors.append(PlanError(f"unexpected character {value!r}", loc, hint))
+            code = "" if value.isascii() else f" (U+{ord(value):04X})"
+            errors.append(PlanError(f"unexpected character {value!r}{code}", loc, hint))
             return []
     if pend is not None:
         cur.append(_plain(pend))
@@ -200,8 +208,9 @@ class Reader:
 
     def name(self, what: str = "a name") -> tuple[str, Location]:
         it = self.next(what)
-        if it.kind != "word":
-            raise PlanError(f"expected {what}, found {it.text!r}", it.loc, "names start with a letter")
+        if it.kind != "word" or not it.value.isascii():
+            raise PlanError(f"expected {what}, found {it.text!r}", it.loc,
+                            "names start with a letter" if it.kind != "word" else NOT_ASCII)
         return it.value, it.loc
 
     def keyword(self, word: str) -> bool:
@@ -221,6 +230,16 @@ class Reader:
     def quantity(self, kind: str, what: str, positive: bool = True, allow_zero: bool = False) -> float:
         it = self.next(f"{what} ({kind})")
         return check_quantity(it, kind, what, positive=positive, allow_zero=allow_zero)
+
+    def rating(self, word: str, what: str, allow_zero: bool = False) -> float:
+        """A protective rating, which must also lie in its plausible range (:data:`PLAUSIBLE`)."""
+        it = self.peek()
+        v = self.quantity(PLAUSIBLE[word][2], what, allow_zero=allow_zero)
+        lo, hi, kind, unit, source = PLAUSIBLE[word]
+        if not (allow_zero and v == 0) and not lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9):
+            raise PlanError(f"{what} {it.text} is outside the plausible range {_si(lo, unit)} to {_si(hi, unit)}",
+                            it.loc, f"{source}; see 'Plausible ratings' in docs/language.md")
+        return v
 
     def number(self, what: str) -> float:
         it = self.next(what)
@@ -274,6 +293,34 @@ RANGES = {
     "apparent power": (1e-3, 1e8),
     "number": (0.0, 1e9), "position": (0.0, 1e4),
 }
+#: ratings of protection and of the earth path that a real installation can have: word -> (lowest, highest, kind,
+#: unit, source).  A value outside is a typing slip (a nanoampere breaker, a loop of no impedance) that would
+#: make a danger vanish; it is refused where it is written
+PLAUSIBLE = {
+    "fuse": (1e-3, 125.0, "current", "A", "miniature fuses (IEC 60127) start at a few mA; a final circuit's "
+             "fuse is at most 125 A (from memory)"),
+    "breaker": (0.5, 125.0, "current", "A", "IEC 60898-1 covers breakers rated up to 125 A; the smallest "
+                "made are 0.5 A (from memory)"),
+    "rcd": (4e-3, 3.0, "current", "A", "residual-current devices trip from 4-6 mA (UL 943 class A) to 30 mA, "
+            "100 mA, 300 mA, 500 mA and a few A (IEC 61008-1, IEC 60947-2 Annex B; from memory)"),
+    "loop-impedance": (0.01, 100e3, "resistance", "Ω", "an external earth-fault loop is never below "
+                       "about 10 mΩ, even beside the transformer; a TT loop with a poor electrode reaches "
+                       "tens of kΩ (common practice)"),
+    "electrode": (0.1, 100e3, "resistance", "Ω", "an earth electrode is 0.1 Ω (a foundation electrode) to "
+                  "tens of kΩ (dry rock); over 200 Ω may not be stable (common practice)"),
+    "leakage": (0.0, 0.1, "current", "A", "a device's protective-conductor current is at most some mA (IEC "
+                "60950-1 5.1.7 sets 3.5 mA for a plug-connected device); 100 mA is far beyond any (common "
+                "practice)"),
+}
+
+
+def _si(v: float, unit: str) -> str:
+    for scale, prefix in ((1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ")):
+        if v >= scale or scale == 1e-6:
+            return f"{v / scale:g} {prefix}{unit}"
+    return f"{v:g} {unit}"
+
+
 #: the lowest temperature accepted, °C (copper's resistivity would vanish near −234.5 °C)
 MIN_TEMPERATURE = -200.0
 

@@ -9,6 +9,9 @@ from ..model.records import Conductor, Current, FieldSource, Heater, Metal, Poin
 
 __all__ = ["Transform", "name_placements", "place"]
 
+#: an error in a block placed many times names this many of its placements, then how many more
+_NAMED = 5
+
 
 @dataclass(frozen=True)
 class Transform:
@@ -27,17 +30,24 @@ class Transform:
                          outer.sy * self.sy)
 
 
-def name_placements(e, placed_at: dict, shadowed: dict | None = None) -> None:
+def name_placements(e, placed_at: dict, shadowed: dict | None = None, worded: dict | None = None) -> None:
     """An error in a block's statement says which placements it is in (said once for all of them), and which of
     its names are the block's own that hide a name outside it.
 
     ``e``: a PlanError; ``placed_at``: (file, line) of each statement expanded in a placement -> the placements;
-    ``shadowed``: (file, line) -> the names there that hide outer ones.
+    ``shadowed``: (file, line) -> the names there that hide outer ones; ``worded``: a cache of the wording per
+    (file, line), for many errors of one loader.  At most five placements are named, then how many more.
     """
     key = (e.location.file, e.location.line)
-    where = list(dict.fromkeys(placed_at.get(key, ())))
-    if where and "(in placement" not in e.message:
-        e.message += f" (in placement{'s' if len(where) > 1 else ''} {', '.join(where)})"
+    said = worded.get(key) if worded is not None else None
+    if said is None:                    # the placements of one statement, worded once (``worded`` keeps it)
+        where = list(dict.fromkeys(placed_at.get(key, ())))
+        named = ", ".join(where[:_NAMED]) + (f" and {len(where) - _NAMED:,} more" if len(where) > _NAMED else "")
+        said = f" (in placement{'s' if len(where) > 1 else ''} {named})" if where else ""
+        if worded is not None:
+            worded[key] = said
+    if said and "(in placement" not in e.message:
+        e.message += said
     hidden = sorted((shadowed or {}).get(key, ()))
     if hidden and "hides" not in e.hint:
         said = ", ".join(repr(n) for n in hidden)

@@ -8,6 +8,8 @@ of that name, so an undefined name is reported where it was written.
 
 from __future__ import annotations
 
+from pathlib import PurePath
+
 from ..core.errors import PlanError
 from ..core.units import ratio_of_db
 from ..model.kinds import CONDUCTOR_KINDS, KINDS
@@ -242,7 +244,7 @@ def device(stmt: Statement):
         elif word == "signal-ground":
             kw["signal_ground"] = r.word("chassis, lift or floating", ("chassis", "lift", "floating"))
         elif word == "leakage":
-            kw["leakage"] = r.quantity("current", "protective-conductor (leakage) current", allow_zero=True)
+            kw["leakage"] = r.rating("leakage", "protective-conductor (leakage) current", allow_zero=True)
         elif word == "y-capacitor":
             kw["y_capacitance"] = r.quantity("capacitance", "line-to-chassis capacitance", allow_zero=True)
         elif word == "class":
@@ -266,7 +268,13 @@ def library(stmt: Statement):
     no_label(stmt)
     if len(stmt.phrases) != 1 or len(stmt.phrases[0]) != 1 or stmt.phrases[0][0].kind != "string":
         raise PlanError("library takes one quoted folder", stmt.loc, 'e.g. library "devices"')
-    return stmt.phrases[0][0].value, {}
+    item = stmt.phrases[0][0]
+    folder = PurePath(item.value)
+    if folder.is_absolute() or ".." in folder.parts:
+        raise PlanError(f"library {item.value!r} lies outside the plan's folder", item.loc,
+                        "a plan's library is a folder inside its own folder; name other folders with "
+                        "GROUNDCHECK_LIBRARY")
+    return item.value, {}
 
 
 BUILDERS = {

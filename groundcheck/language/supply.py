@@ -5,7 +5,7 @@ from __future__ import annotations
 from ..core.errors import PlanError
 from ..model.kinds import CURRENT_ROLES
 from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier, Supply
-from .phrases import Reader, Statement, check_quantity
+from .phrases import PLAUSIBLE, Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
 
 #: mains frequencies accepted, Hz: 50 and 60 Hz supplies, 16.7 Hz railway and 400 Hz aircraft supplies fit
@@ -98,7 +98,7 @@ def _phrase_loc(stmt: Statement, word: str):
 def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
     word = r.word("an attribute")
     if word in ("fuse", "breaker"):
-        kw["fuse"] = r.quantity("current", f"{word} rating")
+        kw["fuse"] = r.rating(word, f"{word} rating")
         if word == "fuse":
             kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
             kw["fuse_kind"] = FUSE_KINDS[kind]
@@ -107,7 +107,10 @@ def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
             kw["fuse_kind"] = f"breaker-{kind}"
     elif word in MAINS_ATTRIBUTES:
         field, what, kind = MAINS_ATTRIBUTES[word]
-        kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
+        if word in PLAUSIBLE:
+            kw[field] = r.rating(word, what)
+        else:
+            kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
     elif word == "cord":
         kw["cord_length"] = r.quantity("length", "cord length", allow_zero=True)
         if not r.done:
@@ -191,7 +194,32 @@ def rectifier(stmt: Statement):
         r.finish()
     if "load_current" not in kw and "load_resistance" not in kw:
         raise PlanError("rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'")
+    _check_can_deliver(kw, stmt)
     return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+def _check_can_deliver(kw: dict, stmt: Statement) -> None:
+    """A load current the rectifier cannot deliver is refused before any simulation (which would search for a
+    steady state that does not exist): its rectifiers pass at least the load current at some instant, so the
+    secondary's peak must exceed their drop at that current (Child's law for valves, I = K·V^1.5 through the
+    stated point; the stated drop for diodes) plus the load current times the filter resistor."""
+    load = kw.get("load_current") or 0.0
+    if load <= 0:
+        return
+    in_series = 2 if kw.get("topology") == "bridge" else 1
+    law = kw.get("diode_law", "constant")
+    if law == "valve":
+        drop = in_series * kw["valve_drop"] * (load / kw["valve_current"]) ** (2 / 3)
+    elif law == "constant":
+        drop = in_series * kw.get("diode_drop", 0.7)
+    else:
+        drop = 0.0
+    needed = drop + load * kw.get("filter_resistance", 0.0)
+    peak = 2 ** 0.5 * kw.get("secondary", 250.0)
+    if needed >= peak:
+        raise PlanError(f"rectifier {stmt.label}: the secondary's {peak:.4g} V peak cannot deliver {load:g} A: the "
+                        f"rectifiers' drop and the filter resistor take {needed:.4g} V at that current",
+                        stmt.loc, "check the secondary voltage, the load and the filter resistor, and their units")
 
 
 def _filter(r: Reader, kw: dict, refs: Refs) -> None:

@@ -16,7 +16,7 @@ from lark import Lark, Token, Transformer
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from ..core.errors import Location, PlanError
-from .phrases import Statement, split_phrases
+from .phrases import NOT_ASCII, Statement, split_phrases
 
 __all__ = ["parse_text", "BlockDef", "grammar_text", "HEAD", "head_parts"]
 
@@ -82,6 +82,13 @@ class _Build(Transformer):
             text = head.value
             keyword, name, at, rest = head_parts(text)
             st = Statement(keyword, loc, name, Location(self.file, head.line, head.column + at))
+            if not name.isascii():           # a look-alike letter would make a second name that looks the same
+                bad = next(i for i, c in enumerate(name) if not c.isascii())
+                self.errors.append(PlanError(f"unexpected character {name[bad]!r} (U+{ord(name[bad]):04X}) in the "
+                                             f"name", Location(self.file, head.line, head.column + at + bad),
+                                             NOT_ASCII))
+                st.broken = True
+                return st
             if head.type == "LINE":
                 return self._phrases(st, text[rest:], head.line, head.column + rest)
         if len(children) > 1:
@@ -99,6 +106,9 @@ class _Build(Transformer):
 
     def block(self, children):
         name_tok = children[0]
+        if not str(name_tok).isascii():
+            self.errors.append(PlanError(f"block name {str(name_tok)!r} is not ASCII", Location(
+                self.file, name_tok.line, name_tok.column), NOT_ASCII))
         return BlockDef(str(name_tok), Location(self.file, name_tok.line, name_tok.column), list(children[1:]))
 
     def start(self, children):

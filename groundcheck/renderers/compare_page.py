@@ -6,7 +6,7 @@ protective-earth paths, and both physical drawings side by side.  Every string f
 from __future__ import annotations
 
 import math
-from html import escape
+from ..core.errors import html_text as escape
 
 from ..core.units import format_si
 from ..core.version import __version__

@@ -4,7 +4,7 @@ the SVG class of each plan element, the finding codes per element, and the legen
 from __future__ import annotations
 
 from collections import defaultdict
-from html import escape
+from ..core.errors import html_text as escape, shown
 
 from ..model.kinds import BOND, HEATER, PROTECTIVE, RETURN, SHIELD, SIGNAL
 from ..rules.results import Result
@@ -30,7 +30,7 @@ PROBLEM_HALO = "#e0303088"
 
 def dot_quote(text: str) -> str:
     """A DOT double-quoted string: backslashes and quotes escaped, line breaks flattened."""
-    s = str(text).replace("\\", "\\\\").replace('"', '\\"').replace("\r", " ").replace("\n", " ")
+    s = shown(text).replace("\\", "\\\\").replace('"', '\\"').replace("\r", " ").replace("\n", " ")
     return f'"{s}"'
 
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 import re
-from html import escape
+from ..core.errors import html_text as escape
 
 from ..core.version import __version__
 from ..rules.results import Result

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 import re
-from html import escape
+from ..core.errors import html_text as escape
 
 from ..advice.compare import compare
 from ..core.caution import CAUTION

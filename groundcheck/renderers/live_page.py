@@ -1,7 +1,8 @@
 """The live view's page: one HTML document with its style and a small script inlined, no network fetches but
 to the local server it came from.
 
-The script listens to the server's events (``/events``), fetches the new state (``/state``) and applies it:
+The script listens to the server's events (``events``), fetches the new state (``state``) and applies it, both
+relative to the page's own address (which holds the view's token):
 sections replaced by the fragments the server escaped, text set as text, never as markup.  Hovering or
 focusing a finding highlights the shapes of its elements in both drawings and shows its plan line; clicking
 a shape of a conductor shows its figures.  While the plan has errors the last good result stays, greyed.
@@ -9,7 +10,7 @@ a shape of a conductor shows its figures.  While the plan has errors the last go
 
 from __future__ import annotations
 
-from html import escape
+from ..core.errors import html_text as escape
 
 __all__ = ["live_page"]
 
@@ -128,10 +129,10 @@ SCRIPT = r"""
     if (selected) { showConductor(selected); }      // the selected conductor's figures, as they are now
   }
   function load() {
-    fetch('/state', {cache: 'no-store'}).then(function (r) { return r.json(); }).then(apply)
+    fetch('state', {cache: 'no-store'}).then(function (r) { return r.json(); }).then(apply)
       .catch(function () { setText('status', 'cannot reach groundcheck: is it still running?'); });
   }
-  var events = new EventSource('/events');
+  var events = new EventSource('events');
   events.addEventListener('state', load);
   events.onerror = function () { setText('status', 'connection to groundcheck lost; retrying…'); };
   load();

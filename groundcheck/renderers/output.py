@@ -43,13 +43,20 @@ def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> Non
         _write_through_temporary(target, folder, data)
 
 
+def _umask() -> int:
+    """The process's file-mode creation mask (read by setting it, and set back at once)."""
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
+
+
 def _write_through_temporary(target: Path, folder: Path, data: str | bytes) -> None:
     mode = "wb" if isinstance(data, bytes) else "w"
     fd, tmp = tempfile.mkstemp(prefix=".groundcheck-", dir=folder)
     try:
         with os.fdopen(fd, mode, **({} if isinstance(data, bytes) else {"encoding": "utf-8", "newline": "\n"})) as fh:
             fh.write(data)
-        os.chmod(tmp, 0o644)
+        os.chmod(tmp, 0o666 & ~_umask())           # as any new file of the user's would be
         os.replace(tmp, target)
     except BaseException:
         try:
