@@ -82,7 +82,7 @@ def _draw_command(sub) -> None:
     d = sub.add_parser("draw", help="draw the plan with every problem marked",
                        description="Draw the physical view (metal parts, points at their positions, conductors by "
                        "role, loops and problems marked) or the topology view.\n\nExample:\n"
-                       "  groundcheck draw examples/headphone-amp-100v.gplan -o monoblock.svg",
+                       "  groundcheck draw examples/headphone-amp-100v.gplan -o ground.svg",
                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
     d.add_argument("plan", metavar="PLAN")
     d.add_argument("-o", "--output", metavar="FILE", required=True,
