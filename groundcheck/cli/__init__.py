@@ -290,8 +290,8 @@ def cmd_draw(args) -> int:
     else:
         write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
-    sys.stderr.write(f"groundcheck: wrote the {view} view to {'standard output' if to_stdout else out} with "
-                     f"{how}{note}\n")
+    where = "standard output" if to_stdout else out
+    sys.stderr.write(f"groundcheck: wrote the {view} view to {where} {how}{note}\n")
     if any(missing := physical_omissions(result) if view == "physical" else (0, 0)):
         sys.stderr.write(f"groundcheck: note: the physical view leaves out {missing[0]} points and {missing[1]} "
                          "conductors that have no positions; --view topology shows every one\n")

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import math
 
-__all__ = ["clean"]
+__all__ = ["clean", "readable"]
 
 
 def clean(x, digits: int = 9):
@@ -28,3 +28,14 @@ def clean(x, digits: int = 9):
     if isinstance(x, complex):
         return clean(abs(x), digits)
     return x
+
+
+def readable(x, spec: str = ".4g", missing: str = "–") -> str:
+    """A number for a reader: ``format(x, spec)`` with a negative zero shown unsigned ("-0.0" and "+0.0" read
+    "0.0"), and ``missing`` for None or a value that is not finite."""
+    if x is None or not math.isfinite(x):
+        return missing
+    text = format(x, spec)
+    if float(text.strip()) == 0.0:                     # shown as zero: no sign, the same width
+        text = format(0.0, spec.replace("+", ""))
+    return text
