@@ -5,8 +5,12 @@ recognised by its ``item()`` method."""
 from __future__ import annotations
 
 import math
+import re
 
-__all__ = ["clean", "readable"]
+__all__ = ["clean", "readable", "unsigned_zero"]
+
+#: a zero written with a sign ("-0", "-0.0", "+0.00"), not part of a longer number
+_SIGNED_ZERO = re.compile(r"(?<![\w.])[-+](0(?:\.0+)?)(?![\w.])")
 
 
 def clean(x, digits: int = 9):
@@ -39,3 +43,8 @@ def readable(x, spec: str = ".4g", missing: str = "–") -> str:
     if float(text.strip()) == 0.0:                     # shown as zero: no sign, the same width
         text = format(0.0, spec.replace("+", ""))
     return text
+
+
+def unsigned_zero(text: str) -> str:
+    """``text`` with every zero written with a sign ("-0.0 dB") written without it ("0.0 dB")."""
+    return _SIGNED_ZERO.sub(r"\1", text)

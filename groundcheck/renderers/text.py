@@ -45,7 +45,7 @@ TABLE_OUTLETS = 50
 def _fmt(x, unit="", digits=3):
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "–"
-    return f"{x:.{digits}g}{unit}"
+    return f"{readable(x, f'.{digits}g')}{unit}"
 
 
 def print_report(result: Result, console: Console, *, caution: bool = True) -> None:
