@@ -268,3 +268,19 @@ def test_readme_tutorial_quotes_its_example_line_for_line():
     text = (ROOT / "examples" / "headphone-amp-100v.gplan").read_text()
     example = [x.split("#")[0].rstrip() for x in text.splitlines()]
     assert [x for x in excerpt.splitlines() if x and x != "..." and x not in example] == []
+
+
+def test_each_command_states_only_exit_statuses_it_can_give(cli, tmp_path):
+    # a help text that names --fail-on belongs to a command that has it; draw and export judge nothing, so
+    # their help promises 0 or 2 only, and a plan full of findings still exits 0 from both
+    import argparse
+    sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))
+    for name, parser in sub.choices.items():
+        has = any("--fail-on" in a.option_strings for a in parser._actions)
+        assert ("--fail-on" in (parser.epilog or "")) <= has, name
+    for name in ("draw", "export"):
+        statuses = re.findall(r"(?:: |, )(\d) ", sub.choices[name].epilog)
+        assert statuses == ["0", "2"], name
+    assert cli("export", HEADPHONE, "-o", str(tmp_path / "g.cir"))[0] == 0
+    assert cli("draw", HEADPHONE, "-o", str(tmp_path / "g.dot"))[0] == 0
+    assert cli("check", HEADPHONE)[0] == 1                                # the same plan has faults

@@ -28,6 +28,11 @@ from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_an
 __all__ = ["main"]
 
 EPILOG = "Exit status: 0 clean, 1 findings at or above --fail-on, 2 the plan or the command could not be used."
+#: commands that write a file and judge nothing (draw, export)
+WRITE_EPILOG = "Exit status: 0 the file was written, 2 the plan or the command could not be used."
+COMPARE_EPILOG = ("Exit status: 0 nothing --fail-on asks about, 1 the after-plan introduces a "
+                  "finding (--fail-on introduced) or one at least as severe as the worst before "
+                  "(--fail-on worse), 2 a plan or the command could not be used.")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -83,7 +88,7 @@ def _draw_command(sub) -> None:
                        description="Draw the physical view (metal parts, points at their positions, conductors by "
                        "role, loops and problems marked) or the topology view.\n\nExample:\n"
                        "  groundcheck draw examples/headphone-amp-100v.gplan -o ground.svg",
-                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=WRITE_EPILOG)
     d.add_argument("plan", metavar="PLAN")
     d.add_argument("-o", "--output", metavar="FILE", required=True,
                    help="FILE.svg, FILE.png or FILE.dot; '-' writes to standard output (SVG, or --as dot or png)")
@@ -133,7 +138,8 @@ def _compare_command(sub) -> None:
     cp = sub.add_parser("compare", help="compare two plans: findings, loops, hum per harmonic, protective earth",
                         description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o "
                                     "changes.html",
-                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                        formatter_class=argparse.RawDescriptionHelpFormatter,
+                        epilog=COMPARE_EPILOG)
     cp.add_argument("before", metavar="BEFORE")
     cp.add_argument("after", metavar="AFTER")
     cp.add_argument("--format", choices=("text", "json", "html"), default="text", help="output format (default text)")
@@ -148,7 +154,7 @@ def _export_command(sub) -> None:
     x = sub.add_parser("export", help="write the ground network in another format",
                        description="Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format spice "
                                    "-o ground.cir",
-                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=WRITE_EPILOG)
     x.add_argument("plan", metavar="PLAN")
     x.add_argument("--format", choices=("spice",), default="spice",
                    help="spice: a plain SPICE netlist, elements named after the plan's conductors (R, L, C and the "
