@@ -128,12 +128,16 @@ class LiveHandler(BaseHTTPRequestHandler):
         return self.client_address[0] == "127.0.0.1" and host in (f"127.0.0.1:{port}", f"localhost:{port}")
 
     def _send(self, code: int, body: bytes, kind: str, extra: dict | None = None) -> None:
-        self.send_response(code)
-        for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",
-                     "X-Content-Type-Options": "nosniff", **(extra or {})}.items():
-            self.send_header(k, v)
-        self.end_headers()
-        self.wfile.write(body)
+        """One answer; a browser that closed the connection mid-answer (a reload, a closed tab) is no error."""
+        try:
+            self.send_response(code)
+            for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",
+                         "X-Content-Type-Options": "nosniff", **(extra or {})}.items():
+                self.send_header(k, v)
+            self.end_headers()
+            self.wfile.write(body)
+        except (BrokenPipeError, ConnectionResetError):
+            self.close_connection = True
 
     def do_GET(self) -> None:  # noqa: N802 - the standard library's name
         if not self._local():
