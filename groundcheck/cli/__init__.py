@@ -347,10 +347,12 @@ def main(argv: list[str] | None = None) -> int:
         return COMMANDS[args.command](args)
     except PlanErrors as e:
         sys.stderr.write(e.render() + "\n")
-        if args.command == "check" and getattr(args, "format", None) == "sarif":
+        if args.command == "check" and getattr(args, "format", None) in ("sarif", "json"):
             import json
+            from ..renderers.jsondoc import errors_document
             from ..renderers.sarif import sarif_errors
-            write_output(json.dumps(sarif_errors(e.errors), indent=2, ensure_ascii=False) + "\n", args.output,
+            doc = (sarif_errors if args.format == "sarif" else errors_document)(e.errors)
+            write_output(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", args.output,
                          [p for p in args.plans if p != "-"])
         return 2
     except _Rendered as e:
