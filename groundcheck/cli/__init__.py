@@ -15,7 +15,7 @@ from pathlib import Path
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors
-from ..rules.catalogue import RULES
+from ..rules.catalogue import RULES, protective_earth_rule
 from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
@@ -247,7 +247,7 @@ def cmd_explain(args) -> int:
     print(f"Checks:  {r.checks}\n")
     print(f"Why:     {r.why}\n")
     print(f"Fix:     {r.fix}\n")
-    if code.startswith("GC2"):
+    if protective_earth_rule(code):
         print(f"         {MAINS_WORK}\n")
     print(f"References: {r.references}\n")
     print(CAUTION)

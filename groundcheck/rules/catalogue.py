@@ -12,10 +12,15 @@ from dataclasses import dataclass, field
 from ..core.errors import Location
 from .catalogue_pe import PROTECTIVE_ENTRIES
 
-__all__ = ["Finding", "Rule", "RULES", "SEVERITIES", "severity_rank"]
+__all__ = ["Finding", "Rule", "RULES", "SEVERITIES", "severity_rank", "protective_earth_rule"]
 
 #: severities from the most to the least serious
 SEVERITIES = ("danger", "fault", "warning", "note")
+
+
+def protective_earth_rule(code: str) -> bool:
+    """Whether rule ``code`` judges the protective earth (the GC2 family), whose fixes are mains wiring."""
+    return code.startswith("GC2")
 
 
 def severity_rank(sev: str) -> int:
