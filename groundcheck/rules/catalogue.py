@@ -19,7 +19,15 @@ SEVERITIES = ("danger", "fault", "warning", "note")
 
 
 def protective_earth_rule(code: str) -> bool:
-    """Whether rule ``code`` judges the protective earth (the GC2 family), whose fixes are mains wiring."""
+    """Whether rule ``code`` judges the protective earth (the GC2 family), whose fixes are mains wiring.
+
+    Parameters:
+        code: a rule code such as ``GC206``.
+    Returns:
+        True for a protective-earth rule.
+    References:
+        none (bookkeeping: the catalogue numbers the protective-earth rules GC2xx).
+    """
     return code.startswith("GC2")
 
 
