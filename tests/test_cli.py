@@ -14,11 +14,11 @@ from groundcheck.rules.catalogue import RULES
 from helpers import EXAMPLES, ROOT
 
 DUAL = str(next(e for e in EXAMPLES if e.name.startswith("dual-mono")))
-MONO = str(next(e for e in EXAMPLES if e.name.startswith("headphone")))
+HEADPHONE = str(next(e for e in EXAMPLES if e.name.startswith("headphone")))
 
 
 def test_check_text_report(cli):
-    code, out, err = cli("check", MONO)
+    code, out, err = cli("check", HEADPHONE)
     assert code == 1 and err == ""
     for text in ("GC206", "GC102", "GC304", "Protective earth", "Hum and buzz", "Never lift the protective earth"):
         assert text in out
@@ -30,7 +30,8 @@ def test_fail_on_threshold(cli):
     assert cli("check", guitar, "--fail-on", "fault")[0] == 1
     assert cli("check", DUAL, "--fail-on", "fault")[0] == 0           # warnings and a note only
     assert cli("check", DUAL, "--fail-on", "warning")[0] == 1
-    assert cli("check", MONO, "--fail-on", "danger")[0] == 1          # the front panel's protective path
+    # the front panel's protective path
+    assert cli("check", HEADPHONE, "--fail-on", "danger")[0] == 1
 
 
 def test_clean_plan_exits_zero(cli, tmp_path):
@@ -60,7 +61,7 @@ def test_json_document(cli):
 
 
 def test_stdin(cli, monkeypatch):
-    monkeypatch.setattr("sys.stdin", io.StringIO(open(MONO).read()))
+    monkeypatch.setattr("sys.stdin", io.StringIO(open(HEADPHONE).read()))
     code, out, _ = cli("check", "-", "--format", "json")
     assert code == 1 and json.loads(out)["plan"]["file"] == "<stdin>"
 
@@ -78,15 +79,16 @@ def test_explain(cli):
 
 def test_the_caution_is_in_every_output(cli, tmp_path):
     from groundcheck.core.caution import CAUTION, MAINS_WORK
-    outputs = {fmt: cli("check", MONO, "--format", fmt)[1] for fmt in ("text", "json", "sarif")}
+    outputs = {fmt: cli("check", HEADPHONE, "--format", fmt)[1]
+               for fmt in ("text", "json", "sarif")}
     outputs["explain"] = cli("explain", "GC201")[1]
     outputs["explain list"] = cli("explain")[1]
-    outputs["suggest"] = cli("suggest", MONO)[1]
-    outputs["suggest json"] = cli("suggest", MONO, "--format", "json")[1]
+    outputs["suggest"] = cli("suggest", HEADPHONE)[1]
+    outputs["suggest json"] = cli("suggest", HEADPHONE, "--format", "json")[1]
     for fmt in ("text", "json", "html"):
-        outputs[f"compare {fmt}"] = cli("compare", MONO, MONO, "--format", fmt)[1]
+        outputs[f"compare {fmt}"] = cli("compare", HEADPHONE, HEADPHONE, "--format", fmt)[1]
     report = tmp_path / "r.html"
-    cli("report", MONO, "-o", str(report))
+    cli("report", HEADPHONE, "-o", str(report))
     outputs["report"] = report.read_text()
     plain = {k: " ".join(v.split()) for k, v in outputs.items()}
     assert [k for k, v in plain.items() if "Never lift the protective earth" not in v] == []
@@ -112,7 +114,7 @@ def test_export_spice(cli, tmp_path):
 
 def test_refuses_to_overwrite_input(cli, tmp_path):
     plan = tmp_path / "p.gplan"
-    text = open(MONO).read()
+    text = open(HEADPHONE).read()
     plan.write_text(text)
     code, _, err = cli("check", str(plan), "--format", "json", "-o", str(plan))
     assert code == 2 and "refusing to write over" in err and "a plan this run read" in err
@@ -120,7 +122,7 @@ def test_refuses_to_overwrite_input(cli, tmp_path):
 
 
 def test_usage_errors_are_one_line_exit_2(cli):
-    code, _, err = cli("check", MONO, "--pe-limit", "5 mm")
+    code, _, err = cli("check", HEADPHONE, "--pe-limit", "5 mm")
     assert code == 2 and "is a length, not a resistance" in err and "Traceback" not in err
     with pytest.raises(SystemExit) as e:
         build_parser().parse_args(["frobnicate"])
@@ -146,7 +148,7 @@ def test_every_command_has_help_with_example_and_is_in_readme():
 
 def test_library_entry_points():
     import groundcheck
-    r = groundcheck.analyze(groundcheck.load(MONO))
+    r = groundcheck.analyze(groundcheck.load(HEADPHONE))
     assert json.loads(groundcheck.render(r, "json"))["summary"]["fault"] >= 1
     assert groundcheck.render(r, "sarif").lstrip().startswith("{")
     assert "GC206" in groundcheck.render(r, "text")
@@ -189,16 +191,17 @@ def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
 
 def test_compare_fails_a_review_when_the_after_plan_introduces_findings(cli, tmp_path):
     worse = tmp_path / "worse.gplan"
-    worse.write_text(open(MONO).read() + "shield in_shield: in_l to in_gnd_pad, 30 mm, 0.2 mm2, terminated both\n")
-    assert cli("compare", MONO, str(worse))[0] == 0
-    assert cli("compare", MONO, str(worse), "--fail-on", "introduced")[0] == 1
-    assert cli("compare", MONO, MONO, "--fail-on", "introduced")[0] == 0
+    worse.write_text(open(HEADPHONE).read()
+                     + "shield in_shield: in_l to in_gnd_pad, 30 mm, 0.2 mm2, terminated both\n")
+    assert cli("compare", HEADPHONE, str(worse))[0] == 0
+    assert cli("compare", HEADPHONE, str(worse), "--fail-on", "introduced")[0] == 1
+    assert cli("compare", HEADPHONE, HEADPHONE, "--fail-on", "introduced")[0] == 0
 
 
 def test_option_values_are_checked(cli):
     for args in (("--max-frequency", "-100"), ("--pe-limit", "0"), ("--hum-level", "nan"), ("--max-frequency",
                                                                                             "1e309")):
-        code, _, err = cli("check", MONO, *args)
+        code, _, err = cli("check", HEADPHONE, *args)
         assert code == 2 and "error: argument" in err
 
 
@@ -265,3 +268,19 @@ def test_readme_tutorial_quotes_its_example_line_for_line():
     text = (ROOT / "examples" / "headphone-amp-100v.gplan").read_text()
     example = [x.split("#")[0].rstrip() for x in text.splitlines()]
     assert [x for x in excerpt.splitlines() if x and x != "..." and x not in example] == []
+
+
+def test_each_command_states_only_exit_statuses_it_can_give(cli, tmp_path):
+    # a help text that names --fail-on belongs to a command that has it; draw and export judge nothing, so
+    # their help promises 0 or 2 only, and a plan full of findings still exits 0 from both
+    import argparse
+    sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))
+    for name, parser in sub.choices.items():
+        has = any("--fail-on" in a.option_strings for a in parser._actions)
+        assert ("--fail-on" in (parser.epilog or "")) <= has, name
+    for name in ("draw", "export"):
+        statuses = re.findall(r"(?:: |, )(\d) ", sub.choices[name].epilog)
+        assert statuses == ["0", "2"], name
+    assert cli("export", HEADPHONE, "-o", str(tmp_path / "g.cir"))[0] == 0
+    assert cli("draw", HEADPHONE, "-o", str(tmp_path / "g.dot"))[0] == 0
+    assert cli("check", HEADPHONE)[0] == 1                                # the same plan has faults

@@ -235,7 +235,6 @@ def test_worst_case_adds_stage_shares_in_magnitude_and_shares_add_up():
     # two stages of one channel whose pair voltages from the same rectifier current have opposite signs: the
     # signed sum cancels, the worst case adds the magnitudes (|g1·v1| + |g2·v2|, worked by hand from the two
     # stage voltages the solve gives) and the contributors' signed shares add up to 100 %
-    from groundcheck import load_text
     from groundcheck.analysis import analyze
     text = """plan "two stages, opposite drops"
 listening output 1 V
@@ -268,3 +267,28 @@ stage s2: m to b, gain 20 dB, channel out
     from groundcheck.renderers.text import text_report
     assert "with every stage non-inverting" in text_report(flipped)          # the summary says both
     assert "with every stage non-inverting" not in text_report(r)
+
+
+def test_without_the_hum_figures_a_shared_return_says_why_it_stays_a_fault():
+    # a DC relay current (no frequency: DC) on a stage's ground wire: the hum budget finds none of it at the
+    # output, so GC102 is a note; with --no-hum nothing weighs it, and the finding says so instead of quietly
+    # turning into a fault
+    from groundcheck.rules.results import Options
+    text = """plan "a DC return on a stage's ground wire (trial)"
+listening output 1 V
+metal deck: aluminium 2 mm, 200 x 120 mm
+point star: star, at 100,60 on deck
+point k: pad, at 150,60 on deck
+point in_gnd: sleeve, at 190,60 on deck
+point src: pad, at 40,60 on deck
+wire sup: src to k, 110 mm, 0.5 mm2, return
+wire k_gnd: k to star, 50 mm, 0.3 mm2, signal
+wire in_lead: in_gnd to k, 40 mm, 0.3 mm2, signal
+current relay: src to star, 50 mA, load
+stage v1: in_gnd to star, gain 30 dB, channel main
+"""
+    judged, unjudged = (next(f for f in analyze(load_text(text, "dc.gplan"), Options(hum=h)).findings
+                             if f.code == "GC102") for h in (True, False))
+    assert judged.severity == "note" and "finds none of it" in judged.message
+    assert "level_dbv" not in judged.figures                 # no level to show, rather than an empty one
+    assert unjudged.severity == "fault" and "--no-hum" in unjudged.message

@@ -290,3 +290,22 @@ def test_an_error_names_the_block_name_that_hides_an_outer_one():
     err = _the_one_error('plan "b"\nmetal panel: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point panel: pad, at '
                          "10,10\n  point p: pad, at 20,20 on panel\n}\nplace ch as left at 0,0\n")
     assert err.location.line == 5 and "'panel' here is the block's own, which hides the name outside it" in err.hint
+
+
+def test_mirror_x_flips_about_the_blocks_own_origin_then_moves_it():
+    # as docs/language.md says: x → −x about the block's origin, then `at` is added
+    # (0 and 100 become 300 and 200)
+    p = plan("""
+    metal deck: aluminium 2 mm, 400 x 200 mm
+    block part {
+      point a: pad, at 0,10 on deck
+      point b: pad, at 100,20 on deck
+      wire w: a to b, 100 mm, 0.5 mm2
+    }
+    place part as one at 300,0, mirror x
+    place part as two at 0,150, mirror
+    """)
+    # positions are held in metres; compared here in millimetres
+    at = {pt.name: tuple(round(v * 1e3, 6) for v in pt.pos) for pt in p.points if pt.pos}
+    assert at["one.a"] == (300, 10) and at["one.b"] == (200, 20)
+    assert at["two.a"] == (0, 140) and at["two.b"] == (100, 130)

@@ -15,7 +15,7 @@ from groundcheck.advice.repair import apply_edits, candidates, greedy, suggest, 
 from helpers import EXAMPLES
 
 DUAL = next(e for e in EXAMPLES if e.name.startswith("dual-mono"))
-MONO = next(e for e in EXAMPLES if e.name.startswith("headphone"))
+HEADPHONE = next(e for e in EXAMPLES if e.name.startswith("headphone"))
 HEAD = next(e for e in EXAMPLES if e.name.startswith("guitar-head"))
 
 
@@ -60,7 +60,7 @@ def test_dual_mono_suggestions_clear_each_planted_mistake():
 
 
 def test_headphone_suggestions_clear_each_planted_mistake():
-    before, evs = _suggest(MONO)
+    before, evs = _suggest(HEADPHONE)
     useful = [e for e in evs if not e.rejected]
     assert useful[0].candidate.reason == "GC206"                          # a danger cleared ranks first (mistake 1)
     join = next(e for e in useful if e.candidate.title.startswith("join br_neg straight to res_0v"))   # mistake 2
@@ -70,12 +70,13 @@ def test_headphone_suggestions_clear_each_planted_mistake():
 
 def test_a_poorly_bonded_panel_gets_a_protective_wire_of_its_own(tmp_path):
     # mistake 1 of the headphone amplifier: the front panel's only protective path is 4 ohm of anodised threads
-    before, evs = _suggest(MONO)
+    before, evs = _suggest(HEADPHONE)
     (e,) = [e for e in evs if e.candidate.title.startswith("bond front by a protective wire")]
     assert not e.rejected and e.candidate.reason == "GC206"
     after = _codes_after(e)
     assert "GC206" not in after and "GC202" not in after           # the inlet's stud keeps its fastener to itself
-    new = load_text(apply_edits(MONO.read_text(), e.candidate.edits), str(tmp_path / "h.gplan"), root=MONO.parent)
+    new = load_text(apply_edits(HEADPHONE.read_text(), e.candidate.edits),
+                    str(tmp_path / "h.gplan"), root=HEADPHONE.parent)
     wire = next(c for c in new.conductors if c.name == "front_pe_bond")
     assert wire.role == "protective" and wire.area >= new.mains.line_area
     # its length: the straight line between its two new studs plus the stated 20 %, to the millimetre
@@ -105,7 +106,7 @@ def test_advisor_gives_the_protective_earth_its_own_stud_and_lifts_a_shield(tmp_
     assert any("GC108" not in _codes_after(e) for e in useful)
 
 
-@pytest.mark.parametrize("path", [DUAL, MONO], ids=["dual", "mono"])
+@pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])
 def test_predicted_gain_matches_the_applied_plan(path, tmp_path):
     before, evs = _suggest(path)
     best = next(e for e in evs if not e.rejected)
@@ -163,8 +164,8 @@ def test_loop_closed_by_the_protective_earth_gets_no_suggestion_touching_it(tmp_
 
 
 def test_compare_with_itself_reports_no_change():
-    r = analyze(load(MONO))
-    d = compare(r, analyze(load(MONO)))
+    r = analyze(load(HEADPHONE))
+    d = compare(r, analyze(load(HEADPHONE)))
     assert d["findings"]["fixed"] == [] and d["findings"]["introduced"] == []
     assert d["loops"]["removed"] == [] and d["loops"]["added"] == []
     for h in d["hum"].values():
@@ -174,7 +175,7 @@ def test_compare_with_itself_reports_no_change():
 
 
 def test_greedy_search_reaches_the_goal_on_examples():
-    for path in (DUAL, MONO):
+    for path in (DUAL, HEADPHONE):
         chosen, final, text = greedy(load(path), path.read_text(), Options(), path.resolve().parent, path.resolve())
         assert chosen
         assert not any(f.severity in ("danger", "fault") for f in final.findings)
@@ -184,7 +185,7 @@ def test_greedy_search_reaches_the_goal_on_examples():
 
 def test_suggest_apply_and_compare_commands(cli, tmp_path):
     out = tmp_path / "fixed.gplan"
-    code, text, err = cli("suggest", str(MONO), "--apply", str(out))
+    code, text, err = cli("suggest", str(HEADPHONE), "--apply", str(out))
     assert code == 0 and "Combined" in text and out.exists()
     code, _, err = cli("suggest", str(DUAL), "--apply", str(out))
     assert code == 2 and "--force" in err                       # refused before any analysis
@@ -192,15 +193,15 @@ def test_suggest_apply_and_compare_commands(cli, tmp_path):
     assert code == 2 and DUAL.read_text().startswith("#")      # never over the plan itself, even with --force
     code, _, err = cli("suggest", str(DUAL), "--pick", "1")
     assert code == 2 and "--apply" in err
-    code, text, _ = cli("compare", str(MONO), str(out), "--format", "json")
+    code, text, _ = cli("compare", str(HEADPHONE), str(out), "--format", "json")
     d = json.loads(text)
     assert code == 0 and any(f["code"] == "GC102" for f in d["findings"]["fixed"])
     assert d["hum"]["left"]["audible_before"] is True and d["hum"]["left"]["audible_after"] is False
-    code, text, _ = cli("compare", str(MONO), str(out))
+    code, text, _ = cli("compare", str(HEADPHONE), str(out))
     assert "fixed" in text and "Hum, left" in text
-    code, text, _ = cli("compare", str(MONO), str(out), "--format", "html")
+    code, text, _ = cli("compare", str(HEADPHONE), str(out), "--format", "html")
     assert text.startswith("<!DOCTYPE html>")
-    code, text, _ = cli("suggest", str(MONO), "--format", "json")
+    code, text, _ = cli("suggest", str(HEADPHONE), "--format", "json")
     doc = json.loads(text)
     assert doc["suggestions"] and all(s["diff"].startswith("--- a/") for s in doc["suggestions"])
 
@@ -347,7 +348,7 @@ def test_protective_fixes_are_proposed_and_applied(tmp_path):
     assert all("panel_lead" not in e.candidate.title or e.candidate.reason == "GC204" for e in evs)
 
 
-@pytest.mark.parametrize("path", [DUAL, MONO], ids=["dual", "mono"])
+@pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])
 def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
     # the fix line of a finding and the advisor come from the same structured actions: for every action of every
     # finding the advisor makes a candidate naming the same element (one source of truth)
@@ -360,7 +361,7 @@ def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
             assert element in f.fix
 
 
-@pytest.mark.parametrize("path", [DUAL, MONO], ids=["dual", "mono"])
+@pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])
 def test_every_fix_line_is_rechecked_by_the_advisor(path):
     # the repair a finding's fix line names is tried by the advisor on the plan, and it clears that finding:
     # a fix that would not clear its finding would show up here

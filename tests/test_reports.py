@@ -20,7 +20,7 @@ from groundcheck.renderers.text import text_report
 from helpers import EXAMPLES
 
 RESULTS = {p.name: analyze(load(p)) for p in EXAMPLES}
-MONO = RESULTS["headphone-amp-100v.gplan"]
+HEADPHONE = RESULTS["headphone-amp-100v.gplan"]
 DUAL = RESULTS["dual-mono-phono-stage.gplan"]
 
 
@@ -107,14 +107,14 @@ def test_html_report_in_headless_chromium(name, tmp_path, cli):
 
 def test_sarif_required_fields():
     # SARIF 2.1.0 (OASIS): required properties of sarifLog, run, tool.driver, result, location
-    doc = sarif_document([MONO, DUAL])
+    doc = sarif_document([HEADPHONE, DUAL])
     assert doc["version"] == "2.1.0" and doc["$schema"].endswith("sarif-2.1.0.json")
     run = doc["runs"][0]
     driver = run["tool"]["driver"]
     assert driver["name"] == "groundcheck"
     ids = [r["id"] for r in driver["rules"]]
     assert len(ids) == len(set(ids))
-    assert len(run["results"]) == len(MONO.findings) + len(DUAL.findings)
+    assert len(run["results"]) == len(HEADPHONE.findings) + len(DUAL.findings)
     for res in run["results"]:
         assert res["message"]["text"]
         assert res["level"] in ("error", "warning", "note", "none")
@@ -201,10 +201,10 @@ def test_html_report_shows_each_findings_plan_line_coloured(tmp_path, cli):
 
 
 def test_compare_page_has_totals_charts_and_both_drawings(tmp_path, cli):
-    mono = next(p for p in EXAMPLES if p.name == "headphone-amp-100v.gplan")
+    headphone = next(p for p in EXAMPLES if p.name == "headphone-amp-100v.gplan")
     fixed = tmp_path / "fixed.gplan"
-    assert cli("suggest", str(mono), "--apply", str(fixed))[0] == 0
-    code, page, _ = cli("compare", str(mono), str(fixed), "--format", "html")
+    assert cli("suggest", str(headphone), "--apply", str(fixed))[0] == 0
+    code, page, _ = cli("compare", str(headphone), str(fixed), "--format", "html")
     assert code == 0 and page.startswith("<!DOCTYPE html>") and "<style>" in page
     totals = page[page.index('id="totals"'):page.index("</table>", page.index('id="totals"'))]
     # the headphone amplifier's planted mistakes: one danger (GC206) and six faults (GC102, GC303

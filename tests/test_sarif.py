@@ -33,3 +33,16 @@ def test_a_plan_error_is_a_sarif_result_at_its_location(cli, tmp_path):
     assert result["ruleId"] == "plan-error" and result["level"] == "error"
     assert (region["startLine"], region["startColumn"]) == (2, 20)
     assert log["runs"][0]["invocations"] == [{"executionSuccessful": False}]
+
+
+def test_protective_earth_results_and_rules_carry_the_caution_where_review_screens_show_it(cli):
+    # review screens show a result's message and a rule's help, not the run's properties: each GC2 result
+    # and each GC2 rule's help says the fix is mains work and carries the caution; other rules do not
+    from groundcheck.core.caution import CAUTION, MAINS_WORK
+    headphone = next(p for p in EXAMPLES if p.name.startswith("headphone"))
+    run = json.loads(cli("check", str(headphone), "--format", "sarif")[1])["runs"][0]
+    pe = [r for r in run["results"] if r["ruleId"].startswith("GC2")]
+    assert pe and all(MAINS_WORK in r["message"]["text"] and CAUTION in r["message"]["text"] for r in pe)
+    assert all(CAUTION not in r["message"]["text"] for r in run["results"] if r not in pe)
+    rules = run["tool"]["driver"]["rules"]
+    assert all((CAUTION in r["help"]["text"]) == r["id"].startswith("GC2") for r in rules)

@@ -27,3 +27,16 @@ def test_a_document_missing_a_key_does_not_validate(cli):
     del doc["summary"]["notices"]
     with pytest.raises(jsonschema.ValidationError):
         jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
+
+
+def test_a_plan_that_cannot_be_read_gives_a_json_document_with_its_errors(cli, tmp_path):
+    bad = tmp_path / "bad.gplan"
+    bad.write_text('plan "x"\npoint a pad\n')
+    code, out, err = cli("check", str(bad), "--format", "json")
+    errors_schema = json.loads((ROOT / "docs" / "schema" / "groundcheck-errors.schema.json").read_text())
+    jsonschema.Draft202012Validator.check_schema(errors_schema)
+    doc = json.loads(out)
+    jsonschema.validate(doc, errors_schema, cls=jsonschema.Draft202012Validator)
+    assert code == 2 and "bad.gplan:2:1: error" in err
+    assert doc["caution"] and [(e["line"], e["column"]) for e in doc["errors"]] == [(2, 1)]
+    assert "Never lift the protective earth" in doc["caution"]

@@ -66,4 +66,14 @@ def test_copper_temperature_coefficient():
 def test_format_si():
     assert format_si(0.0123, "Ω") == "12.3 mΩ"
     assert format_si(4.7e-6, "F") == "4.7 µF"
+    assert format_si(-0.0, "Ω") == "0 Ω" and format_si(float("nan"), "V") == "not computed"
+
+
+def test_figures_for_a_reader_never_show_a_signed_zero_or_a_python_value():
+    from groundcheck.core.plain import readable, unsigned_zero
+    assert readable(-0.04, "+.1f") == "0.0" and readable(-0.0, ".4g") == "0"
+    assert readable(-0.06, "+.1f") == "-0.1" and readable(2.5, "+.1f") == "+2.5"
+    assert readable(-0.01, "8.1f") == "     0.0"                    # the width kept
+    assert readable(None) == "–" and readable(float("inf"), missing="absent") == "absent"
+    assert unsigned_zero("-0.0 dB, +0.00 dB, -0 V, -0.05 dB, x-0.0") == "0.0 dB, 0.00 dB, 0 V, -0.05 dB, x-0.0"
     assert math.isfinite(parse_quantity("1e-3", "V")[0])

@@ -229,3 +229,22 @@ def test_a_link_swapped_in_is_refused_and_early_closes_are_quiet(tmp_path):
     finally:
         err = _stop(proc)
     assert "Traceback" not in err and "SECRET" not in err
+
+
+def test_a_connection_closed_mid_answer_is_no_error():
+    # the browser closes the connection (a reload, a closed tab) while the answer is written: the handler
+    # ends that connection quietly instead of raising, so the terminal shows no traceback
+    from groundcheck.cli.watch import LiveHandler
+
+    class Closed:
+        def write(self, data):
+            raise BrokenPipeError(32, "Broken pipe")
+
+        def flush(self):
+            raise BrokenPipeError(32, "Broken pipe")
+
+    h = LiveHandler.__new__(LiveHandler)
+    h.request_version, h.requestline, h.command, h.wfile = "HTTP/1.1", "GET / HTTP/1.1", "GET", Closed()
+    h.close_connection = False
+    h._send(200, b"{}", "application/json")
+    assert h.close_connection

@@ -7,7 +7,7 @@ import json
 
 from ..rules.results import Result
 from ..core.caution import CAUTION
-from ..core.plain import clean
+from ..core.plain import clean, readable
 from ..core.units import dbv
 
 __all__ = ["compare", "compare_text", "compare_json"]
@@ -79,7 +79,22 @@ def _outlets(before: Result, after: Result) -> list[dict]:
 
 
 def _f(x, fmt):
-    return "–" if x is None else fmt.format(x)
+    return readable(x, fmt[2:-1], missing="absent")
+
+
+#: a channel's verdict in words (None: no verdict could be reached, e.g. no listening statement)
+_HEARD = {True: "audible", False: "inaudible", None: "no verdict"}
+
+
+def _level(dbv_value) -> str:
+    return "no hum" if dbv_value is None else f"{readable(dbv_value, '.1f')} dBV"
+
+
+def _hum_line(ch: str, h: dict) -> str:
+    """'Hum, left: -86.2 dBV → no hum; inaudible → inaudible' (the change in dB when both levels exist)."""
+    change = "" if h["change_db"] is None else f" ({readable(h['change_db'], '+.1f')} dB)"
+    heard = f"{_HEARD[h['audible_before']]} → {_HEARD[h['audible_after']]}"
+    return f"Hum, {ch}: {_level(h['before_dbv'])} → {_level(h['after_dbv'])}{change}; {heard}"
 
 
 def compare_text(d: dict) -> str:
@@ -101,12 +116,11 @@ def compare_text(d: dict) -> str:
     for k in lp["added"]:
         out.append(f"  added     {', '.join(k)}")
     for ch, h in d["hum"].items():
-        out.append(f"Hum, {ch}: {_f(h['before_dbv'], '{:.1f}')} → {_f(h['after_dbv'], '{:.1f}')} dBV "
-                   f"({_f(h['change_db'], '{:+.1f}')} dB); audible {h['audible_before']} → {h['audible_after']}")
+        out.append(_hum_line(ch, h))
         for r in h["spectrum"][:12]:
-            out.append(f"  {r['frequency_hz']:>7g} Hz  {_f(r['before_dbv'], '{:8.1f}')} → "
-                       f"{_f(r['after_dbv'], '{:8.1f}')} dBV  "
-                       f"{_f(r['change_db'], '{:+.1f}')} dB")
+            change = "" if r["change_db"] is None else f"  {readable(r['change_db'], '+.1f')} dB"
+            out.append(f"  {r['frequency_hz']:>7g} Hz  {_level(r['before_dbv']):>10} → "
+                       f"{_level(r['after_dbv']):>10}{change}")
     for p in d["protective_earth"]:
         out.append(f"Protective path to {p['part']}: {_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
                    f"{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')} mΩ; touch voltage "

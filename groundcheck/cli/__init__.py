@@ -16,8 +16,7 @@ from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors, shown
 from ..core.runtime import die_with_parent, files_read, note_read
-from ..rules.catalogue import RULES
-from ..rules.rule_families import PROTECTIVE_EARTH
+from ..rules.catalogue import RULES, protective_earth_rule
 from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
@@ -30,6 +29,11 @@ from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_an
 __all__ = ["main"]
 
 EPILOG = "Exit status: 0 clean, 1 findings at or above --fail-on, 2 the plan or the command could not be used."
+#: commands that write a file and judge nothing (draw, export)
+WRITE_EPILOG = "Exit status: 0 the file was written, 2 the plan or the command could not be used."
+COMPARE_EPILOG = ("Exit status: 0 nothing --fail-on asks about, 1 the after-plan introduces a "
+                  "finding (--fail-on introduced) or one at least as severe as the worst before "
+                  "(--fail-on worse), 2 a plan or the command could not be used.")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -84,8 +88,8 @@ def _draw_command(sub) -> None:
     d = sub.add_parser("draw", help="draw the plan with every problem marked",
                        description="Draw the physical view (metal parts, points at their positions, conductors by "
                        "role, loops and problems marked) or the topology view.\n\nExample:\n"
-                       "  groundcheck draw examples/headphone-amp-100v.gplan -o monoblock.svg",
-                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                       "  groundcheck draw examples/headphone-amp-100v.gplan -o ground.svg",
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=WRITE_EPILOG)
     d.add_argument("plan", metavar="PLAN")
     d.add_argument("-o", "--output", metavar="FILE", required=True,
                    help="FILE.svg, FILE.png or FILE.dot; '-' writes to standard output (SVG, or --as dot or png)")
@@ -135,7 +139,8 @@ def _compare_command(sub) -> None:
     cp = sub.add_parser("compare", help="compare two plans: findings, loops, hum per harmonic, protective earth",
                         description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o "
                                     "changes.html",
-                        formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                        formatter_class=argparse.RawDescriptionHelpFormatter,
+                        epilog=COMPARE_EPILOG)
     cp.add_argument("before", metavar="BEFORE")
     cp.add_argument("after", metavar="AFTER")
     cp.add_argument("--format", choices=("text", "json", "html"), default="text", help="output format (default text)")
@@ -150,7 +155,7 @@ def _export_command(sub) -> None:
     x = sub.add_parser("export", help="write the ground network in another format",
                        description="Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format spice "
                                    "-o ground.cir",
-                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=EPILOG)
+                       formatter_class=argparse.RawDescriptionHelpFormatter, epilog=WRITE_EPILOG)
     x.add_argument("plan", metavar="PLAN")
     x.add_argument("--format", choices=("spice",), default="spice",
                    help="spice: a plain SPICE netlist, elements named after the plan's conductors (R, L, C and the "
@@ -247,7 +252,7 @@ def cmd_explain(args) -> int:
     print(f"Checks:  {r.checks}\n")
     print(f"Why:     {r.why}\n")
     print(f"Fix:     {r.fix}\n")
-    if r.family == PROTECTIVE_EARTH:
+    if protective_earth_rule(code):
         print(f"         {MAINS_WORK}\n")
     print(f"References: {r.references}\n")
     print(CAUTION)
@@ -296,8 +301,8 @@ def cmd_draw(args) -> int:
     else:
         write_atomic(out, data, protect=[Path(args.plan)])
     note = "" if view == args.view else " (the plan has no positions: topology view)"
-    sys.stderr.write(f"groundcheck: wrote the {view} view to {'standard output' if to_stdout else shown(out)} with "
-                     f"{how}{note}\n")
+    where = "standard output" if to_stdout else shown(out)
+    sys.stderr.write(f"groundcheck: wrote the {view} view to {where} {how}{note}\n")
     if any(missing := physical_omissions(result) if view == "physical" else (0, 0)):
         sys.stderr.write(f"groundcheck: note: the physical view leaves out {missing[0]} points and {missing[1]} "
                          "conductors that have no positions; --view topology shows every one\n")
@@ -347,10 +352,12 @@ def main(argv: list[str] | None = None) -> int:
         return COMMANDS[args.command](args)
     except PlanErrors as e:
         sys.stderr.write(e.render() + "\n")
-        if args.command == "check" and getattr(args, "format", None) == "sarif":
+        if args.command == "check" and getattr(args, "format", None) in ("sarif", "json"):
             import json
+            from ..renderers.jsondoc import errors_document
             from ..renderers.sarif import sarif_errors
-            write_output(json.dumps(sarif_errors(e.errors), indent=2, ensure_ascii=False) + "\n", args.output,
+            doc = (sarif_errors if args.format == "sarif" else errors_document)(e.errors)
+            write_output(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", args.output,
                          [p for p in args.plans if p != "-"])
         return 2
     except _Rendered as e:

@@ -141,6 +141,7 @@ class LiveHandler(BaseHTTPRequestHandler):
         return self.client_address[0] == "127.0.0.1" and host in (f"127.0.0.1:{port}", f"localhost:{port}")
 
     def _send(self, code: int, body: bytes, kind: str, extra: dict | None = None) -> None:
+        """One answer; a browser that closed the connection mid-answer (a reload, a closed tab) is no error."""
         try:
             self.send_response(code)
             for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",

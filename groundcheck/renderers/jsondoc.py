@@ -11,7 +11,7 @@ from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean
 
-__all__ = ["result_document", "render_json", "clean", "SCHEMA_VERSION"]
+__all__ = ["result_document", "render_json", "errors_document", "clean", "SCHEMA_VERSION"]
 
 #: bumped when a key is renamed or removed (adding keys does not bump it)
 SCHEMA_VERSION = 2
@@ -72,3 +72,11 @@ def _outlets(o) -> dict:
 
 def render_json(result: Result) -> str:
     return json.dumps(result_document(result), indent=2, ensure_ascii=False) + "\n"
+
+
+def errors_document(errors) -> dict:
+    """The JSON document of a plan that could not be read: the caution and each plan error at its place
+    (docs/schema/groundcheck-errors.schema.json)."""
+    return clean({"groundcheck": {"schema": SCHEMA_VERSION}, "caution": CAUTION,
+                  "errors": [{"file": e.location.file, "line": e.location.line, "column": e.location.column,
+                              "message": e.message, "hint": e.hint} for e in errors]})

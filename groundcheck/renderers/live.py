@@ -13,6 +13,7 @@ import re
 from ..core.errors import html_text as escape
 
 from ..advice.compare import compare
+from ..core.plain import readable
 from ..core.caution import CAUTION
 from ..core.errors import PlanError
 from ..core.units import dbv
@@ -90,10 +91,9 @@ def _changes(before: Result | None, after: Result, e=escape) -> str:
     out += [f'<li class="introduced">new {e(f["code"])} ({e(f["severity"])}) {e(f["message"])}</li>' for f in new]
     out.append("</ul>")
     for ch, h in d["hum"].items():
-        change = "–" if h["change_db"] is None else f"{h['change_db']:+.1f} dB"
-        b = "none" if h["before_dbv"] is None else f"{h['before_dbv']:.1f}"
-        a = "none" if h["after_dbv"] is None else f"{h['after_dbv']:.1f}"
-        out.append(f'<p class="humchange">hum, {e(ch)}: {b} → {a} dBV (<b>{change}</b>)</p>')
+        b, a = (("no hum" if v is None else f"{readable(v, '.1f')} dBV") for v in (h["before_dbv"], h["after_dbv"]))
+        change = "" if h["change_db"] is None else f" (<b>{readable(h['change_db'], '+.1f')} dB</b>)"
+        out.append(f'<p class="humchange">hum, {e(ch)}: {b} → {a}{change}</p>')
     return "".join(out)
 
 

@@ -12,8 +12,8 @@ from urllib.parse import quote
 
 from ..core.version import __version__
 from ..rules.results import Result
-from ..rules.catalogue import RULES
-from ..core.caution import CAUTION
+from ..rules.catalogue import RULES, protective_earth_rule
+from ..core.caution import CAUTION, MAINS_WORK
 from ..core.plain import clean
 
 __all__ = ["sarif_document", "render_sarif", "sarif_errors", "SARIF_SCHEMA", "PLAN_ERROR_RULE"]
@@ -37,7 +37,7 @@ def _rules() -> list[dict]:
     return [{"id": r.code, "name": r.name,
               "shortDescription": {"text": r.checks.split(".")[0] + "."},
               "fullDescription": {"text": r.checks},
-              "help": {"text": f"{r.why} Fix: {r.fix} References: {r.references}."},
+              "help": {"text": f"{r.why} Fix: {r.fix}{_mains(r.code)} References: {r.references}."},
               "defaultConfiguration": {"level": LEVEL[r.severity]},
               "properties": {"severity": r.severity}} for r in RULES.values()]
 
@@ -61,10 +61,16 @@ def sarif_errors(errors) -> dict:
                             "properties": {"caution": CAUTION}, "results": results}]})
 
 
+def _mains(code: str) -> str:
+    """A protective-earth rule's words of caution, in its help and in each of its results' messages
+    (code-review screens show those, not the run's properties)."""
+    return f" {MAINS_WORK} {CAUTION}" if protective_earth_rule(code) else ""
+
+
 def _message(f) -> str:
     """A result's text; a danger accepted in the plan says that it still counts as a danger (a
     review screen may hide a suppressed result's level, never its words)."""
-    text = f"{f.message}. Fix: {f.fix}" if f.fix else f.message
+    text = (f"{f.message}. Fix: {f.fix}" if f.fix else f.message) + _mains(f.code)
     if f.accepted is not None and f.severity == "danger":
         text += (f" (a danger accepted in the plan: {f.accepted}; it still counts as a danger: "
                  "exit status 1 unless --fail-on never)")

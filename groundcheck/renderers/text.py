@@ -16,6 +16,7 @@ from rich.text import Text
 
 from ..core.caution import CAUTION
 from ..core.errors import shown
+from ..core.plain import readable
 from ..core.units import db_of_ratio, dbv, format_si
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
@@ -44,7 +45,7 @@ TABLE_OUTLETS = 50
 def _fmt(x, unit="", digits=3):
     if x is None or (isinstance(x, float) and not math.isfinite(x)):
         return "–"
-    return f"{x:.{digits}g}{unit}"
+    return f"{readable(x, f'.{digits}g')}{unit}"
 
 
 def print_report(result: Result, console: Console, *, caution: bool = True) -> None:
@@ -377,11 +378,14 @@ def figure_words(figures: dict) -> str:
             if key.endswith(suffix):
                 name, unit = key[: -len(suffix)], symbol
                 break
+        if value is None or (isinstance(value, float) and not math.isfinite(value)):
+            out.append(f"{name.replace('_', ' ')} not computed")
+            continue
         if isinstance(value, bool):
-            shown = "yes" if value else "no"
+            words = "yes" if value else "no"
         elif isinstance(value, float):
-            shown = f"{value:.4g}"
+            words = readable(value, ".4g")
         else:
-            shown = str(value)
-        out.append(f"{name.replace('_', ' ')} {shown}{' ' + unit if unit else ''}")
+            words = str(value)
+        out.append(f"{name.replace('_', ' ')} {words}{' ' + unit if unit else ''}")
     return ", ".join(out)

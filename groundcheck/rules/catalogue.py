@@ -11,12 +11,26 @@ from dataclasses import dataclass, field
 
 from ..core.errors import Location
 from .catalogue_pe import PROTECTIVE_ENTRIES
-from .rule_families import HUM, MODEL, TOPOLOGY, Family
+from .rule_families import HUM, MODEL, PROTECTIVE_EARTH, TOPOLOGY, Family
 
-__all__ = ["Finding", "Rule", "RULES", "SEVERITIES", "severity_rank", "IDENTITIES"]
+__all__ = ["Finding", "Rule", "RULES", "SEVERITIES", "severity_rank", "IDENTITIES", "protective_earth_rule"]
 
 #: severities from the most to the least serious
 SEVERITIES = ("danger", "fault", "warning", "note")
+
+
+def protective_earth_rule(code: str) -> bool:
+    """Whether rule ``code`` judges the protective earth (the GC2 family), whose fixes are mains wiring.
+
+    Parameters:
+        code: a rule code such as ``GC206``.
+    Returns:
+        True for a protective-earth rule.
+    References:
+        none (bookkeeping: the family each catalogue entry declares).
+    """
+    rule = RULES.get(code)
+    return rule is not None and rule.family == PROTECTIVE_EARTH
 
 
 def severity_rank(sev: str) -> int:

@@ -60,8 +60,12 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
         figures = {"transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"), "stage_gain_db": row.stage_gain}
         severity, heard = "fault", ""
         level = _source_level(s, row, channels.get(row.stage))
+        if level is None and not s.options.hum:
+            heard = ("; not weighed against the hum budget (the hum figures were not computed: --no-hum), "
+                     "so it stays a fault; without --no-hum the budget says whether it is heard")
         if level is not None:
-            figures["level_dbv"] = round(dbv(level), 1) if level > 0 else None
+            if level > 0:
+                figures["level_dbv"] = round(dbv(level), 1)
             if level <= 0 or dbv(level) < s.options.contributor_level:
                 severity = "note"
                 heard = (f"; the hum budget puts it at {dbv(level):.1f} dBV at the {channels[row.stage]} output, "
