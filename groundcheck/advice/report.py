@@ -34,7 +34,7 @@ def _hum_change_words(ch: str, before: float, after: float) -> str:
 
 
 def _hum_words(ch: str, h) -> str:
-    level = f"{dbv(h.total_v):.1f} dBV" if h.total_v > 0 else "none computed (below 1 pV)"
+    level = f"{dbv(h.total_v):.1f} dBV" if h.total_v > 0 else "no hum (below 1 pV)"
     verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
     return f"{ch} {level} ({verdict})"
 
