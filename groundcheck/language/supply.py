@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from ..core.errors import PlanError
 from ..model.kinds import CURRENT_ROLES
-from ..model.records import SYSTEMS, Current, Heater, Mains, Rectifier, Supply
+from ..model.records import CABLE_OPERATING_TEMPERATURE, SYSTEMS, Current, Heater, Mains, Rectifier, Supply
 from .phrases import PLAUSIBLE, Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
 
@@ -67,6 +67,7 @@ def _supply_statement(stmt: Statement, attribute) -> dict:
 def mains(stmt: Statement):
     kw = _supply_statement(stmt, lambda r, ph, kw: _mains_attribute(stmt, r, ph, kw))
     _check_earth_electrode(stmt, kw)
+    _check_cable_temperature(stmt, kw)
     return Mains(location=stmt.loc, **kw), {}
 
 
@@ -85,6 +86,17 @@ def _check_earth_electrode(stmt: Statement, kw: dict) -> None:
                         f"({loop:g} Ω) that includes it", loc,
                         "in a TT supply the external loop runs through the installation's electrode: state a loop "
                         "at least as large as the electrode, or state the electrode alone")
+
+
+def _check_cable_temperature(stmt: Statement, kw: dict) -> None:
+    """A stated cable temperature may only make the fault loop stricter: at or above PVC's operating
+    temperature, at which the loop is verified."""
+    t = kw.get("cable_temperature")
+    if t is not None and t < CABLE_OPERATING_TEMPERATURE:
+        raise PlanError(f"a cable temperature of {t:g} °C is below the {CABLE_OPERATING_TEMPERATURE:g} °C at which "
+                        "the fault loop is verified", _phrase_loc(stmt, "cable-temperature"),
+                        "the loop is checked with the cables at their operating temperature (PVC 70 °C); state a "
+                        "higher one for cables that run hotter (XLPE 90 °C), never a lower one")
 
 
 def _phrase_loc(stmt: Statement, word: str):

@@ -27,9 +27,9 @@ XY = tuple[float, float]
 #: earthing systems, IEC 60364-1 terms
 SYSTEMS = ("TN-S", "TN-C-S", "TT")
 
-#: the mains cord when neither the plan nor the device says: 2 m of 0.75 mm² (common practice for
-#: equipment up to 6 A, IEC 60335-1's smallest cord for that current — see tests/reference/protection.md)
+#: the mains cord when neither plan nor device says: 2 m of 0.75 mm² (common practice up to 6 A, IEC 60335-1)
 DEFAULT_CORD = (2.0, 0.75e-6)
+CABLE_OPERATING_TEMPERATURE = 70.0  # °C, PVC's: the fault loop is verified at it (IEC 60364-5-52 T. 52.1)
 
 
 @dataclass(frozen=True)

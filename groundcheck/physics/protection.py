@@ -16,7 +16,7 @@ __all__ = ["STANDARD_PE_LIMIT", "FUSE_PREARC_LIMITS", "BREAKER_INSTANT", "RCD_TI
            "cable_resistance",
            "DEFAULT_CIRCUIT"]
 
-from ..model.records import SYSTEMS
+from ..model.records import CABLE_OPERATING_TEMPERATURE, SYSTEMS
 
 #: protective bonding limit, Ω, supply cord excluded (IEC 62368-1 5.6.6.2, from memory; IEC 61010-1 6.5.2.4;
 #: IEC 60335-1 27.5)
@@ -38,9 +38,8 @@ TT_SOURCE_LOOP = 1.0
 DEFAULT_LINE_NEUTRAL_LOOP = 0.35
 
 #: the operating temperature of the installation's cables (the final circuit and the mains cord) at which the
-#: fault loop is verified, °C: 70 °C, the maximum operating temperature of PVC-insulated cable (IEC 60364-5-52
-#: Table 52.1), common practice for loop verification (from memory); the equipment's own wiring stays at ambient
-CABLE_OPERATING_TEMPERATURE = 70.0
+#: fault loop is verified: 70 °C, PVC's maximum (IEC 60364-5-52 Table 52.1), common practice for loop
+#: verification (from memory); the equipment's own wiring stays at ambient.  Defined with the plan's records.
 
 #: the final circuit feeding the socket when the plan does not describe it: 20 m of 1.5 mm² line and
 #: protective conductor — common practice for a socket-outlet circuit (from memory)

@@ -88,6 +88,8 @@ class Supply:
     earth_fault_max: float = 0.0     # A, the largest line-to-protective fault (at the inlet, cables cold)
     short_circuit: float = 0.0       # A, the largest line-to-neutral fault inside the equipment (cables cold)
     short_circuit_stated: bool = False
+    cold_outside: float = 0.0        # Ω, cables cold: external loop, fuse, circuit line and cord line
+    cold_return: float = 0.0         # Ω, cables cold: cord and circuit protective conductors
 
     @property
     def prospective(self) -> float:
@@ -224,15 +226,15 @@ def supply_figures(plan: Plan) -> Supply:
         fuse_r = m.fuse_resistance if m.fuse_resistance is not None else fuse_cold_resistance(m.fuse_kind, m.fuse)
     cap = breaking_capacity(m.fuse_kind, m.fuse, m.breaking, m.breaking_current) if m.fuse is not None else None
     c_line, c_cpc, c_cord = _cables(m, cold_t)
-    earth_fault = m.voltage / (ze + fuse_r + c_line + c_cord + c_cord + c_cpc)
-    if m.short_circuit is not None:
-        short = m.short_circuit
-    else:
-        zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
-        short = m.voltage / (zln + fuse_r + 2 * c_line + 2 * c_cord)
+    cold_outside, cold_return = ze + fuse_r + c_line + c_cord, c_cord + c_cpc
+    zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
+    short = m.voltage / (zln + fuse_r + 2 * c_line + 2 * c_cord)
+    if m.short_circuit is not None:              # a stated current may only make the check stricter
+        short = max(short, m.short_circuit)
     return Supply(m.system, ze, m.loop_impedance is not None, line, cpc, cord, cord, fuse_r, electrode,
-                  max_disconnection_time(m.voltage, m.system), cap, hot_t, cold_t, earth_fault, short,
-                  m.short_circuit is not None)
+                  max_disconnection_time(m.voltage, m.system), cap, hot_t, cold_t,
+                  m.voltage / (cold_outside + cold_return), short, m.short_circuit is not None,
+                  cold_outside, cold_return)
 
 
 def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | None]:
@@ -340,22 +342,18 @@ def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
     i_f = m.voltage / (outside + r + sup.cord_pe + sup.circuit_cpc)
     touch = i_f * (r + sup.cord_pe + sup.circuit_cpc + sup.electrode)
     cl, device = _first_to_open(plan, i_f)
-    line_c, cpc_c, cord_c = _cables(m, sup.cold_temperature)
-    i_cold = m.voltage / (sup.ze + sup.fuse_resistance + line_c + cord_c + r + cord_c + cpc_c)
-    cl_cold, _ = _first_to_open(plan, i_cold)
+    cl_cold, _ = _first_to_open(plan, m.voltage / (sup.cold_outside + r + sup.cold_return))
     no_device = m.fuse is None and m.rcd is None
     t = _stricter(m.clear_time, cl.time if cl else None, no_device)
-    i2t = None
-    if cl is not None:
-        i2t = max(cl.i2t, cl_cold.i2t if cl_cold is not None else 0.0)
-    if t is not None:
-        i2t = max(i2t or 0.0, i_f * i_f * t) if (cl is None or t > cl.time) else i2t
+    i2t = max(cl.i2t, cl_cold.i2t if cl_cold is not None else 0.0) if cl is not None else None
+    longer = t is not None and (cl is None or t > cl.time)     # a stated clearing time beyond the table's
+    if longer:
+        i2t = max(i2t or 0.0, i_f * i_f * t)
     i2t = _stricter(m.fuse_i2t, i2t, no_device)
     stated = []
     if m.clear_time is not None:
         stated.append("clear_time")
-        if cl is None or m.clear_time > cl.time:
-            device = "stated" if t is not None else device
+        device = "stated" if longer else device
     if m.fuse_i2t is not None:
         stated.append("i2t")
     if m.loop_impedance is not None:
