@@ -106,3 +106,14 @@ def test_the_230_v_compressor_plan_behind_the_step_down_is_a_danger(tmp_path):
     (f,) = [f for f in analyze(load(path)).findings if f.code == "GC217"]
     assert f.severity == "danger" and f.figures == {"rated_v": 230.0, "supplied_v": 120.0}
     assert "plug comp into" in f.fix and "far_wall" in f.fix
+
+
+@pytest.mark.parametrize("name", PLANS)
+def test_never_offer_a_balanced_link_for_the_synth_whose_sockets_are_as_bought(name):
+    """Verdict: never offer a balanced link for a device that has only an unbalanced output (the
+    synth, placed 'simple': bought, and no balanced link of the plan reaches it)."""
+    path = FIELD / name
+    _, evs = suggest(load(path), path.read_text(), Options(), path.parent, path)
+    balance = [e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"]
+    assert balance, "the candidate is considered (and refused), not silently missing"
+    assert all(e.rejected and "bought equipment" in e.rejected for e in balance)

@@ -77,7 +77,22 @@ def refused_balanced(ctx: ChangeContext, c) -> str:
         if pt is not None and pt.kind == "sleeve":
             return (f"{end} is an unbalanced socket's sleeve: the equipment has no balanced "
                     "socket there")
+    for dev in _bought_without_balanced_socket(ctx, c):
+        return (f"{dev} is bought equipment ('simple') and no balanced link of this plan reaches it: "
+                "nothing says it has a balanced socket")
     return ""
+
+
+def _bought_without_balanced_socket(ctx: ChangeContext, c) -> list[str]:
+    """The devices at ``c``'s ends placed as ``simple`` (bought, sockets as made) that no balanced
+    interconnect of the plan reaches: their sockets are taken to be unbalanced."""
+    simple = {d.name for d in ctx.plan.devices if d.source == "simple"}
+    def device(end: str) -> str | None:
+        pt = ctx.points.get(end)
+        return pt.group.split(".", 1)[0] if pt is not None and pt.group else None
+    balanced = {device(e) for x in ctx.plan.conductors if joins_devices(x) and x.balanced
+                for e in (x.a, x.b)}
+    return [d for d in (device(c.a), device(c.b)) if d in simple and d not in balanced]
 
 
 def wired_graph(plan: Plan) -> nx.Graph:
