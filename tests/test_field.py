@@ -8,6 +8,7 @@ element), and the fixes that must never be offered (in the suggestions, the comb
 
 from __future__ import annotations
 
+import math
 import functools
 import re
 from pathlib import Path
@@ -18,7 +19,7 @@ from groundcheck import load
 from groundcheck.analysis import Options
 from groundcheck.advice.fixes import advised_fixes
 from groundcheck.advice.repair import HUM_FLOOR_DBV, greedy, suggest
-from groundcheck.rules.catalogue import severity_rank
+from groundcheck.rules.catalogue import RULES, severity_rank
 
 FIELD = Path(__file__).resolve().parent / "field"
 
@@ -453,6 +454,8 @@ def test_every_fix_line_is_an_accepted_change_or_says_what_was_rejected(rel):
             assert not ev.rejected and identity(f) in ev.cleared_keys, (f.code, fix)
         elif fix.startswith(NONE_ACCEPTED):
             assert all(e.rejected for e in evs if e.candidate.title in fix), (f.code, fix)
+        elif not RULES[f.code].actions:  # a note on the model's reach keeps its own line
+            assert fix == f.fix
         else:  # the rule's own line: only when no change cleared the finding
             assert fix == f.fix and not [
                 e for e in evs if not e.rejected and identity(f) in e.cleared_keys
@@ -557,7 +560,7 @@ def test_a_rules_structured_actions_become_candidates_whatever_its_code():
 
     plan, before, *_ = _advised(DM)
     f = Finding(
-        "GC305",
+        "GC111",
         "note",
         "test",
         before.findings[0].location,
@@ -570,7 +573,19 @@ def test_a_rules_structured_actions_become_candidates_whatever_its_code():
     made = [
         c
         for c in candidates(plan, result, (FIELD / DM).read_text(encoding="utf-8"))
-        if c.reason == "GC305"
+        if c.reason == "GC111"
     ]
     assert [(c.action, c.element) for c in made] == [("move", "right_spk")]
     assert "right.spk_neg to right.res_0v" in made[0].title
+
+
+def test_headphone_crosstalk_names_the_leads_shared_common_with_its_figure_by_hand():
+    # the two channels' 30 mA signal currents share the lead's one common (hp_common: 1.5 m of
+    # 0.1 mm2); each channel's headphone stage reads the other's drop across it.  By hand: copper
+    # 1/58 ohm mm2/m at 20 C (IEC 60028), R = 0.017241 * 1.5 / 0.1 = 0.2586 ohm, 30 mA * R =
+    # 7.76 mV against the 1 V rated output: 20 log10(0.00776) = -42.2 dB
+    _, before, *_ = _advised(HP)
+    xt = [f for f in before.findings if f.code == "GC304"]
+    hand = 20 * math.log10(0.030 * 0.017241 * 1.5 / 0.1)
+    assert len(xt) == 2 and all(abs(f.figures["crosstalk_db"] - hand) < 0.05 for f in xt)
+    assert all("shares hp_common" in f.fix for f in xt)

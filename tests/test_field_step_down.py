@@ -117,3 +117,30 @@ def test_never_offer_a_balanced_link_for_the_synth_whose_sockets_are_as_bought(n
     balance = [e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"]
     assert balance, "the candidate is considered (and refused), not silently missing"
     assert all(e.rejected and "bought equipment" in e.rejected for e in balance)
+
+
+def test_a_synth_stated_with_balanced_sockets_may_be_offered_a_balanced_link(tmp_path):
+    """The same plan with the synth's sockets stated (a copy in tmp_path: the field plan is never
+    edited): the bought-equipment refusal no longer applies."""
+    shutil.copytree(FIELD, tmp_path / "room")
+    path = tmp_path / "room" / "home-studio-stepdown-as-strip.gplan"
+    text = path.read_text()
+    old = "device synth: simple, class II, plugged desk_wall"
+    assert old in text
+    path.write_text(text.replace(old, old + ", sockets balanced"))
+    _, evs = suggest(load(path), path.read_text(), Options(), path.parent, path)
+    balance = [e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"]
+    assert balance and not any(e.rejected and "bought equipment" in e.rejected for e in balance)
+
+
+@pytest.mark.parametrize("words, message", [
+    ('device amp: "amp.gplan", sockets balanced', "'sockets' is an attribute of a simple device"),
+    ("device amp: simple, sockets differential", "balanced or unbalanced"),
+])
+def test_sockets_is_a_simple_devices_word(tmp_path, words, message):
+    path = tmp_path / "room.gplan"
+    path.write_text('plan "room"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
+                    + words + "\n")
+    with pytest.raises(PlanErrors) as e:
+        load(path)
+    assert message in str(e.value) and ":4:" in str(e.value)

@@ -18,6 +18,7 @@ import dataclasses
 
 import networkx as nx
 
+from ..model.installation import device_of
 from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
 from ..model.records import PE_POINT, Plan
 from .changes import Candidate, ChangeContext, delete_change
@@ -78,21 +79,24 @@ def refused_balanced(ctx: ChangeContext, c) -> str:
             return (f"{end} is an unbalanced socket's sleeve: the equipment has no balanced "
                     "socket there")
     for dev in _bought_without_balanced_socket(ctx, c):
-        return (f"{dev} is bought equipment ('simple') and no balanced link of this plan reaches it: "
-                "nothing says it has a balanced socket")
+        return (f"{dev} is bought equipment ('simple') and its statement does not say 'sockets "
+                "balanced', nor does a balanced link of this plan reach it: its sockets are taken as "
+                "made, unbalanced")
     return ""
 
 
 def _bought_without_balanced_socket(ctx: ChangeContext, c) -> list[str]:
-    """The devices at ``c``'s ends placed as ``simple`` (bought, sockets as made) that no balanced
-    interconnect of the plan reaches: their sockets are taken to be unbalanced."""
-    simple = {d.name for d in ctx.plan.devices if d.source == "simple"}
-    def device(end: str) -> str | None:
-        pt = ctx.points.get(end)
-        return pt.group.split(".", 1)[0] if pt is not None and pt.group else None
-    balanced = {device(e) for x in ctx.plan.conductors if joins_devices(x) and x.balanced
-                for e in (x.a, x.b)}
-    return [d for d in (device(c.a), device(c.b)) if d in simple and d not in balanced]
+    """The devices at ``c``'s ends placed as ``simple`` (bought: their sockets are as made) that are
+    not known to have a balanced socket: not stated ``sockets balanced`` and reached by no balanced
+    interconnect of the plan (``sockets unbalanced`` settles it either way)."""
+    devices = {d.name: d for d in ctx.plan.devices}
+    simple = {d.name: d.sockets for d in ctx.plan.devices if d.source == "simple"}
+    # an end is a point or, for a shield landed on the chassis, the device's metal part: its
+    # device is its name's prefix
+    linked = {device_of(e, devices) for x in ctx.plan.conductors if joins_devices(x) and x.balanced
+              for e in (x.a, x.b)}
+    return [d for d in (device_of(c.a, devices), device_of(c.b, devices)) if d in simple
+            and (simple[d] == "unbalanced" or (simple[d] is None and d not in linked))]
 
 
 def wired_graph(plan: Plan) -> nx.Graph:

@@ -251,10 +251,16 @@ def device(stmt: Statement):
             kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
         elif word == "draws":
             kw["draws"] = r.quantity("apparent power", "apparent power drawn")
+        elif word == "sockets":
+            kw["sockets"] = r.word("balanced or unbalanced", ("balanced", "unbalanced"))
         else:
             raise unknown(stmt, it, ("at", "mirror", "plugged", "cord", "signal-ground", "leakage", "y-capacitor",
-                                     "class", "draws"))
+                                     "class", "draws", "sockets"))
         r.finish()
+    if "sockets" in kw and kw["source"] != "simple":
+        raise PlanError("'sockets' is an attribute of a simple device", stmt.loc,
+                        "a device with a plan of its own shows its sockets in that plan (an unbalanced "
+                        "socket's return is a 'sleeve' point)")
     if kw.get("equipment_class") == "II" and kw["source"] != "simple":
         raise PlanError("class II is an attribute of a simple device", stmt.loc,
                         "a device with a plan of its own states 'class II' in that plan's mains statement")

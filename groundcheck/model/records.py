@@ -20,7 +20,6 @@ __all__ = ["Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Cu
 #: the implicit point of the mains inlet's protective-earth terminal
 PE_POINT = "mains.pe"
 
-
 XY = tuple[float, float]
 
 
@@ -310,6 +309,7 @@ class Device:
     y_capacitance: float | None = None   # stated line-to-chassis capacitance of its mains filter, F
     equipment_class: str = "I"           # simple devices: I (earthed chassis) or II (no protective conductor)
     draws: float | None = None           # stated apparent power it draws from its supply, VA
+    sockets: str | None = None           # simple devices: "balanced" or "unbalanced" as stated, else None
 
 
 @dataclass(frozen=True)

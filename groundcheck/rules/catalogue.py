@@ -243,7 +243,10 @@ RULES: dict[str, Rule] = dict([
        "Close to a transformer the point-dipole law is an extrapolation: with a size the ring model is used, "
        "without one the figure may be off by a large factor either way.",
        "State the source's size ('size 60 mm') and height, or route the loop's conductors away from it.",
-       "J. D. Jackson, Classical Electrodynamics, 3rd ed., §5.4 and §5.6"),
+       "J. D. Jackson, Classical Electrodynamics, 3rd ed., §5.4 and §5.6",
+       # a note on the model's reach, not on the plan: a change that opens the loop makes the note go
+       # away, but is no answer to it (the loop's own findings carry that advice)
+       actions=()),
     _r("GC306", "ground-feedback", HUM, "fault",
        "A channel's own output or load current (a 'signal' current of that channel) flowing in "
        "the ground that one of its stages reads, other than the stages at the current's own ends. "

@@ -6,7 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
-from ..model.kinds import LEAKAGE, PROTECTIVE, carries_load, joins_devices
+from ..model.kinds import LEAKAGE, PROTECTIVE, SIGNAL, carries_load, joins_devices
 from ..core.units import dbv
 from .catalogue import Finding
 from .context import AuditContext
@@ -148,8 +148,9 @@ def rule_hum(s: Solved) -> list[Finding]:
     loop_driven = ({c.name for c in plan.currents if c.role == LEAKAGE}
                    | {f"{c.name}.induced" for c in plan.conductors if carries_load(c)})
     stages_by_ch: dict[str, list] = {}
-    for s in plan.stages:
-        stages_by_ch.setdefault(s.channel, []).append(s)
+    for st in plan.stages:
+        stages_by_ch.setdefault(st.channel, []).append(st)
+    solved = s
     for ch, h in hum.channels.items():
         loc = stages_by_ch[ch][0].location
         for c in h.contributors:
@@ -178,8 +179,28 @@ def rule_hum(s: Solved) -> list[Finding]:
             out.append(Finding("GC304", "warning",
                                f"crosstalk from {row['from']} into {row['to']} is {row['db']:.1f} dB at 1 kHz",
                                loc, (str(row["from"]), row["to"]), {"crosstalk_db": row["db"]},
-                               "give each channel its own return to the star; join the channels at one point only"))
+                               _crosstalk_fix(solved, str(row["from"]), row["to"])))
     return out
+
+
+def _crosstalk_fix(s: Solved, talker: str, listener: str) -> str:
+    """What to do about crosstalk from channel ``talker`` into ``listener`` (GC304): name the
+    conductors that the talker's signal current and the listener's stages share (least-resistance
+    paths), as the place to act."""
+    from ..physics.coupling import pair_path
+
+    def owners(a: str, b: str) -> list[str]:
+        return [s.circuit.branches[i].owner for i, _ in pair_path(s.circuit, a, b)]
+    carried = {o for cur in s.plan.currents if cur.channel == talker and cur.role == SIGNAL
+               for o in owners(cur.a, cur.b)}
+    shared = sorted({o for st in s.plan.stages if st.channel == listener
+                     for o in owners(st.a, st.b) if o in carried and o})
+    if not shared:
+        return "give each channel its own return to the star; join the channels at one point only"
+    return (f"the {talker} channel's return shares {', '.join(shared)} with the {listener} channel's "
+            "reading: give each channel its own return up to the one point where they must meet, and "
+            "keep what stays shared short and thick (a common shared by design, as a headphone lead's, "
+            "gives crosstalk of about its resistance over the load's)")
 
 
 def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
@@ -246,7 +267,8 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
             if src.size is not None:
                 what = (f"inside its size ({src.size * 1e3:g} mm): its pickup is taken from the ring model, "
                         "exact at any distance for a round source")
-                fix = f"route the conductors of loop {row['loop']} away from {name}, or open the loop"
+                fix = (f"nothing to correct in the figure; to lower loop {row['loop']}'s pickup, route its "
+                       f"conductors away from {name} or open it (the loop's own findings say where)")
             else:
                 what = (f"inside the {src.r_ref * 1e3:g} mm at which its strength is stated: the point-dipole "
                         "law is an extrapolation there")
