@@ -14,7 +14,7 @@ from pathlib import Path
 
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
-from ..core.errors import GroundcheckError, PlanErrors, shown
+from ..core.errors import GroundcheckError, Location, PlanError, PlanErrors, shown
 from ..core.runtime import die_with_parent, files_read, note_read
 from ..rules.catalogue import RULES, protective_earth_rule
 from ..rules.selection import UnknownRule, rule_codes
@@ -166,18 +166,14 @@ def _export_command(sub) -> None:
     x.add_argument("-o", "--output", metavar="FILE", help="write the netlist to FILE instead of standard output")
 
 
-class _Rendered(GroundcheckError):
-    """Plan errors already rendered to text (from a worker process)."""
-
-
 def _check_one(path: str, options, budget: float = 0.0):
     """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors), and every
     file the worker read (the parent protects them from its output too)."""
     from ..analysis import analyze
     try:
         return True, advised(analyze(load_plan(path), options), path, budget), files_read()
-    except PlanErrors as e:
-        return False, e.render(), files_read()
+    except PlanErrors as e:               # plain data: an exception's own pickling loses its fields
+        return False, [(x.message, tuple(x.location), x.hint, x.source_line) for x in e.errors], files_read()
 
 
 def _analyze_with_progress(analyze, plan, options, label: str):
@@ -207,33 +203,75 @@ def _check_side_by_side(args) -> list:
         return [_check_one(p, o, args.advice_budget) for p, o in zip(args.plans, options)]
 
 
-def cmd_check(args) -> int:
-    args.plans = plan_paths(args.plans)
+def _check_each(args) -> tuple[list, list]:
+    """Every plan checked, one that cannot be read never stopping the others: (results, [(plan, its
+    PlanErrors)]).  One plan alone raises its errors, as before."""
     from ..analysis import analyze
-    results = []
+    results, failed = [], []
     if args.jobs > 1 and len(args.plans) > 1:
-        for ok, value, read in _check_side_by_side(args):
+        for path, (ok, value, read) in zip(args.plans, _check_side_by_side(args)):
             for f in read:                 # a worker's includes and device plans: never an output
                 note_read(f)
-            if not ok:
-                raise _Rendered(value)
-            results.append(value)
-    else:
-        for path in args.plans:
+            if ok:
+                results.append(value)
+            else:
+                failed.append((path, PlanErrors([PlanError(m, Location(*loc), h, line) for m, loc, h, line in value])))
+        return results, failed
+    for path in args.plans:
+        try:
             plan = load_plan(path, args.jobs)
-            result = _analyze_with_progress(analyze, plan, options_of(args), path)
-            results.append(advised(result, path, args.advice_budget))
+        except PlanErrors as e:
+            if len(args.plans) == 1:
+                raise
+            failed.append((path, e))
+            continue
+        result = _analyze_with_progress(analyze, plan, options_of(args), path)
+        results.append(advised(result, path, args.advice_budget))
+    return results, failed
+
+
+def cmd_check(args) -> int:
+    args.plans = plan_paths(args.plans)
+    results, failed = _check_each(args)
+    for _path, e in failed:
+        sys.stderr.write(e.render() + "\n")
+    if failed:
+        sys.stderr.write(f"groundcheck: {len(failed)} of {len(args.plans)} plans could not be read: "
+                         f"{', '.join(shown(p) for p, _ in failed)}; the others were checked\n")
     failing = any(r.fails(fail_on(args)) for r in results)
+    status = 2 if failed else 1 if failing else 0
     if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console
         from ..renderers.text import print_report
         console = Console(highlight=False)
         for i, r in enumerate(results):
             print_report(r, console, caution=i == 0)
-        return 1 if failing else 0
+        return status
     from ..renderers.formats import render_results
-    write_output(render_results(results, args.format), args.output, args.plans)
-    return 1 if failing else 0
+    if failed and args.format in ("json", "sarif"):
+        text = _with_errors(results, [e for _, e in failed], args.format)
+    else:
+        text = render_results(results, args.format) if results else ""
+    write_output(text, args.output, args.plans)
+    return status
+
+
+def _with_errors(results: list, errors: list, fmt: str) -> str:
+    """JSON or SARIF of several plans, some of which could not be read: JSON ``{"plans": [...],
+    "plan_errors": [...]}`` (each an error document), SARIF one run with a plan-error result per error."""
+    import json
+    errs = [err for e in errors for err in e.errors]
+    if fmt == "json":
+        from ..renderers.jsondoc import errors_document, result_document
+        doc = {"plans": [result_document(r) for r in results],
+               "plan_errors": [errors_document(e.errors) for e in errors]}
+    else:
+        from ..renderers.sarif import sarif_document, sarif_errors
+        doc = sarif_document(results)
+        run = doc["runs"][0]
+        run["results"] += sarif_errors(errs)["runs"][0]["results"]
+        run["invocations"][0]["executionSuccessful"] = False
+    return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
 
 
 def cmd_explain(args) -> int:
@@ -359,9 +397,6 @@ def main(argv: list[str] | None = None) -> int:
             doc = (sarif_errors if args.format == "sarif" else errors_document)(e.errors)
             write_output(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", args.output,
                          [p for p in args.plans if p != "-"])
-        return 2
-    except _Rendered as e:
-        sys.stderr.write(str(e) + "\n")
         return 2
     except GroundcheckError as e:
         sys.stderr.write(f"groundcheck: error: {shown(e)}\n")
