@@ -25,7 +25,7 @@ from .physics.sweep import run_tasks
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext
 from .rules.electrical import Solved
-from .rules.registry import functions
+from .rules.registry import functions, hum_codes
 from .core.errors import Location, PlanError, PlanErrors
 from .rules.catalogue import RULES
 from .rules.results import Options, Result
@@ -132,6 +132,10 @@ def _finish(result: Result) -> Result:
         result.not_checked.append(NotChecked(
             tuple(c for c in RULES if c in unwanted and c in wanted),
             f"left out by {opts.leave_out_origin}"))
+    unheard = [c for c in hum_codes() if c in wanted and c not in unwanted]
+    if not opts.hum and result.plan.stages and unheard:
+        result.not_checked.append(NotChecked(
+            tuple(unheard), "judged from the hum figures, which --no-hum leaves out"))
     findings = [f for f in result.findings if f.code in wanted and f.code not in unwanted]
     result.findings = sorted(_accepted(findings, result, opts), key=lambda f: f.sort_key())
     result.notices += [n.sentence() for n in result.not_checked]
