@@ -255,18 +255,32 @@ def _without_fragments(paths: list[str]) -> list[str]:
     out: list[str] = []
     chosen = {Path(p).resolve() for p in paths if p != "-" and Path(p).resolve() not in included}
     for name in paths:
-        by = included.get(Path(name).resolve()) if name != "-" else None
-        if by is None:
+        by = _tops(Path(name).resolve(), included) if name != "-" else []
+        if not by:                     # included by nothing, or only round a cycle: its own check says
             out.append(name)
             continue
         sys.stderr.write(f"groundcheck: note: passed over {shown(name)}: it is included by "
                          f"{', '.join(shown(b) for b in by)} and checked as part of "
                          f"{'it' if len(by) == 1 else 'each'}\n")
-        for top in by:                             # includers that are themselves fragments are in
-            if top.resolve() not in chosen and top.resolve() not in included:   # included's keys
+        for top in by:
+            if top.resolve() not in chosen:
                 chosen.add(top.resolve())
                 out.append(_relative(top))
     return out
+
+
+def _tops(path: Path, included: dict) -> list[Path]:
+    """The plans at the top of the chains of includes that lead to ``path`` (none for a file that
+    nothing includes, or that only a cycle of includes reaches)."""
+    tops, todo, seen = [], [path], {path}
+    while todo:
+        for by in included.get(todo.pop(), ()):
+            key = by.resolve()
+            if key in seen:
+                continue
+            seen.add(key)
+            (todo if key in included else tops).append(key if key in included else by)
+    return tops
 
 
 def _relative(p: Path) -> str:
