@@ -39,3 +39,21 @@ def test_a_lift_error_lists_only_what_a_lift_takes():
     listed = _error(LIFT + "wire w: a to b, 10 mm, 1 mm2, zzz\n").split("expected one of: ")[1].split(", ")
     assert {"insulation", "AWG", "copper", "separate"} <= set(listed)
     assert not {"capacitance", "open", "cores", "terminated", "gain"} & set(listed)
+
+
+def test_a_device_channel_named_as_the_device_is_not_prefixed_twice(tmp_path):
+    from pathlib import Path
+    from groundcheck import load
+    studio = load(Path(__file__).parent / "field" / "home-studio-step-down" / "home-studio.gplan")
+    channels = {s.channel for s in studio.stages}
+    assert "comp" in channels and "comp.comp" not in channels
+    # the installation's links that say 'channel comp' and the device's own stage are one channel
+    assert {c.channel for c in studio.conductors if c.name in ("send", "ret")} == {"comp"}
+    # a channel of another name is still the device's own, prefixed once
+    (tmp_path / "box.gplan").write_text(
+        'plan "box"\nmetal deck: aluminium 2 mm, 100 x 100 mm\npoint a: pad, at 10,10 on deck\n'
+        'point b: pad, at 50,10 on deck\nwire w: a to b, 40 mm, 0.5 mm2\n'
+        'stage s1: a to b, gain 20 dB, channel box\nstage s2: a to b, gain 20 dB, channel side\n')
+    (tmp_path / "room.gplan").write_text('plan "room"\ndevice box: "box.gplan", at 0,0\n')
+    placed = load(tmp_path / "room.gplan")
+    assert sorted(s.channel for s in placed.stages) == ["box", "box.side"]
