@@ -57,3 +57,26 @@ def test_a_device_channel_named_as_the_device_is_not_prefixed_twice(tmp_path):
     (tmp_path / "room.gplan").write_text('plan "room"\ndevice box: "box.gplan", at 0,0\n')
     placed = load(tmp_path / "room.gplan")
     assert sorted(s.channel for s in placed.stages) == ["box", "box.side"]
+
+
+def test_a_point_outside_its_part_names_only_the_placement_that_is_outside():
+    text = """plan "outside"
+metal deck: aluminium 2 mm, 300 x 100 mm
+block ch {
+  point s: sleeve, at 20,20 on deck
+  point k: pad, at 60,20 on deck
+  wire g: s to k, 40 mm, 0.5 mm2
+}
+place ch as left at 0,0
+place ch as right at 250,0
+"""
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "p.gplan")
+    (only,) = e.value.errors                     # right.s at 270,20 lies within; right.k at 310,20 does not
+    assert only.one_line() == ("p.gplan:5:3: error: point 'right.k' at 310,20 mm lies outside 'deck' "
+                               "(in placement right) (positions are in the plan frame, in mm)")
+    # an error of the statement itself still names every placement
+    with pytest.raises(PlanErrors) as e:
+        load_text(text.replace("0.5 mm2", "0.5 mm2, zzz"), "p.gplan")
+    (wire,) = [x for x in e.value.errors if x.location.line == 6]
+    assert "(in placements left, right)" in wire.message

@@ -92,9 +92,10 @@ def _check_points(groups, metals, check, errors) -> None:
         if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
             m = metals[p.on]
             if p.pos is not None and not m.contains(p.pos):
-                errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside "
-                                        f"{m.name!r}",
-                                        p.location, "positions are in the plan frame, in mm"))
+                e = PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
+                              p.location, "positions are in the plan frame, in mm")
+                e.element = p.name                 # named with its own placement only
+                errors.append(e)
 
 
 def _conductors(groups, nodes, check) -> list[Conductor]:
