@@ -80,3 +80,40 @@ place ch as right at 250,0
         load_text(text.replace("0.5 mm2", "0.5 mm2, zzz"), "p.gplan")
     (wire,) = [x for x in e.value.errors if x.location.line == 6]
     assert "(in placements left, right)" in wire.message
+
+
+MEASURED = """plan "measured"
+metal deck: aluminium 2 mm, 300 x 100 mm
+point a: stud, at 10,10 on deck
+point b: pad, at 40,50 on deck
+"""
+
+
+def test_a_wire_without_a_length_is_measured_along_its_ends_and_route():
+    plan = load_text(MEASURED + "wire w1: a to b, 0.5 mm2\nwire w2: a to b, 0.5 mm2, via 40,10\n"
+                     "wire w3: a to b, 80 mm, 0.5 mm2\n", "p.gplan")
+    w1, w2, w3 = plan.conductors
+    # by hand: ends 30 mm and 40 mm apart in x and y, a 3-4-5 triangle: 50 mm straight, 30 + 40 mm via 40,10
+    assert w1.length == pytest.approx(0.050, rel=1e-12) and w1.length_computed
+    assert w2.length == pytest.approx(0.070, rel=1e-12) and w2.length_computed
+    assert w3.length == pytest.approx(0.080, rel=1e-12) and not w3.length_computed    # as stated
+
+
+def test_measured_lengths_are_said_and_a_stated_one_is_still_checked():
+    from groundcheck.analysis import Options, analyze
+    plan = load_text(MEASURED + "wire w1: a to b, 0.5 mm2\nwire w4: a to b, 20 mm, 0.5 mm2\n", "p.gplan")
+    r = analyze(plan, Options(hum=False))
+    (said,) = [n for n in r.notices if "measured" in n]
+    assert "wire w1 50 mm" in said and "w4" not in said
+    short = [f for f in r.findings if f.code == "GC112"]
+    assert [f.elements for f in short] == [("w4",)]                  # 20 mm stated against 50 mm between ends
+
+
+def test_a_length_that_cannot_be_measured_is_asked_for():
+    line = _error(MEASURED + "point c: pad\nwire w: a to c, 0.5 mm2\n")
+    assert line.startswith("p.gplan:6:1: error: wire w needs a length: c has no position")
+    line = _error(MEASURED + "wire w: a to deck, 0.5 mm2\n")
+    assert "deck has no position" in line
+    # a link between devices runs as it likes: never measured
+    line = _error(MEASURED + "interconnect i: a to b, 0.1 mm2\n")
+    assert "interconnect i needs a length" in line

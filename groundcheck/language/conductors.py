@@ -168,9 +168,16 @@ _GEOMETRY_HINTS = {
 
 
 def _check_geometry(stmt: Statement, kind: str, kw: dict) -> None:
-    """The geometry the kinds table says a kind needs (a stated resistance satisfies any of it)."""
-    for options in KINDS[kind].needs:
+    """The geometry the kinds table says a kind needs (a stated resistance satisfies any of it).  A
+    length left out is taken along the ends' positions and route when the plan is assembled, for a
+    conductor inside one piece of equipment (not a link between devices, a building cable or an
+    umbilical's core, which run as they like)."""
+    row = KINDS[kind]
+    for options in row.needs:
         if not any(f in kw for f in options) and "resistance" not in kw:
+            if options[0] == "length" and not (row.joins_devices or row.carries_load or "in" in row.attributes):
+                kw["length_computed"] = True
+                continue
             what, example = _GEOMETRY_HINTS[options[0]]
             label = f" {stmt.label}" if stmt.label and options[0] == "length" else ""
             raise PlanError(f"{kind}{label} needs {what}", stmt.loc, example)
