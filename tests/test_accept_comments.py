@@ -82,3 +82,12 @@ def test_an_unknown_rule_after_an_element_is_an_error_at_its_column():
     err = e.value.errors[0]
     line = BLOCK.splitlines()[6].replace("# ACCEPT", "# accept left.g GC11Z: typo")
     assert (err.location.line, err.location.column) == (7, line.index("GC11Z") + 1)
+
+
+def test_an_accept_that_matches_nothing_reaches_a_review_screen():
+    import json
+    from groundcheck.renderers.sarif import render_sarif
+    log = json.loads(render_sarif([_run("# accept GC101: no loop here")]))
+    notes = log["runs"][0]["invocations"][0]["toolExecutionNotifications"]
+    assert any(n["level"] == "warning" and "p.gplan:7 (GC101) matches no finding" in n["message"]["text"]
+               for n in notes)
