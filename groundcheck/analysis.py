@@ -7,7 +7,6 @@ Every rule comes from the registry (:mod:`groundcheck.rules.registry`).
 
 from __future__ import annotations
 
-from dataclasses import replace
 from functools import partial
 
 from .core.runtime import no_gc
@@ -25,7 +24,8 @@ from .physics.sweep import run_tasks
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext
 from .rules.electrical import Solved
-from .rules.registry import functions
+from .rules.registry import functions, hum_codes
+from .rules.acceptance import apply_acceptances
 from .core.errors import Location, PlanError, PlanErrors
 from .rules.catalogue import RULES
 from .rules.results import Options, Result
@@ -110,6 +110,11 @@ def _notices(plan: Plan, options: Options) -> list[str]:
     if options.pe_limit > STANDARD_PE_LIMIT * (1 + 1e-9) and plan.mains is not None:
         out.append(f"protective-path limit relaxed to {options.pe_limit * 1e3:g} mΩ by --pe-limit (the product-safety "
                    f"limit is {STANDARD_PE_LIMIT * 1e3:g} mΩ; paths over it are listed as notes)")
+    measured = [c for c in plan.conductors if c.length_computed]
+    if measured:
+        named = ", ".join(f"{c.kind} {c.name} {c.length * 1e3:.0f} mm" for c in measured[:5])
+        more = f" and {len(measured) - 5} more" if len(measured) > 5 else ""
+        out.append(f"lengths not stated, measured along the ends' positions and routes: {named}{more}")
     if not options.hum and plan.stages:
         out.append("hum and buzz budget skipped (--no-hum): no hum figures or hum findings")
     elif plan.stages and options.max_frequency < plan.frequency:
@@ -132,8 +137,17 @@ def _finish(result: Result) -> Result:
         result.not_checked.append(NotChecked(
             tuple(c for c in RULES if c in unwanted and c in wanted),
             f"left out by {opts.leave_out_origin}"))
+    unheard = [c for c in hum_codes() if c in wanted and c not in unwanted]
+    judged = wanted - unwanted
+    if not opts.hum and result.plan.stages and unheard:
+        result.not_checked.append(NotChecked(
+            tuple(unheard), "judged from the hum figures, which --no-hum leaves out"))
+        judged -= set(unheard)
     findings = [f for f in result.findings if f.code in wanted and f.code not in unwanted]
-    result.findings = sorted(_accepted(findings, result, opts), key=lambda f: f.sort_key())
+    done = apply_acceptances(findings, result.plan.acceptances, opts.allow_accept_danger, judged)
+    result.not_checked += done.not_checked
+    result.notices += done.notices
+    result.findings = sorted(done.findings, key=lambda f: f.sort_key())
     result.notices += [n.sentence() for n in result.not_checked]
     for f in result.accepted_dangers():
         result.notices.append(
@@ -154,31 +168,3 @@ def _acceptance_errors(plan: Plan) -> list[PlanError]:
                 errors.append(PlanError(f"unknown rule {word!r} in an accept comment",
                                         Location(file, line, col), UnknownRule(word).hint))
     return errors
-
-
-def _accepted(findings: list, result: Result, opts: Options) -> list:
-    """Findings accepted by a '# accept CODE: reason' on their plan line; a danger only with
-    allow_accept_danger (and then it still counts as a danger).  Each acceptance is listed as not
-    checked; an accept comment that names a danger without allow_accept_danger is said in a notice,
-    the danger staying open."""
-    plan = result.plan
-    if not plan.acceptances:
-        return findings
-    at = {}
-    for file, line, codes, reason, *_ in plan.acceptances:
-        for code in codes_of(codes):
-            at[(file, line, code)] = reason
-    out = []
-    for f in findings:
-        reason = at.get((f.location.file, f.location.line, f.code))
-        if reason is not None and (f.severity != "danger" or opts.allow_accept_danger):
-            f = replace(f, accepted=reason)
-            result.not_checked.append(NotChecked((f.code,), f"accepted in the plan: {reason}",
-                                                 f.location, f.severity))
-        elif reason is not None:
-            result.notices.append(
-                f"the accept comment at {f.location.file}:{f.location.line} names a danger "
-                f"({f.code}): a danger is accepted only with --allow-accept-danger, so it stays "
-                "open")
-        out.append(f)
-    return out

@@ -292,3 +292,22 @@ stage v1: in_gnd to star, gain 30 dB, channel main
     assert judged.severity == "note" and "finds none of it" in judged.message
     assert "level_dbv" not in judged.figures                 # no level to show, rather than an empty one
     assert unjudged.severity == "fault" and "--no-hum" in unjudged.message
+
+
+def test_without_the_hum_figures_the_verdict_names_the_rules_it_could_not_judge():
+    # the headphone example: with the hum figures its verdict rests partly on GC301-GC306; without them
+    # the verdict must not read as if those rules had passed
+    from groundcheck.rules.results import Options
+    from helpers import EXAMPLES
+    plan = load(next(e for e in EXAMPLES if e.name.startswith("headphone")))
+    full, bare = analyze(plan, Options()), analyze(plan, Options(hum=False))
+    assert any(f.code in ("GC301", "GC303", "GC304", "GC306") for f in full.findings)
+    assert not any(n.why.startswith("judged from the hum") for n in full.not_checked)
+    (skipped,) = [n for n in bare.not_checked if "--no-hum" in n.why]
+    assert skipped.codes == ("GC301", "GC302", "GC303", "GC304", "GC305", "GC306")
+    assert "not checked: every GC3xx rule (hum)" in bare.verdict()
+    assert any("GC3xx" in n and "--no-hum" in n for n in bare.notices)
+    assert not bare.clean()
+    # only the hum rules a selection keeps are said: --only-rules GC2 leaves none of them to judge
+    chosen = analyze(plan, Options(hum=False, only_rules=("GC2",), only_rules_origin="--only-rules"))
+    assert not any("--no-hum" in n.why for n in chosen.not_checked)

@@ -9,12 +9,27 @@ from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean, readable
 from ..core.units import dbv
+from .fixes import identity
 
 __all__ = ["compare", "compare_text", "compare_json"]
 
 
-def _fkey(f):
-    return (f.code, tuple(sorted(f.elements)))
+def _matched(before: list, after: list) -> dict[str, list]:
+    """Findings fixed, kept and introduced, each keyed by its stable identity (``fixes.identity``:
+    code, elements, their roles, the channel).  Findings that share one identity are counted, never
+    merged: two before and one after is one kept and one fixed, so an introduced finding cannot hide
+    behind a fixed one of the same key."""
+    groups: dict[tuple, tuple[list, list]] = {}
+    for side, findings in ((0, before), (1, after)):
+        for f in findings:
+            groups.setdefault(identity(f), ([], []))[side].append(f)
+    out: dict[str, list] = {"fixed": [], "kept": [], "introduced": []}
+    for key in sorted(groups, key=repr):
+        b, a = groups[key]
+        out["kept"] += a[:len(b)]
+        out["fixed"] += b[len(a):]
+        out["introduced"] += a[len(b):]
+    return out
 
 
 def _db(v):
@@ -23,8 +38,7 @@ def _db(v):
 
 def compare(before: Result, after: Result) -> dict:
     """What changed from ``before`` to ``after`` (plain data)."""
-    fb = {_fkey(f): f for f in before.findings}
-    fa = {_fkey(f): f for f in after.findings}
+    matched = _matched(before.findings, after.findings)
     row = lambda f: {"code": f.code, "severity": f.severity, "message": f.message}  # noqa: E731
     lb = {frozenset(lp.loop.edges): lp for lp in before.loops}
     la = {frozenset(lp.loop.edges): lp for lp in after.loops}
@@ -58,9 +72,7 @@ def compare(before: Result, after: Result) -> dict:
         "not_checked": {"before": [n.as_dict() for n in before.not_checked],
                         "after": [n.as_dict() for n in after.not_checked]},
         "notices": {"before": list(before.notices), "after": list(after.notices)},
-        "findings": {"fixed": [row(fb[k]) for k in sorted(fb.keys() - fa.keys())],
-                     "kept": [row(fa[k]) for k in sorted(fb.keys() & fa.keys())],
-                     "introduced": [row(fa[k]) for k in sorted(fa.keys() - fb.keys())]},
+        "findings": {k: [row(f) for f in v] for k, v in matched.items()},
         "loops": {"removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
                   "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
                   "total_before": before.loop_total, "total_after": after.loop_total},

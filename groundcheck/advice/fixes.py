@@ -28,10 +28,11 @@ SHOWN_BY_SUGGEST = " (groundcheck suggest shows the change and its predicted eff
 def identity(f) -> tuple:
     """What makes a finding the same finding before and after a change, as its rule's entry
     states (``Rule.identity``): a loop is its conductors (in any order); a shared return or a
-    contributor its (source, stage) or (element, source) pair; anything else its elements."""
-    if RULES[f.code].identity == "pair":
-        return (f.code, *f.elements[:2])
-    return (f.code, *sorted(f.elements))
+    contributor its (source, stage) or (element, source) pair, and the channel it reaches when it
+    names one; crosstalk its (from, into) pair; anything else its elements."""
+    key = (f.code, *f.elements[:2]) if RULES[f.code].identity == "pair" else (f.code, *sorted(f.elements))
+    channel = f.figures.get("channel") if f.figures else None
+    return (*key, ("channel", channel)) if channel else key   # one element's share at each output
 
 
 def _local(name: str) -> str:

@@ -9,18 +9,17 @@ from __future__ import annotations
 import argparse
 import os
 import sys
-from dataclasses import replace
 from pathlib import Path
 
 from ..core.version import __version__
 from ..core.caution import CAUTION, MAINS_WORK
 from ..core.errors import GroundcheckError, PlanErrors, shown
-from ..core.runtime import die_with_parent, files_read, note_read
 from ..rules.catalogue import RULES, protective_earth_rule
 from ..rules.selection import UnknownRule, rule_codes
 from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import SUGGEST_EPILOG, add_fix_option, advised, cmd_compare, cmd_suggest
+from .checking import analyze_with_progress, check_each, with_errors
 from .watch import add_watch_command, cmd_watch
 from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_analysis_options,
                      load_plan, options_of, plan_paths, processes_type, quantity_type, seconds_type,
@@ -166,74 +165,30 @@ def _export_command(sub) -> None:
     x.add_argument("-o", "--output", metavar="FILE", help="write the netlist to FILE instead of standard output")
 
 
-class _Rendered(GroundcheckError):
-    """Plan errors already rendered to text (from a worker process)."""
-
-
-def _check_one(path: str, options, budget: float = 0.0):
-    """Load and analyse one plan in a worker process: (True, result) or (False, rendered errors), and every
-    file the worker read (the parent protects them from its output too)."""
-    from ..analysis import analyze
-    try:
-        return True, advised(analyze(load_plan(path), options), path, budget), files_read()
-    except PlanErrors as e:
-        return False, e.render(), files_read()
-
-
-def _analyze_with_progress(analyze, plan, options, label: str):
-    """Run the analysis with a transient progress line on an interactive terminal."""
-    if not sys.stderr.isatty():
-        return analyze(plan, options)
-    from rich.console import Console
-    from ..renderers.text import escape
-    with Console(stderr=True).status(f"analysing {escape(label)} ({len(plan.conductors)} conductors)…"):
-        return analyze(plan, options)
-
-
-def _check_side_by_side(args) -> list:
-    """Each plan checked in a worker process: (True, result) or (False, rendered errors) per plan, in order.  A
-    worker that dies is an error, never a wait; no process to start means one process checks them all."""
-    from concurrent.futures import ProcessPoolExecutor
-    from concurrent.futures.process import BrokenProcessPool
-    options = [replace(options_of(args), jobs=1)] * len(args.plans)
-    try:
-        with ProcessPoolExecutor(max_workers=args.jobs, initializer=die_with_parent) as pool:
-            budgets = [args.advice_budget] * len(options)
-            return list(pool.map(_check_one, args.plans, options, budgets))
-    except BrokenProcessPool:
-        raise GroundcheckError("a worker process of --jobs died before it finished (killed, or out of memory); "
-                               "run with --jobs 1") from None
-    except OSError:
-        return [_check_one(p, o, args.advice_budget) for p, o in zip(args.plans, options)]
-
-
 def cmd_check(args) -> int:
     args.plans = plan_paths(args.plans)
-    from ..analysis import analyze
-    results = []
-    if args.jobs > 1 and len(args.plans) > 1:
-        for ok, value, read in _check_side_by_side(args):
-            for f in read:                 # a worker's includes and device plans: never an output
-                note_read(f)
-            if not ok:
-                raise _Rendered(value)
-            results.append(value)
-    else:
-        for path in args.plans:
-            plan = load_plan(path, args.jobs)
-            result = _analyze_with_progress(analyze, plan, options_of(args), path)
-            results.append(advised(result, path, args.advice_budget))
+    results, failed = check_each(args)
+    for _path, e in failed:
+        sys.stderr.write(e.render() + "\n")
+    if failed:
+        sys.stderr.write(f"groundcheck: {len(failed)} of {len(args.plans)} plans could not be read: "
+                         f"{', '.join(shown(p) for p, _ in failed)}; the others were checked\n")
     failing = any(r.fails(fail_on(args)) for r in results)
+    status = 2 if failed else 1 if failing else 0
     if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console
         from ..renderers.text import print_report
         console = Console(highlight=False)
         for i, r in enumerate(results):
             print_report(r, console, caution=i == 0)
-        return 1 if failing else 0
+        return status
     from ..renderers.formats import render_results
-    write_output(render_results(results, args.format), args.output, args.plans)
-    return 1 if failing else 0
+    if failed and args.format in ("json", "sarif"):
+        text = with_errors(results, [e for _, e in failed], args.format)
+    else:
+        text = render_results(results, args.format) if results else ""
+    write_output(text, args.output, args.plans)
+    return status
 
 
 def cmd_explain(args) -> int:
@@ -316,7 +271,7 @@ def cmd_report(args) -> int:
     from ..analysis import analyze
     from ..renderers.formats import html_document
     plan = load_plan(args.plan)
-    result = advised(_analyze_with_progress(analyze, plan, options_of(args), args.plan), args.plan,
+    result = advised(analyze_with_progress(analyze, plan, options_of(args), args.plan), args.plan,
                      args.advice_budget)
     html, warning = html_document(result, args.renderer)
     if warning:
@@ -359,9 +314,6 @@ def main(argv: list[str] | None = None) -> int:
             doc = (sarif_errors if args.format == "sarif" else errors_document)(e.errors)
             write_output(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", args.output,
                          [p for p in args.plans if p != "-"])
-        return 2
-    except _Rendered as e:
-        sys.stderr.write(str(e) + "\n")
         return 2
     except GroundcheckError as e:
         sys.stderr.write(f"groundcheck: error: {shown(e)}\n")

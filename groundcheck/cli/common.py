@@ -235,4 +235,56 @@ def plan_paths(names: list[str]) -> list[str]:
             out.extend(found)
         else:
             out.append(name)
+    return _without_fragments(out)
+
+
+def _without_fragments(paths: list[str]) -> list[str]:
+    """``paths`` less the files another plan includes (a fragment is checked as part of the plan that
+    includes it: a note names that plan, and it is checked in the fragment's place when it is not among
+    ``paths``).  The includers are looked for among ``paths`` and the plans in each one's folder and
+    the folders above it, up to the current folder."""
+    from ..language.fragments import fragments_among, neighbours
+    files = [Path(p) for p in paths if p != "-"]
+    pool = {p.resolve(): p for p in files}
+    for p in files:
+        for n in neighbours(p, Path.cwd()):
+            pool.setdefault(n.resolve(), n)
+    included = fragments_among(list(pool.values()))
+    if not included:
+        return paths
+    out: list[str] = []
+    chosen = {Path(p).resolve() for p in paths if p != "-" and Path(p).resolve() not in included}
+    for name in paths:
+        by = _tops(Path(name).resolve(), included) if name != "-" else []
+        if not by:                     # included by nothing, or only round a cycle: its own check says
+            out.append(name)
+            continue
+        sys.stderr.write(f"groundcheck: note: passed over {shown(name)}: it is included by "
+                         f"{', '.join(shown(b) for b in by)} and checked as part of "
+                         f"{'it' if len(by) == 1 else 'each'}\n")
+        for top in by:
+            if top.resolve() not in chosen:
+                chosen.add(top.resolve())
+                out.append(_relative(top))
     return out
+
+
+def _tops(path: Path, included: dict) -> list[Path]:
+    """The plans at the top of the chains of includes that lead to ``path`` (none for a file that
+    nothing includes, or that only a cycle of includes reaches)."""
+    tops, todo, seen = [], [path], {path}
+    while todo:
+        for by in included.get(todo.pop(), ()):
+            key = by.resolve()
+            if key in seen:
+                continue
+            seen.add(key)
+            (todo if key in included else tops).append(key if key in included else by)
+    return tops
+
+
+def _relative(p: Path) -> str:
+    try:
+        return str(p.resolve().relative_to(Path.cwd().resolve()))
+    except ValueError:
+        return str(p)

@@ -5,6 +5,7 @@ conductors, and the receiving stages of interconnects."""
 from __future__ import annotations
 
 import difflib
+import math
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -92,9 +93,10 @@ def _check_points(groups, metals, check, errors) -> None:
         if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
             m = metals[p.on]
             if p.pos is not None and not m.contains(p.pos):
-                errors.append(PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside "
-                                        f"{m.name!r}",
-                                        p.location, "positions are in the plan frame, in mm"))
+                e = PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
+                              p.location, "positions are in the plan frame, in mm")
+                e.element = p.name                 # named with its own placement only
+                errors.append(e)
 
 
 def _conductors(groups, nodes, check) -> list[Conductor]:
@@ -110,6 +112,28 @@ def _conductors(groups, nodes, check) -> list[Conductor]:
             c = replace(c, name=base if auto[base] == 1 else f"{base}#{auto[base]}")
         conductors.append(c)
     return conductors
+
+
+def _measured(conductors: list[Conductor], points: dict, errors: list) -> list[Conductor]:
+    """Each conductor written without a length gets the length along its ends' positions and its
+    ``via`` route; one whose ends have no positions (or one position) is an error at its statement."""
+    out = []
+    for c in conductors:
+        if c.length_computed:
+            ends = [getattr(points.get(e), "pos", None) for e in (c.a, c.b)]
+            path = [ends[0], *c.route, ends[1]]
+            length = None if None in ends else sum(math.dist(p, q) for p, q in zip(path, path[1:]))
+            if not length:
+                unplaced = [e for e, pos in zip((c.a, c.b), ends) if pos is None]
+                why = (f"{' and '.join(unplaced)} {'has' if len(unplaced) == 1 else 'have'} no position"
+                       if unplaced else "its ends are at one position")
+                errors.append(PlanError(f"{c.kind} {c.name} needs a length: {why} to measure it by",
+                                        c.location, "state it, e.g. ', 120 mm', or give both ends a "
+                                        "position ('point NAME: KIND, at X,Y')"))
+                continue
+            c = replace(c, length=length)
+        out.append(c)
+    return out
 
 
 def _check_sources(groups, nodes, check) -> None:
@@ -138,23 +162,25 @@ def _own_references(stages, errors) -> list[Stage]:
 
 
 #: an inline acceptance: '# accept GC101: the chassis-structure loop is intended' (codes or rule names, a reason)
-_ACCEPT = re.compile(r"#\s*accept\s+([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*(\S.*?)\s*$")
+_ACCEPT = re.compile(r"#\s*accept\s+(?:([A-Za-z][\w-]*(?:\.[\w-]+)+)\s+)?([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*"
+                     r"(\S.*?)\s*$")
 
 
 def acceptances(sources: dict) -> tuple:
-    """The ``# accept CODE[, CODE]: reason`` comments of the plan's files:
-    (file, line, codes, reason, columns), ``columns`` the 1-based column of each code (an error
-    points at a word that names no rule)."""
+    """The ``# accept [ELEMENT] CODE[, CODE]: reason`` comments of the plan's files:
+    (file, line, codes, reason, columns, element), ``columns`` the 1-based column of each code (an
+    error points at a word that names no rule), ``element`` a dotted name (``left.in_gnd``: one
+    placement of a block) or None."""
     out = []
     for file, lines in sources.items():
         for i, line in enumerate(lines, 1):
             if "accept" in line:
                 m = _ACCEPT.search(line)
                 if m:
-                    words = [(w.group(), m.start(1) + w.start() + 1)
-                             for w in re.finditer(r"[\w-]+", m.group(1))]
-                    out.append((file, i, tuple(w for w, _ in words), m.group(2),
-                                tuple(c for _, c in words)))
+                    words = [(w.group(), m.start(2) + w.start() + 1)
+                             for w in re.finditer(r"[\w-]+", m.group(2))]
+                    out.append((file, i, tuple(w for w, _ in words), m.group(3),
+                                tuple(c for _, c in words), m.group(1)))
     return tuple(out)
 
 
@@ -216,7 +242,7 @@ def assemble(built: list, file: str, ld) -> Plan:
                                     "describe a rack's identical supplies once, or split the installation"))
     check = _Resolver(ld)
     _check_points(groups, metals, check, ld.errors)
-    conductors = _conductors(groups, nodes, check)
+    conductors = _measured(_conductors(groups, nodes, check), points, ld.errors)
     _check_sources(groups, nodes, check)
     stages = stage_inputs(_own_references(groups[Stage], ld.errors), points, conductors,
                           [r for g in (Current, Rectifier) for r, *_ in groups[g]])

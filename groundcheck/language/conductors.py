@@ -15,7 +15,7 @@ __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
 CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
                    "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced",
-                   "gain", "cmrr", "imbalance", "common-mode", "load", "cores", "shield-to", "in")
+                   "gain", "cmrr", "imbalance", "common-mode", "load", "cores", "shield-to", "in", "capacitance")
 #: where an interconnect's shield end can land
 SHIELD_LANDINGS = ("chassis", "signal")
 #: the field a bare quantity of each kind sets on a conductor
@@ -67,6 +67,8 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
         kw["shield_ends"] = (first, r.word("where the B end lands", SHIELD_LANDINGS) if not r.done else first)
     elif word == "in":
         kw["bundle"] = r.word("the umbilical's name")
+    elif word == "capacitance":
+        kw["capacitance"] = check_quantity(r.next("the capacitor (capacitance)"), "capacitance", "capacitance")
 
 
 def conductor(stmt: Statement):
@@ -113,10 +115,36 @@ def conductor(stmt: Statement):
                                 first.loc, _HINTS[first.value])
             _named(r, r.word(), kw, a, b)
         else:
-            raise unknown(stmt, first, ROLES + MATERIALS + named + ("AWG",))
+            raise unknown(stmt, first, attribute_words(kind), _UNKNOWN_HINTS.get(row.impedance, ""))
         r.finish()
     _check_geometry(stmt, kind, kw)
     return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+#: what a kind that reads its values as bare quantities says beside an unknown attribute
+_UNKNOWN_HINTS = {"lift": "a lift's resistor and capacitor are quantities: ', 10 ohm, 47 nF'"}
+
+
+def attribute_words(kind: str) -> tuple[str, ...]:
+    """The attribute words a conductor of ``kind`` takes (an unknown word's error lists these only)."""
+    row = KINDS[kind]
+    geometric = bool(row.needs) and row.impedance in ("round", "strip")
+    words = [*ROLES, *(MATERIALS if geometric else ()), "resistance", "channel", "via"]
+    if geometric:
+        words += ["width", "thickness", "copper"] if row.impedance == "strip" else ["diameter", "AWG"]
+        words += ["insulation"] if row.impedance == "round" else []
+    if row.hookup:
+        words += ["separate", "in-cable"]
+    if row.contact is not None or row.impedance == "strip":
+        words.append("contact")
+    if row.shield_like:
+        words.append("terminated")
+    if row.switched:
+        words += ["open", "closed", "contact"]
+    if row.joins_devices:
+        words += ["balanced", "unbalanced", "gain", "cmrr", "imbalance", "common-mode"]
+    words += sorted(row.attributes)
+    return tuple(dict.fromkeys(words))
 
 
 def _a(word: str) -> str:
@@ -126,7 +154,8 @@ def _a(word: str) -> str:
 _HINTS = {"load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",
           "cores": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, cores L-N-PE'",
           "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
-          "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'"}
+          "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'",
+          "capacitance": "a ground-lift network: 'lift NAME: A to B, 10 ohm, 47 nF'"}
 
 
 #: what to say when a kind's required geometry is missing: field -> (what it needs, an example)
@@ -139,9 +168,16 @@ _GEOMETRY_HINTS = {
 
 
 def _check_geometry(stmt: Statement, kind: str, kw: dict) -> None:
-    """The geometry the kinds table says a kind needs (a stated resistance satisfies any of it)."""
-    for options in KINDS[kind].needs:
+    """The geometry the kinds table says a kind needs (a stated resistance satisfies any of it).  A
+    length left out is taken along the ends' positions and route when the plan is assembled, for a
+    conductor inside one piece of equipment (not a link between devices, a building cable or an
+    umbilical's core, which run as they like)."""
+    row = KINDS[kind]
+    for options in row.needs:
         if not any(f in kw for f in options) and "resistance" not in kw:
+            if options[0] == "length" and not (row.joins_devices or row.carries_load or "in" in row.attributes):
+                kw["length_computed"] = True
+                continue
             what, example = _GEOMETRY_HINTS[options[0]]
             label = f" {stmt.label}" if stmt.label and options[0] == "length" else ""
             raise PlanError(f"{kind}{label} needs {what}", stmt.loc, example)

@@ -143,22 +143,26 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
 
 
 def prefixed(p: Plan, prefix: str) -> Plan:
-    """A device plan with every name prefixed (channels too, so each device keeps its own)."""
+    """A device plan with every name prefixed (channels too, so each device keeps its own); a channel
+    named as the device itself keeps that name, once (a compressor ``comp`` whose own plan's channel is
+    ``comp`` has the channel ``comp``, which the installation's links may name, never ``comp.comp``)."""
     pre = lambda n: None if n is None else prefix + n  # noqa: E731
+    own = prefix.rstrip(".")
+    chan = lambda n: n if n is None or n == own else prefix + n  # noqa: E731
     return replace(
         p,
         metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
         points=tuple(replace(x, name=pre(x.name), on=pre(x.on), group=pre(x.group) if x.group else prefix.rstrip("."))
                      for x in p.points),
         conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b),
-                                 channel=pre(c.channel)) for c in p.conductors),
-        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=pre(r.channel),
+                                 channel=chan(c.channel)) for c in p.conductors),
+        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=chan(r.channel),
                                  filter_point=pre(r.filter_point)) for r in p.rectifiers),
         currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b),
-                               channel=pre(r.channel)) for r in p.currents),
+                               channel=chan(r.channel)) for r in p.currents),
         heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b),
                               reference=pre(h.reference)) for h in p.heaters),
-        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=pre(s.channel),
+        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=chan(s.channel),
                              reference=pre(s.reference), named=pre(s.named)) for s in p.stages),
         fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
     )

@@ -39,12 +39,15 @@ def name_placements(e, placed_at: dict, shadowed: dict | None = None, worded: di
     (file, line), for many errors of one loader.  At most five placements are named, then how many more.
     """
     key = (e.location.file, e.location.line)
-    said = worded.get(key) if worded is not None else None
+    element = getattr(e, "element", None)       # an error of one placed element: its placement only
+    said = worded.get(key) if worded is not None and element is None else None
     if said is None:                    # the placements of one statement, worded once (``worded`` keeps it)
         where = list(dict.fromkeys(placed_at.get(key, ())))
+        if element is not None:
+            where = sorted((w for w in where if element.startswith(w + ".")), key=len)[-1:] or where
         named = ", ".join(where[:_NAMED]) + (f" and {len(where) - _NAMED:,} more" if len(where) > _NAMED else "")
         said = f" (in placement{'s' if len(where) > 1 else ''} {named})" if where else ""
-        if worded is not None:
+        if worded is not None and element is None:
             worded[key] = said
     if said and "(in placement" not in e.message:
         e.message += said

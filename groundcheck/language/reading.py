@@ -20,13 +20,14 @@ FUSE_KINDS = {"slow": "slow", "time-lag": "slow", "T": "slow", "fast": "fast", "
 Refs = dict[str, Location]
 
 
-def unknown(stmt: Statement, item, expected: tuple[str, ...]) -> PlanError:
+def unknown(stmt: Statement, item, expected: tuple[str, ...], more: str = "") -> PlanError:
     if item.kind == "number":
         return PlanError(f"{stmt.keyword}: the number {item.text} needs a unit", item.loc,
                          "add a unit, e.g. 10 mm, 0.5 mm2, 2 A, 50 Hz")
     expected = tuple(dict.fromkeys(expected))
     close = difflib.get_close_matches(str(item.text), expected, n=1)
     hint = f"did you mean {close[0]!r}?" if close else "expected one of: " + ", ".join(expected)
+    hint += f"; {more}" if more else ""
     return PlanError(f"{stmt.keyword}: unknown attribute {item.text!r}", item.loc, hint)
 
 

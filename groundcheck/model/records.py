@@ -178,6 +178,7 @@ class Conductor:
     cores: str = "round"                 # cables: how the cores lie (CABLE_CORES)
     shield_ends: tuple[str, str] | None = None   # interconnects: where each end of the shield lands, as stated
     bundle: str | None = None            # umbilical cores: the umbilical (multi-core cable) they run in
+    length_computed: bool = False        # no length stated: taken along its ends' positions and route
 
     @property
     def connects(self) -> bool:
@@ -224,9 +225,8 @@ class Rectifier:
 class Current:
     """A stated current flowing in the ground system from ``a`` to ``b``.
 
-    ``parts`` are (rms amperes, hertz) pairs; 0 Hz is DC.  ``role``:
-    return, load, heater, leakage, or signal (an output stage's signal
-    return, used for crosstalk).
+    ``parts`` are (rms amperes, hertz) pairs; 0 Hz is DC.  ``role``: return, load, heater,
+    leakage, or signal (an output stage's signal return, used for crosstalk).
     """
 
     name: str
@@ -332,8 +332,8 @@ class Plan:
     files: tuple[str, ...] = ()
     location: Location = field(default=Location("<plan>"), compare=False)
     device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
-    acceptances: tuple[tuple[str, int, tuple[str, ...], str, tuple[int, ...]],
-                       ...] = ()   # '# accept' comments: (file, line, codes, reason, code columns)
+    acceptances: tuple[tuple, ...] = ()  # '# accept' comments: (file, line, codes, reason, code
+    #                                       columns, the element named or None)
     device_files: tuple[str, ...] = ()   # the files of placed devices' own plans (and what they include)
     supply: Supply | None = None         # an installation's stated supply
     devices: tuple[Device, ...] = ()     # the devices an installation places

@@ -118,6 +118,9 @@ def _invocation(results: list[Result]) -> dict:
                 note["locations"] = [_location(n.location)]
                 note["associatedRule"] = {"id": n.codes[0], "index": codes.index(n.codes[0])}
             notes.append(note)
+        said = {n.sentence() for n in res.not_checked}    # the run's other notices (an accept comment
+        notes += [{"level": "warning" if n.startswith("warning:") else "note",   # that accepts nothing)
+                   "message": {"text": f"{res.plan.file}: {n}"}} for n in res.notices if n not in said]
     return {"executionSuccessful": True,
             "ruleConfigurationOverrides": [
                 {"descriptor": {"id": c, "index": codes.index(c)},

@@ -84,7 +84,7 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
     line.append(f"   loops: {result.loop_total}")
     console.print(line)
     for notice in result.notices:
-        console.print(Text(f"Notice: {notice}", style="bold yellow"))
+        console.print(Text(f"Notice: {shown(notice)}", style="bold yellow"))
     if result.safety is not None and result.safety.parts:
         worst_pe = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = worst_pe.path_resistance <= result.safety.limit

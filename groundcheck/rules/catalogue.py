@@ -236,7 +236,7 @@ RULES: dict[str, Rule] = dict([
        "Crosstalk between channels through shared return impedance, worse than −60 dB at 1 kHz.",
        "Shared return impedance lets one channel's signal current appear in the other's reference.",
        "Give each channel its own return to the star; join channels at one point only.",
-       actions=("own-crosstalk-return",)),
+       identity="pair", actions=("own-crosstalk-return",)),
     _r("GC305", "loop-near-source", HUM, "note",
        "A loop that passes closer to a field source's centre than its stated size or, with no size stated, than "
        "the distance its strength was stated at.",

@@ -128,7 +128,7 @@ def rule_islands(s: Solved) -> list[Finding]:
             for st in s.plan.stages if labels[node[st.a]] != labels[node[st.b]]]
 
 
-@rule("GC301", "GC302", "GC303", "GC304", needs="solve")
+@rule("GC301", "GC302", "GC303", "GC304", needs="solve", hum=True)
 def rule_hum(s: Solved) -> list[Finding]:
     """GC301–GC304: hum contributors, loop pickup, audibility and crosstalk from the hum budget.
 
@@ -241,7 +241,7 @@ def _audible(ch: str, h, loc) -> Finding:
                    "fix the main contributors first: " + "; ".join(top))
 
 
-@rule("GC305", needs="solve")
+@rule("GC305", needs="solve", hum=True)
 def rule_loop_near_source(s: Solved) -> list[Finding]:
     """GC305: a loop that passes within a field source's size (or, with no size, its reference distance).
 

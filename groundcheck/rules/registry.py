@@ -14,7 +14,7 @@ from typing import Callable
 
 from .catalogue import RULES
 
-__all__ = ["RuleFunction", "REGISTRY", "rule", "functions", "codes_registered"]
+__all__ = ["RuleFunction", "REGISTRY", "rule", "functions", "codes_registered", "hum_codes"]
 
 
 @dataclass(frozen=True)
@@ -22,6 +22,7 @@ class RuleFunction:
     codes: tuple[str, ...]
     needs: str
     func: Callable
+    hum: bool = False            # judged from the hum figures (nothing to judge without them: --no-hum)
 
     @property
     def name(self) -> str:
@@ -32,12 +33,13 @@ class RuleFunction:
 REGISTRY: list[RuleFunction] = []
 
 
-def rule(*codes: str, needs: str = "topology"):
+def rule(*codes: str, needs: str = "topology", hum: bool = False):
     """Register the decorated function as the maker of ``codes``.
 
     Parameters:
         codes: the rule codes the function makes.
         needs: context (the graph) or solved (the electrical solve).
+        hum: whether its findings are judged from the hum figures (a run without them cannot judge it).
     Returns:
         a decorator that registers the function.
     References:
@@ -48,7 +50,7 @@ def rule(*codes: str, needs: str = "topology"):
         raise ValueError(f"rule codes not in the catalogue: {unknown}")
 
     def deco(func):
-        REGISTRY.append(RuleFunction(tuple(codes), needs, func))
+        REGISTRY.append(RuleFunction(tuple(codes), needs, func, hum))
         return func
     return deco
 
@@ -82,3 +84,17 @@ def codes_registered() -> dict[str, list[str]]:
         for c in r.codes:
             out.setdefault(c, []).append(r.name)
     return out
+
+
+def hum_codes() -> tuple[str, ...]:
+    """The codes judged from the hum figures, in catalogue order.
+
+    Parameters:
+        (none)
+    Returns:
+        the codes of the functions registered with ``hum=True``.
+    References:
+        none (registry).
+    """
+    codes = {c for r in REGISTRY if r.hum for c in r.codes}
+    return tuple(c for c in RULES if c in codes)

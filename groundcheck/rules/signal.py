@@ -116,7 +116,7 @@ def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
         fix, (("reroute", move[0], move[1]),) if move else ())
 
 
-@rule("GC306", needs="solve")
+@rule("GC306", needs="solve", hum=True)
 def rule_ground_feedback(s: Solved) -> list[Finding]:
     """GC306: a channel's own output or load current flowing in the ground its input stages read.
 
