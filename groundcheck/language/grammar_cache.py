@@ -1,12 +1,12 @@
 """Where the compiled plan grammar is kept between runs: a file in the user's cache folder.
 
-Compiling ``plan.lark`` into LALR tables takes longer than reading a plan of usual size; lark can save the
-tables and read them back (its ``cache`` option).  The file lives in ``$XDG_CACHE_HOME/groundcheck`` (or
-``~/.cache/groundcheck``), never in the installed package; its name holds a hash of the grammar's text, of
-lark's version, of Python's version and of whether lark-cython runs the parser, so a changed grammar or
-library never reads stale tables.  The cache is only an optimisation: a folder that cannot be made or
-written, or that another user could write into (the file is a pickle), means no cache, silently, and
-the grammar is compiled as before.
+Compiling ``plan.lark`` into LALR tables takes longer than reading a plan of usual size; lark can
+save the tables and read them back (its ``cache`` option).  The file lives in
+``$XDG_CACHE_HOME/groundcheck`` (or ``~/.cache/groundcheck``), never in the installed package; its
+name holds a hash of the grammar's text, of lark's version, of Python's version and of whether
+lark-cython runs the parser, so a changed grammar or library never reads stale tables.  The cache
+is only an optimisation: a folder that cannot be made or written, or that another user could write
+into (the file is a pickle), means no cache, silently, and the grammar is compiled as before.
 """
 
 from __future__ import annotations
@@ -23,8 +23,8 @@ FOLDER = "groundcheck"
 
 
 def cache_folder() -> Path | None:
-    """The user's cache folder for groundcheck (made, private to the user, on first use), or None when there
-    is none that can be used safely."""
+    """The user's cache folder for groundcheck (made, private to the user, on first use), or None
+    when there is none that can be used safely."""
     base = os.environ.get("XDG_CACHE_HOME", "")
     try:
         # the XDG specification: a relative XDG_CACHE_HOME is invalid and ignored
@@ -32,7 +32,10 @@ def cache_folder() -> Path | None:
         folder = root / FOLDER
         folder.mkdir(mode=0o700, parents=True, exist_ok=True)
         st = folder.stat()
-    except (OSError, RuntimeError):     # no home folder, a read-only or full file system, a file in the way
+    except (
+        OSError,
+        RuntimeError,
+    ):  # no home folder, a read-only or full file system, a file in the way
         return None
     if not _private(st):
         return None
@@ -48,11 +51,12 @@ def _private(st: os.stat_result) -> bool:
 def cached_grammar_file(grammar: str, plugin: str) -> str | None:
     """The file lark should read this grammar's tables from, or write them to; None for no cache.
 
-    lark writes the file in place (its hash of the options includes the file's name, so the tables cannot
-    be written elsewhere and renamed): a run that meets a half-written file fails to read it, compiles the
-    grammar and writes the file again, which lark does by itself.
+    lark writes the file in place (its hash of the options includes the file's name, so the tables
+    cannot be written elsewhere and renamed): a run that meets a half-written file fails to read
+    it, compiles the grammar and writes the file again, which lark does by itself.
     """
     from lark import __version__ as lark_version
+
     folder = cache_folder()
     if folder is None:
         return None

@@ -1,19 +1,22 @@
-"""Special functions the analyses need, in numpy alone: the Bessel-function ratio of a round wire's skin
-effect and the complete elliptic integrals of a circular loop's field.
+"""Special functions the analyses need, in numpy alone: the Bessel-function ratio of a round
+wire's skin effect and the complete elliptic integrals of a circular loop's field.
 
-Written here rather than taken from ``scipy.special``, whose import costs more start-up time than every
-plan of usual size spends in these functions; ``tests/test_special_functions.py`` checks each against
-``scipy.special`` over the whole range the analyses use.
+Written here rather than taken from ``scipy.special``, whose import costs more start-up time than
+every plan of usual size spends in these functions; ``tests/test_special_functions.py`` checks
+each against ``scipy.special`` over the whole range the analyses use.
 """
 
 from __future__ import annotations
+
+import math
 
 import numpy as np
 
 __all__ = ["bessel_skin_ratio", "SERIES_LIMIT", "ellipk", "ellipe"]
 
-#: x = r/δ from which Hankel's expansion is used: its neglected second exponential is e^(−2x) ≈ 7e-13
-#: there, and the power series' cancellation below it costs at most a factor e^((√2 − 1)x) ≈ 330
+#: x = r/δ from which Hankel's expansion is used: its neglected second exponential is
+#: e^(−2x) ≈ 7e-13 there, and the power series' cancellation below it costs at most a factor
+#: e^((√2 − 1)x) ≈ 330
 SERIES_LIMIT = 14.0
 
 
@@ -23,60 +26,62 @@ def bessel_skin_ratio(x):
     Below :data:`SERIES_LIMIT` the power series: with w = −(k·r/2)² = j·x²/2,
     J₀ = Σ wⁿ/(n!)² and J₁ = (k·r/2) Σ wⁿ/(n!(n+1)!), so the ratio is the quotient of the two sums.
     Above it Hankel's expansion: Im(k·r) < 0, so H⁽¹⁾ dominates J = (H⁽¹⁾ + H⁽²⁾)/2 and
-    J₀/J₁ = j·P₀/P₁ with P_ν = Σ jⁿ aₙ(ν)/(k·r)ⁿ, aₙ(ν) = (4ν² − 1²)(4ν² − 3²)…(4ν² − (2n−1)²)/(n! 8ⁿ).
+    J₀/J₁ = j·P₀/P₁ with P_ν = Σ jⁿ aₙ(ν)/(k·r)ⁿ and
+    aₙ(ν) = (4ν² − 1²)(4ν² − 3²)…(4ν² − (2n−1)²)/(n! 8ⁿ).
 
     Parameters:
         x: r/δ, dimensionless.
     Returns:
         the complex ratio Z_int / R_dc.
     References:
-        M. Abramowitz, I. Stegun, *Handbook of Mathematical Functions*, 9.1.10 (series) and 9.2.7, 9.2.8
-        (Hankel's asymptotic expansions); NIST DLMF 10.8.1 and 10.17.
+        M. Abramowitz, I. Stegun, *Handbook of Mathematical Functions*, 9.1.10 (series) and 9.2.7,
+        9.2.8 (Hankel's asymptotic expansions); NIST DLMF 10.8.1 and 10.17.
     """
     x = np.asarray(x, dtype=float)
     out = np.empty(x.shape, dtype=complex)
     low = x < SERIES_LIMIT
-    out[low] = _series_ratio(x[low])
-    out[~low] = _hankel_ratio(x[~low])
+    if low.any():
+        out[low] = _series_ratio(x[low])
+    if not low.all():
+        out[~low] = _hankel_ratio(x[~low])
     return out
 
 
+#: terms of the power series: with |w| = x²/2 < 98 the 80th is below 1e-60 of the largest
+_SERIES_TERMS = 80
+_N = np.arange(1, _SERIES_TERMS + 1)
+#: 1/(n!)² and 1/(n!(n+1)!) for n = 1, 2, …
+_C0 = np.array([1.0 / math.factorial(n) ** 2 for n in _N])
+_C1 = np.array([1.0 / (math.factorial(n) * math.factorial(n + 1)) for n in _N])
+#: Hankel's aₙ(0) and aₙ(1) for n = 1 … 24 (|k·r| ≥ 19.8: the 24th term is below 1e-16)
+_A0 = np.cumprod([(0.0 - (2 * n - 1) ** 2) / (8 * n) for n in range(1, 25)])
+_A1 = np.cumprod([(4.0 - (2 * n - 1) ** 2) / (8 * n) for n in range(1, 25)])
+
+
+def _powers(q: np.ndarray, count: int) -> np.ndarray:
+    """qⁿ for n = 1 … count (len(q) × count), by repeated multiplication."""
+    return np.cumprod(np.broadcast_to(q[:, None], (len(q), count)), axis=1)
+
+
 def _series_ratio(x: np.ndarray) -> np.ndarray:
-    w = 0.5j * x * x
-    t0 = np.ones(x.shape, dtype=complex)        # wⁿ/(n!)²
-    t1 = np.ones(x.shape, dtype=complex)        # wⁿ/(n!(n+1)!)
-    s0, s1 = t0.copy(), t1.copy()
-    for n in range(1, 70):                      # |w| < 98: the terms fall below 1e-17 of the sum by n = 70
-        t0 = t0 * w / (n * n)
-        t1 = t1 * w / (n * (n + 1))
-        s0 += t0
-        s1 += t1
-    return s0 / s1
+    powers = _powers(0.5j * x * x, _SERIES_TERMS)  # wⁿ, w = j·x²/2
+    return (1.0 + powers @ _C0) / (1.0 + powers @ _C1)
 
 
 def _hankel_ratio(x: np.ndarray) -> np.ndarray:
     z = (1 - 1j) * x
-    p0 = np.ones(x.shape, dtype=complex)
-    p1 = np.ones(x.shape, dtype=complex)
-    a0 = a1 = 1.0
-    term = np.ones(x.shape, dtype=complex)
-    for n in range(1, 25):                      # |z| ≥ 19.8: the 24th term is below 1e-16
-        a0 *= (0.0 - (2 * n - 1) ** 2) / (8 * n)
-        a1 *= (4.0 - (2 * n - 1) ** 2) / (8 * n)
-        term = term * 1j / z
-        p0 += a0 * term
-        p1 += a1 * term
-    return (z / 2) * 1j * p0 / p1
+    powers = _powers(1j / z, len(_A0))  # (j/z)ⁿ
+    return (z / 2) * 1j * (1.0 + powers @ _A0) / (1.0 + powers @ _A1)
 
 
 def _agm(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """(AGM(1, √(1 − m)), Σ 2ⁿ⁻¹ cₙ²) of the arithmetic-geometric mean, for K and E."""
     a = np.ones_like(m)
     b = np.sqrt(1.0 - m)
-    c2 = m.copy()                               # c₀² = m
+    c2 = m.copy()  # c₀² = m
     total = 0.5 * c2
     power = 0.5
-    for _ in range(60):                         # converges quadratically: 6 steps at m = 1 − 1e-15
+    for _ in range(60):  # converges quadratically: 6 steps at m = 1 − 1e-15
         a, b, c = 0.5 * (a + b), np.sqrt(a * b), 0.5 * (a - b)
         power *= 2.0
         total = total + power * c * c
@@ -95,7 +100,8 @@ def ellipk(m):
     Returns:
         K(m).
     References:
-        M. Abramowitz, I. Stegun, *Handbook of Mathematical Functions*, 17.6 (the arithmetic-geometric mean).
+        M. Abramowitz, I. Stegun, *Handbook of Mathematical Functions*, 17.6 (the
+        arithmetic-geometric mean).
     """
     m = np.asarray(m, dtype=float)
     a, _ = _agm(m)
@@ -105,7 +111,8 @@ def ellipk(m):
 def ellipe(m):
     """The complete elliptic integral of the second kind E(m), parameter m = k² in [0, 1).
 
-    E(m) = K(m) · (1 − Σₙ 2ⁿ⁻¹ cₙ²) with c₀² = m and cₙ = (aₙ₋₁ − bₙ₋₁)/2 of the arithmetic-geometric mean.
+    E(m) = K(m) · (1 − Σₙ 2ⁿ⁻¹ cₙ²) with c₀² = m and cₙ = (aₙ₋₁ − bₙ₋₁)/2 of the
+    arithmetic-geometric mean.
 
     Parameters:
         m: the parameter, dimensionless (numpy array or float).
