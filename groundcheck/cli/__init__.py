@@ -20,10 +20,9 @@ from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import SUGGEST_EPILOG, add_fix_option, advised, cmd_compare, cmd_suggest
 from .checking import analyze_with_progress, check_each, with_errors
-from .watch import add_watch_command, cmd_watch
 from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_analysis_options,
-                     load_plan, options_of, plan_paths, processes_type, quantity_type, seconds_type,
-                     write_output)
+                     add_watch_command, load_plan, options_of, plan_paths, processes_type,
+                     quantity_type, seconds_type, write_output)
 
 __all__ = ["main"]
 
@@ -279,6 +278,11 @@ def cmd_report(args) -> int:
     write_atomic(Path(args.output), html, protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
     return 1 if result.fails(fail_on(args)) else 0
+
+
+def cmd_watch(args) -> int:
+    from .watch import cmd_watch as watch   # the live view's server (http.server, ssl): watch only
+    return watch(args)
 
 
 def cmd_completion(args) -> int:

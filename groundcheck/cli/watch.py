@@ -10,7 +10,6 @@ written to disk.
 
 from __future__ import annotations
 
-import argparse
 import json
 import secrets
 import signal
@@ -22,30 +21,12 @@ from pathlib import Path
 
 from ..core.caution import CAUTION
 from ..core.errors import GroundcheckError, PlanErrors
-from .common import UsageError, add_analysis_options, load_plan, options_of
+from .common import DEFAULT_PORT, UsageError, add_watch_command, load_plan, options_of
 
-__all__ = ["add_watch_command", "cmd_watch", "LiveView", "LiveHandler"]
+__all__ = ["add_watch_command", "cmd_watch", "LiveView", "LiveHandler", "DEFAULT_PORT"]
 
-#: the port the view is served on unless --port says otherwise
-DEFAULT_PORT = 8470
 #: how often (s) an idle event stream sends a comment, so a closed browser tab is noticed
 KEEP_ALIVE = 10.0
-
-
-def add_watch_command(sub) -> None:
-    w = sub.add_parser("watch", help="show the plan live in the browser, re-checked whenever it is saved",
-                       description="Serve a page on this computer (127.0.0.1 only) with the drawings, findings, hum "
-                       "and protective-earth tables; it refreshes by itself within a fraction of a second of the "
-                       "plan, or a file it includes or places, being saved.  Ctrl-C stops.\n\n"
-                       "Example:\n  groundcheck watch examples/guitar-head.gplan --open",
-                       formatter_class=argparse.RawDescriptionHelpFormatter)
-    w.add_argument("plan", metavar="PLAN")
-    w.add_argument("--port", type=int, default=DEFAULT_PORT, metavar="N",
-                   help=f"the local port to serve on (default {DEFAULT_PORT}; 0 picks a free one)")
-    w.add_argument("--open", action="store_true", help="open the page in the default web browser")
-    w.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
-                   help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)")
-    add_analysis_options(w)
 
 
 class LiveView:

@@ -16,6 +16,7 @@ from lark import Lark, Token, Transformer
 from lark.exceptions import UnexpectedCharacters, UnexpectedEOF, UnexpectedInput, UnexpectedToken
 
 from ..core.errors import Location, PlanError
+from .grammar_cache import cached_grammar_file
 from .phrases import NOT_ASCII, Statement, split_phrases
 
 __all__ = ["parse_text", "BlockDef", "grammar_text", "HEAD", "head_parts"]
@@ -120,7 +121,17 @@ _BUILD = _Build()
 
 @lru_cache(maxsize=1)
 def _parser() -> Lark:
-    return Lark(grammar_text(), parser="lalr", transformer=_BUILD, maybe_placeholders=False, **_accelerated())
+    """The plan parser; its LALR tables read from the user's cache folder when an earlier run left them
+    there (:mod:`groundcheck.language.grammar_cache`), else compiled (and saved when the folder allows)."""
+    text = grammar_text()
+    options = dict(parser="lalr", transformer=_BUILD, maybe_placeholders=False, **_accelerated())
+    cache = cached_grammar_file(text, "lark-cython" if options.get("_plugins") else "")
+    if cache is not None:
+        try:
+            return Lark(text, cache=cache, **options)
+        except Exception:  # noqa: BLE001 - the cache only saves time: any trouble with it means none
+            pass
+    return Lark(text, **options)
 
 
 def _accelerated() -> dict:

@@ -3,7 +3,7 @@
 One place builds it (:func:`build_graph`); every topology analysis reads it.
 The graph ``G`` is a :class:`networkx.MultiGraph`; edge keys are conductor
 names and each edge holds its :class:`~groundcheck.model.records.Conductor` as
-``conductor``.  Hot paths on large plans use :mod:`scipy.sparse.csgraph`.
+``conductor``.  Hot paths on large plans use :mod:`scipy.sparse.csgraph` (imported for them).
 """
 
 from __future__ import annotations
@@ -13,8 +13,6 @@ from dataclasses import dataclass
 
 import networkx as nx
 import numpy as np
-import scipy.sparse as sp
-import scipy.sparse.csgraph as csgraph
 
 from ..model.records import Plan
 
@@ -49,12 +47,37 @@ def edges_of(G: nx.MultiGraph) -> list[tuple]:
     return out
 
 
+#: graphs of at most this many nodes get their connected parts by union-find in Python, sparing
+#: the import of scipy's graph routines (which bring its sparse solvers); larger ones use csgraph
+SMALL_GRAPH = 2000
+
+
 def part_labels(n: int, rows, cols) -> tuple[int, np.ndarray]:
-    """Connected parts of an undirected graph of ``n`` nodes with edges ``rows[i]``–``cols[i]`` (node indices):
-    (number of parts, the part label of each node), by scipy's csgraph. The one home of connected parts."""
-    A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
-    ncomp, labels = csgraph.connected_components(A, directed=False)
-    return int(ncomp), labels
+    """Connected parts of an undirected graph of ``n`` nodes with edges ``rows[i]``–``cols[i]``
+    (node indices): (number of parts, the part label of each node), the parts numbered by their
+    lowest node, as scipy's csgraph numbers them. The one home of connected parts."""
+    if n > SMALL_GRAPH:
+        import scipy.sparse as sp
+        import scipy.sparse.csgraph as csgraph
+        A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
+        ncomp, labels = csgraph.connected_components(A, directed=False)
+        return int(ncomp), labels
+    parent = list(range(n))
+
+    def root(i: int) -> int:
+        while parent[i] != i:
+            parent[i] = parent[parent[i]]
+            i = parent[i]
+        return i
+    for a, b in zip(np.asarray(rows).tolist(), np.asarray(cols).tolist()):
+        ra, rb = root(a), root(b)
+        if ra != rb:
+            parent[max(ra, rb)] = min(ra, rb)
+    labels = np.empty(n, dtype=np.int32)
+    number: dict[int, int] = {}
+    for i in range(n):
+        labels[i] = number.setdefault(root(i), len(number))
+    return len(number), labels
 
 
 def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list, np.ndarray, int]:

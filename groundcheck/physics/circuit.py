@@ -6,7 +6,8 @@ per fastening point joined by the plate's Kron-reduced network
 (:mod:`groundcheck.physics.plate`).
 
 The solve is complex nodal analysis, one sparse LU factorisation per
-frequency reused for every source (columns of the right-hand side).  Each
+frequency reused for every source (columns of the right-hand side); a network of
+at most :data:`~groundcheck.physics.factored.DENSE_NODES` nodes is solved dense.  Each
 connected part of the network is referenced at its own node: the mains
 inlet's protective terminal where the part holds it, else its first node in
 plan order.
@@ -23,12 +24,11 @@ from functools import cached_property
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from ..model.kinds import is_fastening_kind, is_lift
 from ..model.records import PE_POINT, Plan
 from ..network.graph import part_labels
-from .factored import Factored, Solution
+from .factored import DENSE_NODES, DenseFactors, Factored, Solution
 from .impedance import MATERIALS, MIN_IMPEDANCE, conductor_resistance, resistivity, skin_ratio
 from .plate import reduce_plate
 
@@ -185,6 +185,9 @@ class Circuit:
             if not np.iscomplexobj(vals) or not vals.imag.any():
                 vals = vals.real                 # DC, or no reactance: a real factorisation, about twice as fast
                 real = True
+            if m <= DENSE_NODES:                 # small: a dense LU, faster than SuperLU's set-up
+                return Factored(self, f, z, y, keep, DenseFactors(vals, rows, cols, m), real)
+            import scipy.sparse.linalg as spla   # only for a network too large for the dense solve
             Y = sp.csc_matrix((vals, (rows, cols)), shape=(m, m))
             # minimum-degree ordering on the symmetric pattern: about half the fill of the default on ground
             # networks.  Symmetric mode (the elimination tree of Y + Yᵀ, diagonal pivots preferred, threshold

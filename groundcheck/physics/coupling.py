@@ -15,7 +15,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse.csgraph as csgraph
 
 from ..model.kinds import SIGNAL
 from ..core.errors import Location
@@ -181,6 +180,7 @@ def pair_path(circuit: Circuit, a: str, b: str) -> list[tuple[int, float]]:
     References:
         Dijkstra's shortest path on resistances (scipy.sparse.csgraph).
     """
+    import scipy.sparse.csgraph as csgraph      # brings scipy's sparse solvers: only when needed
     n1, n2, *_ = circuit._arrays
     best, A = circuit.least_resistance_graph
     ia, ib = circuit.point_node[a], circuit.point_node[b]

@@ -11,10 +11,28 @@ from functools import cached_property
 
 import numpy as np
 
-__all__ = ["Factored", "Solution", "SOLVE_BLOCK"]
+__all__ = ["Factored", "Solution", "SOLVE_BLOCK", "DENSE_NODES", "DenseFactors"]
 
 #: right-hand sides solved together by the sparse LU factors (see :meth:`Factored._blocks`)
 SOLVE_BLOCK = 8
+#: networks of at most this many unknown node voltages are solved dense (numpy's LAPACK LU),
+#: without scipy's sparse LU: measured faster up to 40–85 nodes (less with several BLAS threads
+#: on a loaded machine) by ``benchmarks/bench_startup.py --solver``
+DENSE_NODES = 60
+
+
+class DenseFactors:
+    """A small admittance matrix held dense, with the ``solve`` of SuperLU's factors: LAPACK's LU
+    with partial pivoting (``numpy.linalg.solve``) made on each call, which for a few dozen nodes
+    costs less than building and factorising the sparse matrix once (and spares importing scipy's
+    sparse solvers)."""
+
+    def __init__(self, vals: np.ndarray, rows: np.ndarray, cols: np.ndarray, m: int):
+        self.Y = np.zeros((m, m), dtype=vals.dtype)
+        np.add.at(self.Y, (rows, cols), vals)   # duplicate entries add up, as in a sparse matrix
+
+    def solve(self, b: np.ndarray) -> np.ndarray:
+        return np.linalg.solve(self.Y, b)
 
 
 @dataclass

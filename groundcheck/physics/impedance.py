@@ -9,9 +9,9 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy import special
 
 from ..model.kinds import KINDS
+from .special_functions import bessel_skin_ratio
 
 __all__ = ["MATERIALS", "resistivity", "wire_inductance", "strip_inductance", "skin_depth",
            "skin_ratio", "MU0", "MIN_IMPEDANCE", "DEFAULT_SWITCH_CONTACT", "FASTENER_RADIUS",
@@ -113,9 +113,10 @@ def skin_depth(rho: float, frequency: float, mu_r: float = 1.0) -> float:
 def skin_ratio(radius, rho, frequency):
     """R_ac / R_dc of a round wire from the exact Bessel-function solution.
 
-    Z_int / R_dc = (k·r/2) · J₀(k·r) / J₁(k·r) with k = (1 − j)/δ; the real part is returned.
-    Works on numpy arrays of radii.  Exponentially scaled Bessel functions keep
-    it finite for r ≫ δ, where it tends to r/(2δ) + 1/4.
+    Z_int / R_dc = (k·r/2) · J₀(k·r) / J₁(k·r) with k = (1 − j)/δ; the real part is returned.  With
+    x = r/δ the ratio is a function of x alone, computed by :func:`bessel_skin_ratio` (power series
+    below x = 14, Hankel's asymptotic expansion above; both to about 1e-13).  It tends to
+    x/2 + 1/4 for r ≫ δ.  Works on numpy arrays of radii.
 
     Parameters:
         radius: m.
@@ -130,11 +131,9 @@ def skin_ratio(radius, rho, frequency):
     if frequency <= 0:
         return np.ones_like(radius)
     delta = skin_depth(rho, frequency) if np.isscalar(rho) else np.sqrt(np.asarray(rho) / (np.pi * frequency * MU0))
-    kr = (1 - 1j) * radius / delta
-    small = np.abs(kr) < 1e-3
-    kr_safe = np.where(small, 1.0 + 0j, kr)
-    ratio = (kr_safe / 2.0) * special.jve(0, kr_safe) / special.jve(1, kr_safe)
-    return np.where(small, 1.0, np.real(ratio))
+    x = radius / delta
+    small = x * math.sqrt(2.0) < 1e-3
+    return np.where(small, 1.0, np.real(bessel_skin_ratio(np.where(small, 1.0, x))))
 
 
 def conductor_resistance(c, temperature: float) -> tuple[float, float, float]:

@@ -27,6 +27,7 @@ import numpy as np
 
 from ..model.records import FieldSource
 from .plate_paths import passage_flow, passage_vector
+from .special_functions import ellipe, ellipk
 
 __all__ = ["segment_integral", "segment_vector", "path_vector", "path_flux", "loop_flux", "flux_density", "emf",
            "orientation", "min_distance", "ring_path_flux", "ring_passage_flux", "loop_fluxes", "AXES"]
@@ -180,7 +181,6 @@ def loop_flux(src: FieldSource, polygon, m=None) -> float:
 
 def _ring_potential(points: np.ndarray, radius: float, mu0_i: float, axis: np.ndarray) -> np.ndarray:
     """Vector potential (n × 3) of a circular current loop (radius, μ₀I, unit axis) centred at the origin."""
-    from scipy.special import ellipe, ellipk
     z = points @ axis
     radial = points - np.outer(z, axis)
     rho = np.linalg.norm(radial, axis=1)

@@ -27,7 +27,6 @@ from functools import lru_cache
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from .impedance import FASTENER_RADIUS
 
@@ -176,7 +175,8 @@ def _reduce(width, depth, sheet_g, contacts, radius, step):
     Lii = Lm[k:, k:].tocsc()
     if Lii.shape[0] == 0:
         return Lff, step
-    solve = spla.splu(Lii)
+    import scipy.sparse.linalg as spla          # only for a plate: plans without one never need it
+    solve = spla.splu(Lii, permc_spec="MMD_AT_PLUS_A")     # half the fill of the default on a grid
     X_ = solve.solve(Lfi.T.toarray())
     red = Lff - (Lfi @ X_)
     return 0.5 * (red + red.T), max(width / (nx - 1), depth / (ny - 1))

@@ -20,7 +20,6 @@ from functools import lru_cache
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from .impedance import FASTENER_RADIUS
 from .plate import contact_groups, grid_laplacian, grid_step
@@ -64,6 +63,7 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
     rhs = np.zeros((k - 1 + free.size, k))
     rhs[np.arange(k - 1), np.arange(1, k)] = 1.0
     phi = np.zeros((k + free.size, k))
+    import scipy.sparse.linalg as spla          # only for a plate: plans without one never need it
     phi[1:] = spla.splu(Lm).solve(rhs)
     node_phi = P @ phi                                               # n × k
     idx = np.arange(n).reshape(ny, nx)
