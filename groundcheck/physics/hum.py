@@ -8,7 +8,10 @@ the circuit is factorised once and solved for all sources together.
 Combining: rectifiers on the same mains have phases computed from the same
 mains reference, so they add as phasors; every other source (each stated
 current, each heater, each field source) has a phase unknown relative to the
-rest and adds in power.  Within one field source the loops add as phasors.
+rest and adds in power.  Within one field source the loops add as phasors: each
+frequency is solved once with a unit flux through each loop, and the sources'
+fluxes — for each channel its stated direction or the one worst at its output —
+are applied when the frequencies are merged (:mod:`groundcheck.physics.fieldhum`).
 A stage's output share is its pair voltage times its gain.  Whether a stage
 inverts is not in the plan, so a channel's level is the worst case: every
 stage's share added in magnitude (in phase).  The network's own signed sum,

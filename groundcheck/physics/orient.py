@@ -32,7 +32,8 @@ import numpy as np
 from .pickup import AXES, path_vector, ring_fluxes, ring_quadrature, ring_terms
 from .plate_paths import passage_flow, passage_vector
 
-__all__ = ["LoopFluxes", "source_fluxes", "fixed_fluxes", "worst_axis", "channel_objective", "GRID", "STEP_MIN"]
+__all__ = ["LoopFluxes", "source_fluxes", "fixed_fluxes", "worst_axis", "channel_objective", "stated_axis", "AXES",
+           "GRID", "STEP_MIN", "COARSE_POINTS"]
 
 #: directions of the starting grid over the hemisphere (about 18° apart)
 GRID = 64
@@ -280,5 +281,13 @@ def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
 
 
 def stated_axis(src) -> np.ndarray | None:
-    """A source's stated axis as a unit vector, or None for ``worst``."""
+    """A source's stated axis as a unit vector, or None for ``worst``.
+
+    Parameters:
+        src: a field source.
+    Returns:
+        the unit vector of its stated axis, or None.
+    References:
+        :data:`groundcheck.physics.pickup.AXES`.
+    """
     return np.array(AXES[src.axis]) if src.axis in AXES else None
