@@ -18,6 +18,7 @@ import math
 import numpy as np
 
 from .hearing import heard_threshold
+from .humtotals import FLOOR_V
 from .orient import AXES, channel_objective, stated_axis, worst_axis
 
 __all__ = ["field_pickup", "MEASURE_WEIGHTED", "MEASURE_RMS"]
@@ -60,9 +61,12 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
             continue
         for ch, ks in stages.items():
             parts = [(ratio * merged.pickup[f][0][ks], weight[f]) for f, ratio in spectrum]
+            if model.oriented and not any(np.any(G) for G, _ in parts):
+                continue                          # no stage of the channel reads any loop: nothing to add
             if model.oriented:
                 m, row = _channel_axis(model, parts, src, MEASURE_WEIGHTED if verdict else MEASURE_RMS)
-                out[ch].append(row)
+                if row["worst_level_v"] >= FLOOR_V:   # below, the source puts nothing at this output
+                    out[ch].append(row)
                 phi = model.fluxes(m)[0]
             else:
                 phi = model.fixed
@@ -114,7 +118,7 @@ def _loop_rows(b, merged, model, spectrum) -> None:
         if not model.oriented:
             m, phi = np.zeros(3), float(model.fixed[col])
         else:
-            m = stated if stated is not None else worst_axis(model.only(col), lambda p: p[:, 0] ** 2)[0]
+            m = stated if stated is not None else _loop_worst(model, col)
             phi = float(model.fluxes(m)[0, col])
         info = b.loops[li]
         row = merged.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes),
@@ -130,3 +134,17 @@ def _loop_rows(b, merged, model, spectrum) -> None:
             "per_frequency": [{"frequency_hz": f, "emf_v": 2 * math.pi * f * abs(ratio * phi),
                                "current_a": float(abs(ratio * phi * merged.pickup[f][1][col]))}
                               for f, ratio in spectrum]}
+
+
+def _loop_worst(model, col: int) -> np.ndarray:
+    """The direction that puts the most flux through one loop: for the dipole F/|F| (Cauchy–Schwarz, the flux
+    being F·m̂), for the ring the search."""
+    if model.F is None:
+        return worst_axis(model.only(col), lambda p: p[:, 0] ** 2)[0]
+    F = model.F[col]
+    norm = float(np.linalg.norm(F))
+    if norm == 0.0:
+        return np.array([0.0, 0.0, 1.0])
+    m = F / norm
+    k = int(np.argmax(np.abs(m)))
+    return m if m[k] > 0 else -m

@@ -14,8 +14,11 @@ deck: an orientation that would take it through the deck (its radius times the s
 height) is not considered.
 
 The maximum is found on a grid of directions over a hemisphere (Φ(−m̂) = −Φ(m̂) gives the same hum), the three
-axes among them, refined by a pattern search that halves its step down to 1e-5 rad; the result is never below
-any axis that the grid holds.
+axes among them, refined by a pattern search that halves its step down to 1e-8 rad; the result is never below
+any axis.  A ring with thousands of quadrature points (a loop through a plate, whose spread current is thousands
+of cells) is searched on merged points (:meth:`LoopFluxes.coarse`) and the direction found is then weighed with
+every point against the three axes: on the bundled examples it lies within 0.01 rad of the exact search's, its
+measure 4e-5 below.
 
 References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4–5.6 (the ring's and the dipole's
 potentials); ISO 226:2003 (threshold of hearing); R. Hooke and T. A. Jeeves, "Direct search solution of numerical
@@ -39,9 +42,9 @@ __all__ = ["LoopFluxes", "source_fluxes", "fixed_fluxes", "worst_axis", "channel
 GRID = 64
 #: a ring's quadrature points beyond which the search works on merged points (:meth:`LoopFluxes.coarse`)
 COARSE_POINTS = 4000
-#: the pattern search stops when its step falls below this, rad (the measure is then within about 1e-10 of its
-#: maximum, which is quadratic in the angle)
-STEP_MIN = 1e-5
+#: the pattern search stops when its step falls below this, rad (the measure is then within about 1e-15 of its
+#: maximum, which is quadratic in the angle: mirrored channels get equal figures to 1e-9)
+STEP_MIN = 1e-8
 
 
 @dataclass
