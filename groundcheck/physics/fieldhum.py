@@ -82,7 +82,9 @@ def _level(model, parts, m) -> float:
 
 def _channel_axis(model, parts, src, measure_name: str) -> tuple[np.ndarray, dict]:
     """The direction used for one channel (stated, or worst at its output) and the channel's row."""
-    worst, _ = worst_axis(model, channel_objective(parts))
+    worst = _quadratic_worst(model, parts)
+    if worst is None:
+        worst, _ = worst_axis(model, channel_objective(parts))
     stated = stated_axis(src)
     used = worst if stated is None else stated
     axes = {}
@@ -146,5 +148,20 @@ def _loop_worst(model, col: int) -> np.ndarray:
     if norm == 0.0:
         return np.array([0.0, 0.0, 1.0])
     m = F / norm
+    k = int(np.argmax(np.abs(m)))
+    return m if m[k] > 0 else -m
+
+
+def _quadratic_worst(model, parts) -> np.ndarray | None:
+    """For the dipole and a channel of one stage the measure is a quadratic form, Σ_f w·|c_f·m̂|² = m̂ᵀ·S·m̂ with
+    S = Σ_f w·Re(c̄_f c_fᵀ), c_f = G_f·F: its largest eigenvector, exactly (the Rayleigh quotient); else None."""
+    if model.F is None or any(G.shape[0] != 1 for G, _ in parts):
+        return None
+    S = np.zeros((3, 3))
+    for G, weight in parts:
+        c = (G @ model.F)[0]
+        S += weight * np.real(np.outer(np.conj(c), c))
+    w, V = np.linalg.eigh(S)
+    m = V[:, int(np.argmax(w))]
     k = int(np.argmax(np.abs(m)))
     return m if m[k] > 0 else -m
