@@ -197,6 +197,7 @@ def field_source(stmt: Statement):
         elif first.kind == "word" and first.value == "axis":
             r.word()
             kw["axis"] = r.word("an axis (x, y, z or worst)", ("x", "y", "z", "worst"))
+            axis_at = first.loc
         elif first.kind == "word" and first.value == "harmonic":
             r.word()
             n = r.number("a harmonic number")
@@ -211,6 +212,12 @@ def field_source(stmt: Statement):
         if need not in kw:
             raise PlanError(f"field needs {ex.split()[0] if need == 'pos' else 'its strength'}", stmt.loc,
                             f"e.g. ', {ex}'")
+    size, height = kw.get("size"), kw.get("height", 0.0)
+    if size is not None and kw.get("axis") in ("x", "y") and height < size / 2:
+        raise PlanError(f"a source of size {size * 1e3:g} mm with its axis {kw['axis']} at height {height * 1e3:g} mm "
+                        f"would reach {(size / 2 - height) * 1e3:g} mm through the deck", axis_at,
+                        f"give its centre's height (at least {size / 2 * 1e3:g} mm: half its size), a smaller "
+                        "size, or axis z")
     return FieldSource(name=name, harmonics=tuple(harmonics), location=stmt.loc, **kw), {}
 
 

@@ -2,11 +2,14 @@
 other, so a loop near the wiring links the flux between them.
 
 The pair is two polylines in a plane ``height`` above the deck, each offset half the ``spacing`` to either side
-of the stated centre line (mitred at the bends), carrying the heater's current in opposite senses.  A straight
-wire from P1 to P2 has the vector potential A = (μ₀I/4π)·ŝ·ln((R1 + R2 + L)/(R1 + R2 − L)) (R1, R2 the distances to
-its ends, L its length, ŝ its direction); the flux through a loop on the deck is ∮A·dl round the loop, evaluated by
-Gauss–Legendre quadrature on pieces that shorten near the wiring.  A twisted pair is no field source here: its
-field falls off exponentially beyond a few lay lengths (common practice).
+of the stated centre line (mitred at the bends), carrying the heater's current in opposite senses.  The circuit
+is closed at both ends: through the filament at the wiring's last point and through the winding at its first,
+each taken as a straight piece across the pair (the valve's heater pins and the winding's leads are about the
+pair's spacing apart), so that the current flows round one closed circuit, winding → pair → filament → back.
+A straight wire from P1 to P2 has the vector potential A = (μ₀I/4π)·ŝ·ln((R1 + R2 + L)/(R1 + R2 − L)) (R1, R2
+the distances to its ends, L its length, ŝ its direction); the flux through a loop on the deck is ∮A·dl round
+the loop, evaluated by Gauss–Legendre quadrature on pieces that shorten near the wiring.  A twisted pair is no
+field source here: its field falls off exponentially beyond a few lay lengths (common practice).
 
 References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4 (vector potential of a current); F. W.
 Grover, *Inductance Calculations*, 1946 (the straight filament's potential, as in the mutual inductance of
@@ -19,7 +22,7 @@ import math
 
 import numpy as np
 
-__all__ = ["pair_wires", "pair_path_flux", "pair_sources", "pair_geometry", "pair_closest", "MU0_4PI",
+__all__ = ["pair_wires", "pair_circuit", "pair_path_flux", "pair_sources", "pair_geometry", "pair_closest", "MU0_4PI",
            "DEFAULT_SPACING", "DEFAULT_HEIGHT"]
 
 MU0_4PI = 1e-7                      # μ₀/4π, H/m
@@ -59,6 +62,24 @@ def pair_wires(route, spacing: float, height: float) -> tuple[np.ndarray, np.nda
     return (np.hstack([pts + offs * spacing / 2, z]), np.hstack([pts - offs * spacing / 2, z]))
 
 
+def pair_circuit(route, spacing: float, height: float) -> np.ndarray:
+    """The heater's closed circuit as one polyline (K × 3, first point repeated at the end): out along one wire
+    from the winding (the route's first point) to the filament (its last), across the filament, back along the
+    other wire and across the winding.
+
+    Parameters:
+        route: the centre line's points on the deck, m (first: the winding's end; last: the filament's).
+        spacing: the distance between the wires, m.
+        height: the wiring's height above the deck, m.
+    Returns:
+        the closed polyline, K × 3.
+    References:
+        Kirchhoff's current law: the heater current closes through the filament and the winding.
+    """
+    out, back = pair_wires(route, spacing, height)
+    return np.vstack([out, back[::-1], out[:1]])
+
+
 def _potential(points: np.ndarray, wire: np.ndarray) -> np.ndarray:
     """Σ over the wire's segments of ŝ·ln((R1 + R2 + L)/(R1 + R2 − L)) at each point (N × 3): A/(μ₀I/4π)."""
     a, b = wire[:-1], wire[1:]
@@ -80,7 +101,8 @@ def _distance(points: np.ndarray, wire: np.ndarray) -> float:
 
 
 def pair_path_flux(route, spacing: float, height: float, current: float, pts) -> float:
-    """∫A·dl (Wb rms) of the heater pair along a polyline on the deck (closed for a loop's flux).
+    """∫A·dl (Wb rms) of the heater's closed circuit (:func:`pair_circuit`) along a polyline on the deck (closed
+    for a loop's flux).
 
     Parameters:
         route: the pair's centre line, m.
@@ -93,7 +115,7 @@ def pair_path_flux(route, spacing: float, height: float, current: float, pts) ->
     References:
         the module's references.
     """
-    out, back = pair_wires(route, spacing, height)
+    circuit = pair_circuit(route, spacing, height)
     t, w = np.polynomial.legendre.leggauss(_POINTS)
     total = 0.0
     for p, q in zip(pts, pts[1:]):
@@ -101,14 +123,13 @@ def pair_path_flux(route, spacing: float, height: float, current: float, pts) ->
         length = float(np.linalg.norm(q3 - p3))
         if length == 0.0:
             continue
-        near = max(min(_distance(np.array([p3, q3, (p3 + q3) / 2]), out),
-                       _distance(np.array([p3, q3, (p3 + q3) / 2]), back)), height, spacing / 2, 1e-4)
+        near = max(_distance(np.array([p3, q3, (p3 + q3) / 2]), circuit), height, spacing / 2, 1e-4)
         pieces = max(1, min(4000, int(math.ceil(length / (_PIECE * near)))))
         edges = p3 + (q3 - p3) * (np.arange(pieces + 1) / pieces)[:, None]
         x = (0.5 * (edges[:-1] + edges[1:]))[:, None, :] + (0.5 * (edges[1:] - edges[:-1]))[:, None, :] * t[None, :,
                                                                                                             None]
         x = x.reshape(-1, 3)
-        A = _potential(x, out) - _potential(x, back)
+        A = _potential(x, circuit)
         dl = (q3 - p3) / pieces
         total += float(np.sum((A @ dl).reshape(pieces, _POINTS) * w[None, :])) * 0.5
     return MU0_4PI * current * total
@@ -146,8 +167,8 @@ def pair_sources(heaters) -> list:
 
 
 def pair_closest(heater, polygon, samples: int = 32) -> float:
-    """The closest approach of a loop's outline to either wire of a heater's pair, m (each edge of the outline
-    sampled at ``samples`` pieces, the wires taken exactly).
+    """The closest approach of a loop's outline to the heater's circuit (either wire, or a closing end), m (each
+    edge of the outline sampled at ``samples`` pieces, the wires taken exactly).
 
     Parameters:
         heater: a Heater record with a route.
@@ -162,5 +183,5 @@ def pair_closest(heater, polygon, samples: int = 32) -> float:
     corners = np.array([[p[0], p[1], 0.0] for p in [*polygon, polygon[0]]])
     t = np.linspace(0, 1, samples + 1)[:, None]
     points = np.concatenate([p + t * (q - p) for p, q in zip(corners[:-1], corners[1:])])
-    return min(_distance(points, wire) for wire in pair_wires(heater.route, spacing, height))
+    return _distance(points, pair_circuit(heater.route, spacing, height))
 

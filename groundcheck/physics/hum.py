@@ -8,7 +8,10 @@ the circuit is factorised once and solved for all sources together.
 Combining: rectifiers on the same mains have phases computed from the same
 mains reference, so they add as phasors; every other source (each stated
 current, each heater, each field source) has a phase unknown relative to the
-rest and adds in power.  Within one field source the loops add as phasors.
+rest and adds in power.  Within one field source the loops add as phasors: each
+frequency is solved once with a unit flux through each loop, and the sources'
+fluxes — for each channel its stated direction or the one worst at its output —
+are applied when the frequencies are merged (:mod:`groundcheck.physics.fieldhum`).
 A stage's output share is its pair voltage times its gain.  Whether a stage
 inverts is not in the plan, so a channel's level is the worst case: every
 stage's share added in magnitude (in phase).  The network's own signed sum,
@@ -34,7 +37,9 @@ from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_so
 from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
-from .pickup import emf as emf_of, loop_fluxes, min_distance
+from .fieldhum import field_pickup
+from .orient import fixed_fluxes, source_fluxes
+from .pickup import min_distance
 from .plate_paths import loop_passages
 from .ranking import largest
 from .sweep import run_tasks
@@ -57,34 +62,26 @@ TASK_SOURCES = 512
 
 
 
-def _emf_columns(circuit, loops, fields, f0, f, names, flux):
-    """Series-EMF columns (branches × k) at frequency f: one per (loop, field source) with a harmonic at f.
+def _pickup_columns(circuit, loops, names) -> tuple[list, np.ndarray, np.ndarray]:
+    """The loops that take a series EMF (an outline, and a chord that is a branch): their indices, each one's chord
+    branch and the EMF's sign along it (+1 when the branch runs the loop's way).
 
-    ``names``: conductor name -> branch index; ``flux``: (loop index, source name) -> the source's flux through the
-    loop, Wb rms."""
-    cols, meta = [], []
+    ``names``: conductor name -> branch index."""
+    cols, branch, sign = [], [], []
     for li, info in enumerate(loops):
         if info.polygon is None:
             continue
         lp = info.loop
-        chord = lp.edges[lp.chord]
-        bi = names.get(chord)
+        bi = names.get(lp.edges[lp.chord])
         if bi is None:
             continue
         b = circuit.branches[bi]
         start = lp.nodes[lp.chord]
         forward = b.n1 == circuit.point_node.get(start) or b.n1 in circuit.nodes_of_metal(start)
-        for src in fields:
-            scale = {1: 1.0, **{n: ratio for n, ratio in src.harmonics}}
-            for n, ratio in scale.items():
-                if abs(n * f0 - f) > 1e-9:
-                    continue
-                phi = flux[(li, src.name)] * ratio
-                e = np.zeros(len(circuit.branches), dtype=complex)
-                e[bi] = -1j * 2 * math.pi * f * phi * (1.0 if forward else -1.0)
-                cols.append(e)
-                meta.append((li, src.name, phi))
-    return (np.array(cols).T if cols else np.zeros((len(circuit.branches), 0))), meta
+        cols.append(li)
+        branch.append(bi)
+        sign.append(1.0 if forward else -1.0)
+    return cols, np.array(branch, dtype=int), np.array(sign)
 
 
 @dataclass
@@ -93,8 +90,8 @@ class _FrequencyPart:
 
     out: list = field(default_factory=list)          # (channel, source group, phasor at the output)
     contrib: list = field(default_factory=list)      # (channel, contributor label, phasor)
-    # (loop index, field source, emf V, loop current A, per-stage phasors)
-    loops: list = field(default_factory=list)
+    # the loops' pickup per unit flux: (each stage's drop at the output, stages × loops; each loop's current)
+    pickup: tuple | None = None
     network: list = field(default_factory=list)      # rows of the JSON ``network`` section
     in_phase: list = field(default_factory=list)     # (channel, source group, Σ|stage drop·gain|): the worst case
     crosstalk: list = field(default_factory=list)    # (from channel, to channel, phasor)
@@ -181,19 +178,26 @@ class HumBudget:
         self.stage_b = np.array([circuit.point_node[stages[k].b] for k in self.valid_idx], dtype=int)
         self.stage_channel = np.array([channels.index(stages[k].channel) for k in self.valid_idx], dtype=int)
         self.across = [self.branch_index.get(s.across) if s.across else None for s in stages]
-        self.flux, self.orient, self.ring = loop_fluxes(plan.fields, loops, loop_passages(plan, circuit, loops))
-        for name, (_, h) in self.pairs.items():
-            spacing, height = pair_geometry(h)
-            for li, info in enumerate(loops):
-                if info.polygon is not None:
-                    self.flux[(li, name)] = pair_path_flux(h.route, spacing, height, h.current,
-                                                           [*info.polygon, info.polygon[0]])
-            self.orient[name] = np.zeros(3)
+        self.pick_loops, self.pick_branch, self.pick_sign = _pickup_columns(circuit, loops, self.branch_index)
+        self.models = self._flux_models(plan, circuit, loops) if self.pick_loops and self.sources else {}
         # a channel's own signal currents read by its own stages: at 1 kHz and the hum harmonics
         self.fb_sources = feedback_sources(self.signal_sources, stages)
         self.fb_freqs = set(freqs) | {FEEDBACK_AT} if self.fb_sources else set()
         xt = set(self.xt_freqs) if self.crosstalk_wanted else set()
         self.solve_at = sorted(set(freqs) | xt | self.fb_freqs)
+        self.pickup_freqs = {n * f0 for src in self.sources for n in [1] + [h for h, _ in src.harmonics]}
+
+    def _flux_models(self, plan, circuit, loops) -> dict:
+        """Each field source's and AC heater pair's flux through the loops that take an EMF, as a function of its
+        direction (:mod:`groundcheck.physics.orient`)."""
+        closed = {li: [*loops[li].polygon, loops[li].polygon[0]] for li in self.pick_loops}
+        passages = loop_passages(plan, circuit, loops)
+        models = {src.name: source_fluxes(src, closed, passages) for src in plan.fields}
+        for name, (_, h) in self.pairs.items():
+            spacing, height = pair_geometry(h)
+            models[name] = fixed_fluxes(self.fields[name], self.pick_loops, [
+                pair_path_flux(h.route, spacing, height, h.current, closed[li]) for li in self.pick_loops])
+        return models
 
     def closest(self, name: str, polygon) -> float:
         """A loop's closest approach to a field source's centre, or to an AC heater pair's wires, m."""
@@ -227,7 +231,8 @@ class HumBudget:
         merged = Merged(self)
         for f, part in sorted(parts, key=lambda fp: fp[0]):
             merged.add(f, part)
-        channels = {ch: merged.channel(ch) for ch in self.channels}
+        axes = field_pickup(self, merged)
+        channels = {ch: merged.channel(ch, axes.get(ch, [])) for ch in self.channels}
         if len(self.channels) > 1 and not self.signal_sources:
             self.notes.append("no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed")
         return HumResult(channels, list(self.rectifier_results.values()),
@@ -246,7 +251,7 @@ class HumBudget:
         active = self._active(f)[lo:hi]
         if active and self.stages and self.valid_idx.size:
             self._sources(f, fac, active, part)
-        if lo == 0 and self.loops and f in self.freqs:
+        if lo == 0 and self.loops and f in self.freqs and f in self.pickup_freqs:
             self._pickup(f, fac, part)
         if lo == 0 and self.crosstalk_wanted and f in self.xt_freqs:
             self._crosstalk(fac, part)
@@ -347,24 +352,21 @@ class HumBudget:
                                                      "drop_v": float(abs(i * fac.z[b]))} for b, i in zip(sig, I)]})
 
     def _pickup(self, f, fac, part) -> None:
-        """Each loop's EMF from each field source, the current it drives and the drop it leaves across each stage."""
-        loops, circuit = self.loops, self.circuit
-        E, meta = _emf_columns(circuit, loops, self.sources, self.f0, f, self.branch_index, self.flux)
-        if not meta:
+        """The drop a unit flux through each loop leaves across each stage (at the output: times its gain), and
+        the loop's current; the sources' fluxes and directions are applied when the frequencies are merged
+        (:func:`groundcheck.physics.fieldhum.field_pickup`)."""
+        if not self.models or not self.pick_loops:
             return
-        sol = fac.solve(np.zeros((len(circuit.nodes), E.shape[1])), emf=E)
-        drops = np.zeros((len(self.stages), E.shape[1]), dtype=complex)
+        circuit, n = self.circuit, len(self.pick_loops)
+        E = np.zeros((len(circuit.branches), n), dtype=complex)
+        E[self.pick_branch, np.arange(n)] = -1j * 2 * math.pi * f * self.pick_sign
+        sol = fac.solve(np.zeros((len(circuit.nodes), n)), emf=E)
+        drops = np.zeros((len(self.stages), n), dtype=complex)
         gains = self.gains_at(fac)
         for k in range(len(self.stages)):
             if self.valid_stage[k]:
                 drops[k] = path_drop(fac, sol, self.paths[k]) * gains[k]
-        for col, (li, src_name, phi) in enumerate(meta):
-            chord_i = self.branch_index[loops[li].loop.edges[loops[li].loop.chord]]
-            part.loops.append((li, src_name, emf_of(phi, f), float(abs(sol.I[chord_i, col])), drops[:, col]))
-            for ch in self.channels:
-                mags = [abs(drops[k, col]) for k, st in enumerate(self.stages)
-                        if self.valid_stage[k] and st.channel == ch]
-                part.in_phase.append((ch, f"field:{src_name}", float(sum(mags))))
+        part.pickup = (drops, sol.I[self.pick_branch, np.arange(n)])
 
     def _crosstalk(self, fac, part) -> None:
         circuit, gains = self.circuit, self.gains_at(fac)

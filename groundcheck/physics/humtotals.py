@@ -33,6 +33,7 @@ class ChannelHum:
     audible: bool | None
     margin_db: float | None              # worst SPL − threshold, dB (positive: audible)
     signed_v: float = 0.0                # the network's own sum, every stage taken as non-inverting
+    field_axes: list = field(default_factory=list)   # per field source: the direction used and the hum it gives
 
     @property
     def total_dbv(self) -> float:
@@ -47,7 +48,7 @@ class ChannelHum:
                 "total_signed_v": self.signed_v, "total_signed_dbv": rounded(dbv(self.signed_v)),
                 "signal_to_hum_db": rounded(self.signal_to_hum), "rated_output_v": self.rated_output,
                 "audible": self.audible, "margin_db": rounded(self.margin_db), "spectrum": self.spectrum,
-                "contributors": self.contributors}
+                "contributors": self.contributors, "field_axes": self.field_axes}
 
 
 def rounded(x, d=2):
@@ -104,6 +105,7 @@ class Merged:
         self.crosstalk_raw = defaultdict(complex)
         self.feedback_raw: dict = {}
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
+        self.pickup: dict = {}           # frequency -> the loops' drops and currents per unit flux
 
     def add(self, f: float, part) -> None:
         for ch, group, mag in part.in_phase:
@@ -115,40 +117,16 @@ class Merged:
         self.network_rows.extend(part.network)
         if part.probes is not None:
             self.probes[f] = self.probes.get(f, 0.0) + part.probes
-        for li, src_name, emf_v, current, drops in part.loops:
-            self._loop(f, li, src_name, emf_v, current, drops)
+        if part.pickup is not None:
+            self.pickup[f] = part.pickup
         for src_ch, dst_ch, v in part.crosstalk:
             self.crosstalk_raw[(src_ch, dst_ch, f)] += v
         for name, ch, total, ahead in part.feedback:
             self.feedback_raw[(name, ch, f)] = (total, ahead)
 
-    def _loop(self, f, li, src_name, emf_v, current, drops) -> None:
-        b = self.b
-        info = b.loops[li]
-        row = self.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes),
-                                             "closed_by": info.closed_by,
-                                             "area_mm2": round(info.area * 1e6, 2) if info.area is not None else None,
-                                             "sources": {}})
-        entry = row["sources"].get(src_name)
-        if entry is None:
-            src = b.fields[src_name]
-            entry = row["sources"][src_name] = {
-                "flux_density_equiv_t": abs(b.flux[(li, src_name)]) / info.area if info.area else None,
-                "closest_mm": round(b.closest(src_name, info.polygon) * 1e3, 1),
-                "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in b.orient[src_name]],
-                "axis_stated": src.axis, "model": ("two-wire line" if src.kind == "heater-wiring" else
-                          "ring" if (li, src_name) in b.ring else "dipole"),
-                "size_mm": None if src.size is None else round(src.size * 1e3, 3), "per_frequency": []}
-        entry["per_frequency"].append({"frequency_hz": f, "emf_v": emf_v, "current_a": current})
-        group = f"field:{src_name}"
-        label = ("loop", f"loop {li + 1}", group)
-        for k, st in enumerate(b.stages):
-            if b.valid_stage[k]:
-                self.out[st.channel][f][group] += drops[k]
-                self.contrib[st.channel][label][f] += drops[k]
-
-    def channel(self, ch: str) -> ChannelHum:
-        """A channel's spectrum (power sum of its groups per frequency), total, contributors and verdict."""
+    def channel(self, ch: str, axes=()) -> ChannelHum:
+        """A channel's spectrum (power sum of its groups per frequency), total, contributors and verdict; ``axes``:
+        each field source's direction for the channel (:func:`groundcheck.physics.fieldhum.field_pickup`)."""
         listening = self.b.listening
         spectrum = []
         total2 = signed2 = 0.0
@@ -175,7 +153,7 @@ class Merged:
         audible = None if worst is None else worst > 0
         if listening is not None and listening.verdict and worst is None:
             audible, worst = False, None
-        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2))
+        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2), list(axes))
 
     def levels(self) -> dict:
         """Each source group's worst-case level at each channel's output, V (see :attr:`HumResult.levels`)."""

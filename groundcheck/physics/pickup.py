@@ -1,18 +1,17 @@
 """Magnetic pickup: the flux a stray-field source puts through a loop, and the EMF it induces.
 
 A field source (power transformer, choke, mains wiring) is a magnetic dipole at its position, raised
-``height`` above the chassis plane, with its axis along x, y or z (normal to the deck) or, by default,
-the worst orientation: the one that puts the most flux through the plan's loops taken together (the
-principal direction of their flux vectors; one orientation per source, as a real transformer has one).
+``height`` above the chassis plane, with its axis along x, y or z (normal to the deck) or, by default, the
+orientation that is worst at each channel's output (chosen in :mod:`groundcheck.physics.orient`).
 Its strength is stated as the flux density B_ref at a distance r_ref on its equator, so that its vector
 potential is A = K·m̂ × R/|R|³ with K = B_ref·r_ref³ (the moment's μ₀m/4π).  The flux through a loop in
 the chassis plane is Φ = ∮A·dl, evaluated in closed form on each straight segment, so that large loops
 near the source are exact for the dipole (no uniform-field assumption).  The EMF is E = 2πf·Φ.
 
-The dipole law holds beyond a few times the source's size.  When the plan states the source's ``size``
-and a loop passes within that distance of its centre, the source is instead a circular current loop of
-that diameter with the same moment, whose vector potential is exact at any distance (complete elliptic
-integrals), integrated along the loop by Gauss–Legendre quadrature.
+When the plan states the source's ``size``, the source is a circular current loop of that diameter with the
+same moment at every distance (no switch between two models, so no jump in any figure as a loop crosses the
+size): its vector potential is exact at any distance (complete elliptic integrals) and tends to the dipole's
+far away; it is integrated along the loop by Gauss–Legendre quadrature.
 
 References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4 (the circular loop's vector potential,
 eq. 5.37) and §5.6 (the dipole's); W. R. Smythe, *Static and Dynamic Electricity*, 3rd ed., §7.10 (the
@@ -26,11 +25,10 @@ import math
 import numpy as np
 
 from ..model.records import FieldSource
-from .plate_paths import passage_flow, passage_vector
 from .special_functions import ellipe, ellipk
 
 __all__ = ["segment_integral", "segment_vector", "path_vector", "path_flux", "loop_flux", "flux_density", "emf",
-           "orientation", "min_distance", "ring_path_flux", "ring_passage_flux", "loop_fluxes", "AXES"]
+           "min_distance", "ring_quadrature", "ring_fluxes", "ring_terms", "ring_path_flux", "AXES"]
 
 #: the axes a source can be given, as unit vectors (x and y in the chassis plane, z normal to it)
 AXES = {"x": (1.0, 0.0, 0.0), "y": (0.0, 1.0, 0.0), "z": (0.0, 0.0, 1.0)}
@@ -121,30 +119,6 @@ def path_vector(src: FieldSource, pts) -> np.ndarray:
     return src.b_ref * src.r_ref ** 3 * total
 
 
-def orientation(src: FieldSource, vectors) -> np.ndarray:
-    """The source's moment direction: its stated axis, or for ``worst`` the unit vector that maximises the sum of
-    the squared fluxes through the loops whose flux vectors are given (the principal eigenvector of ΣF·Fᵀ).
-
-    Parameters:
-        src: a field source.
-        vectors: the flux vectors (:func:`path_vector` round each loop) of the plan's loops.
-    Returns:
-        a unit vector (x, y, z).
-    References:
-        the Rayleigh quotient: max over unit m of mᵀ·S·m is S's largest eigenvalue (common linear algebra).
-    """
-    if src.axis in AXES:
-        return np.array(AXES[src.axis])
-    vs = [np.asarray(v, dtype=float) for v in vectors]
-    S = sum((np.outer(v, v) for v in vs), np.zeros((3, 3)))
-    if not np.any(S):
-        return np.array(AXES["z"])
-    w, V = np.linalg.eigh(S)
-    m = V[:, int(np.argmax(w))]
-    k = int(np.argmax(np.abs(m)))
-    return m if m[k] > 0 else -m          # a sign of our choosing: the largest component positive
-
-
 def path_flux(src: FieldSource, pts, m=None) -> float:
     """∫A·dl along an open polyline (Wb) for the moment direction ``m`` (default: the source's axis, z if worst).
 
@@ -179,25 +153,113 @@ def loop_flux(src: FieldSource, polygon, m=None) -> float:
     return path_flux(src, pts + [pts[0]], m)
 
 
-def _ring_potential(points: np.ndarray, radius: float, mu0_i: float, axis: np.ndarray) -> np.ndarray:
-    """Vector potential (n × 3) of a circular current loop (radius, μ₀I, unit axis) centred at the origin."""
-    z = points @ axis
-    radial = points - np.outer(z, axis)
-    rho = np.linalg.norm(radial, axis=1)
-    out = np.zeros_like(points)
-    ok = rho > 1e-12 * radius
-    rho_, z_ = rho[ok], z[ok]
-    k2 = 4 * radius * rho_ / ((radius + rho_) ** 2 + z_ ** 2)
-    k2 = np.minimum(k2, 1 - 1e-15)
-    a_phi = mu0_i / (np.pi * np.sqrt(k2)) * np.sqrt(radius / rho_) * ((1 - k2 / 2) * ellipk(k2) - ellipe(k2))
-    phi_hat = np.cross(axis, radial[ok] / rho_[:, None])
-    out[ok] = a_phi[:, None] * phi_hat
+def ring_quadrature(src: FieldSource, pts, weight: float = 1.0) -> tuple[np.ndarray, np.ndarray]:
+    """Gauss–Legendre points along an open polyline, relative to the source's centre (N × 3, m), and their weighted
+    line elements (N × 3, m): ∫A·dl along the path is Σ A(Xᵢ)·Wᵢ.  Pieces shorten near the source (at most
+    RING_PIECE of their distance to it).
+
+    Parameters:
+        src: a field source with a size.
+        pts: the polyline's points in the chassis plane, m.
+        weight: a factor on every element (the current's share of a plate passage; −1 takes a chord back out).
+    Returns:
+        (points, elements).
+    References:
+        Gauss–Legendre quadrature (Abramowitz and Stegun, §25.4.29).
+    """
+    radius = src.size / 2
+    centre = np.array([src.pos[0], src.pos[1], src.height])
+    t, w = np.polynomial.legendre.leggauss(RING_POINTS)
+    xs, ws = [], []
+    for p, q in zip(pts, pts[1:]):
+        p3, q3 = np.array([p[0], p[1], 0.0]) - centre, np.array([q[0], q[1], 0.0]) - centre
+        length = float(np.linalg.norm(q3 - p3))
+        if length == 0.0:
+            continue
+        near = max(_segment_distance(p3, q3), radius * 0.05)
+        pieces = max(1, int(math.ceil(length / (RING_PIECE * near))))
+        edges = p3 + (q3 - p3) * (np.arange(pieces + 1) / pieces)[:, None]
+        half = 0.5 * (edges[1:] - edges[:-1])
+        xs.append(((0.5 * (edges[1:] + edges[:-1]))[:, None, :] + half[:, None, :] * t[None, :, None]).reshape(-1, 3))
+        ws.append((half[:, None, :] * (weight * w)[None, :, None]).reshape(-1, 3))
+    if not xs:
+        return np.zeros((0, 3)), np.zeros((0, 3))
+    return np.concatenate(xs), np.concatenate(ws)
+
+
+def _ring_factor(rho: np.ndarray, z: np.ndarray, radius: float, mu0_i: float) -> np.ndarray:
+    """A_φ/ρ of a circular current loop (radius, μ₀I) at cylindrical (ρ, z) about its axis (arrays alike)."""
+    s = (radius + rho) ** 2 + z ** 2
+    k2 = np.minimum(4 * radius * rho / s, 1 - 1e-15)
+    out = np.empty_like(rho)
+    small = k2 < 1e-3
+    # near the axis (k² small): A_φ = μ₀I·a²ρ/(4 D³)·(1 + 15a²ρ²/(8 D⁴)), D² = a² + ρ² + z², the first terms of
+    # the ring's expansion in a²ρ²/D⁴ (Jackson §5.5), free of the cancellation in (1 − k²/2)K − E; below k² = 1e-3
+    # it agrees with the elliptic form to 1e-12 (checked with 40-digit arithmetic while writing this)
+    D2 = radius ** 2 + rho[small] ** 2 + z[small] ** 2
+    out[small] = mu0_i * radius ** 2 / (4 * D2 ** 1.5) * (1 + 15 * radius ** 2 * rho[small] ** 2 / (8 * D2 ** 2))
+    big = ~small
+    k2b, rb = k2[big], rho[big]
+    out[big] = (mu0_i / (np.pi * np.sqrt(k2b)) * np.sqrt(radius / rb) * ((1 - k2b / 2) * ellipk(k2b) - ellipe(k2b))
+                / rb)
     return out
 
 
+def ring_fluxes(src: FieldSource, X: np.ndarray, W: np.ndarray, M, groups=None, count: int = 1,
+                terms: tuple | None = None) -> np.ndarray:
+    """Σ A(Xᵢ)·Wᵢ of the source taken as a circular current loop of diameter ``src.size`` with the moment of the
+    dipole (μ₀I = 4K/a², a the radius), for each unit axis in M (n × 3): one flux per axis and group of points.
+
+    With A = (A_φ/ρ)·m̂ × X (X from the ring's centre, ρ its distance from the axis), A·W = (A_φ/ρ)·m̂·(X × W).
+
+    Parameters:
+        src: a field source with a size.
+        X, W: quadrature points and elements (:func:`ring_quadrature`).
+        M: unit axes, n × 3.
+        groups: each point's group (a loop's index), 0 … count − 1; None: one group.
+        count: the number of groups.
+        terms: :func:`ring_terms` of the same points, when the caller keeps them.
+    Returns:
+        n × count fluxes, Wb rms.
+    References:
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., eq. 5.37; W. R. Smythe, *Static and Dynamic
+        Electricity*, §7.10 (A_φ = μ₀I/(πk)·√(a/ρ)·[(1 − k²/2)K(k) − E(k)]).
+    """
+    M = np.atleast_2d(np.asarray(M, dtype=float))
+    radius = src.size / 2
+    mu0_i = 4 * src.b_ref * src.r_ref ** 3 / radius ** 2
+    C, r2, onehot = ring_terms(X, W, groups, count) if terms is None else terms
+    out = np.zeros((len(M), count))
+    for lo in range(0, len(M), 16):
+        m = M[lo:lo + 16]
+        Z = X @ m.T
+        rho = np.sqrt(np.maximum(r2[:, None] - Z * Z, 0.0))
+        g = _ring_factor(rho.ravel(), Z.ravel(), radius, mu0_i).reshape(Z.shape) * (C @ m.T)
+        out[lo:lo + len(m)] = (onehot @ g).T
+    return out
+
+
+def ring_terms(X: np.ndarray, W: np.ndarray, groups=None, count: int = 1) -> tuple:
+    """What :func:`ring_fluxes` reads of its points for every axis: X × W, |X|² and the points' groups as a
+    (sparse) matrix.
+
+    Parameters:
+        X, W: quadrature points and elements.
+        groups: each point's group, or None.
+        count: the number of groups.
+    Returns:
+        (X × W, |X|², groups × points matrix).
+    References:
+        none (bookkeeping).
+    """
+    import scipy.sparse as sp
+    groups = np.zeros(len(X), dtype=int) if groups is None else np.asarray(groups)
+    onehot = sp.csr_matrix((np.ones(len(X)), (groups, np.arange(len(X)))), shape=(count, len(X)))
+    return np.cross(X, W), np.einsum("ij,ij->i", X, X), onehot
+
+
 def ring_path_flux(src: FieldSource, pts, m) -> float:
-    """∫A·dl (Wb) along an open polyline of the source taken as a circular current loop of diameter ``src.size``
-    with the moment of the dipole (μ₀I = 4K/a², a the radius) and axis ``m``.
+    """∫A·dl (Wb) along an open polyline of the source taken as a ring of diameter ``src.size`` with axis ``m``.
 
     Parameters:
         src: a field source with a size.
@@ -206,52 +268,11 @@ def ring_path_flux(src: FieldSource, pts, m) -> float:
     Returns:
         the flux share the path carries, Wb rms.
     References:
-        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., eq. 5.37; W. R. Smythe, *Static and Dynamic
-        Electricity*, §7.10 (A_φ = μ₀I/(πk)·√(a/ρ)·[(1 − k²/2)K(k) − E(k)]); Gauss–Legendre quadrature.
+        :func:`ring_fluxes`, :func:`ring_quadrature`.
     """
-    radius = src.size / 2
-    mu0_i = 4 * src.b_ref * src.r_ref ** 3 / radius ** 2
-    centre = np.array([src.pos[0], src.pos[1], src.height])
-    axis = np.asarray(m, dtype=float) / np.linalg.norm(m)
-    t, w = np.polynomial.legendre.leggauss(RING_POINTS)
-    total = 0.0
-    for p, q in zip(pts, pts[1:]):
-        p3, q3 = np.array([p[0], p[1], 0.0]) - centre, np.array([q[0], q[1], 0.0]) - centre
-        length = float(np.linalg.norm(q3 - p3))
-        if length == 0.0:
-            continue
-        near = max(_segment_distance(p3, q3), radius * 0.05)
-        pieces = max(1, int(math.ceil(length / (RING_PIECE * near))))
-        for i in range(pieces):
-            a3 = p3 + (q3 - p3) * (i / pieces)
-            b3 = p3 + (q3 - p3) * ((i + 1) / pieces)
-            x = 0.5 * (a3 + b3)[None, :] + 0.5 * (b3 - a3)[None, :] * t[:, None]
-            A = _ring_potential(x, radius, mu0_i, axis)
-            total += float(w @ (A @ (b3 - a3))) * 0.5
-    return total
-
-
-def ring_passage_flux(src: FieldSource, metal, spots: list, enter: int, leave: int, m) -> float:
-    """The ring model's flux (Wb) along a loop's passage through a plate, the current spread over the plate (see
-    :func:`groundcheck.physics.plate_paths.passage_vector`, the dipole's).
-
-    Parameters:
-        src: a field source with a size.
-        metal: the metal part.
-        spots: the plate's fastening positions, m.
-        enter, leave: the passage's spots.
-        m: the ring's unit axis.
-    Returns:
-        the flux, Wb rms.
-    References:
-        :func:`ring_path_flux`; :mod:`groundcheck.physics.plate_paths`.
-    """
-    mids, vecs, flow = passage_flow(metal, spots, enter, leave)
-    radius = src.size / 2
-    centre = np.array([src.pos[0], src.pos[1], src.height])
-    pts = np.column_stack([mids, np.zeros(len(mids))]) - centre
-    A = _ring_potential(pts, radius, 4 * src.b_ref * src.r_ref ** 3 / radius ** 2, np.asarray(m, float))
-    return float(flow @ (A[:, 0] * vecs[:, 0] + A[:, 1] * vecs[:, 1]))
+    X, W = ring_quadrature(src, pts)
+    m = np.asarray(m, dtype=float)
+    return float(ring_fluxes(src, X, W, m / np.linalg.norm(m))[0, 0])
 
 
 def _segment_distance(p3: np.ndarray, q3: np.ndarray) -> float:
@@ -289,40 +310,3 @@ def min_distance(src: FieldSource, polygon) -> float:
     centre = np.array([src.pos[0], src.pos[1], src.height])
     pts = [np.array([p[0], p[1], 0.0]) - centre for p in polygon]
     return min((_segment_distance(p, q) for p, q in zip(pts, pts[1:] + pts[:1])), default=math.inf)
-
-
-def loop_fluxes(fields, loops, passages: dict | None = None) -> tuple[dict, dict, set]:
-    """Each (loop, source)'s flux, each source's moment direction, and the pairs taken with the ring model.
-
-    Parameters:
-        fields: the plan's field sources.
-        loops: the loops (each with its ``polygon``, or None when its conductors have no positions).
-        passages: loop index -> its passages through plates, (metal, spots, enter, leave): their flux is taken
-            along the plate's spread current instead of the straight chord between the two spots.
-    Returns:
-        (loop index, source name) -> flux, Wb rms; source name -> unit moment vector (its axis, or the worst for
-        the plan's loops together); the set of (loop index, source name) computed with the ring model (a loop
-        within the source's size).
-    References:
-        :func:`path_vector`, :func:`orientation`, :func:`ring_path_flux`.
-    """
-    flux, orient, ring = {}, {}, set()
-    closed = {li: [*info.polygon, info.polygon[0]] for li, info in enumerate(loops) if info.polygon is not None}
-    for src in fields:
-        vectors = {li: path_vector(src, pts) for li, pts in closed.items()}
-        for li, items in (passages or {}).items():
-            if li in vectors:
-                for metal, spots, enter, leave in items:
-                    vectors[li] = (vectors[li] + passage_vector(src, metal, spots, enter, leave)
-                                   - path_vector(src, [spots[enter], spots[leave]]))
-        m = orient[src.name] = orientation(src, vectors.values())
-        for li, v in vectors.items():
-            flux[(li, src.name)] = float(v @ m)
-            if src.size is not None and min_distance(src, loops[li].polygon) < src.size:
-                phi = ring_path_flux(src, closed[li], m)
-                for metal, spots, enter, leave in (passages or {}).get(li, ()):
-                    phi += (ring_passage_flux(src, metal, spots, enter, leave, m)
-                            - ring_path_flux(src, [spots[enter], spots[leave]], m))
-                flux[(li, src.name)] = phi
-                ring.add((li, src.name))
-    return flux, orient, ring

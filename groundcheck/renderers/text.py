@@ -20,6 +20,7 @@ from ..core.plain import readable
 from ..core.units import db_of_ratio, dbv, format_si
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
+from .fieldtable import field_axes_table
 
 __all__ = ["print_report", "text_report", "figure_words", "CAUTION"]
 
@@ -176,6 +177,7 @@ def _hum_tables(result: Result, console: Console) -> None:
     for note in result.hum.notes:
         console.print(Text(f"  note: {note}", style="dim"))
     console.print()
+    field_axes_table(result.hum.channels, console)
     if result.hum.loops:
         _pickup_table(result, console)
 
@@ -197,7 +199,8 @@ def _rectifier_table(result: Result, console: Console) -> None:
 
 
 def axis_words(axis: list[float], stated: str) -> str:
-    """'z', or 'worst: (0.31, -0.52, 0.8)': the moment direction a loop's pickup was computed with."""
+    """'z', or 'worst: (0.31, -0.52, 0.8)': the moment direction a loop's pickup was computed with (for ``worst``,
+    the direction that puts the most flux through that loop)."""
     if stated == "pair":
         return "heater pair"
     named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(tuple(abs(x) for x in axis))
