@@ -203,7 +203,8 @@ def measure(path: str, channel: int = 0, stated: float | None = None, fallback: 
     sp = _Spectra(fmt, channel, progress)
     f0, nominal, found = _mains(sp, stated, fallback)
     sp.f0 = f0
-    scale = volts_per_unit if volts_per_unit is not None else 1.0
+    # volts, or without a calibration the rms of a full-scale sine (dBFS as AES17 counts it: 1.0 peak is 0 dB)
+    scale = volts_per_unit if volts_per_unit is not None else math.sqrt(2)
     lines = []
     for k in range(1, harmonic_count(f0, fmt.rate, max_frequency) + 1):
         level, noise = sp.line(k * f0)

@@ -20,8 +20,8 @@ class Clipping:
 
 @dataclass(frozen=True)
 class LineLevel:
-    """One harmonic of the mains measured in the recording (levels in volts when calibrated, else in digital
-    full-scale units: 1.0 is the rms of a full-scale sine times √2, i.e. a sample value)."""
+    """One harmonic of the mains measured in the recording (rms levels in volts when calibrated, else relative to
+    the rms of a full-scale sine: dBFS as AES17 counts it)."""
 
     harmonic: int
     frequency_hz: float
