@@ -41,6 +41,8 @@ FLAT_TOP = (0.21557895, 0.41663158, 0.277263158, 0.083578947, 0.006947368)
 HANN = (0.5, 0.5)
 #: a line is measured when it stands this much (power ratio) above the noise in its bandwidth: 6 dB
 ABOVE_NOISE = 4.0
+#: the chance a bin of noise alone is taken for a line
+FALSE_LINE = 1e-6
 
 
 class _Spectra:
@@ -79,14 +81,24 @@ class _Spectra:
         self.gain = float(self.flat.sum())                       # N × coherent gain
         self.enbw_hz = self.rate * float((self.flat ** 2).sum()) / self.gain ** 2
 
-    def line(self, f: float) -> tuple[float, float]:
-        """(rms level, rms noise in the window's bandwidth) of the line nearest f, full-scale units."""
+    def line(self, f: float) -> tuple[float, float, bool]:
+        """(rms level, rms noise in the window's bandwidth, whether it stands above the noise) of the line nearest
+        f, full-scale units."""
         c = int(round(f * SEGMENT_S))
         lo, hi = max(c - 2, 1), min(c + 2, self.flat_power.size - 1)
         peak = float(self.flat_power[lo:hi + 1].max())
         noise = self.noise_power(c)
         level2 = max(peak - noise, 0.0)
-        return math.sqrt(2 * level2) / self.gain, math.sqrt(2 * noise) / self.gain
+        return math.sqrt(2 * level2) / self.gain, math.sqrt(2 * noise) / self.gain, peak >= self.threshold * noise
+
+    @property
+    def threshold(self) -> float:
+        """The power ratio over the mean noise a line must reach: 6 dB above it (five times the mean, the line's
+        own power four times the noise's), or more when few segments were averaged: the mean of M noise
+        periodograms is Gamma-distributed with shape M, and the ratio is set where a noise bin passes it once in
+        a million (so a hundred lines of five bins each hold a false line once in two thousand recordings)."""
+        from scipy.special import gammainccinv
+        return max(ABOVE_NOISE + 1, float(gammainccinv(self.segments, FALSE_LINE)) / self.segments)
 
     def noise_power(self, c: int) -> float:
         """The mean averaged bin power 8 to 20 bins either side of bin c, other mains lines' lobes left out."""
@@ -207,8 +219,8 @@ def measure(path: str, channel: int = 0, stated: float | None = None, fallback: 
     scale = volts_per_unit if volts_per_unit is not None else math.sqrt(2)
     lines = []
     for k in range(1, harmonic_count(f0, fmt.rate, max_frequency) + 1):
-        level, noise = sp.line(k * f0)
-        lines.append(LineLevel(k, k * f0, level * scale, noise * scale, level ** 2 >= ABOVE_NOISE * noise ** 2))
+        level, noise, above = sp.line(k * f0)
+        lines.append(LineLevel(k, k * f0, level * scale, noise * scale, above))
     density = math.sqrt(np.median([ln.noise ** 2 for ln in lines]) / sp.enbw_hz) if lines else 0.0
     return Measured(path, fmt.rate, fmt.channels, channel, fmt.bits, fmt.floating, fmt.seconds, sp.segments,
                     1 / SEGMENT_S, f0, nominal, found and any(ln.above_noise for ln in lines), tuple(lines),
@@ -232,7 +244,7 @@ def tone_level(path: str, channel: int = 0) -> float:
         channel = 0
     sp = _Spectra(fmt, channel, None)
     j = 10 + int(np.argmax(sp.flat_power[10:]))
-    level, _ = sp.line(j / SEGMENT_S)
+    level, _, _ = sp.line(j / SEGMENT_S)
     if sp.clipping is not None:
         raise RecordingError("the calibration tone is clipped", _loc(fmt), "record the tone at a lower level")
     return level

@@ -27,7 +27,7 @@ class LineLevel:
     frequency_hz: float
     level: float                  # rms
     noise: float                  # rms of the noise in the line's own bandwidth (the window's ENBW)
-    above_noise: bool             # the line stands 6 dB or more above that noise
+    above_noise: bool             # 6 dB or more above that noise (more with few segments: lines.py)
 
 
 @dataclass(frozen=True)

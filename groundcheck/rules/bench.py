@@ -102,7 +102,8 @@ def rule_bonds(facts: BenchFacts) -> list[Finding]:
             out.append(Finding("GC403", "danger", f"{b.a} to {b.b} measures {_ohm(b.measured)}, over the "
                                f"protective bonding limit of {_ohm(b.limit)}: do not use the equipment",
                                b.location, pair + b.joints[:3], figures,
-                               f"re-make the protective bond ({joints}) and measure again"))
+                               f"re-make the protective bond{f' ({joints})' if joints else ''} and measure "
+                               "again; have it checked by a qualified person"))
         elif verdict == "not in plan":
             out.append(Finding("GC404", "warning", f"{b.a} to {b.b} measures {_ohm(b.measured)}, but the plan "
                                "does not join them: the build has a connection the plan does not describe",
