@@ -1,6 +1,9 @@
-"""Which conductor to suspect: recordings synthesised from each example's own predicted spectrum, one contributor
-scaled ×10, must name that contributor's mechanism first (and the contributor itself where its shape is its
-own); an unscaled recording matches the plan; a line nothing in the plan makes is said to be unexplained; the
+"""Which conductor to suspect: recordings synthesised from each example's own predicted spectrum,
+one contributor
+scaled ×10, must name that contributor's mechanism first (and the contributor itself where its
+shape is its
+own); an unscaled recording matches the plan; a line nothing in the plan makes is said to be
+unexplained; the
 fit's scale is the weighted least-squares solution worked by hand."""
 
 import math
@@ -16,8 +19,12 @@ from groundcheck.measure.lines import measure
 from helpers import ROOT
 
 RATE = 12000
-EXAMPLES = ["guitar-head.gplan", "headphone-amp-100v.gplan", "dual-mono-phono-stage.gplan",
-            "studio/project-studio.gplan"]
+EXAMPLES = [
+    "guitar-head.gplan",
+    "headphone-amp-100v.gplan",
+    "dual-mono-phono-stage.gplan",
+    "studio/project-studio.gplan",
+]
 _RESULTS: dict = {}
 
 
@@ -28,10 +35,11 @@ def _result(name):
 
 
 def _spectrum(hum, scale: dict, phases: bool) -> dict:
-    """Each frequency's level: the contributors' predicted levels scaled, added in phase (the fit's model) or as
+    """Each frequency's level: the contributors' predicted levels scaled, added in phase (the
+    fit's model) or as
     the plan's phasors (the network's own sum)."""
     out: dict = {}
-    for (kind, name, group), per_f in hum.lines.items():
+    for (_kind, name, _group), per_f in hum.lines.items():
         k = scale.get(name, 1.0)
         for f, p in per_f.items():
             out[f] = out.get(f, 0) + k * (p if phases else abs(p))
@@ -39,12 +47,18 @@ def _spectrum(hum, scale: dict, phases: bool) -> dict:
 
 
 def _record(tmp_path, result, channel, spectrum, extra=None, calibrated=True):
-    """Synthesise the spectrum (volts) at −20 dBFS for its largest line, measure it, and compare with the plan."""
+    """Synthesise the spectrum (volts) at −20 dBFS for its largest line, measure it, and compare
+    with the plan."""
     volts_per_unit = max(spectrum.values()) * 10 * math.sqrt(2)
     lines = {f: v / volts_per_unit for f, v in {**spectrum, **(extra or {})}.items()}
     write(tmp_path / "rec.wav", tones(lines, RATE, 2.0, noise=1e-7), RATE)
-    m = measure(str(tmp_path / "rec.wav"), fallback=result.plan.frequency, max_frequency=5000.0,
-                volts_per_unit=volts_per_unit if calibrated else None, calibration="synthetic")
+    m = measure(
+        str(tmp_path / "rec.wav"),
+        fallback=result.plan.frequency,
+        max_frequency=5000.0,
+        volts_per_unit=volts_per_unit if calibrated else None,
+        calibration="synthetic",
+    )
     return bench_record(result, m, channel)
 
 
@@ -57,8 +71,14 @@ def _cases():
             for m in mechs:
                 for label, _ in m.members[:2]:
                     if "other conductors" not in label:
-                        out.append((name, ch, label.split()[-1] if label.startswith("conductor") else label,
-                                    len(m.members)))
+                        out.append(
+                            (
+                                name,
+                                ch,
+                                label.split()[-1] if label.startswith("conductor") else label,
+                                len(m.members),
+                            )
+                        )
     return out
 
 
@@ -70,14 +90,20 @@ def test_every_example_gives_cases():
 
 
 @pytest.mark.parametrize("phases", [False, True], ids=["in-phase", "plan-phasors"])
-@pytest.mark.parametrize("example,channel,target,shared", CASES, ids=[f"{c[0]}-{c[1]}-{c[2]}" for c in CASES])
-def test_a_contributor_scaled_ten_times_is_named_first(tmp_path, example, channel, target, shared, phases):
+@pytest.mark.parametrize(
+    "example,channel,target,shared", CASES, ids=[f"{c[0]}-{c[1]}-{c[2]}" for c in CASES]
+)
+def test_a_contributor_scaled_ten_times_is_named_first(
+    tmp_path, example, channel, target, shared, phases
+):
     result = _result(example)
     spectrum = _spectrum(result.hum.channels[channel], {target: 10.0}, phases)
     rec = _record(tmp_path, result, channel, spectrum)
     first = rec.channels[0].suspects[0]
-    assert any(m == target or m.startswith(f"conductor {target}") or m.startswith(f"{target} (")
-               for m in first.members), (first.members, target)
+    assert any(
+        m == target or m.startswith(f"conductor {target}") or m.startswith(f"{target} (")
+        for m in first.members
+    ), (first.members, target)
     if shared == 1:
         # a shape of its own: it is named first by name, and the fit puts it 20 dB above the plan
         assert first.members[0].split(" (")[0].split()[-1] == target.split()[-1]
@@ -113,7 +139,8 @@ def test_a_line_nothing_in_the_plan_makes_is_unexplained(tmp_path):
 
 
 def test_the_fit_is_the_weighted_least_squares_worked_by_hand(tmp_path):
-    # the guitar head's two mechanisms have lines of their own (50 Hz; 100 Hz and up), so each scale is the
+    # the guitar head's two mechanisms have lines of their own (50 Hz; 100 Hz and up), so
+    # each scale is the
     # relative-weighted least-squares solution of one column: a = Σ(p/m) / Σ(p/m)² over its lines
     result = _result("guitar-head.gplan")
     hum = result.hum.channels["guitar"]
@@ -124,10 +151,14 @@ def test_the_fit_is_the_weighted_least_squares_worked_by_hand(tmp_path):
         wobble[f] = spectrum[f] * (1 + 0.2 * rng.uniform(-1, 1))
     rec = _record(tmp_path, result, "guitar", wobble)
     ch = rec.channels[0]
-    planned = {f: abs(p) for f, p in hum.lines[("conductor", "k_gnd", "rectifier charging")].items()}
-    rows = [r for r in ch.rows if r.above_noise and r.plan_frequency_hz in planned and r.harmonic > 1]
+    planned = {
+        f: abs(p) for f, p in hum.lines[("conductor", "k_gnd", "rectifier charging")].items()
+    }
+    rows = [
+        r for r in ch.rows if r.above_noise and r.plan_frequency_hz in planned and r.harmonic > 1
+    ]
     ratio = np.array([planned[r.plan_frequency_hz] / r.measured for r in rows])
-    hand = ratio.sum() / (ratio ** 2).sum()
+    hand = ratio.sum() / (ratio**2).sum()
     [k_gnd] = [s for s in ch.suspects if s.members == ("conductor k_gnd",)]
     assert k_gnd.scale == pytest.approx(hand, rel=0.02)
 

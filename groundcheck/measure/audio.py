@@ -1,9 +1,13 @@
 """Reading a recording: a WAV file's format, and its samples in blocks of bounded size.
 
-Integer PCM of 8, 16 and 32 bits and IEEE float are read with :func:`scipy.io.wavfile.read` memory-mapped, only
-to learn the format and where the samples lie; the samples themselves are then read block by block with
-:func:`numpy.fromfile` at that offset, so an hour-long file never sits in memory (a memory map's touched pages
-would count against the process). 24-bit PCM, which scipy cannot map, is read in blocks of frames by the standard
+Integer PCM of 8, 16 and 32 bits and IEEE float are read with :func:`scipy.io.wavfile.read`
+memory-mapped, only
+to learn the format and where the samples lie; the samples themselves are then read block by block
+with
+:func:`numpy.fromfile` at that offset, so an hour-long file never sits in memory (a memory map's
+touched pages
+would count against the process). 24-bit PCM, which scipy cannot map, is read in blocks of frames
+by the standard
 library's :mod:`wave`.  Samples are returned as float64 in digital full-scale units (±1.0).
 """
 
@@ -23,7 +27,8 @@ __all__ = ["WavFormat", "RecordingError", "wav_format", "blocks", "clipping_of"]
 
 
 class RecordingError(PlanError):
-    """A recording that cannot be used: not a WAV file, truncated, silent, too short, no such channel."""
+    """A recording that cannot be used: not a WAV file, truncated, silent, too short, no such
+    channel."""
 
 
 @dataclass(frozen=True)
@@ -31,13 +36,13 @@ class WavFormat:
     """Where and how a WAV file holds its samples."""
 
     path: str
-    rate: int                 # samples per second
+    rate: int  # samples per second
     channels: int
-    frames: int               # samples per channel
+    frames: int  # samples per channel
     bits: int
     floating: bool
-    dtype: str                # numpy dtype of one sample as stored ("<i2", "<f4", ...; "24" for 24-bit PCM)
-    offset: int               # byte offset of the first sample (0 for 24-bit: read through wave)
+    dtype: str  # numpy dtype of one sample as stored ("<i2", "<f4", ...; "24" for 24-bit PCM)
+    offset: int  # byte offset of the first sample (0 for 24-bit: read through wave)
 
     @property
     def seconds(self) -> float:
@@ -54,7 +59,8 @@ def _bad(path: str, message: str, hint: str) -> RecordingError:
 
 
 def wav_format(path: str) -> WavFormat:
-    """The format of the WAV file at ``path``; a located error for anything that is not a readable WAV file.
+    """The format of the WAV file at ``path``; a located error for anything that is not a readable
+    WAV file.
 
     Parameters:
         path: the file.
@@ -66,25 +72,34 @@ def wav_format(path: str) -> WavFormat:
     import warnings
 
     from scipy.io import wavfile
+
     if not os.path.isfile(path):
-        raise _bad(path, "no such recording (or not a regular file)", "give the path of a .wav file")
+        raise _bad(
+            path, "no such recording (or not a regular file)", "give the path of a .wav file"
+        )
     try:
         with warnings.catch_warnings():
-            warnings.simplefilter("ignore")          # unknown chunks (markers, text) are passed over
+            warnings.simplefilter("ignore")  # unknown chunks (markers, text) are passed over
             rate, mm = wavfile.read(path, mmap=True)
     except ValueError as e:
         if "3-byte" in str(e):
             return _wav24(path)
-        raise _bad(path, f"not a readable WAV file ({_reason(e)})",
-                   "record as WAV, PCM 16/24/32-bit or float, and check the file was copied whole") from None
+        raise _bad(
+            path,
+            f"not a readable WAV file ({_reason(e)})",
+            "record as WAV, PCM 16/24/32-bit or float, and check the file was copied whole",
+        ) from None
     except (OSError, EOFError) as e:
-        raise _bad(path, f"not a readable WAV file ({_reason(e)})",
-                   "record as WAV, PCM 16/24/32-bit or float, and check the file was copied whole") from None
+        raise _bad(
+            path,
+            f"not a readable WAV file ({_reason(e)})",
+            "record as WAV, PCM 16/24/32-bit or float, and check the file was copied whole",
+        ) from None
     shape, dtype, offset = mm.shape, mm.dtype, int(getattr(mm, "offset", 0))
     del mm
     channels = 1 if len(shape) == 1 else shape[1]
     floating = dtype.kind == "f"
-    if dtype.kind == "u":       # 8-bit PCM is unsigned
+    if dtype.kind == "u":  # 8-bit PCM is unsigned
         bits = 8
     else:
         bits = dtype.itemsize * 8
@@ -101,19 +116,36 @@ def _reason(e: Exception) -> str:
 def _wav24(path: str) -> WavFormat:
     try:
         with wave.open(path, "rb") as w:
-            rate, ch, width, frames = w.getframerate(), w.getnchannels(), w.getsampwidth(), w.getnframes()
+            rate, ch, width, frames = (
+                w.getframerate(),
+                w.getnchannels(),
+                w.getsampwidth(),
+                w.getnframes(),
+            )
     except (wave.Error, EOFError, OSError) as e:
-        raise _bad(path, f"not a readable 24-bit WAV file ({_reason(e)})",
-                   "record as WAV, PCM 16/24/32-bit or float") from None
+        raise _bad(
+            path,
+            f"not a readable 24-bit WAV file ({_reason(e)})",
+            "record as WAV, PCM 16/24/32-bit or float",
+        ) from None
     if width != 3:
-        raise _bad(path, f"a {8 * width}-bit sample container this reader does not take", "record 16, 24 or 32-bit")
-    if os.path.getsize(path) < 44 + frames * ch * 3:           # 44: the smallest header before the samples
-        raise _bad(path, "the file ends before its samples do: truncated", "check the file was copied whole")
+        raise _bad(
+            path,
+            f"a {8 * width}-bit sample container this reader does not take",
+            "record 16, 24 or 32-bit",
+        )
+    if os.path.getsize(path) < 44 + frames * ch * 3:  # 44: the smallest header before the samples
+        raise _bad(
+            path,
+            "the file ends before its samples do: truncated",
+            "check the file was copied whole",
+        )
     return WavFormat(path, rate, ch, frames, 24, False, "24", 0)
 
 
 def blocks(fmt: WavFormat, channel: int, size: int) -> Iterator[np.ndarray]:
-    """The samples of one channel in blocks of ``size`` (the last one may be shorter), in full-scale units.
+    """The samples of one channel in blocks of ``size`` (the last one may be shorter), in
+    full-scale units.
 
     Parameters:
         fmt: the file's format.
@@ -135,7 +167,11 @@ def blocks(fmt: WavFormat, channel: int, size: int) -> Iterator[np.ndarray]:
             n = min(size, fmt.frames - done)
             raw = np.fromfile(f, dtype=dtype, count=n * fmt.channels)
             if raw.size < n * fmt.channels:
-                raise _bad(fmt.path, "the file ends before its samples do: truncated", "check the file was copied whole")
+                raise _bad(
+                    fmt.path,
+                    "the file ends before its samples do: truncated",
+                    "check the file was copied whole",
+                )
             x = raw.reshape(n, fmt.channels)[:, channel].astype(np.float64)
             if dtype.kind == "u":
                 x -= 128.0
@@ -151,15 +187,21 @@ def _blocks24(fmt: WavFormat, channel: int, size: int) -> Iterator[np.ndarray]:
             n = min(size, fmt.frames - done)
             raw = np.frombuffer(w.readframes(n), dtype=np.uint8)
             if raw.size < n * fmt.channels * 3:
-                raise _bad(fmt.path, "the file ends before its samples do: truncated", "check the file was copied whole")
+                raise _bad(
+                    fmt.path,
+                    "the file ends before its samples do: truncated",
+                    "check the file was copied whole",
+                )
             b = raw.reshape(n, fmt.channels, 3)[:, channel, :].astype(np.int32)
-            x = (b[:, 0] | (b[:, 1] << 8) | (b[:, 2] << 16))
+            x = b[:, 0] | (b[:, 1] << 8) | (b[:, 2] << 16)
             x = np.where(x >= 1 << 23, x - (1 << 24), x)
             yield x.astype(np.float64) / float(1 << 23)
             done += n
 
 
-def clipping_of(x: np.ndarray, fmt: WavFormat, start: int, found: Clipping | None) -> Clipping | None:
+def clipping_of(
+    x: np.ndarray, fmt: WavFormat, start: int, found: Clipping | None
+) -> Clipping | None:
     """Samples at (or beyond) digital full scale in a block, added to what earlier blocks found.
 
     Parameters:

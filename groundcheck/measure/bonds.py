@@ -6,8 +6,10 @@ The file (``.gmeas``, UTF-8) holds one measurement a line, ``#`` starting a comm
     pe_stud to cover: 85 mohm at 10 A
     mains.pe to chassis: 0.04 ohm
 
-``A to B`` name two points or metal parts of the plan; the resistance carries its unit; ``at CURRENT`` is the
-test current, when the meter states one.  Each line is parsed on its own (lark, the plan's conventions), so every
+``A to B`` name two points or metal parts of the plan; the resistance carries its unit; ``at
+CURRENT`` is the
+test current, when the meter states one.  Each line is parsed on its own (lark, the plan's
+conventions), so every
 error is reported where it stands, with a hint.
 """
 
@@ -48,10 +50,10 @@ class Measurement:
 
     a: str
     b: str
-    resistance: float              # Ω
-    current: float | None          # A, the test current when stated
+    resistance: float  # Ω
+    current: float | None  # A, the test current when stated
     location: Location
-    columns: tuple[int, int]       # where A and B are written
+    columns: tuple[int, int]  # where A and B are written
 
 
 def read_measurements(path: str, names) -> list[Measurement]:
@@ -67,15 +69,35 @@ def read_measurements(path: str, names) -> list[Measurement]:
     """
     p = Path(path)
     if not p.is_file():
-        raise PlanErrors([PlanError("no such measurements file", Location(path), "give the path of a text file")])
+        raise PlanErrors(
+            [
+                PlanError(
+                    "no such measurements file", Location(path), "give the path of a text file"
+                )
+            ]
+        )
     if p.stat().st_size > MAX_BYTES:
-        raise PlanErrors([PlanError(f"the measurements file is over {MAX_BYTES >> 20} MiB", Location(path),
-                                    "one measurement a line; split the file")])
+        raise PlanErrors(
+            [
+                PlanError(
+                    f"the measurements file is over {MAX_BYTES >> 20} MiB",
+                    Location(path),
+                    "one measurement a line; split the file",
+                )
+            ]
+        )
     try:
         text = p.read_text(encoding="utf-8")
     except UnicodeDecodeError as e:
-        raise PlanErrors([PlanError(f"not UTF-8 text (byte {e.start})", Location(path),
-                                    "save the measurements file as UTF-8")]) from None
+        raise PlanErrors(
+            [
+                PlanError(
+                    f"not UTF-8 text (byte {e.start})",
+                    Location(path),
+                    "save the measurements file as UTF-8",
+                )
+            ]
+        ) from None
     return parse_measurements(text, path, names)
 
 
@@ -95,7 +117,9 @@ def parse_measurements(text: str, file: str, names) -> list[Measurement]:
     names = set(names)
     lines = text.splitlines()
     if len(lines) > MAX_LINES:
-        raise PlanErrors([PlanError(f"more than {MAX_LINES:,} lines", Location(file), "split the file")])
+        raise PlanErrors(
+            [PlanError(f"more than {MAX_LINES:,} lines", Location(file), "split the file")]
+        )
     for no, line in enumerate(lines, 1):
         body = line.split("#", 1)[0]
         if not body.strip():
@@ -124,17 +148,39 @@ def _measurement(body: str, loc: Location, names: set, line: str) -> Measurement
         if tok not in names:
             near = difflib.get_close_matches(str(tok), sorted(names), n=1)
             hint = f"did you mean {near[0]}?" if near else "name a point or metal part of the plan"
-            _raise(_error(f"the plan has no point or metal part {str(tok)!r}", loc, tok.column, hint, line))
+            _raise(
+                _error(
+                    f"the plan has no point or metal part {str(tok)!r}",
+                    loc,
+                    tok.column,
+                    hint,
+                    line,
+                )
+            )
     if a == b:
         _raise(_error("a measurement needs two different points", loc, b.column, FORM, line))
     ohm = _quantity(quantities[0], "resistance", loc, line)
     if ohm <= 0 or ohm > 1e9:
-        _raise(_error("a resistance from above 0 to 1 Gohm", loc, quantities[0].children[0].column,
-                      "a measured bond is a few milliohms", line))
+        _raise(
+            _error(
+                "a resistance from above 0 to 1 Gohm",
+                loc,
+                quantities[0].children[0].column,
+                "a measured bond is a few milliohms",
+                line,
+            )
+        )
     amps = _quantity(quantities[1], "current", loc, line) if len(quantities) > 1 else None
     if amps is not None and not 0 < amps <= 100:
-        _raise(_error("a test current from above 0 to 100 A", loc, quantities[1].children[0].column,
-                      "a bonding tester drives 0.2 to 25 A", line))
+        _raise(
+            _error(
+                "a test current from above 0 to 100 A",
+                loc,
+                quantities[1].children[0].column,
+                "a bonding tester drives 0.2 to 25 A",
+                line,
+            )
+        )
     return Measurement(str(a), str(b), ohm, amps, loc, (a.column, b.column))
 
 
@@ -144,11 +190,25 @@ def _quantity(tree, kind: str, loc: Location, line: str) -> float:
     try:
         value, got = parse_quantity(str(number), str(unit))
     except (UnitError, ValueError) as e:
-        return _raise(_error(f"{e}", loc, unit.column, f"a {kind}: {'mohm, ohm' if kind == 'resistance' else 'A, mA'}",
-                             line))
+        return _raise(
+            _error(
+                f"{e}",
+                loc,
+                unit.column,
+                f"a {kind}: {'mohm, ohm' if kind == 'resistance' else 'A, mA'}",
+                line,
+            )
+        )
     if got != kind:
-        _raise(_error(f"{number}{unit} is a {got}, not a {kind}", loc, number.column,
-                      f"a {kind}: {'mohm, ohm' if kind == 'resistance' else 'A, mA'}", line))
+        _raise(
+            _error(
+                f"{number}{unit} is a {got}, not a {kind}",
+                loc,
+                number.column,
+                f"a {kind}: {'mohm, ohm' if kind == 'resistance' else 'A, mA'}",
+                line,
+            )
+        )
     return value
 
 

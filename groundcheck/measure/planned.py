@@ -1,5 +1,7 @@
-"""The plan's own figure for a measured pair of points: the DC resistance between them in the whole ground
-network, the joints on the path between them, and whether the pair is a protective bond held to the limit."""
+"""The plan's own figure for a measured pair of points: the DC resistance between them in the
+whole ground
+network, the joints on the path between them, and whether the pair is a protective bond held to
+the limit."""
 
 from __future__ import annotations
 
@@ -19,7 +21,8 @@ def _nodes(circuit, name: str) -> tuple[int, ...]:
 
 
 def _resistance(circuit, a: tuple[int, ...], b: tuple[int, ...]) -> float | None:
-    """The largest DC resistance between a node of a and a node of b (the worst spot a probe may touch), None when
+    """The largest DC resistance between a node of a and a node of b (the worst spot a probe may
+    touch), None when
     they are not joined."""
     _, labels = circuit.components
     pairs = [(i, j) for i in a for j in b if labels[i] == labels[j]]
@@ -34,9 +37,11 @@ def _resistance(circuit, a: tuple[int, ...], b: tuple[int, ...]) -> float | None
 
 
 def _joints(plan, circuit, a: int, b: int) -> tuple[str, ...]:
-    """The conductors on the least-resistance path from node a to node b: fastenings first, then the rest in
+    """The conductors on the least-resistance path from node a to node b: fastenings first, then
+    the rest in
     path order."""
     from scipy.sparse.csgraph import dijkstra
+
     best, matrix = circuit.least_resistance_graph
     _, pred = dijkstra(matrix, indices=a, return_predecessors=True)
     kinds = {c.name: c.kind for c in plan.conductors}
@@ -54,7 +59,8 @@ def _joints(plan, circuit, a: int, b: int) -> tuple[str, ...]:
 
 
 def _protective(plan, result, a: str, b: str) -> bool:
-    """Whether a pair is a protective bond: one end the protective-earth terminal or a point a protective
+    """Whether a pair is a protective bond: one end the protective-earth terminal or a point a
+    protective
     conductor ends on, the other touchable metal or a point on it."""
     ends = {PE_POINT}
     for c in plan.conductors:
@@ -67,28 +73,45 @@ def _protective(plan, result, a: str, b: str) -> bool:
             p = plan.point(name)
             m = plan.metal(p.on) if p is not None and p.on else None
         return m is not None and bool(m.touchable) and not getattr(m, "signal_only", False)
+
     return (a in ends and touchable(b)) or (b in ends and touchable(a))
 
 
 def planned_bonds(result, measurements) -> tuple[MeasuredBond, ...]:
-    """Each measurement with the plan's resistance between its points, the path's joints and the limit.
+    """Each measurement with the plan's resistance between its points, the path's joints and the
+    limit.
 
     Parameters:
         result: the plan's analysis (``rules.results.Result``, with its circuit).
-        measurements: the measurements file's records (:class:`groundcheck.measure.bonds.Measurement`).
+        measurements: the measurements file's records
+        (:class:`groundcheck.measure.bonds.Measurement`).
     Returns:
         one :class:`MeasuredBond` per measurement.
     References:
         nodal analysis at DC (a unit current between the two nodes; the voltage is the resistance).
     """
     plan, circuit = result.plan, result.circuit
-    limit = result.options.pe_limit if plan.mains is not None and plan.mains.equipment_class != "II" else None
+    limit = (
+        result.options.pe_limit
+        if plan.mains is not None and plan.mains.equipment_class != "II"
+        else None
+    )
     out = []
     for m in measurements:
         na, nb = _nodes(circuit, m.a), _nodes(circuit, m.b)
         planned = _resistance(circuit, na, nb) if na and nb else None
         joints = _joints(plan, circuit, na[0], nb[0]) if planned is not None else ()
         protective = limit is not None and _protective(plan, result, m.a, m.b)
-        out.append(MeasuredBond(m.a, m.b, m.resistance, planned, limit if protective else None, joints,
-                                m.location, m.current))
+        out.append(
+            MeasuredBond(
+                m.a,
+                m.b,
+                m.resistance,
+                planned,
+                limit if protective else None,
+                joints,
+                m.location,
+                m.current,
+            )
+        )
     return tuple(out)
