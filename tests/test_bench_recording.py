@@ -185,3 +185,11 @@ def test_an_hour_is_read_in_bounded_memory(tmp_path):
     assert m.segments == hour and peak < 5e6
     assert abs(db(m.lines[0].level / math.sqrt(2)) - db(0.05)) < 0.1
     assert abs(db(m.lines[1].level / math.sqrt(2)) - db(0.005)) < 0.1
+
+
+@pytest.mark.parametrize("m", [1, 2, 7, 60, 3600])
+def test_the_line_threshold_is_the_gamma_quantile(m):
+    # an implementation independent of ours: scipy's inverse of the regularised upper incomplete gamma
+    from scipy.special import gammainccinv
+    from groundcheck.measure.lines import gamma_quantile
+    assert gamma_quantile(m, 1e-6) == pytest.approx(float(gammainccinv(m, 1e-6)), rel=1e-9)
