@@ -187,6 +187,8 @@ def cmd_bench(args) -> int:
 
     if not args.recording and not args.bonds:
         raise UsageError("give a --recording, a --bonds file, or both")
+    if args.recording and args.no_hum:
+        raise UsageError("--no-hum leaves no planned spectrum to compare a recording with")
     plan = load_plan(args.plan)
     names = {p.name for p in plan.points} | {m.name for m in plan.metals}
     measurements = read_measurements(args.bonds, names | {"mains.pe"}) if args.bonds else []
