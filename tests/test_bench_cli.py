@@ -212,3 +212,8 @@ def test_importing_the_command_line_loads_no_numeric_library():
         [sys.executable, "-c", code], capture_output=True, text=True, check=True
     ).stdout
     assert out.strip() == "[]"
+
+
+def test_a_figure_at_the_plan_never_reads_minus_zero():
+    from groundcheck.renderers.bench import signed
+    assert f"{signed(-0.04):+.1f}" == "+0.0" and f"{signed(-0.06):+.1f}" == "-0.1"

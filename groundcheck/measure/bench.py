@@ -47,6 +47,8 @@ BENCH_CAUTIONS = (
 #: which it is absent
 OFF = 2.0
 ABSENT = 0.25
+#: within ±3 dB of the plan a mechanism matches it
+MATCH = (10 ** (-3 / 20), 10 ** (3 / 20))
 
 
 def mechanism_words(group: str, plan) -> str:
@@ -158,7 +160,7 @@ def _member(result, label: str) -> str:
 
 
 def _dbs(x: float) -> str:
-    return f"{db_of_ratio(x):+.1f} dB"
+    return f"{round(db_of_ratio(x), 1) + 0.0:+.1f} dB"     # + 0.0: never "-0.0"
 
 
 def _summary(rows: list[HarmonicRow], suspects, calibrated: bool) -> list[str]:
@@ -183,8 +185,10 @@ def _summary(rows: list[HarmonicRow], suspects, calibrated: bool) -> list[str]:
             out.append(
                 f"{s.mechanism} is not seen: {who} is quieter than planned or under the noise"
             )
-        else:
+        elif MATCH[0] <= s.scale <= MATCH[1]:
             out.append(f"{s.mechanism} matches the plan ({_dbs(s.scale)}): {who}")
+        else:
+            out.append(f"{s.mechanism}: {_dbs(s.scale)} against the plan: {who}")
     odd = [r for r in rows if r.unexplained]
     if odd:
         said = ", ".join(f"{r.frequency_hz:.0f} Hz" for r in odd[:6])

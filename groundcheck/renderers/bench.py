@@ -13,7 +13,8 @@ from ..core.errors import shown
 from ..core.plain import clean
 from ..rules.catalogue import severity_rank
 
-__all__ = ["bench_document", "render_bench_json", "render_bench_text", "worst", "unit_of", "db"]
+__all__ = ["signed", "bench_document", "render_bench_json", "render_bench_text", "worst", "unit_of",
+           "db"]
 
 #: bumped when a key is renamed or removed
 BENCH_SCHEMA = 1
@@ -24,6 +25,11 @@ def db(x: float | None) -> float | None:
     if x is None or x <= 0 or not math.isfinite(x):
         return None
     return round(20 * math.log10(x), 2)
+
+
+def signed(x: float) -> float:
+    """x rounded to 0.1, a negative zero made zero (so that it never reads "-0.0")."""
+    return round(x, 1) + 0.0
 
 
 def unit_of(record) -> str:
@@ -174,7 +180,7 @@ def _table(c, unit: str) -> list[str]:
             continue
         meas = _f(db(r.measured)) if r.above_noise else f"<{_f(db(r.noise), '.0f')}"
         diff = (
-            _f(20 * math.log10(r.measured / r.predicted), "+.1f")
+            _f(signed(20 * math.log10(r.measured / r.predicted)), "+.1f")
             if r.above_noise and r.predicted
             else "–"
         )
@@ -221,7 +227,7 @@ def render_bench_text(record) -> str:
             f"channel {shown(c.channel)}: measured {_f(db(c.measured_total))} {unit}, planned "
             f"{_f(db(c.predicted_total))} dBV; {verdict}"
             + (
-                f" (worst line {c.margin_db:+.1f} dB against the threshold)"
+                f" (worst line {signed(c.margin_db):+.1f} dB against the threshold)"
                 if c.margin_db is not None
                 else ""
             )
@@ -229,7 +235,7 @@ def render_bench_text(record) -> str:
         out += _table(c, unit)
         out.append("  suspects (by hum added beyond the plan, then by hum explained):")
         for i, s in enumerate(c.suspects, 1):
-            off = "not seen" if s.off_db is None else f"{s.off_db:+.1f} dB"
+            off = "not seen" if s.off_db is None else f"{signed(s.off_db):+.1f} dB"
             out.append(
                 f"  {i}. {', '.join(s.members)} — {s.mechanism}; {off} against the plan, "
                 "explains "

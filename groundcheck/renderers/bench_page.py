@@ -7,7 +7,7 @@ network fetch; every text from a plan or a file is escaped."""
 from __future__ import annotations
 
 from ..core.errors import html_text as esc
-from .bench import db, unit_of, worst
+from .bench import db, signed, unit_of, worst
 
 __all__ = ["render_bench_html"]
 
@@ -98,7 +98,7 @@ def _bars(c, unit: str) -> str:
         def width(v):
             return 0 if v is None else max(1, int(300 * (v - lo) / (hi - lo)))
 
-        off = "not seen" if s.off_db is None else f"{s.off_db:+.1f} dB"
+        off = "not seen" if s.off_db is None else f"{signed(s.off_db):+.1f} dB"
         cls = "bad" if s.off_db is not None and s.off_db > 6 else ""
         out.append(
             f'<tr><td class="l">{esc(", ".join(s.members))}</td><td '
@@ -130,7 +130,7 @@ def _rows(c, unit: str) -> str:
         meas = _n(db(r.measured)) if r.above_noise else f"&lt;{_n(db(r.noise), '.0f')}"
         diff = "–"
         if r.above_noise and r.predicted:
-            diff = f"{db(r.measured) - db(r.predicted):+.1f}"
+            diff = f"{signed(db(r.measured) - db(r.predicted)):+.1f}"
         spl = "–" if r.spl_db is None else f"{r.spl_db:.1f} / {r.threshold_db:.1f}"
         who = esc(", ".join(r.contributors)) or (
             "<span class=bad>none: not in the plan</span>" if r.unexplained else "–"
