@@ -9,7 +9,8 @@ import networkx as nx
 PACKAGE = Path(__file__).resolve().parent.parent / "groundcheck"
 
 #: the stages, lowest first (the model is the language's output vocabulary, so it sits below it)
-STAGES = ["core", "model", "language", "network", "physics", "rules", "analysis", "advice", "renderers", "cli"]
+STAGES = ["core", "model", "language", "network", "physics", "rules", "analysis", "measure", "advice", "renderers",
+          "cli"]
 
 
 def _stage(module: str) -> int:

@@ -99,6 +99,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC101": {"warning", "note"}, "GC102": {"fault", "note"}, "GC206": {"danger", "note"},
         "GC208": {"danger", "note"}, "GC211": {"danger", "warning"},
         "GC218": {"danger", "warning", "note"}, "GC306": {"fault", "note"},
+        "GC402": {"fault", "warning"},
     }
     for code, rule in RULES.items():
         assert rule.variants[0] == rule.severity and set(rule.variants) <= set(SEVERITIES), code

@@ -20,6 +20,7 @@ from ..renderers.formats import CHECK_FORMATS
 from ..renderers.output import write_atomic
 from .advice import SUGGEST_EPILOG, add_fix_option, advised, cmd_compare, cmd_suggest
 from .checking import analyze_with_progress, check_each, with_errors
+from .bench import add_bench_command, cmd_bench
 from .common import (FAIL_HELP, FAIL_LEVELS, fail_on, Parser, UsageError, add_analysis_options,
                      add_watch_command, load_plan, options_of, plan_paths, processes_type,
                      quantity_type, seconds_type, write_output)
@@ -47,6 +48,7 @@ def build_parser() -> argparse.ArgumentParser:
     _compare_command(sub)
     _export_command(sub)
     add_watch_command(sub)
+    add_bench_command(sub)
     sub.add_parser("completion", help="print a shell completion script",
                    description="Example:\n  eval \"$(groundcheck completion bash)\"   (zsh: run "
                    "'autoload -U bashcompinit && bashcompinit' first)",
@@ -293,7 +295,7 @@ def cmd_completion(args) -> int:
 
 COMMANDS = {"check": cmd_check, "suggest": cmd_suggest, "compare": cmd_compare, "explain": cmd_explain,
             "draw": cmd_draw, "report": cmd_report, "export": cmd_export, "completion": cmd_completion,
-            "watch": cmd_watch}
+            "watch": cmd_watch, "bench": cmd_bench}
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -34,6 +34,9 @@ class ChannelHum:
     margin_db: float | None              # worst SPL − threshold, dB (positive: audible)
     signed_v: float = 0.0                # the network's own sum, every stage taken as non-inverting
     field_axes: list = field(default_factory=list)   # per field source: the direction used and the hum it gives
+    # each contributor's phasor at the output per frequency: (kind, element, group) -> {Hz: complex V};
+    # the spectra a bench recording is fitted on (not in the JSON: the contributors' rows summarise it)
+    lines: dict = field(default_factory=dict)
 
     @property
     def total_dbv(self) -> float:
@@ -153,7 +156,10 @@ class Merged:
         audible = None if worst is None else worst > 0
         if listening is not None and listening.verdict and worst is None:
             audible, worst = False, None
-        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2), list(axes))
+        lines = {(kind, name, group): dict(per_f)
+                 for (kind, name, group), per_f in self.contrib[ch].items()}
+        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2),
+                          list(axes), lines)
 
     def levels(self) -> dict:
         """Each source group's worst-case level at each channel's output, V (see :attr:`HumResult.levels`)."""
