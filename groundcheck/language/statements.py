@@ -120,11 +120,33 @@ def metal(stmt: Statement):
         elif first.kind == "word" and first.value == "signal-only":
             r.next("")
             kw["signal_only"] = True
+        elif first.kind == "word" and first.value == "permeability":
+            kw["permeability"] = _permeability(r)
         else:
-            raise unknown(stmt, first, MATERIALS + ("W x D mm", "at", "touchable", "internal", "signal-only"))
+            raise unknown(stmt, first, MATERIALS + ("W x D mm", "at", "touchable", "internal",
+                                                    "signal-only", "permeability"))
         r.finish()
     kw.setdefault("touchable", None)
     return Metal(name=name, location=stmt.loc, **kw), {}
+
+
+#: the relative permeabilities a metal part may state: 1 (non-magnetic) to 100,000 (beyond any
+#: sheet steel's initial permeability; mild steel sheet is a few hundred at the weak fields of a
+#: return current, from memory)
+PERMEABILITY_RANGE = (1.0, 1e5)
+
+
+def _permeability(r) -> float:
+    """``permeability 300``: a plain number within :data:`PERMEABILITY_RANGE`."""
+    r.next("permeability")
+    it = r.peek()
+    value = r.number("the relative permeability")
+    lo, hi = PERMEABILITY_RANGE
+    if not lo <= value <= hi:
+        raise PlanError(f"relative permeability {it.text} is outside {lo:g} to {hi:g}", it.loc,
+                        "a relative permeability is a plain number: 1 for aluminium or copper, "
+                        "a few hundred for mild steel sheet")
+    return value
 
 
 def point(stmt: Statement):

@@ -118,6 +118,7 @@ class Metal:
     touchable: bool | None = False       # None when unwritten: settled by the plan's assembly
     location: Location = field(default=Location("<plan>"), compare=False)
     signal_only: bool = False            # holds no mains circuit, cannot become live: no protective bonding
+    permeability: float | None = None    # relative, as stated (None: the material's default)
 
     def contains(self, p: XY, slack: float = 1e-6) -> bool:
         """Whether the plan-frame position ``p`` lies on the part (always true when its size is unknown)."""

@@ -30,7 +30,7 @@ from ..model.records import PE_POINT, Plan
 from ..network.graph import part_labels
 from .factored import DENSE_NODES, DenseFactors, Factored, Solution
 from .impedance import MATERIALS, MIN_IMPEDANCE, conductor_resistance, resistivity, skin_ratio
-from .plate import reduce_plate
+from .plate import permeability, reduce_plate, sheet_ratio
 
 __all__ = ["Circuit", "Factored", "Solution", "build_circuit", "conductor_resistance"]
 
@@ -52,6 +52,8 @@ class Branch:
     path: tuple[XY, ...] = ()        # geometry from n1 to n2 (for induced EMF), empty when unknown
     conductor: str | None = None     # the plan conductor it models
     metal: str | None = None         # or the metal part whose plate it belongs to
+    sheet: float = 0.0               # m, a plate branch's thickness (skin effect); 0 for none
+    mu_r: float = 1.0                # the plate's relative permeability
 
     @property
     def owner(self) -> str:
@@ -89,7 +91,9 @@ class Circuit:
         b = self.branches
         return (np.array([x.n1 for x in b], dtype=np.int64), np.array([x.n2 for x in b], dtype=np.int64),
                 np.array([x.r for x in b]), np.array([x.l for x in b]), np.array([x.radius for x in b]),
-                np.array([x.rho for x in b]), np.array([np.nan if x.cap is None else x.cap for x in b]))
+                np.array([x.rho for x in b]),
+                np.array([np.nan if x.cap is None else x.cap for x in b]),
+                np.array([x.sheet for x in b]), np.array([x.mu_r for x in b]))
 
     @cached_property
     def incidence(self) -> sp.csr_matrix:
@@ -102,12 +106,15 @@ class Circuit:
 
     def impedance(self, f: float) -> np.ndarray:
         """Complex impedance of every branch at frequency f (Hz), never below MIN_IMPEDANCE."""
-        n1, n2, r, l, radius, rho, cap = self._arrays
+        n1, n2, r, l, radius, rho, cap, sheet, mu_r = self._arrays
         if f > 0:
-            ratio = np.ones_like(r)
+            ratio = np.ones(len(r), dtype=complex)
             wire = radius > 0
             if wire.any():
                 ratio[wire] = skin_ratio(radius[wire], rho[wire], f)
+            plate = sheet > 0
+            if plate.any():
+                ratio[plate] = sheet_ratio(rho[plate], sheet[plate], mu_r[plate], f)
             z = r * ratio + 2j * math.pi * f * l
             lift = ~np.isnan(cap)
             if lift.any():
@@ -320,7 +327,9 @@ class _Builder:
                 g = -G[i, j]
                 if g > 1e-12 * abs(G[i, i]):
                     self.branches.append(Branch(spot_nodes[i], spot_nodes[j], f"plate:{m.name}:{i + 1}~{j + 1}",
-                                                1.0 / g, path=(spots[i], spots[j]), metal=m.name))
+                                                1.0 / g, rho=rho, path=(spots[i], spots[j]),
+                                                metal=m.name, sheet=m.thickness,
+                                                mu_r=permeability(m)))
         self.plate_notes[m.name] = {"model": "plate grid", "fasteners": len(spots), "grid_step_mm": res.step * 1e3,
                                     "estimated_error": res.error}
 

@@ -1,16 +1,17 @@
-"""The path a loop's current takes through a metal part: spread over the plate, not along the straight chord
-between the fastenings it enters and leaves by.
+"""The path a loop's current takes through a metal part: spread over the plate, not along the
+straight chord between the fastenings it enters and leaves by.
 
-At mains and audio frequencies the current in a chassis plate distributes resistively (the skin depth, about
-12 mm in aluminium at 50 Hz, is far above a plate's thickness).  The plate is the finite-volume grid of
-:mod:`groundcheck.physics.plate`; a unit current entering at one fastening and leaving at another gives each grid
-edge its share, and the flux a field source puts through the loop along that passage is Σ I_e·∫A·dl over the
-edges (A at each edge's midpoint; the edges are about a millimetre long), in place of the chord's ∫A·dl.  The
-current distribution depends only on the plate's outline and fastenings, not on its material or thickness.
+At mains and audio frequencies the current in a chassis plate distributes resistively (the skin
+depth, about 12 mm in aluminium at 50 Hz, is far above a plate's thickness).  The plate is the
+finite-volume grid of :mod:`groundcheck.physics.plate`; a unit current entering at one fastening
+and leaving at another gives each grid edge its share, and the flux a field source puts through the
+loop along that passage is Σ I_e·∫A·dl over the edges (A at each edge's midpoint; the edges are
+about a millimetre long), in place of the chord's ∫A·dl.  The current distribution depends only on
+the plate's outline and fastenings, not on its material or thickness.
 
-References: S. V. Patankar, *Numerical Heat Transfer and Fluid Flow*, 1980 (the finite-volume grid);
-J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6 (A = μ₀m × R/4πR³) and §5.17 (flux linkage of a
-distributed current, Φ = ∫A·J dV / I).
+References: S. V. Patankar, *Numerical Heat Transfer and Fluid Flow*, 1980 (the finite-volume
+grid); J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6 (A = μ₀m × R/4πR³) and §5.17 (flux
+linkage of a distributed current, Φ = ∫A·J dV / I).
 """
 
 from __future__ import annotations
@@ -19,21 +20,23 @@ import math
 from functools import lru_cache
 
 import numpy as np
-import scipy.sparse as sp
 
 from .impedance import FASTENER_RADIUS
-from .plate import contact_groups, grid_laplacian, grid_step
+from .plate import contact_groups, grid_step
+from .plate_mesh import plate_mesh
 
 __all__ = ["plate_flow", "passage_flow", "passage_vector", "loop_passages", "MAX_PLATE_CONTACTS"]
 
-#: fastenings of one plate taken with their spreading paths at most; beyond, passages keep the straight chord
+#: fastenings of one plate taken with their spreading paths at most; beyond, passages keep the
+#: straight chord
 MAX_PLATE_CONTACTS = 64
 
 
 @lru_cache(maxsize=32)
 def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FASTENER_RADIUS):
-    """Edge midpoints (E × 2, relative to the plate's corner), edge vectors (E × 2) and edge currents (E × k) of
-    a unit current entering at each contact and leaving at contact 0 (column 0 is zero).
+    """Edge midpoints (E × 2, relative to the plate's corner), edge vectors (E × 2) and edge
+    currents (E × k) of a unit current entering at each contact and leaving at contact 0 (column 0
+    is zero).
 
     Parameters:
         width, depth: the plate's size, m.
@@ -42,42 +45,31 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
     Returns:
         (midpoints, vectors, currents) as described.
     References:
-        the finite-volume grid of :func:`groundcheck.physics.plate.grid_laplacian`; Kirchhoff's laws.
+        the finite-volume grid of :func:`groundcheck.physics.plate.grid_laplacian`; Kirchhoff's
+        laws.
     """
     step = grid_step(width, depth, radius)
     nx = max(3, int(round(width / step)) + 1)
     ny = max(3, int(round(depth / step)) + 1)
-    L = grid_laplacian(width, depth, 1.0, nx, ny).tocsr()
-    xs, ys = np.linspace(0, width, nx), np.linspace(0, depth, ny)
-    X, Y = np.meshgrid(xs, ys)
-    X, Y = X.ravel(), Y.ravel()
-    n, k = nx * ny, len(contacts)
+    X, Y = (v.ravel() for v in np.meshgrid(np.linspace(0, width, nx), np.linspace(0, depth, ny)))
+    k = len(contacts)
     group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
-    # merge each contact's nodes into one, ground contact 0, inject 1 A at each other contact
-    free = np.flatnonzero(group < 0)
-    index = np.empty(n, dtype=int)
-    index[group >= 0] = group[group >= 0]
-    index[free] = k + np.arange(free.size)
-    P = sp.coo_matrix((np.ones(n), (np.arange(n), index)), shape=(n, k + free.size)).tocsr()
-    Lm = (P.T @ L @ P).tocsc()[1:, 1:]
-    rhs = np.zeros((k - 1 + free.size, k))
+    mesh = plate_mesh(width, depth, 1.0, contacts, radius, nx, ny, group)
+    # ground contact 0, inject 1 A at each other contact
+    rhs = np.zeros((mesh.n - 1, k))
     rhs[np.arange(k - 1), np.arange(1, k)] = 1.0
-    phi = np.zeros((k + free.size, k))
+    phi = np.zeros((mesh.n, k))
     import scipy.sparse.linalg as spla          # only for a plate: plans without one never need it
-    phi[1:] = spla.splu(Lm).solve(rhs)
-    node_phi = P @ phi                                               # n × k
-    idx = np.arange(n).reshape(ny, nx)
-    a = np.concatenate([idx[:, :-1].ravel(), idx[:-1, :].ravel()])
-    b = np.concatenate([idx[:, 1:].ravel(), idx[1:, :].ravel()])
-    g = -np.asarray(L[a, b]).ravel()                                 # edge conductances
-    currents = g[:, None] * (node_phi[a] - node_phi[b])              # from a to b
-    mids = np.stack([(X[a] + X[b]) / 2, (Y[a] + Y[b]) / 2], axis=1)
-    vecs = np.stack([X[b] - X[a], Y[b] - Y[a]], axis=1)
+    phi[1:] = spla.splu(mesh.laplacian()[1:, 1:].tocsc()).solve(rhs)
+    currents = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])           # from a to b
+    mids = (mesh.start + mesh.end) / 2
+    vecs = mesh.end - mesh.start
     return mids, vecs, currents
 
 
 def _potential_dot(src, mids: np.ndarray, vecs: np.ndarray) -> np.ndarray:
-    """(E × 3): A·d for a unit-K dipole with its moment along x, y and z, at each edge's midpoint."""
+    """(E × 3): A·d for a unit-K dipole with its moment along x, y and z, at each edge's
+    midpoint."""
     X = mids[:, 0] - src.pos[0]
     Y = mids[:, 1] - src.pos[1]
     h = src.height
@@ -88,8 +80,9 @@ def _potential_dot(src, mids: np.ndarray, vecs: np.ndarray) -> np.ndarray:
 
 
 def passage_flow(metal, spots: list, enter: int, leave: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """A loop's passage through a plate as grid edges in the plan's frame: their midpoints (E × 2, m), vectors
-    (E × 2, m) and the share of a unit current entering at spot ``enter`` and leaving at ``leave`` (E).
+    """A loop's passage through a plate as grid edges in the plan's frame: their midpoints (E × 2,
+    m), vectors (E × 2, m) and the share of a unit current entering at spot ``enter`` and leaving
+    at ``leave`` (E).
 
     Parameters:
         metal: the metal part (its origin and size).
@@ -108,8 +101,9 @@ def passage_flow(metal, spots: list, enter: int, leave: int) -> tuple[np.ndarray
 
 
 def passage_vector(src, metal, spots: list, enter: int, leave: int) -> np.ndarray:
-    """K·(Fx, Fy, Fz) (Wb): the flux a source puts along a loop's passage through a plate, from spot ``enter`` to
-    spot ``leave`` (indices in ``spots``, absolute positions), the current spread over the plate.
+    """K·(Fx, Fy, Fz) (Wb): the flux a source puts along a loop's passage through a plate, from
+    spot ``enter`` to spot ``leave`` (indices in ``spots``, absolute positions), the current spread
+    over the plate.
 
     Parameters:
         src: a field source.
@@ -126,8 +120,9 @@ def passage_vector(src, metal, spots: list, enter: int, leave: int) -> np.ndarra
 
 
 def loop_passages(plan, circuit, loops) -> dict:
-    """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter, leave), where the
-    loop's outline takes the straight chord between the two spots (a bolt at each, no route).
+    """Each loop's passages through metal parts modelled as plate grids: (metal, spots, enter,
+    leave), where the loop's outline takes the straight chord between the two spots (a bolt at
+    each, no route).
 
     Parameters:
         plan: the plan.
