@@ -22,7 +22,6 @@ PE_POINT = "mains.pe"
 
 XY = tuple[float, float]
 
-
 #: earthing systems, IEC 60364-1 terms
 SYSTEMS = ("TN-S", "TN-C-S", "TT")
 
