@@ -165,15 +165,15 @@ def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] |
 
 
 def _own_stud(ctx: ChangeContext, f) -> Candidate | None:
-    """GC202: the protective conductor moves to a new stud of its own, bolted to the same part."""
+    """GC202: the protective conductor moves to a new stud of its own, on the part the old stud sits on."""
     pe = next((ctx.cond[e] for e in f.elements if e in ctx.cond and e in ctx.result.protective
                and not is_fastening_kind(ctx.cond[e].kind)), None)
     old_pt = ctx.plan.point(f.elements[1]) if len(f.elements) > 1 else None
     st = ctx.statement(pe) if pe is not None else None
     if st is None or old_pt is None or old_pt.pos is None:
         return None
-    part = next((k.b if k.b in ctx.metals else k.a for k in ctx.plan.conductors
-                 if is_fastening(k, ctx.metals) and old_pt.name in (k.a, k.b)), None)
+    part = old_pt.on if old_pt.on in ctx.metals else next((k.b if k.b in ctx.metals else k.a for k
+            in ctx.plan.conductors if is_fastening(k, ctx.metals) and old_pt.name in (k.a, k.b)), None)
     ends = ctx.src.ends(st)
     where = _stud_position(ctx, part, old_pt.pos) if part is not None else None
     if where is None or ends is None:

@@ -13,9 +13,10 @@ from ..model.records import Plan
 from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
 from ..physics.safety import supply_figures
 
-from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, is_fastening, section_checked
+from ..model.kinds import can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT
 from .catalogue import Finding
+from .pe_fastener import pe_fastener as _pe_fastener
 from .context import AuditContext
 from .registry import rule
 
@@ -79,29 +80,6 @@ def _pe_not_reaching(ctx: AuditContext) -> Finding:
                    ctx.loc(bad[0]) if bad else mloc, tuple(bad), {},
                    "connect the inlet's protective terminal straight to the chassis with a protective conductor; "
                    "lift networks and switches belong between signal ground and chassis, never in the protective path")
-
-
-def _pe_fastener(ctx: AuditContext) -> list[Finding]:
-    """GC202: the protective conductor from the inlet lands on a fastener that holds something else."""
-    out = []
-    G = ctx.G
-    for v, keys in G.adj[PE_POINT].items():
-        for k in keys:
-            c = G.edges[PE_POINT, v, k]["conductor"]
-            if k not in ctx.route or v in ctx.metals:
-                continue
-            others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
-            fastenings = [kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
-                          and ctx.conductors[kk].role in PROTECTIVE_ROLES]
-            holds = [kk for kk in others if kk not in fastenings[:1]]
-            if holds:
-                out.append(Finding("GC202", "fault",
-                                   f"the protective earth lands on {v}, a fastener that also holds "
-                                   f"{', '.join(sorted(holds))}",
-                                   c.location, (c.name, v, *sorted(holds)), {"other_items": len(holds)},
-                                   f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to "
-                                   "another fastener"))
-    return out
 
 
 def _pe_terminal_other_use(ctx: AuditContext) -> list[Finding]:

@@ -14,6 +14,7 @@ from ..model.records import PE_POINT
 from ..network.graph import Loop, part_labels
 from .catalogue import Finding
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext, bfs
+from .floating import floating_fix as _floating_fix
 from .registry import rule
 from .repairs import shield_fix, supply_ends, supply_meetings
 
@@ -193,8 +194,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
             first = min(ctx.loc(n) for n in comp)
             out.append(Finding("GC106", "warning", f"signal ground {name} is floating: it reaches neither the chassis "
                                                    "nor the protective earth",
-                               first, tuple(comp[:12]), {"points": len(comp)},
-                               "bond the signal star to the chassis at one place near the protective-earth stud"))
+                               first, tuple(comp[:12]), {"points": len(comp)}, _floating_fix(ctx, comp)))
     return out
 
 

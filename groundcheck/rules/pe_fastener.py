@@ -1,0 +1,48 @@
+"""GC202: the protective conductor from the inlet lands on a fastener that holds something else —
+another conductor, or a part its own fastening clamps (a stud on the chassis through a transformer's
+foot)."""
+
+from __future__ import annotations
+
+from ..model.kinds import PROTECTIVE_ROLES, is_fastening
+from ..model.records import PE_POINT
+from .catalogue import Finding
+from .context import AuditContext
+
+__all__ = ["pe_fastener"]
+
+
+def pe_fastener(ctx: AuditContext) -> list[Finding]:
+    """GC202: the protective conductor from the inlet lands on a fastener that holds something else."""
+    out = []
+    G = ctx.G
+    for v, keys in G.adj[PE_POINT].items():
+        for k in keys:
+            c = G.edges[PE_POINT, v, k]["conductor"]
+            if k not in ctx.route or v in ctx.metals:
+                continue
+            others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
+            fastenings = [kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
+                          and ctx.conductors[kk].role in PROTECTIVE_ROLES]
+            holds = [kk for kk in others if kk not in fastenings[:1]]
+            holds += _clamped_part(ctx, v, fastenings[:1])
+            if holds:
+                out.append(Finding("GC202", "fault",
+                                   f"the protective earth lands on {v}, a fastener that also holds "
+                                   f"{', '.join(sorted(holds))}",
+                                   c.location, (c.name, v, *sorted(holds)), {"other_items": len(holds)},
+                                   f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to "
+                                   "another fastener"))
+    return out
+
+
+def _clamped_part(ctx: AuditContext, stud: str, own: list) -> list[str]:
+    """The part a protective stud's own fastening clamps when the stud sits ``on`` one metal part
+    and is fastened to another: the fastening holds that other part (a transformer's foot, say)
+    onto the one it sits on, so servicing the part loosens the protective earth."""
+    point = next((p for p in ctx.plan.points if p.name == stud), None)
+    if point is None or point.on is None or not own:
+        return []
+    c = ctx.conductors[own[0]]
+    part = c.b if c.a == stud else c.a
+    return [part] if part in ctx.metals and part != point.on else []
