@@ -170,9 +170,11 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
     channels = {c.channel for c in cs if c.channel in known} | {node_channel(ctx, n) for n in lp.nodes} & known
     if len(channels) >= 2:
         return "channel-returns"
-    if has_metal and roles <= set(PROTECTIVE_ROLES):
+    # a conductor the protective earth relies on is protective whatever role the plan writes
+    carried = {PROTECTIVE if c.name in ctx.protective_path else c.role for c in cs}
+    if has_metal and carried <= set(PROTECTIVE_ROLES):
         return "chassis-structure"
-    if has_metal and SIGNAL in roles:
+    if has_metal and SIGNAL in carried:
         return "second-chassis-bond"
     if has_metal:
         return "metal-return"

@@ -13,7 +13,7 @@ from ..model.records import Plan
 from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
 from ..physics.safety import supply_figures
 
-from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, is_fastening, section_checked
+from ..model.kinds import can_carry_protective, cross_section, is_fastening, section_checked
 from ..model.records import PE_POINT
 from .catalogue import Finding
 from .context import AuditContext
@@ -91,8 +91,8 @@ def _pe_fastener(ctx: AuditContext) -> list[Finding]:
             if k not in ctx.route or v in ctx.metals:
                 continue
             others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
-            fastenings = [kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
-                          and ctx.conductors[kk].role in PROTECTIVE_ROLES]
+            # the stud's own fastening to the metal, whatever role the plan writes for it
+            fastenings = sorted(kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals))
             holds = [kk for kk in others if kk not in fastenings[:1]]
             if holds:
                 out.append(Finding("GC202", "fault",
