@@ -18,7 +18,8 @@ REL, FLOOR = 1e-9, 1e-15
 
 #: fields that say where or how something is written, or what was asked, not what was found
 SKIP = {"location", "stage_location", "plan", "circuit", "options", "message", "fix", "notices",
-        "polygon", "parent", "path", "not_checked", "accepted"}
+        "polygon", "parent", "path", "not_checked", "accepted",
+        "chord"}  # a loop's walk: its members are compared as sets
 _LOOP = re.compile(r"^loop (\d+)$")
 
 
@@ -43,7 +44,8 @@ def canonical(obj, loops=(), rename=lambda s: s):
             return tuple((f.name, walk(getattr(x, f.name))) for f in dataclasses.fields(x)
                          if f.name not in SKIP)
         if isinstance(x, dict):
-            items = [(walk(k), walk(v)) for k, v in x.items() if k not in SKIP]
+            items = [(walk(k), walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v))
+                     for k, v in x.items() if k not in SKIP]
             return ("dict", tuple(sorted(items, key=_order)))
         if isinstance(x, (list, tuple, set, frozenset)):
             return ("list", tuple(sorted((walk(v) for v in x), key=_order)))

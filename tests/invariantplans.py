@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from hypothesis import strategies as st
 
 #: the plate, mm: small enough that its grid (2 mm, half a fastener's radius) solves in a blink
-PLATE = (200, 100)
+PLATE = (120, 60)
 AREAS = ("0.5 mm2", "0.75 mm2", "1 mm2")
 
 

@@ -83,6 +83,35 @@ _WIRE = re.compile(r"^(\s*)wire (\S+): (\S+) to (\S+), (\d+(?:\.\d+)?) mm(,.*)$"
 _POINT = re.compile(r"^\s*point (\S+): [^,]+, at (-?\d+),(-?\d+)")
 
 
+_PLACE = re.compile(r"^place (\S+) as (\S+) at (-?\d+),(-?\d+)(, mirror( x)?)?$")
+_INLET = re.compile(r"^mains .*inlet at (-?\d+),(-?\d+)")
+
+
+def _positions(lines: list[str], ind: str) -> dict:
+    """Where each point is, in the scope of a statement indented by ``ind``: a block's own points
+    (inside a block), else the top level's, the inlet's `mains.pe` and the points of each placed
+    block (moved and mirrored as docs/language.md says: mirrored about the block's origin, then
+    moved)."""
+    own = {p[1]: (float(p[2]), float(p[3])) for line in lines if (p := _POINT.match(line))
+           and line.startswith(ind + "point")}
+    if ind:
+        return own
+    inner = {p[1]: (float(p[2]), float(p[3])) for line in lines if (p := _POINT.match(line))
+             and line.startswith("  point")}
+    for line in lines:
+        if m := _INLET.match(line):
+            own["mains.pe"] = (float(m[1]), float(m[2]))
+        if m := _PLACE.match(line):
+            ox, oy = float(m[3]), float(m[4])
+            for name, (x, y) in inner.items():
+                if m[5] and m[6]:
+                    x = -x
+                elif m[5]:
+                    y = -y
+                own[f"{m[2]}.{name}"] = (x + ox, y + oy)
+    return own
+
+
 def wires(text: str) -> list[str]:
     """The names of the wires written with a length in mm that :func:`split_wire` can split."""
     return [m[2] for line in text.splitlines() if (m := _WIRE.match(line))]
@@ -97,8 +126,7 @@ def split_wire(text: str, name: str, share: float = 0.5) -> tuple[str, str, str]
     k = next(i for i, line in enumerate(lines) if (m := _WIRE.match(line)) and m[2] == name)
     m = _WIRE.match(lines[k])
     ind, a, b, length, rest = m[1], m[3], m[4], float(m[5]), m[6]
-    where = {p[1]: (int(p[2]), int(p[3])) for line in lines if (p := _POINT.match(line))
-             and line.startswith(ind + "point")}
+    where = _positions(lines, ind)
     j, first, second = f"{name}_j", f"{name}_a", f"{name}_b"
     at = ""
     if a in where and b in where:

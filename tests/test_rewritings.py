@@ -18,9 +18,11 @@ import re
 import dataclasses
 from random import Random
 
-from hypothesis import HealthCheck, given, settings, strategies as st
+import pytest
+from hypothesis import HealthCheck, Phase, given, settings, strategies as st
 
 from figures import close, differences, result_figures
+from helpers import ROOT
 from groundcheck import analyze, load_text
 from groundcheck.model.kinds import KINDS, is_fastening_kind
 from groundcheck.rules.context import AuditContext
@@ -29,7 +31,9 @@ from invariantplans import (mirrored_plans, mirrored_text, protective_plans, res
 from rewrites import (fastenings_as, in_units, protective_written, reordered, split_resistor,
                       split_wire, wires)
 
-EXAMPLES = dict(deadline=None, database=None, suppress_health_check=[HealthCheck.too_slow])
+# (the explain phase is left out: it failed inside Hypothesis on these plans)
+EXAMPLES = dict(deadline=None, database=None, suppress_health_check=[HealthCheck.too_slow],
+                phases=[Phase.explicit, Phase.reuse, Phase.generate, Phase.shrink])
 SHARES = (0.5, 0.25, 0.7)
 
 
@@ -37,9 +41,37 @@ def _run(text: str):
     return analyze(load_text(text, "rewritten.gplan"))
 
 
+#: findings made per listed loop: which loops are listed is a choice of cycle basis (one loop per
+#: conductor outside a spanning tree grown in the order the plan is written)
+PER_LOOP = ("GC101", "GC302", "GC305")
+
+
+def _basis(result) -> set:
+    return {frozenset(info.loop.edges) for info in result.loops}
+
+
+def _basis_free(figures: tuple, plan) -> tuple:
+    """The figures that do not depend on which cycle basis lists the loops: no listed loop, no
+    finding made per loop, and with a field source no hum (its pickup is computed per listed loop:
+    see test_loop_pickup_does_not_depend_on_the_listed_loops)."""
+    out = dict(figures)
+    del out["loops"]
+    out["findings"] = tuple(f for f in out["findings"][1]
+                            if dict(f)["code"] not in PER_LOOP
+                            and not (plan.fields and dict(f)["code"].startswith("GC30")))
+    if plan.fields:
+        del out["hum"]
+    return tuple(out.items())
+
+
 def _alike(before, text: str, why: str, rename=lambda s: s) -> None:
+    """Every figure and finding of ``text``'s analysis as ``before``'s; when the loops are listed
+    by another cycle basis of the same network, every figure that does not depend on it."""
     after = _run(text)
-    diff = differences(result_figures(after, rename), result_figures(before))
+    got, want = result_figures(after, rename), result_figures(before)
+    if _basis(after) != _basis(before):
+        got, want = _basis_free(got, after.plan), _basis_free(want, before.plan)
+    diff = differences(got, want)
     assert not diff, (why, text, diff)
 
 
@@ -82,10 +114,12 @@ def fastenings_of_any_kind(text: str, before, rnd: Random) -> None:
         _alike(before, fastenings_as(text, [rnd.choice(kinds) for _ in range(40)]), "kinds")
 
 
-def _dc_figures(result) -> list:
+def _dc_figures(result, per_loop: bool = True) -> list:
     """The figures of a result that do not depend on a wire's inductance, names left out: the
-    protective earth's (DC), the findings' codes and severities."""
-    out = [("finding", f.code, f.severity) for f in result.findings]
+    protective earth's (DC), the findings' codes and severities (without ``per_loop``, none made
+    per listed loop, nor with a field source any hum finding)."""
+    out = [("finding", f.code, f.severity) for f in result.findings
+           if per_loop or not (f.code in PER_LOOP or result.plan.fields and f.code.startswith("GC30"))]
     if result.safety is not None:
         out += [("part", p.part, p.path_resistance, p.fault_current, p.touch_voltage)
                 for p in result.safety.parts]
@@ -97,8 +131,15 @@ def a_wire_split_in_two(text: str, before, rnd: Random) -> None:
     not: each piece's is a straight wire's own, and the mutual inductance between the two pieces,
     which the model does not know are in line, is left out; see test_split_wire_inductance.)"""
     name = rnd.choice(wires(text))
-    after = _run(split_wire(text, name, rnd.choice(SHARES))[0])
-    got, want = _dc_figures(after), _dc_figures(before)
+    split, first, second = split_wire(text, name, rnd.choice(SHARES))
+    after = _run(split)
+    joined = {frozenset(name if e in (first, second) else e for e in loop) for loop in _basis(after)}
+    same = joined == _basis(before)
+    got, want = _dc_figures(after, same), _dc_figures(before, same)
+    if any(c["element"] == "other conductors" for r in (before, after)
+           for h in r.hum.channels.values() for c in h.contributors):
+        # the listing is full: see test_a_split_wire_leaves_every_contributor_finding
+        got, want = ([x for x in figs if x[:2] != ("finding", "GC301")] for figs in (got, want))
     assert len(got) == len(want), (text, name, got, want)
     for g, w in zip(got, want):
         assert g[:2] == w[:2] and all(
@@ -188,3 +229,17 @@ test_statements_units_split_and_fastening_kinds_change_nothing = _suite("rewriti
 test_a_protective_conductor_gets_the_same_verdicts_written_or_not = _suite(
     "protective written or not")
 test_a_resistor_split_in_two_changes_no_figure = _suite("a resistor split in two")
+
+
+
+@pytest.mark.xfail(strict=True, reason="open: GC301 judges each source's ten largest conductor "
+                   "shares (physics/hum.TOP_SHARES); a wire written in two pieces takes two places")
+def test_a_split_wire_leaves_every_contributor_finding():
+    """Found by the split property: `right_link` written as two halves takes two of the ten places
+    the hum budget names per source, and the smallest named contributor of each channel goes into
+    'other conductors', with its GC301 (12 GC301 findings before, 10 after)."""
+    text = (ROOT / "tests" / "plans" / "split-listing.gplan").read_text(encoding="utf-8")
+    before = _run(text)
+    after = _run(split_wire(text, "right_link", 0.5)[0])
+    count = [sum(f.code == "GC301" for f in r.findings) for r in (before, after)]
+    assert count[0] == count[1], count

@@ -210,9 +210,10 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     cs = [ctx.conductors[e] for e in lp.edges]
-    candidates = [c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
-                  and not (bonds_metal(c) and c.role == BOND
-                           and (c.a in ctx.metals and c.b in ctx.metals))]
+    # by name, not in the order the loop happens to be walked (which follows the plan's writing)
+    candidates = sorted((c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
+                         and not (bonds_metal(c) and c.role == BOND
+                                  and (c.a in ctx.metals and c.b in ctx.metals))), key=lambda c: c.name)
     if not candidates:
         return ""
     if closed_by == "mains-cords":
