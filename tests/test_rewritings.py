@@ -243,3 +243,16 @@ def test_a_split_wire_leaves_every_contributor_finding():
     after = _run(split_wire(text, "right_link", 0.5)[0])
     count = [sum(f.code == "GC301" for f in r.findings) for r in (before, after)]
     assert count[0] == count[1], count
+
+
+def test_a_wire_in_two_pieces_is_one_contributor():
+    """GC301 on two conductors in series: 1 mA at 100 Hz through 0.6 + 0.6 mΩ, read by a stage of
+    20 dB: 1e-3 A × 1.2e-3 Ω × 10 = 12 µV, 20·log10(1.2e-5) = −98.42 dBV (Ohm's law, worked by
+    hand), named as the two pieces in series, as the one wire of 1.2 mΩ is."""
+    text = ('plan "pieces"\npoint n0: pad\npoint n1: pad\npoint j: junction\n'
+            "wire a: n1 to j, 0.0006 ohm, signal\nwire b: j to n0, 0.0006 ohm, signal\n"
+            "current i0: n0 to n1, 1 mA 100 Hz\nstage g0: n0 to n1, gain 20 dB, channel c0\n")
+    found = [f for f in _run(text).findings if f.code == "GC301"]
+    assert [f.elements for f in found] == [("a", "i0", "b")]
+    assert abs(found[0].figures["level_dbv"] - (-98.42)) < 0.01
+    assert "a, b (in series) put -98.4 dBV" in found[0].message
