@@ -21,6 +21,7 @@ N generated chassis plans with --advice N.
 from __future__ import annotations
 
 import argparse
+import functools
 import sys
 import time
 from pathlib import Path
@@ -72,6 +73,19 @@ def examples(grid: bool, mutants: int) -> None:
             print(f"  {k}  (first: {where})")
 
 
+def _counted(check, name: str, t: float):
+    """``check`` that prints a count every 500 plans."""
+    done = [0]
+
+    @functools.wraps(check)
+    def counted(*args, **kwargs):
+        check(*args, **kwargs)
+        done[0] += 1
+        if done[0] % 500 == 0:
+            print(f"  {name}: {done[0]} plans, {time.perf_counter() - t:.0f} s", flush=True)
+    return counted
+
+
 def invariants(n: int, only: str = "") -> None:
     """Every property of tests/test_invariants.py and tests/test_rewritings.py on ``n`` generated
     plans each (``only``: those whose name holds it); a count every 500 plans."""
@@ -84,14 +98,7 @@ def invariants(n: int, only: str = "") -> None:
                                          **test_rewritings.PROPERTIES}.items():
         if only not in name:
             continue
-        done = [0]
-
-        def counted(*args, check=check, done=done, name=name):
-            check(*args)
-            done[0] += 1
-            if done[0] % 500 == 0:
-                print(f"  {name}: {done[0]} plans, {time.perf_counter() - t:.0f} s", flush=True)
-        run = given(*strategies)(counted)
+        run = given(*strategies)(_counted(check, name, t))
         settings(max_examples=n, deadline=None, database=None, suppress_health_check=list(HealthCheck),
                  phases=[Phase.generate, Phase.shrink])(run)()
         print(f"{name}: {n} plans, no failure, {time.perf_counter() - t:.0f} s so far", flush=True)
