@@ -10,7 +10,9 @@
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
 crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
 tests/test_invariants.py (mirrored channels equal, names, unconnected elements, resistance scaling)
-run on N generated plans each with --invariants N; a failure is shrunk and printed by Hypothesis.
+and tests/test_rewritings.py (statement order, units, a wire split in two, fastening kinds,
+`protective` written or not) run on N generated plans each with --invariants N; a failure is
+shrunk and printed by Hypothesis.
 The advisor's promises of tests/test_repair_properties.py (no protective conductor changed but by
 the own-stud fix, no wired return removed, predictions equal a fresh check, fix lines agree) run on
 N generated chassis plans with --advice N.
@@ -19,6 +21,7 @@ N generated chassis plans with --advice N.
 from __future__ import annotations
 
 import argparse
+import functools
 import sys
 import time
 from pathlib import Path
@@ -70,14 +73,34 @@ def examples(grid: bool, mutants: int) -> None:
             print(f"  {k}  (first: {where})")
 
 
-def invariants(n: int) -> None:
-    """Every property of tests/test_invariants.py on ``n`` generated plans each."""
-    from test_invariants import PROPERTIES
+def _counted(check, name: str, t: float):
+    """``check`` that prints a count every 500 plans."""
+    done = [0]
+
+    @functools.wraps(check)
+    def counted(*args, **kwargs):
+        check(*args, **kwargs)
+        done[0] += 1
+        if done[0] % 500 == 0:
+            print(f"  {name}: {done[0]} plans, {time.perf_counter() - t:.0f} s", flush=True)
+    return counted
+
+
+def invariants(n: int, only: str = "") -> None:
+    """Every property of tests/test_invariants.py and tests/test_rewritings.py on ``n`` generated
+    plans each (``only``: those whose name holds it); a count every 500 plans."""
+    from hypothesis import Phase
+
+    import test_invariants
+    import test_rewritings
     t = time.perf_counter()
-    for name, (check, strategies, _) in PROPERTIES.items():
-        run = given(*strategies)(check)
-        settings(max_examples=n, deadline=None, database=None,
-                 suppress_health_check=list(HealthCheck))(run)()
+    for name, (check, strategies, _) in {**test_invariants.PROPERTIES,
+                                         **test_rewritings.PROPERTIES}.items():
+        if only not in name:
+            continue
+        run = given(*strategies)(_counted(check, name, t))
+        settings(max_examples=n, deadline=None, database=None, suppress_health_check=list(HealthCheck),
+                 phases=[Phase.generate, Phase.shrink])(run)()
         print(f"{name}: {n} plans, no failure, {time.perf_counter() - t:.0f} s so far", flush=True)
 
 
@@ -111,6 +134,7 @@ def main() -> None:
     ap.add_argument("--mutants", type=int, default=0, metavar="N", help="N token mutants of every example")
     ap.add_argument("--invariants", type=int, default=0, metavar="N",
                     help="the invariant properties, N plans each")
+    ap.add_argument("--only", default="", help="with --invariants: the properties whose name holds this")
     ap.add_argument("--advice", type=int, default=0, metavar="N",
                     help="the advisor's promises on N generated chassis plans")
     args, rest = ap.parse_known_args()
@@ -118,7 +142,7 @@ def main() -> None:
         advice(args.advice)
         return
     if args.invariants:
-        invariants(args.invariants)
+        invariants(args.invariants, args.only)
         return
     if args.grid or args.mutants:
         examples(args.grid, args.mutants)

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 from hypothesis import strategies as st
 
 #: the plate, mm: small enough that its grid (2 mm, half a fastener's radius) solves in a blink
-PLATE = (200, 100)
+PLATE = (120, 60)
 AREAS = ("0.5 mm2", "0.75 mm2", "1 mm2")
 
 
@@ -74,7 +74,9 @@ def blocks(draw, axis: str) -> Block:
 
 
 @st.composite
-def mirrored_plans(draw) -> Mirrored:
+def mirrored_plans(draw, rectifiers: bool = True) -> Mirrored:
+    """A mirrored plan; without ``rectifiers`` (the default suite's cheaper plans) its supply
+    return is a stated ripple current rather than a simulated rectifier."""
     axis = draw(st.sampled_from(["x", "y"]))
     span = PLATE[1] if axis == "x" else PLATE[0]
     return Mirrored(
@@ -83,7 +85,7 @@ def mirrored_plans(draw) -> Mirrored:
         2 * draw(st.integers(2, span // 2 - 2)),
         draw(st.sampled_from([20.0, 100.0, 300.0])),
         draw(st.integers(0, 40)),
-        draw(st.booleans()),
+        rectifiers and draw(st.booleans()),
         draw(st.booleans()),
     )
 
@@ -224,4 +226,53 @@ def resistive_text(r: Resistive, scale: float = 1.0) -> str:
         f"stage g{k}: n{a} to n{b}, gain {g} dB, channel c{k}"
         for k, (a, b, g) in enumerate(r.stages)
     ]
+    return "\n".join(lines) + "\n"
+
+
+ROLE_WORDS = ("", ", protective", ", signal", ", return", ", bond")
+
+
+@st.composite
+def protective_plans(draw) -> str:
+    """A chassis and a panel whose protective earth may run over parallel paths, each conductor's
+    role drawn (written or not), with a signal circuit beside it: for the property that a conductor
+    on the protective route gets the same verdicts whether or not the plan writes `protective`."""
+    role = st.sampled_from(ROLE_WORDS)
+    area = st.sampled_from(["0.5 mm2", "0.75 mm2", "1 mm2"])
+    lines = [
+        'plan "protective"',
+        "mains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, inlet at 10,90",
+        "metal deck: steel 1 mm, 160 x 100 mm, touchable",
+        "metal panel: aluminium 2 mm, 160 x 40 mm, at 0,110, touchable",
+        f"point pe_stud: stud, at {2 * draw(st.integers(5, 30))},80 on deck",
+        f"wire pe_lead: mains.pe to pe_stud, {draw(st.integers(20, 60))} mm, 1 mm2{draw(role)}",
+        f"bolt pe_nut: pe_stud to deck{draw(role)}",
+        "point panel_stud: stud, at 80,130 on panel",
+        f"bolt panel_nut: panel_stud to panel{draw(role)}",
+        "point star: star, at 100,50 on deck",
+        "point sleeve: sleeve, at 150,20 on deck",
+        "wire in_gnd: sleeve to star, 60 mm, 0.5 mm2, signal",
+        "stage v1: sleeve to star, gain 30 dB, channel main",
+        f"wire star_bond: star to pe_stud, 70 mm, 0.75 mm2{draw(role)}",
+    ]
+    # the panel's protective paths: one to three, from the stud, the inlet or over a junction
+    paths = draw(st.lists(st.sampled_from(["stud", "inlet", "junction", "strap"]), min_size=1,
+                          max_size=3, unique=True))
+    for p in paths:
+        if p == "stud":
+            lines.append(f"wire bond_a: pe_stud to panel_stud, {draw(st.integers(60, 120))} mm, "
+                         f"{draw(area)}{draw(role)}")
+        elif p == "inlet":
+            lines.append(f"wire bond_b: mains.pe to panel_stud, {draw(st.integers(60, 120))} mm, "
+                         f"{draw(area)}{draw(role)}")
+        elif p == "junction":
+            lines += [
+                "point tag: lug, at 40,100",
+                f"wire bond_c: pe_stud to tag, 30 mm, {draw(area)}{draw(role)}",
+                f"wire bond_d: tag to panel_stud, 50 mm, {draw(area)}{draw(role)}",
+            ]
+        else:
+            lines.append(f"strap bond_e: deck to panel, 40 mm, width 10 mm, thickness 1 mm{draw(role)}")
+    if draw(st.booleans()):
+        lines.append("bolt sleeve_nut: sleeve to deck")  # an uninsulated socket: a dead end
     return "\n".join(lines) + "\n"

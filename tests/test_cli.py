@@ -79,8 +79,8 @@ def test_explain(cli):
 
 def test_the_caution_is_in_every_output(cli, tmp_path):
     from groundcheck.core.caution import CAUTION, MAINS_WORK
-    outputs = {fmt: cli("check", HEADPHONE, "--format", fmt)[1]
-               for fmt in ("text", "json", "sarif")}
+    from groundcheck.renderers.formats import CHECK_FORMATS
+    outputs = {fmt: cli("check", HEADPHONE, "--format", fmt)[1] for fmt in CHECK_FORMATS}
     outputs["explain"] = cli("explain", "GC201")[1]
     outputs["explain list"] = cli("explain")[1]
     outputs["suggest"] = cli("suggest", HEADPHONE)[1]

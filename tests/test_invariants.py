@@ -12,7 +12,7 @@ from __future__ import annotations
 
 
 import numpy as np
-from hypothesis import HealthCheck, given, settings, strategies as st
+from hypothesis import HealthCheck, Phase, given, settings, strategies as st
 
 from groundcheck import analyze, load_text
 from groundcheck.physics.coupling import LISTED_TRANSFER
@@ -22,7 +22,8 @@ from invariantplans import mirrored_plans, mirrored_text, resistive_plans, resis
 
 REL, FLOOR = 1e-9, 1e-15
 #: a modest count in the default suite; the campaign runs thousands
-EXAMPLES = dict(deadline=None, database=None, suppress_health_check=[HealthCheck.too_slow])
+EXAMPLES = dict(deadline=None, database=None, suppress_health_check=[HealthCheck.too_slow],
+                phases=[Phase.explicit, Phase.reuse, Phase.generate, Phase.shrink])
 
 
 def _close(a: float, b: float) -> bool:
@@ -183,12 +184,12 @@ def drops_scale_with_resistance(r, k) -> None:
 #: each property, its strategies and how many plans the default suite gives it (the campaign,
 #: benchmarks/fuzz_campaign.py --invariants N, gives each N)
 PROPERTIES = {
-    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 150),
-    "names change no figure": (names_change_nothing, (mirrored_plans(),), 40),
+    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 200),
+    "names change no figure": (names_change_nothing, (mirrored_plans(rectifiers=False),), 200),
     "an unconnected element changes no figure": (
         unconnected_changes_nothing,
-        (mirrored_plans(), st.sampled_from(["point alone: pad\n", ISLAND])),
-        40,
+        (mirrored_plans(rectifiers=False), st.sampled_from(["point alone: pad\n", ISLAND])),
+        200,
     ),
     "drops scale with resistance": (
         drops_scale_with_resistance,

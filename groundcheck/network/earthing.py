@@ -134,13 +134,16 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
             route.add(k)
             v = u
     conds = {c.name: c for c in plan.conductors}
-    unmarked = tuple(sorted(k for k in route if conds[k].role not in PROTECTIVE_ROLES))
     marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
     side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)
-    keep = {k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost}
-    return ProtectiveRoute(frozenset(route | marked), unmarked, frozenset(route | marked | keep), frozenset(targets),
-                           marked_reach, parent, tuple(roots))
+    # every conductor between two nodes of the protective side carries fault current, whatever role
+    # the plan writes: the route is found from the network, the role only documents it
+    keep = route | {k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost}
+    unmarked = tuple(sorted(k for k in keep if conds[k].role not in PROTECTIVE_ROLES))
+    everything = frozenset(keep | marked)
+    return ProtectiveRoute(everything, unmarked, everything, frozenset(targets), marked_reach, parent,
+                           tuple(roots))
 
 
 def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:

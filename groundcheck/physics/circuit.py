@@ -254,7 +254,9 @@ def _fasteners(plan: Plan, metals: dict, conductors) -> dict[str, list[tuple[str
                     if m.size is not None:
                         where = (m.origin[0] + m.size[0] / 2, m.origin[1] + m.size[1] / 2)
                 fasteners[end].append((c.name, where))
-    return fasteners
+    # by conductor name, so that a plate's nodes and branches are numbered alike whatever order
+    # the plan writes its fastenings in
+    return {m: sorted(fs, key=lambda f: f[0]) for m, fs in fasteners.items()}
 
 
 class _Builder:

@@ -62,6 +62,17 @@ TASK_SOURCES = 512
 
 
 
+def _largest(mags, rank):
+    """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken by owner
+    name rather than by the order the plan writes its conductors in."""
+    nb, k = mags.shape[1], min(mags.shape[1], TOP_SHARES + 8)
+    near = np.argpartition(mags, nb - k, axis=1)[:, nb - k:]
+    rows = np.arange(len(mags))[:, None]
+    q = np.round(mags[rows, near] / np.maximum(mags.max(axis=1), 1e-300)[:, None], 9)
+    order = np.lexsort((rank[near], -q), axis=1)[:, :TOP_SHARES]
+    return near[rows, order]
+
+
 def _pickup_columns(circuit, loops, names) -> tuple[list, np.ndarray, np.ndarray]:
     """The loops that take a series EMF (an outline, and a chord that is a branch): their indices, each one's chord
     branch and the EMF's sign along it (+1 when the branch runs the loop's way).
@@ -147,6 +158,7 @@ class HumBudget:
         self.listening = listening = plan.listening
         self.rated = listening.rated_output if listening else 1.0
         self.owners = branch_owner(circuit)
+        self.owner_rank = np.argsort(np.argsort(np.array(self.owners, dtype=object)))
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
         self.pairs = {src.name: (src, h) for src, h in pair_sources(plan.heaters)}     # AC heater pairs
         self.sources = [*plan.fields, *(src for src, _ in self.pairs.values())]
@@ -312,7 +324,7 @@ class HumBudget:
         owners = self.owners
         nb = mags_all.shape[1]
         if nb > TOP_SHARES:
-            tops = np.argpartition(mags_all, nb - TOP_SHARES, axis=1)[:, nb - TOP_SHARES:]
+            tops = _largest(mags_all, self.owner_rank)
         else:
             tops = np.broadcast_to(np.arange(nb), (len(groups), nb))
         rows = np.arange(len(groups))[:, None]

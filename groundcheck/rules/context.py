@@ -170,9 +170,11 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
     channels = {c.channel for c in cs if c.channel in known} | {node_channel(ctx, n) for n in lp.nodes} & known
     if len(channels) >= 2:
         return "channel-returns"
-    if has_metal and roles <= set(PROTECTIVE_ROLES):
+    # a conductor the protective earth relies on is protective whatever role the plan writes
+    carried = {PROTECTIVE if c.name in ctx.protective_path else c.role for c in cs}
+    if has_metal and carried <= set(PROTECTIVE_ROLES):
         return "chassis-structure"
-    if has_metal and SIGNAL in roles:
+    if has_metal and SIGNAL in carried:
         return "second-chassis-bond"
     if has_metal:
         return "metal-return"
@@ -208,9 +210,10 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     cs = [ctx.conductors[e] for e in lp.edges]
-    candidates = [c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
-                  and not (bonds_metal(c) and c.role == BOND
-                           and (c.a in ctx.metals and c.b in ctx.metals))]
+    # by name, not in the order the loop happens to be walked (which follows the plan's writing)
+    candidates = sorted((c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
+                         and not (bonds_metal(c) and c.role == BOND
+                                  and (c.a in ctx.metals and c.b in ctx.metals))), key=lambda c: c.name)
     if not candidates:
         return ""
     if closed_by == "mains-cords":

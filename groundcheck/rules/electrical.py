@@ -22,7 +22,8 @@ if TYPE_CHECKING:
     from ..physics.device_earth import DeviceEarth
     from ..physics.safety import SafetyResult
 
-__all__ = ["Solved", "rule_shared_returns", "rule_islands", "rule_hum", "rule_loop_near_source"]
+__all__ = ["Solved", "rule_shared_returns", "rule_islands", "rule_hum", "rule_loop_near_source",
+           "series_runs"]
 
 
 @dataclass(frozen=True)
@@ -142,6 +143,7 @@ def rule_hum(s: Solved) -> list[Finding]:
     if s.hum is None:
         return []
     plan, hum, opts = s.plan, s.hum, s.options
+    runs = series_runs(s.ctx)
     out = []
     conductors = {c.name: c for c in plan.conductors}
     # currents that reach a stage only round a loop through the installation: leakage, and the EMF of loaded cables
@@ -153,16 +155,19 @@ def rule_hum(s: Solved) -> list[Finding]:
     solved = s
     for ch, h in hum.channels.items():
         loc = stages_by_ch[ch][0].location
-        for c in h.contributors:
+        for c in _by_run(h.contributors, runs):
             if c["dbv"] is None or c["dbv"] < opts.contributor_level or c["share_pct"] < 10:
                 continue
             if c["kind"] == "conductor":
                 cond = conductors.get(c["element"])
                 fix = _contributor_fix(c["element"], c["source"], cond, loop_driven)
+                run = c.get("run", (c["element"],))
+                what = run[0] if len(run) == 1 else f"{', '.join(run)} (in series)"
                 out.append(Finding("GC301", "warning",
-                                   f"{c['element']} puts {c['dbv']:.1f} dBV of {c['source']} hum and buzz at the {ch} "
-                                   f"output ({c['share_pct']:.0f} % of the channel's total)",
-                                   cond.location if cond else loc, (c["element"], c["source"]),
+                                   f"{what} {'puts' if len(run) == 1 else 'put'} {c['dbv']:.1f} dBV of "
+                                   f"{c['source']} hum and buzz at the {ch} output "
+                                   f"({c['share_pct']:.0f} % of the channel's total)",
+                                   cond.location if cond else loc, (run[0], c["source"], *run[1:]),
                                    {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch}, fix))
             else:
                 out.append(Finding("GC302", "warning",
@@ -201,6 +206,63 @@ def _crosstalk_fix(s: Solved, talker: str, listener: str) -> str:
             "reading: give each channel its own return up to the one point where they must meet, and "
             "keep what stays shared short and thick (a common shared by design, as a headphone lead's, "
             "gives crosstalk of about its resistance over the load's)")
+
+
+def series_runs(ctx: AuditContext) -> dict[str, tuple[str, ...]]:
+    """Conductors in series: joined end to end at points where nothing else meets, no current
+    enters and no stage reads, they carry one current and a stage sees their drops alike (by
+    reciprocity, an EMF anywhere along the run drives the same currents), so a conductor written
+    in two pieces is judged as one.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        each conductor of a run of two or more -> the run's conductors, sorted by name.
+    References:
+        Kirchhoff's current law (one current through a node with two branches and no source).
+    """
+    plan, G, cond = ctx.plan, ctx.G, ctx.conductors
+    fed = {e for x in (*plan.currents, *plan.rectifiers, *plan.heaters) for e in (x.a, x.b)}
+    fed |= {r.filter_point for r in plan.rectifiers}
+    fed |= {e for st in plan.stages for e in (st.a, st.b, st.named)}
+    read = {st.across for st in plan.stages}
+    joined: dict[str, set[str]] = {}
+    for p in G.nodes:
+        if p in ctx.metals or p in fed:
+            continue
+        keys = [k for _, v, k in G.edges(p, keys=True) if v != p]
+        if len(keys) != 2 or len(set(keys)) != 2 or not all(k in cond for k in keys):
+            continue
+        if any(not cond[k].connects or carries_load(cond[k]) or k in read for k in keys):
+            continue
+        run = joined.get(keys[0], {keys[0]}) | joined.get(keys[1], {keys[1]})
+        for k in run:
+            joined[k] = run
+    return {k: tuple(sorted(run)) for k, run in joined.items()}
+
+
+def _by_run(contributors: list[dict], runs: dict) -> list[dict]:
+    """The contributors with those of one run and one source merged into one (at the place of the
+    first): levels and shares added — exact for pieces of one kind and size, whose drops are in
+    phase, an upper bound on the level otherwise."""
+    out: list[dict] = []
+    merged: dict[tuple, dict] = {}
+    for c in contributors:
+        run = runs.get(c["element"]) if c["kind"] == "conductor" else None
+        if run is None:
+            out.append(c)
+            continue
+        key = (run, c["source"])
+        if key not in merged:
+            merged[key] = dict(c, element=run[0], run=run, parts=[c])
+            out.append(merged[key])
+        else:
+            m = merged[key]
+            m["parts"].append(c)
+            m["volts"] += c["volts"]
+            m["share_pct"] = round(m["share_pct"] + c["share_pct"], 1)
+            m["dbv"] = round(dbv(m["volts"]), 2)   # as the hum budget gives a level
+    return out
 
 
 def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:

@@ -4,7 +4,7 @@ foot)."""
 
 from __future__ import annotations
 
-from ..model.kinds import PROTECTIVE_ROLES, is_fastening
+from ..model.kinds import is_fastening
 from ..model.records import PE_POINT
 from .catalogue import Finding
 from .context import AuditContext
@@ -22,8 +22,8 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
             if k not in ctx.route or v in ctx.metals:
                 continue
             others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
-            fastenings = [kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
-                          and ctx.conductors[kk].role in PROTECTIVE_ROLES]
+            # the stud's own fastening to the metal, whatever role the plan writes for it
+            fastenings = sorted(kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals))
             holds = [kk for kk in others if kk not in fastenings[:1]]
             holds += _clamped_part(ctx, v, fastenings[:1])
             if holds:
