@@ -19,7 +19,8 @@ REL, FLOOR = 1e-9, 1e-15
 #: fields that say where or how something is written, or what was asked, not what was found
 SKIP = {"location", "stage_location", "plan", "circuit", "options", "message", "fix", "notices",
         "polygon", "parent", "path", "not_checked", "accepted",
-        "chord"}  # a loop's walk: its members are compared as sets
+        "chord",  # a loop's walk: its members are compared as sets
+        "lines"}  # each contributor's raw phasors (a bench fit's input): compared as the contributors
 _LOOP = re.compile(r"^loop (\d+)$")
 
 

@@ -128,7 +128,8 @@ def _loop_rows(b, merged, model, spectrum) -> None:
                                                "area_mm2": None if info.area is None else round(info.area * 1e6, 2),
                                                "sources": {}})
         row["sources"][src.name] = {
-            "flux_density_equiv_t": abs(phi) / info.area if info.area else None,
+            # a loop of no area to speak of (its conductors in line) has no mean flux density
+            "flux_density_equiv_t": abs(phi) / info.area if (info.area or 0) > AREA_FLOOR else None,
             "closest_mm": round(b.closest(src.name, info.polygon) * 1e3, 1),
             "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in m],
             "axis_stated": src.axis, "model": model.model,
@@ -138,14 +139,25 @@ def _loop_rows(b, merged, model, spectrum) -> None:
                               for f, ratio in spectrum]}
 
 
+#: a loop's outline enclosing less than this (m²: 1 µm², rounding on collinear conductors) has
+#: no area
+AREA_FLOOR = 1e-12
+
+#: a loop's largest flux below this (Wb: under 1 pV of EMF at 150 Hz) gives it no worst direction
+#: of its own; the report then shows z
+FLUX_FLOOR = 1e-15
+
+
 def _loop_worst(model, col: int) -> np.ndarray:
     """The direction that puts the most flux through one loop: for the dipole F/|F| (Cauchy–Schwarz, the flux
     being F·m̂), for the ring the search."""
     if model.F is None:
-        return worst_axis(model.only(col), lambda p: p[:, 0] ** 2)[0]
+        m, top = worst_axis(model.only(col), lambda p: p[:, 0] ** 2)
+        # a loop with no flux to speak of has no worst direction: its search meets rounding only
+        return m if math.sqrt(max(top, 0.0)) > FLUX_FLOOR else np.array([0.0, 0.0, 1.0])
     F = model.F[col]
     norm = float(np.linalg.norm(F))
-    if norm == 0.0:
+    if norm <= FLUX_FLOOR:
         return np.array([0.0, 0.0, 1.0])
     m = F / norm
     k = int(np.argmax(np.abs(m)))

@@ -243,6 +243,10 @@ def _grid(n: int) -> np.ndarray:
     return np.vstack([np.column_stack([r * np.cos(phi), r * np.sin(phi), z]), np.eye(3)])
 
 
+#: relative difference within which an axis counts as reaching the search's maximum
+TIE = 1e-9
+
+
 def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
     """The unit direction that maximises ``measure`` of the source's fluxes, and that maximum.
 
@@ -279,6 +283,14 @@ def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
         values = measure(model.fluxes(final))
         best = int(np.argmax(values))
         m, top = final[best], float(values[best])
+    # a flat measure (a loop with no pickup, or one the source couples to alike in every direction)
+    # has no one maximum: an axis that reaches it to rounding is taken, whatever the search met first
+    axes = model.admit(np.eye(3))
+    if len(axes):
+        at_axes = measure(model.fluxes(axes))
+        tied = np.flatnonzero(at_axes >= top - TIE * abs(top) - 1e-300)
+        if tied.size:
+            m = axes[tied[0]]
     k = int(np.argmax(np.abs(m)))
     return (m if m[k] > 0 else -m), top
 

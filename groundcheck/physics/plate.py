@@ -36,7 +36,7 @@ from .impedance import FASTENER_RADIUS, MU0
 from .plate_mesh import plate_mesh
 
 __all__ = ["PlateResult", "reduce_plate", "grid_laplacian", "grid_step", "contact_groups",
-           "PERMEABILITY", "permeability", "sheet_ratio"]
+           "PERMEABILITY", "permeability", "sheet_ratio", "canonical_order", "quantised"]
 
 #: grid nodes per plate at most (keeps one plate's solve well under a second)
 MAX_GRID_NODES = 100_000
@@ -246,9 +246,55 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
     References:
         G. Kron, *Tensor Analysis of Networks*, 1939 (network reduction: the Schur complement).
     """
-    red, used, err = _reduced(abs(width), abs(depth), thickness, rho, tuple(map(tuple, contacts)), radius, step,
-                              estimate_error)
+    width, depth, contacts = quantised(abs(width), abs(depth), contacts)
+    order = canonical_order(width, depth, contacts)
+    red, used, err = _reduced(width, depth, thickness, rho, tuple(contacts[i] for i in order), radius,
+                              step, estimate_error)
+    back = np.argsort(order)
+    red = red[np.ix_(back, back)]
+    red.setflags(write=False)
     return PlateResult(tuple(names), red, used, err)
+
+
+def canonical_order(width: float, depth: float, contacts) -> list[int]:
+    """The order the mesh takes a plate's contacts in: by distance from the plate's centre lines,
+    then position — never by name or by where the plan writes them (the mesh's tie-breaking
+    between overlapping discs depends on it), and alike for mirror images about the centre.
+
+    Parameters:
+        width, depth: the plate's size, m.
+        contacts: the fastenings' positions, m.
+    Returns:
+        the contacts' indices in the mesh's order.
+    References:
+        none (bookkeeping).
+    """
+    def key(i):
+        x, y = contacts[i]
+        return (round(abs(x - width / 2), 12), round(abs(y - depth / 2), 12), x, y)
+    return sorted(range(len(contacts)), key=key)
+
+
+#: a plate's size and its fastenings' positions are taken to this step, m (1 nm): a position written
+#: in another unit differs from its mm value by float rounding alone, and a grid node that lies on a
+#: contact circle must fall the same way for both
+GEOMETRY_QUANTUM = 1e-9
+
+
+def quantised(width: float, depth: float, contacts) -> tuple[float, float, tuple]:
+    """A plate's size and contact positions on the :data:`GEOMETRY_QUANTUM` grid.
+
+    Parameters:
+        width, depth: the plate's size, m.
+        contacts: the fastenings' positions, m.
+    Returns:
+        (width, depth, contacts) rounded to the quantum.
+    References:
+        none (bookkeeping).
+    """
+    def q(v: float) -> float:
+        return round(v / GEOMETRY_QUANTUM) * GEOMETRY_QUANTUM
+    return q(width), q(depth), tuple((q(x), q(y)) for x, y in contacts)
 
 
 @lru_cache(maxsize=64)

@@ -110,6 +110,10 @@ def grid_edges(width: float, depth: float, sheet_g: float, nx: int, ny: int):
     return X, Y, A, B, G
 
 
+#: fractions of an edge within which two discs are entered or left at the same place
+SPAN_TIE = 1e-9
+
+
 def _disc_spans(X, Y, A, B, contacts, radius, hx, hy):
     """Per edge, the first disc it enters from A's side and where, and the last it leaves towards B
     and where."""
@@ -118,6 +122,10 @@ def _disc_spans(X, Y, A, B, contacts, radius, hx, hy):
     last_s = np.full(A.size, -np.inf)
     last_k = np.full(A.size, -1)
     dx, dy = X[B] - X[A], Y[B] - Y[A]
+    mx, my = (X[A] + X[B]) / 2, (Y[A] + Y[B]) / 2
+    first_d = np.full(A.size, np.inf)
+    last_d = np.full(A.size, np.inf)
+    tol = SPAN_TIE
     for j, (cx, cy) in enumerate(contacts):
         near = np.flatnonzero(
             (np.abs(X[A] - cx) <= radius + 1.01 * hx) & (np.abs(Y[A] - cy) <= radius + 1.01 * hy)
@@ -125,10 +133,13 @@ def _disc_spans(X, Y, A, B, contacts, radius, hx, hy):
         s0, s1 = _inside_span(X[A[near]] - cx, Y[A[near]] - cy, dx[near], dy[near], radius)
         hit = ~np.isnan(s0)
         e, s0, s1 = near[hit], s0[hit], s1[hit]
-        nearer = s0 < first_s[e]
-        first_s[e[nearer]], first_k[e[nearer]] = s0[nearer], j
-        later = s1 > last_s[e]
-        last_s[e[later]], last_k[e[later]] = s1[later], j
+        # discs entered (or left) at the same place to rounding: the one whose centre is nearer the
+        # edge's middle, a choice of geometry, not of the order the plan names its fastenings in
+        dc = np.hypot(mx[e] - cx, my[e] - cy)
+        nearer = (s0 < first_s[e] - tol) | ((np.abs(s0 - first_s[e]) <= tol) & (dc < first_d[e]))
+        first_s[e[nearer]], first_k[e[nearer]], first_d[e[nearer]] = s0[nearer], j, dc[nearer]
+        later = (s1 > last_s[e] + tol) | ((np.abs(s1 - last_s[e]) <= tol) & (dc < last_d[e]))
+        last_s[e[later]], last_k[e[later]], last_d[e[later]] = s1[later], j, dc[later]
     return first_k, first_s, last_k, last_s
 
 

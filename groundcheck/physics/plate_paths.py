@@ -22,7 +22,7 @@ from functools import lru_cache
 import numpy as np
 
 from .impedance import FASTENER_RADIUS
-from .plate import contact_groups, grid_step
+from .plate import canonical_order, contact_groups, grid_step, quantised
 from .plate_mesh import plate_mesh
 
 __all__ = ["plate_flow", "passage_flow", "passage_vector", "loop_passages", "MAX_PLATE_CONTACTS"]
@@ -48,6 +48,16 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
         the finite-volume grid of :func:`groundcheck.physics.plate.grid_laplacian`; Kirchhoff's
         laws.
     """
+    width, depth, contacts = quantised(width, depth, contacts)
+    order = canonical_order(width, depth, contacts)
+    mids, vecs, flow = _plate_flow(width, depth, tuple(contacts[i] for i in order), radius)
+    # the flow for a unit current in at contact j and out at contact 0, by superposition of the
+    # canonical columns (in at i, out at the canonical first)
+    pos = np.argsort(order)
+    return mids, vecs, flow[:, pos] - flow[:, pos[0]][:, None]
+
+
+def _plate_flow(width: float, depth: float, contacts: tuple, radius: float):
     step = grid_step(width, depth, radius)
     nx = max(3, int(round(width / step)) + 1)
     ny = max(3, int(round(depth / step)) + 1)

@@ -10,7 +10,16 @@ __all__ = ["floating_fix"]
 
 def floating_fix(ctx: AuditContext, comp) -> str:
     """GC106's fix: bond once near the protective earth; points of the ground that sit ``on`` a metal
-    part with nothing fastening them are named (``on`` places a point, a fastening joins it)."""
+    part with nothing fastening them are named (``on`` places a point, a fastening joins it).
+
+    Parameters:
+        ctx: the audit context.
+        comp: the floating ground's points.
+    Returns:
+        the fix line.
+    References:
+        the rule catalogue (rules/catalogue.py), GC106.
+    """
     fix = "bond the signal star to the chassis at one place near the protective-earth stud"
     loose = sorted(p.name for p in ctx.plan.points if p.name in comp and p.on is not None)
     if not loose:

@@ -13,7 +13,15 @@ __all__ = ["pe_fastener"]
 
 
 def pe_fastener(ctx: AuditContext) -> list[Finding]:
-    """GC202: the protective conductor from the inlet lands on a fastener that holds something else."""
+    """GC202: the protective conductor from the inlet lands on a fastener that holds something else.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC202 findings.
+    References:
+        the rule catalogue (rules/catalogue_pe.py), which names the code's sources.
+    """
     out = []
     G = ctx.G
     for v, keys in G.adj[PE_POINT].items():
