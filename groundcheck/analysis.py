@@ -44,10 +44,11 @@ def audit(plan: Plan, ctx: AuditContext | None = None):
 
 
 def analyze(plan: Plan, options: Options = Options()) -> Result:
-    """Audit a plan's topology, solve its network, and compute its protective-earth and hum figures.
+    """Audit a plan's topology, solve its network, and compute its protective-earth and hum
+    figures.
 
-    The solves run with one BLAS thread (:func:`groundcheck.core.runtime.one_blas_thread`); the caller's setting
-    is back when it returns."""
+    The solves run with one BLAS thread (:func:`groundcheck.core.runtime.one_blas_thread`); the
+    caller's setting is back when it returns."""
     with no_gc(), one_blas_thread():
         return _analyze(plan, options)
 

@@ -1,6 +1,6 @@
-"""The solves run with one BLAS thread, and the caller's setting is back afterwards (issue 31, item 1).
+"""The solves run with one BLAS thread, and the caller's setting is back afterwards.
 
-The caller here sets two threads first, so that a limit that is never applied, or never lifted, shows."""
+The caller here sets two threads first, so that a limit never applied, or never lifted, shows."""
 
 import pytest
 
@@ -14,7 +14,8 @@ threadpoolctl = pytest.importorskip("threadpoolctl")
 
 
 def _blas_threads() -> set[int]:
-    return {lib["num_threads"] for lib in threadpoolctl.threadpool_info() if lib["user_api"] == "blas"}
+    return {lib["num_threads"] for lib in threadpoolctl.threadpool_info()
+            if lib["user_api"] == "blas"}
 
 
 @pytest.fixture
@@ -28,7 +29,7 @@ def two_threads():
 
 @pytest.fixture
 def seen(monkeypatch):
-    """The BLAS threads in force at each of the analysis's solves (the rectifier's and the network's)."""
+    """The BLAS threads in force at each of the analysis's solves (rectifier and network)."""
     seen = []
     solve, simulate = analysis.run_tasks, analysis.simulate
 

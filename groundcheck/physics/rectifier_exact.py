@@ -5,9 +5,10 @@ on a point of the ground system, the load at its output).
 The linear part (reservoir, filter, load) is a state-space system dx/dt = A·x + B·i + s, integrated with the
 trapezoidal rule; at each step the winding's equation (source = R·i + diode + reservoir, plus L·di/dt with leakage)
 is solved for the new current by Newton's method, the reservoir voltage being an affine function of it.  The
-periodic steady state is found by Newton's method on the winding current and the state at the source's zero crossing,
-the period map's Jacobian being the product of the steps' own (implicit differentiation of each step's equation),
-so each iteration costs one period.
+periodic steady state is found by Newton's method on the winding current and the state at the
+source's zero crossing, the period map's Jacobian being the product of the steps' own (implicit
+differentiation of each step's equation), so each iteration costs one period; where the diodes
+block, the linear part's evolution is taken over the whole stretch at once.
 
 References: O. H. Schade, "Analysis of rectifier operation", Proc. IRE 31(7), 1943; W. Shockley, "The theory of
 p-n junctions", Bell Syst. Tech. J. 28, 1949 (the diode law); T. J. Aprille, T. N. Trick, Proc. IEEE 60(1), 1972
@@ -69,6 +70,8 @@ class _Model:
         self.m, self.n, self.k = self.M.tolist(), self.N.tolist(), self.K.tolist()
         self.n0, self.rows = self.n[0], range(len(self.n))
         self.linear = not (self.shockley or self.valve) and self.lh == 0
+        self.free, self.end = _affine(self.m, self.n, self.k)
+        self.powers = None
 
     def vd(self, x: float) -> float:
         if self.valve:
@@ -92,10 +95,10 @@ class _Model:
 
     def step(self, i0: float, x0: list, s0: float, s1: float) -> tuple:
         """One time step in plain floats (the state is one to three numbers: numpy's per-call cost would be most
-        of the work): the end current, the end state and the end current's sensitivity to the start, as
-        (a, b, g) with dx/d(i0, x0) = a·e_i + b·e_v1 + g·(N0, M[0]) (see :meth:`jacobian`)."""
-        M, N, K, rows = self.m, self.n, self.k, self.rows
-        free = [sum(M[r][c] * x0[c] for c in rows) + N[r] * i0 + K[r] for r in rows]
+        of the work): the end current, the end state and the end current's sensitivity to the
+        start, as (a, b, g) with dx/d(i0, x0) = a·e_i + b·e_v1 + g·(N0, M[0]) (see
+        :meth:`jacobian`)."""
+        free = self.free(x0, i0)
         base = free[0]
         if self.linear:
             # constant-drop diodes, no leakage: the equation is linear in x (the root Newton's iteration would find)
@@ -103,7 +106,7 @@ class _Model:
             if num <= 0.0:
                 return 0.0, free, 0.0, 0.0, 0.0
             x = num / (self.rt + self.n0)
-            return x, [free[r] + N[r] * x for r in rows], 0.0, 0.0, -1.0 / (self.rt + self.n0)
+            return x, self.end(free, x), 0.0, 0.0, -1.0 / (self.rt + self.n0)
         d0 = (s0 - self.rt * i0 - self.vd(i0) - x0[0]) if i0 > 0 else 0.0     # inductor voltage at the start
         if self.residual(0.0, i0, d0, s1, base)[0] >= 0.0:             # the diodes block
             return 0.0, free, 0.0, 0.0, 0.0
@@ -116,7 +119,7 @@ class _Model:
             x = x_new
             if done:
                 break
-        end = [free[r] + N[r] * x for r in rows]
+        end = self.end(free, x)
         if self.lh <= 0:
             return x, end, 0.0, 0.0, -1.0 / df
         # implicit differentiation of the inductor's equation in x, i0, d0(i0, v1) and base
@@ -124,24 +127,52 @@ class _Model:
         return x, end, self.lh / df + b * (self.rt + self.dvd(i0)), b, -0.5 / df
 
     def period(self, s: np.ndarray, z0: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """One period from the start z0 = (winding current, state): states (n+1 × dim), currents (n+1) and the
-        Jacobian of the end (current, state) with respect to z0."""
+        """One period from the start z0 = (winding current, state): states (n+1 × dim), currents
+        (n+1) and the Jacobian of the end (current, state) with respect to z0.  Where the diodes
+        block, the state evolves by the linear part alone: those stretches are computed at once
+        (:meth:`blocked`), the rest step by step."""
         src = s.tolist()
         src.append(src[0])
+        n = len(s)
         i, x = float(z0[0]), [float(v) for v in z0[1:]]
         xs, cur, coef = [x], [i], []
-        step = self.step
-        for k in range(len(s)):
+        step, k = self.step, 0
+        while k < n:
+            if i == 0.0:
+                states = self.blocked(x, src, k)
+                if states:
+                    xs.extend(states)
+                    cur.extend([0.0] * len(states))
+                    coef.extend([(0.0, 0.0, 0.0)] * len(states))
+                    k += len(states)
+                    x = states[-1]
+                    continue
             i, x, a, b, g = step(i, x, src[k], src[k + 1])
             xs.append(x)
             cur.append(i)
             coef.append((a, b, g))
+            k += 1
         return np.array(xs), np.array(cur), self.jacobian(np.array(coef))
 
+    def blocked(self, x: list, src: list, k: int) -> list:
+        """The states after steps k, k+1, … while the diodes stay off, from state x with no winding
+        current: each the free evolution M^j·x + (M^(j-1) + … + 1)·K, its reservoir over the source
+        less the diodes' drop at zero current (as :meth:`step` decides it); as lists, empty if the
+        diodes conduct at step k."""
+        if self.powers is None:
+            self.powers = _powers(self.M, self.K, len(src) - 1)
+        P, Q = self.powers
+        left = len(src) - 1 - k
+        X = P[1:left + 1] @ np.asarray(x) + Q[1:left + 1]
+        on = np.asarray(src[k + 1:]) - self.vd(0.0) - X[:, 0] > 0.0
+        count = int(on.argmax()) if on.any() else left
+        return X[:count].tolist()
+
     def jacobian(self, coef: np.ndarray) -> np.ndarray:
-        """The product of the steps' Jacobians, last step first, from their coefficients (rows a, b, g of
-        :meth:`step`): each step's is [[0, 0], [N, M]] + (1, N) ⊗ (a·e_i + b·e_v1 + g·(N0, M[0])), formed for
-        every step at once and multiplied pairwise (a dozen batched products for 4096 steps)."""
+        """The product of the steps' Jacobians, last step first, from their coefficients (rows
+        a, b, g of :meth:`step`): each step's is [[0, 0], [N, M]] + (1, N) ⊗ (a·e_i + b·e_v1 +
+        g·(N0, M[0])), formed for every step at once and multiplied pairwise (a dozen batched
+        products for 4096 steps)."""
         dim = len(self.N)
         fixed = np.zeros((dim + 1, dim + 1))
         fixed[1:, 0], fixed[1:, 1:] = self.N, self.M
@@ -155,6 +186,36 @@ class _Model:
                 steps = np.concatenate([steps, np.eye(dim + 1)[None]])
             steps = steps[1::2] @ steps[0::2]
         return steps[0]
+
+
+def _affine(m: list, n: list, k: list):
+    """The step's affine maps in plain floats, written out for the state's one to three numbers
+    (a generic sum over rows and columns was half of the stepping's time): free(x0, i0) =
+    M·x0 + N·i0 + K and end(free, x) = free + N·x."""
+    if len(n) == 1:
+        ((m00,),), (n0,), (k0,) = m, n, k
+        return (lambda x, i: [m00 * x[0] + n0 * i + k0]), (lambda f, x: [f[0] + n0 * x])
+    if len(n) == 2:
+        ((m00, m01), (m10, m11)), (n0, n1), (k0, k1) = m, n, k
+        return (lambda x, i: [m00 * x[0] + m01 * x[1] + n0 * i + k0,
+                              m10 * x[0] + m11 * x[1] + n1 * i + k1]), \
+            (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x])
+    ((m00, m01, m02), (m10, m11, m12), (m20, m21, m22)), (n0, n1, n2), (k0, k1, k2) = m, n, k
+    return (lambda x, i: [m00 * x[0] + m01 * x[1] + m02 * x[2] + n0 * i + k0,
+                          m10 * x[0] + m11 * x[1] + m12 * x[2] + n1 * i + k1,
+                          m20 * x[0] + m21 * x[1] + m22 * x[2] + n2 * i + k2]), \
+        (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x, f[2] + n2 * x])
+
+
+def _powers(M: np.ndarray, K: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
+    """M^j and M^(j-1)·K + … + K for j = 0 … n (the free evolution over j steps), by
+    doubling."""
+    P = np.eye(len(K))[None]
+    while len(P) <= n:
+        P = np.concatenate([P, P @ np.linalg.matrix_power(M, len(P))])
+    P = P[:n + 1]
+    Q = np.concatenate([np.zeros((1, len(K))), np.cumsum(P[:-1] @ K, axis=0)])
+    return P, Q
 
 
 def _start(r: Rectifier, peak: float) -> np.ndarray:
@@ -184,7 +245,8 @@ def steady_state(r: Rectifier, s: np.ndarray, h: float):
     model = _Model(r, h)
     peak = float(s.max())
     z = np.concatenate([[0.0], _start(r, peak)])
-    # the tolerance: 1e-9 of the peak for the voltages, of the peak over the winding's resistance for the current
+    # the tolerance: 1e-9 of the peak for the voltages, and of the peak over the winding's
+    # resistance for the current
     scale = max(1.0, peak) * np.concatenate([[1.0 / model.rt], np.ones(len(z) - 1)])
     for _ in range(30):
         xs, i, J = model.period(s, z)
@@ -193,7 +255,8 @@ def steady_state(r: Rectifier, s: np.ndarray, h: float):
             break
         z = z - np.linalg.solve(J - np.eye(len(z)), g)
         z[0] = max(z[0], 0.0)
-        z[1] = min(max(z[1], -peak), peak)      # negative while a choke's current still flows at the crossing
+        # the reservoir starts below zero while a choke's current still flows at the crossing
+        z[1] = min(max(z[1], -peak), peak)
     xs, i = xs[:-1], i[:-1]
     if r.filter_capacitance is None:
         return xs[:, 0], i, None, None
