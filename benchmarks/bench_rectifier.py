@@ -1,8 +1,10 @@
-"""Benchmark: the rectifier's steady state and a whole `check`, as ratios to an anchor.
+"""Benchmark: the rectifier's steady state and a whole `check`, as ratios to an anchor; and the
+analysis of a generated installation in one process (BLAS threads).
 
     python benchmarks/bench_rectifier.py                       # this tree
     python benchmarks/bench_rectifier.py --tree /path/to/other/checkout --label before
     python benchmarks/bench_rectifier.py --rounds 5 --plans examples/guitar-head.gplan
+    python benchmarks/bench_rectifier.py --installation 2000 --plans   # the installation alone
 
 The anchor is a fresh process importing the numeric stack,
 `python3 -c "import networkx, scipy.sparse.linalg, numpy"`, run interleaved with the measured
@@ -15,8 +17,11 @@ seconds do. Per plan:
 - **check ÷ anchor**: `groundcheck check PLAN --advice-budget 0` as a whole process (start-up
   included), its wall time and its CPU time each over the anchor's (the median of the rounds);
 
-with the machine's load average before and after. `--tree` measures another checkout (the commit
-before a change, say) in the same way, for a before/after pair.
+and with `--installation N`, `analyze()` of `generate.py installation N` in one process (the
+parent's BLAS threads: OpenBLAS's default against one thread), its wall and CPU time over the
+anchor's (the median of the rounds); with the machine's load average before and after.
+`--tree` measures another checkout (the commit before a change, say) in the same way, for a
+before/after pair.
 """
 
 from __future__ import annotations
@@ -50,12 +55,23 @@ for r in plan.rectifiers:
 print(json.dumps({"cpu": time.process_time() - t, "count": len(plan.rectifiers)}))
 """
 
+INSTALLATION = """
+import sys
+sys.path.insert(0, sys.argv[2])
+from generate import installation
+from groundcheck import load_text
+from groundcheck.analysis import analyze
+analyze(load_text(installation(int(sys.argv[1])), "installation.gplan"))
+"""
+
 
 def _timed(cmd: list[str], env: dict) -> tuple[float, float, str]:
-    """Wall and CPU seconds (user + system of the child) of one process, and its output."""
+    """Wall and CPU seconds (user + system of the child) of one process, and its output; run in
+    the measured tree (``python -c`` and ``-m`` put the working folder first on the path)."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t = time.perf_counter()
-    out = subprocess.run(cmd, env=env, capture_output=True, text=True, check=False)
+    out = subprocess.run(cmd, env=env, capture_output=True, text=True, check=False,
+                         cwd=env["PYTHONPATH"])
     wall = time.perf_counter() - t
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
@@ -80,12 +96,28 @@ def measure(tree: Path, plans: list[Path], rounds: int) -> list[dict]:
              "check_cpu_ratio": statistics.median(r["cpu"])} for r in rows.values()]
 
 
+def installation_ratio(tree: Path, devices: int, rounds: int) -> tuple[float, float]:
+    """``analyze()`` of a generated installation in a fresh process: wall and CPU over the anchor's
+    (the medians; the plan's generation and loading included, the same in both trees)."""
+    env = dict(os.environ, PYTHONPATH=str(tree))
+    walls, cpus = [], []
+    for _ in range(rounds):
+        anchor_wall, anchor_cpu, _ = _timed(ANCHOR, env)
+        cmd = [sys.executable, "-c", INSTALLATION, str(devices), str(ROOT / "benchmarks")]
+        wall, cpu, _ = _timed(cmd, env)
+        walls.append(wall / anchor_wall)
+        cpus.append(cpu / anchor_cpu)
+    return statistics.median(walls), statistics.median(cpus)
+
+
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--tree", type=Path, default=ROOT, help="the checkout to measure (default: this)")
     ap.add_argument("--label", default="", help="a word for the table's title (before, after)")
     ap.add_argument("--rounds", type=int, default=3)
     ap.add_argument("--plans", type=Path, nargs="*", default=PLANS)
+    ap.add_argument("--installation", type=int, default=0, metavar="DEVICES",
+                    help="also analyse a generated installation of DEVICES devices in one process")
     args = ap.parse_args()
     load = os.getloadavg()
     rows = measure(args.tree.resolve(), [p.resolve() for p in args.plans], args.rounds)
@@ -96,6 +128,10 @@ def main() -> int:
     for r in rows:
         print(f"| {r['plan']} | {r['rectifier_cpu_s']:.3f} | {r['check_wall_ratio']:.2f} "
               f"| {r['check_cpu_ratio']:.2f} |")
+    if args.installation:
+        wall, cpu = installation_ratio(args.tree.resolve(), args.installation, args.rounds)
+        print(f"\ninstallation of {args.installation} devices, analyze() in one process ÷ anchor: "
+              f"wall {wall:.1f}, CPU {cpu:.1f}")
     return 0
 
 
