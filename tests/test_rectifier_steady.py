@@ -86,3 +86,18 @@ def test_the_steady_state_is_periodic(r):
     assert abs(end[0] - z[0]) < 1e-6 * max(i.max(), 1e-3)
     if r is CHOKE_INPUT:
         assert i.min() > 0          # the current never stops: the start is not a zero of it
+
+
+def test_a_first_period_without_conduction_still_reaches_the_steady_state():
+    # 10 V per diode of a bridge: the first guess (the reservoir at 95 % of the secondary's peak)
+    # leaves the diodes off for a whole period, whose Jacobian under a current load is singular.
+    # Charge balance (the mean charging current is the load's) and Ohm's law in the filter
+    # resistor (the output is the reservoir less 1.5 kΩ × 16 mA), worked by hand
+    from dataclasses import replace
+
+    from groundcheck.physics.rectifier import simulate
+    r = replace(BRIDGE_CRC, diode_drop=10.0)
+    res = simulate(r, 50.0)
+    assert res.dc_current == pytest.approx(0.016, rel=1e-3)
+    assert res.output_dc == pytest.approx(res.dc_voltage - 1500.0 * 0.016, abs=1e-3)
+    assert 0 < res.dc_voltage < math.sqrt(2) * 204 - 2 * 10.0

@@ -218,6 +218,20 @@ def _powers(M: np.ndarray, K: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarra
     return P, Q
 
 
+def _newton(z: np.ndarray, g: np.ndarray, J: np.ndarray, peak: float) -> np.ndarray:
+    """Newton's step on the period map; where it leaps a thousand peaks or more (a period with no
+    conduction at all under a current load, whose free evolution has a unit eigenvalue) the
+    period's own end instead, one period of the transient."""
+    with np.errstate(all="ignore"):
+        try:
+            step = np.linalg.solve(J - np.eye(len(z)), g)
+        except np.linalg.LinAlgError:
+            step = None
+    if step is None or not np.all(np.isfinite(step)) or np.abs(step[1:]).max() > 1e3 * peak:
+        return z + g
+    return z - step
+
+
 def _start(r: Rectifier, peak: float) -> np.ndarray:
     """A first guess of the state at the zero crossing: the reservoir near the peak, the output a little below."""
     dim = 1 if r.filter_capacitance is None else (2 if r.filter_inductance <= 0 else 3)
@@ -253,7 +267,7 @@ def steady_state(r: Rectifier, s: np.ndarray, h: float):
         g = np.concatenate([[i[-1]], xs[-1]]) - z
         if np.all(np.abs(g) < 1e-9 * scale):
             break
-        z = z - np.linalg.solve(J - np.eye(len(z)), g)
+        z = _newton(z, g, J, peak)
         z[0] = max(z[0], 0.0)
         # the reservoir starts below zero while a choke's current still flows at the crossing
         z[1] = min(max(z[1], -peak), peak)
