@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from functools import partial
 
-from .core.runtime import no_gc
+from .core.runtime import no_gc, one_blas_thread
 from .model.records import Plan
 from .physics.bonding_test import bonding_figures
 from .physics.circuit import build_circuit
@@ -44,8 +44,12 @@ def audit(plan: Plan, ctx: AuditContext | None = None):
 
 
 def analyze(plan: Plan, options: Options = Options()) -> Result:
-    """Audit a plan's topology, solve its network, and compute its protective-earth and hum figures."""
-    with no_gc():
+    """Audit a plan's topology, solve its network, and compute its protective-earth and hum
+    figures.
+
+    The solves run with one BLAS thread (:func:`groundcheck.core.runtime.one_blas_thread`); the
+    caller's setting is back when it returns."""
+    with no_gc(), one_blas_thread():
         return _analyze(plan, options)
 
 

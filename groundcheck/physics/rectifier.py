@@ -14,8 +14,8 @@ instead: each diode follows the Shockley law with a series resistance, the
 conducting (half-)winding has its leakage inductance in series, and the state
 (winding current, reservoir voltage) is integrated with the trapezoidal rule,
 the diode's equation solved by Newton's method at each step; the steady state
-is found by the secant method on the reservoir voltage at the start of the
-period (the diode is off at the source's zero crossing).
+is found by Newton's method on the winding current and the state at the
+source's zero crossing (see :mod:`groundcheck.physics.rectifier_exact`).
 
 References: O. H. Schade, "Analysis of rectifier operation", Proc. IRE 31(7),
 1943; P. Horowitz, W. Hill, *The Art of Electronics*, 3rd ed., §1.6.3A (ripple
@@ -87,17 +87,16 @@ def _source(r: Rectifier, t: np.ndarray, f: float) -> np.ndarray:
 def _period(s: np.ndarray, v0: float, h: float, R: float, C: float, iload: float, gload: float):
     """Trapezoidal integration over one period; returns voltages, currents and dv_end/dv0."""
     n = len(s)
-    v = np.empty(n + 1)
-    i = np.empty(n + 1)
-    v[0] = v0
+    v = [float(v0)] * (n + 1)
     dvdv0 = 1.0
     a_on = h / (2 * R * C)
     a_load = h * gload / (2 * C)
     b_load = h * iload / C
-    vk = v0
+    vk = float(v0)
     s_ext = np.append(s, s[0])
+    s_list = s_ext.tolist()             # plain floats: numpy's cost per element was most of it
     for k in range(n):
-        s0, s1 = s_ext[k], s_ext[k + 1]
+        s0, s1 = s_list[k], s_list[k + 1]
         on0 = s0 > vk
         # try conducting through the step
         num = vk * (1 - a_on - a_load) + a_on * (s0 + s1) - b_load
@@ -119,8 +118,8 @@ def _period(s: np.ndarray, v0: float, h: float, R: float, C: float, iload: float
         dvdv0 *= factor
         vk = v1
         v[k + 1] = v1
-    i[:] = np.maximum(0.0, (s_ext - v) / R)
-    return v, i, dvdv0
+    v = np.array(v)
+    return v, np.maximum(0.0, (s_ext - v) / R), dvdv0
 
 
 def simulate(r: Rectifier, frequency: float) -> RectifierResult:

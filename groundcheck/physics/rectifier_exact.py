@@ -5,8 +5,10 @@ on a point of the ground system, the load at its output).
 The linear part (reservoir, filter, load) is a state-space system dx/dt = A·x + B·i + s, integrated with the
 trapezoidal rule; at each step the winding's equation (source = R·i + diode + reservoir, plus L·di/dt with leakage)
 is solved for the new current by Newton's method, the reservoir voltage being an affine function of it.  The
-periodic steady state is found by Newton's method on the state at the source's zero crossing (where the diodes are
-off), with a finite-difference Jacobian.
+periodic steady state is found by Newton's method on the winding current and the state at the
+source's zero crossing, the period map's Jacobian being the product of the steps' own (implicit
+differentiation of each step's equation), so each iteration costs one period; where the diodes
+block, the linear part's evolution is taken over the whole stretch at once.
 
 References: O. H. Schade, "Analysis of rectifier operation", Proc. IRE 31(7), 1943; W. Shockley, "The theory of
 p-n junctions", Bell Syst. Tech. J. 28, 1949 (the diode law); T. J. Aprille, T. N. Trick, Proc. IEEE 60(1), 1972
@@ -68,6 +70,8 @@ class _Model:
         self.m, self.n, self.k = self.M.tolist(), self.N.tolist(), self.K.tolist()
         self.n0, self.rows = self.n[0], range(len(self.n))
         self.linear = not (self.shockley or self.valve) and self.lh == 0
+        self.free, self.end = _affine(self.m, self.n, self.k)
+        self.powers = None
 
     def vd(self, x: float) -> float:
         if self.valve:
@@ -89,44 +93,143 @@ class _Model:
             return self.lh * (x - i0) - 0.5 * (d0 + drive), self.lh + 0.5 * slope
         return -drive, slope
 
-    def step(self, i0: float, x0: list, s0: float, s1: float) -> tuple[float, list]:
+    def step(self, i0: float, x0: list, s0: float, s1: float) -> tuple:
         """One time step in plain floats (the state is one to three numbers: numpy's per-call cost would be most
-        of the work): the end current and the end state."""
-        M, N, K, rows = self.m, self.n, self.k, self.rows
-        free = [sum(M[r][c] * x0[c] for c in rows) + N[r] * i0 + K[r] for r in rows]
+        of the work): the end current, the end state and the end current's sensitivity to the
+        start, as (a, b, g) with dx/d(i0, x0) = a·e_i + b·e_v1 + g·(N0, M[0]) (see
+        :meth:`jacobian`)."""
+        free = self.free(x0, i0)
         base = free[0]
         if self.linear:
             # constant-drop diodes, no leakage: the equation is linear in x (the root Newton's iteration would find)
             num = s1 - self.drop - base
-            x = num / (self.rt + self.n0) if num > 0.0 else 0.0
-            return x, [free[r] + N[r] * x for r in rows]
+            if num <= 0.0:
+                return 0.0, free, 0.0, 0.0, 0.0
+            x = num / (self.rt + self.n0)
+            return x, self.end(free, x), 0.0, 0.0, -1.0 / (self.rt + self.n0)
         d0 = (s0 - self.rt * i0 - self.vd(i0) - x0[0]) if i0 > 0 else 0.0     # inductor voltage at the start
-        x = 0.0
-        if self.residual(0.0, i0, d0, s1, base)[0] < 0.0:             # else the diodes block
-            x = max(i0, 1e-6)
-            for _ in range(60):
-                f, df = self.residual(x, i0, d0, s1, base)
-                x_new = x - f / df
-                x_new = x / 2 if x_new <= 0 else x_new
-                done = abs(x_new - x) <= 1e-12 + 1e-10 * x
-                x = x_new
-                if done:
-                    break
-        return x, [free[r] + N[r] * x for r in rows]
+        if self.residual(0.0, i0, d0, s1, base)[0] >= 0.0:             # the diodes block
+            return 0.0, free, 0.0, 0.0, 0.0
+        x = max(i0, 1e-6)
+        for _ in range(60):
+            f, df = self.residual(x, i0, d0, s1, base)
+            x_new = x - f / df
+            x_new = x / 2 if x_new <= 0 else x_new
+            done = abs(x_new - x) <= 1e-12 + 1e-10 * x
+            x = x_new
+            if done:
+                break
+        end = self.end(free, x)
+        if self.lh <= 0:
+            return x, end, 0.0, 0.0, -1.0 / df
+        # implicit differentiation of the inductor's equation in x, i0, d0(i0, v1) and base
+        b = -0.5 / df if i0 > 0 else 0.0
+        return x, end, self.lh / df + b * (self.rt + self.dvd(i0)), b, -0.5 / df
 
-    def period(self, s: np.ndarray, x0: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """One period from state x0 and zero winding current: states (n+1 × dim) and currents (n+1)."""
-        n = len(s)
+    def period(self, s: np.ndarray, z0: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """One period from the start z0 = (winding current, state): states (n+1 × dim), currents
+        (n+1) and the Jacobian of the end (current, state) with respect to z0.  Where the diodes
+        block, the state evolves by the linear part alone: those stretches are computed at once
+        (:meth:`blocked`), the rest step by step."""
         src = s.tolist()
         src.append(src[0])
-        xs = [np.asarray(x0, dtype=float).tolist()]
-        cur = [0.0] * (n + 1)
-        x, i = xs[0], 0.0
-        for k in range(n):
-            i, x = self.step(i, x, src[k], src[k + 1])
+        n = len(s)
+        i, x = float(z0[0]), [float(v) for v in z0[1:]]
+        xs, cur, coef = [x], [i], []
+        step, k = self.step, 0
+        while k < n:
+            if i == 0.0:
+                states = self.blocked(x, src, k)
+                if states:
+                    xs.extend(states)
+                    cur.extend([0.0] * len(states))
+                    coef.extend([(0.0, 0.0, 0.0)] * len(states))
+                    k += len(states)
+                    x = states[-1]
+                    continue
+            i, x, a, b, g = step(i, x, src[k], src[k + 1])
             xs.append(x)
-            cur[k + 1] = i
-        return np.array(xs), np.array(cur)
+            cur.append(i)
+            coef.append((a, b, g))
+            k += 1
+        return np.array(xs), np.array(cur), self.jacobian(np.array(coef))
+
+    def blocked(self, x: list, src: list, k: int) -> list:
+        """The states after steps k, k+1, … while the diodes stay off, from state x with no winding
+        current: each the free evolution M^j·x + (M^(j-1) + … + 1)·K, its reservoir over the source
+        less the diodes' drop at zero current (as :meth:`step` decides it); as lists, empty if the
+        diodes conduct at step k."""
+        if self.powers is None:
+            self.powers = _powers(self.M, self.K, len(src) - 1)
+        P, Q = self.powers
+        left = len(src) - 1 - k
+        X = P[1:left + 1] @ np.asarray(x) + Q[1:left + 1]
+        on = np.asarray(src[k + 1:]) - self.vd(0.0) - X[:, 0] > 0.0
+        count = int(on.argmax()) if on.any() else left
+        return X[:count].tolist()
+
+    def jacobian(self, coef: np.ndarray) -> np.ndarray:
+        """The product of the steps' Jacobians, last step first, from their coefficients (rows
+        a, b, g of :meth:`step`): each step's is [[0, 0], [N, M]] + (1, N) ⊗ (a·e_i + b·e_v1 +
+        g·(N0, M[0])), formed for every step at once and multiplied pairwise (a dozen batched
+        products for 4096 steps)."""
+        dim = len(self.N)
+        fixed = np.zeros((dim + 1, dim + 1))
+        fixed[1:, 0], fixed[1:, 1:] = self.N, self.M
+        grad = np.concatenate([[self.N[0]], self.M[0]])
+        rows = coef[:, 2:3] * grad
+        rows[:, 0] += coef[:, 0]
+        rows[:, 1] += coef[:, 1]
+        steps = fixed + np.concatenate([[1.0], self.N])[None, :, None] * rows[:, None, :]
+        while len(steps) > 1:
+            if len(steps) % 2:
+                steps = np.concatenate([steps, np.eye(dim + 1)[None]])
+            steps = steps[1::2] @ steps[0::2]
+        return steps[0]
+
+
+def _affine(m: list, n: list, k: list):
+    """The step's affine maps in plain floats, written out for the state's one to three numbers
+    (a generic sum over rows and columns was half of the stepping's time): free(x0, i0) =
+    M·x0 + N·i0 + K and end(free, x) = free + N·x."""
+    if len(n) == 1:
+        ((m00,),), (n0,), (k0,) = m, n, k
+        return (lambda x, i: [m00 * x[0] + n0 * i + k0]), (lambda f, x: [f[0] + n0 * x])
+    if len(n) == 2:
+        ((m00, m01), (m10, m11)), (n0, n1), (k0, k1) = m, n, k
+        return (lambda x, i: [m00 * x[0] + m01 * x[1] + n0 * i + k0,
+                              m10 * x[0] + m11 * x[1] + n1 * i + k1]), \
+            (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x])
+    ((m00, m01, m02), (m10, m11, m12), (m20, m21, m22)), (n0, n1, n2), (k0, k1, k2) = m, n, k
+    return (lambda x, i: [m00 * x[0] + m01 * x[1] + m02 * x[2] + n0 * i + k0,
+                          m10 * x[0] + m11 * x[1] + m12 * x[2] + n1 * i + k1,
+                          m20 * x[0] + m21 * x[1] + m22 * x[2] + n2 * i + k2]), \
+        (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x, f[2] + n2 * x])
+
+
+def _powers(M: np.ndarray, K: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
+    """M^j and M^(j-1)·K + … + K for j = 0 … n (the free evolution over j steps), by
+    doubling."""
+    P = np.eye(len(K))[None]
+    while len(P) <= n:
+        P = np.concatenate([P, P @ np.linalg.matrix_power(M, len(P))])
+    P = P[:n + 1]
+    Q = np.concatenate([np.zeros((1, len(K))), np.cumsum(P[:-1] @ K, axis=0)])
+    return P, Q
+
+
+def _newton(z: np.ndarray, g: np.ndarray, J: np.ndarray, peak: float) -> np.ndarray:
+    """Newton's step on the period map; where it leaps a thousand peaks or more (a period with no
+    conduction at all under a current load, whose free evolution has a unit eigenvalue) the
+    period's own end instead, one period of the transient."""
+    with np.errstate(all="ignore"):
+        try:
+            step = np.linalg.solve(J - np.eye(len(z)), g)
+        except np.linalg.LinAlgError:
+            step = None
+    if step is None or not np.all(np.isfinite(step)) or np.abs(step[1:]).max() > 1e3 * peak:
+        return z + g
+    return z - step
 
 
 def _start(r: Rectifier, peak: float) -> np.ndarray:
@@ -155,20 +258,19 @@ def steady_state(r: Rectifier, s: np.ndarray, h: float):
     """
     model = _Model(r, h)
     peak = float(s.max())
-    x0 = _start(r, peak)
-    scale = max(1.0, peak)
+    z = np.concatenate([[0.0], _start(r, peak)])
+    # the tolerance: 1e-9 of the peak for the voltages, and of the peak over the winding's
+    # resistance for the current
+    scale = max(1.0, peak) * np.concatenate([[1.0 / model.rt], np.ones(len(z) - 1)])
     for _ in range(30):
-        xs, i = model.period(s, x0)
-        g = xs[-1] - x0
+        xs, i, J = model.period(s, z)
+        g = np.concatenate([[i[-1]], xs[-1]]) - z
         if np.all(np.abs(g) < 1e-9 * scale):
             break
-        J = np.empty((len(x0), len(x0)))
-        for j in range(len(x0)):
-            dx = np.zeros(len(x0))
-            dx[j] = 1e-6 * max(abs(x0[j]), 1e-3)
-            J[:, j] = (model.period(s, x0 + dx)[0][-1] - xs[-1]) / dx[j]
-        x0 = x0 - np.linalg.solve(J - np.eye(len(x0)), g)
-        x0[0] = min(max(x0[0], 0.0), peak)
+        z = _newton(z, g, J, peak)
+        z[0] = max(z[0], 0.0)
+        # the reservoir starts below zero while a choke's current still flows at the crossing
+        z[1] = min(max(z[1], -peak), peak)
     xs, i = xs[:-1], i[:-1]
     if r.filter_capacitance is None:
         return xs[:, 0], i, None, None
