@@ -6,6 +6,8 @@ from __future__ import annotations
 
 import os
 import stat
+from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import replace
 from pathlib import Path
 
@@ -16,7 +18,39 @@ from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device,
                              Rectifier, Stage)
 from .placement import Transform
 
-__all__ = ["find_device", "simple_device", "merge_device", "prefixed", "MAX_DEVICE_DEPTH"]
+__all__ = ["find_device", "simple_device", "merge_device", "prefixed", "MAX_DEVICE_DEPTH", "device_plans_once",
+           "read_once"]
+
+#: the device plans one top-level load has read, by (path, library folders, nesting depth): sixty devices placing
+#: the same plan read it once (a plan is immutable; its errors are kept as well)
+_READ: ContextVar[dict | None] = ContextVar("device_plans", default=None)
+
+
+@contextmanager
+def device_plans_once():
+    """Within it (one top-level load and the device plans it reads), each device plan is read once."""
+    token = _READ.set({}) if _READ.get() is None else None
+    try:
+        yield
+    finally:
+        if token is not None:
+            _READ.reset(token)
+
+
+def read_once(key: tuple, read) -> Plan:
+    """The device plan under ``key``, read by ``read()`` the first time (its PlanErrors raised again after)."""
+    cache = _READ.get()
+    got = cache.get(key) if cache is not None else None
+    if got is None:
+        try:
+            got = read()
+        except PlanErrors as e:
+            got = e
+        if cache is not None:
+            cache[key] = got
+    if isinstance(got, PlanErrors):
+        raise got
+    return got
 
 #: devices placed inside devices, at the most
 MAX_DEVICE_DEPTH = 8
