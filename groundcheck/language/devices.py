@@ -63,17 +63,26 @@ def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path |
     here = ld.root
     # the plan's own library folders stay inside its folder (links resolved); the caller's and the environment's
     # are the user's choice
-    folders = [here, *(f for f in ((here / lib).resolve() for lib in library_dirs)
-                       if f == here.resolve() or here.resolve() in f.parents)]
+    folders = [here, *(f for f in (_resolved(here / lib) for lib in library_dirs)
+                       if f is not None and (f == here.resolve() or here.resolve() in f.parents))]
     env = os.environ.get("GROUNDCHECK_LIBRARY", "")
     for lib in [*ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
         folders.append((here / lib) if not Path(lib).is_absolute() else Path(lib))
     for folder in folders:
-        c = (folder / source).resolve()
-        base = folder.resolve()
+        c, base = _resolved(folder / source), _resolved(folder)
+        if c is None or base is None:
+            continue
         if c.suffix == ".gplan" and (c == base or base in c.parents) and c.is_file() and stat.S_ISREG(c.stat().st_mode):
             return c
     return None
+
+
+def _resolved(path: Path) -> Path | None:
+    """The path with its links resolved; None for a link in a loop (it leads to no file)."""
+    try:
+        return path.resolve()
+    except (RuntimeError, OSError):
+        return None
 
 
 def simple_device(dev: Device) -> Plan:

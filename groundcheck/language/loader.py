@@ -132,7 +132,11 @@ class _Loader:
                                          item.loc, "write a path relative to the including file, inside the "
                                                    "plan's folder"))
             return []
-        target = (here / item.value).resolve()
+        try:
+            target = (here / item.value).resolve()
+        except (RuntimeError, OSError):        # a link in a loop leads to no file
+            self.errors.append(PlanError(f"include {item.value!r} is a link in a loop", item.loc, "name the file"))
+            return []
         try:
             target.relative_to(self.root)
         except ValueError:
