@@ -126,6 +126,20 @@ def test_tt_loop_smaller_than_its_electrode_is_refused():
     assert err.location.line == 2 and "larger than the whole external loop" in err.message
 
 
+def test_the_implausible_ratings_base_plan_is_refused_on_purpose():
+    # the reproducer's base plan states a 100 Ω electrode inside a 21 Ω external loop: figures that cannot both
+    # hold (in TT the loop runs through the electrode), so it is a located error at the electrode, not the
+    # GC208 danger its cmd.sh once expected; electrode-alone.gplan (below) is that plan made consistent
+    from groundcheck import PlanErrors, load
+    with pytest.raises(PlanErrors) as e:
+        load(ROUND2 / "13-implausible-ratings" / "base.gplan")
+    err, *follow = e.value.errors
+    assert (err.location.line, err.location.column) == (2, 72)
+    assert "earth electrode (100 Ω) is larger than the whole external loop (21 Ω)" in err.message
+    # the refused mains statement declares no mains.pe, so its wire's end is undefined too (a follow-on error)
+    assert [f.location.line for f in follow] == [6] and "'mains.pe'" in follow[0].message
+
+
 def test_tt_electrode_alone_keeps_the_danger():
     from groundcheck import load
     from groundcheck.analysis import analyze
