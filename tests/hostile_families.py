@@ -202,7 +202,7 @@ def signal_case(rng: random.Random, plan: Path | None = None) -> str:
         out = Path(tmp) / "out.json"
         proc = subprocess.Popen([sys.executable, "-m", "groundcheck", "check", str(plan), "--jobs", "2", "--format",
                                  "json", "-o", str(out)], env=env, stdout=subprocess.DEVNULL,
-                                stderr=subprocess.PIPE, start_new_session=True)
+                                stderr=subprocess.PIPE, start_new_session=True, preexec_fn=_ctrl_c_default)
         time.sleep(rng.uniform(0.0, 4.0))      # while it starts, reads, solves or writes
         kids = _children(proc.pid)
         sig = rng.choice([signal.SIGTERM, signal.SIGINT])
@@ -233,6 +233,12 @@ def signal_case(rng: random.Random, plan: Path | None = None) -> str:
         assert finished or not out.exists(), f"{sig.name}: partial output"
         assert not list(Path(tmp).glob(".groundcheck-*"))
         return f"{sig.name} {'finished first' if finished else f'stopped in {took:.2f} s'}"
+
+
+def _ctrl_c_default() -> None:
+    """A run started from a background job inherits SIGINT ignored (as the shell sets it): a terminal's Ctrl-C
+    reaches a foreground run, which does not ignore it."""
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
 
 
 def _children(pid: int) -> list[int]:
