@@ -6,6 +6,8 @@
     python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   # coverage-guided, if atheris installs
     python benchmarks/fuzz_campaign.py --invariants 10000   # invariant properties, N plans each
     python benchmarks/fuzz_campaign.py --advice 1000        # the advisor's promises, N plans
+    python benchmarks/fuzz_campaign.py --hostile 10000      # the hostile families, N cases each
+    python benchmarks/fuzz_campaign.py --hostile 200 --family signals   # one family
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
 crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
@@ -13,6 +15,9 @@ tests/test_invariants.py (mirrored channels equal, names, unconnected elements, 
 and tests/test_rewritings.py (statement order, units, a wire split in two, fastening kinds,
 `protective` written or not) run on N generated plans each with --invariants N; a failure is
 shrunk and printed by Hypothesis.
+The hostile families of tests/hostile_families.py (structural mutants, special files and links,
+look-alike and control characters, signals to a --jobs run) run N cases each with --hostile N: no
+traceback, no case over 10 s, no raw control character shown, no file changed but a fresh output.
 The advisor's promises of tests/test_repair_properties.py (no protective conductor changed but by
 the own-stud fix, no wired return removed, predictions equal a fresh check, fix lines agree) run on
 N generated chassis plans with --advice N.
@@ -126,6 +131,38 @@ def advice(n: int) -> None:
           f"accepted suggestions by action: {dict(sorted(seen.items()))}", flush=True)
 
 
+def hostile(n: int, families: list[str], seed: int = 11) -> int:
+    """``n`` cases of each hostile family: outcomes, failures (the first case of each kind), the slowest case and
+    the process's peak memory; returns the number of failures."""
+    import random
+    import resource
+    from collections import Counter
+
+    from hostile_families import FAMILIES
+    failed = 0
+    for name in families:
+        rng = random.Random(f"{seed}-{name}")
+        seen: Counter = Counter()
+        kinds: dict[str, int] = {}
+        slowest = (0.0, -1)
+        t0 = time.perf_counter()
+        for i in range(n):
+            s = time.perf_counter()
+            try:
+                seen[FAMILIES[name](rng).split(" in ")[0]] += 1
+            except Exception as e:  # noqa: BLE001 - every failure is recorded
+                kinds.setdefault(f"{type(e).__name__}: {str(e)[:160]}", i)
+                failed += 1
+            slowest = max(slowest, (time.perf_counter() - s, i))
+        peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+        print(f"{name}: {n} cases in {time.perf_counter() - t0:.0f} s, {len(kinds)} kinds "
+              f"of failure, slowest {slowest[0]:.2f} s (case {slowest[1]}), peak {peak:.0f} MiB; "
+              f"{dict(seen.most_common(8))}", flush=True)
+        for k, i in kinds.items():
+            print(f"  {k}  (first: case {i})", flush=True)
+    return failed
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--examples", type=int, default=2000)
@@ -137,7 +174,13 @@ def main() -> None:
     ap.add_argument("--only", default="", help="with --invariants: the properties whose name holds this")
     ap.add_argument("--advice", type=int, default=0, metavar="N",
                     help="the advisor's promises on N generated chassis plans")
+    ap.add_argument("--hostile", type=int, default=0, metavar="N", help="N cases of each hostile family")
+    ap.add_argument("--family", action="append", choices=["structural", "files", "unicode", "signals"],
+                    help="only this hostile family (repeatable)")
     args, rest = ap.parse_known_args()
+    if args.hostile:
+        families = args.family or ["structural", "files", "unicode", "signals"]
+        sys.exit(1 if hostile(args.hostile, families) else 0)
     if args.advice:
         advice(args.advice)
         return

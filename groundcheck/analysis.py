@@ -21,6 +21,7 @@ from .physics.rectifier import simulate
 from .physics.device_earth import installation_earths
 from .physics.safety import protective_figures
 from .physics.sweep import run_tasks
+from .physics.workload import check_devices, check_work, same_figures
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext
 from .rules.electrical import Solved
@@ -57,17 +58,19 @@ def _analyze(plan: Plan, options: Options) -> Result:
     errors = _acceptance_errors(plan)
     if errors:
         raise PlanErrors(errors)
+    check_devices(plan)
     findings, ctx = audit(plan)
     result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options, notices=_notices(plan, options),
                     protective=ctx.route.keep)
     if not plan.points and not plan.metals:
         return _finish(result)
     circuit = build_circuit(plan)
+    check_work(plan, ctx.loops, circuit, options.max_frequency, options.hum)   # refused before the work
     result.circuit = circuit
     result.safety = protective_figures(plan, ctx.route, options.pe_limit, circuit)
     result.device_earths = installation_earths(plan, ctx.route, circuit)
     result.bonding = bonding_figures(plan, ctx.route, circuit)
-    rr = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers} if options.hum else {}
+    rr = _simulated(plan) if options.hum else {}
     result.rectifiers = list(rr.values())
     _solve(plan, ctx, circuit, rr, options, result)
     solved = Solved(plan, ctx, circuit, result.coupling, result.safety, result.device_earths,
@@ -75,6 +78,18 @@ def _analyze(plan: Plan, options: Options) -> Result:
     for r in functions("solve"):
         findings.extend(r.func(solved))
     return _finish(result)
+
+
+def _simulated(plan: Plan) -> dict:
+    """Each rectifier's steady state; rectifiers of the same figures (a rack of identical supplies) are
+    simulated once, each result under its own name."""
+    out, by_figures = {}, {}
+    for r in plan.rectifiers:
+        key = same_figures(r)
+        if key not in by_figures:
+            by_figures[key] = simulate(r, plan.frequency)
+        out[r.name] = replace(by_figures[key], name=r.name)
+    return out
 
 
 def _solve(plan: Plan, ctx: AuditContext, circuit, rr: dict, options: Options, result: Result) -> None:

@@ -318,8 +318,11 @@ def main(argv: list[str] | None = None) -> int:
             from ..renderers.jsondoc import errors_document
             from ..renderers.sarif import sarif_errors
             doc = (sarif_errors if args.format == "sarif" else errors_document)(e.errors)
-            write_output(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", args.output,
-                         [p for p in args.plans if p != "-"])
+            try:
+                write_output(json.dumps(doc, indent=2, ensure_ascii=False) + "\n", args.output,
+                             [p for p in args.plans if p != "-"])
+            except GroundcheckError as out:       # the output names a plan the run read: said, not written
+                sys.stderr.write(f"groundcheck: error: {shown(out)}\n")
         return 2
     except GroundcheckError as e:
         sys.stderr.write(f"groundcheck: error: {shown(e)}\n")

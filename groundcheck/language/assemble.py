@@ -222,6 +222,8 @@ def assemble(built: list, file: str, ld) -> Plan:
     supplies = []
     classes: dict = {}
     for dev, refs in devices:
+        if len(groups[Rectifier]) > LIMITS["rectifiers"]:
+            break                                   # over the limit (said below): no more devices merged
         supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names, classes)
         if supply is not None:
             supplies.append((supply, dev.location))

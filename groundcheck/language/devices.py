@@ -6,6 +6,8 @@ from __future__ import annotations
 
 import os
 import stat
+from contextlib import contextmanager
+from contextvars import ContextVar
 from dataclasses import replace
 from pathlib import Path
 
@@ -16,7 +18,39 @@ from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device,
                              Rectifier, Stage)
 from .placement import Transform
 
-__all__ = ["find_device", "simple_device", "merge_device", "prefixed", "MAX_DEVICE_DEPTH"]
+__all__ = ["find_device", "simple_device", "merge_device", "prefixed", "MAX_DEVICE_DEPTH", "device_plans_once",
+           "read_once"]
+
+#: the device plans one top-level load has read, by (path, library folders, nesting depth): sixty devices placing
+#: the same plan read it once (a plan is immutable; its errors are kept as well)
+_READ: ContextVar[dict | None] = ContextVar("device_plans", default=None)
+
+
+@contextmanager
+def device_plans_once():
+    """Within it (one top-level load and the device plans it reads), each device plan is read once."""
+    token = _READ.set({}) if _READ.get() is None else None
+    try:
+        yield
+    finally:
+        if token is not None:
+            _READ.reset(token)
+
+
+def read_once(key: tuple, read) -> Plan:
+    """The device plan under ``key``, read by ``read()`` the first time (its PlanErrors raised again after)."""
+    cache = _READ.get()
+    got = cache.get(key) if cache is not None else None
+    if got is None:
+        try:
+            got = read()
+        except PlanErrors as e:
+            got = e
+        if cache is not None:
+            cache[key] = got
+    if isinstance(got, PlanErrors):
+        raise got
+    return got
 
 #: devices placed inside devices, at the most
 MAX_DEVICE_DEPTH = 8
@@ -29,17 +63,26 @@ def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path |
     here = ld.root
     # the plan's own library folders stay inside its folder (links resolved); the caller's and the environment's
     # are the user's choice
-    folders = [here, *(f for f in ((here / lib).resolve() for lib in library_dirs)
-                       if f == here.resolve() or here.resolve() in f.parents)]
+    folders = [here, *(f for f in (_resolved(here / lib) for lib in library_dirs)
+                       if f is not None and (f == here.resolve() or here.resolve() in f.parents))]
     env = os.environ.get("GROUNDCHECK_LIBRARY", "")
     for lib in [*ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
         folders.append((here / lib) if not Path(lib).is_absolute() else Path(lib))
     for folder in folders:
-        c = (folder / source).resolve()
-        base = folder.resolve()
+        c, base = _resolved(folder / source), _resolved(folder)
+        if c is None or base is None:
+            continue
         if c.suffix == ".gplan" and (c == base or base in c.parents) and c.is_file() and stat.S_ISREG(c.stat().st_mode):
             return c
     return None
+
+
+def _resolved(path: Path) -> Path | None:
+    """The path with its links resolved; None for a link in a loop (it leads to no file)."""
+    try:
+        return path.resolve()
+    except (RuntimeError, OSError):
+        return None
 
 
 def simple_device(dev: Device) -> Plan:

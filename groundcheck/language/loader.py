@@ -10,6 +10,7 @@ from __future__ import annotations
 from pathlib import Path
 
 from .assemble import HEADER_KEYWORDS, assemble
+from .devices import device_plans_once, read_once
 from .limits import LIMITS
 from .placement import Transform, name_placements, place
 from ..core.errors import LimitError, Location, PlanError, PlanErrors
@@ -61,6 +62,7 @@ class _Loader:
         self._size_cache: dict[str, int] = {}
         self._walk_cache: dict[str, int] = {}
         self.rectifiers = 0
+        self.included = 0                     # include statements read, nested ones included
         self.stopped = False
         self._place_cache: dict[int, object] = {}
         self.walked = 0                       # statements walked inside placements, counted before expanding
@@ -71,7 +73,8 @@ class _Loader:
     # ---- files and includes ------------------------------------------------
     def load_device(self, path: Path) -> Plan:
         """A device's own plan, loaded with this plan's library folders and the devices placing it."""
-        plan = load(path, libraries=self.libraries, _devices=self.device_stack)
+        plan = read_once((path, self.libraries, len(self.device_stack)),
+                         lambda: load(path, libraries=self.libraries, _devices=self.device_stack))
         self.device_files.extend(f for f in (*plan.files, *plan.device_files) if f not in self.device_files)
         return plan
 
@@ -105,6 +108,8 @@ class _Loader:
         return out
 
     def include(self, st: Statement, shown: str, stack: tuple[Path, ...]) -> list:
+        if self.stopped:                       # a limit was reached: nothing more is read
+            return []
         if len(st.phrases) != 1 or len(st.phrases[0]) != 1 or st.phrases[0][0].kind != "string":
             self.errors.append(PlanError("include takes one quoted path", st.loc, 'e.g. include "supply.gplan"'))
             return []
@@ -113,13 +118,25 @@ class _Loader:
             self.errors.append(LimitError(f"includes nested deeper than {LIMITS['include_depth']}", item.loc,
                                           "flatten the includes"))
             return []
+        self.included += 1                     # files included inside included files multiply: counted as read
+        if self.included > LIMITS["include_reads"]:
+            self.errors.append(LimitError(f"includes read {self.included:,} files, over the limit of "
+                                          f"{LIMITS['include_reads']:,}", item.loc,
+                                          "a file included twice by files included twice multiplies; "
+                                          "include each part once"))
+            self.stopped = True
+            return []
         here = stack[-1].parent if stack else self.root
         if Path(item.value).is_absolute():
             self.errors.append(PlanError(f"include {item.value!r} is an absolute path, outside the plan's folder",
                                          item.loc, "write a path relative to the including file, inside the "
                                                    "plan's folder"))
             return []
-        target = (here / item.value).resolve()
+        try:
+            target = (here / item.value).resolve()
+        except (RuntimeError, OSError):        # a link in a loop leads to no file
+            self.errors.append(PlanError(f"include {item.value!r} is a link in a loop", item.loc, "name the file"))
+            return []
         try:
             target.relative_to(self.root)
         except ValueError:
@@ -325,7 +342,7 @@ def load_text(text: str, file: str = "<plan>", *, root: Path | None = None, _res
 
     ``jobs`` > 1 lets a large flat file be read by two processes (:mod:`groundcheck.language.bigfile`), with
     the same plan and the same errors."""
-    with no_gc():
+    with no_gc(), device_plans_once():
         return _load_text(text, file, root=root, _resolved=_resolved, libraries=libraries, _devices=_devices, jobs=jobs)
 
 

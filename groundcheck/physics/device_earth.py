@@ -28,6 +28,10 @@ class DeviceEarth:
                 "resistance_ohm": None if self.resistance is None else round(self.resistance, 6)}
 
 
+#: devices' earth paths solved together (each a column of nodes)
+EARTH_COLUMNS = 64
+
+
 def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tuple[DeviceEarth, ...] | None:
     """Each placed device's earth-pin path to the main earthing terminal; None when the plan has no
     placed device or no point of kind ``earthing-terminal``.
@@ -53,13 +57,15 @@ def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tup
     met = circ.point_node[mets[0]]
     reach = [n for n in inlets if labels[circ.point_node[n]] == labels[met] and n in route.reached]
     R: dict[str, float] = {}
-    if reach:
-        J = np.zeros((len(circ.nodes), len(reach)), dtype=complex)
-        for k, n in enumerate(reach):
+    factored = circ.at(0.0) if reach else None
+    for lo in range(0, len(reach), EARTH_COLUMNS):      # in slices: nodes × devices would not fit in memory
+        part = reach[lo:lo + EARTH_COLUMNS]
+        J = np.zeros((len(circ.nodes), len(part)), dtype=complex)
+        for k, n in enumerate(part):
             J[circ.point_node[n], k] += 1.0
             J[met, k] -= 1.0
-        sol = circ.at(0.0).solve(J)
-        for k, n in enumerate(reach):
+        sol = factored.solve(J, currents=False)
+        for k, n in enumerate(part):
             R[n] = float(abs(sol.V[circ.point_node[n], k] - sol.V[met, k]))
     group = {p.name: p.group for p in plan.points}
     return tuple(DeviceEarth(group.get(n) or n, n, R.get(n)) for n in inlets)

@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import gc
 import multiprocessing
+import signal
 from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from functools import partial
@@ -46,6 +47,7 @@ _LIMIT_THREADS: Callable | None = None
 
 def _start_worker() -> None:
     quiet_child()
+    signal.signal(signal.SIGINT, signal.SIG_IGN)    # Ctrl-C is the parent's to answer: it ends the workers
     gc.disable()
     if _LIMIT_THREADS is not None:
         _LIMIT_THREADS()
@@ -82,11 +84,15 @@ def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[f
     out: list = [None] * len(tasks)
     try:
         # a process pool that notices a worker dying (killed, out of memory) instead of waiting for it for ever
-        with ProcessPoolExecutor(jobs, mp_context=multiprocessing.get_context("fork"),
-                                 initializer=_start_worker) as pool:
+        pool = ProcessPoolExecutor(jobs, mp_context=multiprocessing.get_context("fork"), initializer=_start_worker)
+        try:
             futures = {i: pool.submit(_run, i) for i in order}
             for i, fut in futures.items():
                 out[i] = fut.result()
+        except BaseException:
+            _stop(pool)                 # Ctrl-C or an error: the queue is not worked through first
+            raise
+        pool.shutdown()
     except BrokenProcessPool:
         raise WorkerError("a worker process of --jobs died before it finished (killed, or out of memory); "
                           "run with --jobs 1") from None
@@ -95,6 +101,16 @@ def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[f
     finally:
         _TASKS = ()
     return out
+
+
+def _stop(pool: ProcessPoolExecutor) -> None:
+    """The queued tasks cancelled and the workers ended now, without waiting for the tasks they run."""
+    workers = list((getattr(pool, "_processes", None) or {}).values())
+    pool.shutdown(wait=False, cancel_futures=True)
+    for w in workers:
+        w.terminate()
+    for w in workers:
+        w.join(1.0)
 
 
 def map_frequencies(work: Callable[[float], T], freqs: Sequence[float], jobs: int = 1) -> list[T]:

@@ -23,9 +23,14 @@ def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> Non
     write into a folder that does not exist.
     """
     path = Path(path)
-    target = path.resolve()
+    try:
+        target = path.resolve()
+    except (RuntimeError, OSError):
+        raise OutputError(f"{path} is a link in a loop (name an output file)") from None
     protect = [*protect, *files_read()]
     for p in protect:
+        if os.path.abspath(p) == os.path.abspath(path):       # the plan named, even one that could not be read
+            raise OutputError(f"refusing to write over {p}, a plan this run read (name another output file)")
         try:
             if p.exists() and target.exists() and os.path.samefile(p, target):
                 raise OutputError(f"refusing to write over {p}, a plan this run read (name another output file)")
