@@ -7,6 +7,7 @@ Every rule comes from the registry (:mod:`groundcheck.rules.registry`).
 
 from __future__ import annotations
 
+from dataclasses import replace
 from functools import partial
 
 from .core.runtime import no_gc, one_blas_thread
