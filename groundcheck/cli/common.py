@@ -21,6 +21,15 @@ __all__ = ["FAIL_HELP", "FAIL_LEVELS", "UsageError", "Parser", "quantity_type", 
            "plan_paths", "add_watch_command", "DEFAULT_PORT"]
 
 
+def _resolved(p: Path) -> Path:
+    """``p`` with its links followed; a link in a loop (or one that cannot be followed) as written,
+    made absolute — the reader then refuses it with a located error."""
+    try:
+        return Path(p).resolve()
+    except (RuntimeError, OSError):
+        return Path(os.path.abspath(p))
+
+
 class UsageError(GroundcheckError):
     """A command line that cannot be used."""
 
@@ -272,17 +281,17 @@ def _without_fragments(paths: list[str]) -> list[str]:
     the folders above it, up to the current folder."""
     from ..language.fragments import fragments_among, neighbours
     files = [Path(p) for p in paths if p != "-"]
-    pool = {p.resolve(): p for p in files}
+    pool = {_resolved(p): p for p in files}
     for p in files:
         for n in neighbours(p, Path.cwd()):
-            pool.setdefault(n.resolve(), n)
+            pool.setdefault(_resolved(n), n)
     included = fragments_among(list(pool.values()))
     if not included:
         return paths
     out: list[str] = []
-    chosen = {Path(p).resolve() for p in paths if p != "-" and Path(p).resolve() not in included}
+    chosen = {_resolved(Path(p)) for p in paths if p != "-" and _resolved(Path(p)) not in included}
     for name in paths:
-        by = _tops(Path(name).resolve(), included) if name != "-" else []
+        by = _tops(_resolved(Path(name)), included) if name != "-" else []
         if not by:                     # included by nothing, or only round a cycle: its own check says
             out.append(name)
             continue
@@ -290,8 +299,8 @@ def _without_fragments(paths: list[str]) -> list[str]:
                          f"{', '.join(shown(b) for b in by)} and checked as part of "
                          f"{'it' if len(by) == 1 else 'each'}\n")
         for top in by:
-            if top.resolve() not in chosen:
-                chosen.add(top.resolve())
+            if _resolved(top) not in chosen:
+                chosen.add(_resolved(top))
                 out.append(_relative(top))
     return out
 
@@ -302,7 +311,7 @@ def _tops(path: Path, included: dict) -> list[Path]:
     tops, todo, seen = [], [path], {path}
     while todo:
         for by in included.get(todo.pop(), ()):
-            key = by.resolve()
+            key = _resolved(by)
             if key in seen:
                 continue
             seen.add(key)
@@ -312,6 +321,6 @@ def _tops(path: Path, included: dict) -> list[Path]:
 
 def _relative(p: Path) -> str:
     try:
-        return str(p.resolve().relative_to(Path.cwd().resolve()))
+        return str(_resolved(p).relative_to(Path.cwd().resolve()))
     except ValueError:
         return str(p)

@@ -7,6 +7,8 @@ parsed includes nothing, and its own check says why.
 
 from __future__ import annotations
 
+import os
+
 from pathlib import Path
 
 from ..core.errors import PlanErrors
@@ -15,6 +17,15 @@ from .planfile import PLAN_SUFFIX, read_plan_file
 from .syntax import parse_text
 
 __all__ = ["includes_of", "fragments_among", "neighbours"]
+
+
+def _resolved(p: Path) -> Path:
+    """``p`` with its links followed; a link in a loop (or one that cannot be followed) as written,
+    made absolute — the reader then refuses it with a located error."""
+    try:
+        return Path(p).resolve()
+    except (RuntimeError, OSError):
+        return Path(os.path.abspath(p))
 
 
 def includes_of(path: Path) -> list[Path]:
@@ -33,7 +44,7 @@ def includes_of(path: Path) -> list[Path]:
             continue
         word = it.phrases[0][0]
         if word.kind == "string" and not Path(word.value).is_absolute():
-            target = (path.parent / word.value).resolve()
+            target = _resolved((path.parent / word.value))
             if target.is_file():
                 out.append(target)
     return out
@@ -45,7 +56,7 @@ def fragments_among(plans: list[Path]) -> dict[Path, list[Path]]:
     found: dict[Path, list[Path]] = {}
     known: dict[Path, list[Path]] = {}
     for plan in plans:
-        root = plan.resolve()
+        root = _resolved(plan)
         todo, seen = [(root, 0)], {root}
         while todo:
             here, depth = todo.pop()
@@ -65,7 +76,7 @@ def fragments_among(plans: list[Path]) -> dict[Path, list[Path]]:
 def neighbours(path: Path, top: Path) -> list[Path]:
     """The plans that could include ``path``: those in its own folder and in each folder above it, up to
     ``top`` (an include is confined to its main plan's folder and below, so no other plan can)."""
-    folder, top = path.resolve().parent, top.resolve()
+    folder, top = _resolved(path).parent, _resolved(top)
     if folder != top and top not in folder.parents:
         return []
     out = []

@@ -25,7 +25,7 @@ import math
 import numpy as np
 
 from ..model.records import FieldSource
-from .special_functions import ellipe, ellipk
+from .special_functions import ellipke
 
 __all__ = ["segment_integral", "segment_vector", "path_vector", "path_flux", "loop_flux", "flux_density", "emf",
            "min_distance", "ring_quadrature", "ring_fluxes", "ring_terms", "ring_path_flux", "AXES"]
@@ -200,7 +200,8 @@ def _ring_factor(rho: np.ndarray, z: np.ndarray, radius: float, mu0_i: float) ->
     out[small] = mu0_i * radius ** 2 / (4 * D2 ** 1.5) * (1 + 15 * radius ** 2 * rho[small] ** 2 / (8 * D2 ** 2))
     big = ~small
     k2b, rb = k2[big], rho[big]
-    out[big] = (mu0_i / (np.pi * np.sqrt(k2b)) * np.sqrt(radius / rb) * ((1 - k2b / 2) * ellipk(k2b) - ellipe(k2b))
+    kk, ee = ellipke(k2b)
+    out[big] = (mu0_i / (np.pi * np.sqrt(k2b)) * np.sqrt(radius / rb) * ((1 - k2b / 2) * kk - ee)
                 / rb)
     return out
 
