@@ -14,20 +14,13 @@ from ..language.loader import load
 from ..renderers.output import write_atomic
 from ..rules.results import FAIL_LEVELS, Options
 from ..rules.selection import UnknownRule, codes_of
+from ..language.fragments import resolved as _resolved
 from .settings import load_settings, shown_value
 
 __all__ = ["FAIL_HELP", "FAIL_LEVELS", "UsageError", "Parser", "quantity_type", "seconds_type",
            "processes_type", "add_analysis_options", "options_of", "load_plan", "write_output",
            "plan_paths", "add_watch_command", "DEFAULT_PORT"]
 
-
-def _resolved(p: Path) -> Path:
-    """``p`` with its links followed; a link in a loop (or one that cannot be followed) as written,
-    made absolute — the reader then refuses it with a located error."""
-    try:
-        return Path(p).resolve()
-    except (RuntimeError, OSError):
-        return Path(os.path.abspath(p))
 
 
 class UsageError(GroundcheckError):

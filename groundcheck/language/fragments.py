@@ -16,10 +16,10 @@ from .limits import LIMITS
 from .planfile import PLAN_SUFFIX, read_plan_file
 from .syntax import parse_text
 
-__all__ = ["includes_of", "fragments_among", "neighbours"]
+__all__ = ["includes_of", "fragments_among", "neighbours", "resolved"]
 
 
-def _resolved(p: Path) -> Path:
+def resolved(p: Path) -> Path:
     """``p`` with its links followed; a link in a loop (or one that cannot be followed) as written,
     made absolute — the reader then refuses it with a located error."""
     try:
@@ -44,7 +44,7 @@ def includes_of(path: Path) -> list[Path]:
             continue
         word = it.phrases[0][0]
         if word.kind == "string" and not Path(word.value).is_absolute():
-            target = _resolved((path.parent / word.value))
+            target = resolved((path.parent / word.value))
             if target.is_file():
                 out.append(target)
     return out
@@ -56,7 +56,7 @@ def fragments_among(plans: list[Path]) -> dict[Path, list[Path]]:
     found: dict[Path, list[Path]] = {}
     known: dict[Path, list[Path]] = {}
     for plan in plans:
-        root = _resolved(plan)
+        root = resolved(plan)
         todo, seen = [(root, 0)], {root}
         while todo:
             here, depth = todo.pop()
@@ -76,7 +76,7 @@ def fragments_among(plans: list[Path]) -> dict[Path, list[Path]]:
 def neighbours(path: Path, top: Path) -> list[Path]:
     """The plans that could include ``path``: those in its own folder and in each folder above it, up to
     ``top`` (an include is confined to its main plan's folder and below, so no other plan can)."""
-    folder, top = _resolved(path).parent, _resolved(top)
+    folder, top = resolved(path).parent, resolved(top)
     if folder != top and top not in folder.parents:
         return []
     out = []
