@@ -210,8 +210,15 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     cs = [ctx.conductors[e] for e in lp.edges]
+    # a point the protective earth reaches (its stud, even one a return wrongly shares) keeps its
+    # fastening to the metal: the route may stop there, the earth of the metal does not
+    par = ctx.route.parent
+    reached = {p for p, up in par.items() if up is not None and up[1] in ctx.protective_path
+               and p not in ctx.metals}
+    earthing = {c.name for c in cs if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)}
     # by name, not in the order the loop happens to be walked (which follows the plan's writing)
     candidates = sorted((c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
+                         and c.name not in earthing
                          and not (bonds_metal(c) and c.role == BOND
                                   and (c.a in ctx.metals and c.b in ctx.metals))), key=lambda c: c.name)
     if not candidates:
