@@ -100,6 +100,13 @@ class AuditContext:
         return protective_route(self.plan, self.adj)
 
     @cached_property
+    def earth_points(self) -> frozenset:
+        """Points the protective route reaches through a conductor of its own (the earth stud, even
+        one a return wrongly shares, where the route stops): their fastenings to metal stay."""
+        return frozenset(p for p, up in self.route.parent.items() if up is not None
+                         and up[1] in self.protective_path and p not in self.metals)
+
+    @cached_property
     def protective_path(self) -> frozenset:
         """Conductors the protective earth relies on, parallel paths included: never to be opened."""
         return self.route.keep
@@ -212,9 +219,7 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
     cs = [ctx.conductors[e] for e in lp.edges]
     # a point the protective earth reaches (its stud, even one a return wrongly shares) keeps its
     # fastening to the metal: the route may stop there, the earth of the metal does not
-    par = ctx.route.parent
-    reached = {p for p, up in par.items() if up is not None and up[1] in ctx.protective_path
-               and p not in ctx.metals}
+    reached = ctx.earth_points
     earthing = {c.name for c in cs if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)}
     # by name, not in the order the loop happens to be walked (which follows the plan's writing)
     candidates = sorted((c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path

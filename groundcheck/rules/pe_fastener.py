@@ -48,7 +48,7 @@ def _clamped_part(ctx: AuditContext, stud: str, own: list) -> list[str]:
     """The part a protective stud's own fastening clamps when the stud sits ``on`` one metal part
     and is fastened to another: the fastening holds that other part (a transformer's foot, say)
     onto the one it sits on, so servicing the part loosens the protective earth."""
-    point = next((p for p in ctx.plan.points if p.name == stud), None)
+    point = ctx.plan.point(stud)
     if point is None or point.on is None or not own:
         return []
     c = ctx.conductors[own[0]]
