@@ -82,9 +82,9 @@ def main() -> None:
         emf = abs(wire_flux + plate_flux(sol, src, src_h))
         drop = abs(sol.phi.ravel()[group == 0][0] - sol.phi.ravel()[group == 1][0])
         print(
-            f"{f:7.0f} Hz: {took:6.2f} s, {sol.iterations:3d} iterations; "
-            f"loop flux {emf:.3e} Wb per A·m³ (chord {abs(chord):.3e}, "
-            f"{emf / abs(chord) - 1:+.1%}); drop a-b {drop * 1e6:.2f} µV per A"
+            f"{f:7.0f} Hz: {took:6.2f} s, {sol.iterations:3d} iterations; loop flux {emf:.3e} Wb "
+            f"per A·m³ (chord {abs(chord):.3e}, {emf / abs(chord) - 1:+.1%}); drop a-b "
+            f"{drop * 1e6:.2f} µV per A"
         )
 
 

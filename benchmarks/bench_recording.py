@@ -1,5 +1,5 @@
-"""Timing and memory of reading a recording (groundcheck bench): a one-minute and an hour-long 48 kHz
-recording, each measured in a fresh process (its wall-clock time and its peak resident memory).
+"""Timing and memory of reading a recording (groundcheck bench): a one-minute and an hour-long 48
+kHz recording, each measured in a fresh process (its wall-clock time and its peak resident memory).
 
     python benchmarks/bench_recording.py                   # one minute, 16 and 24-bit
     python benchmarks/bench_recording.py --hour            # and an hour of 16-bit (a 345 MB file)
@@ -38,8 +38,11 @@ def _write(path: Path, seconds: int, width: int) -> None:
             x = sum(math.sqrt(2) * a * np.sin(2 * np.pi * f * t) for f, a in LINES.items())
             x = x + np.random.default_rng(start).normal(0, 1e-5, n)
             v = np.round(x * 2.0 ** (8 * width - 1)).astype("<i4")
-            w.writeframes(v.astype("<i2").tobytes() if width == 2 else
-                          v.view(np.uint8).reshape(-1, 4)[:, :3].tobytes())
+            w.writeframes(
+                v.astype("<i2").tobytes()
+                if width == 2
+                else v.view(np.uint8).reshape(-1, 4)[:, :3].tobytes()
+            )
 
 
 CHILD = """
@@ -56,10 +59,17 @@ print(f"{t1 - t0:.2f} {t2 - t1:.2f} {peak:.0f} {m.mains_hz:.3f} {m.segments}")
 
 def _run(path: Path) -> str:
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    out = subprocess.run([sys.executable, "-c", CHILD, str(path)], capture_output=True, text=True,
-                         env=env, check=True).stdout.split()
-    return (f"import {out[0]} s, measure {out[1]} s, peak resident {out[2]} MiB, mains {out[3]} Hz, "
-            f"{out[4]} segments")
+    out = subprocess.run(
+        [sys.executable, "-c", CHILD, str(path)],
+        capture_output=True,
+        text=True,
+        env=env,
+        check=True,
+    ).stdout.split()
+    return (
+        f"import {out[0]} s, measure {out[1]} s, peak resident {out[2]} MiB, mains {out[3]} Hz, "
+        f"{out[4]} segments"
+    )
 
 
 def main() -> None:
@@ -73,7 +83,7 @@ def main() -> None:
         for label, seconds, width in cases:
             path = Path(tmp) / f"rec{seconds}-{width}.wav"
             _write(path, seconds, width)
-            print(f"{label} ({path.stat().st_size / 2 ** 20:.0f} MiB): {_run(path)}", flush=True)
+            print(f"{label} ({path.stat().st_size / 2**20:.0f} MiB): {_run(path)}", flush=True)
             path.unlink()
 
 

@@ -38,10 +38,13 @@ from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 FIELD = Path("/work/shared/field-plans")
-PLANS = [ROOT / "examples" / name for name in
-         ("dual-mono-phono-stage.gplan", "guitar-head.gplan", "headphone-amp-100v.gplan")] + [
+PLANS = [
+    ROOT / "examples" / name
+    for name in ("dual-mono-phono-stage.gplan", "guitar-head.gplan", "headphone-amp-100v.gplan")
+] + [
     (FIELD if (FIELD / name).exists() else ROOT / "tests" / "field") / name / "plan.gplan"
-    for name in ("headphone-se-valve-rectifier", "se-power-triode")]
+    for name in ("headphone-se-valve-rectifier", "se-power-triode")
+]
 ANCHOR = [sys.executable, "-c", "import networkx, scipy.sparse.linalg, numpy"]
 
 RECTIFIERS = """
@@ -70,8 +73,9 @@ def _timed(cmd: list[str], env: dict) -> tuple[float, float, str]:
     the measured tree (``python -c`` and ``-m`` put the working folder first on the path)."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     t = time.perf_counter()
-    out = subprocess.run(cmd, env=env, capture_output=True, text=True, check=False,
-                         cwd=env["PYTHONPATH"])
+    out = subprocess.run(
+        cmd, env=env, capture_output=True, text=True, check=False, cwd=env["PYTHONPATH"]
+    )
     wall = time.perf_counter() - t
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
@@ -80,8 +84,15 @@ def _timed(cmd: list[str], env: dict) -> tuple[float, float, str]:
 
 def measure(tree: Path, plans: list[Path], rounds: int) -> list[dict]:
     env = dict(os.environ, PYTHONPATH=str(tree))
-    rows = {p: {"plan": p.parent.name if p.name == "plan.gplan" else p.stem,
-                "rect": [], "wall": [], "cpu": []} for p in plans}
+    rows = {
+        p: {
+            "plan": p.parent.name if p.name == "plan.gplan" else p.stem,
+            "rect": [],
+            "wall": [],
+            "cpu": [],
+        }
+        for p in plans
+    }
     for _ in range(rounds):
         anchor_wall, anchor_cpu, _ = _timed(ANCHOR, env)
         for p in plans:
@@ -91,9 +102,15 @@ def measure(tree: Path, plans: list[Path], rounds: int) -> list[dict]:
             wall, cpu, _ = _timed(check, env)
             rows[p]["wall"].append(wall / anchor_wall)
             rows[p]["cpu"].append(cpu / anchor_cpu)
-    return [{"plan": r["plan"], "rectifier_cpu_s": min(r["rect"]),
-             "check_wall_ratio": statistics.median(r["wall"]),
-             "check_cpu_ratio": statistics.median(r["cpu"])} for r in rows.values()]
+    return [
+        {
+            "plan": r["plan"],
+            "rectifier_cpu_s": min(r["rect"]),
+            "check_wall_ratio": statistics.median(r["wall"]),
+            "check_cpu_ratio": statistics.median(r["cpu"]),
+        }
+        for r in rows.values()
+    ]
 
 
 def installation_ratio(tree: Path, devices: int, rounds: int) -> tuple[float, float]:
@@ -112,26 +129,39 @@ def installation_ratio(tree: Path, devices: int, rounds: int) -> tuple[float, fl
 
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--tree", type=Path, default=ROOT, help="the checkout to measure (default: this)")
+    ap.add_argument(
+        "--tree", type=Path, default=ROOT, help="the checkout to measure (default: this)"
+    )
     ap.add_argument("--label", default="", help="a word for the table's title (before, after)")
     ap.add_argument("--rounds", type=int, default=3)
     ap.add_argument("--plans", type=Path, nargs="*", default=PLANS)
-    ap.add_argument("--installation", type=int, default=0, metavar="DEVICES",
-                    help="also analyse a generated installation of DEVICES devices in one process")
+    ap.add_argument(
+        "--installation",
+        type=int,
+        default=0,
+        metavar="DEVICES",
+        help="also analyse a generated installation of DEVICES devices in one process",
+    )
     args = ap.parse_args()
     load = os.getloadavg()
     rows = measure(args.tree.resolve(), [p.resolve() for p in args.plans], args.rounds)
-    print(f"### {args.label or args.tree} ({args.rounds} rounds; load average {load[0]:.2f} "
-          f"before, {os.getloadavg()[0]:.2f} after, {os.cpu_count()} cores)\n")
+    print(
+        f"### {args.label or args.tree} ({args.rounds} rounds; load average {load[0]:.2f} before, "
+        f"{os.getloadavg()[0]:.2f} after, {os.cpu_count()} cores)\n"
+    )
     print("| plan | rectifier CPU s | check ÷ anchor, wall | check ÷ anchor, CPU |")
     print("|---|---:|---:|---:|")
     for r in rows:
-        print(f"| {r['plan']} | {r['rectifier_cpu_s']:.3f} | {r['check_wall_ratio']:.2f} "
-              f"| {r['check_cpu_ratio']:.2f} |")
+        print(
+            f"| {r['plan']} | {r['rectifier_cpu_s']:.3f} | {r['check_wall_ratio']:.2f} | "
+            f"{r['check_cpu_ratio']:.2f} |"
+        )
     if args.installation:
         wall, cpu = installation_ratio(args.tree.resolve(), args.installation, args.rounds)
-        print(f"\ninstallation of {args.installation} devices, analyze() in one process ÷ anchor: "
-              f"wall {wall:.1f}, CPU {cpu:.1f}")
+        print(
+            f"\ninstallation of {args.installation} devices, analyze() in one process ÷ anchor: "
+            f"wall {wall:.1f}, CPU {cpu:.1f}"
+        )
     return 0
 
 

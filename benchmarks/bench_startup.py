@@ -180,17 +180,17 @@ def measure(plan: str, rounds: int, env: dict, scratch: Path) -> dict:
 
 def table(rows: list[dict]) -> str:
     lines = [
-        "| plan | check ÷ anchor | imports ÷ anchor | CPU s: anchor / imports / check | "
-        "analysis s | modules | heavy imports |",
+        "| plan | check ÷ anchor | imports ÷ anchor | CPU s: anchor / imports / check | analysis "
+        "s | modules | heavy imports |",
         "|---|---:|---:|---:|---:|---:|---|",
     ]
     for r in rows:
         c, i, u = r["check"], r["imports"], r["cpu"]
         lines.append(
             f"| {Path(r['plan']).name} | {c['median']:.2f} ({c['min']:.2f}–{c['max']:.2f}) | "
-            f"{i['median']:.2f} ({i['min']:.2f}–{i['max']:.2f}) | "
-            f"{u['anchor']:.2f} / {u['imports']:.2f} / {u['check']:.2f} | {r['analysis_s']:.2f} | "
-            f"{r['modules']} | {', '.join(r['heavy'])} |"
+            f"{i['median']:.2f} ({i['min']:.2f}–{i['max']:.2f}) | {u['anchor']:.2f} / "
+            f"{u['imports']:.2f} / {u['check']:.2f} | {r['analysis_s']:.2f} | {r['modules']} | "
+            f"{', '.join(r['heavy'])} |"
         )
     return "\n".join(lines)
 
@@ -211,8 +211,8 @@ def solver_sizes(sizes: list[int], repeat: int) -> str:
     from groundcheck.physics.circuit import build_circuit
 
     lines = [
-        "| conductors | unknown nodes | dense ms | sparse ms | dense ÷ sparse | "
-        "largest difference |",
+        "| conductors | unknown nodes | dense ms | sparse ms | dense ÷ sparse | largest "
+        "difference |",
         "|---:|---:|---:|---:|---:|---:|",
     ]
     limit = circuit_module.DENSE_NODES
@@ -280,9 +280,8 @@ def main(argv: list[str] | None = None) -> None:
     after = os.getloadavg()
     print(table(rows))
     print(
-        f"\nload average (1 min) {load[0]:.2f} before, {after[0]:.2f} after; "
-        f"{os.cpu_count()} processors; "
-        f"Python {sys.version.split()[0]}; {args.rounds} rounds; "
+        f"\nload average (1 min) {load[0]:.2f} before, {after[0]:.2f} after; {os.cpu_count()} "
+        f"processors; Python {sys.version.split()[0]}; {args.rounds} rounds; "
         + (
             "modules compiled on every run"
             if args.from_source

@@ -1,9 +1,10 @@
 """Save-to-update latency of the live view (``groundcheck watch``), end to end.
 
-For each plan: start ``groundcheck watch`` on a copy, listen to its event stream as the page does, then save
-the plan (a comment line appended, so the figures stay the same) and time until the new state has been
-announced and fetched (``/state``) — what the page needs before it redraws.  The browser's own drawing
-time is not included.  Reported: the median and the slowest of ``--repeat`` saves, after one save to warm up.
+For each plan: start ``groundcheck watch`` on a copy, listen to its event stream as the page does,
+then save the plan (a comment line appended, so the figures stay the same) and time until the new
+state has been announced and fetched (``/state``) — what the page needs before it redraws.  The
+browser's own drawing time is not included.  Reported: the median and the slowest of ``--repeat``
+saves, after one save to warm up.
 
     python benchmarks/bench_watch.py                       # the examples and a 1k-conductor plan
 """
@@ -47,8 +48,12 @@ def _fetch_state(port: int) -> int:
 
 def measure(plan: Path, repeat: int) -> tuple[float, float, int]:
     """(median s, slowest s, state size in bytes) of saving ``plan`` while the view runs."""
-    proc = subprocess.Popen([sys.executable, "-m", "groundcheck", "watch", str(plan), "--port", "0"],
-                            stderr=subprocess.PIPE, stdout=subprocess.DEVNULL, text=True)
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "groundcheck", "watch", str(plan), "--port", "0"],
+        stderr=subprocess.PIPE,
+        stdout=subprocess.DEVNULL,
+        text=True,
+    )
     try:
         port = int(re.search(r":(\d+)/", proc.stderr.readline()).group(1))
         stream = _events(port)
@@ -61,7 +66,10 @@ def measure(plan: Path, repeat: int) -> tuple[float, float, int]:
             with plan.open("a") as f:
                 f.write(f"# saved {i}\n")
             new = _next_event(stream)
-            assert new == version + 1, (new, version)      # the save's own state, not one announced before
+            assert new == version + 1, (
+                new,
+                version,
+            )  # the save's own state, not one announced before
             version = new
             size = _fetch_state(port)
             if i:

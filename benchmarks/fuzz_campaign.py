@@ -1,13 +1,14 @@
 """A longer fuzz campaign than the test suite runs: grammar-aware plans, valid and mutated.
 
     python benchmarks/fuzz_campaign.py --examples 5000          # hypothesis, grammar-aware
-    python benchmarks/fuzz_campaign.py --grid                   # every number of every example, 17 extreme values
-    python benchmarks/fuzz_campaign.py --mutants 5000           # token mutants of every example
-    python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   # coverage-guided, if atheris installs
-    python benchmarks/fuzz_campaign.py --invariants 10000   # invariant properties, N plans each
-    python benchmarks/fuzz_campaign.py --advice 1000        # the advisor's promises, N plans
-    python benchmarks/fuzz_campaign.py --hostile 10000      # the hostile families, N cases each
-    python benchmarks/fuzz_campaign.py --hostile 200 --family signals   # one family
+    python benchmarks/fuzz_campaign.py --grid                   # every number of every example, 17
+    extreme values python benchmarks/fuzz_campaign.py --mutants 5000           # token mutants of
+    every example python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   #
+    coverage-guided, if atheris installs python benchmarks/fuzz_campaign.py --invariants 10000   #
+    invariant properties, N plans each python benchmarks/fuzz_campaign.py --advice 1000        #
+    the advisor's promises, N plans python benchmarks/fuzz_campaign.py --hostile 10000      # the
+    hostile families, N cases each python benchmarks/fuzz_campaign.py --hostile 200 --family
+    signals   # one family
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
 crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
@@ -53,15 +54,20 @@ def one(text: str) -> None:
 
 
 def examples(grid: bool, mutants: int) -> None:
-    """The extreme-value grid and/or token mutants of every example and of the plan that uses every statement:
-    cases, crashes (with the first case of each
+    """The extreme-value grid and/or token mutants of every example and of the plan that uses every
+    statement: cases, crashes (with the first case of each
     kind), the slowest case; a crash or a case over 20 s is a regression to keep in tests/."""
     from planfuzz import extreme_variants, token_mutants
+
     root = Path(__file__).resolve().parent.parent
-    for path in [*sorted((root / "examples").glob("*.gplan")), root / "tests" / "plans" / "every-statement.gplan"]:
+    for path in [
+        *sorted((root / "examples").glob("*.gplan")),
+        root / "tests" / "plans" / "every-statement.gplan",
+    ]:
         text = path.read_text()
-        runs = ([("grid", d, t) for d, t in extreme_variants(text)] if grid else []) + \
-            [("mutant", f"#{i}", t) for i, t in enumerate(token_mutants(text, mutants, seed=7))]
+        runs = ([("grid", d, t) for d, t in extreme_variants(text)] if grid else []) + [
+            ("mutant", f"#{i}", t) for i, t in enumerate(token_mutants(text, mutants, seed=7))
+        ]
         crashes: dict[str, str] = {}
         slowest = (0.0, "")
         t0 = time.perf_counter()
@@ -72,8 +78,11 @@ def examples(grid: bool, mutants: int) -> None:
             except Exception as e:  # noqa: BLE001 - every crash is recorded
                 crashes.setdefault(f"{type(e).__name__}: {str(e)[:100]}", f"{kind} {desc}")
             slowest = max(slowest, (time.perf_counter() - s, f"{kind} {desc}"))
-        print(f"{path.name}: {len(runs)} cases in {time.perf_counter() - t0:.0f} s, {len(crashes)} kinds of crash, "
-              f"slowest {slowest[0]:.1f} s ({slowest[1]})", flush=True)
+        print(
+            f"{path.name}: {len(runs)} cases in {time.perf_counter() - t0:.0f} s, {len(crashes)} "
+            f"kinds of crash, slowest {slowest[0]:.1f} s ({slowest[1]})",
+            flush=True,
+        )
         for k, where in crashes.items():
             print(f"  {k}  (first: {where})")
 
@@ -88,6 +97,7 @@ def _counted(check, name: str, t: float):
         done[0] += 1
         if done[0] % 500 == 0:
             print(f"  {name}: {done[0]} plans, {time.perf_counter() - t:.0f} s", flush=True)
+
     return counted
 
 
@@ -98,14 +108,22 @@ def invariants(n: int, only: str = "") -> None:
 
     import test_invariants
     import test_rewritings
+
     t = time.perf_counter()
-    for name, (check, strategies, _) in {**test_invariants.PROPERTIES,
-                                         **test_rewritings.PROPERTIES}.items():
+    for name, (check, strategies, _) in {
+        **test_invariants.PROPERTIES,
+        **test_rewritings.PROPERTIES,
+    }.items():
         if only not in name:
             continue
         run = given(*strategies)(_counted(check, name, t))
-        settings(max_examples=n, deadline=None, database=None, suppress_health_check=list(HealthCheck),
-                 phases=[Phase.generate, Phase.shrink])(run)()
+        settings(
+            max_examples=n,
+            deadline=None,
+            database=None,
+            suppress_health_check=list(HealthCheck),
+            phases=[Phase.generate, Phase.shrink],
+        )(run)()
         print(f"{name}: {n} plans, no failure, {time.perf_counter() - t:.0f} s so far", flush=True)
 
 
@@ -118,6 +136,7 @@ def advice(n: int) -> None:
 
     from groundcheck.advice.repair import suggest
     from groundcheck.analysis import Options
+
     seen: Counter = Counter()
     t = time.perf_counter()
 
@@ -125,20 +144,26 @@ def advice(n: int) -> None:
         advisor_promises(text)
         _, evs = suggest(load_text(text, "generated.gplan"), text, Options(max_frequency=1000.0))
         seen.update(ev.candidate.action for ev in evs if not ev.rejected)
-    settings(max_examples=n, deadline=None, database=None,
-             suppress_health_check=list(HealthCheck))(given(chassis_plans())(run))()
-    print(f"advisor's promises: {n} plans, no failure, {time.perf_counter() - t:.0f} s; "
-          f"accepted suggestions by action: {dict(sorted(seen.items()))}", flush=True)
+
+    settings(
+        max_examples=n, deadline=None, database=None, suppress_health_check=list(HealthCheck)
+    )(given(chassis_plans())(run))()
+    print(
+        f"advisor's promises: {n} plans, no failure, {time.perf_counter() - t:.0f} s; accepted "
+        f"suggestions by action: {dict(sorted(seen.items()))}",
+        flush=True,
+    )
 
 
 def hostile(n: int, families: list[str], seed: int = 11) -> int:
-    """``n`` cases of each hostile family: outcomes, failures (the first case of each kind), the slowest case and
-    the process's peak memory; returns the number of failures."""
+    """``n`` cases of each hostile family: outcomes, failures (the first case of each kind), the
+    slowest case and the process's peak memory; returns the number of failures."""
     import random
     import resource
     from collections import Counter
 
     from hostile_families import FAMILIES
+
     failed = 0
     for name in families:
         rng = random.Random(f"{seed}-{name}")
@@ -155,9 +180,12 @@ def hostile(n: int, families: list[str], seed: int = 11) -> int:
                 failed += 1
             slowest = max(slowest, (time.perf_counter() - s, i))
         peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
-        print(f"{name}: {n} cases in {time.perf_counter() - t0:.0f} s, {len(kinds)} kinds "
-              f"of failure, slowest {slowest[0]:.2f} s (case {slowest[1]}), peak {peak:.0f} MiB; "
-              f"{dict(seen.most_common(8))}", flush=True)
+        print(
+            f"{name}: {n} cases in {time.perf_counter() - t0:.0f} s, {len(kinds)} kinds of "
+            f"failure, slowest {slowest[0]:.2f} s (case {slowest[1]}), peak {peak:.0f} MiB; "
+            f"{dict(seen.most_common(8))}",
+            flush=True,
+        )
         for k, i in kinds.items():
             print(f"  {k}  (first: case {i})", flush=True)
     return failed
@@ -167,16 +195,38 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--examples", type=int, default=2000)
     ap.add_argument("--atheris", action="store_true")
-    ap.add_argument("--grid", action="store_true", help="the extreme-value grid over every example's numbers")
-    ap.add_argument("--mutants", type=int, default=0, metavar="N", help="N token mutants of every example")
-    ap.add_argument("--invariants", type=int, default=0, metavar="N",
-                    help="the invariant properties, N plans each")
-    ap.add_argument("--only", default="", help="with --invariants: the properties whose name holds this")
-    ap.add_argument("--advice", type=int, default=0, metavar="N",
-                    help="the advisor's promises on N generated chassis plans")
-    ap.add_argument("--hostile", type=int, default=0, metavar="N", help="N cases of each hostile family")
-    ap.add_argument("--family", action="append", choices=["structural", "files", "unicode", "signals"],
-                    help="only this hostile family (repeatable)")
+    ap.add_argument(
+        "--grid", action="store_true", help="the extreme-value grid over every example's numbers"
+    )
+    ap.add_argument(
+        "--mutants", type=int, default=0, metavar="N", help="N token mutants of every example"
+    )
+    ap.add_argument(
+        "--invariants",
+        type=int,
+        default=0,
+        metavar="N",
+        help="the invariant properties, N plans each",
+    )
+    ap.add_argument(
+        "--only", default="", help="with --invariants: the properties whose name holds this"
+    )
+    ap.add_argument(
+        "--advice",
+        type=int,
+        default=0,
+        metavar="N",
+        help="the advisor's promises on N generated chassis plans",
+    )
+    ap.add_argument(
+        "--hostile", type=int, default=0, metavar="N", help="N cases of each hostile family"
+    )
+    ap.add_argument(
+        "--family",
+        action="append",
+        choices=["structural", "files", "unicode", "signals"],
+        help="only this hostile family (repeatable)",
+    )
     args, rest = ap.parse_known_args()
     if args.hostile:
         families = args.family or ["structural", "files", "unicode", "signals"]
@@ -195,15 +245,26 @@ def main() -> None:
 
         def target(data: bytes) -> None:
             one(data.decode("utf-8", "replace"))
+
         atheris.Setup([sys.argv[0], *rest], target)
         atheris.Fuzz()
         return
     t = time.perf_counter()
     for name, strategy in (("valid", valid_plans()), ("mutated", mutated_plans())):
-        def phase(text: str) -> None:       # a fresh function per phase: Hypothesis settings apply once per function
+
+        def phase(
+            text: str,
+        ) -> None:  # a fresh function per phase: Hypothesis settings apply once per function
             one(text)
-        given(strategy)(settings(max_examples=args.examples, deadline=None, database=None,
-                                 suppress_health_check=list(HealthCheck))(phase))()
+
+        given(strategy)(
+            settings(
+                max_examples=args.examples,
+                deadline=None,
+                database=None,
+                suppress_health_check=list(HealthCheck),
+            )(phase)
+        )()
         print(f"{name} plans: {args.examples}, no failure, {time.perf_counter() - t:.1f} s so far")
 
 

@@ -4,7 +4,8 @@ Library entry points, one per stage of the pipeline::
 
     plan = groundcheck.load("amp.gplan")        # text -> model
     result = groundcheck.analyze(plan)          # model -> network -> analyses -> findings
-    text = groundcheck.render(result, "json")   # findings -> a report (text, json, sarif, html, dot)
+    text = groundcheck.render(result, "json")   # findings -> a report (text, json, sarif, html,
+    dot)
 
 The figures are estimates from the plan, not a substitute for measurement.
 """
@@ -13,18 +14,31 @@ from .core.errors import GroundcheckError, Location, PlanError, PlanErrors
 from .language.loader import load, load_text
 
 from .core.version import __version__
-__all__ = ["load", "load_text", "analyze", "render", "GroundcheckError", "PlanError", "PlanErrors", "Location",
-           "__version__"]
+
+__all__ = [
+    "load",
+    "load_text",
+    "analyze",
+    "render",
+    "GroundcheckError",
+    "PlanError",
+    "PlanErrors",
+    "Location",
+    "__version__",
+]
 
 
 def analyze(plan, options=None):
     """Run every analysis on a loaded plan; see :func:`groundcheck.analysis.analyze`."""
     from .analysis import Options, analyze as _analyze
+
     return _analyze(plan, options or Options())
 
 
 def render(result, fmt: str = "text") -> str:
-    """A report of a result as text: ``text``, ``json``, ``sarif``, ``html`` (drawings when a renderer is
-    available) or ``dot`` (the physical drawing's source); see :mod:`groundcheck.renderers.formats`."""
+    """A report of a result as text: ``text``, ``json``, ``sarif``, ``html`` (drawings when a
+    renderer is available) or ``dot`` (the physical drawing's source); see
+    :mod:`groundcheck.renderers.formats`."""
     from .renderers.formats import render_results
+
     return render_results([result], fmt)

@@ -1,8 +1,8 @@
 """Run every analysis on a plan and gather the findings: the library's ``analyze`` entry point.
 
 The pipeline: audit context (graph, loops, protective route) → topology rules → circuit → analyses
-(shared returns, protective-earth figures, device earth paths, hum budget) → rules on their results.
-Every rule comes from the registry (:mod:`groundcheck.rules.registry`).
+(shared returns, protective-earth figures, device earth paths, hum budget) → rules on their
+results. Every rule comes from the registry (:mod:`groundcheck.rules.registry`).
 """
 
 from __future__ import annotations
@@ -61,12 +61,21 @@ def _analyze(plan: Plan, options: Options) -> Result:
         raise PlanErrors(errors)
     check_devices(plan)
     findings, ctx = audit(plan)
-    result = Result(plan, findings, ctx.loops, ctx.loop_total, options=options, notices=_notices(plan, options),
-                    protective=ctx.route.keep)
+    result = Result(
+        plan,
+        findings,
+        ctx.loops,
+        ctx.loop_total,
+        options=options,
+        notices=_notices(plan, options),
+        protective=ctx.route.keep,
+    )
     if not plan.points and not plan.metals:
         return _finish(result)
     circuit = build_circuit(plan)
-    check_work(plan, ctx.loops, circuit, options.max_frequency, options.hum)   # refused before the work
+    check_work(
+        plan, ctx.loops, circuit, options.max_frequency, options.hum
+    )  # refused before the work
     result.circuit = circuit
     result.safety = protective_figures(plan, ctx.route, options.pe_limit, circuit)
     result.device_earths = installation_earths(plan, ctx.route, circuit)
@@ -74,16 +83,25 @@ def _analyze(plan: Plan, options: Options) -> Result:
     rr = _simulated(plan) if options.hum else {}
     result.rectifiers = list(rr.values())
     _solve(plan, ctx, circuit, rr, options, result)
-    solved = Solved(plan, ctx, circuit, result.coupling, result.safety, result.device_earths,
-                    result.hum, options, result.bonding)
+    solved = Solved(
+        plan,
+        ctx,
+        circuit,
+        result.coupling,
+        result.safety,
+        result.device_earths,
+        result.hum,
+        options,
+        result.bonding,
+    )
     for r in functions("solve"):
         findings.extend(r.func(solved))
     return _finish(result)
 
 
 def _simulated(plan: Plan) -> dict:
-    """Each rectifier's steady state; rectifiers of the same figures (a rack of identical supplies) are
-    simulated once, each result under its own name."""
+    """Each rectifier's steady state; rectifiers of the same figures (a rack of identical supplies)
+    are simulated once, each result under its own name."""
     out, by_figures = {}, {}
     for r in plan.rectifiers:
         key = same_figures(r)
@@ -93,18 +111,26 @@ def _simulated(plan: Plan) -> dict:
     return out
 
 
-def _solve(plan: Plan, ctx: AuditContext, circuit, rr: dict, options: Options, result: Result) -> None:
-    """The shared returns, the hum budget and the outlet voltages: their solves as one set of independent tasks,
-    so that with ``jobs`` > 1 the processes share all of them (the costliest first), not only the hum budget's
-    frequencies.  The results are the same for any number of processes."""
+def _solve(
+    plan: Plan, ctx: AuditContext, circuit, rr: dict, options: Options, result: Result
+) -> None:
+    """The shared returns, the hum budget and the outlet voltages: their solves as one set of
+    independent tasks, so that with ``jobs`` > 1 the processes share all of them (the costliest
+    first), not only the hum budget's frequencies.  The results are the same for any number of
+    processes."""
     budget = outlets = None
     tasks, costs = [partial(shared_returns, plan, circuit)], [_coupling_cost(plan, circuit)]
     if options.hum and plan.devices:
         outlets = OutletWork(plan, circuit, rr, options.max_frequency)
     if options.hum and plan.stages:
-        budget = HumBudget(plan, circuit, ctx.loops, rr,
-                           HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
-                           outlets.pairs if outlets is not None else ())
+        budget = HumBudget(
+            plan,
+            circuit,
+            ctx.loops,
+            rr,
+            HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
+            outlets.pairs if outlets is not None else (),
+        )
         hum_tasks, hum_costs = budget.tasks(options.jobs)
         tasks += hum_tasks
         costs += hum_costs
@@ -114,32 +140,44 @@ def _solve(plan: Plan, ctx: AuditContext, circuit, rr: dict, options: Options, r
     done = run_tasks(tasks, options.jobs, costs)
     result.coupling = done[0]
     if budget is not None:
-        result.hum = budget.result(done[1:1 + len(hum_tasks)])
+        result.hum = budget.result(done[1 : 1 + len(hum_tasks)])
     if outlets is not None:
-        result.outlets = outlets.result(done[-1], result.hum.probes if result.hum is not None else None)
+        result.outlets = outlets.result(
+            done[-1], result.hum.probes if result.hum is not None else None
+        )
 
 
 def _coupling_cost(plan: Plan, circuit) -> float:
-    """The shared-return test's cost, in the hum budget's unit (sources × nodes): one real solve per source."""
-    return (len(plan.rectifiers) + len(plan.currents) + len(plan.heaters)) * len(circuit.nodes) * 1.5
+    """The shared-return test's cost, in the hum budget's unit (sources × nodes): one real solve
+    per source."""
+    return (
+        (len(plan.rectifiers) + len(plan.currents) + len(plan.heaters)) * len(circuit.nodes) * 1.5
+    )
 
 
 def _notices(plan: Plan, options: Options) -> list[str]:
     """What this run relaxed or skipped, said in every output format."""
     out = []
     if options.pe_limit > STANDARD_PE_LIMIT * (1 + 1e-9) and plan.mains is not None:
-        out.append(f"protective-path limit relaxed to {options.pe_limit * 1e3:g} mΩ by --pe-limit (the product-safety "
-                   f"limit is {STANDARD_PE_LIMIT * 1e3:g} mΩ; paths over it are listed as notes)")
+        out.append(
+            f"protective-path limit relaxed to {options.pe_limit * 1e3:g} mΩ by --pe-limit (the "
+            f"product-safety limit is {STANDARD_PE_LIMIT * 1e3:g} mΩ; paths over it are listed as "
+            "notes)"
+        )
     measured = [c for c in plan.conductors if c.length_computed]
     if measured:
         named = ", ".join(f"{c.kind} {c.name} {c.length * 1e3:.0f} mm" for c in measured[:5])
         more = f" and {len(measured) - 5} more" if len(measured) > 5 else ""
-        out.append(f"lengths not stated, measured along the ends' positions and routes: {named}{more}")
+        out.append(
+            f"lengths not stated, measured along the ends' positions and routes: {named}{more}"
+        )
     if not options.hum and plan.stages:
         out.append("hum and buzz budget skipped (--no-hum): no hum figures or hum findings")
     elif plan.stages and options.max_frequency < plan.frequency:
-        out.append(f"--max-frequency {options.max_frequency:g} Hz is below the mains frequency ({plan.frequency:g} "
-                   "Hz): no hum line was computed")
+        out.append(
+            f"--max-frequency {options.max_frequency:g} Hz is below the mains frequency "
+            f"({plan.frequency:g} Hz): no hum line was computed"
+        )
     return out
 
 
@@ -150,18 +188,25 @@ def _finish(result: Result) -> Result:
     wanted = codes_of(opts.only_rules, opts.only_rules_origin) if opts.only_rules else set(RULES)
     unwanted = codes_of(opts.leave_out, opts.leave_out_origin)
     if set(RULES) - wanted:
-        result.not_checked.append(NotChecked(
-            tuple(c for c in RULES if c not in wanted),
-            f"not among the rules chosen by {opts.only_rules_origin}"))
+        result.not_checked.append(
+            NotChecked(
+                tuple(c for c in RULES if c not in wanted),
+                f"not among the rules chosen by {opts.only_rules_origin}",
+            )
+        )
     if unwanted & wanted:
-        result.not_checked.append(NotChecked(
-            tuple(c for c in RULES if c in unwanted and c in wanted),
-            f"left out by {opts.leave_out_origin}"))
+        result.not_checked.append(
+            NotChecked(
+                tuple(c for c in RULES if c in unwanted and c in wanted),
+                f"left out by {opts.leave_out_origin}",
+            )
+        )
     unheard = [c for c in hum_codes() if c in wanted and c not in unwanted]
     judged = wanted - unwanted
     if not opts.hum and result.plan.stages and unheard:
-        result.not_checked.append(NotChecked(
-            tuple(unheard), "judged from the hum figures, which --no-hum leaves out"))
+        result.not_checked.append(
+            NotChecked(tuple(unheard), "judged from the hum figures, which --no-hum leaves out")
+        )
         judged -= set(unheard)
     findings = [f for f in result.findings if f.code in wanted and f.code not in unwanted]
     done = apply_acceptances(findings, result.plan.acceptances, opts.allow_accept_danger, judged)
@@ -171,9 +216,10 @@ def _finish(result: Result) -> Result:
     result.notices += [n.sentence() for n in result.not_checked]
     for f in result.accepted_dangers():
         result.notices.append(
-            f"a danger was accepted in the plan at {f.location.file}:{f.location.line}: "
-            f"{f.code} {f.rule.name} — it still counts as a danger (worst finding, exit status 1 "
-            "unless --fail-on never)")
+            f"a danger was accepted in the plan at {f.location.file}:{f.location.line}: {f.code} "
+            f"{f.rule.name} — it still counts as a danger (worst finding, exit status 1 unless "
+            "--fail-on never)"
+        )
     return result
 
 
@@ -185,6 +231,11 @@ def _acceptance_errors(plan: Plan) -> list[PlanError]:
         for i, word in enumerate(codes):
             if rule_codes(word) is None:
                 col = columns[0][i] if columns else 1
-                errors.append(PlanError(f"unknown rule {word!r} in an accept comment",
-                                        Location(file, line, col), UnknownRule(word).hint))
+                errors.append(
+                    PlanError(
+                        f"unknown rule {word!r} in an accept comment",
+                        Location(file, line, col),
+                        UnknownRule(word).hint,
+                    )
+                )
     return errors

@@ -1,9 +1,10 @@
 """Every figure and finding of an analysis result as one canonical structure, for the invariant
-properties (tests/test_invariants.py): two results are alike when the structures have the same shape
-and words and their numbers agree to 1e-9 relative (with a floor far below any figure printed).
+properties (tests/test_invariants.py): two results are alike when the structures have the same
+shape and words and their numbers agree to 1e-9 relative (with a floor far below any figure
+printed).
 
-Where a statement stands is no figure (its location, a finding's sentence that quotes its line), and
-neither is the order of a list: lists are compared as sorted collections. A listed loop named
+Where a statement stands is no figure (its location, a finding's sentence that quotes its line),
+and neither is the order of a list: lists are compared as sorted collections. A listed loop named
 ``loop N`` is replaced by the set of its conductors, since the numbering follows the listing."""
 
 from __future__ import annotations
@@ -17,10 +18,23 @@ import numpy as np
 REL, FLOOR = 1e-9, 1e-15
 
 #: fields that say where or how something is written, or what was asked, not what was found
-SKIP = {"location", "stage_location", "plan", "circuit", "options", "message", "fix", "notices",
-        "polygon", "parent", "path", "not_checked", "accepted",
-        "chord",  # a loop's walk: its members are compared as sets
-        "lines"}  # each contributor's raw phasors (a bench fit's input): compared as the contributors
+SKIP = {
+    "location",
+    "stage_location",
+    "plan",
+    "circuit",
+    "options",
+    "message",
+    "fix",
+    "notices",
+    "polygon",
+    "parent",
+    "path",
+    "not_checked",
+    "accepted",
+    "chord",  # a loop's walk: its members are compared as sets
+    "lines",
+}  # each contributor's raw phasors (a bench fit's input): compared as the contributors
 _LOOP = re.compile(r"^loop (\d+)$")
 
 
@@ -42,11 +56,17 @@ def canonical(obj, loops=(), rename=lambda s: s):
         if isinstance(x, np.ndarray):
             return tuple(walk(v) for v in x.ravel())
         if dataclasses.is_dataclass(x):
-            return tuple((f.name, walk(getattr(x, f.name))) for f in dataclasses.fields(x)
-                         if f.name not in SKIP)
+            return tuple(
+                (f.name, walk(getattr(x, f.name)))
+                for f in dataclasses.fields(x)
+                if f.name not in SKIP
+            )
         if isinstance(x, dict):
-            items = [(walk(k), walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v))
-                     for k, v in x.items() if k not in SKIP]
+            items = [
+                (walk(k), walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v))
+                for k, v in x.items()
+                if k not in SKIP
+            ]
             return ("dict", tuple(sorted(items, key=_order)))
         if isinstance(x, (list, tuple, set, frozenset)):
             return ("list", tuple(sorted((walk(v) for v in x), key=_order)))
@@ -100,6 +120,17 @@ def differences(a, b, where="", out=None, limit=8) -> list[str]:
 def result_figures(result, rename=lambda s: s):
     """Everything an analysis found and computed, canonical (see :func:`canonical`)."""
     loops = [info.loop.edges for info in result.loops]
-    keep = ("findings", "loops", "loop_total", "safety", "hum", "coupling", "device_earths",
-            "protective", "rectifiers", "outlets", "bonding")
+    keep = (
+        "findings",
+        "loops",
+        "loop_total",
+        "safety",
+        "hum",
+        "coupling",
+        "device_earths",
+        "protective",
+        "rectifiers",
+        "outlets",
+        "bonding",
+    )
     return tuple((k, canonical(getattr(result, k), loops, rename)) for k in keep)

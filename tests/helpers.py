@@ -13,8 +13,10 @@ from groundcheck import load_text
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = sorted((ROOT / "examples").glob("*.gplan"))
 
-needs_ngspice = pytest.mark.skipif(shutil.which("ngspice") is None,
-                                   reason="ngspice is not installed (Debian package 'ngspice'; .ci/run installs it)")
+needs_ngspice = pytest.mark.skipif(
+    shutil.which("ngspice") is None,
+    reason="ngspice is not installed (Debian package 'ngspice'; .ci/run installs it)",
+)
 
 HEADER = """plan "test"
 mains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2
@@ -25,5 +27,3 @@ def plan(text: str, header: bool = True, name: str = "t.gplan"):
     """A plan from inline text (with a mains header unless ``header`` is False)."""
     body = textwrap.dedent(text)
     return load_text((HEADER if header else "") + body, name)
-
-

@@ -1,14 +1,17 @@
 """Hostile-input families of the second round, shared by the test suite (a small sample of each,
 tests/test_hostile_families.py) and benchmarks/fuzz_campaign.py (10,000 cases each on demand).
 
-- structural: an example with a line or a brace deleted or duplicated (a ``place`` line many times);
-- files: plans, includes and device plans that are FIFOs, links (in the folder, out of it, dangling, in a
+- structural: an example with a line or a brace deleted or duplicated (a ``place`` line many
+  times);
+- files: plans, includes and device plans that are FIFOs, links (in the folder, out of it,
+  dangling, in a
   loop), device files, folders, unreadable or empty files, and ``-o`` aimed at what the run reads;
-- unicode: look-alike letters, bidi and zero-width controls, other scripts' digits put into an example;
+- unicode: look-alike letters, bidi and zero-width controls, other scripts' digits put into an
+  example;
 - signals: SIGTERM or Ctrl-C at a random moment of a ``check --jobs 2`` run.
 
-Each case must end in a result or in located errors, within its time bound, with no traceback, no raw
-control character in what a terminal shows, and no file changed but a fresh output.
+Each case must end in a result or in located errors, within its time bound, with no traceback, no
+raw control character in what a terminal shows, and no file changed but a fresh output.
 """
 
 from __future__ import annotations
@@ -27,12 +30,38 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
-SOURCES = [*sorted((ROOT / "examples").glob("*.gplan")), ROOT / "tests" / "plans" / "every-statement.gplan"]
+SOURCES = [
+    *sorted((ROOT / "examples").glob("*.gplan")),
+    ROOT / "tests" / "plans" / "every-statement.gplan",
+]
 #: characters no terminal line may carry raw: C1 controls, bidi overrides and isolates, zero-width
 RAW = re.compile("[\x80-\x9f\u200b-\u200f\u202a-\u202e\u2066-\u2069\ufeff\x1b]")
-HOSTILE_CHARS = ["\u0430", "\u043e", "\u0435", "\u03bf", "\u0455", "\u202e", "\u202d", "\u2066", "\u200b",
-                 "\u200d", "\ufeff", "\x85", "\x9b", "\u0661", "\u0662", "\u06f5", "\uff15", "\u0967", "\u00a0",
-                 "\u2212", "\u2009", "\u00b5", "\u2126", "\u212a"]
+HOSTILE_CHARS = [
+    "\u0430",
+    "\u043e",
+    "\u0435",
+    "\u03bf",
+    "\u0455",
+    "\u202e",
+    "\u202d",
+    "\u2066",
+    "\u200b",
+    "\u200d",
+    "\ufeff",
+    "\x85",
+    "\x9b",
+    "\u0661",
+    "\u0662",
+    "\u06f5",
+    "\uff15",
+    "\u0967",
+    "\u00a0",
+    "\u2212",
+    "\u2009",
+    "\u00b5",
+    "\u2126",
+    "\u212a",
+]
 CASE_SECONDS = 10
 
 
@@ -44,6 +73,7 @@ class Slow(Exception):
 def bounded(seconds: int = CASE_SECONDS):
     def expire(signum, frame):
         raise Slow(f"over {seconds} s")
+
     previous = signal.signal(signal.SIGALRM, expire)
     signal.alarm(seconds)
     try:
@@ -54,15 +84,19 @@ def bounded(seconds: int = CASE_SECONDS):
 
 
 def check_text(text: str, name: str = "fuzz.gplan") -> str:
-    """Load and analyse ``text`` (hum to 1 kHz): 'refused' or 'analysed'; AssertionError on a bad answer."""
+    """Load and analyse ``text`` (hum to 1 kHz): 'refused' or 'analysed'; AssertionError on a bad
+    answer."""
     from groundcheck import PlanErrors, load_text, render
     from groundcheck.analysis import Options, analyze
+
     with bounded():
         try:
             plan = load_text(text, name)
         except PlanErrors as e:
             shown = e.render()
-            assert all(": error: " in err.one_line() and err.location.line >= 1 for err in e.errors)
+            assert all(
+                ": error: " in err.one_line() and err.location.line >= 1 for err in e.errors
+            )
             assert not RAW.search(shown), repr(shown[:200])
             return "refused"
         result = analyze(plan, Options(max_frequency=1000.0))
@@ -72,7 +106,8 @@ def check_text(text: str, name: str = "fuzz.gplan") -> str:
 
 
 def structural(rng: random.Random) -> str:
-    """An example with one structural change: a line or a brace deleted or duplicated, a place line repeated."""
+    """An example with one structural change: a line or a brace deleted or duplicated, a place line
+    repeated."""
     lines = rng.choice(SOURCES).read_text().splitlines(keepends=True)
     i = rng.randrange(len(lines))
     op = rng.choice(["delete", "duplicate", "brace-out", "brace-twice", "place-many", "swap"])
@@ -96,20 +131,37 @@ def structural(rng: random.Random) -> str:
 
 
 def unicode_mutant(rng: random.Random) -> str:
-    """An example with one to three hostile characters put in, or a letter or digit replaced by one."""
+    """An example with one to three hostile characters put in, or a letter or digit replaced by
+    one."""
     text = rng.choice(SOURCES).read_text()
     for _ in range(rng.randint(1, 3)):
         i = rng.randrange(len(text))
         ch = rng.choice(HOSTILE_CHARS)
-        text = text[:i] + ch + text[i + (1 if text[i].isalnum() and rng.random() < 0.5 else 0):]
+        text = text[:i] + ch + text[i + (1 if text[i].isalnum() and rng.random() < 0.5 else 0) :]
     return text
 
 
-SMALL = ('plan "fs"\nmetal m: steel 1 mm, 100 x 100 mm, touchable\ninclude "part.gplan"\n'
-         "point b: star, at 20,20 on m\nwire w: a to b, 10 mm, 1 mm2\n")
+SMALL = (
+    'plan "fs"\nmetal m: steel 1 mm, 100 x 100 mm, touchable\ninclude "part.gplan"\n'
+    "point b: star, at 20,20 on m\nwire w: a to b, 10 mm, 1 mm2\n"
+)
 PART = "point a: stud, at 10,10 on m\n"
-SPECIALS = ["fifo", "link-in", "link-out", "link-dir", "dangling", "loop", "dev-null", "dev-zero", "dev-urandom",
-            "folder", "unreadable", "empty", "binary", "regular"]
+SPECIALS = [
+    "fifo",
+    "link-in",
+    "link-out",
+    "link-dir",
+    "dangling",
+    "loop",
+    "dev-null",
+    "dev-zero",
+    "dev-urandom",
+    "folder",
+    "unreadable",
+    "empty",
+    "binary",
+    "regular",
+]
 
 
 def _snapshot(*folders: Path) -> dict:
@@ -125,8 +177,14 @@ def _snapshot(*folders: Path) -> dict:
 
 
 def _make(path: Path, kind: str, outside: Path, text: str) -> None:
-    targets = {"link-out": outside / "secret.gplan", "link-dir": outside, "dangling": path.parent / "nowhere.gplan",
-               "dev-null": Path("/dev/null"), "dev-zero": Path("/dev/zero"), "dev-urandom": Path("/dev/urandom")}
+    targets = {
+        "link-out": outside / "secret.gplan",
+        "link-dir": outside,
+        "dangling": path.parent / "nowhere.gplan",
+        "dev-null": Path("/dev/null"),
+        "dev-zero": Path("/dev/zero"),
+        "dev-urandom": Path("/dev/urandom"),
+    }
     if kind == "fifo":
         os.mkfifo(path)
     elif kind == "link-in":
@@ -149,9 +207,10 @@ def _make(path: Path, kind: str, outside: Path, text: str) -> None:
 
 
 def files_case(rng: random.Random) -> str:
-    """The main plan or its include made a special file, and the output aimed at random at a fresh file, a file
-    the run reads, or a link to one; nothing but a fresh output may change."""
+    """The main plan or its include made a special file, and the output aimed at random at a fresh
+    file, a file the run reads, or a link to one; nothing but a fresh output may change."""
     from groundcheck.cli import main
+
     with tempfile.TemporaryDirectory() as tmp:
         top, outside = Path(tmp) / "plan", Path(tmp) / "outside"
         top.mkdir()
@@ -161,22 +220,34 @@ def files_case(rng: random.Random) -> str:
         kind = rng.choice(SPECIALS)
         _make(top / "main.gplan", kind if which == "main" else "regular", outside, SMALL)
         _make(top / "part.gplan", kind if which == "part" else "regular", outside, PART)
-        out = rng.choice([top / "out.json", top / "main.gplan", top / "part.gplan", top / "link.json"])
+        out = rng.choice(
+            [top / "out.json", top / "main.gplan", top / "part.gplan", top / "link.json"]
+        )
         if out.name == "link.json":
             out.symlink_to("part.gplan")
         before = _snapshot(top, outside)
         err = io.StringIO()
         folder = rng.random() < 0.1
         with bounded(), contextlib.redirect_stderr(err), contextlib.redirect_stdout(io.StringIO()):
-            code = main(["check", str(top if folder else top / "main.gplan"), "--format", "json", "-o", str(out)])
+            code = main(
+                [
+                    "check",
+                    str(top if folder else top / "main.gplan"),
+                    "--format",
+                    "json",
+                    "-o",
+                    str(out),
+                ]
+            )
         after = _snapshot(top, outside)
-        # what may change: a fresh output; the include too when the main plan could not be read (never read)
+        # what may change: a fresh output; the include too when the main plan could not be read
+        # (never read)
         free = {top / "out.json"}
         if which == "main" and kind not in ("regular", "link-in", "unreadable") and not folder:
             free.add(top / "part.gplan")
         if kind == "link-out" and (which == "part" or folder):
-            # an include leading out of the folder is refused and a folder check passes over links: the file
-            # outside was not read, so an output named through the link may write it
+            # an include leading out of the folder is refused and a folder check passes over links:
+            # the file outside was not read, so an output named through the link may write it
             free.add(outside / "secret.gplan")
         # a file made new through a dangling link named as the output touches no existing file
         changed = {p for p in before if before.get(p) != after.get(p)} - free
@@ -185,25 +256,47 @@ def files_case(rng: random.Random) -> str:
         for p in (top / "main.gplan", top / "part.gplan"):
             if p.is_file() and not p.is_symlink():
                 p.chmod(0o600)
-        assert code in (0, 1, 2) and "Traceback" not in text and "internal error" not in text, text[-300:]
+        assert code in (0, 1, 2) and "Traceback" not in text and "internal error" not in text, (
+            text[-300:]
+        )
         assert not changed, f"{kind} {which} -> {out.name}: changed {sorted(map(str, changed))}"
         # the user named that file, or a link to that folder: it is read
         named = which == "main" and kind in ("link-out", "link-dir") and not folder
-        assert ("SECRET" not in text or named) and not RAW.search(text), f"{kind} {which}: {text[:300]}"
+        assert ("SECRET" not in text or named) and not RAW.search(text), (
+            f"{kind} {which}: {text[:300]}"
+        )
         return f"status {code}"
 
 
 def signal_case(rng: random.Random, plan: Path | None = None) -> str:
-    """A ``check --jobs 2`` run sent SIGTERM or Ctrl-C (SIGINT to its process group) at a random moment: it ends
-    within 5 s of the signal, with no output file, no temporary file and no worker left."""
+    """A ``check --jobs 2`` run sent SIGTERM or Ctrl-C (SIGINT to its process group) at a random
+    moment: it ends within 5 s of the signal, with no output file, no temporary file and no worker
+    left."""
     plan = plan or ROOT / "tests" / "hostile" / "round2" / "09-sigterm-jobs" / "jobsplan.gplan"
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
     with tempfile.TemporaryDirectory() as tmp:
         out = Path(tmp) / "out.json"
-        proc = subprocess.Popen([sys.executable, "-m", "groundcheck", "check", str(plan), "--jobs", "2", "--format",
-                                 "json", "-o", str(out)], env=env, stdout=subprocess.DEVNULL,
-                                stderr=subprocess.PIPE, start_new_session=True, preexec_fn=_ctrl_c_default)
-        time.sleep(rng.uniform(0.0, 4.0))      # while it starts, reads, solves or writes
+        proc = subprocess.Popen(
+            [
+                sys.executable,
+                "-m",
+                "groundcheck",
+                "check",
+                str(plan),
+                "--jobs",
+                "2",
+                "--format",
+                "json",
+                "-o",
+                str(out),
+            ],
+            env=env,
+            stdout=subprocess.DEVNULL,
+            stderr=subprocess.PIPE,
+            start_new_session=True,
+            preexec_fn=_ctrl_c_default,
+        )
+        time.sleep(rng.uniform(0.0, 4.0))  # while it starts, reads, solves or writes
         kids = _children(proc.pid)
         sig = rng.choice([signal.SIGTERM, signal.SIGINT])
         sent = time.monotonic()
@@ -226,9 +319,14 @@ def signal_case(rng: random.Random, plan: Path | None = None) -> str:
         for k in left:
             os.kill(k, signal.SIGKILL)
         assert not left, f"{sig.name}: workers {left} left"
-        if "Traceback" in err and err.rstrip().endswith("KeyboardInterrupt") and "groundcheck/cli" not in err:
-            return f"{sig.name} while Python imported the package (its own traceback)"   # before any of ours runs
-        assert "Traceback" not in err, err[-300:]
+        if (
+            "Traceback" in err
+            and err.rstrip().endswith("KeyboardInterrupt")
+            and "groundcheck/cli" not in err
+        ):
+            # before any of ours runs
+            return f"{sig.name} while Python imported the package (its own traceback)"
+        assert "Traceback" not in err, err[-3000:]
         finished = proc.returncode in (0, 1)
         assert finished or not out.exists(), f"{sig.name}: partial output"
         assert not list(Path(tmp).glob(".groundcheck-*"))
@@ -236,8 +334,8 @@ def signal_case(rng: random.Random, plan: Path | None = None) -> str:
 
 
 def _ctrl_c_default() -> None:
-    """A run started from a background job inherits SIGINT ignored (as the shell sets it): a terminal's Ctrl-C
-    reaches a foreground run, which does not ignore it."""
+    """A run started from a background job inherits SIGINT ignored (as the shell sets it): a
+    terminal's Ctrl-C reaches a foreground run, which does not ignore it."""
     signal.signal(signal.SIGINT, signal.SIG_DFL)
 
 
@@ -255,7 +353,9 @@ def _alive(pid: int) -> bool:
         return False
 
 
-FAMILIES = {"structural": lambda rng: check_text(structural(rng)),
-            "unicode": lambda rng: check_text(unicode_mutant(rng)),
-            "files": files_case,
-            "signals": signal_case}
+FAMILIES = {
+    "structural": lambda rng: check_text(structural(rng)),
+    "unicode": lambda rng: check_text(unicode_mutant(rng)),
+    "files": files_case,
+    "signals": signal_case,
+}

@@ -136,8 +136,8 @@ def mirrored_text(m: Mirrored, name=identity, extra: str = "") -> str:
     base, left, right = name("base"), name("left"), name("right")
     lines = [
         'plan "mirrored"',
-        f"mains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, "
-        f"inlet at {inlet[0]},{inlet[1]}",
+        "mains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, inlet at "
+        f"{inlet[0]},{inlet[1]}",
         f"metal {base}: aluminium 2 mm, {w} x {d} mm, touchable",
         f"point {name('pe')}: stud, at {pe[0]},{pe[1]} on {base}",
         f"wire {name('pe_lead')}: mains.pe to {name('pe')}, 25 mm, 1 mm2, protective",
@@ -149,9 +149,8 @@ def mirrored_text(m: Mirrored, name=identity, extra: str = "") -> str:
         lines += [
             f"point {name('ct')}: centre-tap, at {ct[0]},{ct[1]} on {base}",
             f"wire {name('ct_lead')}: {name('ct')} to {name('supply')}, 30 mm, 0.5 mm2, return",
-            f"rectifier {name('hv')}: {name('supply')} to {name('ct')}, full-wave, "
-            "secondary 250 V, "
-            "winding 90 ohm, diode 1 V, reservoir 47 uF, load 40 mA",
+            f"rectifier {name('hv')}: {name('supply')} to {name('ct')}, full-wave, secondary 250 "
+            "V, winding 90 ohm, diode 1 V, reservoir 47 uF, load 40 mA",
         ]
     else:
         lines.append(
@@ -256,15 +255,25 @@ def protective_plans(draw) -> str:
         f"wire star_bond: star to pe_stud, 70 mm, 0.75 mm2{draw(role)}",
     ]
     # the panel's protective paths: one to three, from the stud, the inlet or over a junction
-    paths = draw(st.lists(st.sampled_from(["stud", "inlet", "junction", "strap"]), min_size=1,
-                          max_size=3, unique=True))
+    paths = draw(
+        st.lists(
+            st.sampled_from(["stud", "inlet", "junction", "strap"]),
+            min_size=1,
+            max_size=3,
+            unique=True,
+        )
+    )
     for p in paths:
         if p == "stud":
-            lines.append(f"wire bond_a: pe_stud to panel_stud, {draw(st.integers(60, 120))} mm, "
-                         f"{draw(area)}{draw(role)}")
+            lines.append(
+                f"wire bond_a: pe_stud to panel_stud, {draw(st.integers(60, 120))} mm, "
+                f"{draw(area)}{draw(role)}"
+            )
         elif p == "inlet":
-            lines.append(f"wire bond_b: mains.pe to panel_stud, {draw(st.integers(60, 120))} mm, "
-                         f"{draw(area)}{draw(role)}")
+            lines.append(
+                f"wire bond_b: mains.pe to panel_stud, {draw(st.integers(60, 120))} mm, "
+                f"{draw(area)}{draw(role)}"
+            )
         elif p == "junction":
             lines += [
                 "point tag: lug, at 40,100",
@@ -272,7 +281,9 @@ def protective_plans(draw) -> str:
                 f"wire bond_d: tag to panel_stud, 50 mm, {draw(area)}{draw(role)}",
             ]
         else:
-            lines.append(f"strap bond_e: deck to panel, 40 mm, width 10 mm, thickness 1 mm{draw(role)}")
+            lines.append(
+                f"strap bond_e: deck to panel, 40 mm, width 10 mm, thickness 1 mm{draw(role)}"
+            )
     if draw(st.booleans()):
         lines.append("bolt sleeve_nut: sleeve to deck")  # an uninsulated socket: a dead end
     return "\n".join(lines) + "\n"

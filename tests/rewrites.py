@@ -92,12 +92,18 @@ def _positions(lines: list[str], ind: str) -> dict:
     (inside a block), else the top level's, the inlet's `mains.pe` and the points of each placed
     block (moved and mirrored as docs/language.md says: mirrored about the block's origin, then
     moved)."""
-    own = {p[1]: (float(p[2]), float(p[3])) for line in lines if (p := _POINT.match(line))
-           and line.startswith(ind + "point")}
+    own = {
+        p[1]: (float(p[2]), float(p[3]))
+        for line in lines
+        if (p := _POINT.match(line)) and line.startswith(ind + "point")
+    }
     if ind:
         return own
-    inner = {p[1]: (float(p[2]), float(p[3])) for line in lines if (p := _POINT.match(line))
-             and line.startswith("  point")}
+    inner = {
+        p[1]: (float(p[2]), float(p[3]))
+        for line in lines
+        if (p := _POINT.match(line)) and line.startswith("  point")
+    }
     for line in lines:
         if m := _INLET.match(line):
             own["mains.pe"] = (float(m[1]), float(m[2]))
@@ -148,7 +154,7 @@ def fastenings_as(text: str, kinds: list[str]) -> str:
     out, n = [], 0
     for line in text.splitlines():
         if m := _FASTENING.match(line):
-            line = f"{m[1]}{kinds[n % len(kinds)]} {m[2]}{line[m.end():]}"
+            line = f"{m[1]}{kinds[n % len(kinds)]} {m[2]}{line[m.end() :]}"
             n += 1
         out.append(line)
     return "\n".join(out) + "\n"

@@ -1,4 +1,5 @@
-"""Running the ngspice circuit simulator on a netlist and reading node voltages back (tests only)."""
+"""Running the ngspice circuit simulator on a netlist and reading node voltages back (tests
+only)."""
 
 from __future__ import annotations
 
@@ -16,10 +17,17 @@ def run(netlist: str, control: str, timeout: float = 120) -> dict[str, complex]:
         out = Path(d) / "out.txt"
         body = netlist.replace(".end\n", "")
         body = "\n".join(line for line in body.splitlines() if not line.startswith((".op", ".ac")))
-        text = body + "\n.control\nset numdgt=12\n" + control.replace("OUT", str(out)) + "\n.endc\n.end\n"
+        text = (
+            body
+            + "\n.control\nset numdgt=12\n"
+            + control.replace("OUT", str(out))
+            + "\n.endc\n.end\n"
+        )
         cir = Path(d) / "net.cir"
         cir.write_text(text)
-        subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=timeout, check=False)
+        subprocess.run(
+            ["ngspice", "-b", str(cir)], capture_output=True, timeout=timeout, check=False
+        )
         values: dict[str, complex] = {}
         for line in out.read_text().splitlines():
             if "=" not in line:

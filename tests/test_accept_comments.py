@@ -1,5 +1,6 @@
-"""Accept comments that accept nothing, name a danger, or sit in a block placed several times say so,
-naming their FILE:LINE; 'accept left.NAME CODE: reason' accepts one placement's finding only."""
+"""Accept comments that accept nothing, name a danger, or sit in a block placed several times say
+so, naming their FILE:LINE; 'accept left.NAME CODE: reason' accepts one placement's finding
+only."""
 
 import pytest
 
@@ -27,8 +28,8 @@ def _run(comment: str, **options):
 
 
 def _short(r):
-    # wire g is stated 10 mm between ends 40 mm apart: GC112 (a stated length far from the distance) in each
-    # placement, both located on line 7
+    # wire g is stated 10 mm between ends 40 mm apart: GC112 (a stated length far from the
+    # distance) in each placement, both located on line 7
     return {f.elements[0]: f.accepted for f in r.findings if f.code == "GC112"}
 
 
@@ -36,7 +37,9 @@ def test_an_accept_in_a_block_says_which_placements_it_covers():
     r = _run("# accept GC112: measured on the bench")
     assert _short(r) == {"left.g": "measured on the bench", "right.g": "measured on the bench"}
     (said,) = [n for n in r.notices if "covers" in n]
-    assert said.startswith("the accept comment at p.gplan:7 (GC112) covers 2 placements: left, right")
+    assert said.startswith(
+        "the accept comment at p.gplan:7 (GC112) covers 2 placements: left, right"
+    )
 
 
 def test_an_accept_naming_an_element_selects_one_placement():
@@ -48,11 +51,14 @@ def test_an_accept_naming_an_element_selects_one_placement():
 def test_an_accept_that_matches_nothing_is_a_warning_naming_its_line():
     r = _run("# accept GC101: no loop here")
     (said,) = [n for n in r.notices if "matches no finding" in n]
-    assert said.startswith("warning: the accept comment at p.gplan:7 (GC101) matches no finding on its line")
+    assert said.startswith(
+        "warning: the accept comment at p.gplan:7 (GC101) matches no finding on its line"
+    )
     r = _run("# accept left.zz GC112: a name that is not there")
     assert _short(r) == {"left.g": None, "right.g": None}
     assert any("p.gplan:7" in n and "matches no finding of left.zz" in n for n in r.notices)
-    # a rule the run did not judge is not said to match nothing: the verdict lists it as not checked
+    # a rule the run did not judge is not said to match nothing: the verdict lists it as not
+    # checked
     r = _run("# accept GC101: no loop here", leave_out=("GC101",), leave_out_origin="--leave-out")
     assert not any("matches no finding" in n for n in r.notices)
 
@@ -70,8 +76,11 @@ bolt lid_screws: lid to case, contact 4 ohm, protective   # accept GC206: on the
     r = analyze(load_text(text, "d.gplan"), Options(hum=False))
     (danger,) = [f for f in r.findings if f.code == "GC206"]
     assert danger.accepted is None
-    assert any(n.startswith("the accept comment at d.gplan:4 names a danger (GC206)") for n in r.notices)
-    # the part's finding is located at the part: the same comment on the screws' line accepts nothing
+    assert any(
+        n.startswith("the accept comment at d.gplan:4 names a danger (GC206)") for n in r.notices
+    )
+    # the part's finding is located at the part: the same comment on the screws' line accepts
+    # nothing
     (wrong,) = [n for n in r.notices if "matches no finding" in n]
     assert wrong.startswith("warning: the accept comment at d.gplan:8 (GC206) matches no finding")
 
@@ -87,7 +96,10 @@ def test_an_unknown_rule_after_an_element_is_an_error_at_its_column():
 def test_an_accept_that_matches_nothing_reaches_a_review_screen():
     import json
     from groundcheck.renderers.sarif import render_sarif
+
     log = json.loads(render_sarif([_run("# accept GC101: no loop here")]))
     notes = log["runs"][0]["invocations"][0]["toolExecutionNotifications"]
-    assert any(n["level"] == "warning" and "p.gplan:7 (GC101) matches no finding" in n["message"]["text"]
-               for n in notes)
+    assert any(
+        n["level"] == "warning" and "p.gplan:7 (GC101) matches no finding" in n["message"]["text"]
+        for n in notes
+    )

@@ -1,4 +1,5 @@
-"""Topology rules: each fires on its trigger plan and stays quiet on its near miss; loop invariants."""
+"""Topology rules: each fires on its trigger plan and stays quiet on its near miss; loop
+invariants."""
 
 import math
 import networkx as nx
@@ -44,30 +45,70 @@ def test_base_plan_is_clean():
 CASES = [
     ("GC101", BASE + "wire extra: sleeve to star, 150 mm, 0.5 mm2, signal\n", BASE),
     ("GC103", BASE.replace("wire in_gnd: sleeve to star", "wire in_gnd: sleeve to k"), BASE),
-    ("GC104", BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\n",
-     BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\npoint p2: pad\nwire l2: lonely to p2, 10 mm, "
-            "0.5 mm2\n"),
+    (
+        "GC104",
+        BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\n",
+        BASE
+        + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\npoint p2: pad\nwire l2: "
+        "lonely to p2, 10 mm, 0.5 mm2\n",
+    ),
     ("GC105", BASE + "bolt jack_nut: sleeve to deck\n", BASE),
     ("GC106", BASE.replace("wire bond: star to gnd, 120 mm, 0.75 mm2, signal\n", ""), BASE),
-    ("GC107", BASE + "heater h: 6.3 V, 2 A, ac, floating\n", BASE + "heater h: 6.3 V, 2 A, ac, reference gnd\n"),
-    ("GC108", BASE + "shield sh: sleeve to star, 150 mm, 0.2 mm2, terminated both\n",
-     BASE + "shield sh: sleeve to star, 150 mm, 0.2 mm2, terminated star\n"),
-    ("GC109", BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\n",
-     BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\nwire bg: b to gnd, 10 mm, 0.5 mm2\n"),
+    (
+        "GC107",
+        BASE + "heater h: 6.3 V, 2 A, ac, floating\n",
+        BASE + "heater h: 6.3 V, 2 A, ac, reference gnd\n",
+    ),
+    (
+        "GC108",
+        BASE + "shield sh: sleeve to star, 150 mm, 0.2 mm2, terminated both\n",
+        BASE + "shield sh: sleeve to star, 150 mm, 0.2 mm2, terminated star\n",
+    ),
+    (
+        "GC109",
+        BASE + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\n",
+        BASE
+        + "point a: pad\npoint b: pad\nwire ab: a to b, 10 mm, 0.5 mm2\nwire bg: b to gnd, 10 mm, "
+        "0.5 mm2\n",
+    ),
     ("GC110", BASE + "wire self: k to k, 10 mm, 0.5 mm2\n", BASE),
     # the input socket grounded only by its fastening: its return runs through the deck
-    ("GC114", BASE.replace("wire in_gnd: sleeve to star, 150 mm, 0.5 mm2, signal\n",
-                           "bolt jack_nut: sleeve to deck\n"),
-     BASE + "bolt jack_nut: sleeve to deck\n"),
-    # protective earth (IEC 60364-5-54 and the product-safety bonding clauses named in the rule catalogue)
-    ("GC201", BASE.replace("wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective\n", ""), BASE),
+    (
+        "GC114",
+        BASE.replace(
+            "wire in_gnd: sleeve to star, 150 mm, 0.5 mm2, signal\n",
+            "bolt jack_nut: sleeve to deck\n",
+        ),
+        BASE + "bolt jack_nut: sleeve to deck\n",
+    ),
+    # protective earth (IEC 60364-5-54 and the product-safety bonding clauses named in the rule
+    # catalogue)
+    (
+        "GC201",
+        BASE.replace("wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective\n", ""),
+        BASE,
+    ),
     ("GC202", BASE.replace("wire bond: star to gnd", "wire bond: star to pe_stud"), BASE),
-    ("GC203", BASE.replace("wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective",
-                           "lift pe_lift: mains.pe to pe_stud, 10 ohm, 47 nF"), BASE),
-    ("GC204", BASE.replace("50 mm, 1.0 mm2, protective", "50 mm, 0.5 mm2, protective"),
-     BASE.replace("50 mm, 1.0 mm2, protective", "50 mm, 0.75 mm2, protective")),
-    ("GC205", BASE + "metal cover: steel 1 mm, 300 x 200 mm, touchable\n",
-     BASE + "metal cover: steel 1 mm, 300 x 200 mm, touchable\nbolt cover_screws: cover to deck, protective\n"),
+    (
+        "GC203",
+        BASE.replace(
+            "wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective",
+            "lift pe_lift: mains.pe to pe_stud, 10 ohm, 47 nF",
+        ),
+        BASE,
+    ),
+    (
+        "GC204",
+        BASE.replace("50 mm, 1.0 mm2, protective", "50 mm, 0.5 mm2, protective"),
+        BASE.replace("50 mm, 1.0 mm2, protective", "50 mm, 0.75 mm2, protective"),
+    ),
+    (
+        "GC205",
+        BASE + "metal cover: steel 1 mm, 300 x 200 mm, touchable\n",
+        BASE
+        + "metal cover: steel 1 mm, 300 x 200 mm, touchable\nbolt cover_screws: cover to deck, "
+        "protective\n",
+    ),
 ]
 
 
@@ -78,54 +119,77 @@ def test_rule_fires_on_trigger_not_on_near_miss(code, trigger, near_miss):
 
 
 def test_shared_return_electrical_rule():
-    trig = (BASE + """
+    trig = (
+        BASE
+        + """
 point res_neg: cap, at 100,150 on deck
 point ct: centre-tap, at 60,150 on deck
 wire k_gnd2: k to res_neg, 90 mm, 0.5 mm2, signal
 wire sup: res_neg to star, 60 mm, 0.75 mm2, return
 wire ctw: ct to star, 100 mm, 0.5 mm2, return
-rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, load 30 mA
-""").replace("wire k_gnd: k to star, 60 mm, 0.5 mm2, signal\n", "")
-    near = BASE + """
+rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, \
+load 30 mA
+"""
+    ).replace("wire k_gnd: k to star, 60 mm, 0.5 mm2, signal\n", "")
+    near = (
+        BASE
+        + """
 point res_neg: cap, at 100,150 on deck
 point ct: centre-tap, at 60,150 on deck
 wire sup: res_neg to star, 60 mm, 0.75 mm2, return
 wire ctw: ct to res_neg, 50 mm, 0.5 mm2, return
-rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, load 30 mA
+rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, \
+load 30 mA
 """
+    )
     p = plan(trig)
     shared = [f for f in analyze(p).findings if f.code == "GC102"]
     assert len(shared) == 1 and "sup" in shared[0].elements
-    # transfer resistance = the shared wire's resistance ρL/A (IEC 60028 copper at 20 °C), worked by hand
-    assert shared[0].figures["transfer_resistance_mohm"] == pytest.approx(1.7241e-8 * 0.06 / 0.75e-6 * 1e3, rel=1e-5)
+    # transfer resistance = the shared wire's resistance ρL/A (IEC 60028 copper at 20 °C), worked
+    # by hand
+    assert shared[0].figures["transfer_resistance_mohm"] == pytest.approx(
+        1.7241e-8 * 0.06 / 0.75e-6 * 1e3, rel=1e-5
+    )
     assert "GC102" not in codes(near, full=True)
 
 
 def test_pe_limits_and_fault_rules():
-    over = BASE.replace("bolt pe_bolt: pe_stud to deck", "bolt pe_bolt: pe_stud to deck, contact 150 mohm")
+    over = BASE.replace(
+        "bolt pe_bolt: pe_stud to deck", "bolt pe_bolt: pe_stud to deck, contact 150 mohm"
+    )
     assert "GC206" in codes(over, full=True) and "GC206" not in codes(BASE, full=True)
     hdr = 'plan "t"\nmains 230 V 50 Hz, fuse 16 A slow, i2t 100000 A2s, line-conductor 0.75 mm2\n'
-    assert "GC207" in codes(hdr + BASE.replace("1.0 mm2, protective", "0.75 mm2, protective"), header=False, full=True)
-    # a stated I²t never loosens the verdict: 10 A²s against a 16 A time-lag fuse whose table gives far more
-    # still fails (the larger figure is used) ...
+    assert "GC207" in codes(
+        hdr + BASE.replace("1.0 mm2, protective", "0.75 mm2, protective"), header=False, full=True
+    )
+    # a stated I²t never loosens the verdict: 10 A²s against a 16 A time-lag fuse whose table gives
+    # far more still fails (the larger figure is used) ...
     hdr_low = 'plan "t"\nmains 230 V 50 Hz, fuse 16 A slow, i2t 10 A2s, line-conductor 0.75 mm2\n'
     assert {"GC207", "GC214"} <= set(codes(hdr_low + BASE, header=False, full=True))
-    # ... while a 2 A quick-acting fuse at some 75 In lets through about (10·2 A)²·0.02 s + I²/(2f) ≈ 240 A²s
-    # (IEC 60127-2 sheet 1, from memory), which 1 mm² survives (√240/143 ≈ 0.11 mm²)
+    # ... while a 2 A quick-acting fuse at some 75 In lets through about (10·2 A)²·0.02 s + I²/(2f)
+    # ≈ 240 A²s (IEC 60127-2 sheet 1, from memory), which 1 mm² survives (√240/143 ≈ 0.11 mm²)
     hdr_ok = 'plan "t"\nmains 230 V 50 Hz, fuse 2 A fast, i2t 300 A2s, line-conductor 0.75 mm2\n'
     assert "GC207" not in codes(hdr_ok + BASE, header=False, full=True)
-    weak = 'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, loop-impedance 100 ohm\n'
+    weak = (
+        'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, loop-impedance '
+        "100 ohm\n"
+    )
     assert "GC208" in codes(weak + BASE, header=False, full=True)
     assert "GC208" not in codes(BASE, full=True)
 
 
 def test_loop_classes_and_areas():
-    p = plan(BASE + "bolt jack_nut: sleeve to deck\nshield sh: sleeve to star, 150 mm, 0.2 mm2, terminated both\n")
+    p = plan(
+        BASE
+        + "bolt jack_nut: sleeve to deck\nshield sh: sleeve to star, 150 mm, 0.2 mm2, terminated "
+        "both\n"
+    )
     _, ctx = audit(p)
     classes = sorted(lp.closed_by for lp in ctx.loops)
     assert classes == ["second-chassis-bond", "shield-both-ends"]
     chassis = next(lp for lp in ctx.loops if lp.closed_by == "second-chassis-bond")
-    # the loop sleeve -> star -> gnd -> (deck, straight line) -> sleeve, worked by the shoelace formula
+    # the loop sleeve -> star -> gnd -> (deck, straight line) -> sleeve, worked by the shoelace
+    # formula
     pts = [(0.29, 0.05), (0.15, 0.10), (0.06, 0.18)]
     x, y = np.array(pts).T
     area = abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2
@@ -137,30 +201,40 @@ def test_examples_mistakes_are_found_with_fixes():
     by_name = {p.name: analyze(load(p)) for p in EXAMPLES}
     dm = by_name["dual-mono-phono-stage.gplan"]
     found = {(f.code, e) for f in dm.findings for e in f.elements}
-    assert ("GC105", "arm_gnd") in found and ("GC101", "arm_gnd") in found                  # mistake 1
-    assert ("GC103", "right.out_sleeve") in found and ("GC103", "left.out_sleeve") not in found   # mistake 2
-    assert ("GC102", "filt_gnd") in found and ("GC102", "right.v2") in found                # mistake 3
-    assert not any(e.startswith("left.") for f in dm.findings if f.code == "GC102" for e in f.elements)
+    assert ("GC105", "arm_gnd") in found and ("GC101", "arm_gnd") in found  # mistake 1
+    assert ("GC103", "right.out_sleeve") in found and (
+        "GC103",
+        "left.out_sleeve",
+    ) not in found  # mistake 2
+    assert ("GC102", "filt_gnd") in found and ("GC102", "right.v2") in found  # mistake 3
+    assert not any(
+        e.startswith("left.") for f in dm.findings if f.code == "GC102" for e in f.elements
+    )
     assert all(f.fix for f in dm.findings)
-    # the one bond kept is the supply star's stud, nearer the protective earth's stud on the base than the post
+    # the one bond kept is the supply star's stud, nearer the protective earth's stud on the base
+    # than the post
     bond = next(f for f in dm.findings if f.code == "GC105")
     assert "keep the bond at sig_stud" in bond.fix and ("remove", "arm_gnd") in bond.actions
     mb = by_name["headphone-amp-100v.gplan"]
     got = {f.code for f in mb.findings}
-    assert {"GC206", "GC102", "GC304"} <= got                                                # mistakes 1, 2, 3
+    assert {"GC206", "GC102", "GC304"} <= got  # mistakes 1, 2, 3
     gh = by_name["guitar-head.gplan"]
     found = {(f.code, e) for f in gh.findings for e in f.elements}
-    assert ("GC102", "k_gnd") in found and ("GC102", "hv.filter") in found                  # mistake 1
-    assert ("GC101", "jack_nut") in found and ("GC105", "in_gnd") in found                  # mistake 2
-    assert ("GC211", "mains") in found                                                      # mistake 3
+    assert ("GC102", "k_gnd") in found and ("GC102", "hv.filter") in found  # mistake 1
+    assert ("GC101", "jack_nut") in found and ("GC105", "in_gnd") in found  # mistake 2
+    assert ("GC211", "mains") in found  # mistake 3
     pe = next(f for f in mb.findings if f.code == "GC206")
     assert pe.elements == ("front",) or "front" in pe.elements
     shared = {e for f in mb.findings if f.code == "GC102" for e in f.elements}
     assert "in_gnd" in shared
-    assert not {"GC201", "GC202", "GC203", "GC204", "GC205", "GC207", "GC211"} & got        # the clean parts stay quiet
+    assert (
+        not {"GC201", "GC202", "GC203", "GC204", "GC205", "GC207", "GC211"} & got
+    )  # the clean parts stay quiet
 
 
-# --- loop invariants -------------------------------------------------------------------------------
+# --- loop invariants
+# -------------------------------------------------------------------------------
+
 
 @st.composite
 def multigraphs(draw):
@@ -201,14 +275,14 @@ def test_loop_count_is_cycle_rank_and_basis_is_independent(G):
     rows = []
     for lp in loops:
         n = len(lp.nodes)
-        for i, k in enumerate(lp.edges):            # consecutive members are joined by the named conductor
+        for i, k in enumerate(lp.edges):  # consecutive members are joined by the named conductor
             u, v = lp.nodes[i], lp.nodes[(i + 1) % n]
             assert G.has_edge(u, v, key=k)
         row = [0] * len(keys)
         for k in lp.edges:
             row[col[k]] += 1
         rows.append(row)
-    assert _gf2_rank(rows) == len(loops)           # independent over GF(2): a basis of the cycle space
+    assert _gf2_rank(rows) == len(loops)  # independent over GF(2): a basis of the cycle space
 
 
 @settings(max_examples=100, deadline=None)
@@ -220,20 +294,26 @@ def test_edges_read_from_the_adjacency_match_networkx_edge_view(G):
 
 def test_incomplete_plans_are_not_called_clean():
     # touchable metal and no supply: a note that the protective earth is unchecked
-    p = plan('plan "x"\nmetal lid: steel 1 mm, 100 x 100 mm, touchable\npoint a: stud, at 10,10 on lid\n'
-             'bolt b: a to lid\n', header=False)
+    p = plan(
+        'plan "x"\nmetal lid: steel 1 mm, 100 x 100 mm, touchable\npoint a: stud, at 10,10 on '
+        "lid\n"
+        "bolt b: a to lid\n",
+        header=False,
+    )
     assert [f.code for f in analyze(p).findings] == ["GC111"]
     # a wire stated 10 mm between points 250 mm apart (a 150-200-250 triangle: worked by hand)
-    q = plan(BASE + "point far1: pad, at 20,10 on deck\npoint far2: pad, at 170,210\n"
-             "wire short: far1 to far2, 10 mm, 0.5 mm2\nwire w9: far2 to star, 120 mm, 0.5 mm2\n")
+    q = plan(
+        BASE + "point far1: pad, at 20,10 on deck\npoint far2: pad, at 170,210\n"
+        "wire short: far1 to far2, 10 mm, 0.5 mm2\nwire w9: far2 to star, 120 mm, 0.5 mm2\n"
+    )
     (f,) = [f for f in analyze(q).findings if f.code == "GC112"]
     assert f.figures["route_mm"] == pytest.approx(250.0, abs=0.1) and "short" in f.elements
 
 
 def test_the_bond_kept_is_the_one_nearer_the_protective_earth_on_the_plate():
-    # two studs equally many hops from the inlet's earth terminal (both bolted to the deck): the one kept is the
-    # one nearer the protective-earth stud on the deck, by hand: z_stud 30 mm away, a_stud 250 mm (by name alone,
-    # a_stud would have been kept)
+    # two studs equally many hops from the inlet's earth terminal (both bolted to the deck): the
+    # one kept is the one nearer the protective-earth stud on the deck, by hand: z_stud 30 mm away,
+    # a_stud 250 mm (by name alone, a_stud would have been kept)
     p = plan("""
     metal deck: aluminium 2 mm, 300 x 200 mm, touchable
     point pe: stud, at 10,10 on deck
@@ -253,9 +333,10 @@ def test_the_bond_kept_is_the_one_nearer_the_protective_earth_on_the_plate():
 
 
 def test_headphone_crosstalk_against_a_hand_calculation():
-    # the left channel's 60 mA load return crosses in_gnd (120 mm of 24 AWG) on its way to the star, and the right
-    # input's reference runs over in_gnd too: drop = I·R, at the right output ×12 dB, against the 2 V rated output.
-    # R from the handbook's 84.22 ohm/km for 24 AWG at 20 C (NBS Handbook 100 / ASTM B258, tests/test_units.py)
+    # the left channel's 60 mA load return crosses in_gnd (120 mm of 24 AWG) on its way to the
+    # star, and the right input's reference runs over in_gnd too: drop = I·R, at the right output
+    # ×12 dB, against the 2 V rated output. R from the handbook's 84.22 ohm/km for 24 AWG at 20 C
+    # (NBS Handbook 100 / ASTM B258, tests/test_units.py)
     r = 84.22e-3 * 0.120
     volts = 0.060 * r * 10 ** (12 / 20)
     mb = analyze(load(next(p for p in EXAMPLES if p.name == "headphone-amp-100v.gplan")))
@@ -263,4 +344,6 @@ def test_headphone_crosstalk_against_a_hand_calculation():
     # at 120 Hz the wire's reactance is negligible: the resistive figure within 0.5 %
     assert rows[("left", "right", 120.0)]["volts"] == pytest.approx(volts, rel=5e-3)
     # at 1 kHz its inductance (about 0.1 uH, 0.7 mohm of reactance) adds a few hundredths of a dB
-    assert rows[("left", "right", 1000.0)]["db"] == pytest.approx(20 * math.log10(volts / 2.0), abs=0.1)
+    assert rows[("left", "right", 1000.0)]["db"] == pytest.approx(
+        20 * math.log10(volts / 2.0), abs=0.1
+    )

@@ -69,8 +69,8 @@ def test_a_bond_far_above_plan_names_the_joint_and_a_protective_one_over_the_lim
     bench,
 ):
     code, out, _ = bench(
-        "mains.pe to pe_stud: 60 mohm\npe_stud to cover: 150 mohm at 25 A\n"
-        "sig_a to pe_stud: 5 mohm\nsig_a to sig_b: 3 mohm\n",
+        "mains.pe to pe_stud: 60 mohm\npe_stud to cover: 150 mohm at 25 A\nsig_a to pe_stud: 5 "
+        "mohm\nsig_a to sig_b: 3 mohm\n",
         "--format",
         "json",
     )
@@ -175,8 +175,10 @@ def test_without_a_calibration_the_levels_are_relative(tmp_path, capsys):
         ),
         (["--recording", "NOTWAV", "--channel", "left"], "not a readable WAV file"),
         (["--recording", "REC", "--channel", "left", "--no-hum"], "no planned spectrum"),
-        (["--recording", "REC", "--channel", "left", "--calibration", "NOTWAV", "1V"],
-         "not a readable WAV"),
+        (
+            ["--recording", "REC", "--channel", "left", "--calibration", "NOTWAV", "1V"],
+            "not a readable WAV",
+        ),
     ],
 )
 def test_unusable_command_lines_and_recordings_exit_2_with_one_line(
@@ -219,6 +221,7 @@ def test_importing_the_command_line_loads_no_numeric_library():
 
 def test_a_figure_at_the_plan_never_reads_minus_zero():
     from groundcheck.renderers.bench import signed
+
     assert f"{signed(-0.04):+.1f}" == "+0.0" and f"{signed(-0.06):+.1f}" == "-0.1"
 
 
@@ -227,8 +230,19 @@ def test_a_tone_on_the_command_line_calibrates_the_record(tmp_path, capsys):
     write(tmp_path / "tone.wav", tones({1000.0: 0.5 * 0.4}, 8000, 2.0), 8000, "int24")
     write(tmp_path / "hum.wav", tones({50.0: 0.01 * 0.4}, 8000, 2.0, noise=1e-6), 8000, "int24")
     plan = str(ROOT / "examples" / "guitar-head.gplan")
-    main(["bench", plan, "--recording", str(tmp_path / "hum.wav"), "--calibration",
-          str(tmp_path / "tone.wav"), "0.5V", "--format", "json"])
+    main(
+        [
+            "bench",
+            plan,
+            "--recording",
+            str(tmp_path / "hum.wav"),
+            "--calibration",
+            str(tmp_path / "tone.wav"),
+            "0.5V",
+            "--format",
+            "json",
+        ]
+    )
     doc = json.loads(capsys.readouterr().out)
     assert doc["unit"] == "dBV" and "0.5 V rms tone" in doc["recording"]["calibration"]
     assert doc["channels"][0]["harmonics"][0]["measured_db"] == pytest.approx(-40.0, abs=0.1)

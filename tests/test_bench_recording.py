@@ -189,7 +189,9 @@ def test_an_hour_is_read_in_bounded_memory(tmp_path):
 
 @pytest.mark.parametrize("m", [1, 2, 7, 60, 3600])
 def test_the_line_threshold_is_the_gamma_quantile(m):
-    # an implementation independent of ours: scipy's inverse of the regularised upper incomplete gamma
+    # an implementation independent of ours: scipy's inverse of the regularised upper incomplete
+    # gamma
     from scipy.special import gammainccinv
     from groundcheck.measure.lines import gamma_quantile
+
     assert gamma_quantile(m, 1e-6) == pytest.approx(float(gammainccinv(m, 1e-6)), rel=1e-9)

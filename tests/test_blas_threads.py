@@ -14,8 +14,9 @@ threadpoolctl = pytest.importorskip("threadpoolctl")
 
 
 def _blas_threads() -> set[int]:
-    return {lib["num_threads"] for lib in threadpoolctl.threadpool_info()
-            if lib["user_api"] == "blas"}
+    return {
+        lib["num_threads"] for lib in threadpoolctl.threadpool_info() if lib["user_api"] == "blas"
+    }
 
 
 @pytest.fixture

@@ -22,14 +22,16 @@ from groundcheck.renderers.text import text_report
 from groundcheck import load
 from helpers import EXAMPLES, ROOT, plan
 
-RHO20, ALPHA20 = 1.7241e-8, 0.00393          # IEC 60028 annealed copper
+RHO20, ALPHA20 = 1.7241e-8, 0.00393  # IEC 60028 annealed copper
 
 #: Incropera & DeWitt Table A.4, air at 1 atm (from memory):
 #: T (K), ν (m²/s), k (W/(m·K)), α (m²/s), Pr
-AIR_ROWS = ((300.0, 15.89e-6, 26.3e-3, 22.5e-6, 0.707),
-            (350.0, 20.92e-6, 30.0e-3, 29.9e-6, 0.700),
-            (400.0, 26.41e-6, 33.8e-3, 38.3e-6, 0.690),
-            (450.0, 32.39e-6, 37.3e-3, 47.2e-6, 0.686))
+AIR_ROWS = (
+    (300.0, 15.89e-6, 26.3e-3, 22.5e-6, 0.707),
+    (350.0, 20.92e-6, 30.0e-3, 29.9e-6, 0.700),
+    (400.0, 26.41e-6, 33.8e-3, 38.3e-6, 0.690),
+    (450.0, 32.39e-6, 37.3e-3, 47.2e-6, 0.686),
+)
 
 
 def shed_per_metre(theta_s, theta_a, D, eps):
@@ -40,10 +42,10 @@ def shed_per_metre(theta_s, theta_a, D, eps):
     lo, hi = next((a, b) for a, b in zip(AIR_ROWS, AIR_ROWS[1:]) if a[0] <= film <= b[0])
     f = (film - lo[0]) / (hi[0] - lo[0])
     nu, k, alpha, pr = (x + (y - x) * f for x, y in zip(lo[1:], hi[1:]))
-    ra = 9.81 * (1 / film) * (ts - ta) * D ** 3 / (nu * alpha)
+    ra = 9.81 * (1 / film) * (ts - ta) * D**3 / (nu * alpha)
     nusselt = (0.60 + 0.387 * ra ** (1 / 6) / (1 + (0.559 / pr) ** (9 / 16)) ** (8 / 27)) ** 2
     convection = nusselt * k / D * math.pi * D * (ts - ta)
-    radiation = eps * 5.670e-8 * math.pi * D * (ts ** 4 - ta ** 4)
+    radiation = eps * 5.670e-8 * math.pi * D * (ts**4 - ta**4)
     return convection + radiation
 
 
@@ -53,7 +55,7 @@ def pvc_wire_balance(s_mm2, amps, theta_c, theta_a):
     d = math.sqrt(4 * s_mm2 / math.pi) * 1e-3
     D = d + 1.2e-3
     t1 = 5.0 * math.log(D / d) / (2 * math.pi)
-    q = amps ** 2 * RHO20 * (1 + ALPHA20 * (theta_c - 20)) / (s_mm2 * 1e-6)
+    q = amps**2 * RHO20 * (1 + ALPHA20 * (theta_c - 20)) / (s_mm2 * 1e-6)
     return q, shed_per_metre(theta_c - q * t1, theta_a, D, 0.9)
 
 
@@ -72,6 +74,7 @@ def bonding(text, header=True):
 
 # --- the adiabatic relation, IEC 60949 eq. 1: θf = (β + θi)·exp(I²t/(K²S²)) − β ---
 
+
 def test_adiabatic_temperature_by_hand():
     # 0.75 mm², 25 A for 60 s from 20 °C: I²t = 625 × 60 = 37 500 A²s; K²S² = 226² × 0.75² =
     # 51 076 × 0.5625 = 28 730.25; x = 1.305245; e^x = e^1.3 × e^0.005245 = 3.669297 × 1.005259
@@ -89,19 +92,22 @@ def test_adiabatic_temperature_by_hand():
     assert adiabatic_temperature("steel", 25.0, 60.0, 1e-6, 20.0) is None
 
 
-@pytest.mark.parametrize("k,theta_i,theta_f", [(143.0, 30.0, 160.0), (115.0, 70.0, 160.0),
-                                               (176.0, 30.0, 250.0), (159.0, 30.0, 200.0)])
+@pytest.mark.parametrize(
+    "k,theta_i,theta_f",
+    [(143.0, 30.0, 160.0), (115.0, 70.0, 160.0), (176.0, 30.0, 250.0), (159.0, 30.0, 200.0)],
+)
 def test_adiabatic_temperature_meets_the_k_tables(k, theta_i, theta_f):
     # IEC 60364-5-54 Tables A.54.2/A.54.3 (PVC 143 separate, 115 in a cable; XLPE 176) and A.54.5
     # (bare, normal conditions, 159 — from memory): I²t = k²S² takes θi to θf; k is rounded to
     # three figures, hence 1 K
     t = 1.0
-    amps = k * 1.0 / math.sqrt(t)           # S = 1 mm²
+    amps = k * 1.0 / math.sqrt(t)  # S = 1 mm²
     got = adiabatic_temperature("copper", amps, t, 1e-6, theta_i)
     assert got == pytest.approx(theta_f, abs=1.0)
 
 
 # --- the steady state in still air ---
+
 
 def test_steady_state_of_a_bare_wire_by_hand():
     # bare 1 mm² copper (d = 1.128379 mm, ε 0.05) at 120 °C in 20 °C air: film 343.15 K, between
@@ -138,6 +144,7 @@ def test_wire_sizes_for_the_25_a_test_by_hand():
 
 # --- the test currents and the verdict ---
 
+
 def test_test_currents_from_the_standards():
     r, rows = bonding(BOX.format(area="1.0 mm2"))
     tests = {t.name: t for t in r.bonding.tests}
@@ -162,13 +169,14 @@ def test_path_voltage_and_contact_power_by_hand():
     drop = {(p.part, p.test): p.voltage for p in r.bonding.parts}
     assert drop[("box", "short")] == pytest.approx(25 * 2.86205e-3, rel=1e-6)
     bolt = rows[("pe_bolt", "short")]
-    assert bolt.power == pytest.approx(25 ** 2 * 2e-3) and bolt.drop == pytest.approx(0.05)
-    assert bolt.passes is None                        # a joint is reported, not judged
+    assert bolt.power == pytest.approx(25**2 * 2e-3) and bolt.drop == pytest.approx(0.05)
+    assert bolt.passes is None  # a joint is reported, not judged
 
 
 def test_parallel_wires_share_the_current():
-    text = BOX.format(area="0.5 mm2") + ("wire pe_lead2: mains.pe to pe_stud, 50 mm, 0.5 mm2, "
-                                         "protective\n")
+    text = BOX.format(area="0.5 mm2") + (
+        "wire pe_lead2: mains.pe to pe_stud, 50 mm, 0.5 mm2, protective\n"
+    )
     _, rows = bonding(text)
     # two equal wires in parallel: 12.5 A each (Kirchhoff), and at 12.5 A a 0.5 mm² wire passes
     for name in ("pe_lead", "pe_lead2"):
@@ -215,8 +223,9 @@ def test_no_bonding_test_for_class_ii_or_without_mains():
 def test_figures_reach_json_and_text():
     r, _ = bonding(BOX.format(area="0.2 mm2"))
     doc = result_document(r)["bonding_test"]
-    row = next(c for c in doc["conductors"]
-               if c["conductor"] == "pe_lead" and c["test"] == "short")
+    row = next(
+        c for c in doc["conductors"] if c["conductor"] == "pe_lead" and c["test"] == "short"
+    )
     assert row["passes"] is False and row["limit_c"] == 160.0 and row["thicker_mm2"] == 0.75
     assert [t["current_a"] for t in doc["tests"]] == [25.0, 4.0]
     text = text_report(r)
@@ -244,8 +253,12 @@ def test_path_voltage_limit_above_16_a():
 
 
 @settings(max_examples=60, deadline=None)
-@given(st.floats(0.05, 10.0), st.floats(0.1, 60.0), st.floats(-20.0, 60.0),
-       st.sampled_from(["pvc", "xlpe", "bare"]))
+@given(
+    st.floats(0.05, 10.0),
+    st.floats(0.1, 60.0),
+    st.floats(-20.0, 60.0),
+    st.sampled_from(["pvc", "xlpe", "bare"]),
+)
 def test_a_thicker_wire_never_runs_hotter(s_mm2, amps, ambient, ins):
     # invariants of the heat balance: more copper at the same current makes less heat per metre and
     # has more surface, so neither figure rises; a larger current never cools; none falls below
@@ -253,8 +266,11 @@ def test_a_thicker_wire_never_runs_hotter(s_mm2, amps, ambient, ins):
     def temps(s, i):
         d = math.sqrt(4 * s * 1e-6 / math.pi)
         wall = 0.0 if ins == "bare" else 0.6e-3
-        return (adiabatic_temperature("copper", i, 60.0, s * 1e-6, ambient),
-                steady_temperature(i, s * 1e-6, d, wall, ins, RHO20, ALPHA20, ambient))
+        return (
+            adiabatic_temperature("copper", i, 60.0, s * 1e-6, ambient),
+            steady_temperature(i, s * 1e-6, d, wall, ins, RHO20, ALPHA20, ambient),
+        )
+
     ad, ss = temps(s_mm2, amps)
     ad2, ss2 = temps(s_mm2 * 1.5, amps)
     ad3, ss3 = temps(s_mm2, amps * 1.5)

@@ -20,15 +20,22 @@ HEADPHONE = str(next(e for e in EXAMPLES if e.name.startswith("headphone")))
 def test_check_text_report(cli):
     code, out, err = cli("check", HEADPHONE)
     assert code == 1 and err == ""
-    for text in ("GC206", "GC102", "GC304", "Protective earth", "Hum and buzz", "Never lift the protective earth"):
+    for text in (
+        "GC206",
+        "GC102",
+        "GC304",
+        "Protective earth",
+        "Hum and buzz",
+        "Never lift the protective earth",
+    ):
         assert text in out
 
 
 def test_fail_on_threshold(cli):
     guitar = str(next(e for e in EXAMPLES if e.name.startswith("guitar")))
-    assert cli("check", guitar, "--fail-on", "danger")[0] == 0        # a fault, no danger
+    assert cli("check", guitar, "--fail-on", "danger")[0] == 0  # a fault, no danger
     assert cli("check", guitar, "--fail-on", "fault")[0] == 1
-    assert cli("check", DUAL, "--fail-on", "fault")[0] == 0           # warnings and a note only
+    assert cli("check", DUAL, "--fail-on", "fault")[0] == 0  # warnings and a note only
     assert cli("check", DUAL, "--fail-on", "warning")[0] == 1
     # the front panel's protective path
     assert cli("check", HEADPHONE, "--fail-on", "danger")[0] == 1
@@ -36,25 +43,38 @@ def test_fail_on_threshold(cli):
 
 def test_clean_plan_exits_zero(cli, tmp_path):
     p = tmp_path / "clean.gplan"
-    p.write_text('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
-                 'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
-                 'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n')
+    p.write_text(
+        'plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
+        "metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n"
+        "wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n"
+    )
     assert cli("check", str(p))[0] == 0
 
 
 def test_json_document(cli):
     code, out, _ = cli("check", DUAL, "--format", "json")
     doc = json.loads(out)
-    assert set(doc) >= {"plan", "findings", "loops", "summary", "protective_earth", "hum", "network"}
+    assert set(doc) >= {
+        "plan",
+        "findings",
+        "loops",
+        "summary",
+        "protective_earth",
+        "hum",
+        "network",
+    }
     f = doc["findings"][0]
     assert set(f) >= {"code", "severity", "message", "location", "elements", "figures", "fix"}
     assert set(f["location"]) == {"file", "line", "column"}
     assert doc["summary"]["fault"] == sum(1 for x in doc["findings"] if x["severity"] == "fault")
-    # the loop base -> gnd_post -> left.in_sleeve -> left.star -> psu_star -> sig_stud -> base, by the shoelace
-    # formula on the plan's positions (mm): (350,205) (345,35) (260,90) (150,160) (175,195)
+    # the loop base -> gnd_post -> left.in_sleeve -> left.star -> psu_star -> sig_stud -> base, by
+    # the shoelace formula on the plan's positions (mm): (350,205) (345,35) (260,90) (150,160)
+    # (175,195)
     pts = [(350, 205), (345, 35), (260, 90), (150, 160), (175, 195)]
     area = abs(sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(pts, pts[1:] + pts[:1]))) / 2
-    assert doc["loops"][0]["closed_by"] == "second-chassis-bond" and doc["loops"][0]["area_mm2"] == pytest.approx(area)
+    assert doc["loops"][0]["closed_by"] == "second-chassis-bond" and doc["loops"][0][
+        "area_mm2"
+    ] == pytest.approx(area)
     assert "NaN" not in out and "Infinity" not in out
     # the same plan gives the same bytes
     assert cli("check", DUAL, "--format", "json")[1] == out
@@ -80,6 +100,7 @@ def test_explain(cli):
 def test_the_caution_is_in_every_output(cli, tmp_path):
     from groundcheck.core.caution import CAUTION, MAINS_WORK
     from groundcheck.renderers.formats import CHECK_FORMATS
+
     outputs = {fmt: cli("check", HEADPHONE, "--format", fmt)[1] for fmt in CHECK_FORMATS}
     outputs["explain"] = cli("explain", "GC201")[1]
     outputs["explain list"] = cli("explain")[1]
@@ -102,8 +123,14 @@ def test_export_spice(cli, tmp_path):
     code, out, _ = cli("export", DUAL, "--spice", "-o", str(out_file))
     assert code == 0
     text = out_file.read_text()
-    assert text.startswith("* groundcheck ground network") and text.rstrip().endswith(".end") and ".op" in text
-    assert "Never lift the protective earth" in " ".join(x.lstrip("* ") for x in text.splitlines()[:5])
+    assert (
+        text.startswith("* groundcheck ground network")
+        and text.rstrip().endswith(".end")
+        and ".op" in text
+    )
+    assert "Never lift the protective earth" in " ".join(
+        x.lstrip("* ") for x in text.splitlines()[:5]
+    )
     code, out, _ = cli("export", DUAL, "--format", "spice", "--frequency", "1kHz")
     assert ".ac lin 1 1000 1000" in out
     # elements named after the plan's conductors; a name taken twice gets a suffix, never a clash
@@ -148,6 +175,7 @@ def test_every_command_has_help_with_example_and_is_in_readme():
 
 def test_library_entry_points():
     import groundcheck
+
     r = groundcheck.analyze(groundcheck.load(HEADPHONE))
     assert json.loads(groundcheck.render(r, "json"))["summary"]["fault"] >= 1
     assert groundcheck.render(r, "sarif").lstrip().startswith("{")
@@ -171,11 +199,15 @@ def test_jobs_must_be_a_whole_number_from_one(cli, value):
 
 
 def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
-    # a 150 mΩ fastening: over the 0.1 Ω bonding limit (IEC 61010-1 6.5.2.4), passed only under --pe-limit 10
+    # a 150 mΩ fastening: over the 0.1 Ω bonding limit (IEC 61010-1 6.5.2.4), passed only under
+    # --pe-limit 10
     p = tmp_path / "loose.gplan"
-    p.write_text('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
-                 'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
-                 'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck, contact 150 mohm\n')
+    p.write_text(
+        'plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
+        "metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n"
+        "wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck, contact 150 "
+        "mohm\n"
+    )
     assert cli("check", str(p))[0] == 1
     code, out, _ = cli("check", str(p), "--pe-limit", "10 ohm")
     assert code == 0 and "Notice: protective-path limit relaxed" in out and "GC206" in out
@@ -191,31 +223,45 @@ def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
 
 def test_compare_fails_a_review_when_the_after_plan_introduces_findings(cli, tmp_path):
     worse = tmp_path / "worse.gplan"
-    worse.write_text(open(HEADPHONE).read()
-                     + "shield in_shield: in_l to in_gnd_pad, 30 mm, 0.2 mm2, terminated both\n")
+    worse.write_text(
+        open(HEADPHONE).read()
+        + "shield in_shield: in_l to in_gnd_pad, 30 mm, 0.2 mm2, terminated both\n"
+    )
     assert cli("compare", HEADPHONE, str(worse))[0] == 0
     assert cli("compare", HEADPHONE, str(worse), "--fail-on", "introduced")[0] == 1
     assert cli("compare", HEADPHONE, HEADPHONE, "--fail-on", "introduced")[0] == 0
 
 
 def test_option_values_are_checked(cli):
-    for args in (("--max-frequency", "-100"), ("--pe-limit", "0"), ("--hum-level", "nan"), ("--max-frequency",
-                                                                                            "1e309")):
+    for args in (
+        ("--max-frequency", "-100"),
+        ("--pe-limit", "0"),
+        ("--hum-level", "nan"),
+        ("--max-frequency", "1e309"),
+    ):
         code, _, err = cli("check", HEADPHONE, *args)
         assert code == 2 and "error: argument" in err
 
 
-PE_DANGER = ('plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
-             'metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n'
-             'wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n'
-             'metal lid: steel 1 mm, 100 x 100 mm, touchable   # accept GC205: a test of acceptance\n')
+PE_DANGER = (
+    'plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
+    "metal deck: aluminium 2 mm, 100 x 100 mm, touchable\npoint pe: stud, at 10,10 on deck\n"
+    "wire pe_lead: mains.pe to pe, 50 mm, 1 mm2, protective\nbolt b: pe to deck\n"
+    "metal lid: steel 1 mm, 100 x 100 mm, touchable   # accept GC205: a test of acceptance\n"
+)
 
 
 def test_inline_acceptance_in_every_format_and_never_for_a_danger_by_default(cli, tmp_path):
     p = tmp_path / "a.gplan"
-    p.write_text(open(DUAL).read().replace("wire arm_gnd: gnd_post to left.in_sleeve, 175 mm, 0.5 mm2, signal",
-                                           "wire arm_gnd: gnd_post to left.in_sleeve, 175 mm, 0.5 mm2, signal  "
-                                           "# accept GC101: the arm's lead, to be lifted at the turntable"))
+    p.write_text(
+        open(DUAL)
+        .read()
+        .replace(
+            "wire arm_gnd: gnd_post to left.in_sleeve, 175 mm, 0.5 mm2, signal",
+            "wire arm_gnd: gnd_post to left.in_sleeve, 175 mm, 0.5 mm2, signal  # accept GC101: "
+            "the arm's lead, to be lifted at the turntable",
+        )
+    )
     doc = json.loads(cli("check", str(p), "--format", "json")[1])
     acc = [f for f in doc["findings"] if f["accepted"]]
     assert [f["code"] for f in acc] == ["GC101"] and doc["summary"]["accepted"] == 1
@@ -225,18 +271,22 @@ def test_inline_acceptance_in_every_format_and_never_for_a_danger_by_default(cli
     d = tmp_path / "d.gplan"
     d.write_text(PE_DANGER)
     code, out, _ = cli("check", str(d), "--format", "json")
-    assert code == 1 and json.loads(out)["summary"]["danger"] == 1          # a danger is never accepted by default
+    assert (
+        code == 1 and json.loads(out)["summary"]["danger"] == 1
+    )  # a danger is never accepted by default
     code, out, _ = cli("check", str(d), "--format", "json", "--allow-accept-danger")
     summary = json.loads(out)["summary"]
     assert code == 1 and summary["accepted"] == 1 and summary["worst"] == "danger"  # still counted
-    code, out, _ = cli("check", str(d), "--format", "json", "--allow-accept-danger",
-                       "--fail-on", "never")
+    code, out, _ = cli(
+        "check", str(d), "--format", "json", "--allow-accept-danger", "--fail-on", "never"
+    )
     assert code == 0 and json.loads(out)["summary"]["worst"] == "danger"
 
 
 def test_draw_writes_to_standard_output(capfd):
     from groundcheck.cli import main
     from helpers import EXAMPLES
+
     assert main(["draw", str(EXAMPLES[0]), "-o", "-", "--as", "dot"]) == 0
     out, err = capfd.readouterr()
     assert out.startswith("graph physical") and "standard output" in err
@@ -252,28 +302,34 @@ def test_shell_completion_script_completes(cli, tmp_path):
     assert code == 0
     path = tmp_path / "c.sh"
     path.write_text(script)
-    probe = ('source "$1"; for case in "1|groundcheck ch" "2|groundcheck check --fa" "3|groundcheck check --format s" '
-             '"3|groundcheck draw --view t"; do n="${case%%|*}"; read -ra COMP_WORDS <<< "${case#*|}"; '
-             'COMP_CWORD=$n; [ ${#COMP_WORDS[@]} -le $n ] && COMP_WORDS+=(""); _groundcheck; '
-             'echo "${COMPREPLY[*]}"; done')
-    out = subprocess.run(["bash", "-c", probe, "probe", str(path)], capture_output=True, text=True).stdout.split("\n")
+    probe = (
+        'source "$1"; for case in "1|groundcheck ch" "2|groundcheck check --fa" "3|groundcheck '
+        'check --format s" "3|groundcheck draw --view t"; do n="${case%%|*}"; read -ra COMP_WORDS '
+        '<<< "${case#*|}"; COMP_CWORD=$n; [ ${#COMP_WORDS[@]} -le $n ] && COMP_WORDS+=(""); '
+        '_groundcheck; echo "${COMPREPLY[*]}"; done'
+    )
+    out = subprocess.run(
+        ["bash", "-c", probe, "probe", str(path)], capture_output=True, text=True
+    ).stdout.split("\n")
     assert out[:4] == ["check", "--fail-on", "sarif", "topology"]
 
 
 def test_readme_tutorial_quotes_its_example_line_for_line():
     readme = (ROOT / "README.md").read_text()
-    part = readme[readme.index("## Tutorial"):]
-    excerpt = part[part.index("```\n") + 4:]
-    excerpt = excerpt[:excerpt.index("```")]
+    part = readme[readme.index("## Tutorial") :]
+    excerpt = part[part.index("```\n") + 4 :]
+    excerpt = excerpt[: excerpt.index("```")]
     text = (ROOT / "examples" / "headphone-amp-100v.gplan").read_text()
     example = [x.split("#")[0].rstrip() for x in text.splitlines()]
     assert [x for x in excerpt.splitlines() if x and x != "..." and x not in example] == []
 
 
 def test_each_command_states_only_exit_statuses_it_can_give(cli, tmp_path):
-    # a help text that names --fail-on belongs to a command that has it; draw and export judge nothing, so
-    # their help promises 0 or 2 only, and a plan full of findings still exits 0 from both
+    # a help text that names --fail-on belongs to a command that has it; draw and export judge
+    # nothing, so their help promises 0 or 2 only, and a plan full of findings still exits 0 from
+    # both
     import argparse
+
     sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))
     for name, parser in sub.choices.items():
         has = any("--fail-on" in a.option_strings for a in parser._actions)
@@ -283,4 +339,4 @@ def test_each_command_states_only_exit_statuses_it_can_give(cli, tmp_path):
         assert statuses == ["0", "2"], name
     assert cli("export", HEADPHONE, "-o", str(tmp_path / "g.cir"))[0] == 0
     assert cli("draw", HEADPHONE, "-o", str(tmp_path / "g.dot"))[0] == 0
-    assert cli("check", HEADPHONE)[0] == 1                                # the same plan has faults
+    assert cli("check", HEADPHONE)[0] == 1  # the same plan has faults

@@ -1,5 +1,6 @@
-"""compare keys findings by their stable identity (code, elements in their roles, channel) and counts
-findings that share one, so nothing is merged and an introduced finding never hides behind a fixed one."""
+"""compare keys findings by their stable identity (code, elements in their roles, channel) and
+counts findings that share one, so nothing is merged and an introduced finding never hides behind a
+fixed one."""
 
 import json
 from dataclasses import replace
@@ -22,10 +23,12 @@ def test_compare_with_itself_keeps_every_finding():
     d = compare(r, _result())
     assert len(d["findings"]["kept"]) == len(r.findings) >= 9
     assert d["findings"]["fixed"] == [] and d["findings"]["introduced"] == []
-    # the two outputs' shares of one conductor (GC301, same code, same elements) are kept apart, and so
-    # are the two directions of crosstalk (GC304, same pair of channels)
+    # the two outputs' shares of one conductor (GC301, same code, same elements) are kept apart,
+    # and so are the two directions of crosstalk (GC304, same pair of channels)
     kept = d["findings"]["kept"]
-    assert sum(f["code"] == "GC301" for f in kept) == sum(f.code == "GC301" for f in r.findings) == 2
+    assert (
+        sum(f["code"] == "GC301" for f in kept) == sum(f.code == "GC301" for f in r.findings) == 2
+    )
     assert sum(f["code"] == "GC304" for f in kept) == 2
 
 
@@ -34,11 +37,13 @@ def test_two_findings_of_one_code_on_the_same_elements_are_kept_apart():
     shares = [f for f in r.findings if f.code == "GC301"]
     assert len(shares) == 2 and set(shares[0].elements) == set(shares[1].elements)
     left = next(f for f in shares if f.figures["channel"] == "left")
-    after = replace(r, findings=[f for f in r.findings if f is not left])     # the left share cured
+    after = replace(r, findings=[f for f in r.findings if f is not left])  # the left share cured
     d = compare(r, after)
     fixed = d["findings"]["fixed"]
     assert [f["code"] for f in fixed] == ["GC301"] and "left output" in fixed[0]["message"]
-    assert any(f["code"] == "GC301" and "right output" in f["message"] for f in d["findings"]["kept"])
+    assert any(
+        f["code"] == "GC301" and "right output" in f["message"] for f in d["findings"]["kept"]
+    )
 
 
 def test_an_introduced_finding_does_not_hide_behind_a_fixed_one(cli, tmp_path):
@@ -48,7 +53,7 @@ def test_an_introduced_finding_does_not_hide_behind_a_fixed_one(cli, tmp_path):
     d = compare(r, twice)
     assert [f["code"] for f in d["findings"]["introduced"]] == ["GC206"]
     assert sum(f["code"] == "GC206" for f in d["findings"]["kept"]) == 1
-    back = compare(twice, r)           # the other way round, one of the two is fixed, one kept
+    back = compare(twice, r)  # the other way round, one of the two is fixed, one kept
     assert [f["code"] for f in back["findings"]["fixed"]] == ["GC206"]
 
 
@@ -56,12 +61,21 @@ def test_fail_on_introduced_sees_a_second_finding_of_the_same_identity(cli, tmp_
     text = HEADPHONE.read_text()
     before, after = tmp_path / "before.gplan", tmp_path / "after.gplan"
     before.write_text(text)
-    # a second front panel screwed on by anodised threads of its own: a second GC206 of its own part
-    extra = ("metal lid: aluminium 1.5 mm, 220 x 140 mm, at 0,200, touchable\n"
-             "bolt lid_screws: lid to case, contact 4 ohm, protective\n")
+    # a second front panel screwed on by anodised threads of its own: a second GC206 of its own
+    # part
+    extra = (
+        "metal lid: aluminium 1.5 mm, 220 x 140 mm, at 0,200, touchable\nbolt lid_screws: lid to "
+        "case, contact 4 ohm, protective\n"
+    )
     after.write_text(text + extra)
-    code, out, _ = cli("compare", str(before), str(after), "--format", "json", "--fail-on", "introduced")
+    code, out, _ = cli(
+        "compare", str(before), str(after), "--format", "json", "--fail-on", "introduced"
+    )
     d = json.loads(out)
-    assert code == 1 and any(f["code"] == "GC206" and "lid" in f["message"] for f in d["findings"]["introduced"])
-    code, out, _ = cli("compare", str(before), str(before), "--format", "json", "--fail-on", "introduced")
+    assert code == 1 and any(
+        f["code"] == "GC206" and "lid" in f["message"] for f in d["findings"]["introduced"]
+    )
+    code, out, _ = cli(
+        "compare", str(before), str(before), "--format", "json", "--fail-on", "introduced"
+    )
     assert code == 0 and json.loads(out)["findings"]["introduced"] == []

@@ -1,4 +1,5 @@
-"""Every Python code block of docs/api.md runs, in order, in one namespace, from the repository's root."""
+"""Every Python code block of docs/api.md runs, in order, in one namespace, from the repository's
+root."""
 
 import os
 import re

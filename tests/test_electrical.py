@@ -19,14 +19,22 @@ import spicetools
 from helpers import EXAMPLES, needs_ngspice, plan
 
 # IEC 60228, maximum DC resistance of plain copper conductors at 20 °C, Ω/km (class 1/2, class 5)
-IEC60228 = [(0.5, 36.0, 39.0), (0.75, 24.5, 26.0), (1.0, 18.1, 19.5), (1.5, 12.1, 13.3), (2.5, 7.41, 7.98)]
+IEC60228 = [
+    (0.5, 36.0, 39.0),
+    (0.75, 24.5, 26.0),
+    (1.0, 18.1, 19.5),
+    (1.5, 12.1, 13.3),
+    (2.5, 7.41, 7.98),
+]
 
 
 @pytest.mark.parametrize("mm2,class2,class5", IEC60228)
 def test_wire_resistance_within_iec60228_maximum(mm2, class2, class5):
     p = plan(f"point a: pad\npoint b: pad\nwire w: a to b, 1000 m, {mm2} mm2\n")
     r = build_circuit(p).branches[0].r
-    assert r <= class2 <= class5          # nominal-area copper at IEC 60028 resistivity is below the standard's maximum
+    assert (
+        r <= class2 <= class5
+    )  # nominal-area copper at IEC 60028 resistivity is below the standard's maximum
     assert r == pytest.approx(1.7241e-8 * 1000 / (mm2 * 1e-6))
 
 
@@ -42,14 +50,18 @@ def test_wire_inductance_worked_value():
 
 
 def test_strip_inductance_against_geometric_mean_distance():
-    # Grover: a conductor's self-inductance is 2e-7·l·(ln(2l/g) − 1) with g its geometric mean distance,
-    # g ≈ 0.2235·(w + t) for a rectangular section; the strip formula must agree closely
+    # Grover: a conductor's self-inductance is 2e-7·l·(ln(2l/g) − 1) with g its geometric mean
+    # distance, g ≈ 0.2235·(w + t) for a rectangular section; the strip formula must agree closely
     for l, w, t in ((0.1, 2e-3, 35e-6), (0.3, 10e-3, 1e-3), (0.05, 0.5e-3, 35e-6)):
         g = 0.2235 * (w + t)
-        assert strip_inductance(l, w, t) == pytest.approx(2e-7 * l * (math.log(2 * l / g) - 1), rel=0.01)
+        assert strip_inductance(l, w, t) == pytest.approx(
+            2e-7 * l * (math.log(2 * l / g) - 1), rel=0.01
+        )
 
 
-_SKIN = tomllib.loads((Path(__file__).parent / "reference" / "hearing.toml").read_text())["skin_depth"]
+_SKIN = tomllib.loads((Path(__file__).parent / "reference" / "hearing.toml").read_text())[
+    "skin_depth"
+]
 
 
 @pytest.mark.parametrize("f,delta_mm", list(zip(_SKIN["frequencies_hz"], _SKIN["depth_mm"])))
@@ -60,7 +72,9 @@ def test_skin_depth_copper(f, delta_mm):
 
 def test_skin_ratio_limits():
     rho = 1.7241e-8
-    assert skin_ratio(0.1e-3, rho, 100.0) == pytest.approx(1.0, abs=1e-6)     # thin wire, low frequency
+    assert skin_ratio(0.1e-3, rho, 100.0) == pytest.approx(
+        1.0, abs=1e-6
+    )  # thin wire, low frequency
     d = skin_depth(rho, 1e6)
     r = 40 * d
     # r ≫ δ: R_ac/R_dc → r/(2δ) + 1/4 (Ramo, Whinnery, Van Duzer §5.6)
@@ -99,21 +113,34 @@ def _random_circuit(rng, n, extra):
     tree = nx.random_labeled_tree if hasattr(nx, "random_labeled_tree") else nx.random_tree
     T = tree(n, seed=int(rng.integers(1 << 30)))
     edges = list(T.edges()) + [tuple(rng.choice(n, 2, replace=False)) for _ in range(extra)]
-    branches = [Branch(int(u), int(v), f"b{i}", float(rng.uniform(1e-4, 1.0)), float(rng.uniform(0, 2e-6)),
-                       cap=(float(rng.uniform(1e-9, 1e-6)) if i % 7 == 3 else None))
-                for i, (u, v) in enumerate(edges)]
+    branches = [
+        Branch(
+            int(u),
+            int(v),
+            f"b{i}",
+            float(rng.uniform(1e-4, 1.0)),
+            float(rng.uniform(0, 2e-6)),
+            cap=(float(rng.uniform(1e-9, 1e-6)) if i % 7 == 3 else None),
+        )
+        for i, (u, v) in enumerate(edges)
+    ]
     nodes = [f"p{i}" for i in range(n)]
     return Circuit(nodes, branches, point_node={nm: i for i, nm in enumerate(nodes)})
 
 
 @settings(max_examples=40, deadline=None)
-@given(st.integers(2, 25), st.integers(0, 20), st.integers(0, 10 ** 6), st.sampled_from([0.0, 100.0, 5000.0]))
+@given(
+    st.integers(2, 25),
+    st.integers(0, 20),
+    st.integers(0, 10**6),
+    st.sampled_from([0.0, 100.0, 5000.0]),
+)
 def test_kcl_linearity_superposition_reciprocity(n, extra, seed, f):
     rng = np.random.default_rng(seed)
     c = _random_circuit(rng, n, extra)
     fac = c.at(f)
     J = rng.normal(size=(n, 3)) + 1j * rng.normal(size=(n, 3))
-    J -= J.mean(axis=0)                                     # a connected network takes balanced injections
+    J -= J.mean(axis=0)  # a connected network takes balanced injections
     sol = fac.solve(J)
     n1, n2, *_ = c._arrays
     # Kirchhoff's current law at every node
@@ -154,10 +181,12 @@ def test_near_zero_impedances_and_islands_do_not_crash():
     J[c.point_node["c"]] = -1
     sol = c.solve(50, J)
     assert np.all(np.isfinite(sol.V)) and np.all(np.isfinite(sol.I))
-    assert np.isnan(sol.between("a", "d")).all()          # different islands: undefined, not a crash
+    assert np.isnan(sol.between("a", "d")).all()  # different islands: undefined, not a crash
 
 
-# --- ngspice: an independent general-purpose circuit simulator --------------------------------------
+# --- ngspice: an independent general-purpose circuit simulator
+# --------------------------------------
+
 
 def _compare(circuit, netlist, analysis, ours):
     control = "op\nprint all > OUT" if analysis == "op" else f"{analysis}\nprint all > OUT"
@@ -179,8 +208,9 @@ def _sources_for(p, c):
 @pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
 @pytest.mark.parametrize("freq", [None, 100.0, 2500.0])
 def test_examples_match_ngspice(path, freq):
-    """groundcheck's nodal solve of every example against ngspice (.op, and .ac at 100 Hz and 2.5 kHz)
-    on the netlist `groundcheck export --spice` writes: node voltages agree to 1e-6 of the largest."""
+    """groundcheck's nodal solve of every example against ngspice (.op, and .ac at 100 Hz and 2.5
+    kHz) on the netlist `groundcheck export --spice` writes: node voltages agree to 1e-6 of the
+    largest."""
     p = load(path)
     c = build_circuit(p)
     sources = _sources_for(p, c)
@@ -197,7 +227,7 @@ def test_examples_match_ngspice(path, freq):
         if i == main_ref:
             continue
         v = sol.V[i, 0]
-        ours[f"n{i}"] = v * (math.sqrt(2) if freq else 1.0)      # SPICE AC sources are peak amplitudes
+        ours[f"n{i}"] = v * (math.sqrt(2) if freq else 1.0)  # SPICE AC sources are peak amplitudes
     _compare(c, net, f"ac lin 1 {freq} {freq}" if freq else "op", ours)
 
 
@@ -221,20 +251,27 @@ def test_random_networks_match_ngspice(seed):
 
 @needs_ngspice
 def test_exported_netlist_reproduces_the_rectifier_hum_in_ngspice(cli, tmp_path):
-    """`groundcheck export --spice --frequency 100` of the dual-mono example carries the rectifiers' simulated
-    100 Hz charging currents (magnitude and phase): ngspice's AC solve of that file gives groundcheck's node
-    voltages for the same currents to 1e-6 of the largest."""
+    """`groundcheck export --spice --frequency 100` of the dual-mono example carries the
+    rectifiers' simulated 100 Hz charging currents (magnitude and phase): ngspice's AC solve of
+    that file gives groundcheck's node voltages for the same currents to 1e-6 of the largest."""
     path = next(e for e in EXAMPLES if e.name.startswith("dual-mono"))
     out = tmp_path / "g.cir"
-    assert cli("export", str(path), "--format", "spice", "--frequency", "100 Hz", "-o", str(out))[0] == 0
+    assert (
+        cli("export", str(path), "--format", "spice", "--frequency", "100 Hz", "-o", str(out))[0]
+        == 0
+    )
     net = out.read_text()
     assert net.count("\nI") == 2 and ".print ac" in net
     from groundcheck.physics.coupling import plan_sources, source_injections
     from groundcheck.physics.rectifier import simulate
+
     p = load(path)
     c = build_circuit(p)
-    srcs = [s for s in plan_sources(p, {r.name: simulate(r, p.frequency) for r in p.rectifiers}, 100.0)
-            if abs(s.parts.get(100.0, 0)) > 0]
+    srcs = [
+        s
+        for s in plan_sources(p, {r.name: simulate(r, p.frequency) for r in p.rectifiers}, 100.0)
+        if abs(s.parts.get(100.0, 0)) > 0
+    ]
     sol = c.solve(100.0, source_injections(c, srcs, 100.0).sum(axis=1, keepdims=True))
     main_ref = int(c.references[c.components[1][c.point_node["mains.pe"]]])
     ours = {f"n{i}": sol.V[i, 0] * math.sqrt(2) for i in range(len(c.nodes)) if i != main_ref}

@@ -132,8 +132,8 @@ def test_headphone_first_fix_insulates_the_input_socket_in_the_block():
 
 
 def test_headphone_lead_common_stays_on_its_jack():
-    # common practice: the headphone lead's common lands on the jack it plugs into; moving it to the
-    # star inside the chassis is no change a builder can make, so it is not even considered
+    # common practice: the headphone lead's common lands on the jack it plugs into; moving it to
+    # the star inside the chassis is no change a builder can make, so it is not even considered
     _, _, evs, *_ = _advised(HP)
     assert not [e.candidate.title for e in evs if e.candidate.element == "hp_common"]
 

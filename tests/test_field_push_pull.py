@@ -1,7 +1,7 @@
-"""The field plan push-pull-el84 (tests/field/push-pull-el84/, written by a builder from the README and
-docs/language.md alone, kept as written): a stereo push-pull amplifier whose protective earth lands on
-the power transformer's mounting stud.  The verdict's must-find and never-offer lines, as the review
-beneath it reads them."""
+"""The field plan push-pull-el84 (tests/field/push-pull-el84/, written by a builder from the README
+and docs/language.md alone, kept as written): a stereo push-pull amplifier whose protective earth
+lands on the power transformer's mounting stud.  The verdict's must-find and never-offer lines, as
+the review beneath it reads them."""
 
 from pathlib import Path
 

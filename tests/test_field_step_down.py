@@ -33,13 +33,13 @@ def test_the_plans_as_they_are_run_the_compressor_at_the_supply_frequency(name):
     r = analyze(load(FIELD / name))
     assert r.plan.frequency == 50.0
     (hv,) = [x for x in r.rectifiers if x.name == "comp.hv"]
-    assert hv.frequency == 50.0           # not 60 Hz: the step-down passes the supply's frequency
+    assert hv.frequency == 50.0  # not 60 Hz: the step-down passes the supply's frequency
     # every hum line is a multiple of the 50 Hz supply's frequency, none of 60 Hz alone
     lines = {x["frequency_hz"] for ch in r.hum.channels.values() for x in ch.spectrum}
     assert lines and all(f % 50 == 0 for f in lines)
     # must find: the unbalanced synth link between outlets of one ring
     assert any("synth_in" in f.elements for f in r.findings)
-    assert not any(f.code == "GC217" for f in r.findings)      # 230 V devices on a 230 V supply
+    assert not any(f.code == "GC217" for f in r.findings)  # 230 V devices on a 230 V supply
 
 
 def test_the_compressor_plan_for_60_hz_is_refused_behind_a_50_hz_step_down(tmp_path):
@@ -50,9 +50,12 @@ def test_the_compressor_plan_for_60_hz_is_refused_behind_a_50_hz_step_down(tmp_p
     assert "a transformer changes the voltage, not the frequency" in str(e.value)
 
 
-@pytest.mark.xfail(strict=True, reason="the plan writes the step-down as a terminal (a strip): "
-                   "nothing in it says 120 V, so the advisor cannot know; written with a "
-                   "'transformer' statement it is never offered (the next test)")
+@pytest.mark.xfail(
+    strict=True,
+    reason="the plan writes the step-down as a terminal (a strip): "
+    "nothing in it says 120 V, so the advisor cannot know; written with a 'transformer' statement "
+    "it is never offered (the next test)",
+)
 def test_never_offer_a_230_v_device_into_the_terminal_written_for_the_step_down():
     titles = _suggestions(FIELD / "home-studio-stepdown-as-strip.gplan")
     assert not [t for t in titles if "in at stepdown" in t]
@@ -62,11 +65,16 @@ def _with_transformer(folder: Path, comp_plan: str) -> Path:
     """The as-strip plan with its step-down written as a transformer (230 V to 120 V, earthed,
     500 VA, its 1.8 m cord) and the compressor on its own plan ``comp_plan`` behind it."""
     text = (folder / "home-studio-stepdown-as-strip.gplan").read_text()
-    old = ("point stepdown: terminal\n"
-           "wire stepdown_cord: stepdown to far_wall, 1.8 m, 0.75 mm2, protective\n")
+    old = (
+        "point stepdown: terminal\nwire stepdown_cord: stepdown to far_wall, 1.8 m, 0.75 mm2, "
+        "protective\n"
+    )
     assert old in text
-    text = text.replace(old, "transformer stepdown: plugged far_wall, primary 230 V, "
-                             "secondary 120 V, rating 500 VA, earthed, cord 1.8 m 0.75 mm2\n")
+    text = text.replace(
+        old,
+        "transformer stepdown: plugged far_wall, primary 230 V, secondary 120 V, rating 500 VA, "
+        "earthed, cord 1.8 m 0.75 mm2\n",
+    )
     text = text.replace('"us-valve-comp-stepdown.gplan"', f'"{comp_plan}"')
     path = folder / "home-studio-transformer.gplan"
     path.write_text(text)
@@ -80,8 +88,9 @@ def _room(tmp_path) -> Path:
     gear = tmp_path / "room" / "gear"
     text = (gear / "us-valve-comp.gplan").read_text()
     assert "mains 120 V 60 Hz" in text
-    (gear / "us-valve-comp-5060.gplan").write_text(text.replace("mains 120 V 60 Hz",
-                                                                "mains 120 V 50 Hz"))
+    (gear / "us-valve-comp-5060.gplan").write_text(
+        text.replace("mains 120 V 60 Hz", "mains 120 V 50 Hz")
+    )
     return _with_transformer(tmp_path / "room", "us-valve-comp-5060.gplan")
 
 
@@ -91,7 +100,7 @@ def test_with_a_transformer_no_230_v_device_is_offered_its_120_v_outlet(tmp_path
     assert not any(f.code in ("GC217", "GC215") for f in r.findings)
     assert {d.device for d in r.device_earths} == {"comp", "iface", "monitors"}
     titles = _suggestions(path)
-    assert titles                                     # the advisor ran and had things to say
+    assert titles  # the advisor ran and had things to say
     for dev in AT_230_V:
         assert not [t for t in titles if t.startswith(f"plug {dev} in at stepdown")]
     # nor the 120 V compressor into a 230 V outlet or strip
@@ -114,7 +123,9 @@ def test_never_offer_a_balanced_link_for_the_synth_whose_sockets_are_as_bought(n
     synth, placed 'simple': bought, and no balanced link of the plan reaches it)."""
     path = FIELD / name
     _, evs = suggest(load(path), path.read_text(), Options(), path.parent, path)
-    balance = [e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"]
+    balance = [
+        e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"
+    ]
     assert balance, "the candidate is considered (and refused), not silently missing"
     assert all(e.rejected and "bought equipment" in e.rejected for e in balance)
 
@@ -129,18 +140,29 @@ def test_a_synth_stated_with_balanced_sockets_may_be_offered_a_balanced_link(tmp
     assert old in text
     path.write_text(text.replace(old, old + ", sockets balanced"))
     _, evs = suggest(load(path), path.read_text(), Options(), path.parent, path)
-    balance = [e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"]
+    balance = [
+        e for e in evs if e.candidate.action == "balance" and e.candidate.element == "synth_in"
+    ]
     assert balance and not any(e.rejected and "bought equipment" in e.rejected for e in balance)
 
 
-@pytest.mark.parametrize("words, message", [
-    ('device amp: "amp.gplan", sockets balanced', "'sockets' is an attribute of a simple device"),
-    ("device amp: simple, sockets differential", "balanced or unbalanced"),
-])
+@pytest.mark.parametrize(
+    "words, message",
+    [
+        (
+            'device amp: "amp.gplan", sockets balanced',
+            "'sockets' is an attribute of a simple device",
+        ),
+        ("device amp: simple, sockets differential", "balanced or unbalanced"),
+    ],
+)
 def test_sockets_is_a_simple_devices_word(tmp_path, words, message):
     path = tmp_path / "room.gplan"
-    path.write_text('plan "room"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
-                    + words + "\n")
+    path.write_text(
+        'plan "room"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
+        + words
+        + "\n"
+    )
     with pytest.raises(PlanErrors) as e:
         load(path)
     assert message in str(e.value) and ":4:" in str(e.value)

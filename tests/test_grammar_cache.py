@@ -67,8 +67,13 @@ def test_nothing_is_written_into_the_package(fresh):
     _statements(EXAMPLES[0])
     # the grammar is groundcheck/grammar when installed, grammar/ beside the package in a checkout
     folders = [PACKAGE, PACKAGE.parent / "grammar"]
-    grammars = sorted(p.name for f in folders if f.is_dir() for p in f.rglob("*")
-                      if p.is_file() and "grammar" in p.parts and not p.name.endswith((".py", ".pyc")))
+    grammars = sorted(
+        p.name
+        for f in folders
+        if f.is_dir()
+        for p in f.rglob("*")
+        if p.is_file() and "grammar" in p.parts and not p.name.endswith((".py", ".pyc"))
+    )
     assert grammars == ["plan.lark"]
     assert not any(PACKAGE.rglob("*.tmp"))
 

@@ -1,5 +1,6 @@
-"""Regression cases of hostile and extreme plans (tests/hostile/): each is refused with one located error
-line and exit status 2 — no traceback, no hang, no unbounded memory — or, where noted, read correctly."""
+"""Regression cases of hostile and extreme plans (tests/hostile/): each is refused with one located
+error line and exit status 2 — no traceback, no hang, no unbounded memory — or, where noted, read
+correctly."""
 
 import json
 import subprocess
@@ -9,16 +10,24 @@ from pathlib import Path
 import pytest
 
 HOSTILE = Path(__file__).parent / "hostile"
-REFUSED = sorted(p for p in HOSTILE.glob("*.gplan") if p.name not in ("awg-0000.gplan", "sarif uri #1 100%.gplan")
-                 and not p.name.startswith("terminal-escape-title"))
+REFUSED = sorted(
+    p
+    for p in HOSTILE.glob("*.gplan")
+    if p.name not in ("awg-0000.gplan", "sarif uri #1 100%.gplan")
+    and not p.name.startswith("terminal-escape-title")
+)
 
 
 @pytest.mark.parametrize("path", REFUSED, ids=lambda p: p.stem)
 def test_refused_with_a_located_error(path):
     # a fresh process with an address-space limit: an unbounded allocation would fail loudly here
-    code = ("import resource, sys; resource.setrlimit(resource.RLIMIT_AS, (3 << 30, 3 << 30)); "
-            "from groundcheck.cli import main; sys.exit(main(['check', sys.argv[1]]))")
-    r = subprocess.run([sys.executable, "-c", code, str(path)], capture_output=True, text=True, timeout=60)
+    code = (
+        "import resource, sys; resource.setrlimit(resource.RLIMIT_AS, (3 << 30, 3 << 30)); from "
+        "groundcheck.cli import main; sys.exit(main(['check', sys.argv[1]]))"
+    )
+    r = subprocess.run(
+        [sys.executable, "-c", code, str(path)], capture_output=True, text=True, timeout=60
+    )
     assert r.returncode == 2, r.stderr[-800:]
     assert "Traceback" not in r.stderr and "internal error" not in r.stderr
     first = r.stderr.splitlines()[0]
@@ -27,6 +36,7 @@ def test_refused_with_a_located_error(path):
 
 def test_awg_0000_is_four_aught():
     from groundcheck import load
+
     (w,) = load(HOSTILE / "awg-0000.gplan").conductors
     # ASTM B258: AWG 4/0 (written 0000) is 0.4600 in = 11.684 mm across
     assert w.diameter == pytest.approx(11.684e-3, rel=1e-4)
@@ -43,8 +53,11 @@ def test_escape_sequences_never_reach_the_terminal(cli):
 
 def test_sarif_uris_are_percent_encoded(cli):
     code, out, _ = cli("check", str(HOSTILE / "sarif uri #1 100%.gplan"), "--format", "sarif")
-    uris = {loc["physicalLocation"]["artifactLocation"]["uri"] for r in json.loads(out)["runs"][0]["results"]
-            for loc in r["locations"]}
+    uris = {
+        loc["physicalLocation"]["artifactLocation"]["uri"]
+        for r in json.loads(out)["runs"][0]["results"]
+        for loc in r["locations"]
+    }
     assert uris and all("#" not in u and " " not in u and "%25" in u for u in uris)
 
 
@@ -63,6 +76,7 @@ def test_a_lone_carriage_return_never_misplaces_an_edit(tmp_path):
     from groundcheck import load
     from groundcheck.advice.repair import apply_edits, suggest
     from groundcheck.analysis import Options
+
     src = HOSTILE / "suggest-lone-cr" / "plan.gplan"
     f = tmp_path / "plan.gplan"
     f.write_bytes(src.read_bytes())
@@ -73,20 +87,34 @@ def test_a_lone_carriage_return_never_misplaces_an_edit(tmp_path):
         new = apply_edits(text, e.candidate.edits)
         changed = [a for a, b in zip(text.split("\n"), new.split("\n")) if a != b]
         # every line an edit changes belongs to the element the suggestion names
-        names = [w for w in e.candidate.title.replace("(", " ").replace(")", " ").split() if "_" in w or "." in w]
-        assert all(any(n.split(".")[-1] in line for n in names) for line in changed), e.candidate.title
+        names = [
+            w
+            for w in e.candidate.title.replace("(", " ").replace(")", " ").split()
+            if "_" in w or "." in w
+        ]
+        assert all(any(n.split(".")[-1] in line for n in names) for line in changed), (
+            e.candidate.title
+        )
 
 
 def test_a_lone_carriage_return_in_the_command(cli, tmp_path):
-    # the command reads the plan as the loader does (no newline translation), so the edit lands on the line
-    # of the element the suggestion names
+    # the command reads the plan as the loader does (no newline translation), so the edit lands on
+    # the line of the element the suggestion names
     f = tmp_path / "plan.gplan"
     f.write_bytes((HOSTILE / "suggest-lone-cr" / "plan.gplan").read_bytes())
     out = json.loads(cli("suggest", str(f), "--format", "json")[1])
     for s in out["suggestions"]:
-        removed = [ln[1:] for ln in s["diff"].splitlines() if ln.startswith("-") and not ln.startswith("---")]
+        removed = [
+            ln[1:]
+            for ln in s["diff"].splitlines()
+            if ln.startswith("-") and not ln.startswith("---")
+        ]
         words = s["title"].split()
-        element = words[1] if words[0] in ("remove", "insulate") else s["title"].split("(")[1].split(")")[0]
+        element = (
+            words[1]
+            if words[0] in ("remove", "insulate")
+            else s["title"].split("(")[1].split(")")[0]
+        )
         assert all(element.split(".")[-1] in ln for ln in removed), (s["title"], removed)
 
 
@@ -96,10 +124,14 @@ def test_sigterm_during_a_write_leaves_no_temporary_file(tmp_path):
     import sys
     import time
     from helpers import EXAMPLES
+
     out = tmp_path / "report.json"
     # the rename that ends the write is held up, so SIGTERM lands while the temporary file exists
-    code = ("import os, sys, time\nos.replace = lambda *a: time.sleep(60)\nfrom groundcheck.cli import main\n"
-            f"sys.exit(main(['check', {str(EXAMPLES[0])!r}, '--format', 'json', '-o', {str(out)!r}]))\n")
+    code = (
+        "import os, sys, time\nos.replace = lambda *a: time.sleep(60)\nfrom groundcheck.cli "
+        f"import main\nsys.exit(main(['check', {str(EXAMPLES[0])!r}, '--format', 'json', '-o', "
+        f"{str(out)!r}]))\n"
+    )
     proc = subprocess.Popen([sys.executable, "-c", code], stderr=subprocess.PIPE, text=True)
     deadline = time.monotonic() + 60
     while not list(tmp_path.glob(".groundcheck-*")) and time.monotonic() < deadline:
@@ -118,14 +150,16 @@ def test_main_leaves_no_signal_handler_behind(tmp_path, monkeypatch):
     import signal
     from groundcheck.cli import main
     from helpers import EXAMPLES
+
     seen = []
     real_replace = os.replace
 
     def spy(src, dst):
         seen.append(signal.getsignal(signal.SIGTERM))
         return real_replace(src, dst)
+
     monkeypatch.setattr(os, "replace", spy)
-    previous = signal.signal(signal.SIGTERM, signal.SIG_DFL)        # as a fresh process has it
+    previous = signal.signal(signal.SIGTERM, signal.SIG_DFL)  # as a fresh process has it
     try:
         out = tmp_path / "report.json"
         assert main(["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out)]) in (0, 1)
@@ -133,10 +167,10 @@ def test_main_leaves_no_signal_handler_behind(tmp_path, monkeypatch):
         # held while the file was written, and gone afterwards
         assert seen[0] not in (signal.SIG_DFL, signal.SIG_IGN, None)
         assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL
-        main(["check", str(EXAMPLES[0]), "--format", "json"])    # to standard output: nothing held
+        main(["check", str(EXAMPLES[0]), "--format", "json"])  # to standard output: nothing held
         assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL and len(seen) == 1
         # a caller's own handler is kept, during the write too
-        own = lambda signum, frame: None                                 # noqa: E731
+        own = lambda signum, frame: None  # noqa: E731
         signal.signal(signal.SIGTERM, own)
         main(["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out)])
         assert seen[1] is own and signal.getsignal(signal.SIGTERM) is own
@@ -150,8 +184,9 @@ def test_a_dying_worker_is_an_error_not_a_wait():
 
     def work(f):
         if f == 200.0:
-            os._exit(9)                    # a worker killed mid-way (out of memory, a signal)
+            os._exit(9)  # a worker killed mid-way (out of memory, a signal)
         return f
+
     with pytest.raises(WorkerError, match="--jobs 1"):
         map_frequencies(work, [50.0, 100.0, 150.0, 200.0], jobs=2)
     assert map_frequencies(lambda f: 2 * f, [50.0, 100.0, 150.0], jobs=2) == [100.0, 200.0, 300.0]
@@ -159,6 +194,7 @@ def test_a_dying_worker_is_an_error_not_a_wait():
 
 def test_jobs_is_capped_at_the_processors_available():
     from groundcheck.cli.common import available_cpus, processes_type
+
     assert processes_type("500") == available_cpus() and processes_type("1") == 1
 
 
@@ -166,12 +202,14 @@ def test_absurd_rectifier_figures_give_a_located_error_not_absurd_volts():
     from groundcheck import PlanErrors, load_text
     from groundcheck.analysis import analyze
     from helpers import EXAMPLES
+
     head = next(p for p in EXAMPLES if p.name == "guitar-head.gplan").read_text()
     # a valve "rated" at a nanoampere: refused where it is written
     with pytest.raises(PlanErrors) as e:
         load_text(head.replace("valve 50 V at 250 mA", "valve 50 V at 0.000001 mA"), "h.gplan")
     assert e.value.errors[0].location.line == 35 and "0.1 to 10000 mA" in e.value.errors[0].message
-    # a secondary of a nanovolt behind a 50 V valve: no steady state is claimed (it once gave 1.1 MV)
+    # a secondary of a nanovolt behind a 50 V valve: no steady state is claimed (it once gave 1.1
+    # MV)
     with pytest.raises(PlanErrors) as e:
         analyze(load_text(head.replace("secondary 280 V", "secondary 0.000000001 V"), "h.gplan"))
     # (now refused as it is read: the peak cannot deliver the load through the valve's drop)

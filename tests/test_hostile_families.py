@@ -1,7 +1,7 @@
-"""A small sample of each hostile family of tests/hostile_families.py (benchmarks/fuzz_campaign.py --hostile N
-runs 10,000 cases of each): structural mutants, special files and links, look-alike and control characters,
-signals to a --jobs run.  Each case ends in a result or located errors, with no traceback, no raw control
-character shown and no file changed that the run read."""
+"""A small sample of each hostile family of tests/hostile_families.py (benchmarks/fuzz_campaign.py
+--hostile N runs 10,000 cases of each): structural mutants, special files and links, look-alike and
+control characters, signals to a --jobs run.  Each case ends in a result or located errors, with no
+traceback, no raw control character shown and no file changed that the run read."""
 
 import random
 
@@ -20,8 +20,10 @@ def test_a_sample_of_each_hostile_family(family):
 
 
 def test_a_link_in_a_loop_is_a_located_error(tmp_path):
-    # found by the files family: an include that is a link to itself once ended in an internal error
+    # found by the files family: an include that is a link to itself once ended in an internal
+    # error
     from groundcheck import PlanErrors, load
+
     (tmp_path / "loop.gplan").symlink_to("loop.gplan")
     (tmp_path / "main.gplan").write_text('plan "x"\ninclude "loop.gplan"\n')
     with pytest.raises(PlanErrors) as e:
@@ -31,11 +33,19 @@ def test_a_link_in_a_loop_is_a_located_error(tmp_path):
 
 
 def test_an_unreadable_plan_with_its_own_name_as_output(cli, tmp_path):
-    # found by the files family: a plan that could not be read, -o naming it (or an include it read) with
-    # --format json, once ended in a traceback; a dangling link named as both once created its target
+    # found by the files family: a plan that could not be read, -o naming it (or an include it
+    # read) with
+    # --format json, once ended in a traceback; a dangling link named as both once created its
+    # target
     (tmp_path / "m.gplan").symlink_to("/dev/null")
-    code, _, err = cli("check", str(tmp_path / "m.gplan"), "--format", "json", "-o", str(tmp_path / "m.gplan"))
+    code, _, err = cli(
+        "check", str(tmp_path / "m.gplan"), "--format", "json", "-o", str(tmp_path / "m.gplan")
+    )
     assert code == 2 and "refusing to write over" in err and "Traceback" not in err
     (tmp_path / "d.gplan").symlink_to("nowhere.gplan")
-    code, _, err = cli("check", str(tmp_path / "d.gplan"), "--format", "json", "-o", str(tmp_path / "d.gplan"))
-    assert code == 2 and "refusing to write over" in err and not (tmp_path / "nowhere.gplan").exists()
+    code, _, err = cli(
+        "check", str(tmp_path / "d.gplan"), "--format", "json", "-o", str(tmp_path / "d.gplan")
+    )
+    assert (
+        code == 2 and "refusing to write over" in err and not (tmp_path / "nowhere.gplan").exists()
+    )

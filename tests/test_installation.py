@@ -17,12 +17,15 @@ def test_studio_loop_through_two_cords_and_a_shield_is_found_and_quantified():
     loops = [lp for lp in r.loops if lp.closed_by == "mains-cords"]
     assert loops
     mix = next(lp for lp in loops if "mix_out" in lp.loop.edges)
-    # the loop through the monitors' interconnect closes through their cord, the strip and both building runs;
-    # the other listed loop closes through the mixer's cord (which loops a cycle basis lists is its own choice)
+    # the loop through the monitors' interconnect closes through their cord, the strip and both
+    # building runs; the other listed loop closes through the mixer's cord (which loops a cycle
+    # basis lists is its own choice)
     assert {"monitors.cord", "strip_cord", "run_a", "run_b"} <= set(mix.loop.edges)
     assert any("mixer.cord" in lp.loop.edges for lp in loops)
     names = {c.name: c for c in r.plan.conductors}
-    assert names[mix.open_at].kind == "interconnect"       # opened on the signal side, never in the protective earth
+    assert (
+        names[mix.open_at].kind == "interconnect"
+    )  # opened on the signal side, never in the protective earth
     mon = r.hum.channels["monitors"]
     assert mon.audible is True and mon.contributors
     # the leakage current's odd harmonics are in the spectrum
@@ -44,17 +47,21 @@ def test_device_reuse_gives_the_same_figures_as_alone(tmp_path):
     (tmp_path / "devices").mkdir()
     (tmp_path / "devices" / PREAMP.name).write_text(PREAMP.read_text())
     inst = tmp_path / "rack.gplan"
-    inst.write_text('plan "rack"\nlibrary "devices"\npoint wall: outlet\n'
-                    f'device pre: "{PREAMP.name}", at 500,0, plugged wall\n')
+    inst.write_text(
+        f'plan "rack"\nlibrary "devices"\npoint wall: outlet\ndevice pre: "{PREAMP.name}", at '
+        "500,0, plugged wall\n"
+    )
     placed = analyze(load(inst))
     a, b = alone.hum.channels["main"], placed.hum.channels["pre.main"]
     assert b.total_v == pytest.approx(a.total_v, rel=1e-9, abs=1e-15)
-    assert [x["volts"] for x in b.spectrum] == pytest.approx([x["volts"] for x in a.spectrum], rel=1e-9, abs=1e-15)
+    assert [x["volts"] for x in b.spectrum] == pytest.approx(
+        [x["volts"] for x in a.spectrum], rel=1e-9, abs=1e-15
+    )
     assert placed.loop_total == alone.loop_total
     expected = sorted(f.code for f in alone.findings if f.rule.family != PROTECTIVE_EARTH)
     assert sorted(f.code for f in placed.findings) == expected
     p = placed.plan.point("pre.star")
-    assert p.pos == pytest.approx((0.5 + 0.13, 0.08))        # moved by the device's place
+    assert p.pos == pytest.approx((0.5 + 0.13, 0.08))  # moved by the device's place
 
 
 def test_library_from_environment(tmp_path, monkeypatch):
@@ -62,14 +69,21 @@ def test_library_from_environment(tmp_path, monkeypatch):
     lib.mkdir()
     (lib / "box.gplan").write_text(PREAMP.read_text())
     monkeypatch.setenv("GROUNDCHECK_LIBRARY", str(lib))
-    p = load_text('plan "x"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n', "x.gplan",
-                  root=tmp_path / "elsewhere")
+    p = load_text(
+        'plan "x"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n',
+        "x.gplan",
+        root=tmp_path / "elsewhere",
+    )
     assert any(c.name == "b.cord" for c in p.conductors)
 
 
 def test_device_errors(tmp_path):
     with pytest.raises(PlanErrors) as e:
-        load_text('plan "x"\npoint wall: outlet\ndevice b: "nope.gplan", plugged wall\n', "x.gplan", root=tmp_path)
+        load_text(
+            'plan "x"\npoint wall: outlet\ndevice b: "nope.gplan", plugged wall\n',
+            "x.gplan",
+            root=tmp_path,
+        )
     assert "device plan 'nope.gplan' not found" in str(e.value)
     with pytest.raises(PlanErrors) as e:
         load_text('plan "x"\ndevice b: simple, plugged nowhere\n', "x.gplan", root=tmp_path)
@@ -81,19 +95,25 @@ def test_device_errors(tmp_path):
 
 
 def test_balanced_interconnect_rejects_the_shield_drop():
-    # the shield kept on the signal grounds (a balanced link's default is the chassis), so that only the rejection
-    # differs
-    text = STUDIO.read_text().replace("terminated both, unbalanced, gain 26 dB",
-                                      "terminated both, balanced, gain 26 dB, cmrr 60 dB, shield-to signal")
+    # the shield kept on the signal grounds (a balanced link's default is the chassis), so that
+    # only the rejection differs
+    text = STUDIO.read_text().replace(
+        "terminated both, unbalanced, gain 26 dB",
+        "terminated both, balanced, gain 26 dB, cmrr 60 dB, shield-to signal",
+    )
     unbal = analyze(load(STUDIO)).hum.channels["monitors"].total_v
-    bal = analyze(load_text(text, str(STUDIO), root=STUDIO.parent)).hum.channels["monitors"].total_v
+    bal = (
+        analyze(load_text(text, str(STUDIO), root=STUDIO.parent)).hum.channels["monitors"].total_v
+    )
     assert bal == pytest.approx(unbal * 10 ** (-60 / 20), rel=1e-6)
 
 
 def test_generated_plans_parse_and_check():
     import sys
+
     sys.path.insert(0, str(ROOT / "benchmarks"))
     from generate import chassis, installation
+
     big = load_text(chassis(400), "chassis.gplan")
     r = analyze(big)
     assert r.loop_total == len(big.conductors) - len(big.points) - len(big.metals) + 1
@@ -112,27 +132,34 @@ def test_jobs_give_the_same_result(cli):
 def test_device_earth_paths_to_the_main_earthing_terminal(tmp_path):
     r = analyze(load(STUDIO))
     got = {d.device: d.resistance for d in r.device_earths}
-    # mixer: its 2 m 0.75 mm² cord and the 8 m 2.5 mm² run, ρL/A with IEC 60028 copper at 20 °C (worked by hand)
+    # mixer: its 2 m 0.75 mm² cord and the 8 m 2.5 mm² run, ρL/A with IEC 60028 copper at 20 °C
+    # (worked by hand)
     assert got["mixer"] == pytest.approx(1.7241e-8 * (2 / 0.75e-6 + 8 / 2.5e-6), rel=1e-9)
     assert not any(f.code == "GC215" for f in r.findings)
     # unplug the mixer: its earth pin reaches nothing
-    text = STUDIO.read_text().replace("device mixer: simple, plugged wall_a, ", "device mixer: simple, ")
+    text = STUDIO.read_text().replace(
+        "device mixer: simple, plugged wall_a, ", "device mixer: simple, "
+    )
     f = tmp_path / "studio.gplan"
     f.write_text(text)
     (tmp_path / "devices").mkdir()
     for d in (STUDIO.parent / "devices").iterdir():
         (tmp_path / "devices" / d.name).write_text(d.read_text())
     r = analyze(load(f))
-    assert [(x.severity, x.elements[0]) for x in r.findings if x.code == "GC215"] == [("danger", "mixer")]
+    assert [(x.severity, x.elements[0]) for x in r.findings if x.code == "GC215"] == [
+        ("danger", "mixer")
+    ]
 
 
 def _installation(tmp_path, devices: str):
-    (tmp_path / "lib").mkdir()          # a plan's library lies inside its own folder
+    (tmp_path / "lib").mkdir()  # a plan's library lies inside its own folder
     for g in (ROOT / "examples").glob("*.gplan"):
         (tmp_path / "lib" / g.name).write_bytes(g.read_bytes())
     f = tmp_path / "room.gplan"
-    f.write_text('plan "room"\nlibrary "lib"\npoint met: earthing-terminal\npoint wall: outlet\n'
-                 "wire run: wall to met, 10 m, 2.5 mm2, protective\n" + devices)
+    f.write_text(
+        'plan "room"\nlibrary "lib"\npoint met: earthing-terminal\npoint wall: outlet\n'
+        "wire run: wall to met, 10 m, 2.5 mm2, protective\n" + devices
+    )
     return f
 
 
@@ -149,21 +176,31 @@ def test_a_60_hz_device_keeps_its_supply_when_placed(tmp_path):
 
 
 def test_devices_for_50_and_60_hz_cannot_share_an_installation(tmp_path):
-    f = _installation(tmp_path, 'device amp: "headphone-amp-100v.gplan", plugged wall\n'
-                                'device pre: "dual-mono-phono-stage.gplan", plugged wall\n')
+    f = _installation(
+        tmp_path,
+        'device amp: "headphone-amp-100v.gplan", plugged wall\ndevice pre: '
+        '"dual-mono-phono-stage.gplan", plugged wall\n',
+    )
     with pytest.raises(PlanErrors) as e:
         load(f)
     assert "one mains frequency" in e.value.errors[0].one_line()
 
 
 def test_drawings_of_an_installation_show_or_say_everything():
-    from groundcheck.renderers.dot import element_class, physical_dot, physical_omissions, topology_dot
+    from groundcheck.renderers.dot import (
+        element_class,
+        physical_dot,
+        physical_omissions,
+        topology_dot,
+    )
+
     r = analyze(load(STUDIO))
     topo = topology_dot(r)
     for device in ("pre", "mixer", "monitors", "pc"):
         assert f'subgraph "cluster_{device}"' in topo and f'"{device}.mains.pe"' in topo
-    # the physical view draws the whole system: every device as a box, every outlet, strip, building run, cord and
-    # interconnect, and says that a device's own wiring is in its own drawing
+    # the physical view draws the whole system: every device as a box, every outlet, strip,
+    # building run, cord and interconnect, and says that a device's own wiring is in its own
+    # drawing
     assert physical_omissions(r) == (0, 0)
     phys = physical_dot(r)
     for device in ("pre", "mixer", "monitors", "pc"):
@@ -176,15 +213,20 @@ def test_drawings_of_an_installation_show_or_say_everything():
 
 
 def test_balanced_rejection_from_the_source_impedance_imbalance():
-    # CMRR = 20·log10((Zcm + ΔZ)/ΔZ): 10 Ω of imbalance against 20 kΩ per leg gives 66.02 dB, worked by hand;
-    # against 10 kΩ, 20·log10(1001) = 60.0087 dB; a stated CMRR lower than that wins; nothing stated: the 50 dB
-    # assumption
+    # CMRR = 20·log10((Zcm + ΔZ)/ΔZ): 10 Ω of imbalance against 20 kΩ per leg gives 66.02 dB,
+    # worked by hand; against 10 kΩ, 20·log10(1001) = 60.0087 dB; a stated CMRR lower than that
+    # wins; nothing stated: the 50 dB assumption
     from groundcheck import load_text
-    head = ('plan "balanced"\npoint a: terminal\npoint b: terminal\nwire g: a to b, 1 m, 1 mm2\n'
-            "interconnect lead: a to b, 3 m, 0.1 mm2, balanced, gain 30 dB, channel main, {}\n")
+
+    head = (
+        'plan "balanced"\npoint a: terminal\npoint b: terminal\nwire g: a to b, 1 m, 1 mm2\n'
+        "interconnect lead: a to b, 3 m, 0.1 mm2, balanced, gain 30 dB, channel main, {}\n"
+    )
+
     def gain(extra):
         (st,) = load_text(head.format(extra), "b.gplan").stages
         return st.gain
+
     assert gain("imbalance 10 ohm") == pytest.approx(30 - 66.0249, abs=1e-3)
     assert gain("imbalance 10 ohm, common-mode 10 kohm") == pytest.approx(30 - 60.0087, abs=1e-3)
     assert gain("imbalance 10 ohm, cmrr 40 dB") == pytest.approx(30 - 40, abs=1e-9)
@@ -193,17 +235,20 @@ def test_balanced_rejection_from_the_source_impedance_imbalance():
 
 
 def test_interconnect_input_reads_the_shield_transfer_impedance():
-    # 10 mA at 5 kHz driven along a 10 m shield of 0.5 Ω (the only path between its ends): the receiving input
-    # reads R·I = 5 mV, times its gain of 20 dB = 50 mV, worked by hand; the shield's own inductance (about
-    # 22 µH, 0.7 Ω of reactance at 5 kHz) cancels against the centre conductor's mutual inductance and adds
-    # nothing (a coaxial cable's transfer impedance at low frequency is its shield's resistance)
+    # 10 mA at 5 kHz driven along a 10 m shield of 0.5 Ω (the only path between its ends): the
+    # receiving input reads R·I = 5 mV, times its gain of 20 dB = 50 mV, worked by hand; the
+    # shield's own inductance (about 22 µH, 0.7 Ω of reactance at 5 kHz) cancels against the centre
+    # conductor's mutual inductance and adds nothing (a coaxial cable's transfer impedance at low
+    # frequency is its shield's resistance)
     from groundcheck import load_text
     from groundcheck.analysis import analyze
+
     text = """plan "a long shield above its cut-off (trial)"
 listening output 1 V
 point a: terminal
 point b: terminal
-interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, gain 20 dB,
+interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, \
+gain 20 dB,
     channel main
 current leak: a to b, 10 mA 5000 Hz, leakage
 """

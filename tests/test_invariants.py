@@ -22,8 +22,13 @@ from invariantplans import mirrored_plans, mirrored_text, resistive_plans, resis
 
 REL, FLOOR = 1e-9, 1e-15
 #: a modest count in the default suite; the campaign runs thousands
-EXAMPLES = dict(deadline=None, database=None, derandomize=True, suppress_health_check=[HealthCheck.too_slow],
-                phases=[Phase.explicit, Phase.reuse, Phase.generate, Phase.shrink])
+EXAMPLES = dict(
+    deadline=None,
+    database=None,
+    derandomize=True,
+    suppress_health_check=[HealthCheck.too_slow],
+    phases=[Phase.explicit, Phase.reuse, Phase.generate, Phase.shrink],
+)
 
 
 def _close(a: float, b: float) -> bool:
@@ -140,8 +145,8 @@ def names_change_nothing(m) -> None:
 
 
 ISLAND = (
-    "point island_a: pad\npoint island_b: pad\n"
-    "wire island: island_a to island_b, 40 mm, 0.5 mm2, signal\n"
+    "point island_a: pad\npoint island_b: pad\nwire island: island_a to island_b, 40 mm, 0.5 mm2, "
+    "signal\n"
 )
 
 

@@ -78,9 +78,8 @@ def test_kind_defaults_and_own_attributes_come_from_the_row(monkeypatch):
         KINDS, "foil", dataclasses.replace(KINDS["trace"], name="foil", thickness=70e-6)
     )
     plan = load_text(
-        "metal m: steel 1 mm, 100 x 100 mm\npoint p: stud, at 10,10 on m\n"
-        "point q: star, at 50,10\n"
-        "clip c: p to m\nfoil f: p to q, 40 mm, width 2 mm\n",
+        "metal m: steel 1 mm, 100 x 100 mm\npoint p: stud, at 10,10 on m\npoint q: star, at "
+        "50,10\nclip c: p to m\nfoil f: p to q, 40 mm, width 2 mm\n",
         "t.gplan",
     )
     got = {c.name: c for c in plan.conductors}

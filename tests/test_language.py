@@ -1,4 +1,5 @@
-"""The plan language: grammar, model, blocks, includes, and every bad input of the foundation issue."""
+"""The plan language: grammar, model, blocks, includes, and every bad input of the foundation
+issue."""
 
 from pathlib import Path
 
@@ -29,16 +30,26 @@ def test_header_and_elements_in_si():
         point pe_stud2: pad
         stage s: pe_stud to pe_stud2, gain 40 dB, channel left
         field ptx: transformer, at 60,180, 30 uT at 5 cm
-        rectifier hv: pe_stud to pe_stud2, bridge, secondary 250 V, winding 80 ohm, reservoir 47 uF, load 60 mA
+        rectifier hv: pe_stud to pe_stud2, bridge, secondary 250 V, winding 80 ohm, \
+reservoir 47 uF, load 60 mA
         current leak: pe_stud to pe_stud2, 0.2 mA 50 Hz, leakage
         heater h: 6.3 V, 2 A, ac, reference pe_stud
         """)
-    assert p.mains.voltage == 230 and p.mains.frequency == 50 and p.mains.fuse == 2 and p.mains.fuse_kind == "slow"
+    assert (
+        p.mains.voltage == 230
+        and p.mains.frequency == 50
+        and p.mains.fuse == 2
+        and p.mains.fuse_kind == "slow"
+    )
     assert p.mains.line_area == pytest.approx(0.75e-6)
     assert p.ambient == 35
     assert p.listening.amp_gain == 26 and p.listening.distance == 3
     deck = p.metal("deck")
-    assert deck.size == pytest.approx((0.32, 0.22)) and deck.thickness == pytest.approx(2e-3) and deck.touchable
+    assert (
+        deck.size == pytest.approx((0.32, 0.22))
+        and deck.thickness == pytest.approx(2e-3)
+        and deck.touchable
+    )
     assert p.point("pe_stud").pos == pytest.approx((0.025, 0.2))
     assert p.point(PE_POINT) is not None
     c = {c.name: c for c in p.conductors}
@@ -48,8 +59,14 @@ def test_header_and_elements_in_si():
     assert p.stages[0].gain == 40 and p.stages[0].channel == "left"
     assert p.fields[0].b_ref == pytest.approx(30e-6) and p.fields[0].r_ref == pytest.approx(0.05)
     r = p.rectifiers[0]
-    assert r.topology == "bridge" and r.capacitance == pytest.approx(47e-6) and r.load_current == pytest.approx(0.06)
-    assert p.currents[0].parts == ((pytest.approx(0.2e-3), 50.0),) and p.currents[0].role == "leakage"
+    assert (
+        r.topology == "bridge"
+        and r.capacitance == pytest.approx(47e-6)
+        and r.load_current == pytest.approx(0.06)
+    )
+    assert (
+        p.currents[0].parts == ((pytest.approx(0.2e-3), 50.0),) and p.currents[0].role == "leakage"
+    )
     assert p.heaters[0].reference == "pe_stud"
     # every element keeps its location
     assert c["pe_lead"].location.line == 9 and c["pe_lead"].location.column == 1
@@ -63,7 +80,7 @@ def test_awg_and_routes():
         wire v: a to b, 150 mm, 22 AWG
         """)
     w, v = p.conductors
-    assert w.area == pytest.approx(0.8231e-6, rel=1e-3)       # ASTM B258
+    assert w.area == pytest.approx(0.8231e-6, rel=1e-3)  # ASTM B258
     assert w.route == (pytest.approx((0.05, 0.04)), pytest.approx((0.06, 0.04)))
     assert v.diameter == pytest.approx(0.6438e-3, rel=1e-3)
 
@@ -84,12 +101,15 @@ def test_block_expansion_prefix_offset_and_mirror():
         """)
     pts = {q.name: q for q in p.points}
     assert pts["left.sleeve"].pos == pytest.approx((0.3, 0.04))
-    assert pts["right.sleeve"].pos == pytest.approx((0.3, 0.21))      # y -> 250 - y
+    assert pts["right.sleeve"].pos == pytest.approx((0.3, 0.21))  # y -> 250 - y
     cs = {c.name: c for c in p.conductors}
     assert (cs["right.g"].a, cs["right.g"].b) == ("right.sleeve", "right.k")
     assert cs["right.g"].route == (pytest.approx((0.25, 0.24)),)
-    assert cs["left.c"].b == "common"                                 # not local: the top-level name
-    assert {s.channel for s in p.stages} == {"left", "right"}          # channel defaults to the placement name
+    assert cs["left.c"].b == "common"  # not local: the top-level name
+    assert {s.channel for s in p.stages} == {
+        "left",
+        "right",
+    }  # channel defaults to the placement name
     assert pts["left.sleeve"].location == pts["right.sleeve"].location
 
 
@@ -126,8 +146,9 @@ def test_include_relative_and_confined(tmp_path):
     (tmp_path / "sub").mkdir()
     (tmp_path / "sub" / "supply.gplan").write_text('point res_neg: cap\ninclude "more.gplan"\n')
     (tmp_path / "sub" / "more.gplan").write_text("point ct: centre-tap\n")
-    (tmp_path / "main.gplan").write_text('plan "m"\ninclude "sub/supply.gplan"\n'
-                                         'wire w: res_neg to ct, 50 mm, 0.5 mm2\n')
+    (tmp_path / "main.gplan").write_text(
+        'plan "m"\ninclude "sub/supply.gplan"\nwire w: res_neg to ct, 50 mm, 0.5 mm2\n'
+    )
     p = load(tmp_path / "main.gplan")
     assert {q.name for q in p.points} == {"res_neg", "ct"}
     assert len(p.files) == 3
@@ -146,42 +167,90 @@ def test_include_of_absolute_path_outside_refused(tmp_path):
 
 
 def test_comments_continuation_and_crlf():
-    text = ('plan "c"\r\n# comment\r\npoint a: stud  # trailing\r\npoint b: stud\r\nwire w: a to b,\r\n'
-            '   10 mm, 1 mm2\r\n')
+    text = (
+        'plan "c"\r\n# comment\r\npoint a: stud  # trailing\r\npoint b: stud\r\nwire w: a to '
+        "b,\r\n"
+        "   10 mm, 1 mm2\r\n"
+    )
     p = load_text(text, "c.gplan")
     assert p.conductors[0].length == pytest.approx(0.01)
 
 
-# --- every bad input of the foundation issue: exact message, location and exit status 2 -------------
+# --- every bad input of the foundation issue: exact message, location and exit status 2
+# -------------
 
 BAD = [
-    ("syntax", 'plan "x"\nmetal deck: aluminium 2 mm,, touchable\n',
-     "bad.gplan:2:28: error: unexpected ',' (an attribute is missing here)"),
-    ("keyword", 'plan "x"\nwier w: a to b, 10 mm, 1 mm2\n',
-     "bad.gplan:2:1: error: unknown keyword 'wier' (did you mean 'wire'?)"),
-    ("unit", 'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 10 mmm, 1 mm2\n',
-     "bad.gplan:4:20: error: unknown unit 'mmm' (units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; "
-     "dB; C)"),
-    ("wrong kind", 'plan "x"\nmetal deck: aluminium 2 mm\npoint a: stud\nbolt b: a to deck, contact 5 mm\n',
-     "bad.gplan:4:28: error: contact must be a resistance, not a length (use a resistance unit such as ohm or mohm)"),
-    ("length in ohms", 'plan "x"\nmetal deck: aluminium 2 ohm\n',
-     "bad.gplan:2:23: error: thickness must be a length, not a resistance (use a length unit such as mm)"),
-    ("undefined", 'plan "x"\npoint a: stud\nwire w: a to b, 10 mm, 1 mm2\n',
-     "bad.gplan:3:14: error: undefined point or metal part 'b' (define it with 'point b: ...')"),
-    ("duplicate", 'plan "x"\npoint a: stud\npoint a: star\n',
-     "bad.gplan:3:7: error: duplicate name 'a' (first defined at bad.gplan:2:7)"),
-    ("zero length", 'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 0 mm, 1 mm2\n',
-     "bad.gplan:4:17: error: length must be more than zero, got 0 mm"),
-    ("negative area", 'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 5 mm, -1 mm2\n',
-     "bad.gplan:4:23: error: area must be more than zero, got -1 mm2"),
-    ("zero frequency", 'plan "x"\nmains 230 V 0 Hz\n',
-     "bad.gplan:2:13: error: mains frequency must be more than zero, got 0 Hz"),
-    ("below absolute zero", 'plan "x"\nambient -300 C\n',
-     "bad.gplan:2:9: error: ambient temperature -300 C is below -200 C (give a temperature from -200 C to 1000 C)"),
-    ("empty", "", "bad.gplan:1:1: error: the plan is empty (start with: plan \"Title\")"),
-    ("only comments", "# nothing\n\n", "bad.gplan:1:1: error: the plan is empty (start with: plan \"Title\")"),
-    ("unclosed block", 'plan "x"\nblock b {\npoint a: stud\n',
-     "bad.gplan:4:1: error: unexpected end of file (a block opened with '{' needs its closing '}')"),
+    (
+        "syntax",
+        'plan "x"\nmetal deck: aluminium 2 mm,, touchable\n',
+        "bad.gplan:2:28: error: unexpected ',' (an attribute is missing here)",
+    ),
+    (
+        "keyword",
+        'plan "x"\nwier w: a to b, 10 mm, 1 mm2\n',
+        "bad.gplan:2:1: error: unknown keyword 'wier' (did you mean 'wire'?)",
+    ),
+    (
+        "unit",
+        'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 10 mmm, 1 mm2\n',
+        "bad.gplan:4:20: error: unknown unit 'mmm' (units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, "
+        "mA; V; Hz; uT; uF, nF; dB; C)",
+    ),
+    (
+        "wrong kind",
+        'plan "x"\nmetal deck: aluminium 2 mm\npoint a: stud\nbolt b: a to deck, contact 5 mm\n',
+        "bad.gplan:4:28: error: contact must be a resistance, not a length (use a resistance unit "
+        "such as ohm or mohm)",
+    ),
+    (
+        "length in ohms",
+        'plan "x"\nmetal deck: aluminium 2 ohm\n',
+        "bad.gplan:2:23: error: thickness must be a length, not a resistance (use a length unit "
+        "such as mm)",
+    ),
+    (
+        "undefined",
+        'plan "x"\npoint a: stud\nwire w: a to b, 10 mm, 1 mm2\n',
+        "bad.gplan:3:14: error: undefined point or metal part 'b' (define it with 'point b: ...')",
+    ),
+    (
+        "duplicate",
+        'plan "x"\npoint a: stud\npoint a: star\n',
+        "bad.gplan:3:7: error: duplicate name 'a' (first defined at bad.gplan:2:7)",
+    ),
+    (
+        "zero length",
+        'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 0 mm, 1 mm2\n',
+        "bad.gplan:4:17: error: length must be more than zero, got 0 mm",
+    ),
+    (
+        "negative area",
+        'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 5 mm, -1 mm2\n',
+        "bad.gplan:4:23: error: area must be more than zero, got -1 mm2",
+    ),
+    (
+        "zero frequency",
+        'plan "x"\nmains 230 V 0 Hz\n',
+        "bad.gplan:2:13: error: mains frequency must be more than zero, got 0 Hz",
+    ),
+    (
+        "below absolute zero",
+        'plan "x"\nambient -300 C\n',
+        "bad.gplan:2:9: error: ambient temperature -300 C is below -200 C (give a temperature "
+        "from -200 C to 1000 C)",
+    ),
+    ("empty", "", 'bad.gplan:1:1: error: the plan is empty (start with: plan "Title")'),
+    (
+        "only comments",
+        "# nothing\n\n",
+        'bad.gplan:1:1: error: the plan is empty (start with: plan "Title")',
+    ),
+    (
+        "unclosed block",
+        'plan "x"\nblock b {\npoint a: stud\n',
+        "bad.gplan:4:1: error: unexpected end of file (a block opened with '{' needs its closing "
+        "'}')",
+    ),
 ]
 
 
@@ -196,12 +265,14 @@ def test_bad_input_message_and_exit_status(tmp_path, monkeypatch, cli, name, tex
     assert first == message
     assert "Traceback" not in err
     if text.strip() and name != "unclosed block":
-        assert err.splitlines()[2].strip() == "^"          # the caret line under the offending line
+        assert err.splitlines()[2].strip() == "^"  # the caret line under the offending line
 
 
 def test_all_errors_of_a_file_reported(tmp_path, monkeypatch, cli):
     monkeypatch.chdir(tmp_path)
-    Path("bad.gplan").write_text('plan "x"\nwier a: b\npoint a: stud\nwire w: a to zz, 0 mm, 1 mm2\nmetal m: 3 ohm\n')
+    Path("bad.gplan").write_text(
+        'plan "x"\nwier a: b\npoint a: stud\nwire w: a to zz, 0 mm, 1 mm2\nmetal m: 3 ohm\n'
+    )
     code, _, err = cli("check", "bad.gplan")
     lines = [ln for ln in err.splitlines() if ": error: " in ln]
     assert code == 2 and len(lines) == 3
@@ -213,27 +284,37 @@ def test_include_errors(tmp_path, monkeypatch, cli):
     Path("a.gplan").write_text('plan "a"\ninclude "b.gplan"\n')
     Path("b.gplan").write_text('include "a.gplan"\n')
     code, _, err = cli("check", "a.gplan")
-    assert code == 2 and err.startswith("b.gplan:1:9: error: include cycle: a.gplan -> b.gplan -> a.gplan")
+    assert code == 2 and err.startswith(
+        "b.gplan:1:9: error: include cycle: a.gplan -> b.gplan -> a.gplan"
+    )
     Path("m.gplan").write_text('plan "a"\ninclude "none.gplan"\n')
     code, _, err = cli("check", "m.gplan")
     assert code == 2 and err.startswith("m.gplan:2:9: error: included file 'none.gplan' not found")
     Path("o.gplan").write_text('plan "a"\ninclude "../o.gplan"\n')
     code, _, err = cli("check", "o.gplan")
-    assert code == 2 and err.startswith("o.gplan:2:9: error: include '../o.gplan' lies outside the plan's folder")
+    assert code == 2 and err.startswith(
+        "o.gplan:2:9: error: include '../o.gplan' lies outside the plan's folder"
+    )
 
 
 def test_not_utf8(tmp_path, monkeypatch, cli):
     monkeypatch.chdir(tmp_path)
     Path("l.gplan").write_bytes(b'plan "x"\npoint caf\xe9: stud\n')
     code, _, err = cli("check", "l.gplan")
-    assert code == 2 and err.strip() == "l.gplan:2:10: error: the file is not UTF-8 text (save the plan as UTF-8 text)"
+    assert (
+        code == 2
+        and err.strip()
+        == "l.gplan:2:10: error: the file is not UTF-8 text (save the plan as UTF-8 text)"
+    )
 
 
 def test_missing_file_and_folder(tmp_path, cli):
     code, _, err = cli("check", str(tmp_path / "nope.gplan"))
     assert code == 2 and "error: no such plan file" in err
     code, _, err = cli("check", str(tmp_path))
-    assert code == 2 and "holds no .gplan file" in err           # a folder is checked plan by plan; this one is empty
+    assert (
+        code == 2 and "holds no .gplan file" in err
+    )  # a folder is checked plan by plan; this one is empty
 
 
 def test_block_placing_itself(tmp_path, monkeypatch, cli):
@@ -250,12 +331,19 @@ def test_fast_records_equal_the_constructor_and_stay_immutable():
     from groundcheck.model.records import Conductor, Point, make
 
     loc = Location("t.gplan", 3, 1)
-    for cls, values in ((Conductor, dict(name="w", kind="wire", a="x", b="y", location=loc, length=0.1, area=1e-6)),
-                        (Conductor, dict(name="f", kind="bolt", a="x", b="deck", contact=5e-4, role="bond")),
-                        (Point, dict(name="p", location=loc, pos=(0.01, 0.02), on="deck", kind="star"))):
+    for cls, values in (
+        (
+            Conductor,
+            dict(name="w", kind="wire", a="x", b="y", location=loc, length=0.1, area=1e-6),
+        ),
+        (Conductor, dict(name="f", kind="bolt", a="x", b="deck", contact=5e-4, role="bond")),
+        (Point, dict(name="p", location=loc, pos=(0.01, 0.02), on="deck", kind="star")),
+    ):
         fast, slow = make(cls, **values), cls(**values)
         assert fast == slow and type(fast) is cls
-        assert dataclasses.asdict(fast) == dataclasses.asdict(slow)      # every field, location included
+        assert dataclasses.asdict(fast) == dataclasses.asdict(
+            slow
+        )  # every field, location included
         with pytest.raises(dataclasses.FrozenInstanceError):
             fast.name = "other"
     with pytest.raises(TypeError, match="colour"):
@@ -279,17 +367,25 @@ def _the_one_error(text: str):
 
 
 def test_an_error_in_a_block_placed_twice_is_said_once_with_its_placements():
-    err = _the_one_error('plan "b"\nmetal deck: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point s: star, at 10,10 '
-                         "on deck\n  wire w: s to nowhere, 10 mm, 0.5 mm2\n}\nplace ch as left at 0,0\nplace ch as "
-                         "right at 0,50\n")
+    err = _the_one_error(
+        'plan "b"\nmetal deck: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point s: star, at '
+        "10,10 "
+        "on deck\n  wire w: s to nowhere, 10 mm, 0.5 mm2\n}\nplace ch as left at 0,0\nplace ch as "
+        "right at 0,50\n"
+    )
     assert (err.location.line, err.location.column) == (5, 16)
     assert "'nowhere'" in err.message and err.message.endswith("(in placements left, right)")
 
 
 def test_an_error_names_the_block_name_that_hides_an_outer_one():
-    err = _the_one_error('plan "b"\nmetal panel: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point panel: pad, at '
-                         "10,10\n  point p: pad, at 20,20 on panel\n}\nplace ch as left at 0,0\n")
-    assert err.location.line == 5 and "'panel' here is the block's own, which hides the name outside it" in err.hint
+    err = _the_one_error(
+        'plan "b"\nmetal panel: aluminium 2 mm, 100 x 100 mm\nblock ch {\n  point panel: pad, at '
+        "10,10\n  point p: pad, at 20,20 on panel\n}\nplace ch as left at 0,0\n"
+    )
+    assert (
+        err.location.line == 5
+        and "'panel' here is the block's own, which hides the name outside it" in err.hint
+    )
 
 
 def test_mirror_x_flips_about_the_blocks_own_origin_then_moves_it():

@@ -1,5 +1,5 @@
-"""The plan language's Pygments lexer: registered under 'gplan' and '*.gplan', no error tokens on any example,
-keywords, quantities, names and comments told apart."""
+"""The plan language's Pygments lexer: registered under 'gplan' and '*.gplan', no error tokens on
+any example, keywords, quantities, names and comments told apart."""
 
 from pathlib import Path
 
@@ -21,12 +21,21 @@ def test_the_lexer_is_registered():
 def test_examples_lex_without_errors(path):
     tokens = list(get_lexer_by_name("gplan").get_tokens(path.read_text(encoding="utf-8")))
     assert not [v for t, v in tokens if t is Error]
-    assert "".join(v for _, v in tokens).rstrip("\n") == path.read_text(encoding="utf-8").rstrip("\n")
+    assert "".join(v for _, v in tokens).rstrip("\n") == path.read_text(encoding="utf-8").rstrip(
+        "\n"
+    )
 
 
 def test_the_parts_of_a_statement():
-    tokens = [(t, v) for t, v in get_lexer_by_name("gplan").get_tokens(
-        "wire pe_lead: mains.pe to pe_stud, 25 mm, 1 mm2, protective   # the earth\n") if v.strip()]
+    tokens = [
+        (t, v)
+        for t, v in get_lexer_by_name("gplan").get_tokens(
+            "wire pe_lead: mains.pe to pe_stud, 25 mm, 1 mm2, protective   # the earth\n"
+        )
+        if v.strip()
+    ]
     kinds = dict((v, t) for t, v in tokens)
-    assert kinds["wire"] in Keyword and kinds["pe_lead"] in Name.Variable and kinds["25 mm"] in Number
+    assert (
+        kinds["wire"] in Keyword and kinds["pe_lead"] in Name.Variable and kinds["25 mm"] in Number
+    )
     assert kinds["protective"] in Name.Attribute and kinds["# the earth"] in Comment

@@ -8,6 +8,11 @@ ROOT = Path(__file__).resolve().parent.parent
 
 
 def test_every_subpackage_is_in_the_installed_list():
-    listed = set(tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"])
-    found = {".".join(p.parent.relative_to(ROOT).parts) for p in (ROOT / "groundcheck").rglob("__init__.py")}
+    listed = set(
+        tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]["packages"]
+    )
+    found = {
+        ".".join(p.parent.relative_to(ROOT).parts)
+        for p in (ROOT / "groundcheck").rglob("__init__.py")
+    }
     assert found <= listed, sorted(found - listed)

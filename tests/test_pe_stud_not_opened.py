@@ -1,6 +1,7 @@
-"""A supply return wrongly landed on the protective-earth stud stops the protective route at the stud
-(a signal point), but the stud's own fastening to the metal still earths it: a loop through it is
-never told to insulate that fastening (found by the statement-order property on a generated plan)."""
+"""A supply return wrongly landed on the protective-earth stud stops the protective route at the
+stud (a signal point), but the stud's own fastening to the metal still earths it: a loop through it
+is never told to insulate that fastening (found by the statement-order property on a generated
+plan)."""
 
 from groundcheck import analyze, load_text
 
@@ -28,4 +29,4 @@ def test_the_earth_studs_fastening_is_never_the_loop_to_open():
     assert loops
     for f in loops:
         assert "pe_nut" not in {a[1] for a in f.actions} and "insulate pe_nut" not in f.fix
-    assert any(f.code == "GC202" for f in r.findings)       # the shared stud itself is reported
+    assert any(f.code == "GC202" for f in r.findings)  # the shared stud itself is reported

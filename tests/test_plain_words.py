@@ -1,7 +1,8 @@
-"""No Python value shows in any output: every example rendered in every format (check as text, JSON and SARIF,
-with and without the hum figures; the HTML report; suggest as text and JSON; compare of the plan and its
-suggested fix as text, JSON and HTML; both drawings as SVG and DOT with their messages; explain) is searched
-for None, True, False, nan, inf and a negative zero in the words a reader sees."""
+"""No Python value shows in any output: every example rendered in every format (check as text, JSON
+and SARIF, with and without the hum figures; the HTML report; suggest as text and JSON; compare of
+the plan and its suggested fix as text, JSON and HTML; both drawings as SVG and DOT with their
+messages; explain) is searched for None, True, False, nan, inf and a negative zero in the words a
+reader sees."""
 
 import json
 import re
@@ -13,13 +14,17 @@ import pytest
 from helpers import EXAMPLES, ROOT
 
 PLANS = [*EXAMPLES, *sorted((ROOT / "examples" / "studio").glob("*.gplan"))]
-#: a Python value written into text: the words themselves, or a zero with a minus sign ("-0", "-0.0 dB")
-PYTHON = re.compile(r"(?<![\w.])(None|True|False|nan|NaN|inf|-inf|Infinity|-0(\.0*)?)(?![\w.])"
-                    r"|–\s*dBV?\b")           # and a dash standing where a level should be ("(– dB)")
+#: a Python value written into text: the words themselves, or a zero with a minus sign ("-0", "-0.0
+#: dB")
+PYTHON = re.compile(
+    r"(?<![\w.])(None|True|False|nan|NaN|inf|-inf|Infinity|-0(\.0*)?)(?![\w.])"
+    r"|–\s*dBV?\b"
+)  # and a dash standing where a level should be ("(– dB)")
 
 
 class _Words(HTMLParser):
-    """The text a reader sees in HTML or SVG: text nodes and titles, not attributes, scripts or styles."""
+    """The text a reader sees in HTML or SVG: text nodes and titles, not attributes, scripts or
+    styles."""
 
     def __init__(self):
         super().__init__()
@@ -51,12 +56,15 @@ def _strings(doc) -> list[str]:
 
 
 def _hits(name: str, text: str) -> list[str]:
-    return [f"{name}:{n}: {m.group(0)!r} in {line.strip()[:120]!r}"
-            for n, line in enumerate(text.splitlines(), 1) for m in PYTHON.finditer(line)]
+    return [
+        f"{name}:{n}: {m.group(0)!r} in {line.strip()[:120]!r}"
+        for n, line in enumerate(text.splitlines(), 1)
+        for m in PYTHON.finditer(line)
+    ]
 
 
 def _outputs(cli, path, tmp_path) -> dict[str, str]:
-    work = tmp_path / "plans"                     # a copy, so the fixed plan sits beside its devices
+    work = tmp_path / "plans"  # a copy, so the fixed plan sits beside its devices
     shutil.copytree(path.parent, work)
     p = str(work / path.name)
     out = {f"check {f}": cli("check", p, "--format", f)[1] for f in ("text", "json", "sarif")}
@@ -83,7 +91,7 @@ def _reader_text(kind: str, text: str) -> str:
         return "\n".join(_strings(json.loads(text)))
     if kind.endswith(("html", "svg")):
         return _seen(text)
-    if kind.endswith("dot"):                  # labels and tooltips: the words the drawing will show
+    if kind.endswith("dot"):  # labels and tooltips: the words the drawing will show
         return "\n".join(re.findall(r'(?:label|tooltip)="((?:[^"\\]|\\.)*)"', text))
     return text
 
@@ -107,11 +115,31 @@ def test_no_python_value_in_explain(cli):
 
 
 def test_the_search_finds_what_it_looks_for():
-    # the pattern itself: Python's words and a signed zero are found, ordinary figures and words are not
-    for leak in ("level None dBV", "audible False → True", "(-0.0 dB)", "-0 dB", "nan V", "inf A", "NaN", "(– dB)"):
+    # the pattern itself: Python's words and a signed zero are found, ordinary figures and words
+    # are not
+    for leak in (
+        "level None dBV",
+        "audible False → True",
+        "(-0.0 dB)",
+        "-0 dB",
+        "nan V",
+        "inf A",
+        "NaN",
+        "(– dB)",
+    ):
         assert PYTHON.search(leak), leak
-    for fine in ("-0.05 dB", "0.0 dB", "-10.0 dBV", "information", "Nonesuch", "falsely", "4.0", "a-0.0b",
-                 "a – b, 3 dB"):
+    for fine in (
+        "-0.05 dB",
+        "0.0 dB",
+        "-10.0 dBV",
+        "information",
+        "Nonesuch",
+        "falsely",
+        "4.0",
+        "a-0.0b",
+        "a – b, 3 dB",
+    ):
         assert not PYTHON.search(fine), fine
-    assert _seen("<p>ok <b>None</b></p><style>x{}</style><svg><title>True</title></svg>").split() == [
-        "ok", "None", "True"]
+    assert _seen(
+        "<p>ok <b>None</b></p><style>x{}</style><svg><title>True</title></svg>"
+    ).split() == ["ok", "None", "True"]

@@ -20,14 +20,19 @@ HEAD = next(e for e in EXAMPLES if e.name.startswith("guitar-head"))
 
 
 def _head_variant() -> str:
-    """The guitar head with two more mistakes for the advisor: the transformer's frame clamped under the
-    protective-earth stud (a shared fastener), and the input lead's shield terminated at both ends."""
+    """The guitar head with two more mistakes for the advisor: the transformer's frame clamped
+    under the protective-earth stud (a shared fastener), and the input lead's shield terminated at
+    both ends."""
     text = HEAD.read_text()
-    text = text.replace("metal cover: steel 0.8 mm, 400 x 200 mm, touchable\n",
-                        "metal cover: steel 0.8 mm, 400 x 200 mm, touchable\n"
-                        "metal ptx_frame: steel 1 mm, 80 x 70 mm, at 50,100, internal\n")
-    text = text.replace("bolt pe_nut: pe_stud to chassis\n",
-                        "bolt pe_nut: pe_stud to chassis\nbolt ptx_clamp: ptx_frame to pe_stud, contact 1 mohm\n")
+    text = text.replace(
+        "metal cover: steel 0.8 mm, 400 x 200 mm, touchable\n",
+        "metal cover: steel 0.8 mm, 400 x 200 mm, touchable\nmetal ptx_frame: steel 1 mm, 80 x 70 "
+        "mm, at 50,100, internal\n",
+    )
+    text = text.replace(
+        "bolt pe_nut: pe_stud to chassis\n",
+        "bolt pe_nut: pe_stud to chassis\nbolt ptx_clamp: ptx_frame to pe_stud, contact 1 mohm\n",
+    )
     return text + "shield in_shield: in_sleeve to v1_k, 95 mm, 0.2 mm2, terminated both\n"
 
 
@@ -43,18 +48,28 @@ def test_dual_mono_suggestions_clear_each_planted_mistake():
     before, evs = _suggest(DUAL)
     best = evs[0]
     assert not best.rejected
-    # the left channel's loop pickup (-86 dBV) is the largest hum: opening the loop at the second bond ranks first
-    assert best.candidate.title.startswith("remove arm_gnd") and not {"GC101", "GC105"} & _codes_after(best)  # 1
-    # the shared filter return is a note (-105 dBV at the right output, below the contributor level), still cleared;
-    # of the changes that gain as much, the smaller one ranks first: the equalisation ground's own 36 mm wire
-    # to its star, not a 54 mm re-route of the supply's wiring (lengths: straight route + 20 %, by hand from
-    # right.eq_gnd 255,170 to right.star 260,200: 30.4 mm x 1.2 = 36 mm)
+    # the left channel's loop pickup (-86 dBV) is the largest hum: opening the loop at the second
+    # bond ranks first
+    assert best.candidate.title.startswith("remove arm_gnd") and not {
+        "GC101",
+        "GC105",
+    } & _codes_after(best)  # 1
+    # the shared filter return is a note (-105 dBV at the right output, below the contributor
+    # level), still cleared; of the changes that gain as much, the smaller one ranks first: the
+    # equalisation ground's own 36 mm wire to its star, not a 54 mm re-route of the supply's wiring
+    # (lengths: straight route + 20 %, by hand from right.eq_gnd 255,170 to right.star 260,200:
+    # 30.4 mm x 1.2 = 36 mm)
     shared = [e for e in evs if not e.rejected and e.candidate.reason == "GC102"]
-    assert shared[0].candidate.title.startswith("take right.eq_gnd to right.star")                 # planted mistake 3
+    assert shared[0].candidate.title.startswith(
+        "take right.eq_gnd to right.star"
+    )  # planted mistake 3
     assert round(shared[0].candidate.wire, 3) == 0.036 and "GC102" not in _codes_after(shared[0])
-    assert any(not e.rejected and "right_out" in e.candidate.title
-               and not [f for f in e.result.findings if f.code == "GC103" and "right.star" in f.elements]
-               for e in evs)                                                                 # planted mistake 2
+    assert any(
+        not e.rejected
+        and "right_out" in e.candidate.title
+        and not [f for f in e.result.findings if f.code == "GC103" and "right.star" in f.elements]
+        for e in evs
+    )  # planted mistake 2
     # the equalisation ground goes to its own channel's star, not to the nearest star by hops
     assert any("take right.eq_gnd to right.star" in e.candidate.title for e in evs)
 
@@ -62,29 +77,40 @@ def test_dual_mono_suggestions_clear_each_planted_mistake():
 def test_headphone_suggestions_clear_each_planted_mistake():
     before, evs = _suggest(HEADPHONE)
     useful = [e for e in evs if not e.rejected]
-    assert useful[0].candidate.reason == "GC206"                          # a danger cleared ranks first (mistake 1)
-    join = next(e for e in useful if e.candidate.title.startswith("join br_neg straight to res_0v"))   # mistake 2
+    assert useful[0].candidate.reason == "GC206"  # a danger cleared ranks first (mistake 1)
+    join = next(
+        e for e in useful if e.candidate.title.startswith("join br_neg straight to res_0v")
+    )  # mistake 2
     assert not {"GC102", "GC301", "GC303"} & _codes_after(join)
-    assert any("hp_gnd" in e.candidate.title and "GC304" not in _codes_after(e) for e in useful)   # mistake 3
+    assert any(
+        "hp_gnd" in e.candidate.title and "GC304" not in _codes_after(e) for e in useful
+    )  # mistake 3
 
 
 def test_a_poorly_bonded_panel_gets_a_protective_wire_of_its_own(tmp_path):
-    # mistake 1 of the headphone amplifier: the front panel's only protective path is 4 ohm of anodised threads
+    # mistake 1 of the headphone amplifier: the front panel's only protective path is 4 ohm of
+    # anodised threads
     before, evs = _suggest(HEADPHONE)
     (e,) = [e for e in evs if e.candidate.title.startswith("bond front by a protective wire")]
     assert not e.rejected and e.candidate.reason == "GC206"
     after = _codes_after(e)
-    assert "GC206" not in after and "GC202" not in after           # the inlet's stud keeps its fastener to itself
-    new = load_text(apply_edits(HEADPHONE.read_text(), e.candidate.edits),
-                    str(tmp_path / "h.gplan"), root=HEADPHONE.parent)
+    assert (
+        "GC206" not in after and "GC202" not in after
+    )  # the inlet's stud keeps its fastener to itself
+    new = load_text(
+        apply_edits(HEADPHONE.read_text(), e.candidate.edits),
+        str(tmp_path / "h.gplan"),
+        root=HEADPHONE.parent,
+    )
     wire = next(c for c in new.conductors if c.name == "front_pe_bond")
     assert wire.role == "protective" and wire.area >= new.mains.line_area
-    # its length: the straight line between its two new studs plus the stated 20 %, to the millimetre
+    # its length: the straight line between its two new studs plus the stated 20 %, to the
+    # millimetre
     a, b = new.point("case_bond").pos, new.point("front_pe").pos
     assert wire.length == pytest.approx(round(math.dist(a, b) * 1.2, 3), abs=1e-3)
     assert new.point("case_bond").on == "case" and new.point("front_pe").on == "front"
     front = next(p for p in analyze(new).safety.parts if p.part == "front")
-    assert front.path_resistance < 0.1                               # the default limit, 0.1 ohm
+    assert front.path_resistance < 0.1  # the default limit, 0.1 ohm
     # the old contact stays: nothing protective is removed
     assert any(c.name == "front_screws" for c in new.conductors)
 
@@ -92,10 +118,16 @@ def test_a_poorly_bonded_panel_gets_a_protective_wire_of_its_own(tmp_path):
 def test_guitar_head_suggestions_answer_its_planted_mistakes():
     before, evs = _suggest(HEAD)
     useful = [e for e in evs if not e.rejected]
-    assert any(e.candidate.title.startswith("join filt_neg straight to res_neg") and "GC102" not in _codes_after(e)
-               for e in useful)                                                            # mistake 1
-    assert any(e.candidate.title.startswith("insulate jack_nut") and not {"GC101", "GC105"} & _codes_after(e)
-               for e in useful)                                                            # mistake 2
+    assert any(
+        e.candidate.title.startswith("join filt_neg straight to res_neg")
+        and "GC102" not in _codes_after(e)
+        for e in useful
+    )  # mistake 1
+    assert any(
+        e.candidate.title.startswith("insulate jack_nut")
+        and not {"GC101", "GC105"} & _codes_after(e)
+        for e in useful
+    )  # mistake 2
 
 
 def test_advisor_gives_the_protective_earth_its_own_stud_and_weighs_lifting_a_shield(tmp_path):
@@ -103,12 +135,13 @@ def test_advisor_gives_the_protective_earth_its_own_stud_and_weighs_lifting_a_sh
     assert {"GC202", "GC108"} <= {f.code for f in before.findings}
     useful = [e for e in evs if not e.rejected]
     assert any("GC202" not in _codes_after(e) for e in useful)
-    # the transformer drives a current I round chassis – jack_nut – in_sleeve – star – bond_stud; at in_sleeve it
-    # splits between in_gnd (150 mm of 0.5 mm², 5.17 mΩ) and the shield with k_gnd (95 mm of 0.2 mm², 8.19 mΩ, and
-    # 90 mm of 0.5 mm², 3.10 mΩ; copper 17.241 nΩ·m, IEC 60028).  The stage reads the drop along its least-resistance
-    # path from in_sleeve to v1_k, the shield: 5.17/(5.17 + 8.19 + 3.10) · 8.19 mΩ · I = 2.57 mΩ · I.  Lifted, the
-    # whole current runs in in_gnd and k_gnd carries none: 5.17 mΩ · I, about 6 dB louder (current division and
-    # Ohm's law by hand).  So the lift clears GC108 and is rejected as louder.
+    # the transformer drives a current I round chassis – jack_nut – in_sleeve – star – bond_stud;
+    # at in_sleeve it splits between in_gnd (150 mm of 0.5 mm², 5.17 mΩ) and the shield with k_gnd
+    # (95 mm of 0.2 mm², 8.19 mΩ, and 90 mm of 0.5 mm², 3.10 mΩ; copper 17.241 nΩ·m, IEC 60028).
+    # The stage reads the drop along its least-resistance path from in_sleeve to v1_k, the shield:
+    # 5.17/(5.17 + 8.19 + 3.10) · 8.19 mΩ · I = 2.57 mΩ · I.  Lifted, the whole current runs in
+    # in_gnd and k_gnd carries none: 5.17 mΩ · I, about 6 dB louder (current division and Ohm's law
+    # by hand).  So the lift clears GC108 and is rejected as louder.
     (lift,) = [e for e in evs if e.candidate.title.startswith("terminate shield in_shield")]
     assert "GC108" not in _codes_after(lift) and lift.rejected and "louder" in lift.rejected
 
@@ -155,7 +188,8 @@ def test_loop_closed_by_the_protective_earth_gets_no_suggestion_touching_it(tmp_
     plan = load(p)
     result = analyze(plan)
     assert result.loop_total == 1
-    # both leads and both studs' nuts carry the protective earth: nothing of the loop is offered for opening
+    # both leads and both studs' nuts carry the protective earth: nothing of the loop is offered
+    # for opening
     assert {"pe_a", "pe_b", "n1", "n2"} <= result.protective
     assert [lp.open_at for lp in result.loops] == [""]
     assert candidates(plan, result, PE_ONLY_LOOP) == []
@@ -183,7 +217,9 @@ def test_compare_with_itself_reports_no_change():
 
 def test_greedy_search_reaches_the_goal_on_examples():
     for path in (DUAL, HEADPHONE):
-        chosen, final, text = greedy(load(path), path.read_text(), Options(), path.resolve().parent, path.resolve())
+        chosen, final, text = greedy(
+            load(path), path.read_text(), Options(), path.resolve().parent, path.resolve()
+        )
         assert chosen
         assert not any(f.severity in ("danger", "fault") for f in final.findings)
         assert all(h.audible is not True for h in final.hum.channels.values())
@@ -195,15 +231,19 @@ def test_suggest_apply_and_compare_commands(cli, tmp_path):
     code, text, err = cli("suggest", str(HEADPHONE), "--apply", str(out))
     assert code == 0 and "Combined" in text and out.exists()
     code, _, err = cli("suggest", str(DUAL), "--apply", str(out))
-    assert code == 2 and "--force" in err                       # refused before any analysis
+    assert code == 2 and "--force" in err  # refused before any analysis
     code, _, err = cli("suggest", str(DUAL), "--apply", str(DUAL), "--force")
-    assert code == 2 and DUAL.read_text().startswith("#")      # never over the plan itself, even with --force
+    assert code == 2 and DUAL.read_text().startswith(
+        "#"
+    )  # never over the plan itself, even with --force
     code, _, err = cli("suggest", str(DUAL), "--pick", "1")
     assert code == 2 and "--apply" in err
     code, text, _ = cli("compare", str(HEADPHONE), str(out), "--format", "json")
     d = json.loads(text)
     assert code == 0 and any(f["code"] == "GC102" for f in d["findings"]["fixed"])
-    assert d["hum"]["left"]["audible_before"] is True and d["hum"]["left"]["audible_after"] is False
+    assert (
+        d["hum"]["left"]["audible_before"] is True and d["hum"]["left"]["audible_after"] is False
+    )
     code, text, _ = cli("compare", str(HEADPHONE), str(out))
     assert "fixed" in text and "Hum, left" in text
     code, text, _ = cli("compare", str(HEADPHONE), str(out), "--format", "html")
@@ -218,11 +258,13 @@ def test_installation_suggestions_work_on_the_signal_side():
     before, evs = _suggest(studio)
     useful = [e for e in evs if not e.rejected]
     bal = next(e for e in useful if e.candidate.title == "use a balanced interconnect for mix_out")
-    assert bal.hum_change_db["monitors"] < -40                 # 50 dB common-mode rejection assumed
+    assert bal.hum_change_db["monitors"] < -40  # 50 dB common-mode rejection assumed
     # nothing re-routes or removes a cable or a protective conductor
     for e in useful:
         assert "cord" not in e.candidate.title and "run_" not in e.candidate.title
-    chosen, final, _ = greedy(load(studio), studio.read_text(), Options(), studio.resolve().parent, studio.resolve())
+    chosen, final, _ = greedy(
+        load(studio), studio.read_text(), Options(), studio.resolve().parent, studio.resolve()
+    )
     assert all(h.audible is not True for h in final.hum.channels.values())
 
 
@@ -255,7 +297,9 @@ def test_role_less_protective_wire_is_never_touched(tmp_path):
     before, evs = _evs(ROLELESS_PE, tmp_path)
     assert "pe_lead" in before.protective
     assert any(f.code == "GC209" for f in before.findings)
-    pe_line = ROLELESS_PE.split("\n").index("wire pe_lead: mains.pe to pe_stud, 60 mm, 0.75 mm2") + 1
+    pe_line = (
+        ROLELESS_PE.split("\n").index("wire pe_lead: mains.pe to pe_stud, 60 mm, 0.75 mm2") + 1
+    )
     for e in evs:
         if any(ed.line == pe_line for ed in e.candidate.edits):
             assert e.rejected, e.candidate.title
@@ -280,33 +324,36 @@ def test_role_less_building_runs_stay_on_the_protective_route(tmp_path):
 
 def test_suggestions_read_as_levels(tmp_path):
     from groundcheck.advice.report import suggestions_text
+
     before, evs = _evs(ROLELESS_PE, tmp_path)
     text = suggestions_text(before.plan, ROLELESS_PE, "plan.gplan", evs, [], before, "caution")
     assert "finding(s)" not in text
 
 
 def test_uninsulated_socket_is_insulated_not_unwired(tmp_path):
-    # the trade's fix for a socket bonded to the chassis: insulate the socket, keep its ground wire and the
-    # one bond next to the protective-earth stud (common practice)
+    # the trade's fix for a socket bonded to the chassis: insulate the socket, keep its ground wire
+    # and the one bond next to the protective-earth stud (common practice)
     before, evs = _evs(ROLELESS_PE, tmp_path)
     (f,) = [f for f in before.findings if f.code == "GC105"]
     assert f.actions == (("insulate", "jack_nut"),)
     assert "keep the bond at gnd_lug" in f.fix and "insulate jack_nut" in f.fix
     useful = [e for e in evs if not e.rejected]
     assert useful[0].candidate.title.startswith("insulate jack_nut")
-    assert not any("in_gnd" in e.candidate.title or "star_bond" in e.candidate.title for e in useful)
+    assert not any(
+        "in_gnd" in e.candidate.title or "star_bond" in e.candidate.title for e in useful
+    )
 
 
 def test_statement_over_two_lines_is_edited_by_its_spans(tmp_path):
-    # the shield statement continues on a second line: the 'terminate at one end' candidate still appears,
-    # and only the words 'terminated both' change
+    # the shield statement continues on a second line: the 'terminate at one end' candidate still
+    # appears, and only the words 'terminated both' change
     text = _head_variant()
     line = next(x for x in text.split("\n") if x.startswith("shield in_shield:"))
     head, tail = line.split(", ", 1)
     text = text.replace(line, head + ",\n    " + tail)
     before, evs = _evs(text, tmp_path, "head.gplan")
     (e,) = [e for e in evs if e.candidate.title.startswith("terminate shield in_shield")]
-    assert "GC108" not in _codes_after(e)          # weighed (and rejected as louder: see the test above)
+    assert "GC108" not in _codes_after(e)  # weighed (and rejected as louder: see the test above)
     new = apply_edits(text, e.candidate.edits)
     assert new.count("\n") == text.count("\n") and "terminated v1_k" in new
 
@@ -321,7 +368,10 @@ def test_new_protective_stud_is_clear_of_the_transformer(tmp_path):
     frame = p.metal("ptx_frame")
     assert p.metal("chassis").contains(stud.pos) and not frame.contains(stud.pos)
     others = [q for q in p.points if q.pos is not None and q.name != "pe_stud2"]
-    assert min(((q.pos[0] - stud.pos[0]) ** 2 + (q.pos[1] - stud.pos[1]) ** 2) ** 0.5 for q in others) >= 15e-3
+    assert (
+        min(((q.pos[0] - stud.pos[0]) ** 2 + (q.pos[1] - stud.pos[1]) ** 2) ** 0.5 for q in others)
+        >= 15e-3
+    )
     lead = next(c for c in p.conductors if c.name == "pe_lead")
     # straight line from the inlet to the stud, plus the stated 20 % allowance
     inlet = p.point("mains.pe").pos
@@ -331,7 +381,8 @@ def test_new_protective_stud_is_clear_of_the_transformer(tmp_path):
 
 
 HEAD_PLAN = """plan "Guitar head, TT supply (trial)"
-mains 120 V 60 Hz, fuse 3.15 A slow, line-conductor 18 AWG, cord 2.5 m 18 AWG, system TT, loop-impedance 12 ohm,
+mains 120 V 60 Hz, fuse 3.15 A slow, line-conductor 18 AWG, cord 2.5 m 18 AWG, system TT, \
+loop-impedance 12 ohm,
       inlet at 10,150
 metal chassis: steel 1.2 mm, 450 x 180 mm, touchable
 metal back_panel: steel 1 mm, 450 x 60 mm, touchable
@@ -343,12 +394,15 @@ wire panel_lead: pe_stud to back_panel, 150 mm, 22 AWG
 
 
 def test_protective_fixes_are_proposed_and_applied(tmp_path):
-    # a role-less, thin bonding lead sharing the protective stud: the advisor thickens it to the next standard
-    # size (IEC 60228 series) at least the line conductor's, and gives the protective earth a stud of its own
-    # (the bonding path grows by a few milliohms, still far within the 0.1 ohm limit)
+    # a role-less, thin bonding lead sharing the protective stud: the advisor thickens it to the
+    # next standard size (IEC 60228 series) at least the line conductor's, and gives the protective
+    # earth a stud of its own (the bonding path grows by a few milliohms, still far within the 0.1
+    # ohm limit)
     before, evs = _evs(HEAD_PLAN, tmp_path, "head.gplan")
     useful = {e.candidate.reason: e for e in evs if not e.rejected}
-    assert "use 1 mm²" in useful["GC204"].candidate.title and "GC204" not in _codes_after(useful["GC204"])
+    assert "use 1 mm²" in useful["GC204"].candidate.title and "GC204" not in _codes_after(
+        useful["GC204"]
+    )
     assert "GC202" not in _codes_after(useful["GC202"])
     assert all(p.path_resistance < 0.1 for p in useful["GC202"].result.safety.parts)
     # panel_lead is protective by topology: never removed, whatever else is tried
@@ -357,8 +411,9 @@ def test_protective_fixes_are_proposed_and_applied(tmp_path):
 
 @pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])
 def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
-    # the fix line of a finding and the advisor come from the same structured actions: for every action of every
-    # finding the advisor makes a candidate naming the same element (one source of truth)
+    # the fix line of a finding and the advisor come from the same structured actions: for every
+    # action of every finding the advisor makes a candidate naming the same element (one source of
+    # truth)
     before = analyze(load(path))
     titles = [c.title for c in candidates(load(path), before, path.read_text())]
     for f in before.findings:
@@ -370,19 +425,25 @@ def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
 
 @pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])
 def test_every_fix_line_is_rechecked_by_the_advisor(path):
-    # the repair a finding's fix line names is tried by the advisor on the plan, and it clears that finding:
-    # a fix that would not clear its finding would show up here
+    # the repair a finding's fix line names is tried by the advisor on the plan, and it clears that
+    # finding: a fix that would not clear its finding would show up here
     from groundcheck.advice.repair import _label
+
     before, evs = _suggest(path)
     for f in before.findings:
         for action in f.actions:
             tried = [e for e in evs if action[1] in e.candidate.title and not e.rejected]
-            assert any(_label(f) in e.cleared for e in tried), (f.code, action, [e.candidate.title for e in tried])
+            assert any(_label(f) in e.cleared for e in tried), (
+                f.code,
+                action,
+                [e.candidate.title for e in tried],
+            )
 
 
 def test_filter_capacitor_return_is_joined_to_the_reservoir(tmp_path):
-    # a CRC supply whose second capacitor's negative lands on the cathode pad: the trade's fix is a wire of its
-    # own from the filter capacitor's negative to the reservoir's (common practice), and it clears GC102
+    # a CRC supply whose second capacitor's negative lands on the cathode pad: the trade's fix is a
+    # wire of its own from the filter capacitor's negative to the reservoir's (common practice),
+    # and it clears GC102
     text = """plan "CRC head (trial)"
 listening output 5 V, speaker 100 dB, distance 1 m, impedance 16 ohm
 metal chassis: steel 1.2 mm, 400 x 200 mm, touchable
@@ -428,48 +489,85 @@ def test_an_unbonded_touchable_part_gets_a_protective_wire(tmp_path):
     assert not e.rejected and not any(f.severity == "danger" for f in e.result.findings)
     new = apply_edits(UNBONDED_LID, e.candidate.edits)
     assert "wire lid_pe_bond: deck_bond to lid_pe" in new
-    assert [x for x in new.split("\n") if x in UNBONDED_LID.split("\n")] == UNBONDED_LID.split("\n")   # only added
+    assert [x for x in new.split("\n") if x in UNBONDED_LID.split("\n")] == UNBONDED_LID.split(
+        "\n"
+    )  # only added
 
 
 def test_a_channel_star_chained_through_the_other_channels_star(tmp_path):
-    # the phono stage with its right channel's star wired to the left channel's star instead of the supply star
-    text = DUAL.read_text().replace("wire right_link: right.star to psu_star, 140 mm, 0.75 mm2, signal",
-                                    "wire right_link: right.star to left.star, 120 mm, 0.75 mm2, signal")
+    # the phono stage with its right channel's star wired to the left channel's star instead of the
+    # supply star
+    text = DUAL.read_text().replace(
+        "wire right_link: right.star to psu_star, 140 mm, 0.75 mm2, signal",
+        "wire right_link: right.star to left.star, 120 mm, 0.75 mm2, signal",
+    )
     before, evs = _evs(text, tmp_path, "chain.gplan")
     (f,) = [f for f in before.findings if f.code == "GC103" and "left.star" in f.elements]
-    assert f.location.line == text.split("\n").index(next(x for x in text.split("\n")
-                                                           if x.startswith("wire right_link"))) + 1
+    assert (
+        f.location.line
+        == text.split("\n").index(
+            next(x for x in text.split("\n") if x.startswith("wire right_link"))
+        )
+        + 1
+    )
     assert "right.star reaches psu_star only through left.star" in f.message
     assert f.actions == (("reroute", "right_link", "psu_star"),)
-    (e,) = [e for e in evs if e.candidate.title.startswith("run right.star to psu_star by its own wire")]
-    assert not e.rejected and not any(g.code == "GC103" and "left.star" in g.elements for g in e.result.findings)
+    (e,) = [
+        e
+        for e in evs
+        if e.candidate.title.startswith("run right.star to psu_star by its own wire")
+    ]
+    assert not e.rejected and not any(
+        g.code == "GC103" and "left.star" in g.elements for g in e.result.findings
+    )
     # its new length: right.star (260,200) to psu_star (150,160), 117.0 mm straight, + 20 %: 140 mm
     assert "right_link: right.star to psu_star, 140 mm" in apply_edits(text, e.candidate.edits)
-    # the phono stage as written (each channel star on its own wire to the supply star) has no such finding
-    assert not any(g.code == "GC103" and "left.star" in g.elements for g in analyze(load(DUAL)).findings)
+    # the phono stage as written (each channel star on its own wire to the supply star) has no such
+    # finding
+    assert not any(
+        g.code == "GC103" and "left.star" in g.elements for g in analyze(load(DUAL)).findings
+    )
 
 
 BOOTH = EXAMPLES[0].parents[1] / "tests" / "plans" / "booth" / "podcast-booth.gplan"
 
 
 def test_advice_that_makes_a_channel_hum_louder_or_gains_nothing_is_rejected_not_suggested():
-    """The podcast booth (two preamps on one outlet, the mixer and a class II laptop on another): a ground-lift
-    network in the mixer breaks its shields' loops but sends the flat cable's induced current through its signal
-    ground (louder); one in the class II laptop changes nothing. Both are listed as considered and rejected."""
+    """The podcast booth (two preamps on one outlet, the mixer and a class II laptop on another): a
+    ground-lift network in the mixer breaks its shields' loops but sends the flat cable's induced
+    current through its signal ground (louder); one in the class II laptop changes nothing. Both
+    are listed as considered and rejected."""
     import dataclasses
     from groundcheck.advice.repair import evaluate
+
     before, evs = _suggest(BOOTH)
     by_title = {e.candidate.title: e for e in evs}
-    mixer = by_title["give mixer a ground-lift network between its signal ground and chassis (never the protective "
-                     "earth)"]
-    laptop = by_title["give laptop a ground-lift network between its signal ground and chassis (never the "
-                      "protective earth)"]
+    mixer = by_title[
+        "give mixer a ground-lift network between its signal ground and chassis (never the "
+        "protective earth)"
+    ]
+    laptop = by_title[
+        "give laptop a ground-lift network between its signal ground and chassis (never the "
+        "protective earth)"
+    ]
     # both are bought equipment ('device ...: simple'): considered, never tried (issue 29)
-    assert mixer.rejected.startswith("mixer is bought equipment") and laptop.rejected.startswith("laptop is bought")
-    # tried all the same, the mixer's makes the host louder and the laptop's gains nothing: both rejected
-    tried = {n: evaluate(BOOTH.read_text(), load(BOOTH), before, dataclasses.replace(e.candidate, refused=""),
-                         Options(), BOOTH.resolve().parent, BOOTH.resolve()) for n, e in (("mixer", mixer),
-                                                                                          ("laptop", laptop))}
+    assert mixer.rejected.startswith("mixer is bought equipment") and laptop.rejected.startswith(
+        "laptop is bought"
+    )
+    # tried all the same, the mixer's makes the host louder and the laptop's gains nothing: both
+    # rejected
+    tried = {
+        n: evaluate(
+            BOOTH.read_text(),
+            load(BOOTH),
+            before,
+            dataclasses.replace(e.candidate, refused=""),
+            Options(),
+            BOOTH.resolve().parent,
+            BOOTH.resolve(),
+        )
+        for n, e in (("mixer", mixer), ("laptop", laptop))
+    }
     assert tried["mixer"].rejected.startswith("it would make the host hum")
     assert max(tried["mixer"].hum_change_db.values()) > 0.5
     assert tried["laptop"].rejected.startswith("no predicted gain")
@@ -486,9 +584,10 @@ def test_a_loop_through_two_outlets_closed_by_a_balanced_link_is_not_told_to_use
 
 
 def test_a_loop_through_two_outlets_is_answered_by_plugging_the_devices_in_together():
-    """The booth's mixer plugged in beside the preamps: the loops of its balanced links no longer run through the
-    building's protective wiring, where the loaded flat cable induces 4.7 mV, so both channels lose most of their
-    hum; the edit changes only the plug point (the mixer's earth path is checked again, GC215)."""
+    """The booth's mixer plugged in beside the preamps: the loops of its balanced links no longer
+    run through the building's protective wiring, where the loaded flat cable induces 4.7 mV, so
+    both channels lose most of their hum; the edit changes only the plug point (the mixer's earth
+    path is checked again, GC215)."""
     before, evs = _suggest(BOOTH)
     best = evs[0]
     assert not best.rejected and best.candidate.moves_plug
@@ -500,15 +599,20 @@ def test_a_loop_through_two_outlets_is_answered_by_plugging_the_devices_in_toget
 
 
 def test_a_device_on_an_unwired_outlet_is_plugged_in_where_the_earth_path_is_sound_first(tmp_path):
-    """The amplifier's outlet has no protective wiring (GC215, a danger); the first suggestion plugs it in beside
-    the keyboard, whose earth path is sound, and says the broken outlet still needs repair. Its hum also falls, as
-    its leakage no longer reaches the earth through the interconnect's shield."""
+    """The amplifier's outlet has no protective wiring (GC215, a danger); the first suggestion
+    plugs it in beside the keyboard, whose earth path is sound, and says the broken outlet still
+    needs repair. Its hum also falls, as its leakage no longer reaches the earth through the
+    interconnect's shield."""
     path = tmp_path / "corner.gplan"
-    path.write_text('plan "rehearsal corner"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
-                    "point wall: outlet\npoint spare: outlet\nwire run: wall to met, 15 m, 2.5 mm2, protective\n"
-                    "device amp: simple, plugged spare\ndevice keys: simple, plugged wall\n"
-                    "interconnect k: keys.gnd to amp.gnd, 3 m, 0.1 mm2, terminated both, unbalanced, gain 10 dB, "
-                    "channel main\n")
+    path.write_text(
+        'plan "rehearsal corner"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
+        "point wall: outlet\npoint spare: outlet\nwire run: wall to met, 15 m, 2.5 mm2, "
+        "protective\n"
+        "device amp: simple, plugged spare\ndevice keys: simple, plugged wall\n"
+        "interconnect k: keys.gnd to amp.gnd, 3 m, 0.1 mm2, terminated both, unbalanced, gain 10 "
+        "dB, "
+        "channel main\n"
+    )
     before, evs = _suggest(path)
     assert any(f.code == "GC215" and f.severity == "danger" for f in before.findings)
     best = evs[0]
@@ -518,4 +622,7 @@ def test_a_device_on_an_unwired_outlet_is_plugged_in_where_the_earth_path_is_sou
     assert "GC215" not in _codes_after(best) and best.hum_change_db["main"] < 0
     # the outlet left empty is still reported as unwired, as an outlet
     (left,) = [f for f in best.result.findings if f.code == "GC109"]
-    assert left.message == "outlet spare does not reach the main earthing terminal" and "repaired" in left.fix
+    assert (
+        left.message == "outlet spare does not reach the main earthing terminal"
+        and "repaired" in left.fix
+    )

@@ -1,7 +1,7 @@
-"""The repair advisor inside a device's own plan: a phono stage whose supply box sends the rectifier's centre
-tap and reservoir negative down the umbilical on separate wires (a trial plan of our own), so that the charging
-current crosses into the phono stage and through its cathode wire.  The trade's fix is inside the supply box:
-join the two ends there (common practice)."""
+"""The repair advisor inside a device's own plan: a phono stage whose supply box sends the
+rectifier's centre tap and reservoir negative down the umbilical on separate wires (a trial plan of
+our own), so that the charging current crosses into the phono stage and through its cathode wire.
+The trade's fix is inside the supply box: join the two ends there (common practice)."""
 
 import json
 import shutil
@@ -45,7 +45,7 @@ def test_apply_writes_a_changed_copy_and_never_the_device_plan(cli, tmp_path):
     copy = tmp_path / "fixed.supply-box.gplan"
     assert copy.exists() and device.read_bytes() == original
     assert 'device psu: "fixed.supply-box.gplan"' in out.read_text()
-    shutil.copytree(path.parent / "devices", tmp_path / "devices")     # the new plan's library folder
+    shutil.copytree(path.parent / "devices", tmp_path / "devices")  # the new plan's library folder
     code, text, _ = cli("check", str(out), "--format", "json")
     assert code == 0 and not {"GC102", "GC303"} & {f["code"] for f in json.loads(text)["findings"]}
     out.unlink()

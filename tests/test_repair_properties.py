@@ -43,13 +43,13 @@ def chassis_plans(draw):
     area = st.sampled_from(["0.5 mm2", "0.75 mm2", "1 mm2", "18 AWG"])
     lines = [
         'plan "generated chassis"',
-        f"mains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2{draw(SUPPLIES)}, "
-        "inlet at 10,100",
+        f"mains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2{draw(SUPPLIES)}, inlet at "
+        "10,100",
         "metal deck: steel 1 mm, 300 x 200 mm, touchable",
-        f"point pe_stud: stud, at {draw(st.integers(15, 60))},{draw(st.integers(110, 190))} on deck",
+        f"point pe_stud: stud, at {draw(st.integers(15, 60))},{draw(st.integers(110, 190))} on "
+        "deck",
         f"wire pe_lead: mains.pe to pe_stud, {draw(st.integers(30, 120))} mm, "
-        f"{draw(area)}{draw(role)}"
-        f"{draw(st.sampled_from(['', '  # green-yellow, crimped']))}",
+        f"{draw(area)}{draw(role)}{draw(st.sampled_from(['', '  # green-yellow, crimped']))}",
         "bolt pe_nut: pe_stud to deck",
         f"point star: star, at {draw(st.integers(100, 200))},{draw(st.integers(50, 150))} on deck",
         "point sleeve: sleeve, at 290,40 on deck",
@@ -79,10 +79,11 @@ def chassis_plans(draw):
         lines += [
             "point res_neg: cap, at 60,60 on deck",
             "point ct: centre-tap, at 40,40 on deck",
-            f"wire ct_lead: ct to {draw(st.sampled_from(['star', 'res_neg']))}, 80 mm, 0.5 mm2, return",
+            f"wire ct_lead: ct to {draw(st.sampled_from(['star', 'res_neg']))}, 80 mm, 0.5 mm2, "
+            "return",
             "wire sup_gnd: res_neg to star, 100 mm, 0.75 mm2, return",
-            "rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, "
-            "load 20 mA",
+            "rectifier hv: res_neg to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir "
+            "47 uF, load 20 mA",
             "field ptx: transformer, at 50,50, 40 uT at 5 cm",
         ]
     return "\n".join(lines) + "\n"
@@ -114,7 +115,6 @@ def test_no_suggestion_changes_a_protective_conductor(text):
             if frozenset((new.a, new.b)) != frozenset((c.a, c.b)):
                 pe_fix = RULES[ev.candidate.reason].family == PROTECTIVE_EARTH
                 assert pe_fix and name in ev.result.protective, ev.candidate.title
-
 
 
 # --- issue 29, item 7: the advisor's four promises over generated plans

@@ -1,4 +1,5 @@
-"""Bad, hostile and numerically awkward input: nothing crashes, nothing is lost, same bytes every run."""
+"""Bad, hostile and numerically awkward input: nothing crashes, nothing is lost, same bytes every
+run."""
 
 import json
 import math
@@ -28,8 +29,9 @@ def protective_figures(p):
 
 
 def _outcome(text):
-    """Either a full analysis rendered to JSON, or PlanErrors with file:line:col messages (from loading, or from the
-    analysis: a rectifier whose figures have no steady state, such as a load current its winding cannot supply)."""
+    """Either a full analysis rendered to JSON, or PlanErrors with file:line:col messages (from
+    loading, or from the analysis: a rectifier whose figures have no steady state, such as a load
+    current its winding cannot supply)."""
     try:
         p = load_text(text, "fuzz.gplan")
         result = analyze(p)
@@ -57,7 +59,9 @@ def test_fuzz_mutated_plans(text):
     _outcome(text)
 
 
-# --- limits: each with a clear error ---------------------------------------------------------------
+# --- limits: each with a clear error
+# ---------------------------------------------------------------
+
 
 def test_line_length_limit():
     with pytest.raises(PlanErrors) as e:
@@ -75,7 +79,8 @@ def test_file_size_limit(tmp_path, monkeypatch):
 
 
 def test_expansion_explosion_is_stopped():
-    # a block placing a block placing a block ...: 2^8 copies at depth 8; the element limit stops it early
+    # a block placing a block placing a block ...: 2^8 copies at depth 8; the element limit stops
+    # it early
     blocks = ["block b0 {\n  point p: pad\n}"]
     for i in range(1, 8):
         blocks.append(f"block b{i} {{\n  place b{i - 1} as x\n  place b{i - 1} as y\n}}")
@@ -110,7 +115,8 @@ def test_include_depth_limit(tmp_path):
     assert "includes nested deeper than" in str(e.value)
 
 
-# --- numerical edge cases ---------------------------------------------------------------------------
+# --- numerical edge cases
+# ---------------------------------------------------------------------------
 
 EDGE = {
     "zero impedances": """
@@ -207,14 +213,20 @@ def test_no_protective_earth_is_a_danger():
     assert any(f.code == "GC201" and f.severity == "danger" for f in r.findings)
 
 
-# --- outputs are safe -------------------------------------------------------------------------------
+# --- outputs are safe
+# -------------------------------------------------------------------------------
+
 
 def test_atomic_write_leaves_nothing_else(cli, tmp_path):
     out = tmp_path / "r.json"
-    code, _, _ = cli("check", str(EXAMPLES[0]), "--format", "json", "-o", str(out), "--fail-on", "danger")
+    code, _, _ = cli(
+        "check", str(EXAMPLES[0]), "--format", "json", "-o", str(out), "--fail-on", "danger"
+    )
     assert code == 0 and json.loads(out.read_text())
     assert sorted(p.name for p in tmp_path.iterdir()) == ["r.json"]
-    code, _, err = cli("check", str(EXAMPLES[0]), "--format", "json", "-o", str(tmp_path / "nodir" / "r.json"))
+    code, _, err = cli(
+        "check", str(EXAMPLES[0]), "--format", "json", "-o", str(tmp_path / "nodir" / "r.json")
+    )
     assert code == 2 and "does not exist" in err and not (tmp_path / "nodir").exists()
 
 
@@ -222,14 +234,18 @@ def test_refuses_every_output_over_the_plan(cli, tmp_path):
     p = tmp_path / "p.gplan"
     p.write_text(EXAMPLES[1].read_text())
     before = p.read_bytes()
-    for argv in (["check", str(p), "--format", "sarif", "-o", str(p)], ["draw", str(p), "-o",
-                                                                        str(tmp_path / "p.gplan.svg")],
-                 ["report", str(p), "-o", str(p)], ["export", str(p), "--spice", "-o", str(p)]):
+    for argv in (
+        ["check", str(p), "--format", "sarif", "-o", str(p)],
+        ["draw", str(p), "-o", str(tmp_path / "p.gplan.svg")],
+        ["report", str(p), "-o", str(p)],
+        ["export", str(p), "--spice", "-o", str(p)],
+    ):
         cli(*argv)
     assert p.read_bytes() == before
 
 
-# --- determinism -------------------------------------------------------------------------------------
+# --- determinism
+# -------------------------------------------------------------------------------------
 
 SCRIPT = """
 import sys
@@ -248,12 +264,21 @@ def test_same_bytes_across_runs_and_hash_seeds(path):
     outs = set()
     for seed in ("0", "1", "12345"):
         env = {**os.environ, "PYTHONHASHSEED": seed}
-        outs.add(subprocess.run([sys.executable, "-c", SCRIPT, str(path)], capture_output=True, env=env,
-                                check=True, cwd=ROOT).stdout)
+        outs.add(
+            subprocess.run(
+                [sys.executable, "-c", SCRIPT, str(path)],
+                capture_output=True,
+                env=env,
+                check=True,
+                cwd=ROOT,
+            ).stdout
+        )
     assert len(outs) == 1
 
 
-# --- properties ----------------------------------------------------------------------------------------
+# --- properties
+# ----------------------------------------------------------------------------------------
+
 
 @settings(max_examples=25, deadline=None)
 @given(st.floats(0.01, 100.0), st.sampled_from([0.0, 100.0, 1000.0]))
@@ -304,8 +329,13 @@ place ch as right at 0,200, mirror
 def test_mirroring_swaps_channel_figures():
     # the same board with the channels' placements exchanged: left is now the mirrored copy
     a = load_text(SYMMETRIC, "s.gplan")
-    b = load_text(SYMMETRIC.replace("place ch as left at 0,0\nplace ch as right at 0,200, mirror",
-                                    "place ch as left at 0,200, mirror\nplace ch as right at 0,0"), "s.gplan")
+    b = load_text(
+        SYMMETRIC.replace(
+            "place ch as left at 0,0\nplace ch as right at 0,200, mirror",
+            "place ch as left at 0,200, mirror\nplace ch as right at 0,0",
+        ),
+        "s.gplan",
+    )
     ra, rb = analyze(a), analyze(b)
     la, ra_ = ra.hum.channels["left"], ra.hum.channels["right"]
     lb, rb_ = rb.hum.channels["left"], rb.hum.channels["right"]
@@ -320,16 +350,24 @@ def test_mirroring_swaps_channel_figures():
 def _rename(p, fn):
     def r(x):
         return None if x is None else fn(x)
+
     metals = {m.name for m in p.metals}
-    return replace(p,
-                   points=tuple(replace(x, name=r(x.name), on=x.on) for x in p.points),
-                   conductors=tuple(replace(c, a=r(c.a) if c.a not in metals else c.a,
-                                            b=r(c.b) if c.b not in metals else c.b) for c in p.conductors),
-                   rectifiers=tuple(replace(x, a=r(x.a), b=r(x.b), filter_point=r(x.filter_point))
-                                    for x in p.rectifiers),
-                   currents=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.currents),
-                   stages=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.stages),
-                   heaters=tuple(replace(x, a=r(x.a), b=r(x.b), reference=r(x.reference)) for x in p.heaters))
+    return replace(
+        p,
+        points=tuple(replace(x, name=r(x.name), on=x.on) for x in p.points),
+        conductors=tuple(
+            replace(
+                c, a=r(c.a) if c.a not in metals else c.a, b=r(c.b) if c.b not in metals else c.b
+            )
+            for c in p.conductors
+        ),
+        rectifiers=tuple(
+            replace(x, a=r(x.a), b=r(x.b), filter_point=r(x.filter_point)) for x in p.rectifiers
+        ),
+        currents=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.currents),
+        stages=tuple(replace(x, a=r(x.a), b=r(x.b)) for x in p.stages),
+        heaters=tuple(replace(x, a=r(x.a), b=r(x.b), reference=r(x.reference)) for x in p.heaters),
+    )
 
 
 @pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
@@ -349,8 +387,11 @@ def test_renaming_points_changes_no_figure(path):
 
 
 @settings(max_examples=30, deadline=None)
-@given(st.floats(0.01, 5.0), st.sampled_from(["0.5 mm2", "1 mm2", "2.5 mm2", "18 AWG"]),
-       st.sampled_from(["pe_stud", "mains.pe"]))
+@given(
+    st.floats(0.01, 5.0),
+    st.sampled_from(["0.5 mm2", "1 mm2", "2.5 mm2", "18 AWG"]),
+    st.sampled_from(["pe_stud", "mains.pe"]),
+)
 def test_parallel_conductor_never_raises_protective_resistance(length, area, start):
     base = """
 metal deck: aluminium 2 mm, 300 x 200 mm, touchable
@@ -363,24 +404,38 @@ bolt fb: far to deck
 bolt cs: cover to deck, contact 3 mohm, protective
 """
     hdr = 'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2\n'
-    before = {p.part: p.path_resistance for p in protective_figures(plan(hdr + base, header=False)).parts}
+    before = {
+        p.part: p.path_resistance for p in protective_figures(plan(hdr + base, header=False)).parts
+    }
     extra = f"wire px: {start} to far, {length} m, {area}, protective\n"
-    after = {p.part: p.path_resistance for p in protective_figures(plan(hdr + base + extra, header=False)).parts}
+    after = {
+        p.part: p.path_resistance
+        for p in protective_figures(plan(hdr + base + extra, header=False)).parts
+    }
     for part, r in before.items():
         assert after[part] <= r * (1 + 1e-12)
 
 
-# --- crashes found by fuzzing, kept as regression tests ------------------------------------------------
+# --- crashes found by fuzzing, kept as regression tests
+# ------------------------------------------------
+
 
 def test_regression_point_on_a_broken_metal_part():
-    # a misspelt attribute broke the metal statement; a point placed on it crashed the loader (KeyError)
-    text = 'plan "fuzz"\nmetal deck:luminium 2 mm, 300 x 200 mm, touchable\npoint a: stud, at 0,0 on deck\n'
+    # a misspelt attribute broke the metal statement; a point placed on it crashed the loader
+    # (KeyError)
+    text = (
+        'plan "fuzz"\nmetal deck:luminium 2 mm, 300 x 200 mm, touchable\npoint a: stud, at '
+        "0,0 "
+        "on deck\n"
+    )
     with pytest.raises(PlanErrors) as e:
         load_text(text, "fuzz.gplan")
     assert len(e.value.errors) == 1 and "unknown attribute 'luminium'" in str(e.value)
 
 
-# --- the extreme-value grid and token mutants, sampled (the full runs: benchmarks/fuzz_campaign.py) ------------
+# --- the extreme-value grid and token mutants, sampled (the full runs:
+# benchmarks/fuzz_campaign.py) ------------
+
 
 def _survives(text: str, name: str, root=None) -> None:
     """A plan ends in a result with finite figures or in located errors; nothing else."""
@@ -399,6 +454,7 @@ FUZZED = [*EXAMPLES, ROOT / "tests" / "plans" / "every-statement.gplan"]
 def test_extreme_values_in_place_of_numbers_sampled(path):
     import random
     from planfuzz import extreme_variants
+
     cases = list(extreme_variants(path.read_text()))
     for _desc, text in random.Random(11).sample(cases, 150):
         _survives(text, path.name)
@@ -407,17 +463,20 @@ def test_extreme_values_in_place_of_numbers_sampled(path):
 @pytest.mark.parametrize("path", FUZZED, ids=[e.name for e in FUZZED])
 def test_token_mutants_sampled(path):
     from planfuzz import token_mutants
+
     for text in token_mutants(path.read_text(), 150, seed=3):
         _survives(text, path.name)
 
 
-#: an installation with device plans of its own (found beside it), sampled more lightly: each case places them
+#: an installation with device plans of its own (found beside it), sampled more lightly: each case
+#: places them
 ROOM = ROOT / "examples" / "studio" / "recording-room.gplan"
 
 
 def test_an_installations_extreme_values_and_token_mutants_sampled():
     import random
     from planfuzz import extreme_variants, token_mutants
+
     text = ROOM.read_text()
     cases = [t for _d, t in random.Random(13).sample(list(extreme_variants(text)), 40)]
     for t in cases + list(token_mutants(text, 40, seed=17)):

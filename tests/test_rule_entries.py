@@ -43,8 +43,9 @@ def _strings(node: ast.AST, scope: ast.AST, slot: int | None = None) -> set[str]
                         if isinstance(e, ast.Name) and e.id == node.id:
                             out |= _strings(a.value.elts[i], scope)
         return out
-    raise AssertionError(f"a severity written as {ast.dump(node)[:80]}: name a variant of the "
-                         "entry")
+    raise AssertionError(
+        f"a severity written as {ast.dump(node)[:80]}: name a variant of the entry"
+    )
 
 
 def _constructions():
@@ -52,16 +53,20 @@ def _constructions():
     out = []
     for path in sorted(PACKAGE.rglob("*.py")):
         tree = ast.parse(path.read_text(encoding="utf-8"))
-        funcs = [n for n in ast.walk(tree)
-                 if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef))]
+        funcs = [
+            n for n in ast.walk(tree) if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef))
+        ]
         for call in ast.walk(tree):
             if not (isinstance(call, ast.Call) and getattr(call.func, "id", "") == "Finding"):
                 continue
             where = f"{path.relative_to(PACKAGE)}:{call.lineno}"
             code, sev = call.args[0], call.args[1]
             assert isinstance(code, ast.Constant), f"{where}: write the code as a literal"
-            scope = min((f for f in funcs if f.lineno <= call.lineno <= f.end_lineno),
-                        key=lambda f: f.end_lineno - f.lineno, default=tree)
+            scope = min(
+                (f for f in funcs if f.lineno <= call.lineno <= f.end_lineno),
+                key=lambda f: f.end_lineno - f.lineno,
+                default=tree,
+            )
             out.append((where, code.value, _strings(sev, scope)))
     return out
 
@@ -80,7 +85,8 @@ def test_every_finding_construction_names_a_variant_of_its_entry(where, code, se
     assert code in RULES, where
     assert severities, f"{where}: no severity found"
     assert severities <= set(RULES[code].variants), (
-        f"{where}: {code} made as {sorted(severities)}; its entry lists {RULES[code].variants}")
+        f"{where}: {code} made as {sorted(severities)}; its entry lists {RULES[code].variants}"
+    )
 
 
 def test_every_variant_an_entry_lists_is_made_somewhere():
@@ -96,9 +102,13 @@ def test_the_entries_that_make_more_than_one_severity():
     # GC218's one device / earthed through an interconnect / shared secondary, ...)
     several = {c: set(r.variants) for c, r in RULES.items() if len(r.variants) > 1}
     assert several == {
-        "GC101": {"warning", "note"}, "GC102": {"fault", "note"}, "GC206": {"danger", "note"},
-        "GC208": {"danger", "note"}, "GC211": {"danger", "warning"},
-        "GC218": {"danger", "warning", "note"}, "GC306": {"fault", "note"},
+        "GC101": {"warning", "note"},
+        "GC102": {"fault", "note"},
+        "GC206": {"danger", "note"},
+        "GC208": {"danger", "note"},
+        "GC211": {"danger", "warning"},
+        "GC218": {"danger", "warning", "note"},
+        "GC306": {"fault", "note"},
         "GC402": {"fault", "warning"},
     }
     for code, rule in RULES.items():
@@ -144,7 +154,7 @@ def test_every_repair_action_an_entry_names_has_one_generator():
 def test_identity_reads_the_entry():
     loc = Location("plan.gplan", 1, 1)
     pair = [c for c, r in RULES.items() if r.identity == "pair"]
-    assert set(pair) == {"GC102", "GC301", "GC302", "GC303", "GC304"}   # GC304: from, into
+    assert set(pair) == {"GC102", "GC301", "GC302", "GC303", "GC304"}  # GC304: from, into
     assert {r.identity for r in RULES.values()} <= set(IDENTITIES)
     f = Finding("GC102", "fault", "m", loc, ("rect", "v1", "c2", "c1"))
     assert identity(f) == ("GC102", "rect", "v1")

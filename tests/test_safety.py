@@ -1,5 +1,6 @@
-"""Protective-earth figures and verdicts against the standards' tables (tests/reference/protection.toml)
-and cases worked by hand.  Values the reference file marks "memory" are from memory."""
+"""Protective-earth figures and verdicts against the standards' tables
+(tests/reference/protection.toml) and cases worked by hand.  Values the reference file marks
+"memory" are from memory."""
 
 import math
 import tomllib
@@ -26,9 +27,16 @@ def k_formula(theta_i, theta_f):
     return 226 * math.sqrt(math.log(1 + (theta_f - theta_i) / (234.5 + theta_i)))
 
 
-@pytest.mark.parametrize("ins,in_cable,ti,tf", [("pvc", True, 70, 160), ("pvc", False, 30, 160),
-                                                 ("xlpe", True, 90, 250), ("xlpe", False, 30, 250),
-                                                 ("bare", True, 30, 200)])
+@pytest.mark.parametrize(
+    "ins,in_cable,ti,tf",
+    [
+        ("pvc", True, 70, 160),
+        ("pvc", False, 30, 160),
+        ("xlpe", True, 90, 250),
+        ("xlpe", False, 30, 250),
+        ("bare", True, 30, 200),
+    ],
+)
 def test_adiabatic_k_table_matches_formula(ins, in_cable, ti, tf):
     k = ADIABATIC_K[ins][0 if in_cable else 1]
     assert k == pytest.approx(k_formula(ti, tf), rel=0.005)
@@ -55,20 +63,27 @@ def test_cable_resistance_matches_iec_60228(table, flexible):
         r = protection.cable_resistance(1000.0, float(area) * 1e-6, flexible, 20.0)
         assert r == pytest.approx(per_km, rel=1e-9)
     # IEC 60228 Annex B: R_t = R_20 (230 + t) / 250
-    assert protection.cable_resistance(1000.0, 1.5e-6, True, 70.0) == pytest.approx(13.3 * 300 / 250)
+    assert protection.cable_resistance(1000.0, 1.5e-6, True, 70.0) == pytest.approx(
+        13.3 * 300 / 250
+    )
 
 
 def test_fuse_clears_as_pre_arcing_plus_arcing():
-    # IEC 60127-2 sheet 3 (T) maximum pre-arcing limits (from memory), plus arcing to the next current zero
+    # IEC 60127-2 sheet 3 (T) maximum pre-arcing limits (from memory), plus arcing to the next
+    # current zero
     for m, t in REF["fuse_prearc_max"]["slow"]:
         cl = protection.fuse_clearing("slow", 1.0, m, 50.0)
-        assert cl.prearc == t and cl.arcing == pytest.approx(0.01) and cl.time == pytest.approx(t + 0.01)
+        assert (
+            cl.prearc == t
+            and cl.arcing == pytest.approx(0.01)
+            and cl.time == pytest.approx(t + 0.01)
+        )
     # above 10 In the pre-arcing I²t is at most its value at 10 In: (10 A)² × 0.3 s = 30 A²s
     cl = protection.fuse_clearing("slow", 1.0, 100.0, 60.0)
-    assert cl.prearc == pytest.approx(30.0 / 100.0 ** 2)
-    assert cl.arcing == pytest.approx(1 / 120)                # half a cycle at 60 Hz
-    assert cl.i2t == pytest.approx(30.0 + 100.0 ** 2 / 120)
-    assert cl.time > 0.008                                    # never the unphysical 0.3 ms of pre-arcing alone
+    assert cl.prearc == pytest.approx(30.0 / 100.0**2)
+    assert cl.arcing == pytest.approx(1 / 120)  # half a cycle at 60 Hz
+    assert cl.i2t == pytest.approx(30.0 + 100.0**2 / 120)
+    assert cl.time > 0.008  # never the unphysical 0.3 ms of pre-arcing alone
     assert protection.fuse_clearing("slow", 1.0, 2.5, 50.0) is None
 
 
@@ -86,7 +101,9 @@ def test_breakers_and_rcds():
 def test_breaking_capacity_by_category():
     ref = REF["fuse_breaking"]
     assert protection.breaking_capacity("slow", 0.5, None, None) == ref["low_minimum"]
-    assert protection.breaking_capacity("slow", 6.3, "low", None) == pytest.approx(ref["low_multiple"] * 6.3)
+    assert protection.breaking_capacity("slow", 6.3, "low", None) == pytest.approx(
+        ref["low_multiple"] * 6.3
+    )
     assert protection.breaking_capacity("fast", 2.0, "enhanced", None) == ref["enhanced"]
     assert protection.breaking_capacity("slow", 2.0, "high", None) == ref["high"]
     assert protection.breaking_capacity("slow", 2.0, "high", 100.0) == 100.0
@@ -99,11 +116,14 @@ wire pe_lead: mains.pe to pe_stud, 1 m, 1.0 mm2, protective
 bolt pe_bolt: pe_stud to deck, contact 0.5 mohm
 """
 
-R_PATH = 1.7241e-8 * 1.0 / 1e-6 + 0.5e-3          # ρL/A (IEC 60028 copper at 20 °C) plus the bolt's contact
-CORD_075 = 26.0e-3 * 2.0                           # IEC 60228 class 5, 0.75 mm², 2 m (from memory)
-CIRCUIT_15 = 12.1e-3 * 20.0                        # IEC 60228 class 2, 1.5 mm², 20 m (default final circuit)
-# the installation's cables (final circuit, cord) at their operating temperature, 70 °C for PVC (IEC 60364-5-52
-# Table 52.1): IEC 60228's temperature factor (230 + 70)/250 = 1.20 (the multiplier loop tables use, common practice)
+R_PATH = (
+    1.7241e-8 * 1.0 / 1e-6 + 0.5e-3
+)  # ρL/A (IEC 60028 copper at 20 °C) plus the bolt's contact
+CORD_075 = 26.0e-3 * 2.0  # IEC 60228 class 5, 0.75 mm², 2 m (from memory)
+CIRCUIT_15 = 12.1e-3 * 20.0  # IEC 60228 class 2, 1.5 mm², 20 m (default final circuit)
+# the installation's cables (final circuit, cord) at their operating temperature, 70 °C for PVC
+# (IEC 60364-5-52 Table 52.1): IEC 60228's temperature factor (230 + 70)/250 = 1.20 (the multiplier
+# loop tables use, common practice)
 HOT = (230.0 + 70.0) / 250.0
 CORD_075_HOT, CIRCUIT_15_HOT = CORD_075 * HOT, CIRCUIT_15 * HOT
 
@@ -113,15 +133,21 @@ def mains_plan(mains):
 
 
 def test_fault_current_and_touch_voltage_by_hand_tn():
-    s = figures(mains_plan("230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, "
-                           "loop-impedance 0.8 ohm"))
+    s = figures(
+        mains_plan(
+            "230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 "
+            "mm2, loop-impedance 0.8 ohm"
+        )
+    )
     (deck,) = s.parts
     assert deck.path_resistance == pytest.approx(R_PATH, rel=1e-9)
-    fuse_r = 0.2 / 2.0                              # the documented cold-resistance fit (from memory)
+    fuse_r = 0.2 / 2.0  # the documented cold-resistance fit (from memory)
     z = 0.8 + fuse_r + CIRCUIT_15_HOT + CORD_075_HOT + R_PATH + CORD_075_HOT + CIRCUIT_15_HOT
     assert deck.fault_current == pytest.approx(230 / z, rel=1e-9)
     # against earth: the whole protective path to the main earthing terminal
-    assert deck.touch_voltage == pytest.approx(230 / z * (R_PATH + CORD_075_HOT + CIRCUIT_15_HOT), rel=1e-9)
+    assert deck.touch_voltage == pytest.approx(
+        230 / z * (R_PATH + CORD_075_HOT + CIRCUIT_15_HOT), rel=1e-9
+    )
     # ≈ 50 V; without the building's protective conductor it would be a quarter of that
     assert deck.touch_voltage > 3 * 230 / z * (R_PATH + CORD_075_HOT)
     assert s.supply.cable_temperature == 70.0
@@ -129,12 +155,14 @@ def test_fault_current_and_touch_voltage_by_hand_tn():
 
 def test_slow_fuse_on_a_5_ohm_loop_is_too_slow_and_an_rcd_cures_it():
     # the issue's first user case: TN at 230 V, 5 Ω loop, 6.3 A slow fuse
-    base = ("230 V 50 Hz, fuse 6.3 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, "
-            "loop-impedance 5 ohm")
+    base = (
+        "230 V 50 Hz, fuse 6.3 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, "
+        "loop-impedance 5 ohm"
+    )
     r = analyze(mains_plan(base))
     z = 5 + 0.2 / 6.3 + CIRCUIT_15_HOT + CORD_075_HOT + R_PATH + CORD_075_HOT + CIRCUIT_15_HOT
     i_f = 230 / z
-    assert 4 * 6.3 <= i_f < 10 * 6.3                   # the fuse's 4 In limit applies: 3 s pre-arcing (from memory)
+    assert 4 * 6.3 <= i_f < 10 * 6.3  # the fuse's 4 In limit applies: 3 s pre-arcing (from memory)
     (f,) = [f for f in r.findings if f.code == "GC208"]
     assert f.severity == "danger"
     assert f.figures["clear_time_s"] == pytest.approx(3.0 + 0.01)
@@ -146,23 +174,28 @@ def test_slow_fuse_on_a_5_ohm_loop_is_too_slow_and_an_rcd_cures_it():
 
 
 def test_tt_without_rcd_is_a_danger_and_with_rcd_is_not():
-    base = ("230 V 50 Hz, system TT, fuse 2 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m 0.75 mm2, "
-            "loop-impedance 30 ohm")
+    base = (
+        "230 V 50 Hz, system TT, fuse 2 A slow, breaking high, line-conductor 0.75 mm2, cord 2 m "
+        "0.75 mm2, loop-impedance 30 ohm"
+    )
     r = analyze(mains_plan(base))
     z = 30 + 0.2 / 2 + CIRCUIT_15_HOT + CORD_075_HOT + R_PATH + CORD_075_HOT + CIRCUIT_15_HOT
-    i_f = 230 / z                                      # ≈ 7.5 A: between 2.75 and 4 In, up to 10 s pre-arcing
+    i_f = 230 / z  # ≈ 7.5 A: between 2.75 and 4 In, up to 10 s pre-arcing
     (f,) = [f for f in r.findings if f.code == "GC208"]
     assert f.severity == "danger" and f.figures["max_disconnection_s"] == 0.2
     assert f.figures["clear_time_s"] == pytest.approx(10.01)
-    # TT: the installation's electrode (by default the whole external loop) is in the touch-voltage path
-    assert f.figures["touch_voltage_v"] == pytest.approx(i_f * (R_PATH + CORD_075_HOT + CIRCUIT_15_HOT + 30),
-                                                         abs=0.01)
+    # TT: the installation's electrode (by default the whole external loop) is in the touch-voltage
+    # path
+    assert f.figures["touch_voltage_v"] == pytest.approx(
+        i_f * (R_PATH + CORD_075_HOT + CIRCUIT_15_HOT + 30), abs=0.01
+    )
     r = analyze(mains_plan(base + ", rcd 30 mA"))
     assert not [f for f in r.findings if f.code == "GC208"]
 
 
 def test_120_v_tn_allows_0_8_s():
-    # a fast fuse at 120 V: 10 In reached, pre-arcing ≤ 0.02 s plus 1/120 s arcing, well inside 0.8 s
+    # a fast fuse at 120 V: 10 In reached, pre-arcing ≤ 0.02 s plus 1/120 s arcing, well inside 0.8
+    # s
     r = analyze(mains_plan("120 V 60 Hz, fuse 4 A fast, breaking high, line-conductor 0.75 mm2"))
     assert r.safety.supply.max_time == 0.8
     assert not [f for f in r.findings if f.code == "GC208"]
@@ -170,23 +203,34 @@ def test_120_v_tn_allows_0_8_s():
 
 def test_glass_fuse_beyond_its_breaking_capacity():
     # 500 mA low-breaking fuse on a stiff supply: the prospective fault current is far above 35 A
-    r = analyze(mains_plan("230 V 50 Hz, fuse 500 mA slow, breaking low, line-conductor 0.75 mm2, loop-impedance 0.35 "
-                           "ohm"))
+    r = analyze(
+        mains_plan(
+            "230 V 50 Hz, fuse 500 mA slow, breaking low, line-conductor 0.75 mm2, loop-impedance "
+            "0.35 ohm"
+        )
+    )
     (f,) = [f for f in r.findings if f.code == "GC211"]
     assert f.severity == "danger" and f.figures["breaking_capacity_a"] == 35.0
-    # the prospective current, cables cold (20 °C): a line-to-protective fault at the inlet, and a line-to-neutral
-    # short, whose external loop is taken as Ze in TN (both loops hold the same cores here, so they are equal)
+    # the prospective current, cables cold (20 °C): a line-to-protective fault at the inlet, and a
+    # line-to-neutral short, whose external loop is taken as Ze in TN (both loops hold the same
+    # cores here, so they are equal)
     z = 0.35 + 0.2 / 0.5 + CIRCUIT_15 + CORD_075 + CORD_075 + CIRCUIT_15
     assert f.figures["fault_current_a"] == pytest.approx(230 / z, rel=1e-4)
     assert f.figures["short_circuit_a"] == pytest.approx(230 / z, rel=1e-4)
-    r = analyze(mains_plan("230 V 50 Hz, fuse 500 mA slow, breaking high, line-conductor 0.75 mm2, loop-impedance 0.35 "
-                           "ohm"))
+    r = analyze(
+        mains_plan(
+            "230 V 50 Hz, fuse 500 mA slow, breaking high, line-conductor 0.75 mm2, "
+            "loop-impedance 0.35 ohm"
+        )
+    )
     assert not [f for f in r.findings if f.code == "GC211"]
 
 
 def test_adiabatic_worked_example():
     # worked example: 1 kA for 0.1 s (I²t = 1e5 A²s) with k = 115 → S = √1e5 / 115 = 2.75 mm²
-    p = mains_plan("230 V 50 Hz, fuse 16 A slow, i2t 100000 A2s, breaking high, line-conductor 0.75 mm2")
+    p = mains_plan(
+        "230 V 50 Hz, fuse 16 A slow, i2t 100000 A2s, breaking high, line-conductor 0.75 mm2"
+    )
     s = figures(p)
     row = next(r for r in s.conductors if r.conductor == "pe_lead")
     assert row.required * 1e6 == pytest.approx(2.75, rel=1e-3) and not row.survives
@@ -196,7 +240,11 @@ def test_adiabatic_worked_example():
 
 
 def test_stated_figure_that_contradicts_the_table_is_flagged():
-    r = analyze(mains_plan("230 V 50 Hz, fuse 2 A slow, breaking high, clears 1 ms, line-conductor 0.75 mm2"))
+    r = analyze(
+        mains_plan(
+            "230 V 50 Hz, fuse 2 A slow, breaking high, clears 1 ms, line-conductor 0.75 mm2"
+        )
+    )
     assert any(f.code == "GC214" for f in r.findings)
     # a stated figure never makes the verdict looser: the table's longer clearing time stands
     assert r.safety.parts[0].device == "fuse" and r.safety.parts[0].clear_time > 1e-3
@@ -204,11 +252,17 @@ def test_stated_figure_that_contradicts_the_table_is_flagged():
 
 def test_parallel_protective_conductor_never_raises_resistance():
     p1 = mains_plan("230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2")
-    p2 = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2\n' + PE_PLAN
-              + "wire pe2: mains.pe to pe_stud, 3 m, 0.75 mm2, protective\n", header=False)
+    p2 = plan(
+        'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2\n'
+        + PE_PLAN
+        + "wire pe2: mains.pe to pe_stud, 3 m, 0.75 mm2, protective\n",
+        header=False,
+    )
     one, two = figures(p1).parts[0].path_resistance, figures(p2).parts[0].path_resistance
     assert two < one
-    assert two == pytest.approx(1 / (1 / (1.7241e-2) + 1 / (1.7241e-8 * 3 / 0.75e-6)) + 0.5e-3, rel=1e-9)
+    assert two == pytest.approx(
+        1 / (1 / (1.7241e-2) + 1 / (1.7241e-8 * 3 / 0.75e-6)) + 0.5e-3, rel=1e-9
+    )
 
 
 def test_no_mains_no_protective_figures():
@@ -218,8 +272,11 @@ def test_no_mains_no_protective_figures():
 
 def test_role_less_wire_from_the_inlet_is_protective():
     text = PE_PLAN.replace("1.0 mm2, protective", "1.0 mm2")
-    p = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text,
-             header=False)
+    p = plan(
+        'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n'
+        + text,
+        header=False,
+    )
     r = analyze(p)
     codes = {f.code for f in r.findings}
     assert "GC209" in codes and "GC205" not in codes and "GC210" not in codes
@@ -228,28 +285,44 @@ def test_role_less_wire_from_the_inlet_is_protective():
 
 
 def test_protective_trace_is_checked_for_its_section():
-    text = PE_PLAN.replace("wire pe_lead: mains.pe to pe_stud, 1 m, 1.0 mm2, protective",
-                           "trace pe_lead: mains.pe to pe_stud, 50 mm, width 0.3 mm, protective")
-    r = analyze(plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text,
-                     header=False))
+    text = PE_PLAN.replace(
+        "wire pe_lead: mains.pe to pe_stud, 1 m, 1.0 mm2, protective",
+        "trace pe_lead: mains.pe to pe_stud, 50 mm, width 0.3 mm, protective",
+    )
+    r = analyze(
+        plan(
+            'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n'
+            + text,
+            header=False,
+        )
+    )
     (f,) = [f for f in r.findings if f.code == "GC204"]
     # 0.3 mm × 35 µm copper = 0.0105 mm²
     assert f.severity == "danger" and f.figures["area_mm2"] == pytest.approx(0.0105)
 
 
 def test_signal_wire_on_the_inlet_terminal_is_flagged():
-    r = analyze(plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + PE_PLAN
-                     + "point star: star, at 100,100 on deck\nwire sg: mains.pe to star, 100 mm, 0.5 mm2, signal\n"
-                     + "point in_s: sleeve, at 150,100 on deck\nwire w: in_s to star, 50 mm, 0.5 mm2\n"
-                     + "point k: pad\nwire w2: k to star, 50 mm, 0.5 mm2\nstage s: in_s to k, gain 20 dB\n",
-                     header=False))
+    r = analyze(
+        plan(
+            'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n'
+            + PE_PLAN
+            + "point star: star, at 100,100 on deck\nwire sg: mains.pe to star, 100 mm, 0.5 mm2, "
+            "signal\n"
+            + "point in_s: sleeve, at 150,100 on deck\nwire w: in_s to star, 50 mm, 0.5 mm2\n"
+            + "point k: pad\nwire w2: k to star, 50 mm, 0.5 mm2\nstage s: in_s to k, gain 20 dB\n",
+            header=False,
+        )
+    )
     assert [f.elements for f in r.findings if f.code == "GC210"] == [("sg", "mains.pe")]
 
 
 def test_relaxed_limit_is_said():
     text = PE_PLAN.replace("contact 0.5 mohm", "contact 150 mohm")
-    p = plan('plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n' + text,
-             header=False)
+    p = plan(
+        'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, line-conductor 0.75 mm2\n'
+        + text,
+        header=False,
+    )
     strict = analyze(p)
     assert [f.severity for f in strict.findings if f.code == "GC206"] == ["danger"]
     relaxed = analyze(p, Options(pe_limit=10.0))
@@ -258,13 +331,20 @@ def test_relaxed_limit_is_said():
 
 
 def test_class_ii():
-    p = plan('plan "t"\nmains 230 V 50 Hz, class II, fuse 1 A slow\nmetal lid: steel 1 mm, touchable\n'
-             "point a: pad\nwire w: a to lid, 10 mm, 0.5 mm2\n", header=False)
+    p = plan(
+        'plan "t"\nmains 230 V 50 Hz, class II, fuse 1 A slow\nmetal lid: steel 1 mm, touchable\n'
+        "point a: pad\nwire w: a to lid, 10 mm, 0.5 mm2\n",
+        header=False,
+    )
     r = analyze(p)
     assert r.safety is None and {f.code for f in r.findings} >= {"GC213"}
     assert not {"GC205", "GC201"} & {f.code for f in r.findings}
-    p = plan('plan "t"\nmains 230 V 50 Hz, class II, fuse 1 A slow\nmetal lid: steel 1 mm, touchable\n'
-             "wire w: mains.pe to lid, 10 mm, 0.5 mm2\n", header=False)
-    # a conductor on a class II device's earth terminal is a functional earth (IEC 61140, from memory): a note
+    p = plan(
+        'plan "t"\nmains 230 V 50 Hz, class II, fuse 1 A slow\nmetal lid: steel 1 mm, touchable\n'
+        "wire w: mains.pe to lid, 10 mm, 0.5 mm2\n",
+        header=False,
+    )
+    # a conductor on a class II device's earth terminal is a functional earth (IEC 61140, from
+    # memory): a note
     (f,) = [f for f in analyze(p).findings if f.code == "GC212"]
     assert f.severity == "note" and "functional earth" in f.message

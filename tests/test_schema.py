@@ -1,5 +1,5 @@
-"""The JSON document of every example validates against its published schema (docs/schema/), checked with
-the jsonschema package (an independent implementation of JSON Schema 2020-12)."""
+"""The JSON document of every example validates against its published schema (docs/schema/),
+checked with the jsonschema package (an independent implementation of JSON Schema 2020-12)."""
 
 import json
 
@@ -33,7 +33,9 @@ def test_a_plan_that_cannot_be_read_gives_a_json_document_with_its_errors(cli, t
     bad = tmp_path / "bad.gplan"
     bad.write_text('plan "x"\npoint a pad\n')
     code, out, err = cli("check", str(bad), "--format", "json")
-    errors_schema = json.loads((ROOT / "docs" / "schema" / "groundcheck-errors.schema.json").read_text())
+    errors_schema = json.loads(
+        (ROOT / "docs" / "schema" / "groundcheck-errors.schema.json").read_text()
+    )
     jsonschema.Draft202012Validator.check_schema(errors_schema)
     doc = json.loads(out)
     jsonschema.validate(doc, errors_schema, cls=jsonschema.Draft202012Validator)

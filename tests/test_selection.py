@@ -229,8 +229,8 @@ def test_an_accepted_danger_is_still_a_danger_in_every_output(cli, plan):
     s = doc["summary"]
     assert code == 1 and s["worst"] == "danger" and s["accepted"] == 1
     assert s["verdict"].startswith(
-        "worst finding: danger (accepted in the plan, still counted); not checked: "
-        f"GC206 at {p}:3 (accepted danger)"
+        "worst finding: danger (accepted in the plan, still counted); not checked: GC206 at "
+        f"{p}:3 (accepted danger)"
     )
     assert (
         s["not_checked"][0]["location"]["line"] == 3
@@ -273,8 +273,8 @@ def test_an_accepted_warning_is_listed_as_not_checked(cli, tmp_path, monkeypatch
     code, doc = _json(cli, str(base))
     assert code == 0 and doc["summary"]["worst"] is None
     assert doc["summary"]["verdict"] == (
-        f"no danger found among the rules checked; not checked: GC209 at "
-        f"{base}:{line} (accepted warning)"
+        f"no danger found among the rules checked; not checked: GC209 at {base}:{line} (accepted "
+        "warning)"
     )
 
 
@@ -475,7 +475,9 @@ def test_no_selection_settings_or_acceptance_turns_a_danger_into_clean(r):
         code, out, err, plan = _run_in(Path(tmp), r)
     words = (r["only"] or []) + (r["leave"] or []) + (r["accept"] or [])
     bad = any(w in TYPOS for w in words) or r["fail_on"] == "warnings"
-    if bad:  # a located one-line error, never a verdict (JSON: a document of the errors, no summary)
+    if (
+        bad
+    ):  # a located one-line error, never a verdict (JSON: a document of the errors, no summary)
         assert (
             code == 2
             and (out == "" or (r["format"] == "json" and _errors_only(out)))

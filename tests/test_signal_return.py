@@ -37,7 +37,7 @@ wire k_gnd: k to star, 10 mm, resistance 5 mohm
 wire src_w: src to sleeve, 10 mm, resistance 5 mohm
 current ret: src to pad, 10 mA 100 Hz, return
 """
-HAND = 0.010 * 0.020 * 100        # 10 mA x 20 mohm x 40 dB (100), by hand: 20 mV at the output
+HAND = 0.010 * 0.020 * 100  # 10 mA x 20 mohm x 40 dB (100), by hand: 20 mV at the output
 
 
 def _hum_v(text):
@@ -57,8 +57,10 @@ def test_a_stated_reference_puts_the_sleeve_to_pad_drop_in_the_input():
 
 def test_the_reference_is_inferred_when_one_socket_is_wired_to_the_stage_in_its_block():
     body = INPUT.replace("listening output 1 V\n", "")
-    text = ("listening output 1 V\nblock ch {\n" + body + "stage v1: pad to k, gain 40 dB\n}\n"
-            "place ch as left at 0,0\n")
+    text = (
+        "listening output 1 V\nblock ch {\n" + body + "stage v1: pad to k, gain 40 dB\n}\n"
+        "place ch as left at 0,0\n"
+    )
     r = analyze(plan(text))
     (st,) = r.plan.stages
     assert (st.a, st.named) == ("left.sleeve", "left.pad")
@@ -67,8 +69,10 @@ def test_the_reference_is_inferred_when_one_socket_is_wired_to_the_stage_in_its_
 
 def test_no_inference_when_it_is_ambiguous():
     # a second socket wired to the pad: which is the input's? The pair stays as written
-    v, r = _hum_v(INPUT + "point other: jack\nwire o: other to pad, 10 mm, resistance 5 mohm\n"
-                  "stage v1: pad to k, gain 40 dB\n")
+    v, r = _hum_v(
+        INPUT + "point other: jack\nwire o: other to pad, 10 mm, resistance 5 mohm\n"
+        "stage v1: pad to k, gain 40 dB\n"
+    )
     assert r.plan.stages[0].a == "pad" and v < 1e-12
     # the socket is another stage's point: not a free reference either
     _, r = _hum_v(INPUT + "stage v1: pad to k, gain 40 dB\nstage v0: sleeve to star, gain 0 dB\n")
@@ -81,11 +85,14 @@ def test_every_example_keeps_its_stage_pairs():
         assert all(s.named is None for s in p.stages), path.name
 
 
-@pytest.mark.parametrize("stage,message", [
-    ("stage v1: pad to k, gain 40 dB, reference nowhere", "undefined point 'nowhere'"),
-    ("stage v1: pad to k, gain 40 dB, reference k", "its reference is its own second point"),
-    ("stage v1: pad to k, gain 40 dB, reference", "expected the input's reference point"),
-])
+@pytest.mark.parametrize(
+    "stage,message",
+    [
+        ("stage v1: pad to k, gain 40 dB, reference nowhere", "undefined point 'nowhere'"),
+        ("stage v1: pad to k, gain 40 dB, reference k", "its reference is its own second point"),
+        ("stage v1: pad to k, gain 40 dB, reference", "expected the input's reference point"),
+    ],
+)
 def test_bad_references_are_located_errors(cli, tmp_path, stage, message):
     f = tmp_path / "bad.gplan"
     head = 'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2\n'
@@ -124,10 +131,11 @@ def test_a_socket_grounded_only_by_its_fastening_is_gc114():
 
 
 def test_gc114_names_the_input_ground_a_stage_wrote_when_its_reference_is_inferred():
-    text = CHASSIS.replace("stage v1: sleeve to k", "point pot: pot, at 250,50\n"
-                           "shield lead: sleeve to pot, 40 mm, 0.1 mm2, terminated sleeve\n"
-                           "wire pot_gnd: pot to star, 100 mm, 0.5 mm2, signal\n"
-                           "stage v1: pot to k")
+    text = CHASSIS.replace(
+        "stage v1: sleeve to k",
+        "point pot: pot, at 250,50\nshield lead: sleeve to pot, 40 mm, 0.1 mm2, terminated "
+        "sleeve\nwire pot_gnd: pot to star, 100 mm, 0.5 mm2, signal\nstage v1: pot to k",
+    )
     (f,) = [f for f in analyze(plan(text)).findings if f.code == "GC114"]
     assert "wire sleeve to pot" in f.fix and ("join", "sleeve", "pot") in f.actions
 
@@ -196,8 +204,9 @@ def test_the_headphone_example_feeds_its_load_back_by_hand():
     assert set(found) == {"l_load", "r_load"}
     for f in found.values():
         assert f.severity == "fault"
-        assert f.figures["input_db"] == pytest.approx(_db(0.060 * r * 10 ** (12 / 20), 2.0),
-                                                      abs=0.1)
+        assert f.figures["input_db"] == pytest.approx(
+            _db(0.060 * r * 10 ** (12 / 20), 2.0), abs=0.1
+        )
 
 
 def test_the_dual_mono_field_plan_finds_the_speaker_return_on_the_input_pad():
@@ -224,24 +233,28 @@ def test_the_dual_mono_feedback_against_ngspice():
     got = spicetools.run(net, "ac lin 1 1000 1000\nprint all > OUT")
     main_ref = int(c.references[c.components[1][c.point_node["mains.pe"]]])
 
-    def v(point):                       # SPICE sources are peak amplitudes
+    def v(point):  # SPICE sources are peak amplitudes
         i = c.point_node[point]
         return 0j if i == main_ref else got[f"n{i}"] / math.sqrt(2)
 
     right = [st for st in p.stages if st.channel == "right"]
     total = sum((v(st.a) - v(st.b)) * 10 ** (st.gain / 20) for st in right)
     spice_db = _db(abs(total), 28.0)
-    ours = next(x for x in analyze(p).hum.feedback
-                if x["source"] == "right_spk_i" and x["frequency_hz"] == 1000.0)
+    ours = next(
+        x
+        for x in analyze(p).hum.feedback
+        if x["source"] == "right_spk_i" and x["frequency_hz"] == 1000.0
+    )
     assert ours["db"] == pytest.approx(spice_db, abs=0.01)
-    assert spice_db == pytest.approx(-41.7, abs=0.1)                   # the verdict's figure
+    assert spice_db == pytest.approx(-41.7, abs=0.1)  # the verdict's figure
 
 
 def test_a_device_plan_keeps_its_stage_reference_when_placed(tmp_path):
     # the same input as above in a device plan of its own: placed, its stage still reads the
     # sleeve, and the channel's hum is the hand figure
-    (tmp_path / "box.gplan").write_text('plan "box"\n' + INPUT
-                                        + "stage v1: pad to k, gain 40 dB, reference sleeve\n")
+    (tmp_path / "box.gplan").write_text(
+        'plan "box"\n' + INPUT + "stage v1: pad to k, gain 40 dB, reference sleeve\n"
+    )
     inst = tmp_path / "rack.gplan"
     inst.write_text('plan "rack"\npoint wall: outlet\ndevice b: "box.gplan", plugged wall\n')
     r = analyze(load(inst))

@@ -40,10 +40,9 @@ wire in_lead: in_gnd to star, 50 mm, 0.5 mm2, return
 
 def _imported(*argv) -> set[str]:
     code = (
-        "import sys, io, contextlib\nfrom groundcheck.cli import main\n"
-        "with contextlib.redirect_stdout(io.StringIO()):\n"
-        f"    code = main({list(argv)!r})\n"
-        "assert code in (0, 1), code\nprint('\\n'.join(sys.modules))"
+        "import sys, io, contextlib\nfrom groundcheck.cli import main\nwith "
+        f"contextlib.redirect_stdout(io.StringIO()):\n    code = main({list(argv)!r})\nassert "
+        "code in (0, 1), code\nprint('\\n'.join(sys.modules))"
     )
     out = subprocess.run(
         [sys.executable, "-c", code], capture_output=True, text=True, check=True, cwd=ROOT

@@ -111,12 +111,13 @@ def test_no_installation_change_lifts_or_thins_the_protective_earth():
 
 
 def test_own_stud_is_accepted_when_the_old_stud_keeps_only_the_star_bond():
-    # the star bond shares the protective earth's stud (GC202): moving the protective wire to a stud of
-    # its own leaves the old stud's bolt holding the star bond alone, off the protective route, which is
-    # the point of the fix (common practice), not a protective conductor taken away
-    text = ('plan "shared stud"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, '
-            "breaking high, inlet at 10,100\n"
-            + BODY.replace("star to bond_stud", "star to pe_stud"))
+    # the star bond shares the protective earth's stud (GC202): moving the protective wire to a
+    # stud of its own leaves the old stud's bolt holding the star bond alone, off the protective
+    # route, which is the point of the fix (common practice), not a protective conductor taken away
+    text = (
+        'plan "shared stud"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, '
+        "breaking high, inlet at 10,100\n" + BODY.replace("star to bond_stud", "star to pe_stud")
+    )
     plan = load_text(text, "shared.gplan")
     before, evs = suggest(plan, text, OPTIONS)
     assert "GC202" in {f.code for f in before.findings}

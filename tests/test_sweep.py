@@ -21,7 +21,7 @@ forking = pytest.mark.skipif(not can_fork(), reason="worker processes are forked
 
 def test_results_come_back_in_the_order_given_whatever_the_number_of_processes():
     freqs = [900.0, 100.0, 50.0, 1234.5, 7.0]
-    offset = 0.25                               # a closure: the work need not be picklable
+    offset = 0.25  # a closure: the work need not be picklable
     expect = [math.sin(f) + offset for f in freqs]
     for jobs in (1, 2, 3, 8):
         assert map_frequencies(lambda f: math.sin(f) + offset, freqs, jobs) == expect
@@ -50,7 +50,7 @@ def test_factorisations_in_workers_match_the_parent():
 
 
 def test_tasks_come_back_in_their_order_whatever_their_costs_and_processes():
-    scale = 3                                   # closures again: the tasks need not be picklable
+    scale = 3  # closures again: the tasks need not be picklable
     tasks = [lambda k=k: k * scale for k in range(7)]
     for jobs in (1, 2, 3):
         for costs in (None, [1, 9, 2, 8, 3, 7, 4], [5] * 7):
@@ -59,8 +59,8 @@ def test_tasks_come_back_in_their_order_whatever_their_costs_and_processes():
 
 
 def _close(a, b, path=""):
-    """Two JSON documents alike: the same structure and strings, numbers within 1e-9 (sums taken in another
-    order by the processes)."""
+    """Two JSON documents alike: the same structure and strings, numbers within 1e-9 (sums taken in
+    another order by the processes)."""
     if isinstance(a, dict):
         assert a.keys() == b.keys(), path
         for k in a:
@@ -76,12 +76,16 @@ def _close(a, b, path=""):
 
 
 @forking
-def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_process_budget(monkeypatch):
-    """With every frequency's sources cut into slices of one (as a large installation's are cut into slices of
-    TASK_SOURCES), the shared returns, the hum budget and the outlet voltages, run as tasks of two processes, give
-    the one-process figures (the recording room: leakage, a cable's EMF and a rectifier)."""
+def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_process_budget(
+    monkeypatch,
+):
+    """With every frequency's sources cut into slices of one (as a large installation's are cut
+    into slices of TASK_SOURCES), the shared returns, the hum budget and the outlet voltages, run
+    as tasks of two processes, give the one-process figures (the recording room: leakage, a cable's
+    EMF and a rectifier)."""
     from groundcheck import analysis
     from groundcheck.physics import hum
+
     plan = load(ROOM)
     one = json.loads(render_json(analyze(plan, Options(jobs=1))))
     monkeypatch.setattr(hum, "TASK_SOURCES", 1)
@@ -90,15 +94,17 @@ def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_proc
     def counting(tasks, jobs=1, costs=None):
         counted.append(len(tasks))
         return run_tasks(tasks, jobs, costs)
+
     monkeypatch.setattr(analysis, "run_tasks", counting)
     two = json.loads(render_json(analyze(plan, Options(jobs=2))))
-    assert counted[0] > 10                   # the shared returns, the outlets and many slices of the budget
+    assert counted[0] > 10  # the shared returns, the outlets and many slices of the budget
     _close(one, two)
 
 
 def test_the_largest_few_are_those_of_a_full_stable_sort_ties_included():
     from groundcheck.physics.ranking import largest
+
     rng = np.random.default_rng(3)
     for n, k in ((1000, 5), (1000, 64), (7, 10), (50, 50), (3, 0)):
-        values = rng.integers(0, 20, n).astype(float)          # many ties at every cut
+        values = rng.integers(0, 20, n).astype(float)  # many ties at every cut
         assert list(largest(values, k)) == list(np.argsort(-values, kind="stable")[:k])

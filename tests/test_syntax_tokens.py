@@ -1,4 +1,5 @@
-"""The one-token statement (LINE) reads exactly as its keyword-and-name and attribute tokens would."""
+"""The one-token statement (LINE) reads exactly as its keyword-and-name and attribute tokens
+would."""
 
 import re
 
@@ -44,14 +45,29 @@ def _both(text: str, monkeypatch):
     return out
 
 
-CASES = ["wire a: b to c,\n  10 mm, 1 mm2\n", "wire a:b to c\n", 'wire   a  :  "x" y\n', "wire a: # c\n",
-         "block x {\nwire a: b to c, 1 mm\n}\n", "block x { wire a: b to c\n}\n", "wire a: b to c wire d: e\n",
-         'wire a: "unterminated\n', "x y: z\n}\n", 'plan "a: b"\n', "w a: 1,2 mm\n\n\n# c\nq b: c # d\n",
-         "wire a: b to c,\n", "wire 1a: b\n", "wire a: b to c}\n", "\tpoint p: star\r\n"]
+CASES = [
+    "wire a: b to c,\n  10 mm, 1 mm2\n",
+    "wire a:b to c\n",
+    'wire   a  :  "x" y\n',
+    "wire a: # c\n",
+    "block x {\nwire a: b to c, 1 mm\n}\n",
+    "block x { wire a: b to c\n}\n",
+    "wire a: b to c wire d: e\n",
+    'wire a: "unterminated\n',
+    "x y: z\n}\n",
+    'plan "a: b"\n',
+    "w a: 1,2 mm\n\n\n# c\nq b: c # d\n",
+    "wire a: b to c,\n",
+    "wire 1a: b\n",
+    "wire a: b to c}\n",
+    "\tpoint p: star\r\n",
+]
 
 
-@pytest.mark.parametrize("text",
-                         CASES + [p.read_text() for p in EXAMPLES + sorted((ROOT / "examples").glob("*/**/*.gplan"))])
+@pytest.mark.parametrize(
+    "text",
+    CASES + [p.read_text() for p in EXAMPLES + sorted((ROOT / "examples").glob("*/**/*.gplan"))],
+)
 def test_same_statements_and_errors_on_chosen_text(text, monkeypatch):
     fast, slow = _both(text, monkeypatch)
     assert fast == slow

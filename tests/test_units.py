@@ -7,8 +7,8 @@ import pytest
 from groundcheck.physics.impedance import resistivity
 from groundcheck.core.units import UnitError, awg_area, awg_diameter, format_si, parse_quantity
 
-# ASTM B258 diameters and areas (NBS Handbook 100, *Copper Wire Tables*, agrees within 0.1 %), typed here from
-# the published table.
+# ASTM B258 diameters and areas (NBS Handbook 100, *Copper Wire Tables*, agrees within 0.1 %),
+# typed here from the published table.
 AWG_TABLE = [  # AWG, d (mm), A (mm²), Ω/km at 20 °C
     (10, 2.588, 5.261, 3.277),
     (12, 2.053, 3.309, 5.211),
@@ -35,15 +35,31 @@ def test_awg_formula_definition():
     assert awg_diameter(-3) / awg_diameter(36) == pytest.approx(92.0)
 
 
-@pytest.mark.parametrize("num,unit,value,kind", [
-    ("80", "mm", 0.08, "length"), ("2", "cm", 0.02, "length"), ("1", "in", 0.0254, "length"),
-    ("0.75", "mm2", 0.75e-6, "area"), ("1.5", "mm²", 1.5e-6, "area"),
-    ("0.5", "mohm", 0.5e-3, "resistance"), ("10", "Ω", 10.0, "resistance"), ("4.7", "kohm", 4700.0, "resistance"),
-    ("500", "mA", 0.5, "current"), ("230", "V", 230.0, "voltage"), ("50", "Hz", 50.0, "frequency"),
-    ("40", "uT", 40e-6, "flux density"), ("40", "µT", 40e-6, "flux density"), ("47", "uF", 47e-6, "capacitance"),
-    ("100", "nF", 100e-9, "capacitance"), ("30", "dB", 30.0, "level"), ("25", "C", 25.0, "temperature"),
-    ("25", "°C", 25.0, "temperature"), ("300", "K", 300 - 273.15, "temperature"), ("18", "AWG", awg_area(18), "area"),
-])
+@pytest.mark.parametrize(
+    "num,unit,value,kind",
+    [
+        ("80", "mm", 0.08, "length"),
+        ("2", "cm", 0.02, "length"),
+        ("1", "in", 0.0254, "length"),
+        ("0.75", "mm2", 0.75e-6, "area"),
+        ("1.5", "mm²", 1.5e-6, "area"),
+        ("0.5", "mohm", 0.5e-3, "resistance"),
+        ("10", "Ω", 10.0, "resistance"),
+        ("4.7", "kohm", 4700.0, "resistance"),
+        ("500", "mA", 0.5, "current"),
+        ("230", "V", 230.0, "voltage"),
+        ("50", "Hz", 50.0, "frequency"),
+        ("40", "uT", 40e-6, "flux density"),
+        ("40", "µT", 40e-6, "flux density"),
+        ("47", "uF", 47e-6, "capacitance"),
+        ("100", "nF", 100e-9, "capacitance"),
+        ("30", "dB", 30.0, "level"),
+        ("25", "C", 25.0, "temperature"),
+        ("25", "°C", 25.0, "temperature"),
+        ("300", "K", 300 - 273.15, "temperature"),
+        ("18", "AWG", awg_area(18), "area"),
+    ],
+)
 def test_parse_quantity(num, unit, value, kind):
     v, k = parse_quantity(num, unit)
     assert k == kind
@@ -60,7 +76,9 @@ def test_unknown_unit_has_hint():
 
 def test_copper_temperature_coefficient():
     # IEC 60028: α20 = 0.00393 /K for annealed copper
-    assert resistivity("copper", 70.0) / resistivity("copper", 20.0) == pytest.approx(1 + 0.00393 * 50)
+    assert resistivity("copper", 70.0) / resistivity("copper", 20.0) == pytest.approx(
+        1 + 0.00393 * 50
+    )
 
 
 def test_format_si():
@@ -71,9 +89,13 @@ def test_format_si():
 
 def test_figures_for_a_reader_never_show_a_signed_zero_or_a_python_value():
     from groundcheck.core.plain import readable, unsigned_zero
+
     assert readable(-0.04, "+.1f") == "0.0" and readable(-0.0, ".4g") == "0"
     assert readable(-0.06, "+.1f") == "-0.1" and readable(2.5, "+.1f") == "+2.5"
-    assert readable(-0.01, "8.1f") == "     0.0"                    # the width kept
+    assert readable(-0.01, "8.1f") == "     0.0"  # the width kept
     assert readable(None) == "–" and readable(float("inf"), missing="absent") == "absent"
-    assert unsigned_zero("-0.0 dB, +0.00 dB, -0 V, -0.05 dB, x-0.0") == "0.0 dB, 0.00 dB, 0 V, -0.05 dB, x-0.0"
+    assert (
+        unsigned_zero("-0.0 dB, +0.00 dB, -0 V, -0.05 dB, x-0.0")
+        == "0.0 dB, 0.00 dB, 0 V, -0.05 dB, x-0.0"
+    )
     assert math.isfinite(parse_quantity("1e-3", "V")[0])

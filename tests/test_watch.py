@@ -1,6 +1,7 @@
-"""The live view (``groundcheck watch``) in a real headless Chromium: the page follows the plan's edits, shows a
-plan error with its place over the greyed last good result, highlights a finding's elements, shows a conductor's
-figures; the server answers this computer only and stops cleanly on SIGTERM, leaving no file behind."""
+"""The live view (``groundcheck watch``) in a real headless Chromium: the page follows the plan's
+edits, shows a plan error with its place over the greyed last good result, highlights a finding's
+elements, shows a conductor's figures; the server answers this computer only and stops cleanly on
+SIGTERM, leaving no file behind."""
 
 from __future__ import annotations
 
@@ -22,8 +23,10 @@ import pytest
 from browser import CHROMIUM, Browser
 from helpers import ROOT
 
-pytestmark = pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed (Debian package "
-                                                         "'chromium'; .ci/run installs it)")
+pytestmark = pytest.mark.skipif(
+    CHROMIUM is None,
+    reason="headless Chromium is not installed (Debian package 'chromium'; .ci/run installs it)",
+)
 
 EXAMPLE = ROOT / "examples" / "guitar-head.gplan"
 MISTAKE = "wire filt_lead: filt_neg to v1_k, 140 mm, 0.5 mm2, return"
@@ -31,10 +34,17 @@ MENDED = "wire filt_lead: filt_neg to res_neg, 72 mm, 0.5 mm2, return"
 
 
 def _start(plan, *extra):
-    proc = subprocess.Popen([sys.executable, "-m", "groundcheck", "watch", str(plan), "--port", "0", *extra],
-                            stderr=subprocess.PIPE, stdout=subprocess.DEVNULL, text=True, cwd=plan.parent)
-    proc.lines = queue.Queue()                 # its standard error, line by line, read by a thread of its own
-    proc.reader = threading.Thread(target=lambda: [proc.lines.put(x) for x in proc.stderr], daemon=True)
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "groundcheck", "watch", str(plan), "--port", "0", *extra],
+        stderr=subprocess.PIPE,
+        stdout=subprocess.DEVNULL,
+        text=True,
+        cwd=plan.parent,
+    )
+    proc.lines = queue.Queue()  # its standard error, line by line, read by a thread of its own
+    proc.reader = threading.Thread(
+        target=lambda: [proc.lines.put(x) for x in proc.stderr], daemon=True
+    )
     proc.reader.start()
     first = _line(proc)
     m = re.search(r"http://127\.0\.0\.1:(\d+)/([\w-]+)/", first)
@@ -48,7 +58,8 @@ def _line(proc, timeout: float = 30.0) -> str:
 
 
 def _stop(proc, how=signal.SIGTERM) -> str:
-    """A signal (SIGTERM, or SIGINT as Ctrl-C sends), then everything it wrote to standard error not read yet."""
+    """A signal (SIGTERM, or SIGINT as Ctrl-C sends), then everything it wrote to standard error
+    not read yet."""
     proc.send_signal(how)
     proc.wait(20)
     proc.reader.join(10)
@@ -73,7 +84,9 @@ def watched(tmp_path):
     plan = tmp_path / "head.gplan"
     plan.write_text(EXAMPLE.read_text())
     proc, port = _start(plan)
-    browser = Browser(f"http://127.0.0.1:{port}/{proc.token}/", str(tmp_path.parent / f"{tmp_path.name}-profile"))
+    browser = Browser(
+        f"http://127.0.0.1:{port}/{proc.token}/", str(tmp_path.parent / f"{tmp_path.name}-profile")
+    )
     yield plan, proc, port, browser
     browser.close()
     if proc.poll() is None:
@@ -85,16 +98,23 @@ def test_the_page_follows_edits_errors_and_clicks(watched, tmp_path):
     plan, proc, port, browser = watched
     browser.wait_for("document.getElementById('badge').textContent === 'worst finding: fault'")
     assert browser.js("document.querySelectorAll('#physical svg, #topology svg').length") == 2
-    # hovering a finding marks its elements in both drawings and shows its plan line (hovered again until it holds:
-    # a state the server sends meanwhile, on a busy machine, redraws the page and clears the marks)
-    browser.wait_for("(document.querySelector('tr.finding').dispatchEvent(new MouseEvent('mouseenter')), "
-                     "document.querySelectorAll('#physical .hl').length >= 1 "
-                     "&& document.querySelectorAll('#topology .hl').length >= 1)")
+    # hovering a finding marks its elements in both drawings and shows its plan line (hovered again
+    # until it holds: a state the server sends meanwhile, on a busy machine, redraws the page and
+    # clears the marks)
+    browser.wait_for(
+        "(document.querySelector('tr.finding').dispatchEvent(new MouseEvent('mouseenter')), "
+        "document.querySelectorAll('#physical .hl').length >= 1 && "
+        "document.querySelectorAll('#topology .hl').length >= 1)"
+    )
     assert "head.gplan:" in browser.js("document.getElementById('planline').textContent")
     # clicking a conductor in the drawing shows its figures
-    browser.js("document.querySelector('#physical g.edge.gc-k_5f_gnd').dispatchEvent(new MouseEvent('click'))")
+    browser.js(
+        "document.querySelector('#physical g.edge.gc-k_5f_gnd').dispatchEvent(new "
+        "MouseEvent('click'))"
+    )
     inspect = browser.js("document.getElementById('inspect').textContent")
-    # 90 mm of 0.5 mm2 annealed copper at 20 C: 17.241 nohm·m (IEC 60028) x 0.09 m / 0.5 mm2 = 3.103 mohm
+    # 90 mm of 0.5 mm2 annealed copper at 20 C: 17.241 nohm·m (IEC 60028) x 0.09 m / 0.5 mm2 =
+    # 3.103 mohm
     assert "k_gnd" in inspect and "resistance3.103mΩ" in inspect.replace(" ", "")
 
     # a plan error: its place on the page, the last good drawing kept and greyed
@@ -106,9 +126,16 @@ def test_the_page_follows_edits_errors_and_clicks(watched, tmp_path):
     assert browser.js("document.querySelectorAll('#physical svg').length") == 1
 
     # the mend: the filter's return joined to the reservoir clears the shared-return finding
-    plan.write_text(plan.read_text().replace("wire broken: star to\n", "").replace(MISTAKE, MENDED))
-    expected = json.loads(subprocess.run([sys.executable, "-m", "groundcheck", "check", str(plan), "--format",
-                                          "json"], capture_output=True, text=True).stdout)
+    plan.write_text(
+        plan.read_text().replace("wire broken: star to\n", "").replace(MISTAKE, MENDED)
+    )
+    expected = json.loads(
+        subprocess.run(
+            [sys.executable, "-m", "groundcheck", "check", str(plan), "--format", "json"],
+            capture_output=True,
+            text=True,
+        ).stdout
+    )
     worst = expected["summary"]["worst"]
     want = "clean" if worst is None else f"worst finding: {worst}"
     browser.wait_for("!document.body.classList.contains('stale')")
@@ -134,13 +161,14 @@ def test_the_server_answers_this_computer_only(tmp_path):
         base = f"http://127.0.0.1:{port}/{proc.token}"
         with urllib.request.urlopen(f"{base}/state", timeout=10) as r:
             assert json.loads(r.read())["ok"] is True
-        # without the token of the printed address (another user or process of this computer): refused, the
-        # page, the state and the event stream alike
+        # without the token of the printed address (another user or process of this computer):
+        # refused, the page, the state and the event stream alike
         for path in ("/", "/state", "/events", f"/{proc.token[:-1]}/state"):
             with pytest.raises(urllib.error.HTTPError) as e:
                 urllib.request.urlopen(f"http://127.0.0.1:{port}{path}", timeout=10)
             assert e.value.code == 403
-        # a request naming another host (a page elsewhere rebinding its name to 127.0.0.1) is refused
+        # a request naming another host (a page elsewhere rebinding its name to 127.0.0.1) is
+        # refused
         req = urllib.request.Request(f"{base}/state", headers={"Host": f"example.test:{port}"})
         with pytest.raises(urllib.error.HTTPError) as e:
             urllib.request.urlopen(req, timeout=10)
@@ -152,7 +180,7 @@ def test_the_server_answers_this_computer_only(tmp_path):
             csp = r.headers["Content-Security-Policy"]
             page = r.read().decode()
         assert "script-src 'nonce-" in csp and "default-src 'none'" in csp
-        assert not re.search(r'(src|href)\s*=\s*"https?:', page)          # no network fetches
+        assert not re.search(r'(src|href)\s*=\s*"https?:', page)  # no network fetches
         assert "Never lift the protective earth" in page
     finally:
         err = _stop(proc)
@@ -175,7 +203,8 @@ def test_watch_refuses_what_it_cannot_watch(tmp_path, cli):
 
 
 def test_status_line_follows_a_save_quickly(tmp_path):
-    """The terminal's status line after a save: the new verdict and hum (latency is measured in benchmarks/)."""
+    """The terminal's status line after a save: the new verdict and hum (latency is measured in
+    benchmarks/)."""
     plan = tmp_path / "head.gplan"
     plan.write_text(EXAMPLE.read_text())
     proc, port = _start(plan)
@@ -184,7 +213,12 @@ def test_status_line_follows_a_save_quickly(tmp_path):
         time.sleep(0.5)
         _edit(plan, MISTAKE, MENDED)
         line = _line(proc)
-        assert re.match(r"\d\d:\d\d:\d\d  ", line) and "GC102" not in line and "dBV" in line and " ms" in line
+        assert (
+            re.match(r"\d\d:\d\d:\d\d  ", line)
+            and "GC102" not in line
+            and "dBV" in line
+            and " ms" in line
+        )
     finally:
         err = _stop(proc, signal.SIGINT)
     assert proc.returncode == 0 and "live view stopped" in err and "Traceback" not in err
@@ -196,7 +230,7 @@ def test_a_placed_device_plan_is_watched_too(tmp_path):
     device = tmp_path / "studio" / "devices" / "valve-line-preamp.gplan"
     proc, _ = _start(tmp_path / "studio" / "project-studio.gplan")
     try:
-        _line(proc), _line(proc)                         # the caution, the first analysis
+        _line(proc), _line(proc)  # the caution, the first analysis
         time.sleep(0.5)
         device.write_text(device.read_text() + "oops here\n")
         line = _line(proc)
@@ -213,8 +247,8 @@ def test_a_link_swapped_in_is_refused_and_early_closes_are_quiet(tmp_path):
     (tmp_path / "secret.gplan").write_text('plan "s"\nSECRET-LINE-42\n')
     proc, port = _start(plan)
     try:
-        _line(proc), _line(proc)                         # the caution, the first analysis
-        for _ in range(3):                               # a client that closes before reading the answer
+        _line(proc), _line(proc)  # the caution, the first analysis
+        for _ in range(3):  # a client that closes before reading the answer
             s = socket.create_connection(("127.0.0.1", port))
             s.send(f"GET /{proc.token}/state HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\n\r\n".encode())
             s.close()
@@ -224,7 +258,9 @@ def test_a_link_swapped_in_is_refused_and_early_closes_are_quiet(tmp_path):
         line = _line(proc)
         while "link out of the plan's folder" not in line:
             line = _line(proc)
-        with urllib.request.urlopen(f"http://127.0.0.1:{port}/{proc.token}/state", timeout=10) as r:
+        with urllib.request.urlopen(
+            f"http://127.0.0.1:{port}/{proc.token}/state", timeout=10
+        ) as r:
             assert "SECRET" not in r.read().decode()
     finally:
         err = _stop(proc)
@@ -232,8 +268,8 @@ def test_a_link_swapped_in_is_refused_and_early_closes_are_quiet(tmp_path):
 
 
 def test_a_connection_closed_mid_answer_is_no_error():
-    # the browser closes the connection (a reload, a closed tab) while the answer is written: the handler
-    # ends that connection quietly instead of raising, so the terminal shows no traceback
+    # the browser closes the connection (a reload, a closed tab) while the answer is written: the
+    # handler ends that connection quietly instead of raising, so the terminal shows no traceback
     from groundcheck.cli.watch import LiveHandler
 
     class Closed:
@@ -244,7 +280,12 @@ def test_a_connection_closed_mid_answer_is_no_error():
             raise BrokenPipeError(32, "Broken pipe")
 
     h = LiveHandler.__new__(LiveHandler)
-    h.request_version, h.requestline, h.command, h.wfile = "HTTP/1.1", "GET / HTTP/1.1", "GET", Closed()
+    h.request_version, h.requestline, h.command, h.wfile = (
+        "HTTP/1.1",
+        "GET / HTTP/1.1",
+        "GET",
+        Closed(),
+    )
     h.close_connection = False
     h._send(200, b"{}", "application/json")
     assert h.close_connection

@@ -8,6 +8,6 @@ from helpers import ROOT
 
 def test_examples_say_planted_mistakes():
     plans = sorted((ROOT / "examples").rglob("*.gplan"))
-    assert plans                                                  # the test reads real files
+    assert plans  # the test reads real files
     for f in plans:
         assert "seeded" not in f.read_text().lower(), f

@@ -1,6 +1,6 @@
-"""Writing a chosen set of changes: the main plan as a new file and, when a change is inside a device's own
-plan, a changed copy of that plan beside it, which the new plan's ``device`` statement then names.  Nothing the
-user wrote is changed: the originals are only read."""
+"""Writing a chosen set of changes: the main plan as a new file and, when a change is inside a
+device's own plan, a changed copy of that plan beside it, which the new plan's ``device`` statement
+then names.  Nothing the user wrote is changed: the originals are only read."""
 
 from __future__ import annotations
 
@@ -19,8 +19,9 @@ def device_copy_path(target: Path, device_file: str) -> Path:
 
 
 def applied_files(text: str, edits, plan: Plan, target: Path) -> list[tuple[Path, str]]:
-    """(path, text) of every file to write: the new plan first, then each changed device plan's copy.  In the new
-    plan, each ``device`` statement placing a changed plan names its copy instead (a comment says so)."""
+    """(path, text) of every file to write: the new plan first, then each changed device plan's
+    copy.  In the new plan, each ``device`` statement placing a changed plan names its copy instead
+    (a comment says so)."""
     new_text = apply_edits(text, edits)
     copies = {f: (device_copy_path(target, f), t) for f, t in edited_texts(edits).items()}
     if copies:
@@ -31,27 +32,39 @@ def applied_files(text: str, edits, plan: Plan, target: Path) -> list[tuple[Path
         src = PlanTexts(new_text, plan.file)
         repoint = []
         for st in src.main.by_line.values():
-            if st.keyword == "device" and st.label in by_device and st.phrases and st.phrases[0][0].kind == "string":
+            if (
+                st.keyword == "device"
+                and st.label in by_device
+                and st.phrases
+                and st.phrases[0][0].kind == "string"
+            ):
                 item = st.phrases[0][0]
                 copy = copies[by_device[st.label]][0]
                 edit = src.replace(st, [(item, f'"{copy.name}"')])
-                repoint.append(dataclasses.replace(edit, new=f"{edit.new}   # changed copy of {item.value}, "
-                                                   "written by groundcheck suggest"))
+                repoint.append(
+                    dataclasses.replace(
+                        edit,
+                        new=f"{edit.new}   # changed copy of {item.value}, "
+                        "written by groundcheck suggest",
+                    )
+                )
         new_text = apply_edits(new_text, repoint)
     return [(target, new_text), *copies.values()]
 
 
 def moved_references(text: str, file: str, target: Path) -> list[str]:
-    """The ``library``, ``include`` and ``device`` statements of a plan (its ``text``, as written to ``target``)
-    whose relative paths find nothing from ``target``'s folder (their keywords and lines), for a note when the new
-    plan is written in another folder."""
+    """The ``library``, ``include`` and ``device`` statements of a plan (its ``text``, as written
+    to ``target``) whose relative paths find nothing from ``target``'s folder (their keywords and
+    lines), for a note when the new plan is written in another folder."""
     if target.resolve().parent == Path(file).resolve().parent:
         return []
     src = PlanTexts(text, file)
     out = []
     for line, st in sorted(src.main.by_line.items()):
         strings = [it.value for ph in st.phrases for it in ph if it.kind == "string"]
-        moved = [v for v in strings if not Path(v).is_absolute() and not (target.parent / v).exists()]
+        moved = [
+            v for v in strings if not Path(v).is_absolute() and not (target.parent / v).exists()
+        ]
         if st.keyword in ("library", "include", "device") and moved:
             out.append(f"{st.keyword} (line {line})")
     return out

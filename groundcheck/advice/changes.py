@@ -1,6 +1,7 @@
-"""The building blocks of candidate changes: a candidate, the context the candidate makers read (the plan,
-its analysis and its text by the parser's spans, device plans included), and the edits they share: delete
-a statement, move a conductor's end (its length follows the new route), rephrase an attribute."""
+"""The building blocks of candidate changes: a candidate, the context the candidate makers read
+(the plan, its analysis and its text by the parser's spans, device plans included), and the edits
+they share: delete a statement, move a conductor's end (its length follows the new route), rephrase
+an attribute."""
 
 from __future__ import annotations
 
@@ -15,19 +16,34 @@ from ..model.records import Plan
 from ..rules.results import Result
 from .edits import Edit, PlanTexts, shown_path
 
-__all__ = ["Candidate", "ChangeContext", "STUD_CLEARANCE", "SOURCE_CLEARANCE", "STANDARD_SECTIONS_MM2",
-           "ROUTE_ALLOWANCE", "ACTIONS", "local_name", "block_note", "device_note",
-           "delete_change", "route_length", "reroute", "rephrase", "squeeze"]
+__all__ = [
+    "Candidate",
+    "ChangeContext",
+    "STUD_CLEARANCE",
+    "SOURCE_CLEARANCE",
+    "STANDARD_SECTIONS_MM2",
+    "ROUTE_ALLOWANCE",
+    "ACTIONS",
+    "local_name",
+    "block_note",
+    "device_note",
+    "delete_change",
+    "route_length",
+    "reroute",
+    "rephrase",
+    "squeeze",
+]
 
-#: a new stud keeps at least this distance from every other fastening and point of the part, m (common practice:
-#: room for a nut, a lock washer and a crimp lug)
+#: a new stud keeps at least this distance from every other fastening and point of the part, m
+#: (common practice: room for a nut, a lock washer and a crimp lug)
 STUD_CLEARANCE = 15e-3
-#: a field source's own footprint, for placing a new stud clear of a transformer, m (from memory: small mains
-#: transformers are 50–100 mm across)
+#: a field source's own footprint, for placing a new stud clear of a transformer, m (from memory:
+#: small mains transformers are 50–100 mm across)
 SOURCE_CLEARANCE = 40e-3
 #: standard conductor cross-sections, mm² (IEC 60228's series)
 STANDARD_SECTIONS_MM2 = (0.5, 0.75, 1.0, 1.5, 2.5, 4.0, 6.0, 10.0, 16.0, 25.0, 35.0, 50.0)
-#: a re-routed wire's length: its straight-line length plus this share for dress and strain relief (common practice)
+#: a re-routed wire's length: its straight-line length plus this share for dress and strain relief
+#: (common practice)
 ROUTE_ALLOWANCE = 0.2
 
 
@@ -38,22 +54,38 @@ ROUTE_ALLOWANCE = 0.2
 #: elsewhere; give the protective earth its own stud; thicken a protective conductor; bond a part
 #: by a protective wire of its own; on the installation's side (a qualified electrician's work), an
 #: RCD on the supply circuit or a lower earth-electrode resistance
-ACTIONS = ("insulate", "remove", "lift-network", "move", "join", "terminate-at",
-           "shield-to-chassis", "balance", "device-lift", "replug", "own-stud", "thicken", "bond",
-           "rcd", "electrode")
+ACTIONS = (
+    "insulate",
+    "remove",
+    "lift-network",
+    "move",
+    "join",
+    "terminate-at",
+    "shield-to-chassis",
+    "balance",
+    "device-lift",
+    "replug",
+    "own-stud",
+    "thicken",
+    "bond",
+    "rcd",
+    "electrode",
+)
 
 
 @dataclass(frozen=True)
 class Candidate:
     title: str
-    reason: str                     # the finding code(s) it answers
+    reason: str  # the finding code(s) it answers
     edits: tuple[Edit, ...]
     touches_protective: bool = False
-    wire: float = 0.0               # metres of wire the change lays (a re-routed wire's new length): its size
-    moves_plug: bool = False        # it plugs a device in elsewhere: the building's runs its earth used may change
-    action: str = ""                # what it does, in one word of :data:`ACTIONS`
-    element: str = ""               # the element it changes (model name), or the one it answers
-    refused: str = ""               # why it is considered, never tried (bought equipment, say)
+    wire: float = 0.0  # metres of wire the change lays (a re-routed wire's new length): its size
+    moves_plug: bool = (
+        False  # it plugs a device in elsewhere: the building's runs its earth used may change
+    )
+    action: str = ""  # what it does, in one word of :data:`ACTIONS`
+    element: str = ""  # the element it changes (model name), or the one it answers
+    refused: str = ""  # why it is considered, never tried (bought equipment, say)
 
 
 class ChangeContext:
@@ -66,7 +98,8 @@ class ChangeContext:
         self.points = {p.name: p for p in plan.points}
 
     def protective(self, c) -> bool:
-        """Protective by topology or by role (groundcheck.network.earthing): never removed, re-routed or lifted."""
+        """Protective by topology or by role (groundcheck.network.earthing): never removed,
+        re-routed or lifted."""
         return c.name in self.result.protective or c.role == PROTECTIVE
 
     def same_file(self, st, point: str) -> bool:
@@ -78,8 +111,9 @@ class ChangeContext:
         return p is not None and p.location.file == st.loc.file
 
     def statement(self, c):
-        """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan (its name
-        carries the device's prefix); None in an included file (edited in place it would change other plans)."""
+        """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan
+        (its name carries the device's prefix); None in an included file (edited in place it would
+        change other plans)."""
         f = c.location.file
         if f == self.plan.file:
             return self.src.statement(c.location.line)
@@ -90,12 +124,15 @@ class ChangeContext:
     @cached_property
     def G(self):
         from ..network.graph import build_graph
+
         return build_graph(self.plan)
 
     def nearest_star(self, node: str) -> str | None:
-        """The star a return from ``node`` should go to: the star of its own block placement or device when it
-        has one (a channel's returns gather at the channel's star), else the nearest star in the network."""
+        """The star a return from ``node`` should go to: the star of its own block placement or
+        device when it has one (a channel's returns gather at the channel's star), else the nearest
+        star in the network."""
         import networkx as nx
+
         group = self.points[node].group if node in self.points else None
         own = [s for s in self.stars if group and self.points[s].group == group]
         best = None
@@ -110,42 +147,50 @@ class ChangeContext:
 
 
 def local_name(model_name: str, label: str, target: str) -> str:
-    """How ``target`` is written inside the statement whose element is ``model_name`` (local label ``label``)."""
+    """How ``target`` is written inside the statement whose element is ``model_name`` (local label
+    ``label``)."""
     prefix = model_name[: len(model_name) - len(label)]
     if prefix and target.startswith(prefix):
-        return target[len(prefix):]
+        return target[len(prefix) :]
     return target
 
 
 def block_note(model_name: str, label: str) -> str:
-    """A note when the edited statement sits in a block: the change applies to every placement.  (A device's
-    own plan gets :func:`device_note` instead.)"""
+    """A note when the edited statement sits in a block: the change applies to every placement.  (A
+    device's own plan gets :func:`device_note` instead.)"""
     return f" — in its block, so for every placement ({label})" if model_name != label else ""
 
 
 def device_note(c: "Candidate", main: str) -> "Candidate":
-    """A candidate that edits a device's own plan says so: a separate diff, a changed copy on --apply."""
+    """A candidate that edits a device's own plan says so: a separate diff, a changed copy on
+    --apply."""
     files = sorted({e.file for e in c.edits if e.file is not None})
     if not files:
         return c
     where = ", ".join(shown_path(f, Path(main).parent) for f in files)
-    return dataclasses.replace(c, title=c.title + f" — in the device's own plan {where} (a separate diff; "
-                               "--apply writes a changed copy beside the new plan, never the original)")
+    return dataclasses.replace(
+        c,
+        title=c.title + f" — in the device's own plan {where} (a separate diff; "
+        "--apply writes a changed copy beside the new plan, never the original)",
+    )
 
 
-def delete_change(ctx: ChangeContext, name: str, title: str, reason: str,
-                  action: str = "remove") -> Candidate | None:
+def delete_change(
+    ctx: ChangeContext, name: str, title: str, reason: str, action: str = "remove"
+) -> Candidate | None:
     c = ctx.cond.get(name)
     st = ctx.statement(c) if c is not None else None
     if c is None or joins_devices(c) or st is None or st.keyword != c.kind:
-        return None     # (a conductor a 'device ...: simple' statement makes: bought equipment's)
+        return None  # (a conductor a 'device ...: simple' statement makes: bought equipment's)
     note = block_note(c.name, st.label or "") if st.loc.file == ctx.plan.file else ""
-    return Candidate(title + note, reason, (ctx.src.delete(st),), ctx.protective(c),
-                     action=action, element=name)
+    return Candidate(
+        title + note, reason, (ctx.src.delete(st),), ctx.protective(c), action=action, element=name
+    )
 
 
 def route_length(ctx: ChangeContext, c, a: str, b: str) -> float | None:
-    """Straight-line (or waypoint) length between two points with positions, plus the allowance; m."""
+    """Straight-line (or waypoint) length between two points with positions, plus the allowance;
+    m."""
     pa, pb = ctx.points.get(a), ctx.points.get(b)
     if pa is None or pb is None or pa.pos is None or pb.pos is None:
         return None
@@ -153,8 +198,9 @@ def route_length(ctx: ChangeContext, c, a: str, b: str) -> float | None:
     return sum(math.dist(p, q) for p, q in zip(path, path[1:])) * (1 + ROUTE_ALLOWANCE)
 
 
-def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason: str,
-            action: str = "move") -> Candidate | None:
+def reroute(
+    ctx: ChangeContext, name: str, end: str, to: str, title: str, reason: str, action: str = "move"
+) -> Candidate | None:
     """Move the ``end`` of conductor ``name`` to point ``to``; its length follows the new route.
     None when the statement is in a device's own plan and ``to`` is not in that plan (one
     statement never names points of two files)."""
@@ -184,12 +230,27 @@ def reroute(ctx: ChangeContext, name: str, end: str, to: str, title: str, reason
         title += f"; new length {length * 1e3:.0f} mm (straight route + {ROUTE_ALLOWANCE:.0%})"
     edit = ctx.src.replace(st, changes, drop_comment=True)
     note = block_note(c.name, label) if st.loc.file == ctx.plan.file else ""
-    return Candidate(title + note, reason, (edit,), ctx.protective(c), wire=length or 0.0,
-                     action=action, element=name)
+    return Candidate(
+        title + note,
+        reason,
+        (edit,),
+        ctx.protective(c),
+        wire=length or 0.0,
+        action=action,
+        element=name,
+    )
 
 
-def rephrase(ctx: ChangeContext, c, words: tuple[str, ...], new: str, title: str, reason: str,
-             protective=None, action: str = "terminate-at"):
+def rephrase(
+    ctx: ChangeContext,
+    c,
+    words: tuple[str, ...],
+    new: str,
+    title: str,
+    reason: str,
+    protective=None,
+    action: str = "terminate-at",
+):
     """Replace the phrase of ``c``'s statement that starts with ``words`` by ``new``."""
     st = ctx.statement(c)
     ph = ctx.src.find(st, *words) if st is not None else None

@@ -1,5 +1,5 @@
-"""Before/after comparison of two analyses: findings, loops, hum per harmonic, protective earth, and an installation's
-outlet-pair voltages."""
+"""Before/after comparison of two analyses: findings, loops, hum per harmonic, protective earth,
+and an installation's outlet-pair voltages."""
 
 from __future__ import annotations
 
@@ -17,8 +17,8 @@ __all__ = ["compare", "compare_text", "compare_json"]
 def _matched(before: list, after: list) -> dict[str, list]:
     """Findings fixed, kept and introduced, each keyed by its stable identity (``fixes.identity``:
     code, elements, their roles, the channel).  Findings that share one identity are counted, never
-    merged: two before and one after is one kept and one fixed, so an introduced finding cannot hide
-    behind a fixed one of the same key."""
+    merged: two before and one after is one kept and one fixed, so an introduced finding cannot
+    hide behind a fixed one of the same key."""
     groups: dict[tuple, tuple[list, list]] = {}
     for side, findings in ((0, before), (1, after)):
         for f in findings:
@@ -26,9 +26,9 @@ def _matched(before: list, after: list) -> dict[str, list]:
     out: dict[str, list] = {"fixed": [], "kept": [], "introduced": []}
     for key in sorted(groups, key=repr):
         b, a = groups[key]
-        out["kept"] += a[:len(b)]
-        out["fixed"] += b[len(a):]
-        out["introduced"] += a[len(b):]
+        out["kept"] += a[: len(b)]
+        out["fixed"] += b[len(a) :]
+        out["introduced"] += a[len(b) :]
     return out
 
 
@@ -43,7 +43,10 @@ def compare(before: Result, after: Result) -> dict:
     lb = {frozenset(lp.loop.edges): lp for lp in before.loops}
     la = {frozenset(lp.loop.edges): lp for lp in after.loops}
     hum = {}
-    chans = sorted(set(before.hum.channels if before.hum else ()) | set(after.hum.channels if after.hum else ()))
+    chans = sorted(
+        set(before.hum.channels if before.hum else ())
+        | set(after.hum.channels if after.hum else ())
+    )
     for ch in chans:
         hb = before.hum.channels.get(ch) if before.hum else None
         ha = after.hum.channels.get(ch) if after.hum else None
@@ -54,40 +57,76 @@ def compare(before: Result, after: Result) -> dict:
             b, a = _db(sb.get(f)), _db(sa.get(f))
             if b is None and a is None:
                 continue
-            rows.append({"frequency_hz": f, "before_dbv": b, "after_dbv": a,
-                         "change_db": None if b is None or a is None else a - b})
+            rows.append(
+                {
+                    "frequency_hz": f,
+                    "before_dbv": b,
+                    "after_dbv": a,
+                    "change_db": None if b is None or a is None else a - b,
+                }
+            )
         tb, ta = _db(hb.total_v) if hb else None, _db(ha.total_v) if ha else None
-        hum[ch] = {"before_dbv": tb, "after_dbv": ta, "change_db": None if tb is None or ta is None else ta - tb,
-                   "audible_before": hb.audible if hb else None, "audible_after": ha.audible if ha else None,
-                   "spectrum": rows}
+        hum[ch] = {
+            "before_dbv": tb,
+            "after_dbv": ta,
+            "change_db": None if tb is None or ta is None else ta - tb,
+            "audible_before": hb.audible if hb else None,
+            "audible_after": ha.audible if ha else None,
+            "spectrum": rows,
+        }
     pb = {p.part: p for p in (before.safety.parts if before.safety else ())}
     pa = {p.part: p for p in (after.safety.parts if after.safety else ())}
-    pe = [{"part": k, "before_ohm": pb[k].path_resistance if k in pb else None,
-           "after_ohm": pa[k].path_resistance if k in pa else None,
-           "touch_before_v": pb[k].touch_voltage if k in pb else None,
-           "touch_after_v": pa[k].touch_voltage if k in pa else None} for k in sorted(set(pb) | set(pa))]
-    return clean({
-        "caution": CAUTION, "before": before.plan.file, "after": after.plan.file,
-        "verdict": {"before": before.verdict(), "after": after.verdict()},
-        "not_checked": {"before": [n.as_dict() for n in before.not_checked],
-                        "after": [n.as_dict() for n in after.not_checked]},
-        "notices": {"before": list(before.notices), "after": list(after.notices)},
-        "findings": {k: [row(f) for f in v] for k, v in matched.items()},
-        "loops": {"removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
-                  "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
-                  "total_before": before.loop_total, "total_after": after.loop_total},
-        "hum": hum, "protective_earth": pe, "outlets": _outlets(before, after)})
+    pe = [
+        {
+            "part": k,
+            "before_ohm": pb[k].path_resistance if k in pb else None,
+            "after_ohm": pa[k].path_resistance if k in pa else None,
+            "touch_before_v": pb[k].touch_voltage if k in pb else None,
+            "touch_after_v": pa[k].touch_voltage if k in pa else None,
+        }
+        for k in sorted(set(pb) | set(pa))
+    ]
+    return clean(
+        {
+            "caution": CAUTION,
+            "before": before.plan.file,
+            "after": after.plan.file,
+            "verdict": {"before": before.verdict(), "after": after.verdict()},
+            "not_checked": {
+                "before": [n.as_dict() for n in before.not_checked],
+                "after": [n.as_dict() for n in after.not_checked],
+            },
+            "notices": {"before": list(before.notices), "after": list(after.notices)},
+            "findings": {k: [row(f) for f in v] for k, v in matched.items()},
+            "loops": {
+                "removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
+                "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
+                "total_before": before.loop_total,
+                "total_after": after.loop_total,
+            },
+            "hum": hum,
+            "protective_earth": pe,
+            "outlets": _outlets(before, after),
+        }
+    )
 
 
 def _outlets(before: Result, after: Result) -> list[dict]:
-    """Each interconnect's outlet-pair voltage, unplugged and as planned, before and after (installations)."""
+    """Each interconnect's outlet-pair voltage, unplugged and as planned, before and after
+    (installations)."""
     ob = {p.interconnect: p for p in (before.outlets.pairs if before.outlets else ())}
     oa = {p.interconnect: p for p in (after.outlets.pairs if after.outlets else ())}
-    return [{"interconnect": k, "between": f"{(oa.get(k) or ob[k]).a} – {(oa.get(k) or ob[k]).b}",
-             "unplugged_before_v": ob[k].open_total if k in ob else None,
-             "unplugged_after_v": oa[k].open_total if k in oa else None,
-             "planned_before_v": ob[k].planned_total if k in ob else None,
-             "planned_after_v": oa[k].planned_total if k in oa else None} for k in sorted(set(ob) | set(oa))]
+    return [
+        {
+            "interconnect": k,
+            "between": f"{(oa.get(k) or ob[k]).a} – {(oa.get(k) or ob[k]).b}",
+            "unplugged_before_v": ob[k].open_total if k in ob else None,
+            "unplugged_after_v": oa[k].open_total if k in oa else None,
+            "planned_before_v": ob[k].planned_total if k in ob else None,
+            "planned_after_v": oa[k].planned_total if k in oa else None,
+        }
+        for k in sorted(set(ob) | set(oa))
+    ]
 
 
 def _f(x, fmt):
@@ -103,26 +142,36 @@ def _level(dbv_value) -> str:
 
 
 def _hum_line(ch: str, h: dict) -> str:
-    """'Hum, left: -86.2 dBV → no hum; inaudible → inaudible' (the change in dB when both levels exist)."""
+    """'Hum, left: -86.2 dBV → no hum; inaudible → inaudible' (the change in dB when both levels
+    exist)."""
     change = "" if h["change_db"] is None else f" ({readable(h['change_db'], '+.1f')} dB)"
     heard = f"{_HEARD[h['audible_before']]} → {_HEARD[h['audible_after']]}"
     return f"Hum, {ch}: {_level(h['before_dbv'])} → {_level(h['after_dbv'])}{change}; {heard}"
 
 
 def compare_text(d: dict) -> str:
-    out = [f"Compare {d['before']} → {d['after']}", d["caution"],
-           f"Verdict before: {d['verdict']['before']}", f"Verdict after: {d['verdict']['after']}"]
+    out = [
+        f"Compare {d['before']} → {d['after']}",
+        d["caution"],
+        f"Verdict before: {d['verdict']['before']}",
+        f"Verdict after: {d['verdict']['after']}",
+    ]
     for when in ("before", "after"):
         out += [f"Notice ({when}): {n}" for n in d["notices"][when]]
     out.append("")
     fnd = d["findings"]
-    out.append(f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept, {len(fnd['introduced'])} introduced")
+    out.append(
+        f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept, {len(fnd['introduced'])} "
+        "introduced"
+    )
     for tag in ("fixed", "introduced", "kept"):
         for f in fnd[tag]:
             out.append(f"  {tag:<10} {f['code']} {f['severity']:<8} {f['message']}")
     lp = d["loops"]
-    out.append(f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, {len(lp['added'])} "
-               "added)")
+    out.append(
+        f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, "
+        f"{len(lp['added'])} added)"
+    )
     for k in lp["removed"]:
         out.append(f"  removed   {', '.join(k)}")
     for k in lp["added"]:
@@ -131,17 +180,24 @@ def compare_text(d: dict) -> str:
         out.append(_hum_line(ch, h))
         for r in h["spectrum"][:12]:
             change = "" if r["change_db"] is None else f"  {readable(r['change_db'], '+.1f')} dB"
-            out.append(f"  {r['frequency_hz']:>7g} Hz  {_level(r['before_dbv']):>10} → "
-                       f"{_level(r['after_dbv']):>10}{change}")
+            out.append(
+                f"  {r['frequency_hz']:>7g} Hz  {_level(r['before_dbv']):>10} → "
+                f"{_level(r['after_dbv']):>10}{change}"
+            )
     for p in d["protective_earth"]:
-        out.append(f"Protective path to {p['part']}: {_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
-                   f"{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')} mΩ; touch voltage "
-                   f"{_f(p['touch_before_v'], '{:.3g}')} → {_f(p['touch_after_v'], '{:.3g}')} V")
+        out.append(
+            f"Protective path to {p['part']}: "
+            f"{_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
+            f"{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')} mΩ; touch voltage "
+            f"{_f(p['touch_before_v'], '{:.3g}')} → {_f(p['touch_after_v'], '{:.3g}')} V"
+        )
     for o in d.get("outlets", []):
-        mv = (lambda v: _f(None if v is None else v * 1e3, "{:.3g}"))  # noqa: E731
-        out.append(f"Outlet voltage across {o['interconnect']} ({o['between']}): unplugged "
-                   f"{mv(o['unplugged_before_v'])} → {mv(o['unplugged_after_v'])} mV, as planned "
-                   f"{mv(o['planned_before_v'])} → {mv(o['planned_after_v'])} mV")
+        mv = lambda v: _f(None if v is None else v * 1e3, "{:.3g}")  # noqa: E731
+        out.append(
+            f"Outlet voltage across {o['interconnect']} ({o['between']}): unplugged "
+            f"{mv(o['unplugged_before_v'])} → {mv(o['unplugged_after_v'])} mV, as planned "
+            f"{mv(o['planned_before_v'])} → {mv(o['planned_after_v'])} mV"
+        )
     return "\n".join(out) + "\n"
 
 

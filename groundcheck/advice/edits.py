@@ -1,9 +1,10 @@
 """Edits of a plan's text, placed by the parser's own spans (never a second reading of the text).
 
-:class:`PlanText` parses the main plan file once with the language's parser and finds each statement,
-its lines (a statement may continue over several) and the exact column of each item, so that an edit
-replaces just the words it means to, wherever the statement is written.  :class:`Edit` replaces a range
-of lines; :func:`apply_edits` applies several, and :func:`text_diff` shows them as a unified diff.
+:class:`PlanText` parses the main plan file once with the language's parser and finds each
+statement, its lines (a statement may continue over several) and the exact column of each item, so
+that an edit replaces just the words it means to, wherever the statement is written.  :class:`Edit`
+replaces a range of lines; :func:`apply_edits` applies several, and :func:`text_diff` shows them as
+a unified diff.
 """
 
 from __future__ import annotations
@@ -18,8 +19,18 @@ from pathlib import Path
 from ..language.phrases import Item, Statement
 from ..language.syntax import parse_text
 
-__all__ = ["Edit", "apply_edits", "edited_texts", "file_text", "shown_path", "text_diff", "unified_diff", "PlanText",
-           "PlanTexts", "REMOVED_MARK"]
+__all__ = [
+    "Edit",
+    "apply_edits",
+    "edited_texts",
+    "file_text",
+    "shown_path",
+    "text_diff",
+    "unified_diff",
+    "PlanText",
+    "PlanTexts",
+    "REMOVED_MARK",
+]
 
 #: the note a statement commented out by the advisor carries
 REMOVED_MARK = "# removed by groundcheck suggest"
@@ -27,9 +38,10 @@ REMOVED_MARK = "# removed by groundcheck suggest"
 
 @dataclass(frozen=True)
 class Edit:
-    """Replace lines ``line`` to ``last`` (1-based; ``last`` None: that one line) of a plan file by ``new``;
-    ``new`` None comments them out; ``extra`` lines are added after them.  ``file`` None is the main plan
-    file; otherwise the path of a device's own plan (its edits are shown and written apart, never in place)."""
+    """Replace lines ``line`` to ``last`` (1-based; ``last`` None: that one line) of a plan file by
+    ``new``; ``new`` None comments them out; ``extra`` lines are added after them.  ``file`` None
+    is the main plan file; otherwise the path of a device's own plan (its edits are shown and
+    written apart, never in place)."""
 
     line: int
     new: str | None
@@ -39,19 +51,20 @@ class Edit:
 
 
 def apply_edits(text: str, edits, file: str | None = None) -> str:
-    """The text of the main plan (``file`` None) or of the device plan ``file`` with its edits applied."""
+    """The text of the main plan (``file`` None) or of the device plan ``file`` with its edits
+    applied."""
     lines = text.split("\n")
     out = list(lines)
     for e in sorted((e for e in edits if e.file == file), key=lambda e: -e.line):
         i, j = e.line - 1, (e.last or e.line)
-        old = lines[i: j]
+        old = lines[i:j]
         indent = old[0][: len(old[0]) - len(old[0].lstrip())]
         if e.new is None:
             new = [f"{x[: len(x) - len(x.lstrip())]}# {x.strip()}" for x in old]
             new[-1] += f"   {REMOVED_MARK}"
         else:
             new = [e.new]
-        out[i: j] = new + [indent + x for x in e.extra]
+        out[i:j] = new + [indent + x for x in e.extra]
     return "\n".join(out)
 
 
@@ -61,14 +74,16 @@ def text_diff(old: str, new: str, name: str) -> str:
 
 
 def _lines(text: str) -> list[str]:
-    """Lines as the parser counts them: split at newlines only (a lone carriage return stays inside its line)."""
+    """Lines as the parser counts them: split at newlines only (a lone carriage return stays inside
+    its line)."""
     parts = text.split("\n")
     out = [x + "\n" for x in parts[:-1]]
     return out + [parts[-1]] if parts[-1] else out
 
 
 def file_text(file: str) -> str:
-    """A plan file's text as the loader reads it (UTF-8, no newline translation, no byte-order mark)."""
+    """A plan file's text as the loader reads it (UTF-8, no newline translation, no byte-order
+    mark)."""
     return Path(file).read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
 
 
@@ -79,14 +94,14 @@ def edited_texts(edits) -> dict[str, str]:
 
 
 def shown_path(file: str, base: str | Path | None = None) -> str:
-    """A device plan's path as a diff shows it: relative to ``base`` (the main plan's folder) or to the current
-    folder when below it, else as it is."""
+    """A device plan's path as a diff shows it: relative to ``base`` (the main plan's folder) or to
+    the current folder when below it, else as it is."""
     for folder in (base, os.getcwd()):
         if folder is None:
             continue
         try:
             rel = os.path.relpath(file, folder)
-        except ValueError:                              # another drive
+        except ValueError:  # another drive
             continue
         if not rel.startswith(".."):
             return rel
@@ -94,7 +109,8 @@ def shown_path(file: str, base: str | Path | None = None) -> str:
 
 
 def unified_diff(text: str, edits, name: str, base: str | Path | None = None) -> str:
-    """The main plan's diff, then one diff for each device plan the edits change (paths relative to ``base``)."""
+    """The main plan's diff, then one diff for each device plan the edits change (paths relative to
+    ``base``)."""
     out = text_diff(text, apply_edits(text, edits), name)
     for f, new in edited_texts(edits).items():
         out += text_diff(file_text(f), new, shown_path(f, base))
@@ -141,15 +157,18 @@ class PlanText:
         if it.kind == "qty":
             m = _QTY_SPAN.match(line, start)
             end = m.end() if m else start + len(it.text)
-        elif it.kind == "string" and line[start:start + 1] == '"':
-            end = line.index('"', start + 1) + 1          # the quotes belong to the item
+        elif it.kind == "string" and line[start : start + 1] == '"':
+            end = line.index('"', start + 1) + 1  # the quotes belong to the item
         else:
             end = start + len(it.text)
         return it.loc.line, start, end
 
-    def replace(self, st: Statement, changes: list[tuple[Item, str]], drop_comment: bool = False) -> Edit:
-        """Replace items of a statement by new texts (several on one line are fine); the statement's lines
-        are rewritten, and with ``drop_comment`` their trailing comments go (they may describe the old)."""
+    def replace(
+        self, st: Statement, changes: list[tuple[Item, str]], drop_comment: bool = False
+    ) -> Edit:
+        """Replace items of a statement by new texts (several on one line are fine); the
+        statement's lines are rewritten, and with ``drop_comment`` their trailing comments go (they
+        may describe the old)."""
         first, last = st.loc.line, self.last_line(st)
         rows = {n: self.lines[n - 1] for n in range(first, last + 1)}
         for it, new in sorted(changes, key=lambda c: (-c[0].loc.line, -c[0].loc.column)):
@@ -169,15 +188,19 @@ class PlanText:
 
     @staticmethod
     def find(st: Statement, *words: str) -> list[Item] | None:
-        """The items of the phrase that starts with the given words (e.g. ``terminated``, ``both``)."""
+        """The items of the phrase that starts with the given words (e.g. ``terminated``,
+        ``both``)."""
         for ph in st.phrases:
-            if len(ph) >= len(words) and all(it.kind == "word" and it.value == w for it, w in zip(ph, words)):
+            if len(ph) >= len(words) and all(
+                it.kind == "word" and it.value == w for it, w in zip(ph, words)
+            ):
                 return ph
         return None
 
     @staticmethod
     def quantity(st: Statement, kind: str) -> Item | None:
-        """The first item of a statement that is a quantity of ``kind`` (length, area, ...), or an AWG size."""
+        """The first item of a statement that is a quantity of ``kind`` (length, area, ...), or an
+        AWG size."""
         for ph in st.phrases[1:]:
             for it in ph:
                 if it.kind == "qty" and it.qkind == kind:
@@ -186,19 +209,24 @@ class PlanText:
 
 
 class PlanTexts:
-    """The main plan file's :class:`PlanText` and, read when first needed, those of device plans: each edit is
-    placed in the file its statement was written in."""
+    """The main plan file's :class:`PlanText` and, read when first needed, those of device plans:
+    each edit is placed in the file its statement was written in."""
 
     def __init__(self, text: str, file: str):
         self.main = PlanText(text, file)
         self.file = file
         self.lines = self.main.lines
         self.others: dict[str, PlanText] = {}
-        self.ends, self.find, self.quantity, self.last_line = (PlanText.ends, PlanText.find, PlanText.quantity,
-                                                              PlanText.last_line)
+        self.ends, self.find, self.quantity, self.last_line = (
+            PlanText.ends,
+            PlanText.find,
+            PlanText.quantity,
+            PlanText.last_line,
+        )
 
     def statement(self, line: int, file: str | None = None) -> Statement | None:
-        """The statement that starts on ``line`` of the main plan, or of the device plan ``file``."""
+        """The statement that starts on ``line`` of the main plan, or of the device plan
+        ``file``."""
         if file is None or file == self.file:
             return self.main.statement(line)
         if file not in self.others:
@@ -219,7 +247,9 @@ class PlanTexts:
         pt, f = self._of(st.loc.file)
         return dataclasses.replace(pt.delete(st), file=f)
 
-    def replace(self, st: Statement, changes: list[tuple[Item, str]], drop_comment: bool = False) -> Edit:
+    def replace(
+        self, st: Statement, changes: list[tuple[Item, str]], drop_comment: bool = False
+    ) -> Edit:
         pt, f = self._of(st.loc.file)
         return dataclasses.replace(pt.replace(st, changes, drop_comment), file=f)
 

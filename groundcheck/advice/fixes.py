@@ -30,9 +30,13 @@ def identity(f) -> tuple:
     states (``Rule.identity``): a loop is its conductors (in any order); a shared return or a
     contributor its (source, stage) or (element, source) pair, and the channel it reaches when it
     names one; crosstalk its (from, into) pair; anything else its elements."""
-    key = (f.code, *f.elements[:2]) if RULES[f.code].identity == "pair" else (f.code, *sorted(f.elements))
+    key = (
+        (f.code, *f.elements[:2])
+        if RULES[f.code].identity == "pair"
+        else (f.code, *sorted(f.elements))
+    )
     channel = f.figures.get("channel") if f.figures else None
-    return (*key, ("channel", channel)) if channel else key   # one element's share at each output
+    return (*key, ("channel", channel)) if channel else key  # one element's share at each output
 
 
 def _local(name: str) -> str:
@@ -45,12 +49,13 @@ def _answers(ev, f) -> bool:
     c = ev.candidate
     if f.code not in c.reason.split(","):
         return False
-    return (_local(c.element) in {_local(e) for e in f.elements}
-            or any(e and e in c.title for e in f.elements))
+    return _local(c.element) in {_local(e) for e in f.elements} or any(
+        e and e in c.title for e in f.elements
+    )
 
 
 def _fix(f, evs) -> str:
-    if not RULES[f.code].actions:       # a note on the model's reach: its own text is the answer
+    if not RULES[f.code].actions:  # a note on the model's reach: its own text is the answer
         return f.fix
     key = identity(f)
     for ev in evs:

@@ -1,7 +1,8 @@
-"""Candidate changes between the devices of an installation: a balanced interconnect, a ground-lift network on a
-device's signal side, a shield landed on the chassis where it enters, and plugging devices in elsewhere (two devices
-an interconnect joins into one outlet or strip; a device whose earth path is broken into an outlet whose path is
-sound).  See :mod:`groundcheck.advice.candidates` for the rest.
+"""Candidate changes between the devices of an installation: a balanced interconnect, a ground-lift
+network on a device's signal side, a shield landed on the chassis where it enters, and plugging
+devices in elsewhere (two devices an interconnect joins into one outlet or strip; a device whose
+earth path is broken into an outlet whose path is sound).  See :mod:`groundcheck.advice.candidates`
+for the rest.
 """
 
 from __future__ import annotations
@@ -35,19 +36,28 @@ def installation_candidates(ctx: ChangeContext, add) -> None:
 
 
 def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
-    """Interconnects in loops through mains cords, or sharing a supply or leakage current with a stage."""
+    """Interconnects in loops through mains cords, or sharing a supply or leakage current with a
+    stage."""
     links = {c.name for c in plan.conductors if joins_devices(c)}
-    names = {e for lp in result.loops if lp.closed_by == "mains-cords"
-             for e in lp.loop.edges if e in links}
-    # a cable that shares a rectifier's charging current is a power umbilical: balancing it cures nothing (the
-    # cure is inside the supply: the shared-return changes of candidates.py), so only leakage and stated currents count
-    names |= {e for row in result.coupling if row.kind != "rectifier" for e in row.shared
-              if e in links}
+    names = {
+        e
+        for lp in result.loops
+        if lp.closed_by == "mains-cords"
+        for e in lp.loop.edges
+        if e in links
+    }
+    # a cable that shares a rectifier's charging current is a power umbilical: balancing it cures
+    # nothing (the cure is inside the supply: the shared-return changes of candidates.py), so only
+    # leakage and stated currents count
+    names |= {
+        e for row in result.coupling if row.kind != "rectifier" for e in row.shared if e in links
+    }
     return names
 
 
 def _link_candidates(ctx: ChangeContext, add) -> None:
-    """Between pieces of equipment: a balanced interconnect, or a lift network on a device's signal side."""
+    """Between pieces of equipment: a balanced interconnect, or a lift network on a device's signal
+    side."""
     for name in sorted(_installation_interconnects(ctx.plan, ctx.result)):
         c = ctx.cond[name]
         st = ctx.statement(c)
@@ -56,8 +66,18 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
         ph = ctx.src.find(st, "unbalanced")
         if ph:
             edit = ctx.src.replace(st, [(ph[0], "balanced")])
-            add(refuse(Candidate(f"use a balanced interconnect for {name}", "GC101", (edit,),
-                                 action="balance", element=name), refused_balanced(ctx, c)))
+            add(
+                refuse(
+                    Candidate(
+                        f"use a balanced interconnect for {name}",
+                        "GC101",
+                        (edit,),
+                        action="balance",
+                        element=name,
+                    ),
+                    refused_balanced(ctx, c),
+                )
+            )
         for end in (c.a, c.b):
             pt = ctx.plan.point(end)
             if pt is None or not pt.group:
@@ -69,21 +89,36 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
             if dst is None:
                 continue
             ph = ctx.src.find(dst, "signal-ground")
-            edit = ctx.src.replace(dst, [(ph[1], "lift")]) if ph and len(ph) > 1 else _appended(ctx, dst,
-                                                                                                 "signal-ground lift")
+            edit = (
+                ctx.src.replace(dst, [(ph[1], "lift")])
+                if ph and len(ph) > 1
+                else _appended(ctx, dst, "signal-ground lift")
+            )
             # a device placed by a 'device ...: simple' statement is bought equipment: its inside
             # is its maker's
-            lift = Candidate(f"give {dev} a ground-lift network between its signal ground and "
-                             "chassis (never the protective earth)", "GC101", (edit,),
-                             action="device-lift", element=dev)
-            add(refuse(lift, f"{dev} is bought equipment: a ground-lift switch of its maker's, or "
-                       "a qualified technician, only"))
+            lift = Candidate(
+                f"give {dev} a ground-lift network between its signal ground and chassis (never "
+                "the protective earth)",
+                "GC101",
+                (edit,),
+                action="device-lift",
+                element=dev,
+            )
+            add(
+                refuse(
+                    lift,
+                    f"{dev} is bought equipment: a ground-lift switch of its maker's, or a "
+                    "qualified technician, only",
+                )
+            )
 
 
 def _replug_candidates(ctx: ChangeContext, add) -> None:
-    """An interconnect in a loop through two outlets' earths: plug either device in where the other is (one outlet
-    or strip for both), so that the loop no longer runs through the building's protective wiring."""
+    """An interconnect in a loop through two outlets' earths: plug either device in where the other
+    is (one outlet or strip for both), so that the loop no longer runs through the building's
+    protective wiring."""
     from ..physics.outlets import outlet_pairs
+
     devices = {d.name: d for d in ctx.plan.devices}
     looped = {e for lp in ctx.result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges}
     pairs, names = outlet_pairs(ctx.plan)
@@ -95,40 +130,71 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
         for end, there, other in ((c.b, a, c.a), (c.a, b, c.b)):
             dev = devices.get(end.split(".", 1)[0])
             mate = other.split(".", 1)[0]
-            st = ctx.src.statement(dev.location.line) if dev and dev.location.file == ctx.plan.file else None
+            st = (
+                ctx.src.statement(dev.location.line)
+                if dev and dev.location.file == ctx.plan.file
+                else None
+            )
             ph = ctx.src.find(st, "plugged") if st is not None else None
             if ph and len(ph) == 2 and fits(dev, there):
-                add(Candidate(f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for both, within "
-                              f"its current rating: the loop of {name} no longer runs through the building's earth "
-                              "wiring)", "GC101",
-                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True,
-                              action="replug", element=dev.name))
+                add(
+                    Candidate(
+                        f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for "
+                        f"both, within its current rating: the loop of {name} no longer runs "
+                        "through the building's earth wiring)",
+                        "GC101",
+                        (ctx.src.replace(st, [(ph[1], there)]),),
+                        moves_plug=True,
+                        action="replug",
+                        element=dev.name,
+                    )
+                )
 
 
 def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
-    """GC215: a device whose earth pin does not reach the main earthing terminal (or only through a high
-    resistance): plug it in where a device with a sound earth path is plugged, its interconnects' other devices
-    first.  The broken path still needs repair; this takes the device off it."""
+    """GC215: a device whose earth pin does not reach the main earthing terminal (or only through a
+    high resistance): plug it in where a device with a sound earth path is plugged, its
+    interconnects' other devices first.  The broken path still needs repair; this takes the device
+    off it."""
     earths = ctx.result.device_earths or ()
     devices = {d.name: d for d in ctx.plan.devices}
     fits = _fits(ctx.plan)
-    sound = [devices[e.device].plugged for e in earths if e.resistance is not None
-             and e.resistance <= DEVICE_EARTH_LIMIT and e.device in devices and devices[e.device].plugged]
+    sound = [
+        devices[e.device].plugged
+        for e in earths
+        if e.resistance is not None
+        and e.resistance <= DEVICE_EARTH_LIMIT
+        and e.device in devices
+        and devices[e.device].plugged
+    ]
     for f in ctx.result.findings:
         if f.code != "GC215" or f.elements[0] not in devices:
             continue
         dev = devices[f.elements[0]]
-        mates = [x.split(".", 1)[0] for c in ctx.plan.conductors if joins_devices(c)
-                 for x, y in ((c.a, c.b), (c.b, c.a)) if y.split(".", 1)[0] == dev.name]
+        mates = [
+            x.split(".", 1)[0]
+            for c in ctx.plan.conductors
+            if joins_devices(c)
+            for x, y in ((c.a, c.b), (c.b, c.a))
+            if y.split(".", 1)[0] == dev.name
+        ]
         near = [devices[m].plugged for m in mates if m in devices and devices[m].plugged in sound]
         st = ctx.src.statement(dev.location.line) if dev.location.file == ctx.plan.file else None
         ph = ctx.src.find(st, "plugged") if st is not None else None
         for there in list(dict.fromkeys(near + sound))[:3]:
             if ph and len(ph) == 2 and there != dev.plugged and fits(dev, there):
-                add(Candidate(f"plug {dev.name} in at {there}, whose earth path is sound (and have the protective "
-                              f"connection of {dev.plugged} repaired before anything is plugged into it)", "GC215",
-                              (ctx.src.replace(st, [(ph[1], there)]),), moves_plug=True,
-                              action="replug", element=dev.name))
+                add(
+                    Candidate(
+                        f"plug {dev.name} in at {there}, whose earth path is sound (and have the "
+                        f"protective connection of {dev.plugged} repaired before anything is "
+                        "plugged into it)",
+                        "GC215",
+                        (ctx.src.replace(st, [(ph[1], there)]),),
+                        moves_plug=True,
+                        action="replug",
+                        element=dev.name,
+                    )
+                )
 
 
 def _fits(plan: Plan):
@@ -139,8 +205,9 @@ def _fits(plan: Plan):
     feeds = transformer_feeds(plan.transformers, plan.conductors, devices)
     if not feeds:
         return lambda dev, there: True
-    return lambda dev, there: suits(rated_voltage(plan, dev, feeds),
-                                    supply_at(there, feeds, plan.supply))
+    return lambda dev, there: suits(
+        rated_voltage(plan, dev, feeds), supply_at(there, feeds, plan.supply)
+    )
 
 
 def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
@@ -154,22 +221,39 @@ def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
 
 
 def shield_to_chassis(ctx: ChangeContext, f):
-    """GC113: land the interconnect's shield on the chassis at the end where it lands on a signal ground."""
-    (_, name, end), = f.actions
+    """GC113: land the interconnect's shield on the chassis at the end where it lands on a signal
+    ground."""
+    ((_, name, end),) = f.actions
     c = ctx.cond.get(name)
     st = ctx.statement(c) if c is not None else None
     if st is None:
         return None
     ends = list(shield_ends(c))
     ends[0 if end == c.a else 1] = "chassis"
-    new = "shield-to chassis" if ends == ["chassis", "chassis"] else f"shield-to {ends[0]} {ends[1]}"
+    new = (
+        "shield-to chassis" if ends == ["chassis", "chassis"] else f"shield-to {ends[0]} {ends[1]}"
+    )
     ph = ctx.src.find(st, "shield-to")
-    edit = (ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]]) if ph else _appended(ctx, st, new))
+    edit = (
+        ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
+        if ph
+        else _appended(ctx, st, new)
+    )
     edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
-    cand = Candidate(f"land the shield of {name} on the chassis where it enters, not on the "
-                     f"signal ground at {end}", "GC113", (edit,), action="shield-to-chassis",
-                     element=name)
+    cand = Candidate(
+        f"land the shield of {name} on the chassis where it enters, not on the signal ground at "
+        f"{end}",
+        "GC113",
+        (edit,),
+        action="shield-to-chassis",
+        element=name,
+    )
     # an unbalanced link's shield is its signal return: on the chassis, the signal would return
     # through it
-    return refuse(cand, f"{name} is not balanced: its shield is the return of what it carries "
-                  "and stays on the ground it returns to" if not c.balanced else "")
+    return refuse(
+        cand,
+        f"{name} is not balanced: its shield is the return of what it carries and stays on the "
+        "ground it returns to"
+        if not c.balanced
+        else "",
+    )

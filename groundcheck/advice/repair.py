@@ -10,8 +10,9 @@ whose re-analysis raises any protective path's resistance, leaves a touchable pa
 adds a danger is rejected; both are listed as considered and rejected.
 
 The combined search takes the useful candidates best first and tries each on the plan as changed so
-far, keeping it when it still improves the plan; it stops after :data:`MAX_STEPS` kept changes, when no
-finding is left, or when the time budget runs out (the untried candidates are listed as such).
+far, keeping it when it still improves the plan; it stops after :data:`MAX_STEPS` kept changes,
+when no finding is left, or when the time budget runs out (the untried candidates are listed as
+such).
 """
 
 from __future__ import annotations
@@ -34,9 +35,21 @@ from .edits import Edit, apply_edits, edited_texts, text_diff, unified_diff
 from .fixes import identity
 from .returns import lost_wired_returns
 
-__all__ = ["Edit", "Candidate", "Evaluation", "candidates", "evaluate", "suggest", "greedy", "apply_edits",
-           "unified_diff",
-           "text_diff", "MAX_STEPS", "HUM_FLOOR_DBV", "NOT_TRIED"]
+__all__ = [
+    "Edit",
+    "Candidate",
+    "Evaluation",
+    "candidates",
+    "evaluate",
+    "suggest",
+    "greedy",
+    "apply_edits",
+    "unified_diff",
+    "text_diff",
+    "MAX_STEPS",
+    "HUM_FLOOR_DBV",
+    "NOT_TRIED",
+]
 
 MAX_STEPS = 8
 
@@ -46,30 +59,47 @@ class Evaluation:
     candidate: Candidate
     result: Result | None
     score: float = 0.0
-    hum_change_db: dict = field(default_factory=dict)   # channel -> dB (negative: less hum)
+    hum_change_db: dict = field(default_factory=dict)  # channel -> dB (negative: less hum)
     cleared: list = field(default_factory=list)
     introduced: list = field(default_factory=list)
     rejected: str = ""
     hum_before_dbv: dict = field(default_factory=dict)  # channel -> dBV (floored at HUM_FLOOR_DBV)
     hum_after_dbv: dict = field(default_factory=dict)
-    net: dict = field(default_factory=dict)              # severity -> findings cleared less those introduced
-    cleared_keys: set = field(default_factory=set)       # identities it clears (fixes.identity)
+    net: dict = field(default_factory=dict)  # severity -> findings cleared less those introduced
+    cleared_keys: set = field(default_factory=set)  # identities it clears (fixes.identity)
 
     def rank_key(self):
-        """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net), hum gain, findings
-        introduced, size of the change (statements edited, then metres of wire laid)."""
-        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(max(0.0,
-                                                                                d) for d in self.hum_change_db.values())
-        return (bool(self.rejected), -self.net.get("danger", 0), -self.net.get("fault", 0), -round(gain, 1),
-                len(self.introduced), len(self.candidate.edits), round(self.candidate.wire, 4), self.candidate.title)
+        """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net),
+        hum gain, findings introduced, size of the change (statements edited, then metres of wire
+        laid)."""
+        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(
+            max(0.0, d) for d in self.hum_change_db.values()
+        )
+        return (
+            bool(self.rejected),
+            -self.net.get("danger", 0),
+            -self.net.get("fault", 0),
+            -round(gain, 1),
+            len(self.introduced),
+            len(self.candidate.edits),
+            round(self.candidate.wire, 4),
+            self.candidate.title,
+        )
 
     def as_dict(self, diff: str = "") -> dict:
         c = self.candidate
-        return {"title": c.title, "answers": c.reason, "action": c.action, "element": c.element,
-                "score": round(self.score, 3),
-                "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
-                "findings_cleared": self.cleared, "findings_introduced": self.introduced,
-                "rejected": self.rejected or None, "diff": diff}
+        return {
+            "title": c.title,
+            "answers": c.reason,
+            "action": c.action,
+            "element": c.element,
+            "score": round(self.score, 3),
+            "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
+            "findings_cleared": self.cleared,
+            "findings_introduced": self.introduced,
+            "rejected": self.rejected or None,
+            "diff": diff,
+        }
 
 
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
@@ -87,8 +117,7 @@ PE_TOLERANCE = 0.06
 def _hum_db(r: Result) -> dict[str, float]:
     if r.hum is None:
         return {}
-    return {ch: max(HUM_FLOOR_DBV, dbv(h.total_v))
-            for ch, h in r.hum.channels.items()}
+    return {ch: max(HUM_FLOOR_DBV, dbv(h.total_v)) for ch, h in r.hum.channels.items()}
 
 
 def _keys(r: Result):
@@ -104,8 +133,15 @@ def _pe(r: Result) -> dict[str, float]:
     return {} if r.safety is None else {p.part: p.path_resistance for p in r.safety.parts}
 
 
-def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, options: Options,
-             root: Path | None = None, resolved: Path | None = None) -> Evaluation:
+def evaluate(
+    base_text: str,
+    plan: Plan,
+    before: Result,
+    cand: Candidate,
+    options: Options,
+    root: Path | None = None,
+    resolved: Path | None = None,
+) -> Evaluation:
     """Apply a candidate to the text, re-analyse, and score it against ``before``."""
     if cand.touches_protective:
         return Evaluation(cand, None, rejected="it would change a protective conductor")
@@ -116,31 +152,43 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         with substituted(edited_texts(cand.edits)):
             p = load_text(text, plan.file, root=root, _resolved=resolved)
     except PlanErrors as e:
-        return Evaluation(cand, None, rejected=f"the edited plan does not load ({e.errors[0].one_line()})")
+        return Evaluation(
+            cand, None, rejected=f"the edited plan does not load ({e.errors[0].one_line()})"
+        )
     unwired = lost_wired_returns(plan, p)
     if unwired:
-        return Evaluation(cand, None, rejected=f"it would leave {', '.join(unwired[:3])} without "
-                          "a wired return (the signal would return through the chassis, or not "
-                          "at all)")
+        return Evaluation(
+            cand,
+            None,
+            rejected=f"it would leave {', '.join(unwired[:3])} without "
+            "a wired return (the signal would return through the chassis, or not at all)",
+        )
     after = analyze(p, options)
     ev = Evaluation(cand, after)
     if _through_star(cand, after):
         ev.rejected = "it would send a supply's charging or ripple current through the star"
         return ev
-    # a device plugged in elsewhere leaves the building runs it used, but no conductor: its earth path is checked
-    # again below (a broken or long one is a danger, GC215)
-    lost = sorted(before.protective - after.protective - _left_stud(cand, plan, p)) \
-        if not cand.moves_plug else []
+    # a device plugged in elsewhere leaves the building runs it used, but no conductor: its earth
+    # path is checked again below (a broken or long one is a danger, GC215)
+    lost = (
+        sorted(before.protective - after.protective - _left_stud(cand, plan, p))
+        if not cand.moves_plug
+        else []
+    )
     if lost:
         ev.rejected = f"it would take {', '.join(lost[:3])} off the protective route"
         return ev
     pe0, pe1 = _pe(before), _pe(after)
-    # a change that answers a protective-earth finding (its own stud, say) may lengthen a path a little, as long
-    # as every path stays within the limit; any other change must not weaken the protective earth at all
+    # a change that answers a protective-earth finding (its own stud, say) may lengthen a path a
+    # little, as long as every path stays within the limit; any other change must not weaken the
+    # protective earth at all
     pe_fix = RULES[cand.reason.split(",")[0]].family == PROTECTIVE_EARTH
     limit = after.safety.limit if after.safety is not None else 0.0
-    if any(part not in pe1 or (pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 and not (pe_fix and pe1[part] <= limit))
-           for part, r in pe0.items()):
+    if any(
+        part not in pe1
+        or (pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 and not (pe_fix and pe1[part] <= limit))
+        for part, r in pe0.items()
+    ):
         ev.rejected = "it would weaken the protective-earth path"
         return ev
     k0, k1 = _keys(before), _keys(after)
@@ -148,7 +196,7 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
     ev.cleared = sorted(_label(k0[k]) for k in ev.cleared_keys)
     ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
     new = k1.keys() - k0.keys()
-    for k in k0.keys() - k1.keys():                      # the findings' own severities, not their rules' defaults
+    for k in k0.keys() - k1.keys():  # the findings' own severities, not their rules' defaults
         ev.net[k0[k].severity] = ev.net.get(k0[k].severity, 0) + 1
     for k in new:
         ev.net[k1[k].severity] = ev.net.get(k1[k].severity, 0) - 1
@@ -156,9 +204,13 @@ def evaluate(base_text: str, plan: Plan, before: Result, cand: Candidate, option
         ev.rejected = "it would add a danger finding"
         return ev
     outlets = {p.name for p in after.plan.points if p.kind == "outlet"}
-    # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the signal ground
-    if any(k1[k].code in ("GC106", "GC109", "GC401") and not (cand.moves_plug and set(k1[k].elements) <= outlets)
-           for k in new):
+    # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the
+    # signal ground
+    if any(
+        k1[k].code in ("GC106", "GC109", "GC401")
+        and not (cand.moves_plug and set(k1[k].elements) <= outlets)
+        for k in new
+    ):
         ev.rejected = "it would leave part of the signal ground unconnected"
         return ev
     _score(ev, before, after, k0, k1)
@@ -170,8 +222,9 @@ def _left_stud(cand: Candidate, plan: Plan, after: Plan) -> set[str]:
     wire no longer runs through them, and its new stud's own fastening carries it instead."""
     if cand.action != "own-stud":
         return set()
-    c0, c1 = (next((c for c in x.conductors if c.name == cand.element), None)
-              for x in (plan, after))
+    c0, c1 = (
+        next((c for c in x.conductors if c.name == cand.element), None) for x in (plan, after)
+    )
     if c0 is None or c1 is None:
         return set()
     left = {c0.a, c0.b} - {c1.a, c1.b}
@@ -185,18 +238,25 @@ def _through_star(cand: Candidate, after: Result) -> bool:
     if cand.action not in ("move", "join"):
         return False
     c = next((c for c in after.plan.conductors if c.name == cand.element), None)
-    return c is not None and any(f.code == "GC103" and f.actions and f.actions[0][0] == "join"
-                                 and {c.a, c.b} <= set(f.elements) for f in after.findings)
+    return c is not None and any(
+        f.code == "GC103"
+        and f.actions
+        and f.actions[0][0] == "join"
+        and {c.a, c.b} <= set(f.elements)
+        for f in after.findings
+    )
 
 
 def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:
-    """The hum change and score of a candidate that passed the safety checks; rejected when it makes a channel
-    louder without clearing a danger or fault, or gains nothing."""
+    """The hum change and score of a candidate that passed the safety checks; rejected when it
+    makes a channel louder without clearing a danger or fault, or gains nothing."""
     h0, h1 = _hum_db(before), _hum_db(after)
     ev.hum_before_dbv, ev.hum_after_dbv = h0, {ch: h1.get(ch, HUM_FLOOR_DBV) for ch in h0}
     ev.hum_change_db = {ch: ev.hum_after_dbv[ch] - h0[ch] for ch in h0}
     weight = {0: 30.0, 1: 10.0, 2: 3.0, 3: 0.5}
-    score = sum(max(0.0, -d) for d in ev.hum_change_db.values()) - sum(max(0.0, d) for d in ev.hum_change_db.values())
+    score = sum(max(0.0, -d) for d in ev.hum_change_db.values()) - sum(
+        max(0.0, d) for d in ev.hum_change_db.values()
+    )
     score += sum(weight[severity_rank(k0[k].severity)] for k in k0.keys() - k1.keys())
     score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
     ev.score = score
@@ -213,7 +273,6 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
 NOT_TRIED = "not tried: the time budget ran out (raise --budget to try it)"
 
 
-
 def _deadline(budget: float | None) -> float | None:
     return None if budget is None else time.monotonic() + budget
 
@@ -222,16 +281,28 @@ def _late(deadline: float | None) -> bool:
     return deadline is not None and time.monotonic() > deadline
 
 
-def suggest(plan: Plan, text: str, options: Options = Options(), root: Path | None = None,
-            resolved: Path | None = None, *, budget: float | None = None, progress=None,
-            before: Result | None = None) -> tuple[Result, list[Evaluation]]:
-    """Every candidate evaluated (answers to the most serious findings first), the useful ones first in the
-    result, then the rejected ones.  With a ``budget`` (seconds), candidates not reached in time are listed
-    as untried; ``progress(done, total)`` is called after each evaluation."""
+def suggest(
+    plan: Plan,
+    text: str,
+    options: Options = Options(),
+    root: Path | None = None,
+    resolved: Path | None = None,
+    *,
+    budget: float | None = None,
+    progress=None,
+    before: Result | None = None,
+) -> tuple[Result, list[Evaluation]]:
+    """Every candidate evaluated (answers to the most serious findings first), the useful ones
+    first in the result, then the rejected ones.  With a ``budget`` (seconds), candidates not
+    reached in time are listed as untried; ``progress(done, total)`` is called after each
+    evaluation."""
     before = before or analyze(plan, options)
     deadline = _deadline(budget)
-    # answers to the most serious rules first (their catalogue severity), so a short budget tries them
-    cands = sorted(candidates(plan, before, text), key=lambda c: severity_rank(RULES[c.reason].severity))
+    # answers to the most serious rules first (their catalogue severity), so a short budget tries
+    # them
+    cands = sorted(
+        candidates(plan, before, text), key=lambda c: severity_rank(RULES[c.reason].severity)
+    )
     evs = []
     for i, c in enumerate(cands):
         if _late(deadline):
@@ -249,13 +320,22 @@ def _overlaps(edits, more) -> bool:
     return any(n in taken for e in more for n in range(e.line, (e.last or e.line) + 1))
 
 
-def greedy(plan: Plan, text: str, options: Options = Options(), root: Path | None = None,
-           resolved: Path | None = None, *, evs: list[Evaluation] | None = None, before: Result | None = None,
-           budget: float | None = None) -> tuple[list[Evaluation], Result, str]:
-    """The combined set: the useful candidates, best first, each tried on the plan as changed so far and kept
-    when it still improves it (re-analysed, with every safety rejection of :func:`evaluate`), until
-    :data:`MAX_STEPS` are kept, nothing is left, or the ``budget`` (seconds) runs out.  Candidates' edits all
-    refer to the original text, so the kept ones are applied to it together; overlapping ones are skipped."""
+def greedy(
+    plan: Plan,
+    text: str,
+    options: Options = Options(),
+    root: Path | None = None,
+    resolved: Path | None = None,
+    *,
+    evs: list[Evaluation] | None = None,
+    before: Result | None = None,
+    budget: float | None = None,
+) -> tuple[list[Evaluation], Result, str]:
+    """The combined set: the useful candidates, best first, each tried on the plan as changed so
+    far and kept when it still improves it (re-analysed, with every safety rejection of
+    :func:`evaluate`), until :data:`MAX_STEPS` are kept, nothing is left, or the ``budget``
+    (seconds) runs out.  Candidates' edits all refer to the original text, so the kept ones are
+    applied to it together; overlapping ones are skipped."""
     deadline = _deadline(budget)
     if evs is None:
         before, evs = suggest(plan, text, options, root, resolved, budget=budget, before=before)

@@ -1,4 +1,5 @@
-"""The suggestions as people read them: the terminal text and the JSON document of ``groundcheck suggest``.
+"""The suggestions as people read them: the terminal text and the JSON document of ``groundcheck
+suggest``.
 
 Hum is shown as real levels before and after with the change in words, never as a clamped number.
 """
@@ -27,7 +28,11 @@ def _hum_change_words(ch: str, before: float, after: float) -> str:
     if before <= HUM_FLOOR_DBV and after <= HUM_FLOOR_DBV:
         return f"hum {ch}: none above {HUM_FLOOR_DBV:.0f} dBV before or after"
     d = after - before
-    change = "unchanged" if abs(d) < 0.05 else (f"{-d:.1f} dB quieter" if d < 0 else f"{d:.1f} dB louder")
+    change = (
+        "unchanged"
+        if abs(d) < 0.05
+        else (f"{-d:.1f} dB quieter" if d < 0 else f"{d:.1f} dB louder")
+    )
     if after <= HUM_FLOOR_DBV:
         change = "hum removed from this channel" if before > HUM_FLOOR_DBV else "unchanged"
     return f"hum {ch}: {_level(before)} → {_level(after)} ({change})"
@@ -52,61 +57,107 @@ def _base(plan: Plan) -> Path:
     return Path(plan.file).parent
 
 
-def suggestions_document(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
-                         final: Result) -> dict:
+def suggestions_document(
+    plan: Plan,
+    text: str,
+    name: str,
+    evs: list[Evaluation],
+    chosen: list[Evaluation],
+    final: Result,
+) -> dict:
     """The suggestions as plain data (``groundcheck suggest --format json``)."""
-    return {"caution": CAUTION, "plan": plan.file,
-            "suggestions": [e.as_dict(unified_diff(text, e.candidate.edits, name, _base(plan)))
-                            for e in evs if not e.rejected],
-            "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
-            "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
-            "combined": {"search": "useful changes best first, each re-analysed on the plan as changed so far and kept "
-                                   "if it still helps",
-                         "changes": [e.candidate.title for e in chosen],
-                         "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
-                         "verdict": final.verdict(),
-                         "not_checked": [n.as_dict() for n in final.not_checked],
-                         "diff": unified_diff(text, [x for e in chosen for x in e.candidate.edits], name,
-                                                 _base(plan))}}
+    return {
+        "caution": CAUTION,
+        "plan": plan.file,
+        "suggestions": [
+            e.as_dict(unified_diff(text, e.candidate.edits, name, _base(plan)))
+            for e in evs
+            if not e.rejected
+        ],
+        "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
+        "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
+        "combined": {
+            "search": "useful changes best first, each re-analysed on the plan as changed so far "
+            "and kept if it still helps",
+            "changes": [e.candidate.title for e in chosen],
+            "findings_left": [f"{f.code} {f.severity}" for f in final.findings],
+            "verdict": final.verdict(),
+            "not_checked": [n.as_dict() for n in final.not_checked],
+            "diff": unified_diff(
+                text, [x for e in chosen for x in e.candidate.edits], name, _base(plan)
+            ),
+        },
+    }
 
 
-def suggestions_text(plan: Plan, text: str, name: str, evs: list[Evaluation], chosen: list[Evaluation],
-                     final: Result, caution: str) -> str:
+def suggestions_text(
+    plan: Plan,
+    text: str,
+    name: str,
+    evs: list[Evaluation],
+    chosen: list[Evaluation],
+    final: Result,
+    caution: str,
+) -> str:
     """The suggestions as the terminal shows them: each with its predicted effect and its diff."""
     useful = [e for e in evs if not e.rejected]
     rejected = [e for e in evs if e.rejected and e.rejected != NOT_TRIED]
     untried = [e for e in evs if e.rejected == NOT_TRIED]
     out = [f"Suggestions for {plan.file} (each re-analysed; best first)", caution]
-    out += [f"{n.sentence()[0].upper()}{n.sentence()[1:]} (no suggestion answers a rule not "
-            "checked)" for n in final.not_checked if n.location is None]
+    out += [
+        f"{n.sentence()[0].upper()}{n.sentence()[1:]} (no suggestion answers a rule not checked)"
+        for n in final.not_checked
+        if n.location is None
+    ]
     out.append("")
     if not useful:
         out.append("No change found that improves the plan.")
     for i, e in enumerate(useful, 1):
-        hum = "; ".join(_hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch]) for ch in e.hum_change_db)
+        hum = "; ".join(
+            _hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch])
+            for ch in e.hum_change_db
+        )
         out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
         cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")
-        out.append(f"   predicted: {hum or 'no hum figures'}; {cleared}"
-                   + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else ""))
-        out.append("   " + unified_diff(text, e.candidate.edits, name, _base(plan)).replace("\n", "\n   ").rstrip())
+        out.append(
+            f"   predicted: {hum or 'no hum figures'}; {cleared}"
+            + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else "")
+        )
+        out.append(
+            "   "
+            + unified_diff(text, e.candidate.edits, name, _base(plan))
+            .replace("\n", "\n   ")
+            .rstrip()
+        )
         out.append("")
     if rejected:
         out.append("Considered and rejected:")
         out.extend(f"  - {e.candidate.title}: {e.rejected}" for e in rejected)
     if untried:
-        out.append(f"Not tried within the time budget: {len(untried)} candidate" + ("" if len(untried) == 1 else "s")
-                   + " (raise --budget to try them), first: " + "; ".join(e.candidate.title for e in untried[:3]))
+        out.append(
+            f"Not tried within the time budget: {len(untried)} candidate"
+            + ("" if len(untried) == 1 else "s")
+            + " (raise --budget to try them), first: "
+            + "; ".join(e.candidate.title for e in untried[:3])
+        )
         out.append("")
     n = len(chosen)
-    out.append(f"Combined (best first, each re-checked on the plan as changed so far): {n} change"
-               + ("" if n == 1 else "s")
-               + (": " + "; ".join(e.candidate.title for e in chosen) if chosen else ""))
+    out.append(
+        f"Combined (best first, each re-checked on the plan as changed so far): {n} change"
+        + ("" if n == 1 else "s")
+        + (": " + "; ".join(e.candidate.title for e in chosen) if chosen else "")
+    )
     left = [f"{f.code} {f.severity}" for f in final.findings]
     partial = any(n.location is None for n in final.not_checked)
     among = " among the rules checked" if partial else ""
-    out.append(f"  leaves no finding{among}" if not left
-               else f"  leaves {len(left)}{among}: " + _counted(left))
+    out.append(
+        f"  leaves no finding{among}"
+        if not left
+        else f"  leaves {len(left)}{among}: " + _counted(left)
+    )
     out.append(f"  verdict after: {final.verdict()}")
     if final.hum is not None:
-        out.append("  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items()))
+        out.append(
+            "  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items())
+        )
     return "\n".join(out) + "\n"

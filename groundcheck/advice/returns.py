@@ -23,8 +23,14 @@ from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_dev
 from ..model.records import PE_POINT, Plan
 from .changes import Candidate, ChangeContext, delete_change
 
-__all__ = ["SOCKET_KINDS", "insulate_candidates", "refused_balanced", "wired_graph",
-           "lost_wired_returns", "refuse"]
+__all__ = [
+    "SOCKET_KINDS",
+    "insulate_candidates",
+    "refused_balanced",
+    "wired_graph",
+    "lost_wired_returns",
+    "refuse",
+]
 
 #: point kinds of a socket or part mounted through the metal: insulated from it by an insulated
 #: socket or shoulder washers (common practice)
@@ -42,13 +48,21 @@ def _socket_end(c, ctx: ChangeContext) -> str | None:
 def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str):
     if ctx.points[point].kind == "terminal":
         return delete_change(
-            ctx, name, f"remove {name}, the bond of {point} (0 V) to {metal} (not protective: "
-            f"the protective earth does not run through it), to open the loop closed by "
-            f"{closed_by}", "GC101", "remove")
+            ctx,
+            name,
+            f"remove {name}, the bond of {point} (0 V) to {metal} (not protective: the protective "
+            f"earth does not run through it), to open the loop closed by {closed_by}",
+            "GC101",
+            "remove",
+        )
     return delete_change(
-        ctx, name, f"insulate {name}: {point} off {metal} (an insulated socket or shoulder "
-        f"washers), keeping its wired return, to open the loop closed by {closed_by}",
-        "GC101", "insulate")
+        ctx,
+        name,
+        f"insulate {name}: {point} off {metal} (an insulated socket or shoulder washers), keeping "
+        f"its wired return, to open the loop closed by {closed_by}",
+        "GC101",
+        "insulate",
+    )
 
 
 def insulate_candidates(ctx: ChangeContext, add) -> None:
@@ -76,27 +90,38 @@ def refused_balanced(ctx: ChangeContext, c) -> str:
     for end in (c.a, c.b):
         pt = ctx.points.get(end)
         if pt is not None and pt.kind == "sleeve":
-            return (f"{end} is an unbalanced socket's sleeve: the equipment has no balanced "
-                    "socket there")
+            return (
+                f"{end} is an unbalanced socket's sleeve: the equipment has no balanced socket "
+                "there"
+            )
     for dev in _bought_without_balanced_socket(ctx, c):
-        return (f"{dev} is bought equipment ('simple') and its statement does not say 'sockets "
-                "balanced', nor does a balanced link of this plan reach it: its sockets are taken as "
-                "made, unbalanced")
+        return (
+            f"{dev} is bought equipment ('simple') and its statement does not say 'sockets "
+            "balanced', nor does a balanced link of this plan reach it: its sockets are taken as "
+            "made, unbalanced"
+        )
     return ""
 
 
 def _bought_without_balanced_socket(ctx: ChangeContext, c) -> list[str]:
-    """The devices at ``c``'s ends placed as ``simple`` (bought: their sockets are as made) that are
-    not known to have a balanced socket: not stated ``sockets balanced`` and reached by no balanced
-    interconnect of the plan (``sockets unbalanced`` settles it either way)."""
+    """The devices at ``c``'s ends placed as ``simple`` (bought: their sockets are as made) that
+    are not known to have a balanced socket: not stated ``sockets balanced`` and reached by no
+    balanced interconnect of the plan (``sockets unbalanced`` settles it either way)."""
     devices = {d.name: d for d in ctx.plan.devices}
     simple = {d.name: d.sockets for d in ctx.plan.devices if d.source == "simple"}
     # an end is a point or, for a shield landed on the chassis, the device's metal part: its
     # device is its name's prefix
-    linked = {device_of(e, devices) for x in ctx.plan.conductors if joins_devices(x) and x.balanced
-              for e in (x.a, x.b)}
-    return [d for d in (device_of(c.a, devices), device_of(c.b, devices)) if d in simple
-            and (simple[d] == "unbalanced" or (simple[d] is None and d not in linked))]
+    linked = {
+        device_of(e, devices)
+        for x in ctx.plan.conductors
+        if joins_devices(x) and x.balanced
+        for e in (x.a, x.b)
+    }
+    return [
+        d
+        for d in (device_of(c.a, devices), device_of(c.b, devices))
+        if d in simple and (simple[d] == "unbalanced" or (simple[d] is None and d not in linked))
+    ]
 
 
 def wired_graph(plan: Plan) -> nx.Graph:
@@ -117,8 +142,7 @@ def _guarded(plan: Plan, after: Plan) -> set[str]:
     """Sockets' returns and stages' ends: the points whose wired return the advisor never
     removes.  A balanced link's input (after the change) is no such stage: its signal returns in
     the link's own pair."""
-    balanced = {f"{c.name}.input" for c in after.conductors
-                if joins_devices(c) and c.balanced}
+    balanced = {f"{c.name}.input" for c in after.conductors if joins_devices(c) and c.balanced}
     out = {p.name for p in plan.points if p.kind in ("sleeve", "jack")}
     for s in plan.stages:
         if s.name not in balanced:

@@ -26,8 +26,10 @@ RCD_RATINGS = (0.01, 0.03, 0.1, 0.3, 0.5)
 #: IΔn at most 30 mA, from memory)
 SOCKET_RCD = 0.03
 
-_DEFER = ("installation work for a qualified electrician, to the local wiring rules; the "
-          "equipment's protective earth stays as it is")
+_DEFER = (
+    "installation work for a qualified electrician, to the local wiring rules; the equipment's "
+    "protective earth stays as it is"
+)
 
 
 def electrode_target(rcd: float) -> float:
@@ -58,9 +60,14 @@ def _set(ctx: ChangeContext, st, word: str, value: str) -> Edit:
 
 def _rcd(ctx: ChangeContext, st, rating: float, reason: str, why: str) -> Candidate:
     ma = f"{rating * 1e3:g} mA"
-    return Candidate(f"have the supply circuit protected by a {ma} RCD ({why}): {_DEFER}; the "
-                     f"mains statement then states 'rcd {ma}'", reason,
-                     (_set(ctx, st, "rcd", ma),), action="rcd", element="mains")
+    return Candidate(
+        f"have the supply circuit protected by a {ma} RCD ({why}): {_DEFER}; the mains statement "
+        f"then states 'rcd {ma}'",
+        reason,
+        (_set(ctx, st, "rcd", ma),),
+        action="rcd",
+        element="mains",
+    )
 
 
 def supply_candidates(ctx: ChangeContext, add) -> None:
@@ -79,14 +86,25 @@ def supply_candidates(ctx: ChangeContext, add) -> None:
     if m is None or m.location.file != ctx.plan.file:
         return
     st = ctx.src.statement(m.location.line)
-    codes = {f.code for f in ctx.result.findings if f.code in ("GC208", "GC220", "GC221")
-             and (f.code != "GC208" or f.severity == "danger")}
+    codes = {
+        f.code
+        for f in ctx.result.findings
+        if f.code in ("GC208", "GC220", "GC221") and (f.code != "GC208" or f.severity == "danger")
+    }
     if st is None or not codes:
         return
     if ("GC208" in codes or "GC221" in codes) and (m.rcd is None or m.rcd > SOCKET_RCD):
         reason = "GC208" if "GC208" in codes else "GC221"
-        add(_rcd(ctx, st, SOCKET_RCD, reason, "it disconnects a fault to the metal within "
-                 "the time allowed, whatever the fault loop"))
+        add(
+            _rcd(
+                ctx,
+                st,
+                SOCKET_RCD,
+                reason,
+                "it disconnects a fault to the metal within the time allowed, whatever the fault "
+                "loop",
+            )
+        )
     if "GC220" in codes and m.rcd is not None:
         r_a = ctx.result.safety.supply.electrode if ctx.result.safety is not None else None
         finer = [r for r in RCD_RATINGS if r < m.rcd and (r_a is None or r_a * r <= TOUCH_LIMIT)]
@@ -94,9 +112,15 @@ def supply_candidates(ctx: ChangeContext, add) -> None:
             add(_rcd(ctx, st, finer[-1], "GC220", f"electrode × rating within {TOUCH_LIMIT:g} V"))
         target = electrode_target(m.rcd)
         if r_a is None or target < r_a:
-            add(Candidate(f"have the installation's earth electrode measured and improved to "
-                          f"at most {target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
-                          f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states "
-                          f"'electrode {target:g} ohm'", "GC220",
-                          (_set(ctx, st, "electrode", f"{target:g} ohm"),), action="electrode",
-                          element="mains"))
+            add(
+                Candidate(
+                    "have the installation's earth electrode measured and improved to at most "
+                    f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
+                    f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states 'electrode "
+                    f"{target:g} ohm'",
+                    "GC220",
+                    (_set(ctx, st, "electrode", f"{target:g} ohm"),),
+                    action="electrode",
+                    element="mains",
+                )
+            )

@@ -28,8 +28,7 @@ __all__ = ["add_bench_command", "cmd_bench", "BENCH_EPILOG"]
 
 BENCH_EPILOG = (
     "Exit status: 0 no bench finding at or above --fail-on, 1 a bench finding at or above it (a "
-    "bond "
-    "over the limit or far above the plan, hum above the plan), 2 the plan, a recording, the "
+    "bond over the limit or far above the plan, hum above the plan), 2 the plan, a recording, the "
     "measurements file or the command could not be used."
 )
 

@@ -1,5 +1,5 @@
-"""What every command shares: the usage error, option types with units, the analysis options, loading a
-plan and writing an output."""
+"""What every command shares: the usage error, option types with units, the analysis options,
+loading a plan and writing an output."""
 
 from __future__ import annotations
 
@@ -17,10 +17,22 @@ from ..rules.selection import UnknownRule, codes_of
 from ..language.fragments import resolved as _resolved
 from .settings import load_settings, shown_value
 
-__all__ = ["FAIL_HELP", "FAIL_LEVELS", "UsageError", "Parser", "quantity_type", "seconds_type",
-           "processes_type", "add_analysis_options", "options_of", "load_plan", "write_output",
-           "plan_paths", "add_watch_command", "DEFAULT_PORT"]
-
+__all__ = [
+    "FAIL_HELP",
+    "FAIL_LEVELS",
+    "UsageError",
+    "Parser",
+    "quantity_type",
+    "seconds_type",
+    "processes_type",
+    "add_analysis_options",
+    "options_of",
+    "load_plan",
+    "write_output",
+    "plan_paths",
+    "add_watch_command",
+    "DEFAULT_PORT",
+]
 
 
 class UsageError(GroundcheckError):
@@ -29,8 +41,12 @@ class UsageError(GroundcheckError):
 
 class Parser(argparse.ArgumentParser):
     def error(self, message):  # one line, exit 2, no traceback
-        self.exit(2, f"groundcheck: error: {message} (see 'groundcheck {self.prog.split()[-1]} --help')\n"
-                  if " " in self.prog else f"groundcheck: error: {message} (see 'groundcheck --help')\n")
+        self.exit(
+            2,
+            f"groundcheck: error: {message} (see 'groundcheck {self.prog.split()[-1]} --help')\n"
+            if " " in self.prog
+            else f"groundcheck: error: {message} (see 'groundcheck --help')\n",
+        )
 
 
 def _checked(value: float, text: str, kind: str, positive: bool) -> float:
@@ -45,7 +61,7 @@ def quantity_type(kind: str, unit: str, positive: bool = True):
     def conv(text: str) -> float:
         t = text.strip()
         num = t.rstrip("abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZµΩ°²/ ")
-        rest = t[len(num):].strip()
+        rest = t[len(num) :].strip()
         try:
             if not rest:
                 return _checked(float(num), text, kind, positive)
@@ -55,6 +71,7 @@ def quantity_type(kind: str, unit: str, positive: bool = True):
         if k != kind:
             raise argparse.ArgumentTypeError(f"{text!r} is a {k}, not a {kind}")
         return _checked(value, text, kind, positive)
+
     conv.__name__ = kind
     return conv
 
@@ -96,7 +113,8 @@ def processes_type(text: str) -> int:
 
 
 def available_cpus() -> int:
-    """The processors this process may run on (--jobs is capped there: more processes only compete)."""
+    """The processors this process may run on (--jobs is capped there: more processes only
+    compete)."""
     try:
         return max(1, len(os.sched_getaffinity(0)))
     except (AttributeError, OSError):
@@ -104,8 +122,10 @@ def available_cpus() -> int:
 
 
 #: --fail-on of check and report
-FAIL_HELP = ("exit 1 when an open finding, or a danger accepted in the plan, is at least this "
-             "severe (default fault; never: exit 0 whatever is found)")
+FAIL_HELP = (
+    "exit 1 when an open finding, or a danger accepted in the plan, is at least this severe "
+    "(default fault; never: exit 0 whatever is found)"
+)
 
 #: the analysis defaults, read from their one home (the Options record)
 _DEFAULT = Options()
@@ -113,28 +133,58 @@ _DEFAULT = Options()
 
 def add_analysis_options(p):
     g = p.add_argument_group("analysis")
-    g.add_argument("--pe-limit", type=quantity_type("resistance", "ohm"), default=_DEFAULT.pe_limit, metavar="OHM",
-                   help=f"protective-path resistance limit (default {_DEFAULT.pe_limit:g} ohm, the usual "
-                        "product-safety "
-                   "bonding limit)")
-    g.add_argument("--max-frequency", type=quantity_type("frequency", "Hz"), default=_DEFAULT.max_frequency,
-                   metavar="HZ",
-                   help=f"highest harmonic analysed (default {_DEFAULT.max_frequency:g} Hz)")
-    g.add_argument("--hum-level", type=level_type, default=_DEFAULT.contributor_level, metavar="DBV",
-                   help="report hum contributors above this level at the output (default "
-                        f"{_DEFAULT.contributor_level:g} dBV)")
-    g.add_argument("--no-hum", action="store_true", help="skip the hum and buzz budget (topology and safety only)")
-    g.add_argument("--only-rules", type=_words, metavar="RULES", default=None,
-                   help="check only these rules: codes (GC206), families (GC2: every "
-                        "protective-earth rule) or names, comma-separated; every rule left out is "
-                        "listed as not checked (default: every rule)")
-    g.add_argument("--leave-out", type=_words, metavar="RULES", default=None,
-                   help="do not check these rules (codes, families or names, comma-separated); "
-                        "each is listed as not checked in every output")
-    g.add_argument("--allow-accept-danger", action="store_true", default=None,
-                   help="let a '# accept' comment accept a danger finding too; it still counts "
-                        "as a danger (exit status 1 unless --fail-on never), and every output "
-                        "says so")
+    g.add_argument(
+        "--pe-limit",
+        type=quantity_type("resistance", "ohm"),
+        default=_DEFAULT.pe_limit,
+        metavar="OHM",
+        help=f"protective-path resistance limit (default {_DEFAULT.pe_limit:g} ohm, the usual "
+        "product-safety bonding limit)",
+    )
+    g.add_argument(
+        "--max-frequency",
+        type=quantity_type("frequency", "Hz"),
+        default=_DEFAULT.max_frequency,
+        metavar="HZ",
+        help=f"highest harmonic analysed (default {_DEFAULT.max_frequency:g} Hz)",
+    )
+    g.add_argument(
+        "--hum-level",
+        type=level_type,
+        default=_DEFAULT.contributor_level,
+        metavar="DBV",
+        help="report hum contributors above this level at the output (default "
+        f"{_DEFAULT.contributor_level:g} dBV)",
+    )
+    g.add_argument(
+        "--no-hum",
+        action="store_true",
+        help="skip the hum and buzz budget (topology and safety only)",
+    )
+    g.add_argument(
+        "--only-rules",
+        type=_words,
+        metavar="RULES",
+        default=None,
+        help="check only these rules: codes (GC206), families (GC2: every "
+        "protective-earth rule) or names, comma-separated; every rule left out is listed as not "
+        "checked (default: every rule)",
+    )
+    g.add_argument(
+        "--leave-out",
+        type=_words,
+        metavar="RULES",
+        default=None,
+        help="do not check these rules (codes, families or names, comma-separated); "
+        "each is listed as not checked in every output",
+    )
+    g.add_argument(
+        "--allow-accept-danger",
+        action="store_true",
+        default=None,
+        help="let a '# accept' comment accept a danger finding too; it still counts "
+        "as a danger (exit status 1 unless --fail-on never), and every output says so",
+    )
 
 
 #: the port the live view is served on unless --port says otherwise
@@ -144,22 +194,30 @@ DEFAULT_PORT = 8470
 def add_watch_command(sub) -> None:
     """The ``watch`` command's options, here so that the other commands never import the live
     view's server (``cli/watch.py``, with ``http.server`` and what it pulls in)."""
-    w = sub.add_parser("watch", help="show the plan live in the browser, re-checked whenever "
-                       "it is saved",
-                       description="Serve a page on this computer (127.0.0.1 only) with the "
-                       "drawings, findings, hum and protective-earth tables; it "
-                       "refreshes by itself within a fraction of a second of the "
-                       "plan, or a file it includes or places, being saved.  Ctrl-C "
-                       "stops.\n\n"
-                       "Example:\n  groundcheck watch examples/guitar-head.gplan --open",
-                       formatter_class=argparse.RawDescriptionHelpFormatter)
+    w = sub.add_parser(
+        "watch",
+        help="show the plan live in the browser, re-checked whenever it is saved",
+        description="Serve a page on this computer (127.0.0.1 only) with the "
+        "drawings, findings, hum and protective-earth tables; it refreshes by itself within a "
+        "fraction of a second of the plan, or a file it includes or places, being saved.  Ctrl-C "
+        "stops.\n\nExample:\n  groundcheck watch examples/guitar-head.gplan --open",
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
     w.add_argument("plan", metavar="PLAN")
-    w.add_argument("--port", type=int, default=DEFAULT_PORT, metavar="N",
-                   help=f"the local port to serve on (default {DEFAULT_PORT}; 0 picks a free one)")
+    w.add_argument(
+        "--port",
+        type=int,
+        default=DEFAULT_PORT,
+        metavar="N",
+        help=f"the local port to serve on (default {DEFAULT_PORT}; 0 picks a free one)",
+    )
     w.add_argument("--open", action="store_true", help="open the page in the default web browser")
-    w.add_argument("--renderer", choices=("auto", "system", "wasm"), default="auto",
-                   help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system "
-                   "first)")
+    w.add_argument(
+        "--renderer",
+        choices=("auto", "system", "wasm"),
+        default="auto",
+        help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)",
+    )
     add_analysis_options(w)
 
 
@@ -210,11 +268,18 @@ def options_of(args):
     only, only_origin = _rules(args, "only-rules", config)
     leave, leave_origin = _rules(args, "leave-out", config)
     allow = _setting(args, "allow-accept-danger", config, _DEFAULT.allow_accept_danger)
-    return Options(pe_limit=args.pe_limit, max_frequency=args.max_frequency,
-                   contributor_level=args.hum_level, hum=not args.no_hum,
-                   jobs=getattr(args, "jobs", 1), only_rules=only, leave_out=leave,
-                   only_rules_origin=only_origin, leave_out_origin=leave_origin,
-                   allow_accept_danger=bool(allow))
+    return Options(
+        pe_limit=args.pe_limit,
+        max_frequency=args.max_frequency,
+        contributor_level=args.hum_level,
+        hum=not args.no_hum,
+        jobs=getattr(args, "jobs", 1),
+        only_rules=only,
+        leave_out=leave,
+        only_rules_origin=only_origin,
+        leave_out_origin=leave_origin,
+        allow_accept_danger=bool(allow),
+    )
 
 
 def fail_on(args) -> str:
@@ -234,18 +299,23 @@ def write_output(text: str, output: str | None, inputs: list[str]) -> None:
 
 
 def _plans_in(folder: Path) -> list[str]:
-    """The regular .gplan files below ``folder``, sorted: hidden folders, links and special files are passed over
-    (a note names each link, never its target), so a folder check never reads outside the folder."""
+    """The regular .gplan files below ``folder``, sorted: hidden folders, links and special files
+    are passed over (a note names each link, never its target), so a folder check never reads
+    outside the folder."""
     found = []
-    for here, dirs, files in os.walk(folder):          # never descends through a linked folder
-        dirs[:] = sorted(d for d in dirs if not d.startswith(".") and not os.path.islink(os.path.join(here, d)))
+    for here, dirs, files in os.walk(folder):  # never descends through a linked folder
+        dirs[:] = sorted(
+            d for d in dirs if not d.startswith(".") and not os.path.islink(os.path.join(here, d))
+        )
         for f in files:
             path = os.path.join(here, f)
             if not f.endswith(".gplan") or f.startswith("."):
                 continue
             if os.path.islink(path) or not os.path.isfile(path):
-                sys.stderr.write(f"groundcheck: note: passed over {shown(path)}: "
-                                 f"{'a link' if os.path.islink(path) else 'not a regular file'}\n")
+                sys.stderr.write(
+                    f"groundcheck: note: passed over {shown(path)}: "
+                    f"{'a link' if os.path.islink(path) else 'not a regular file'}\n"
+                )
                 continue
             found.append(path)
     return sorted(found)
@@ -268,11 +338,12 @@ def plan_paths(names: list[str]) -> list[str]:
 
 
 def _without_fragments(paths: list[str]) -> list[str]:
-    """``paths`` less the files another plan includes (a fragment is checked as part of the plan that
-    includes it: a note names that plan, and it is checked in the fragment's place when it is not among
-    ``paths``).  The includers are looked for among ``paths`` and the plans in each one's folder and
-    the folders above it, up to the current folder."""
+    """``paths`` less the files another plan includes (a fragment is checked as part of the plan
+    that includes it: a note names that plan, and it is checked in the fragment's place when it is
+    not among ``paths``).  The includers are looked for among ``paths`` and the plans in each one's
+    folder and the folders above it, up to the current folder."""
     from ..language.fragments import fragments_among, neighbours
+
     files = [Path(p) for p in paths if p != "-"]
     pool = {_resolved(p): p for p in files}
     for p in files:
@@ -285,12 +356,14 @@ def _without_fragments(paths: list[str]) -> list[str]:
     chosen = {_resolved(Path(p)) for p in paths if p != "-" and _resolved(Path(p)) not in included}
     for name in paths:
         by = _tops(_resolved(Path(name)), included) if name != "-" else []
-        if not by:                     # included by nothing, or only round a cycle: its own check says
+        if not by:  # included by nothing, or only round a cycle: its own check says
             out.append(name)
             continue
-        sys.stderr.write(f"groundcheck: note: passed over {shown(name)}: it is included by "
-                         f"{', '.join(shown(b) for b in by)} and checked as part of "
-                         f"{'it' if len(by) == 1 else 'each'}\n")
+        sys.stderr.write(
+            f"groundcheck: note: passed over {shown(name)}: it is included by "
+            f"{', '.join(shown(b) for b in by)} and checked as part of "
+            f"{'it' if len(by) == 1 else 'each'}\n"
+        )
         for top in by:
             if _resolved(top) not in chosen:
                 chosen.add(_resolved(top))

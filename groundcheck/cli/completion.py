@@ -1,6 +1,6 @@
-"""Shell completion, written from the command line's own parser so that it never disagrees with it: every
-command, its options, the choices of each option and plan files for the rest.  Bash, and zsh through its bash
-compatibility (``autoload -U bashcompinit && bashcompinit``)."""
+"""Shell completion, written from the command line's own parser so that it never disagrees with it:
+every command, its options, the choices of each option and plan files for the rest.  Bash, and zsh
+through its bash compatibility (``autoload -U bashcompinit && bashcompinit``)."""
 
 from __future__ import annotations
 
@@ -10,7 +10,7 @@ __all__ = ["bash_completion"]
 
 
 def _commands(parser: argparse.ArgumentParser) -> dict[str, argparse.ArgumentParser]:
-    for action in parser._actions:                       # argparse keeps its subcommands here, and only here
+    for action in parser._actions:  # argparse keeps its subcommands here, and only here
         if isinstance(action, argparse._SubParsersAction):
             return dict(action.choices)
     return {}
@@ -27,14 +27,19 @@ def bash_completion(parser: argparse.ArgumentParser) -> str:
             if a.choices and a.option_strings:
                 words = " ".join(str(c) for c in a.choices)
                 for flag in a.option_strings:
-                    choices.append(f'    {name}:{flag}) COMPREPLY=( $(compgen -W "{words}" -- "$cur") ); return ;;')
+                    choices.append(
+                        f'    {name}:{flag}) COMPREPLY=( $(compgen -W "{words}" -- "$cur") ); '
+                        "return ;;"
+                    )
     lines = [
         "# groundcheck shell completion (bash; zsh with bashcompinit). Load it with:",
         '#   eval "$(groundcheck completion bash)"',
         "_groundcheck() {",
-        '    local cur="${COMP_WORDS[COMP_CWORD]}" prev="${COMP_WORDS[COMP_CWORD-1]}" cmd="${COMP_WORDS[1]}" opts=""',
-        "    if [ \"$COMP_CWORD\" -eq 1 ]; then",
-        f'        COMPREPLY=( $(compgen -W "{" ".join(sorted(commands))} --help --version" -- "$cur") ); return',
+        '    local cur="${COMP_WORDS[COMP_CWORD]}" prev="${COMP_WORDS[COMP_CWORD-1]}" '
+        'cmd="${COMP_WORDS[1]}" opts=""',
+        '    if [ "$COMP_CWORD" -eq 1 ]; then',
+        f'        COMPREPLY=( $(compgen -W "{" ".join(sorted(commands))} --help --version" -- '
+        '"$cur") ); return',
         "    fi",
         '    case "$cmd:$prev" in',
         *choices,

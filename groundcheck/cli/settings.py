@@ -24,31 +24,38 @@ class SettingsError(GroundcheckError):
 _RULES = "a list of rule codes, families or names"
 
 #: the settings a file may hold, and what each takes
-SETTINGS = {"only-rules": f'{_RULES}, e.g. ["GC1", "shared-return"]',
-            "leave-out": f'{_RULES}, e.g. ["GC304"]',
-            "fail-on": f"one of {', '.join(FAIL_LEVELS)}",
-            "allow-accept-danger": "true or false"}
+SETTINGS = {
+    "only-rules": f'{_RULES}, e.g. ["GC1", "shared-return"]',
+    "leave-out": f'{_RULES}, e.g. ["GC304"]',
+    "fail-on": f"one of {', '.join(FAIL_LEVELS)}",
+    "allow-accept-danger": "true or false",
+}
 
-_VALID = {"fail-on": lambda v: v in FAIL_LEVELS,
-          "allow-accept-danger": lambda v: isinstance(v, bool),
-          "only-rules": lambda v: isinstance(v, list) and all(isinstance(w, str) for w in v),
-          "leave-out": lambda v: isinstance(v, list) and all(isinstance(w, str) for w in v)}
+_VALID = {
+    "fail-on": lambda v: v in FAIL_LEVELS,
+    "allow-accept-danger": lambda v: isinstance(v, bool),
+    "only-rules": lambda v: isinstance(v, list) and all(isinstance(w, str) for w in v),
+    "leave-out": lambda v: isinstance(v, list) and all(isinstance(w, str) for w in v),
+}
 
 
 def load_settings(start: Path | None = None) -> tuple[dict, Path | None]:
     """The settings and the file they came from ({}, None without one); command-line options win
     over them (the caller's concern)."""
     import tomllib
+
     here = (start or Path.cwd()).resolve()
     for folder in (here, *here.parents):
-        for name, table in (("groundcheck.toml", None),
-                            ("pyproject.toml", ("tool", "groundcheck"))):
+        for name, table in (
+            ("groundcheck.toml", None),
+            ("pyproject.toml", ("tool", "groundcheck")),
+        ):
             f = folder / name
             if not f.is_file():
                 continue
             try:
                 text = f.read_text(encoding="utf-8")
-                note_read(f)                  # never an output of this run
+                note_read(f)  # never an output of this run
                 data = tomllib.loads(text)
             except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as e:
                 raise SettingsError(f"{f}: cannot read the settings ({e})") from None
@@ -76,15 +83,18 @@ def _key_line(text: str, key: str, table) -> int:
 def _checked(data: dict, f: Path, text: str, table) -> dict:
     """The settings, each value checked: a wrong one is an error at ``file:line``, never a crash
     later."""
+
     def where(key: str) -> str:
         line = _key_line(text, key, table)
         return f"{f}:{line}: {key}" if line else f"{f}: {key}"
+
     for key, value in data.items():
         if key not in SETTINGS:
             raise SettingsError(f"{where(key)}: unknown setting (settings: {', '.join(SETTINGS)})")
         if not _VALID[key](value):
-            raise SettingsError(f"{where(key)} = {shown_value(value)} cannot be used (it takes "
-                                f"{SETTINGS[key]})")
+            raise SettingsError(
+                f"{where(key)} = {shown_value(value)} cannot be used (it takes {SETTINGS[key]})"
+            )
         if key in ("only-rules", "leave-out"):
             try:
                 codes_of(value)

@@ -1,11 +1,11 @@
-"""``groundcheck watch``: a live view of a plan in the browser, re-analysed in this process whenever the plan (or
-a file it includes or places) is saved.
+"""``groundcheck watch``: a live view of a plan in the browser, re-analysed in this process
+whenever the plan (or a file it includes or places) is saved.
 
-The server is the standard library's threaded HTTP server, bound to 127.0.0.1 only and answering only requests
-addressed to this computer by name (``127.0.0.1`` or ``localhost``, so a web page elsewhere cannot reach it
-through a name of its own); the page learns of a new state by server-sent events.  Files are watched with
-``watchfiles`` (the folders holding the plan's files, so editors that save by renaming are seen).  Nothing is
-written to disk.
+The server is the standard library's threaded HTTP server, bound to 127.0.0.1 only and answering
+only requests addressed to this computer by name (``127.0.0.1`` or ``localhost``, so a web page
+elsewhere cannot reach it through a name of its own); the page learns of a new state by server-sent
+events.  Files are watched with ``watchfiles`` (the folders holding the plan's files, so editors
+that save by renaming are seen).  Nothing is written to disk.
 """
 
 from __future__ import annotations
@@ -38,57 +38,77 @@ class LiveView:
         self.version = 0
         self.state = b"{}"
         self.files: set[Path] = {Path(plan).resolve()}
-        self.token = secrets.token_urlsafe(24)     # in the address printed: other users and processes lack it
+        self.token = secrets.token_urlsafe(
+            24
+        )  # in the address printed: other users and processes lack it
         self.folder = Path(plan).resolve().parent
-        self.path = Path(plan).absolute()          # the name watched: a link swapped in for it is seen
+        self.path = Path(plan).absolute()  # the name watched: a link swapped in for it is seen
         self._good_result = None
         self._good_state: dict | None = None
 
     def refresh(self) -> None:
-        """Load, analyse and draw the plan again; publish the new state (or the errors) to every page."""
+        """Load, analyse and draw the plan again; publish the new state (or the errors) to every
+        page."""
         from ..analysis import analyze
         from ..renderers.formats import source_lines
         from ..renderers.live import error_state, live_state, status_line
+
         t0 = time.perf_counter()
         try:
             self._check_still_a_plan()
             plan = load_plan(self.plan)
             result = analyze(plan, self.options)
         except PlanErrors as e:
-            # the files the errors are in are watched too (a device plan broken since the start, say)
-            self.files |= {Path(x.location.file).resolve() for x in e.errors if Path(x.location.file).is_file()}
+            # the files the errors are in are watched too (a device plan broken since the start,
+            # say)
+            self.files |= {
+                Path(x.location.file).resolve()
+                for x in e.errors
+                if Path(x.location.file).is_file()
+            }
             self._publish(error_state(e.errors, self._good_state))
-            self._say(f"plan error: {e.errors[0].one_line()}"
-                      + (f" (and {len(e.errors) - 1} more)" if len(e.errors) > 1 else ""))
+            self._say(
+                f"plan error: {e.errors[0].one_line()}"
+                + (f" (and {len(e.errors) - 1} more)" if len(e.errors) > 1 else "")
+            )
             return
-        except GroundcheckError as e:     # a file that vanished while the editor saved it, an unreadable include
-            self._publish(error_state([], self._good_state) | {"error": [{"where": self.plan, "message": str(e),
-                                                                           "hint": "", "line": ""}]})
+        except (
+            GroundcheckError
+        ) as e:  # a file that vanished while the editor saved it, an unreadable include
+            self._publish(
+                error_state([], self._good_state)
+                | {"error": [{"where": self.plan, "message": str(e), "hint": "", "line": ""}]}
+            )
             self._say(f"error: {e}")
             return
         read = (*plan.files, *plan.device_files)
         self.files = {Path(f).resolve() for f in read} | {Path(self.plan).resolve()}
         physical, topology = self._drawings(result)
         seconds = time.perf_counter() - t0
-        state = live_state(result, physical, topology, self._good_result, source_lines(plan), seconds)
+        state = live_state(
+            result, physical, topology, self._good_result, source_lines(plan), seconds
+        )
         self._good_result, self._good_state = result, state
         self._publish(state)
         self._say(status_line(result, seconds))
 
     def _check_still_a_plan(self) -> None:
-        """The watched file is still a regular file inside the plan's folder: a link swapped in for it (to a file
-        elsewhere) is refused, so no line of another file reaches the page."""
+        """The watched file is still a regular file inside the plan's folder: a link swapped in for
+        it (to a file elsewhere) is refused, so no line of another file reaches the page."""
         p = Path(self.plan)
-        if p.is_symlink() and not (p.resolve().parent == self.folder or self.folder in p.resolve().parents):
+        if p.is_symlink() and not (
+            p.resolve().parent == self.folder or self.folder in p.resolve().parents
+        ):
             raise GroundcheckError(f"{self.plan} is now a link out of the plan's folder: not read")
         if p.resolve().parent != self.folder:
             raise GroundcheckError(f"{self.plan} now lies outside the plan's folder: not read")
 
     def _drawings(self, result):
-        """Both drawings as SVG text (None for one that cannot be drawn: no physical view without positions or
-        devices)."""
+        """Both drawings as SVG text (None for one that cannot be drawn: no physical view without
+        positions or devices)."""
         from ..renderers.dot import has_physical_view
         from ..renderers.formats import both_views
+
         views, _ = both_views(result, self.renderer, physical=has_physical_view(result.plan))
         return tuple(None if v is None else v[0].decode("utf-8") for v in views)
 
@@ -101,59 +121,91 @@ class LiveView:
 
     def _say(self, text: str) -> None:
         from ..core.errors import shown
+
         self.log.write(f"{time.strftime('%H:%M:%S')}  {shown(text)}\n")
         self.log.flush()
 
 
 class LiveHandler(BaseHTTPRequestHandler):
-    """Answers the page, its state and its event stream; made for one view by :func:`make_handler`."""
+    """Answers the page, its state and its event stream; made for one view by
+    :func:`make_handler`."""
 
     view: LiveView
     stop: threading.Event
     server_version = "groundcheck-live"
     protocol_version = "HTTP/1.1"
 
-    def log_message(self, *args) -> None:      # the terminal shows one line per change, not per request
+    def log_message(
+        self, *args
+    ) -> None:  # the terminal shows one line per change, not per request
         pass
 
     def _local(self) -> bool:
         port = self.server.server_address[1]
         host = (self.headers.get("Host") or "").strip().lower()
-        return self.client_address[0] == "127.0.0.1" and host in (f"127.0.0.1:{port}", f"localhost:{port}")
+        return self.client_address[0] == "127.0.0.1" and host in (
+            f"127.0.0.1:{port}",
+            f"localhost:{port}",
+        )
 
     def _send(self, code: int, body: bytes, kind: str, extra: dict | None = None) -> None:
-        """One answer; a browser that closed the connection mid-answer (a reload, a closed tab) is no error."""
+        """One answer; a browser that closed the connection mid-answer (a reload, a closed tab) is
+        no error."""
         try:
             self.send_response(code)
-            for k, v in {"Content-Type": kind, "Content-Length": str(len(body)), "Cache-Control": "no-store",
-                         "X-Content-Type-Options": "nosniff", **(extra or {})}.items():
+            for k, v in {
+                "Content-Type": kind,
+                "Content-Length": str(len(body)),
+                "Cache-Control": "no-store",
+                "X-Content-Type-Options": "nosniff",
+                **(extra or {}),
+            }.items():
                 self.send_header(k, v)
             self.end_headers()
             self.wfile.write(body)
-        except (BrokenPipeError, ConnectionResetError):    # the client went away: nothing to tell anyone
+        except (
+            BrokenPipeError,
+            ConnectionResetError,
+        ):  # the client went away: nothing to tell anyone
             self.close_connection = True
 
     def do_GET(self) -> None:  # noqa: N802 - the standard library's name
         if not self._local():
-            self._send(403, b"groundcheck's live view answers this computer only (127.0.0.1)\n", "text/plain")
+            self._send(
+                403,
+                b"groundcheck's live view answers this computer only (127.0.0.1)\n",
+                "text/plain",
+            )
             return
         path = self.path.split("?", 1)[0]
         prefix = f"/{self.view.token}/"
-        if not secrets.compare_digest(path[:len(prefix)].encode(), prefix.encode()):
-            self._send(403, b"groundcheck's live view answers the address it printed (with its token) only\n",
-                       "text/plain")
+        if not secrets.compare_digest(path[: len(prefix)].encode(), prefix.encode()):
+            self._send(
+                403,
+                b"groundcheck's live view answers the address it printed (with its token) only\n",
+                "text/plain",
+            )
             return
-        path = path[len(prefix) - 1:]
+        path = path[len(prefix) - 1 :]
         if path == "/":
             from ..renderers.live_page import live_page
+
             nonce = secrets.token_urlsafe(16)
-            csp = (f"default-src 'none'; script-src 'nonce-{nonce}'; style-src 'unsafe-inline'; "
-                   "connect-src 'self'; img-src data:; base-uri 'none'; form-action 'none'")
-            self._send(200, live_page(nonce, CAUTION).encode("utf-8"), "text/html; charset=utf-8",
-                       {"Content-Security-Policy": csp, "Referrer-Policy": "no-referrer"})
+            csp = (
+                f"default-src 'none'; script-src 'nonce-{nonce}'; style-src 'unsafe-inline'; "
+                "connect-src 'self'; img-src data:; base-uri 'none'; form-action 'none'"
+            )
+            self._send(
+                200,
+                live_page(nonce, CAUTION).encode("utf-8"),
+                "text/html; charset=utf-8",
+                {"Content-Security-Policy": csp, "Referrer-Policy": "no-referrer"},
+            )
         elif path == "/state":
-            with self.view.changed:            # the first analysis may still be running
-                self.view.changed.wait_for(lambda: self.view.version > 0 or self.stop.is_set(), timeout=60)
+            with self.view.changed:  # the first analysis may still be running
+                self.view.changed.wait_for(
+                    lambda: self.view.version > 0 or self.stop.is_set(), timeout=60
+                )
                 body = self.view.state
             self._send(200, body, "application/json; charset=utf-8")
         elif path == "/events":
@@ -170,7 +222,7 @@ class LiveHandler(BaseHTTPRequestHandler):
         seen = -1
         try:
             while not self.stop.is_set():
-                with self.view.changed:            # version 0: no state yet, nothing to announce
+                with self.view.changed:  # version 0: no state yet, nothing to announce
                     if self.view.version in (seen, 0):
                         self.view.changed.wait(KEEP_ALIVE)
                     version = self.view.version
@@ -190,18 +242,28 @@ def make_handler(view: LiveView, stop: threading.Event) -> type:
 
 
 def _watch_files(view: LiveView, stop: threading.Event) -> None:
-    """Re-check the plan whenever one of its files is saved (until ``stop``); the folders watched follow the
-    files the plan includes or places."""
+    """Re-check the plan whenever one of its files is saved (until ``stop``); the folders watched
+    follow the files the plan includes or places."""
     from watchfiles import watch
+
     while not stop.is_set():
         files = set(view.files)
         folders = sorted({str(f.parent) for f in files if f.parent.is_dir()})
         if not folders:
             stop.wait(0.5)
             continue
-        for changes in watch(*folders, stop_event=stop, debounce=40, step=20, rust_timeout=500,
-                             yield_on_timeout=True, raise_interrupt=False):
-            if any(Path(p).resolve() in files or Path(p).absolute() == view.path for _, p in changes):
+        for changes in watch(
+            *folders,
+            stop_event=stop,
+            debounce=40,
+            step=20,
+            rust_timeout=500,
+            yield_on_timeout=True,
+            raise_interrupt=False,
+        ):
+            if any(
+                Path(p).resolve() in files or Path(p).absolute() == view.path for _, p in changes
+            ):
                 view.refresh()
             if view.files != files:
                 break
@@ -209,7 +271,9 @@ def _watch_files(view: LiveView, stop: threading.Event) -> None:
 
 def cmd_watch(args) -> int:
     if not Path(args.plan).is_file():
-        raise UsageError(f"cannot watch {args.plan!r}: no such file (give a plan file, not '-' or a folder)")
+        raise UsageError(
+            f"cannot watch {args.plan!r}: no such file (give a plan file, not '-' or a folder)"
+        )
     if not 0 <= args.port <= 65535:
         raise UsageError(f"port {args.port} is out of range (0 to 65535; 0 picks a free one)")
     view = LiveView(args.plan, options_of(args), args.renderer)
@@ -217,19 +281,26 @@ def cmd_watch(args) -> int:
     try:
         server = ThreadingHTTPServer(("127.0.0.1", args.port), make_handler(view, stop))
     except OSError as e:
-        raise UsageError(f"cannot serve on 127.0.0.1:{args.port}: {e.strerror or e} (give another --port, or 0 "
-                         "for a free one)") from None
+        raise UsageError(
+            f"cannot serve on 127.0.0.1:{args.port}: {e.strerror or e} (give another --port, or 0 "
+            "for a free one)"
+        ) from None
     server.daemon_threads = True
     url = f"http://127.0.0.1:{server.server_address[1]}/{view.token}/"
-    sys.stderr.write(f"groundcheck: live view of {args.plan} at {url} (this computer only; Ctrl-C stops)\n"
-                     f"groundcheck: {CAUTION}\n")
-    threads = [threading.Thread(target=server.serve_forever, kwargs={"poll_interval": 0.2}, daemon=True),
-               threading.Thread(target=_watch_files, args=(view, stop), daemon=True)]
-    for t in threads:                 # watching before the first analysis: a save during it is not missed
+    sys.stderr.write(
+        f"groundcheck: live view of {args.plan} at {url} (this computer only; Ctrl-C "
+        f"stops)\ngroundcheck: {CAUTION}\n"
+    )
+    threads = [
+        threading.Thread(target=server.serve_forever, kwargs={"poll_interval": 0.2}, daemon=True),
+        threading.Thread(target=_watch_files, args=(view, stop), daemon=True),
+    ]
+    for t in threads:  # watching before the first analysis: a save during it is not missed
         t.start()
     view.refresh()
     if args.open:
         import webbrowser
+
         webbrowser.open(url)
     previous = signal.signal(signal.SIGTERM, lambda *_: stop.set())
     try:

@@ -1,6 +1,6 @@
-"""Plain data for JSON documents: numbers rounded to significant digits, numeric-library scalars made
-Python numbers, non-finite values made None.  No numeric library is imported here: a scalar of one is
-recognised by its ``item()`` method."""
+"""Plain data for JSON documents: numbers rounded to significant digits, numeric-library scalars
+made Python numbers, non-finite values made None.  No numeric library is imported here: a scalar of
+one is recognised by its ``item()`` method."""
 
 from __future__ import annotations
 
@@ -14,12 +14,17 @@ _SIGNED_ZERO = re.compile(r"(?<![\w.])[-+](0(?:\.0+)?)(?![\w.])")
 
 
 def clean(x, digits: int = 9):
-    """JSON-safe copy: numpy scalars to Python, non-finite floats to None, floats to ``digits`` significant digits."""
+    """JSON-safe copy: numpy scalars to Python, non-finite floats to None, floats to ``digits``
+    significant digits."""
     if isinstance(x, dict):
         return {str(k): clean(v, digits) for k, v in x.items()}
     if isinstance(x, (list, tuple)):
         return [clean(v, digits) for v in x]
-    if not isinstance(x, (bool, int, float, complex, str)) and hasattr(x, "item") and type(x).__module__ == "numpy":
+    if (
+        not isinstance(x, (bool, int, float, complex, str))
+        and hasattr(x, "item")
+        and type(x).__module__ == "numpy"
+    ):
         x = x.item()
     if isinstance(x, bool):
         return x
@@ -35,12 +40,12 @@ def clean(x, digits: int = 9):
 
 
 def readable(x, spec: str = ".4g", missing: str = "–") -> str:
-    """A number for a reader: ``format(x, spec)`` with a negative zero shown unsigned ("-0.0" and "+0.0" read
-    "0.0"), and ``missing`` for None or a value that is not finite."""
+    """A number for a reader: ``format(x, spec)`` with a negative zero shown unsigned ("-0.0" and
+    "+0.0" read "0.0"), and ``missing`` for None or a value that is not finite."""
     if x is None or not math.isfinite(x):
         return missing
     text = format(x, spec)
-    if float(text.strip()) == 0.0:                     # shown as zero: no sign, the same width
+    if float(text.strip()) == 0.0:  # shown as zero: no sign, the same width
         text = format(0.0, spec.replace("+", ""))
     return text
 

@@ -15,15 +15,25 @@ import threading
 from contextlib import contextmanager
 from pathlib import Path
 
-__all__ = ["no_gc", "can_fork", "quiet_child", "die_with_parent", "single_threaded_blas",
-           "one_blas_thread", "note_read", "files_read", "terminate_as_exit"]
+__all__ = [
+    "no_gc",
+    "can_fork",
+    "quiet_child",
+    "die_with_parent",
+    "single_threaded_blas",
+    "one_blas_thread",
+    "note_read",
+    "files_read",
+    "terminate_as_exit",
+]
 
 #: every plan file this process has read (resolved): outputs may never be written over one of them
 _READ: set = set()
 
 
 def note_read(path) -> None:
-    """Remember that a plan file was read (the loader calls it for the plan, its includes and device plans)."""
+    """Remember that a plan file was read (the loader calls it for the plan, its includes and
+    device plans)."""
     _READ.add(Path(path).resolve())
 
 
@@ -33,8 +43,9 @@ def files_read() -> tuple:
 
 @contextmanager
 def no_gc():
-    """Pause Python's cyclic garbage collector: loading makes millions of small acyclic objects, and
-    its repeated full collections would otherwise make a large plan's load grow faster than linearly."""
+    """Pause Python's cyclic garbage collector: loading makes millions of small acyclic objects,
+    and its repeated full collections would otherwise make a large plan's load grow faster than
+    linearly."""
     was = gc.isenabled()
     gc.disable()
     try:
@@ -49,14 +60,15 @@ def can_fork() -> bool:
     if not sys.platform.startswith("linux"):
         return False
     import multiprocessing
+
     return not multiprocessing.current_process().daemon
 
 
 def single_threaded_blas():
     """A function that makes the numerical libraries of this process single-threaded, or None.
 
-    Call it in the parent before forking: the import then happens once, there, and a forked child does not
-    need the import machinery."""
+    Call it in the parent before forking: the import then happens once, there, and a forked child
+    does not need the import machinery."""
     try:
         from threadpoolctl import threadpool_limits
     except ImportError:  # pragma: no cover - a dependency; without it the BLAS keeps its threads
@@ -111,16 +123,17 @@ def quiet_child() -> None:
 
 
 def die_with_parent() -> None:
-    """Linux: this worker gets SIGTERM when the process that started it ends (a SIGTERM or Ctrl-C to the run
-    stops its workers within a moment instead of leaving them to finish their queue)."""
+    """Linux: this worker gets SIGTERM when the process that started it ends (a SIGTERM or Ctrl-C
+    to the run stops its workers within a moment instead of leaving them to finish their queue)."""
     parent = os.getppid()
     try:
         import ctypes
+
         libc = ctypes.CDLL(None, use_errno=True)
-        libc.prctl(1, signal.SIGTERM, 0, 0, 0)          # PR_SET_PDEATHSIG
-    except (OSError, AttributeError):                  # pragma: no cover - not Linux
+        libc.prctl(1, signal.SIGTERM, 0, 0, 0)  # PR_SET_PDEATHSIG
+    except (OSError, AttributeError):  # pragma: no cover - not Linux
         return
-    if os.getppid() != parent:                         # the parent ended before the request was made
+    if os.getppid() != parent:  # the parent ended before the request was made
         os._exit(128 + signal.SIGTERM)
 
 
@@ -136,8 +149,10 @@ def terminate_as_exit():
 
     Only in the main thread and only over the default handler: a program that set its own keeps it,
     and nothing is left installed in the process once the block is done."""
-    if threading.current_thread() is not threading.main_thread() \
-            or signal.getsignal(signal.SIGTERM) != signal.SIG_DFL:
+    if (
+        threading.current_thread() is not threading.main_thread()
+        or signal.getsignal(signal.SIGTERM) != signal.SIG_DFL
+    ):
         yield
         return
     previous = signal.signal(signal.SIGTERM, _exit_on_signal)

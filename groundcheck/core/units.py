@@ -15,8 +15,17 @@ from __future__ import annotations
 import math
 from functools import lru_cache
 
-__all__ = ["KINDS", "UnitError", "parse_quantity", "awg_diameter", "awg_area", "unit_kind", "db_of_ratio",
-           "ratio_of_db", "dbv"]
+__all__ = [
+    "KINDS",
+    "UnitError",
+    "parse_quantity",
+    "awg_diameter",
+    "awg_area",
+    "unit_kind",
+    "db_of_ratio",
+    "ratio_of_db",
+    "dbv",
+]
 
 #: kinds of quantity, with the SI unit each is stored in
 KINDS = {
@@ -37,7 +46,17 @@ KINDS = {
     "apparent power": "VA",
 }
 
-_PREFIX = {"": 1.0, "k": 1e3, "M": 1e6, "m": 1e-3, "u": 1e-6, "µ": 1e-6, "μ": 1e-6, "n": 1e-9, "p": 1e-12}
+_PREFIX = {
+    "": 1.0,
+    "k": 1e3,
+    "M": 1e6,
+    "m": 1e-3,
+    "u": 1e-6,
+    "µ": 1e-6,
+    "μ": 1e-6,
+    "n": 1e-9,
+    "p": 1e-12,
+}
 
 
 class UnitError(ValueError):
@@ -62,7 +81,8 @@ def db_of_ratio(ratio: float) -> float:
 
 
 def ratio_of_db(db: float) -> float:
-    """Amplitude ratio of a level difference in dB, 10^(dB/20): the inverse of :func:`db_of_ratio`."""
+    """Amplitude ratio of a level difference in dB, 10^(dB/20): the inverse of
+    :func:`db_of_ratio`."""
     return 10 ** (db / 20)
 
 
@@ -150,10 +170,12 @@ def parse_quantity(number: str, unit: str) -> tuple[float, str]:
     """
     value = float(number)
     if unit.upper() == "AWG":
-        if number.strip() in ("00", "000", "0000"):          # 2/0, 3/0, 4/0 written as repeated zeros
+        if number.strip() in ("00", "000", "0000"):  # 2/0, 3/0, 4/0 written as repeated zeros
             value = -(len(number.strip()) - 1)
         if not math.isfinite(value) or value != int(value) or not -3 <= value <= 46:
-            raise UnitError(f"AWG size {number} is not a whole gauge", "use a size from 0000 (-3) to 46")
+            raise UnitError(
+                f"AWG size {number} is not a whole gauge", "use a size from 0000 (-3) to 46"
+            )
         return awg_area(value), "area"
     if unit == "K":
         return value - 273.15, "temperature"
@@ -161,18 +183,22 @@ def parse_quantity(number: str, unit: str) -> tuple[float, str]:
         scale, kind = _TABLE[unit]
         return value * scale, kind
     close = _LOWER.get(unit.lower())
-    hint = (f"did you mean {close[0]!r}?" if close
-            else "units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; dB; C")
+    hint = (
+        f"did you mean {close[0]!r}?"
+        if close
+        else "units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, mA; V; Hz; uT; uF, nF; dB; C"
+    )
     raise UnitError(f"unknown unit {unit!r}", hint)
 
 
 def format_si(value: float, unit: str, digits: int = 3) -> str:
-    """A human-readable figure with an SI prefix, e.g. ``format_si(0.0123, 'Ω')`` → ``'12.3 mΩ'``."""
+    """A human-readable figure with an SI prefix, e.g. ``format_si(0.0123, 'Ω')`` → ``'12.3
+    mΩ'``."""
     if not math.isfinite(value):
         return "not computed"
     if value == 0:
-        return f"0 {unit}"                   # a negative zero reads as zero
+        return f"0 {unit}"  # a negative zero reads as zero
     exp = int(math.floor(math.log10(abs(value)) / 3.0) * 3)
     exp = max(-12, min(9, exp))
     prefix = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}[exp]
-    return f"{value / 10 ** exp:.{digits}g} {prefix}{unit}"
+    return f"{value / 10**exp:.{digits}g} {prefix}{unit}"

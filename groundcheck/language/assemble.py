@@ -13,7 +13,18 @@ from pathlib import Path
 from ..core.errors import LimitError, Location, PlanError
 from ..model.kinds import joins_devices
 from ..model.installation import Transformer, transformer_feeds
-from ..model.records import PE_POINT, Conductor, Current, FieldSource, Heater, Metal, Plan, Point, Rectifier, Stage
+from ..model.records import (
+    PE_POINT,
+    Conductor,
+    Current,
+    FieldSource,
+    Heater,
+    Metal,
+    Plan,
+    Point,
+    Rectifier,
+    Stage,
+)
 from .devices import merge_device
 from .installation import check_bundles, check_supplies, land_shields, leakage_currents
 from .limits import LIMITS
@@ -23,19 +34,45 @@ from .transformer import place_transformers
 __all__ = ["assemble", "HEADER_KEYWORDS"]
 
 #: keywords of the plan header (one each per file; not allowed inside a block)
-HEADER_KEYWORDS = ("plan", "mains", "supply", "ambient", "listening", "library", "device",
-                   "transformer")
+HEADER_KEYWORDS = (
+    "plan",
+    "mains",
+    "supply",
+    "ambient",
+    "listening",
+    "library",
+    "device",
+    "transformer",
+)
 
-_HEADER_FIELD = {"plan": "title", "mains": "mains", "supply": "supply", "ambient": "ambient",
-                 "listening": "listening"}
+_HEADER_FIELD = {
+    "plan": "title",
+    "mains": "mains",
+    "supply": "supply",
+    "ambient": "ambient",
+    "listening": "listening",
+}
 
 
 def _collect(built: list, ld):
-    """Sort built records into the header, groups by record type, devices and library folders; names once."""
+    """Sort built records into the header, groups by record type, devices and library folders;
+    names once."""
     errors = ld.errors
     header: dict = {}
-    groups: dict[type, list] = {t: [] for t in (Metal, Point, Conductor, Rectifier, Current, Heater, Stage,
-                                                FieldSource, Transformer)}
+    groups: dict[type, list] = {
+        t: []
+        for t in (
+            Metal,
+            Point,
+            Conductor,
+            Rectifier,
+            Current,
+            Heater,
+            Stage,
+            FieldSource,
+            Transformer,
+        )
+    }
     names: dict[str, Location] = {}
     devices: list = []
     library_dirs: list[str] = []
@@ -45,8 +82,13 @@ def _collect(built: list, ld):
             continue
         if st.keyword == "device":
             if record.name in names:
-                errors.append(PlanError(f"duplicate name {record.name!r}", st.label_loc or st.loc,
-                                        f"first defined at {names[record.name]}"))
+                errors.append(
+                    PlanError(
+                        f"duplicate name {record.name!r}",
+                        st.label_loc or st.loc,
+                        f"first defined at {names[record.name]}",
+                    )
+                )
                 continue
             names[record.name] = st.label_loc or st.loc
             devices.append((record, refs))
@@ -61,9 +103,15 @@ def _collect(built: list, ld):
         if name:
             if name in names or name == PE_POINT:
                 first = names.get(name)
-                errors.append(PlanError(f"duplicate name {name!r}", st.label_loc or st.loc,
-                                        f"first defined at {first}" if first else "mains.pe is the mains inlet's "
-                                                                                  "protective terminal"))
+                errors.append(
+                    PlanError(
+                        f"duplicate name {name!r}",
+                        st.label_loc or st.loc,
+                        f"first defined at {first}"
+                        if first
+                        else "mains.pe is the mains inlet's protective terminal",
+                    )
+                )
                 continue
             names[name] = st.label_loc or st.loc
         groups[type(record)].append((record, refs))
@@ -83,24 +131,35 @@ class _Resolver:
             hint = "declare the supply with 'mains 230 V 50 Hz, ...' to get the inlet's mains.pe"
         else:
             close = difflib.get_close_matches(name, list(pool), n=1)
-            hint = f"did you mean {close[0]!r}?" if close else f"define it with 'point {name}: ...'"
+            hint = (
+                f"did you mean {close[0]!r}?" if close else f"define it with 'point {name}: ...'"
+            )
         self.ld.errors.append(PlanError(f"undefined {what} {name!r}", loc, hint))
         return False
 
 
 def _check_points(groups, metals, check, errors) -> None:
     for p, refs, *_ in groups[Point]:
-        if p.on is not None and check(p.on, refs.get("on", p.location), "metal part", metals) and p.on in metals:
+        if (
+            p.on is not None
+            and check(p.on, refs.get("on", p.location), "metal part", metals)
+            and p.on in metals
+        ):
             m = metals[p.on]
             if p.pos is not None and not m.contains(p.pos):
-                e = PlanError(f"point {p.name!r} at {p.pos[0]*1e3:g},{p.pos[1]*1e3:g} mm lies outside {m.name!r}",
-                              p.location, "positions are in the plan frame, in mm")
-                e.element = p.name                 # named with its own placement only
+                e = PlanError(
+                    f"point {p.name!r} at {p.pos[0] * 1e3:g},{p.pos[1] * 1e3:g} mm lies outside "
+                    f"{m.name!r}",
+                    p.location,
+                    "positions are in the plan frame, in mm",
+                )
+                e.element = p.name  # named with its own placement only
                 errors.append(e)
 
 
 def _conductors(groups, nodes, check) -> list[Conductor]:
-    """The conductors with their ends checked; an unnamed conductor is named by its kind and ends."""
+    """The conductors with their ends checked; an unnamed conductor is named by its kind and
+    ends."""
     conductors = []
     auto: dict[str, int] = {}
     for c, refs, *_ in groups[Conductor]:
@@ -116,7 +175,8 @@ def _conductors(groups, nodes, check) -> list[Conductor]:
 
 def _measured(conductors: list[Conductor], points: dict, errors: list) -> list[Conductor]:
     """Each conductor written without a length gets the length along its ends' positions and its
-    ``via`` route; one whose ends have no positions (or one position) is an error at its statement."""
+    ``via`` route; one whose ends have no positions (or one position) is an error at its
+    statement."""
     out = []
     for c in conductors:
         if c.length_computed:
@@ -125,11 +185,20 @@ def _measured(conductors: list[Conductor], points: dict, errors: list) -> list[C
             length = None if None in ends else sum(math.dist(p, q) for p, q in zip(path, path[1:]))
             if not length:
                 unplaced = [e for e, pos in zip((c.a, c.b), ends) if pos is None]
-                why = (f"{' and '.join(unplaced)} {'has' if len(unplaced) == 1 else 'have'} no position"
-                       if unplaced else "its ends are at one position")
-                errors.append(PlanError(f"{c.kind} {c.name} needs a length: {why} to measure it by",
-                                        c.location, "state it, e.g. ', 120 mm', or give both ends a "
-                                        "position ('point NAME: KIND, at X,Y')"))
+                why = (
+                    f"{' and '.join(unplaced)} {'has' if len(unplaced) == 1 else 'have'} no "
+                    "position"
+                    if unplaced
+                    else "its ends are at one position"
+                )
+                errors.append(
+                    PlanError(
+                        f"{c.kind} {c.name} needs a length: {why} to measure it by",
+                        c.location,
+                        "state it, e.g. ', 120 mm', or give both ends a position ('point NAME: "
+                        "KIND, at X,Y')",
+                    )
+                )
                 continue
             c = replace(c, length=length)
         out.append(c)
@@ -155,15 +224,22 @@ def _own_references(stages, errors) -> list[Stage]:
     read nothing) and dropped."""
     for st, refs, *_ in stages:
         if st.reference is not None and st.reference == st.b:
-            errors.append(PlanError(f"stage {st.name!r}: its reference is its own second point "
-                                    f"{st.b!r}", refs.get("reference", st.location),
-                                    "name the input socket's sleeve (or the stage's first point)"))
+            errors.append(
+                PlanError(
+                    f"stage {st.name!r}: its reference is its own second point {st.b!r}",
+                    refs.get("reference", st.location),
+                    "name the input socket's sleeve (or the stage's first point)",
+                )
+            )
     return [st if st.reference != st.b else replace(st, reference=None) for st, *_ in stages]
 
 
-#: an inline acceptance: '# accept GC101: the chassis-structure loop is intended' (codes or rule names, a reason)
-_ACCEPT = re.compile(r"#\s*accept\s+(?:([A-Za-z][\w-]*(?:\.[\w-]+)+)\s+)?([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*"
-                     r"(\S.*?)\s*$")
+#: an inline acceptance: '# accept GC101: the chassis-structure loop is intended' (codes or rule
+#: names, a reason)
+_ACCEPT = re.compile(
+    r"#\s*accept\s+(?:([A-Za-z][\w-]*(?:\.[\w-]+)+)\s+)?([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*"
+    r"(\S.*?)\s*$"
+)
 
 
 def acceptances(sources: dict) -> tuple:
@@ -177,17 +253,28 @@ def acceptances(sources: dict) -> tuple:
             if "accept" in line:
                 m = _ACCEPT.search(line)
                 if m:
-                    words = [(w.group(), m.start(2) + w.start() + 1)
-                             for w in re.finditer(r"[\w-]+", m.group(2))]
-                    out.append((file, i, tuple(w for w, _ in words), m.group(3),
-                                tuple(c for _, c in words), m.group(1)))
+                    words = [
+                        (w.group(), m.start(2) + w.start() + 1)
+                        for w in re.finditer(r"[\w-]+", m.group(2))
+                    ]
+                    out.append(
+                        (
+                            file,
+                            i,
+                            tuple(w for w, _ in words),
+                            m.group(3),
+                            tuple(c for _, c in words),
+                            m.group(1),
+                        )
+                    )
     return tuple(out)
 
 
 def _exposed(m: Metal, mains) -> Metal:
-    """A metal part with its accessibility settled: as written, else touchable in class I equipment with a mains
-    supply (a part nobody wrote as ``internal`` is treated as one a hand can reach, the safe default) and internal
-    elsewhere; a ``signal-only`` part is never held to protective bonding, so it defaults to internal."""
+    """A metal part with its accessibility settled: as written, else touchable in class I equipment
+    with a mains supply (a part nobody wrote as ``internal`` is treated as one a hand can reach,
+    the safe default) and internal elsewhere; a ``signal-only`` part is never held to protective
+    bonding, so it defaults to internal."""
     if m.touchable is not None:
         return m
     class_i = mains is not None and mains.equipment_class == "I" and not m.signal_only
@@ -200,19 +287,22 @@ def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) 
     transformers = [t for t, *_ in groups[Transformer]]
     place_transformers(groups[Transformer], points, groups[Conductor], supply, errors)
     feeds = transformer_feeds(transformers, [c for c, *_ in groups[Conductor]], placed)
-    landings = {}                        # device -> the first point of it an interconnect lands on
+    landings = {}  # device -> the first point of it an interconnect lands on
     for c, *_ in groups[Conductor]:
         if joins_devices(c):
             for end in (c.a, c.b):
                 landings.setdefault(end.split(".", 1)[0], end)
     own = {s[0]: s[1:] for s, _ in supplies}
-    groups[Current] += [(x, {}) for x in leakage_currents(list(placed.values()), own, supply,
-                                                          points, landings, feeds)]
+    groups[Current] += [
+        (x, {})
+        for x in leakage_currents(list(placed.values()), own, supply, points, landings, feeds)
+    ]
     return transformers
 
 
 def assemble(built: list, file: str, ld) -> Plan:
-    """The plan of a file's built ``(statement, record, refs)`` list; errors are added to ``ld.errors``."""
+    """The plan of a file's built ``(statement, record, refs)`` list; errors are added to
+    ``ld.errors``."""
     header, groups, names, devices, library_dirs = _collect(built, ld)
     mains = header.get("mains")
     metals = {m.name: _exposed(m, mains) for m, *_ in groups[Metal]}
@@ -223,68 +313,114 @@ def assemble(built: list, file: str, ld) -> Plan:
     classes: dict = {}
     for dev, refs in devices:
         if len(groups[Rectifier]) > LIMITS["rectifiers"]:
-            break                                   # over the limit (said below): no more devices merged
+            break  # over the limit (said below): no more devices merged
         supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names, classes)
         if supply is not None:
             supplies.append((supply, dev.location))
     check_supplies(supplies, mains, header.get("supply"), ld.errors)
-    placed = {d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class)) for d, _ in devices}
-    transformers = _transformers_and_leakage(groups, header.get("supply"), points, placed, supplies,
-                                             ld.errors)
+    placed = {
+        d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class))
+        for d, _ in devices
+    }
+    transformers = _transformers_and_leakage(
+        groups, header.get("supply"), points, placed, supplies, ld.errors
+    )
     nodes = set(points) | set(metals)
-    isolating = [(t, r) for t, r, *_ in groups[Transformer] if t.isolating]   # no cord to check
+    isolating = [(t, r) for t, r, *_ in groups[Transformer] if t.isolating]  # no cord to check
     for dev, refs in [*devices, *isolating]:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
-            ld.errors.append(PlanError(f"undefined outlet {dev.plugged!r}", refs.get("plugged", dev.location),
-                                       f"define it with 'point {dev.plugged}: outlet'"))
+            ld.errors.append(
+                PlanError(
+                    f"undefined outlet {dev.plugged!r}",
+                    refs.get("plugged", dev.location),
+                    f"define it with 'point {dev.plugged}: outlet'",
+                )
+            )
     if len(groups[Rectifier]) > LIMITS["rectifiers"]:
         r0 = groups[Rectifier][LIMITS["rectifiers"]][0]
-        ld.errors.append(LimitError(f"the plan has {len(groups[Rectifier])} rectifiers, over the limit of "
-                                    f"{LIMITS['rectifiers']} (each is simulated in time)", r0.location,
-                                    "describe a rack's identical supplies once, or split the installation"))
+        ld.errors.append(
+            LimitError(
+                f"the plan has {len(groups[Rectifier])} rectifiers, over the limit of "
+                f"{LIMITS['rectifiers']} (each is simulated in time)",
+                r0.location,
+                "describe a rack's identical supplies once, or split the installation",
+            )
+        )
     check = _Resolver(ld)
     _check_points(groups, metals, check, ld.errors)
     conductors = _measured(_conductors(groups, nodes, check), points, ld.errors)
     _check_sources(groups, nodes, check)
-    stages = stage_inputs(_own_references(groups[Stage], ld.errors), points, conductors,
-                          [r for g in (Current, Rectifier) for r, *_ in groups[g]])
+    stages = stage_inputs(
+        _own_references(groups[Stage], ld.errors),
+        points,
+        conductors,
+        [r for g in (Current, Rectifier) for r, *_ in groups[g]],
+    )
     for c in conductors:
         if joins_devices(c) and c.gain is not None:
             gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)
-            stages.append(Stage(f"{c.name}.input", c.a, c.b, gain, c.channel or "main", c.location, across=c.name))
+            stages.append(
+                Stage(
+                    f"{c.name}.input",
+                    c.a,
+                    c.b,
+                    gain,
+                    c.channel or "main",
+                    c.location,
+                    across=c.name,
+                )
+            )
     if placed:
         conductors = land_shields(conductors, placed, metals, ld.errors)
     check_bundles(conductors, ld.errors)
     return Plan(
-        title=header.get("title") or Path(file).stem, file=file, mains=mains,
-        ambient=header.get("ambient", 20.0), listening=header.get("listening"),
-        metals=tuple(metals.values()), points=tuple(points.values()), conductors=tuple(conductors),
-        rectifiers=tuple(r for r, *_ in groups[Rectifier]), currents=tuple(r for r, *_ in groups[Current]),
-        heaters=tuple(r for r, *_ in groups[Heater]), stages=tuple(stages),
-        fields=tuple(r for r, *_ in groups[FieldSource]), files=tuple(ld.files), location=Location(file, 1, 1),
-        device_supplies=tuple(s for s, _ in supplies), acceptances=acceptances(ld.sources),
-        device_files=tuple(ld.device_files), supply=header.get("supply"), devices=tuple(placed.values()),
+        title=header.get("title") or Path(file).stem,
+        file=file,
+        mains=mains,
+        ambient=header.get("ambient", 20.0),
+        listening=header.get("listening"),
+        metals=tuple(metals.values()),
+        points=tuple(points.values()),
+        conductors=tuple(conductors),
+        rectifiers=tuple(r for r, *_ in groups[Rectifier]),
+        currents=tuple(r for r, *_ in groups[Current]),
+        heaters=tuple(r for r, *_ in groups[Heater]),
+        stages=tuple(stages),
+        fields=tuple(r for r, *_ in groups[FieldSource]),
+        files=tuple(ld.files),
+        location=Location(file, 1, 1),
+        device_supplies=tuple(s for s, _ in supplies),
+        acceptances=acceptances(ld.sources),
+        device_files=tuple(ld.device_files),
+        supply=header.get("supply"),
+        devices=tuple(placed.values()),
         transformers=tuple(transformers),
     )
 
 
-#: a balanced input's common-mode rejection when neither it nor the imbalance is stated, dB (an assumption)
+#: a balanced input's common-mode rejection when neither it nor the imbalance is stated, dB (an
+#: assumption)
 DEFAULT_CMRR = 50.0
-#: no balanced input rejects better than this, dB (a perfectly matched source still leaves the input's own)
+#: no balanced input rejects better than this, dB (a perfectly matched source still leaves the
+#: input's own)
 MAX_CMRR = 200.0
 
 
 def balanced_rejection(c) -> float:
-    """The common-mode rejection (dB) of a balanced interconnect's receiving input: from the source-impedance
-    imbalance ΔZ against the input's common-mode impedance Zcm per leg when stated, CMRR = 20·log10((Zcm + ΔZ)/ΔZ)
-    (the common-mode voltage divides unequally between the legs; B. Whitlock, "Balanced lines in audio systems",
-    J. Audio Eng. Soc. 43(6), 1995, from memory); the lower of that and the input's own stated CMRR when both are
-    given; else the stated CMRR, else :data:`DEFAULT_CMRR`."""
+    """The common-mode rejection (dB) of a balanced interconnect's receiving input: from the
+    source-impedance imbalance ΔZ against the input's common-mode impedance Zcm per leg when
+    stated, CMRR = 20·log10((Zcm + ΔZ)/ΔZ) (the common-mode voltage divides unequally between the
+    legs; B. Whitlock, "Balanced lines in audio systems", J. Audio Eng. Soc. 43(6), 1995, from
+    memory); the lower of that and the input's own stated CMRR when both are given; else the stated
+    CMRR, else :data:`DEFAULT_CMRR`."""
     own = c.cmrr
     if c.imbalance is None:
         return DEFAULT_CMRR if own is None else own
     from math import log10
-    by_imbalance = MAX_CMRR if c.imbalance == 0 else min(MAX_CMRR, 20 * log10((c.common_mode + c.imbalance)
-                                                                              / c.imbalance))
-    return by_imbalance if own is None else min(own, by_imbalance)
 
+    by_imbalance = (
+        MAX_CMRR
+        if c.imbalance == 0
+        else min(MAX_CMRR, 20 * log10((c.common_mode + c.imbalance) / c.imbalance))
+    )
+    return by_imbalance if own is None else min(own, by_imbalance)

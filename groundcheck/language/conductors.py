@@ -1,5 +1,6 @@
-"""The conductor statements (wire, trace, busbar, bolt, strap, cable, core, shield, interconnect, lift, switch):
-one builder for every kind, the geometry each kind needs coming from :mod:`groundcheck.model.kinds`."""
+"""The conductor statements (wire, trace, busbar, bolt, strap, cable, core, shield, interconnect,
+lift, switch): one builder for every kind, the geometry each kind needs coming from
+:mod:`groundcheck.model.kinds`."""
 
 from __future__ import annotations
 
@@ -13,13 +14,42 @@ from .reading import MATERIALS, Refs, first_phrase_ends, material, unknown
 __all__ = ["conductor", "CONDUCTOR_NAMED"]
 
 
-CONDUCTOR_NAMED = ("via", "width", "thickness", "copper", "contact", "resistance", "insulation", "channel",
-                   "terminated", "separate", "in-cable", "open", "closed", "diameter", "balanced", "unbalanced",
-                   "gain", "cmrr", "imbalance", "common-mode", "load", "cores", "shield-to", "in", "capacitance")
+CONDUCTOR_NAMED = (
+    "via",
+    "width",
+    "thickness",
+    "copper",
+    "contact",
+    "resistance",
+    "insulation",
+    "channel",
+    "terminated",
+    "separate",
+    "in-cable",
+    "open",
+    "closed",
+    "diameter",
+    "balanced",
+    "unbalanced",
+    "gain",
+    "cmrr",
+    "imbalance",
+    "common-mode",
+    "load",
+    "cores",
+    "shield-to",
+    "in",
+    "capacitance",
+)
 #: where an interconnect's shield end can land
 SHIELD_LANDINGS = ("chassis", "signal")
 #: the field a bare quantity of each kind sets on a conductor
-_CONDUCTOR_QTY = {"length": "length", "area": "area", "resistance": "resistance", "capacitance": "capacitance"}
+_CONDUCTOR_QTY = {
+    "length": "length",
+    "area": "area",
+    "resistance": "resistance",
+    "capacitance": "capacitance",
+}
 
 
 def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
@@ -64,11 +94,16 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
         kw["cores"] = r.word("how the cores lie (L-N-PE, L-PE-N or round)", CABLE_CORES)
     elif word == "shield-to":
         first = r.word("where the shield lands (chassis or signal)", SHIELD_LANDINGS)
-        kw["shield_ends"] = (first, r.word("where the B end lands", SHIELD_LANDINGS) if not r.done else first)
+        kw["shield_ends"] = (
+            first,
+            r.word("where the B end lands", SHIELD_LANDINGS) if not r.done else first,
+        )
     elif word == "in":
         kw["bundle"] = r.word("the umbilical's name")
     elif word == "capacitance":
-        kw["capacitance"] = check_quantity(r.next("the capacitor (capacitance)"), "capacitance", "capacitance")
+        kw["capacitance"] = check_quantity(
+            r.next("the capacitor (capacitance)"), "capacitance", "capacitance"
+        )
 
 
 def conductor(stmt: Statement):
@@ -81,27 +116,36 @@ def conductor(stmt: Statement):
         kw["contact"] = row.contact
     if row.thickness is not None:
         kw["thickness"] = row.thickness
-    only = owners()              # the attribute words that belong to some kinds only
+    only = owners()  # the attribute words that belong to some kinds only
     named = CONDUCTOR_NAMED
     for ph in stmt.phrases[1:]:
         r = Reader(ph, stmt)
-        first = ph[0]                    # phrases are never empty
+        first = ph[0]  # phrases are never empty
         if first.kind == "qty":
             it = r.next("")
             field = _CONDUCTOR_QTY.get(it.qkind)
             if field is None or (field in only and field not in row.attributes):
                 lifts = _a(" or ".join(only.get("capacitance", ())))
-                raise PlanError(f"{kind}: a {it.qkind} is not expected here", it.loc,
-                                "give lengths, areas (mm2 or AWG) and resistances; "
-                                f"a capacitance only on {lifts}")
+                raise PlanError(
+                    f"{kind}: a {it.qkind} is not expected here",
+                    it.loc,
+                    "give lengths, areas (mm2 or AWG) and resistances; a capacitance only on "
+                    f"{lifts}",
+                )
             kw[field] = check_quantity(it, it.qkind, field, allow_zero=field == "resistance")
             if field == "area" and it.text.upper().endswith("AWG"):
-                kw["diameter"] = (4 * kw["area"] / 3.141592653589793) ** 0.5    # the area is AWG 0000-aware
+                kw["diameter"] = (
+                    4 * kw["area"] / 3.141592653589793
+                ) ** 0.5  # the area is AWG 0000-aware
         elif first.kind == "word" and first.value.upper() == "AWG":
             r.next("")
             n = r.number("an AWG size")
             if n != int(n) or not -3 <= n <= 46:
-                raise PlanError(f"AWG size {n:g} is not a whole gauge", first.loc, "use a size from 0000 (-3) to 46")
+                raise PlanError(
+                    f"AWG size {n:g} is not a whole gauge",
+                    first.loc,
+                    "use a size from 0000 (-3) to 46",
+                )
             d = awg_diameter(n)
             kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
         elif first.kind == "word" and first.value in ROLES:
@@ -111,14 +155,21 @@ def conductor(stmt: Statement):
         elif first.kind == "word" and first.value in named:
             if first.value in only and first.value not in row.attributes:
                 owner = _a(" or ".join(only[first.value]))
-                raise PlanError(f"{first.value} is an attribute of {owner}, not of {_a(kind)}",
-                                first.loc, _HINTS[first.value])
+                raise PlanError(
+                    f"{first.value} is an attribute of {owner}, not of {_a(kind)}",
+                    first.loc,
+                    _HINTS[first.value],
+                )
             _named(r, r.word(), kw, a, b)
         else:
-            raise unknown(stmt, first, attribute_words(kind), _UNKNOWN_HINTS.get(row.impedance, ""))
+            raise unknown(
+                stmt, first, attribute_words(kind), _UNKNOWN_HINTS.get(row.impedance, "")
+            )
         r.finish()
     _check_geometry(stmt, kind, kw)
-    return make(Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw), refs
+    return make(
+        Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw
+    ), refs
 
 
 #: what a kind that reads its values as bare quantities says beside an unknown attribute
@@ -126,12 +177,15 @@ _UNKNOWN_HINTS = {"lift": "a lift's resistor and capacitor are quantities: ', 10
 
 
 def attribute_words(kind: str) -> tuple[str, ...]:
-    """The attribute words a conductor of ``kind`` takes (an unknown word's error lists these only)."""
+    """The attribute words a conductor of ``kind`` takes (an unknown word's error lists these
+    only)."""
     row = KINDS[kind]
     geometric = bool(row.needs) and row.impedance in ("round", "strip")
     words = [*ROLES, *(MATERIALS if geometric else ()), "resistance", "channel", "via"]
     if geometric:
-        words += ["width", "thickness", "copper"] if row.impedance == "strip" else ["diameter", "AWG"]
+        words += (
+            ["width", "thickness", "copper"] if row.impedance == "strip" else ["diameter", "AWG"]
+        )
         words += ["insulation"] if row.impedance == "round" else []
     if row.hookup:
         words += ["separate", "in-cable"]
@@ -151,17 +205,22 @@ def _a(word: str) -> str:
     return ("an " if word[0] in "aeiou" else "a ") + word
 
 
-_HINTS = {"load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",
-          "cores": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, cores L-N-PE'",
-          "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
-          "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'",
-          "capacitance": "a ground-lift network: 'lift NAME: A to B, 10 ohm, 47 nF'"}
+_HINTS = {
+    "load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",
+    "cores": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, cores L-N-PE'",
+    "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
+    "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'",
+    "capacitance": "a ground-lift network: 'lift NAME: A to B, 10 ohm, 47 nF'",
+}
 
 
 #: what to say when a kind's required geometry is missing: field -> (what it needs, an example)
 _GEOMETRY_HINTS = {
     "length": ("a length (or a stated resistance)", "e.g. ', 120 mm'"),
-    "area": ("a cross-section (mm2 or AWG) or a stated resistance", "e.g. ', 0.5 mm2' or ', AWG 20'"),
+    "area": (
+        "a cross-section (mm2 or AWG) or a stated resistance",
+        "e.g. ', 0.5 mm2' or ', AWG 20'",
+    ),
     "width": ("a width (or an area, or a stated resistance)", "e.g. ', width 2 mm'"),
     "resistance": ("its resistor", "e.g. ', 10 ohm, 47 nF'"),
 }
@@ -175,7 +234,9 @@ def _check_geometry(stmt: Statement, kind: str, kw: dict) -> None:
     row = KINDS[kind]
     for options in row.needs:
         if not any(f in kw for f in options) and "resistance" not in kw:
-            if options[0] == "length" and not (row.joins_devices or row.carries_load or "in" in row.attributes):
+            if options[0] == "length" and not (
+                row.joins_devices or row.carries_load or "in" in row.attributes
+            ):
                 kw["length_computed"] = True
                 continue
             what, example = _GEOMETRY_HINTS[options[0]]

@@ -1,6 +1,6 @@
 """Devices in an installation: finding a device's plan, the built-in simple device, and merging a
-device's elements into the installation under its name (prefixed, moved to its place, its mains cord
-joined to the outlet it is plugged into)."""
+device's elements into the installation under its name (prefixed, moved to its place, its mains
+cord joined to the outlet it is plugged into)."""
 
 from __future__ import annotations
 
@@ -13,22 +13,41 @@ from pathlib import Path
 
 from ..core.errors import PlanError, PlanErrors
 from ..model.kinds import BOND, CORD_KIND, DEVICE_BOND_KIND, KINDS, LIFT_KIND, PROTECTIVE
-from ..model.records import (DEFAULT_CORD, PE_POINT, Conductor, Current, Device, FieldSource, Heater, Metal, Plan,
-                             Point,
-                             Rectifier, Stage)
+from ..model.records import (
+    DEFAULT_CORD,
+    PE_POINT,
+    Conductor,
+    Current,
+    Device,
+    FieldSource,
+    Heater,
+    Metal,
+    Plan,
+    Point,
+    Rectifier,
+    Stage,
+)
 from .placement import Transform
 
-__all__ = ["find_device", "simple_device", "merge_device", "prefixed", "MAX_DEVICE_DEPTH", "device_plans_once",
-           "read_once"]
+__all__ = [
+    "find_device",
+    "simple_device",
+    "merge_device",
+    "prefixed",
+    "MAX_DEVICE_DEPTH",
+    "device_plans_once",
+    "read_once",
+]
 
-#: the device plans one top-level load has read, by (path, library folders, nesting depth): sixty devices placing
-#: the same plan read it once (a plan is immutable; its errors are kept as well)
+#: the device plans one top-level load has read, by (path, library folders, nesting depth): sixty
+#: devices placing the same plan read it once (a plan is immutable; its errors are kept as well)
 _READ: ContextVar[dict | None] = ContextVar("device_plans", default=None)
 
 
 @contextmanager
 def device_plans_once():
-    """Within it (one top-level load and the device plans it reads), each device plan is read once."""
+    """Within it (one top-level load and the device plans it reads), each device plan is read
+    once."""
     token = _READ.set({}) if _READ.get() is None else None
     try:
         yield
@@ -38,7 +57,8 @@ def device_plans_once():
 
 
 def read_once(key: tuple, read) -> Plan:
-    """The device plan under ``key``, read by ``read()`` the first time (its PlanErrors raised again after)."""
+    """The device plan under ``key``, read by ``read()`` the first time (its PlanErrors raised
+    again after)."""
     cache = _READ.get()
     got = cache.get(key) if cache is not None else None
     if got is None:
@@ -52,19 +72,27 @@ def read_once(key: tuple, read) -> Plan:
         raise got
     return got
 
+
 #: devices placed inside devices, at the most
 MAX_DEVICE_DEPTH = 8
 
 
 def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path | None:
-    """A device's plan file: beside the plan, then in the library folders (the plan's ``library`` statements,
-    the caller's, ``GROUNDCHECK_LIBRARY``).  Only a regular ``.gplan`` file inside one of those folders (after
-    resolving links) is taken, so a device can never read a system file, a device node or a FIFO."""
+    """A device's plan file: beside the plan, then in the library folders (the plan's ``library``
+    statements, the caller's, ``GROUNDCHECK_LIBRARY``).  Only a regular ``.gplan`` file inside one
+    of those folders (after resolving links) is taken, so a device can never read a system file, a
+    device node or a FIFO."""
     here = ld.root
-    # the plan's own library folders stay inside its folder (links resolved); the caller's and the environment's
-    # are the user's choice
-    folders = [here, *(f for f in (_resolved(here / lib) for lib in library_dirs)
-                       if f is not None and (f == here.resolve() or here.resolve() in f.parents))]
+    # the plan's own library folders stay inside its folder (links resolved); the caller's and the
+    # environment's are the user's choice
+    folders = [
+        here,
+        *(
+            f
+            for f in (_resolved(here / lib) for lib in library_dirs)
+            if f is not None and (f == here.resolve() or here.resolve() in f.parents)
+        ),
+    ]
     env = os.environ.get("GROUNDCHECK_LIBRARY", "")
     for lib in [*ld.libraries, *[x for x in env.split(os.pathsep) if x]]:
         folders.append((here / lib) if not Path(lib).is_absolute() else Path(lib))
@@ -72,7 +100,12 @@ def find_device(source: str, dev: Device, ld, library_dirs: list[str]) -> Path |
         c, base = _resolved(folder / source), _resolved(folder)
         if c is None or base is None:
             continue
-        if c.suffix == ".gplan" and (c == base or base in c.parents) and c.is_file() and stat.S_ISREG(c.stat().st_mode):
+        if (
+            c.suffix == ".gplan"
+            and (c == base or base in c.parents)
+            and c.is_file()
+            and stat.S_ISREG(c.stat().st_mode)
+        ):
             return c
     return None
 
@@ -87,38 +120,87 @@ def _resolved(path: Path) -> Path | None:
 
 def simple_device(dev: Device) -> Plan:
     """A built-in device: a touchable chassis, the inlet's protective terminal bonded to it, and a
-    signal ground joined to the chassis directly, through a lift network, or not at all.  A class II device
-    has no protective terminal (its chassis is not earthed through its cord)."""
+    signal ground joined to the chassis directly, through a lift network, or not at all.  A class
+    II device has no protective terminal (its chassis is not earthed through its cord)."""
     n = dev.name
     loc = dev.location
     class_i = dev.equipment_class == "I"
     metals = (Metal(f"{n}.chassis", "steel", 1e-3, None, (0.0, 0.0), class_i, loc),)
     points = ((Point(f"{n}.{PE_POINT}", "inlet", None, None, n, loc),) if class_i else ()) + (
-        Point(f"{n}.gnd", "terminal", None, None, n, loc),)
+        Point(f"{n}.gnd", "terminal", None, None, n, loc),
+    )
     contact = KINDS[DEVICE_BOND_KIND].contact
-    conductors = [Conductor(f"{n}.pe_bond", DEVICE_BOND_KIND, f"{n}.{PE_POINT}", f"{n}.chassis",
-                            role=PROTECTIVE, contact=contact, location=loc)] if class_i else []
+    conductors = (
+        [
+            Conductor(
+                f"{n}.pe_bond",
+                DEVICE_BOND_KIND,
+                f"{n}.{PE_POINT}",
+                f"{n}.chassis",
+                role=PROTECTIVE,
+                contact=contact,
+                location=loc,
+            )
+        ]
+        if class_i
+        else []
+    )
     if dev.signal_ground == "chassis":
-        conductors.append(Conductor(f"{n}.gnd_bond", DEVICE_BOND_KIND, f"{n}.gnd", f"{n}.chassis",
-                                    role=BOND, contact=contact, location=loc))
+        conductors.append(
+            Conductor(
+                f"{n}.gnd_bond",
+                DEVICE_BOND_KIND,
+                f"{n}.gnd",
+                f"{n}.chassis",
+                role=BOND,
+                contact=contact,
+                location=loc,
+            )
+        )
     elif dev.signal_ground == "lift":
-        conductors.append(Conductor(f"{n}.gnd_lift", LIFT_KIND, f"{n}.gnd", f"{n}.chassis",
-                                    resistance=10.0, capacitance=47e-9, location=loc))
-    return Plan(title=n, file=str(loc.file), metals=metals, points=points, conductors=tuple(conductors), location=loc)
+        conductors.append(
+            Conductor(
+                f"{n}.gnd_lift",
+                LIFT_KIND,
+                f"{n}.gnd",
+                f"{n}.chassis",
+                resistance=10.0,
+                capacitance=47e-9,
+                location=loc,
+            )
+        )
+    return Plan(
+        title=n,
+        file=str(loc.file),
+        metals=metals,
+        points=points,
+        conductors=tuple(conductors),
+        location=loc,
+    )
 
 
 def _device_plan(dev: Device, ld, library_dirs: list[str]) -> Plan | None:
-    """A device's own plan, loaded; None (its error added to ``ld.errors``) when it is missing, places itself or
-    nests too deep, or does not load."""
+    """A device's own plan, loaded; None (its error added to ``ld.errors``) when it is missing,
+    places itself or nests too deep, or does not load."""
     path = find_device(dev.source, dev, ld, library_dirs)
     if path is None:
-        ld.errors.append(PlanError(f"device plan {dev.source!r} not found", dev.location,
-                                   "a device is a .gplan file beside the plan or in a library folder "
-                                   "(library \"DIR\", GROUNDCHECK_LIBRARY); nothing outside them is read"))
+        ld.errors.append(
+            PlanError(
+                f"device plan {dev.source!r} not found",
+                dev.location,
+                "a device is a .gplan file beside the plan or in a library folder "
+                '(library "DIR", GROUNDCHECK_LIBRARY); nothing outside them is read',
+            )
+        )
         return None
     if path in ld.device_stack or len(ld.device_stack) >= MAX_DEVICE_DEPTH:
-        ld.errors.append(PlanError(f"device {dev.source!r} contains itself, or devices nest too deep", dev.location,
-                                   "a device plan cannot place itself, directly or not"))
+        ld.errors.append(
+            PlanError(
+                f"device {dev.source!r} contains itself, or devices nest too deep",
+                dev.location,
+                "a device plan cannot place itself, directly or not",
+            )
+        )
         return None
     try:
         loaded = ld.load_device(path)
@@ -126,17 +208,32 @@ def _device_plan(dev: Device, ld, library_dirs: list[str]) -> Plan | None:
         ld.errors.extend(e.errors)
         return None
     if loaded.transformers:
-        ld.errors.append(PlanError(f"device {dev.name}'s plan has a transformer", dev.location,
-                                   "a transformer stands between the wall and devices: write it "
-                                   "in the installation, and plug the device into it"))
+        ld.errors.append(
+            PlanError(
+                f"device {dev.name}'s plan has a transformer",
+                dev.location,
+                "a transformer stands between the wall and devices: write it in the installation, "
+                "and plug the device into it",
+            )
+        )
     return loaded
 
 
-def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: dict, metals: dict,
-                  points: dict, names: dict, classes: dict) -> tuple | None:
+def merge_device(
+    dev: Device,
+    refs: dict,
+    ld,
+    library_dirs: list[str],
+    groups: dict,
+    metals: dict,
+    points: dict,
+    names: dict,
+    classes: dict,
+) -> tuple | None:
     """Add a device's elements to the installation, prefixed with its name and moved to its place.
-    Returns the device's supply (name, volts, hertz) when its plan states one; a device whose own plan is class II
-    is entered in ``classes`` (device name -> "II") and gets no protective conductor in its cord."""
+    Returns the device's supply (name, volts, hertz) when its plan states one; a device whose own
+    plan is class II is entered in ``classes`` (device name -> "II") and gets no protective
+    conductor in its cord."""
     errors = ld.errors
     supply = None
     if dev.source == "simple":
@@ -152,14 +249,24 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
         cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
         supply = (dev.name, m.voltage, m.frequency) if m else None
         if m is not None and m.equipment_class == "II":
-            classes[dev.name] = "II"         # its cord has no protective conductor, as a class II simple device's
+            classes[dev.name] = (
+                "II"  # its cord has no protective conductor, as a class II simple device's
+            )
     tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
-    taken = [x.name for x in (*sub.metals, *sub.points, *sub.conductors) if x.name in names or x.name in points
-             or x.name in metals]
+    taken = [
+        x.name
+        for x in (*sub.metals, *sub.points, *sub.conductors)
+        if x.name in names or x.name in points or x.name in metals
+    ]
     if taken:
-        errors.append(PlanError(f"device {dev.name}'s element {taken[0]!r} has the name of an element of the plan",
-                                names.get(taken[0], dev.location),
-                                f"names starting with '{dev.name}.' belong to the device: rename the plan's element"))
+        errors.append(
+            PlanError(
+                f"device {dev.name}'s element {taken[0]!r} has the name of an element of the plan",
+                names.get(taken[0], dev.location),
+                f"names starting with '{dev.name}.' belong to the device: rename the plan's "
+                "element",
+            )
+        )
         return supply
     for x in sub.metals:
         size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
@@ -169,43 +276,94 @@ def merge_device(dev: Device, refs: dict, ld, library_dirs: list[str], groups: d
     for x in sub.conductors:
         groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
     for kind in (Rectifier, Current, Heater):
-        for x in getattr(sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]):
-            groups[kind].append((replace(x, route=tuple(tf(q) for q in x.route)) if kind is Heater else x, {}))
+        for x in getattr(
+            sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]
+        ):
+            groups[kind].append(
+                (replace(x, route=tuple(tf(q) for q in x.route)) if kind is Heater else x, {})
+            )
     for x in sub.stages:
         groups[Stage].append((x, {}))
     for x in sub.fields:
         groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
     pe = f"{dev.name}.{PE_POINT}"
-    if dev.plugged is not None and pe in points and classes.get(dev.name, dev.equipment_class) == "I":
-        groups[Conductor].append((Conductor(f"{dev.name}.cord", CORD_KIND, pe, dev.plugged,
-                                            role=PROTECTIVE,
-                                            length=dev.cord_length or cord_default[0],
-                                            area=dev.cord_area or cord_default[1],
-                                            location=dev.location), {}))
+    if (
+        dev.plugged is not None
+        and pe in points
+        and classes.get(dev.name, dev.equipment_class) == "I"
+    ):
+        groups[Conductor].append(
+            (
+                Conductor(
+                    f"{dev.name}.cord",
+                    CORD_KIND,
+                    pe,
+                    dev.plugged,
+                    role=PROTECTIVE,
+                    length=dev.cord_length or cord_default[0],
+                    area=dev.cord_area or cord_default[1],
+                    location=dev.location,
+                ),
+                {},
+            )
+        )
     return supply
 
 
 def prefixed(p: Plan, prefix: str) -> Plan:
-    """A device plan with every name prefixed (channels too, so each device keeps its own); a channel
-    named as the device itself keeps that name, once (a compressor ``comp`` whose own plan's channel is
-    ``comp`` has the channel ``comp``, which the installation's links may name, never ``comp.comp``)."""
+    """A device plan with every name prefixed (channels too, so each device keeps its own); a
+    channel named as the device itself keeps that name, once (a compressor ``comp`` whose own
+    plan's channel is ``comp`` has the channel ``comp``, which the installation's links may name,
+    never ``comp.comp``)."""
     pre = lambda n: None if n is None else prefix + n  # noqa: E731
     own = prefix.rstrip(".")
     chan = lambda n: n if n is None or n == own else prefix + n  # noqa: E731
     return replace(
         p,
         metals=tuple(replace(m, name=pre(m.name)) for m in p.metals),
-        points=tuple(replace(x, name=pre(x.name), on=pre(x.on), group=pre(x.group) if x.group else prefix.rstrip("."))
-                     for x in p.points),
-        conductors=tuple(replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b),
-                                 channel=chan(c.channel)) for c in p.conductors),
-        rectifiers=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=chan(r.channel),
-                                 filter_point=pre(r.filter_point)) for r in p.rectifiers),
-        currents=tuple(replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b),
-                               channel=chan(r.channel)) for r in p.currents),
-        heaters=tuple(replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b),
-                              reference=pre(h.reference)) for h in p.heaters),
-        stages=tuple(replace(s, name=pre(s.name), a=pre(s.a), b=pre(s.b), channel=chan(s.channel),
-                             reference=pre(s.reference), named=pre(s.named)) for s in p.stages),
+        points=tuple(
+            replace(
+                x,
+                name=pre(x.name),
+                on=pre(x.on),
+                group=pre(x.group) if x.group else prefix.rstrip("."),
+            )
+            for x in p.points
+        ),
+        conductors=tuple(
+            replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=chan(c.channel))
+            for c in p.conductors
+        ),
+        rectifiers=tuple(
+            replace(
+                r,
+                name=pre(r.name),
+                a=pre(r.a),
+                b=pre(r.b),
+                channel=chan(r.channel),
+                filter_point=pre(r.filter_point),
+            )
+            for r in p.rectifiers
+        ),
+        currents=tuple(
+            replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=chan(r.channel))
+            for r in p.currents
+        ),
+        heaters=tuple(
+            replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b), reference=pre(h.reference))
+            for h in p.heaters
+        ),
+        stages=tuple(
+            replace(
+                s,
+                name=pre(s.name),
+                a=pre(s.a),
+                b=pre(s.b),
+                channel=chan(s.channel),
+                reference=pre(s.reference),
+                named=pre(s.named),
+            )
+            for s in p.stages
+        ),
         fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),
     )

@@ -34,13 +34,17 @@ def includes_of(path: Path) -> list[Path]:
         text = read_plan_file(path, str(path))
     except PlanErrors:
         return []
-    if "include" not in text:                     # no parse of a file that cannot include anything
+    if "include" not in text:  # no parse of a file that cannot include anything
         return []
-    errors: list = []                             # the file's own check reports them
+    errors: list = []  # the file's own check reports them
     items, _ = parse_text(text, str(path), errors)
     out = []
     for it in items:
-        if getattr(it, "keyword", None) != "include" or len(it.phrases) != 1 or len(it.phrases[0]) != 1:
+        if (
+            getattr(it, "keyword", None) != "include"
+            or len(it.phrases) != 1
+            or len(it.phrases[0]) != 1
+        ):
             continue
         word = it.phrases[0][0]
         if word.kind == "string" and not Path(word.value).is_absolute():
@@ -51,8 +55,8 @@ def includes_of(path: Path) -> list[Path]:
 
 
 def fragments_among(plans: list[Path]) -> dict[Path, list[Path]]:
-    """Each file that one of ``plans`` includes, directly or through other includes (up to the include
-    depth limit), resolved, with the plans that include it."""
+    """Each file that one of ``plans`` includes, directly or through other includes (up to the
+    include depth limit), resolved, with the plans that include it."""
     found: dict[Path, list[Path]] = {}
     known: dict[Path, list[Path]] = {}
     for plan in plans:
@@ -74,19 +78,27 @@ def fragments_among(plans: list[Path]) -> dict[Path, list[Path]]:
 
 
 def neighbours(path: Path, top: Path) -> list[Path]:
-    """The plans that could include ``path``: those in its own folder and in each folder above it, up to
-    ``top`` (an include is confined to its main plan's folder and below, so no other plan can)."""
+    """The plans that could include ``path``: those in its own folder and in each folder above it,
+    up to ``top`` (an include is confined to its main plan's folder and below, so no other plan
+    can)."""
     folder, top = resolved(path).parent, resolved(top)
     if folder != top and top not in folder.parents:
         return []
     out = []
     while True:
         try:
-            out.extend(sorted(p for p in folder.iterdir() if p.suffix == PLAN_SUFFIX and p.is_file()
-                              and not p.is_symlink() and not p.name.startswith(".")))
+            out.extend(
+                sorted(
+                    p
+                    for p in folder.iterdir()
+                    if p.suffix == PLAN_SUFFIX
+                    and p.is_file()
+                    and not p.is_symlink()
+                    and not p.name.startswith(".")
+                )
+            )
         except OSError:
             pass
         if folder == top:
             return out
         folder = folder.parent
-

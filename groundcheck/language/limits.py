@@ -15,13 +15,15 @@ LIMITS = {
     "rectifiers": 256,
 }
 
-#: work limits of one analysis, estimated before the work starts (groundcheck/physics/workload.py): the
-#: rectifiers' time steps (their steady states searched), loop pickups (listed loops × field lines × branches:
-#: the EMF columns), the hum budget's solves (frequencies × nodes × columns, a fixed cost a frequency) and the
-#: devices' earth paths (devices × points)
-LIMITS.update({
-    "rectifier_steps": 4096 * 240,
-    "loop_pickups": 12_000_000,
-    "solve_work": 50_000_000,
-    "device_work": 100_000_000,
-})
+#: work limits of one analysis, estimated before the work starts (groundcheck/physics/workload.py):
+#: the rectifiers' time steps (their steady states searched), loop pickups (listed loops × field
+#: lines × branches: the EMF columns), the hum budget's solves (frequencies × nodes × columns, a
+#: fixed cost a frequency) and the devices' earth paths (devices × points)
+LIMITS.update(
+    {
+        "rectifier_steps": 4096 * 240,
+        "loop_pickups": 12_000_000,
+        "solve_work": 50_000_000,
+        "device_work": 100_000_000,
+    }
+)

@@ -8,22 +8,69 @@ import difflib
 from ..core.errors import Location, PlanError
 from .phrases import Reader, Statement
 
-__all__ = ["MATERIALS", "POINT_KINDS", "FIELD_KINDS", "FUSE_KINDS", "Refs", "unknown",
-           "need_label",
-           "no_label", "ends", "first_phrase_ends", "it_number", "material"]
+__all__ = [
+    "MATERIALS",
+    "POINT_KINDS",
+    "FIELD_KINDS",
+    "FUSE_KINDS",
+    "Refs",
+    "unknown",
+    "need_label",
+    "no_label",
+    "ends",
+    "first_phrase_ends",
+    "it_number",
+    "material",
+]
 
-MATERIALS = ("copper", "aluminium", "aluminum", "brass", "steel", "stainless", "tinned-copper", "silver")
-POINT_KINDS = ("junction", "stud", "star", "busbar", "tag", "sleeve", "jack", "pot", "pad", "cap",
-               "centre-tap", "center-tap", "terminal", "inlet", "lug", "outlet", "earthing-terminal")
+MATERIALS = (
+    "copper",
+    "aluminium",
+    "aluminum",
+    "brass",
+    "steel",
+    "stainless",
+    "tinned-copper",
+    "silver",
+)
+POINT_KINDS = (
+    "junction",
+    "stud",
+    "star",
+    "busbar",
+    "tag",
+    "sleeve",
+    "jack",
+    "pot",
+    "pad",
+    "cap",
+    "centre-tap",
+    "center-tap",
+    "terminal",
+    "inlet",
+    "lug",
+    "outlet",
+    "earthing-terminal",
+)
 FIELD_KINDS = ("transformer", "toroid", "choke", "mains-wiring", "motor", "other")
-FUSE_KINDS = {"slow": "slow", "time-lag": "slow", "T": "slow", "fast": "fast", "quick": "fast", "F": "fast"}
+FUSE_KINDS = {
+    "slow": "slow",
+    "time-lag": "slow",
+    "T": "slow",
+    "fast": "fast",
+    "quick": "fast",
+    "F": "fast",
+}
 Refs = dict[str, Location]
 
 
 def unknown(stmt: Statement, item, expected: tuple[str, ...], more: str = "") -> PlanError:
     if item.kind == "number":
-        return PlanError(f"{stmt.keyword}: the number {item.text} needs a unit", item.loc,
-                         "add a unit, e.g. 10 mm, 0.5 mm2, 2 A, 50 Hz")
+        return PlanError(
+            f"{stmt.keyword}: the number {item.text} needs a unit",
+            item.loc,
+            "add a unit, e.g. 10 mm, 0.5 mm2, 2 A, 50 Hz",
+        )
     expected = tuple(dict.fromkeys(expected))
     close = difflib.get_close_matches(str(item.text), expected, n=1)
     hint = f"did you mean {close[0]!r}?" if close else "expected one of: " + ", ".join(expected)
@@ -33,14 +80,19 @@ def unknown(stmt: Statement, item, expected: tuple[str, ...], more: str = "") ->
 
 def need_label(stmt: Statement) -> str:
     if not stmt.label:
-        raise PlanError(f"{stmt.keyword} needs a name", stmt.loc, f"write '{stmt.keyword} NAME: ...'")
+        raise PlanError(
+            f"{stmt.keyword} needs a name", stmt.loc, f"write '{stmt.keyword} NAME: ...'"
+        )
     return stmt.label
 
 
 def no_label(stmt: Statement) -> None:
     if stmt.label:
-        raise PlanError(f"{stmt.keyword} takes no name", stmt.label_loc or stmt.loc,
-                        f"write '{stmt.keyword} ...' without 'NAME:'")
+        raise PlanError(
+            f"{stmt.keyword} takes no name",
+            stmt.label_loc or stmt.loc,
+            f"write '{stmt.keyword} ...' without 'NAME:'",
+        )
 
 
 def ends(stmt: Statement, r: Reader, refs: Refs) -> tuple[str, str]:
@@ -54,7 +106,11 @@ def ends(stmt: Statement, r: Reader, refs: Refs) -> tuple[str, str]:
 
 def first_phrase_ends(stmt: Statement, refs: Refs) -> tuple[str, str]:
     if not stmt.phrases:
-        raise PlanError(f"{stmt.keyword} needs its two ends", stmt.loc, f"write '{stmt.keyword} NAME: A to B, ...'")
+        raise PlanError(
+            f"{stmt.keyword} needs its two ends",
+            stmt.loc,
+            f"write '{stmt.keyword} NAME: A to B, ...'",
+        )
     return ends(stmt, Reader(stmt.phrases[0], stmt), refs)
 
 

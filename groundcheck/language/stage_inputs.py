@@ -31,14 +31,22 @@ def _inferred(stages, points: dict[str, Point], conductors, taken: set[str]) -> 
             continue
         for x, y in ((c.a, c.b), (c.b, c.a)):
             px, py = points.get(x), points.get(y)
-            if px is not None and py is not None and py.kind in SOCKET_KINDS \
-                    and py.group == px.group:
+            if (
+                px is not None
+                and py is not None
+                and py.kind in SOCKET_KINDS
+                and py.group == px.group
+            ):
                 joined.setdefault(x, set()).add(y)
     claims: dict[int, str] = {}
     for k, st in enumerate(stages):
         first = points.get(st.a)
-        if st.reference is not None or st.across is not None or first is None \
-                or first.kind in SOCKET_KINDS:
+        if (
+            st.reference is not None
+            or st.across is not None
+            or first is None
+            or first.kind in SOCKET_KINDS
+        ):
             continue
         socks = joined.get(st.a, set()) - taken - {st.b}
         if len(socks) == 1:
@@ -49,8 +57,9 @@ def _inferred(stages, points: dict[str, Point], conductors, taken: set[str]) -> 
     return {k: s for k, s in claims.items() if counts[s] == 1}
 
 
-def stage_inputs(stages: list[Stage], points: dict[str, Point], conductors: list[Conductor],
-                 sources) -> list[Stage]:
+def stage_inputs(
+    stages: list[Stage], points: dict[str, Point], conductors: list[Conductor], sources
+) -> list[Stage]:
     """The stages with their input references applied: a stage with a reference P (stated, or
     inferred) reads P to B instead of A to B, ``named`` keeping A.
 

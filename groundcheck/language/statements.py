@@ -1,4 +1,5 @@
-"""Statement builders: one function per plan keyword, turning a :class:`Statement` into a model record.
+"""Statement builders: one function per plan keyword, turning a :class:`Statement` into a model
+record.
 
 Names inside a record are still as written (resolved later by the loader) and
 positions are in the frame of the block being placed.  Each builder returns
@@ -16,18 +17,26 @@ from ..model.kinds import CONDUCTOR_KINDS, KINDS
 from ..model.records import Device, FieldSource, Listening, Metal, Point, Stage, make
 from .conductors import conductor
 from .phrases import Reader, Statement, check_quantity
-from .reading import (FIELD_KINDS, MATERIALS, POINT_KINDS, Refs, first_phrase_ends, it_number, material, need_label,
-                      no_label,
-                      unknown)
+from .reading import (
+    FIELD_KINDS,
+    MATERIALS,
+    POINT_KINDS,
+    Refs,
+    first_phrase_ends,
+    it_number,
+    material,
+    need_label,
+    no_label,
+    unknown,
+)
 from .supply import current, heater, mains, rectifier, supply
 from .transformer import transformer
 
 __all__ = ["BUILDERS", "KEYWORDS", "build", "builder_of", "MAX_PART_SIDE"]
 
-#: the largest metal part, m: a rack or a bench is a few metres (the plate model's grid is sized for parts)
+#: the largest metal part, m: a rack or a bench is a few metres (the plate model's grid is sized
+#: for parts)
 MAX_PART_SIDE = 10.0
-
-
 
 
 def plan_header(stmt: Statement):
@@ -50,9 +59,13 @@ def ambient(stmt: Statement):
 def listening(stmt: Statement):
     no_label(stmt)
     kw: dict = {}
-    spec = {"output": ("rated_output", "voltage"), "amp-gain": ("amp_gain", "level"),
-            "speaker": ("sensitivity", "level"), "impedance": ("impedance", "resistance"),
-            "distance": ("distance", "length")}
+    spec = {
+        "output": ("rated_output", "voltage"),
+        "amp-gain": ("amp_gain", "level"),
+        "speaker": ("sensitivity", "level"),
+        "impedance": ("impedance", "resistance"),
+        "distance": ("distance", "length"),
+    }
     for ph in stmt.phrases:
         r = Reader(ph, stmt)
         first = r.peek()
@@ -60,25 +73,36 @@ def listening(stmt: Statement):
         if word == "speakers":
             n = r.number("the number of speakers")
             if n != int(n) or not 1 <= n <= 16:
-                raise PlanError("speakers takes a whole number from 1 to 16", first.loc, "e.g. 'speakers 2'")
+                raise PlanError(
+                    "speakers takes a whole number from 1 to 16", first.loc, "e.g. 'speakers 2'"
+                )
             kw["speakers"] = int(n)
         elif word == "room-gain":
             kw["room_gain"] = r.quantity("level", "room gain", positive=False)
         elif word == "background":
-            kw["background"] = r.quantity("level", "background noise per third-octave band", positive=False)
+            kw["background"] = r.quantity(
+                "level", "background noise per third-octave band", positive=False
+            )
         elif word == "headphones":
             kw["phones"] = r.quantity("level", "headphone sensitivity", positive=False)
             r.expect("per")
-            kw["phones_per"] = r.word("the sensitivity's reference power or voltage (mW or V)", ("mW", "V"))
+            kw["phones_per"] = r.word(
+                "the sensitivity's reference power or voltage (mW or V)", ("mW", "V")
+            )
         elif word in spec:
             field, kind = spec[word]
             kw[field] = r.quantity(kind, word, positive=kind != "level")
         else:
-            raise unknown(stmt, first, (*spec, "speakers", "room-gain", "headphones", "background"))
+            raise unknown(
+                stmt, first, (*spec, "speakers", "room-gain", "headphones", "background")
+            )
         r.finish()
     if "phones" in kw and "sensitivity" in kw:
-        raise PlanError("listening gives both a speaker and headphones", stmt.loc,
-                        "describe one listening chain per plan: 'speaker 88 dB' or 'headphones 100 dB per mW'")
+        raise PlanError(
+            "listening gives both a speaker and headphones",
+            stmt.loc,
+            "describe one listening chain per plan: 'speaker 88 dB' or 'headphones 100 dB per mW'",
+        )
     return Listening(location=stmt.loc, **kw), {}
 
 
@@ -102,9 +126,12 @@ def metal(stmt: Statement):
                 raise PlanError("width must be more than zero", first.loc, "")
             for side, text in ((w * scale, first.text), (d, it.text)):
                 if side > MAX_PART_SIDE:
-                    raise PlanError(f"a metal part {text} across is larger than groundcheck models ({MAX_PART_SIDE:g} "
-                                    "m)",
-                                    first.loc, "describe chassis parts, panels and racks, each under 10 m")
+                    raise PlanError(
+                        f"a metal part {text} across is larger than groundcheck models "
+                        f"({MAX_PART_SIDE:g} m)",
+                        first.loc,
+                        "describe chassis parts, panels and racks, each under 10 m",
+                    )
             kw["size"] = (w * scale, d)
         elif first.kind == "qty":
             kw["thickness"] = r.quantity("length", "thickness")
@@ -123,8 +150,12 @@ def metal(stmt: Statement):
         elif first.kind == "word" and first.value == "permeability":
             kw["permeability"] = _permeability(r)
         else:
-            raise unknown(stmt, first, MATERIALS + ("W x D mm", "at", "touchable", "internal",
-                                                    "signal-only", "permeability"))
+            raise unknown(
+                stmt,
+                first,
+                MATERIALS
+                + ("W x D mm", "at", "touchable", "internal", "signal-only", "permeability"),
+            )
         r.finish()
     kw.setdefault("touchable", None)
     return Metal(name=name, location=stmt.loc, **kw), {}
@@ -143,9 +174,12 @@ def _permeability(r) -> float:
     value = r.number("the relative permeability")
     lo, hi = PERMEABILITY_RANGE
     if not lo <= value <= hi:
-        raise PlanError(f"relative permeability {it.text} is outside {lo:g} to {hi:g}", it.loc,
-                        "a relative permeability is a plain number: 1 for aluminium or copper, "
-                        "a few hundred for mild steel sheet")
+        raise PlanError(
+            f"relative permeability {it.text} is outside {lo:g} to {hi:g}",
+            it.loc,
+            "a relative permeability is a plain number: 1 for aluminium or copper, a few hundred "
+            "for mild steel sheet",
+        )
     return value
 
 
@@ -215,7 +249,9 @@ def field_source(stmt: Statement):
             kw["r_ref"] = r.quantity("length", "reference distance")
         elif first.kind == "word" and first.value in ("height", "size"):
             r.word()
-            kw[first.value] = r.quantity("length", f"the source's {first.value}", allow_zero=first.value == "height")
+            kw[first.value] = r.quantity(
+                "length", f"the source's {first.value}", allow_zero=first.value == "height"
+            )
         elif first.kind == "word" and first.value == "axis":
             r.word()
             kw["axis"] = r.word("an axis (x, y, z or worst)", ("x", "y", "z", "worst"))
@@ -224,35 +260,56 @@ def field_source(stmt: Statement):
             r.word()
             n = r.number("a harmonic number")
             if n != int(n) or n < 2:
-                raise PlanError("harmonic number must be a whole number of 2 or more", first.loc, "")
+                raise PlanError(
+                    "harmonic number must be a whole number of 2 or more", first.loc, ""
+                )
             level = r.quantity("level", "level relative to the fundamental", positive=False)
             harmonics.append((int(n), ratio_of_db(level)))
         else:
-            raise unknown(stmt, first, FIELD_KINDS + ("at", "30 uT at 5 cm", "height", "axis", "size", "harmonic"))
+            raise unknown(
+                stmt,
+                first,
+                FIELD_KINDS + ("at", "30 uT at 5 cm", "height", "axis", "size", "harmonic"),
+            )
         r.finish()
     for need, ex in (("pos", "at 60,180"), ("b_ref", "30 uT at 5 cm")):
         if need not in kw:
-            raise PlanError(f"field needs {ex.split()[0] if need == 'pos' else 'its strength'}", stmt.loc,
-                            f"e.g. ', {ex}'")
+            raise PlanError(
+                f"field needs {ex.split()[0] if need == 'pos' else 'its strength'}",
+                stmt.loc,
+                f"e.g. ', {ex}'",
+            )
     size, height = kw.get("size"), kw.get("height", 0.0)
     if size is not None and kw.get("axis") in ("x", "y") and height < size / 2:
-        raise PlanError(f"a source of size {size * 1e3:g} mm with its axis {kw['axis']} at height {height * 1e3:g} mm "
-                        f"would reach {(size / 2 - height) * 1e3:g} mm through the deck", axis_at,
-                        f"give its centre's height (at least {size / 2 * 1e3:g} mm: half its size), a smaller "
-                        "size, or axis z")
+        raise PlanError(
+            f"a source of size {size * 1e3:g} mm with its axis {kw['axis']} at height "
+            f"{height * 1e3:g} mm would reach {(size / 2 - height) * 1e3:g} mm through the deck",
+            axis_at,
+            f"give its centre's height (at least {size / 2 * 1e3:g} mm: half its size), a smaller "
+            "size, or axis z",
+        )
     return FieldSource(name=name, harmonics=tuple(harmonics), location=stmt.loc, **kw), {}
 
 
 def device(stmt: Statement):
     name = need_label(stmt)
     if not stmt.phrases:
-        raise PlanError("device needs its plan file or 'simple'", stmt.loc, 'e.g. device amp: "amp.gplan", plugged '
-                                                                            'wall1')
+        raise PlanError(
+            "device needs its plan file or 'simple'",
+            stmt.loc,
+            'e.g. device amp: "amp.gplan", plugged wall1',
+        )
     first = stmt.phrases[0]
-    if len(first) != 1 or first[0].kind not in ("string",
-                                                "word") or (first[0].kind == "word" and first[0].value != "simple"):
-        raise PlanError("device: first give a quoted plan file or the word simple", first[0].loc,
-                        'e.g. device amp: "amp.gplan" or device mixer: simple')
+    if (
+        len(first) != 1
+        or first[0].kind not in ("string", "word")
+        or (first[0].kind == "word" and first[0].value != "simple")
+    ):
+        raise PlanError(
+            "device: first give a quoted plan file or the word simple",
+            first[0].loc,
+            'e.g. device amp: "amp.gplan" or device mixer: simple',
+        )
     kw: dict = {"source": first[0].value}
     refs: Refs = {}
     for ph in stmt.phrases[1:]:
@@ -271,11 +328,17 @@ def device(stmt: Statement):
             if not r.done:
                 kw["cord_area"] = r.quantity("area", "cord conductor area")
         elif word == "signal-ground":
-            kw["signal_ground"] = r.word("chassis, lift or floating", ("chassis", "lift", "floating"))
+            kw["signal_ground"] = r.word(
+                "chassis, lift or floating", ("chassis", "lift", "floating")
+            )
         elif word == "leakage":
-            kw["leakage"] = r.rating("leakage", "protective-conductor (leakage) current", allow_zero=True)
+            kw["leakage"] = r.rating(
+                "leakage", "protective-conductor (leakage) current", allow_zero=True
+            )
         elif word == "y-capacitor":
-            kw["y_capacitance"] = r.quantity("capacitance", "line-to-chassis capacitance", allow_zero=True)
+            kw["y_capacitance"] = r.quantity(
+                "capacitance", "line-to-chassis capacitance", allow_zero=True
+            )
         elif word == "class":
             kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
         elif word == "draws":
@@ -283,19 +346,42 @@ def device(stmt: Statement):
         elif word == "sockets":
             kw["sockets"] = r.word("balanced or unbalanced", ("balanced", "unbalanced"))
         else:
-            raise unknown(stmt, it, ("at", "mirror", "plugged", "cord", "signal-ground", "leakage", "y-capacitor",
-                                     "class", "draws", "sockets"))
+            raise unknown(
+                stmt,
+                it,
+                (
+                    "at",
+                    "mirror",
+                    "plugged",
+                    "cord",
+                    "signal-ground",
+                    "leakage",
+                    "y-capacitor",
+                    "class",
+                    "draws",
+                    "sockets",
+                ),
+            )
         r.finish()
     if "sockets" in kw and kw["source"] != "simple":
-        raise PlanError("'sockets' is an attribute of a simple device", stmt.loc,
-                        "a device with a plan of its own shows its sockets in that plan (an unbalanced "
-                        "socket's return is a 'sleeve' point)")
+        raise PlanError(
+            "'sockets' is an attribute of a simple device",
+            stmt.loc,
+            "a device with a plan of its own shows its sockets in that plan (an unbalanced "
+            "socket's return is a 'sleeve' point)",
+        )
     if kw.get("equipment_class") == "II" and kw["source"] != "simple":
-        raise PlanError("class II is an attribute of a simple device", stmt.loc,
-                        "a device with a plan of its own states 'class II' in that plan's mains statement")
+        raise PlanError(
+            "class II is an attribute of a simple device",
+            stmt.loc,
+            "a device with a plan of its own states 'class II' in that plan's mains statement",
+        )
     if "leakage" in kw and "y_capacitance" in kw:
-        raise PlanError("device gives both its leakage and its Y capacitance", stmt.loc, "keep one: the leakage "
-                        "current is the supply voltage times 2·π·f·C")
+        raise PlanError(
+            "device gives both its leakage and its Y capacitance",
+            stmt.loc,
+            "keep one: the leakage current is the supply voltage times 2·π·f·C",
+        )
     return Device(name=name, location=stmt.loc, **kw), refs
 
 
@@ -306,18 +392,32 @@ def library(stmt: Statement):
     item = stmt.phrases[0][0]
     folder = PurePath(item.value)
     if folder.is_absolute() or ".." in folder.parts:
-        raise PlanError(f"library {item.value!r} lies outside the plan's folder", item.loc,
-                        "a plan's library is a folder inside its own folder; name other folders with "
-                        "GROUNDCHECK_LIBRARY")
+        raise PlanError(
+            f"library {item.value!r} lies outside the plan's folder",
+            item.loc,
+            "a plan's library is a folder inside its own folder; name other folders with "
+            "GROUNDCHECK_LIBRARY",
+        )
     return item.value, {}
 
 
 BUILDERS = {
-    "plan": plan_header, "mains": mains, "supply": supply, "ambient": ambient, "listening": listening,
-    "metal": metal, "point": point,
+    "plan": plan_header,
+    "mains": mains,
+    "supply": supply,
+    "ambient": ambient,
+    "listening": listening,
+    "metal": metal,
+    "point": point,
     **{k: conductor for k in CONDUCTOR_KINDS},
-    "rectifier": rectifier, "current": current, "heater": heater, "stage": stage, "field": field_source,
-    "device": device, "library": library, "transformer": transformer,
+    "rectifier": rectifier,
+    "current": current,
+    "heater": heater,
+    "stage": stage,
+    "field": field_source,
+    "device": device,
+    "library": library,
+    "transformer": transformer,
 }
 
 #: every keyword of the language, including those the loader handles itself

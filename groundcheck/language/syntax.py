@@ -24,18 +24,38 @@ __all__ = ["parse_text", "BlockDef", "grammar_text", "HEAD", "head_parts"]
 #: the most syntax errors reported for one file before giving up
 MAX_SYNTAX_ERRORS = 20
 
-_FRIENDLY = {"WORD": "a keyword", "REST": "attributes", "NUMBER": "a number", "COORD": "a position x,y",
-             "STRING": "a quoted string",
-             "HEAD": "a keyword and a name", "_NL": "the end of the line", "COMMA": "a comma",
-             "LBRACE": "'{'", "RBRACE": "'}'", "BLOCK": "'block'", "$END": "the end of the file"}
+_FRIENDLY = {
+    "WORD": "a keyword",
+    "REST": "attributes",
+    "NUMBER": "a number",
+    "COORD": "a position x,y",
+    "STRING": "a quoted string",
+    "HEAD": "a keyword and a name",
+    "_NL": "the end of the line",
+    "COMMA": "a comma",
+    "LBRACE": "'{'",
+    "RBRACE": "'}'",
+    "BLOCK": "'block'",
+    "$END": "the end of the file",
+}
 
 
 def grammar_text() -> str:
-    """The text of ``plan.lark``, from the installed package or, in a source tree, from ``grammar/``."""
+    """The text of ``plan.lark``, from the installed package or, in a source tree, from
+    ``grammar/``."""
     try:
-        return resources.files("groundcheck.grammar").joinpath("plan.lark").read_text(encoding="utf-8")
-    except (ModuleNotFoundError, FileNotFoundError):  # pragma: no cover - source tree without install
-        return (Path(__file__).resolve().parents[2] / "grammar" / "plan.lark").read_text(encoding="utf-8")
+        return (
+            resources.files("groundcheck.grammar")
+            .joinpath("plan.lark")
+            .read_text(encoding="utf-8")
+        )
+    except (
+        ModuleNotFoundError,
+        FileNotFoundError,
+    ):  # pragma: no cover - source tree without install
+        return (Path(__file__).resolve().parents[2] / "grammar" / "plan.lark").read_text(
+            encoding="utf-8"
+        )
 
 
 class BlockDef:
@@ -56,17 +76,18 @@ HEAD = re.compile(_terminal("HEAD"))
 
 
 def head_parts(text: str) -> tuple[str, str, int, int]:
-    """The keyword, the name, the name's offset and the offset where the attributes start, in a text that opens
-    with a :data:`HEAD` (a HEAD or LINE token)."""
+    """The keyword, the name, the name's offset and the offset where the attributes start, in a
+    text that opens with a :data:`HEAD` (a HEAD or LINE token)."""
     end = HEAD.match(text).end()
     keyword = text.split(None, 1)[0]
-    at = len(keyword) + len(text[len(keyword):]) - len(text[len(keyword):].lstrip(" \t"))
-    name = text[at:end - 1].rstrip(" \t")
+    at = len(keyword) + len(text[len(keyword) :]) - len(text[len(keyword) :].lstrip(" \t"))
+    name = text[at : end - 1].rstrip(" \t")
     return keyword, name, at, len(text) - len(text[end:].lstrip(" \t"))
 
 
 class _Build(Transformer):
-    """Turns the parse into :class:`Statement` records as the LALR parser reduces (no tree is built).
+    """Turns the parse into :class:`Statement` records as the LALR parser reduces (no tree is
+    built).
 
     Rule names match the grammar's: ``statement``, ``attr``, ``block``, ``start``.
     """
@@ -79,15 +100,21 @@ class _Build(Transformer):
         loc = Location(self.file, head.line, head.column)
         if head.type == "WORD":
             st = Statement(str(head), loc)
-        else:                                   # HEAD or LINE: keyword, name and colon (and, for LINE, the rest)
+        else:  # HEAD or LINE: keyword, name and colon (and, for LINE, the rest)
             text = head.value
             keyword, name, at, rest = head_parts(text)
             st = Statement(keyword, loc, name, Location(self.file, head.line, head.column + at))
-            if not name.isascii():           # a look-alike letter would make a second name that looks the same
+            if (
+                not name.isascii()
+            ):  # a look-alike letter would make a second name that looks the same
                 bad = next(i for i, c in enumerate(name) if not c.isascii())
-                self.errors.append(PlanError(f"unexpected character {name[bad]!r} (U+{ord(name[bad]):04X}) in the "
-                                             f"name", Location(self.file, head.line, head.column + at + bad),
-                                             NOT_ASCII))
+                self.errors.append(
+                    PlanError(
+                        f"unexpected character {name[bad]!r} (U+{ord(name[bad]):04X}) in the name",
+                        Location(self.file, head.line, head.column + at + bad),
+                        NOT_ASCII,
+                    )
+                )
                 st.broken = True
                 return st
             if head.type == "LINE":
@@ -98,8 +125,8 @@ class _Build(Transformer):
         return st
 
     def _phrases(self, st: Statement, text: str, line: int, column: int) -> Statement:
-        """The statement's phrases; an error inside them (a bad unit, say) marks it broken, so that its
-        builder does not run on what is left and report errors that follow from the first."""
+        """The statement's phrases; an error inside them (a bad unit, say) marks it broken, so that
+        its builder does not run on what is left and report errors that follow from the first."""
         before = len(self.errors)
         st.phrases = split_phrases(text, line, column, self.file, self.errors)
         st.broken = len(self.errors) > before
@@ -108,9 +135,16 @@ class _Build(Transformer):
     def block(self, children):
         name_tok = children[0]
         if not str(name_tok).isascii():
-            self.errors.append(PlanError(f"block name {str(name_tok)!r} is not ASCII", Location(
-                self.file, name_tok.line, name_tok.column), NOT_ASCII))
-        return BlockDef(str(name_tok), Location(self.file, name_tok.line, name_tok.column), list(children[1:]))
+            self.errors.append(
+                PlanError(
+                    f"block name {str(name_tok)!r} is not ASCII",
+                    Location(self.file, name_tok.line, name_tok.column),
+                    NOT_ASCII,
+                )
+            )
+        return BlockDef(
+            str(name_tok), Location(self.file, name_tok.line, name_tok.column), list(children[1:])
+        )
 
     def start(self, children):
         return children
@@ -121,21 +155,24 @@ _BUILD = _Build()
 
 @lru_cache(maxsize=1)
 def _parser() -> Lark:
-    """The plan parser; its LALR tables read from the user's cache folder when an earlier run left them
-    there (:mod:`groundcheck.language.grammar_cache`), else compiled (and saved when the folder allows)."""
+    """The plan parser; its LALR tables read from the user's cache folder when an earlier run left
+    them there (:mod:`groundcheck.language.grammar_cache`), else compiled (and saved when the
+    folder allows)."""
     text = grammar_text()
     options = dict(parser="lalr", transformer=_BUILD, maybe_placeholders=False, **_accelerated())
     cache = cached_grammar_file(text, "lark-cython" if options.get("_plugins") else "")
     if cache is not None:
         try:
             return Lark(text, cache=cache, **options)
-        except Exception:  # noqa: BLE001 - the cache only saves time: any trouble with it means none
+        # the cache only saves time: any trouble with it means none
+        except Exception:
             pass
     return Lark(text, **options)
 
 
 def _accelerated() -> dict:
-    """lark-cython's compiled lexer and LALR driver when installed (the same grammar and results, about
+    """lark-cython's compiled lexer and LALR driver when installed (the same grammar and results,
+    about
     1.5 times faster on large plans); plain lark otherwise."""
     try:
         import lark_cython
@@ -150,19 +187,36 @@ def _syntax_error(e: UnexpectedInput, file: str, lines: list[str]) -> PlanError:
     if isinstance(e, UnexpectedEOF) or (isinstance(e, UnexpectedToken) and e.token.type == "$END"):
         line = max(1, len(lines))
         col = len(lines[line - 1]) + 1 if lines else 1
-        return PlanError("unexpected end of file", Location(file, line, col), "a block opened with '{' needs its "
-                                                                              "closing '}'")
+        return PlanError(
+            "unexpected end of file",
+            Location(file, line, col),
+            "a block opened with '{' needs its closing '}'",
+        )
     if isinstance(e, UnexpectedCharacters):
-        ch = lines[line - 1][col - 1] if line - 1 < len(lines) and col - 1 < len(lines[line - 1]) else "?"
-        hint = "names start with a letter; positions are x,y with no space; strings use double quotes"
+        ch = (
+            lines[line - 1][col - 1]
+            if line - 1 < len(lines) and col - 1 < len(lines[line - 1])
+            else "?"
+        )
+        hint = (
+            "names start with a letter; positions are x,y with no space; strings use double quotes"
+        )
         if ch == ":":
-            hint = "only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
+            hint = (
+                "only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) "
+                "take none"
+            )
         return PlanError(f"unexpected character {ch!r}", Location(file, line, col), hint)
     assert isinstance(e, UnexpectedToken)
     tok = e.token
-    expected = sorted({_FRIENDLY.get(t, t) for t in e.expected if not t.startswith("__") and t != "LINE"})
-    what = {"HEAD": repr(str(tok).rstrip(": \t")), "LINE": repr(str(tok).split(":", 1)[0].rstrip()),
-            "_NL": "end of line"}.get(tok.type, repr(str(tok)))
+    expected = sorted(
+        {_FRIENDLY.get(t, t) for t in e.expected if not t.startswith("__") and t != "LINE"}
+    )
+    what = {
+        "HEAD": repr(str(tok).rstrip(": \t")),
+        "LINE": repr(str(tok).split(":", 1)[0].rstrip()),
+        "_NL": "end of line",
+    }.get(tok.type, repr(str(tok)))
     hint = "expected " + " or ".join(expected[:4]) if expected else ""
     if tok.type in ("HEAD", "LINE"):
         hint = "a statement starts with its keyword, e.g. 'wire NAME: A to B, ...'"
@@ -172,7 +226,8 @@ def _syntax_error(e: UnexpectedInput, file: str, lines: list[str]) -> PlanError:
 
 
 def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dict[str, BlockDef]]:
-    """Parse a plan's text into top-level statements (and ``("block", BlockDef)`` entries) in order.
+    """Parse a plan's text into top-level statements (and ``("block", BlockDef)`` entries) in
+    order.
 
     Syntax errors are appended to ``errors``; the offending line is blanked
     and parsing starts again, so that several errors of one file are reported.
@@ -190,7 +245,9 @@ def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dic
             err = _syntax_error(e, file, lines)
             errors.append(err)
             ln = err.location.line - 1
-            if isinstance(e, UnexpectedEOF) or (isinstance(e, UnexpectedToken) and e.token.type == "$END"):
+            if isinstance(e, UnexpectedEOF) or (
+                isinstance(e, UnexpectedToken) and e.token.type == "$END"
+            ):
                 return [], {}
             if 0 <= ln < len(work) and work[ln].strip():
                 work[ln] = ""
@@ -209,8 +266,13 @@ def parse_text(text: str, file: str, errors: list[PlanError]) -> tuple[list, dic
             for st in child.body:
                 _mark(st, bad_lines)
             if child.name in blocks:
-                errors.append(PlanError(f"block {child.name!r} is defined twice", child.loc,
-                                        f"first defined at {blocks[child.name].loc}"))
+                errors.append(
+                    PlanError(
+                        f"block {child.name!r} is defined twice",
+                        child.loc,
+                        f"first defined at {blocks[child.name].loc}",
+                    )
+                )
             blocks[child.name] = child
             out.append(("block", child))
         else:

@@ -44,8 +44,11 @@ def transformer(stmt: Statement):
             kw["rating"] = r.quantity("apparent power", "rating")
         elif word in ("earthed", "isolating"):
             if kw.setdefault("isolating", word == "isolating") != (word == "isolating"):
-                raise PlanError("a transformer's secondary is earthed or isolating, not both",
-                                it.loc, "keep one")
+                raise PlanError(
+                    "a transformer's secondary is earthed or isolating, not both",
+                    it.loc,
+                    "keep one",
+                )
         elif word == "cord":
             kw["cord_length"] = r.quantity("length", "cord length")
             if not r.done:
@@ -55,38 +58,61 @@ def transformer(stmt: Statement):
         r.finish()
     for need in ("plugged", "primary", "secondary"):
         if need not in kw:
-            raise PlanError(f"transformer {name} needs '{need}'", stmt.loc,
-                            f"e.g. transformer {name}: plugged wall, primary 230 V, "
-                            "secondary 120 V")
+            raise PlanError(
+                f"transformer {name} needs '{need}'",
+                stmt.loc,
+                f"e.g. transformer {name}: plugged wall, primary 230 V, secondary 120 V",
+            )
     return Transformer(name=name, location=stmt.loc, **kw), refs
 
 
-def place_transformers(transformers: list, points: dict, conductors: list, supply,
-                       errors: list) -> None:
+def place_transformers(
+    transformers: list, points: dict, conductors: list, supply, errors: list
+) -> None:
     """Each transformer (``(record, refs)``) with its secondary outlet as a point of kind
     ``outlet`` under its name; an earthed secondary's outlet joined to the outlet its primary is
     plugged into by the cord's protective conductor (``NAME.cord``), as a device's earth pin is.
     Needs the installation's ``supply``; a stated secondary frequency must be the supply's."""
     for t, refs, *_ in transformers:
         if t.plugged == t.name:
-            errors.append(PlanError(f"transformer {t.name} is plugged into its own secondary",
-                                    refs.get("plugged", t.location),
-                                    "plug its primary into an outlet or strip of the supply"))
+            errors.append(
+                PlanError(
+                    f"transformer {t.name} is plugged into its own secondary",
+                    refs.get("plugged", t.location),
+                    "plug its primary into an outlet or strip of the supply",
+                )
+            )
             continue
         if supply is None:
-            errors.append(PlanError(f"transformer {t.name} needs the installation's supply",
-                                    t.location, "state it with 'supply 230 V 50 Hz, system TN-S'"))
+            errors.append(
+                PlanError(
+                    f"transformer {t.name} needs the installation's supply",
+                    t.location,
+                    "state it with 'supply 230 V 50 Hz, system TN-S'",
+                )
+            )
             continue
         if t.frequency is not None and abs(t.frequency - supply.frequency) > 1e-9:
-            errors.append(PlanError(
-                f"transformer {t.name}: a secondary at {t.frequency:g} Hz from a "
-                f"{supply.frequency:g} Hz supply", t.location,
-                "a transformer changes the voltage, not the frequency: its secondary gives "
-                f"{supply.frequency:g} Hz (a device for another frequency needs a frequency "
-                "converter)"))
+            errors.append(
+                PlanError(
+                    f"transformer {t.name}: a secondary at {t.frequency:g} Hz from a "
+                    f"{supply.frequency:g} Hz supply",
+                    t.location,
+                    "a transformer changes the voltage, not the frequency: its secondary gives "
+                    f"{supply.frequency:g} Hz (a device for another frequency needs a frequency "
+                    "converter)",
+                )
+            )
         points[t.name] = Point(t.name, "outlet", None, None, None, t.location)
         if not t.isolating:
-            cord = Conductor(f"{t.name}.cord", CORD_KIND, t.name, t.plugged, role=PROTECTIVE,
-                             length=t.cord_length or DEFAULT_CORD[0],
-                             area=t.cord_area or DEFAULT_CORD[1], location=t.location)
+            cord = Conductor(
+                f"{t.name}.cord",
+                CORD_KIND,
+                t.name,
+                t.plugged,
+                role=PROTECTIVE,
+                length=t.cord_length or DEFAULT_CORD[0],
+                area=t.cord_area or DEFAULT_CORD[1],
+                location=t.location,
+            )
             conductors.append((cord, {"b": refs.get("plugged", t.location)}))

@@ -28,19 +28,16 @@ __all__ = ["bench_record", "mechanism_words", "BENCH_CAUTIONS", "pick_channel"]
 BENCH_CAUTIONS = (
     CAUTION,
     "Measuring mains equipment is dangerous: the chassis, the output and the recording interface "
-    "can be at "
-    "lethal voltages if anything is faulty. Keep the protective earth connected at all times.",
+    "can be at lethal voltages if anything is faulty. Keep the protective earth connected at all "
+    "times.",
     "Record the output through an attenuator or a measurement interface rated for it, with the "
-    "amplifier's "
-    "inputs shorted (a shorting plug) and its volume at the setting under test; never connect an "
-    "interface to "
-    "the speaker outputs of a valve amplifier without its rated load on them (an unloaded output "
-    "transformer can "
-    "arc over), and never bridge an output's negative terminal to the interface's ground.",
+    "amplifier's inputs shorted (a shorting plug) and its volume at the setting under test; never "
+    "connect an interface to the speaker outputs of a valve amplifier without its rated load on "
+    "them (an unloaded output transformer can arc over), and never bridge an output's negative "
+    "terminal to the interface's ground.",
     "These comparisons and the bonding verdicts are aids, not a safety test: follow your local "
-    "electrical code "
-    "and licensed practice, and have the equipment's protective earth tested by a qualified "
-    "person.",
+    "electrical code and licensed practice, and have the equipment's protective earth tested by a "
+    "qualified person.",
 )
 
 #: the fitted scale beyond which a mechanism is named off the plan (6 dB), and the one below
@@ -67,15 +64,16 @@ def mechanism_words(group: str, plan) -> str:
     if group == "rectifier charging":
         return (
             "charging current in a shared return (twice the mains and its harmonics, a buzzy "
-            "upper "
-            "series)"
+            "upper series)"
         )
     if kind == "field":
         src = next((f for f in plan.fields if f.name == name), None)
         if src is None or name.endswith(".wiring"):
             return "the heater wiring's field in a ground loop (the mains frequency)"
-        return (f"magnetic pickup of the {src.kind} {name}'s field in a ground loop (the mains "
-                "and its odd harmonics)")
+        return (
+            f"magnetic pickup of the {src.kind} {name}'s field in a ground loop (the mains and "
+            "its odd harmonics)"
+        )
     if kind == "heater":
         return f"heater current of {name} in a shared return (the mains frequency)"
     if kind == "induced":
@@ -160,7 +158,7 @@ def _member(result, label: str) -> str:
 
 
 def _dbs(x: float) -> str:
-    return f"{round(db_of_ratio(x), 1) + 0.0:+.1f} dB"     # + 0.0: never "-0.0"
+    return f"{round(db_of_ratio(x), 1) + 0.0:+.1f} dB"  # + 0.0: never "-0.0"
 
 
 def _summary(rows: list[HarmonicRow], suspects, calibrated: bool) -> list[str]:
@@ -175,8 +173,7 @@ def _summary(rows: list[HarmonicRow], suspects, calibrated: bool) -> list[str]:
             if s.explained > 0:
                 out.append(
                     f"the shape matches {s.mechanism}: {who} (not calibrated: how far from the "
-                    "plan is "
-                    "not known)"
+                    "plan is not known)"
                 )
             continue
         if s.scale >= OFF:
@@ -193,8 +190,8 @@ def _summary(rows: list[HarmonicRow], suspects, calibrated: bool) -> list[str]:
     if odd:
         said = ", ".join(f"{r.frequency_hz:.0f} Hz" for r in odd[:6])
         out.append(
-            f"nothing in the plan explains the line{'s' if len(odd) > 1 else ''} at {said}: "
-            "a mechanism the plan does not describe"
+            f"nothing in the plan explains the line{'s' if len(odd) > 1 else ''} at {said}: a "
+            "mechanism the plan does not describe"
         )
     return out
 
@@ -323,15 +320,13 @@ def _recording_notes(result, meas: Measured) -> list[str]:
     if meas.clipping is not None:
         notes.append(
             f"the recording is clipped: {meas.clipping.samples:,} samples at full scale, the "
-            "first at "
-            f"{meas.clipping.first_s:.2f} s; its levels are not reliable (lower the interface's "
-            "gain)"
+            f"first at {meas.clipping.first_s:.2f} s; its levels are not reliable (lower the "
+            "interface's gain)"
         )
     if not meas.calibrated:
         notes.append(
             "not calibrated (give --full-scale or --calibration): levels are relative to digital "
-            "full "
-            "scale, and neither the plan's levels nor audibility can be compared"
+            "full scale, and neither the plan's levels nor audibility can be compared"
         )
     if not meas.detected:
         notes.append(
@@ -341,7 +336,6 @@ def _recording_notes(result, meas: Measured) -> list[str]:
     if abs(meas.nominal_hz - result.plan.frequency) > 1:
         notes.append(
             f"the recording's mains is {meas.nominal_hz:g} Hz but the plan's "
-            f"{result.plan.frequency:g} "
-            "Hz: harmonics are compared by number"
+            f"{result.plan.frequency:g} Hz: harmonics are compared by number"
         )
     return notes

@@ -50,8 +50,7 @@ SEGMENT_S = 1.0
 #: the method in words (every output says it)
 METHOD = (
     "Welch's averaged periodogram, 1 s segments, flat-top window (amplitude flat to 0.01 dB "
-    "within "
-    "half a bin of the line), levels rms"
+    "within half a bin of the line), levels rms"
 )
 #: the nominal mains frequencies searched, Hz, and the tolerance around them
 NOMINALS = (50.0, 60.0)
@@ -90,7 +89,7 @@ class _Spectra:
         for x in blocks(fmt, channel, n):
             self.peak = max(self.peak, float(np.abs(x).max()))
             self.clipping = clipping_of(x, fmt, start, self.clipping)
-            energy += float((x * x).sum())      # not np.dot: BLAS threads cost 30 ms a call here
+            energy += float((x * x).sum())  # not np.dot: BLAS threads cost 30 ms a call here
             start += x.size
             if x.size == n:
                 for window, total in ((self.flat, sum_flat), (hw, sum_hann)):
@@ -181,13 +180,16 @@ def gamma_quantile(m: int, p: float) -> float:
         logarithms, so an hour's 3,600 segments do not overflow).
     """
     k = np.arange(m)
-    log_fact = np.concatenate([[0.0], np.cumsum(np.log(np.arange(1, m)))]) if m > 1 else np.zeros(1)
+    log_fact = (
+        np.concatenate([[0.0], np.cumsum(np.log(np.arange(1, m)))]) if m > 1 else np.zeros(1)
+    )
     target = math.log(p)
 
     def log_q(x: float) -> float:
         terms = k * math.log(x) - x - log_fact
         top = float(terms.max())
         return top + math.log(float(np.exp(terms - top).sum()))
+
     lo, hi = 1e-9, m + 50.0 + 10 * math.sqrt(m)
     for _ in range(100):
         mid = 0.5 * (lo + hi)
@@ -309,9 +311,27 @@ def measure(
     density = math.sqrt(np.median([ln.noise**2 for ln in lines]) / sp.enbw_hz) if lines else 0.0
     found = found and any(ln.above_noise for ln in lines)
     how = calibration or "none: levels relative to digital full scale"
-    return Measured(path, fmt.rate, fmt.channels, channel, fmt.bits, fmt.floating, fmt.seconds,
-                    sp.segments, 1 / SEGMENT_S, f0, nominal, found, tuple(lines), density,
-                    volts_per_unit, how, sp.clipping, sp.peak, METHOD)
+    return Measured(
+        path,
+        fmt.rate,
+        fmt.channels,
+        channel,
+        fmt.bits,
+        fmt.floating,
+        fmt.seconds,
+        sp.segments,
+        1 / SEGMENT_S,
+        f0,
+        nominal,
+        found,
+        tuple(lines),
+        density,
+        volts_per_unit,
+        how,
+        sp.clipping,
+        sp.peak,
+        METHOD,
+    )
 
 
 def tone_level(path: str, channel: int = 0) -> float:

@@ -11,9 +11,19 @@ from .kinds import in_device_ground, is_hookup, kind
 from ..core.errors import Location
 from .records import PE_POINT, Conductor
 
-__all__ = ["device_of", "conductors_by_device", "device_chassis", "shield_ends", "Transformer",
-           "transformer_feeds", "supply_at", "rated_voltage", "VOLTAGE_TOLERANCE", "suits",
-           "separated_devices"]
+__all__ = [
+    "device_of",
+    "conductors_by_device",
+    "device_chassis",
+    "shield_ends",
+    "Transformer",
+    "transformer_feeds",
+    "supply_at",
+    "rated_voltage",
+    "VOLTAGE_TOLERANCE",
+    "suits",
+    "separated_devices",
+]
 
 #: a device's own mains voltage may differ from the supply it is plugged into by this fraction
 #: (IEC 60038's supply tolerance is ±10 %, from memory); more is a device for another supply
@@ -30,13 +40,13 @@ class Transformer:
 
     name: str
     plugged: str
-    primary: float                       # rated primary voltage, V rms
-    secondary: float                     # rated secondary voltage, V rms
-    rating: float | None = None          # rated apparent power, VA
+    primary: float  # rated primary voltage, V rms
+    secondary: float  # rated secondary voltage, V rms
+    rating: float | None = None  # rated apparent power, VA
     isolating: bool = False
-    cord_length: float | None = None     # its primary cord, m (default: the common mains cord)
-    cord_area: float | None = None       # m²
-    frequency: float | None = None       # a stated secondary frequency, Hz (must be the supply's)
+    cord_length: float | None = None  # its primary cord, m (default: the common mains cord)
+    cord_area: float | None = None  # m²
+    frequency: float | None = None  # a stated secondary frequency, Hz (must be the supply's)
     location: Location = field(default=Location("<plan>"), compare=False)
 
 
@@ -52,8 +62,12 @@ def transformer_feeds(transformers, conductors, devices) -> dict:
     cords = {f"{t.name}.cord" for t in transformers}
     adj: dict = {}
     for c in conductors:
-        if ((is_hookup(c) or kind(c.kind).carries_load) and c.name not in cords and device_of(c.a, devices) is None
-                and device_of(c.b, devices) is None):
+        if (
+            (is_hookup(c) or kind(c.kind).carries_load)
+            and c.name not in cords
+            and device_of(c.a, devices) is None
+            and device_of(c.b, devices) is None
+        ):
             adj.setdefault(c.a, []).append(c.b)
             adj.setdefault(c.b, []).append(c.a)
     out: dict = {}
@@ -120,10 +134,12 @@ def conductors_by_device(conductors, devices: dict) -> dict[str, list[Conductor]
     return own
 
 
-def device_chassis(dev: str, conductors: list[Conductor], metals: dict, near: str | None = None) -> str | None:
-    """A device's chassis: the metal part of the device nearest to ``near`` (fewest conductors, over the device's
-    own conductors), else the one its inlet's protective terminal reaches first (a simple device's
-    ``NAME.chassis``)."""
+def device_chassis(
+    dev: str, conductors: list[Conductor], metals: dict, near: str | None = None
+) -> str | None:
+    """A device's chassis: the metal part of the device nearest to ``near`` (fewest conductors,
+    over the device's own conductors), else the one its inlet's protective terminal reaches first
+    (a simple device's ``NAME.chassis``)."""
     adj: dict = {}
     for c in conductors:
         if c.name.startswith(dev + ".") and in_device_ground(c) and c.connects:
@@ -143,9 +159,9 @@ def device_chassis(dev: str, conductors: list[Conductor], metals: dict, near: st
 
 
 def shield_ends(c: Conductor) -> tuple[str, str]:
-    """Where each end of an interconnect's shield lands: as stated, else on the chassis at the entry for a
-    balanced link (AES48-2005, from memory: a shield terminates on the enclosure where it enters) and on the
-    signal ground for an unbalanced one (its shield is the signal return)."""
+    """Where each end of an interconnect's shield lands: as stated, else on the chassis at the
+    entry for a balanced link (AES48-2005, from memory: a shield terminates on the enclosure where
+    it enters) and on the signal ground for an unbalanced one (its shield is the signal return)."""
     if c.shield_ends is not None:
         return c.shield_ends
     return ("chassis", "chassis") if c.balanced else ("signal", "signal")

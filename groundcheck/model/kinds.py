@@ -1,4 +1,5 @@
-"""The table of conductor kinds: one row per kind, read by every module that asks what a kind can do.
+"""The table of conductor kinds: one row per kind, read by every module that asks what a kind can
+do.
 
 Adding a kind is one row here (plus, when it is new physics, one impedance function in
 :mod:`groundcheck.physics.circuit`).  No other module lists kinds by name for these questions.
@@ -60,12 +61,44 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["Kind", "KINDS", "CONDUCTOR_KINDS", "PROTECTIVE_ROLES", "kind", "can_carry_protective", "section_checked",
-           "is_fastening", "bonds_metal", "cross_section", "default_role",
-           "ROLES", "CURRENT_ROLES", "PROTECTIVE", "RETURN", "SIGNAL", "SHIELD", "BOND", "HEATER",
-           "LOAD", "LEAKAGE", "DEVICE_BOND_KIND", "CORD_KIND", "LIFT_KIND", "BOLT_CONTACT",
-           "TRACE_COPPER", "is_fastening_kind", "shield_like", "joins_devices", "carries_load",
-           "is_hookup", "is_lift", "can_open", "in_device_ground", "kinds_with", "owners"]
+__all__ = [
+    "Kind",
+    "KINDS",
+    "CONDUCTOR_KINDS",
+    "PROTECTIVE_ROLES",
+    "kind",
+    "can_carry_protective",
+    "section_checked",
+    "is_fastening",
+    "bonds_metal",
+    "cross_section",
+    "default_role",
+    "ROLES",
+    "CURRENT_ROLES",
+    "PROTECTIVE",
+    "RETURN",
+    "SIGNAL",
+    "SHIELD",
+    "BOND",
+    "HEATER",
+    "LOAD",
+    "LEAKAGE",
+    "DEVICE_BOND_KIND",
+    "CORD_KIND",
+    "LIFT_KIND",
+    "BOLT_CONTACT",
+    "TRACE_COPPER",
+    "is_fastening_kind",
+    "shield_like",
+    "joins_devices",
+    "carries_load",
+    "is_hookup",
+    "is_lift",
+    "can_open",
+    "in_device_ground",
+    "kinds_with",
+    "owners",
+]
 
 
 @dataclass(frozen=True)
@@ -104,30 +137,84 @@ BOLT_CONTACT = 0.5e-3
 #: a trace's copper when the plan does not say: 35 µm, 1 oz/ft² (common practice)
 TRACE_COPPER = 35e-6
 
-KINDS: dict[str, Kind] = {k.name: k for k in (
-    Kind("wire", SIGNAL, (("length",), ("area",)), "round", True, True, hookup=True),
-    Kind("trace", SIGNAL, (("length",), ("width", "area")), "strip", True, True,
-         thickness=TRACE_COPPER),
-    Kind("busbar", RETURN, (("length",), ("width", "area")), "strip", True, True),
-    Kind("bolt", BOND, (), "contact", True, False, fastening=True, bonds_metal=True,
-         contact=BOLT_CONTACT),
-    Kind("strap", BOND, (("length",), ("width", "area")), "strip", True, True, bonds_metal=True),
-    Kind("cable", PROTECTIVE, (("length",), ("area",)), "round", True, True, carries_load=True,
-         attributes=frozenset({"load", "cores"})),
-    Kind("core", RETURN, (("length",), ("area",)), "round", True, True,
-         attributes=frozenset({"in"})),
-    Kind("shield", SHIELD, (("length",), ("area",)), "round", False, False, shield_like=True),
-    Kind("interconnect", SHIELD, (("length",), ("area",)), "round", False, False, shield_like=True,
-         joins_devices=True, attributes=frozenset({"shield-to"})),
-    Kind("lift", SIGNAL, (("resistance",),), "lift", False, False, lifts=True,
-         attributes=frozenset({"capacitance"})),
-    Kind("switch", SIGNAL, (), "switch", False, False, switched=True),
-)}
+KINDS: dict[str, Kind] = {
+    k.name: k
+    for k in (
+        Kind("wire", SIGNAL, (("length",), ("area",)), "round", True, True, hookup=True),
+        Kind(
+            "trace",
+            SIGNAL,
+            (("length",), ("width", "area")),
+            "strip",
+            True,
+            True,
+            thickness=TRACE_COPPER,
+        ),
+        Kind("busbar", RETURN, (("length",), ("width", "area")), "strip", True, True),
+        Kind(
+            "bolt",
+            BOND,
+            (),
+            "contact",
+            True,
+            False,
+            fastening=True,
+            bonds_metal=True,
+            contact=BOLT_CONTACT,
+        ),
+        Kind(
+            "strap", BOND, (("length",), ("width", "area")), "strip", True, True, bonds_metal=True
+        ),
+        Kind(
+            "cable",
+            PROTECTIVE,
+            (("length",), ("area",)),
+            "round",
+            True,
+            True,
+            carries_load=True,
+            attributes=frozenset({"load", "cores"}),
+        ),
+        Kind(
+            "core",
+            RETURN,
+            (("length",), ("area",)),
+            "round",
+            True,
+            True,
+            attributes=frozenset({"in"}),
+        ),
+        Kind("shield", SHIELD, (("length",), ("area",)), "round", False, False, shield_like=True),
+        Kind(
+            "interconnect",
+            SHIELD,
+            (("length",), ("area",)),
+            "round",
+            False,
+            False,
+            shield_like=True,
+            joins_devices=True,
+            attributes=frozenset({"shield-to"}),
+        ),
+        Kind(
+            "lift",
+            SIGNAL,
+            (("resistance",),),
+            "lift",
+            False,
+            False,
+            lifts=True,
+            attributes=frozenset({"capacitance"}),
+        ),
+        Kind("switch", SIGNAL, (), "switch", False, False, switched=True),
+    )
+}
 
 #: every conductor keyword, in the order the language reference lists them
 CONDUCTOR_KINDS = tuple(KINDS)
 
-#: roles that mark a conductor as meant to carry protective current (a bond: a fastening or bonding strap)
+#: roles that mark a conductor as meant to carry protective current (a bond: a fastening or bonding
+#: strap)
 PROTECTIVE_ROLES = (PROTECTIVE, BOND)
 
 #: the kinds the reader itself writes: a simple device's bonds, a device's mains cord, its lift
@@ -159,12 +246,14 @@ def is_fastening(c, metals) -> bool:
 
 
 def bonds_metal(c) -> bool:
-    """Whether ``c`` puts the point it joins on the metal's side (fastening or strap), when it connects."""
+    """Whether ``c`` puts the point it joins on the metal's side (fastening or strap), when it
+    connects."""
     return KINDS[c.kind].bonds_metal
 
 
 def cross_section(c) -> float | None:
-    """The conducting cross-section of ``c`` in m²: its area, or width × thickness for a flat conductor."""
+    """The conducting cross-section of ``c`` in m²: its area, or width × thickness for a flat
+    conductor."""
     if c.area is not None:
         return c.area
     if c.width is not None and c.thickness is not None:

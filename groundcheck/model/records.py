@@ -13,9 +13,29 @@ from dataclasses import MISSING, dataclass, field, fields
 from ..core.errors import Location
 from .kinds import CONDUCTOR_KINDS, RETURN, ROLES, SIGNAL, can_open, shield_like
 
-__all__ = ["Mains", "Listening", "Metal", "Point", "Conductor", "Rectifier", "Current", "Heater", "Stage",
-           "FieldSource", "Device", "Plan", "Supply", "CABLE_CORES", "PE_POINT", "ROLES", "CONDUCTOR_KINDS",
-           "DEFAULT_CORD", "SYSTEMS", "make", "from_values"]
+__all__ = [
+    "Mains",
+    "Listening",
+    "Metal",
+    "Point",
+    "Conductor",
+    "Rectifier",
+    "Current",
+    "Heater",
+    "Stage",
+    "FieldSource",
+    "Device",
+    "Plan",
+    "Supply",
+    "CABLE_CORES",
+    "PE_POINT",
+    "ROLES",
+    "CONDUCTOR_KINDS",
+    "DEFAULT_CORD",
+    "SYSTEMS",
+    "make",
+    "from_values",
+]
 
 #: the implicit point of the mains inlet's protective-earth terminal
 PE_POINT = "mains.pe"
@@ -25,52 +45,63 @@ XY = tuple[float, float]
 #: earthing systems, IEC 60364-1 terms
 SYSTEMS = ("TN-S", "TN-C-S", "TT")
 
-#: the mains cord when neither plan nor device says: 2 m of 0.75 mm² (common practice up to 6 A, IEC 60335-1)
+#: the mains cord when neither plan nor device says: 2 m of 0.75 mm² (common practice up to 6 A,
+#: IEC 60335-1)
 DEFAULT_CORD = (2.0, 0.75e-6)
-CABLE_OPERATING_TEMPERATURE = 70.0  # °C, PVC's: the fault loop is verified at it (IEC 60364-5-52 T. 52.1)
+CABLE_OPERATING_TEMPERATURE = (
+    70.0  # °C, PVC's: the fault loop is verified at it (IEC 60364-5-52 T. 52.1)
+)
 
 
 @dataclass(frozen=True)
 class Mains:
-    """The mains supply: nominal voltage U0 (V rms), frequency (Hz), earthing system, protection, and
-    the equipment's protection class.  Optional figures left None take the documented defaults of
-    :mod:`groundcheck.physics.protection`."""
+    """The mains supply: nominal voltage U0 (V rms), frequency (Hz), earthing system, protection,
+    and the equipment's protection class.  Optional figures left None take the documented defaults
+    of :mod:`groundcheck.physics.protection`."""
 
     voltage: float
     frequency: float
-    fuse: float | None = None            # rating, A
-    fuse_kind: str = "slow"              # slow | fast | breaker-B | breaker-C | breaker-D
-    fuse_i2t: float | None = None        # let-through I²t, A²s, when the plan states it
-    clear_time: float | None = None      # clearing time, s, when the plan states it
-    line_area: float | None = None       # line-conductor cross-section, m²
+    fuse: float | None = None  # rating, A
+    fuse_kind: str = "slow"  # slow | fast | breaker-B | breaker-C | breaker-D
+    fuse_i2t: float | None = None  # let-through I²t, A²s, when the plan states it
+    clear_time: float | None = None  # clearing time, s, when the plan states it
+    line_area: float | None = None  # line-conductor cross-section, m²
     loop_impedance: float | None = None  # external earth-fault loop impedance Ze at the origin, Ω
     cord_length: float = DEFAULT_CORD[0]  # mains cord, m
-    cord_area: float | None = None       # mains cord conductor area, m² (default: line_area, else DEFAULT_CORD)
+    cord_area: float | None = (
+        None  # mains cord conductor area, m² (default: line_area, else DEFAULT_CORD)
+    )
     inlet: XY | None = None
-    system: str = "TN-S"                 # TN-S | TN-C-S | TT (IEC 60364-1)
-    rcd: float | None = None             # rated residual operating current IΔn, A
+    system: str = "TN-S"  # TN-S | TN-C-S | TT (IEC 60364-1)
+    rcd: float | None = None  # rated residual operating current IΔn, A
     circuit_length: float | None = None  # final circuit from the origin to the socket, m
-    circuit_area: float | None = None    # its line conductor, m²
-    cpc_area: float | None = None        # its circuit protective conductor, m² (default: circuit_area)
-    electrode: float | None = None       # TT: the installation's earth-electrode resistance R_A, Ω
-    equipment_class: str = "I"           # I | II
-    breaking: str | None = None          # low | enhanced | high (IEC 60127 categories)
+    circuit_area: float | None = None  # its line conductor, m²
+    cpc_area: float | None = None  # its circuit protective conductor, m² (default: circuit_area)
+    electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
+    equipment_class: str = "I"  # I | II
+    breaking: str | None = None  # low | enhanced | high (IEC 60127 categories)
     breaking_current: float | None = None  # stated breaking capacity, A
-    fuse_resistance: float | None = None   # stated cold resistance of the fuse, Ω
-    cable_temperature: float | None = None  # °C, the installation cables' operating temperature (default 70 °C)
-    short_circuit: float | None = None     # A, prospective line-to-neutral short-circuit current at the origin
+    fuse_resistance: float | None = None  # stated cold resistance of the fuse, Ω
+    cable_temperature: float | None = (
+        None  # °C, the installation cables' operating temperature (default 70 °C)
+    )
+    short_circuit: float | None = (
+        None  # A, prospective line-to-neutral short-circuit current at the origin
+    )
     location: Location = field(default=Location("<plan>"), compare=False)
 
     @property
     def cord_section(self) -> float:
-        """The cord's conductor area, m²: stated, else the line conductor's, else the default cord's."""
+        """The cord's conductor area, m²: stated, else the line conductor's, else the default
+        cord's."""
         return self.cord_area or self.line_area or DEFAULT_CORD[1]
 
 
 @dataclass(frozen=True)
 class Supply:
-    """An installation's supply (the building's mains): nominal voltage U0 (V rms), frequency (Hz) and earthing
-    system.  Devices placed in the installation take it unless their own plan states a ``mains``."""
+    """An installation's supply (the building's mains): nominal voltage U0 (V rms), frequency (Hz)
+    and earthing system.  Devices placed in the installation take it unless their own plan states a
+    ``mains``."""
 
     voltage: float
     frequency: float
@@ -78,30 +109,34 @@ class Supply:
     location: Location = field(default=Location("<plan>"), compare=False)
 
 
-#: how a building cable's three cores lie (see :mod:`groundcheck.physics.induction`): flat with the protective
-#: core at the side or in the middle, or round (three cores touching)
+#: how a building cable's three cores lie (see :mod:`groundcheck.physics.induction`): flat with the
+#: protective core at the side or in the middle, or round (three cores touching)
 CABLE_CORES = ("L-N-PE", "L-PE-N", "round")
 
 
 @dataclass(frozen=True)
 class Listening:
-    """Where the hum ends up: rated output level (V rms at the plan's output) and the chain after it."""
+    """Where the hum ends up: rated output level (V rms at the plan's output) and the chain after
+    it."""
 
-    rated_output: float = 1.0            # V rms at the plan's output for full signal
-    amp_gain: float = 0.0                # dB voltage gain from the plan's output to the speaker
-    sensitivity: float | None = None     # dB SPL at 1 W, 1 m
-    impedance: float = 8.0               # speaker (or headphone) nominal impedance, Ω
-    distance: float = 3.0                # listening distance, m
+    rated_output: float = 1.0  # V rms at the plan's output for full signal
+    amp_gain: float = 0.0  # dB voltage gain from the plan's output to the speaker
+    sensitivity: float | None = None  # dB SPL at 1 W, 1 m
+    impedance: float = 8.0  # speaker (or headphone) nominal impedance, Ω
+    distance: float = 3.0  # listening distance, m
     location: Location = field(default=Location("<plan>"), compare=False)
-    speakers: int = 1                    # speakers playing the channel's hum, coherent at hum frequencies
-    room_gain: float = 0.0               # dB added by the room at the seat
-    phones: float | None = None          # headphone sensitivity, dB SPL per mW or per V (phones_per)
+    speakers: int = 1  # speakers playing the channel's hum, coherent at hum frequencies
+    room_gain: float = 0.0  # dB added by the room at the seat
+    phones: float | None = None  # headphone sensitivity, dB SPL per mW or per V (phones_per)
     phones_per: str = "mW"
-    background: float | None = None      # the room's noise, dB SPL in each third-octave band (flat): it masks hum
+    background: float | None = (
+        None  # the room's noise, dB SPL in each third-octave band (flat): it masks hum
+    )
 
     @property
     def verdict(self) -> bool:
-        """Whether the chain ends in a transducer of known sensitivity, so that audibility can be judged."""
+        """Whether the chain ends in a transducer of known sensitivity, so that audibility can be
+        judged."""
         return self.sensitivity is not None or self.phones is not None
 
 
@@ -112,20 +147,23 @@ class Metal:
     name: str
     material: str = "aluminium"
     thickness: float = 1.5e-3
-    size: XY | None = None               # width (x) and depth (y), m
-    origin: XY = (0.0, 0.0)              # lower-left corner in the plan frame, m
-    touchable: bool | None = False       # None when unwritten: settled by the plan's assembly
+    size: XY | None = None  # width (x) and depth (y), m
+    origin: XY = (0.0, 0.0)  # lower-left corner in the plan frame, m
+    touchable: bool | None = False  # None when unwritten: settled by the plan's assembly
     location: Location = field(default=Location("<plan>"), compare=False)
-    signal_only: bool = False            # holds no mains circuit, cannot become live: no protective bonding
-    permeability: float | None = None    # relative, as stated (None: the material's default)
+    signal_only: bool = False  # holds no mains circuit, cannot become live: no protective bonding
+    permeability: float | None = None  # relative, as stated (None: the material's default)
 
     def contains(self, p: XY, slack: float = 1e-6) -> bool:
-        """Whether the plan-frame position ``p`` lies on the part (always true when its size is unknown)."""
+        """Whether the plan-frame position ``p`` lies on the part (always true when its size is
+        unknown)."""
         if self.size is None:
             return True
         (x0, y0), (w, h) = self.origin, self.size
-        return (min(x0, x0 + w) - slack <= p[0] <= max(x0, x0 + w) + slack
-                and min(y0, y0 + h) - slack <= p[1] <= max(y0, y0 + h) + slack)
+        return (
+            min(x0, x0 + w) - slack <= p[0] <= max(x0, x0 + w) + slack
+            and min(y0, y0 + h) - slack <= p[1] <= max(y0, y0 + h) + slack
+        )
 
 
 @dataclass(frozen=True)
@@ -135,8 +173,8 @@ class Point:
     name: str
     kind: str = "junction"
     pos: XY | None = None
-    on: str | None = None                # the metal part it sits on
-    group: str | None = None             # the block placement or device it was placed by (e.g. "left")
+    on: str | None = None  # the metal part it sits on
+    group: str | None = None  # the block placement or device it was placed by (e.g. "left")
     location: Location = field(default=Location("<plan>"), compare=False)
 
 
@@ -154,35 +192,44 @@ class Conductor:
     b: str
     role: str = SIGNAL
     material: str = "copper"
-    length: float | None = None          # m
-    area: float | None = None            # m²
-    diameter: float | None = None        # m, round conductors (from AWG or area)
-    width: float | None = None           # m, traces, bus bars, straps
-    thickness: float | None = None       # m, traces, bus bars, straps
-    route: tuple[XY, ...] = ()           # waypoints between the two ends
-    resistance: float | None = None      # Ω, stated (overrides geometry)
-    contact: float | None = None         # Ω, contact resistance (bolts, straps, switches)
-    capacitance: float | None = None     # F, lift networks
-    closed: bool = True                  # switches
-    terminated: str = "both"             # shields: a | b | both
-    insulation: str = "pvc"              # pvc | xlpe | bare
-    in_cable: bool = True                # a core of a cable (adiabatic k) or a separate conductor
+    length: float | None = None  # m
+    area: float | None = None  # m²
+    diameter: float | None = None  # m, round conductors (from AWG or area)
+    width: float | None = None  # m, traces, bus bars, straps
+    thickness: float | None = None  # m, traces, bus bars, straps
+    route: tuple[XY, ...] = ()  # waypoints between the two ends
+    resistance: float | None = None  # Ω, stated (overrides geometry)
+    contact: float | None = None  # Ω, contact resistance (bolts, straps, switches)
+    capacitance: float | None = None  # F, lift networks
+    closed: bool = True  # switches
+    terminated: str = "both"  # shields: a | b | both
+    insulation: str = "pvc"  # pvc | xlpe | bare
+    in_cable: bool = True  # a core of a cable (adiabatic k) or a separate conductor
     channel: str | None = None
-    balanced: bool = False               # interconnects: balanced (the shield is not the signal return)
-    gain: float | None = None            # interconnects: dB from the receiving input to the output
-    cmrr: float | None = None            # interconnects, balanced: the input's own common-mode rejection, dB
+    balanced: bool = False  # interconnects: balanced (the shield is not the signal return)
+    gain: float | None = None  # interconnects: dB from the receiving input to the output
+    cmrr: float | None = None  # interconnects, balanced: the input's own common-mode rejection, dB
     location: Location = field(default=Location("<plan>"), compare=False)
-    imbalance: float | None = None       # interconnects, balanced: source impedance imbalance between the legs, Ω
-    common_mode: float = 20e3            # interconnects, balanced: the input's common-mode impedance per leg, Ω
-    loads: tuple[tuple[float, float], ...] = ()   # cables: (rms A, Hz; 0 = the mains frequency) in line and neutral
-    cores: str = "round"                 # cables: how the cores lie (CABLE_CORES)
-    shield_ends: tuple[str, str] | None = None   # interconnects: where each end of the shield lands, as stated
-    bundle: str | None = None            # umbilical cores: the umbilical (multi-core cable) they run in
-    length_computed: bool = False        # no length stated: taken along its ends' positions and route
+    imbalance: float | None = (
+        None  # interconnects, balanced: source impedance imbalance between the legs, Ω
+    )
+    common_mode: float = (
+        20e3  # interconnects, balanced: the input's common-mode impedance per leg, Ω
+    )
+    loads: tuple[
+        tuple[float, float], ...
+    ] = ()  # cables: (rms A, Hz; 0 = the mains frequency) in line and neutral
+    cores: str = "round"  # cables: how the cores lie (CABLE_CORES)
+    shield_ends: tuple[str, str] | None = (
+        None  # interconnects: where each end of the shield lands, as stated
+    )
+    bundle: str | None = None  # umbilical cores: the umbilical (multi-core cable) they run in
+    length_computed: bool = False  # no length stated: taken along its ends' positions and route
 
     @property
     def connects(self) -> bool:
-        """Whether it joins its two ends electrically (an open switch or a one-end shield does not)."""
+        """Whether it joins its two ends electrically (an open switch or a one-end shield does
+        not)."""
         if can_open(self) and not self.closed:
             return False
         if shield_like(self) and self.terminated != "both":
@@ -211,14 +258,18 @@ class Rectifier:
     load_resistance: float | None = None
     channel: str | None = None
     location: Location = field(default=Location("<plan>"), compare=False)
-    diode_law: str = "constant"          # constant (diode_drop per diode), shockley (exponential, with Rs) or valve
-    valve_drop: float = 50.0             # valve rectifiers: the drop (V) at valve_current (A), Child's law between
+    diode_law: str = (
+        "constant"  # constant (diode_drop per diode), shockley (exponential, with Rs) or valve
+    )
+    valve_drop: float = (
+        50.0  # valve rectifiers: the drop (V) at valve_current (A), Child's law between
+    )
     valve_current: float = 0.25
-    leakage: float = 0.0                 # transformer leakage inductance per conducting (half-)winding, H
-    filter_resistance: float = 0.0       # a filter section after the reservoir: series resistance, Ω
-    filter_inductance: float = 0.0       # ... series inductance (a choke), H
-    filter_capacitance: float | None = None   # ... its capacitor, F (None: no filter section)
-    filter_point: str | None = None      # ... the point its capacitor's negative lands on
+    leakage: float = 0.0  # transformer leakage inductance per conducting (half-)winding, H
+    filter_resistance: float = 0.0  # a filter section after the reservoir: series resistance, Ω
+    filter_inductance: float = 0.0  # ... series inductance (a choke), H
+    filter_capacitance: float | None = None  # ... its capacitor, F (None: no filter section)
+    filter_point: str | None = None  # ... the point its capacitor's negative lands on
 
 
 @dataclass(frozen=True)
@@ -245,14 +296,14 @@ class Heater:
     name: str
     current: float
     ac: bool = True
-    reference: str | None = None         # point the heater supply is referenced at
-    a: str | None = None                 # when its return flows in the ground system: from a ...
-    b: str | None = None                 # ... to b
+    reference: str | None = None  # point the heater supply is referenced at
+    a: str | None = None  # when its return flows in the ground system: from a ...
+    b: str | None = None  # ... to b
     location: Location = field(default=Location("<plan>"), compare=False)
-    route: tuple[XY, ...] = ()           # the heater pair's centre line on the deck (AC: a field source)
-    spacing: float | None = None         # the distance between the pair's two wires, m
-    wiring_height: float | None = None   # the pair's height above the deck, m
-    twisted: bool = False                # a twisted pair: no field source
+    route: tuple[XY, ...] = ()  # the heater pair's centre line on the deck (AC: a field source)
+    spacing: float | None = None  # the distance between the pair's two wires, m
+    wiring_height: float | None = None  # the pair's height above the deck, m
+    twisted: bool = False  # a twisted pair: no field source
 
 
 @dataclass(frozen=True)
@@ -262,29 +313,32 @@ class Stage:
     name: str
     a: str
     b: str
-    gain: float = 0.0                    # dB, from the pair to the output
+    gain: float = 0.0  # dB, from the pair to the output
     channel: str = "main"
     location: Location = field(default=Location("<plan>"), compare=False)
-    across: str | None = None            # an interconnect's input: the shield whose transfer impedance it reads
-    reference: str | None = None         # the input's reference (its sleeve): stated or inferred
-    named: str | None = None             # with a reference (then a): the first point written
+    across: str | None = (
+        None  # an interconnect's input: the shield whose transfer impedance it reads
+    )
+    reference: str | None = None  # the input's reference (its sleeve): stated or inferred
+    named: str | None = None  # with a reference (then a): the first point written
 
 
 @dataclass(frozen=True)
 class FieldSource:
-    """A source of stray magnetic field: flux density ``b_ref`` (T rms) at ``r_ref`` (m) on its equator, its
-    centre ``height`` (m) above the chassis plane, its axis x, y, z or worst, and its size (m) when stated."""
+    """A source of stray magnetic field: flux density ``b_ref`` (T rms) at ``r_ref`` (m) on its
+    equator, its centre ``height`` (m) above the chassis plane, its axis x, y, z or worst, and its
+    size (m) when stated."""
 
     name: str
     kind: str
     pos: XY
     b_ref: float
     r_ref: float
-    harmonics: tuple[tuple[int, float], ...] = ()   # (harmonic number, fraction of the fundamental)
+    harmonics: tuple[tuple[int, float], ...] = ()  # (harmonic number, fraction of the fundamental)
     height: float = 0.0
     axis: str = "worst"
     size: float | None = None
-    route: tuple[XY, ...] = ()                      # an AC heater pair taken as a source: its centre line
+    route: tuple[XY, ...] = ()  # an AC heater pair taken as a source: its centre line
     location: Location = field(default=Location("<plan>"), compare=False)
 
 
@@ -305,11 +359,15 @@ class Device:
     cord_area: float | None = None
     signal_ground: str = "chassis"
     location: Location = field(default=Location("<plan>"), compare=False)
-    leakage: float | None = None         # stated protective-conductor (leakage) current at the mains frequency, A
-    y_capacitance: float | None = None   # stated line-to-chassis capacitance of its mains filter, F
-    equipment_class: str = "I"           # simple devices: I (earthed chassis) or II (no protective conductor)
-    draws: float | None = None           # stated apparent power it draws from its supply, VA
-    sockets: str | None = None           # simple devices: "balanced" or "unbalanced" as stated, else None
+    leakage: float | None = (
+        None  # stated protective-conductor (leakage) current at the mains frequency, A
+    )
+    y_capacitance: float | None = None  # stated line-to-chassis capacitance of its mains filter, F
+    equipment_class: str = (
+        "I"  # simple devices: I (earthed chassis) or II (no protective conductor)
+    )
+    draws: float | None = None  # stated apparent power it draws from its supply, VA
+    sockets: str | None = None  # simple devices: "balanced" or "unbalanced" as stated, else None
 
 
 @dataclass(frozen=True)
@@ -331,19 +389,23 @@ class Plan:
     fields: tuple[FieldSource, ...] = ()
     files: tuple[str, ...] = ()
     location: Location = field(default=Location("<plan>"), compare=False)
-    device_supplies: tuple[tuple[str, float, float], ...] = ()   # placed devices' (name, V, Hz) from their plans
+    device_supplies: tuple[
+        tuple[str, float, float], ...
+    ] = ()  # placed devices' (name, V, Hz) from their plans
     acceptances: tuple[tuple, ...] = ()  # '# accept' comments: (file, line, codes, reason, code
     #                                       columns, the element named or None)
-    device_files: tuple[str, ...] = ()   # the files of placed devices' own plans (and what they include)
-    supply: Supply | None = None         # an installation's stated supply
-    devices: tuple[Device, ...] = ()     # the devices an installation places
-    transformers: tuple = ()             # an installation's (model.installation.Transformer)
+    device_files: tuple[
+        str, ...
+    ] = ()  # the files of placed devices' own plans (and what they include)
+    supply: Supply | None = None  # an installation's stated supply
+    devices: tuple[Device, ...] = ()  # the devices an installation places
+    transformers: tuple = ()  # an installation's (model.installation.Transformer)
 
     @property
     def frequency(self) -> float:
-        """The mains frequency: the plan's own ``mains``, else the installation's stated ``supply``, else that of
-        the devices it places (one installation has one; the loader refuses a mixture), else 50 Hz (a plan with
-        none of them describes no mains at all)."""
+        """The mains frequency: the plan's own ``mains``, else the installation's stated
+        ``supply``, else that of the devices it places (one installation has one; the loader
+        refuses a mixture), else 50 Hz (a plan with none of them describes no mains at all)."""
         if self.mains:
             return self.mains.frequency
         if self.supply:
@@ -365,13 +427,15 @@ _LAYOUT: dict[type, tuple[dict, frozenset]] = {}
 
 
 def make(cls, **values):
-    """``cls(**values)`` for a record class of this module, built without the generated ``__init__``.
+    """``cls(**values)`` for a record class of this module, built without the generated
+    ``__init__``.
 
-    A frozen dataclass's ``__init__`` sets each of its fields through ``object.__setattr__``; for the
-    twenty-odd fields of a :class:`Conductor` that is most of the cost of loading a large plan's wires.
-    This fills the instance's ``__dict__`` with the defaults and the given values in one step: the same
-    record (equal, and equally immutable afterwards), about four times faster.  Unknown or missing
-    fields raise :class:`TypeError` as the constructor would.  None of the records has ``__post_init__``.
+    A frozen dataclass's ``__init__`` sets each of its fields through ``object.__setattr__``; for
+    the twenty-odd fields of a :class:`Conductor` that is most of the cost of loading a large
+    plan's wires. This fills the instance's ``__dict__`` with the defaults and the given values in
+    one step: the same record (equal, and equally immutable afterwards), about four times faster.
+    Unknown or missing fields raise :class:`TypeError` as the constructor would.  None of the
+    records has ``__post_init__``.
     """
     layout = _LAYOUT.get(cls)
     if layout is None:
@@ -381,7 +445,7 @@ def make(cls, **values):
         layout = _LAYOUT[cls] = (defaults, frozenset(f.name for f in fs), factories)
     defaults, names, factories = layout
     if factories or not names.issuperset(values) or not values.keys() >= names - defaults.keys():
-        return cls(**values)            # fresh default objects, or let the constructor name the bad field
+        return cls(**values)  # fresh default objects, or let the constructor name the bad field
     obj = object.__new__(cls)
     d = obj.__dict__
     d.update(defaults)
@@ -393,7 +457,8 @@ def from_values(cls, names: tuple[str, ...], values: tuple):
     """A record of ``cls`` from the value of every field, ``names`` being all its fields in order.
 
     The bulk counterpart of :func:`make` for records sent back by a worker process
-    (:mod:`groundcheck.language.bigfile`): nothing is defaulted or checked, as the values came from a record.
+    (:mod:`groundcheck.language.bigfile`): nothing is defaulted or checked, as the values came from
+    a record.
     """
     obj = object.__new__(cls)
     obj.__dict__.update(zip(names, values))

@@ -3,11 +3,12 @@
 A conductor is protective **by topology**, whatever role the plan wrote for it, when it lies on the
 route that connects a metal part (or a device's earth pin, or an outlet's earth) to the earth: the
 route found by one search from the earth terminals over conductors whose kind may carry protective
-current (:mod:`groundcheck.model.kinds`), preferring conductors written ``protective`` or ``bond``, and never
-passing through a point of the signal circuit (a stage's or a current's end, a star).  A conductor on
-that route that the plan did not mark ``protective`` or ``bond`` is named in ``unmarked``: the checks
-treat it as protective all the same (its cross-section is checked, its resistance counts in the
-protective path), the audit says the role is missing, and the repair advisor never touches it.
+current (:mod:`groundcheck.model.kinds`), preferring conductors written ``protective`` or ``bond``,
+and never passing through a point of the signal circuit (a stage's or a current's end, a star).  A
+conductor on that route that the plan did not mark ``protective`` or ``bond`` is named in
+``unmarked``: the checks treat it as protective all the same (its cross-section is checked, its
+resistance counts in the protective path), the audit says the role is missing, and the repair
+advisor never touches it.
 
 Earth terminals, from the outermost in: main earthing terminals (points of kind
 ``earthing-terminal``) if the plan has any, else outlets, else inlets (the plan's own ``mains.pe``
@@ -23,7 +24,13 @@ from dataclasses import dataclass
 from ..model.kinds import LEAKAGE, PROTECTIVE, PROTECTIVE_ROLES, can_carry_protective
 from ..model.records import PE_POINT, Plan
 
-__all__ = ["EARTH_TERMINAL_KINDS", "ProtectiveRoute", "earth_terminals", "protective_route", "signal_points"]
+__all__ = [
+    "EARTH_TERMINAL_KINDS",
+    "ProtectiveRoute",
+    "earth_terminals",
+    "protective_route",
+    "signal_points",
+]
 
 #: point kinds that are earth terminals, from the outermost in
 EARTH_TERMINAL_KINDS = ("earthing-terminal", "outlet", "inlet")
@@ -34,12 +41,13 @@ class ProtectiveRoute:
     """The protective route of a plan.
 
     ``conductors``: every conductor that is protective by topology or by its written role (and of a
-    kind that may carry protective current); ``unmarked``: those on the route whose role does not say
-    so; ``reached``: metal parts and earth terminals the route reaches (by conductors of any role),
-    ``marked_reach``: those reached through conductors marked protective or bond alone;
+    kind that may carry protective current); ``unmarked``: those on the route whose role does not
+    say so; ``reached``: metal parts and earth terminals the route reaches (by conductors of any
+    role), ``marked_reach``: those reached through conductors marked protective or bond alone;
     ``parent``: node -> (previous node, conductor) of the search tree; ``roots``: where it started;
-    ``keep``: every conductor that may carry protective current between two nodes of the protective side (the
-    nodes the search passed through), parallel paths included — what the repair advisor never touches.
+    ``keep``: every conductor that may carry protective current between two nodes of the protective
+    side (the nodes the search passed through), parallel paths included — what the repair advisor
+    never touches.
     """
 
     conductors: frozenset
@@ -51,7 +59,8 @@ class ProtectiveRoute:
     roots: tuple
 
     def path_to(self, node: str) -> list[str]:
-        """The route's conductors from ``node`` back to its earth terminal (empty when not reached)."""
+        """The route's conductors from ``node`` back to its earth terminal (empty when not
+        reached)."""
         out = []
         while node in self.parent and self.parent[node] is not None:
             node, k = self.parent[node]
@@ -63,7 +72,8 @@ class ProtectiveRoute:
 
 
 def signal_points(plan: Plan) -> set[str]:
-    """Points of the signal circuit: ends of stages, rectifiers and currents (not leakage), stars."""
+    """Points of the signal circuit: ends of stages, rectifiers and currents (not leakage),
+    stars."""
     pts = set()
     for s in plan.stages:
         pts.update((s.a, s.b))
@@ -87,8 +97,8 @@ def earth_terminals(plan: Plan) -> dict[str, list[str]]:
 def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     """The protective route over the graph's adjacency ``adj`` (node -> neighbour -> key -> data).
 
-    A 0-1 breadth-first search: a conductor marked protective or bond costs 0, any other conductor of
-    a kind that may carry protective current costs 1, so each part is reached through marked
+    A 0-1 breadth-first search: a conductor marked protective or bond costs 0, any other conductor
+    of a kind that may carry protective current costs 1, so each part is reached through marked
     conductors whenever it can be.
     """
     terms = earth_terminals(plan)
@@ -96,8 +106,13 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     roots = [r for r in roots if r in adj]
     blocked = signal_points(plan)
     metals = {m.name for m in plan.metals}
-    # each conductor's cost once: 0 marked protective, 1 any other kind that may carry protective current
-    cost = {c.name: (0 if c.role in PROTECTIVE_ROLES else 1) for c in plan.conductors if can_carry_protective(c)}
+    # each conductor's cost once: 0 marked protective, 1 any other kind that may carry protective
+    # current
+    cost = {
+        c.name: (0 if c.role in PROTECTIVE_ROLES else 1)
+        for c in plan.conductors
+        if can_carry_protective(c)
+    }
     dist: dict[str, int] = {r: 0 for r in roots}
     parent: dict = {r: None for r in roots}
     q = deque(roots)
@@ -108,10 +123,10 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
             continue
         done.add(u)
         if u in blocked and u not in roots:
-            continue            # reached, but the route never passes through the signal circuit
+            continue  # reached, but the route never passes through the signal circuit
         for v, keys in adj[u].items():
             best = None
-            for k in (keys if len(keys) == 1 else sorted(keys)):
+            for k in keys if len(keys) == 1 else sorted(keys):
                 w = cost.get(k)
                 if w is not None and (best is None or w < best[0]):
                     best = (w, k)
@@ -139,11 +154,14 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)
     # every conductor between two nodes of the protective side carries fault current, whatever role
     # the plan writes: the route is found from the network, the role only documents it
-    keep = route | {k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost}
+    keep = route | {
+        k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost
+    }
     unmarked = tuple(sorted(k for k in keep if conds[k].role not in PROTECTIVE_ROLES))
     everything = frozenset(keep | marked)
-    return ProtectiveRoute(everything, unmarked, everything, frozenset(targets), marked_reach, parent,
-                           tuple(roots))
+    return ProtectiveRoute(
+        everything, unmarked, everything, frozenset(targets), marked_reach, parent, tuple(roots)
+    )
 
 
 def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:
@@ -152,8 +170,14 @@ def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:
     socket's sleeve fastened to the chassis whose other wiring runs into the signal circuit), so
     its fastening is no protective path; pruned until none is left."""
     side = set(side)
-    degree = {u: sum(len([k for k in keys if k in cost])
-                     for v, keys in adj[u].items() if v in side and v != u) for u in side}
+    degree = {
+        u: sum(
+            len([k for k in keys if k in cost])
+            for v, keys in adj[u].items()
+            if v in side and v != u
+        )
+        for u in side
+    }
     stack = [u for u in side if u not in ends and degree[u] <= 1]
     while stack:
         u = stack.pop()

@@ -16,12 +16,22 @@ import numpy as np
 
 from ..model.records import Plan
 
-__all__ = ["build_graph", "edges_of", "part_labels", "components", "loop_count", "fundamental_loops", "Loop",
-           "loop_polygon", "polygon_area"]
+__all__ = [
+    "build_graph",
+    "edges_of",
+    "part_labels",
+    "components",
+    "loop_count",
+    "fundamental_loops",
+    "Loop",
+    "loop_polygon",
+    "polygon_area",
+]
 
 
 def build_graph(plan: Plan) -> nx.MultiGraph:
-    """The plan's ground network.  Open switches and shields terminated at one end are not edges."""
+    """The plan's ground network.  Open switches and shields terminated at one end are not
+    edges."""
     G = nx.MultiGraph(title=plan.title)
     for m in plan.metals:
         G.add_node(m.name, type="metal", metal=m, touchable=m.touchable)
@@ -34,8 +44,9 @@ def build_graph(plan: Plan) -> nx.MultiGraph:
 
 
 def edges_of(G: nx.MultiGraph) -> list[tuple]:
-    """Every edge once as ``(u, v, key, data)``, in the order and orientation of ``G.edges(keys=True,
-    data=True)``, read from the adjacency dicts directly (several times faster on large graphs)."""
+    """Every edge once as ``(u, v, key, data)``, in the order and orientation of
+    ``G.edges(keys=True, data=True)``, read from the adjacency dicts directly (several times faster
+    on large graphs)."""
     seen: set = set()
     out = []
     for n, nbrs in G.adjacency():
@@ -59,6 +70,7 @@ def part_labels(n: int, rows, cols) -> tuple[int, np.ndarray]:
     if n > SMALL_GRAPH:
         import scipy.sparse as sp
         import scipy.sparse.csgraph as csgraph
+
         A = sp.coo_matrix((np.ones(len(rows)), (rows, cols)), shape=(n, n))
         ncomp, labels = csgraph.connected_components(A, directed=False)
         return int(ncomp), labels
@@ -69,6 +81,7 @@ def part_labels(n: int, rows, cols) -> tuple[int, np.ndarray]:
             parent[i] = parent[parent[i]]
             i = parent[i]
         return i
+
     for a, b in zip(np.asarray(rows).tolist(), np.asarray(cols).tolist()):
         ra, rb = root(a), root(b)
         if ra != rb:
@@ -81,14 +94,15 @@ def part_labels(n: int, rows, cols) -> tuple[int, np.ndarray]:
 
 
 def components(G: nx.MultiGraph, edges: list[tuple] | None = None) -> tuple[list, np.ndarray, int]:
-    """Connected parts: (nodes in graph order, the part label of each, number of parts), by scipy's csgraph.
-    ``edges`` is :func:`edges_of` ``(G)`` when the caller already has it."""
+    """Connected parts: (nodes in graph order, the part label of each, number of parts), by scipy's
+    csgraph. ``edges`` is :func:`edges_of` ``(G)`` when the caller already has it."""
     order = list(G.nodes)
     if not order:
         return order, np.zeros(0, dtype=np.int32), 0
     idx = {n: i for i, n in enumerate(order)}
-    pairs = np.array([(idx[e[0]], idx[e[1]]) for e in (edges_of(G) if edges is None else edges)],
-                     dtype=np.int64).reshape(-1, 2)
+    pairs = np.array(
+        [(idx[e[0]], idx[e[1]]) for e in (edges_of(G) if edges is None else edges)], dtype=np.int64
+    ).reshape(-1, 2)
     ncomp, labels = part_labels(len(order), pairs[:, 0], pairs[:, 1])
     return order, labels, ncomp
 
@@ -105,11 +119,13 @@ class Loop:
     """One independent loop: its nodes and conductors in order around it."""
 
     nodes: tuple[str, ...]
-    edges: tuple[str, ...]          # conductor names; edges[i] joins nodes[i] and nodes[i+1 mod n]
-    chord: int = -1                 # index in edges of the conductor outside the spanning forest
+    edges: tuple[str, ...]  # conductor names; edges[i] joins nodes[i] and nodes[i+1 mod n]
+    chord: int = -1  # index in edges of the conductor outside the spanning forest
 
 
-def fundamental_loops(G: nx.MultiGraph, limit: int | None = None, edges: list[tuple] | None = None) -> list[Loop]:
+def fundamental_loops(
+    G: nx.MultiGraph, limit: int | None = None, edges: list[tuple] | None = None
+) -> list[Loop]:
     """Loops of a cycle basis: one per conductor outside a breadth-first spanning forest.
 
     Breadth-first trees keep the fundamental loops short.  Self-loops (a
@@ -124,7 +140,7 @@ def fundamental_loops(G: nx.MultiGraph, limit: int | None = None, edges: list[tu
     parent_edge: dict = {}
     depth: dict = {}
     tree_edges = set()
-    adj = dict(G.adjacency())           # plain dicts: node -> neighbour -> key -> data
+    adj = dict(G.adjacency())  # plain dicts: node -> neighbour -> key -> data
     for root in adj:
         if root in parent:
             continue
@@ -171,25 +187,35 @@ def _climb(x, parent, parent_edge, nodes, edges):
 
 
 def polygon_area(pts) -> float:
-    """Area enclosed by a polygon, m²: the integral of |winding number| over the plane, so that each lobe of a
-    self-intersecting outline counts once whatever its sense (the shoelace formula's net area would subtract a
-    lobe wound the other way); 0 for fewer than three points.
+    """Area enclosed by a polygon, m²: the integral of |winding number| over the plane, so that
+    each lobe of a self-intersecting outline counts once whatever its sense (the shoelace formula's
+    net area would subtract a lobe wound the other way); 0 for fewer than three points.
 
-    Exact: the plane is cut into vertical slabs at every vertex and crossing, inside which no two edges cross;
-    the edges through a slab are sorted by height and each trapezoid between neighbours carries the winding
-    number accumulated below it (edge directions upward count +1, downward −1)."""
+    Exact: the plane is cut into vertical slabs at every vertex and crossing, inside which no two
+    edges cross; the edges through a slab are sorted by height and each trapezoid between
+    neighbours carries the winding number accumulated below it (edge directions upward count +1,
+    downward −1)."""
     if len(pts) < 3:
         return 0.0
-    if len(pts) <= SMALL_POLYGON:                       # most loops: plain floats beat array set-up
+    if len(pts) <= SMALL_POLYGON:  # most loops: plain floats beat array set-up
         if len(pts) == 3 or not _crosses_itself_small(pts):
             n = len(pts)
-            return abs(sum(pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1]
-                           for k in range(n))) / 2.0
+            return (
+                abs(
+                    sum(
+                        pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1]
+                        for k in range(n)
+                    )
+                )
+                / 2.0
+            )
     a = np.asarray(pts, dtype=float)
-    if not _crosses_itself(a):                          # the usual case: the shoelace formula, exact
+    if not _crosses_itself(a):  # the usual case: the shoelace formula, exact
         x, y = a[:, 0], a[:, 1]
         return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
-    edges = [(a[k], a[(k + 1) % len(a)]) for k in range(len(a)) if a[k][0] != a[(k + 1) % len(a)][0]]
+    edges = [
+        (a[k], a[(k + 1) % len(a)]) for k in range(len(a)) if a[k][0] != a[(k + 1) % len(a)][0]
+    ]
     xs = set(a[:, 0].tolist())
     for i in range(len(edges)):
         for j in range(i + 1, len(edges)):
@@ -207,8 +233,14 @@ def polygon_area(pts) -> float:
             lo, hi = min(p[0], q[0]), max(p[0], q[0])
             if lo <= xm <= hi:
                 t0, t1 = (x0 - p[0]) / (q[0] - p[0]), (x1 - p[0]) / (q[0] - p[0])
-                rows.append((p[1] + (q[1] - p[1]) * 0.5 * (t0 + t1), p[1] + (q[1] - p[1]) * t0,
-                             p[1] + (q[1] - p[1]) * t1, 1 if q[0] > p[0] else -1))
+                rows.append(
+                    (
+                        p[1] + (q[1] - p[1]) * 0.5 * (t0 + t1),
+                        p[1] + (q[1] - p[1]) * t0,
+                        p[1] + (q[1] - p[1]) * t1,
+                        1 if q[0] > p[0] else -1,
+                    )
+                )
         rows.sort()
         w = 0
         for (_, a0, a1, d), (_, b0, b1, _) in zip(rows, rows[1:]):
@@ -225,15 +257,19 @@ def _crosses_itself_small(pts) -> bool:
     """:func:`_crosses_itself` for a short outline, pair by pair."""
     n = len(pts)
     edges = [(pts[k], pts[(k + 1) % n]) for k in range(n)]
-    return any(_crossing_x(edges[i], edges[j]) is not None for i in range(n) for j in range(i + 2, n)
-               if not (i == 0 and j == n - 1))
+    return any(
+        _crossing_x(edges[i], edges[j]) is not None
+        for i in range(n)
+        for j in range(i + 2, n)
+        if not (i == 0 and j == n - 1)
+    )
 
 
 def _crosses_itself(a: np.ndarray) -> bool:
     """Whether any two edges of the closed polygon cross inside both (all pairs at once)."""
     p, q = a, np.roll(a, -1, axis=0)
     d = q - p
-    r = p[None, :, :] - p[:, None, :]                               # r[i, j] = p_j − p_i
+    r = p[None, :, :] - p[:, None, :]  # r[i, j] = p_j − p_i
     den = d[:, None, 0] * d[None, :, 1] - d[:, None, 1] * d[None, :, 0]
     with np.errstate(divide="ignore", invalid="ignore"):
         t = (r[..., 0] * d[None, :, 1] - r[..., 1] * d[None, :, 0]) / den

@@ -49,9 +49,21 @@ from .heat import INSULATION_THICKNESS, adiabatic_temperature, steady_temperatur
 from .impedance import MATERIALS, conductor_resistance
 from .safety import protective_circuit
 
-__all__ = ["BondTest", "ConductorHeat", "PartDrop", "BondingResult", "bonding_tests",
-           "bonding_figures", "conductor_heat", "SHORT_TEST", "LONG_TEST", "SHORT_LIMIT",
-           "CONTINUOUS_LIMIT", "SECTIONS", "DROP_LIMIT"]
+__all__ = [
+    "BondTest",
+    "ConductorHeat",
+    "PartDrop",
+    "BondingResult",
+    "bonding_tests",
+    "bonding_figures",
+    "conductor_heat",
+    "SHORT_TEST",
+    "LONG_TEST",
+    "SHORT_LIMIT",
+    "CONTINUOUS_LIMIT",
+    "SECTIONS",
+    "DROP_LIMIT",
+]
 
 #: the short test: current (A), duration (s), and the rated-current factor of IEC 60335-1 27.5
 #: (IEC 60065 15.2 and IEC 61010-1 6.5.2.4 for 25 A, 1 min; the factor from memory)
@@ -84,8 +96,12 @@ class BondTest:
     basis: str
 
     def as_dict(self) -> dict:
-        return {"test": self.name, "current_a": round(self.current, 4),
-                "duration_s": self.duration, "basis": self.basis}
+        return {
+            "test": self.name,
+            "current_a": round(self.current, 4),
+            "duration_s": self.duration,
+            "basis": self.basis,
+        }
 
 
 @dataclass(frozen=True)
@@ -98,17 +114,17 @@ class ConductorHeat:
 
     conductor: str
     test: str
-    current: float                   # A through this conductor
-    area: float | None               # m²; None for a fastening
+    current: float  # A through this conductor
+    area: float | None  # m²; None for a fastening
     insulation: str | None
-    adiabatic: float | None          # None: a material without IEC 60949 constants, or a fastening
+    adiabatic: float | None  # None: a material without IEC 60949 constants, or a fastening
     steady: float | None
     reached: float | None
     limit: float | None
     continuous_limit: float | None
-    power: float | None = None       # W, a fastening's contact
-    drop: float | None = None        # V across a fastening's contact
-    thicker: float | None = None     # m², the smallest nominal round wire that would pass
+    power: float | None = None  # W, a fastening's contact
+    drop: float | None = None  # V across a fastening's contact
+    thicker: float | None = None  # m², the smallest nominal round wire that would pass
 
     @property
     def passes(self) -> bool | None:
@@ -123,17 +139,24 @@ class ConductorHeat:
 
         def mm2(x):
             return None if x is None else round(x * 1e6, 4)
-        return {"conductor": self.conductor, "test": self.test,
-                "current_a": round(self.current, 4),
-                "area_mm2": mm2(self.area), "insulation": self.insulation,
-                "adiabatic_c": deg(self.adiabatic), "steady_state_c": deg(self.steady),
-                "reached_c": deg(self.reached),
-                "melts": self.reached is not None and math.isinf(self.reached),
-                "limit_c": self.limit, "continuous_limit_c": self.continuous_limit,
-                "passes": self.passes,
-                "contact_power_w": None if self.power is None else round(self.power, 4),
-                "contact_drop_v": None if self.drop is None else round(self.drop, 5),
-                "thicker_mm2": mm2(self.thicker)}
+
+        return {
+            "conductor": self.conductor,
+            "test": self.test,
+            "current_a": round(self.current, 4),
+            "area_mm2": mm2(self.area),
+            "insulation": self.insulation,
+            "adiabatic_c": deg(self.adiabatic),
+            "steady_state_c": deg(self.steady),
+            "reached_c": deg(self.reached),
+            "melts": self.reached is not None and math.isinf(self.reached),
+            "limit_c": self.limit,
+            "continuous_limit_c": self.continuous_limit,
+            "passes": self.passes,
+            "contact_power_w": None if self.power is None else round(self.power, 4),
+            "contact_drop_v": None if self.drop is None else round(self.drop, 5),
+            "thicker_mm2": mm2(self.thicker),
+        }
 
 
 @dataclass(frozen=True)
@@ -147,8 +170,12 @@ class PartDrop:
     limit: float | None = None
 
     def as_dict(self) -> dict:
-        return {"part": self.part, "test": self.test, "path_voltage_v": round(self.voltage, 5),
-                "limit_v": self.limit}
+        return {
+            "part": self.part,
+            "test": self.test,
+            "path_voltage_v": round(self.voltage, 5),
+            "limit_v": self.limit,
+        }
 
 
 @dataclass(frozen=True)
@@ -167,9 +194,12 @@ class BondingResult:
         return [p for p in self.parts if p.limit is not None and p.voltage > p.limit]
 
     def as_dict(self) -> dict:
-        return {"ambient_c": self.ambient, "tests": [t.as_dict() for t in self.tests],
-                "conductors": [c.as_dict() for c in self.conductors],
-                "parts": [p.as_dict() for p in self.parts]}
+        return {
+            "ambient_c": self.ambient,
+            "tests": [t.as_dict() for t in self.tests],
+            "conductors": [c.as_dict() for c in self.conductors],
+            "parts": [p.as_dict() for p in self.parts],
+        }
 
 
 def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
@@ -192,14 +222,22 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
     basis = "IEC 60065 15.2, IEC 61010-1 6.5.2.4: 25 A for 1 min"
     if m.fuse is not None and factor * m.fuse > amps:
         amps = factor * m.fuse
-        basis = (f"IEC 60335-1 27.5 (from memory): 1.5 × the rated current, taken as the "
-                 f"{m.fuse:g} A protective device's rating, for 1 min")
+        basis = (
+            f"IEC 60335-1 27.5 (from memory): 1.5 × the rated current, taken as the {m.fuse:g} A "
+            "protective device's rating, for 1 min"
+        )
     tests = [BondTest("short", amps, secs, basis)]
     if m.fuse is not None:
         mult, dur = LONG_TEST
-        tests.append(BondTest("long", mult * m.fuse, dur,
-                              f"IEC 60950-1:2005 2.6.3.4, IEC 62368-1 5.6.6.2 (from memory): "
-                              f"200 % of the {m.fuse:g} A rating for 2 min"))
+        tests.append(
+            BondTest(
+                "long",
+                mult * m.fuse,
+                dur,
+                "IEC 60950-1:2005 2.6.3.4, IEC 62368-1 5.6.6.2 (from memory): 200 % of the "
+                f"{m.fuse:g} A rating for 2 min",
+            )
+        )
     return tuple(tests)
 
 
@@ -210,8 +248,13 @@ def _shares(plan: Plan, circ) -> tuple[dict[str, float], dict[str, float]]:
     pe = circ.point_node.get(PE_POINT)
     if pe is None:
         return {}, {}
-    cols = [(p.name, s) for p in plan.metals if p.touchable for s in circ.nodes_of_metal(p.name)
-            if labels[s] == labels[pe]]
+    cols = [
+        (p.name, s)
+        for p in plan.metals
+        if p.touchable
+        for s in circ.nodes_of_metal(p.name)
+        if labels[s] == labels[pe]
+    ]
     if not cols:
         return {}, {}
     J = np.zeros((len(circ.nodes), len(cols)))
@@ -265,15 +308,42 @@ def conductor_heat(c, test: BondTest, current: float, ambient: float) -> Conduct
     thicker = None
     if reached > limit:
         wall = 0.0 if ins == "bare" else INSULATION_THICKNESS
-        thicker = next((a * 1e-6 for a in SECTIONS if a * 1e-6 > area * (1 + 1e-9)
-                        and _bound(c, a * 1e-6, math.sqrt(4e-6 * a / math.pi), wall, current,
-                                   test.duration, ambient)[2] <= limit), None)
-    return ConductorHeat(c.name, test.name, current, area, ins, ad, ss, reached, limit,
-                         CONTINUOUS_LIMIT[ins], thicker=thicker)
+        thicker = next(
+            (
+                a * 1e-6
+                for a in SECTIONS
+                if a * 1e-6 > area * (1 + 1e-9)
+                and _bound(
+                    c,
+                    a * 1e-6,
+                    math.sqrt(4e-6 * a / math.pi),
+                    wall,
+                    current,
+                    test.duration,
+                    ambient,
+                )[2]
+                <= limit
+            ),
+            None,
+        )
+    return ConductorHeat(
+        c.name,
+        test.name,
+        current,
+        area,
+        ins,
+        ad,
+        ss,
+        reached,
+        limit,
+        CONTINUOUS_LIMIT[ins],
+        thicker=thicker,
+    )
 
 
-def _bound(c, area: float, diameter: float, wall: float, current: float, duration: float,
-           ambient: float) -> tuple[float | None, float, float]:
+def _bound(
+    c, area: float, diameter: float, wall: float, current: float, duration: float, ambient: float
+) -> tuple[float | None, float, float]:
     """(adiabatic, steady state, the smaller), °C, for ``c`` at ``area``: the adiabatic figure is
     None for a material without IEC 60949 constants; infinite means at or above melting."""
     material = c.material if c.material in MATERIALS else "copper"
@@ -310,10 +380,27 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
                 rows.append(conductor_heat(c, test, amps, plan.ambient))
             elif KINDS[c.kind].fastening:
                 r = conductor_resistance(c, plan.ambient)[0]
-                rows.append(ConductorHeat(name, test.name, amps, None, None, None, None, None,
-                                          None, None, power=amps * amps * r, drop=amps * r))
+                rows.append(
+                    ConductorHeat(
+                        name,
+                        test.name,
+                        amps,
+                        None,
+                        None,
+                        None,
+                        None,
+                        None,
+                        None,
+                        None,
+                        power=amps * amps * r,
+                        drop=amps * r,
+                    )
+                )
     rating, volts = DROP_LIMIT
     big = plan.mains.fuse is not None and plan.mains.fuse > rating
-    parts = tuple(PartDrop(p, t.name, t.current * r, volts if big and t.name == "long" else None)
-                  for t in tests for p, r in sorted(rpart.items()))
+    parts = tuple(
+        PartDrop(p, t.name, t.current * r, volts if big and t.name == "long" else None)
+        for t in tests
+        for p, r in sorted(rpart.items())
+    )
     return BondingResult(tests, tuple(rows), parts, plan.ambient)

@@ -1,4 +1,5 @@
-"""The electrical network of a plan: nodes, branches with impedance per frequency, complex nodal solve.
+"""The electrical network of a plan: nodes, branches with impedance per frequency, complex nodal
+solve.
 
 Nodes are the plan's points plus, for each metal part, either one node (when
 the plate's spreading resistance cannot or need not be computed) or one node
@@ -43,17 +44,17 @@ class Branch:
 
     n1: int
     n2: int
-    name: str                        # conductor name, or "plate:<part>:<a>~<b>"
-    r: float                         # Ω at the plan's temperature
-    l: float = 0.0                   # H
-    radius: float = 0.0              # m, round wire (skin effect); 0 for none
-    rho: float = 1.7241e-8           # Ω·m, for the skin effect
-    cap: float | None = None         # F, lift networks: R ∥ C
-    path: tuple[XY, ...] = ()        # geometry from n1 to n2 (for induced EMF), empty when unknown
-    conductor: str | None = None     # the plan conductor it models
-    metal: str | None = None         # or the metal part whose plate it belongs to
-    sheet: float = 0.0               # m, a plate branch's thickness (skin effect); 0 for none
-    mu_r: float = 1.0                # the plate's relative permeability
+    name: str  # conductor name, or "plate:<part>:<a>~<b>"
+    r: float  # Ω at the plan's temperature
+    l: float = 0.0  # H
+    radius: float = 0.0  # m, round wire (skin effect); 0 for none
+    rho: float = 1.7241e-8  # Ω·m, for the skin effect
+    cap: float | None = None  # F, lift networks: R ∥ C
+    path: tuple[XY, ...] = ()  # geometry from n1 to n2 (for induced EMF), empty when unknown
+    conductor: str | None = None  # the plan conductor it models
+    metal: str | None = None  # or the metal part whose plate it belongs to
+    sheet: float = 0.0  # m, a plate branch's thickness (skin effect); 0 for none
+    mu_r: float = 1.0  # the plate's relative permeability
 
     @property
     def owner(self) -> str:
@@ -69,17 +70,23 @@ class Circuit:
     branches: list[Branch]
     positions: dict[str, XY] = field(default_factory=dict)
     plate_notes: dict[str, dict] = field(default_factory=dict)
-    point_node: dict[str, int] = field(default_factory=dict)   # plan point/part name -> node index
-    metal_nodes: dict[str, tuple[int, ...]] = field(default_factory=dict)   # metal part -> its contact nodes
+    point_node: dict[str, int] = field(default_factory=dict)  # plan point/part name -> node index
+    metal_nodes: dict[str, tuple[int, ...]] = field(
+        default_factory=dict
+    )  # metal part -> its contact nodes
 
     def restricted(self, conductors) -> "Circuit":
-        """The same network with only the named conductors (every plate branch kept): a plate node that loses
-        its conductors stays as an inner node of the plate network, which is the same as Kron-reducing it."""
+        """The same network with only the named conductors (every plate branch kept): a plate node
+        that loses its conductors stays as an inner node of the plate network, which is the same as
+        Kron-reducing it."""
         keep = [b for b in self.branches if b.conductor is None or b.conductor in conductors]
-        return Circuit(self.nodes, keep, self.positions, self.plate_notes, self.point_node, self.metal_nodes)
+        return Circuit(
+            self.nodes, keep, self.positions, self.plate_notes, self.point_node, self.metal_nodes
+        )
 
     def nodes_of_metal(self, name: str) -> tuple[int, ...]:
-        """The nodes of metal part ``name``: its contact spots on a plate grid, else its one node."""
+        """The nodes of metal part ``name``: its contact spots on a plate grid, else its one
+        node."""
         return self.metal_nodes.get(name, ())
 
     @cached_property
@@ -89,20 +96,29 @@ class Circuit:
     @cached_property
     def _arrays(self):
         b = self.branches
-        return (np.array([x.n1 for x in b], dtype=np.int64), np.array([x.n2 for x in b], dtype=np.int64),
-                np.array([x.r for x in b]), np.array([x.l for x in b]), np.array([x.radius for x in b]),
-                np.array([x.rho for x in b]),
-                np.array([np.nan if x.cap is None else x.cap for x in b]),
-                np.array([x.sheet for x in b]), np.array([x.mu_r for x in b]))
+        return (
+            np.array([x.n1 for x in b], dtype=np.int64),
+            np.array([x.n2 for x in b], dtype=np.int64),
+            np.array([x.r for x in b]),
+            np.array([x.l for x in b]),
+            np.array([x.radius for x in b]),
+            np.array([x.rho for x in b]),
+            np.array([np.nan if x.cap is None else x.cap for x in b]),
+            np.array([x.sheet for x in b]),
+            np.array([x.mu_r for x in b]),
+        )
 
     @cached_property
     def incidence(self) -> sp.csr_matrix:
-        """Branches × nodes, +1 at each branch's n1 and −1 at its n2: ``incidence @ V`` is every branch's voltage
-        V[n1] − V[n2] (the same values as the row gathers, faster for many columns)."""
+        """Branches × nodes, +1 at each branch's n1 and −1 at its n2: ``incidence @ V`` is every
+        branch's voltage V[n1] − V[n2] (the same values as the row gathers, faster for many
+        columns)."""
         n1, n2, *_ = self._arrays
         b = np.arange(len(n1))
-        return sp.csr_matrix((np.r_[np.ones(len(b)), -np.ones(len(b))], (np.r_[b, b], np.r_[n1, n2])),
-                             shape=(len(n1), len(self.nodes)))
+        return sp.csr_matrix(
+            (np.r_[np.ones(len(b)), -np.ones(len(b))], (np.r_[b, b], np.r_[n1, n2])),
+            shape=(len(n1), len(self.nodes)),
+        )
 
     def impedance(self, f: float) -> np.ndarray:
         """Complex impedance of every branch at frequency f (Hz), never below MIN_IMPEDANCE."""
@@ -128,8 +144,9 @@ class Circuit:
 
     @cached_property
     def least_resistance_graph(self):
-        """The least-resistance branch between each pair of joined nodes, and those resistances as a
-        symmetric sparse matrix (for shortest paths): ({(low node, high node): branch}, csr matrix)."""
+        """The least-resistance branch between each pair of joined nodes, and those resistances as
+        a symmetric sparse matrix (for shortest paths): ({(low node, high node): branch}, csr
+        matrix)."""
         n1, n2, r, *_ = self._arrays
         n = len(self.nodes)
         w = np.maximum(np.abs(r), 1e-9)
@@ -164,8 +181,8 @@ class Circuit:
 
     @cached_property
     def _pattern(self):
-        """Entries of the admittance matrix among the non-reference nodes: (reduced index of every node,
-        rows, cols, which branch each entry comes from, its sign, the reduced size)."""
+        """Entries of the admittance matrix among the non-reference nodes: (reduced index of every
+        node, rows, cols, which branch each entry comes from, its sign, the reduced size)."""
         n1, n2, *_ = self._arrays
         n = len(self.nodes)
         keep = np.ones(n, dtype=bool)
@@ -176,7 +193,9 @@ class Circuit:
         rows = np.concatenate([n1, n2, n1, n2])
         cols = np.concatenate([n1, n2, n2, n1])
         branch = np.concatenate([b, b, b, b])
-        sign = np.concatenate([np.ones(len(b)), np.ones(len(b)), -np.ones(len(b)), -np.ones(len(b))])
+        sign = np.concatenate(
+            [np.ones(len(b)), np.ones(len(b)), -np.ones(len(b)), -np.ones(len(b))]
+        )
         ok = keep[rows] & keep[cols]
         return keep, ridx[rows[ok]], ridx[cols[ok]], branch[ok], sign[ok], int(keep.sum())
 
@@ -190,17 +209,24 @@ class Circuit:
         if m:
             vals = y[branch] * sign
             if not np.iscomplexobj(vals) or not vals.imag.any():
-                vals = vals.real                 # DC, or no reactance: a real factorisation, about twice as fast
+                vals = vals.real  # DC, or no reactance: a real factorisation, about twice as fast
                 real = True
-            if m <= DENSE_NODES:                 # small: a dense LU, faster than SuperLU's set-up
+            if m <= DENSE_NODES:  # small: a dense LU, faster than SuperLU's set-up
                 return Factored(self, f, z, y, keep, DenseFactors(vals, rows, cols, m), real)
-            import scipy.sparse.linalg as spla   # only for a network too large for the dense solve
+            import scipy.sparse.linalg as spla  # only for a network too large for the dense solve
+
             Y = sp.csc_matrix((vals, (rows, cols)), shape=(m, m))
-            # minimum-degree ordering on the symmetric pattern: about half the fill of the default on ground
-            # networks.  Symmetric mode (the elimination tree of Y + Yᵀ, diagonal pivots preferred, threshold
-            # 0.1) suits a nodal matrix: measured 1.2 times faster on a 48,000-node mesh and 15 times faster on
-            # a 16,000-node installation with a hub (same fill, same residual)
-            lu = spla.splu(Y, permc_spec="MMD_AT_PLUS_A", diag_pivot_thresh=0.1, options={"SymmetricMode": True})
+            # minimum-degree ordering on the symmetric pattern: about half the fill of the default
+            # on ground networks.  Symmetric mode (the elimination tree of Y + Yᵀ, diagonal pivots
+            # preferred, threshold
+            # 0.1) suits a nodal matrix: measured 1.2 times faster on a 48,000-node mesh and 15
+            # times faster on a 16,000-node installation with a hub (same fill, same residual)
+            lu = spla.splu(
+                Y,
+                permc_spec="MMD_AT_PLUS_A",
+                diag_pivot_thresh=0.1,
+                options={"SymmetricMode": True},
+            )
         return Factored(self, f, z, y, keep, lu, real)
 
     def solve(self, f: float, injections: np.ndarray, emf: np.ndarray | None = None) -> "Solution":
@@ -224,11 +250,13 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
 
     Parameters:
         plan: the plan.
-        plates: model each metal part with two or more fastening spots as a plate grid (False: a node).
+        plates: model each metal part with two or more fastening spots as a plate grid (False: a
+        node).
     Returns:
         the Circuit: nodes, branches with R and L, references per connected part.
     References:
-        C.-W. Ho, A. Ruehli, P. Brennan, the modified nodal approach (IEEE Trans. Circuits Syst., 1975).
+        C.-W. Ho, A. Ruehli, P. Brennan, the modified nodal approach (IEEE Trans. Circuits Syst.,
+        1975).
     """
     bld = _Builder(plan)
     metals = {m.name: m for m in plan.metals}
@@ -238,7 +266,9 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
         bld.metal(m, fasteners[name], plates)
     for c in conductors:
         bld.conductor(c, metals)
-    return Circuit(bld.nodes, bld.branches, bld.positions, bld.plate_notes, bld.point_node, bld.metal_nodes)
+    return Circuit(
+        bld.nodes, bld.branches, bld.positions, bld.plate_notes, bld.point_node, bld.metal_nodes
+    )
 
 
 def _fasteners(plan: Plan, metals: dict, conductors) -> dict[str, list[tuple[str, XY]]]:
@@ -248,7 +278,9 @@ def _fasteners(plan: Plan, metals: dict, conductors) -> dict[str, list[tuple[str
     for c in conductors:
         for end, other in ((c.a, c.b), (c.b, c.a)):
             if end in metals:
-                where = pos.get(other) if other not in metals else (c.route[0] if c.route else None)
+                where = (
+                    pos.get(other) if other not in metals else (c.route[0] if c.route else None)
+                )
                 if where is None and other in metals:
                     m = metals[end]
                     if m.size is not None:
@@ -269,7 +301,7 @@ class _Builder:
         self.positions: dict[str, XY] = {}
         self.branches: list[Branch] = []
         self.plate_notes: dict[str, dict] = {}
-        self.metal_contact: dict[tuple[str, str], int] = {}      # (metal, conductor) -> node
+        self.metal_contact: dict[tuple[str, str], int] = {}  # (metal, conductor) -> node
         self.metal_nodes: dict[str, tuple[int, ...]] = {}
         self.point_node: dict[str, int] = {}
         for p in plan.points:
@@ -285,10 +317,17 @@ class _Builder:
         return self.index[name]
 
     def metal(self, m, fs: list, plates: bool) -> None:
-        """A metal part: one ideal node, or its contact spots joined by the Kron-reduced plate network."""
+        """A metal part: one ideal node, or its contact spots joined by the Kron-reduced plate
+        network."""
         name = m.name
-        gridable = (plates and m.size is not None and m.material in MATERIALS and len(fs) >= 2
-                    and all(w is not None for _, w in fs) and len(fs) <= 60)
+        gridable = (
+            plates
+            and m.size is not None
+            and m.material in MATERIALS
+            and len(fs) >= 2
+            and all(w is not None for _, w in fs)
+            and len(fs) <= 60
+        )
         if not gridable:
             self.point_node[name] = self.node(name)
             self.metal_nodes[name] = (self.point_node[name],)
@@ -321,23 +360,45 @@ class _Builder:
         x0 = min(m.origin[0], m.origin[0] + m.size[0])
         y0 = min(m.origin[1], m.origin[1] + m.size[1])
         rho = resistivity(m.material, self.T)
-        res = reduce_plate(m.size[0], m.size[1], m.thickness, rho,
-                           [(s[0] - x0, s[1] - y0) for s in spots], [self.nodes[i] for i in spot_nodes])
+        res = reduce_plate(
+            m.size[0],
+            m.size[1],
+            m.thickness,
+            rho,
+            [(s[0] - x0, s[1] - y0) for s in spots],
+            [self.nodes[i] for i in spot_nodes],
+        )
         G = res.conductance
         for i in range(len(spots)):
             for j in range(i + 1, len(spots)):
                 g = -G[i, j]
                 if g > 1e-12 * abs(G[i, i]):
-                    self.branches.append(Branch(spot_nodes[i], spot_nodes[j], f"plate:{m.name}:{i + 1}~{j + 1}",
-                                                1.0 / g, rho=rho, path=(spots[i], spots[j]),
-                                                metal=m.name, sheet=m.thickness,
-                                                mu_r=permeability(m)))
-        self.plate_notes[m.name] = {"model": "plate grid", "fasteners": len(spots), "grid_step_mm": res.step * 1e3,
-                                    "estimated_error": res.error}
+                    self.branches.append(
+                        Branch(
+                            spot_nodes[i],
+                            spot_nodes[j],
+                            f"plate:{m.name}:{i + 1}~{j + 1}",
+                            1.0 / g,
+                            rho=rho,
+                            path=(spots[i], spots[j]),
+                            metal=m.name,
+                            sheet=m.thickness,
+                            mu_r=permeability(m),
+                        )
+                    )
+        self.plate_notes[m.name] = {
+            "model": "plate grid",
+            "fasteners": len(spots),
+            "grid_step_mm": res.step * 1e3,
+            "estimated_error": res.error,
+        }
 
     def conductor(self, c, metals: dict) -> None:
         r, ind, radius = conductor_resistance(c, self.T)
-        ends = [self.metal_contact[(end, c.name)] if end in metals else self.point_node[end] for end in (c.a, c.b)]
+        ends = [
+            self.metal_contact[(end, c.name)] if end in metals else self.point_node[end]
+            for end in (c.a, c.b)
+        ]
         rho = resistivity(c.material if c.material in MATERIALS else "copper", self.T)
         path = _segment_path(self.plan, c, self.pos)
         if not path:
@@ -345,5 +406,17 @@ class _Builder:
             pb = self.positions.get(self.nodes[ends[1]])
             if pa is not None and pb is not None and is_fastening_kind(c.kind):
                 path = (pa, pb)
-        self.branches.append(Branch(ends[0], ends[1], c.name, r, ind, radius, rho,
-                                    c.capacitance if is_lift(c) else None, path, c.name))
+        self.branches.append(
+            Branch(
+                ends[0],
+                ends[1],
+                c.name,
+                r,
+                ind,
+                radius,
+                rho,
+                c.capacitance if is_lift(c) else None,
+                path,
+                c.name,
+            )
+        )

@@ -1,5 +1,5 @@
-"""An installation's device earth paths: each placed device's protective path from its earth pin to the main
-earthing terminal (cord, strips, the building's protective wiring), for GC215."""
+"""An installation's device earth paths: each placed device's protective path from its earth pin to
+the main earthing terminal (cord, strips, the building's protective wiring), for GC215."""
 
 from __future__ import annotations
 
@@ -17,22 +17,28 @@ __all__ = ["DeviceEarth", "installation_earths"]
 
 @dataclass(frozen=True)
 class DeviceEarth:
-    """An installation device's protective path from its earth pin to the main earthing terminal."""
+    """An installation device's protective path from its earth pin to the main earthing
+    terminal."""
 
     device: str
     inlet: str
-    resistance: float | None         # Ω, None when the path is broken
+    resistance: float | None  # Ω, None when the path is broken
 
     def as_dict(self) -> dict:
-        return {"device": self.device, "inlet": self.inlet,
-                "resistance_ohm": None if self.resistance is None else round(self.resistance, 6)}
+        return {
+            "device": self.device,
+            "inlet": self.inlet,
+            "resistance_ohm": None if self.resistance is None else round(self.resistance, 6),
+        }
 
 
 #: devices' earth paths solved together (each a column of nodes)
 EARTH_COLUMNS = 64
 
 
-def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tuple[DeviceEarth, ...] | None:
+def installation_earths(
+    plan: Plan, route: ProtectiveRoute, circuit=None
+) -> tuple[DeviceEarth, ...] | None:
     """Each placed device's earth-pin path to the main earthing terminal; None when the plan has no
     placed device or no point of kind ``earthing-terminal``.
 
@@ -45,10 +51,13 @@ def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tup
     References:
         IEC 60364-5-54.
     """
-    class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}     # no earth pin to check
-    class_ii |= separated_devices(plan)   # on a floating secondary: no earth path by design
-    inlets = sorted(p.name for p in plan.points if p.kind == "inlet" and p.name != PE_POINT
-                    and p.name.split(".", 1)[0] not in class_ii)
+    class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}  # no earth pin to check
+    class_ii |= separated_devices(plan)  # on a floating secondary: no earth path by design
+    inlets = sorted(
+        p.name
+        for p in plan.points
+        if p.kind == "inlet" and p.name != PE_POINT and p.name.split(".", 1)[0] not in class_ii
+    )
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
     if not inlets or not mets:
         return None
@@ -58,8 +67,10 @@ def installation_earths(plan: Plan, route: ProtectiveRoute, circuit=None) -> tup
     reach = [n for n in inlets if labels[circ.point_node[n]] == labels[met] and n in route.reached]
     R: dict[str, float] = {}
     factored = circ.at(0.0) if reach else None
-    for lo in range(0, len(reach), EARTH_COLUMNS):      # in slices: nodes × devices would not fit in memory
-        part = reach[lo:lo + EARTH_COLUMNS]
+    for lo in range(
+        0, len(reach), EARTH_COLUMNS
+    ):  # in slices: nodes × devices would not fit in memory
+        part = reach[lo : lo + EARTH_COLUMNS]
         J = np.zeros((len(circ.nodes), len(part)), dtype=complex)
         for k, n in enumerate(part):
             J[circ.point_node[n], k] += 1.0

@@ -102,13 +102,24 @@ def feedback_rows(raw: dict, rated: float) -> list[dict]:
     References:
         decibels of a voltage ratio, 20·log10 (IEC 60027-3).
     """
-    heard = {k[0] for k, (total, ahead) in raw.items()
-             if max(_db(abs(total), rated), _db(abs(ahead), rated)) > FEEDBACK_FLOOR_DB}
+    heard = {
+        k[0]
+        for k, (total, ahead) in raw.items()
+        if max(_db(abs(total), rated), _db(abs(ahead), rated)) > FEEDBACK_FLOOR_DB
+    }
     rows = []
     for (name, ch, f), (total, ahead) in sorted(raw.items(), key=lambda kv: (kv[0][0], kv[0][2])):
-        if name not in heard:         # nothing of it reaches its own channel's stages
+        if name not in heard:  # nothing of it reaches its own channel's stages
             continue
-        rows.append({"source": name, "channel": ch, "frequency_hz": f, "volts": float(abs(total)),
-                     "db": round(_db(abs(total), rated), 2), "input_volts": float(abs(ahead)),
-                     "input_db": round(_db(abs(ahead), rated), 2)})
+        rows.append(
+            {
+                "source": name,
+                "channel": ch,
+                "frequency_hz": f,
+                "volts": float(abs(total)),
+                "db": round(_db(abs(total), rated), 2),
+                "input_volts": float(abs(ahead)),
+                "input_db": round(_db(abs(ahead), rated), 2),
+            }
+        )
     return rows

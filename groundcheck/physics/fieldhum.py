@@ -1,12 +1,14 @@
-"""The loops' pickup at the outputs: each field source's direction per channel, and what it puts there.
+"""The loops' pickup at the outputs: each field source's direction per channel, and what it puts
+there.
 
-The frequencies' solves give, per unit flux through each loop, the drop it leaves across every stage (at the
-output) and the loop's current (:meth:`groundcheck.physics.hum.HumBudget._pickup`).  Here each field source's
-fluxes are applied: for each channel its stated axis, or the direction worst at that channel's output
-(:func:`groundcheck.physics.orient.worst_axis`, the threshold-weighted total); the channel's hum from the source
-at each frequency is Σ_k |Σ_l D_kl·Φ_l| over its stages (added in magnitude, as a stage may invert; the loops of
-one source add as phasors, their EMFs having one phase).  Each loop's row in the pickup table gives the EMF at
-the direction that puts the most flux through that loop alone (or the stated axis).
+The frequencies' solves give, per unit flux through each loop, the drop it leaves across every
+stage (at the output) and the loop's current (:meth:`groundcheck.physics.hum.HumBudget._pickup`).
+Here each field source's fluxes are applied: for each channel its stated axis, or the direction
+worst at that channel's output (:func:`groundcheck.physics.orient.worst_axis`, the
+threshold-weighted total); the channel's hum from the source at each frequency is Σ_k |Σ_l
+D_kl·Φ_l| over its stages (added in magnitude, as a stage may invert; the loops of one source add
+as phasors, their EMFs having one phase).  Each loop's row in the pickup table gives the EMF at the
+direction that puts the most flux through that loop alone (or the stated axis).
 
 References: Faraday's law; :mod:`groundcheck.physics.orient`; ISO 226:2003 (the weights).
 """
@@ -29,20 +31,23 @@ MEASURE_RMS = "rms total"
 
 
 def _spectrum(src, f0: float, freqs) -> list[tuple[float, float]]:
-    """(frequency, level relative to the fundamental) of the source's lines among the solved frequencies."""
+    """(frequency, level relative to the fundamental) of the source's lines among the solved
+    frequencies."""
     scale = {1: 1.0, **{n: ratio for n, ratio in src.harmonics}}
     return [(f, ratio) for n, ratio in scale.items() for f in freqs if abs(n * f0 - f) <= 1e-9]
 
 
 def field_pickup(b, merged) -> dict[str, list[dict]]:
-    """Apply every field source's fluxes to the merged budget: each channel's output groups and contributors,
-    and the pickup table's rows; return each channel's directions.
+    """Apply every field source's fluxes to the merged budget: each channel's output groups and
+    contributors, and the pickup table's rows; return each channel's directions.
 
     Parameters:
         b: the hum budget (:class:`groundcheck.physics.hum.HumBudget`).
-        merged: its merged frequencies (:class:`groundcheck.physics.humtotals.Merged`), with ``pickup``.
+        merged: its merged frequencies (:class:`groundcheck.physics.humtotals.Merged`), with
+        ``pickup``.
     Returns:
-        channel -> one row per oriented field source: the direction used and the hum it and the axes give.
+        channel -> one row per oriented field source: the direction used and the hum it and the
+        axes give.
     References:
         the module's description.
     """
@@ -51,9 +56,14 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
         return out
     freqs = sorted(merged.pickup)
     verdict = b.listening is not None and b.listening.verdict
-    weight = {f: 10 ** (-heard_threshold(f, b.listening.background) / 10) if verdict else 1.0 for f in freqs}
-    stages = {ch: [k for k, st in enumerate(b.stages) if b.valid_stage[k] and st.channel == ch]
-              for ch in b.channels}
+    weight = {
+        f: 10 ** (-heard_threshold(f, b.listening.background) / 10) if verdict else 1.0
+        for f in freqs
+    }
+    stages = {
+        ch: [k for k, st in enumerate(b.stages) if b.valid_stage[k] and st.channel == ch]
+        for ch in b.channels
+    }
     for name, model in b.models.items():
         src = b.fields[name]
         spectrum = _spectrum(src, b.f0, freqs)
@@ -62,15 +72,27 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
         for ch, ks in stages.items():
             parts = [(ratio * merged.pickup[f][0][ks], weight[f]) for f, ratio in spectrum]
             if model.oriented and not any(np.any(G) for G, _ in parts):
-                continue                          # no stage of the channel reads any loop: nothing to add
+                continue  # no stage of the channel reads any loop: nothing to add
             if model.oriented:
-                m, row = _channel_axis(model, parts, src, MEASURE_WEIGHTED if verdict else MEASURE_RMS)
-                if row["worst_level_v"] >= FLOOR_V:   # below, the source puts nothing at this output
+                m, row = _channel_axis(
+                    model, parts, src, MEASURE_WEIGHTED if verdict else MEASURE_RMS
+                )
+                if (
+                    row["worst_level_v"] >= FLOOR_V
+                ):  # below, the source puts nothing at this output
                     out[ch].append(row)
                 phi = model.fluxes(m)[0]
             else:
                 phi = model.fixed
-            _apply(b, merged, ch, ks, f"field:{name}", [(f, r, merged.pickup[f][0]) for f, r in spectrum], phi)
+            _apply(
+                b,
+                merged,
+                ch,
+                ks,
+                f"field:{name}",
+                [(f, r, merged.pickup[f][0]) for f, r in spectrum],
+                phi,
+            )
         _loop_rows(b, merged, model, spectrum)
     return out
 
@@ -81,7 +103,8 @@ def _level(model, parts, m) -> float:
 
 
 def _channel_axis(model, parts, src, measure_name: str) -> tuple[np.ndarray, dict]:
-    """The direction used for one channel (stated, or worst at its output) and the channel's row."""
+    """The direction used for one channel (stated, or worst at its output) and the channel's
+    row."""
     worst = _quadratic_worst(model, parts)
     if worst is None:
         worst, _ = worst_axis(model, channel_objective(parts))
@@ -90,18 +113,28 @@ def _channel_axis(model, parts, src, measure_name: str) -> tuple[np.ndarray, dic
     axes = {}
     for word, vec in AXES.items():
         v = np.array(vec, dtype=float)
-        axes[word] = _level(model, parts, v) if np.allclose(model.admit(v[None, :])[0], v) else None
-    return used, {"source": src.name, "model": model.model, "axis_stated": src.axis,
-                  "axis": [round(float(x), 4) for x in used],
-                  "chosen": "stated" if stated is not None else "worst at the output", "measure": measure_name,
-                  "level_v": _level(model, parts, used), "worst_axis": [round(float(x), 4) for x in worst],
-                  "worst_level_v": _level(model, parts, worst), "axes_v": axes}
+        axes[word] = (
+            _level(model, parts, v) if np.allclose(model.admit(v[None, :])[0], v) else None
+        )
+    return used, {
+        "source": src.name,
+        "model": model.model,
+        "axis_stated": src.axis,
+        "axis": [round(float(x), 4) for x in used],
+        "chosen": "stated" if stated is not None else "worst at the output",
+        "measure": measure_name,
+        "level_v": _level(model, parts, used),
+        "worst_axis": [round(float(x), 4) for x in worst],
+        "worst_level_v": _level(model, parts, worst),
+        "axes_v": axes,
+    }
 
 
 def _apply(b, merged, ch: str, ks: list, group: str, spectrum, phi: np.ndarray) -> None:
-    """Add a source's drops, for the fluxes phi, to the channel's output group, worst case and contributors."""
+    """Add a source's drops, for the fluxes phi, to the channel's output group, worst case and
+    contributors."""
     for f, ratio, D in spectrum:
-        drops = ratio * D[ks] * phi[None, :]                        # the channel's stages × loops
+        drops = ratio * D[ks] * phi[None, :]  # the channel's stages × loops
         per_stage = drops.sum(axis=1)
         merged.out[ch][f][group] += complex(per_stage.sum())
         merged.in_phase[ch][f][group] += float(np.abs(per_stage).sum())
@@ -112,8 +145,8 @@ def _apply(b, merged, ch: str, ks: list, group: str, spectrum, phi: np.ndarray) 
 
 
 def _loop_rows(b, merged, model, spectrum) -> None:
-    """The pickup table's rows of one source: per loop, the EMF and current at each frequency for the direction
-    that puts the most flux through that loop alone (or the stated axis)."""
+    """The pickup table's rows of one source: per loop, the EMF and current at each frequency for
+    the direction that puts the most flux through that loop alone (or the stated axis)."""
     src = b.fields[model.src.name]
     stated = stated_axis(src) if model.oriented else None
     for col, li in enumerate(model.loops):
@@ -123,20 +156,36 @@ def _loop_rows(b, merged, model, spectrum) -> None:
             m = stated if stated is not None else _loop_worst(model, col)
             phi = float(model.fluxes(m)[0, col])
         info = b.loops[li]
-        row = merged.loop_rows.setdefault(li, {"loop": li + 1, "members": list(info.loop.nodes),
-                                               "closed_by": info.closed_by,
-                                               "area_mm2": None if info.area is None else round(info.area * 1e6, 2),
-                                               "sources": {}})
+        row = merged.loop_rows.setdefault(
+            li,
+            {
+                "loop": li + 1,
+                "members": list(info.loop.nodes),
+                "closed_by": info.closed_by,
+                "area_mm2": None if info.area is None else round(info.area * 1e6, 2),
+                "sources": {},
+            },
+        )
         row["sources"][src.name] = {
             # a loop of no area to speak of (its conductors in line) has no mean flux density
-            "flux_density_equiv_t": abs(phi) / info.area if (info.area or 0) > AREA_FLOOR else None,
+            "flux_density_equiv_t": abs(phi) / info.area
+            if (info.area or 0) > AREA_FLOOR
+            else None,
             "closest_mm": round(b.closest(src.name, info.polygon) * 1e3, 1),
-            "height_mm": round(src.height * 1e3, 3), "axis": [round(float(x), 4) for x in m],
-            "axis_stated": src.axis, "model": model.model,
+            "height_mm": round(src.height * 1e3, 3),
+            "axis": [round(float(x), 4) for x in m],
+            "axis_stated": src.axis,
+            "model": model.model,
             "size_mm": None if src.size is None else round(src.size * 1e3, 3),
-            "per_frequency": [{"frequency_hz": f, "emf_v": 2 * math.pi * f * abs(ratio * phi),
-                               "current_a": float(abs(ratio * phi * merged.pickup[f][1][col]))}
-                              for f, ratio in spectrum]}
+            "per_frequency": [
+                {
+                    "frequency_hz": f,
+                    "emf_v": 2 * math.pi * f * abs(ratio * phi),
+                    "current_a": float(abs(ratio * phi * merged.pickup[f][1][col])),
+                }
+                for f, ratio in spectrum
+            ],
+        }
 
 
 #: a loop's outline enclosing less than this (m²: 1 µm², rounding on collinear conductors) has
@@ -149,8 +198,8 @@ FLUX_FLOOR = 1e-15
 
 
 def _loop_worst(model, col: int) -> np.ndarray:
-    """The direction that puts the most flux through one loop: for the dipole F/|F| (Cauchy–Schwarz, the flux
-    being F·m̂), for the ring the search."""
+    """The direction that puts the most flux through one loop: for the dipole F/|F|
+    (Cauchy–Schwarz, the flux being F·m̂), for the ring the search."""
     if model.F is None:
         m, top = worst_axis(model.only(col), lambda p: p[:, 0] ** 2)
         # a loop with no flux to speak of has no worst direction: its search meets rounding only
@@ -165,8 +214,9 @@ def _loop_worst(model, col: int) -> np.ndarray:
 
 
 def _quadratic_worst(model, parts) -> np.ndarray | None:
-    """For the dipole and a channel of one stage the measure is a quadratic form, Σ_f w·|c_f·m̂|² = m̂ᵀ·S·m̂ with
-    S = Σ_f w·Re(c̄_f c_fᵀ), c_f = G_f·F: its largest eigenvector, exactly (the Rayleigh quotient); else None."""
+    """For the dipole and a channel of one stage the measure is a quadratic form, Σ_f w·|c_f·m̂|² =
+    m̂ᵀ·S·m̂ with S = Σ_f w·Re(c̄_f c_fᵀ), c_f = G_f·F: its largest eigenvector, exactly (the
+    Rayleigh quotient); else None."""
     if model.F is None or any(G.shape[0] != 1 for G, _ in parts):
         return None
     S = np.zeros((3, 3))

@@ -28,8 +28,18 @@ from __future__ import annotations
 
 import math
 
-__all__ = ["adiabatic_temperature", "steady_temperature", "surface_loss", "air", "ADIABATIC",
-           "MELTING", "AIR", "EMISSIVITY", "INSULATION_THICKNESS", "THERMAL_RESISTIVITY"]
+__all__ = [
+    "adiabatic_temperature",
+    "steady_temperature",
+    "surface_loss",
+    "air",
+    "ADIABATIC",
+    "MELTING",
+    "AIR",
+    "EMISSIVITY",
+    "INSULATION_THICKNESS",
+    "THERMAL_RESISTIVITY",
+]
 
 #: IEC 60949 Table 1: K (A·√s/mm²) and β (K); copper also IEC 60364-5-54 Annex A; aluminium from
 #: memory
@@ -40,15 +50,17 @@ MELTING = 1084.6
 
 #: air at 1 atm (Incropera & DeWitt, Table A.4, from memory):
 #: T (K), ν (m²/s), k (W/(m·K)), α (m²/s), Pr
-AIR = ((250.0, 11.44e-6, 22.3e-3, 15.9e-6, 0.720),
-       (300.0, 15.89e-6, 26.3e-3, 22.5e-6, 0.707),
-       (350.0, 20.92e-6, 30.0e-3, 29.9e-6, 0.700),
-       (400.0, 26.41e-6, 33.8e-3, 38.3e-6, 0.690),
-       (450.0, 32.39e-6, 37.3e-3, 47.2e-6, 0.686),
-       (500.0, 38.79e-6, 40.7e-3, 56.7e-6, 0.684),
-       (600.0, 52.69e-6, 46.9e-3, 76.9e-6, 0.685),
-       (700.0, 68.10e-6, 52.4e-3, 98.8e-6, 0.695),
-       (800.0, 84.93e-6, 57.3e-3, 120.0e-6, 0.709))
+AIR = (
+    (250.0, 11.44e-6, 22.3e-3, 15.9e-6, 0.720),
+    (300.0, 15.89e-6, 26.3e-3, 22.5e-6, 0.707),
+    (350.0, 20.92e-6, 30.0e-3, 29.9e-6, 0.700),
+    (400.0, 26.41e-6, 33.8e-3, 38.3e-6, 0.690),
+    (450.0, 32.39e-6, 37.3e-3, 47.2e-6, 0.686),
+    (500.0, 38.79e-6, 40.7e-3, 56.7e-6, 0.684),
+    (600.0, 52.69e-6, 46.9e-3, 76.9e-6, 0.685),
+    (700.0, 68.10e-6, 52.4e-3, 98.8e-6, 0.695),
+    (800.0, 84.93e-6, 57.3e-3, 120.0e-6, 0.709),
+)
 
 #: surface emissivity (from memory): insulated wire; clean bare copper (the low end, cooling least)
 EMISSIVITY = {"pvc": 0.9, "xlpe": 0.9, "bare": 0.05}
@@ -61,8 +73,9 @@ STEFAN_BOLTZMANN = 5.670e-8
 GRAVITY = 9.81
 
 
-def adiabatic_temperature(material: str, current: float, duration: float, area: float,
-                          start: float) -> float | None:
+def adiabatic_temperature(
+    material: str, current: float, duration: float, area: float, start: float
+) -> float | None:
     """Temperature after ``duration`` with no heat lost, °C (infinite at or above the melting
     point); None for a material without IEC 60949 constants.
 
@@ -128,14 +141,22 @@ def surface_loss(surface: float, ambient: float, diameter: float, emissivity: fl
     ts, ta = surface + 273.15, ambient + 273.15
     film = (ts + ta) / 2.0
     nu, k, alpha, pr = air(film)
-    ra = GRAVITY * dt * diameter ** 3 / (film * nu * alpha)
+    ra = GRAVITY * dt * diameter**3 / (film * nu * alpha)
     nusselt = (0.60 + 0.387 * ra ** (1 / 6) / (1 + (0.559 / pr) ** (9 / 16)) ** (8 / 27)) ** 2
     h = nusselt * k / diameter + emissivity * STEFAN_BOLTZMANN * (ts * ts + ta * ta) * (ts + ta)
     return math.pi * diameter * h * dt
 
 
-def steady_temperature(current: float, area: float, diameter: float, wall: float,
-                       insulation: str, rho20: float, alpha: float, ambient: float) -> float:
+def steady_temperature(
+    current: float,
+    area: float,
+    diameter: float,
+    wall: float,
+    insulation: str,
+    rho20: float,
+    alpha: float,
+    ambient: float,
+) -> float:
     """The conductor's steady-state temperature in still free air, °C (infinite when it would
     reach the melting point first).
 
@@ -160,7 +181,7 @@ def steady_temperature(current: float, area: float, diameter: float, wall: float
     t1 = THERMAL_RESISTIVITY.get(insulation, 0.0) * math.log(outer / diameter) / (2 * math.pi)
     eps = EMISSIVITY.get(insulation, 0.9)
 
-    def excess(tc: float) -> float:     # heat made minus heat shed, W/m: positive at the ambient
+    def excess(tc: float) -> float:  # heat made minus heat shed, W/m: positive at the ambient
         q = current * current * rho20 * (1 + alpha * (tc - 20.0)) / area
         return q - surface_loss(tc - q * t1, ambient, outer, eps)
 

@@ -1,7 +1,7 @@
 """The settings of the hum and buzz budget, with their defaults: the one home of these defaults.
 
-Kept apart from :mod:`groundcheck.physics.hum` so that the analysis options and the command line can read the
-defaults without importing the numeric stack.
+Kept apart from :mod:`groundcheck.physics.hum` so that the analysis options and the command line
+can read the defaults without importing the numeric stack.
 """
 
 from __future__ import annotations

@@ -1,5 +1,6 @@
-"""The hum budget's totals: the frequencies' parts merged per channel (spectrum, worst case and signed sum,
-contributors with signed shares), the loops' pickup rows and the crosstalk, and the result types.
+"""The hum budget's totals: the frequencies' parts merged per channel (spectrum, worst case and
+signed sum, contributors with signed shares), the loops' pickup rows and the crosstalk, and the
+result types.
 
 See :mod:`groundcheck.physics.hum` for how the parts are computed and combined.
 """
@@ -26,16 +27,19 @@ CROSSTALK_FLOOR_DB = -200.0
 @dataclass
 class ChannelHum:
     channel: str
-    spectrum: list[dict]                 # per frequency: volts, dbv, spl, threshold, margin
+    spectrum: list[dict]  # per frequency: volts, dbv, spl, threshold, margin
     total_v: float
     rated_output: float
     contributors: list[dict]
     audible: bool | None
-    margin_db: float | None              # worst SPL − threshold, dB (positive: audible)
-    signed_v: float = 0.0                # the network's own sum, every stage taken as non-inverting
-    field_axes: list = field(default_factory=list)   # per field source: the direction used and the hum it gives
-    # each contributor's phasor at the output per frequency: (kind, element, group) -> {Hz: complex V};
-    # the spectra a bench recording is fitted on (not in the JSON: the contributors' rows summarise it)
+    margin_db: float | None  # worst SPL − threshold, dB (positive: audible)
+    signed_v: float = 0.0  # the network's own sum, every stage taken as non-inverting
+    field_axes: list = field(
+        default_factory=list
+    )  # per field source: the direction used and the hum it gives
+    # each contributor's phasor at the output per frequency: (kind, element, group) -> {Hz: complex
+    # V}; the spectra a bench recording is fitted on (not in the JSON: the contributors' rows
+    # summarise it)
     lines: dict = field(default_factory=dict)
 
     @property
@@ -47,11 +51,20 @@ class ChannelHum:
         return math.inf if self.total_v <= 0 else db_of_ratio(self.rated_output / self.total_v)
 
     def as_dict(self) -> dict:
-        return {"channel": self.channel, "total_v": self.total_v, "total_dbv": rounded(self.total_dbv),
-                "total_signed_v": self.signed_v, "total_signed_dbv": rounded(dbv(self.signed_v)),
-                "signal_to_hum_db": rounded(self.signal_to_hum), "rated_output_v": self.rated_output,
-                "audible": self.audible, "margin_db": rounded(self.margin_db), "spectrum": self.spectrum,
-                "contributors": self.contributors, "field_axes": self.field_axes}
+        return {
+            "channel": self.channel,
+            "total_v": self.total_v,
+            "total_dbv": rounded(self.total_dbv),
+            "total_signed_v": self.signed_v,
+            "total_signed_dbv": rounded(dbv(self.signed_v)),
+            "signal_to_hum_db": rounded(self.signal_to_hum),
+            "rated_output_v": self.rated_output,
+            "audible": self.audible,
+            "margin_db": rounded(self.margin_db),
+            "spectrum": self.spectrum,
+            "contributors": self.contributors,
+            "field_axes": self.field_axes,
+        }
 
 
 def rounded(x, d=2):
@@ -79,36 +92,47 @@ class HumResult:
     loops: list[dict]
     crosstalk: list[dict]
     frequencies: list[float]
-    network: list[dict] = field(default_factory=list)     # per source: conductor currents and drops
+    network: list[dict] = field(default_factory=list)  # per source: conductor currents and drops
     notes: list[str] = field(default_factory=list)
-    probes: dict = field(default_factory=dict)    # frequency -> power sum over the sources of each probe pair, V²
-    # channel -> source group -> its worst-case level at the output, V: per frequency the larger of its stages'
-    # drops added in magnitude and its signed sum, power-summed over frequencies ('rectifier charging' or
-    # 'KIND:NAME', as in the contributors)
+    probes: dict = field(
+        default_factory=dict
+    )  # frequency -> power sum over the sources of each probe pair, V²
+    # channel -> source group -> its worst-case level at the output, V: per frequency the larger of
+    # its stages' drops added in magnitude and its signed sum, power-summed over frequencies
+    # ('rectifier charging' or 'KIND:NAME', as in the contributors)
     levels: dict = field(default_factory=dict)
     # per signal current and frequency: its own channel's stages reading it (physics/feedback.py)
     feedback: list[dict] = field(default_factory=list)
 
     def as_dict(self) -> dict:
-        return {"frequencies_hz": self.frequencies, "channels": {k: v.as_dict() for k, v in self.channels.items()},
-                "rectifiers": [r.as_dict() for r in self.rectifiers], "loops": self.loops,
-                "crosstalk": self.crosstalk, "feedback": self.feedback, "notes": self.notes}
+        return {
+            "frequencies_hz": self.frequencies,
+            "channels": {k: v.as_dict() for k, v in self.channels.items()},
+            "rectifiers": [r.as_dict() for r in self.rectifiers],
+            "loops": self.loops,
+            "crosstalk": self.crosstalk,
+            "feedback": self.feedback,
+            "notes": self.notes,
+        }
 
 
 class Merged:
-    """The frequencies' parts merged in ascending order: per channel, per frequency, group -> phasor at the output."""
+    """The frequencies' parts merged in ascending order: per channel, per frequency, group ->
+    phasor at the output."""
 
-    def __init__(self, b):               # the budget of groundcheck.physics.hum
+    def __init__(self, b):  # the budget of groundcheck.physics.hum
         self.b = b
         self.out = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}
-        self.contrib = {ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels}   # (label) -> f -> phasor
+        self.contrib = {
+            ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels
+        }  # (label) -> f -> phasor
         self.loop_rows: dict[int, dict] = {}
         self.network_rows: list[dict] = []
         self.probes: dict = {}
         self.crosstalk_raw = defaultdict(complex)
         self.feedback_raw: dict = {}
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
-        self.pickup: dict = {}           # frequency -> the loops' drops and currents per unit flux
+        self.pickup: dict = {}  # frequency -> the loops' drops and currents per unit flux
 
     def add(self, f: float, part) -> None:
         for ch, group, mag in part.in_phase:
@@ -128,8 +152,9 @@ class Merged:
             self.feedback_raw[(name, ch, f)] = (total, ahead)
 
     def channel(self, ch: str, axes=()) -> ChannelHum:
-        """A channel's spectrum (power sum of its groups per frequency), total, contributors and verdict; ``axes``:
-        each field source's direction for the channel (:func:`groundcheck.physics.fieldhum.field_pickup`)."""
+        """A channel's spectrum (power sum of its groups per frequency), total, contributors and
+        verdict; ``axes``: each field source's direction for the channel
+        (:func:`groundcheck.physics.fieldhum.field_pickup`)."""
         listening = self.b.listening
         spectrum = []
         total2 = signed2 = 0.0
@@ -140,7 +165,9 @@ class Merged:
             v = v if v >= FLOOR_V else 0.0
             signed = v
             w = math.sqrt(sum(x * x for x in self.in_phase[ch].get(f, {}).values()))
-            v = max(w, signed) if w >= FLOOR_V else signed       # the worst case: every stage's drop in phase
+            v = (
+                max(w, signed) if w >= FLOOR_V else signed
+            )  # the worst case: every stage's drop in phase
             total2 += v * v
             signed2 += signed * signed
             row = {"frequency_hz": f, "volts": v, "dbv": rounded(dbv(v)), "volts_signed": signed}
@@ -156,13 +183,26 @@ class Merged:
         audible = None if worst is None else worst > 0
         if listening is not None and listening.verdict and worst is None:
             audible, worst = False, None
-        lines = {(kind, name, group): dict(per_f)
-                 for (kind, name, group), per_f in self.contrib[ch].items()}
-        return ChannelHum(ch, spectrum, total, self.b.rated, clist, audible, worst, math.sqrt(signed2),
-                          list(axes), lines)
+        lines = {
+            (kind, name, group): dict(per_f)
+            for (kind, name, group), per_f in self.contrib[ch].items()
+        }
+        return ChannelHum(
+            ch,
+            spectrum,
+            total,
+            self.b.rated,
+            clist,
+            audible,
+            worst,
+            math.sqrt(signed2),
+            list(axes),
+            lines,
+        )
 
     def levels(self) -> dict:
-        """Each source group's worst-case level at each channel's output, V (see :attr:`HumResult.levels`)."""
+        """Each source group's worst-case level at each channel's output, V (see
+        :attr:`HumResult.levels`)."""
         out: dict = {}
         for ch in self.b.channels:
             power: dict = defaultdict(float)
@@ -174,14 +214,16 @@ class Merged:
         return out
 
     def _contributors(self, ch: str) -> list[dict]:
-        """The channel's contributors with their level and their signed share of the channel's (signed) hum power:
-        the projection of each one's phasors on its group's total, so that the shares add up to 100 % and a
-        contribution that cancels part of the others has a negative share."""
+        """The channel's contributors with their level and their signed share of the channel's
+        (signed) hum power: the projection of each one's phasors on its group's total, so that the
+        shares add up to 100 % and a contribution that cancels part of the others has a negative
+        share."""
         clist = []
         out = self.out[ch]
         sqrt = math.sqrt
         for (kind, name, group), per_f in self.contrib[ch].items():
-            # the sums written out (most contributors have one or two frequencies; the same arithmetic as sum())
+            # the sums written out (most contributors have one or two frequencies; the same
+            # arithmetic as sum())
             power = proj = 0.0
             for f, p in per_f.items():
                 power += abs(p) ** 2
@@ -189,16 +231,26 @@ class Merged:
             lvl = sqrt(power)
             if lvl < FLOOR_V:
                 continue
-            clist.append({"kind": kind, "element": name, "source": group.split(":", 1)[-1], "volts": lvl,
-                          "dbv": rounded(dbv(lvl)), "_proj": proj})
+            clist.append(
+                {
+                    "kind": kind,
+                    "element": name,
+                    "source": group.split(":", 1)[-1],
+                    "volts": lvl,
+                    "dbv": rounded(dbv(lvl)),
+                    "_proj": proj,
+                }
+            )
         total = sum(abs(p) ** 2 for groups in out.values() for p in groups.values()) or 1.0
         for c in clist:
             share = round(100 * c.pop("_proj") / total, 1)
             c["share_pct"] = share if abs(share) >= 0.05 else 0.0
         clist.sort(key=lambda c: (-c["volts"], c["element"]))
         if any(c["share_pct"] < 0 for c in clist):
-            self.b.notes.append(f"in {ch}, some contributions have negative shares: their drops oppose the others' "
-                                "along the stage's path and cancel part of them")
+            self.b.notes.append(
+                f"in {ch}, some contributions have negative shares: their drops oppose the "
+                "others' along the stage's path and cancel part of them"
+            )
         return clist
 
     def feedback(self) -> list[dict]:
@@ -207,9 +259,18 @@ class Merged:
     def crosstalk(self) -> list[dict]:
         rated = self.b.rated
         out = []
-        for (src_ch, dst_ch, f), v in sorted(self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1],
-                                                                                         kv[0][2])):
-            out.append({"from": src_ch, "to": dst_ch, "frequency_hz": f, "volts": float(abs(v)),
-                        "db": rounded(max(CROSSTALK_FLOOR_DB,
-                                     db_of_ratio(abs(v) / rated))) if abs(v) > 0 else CROSSTALK_FLOOR_DB})
+        for (src_ch, dst_ch, f), v in sorted(
+            self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])
+        ):
+            out.append(
+                {
+                    "from": src_ch,
+                    "to": dst_ch,
+                    "frequency_hz": f,
+                    "volts": float(abs(v)),
+                    "db": rounded(max(CROSSTALK_FLOOR_DB, db_of_ratio(abs(v) / rated)))
+                    if abs(v) > 0
+                    else CROSSTALK_FLOOR_DB,
+                }
+            )
         return out

@@ -13,9 +13,19 @@ import numpy as np
 from ..model.kinds import KINDS
 from .special_functions import bessel_skin_ratio
 
-__all__ = ["MATERIALS", "resistivity", "wire_inductance", "strip_inductance", "skin_depth",
-           "skin_ratio", "MU0", "MIN_IMPEDANCE", "DEFAULT_SWITCH_CONTACT", "FASTENER_RADIUS",
-           "conductor_resistance"]
+__all__ = [
+    "MATERIALS",
+    "resistivity",
+    "wire_inductance",
+    "strip_inductance",
+    "skin_depth",
+    "skin_ratio",
+    "MU0",
+    "MIN_IMPEDANCE",
+    "DEFAULT_SWITCH_CONTACT",
+    "FASTENER_RADIUS",
+    "conductor_resistance",
+]
 
 MU0 = 4e-7 * math.pi
 
@@ -24,21 +34,32 @@ MATERIALS: dict[str, tuple[float, float, str]] = {
     "copper": (1.7241e-8, 0.00393, "IEC 60028, annealed copper 100 % IACS"),
     "aluminium": (2.65e-8, 0.0039, "CRC Handbook, pure aluminium"),
     "aluminium-1350": (2.8264e-8, 0.00403, "IEC 60889, hard-drawn aluminium"),
-    "aluminium-5052": (4.99e-8, 0.0039, "ASM Handbook vol. 2 (from memory); alpha of pure aluminium assumed"),
-    "aluminium-6061": (3.99e-8, 0.0039, "ASM Handbook vol. 2 (from memory); alpha of pure aluminium assumed"),
+    "aluminium-5052": (
+        4.99e-8,
+        0.0039,
+        "ASM Handbook vol. 2 (from memory); alpha of pure aluminium assumed",
+    ),
+    "aluminium-6061": (
+        3.99e-8,
+        0.0039,
+        "ASM Handbook vol. 2 (from memory); alpha of pure aluminium assumed",
+    ),
     "brass": (5.99e-8, 0.0015, "CRC-derived tables; alpha from memory"),
     "steel": (1.43e-7, 0.0045, "carbon steel 1010; alpha from memory"),
     "stainless": (7.2e-7, 0.001, "ASM, stainless 304; alpha from memory"),
     "silver": (1.59e-8, 0.0038, "CRC Handbook (from memory)"),
 }
 
-#: smallest impedance the solver is given, Ω: a zero-ohm link becomes 1 nΩ, far below any real joint
+#: smallest impedance the solver is given, Ω: a zero-ohm link becomes 1 nΩ, far below any real
+#: joint
 MIN_IMPEDANCE = 1e-9
 
-#: contact resistance of a closed switch when the plan gives none (from memory: a few mΩ for toggle switches)
+#: contact resistance of a closed switch when the plan gives none (from memory: a few mΩ for toggle
+#: switches)
 DEFAULT_SWITCH_CONTACT = 5e-3
 
-#: radius of the area a screw and washer clamp to a plate, m (common practice: M4 hardware, ~9 mm washer)
+#: radius of the area a screw and washer clamp to a plate, m (common practice: M4 hardware, ~9 mm
+#: washer)
 FASTENER_RADIUS = 4e-3
 
 
@@ -130,17 +151,22 @@ def skin_ratio(radius, rho, frequency):
     radius = np.asarray(radius, dtype=float)
     if frequency <= 0:
         return np.ones_like(radius)
-    delta = skin_depth(rho, frequency) if np.isscalar(rho) else np.sqrt(np.asarray(rho) / (np.pi * frequency * MU0))
+    delta = (
+        skin_depth(rho, frequency)
+        if np.isscalar(rho)
+        else np.sqrt(np.asarray(rho) / (np.pi * frequency * MU0))
+    )
     x = radius / delta
     small = x * math.sqrt(2.0) < 1e-3
     return np.where(small, 1.0, np.real(bessel_skin_ratio(np.where(small, 1.0, x))))
 
 
 def conductor_resistance(c, temperature: float) -> tuple[float, float, float]:
-    """(R_dc in Ω, self-inductance in H, radius in m for the skin effect; 0 when not a round wire) of a
-    conductor, by its kind's impedance model (:data:`groundcheck.model.kinds.KINDS`): a contact, a switch
-    contact, a lift network's resistor, a flat strip (ρL/(w·t), Grover's strip inductance) or a round wire
-    (ρL/A, Rosa's wire inductance).  A stated resistance replaces the geometry's.
+    """(R_dc in Ω, self-inductance in H, radius in m for the skin effect; 0 when not a round wire)
+    of a conductor, by its kind's impedance model (:data:`groundcheck.model.kinds.KINDS`): a
+    contact, a switch contact, a lift network's resistor, a flat strip (ρL/(w·t), Grover's strip
+    inductance) or a round wire (ρL/A, Rosa's wire inductance).  A stated resistance replaces the
+    geometry's.
 
     Parameters:
         c: a conductor record.

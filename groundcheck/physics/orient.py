@@ -1,28 +1,30 @@
-"""Which way a stray-field source points: each loop's flux as a function of the moment's direction, and the
-direction that puts the most hum at a channel's output.
+"""Which way a stray-field source points: each loop's flux as a function of the moment's direction,
+and the direction that puts the most hum at a channel's output.
 
-A field source's flux through the plan's loops is a function Φ(m̂) of its moment's unit direction m̂, taken with
-the same model that gives the figures: the point dipole (Φ = F·m̂, F from the closed-form segment integrals of
-:mod:`groundcheck.physics.pickup`) or, with a stated size, the ring at every distance (Φ from the elliptic
-integrals, not linear in m̂).  For a channel, the output of the source at each frequency f of its spectrum is
-V_f(m̂) = Σ_k |Σ_loops D_kl(f)·Φ_l(m̂)|, the stages' drops per unit flux D (from the network's solve) added in
-magnitude as every stage may invert.  The worst orientation maximises the threshold-weighted total
-Σ_f V_f²·10^(−T_f/10), T_f the threshold of hearing at the listener's seat at f (ISO 226, or the room's noise):
-the sum of the squared ratios of each harmonic to its own threshold, whose largest term is the harmonic that
-decides audibility.  Without a listening verdict T_f = 0: the rms total at the output.  A ring is kept above the
-deck: an orientation that would take it through the deck (its radius times the sine of its tilt above its
-height) is not considered.
+A field source's flux through the plan's loops is a function Φ(m̂) of its moment's unit direction
+m̂, taken with the same model that gives the figures: the point dipole (Φ = F·m̂, F from the
+closed-form segment integrals of :mod:`groundcheck.physics.pickup`) or, with a stated size, the
+ring at every distance (Φ from the elliptic integrals, not linear in m̂).  For a channel, the
+output of the source at each frequency f of its spectrum is V_f(m̂) = Σ_k |Σ_loops
+D_kl(f)·Φ_l(m̂)|, the stages' drops per unit flux D (from the network's solve) added in magnitude
+as every stage may invert.  The worst orientation maximises the threshold-weighted total Σ_f
+V_f²·10^(−T_f/10), T_f the threshold of hearing at the listener's seat at f (ISO 226, or the room's
+noise): the sum of the squared ratios of each harmonic to its own threshold, whose largest term is
+the harmonic that decides audibility.  Without a listening verdict T_f = 0: the rms total at the
+output.  A ring is kept above the deck: an orientation that would take it through the deck (its
+radius times the sine of its tilt above its height) is not considered.
 
-The maximum is found on a grid of directions over a hemisphere (Φ(−m̂) = −Φ(m̂) gives the same hum), the three
-axes among them, refined by a pattern search that halves its step down to 1e-8 rad; the result is never below
-any axis.  A ring with thousands of quadrature points (a loop through a plate, whose spread current is thousands
-of cells) is searched on merged points (:meth:`LoopFluxes.coarse`) and the direction found is then weighed with
-every point against the three axes: on the bundled examples it lies within 0.01 rad of the exact search's, its
-measure 4e-5 below.
+The maximum is found on a grid of directions over a hemisphere (Φ(−m̂) = −Φ(m̂) gives the same
+hum), the three axes among them, refined by a pattern search that halves its step down to 1e-8 rad;
+the result is never below any axis.  A ring with thousands of quadrature points (a loop through a
+plate, whose spread current is thousands of cells) is searched on merged points
+(:meth:`LoopFluxes.coarse`) and the direction found is then weighed with every point against the
+three axes: on the bundled examples it lies within 0.01 rad of the exact search's, its measure 4e-5
+below.
 
-References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4–5.6 (the ring's and the dipole's
-potentials); ISO 226:2003 (threshold of hearing); R. Hooke and T. A. Jeeves, "Direct search solution of numerical
-and statistical problems", J. ACM 8 (1961) (the pattern search).
+References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4–5.6 (the ring's and the
+dipole's potentials); ISO 226:2003 (threshold of hearing); R. Hooke and T. A. Jeeves, "Direct
+search solution of numerical and statistical problems", J. ACM 8 (1961) (the pattern search).
 """
 
 from __future__ import annotations
@@ -35,15 +37,27 @@ import numpy as np
 from .pickup import AXES, path_vector, ring_fluxes, ring_quadrature, ring_terms
 from .plate_paths import passage_flow, passage_vector
 
-__all__ = ["LoopFluxes", "source_fluxes", "fixed_fluxes", "worst_axis", "channel_objective", "stated_axis", "AXES",
-           "GRID", "STEP_MIN", "COARSE_POINTS"]
+__all__ = [
+    "LoopFluxes",
+    "source_fluxes",
+    "fixed_fluxes",
+    "worst_axis",
+    "channel_objective",
+    "stated_axis",
+    "AXES",
+    "GRID",
+    "STEP_MIN",
+    "COARSE_POINTS",
+]
 
 #: directions of the starting grid over the hemisphere (about 18° apart)
 GRID = 64
-#: a ring's quadrature points beyond which the search works on merged points (:meth:`LoopFluxes.coarse`)
+#: a ring's quadrature points beyond which the search works on merged points
+#: (:meth:`LoopFluxes.coarse`)
 COARSE_POINTS = 4000
-#: the pattern search stops when its step falls below this, rad (the measure is then within about 1e-15 of its
-#: maximum, which is quadratic in the angle: mirrored channels get equal figures to 1e-9)
+#: the pattern search stops when its step falls below this, rad (the measure is then within about
+#: 1e-15 of its maximum, which is quadratic in the angle: mirrored channels get equal figures to
+#: 1e-9)
 STEP_MIN = 1e-8
 
 
@@ -51,9 +65,9 @@ STEP_MIN = 1e-8
 class LoopFluxes:
     """One source's flux through a set of loops as a function of its moment's direction.
 
-    ``loops``: the loop indices, in column order; ``F`` (dipole): loops × 3 flux vectors, Wb; ``X``, ``W``,
-    ``group`` (ring): quadrature points, elements and each point's column; ``fixed``: the fluxes of a source with
-    no orientation (an AC heater pair)."""
+    ``loops``: the loop indices, in column order; ``F`` (dipole): loops × 3 flux vectors, Wb;
+    ``X``, ``W``, ``group`` (ring): quadrature points, elements and each point's column; ``fixed``:
+    the fluxes of a source with no orientation (an AC heater pair)."""
 
     src: object
     loops: list
@@ -69,7 +83,8 @@ class LoopFluxes:
     _seen: dict | None = None
 
     def grid(self) -> tuple[np.ndarray, np.ndarray]:
-        """The starting directions (admitted) and the fluxes there, computed once for every search."""
+        """The starting directions (admitted) and the fluxes there, computed once for every
+        search."""
         if self._grid is None:
             cand = self.admit(_grid(GRID))
             self._grid = (cand, self.fluxes(cand))
@@ -90,29 +105,44 @@ class LoopFluxes:
             self._terms, self._seen = ring_terms(self.X, self.W, self.group, len(self.loops)), {}
         keys = [tuple(row) for row in M.tolist()]
         new = [k for k in dict.fromkeys(keys) if k not in self._seen]
-        if new:           # the same directions are asked for again (the axes, the one found): each computed once
-            values = ring_fluxes(self.src, self.X, self.W, np.array(new), self.group, len(self.loops), self._terms)
+        if (
+            new
+        ):  # the same directions are asked for again (the axes, the one found): each computed once
+            values = ring_fluxes(
+                self.src, self.X, self.W, np.array(new), self.group, len(self.loops), self._terms
+            )
             self._seen.update(zip(new, values))
         return np.array([self._seen[k] for k in keys])
 
     def only(self, column: int) -> "LoopFluxes":
         """The same source through one of the loops."""
         if self.fixed is not None:
-            return LoopFluxes(self.src, [self.loops[column]], self.model, fixed=self.fixed[column:column + 1])
+            return LoopFluxes(
+                self.src, [self.loops[column]], self.model, fixed=self.fixed[column : column + 1]
+            )
         if self.F is not None:
-            return LoopFluxes(self.src, [self.loops[column]], self.model, F=self.F[column:column + 1])
+            return LoopFluxes(
+                self.src, [self.loops[column]], self.model, F=self.F[column : column + 1]
+            )
         keep = self.group == column
-        one = LoopFluxes(self.src, [self.loops[column]], self.model, X=self.X[keep], W=self.W[keep],
-                         group=np.zeros(int(keep.sum()), dtype=int))
+        one = LoopFluxes(
+            self.src,
+            [self.loops[column]],
+            self.model,
+            X=self.X[keep],
+            W=self.W[keep],
+            group=np.zeros(int(keep.sum()), dtype=int),
+        )
         if self._grid is not None:
-            one._grid = (self._grid[0], self._grid[1][:, column:column + 1])
+            one._grid = (self._grid[0], self._grid[1][:, column : column + 1])
         return one
 
     def coarse(self) -> "LoopFluxes":
-        """The same source with a ring's quadrature points merged where they are dense (a plate passage's cells,
-        thousands of them): the points of each cell of a grid, its side an eighth of the source's radius within
-        two radii of the centre and half a radius beyond, become one at their mean with their elements' sum.
-        Only the search for the worst direction reads it; every figure is computed with every point."""
+        """The same source with a ring's quadrature points merged where they are dense (a plate
+        passage's cells, thousands of them): the points of each cell of a grid, its side an eighth
+        of the source's radius within two radii of the centre and half a radius beyond, become one
+        at their mean with their elements' sum. Only the search for the worst direction reads it;
+        every figure is computed with every point."""
         if self.X is None or len(self.X) <= COARSE_POINTS:
             return self
         if self._coarse is None:
@@ -120,7 +150,9 @@ class LoopFluxes:
             r = np.linalg.norm(self.X, axis=1)
             side = np.where(r < 2 * a, a / 8, a / 2)
             ij = np.floor(self.X[:, :2] / side[:, None]).astype(np.int64) + (1 << 20)
-            key = ((ij[:, 0] << 21 | ij[:, 1]) << 1 | (side > a / 4)) * len(self.loops) + self.group
+            key = ((ij[:, 0] << 21 | ij[:, 1]) << 1 | (side > a / 4)) * len(
+                self.loops
+            ) + self.group
             _, inverse = np.unique(key, return_inverse=True)
             inverse = inverse.ravel()
             n = int(inverse.max()) + 1
@@ -133,12 +165,12 @@ class LoopFluxes:
         return self._coarse
 
     def admit(self, M: np.ndarray) -> np.ndarray:
-        """The directions M (n × 3) with z ≥ 0, those that would take a ring through the deck brought to the
-        steepest tilt that keeps it above (its lowest point on the deck)."""
+        """The directions M (n × 3) with z ≥ 0, those that would take a ring through the deck
+        brought to the steepest tilt that keeps it above (its lowest point on the deck)."""
         M = np.where(M[:, 2:3] < 0, -M, M)
         if self.F is not None or self.src.size is None:
             return M
-        limit = min(1.0, self.src.height / (self.src.size / 2))      # the largest sine of the tilt
+        limit = min(1.0, self.src.height / (self.src.size / 2))  # the largest sine of the tilt
         sin = np.hypot(M[:, 0], M[:, 1])
         over = sin > limit
         if np.any(over):
@@ -151,15 +183,17 @@ class LoopFluxes:
 
 
 def source_fluxes(src, closed: dict, passages: dict | None = None) -> LoopFluxes:
-    """A field source's :class:`LoopFluxes` through the loops ``closed`` (loop index -> closed outline, m), a
-    passage through a plate taken along the plate's spread current instead of its straight chord.
+    """A field source's :class:`LoopFluxes` through the loops ``closed`` (loop index -> closed
+    outline, m), a passage through a plate taken along the plate's spread current instead of its
+    straight chord.
 
     Parameters:
         src: a field source.
         closed: loop index -> its outline's points, the first repeated at the end, m.
         passages: loop index -> its passages (metal, spots, enter, leave).
     Returns:
-        the source's flux function over those loops: the dipole's, or the ring's when the source has a size.
+        the source's flux function over those loops: the dipole's, or the ring's when the source
+        has a size.
     References:
         :mod:`groundcheck.physics.pickup`; :mod:`groundcheck.physics.plate_paths`.
     """
@@ -181,18 +215,23 @@ def source_fluxes(src, closed: dict, passages: dict | None = None) -> LoopFluxes
             xs.append(X)
             ws.append(W)
             gs.append(np.full(len(X), col, dtype=int))
-    cat = (lambda a, n: np.concatenate(a) if a else np.zeros(n))
-    return LoopFluxes(src, loops, "ring", X=cat(xs, (0, 3)), W=cat(ws, (0, 3)), group=cat(gs, 0).astype(int))
+    cat = lambda a, n: np.concatenate(a) if a else np.zeros(n)
+    return LoopFluxes(
+        src, loops, "ring", X=cat(xs, (0, 3)), W=cat(ws, (0, 3)), group=cat(gs, 0).astype(int)
+    )
 
 
 def _passage_dipole(src, metal, spots, enter, leave) -> np.ndarray:
-    """The dipole's flux vector along a plate passage's spread current, less that of its straight chord."""
-    return passage_vector(src, metal, spots, enter, leave) - path_vector(src, [spots[enter], spots[leave]])
+    """The dipole's flux vector along a plate passage's spread current, less that of its straight
+    chord."""
+    return passage_vector(src, metal, spots, enter, leave) - path_vector(
+        src, [spots[enter], spots[leave]]
+    )
 
 
 def _passage_ring(src, metal, spots, enter, leave) -> list:
-    """The ring's quadrature of a plate passage's spread current (its cells' centres and current elements), and
-    its straight chord's taken back out."""
+    """The ring's quadrature of a plate passage's spread current (its cells' centres and current
+    elements), and its straight chord's taken back out."""
     mids, vecs, flow = passage_flow(metal, spots, enter, leave)
     centre = np.array([src.pos[0], src.pos[1], src.height])
     X = np.column_stack([mids, np.zeros(len(mids))]) - centre
@@ -201,7 +240,8 @@ def _passage_ring(src, metal, spots, enter, leave) -> list:
 
 
 def fixed_fluxes(src, loops: list, values) -> LoopFluxes:
-    """A source with no orientation (an AC heater pair) through ``loops``, with its fluxes ``values`` (Wb rms).
+    """A source with no orientation (an AC heater pair) through ``loops``, with its fluxes
+    ``values`` (Wb rms).
 
     Parameters:
         src: the source.
@@ -216,26 +256,32 @@ def fixed_fluxes(src, loops: list, values) -> LoopFluxes:
 
 
 def channel_objective(parts) -> callable:
-    """The measure a worst orientation maximises, as a function of the loops' fluxes (n × loops -> n values).
+    """The measure a worst orientation maximises, as a function of the loops' fluxes (n × loops ->
+    n values).
 
     Parameters:
-        parts: (G, weight) per frequency: G the channel's stages' drops per unit flux of each loop (stages × loops,
-            V/Wb at the output, the harmonic's level included), weight the frequency's weight (10^(−T/10)).
+        parts: (G, weight) per frequency: G the channel's stages' drops per unit flux of each loop
+        (stages × loops,
+            V/Wb at the output, the harmonic's level included), weight the frequency's weight
+            (10^(−T/10)).
     Returns:
         Φ -> Σ_f weight·(Σ_k |G Φ|_k)².
     References:
         the module's description.
     """
+
     def measure(phi: np.ndarray) -> np.ndarray:
         total = np.zeros(len(phi))
         for G, weight in parts:
             total += weight * np.abs(phi @ G.T).sum(axis=1) ** 2
         return total
+
     return measure
 
 
 def _grid(n: int) -> np.ndarray:
-    """n directions spread evenly over the upper hemisphere (a Fibonacci lattice), with the three axes."""
+    """n directions spread evenly over the upper hemisphere (a Fibonacci lattice), with the three
+    axes."""
     k = np.arange(n) + 0.5
     z = 1 - k / n
     r = np.sqrt(1 - z * z)
@@ -278,13 +324,16 @@ def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
             m, top = trial[k], float(tv[k])
         else:
             step /= 2
-    if search is not model:          # the merged points found it: the exact measure decides against the axes
+    if (
+        search is not model
+    ):  # the merged points found it: the exact measure decides against the axes
         final = model.admit(np.vstack([m, np.eye(3)]))
         values = measure(model.fluxes(final))
         best = int(np.argmax(values))
         m, top = final[best], float(values[best])
     # a flat measure (a loop with no pickup, or one the source couples to alike in every direction)
-    # has no one maximum: an axis that reaches it to rounding is taken, whatever the search met first
+    # has no one maximum: an axis that reaches it to rounding is taken, whatever the search met
+    # first
     axes = model.admit(np.eye(3))
     if len(axes):
         at_axes = measure(model.fluxes(axes))

@@ -1,21 +1,22 @@
 """Magnetic pickup: the flux a stray-field source puts through a loop, and the EMF it induces.
 
-A field source (power transformer, choke, mains wiring) is a magnetic dipole at its position, raised
-``height`` above the chassis plane, with its axis along x, y or z (normal to the deck) or, by default, the
-orientation that is worst at each channel's output (chosen in :mod:`groundcheck.physics.orient`).
-Its strength is stated as the flux density B_ref at a distance r_ref on its equator, so that its vector
-potential is A = K·m̂ × R/|R|³ with K = B_ref·r_ref³ (the moment's μ₀m/4π).  The flux through a loop in
-the chassis plane is Φ = ∮A·dl, evaluated in closed form on each straight segment, so that large loops
-near the source are exact for the dipole (no uniform-field assumption).  The EMF is E = 2πf·Φ.
+A field source (power transformer, choke, mains wiring) is a magnetic dipole at its position,
+raised ``height`` above the chassis plane, with its axis along x, y or z (normal to the deck) or,
+by default, the orientation that is worst at each channel's output (chosen in
+:mod:`groundcheck.physics.orient`). Its strength is stated as the flux density B_ref at a distance
+r_ref on its equator, so that its vector potential is A = K·m̂ × R/|R|³ with K = B_ref·r_ref³ (the
+moment's μ₀m/4π).  The flux through a loop in the chassis plane is Φ = ∮A·dl, evaluated in closed
+form on each straight segment, so that large loops near the source are exact for the dipole (no
+uniform-field assumption).  The EMF is E = 2πf·Φ.
 
-When the plan states the source's ``size``, the source is a circular current loop of that diameter with the
-same moment at every distance (no switch between two models, so no jump in any figure as a loop crosses the
-size): its vector potential is exact at any distance (complete elliptic integrals) and tends to the dipole's
-far away; it is integrated along the loop by Gauss–Legendre quadrature.
+When the plan states the source's ``size``, the source is a circular current loop of that diameter
+with the same moment at every distance (no switch between two models, so no jump in any figure as a
+loop crosses the size): its vector potential is exact at any distance (complete elliptic integrals)
+and tends to the dipole's far away; it is integrated along the loop by Gauss–Legendre quadrature.
 
-References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4 (the circular loop's vector potential,
-eq. 5.37) and §5.6 (the dipole's); W. R. Smythe, *Static and Dynamic Electricity*, 3rd ed., §7.10 (the
-closed form in elliptic integrals); Faraday's law, E = −dΦ/dt.
+References: J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.4 (the circular loop's vector
+potential, eq. 5.37) and §5.6 (the dipole's); W. R. Smythe, *Static and Dynamic Electricity*, 3rd
+ed., §7.10 (the closed form in elliptic integrals); Faraday's law, E = −dΦ/dt.
 """
 
 from __future__ import annotations
@@ -27,14 +28,27 @@ import numpy as np
 from ..model.records import FieldSource
 from .special_functions import ellipke
 
-__all__ = ["segment_integral", "segment_vector", "path_vector", "path_flux", "loop_flux", "flux_density", "emf",
-           "min_distance", "ring_quadrature", "ring_fluxes", "ring_terms", "ring_path_flux", "AXES"]
+__all__ = [
+    "segment_integral",
+    "segment_vector",
+    "path_vector",
+    "path_flux",
+    "loop_flux",
+    "flux_density",
+    "emf",
+    "min_distance",
+    "ring_quadrature",
+    "ring_fluxes",
+    "ring_terms",
+    "ring_path_flux",
+    "AXES",
+]
 
 #: the axes a source can be given, as unit vectors (x and y in the chassis plane, z normal to it)
 AXES = {"x": (1.0, 0.0, 0.0), "y": (0.0, 1.0, 0.0), "z": (0.0, 0.0, 1.0)}
 
-#: Gauss–Legendre points per piece of a loop's edge in the ring model, and the longest piece as a share of the
-#: distance to the source (pieces shorten near it)
+#: Gauss–Legendre points per piece of a loop's edge in the ring model, and the longest piece as a
+#: share of the distance to the source (pieces shorten near it)
 RING_POINTS = 16
 RING_PIECE = 0.25
 
@@ -55,8 +69,8 @@ def flux_density(src: FieldSource, p) -> float:
 
 
 def segment_vector(p, q, h: float = 0.0) -> np.ndarray:
-    """(Fx, Fy, Fz): ∫A·dl along the straight segment p → q in the plane z = 0 of a unit dipole (K = 1) at height
-    ``h`` above the origin with its moment along x, y and z (1/m).
+    """(Fx, Fy, Fz): ∫A·dl along the straight segment p → q in the plane z = 0 of a unit dipole (K
+    = 1) at height ``h`` above the origin with its moment along x, y and z (1/m).
 
     Parameters:
         p, q: the segment's ends relative to the point below the dipole, m.
@@ -64,10 +78,10 @@ def segment_vector(p, q, h: float = 0.0) -> np.ndarray:
     Returns:
         the three line integrals, 1/m.
     References:
-        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6: A = m × R/R³.  With R = (X, Y, −h) and
-        r(t) = p + t·d, A·dl = [m_z·c − h·(m_y·d_x − m_x·d_y)]·dt/(a t² + b t + E)^{3/2} (c = p × d, a = |d|²,
-        b = 2 p·d, E = |p|² + h²), and ∫₀¹ dt/(a t² + b t + E)^{3/2} = [2(2a t + b)/(D·√(a t² + b t + E))]₀¹ with
-        D = 4aE − b² = 4(c² + a h²).
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6: A = m × R/R³.  With R = (X, Y,
+        −h) and r(t) = p + t·d, A·dl = [m_z·c − h·(m_y·d_x − m_x·d_y)]·dt/(a t² + b t + E)^{3/2} (c
+        = p × d, a = |d|², b = 2 p·d, E = |p|² + h²), and ∫₀¹ dt/(a t² + b t + E)^{3/2} = [2(2a t +
+        b)/(D·√(a t² + b t + E))]₀¹ with D = 4aE − b² = 4(c² + a h²).
     """
     px, py = p
     dx, dy = q[0] - px, q[1] - py
@@ -89,20 +103,23 @@ def segment_vector(p, q, h: float = 0.0) -> np.ndarray:
 
 
 def segment_integral(p, q) -> float:
-    """∫ (x dy − y dx)/r³ along the straight segment p → q, with the dipole at the origin in the plane (1/m).
+    """∫ (x dy − y dx)/r³ along the straight segment p → q, with the dipole at the origin in the
+    plane (1/m).
 
     Parameters:
         p, q: the segment's ends relative to the dipole, m.
     Returns:
         the line integral, 1/m (the z component of :func:`segment_vector` at height 0).
     References:
-        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6; the integral worked in closed form here.
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., §5.6; the integral worked in closed
+        form here.
     """
     return float(segment_vector(p, q, 0.0)[2])
 
 
 def path_vector(src: FieldSource, pts) -> np.ndarray:
-    """K·(Fx, Fy, Fz) along an open polyline (Wb): the flux the path carries for a moment along x, y and z.
+    """K·(Fx, Fy, Fz) along an open polyline (Wb): the flux the path carries for a moment along x,
+    y and z.
 
     Parameters:
         src: a field source (its position, height and strength; not its axis).
@@ -116,11 +133,12 @@ def path_vector(src: FieldSource, pts) -> np.ndarray:
     total = np.zeros(3)
     for p, q in zip(pts, pts[1:]):
         total += segment_vector((p[0] - ox, p[1] - oy), (q[0] - ox, q[1] - oy), src.height)
-    return src.b_ref * src.r_ref ** 3 * total
+    return src.b_ref * src.r_ref**3 * total
 
 
 def path_flux(src: FieldSource, pts, m=None) -> float:
-    """∫A·dl along an open polyline (Wb) for the moment direction ``m`` (default: the source's axis, z if worst).
+    """∫A·dl along an open polyline (Wb) for the moment direction ``m`` (default: the source's
+    axis, z if worst).
 
     Parameters:
         src: a field source.
@@ -154,14 +172,15 @@ def loop_flux(src: FieldSource, polygon, m=None) -> float:
 
 
 def ring_quadrature(src: FieldSource, pts, weight: float = 1.0) -> tuple[np.ndarray, np.ndarray]:
-    """Gauss–Legendre points along an open polyline, relative to the source's centre (N × 3, m), and their weighted
-    line elements (N × 3, m): ∫A·dl along the path is Σ A(Xᵢ)·Wᵢ.  Pieces shorten near the source (at most
-    RING_PIECE of their distance to it).
+    """Gauss–Legendre points along an open polyline, relative to the source's centre (N × 3, m),
+    and their weighted line elements (N × 3, m): ∫A·dl along the path is Σ A(Xᵢ)·Wᵢ.  Pieces
+    shorten near the source (at most RING_PIECE of their distance to it).
 
     Parameters:
         src: a field source with a size.
         pts: the polyline's points in the chassis plane, m.
-        weight: a factor on every element (the current's share of a plate passage; −1 takes a chord back out).
+        weight: a factor on every element (the current's share of a plate passage; −1 takes a chord
+        back out).
     Returns:
         (points, elements).
     References:
@@ -180,7 +199,11 @@ def ring_quadrature(src: FieldSource, pts, weight: float = 1.0) -> tuple[np.ndar
         pieces = max(1, int(math.ceil(length / (RING_PIECE * near))))
         edges = p3 + (q3 - p3) * (np.arange(pieces + 1) / pieces)[:, None]
         half = 0.5 * (edges[1:] - edges[:-1])
-        xs.append(((0.5 * (edges[1:] + edges[:-1]))[:, None, :] + half[:, None, :] * t[None, :, None]).reshape(-1, 3))
+        xs.append(
+            (
+                (0.5 * (edges[1:] + edges[:-1]))[:, None, :] + half[:, None, :] * t[None, :, None]
+            ).reshape(-1, 3)
+        )
         ws.append((half[:, None, :] * (weight * w)[None, :, None]).reshape(-1, 3))
     if not xs:
         return np.zeros((0, 3)), np.zeros((0, 3))
@@ -188,30 +211,44 @@ def ring_quadrature(src: FieldSource, pts, weight: float = 1.0) -> tuple[np.ndar
 
 
 def _ring_factor(rho: np.ndarray, z: np.ndarray, radius: float, mu0_i: float) -> np.ndarray:
-    """A_φ/ρ of a circular current loop (radius, μ₀I) at cylindrical (ρ, z) about its axis (arrays alike)."""
-    s = (radius + rho) ** 2 + z ** 2
+    """A_φ/ρ of a circular current loop (radius, μ₀I) at cylindrical (ρ, z) about its axis (arrays
+    alike)."""
+    s = (radius + rho) ** 2 + z**2
     k2 = np.minimum(4 * radius * rho / s, 1 - 1e-15)
     out = np.empty_like(rho)
     small = k2 < 1e-3
-    # near the axis (k² small): A_φ = μ₀I·a²ρ/(4 D³)·(1 + 15a²ρ²/(8 D⁴)), D² = a² + ρ² + z², the first terms of
-    # the ring's expansion in a²ρ²/D⁴ (Jackson §5.5), free of the cancellation in (1 − k²/2)K − E; below k² = 1e-3
-    # it agrees with the elliptic form to 1e-12 (checked with 40-digit arithmetic while writing this)
-    D2 = radius ** 2 + rho[small] ** 2 + z[small] ** 2
-    out[small] = mu0_i * radius ** 2 / (4 * D2 ** 1.5) * (1 + 15 * radius ** 2 * rho[small] ** 2 / (8 * D2 ** 2))
+    # near the axis (k² small): A_φ = μ₀I·a²ρ/(4 D³)·(1 + 15a²ρ²/(8 D⁴)), D² = a² + ρ² + z², the
+    # first terms of the ring's expansion in a²ρ²/D⁴ (Jackson §5.5), free of the cancellation in (1
+    # − k²/2)K − E; below k² = 1e-3 it agrees with the elliptic form to 1e-12 (checked with
+    # 40-digit arithmetic while writing this)
+    D2 = radius**2 + rho[small] ** 2 + z[small] ** 2
+    out[small] = (
+        mu0_i * radius**2 / (4 * D2**1.5) * (1 + 15 * radius**2 * rho[small] ** 2 / (8 * D2**2))
+    )
     big = ~small
     k2b, rb = k2[big], rho[big]
     kk, ee = ellipke(k2b)
-    out[big] = (mu0_i / (np.pi * np.sqrt(k2b)) * np.sqrt(radius / rb) * ((1 - k2b / 2) * kk - ee)
-                / rb)
+    out[big] = (
+        mu0_i / (np.pi * np.sqrt(k2b)) * np.sqrt(radius / rb) * ((1 - k2b / 2) * kk - ee) / rb
+    )
     return out
 
 
-def ring_fluxes(src: FieldSource, X: np.ndarray, W: np.ndarray, M, groups=None, count: int = 1,
-                terms: tuple | None = None) -> np.ndarray:
-    """Σ A(Xᵢ)·Wᵢ of the source taken as a circular current loop of diameter ``src.size`` with the moment of the
-    dipole (μ₀I = 4K/a², a the radius), for each unit axis in M (n × 3): one flux per axis and group of points.
+def ring_fluxes(
+    src: FieldSource,
+    X: np.ndarray,
+    W: np.ndarray,
+    M,
+    groups=None,
+    count: int = 1,
+    terms: tuple | None = None,
+) -> np.ndarray:
+    """Σ A(Xᵢ)·Wᵢ of the source taken as a circular current loop of diameter ``src.size`` with the
+    moment of the dipole (μ₀I = 4K/a², a the radius), for each unit axis in M (n × 3): one flux per
+    axis and group of points.
 
-    With A = (A_φ/ρ)·m̂ × X (X from the ring's centre, ρ its distance from the axis), A·W = (A_φ/ρ)·m̂·(X × W).
+    With A = (A_φ/ρ)·m̂ × X (X from the ring's centre, ρ its distance from the axis), A·W =
+    (A_φ/ρ)·m̂·(X × W).
 
     Parameters:
         src: a field source with a size.
@@ -223,26 +260,26 @@ def ring_fluxes(src: FieldSource, X: np.ndarray, W: np.ndarray, M, groups=None, 
     Returns:
         n × count fluxes, Wb rms.
     References:
-        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., eq. 5.37; W. R. Smythe, *Static and Dynamic
-        Electricity*, §7.10 (A_φ = μ₀I/(πk)·√(a/ρ)·[(1 − k²/2)K(k) − E(k)]).
+        J. D. Jackson, *Classical Electrodynamics*, 3rd ed., eq. 5.37; W. R. Smythe, *Static and
+        Dynamic Electricity*, §7.10 (A_φ = μ₀I/(πk)·√(a/ρ)·[(1 − k²/2)K(k) − E(k)]).
     """
     M = np.atleast_2d(np.asarray(M, dtype=float))
     radius = src.size / 2
-    mu0_i = 4 * src.b_ref * src.r_ref ** 3 / radius ** 2
+    mu0_i = 4 * src.b_ref * src.r_ref**3 / radius**2
     C, r2, onehot = ring_terms(X, W, groups, count) if terms is None else terms
     out = np.zeros((len(M), count))
     for lo in range(0, len(M), 16):
-        m = M[lo:lo + 16]
+        m = M[lo : lo + 16]
         Z = X @ m.T
         rho = np.sqrt(np.maximum(r2[:, None] - Z * Z, 0.0))
         g = _ring_factor(rho.ravel(), Z.ravel(), radius, mu0_i).reshape(Z.shape) * (C @ m.T)
-        out[lo:lo + len(m)] = (onehot @ g).T
+        out[lo : lo + len(m)] = (onehot @ g).T
     return out
 
 
 def ring_terms(X: np.ndarray, W: np.ndarray, groups=None, count: int = 1) -> tuple:
-    """What :func:`ring_fluxes` reads of its points for every axis: X × W, |X|² and the points' groups as a
-    (sparse) matrix.
+    """What :func:`ring_fluxes` reads of its points for every axis: X × W, |X|² and the points'
+    groups as a (sparse) matrix.
 
     Parameters:
         X, W: quadrature points and elements.
@@ -254,13 +291,15 @@ def ring_terms(X: np.ndarray, W: np.ndarray, groups=None, count: int = 1) -> tup
         none (bookkeeping).
     """
     import scipy.sparse as sp
+
     groups = np.zeros(len(X), dtype=int) if groups is None else np.asarray(groups)
     onehot = sp.csr_matrix((np.ones(len(X)), (groups, np.arange(len(X)))), shape=(count, len(X)))
     return np.cross(X, W), np.einsum("ij,ij->i", X, X), onehot
 
 
 def ring_path_flux(src: FieldSource, pts, m) -> float:
-    """∫A·dl (Wb) along an open polyline of the source taken as a ring of diameter ``src.size`` with axis ``m``.
+    """∫A·dl (Wb) along an open polyline of the source taken as a ring of diameter ``src.size``
+    with axis ``m``.
 
     Parameters:
         src: a field source with a size.

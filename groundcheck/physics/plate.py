@@ -35,8 +35,18 @@ import scipy.sparse as sp
 from .impedance import FASTENER_RADIUS, MU0
 from .plate_mesh import plate_mesh
 
-__all__ = ["PlateResult", "reduce_plate", "grid_laplacian", "grid_step", "contact_groups",
-           "PERMEABILITY", "permeability", "sheet_ratio", "canonical_order", "quantised"]
+__all__ = [
+    "PlateResult",
+    "reduce_plate",
+    "grid_laplacian",
+    "grid_step",
+    "contact_groups",
+    "PERMEABILITY",
+    "permeability",
+    "sheet_ratio",
+    "canonical_order",
+    "quantised",
+]
 
 #: grid nodes per plate at most (keeps one plate's solve well under a second)
 MAX_GRID_NODES = 100_000
@@ -93,9 +103,9 @@ class PlateResult:
     """Kron-reduced conductance matrix (S) between the fasteners, in the order given."""
 
     names: tuple[str, ...]
-    conductance: np.ndarray          # k × k Laplacian: −G[i, j] is the conductance between i and j
-    step: float                      # grid step used, m
-    error: float                     # relative change against a grid twice as coarse (an indication)
+    conductance: np.ndarray  # k × k Laplacian: −G[i, j] is the conductance between i and j
+    step: float  # grid step used, m
+    error: float  # relative change against a grid twice as coarse (an indication)
 
     def resistance(self, i: int, j: int) -> float:
         """Two-point resistance between fasteners i and j, Ω (the others left floating)."""
@@ -106,7 +116,9 @@ class PlateResult:
         return float(v[keep.index(i)])
 
 
-def grid_laplacian(width: float, depth: float, sheet_conductance: float, nx: int, ny: int) -> sp.csr_matrix:
+def grid_laplacian(
+    width: float, depth: float, sheet_conductance: float, nx: int, ny: int
+) -> sp.csr_matrix:
     """Finite-volume conductance Laplacian of an nx × ny node grid on a w × d plate (S).
 
     Boundary nodes own half a cell, so a strip with full-width contacts has
@@ -155,7 +167,9 @@ def grid_step(width: float, depth: float, radius: float) -> float:
     References:
         none (the solver's budget; the error is estimated against a grid twice as coarse).
     """
-    return max(radius / 2, math.sqrt(width * depth / MAX_GRID_NODES), max(width, depth) / MAX_GRID_SIDE)
+    return max(
+        radius / 2, math.sqrt(width * depth / MAX_GRID_NODES), max(width, depth) / MAX_GRID_SIDE
+    )
 
 
 #: a grid node this share of the grid step (or less) outside a contact's circle is on it: the
@@ -214,18 +228,28 @@ def _reduce(width, depth, sheet_g, contacts, radius, step):
     Lff = Lm[:k, :k].toarray()
     if mesh.n == k:
         return Lff, step
-    import scipy.sparse.linalg as spla          # only for a plate: plans without one never need it
+    import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
+
     Lfi = Lm[:k, k:]
-    solve = spla.splu(Lm[k:, k:].tocsc(), permc_spec="MMD_AT_PLUS_A")   # half the fill of the default on a grid
+    solve = spla.splu(
+        Lm[k:, k:].tocsc(), permc_spec="MMD_AT_PLUS_A"
+    )  # half the fill of the default on a grid
     X_ = solve.solve(Lfi.T.toarray())
     red = Lff - (Lfi @ X_)
     return 0.5 * (red + red.T), max(mesh.hx, mesh.hy)
 
 
-def reduce_plate(width: float, depth: float, thickness: float, rho: float,
-                 contacts: list[tuple[float, float]], names: list[str],
-                 radius: float = FASTENER_RADIUS, step: float | None = None,
-                 estimate_error: bool = True) -> PlateResult:
+def reduce_plate(
+    width: float,
+    depth: float,
+    thickness: float,
+    rho: float,
+    contacts: list[tuple[float, float]],
+    names: list[str],
+    radius: float = FASTENER_RADIUS,
+    step: float | None = None,
+    estimate_error: bool = True,
+) -> PlateResult:
     """Equivalent conductance network of a plate between its fastening points.
 
     ``contacts`` are positions relative to the plate's lower-left corner, m.
@@ -248,8 +272,16 @@ def reduce_plate(width: float, depth: float, thickness: float, rho: float,
     """
     width, depth, contacts = quantised(abs(width), abs(depth), contacts)
     order = canonical_order(width, depth, contacts)
-    red, used, err = _reduced(width, depth, thickness, rho, tuple(contacts[i] for i in order), radius,
-                              step, estimate_error)
+    red, used, err = _reduced(
+        width,
+        depth,
+        thickness,
+        rho,
+        tuple(contacts[i] for i in order),
+        radius,
+        step,
+        estimate_error,
+    )
     back = np.argsort(order)
     red = red[np.ix_(back, back)]
     red.setflags(write=False)
@@ -269,15 +301,17 @@ def canonical_order(width: float, depth: float, contacts) -> list[int]:
     References:
         none (bookkeeping).
     """
+
     def key(i):
         x, y = contacts[i]
         return (round(abs(x - width / 2), 12), round(abs(y - depth / 2), 12), x, y)
+
     return sorted(range(len(contacts)), key=key)
 
 
-#: a plate's size and its fastenings' positions are taken to this step, m (1 nm): a position written
-#: in another unit differs from its mm value by float rounding alone, and a grid node that lies on a
-#: contact circle must fall the same way for both
+#: a plate's size and its fastenings' positions are taken to this step, m (1 nm): a position
+#: written in another unit differs from its mm value by float rounding alone, and a grid node that
+#: lies on a contact circle must fall the same way for both
 GEOMETRY_QUANTUM = 1e-9
 
 
@@ -292,14 +326,24 @@ def quantised(width: float, depth: float, contacts) -> tuple[float, float, tuple
     References:
         none (bookkeeping).
     """
+
     def q(v: float) -> float:
         return round(v / GEOMETRY_QUANTUM) * GEOMETRY_QUANTUM
+
     return q(width), q(depth), tuple((q(x), q(y)) for x, y in contacts)
 
 
 @lru_cache(maxsize=64)
-def _reduced(width: float, depth: float, thickness: float, rho: float, contacts: tuple, radius: float,
-             step: float | None, estimate_error: bool) -> tuple[np.ndarray, float, float]:
+def _reduced(
+    width: float,
+    depth: float,
+    thickness: float,
+    rho: float,
+    contacts: tuple,
+    radius: float,
+    step: float | None,
+    estimate_error: bool,
+) -> tuple[np.ndarray, float, float]:
     """The reduction itself, kept for the same plate and fastenings: the repair advisor re-analyses
     a plan once per candidate, and most candidates leave every plate as it was (the matrix is
     returned read-only)."""

@@ -143,8 +143,16 @@ def _disc_spans(X, Y, A, B, contacts, radius, hx, hy):
     return first_k, first_s, last_k, last_s
 
 
-def plate_mesh(width: float, depth: float, sheet_g: float, contacts, radius: float, nx: int,
-               ny: int, group: np.ndarray) -> PlateMesh:
+def plate_mesh(
+    width: float,
+    depth: float,
+    sheet_g: float,
+    contacts,
+    radius: float,
+    nx: int,
+    ny: int,
+    group: np.ndarray,
+) -> PlateMesh:
     """The plate's network with its contact discs cut in.
 
     Parameters:

@@ -69,9 +69,10 @@ def _plate_flow(width: float, depth: float, contacts: tuple, radius: float):
     rhs = np.zeros((mesh.n - 1, k))
     rhs[np.arange(k - 1), np.arange(1, k)] = 1.0
     phi = np.zeros((mesh.n, k))
-    import scipy.sparse.linalg as spla          # only for a plate: plans without one never need it
+    import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
+
     phi[1:] = spla.splu(mesh.laplacian()[1:, 1:].tocsc()).solve(rhs)
-    currents = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])           # from a to b
+    currents = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])  # from a to b
     mids = (mesh.start + mesh.end) / 2
     vecs = mesh.end - mesh.start
     return mids, vecs, currents
@@ -89,7 +90,9 @@ def _potential_dot(src, mids: np.ndarray, vecs: np.ndarray) -> np.ndarray:
     return np.stack([h * dy / r3, -h * dx / r3, (X * dy - Y * dx) / r3], axis=1)
 
 
-def passage_flow(metal, spots: list, enter: int, leave: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def passage_flow(
+    metal, spots: list, enter: int, leave: int
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """A loop's passage through a plate as grid edges in the plan's frame: their midpoints (E × 2,
     m), vectors (E × 2, m) and the share of a unit current entering at spot ``enter`` and leaving
     at ``leave`` (E).
@@ -126,7 +129,7 @@ def passage_vector(src, metal, spots: list, enter: int, leave: int) -> np.ndarra
         the module's references.
     """
     mids, vecs, flow = passage_flow(metal, spots, enter, leave)
-    return src.b_ref * src.r_ref ** 3 * (flow @ _potential_dot(src, mids, vecs))
+    return src.b_ref * src.r_ref**3 * (flow @ _potential_dot(src, mids, vecs))
 
 
 def loop_passages(plan, circuit, loops) -> dict:
@@ -151,11 +154,19 @@ def loop_passages(plan, circuit, loops) -> dict:
         lp, n = info.loop, len(info.loop.nodes)
         for i, node in enumerate(lp.nodes):
             spot_nodes = circuit.nodes_of_metal(node) if node in metals else ()
-            if (circuit.plate_notes.get(node, {}).get("model") != "plate grid" or info.polygon is None
-                    or len(spot_nodes) > MAX_PLATE_CONTACTS or n < 3 or {lp.edges[i - 1], lp.edges[i]} & routed):
+            if (
+                circuit.plate_notes.get(node, {}).get("model") != "plate grid"
+                or info.polygon is None
+                or len(spot_nodes) > MAX_PLATE_CONTACTS
+                or n < 3
+                or {lp.edges[i - 1], lp.edges[i]} & routed
+            ):
                 continue
             spots = [circuit.positions[circuit.nodes[k]] for k in spot_nodes]
-            ends = [_spot_at(spots, pos.get(lp.nodes[i - 1])), _spot_at(spots, pos.get(lp.nodes[(i + 1) % n]))]
+            ends = [
+                _spot_at(spots, pos.get(lp.nodes[i - 1])),
+                _spot_at(spots, pos.get(lp.nodes[(i + 1) % n])),
+            ]
             if None not in ends and ends[0] != ends[1]:
                 out.setdefault(li, []).append((metals[node], spots, ends[0], ends[1]))
     return out

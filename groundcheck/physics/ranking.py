@@ -1,4 +1,5 @@
-"""The largest few of many values, as a full stable sort would give them, without sorting them all."""
+"""The largest few of many values, as a full stable sort would give them, without sorting them
+all."""
 
 from __future__ import annotations
 
@@ -14,8 +15,8 @@ def largest(values: np.ndarray, k: int) -> np.ndarray:
         values: a one-dimensional array of numbers (no NaN).
         k: how many.
     Returns:
-        the same indices as ``np.argsort(-values, kind="stable")[:k]``: one partition finds the k-th value, and
-        only the values down to it (ties kept) are sorted.
+        the same indices as ``np.argsort(-values, kind="stable")[:k]``: one partition finds the
+        k-th value, and only the values down to it (ties kept) are sorted.
     References:
         introselect (numpy.partition) followed by a stable sort (common practice).
     """

@@ -1,4 +1,5 @@
-"""Capacitor-input rectifier: charging current simulated in time to steady state, and its harmonics.
+"""Capacitor-input rectifier: charging current simulated in time to steady state, and its
+harmonics.
 
 Model: a sinusoidal secondary (rms ``secondary``) behind the series
 resistance of winding and diodes (``winding``), ideal diodes with a constant
@@ -40,11 +41,11 @@ __all__ = ["RectifierResult", "simulate", "harmonic_phasors", "STEPS_PER_PERIOD"
 #: integration steps per mains period
 STEPS_PER_PERIOD = 4096
 
-#: steady states already found in this process, by the rectifier's figures and the mains frequency: a long-running
-#: process (the live view, the advisor trying candidates) re-analyses plans whose rectifiers have not changed
+#: steady states already found in this process, by the rectifier's figures and the mains frequency:
+#: a long-running process (the live view, the advisor trying candidates) re-analyses plans whose
+#: rectifiers have not changed
 _SOLVED: dict[tuple[Rectifier, float], "RectifierResult"] = {}
 _SOLVED_MAX = 64
-
 
 
 @dataclass(frozen=True)
@@ -52,27 +53,38 @@ class RectifierResult:
     """Steady-state waveforms over one mains period and the figures derived from them."""
 
     name: str
-    frequency: float                 # mains, Hz
-    t: np.ndarray                    # s, STEPS_PER_PERIOD samples
-    current: np.ndarray              # charging current in the return, A
-    voltage: np.ndarray              # reservoir voltage, V
+    frequency: float  # mains, Hz
+    t: np.ndarray  # s, STEPS_PER_PERIOD samples
+    current: np.ndarray  # charging current in the return, A
+    voltage: np.ndarray  # reservoir voltage, V
     dc_voltage: float
     ripple_pp: float
     peak_current: float
     rms_current: float
     dc_current: float
-    conduction_angle: float          # degrees per charging pulse
-    filter_current: np.ndarray | None = None     # a filter section's capacitor current, out of its negative, A
-    output_dc: float | None = None               # the filter section's output, V
+    conduction_angle: float  # degrees per charging pulse
+    filter_current: np.ndarray | None = (
+        None  # a filter section's capacitor current, out of its negative, A
+    )
+    output_dc: float | None = None  # the filter section's output, V
     output_ripple_pp: float | None = None
 
     def as_dict(self) -> dict:
-        out = {"name": self.name, "dc_voltage_v": round(self.dc_voltage, 4), "ripple_pp_v": round(self.ripple_pp, 5),
-               "peak_current_a": round(self.peak_current, 5), "rms_current_a": round(self.rms_current, 5),
-               "dc_current_a": round(self.dc_current, 6), "conduction_angle_deg": round(self.conduction_angle, 2)}
+        out = {
+            "name": self.name,
+            "dc_voltage_v": round(self.dc_voltage, 4),
+            "ripple_pp_v": round(self.ripple_pp, 5),
+            "peak_current_a": round(self.peak_current, 5),
+            "rms_current_a": round(self.rms_current, 5),
+            "dc_current_a": round(self.dc_current, 6),
+            "conduction_angle_deg": round(self.conduction_angle, 2),
+        }
         if self.filter_current is not None:
-            out.update(output_dc_v=round(self.output_dc, 4), output_ripple_pp_v=round(self.output_ripple_pp, 6),
-                       filter_rms_current_a=round(float(np.sqrt(np.mean(self.filter_current ** 2))), 6))
+            out.update(
+                output_dc_v=round(self.output_dc, 4),
+                output_ripple_pp_v=round(self.output_ripple_pp, 6),
+                filter_rms_current_a=round(float(np.sqrt(np.mean(self.filter_current**2))), 6),
+            )
         return out
 
 
@@ -94,7 +106,7 @@ def _period(s: np.ndarray, v0: float, h: float, R: float, C: float, iload: float
     b_load = h * iload / C
     vk = float(v0)
     s_ext = np.append(s, s[0])
-    s_list = s_ext.tolist()             # plain floats: numpy's cost per element was most of it
+    s_list = s_ext.tolist()  # plain floats: numpy's cost per element was most of it
     for k in range(n):
         s0, s1 = s_list[k], s_list[k + 1]
         on0 = s0 > vk
@@ -105,7 +117,8 @@ def _period(s: np.ndarray, v0: float, h: float, R: float, C: float, iload: float
             if v1 < s1 and on0:
                 factor = (1 - a_on - a_load) / (1 + a_on + a_load)
             else:
-                # switching inside the step: fall back to the non-conducting update if it stays above the source
+                # switching inside the step: fall back to the non-conducting update if it stays
+                # above the source
                 v_off = (vk * (1 - a_load) - b_load) / (1 + a_load)
                 if v_off >= s1:
                     v1 = v_off
@@ -133,29 +146,43 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     References:
         O. H. Schade, 'Analysis of rectifier operation', Proc. IRE 31, 1943 (the circuit model).
     """
-    key = (r, float(frequency))                # a record's location does not take part in its equality
+    key = (r, float(frequency))  # a record's location does not take part in its equality
     if key not in _SOLVED:
         if len(_SOLVED) >= _SOLVED_MAX:
             _SOLVED.pop(next(iter(_SOLVED)))
         result = _checked(r, _simulate(r, frequency))
         for a in (result.t, result.current, result.voltage, result.filter_current):
             if a is not None:
-                a.flags.writeable = False      # shared between analyses: nobody may change it in place
+                a.flags.writeable = False  # shared between analyses: nobody may change it in place
         _SOLVED[key] = result
     return _SOLVED[key]
 
 
 def _checked(r: Rectifier, result: RectifierResult) -> RectifierResult:
-    """The steady state, unless it is not finite or its reservoir holds well over the secondary's peak (no passive
-    rectifier can; the margin of a quarter leaves room for the overshoot a leakage inductance gives): then a
-    located error, never an absurd figure."""
+    """The steady state, unless it is not finite or its reservoir holds well over the secondary's
+    peak (no passive rectifier can; the margin of a quarter leaves room for the overshoot a leakage
+    inductance gives): then a located error, never an absurd figure."""
     peak = math.sqrt(2) * r.secondary * 1.25 + 1.0
     values = (result.dc_voltage, result.ripple_pp, result.peak_current, result.rms_current)
-    if not all(math.isfinite(v) for v in values) or abs(result.dc_voltage) > peak or (
-            result.output_dc is not None and (not math.isfinite(result.output_dc) or abs(result.output_dc) > peak)):
-        raise PlanErrors([PlanError(f"rectifier {r.name}: no steady state could be found with these figures (the "
-                                    f"result would exceed the secondary's {math.sqrt(2) * r.secondary:.4g} V peak)",
-                                    r.location, "check the rectifier's figures and their units")])
+    if (
+        not all(math.isfinite(v) for v in values)
+        or abs(result.dc_voltage) > peak
+        or (
+            result.output_dc is not None
+            and (not math.isfinite(result.output_dc) or abs(result.output_dc) > peak)
+        )
+    ):
+        raise PlanErrors(
+            [
+                PlanError(
+                    f"rectifier {r.name}: no steady state could be found with these figures (the "
+                    f"result would exceed the secondary's {math.sqrt(2) * r.secondary:.4g} V "
+                    "peak)",
+                    r.location,
+                    "check the rectifier's figures and their units",
+                )
+            ]
+        )
     return result
 
 
@@ -167,6 +194,7 @@ def _simulate(r: Rectifier, frequency: float) -> RectifierResult:
     t = np.arange(n) * h
     if r.diode_law in ("shockley", "valve") or r.leakage > 0 or r.filter_capacitance is not None:
         from .rectifier_exact import steady_state
+
         w = math.sqrt(2) * r.secondary * np.sin(2 * math.pi * frequency * t)
         v, i, out, i_filter = steady_state(r, w if r.topology == "half-wave" else np.abs(w), h)
         return _result(r, frequency, t, v, i, out, i_filter)
@@ -186,19 +214,39 @@ def _simulate(r: Rectifier, frequency: float) -> RectifierResult:
     return _result(r, frequency, t, v[:-1], i[:-1])
 
 
-def _result(r: Rectifier, frequency: float, t: np.ndarray, v: np.ndarray, i: np.ndarray,
-            out: np.ndarray | None = None, i_filter: np.ndarray | None = None) -> RectifierResult:
+def _result(
+    r: Rectifier,
+    frequency: float,
+    t: np.ndarray,
+    v: np.ndarray,
+    i: np.ndarray,
+    out: np.ndarray | None = None,
+    i_filter: np.ndarray | None = None,
+) -> RectifierResult:
     on = i > 1e-9 * max(float(i.max()), 1e-30)
     pulses = 2 if r.topology != "half-wave" else 1
     angle = 360.0 * float(on.sum()) / pulses / len(t)
-    return RectifierResult(r.name, frequency, t, i, v, float(v.mean()), float(v.max() - v.min()), float(i.max()),
-                           float(np.sqrt(np.mean(i * i))), float(i.mean()), angle, i_filter,
-                           None if out is None else float(out.mean()),
-                           None if out is None else float(out.max() - out.min()))
+    return RectifierResult(
+        r.name,
+        frequency,
+        t,
+        i,
+        v,
+        float(v.mean()),
+        float(v.max() - v.min()),
+        float(i.max()),
+        float(np.sqrt(np.mean(i * i))),
+        float(i.mean()),
+        angle,
+        i_filter,
+        None if out is None else float(out.mean()),
+        None if out is None else float(out.max() - out.min()),
+    )
 
 
 def harmonic_phasors(samples: np.ndarray, max_harmonic: int) -> np.ndarray:
-    """Complex rms phasors of harmonics 0 … max_harmonic of one period of ``samples`` (index = harmonic).
+    """Complex rms phasors of harmonics 0 … max_harmonic of one period of ``samples`` (index =
+    harmonic).
 
     Element 0 is the mean; element k is √2·X_k/N, whose magnitude is the rms
     value of harmonic k.
@@ -216,5 +264,5 @@ def harmonic_phasors(samples: np.ndarray, max_harmonic: int) -> np.ndarray:
     out = np.zeros(max_harmonic + 1, dtype=complex)
     m = min(max_harmonic, len(X) - 1)
     out[0] = X[0].real / n
-    out[1:m + 1] = math.sqrt(2) * X[1:m + 1] / n
+    out[1 : m + 1] = math.sqrt(2) * X[1 : m + 1] / n
     return out

@@ -1,18 +1,20 @@
-"""The exact rectifier model: Shockley diodes with series resistance, the transformer's leakage inductance, and an
-optional filter section after the reservoir (a resistor or a choke, then a second capacitor whose negative lands
-on a point of the ground system, the load at its output).
+"""The exact rectifier model: Shockley diodes with series resistance, the transformer's leakage
+inductance, and an optional filter section after the reservoir (a resistor or a choke, then a
+second capacitor whose negative lands on a point of the ground system, the load at its output).
 
-The linear part (reservoir, filter, load) is a state-space system dx/dt = A·x + B·i + s, integrated with the
-trapezoidal rule; at each step the winding's equation (source = R·i + diode + reservoir, plus L·di/dt with leakage)
-is solved for the new current by Newton's method, the reservoir voltage being an affine function of it.  The
-periodic steady state is found by Newton's method on the winding current and the state at the
-source's zero crossing, the period map's Jacobian being the product of the steps' own (implicit
-differentiation of each step's equation), so each iteration costs one period; where the diodes
-block, the linear part's evolution is taken over the whole stretch at once.
+The linear part (reservoir, filter, load) is a state-space system dx/dt = A·x + B·i + s, integrated
+with the trapezoidal rule; at each step the winding's equation (source = R·i + diode + reservoir,
+plus L·di/dt with leakage) is solved for the new current by Newton's method, the reservoir voltage
+being an affine function of it.  The periodic steady state is found by Newton's method on the
+winding current and the state at the source's zero crossing, the period map's Jacobian being the
+product of the steps' own (implicit differentiation of each step's equation), so each iteration
+costs one period; where the diodes block, the linear part's evolution is taken over the whole
+stretch at once.
 
-References: O. H. Schade, "Analysis of rectifier operation", Proc. IRE 31(7), 1943; W. Shockley, "The theory of
-p-n junctions", Bell Syst. Tech. J. 28, 1949 (the diode law); T. J. Aprille, T. N. Trick, Proc. IEEE 60(1), 1972
-(shooting method); the trapezoidal rule (A-stable; C. W. Gear, *Numerical Initial Value Problems*, 1971).
+References: O. H. Schade, "Analysis of rectifier operation", Proc. IRE 31(7), 1943; W. Shockley,
+"The theory of p-n junctions", Bell Syst. Tech. J. 28, 1949 (the diode law); T. J. Aprille, T. N.
+Trick, Proc. IEEE 60(1), 1972 (shooting method); the trapezoidal rule (A-stable; C. W. Gear,
+*Numerical Initial Value Problems*, 1971).
 """
 
 from __future__ import annotations
@@ -25,9 +27,9 @@ from ..model.records import Rectifier
 
 __all__ = ["steady_state", "SHOCKLEY_IS", "SHOCKLEY_N", "SHOCKLEY_RS", "THERMAL_VOLTAGE"]
 
-#: the Shockley diode of ``diode shockley``: saturation current (A), emission coefficient and series resistance (Ω)
-#: of a common 1 A silicon rectifier's SPICE model (1N4007 class, from memory), at 27 °C (SPICE's default
-#: temperature, thermal voltage kT/q = 25.865 mV)
+#: the Shockley diode of ``diode shockley``: saturation current (A), emission coefficient and
+#: series resistance (Ω) of a common 1 A silicon rectifier's SPICE model (1N4007 class, from
+#: memory), at 27 °C (SPICE's default temperature, thermal voltage kT/q = 25.865 mV)
 SHOCKLEY_IS = 7.03e-9
 SHOCKLEY_N = 1.81
 SHOCKLEY_RS = 0.034
@@ -35,8 +37,8 @@ THERMAL_VOLTAGE = 1.380649e-23 * 300.15 / 1.602176634e-19
 
 
 def _system(r: Rectifier) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(A, B, s) of the linear part; the state is [v1] with no filter, [v1, v2] with a resistor, [v1, i_f, v2]
-    with a choke (v1 the reservoir, v2 the filter output, i_f the choke current)."""
+    """(A, B, s) of the linear part; the state is [v1] with no filter, [v1, v2] with a resistor,
+    [v1, i_f, v2] with a choke (v1 the reservoir, v2 the filter output, i_f the choke current)."""
     C1 = r.capacitance
     g = 1.0 / r.load_resistance if r.load_resistance else 0.0
     iload = r.load_current or 0.0
@@ -44,15 +46,22 @@ def _system(r: Rectifier) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         return np.array([[-g / C1]]), np.array([1.0 / C1]), np.array([-iload / C1])
     C2, R = r.filter_capacitance, r.filter_resistance
     if r.filter_inductance <= 0:
-        return (np.array([[-1 / (R * C1), 1 / (R * C1)], [1 / (R * C2), -1 / (R * C2) - g / C2]]),
-                np.array([1.0 / C1, 0.0]), np.array([0.0, -iload / C2]))
+        return (
+            np.array([[-1 / (R * C1), 1 / (R * C1)], [1 / (R * C2), -1 / (R * C2) - g / C2]]),
+            np.array([1.0 / C1, 0.0]),
+            np.array([0.0, -iload / C2]),
+        )
     Lf = r.filter_inductance
-    return (np.array([[0.0, -1 / C1, 0.0], [1 / Lf, -R / Lf, -1 / Lf], [0.0, 1 / C2, -g / C2]]),
-            np.array([1.0 / C1, 0.0, 0.0]), np.array([0.0, 0.0, -iload / C2]))
+    return (
+        np.array([[0.0, -1 / C1, 0.0], [1 / Lf, -R / Lf, -1 / Lf], [0.0, 1 / C2, -g / C2]]),
+        np.array([1.0 / C1, 0.0, 0.0]),
+        np.array([0.0, 0.0, -iload / C2]),
+    )
 
 
 class _Model:
-    """The trapezoidal rule's step matrices (x1 = M·x0 + N·(i0 + i1) + K) and the winding's equation."""
+    """The trapezoidal rule's step matrices (x1 = M·x0 + N·(i0 + i1) + K) and the winding's
+    equation."""
 
     def __init__(self, r: Rectifier, h: float):
         A, B, s = _system(r)
@@ -61,8 +70,9 @@ class _Model:
         nd = 2 if r.topology == "bridge" else 1
         self.shockley = r.diode_law == "shockley"
         self.valve = r.diode_law == "valve"
-        # Child's law, I = K·V^(3/2), through the stated point; a bridge of valves has two in series
-        self.k_valve = r.valve_current / r.valve_drop ** 1.5 if self.valve else 0.0
+        # Child's law, I = K·V^(3/2), through the stated point; a bridge of valves has two in
+        # series
+        self.k_valve = r.valve_current / r.valve_drop**1.5 if self.valve else 0.0
         self.rt = max(r.winding, 1e-3) + (nd * SHOCKLEY_RS if self.shockley else 0.0)
         self.nvt, self.drop, self.nd = nd * SHOCKLEY_N * THERMAL_VOLTAGE, nd * r.diode_drop, nd
         self.lh = r.leakage / h
@@ -83,9 +93,12 @@ class _Model:
             return self.nd * (2 / 3) * self.k_valve ** (-2 / 3) * max(x, 1e-9) ** (-1 / 3)
         return self.nvt / (SHOCKLEY_IS + x) if self.shockley else 0.0
 
-    def residual(self, x: float, i0: float, d0: float, s1: float, base: float) -> tuple[float, float]:
-        """The step's equation in the end current x, and its slope: the inductor's trapezoidal rule, or with no
-        leakage the winding's own equation (its drive across R, diode and reservoir is zero)."""
+    def residual(
+        self, x: float, i0: float, d0: float, s1: float, base: float
+    ) -> tuple[float, float]:
+        """The step's equation in the end current x, and its slope: the inductor's trapezoidal
+        rule, or with no leakage the winding's own equation (its drive across R, diode and
+        reservoir is zero)."""
         c = self.n0
         drive = s1 - self.rt * x - self.vd(x) - (base + c * x)
         slope = self.rt + self.dvd(x) + c
@@ -94,21 +107,24 @@ class _Model:
         return -drive, slope
 
     def step(self, i0: float, x0: list, s0: float, s1: float) -> tuple:
-        """One time step in plain floats (the state is one to three numbers: numpy's per-call cost would be most
-        of the work): the end current, the end state and the end current's sensitivity to the
-        start, as (a, b, g) with dx/d(i0, x0) = a·e_i + b·e_v1 + g·(N0, M[0]) (see
-        :meth:`jacobian`)."""
+        """One time step in plain floats (the state is one to three numbers: numpy's per-call cost
+        would be most of the work): the end current, the end state and the end current's
+        sensitivity to the start, as (a, b, g) with dx/d(i0, x0) = a·e_i + b·e_v1 + g·(N0, M[0])
+        (see :meth:`jacobian`)."""
         free = self.free(x0, i0)
         base = free[0]
         if self.linear:
-            # constant-drop diodes, no leakage: the equation is linear in x (the root Newton's iteration would find)
+            # constant-drop diodes, no leakage: the equation is linear in x (the root Newton's
+            # iteration would find)
             num = s1 - self.drop - base
             if num <= 0.0:
                 return 0.0, free, 0.0, 0.0, 0.0
             x = num / (self.rt + self.n0)
             return x, self.end(free, x), 0.0, 0.0, -1.0 / (self.rt + self.n0)
-        d0 = (s0 - self.rt * i0 - self.vd(i0) - x0[0]) if i0 > 0 else 0.0     # inductor voltage at the start
-        if self.residual(0.0, i0, d0, s1, base)[0] >= 0.0:             # the diodes block
+        d0 = (
+            (s0 - self.rt * i0 - self.vd(i0) - x0[0]) if i0 > 0 else 0.0
+        )  # inductor voltage at the start
+        if self.residual(0.0, i0, d0, s1, base)[0] >= 0.0:  # the diodes block
             return 0.0, free, 0.0, 0.0, 0.0
         x = max(i0, 1e-6)
         for _ in range(60):
@@ -163,8 +179,8 @@ class _Model:
             self.powers = _powers(self.M, self.K, len(src) - 1)
         P, Q = self.powers
         left = len(src) - 1 - k
-        X = P[1:left + 1] @ np.asarray(x) + Q[1:left + 1]
-        on = np.asarray(src[k + 1:]) - self.vd(0.0) - X[:, 0] > 0.0
+        X = P[1 : left + 1] @ np.asarray(x) + Q[1 : left + 1]
+        on = np.asarray(src[k + 1 :]) - self.vd(0.0) - X[:, 0] > 0.0
         count = int(on.argmax()) if on.any() else left
         return X[:count].tolist()
 
@@ -197,14 +213,20 @@ def _affine(m: list, n: list, k: list):
         return (lambda x, i: [m00 * x[0] + n0 * i + k0]), (lambda f, x: [f[0] + n0 * x])
     if len(n) == 2:
         ((m00, m01), (m10, m11)), (n0, n1), (k0, k1) = m, n, k
-        return (lambda x, i: [m00 * x[0] + m01 * x[1] + n0 * i + k0,
-                              m10 * x[0] + m11 * x[1] + n1 * i + k1]), \
-            (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x])
+        return (
+            lambda x, i: [
+                m00 * x[0] + m01 * x[1] + n0 * i + k0,
+                m10 * x[0] + m11 * x[1] + n1 * i + k1,
+            ]
+        ), (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x])
     ((m00, m01, m02), (m10, m11, m12), (m20, m21, m22)), (n0, n1, n2), (k0, k1, k2) = m, n, k
-    return (lambda x, i: [m00 * x[0] + m01 * x[1] + m02 * x[2] + n0 * i + k0,
-                          m10 * x[0] + m11 * x[1] + m12 * x[2] + n1 * i + k1,
-                          m20 * x[0] + m21 * x[1] + m22 * x[2] + n2 * i + k2]), \
-        (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x, f[2] + n2 * x])
+    return (
+        lambda x, i: [
+            m00 * x[0] + m01 * x[1] + m02 * x[2] + n0 * i + k0,
+            m10 * x[0] + m11 * x[1] + m12 * x[2] + n1 * i + k1,
+            m20 * x[0] + m21 * x[1] + m22 * x[2] + n2 * i + k2,
+        ]
+    ), (lambda f, x: [f[0] + n0 * x, f[1] + n1 * x, f[2] + n2 * x])
 
 
 def _powers(M: np.ndarray, K: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarray]:
@@ -213,7 +235,7 @@ def _powers(M: np.ndarray, K: np.ndarray, n: int) -> tuple[np.ndarray, np.ndarra
     P = np.eye(len(K))[None]
     while len(P) <= n:
         P = np.concatenate([P, P @ np.linalg.matrix_power(M, len(P))])
-    P = P[:n + 1]
+    P = P[: n + 1]
     Q = np.concatenate([np.zeros((1, len(K))), np.cumsum(P[:-1] @ K, axis=0)])
     return P, Q
 
@@ -233,7 +255,8 @@ def _newton(z: np.ndarray, g: np.ndarray, J: np.ndarray, peak: float) -> np.ndar
 
 
 def _start(r: Rectifier, peak: float) -> np.ndarray:
-    """A first guess of the state at the zero crossing: the reservoir near the peak, the output a little below."""
+    """A first guess of the state at the zero crossing: the reservoir near the peak, the output a
+    little below."""
     dim = 1 if r.filter_capacitance is None else (2 if r.filter_inductance <= 0 else 3)
     iload = r.load_current or 0.0
     v = 0.95 * peak
@@ -251,8 +274,8 @@ def steady_state(r: Rectifier, s: np.ndarray, h: float):
         s: the source voltage over one period, already rectified for full-wave and bridge, V.
         h: the time step, s.
     Returns:
-        (reservoir voltage, charging current, filter output voltage or None, filter capacitor current or None),
-        each one period of samples.
+        (reservoir voltage, charging current, filter output voltage or None, filter capacitor
+        current or None), each one period of samples.
     References:
         the module's references: Newton's method on the period map (Aprille and Trick, 1972).
     """

@@ -1,23 +1,24 @@
-"""Protective-earth figures: path resistance, fault current, touch voltage against earth, disconnection
-time against its limit, breaking capacity and fault survival.
+"""Protective-earth figures: path resistance, fault current, touch voltage against earth,
+disconnection time against its limit, breaking capacity and fault survival.
 
 The protective path is the network of conductors that are protective by topology or by role
-(:mod:`groundcheck.network.earthing`) from the mains inlet's protective terminal to each touchable metal part;
-its resistance is measured without the mains cord, as in the bonding tests of IEC 61010-1 6.5.2.4 and
-IEC 60335-1 cl. 27.5.
+(:mod:`groundcheck.network.earthing`) from the mains inlet's protective terminal to each touchable
+metal part; its resistance is measured without the mains cord, as in the bonding tests of IEC
+61010-1 6.5.2.4 and IEC 60335-1 cl. 27.5.
 
 A line-to-part fault drives, with every resistance at its maximum (IEC 60364-4-41 411.4.4's
-Zs = Ze + the circuit's line and protective conductors, here extended by the equipment's own parts)::
+Zs = Ze + the circuit's line and protective conductors, here extended by the equipment's own
+parts)::
 
     I_f = U0 / (Ze + R_fuse + R_circuit,line + R_cord,line + R_path + R_cord,PE + R_circuit,PE)
 
 The touch voltage against earth is I_f times the protective path from the part to the main earthing
-terminal (R_path + R_cord,PE + R_circuit,PE); in a TT system the installation's earth electrode R_A is
-added (by default the whole external loop impedance, the worst case).  The protective device — fuse
-(pre-arcing plus arcing), breaker or RCD, whichever opens first — must disconnect within the maximum
-time of IEC 60364-4-41 Table 41.1 for the supply voltage and earthing system; the fuse must be able
-to break the prospective current; each protective conductor must survive the let-through I²t
-(adiabatic equation, IEC 60364-5-54 543.1.2): S ≥ √(I²t)/k.
+terminal (R_path + R_cord,PE + R_circuit,PE); in a TT system the installation's earth electrode R_A
+is added (by default the whole external loop impedance, the worst case).  The protective device —
+fuse (pre-arcing plus arcing), breaker or RCD, whichever opens first — must disconnect within the
+maximum time of IEC 60364-4-41 Table 41.1 for the supply voltage and earthing system; the fuse must
+be able to break the prospective current; each protective conductor must survive the let-through
+I²t (adiabatic equation, IEC 60364-5-54 543.1.2): S ≥ √(I²t)/k.
 """
 
 from __future__ import annotations
@@ -31,12 +32,33 @@ from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
-from .protection import (STANDARD_PE_LIMIT, CABLE_OPERATING_TEMPERATURE, DEFAULT_CIRCUIT, DEFAULT_LINE_NEUTRAL_LOOP,
-                         DEFAULT_ZE, TT_SOURCE_LOOP, Clearing, breaking_capacity, cable_resistance, device_clearing,
-                         fuse_cold_resistance, max_disconnection_time, rcd_clearing)
+from .protection import (
+    STANDARD_PE_LIMIT,
+    CABLE_OPERATING_TEMPERATURE,
+    DEFAULT_CIRCUIT,
+    DEFAULT_LINE_NEUTRAL_LOOP,
+    DEFAULT_ZE,
+    TT_SOURCE_LOOP,
+    Clearing,
+    breaking_capacity,
+    cable_resistance,
+    device_clearing,
+    fuse_cold_resistance,
+    max_disconnection_time,
+    rcd_clearing,
+)
 
-__all__ = ["SafetyResult", "PartFigures", "ConductorCheck", "Supply", "protective_figures", "adiabatic_k",
-           "DEFAULT_PE_LIMIT", "STANDARD_PE_LIMIT", "TOUCH_LIMIT", "supply_figures",
+__all__ = [
+    "SafetyResult",
+    "PartFigures",
+    "ConductorCheck",
+    "Supply",
+    "protective_figures",
+    "adiabatic_k",
+    "DEFAULT_PE_LIMIT",
+    "STANDARD_PE_LIMIT",
+    "TOUCH_LIMIT",
+    "supply_figures",
 ]
 
 DEFAULT_PE_LIMIT = STANDARD_PE_LIMIT
@@ -44,10 +66,11 @@ DEFAULT_PE_LIMIT = STANDARD_PE_LIMIT
 #: conventional touch-voltage limit for AC in normal conditions, V (IEC 60364-4-41, U_L = 50 V)
 TOUCH_LIMIT = 50.0
 
-#: k for copper protective conductors (A·√s/mm²): (in a cable, separate), IEC 60364-5-54 Tables A.54.2/A.54.3
-#: (PVC, XLPE).  Bare copper: 159, the column for bare conductors where there is no risk of damage to
-#: neighbouring material at a final temperature of 200 °C (Table A.54.5, "normal conditions", from
-#: memory) — the conservative column, chosen because a chassis wire runs beside insulated wiring
+#: k for copper protective conductors (A·√s/mm²): (in a cable, separate), IEC 60364-5-54 Tables
+#: A.54.2/A.54.3 (PVC, XLPE).  Bare copper: 159, the column for bare conductors where there is no
+#: risk of damage to neighbouring material at a final temperature of 200 °C (Table A.54.5, "normal
+#: conditions", from memory) — the conservative column, chosen because a chassis wire runs beside
+#: insulated wiring
 ADIABATIC_K = {"pvc": (115.0, 143.0), "xlpe": (143.0, 176.0), "bare": (159.0, 159.0)}
 
 
@@ -68,28 +91,33 @@ def adiabatic_k(insulation: str, in_cable: bool) -> float:
 
 @dataclass(frozen=True)
 class Supply:
-    """The fault loop outside the protective path, with where each figure came from.  The cables' resistances
-    are at their operating temperature (``cable_temperature``); the prospective currents, which the breaking
-    capacity must cover, at the lowest temperature (``cold_temperature``)."""
+    """The fault loop outside the protective path, with where each figure came from.  The cables'
+    resistances are at their operating temperature (``cable_temperature``); the prospective
+    currents, which the breaking capacity must cover, at the lowest temperature
+    (``cold_temperature``)."""
 
     system: str
-    ze: float                        # Ω, external loop impedance at the origin (TT: through the electrode)
+    ze: float  # Ω, external loop impedance at the origin (TT: through the electrode)
     ze_stated: bool
-    circuit_line: float              # Ω
-    circuit_cpc: float               # Ω
-    cord_line: float                 # Ω
-    cord_pe: float                   # Ω
-    fuse_resistance: float           # Ω
-    electrode: float                 # Ω, TT only (0 otherwise)
-    max_time: float | None           # s, IEC 60364-4-41 Table 41.1
+    circuit_line: float  # Ω
+    circuit_cpc: float  # Ω
+    cord_line: float  # Ω
+    cord_pe: float  # Ω
+    fuse_resistance: float  # Ω
+    electrode: float  # Ω, TT only (0 otherwise)
+    max_time: float | None  # s, IEC 60364-4-41 Table 41.1
     breaking_capacity: float | None  # A
     cable_temperature: float = 20.0  # °C, the cables' temperature in the figures above
-    cold_temperature: float = 20.0   # °C, the cables' temperature for the prospective currents
-    earth_fault_max: float = 0.0     # A, the largest line-to-protective fault (at the inlet, cables cold)
-    short_circuit: float = 0.0       # A, the largest line-to-neutral fault inside the equipment (cables cold)
+    cold_temperature: float = 20.0  # °C, the cables' temperature for the prospective currents
+    earth_fault_max: float = (
+        0.0  # A, the largest line-to-protective fault (at the inlet, cables cold)
+    )
+    short_circuit: float = (
+        0.0  # A, the largest line-to-neutral fault inside the equipment (cables cold)
+    )
     short_circuit_stated: bool = False
-    cold_outside: float = 0.0        # Ω, cables cold: external loop, fuse, circuit line and cord line
-    cold_return: float = 0.0         # Ω, cables cold: cord and circuit protective conductors
+    cold_outside: float = 0.0  # Ω, cables cold: external loop, fuse, circuit line and cord line
+    cold_return: float = 0.0  # Ω, cables cold: cord and circuit protective conductors
 
     @property
     def prospective(self) -> float:
@@ -102,22 +130,30 @@ class PartFigures:
     """The figures of a line-to-part fault at one touchable part (SI units)."""
 
     part: str
-    path_resistance: float           # Ω, worst fastening of the part
-    fault_current: float | None      # A
-    touch_voltage: float | None      # V against earth
-    clear_time: float | None         # s, the first device to open
-    i2t: float | None                # A²s let through
-    device: str | None = None        # which device opens first: fuse, breaker, rcd, or "stated"
-    prearc: float | None = None      # s, the fuse's pre-arcing part
-    arcing: float | None = None      # s, the fuse's arcing part
-    stated: tuple[str, ...] = ()     # figures taken from the plan rather than computed
+    path_resistance: float  # Ω, worst fastening of the part
+    fault_current: float | None  # A
+    touch_voltage: float | None  # V against earth
+    clear_time: float | None  # s, the first device to open
+    i2t: float | None  # A²s let through
+    device: str | None = None  # which device opens first: fuse, breaker, rcd, or "stated"
+    prearc: float | None = None  # s, the fuse's pre-arcing part
+    arcing: float | None = None  # s, the fuse's arcing part
+    stated: tuple[str, ...] = ()  # figures taken from the plan rather than computed
 
     def as_dict(self) -> dict:
         r = lambda x, d=6: None if x is None else round(x, d)  # noqa: E731
-        return {"part": self.part, "path_resistance_ohm": r(self.path_resistance, 7),
-                "fault_current_a": r(self.fault_current, 3), "touch_voltage_v": r(self.touch_voltage, 3),
-                "clear_time_s": r(self.clear_time, 6), "i2t_a2s": r(self.i2t, 3), "device": self.device,
-                "prearc_s": r(self.prearc, 6), "arcing_s": r(self.arcing, 6), "stated_in_plan": list(self.stated)}
+        return {
+            "part": self.part,
+            "path_resistance_ohm": r(self.path_resistance, 7),
+            "fault_current_a": r(self.fault_current, 3),
+            "touch_voltage_v": r(self.touch_voltage, 3),
+            "clear_time_s": r(self.clear_time, 6),
+            "i2t_a2s": r(self.i2t, 3),
+            "device": self.device,
+            "prearc_s": r(self.prearc, 6),
+            "arcing_s": r(self.arcing, 6),
+            "stated_in_plan": list(self.stated),
+        }
 
 
 @dataclass(frozen=True)
@@ -125,17 +161,22 @@ class ConductorCheck:
     """The adiabatic check of one protective conductor."""
 
     conductor: str
-    area: float                      # m²
+    area: float  # m²
     k: float
-    required: float                  # m²
+    required: float  # m²
 
     @property
     def survives(self) -> bool:
         return self.area >= self.required
 
     def as_dict(self) -> dict:
-        return {"conductor": self.conductor, "area_mm2": round(self.area * 1e6, 4), "k": self.k,
-                "required_mm2": round(self.required * 1e6, 4), "survives": self.survives}
+        return {
+            "conductor": self.conductor,
+            "area_mm2": round(self.area * 1e6, 4),
+            "k": self.k,
+            "required_mm2": round(self.required * 1e6, 4),
+            "survives": self.survives,
+        }
 
 
 @dataclass(frozen=True)
@@ -161,24 +202,38 @@ class SafetyResult:
     def as_dict(self) -> dict:
         s = self.supply
         r = lambda x, d=6: None if x is None else round(x, d)  # noqa: E731
-        return {"limit_ohm": self.limit, "standard_limit_ohm": STANDARD_PE_LIMIT, "limit_relaxed": self.relaxed,
-                "system": s.system, "external_loop_ohm": r(s.ze), "external_loop_stated": s.ze_stated,
-                "circuit_line_ohm": r(s.circuit_line), "circuit_protective_ohm": r(s.circuit_cpc),
-                "cord_line_ohm": r(s.cord_line), "cord_pe_ohm": r(s.cord_pe),
-                "fuse_resistance_ohm": r(s.fuse_resistance),
-                "electrode_ohm": r(s.electrode), "max_disconnection_s": s.max_time,
-                "cable_temperature_c": s.cable_temperature, "earth_fault_max_a": r(s.earth_fault_max, 3),
-                "short_circuit_a": r(s.short_circuit, 3), "short_circuit_stated": s.short_circuit_stated,
-                "breaking_capacity_a": r(s.breaking_capacity, 3),
-                "parts": [p.as_dict() for p in self.parts], "conductors": [c.as_dict() for c in self.conductors]}
+        return {
+            "limit_ohm": self.limit,
+            "standard_limit_ohm": STANDARD_PE_LIMIT,
+            "limit_relaxed": self.relaxed,
+            "system": s.system,
+            "external_loop_ohm": r(s.ze),
+            "external_loop_stated": s.ze_stated,
+            "circuit_line_ohm": r(s.circuit_line),
+            "circuit_protective_ohm": r(s.circuit_cpc),
+            "cord_line_ohm": r(s.cord_line),
+            "cord_pe_ohm": r(s.cord_pe),
+            "fuse_resistance_ohm": r(s.fuse_resistance),
+            "electrode_ohm": r(s.electrode),
+            "max_disconnection_s": s.max_time,
+            "cable_temperature_c": s.cable_temperature,
+            "earth_fault_max_a": r(s.earth_fault_max, 3),
+            "short_circuit_a": r(s.short_circuit, 3),
+            "short_circuit_stated": s.short_circuit_stated,
+            "breaking_capacity_a": r(s.breaking_capacity, 3),
+            "parts": [p.as_dict() for p in self.parts],
+            "conductors": [c.as_dict() for c in self.conductors],
+        }
 
 
 def external_loop(m) -> tuple[float, float]:
-    """The external earth-fault loop Ze at the origin and, in a TT supply, the installation's electrode R_A in it.
+    """The external earth-fault loop Ze at the origin and, in a TT supply, the installation's
+    electrode R_A in it.
 
-    TT: the fault current returns through the earth, so the loop holds R_A.  A stated loop includes it (the
-    electrode alone, when not stated, is taken as the whole loop: the worst case for the touch voltage); a stated
-    electrode without a loop adds the supply's own part (:data:`TT_SOURCE_LOOP`).
+    TT: the fault current returns through the earth, so the loop holds R_A.  A stated loop includes
+    it (the electrode alone, when not stated, is taken as the whole loop: the worst case for the
+    touch voltage); a stated electrode without a loop adds the supply's own part
+    (:data:`TT_SOURCE_LOOP`).
 
     Parameters:
         m: the mains record.
@@ -197,22 +252,27 @@ def external_loop(m) -> tuple[float, float]:
 
 
 def _cables(m, temperature: float) -> tuple[float, float, float]:
-    """(circuit line, circuit protective conductor, cord core) resistances at ``temperature``, Ω."""
+    """(circuit line, circuit protective conductor, cord core) resistances at ``temperature``,
+    Ω."""
     c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]
     c_area = m.circuit_area or DEFAULT_CIRCUIT[1]
-    return (cable_resistance(c_len, c_area, False, temperature),
-            cable_resistance(c_len, m.cpc_area or c_area, False, temperature),
-            cable_resistance(m.cord_length, m.cord_section, True, temperature))
+    return (
+        cable_resistance(c_len, c_area, False, temperature),
+        cable_resistance(c_len, m.cpc_area or c_area, False, temperature),
+        cable_resistance(m.cord_length, m.cord_section, True, temperature),
+    )
 
 
 def supply_figures(plan: Plan) -> Supply:
-    """The fault loop outside the equipment's protective path, from the mains statement and defaults: the
-    installation's cables at their operating temperature, and the prospective currents with them cold.
+    """The fault loop outside the equipment's protective path, from the mains statement and
+    defaults: the installation's cables at their operating temperature, and the prospective
+    currents with them cold.
 
     Parameters:
         plan: the plan.
     Returns:
-        the Supply: external loop impedance, final circuit, cord, disconnection limit, prospective currents.
+        the Supply: external loop impedance, final circuit, cord, disconnection limit, prospective
+        currents.
     References:
         IEC 60364-4-41; IEC 60228; IEC 60364-5-52 Table 52.1 (PVC 70 °C).
     """
@@ -223,22 +283,47 @@ def supply_figures(plan: Plan) -> Supply:
     ze, electrode = external_loop(m)
     fuse_r = 0.0
     if m.fuse is not None:
-        fuse_r = m.fuse_resistance if m.fuse_resistance is not None else fuse_cold_resistance(m.fuse_kind, m.fuse)
-    cap = breaking_capacity(m.fuse_kind, m.fuse, m.breaking, m.breaking_current) if m.fuse is not None else None
+        fuse_r = (
+            m.fuse_resistance
+            if m.fuse_resistance is not None
+            else fuse_cold_resistance(m.fuse_kind, m.fuse)
+        )
+    cap = (
+        breaking_capacity(m.fuse_kind, m.fuse, m.breaking, m.breaking_current)
+        if m.fuse is not None
+        else None
+    )
     c_line, c_cpc, c_cord = _cables(m, cold_t)
     cold_outside, cold_return = ze + fuse_r + c_line + c_cord, c_cord + c_cpc
     zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
     short = m.voltage / (zln + fuse_r + 2 * c_line + 2 * c_cord)
-    if m.short_circuit is not None:              # a stated current may only make the check stricter
+    if m.short_circuit is not None:  # a stated current may only make the check stricter
         short = max(short, m.short_circuit)
-    return Supply(m.system, ze, m.loop_impedance is not None, line, cpc, cord, cord, fuse_r, electrode,
-                  max_disconnection_time(m.voltage, m.system), cap, hot_t, cold_t,
-                  m.voltage / (cold_outside + cold_return), short, m.short_circuit is not None,
-                  cold_outside, cold_return)
+    return Supply(
+        m.system,
+        ze,
+        m.loop_impedance is not None,
+        line,
+        cpc,
+        cord,
+        cord,
+        fuse_r,
+        electrode,
+        max_disconnection_time(m.voltage, m.system),
+        cap,
+        hot_t,
+        cold_t,
+        m.voltage / (cold_outside + cold_return),
+        short,
+        m.short_circuit is not None,
+        cold_outside,
+        cold_return,
+    )
 
 
 def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | None]:
-    """The device that opens first at a fault current, with its clearing (None when none is assured)."""
+    """The device that opens first at a fault current, with its clearing (None when none is
+    assured)."""
     m = plan.mains
     options: list[tuple[Clearing, str]] = []
     if m.fuse is not None:
@@ -255,8 +340,9 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
 
 
 def protective_circuit(plan: Plan, route: ProtectiveRoute, circuit=None):
-    """The protective network: conductors protective by topology or role (of a kind that may carry protective
-    current) with every metal part's plate network; from the plan's full circuit when given.
+    """The protective network: conductors protective by topology or role (of a kind that may carry
+    protective current) with every metal part's plate network; from the plan's full circuit when
+    given.
 
     Parameters:
         plan: the plan.
@@ -267,15 +353,19 @@ def protective_circuit(plan: Plan, route: ProtectiveRoute, circuit=None):
     References:
         IEC 60364-5-54 (protective conductors).
     """
-    keep = {c.name for c in plan.conductors
-            if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES)}
+    keep = {
+        c.name
+        for c in plan.conductors
+        if can_carry_protective(c) and (c.name in route or c.role in PROTECTIVE_ROLES)
+    }
     if circuit is None:
         circuit = build_circuit(plan)
     return circuit.restricted(keep)
 
 
 def _path_resistances(plan: Plan, circ) -> dict[str, float]:
-    """DC resistance from the inlet's protective terminal to each touchable part it reaches (worst spot)."""
+    """DC resistance from the inlet's protective terminal to each touchable part it reaches (worst
+    spot)."""
     _, labels = circ.components
     if PE_POINT not in circ.point_node:
         return {}
@@ -300,10 +390,11 @@ def _path_resistances(plan: Plan, circ) -> dict[str, float]:
     return rpart
 
 
-def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAULT_PE_LIMIT,
-                       circuit=None) -> SafetyResult | None:
-    """Protective-earth figures of every touchable part bonded to the inlet; None without a mains supply
-    or for class II equipment (which has no protective earth).
+def protective_figures(
+    plan: Plan, route: ProtectiveRoute, limit: float = DEFAULT_PE_LIMIT, circuit=None
+) -> SafetyResult | None:
+    """Protective-earth figures of every touchable part bonded to the inlet; None without a mains
+    supply or for class II equipment (which has no protective earth).
 
     Parameters:
         plan: the plan.
@@ -313,7 +404,8 @@ def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAUL
     Returns:
         a SafetyResult per touchable part, or None without a mains statement.
     References:
-        IEC 60364-4-41 (disconnection, touch voltage); IEC 60364-5-54 (adiabatic check); IEC 62368-1 / IEC 60065 bonding
+        IEC 60364-4-41 (disconnection, touch voltage); IEC 60364-5-54 (adiabatic check); IEC
+        62368-1 / IEC 60065 bonding
             limit.
     """
     m = plan.mains
@@ -321,22 +413,28 @@ def protective_figures(plan: Plan, route: ProtectiveRoute, limit: float = DEFAUL
         return None
     sup = supply_figures(plan)
     rpart = _path_resistances(plan, protective_circuit(plan, route, circuit))
-    parts = [_part_figures(plan, sup, name, r) for name, r in
-             ((part.name, rpart[part.name]) for part in plan.metals if part.name in rpart)]
+    parts = [
+        _part_figures(plan, sup, name, r)
+        for name, r in (
+            (part.name, rpart[part.name]) for part in plan.metals if part.name in rpart
+        )
+    ]
     return SafetyResult(limit, tuple(parts), sup, _survival(plan, route, parts, sup))
 
 
 def _stricter(stated: float | None, computed: float | None, assured: bool) -> float | None:
-    """A stated figure may make a verdict stricter, never looser: the larger of the two; when a protective
-    device exists but is not assured to open (``computed`` None, ``assured`` False) nothing stated replaces that."""
+    """A stated figure may make a verdict stricter, never looser: the larger of the two; when a
+    protective device exists but is not assured to open (``computed`` None, ``assured`` False)
+    nothing stated replaces that."""
     if computed is None:
         return stated if assured else None
     return computed if stated is None else max(stated, computed)
 
 
 def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
-    """A line-to-part fault at one part whose protective path is ``r``: its current and touch voltage with the
-    cables at their operating temperature; the let-through I²t the larger of the hot and the cold case."""
+    """A line-to-part fault at one part whose protective path is ``r``: its current and touch
+    voltage with the cables at their operating temperature; the let-through I²t the larger of the
+    hot and the cold case."""
     m = plan.mains
     outside = sup.ze + sup.fuse_resistance + sup.circuit_line + sup.cord_line
     i_f = m.voltage / (outside + r + sup.cord_pe + sup.circuit_cpc)
@@ -346,7 +444,9 @@ def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
     no_device = m.fuse is None and m.rcd is None
     t = _stricter(m.clear_time, cl.time if cl else None, no_device)
     i2t = max(cl.i2t, cl_cold.i2t if cl_cold is not None else 0.0) if cl is not None else None
-    longer = t is not None and (cl is None or t > cl.time)     # a stated clearing time beyond the table's
+    longer = t is not None and (
+        cl is None or t > cl.time
+    )  # a stated clearing time beyond the table's
     if longer:
         i2t = max(i2t or 0.0, i_f * i_f * t)
     i2t = _stricter(m.fuse_i2t, i2t, no_device)
@@ -359,12 +459,25 @@ def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
     if m.loop_impedance is not None:
         stated.append("external_loop")
     fuse = cl is not None and device == "fuse"
-    return PartFigures(name, r, i_f, touch, t, i2t, device, cl.prearc if fuse else None,
-                       cl.arcing if fuse else None, tuple(stated))
+    return PartFigures(
+        name,
+        r,
+        i_f,
+        touch,
+        t,
+        i2t,
+        device,
+        cl.prearc if fuse else None,
+        cl.arcing if fuse else None,
+        tuple(stated),
+    )
 
 
-def _survival(plan: Plan, route: ProtectiveRoute, parts: list[PartFigures], sup: Supply) -> tuple[ConductorCheck, ...]:
-    """The adiabatic check of the cord's protective core and every protective conductor whose section matters."""
+def _survival(
+    plan: Plan, route: ProtectiveRoute, parts: list[PartFigures], sup: Supply
+) -> tuple[ConductorCheck, ...]:
+    """The adiabatic check of the cord's protective core and every protective conductor whose
+    section matters."""
     worst = max((p.i2t for p in parts if p.i2t is not None), default=None)
     if worst is None:
         return ()
@@ -373,4 +486,6 @@ def _survival(plan: Plan, route: ProtectiveRoute, parts: list[PartFigures], sup:
         area = cross_section(c)
         if c.name in route and section_checked(c) and area is not None:
             checks.append((c.name, area, adiabatic_k(c.insulation, c.in_cable)))
-    return tuple(ConductorCheck(name, area, k, math.sqrt(worst) / k * 1e-6) for name, area, k in checks)
+    return tuple(
+        ConductorCheck(name, area, k, math.sqrt(worst) / k * 1e-6) for name, area, k in checks
+    )

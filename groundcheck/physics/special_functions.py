@@ -85,13 +85,14 @@ def _agm(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         a, b, c = 0.5 * (a + b), np.sqrt(a * b), 0.5 * (a - b)
         power *= 2.0
         total = total + power * c * c
-        if np.all(np.abs(c) <= 4e-16 * a):   # a few units in the last place: no step changes K or E
+        if np.all(np.abs(c) <= 4e-16 * a):  # a few units in the last place: no step changes K or E
             break
     return a, total
 
 
 def ellipke(m):
-    """K(m) and E(m) together, from one arithmetic-geometric mean (see :func:`ellipk`, :func:`ellipe`).
+    """K(m) and E(m) together, from one arithmetic-geometric mean (see :func:`ellipk`,
+    :func:`ellipe`).
 
     Parameters:
         m: the parameter, dimensionless (numpy array or float).

@@ -42,12 +42,16 @@ _TASKS: Sequence[Callable] = ()
 
 class WorkerError(GroundcheckError):
     """A worker process that died before giving its results."""
+
+
 _LIMIT_THREADS: Callable | None = None
 
 
 def _start_worker() -> None:
     quiet_child()
-    signal.signal(signal.SIGINT, signal.SIG_IGN)    # Ctrl-C is the parent's to answer: it ends the workers
+    signal.signal(
+        signal.SIGINT, signal.SIG_IGN
+    )  # Ctrl-C is the parent's to answer: it ends the workers
     gc.disable()
     if _LIMIT_THREADS is not None:
         _LIMIT_THREADS()
@@ -57,12 +61,15 @@ def _run(index: int):
     return _TASKS[index]()
 
 
-def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[float] | None = None) -> list[T]:
+def run_tasks(
+    tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[float] | None = None
+) -> list[T]:
     """``[task() for task in tasks]``, computed by up to ``jobs`` processes.
 
-    Each worker takes the next task as soon as it is free, the costliest first (by ``costs``, an estimate in
-    any unit; the given order where equal), which keeps both cores busy when the tasks differ in size.  The
-    tasks need not be picklable (the workers inherit them); their results must be.
+    Each worker takes the next task as soon as it is free, the costliest first (by ``costs``, an
+    estimate in any unit; the given order where equal), which keeps both cores busy when the tasks
+    differ in size.  The tasks need not be picklable (the workers inherit them); their results must
+    be.
 
     Parameters:
         tasks: functions of no arguments, independent of each other.
@@ -71,8 +78,8 @@ def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[f
     Returns:
         the results in the order of the tasks.
     References:
-        longest-processing-time-first scheduling (R. L. Graham, "Bounds on multiprocessing timing anomalies",
-        SIAM J. Appl. Math. 17, 1969).
+        longest-processing-time-first scheduling (R. L. Graham, "Bounds on multiprocessing timing
+        anomalies", SIAM J. Appl. Math. 17, 1969).
     """
     tasks = list(tasks)
     jobs = min(max(1, int(jobs)), len(tasks))
@@ -80,23 +87,32 @@ def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[f
         return [task() for task in tasks]
     global _TASKS, _LIMIT_THREADS
     _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
-    order = sorted(range(len(tasks)), key=lambda i: -costs[i]) if costs is not None else range(len(tasks))
+    order = (
+        sorted(range(len(tasks)), key=lambda i: -costs[i])
+        if costs is not None
+        else range(len(tasks))
+    )
     out: list = [None] * len(tasks)
     try:
-        # a process pool that notices a worker dying (killed, out of memory) instead of waiting for it for ever
-        pool = ProcessPoolExecutor(jobs, mp_context=multiprocessing.get_context("fork"), initializer=_start_worker)
+        # a process pool that notices a worker dying (killed, out of memory) instead of waiting for
+        # it for ever
+        pool = ProcessPoolExecutor(
+            jobs, mp_context=multiprocessing.get_context("fork"), initializer=_start_worker
+        )
         try:
             futures = {i: pool.submit(_run, i) for i in order}
             for i, fut in futures.items():
                 out[i] = fut.result()
         except BaseException:
-            _stop(pool)                 # Ctrl-C or an error: the queue is not worked through first
+            _stop(pool)  # Ctrl-C or an error: the queue is not worked through first
             raise
         pool.shutdown()
     except BrokenProcessPool:
-        raise WorkerError("a worker process of --jobs died before it finished (killed, or out of memory); "
-                          "run with --jobs 1") from None
-    except OSError:                     # no process could be started (a process limit): one process does it all
+        raise WorkerError(
+            "a worker process of --jobs died before it finished (killed, or out of memory); run "
+            "with --jobs 1"
+        ) from None
+    except OSError:  # no process could be started (a process limit): one process does it all
         out = [task() for task in tasks]
     finally:
         _TASKS = ()
@@ -104,7 +120,8 @@ def run_tasks(tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[f
 
 
 def _stop(pool: ProcessPoolExecutor) -> None:
-    """The queued tasks cancelled and the workers ended now, without waiting for the tasks they run."""
+    """The queued tasks cancelled and the workers ended now, without waiting for the tasks they
+    run."""
     workers = list((getattr(pool, "_processes", None) or {}).values())
     pool.shutdown(wait=False, cancel_futures=True)
     for w in workers:

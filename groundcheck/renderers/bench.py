@@ -13,8 +13,15 @@ from ..core.errors import shown
 from ..core.plain import clean
 from ..rules.catalogue import severity_rank
 
-__all__ = ["signed", "bench_document", "render_bench_json", "render_bench_text", "worst", "unit_of",
-           "db"]
+__all__ = [
+    "signed",
+    "bench_document",
+    "render_bench_json",
+    "render_bench_text",
+    "worst",
+    "unit_of",
+    "db",
+]
 
 #: bumped when a key is renamed or removed
 BENCH_SCHEMA = 1
@@ -187,8 +194,7 @@ def _table(c, unit: str) -> list[str]:
         mark = "  (not in the plan)" if r.unexplained else ""
         out.append(
             f"  {r.harmonic:>8} {r.frequency_hz:>8.1f} {meas:>9} {_f(db(r.predicted)):>9} "
-            f"{diff:>7} "
-            f"{_f(db(r.fitted)):>8}  {', '.join(r.contributors) or '–'}{mark}"
+            f"{diff:>7} {_f(db(r.fitted)):>8}  {', '.join(r.contributors) or '–'}{mark}"
         )
     return out
 
@@ -199,8 +205,8 @@ def _recording_text(m) -> list[str]:
         f"recording {shown(m.path)}: {m.seconds:.1f} s, {m.rate} Hz, {m.bits}-bit"
         f"{' float' if m.floating else ''}, channel {m.channel + 1} of {m.channels}; {cal}",
         f"mains {m.mains_hz:.2f} Hz (nominal {m.nominal_hz:g} "
-        f"Hz{'' if m.detected else ', no line found'}); "
-        f"{m.window}; {m.segments} segment(s) averaged",
+        f"Hz{'' if m.detected else ', no line found'}); {m.window}; {m.segments} segment(s) "
+        "averaged",
     ]
 
 
@@ -237,8 +243,7 @@ def render_bench_text(record) -> str:
         for i, s in enumerate(c.suspects, 1):
             off = "not seen" if s.off_db is None else f"{signed(s.off_db):+.1f} dB"
             out.append(
-                f"  {i}. {', '.join(s.members)} — {s.mechanism}; {off} against the plan, "
-                "explains "
+                f"  {i}. {', '.join(s.members)} — {s.mechanism}; {off} against the plan, explains "
                 f"{s.share_pct:.1f} % of the measured hum"
             )
         out += [f"  - {shown(s)}" for s in c.summary] + [""]
@@ -249,8 +254,7 @@ def render_bench_text(record) -> str:
             limit = f", limit {b.limit_ohm * 1e3:.0f} mohm" if b.limit_ohm is not None else ""
             out.append(
                 f"  {shown(b.location)} {shown(b.a)} to {shown(b.b)}: {b.measured_ohm * 1e3:.2f} "
-                "mohm, "
-                f"plan {planned}{limit}: {b.verdict}"
+                f"mohm, plan {planned}{limit}: {b.verdict}"
             )
         out.append("")
     for f in record.findings:

@@ -21,10 +21,11 @@ td.l,th.l{text-align:left}.bad{color:#b00;font-weight:600}.ok{color:#060}svg{bac
 W, H, LEFT, BOTTOM = 900, 300, 60, 40
 
 
-LEGEND = ('<p class="legend"><span style="color:#1f5fbf">■ measured</span>'
-          '<span style="color:#c33">■ not explained by the plan</span>'
-          '<span style="color:#e08a00">○ planned</span>'
-          "<span style=\"color:#999\">— noise in the line's bandwidth</span></p>")
+LEGEND = (
+    '<p class="legend"><span style="color:#1f5fbf">■ measured</span><span style="color:#c33">■ '
+    'not explained by the plan</span><span style="color:#e08a00">○ planned</span><span '
+    'style="color:#999">— noise in the line\'s bandwidth</span></p>'
+)
 
 
 def _marks(r, x, y, bottom: float, bar: float, unit: str) -> list[str]:
@@ -34,17 +35,23 @@ def _marks(r, x, y, bottom: float, bar: float, unit: str) -> list[str]:
     nv, pv = db(r.noise), db(r.predicted)
     mv = db(r.measured) if r.above_noise else None
     if nv is not None:
-        out.append(f'<line x1="{cx - bar:.1f}" x2="{cx + bar:.1f}" y1="{y(nv):.1f}" '
-                   f'y2="{y(nv):.1f}" stroke="#999"/>')
+        out.append(
+            f'<line x1="{cx - bar:.1f}" x2="{cx + bar:.1f}" y1="{y(nv):.1f}" y2="{y(nv):.1f}" '
+            'stroke="#999"/>'
+        )
     if mv is not None:
         colour = "#c33" if r.unexplained else "#1f5fbf"
-        out.append(f'<rect x="{cx - bar / 2:.1f}" y="{y(mv):.1f}" width="{bar:.1f}" '
-                   f'height="{max(y(bottom) - y(mv), 0):.1f}" fill="{colour}"><title>'
-                   f"{r.frequency_hz:.1f} Hz measured {mv:.1f} {unit}</title></rect>")
+        out.append(
+            f'<rect x="{cx - bar / 2:.1f}" y="{y(mv):.1f}" width="{bar:.1f}" '
+            f'height="{max(y(bottom) - y(mv), 0):.1f}" fill="{colour}"><title>'
+            f"{r.frequency_hz:.1f} Hz measured {mv:.1f} {unit}</title></rect>"
+        )
     if pv is not None:
-        out.append(f'<circle cx="{cx:.1f}" cy="{y(pv):.1f}" r="4" fill="none" stroke="#e08a00" '
-                   f'stroke-width="2"><title>{r.plan_frequency_hz:g} Hz planned {pv:.1f} dBV'
-                   "</title></circle>")
+        out.append(
+            f'<circle cx="{cx:.1f}" cy="{y(pv):.1f}" r="4" fill="none" stroke="#e08a00" '
+            f'stroke-width="2"><title>{r.plan_frequency_hz:g} Hz planned {pv:.1f} dBV'
+            "</title></circle>"
+        )
     return out
 
 
@@ -53,9 +60,12 @@ def _chart(c, unit: str) -> str:
     rows = [r for r in c.rows if r.above_noise or r.predicted]
     if not rows:
         return "<p>No line above the noise and none planned.</p>"
-    values = [v for r in rows
-              for v in (db(r.measured) if r.above_noise else None, db(r.predicted), db(r.noise))
-              if v is not None]
+    values = [
+        v
+        for r in rows
+        for v in (db(r.measured) if r.above_noise else None, db(r.predicted), db(r.noise))
+        if v is not None
+    ]
     top, bottom = max(values) + 5, min(values) - 5
     n = max(r.harmonic for r in c.rows)
 
@@ -65,21 +75,27 @@ def _chart(c, unit: str) -> str:
     def y(v):
         return 10 + (H - BOTTOM - 10) * (top - v) / max(top - bottom, 1e-9)
 
-    parts = [f'<svg width="{W}" height="{H}" role="img" '
-             'aria-label="measured and planned spectrum">']
+    parts = [
+        f'<svg width="{W}" height="{H}" role="img" aria-label="measured and planned spectrum">'
+    ]
     for k in range(6):
         v = bottom + (top - bottom) * k / 5
-        parts.append(f'<line x1="{LEFT}" x2="{W - 10}" y1="{y(v):.1f}" y2="{y(v):.1f}" '
-                     f'stroke="#ddd"/><text x="4" y="{y(v) + 4:.1f}" font-size="11">'
-                     f"{v:.0f} {unit}</text>")
+        parts.append(
+            f'<line x1="{LEFT}" x2="{W - 10}" y1="{y(v):.1f}" y2="{y(v):.1f}" '
+            f'stroke="#ddd"/><text x="4" y="{y(v) + 4:.1f}" font-size="11">'
+            f"{v:.0f} {unit}</text>"
+        )
     bar = max(2.0, (W - LEFT) / n * 0.35)
     for r in c.rows:
         parts += _marks(r, x, y, bottom, bar, unit)
     for h in range(1, n + 1, max(1, n // 10)):
-        parts.append(f'<text x="{x(h):.1f}" y="{H - 18}" font-size="11" text-anchor="middle">'
-                     f"{c.rows[h - 1].frequency_hz:.0f}</text>")
-    parts.append(f'<text x="{W / 2:.0f}" y="{H - 3}" font-size="12" text-anchor="middle">Hz'
-                 "</text></svg>")
+        parts.append(
+            f'<text x="{x(h):.1f}" y="{H - 18}" font-size="11" text-anchor="middle">'
+            f"{c.rows[h - 1].frequency_hz:.0f}</text>"
+        )
+    parts.append(
+        f'<text x="{W / 2:.0f}" y="{H - 3}" font-size="12" text-anchor="middle">Hz</text></svg>'
+    )
     return "".join(parts) + LEGEND
 
 
@@ -90,8 +106,8 @@ def _bars(c, unit: str) -> str:
     lo, hi = min(vals) - 5, max(vals) + 5
     out = [
         '<table><tr><th class="l">suspect</th><th '
-        'class="l">mechanism</th><th>planned</th><th>fitted</th>'
-        '<th>against plan</th><th class="l">planned (orange) and fitted (blue)</th></tr>'
+        'class="l">mechanism</th><th>planned</th><th>fitted</th><th>against plan</th><th '
+        'class="l">planned (orange) and fitted (blue)</th></tr>'
     ]
     for s in c.suspects:
 
@@ -103,7 +119,7 @@ def _bars(c, unit: str) -> str:
         out.append(
             f'<tr><td class="l">{esc(", ".join(s.members))}</td><td '
             f'class="l">{esc(s.mechanism)}</td>'
-            f'<td>{_n(db(s.planned))}</td><td>{_n(db(s.explained))}</td><td '
+            f"<td>{_n(db(s.planned))}</td><td>{_n(db(s.explained))}</td><td "
             f'class="{cls}">{off}</td>'
             '<td class="l"><svg width="310" height="22"><rect y="2" height="8" '
             f'width="{width(db(s.planned))}"'
@@ -137,8 +153,8 @@ def _rows(c, unit: str) -> str:
         )
         out.append(
             f"<tr><td>{r.harmonic}</td><td>{r.frequency_hz:.1f}</td><td>{meas}</td>"
-            f"<td>{_n(db(r.predicted))}</td><td>{diff}</td><td>{spl}</td><td "
-            f"class=l>{who}</td></tr>"
+            f"<td>{_n(db(r.predicted))}</td><td>{diff}</td><td>{spl}</td>"
+            f"<td class=l>{who}</td></tr>"
         )
     return "".join(out) + "</table>"
 
@@ -149,7 +165,7 @@ def _bonds(record) -> str:
     out = [
         '<h2>Bonding measurements</h2><table><tr><th class="l">where</th><th '
         'class="l">between</th>'
-        '<th>measured mΩ</th><th>test A</th><th>plan mΩ</th><th>limit mΩ</th><th '
+        "<th>measured mΩ</th><th>test A</th><th>plan mΩ</th><th>limit mΩ</th><th "
         'class="l">verdict</th>'
         '<th class="l">joints on the path</th></tr>'
     ]
@@ -158,7 +174,7 @@ def _bonds(record) -> str:
         planned = "not joined" if b.planned_ohm is None else format(b.planned_ohm * 1e3, ".2f")
         out.append(
             f'<tr><td class="l">{esc(str(b.location))}</td><td class="l">{esc(b.a)} to '
-            f'{esc(b.b)}</td>'
+            f"{esc(b.b)}</td>"
             f"<td>{b.measured_ohm * 1e3:.2f}</td><td>{_n(b.test_current, 'g')}</td>"
             f"<td>{planned}</td>"
             f"<td>{'–' if b.limit_ohm is None else format(b.limit_ohm * 1e3, '.0f')}</td>"
@@ -186,8 +202,8 @@ def render_bench_html(record) -> str:
         cal = esc(m.calibration) if m.calibrated else "not calibrated: levels in dBFS"
         body.append(
             f"<p>Recording {esc(m.path)}: {m.seconds:.1f} s at {m.rate} Hz, channel "
-            f"{m.channel + 1} of "
-            f"{m.channels}; {cal}. Mains {m.mains_hz:.2f} Hz. Method: {esc(m.window)}.</p>"
+            f"{m.channel + 1} of {m.channels}; {cal}. Mains {m.mains_hz:.2f} Hz. Method: "
+            f"{esc(m.window)}.</p>"
         )
     for c in record.channels:
         verdict = {None: "audibility not judged", True: "audible", False: "inaudible"}[c.audible]
@@ -206,17 +222,14 @@ def render_bench_html(record) -> str:
             "<h2>Findings</h2><ul>"
             + "".join(
                 f"<li><b>{esc(f.severity)} {esc(f.code)}</b> {esc(str(f.location))}: "
-                f"{esc(f.message)}"
-                f"{'<br>fix: ' + esc(f.fix) if f.fix else ''}</li>"
+                f"{esc(f.message)}{'<br>fix: ' + esc(f.fix) if f.fix else ''}</li>"
                 for f in record.findings
             )
             + "</ul>"
         )
     body += [f"<p>Note: {esc(n)}</p>" for n in record.notes]
     verdict = f"worst finding: {esc(worst(record))}" if record.findings else "No bench finding."
-    body.append(
-        f"<p>{verdict}</p>"
-    )
+    body.append(f"<p>{verdict}</p>")
     return (
         '<!DOCTYPE html><html lang="en"><head><meta charset="utf-8"><title>groundcheck bench: '
         f"{esc(record.plan_title)}</title><style>{STYLE}</style></head><body>"

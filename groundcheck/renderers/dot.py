@@ -20,43 +20,75 @@ from __future__ import annotations
 
 from collections import defaultdict
 
-from ..model.kinds import (SIGNAL, is_fastening, is_fastening_kind, is_lift, joins_devices,
-                           shield_like)
+from ..model.kinds import (
+    SIGNAL,
+    is_fastening,
+    is_fastening_kind,
+    is_lift,
+    joins_devices,
+    shield_like,
+)
 from ..rules.results import Result
-from .dotbase import (DRAWING_CAUTION, LIFT_STYLE, LOOP_HALO, PROBLEM_HALO, ROLE_STYLE, attrs as _attrs,  # noqa: F401
-                      dot_quote, element_class, legend as _legend, problems as _problems)
+from .dotbase import (
+    LIFT_STYLE,
+    LOOP_HALO,
+    PROBLEM_HALO,
+    ROLE_STYLE,
+    attrs as _attrs,
+    dot_quote,
+    element_class,
+    legend as _legend,
+    problems as _problems,
+)
 from .system import system_dot
 
-__all__ = ["physical_dot", "topology_dot", "dot_quote", "element_class", "ROLE_STYLE", "has_physical_view"]
+__all__ = [
+    "physical_dot",
+    "topology_dot",
+    "dot_quote",
+    "element_class",
+    "ROLE_STYLE",
+    "has_physical_view",
+]
 
 
 def has_physical_view(plan) -> bool:
-    """Whether the plan can be drawn physically: it places devices (the system view) or gives positions."""
+    """Whether the plan can be drawn physically: it places devices (the system view) or gives
+    positions."""
     return bool(plan.devices) or any(p.pos is not None for p in plan.points)
 
 
 def physical_dot(result: Result) -> str:
-    """The physical view: metal parts, points at their positions, conductors along their routes (neato)."""
+    """The physical view: metal parts, points at their positions, conductors along their routes
+    (neato)."""
     plan = result.plan
     if plan.devices:
         return system_dot(result)
     marks = _problems(result)
     positioned = {p.name: p.pos for p in plan.points if p.pos is not None}
-    xs = [q[0] for q in positioned.values()] + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
-    ys = [q[1] for q in positioned.values()] + [m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])]
+    xs = [q[0] for q in positioned.values()] + [
+        m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])
+    ]
+    ys = [q[1] for q in positioned.values()] + [
+        m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])
+    ]
     if not xs:
         return topology_dot(result)
     x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
     extent = max(x1 - x0, y1 - y0, 1e-3)
-    scale = 720.0 / extent                      # points per metre: the drawing is about 10 in across
+    scale = 720.0 / extent  # points per metre: the drawing is about 10 in across
 
     def P(q):
         return ((q[0] - x0) * scale + 20, (q[1] - y0) * scale + 20)
 
-    lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
-                                 "fontname=Helvetica, "
-             'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72, forcelabels=true];',
-             '  node [fontname=Helvetica, fontsize=8];', '  edge [fontname=Helvetica, fontsize=8];']
+    lines = [
+        "graph physical {",
+        f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
+        "fontname=Helvetica, "
+        'splines=line, outputorder=nodesfirst, bgcolor="white", inputscale=72, forcelabels=true];',
+        "  node [fontname=Helvetica, fontsize=8];",
+        "  edge [fontname=Helvetica, fontsize=8];",
+    ]
     _metals(plan, marks, scale, P, lines)
     _frame_marks((x1 - x0) * scale, scale, lines)
     _points(plan, marks, positioned, P, lines)
@@ -65,11 +97,14 @@ def physical_dot(result: Result) -> str:
     _fields(plan, P, lines)
     missing = physical_omissions(result)
     if any(missing):
-        note = (f"not drawn here: {missing[0]} points and {missing[1]} conductors without positions "
-                "(groundcheck draw --view topology shows every one)")
-        lines.append(f"  {dot_quote('note:omitted')} [shape=note, fontsize=9, fontcolor=\"#a04000\", "
-                     "color=\"#a04000\", "
-                     f"label={dot_quote(note)}, pos=\"{20:.1f},{-30:.1f}!\"];")
+        note = (
+            f"not drawn here: {missing[0]} points and {missing[1]} conductors without positions "
+            "(groundcheck draw --view topology shows every one)"
+        )
+        lines.append(
+            f'  {dot_quote("note:omitted")} [shape=note, fontsize=9, fontcolor="#a04000", '
+            f'color="#a04000", label={dot_quote(note)}, pos="{20:.1f},{-30:.1f}!"];'
+        )
     lines.append(_legend((x1 - x0) * scale + 150, 80))
     lines.append("}")
     return "\n".join(lines) + "\n"
@@ -80,53 +115,89 @@ SCALE_BARS = (0.005, 0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 1.0, 2.0, 5.0, 10.0, 20.0,
 
 
 def _frame_marks(width: float, scale: float, lines: list[str]) -> None:
-    """Under the drawing: which side is the front panel (the plan frame's y = 0 side, docs/language.md), and a
-    scale bar of a round length, about a sixth of the drawing's width."""
-    lines.append(f'  "frame:front" [shape=plaintext, fontsize=9, fontcolor="#555555", label="▼ front panel ▼", '
-                 f'pos="{20 + width / 2:.1f},6!"];')
+    """Under the drawing: which side is the front panel (the plan frame's y = 0 side,
+    docs/language.md), and a scale bar of a round length, about a sixth of the drawing's width."""
+    lines.append(
+        '  "frame:front" [shape=plaintext, fontsize=9, fontcolor="#555555", label="▼ front panel '
+        f'▼", pos="{20 + width / 2:.1f},6!"];'
+    )
     bar = next((b for b in SCALE_BARS if b * scale >= width / 6), SCALE_BARS[-1])
     length = bar * scale
     lines.append('  "frame:bar0" [shape=point, width=0.03, color="#333333", pos="20,-10!"];')
-    lines.append(f'  "frame:bar1" [shape=point, width=0.03, color="#333333", pos="{20 + length:.1f},-10!"];')
+    lines.append(
+        f'  "frame:bar1" [shape=point, width=0.03, color="#333333", pos="{20 + length:.1f},-10!"];'
+    )
     lines.append('  "frame:bar0" -- "frame:bar1" [penwidth=2.5, color="#333333"];')
-    lines.append(f'  "frame:barlabel" [shape=plaintext, fontsize=9, label="{bar * 1e3:g} mm", '
-                 f'pos="{20 + length + 24:.1f},-10!"];')
+    lines.append(
+        f'  "frame:barlabel" [shape=plaintext, fontsize=9, label="{bar * 1e3:g} mm", '
+        f'pos="{20 + length + 24:.1f},-10!"];'
+    )
 
 
 def _metals(plan, marks, scale, P, lines) -> None:
-    # parts stacked on one outline (a cover over its deck) share one label, so that neither hides the other
+    # parts stacked on one outline (a cover over its deck) share one label, so that neither hides
+    # the other
     shared: dict = {}
     for m in plan.metals:
         if m.size is not None:
-            key = (round(m.origin[0] + m.size[0] / 2, 6), round(min(m.origin[1], m.origin[1] + m.size[1]), 6))
+            key = (
+                round(m.origin[0] + m.size[0] / 2, 6),
+                round(min(m.origin[1], m.origin[1] + m.size[1]), 6),
+            )
             shared.setdefault(key, []).append(m)
     for m in plan.metals:
         if m.size is None:
             continue
-        key = (round(m.origin[0] + m.size[0] / 2, 6), round(min(m.origin[1], m.origin[1] + m.size[1]), 6))
+        key = (
+            round(m.origin[0] + m.size[0] / 2, 6),
+            round(min(m.origin[1], m.origin[1] + m.size[1]), 6),
+        )
         group = shared[key]
         w, h = abs(m.size[0]) * scale / 72, abs(m.size[1]) * scale / 72
         cx = m.origin[0] + m.size[0] / 2
         cy = m.origin[1] + m.size[1] / 2
         px, py = P((cx, cy))
-        style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8" if m.touchable else "#ebebeb",
-                 "color": "#e03030" if m.name in marks else "#9a9a9a", "width": f"{w:.3f}", "height": f"{h:.3f}",
-                 "fixedsize": "true",
-                 "label": " + ".join(x.name + (" [" + ", ".join(marks[x.name]) + "]" if x.name in marks else "")
-                                     for x in group) if m is group[0] else "",
-                 "labelloc": "b", "fontcolor": "#666666", "pos": f"{px:.1f},{py:.1f}!"}
+        style = {
+            "shape": "box",
+            "style": "rounded,filled",
+            "fillcolor": "#f3f0e8" if m.touchable else "#ebebeb",
+            "color": "#e03030" if m.name in marks else "#9a9a9a",
+            "width": f"{w:.3f}",
+            "height": f"{h:.3f}",
+            "fixedsize": "true",
+            "label": " + ".join(
+                x.name + (" [" + ", ".join(marks[x.name]) + "]" if x.name in marks else "")
+                for x in group
+            )
+            if m is group[0]
+            else "",
+            "labelloc": "b",
+            "fontcolor": "#666666",
+            "pos": f"{px:.1f},{py:.1f}!",
+        }
         style["class"] = element_class(m.name)
         lines.append(f"  {dot_quote('metal:' + m.name)} [{_attrs(style)}];")
 
 
 def _points(plan, marks, positioned, P, lines) -> None:
     metal_names = {m.name for m in plan.metals}
-    fastened = {c.a if c.b in metal_names else c.b for c in plan.conductors if is_fastening(c, metal_names)}
+    fastened = {
+        c.a if c.b in metal_names else c.b for c in plan.conductors if is_fastening(c, metal_names)
+    }
     for name, q in positioned.items():
         p = plan.point(name)
         px, py = P(q)
-        style = {"shape": "circle", "width": "0.09", "height": "0.09", "style": "filled", "fillcolor": "#ffffff",
-                 "color": "#333333", "label": "", "xlabel": name, "pos": f"{px:.1f},{py:.1f}!"}
+        style = {
+            "shape": "circle",
+            "width": "0.09",
+            "height": "0.09",
+            "style": "filled",
+            "fillcolor": "#ffffff",
+            "color": "#333333",
+            "label": "",
+            "xlabel": name,
+            "pos": f"{px:.1f},{py:.1f}!",
+        }
         if p.kind == "star":
             style.update(shape="star", width="0.22", height="0.22", fillcolor="#ffd54f")
         elif name == "mains.pe":
@@ -134,8 +205,12 @@ def _points(plan, marks, positioned, P, lines) -> None:
         elif name in fastened:
             style.update(shape="square", width="0.11", height="0.11", fillcolor="#555555")
         if name in marks:
-            style.update(color="#e03030", penwidth="2.5", xlabel=f"{name} [{', '.join(marks[name])}]",
-                         fontcolor="#b00000")
+            style.update(
+                color="#e03030",
+                penwidth="2.5",
+                xlabel=f"{name} [{', '.join(marks[name])}]",
+                fontcolor="#b00000",
+            )
         style["class"] = element_class(name)
         lines.append(f"  {dot_quote(name)} [{_attrs(style)}];")
 
@@ -163,7 +238,10 @@ def _conductors(result, marks, positioned, P, lines) -> None:
             way += 1
             wname = f"via:{c.name}:{way}"
             px, py = P(w_)
-            lines.append(f"  {dot_quote(wname)} [shape=point, width=0.01, label=\"\", pos=\"{px:.1f},{py:.1f}!\"];")
+            lines.append(
+                f'  {dot_quote(wname)} [shape=point, width=0.01, label="", '
+                f'pos="{px:.1f},{py:.1f}!"];'
+            )
             chain.append(wname)
         chain.append(c.b)
         style = dict(LIFT_STYLE if is_lift(c) else ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
@@ -190,28 +268,37 @@ def _metal_loops(result, positioned, lines) -> None:
     plan = result.plan
     # loops through a metal part: the straight line between the fastenings it enters and leaves by
     metals = {m.name for m in plan.metals}
-    passages: dict = {}                  # one dashed line per passage, naming every loop that takes it
+    passages: dict = {}  # one dashed line per passage, naming every loop that takes it
     for i, lp in enumerate(result.loops, 1):
         n = len(lp.loop.nodes)
         for j, node in enumerate(lp.loop.nodes):
             if node in metals:
                 before, after = lp.loop.nodes[j - 1], lp.loop.nodes[(j + 1) % n]
                 if before in positioned and after in positioned:
-                    passages.setdefault((frozenset((before, after)), node), (before, after, []))[2].append(i)
+                    passages.setdefault((frozenset((before, after)), node), (before, after, []))[
+                        2
+                    ].append(i)
     for (_, node), (before, after, numbers) in passages.items():
-        words = f"loop {numbers[0]}" if len(numbers) == 1 else "loops " + ", ".join(map(str, numbers))
-        lines.append(f"  {dot_quote(before)} -- {dot_quote(after)} "
-                     f"[color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
-                     f"label={dot_quote(f'{words} through {node}')}, fontcolor=\"#a06000\"];")
+        words = (
+            f"loop {numbers[0]}" if len(numbers) == 1 else "loops " + ", ".join(map(str, numbers))
+        )
+        lines.append(
+            f"  {dot_quote(before)} -- {dot_quote(after)} "
+            f"[color={dot_quote(LOOP_HALO + ':#c08000:' + LOOP_HALO)}, style=dashed, "
+            f'label={dot_quote(f"{words} through {node}")}, fontcolor="#a06000"];'
+        )
 
 
 def _fields(plan, P, lines) -> None:
     for f in plan.fields:
         px, py = P(f.pos)
-        lines.append(f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, style=filled, "
-                     "fillcolor=\"#fde3e3\", color=\"#c04040\", label=\"\", "
-                     f"xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
-                     f"pos=\"{px:.1f},{py:.1f}!\"];")
+        lines.append(
+            f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, "
+            "style=filled, "
+            'fillcolor="#fde3e3", color="#c04040", label="", '
+            f"xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
+            f'pos="{px:.1f},{py:.1f}!"];'
+        )
 
 
 def _clusters(plan) -> dict[str, str]:
@@ -226,55 +313,87 @@ def _clusters(plan) -> dict[str, str]:
 
 
 def physical_omissions(result: Result) -> tuple[int, int]:
-    """How many points and conductors the physical view cannot draw (no position): (points, conductors); an
-    installation's view draws every device as a box and every point and conductor outside them."""
+    """How many points and conductors the physical view cannot draw (no position): (points,
+    conductors); an installation's view draws every device as a box and every point and conductor
+    outside them."""
     plan = result.plan
     if plan.devices:
         return 0, 0
-    positioned = {p.name for p in plan.points if p.pos is not None} | {m.name for m in plan.metals if m.size}
+    positioned = {p.name for p in plan.points if p.pos is not None} | {
+        m.name for m in plan.metals if m.size
+    }
     points = sum(1 for p in plan.points if p.pos is None)
-    conductors = sum(1 for c in plan.conductors if not is_fastening_kind(c.kind)
-                     and not (c.a in positioned and c.b in positioned))
+    conductors = sum(
+        1
+        for c in plan.conductors
+        if not is_fastening_kind(c.kind) and not (c.a in positioned and c.b in positioned)
+    )
     return points, conductors
 
 
 def topology_dot(result: Result) -> str:
-    """The topology view, laid out automatically: every point, part and conductor, for plans without positions."""
+    """The topology view, laid out automatically: every point, part and conductor, for plans
+    without positions."""
     plan = result.plan
     marks = _problems(result)
-    lines = ["graph topology {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
-                                 "fontname=Helvetica, "
-             "rankdir=LR, overlap=false];", "  node [fontname=Helvetica, fontsize=9];", "  edge [fontname=Helvetica, "
-                                                                                        "fontsize=8];"]
+    lines = [
+        "graph topology {",
+        f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
+        "rankdir=LR, overlap=false];",
+        "  node [fontname=Helvetica, fontsize=9];",
+        "  edge [fontname=Helvetica, fontsize=8];",
+    ]
     clusters = _clusters(plan)
     node_lines: dict[str | None, list[str]] = {}
     for m in plan.metals:
-        style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8", "label": m.name,
-                 "color": "#e03030" if m.name in marks else "#9a9a9a", "class": element_class(m.name)}
-        node_lines.setdefault(clusters.get(m.name), []).append(f"  {dot_quote(m.name)} [{_attrs(style)}];")
+        style = {
+            "shape": "box",
+            "style": "rounded,filled",
+            "fillcolor": "#f3f0e8",
+            "label": m.name,
+            "color": "#e03030" if m.name in marks else "#9a9a9a",
+            "class": element_class(m.name),
+        }
+        node_lines.setdefault(clusters.get(m.name), []).append(
+            f"  {dot_quote(m.name)} [{_attrs(style)}];"
+        )
     for p in plan.points:
         label = p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")
         style = {"shape": "ellipse", "label": label, "class": element_class(p.name)}
         if p.kind == "star":
-            style.update(shape="star", width="0.4", height="0.4", fixedsize="true", label="", xlabel=label,
-                         style="filled", fillcolor="#ffd54f")
+            style.update(
+                shape="star",
+                width="0.4",
+                height="0.4",
+                fixedsize="true",
+                label="",
+                xlabel=label,
+                style="filled",
+                fillcolor="#ffd54f",
+            )
         elif p.name == "mains.pe":
             style.update(shape="triangle", style="filled", fillcolor="#bfe3c0")
         if p.name in marks:
             style.update(color="#e03030", penwidth="2")
-        node_lines.setdefault(clusters.get(p.name), []).append(f"  {dot_quote(p.name)} [{_attrs(style)}];")
+        node_lines.setdefault(clusters.get(p.name), []).append(
+            f"  {dot_quote(p.name)} [{_attrs(style)}];"
+        )
     for key in sorted(node_lines, key=lambda k: (k is not None, k or "")):
         if key is None:
             lines.extend(node_lines[key])
             continue
         # each device or block placement in a box of its own
-        lines.append(f"  subgraph {dot_quote('cluster_' + key)} {{ label={dot_quote(key)}; style=rounded; "
-                     'color="#b0b0b0"; fontcolor="#606060"; fontsize=11;')
+        lines.append(
+            f"  subgraph {dot_quote('cluster_' + key)} {{ label={dot_quote(key)}; style=rounded; "
+            'color="#b0b0b0"; fontcolor="#606060"; fontsize=11;'
+        )
         lines.extend("  " + x for x in node_lines[key])
         lines.append("  }")
     for c in plan.conductors:
         style = dict(LIFT_STYLE if is_lift(c) else ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
-        style["label"] = c.name + (" [" + ", ".join(marks[c.name]) + "]" if c.name in marks else "")
+        style["label"] = c.name + (
+            " [" + ", ".join(marks[c.name]) + "]" if c.name in marks else ""
+        )
         style["class"] = element_class(c.name)
         if not c.connects:
             style["style"] = "dotted"

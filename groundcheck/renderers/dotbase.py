@@ -1,5 +1,6 @@
-"""What both drawings share: the colours of the visual scheme (see :mod:`groundcheck.renderers.dot`), DOT quoting,
-the SVG class of each plan element, the finding codes per element, and the legend."""
+"""What both drawings share: the colours of the visual scheme (see
+:mod:`groundcheck.renderers.dot`), DOT quoting, the SVG class of each plan element, the finding
+codes per element, and the legend."""
 
 from __future__ import annotations
 
@@ -9,8 +10,18 @@ from ..core.errors import html_text as escape, shown
 from ..model.kinds import BOND, HEATER, PROTECTIVE, RETURN, SHIELD, SIGNAL
 from ..rules.results import Result
 
-__all__ = ["ROLE_STYLE", "LIFT_STYLE", "LOOP_HALO", "PROBLEM_HALO", "DRAWING_CAUTION", "dot_quote", "element_class",
-           "attrs", "problems", "legend"]
+__all__ = [
+    "ROLE_STYLE",
+    "LIFT_STYLE",
+    "LOOP_HALO",
+    "PROBLEM_HALO",
+    "DRAWING_CAUTION",
+    "dot_quote",
+    "element_class",
+    "attrs",
+    "problems",
+    "legend",
+]
 
 ROLE_STYLE = {
     PROTECTIVE: {"color": "#2f7d32:#f2c200:#2f7d32", "penwidth": "2.2"},
@@ -22,9 +33,14 @@ ROLE_STYLE = {
 }
 LIFT_STYLE = {"color": "#7b3fa0", "penwidth": "1.8", "style": "dashed"}
 LOOP_HALO = "#f5a80066"
-#: the caution as the drawings carry it (short lines under the legend); every other output has it whole
-DRAWING_CAUTION = ("Caution: lethal voltages in mains and valve circuits;", "never lift the protective earth.",
-                   "Estimates from the plan, not measurements;", "follow local codes, have mains work checked.")
+#: the caution as the drawings carry it (short lines under the legend); every other output has it
+#: whole
+DRAWING_CAUTION = (
+    "Caution: lethal voltages in mains and valve circuits;",
+    "never lift the protective earth.",
+    "Estimates from the plan, not measurements;",
+    "follow local codes, have mains work checked.",
+)
 PROBLEM_HALO = "#e0303088"
 
 
@@ -35,12 +51,15 @@ def dot_quote(text: str) -> str:
 
 
 def element_class(name: str) -> str:
-    """The SVG class that marks a plan element's shapes in both drawings (the live view highlights by it).
+    """The SVG class that marks a plan element's shapes in both drawings (the live view highlights
+    by it).
 
-    Letters and digits are kept; every other character becomes ``_`` and its code in hex, so the class is one
-    token that no other name maps to.
+    Letters and digits are kept; every other character becomes ``_`` and its code in hex, so the
+    class is one token that no other name maps to.
     """
-    return "gc-" + "".join(ch if ch.isascii() and ch.isalnum() else f"_{ord(ch):x}_" for ch in name)
+    return "gc-" + "".join(
+        ch if ch.isascii() and ch.isalnum() else f"_{ord(ch):x}_" for ch in name
+    )
 
 
 def attrs(d: dict) -> str:
@@ -59,13 +78,23 @@ def problems(result: Result):
 
 
 def legend(x: float, y: float) -> str:
-    rows = [("#2f7d32", "protective earth (green-and-yellow)"), ("#d2691e", "supply return"),
-            ("#1f5fa8", "signal reference"), ("#7a7a7a", "shield (dashed)"), ("#404040", "fastening (dotted)"),
-            ("#7b3fa0", "lift network (dashed)"), ("#f5a800", "ground loop (band)"), ("#e03030",
-                                                                                      "problem (halo, codes)")]
-    cells = "".join(f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows)
+    rows = [
+        ("#2f7d32", "protective earth (green-and-yellow)"),
+        ("#d2691e", "supply return"),
+        ("#1f5fa8", "signal reference"),
+        ("#7a7a7a", "shield (dashed)"),
+        ("#404040", "fastening (dotted)"),
+        ("#7b3fa0", "lift network (dashed)"),
+        ("#f5a800", "ground loop (band)"),
+        ("#e03030", "problem (halo, codes)"),
+    ]
+    cells = "".join(
+        f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows
+    )
     caution = "<BR/>".join(escape(x) for x in DRAWING_CAUTION)
-    label = (f'<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999">'
-             f'<TR><TD COLSPAN="2"><B>legend</B></TD></TR>{cells}'
-             f'<TR><TD COLSPAN="2" ALIGN="LEFT"><FONT COLOR="#8a4b00">{caution}</FONT></TD></TR></TABLE>>')
+    label = (
+        '<<TABLE BORDER="1" CELLBORDER="0" CELLSPACING="2" COLOR="#999999"><TR><TD '
+        f'COLSPAN="2"><B>legend</B></TD></TR>{cells}<TR><TD COLSPAN="2" ALIGN="LEFT"><FONT '
+        f'COLOR="#8a4b00">{caution}</FONT></TD></TR></TABLE>>'
+    )
     return f'  legend [shape=plaintext, fontsize=9, pos="{x:.1f},{y:.1f}!", label={label}];'

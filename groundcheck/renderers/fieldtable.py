@@ -1,6 +1,7 @@
-"""The terminal report's table of field-source directions: per channel and source, the direction its figures use
-(stated, or the worst at that channel's output), the hum it gives there, and the hum with the worst direction and
-with each axis, so that a stated axis can be weighed against the worst."""
+"""The terminal report's table of field-source directions: per channel and source, the direction
+its figures use (stated, or the worst at that channel's output), the hum it gives there, and the
+hum with the worst direction and with each axis, so that a stated axis can be weighed against the
+worst."""
 
 from __future__ import annotations
 
@@ -24,7 +25,9 @@ def _uv(x) -> str:
 
 def direction_words(axis: list[float]) -> str:
     """'x', 'y', 'z' for an axis, else the unit vector's components."""
-    named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(tuple(abs(x) for x in axis))
+    named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(
+        tuple(abs(x) for x in axis)
+    )
     return named or "(" + ", ".join(readable(x, ".2g") for x in axis) + ")"
 
 
@@ -42,15 +45,40 @@ def field_axes_table(channels: dict, console: Console) -> None:
     rows = [(ch, r) for ch, h in channels.items() for r in h.field_axes]
     if not rows:
         return
-    t = Table(title="Field-source directions per channel (hum at the output, µV rms; – : a ring through the deck)",
-              title_justify="left")
-    for col in ("channel", "source", "direction", "chosen", "hum", "worst", "worst direction", "x", "y", "z"):
-        t.add_column(col, justify="left" if col in ("channel", "source", "direction", "chosen",
-                                                    "worst direction") else "right")
+    t = Table(
+        title="Field-source directions per channel (hum at the output, µV rms; – : a ring through "
+        "the deck)",
+        title_justify="left",
+    )
+    for col in (
+        "channel",
+        "source",
+        "direction",
+        "chosen",
+        "hum",
+        "worst",
+        "worst direction",
+        "x",
+        "y",
+        "z",
+    ):
+        t.add_column(
+            col,
+            justify="left"
+            if col in ("channel", "source", "direction", "chosen", "worst direction")
+            else "right",
+        )
     for ch, r in rows:
         chosen = "stated" if r["chosen"] == "stated" else f"worst ({r['measure']})"
-        t.add_row(_escape(shown(ch)), _escape(shown(r["source"])), direction_words(r["axis"]), chosen,
-                  _uv(r["level_v"]), _uv(r["worst_level_v"]), direction_words(r["worst_axis"]),
-                  *(_uv(r["axes_v"][a]) for a in "xyz"))
+        t.add_row(
+            _escape(shown(ch)),
+            _escape(shown(r["source"])),
+            direction_words(r["axis"]),
+            chosen,
+            _uv(r["level_v"]),
+            _uv(r["worst_level_v"]),
+            direction_words(r["worst_axis"]),
+            *(_uv(r["axes_v"][a]) for a in "xyz"),
+        )
     console.print(t)
     console.print()

@@ -1,11 +1,12 @@
-"""The live view's page: one HTML document with its style and a small script inlined, no network fetches but
-to the local server it came from.
+"""The live view's page: one HTML document with its style and a small script inlined, no network
+fetches but to the local server it came from.
 
-The script listens to the server's events (``events``), fetches the new state (``state``) and applies it, both
-relative to the page's own address (which holds the view's token):
-sections replaced by the fragments the server escaped, text set as text, never as markup.  Hovering or
-focusing a finding highlights the shapes of its elements in both drawings and shows its plan line; clicking
-a shape of a conductor shows its figures.  While the plan has errors the last good result stays, greyed.
+The script listens to the server's events (``events``), fetches the new state (``state``) and
+applies it, both relative to the page's own address (which holds the view's token):
+sections replaced by the fragments the server escaped, text set as text, never as markup.  Hovering
+or focusing a finding highlights the shapes of its elements in both drawings and shows its plan
+line; clicking a shape of a conductor shows its figures.  While the plan has errors the last good
+result stays, greyed.
 """
 
 from __future__ import annotations
@@ -17,31 +18,36 @@ __all__ = ["live_page"]
 CSS = """
 *{box-sizing:border-box}
 body{font-family:system-ui,Helvetica,Arial,sans-serif;margin:0;color:#1d2327;background:#f4f5f2}
-header{display:flex;gap:1em;align-items:center;padding:.6em 1em;background:#26323a;color:#f4f5f2;position:sticky;
-top:0;z-index:2}
-header h1{font-size:1.1em;margin:0;flex:1;white-space:nowrap;overflow:hidden;text-overflow:ellipsis}
+header{display:flex;gap:1em;align-items:center;padding:.6em 1em;background:#26323a;color:#f4f5f2;
+position:sticky;top:0;z-index:2}
+header h1{font-size:1.1em;margin:0;flex:1;white-space:nowrap;overflow:hidden;
+text-overflow:ellipsis}
 #badge{font-weight:bold;padding:.15em .7em;border-radius:1em;background:#6b7b86}
 #badge.clean{background:#2d7a3a}#badge.partial{background:#6b5a00}
 #badge.note{background:#1f6f8b}#badge.warning{background:#a07800}
 #badge.fault{background:#c4500f}#badge.danger{background:#b00020}#badge.error{background:#7a1fa2}
 #status{font-size:.85em;color:#c9d3d9}
-.caution{margin:0;padding:.5em 1em;background:#fff1c9;border-bottom:2px solid #d89b00;font-weight:600}
+.caution{margin:0;padding:.5em 1em;background:#fff1c9;border-bottom:2px solid #d89b00;
+font-weight:600}
 #errors{margin:.8em 1em;padding:.6em .9em;background:#fbe4f7;border-left:5px solid #7a1fa2}
 #errors .where{font-family:ui-monospace,monospace;font-weight:bold}
 #errors pre{margin:.2em 0 .5em;background:#fff;padding:.2em .5em}
 main{display:grid;grid-template-columns:minmax(0,3fr) minmax(22em,2fr);gap:1em;padding:1em}
-section{background:#fff;border:1px solid #d5d9d4;border-radius:6px;padding:.4em .9em;margin-bottom:1em}
+section{background:#fff;border:1px solid #d5d9d4;border-radius:6px;padding:.4em .9em;
+margin-bottom:1em}
 h2{font-size:1em;margin:.3em 0 .5em;color:#3b4b55;text-transform:uppercase;letter-spacing:.05em}
 .drawing svg{width:100%;height:auto;max-height:80vh}.chart svg{width:100%;height:auto}
 body.stale .drawing,body.stale .result{filter:grayscale(1);opacity:.45}
-table{border-collapse:collapse;font-size:.85em;margin:.3em 0}td,th{border:1px solid #dde;padding:.2em .45em;
-text-align:left;vertical-align:top}th{background:#eef0ec}td.num{text-align:right;font-variant-numeric:tabular-nums}
+table{border-collapse:collapse;font-size:.85em;margin:.3em 0}
+td,th{border:1px solid #dde;padding:.2em .45em;text-align:left;vertical-align:top}
+th{background:#eef0ec}td.num{text-align:right;font-variant-numeric:tabular-nums}
 tr.finding{cursor:pointer}tr.finding:hover,tr.finding.pinned{background:#fff4d6}
 .sev{font-weight:bold;padding:0 .35em;border-radius:3px;color:#fff}.danger{background:#b00020}
 .fault{background:#c4500f}.warning{background:#a07800}.note{background:#1f6f8b}
 .fix{color:#1f5a2a}.fig,.where{color:#56616a;font-size:.85em}.ok{color:#2d7a3a}.bad{color:#b00020}
 .cleared{color:#2d7a3a}.introduced{color:#b00020}
-#planline{font-family:ui-monospace,monospace;white-space:pre-wrap;background:#f7f7f2;padding:.3em .5em;min-height:1.6em}
+#planline{font-family:ui-monospace,monospace;white-space:pre-wrap;background:#f7f7f2;
+padding:.3em .5em;min-height:1.6em}
 #inspect table{width:100%}
 .hl path,.hl polygon,.hl ellipse,.hl polyline{stroke:#ff1f8f!important;stroke-width:5px!important}
 .hl text{fill:#c0006a!important;font-weight:bold}
@@ -55,9 +61,13 @@ SCRIPT = r"""
   var state = null, pinned = null, selected = null;
   function setText(id, text) { $(id).textContent = text; }
   function highlight(classes) {
-    document.querySelectorAll('.drawing .hl').forEach(function (el) { el.classList.remove('hl'); });
+    document.querySelectorAll('.drawing .hl').forEach(function (el) {
+      el.classList.remove('hl');
+    });
     (classes || []).forEach(function (c) {
-      document.querySelectorAll('.drawing .' + CSS.escape(c)).forEach(function (el) { el.classList.add('hl'); });
+      document.querySelectorAll('.drawing .' + CSS.escape(c)).forEach(function (el) {
+        el.classList.add('hl');
+      });
     });
   }
   function showFinding(i) {
@@ -87,14 +97,18 @@ SCRIPT = r"""
       tr.addEventListener('mouseenter', function () { if (pinned === null) { showFinding(i); } });
       tr.addEventListener('focus', function () { showFinding(i); });
       tr.addEventListener('click', function () {
-        document.querySelectorAll('tr.pinned').forEach(function (x) { x.classList.remove('pinned'); });
+        document.querySelectorAll('tr.pinned').forEach(function (x) {
+          x.classList.remove('pinned');
+        });
         pinned = pinned === i ? null : i;
         if (pinned !== null) { tr.classList.add('pinned'); showFinding(i); }
       });
     });
     document.querySelectorAll('.drawing g.node, .drawing g.edge').forEach(function (g) {
       g.addEventListener('click', function () {
-        var cls = Array.prototype.find.call(g.classList, function (c) { return c.indexOf('gc-') === 0; });
+        var cls = Array.prototype.find.call(g.classList, function (c) {
+          return c.indexOf('gc-') === 0;
+        });
         if (cls) { showConductor(cls); }
       });
     });
@@ -105,8 +119,9 @@ SCRIPT = r"""
     setText('title', (s.title || '') + (s.file ? ' — ' + s.file : ''));
     setText('badge', s.verdict);
     $('badge').className = s.ok ? (s.worst || (s.clean ? 'clean' : 'partial')) : 'error';
-    setText('status', s.ok ? 'updated ' + new Date().toLocaleTimeString() + ' (' + Math.round(s.seconds * 1000) +
-      ' ms)' : 'the plan has errors: the last good result is shown greyed');
+    setText('status', s.ok
+      ? 'updated ' + new Date().toLocaleTimeString() + ' (' + Math.round(s.seconds * 1000) + ' ms)'
+      : 'the plan has errors: the last good result is shown greyed');
     var err = $('errors');
     err.replaceChildren();
     (s.error || []).forEach(function (e) {
@@ -115,18 +130,23 @@ SCRIPT = r"""
       p.appendChild(w);
       p.appendChild(document.createTextNode(e.message + (e.hint ? ' (' + e.hint + ')' : '')));
       err.appendChild(p);
-      if (e.line) { var pre = document.createElement('pre'); pre.textContent = e.line; err.appendChild(pre); }
+      if (e.line) {
+        var pre = document.createElement('pre');
+        pre.textContent = e.line;
+        err.appendChild(pre);
+      }
     });
     err.hidden = !s.error;
     document.body.classList.toggle('stale', !s.ok);
     if (!s.ok) { return; }
     Object.keys(s.sections).forEach(function (k) { $('sec-' + k).innerHTML = s.sections[k]; });
-    $('physical').innerHTML = s.physical || '<p>No physical drawing (the plan gives no positions, or Graphviz ' +
-      'is missing).</p>';
+    $('physical').innerHTML = s.physical ||
+      '<p>No physical drawing (the plan gives no positions, or Graphviz is missing).</p>';
     $('topology').innerHTML = s.topology || '<p>No topology drawing (Graphviz is missing).</p>';
     pinned = null;
     bind();
-    if (selected) { showConductor(selected); }      // the selected conductor's figures, as they are now
+    // the selected conductor's figures, as they are now
+    if (selected) { showConductor(selected); }
   }
   function load() {
     fetch('state', {cache: 'no-store'}).then(function (r) { return r.json(); }).then(apply)
@@ -141,12 +161,14 @@ SCRIPT = r"""
 
 
 def live_page(nonce: str, caution: str) -> str:
-    """The page the live view serves; its script runs only with this response's ``nonce`` (the server's
-    Content-Security-Policy allows no other script)."""
+    """The page the live view serves; its script runs only with this response's ``nonce`` (the
+    server's Content-Security-Policy allows no other script)."""
     return f"""<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<html lang="en"><head><meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
 <title>groundcheck live</title><style>{CSS}</style></head>
-<body><header><h1 id="title">loading…</h1><span id="badge">…</span><span id="status"></span></header>
+<body><header><h1 id="title">loading…</h1><span id="badge">…</span><span id="status"></span>
+</header>
 <p class="caution">{escape(caution)}</p>
 <div id="errors" hidden></div>
 <main><div>
@@ -155,8 +177,10 @@ def live_page(nonce: str, caution: str) -> str:
 </div><div>
 <section class="result"><h2>Summary</h2><div id="sec-summary"></div></section>
 <section><h2>Last edit</h2><div id="sec-changes"></div></section>
-<section class="result"><h2>Findings</h2><div id="planline"></div><div id="sec-findings"></div></section>
-<section><h2>Selected conductor</h2><div id="inspect"><p>Click a conductor in a drawing.</p></div></section>
+<section class="result"><h2>Findings</h2><div id="planline"></div><div id="sec-findings"></div>
+</section>
+<section><h2>Selected conductor</h2>
+<div id="inspect"><p>Click a conductor in a drawing.</p></div></section>
 <section class="result"><h2>Hum and buzz</h2><div id="sec-hum"></div></section>
 <section class="result"><h2>Protective earth</h2><div id="sec-protective"></div></section>
 </div></main>

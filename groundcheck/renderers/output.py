@@ -29,22 +29,30 @@ def write_atomic(path: Path, data: str | bytes, protect: list[Path] = ()) -> Non
         raise OutputError(f"{path} is a link in a loop (name an output file)") from None
     protect = [*protect, *files_read()]
     for p in protect:
-        if os.path.abspath(p) == os.path.abspath(path):       # the plan named, even one that could not be read
-            raise OutputError(f"refusing to write over {p}, a plan this run read (name another output file)")
+        if os.path.abspath(p) == os.path.abspath(
+            path
+        ):  # the plan named, even one that could not be read
+            raise OutputError(
+                f"refusing to write over {p}, a plan this run read (name another output file)"
+            )
         try:
             if p.exists() and target.exists() and os.path.samefile(p, target):
-                raise OutputError(f"refusing to write over {p}, a plan this run read (name another output file)")
+                raise OutputError(
+                    f"refusing to write over {p}, a plan this run read (name another output file)"
+                )
         except OSError:
             continue
     if target.is_dir():
         raise OutputError(f"{path} is a folder (name an output file)")
     if target.exists() and not target.is_file():
-        raise OutputError(f"{path} is not a regular file (a device, a FIFO or a socket): name an output file, or write "
-                          "to standard output with -o -")
+        raise OutputError(
+            f"{path} is not a regular file (a device, a FIFO or a socket): name an output file, "
+            "or write to standard output with -o -"
+        )
     folder = target.parent
     if not folder.is_dir():
         raise OutputError(f"folder {path.parent} does not exist")
-    with terminate_as_exit():            # SIGTERM while the temporary file exists removes it
+    with terminate_as_exit():  # SIGTERM while the temporary file exists removes it
         _write_through_temporary(target, folder, data)
 
 
@@ -59,9 +67,11 @@ def _write_through_temporary(target: Path, folder: Path, data: str | bytes) -> N
     mode = "wb" if isinstance(data, bytes) else "w"
     fd, tmp = tempfile.mkstemp(prefix=".groundcheck-", dir=folder)
     try:
-        with os.fdopen(fd, mode, **({} if isinstance(data, bytes) else {"encoding": "utf-8", "newline": "\n"})) as fh:
+        with os.fdopen(
+            fd, mode, **({} if isinstance(data, bytes) else {"encoding": "utf-8", "newline": "\n"})
+        ) as fh:
             fh.write(data)
-        os.chmod(tmp, 0o666 & ~_umask())           # as any new file of the user's would be
+        os.chmod(tmp, 0o666 & ~_umask())  # as any new file of the user's would be
         os.replace(tmp, target)
     except BaseException:
         try:

@@ -1,4 +1,5 @@
-"""Export of the ground network as a plain SPICE netlist (resistors, inductors, capacitors, current sources).
+"""Export of the ground network as a plain SPICE netlist (resistors, inductors, capacitors, current
+sources).
 
 Node names are ``n<index>`` in the circuit's node order, with a comment
 mapping each to the plan's name; each element is named after its conductor
@@ -31,7 +32,7 @@ class _Names:
     def __call__(self, kind: str, name: str) -> str:
         base = f"{kind}_{re.sub(r'[^A-Za-z0-9_]', '_', name) or 'x'}"
         out, n = base, 1
-        while out.lower() in self.used:          # SPICE names are not case-sensitive
+        while out.lower() in self.used:  # SPICE names are not case-sensitive
             n += 1
             out = f"{base}_{n}"
         self.used.add(out.lower())
@@ -42,19 +43,23 @@ def _safe(text: str) -> str:
     return "".join(ch if 32 <= ord(ch) < 127 else "?" for ch in text).replace("\n", " ")
 
 
-def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None = None,
-             analysis: str = "op") -> str:
+def to_spice(
+    circuit: Circuit, title: str, sources=(), frequency: float | None = None, analysis: str = "op"
+) -> str:
     """The netlist text.
 
     ``sources``: (name, from point, to point, rms amperes) current sources;
     with ``analysis="ac"`` they are AC sources (magnitude √2·rms, SPICE uses
     peak) and an ``.ac`` line at ``frequency`` is added; with ``"op"`` they
-    are DC.  An AC netlist has a ``.print ac`` line of every node voltage (real and imaginary parts); an
-    operating point's node voltages are printed by ngspice itself.
+    are DC.  An AC netlist has a ``.print ac`` line of every node voltage (real and imaginary
+    parts); an operating point's node voltages are printed by ngspice itself.
     """
     refs = set(int(r) for r in circuit.references)
-    main_ref = int(circuit.references[circuit.components[1][circuit.point_node.get("mains.pe",
-                                                                                   0)]]) if circuit.nodes else 0
+    main_ref = (
+        int(circuit.references[circuit.components[1][circuit.point_node.get("mains.pe", 0)]])
+        if circuit.nodes
+        else 0
+    )
     name = {i: ("0" if i == main_ref else f"n{i}") for i in range(len(circuit.nodes))}
     lines = [f"* groundcheck ground network: {_safe(title)}"]
     lines += ["* " + part for part in textwrap.wrap(CAUTION, 100)]
@@ -71,7 +76,8 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
             lines.append(f"{el('R', label)} {a} {c} {max(b.r, 1e-9):.12g}")
             lines.append(f"{el('C', label)} {a} {c} {b.cap:.12g}")
         elif ac and z[k].imag > 0:
-            # resistance at this frequency (skin effect included) in series with the self-inductance
+            # resistance at this frequency (skin effect included) in series with the
+            # self-inductance
             lines.append(f"{el('R', label)} {a} m{k} {z[k].real:.12g}")
             lines.append(f"{el('L', label)} m{k} {c} {z[k].imag / w:.12g}")
         else:
@@ -81,21 +87,26 @@ def to_spice(circuit: Circuit, title: str, sources=(), frequency: float | None =
     for src, a, b, amps in sources:
         ia, ib = name[circuit.point_node[a]], name[circuit.point_node[b]]
         # SPICE current source I n+ n-: current flows from n+ through the source to n-;
-        # to inject into a (and draw from b) the source runs from b to a.  rms phasor -> SPICE peak and phase
+        # to inject into a (and draw from b) the source runs from b to a.  rms phasor -> SPICE peak
+        # and phase
         amps = complex(amps)
         element = el("I", src)
         lines.append(f"* {element} = {_safe(src)}")
         if analysis == "ac":
-            lines.append(f"{element} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} "
-                         f"{math.degrees(math.atan2(amps.imag, amps.real)):.12g}")
+            lines.append(
+                f"{element} {ib} {ia} DC 0 AC {abs(amps) * math.sqrt(2):.12g} "
+                f"{math.degrees(math.atan2(amps.imag, amps.real)):.12g}"
+            )
         else:
             lines.append(f"{element} {ib} {ia} DC {amps.real:.12g}")
     printed = " ".join(f"v({name[i]})" for i in range(len(circuit.nodes)) if name[i] != "0")
     if analysis == "ac":
         lines.append(f".ac lin 1 {frequency:.12g} {frequency:.12g}")
         if printed:
-            lines.append(f".print ac {printed.replace('v(', 'vr(')} {printed.replace('v(', 'vi(')}")
+            lines.append(
+                f".print ac {printed.replace('v(', 'vr(')} {printed.replace('v(', 'vi(')}"
+            )
     else:
-        lines.append(".op")                 # ngspice prints every node voltage of an operating point by itself
+        lines.append(".op")  # ngspice prints every node voltage of an operating point by itself
     lines.append(".end")
     return "\n".join(lines) + "\n"

@@ -1,11 +1,12 @@
 """The physical view of an installation: the whole system as one drawing.
 
-Laid out on a grid of our own, so that nothing overlaps by construction: the main earthing terminal on
-top, the outlets below it, strips and other plug points below their outlet, and each device as a labelled
-box below the point it is plugged into (one column per device).  Building runs join the building points,
-each device's mains cord joins its box to its plug point, and interconnects join the boxes below them,
-routed around the other boxes.  Loops are banded and findings haloed as in the chassis drawing; a device
-touched by a finding is outlined red with its codes.  A device's own wiring is drawn with its own plan.
+Laid out on a grid of our own, so that nothing overlaps by construction: the main earthing terminal
+on top, the outlets below it, strips and other plug points below their outlet, and each device as a
+labelled box below the point it is plugged into (one column per device).  Building runs join the
+building points, each device's mains cord joins its box to its plug point, and interconnects join
+the boxes below them, routed around the other boxes.  Loops are banded and findings haloed as in
+the chassis drawing; a device touched by a finding is outlined red with its codes.  A device's own
+wiring is drawn with its own plan.
 """
 
 from __future__ import annotations
@@ -18,15 +19,16 @@ from .dotbase import legend as _legend, problems as _problems
 
 __all__ = ["system_dot", "COLUMN", "ROW", "GAP", "LANE", "LANE_TOP", "box_rows", "box_width"]
 
-#: grid spacing, points: a column for a point without devices, a row per level of the building wiring, and the
-#: gap between device boxes
+#: grid spacing, points: a column for a point without devices, a row per level of the building
+#: wiring, and the gap between device boxes
 COLUMN = 150.0
 ROW = 110.0
 GAP = 30.0
 
 
 def _tree(plan, devices: dict) -> tuple[dict, list]:
-    """The building points' parent (towards the main earthing terminal) and the terminals at the top."""
+    """The building points' parent (towards the main earthing terminal) and the terminals at the
+    top."""
     inside = {p.name for p in plan.points if p.group} | {m.name for m in plan.metals}
     building = [p.name for p in plan.points if p.name not in inside]
     adj: dict = {n: [] for n in building}
@@ -34,7 +36,9 @@ def _tree(plan, devices: dict) -> tuple[dict, list]:
         if c.a in adj and c.b in adj:
             adj[c.a].append(c.b)
             adj[c.b].append(c.a)
-    tops = [p.name for p in plan.points if p.name in adj and p.kind == "earthing-terminal"] or building[:1]
+    tops = [
+        p.name for p in plan.points if p.name in adj and p.kind == "earthing-terminal"
+    ] or building[:1]
     parent: dict = {}
     order = []
     for top in tops + building:
@@ -88,7 +92,7 @@ def _layout(plan, widths: dict) -> tuple[dict, dict]:
     for n in order:
         if parent[n] is None:
             place(n)
-    for dev in plugged.get(None, []):                     # plugged nowhere (or into a point the drawing lacks)
+    for dev in plugged.get(None, []):  # plugged nowhere (or into a point the drawing lacks)
         pos["device:" + dev] = (column(widths[dev]), 20.0)
     return pos, depth
 
@@ -96,13 +100,15 @@ def _layout(plan, widths: dict) -> tuple[dict, dict]:
 def box_rows(d, codes) -> list[str]:
     """A device box's label: its name with its finding codes, then what it is."""
     kind = "simple" if d.source == "simple" else d.source.replace("\\", "/").rsplit("/", 1)[-1]
-    return [d.name + (f" [{', '.join(codes)}]" if codes else ""),
-            f"({kind}{', class II' if d.equipment_class == 'II' else ''})"]
+    return [
+        d.name + (f" [{', '.join(codes)}]" if codes else ""),
+        f"({kind}{', class II' if d.equipment_class == 'II' else ''})",
+    ]
 
 
 def box_width(d, codes=()) -> float:
-    """A device box's width, points: its longest label row at about 0.55 of the 9 pt font per character, plus
-    margins."""
+    """A device box's width, points: its longest label row at about 0.55 of the 9 pt font per
+    character, plus margins."""
     return max(100.0, 0.55 * 9 * max(len(r) for r in box_rows(d, codes)) + 20)
 
 
@@ -117,14 +123,16 @@ def _device_marks(plan, marks: dict) -> dict:
     return {dev: sorted(codes) for dev, codes in out.items()}
 
 
-#: interconnects run below the device boxes, each on a lane of its own (points below the boxes' centres)
+#: interconnects run below the device boxes, each on a lane of its own (points below the boxes'
+#: centres)
 LANE_TOP = -30.0
 LANE = 22.0
 
 
 def _lanes(plan, pos: dict) -> dict:
-    """Each interconnect between two drawn boxes: its lane (index) and where it leaves each box (x offsets),
-    the ends of one box spread across its width (one slot per end) so that no two run down the same line."""
+    """Each interconnect between two drawn boxes: its lane (index) and where it leaves each box (x
+    offsets), the ends of one box spread across its width (one slot per end) so that no two run
+    down the same line."""
     icons = [c for c in plan.conductors if joins_devices(c)]
     devices = {d.name for d in plan.devices}
     ends = [[device_of(e, devices) for e in (c.a, c.b)] for c in icons]
@@ -150,7 +158,9 @@ def _lane(c, ends, style, label, lanes, pos, lines) -> None:
     (xa, _), (xb, _) = pos[ends[0]], pos[ends[1]]
     ta, tb = f"lane:{c.name}:a", f"lane:{c.name}:b"
     for t, x in ((ta, xa + oa), (tb, xb + ob)):
-        lines.append(f"  {dot_quote(t)} [shape=point, width=0.01, label=\"\", pos=\"{x:.1f},{y:.1f}!\"];")
+        lines.append(
+            f'  {dot_quote(t)} [shape=point, width=0.01, label="", pos="{x:.1f},{y:.1f}!"];'
+        )
     plain = {key: v for key, v in style.items()}
     lines.append(f"  {dot_quote(ends[0])} -- {dot_quote(ta)} [{_attrs(plain)}];")
     lines.append(f"  {dot_quote(tb)} -- {dot_quote(ends[1])} [{_attrs(plain)}];")
@@ -159,39 +169,59 @@ def _lane(c, ends, style, label, lanes, pos, lines) -> None:
 
 
 def _nodes(plan, pos: dict, marks: dict, dev_marks: dict, lines: list) -> None:
-    """Each device as a labelled box, each building point as a small symbol with its name and kind."""
+    """Each device as a labelled box, each building point as a small symbol with its name and
+    kind."""
     devices = {d.name: d for d in plan.devices}
-    kinds = {t.name: f"transformer {t.primary:g}/{t.secondary:g} V"
-             + (", isolating" if t.isolating else "") for t in plan.transformers}
+    kinds = {
+        t.name: f"transformer {t.primary:g}/{t.secondary:g} V"
+        + (", isolating" if t.isolating else "")
+        for t in plan.transformers
+    }
     for name, (x, y) in pos.items():
         if name.startswith("device:"):
             d = devices[name[7:]]
             rows = box_rows(d, dev_marks.get(d.name, ()))
             label = "\\n".join(dot_quote(r)[1:-1] for r in rows)
-            style = {"shape": "box", "style": "rounded,filled", "fillcolor": "#f3f0e8",
-                     "color": "#e03030" if d.name in dev_marks else "#9a9a9a", "fontcolor": "#333333",
-                     "penwidth": "2.2" if d.name in dev_marks else "1", "height": "0.6", "margin": "0.12,0.06",
-                     "width": f"{box_width(d, dev_marks.get(d.name, ())) / 72:.2f}",
-                     "pos": f"{x:.1f},{y:.1f}!"}
-            lines.append(f'  {dot_quote(name)} [label="{label}", {_attrs(style)}, '
-                         f"class={dot_quote(element_class(d.name))}];")
+            style = {
+                "shape": "box",
+                "style": "rounded,filled",
+                "fillcolor": "#f3f0e8",
+                "color": "#e03030" if d.name in dev_marks else "#9a9a9a",
+                "fontcolor": "#333333",
+                "penwidth": "2.2" if d.name in dev_marks else "1",
+                "height": "0.6",
+                "margin": "0.12,0.06",
+                "width": f"{box_width(d, dev_marks.get(d.name, ())) / 72:.2f}",
+                "pos": f"{x:.1f},{y:.1f}!",
+            }
+            lines.append(
+                f'  {dot_quote(name)} [label="{label}", {_attrs(style)}, '
+                f"class={dot_quote(element_class(d.name))}];"
+            )
             continue
         p = plan.point(name)
         label = name + (f" [{', '.join(marks[name])}]" if name in marks else "")
         shape = {"earthing-terminal": "invtriangle", "outlet": "square"}.get(p.kind, "circle")
-        lines.append(f"  {dot_quote(name)} [shape={shape}, width=0.16, height=0.16, fixedsize=true, style=filled, "
-                     f"fillcolor=\"#2f7d32\", label=\"\", "
-                     f"xlabel={dot_quote(f'{label} ({kinds.get(name, p.kind)})')}, "
-                     f"pos=\"{x:.1f},{y:.1f}!\", class={dot_quote(element_class(name))}];")
+        lines.append(
+            f"  {dot_quote(name)} [shape={shape}, width=0.16, height=0.16, fixedsize=true, "
+            "style=filled, "
+            f'fillcolor="#2f7d32", label="", '
+            f"xlabel={dot_quote(f'{label} ({kinds.get(name, p.kind)})')}, "
+            f'pos="{x:.1f},{y:.1f}!", class={dot_quote(element_class(name))}];'
+        )
 
 
 def _edges(result, pos: dict, marks: dict, lanes: dict, lines: list) -> None:
-    """Building runs and cords as straight lines, interconnects on their lanes; loops banded, findings haloed."""
+    """Building runs and cords as straight lines, interconnects on their lanes; loops banded,
+    findings haloed."""
     plan = result.plan
     devices = {d.name for d in plan.devices}
     loops = {e for lp in result.loops for e in lp.loop.edges}
     for c in plan.conductors:
-        ends = [e if e in pos else (f"device:{d}" if (d := device_of(e, devices)) else None) for e in (c.a, c.b)]
+        ends = [
+            e if e in pos else (f"device:{d}" if (d := device_of(e, devices)) else None)
+            for e in (c.a, c.b)
+        ]
         if None in ends or ends[0] == ends[1] or (not c.connects and not joins_devices(c)):
             continue
         style = dict(ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
@@ -218,17 +248,28 @@ def system_dot(result: Result) -> str:
     dev_marks = _device_marks(plan, marks)
     pos, _ = _layout(plan, {d.name: box_width(d, dev_marks.get(d.name, ())) for d in plan.devices})
     lanes = _lanes(plan, pos)
-    lines = ["graph physical {", f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
-             'fontname=Helvetica, splines=line, outputorder=nodesfirst, bgcolor="white", forcelabels=true, '
-             'inputscale=72, sep="+8"];',
-             "  node [fontname=Helvetica, fontsize=9];", "  edge [fontname=Helvetica, fontsize=8];"]
+    lines = [
+        "graph physical {",
+        f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, "
+        'fontname=Helvetica, splines=line, outputorder=nodesfirst, bgcolor="white", '
+        "forcelabels=true, "
+        'inputscale=72, sep="+8"];',
+        "  node [fontname=Helvetica, fontsize=9];",
+        "  edge [fontname=Helvetica, fontsize=8];",
+    ]
     _nodes(plan, pos, marks, dev_marks, lines)
     _edges(result, pos, marks, lanes, lines)
     width = max((x for x, _ in pos.values()), default=0.0)
-    note = ("each device is drawn as a box; its own wiring is in its own plan's drawing (groundcheck draw "
-            "DEVICE.gplan); mains cords are the lines from a box up to its plug point")
-    lines.append(f"  {dot_quote('note:system')} [shape=note, fontsize=9, fontcolor=\"#555555\", color=\"#999999\", "
-                 f"label={dot_quote(note)}, pos=\"{20 + width / 2:.1f},{LANE_TOP - LANE * (len(lanes) + 1):.1f}!\"];")
+    note = (
+        "each device is drawn as a box; its own wiring is in its own plan's drawing (groundcheck "
+        "draw DEVICE.gplan); mains cords are the lines from a box up to its plug point"
+    )
+    lines.append(
+        f'  {dot_quote("note:system")} [shape=note, fontsize=9, fontcolor="#555555", '
+        'color="#999999", '
+        f"label={dot_quote(note)}, "
+        f'pos="{20 + width / 2:.1f},{LANE_TOP - LANE * (len(lanes) + 1):.1f}!"];'
+    )
     lines.append(_legend(width + 260, 120))
     lines.append("}")
     return "\n".join(lines) + "\n"

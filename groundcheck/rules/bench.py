@@ -120,8 +120,8 @@ def rule_bonds(facts: BenchFacts) -> list[Finding]:
                 Finding(
                     "GC403",
                     "danger",
-                    f"{b.a} to {b.b} measures {_ohm(b.measured)}, over the "
-                    f"protective bonding limit of {_ohm(b.limit)}: do not use the equipment",
+                    f"{b.a} to {b.b} measures {_ohm(b.measured)}, over the protective bonding "
+                    f"limit of {_ohm(b.limit)}: do not use the equipment",
                     b.location,
                     pair + b.joints[:3],
                     figures,
@@ -134,8 +134,8 @@ def rule_bonds(facts: BenchFacts) -> list[Finding]:
                 Finding(
                     "GC404",
                     "warning",
-                    f"{b.a} to {b.b} measures {_ohm(b.measured)}, but the plan "
-                    "does not join them: the build has a connection the plan does not describe",
+                    f"{b.a} to {b.b} measures {_ohm(b.measured)}, but the plan does not join "
+                    "them: the build has a connection the plan does not describe",
                     b.location,
                     pair,
                     figures,
@@ -148,8 +148,8 @@ def rule_bonds(facts: BenchFacts) -> list[Finding]:
                 Finding(
                     "GC402",
                     sev,
-                    f"{b.a} to {b.b} measures {_ohm(b.measured)}, "
-                    f"{b.measured / b.planned:.1f} times the plan's {_ohm(b.planned)}",
+                    f"{b.a} to {b.b} measures {_ohm(b.measured)}, {b.measured / b.planned:.1f} "
+                    f"times the plan's {_ohm(b.planned)}",
                     b.location,
                     pair + b.joints[:3],
                     figures,

@@ -15,8 +15,11 @@ if TYPE_CHECKING:
 
 __all__ = ["rule_bonding_test"]
 
-INSULATION_WORDS = {"pvc": "of its PVC insulation", "xlpe": "of its XLPE insulation",
-                    "bare": "for bare copper"}
+INSULATION_WORDS = {
+    "pvc": "of its PVC insulation",
+    "xlpe": "of its XLPE insulation",
+    "bare": "for bare copper",
+}
 
 
 @rule("GC223", needs="solve")
@@ -38,19 +41,28 @@ def rule_bonding_test(s: Solved) -> list[Finding]:
     out = []
     for row in s.bonding.failures():
         t = tests[row.test]
-        reached = ("would melt" if row.reached == float("inf")
-                   else f"would reach {row.reached:.0f} °C")
-        size = (f"use at least {row.thicker * 1e6:g} mm²" if row.thicker is not None
-                else "use a thicker protective conductor, or several in parallel")
-        out.append(Finding(
-            "GC223", "danger",
-            f"{row.conductor} ({row.area * 1e6:.3g} mm²) {reached} in the {t.name} bonding test "
-            f"({row.current:.3g} A for {t.duration:g} s), over the {row.limit:g} °C short-time "
-            f"limit {INSULATION_WORDS.get(row.insulation, row.insulation)}",
-            where.get(row.conductor, s.plan.mains.location), (row.conductor,),
-            {k: v for k, v in row.as_dict().items() if v is not None and k != "conductor"},
-            f"{size} for {row.conductor}, so that it carries the test current "
-            f"({t.basis}) within its limit"))
+        reached = (
+            "would melt" if row.reached == float("inf") else f"would reach {row.reached:.0f} °C"
+        )
+        size = (
+            f"use at least {row.thicker * 1e6:g} mm²"
+            if row.thicker is not None
+            else "use a thicker protective conductor, or several in parallel"
+        )
+        out.append(
+            Finding(
+                "GC223",
+                "danger",
+                f"{row.conductor} ({row.area * 1e6:.3g} mm²) {reached} in the {t.name} bonding "
+                f"test ({row.current:.3g} A for {t.duration:g} s), over the {row.limit:g} °C "
+                f"short-time limit {INSULATION_WORDS.get(row.insulation, row.insulation)}",
+                where.get(row.conductor, s.plan.mains.location),
+                (row.conductor,),
+                {k: v for k, v in row.as_dict().items() if v is not None and k != "conductor"},
+                f"{size} for {row.conductor}, so that it carries the test current ({t.basis}) "
+                "within its limit",
+            )
+        )
     out.extend(_drops(s))
     return out
 
@@ -62,14 +74,24 @@ def _drops(s: Solved) -> list[Finding]:
     out = []
     for p in s.bonding.drops_over():
         t = tests[p.test]
-        out.append(Finding(
-            "GC223", "danger",
-            f"the protective path to {p.part} drops {p.voltage:.3g} V at the {t.name} bonding "
-            f"test's {t.current:.3g} A, over the {p.limit:g} V IEC 60950-1 allows for a "
-            f"protective device above 16 A",
-            metals.get(p.part, s.plan.mains.location), (p.part,),
-            {"test": p.test, "current_a": round(t.current, 4),
-             "path_voltage_v": round(p.voltage, 4), "limit_v": p.limit},
-            f"lower the path's resistance to {p.limit / t.current * 1e3:.3g} mΩ or less: shorten "
-            "or thicken the protective conductor, clean and tighten the fastenings on its path"))
+        out.append(
+            Finding(
+                "GC223",
+                "danger",
+                f"the protective path to {p.part} drops {p.voltage:.3g} V at the {t.name} bonding "
+                f"test's {t.current:.3g} A, over the {p.limit:g} V IEC 60950-1 allows for a "
+                "protective device above 16 A",
+                metals.get(p.part, s.plan.mains.location),
+                (p.part,),
+                {
+                    "test": p.test,
+                    "current_a": round(t.current, 4),
+                    "path_voltage_v": round(p.voltage, 4),
+                    "limit_v": p.limit,
+                },
+                f"lower the path's resistance to {p.limit / t.current * 1e3:.3g} mΩ or less: "
+                "shorten or thicken the protective conductor, clean and tighten the fastenings "
+                "on its path",
+            )
+        )
     return out

@@ -1,7 +1,8 @@
 """What the rules read: the plan, its graph, its loops and the protective route, each derived once.
 
-:class:`AuditContext` is built once per plan and shared by every rule; :func:`classify_loop` says what
-closes a loop and :func:`open_at` which conductor to open (never one the protective earth relies on).
+:class:`AuditContext` is built once per plan and shared by every rule; :func:`classify_loop` says
+what closes a loop and :func:`open_at` which conductor to open (never one the protective earth
+relies on).
 """
 
 from __future__ import annotations
@@ -14,14 +15,38 @@ import networkx as nx
 import numpy as np
 
 from ..core.errors import Location
-from ..model.kinds import (BOND, PROTECTIVE, PROTECTIVE_ROLES, SIGNAL, bonds_metal,
-                           is_fastening_kind, joins_devices, shield_like)
+from ..model.kinds import (
+    BOND,
+    PROTECTIVE,
+    PROTECTIVE_ROLES,
+    SIGNAL,
+    bonds_metal,
+    is_fastening_kind,
+    joins_devices,
+    shield_like,
+)
 from ..model.records import PE_POINT, Conductor, Plan
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
-from ..network.graph import Loop, build_graph, components, edges_of, fundamental_loops, loop_polygon, polygon_area
+from ..network.graph import (
+    Loop,
+    build_graph,
+    components,
+    edges_of,
+    fundamental_loops,
+    loop_polygon,
+    polygon_area,
+)
 
-__all__ = ["AuditContext", "LoopInfo", "classify_loop", "open_at", "node_channel", "bfs", "LOOP_LIST_LIMIT",
-           "LOOP_CLASSES"]
+__all__ = [
+    "AuditContext",
+    "LoopInfo",
+    "classify_loop",
+    "open_at",
+    "node_channel",
+    "bfs",
+    "LOOP_LIST_LIMIT",
+    "LOOP_CLASSES",
+]
 
 #: how many loops are listed one by one (the count is always exact)
 LOOP_LIST_LIMIT = 500
@@ -43,13 +68,18 @@ class LoopInfo:
 
     loop: Loop
     closed_by: str
-    area: float | None                      # m²
-    open_at: str                            # the conductor to open to break it
+    area: float | None  # m²
+    open_at: str  # the conductor to open to break it
     polygon: tuple | None = None
 
     def as_dict(self) -> dict:
-        return {"members": list(self.loop.nodes), "conductors": list(self.loop.edges), "closed_by": self.closed_by,
-                "area_mm2": None if self.area is None else round(self.area * 1e6, 3), "open_at": self.open_at}
+        return {
+            "members": list(self.loop.nodes),
+            "conductors": list(self.loop.edges),
+            "closed_by": self.closed_by,
+            "area_mm2": None if self.area is None else round(self.area * 1e6, 3),
+            "open_at": self.open_at,
+        }
 
 
 @dataclass
@@ -90,25 +120,31 @@ class AuditContext:
 
     @cached_property
     def earth_terminals(self) -> list[str]:
-        """Every earth terminal of the plan: main earthing terminals, outlets, inlets (mains.pe and devices')."""
+        """Every earth terminal of the plan: main earthing terminals, outlets, inlets (mains.pe and
+        devices')."""
         terms = earth_terminals(self.plan)
         return sorted(n for k in terms for n in terms[k])
 
     @cached_property
     def route(self) -> ProtectiveRoute:
-        """The protective route (:mod:`groundcheck.network.earthing`): what is protective by topology or role."""
+        """The protective route (:mod:`groundcheck.network.earthing`): what is protective by
+        topology or role."""
         return protective_route(self.plan, self.adj)
 
     @cached_property
     def earth_points(self) -> frozenset:
         """Points the protective route reaches through a conductor of its own (the earth stud, even
         one a return wrongly shares, where the route stops): their fastenings to metal stay."""
-        return frozenset(p for p, up in self.route.parent.items() if up is not None
-                         and up[1] in self.protective_path and p not in self.metals)
+        return frozenset(
+            p
+            for p, up in self.route.parent.items()
+            if up is not None and up[1] in self.protective_path and p not in self.metals
+        )
 
     @cached_property
     def protective_path(self) -> frozenset:
-        """Conductors the protective earth relies on, parallel paths included: never to be opened."""
+        """Conductors the protective earth relies on, parallel paths included: never to be
+        opened."""
         return self.route.keep
 
     @cached_property
@@ -143,7 +179,15 @@ class AuditContext:
             closed_by = classify_loop(self, lp)
             poly = loop_polygon(self.G, lp)
             area = polygon_area(poly) if poly is not None else None
-            out.append(LoopInfo(lp, closed_by, area, open_at(self, lp, closed_by), tuple(poly) if poly else None))
+            out.append(
+                LoopInfo(
+                    lp,
+                    closed_by,
+                    area,
+                    open_at(self, lp, closed_by),
+                    tuple(poly) if poly else None,
+                )
+            )
         return out
 
     def loc(self, name: str) -> Location:
@@ -174,7 +218,9 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
     if any(shield_like(c) for c in cs):
         return "shield-both-ends"
     known = set(ctx.plan.channels)
-    channels = {c.channel for c in cs if c.channel in known} | {node_channel(ctx, n) for n in lp.nodes} & known
+    channels = {c.channel for c in cs if c.channel in known} | {
+        node_channel(ctx, n) for n in lp.nodes
+    } & known
     if len(channels) >= 2:
         return "channel-returns"
     # a conductor the protective earth relies on is protective whatever role the plan writes
@@ -220,12 +266,25 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
     # a point the protective earth reaches (its stud, even one a return wrongly shares) keeps its
     # fastening to the metal: the route may stop there, the earth of the metal does not
     reached = ctx.earth_points
-    earthing = {c.name for c in cs if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)}
+    earthing = {
+        c.name
+        for c in cs
+        if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)
+    }
     # by name, not in the order the loop happens to be walked (which follows the plan's writing)
-    candidates = sorted((c for c in cs if c.role != PROTECTIVE and c.name not in ctx.protective_path
-                         and c.name not in earthing
-                         and not (bonds_metal(c) and c.role == BOND
-                                  and (c.a in ctx.metals and c.b in ctx.metals))), key=lambda c: c.name)
+    candidates = sorted(
+        (
+            c
+            for c in cs
+            if c.role != PROTECTIVE
+            and c.name not in ctx.protective_path
+            and c.name not in earthing
+            and not (
+                bonds_metal(c) and c.role == BOND and (c.a in ctx.metals and c.b in ctx.metals)
+            )
+        ),
+        key=lambda c: c.name,
+    )
     if not candidates:
         return ""
     if closed_by == "mains-cords":
@@ -237,29 +296,47 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         if sh:
             return sh[0].name
     if closed_by == "channel-returns":
-        ties = [c for c in candidates if not c.channel and node_channel(ctx, c.a) and node_channel(ctx, c.b)
-                and node_channel(ctx, c.a) != node_channel(ctx, c.b)]
+        ties = [
+            c
+            for c in candidates
+            if not c.channel
+            and node_channel(ctx, c.a)
+            and node_channel(ctx, c.b)
+            and node_channel(ctx, c.a) != node_channel(ctx, c.b)
+        ]
         if ties:
             return ties[0].name
     if closed_by == "second-chassis-bond":
         # a signal point fastened to the metal (an uninsulated jack, say) is the bond to remove
-        ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {x for r in ctx.plan.currents for x in (r.a, r.b)}
+        ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {
+            x for r in ctx.plan.currents for x in (r.a, r.b)
+        }
         # a socket, jack, pot or terminal fastened to the metal too: insulating it keeps its return
         sockets = ("sleeve", "jack", "pot", "terminal")
         ends |= {p.name for p in ctx.plan.points if p.kind in sockets}
-        bolts = [c for c in candidates if is_fastening_kind(c.kind)
-                 and ((c.a in ctx.metals and c.b in ends) or (c.b in ctx.metals and c.a in ends))]
+        bolts = [
+            c
+            for c in candidates
+            if is_fastening_kind(c.kind)
+            and ((c.a in ctx.metals and c.b in ends) or (c.b in ctx.metals and c.a in ends))
+        ]
         if bolts:
             return bolts[0].name
         # otherwise keep the bond nearest the protective earth and open the farthest
-        crossing = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)]
+        crossing = [
+            c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)
+        ]
         if crossing:
-            return max(crossing, key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name)).name
+            return max(
+                crossing,
+                key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name),
+            ).name
     return candidates[-1].name
 
 
 def pe_distance(ctx: AuditContext, node: str) -> float:
-    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when unknown).
+    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when
+    unknown).
 
     Parameters:
         ctx: the audit context.

@@ -1,6 +1,6 @@
-"""Rules on the earthing system the equipment is plugged into, and on metal the protective earth need not reach:
-a TT supply's electrode against its RCD (GC220), a TT supply protected by an overcurrent device alone (GC221),
-and metal written ``signal-only`` (GC222).
+"""Rules on the earthing system the equipment is plugged into, and on metal the protective earth
+need not reach: a TT supply's electrode against its RCD (GC220), a TT supply protected by an
+overcurrent device alone (GC221), and metal written ``signal-only`` (GC222).
 """
 
 from __future__ import annotations
@@ -20,8 +20,8 @@ __all__ = ["rule_tt_supply", "rule_signal_only_metal"]
 
 @rule("GC220", "GC221", needs="solve")
 def rule_tt_supply(s: Solved) -> list[Finding]:
-    """GC220: a TT supply whose electrode R_A times the RCD's IΔn exceeds 50 V (IEC 60364-4-41 411.5.3); GC221: a
-    TT supply protected by a fuse or breaker alone.
+    """GC220: a TT supply whose electrode R_A times the RCD's IΔn exceeds 50 V (IEC 60364-4-41
+    411.5.3); GC221: a TT supply protected by a fuse or breaker alone.
 
     Parameters:
         s: the solved network with its context.
@@ -37,23 +37,41 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
     if m.rcd is not None:
         u = r_a * m.rcd
         if u > TOUCH_LIMIT:
-            return [Finding("GC220", "danger",
-                            f"TT supply: the earth electrode ({r_a:g} Ω) times the RCD's rated residual current "
-                            f"({m.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a fault below the RCD's "
-                            "rating can leave the metal above the touch-voltage limit",
-                            m.location, ("mains",),
-                            {"electrode_ohm": r_a, "rcd_a": m.rcd, "touch_limit_v": TOUCH_LIMIT,
-                             "electrode_times_rcd_v": round(u, 3)},
-                            _tt_fix(r_a, m.rcd))]
+            return [
+                Finding(
+                    "GC220",
+                    "danger",
+                    f"TT supply: the earth electrode ({r_a:g} Ω) times the RCD's rated residual "
+                    f"current ({m.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a fault "
+                    "below the RCD's rating can leave the metal above the touch-voltage limit",
+                    m.location,
+                    ("mains",),
+                    {
+                        "electrode_ohm": r_a,
+                        "rcd_a": m.rcd,
+                        "touch_limit_v": TOUCH_LIMIT,
+                        "electrode_times_rcd_v": round(u, 3),
+                    },
+                    _tt_fix(r_a, m.rcd),
+                )
+            ]
         return []
     if m.fuse is None:
         return []
-    return [Finding("GC221", "note",
-                    "TT supply protected by a fuse or breaker alone: disconnection relies on a low fault loop through "
-                    f"the earth electrode ({s.safety.supply.ze:g} Ω in the figures), which soil and season change",
-                    m.location, ("mains",), {"external_loop_ohm": s.safety.supply.ze},
-                    "protect the circuit with an RCD (30 mA for socket outlets), as TT installations usually are; "
-                    "have the loop measured by a qualified electrician")]
+    return [
+        Finding(
+            "GC221",
+            "note",
+            "TT supply protected by a fuse or breaker alone: disconnection relies on a low fault "
+            f"loop through the earth electrode ({s.safety.supply.ze:g} Ω in the figures), which "
+            "soil and season change",
+            m.location,
+            ("mains",),
+            {"external_loop_ohm": s.safety.supply.ze},
+            "protect the circuit with an RCD (30 mA for socket outlets), as TT installations "
+            "usually are; have the loop measured by a qualified electrician",
+        )
+    ]
 
 
 #: rated residual currents of general-purpose RCDs, A (IEC 61008-1 preferred values, from memory)
@@ -61,35 +79,50 @@ RCD_RATINGS = (0.006, 0.01, 0.03, 0.1, 0.3, 0.5)
 
 
 def _tt_fix(r_a: float, rated: float) -> str:
-    """GC220's fix: the electrode to reach with this RCD, and the largest standard RCD rating that the electrode
-    as it is allows (none when even 6 mA does not)."""
-    fix = (f"have the installation's earth electrode improved to at most {TOUCH_LIMIT / rated:.4g} Ω "
-           "(a qualified electrician measures and repairs it)")
+    """GC220's fix: the electrode to reach with this RCD, and the largest standard RCD rating that
+    the electrode as it is allows (none when even 6 mA does not)."""
+    fix = (
+        f"have the installation's earth electrode improved to at most {TOUCH_LIMIT / rated:.4g} Ω "
+        "(a qualified electrician measures and repairs it)"
+    )
     fits = [x for x in RCD_RATINGS if x < rated and r_a * x <= TOUCH_LIMIT]
     if fits:
-        fix += f", or protect the circuit with a {max(fits) * 1e3:g} mA RCD ({r_a * max(fits):.3g} V at its rating)"
+        fix += (
+            f", or protect the circuit with a {max(fits) * 1e3:g} mA RCD ({r_a * max(fits):.3g} V "
+            "at its rating)"
+        )
     return fix + "; follow local electrical codes"
 
 
 @rule("GC222")
 def rule_signal_only_metal(ctx: AuditContext) -> list[Finding]:
-    """GC222: metal written ``signal-only`` in a plan with a protective earth is not held to protective bonding;
-    the note says so, with the reason, so the exemption is never silent.
+    """GC222: metal written ``signal-only`` in a plan with a protective earth is not held to
+    protective bonding; the note says so, with the reason, so the exemption is never silent.
 
     Parameters:
         ctx: the audit context.
     Returns:
         GC222 findings.
     References:
-        IEC 61140 (a part that cannot become live under a single fault needs no protective bonding), from memory.
+        IEC 61140 (a part that cannot become live under a single fault needs no protective
+        bonding), from memory.
     """
     m = ctx.plan.mains
     if m is None or m.equipment_class != "I":
         return []
-    return [Finding("GC222", "note",
-                    f"{part.name} is written signal-only: it holds no mains circuit and cannot become live under a "
-                    "single fault, so it is not held to protective bonding",
-                    part.location, (part.name,), {},
-                    f"make sure nothing in {part.name} connects to mains (no mains switch, lamp or supply inside it); "
-                    "if anything does, remove 'signal-only' and bond it with a protective conductor")
-            for part in ctx.plan.metals if part.signal_only]
+    return [
+        Finding(
+            "GC222",
+            "note",
+            f"{part.name} is written signal-only: it holds no mains circuit and cannot become "
+            "live under a single fault, so it is not held to protective bonding",
+            part.location,
+            (part.name,),
+            {},
+            f"make sure nothing in {part.name} connects to mains (no mains switch, lamp or supply "
+            "inside it); if anything does, remove 'signal-only' and bond it with a protective "
+            "conductor",
+        )
+        for part in ctx.plan.metals
+        if part.signal_only
+    ]

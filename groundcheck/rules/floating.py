@@ -9,8 +9,8 @@ __all__ = ["floating_fix"]
 
 
 def floating_fix(ctx: AuditContext, comp) -> str:
-    """GC106's fix: bond once near the protective earth; points of the ground that sit ``on`` a metal
-    part with nothing fastening them are named (``on`` places a point, a fastening joins it).
+    """GC106's fix: bond once near the protective earth; points of the ground that sit ``on`` a
+    metal part with nothing fastening them are named (``on`` places a point, a fastening joins it).
 
     Parameters:
         ctx: the audit context.
@@ -25,6 +25,8 @@ def floating_fix(ctx: AuditContext, comp) -> str:
     if not loose:
         return fix
     p = ctx.plan.point(loose[0])
-    return (f"{fix}. {', '.join(loose[:4])} sit on {p.on} but nothing fastens them to it ('on' gives a "
-            f"point's place; a fastening joins it): if one is meant as the bond, write e.g. "
-            f"'bolt {p.name}_nut: {p.name} to {p.on}'")
+    return (
+        f"{fix}. {', '.join(loose[:4])} sit on {p.on} but nothing fastens them to it ('on' gives "
+        "a point's place; a fastening joins it): if one is meant as the bond, write e.g. 'bolt "
+        f"{p.name}_nut: {p.name} to {p.on}'"
+    )

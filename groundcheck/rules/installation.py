@@ -1,7 +1,7 @@
 """Installation rules: how the devices of an installation meet each other.
 
-Each rule is a pure function of an :class:`~groundcheck.rules.context.AuditContext` returning findings,
-registered under the codes it makes (:mod:`groundcheck.rules.registry`).
+Each rule is a pure function of an :class:`~groundcheck.rules.context.AuditContext` returning
+findings, registered under the codes it makes (:mod:`groundcheck.rules.registry`).
 """
 
 from __future__ import annotations
@@ -14,9 +14,15 @@ from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
 
-__all__ = ["rule_shield_on_signal_ground", "rule_leakage_limit", "signal_ground_path", "LEAKAGE_LIMIT"]
+__all__ = [
+    "rule_shield_on_signal_ground",
+    "rule_leakage_limit",
+    "signal_ground_path",
+    "LEAKAGE_LIMIT",
+]
 
-#: the largest leakage current of a plug-connected class I device and of a class II device, A (IEC 60950-1:2005,
+#: the largest leakage current of a plug-connected class I device and of a class II device, A (IEC
+#: 60950-1:2005,
 #: 5.1.7 and Table 5A; see GC216 in the catalogue)
 LEAKAGE_LIMIT = {"I": 3.5e-3, "II": 0.25e-3}
 
@@ -31,9 +37,9 @@ def signal_ground_path(conductors, start: str, chassis: str, dev: str, metals) -
         dev: the device's name (its conductors' prefix).
         metals: the plan's metal parts by name.
     Returns:
-        the device's own conductors on the path of fewest conductors from ``start`` to the chassis, protective
-        conductors and fastenings left out of the answer (not of the search); [] when fastenings alone join
-        them, or they are not joined.
+        the device's own conductors on the path of fewest conductors from ``start`` to the chassis,
+        protective conductors and fastenings left out of the answer (not of the search); [] when
+        fastenings alone join them, or they are not joined.
     References:
         breadth-first search (Cormen et al., *Introduction to Algorithms*).
     """
@@ -65,8 +71,9 @@ def signal_ground_path(conductors, start: str, chassis: str, dev: str, metals) -
 
 @rule("GC113")
 def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
-    """GC113: an interconnect's shield, conducting at both ends, lands on a device's signal ground inside the
-    device, so the current it carries crosses the device's signal-ground wiring to reach the chassis.
+    """GC113: an interconnect's shield, conducting at both ends, lands on a device's signal ground
+    inside the device, so the current it carries crosses the device's signal-ground wiring to reach
+    the chassis.
 
     Parameters:
         ctx: the audit context.
@@ -84,7 +91,7 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
     out = []
     for c in plan.conductors:
         if not joins_devices(c) or not c.connects or not c.balanced:
-            continue          # an unbalanced link's shield is its signal return: it belongs there
+            continue  # an unbalanced link's shield is its signal return: it belongs there
         for end, landing in zip((c.a, c.b), shield_ends(c)):
             dev = device_of(end, devices) if landing == "signal" else None
             chassis = device_chassis(dev, own.get(dev, []), metals, end) if dev else None
@@ -93,19 +100,30 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
             path = signal_ground_path(own.get(dev, []), end, chassis, dev, metals)
             if not path:
                 continue
-            advice = ("land the shield on the chassis where the cable enters ('shield-to chassis'), leaving "
-                      f"{dev}'s signal ground one bond of its own")
-            out.append(Finding("GC113", "warning", f"the shield of {c.name} lands on {dev}'s signal ground at {end}: "
-                               f"the current it carries crosses {', '.join(path)} on its way to {chassis}",
-                               c.location, (c.name, end, *path), {"conductors": len(path)},
-                               f"{advice}; never lift the protective earth", (("shield-to", c.name, end),)))
+            advice = (
+                "land the shield on the chassis where the cable enters ('shield-to chassis'), "
+                f"leaving {dev}'s signal ground one bond of its own"
+            )
+            out.append(
+                Finding(
+                    "GC113",
+                    "warning",
+                    f"the shield of {c.name} lands on {dev}'s signal ground at {end}: the current "
+                    f"it carries crosses {', '.join(path)} on its way to {chassis}",
+                    c.location,
+                    (c.name, end, *path),
+                    {"conductors": len(path)},
+                    f"{advice}; never lift the protective earth",
+                    (("shield-to", c.name, end),),
+                )
+            )
     return out
 
 
 @rule("GC216")
 def rule_leakage_limit(ctx: AuditContext) -> list[Finding]:
-    """GC216: a device whose leakage current (stated, or from its Y capacitance at its supply) is above the limit of
-    its protection class.
+    """GC216: a device whose leakage current (stated, or from its Y capacitance at its supply) is
+    above the limit of its protection class.
 
     Parameters:
         ctx: the audit context.
@@ -127,16 +145,33 @@ def rule_leakage_limit(ctx: AuditContext) -> list[Finding]:
             continue
         how = "stated" if dev.leakage is not None else "from its Y capacitance at its supply"
         if dev.equipment_class == "I":
-            what = (f"a plug-connected class I device may leak at most {limit * 1e3:g} mA into its protective "
-                    "conductor, and with its earth lost this current flows through whoever touches the chassis")
+            what = (
+                f"a plug-connected class I device may leak at most {limit * 1e3:g} mA into its "
+                "protective conductor, and with its earth lost this current flows through "
+                "whoever touches the chassis"
+            )
         else:
-            what = (f"a class II device may give at most {limit * 1e3:g} mA to parts that are touched: it has no "
-                    "protective conductor to take it")
-        then = ("needs a permanent or industrial connection and a qualified person's check; never lift its "
-                "protective earth" if dev.equipment_class == "I" else
-                "is not safe to touch as built: have it checked by a qualified person, and do not earth it yourself")
-        out.append(Finding("GC216", "fault", f"{dev.name} leaks {amps * 1e3:.3g} mA ({how}): {what}",
-                           dev.location, (dev.name,), {"leakage_a": amps, "limit_a": limit},
-                           "check the figure against the maker's data or a measurement (a Y capacitance in nF, not "
-                           f"µF); a device that truly leaks this much {then}"))
+            what = (
+                f"a class II device may give at most {limit * 1e3:g} mA to parts that are "
+                "touched: it has no protective conductor to take it"
+            )
+        then = (
+            "needs a permanent or industrial connection and a qualified person's check; never "
+            "lift its protective earth"
+            if dev.equipment_class == "I"
+            else "is not safe to touch as built: have it checked by a qualified person, and do "
+            "not earth it yourself"
+        )
+        out.append(
+            Finding(
+                "GC216",
+                "fault",
+                f"{dev.name} leaks {amps * 1e3:.3g} mA ({how}): {what}",
+                dev.location,
+                (dev.name,),
+                {"leakage_a": amps, "limit_a": limit},
+                "check the figure against the maker's data or a measurement (a Y capacitance in "
+                f"nF, not µF); a device that truly leaks this much {then}",
+            )
+        )
     return out

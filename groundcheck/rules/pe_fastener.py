@@ -1,6 +1,6 @@
 """GC202: the protective conductor from the inlet lands on a fastener that holds something else —
-another conductor, or a part its own fastening clamps (a stud on the chassis through a transformer's
-foot)."""
+another conductor, or a part its own fastening clamps (a stud on the chassis through a
+transformer's foot)."""
 
 from __future__ import annotations
 
@@ -13,7 +13,8 @@ __all__ = ["pe_fastener"]
 
 
 def pe_fastener(ctx: AuditContext) -> list[Finding]:
-    """GC202: the protective conductor from the inlet lands on a fastener that holds something else.
+    """GC202: the protective conductor from the inlet lands on a fastener that holds something
+    else.
 
     Parameters:
         ctx: the audit context.
@@ -31,16 +32,25 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
                 continue
             others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
             # the stud's own fastening to the metal, whatever role the plan writes for it
-            fastenings = sorted(kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals))
+            fastenings = sorted(
+                kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
+            )
             holds = [kk for kk in others if kk not in fastenings[:1]]
             holds += _clamped_part(ctx, v, fastenings[:1])
             if holds:
-                out.append(Finding("GC202", "fault",
-                                   f"the protective earth lands on {v}, a fastener that also holds "
-                                   f"{', '.join(sorted(holds))}",
-                                   c.location, (c.name, v, *sorted(holds)), {"other_items": len(holds)},
-                                   f"give the protective earth a stud of its own; move {', '.join(sorted(holds))} to "
-                                   "another fastener"))
+                out.append(
+                    Finding(
+                        "GC202",
+                        "fault",
+                        f"the protective earth lands on {v}, a fastener that also holds "
+                        f"{', '.join(sorted(holds))}",
+                        c.location,
+                        (c.name, v, *sorted(holds)),
+                        {"other_items": len(holds)},
+                        "give the protective earth a stud of its own; move "
+                        f"{', '.join(sorted(holds))} to another fastener",
+                    )
+                )
     return out
 
 

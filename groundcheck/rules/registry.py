@@ -2,9 +2,9 @@
 
 A rule is a pure function returning findings.  ``needs="topology"`` rules take the
 :class:`~groundcheck.rules.context.AuditContext`; ``needs="solve"`` rules take the
-:class:`~groundcheck.rules.electrical.Solved` results of the electrical analyses.  Every code of the
-catalogue (:mod:`groundcheck.rules.catalogue`) is registered to exactly one function (tested), so the
-catalogue and the code cannot drift apart.
+:class:`~groundcheck.rules.electrical.Solved` results of the electrical analyses.  Every code of
+the catalogue (:mod:`groundcheck.rules.catalogue`) is registered to exactly one function (tested),
+so the catalogue and the code cannot drift apart.
 """
 
 from __future__ import annotations
@@ -22,7 +22,7 @@ class RuleFunction:
     codes: tuple[str, ...]
     needs: str
     func: Callable
-    hum: bool = False            # judged from the hum figures (nothing to judge without them: --no-hum)
+    hum: bool = False  # judged from the hum figures (nothing to judge without them: --no-hum)
 
     @property
     def name(self) -> str:
@@ -39,7 +39,8 @@ def rule(*codes: str, needs: str = "topology", hum: bool = False):
     Parameters:
         codes: the rule codes the function makes.
         needs: context (the graph) or solved (the electrical solve).
-        hum: whether its findings are judged from the hum figures (a run without them cannot judge it).
+        hum: whether its findings are judged from the hum figures (a run without them cannot judge
+        it).
     Returns:
         a decorator that registers the function.
     References:
@@ -52,12 +53,13 @@ def rule(*codes: str, needs: str = "topology", hum: bool = False):
     def deco(func):
         REGISTRY.append(RuleFunction(tuple(codes), needs, func, hum))
         return func
+
     return deco
 
 
 def functions(needs: str) -> list[RuleFunction]:
-    """The registered functions that need ``needs`` (the families register themselves when imported:
-    :mod:`groundcheck.rules.families` imports them all).
+    """The registered functions that need ``needs`` (the families register themselves when
+    imported: :mod:`groundcheck.rules.families` imports them all).
 
     Parameters:
         needs: context or solved.
@@ -70,7 +72,8 @@ def functions(needs: str) -> list[RuleFunction]:
 
 
 def codes_registered() -> dict[str, list[str]]:
-    """Each code -> the names of the functions registered for it (exactly one each, when all is well).
+    """Each code -> the names of the functions registered for it (exactly one each, when all is
+    well).
 
     Parameters:
         (none)

@@ -28,8 +28,11 @@ def only_return_end(ctx, c) -> str | None:
     for end in (c.a, c.b):
         if end not in ctx.G:
             continue
-        others = [k for _, _, k in ctx.G.edges(end, keys=True)
-                  if k != c.name and not is_fastening(ctx.conductors[k], ctx.metals)]
+        others = [
+            k
+            for _, _, k in ctx.G.edges(end, keys=True)
+            if k != c.name and not is_fastening(ctx.conductors[k], ctx.metals)
+        ]
         if not others:
             return end
     return None
@@ -51,11 +54,16 @@ def shield_fix(ctx, c, keep: str, lift: str) -> tuple[str, tuple]:
     """
     alone = only_return_end(ctx, c)
     if alone is None:
-        return (f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
-                (("terminate-at", c.name, keep),))
-    return (f"keep both ends: {c.name} is the only return of {alone} (opened at either end, "
-            f"{alone} would float); to keep other currents off the signal's return, use a "
-            f"screened pair whose second core is the return, with the screen at {keep} only", ())
+        return (
+            f"terminate {c.name} at {keep} only and leave the end at {lift} unconnected",
+            (("terminate-at", c.name, keep),),
+        )
+    return (
+        f"keep both ends: {c.name} is the only return of {alone} (opened at either end, {alone} "
+        "would float); to keep other currents off the signal's return, use a screened pair whose "
+        f"second core is the return, with the screen at {keep} only",
+        (),
+    )
 
 
 def supply_ends(plan) -> set[frozenset]:
@@ -107,9 +115,15 @@ def supply_meetings(ctx) -> list[tuple]:
             if star is None or any(n in ctx.metals for n in path):
                 continue
             link = next(iter(ctx.G[path[0]][path[1]]))
-            out.append((r.location, (star, x, y, link),
-                        f"the current of {r.name} between {x} and {y} flows through star {star}: "
-                        "they meet only there",
-                        f"join {x} to {y} by a short wire of their own ({link}), then one wire "
-                        f"to {star}", (("join", link, y),)))
+            out.append(
+                (
+                    r.location,
+                    (star, x, y, link),
+                    f"the current of {r.name} between {x} and {y} flows through star {star}: they "
+                    "meet only there",
+                    f"join {x} to {y} by a short wire of their own ({link}), then one wire to "
+                    f"{star}",
+                    (("join", link, y),),
+                )
+            )
     return out

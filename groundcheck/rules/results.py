@@ -34,24 +34,26 @@ FAIL_LEVELS = ("danger", "fault", "warning", "note", "never")
 class Options:
     """Settings of an analysis run (each has a command-line option of the same meaning)."""
 
-    pe_limit: float = STANDARD_PE_LIMIT      # Ω
-    max_frequency: float = HumOptions.max_frequency            # Hz
-    contributor_level: float = HumOptions.contributor_level    # dBV at the output
-    crosstalk_limit: float = HumOptions.crosstalk_limit        # dB
-    hum: bool = True                         # run the electrical hum budget
-    jobs: int = 1                            # processes for the hum budget's frequencies
-    only_rules: tuple[str, ...] = ()         # rule codes, families or names to check (empty: all)
-    leave_out: tuple[str, ...] = ()          # rule codes, families or names not to check
-    allow_accept_danger: bool = False        # '# accept' may accept a danger (still counted)
-    only_rules_origin: str = "only_rules"    # where only_rules came from, as the outputs name it
-    leave_out_origin: str = "leave_out"      # where leave_out came from
+    pe_limit: float = STANDARD_PE_LIMIT  # Ω
+    max_frequency: float = HumOptions.max_frequency  # Hz
+    contributor_level: float = HumOptions.contributor_level  # dBV at the output
+    crosstalk_limit: float = HumOptions.crosstalk_limit  # dB
+    hum: bool = True  # run the electrical hum budget
+    jobs: int = 1  # processes for the hum budget's frequencies
+    only_rules: tuple[str, ...] = ()  # rule codes, families or names to check (empty: all)
+    leave_out: tuple[str, ...] = ()  # rule codes, families or names not to check
+    allow_accept_danger: bool = False  # '# accept' may accept a danger (still counted)
+    only_rules_origin: str = "only_rules"  # where only_rules came from, as the outputs name it
+    leave_out_origin: str = "leave_out"  # where leave_out came from
 
     def __post_init__(self):
-        for words, origin in ((self.only_rules, self.only_rules_origin),
-                              (self.leave_out, self.leave_out_origin)):
+        for words, origin in (
+            (self.only_rules, self.only_rules_origin),
+            (self.leave_out, self.leave_out_origin),
+        ):
             if isinstance(words, str):
                 raise TypeError(f"{origin}: a tuple of rule words, not one string")
-            codes_of(words, origin)     # a word that names no rule is an error, never nothing
+            codes_of(words, origin)  # a word that names no rule is an error, never nothing
 
 
 @dataclass
@@ -68,12 +70,16 @@ class Result:
     coupling: list[SharedReturn] = field(default_factory=list)
     options: Options = field(default_factory=Options)
     device_earths: tuple[DeviceEarth, ...] | None = None
-    notices: list[str] = field(default_factory=list)      # what was relaxed or skipped: shown in every output
-    protective: frozenset = frozenset()                    # conductors protective by topology or role (earthing.py)
-    rectifiers: list = field(default_factory=list)         # each rectifier's steady state, with or without stages
-    outlets: OutletVoltages | None = None                  # an installation's outlet-pair voltages
+    notices: list[str] = field(
+        default_factory=list
+    )  # what was relaxed or skipped: shown in every output
+    protective: frozenset = frozenset()  # conductors protective by topology or role (earthing.py)
+    rectifiers: list = field(
+        default_factory=list
+    )  # each rectifier's steady state, with or without stages
+    outlets: OutletVoltages | None = None  # an installation's outlet-pair voltages
     not_checked: list[NotChecked] = field(default_factory=list)  # left out, accepted: said always
-    bonding: BondingResult | None = None                   # the product bonding test's figures
+    bonding: BondingResult | None = None  # the product bonding test's figures
 
     def open_findings(self) -> list[Finding]:
         """The findings not accepted in the plan."""
@@ -117,8 +123,11 @@ class Result:
         if not self.not_checked:
             return "clean" if worst is None else f"worst finding: {label(worst)}"
         if worst == "danger":
-            accepted = " (accepted in the plan, still counted)" if not any(
-                f.severity == "danger" for f in self.open_findings()) else ""
+            accepted = (
+                " (accepted in the plan, still counted)"
+                if not any(f.severity == "danger" for f in self.open_findings())
+                else ""
+            )
             head = f"worst finding: {label(worst)}{accepted}"
         else:
             head = "no danger found among the rules checked"

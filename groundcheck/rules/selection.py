@@ -20,8 +20,9 @@ __all__ = ["UnknownRule", "NotChecked", "rule_codes", "codes_of", "nearest", "ru
 
 #: characters people type for one another (a letter O for a zero, …): a cheap substitution when
 #: ranking the nearest code, so that GC2O6 suggests GC206 rather than GC216 (common practice)
-_LOOKALIKE = {frozenset(p) for p in ("O0", "o0", "Q0", "D0", "I1", "l1", "i1", "S5", "s5", "B8",
-                                     "Z2", "z2")}
+_LOOKALIKE = {
+    frozenset(p) for p in ("O0", "o0", "Q0", "D0", "I1", "l1", "i1", "S5", "s5", "B8", "Z2", "z2")
+}
 
 
 class UnknownRule(GroundcheckError):
@@ -29,8 +30,9 @@ class UnknownRule(GroundcheckError):
 
     def __init__(self, word: str, where: str = ""):
         self.word, self.suggestion = word, nearest(word)
-        self.hint = (f"did you mean {self.suggestion}? " if self.suggestion else "") + \
-            "'groundcheck explain' lists the rules"
+        self.hint = (
+            f"did you mean {self.suggestion}? " if self.suggestion else ""
+        ) + "'groundcheck explain' lists the rules"
         prefix = f"{where}: " if where else ""
         super().__init__(f"{prefix}unknown rule {word!r} ({self.hint})")
 
@@ -107,7 +109,7 @@ def nearest(word: str) -> str | None:
         Levenshtein edit distance (common practice), look-alike characters cheaper (from memory).
     """
     w = word.strip()
-    families = {f.word for f in FAMILIES} | {c[:4] for c in RULES}     # GC2, and GC21 …
+    families = {f.word for f in FAMILIES} | {c[:4] for c in RULES}  # GC2, and GC21 …
     cands = [(_distance(w, c), c) for c in (*RULES, *sorted(families))]
     cands += [(_distance(w.lower(), r.name), r.name) for r in RULES.values()]
     best, name = min(cands, key=lambda t: (t[0], t[1]))
@@ -143,9 +145,9 @@ class NotChecked:
     ``location``, with its ``severity``)."""
 
     codes: tuple[str, ...]
-    why: str                          # 'left out by --leave-out GC2', 'accepted in the plan: …'
+    why: str  # 'left out by --leave-out GC2', 'accepted in the plan: …'
     location: Location | None = None
-    severity: str | None = None       # an accepted finding's severity
+    severity: str | None = None  # an accepted finding's severity
 
     def short(self) -> str:
         """The entry in a verdict line."""
@@ -158,9 +160,15 @@ class NotChecked:
         """The entry as a notice."""
         if self.location is None:
             return f"not checked: {rule_list(self.codes)} — {self.why}"
-        return (f"not checked at {self.location.file}:{self.location.line}: "
-                f"{', '.join(self.codes)} ({self.severity}) — {self.why}")
+        return (
+            f"not checked at {self.location.file}:{self.location.line}: {', '.join(self.codes)} "
+            f"({self.severity}) — {self.why}"
+        )
 
     def as_dict(self) -> dict:
-        return {"rules": list(self.codes), "why": self.why, "severity": self.severity,
-                "location": None if self.location is None else self.location.as_dict()}
+        return {
+            "rules": list(self.codes),
+            "why": self.why,
+            "severity": self.severity,
+            "location": None if self.location is None else self.location.as_dict(),
+        }

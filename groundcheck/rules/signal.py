@@ -11,8 +11,12 @@ from .context import AuditContext, bfs
 from .electrical import Solved
 from .registry import rule
 
-__all__ = ["rule_return_through_metal", "rule_ground_feedback", "FEEDBACK_LIMIT_DB",
-           "FEEDBACK_NOTE_DB"]
+__all__ = [
+    "rule_return_through_metal",
+    "rule_ground_feedback",
+    "FEEDBACK_LIMIT_DB",
+    "FEEDBACK_NOTE_DB",
+]
 
 #: ground feedback through a channel's input stages above this is a fault, dB against the rated
 #: output: 0.1 %, the distortion a power amplifier is commonly held to (common practice)
@@ -52,25 +56,34 @@ def rule_return_through_metal(ctx: AuditContext) -> list[Finding]:
     """
     out = []
     for st in ctx.plan.stages:
-        if st.across is not None:         # an interconnect's input: its shield is the return
+        if st.across is not None:  # an interconnect's input: its shield is the return
             continue
         route = _metal_route(ctx, st.a, st.b)
         if route is None:
             continue
-        fastenings = [next(iter(ctx.adj[u][v])) for u, v in zip(route, route[1:])
-                      if u in ctx.metals or v in ctx.metals]
+        fastenings = [
+            next(iter(ctx.adj[u][v]))
+            for u, v in zip(route, route[1:])
+            if u in ctx.metals or v in ctx.metals
+        ]
         if not fastenings:
             continue
         target = st.named or st.b
         metal = list(dict.fromkeys(n for n in route if n in ctx.metals))
-        out.append(Finding(
-            "GC114", "warning",
-            f"stage {st.name}'s input reference {st.a} reaches its ground {st.b} only through "
-            f"{', '.join(metal)}: {' → '.join(route)}",
-            st.location, (st.name, st.a, *dict.fromkeys(fastenings)), {"metal_parts": len(metal)},
-            f"wire {st.a} to {target} by a wire of its own and insulate {st.a} from the metal "
-            f"({fastenings[0]}: an insulated socket or shoulder washers)",
-            (("join", st.a, target), ("insulate", fastenings[0]))))
+        out.append(
+            Finding(
+                "GC114",
+                "warning",
+                f"stage {st.name}'s input reference {st.a} reaches its ground {st.b} only through "
+                f"{', '.join(metal)}: {' → '.join(route)}",
+                st.location,
+                (st.name, st.a, *dict.fromkeys(fastenings)),
+                {"metal_parts": len(metal)},
+                f"wire {st.a} to {target} by a wire of its own and insulate {st.a} from the metal "
+                f"({fastenings[0]}: an insulated socket or shoulder washers)",
+                (("join", st.a, target), ("insulate", fastenings[0])),
+            )
+        )
     return out
 
 
@@ -78,8 +91,14 @@ def _return_wire(s: Solved, cur) -> tuple[str, str] | None:
     """The one conductor that takes a signal current from its first point into the ground, and
     where it should go instead (the current's own second point, its star); None when there is no
     single such conductor."""
-    wires = [c for c in s.plan.conductors if cur.a in (c.a, c.b) and c.connects
-             and not shield_like(c) and c.name not in s.ctx.protective_path]
+    wires = [
+        c
+        for c in s.plan.conductors
+        if cur.a in (c.a, c.b)
+        and c.connects
+        and not shield_like(c)
+        and c.name not in s.ctx.protective_path
+    ]
     if len(wires) != 1:
         return None
     c = wires[0]
@@ -97,23 +116,34 @@ def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
     move = _return_wire(s, cur)
     ch = cur.channel
     if move:
-        fix = (f"take {cur.a}'s return to {move[1]} by a wire of its own (move {move[0]}), so "
-               f"that it shares nothing with the {ch} input ground")
+        fix = (
+            f"take {cur.a}'s return to {move[1]} by a wire of its own (move {move[0]}), so that "
+            f"it shares nothing with the {ch} input ground"
+        )
     else:
-        fix = (f"give {cur.name} a return of its own to its star, sharing nothing with the {ch} "
-               "input ground")
+        fix = (
+            f"give {cur.name} a return of its own to its star, sharing nothing with the {ch} "
+            "input ground"
+        )
     return Finding(
-        "GC306", severity,
+        "GC306",
+        severity,
         f"the {ch} channel's own current {cur.name} ({cur.a} → {cur.b}) flows in the ground its "
         f"input reads: {at_1k['db']:.1f} dB of the output fed back at 1 kHz "
         f"({at_1k['input_db']:.1f} dB through its input stages; worst {worst['input_db']:.1f} dB "
         f"at {worst['frequency_hz']:g} Hz)",
         s.ctx.conductors[move[0]].location if move else cur.location,
         (*((move[0],) if move else ()), cur.name),
-        {"feedback_db": at_1k["db"], "input_db": at_1k["input_db"],
-         "worst_input_db": worst["input_db"], "worst_frequency_hz": worst["frequency_hz"],
-         "channel": ch},
-        fix, (("reroute", move[0], move[1]),) if move else ())
+        {
+            "feedback_db": at_1k["db"],
+            "input_db": at_1k["input_db"],
+            "worst_input_db": worst["input_db"],
+            "worst_frequency_hz": worst["frequency_hz"],
+            "channel": ch,
+        },
+        fix,
+        (("reroute", move[0], move[1]),) if move else (),
+    )
 
 
 @rule("GC306", needs="solve", hum=True)

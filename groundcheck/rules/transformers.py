@@ -61,31 +61,46 @@ def rule_supply_voltage(ctx: AuditContext) -> list[Finding]:
         volts = own[d.name]
         there = [n for n in _outlets_for(plan, volts, feeds) if n != d.plugged]
         if there:
-            fix = (f"plug {d.name} into {' or '.join(there[:3])}, which "
-                   f"give{'s' if len(there) == 1 else ''} {volts:g} V")
+            fix = (
+                f"plug {d.name} into {' or '.join(there[:3])}, which "
+                f"give{'s' if len(there) == 1 else ''} {volts:g} V"
+            )
         else:
-            fix = (f"plug {d.name} in behind a transformer from {at[0]:g} V to {volts:g} V "
-                   "(a 'transformer' statement) rated for what it draws")
-        out.append(Finding(
-            "GC217", "danger",
-            f"device {d.name} is for {volts:g} V but is plugged into {d.plugged}, which gives "
-            f"{at[0]:g} V ({_where(d.plugged, feeds)})",
-            d.location, (d.name, d.plugged), {"rated_v": volts, "supplied_v": at[0]},
-            f"{fix}; have a qualified person check it before it is used again"))
+            fix = (
+                f"plug {d.name} in behind a transformer from {at[0]:g} V to {volts:g} V (a "
+                "'transformer' statement) rated for what it draws"
+            )
+        out.append(
+            Finding(
+                "GC217",
+                "danger",
+                f"device {d.name} is for {volts:g} V but is plugged into {d.plugged}, which gives "
+                f"{at[0]:g} V ({_where(d.plugged, feeds)})",
+                d.location,
+                (d.name, d.plugged),
+                {"rated_v": volts, "supplied_v": at[0]},
+                f"{fix}; have a qualified person check it before it is used again",
+            )
+        )
     for t in plan.transformers:
         at = supply_at(t.plugged, feeds, plan.supply)
         if suits(t.primary, at):
             continue
         gives = t.secondary * at[0] / t.primary
-        out.append(Finding(
-            "GC217", "danger",
-            f"transformer {t.name}'s primary is for {t.primary:g} V but {t.plugged} gives "
-            f"{at[0]:g} V ({_where(t.plugged, feeds)}): its secondary gives about {gives:.4g} V, "
-            f"not {t.secondary:g} V",
-            t.location, (t.name, t.plugged),
-            {"rated_v": t.primary, "supplied_v": at[0], "secondary_v": gives},
-            f"plug {t.name} into a {t.primary:g} V outlet, or use a transformer whose primary is "
-            f"for {at[0]:g} V"))
+        out.append(
+            Finding(
+                "GC217",
+                "danger",
+                f"transformer {t.name}'s primary is for {t.primary:g} V but {t.plugged} gives "
+                f"{at[0]:g} V ({_where(t.plugged, feeds)}): its secondary gives about {gives:.4g} "
+                f"V, not {t.secondary:g} V",
+                t.location,
+                (t.name, t.plugged),
+                {"rated_v": t.primary, "supplied_v": at[0], "secondary_v": gives},
+                f"plug {t.name} into a {t.primary:g} V outlet, or use a transformer whose primary "
+                f"is for {at[0]:g} V",
+            )
+        )
     return out
 
 
@@ -95,38 +110,49 @@ def _behind(plan, t, feeds) -> list:
 
 def _separation_lost(d, t, count: int) -> Finding:
     return Finding(
-        "GC218", "warning",
+        "GC218",
+        "warning",
         f"device {d.name} is on the floating secondary of {t.name}, but its chassis reaches the "
         "main earthing terminal through its interconnects: the separation is lost, and a fault "
         "to its chassis drives current through their shields",
-        d.location, (d.name, t.name), {"devices": count},
+        d.location,
+        (d.name, t.name),
+        {"devices": count},
         "keep a separated device's chassis off every earth, or plug it into an earthed outlet; "
-        "never lift a protective earth to do either")
+        "never lift a protective earth to do either",
+    )
 
 
 def _shared(t, devs: list) -> Finding:
     names = ", ".join(d.name for d in devs)
     return Finding(
-        "GC218", "danger",
+        "GC218",
+        "danger",
         f"{names} share the floating secondary of {t.name}: a first fault in one has no loop to "
-        "earth, but a second fault, on the other pole in another, puts the full "
-        f"{t.secondary:g} V between their chassis, and nothing in the plan clears it (no fault "
-        "loop through earth)",
-        t.location, (t.name, *(d.name for d in devs)),
+        f"earth, but a second fault, on the other pole in another, puts the full {t.secondary:g} "
+        "V between their chassis, and nothing in the plan clears it (no fault loop through "
+        "earth)",
+        t.location,
+        (t.name, *(d.name for d in devs)),
         {"devices": len(devs), "secondary_v": t.secondary},
         "give each device its own isolating transformer, or plug them into earthed outlets; a "
         "shared separated circuit needs an unearthed bond between the chassis and a device that "
-        "disconnects a second fault, designed by a qualified person")
+        "disconnects a second fault, designed by a qualified person",
+    )
 
 
 def _separated(d, t) -> Finding:
     return Finding(
-        "GC218", "note",
+        "GC218",
+        "note",
         f"device {d.name} is on the floating secondary of {t.name} (electrical separation): a "
         "single fault to its chassis has no loop to earth, so nothing trips and no current flows "
         "through a person touching it and earth",
-        d.location, (d.name, t.name), {"devices": 1},
-        f"keep {d.name} the only device on {t.name} and its chassis off every earth")
+        d.location,
+        (d.name, t.name),
+        {"devices": 1},
+        f"keep {d.name} the only device on {t.name} and its chassis off every earth",
+    )
 
 
 @rule("GC218")
@@ -193,12 +219,17 @@ def rule_transformer_rating(ctx: AuditContext) -> list[Finding]:
         unknown = [d.name for d in devs if d.draws is None]
         verb = "states" if len(unknown) == 1 else "state"
         more = f"; {', '.join(unknown)} {verb} no draw" if unknown else ""
-        out.append(Finding(
-            "GC219", "fault",
-            f"the devices behind {t.name} draw {total:g} VA, over its rating of "
-            f"{t.rating:g} VA{more}",
-            t.location, (t.name, *(d.name for d in devs)),
-            {"draws_va": total, "rating_va": t.rating},
-            "use a transformer rated for what they draw, or plug some of them in elsewhere at "
-            "their own voltage"))
+        out.append(
+            Finding(
+                "GC219",
+                "fault",
+                f"the devices behind {t.name} draw {total:g} VA, over its rating of {t.rating:g} "
+                f"VA{more}",
+                t.location,
+                (t.name, *(d.name for d in devs)),
+                {"draws_va": total, "rating_va": t.rating},
+                "use a transformer rated for what they draw, or plug some of them in elsewhere at "
+                "their own voltage",
+            )
+        )
     return out
