@@ -232,8 +232,7 @@ def test_examples_mistakes_are_found_with_fixes():
     )  # the clean parts stay quiet
 
 
-# --- loop invariants
-# -------------------------------------------------------------------------------
+# --- loop invariants -----------------------------------------------------------------------------
 
 
 @st.composite

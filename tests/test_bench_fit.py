@@ -139,9 +139,9 @@ def test_a_line_nothing_in_the_plan_makes_is_unexplained(tmp_path):
 
 
 def test_the_fit_is_the_weighted_least_squares_worked_by_hand(tmp_path):
-    # the guitar head's two mechanisms have lines of their own (50 Hz; 100 Hz and up), so
-    # each scale is the
-    # relative-weighted least-squares solution of one column: a = Σ(p/m) / Σ(p/m)² over its lines
+    # the guitar head's two mechanisms have lines of their own (50 Hz; 100 Hz and up), so each
+    # scale is the relative-weighted least-squares solution of one column: a = Σ(p/m) / Σ(p/m)²
+    # over its lines
     result = _result("guitar-head.gplan")
     hum = result.hum.channels["guitar"]
     rng = np.random.default_rng(7)

@@ -162,9 +162,8 @@ def _truncated(path, fmt):
 
 def test_an_hour_is_read_in_bounded_memory(tmp_path):
     # an hour at a low rate (a 16-bit mono file of 7 MB written in pieces): the whole file is
-    # streamed and its
-    # lines come back; Python's allocations stay far under the file's decoded size (29 MB of
-    # float64)
+    # streamed and its lines come back; Python's allocations stay far under the file's decoded size
+    # (29 MB of float64)
     rate, hour = 1000, 3600
     path = tmp_path / "hour.wav"
     with wave.open(str(path), "wb") as w:

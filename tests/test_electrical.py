@@ -184,8 +184,7 @@ def test_near_zero_impedances_and_islands_do_not_crash():
     assert np.isnan(sol.between("a", "d")).all()  # different islands: undefined, not a crash
 
 
-# --- ngspice: an independent general-purpose circuit simulator
-# --------------------------------------
+# --- ngspice: an independent general-purpose circuit simulator -----------------------------------
 
 
 def _compare(circuit, netlist, analysis, ours):

@@ -186,8 +186,7 @@ def test_phono_first_fix_removes_the_supply_boxs_own_bond_in_its_own_plan():
         str((FIELD / "phono-two-box/lib/psu-box-bad.gplan").resolve())
     ] or all(e.file and e.file.endswith("psu-box-bad.gplan") for e in first.candidate.edits)
     # the verdict's compare: the hum goes from -63.9 dBV to none, nothing introduced (figures by
-    # the tool's own
-    # compare, as the reviewer ran it)
+    # the tool's own compare, as the reviewer ran it)
     assert round(first.hum_before_dbv["amp"], 1) == -63.9
     assert first.hum_after_dbv["amp"] <= HUM_FLOOR_DBV and first.introduced == []
     assert len(first.cleared) == 5
@@ -254,8 +253,7 @@ def test_se_triode_filter_return_is_never_run_to_the_star_by_itself():
 
 def test_se_triode_hum_verdict_says_it_covers_ground_borne_hum_only(cli):
     # verdict, scope note: about 1.1 V of ripple feeds the output stages; "inaudible" covers
-    # ground-borne
-    # hum only, and says so
+    # ground-borne hum only, and says so
     code, text, _ = cli("check", str(FIELD / SE), "--advice-budget", "0")
     assert "inaudible" in text and "ground-borne hum only" in text
 
@@ -388,8 +386,7 @@ def test_guitar_combo_keeps_every_screen_that_is_a_return_and_the_stud_in_the_co
 
 BR = "balanced-preamp-rack/rack.gplan"
 # (a device's cord is written in its 'device' statement, which plugging it in elsewhere edits: not
-# a change
-# of the cord, which moves with the device)
+# a change of the cord, which moves with the device)
 BR_PE = {"pe_lead", "pe_nut", "strip_cord", "run", "run_mix"}
 
 
@@ -552,8 +549,7 @@ def test_a_protective_wire_moved_to_its_own_stud_keeps_its_section_and_comment_a
 
 def test_a_rules_structured_actions_become_candidates_whatever_its_code():
     # a rule added later (the signal's own return, say) needs no advisor code: its ("reroute",
-    # conductor,
-    # point) action is tried like any candidate
+    # conductor, point) action is tried like any candidate
     import dataclasses
     from groundcheck.advice.candidates import candidates
     from groundcheck.rules.catalogue import Finding

@@ -44,12 +44,11 @@ def _refused(plan) -> object:
 )
 def test_multiplying_plans_are_refused_as_read(path, line, said):
     # R1: 10 points a block, five blocks deep, 10 placements each: its first top-level placement
-    # walks 111,110 statements (10 + 100 + 1,000 +
-    # 10,000 + 100,000 placements and points), counted before expanding; R2 likewise with 4
-    # statements a block. R7: each file includes the next twice, so the includes read double at
-    # every level: the 257th read is the first over 256.  R8c: 60 devices each placing 60 leaf
-    # plans of one rectifier: 5 × 60 = 300 > 256 after the fifth device (the sixth is never
-    # merged); the leaf plan is read once, not 3,600 times
+    # walks 111,110 statements (10 + 100 + 1,000 + 10,000 + 100,000 placements and points), counted
+    # before expanding; R2 likewise with 4 statements a block. R7: each file includes the next
+    # twice, so the includes read double at every level: the 257th read is the first over 256.
+    # R8c: 60 devices each placing 60 leaf plans of one rectifier: 5 × 60 = 300 > 256 after the
+    # fifth device (the sixth is never merged); the leaf plan is read once, not 3,600 times
     main = {
         "inc/l12.gplan": "inc/R7-include-fanout.gplan",
         "dev2/leaf.gplan": "dev2/R8c-nested-devices.gplan",

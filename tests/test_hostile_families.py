@@ -34,9 +34,8 @@ def test_a_link_in_a_loop_is_a_located_error(tmp_path):
 
 def test_an_unreadable_plan_with_its_own_name_as_output(cli, tmp_path):
     # found by the files family: a plan that could not be read, -o naming it (or an include it
-    # read) with
-    # --format json, once ended in a traceback; a dangling link named as both once created its
-    # target
+    # read) with --format json, once ended in a traceback; a dangling link named as both once
+    # created its target
     (tmp_path / "m.gplan").symlink_to("/dev/null")
     code, _, err = cli(
         "check", str(tmp_path / "m.gplan"), "--format", "json", "-o", str(tmp_path / "m.gplan")

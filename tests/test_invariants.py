@@ -107,8 +107,7 @@ def test_disc_on_the_grid_takes_the_nodes_on_its_circle():
         if want:
             assert np.count_nonzero(g == 0) == want, c
     # two discs that share nodes: a node belongs to the nearer centre, one as near to both to
-    # neither,
-    # whatever the order the contacts are given in
+    # neither, whatever the order the contacts are given in
     two = [(0.1, 0.1), (0.106, 0.1)]
     a, b = contact_groups(X, Y, two, 4e-3, h), contact_groups(X, Y, two[::-1], 4e-3, h)
     assert np.array_equal(a == 0, b == 1) and np.array_equal(a == 1, b == 0)

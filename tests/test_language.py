@@ -176,8 +176,7 @@ def test_comments_continuation_and_crlf():
     assert p.conductors[0].length == pytest.approx(0.01)
 
 
-# --- every bad input of the foundation issue: exact message, location and exit status 2
-# -------------
+# --- every bad input of the foundation issue: exact message, location and exit status 2 ----------
 
 BAD = [
     (

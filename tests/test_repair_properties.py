@@ -117,8 +117,7 @@ def test_no_suggestion_changes_a_protective_conductor(text):
                 assert pe_fix and name in ev.result.protective, ev.candidate.title
 
 
-# --- issue 29, item 7: the advisor's four promises over generated plans
-# -------------------------------------
+# --- issue 29, item 7: the advisor's four promises over generated plans --------------------------
 
 
 def _wired_neighbours(plan, point: str) -> set[str]:

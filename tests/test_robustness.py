@@ -59,8 +59,7 @@ def test_fuzz_mutated_plans(text):
     _outcome(text)
 
 
-# --- limits: each with a clear error
-# ---------------------------------------------------------------
+# --- limits: each with a clear error -------------------------------------------------------------
 
 
 def test_line_length_limit():
@@ -115,8 +114,7 @@ def test_include_depth_limit(tmp_path):
     assert "includes nested deeper than" in str(e.value)
 
 
-# --- numerical edge cases
-# ---------------------------------------------------------------------------
+# --- numerical edge cases ------------------------------------------------------------------------
 
 EDGE = {
     "zero impedances": """
@@ -213,8 +211,7 @@ def test_no_protective_earth_is_a_danger():
     assert any(f.code == "GC201" and f.severity == "danger" for f in r.findings)
 
 
-# --- outputs are safe
-# -------------------------------------------------------------------------------
+# --- outputs are safe ----------------------------------------------------------------------------
 
 
 def test_atomic_write_leaves_nothing_else(cli, tmp_path):
@@ -244,8 +241,7 @@ def test_refuses_every_output_over_the_plan(cli, tmp_path):
     assert p.read_bytes() == before
 
 
-# --- determinism
-# -------------------------------------------------------------------------------------
+# --- determinism ---------------------------------------------------------------------------------
 
 SCRIPT = """
 import sys
@@ -276,8 +272,7 @@ def test_same_bytes_across_runs_and_hash_seeds(path):
     assert len(outs) == 1
 
 
-# --- properties
-# ----------------------------------------------------------------------------------------
+# --- properties ----------------------------------------------------------------------------------
 
 
 @settings(max_examples=25, deadline=None)
@@ -416,8 +411,7 @@ bolt cs: cover to deck, contact 3 mohm, protective
         assert after[part] <= r * (1 + 1e-12)
 
 
-# --- crashes found by fuzzing, kept as regression tests
-# ------------------------------------------------
+# --- crashes found by fuzzing, kept as regression tests ------------------------------------------
 
 
 def test_regression_point_on_a_broken_metal_part():

@@ -48,12 +48,9 @@ def _mains_line(text, ev):
 
 def test_tt_electrode_over_the_rcd_gets_a_finer_rcd_or_an_electrode_target():
     # worked by hand, IEC 60364-4-41 411.5.3 (R_A x IΔn <= 50 V, from memory): 200 Ω x 0.3 A = 60
-    # V, over 50 V;
-    # the largest preferred rating below 300 mA within it is 100 mA (200 x 0.1 = 20 V; IEC
-    # 61008-1's series
-    # 10/30/100/300/500 mA, from memory); the electrode target is 50 / 0.3 = 166.7 Ω, written at
-    # two
-    # significant figures rounded down: 160 Ω
+    # V, over 50 V; the largest preferred rating below 300 mA within it is 100 mA (200 x 0.1 = 20
+    # V; IEC 61008-1's series 10/30/100/300/500 mA, from memory); the electrode target is 50 / 0.3
+    # = 166.7 Ω, written at two significant figures rounded down: 160 Ω
     text, before, evs = _suggest("system TT, electrode 200 ohm, rcd 300 mA")
     assert [f.code for f in before.findings if f.severity == "danger"] == ["GC220"]
     good = _accepted(evs)
@@ -76,12 +73,10 @@ def test_tt_electrode_over_the_rcd_gets_a_finer_rcd_or_an_electrode_target():
 
 def test_tt_on_a_fuse_alone_gets_a_30_ma_rcd():
     # worked by hand: the fault loop is R_A + 1 Ω = 201 Ω (the default supply part,
-    # docs/language.md), so a
-    # line-to-deck fault draws 230 / 201 = 1.14 A, under the 2 A slow fuse's rating: never cleared
-    # (GC208); a
-    # 30 mA RCD trips at 1.14 A = 38 x IΔn, within 0.04 s (IEC 61008-1's times at 5 x IΔn, from
-    # memory),
-    # inside TT's 0.2 s at 230 V (IEC 60364-4-41 Table 41.1, from memory)
+    # docs/language.md), so a line-to-deck fault draws 230 / 201 = 1.14 A, under the 2 A slow
+    # fuse's rating: never cleared (GC208); a 30 mA RCD trips at 1.14 A = 38 x IΔn, within 0.04 s
+    # (IEC 61008-1's times at 5 x IΔn, from memory), inside TT's 0.2 s at 230 V (IEC 60364-4-41
+    # Table 41.1, from memory)
     text, before, evs = _suggest("system TT, electrode 200 ohm")
     assert {"GC208", "GC221"} <= {f.code for f in before.findings}
     gc208 = next(f for f in before.findings if f.code == "GC208")
