@@ -32,9 +32,10 @@ IEC60228 = [
 def test_wire_resistance_within_iec60228_maximum(mm2, class2, class5):
     p = plan(f"point a: pad\npoint b: pad\nwire w: a to b, 1000 m, {mm2} mm2\n")
     r = build_circuit(p).branches[0].r
-    assert (
-        r <= class2 <= class5
-    )  # nominal-area copper at IEC 60028 resistivity is below the standard's maximum
+    # nominal-area copper at IEC 60028 resistivity lies below the standard's maximum for solid and
+    # stranded (class 2) conductors, and not far below it: the maximum leaves a few per cent for
+    # stranding and the tolerance of area (from memory), well within the 10 % asserted here
+    assert 0.9 * class2 <= r <= class2
     assert r == pytest.approx(1.7241e-8 * 1000 / (mm2 * 1e-6))
 
 
