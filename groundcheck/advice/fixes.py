@@ -54,13 +54,21 @@ def _answers(ev, f) -> bool:
     )
 
 
+def _reappears(f, ev) -> bool:
+    """Whether a finding of ``f``'s rule is left on one of ``f``'s elements after the change."""
+    after = ev.result.findings if ev.result is not None else []
+    return any(g.code == f.code and set(g.elements) & set(f.elements) for g in after)
+
+
 def _fix(f, evs) -> str:
     if not RULES[f.code].actions:  # a note on the model's reach: its own text is the answer
         return f.fix
     key = identity(f)
-    for ev in evs:
-        if not ev.rejected and key in ev.cleared_keys:
-            return ev.candidate.title + SHOWN_BY_SUGGEST
+    clearing = [ev for ev in evs if not ev.rejected and key in ev.cleared_keys]
+    # best a change after which no finding of the same rule lands on one of its elements (a chain
+    # that grew by another branch is cleared by identity only); else the best that clears it
+    for ev in [ev for ev in clearing if not _reappears(f, ev)] + clearing:
+        return ev.candidate.title + SHOWN_BY_SUGGEST
     tried = [ev for ev in evs if ev.rejected and _answers(ev, f)]
     if tried:
         why = "; ".join(f"{ev.candidate.title}: {ev.rejected}" for ev in tried[:3])
