@@ -43,15 +43,12 @@ def _local(name: str) -> str:
     return name.rsplit(".", 1)[-1]
 
 
-def _answers(ev, f) -> bool:
+def _answers(ev, f, locals_of_f: set[str]) -> bool:
     """Whether a candidate was made for finding ``f``: it answers ``f``'s rule and names one of its
-    elements (a change in a block is made once for every placement: it answers each one's)."""
+    elements (a change in a block is made once for every placement: it answers each one's);
+    ``locals_of_f``: ``f``'s element names without their placement prefix."""
     c = ev.candidate
-    if f.code not in c.reason.split(","):
-        return False
-    return _local(c.element) in {_local(e) for e in f.elements} or any(
-        e and e in c.title for e in f.elements
-    )
+    return _local(c.element) in locals_of_f or any(e and e in c.title for e in f.elements)
 
 
 def _reappears(f, ev) -> bool:
@@ -60,16 +57,16 @@ def _reappears(f, ev) -> bool:
     return any(g.code == f.code and set(g.elements) & set(f.elements) for g in after)
 
 
-def _fix(f, evs) -> str:
+def _fix(f, clearing_by_key: dict, rejected_by_code: dict) -> str:
     if not RULES[f.code].actions:  # a note on the model's reach: its own text is the answer
         return f.fix
-    key = identity(f)
-    clearing = [ev for ev in evs if not ev.rejected and key in ev.cleared_keys]
+    clearing = clearing_by_key.get(identity(f), [])
     # best a change after which no finding of the same rule lands on one of its elements (a chain
     # that grew by another branch is cleared by identity only); else the best that clears it
     for ev in [ev for ev in clearing if not _reappears(f, ev)] + clearing:
         return ev.candidate.title + SHOWN_BY_SUGGEST
-    tried = [ev for ev in evs if ev.rejected and _answers(ev, f)]
+    locals_of_f = {_local(e) for e in f.elements}
+    tried = [ev for ev in rejected_by_code.get(f.code, []) if _answers(ev, f, locals_of_f)]
     if tried:
         why = "; ".join(f"{ev.candidate.title}: {ev.rejected}" for ev in tried[:3])
         return f"{NONE_ACCEPTED} — considered and rejected: {why}"
@@ -78,8 +75,17 @@ def _fix(f, evs) -> str:
 
 def advised_fixes(result, evs) -> list[str]:
     """The fix line of each of ``result``'s findings (in order), from the advisor's evaluations
-    ``evs`` (groundcheck.advice.repair.suggest)."""
-    return [_fix(f, evs) for f in result.findings]
+    ``evs`` (groundcheck.advice.repair.suggest), best first."""
+    clearing_by_key: dict = {}
+    rejected_by_code: dict = {}
+    for ev in evs:  # indexed once: a rack's hundreds of findings each look up their own
+        if ev.rejected:
+            for code in dict.fromkeys(ev.candidate.reason.split(",")):
+                rejected_by_code.setdefault(code, []).append(ev)
+        else:
+            for key in ev.cleared_keys:
+                clearing_by_key.setdefault(key, []).append(ev)
+    return [_fix(f, clearing_by_key, rejected_by_code) for f in result.findings]
 
 
 def advised_result(result, evs):
