@@ -13,6 +13,7 @@ code and elements (a loop by its conductors), never a line number.
 from __future__ import annotations
 
 import dataclasses
+import re
 
 from ..rules.catalogue import RULES
 
@@ -43,12 +44,12 @@ def _local(name: str) -> str:
     return name.rsplit(".", 1)[-1]
 
 
-def _answers(ev, f, locals_of_f: set[str]) -> bool:
-    """Whether a candidate was made for finding ``f``: it answers ``f``'s rule and names one of its
-    elements (a change in a block is made once for every placement: it answers each one's);
-    ``locals_of_f``: ``f``'s element names without their placement prefix."""
+def _names_in(ev) -> set[str]:
+    """The element names a candidate is about: its element and every name its title mentions, each
+    also without its placement prefix (``left.in_gnd`` is also ``in_gnd``)."""
     c = ev.candidate
-    return _local(c.element) in locals_of_f or any(e and e in c.title for e in f.elements)
+    words = {c.element, *re.findall(r"[A-Za-z_][\w.:\-]*\w", c.title)}
+    return words | {w.rsplit(".", 1)[-1] for w in words} | {_local(c.element)}
 
 
 def _reappears(f, ev) -> bool:
@@ -65,8 +66,15 @@ def _fix(f, clearing_by_key: dict, rejected_by_code: dict) -> str:
     # that grew by another branch is cleared by identity only); else the best that clears it
     for ev in [ev for ev in clearing if not _reappears(f, ev)] + clearing:
         return ev.candidate.title + SHOWN_BY_SUGGEST
-    locals_of_f = {_local(e) for e in f.elements}
-    tried = [ev for ev in rejected_by_code.get(f.code, []) if _answers(ev, f, locals_of_f)]
+    # a candidate made for the finding: it answers its rule and names one of its elements (a change
+    # in a block is made once for every placement: it answers each one's)
+    tried, seen = [], set()
+    for name in dict.fromkeys([*f.elements, *map(_local, f.elements)]):
+        for i, ev in rejected_by_code.get((f.code, name), []):
+            if i not in seen:
+                seen.add(i)
+                tried.append((i, ev))
+    tried = [ev for _, ev in sorted(tried, key=lambda t: t[0])]
     if tried:
         why = "; ".join(f"{ev.candidate.title}: {ev.rejected}" for ev in tried[:3])
         return f"{NONE_ACCEPTED} — considered and rejected: {why}"
@@ -78,10 +86,11 @@ def advised_fixes(result, evs) -> list[str]:
     ``evs`` (groundcheck.advice.repair.suggest), best first."""
     clearing_by_key: dict = {}
     rejected_by_code: dict = {}
-    for ev in evs:  # indexed once: a rack's hundreds of findings each look up their own
+    for i, ev in enumerate(evs):  # indexed once: a rack's hundreds of findings look up their own
         if ev.rejected:
             for code in dict.fromkeys(ev.candidate.reason.split(",")):
-                rejected_by_code.setdefault(code, []).append(ev)
+                for name in _names_in(ev):
+                    rejected_by_code.setdefault((code, name), []).append((i, ev))
         else:
             for key in ev.cleared_keys:
                 clearing_by_key.setdefault(key, []).append(ev)
