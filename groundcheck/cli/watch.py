@@ -21,9 +21,9 @@ from pathlib import Path
 
 from ..core.caution import CAUTION
 from ..core.errors import GroundcheckError, PlanErrors
-from .common import DEFAULT_PORT, UsageError, add_watch_command, load_plan, options_of
+from .common import UsageError, load_plan, options_of
 
-__all__ = ["add_watch_command", "cmd_watch", "LiveView", "LiveHandler", "DEFAULT_PORT"]
+__all__ = ["serve", "LiveView", "LiveHandler"]
 
 #: how often (s) an idle event stream sends a comment, so a closed browser tab is noticed
 KEEP_ALIVE = 10.0
@@ -269,7 +269,8 @@ def _watch_files(view: LiveView, stop: threading.Event) -> None:
                 break
 
 
-def cmd_watch(args) -> int:
+def serve(args) -> int:
+    """Serve the live view of ``args.plan`` until Ctrl-C or SIGTERM; the exit status."""
     if not Path(args.plan).is_file():
         raise UsageError(
             f"cannot watch {args.plan!r}: no such file (give a plan file, not '-' or a folder)"
