@@ -93,7 +93,6 @@ def test_only_public_names_cross_a_package():
 #: the lists only shrink -- the test fails on a new entry and on an entry that fits again
 STILL_TO_SPLIT_MODULES = {
     "advice/candidates.py",
-    "cli/__init__.py",
     "language/assemble.py",
     "language/loader.py",
     "language/phrases.py",
@@ -120,8 +119,6 @@ STILL_TO_SPLIT_FUNCTIONS = {
     "advice/compare.py:compare",
     "advice/repair.py:evaluate",
     "advice/report.py:suggestions_text",
-    "cli/__init__.py:main",
-    "cli/advice.py:cmd_suggest",
     "language/assemble.py:_collect",
     "language/assemble.py:assemble",
     "language/conductors.py:conductor",

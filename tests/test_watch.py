@@ -11,6 +11,7 @@ import re
 import shutil
 import signal
 import socket
+import struct
 import subprocess
 import sys
 import threading
@@ -289,3 +290,98 @@ def test_a_connection_closed_mid_answer_is_no_error():
     h.close_connection = False
     h._send(200, b"{}", "application/json")
     assert h.close_connection
+
+
+def _reset(s) -> None:
+    """Close a client socket as a browser dropping a connection does: a reset, not a goodbye."""
+    s.setsockopt(socket.SOL_SOCKET, socket.SO_LINGER, struct.pack("ii", 1, 0))
+    s.close()
+
+
+def _events_until(stream, wanted: str, timeout: float = 60.0) -> str:
+    """What an open event stream sends until ``wanted`` has come."""
+    got, end = "", time.monotonic() + timeout
+    while wanted not in got:
+        stream.settimeout(max(0.1, end - time.monotonic()))
+        chunk = stream.recv(65536).decode()
+        assert chunk, got
+        got += chunk
+    return got
+
+
+def test_an_update_is_announced_and_reset_connections_are_quiet(tmp_path):
+    plan = tmp_path / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    proc, port = _start(plan)
+    request = f"GET /{proc.token}/{{}} HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\n\r\n"
+    try:
+        _line(proc), _line(proc)  # the caution, the first analysis
+        stream = socket.create_connection(("127.0.0.1", port))
+        stream.send(request.format("events").encode())
+        _events_until(stream, "event: state")
+        # a save: the page is told the plan is being analysed before the work starts, then the
+        # new state
+        _edit(plan, MISTAKE, MENDED)
+        got = _events_until(stream, "event: state")
+        assert re.search(r"event: analysing\ndata: \d+\.\d\n\n.*event: state", got, re.S), got
+        stream.close()
+        # browsers that reset their connections: before asking anything, after asking the state
+        # (its keep-alive connection), on the event stream
+        for what in (None, "state", "events"):
+            for _ in range(2):
+                s = socket.create_connection(("127.0.0.1", port))
+                if what:
+                    s.send(request.format(what).encode())
+                time.sleep(0.2)
+                _reset(s)
+        time.sleep(0.5)
+        with urllib.request.urlopen(
+            f"http://127.0.0.1:{port}/{proc.token}/state", timeout=10
+        ) as r:  # still serving
+            assert json.loads(r.read())["ok"] is True
+    finally:
+        err = _stop(proc)
+    assert proc.returncode == 0 and "live view stopped" in err
+    assert "Traceback" not in err and "Exception" not in err and "Error" not in err, err
+
+
+def test_a_page_opened_on_a_broken_plan_shows_the_last_good_result_and_updates_say_so(tmp_path):
+    plan = tmp_path / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    proc, port = _start(plan)
+    browser = None
+    try:
+        _line(proc), _line(proc)  # the caution, the first analysis
+        plan.write_text(plan.read_text() + "wire broken: star to\n")
+        while "plan error: " not in _line(proc):
+            pass
+        # opened (or reloaded) only now: the last good result, greyed, under the errors
+        browser = Browser(
+            f"http://127.0.0.1:{port}/{proc.token}/", str(tmp_path.parent / f"{tmp_path.name}-p")
+        )
+        browser.wait_for("document.getElementById('badge').textContent === 'plan error'")
+        assert browser.js("document.body.classList.contains('stale')")
+        assert browser.js("document.querySelectorAll('#physical svg, #topology svg').length") == 2
+        assert "GC102" in browser.js("document.getElementById('sec-findings').textContent")
+        assert "dBV" in browser.js("document.getElementById('sec-hum').textContent")
+        assert re.search(
+            r"head\.gplan:\d+:\d+", browser.js("document.getElementById('errors').textContent")
+        )
+        # the mend: the status line says the plan is being analysed, with the seconds, until the
+        # new result is shown
+        browser.js(
+            "window.said = []; new MutationObserver(function () { window.said.push("
+            "document.getElementById('status').textContent); }).observe("
+            "document.getElementById('status'), {childList: true, characterData: true, "
+            "subtree: true}); true"
+        )
+        plan.write_text(plan.read_text().replace("wire broken: star to\n", ""))
+        browser.wait_for("!document.body.classList.contains('stale')")
+        said = browser.js("window.said")
+        assert any(re.fullmatch(r"re-analysing the plan… \d+ s", x) for x in said), said
+        assert said[-1].startswith("updated "), said
+    finally:
+        if browser is not None:
+            browser.close()
+        err = _stop(proc)
+    assert proc.returncode == 0 and "Traceback" not in err

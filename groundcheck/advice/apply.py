@@ -7,10 +7,62 @@ from __future__ import annotations
 import dataclasses
 from pathlib import Path
 
+from ..core.errors import GroundcheckError
 from ..model.records import Plan
 from .edits import PlanTexts, apply_edits, edited_texts
 
-__all__ = ["applied_files", "device_copy_path", "moved_references"]
+__all__ = [
+    "Application",
+    "ApplyRefused",
+    "application",
+    "applied_files",
+    "device_copy_path",
+    "moved_references",
+]
+
+
+class ApplyRefused(GroundcheckError):
+    """A set of changes that cannot be written as asked (no such suggestion, or a file that is
+    there already)."""
+
+
+@dataclasses.dataclass(frozen=True)
+class Application:
+    """What writing the chosen changes means: the files to write (the new plan first, then the
+    changed device plans' copies), the files never to write over, and the references that resolve
+    from another folder in the new plan (see :func:`moved_references`)."""
+
+    files: list[tuple[Path, str]]
+    protect: list[Path]
+    moved: list[str]
+
+
+def application(
+    plan: Plan, text: str, evs, chosen, target: Path, pick: int | None = None, force: bool = False
+) -> Application:
+    """The changes to write to ``target``: suggestion ``pick`` (1-based among those not rejected)
+    or, without it, the combined set ``chosen``.  A device plan's copy that exists already is
+    replaced only with ``force``; ApplyRefused says why not."""
+    useful = [e for e in evs if not e.rejected]
+    if pick is not None:
+        if not 1 <= pick <= len(useful):
+            raise ApplyRefused(f"--pick takes 1 to {len(useful)}")
+        edits = useful[pick - 1].candidate.edits
+    else:
+        edits = tuple(x for e in chosen for x in e.candidate.edits)
+    files = applied_files(text, edits, plan, target)
+    for out, _ in files[1:]:
+        if out.exists() and not force:
+            raise ApplyRefused(
+                f"{out} exists; --apply writes a changed copy of a device plan there (add "
+                "--force to replace it)"
+            )
+    originals = [
+        Path(plan.file),
+        *(Path(f) for f in plan.files),
+        *(Path(e.file) for e in edits if e.file),
+    ]
+    return Application(files, originals, moved_references(files[0][1], plan.file, target))
 
 
 def device_copy_path(target: Path, device_file: str) -> Path:

@@ -3,21 +3,32 @@ progress bar) and ``compare`` (before and after)."""
 
 from __future__ import annotations
 
-import json
 import sys
 from pathlib import Path
 
-from ..core.caution import CAUTION
-from ..core.plain import clean
+from ..renderers.formats import COMPARISON_FORMATS, SUGGESTION_FORMATS
 from ..renderers.output import write_atomic
-from .common import UsageError, load_plan, options_of, write_output
+from .common import (
+    UsageError,
+    add_analysis_options,
+    load_plan,
+    options_of,
+    seconds_type,
+    write_output,
+)
+from .registry import FORMAT, command, opt
 
-__all__ = ["cmd_suggest", "cmd_compare", "add_fix_option", "advised", "SUGGEST_EPILOG"]
+__all__ = ["cmd_suggest", "cmd_compare", "SUGGEST_EPILOG"]
 
 #: the exit status of ``suggest``
 SUGGEST_EPILOG = (
     "Exit status: 0 no danger left after the combined set of changes, 1 a danger remains after "
     "it, 2 the plan or the command could not be used."
+)
+COMPARE_EPILOG = (
+    "Exit status: 0 nothing --fail-on asks about, 1 the after-plan introduces a finding "
+    "(--fail-on introduced) or one at least as severe as the worst before (--fail-on worse), 2 a "
+    "plan or the command could not be used."
 )
 
 
@@ -47,122 +58,148 @@ class _progress:
             self.bar.stop()
 
 
+@command(
+    "suggest",
+    help="propose changes that fix the findings, ranked by their predicted gain",
+    description="Try candidate changes on the plan (lift a shield end, remove a redundant "
+    "bond, re-route a return, join a rectifier's ends, give the protective earth its own stud "
+    "...), re-run the analysis for each and rank them. Changes that would weaken the "
+    "protective earth are never proposed.\n\nExample:\n  groundcheck suggest "
+    "examples/dual-mono-phono-stage.gplan --apply fixed.gplan",
+    epilog=SUGGEST_EPILOG,
+    formats=SUGGESTION_FORMATS,
+    options=(
+        opt("plan", metavar="PLAN"),
+        opt(
+            "--apply",
+            metavar="NEW_PLAN",
+            help="write the plan with the changes applied to this new file",
+        ),
+        opt(
+            "--pick",
+            type=int,
+            metavar="N",
+            help="with --apply: apply suggestion N instead of the combined set",
+        ),
+        opt(
+            "--force",
+            action="store_true",
+            help="with --apply: replace NEW_PLAN if it exists (never the plan itself)",
+        ),
+        opt(
+            "--budget",
+            type=seconds_type,
+            default=25.0,
+            metavar="SECONDS",
+            help="time for trying candidates and combining them (default 25 s); what is not "
+            "tried is listed",
+        ),
+        FORMAT,
+        add_analysis_options,
+    ),
+)
 def cmd_suggest(args) -> int:
-    from ..advice.apply import applied_files, moved_references
+    from ..advice.apply import application
     from ..advice.repair import greedy, suggest
-    from ..advice.report import suggestions_document, suggestions_text
 
-    if args.plan == "-":
-        raise UsageError(
-            "suggest needs a plan file, not standard input (its edits are shown against the file)"
-        )
+    target = _apply_target(args)
     path = Path(args.plan)
-    if args.pick is not None and not args.apply:
-        raise UsageError(
-            "--pick chooses the suggestion that --apply writes: give --apply NEW_PLAN too"
-        )
-    target = Path(args.apply) if args.apply else None
-    if target is not None and target.exists() and not args.force:
-        raise UsageError(
-            f"{args.apply} exists; --apply writes a new file (add --force to replace it)"
-        )
     plan = load_plan(args.plan)
-    text = (
-        path.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
-    )  # as the loader reads it: no newline translation
-    root, resolved = path.resolve().parent, path.resolve()
+    # as the loader reads it: no newline translation
+    text = path.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
+    where = (path.resolve().parent, path.resolve())
     with _progress("trying candidate changes") as progress:
         before, evs = suggest(
-            plan,
-            text,
-            options_of(args),
-            root,
-            resolved,
-            budget=args.budget * 0.7,
-            progress=progress,
+            plan, text, options_of(args), *where, budget=args.budget * 0.7, progress=progress
         )
         chosen, final, _ = greedy(
-            plan,
-            text,
-            options_of(args),
-            root,
-            resolved,
-            evs=evs,
-            before=before,
-            budget=args.budget * 0.3,
+            plan, text, options_of(args), *where, evs=evs, before=before, budget=args.budget * 0.3
         )
-    name = path.name
-    useful = [e for e in evs if not e.rejected]
-    if args.format == "json":
-        doc = suggestions_document(plan, text, name, evs, chosen, final)
-        sys.stdout.write(json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n")
-    else:
-        sys.stdout.write(suggestions_text(plan, text, name, evs, chosen, final, CAUTION))
-    if args.apply:
-        if args.pick is not None:
-            if not 1 <= args.pick <= len(useful):
-                raise UsageError(f"--pick takes 1 to {len(useful)}")
-            edits = useful[args.pick - 1].candidate.edits
-        else:
-            edits = tuple(x for e in chosen for x in e.candidate.edits)
-        files = applied_files(text, edits, plan, target)
-        for out, _ in files[1:]:
-            if out.exists() and not args.force:
-                raise UsageError(
-                    f"{out} exists; --apply writes a changed copy of a device plan there (add "
-                    "--force to replace it)"
-                )
-        originals = [
-            path,
-            *(Path(f) for f in plan.files),
-            *(Path(e.file) for e in edits if e.file),
-        ]
-        for out, new_text in files:
-            write_atomic(out, new_text, protect=originals)
-        sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
-        moved = moved_references(files[0][1], str(path), target)
-        if moved:
-            sys.stderr.write(
-                f"groundcheck: note: {target} is in another folder than {path}; its relative "
-                f"paths ({', '.join(moved[:4])}) now resolve from {target.parent}: copy those "
-                "files beside it or write the new plan beside the original\n"
-            )
-        for out, _ in files[1:]:
-            sys.stderr.write(
-                f"groundcheck: wrote a changed copy of a device plan to {out} (the new plan names "
-                "it; the original is unchanged)\n"
-            )
+    render = SUGGESTION_FORMATS[args.format].render
+    sys.stdout.write(render(plan, text, path.name, evs, chosen, final))
+    if target is not None:
+        _write(application(plan, text, evs, chosen, target, args.pick, args.force), path, target)
     # a danger left after the best combined set fails, as check fails on it
     return 1 if final.fails("danger") else 0
 
 
+def _apply_target(args) -> Path | None:
+    """The new plan --apply names (None without it), once the command line is known to make
+    sense."""
+    if args.plan == "-":
+        raise UsageError(
+            "suggest needs a plan file, not standard input (its edits are shown against the file)"
+        )
+    if args.pick is not None and not args.apply:
+        raise UsageError(
+            "--pick chooses the suggestion that --apply writes: give --apply NEW_PLAN too"
+        )
+    if args.apply and Path(args.apply).exists() and not args.force:
+        raise UsageError(
+            f"{args.apply} exists; --apply writes a new file (add --force to replace it)"
+        )
+    return Path(args.apply) if args.apply else None
+
+
+def _write(applied, path: Path, target: Path) -> None:
+    """Write the changed plan and the changed device plans' copies, and say what was written."""
+    for out, new_text in applied.files:
+        write_atomic(out, new_text, protect=applied.protect)
+    sys.stderr.write(f"groundcheck: wrote the changed plan to {target}\n")
+    if applied.moved:
+        sys.stderr.write(
+            f"groundcheck: note: {target} is in another folder than {path}; its relative "
+            f"paths ({', '.join(applied.moved[:4])}) now resolve from {target.parent}: copy those "
+            "files beside it or write the new plan beside the original\n"
+        )
+    for out, _ in applied.files[1:]:
+        sys.stderr.write(
+            f"groundcheck: wrote a changed copy of a device plan to {out} (the new plan names "
+            "it; the original is unchanged)\n"
+        )
+
+
+@command(
+    "compare",
+    help="compare two plans: findings, loops, hum per harmonic, protective earth",
+    description="Example:\n  groundcheck compare before.gplan after.gplan --format html -o "
+    "changes.html",
+    epilog=COMPARE_EPILOG,
+    formats=COMPARISON_FORMATS,
+    options=(
+        opt("before", metavar="BEFORE"),
+        opt("after", metavar="AFTER"),
+        FORMAT,
+        opt(
+            "-o",
+            "--output",
+            metavar="FILE",
+            help="write the comparison to FILE instead of standard output",
+        ),
+        opt(
+            "--fail-on",
+            choices=("never", "introduced", "worse"),
+            default="never",
+            help="exit 1 when the after-plan introduces a finding (introduced) or a finding at "
+            "least as severe as the worst before (worse); default never",
+        ),
+        add_analysis_options,
+    ),
+)
 def cmd_compare(args) -> int:
     from ..analysis import analyze
-    from ..advice.compare import compare, compare_json, compare_text
+    from ..advice.compare import compare
 
     before = analyze(load_plan(args.before), options_of(args))
     after = analyze(load_plan(args.after), options_of(args))
     d = compare(before, after)
-    if args.format == "html":
-        text = _compare_html(d, before, after)
-    else:
-        text = {"text": compare_text, "json": compare_json}[args.format](d)
+    text = COMPARISON_FORMATS[args.format].render(d, before, after, _warn)
     write_output(text, args.output, [args.before, args.after])
     return 1 if _compare_fails(d, args.fail_on) else 0
 
 
-def _compare_html(d: dict, before, after) -> str:
-    """The comparison page, with both physical drawings when they can be drawn."""
-    from ..renderers.compare_page import compare_page
-    from ..renderers.dot import physical_dot
-    from ..renderers.drawing import DrawingError, render_dot
-
-    try:
-        drawings = tuple(render_dot(physical_dot(r), "svg", "neato")[0] for r in (before, after))
-    except DrawingError as e:
-        sys.stderr.write(f"groundcheck: warning: {e}; the comparison has no drawings\n")
-        drawings = None
-    return compare_page(d, before, after, drawings)
+def _warn(text: str) -> None:
+    sys.stderr.write(f"groundcheck: warning: {text}\n")
 
 
 def _compare_fails(d: dict, fail_on: str) -> bool:
@@ -180,39 +217,3 @@ def _compare_fails(d: dict, fail_on: str) -> bool:
         )
         return any(severity_rank(f["severity"]) <= worst for f in new)
     return False
-
-
-def add_fix_option(parser) -> None:
-    """--advice-budget: the time the advisor may take to check each finding's fix line (check,
-    report)."""
-    parser.add_argument(
-        "--advice-budget",
-        type=float,
-        default=10.0,
-        metavar="SECONDS",
-        help="time the advisor may take to try each finding's fix on the plan, so "
-        "that a fix line is a change it accepts (default 10 s; 0: the rules' own fix lines)",
-    )
-
-
-def advised(result, path: str, budget: float):
-    """``result`` with each finding's fix line from the advisor (groundcheck.advice.fixes): its
-    best accepted change for the finding, or what it considered and why not.  A plan read from
-    standard input, or a budget of 0, keeps the rules' own lines."""
-    if not budget or budget <= 0 or path == "-" or not result.findings:
-        return result
-    from ..advice.fixes import advised_result
-    from ..advice.repair import suggest
-
-    p = Path(path)
-    text = p.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
-    _, evs = suggest(
-        result.plan,
-        text,
-        result.options,
-        p.resolve().parent,
-        p.resolve(),
-        budget=budget,
-        before=result,
-    )
-    return advised_result(result, evs)

@@ -12,6 +12,7 @@ import sys
 from pathlib import Path
 
 from ..core.errors import PlanErrors, PlanError
+from ..renderers.formats import BENCH_FORMATS
 from .common import (
     FAIL_HELP,
     FAIL_LEVELS,
@@ -23,8 +24,9 @@ from .common import (
     quantity_type,
     write_output,
 )
+from .registry import FORMAT, command, opt
 
-__all__ = ["add_bench_command", "cmd_bench", "BENCH_EPILOG"]
+__all__ = ["cmd_bench", "BENCH_EPILOG"]
 
 BENCH_EPILOG = (
     "Exit status: 0 no bench finding at or above --fail-on, 1 a bench finding at or above it (a "
@@ -46,77 +48,41 @@ def _track(text: str) -> int:
     return n
 
 
-def add_bench_command(sub) -> None:
-    b = sub.add_parser(
-        "bench",
-        help="compare a recording of the build's hum and its bond measurements with the plan",
-        description="Read a recording of the finished amplifier's output (WAV), measure the mains "
-        "line and its harmonics, compare them with the plan's predicted spectrum, fit the plan's "
-        "contributors to say which conductor to suspect, and check measured bond resistances "
-        "against the plan.\n\nExamples:\n  groundcheck bench amp.gplan --recording left.wav "
-        "--channel left --full-scale 1.23V\n  groundcheck bench amp.gplan --bonds bonds.gmeas "
-        "--format html -o bench.html",
-        formatter_class=argparse.RawDescriptionHelpFormatter,
-        epilog=BENCH_EPILOG,
-    )
-    b.add_argument("plan", metavar="PLAN")
-    _recording_options(b)
-    b.add_argument(
-        "--bonds",
-        metavar="FILE",
-        help="a bonding measurements file: one 'A to B: 85 mohm at 10 A' a line",
-    )
-    b.add_argument(
-        "--format",
-        choices=("text", "json", "html"),
-        default="text",
-        help="output format (default text)",
-    )
-    b.add_argument(
-        "-o",
-        "--output",
-        metavar="FILE",
-        help="write the bench record to FILE instead of standard output",
-    )
-    b.add_argument("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP)
-    add_analysis_options(b)
-
-
-def _recording_options(b) -> None:
-    b.add_argument(
-        "--recording", metavar="WAV", help="the recorded output (WAV: 16/24/32-bit PCM or float)"
-    )
-    b.add_argument(
+#: the recording and how to read it
+_RECORDING = (
+    opt("--recording", metavar="WAV", help="the recorded output (WAV: 16/24/32-bit PCM or float)"),
+    opt(
         "--channel",
         metavar="NAME",
         help="the plan's channel the recording is of (needed when the plan has several)",
-    )
-    b.add_argument(
+    ),
+    opt(
         "--track",
         type=_track,
         default=1,
         metavar="N",
         help="which of the file's channels to read (default 1, the first)",
-    )
-    b.add_argument(
+    ),
+    opt(
         "--full-scale",
         type=quantity_type("voltage", "V"),
         metavar="VOLTS",
         help="calibration: the rms voltage of a sine that just reaches digital full scale (the "
         "interface's maximum input level)",
-    )
-    b.add_argument(
+    ),
+    opt(
         "--calibration",
         nargs=2,
         metavar=("TONE_WAV", "VOLTS"),
         help="calibration: a recording of a tone of this rms voltage, made with the same settings",
-    )
-    b.add_argument(
+    ),
+    opt(
         "--mains-frequency",
         type=quantity_type("frequency", "Hz"),
         metavar="HZ",
         help="the mains frequency (default: found in the recording, 50 or 60 Hz within 2 %%)",
-    )
+    ),
+)
 
 
 def _calibration(args) -> tuple[float | None, str]:
@@ -176,6 +142,36 @@ def _progress(seconds: float):
     return tick
 
 
+@command(
+    "bench",
+    help="compare a recording of the build's hum and its bond measurements with the plan",
+    description="Read a recording of the finished amplifier's output (WAV), measure the mains "
+    "line and its harmonics, compare them with the plan's predicted spectrum, fit the plan's "
+    "contributors to say which conductor to suspect, and check measured bond resistances "
+    "against the plan.\n\nExamples:\n  groundcheck bench amp.gplan --recording left.wav "
+    "--channel left --full-scale 1.23V\n  groundcheck bench amp.gplan --bonds bonds.gmeas "
+    "--format html -o bench.html",
+    epilog=BENCH_EPILOG,
+    formats=BENCH_FORMATS,
+    options=(
+        opt("plan", metavar="PLAN"),
+        *_RECORDING,
+        opt(
+            "--bonds",
+            metavar="FILE",
+            help="a bonding measurements file: one 'A to B: 85 mohm at 10 A' a line",
+        ),
+        FORMAT,
+        opt(
+            "-o",
+            "--output",
+            metavar="FILE",
+            help="write the bench record to FILE instead of standard output",
+        ),
+        opt("--fail-on", choices=FAIL_LEVELS, default=None, help=FAIL_HELP),
+        add_analysis_options,
+    ),
+)
 def cmd_bench(args) -> int:
     from ..analysis import analyze
     from ..measure.audio import RecordingError, wav_format
@@ -215,27 +211,13 @@ def cmd_bench(args) -> int:
         raise PlanErrors([e]) from None
     record = bench_record(result, measured, channel, planned_bonds(result, measurements))
     write_output(
-        _render(record, args.format),
+        BENCH_FORMATS[args.format].render(record),
         args.output,
         [p for p in (args.plan, args.recording, args.bonds) if p],
     )
     if args.output:
         sys.stderr.write(f"groundcheck: wrote {Path(args.output)}\n")
     return 1 if _fails(record, fail_on(args)) else 0
-
-
-def _render(record, fmt: str) -> str:
-    if fmt == "json":
-        from ..renderers.bench import render_bench_json
-
-        return render_bench_json(record)
-    if fmt == "html":
-        from ..renderers.bench_page import render_bench_html
-
-        return render_bench_html(record)
-    from ..renderers.bench import render_bench_text
-
-    return render_bench_text(record)
 
 
 def _fails(record, level: str) -> bool:

@@ -30,8 +30,6 @@ __all__ = [
     "load_plan",
     "write_output",
     "plan_paths",
-    "add_watch_command",
-    "DEFAULT_PORT",
 ]
 
 
@@ -185,40 +183,6 @@ def add_analysis_options(p):
         help="let a '# accept' comment accept a danger finding too; it still counts "
         "as a danger (exit status 1 unless --fail-on never), and every output says so",
     )
-
-
-#: the port the live view is served on unless --port says otherwise
-DEFAULT_PORT = 8470
-
-
-def add_watch_command(sub) -> None:
-    """The ``watch`` command's options, here so that the other commands never import the live
-    view's server (``cli/watch.py``, with ``http.server`` and what it pulls in)."""
-    w = sub.add_parser(
-        "watch",
-        help="show the plan live in the browser, re-checked whenever it is saved",
-        description="Serve a page on this computer (127.0.0.1 only) with the "
-        "drawings, findings, hum and protective-earth tables; it refreshes by itself within a "
-        "fraction of a second of the plan, or a file it includes or places, being saved.  Ctrl-C "
-        "stops.\n\nExample:\n  groundcheck watch examples/guitar-head.gplan --open",
-        formatter_class=argparse.RawDescriptionHelpFormatter,
-    )
-    w.add_argument("plan", metavar="PLAN")
-    w.add_argument(
-        "--port",
-        type=int,
-        default=DEFAULT_PORT,
-        metavar="N",
-        help=f"the local port to serve on (default {DEFAULT_PORT}; 0 picks a free one)",
-    )
-    w.add_argument("--open", action="store_true", help="open the page in the default web browser")
-    w.add_argument(
-        "--renderer",
-        choices=("auto", "system", "wasm"),
-        default="auto",
-        help="system Graphviz, the bundled WebAssembly Graphviz, or auto (system first)",
-    )
-    add_analysis_options(w)
 
 
 def _words(text: str) -> tuple[str, ...]:

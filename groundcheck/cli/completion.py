@@ -5,8 +5,11 @@ through its bash compatibility (``autoload -U bashcompinit && bashcompinit``).""
 from __future__ import annotations
 
 import argparse
+import sys
 
-__all__ = ["bash_completion"]
+from .registry import build_parser, command, opt
+
+__all__ = ["bash_completion", "cmd_completion"]
 
 
 def _commands(parser: argparse.ArgumentParser) -> dict[str, argparse.ArgumentParser]:
@@ -56,3 +59,19 @@ def bash_completion(parser: argparse.ArgumentParser) -> str:
         "complete -o filenames -F _groundcheck groundcheck",
     ]
     return "\n".join(lines) + "\n"
+
+
+@command(
+    "completion",
+    help="print a shell completion script",
+    description='Example:\n  eval "$(groundcheck completion bash)"   (zsh: run '
+    "'autoload -U bashcompinit && bashcompinit' first)",
+    options=(
+        opt(
+            "shell", choices=("bash", "zsh"), help="bash, or zsh (through its bash compatibility)"
+        ),
+    ),
+)
+def cmd_completion(args) -> int:
+    sys.stdout.write(bash_completion(build_parser()))
+    return 0

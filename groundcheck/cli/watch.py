@@ -21,9 +21,9 @@ from pathlib import Path
 
 from ..core.caution import CAUTION
 from ..core.errors import GroundcheckError, PlanErrors
-from .common import DEFAULT_PORT, UsageError, add_watch_command, load_plan, options_of
+from .common import UsageError, load_plan, options_of
 
-__all__ = ["add_watch_command", "cmd_watch", "LiveView", "LiveHandler", "DEFAULT_PORT"]
+__all__ = ["serve", "LiveView", "LiveHandler"]
 
 #: how often (s) an idle event stream sends a comment, so a closed browser tab is noticed
 KEEP_ALIVE = 10.0
@@ -45,6 +45,10 @@ class LiveView:
         self.path = Path(plan).absolute()  # the name watched: a link swapped in for it is seen
         self._good_result = None
         self._good_state: dict | None = None
+        #: when the analysis under way started (time.monotonic()), None when none is; ``busy``
+        #: counts the analyses started, so each event stream announces each one once
+        self.busy_since: float | None = None
+        self.busy = 0
 
     def refresh(self) -> None:
         """Load, analyse and draw the plan again; publish the new state (or the errors) to every
@@ -54,6 +58,7 @@ class LiveView:
         from ..renderers.live import error_state, live_state, status_line
 
         t0 = time.perf_counter()
+        self._analysing()
         try:
             self._check_still_a_plan()
             plan = load_plan(self.plan)
@@ -112,11 +117,20 @@ class LiveView:
         views, _ = both_views(result, self.renderer, physical=has_physical_view(result.plan))
         return tuple(None if v is None else v[0].decode("utf-8") for v in views)
 
+    def _analysing(self) -> None:
+        """Tell every page, before the work starts, that the plan is being analysed again (a large
+        plan's update takes seconds: the page says so and counts them)."""
+        with self.changed:
+            self.busy += 1
+            self.busy_since = time.monotonic()
+            self.changed.notify_all()
+
     def _publish(self, state: dict) -> None:
         data = json.dumps(state, ensure_ascii=False, allow_nan=False, default=str).encode("utf-8")
         with self.changed:
             self.version += 1
             self.state = data
+            self.busy_since = None
             self.changed.notify_all()
 
     def _say(self, text: str) -> None:
@@ -219,21 +233,38 @@ class LiveHandler(BaseHTTPRequestHandler):
         self.send_header("Cache-Control", "no-store")
         self.end_headers()
         self.close_connection = True
-        seen = -1
+        seen = (-1, -1)  # the state version and the analysis announced last
         try:
             while not self.stop.is_set():
-                with self.view.changed:  # version 0: no state yet, nothing to announce
-                    if self.view.version in (seen, 0):
-                        self.view.changed.wait(KEEP_ALIVE)
-                    version = self.view.version
-                if version not in (seen, 0):
-                    self.wfile.write(f"event: state\ndata: {version}\n\n".encode())
-                    seen = version
-                else:
-                    self.wfile.write(b": still here\n\n")
+                news, seen = self._news(seen)
+                self.wfile.write(news or b": still here\n\n")
                 self.wfile.flush()
         except (BrokenPipeError, ConnectionResetError, ConnectionAbortedError):
             pass
+
+    def _news(self, seen: tuple[int, int]) -> tuple[bytes, tuple[int, int]]:
+        """The events a stream that has seen ``seen`` is owed, waiting for one up to the keep-alive
+        interval: ``state`` when a new state is published (version 0: none yet), then
+        ``analysing`` (the seconds it has been running) when an analysis started since."""
+        view = self.view
+        with view.changed:
+            if view.version in (seen[0], 0) and view.busy == seen[1]:
+                view.changed.wait(KEEP_ALIVE)
+            version, busy, since = view.version, view.busy, view.busy_since
+        out = []
+        if version not in (seen[0], 0):
+            out.append(f"event: state\ndata: {version}\n\n")
+        if busy != seen[1] and since is not None:
+            out.append(f"event: analysing\ndata: {time.monotonic() - since:.1f}\n\n")
+        return "".join(out).encode(), (version if version else seen[0], busy)
+
+    def handle(self) -> None:
+        """Answer the connection's requests; a browser that resets it (a reload, a closed tab, a
+        request it gave up) ends it quietly, never a traceback on the terminal."""
+        try:
+            super().handle()
+        except (BrokenPipeError, ConnectionResetError, ConnectionAbortedError, TimeoutError):
+            self.close_connection = True
 
 
 def make_handler(view: LiveView, stop: threading.Event) -> type:
@@ -269,7 +300,8 @@ def _watch_files(view: LiveView, stop: threading.Event) -> None:
                 break
 
 
-def cmd_watch(args) -> int:
+def serve(args) -> int:
+    """Serve the live view of ``args.plan`` until Ctrl-C or SIGTERM; the exit status."""
     if not Path(args.plan).is_file():
         raise UsageError(
             f"cannot watch {args.plan!r}: no such file (give a plan file, not '-' or a folder)"

@@ -1,8 +1,11 @@
-"""The output formats of a check, in one registry shared by the command and
-``groundcheck.render()``.
+"""The output formats, in one registry shared by the commands and ``groundcheck.render()``.
 
-Each format turns a list of results into one text.  Formats that describe one plan only (``html``,
-``dot``) refuse several.  A renderer module is imported only when its format is asked for.
+``FORMATS`` turn a list of results into one text (``check``, ``groundcheck.render()``); formats
+that describe one plan only (``html``, ``dot``) refuse several.  The other tables hold the formats
+of the other outputs: a comparison (``compare``), the advisor's suggestions (``suggest``), the
+network as a netlist (``export``), a drawing (``draw``) and a bench record (``bench``); each
+command's choices are the names of its table, the first its default.  A renderer module is
+imported only when its format is asked for.
 """
 
 from __future__ import annotations
@@ -13,13 +16,26 @@ from typing import Callable
 
 from ..rules.results import Result
 
-__all__ = ["Format", "FORMATS", "render_results", "CHECK_FORMATS"]
+__all__ = [
+    "Format",
+    "FORMATS",
+    "render_results",
+    "CHECK_FORMATS",
+    "COMPARISON_FORMATS",
+    "SUGGESTION_FORMATS",
+    "NETLIST_FORMATS",
+    "DRAWING_FORMATS",
+    "BENCH_FORMATS",
+]
 
 
 @dataclass(frozen=True)
 class Format:
+    """One output format: ``render`` takes what its table says (a list of results for
+    ``FORMATS``) and returns the text (bytes for a drawing)."""
+
     name: str
-    render: Callable[[list[Result]], str]
+    render: Callable[..., str]
     several: bool  # whether it can hold several plans in one output
     description: str
 
@@ -128,8 +144,9 @@ FORMATS: dict[str, Format] = {
     )
 }
 
-#: the formats of `groundcheck check --format`
-CHECK_FORMATS = ("text", "json", "sarif")
+#: the formats of ``groundcheck check --format``: those that can hold several plans, as check takes
+#: several
+CHECK_FORMATS = tuple(name for name, f in FORMATS.items() if f.several)
 
 
 def render_results(results: list[Result], fmt: str) -> str:
@@ -141,3 +158,141 @@ def render_results(results: list[Result], fmt: str) -> str:
     if len(results) > 1 and not f.several:
         raise ValueError(f"the {fmt} format describes one plan at a time")
     return f.render(results)
+
+
+def _comparison_text(d: dict, before: Result, after: Result, warn=None) -> str:
+    from ..advice.compare import compare_text
+
+    return compare_text(d)
+
+
+def _comparison_json(d: dict, before: Result, after: Result, warn=None) -> str:
+    from ..advice.compare import compare_json
+
+    return compare_json(d)
+
+
+def _comparison_html(d: dict, before: Result, after: Result, warn=None) -> str:
+    """The comparison page, with both physical drawings when they can be drawn (``warn`` is told
+    why when they cannot)."""
+    from .compare_page import compare_page
+    from .dot import physical_dot
+    from .drawing import DrawingError, render_dot
+
+    try:
+        drawings = tuple(render_dot(physical_dot(r), "svg", "neato")[0] for r in (before, after))
+    except DrawingError as e:
+        if warn is not None:
+            warn(f"{e}; the comparison has no drawings")
+        drawings = None
+    return compare_page(d, before, after, drawings)
+
+
+#: a comparison of two plans (``advice.compare.compare``): render(comparison, before, after, warn)
+COMPARISON_FORMATS: dict[str, Format] = {
+    f.name: f
+    for f in (
+        Format("text", _comparison_text, False, "the changes as plain text"),
+        Format("json", _comparison_json, False, "the changes as a JSON document"),
+        Format("html", _comparison_html, False, "a page with both drawings and the changes"),
+    )
+}
+
+
+def _suggestions_text(plan, text: str, name: str, evs, chosen, final) -> str:
+    from ..advice.report import suggestions_text
+    from ..core.caution import CAUTION
+
+    return suggestions_text(plan, text, name, evs, chosen, final, CAUTION)
+
+
+def _suggestions_json(plan, text: str, name: str, evs, chosen, final) -> str:
+    from ..advice.report import suggestions_document
+    from ..core.plain import clean
+
+    doc = suggestions_document(plan, text, name, evs, chosen, final)
+    return json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n"
+
+
+#: the advisor's suggestions: render(plan, plan text, file name, evaluations, chosen set, result)
+SUGGESTION_FORMATS: dict[str, Format] = {
+    f.name: f
+    for f in (
+        Format("text", _suggestions_text, False, "the ranked changes as plain text"),
+        Format("json", _suggestions_json, False, "the ranked changes as a JSON document"),
+    )
+}
+
+
+def _spice(plan, frequency: float | None = None) -> str:
+    """The plan's ground network as a SPICE netlist with the plan's current sources at
+    ``frequency`` (an AC analysis there; None or 0: the DC operating point)."""
+    from ..physics.circuit import build_circuit
+    from ..physics.coupling import plan_sources
+    from ..physics.rectifier import simulate
+    from .spice import to_spice
+
+    circuit = build_circuit(plan)
+    f = frequency or 0.0
+    results = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
+    sources = [
+        (s.name, s.a, s.b, s.parts[f])
+        for s in plan_sources(plan, results, max(f, plan.frequency), circuit)
+        if abs(s.parts.get(f, 0)) > 0
+    ]
+    if frequency:
+        return to_spice(circuit, plan.title, sources, frequency=f, analysis="ac")
+    return to_spice(circuit, plan.title, sources)
+
+
+#: the ground network of a plan: render(plan, frequency)
+NETLIST_FORMATS: dict[str, Format] = {
+    "spice": Format(
+        "spice",
+        _spice,
+        False,
+        "a plain SPICE netlist, elements named after the plan's conductors (R, L, C and the "
+        "plan's current sources)",
+    )
+}
+
+
+def _drawing(fmt: str):
+    def render(source: str, engine: str, renderer: str = "auto"):
+        from .drawing import render_dot
+
+        return render_dot(source, fmt, engine, renderer)
+
+    return render
+
+
+#: a drawing of a plan from its DOT source: render(source, layout engine, renderer) gives (the
+#: drawing, what drew it)
+DRAWING_FORMATS: dict[str, Format] = {
+    f.name: f
+    for f in (
+        Format("svg", _drawing("svg"), False, "an SVG drawing"),
+        Format("png", _drawing("png"), False, "a PNG image"),
+        Format("dot", _drawing("dot"), False, "the drawing's DOT source"),
+    )
+}
+
+
+def _bench(module: str, function: str):
+    def render(record) -> str:
+        from importlib import import_module
+
+        return getattr(import_module(f".{module}", __package__), function)(record)
+
+    return render
+
+
+#: a bench record (``measure.bench``): render(record)
+BENCH_FORMATS: dict[str, Format] = {
+    f.name: f
+    for f in (
+        Format("text", _bench("bench", "render_bench_text"), False, "the bench record as text"),
+        Format("json", _bench("bench", "render_bench_json"), False, "a JSON document"),
+        Format("html", _bench("bench_page", "render_bench_html"), False, "a page with charts"),
+    )
+}

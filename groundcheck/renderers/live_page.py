@@ -6,7 +6,8 @@ applies it, both relative to the page's own address (which holds the view's toke
 sections replaced by the fragments the server escaped, text set as text, never as markup.  Hovering
 or focusing a finding highlights the shapes of its elements in both drawings and shows its plan
 line; clicking a shape of a conductor shows its figures.  While the plan has errors the last good
-result stays, greyed.
+result stays, greyed (a page opened or reloaded then shows it too); while the plan is analysed
+again the status says so and counts the seconds.
 """
 
 from __future__ import annotations
@@ -58,7 +59,7 @@ SCRIPT = r"""
 (function () {
   'use strict';
   var $ = function (id) { return document.getElementById(id); };
-  var state = null, pinned = null, selected = null;
+  var state = null, pinned = null, selected = null, shown = false, busy = null, ticker = null;
   function setText(id, text) { $(id).textContent = text; }
   function highlight(classes) {
     document.querySelectorAll('.drawing .hl').forEach(function (el) {
@@ -138,7 +139,10 @@ SCRIPT = r"""
     });
     err.hidden = !s.error;
     document.body.classList.toggle('stale', !s.ok);
-    if (!s.ok) { return; }
+    showBusy();
+    // a page opened while the plan has errors shows the last good result the state holds, greyed
+    if (!s.ok && (shown || !Object.keys(s.sections).length)) { return; }
+    shown = true;
     Object.keys(s.sections).forEach(function (k) { $('sec-' + k).innerHTML = s.sections[k]; });
     $('physical').innerHTML = s.physical ||
       '<p>No physical drawing (the plan gives no positions, or Graphviz is missing).</p>';
@@ -148,12 +152,29 @@ SCRIPT = r"""
     // the selected conductor's figures, as they are now
     if (selected) { showConductor(selected); }
   }
+  function showBusy() {
+    if (busy === null) { return; }
+    setText('status', (state ? 're-analysing' : 'analysing') + ' the plan… ' +
+      Math.floor((Date.now() - busy) / 1000) + ' s');
+  }
+  function analysing(ev) {
+    busy = Date.now() - parseFloat(ev.data) * 1000;
+    showBusy();
+    if (ticker === null) { ticker = setInterval(showBusy, 1000); }
+  }
+  function done() {
+    busy = null;
+    clearInterval(ticker);
+    ticker = null;
+    load();
+  }
   function load() {
     fetch('state', {cache: 'no-store'}).then(function (r) { return r.json(); }).then(apply)
       .catch(function () { setText('status', 'cannot reach groundcheck: is it still running?'); });
   }
   var events = new EventSource('events');
-  events.addEventListener('state', load);
+  events.addEventListener('state', done);
+  events.addEventListener('analysing', analysing);
   events.onerror = function () { setText('status', 'connection to groundcheck lost; retrying…'); };
   load();
 })();
