@@ -108,7 +108,6 @@ STILL_TO_SPLIT_MODULES = {
     "renderers/dot.py",
     "renderers/html.py",
     "renderers/text.py",
-    "rules/catalogue.py",
     "rules/electrical.py",
     "rules/protective.py",
     "rules/topology.py",
