@@ -107,10 +107,6 @@ STILL_TO_SPLIT_MODULES = {
     "renderers/dot.py",
     "renderers/html.py",
     "renderers/text.py",
-    "rules/catalogue.py",
-    "rules/electrical.py",
-    "rules/protective.py",
-    "rules/topology.py",
 }
 STILL_TO_SPLIT_FUNCTIONS = {
     "advice/candidates.py:_star_candidates",
@@ -145,12 +141,6 @@ STILL_TO_SPLIT_FUNCTIONS = {
     "renderers/spice.py:to_spice",
     "renderers/text.py:_summary",
     "renderers/text.py:_hum_tables",
-    "rules/context.py:open_at",
-    "rules/electrical.py:rule_hum",
-    "rules/protective.py:rule_protective_figures",
-    "rules/topology.py:rule_stars",
-    "rules/topology.py:rule_unconnected",
-    "rules/transformers.py:rule_supply_voltage",
 }
 
 

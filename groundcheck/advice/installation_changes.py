@@ -10,7 +10,7 @@ from __future__ import annotations
 from ..model.kinds import is_fastening_kind, joins_devices
 from ..model.installation import rated_voltage, shield_ends, suits, supply_at, transformer_feeds
 from ..model.records import Plan
-from ..rules.protective import DEVICE_EARTH_LIMIT
+from ..rules.pe_figures import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
 from .changes import Candidate, ChangeContext, squeeze
 from .edits import Edit

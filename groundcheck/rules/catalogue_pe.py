@@ -1,27 +1,20 @@
 """The catalogue's protective-earth entries (GC2xx): what each rule checks, why, its fix and its
-sources.
+sources, with what follows from it.
 
-Kept apart from :mod:`groundcheck.rules.catalogue` so that each module reads in one sitting; the
-catalogue takes them in its one table of rules.
+One family's entries, apart from the others so that each module reads in one sitting;
+:mod:`groundcheck.rules.catalogue` takes every family's entries in its one table of rules.
 """
 
 from __future__ import annotations
 
+from .rule_entry import Rule, entry
 from .rule_families import PROTECTIVE_EARTH
 
 __all__ = ["PROTECTIVE_ENTRIES"]
 
-
-def _e(*fields, **declared) -> tuple[tuple, dict]:
-    """An entry as the catalogue's ``_r`` takes it: its fields, and what it declares besides
-    (variants, identity, actions)."""
-    return fields, declared
-
-
-#: (code, name, family, severity, checks, why, fix, references) of each protective-earth rule,
-#: with its declarations
-PROTECTIVE_ENTRIES = [
-    _e(
+#: the protective-earth rules, in the catalogue's order
+PROTECTIVE_ENTRIES: list[Rule] = [
+    entry(
         "GC201",
         "pe-missing",
         PROTECTIVE_EARTH,
@@ -33,7 +26,7 @@ PROTECTIVE_ENTRIES = [
         "a chassis stud of its own.",
         "IEC 60364-5-54; IEC 62368-1 (protective bonding), from memory",
     ),
-    _e(
+    entry(
         "GC202",
         "pe-shared-fastener",
         PROTECTIVE_EARTH,
@@ -47,7 +40,7 @@ PROTECTIVE_ENTRIES = [
         "parts), from memory",
         actions=("own-stud",),
     ),
-    _e(
+    entry(
         "GC203",
         "pe-series-element",
         PROTECTIVE_EARTH,
@@ -60,7 +53,7 @@ PROTECTIVE_ENTRIES = [
         "signal ground and chassis, never in the protective path.",
         "IEC 60364-5-54 543.3 (no switching device in a protective conductor)",
     ),
-    _e(
+    entry(
         "GC204",
         "pe-undersized",
         PROTECTIVE_EARTH,
@@ -72,7 +65,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 60364-5-54 Table 54.2 (S ≤ 16 mm²: protective conductor ≥ S)",
         actions=("thicken",),
     ),
-    _e(
+    entry(
         "GC205",
         "touchable-unbonded",
         PROTECTIVE_EARTH,
@@ -85,7 +78,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 62368-1 (protective bonding of accessible conductive parts), from memory",
         actions=("bond",),
     ),
-    _e(
+    entry(
         "GC206",
         "pe-resistance",
         PROTECTIVE_EARTH,
@@ -101,7 +94,7 @@ PROTECTIVE_ENTRIES = [
         variants=("danger", "note"),
         actions=("bond",),
     ),
-    _e(
+    entry(
         "GC207",
         "pe-fault-survival",
         PROTECTIVE_EARTH,
@@ -113,7 +106,7 @@ PROTECTIVE_ENTRIES = [
         "Use a thicker protective conductor, or a faster fuse of a rating the equipment allows.",
         "IEC 60364-5-54 543.1.2 (adiabatic equation and k values)",
     ),
-    _e(
+    entry(
         "GC208",
         "disconnection-time",
         PROTECTIVE_EARTH,
@@ -133,7 +126,7 @@ PROTECTIVE_ENTRIES = [
         variants=("danger", "note"),
         actions=("installation-side",),
     ),
-    _e(
+    entry(
         "GC209",
         "pe-role-missing",
         PROTECTIVE_EARTH,
@@ -146,7 +139,7 @@ PROTECTIVE_ENTRIES = [
         "Write the conductor as 'protective' and size it as one.",
         "IEC 60445 (green-and-yellow for protective conductors); IEC 60364-5-54 Table 54.2",
     ),
-    _e(
+    entry(
         "GC210",
         "pe-terminal-other-use",
         PROTECTIVE_EARTH,
@@ -160,7 +153,7 @@ PROTECTIVE_ENTRIES = [
         "protective-earth stud.",
         "common practice",
     ),
-    _e(
+    entry(
         "GC211",
         "breaking-capacity",
         PROTECTIVE_EARTH,
@@ -175,7 +168,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 60127-2 breaking-capacity categories (from memory)",
         variants=("danger", "warning"),
     ),
-    _e(
+    entry(
         "GC212",
         "class-ii-earthed",
         PROTECTIVE_EARTH,
@@ -191,7 +184,7 @@ PROTECTIVE_ENTRIES = [
         "touchable part.",
         "IEC 61140 (protection classes; functional earthing of class II equipment), from memory",
     ),
-    _e(
+    entry(
         "GC213",
         "class-ii-insulation",
         PROTECTIVE_EARTH,
@@ -204,7 +197,7 @@ PROTECTIVE_ENTRIES = [
         "the product-safety standard.",
         "IEC 61140; IEC 62368-1 (from memory)",
     ),
-    _e(
+    entry(
         "GC214",
         "stated-figure-contradicts",
         PROTECTIVE_EARTH,
@@ -218,7 +211,7 @@ PROTECTIVE_ENTRIES = [
         "standard's limits.",
         "IEC 60127-2 time-current limits (from memory)",
     ),
-    _e(
+    entry(
         "GC215",
         "device-earth-path",
         PROTECTIVE_EARTH,
@@ -233,7 +226,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 60364-6 (continuity of protective conductors), from memory",
         actions=("between-devices",),
     ),
-    _e(
+    entry(
         "GC216",
         "leakage-above-limit",
         PROTECTIVE_EARTH,
@@ -254,7 +247,7 @@ PROTECTIVE_ENTRIES = [
         "Table 5A (touch current of parts not connected to protective earth, 0.25 mA), as quoted "
         "in IECEE test-report forms; from memory for IEC 62368-1, which keeps both figures.",
     ),
-    _e(
+    entry(
         "GC217",
         "supply-voltage",
         PROTECTIVE_EARTH,
@@ -271,7 +264,7 @@ PROTECTIVE_ENTRIES = [
         "is used again.",
         "IEC 60038 (standard voltages; ±10 % supply tolerance), from memory",
     ),
-    _e(
+    entry(
         "GC218",
         "isolating-secondary",
         PROTECTIVE_EARTH,
@@ -293,7 +286,7 @@ PROTECTIVE_ENTRIES = [
         "from memory",
         variants=("danger", "warning", "note"),
     ),
-    _e(
+    entry(
         "GC219",
         "transformer-rating",
         PROTECTIVE_EARTH,
@@ -306,7 +299,7 @@ PROTECTIVE_ENTRIES = [
         "their own voltage.",
         "IEC 61558-1 (rated output of transformers), from memory",
     ),
-    _e(
+    entry(
         "GC220",
         "tt-electrode-rcd",
         PROTECTIVE_EARTH,
@@ -320,7 +313,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 60364-4-41 411.5.3 (R_A × IΔn ≤ 50 V), from memory",
         actions=("installation-side",),
     ),
-    _e(
+    entry(
         "GC221",
         "tt-overcurrent-only",
         PROTECTIVE_EARTH,
@@ -333,7 +326,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory",
         actions=("installation-side",),
     ),
-    _e(
+    entry(
         "GC222",
         "signal-only-metal",
         PROTECTIVE_EARTH,
@@ -348,7 +341,7 @@ PROTECTIVE_ENTRIES = [
         "IEC 61140 (protection against electric shock: a part that cannot become live needs no "
         "protective bonding), from memory",
     ),
-    _e(
+    entry(
         "GC223",
         "pe-bonding-test",
         PROTECTIVE_EARTH,

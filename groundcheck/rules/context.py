@@ -7,7 +7,6 @@ relies on).
 
 from __future__ import annotations
 
-from collections import deque
 from dataclasses import dataclass, field
 from functools import cached_property
 
@@ -43,7 +42,6 @@ __all__ = [
     "classify_loop",
     "open_at",
     "node_channel",
-    "bfs",
     "LOOP_LIST_LIMIT",
     "LOOP_CLASSES",
 ]
@@ -258,10 +256,21 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         lp: a loop.
         closed_by: its class.
     Returns:
-        the conductor to open, or None when every conductor must stay.
+        the conductor to open, or "" when every conductor must stay.
     References:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
+    candidates = _openable(ctx, lp)
+    if not candidates:
+        return ""
+    chooser = _OPENERS.get(closed_by)
+    chosen = chooser(ctx, candidates) if chooser else None
+    return (candidates[-1] if chosen is None else chosen).name
+
+
+def _openable(ctx: AuditContext, lp: Loop) -> list[Conductor]:
+    """The loop's conductors that may be opened, by name (not in the order the loop happens to be
+    walked, which follows the plan's writing)."""
     cs = [ctx.conductors[e] for e in lp.edges]
     # a point the protective earth reaches (its stud, even one a return wrongly shares) keeps its
     # fastening to the metal: the route may stop there, the earth of the metal does not
@@ -271,8 +280,7 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         for c in cs
         if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)
     }
-    # by name, not in the order the loop happens to be walked (which follows the plan's writing)
-    candidates = sorted(
+    return sorted(
         (
             c
             for c in cs
@@ -285,53 +293,70 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         ),
         key=lambda c: c.name,
     )
-    if not candidates:
-        return ""
-    if closed_by == "mains-cords":
-        ic = [c for c in candidates if joins_devices(c)]
-        if ic:
-            return ic[0].name
-    if closed_by == "shield-both-ends":
-        sh = [c for c in candidates if shield_like(c)]
-        if sh:
-            return sh[0].name
-    if closed_by == "channel-returns":
-        ties = [
+
+
+def _interconnect(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:
+    """A loop through two mains cords opens at an interconnect."""
+    return next((c for c in candidates if joins_devices(c)), None)
+
+
+def _shield(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:
+    """A shield terminated at both ends opens at the shield."""
+    return next((c for c in candidates if shield_like(c)), None)
+
+
+def _channel_tie(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:
+    """Two channels' returns tied twice open at a tie of no channel between two channels."""
+    return next(
+        (
             c
             for c in candidates
             if not c.channel
             and node_channel(ctx, c.a)
             and node_channel(ctx, c.b)
             and node_channel(ctx, c.a) != node_channel(ctx, c.b)
-        ]
-        if ties:
-            return ties[0].name
-    if closed_by == "second-chassis-bond":
-        # a signal point fastened to the metal (an uninsulated jack, say) is the bond to remove
-        ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {
-            x for r in ctx.plan.currents for x in (r.a, r.b)
-        }
-        # a socket, jack, pot or terminal fastened to the metal too: insulating it keeps its return
-        sockets = ("sleeve", "jack", "pot", "terminal")
-        ends |= {p.name for p in ctx.plan.points if p.kind in sockets}
-        bolts = [
+        ),
+        None,
+    )
+
+
+def _second_bond(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:
+    """A second bond of the signal ground: a signal point fastened to the metal (an uninsulated
+    jack, say) is the bond to remove; otherwise the crossing farthest from the protective earth."""
+    ends = {x for st in ctx.plan.stages for x in (st.a, st.b)} | {
+        x for r in ctx.plan.currents for x in (r.a, r.b)
+    }
+    # a socket, jack, pot or terminal fastened to the metal too: insulating it keeps its return
+    sockets = ("sleeve", "jack", "pot", "terminal")
+    ends |= {p.name for p in ctx.plan.points if p.kind in sockets}
+    bolt = next(
+        (
             c
             for c in candidates
             if is_fastening_kind(c.kind)
             and ((c.a in ctx.metals and c.b in ends) or (c.b in ctx.metals and c.a in ends))
-        ]
-        if bolts:
-            return bolts[0].name
-        # otherwise keep the bond nearest the protective earth and open the farthest
-        crossing = [
-            c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)
-        ]
-        if crossing:
-            return max(
-                crossing,
-                key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name),
-            ).name
-    return candidates[-1].name
+        ),
+        None,
+    )
+    if bolt is not None:
+        return bolt
+    # otherwise keep the bond nearest the protective earth and open the farthest
+    crossing = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)]
+    if not crossing:
+        return None
+    return max(
+        crossing,
+        key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name),
+    )
+
+
+#: which conductor of a loop to open, by what closes it (the rest open at the last by name)
+_OPENERS = {
+    "mains-cords": _interconnect,
+    "shield-both-ends": _shield,
+    "channel-returns": _channel_tie,
+    "second-chassis-bond": _second_bond,
+}
 
 
 def pe_distance(ctx: AuditContext, node: str) -> float:
@@ -352,30 +377,3 @@ def pe_distance(ctx: AuditContext, node: str) -> float:
         return 0.0
     p = ctx.G.nodes[pe[0]]["pos"]
     return ((p[0] - here[0]) ** 2 + (p[1] - here[1]) ** 2) ** 0.5
-
-
-def bfs(adj: dict, sources, allowed=None):
-    """Hop distances and parents from any of ``sources`` over nodes passing ``allowed``
-    (``adj``: node -> neighbours).
-
-    Parameters:
-        adj: node -> neighbours.
-        sources: start nodes.
-        allowed: which nodes may be passed.
-    Returns:
-        (hop distance of each reached node, its parent).
-    References:
-        breadth-first search (Cormen et al., *Introduction to Algorithms*).
-    """
-    dist, parent = {}, {}
-    q = deque()
-    for s in sources:
-        dist[s], parent[s] = 0, None
-        q.append(s)
-    while q:
-        u = q.popleft()
-        for v in adj[u]:
-            if v not in dist and (allowed is None or allowed(v)):
-                dist[v], parent[v] = dist[u] + 1, u
-                q.append(v)
-    return dist, parent

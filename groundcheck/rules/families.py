@@ -1,14 +1,19 @@
 """Imports every family of rules, so that each registers its functions
-(:mod:`groundcheck.rules.registry`)."""
+(:mod:`groundcheck.rules.registry`), in the order they are imported."""
 
 from . import (  # noqa: F401 - imported for their registrations
     bench,
     bonding,
     earthing_system,
     electrical,
+    hum_rules,
     installation,
     protective,
+    pe_figures,
     signal,
+    loops,
+    stars,
+    signal_bonds,
     topology,
     transformers,
 )

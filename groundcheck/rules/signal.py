@@ -7,7 +7,8 @@ import networkx as nx
 
 from ..model.kinds import shield_like
 from .catalogue import Finding
-from .context import AuditContext, bfs
+from .context import AuditContext
+from .graph_search import bfs
 from .electrical import Solved
 from .registry import rule
 

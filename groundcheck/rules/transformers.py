@@ -52,6 +52,12 @@ def rule_supply_voltage(ctx: AuditContext) -> list[Finding]:
     if plan.supply is None:
         return []
     feeds = _feeds(plan)
+    return _devices_off_voltage(plan, feeds) + _primaries_off_voltage(plan, feeds)
+
+
+def _devices_off_voltage(plan, feeds: dict) -> list[Finding]:
+    """GC217 for each device plugged into a point that does not give its own plan's voltage, with
+    the plug points that do (or a transformer to add)."""
     own = {n: v for n, v, _ in plan.device_supplies}
     out = []
     for d in plan.devices:
@@ -82,6 +88,12 @@ def rule_supply_voltage(ctx: AuditContext) -> list[Finding]:
                 f"{fix}; have a qualified person check it before it is used again",
             )
         )
+    return out
+
+
+def _primaries_off_voltage(plan, feeds: dict) -> list[Finding]:
+    """GC217 for each transformer whose primary is not for the voltage it is plugged into."""
+    out = []
     for t in plan.transformers:
         at = supply_at(t.plugged, feeds, plan.supply)
         if suits(t.primary, at):

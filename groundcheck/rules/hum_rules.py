@@ -1,0 +1,325 @@
+"""Rules on the hum budget (:mod:`groundcheck.physics.hum`): hum contributors, loop pickup,
+audibility and crosstalk (GC301–GC304), and loops that pass too close to a field source for its
+model (GC305).
+
+Pure functions of the solved network (:class:`~groundcheck.rules.electrical.Solved`), registered
+under their codes (:mod:`groundcheck.rules.registry`); conductors in series are judged as one
+(:func:`series_runs`).
+"""
+
+from __future__ import annotations
+
+from ..core.units import dbv
+from ..model.kinds import LEAKAGE, PROTECTIVE, SIGNAL, carries_load, joins_devices
+from .catalogue import Finding
+from .context import AuditContext
+from .electrical import Solved
+from .registry import rule
+
+__all__ = ["rule_hum", "rule_loop_near_source", "series_runs"]
+
+
+@rule("GC301", "GC302", "GC303", "GC304", needs="solve", hum=True)
+def rule_hum(s: Solved) -> list[Finding]:
+    """GC301–GC304: hum contributors, loop pickup, audibility and crosstalk from the hum budget.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC301–GC304 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.hum is None:
+        return []
+    plan = s.plan
+    runs = series_runs(s.ctx)
+    # currents that reach a stage only round a loop through the installation: leakage, and the EMF
+    # of loaded cables
+    loop_driven = {c.name for c in plan.currents if c.role == LEAKAGE} | {
+        f"{c.name}.induced" for c in plan.conductors if carries_load(c)
+    }
+    stages_by_ch: dict[str, list] = {}
+    for st in plan.stages:
+        stages_by_ch.setdefault(st.channel, []).append(st)
+    out = []
+    for ch, h in s.hum.channels.items():
+        loc = stages_by_ch[ch][0].location
+        out += _contributors(s, ch, _by_run(h.contributors, runs), loc, loop_driven)
+        if h.audible:
+            out.append(_audible(ch, h, loc))
+    out += _crosstalk(s, stages_by_ch)
+    return out
+
+
+def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> list[Finding]:
+    """GC301 for each conductor (or run in series), GC302 for each loop, whose share of a
+    channel's hum is above the contributor level and at least a tenth of the total."""
+    opts = s.options
+    conductors = {c.name: c for c in s.plan.conductors}
+    out = []
+    for c in contributors:
+        if c["dbv"] is None or c["dbv"] < opts.contributor_level or c["share_pct"] < 10:
+            continue
+        if c["kind"] == "conductor":
+            cond = conductors.get(c["element"])
+            fix = _contributor_fix(c["element"], c["source"], cond, loop_driven)
+            run = c.get("run", (c["element"],))
+            what = run[0] if len(run) == 1 else f"{', '.join(run)} (in series)"
+            out.append(
+                Finding(
+                    "GC301",
+                    "warning",
+                    f"{what} {'puts' if len(run) == 1 else 'put'} {c['dbv']:.1f} dBV of "
+                    f"{c['source']} hum and buzz at the {ch} output ({c['share_pct']:.0f} % "
+                    "of the channel's total)",
+                    cond.location if cond else loc,
+                    (run[0], c["source"], *run[1:]),
+                    {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
+                    fix,
+                )
+            )
+        else:
+            out.append(
+                Finding(
+                    "GC302",
+                    "warning",
+                    f"{c['element']} picks up {c['dbv']:.1f} dBV from {c['source']} at the "
+                    f"{ch} output ({c['share_pct']:.0f} % of the channel's total)",
+                    loc,
+                    (c["element"], c["source"]),
+                    {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
+                    "open the loop, or make it smaller and move it away from the field source",
+                )
+            )
+    return out
+
+
+def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
+    """GC304: crosstalk at 1 kHz between channels above the limit."""
+    out = []
+    for row in s.hum.crosstalk:
+        if (
+            row["frequency_hz"] == 1000.0
+            and row["db"] is not None
+            and row["db"] > s.options.crosstalk_limit
+        ):
+            loc = stages_by_ch[row["to"]][0].location
+            out.append(
+                Finding(
+                    "GC304",
+                    "warning",
+                    f"crosstalk from {row['from']} into {row['to']} is {row['db']:.1f} dB "
+                    "at 1 kHz",
+                    loc,
+                    (str(row["from"]), row["to"]),
+                    {"crosstalk_db": row["db"]},
+                    _crosstalk_fix(s, str(row["from"]), row["to"]),
+                )
+            )
+    return out
+
+
+def _crosstalk_fix(s: Solved, talker: str, listener: str) -> str:
+    """What to do about crosstalk from channel ``talker`` into ``listener`` (GC304): name the
+    conductors that the talker's signal current and the listener's stages share (least-resistance
+    paths), as the place to act."""
+    from ..physics.coupling import pair_path
+
+    def owners(a: str, b: str) -> list[str]:
+        return [s.circuit.branches[i].owner for i, _ in pair_path(s.circuit, a, b)]
+
+    carried = {
+        o
+        for cur in s.plan.currents
+        if cur.channel == talker and cur.role == SIGNAL
+        for o in owners(cur.a, cur.b)
+    }
+    shared = sorted(
+        {
+            o
+            for st in s.plan.stages
+            if st.channel == listener
+            for o in owners(st.a, st.b)
+            if o in carried and o
+        }
+    )
+    if not shared:
+        return "give each channel its own return to the star; join the channels at one point only"
+    return (
+        f"the {talker} channel's return shares {', '.join(shared)} with the {listener} channel's "
+        "reading: give each channel its own return up to the one point where they must meet, and "
+        "keep what stays shared short and thick (a common shared by design, as a headphone "
+        "lead's, gives crosstalk of about its resistance over the load's)"
+    )
+
+
+def series_runs(ctx: AuditContext) -> dict[str, tuple[str, ...]]:
+    """Conductors in series: joined end to end at points where nothing else meets, no current
+    enters and no stage reads, they carry one current and a stage sees their drops alike (by
+    reciprocity, an EMF anywhere along the run drives the same currents), so a conductor written
+    in two pieces is judged as one.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        each conductor of a run of two or more -> the run's conductors, sorted by name.
+    References:
+        Kirchhoff's current law (one current through a node with two branches and no source).
+    """
+    plan, G, cond = ctx.plan, ctx.G, ctx.conductors
+    fed = {e for x in (*plan.currents, *plan.rectifiers, *plan.heaters) for e in (x.a, x.b)}
+    fed |= {r.filter_point for r in plan.rectifiers}
+    fed |= {e for st in plan.stages for e in (st.a, st.b, st.named)}
+    read = {st.across for st in plan.stages}
+    joined: dict[str, set[str]] = {}
+    for p in G.nodes:
+        if p in ctx.metals or p in fed:
+            continue
+        keys = [k for _, v, k in G.edges(p, keys=True) if v != p]
+        if len(keys) != 2 or len(set(keys)) != 2 or not all(k in cond for k in keys):
+            continue
+        if any(not cond[k].connects or carries_load(cond[k]) or k in read for k in keys):
+            continue
+        run = joined.get(keys[0], {keys[0]}) | joined.get(keys[1], {keys[1]})
+        for k in run:
+            joined[k] = run
+    return {k: tuple(sorted(run)) for k, run in joined.items()}
+
+
+def _by_run(contributors: list[dict], runs: dict) -> list[dict]:
+    """The contributors with those of one run and one source merged into one (at the place of the
+    first): levels and shares added — exact for pieces of one kind and size, whose drops are in
+    phase, an upper bound on the level otherwise."""
+    out: list[dict] = []
+    merged: dict[tuple, dict] = {}
+    for c in contributors:
+        run = runs.get(c["element"]) if c["kind"] == "conductor" else None
+        if run is None:
+            out.append(c)
+            continue
+        key = (run, c["source"])
+        if key not in merged:
+            merged[key] = dict(c, element=run[0], run=run, parts=[c])
+            out.append(merged[key])
+        else:
+            m = merged[key]
+            m["parts"].append(c)
+            m["volts"] += c["volts"]
+            m["share_pct"] = round(m["share_pct"] + c["share_pct"], 1)
+            m["dbv"] = round(dbv(m["volts"]), 2)  # as the hum budget gives a level
+    return out
+
+
+def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
+    """What to do about a conductor that carries a hum source's current to a stage (GC301)."""
+    if cond is not None and cond.role == PROTECTIVE:
+        return (
+            f"the drop along protective conductor {element} reaches the stage through a loop: "
+            "break the loop on the signal side (balanced interconnect or ground-lift network); "
+            "never lift the protective earth"
+        )
+    if source in loop_driven and cond is not None and joins_devices(cond):
+        if cond.balanced:
+            return (
+                f"{source} drives current round the loop along the shield of {element}: land the "
+                "shield on the chassis where it enters at both ends ('shield-to chassis'), so "
+                "that it stays out of the signal grounds; never lift the protective earth"
+            )
+        return (
+            f"{source} drives current round the loop along the shield of {element}: use a "
+            "balanced interconnect (its shield on the chassis where it enters), or a ground-lift "
+            "network on the signal side; never lift the protective earth"
+        )
+    if source in loop_driven:
+        return (
+            f"{source} drives current round a loop through {element}, between an interconnect's "
+            "shield and the protective earth: land that shield on the chassis where it enters "
+            "('shield-to chassis'), or break the loop on the signal side; never lift the "
+            "protective earth"
+        )
+    return f"move the {source} current off {element}: give it a return path of its own"
+
+
+def _audible(ch: str, h, loc) -> Finding:
+    """GC303: a channel whose hum is above the threshold of hearing, naming its three main
+    contributors."""
+    top: list[str] = []
+    for c in h.contributors:
+        label = f"{c['element']} ({c['source']}, {c['share_pct']:.0f} %)"
+        if c["element"] not in [t.split(" (")[0] for t in top]:
+            top.append(label)
+        if len(top) == 3:
+            break
+    return Finding(
+        "GC303",
+        "fault",
+        f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's "
+        f"seat by {h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
+        loc,
+        (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
+        {
+            "margin_db": round(h.margin_db, 2),
+            "total_dbv": round(h.total_dbv, 2),
+            "signal_to_hum_db": round(h.signal_to_hum, 2),
+        },
+        "fix the main contributors first: " + "; ".join(top),
+    )
+
+
+@rule("GC305", needs="solve", hum=True)
+def rule_loop_near_source(s: Solved) -> list[Finding]:
+    """GC305: a loop that passes within a field source's size (or, with no size, its reference
+    distance).
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC305 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.hum is None:
+        return []
+    fields = {f.name: f for f in s.plan.fields}
+    out = []
+    for row in s.hum.loops:
+        for name, entry in row["sources"].items():
+            src = fields.get(name)
+            if src is None:  # an AC heater pair: no size to be inside
+                continue
+            limit = src.size if src.size is not None else src.r_ref
+            if entry["closest_mm"] * 1e-3 >= limit:
+                continue
+            if src.size is not None:
+                what = (
+                    f"inside its size ({src.size * 1e3:g} mm): its pickup is taken from the ring "
+                    "model, exact at any distance for a round source"
+                )
+                fix = (
+                    f"nothing to correct in the figure; to lower loop {row['loop']}'s pickup, "
+                    f"route its conductors away from {name} or open it (the loop's own findings "
+                    "say where)"
+                )
+            else:
+                what = (
+                    f"inside the {src.r_ref * 1e3:g} mm at which its strength is stated: the "
+                    "point-dipole law is an extrapolation there"
+                )
+                fix = (
+                    f"state the size of {name} ('size 60 mm') and its height, or route the loop "
+                    "away from it"
+                )
+            out.append(
+                Finding(
+                    "GC305",
+                    "note",
+                    f"loop {row['loop']} passes {entry['closest_mm']:g} mm from the centre of "
+                    f"{name}, {what}",
+                    src.location,
+                    (f"loop {row['loop']}", name),
+                    {"closest_mm": entry["closest_mm"], "limit_mm": round(limit * 1e3, 3)},
+                    fix,
+                )
+            )
+    return out

@@ -1,0 +1,103 @@
+"""GC101: the ground loops, each classified by what closes it (the audit context's
+:class:`~groundcheck.rules.context.LoopInfo`), with the conductor to open and how.
+
+A pure function of an :class:`~groundcheck.rules.context.AuditContext`, registered under its code
+(:mod:`groundcheck.rules.registry`).
+"""
+
+from __future__ import annotations
+
+from ..model.kinds import is_fastening, joins_devices
+from ..network.graph import Loop
+from .catalogue import Finding
+from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext
+from .registry import rule
+
+__all__ = ["rule_loops"]
+
+
+def _loop_text(lp: Loop) -> str:
+    return " → ".join(lp.nodes + lp.nodes[:1])
+
+
+@rule("GC101")
+def rule_loops(ctx: AuditContext) -> list[Finding]:
+    """GC101: the ground loops, each classified by what closes it, with the conductor to open.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC101 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    out = []
+    for info in ctx.loops:
+        if info.closed_by == "chassis-structure":
+            continue
+        figures = {"conductors": len(info.loop.edges)}
+        if info.area is not None:
+            figures["area_mm2"] = round(info.area * 1e6, 1)
+        fix, actions = _loop_fix(info, ctx.conductors.get(info.open_at), ctx)
+        out.append(
+            Finding(
+                "GC101",
+                "warning",
+                f"ground loop closed by {LOOP_CLASSES[info.closed_by]}: {_loop_text(info.loop)}",
+                ctx.loc(info.open_at or info.loop.edges[-1]),
+                info.loop.edges,
+                figures,
+                fix,
+                actions,
+            )
+        )
+    extra = (
+        ctx.loop_total
+        - len(ctx.loops)
+        - sum(1 for c in ctx.plan.conductors if c.connects and c.a == c.b)
+    )
+    if extra > 0:
+        out.append(
+            Finding(
+                "GC101",
+                "note",
+                f"{extra} more independent loops not listed (limit {LOOP_LIST_LIMIT})",
+                ctx.plan.location,
+                (),
+                {"loops_total": ctx.loop_total},
+                "open the loops listed first",
+            )
+        )
+    return out
+
+
+def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
+    """What to do about a loop, by what closes it and where it opens: (the fix, its structured
+    actions)."""
+    if (
+        info.closed_by == "mains-cords"
+        and opener is not None
+        and joins_devices(opener)
+        and opener.balanced
+    ):
+        return (
+            f"{info.open_at} is balanced: its input rejects the loop's current by its common-mode "
+            "rejection (the hum budget gives what is left); if hum remains, plug the devices "
+            "into one outlet or strip, or use an input of better rejection; never lift the "
+            "protective earth"
+        ), ()
+    if opener is not None and is_fastening(opener, ctx.metals):
+        where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
+        actions = (("insulate", info.open_at),)
+    elif opener is not None:
+        where, actions = f"open the loop at {info.open_at}", (("open", info.open_at),)
+    else:
+        where, actions = "open the loop outside the protective earth", ()
+    return where + {
+        "shield-both-ends": " (terminate the shield at one end only)",
+        "channel-returns": " (join the channels at one point only)",
+        "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
+        "metal-return": " (return currents by wire, not through the metal)",
+        "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal "
+        "side; never lift the protective earth)",
+    }.get(info.closed_by, ""), actions

@@ -1,0 +1,342 @@
+"""Verdicts on the protective-earth figures (:mod:`groundcheck.physics.safety`): the path
+resistance to each part (GC206), conductors that would not survive the fault (GC207), the
+disconnection time (GC208), the breaking capacity (GC211), stated clearing figures the fuse table
+contradicts (GC214), and each placed device's earth path to the main earthing terminal (GC215).
+
+Pure functions of the solved network (:class:`~groundcheck.rules.electrical.Solved`), registered
+under their codes (:mod:`groundcheck.rules.registry`).
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from ..model.records import Plan
+from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
+from ..physics.safety import supply_figures
+from .catalogue import Finding
+from .registry import rule
+
+if TYPE_CHECKING:
+    from ..physics.safety import SafetyResult
+    from .electrical import Solved
+
+__all__ = ["rule_protective_figures", "rule_device_earths", "plan_conductor", "DEVICE_EARTH_LIMIT"]
+
+
+@rule("GC206", "GC207", "GC208", "GC211", "GC214", needs="solve")
+def rule_protective_figures(s: Solved) -> list[Finding]:
+    """GC206, GC207, GC208, GC211, GC214 from the protective-earth figures.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC206–GC208, GC211, GC214 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.safety is None:
+        m = s.plan.mains
+        return (
+            _breaking(s.plan, supply_figures(s.plan))
+            if m is not None and m.fuse is not None
+            else []
+        )
+    plan, safety = s.plan, s.safety
+    out = []
+    for p in safety.parts:
+        out.extend(_path_resistance(plan, safety, p))
+        out.extend(_disconnection(plan, safety, p))
+    out.extend(_no_clearing_device(plan, safety))
+    out.extend(_breaking(plan, safety.supply))
+    out.extend(_stated_contradictions(plan, safety))
+    out.extend(_survival(plan, safety))
+    return out
+
+
+def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
+    """GC206: the protective path to a part over the limit (a note when only a relaxed
+    ``--pe-limit`` passed it)."""
+    part = plan.metal(p.part)
+    figs = {
+        "path_resistance_mohm": round(p.path_resistance * 1e3, 3),
+        "limit_mohm": safety.limit * 1e3,
+    }
+    if p.path_resistance > safety.limit:
+        return [
+            Finding(
+                "GC206",
+                "danger",
+                f"protective path to {p.part} is {p.path_resistance * 1e3:.1f} mΩ, over the "
+                f"{safety.limit * 1e3:.0f} mΩ limit",
+                part.location,
+                (p.part,),
+                figs,
+                "shorten or thicken the protective conductor; clean and tighten the "
+                "fastenings on its path",
+            )
+        ]
+    if safety.relaxed and p.path_resistance > STANDARD_PE_LIMIT:
+        return [
+            Finding(
+                "GC206",
+                "note",
+                f"protective path to {p.part} is {p.path_resistance * 1e3:.1f} mΩ, over the "
+                f"{STANDARD_PE_LIMIT * 1e3:.0f} mΩ product-safety limit; passed only because "
+                f"--pe-limit relaxed the limit to {safety.limit * 1e3:.0f} mΩ",
+                part.location,
+                (p.part,),
+                {**figs, "standard_limit_mohm": STANDARD_PE_LIMIT * 1e3},
+                "shorten or thicken the protective conductor; clean and tighten the "
+                "fastenings on its path",
+            )
+        ]
+    return []
+
+
+def _no_clearing_device(plan: Plan, safety: SafetyResult) -> list[Finding]:
+    """GC208 (a note): no fuse, breaker or RCD stated, so disconnection is not checked."""
+    m = plan.mains
+    if m.fuse is None and m.clear_time is None and m.rcd is None and safety.parts:
+        return [
+            Finding(
+                "GC208",
+                "note",
+                "no fuse, breaker or RCD in the mains statement: disconnection not checked",
+                m.location,
+                ("mains",),
+                {},
+                "add e.g. ', fuse 2 A slow' to the mains statement",
+            )
+        ]
+    return []
+
+
+def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
+    """GC207: a conductor on the fault's path too thin to survive until the fault is cleared."""
+    out = []
+    for row in safety.conductors:
+        if not row.survives:
+            c = plan_conductor(plan, row.conductor)
+            out.append(
+                Finding(
+                    "GC207",
+                    "danger",
+                    f"{row.conductor} ({row.area * 1e6:.4g} mm²) would not survive the fault "
+                    f"until it is cleared: it needs {row.required * 1e6:.4g} mm² (k = {row.k:g})",
+                    c.location if c else plan.mains.location,
+                    (row.conductor,),
+                    row.as_dict(),
+                    "use a thicker protective conductor, or a faster or lower-rated fuse the "
+                    "equipment allows",
+                )
+            )
+    return out
+
+
+def _breaking(plan: Plan, sup) -> list[Finding]:
+    """GC211: a prospective current — a line-to-protective fault at the inlet or a line-to-neutral
+    short inside the equipment, the cables cold — beyond what the fuse or breaker can break,
+    whatever is touchable."""
+    m, out = plan.mains, []
+    worst = sup.prospective
+    if sup.breaking_capacity is not None and worst > sup.breaking_capacity:
+        stated = (
+            m.breaking is not None
+            or m.breaking_current is not None
+            or m.fuse_kind.startswith("breaker")
+        )
+        device = (
+            "breaker"
+            if m.fuse_kind.startswith("breaker")
+            else f"{m.breaking or 'low'}-breaking fuse"
+        )
+        assumed = (
+            "" if stated else " (breaking capacity not stated: a low-breaking glass fuse assumed)"
+        )
+        what = (
+            "a line-to-neutral short inside the equipment"
+            if sup.short_circuit >= sup.earth_fault_max
+            else "a line-to-protective fault at the inlet"
+        )
+        out.append(
+            Finding(
+                "GC211",
+                "danger" if stated else "warning",
+                f"{what} draws up to {worst:.0f} A, beyond the {sup.breaking_capacity:.0f} A the "
+                f"{m.fuse:g} A {device} can break: it may keep arcing or burst instead of "
+                f"clearing{assumed}",
+                m.location,
+                ("mains",),
+                {
+                    "fault_current_a": round(worst, 2),
+                    "earth_fault_a": round(sup.earth_fault_max, 2),
+                    "short_circuit_a": round(sup.short_circuit, 2),
+                    "breaking_capacity_a": sup.breaking_capacity,
+                },
+                "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking "
+                "type) of the same rating and characteristic, and say so: ', breaking high'",
+            )
+        )
+    return out
+
+
+def plan_conductor(plan: Plan, name: str):
+    """The plan's conductor of that name.
+
+    Parameters:
+        plan: the plan.
+        name: a conductor's name.
+    Returns:
+        the conductor record, or None.
+    References:
+        none (lookup).
+    """
+    return next((c for c in plan.conductors if c.name == name), None)
+
+
+def _device_text(m) -> str:
+    parts = []
+    if m.fuse is not None:
+        what = " breaker" if m.fuse_kind.startswith("breaker") else " fuse"
+        parts.append(f"{m.fuse:g} A {m.fuse_kind.replace('breaker-', 'type ') + what}")
+    if m.rcd is not None:
+        parts.append(f"{m.rcd * 1e3:g} mA RCD")
+    return " and ".join(parts) or "stated clearing"
+
+
+def _disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
+    """GC208: the protective device does not disconnect within IEC 60364-4-41's maximum time."""
+    m, sup = plan.mains, safety.supply
+    if m.fuse is None and m.clear_time is None and m.rcd is None:
+        return []
+    part = plan.metal(p.part)
+    limit = sup.max_time
+    figs = {
+        "fault_current_a": round(p.fault_current, 3),
+        "touch_voltage_v": round(p.touch_voltage, 2),
+        "max_disconnection_s": limit,
+    }
+    system = "TT" if sup.system == "TT" else "TN"
+    where = f"{system} at {m.voltage:g} V"
+    if p.clear_time is None:
+        return [
+            Finding(
+                "GC208",
+                "danger",
+                f"a line-to-{p.part} fault draws {p.fault_current:.3g} A, too little to be sure "
+                f"of opening the {_device_text(m)}; {p.touch_voltage:.0f} V against earth would "
+                f"stay on {p.part}",
+                part.location,
+                (p.part,),
+                figs,
+                "add a 30 mA RCD to the supply, or lower the fault loop's resistance or the fuse "
+                "rating the equipment allows",
+            )
+        ]
+    if limit is not None and p.clear_time > limit:
+        stated = " (stated in plan)" if p.device == "stated" else ""
+        return [
+            Finding(
+                "GC208",
+                "danger",
+                f"a line-to-{p.part} fault ({p.fault_current:.3g} A) is cleared by the "
+                f"{_device_text(m)} in up to {p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows "
+                f"{limit:g} s ({where}), and {p.touch_voltage:.0f} V against earth is on {p.part} "
+                "meanwhile",
+                part.location,
+                (p.part,),
+                {**figs, "clear_time_s": round(p.clear_time, 6)},
+                "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the "
+                "fuse rating so that the fuse clears within the limit",
+            )
+        ]
+    return []
+
+
+def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
+    """GC214: a clearing time or I²t stated in the plan that the fuse table contradicts by more
+    than 2×."""
+    m = plan.mains
+    if m.fuse is None or (m.clear_time is None and m.fuse_i2t is None) or not safety.parts:
+        return []
+    p = max(safety.parts, key=lambda x: x.fault_current)
+    cl = device_clearing(m.fuse_kind, m.fuse, p.fault_current, m.frequency)
+    out = []
+    for stated, table, what, unit in (
+        (m.clear_time, cl.time if cl else None, "clearing time", "s"),
+        (m.fuse_i2t, cl.i2t if cl else None, "I²t", "A²s"),
+    ):
+        if stated is None:
+            continue
+        if table is None or not 0.5 <= stated / table <= 2.0:
+            tab = "no assured clearing" if table is None else f"{table:.3g} {unit}"
+            out.append(
+                Finding(
+                    "GC214",
+                    "warning",
+                    f"the plan states a {what} of {stated:.3g} {unit}; the {_device_text(m)}'s "
+                    f"time-current limits give {tab} at {p.fault_current:.3g} A",
+                    m.location,
+                    ("mains",),
+                    {"stated": stated, "table": table},
+                    f"check the stated {what} against the fuse maker's data sheet, or remove it "
+                    "to use the table",
+                )
+            )
+    return out
+
+
+#: a device's earth path to the main earthing terminal over this is reported, Ω: a final circuit's
+#: protective conductor of 40 m of 1.5 mm² (about 0.5 Ω) plus a cord — a broken or corroded path,
+#: not a long one (common practice)
+DEVICE_EARTH_LIMIT = 1.0
+
+
+@rule("GC215", needs="solve")
+def rule_device_earths(s: Solved) -> list[Finding]:
+    """GC215: a placed device whose earth pin does not reach the main earthing terminal, or only
+    through a high resistance.
+
+    Parameters:
+        s: the solved network with its context.
+    Returns:
+        GC215 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    if s.device_earths is None:
+        return []
+    out = []
+    points = {p.name: p for p in s.plan.points}
+    for d in s.device_earths:
+        loc = points[d.inlet].location
+        if d.resistance is None:
+            out.append(
+                Finding(
+                    "GC215",
+                    "danger",
+                    f"device {d.device}: its earth pin does not reach the main earthing terminal "
+                    "through protective conductors",
+                    loc,
+                    (d.device, d.inlet),
+                    {},
+                    f"plug {d.device} into an earthed outlet and repair the protective connection "
+                    "on its path",
+                )
+            )
+        elif d.resistance > DEVICE_EARTH_LIMIT:
+            out.append(
+                Finding(
+                    "GC215",
+                    "danger",
+                    f"device {d.device}: its earth path to the main earthing terminal is "
+                    f"{d.resistance:.3g} Ω",
+                    loc,
+                    (d.device, d.inlet),
+                    {"resistance_ohm": round(d.resistance, 4)},
+                    "find and repair the high-resistance joint on the path (cord, strip or "
+                    "building run)",
+                )
+            )
+    return out

@@ -1,0 +1,84 @@
+"""A catalogue entry: the rule's words, and what follows from it.
+
+Each family's entries (``catalogue_topology.py``, ``catalogue_pe.py``, ``catalogue_hum.py``,
+``catalogue_model.py``) are written with :func:`entry`, which checks what an entry declares;
+:mod:`groundcheck.rules.catalogue` gathers them in its one table of rules.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from .rule_families import Family
+
+__all__ = ["SEVERITIES", "IDENTITIES", "Rule", "entry"]
+
+#: severities from the most to the least serious
+SEVERITIES = ("danger", "fault", "warning", "note")
+
+#: what identifies a finding before and after a change: its elements in any order, or the first
+#: two in order (a source and the stage it reaches, an element and its source)
+IDENTITIES = ("elements", "pair")
+
+
+@dataclass(frozen=True)
+class Rule:
+    """A catalogue entry: the rule's words, and what follows from it — its family, the severities
+    its findings may have (``variants``, the default first), what identifies a finding
+    (:data:`IDENTITIES`) and the advisor's repair actions for it (``advice/candidates.py``
+    registers a generator under each; ``carried``: the finding's own structured actions)."""
+
+    code: str
+    name: str
+    family: Family
+    severity: str
+    checks: str
+    why: str
+    fix: str
+    references: str = "common practice"
+    variants: tuple[str, ...] = ()
+    identity: str = "elements"
+    actions: tuple[str, ...] = ("carried",)
+
+
+def entry(
+    code,
+    name,
+    family,
+    severity,
+    checks,
+    why,
+    fix,
+    references="common practice",
+    *,
+    variants=(),
+    identity="elements",
+    actions=("carried",),
+) -> Rule:
+    """One catalogue entry, its declarations checked.
+
+    Parameters:
+        code, name, family, severity: the rule's code, name, family and default severity.
+        checks, why, fix, references: the text ``groundcheck explain`` prints.
+        variants: the severities its findings may have, the default first (default: the default
+            severity only).
+        identity: what identifies a finding (one of :data:`IDENTITIES`).
+        actions: the advisor's repair actions for its findings.
+    Returns:
+        the entry.
+    Raises:
+        ValueError: for variants that do not start with the default or name no severity, or an
+        unknown identity.
+    References:
+        none (bookkeeping).
+    """
+    variants = variants or (severity,)
+    if (
+        variants[0] != severity
+        or not set(variants) <= set(SEVERITIES)
+        or identity not in IDENTITIES
+    ):
+        raise ValueError(f"{code}: variants {variants} (default {severity}), identity {identity}")
+    return Rule(
+        code, name, family, severity, checks, why, fix, references, variants, identity, actions
+    )

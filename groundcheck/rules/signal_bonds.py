@@ -1,0 +1,164 @@
+"""GC105, GC106: each signal-ground network's bonds to the chassis: more than one (which to keep,
+nearest the protective earth, and how to undo the others), or none at all.
+
+A pure function of an :class:`~groundcheck.rules.context.AuditContext`, registered under its codes
+(:mod:`groundcheck.rules.registry`).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..model.kinds import PROTECTIVE, is_fastening, joins_devices
+from ..model.records import PE_POINT
+from ..network.graph import part_labels
+from .catalogue import Finding
+from .context import AuditContext
+from .graph_search import bfs
+from .floating import floating_fix as _floating_fix
+from .registry import rule
+
+__all__ = ["rule_signal_bonds"]
+
+
+@rule("GC105", "GC106")
+def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
+    """GC105, GC106: signal grounds bonded to the chassis twice, or floating.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC105, GC106 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    out = []
+    for comp, places in _signal_grounds(ctx):
+        name = _component_name(ctx, comp)
+        if len(places) > 1:
+            desc = ", ".join(f"{p} (by {', '.join(ks)})" for p, ks in sorted(places.items()))
+            bonds = sorted(places)
+            # keep the bond nearest the protective earth
+            keep = _nearest_pe(ctx, bonds)
+            others = [b for b in bonds if b != keep]
+            first_other = places[others[0]][0]
+            actions = _unbond_actions(ctx, others, places)
+            words = "; ".join(
+                ("insulate " + k + " from the metal (insulated socket or shoulder washers)")
+                if verb == "insulate"
+                else f"remove {k}"
+                for verb, k in actions
+            )
+            out.append(
+                Finding(
+                    "GC105",
+                    "warning",
+                    f"signal ground {name} is bonded to the chassis at {len(places)} places: "
+                    f"{desc}",
+                    ctx.loc(first_other),
+                    tuple(k for p in bonds for k in places[p]),
+                    {"bonds": len(places)},
+                    f"keep the bond at {keep}, nearest the protective earth; {words}",
+                    actions,
+                )
+            )
+        elif not places:
+            first = min(ctx.loc(n) for n in comp)
+            out.append(
+                Finding(
+                    "GC106",
+                    "warning",
+                    f"signal ground {name} is floating: it reaches neither the chassis nor the "
+                    "protective earth",
+                    first,
+                    tuple(comp[:12]),
+                    {"points": len(comp)},
+                    _floating_fix(ctx, comp),
+                )
+            )
+    return out
+
+
+def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
+    """Each signal-ground network (a connected part of the graph without the chassis side and
+    protective conductors that holds a signal point): its points, and its bonds to the chassis side
+    by chassis point."""
+    G, side = ctx.G, ctx.chassis_side
+    order = list(G.nodes)
+    idx = {n: i for i, n in enumerate(order)}
+    rows, cols = [], []
+    crossing = []  # (signal-side node, chassis-side node, conductor): the bonds
+    for u, v, k, d in ctx.edges:
+        us, vs = u in side, v in side
+        if not us and not vs:
+            if d["conductor"].role != PROTECTIVE:
+                rows.append(idx[u])
+                cols.append(idx[v])
+        elif us != vs and not joins_devices(d["conductor"]):
+            crossing.append((v, u, k) if us else (u, v, k))
+    n = len(order)
+    _, labels = part_labels(n, rows, cols)
+    members: dict[int, list[str]] = {}
+    for name in order:
+        if name not in side:
+            members.setdefault(int(labels[idx[name]]), []).append(name)
+    bonds_of: dict[int, dict[str, list[str]]] = {}
+    for node, chassis, k in crossing:
+        bonds_of.setdefault(int(labels[idx[node]]), {}).setdefault(chassis, []).append(k)
+    out = []
+    for label in sorted(members, key=lambda k: min(members[k])):
+        comp = sorted(members[label])
+        if set(comp) & ctx.signal_points:
+            out.append((comp, {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}))
+    return out
+
+
+def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple:
+    """How to undo each extra bond: a point of the signal circuit fastened to the metal (a socket)
+    is insulated from it, keeping its own ground wire; any other bond conductor is removed."""
+    actions = []
+    wanted = {p for p in others if p in ctx.signal_points}
+    fastened: dict[str, list[str]] = {}
+    if wanted:  # one pass over the conductors, not one per bond
+        for c in ctx.plan.conductors:
+            for p in {c.a, c.b} & wanted:
+                if is_fastening(c, ctx.metals):
+                    fastened.setdefault(p, []).append(c.name)
+    for p in others:
+        fastenings = fastened.get(p, [])
+        if fastenings:
+            actions.extend(("insulate", k) for k in sorted(fastenings))
+        else:
+            actions.extend(("remove", k) for k in places[p])
+    return tuple(actions)
+
+
+def _component_name(ctx: AuditContext, comp: list[str]) -> str:
+    stars = [
+        n
+        for n in comp
+        if n in ctx.G
+        and ctx.G.nodes[n].get("point") is not None
+        and ctx.G.nodes[n]["point"].kind == "star"
+    ]
+    if stars:
+        return "around " + ", ".join(stars[:3]) + ("…" if len(stars) > 3 else "")
+    return "at " + ", ".join(comp[:3]) + ("…" if len(comp) > 3 else "")
+
+
+def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
+    if PE_POINT not in ctx.G:
+        return candidates[0]
+    dist, _ = bfs(ctx.adj, [PE_POINT], lambda v: v in ctx.chassis_side)
+    # equal hop counts (two studs on the same plate, say) are told apart by the distance on the
+    # plate from the protective earth's own landing point, then by name
+    landings = [q.pos for q in ctx.plan.points if q.pos is not None and dist.get(q.name) == 1]
+
+    def metres(c: str) -> float:
+        point = ctx.plan.point(c)
+        pos = None if point is None else point.pos
+        if pos is None or not landings:
+            return math.inf
+        return min(math.dist(pos, q) for q in landings)
+
+    return min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))

@@ -1,0 +1,158 @@
+"""GC103, GC104: stars that are chains (a return reaching the star through another, a channel's
+star reaching the plan's through another channel's, a supply's returns meeting only at the star),
+and stars with a single branch.
+
+Pure functions of an :class:`~groundcheck.rules.context.AuditContext`, registered under their codes
+(:mod:`groundcheck.rules.registry`).
+"""
+
+from __future__ import annotations
+
+from .catalogue import Finding
+from .context import AuditContext
+from .graph_search import bfs
+from .registry import rule
+from .repairs import supply_ends, supply_meetings
+
+__all__ = ["rule_stars"]
+
+
+@rule("GC103", "GC104")
+def rule_stars(ctx: AuditContext) -> list[Finding]:
+    """GC103, GC104: stars that are chains, stars with one branch.
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        GC103, GC104 findings.
+    References:
+        the rule catalogue (rules/catalogue.py), which names each code's sources.
+    """
+    stars = [p for p in ctx.plan.points if p.kind == "star" and p.name in ctx.G]
+    if not stars:
+        return []
+    groups = {p.name: p.group for p in ctx.plan.points}
+    allowed = lambda v: v not in ctx.metals  # noqa: E731
+    out = _single_branches(ctx, stars)
+    out += _chains(ctx, stars, groups, allowed)
+    out += _stars_through_other_placements(ctx, stars, groups, allowed)
+    out += [
+        Finding("GC103", "warning", msg, loc, elements, {"chained_returns": 1}, fix, acts)
+        for loc, elements, msg, fix, acts in supply_meetings(ctx)
+    ]
+    return out
+
+
+def _single_branches(ctx: AuditContext, stars) -> list[Finding]:
+    """GC104: a star with one conductor."""
+    out = []
+    for s in stars:
+        degree = ctx.G.degree(s.name)
+        if degree == 1:
+            ((u, v, k),) = ctx.G.edges(s.name, keys=True)
+            out.append(
+                Finding(
+                    "GC104",
+                    "note",
+                    f"star {s.name} has a single branch ({k})",
+                    s.location,
+                    (s.name, k),
+                    {"branches": 1},
+                    "connect the returns that should gather there, or call it a junction",
+                )
+            )
+    return out
+
+
+def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
+    """GC103 for returns that reach their star through another return: each terminal belongs to
+    its nearest star; a chain is a terminal whose path passes another terminal."""
+    terminals = {t for t in ctx.signal_points if t in ctx.G and t not in ctx.chassis_side}
+    star_names = {s.name for s in stars}
+    dist, parent = bfs(ctx.adj, sorted(star_names), allowed)
+    chains: dict[str, list[tuple[str, str]]] = {}
+    supplies = supply_ends(ctx.plan)
+    for t in sorted(terminals - star_names):
+        if t not in dist:
+            continue
+        path = [t]
+        while parent[path[-1]] is not None:
+            path.append(parent[path[-1]])
+        star = path[-1]
+        if groups.get(star) and groups.get(t) != groups.get(star):
+            continue  # a star placed in a block or device gathers that placement's returns only
+        via = [
+            n
+            for n in path[1:-1]
+            if n in terminals and frozenset((t, n)) not in ctx.source_pairs | supplies
+        ]
+        if via:
+            chains.setdefault(star, []).append((t, via[0]))
+    out = []
+    for star, pairs in sorted(chains.items()):
+        desc = "; ".join(f"{t} reaches it through {u}" for t, u in pairs)
+        elements = tuple(sorted({star, *(x for p in pairs for x in p)}))
+        first = min((ctx.loc(t) for t, _ in pairs))
+        out.append(
+            Finding(
+                "GC103",
+                "warning",
+                f"star {star} is partly a chain: {desc}",
+                first,
+                elements,
+                {"chained_returns": len(pairs)},
+                "; ".join(f"run {t} to {star} by a wire of its own" for t, _ in pairs),
+            )
+        )
+    return out
+
+
+def _stars_through_other_placements(
+    ctx: AuditContext, stars, groups: dict, allowed
+) -> list[Finding]:
+    """GC103 for a star of one placement (a channel) that reaches the plan's own star only through
+    the star of another placement: its returns then flow in the other channel's star wire
+    (dual-mono practice: each channel's star on a wire of its own to the common star, common
+    practice)."""
+    own = sorted(s.name for s in stars if not groups.get(s.name))
+    placed = [s for s in stars if groups.get(s.name)]
+    if not own or not placed:
+        return []
+    _, parent = bfs(ctx.adj, own, allowed)
+    out = []
+    for s in placed:
+        if s.name not in parent:
+            continue
+        path = [s.name]
+        while parent[path[-1]] is not None:
+            path.append(parent[path[-1]])
+        via = next(
+            (
+                n
+                for n in path[1:-1]
+                if groups.get(n)
+                and groups.get(n) != groups.get(s.name)
+                and ctx.plan.point(n).kind == "star"
+            ),
+            None,
+        )
+        if via is None:
+            continue
+        root, link = (
+            path[-1],
+            next((k for k in ctx.G[s.name].get(via, {}) if path[1] == via), None),
+        )
+        out.append(
+            Finding(
+                "GC103",
+                "warning",
+                f"star {s.name} reaches {root} only through {via}, the star of {groups[via]}: the "
+                f"returns of {groups[s.name]} flow in its wiring",
+                ctx.loc(link) if link else s.location,
+                tuple(sorted({s.name, via, root} | ({link} if link else set()))),
+                {"chained_returns": 1},
+                f"run {s.name} to {root} by a wire of its own",
+                (("reroute", link, root),) if link else (),
+            )
+        )
+    return out
