@@ -99,7 +99,6 @@ STILL_TO_SPLIT_MODULES = {
     "language/phrases.py",
     "language/statements.py",
     "language/supply.py",
-    "model/records.py",
     "physics/bonding_test.py",
     "physics/circuit.py",
     "physics/coupling.py",
