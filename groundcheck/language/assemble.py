@@ -1,12 +1,12 @@
 """Assembling a plan from its built statements: header records, names (each defined once), devices
 merged in, every reference resolved (with "did you mean" hints), automatic names for unnamed
-conductors, and the receiving stages of interconnects."""
+conductors; the inline acceptances (:mod:`.acceptances`) and the receiving stages of interconnects
+(:mod:`.interconnects`) are gathered from their own modules."""
 
 from __future__ import annotations
 
 import difflib
 import math
-import re
 from dataclasses import replace
 from pathlib import Path
 
@@ -25,8 +25,10 @@ from ..model.records import (
     Rectifier,
     Stage,
 )
+from .acceptances import acceptances
 from .devices import merge_device
 from .installation import check_bundles, check_supplies, land_shields, leakage_currents
+from .interconnects import interconnect_inputs
 from .limits import LIMITS
 from .stage_inputs import stage_inputs
 from .transformer import place_transformers
@@ -54,68 +56,54 @@ _HEADER_FIELD = {
 }
 
 
+#: the record types an assembly sorts its built records into
+_GROUPED = (Metal, Point, Conductor, Rectifier, Current, Heater, Stage, FieldSource, Transformer)
+
+
 def _collect(built: list, ld):
     """Sort built records into the header, groups by record type, devices and library folders;
     names once."""
     errors = ld.errors
     header: dict = {}
-    groups: dict[type, list] = {
-        t: []
-        for t in (
-            Metal,
-            Point,
-            Conductor,
-            Rectifier,
-            Current,
-            Heater,
-            Stage,
-            FieldSource,
-            Transformer,
-        )
-    }
+    groups: dict[type, list] = {t: [] for t in _GROUPED}
     names: dict[str, Location] = {}
     devices: list = []
     library_dirs: list[str] = []
     for st, record, refs in built:
         if st.keyword == "library":
             library_dirs.append(record)
-            continue
-        if st.keyword == "device":
-            if record.name in names:
-                errors.append(
-                    PlanError(
-                        f"duplicate name {record.name!r}",
-                        st.label_loc or st.loc,
-                        f"first defined at {names[record.name]}",
-                    )
-                )
-                continue
-            names[record.name] = st.label_loc or st.loc
-            devices.append((record, refs))
-            continue
-        if st.keyword in HEADER_KEYWORDS and st.keyword != "transformer":
+        elif st.keyword == "device":
+            if _new_name(record.name, st, names, errors, reserved=()):
+                devices.append((record, refs))
+        elif st.keyword in HEADER_KEYWORDS and st.keyword != "transformer":
             key = _HEADER_FIELD[st.keyword]
             if key in header:
                 errors.append(PlanError(f"'{st.keyword}' is given twice", st.loc, "keep one"))
             header[key] = record
-            continue
-        name = getattr(record, "name", "")
-        if name:
-            if name in names or name == PE_POINT:
-                first = names.get(name)
-                errors.append(
-                    PlanError(
-                        f"duplicate name {name!r}",
-                        st.label_loc or st.loc,
-                        f"first defined at {first}"
-                        if first
-                        else "mains.pe is the mains inlet's protective terminal",
-                    )
-                )
-                continue
-            names[name] = st.label_loc or st.loc
-        groups[type(record)].append((record, refs))
+        else:
+            name = getattr(record, "name", "")
+            if not name or _new_name(name, st, names, errors, reserved=(PE_POINT,)):
+                groups[type(record)].append((record, refs))
     return header, groups, names, devices, library_dirs
+
+
+def _new_name(name: str, st, names: dict, errors: list, reserved: tuple) -> bool:
+    """Whether ``name`` is defined for the first time (it is then entered in ``names`` with its
+    location); a name defined before, or one of ``reserved``, is a duplicate, reported."""
+    if name in names or name in reserved:
+        first = names.get(name)
+        errors.append(
+            PlanError(
+                f"duplicate name {name!r}",
+                st.label_loc or st.loc,
+                f"first defined at {first}"
+                if first
+                else "mains.pe is the mains inlet's protective terminal",
+            )
+        )
+        return False
+    names[name] = st.label_loc or st.loc
+    return True
 
 
 class _Resolver:
@@ -234,42 +222,6 @@ def _own_references(stages, errors) -> list[Stage]:
     return [st if st.reference != st.b else replace(st, reference=None) for st, *_ in stages]
 
 
-#: an inline acceptance: '# accept GC101: the chassis-structure loop is intended' (codes or rule
-#: names, a reason)
-_ACCEPT = re.compile(
-    r"#\s*accept\s+(?:([A-Za-z][\w-]*(?:\.[\w-]+)+)\s+)?([\w-]+(?:\s*,\s*[\w-]+)*)\s*:\s*"
-    r"(\S.*?)\s*$"
-)
-
-
-def acceptances(sources: dict) -> tuple:
-    """The ``# accept [ELEMENT] CODE[, CODE]: reason`` comments of the plan's files:
-    (file, line, codes, reason, columns, element), ``columns`` the 1-based column of each code (an
-    error points at a word that names no rule), ``element`` a dotted name (``left.in_gnd``: one
-    placement of a block) or None."""
-    out = []
-    for file, lines in sources.items():
-        for i, line in enumerate(lines, 1):
-            if "accept" in line:
-                m = _ACCEPT.search(line)
-                if m:
-                    words = [
-                        (w.group(), m.start(2) + w.start() + 1)
-                        for w in re.finditer(r"[\w-]+", m.group(2))
-                    ]
-                    out.append(
-                        (
-                            file,
-                            i,
-                            tuple(w for w, _ in words),
-                            m.group(3),
-                            tuple(c for _, c in words),
-                            m.group(1),
-                        )
-                    )
-    return tuple(out)
-
-
 def _exposed(m: Metal, mains) -> Metal:
     """A metal part with its accessibility settled: as written, else touchable in class I equipment
     with a mains supply (a part nobody wrote as ``internal`` is treated as one a hand can reach,
@@ -300,32 +252,27 @@ def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) 
     return transformers
 
 
-def assemble(built: list, file: str, ld) -> Plan:
-    """The plan of a file's built ``(statement, record, refs)`` list; errors are added to
-    ``ld.errors``."""
-    header, groups, names, devices, library_dirs = _collect(built, ld)
-    mains = header.get("mains")
-    metals = {m.name: _exposed(m, mains) for m, *_ in groups[Metal]}
-    points = {p.name: p for p, *_ in groups[Point]}
-    if mains is not None:
-        points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
+def _merge_devices(devices: list, ld, library_dirs: list, groups, metals, points, names):
+    """Every placed device's elements merged in (see :func:`~.devices.merge_device`): the
+    devices' own supplies ``((name, V, Hz), location)`` and the device placements with their
+    protection class settled."""
     supplies = []
     classes: dict = {}
     for dev, refs in devices:
         if len(groups[Rectifier]) > LIMITS["rectifiers"]:
-            break  # over the limit (said below): no more devices merged
+            break  # over the limit (said by _rectifier_limit): no more devices merged
         supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names, classes)
         if supply is not None:
             supplies.append((supply, dev.location))
-    check_supplies(supplies, mains, header.get("supply"), ld.errors)
     placed = {
         d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class))
         for d, _ in devices
     }
-    transformers = _transformers_and_leakage(
-        groups, header.get("supply"), points, placed, supplies, ld.errors
-    )
-    nodes = set(points) | set(metals)
+    return supplies, placed
+
+
+def _check_outlets(devices: list, groups, nodes: set, ld) -> None:
+    """Each device and each isolating transformer plugged into an outlet that is defined."""
     isolating = [(t, r) for t, r, *_ in groups[Transformer] if t.isolating]  # no cord to check
     for dev, refs in [*devices, *isolating]:
         if dev.plugged is not None and dev.plugged not in nodes and dev.plugged not in ld.broken:
@@ -336,9 +283,13 @@ def assemble(built: list, file: str, ld) -> Plan:
                     f"define it with 'point {dev.plugged}: outlet'",
                 )
             )
+
+
+def _rectifier_limit(groups, errors: list) -> None:
+    """Devices' rectifiers count towards the plan's limit (each is simulated in time)."""
     if len(groups[Rectifier]) > LIMITS["rectifiers"]:
         r0 = groups[Rectifier][LIMITS["rectifiers"]][0]
-        ld.errors.append(
+        errors.append(
             LimitError(
                 f"the plan has {len(groups[Rectifier])} rectifiers, over the limit of "
                 f"{LIMITS['rectifiers']} (each is simulated in time)",
@@ -346,6 +297,25 @@ def assemble(built: list, file: str, ld) -> Plan:
                 "describe a rack's identical supplies once, or split the installation",
             )
         )
+
+
+def assemble(built: list, file: str, ld) -> Plan:
+    """The plan of a file's built ``(statement, record, refs)`` list; errors are added to
+    ``ld.errors``."""
+    header, groups, names, devices, library_dirs = _collect(built, ld)
+    mains = header.get("mains")
+    metals = {m.name: _exposed(m, mains) for m, *_ in groups[Metal]}
+    points = {p.name: p for p, *_ in groups[Point]}
+    if mains is not None:
+        points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
+    supplies, placed = _merge_devices(devices, ld, library_dirs, groups, metals, points, names)
+    check_supplies(supplies, mains, header.get("supply"), ld.errors)
+    transformers = _transformers_and_leakage(
+        groups, header.get("supply"), points, placed, supplies, ld.errors
+    )
+    nodes = set(points) | set(metals)
+    _check_outlets(devices, groups, nodes, ld)
+    _rectifier_limit(groups, ld.errors)
     check = _Resolver(ld)
     _check_points(groups, metals, check, ld.errors)
     conductors = _measured(_conductors(groups, nodes, check), points, ld.errors)
@@ -356,20 +326,7 @@ def assemble(built: list, file: str, ld) -> Plan:
         conductors,
         [r for g in (Current, Rectifier) for r, *_ in groups[g]],
     )
-    for c in conductors:
-        if joins_devices(c) and c.gain is not None:
-            gain = c.gain - (balanced_rejection(c) if c.balanced else 0.0)
-            stages.append(
-                Stage(
-                    f"{c.name}.input",
-                    c.a,
-                    c.b,
-                    gain,
-                    c.channel or "main",
-                    c.location,
-                    across=c.name,
-                )
-            )
+    stages += interconnect_inputs(conductors)
     if placed:
         conductors = land_shields(conductors, placed, metals, ld.errors)
     check_bundles(conductors, ld.errors)
@@ -396,31 +353,3 @@ def assemble(built: list, file: str, ld) -> Plan:
         devices=tuple(placed.values()),
         transformers=tuple(transformers),
     )
-
-
-#: a balanced input's common-mode rejection when neither it nor the imbalance is stated, dB (an
-#: assumption)
-DEFAULT_CMRR = 50.0
-#: no balanced input rejects better than this, dB (a perfectly matched source still leaves the
-#: input's own)
-MAX_CMRR = 200.0
-
-
-def balanced_rejection(c) -> float:
-    """The common-mode rejection (dB) of a balanced interconnect's receiving input: from the
-    source-impedance imbalance ΔZ against the input's common-mode impedance Zcm per leg when
-    stated, CMRR = 20·log10((Zcm + ΔZ)/ΔZ) (the common-mode voltage divides unequally between the
-    legs; B. Whitlock, "Balanced lines in audio systems", J. Audio Eng. Soc. 43(6), 1995, from
-    memory); the lower of that and the input's own stated CMRR when both are given; else the stated
-    CMRR, else :data:`DEFAULT_CMRR`."""
-    own = c.cmrr
-    if c.imbalance is None:
-        return DEFAULT_CMRR if own is None else own
-    from math import log10
-
-    by_imbalance = (
-        MAX_CMRR
-        if c.imbalance == 0
-        else min(MAX_CMRR, 20 * log10((c.common_mode + c.imbalance) / c.imbalance))
-    )
-    return by_imbalance if own is None else min(own, by_imbalance)

@@ -122,32 +122,9 @@ def conductor(stmt: Statement):
         r = Reader(ph, stmt)
         first = ph[0]  # phrases are never empty
         if first.kind == "qty":
-            it = r.next("")
-            field = _CONDUCTOR_QTY.get(it.qkind)
-            if field is None or (field in only and field not in row.attributes):
-                lifts = _a(" or ".join(only.get("capacitance", ())))
-                raise PlanError(
-                    f"{kind}: a {it.qkind} is not expected here",
-                    it.loc,
-                    "give lengths, areas (mm2 or AWG) and resistances; a capacitance only on "
-                    f"{lifts}",
-                )
-            kw[field] = check_quantity(it, it.qkind, field, allow_zero=field == "resistance")
-            if field == "area" and it.text.upper().endswith("AWG"):
-                kw["diameter"] = (
-                    4 * kw["area"] / 3.141592653589793
-                ) ** 0.5  # the area is AWG 0000-aware
+            _bare_quantity(r, kind, row, only, kw)
         elif first.kind == "word" and first.value.upper() == "AWG":
-            r.next("")
-            n = r.number("an AWG size")
-            if n != int(n) or not -3 <= n <= 46:
-                raise PlanError(
-                    f"AWG size {n:g} is not a whole gauge",
-                    first.loc,
-                    "use a size from 0000 (-3) to 46",
-                )
-            d = awg_diameter(n)
-            kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
+            _awg(r, first, kw)
         elif first.kind == "word" and first.value in ROLES:
             kw["role"] = r.word()
         elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
@@ -170,6 +147,38 @@ def conductor(stmt: Statement):
     return make(
         Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw
     ), refs
+
+
+def _bare_quantity(r: Reader, kind: str, row, only: dict, kw: dict) -> None:
+    """A quantity written without a word: the length, area, resistance or capacitance (the last
+    only on the kinds that take one)."""
+    it = r.next("")
+    field = _CONDUCTOR_QTY.get(it.qkind)
+    if field is None or (field in only and field not in row.attributes):
+        lifts = _a(" or ".join(only.get("capacitance", ())))
+        raise PlanError(
+            f"{kind}: a {it.qkind} is not expected here",
+            it.loc,
+            f"give lengths, areas (mm2 or AWG) and resistances; a capacitance only on {lifts}",
+        )
+    kw[field] = check_quantity(it, it.qkind, field, allow_zero=field == "resistance")
+    if field == "area" and it.text.upper().endswith("AWG"):
+        # the area is AWG 0000-aware
+        kw["diameter"] = (4 * kw["area"] / 3.141592653589793) ** 0.5
+
+
+def _awg(r: Reader, first, kw: dict) -> None:
+    """``AWG 20``: a whole gauge from 0000 (-3) to 46, its area and diameter."""
+    r.next("")
+    n = r.number("an AWG size")
+    if n != int(n) or not -3 <= n <= 46:
+        raise PlanError(
+            f"AWG size {n:g} is not a whole gauge",
+            first.loc,
+            "use a size from 0000 (-3) to 46",
+        )
+    d = awg_diameter(n)
+    kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
 
 
 #: what a kind that reads its values as bare quantities says beside an unknown attribute

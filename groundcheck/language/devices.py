@@ -234,32 +234,17 @@ def merge_device(
     Returns the device's supply (name, volts, hertz) when its plan states one; a device whose own
     plan is class II is entered in ``classes`` (device name -> "II") and gets no protective
     conductor in its cord."""
-    errors = ld.errors
-    supply = None
-    if dev.source == "simple":
-        sub = simple_device(dev)
-        cord_default = DEFAULT_CORD
-    else:
-        loaded = _device_plan(dev, ld, library_dirs)
-        if loaded is None:
-            return
-        prefix = dev.name + "."
-        sub = prefixed(loaded, prefix)
-        m = loaded.mains
-        cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
-        supply = (dev.name, m.voltage, m.frequency) if m else None
-        if m is not None and m.equipment_class == "II":
-            classes[dev.name] = (
-                "II"  # its cord has no protective conductor, as a class II simple device's
-            )
-    tf = Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0)
+    got = _device_elements(dev, ld, library_dirs, classes)
+    if got is None:
+        return None
+    sub, cord_default, supply = got
     taken = [
         x.name
         for x in (*sub.metals, *sub.points, *sub.conductors)
         if x.name in names or x.name in points or x.name in metals
     ]
     if taken:
-        errors.append(
+        ld.errors.append(
             PlanError(
                 f"device {dev.name}'s element {taken[0]!r} has the name of an element of the plan",
                 names.get(taken[0], dev.location),
@@ -268,6 +253,52 @@ def merge_device(
             )
         )
         return supply
+    _moved_in(
+        sub,
+        Transform(dev.at[0], dev.at[1], 1.0, -1.0 if dev.mirror else 1.0),
+        groups,
+        metals,
+        points,
+    )
+    pe = f"{dev.name}.{PE_POINT}"
+    if (
+        dev.plugged is not None
+        and pe in points
+        and classes.get(dev.name, dev.equipment_class) == "I"
+    ):
+        cord = Conductor(
+            f"{dev.name}.cord",
+            CORD_KIND,
+            pe,
+            dev.plugged,
+            role=PROTECTIVE,
+            length=dev.cord_length or cord_default[0],
+            area=dev.cord_area or cord_default[1],
+            location=dev.location,
+        )
+        groups[Conductor].append((cord, {}))
+    return supply
+
+
+def _device_elements(dev: Device, ld, library_dirs: list[str], classes: dict):
+    """A device's plan with its names prefixed, the cord its plan gives (length, area), and its
+    supply (name, volts, hertz) or None; None when its plan does not load (the error said)."""
+    if dev.source == "simple":
+        return simple_device(dev), DEFAULT_CORD, None
+    loaded = _device_plan(dev, ld, library_dirs)
+    if loaded is None:
+        return None
+    m = loaded.mains
+    cord_default = (m.cord_length, m.cord_section) if m else DEFAULT_CORD
+    supply = (dev.name, m.voltage, m.frequency) if m else None
+    if m is not None and m.equipment_class == "II":
+        # its cord has no protective conductor, as a class II simple device's
+        classes[dev.name] = "II"
+    return prefixed(loaded, dev.name + "."), cord_default, supply
+
+
+def _moved_in(sub: Plan, tf: Transform, groups: dict, metals: dict, points: dict) -> None:
+    """A device plan's elements moved to the device's place and added to the installation's."""
     for x in sub.metals:
         size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
         metals[x.name] = replace(x, origin=tf(x.origin), size=size)
@@ -275,39 +306,16 @@ def merge_device(
         points[x.name] = replace(x, pos=tf(x.pos))
     for x in sub.conductors:
         groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
-    for kind in (Rectifier, Current, Heater):
-        for x in getattr(
-            sub, {Rectifier: "rectifiers", Current: "currents", Heater: "heaters"}[kind]
-        ):
-            groups[kind].append(
-                (replace(x, route=tuple(tf(q) for q in x.route)) if kind is Heater else x, {})
-            )
+    for x in sub.rectifiers:
+        groups[Rectifier].append((x, {}))
+    for x in sub.currents:
+        groups[Current].append((x, {}))
+    for x in sub.heaters:
+        groups[Heater].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
     for x in sub.stages:
         groups[Stage].append((x, {}))
     for x in sub.fields:
         groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
-    pe = f"{dev.name}.{PE_POINT}"
-    if (
-        dev.plugged is not None
-        and pe in points
-        and classes.get(dev.name, dev.equipment_class) == "I"
-    ):
-        groups[Conductor].append(
-            (
-                Conductor(
-                    f"{dev.name}.cord",
-                    CORD_KIND,
-                    pe,
-                    dev.plugged,
-                    role=PROTECTIVE,
-                    length=dev.cord_length or cord_default[0],
-                    area=dev.cord_area or cord_default[1],
-                    location=dev.location,
-                ),
-                {},
-            )
-        )
-    return supply
 
 
 def prefixed(p: Plan, prefix: str) -> Plan:

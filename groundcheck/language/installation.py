@@ -121,24 +121,10 @@ def leakage_currents(
         return []
     out = []
     for dev in devices:
-        own = supplies.get(dev.name)
-        volts, hz = (
-            own if own else ((supply.voltage, supply.frequency) if supply else (None, None))
-        )
-        behind = (feeds or {}).get(dev.plugged)
-        if behind is not None and behind.isolating:
+        leak = _leakage(dev, supplies.get(dev.name), supply, feeds or {})
+        if leak is None:
             continue
-        if supply is not None:
-            volts, hz = supply_at(dev.plugged, feeds or {}, supply)
-        if dev.leakage is not None:
-            amps = dev.leakage
-        elif volts is None:
-            continue
-        else:
-            c = dev.y_capacitance
-            if c is None and dev.source == "simple":
-                c = DEFAULT_Y_CAPACITANCE[dev.equipment_class]
-            amps = volts * 2 * math.pi * hz * c if c else 0.0
+        amps, hz = leak
         start = (
             f"{dev.name}.{PE_POINT}"
             if dev.equipment_class == "I"
@@ -159,6 +145,26 @@ def leakage_currents(
                 )
             )
     return out
+
+
+def _leakage(dev: Device, own, supply, feeds: dict) -> tuple | None:
+    """A device's leakage current (A) and its frequency (Hz, or None when unknown): stated, else
+    from its Y capacitance at the voltage where it is plugged in; None when none of it reaches the
+    main earthing terminal (behind an isolating transformer) or its voltage is unknown."""
+    volts, hz = own if own else ((supply.voltage, supply.frequency) if supply else (None, None))
+    behind = feeds.get(dev.plugged)
+    if behind is not None and behind.isolating:
+        return None
+    if supply is not None:
+        volts, hz = supply_at(dev.plugged, feeds, supply)
+    if dev.leakage is not None:
+        return dev.leakage, hz
+    if volts is None:
+        return None
+    c = dev.y_capacitance
+    if c is None and dev.source == "simple":
+        c = DEFAULT_Y_CAPACITANCE[dev.equipment_class]
+    return (volts * 2 * math.pi * hz * c if c else 0.0), hz
 
 
 def land_shields(

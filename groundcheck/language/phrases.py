@@ -14,8 +14,19 @@ from typing import Any, NamedTuple
 
 from ..core.errors import Location, PlanError
 from ..core.units import UnitError, parse_quantity, unit_kind
+from .quantities import PLAUSIBLE, RANGES, check_plausible, check_quantity, check_range
 
-__all__ = ["Item", "Statement", "split_phrases", "Reader"]
+#: the range checks live in :mod:`.quantities`; the builders import them from here too
+__all__ = [
+    "Item",
+    "Statement",
+    "split_phrases",
+    "Reader",
+    "check_quantity",
+    "check_range",
+    "RANGES",
+    "PLAUSIBLE",
+]
 
 
 class Item(NamedTuple):
@@ -93,11 +104,7 @@ def split_phrases(
                 cur.append(_plain(pend))
                 pend = None
             if not cur and not dropped:
-                errors.append(
-                    PlanError(
-                        "unexpected ','", Location(file, line, col), "an attribute is missing here"
-                    )
-                )
+                errors.append(_empty_phrase(Location(file, line, col)))
                 return []
             phrases.append(cur)
             cur = []
@@ -122,30 +129,41 @@ def split_phrases(
         elif g == STRING:
             cur.append(_new(Item, ("string", value[1:-1], loc, value[1:-1], None)))
         else:
-            hint = (
-                "only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) "
-                "take none"
-                if value == ":"
-                else NOT_ASCII
-                if not value.isascii()
-                else "names start with a letter; positions are x,y with no space; strings use "
-                "double quotes"
-            )
-            code = "" if value.isascii() else f" (U+{ord(value):04X})"
-            errors.append(PlanError(f"unexpected character {value!r}{code}", loc, hint))
+            errors.append(_unexpected(value, loc))
             return []
     if pend is not None:
         cur.append(_plain(pend))
     if not (cur or dropped) and phrases:  # a trailing comma
-        errors.append(
-            PlanError(
-                "the statement ends with a comma",
-                Location(file, line, len(text) - line_start + 1),
-                "remove the comma, or continue the attributes on the next line",
-            )
-        )
+        errors.append(_trailing_comma(Location(file, line, len(text) - line_start + 1)))
         return []
     return phrases + [cur] if (cur or dropped) else phrases
+
+
+def _empty_phrase(loc: Location) -> PlanError:
+    return PlanError("unexpected ','", loc, "an attribute is missing here")
+
+
+def _trailing_comma(loc: Location) -> PlanError:
+    return PlanError(
+        "the statement ends with a comma",
+        loc,
+        "remove the comma, or continue the attributes on the next line",
+    )
+
+
+def _unexpected(value: str, loc: Location) -> PlanError:
+    """A character that starts no item: a colon where no name is taken, a letter or digit outside
+    ASCII, anything else."""
+    hint = (
+        "only elements take 'NAME:'; header keywords (plan, mains, ambient, listening) take none"
+        if value == ":"
+        else NOT_ASCII
+        if not value.isascii()
+        else "names start with a letter; positions are x,y with no space; strings use double "
+        "quotes"
+    )
+    code = "" if value.isascii() else f" (U+{ord(value):04X})"
+    return PlanError(f"unexpected character {value!r}{code}", loc, hint)
 
 
 _TAKEN, _DROPPED = 1, 2
@@ -277,14 +295,7 @@ class Reader:
         """A protective rating, which must also lie in its plausible range (:data:`PLAUSIBLE`)."""
         it = self.peek()
         v = self.quantity(PLAUSIBLE[word][2], what, allow_zero=allow_zero)
-        lo, hi, kind, unit, source = PLAUSIBLE[word]
-        if not (allow_zero and v == 0) and not lo * (1 - 1e-9) <= v <= hi * (1 + 1e-9):
-            raise PlanError(
-                f"{what} {it.text} is outside the plausible range {_si(lo, unit)} to "
-                f"{_si(hi, unit)}",
-                it.loc,
-                f"{source}; see 'Plausible ratings' in docs/language.md",
-            )
+        check_plausible(v, word, what, it, allow_zero)
         return v
 
     def number(self, what: str) -> float:
@@ -314,166 +325,3 @@ class Reader:
                 it.loc,
                 "separate attributes with commas",
             )
-
-
-def check_quantity(
-    it: Item, kind: str, what: str, positive: bool = True, allow_zero: bool = False
-) -> float:
-    """The SI value of ``it`` if it is a quantity of ``kind``, else a :class:`PlanError` at the
-    item."""
-    if it.kind == "number":
-        raise PlanError(
-            f"{what} needs a unit", it.loc, f"give a {kind}, e.g. with {_example_unit(kind)}"
-        )
-    if it.kind != "qty":
-        raise PlanError(f"expected {what} ({kind}), found {it.text!r}", it.loc, "")
-    if it.qkind != kind:
-        raise PlanError(
-            f"{what} must be a {kind}, not a {it.qkind}",
-            it.loc,
-            f"use a {kind} unit such as {_example_unit(kind)}",
-        )
-    v = it.value
-    check_range(v, kind, what, it.loc, it.text)
-    if kind == "temperature":
-        return v
-    if positive and (v < 0 or (v == 0 and not allow_zero)):
-        raise PlanError(
-            f"{what} must be {'zero or more' if allow_zero else 'more than zero'}, got {it.text}",
-            it.loc,
-            "",
-        )
-    return v
-
-
-#: the physical range of each kind of quantity, SI: (smallest magnitude other than zero, largest
-#: magnitude). Wide enough for any audio installation, narrow enough that no analysis meets an
-#: infinity, a NaN, an overflow or an absurd allocation (common practice for input validation; the
-#: bounds are the project's own)
-RANGES = {
-    "length": (1e-7, 5e3),
-    "area": (1e-13, 1e-2),
-    "resistance": (1e-15, 1e15),
-    "current": (1e-12, 1e5),
-    "voltage": (1e-9, 1e6),
-    "frequency": (1e-2, 1e6),
-    "flux density": (1e-12, 10.0),
-    "capacitance": (1e-15, 10.0),
-    "inductance": (1e-12, 1e4),
-    "level": (0.0, 300.0),
-    "temperature": (0.0, 1000.0),
-    "time": (1e-9, 1e6),
-    "energy integral": (1e-9, 1e12),
-    "resistance per length": (1e-9, 1e9),
-    "apparent power": (1e-3, 1e8),
-    "number": (0.0, 1e9),
-    "position": (0.0, 1e4),
-}
-#: ratings of protection and of the earth path that a real installation can have: word -> (lowest,
-#: highest, kind, unit, source).  A value outside is a typing slip (a nanoampere breaker, a loop of
-#: no impedance) that would make a danger vanish; it is refused where it is written
-PLAUSIBLE = {
-    "fuse": (
-        1e-3,
-        125.0,
-        "current",
-        "A",
-        "miniature fuses (IEC 60127) start at a few mA; a final circuit's fuse is at most 125 A "
-        "(from memory)",
-    ),
-    "breaker": (
-        0.5,
-        125.0,
-        "current",
-        "A",
-        "IEC 60898-1 covers breakers rated up to 125 A; the smallest made are 0.5 A (from memory)",
-    ),
-    "rcd": (
-        4e-3,
-        3.0,
-        "current",
-        "A",
-        "residual-current devices trip from 4-6 mA (UL 943 class A) to 30 mA, 100 mA, 300 mA, 500 "
-        "mA and a few A (IEC 61008-1, IEC 60947-2 Annex B; from memory)",
-    ),
-    "loop-impedance": (
-        0.01,
-        100e3,
-        "resistance",
-        "Ω",
-        "an external earth-fault loop is never below about 10 mΩ, even beside the transformer; a "
-        "TT loop with a poor electrode reaches tens of kΩ (common practice)",
-    ),
-    "electrode": (
-        0.1,
-        100e3,
-        "resistance",
-        "Ω",
-        "an earth electrode is 0.1 Ω (a foundation electrode) to tens of kΩ (dry rock); over 200 "
-        "Ω may not be stable (common practice)",
-    ),
-    "leakage": (
-        0.0,
-        0.1,
-        "current",
-        "A",
-        "a device's protective-conductor current is at most some mA (IEC 60950-1 5.1.7 sets 3.5 "
-        "mA for a plug-connected device); 100 mA is far beyond any (common practice)",
-    ),
-}
-
-
-def _si(v: float, unit: str) -> str:
-    for scale, prefix in ((1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ")):
-        if v >= scale or scale == 1e-6:
-            return f"{v / scale:g} {prefix}{unit}"
-    return f"{v:g} {unit}"
-
-
-#: the lowest temperature accepted, °C (copper's resistivity would vanish near −234.5 °C)
-MIN_TEMPERATURE = -200.0
-
-
-def check_range(v: float, kind: str, what: str, loc: Location, text: str) -> None:
-    """A :class:`PlanError` at ``loc`` unless ``v`` is finite and within the physical range of
-    ``kind``."""
-    if v != v or v in (float("inf"), float("-inf")):
-        raise PlanError(
-            f"{what} must be a finite number, got {text}",
-            loc,
-            "write the value in ordinary digits",
-        )
-    lo, hi = RANGES.get(kind, (0.0, 1e12))
-    if kind == "temperature" and v < MIN_TEMPERATURE:
-        raise PlanError(
-            f"{what} {text} is below {MIN_TEMPERATURE:g} C",
-            loc,
-            "give a temperature from -200 C to 1000 C",
-        )
-    if abs(v) > hi or (v != 0 and abs(v) < lo):
-        raise PlanError(
-            f"{what} {text} is outside the range groundcheck accepts for a {kind} ({lo:g} to "
-            f"{hi:g} in SI units)",
-            loc,
-            f"check the number and its unit ({_example_unit(kind)})",
-        )
-
-
-def _example_unit(kind: str) -> str:
-    return {
-        "length": "mm",
-        "area": "mm2 or AWG",
-        "resistance": "ohm or mohm",
-        "current": "A or mA",
-        "voltage": "V",
-        "frequency": "Hz",
-        "flux density": "uT",
-        "capacitance": "uF",
-        "level": "dB",
-        "temperature": "C",
-        "time": "s or ms",
-        "energy integral": "A2s",
-        "inductance": "uH",
-        "resistance per length": "mohm/m",
-        "apparent power": "VA or kVA",
-    }.get(kind, "a unit")

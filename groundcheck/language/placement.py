@@ -81,10 +81,6 @@ def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str]
     """
     if not prefix:
         return record
-    channel = prefix.split(".")[0]
-    explicit_channel = any(
-        ph and ph[0].kind == "word" and ph[0].value == "channel" for ph in st.phrases
-    )
 
     def res(name):
         for k, (pfx, local) in enumerate(scopes):
@@ -105,6 +101,16 @@ def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str]
             on=res(record.on),
             group=prefix.rstrip("."),
         )
+    if isinstance(record, FieldSource):
+        return replace(record, name=prefix + record.name, pos=tf(record.pos))
+    return _rewired(record, st, prefix, tf, res)
+
+
+def _rewired(record, st, prefix: str, tf: Transform, res):
+    """A record between two points placed: renamed, its ends (and reference) looked up with
+    ``res``, its route moved, and its channel the placement's unless the statement names one."""
+    explicit = any(ph and ph[0].kind == "word" and ph[0].value == "channel" for ph in st.phrases)
+    channel = prefix.split(".")[0]
     if isinstance(record, Conductor):
         return replace(
             record,
@@ -112,20 +118,19 @@ def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str]
             a=res(record.a),
             b=res(record.b),
             route=tuple(tf(p) for p in record.route),
-            channel=record.channel if explicit_channel else channel,
+            channel=record.channel if explicit else channel,
         )
     if isinstance(record, Rectifier):
-        ch = record.channel if explicit_channel else channel
         return replace(
             record,
             name=prefix + record.name,
             a=res(record.a),
             b=res(record.b),
-            channel=ch,
+            channel=record.channel if explicit else channel,
             filter_point=res(record.filter_point),
         )
     if isinstance(record, Current):
-        ch = record.channel if explicit_channel else channel
+        ch = record.channel if explicit else channel
         return replace(
             record, name=prefix + record.name, a=res(record.a), b=res(record.b), channel=ch
         )
@@ -136,7 +141,7 @@ def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str]
             a=res(record.a),
             b=res(record.b),
             reference=res(record.reference),
-            channel=record.channel if explicit_channel else channel,
+            channel=record.channel if explicit else channel,
         )
     if isinstance(record, Heater):
         return replace(
@@ -147,6 +152,4 @@ def place(record, st, prefix: str, tf: Transform, scopes: tuple, outer: set[str]
             reference=res(record.reference),
             route=tuple(tf(p) for p in record.route),
         )
-    if isinstance(record, FieldSource):
-        return replace(record, name=prefix + record.name, pos=tf(record.pos))
     return record

@@ -5,17 +5,21 @@ Names inside a record are still as written (resolved later by the loader) and
 positions are in the frame of the block being placed.  Each builder returns
 ``(record, refs)`` where ``refs`` maps a field holding a name to the location
 of that name, so an undefined name is reported where it was written.
+
+This module builds the elements of a chassis (metal parts, points, stages, field sources) and
+gathers every builder in :data:`BUILDERS`: the header statements are in :mod:`.headers`, the
+conductors in :mod:`.conductors`, the supply statements in :mod:`.supply` and the transformer in
+:mod:`.transformer`.
 """
 
 from __future__ import annotations
 
-from pathlib import PurePath
-
 from ..core.errors import PlanError
 from ..core.units import ratio_of_db
 from ..model.kinds import CONDUCTOR_KINDS, KINDS
-from ..model.records import Device, FieldSource, Listening, Metal, Point, Stage, make
+from ..model.records import FieldSource, Metal, Point, Stage, make
 from .conductors import conductor
+from .headers import ambient, device, library, listening, plan_header
 from .phrases import Reader, Statement, check_quantity
 from .reading import (
     FIELD_KINDS,
@@ -26,7 +30,6 @@ from .reading import (
     it_number,
     material,
     need_label,
-    no_label,
     unknown,
 )
 from .supply import current, heater, mains, rectifier, supply
@@ -37,73 +40,6 @@ __all__ = ["BUILDERS", "KEYWORDS", "build", "builder_of", "MAX_PART_SIDE"]
 #: the largest metal part, m: a rack or a bench is a few metres (the plate model's grid is sized
 #: for parts)
 MAX_PART_SIDE = 10.0
-
-
-def plan_header(stmt: Statement):
-    no_label(stmt)
-    if len(stmt.phrases) != 1 or len(stmt.phrases[0]) != 1 or stmt.phrases[0][0].kind != "string":
-        raise PlanError("plan takes a quoted title", stmt.loc, 'write: plan "My amplifier"')
-    return stmt.phrases[0][0].value, {}
-
-
-def ambient(stmt: Statement):
-    no_label(stmt)
-    if len(stmt.phrases) != 1:
-        raise PlanError("ambient takes one temperature", stmt.loc, "e.g. 'ambient 35 C'")
-    r = Reader(stmt.phrases[0], stmt)
-    t = r.quantity("temperature", "ambient temperature")
-    r.finish()
-    return t, {}
-
-
-def listening(stmt: Statement):
-    no_label(stmt)
-    kw: dict = {}
-    spec = {
-        "output": ("rated_output", "voltage"),
-        "amp-gain": ("amp_gain", "level"),
-        "speaker": ("sensitivity", "level"),
-        "impedance": ("impedance", "resistance"),
-        "distance": ("distance", "length"),
-    }
-    for ph in stmt.phrases:
-        r = Reader(ph, stmt)
-        first = r.peek()
-        word = r.word("an attribute")
-        if word == "speakers":
-            n = r.number("the number of speakers")
-            if n != int(n) or not 1 <= n <= 16:
-                raise PlanError(
-                    "speakers takes a whole number from 1 to 16", first.loc, "e.g. 'speakers 2'"
-                )
-            kw["speakers"] = int(n)
-        elif word == "room-gain":
-            kw["room_gain"] = r.quantity("level", "room gain", positive=False)
-        elif word == "background":
-            kw["background"] = r.quantity(
-                "level", "background noise per third-octave band", positive=False
-            )
-        elif word == "headphones":
-            kw["phones"] = r.quantity("level", "headphone sensitivity", positive=False)
-            r.expect("per")
-            kw["phones_per"] = r.word(
-                "the sensitivity's reference power or voltage (mW or V)", ("mW", "V")
-            )
-        elif word in spec:
-            field, kind = spec[word]
-            kw[field] = r.quantity(kind, word, positive=kind != "level")
-        else:
-            raise unknown(
-                stmt, first, (*spec, "speakers", "room-gain", "headphones", "background")
-            )
-        r.finish()
-    if "phones" in kw and "sensitivity" in kw:
-        raise PlanError(
-            "listening gives both a speaker and headphones",
-            stmt.loc,
-            "describe one listening chain per plan: 'speaker 88 dB' or 'headphones 100 dB per mW'",
-        )
-    return Listening(location=stmt.loc, **kw), {}
 
 
 def metal(stmt: Statement):
@@ -207,7 +143,6 @@ def point(stmt: Statement):
     return make(Point, name=name, location=stmt.loc, **kw), refs
 
 
-#: attributes of a conductor that start with a word of their own
 def stage(stmt: Statement):
     name = need_label(stmt)
     refs: Refs = {}
@@ -289,116 +224,6 @@ def field_source(stmt: Statement):
             "size, or axis z",
         )
     return FieldSource(name=name, harmonics=tuple(harmonics), location=stmt.loc, **kw), {}
-
-
-def device(stmt: Statement):
-    name = need_label(stmt)
-    if not stmt.phrases:
-        raise PlanError(
-            "device needs its plan file or 'simple'",
-            stmt.loc,
-            'e.g. device amp: "amp.gplan", plugged wall1',
-        )
-    first = stmt.phrases[0]
-    if (
-        len(first) != 1
-        or first[0].kind not in ("string", "word")
-        or (first[0].kind == "word" and first[0].value != "simple")
-    ):
-        raise PlanError(
-            "device: first give a quoted plan file or the word simple",
-            first[0].loc,
-            'e.g. device amp: "amp.gplan" or device mixer: simple',
-        )
-    kw: dict = {"source": first[0].value}
-    refs: Refs = {}
-    for ph in stmt.phrases[1:]:
-        r = Reader(ph, stmt)
-        it = r.peek()
-        word = r.word("an attribute")
-        if word == "at":
-            kw["at"] = r.coord()
-        elif word == "mirror":
-            kw["mirror"] = True
-        elif word == "plugged":
-            r.keyword("into")
-            kw["plugged"], refs["plugged"] = r.name("an outlet")
-        elif word == "cord":
-            kw["cord_length"] = r.quantity("length", "cord length")
-            if not r.done:
-                kw["cord_area"] = r.quantity("area", "cord conductor area")
-        elif word == "signal-ground":
-            kw["signal_ground"] = r.word(
-                "chassis, lift or floating", ("chassis", "lift", "floating")
-            )
-        elif word == "leakage":
-            kw["leakage"] = r.rating(
-                "leakage", "protective-conductor (leakage) current", allow_zero=True
-            )
-        elif word == "y-capacitor":
-            kw["y_capacitance"] = r.quantity(
-                "capacitance", "line-to-chassis capacitance", allow_zero=True
-            )
-        elif word == "class":
-            kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
-        elif word == "draws":
-            kw["draws"] = r.quantity("apparent power", "apparent power drawn")
-        elif word == "sockets":
-            kw["sockets"] = r.word("balanced or unbalanced", ("balanced", "unbalanced"))
-        else:
-            raise unknown(
-                stmt,
-                it,
-                (
-                    "at",
-                    "mirror",
-                    "plugged",
-                    "cord",
-                    "signal-ground",
-                    "leakage",
-                    "y-capacitor",
-                    "class",
-                    "draws",
-                    "sockets",
-                ),
-            )
-        r.finish()
-    if "sockets" in kw and kw["source"] != "simple":
-        raise PlanError(
-            "'sockets' is an attribute of a simple device",
-            stmt.loc,
-            "a device with a plan of its own shows its sockets in that plan (an unbalanced "
-            "socket's return is a 'sleeve' point)",
-        )
-    if kw.get("equipment_class") == "II" and kw["source"] != "simple":
-        raise PlanError(
-            "class II is an attribute of a simple device",
-            stmt.loc,
-            "a device with a plan of its own states 'class II' in that plan's mains statement",
-        )
-    if "leakage" in kw and "y_capacitance" in kw:
-        raise PlanError(
-            "device gives both its leakage and its Y capacitance",
-            stmt.loc,
-            "keep one: the leakage current is the supply voltage times 2·π·f·C",
-        )
-    return Device(name=name, location=stmt.loc, **kw), refs
-
-
-def library(stmt: Statement):
-    no_label(stmt)
-    if len(stmt.phrases) != 1 or len(stmt.phrases[0]) != 1 or stmt.phrases[0][0].kind != "string":
-        raise PlanError("library takes one quoted folder", stmt.loc, 'e.g. library "devices"')
-    item = stmt.phrases[0][0]
-    folder = PurePath(item.value)
-    if folder.is_absolute() or ".." in folder.parts:
-        raise PlanError(
-            f"library {item.value!r} lies outside the plan's folder",
-            item.loc,
-            "a plan's library is a folder inside its own folder; name other folders with "
-            "GROUNDCHECK_LIBRARY",
-        )
-    return item.value, {}
 
 
 BUILDERS = {

@@ -1,0 +1,106 @@
+"""The plan's supply records: the mains of one piece of equipment, an installation's supply, and
+the listening chain where hum ends up.  SI units, as every record of :mod:`.records`."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..core.errors import Location
+
+__all__ = [
+    "Mains",
+    "Supply",
+    "Listening",
+    "SYSTEMS",
+    "DEFAULT_CORD",
+    "CABLE_OPERATING_TEMPERATURE",
+]
+
+XY = tuple[float, float]
+
+#: earthing systems, IEC 60364-1 terms
+SYSTEMS = ("TN-S", "TN-C-S", "TT")
+
+#: the mains cord when neither plan nor device says: 2 m of 0.75 mm² (common practice up to 6 A,
+#: IEC 60335-1)
+DEFAULT_CORD = (2.0, 0.75e-6)
+#: °C, PVC's: the fault loop is verified at it (IEC 60364-5-52 T. 52.1)
+CABLE_OPERATING_TEMPERATURE = 70.0
+
+
+@dataclass(frozen=True)
+class Mains:
+    """The mains supply: nominal voltage U0 (V rms), frequency (Hz), earthing system, protection,
+    and the equipment's protection class.  Optional figures left None take the documented defaults
+    of :mod:`groundcheck.physics.protection`."""
+
+    voltage: float
+    frequency: float
+    fuse: float | None = None  # rating, A
+    fuse_kind: str = "slow"  # slow | fast | breaker-B | breaker-C | breaker-D
+    fuse_i2t: float | None = None  # let-through I²t, A²s, when the plan states it
+    clear_time: float | None = None  # clearing time, s, when the plan states it
+    line_area: float | None = None  # line-conductor cross-section, m²
+    loop_impedance: float | None = None  # external earth-fault loop impedance Ze at the origin, Ω
+    cord_length: float = DEFAULT_CORD[0]  # mains cord, m
+    #: mains cord conductor area, m² (default: line_area, else DEFAULT_CORD)
+    cord_area: float | None = None
+    inlet: XY | None = None
+    system: str = "TN-S"  # TN-S | TN-C-S | TT (IEC 60364-1)
+    rcd: float | None = None  # rated residual operating current IΔn, A
+    circuit_length: float | None = None  # final circuit from the origin to the socket, m
+    circuit_area: float | None = None  # its line conductor, m²
+    cpc_area: float | None = None  # its circuit protective conductor, m² (default: circuit_area)
+    electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
+    equipment_class: str = "I"  # I | II
+    breaking: str | None = None  # low | enhanced | high (IEC 60127 categories)
+    breaking_current: float | None = None  # stated breaking capacity, A
+    fuse_resistance: float | None = None  # stated cold resistance of the fuse, Ω
+    #: °C, the installation cables' operating temperature (default 70 °C)
+    cable_temperature: float | None = None
+    #: A, prospective line-to-neutral short-circuit current at the origin
+    short_circuit: float | None = None
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+    @property
+    def cord_section(self) -> float:
+        """The cord's conductor area, m²: stated, else the line conductor's, else the default
+        cord's."""
+        return self.cord_area or self.line_area or DEFAULT_CORD[1]
+
+
+@dataclass(frozen=True)
+class Supply:
+    """An installation's supply (the building's mains): nominal voltage U0 (V rms), frequency (Hz)
+    and earthing system.  Devices placed in the installation take it unless their own plan states a
+    ``mains``."""
+
+    voltage: float
+    frequency: float
+    system: str = "TN-S"
+    location: Location = field(default=Location("<plan>"), compare=False)
+
+
+@dataclass(frozen=True)
+class Listening:
+    """Where the hum ends up: rated output level (V rms at the plan's output) and the chain after
+    it."""
+
+    rated_output: float = 1.0  # V rms at the plan's output for full signal
+    amp_gain: float = 0.0  # dB voltage gain from the plan's output to the speaker
+    sensitivity: float | None = None  # dB SPL at 1 W, 1 m
+    impedance: float = 8.0  # speaker (or headphone) nominal impedance, Ω
+    distance: float = 3.0  # listening distance, m
+    location: Location = field(default=Location("<plan>"), compare=False)
+    speakers: int = 1  # speakers playing the channel's hum, coherent at hum frequencies
+    room_gain: float = 0.0  # dB added by the room at the seat
+    phones: float | None = None  # headphone sensitivity, dB SPL per mW or per V (phones_per)
+    phones_per: str = "mW"
+    #: the room's noise, dB SPL in each third-octave band (flat): it masks hum
+    background: float | None = None
+
+    @property
+    def verdict(self) -> bool:
+        """Whether the chain ends in a transducer of known sensitivity, so that audibility can be
+        judged."""
+        return self.sensitivity is not None or self.phones is not None
