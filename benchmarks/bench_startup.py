@@ -207,7 +207,7 @@ def solver_sizes(sizes: list[int], repeat: int) -> str:
 
     from generate import chassis
     from groundcheck import load_text
-    from groundcheck.physics import circuit as circuit_module
+    from groundcheck.physics import nodal as circuit_module
     from groundcheck.physics.circuit import build_circuit
 
     lines = [

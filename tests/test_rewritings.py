@@ -280,7 +280,7 @@ test_a_resistor_split_in_two_changes_no_figure = _suite("a resistor split in two
 @pytest.mark.xfail(
     strict=True,
     reason="open: GC301 judges each source's ten largest conductor "
-    "shares (physics/hum.TOP_SHARES); a wire written in two pieces takes two places",
+    "shares (physics/hum_shares.TOP_SHARES); a wire written in two pieces takes two places",
 )
 def test_a_split_wire_leaves_every_contributor_finding():
     """Found by the split property: `right_link` written as two halves takes two of the ten places

@@ -9,7 +9,7 @@ import scipy.sparse.csgraph as csgraph
 
 from groundcheck import load
 from groundcheck.network import graph as graph_module
-from groundcheck.physics import circuit as circuit_module
+from groundcheck.physics import nodal as nodal_module
 from groundcheck.physics.circuit import build_circuit
 from groundcheck.physics.factored import DenseFactors
 from helpers import EXAMPLES, ROOT
@@ -20,13 +20,13 @@ CHASSIS = EXAMPLES + sorted((ROOT / "examples" / "studio" / "devices").glob("*.g
 @pytest.mark.parametrize("plan", CHASSIS, ids=lambda p: p.stem)
 def test_dense_solve_agrees_with_the_sparse_solve(plan, monkeypatch):
     circuit = build_circuit(load(str(plan)))
-    assert circuit._pattern[-1] <= circuit_module.DENSE_NODES  # these examples take the dense path
+    assert circuit._pattern[-1] <= nodal_module.DENSE_NODES  # these examples take the dense path
     rng = np.random.default_rng(7)
     J = rng.normal(size=(len(circuit.nodes), 11)) + 1j * rng.normal(size=(len(circuit.nodes), 11))
     emf = rng.normal(size=(len(circuit.branches), 11)) + 0j
     for f in (0.0, 50.0, 150.0, 1234.0, 5000.0):
         dense = circuit.at(f)
-        monkeypatch.setattr(circuit_module, "DENSE_NODES", -1)
+        monkeypatch.setattr(nodal_module, "DENSE_NODES", -1)
         sparse = circuit.at(f)
         monkeypatch.undo()
         assert type(dense.lu).__name__ == "DenseFactors" and type(sparse.lu).__name__ == "SuperLU"

@@ -286,29 +286,15 @@ def measure(
         the :class:`Measured` record.
     References:
         P. D. Welch, IEEE Trans. Audio Electroacoust. 15 (1967) 70 (averaged periodograms); G.
-        Heinzel,
-        A. Rüdiger, R. Schilling, "Spectrum and spectral density estimation by the DFT", 2002
-        (flat-top windows,
-        ENBW, amplitude and density scaling).
+        Heinzel, A. Rüdiger, R. Schilling, "Spectrum and spectral density estimation by the DFT",
+        2002 (flat-top windows, ENBW, amplitude and density scaling).
     """
     fmt = wav_format(path)
-    if not 0 <= channel < fmt.channels:
-        raise RecordingError(
-            f"the recording has {fmt.channels} channel(s); channel {channel + 1} was asked for",
-            _loc(fmt),
-            "name a channel the file holds (--track 1 is the first)",
-        )
+    _check_channel(fmt, channel)
     sp = _Spectra(fmt, channel, progress)
     f0, nominal, found = _mains(sp, stated, fallback)
     sp.f0 = f0
-    # volts, or without a calibration the rms of a full-scale sine (dBFS as AES17 counts it:
-    # 1.0 peak is 0 dB)
-    scale = volts_per_unit if volts_per_unit is not None else math.sqrt(2)
-    lines = []
-    for k in range(1, harmonic_count(f0, fmt.rate, max_frequency) + 1):
-        level, noise, above = sp.line(k * f0)
-        lines.append(LineLevel(k, k * f0, level * scale, noise * scale, above))
-    density = math.sqrt(np.median([ln.noise**2 for ln in lines]) / sp.enbw_hz) if lines else 0.0
+    lines, density = _harmonics(sp, harmonic_count(f0, fmt.rate, max_frequency), volts_per_unit)
     found = found and any(ln.above_noise for ln in lines)
     how = calibration or "none: levels relative to digital full scale"
     return Measured(
@@ -332,6 +318,32 @@ def measure(
         sp.peak,
         METHOD,
     )
+
+
+def _check_channel(fmt: WavFormat, channel: int) -> None:
+    """A clear error when the recording has no such channel."""
+    if not 0 <= channel < fmt.channels:
+        raise RecordingError(
+            f"the recording has {fmt.channels} channel(s); channel {channel + 1} was asked for",
+            _loc(fmt),
+            "name a channel the file holds (--track 1 is the first)",
+        )
+
+
+def _harmonics(
+    sp: _Spectra, count: int, volts_per_unit: float | None
+) -> tuple[list[LineLevel], float]:
+    """The first ``count`` harmonics of the mains frequency (``sp.f0``), their levels and noise,
+    and the noise density under them (the median of their noise powers over the window's
+    equivalent noise bandwidth), per √Hz: in volts, or without a calibration relative to the rms
+    of a full-scale sine (dBFS as AES17 counts it: 1.0 peak is 0 dB)."""
+    scale = volts_per_unit if volts_per_unit is not None else math.sqrt(2)
+    lines = []
+    for k in range(1, count + 1):
+        level, noise, above = sp.line(k * sp.f0)
+        lines.append(LineLevel(k, k * sp.f0, level * scale, noise * scale, above))
+    density = math.sqrt(np.median([ln.noise**2 for ln in lines]) / sp.enbw_hz) if lines else 0.0
+    return lines, density
 
 
 def tone_level(path: str, channel: int = 0) -> float:

@@ -1,6 +1,6 @@
 """A circuit's admittance matrix factorised at one frequency, and the solutions it gives.
 
-:meth:`groundcheck.physics.circuit.Circuit.at` makes the :class:`Factored`; its
+:meth:`groundcheck.physics.nodal.Circuit.at` makes the :class:`Factored`; its
 :meth:`Factored.solve` gives node voltages and branch currents for any number of source columns
 (nodal analysis: Y·V = J).
 """
@@ -40,7 +40,7 @@ class DenseFactors:
 class Factored:
     """A circuit's admittance matrix at one frequency with its sparse LU factors."""
 
-    circuit: object  # the Circuit it came from (groundcheck.physics.circuit)
+    circuit: object  # the Circuit it came from (groundcheck.physics.nodal)
     frequency: float
     z: np.ndarray
     y: np.ndarray
@@ -120,7 +120,7 @@ class Solution:
     """Node voltages (nodes × k), branch voltages Z·I and branch currents from n1 to n2 (branches ×
     k) at one frequency."""
 
-    circuit: object  # the Circuit it came from (groundcheck.physics.circuit)
+    circuit: object  # the Circuit it came from (groundcheck.physics.nodal)
     frequency: float
     V: np.ndarray
     dv: np.ndarray  # each branch's voltage V_n1 − V_n2 plus its EMF, that is Z·I

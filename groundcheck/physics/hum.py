@@ -17,7 +17,8 @@ inverts is not in the plan, so a channel's level is the worst case: every
 stage's share added in magnitude (in phase).  The network's own signed sum,
 every stage taken as non-inverting, is given beside it (``signed_v``); the
 contributors' shares are signed projections on the channel's signed total,
-so they add up to 100 % and a contribution that cancels others is negative.
+so they add up to 100 % and a contribution that cancels others is negative (the currents' shares
+are worked out in :mod:`groundcheck.physics.hum_shares`).
 
 References: ISO 226:2003 (threshold of hearing); see :mod:`groundcheck.physics.coupling`
 (reciprocity) and :mod:`groundcheck.physics.pickup` (Faraday's law, dipole field).
@@ -33,22 +34,15 @@ import numpy as np
 
 from ..core.units import ratio_of_db
 from .feedback import FEEDBACK_AT, feedback_sources, own_feedback
-from .coupling import (
-    branch_owner,
-    channel_tests,
-    pair_path,
-    path_drop,
-    plan_sources,
-    source_injections,
-)
+from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources
 from .humsettings import HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
 from .fieldhum import field_pickup
+from .hum_shares import source_part
 from .orient import fixed_fluxes, source_fluxes
 from .pickup import min_distance
 from .plate_paths import loop_passages
-from .ranking import largest
 from .sweep import run_tasks
 
 __all__ = [
@@ -60,28 +54,8 @@ __all__ = [
 ]  # the result types live in humtotals
 
 
-#: conductors named per source and stage as hum contributors (the rest are summed)
-TOP_SHARES = 10
-
-#: conductors listed per source in the JSON ``network`` section (the largest currents)
-NETWORK_ROWS = 50
-
-#: sources solved together in the hum budget (their branches × sources arrays bound the memory)
-SOURCE_CHUNK = 128
-
 #: sources of one frequency per task when several processes share the budget (see HumBudget.tasks)
 TASK_SOURCES = 512
-
-
-def _largest(mags, rank):
-    """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken by owner
-    name rather than by the order the plan writes its conductors in."""
-    nb, k = mags.shape[1], min(mags.shape[1], TOP_SHARES + 8)
-    near = np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
-    rows = np.arange(len(mags))[:, None]
-    q = np.round(mags[rows, near] / np.maximum(mags.max(axis=1), 1e-300)[:, None], 9)
-    order = np.lexsort((rank[near], -q), axis=1)[:, :TOP_SHARES]
-    return near[rows, order]
 
 
 def _pickup_columns(circuit, loops, names) -> tuple[list, np.ndarray, np.ndarray]:
@@ -175,22 +149,30 @@ class HumBudget:
         self.rectifier_results = rectifier_results
         self.probe_a = np.array([circuit.point_node[x] for x, _ in probes], dtype=int)
         self.probe_b = np.array([circuit.point_node[y] for _, y in probes], dtype=int)
-        f0 = self.f0 = plan.frequency
+        self.f0 = plan.frequency
         sources = plan_sources(plan, rectifier_results, options.max_frequency, circuit)
         self.hum_sources = [s for s in sources if s.kind != "signal"]
         self.signal_sources = [s for s in sources if s.kind == "signal"]
-        stages = self.stages = list(plan.stages)
-        channels = self.channels = sorted({s.channel for s in stages})
-        self.listening = listening = plan.listening
-        self.rated = listening.rated_output if listening else 1.0
+        self.pairs = {src.name: (src, h) for src, h in pair_sources(plan.heaters)}  # AC heaters
+        self.sources = [*plan.fields, *(src for src, _ in self.pairs.values())]
+        self.fields = {x.name: x for x in self.sources}
         self.owners = branch_owner(circuit)
         self.owner_rank = np.argsort(np.argsort(np.array(self.owners, dtype=object)))
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
-        self.pairs = {
-            src.name: (src, h) for src, h in pair_sources(plan.heaters)
-        }  # AC heater pairs
-        self.sources = [*plan.fields, *(src for src, _ in self.pairs.values())]
-        self.fields = {x.name: x for x in self.sources}
+        self._listening(plan.listening)
+        self._stages(plan.stages)
+        self._frequencies(options.max_frequency)
+        self.pick_loops, self.pick_branch, self.pick_sign = _pickup_columns(
+            circuit, loops, self.branch_index
+        )
+        self.models = (
+            self._flux_models(plan, circuit, loops) if self.pick_loops and self.sources else {}
+        )
+
+    def _listening(self, listening) -> None:
+        """The rated output the levels are against, and the notes when no verdict can be given."""
+        self.listening = listening
+        self.rated = listening.rated_output if listening else 1.0
         self.notes = []
         if listening is None:
             self.notes.append(
@@ -201,6 +183,13 @@ class HumBudget:
             self.notes.append(
                 "listening context has no speaker sensitivity: no audibility verdict is given"
             )
+
+    def _stages(self, stages) -> None:
+        """The stages and channels: which stages the network joins, their gains, nodes and test
+        injections, and their least-resistance paths (read by loop pickup only)."""
+        circuit = self.circuit
+        stages = self.stages = list(stages)
+        channels = self.channels = sorted({s.channel for s in stages})
         _, labels = circuit.components
         self.valid_stage = [
             labels[circuit.point_node[s.a]] == labels[circuit.point_node[s.b]] for s in stages
@@ -208,55 +197,43 @@ class HumBudget:
         # least-resistance paths of the stages: only loop pickup reads them (one shortest-path
         # search each)
         self.paths = [
-            pair_path(circuit, s.a, s.b) if ok and loops and self.sources else []
+            pair_path(circuit, s.a, s.b) if ok and self.loops and self.sources else []
             for s, ok in zip(stages, self.valid_stage)
         ]
-        freqs = sorted(
-            {f for s in self.hum_sources for f in s.parts if f > 0}
-            | (
-                {n * f0 for src in self.sources for n in [1] + [h for h, _ in src.harmonics]}
-                if loops
-                else set()
-            )
-        )
-        self.freqs = freqs = [f for f in freqs if f <= options.max_frequency + 1e-9]
-        self.xt_freqs = sorted(
-            {
-                1000.0,
-                min(freqs) if freqs else 2 * f0,
-                max(freqs) if freqs else options.max_frequency,
-            }
-        )
-        self.crosstalk_wanted = bool(self.signal_sources) and len(channels) > 1 and bool(stages)
         self.gains = np.array([ratio_of_db(s.gain) for s in stages])
         self.valid_idx = np.flatnonzero(self.valid_stage) if stages else np.zeros(0, dtype=int)
+        valid = [stages[k] for k in self.valid_idx]
         # per channel, one test injection: every stage's 1 A test, weighted by its gain (stages in
         # phase, see the module doc)
-        self.tests = channel_tests(circuit, [stages[k] for k in self.valid_idx], channels)
-        self.stage_a = np.array(
-            [circuit.point_node[stages[k].a] for k in self.valid_idx], dtype=int
-        )
-        self.stage_b = np.array(
-            [circuit.point_node[stages[k].b] for k in self.valid_idx], dtype=int
-        )
-        self.stage_channel = np.array(
-            [channels.index(stages[k].channel) for k in self.valid_idx], dtype=int
-        )
+        self.tests = channel_tests(circuit, valid, channels)
+        self.stage_a = np.array([circuit.point_node[s.a] for s in valid], dtype=int)
+        self.stage_b = np.array([circuit.point_node[s.b] for s in valid], dtype=int)
+        self.stage_channel = np.array([channels.index(s.channel) for s in valid], dtype=int)
         self.across = [self.branch_index.get(s.across) if s.across else None for s in stages]
-        self.pick_loops, self.pick_branch, self.pick_sign = _pickup_columns(
-            circuit, loops, self.branch_index
-        )
-        self.models = (
-            self._flux_models(plan, circuit, loops) if self.pick_loops and self.sources else {}
-        )
-        # a channel's own signal currents read by its own stages: at 1 kHz and the hum harmonics
-        self.fb_sources = feedback_sources(self.signal_sources, stages)
-        self.fb_freqs = set(freqs) | {FEEDBACK_AT} if self.fb_sources else set()
-        xt = set(self.xt_freqs) if self.crosstalk_wanted else set()
-        self.solve_at = sorted(set(freqs) | xt | self.fb_freqs)
+
+    def _frequencies(self, max_frequency: float) -> None:
+        """The frequencies solved: the sources' lines up to ``max_frequency``, the field sources'
+        harmonics (with loops), the crosstalk's and the feedback's frequencies."""
+        f0 = self.f0
         self.pickup_freqs = {
             n * f0 for src in self.sources for n in [1] + [h for h, _ in src.harmonics]
         }
+        freqs = sorted(
+            {f for s in self.hum_sources for f in s.parts if f > 0}
+            | (self.pickup_freqs if self.loops else set())
+        )
+        self.freqs = freqs = [f for f in freqs if f <= max_frequency + 1e-9]
+        self.xt_freqs = sorted(
+            {1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else max_frequency}
+        )
+        self.crosstalk_wanted = (
+            bool(self.signal_sources) and len(self.channels) > 1 and bool(self.stages)
+        )
+        # a channel's own signal currents read by its own stages: at 1 kHz and the hum harmonics
+        self.fb_sources = feedback_sources(self.signal_sources, self.stages)
+        self.fb_freqs = set(freqs) | {FEEDBACK_AT} if self.fb_sources else set()
+        xt = set(self.xt_freqs) if self.crosstalk_wanted else set()
+        self.solve_at = sorted(set(freqs) | xt | self.fb_freqs)
 
     def _flux_models(self, plan, circuit, loops) -> dict:
         """Each field source's and AC heater pair's flux through the loops that take an EMF, as a
@@ -340,7 +317,7 @@ class HumBudget:
         fac = self.circuit.at(f)
         active = self._active(f)[lo:hi]
         if active and self.stages and self.valid_idx.size:
-            self._sources(f, fac, active, part)
+            source_part(self, f, fac, active, part)
         if lo == 0 and self.loops and f in self.freqs and f in self.pickup_freqs:
             self._pickup(f, fac, part)
         if lo == 0 and self.crosstalk_wanted and f in self.xt_freqs:
@@ -368,124 +345,6 @@ class HumBudget:
             if b is not None and fac.z[b] != 0:
                 g[k] *= fac.z[b].real / fac.z[b]
         return g
-
-    def _sources(self, f, fac, active, part) -> None:
-        """Each stated or simulated current's voltage at each channel's output, with the
-        conductors' shares; the sources are solved SOURCE_CHUNK at a time, so a large
-        installation's branches × sources arrays stay small (the channels' test currents are solved
-        once)."""
-        gains = self.gains_at(fac)
-        tests = (
-            self.tests
-            if not any(b is not None for b in self.across)
-            else channel_tests(
-                self.circuit,
-                [self.stages[k] for k in self.valid_idx],
-                self.channels,
-                gains[self.valid_idx],
-            )
-        )
-        TC = fac.solve(tests).I  # branches × channels
-        for lo in range(0, len(active), SOURCE_CHUNK):
-            self._source_chunk(f, fac, active[lo : lo + SOURCE_CHUNK], gains, TC, part)
-
-    def _source_chunk(self, f, fac, active, gains, TC, part) -> None:
-        circuit = self.circuit
-        both = fac.solve(source_injections(circuit, active, f))
-        if self.probe_a.size:
-            power = (np.abs(both.V[self.probe_a] - both.V[self.probe_b]) ** 2).sum(axis=1)
-            part.probes = power if part.probes is None else part.probes + power
-        # each stage's own drop (node voltages of the source solves), for the worst case: every
-        # stage in phase
-        stage_v = (
-            np.abs(both.V[self.stage_a] - both.V[self.stage_b])
-            * np.abs(gains[self.valid_idx])[:, None]
-        )
-        groups = [
-            "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}" for s in active
-        ]
-        for ci, ch in enumerate(self.channels):
-            worst = stage_v[self.stage_channel == ci].sum(axis=0)
-            part.in_phase.extend((ch, g, float(w)) for g, w in zip(groups, worst))
-        # by reciprocity a branch's share of a channel is its drop Z_b·I_b(s) (both.dv: no EMF
-        # here) times the channel's test current in it; each source's output is their sum (one
-        # product for every source and channel)
-        drops = np.ascontiguousarray(np.abs(both.dv).T)  # |Z_b·I_b|, sources × branches
-        self._network_rows(f, fac, active, both, drops, part)
-        v_all = both.dv.T @ TC  # sources × channels
-        mags = np.empty_like(drops)
-        for ci, ch in enumerate(self.channels):
-            np.multiply(drops, np.abs(TC[:, ci])[None, :], out=mags)
-            self._shares(ch, mags, both.dv, TC[:, ci], v_all[:, ci], groups, part)
-
-    def _shares(self, ch, mags_all, zi, tc, v_all, groups, part) -> None:
-        """Each source's output in one channel and its largest conductor shares (``mags_all``:
-        sources × branches, each branch's |share|; the share itself is zi·tc, ``zi`` branches ×
-        sources); the rest, each below the tenth largest, summed as other."""
-        owners = self.owners
-        nb = mags_all.shape[1]
-        if nb > TOP_SHARES:
-            tops = _largest(mags_all, self.owner_rank)
-        else:
-            tops = np.broadcast_to(np.arange(nb), (len(groups), nb))
-        rows = np.arange(len(groups))[:, None]
-        top_mags = mags_all[rows, tops]
-        peak = (
-            top_mags.max(axis=1) if nb else np.zeros(len(groups))
-        )  # the largest share is among the tops
-        top_shares = zi[tops, rows] * tc[tops]  # sources × TOP_SHARES
-        kept = top_mags > 1e-3 * np.maximum(peak, 1e-300)[:, None]
-        rests = (v_all - np.where(kept, top_shares, 0).sum(axis=1)).tolist()
-        # plain Python numbers from here: the merge adds tens of thousands of them one by one
-        v_list, tops_list, shares_list, kept_list = (
-            v_all.tolist(),
-            tops.tolist(),
-            top_shares.tolist(),
-            kept.tolist(),
-        )
-        many = nb > TOP_SHARES
-        for si, group in enumerate(groups):
-            v_out = v_list[si]
-            if v_out == 0:
-                continue
-            part.out.append((ch, group, v_out))
-            for bi, share, keep in zip(tops_list[si], shares_list[si], kept_list[si]):
-                if keep:
-                    part.contrib.append((ch, ("conductor", owners[bi], group), share))
-            rest = rests[si]
-            if many and abs(rest) > 1e-3 * abs(v_out):
-                part.contrib.append((ch, ("conductor", "other conductors", group), rest))
-
-    def _network_rows(self, f, fac, active, both, drops, part) -> None:
-        """The JSON network section's rows: each source's largest branch currents at its first
-        frequency (``drops``: sources × branches, |Z·I|)."""
-        circuit = self.circuit
-        admittance = np.abs(fac.y)
-        for si, s in enumerate(active):
-            if (
-                s.kind == "rectifier"
-                and abs(f - 2 * self.f0) < 1e-9
-                or (s.kind != "rectifier" and f == min(s.parts))
-            ):
-                mags = drops[si] * admittance  # |I|
-                sig = np.flatnonzero(mags > 1e-3 * abs(s.parts[f]))
-                sig = sig[largest(mags[sig], NETWORK_ROWS)]
-                I = both.dv[sig, si] * fac.y[sig]
-                part.network.append(
-                    {
-                        "source": s.name,
-                        "frequency_hz": f,
-                        "source_current_a": abs(s.parts[f]),
-                        "conductors": [
-                            {
-                                "branch": circuit.branches[b].name,
-                                "current_a": float(abs(i)),
-                                "drop_v": float(abs(i * fac.z[b])),
-                            }
-                            for b, i in zip(sig, I)
-                        ],
-                    }
-                )
 
     def _pickup(self, f, fac, part) -> None:
         """The drop a unit flux through each loop leaves across each stage (at the output: times

@@ -177,40 +177,60 @@ def plate_mesh(
     tie = np.zeros(X.size, dtype=bool)
     for cx, cy in contacts:
         tie |= (group < 0) & (np.hypot(X - cx, Y - cy) <= radius + ON_CIRCLE * min(hx, hy))
-    fk, fs, lk, ls = _disc_spans(X, Y, A, B, contacts, radius, hx, hy)
+    spans = _disc_spans(X, Y, A, B, contacts, radius, hx, hy)
     na, nb = new[A], new[B]
-    cut = (fk >= 0) & ~((group[A] >= 0) & (group[A] == group[B]))
+    cut = (spans[0] >= 0) & ~((group[A] >= 0) & (group[A] == group[B]))
     pa, pb = np.stack([X[A], Y[A]], 1), np.stack([X[B], Y[B]], 1)
-    links = [[] for _ in range(5)]
+    links = _Links()
+    plain = ~cut & (na != nb)
+    links.add(na[plain], nb[plain], G[plain], pa[plain], pb[plain])
+    c = np.flatnonzero(cut)
+    ends = (na[c], nb[c], pa[c], pb[c], group[A[c]], group[B[c]], tie[A[c]], tie[B[c]])
+    _cut_edges(links, c, [x[c] for x in spans], ends, G[c], (X, Y, A), contacts, radius)
+    return PlateMesh(k, k + free.size, *links.arrays(), hx, hy)
 
-    def link(a, b, g, start, end):
-        for store, v in zip(links, (a, b, g, start, end)):
+
+class _Links:
+    """The network's links as they are added: their nodes, conductances and ends."""
+
+    def __init__(self):
+        self.parts = [[] for _ in range(5)]
+
+    def add(self, a, b, g, start, end) -> None:
+        for store, v in zip(self.parts, (a, b, g, start, end)):
             store.append(v)
 
-    plain = ~cut & (na != nb)
-    link(na[plain], nb[plain], G[plain], pa[plain], pb[plain])
-    c = np.flatnonzero(cut)
-    fk, lk, fs, ls = fk[c], lk[c], fs[c], ls[c]
-    na, nb, pa, pb, G = na[c], nb[c], pa[c], pb[c], G[c]
+    def arrays(self) -> list[np.ndarray]:
+        return [np.concatenate(v) for v in self.parts]
+
+
+def _cut_edges(links, c, spans, ends, G, grid, contacts, radius) -> None:
+    """The links of the grid edges ``c`` that a disc cuts: what lies outside the discs on A's and
+    on B's side, the rest of an edge that only grazes a disc, and the part between two discs.
+
+    ``spans``: per edge the first disc entered and where, the last left and where; ``ends``: the
+    edges' new node numbers, end points, contact groups and ties at A and at B."""
+    fk, fs, lk, ls = spans
+    na, nb, pa, pb, group_a, group_b, tie_a, tie_b = ends
     d = pb - pa
-    ka, kb = group[A[c]] < 0, group[B[c]] < 0
+    ka, kb = group_a < 0, group_b < 0
     # an edge that only grazes a disc (both ends outside it) is cut in the measure of its chord,
     # the rest of it kept whole: the network stays continuous as the disc comes to touch the edge
     wt = np.where(ka & kb & (fk == lk), ls - fs, 1.0)
     gr = wt < 1.0
-    link(na[gr], nb[gr], G[gr] * (1 - wt[gr]), pa[gr], pb[gr])
+    links.add(na[gr], nb[gr], G[gr] * (1 - wt[gr]), pa[gr], pb[gr])
     # A's side: A to the first disc's circle (nothing when A is inside a disc)
-    g_a = G[ka] * wt[ka] / _share(fs[ka], tie[A[c]][ka])
-    link(na[ka], fk[ka], g_a, pa[ka], pa[ka] + fs[ka, None] * d[ka])
+    g_a = G[ka] * wt[ka] / _share(fs[ka], tie_a[ka])
+    links.add(na[ka], fk[ka], g_a, pa[ka], pa[ka] + fs[ka, None] * d[ka])
     # B's side: the last disc's circle to B
-    g_b = G[kb] * wt[kb] / _share(1 - ls[kb], tie[B[c]][kb])
-    link(lk[kb], nb[kb], g_b, pa[kb] + ls[kb, None] * d[kb], pb[kb])
+    g_b = G[kb] * wt[kb] / _share(1 - ls[kb], tie_b[kb])
+    links.add(lk[kb], nb[kb], g_b, pa[kb] + ls[kb, None] * d[kb], pb[kb])
     # between two discs the edge passes through (or from a node inside one to another disc)
-    src, dst = np.where(ka, fk, group[A[c]]), np.where(kb, lk, group[B[c]])
+    src, dst = np.where(ka, fk, group_a), np.where(kb, lk, group_b)
     mid = src != dst
+    X, Y, A = grid
     gap = _gap(c, mid, contacts, radius, X, Y, A, d, src, dst)
-    link(src[mid], dst[mid], G[mid] / _share(gap, gap <= TOUCH), pa[mid], pb[mid])
-    return PlateMesh(k, k + free.size, *(np.concatenate(v) for v in links), hx, hy)
+    links.add(src[mid], dst[mid], G[mid] / _share(gap, gap <= TOUCH), pa[mid], pb[mid])
 
 
 def _share(share: np.ndarray, whole: np.ndarray) -> np.ndarray:

@@ -32,21 +32,8 @@ from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
-from .protection import (
-    STANDARD_PE_LIMIT,
-    CABLE_OPERATING_TEMPERATURE,
-    DEFAULT_CIRCUIT,
-    DEFAULT_LINE_NEUTRAL_LOOP,
-    DEFAULT_ZE,
-    TT_SOURCE_LOOP,
-    Clearing,
-    breaking_capacity,
-    cable_resistance,
-    device_clearing,
-    fuse_cold_resistance,
-    max_disconnection_time,
-    rcd_clearing,
-)
+from .fault_loop import Supply, supply_figures
+from .protection import STANDARD_PE_LIMIT, Clearing, device_clearing, rcd_clearing
 
 __all__ = [
     "SafetyResult",
@@ -87,42 +74,6 @@ def adiabatic_k(insulation: str, in_cable: bool) -> float:
     """
     pair = ADIABATIC_K.get(insulation, ADIABATIC_K["pvc"])
     return pair[0] if in_cable else pair[1]
-
-
-@dataclass(frozen=True)
-class Supply:
-    """The fault loop outside the protective path, with where each figure came from.  The cables'
-    resistances are at their operating temperature (``cable_temperature``); the prospective
-    currents, which the breaking capacity must cover, at the lowest temperature
-    (``cold_temperature``)."""
-
-    system: str
-    ze: float  # Ω, external loop impedance at the origin (TT: through the electrode)
-    ze_stated: bool
-    circuit_line: float  # Ω
-    circuit_cpc: float  # Ω
-    cord_line: float  # Ω
-    cord_pe: float  # Ω
-    fuse_resistance: float  # Ω
-    electrode: float  # Ω, TT only (0 otherwise)
-    max_time: float | None  # s, IEC 60364-4-41 Table 41.1
-    breaking_capacity: float | None  # A
-    cable_temperature: float = 20.0  # °C, the cables' temperature in the figures above
-    cold_temperature: float = 20.0  # °C, the cables' temperature for the prospective currents
-    earth_fault_max: float = (
-        0.0  # A, the largest line-to-protective fault (at the inlet, cables cold)
-    )
-    short_circuit: float = (
-        0.0  # A, the largest line-to-neutral fault inside the equipment (cables cold)
-    )
-    short_circuit_stated: bool = False
-    cold_outside: float = 0.0  # Ω, cables cold: external loop, fuse, circuit line and cord line
-    cold_return: float = 0.0  # Ω, cables cold: cord and circuit protective conductors
-
-    @property
-    def prospective(self) -> float:
-        """The largest current the fuse or breaker may have to break, A."""
-        return max(self.earth_fault_max, self.short_circuit)
 
 
 @dataclass(frozen=True)
@@ -224,101 +175,6 @@ class SafetyResult:
             "parts": [p.as_dict() for p in self.parts],
             "conductors": [c.as_dict() for c in self.conductors],
         }
-
-
-def external_loop(m) -> tuple[float, float]:
-    """The external earth-fault loop Ze at the origin and, in a TT supply, the installation's
-    electrode R_A in it.
-
-    TT: the fault current returns through the earth, so the loop holds R_A.  A stated loop includes
-    it (the electrode alone, when not stated, is taken as the whole loop: the worst case for the
-    touch voltage); a stated electrode without a loop adds the supply's own part
-    (:data:`TT_SOURCE_LOOP`).
-
-    Parameters:
-        m: the mains record.
-    Returns:
-        (Ze, R_A) in Ω; R_A is 0 outside TT.
-    References:
-        IEC 60364-4-41 411.5 (TT systems: the fault loop through R_A).
-    """
-    if m.system != "TT":
-        return (m.loop_impedance if m.loop_impedance is not None else DEFAULT_ZE[m.system]), 0.0
-    if m.loop_impedance is not None:
-        return m.loop_impedance, (m.electrode if m.electrode is not None else m.loop_impedance)
-    if m.electrode is not None:
-        return m.electrode + TT_SOURCE_LOOP, m.electrode
-    return DEFAULT_ZE["TT"], DEFAULT_ZE["TT"]
-
-
-def _cables(m, temperature: float) -> tuple[float, float, float]:
-    """(circuit line, circuit protective conductor, cord core) resistances at ``temperature``,
-    Ω."""
-    c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]
-    c_area = m.circuit_area or DEFAULT_CIRCUIT[1]
-    return (
-        cable_resistance(c_len, c_area, False, temperature),
-        cable_resistance(c_len, m.cpc_area or c_area, False, temperature),
-        cable_resistance(m.cord_length, m.cord_section, True, temperature),
-    )
-
-
-def supply_figures(plan: Plan) -> Supply:
-    """The fault loop outside the equipment's protective path, from the mains statement and
-    defaults: the installation's cables at their operating temperature, and the prospective
-    currents with them cold.
-
-    Parameters:
-        plan: the plan.
-    Returns:
-        the Supply: external loop impedance, final circuit, cord, disconnection limit, prospective
-        currents.
-    References:
-        IEC 60364-4-41; IEC 60228; IEC 60364-5-52 Table 52.1 (PVC 70 °C).
-    """
-    m = plan.mains
-    hot_t = m.cable_temperature if m.cable_temperature is not None else CABLE_OPERATING_TEMPERATURE
-    cold_t = min(plan.ambient, 20.0)
-    line, cpc, cord = _cables(m, hot_t)
-    ze, electrode = external_loop(m)
-    fuse_r = 0.0
-    if m.fuse is not None:
-        fuse_r = (
-            m.fuse_resistance
-            if m.fuse_resistance is not None
-            else fuse_cold_resistance(m.fuse_kind, m.fuse)
-        )
-    cap = (
-        breaking_capacity(m.fuse_kind, m.fuse, m.breaking, m.breaking_current)
-        if m.fuse is not None
-        else None
-    )
-    c_line, c_cpc, c_cord = _cables(m, cold_t)
-    cold_outside, cold_return = ze + fuse_r + c_line + c_cord, c_cord + c_cpc
-    zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
-    short = m.voltage / (zln + fuse_r + 2 * c_line + 2 * c_cord)
-    if m.short_circuit is not None:  # a stated current may only make the check stricter
-        short = max(short, m.short_circuit)
-    return Supply(
-        m.system,
-        ze,
-        m.loop_impedance is not None,
-        line,
-        cpc,
-        cord,
-        cord,
-        fuse_r,
-        electrode,
-        max_disconnection_time(m.voltage, m.system),
-        cap,
-        hot_t,
-        cold_t,
-        m.voltage / (cold_outside + cold_return),
-        short,
-        m.short_circuit is not None,
-        cold_outside,
-        cold_return,
-    )
 
 
 def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | None]:

@@ -1,0 +1,165 @@
+"""The hum budget's stated and simulated currents at one frequency: each one's voltage at every
+channel's output, its largest conductor shares, and the JSON ``network`` section's rows.
+
+By reciprocity a branch's share of a channel is its drop Z_b·I_b under the source times the
+channel's test current in that branch (every stage's 1 A test weighted by its gain); a source's
+output is the sum of its shares.  The ten largest shares are named per source and channel, the
+rest summed as "other conductors" (see :mod:`groundcheck.physics.hum` for how the parts are
+combined).
+
+References: reciprocity (Penfield, Spence, Duinker, *Tellegen's Theorem and Electrical Networks*,
+1970).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .coupling import channel_tests, source_injections
+from .ranking import largest
+
+__all__ = ["source_part", "TOP_SHARES", "NETWORK_ROWS", "SOURCE_CHUNK"]
+
+#: conductors named per source and stage as hum contributors (the rest are summed)
+TOP_SHARES = 10
+
+#: conductors listed per source in the JSON ``network`` section (the largest currents)
+NETWORK_ROWS = 50
+
+#: sources solved together in the hum budget (their branches × sources arrays bound the memory)
+SOURCE_CHUNK = 128
+
+
+def _largest(mags, rank):
+    """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken by owner
+    name rather than by the order the plan writes its conductors in."""
+    nb, k = mags.shape[1], min(mags.shape[1], TOP_SHARES + 8)
+    near = np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
+    rows = np.arange(len(mags))[:, None]
+    q = np.round(mags[rows, near] / np.maximum(mags.max(axis=1), 1e-300)[:, None], 9)
+    order = np.lexsort((rank[near], -q), axis=1)[:, :TOP_SHARES]
+    return near[rows, order]
+
+
+def source_part(b, f: float, fac, active: list, part) -> None:
+    """Each stated or simulated current's voltage at each channel's output, with the conductors'
+    shares, added to ``part``; the sources are solved SOURCE_CHUNK at a time, so a large
+    installation's branches × sources arrays stay small (the channels' test currents are solved
+    once).
+
+    Parameters:
+        b: the hum budget (:class:`groundcheck.physics.hum.HumBudget`).
+        f: the frequency, Hz.
+        fac: the circuit factorised at f.
+        active: the sources with a part at f.
+        part: the frequency's part, filled in (outputs, contributors, worst case, network rows,
+            probes).
+    Returns:
+        None.
+    References:
+        reciprocity (Penfield, Spence, Duinker, 1970); the module's description.
+    """
+    gains = b.gains_at(fac)
+    tests = (
+        b.tests
+        if not any(x is not None for x in b.across)
+        else channel_tests(
+            b.circuit,
+            [b.stages[k] for k in b.valid_idx],
+            b.channels,
+            gains[b.valid_idx],
+        )
+    )
+    TC = fac.solve(tests).I  # branches × channels
+    for lo in range(0, len(active), SOURCE_CHUNK):
+        _source_chunk(b, f, fac, active[lo : lo + SOURCE_CHUNK], gains, TC, part)
+
+
+def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
+    both = fac.solve(source_injections(b.circuit, active, f))
+    if b.probe_a.size:
+        power = (np.abs(both.V[b.probe_a] - both.V[b.probe_b]) ** 2).sum(axis=1)
+        part.probes = power if part.probes is None else part.probes + power
+    # each stage's own drop (node voltages of the source solves), for the worst case: every
+    # stage in phase
+    stage_v = np.abs(both.V[b.stage_a] - both.V[b.stage_b]) * np.abs(gains[b.valid_idx])[:, None]
+    groups = [
+        "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}" for s in active
+    ]
+    for ci, ch in enumerate(b.channels):
+        worst = stage_v[b.stage_channel == ci].sum(axis=0)
+        part.in_phase.extend((ch, g, float(w)) for g, w in zip(groups, worst))
+    # by reciprocity a branch's share of a channel is its drop Z_b·I_b(s) (both.dv: no EMF
+    # here) times the channel's test current in it; each source's output is their sum (one
+    # product for every source and channel)
+    drops = np.ascontiguousarray(np.abs(both.dv).T)  # |Z_b·I_b|, sources × branches
+    _network_rows(b, f, fac, active, both, drops, part)
+    v_all = both.dv.T @ TC  # sources × channels
+    mags = np.empty_like(drops)
+    for ci, ch in enumerate(b.channels):
+        np.multiply(drops, np.abs(TC[:, ci])[None, :], out=mags)
+        _shares(b, ch, mags, both.dv, TC[:, ci], v_all[:, ci], groups, part)
+
+
+def _shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
+    """Each source's output in one channel and its largest conductor shares (``mags_all``:
+    sources × branches, each branch's |share|; the share itself is zi·tc, ``zi`` branches ×
+    sources); the rest, each below the tenth largest, summed as other."""
+    owners = b.owners
+    nb = mags_all.shape[1]
+    if nb > TOP_SHARES:
+        tops = _largest(mags_all, b.owner_rank)
+    else:
+        tops = np.broadcast_to(np.arange(nb), (len(groups), nb))
+    rows = np.arange(len(groups))[:, None]
+    top_mags = mags_all[rows, tops]
+    # the largest share is among the tops
+    peak = top_mags.max(axis=1) if nb else np.zeros(len(groups))
+    top_shares = zi[tops, rows] * tc[tops]  # sources × TOP_SHARES
+    kept = top_mags > 1e-3 * np.maximum(peak, 1e-300)[:, None]
+    rests = (v_all - np.where(kept, top_shares, 0).sum(axis=1)).tolist()
+    # plain Python numbers from here: the merge adds tens of thousands of them one by one
+    v_list, tops_list = v_all.tolist(), tops.tolist()
+    shares_list, kept_list = top_shares.tolist(), kept.tolist()
+    many = nb > TOP_SHARES
+    for si, group in enumerate(groups):
+        v_out = v_list[si]
+        if v_out == 0:
+            continue
+        part.out.append((ch, group, v_out))
+        for bi, share, keep in zip(tops_list[si], shares_list[si], kept_list[si]):
+            if keep:
+                part.contrib.append((ch, ("conductor", owners[bi], group), share))
+        rest = rests[si]
+        if many and abs(rest) > 1e-3 * abs(v_out):
+            part.contrib.append((ch, ("conductor", "other conductors", group), rest))
+
+
+def _network_rows(b, f, fac, active, both, drops, part) -> None:
+    """The JSON network section's rows: each source's largest branch currents at its first
+    frequency (``drops``: sources × branches, |Z·I|)."""
+    circuit = b.circuit
+    admittance = np.abs(fac.y)
+    for si, s in enumerate(active):
+        first = abs(f - 2 * b.f0) < 1e-9 if s.kind == "rectifier" else f == min(s.parts)
+        if not first:
+            continue
+        mags = drops[si] * admittance  # |I|
+        sig = np.flatnonzero(mags > 1e-3 * abs(s.parts[f]))
+        sig = sig[largest(mags[sig], NETWORK_ROWS)]
+        I = both.dv[sig, si] * fac.y[sig]
+        part.network.append(
+            {
+                "source": s.name,
+                "frequency_hz": f,
+                "source_current_a": abs(s.parts[f]),
+                "conductors": [
+                    {
+                        "branch": circuit.branches[bi].name,
+                        "current_a": float(abs(i)),
+                        "drop_v": float(abs(i * fac.z[bi])),
+                    }
+                    for bi, i in zip(sig, I)
+                ],
+            }
+        )
