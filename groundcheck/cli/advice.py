@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 import sys
+import time
 from pathlib import Path
 
 from ..core.caution import CAUTION
@@ -48,8 +49,9 @@ class _progress:
 
 
 def cmd_suggest(args) -> int:
+    started = time.monotonic()  # the budget counts from here, the first analysis included
     from ..advice.apply import applied_files, moved_references
-    from ..advice.repair import greedy, suggest
+    from ..advice.repair import advise
     from ..advice.report import suggestions_document, suggestions_text
 
     if args.plan == "-":
@@ -72,24 +74,15 @@ def cmd_suggest(args) -> int:
     )  # as the loader reads it: no newline translation
     root, resolved = path.resolve().parent, path.resolve()
     with _progress("trying candidate changes") as progress:
-        before, evs = suggest(
+        before, evs, chosen, final = advise(
             plan,
             text,
             options_of(args),
             root,
             resolved,
-            budget=args.budget * 0.7,
+            budget=args.budget,
+            started=started,
             progress=progress,
-        )
-        chosen, final, _ = greedy(
-            plan,
-            text,
-            options_of(args),
-            root,
-            resolved,
-            evs=evs,
-            before=before,
-            budget=args.budget * 0.3,
         )
     name = path.name
     useful = [e for e in evs if not e.rejected]
