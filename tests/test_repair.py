@@ -427,7 +427,7 @@ def test_every_fix_given_as_actions_has_the_advisors_candidate(path):
 def test_every_fix_line_is_rechecked_by_the_advisor(path):
     # the repair a finding's fix line names is tried by the advisor on the plan, and it clears that
     # finding: a fix that would not clear its finding would show up here
-    from groundcheck.advice.repair import _label
+    from groundcheck.advice.evaluation import _label
 
     before, evs = _suggest(path)
     for f in before.findings:

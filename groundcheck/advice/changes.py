@@ -96,6 +96,7 @@ class ChangeContext:
         self.stars = [p.name for p in plan.points if p.kind == "star"]
         self.metals = {m.name for m in plan.metals}
         self.points = {p.name: p for p in plan.points}
+        self._nearest: dict[str, str | None] = {}
 
     def protective(self, c) -> bool:
         """Protective by topology or by role (groundcheck.network.earthing): never removed,
@@ -122,6 +123,18 @@ class ChangeContext:
         return self.src.statement(c.location.line, f)
 
     @cached_property
+    def _ends(self) -> dict[str, list]:
+        at: dict[str, list] = {}
+        for c in self.plan.conductors:
+            for end in dict.fromkeys((c.a, c.b)):
+                at.setdefault(end, []).append(c)
+        return at
+
+    def at(self, point: str) -> list:
+        """The conductors with an end on ``point``, in the plan's order."""
+        return self._ends.get(point, [])
+
+    @cached_property
     def G(self):
         from ..network.graph import build_graph
 
@@ -131,6 +144,11 @@ class ChangeContext:
         """The star a return from ``node`` should go to: the star of its own block placement or
         device when it has one (a channel's returns gather at the channel's star), else the nearest
         star in the network."""
+        if node not in self._nearest:
+            self._nearest[node] = self._nearest_star(node)
+        return self._nearest[node]
+
+    def _nearest_star(self, node: str) -> str | None:
         import networkx as nx
 
         group = self.points[node].group if node in self.points else None

@@ -4,6 +4,7 @@ progress bar) and ``compare`` (before and after)."""
 from __future__ import annotations
 
 import sys
+import time
 from pathlib import Path
 
 from ..renderers.formats import COMPARISON_FORMATS, SUGGESTION_FORMATS
@@ -99,8 +100,9 @@ class _progress:
     ),
 )
 def cmd_suggest(args) -> int:
+    started = time.monotonic()  # the budget counts from here, the first analysis included
     from ..advice.apply import application
-    from ..advice.repair import greedy, suggest
+    from ..advice.repair import advise
 
     target = _apply_target(args)
     path = Path(args.plan)
@@ -109,11 +111,14 @@ def cmd_suggest(args) -> int:
     text = path.read_bytes().decode("utf-8", "replace").lstrip("\ufeff")
     where = (path.resolve().parent, path.resolve())
     with _progress("trying candidate changes") as progress:
-        before, evs = suggest(
-            plan, text, options_of(args), *where, budget=args.budget * 0.7, progress=progress
-        )
-        chosen, final, _ = greedy(
-            plan, text, options_of(args), *where, evs=evs, before=before, budget=args.budget * 0.3
+        before, evs, chosen, final = advise(
+            plan,
+            text,
+            options_of(args),
+            *where,
+            budget=args.budget,
+            started=started,
+            progress=progress,
         )
     render = SUGGESTION_FORMATS[args.format].render
     sys.stdout.write(render(plan, text, path.name, evs, chosen, final))

@@ -1,0 +1,263 @@
+"""A candidate judged: its edits applied to the plan's text, the edited plan re-analysed, and the
+result weighed against the plan's own.
+
+Safety: a candidate that deletes or re-routes a protective conductor is never tried; a candidate
+whose re-analysis raises any protective path's resistance, takes a conductor off the protective
+route, leaves a touchable part unbonded, adds a danger, sends a supply's current through the star
+or leaves a socket or stage without its wired return is rejected; so is one that makes a channel
+louder without clearing a danger or fault, or gains nothing.  All are listed as considered and
+rejected.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..analysis import Options, Result, analyze
+from ..core.errors import PlanErrors
+from ..core.units import dbv
+from ..language.loader import load_text, substituted
+from ..model.kinds import is_fastening_kind
+from ..model.records import Plan
+from ..rules.catalogue import RULES, severity_rank
+from ..rules.rule_families import PROTECTIVE_EARTH
+from .changes import Candidate
+from .edits import apply_edits, edited_texts
+from .fixes import identity
+from .returns import lost_wired_returns
+
+__all__ = ["Evaluation", "evaluate", "HUM_FLOOR_DBV", "LOUDER_DB", "PE_TOLERANCE"]
+
+
+@dataclass
+class Evaluation:
+    candidate: Candidate
+    result: Result | None
+    score: float = 0.0
+    hum_change_db: dict = field(default_factory=dict)  # channel -> dB (negative: less hum)
+    cleared: list = field(default_factory=list)
+    introduced: list = field(default_factory=list)
+    rejected: str = ""
+    hum_before_dbv: dict = field(default_factory=dict)  # channel -> dBV (floored at HUM_FLOOR_DBV)
+    hum_after_dbv: dict = field(default_factory=dict)
+    net: dict = field(default_factory=dict)  # severity -> findings cleared less those introduced
+    cleared_keys: set = field(default_factory=set)  # identities it clears (fixes.identity)
+
+    def rank_key(self):
+        """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net),
+        hum gain, findings introduced, size of the change (statements edited, then metres of wire
+        laid)."""
+        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(
+            max(0.0, d) for d in self.hum_change_db.values()
+        )
+        return (
+            bool(self.rejected),
+            -self.net.get("danger", 0),
+            -self.net.get("fault", 0),
+            -round(gain, 1),
+            len(self.introduced),
+            len(self.candidate.edits),
+            round(self.candidate.wire, 4),
+            self.candidate.title,
+        )
+
+    def as_dict(self, diff: str = "") -> dict:
+        c = self.candidate
+        return {
+            "title": c.title,
+            "answers": c.reason,
+            "action": c.action,
+            "element": c.element,
+            "score": round(self.score, 3),
+            "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
+            "findings_cleared": self.cleared,
+            "findings_introduced": self.introduced,
+            "rejected": self.rejected or None,
+            "diff": diff,
+        }
+
+
+#: hum totals are compared down to this level, dBV: below it a change is of no consequence
+HUM_FLOOR_DBV = -140.0
+
+#: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding),
+#: clearing no danger or fault, is rejected
+LOUDER_DB = 0.05
+
+#: a protective path may change by this much (relative) before a change counts as weakening it: the
+#: plate model's own accuracy (see groundcheck.plate)
+PE_TOLERANCE = 0.06
+
+
+def _hum_db(r: Result) -> dict[str, float]:
+    if r.hum is None:
+        return {}
+    return {ch: max(HUM_FLOOR_DBV, dbv(h.total_v)) for ch, h in r.hum.channels.items()}
+
+
+def _keys(r: Result):
+    return {identity(f): f for f in r.open_findings()}
+
+
+def _label(f) -> str:
+    shown = ", ".join(f.elements[:3]) + ("…" if len(f.elements) > 3 else "")
+    return f"{f.code} {shown}".strip()
+
+
+def _pe(r: Result) -> dict[str, float]:
+    return {} if r.safety is None else {p.part: p.path_resistance for p in r.safety.parts}
+
+
+def evaluate(
+    base_text: str,
+    plan: Plan,
+    before: Result,
+    cand: Candidate,
+    options: Options,
+    root: Path | None = None,
+    resolved: Path | None = None,
+) -> Evaluation:
+    """Apply a candidate to the text, re-analyse, and score it against ``before``."""
+    if cand.touches_protective:
+        return Evaluation(cand, None, rejected="it would change a protective conductor")
+    if cand.refused:
+        return Evaluation(cand, None, rejected=cand.refused)
+    p = _edited_plan(base_text, plan, cand, root, resolved)
+    if isinstance(p, str):
+        return Evaluation(cand, None, rejected=p)
+    after = analyze(p, options)
+    return _judged(cand, plan, p, before, after)
+
+
+def _edited_plan(base_text: str, plan: Plan, cand: Candidate, root, resolved) -> Plan | str:
+    """The plan with the candidate's edits, or why it is refused before any analysis: it does not
+    load, or it takes a socket's or a stage's only wired return away."""
+    text = apply_edits(base_text, cand.edits)
+    try:
+        with substituted(edited_texts(cand.edits)):
+            p = load_text(text, plan.file, root=root, _resolved=resolved)
+    except PlanErrors as e:
+        return f"the edited plan does not load ({e.errors[0].one_line()})"
+    unwired = lost_wired_returns(plan, p)
+    if unwired:
+        return (
+            f"it would leave {', '.join(unwired[:3])} without "
+            "a wired return (the signal would return through the chassis, or not at all)"
+        )
+    return p
+
+
+def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result) -> Evaluation:
+    """The evaluation of candidate ``cand`` whose edited plan ``p`` analyses to ``after``: the
+    protective earth's checks first, then the findings cleared and introduced, then the score."""
+    ev = Evaluation(cand, after)
+    ev.rejected = _protective_harm(cand, plan, p, before, after)
+    if ev.rejected:
+        return ev
+    k0, k1 = _keys(before), _keys(after)
+    ev.cleared_keys = set(k0.keys() - k1.keys())
+    ev.cleared = sorted(_label(k0[k]) for k in ev.cleared_keys)
+    ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
+    new = k1.keys() - k0.keys()
+    for k in k0.keys() - k1.keys():  # the findings' own severities, not their rules' defaults
+        ev.net[k0[k].severity] = ev.net.get(k0[k].severity, 0) + 1
+    for k in new:
+        ev.net[k1[k].severity] = ev.net.get(k1[k].severity, 0) - 1
+    if any(k1[k].severity == "danger" for k in new):
+        ev.rejected = "it would add a danger finding"
+        return ev
+    outlets = {p.name for p in after.plan.points if p.kind == "outlet"}
+    # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the
+    # signal ground
+    if any(
+        k1[k].code in ("GC106", "GC109", "GC401")
+        and not (cand.moves_plug and set(k1[k].elements) <= outlets)
+        for k in new
+    ):
+        ev.rejected = "it would leave part of the signal ground unconnected"
+        return ev
+    _score(ev, before, after, k0, k1)
+    return ev
+
+
+def _protective_harm(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result) -> str:
+    """Why the change is refused for the supply's returns or the protective earth (empty when it
+    is not): a supply's current sent through the star, a conductor taken off the protective
+    route, a protective path weakened."""
+    if _through_star(cand, after):
+        return "it would send a supply's charging or ripple current through the star"
+    # a device plugged in elsewhere leaves the building runs it used, but no conductor: its earth
+    # path is checked again below (a broken or long one is a danger, GC215)
+    lost = (
+        sorted(before.protective - after.protective - _left_stud(cand, plan, p))
+        if not cand.moves_plug
+        else []
+    )
+    if lost:
+        return f"it would take {', '.join(lost[:3])} off the protective route"
+    pe0, pe1 = _pe(before), _pe(after)
+    # a change that answers a protective-earth finding (its own stud, say) may lengthen a path a
+    # little, as long as every path stays within the limit; any other change must not weaken the
+    # protective earth at all
+    pe_fix = RULES[cand.reason.split(",")[0]].family == PROTECTIVE_EARTH
+    limit = after.safety.limit if after.safety is not None else 0.0
+    if any(
+        part not in pe1
+        or (pe1[part] > r * (1 + PE_TOLERANCE) + 1e-5 and not (pe_fix and pe1[part] <= limit))
+        for part, r in pe0.items()
+    ):
+        return "it would weaken the protective-earth path"
+    return ""
+
+
+def _left_stud(cand: Candidate, plan: Plan, after: Plan) -> set[str]:
+    """The fastenings of the stud a protective wire left for a stud of its own (GC202's fix): the
+    wire no longer runs through them, and its new stud's own fastening carries it instead."""
+    if cand.action != "own-stud":
+        return set()
+    c0, c1 = (
+        next((c for c in x.conductors if c.name == cand.element), None) for x in (plan, after)
+    )
+    if c0 is None or c1 is None:
+        return set()
+    left = {c0.a, c0.b} - {c1.a, c1.b}
+    return {c.name for c in plan.conductors if is_fastening_kind(c.kind) and left & {c.a, c.b}}
+
+
+def _through_star(cand: Candidate, after: Result) -> bool:
+    """Whether a moved conductor lands where a supply's two returns then meet only at the star
+    (GC103's 'join' finding names the star and both returns' points): the trade joins them
+    before it."""
+    if cand.action not in ("move", "join"):
+        return False
+    c = next((c for c in after.plan.conductors if c.name == cand.element), None)
+    return c is not None and any(
+        f.code == "GC103"
+        and f.actions
+        and f.actions[0][0] == "join"
+        and {c.a, c.b} <= set(f.elements)
+        for f in after.findings
+    )
+
+
+def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:
+    """The hum change and score of a candidate that passed the safety checks; rejected when it
+    makes a channel louder without clearing a danger or fault, or gains nothing."""
+    h0, h1 = _hum_db(before), _hum_db(after)
+    ev.hum_before_dbv, ev.hum_after_dbv = h0, {ch: h1.get(ch, HUM_FLOOR_DBV) for ch in h0}
+    ev.hum_change_db = {ch: ev.hum_after_dbv[ch] - h0[ch] for ch in h0}
+    weight = {0: 30.0, 1: 10.0, 2: 3.0, 3: 0.5}
+    score = sum(max(0.0, -d) for d in ev.hum_change_db.values()) - sum(
+        max(0.0, d) for d in ev.hum_change_db.values()
+    )
+    score += sum(weight[severity_rank(k0[k].severity)] for k in k0.keys() - k1.keys())
+    score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
+    ev.score = score
+    louder = {ch: d for ch, d in ev.hum_change_db.items() if d > LOUDER_DB}
+    if louder and ev.net.get("danger", 0) <= 0 and ev.net.get("fault", 0) <= 0:
+        # advice that makes a channel hum more is no advice, unless it clears a danger or a fault
+        ch, d = max(louder.items(), key=lambda kv: kv[1])
+        ev.rejected = f"it would make the {ch} hum {d:.1f} dB louder"
+    elif score <= 1e-9:
+        ev.rejected = "no predicted gain: no hum removed and no finding cleared on balance"

@@ -1,0 +1,102 @@
+"""Opening a ground loop (common practice): insulate the fastening that closes it from the metal
+(an insulated socket or shoulder washers), remove a second chassis bond or the wire that closes
+it, or turn a second bond into a lift network (10 Ω ∥ 47 nF); a shield grounded at both ends is
+terminated at the end its rule keeps instead, never removed."""
+
+from __future__ import annotations
+
+from ..model.kinds import is_fastening, is_hookup, joins_devices, shield_like
+from .changes import Candidate, ChangeContext, delete_change, local_name, rephrase
+from .edits import Edit
+from .returns import insulate_candidates
+
+__all__ = ["loop_candidates", "terminate_shield", "second_bond"]
+
+
+def loop_candidates(ctx: ChangeContext, add) -> None:
+    insulate_candidates(ctx, add)  # a fastened socket first: the same edit keeps its words
+    for lp in ctx.result.loops:
+        if lp.closed_by == "chassis-structure" or not lp.open_at:
+            continue
+        c = ctx.cond[lp.open_at]
+        if lp.closed_by == "shield-both-ends" and shield_like(c) and not joins_devices(c):
+            continue  # answered by terminating one end, below
+        if is_fastening(c, ctx.metals):
+            add(
+                delete_change(
+                    ctx,
+                    lp.open_at,
+                    f"insulate {lp.open_at} from the metal (insulated socket or shoulder washers) "
+                    f"to open the loop closed by {lp.closed_by}",
+                    "GC101",
+                    "insulate",
+                )
+            )
+        else:
+            add(
+                delete_change(
+                    ctx,
+                    lp.open_at,
+                    f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
+                    "GC101",
+                )
+            )
+        st = ctx.statement(c)
+        if (
+            lp.closed_by in ("second-chassis-bond", "mains-cords")
+            and is_hookup(c)
+            and st is not None
+        ):
+            ends = ctx.src.ends(st)
+            if ends is not None:
+                indent = ctx.src.lines_of(st.loc.file)[st.loc.line - 1][: st.loc.column - 1]
+                new = f"{indent}lift {st.label}: {ends[0].text} to {ends[1].text}, 10 ohm, 47 nF"
+                file = None if st.loc.file == ctx.plan.file else st.loc.file
+                edit = Edit(st.loc.line, new, (), ctx.src.last_line(st), file)
+                add(
+                    Candidate(
+                        f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)",
+                        "GC101",
+                        (edit,),
+                        ctx.protective(c),
+                        action="lift-network",
+                        element=lp.open_at,
+                    )
+                )
+
+
+def terminate_shield(ctx: ChangeContext, f, add) -> None:
+    """GC108: the shield terminated at the end the finding keeps (no action when the shield is
+    an end's only return)."""
+    if not f.actions:
+        return
+    ((_, shield, keep),) = f.actions
+    c = ctx.cond[shield]
+    st = ctx.statement(c)
+    if st is not None:
+        add(
+            rephrase(
+                ctx,
+                c,
+                ("terminated", "both"),
+                f"terminated {local_name(c.name, st.label or '', keep)}",
+                f"terminate shield {c.name} at {keep} only",
+                f.code,
+            )
+        )
+
+
+def second_bond(ctx: ChangeContext, f, add) -> None:
+    """GC105: each second chassis bond insulated (a fastening) or removed; a shield is lifted at
+    one end instead (GC108), never removed."""
+    for verb, e in f.actions:
+        c = ctx.cond.get(e)
+        if c is None or shield_like(c):
+            continue
+        what = (
+            "insulate {e} from the metal (insulated socket or shoulder washers)"
+            if verb == "insulate"
+            else "remove the second chassis bond {e}"
+        )
+        action = "insulate" if verb == "insulate" else "remove"
+        add(delete_change(ctx, e, what.format(e=e), f.code, action))

@@ -1,0 +1,264 @@
+"""The protective earth's own repairs (common practice): a stud of its own for the protective
+conductor that shares a fastening (GC202), the line conductor's section for an undersized
+protective conductor (GC204), and a protective wire of its own for a touchable part with no
+protective path or one through a poor contact (GC205, GC206).  Each only strengthens the
+protective earth: a protective conductor is never removed, lifted, thinned or lengthened beyond
+its new route."""
+
+from __future__ import annotations
+
+import math
+
+from ..model.kinds import PROTECTIVE, ROLES, is_fastening, is_fastening_kind, is_hookup
+from ..model.records import PE_POINT
+from .changes import (
+    ROUTE_ALLOWANCE,
+    SOURCE_CLEARANCE,
+    STANDARD_SECTIONS_MM2,
+    STUD_CLEARANCE,
+    Candidate,
+    ChangeContext,
+    squeeze,
+)
+from .edits import Edit
+
+__all__ = ["own_stud", "bonding_wire", "thicker"]
+
+
+def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] | None:
+    """A place for a new stud on ``part`` near ``near``: on the part, outside every other part's
+    outline and every field source's footprint, and at least STUD_CLEARANCE from the part's other
+    points."""
+    metal = ctx.plan.metal(part)
+    area = abs(metal.size[0] * metal.size[1]) if metal.size else math.inf
+    # parts mounted on it (smaller than it: a transformer frame, a bracket); a cover or bottom
+    # plate the size of the part lies over or under all of it and takes no room on its face
+    others = [
+        m
+        for m in ctx.plan.metals
+        if m.name != part and m.size is not None and abs(m.size[0] * m.size[1]) < area
+    ]
+    taken = [p.pos for p in ctx.plan.points if p.pos is not None]
+    sources = [s.pos for s in ctx.plan.fields]
+    for r in (20e-3, 30e-3, 40e-3, 60e-3):
+        for k in range(8):
+            a = math.pi / 4 * k
+            q = (near[0] + r * math.cos(a), near[1] + r * math.sin(a))
+            if not metal.contains(q) or any(m.contains(q) for m in others):
+                continue
+            if any(math.dist(q, t) < STUD_CLEARANCE for t in taken) or any(
+                math.dist(q, s) < SOURCE_CLEARANCE for s in sources
+            ):
+                continue
+            return q
+    return None
+
+
+def _fastened_to(ctx: ChangeContext, point: str) -> str | None:
+    """The metal part a fastening holds ``point`` to (None when no fastening holds it)."""
+    return next(
+        (
+            k.b if k.b in ctx.metals else k.a
+            for k in ctx.plan.conductors
+            if is_fastening(k, ctx.metals) and point in (k.a, k.b)
+        ),
+        None,
+    )
+
+
+def _free_name(ctx: ChangeContext, names) -> str:
+    """The first of ``names`` that names no point of the plan yet."""
+    return next(n for n in names if ctx.plan.point(n) is None)
+
+
+def _shared_stud_wire(ctx: ChangeContext, f):
+    """GC202's protective conductor (a wire, not a fastening) and the stud it shares."""
+    pe = next(
+        (
+            ctx.cond[e]
+            for e in f.elements
+            if e in ctx.cond
+            and e in ctx.result.protective
+            and not is_fastening_kind(ctx.cond[e].kind)
+        ),
+        None,
+    )
+    old_pt = ctx.plan.point(f.elements[1]) if len(f.elements) > 1 else None
+    return pe, old_pt
+
+
+def own_stud(ctx: ChangeContext, f) -> Candidate | None:
+    """GC202: the protective conductor moves to a new stud of its own, on the part the old stud
+    sits on."""
+    pe, old_pt = _shared_stud_wire(ctx, f)
+    st = ctx.statement(pe) if pe is not None else None
+    if st is None or old_pt is None or old_pt.pos is None:
+        return None
+    part = old_pt.on if old_pt.on in ctx.metals else _fastened_to(ctx, old_pt.name)
+    ends = ctx.src.ends(st)
+    where = _stud_position(ctx, part, old_pt.pos) if part is not None else None
+    if where is None or ends is None:
+        return None
+    new_pt = _free_name(ctx, ("pe_stud", "pe_stud2", "pe_stud3", "pe_stud4"))
+    item = ends[1] if pe.b == old_pt.name else ends[0]
+    changes = [(item, new_pt)]
+    other = ctx.points.get(pe.a if pe.b == old_pt.name else pe.b)
+    old_len = ctx.src.quantity(st, "length")
+    if other is not None and other.pos is not None and old_len is not None:
+        length = math.dist(other.pos, where) * (1 + ROUTE_ALLOWANCE)
+        changes.append((old_len, f"{max(length, 10e-3) * 1e3:.0f} mm"))
+    edit = ctx.src.replace(st, _written_protective(ctx, st, changes))  # its comment stays
+    x, y = where[0] * 1e3, where[1] * 1e3
+    extra = (
+        f"point {new_pt}: stud, at {x:.0f},{y:.0f} on {part}",
+        f"bolt {new_pt}_nut: {new_pt} to {part}",
+    )
+    edit = Edit(edit.line, edit.new, extra, edit.last, edit.file)
+    return Candidate(
+        f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, "
+        f"clear of other parts and fastenings): {pe.name}'s end moves there, its section and "
+        "comment kept",
+        "GC202",
+        (edit,),
+        touches_protective=False,
+        action="own-stud",
+        element=pe.name,
+    )
+
+
+def _written_protective(ctx: ChangeContext, st, changes: list) -> list:
+    """``changes`` of a protective conductor's statement, with its role written ``protective``: a
+    role word it has is replaced, else ``, protective`` follows its last item (its section is
+    never changed)."""
+    if ctx.src.find(st, PROTECTIVE):
+        return changes
+    for word in (r for r in ROLES if r != PROTECTIVE):
+        ph = ctx.src.find(st, word)
+        if ph and len(ph) == 1:
+            return changes + [(ph[0], "protective")]
+    last = st.phrases[-1][-1]
+    mine = dict((id(it), new) for it, new in changes)
+    n, a, b = ctx.src.span(last)
+    text = mine.get(id(last), ctx.src.lines_of(st.loc.file)[n - 1][a:b])
+    return [c for c in changes if c[0] is not last] + [(last, text + ", protective")]
+
+
+def _protective_lead(ctx: ChangeContext):
+    """The mains cord's protective lead (a hook-up wire from the protective-earth point), the
+    point it lands on and its statement; None when the plan has none of them."""
+    lead = next(
+        (
+            c
+            for c in ctx.plan.conductors
+            if PE_POINT in (c.a, c.b) and is_hookup(c) and ctx.protective(c)
+        ),
+        None,
+    )
+    if lead is None or ctx.plan.mains is None:
+        return None
+    landing = ctx.points.get(lead.b if lead.a == PE_POINT else lead.a)
+    st = ctx.statement(lead)
+    if landing is None or landing.pos is None or st is None:
+        return None
+    return lead, landing, st
+
+
+def _bond_ends(ctx: ChangeContext, home: str, landing, part: str):
+    """The new bonding stud beside the protective earth's landing on ``home`` and the new stud on
+    ``part`` nearest it, with their names; None when either finds no room."""
+    metal = ctx.plan.metal(part)
+    start = _stud_position(ctx, home, landing.pos)
+    (x0, y0), (w, h) = metal.origin, metal.size
+    near = (min(max(landing.pos[0], x0), x0 + w), min(max(landing.pos[1], y0), y0 + h))
+    end = _stud_position(ctx, part, near)
+    if start is None or end is None:
+        return None
+    a = _free_name(ctx, (f"{home}_bond", f"{home}_bond2", f"{home}_bond3"))
+    b = _free_name(ctx, (f"{part}_pe", f"{part}_pe2", f"{part}_pe3"))
+    return start, end, a, b
+
+
+def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
+    """GC205, GC206: a touchable part with no protective path, or one through a poor contact
+    (hinges, paint, anodised threads), gets a protective wire of its own from a new bonding stud
+    beside the protective earth's stud (the protective earth keeps its fastener to itself, GC202)
+    to a new stud on the part (common practice: each touchable part bonded by a conductor, never
+    through its fixings)."""
+    part = next((e for e in f.elements if e in ctx.metals), None)
+    found = _protective_lead(ctx) if part is not None else None
+    metal = ctx.plan.metal(part) if found is not None else None
+    if found is None or metal is None or metal.size is None:
+        return None
+    lead, landing, st = found
+    home = _fastened_to(ctx, landing.name)
+    if home is None or home == part:
+        return None  # the path is the part itself: GC206's own fix (fastenings, the lead)
+    ends = _bond_ends(ctx, home, landing, part)
+    if ends is None:
+        return None
+    start, end, a, b = ends
+    area = max(lead.area or 0.0, ctx.plan.mains.line_area or 0.0) * 1e6
+    area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
+    length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), 10e-3) * 1e3
+    mm = [round(v * 1e3) for v in (*start, *end)]
+    extra = (
+        f"point {a}: stud, at {mm[0]},{mm[1]} on {home}",
+        f"bolt {a}_nut: {a} to {home}",
+        f"point {b}: stud, at {mm[2]},{mm[3]} on {part}",
+        f"bolt {b}_nut: {b} to {part}",
+        f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective",
+    )
+    return Candidate(
+        f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud "
+        f"{a} on {home} beside {landing.name} to a new stud {b} on {part}; bare metal under "
+        "toothed washers)",
+        f.code,
+        (_at_end(ctx, st, extra),),
+        touches_protective=False,
+        wire=length / 1e3,
+        action="bond",
+        element=part,
+    )
+
+
+def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
+    """New statements at the end of the file ``st`` is in (top level), so that they never share
+    lines with another change's edit (the combined set keeps both)."""
+    lines = ctx.src.lines_of(st.loc.file)
+    file = None if st.loc.file == ctx.plan.file else st.loc.file
+    n = len(lines)
+    if lines[-1] == "":
+        return Edit(n, "\n".join(extra) + "\n", (), n, file)
+    return Edit(n, lines[-1], extra, n, file)
+
+
+def thicker(ctx: ChangeContext, f) -> Candidate | None:
+    """GC204: the protective conductor at the line conductor's cross-section (a change that only
+    strengthens it)."""
+    c = ctx.cond[f.elements[0]]
+    st = ctx.statement(c)
+    if st is None or ctx.plan.mains is None or ctx.plan.mains.line_area is None:
+        return None
+    line = ctx.plan.mains.line_area * 1e6
+    area = next((a for a in STANDARD_SECTIONS_MM2 if a >= line * (1 - 1e-9)), line)
+    new = f"{area:g} mm2"
+    item = ctx.src.quantity(st, "area")
+    if item is not None:
+        edit = ctx.src.replace(st, [(item, new)])
+    else:
+        # 'AWG 18' written word first; a trace, bus bar or strap given by its width is made wider
+        # by hand (the finding says so), never turned into a round wire by giving it an area
+        ph = ctx.src.find(st, "AWG")
+        if not ph:
+            return None
+        edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
+        edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
+    return Candidate(
+        f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
+        f"protective conductor {c.name}",
+        "GC204",
+        (edit,),
+        touches_protective=False,
+        action="thicken",
+        element=c.name,
+    )

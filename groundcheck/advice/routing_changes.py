@@ -1,0 +1,210 @@
+"""Returns re-routed (common practice): a return run to its star by a wire of its own, a supply's
+two return ends (a rectifier's charging current, a filter capacitor's ripple) joined directly so
+that its current leaves the shared ground, a stage's reference taken to the star, a channel's
+load return taken off another channel's ground; and any rule's structured actions (move, join,
+remove, insulate) carried out as written."""
+
+from __future__ import annotations
+
+from ..model.kinds import SIGNAL, shield_like
+from ..rules.catalogue import RULES
+from .changes import ChangeContext, delete_change, reroute
+
+__all__ = [
+    "carried_actions",
+    "star_candidates",
+    "shared_return_candidates",
+    "crosstalk_candidates",
+]
+
+
+def _near_far(dist: dict, c) -> tuple[str, str]:
+    """``c``'s end nearer a point (by ``dist``, hops from it) and its other end."""
+    near = c.a if dist.get(c.a, 10**9) < dist.get(c.b, 10**9) else c.b
+    return near, (c.b if near == c.a else c.a)
+
+
+def carried_actions(ctx: ChangeContext, f, add) -> None:
+    """Any other rule's structured actions (a rule added later needs no code here): ("reroute",
+    conductor, point) moves the conductor's end nearer the point onto it; ("remove", conductor) and
+    ("insulate", fastening) delete it.  Each is evaluated like every candidate."""
+    import networkx as nx
+
+    for verb, name, *where in f.actions:
+        c = ctx.cond.get(name)
+        if c is None or f.code not in RULES:
+            continue
+        if verb in ("reroute", "move", "join") and where and where[0] in ctx.G:
+            near, far = _near_far(nx.single_source_shortest_path_length(ctx.G, where[0]), c)
+            title = f"take {far} to {where[0]} by its own wire ({name})"
+            add(
+                reroute(
+                    ctx, name, near, where[0], title, f.code, "join" if verb == "join" else "move"
+                )
+            )
+        elif verb in ("remove", "insulate"):
+            add(delete_change(ctx, name, f"{verb} {name}", f.code, verb))
+
+
+def star_candidates(ctx: ChangeContext, f, add) -> None:
+    """GC103: the finding's own actions (a star reaching the common star through another
+    channel's, a supply's two returns meeting only at the star); without any, each wire between
+    two of its points runs to its star by a wire of its own."""
+    if f.actions:
+        _star_actions(ctx, f, add)
+    else:
+        _star_wires(ctx, f, add)
+
+
+def _star_actions(ctx: ChangeContext, f, add) -> None:
+    """The finding's ("reroute" | "join", conductor, point) actions: its end nearer the point moved
+    onto it."""
+    import networkx as nx
+
+    for verb, name, *where in f.actions:
+        c = ctx.cond.get(name)
+        if verb not in ("reroute", "join") or c is None or not where:
+            continue
+        near, far = _near_far(nx.single_source_shortest_path_length(ctx.G, where[0]), c)
+        if verb == "join":  # a supply's two returns meeting only at the star
+            title = (
+                f"join {far} straight to {where[0]} ({name}), so the supply's current "
+                "circulates between them and leaves the star"
+            )
+            add(reroute(ctx, name, near, where[0], title, f.code, "join"))
+        else:
+            title = f"run {far} to {where[0]} by its own wire ({name})"
+            add(reroute(ctx, name, near, where[0], title, f.code))
+
+
+def _star_wires(ctx: ChangeContext, f, add) -> None:
+    """Each non-protective conductor between two of the finding's points (none on its first star)
+    runs to that star by a wire of its own."""
+    import networkx as nx
+
+    stars = [e for e in f.elements if e in ctx.stars]
+    if not stars:
+        return
+    dist = nx.single_source_shortest_path_length(ctx.G, stars[0])
+    for c in ctx.plan.conductors:
+        if (
+            c.a in f.elements
+            and c.b in f.elements
+            and not ctx.protective(c)
+            and stars[0] not in (c.a, c.b)
+        ):
+            near, far = _near_far(dist, c)
+            title = f"run {far} to {stars[0]} by its own wire ({c.name})"
+            add(reroute(ctx, c.name, near, stars[0], title, f.code))
+
+
+def _join_ends(ctx: ChangeContext, row, add) -> None:
+    """A rectifier's return (its charging current, or its filter capacitor's ripple current) whose
+    two ends are not joined by a conductor of their own: move the far end of a conductor leaving
+    one end onto the other, so that the current circulates between them alone (common practice:
+    reservoir negative and centre tap or bridge negative joined directly; a filter capacitor's
+    negative to the reservoir's)."""
+    if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
+        return
+    for end, other in ((row.a, row.b), (row.b, row.a)):
+        for d in ctx.at(other):
+            # a wire written 'signal' is a stage's reference, never a supply's return to join
+            if (
+                other in (d.a, d.b)
+                and not shield_like(d)
+                and not ctx.protective(d)
+                and d.role != SIGNAL
+            ):
+                far = d.b if d.a == other else d.a
+                add(
+                    reroute(
+                        ctx,
+                        d.name,
+                        far,
+                        end,
+                        f"join {other} straight to {end} ({d.name}), so the {row.source} current "
+                        f"stays between them and leaves {', '.join(row.shared)}",
+                        "GC102",
+                        "join",
+                    )
+                )
+
+
+def shared_return_candidates(ctx: ChangeContext, add) -> None:
+    """Shared returns: join the rectifier's ends directly, and re-route the stage's reference to
+    the star.  Each row names its source's two ends (a rectifier's, its filter's, or a stated
+    current's)."""
+    plan = ctx.plan
+    for row in ctx.result.coupling:
+        if row.kind == "rectifier":
+            _join_ends(ctx, row, add)
+        stage = next((s for s in plan.stages if s.name == row.stage), None)
+        if row.kind not in ("rectifier", "current") or stage is None:
+            continue
+        for shared in row.shared:
+            c = ctx.cond.get(shared)
+            if c is None:
+                continue
+            for end, other in ((row.a, row.b), (row.b, row.a)):
+                for d in ctx.at(other):
+                    if other in (d.a, d.b) and d.name != shared and not ctx.protective(d):
+                        far = d.b if d.a == other else d.a
+                        if far in (c.a, c.b) and far != end:
+                            add(
+                                reroute(
+                                    ctx,
+                                    d.name,
+                                    far,
+                                    end,
+                                    f"join {other} straight to {end} ({d.name}), so the "
+                                    f"{row.source} current leaves {shared}",
+                                    "GC102",
+                                    "join",
+                                )
+                            )
+            for p in (stage.b, stage.a):
+                star = ctx.nearest_star(p)
+                for d in ctx.at(p):
+                    if p in (d.a, d.b) and not ctx.protective(d):
+                        far = d.b if d.a == p else d.a
+                        if star and far != star and far in (c.a, c.b):
+                            add(
+                                reroute(
+                                    ctx,
+                                    d.name,
+                                    far,
+                                    star,
+                                    f"take {p} to {star} by its own wire ({d.name})",
+                                    "GC102",
+                                )
+                            )
+
+
+def crosstalk_candidates(ctx: ChangeContext, add) -> None:
+    """GC304: a channel's signal return (its stated load current) that crosses another channel's
+    reference: the wire leaving the return's far end is taken straight to where the current goes
+    (its star), so the return no longer runs along the other channel's ground (common practice:
+    each channel's load return to the star on a wire of its own)."""
+    talkers = {f.elements[0] for f in ctx.result.findings if f.code == "GC304" and f.elements}
+    for cur in ctx.plan.currents:
+        if cur.role != SIGNAL or cur.channel not in talkers:
+            continue
+        goal = cur.b if cur.b in ctx.stars else ctx.nearest_star(cur.b)
+        for d in ctx.at(cur.a):
+            if cur.a in (d.a, d.b) and not shield_like(d) and not ctx.protective(d):
+                far = d.b if d.a == cur.a else d.a
+                # a wire that lands on a socket is the lead plugged into it (a headphone lead's
+                # common): its end stays on the socket
+                socket = far in ctx.points and ctx.points[far].kind in ("sleeve", "jack")
+                if goal and far != goal and not socket:
+                    add(
+                        reroute(
+                            ctx,
+                            d.name,
+                            far,
+                            goal,
+                            f"take {cur.a} to {goal} by its own wire ({d.name}), so the "
+                            f"{cur.channel} channel's return leaves the other channel's ground",
+                            "GC304",
+                        )
+                    )
