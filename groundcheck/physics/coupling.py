@@ -346,6 +346,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     column = {k: i for i, k in enumerate(need)}
     test = fac.solve(pair_tests(circuit, [(stages[k].a, stages[k].b) for k in need]))
     owners = branch_owner(circuit)
+    rank = np.argsort(np.argsort(np.array(owners, dtype=object), kind="stable"), kind="stable")
     # branch currents only for the sources that share (not one column for every source of a large
     # installation)
     used = sorted({int(si) for _, si in pairs})
@@ -379,7 +380,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
                 st.gain,
                 st.location,
                 float(transfer[k, si]),
-                _main_sharers(shares, carrying, owners),
+                _main_sharers(shares, carrying, owners, rank),
             )
         )
     return rows
@@ -409,17 +410,24 @@ def _transfers(circuit: Circuit, fac: Factored, sources: list, stages: list) -> 
     return transfer
 
 
-def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -> tuple[str, ...]:
+def _main_sharers(
+    shares: np.ndarray, carrying: np.ndarray, owners: list[str], rank: np.ndarray
+) -> tuple[str, ...]:
     """The conductors that make up most of the coupling (largest shares first, 90 % of it, at most
-    five)."""
+    five); equal shares (to 1e-9 of the largest) in the order of their owners' names (``rank``),
+    never in the order the plan writes them, as the hum budget's contributors are."""
     mags = np.abs(shares)
     cand = np.flatnonzero(carrying)
     total = mags[cand].sum()
+    q = np.round(mags / max(mags[cand].max(initial=0.0), 1e-300), 9)
     # the largest 64 nearly always decide (five owners, or 90 %): the full sort only when they do
     # not
     for k in (64, len(cand)):
+        near = cand[largest(mags[cand], k)]
+        if k < len(cand):  # and every share equal to the smallest of them, wherever it stands
+            near = np.union1d(near, cand[q[cand] >= q[near].min()])
         shared, acc = [], 0.0
-        for b in cand[largest(mags[cand], k)]:
+        for b in near[np.lexsort((rank[near], -q[near]))]:
             if owners[b] not in shared:
                 shared.append(owners[b])
             acc += mags[b]

@@ -26,6 +26,7 @@ from ..model.kinds import (
     shield_like,
 )
 from ..model.records import PE_POINT, Conductor, Plan
+from ..network.canonical import canonical_ranks
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
 from ..network.graph import (
     Loop,
@@ -271,7 +272,9 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         for c in cs
         if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)
     }
-    # by name, not in the order the loop happens to be walked (which follows the plan's writing)
+    # by what each is (its canonical rank), neither in the order the loop happens to be walked nor
+    # by its name
+    rank = canonical_ranks(ctx.G)
     candidates = sorted(
         (
             c
@@ -283,7 +286,7 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
                 bonds_metal(c) and c.role == BOND and (c.a in ctx.metals and c.b in ctx.metals)
             )
         ),
-        key=lambda c: c.name,
+        key=lambda c: rank[c.name],
     )
     if not candidates:
         return ""
@@ -329,7 +332,10 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
         if crossing:
             return max(
                 crossing,
-                key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name),
+                key=lambda c: (
+                    pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b),
+                    rank[c.name],
+                ),
             ).name
     return candidates[-1].name
 
