@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import dataclasses
 import re
+from random import Random
 
 import numpy as np
 from hypothesis import HealthCheck, Phase, given, settings, strategies as st
@@ -24,7 +25,15 @@ from groundcheck.physics.coupling import LISTED_TRANSFER
 from groundcheck.physics.humtotals import FLOOR_V
 from groundcheck.physics.plate import contact_groups, reduce_plate
 from figures import differences, result_figures
-from invariantplans import mirrored_plans, mirrored_text, resistive_plans, resistive_text
+from invariantplans import (
+    AREAS,
+    Block,
+    Mirrored,
+    mirrored_plans,
+    mirrored_text,
+    resistive_plans,
+    resistive_text,
+)
 from rewrites import reordered
 
 REL, FLOOR = 1e-9, 1e-15
@@ -282,3 +291,14 @@ test_an_element_connected_to_nothing_changes_no_figure = _suite(
     "an unconnected element changes no figure"
 )
 test_scaling_every_resistance_scales_every_drop = _suite("drops scale with resistance")
+
+
+def test_equal_shares_of_two_different_wires_are_named_alike_under_new_names():
+    """Found by the campaign (benchmarks/fuzz_campaign.py --invariants 2000): `left_link` (51 mm
+    of 0.75 mm²) and `left.w0` (34 mm of 0.5 mm²) have equal resistances, 51/0.75 = 34/0.5 = 68
+    (worked by hand), so equal shares of a coupling; GC102 names one of them by the name's order,
+    and renamed the other."""
+    wires = ((1, 0, 0, AREAS[0]), (2, 1, 0, AREAS[0]))
+    block = Block(((106, 6), (98, 38), (64, 4)), wires, (1, 2), (2, 0, 0), None)
+    m = Mirrored("x", block, 4, 20.0, 3, False, False)
+    renamed_and_reordered(m, Random(0))

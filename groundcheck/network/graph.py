@@ -227,19 +227,20 @@ def polygon_area(pts) -> float:
     if len(pts) <= SMALL_POLYGON:  # most loops: plain floats beat array set-up
         if len(pts) == 3 or not _crosses_itself_small(pts):
             n = len(pts)
-            return (
-                abs(
-                    sum(
-                        pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1]
-                        for k in range(n)
-                    )
-                )
-                / 2.0
+            twice = sum(
+                pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1] for k in range(n)
             )
+            return abs(twice) / 2.0
     a = np.asarray(pts, dtype=float)
     if not _crosses_itself(a):  # the usual case: the shoelace formula, exact
         x, y = a[:, 0], a[:, 1]
         return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
+    return _slab_area(a)
+
+
+def _slab_area(a: np.ndarray) -> float:
+    """:func:`polygon_area` of an outline that crosses itself: by vertical slabs cut at every
+    vertex and crossing, the trapezoids between neighbouring edges weighted by |winding|."""
     edges = [
         (a[k], a[(k + 1) % len(a)]) for k in range(len(a)) if a[k][0] != a[(k + 1) % len(a)][0]
     ]
