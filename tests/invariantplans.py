@@ -168,9 +168,10 @@ def mirrored_text(m: Mirrored, name=identity, extra: str = "") -> str:
     ]
     star = m.block.points[0]
     length = math.ceil(_dist(star, supply)) + 1 + m.link_extra
-    for ch in (left, right):
+    for raw, ch in (("left", left), ("right", right)):
         lines.append(
-            f"wire {ch}_link: {ch}.{name('n0')} to {name('supply')}, {length} mm, 0.75 mm2, signal"
+            f"wire {name(raw + '_link')}: {ch}.{name('n0')} to {name('supply')}, {length} mm, "
+            "0.75 mm2, signal"
         )
     return "\n".join(lines) + "\n" + extra
 

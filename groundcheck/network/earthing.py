@@ -113,6 +113,36 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
         for c in plan.conductors
         if can_carry_protective(c)
     }
+    dist, parent, done = _search(roots, blocked, cost, adj)
+    targets = (metals | {n for k in EARTH_TERMINAL_KINDS for n in terms[k]}) & parent.keys()
+    route: set[str] = set()
+    for t in targets:
+        v = t
+        while parent[v] is not None and parent[v][1] not in route:
+            u, k = parent[v]
+            route.add(k)
+            v = u
+    conds = {c.name: c for c in plan.conductors}
+    marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
+    marked_reach = frozenset(t for t in targets if dist[t] == 0)
+    side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)
+    # every conductor between two nodes of the protective side carries fault current, whatever role
+    # the plan writes: the route is found from the network, the role only documents it
+    keep = route | {
+        k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost
+    }
+    unmarked = tuple(sorted(k for k in keep if conds[k].role not in PROTECTIVE_ROLES))
+    everything = frozenset(keep | marked)
+    return ProtectiveRoute(
+        everything, unmarked, everything, frozenset(targets), marked_reach, parent, tuple(roots)
+    )
+
+
+def _search(roots: list, blocked: set, cost: dict, adj: dict) -> tuple[dict, dict, set]:
+    """The 0-1 breadth-first search from the earth terminals: (each reached node's cost, its
+    parent as (previous node, conductor), the nodes taken from the queue). Of parallel conductors
+    the cheapest (then the first by name) is taken; a point of the signal circuit is reached but
+    never passed through."""
     dist: dict[str, int] = {r: 0 for r in roots}
     parent: dict = {r: None for r in roots}
     q = deque(roots)
@@ -140,28 +170,7 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
                     q.appendleft(v)
                 else:
                     q.append(v)
-    targets = (metals | {n for k in EARTH_TERMINAL_KINDS for n in terms[k]}) & parent.keys()
-    route: set[str] = set()
-    for t in targets:
-        v = t
-        while parent[v] is not None and parent[v][1] not in route:
-            u, k = parent[v]
-            route.add(k)
-            v = u
-    conds = {c.name: c for c in plan.conductors}
-    marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
-    marked_reach = frozenset(t for t in targets if dist[t] == 0)
-    side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)
-    # every conductor between two nodes of the protective side carries fault current, whatever role
-    # the plan writes: the route is found from the network, the role only documents it
-    keep = route | {
-        k for u in side for v, keys in adj[u].items() if v in side for k in keys if k in cost
-    }
-    unmarked = tuple(sorted(k for k in keep if conds[k].role not in PROTECTIVE_ROLES))
-    everything = frozenset(keep | marked)
-    return ProtectiveRoute(
-        everything, unmarked, everything, frozenset(targets), marked_reach, parent, tuple(roots)
-    )
+    return dist, parent, done
 
 
 def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:

@@ -15,6 +15,8 @@ import networkx as nx
 import numpy as np
 
 from ..model.records import Plan
+from .canonical import attachments, canonical_ranks
+from .earthing import EARTH_TERMINAL_KINDS
 
 __all__ = [
     "build_graph",
@@ -35,8 +37,9 @@ def build_graph(plan: Plan) -> nx.MultiGraph:
     G = nx.MultiGraph(title=plan.title)
     for m in plan.metals:
         G.add_node(m.name, type="metal", metal=m, touchable=m.touchable)
+    attached = attachments(plan)
     for p in plan.points:
-        G.add_node(p.name, type="point", point=p, pos=p.pos)
+        G.add_node(p.name, type="point", point=p, pos=p.pos, attached=attached.get(p.name, ()))
     for c in plan.conductors:
         if c.connects:
             G.add_edge(c.a, c.b, key=c.name, conductor=c)
@@ -128,36 +131,27 @@ def fundamental_loops(
 ) -> list[Loop]:
     """Loops of a cycle basis: one per conductor outside a breadth-first spanning forest.
 
-    Breadth-first trees keep the fundamental loops short.  Self-loops (a
-    conductor whose two ends are one point) are left out; they count in
-    :func:`loop_count` and have a rule of their own.  ``limit`` caps how many
-    loops are listed (the count is always exact).
+    Breadth-first trees keep the fundamental loops short.  The forest and the order the loops are
+    listed in follow :func:`~groundcheck.network.canonical.canonical_ranks` (what each element is,
+    never its name or where the plan writes it): each part grows from its outermost earth terminal
+    (a main earthing terminal, else an outlet, else an inlet; else its first node), neighbours
+    are taken in rank order, of parallel conductors the first, and the loops are listed by their
+    closing conductor's rank.  Self-loops (a conductor whose two ends are one point) are left out;
+    they count in :func:`loop_count` and have a rule of their own.  ``limit`` caps how many loops
+    are listed (the count is always exact).
 
     References: K. Paton, "An algorithm for finding a fundamental set of
     cycles of a graph", Comm. ACM 12(9), 1969.
     """
-    parent: dict = {}
-    parent_edge: dict = {}
-    depth: dict = {}
-    tree_edges = set()
-    adj = dict(G.adjacency())  # plain dicts: node -> neighbour -> key -> data
-    for root in adj:
-        if root in parent:
-            continue
-        parent[root], depth[root], parent_edge[root] = None, 0, None
-        q = deque([root])
-        while q:
-            u = q.popleft()
-            for v, keys in adj[u].items():
-                if v in parent:
-                    continue
-                key = min(keys)
-                parent[v], depth[v], parent_edge[v] = u, depth[u] + 1, key
-                tree_edges.add(key)
-                q.append(v)
+    rank = canonical_ranks(G)
+    parent, parent_edge, depth, tree_edges = _spanning_forest(G, rank)
     loops: list[Loop] = []
-    for u, v, key, _ in sorted(edges_of(G) if edges is None else edges, key=lambda e: e[2]):
-        if key in tree_edges or u == v:
+    chords = sorted(
+        (e for e in (edges_of(G) if edges is None else edges) if e[2] not in tree_edges),
+        key=lambda e: rank[e[2]],
+    )
+    for u, v, key, _ in chords:
+        if u == v:
             continue
         # walk both ends up to their lowest common ancestor
         left_n, left_e, right_n, right_e = [u], [], [v], []
@@ -177,6 +171,39 @@ def fundamental_loops(
         if limit is not None and len(loops) >= limit:
             break
     return loops
+
+
+def _spanning_forest(G: nx.MultiGraph, rank: dict) -> tuple[dict, dict, dict, set]:
+    """A breadth-first spanning forest grown in rank order: (parent, the conductor to it, depth,
+    the forest's conductors)."""
+    parent: dict = {}
+    parent_edge: dict = {}
+    depth: dict = {}
+    tree_edges = set()
+    adj = dict(G.adjacency())  # plain dicts: node -> neighbour -> key -> data
+    for root in sorted(adj, key=lambda n: (_outermost(G.nodes[n]), rank[n])):
+        if root in parent:
+            continue
+        parent[root], depth[root], parent_edge[root] = None, 0, None
+        q = deque([root])
+        while q:
+            u = q.popleft()
+            for v in sorted(adj[u], key=rank.__getitem__):
+                if v in parent:
+                    continue
+                key = min(adj[u][v], key=rank.__getitem__)
+                parent[v], depth[v], parent_edge[v] = u, depth[u] + 1, key
+                tree_edges.add(key)
+                q.append(v)
+    return parent, parent_edge, depth, tree_edges
+
+
+def _outermost(data: dict) -> int:
+    """Where a node stands among the earth terminals, outermost first (others last): the tree of
+    each part grows from its outermost earth, as the protective route does."""
+    point = data.get("point")
+    kind = point.kind if point is not None else None
+    return EARTH_TERMINAL_KINDS.index(kind) if kind in EARTH_TERMINAL_KINDS else 3
 
 
 def _climb(x, parent, parent_edge, nodes, edges):
@@ -200,19 +227,20 @@ def polygon_area(pts) -> float:
     if len(pts) <= SMALL_POLYGON:  # most loops: plain floats beat array set-up
         if len(pts) == 3 or not _crosses_itself_small(pts):
             n = len(pts)
-            return (
-                abs(
-                    sum(
-                        pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1]
-                        for k in range(n)
-                    )
-                )
-                / 2.0
+            twice = sum(
+                pts[k][0] * pts[(k + 1) % n][1] - pts[(k + 1) % n][0] * pts[k][1] for k in range(n)
             )
+            return abs(twice) / 2.0
     a = np.asarray(pts, dtype=float)
     if not _crosses_itself(a):  # the usual case: the shoelace formula, exact
         x, y = a[:, 0], a[:, 1]
         return float(abs(np.dot(x, np.roll(y, -1)) - np.dot(y, np.roll(x, -1))) / 2.0)
+    return _slab_area(a)
+
+
+def _slab_area(a: np.ndarray) -> float:
+    """:func:`polygon_area` of an outline that crosses itself: by vertical slabs cut at every
+    vertex and crossing, the trapezoids between neighbouring edges weighted by |winding|."""
     edges = [
         (a[k], a[(k + 1) % len(a)]) for k in range(len(a)) if a[k][0] != a[(k + 1) % len(a)][0]
     ]

@@ -18,10 +18,13 @@ import numpy as np
 
 from ..model.kinds import SIGNAL
 from ..core.errors import Location
-from ..core.units import ratio_of_db
 from .circuit import Circuit, Factored, Solution
-from .induction import induced_currents
 from .ranking import largest
+from ..network.canonical import canonical_ranks
+from ..network.graph import build_graph
+
+# the sources and their injections live in .sources; named here too, where the analyses import them
+from .sources import Source, channel_tests, pair_tests, plan_sources, source_injections
 
 __all__ = [
     "SharedReturn",
@@ -30,6 +33,8 @@ __all__ = [
     "Source",
     "plan_sources",
     "pair_tests",
+    "channel_tests",
+    "source_injections",
     "branch_owner",
     "pair_path",
     "path_drop",
@@ -39,163 +44,6 @@ __all__ = [
 
 #: a branch counts as carrying a current when it carries at least this fraction of it
 SHARE_THRESHOLD = 0.01
-
-
-@dataclass(frozen=True)
-class Source:
-    """A current in the ground system: from ``a`` to ``b``, complex rms phasors per frequency."""
-
-    name: str
-    kind: str  # rectifier | current | heater | signal | induced
-    a: str
-    b: str
-    parts: dict  # frequency (Hz) -> complex rms A
-    channel: str | None = None
-    location: object = None
-
-
-def plan_sources(
-    plan, rectifier_results: dict, max_frequency: float, circuit: Circuit | None = None
-) -> list[Source]:
-    """Every current source of a plan with its spectrum (rectifiers from their simulation).
-
-    Parameters:
-        plan: the plan.
-        rectifier_results: each rectifier's simulation.
-        max_frequency: highest harmonic kept, Hz.
-        circuit: the circuit, for the EMF that loaded cables induce
-        (:mod:`groundcheck.physics.induction`,
-            as equivalent currents); without it they are left out.
-    Returns:
-        every current source (rectifier harmonics, stated currents, heaters, induced EMFs) with its
-        spectrum of complex rms phasors.
-    References:
-        Fourier series of a periodic current (common practice).
-    """
-    from .rectifier import harmonic_phasors
-
-    f0 = plan.frequency
-    nmax = int(max_frequency // f0)
-
-    def spectrum(samples, first: int) -> dict:
-        ph = harmonic_phasors(samples, nmax)
-        return {
-            k * f0: ph[k]
-            for k in range(first, nmax + 1)
-            if abs(ph[k]) > 1e-9 * max(abs(ph).max(), 1e-30)
-        }
-
-    out = []
-    for r in plan.rectifiers:
-        res = rectifier_results[r.name]
-        out.append(
-            Source(r.name, "rectifier", r.a, r.b, spectrum(res.current, 0), r.channel, r.location)
-        )
-        if res.filter_current is not None and r.filter_point is not None:
-            # the filter capacitor's ripple current (no DC) leaves its negative and returns to the
-            # reservoir's
-            out.append(
-                Source(
-                    f"{r.name}.filter",
-                    "rectifier",
-                    r.filter_point,
-                    r.a,
-                    spectrum(res.filter_current, 1),
-                    r.channel,
-                    r.location,
-                )
-            )
-    for c in plan.currents:
-        parts: dict = {}
-        for amp, f in c.parts:
-            parts[f] = parts.get(f, 0) + complex(amp)
-        what = "signal" if c.role == SIGNAL else "current"
-        out.append(Source(c.name, what, c.a, c.b, parts, c.channel, c.location))
-    for h in plan.heaters:
-        if h.a is not None and h.b is not None:
-            out.append(
-                Source(
-                    h.name,
-                    "heater",
-                    h.a,
-                    h.b,
-                    {f0 if h.ac else 0.0: complex(h.current)},
-                    None,
-                    h.location,
-                )
-            )
-    if circuit is not None:
-        out += [
-            Source(name, "induced", a, b, parts, None, loc)
-            for name, a, b, parts, loc in induced_currents(plan, circuit, max_frequency)
-        ]
-    return out
-
-
-def pair_tests(circuit: Circuit, pairs) -> np.ndarray:
-    """Injection columns: 1 A into the first point of each pair, out of the second.
-
-    Parameters:
-        circuit: the circuit.
-        pairs: (point a, point b) of each sensitive pair.
-    Returns:
-        a nodes × pairs matrix of 1 A test injections.
-    References:
-        Tellegen's theorem / reciprocity (Penfield, Spence, Duinker, 1970).
-    """
-    J = np.zeros((len(circuit.nodes), len(pairs)), dtype=complex)
-    for k, (a, b) in enumerate(pairs):
-        J[circuit.point_node[a], k] += 1.0
-        J[circuit.point_node[b], k] -= 1.0
-    return J
-
-
-def channel_tests(circuit: Circuit, stages, channels: list[str], weights=None) -> np.ndarray:
-    """One injection column per channel: each of its stages' 1 A pair test, weighted by the stage's
-    gain.
-
-    By linearity, its branch currents are the gain-weighted sum of the stages' own test currents
-    (the stages of a channel taken in phase).  Built directly, in time and memory proportional to
-    the nodes and stages, not their product.
-
-    Parameters:
-        circuit: the circuit.
-        stages: the plan's stages.
-        channels: channel names in column order.
-        weights: each stage's (complex) weight instead of its gain as a ratio.
-    Returns:
-        a nodes × channels matrix of gain-weighted test injections.
-    References:
-        reciprocity (Penfield, Spence, Duinker, 1970).
-    """
-    J = np.zeros((len(circuit.nodes), len(channels)), dtype=complex)
-    col = {ch: k for k, ch in enumerate(channels)}
-    for i, s in enumerate(stages):
-        g = ratio_of_db(s.gain) if weights is None else weights[i]
-        k = col[s.channel]
-        J[circuit.point_node[s.a], k] += g
-        J[circuit.point_node[s.b], k] -= g
-    return J
-
-
-def source_injections(circuit: Circuit, sources, f: float) -> np.ndarray:
-    """The injected currents of every source at one frequency.
-
-    Parameters:
-        circuit: the circuit.
-        sources: current sources with spectra.
-        f: frequency, Hz.
-    Returns:
-        a nodes × sources matrix of injected currents at f, A.
-    References:
-        nodal analysis (Ho, Ruehli, Brennan, 1975).
-    """
-    J = np.zeros((len(circuit.nodes), len(sources)), dtype=complex)
-    for k, s in enumerate(sources):
-        i = s.parts.get(f, 0)
-        J[circuit.point_node[s.a], k] += i
-        J[circuit.point_node[s.b], k] -= i
-    return J
 
 
 def branch_owner(circuit: Circuit) -> list[str]:
@@ -308,81 +156,105 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     References:
         superposition in a linear resistive network (common practice).
     """
-    # a unit current between each source's ends shows the sharing: rectifiers need no simulation
-    # here
-    sources = [
-        Source(r.name, "rectifier", r.a, r.b, {0.0: 1.0}, r.channel, r.location)
-        for r in plan.rectifiers
-    ]
-    sources += [
-        Source(
-            f"{r.name}.filter", "rectifier", r.filter_point, r.a, {0.0: 1.0}, r.channel, r.location
-        )
-        for r in plan.rectifiers
-        if r.filter_point is not None
-    ]
-    sources += [
-        Source(c.name, "current", c.a, c.b, {0.0: 1.0}, c.channel, c.location)
-        for c in plan.currents
-        if c.role != SIGNAL
-    ]
-    sources += [
-        Source(h.name, "heater", h.a, h.b, {0.0: 1.0}, None, h.location)
-        for h in plan.heaters
-        if h.a and h.b
-    ]
+    sources = _unit_sources(plan)
     stages = list(plan.stages)
     if not sources or not stages:
         return []
-    _, labels = circuit.components
     fac = circuit.at(0.0)
     transfer = _transfers(circuit, fac, sources, stages)
     pairs = np.argwhere(transfer > LISTED_TRANSFER)
     if len(pairs) > MAX_SHARED_ROWS:  # the strongest rows, kept in their order
         pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
+    return _rows(plan, circuit, fac, (sources, stages), transfer, pairs)
+
+
+def _owner_rank(plan, owners: list[str]) -> np.ndarray:
+    """Each branch's owner's place in the network's name- and order-free order
+    (:func:`groundcheck.network.canonical.canonical_ranks`; an owner outside the network after
+    every one in it, by name): equal shares are named in that order, so that neither renaming the
+    elements nor writing them in another order changes which are named."""
+    rank = canonical_ranks(build_graph(plan))
+    keys = [(rank.get(o, len(rank)), o) for o in owners]
+    order = sorted(range(len(owners)), key=keys.__getitem__)
+    out = np.empty(len(owners), dtype=int)
+    out[order] = np.arange(len(owners))
+    return out
+
+
+def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
+    """One row per (stage, source) pair of ``pairs`` that shares a conductor, with the
+    conductors that make up most of the coupling (``ends``: the sources and the stages)."""
+    sources, stages = ends
     # test currents only for the stages that share (not one column for every stage of a large
     # installation)
     need = sorted({int(k) for k, _ in pairs})
     column = {k: i for i, k in enumerate(need)}
     test = fac.solve(pair_tests(circuit, [(stages[k].a, stages[k].b) for k in need]))
-    owners = branch_owner(circuit)
     # branch currents only for the sources that share (not one column for every source of a large
     # installation)
     used = sorted({int(si) for _, si in pairs})
     scol = {si: i for i, si in enumerate(used)}
-    W = fac.solve(
-        source_injections(circuit, [sources[i] for i in used], 0.0)
-    ).dv  # Z·I, branches × sources
+    W = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).dv  # Z·I
+    owners = branch_owner(circuit)
+    rank = _owner_rank(plan, owners)
     admittance = np.abs(fac.y)
     rows = []
     for k, si in pairs:
-        s, st = sources[si], stages[k]
-        if labels[circuit.point_node[s.a]] != labels[circuit.point_node[st.a]]:
-            continue
-        t_k = test.I[:, column[int(k)]]
-        shares = W[:, scol[int(si)]] * t_k
-        carrying = (np.abs(W[:, scol[int(si)]]) * admittance >= SHARE_THRESHOLD) & (
+        drops, t_k = W[:, scol[int(si)]], test.I[:, column[int(k)]]
+        carrying = (np.abs(drops) * admittance >= SHARE_THRESHOLD) & (
             np.abs(t_k) >= SHARE_THRESHOLD
         )
-        if not carrying.any():
-            continue
-        rows.append(
-            SharedReturn(
-                s.name,
-                s.kind,
-                s.a,
-                s.b,
-                s.location,
-                st.name,
-                st.a,
-                st.b,
-                st.gain,
-                st.location,
-                float(transfer[k, si]),
-                _main_sharers(shares, carrying, owners),
+        shared = _main_sharers(drops * t_k, carrying, owners, rank) if carrying.any() else ()
+        s, st = sources[si], stages[k]
+        if shared and _joined(circuit, s.a, st.a):
+            rows.append(
+                SharedReturn(
+                    s.name,
+                    s.kind,
+                    s.a,
+                    s.b,
+                    s.location,
+                    st.name,
+                    st.a,
+                    st.b,
+                    st.gain,
+                    st.location,
+                    float(transfer[k, si]),
+                    shared,
+                )
             )
-        )
     return rows
+
+
+def _unit_sources(plan) -> list[Source]:
+    """A unit current between each supply return's ends (rectifiers, their filters, stated
+    currents but a signal's, heaters): what shows the sharing, with no simulation."""
+    unit = {0.0: 1.0}
+    sources = [
+        Source(r.name, "rectifier", r.a, r.b, unit, r.channel, r.location) for r in plan.rectifiers
+    ]
+    sources += [
+        Source(f"{r.name}.filter", "rectifier", r.filter_point, r.a, unit, r.channel, r.location)
+        for r in plan.rectifiers
+        if r.filter_point is not None
+    ]
+    sources += [
+        Source(c.name, "current", c.a, c.b, unit, c.channel, c.location)
+        for c in plan.currents
+        if c.role != SIGNAL
+    ]
+    sources += [
+        Source(h.name, "heater", h.a, h.b, unit, None, h.location)
+        for h in plan.heaters
+        if h.a and h.b
+    ]
+    return sources
+
+
+def _joined(circuit: Circuit, a: str, b: str) -> bool:
+    """Whether two points are in one connected part of the circuit."""
+    _, labels = circuit.components
+    return labels[circuit.point_node[a]] == labels[circuit.point_node[b]]
 
 
 def _transfers(circuit: Circuit, fac: Factored, sources: list, stages: list) -> np.ndarray:
@@ -409,17 +281,23 @@ def _transfers(circuit: Circuit, fac: Factored, sources: list, stages: list) -> 
     return transfer
 
 
-def _main_sharers(shares: np.ndarray, carrying: np.ndarray, owners: list[str]) -> tuple[str, ...]:
+def _main_sharers(
+    shares: np.ndarray, carrying: np.ndarray, owners: list[str], rank: np.ndarray
+) -> tuple[str, ...]:
     """The conductors that make up most of the coupling (largest shares first, 90 % of it, at most
-    five)."""
+    five); equal shares (to 1e-9 of the largest) in the order of ``rank``."""
     mags = np.abs(shares)
     cand = np.flatnonzero(carrying)
     total = mags[cand].sum()
+    q = np.round(mags / max(mags[cand].max(initial=0.0), 1e-300), 9)
     # the largest 64 nearly always decide (five owners, or 90 %): the full sort only when they do
     # not
     for k in (64, len(cand)):
+        near = cand[largest(mags[cand], k)]
+        if k < len(cand):  # and every share equal to the smallest of them, wherever it stands
+            near = np.union1d(near, cand[q[cand] >= q[near].min()])
         shared, acc = [], 0.0
-        for b in cand[largest(mags[cand], k)]:
+        for b in near[np.lexsort((rank[near], -q[near]))]:
             if owners[b] not in shared:
                 shared.append(owners[b])
             acc += mags[b]

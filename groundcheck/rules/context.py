@@ -25,6 +25,7 @@ from ..model.kinds import (
     shield_like,
 )
 from ..model.records import PE_POINT, Conductor, Plan
+from ..network.canonical import canonical_ranks
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
 from ..network.graph import (
     Loop,
@@ -269,8 +270,8 @@ def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
 
 
 def _openable(ctx: AuditContext, lp: Loop) -> list[Conductor]:
-    """The loop's conductors that may be opened, by name (not in the order the loop happens to be
-    walked, which follows the plan's writing)."""
+    """The loop's conductors that may be opened, by what each is (its canonical rank): neither in
+    the order the loop happens to be walked, which follows the plan's writing, nor by name."""
     cs = [ctx.conductors[e] for e in lp.edges]
     # a point the protective earth reaches (its stud, even one a return wrongly shares) keeps its
     # fastening to the metal: the route may stop there, the earth of the metal does not
@@ -280,6 +281,7 @@ def _openable(ctx: AuditContext, lp: Loop) -> list[Conductor]:
         for c in cs
         if (c.a in reached and c.b in ctx.metals) or (c.b in reached and c.a in ctx.metals)
     }
+    rank = canonical_ranks(ctx.G)
     return sorted(
         (
             c
@@ -291,7 +293,7 @@ def _openable(ctx: AuditContext, lp: Loop) -> list[Conductor]:
                 bonds_metal(c) and c.role == BOND and (c.a in ctx.metals and c.b in ctx.metals)
             )
         ),
-        key=lambda c: c.name,
+        key=lambda c: rank[c.name],
     )
 
 
@@ -344,13 +346,14 @@ def _second_bond(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | 
     crossing = [c for c in candidates if (c.a in ctx.chassis_side) != (c.b in ctx.chassis_side)]
     if not crossing:
         return None
+    rank = canonical_ranks(ctx.G)
     return max(
         crossing,
-        key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), c.name),
+        key=lambda c: (pe_distance(ctx, c.a if c.a in ctx.chassis_side else c.b), rank[c.name]),
     )
 
 
-#: which conductor of a loop to open, by what closes it (the rest open at the last by name)
+#: which conductor of a loop to open, by what closes it (the rest open at the last by rank)
 _OPENERS = {
     "mains-cords": _interconnect,
     "shield-both-ends": _shield,

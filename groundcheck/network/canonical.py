@@ -1,0 +1,186 @@
+"""A name- and order-free rank of every element of the ground network, for the choices that must
+not depend on how the plan is written (the spanning tree of the listed loops, the conductor a loop
+is opened at).
+
+Each node and conductor starts with a key of what it is, never what it is called: a point's kind
+and position and what is attached to it (a stage's or a source's end, with its gain or current),
+a metal part's material, thickness, size and place; a conductor's kind, role, material, geometry
+and stated figures. Colour refinement then adds to each node the multiset of its conductors and
+neighbours, round after round, until the partition stops splitting (or after
+:data:`MAX_ROUNDS`). Elements left in one class are alike in everything but their names (identical
+parallel wires, two pads hung identically from one point): their order is their names', so a
+choice among them differs from one writing to another only by exchanging elements that nothing
+else tells apart.
+
+References: B. Weisfeiler and A. Leman, "The reduction of a graph to canonical form and the algebra
+which appears therein", NTI Series 2(9), 1968 (colour refinement); B. D. McKay and A. Piperno,
+"Practical graph isomorphism, II", J. Symbolic Computation 60, 2014 (refinement as the first
+step of a canonical labelling).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+import networkx as nx
+
+from ..model.kinds import KINDS, joins_devices, shield_like
+
+__all__ = ["MAX_ROUNDS", "canonical_ranks", "attachments"]
+
+#: refinement rounds at the most (a long chain of identical pads would take one per link)
+MAX_ROUNDS = 12
+
+#: conductor fields that name something (or say where it is written): never part of its key
+_NAMING = {"name", "kind", "a", "b", "location", "channel", "bundle", "shield_ends"}
+_CACHE = "canonical_ranks"
+
+
+def _plain(x) -> str:
+    """A value as text, numbers to nine significant digits (a length written in another unit
+    differs in its last bit)."""
+    if isinstance(x, bool) or x is None or isinstance(x, str):
+        return repr(x)
+    if isinstance(x, (int, float)):
+        return format(float(x), ".9g")
+    if isinstance(x, (tuple, list)):
+        return "(" + ",".join(_plain(v) for v in x) + ")"
+    if isinstance(x, (set, frozenset)):  # in sorted order: a set's own order follows hashing
+        return "{" + ",".join(sorted(_plain(v) for v in x)) + "}"
+    return repr(x)
+
+
+def _conductor_key(c) -> str:
+    """What a conductor is; a shield or a link between devices sorts last, so that the spanning
+    tree takes the wiring and such a conductor closes the loop it makes (and names it)."""
+    if c is None:
+        return ""
+    fields = getattr(c, "__dataclass_fields__", {})
+    last = shield_like(c) or joins_devices(c)
+    # a kind by what its row of the kinds table says, not by its word: two kinds whose rows
+    # differ in nothing but the word are one
+    row = KINDS[c.kind]
+    kind = _plain(tuple(getattr(row, f.name) for f in dataclasses.fields(row) if f.name != "name"))
+    return f"{int(last)};{kind};" + ";".join(
+        f"{f}={_plain(getattr(c, f))}" for f in fields if f not in _NAMING
+    )
+
+
+def _node_key(data: dict) -> str:
+    metal, point = data.get("metal"), data.get("point")
+    if metal is not None:
+        return "metal;" + _plain(
+            (
+                metal.material,
+                metal.thickness,
+                metal.size,
+                metal.origin,
+                metal.touchable,
+                metal.signal_only,
+                metal.permeability,
+            )
+        )
+    if point is not None:
+        return "point;" + _plain((point.kind, point.pos, data.get("attached", ())))
+    return ""
+
+
+def attachments(plan) -> dict[str, tuple]:
+    """What the plan attaches to each point, name-free: each stage's, source's and heater's end
+    (which end, its gain or current) and the mains inlet's protective terminal.
+
+    Parameters:
+        plan: the plan.
+    Returns:
+        point name -> a sorted tuple of (what, end, figures) rows.
+    """
+    rows: dict[str, list] = {}
+
+    def add(point, *row):
+        if point is not None:
+            rows.setdefault(point, []).append(_plain(row))
+
+    for s in plan.stages:
+        add(s.a, "stage", "a", s.gain)
+        add(s.b, "stage", "b", s.gain)
+    for c in plan.currents:
+        add(c.a, "current", "a", c.role, c.parts)
+        add(c.b, "current", "b", c.role, c.parts)
+    for r in plan.rectifiers:
+        figures = (r.topology, r.secondary, r.winding, r.capacitance, r.load_current)
+        add(r.a, "rectifier", "a", figures)
+        add(r.b, "rectifier", "b", figures)
+        add(r.filter_point, "rectifier", "filter", figures)
+    for h in plan.heaters:
+        add(h.a, "heater", "a", h.current, h.ac)
+        add(h.b, "heater", "b", h.current, h.ac)
+    return {k: tuple(sorted(v)) for k, v in rows.items()}
+
+
+def _ranked(keys: list) -> list[int]:
+    """Each key's rank among the distinct keys."""
+    order = {k: i for i, k in enumerate(sorted(set(keys)))}
+    return [order[k] for k in keys]
+
+
+def _refined(nodes: list, adj: dict, colour: dict, edge_colour: dict) -> dict:
+    """Colour refinement until the classes stop splitting (or :data:`MAX_ROUNDS`)."""
+    classes = len(set(colour.values()))
+    for _ in range(MAX_ROUNDS):
+        if classes == len(nodes):
+            break
+        sig = [
+            (
+                colour[u],
+                tuple(
+                    sorted((edge_colour[k], colour[v]) for v, keys in adj[u].items() for k in keys)
+                ),
+            )
+            for u in nodes
+        ]
+        new = dict(zip(nodes, _ranked(sig)))
+        count = len(set(new.values()))
+        colour = new
+        if count == classes:
+            break
+        classes = count
+    return colour
+
+
+def canonical_ranks(G: nx.MultiGraph) -> dict:
+    """Every node's and conductor's rank in the name- and order-free order (ties by name), kept in
+    the graph's attributes once computed.
+
+    Parameters:
+        G: the ground network (:func:`groundcheck.network.graph.build_graph`).
+    Returns:
+        element name -> rank (0 first); nodes and conductors in one numbering.
+    """
+    if _CACHE in G.graph:
+        return G.graph[_CACHE]
+    nodes = list(G.nodes)
+    adj = dict(G.adjacency())
+    colour = dict(zip(nodes, _ranked([_node_key(G.nodes[n]) for n in nodes])))
+    ends: dict = {}  # conductor -> (one end, the other, its own key)
+    for u, nbrs in adj.items():
+        for v, keys in nbrs.items():
+            for k, d in keys.items():
+                if k not in ends:
+                    ends[k] = (u, v, _conductor_key(d.get("conductor")))
+    conductors = list(ends)
+    edge_colour = dict(zip(conductors, _ranked([ends[k][2] for k in conductors])))
+    colour = _refined(nodes, adj, colour, edge_colour)
+    keyed = [((0, colour[n]), _name(n)) for n in nodes]
+    keyed += [
+        ((1, edge_colour[k], tuple(sorted((colour[ends[k][0]], colour[ends[k][1]])))), _name(k))
+        for k in conductors
+    ]
+    names = nodes + conductors
+    order = sorted(range(len(keyed)), key=keyed.__getitem__)
+    ranks_out = {names[i]: r for r, i in enumerate(order)}
+    G.graph[_CACHE] = ranks_out
+    return ranks_out
+
+
+def _name(x):
+    return (type(x).__name__, x)
