@@ -11,11 +11,11 @@ from ..model.records import (
     Current,
     Heater,
     Mains,
-    Rectifier,
     Supply,
 )
 from .phrases import PLAUSIBLE, Reader, Statement, check_quantity
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
+from .rectifiers import rectifier
 
 #: mains frequencies accepted, Hz: 50 and 60 Hz supplies, 16.7 Hz railway and 400 Hz aircraft
 #: supplies fit
@@ -221,143 +221,6 @@ def supply(stmt: Statement):
     return Supply(location=stmt.loc, **_supply_statement(stmt, attribute)), {}
 
 
-def rectifier(stmt: Statement):
-    name = need_label(stmt)
-    refs: Refs = {}
-    a, b = first_phrase_ends(stmt, refs)
-    kw: dict = {}
-    spec = {
-        "secondary": ("secondary", "voltage"),
-        "winding": ("winding", "resistance"),
-        "diode": ("diode_drop", "voltage"),
-        "reservoir": ("capacitance", "capacitance"),
-    }
-    for ph in stmt.phrases[1:]:
-        r = Reader(ph, stmt)
-        first = r.peek()
-        if first.kind == "word" and first.value in ("full-wave", "bridge", "half-wave"):
-            kw["topology"] = r.word()
-        elif (
-            first.kind == "word"
-            and first.value == "diode"
-            and len(ph) > 1
-            and ph[1].kind == "word"
-        ):
-            r.word()
-            kw["diode_law"] = r.word(
-                "a diode law (a drop such as '1 V', or shockley)", ("shockley",)
-            )
-        elif first.kind == "word" and first.value in spec:
-            word = r.word()
-            field, kind = spec[word]
-            kw[field] = r.quantity(kind, word, allow_zero=word == "diode")
-        elif first.kind == "word" and first.value == "filter":
-            _filter(r, kw, refs)
-        elif first.kind == "word" and first.value == "valve":
-            r.word()
-            kw["diode_law"] = "valve"
-            kw["valve_drop"] = r.quantity("voltage", "valve rectifier drop")
-            r.expect("at")
-            kw["valve_current"] = r.quantity("current", "the current of that drop")
-            _valve_figures(kw["valve_drop"], kw["valve_current"], stmt)
-        elif first.kind == "word" and first.value == "leakage":
-            r.word()
-            kw["leakage"] = r.quantity("inductance", "leakage inductance", allow_zero=True)
-        elif first.kind == "word" and first.value == "load":
-            r.word()
-            it = r.next("a load current or resistance")
-            if it.kind == "qty" and it.qkind == "resistance":
-                kw["load_resistance"] = check_quantity(it, "resistance", "load")
-            else:
-                kw["load_current"] = check_quantity(it, "current", "load", allow_zero=True)
-        elif first.kind == "word" and first.value == "channel":
-            r.word()
-            kw["channel"] = r.word("a channel name")
-        else:
-            raise unknown(
-                stmt,
-                first,
-                (
-                    "full-wave",
-                    "bridge",
-                    "half-wave",
-                    "load",
-                    "channel",
-                    "leakage",
-                    "filter",
-                    "valve",
-                )
-                + tuple(spec),
-            )
-        r.finish()
-    if "load_current" not in kw and "load_resistance" not in kw:
-        raise PlanError(
-            "rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'"
-        )
-    _check_can_deliver(kw, stmt)
-    return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), refs
-
-
-def _check_can_deliver(kw: dict, stmt: Statement) -> None:
-    """A load current the rectifier cannot deliver is refused before any simulation (which would
-    search for a steady state that does not exist): its rectifiers pass at least the load current
-    at some instant, so the secondary's peak must exceed their drop at that current (Child's law
-    for valves, I = K·V^1.5 through the stated point; the stated drop for diodes) plus the load
-    current times the filter resistor."""
-    load = kw.get("load_current") or 0.0
-    if load <= 0:
-        return
-    in_series = 2 if kw.get("topology") == "bridge" else 1
-    law = kw.get("diode_law", "constant")
-    if law == "valve":
-        drop = in_series * kw["valve_drop"] * (load / kw["valve_current"]) ** (2 / 3)
-    elif law == "constant":
-        drop = in_series * kw.get("diode_drop", 0.7)
-    else:
-        drop = 0.0
-    needed = drop + load * kw.get("filter_resistance", 0.0)
-    peak = 2**0.5 * kw.get("secondary", 250.0)
-    if needed >= peak:
-        raise PlanError(
-            f"rectifier {stmt.label}: the secondary's {peak:.4g} V peak cannot deliver {load:g} "
-            f"A: the rectifiers' drop and the filter resistor take {needed:.4g} V at that current",
-            stmt.loc,
-            "check the secondary voltage, the load and the filter resistor, and their units",
-        )
-
-
-def _filter(r: Reader, kw: dict, refs: Refs) -> None:
-    """'filter 1 kohm 47 uF to FILT_NEG' (CRC) or 'filter 5 H 80 ohm 47 uF to FILT_NEG' (CLC): a
-    filter section after the reservoir, its capacitor's negative landing on a point of the ground
-    system."""
-    r.word()
-    while (
-        r.peek() is not None
-        and r.peek().kind == "qty"
-        and r.peek().qkind in ("resistance", "inductance")
-    ):
-        it = r.next("a resistance or inductance")
-        field = "filter_resistance" if it.qkind == "resistance" else "filter_inductance"
-        kw[field] = check_quantity(it, it.qkind, "filter " + it.qkind, allow_zero=True)
-    kw["filter_capacitance"] = r.quantity("capacitance", "filter capacitor")
-    r.expect("to")
-    it = r.next("the point the filter capacitor's negative lands on")
-    if it.kind != "word":
-        raise PlanError(
-            "filter ... to POINT: name the point the filter capacitor's negative lands on",
-            it.loc,
-            "e.g. 'filter 1 kohm 47 uF to filt_neg'",
-        )
-    kw["filter_point"] = it.value
-    refs["filter_point"] = it.loc
-    if kw.get("filter_resistance", 0.0) == 0.0 and kw.get("filter_inductance", 0.0) == 0.0:
-        raise PlanError(
-            "a filter section needs its series resistance or choke",
-            it.loc,
-            "e.g. 'filter 1 kohm 47 uF to filt_neg' or 'filter 5 H 80 ohm 47 uF to filt_neg'",
-        )
-
-
 def current(stmt: Statement):
     name = need_label(stmt)
     refs: Refs = {}
@@ -387,6 +250,7 @@ def current(stmt: Statement):
 
 
 def heater(stmt: Statement):
+    """'heater NAME: [A to B,] 6.3 V, 2.4 A, ac, reference POINT, wiring X,Y X,Y ...'."""
     name = need_label(stmt)
     refs: Refs = {}
     kw: dict = {}
@@ -397,80 +261,76 @@ def heater(stmt: Statement):
     for ph in phrases:
         r = Reader(ph, stmt)
         first = r.peek()
-        if first.kind == "qty" and first.qkind == "voltage":
-            r.quantity("voltage", "heater voltage")
-        elif first.kind == "qty":
-            kw["current"] = r.quantity("current", "heater current")
-        elif first.kind == "word" and first.value in ("ac", "dc"):
-            kw["ac"] = r.word() == "ac"
-        elif first.kind == "word" and first.value == "reference":
-            r.word()
-            kw["reference"], refs["reference"] = r.name("the reference point")
-        elif first.kind == "word" and first.value == "floating":
-            r.word()
-            kw["reference"] = None
-        elif first.kind == "word" and first.value == "wiring":
-            r.word()
-            pts = [r.coord()]
-            while not r.done:
-                pts.append(r.coord())
-            if len(pts) < 2:
-                raise PlanError(
-                    "heater wiring needs at least two points",
-                    first.loc,
-                    "e.g. 'wiring 40,150 200,150'",
-                )
-            kw["route"] = tuple(pts)
-        elif first.kind == "word" and first.value in ("spacing", "height"):
-            r.word()
-            kw["spacing" if first.value == "spacing" else "wiring_height"] = r.quantity(
-                "length", f"heater wiring {first.value}", allow_zero=first.value == "height"
-            )
-        elif first.kind == "word" and first.value == "twisted":
-            r.word()
-            kw["twisted"] = True
+        if first.kind == "qty":
+            _heater_size(r, first, kw)
+        elif first.kind == "word" and first.value in _HEATER_PHRASES:
+            _HEATER_PHRASES[first.value](r, first, kw, refs)
         else:
-            raise unknown(
-                stmt,
-                first,
-                (
-                    "ac",
-                    "dc",
-                    "reference",
-                    "floating",
-                    "wiring",
-                    "spacing",
-                    "height",
-                    "twisted",
-                    "A to B",
-                    "2.4 A",
-                ),
-            )
+            raise unknown(stmt, first, (*_HEATER_PHRASES, "A to B", "2.4 A"))
         r.finish()
     if "current" not in kw:
         raise PlanError("heater needs its current", stmt.loc, "e.g. ', 2.4 A'")
     return Heater(name=name, location=stmt.loc, **kw), refs
 
 
-#: a valve rectifier's stated drop (V) and the current it is stated at (A): the range of real
-#: rectifier valves, with a wide margin (data sheets give drops of tens of volts at tens to
-#: hundreds of milliamperes; from memory)
-VALVE_DROP = (0.5, 1000.0)
-VALVE_CURRENT = (1e-4, 10.0)
+def _heater_size(r: Reader, first, kw: dict) -> None:
+    """The heater's voltage (read, for the reader of the plan) or its current."""
+    if first.qkind == "voltage":
+        r.quantity("voltage", "heater voltage")
+    else:
+        kw["current"] = r.quantity("current", "heater current")
 
 
-def _valve_figures(drop: float, current: float, stmt) -> None:
-    """A located error for a valve rectifier's drop or current outside what a rectifier valve can
-    be."""
-    for value, (lo, hi), what, unit, scale in (
-        (drop, VALVE_DROP, "drop", "V", 1.0),
-        (current, VALVE_CURRENT, "current", "mA", 1e3),
-    ):
-        if not lo <= value <= hi:
-            raise PlanError(
-                f"a valve rectifier's {what} of {value * scale:g} {unit} is outside "
-                f"{lo * scale:g} to {hi * scale:g} {unit}",
-                stmt.loc,
-                "give the drop a data sheet states and the current it is stated at, e.g. 'valve "
-                "50 V at 250 mA'",
-            )
+def _heater_kind(r: Reader, first, kw: dict, refs: Refs) -> None:
+    kw["ac"] = r.word() == "ac"
+
+
+def _heater_reference(r: Reader, first, kw: dict, refs: Refs) -> None:
+    r.word()
+    kw["reference"], refs["reference"] = r.name("the reference point")
+
+
+def _heater_floating(r: Reader, first, kw: dict, refs: Refs) -> None:
+    r.word()
+    kw["reference"] = None
+
+
+def _heater_wiring(r: Reader, first, kw: dict, refs: Refs) -> None:
+    """'wiring X,Y X,Y ...': the pair's centre line, from the winding to the filament."""
+    r.word()
+    pts = [r.coord()]
+    while not r.done:
+        pts.append(r.coord())
+    if len(pts) < 2:
+        raise PlanError(
+            "heater wiring needs at least two points",
+            first.loc,
+            "e.g. 'wiring 40,150 200,150'",
+        )
+    kw["route"] = tuple(pts)
+
+
+def _heater_geometry(r: Reader, first, kw: dict, refs: Refs) -> None:
+    """'spacing 3 mm' (between the pair's wires) or 'height 5 mm' (above the deck)."""
+    r.word()
+    kw["spacing" if first.value == "spacing" else "wiring_height"] = r.quantity(
+        "length", f"heater wiring {first.value}", allow_zero=first.value == "height"
+    )
+
+
+def _heater_twisted(r: Reader, first, kw: dict, refs: Refs) -> None:
+    r.word()
+    kw["twisted"] = True
+
+
+#: the heater's phrases that open with a word, and their readers
+_HEATER_PHRASES = {
+    "ac": _heater_kind,
+    "dc": _heater_kind,
+    "reference": _heater_reference,
+    "floating": _heater_floating,
+    "wiring": _heater_wiring,
+    "spacing": _heater_geometry,
+    "height": _heater_geometry,
+    "twisted": _heater_twisted,
+}

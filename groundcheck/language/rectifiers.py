@@ -1,0 +1,245 @@
+"""The rectifier statement: a capacitor-input or choke-input rectifier of either polarity, its
+diodes or valves, its reservoir, an optional filter section and its load.
+
+Each phrase after the ends opens with a word that names what it states; :data:`_PHRASES` maps
+that word to the function that reads the rest of the phrase into the record's fields.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..core.errors import PlanError
+from ..model.records import Rectifier
+from .phrases import Reader, Statement, check_quantity
+from .reading import Refs, first_phrase_ends, need_label, unknown
+
+__all__ = ["rectifier", "VALVE_DROP", "VALVE_CURRENT"]
+
+#: a valve rectifier's stated drop (V) and the current it is stated at (A): the range of real
+#: rectifier valves, with a wide margin (data sheets give drops of tens of volts at tens to
+#: hundreds of milliamperes; from memory)
+VALVE_DROP = (0.5, 1000.0)
+VALVE_CURRENT = (1e-4, 10.0)
+
+#: phrases of one quantity: word -> (field, quantity kind)
+_ONE_QUANTITY = {
+    "secondary": ("secondary", "voltage"),
+    "winding": ("winding", "resistance"),
+    "reservoir": ("capacitance", "capacitance"),
+}
+
+
+@dataclass
+class _Reading:
+    """What one rectifier statement has stated so far: the record's fields, the points' places
+    (for the plan's checks) and the place of each phrase (for this statement's own errors)."""
+
+    stmt: Statement
+    kw: dict = field(default_factory=dict)
+    refs: Refs = field(default_factory=dict)
+    places: dict = field(default_factory=dict)
+
+
+def rectifier(stmt: Statement):
+    """'rectifier NAME: A to B, full-wave, secondary 250 V, winding 120 ohm, reservoir 47 uF,
+    load 25 mA' and its optional phrases (see docs/language.md)."""
+    name = need_label(stmt)
+    reading = _Reading(stmt)
+    a, b = first_phrase_ends(stmt, reading.refs)
+    for ph in stmt.phrases[1:]:
+        r = Reader(ph, stmt)
+        first = r.peek()
+        read = _PHRASES.get(first.value) if first.kind == "word" else None
+        if read is None:
+            raise unknown(stmt, first, tuple(_PHRASES))
+        reading.places[first.value] = first.loc
+        read(r, reading)
+        r.finish()
+    kw = reading.kw
+    if "load_current" not in kw and "load_resistance" not in kw:
+        raise PlanError(
+            "rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'"
+        )
+    _check_choke_input(reading)
+    _check_can_deliver(kw, stmt)
+    return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), reading.refs
+
+
+def _topology(r: Reader, reading: _Reading) -> None:
+    reading.kw["topology"] = r.word()
+
+
+def _polarity(r: Reader, reading: _Reading) -> None:
+    """'negative': the rectifier makes a rail below its reservoir's ground end (the diodes turned
+    round), so its charging current flows the other way round the ground system."""
+    reading.kw["polarity"] = r.word()
+
+
+def _diode(r: Reader, reading: _Reading) -> None:
+    """'diode 0.8 V' (each diode's constant drop) or 'diode shockley' (the exponential law)."""
+    r.word()
+    it = r.peek()
+    if it is not None and it.kind == "word":
+        reading.kw["diode_law"] = r.word(
+            "a diode law (a drop such as '1 V', or shockley)", ("shockley",)
+        )
+    else:
+        reading.kw["diode_drop"] = r.quantity("voltage", "diode", allow_zero=True)
+
+
+def _one_quantity(r: Reader, reading: _Reading) -> None:
+    word = r.word()
+    name, kind = _ONE_QUANTITY[word]
+    reading.kw[name] = r.quantity(kind, word)
+
+
+def _valve(r: Reader, reading: _Reading) -> None:
+    """'valve 50 V at 250 mA': a valve rectifier, Child's law through the stated drop."""
+    kw = reading.kw
+    r.word()
+    kw["diode_law"] = "valve"
+    kw["valve_drop"] = r.quantity("voltage", "valve rectifier drop")
+    r.expect("at")
+    kw["valve_current"] = r.quantity("current", "the current of that drop")
+    _valve_figures(kw["valve_drop"], kw["valve_current"], reading.stmt)
+
+
+def _leakage(r: Reader, reading: _Reading) -> None:
+    r.word()
+    reading.kw["leakage"] = r.quantity("inductance", "leakage inductance", allow_zero=True)
+
+
+def _choke(r: Reader, reading: _Reading) -> None:
+    """'choke 10 H 150 ohm': a choke between the rectifiers and the reservoir (choke input), its
+    winding's resistance optional."""
+    r.word()
+    reading.kw["choke_inductance"] = r.quantity("inductance", "input choke")
+    if not r.done:
+        reading.kw["choke_resistance"] = r.quantity(
+            "resistance", "input choke's resistance", allow_zero=True
+        )
+
+
+def _load(r: Reader, reading: _Reading) -> None:
+    r.word()
+    it = r.next("a load current or resistance")
+    if it.kind == "qty" and it.qkind == "resistance":
+        reading.kw["load_resistance"] = check_quantity(it, "resistance", "load")
+    else:
+        reading.kw["load_current"] = check_quantity(it, "current", "load", allow_zero=True)
+
+
+def _channel(r: Reader, reading: _Reading) -> None:
+    r.word()
+    reading.kw["channel"] = r.word("a channel name")
+
+
+def _filter(r: Reader, reading: _Reading) -> None:
+    """'filter 1 kohm 47 uF to FILT_NEG' (CRC) or 'filter 5 H 80 ohm 47 uF to FILT_NEG' (CLC): a
+    filter section after the reservoir, its capacitor's negative landing on a point of the ground
+    system."""
+    kw = reading.kw
+    r.word()
+    while (
+        r.peek() is not None
+        and r.peek().kind == "qty"
+        and r.peek().qkind in ("resistance", "inductance")
+    ):
+        it = r.next("a resistance or inductance")
+        name = "filter_resistance" if it.qkind == "resistance" else "filter_inductance"
+        kw[name] = check_quantity(it, it.qkind, "filter " + it.qkind, allow_zero=True)
+    kw["filter_capacitance"] = r.quantity("capacitance", "filter capacitor")
+    r.expect("to")
+    it = r.next("the point the filter capacitor's negative lands on")
+    if it.kind != "word":
+        raise PlanError(
+            "filter ... to POINT: name the point the filter capacitor's negative lands on",
+            it.loc,
+            "e.g. 'filter 1 kohm 47 uF to filt_neg'",
+        )
+    kw["filter_point"] = it.value
+    reading.refs["filter_point"] = it.loc
+    if kw.get("filter_resistance", 0.0) == 0.0 and kw.get("filter_inductance", 0.0) == 0.0:
+        raise PlanError(
+            "a filter section needs its series resistance or choke",
+            it.loc,
+            "e.g. 'filter 1 kohm 47 uF to filt_neg' or 'filter 5 H 80 ohm 47 uF to filt_neg'",
+        )
+
+
+#: the first word of each phrase after the ends, and its reader
+_PHRASES = {
+    **dict.fromkeys(("full-wave", "bridge", "half-wave"), _topology),
+    **dict.fromkeys(("positive", "negative"), _polarity),
+    "load": _load,
+    "channel": _channel,
+    "leakage": _leakage,
+    "choke": _choke,
+    "filter": _filter,
+    "valve": _valve,
+    **dict.fromkeys(_ONE_QUANTITY, _one_quantity),
+    "diode": _diode,
+}
+
+
+def _check_choke_input(reading: _Reading) -> None:
+    """A choke input is modelled after the rectifiers, all its current in one conducting path at
+    a time: the transformer's leakage, which shares the choke's current between the two paths
+    while it changes over, is refused beside it (the model would take it as part of the choke)."""
+    kw = reading.kw
+    if kw.get("choke_inductance", 0.0) > 0 and kw.get("leakage", 0.0) > 0:
+        raise PlanError(
+            "a choke input and the transformer's leakage cannot be modelled together",
+            reading.places.get("leakage", reading.stmt.loc),
+            "with a choke input the choke's current changes over between the windings through "
+            "their leakage, which this model leaves out: remove 'leakage' (the choke's "
+            "inductance is usually tens of times larger)",
+        )
+
+
+def _check_can_deliver(kw: dict, stmt: Statement) -> None:
+    """A load current the rectifier cannot deliver is refused before any simulation (which would
+    search for a steady state that does not exist): its rectifiers pass at least the load current
+    at some instant, so the secondary's peak must exceed their drop at that current (Child's law
+    for valves, I = K·V^1.5 through the stated point; the stated drop for diodes) plus the load
+    current times the filter resistor and the input choke's resistance."""
+    load = kw.get("load_current") or 0.0
+    if load <= 0:
+        return
+    in_series = 2 if kw.get("topology") == "bridge" else 1
+    law = kw.get("diode_law", "constant")
+    if law == "valve":
+        drop = in_series * kw["valve_drop"] * (load / kw["valve_current"]) ** (2 / 3)
+    elif law == "constant":
+        drop = in_series * kw.get("diode_drop", 0.7)
+    else:
+        drop = 0.0
+    needed = drop + load * (kw.get("filter_resistance", 0.0) + kw.get("choke_resistance", 0.0))
+    peak = 2**0.5 * kw.get("secondary", 250.0)
+    if needed >= peak:
+        raise PlanError(
+            f"rectifier {stmt.label}: the secondary's {peak:.4g} V peak cannot deliver {load:g} "
+            f"A: the rectifiers' drop and the series resistors take {needed:.4g} V at that "
+            "current",
+            stmt.loc,
+            "check the secondary voltage, the load, the filter resistor and the choke, and "
+            "their units",
+        )
+
+
+def _valve_figures(drop: float, current: float, stmt) -> None:
+    """A located error for a valve rectifier's drop or current outside what a rectifier valve can
+    be."""
+    for value, (lo, hi), what, unit, scale in (
+        (drop, VALVE_DROP, "drop", "V", 1.0),
+        (current, VALVE_CURRENT, "current", "mA", 1e3),
+    ):
+        if not lo <= value <= hi:
+            raise PlanError(
+                f"a valve rectifier's {what} of {value * scale:g} {unit} is outside "
+                f"{lo * scale:g} to {hi * scale:g} {unit}",
+                stmt.loc,
+                "give the drop a data sheet states and the current it is stated at, e.g. 'valve "
+                "50 V at 250 mA'",
+            )
