@@ -76,8 +76,10 @@ def test_json_document(cli):
         "area_mm2"
     ] == pytest.approx(area)
     assert "NaN" not in out and "Infinity" not in out
-    # the same plan gives the same bytes
-    assert cli("check", DUAL, "--format", "json")[1] == out
+    # the same plan gives the same bytes, when the advisor has the time to try every fix (its
+    # budget is time: on a loaded machine fewer are tried and a fix line may say so)
+    again = [cli("check", DUAL, "--format", "json", "--advice-budget", "600")[1] for _ in (0, 1)]
+    assert again[0] == again[1]
 
 
 def test_stdin(cli, monkeypatch):
@@ -187,8 +189,10 @@ def test_library_entry_points():
 
 
 def test_jobs_on_one_plan_gives_the_same_document(cli):
-    one = json.loads(cli("check", DUAL, "--format", "json")[1])
-    two = json.loads(cli("check", DUAL, "--format", "json", "--jobs", "2")[1])
+    # the advisor's budget is time: given all it needs, every fix line is the same on a loaded machine
+    wide = ("--format", "json", "--advice-budget", "600")
+    one = json.loads(cli("check", DUAL, *wide)[1])
+    two = json.loads(cli("check", DUAL, *wide, "--jobs", "2")[1])
     assert one == two and one["hum"]
 
 
