@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import re
 from dataclasses import dataclass
 from functools import cached_property
 from pathlib import Path
@@ -216,6 +217,10 @@ def route_length(ctx: ChangeContext, c, a: str, b: str) -> float | None:
     return sum(math.dist(p, q) for p, q in zip(path, path[1:])) * (1 + ROUTE_ALLOWANCE)
 
 
+#: a phrase removed by a move: its first item's stand-in, taken out with its comma
+_GONE = "\x00"
+
+
 def reroute(
     ctx: ChangeContext, name: str, end: str, to: str, title: str, reason: str, action: str = "move"
 ) -> Candidate | None:
@@ -241,12 +246,18 @@ def reroute(
         return None
     if a == b:
         return None
+    via = ctx.src.find(st, "via") if c.route else None
+    if via:  # the old waypoints led to the old end: the moved wire runs straight
+        changes += [(via[0], _GONE)] + [(it, "") for it in via[1:]]
+        c = dataclasses.replace(c, route=())
     length = route_length(ctx, c, a, b)
     old = ctx.src.quantity(st, "length")
     if length is not None and old is not None:
         changes.append((old, f"{length * 1e3:.0f} mm"))
         title += f"; new length {length * 1e3:.0f} mm (straight route + {ROUTE_ALLOWANCE:.0%})"
     edit = ctx.src.replace(st, changes, drop_comment=True)
+    if via:
+        edit = dataclasses.replace(edit, new=re.sub(rf",\s*{_GONE}[ \t]*", "", edit.new))
     note = block_note(c.name, label) if st.loc.file == ctx.plan.file else ""
     return Candidate(
         title + note,

@@ -27,6 +27,9 @@ from .edits import apply_edits, edited_texts
 from .fixes import identity
 from .returns import lost_wired_returns
 
+#: the key of :attr:`Evaluation.net` that counts protective-earth faults (among the faults)
+PE_FAULT = "protective-earth fault"
+
 __all__ = ["Evaluation", "evaluate", "HUM_FLOOR_DBV", "LOUDER_DB", "PE_TOLERANCE"]
 
 
@@ -45,15 +48,16 @@ class Evaluation:
     cleared_keys: set = field(default_factory=set)  # identities it clears (fixes.identity)
 
     def rank_key(self):
-        """Sort key, best first: dangers cleared (net of those introduced), faults cleared (net),
-        hum gain, findings introduced, size of the change (statements edited, then metres of wire
-        laid)."""
+        """Sort key, best first: dangers cleared (net of those introduced), protective-earth faults
+        cleared (net: a bond that can loosen comes before the hum), faults cleared (net), hum gain,
+        findings introduced, size of the change (statements edited, then metres of wire laid)."""
         gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(
             max(0.0, d) for d in self.hum_change_db.values()
         )
         return (
             bool(self.rejected),
             -self.net.get("danger", 0),
+            -self.net.get(PE_FAULT, 0),
             -self.net.get("fault", 0),
             -round(gain, 1),
             len(self.introduced),
@@ -160,10 +164,12 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
     ev.cleared = sorted(_label(k0[k]) for k in ev.cleared_keys)
     ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
     new = k1.keys() - k0.keys()
-    for k in k0.keys() - k1.keys():  # the findings' own severities, not their rules' defaults
-        ev.net[k0[k].severity] = ev.net.get(k0[k].severity, 0) + 1
-    for k in new:
-        ev.net[k1[k].severity] = ev.net.get(k1[k].severity, 0) - 1
+    for sign, keys, found in ((1, k0.keys() - k1.keys(), k0), (-1, new, k1)):
+        for k in keys:  # the findings' own severities, not their rules' defaults
+            f = found[k]
+            ev.net[f.severity] = ev.net.get(f.severity, 0) + sign
+            if f.severity == "fault" and RULES[f.code].family == PROTECTIVE_EARTH:
+                ev.net[PE_FAULT] = ev.net.get(PE_FAULT, 0) + sign
     if any(k1[k].severity == "danger" for k in new):
         ev.rejected = "it would add a danger finding"
         return ev

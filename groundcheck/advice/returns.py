@@ -69,7 +69,7 @@ def insulate_candidates(ctx: ChangeContext, add) -> None:
     """Every non-protective fastening of a socket, jack, pot or terminal in a loop: insulate it
     from the metal (a terminal carrying 0 V: remove its bond to the case).  In a block the change
     is made once for every placement; in a device's own plan, in that plan."""
-    seen = set()
+    seen, panels = set(), {}
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure":
             continue
@@ -81,7 +81,30 @@ def insulate_candidates(ctx: ChangeContext, add) -> None:
             if point is not None:
                 seen.add(name)
                 metal = c.a if c.a in ctx.metals else c.b
-                add(_insulate(ctx, name, point, metal, lp.closed_by))
+                one = _insulate(ctx, name, point, metal, lp.closed_by)
+                add(one)
+                if one is not None and one.action == "insulate":
+                    panels.setdefault(metal, []).append((point, one))
+    for metal, held in panels.items():
+        add(_insulate_all(metal, held))
+
+
+def _insulate_all(metal: str, held: list) -> Candidate | None:
+    """Every socket in a loop that ``metal`` holds, insulated at once: a panel of sockets bonded
+    at each is one change for a builder (common practice), and insulating one alone can move the
+    loop's current onto the others."""
+    if len(held) < 2:
+        return None
+    edits = {(str(e.file or ""), e.line): e for _, c in held for e in c.edits}  # a block's once
+    points = ", ".join(p for p, _ in held)
+    return Candidate(
+        f"insulate every socket on {metal} that closes a loop ({points}): each off {metal} (an "
+        "insulated socket or shoulder washers), keeping its wired return",
+        "GC101",
+        tuple(edits[n] for n in sorted(edits)),
+        action="insulate",
+        element=held[0][1].element,
+    )
 
 
 def refused_balanced(ctx: ChangeContext, c) -> str:

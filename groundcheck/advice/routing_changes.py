@@ -6,7 +6,7 @@ remove, insulate) carried out as written."""
 
 from __future__ import annotations
 
-from ..model.kinds import SIGNAL, shield_like
+from ..model.kinds import SIGNAL, is_fastening, shield_like
 from ..rules.catalogue import RULES
 from .changes import ChangeContext, delete_change, reroute
 
@@ -98,6 +98,11 @@ def _star_wires(ctx: ChangeContext, f, add) -> None:
             add(reroute(ctx, c.name, near, stars[0], title, f.code))
 
 
+def _fastened(ctx: ChangeContext, point: str) -> bool:
+    """Whether ``point`` is held on a metal part by a fastening (a lug, stud or bolted socket)."""
+    return any(point in (c.a, c.b) and is_fastening(c, ctx.metals) for c in ctx.at(point))
+
+
 def _join_ends(ctx: ChangeContext, row, add) -> None:
     """A rectifier's return (its charging current, or its filter capacitor's ripple current) whose
     two ends are not joined by a conductor of their own: move the far end of a conductor leaving
@@ -106,16 +111,20 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
     negative to the reservoir's)."""
     if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
         return
+    # never one of the shared conductors (moving it re-routes the ground itself), nor a wire to a
+    # point fastened to metal (the ground's bond to the chassis: moving it takes the bond away)
     for end, other in ((row.a, row.b), (row.b, row.a)):
         for d in ctx.at(other):
+            far = d.b if d.a == other else d.a
             # a wire written 'signal' is a stage's reference, never a supply's return to join
             if (
                 other in (d.a, d.b)
                 and not shield_like(d)
                 and not ctx.protective(d)
                 and d.role != SIGNAL
+                and d.name not in row.shared
+                and not _fastened(ctx, far)
             ):
-                far = d.b if d.a == other else d.a
                 add(
                     reroute(
                         ctx,
@@ -147,7 +156,8 @@ def shared_return_candidates(ctx: ChangeContext, add) -> None:
                 continue
             for end, other in ((row.a, row.b), (row.b, row.a)):
                 for d in ctx.at(other):
-                    if other in (d.a, d.b) and d.name != shared and not ctx.protective(d):
+                    # a shared conductor moved off the bus would cut the bus from the return
+                    if other in (d.a, d.b) and d.name not in row.shared and not ctx.protective(d):
                         far = d.b if d.a == other else d.a
                         if far in (c.a, c.b) and far != end:
                             add(
