@@ -42,8 +42,8 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
                     Finding(
                         "GC202",
                         "fault",
-                        f"the protective earth lands on {v}, a fastener that also holds "
-                        f"{', '.join(sorted(holds))}",
+                        f"the protective earth lands on {v}, which also takes "
+                        f"{_held(ctx, v, holds)}: servicing them loosens the earth",
                         c.location,
                         (c.name, v, *sorted(holds)),
                         {"other_items": len(holds)},
@@ -52,6 +52,19 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
                     )
                 )
     return out
+
+
+def _held(ctx: AuditContext, stud: str, holds: list[str]) -> str:
+    """What else a protective stud takes, in words: each conductor with the point or part it goes
+    to, each clamped part by name."""
+    out = []
+    for h in sorted(holds):
+        c = ctx.conductors.get(h)
+        if c is None:
+            out.append(f"the part {h}")
+        else:
+            out.append(f"{h} (to {c.b if c.a == stud else c.a})")
+    return ", ".join(out)
 
 
 def _clamped_part(ctx: AuditContext, stud: str, own: list) -> list[str]:
