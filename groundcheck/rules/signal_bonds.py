@@ -36,7 +36,10 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     for comp, places in _signal_grounds(ctx):
         name = _component_name(ctx, comp)
         if len(places) > 1:
-            desc = ", ".join(f"{p} (by {', '.join(ks)})" for p, ks in sorted(places.items()))
+            held = _fastenings(ctx, set(places))
+            desc = ", ".join(
+                f"{p} (by {', '.join(ks + held.get(p, []))})" for p, ks in sorted(places.items())
+            )
             bonds = sorted(places)
             # keep the bond nearest the protective earth
             keep = _nearest_pe(ctx, bonds)
@@ -111,6 +114,17 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
         if set(comp) & ctx.signal_points:
             out.append((comp, {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}))
     return out
+
+
+def _fastenings(ctx: AuditContext, points: set[str]) -> dict[str, list[str]]:
+    """The fastenings that hold each of ``points`` on a metal part (a socket's nut), by point: a
+    bond reaches the chassis through them."""
+    out: dict[str, list[str]] = {}
+    for c in ctx.plan.conductors:
+        for p in {c.a, c.b} & points:
+            if is_fastening(c, ctx.metals) and p not in ctx.metals:
+                out.setdefault(p, []).append(c.name)
+    return {p: sorted(ks) for p, ks in out.items()}
 
 
 def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple:
