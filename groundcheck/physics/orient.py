@@ -34,8 +34,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .pickup import AXES, path_vector, ring_fluxes, ring_quadrature, ring_terms
+from .pickup import AXES, path_vector, ring_quadrature
 from .plate_paths import passage_flow, passage_vector
+from .ring_memo import memo_ring_fluxes, points_digest
 
 __all__ = [
     "LoopFluxes",
@@ -79,7 +80,7 @@ class LoopFluxes:
     fixed: np.ndarray | None = None
     _grid: tuple | None = None
     _coarse: "LoopFluxes | None" = None
-    _terms: tuple | None = None
+    _digest: bytes | None = None
     _seen: dict | None = None
 
     def grid(self) -> tuple[np.ndarray, np.ndarray]:
@@ -101,15 +102,16 @@ class LoopFluxes:
             return np.broadcast_to(self.fixed, (len(M), len(self.fixed)))
         if self.F is not None:
             return M @ self.F.T
-        if self._terms is None:
-            self._terms, self._seen = ring_terms(self.X, self.W, self.group, len(self.loops)), {}
+        if self._digest is None:
+            self._digest = points_digest(self.src, self.X, self.W, self.group, len(self.loops))
+            self._seen = {}
         keys = [tuple(row) for row in M.tolist()]
         new = [k for k in dict.fromkeys(keys) if k not in self._seen]
         if (
             new
         ):  # the same directions are asked for again (the axes, the one found): each computed once
-            values = ring_fluxes(
-                self.src, self.X, self.W, np.array(new), self.group, len(self.loops), self._terms
+            values = memo_ring_fluxes(
+                self._digest, self.src, self.X, self.W, np.array(new), self.group, len(self.loops)
             )
             self._seen.update(zip(new, values))
         return np.array([self._seen[k] for k in keys])
