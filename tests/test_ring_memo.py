@@ -56,3 +56,15 @@ def test_the_memo_is_bounded(monkeypatch):
     for k in range(6):
         model.fluxes(DIRECTIONS[k % 4 : k % 4 + 1] * (1 + 1e-3 * k))
     assert len(ring_memo._CALLS) <= 3
+
+
+def test_a_loop_taken_alone_is_found_again_whatever_the_other_loops_do():
+    # the next candidate moves loop 1: loop 0 alone has the same digest (its search is found
+    # again), loop 1 alone a new one, and every flux is the fresh one
+    moved = {**OUTLINES, 1: [(0.02, 0.08), (0.10, 0.08), (0.10, 0.12), (0.02, 0.08)]}
+    a, b = source_fluxes(_src(), OUTLINES), source_fluxes(_src(), moved)
+    assert a.digest() != b.digest()
+    assert a.only(0).digest() == b.only(0).digest()
+    assert a.only(1).digest() != b.only(1).digest()
+    for model in (b.only(0), b.only(1), b):
+        assert np.array_equal(model.fluxes(DIRECTIONS), _fresh(model, DIRECTIONS))

@@ -23,7 +23,17 @@ import numpy as np
 
 from .pickup import ring_fluxes, ring_terms
 
-__all__ = ["points_digest", "memo_ring_fluxes", "memo_terms", "MEMO_CALLS", "MEMO_POINTS"]
+__all__ = [
+    "points_digest",
+    "loop_digest",
+    "parts_digest",
+    "derived_digest",
+    "memo_ring_fluxes",
+    "memo_terms",
+    "memo_arrays",
+    "MEMO_CALLS",
+    "MEMO_POINTS",
+]
 
 #: ring_fluxes results kept (each a few directions × loops: a few kB at most)
 MEMO_CALLS = 4096
@@ -32,6 +42,18 @@ MEMO_POINTS = 16
 
 _CALLS: OrderedDict = OrderedDict()
 _TERMS: OrderedDict = OrderedDict()
+_ARRAYS: OrderedDict = OrderedDict()
+
+
+def _source_bytes(src, count: int) -> bytes:
+    return np.array([src.size, src.b_ref, src.r_ref, count], dtype=float).tobytes()
+
+
+def _arrays_into(h, arrays) -> None:
+    for a, kind in arrays:
+        a = np.ascontiguousarray(a, dtype=kind)
+        h.update(repr(a.shape).encode())
+        h.update(a.tobytes())
 
 
 def points_digest(src, X: np.ndarray, W: np.ndarray, group: np.ndarray, count: int) -> bytes:
@@ -45,13 +67,84 @@ def points_digest(src, X: np.ndarray, W: np.ndarray, group: np.ndarray, count: i
     References:
         none (bookkeeping).
     """
-    h = hashlib.blake2b(digest_size=32)
-    h.update(np.array([src.size, src.b_ref, src.r_ref, count], dtype=float).tobytes())
-    for a, kind in ((X, float), (W, float), (group, np.int64)):
-        a = np.ascontiguousarray(a, dtype=kind)
-        h.update(repr(a.shape).encode())
-        h.update(a.tobytes())
+    h = hashlib.blake2b(b"points", digest_size=32)
+    h.update(_source_bytes(src, count))
+    _arrays_into(h, ((X, float), (W, float), (group, np.int64)))
     return h.digest()
+
+
+def loop_digest(X: np.ndarray, W: np.ndarray) -> bytes:
+    """A digest of one loop's quadrature points and elements (the source's centre is in them).
+
+    Parameters:
+        X, W: the loop's points and elements.
+    Returns:
+        a 32-byte digest.
+    References:
+        none (bookkeeping).
+    """
+    h = hashlib.blake2b(b"loop", digest_size=32)
+    _arrays_into(h, ((X, float), (W, float)))
+    return h.digest()
+
+
+def parts_digest(src, loops: list) -> bytes:
+    """A digest of points made loop by loop: each loop's :func:`loop_digest` in column order, the
+    points of column k in group k, one after the other, as :func:`points_digest` would read them.
+
+    Parameters:
+        src: the field source.
+        loops: each column's loop digest.
+    Returns:
+        a 32-byte digest.
+    References:
+        none (bookkeeping).
+    """
+    h = hashlib.blake2b(b"parts", digest_size=32)
+    h.update(_source_bytes(src, len(loops)))
+    for d in loops:
+        h.update(d)
+    return h.digest()
+
+
+def derived_digest(parent: bytes, how: str, index: int) -> bytes:
+    """The digest of points taken from others by a deterministic rule (a loop's own points, the
+    merged points of a search): the parent's digest with the rule's name and argument.
+
+    Parameters:
+        parent: the digest of the points they are taken from.
+        how: the rule's name.
+        index: its argument (a loop's column).
+    Returns:
+        a 32-byte digest.
+    References:
+        none (bookkeeping).
+    """
+    h = hashlib.blake2b(parent, digest_size=32)
+    h.update(f"{how}:{index}".encode())
+    return h.digest()
+
+
+def memo_arrays(digest: bytes, make) -> tuple:
+    """Arrays derived from points (:meth:`groundcheck.physics.orient.LoopFluxes.coarse`), kept by
+    their digest.
+
+    Parameters:
+        digest: the derived points' digest (:func:`derived_digest`).
+        make: computes them when not kept.
+    Returns:
+        make()'s value (arrays made read-only).
+    References:
+        none (bookkeeping).
+    """
+
+    def made():
+        value = make()
+        for a in value:
+            a.setflags(write=False)
+        return value
+
+    return _kept(_ARRAYS, digest, MEMO_POINTS, made)
 
 
 def _kept(store: OrderedDict, key, limit: int, make):
