@@ -160,7 +160,7 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     stages = list(plan.stages)
     if not sources or not stages:
         return []
-    fac = circuit.at(0.0)
+    fac = circuit.dc()
     transfer = _transfers(circuit, fac, sources, stages)
     pairs = np.argwhere(transfer > LISTED_TRANSFER)
     if len(pairs) > MAX_SHARED_ROWS:  # the strongest rows, kept in their order
