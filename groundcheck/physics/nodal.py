@@ -21,6 +21,8 @@ from functools import cached_property
 import numpy as np
 import scipy.sparse as sp
 
+from ..core.runtime import blas_loaded
+
 from ..model.records import PE_POINT
 from ..network.graph import part_labels
 from .factored import DENSE_NODES, DenseFactors, Factored, Solution
@@ -239,6 +241,8 @@ class Circuit:
             if m <= DENSE_NODES:  # small: a dense LU, faster than SuperLU's set-up
                 return Factored(self, f, z, y, keep, DenseFactors(vals, rows, cols, m), real)
             import scipy.sparse.linalg as spla  # only for a network too large for the dense solve
+
+            blas_loaded()  # its BLAS under the analysis's one-thread limit
 
             Y = sp.csc_matrix((vals, (rows, cols)), shape=(m, m))
             # minimum-degree ordering on the symmetric pattern: about half the fill of the default
