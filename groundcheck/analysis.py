@@ -119,7 +119,9 @@ def _solve(
     first), not only the hum budget's frequencies.  The results are the same for any number of
     processes."""
     budget = outlets = None
-    tasks, costs = [partial(shared_returns, plan, circuit)], [_coupling_cost(plan, circuit)]
+    graph = ctx.G if ctx.plan is plan else None  # its canonical order is known by now
+    tasks = [partial(shared_returns, plan, circuit, graph)]
+    costs = [_coupling_cost(plan, circuit)]
     if options.hum and plan.devices:
         outlets = OutletWork(plan, circuit, rr, options.max_frequency)
     if options.hum and plan.stages:

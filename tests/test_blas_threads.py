@@ -75,3 +75,20 @@ def test_the_limit_is_lifted_when_the_block_fails(two_threads):
             assert _blas_threads() == {1}
             raise RuntimeError("a solve that fails")
     assert _blas_threads() == {2}
+
+
+def test_the_libraries_are_looked_up_again_only_when_one_was_loaded(two_threads):
+    # threadpoolctl's look-up of the loaded libraries costs milliseconds: kept while the process
+    # loads no other shared object, made again when it does (a library loaded later is limited)
+    from groundcheck.core import runtime
+
+    with one_blas_thread():
+        kept = runtime._BLAS["controller"]
+    with one_blas_thread():
+        assert runtime._BLAS["controller"] is kept
+        assert _blas_threads() == {1}
+    runtime._BLAS["loaded"] = -1  # as if a library had been loaded since
+    with one_blas_thread():
+        assert runtime._BLAS["controller"] is not kept
+        assert _blas_threads() == {1}
+    assert _blas_threads() == {2}

@@ -15,6 +15,7 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 from groundcheck.analysis import analyze
+from groundcheck.physics import heat
 from groundcheck.physics.heat import adiabatic_temperature, steady_temperature
 from groundcheck.renderers.jsondoc import result_document
 from groundcheck.renderers.text import text_report
@@ -126,6 +127,26 @@ def test_steady_state_of_a_pvc_wire_balances_by_hand():
     made, shed = pvc_wire_balance(0.75, 25.0, got, 20.0)
     assert made == pytest.approx(shed, rel=2e-3)
     assert 100.0 < got < 160.0
+
+
+@pytest.mark.parametrize("s_mm2,amps", [(0.5, 10.0), (0.75, 25.0), (1.0, 25.0), (2.5, 40.0)])
+def test_the_steady_state_is_the_root_of_the_balance_by_hand(s_mm2, amps):
+    # the heat made less the heat shed (worked above from the textbook) changes sign within 1e-9
+    # relative of the temperature reported: the root is found to the last digits, not to a step
+    d = math.sqrt(4 * s_mm2 / math.pi) * 1e-3
+    got = steady_temperature(amps, s_mm2 * 1e-6, d, 0.6e-3, "pvc", RHO20, ALPHA20, 20.0)
+    below = pvc_wire_balance(s_mm2, amps, got * (1 - 1e-9), 20.0)
+    above = pvc_wire_balance(s_mm2, amps, got * (1 + 1e-9), 20.0)
+    assert below[0] > below[1] and above[0] < above[1]
+
+
+def test_the_root_finder_keeps_its_bracket():
+    # f(x) = 2 − x² on [0, 100]: √2 (math.sqrt); a kinked f, steep on one side of its root at 3
+    # and flat on the other, still to the last digits; a bracket with no sign change: infinite
+    assert heat._root(lambda x: 2 - x * x, 0.0, 100.0) == pytest.approx(math.sqrt(2), rel=1e-15)
+    kinked = heat._root(lambda x: (3 - x) * (1e4 if x < 3 else 1e-4), -50.0, 1000.0)
+    assert kinked == pytest.approx(3.0, rel=1e-14)
+    assert heat._root(lambda x: 1.0, 0.0, 1.0) == math.inf
 
 
 def test_wire_sizes_for_the_25_a_test_by_hand():

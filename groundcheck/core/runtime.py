@@ -22,6 +22,7 @@ __all__ = [
     "die_with_parent",
     "single_threaded_blas",
     "one_blas_thread",
+    "blas_loaded",
     "note_read",
     "files_read",
     "terminate_as_exit",
@@ -77,9 +78,10 @@ def single_threaded_blas():
 
 
 #: the one-thread limit of this process: the blocks holding it, and what gives the caller's
-#: threads back
+#: threads back; the controller of the BLAS libraries loaded, and how many shared objects were
+#: loaded when it was made
 _BLAS_LOCK = threading.Lock()
-_BLAS = {"depth": 0, "limiter": None}
+_BLAS = {"depth": 0, "limiters": [], "controller": None, "loaded": None}
 
 
 @contextmanager
@@ -91,24 +93,103 @@ def one_blas_thread():
     threads; with OpenBLAS's threads spinning beside them a 5,000-device installation's solves were
     measured 44 times slower.  Blocks may nest and run in several threads at once (the live view):
     the first to enter sets the limit, the last to leave restores it.  A library loaded inside the
-    block keeps its own setting, so enter it after the numerical imports (``analyze`` does)."""
+    block (scipy's sparse solver, imported for the first plate) is brought under the limit by
+    :func:`blas_loaded`, called after such an import.
+
+    Finding the loaded libraries takes threadpoolctl milliseconds (more than a small plan's
+    whole solve), so the controller it makes is kept and made again only when the process has
+    loaded another shared object since (:func:`_loaded_objects`)."""
     with _BLAS_LOCK:
         if _BLAS["depth"] == 0:
-            try:
-                from threadpoolctl import threadpool_limits
-            except ImportError:  # pragma: no cover - a dependency; else the BLAS keeps its threads
-                _BLAS["limiter"] = None
-            else:
-                _BLAS["limiter"] = threadpool_limits(limits=1, user_api="blas")
+            controller = _blas_controller()
+            if controller is not None:
+                _BLAS["limiters"] = [controller.limit(limits=1, user_api="blas")]
         _BLAS["depth"] += 1
     try:
         yield
     finally:
         with _BLAS_LOCK:
             _BLAS["depth"] -= 1
-            if _BLAS["depth"] == 0 and _BLAS["limiter"] is not None:
-                _BLAS["limiter"].restore_original_limits()
-                _BLAS["limiter"] = None
+            if _BLAS["depth"] == 0:
+                for limiter in reversed(_BLAS["limiters"]):
+                    limiter.restore_original_limits()
+                _BLAS["limiters"] = []
+
+
+def blas_loaded() -> None:
+    """Inside a :func:`one_blas_thread` block, bring BLAS libraries loaded since it began under its
+    limit (their own settings are given back with the others' when the block ends); outside one,
+    nothing.  Called after a numerical import made inside the analysis.
+
+    Parameters:
+        none.
+    Returns:
+        None.
+    References:
+        none (bookkeeping).
+    """
+    with _BLAS_LOCK:
+        if _BLAS["depth"] == 0 or not _BLAS["limiters"]:
+            return
+        before = {lib.filepath for lib in _BLAS["controller"].lib_controllers}
+        controller = _blas_controller()
+        new = [
+            lib.filepath
+            for lib in controller.lib_controllers
+            if lib.filepath not in before and lib.user_api == "blas"
+        ]
+        if new:
+            _BLAS["limiters"].append(controller.select(filepath=new).limit(limits=1))
+
+
+def _blas_controller():
+    """threadpoolctl's controller of the libraries loaded now (None without threadpoolctl): the
+    kept one while no shared object has been loaded since it was made."""
+    try:
+        from threadpoolctl import ThreadpoolController
+    except ImportError:  # pragma: no cover - a dependency; else the BLAS keeps its threads
+        return None
+    loaded = _loaded_objects()
+    if _BLAS["controller"] is None or loaded is None or loaded != _BLAS["loaded"]:
+        _BLAS["controller"], _BLAS["loaded"] = ThreadpoolController(), loaded
+    return _BLAS["controller"]
+
+
+def _loaded_objects() -> int | None:
+    """How many shared objects the process has loaded (dl_iterate_phdr, as threadpoolctl finds
+    them on Linux; a few dozen microseconds), or None where that cannot be asked."""
+    if not sys.platform.startswith("linux"):
+        return None
+    try:
+        import ctypes
+
+        counter = _LOADED.get("counter")
+        if counter is None:
+            libc = ctypes.CDLL(None)
+            callback_type = ctypes.CFUNCTYPE(
+                ctypes.c_int, ctypes.c_void_p, ctypes.c_size_t, ctypes.c_void_p
+            )
+            count = [0]
+
+            def seen(info, size, data):
+                count[0] += 1
+                return 0
+
+            callback = callback_type(seen)
+
+            def counter():
+                count[0] = 0
+                libc.dl_iterate_phdr(callback, None)
+                return count[0]
+
+            _LOADED["counter"] = counter
+        return counter()
+    except (OSError, AttributeError):  # pragma: no cover - no dl_iterate_phdr in this libc
+        return None
+
+
+#: the shared-object counter, made on first use
+_LOADED: dict = {}
 
 
 def quiet_child() -> None:

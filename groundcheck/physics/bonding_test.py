@@ -178,7 +178,7 @@ def _shares(plan: Plan, circ) -> tuple[dict[str, float], dict[str, float]]:
     for k, (_, s) in enumerate(cols):
         J[s, k] += 1.0
         J[pe, k] -= 1.0
-    V = np.real(circ.at(0.0).solve(J).V)
+    V = np.real(circ.dc().solve(J).V)
     rpart: dict[str, float] = {}
     for k, (name, s) in enumerate(cols):
         rpart[name] = max(rpart.get(name, 0.0), float(abs(V[s, k] - V[pe, k])))

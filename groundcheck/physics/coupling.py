@@ -142,7 +142,7 @@ class SharedReturn:
         }
 
 
-def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
+def shared_returns(plan, circuit: Circuit, graph=None) -> list[SharedReturn]:
     """Supply-return currents whose path shares conductors with a sensitive pair (resistive, DC):
     one row per (source, stage) pair that shares, naming the conductors that make up most of the
     coupling.
@@ -150,6 +150,8 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     Parameters:
         plan: the plan.
         circuit: the circuit.
+        graph: the plan's network (:func:`groundcheck.network.graph.build_graph`), when the caller
+            has it (its canonical order is then not worked out again); built when not given.
     Returns:
         every supply-return current whose path shares conductors with a sensitive pair, with the
         shared conductors.
@@ -160,20 +162,20 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     stages = list(plan.stages)
     if not sources or not stages:
         return []
-    fac = circuit.at(0.0)
+    fac = circuit.dc()
     transfer = _transfers(circuit, fac, sources, stages)
     pairs = np.argwhere(transfer > LISTED_TRANSFER)
     if len(pairs) > MAX_SHARED_ROWS:  # the strongest rows, kept in their order
         pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
-    return _rows(plan, circuit, fac, (sources, stages), transfer, pairs)
+    return _rows(plan, circuit, fac, (sources, stages), transfer, pairs, graph)
 
 
-def _owner_rank(plan, owners: list[str]) -> np.ndarray:
+def _owner_rank(plan, owners: list[str], graph=None) -> np.ndarray:
     """Each branch's owner's place in the network's name- and order-free order
     (:func:`groundcheck.network.canonical.canonical_ranks`; an owner outside the network after
     every one in it, by name): equal shares are named in that order, so that neither renaming the
     elements nor writing them in another order changes which are named."""
-    rank = canonical_ranks(build_graph(plan))
+    rank = canonical_ranks(build_graph(plan) if graph is None else graph)
     keys = [(rank.get(o, len(rank)), o) for o in owners]
     order = sorted(range(len(owners)), key=keys.__getitem__)
     out = np.empty(len(owners), dtype=int)
@@ -181,7 +183,7 @@ def _owner_rank(plan, owners: list[str]) -> np.ndarray:
     return out
 
 
-def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
+def _rows(plan, circuit, fac, ends, transfer, pairs, graph=None) -> list[SharedReturn]:
     """One row per (stage, source) pair of ``pairs`` that shares a conductor, with the
     conductors that make up most of the coupling (``ends``: the sources and the stages)."""
     sources, stages = ends
@@ -196,7 +198,7 @@ def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
     scol = {si: i for i, si in enumerate(used)}
     W = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).dv  # Z·I
     owners = branch_owner(circuit)
-    rank = _owner_rank(plan, owners)
+    rank = _owner_rank(plan, owners, graph)
     admittance = np.abs(fac.y)
     rows = []
     for k, si in pairs:

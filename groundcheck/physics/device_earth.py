@@ -66,7 +66,7 @@ def installation_earths(
     met = circ.point_node[mets[0]]
     reach = [n for n in inlets if labels[circ.point_node[n]] == labels[met] and n in route.reached]
     R: dict[str, float] = {}
-    factored = circ.at(0.0) if reach else None
+    factored = circ.dc() if reach else None
     for lo in range(
         0, len(reach), EARTH_COLUMNS
     ):  # in slices: nodes × devices would not fit in memory

@@ -21,6 +21,8 @@ from functools import cached_property
 import numpy as np
 import scipy.sparse as sp
 
+from ..core.runtime import blas_loaded
+
 from ..model.records import PE_POINT
 from ..network.graph import part_labels
 from .factored import DENSE_NODES, DenseFactors, Factored, Solution
@@ -69,14 +71,37 @@ class Circuit:
         default_factory=dict
     )  # metal part -> its contact nodes
 
+    def __getstate__(self) -> dict:
+        """What a worker process sends back with a result: the circuit without the solves kept
+        with it (a sparse LU does not pickle; the receiver refactorises when it asks)."""
+        state = dict(self.__dict__)
+        state.pop("_dc", None)
+        state.pop("_restricted", None)
+        return state
+
     def restricted(self, conductors) -> "Circuit":
         """The same network with only the named conductors (every plate branch kept): a plate node
         that loses its conductors stays as an inner node of the plate network, which is the same as
         Kron-reducing it."""
-        keep = [b for b in self.branches if b.conductor is None or b.conductor in conductors]
-        return Circuit(
-            self.nodes, keep, self.positions, self.plate_notes, self.point_node, self.metal_nodes
+        kept = tuple(
+            i
+            for i, b in enumerate(self.branches)
+            if b.conductor is None or b.conductor in conductors
         )
+        if len(kept) == len(self.branches):
+            return self  # the same network: its solves (the DC factorisation) serve both
+        # the protective-earth figures and the bonding test ask for the same part of the network
+        known = self.__dict__.setdefault("_restricted", {})
+        if kept not in known:
+            known[kept] = Circuit(
+                self.nodes,
+                [self.branches[i] for i in kept],
+                self.positions,
+                self.plate_notes,
+                self.point_node,
+                self.metal_nodes,
+            )
+        return known[kept]
 
     def nodes_of_metal(self, name: str) -> tuple[int, ...]:
         """The nodes of metal part ``name``: its contact spots on a plate grid, else its one
@@ -193,6 +218,14 @@ class Circuit:
         ok = keep[rows] & keep[cols]
         return keep, ridx[rows[ok]], ridx[cols[ok]], branch[ok], sign[ok], int(keep.sum())
 
+    def dc(self) -> "Factored":
+        """The DC factorisation (:meth:`at` 0 Hz), made once and kept with the circuit: the shared
+        returns, the protective-earth figures, the bonding test and the device earths all solve
+        at DC."""
+        if "_dc" not in self.__dict__:
+            self.__dict__["_dc"] = self.at(0.0)
+        return self.__dict__["_dc"]
+
     def at(self, f: float) -> "Factored":
         """The admittance matrix at frequency f (Hz), factorised once for any number of solves."""
         z = self.impedance(f)
@@ -208,6 +241,8 @@ class Circuit:
             if m <= DENSE_NODES:  # small: a dense LU, faster than SuperLU's set-up
                 return Factored(self, f, z, y, keep, DenseFactors(vals, rows, cols, m), real)
             import scipy.sparse.linalg as spla  # only for a network too large for the dense solve
+
+            blas_loaded()  # its BLAS under the analysis's one-thread limit
 
             Y = sp.csc_matrix((vals, (rows, cols)), shape=(m, m))
             # minimum-degree ordering on the symmetric pattern: about half the fill of the default

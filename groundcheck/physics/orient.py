@@ -34,8 +34,16 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .pickup import AXES, path_vector, ring_fluxes, ring_quadrature, ring_terms
+from .pickup import AXES, path_vector, ring_quadrature
 from .plate_paths import passage_flow, passage_vector
+from .ring_memo import (
+    derived_digest,
+    loop_digest,
+    memo_arrays,
+    memo_ring_fluxes,
+    parts_digest,
+    points_digest,
+)
 
 __all__ = [
     "LoopFluxes",
@@ -79,7 +87,8 @@ class LoopFluxes:
     fixed: np.ndarray | None = None
     _grid: tuple | None = None
     _coarse: "LoopFluxes | None" = None
-    _terms: tuple | None = None
+    _digest: bytes | None = None
+    _parts: list | None = None  # each loop's points' digest (ring_memo.loop_digest)
     _seen: dict | None = None
 
     def grid(self) -> tuple[np.ndarray, np.ndarray]:
@@ -101,15 +110,15 @@ class LoopFluxes:
             return np.broadcast_to(self.fixed, (len(M), len(self.fixed)))
         if self.F is not None:
             return M @ self.F.T
-        if self._terms is None:
-            self._terms, self._seen = ring_terms(self.X, self.W, self.group, len(self.loops)), {}
+        if self._seen is None:
+            self._seen = {}
         keys = [tuple(row) for row in M.tolist()]
         new = [k for k in dict.fromkeys(keys) if k not in self._seen]
         if (
             new
         ):  # the same directions are asked for again (the axes, the one found): each computed once
-            values = ring_fluxes(
-                self.src, self.X, self.W, np.array(new), self.group, len(self.loops), self._terms
+            values = memo_ring_fluxes(
+                self.digest(), self.src, self.X, self.W, np.array(new), self.group, len(self.loops)
             )
             self._seen.update(zip(new, values))
         return np.array([self._seen[k] for k in keys])
@@ -135,7 +144,22 @@ class LoopFluxes:
         )
         if self._grid is not None:
             one._grid = (self._grid[0], self._grid[1][:, column : column + 1])
+        if self._parts is not None:
+            one._parts = [self._parts[column]]
         return one
+
+    def digest(self) -> bytes:
+        """A digest of the ring's points and everything their fluxes depend on (computed once):
+        from each loop's digest where the model was built loop by loop (a loop taken alone by
+        :meth:`only` keeps its own, so its fluxes are found again while its outline is unchanged,
+        whatever happens to the other loops), else from the points themselves."""
+        if self._digest is None:
+            self._digest = (
+                points_digest(self.src, self.X, self.W, self.group, len(self.loops))
+                if self._parts is None
+                else parts_digest(self.src, self._parts)
+            )
+        return self._digest
 
     def coarse(self) -> "LoopFluxes":
         """The same source with a ring's quadrature points merged where they are dense (a plate
@@ -146,23 +170,28 @@ class LoopFluxes:
         if self.X is None or len(self.X) <= COARSE_POINTS:
             return self
         if self._coarse is None:
-            a = self.src.size / 2
-            r = np.linalg.norm(self.X, axis=1)
-            side = np.where(r < 2 * a, a / 8, a / 2)
-            ij = np.floor(self.X[:, :2] / side[:, None]).astype(np.int64) + (1 << 20)
-            key = ((ij[:, 0] << 21 | ij[:, 1]) << 1 | (side > a / 4)) * len(
-                self.loops
-            ) + self.group
-            _, inverse = np.unique(key, return_inverse=True)
-            inverse = inverse.ravel()
-            n = int(inverse.max()) + 1
-            count = np.bincount(inverse, minlength=n)[:, None]
-            X = np.column_stack([np.bincount(inverse, self.X[:, k], n) for k in range(3)]) / count
-            W = np.column_stack([np.bincount(inverse, self.W[:, k], n) for k in range(3)])
-            group = np.zeros(n, dtype=int)
-            group[inverse] = self.group
+            key = derived_digest(self.digest(), "coarse", 0)
+            X, W, group = memo_arrays(key, self._merged)
             self._coarse = LoopFluxes(self.src, self.loops, self.model, X=X, W=W, group=group)
+            self._coarse._digest = key
         return self._coarse
+
+    def _merged(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """The merged points, elements and groups of :meth:`coarse`."""
+        a = self.src.size / 2
+        r = np.linalg.norm(self.X, axis=1)
+        side = np.where(r < 2 * a, a / 8, a / 2)
+        ij = np.floor(self.X[:, :2] / side[:, None]).astype(np.int64) + (1 << 20)
+        key = ((ij[:, 0] << 21 | ij[:, 1]) << 1 | (side > a / 4)) * len(self.loops) + self.group
+        _, inverse = np.unique(key, return_inverse=True)
+        inverse = inverse.ravel()
+        n = int(inverse.max()) + 1
+        count = np.bincount(inverse, minlength=n)[:, None]
+        X = np.column_stack([np.bincount(inverse, self.X[:, k], n) for k in range(3)]) / count
+        W = np.column_stack([np.bincount(inverse, self.W[:, k], n) for k in range(3)])
+        group = np.zeros(n, dtype=int)
+        group[inverse] = self.group
+        return X, W, group
 
     def admit(self, M: np.ndarray) -> np.ndarray:
         """The directions M (n × 3) with z ≥ 0, those that would take a ring through the deck
@@ -206,19 +235,23 @@ def source_fluxes(src, closed: dict, passages: dict | None = None) -> LoopFluxes
             for item in passages.get(li, ()):
                 F[col] += _passage_dipole(src, *item)
         return LoopFluxes(src, loops, "dipole", F=F)
-    xs, ws, gs = [], [], []
+    xs, ws, gs, digests = [], [], [], []
     for col, li in enumerate(loops):
         parts = [ring_quadrature(src, closed[li])]
         for item in passages.get(li, ()):
             parts += _passage_ring(src, *item)
-        for X, W in parts:
-            xs.append(X)
-            ws.append(W)
-            gs.append(np.full(len(X), col, dtype=int))
+        X = np.concatenate([x for x, _ in parts])
+        W = np.concatenate([w for _, w in parts])
+        xs.append(X)
+        ws.append(W)
+        gs.append(np.full(len(X), col, dtype=int))
+        digests.append(loop_digest(X, W))
     cat = lambda a, n: np.concatenate(a) if a else np.zeros(n)
-    return LoopFluxes(
+    model = LoopFluxes(
         src, loops, "ring", X=cat(xs, (0, 3)), W=cat(ws, (0, 3)), group=cat(gs, 0).astype(int)
     )
+    model._parts = digests
+    return model
 
 
 def _passage_dipole(src, metal, spots, enter, leave) -> np.ndarray:
@@ -293,6 +326,14 @@ def _grid(n: int) -> np.ndarray:
 TIE = 1e-9
 
 
+def _cross(a, b) -> np.ndarray:
+    """a × b of two 3-vectors: the products and differences of numpy's ``cross``, in the same
+    order (so to the same last bit), without its set-up for arrays of vectors."""
+    a0, a1, a2 = float(a[0]), float(a[1]), float(a[2])
+    b0, b1, b2 = float(b[0]), float(b[1]), float(b[2])
+    return np.array([a1 * b2 - a2 * b1, a2 * b0 - a0 * b2, a0 * b1 - a1 * b0])
+
+
 def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
     """The unit direction that maximises ``measure`` of the source's fluxes, and that maximum.
 
@@ -313,9 +354,9 @@ def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
     for _ in range(400):
         if step < STEP_MIN:
             break
-        u = np.cross(m, [1.0, 0, 0] if abs(m[0]) < 0.9 else [0, 1.0, 0])
+        u = _cross(m, (1.0, 0.0, 0.0) if abs(m[0]) < 0.9 else (0.0, 1.0, 0.0))
         u /= np.linalg.norm(u)
-        v = np.cross(m, u)
+        v = _cross(m, u)
         trial = m[None, :] + step * np.array([u, -u, v, -v])
         trial = search.admit(trial / np.linalg.norm(trial, axis=1)[:, None])
         tv = measure(search.fluxes(trial))

@@ -32,6 +32,8 @@ from functools import lru_cache
 import numpy as np
 import scipy.sparse as sp
 
+from ..core.runtime import blas_loaded
+
 from .impedance import FASTENER_RADIUS, MU0
 from .plate_mesh import plate_mesh
 
@@ -229,6 +231,8 @@ def _reduce(width, depth, sheet_g, contacts, radius, step):
     if mesh.n == k:
         return Lff, step
     import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
+
+    blas_loaded()  # its BLAS under the analysis's one-thread limit
 
     Lfi = Lm[:k, k:]
     solve = spla.splu(

@@ -21,6 +21,8 @@ from functools import lru_cache
 
 import numpy as np
 
+from ..core.runtime import blas_loaded
+
 from .impedance import FASTENER_RADIUS
 from .plate import canonical_order, contact_groups, grid_step, quantised
 from .plate_mesh import plate_mesh
@@ -70,6 +72,8 @@ def _plate_flow(width: float, depth: float, contacts: tuple, radius: float):
     rhs[np.arange(k - 1), np.arange(1, k)] = 1.0
     phi = np.zeros((mesh.n, k))
     import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
+
+    blas_loaded()  # its BLAS under the analysis's one-thread limit
 
     phi[1:] = spla.splu(mesh.laplacian()[1:, 1:].tocsc()).solve(rhs)
     currents = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])  # from a to b

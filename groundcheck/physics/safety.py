@@ -239,7 +239,7 @@ def _path_resistances(plan: Plan, circ) -> dict[str, float]:
         for k, (_, s) in enumerate(cols):
             J[s, k] += 1.0
             J[pe, k] -= 1.0
-        sol = circ.at(0.0).solve(J)
+        sol = circ.dc().solve(J)
         for k, (name, s) in enumerate(cols):
             r = float(abs(sol.V[s, k] - sol.V[pe, k]))
             rpart[name] = max(rpart.get(name, 0.0), r)
