@@ -308,7 +308,7 @@ def rule_device_earths(s: Solved) -> list[Finding]:
     if s.device_earths is None:
         return []
     out = []
-    points = {p.name: p for p in s.plan.points}
+    points = s.plan.index.points
     for d in s.device_earths:
         loc = points[d.inlet].location
         if d.resistance is None:
