@@ -20,8 +20,7 @@ from ..model.kinds import SIGNAL
 from ..core.errors import Location
 from .circuit import Circuit, Factored, Solution
 from .ranking import largest
-from ..network.canonical import canonical_ranks
-from ..network.graph import build_graph
+from ..network.graph import plan_ranks
 
 # the sources and their injections live in .sources; named here too, where the analyses import them
 from .sources import Source, channel_tests, pair_tests, plan_sources, source_injections
@@ -36,6 +35,7 @@ __all__ = [
     "channel_tests",
     "source_injections",
     "branch_owner",
+    "owner_ranks",
     "pair_path",
     "path_drop",
     "SHARE_THRESHOLD",
@@ -168,12 +168,21 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     return _rows(plan, circuit, fac, (sources, stages), transfer, pairs)
 
 
-def _owner_rank(plan, owners: list[str]) -> np.ndarray:
+def owner_ranks(plan, owners: list[str]) -> np.ndarray:
     """Each branch's owner's place in the network's name- and order-free order
     (:func:`groundcheck.network.canonical.canonical_ranks`; an owner outside the network after
     every one in it, by name): equal shares are named in that order, so that neither renaming the
-    elements nor writing them in another order changes which are named."""
-    rank = canonical_ranks(build_graph(plan))
+    elements nor writing them in another order changes which are named.
+
+    Parameters:
+        plan: the plan.
+        owners: each branch's owner (:func:`branch_owner`).
+    Returns:
+        each branch's place, 0 first (the branches of one owner in branch order).
+    References:
+        see :mod:`groundcheck.network.canonical`.
+    """
+    rank = plan_ranks(plan)
     keys = [(rank.get(o, len(rank)), o) for o in owners]
     order = sorted(range(len(owners)), key=keys.__getitem__)
     out = np.empty(len(owners), dtype=int)
@@ -196,7 +205,7 @@ def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
     scol = {si: i for i, si in enumerate(used)}
     W = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).dv  # Z·I
     owners = branch_owner(circuit)
-    rank = _owner_rank(plan, owners)
+    rank = owner_ranks(plan, owners)
     admittance = np.abs(fac.y)
     rows = []
     for k, si in pairs:
