@@ -192,7 +192,7 @@ def plan_conductor(plan: Plan, name: str):
     References:
         none (lookup).
     """
-    return next((c for c in plan.conductors if c.name == name), None)
+    return plan.index.conductors.get(name)
 
 
 def _device_text(m) -> str:
