@@ -407,3 +407,38 @@ def test_a_source_that_misses_a_channels_stages_leaves_it_no_level():
     m = Mirrored("x", block, 4, 20.0, 0, False, False)
     levels = analyze(load_text(mirrored_text(m), "dead-end.gplan")).hum.levels
     assert all("current:ripple" not in levels[ch] for ch in ("left", "right")), levels
+
+
+def test_the_bond_kept_is_the_same_whatever_the_order_of_two_protective_landings():
+    """The protective earth lands on two studs (pe_stud at 20,180 and stud2 at 280,20 mm), and the
+    signal ground is bonded to the chassis twice (bond1 at pe_stud, jstar through j's bolt at
+    250,30): the loop is opened at the crossing farthest from the landing, and which landing was
+    measured from followed the order of the two protective wires' statements (bond1 opened in one
+    order, jstar in the other). Every order now opens one and the same."""
+    head = [
+        'plan "two landings"',
+        "mains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2, inlet at 150,190",
+    ]
+    body = [
+        "metal deck: steel 1 mm, 300 x 200 mm, touchable",
+        "point pe_stud: stud, at 20,180 on deck",
+        "point stud2: stud, at 280,20 on deck",
+        "wire pe_lead: mains.pe to pe_stud, 140 mm, 1 mm2, protective",
+        "wire pe_b: mains.pe to stud2, 220 mm, 1 mm2, protective",
+        "bolt pe_nut: pe_stud to deck",
+        "bolt nut2: stud2 to deck",
+        "point star: star, at 150,100 on deck",
+        "point j: junction, at 250,30 on deck",
+        "wire bond1: star to pe_stud, 160 mm, 0.75 mm2, signal",
+        "wire jstar: j to star, 120 mm, 0.5 mm2, signal",
+        "bolt jn: j to deck",
+        "point k: pad, at 150,60 on deck",
+        "wire kw: k to star, 40 mm, 0.5 mm2, signal",
+        "stage v1: k to star, gain 20 dB",
+    ]
+    rnd, seen = Random(1), set()
+    for _ in range(20):
+        rnd.shuffle(body)
+        ctx = AuditContext(load_text("\n".join(head + body) + "\n", "landings.gplan"))
+        seen.add(tuple(sorted((i.closed_by, i.open_at) for i in ctx.loops)))
+    assert len(seen) == 1, seen

@@ -378,5 +378,7 @@ def pe_distance(ctx: AuditContext, node: str) -> float:
     here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
     if not pe or here is None:
         return 0.0
-    p = ctx.G.nodes[pe[0]]["pos"]
+    # of several landings (a second protective wire from the inlet), the first in the network's
+    # canonical order: not the one the plan happens to write first
+    p = ctx.G.nodes[min(pe, key=canonical_ranks(ctx.G).__getitem__)]["pos"]
     return ((p[0] - here[0]) ** 2 + (p[1] - here[1]) ** 2) ** 0.5
