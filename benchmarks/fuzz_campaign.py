@@ -1,21 +1,20 @@
 """A longer fuzz campaign than the test suite runs: grammar-aware plans, valid and mutated.
 
-    python benchmarks/fuzz_campaign.py --examples 5000          # hypothesis, grammar-aware
-    python benchmarks/fuzz_campaign.py --grid                   # every number of every example, 17
-    extreme values python benchmarks/fuzz_campaign.py --mutants 5000           # token mutants of
-    every example python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000   #
-    coverage-guided, if atheris installs python benchmarks/fuzz_campaign.py --invariants 10000   #
-    invariant properties, N plans each python benchmarks/fuzz_campaign.py --advice 1000        #
-    the advisor's promises, N plans python benchmarks/fuzz_campaign.py --hostile 10000      # the
-    hostile families, N cases each python benchmarks/fuzz_campaign.py --hostile 200 --family
-    signals   # one family
+    python benchmarks/fuzz_campaign.py --examples 5000        # hypothesis, grammar-aware
+    python benchmarks/fuzz_campaign.py --grid                 # each example's numbers, 17 extremes
+    python benchmarks/fuzz_campaign.py --mutants 5000         # token mutants of every example
+    python benchmarks/fuzz_campaign.py --atheris -atheris_runs=100000  # coverage-guided
+    python benchmarks/fuzz_campaign.py --invariants 10000     # invariant properties, N plans each
+    python benchmarks/fuzz_campaign.py --advice 1000          # the advisor's promises, N plans
+    python benchmarks/fuzz_campaign.py --hostile 10000        # the hostile families, N cases each
+    python benchmarks/fuzz_campaign.py --hostile 200 --family signals  # one family
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
 crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
-tests/test_invariants.py (mirrored channels equal, names, unconnected elements, resistance scaling)
-and tests/test_rewritings.py (statement order, units, a wire split in two, fastening kinds,
-`protective` written or not) run on N generated plans each with --invariants N; a failure is
-shrunk and printed by Hypothesis.
+tests/test_invariants.py (mirrored channels equal, names, unconnected elements, resistive networks
+renamed and reordered, resistance scaling) and tests/test_rewritings.py (statement order, units, a
+wire split in two, fastening kinds, `protective` written or not) run on N generated plans each with
+--invariants N; a failure is shrunk and printed by Hypothesis.
 The hostile families of tests/hostile_families.py (structural mutants, special files and links,
 look-alike and control characters, signals to a --jobs run) run N cases each with --hostile N: no
 traceback, no case over 10 s, no raw control character shown, no file changed but a fresh output.

@@ -119,8 +119,7 @@ def _solve(
     first), not only the hum budget's frequencies.  The results are the same for any number of
     processes."""
     budget = outlets = None
-    graph = ctx.G if ctx.plan is plan else None  # its canonical order is known by now
-    tasks = [partial(shared_returns, plan, circuit, graph)]
+    tasks = [partial(shared_returns, plan, circuit)]
     costs = [_coupling_cost(plan, circuit)]
     if options.hum and plan.devices:
         outlets = OutletWork(plan, circuit, rr, options.max_frequency)

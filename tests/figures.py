@@ -38,8 +38,10 @@ SKIP = {
 _LOOP = re.compile(r"^loop (\d+)$")
 
 
-def canonical(obj, loops=(), rename=lambda s: s):
-    """``obj`` (a result or any part of one) as nested tuples of words and numbers."""
+def canonical(obj, loops=(), rename=lambda s: s, skip=frozenset()):
+    """``obj`` (a result or any part of one) as nested tuples of words and numbers; fields and
+    keys in :data:`SKIP` and in ``skip`` left out."""
+    skip = SKIP | set(skip)
 
     def walk(x):
         if isinstance(x, bool) or x is None:
@@ -59,13 +61,13 @@ def canonical(obj, loops=(), rename=lambda s: s):
             return tuple(
                 (f.name, walk(getattr(x, f.name)))
                 for f in dataclasses.fields(x)
-                if f.name not in SKIP
+                if f.name not in skip
             )
         if isinstance(x, dict):
             items = [
                 (walk(k), walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v))
                 for k, v in x.items()
-                if k not in SKIP
+                if k not in skip
             ]
             return ("dict", tuple(sorted(items, key=_order)))
         if isinstance(x, (list, tuple, set, frozenset)):
@@ -117,8 +119,9 @@ def differences(a, b, where="", out=None, limit=8) -> list[str]:
     return out
 
 
-def result_figures(result, rename=lambda s: s):
-    """Everything an analysis found and computed, canonical (see :func:`canonical`)."""
+def result_figures(result, rename=lambda s: s, skip=frozenset()):
+    """Everything an analysis found and computed, canonical (see :func:`canonical`; ``skip``: more
+    fields and keys to leave out)."""
     loops = [info.loop.edges for info in result.loops]
     keep = (
         "findings",
@@ -133,4 +136,4 @@ def result_figures(result, rename=lambda s: s):
         "outlets",
         "bonding",
     )
-    return tuple((k, canonical(getattr(result, k), loops, rename)) for k in keep)
+    return tuple((k, canonical(getattr(result, k), loops, rename, skip)) for k in keep)

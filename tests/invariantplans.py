@@ -184,16 +184,22 @@ class Resistive:
     resistors: tuple[tuple[int, int, float], ...]  # (a, b, Ω)
     currents: tuple[tuple[int, int, float, float], ...]  # (a, b, mA, Hz)
     stages: tuple[tuple[int, int, int], ...]  # (a, b, gain dB)
+    kinds: tuple[str, ...] = ()  # each point's kind (all pads when empty)
 
 
 @st.composite
-def resistive_plans(draw) -> Resistive:
-    n = draw(st.integers(3, 7))
+def resistive_plans(draw, most: int = 7, stars: bool = False, ohms=None) -> Resistive:
+    """Up to ``most`` points; with 12 or more, the resistors may outnumber the ten shares the hum
+    budget names per source (physics/hum_shares.TOP_SHARES), so that which equal shares are named
+    is a choice. With ``stars``, each point is a pad, a junction or a star (the star rules' chain
+    search then meets paths of equal length). ``ohms``: the values drawn from (the default's span
+    of 800 leaves some figures to rounding at 1e-9 when the statements are reordered)."""
+    n = draw(st.integers(3, most))
     # no two values 1000 times apart: the hum budget lists a conductor whose share is above 1e-3
     # of its source's largest, and at exactly 1e-3 rounding decides (scaled or not)
-    ohms = st.sampled_from([0.0012, 0.01, 0.047, 0.22, 1.0])
+    ohms = st.sampled_from(ohms or [0.0012, 0.01, 0.047, 0.22, 1.0])
     res = [(i, draw(st.integers(0, i - 1)), draw(ohms)) for i in range(1, n)]
-    for _ in range(draw(st.integers(0, 3))):
+    for _ in range(draw(st.integers(0, max(3, n // 2)))):
         a, b = draw(st.lists(st.integers(0, n - 1), min_size=2, max_size=2, unique=True))
         res.append((a, b, draw(ohms)))
     pair = st.lists(st.integers(0, n - 1), min_size=2, max_size=2, unique=True)
@@ -208,22 +214,28 @@ def resistive_plans(draw) -> Resistive:
     stages = tuple(
         (*draw(pair), draw(st.sampled_from([0, 20, 40]))) for _ in range(draw(st.integers(1, 2)))
     )
-    return Resistive(n, tuple(res), currents, stages)
+    kinds = ()
+    if stars:
+        kinds = tuple(draw(st.sampled_from(["pad", "junction", "star"])) for _ in range(n))
+    return Resistive(n, tuple(res), currents, stages, kinds)
 
 
-def resistive_text(r: Resistive, scale: float = 1.0) -> str:
+def resistive_text(r: Resistive, scale: float = 1.0, name=identity) -> str:
+    """The plan, every resistance times ``scale``, every element named through ``name``."""
     lines = ['plan "resistive"']
-    lines += [f"point n{i}: pad" for i in range(r.n)]
+    kinds = r.kinds or ("pad",) * r.n
+    lines += [f"point {name(f'n{i}')}: {kinds[i]}" for i in range(r.n)]
     lines += [
-        f"wire w{k}: n{a} to n{b}, {ohm * scale!r} ohm, signal"
+        f"wire {name(f'w{k}')}: {name(f'n{a}')} to {name(f'n{b}')}, {ohm * scale!r} ohm, signal"
         for k, (a, b, ohm) in enumerate(r.resistors)
     ]
     lines += [
-        f"current i{k}: n{a} to n{b}, {ma} mA" + (f" {hz} Hz" if hz else "")
+        f"current {name(f'i{k}')}: {name(f'n{a}')} to {name(f'n{b}')}, {ma} mA"
+        + (f" {hz} Hz" if hz else "")
         for k, (a, b, ma, hz) in enumerate(r.currents)
     ]
     lines += [
-        f"stage g{k}: n{a} to n{b}, gain {g} dB, channel c{k}"
+        f"stage {name(f'g{k}')}: {name(f'n{a}')} to {name(f'n{b}')}, gain {g} dB, channel c{k}"
         for k, (a, b, g) in enumerate(r.stages)
     ]
     return "\n".join(lines) + "\n"

@@ -24,6 +24,8 @@ from groundcheck import analyze, load_text
 from groundcheck.physics.coupling import LISTED_TRANSFER
 from groundcheck.physics.humtotals import FLOOR_V
 from groundcheck.physics.plate import contact_groups, reduce_plate
+from groundcheck.rules.context import AuditContext
+from groundcheck.rules.stars import rule_stars
 from figures import differences, result_figures
 from invariantplans import (
     AREAS,
@@ -68,9 +70,16 @@ def _swap(name: str) -> str:
     return name
 
 
+def _group(group: str, swap) -> str:
+    """A hum source group ('current:NAME', 'rectifier charging') with its name passed through
+    ``swap``."""
+    kind, colon, name = group.rpartition(":")
+    return kind + colon + swap(name) if colon else group
+
+
 def _channel_figures(result, ch: str, swap=lambda s: s) -> dict:
-    """A channel's hum (total, signed, per frequency, per contributor) and its stages' transfer
-    resistances, keyed by names passed through ``swap``."""
+    """A channel's hum (total, signed, per frequency, per contributor, per source group) and its
+    stages' transfer resistances, keyed by names passed through ``swap``."""
     h = result.hum.channels[ch]
 
     def element(name: str):
@@ -82,6 +91,7 @@ def _channel_figures(result, ch: str, swap=lambda s: s) -> dict:
     out = {"total": h.total_v, "signed": h.signed_v}
     out |= {("f", s["frequency_hz"]): s["volts"] for s in h.spectrum}
     out |= {("c", element(c["element"]), swap(c["source"])): c["volts"] for c in h.contributors}
+    out |= {("g", _group(g, swap)): v for g, v in result.hum.levels[ch].items()}
     out |= {
         ("t", swap(c.stage), swap(c.source)): c.transfer
         for c in result.coupling
@@ -171,12 +181,12 @@ def _twins(plan) -> dict:
     return {n: min(names) for names in groups.values() for n in names}
 
 
-def _alike_renamed(before, after, back) -> list[str]:
+def _alike_renamed(before, after, back, skip=()) -> list[str]:
     """Where two results differ, the second's names passed through ``back`` (to the first's) and
-    twins (:func:`_twins`) counted as one."""
+    twins (:func:`_twins`) counted as one (``skip``: fields and keys left out)."""
     twins = _twins(before.plan)
-    want = result_figures(before, lambda s: twins.get(s, _PLATE_BRANCH.sub(r"\1", s)))
-    got = result_figures(after, lambda s: twins.get(back(s), back(s)))
+    want = result_figures(before, lambda s: twins.get(s, _PLATE_BRANCH.sub(r"\1", s)), skip)
+    got = result_figures(after, lambda s: twins.get(back(s), back(s)), skip)
     return differences(got, want)
 
 
@@ -223,6 +233,26 @@ def unconnected_changes_nothing(m, extra) -> None:
         assert not _same(_channel_figures(after, ch), _channel_figures(before, ch))
 
 
+def resistive_renamed_and_reordered(r, rnd) -> None:
+    """Networks of stated resistances with stars, junctions and pads, and more resistors than the
+    hum budget names per source: every figure and finding alike when every element is renamed and
+    the statements are shuffled (the chain search's paths of equal length, the equal shares named
+    among the ten per source). A contributor's share is left out: in a network of equal
+    resistances it is often a fraction such as 11/16 = 68.75 %, and its rounding to 0.1 % falls on
+    the half, where rounding noise decides (the contributor's level, unrounded, is compared)."""
+    before = analyze(load_text(resistive_text(r), "plan.gplan"))
+    atoms: dict = {}
+
+    def name(s: str) -> str:
+        atoms[_renamed(s)] = s
+        return _renamed(s)
+
+    text = reordered(resistive_text(r, name=name), rnd)
+    after = analyze(load_text(text, "plan.gplan"))
+    diff = _alike_renamed(before, after, lambda s: _back(s, atoms), {"share_pct"})
+    assert not diff, (resistive_text(r), text, diff)
+
+
 def _listed_alike(was: dict, now: dict, k: float, floor: float) -> list:
     """The figures that do not scale by k: both listed and not k times as large, or listed on one
     side only though the other side's figure would have been above the listing floor."""
@@ -266,6 +296,11 @@ PROPERTIES = {
         (mirrored_plans(rectifiers=False), st.sampled_from(["point alone: pad\n", ISLAND])),
         200,
     ),
+    "resistive networks renamed and reordered: the same figures and findings": (
+        resistive_renamed_and_reordered,
+        (resistive_plans(most=14, stars=True, ohms=[0.01, 0.022, 0.047]), st.randoms()),
+        200,
+    ),
     "drops scale with resistance": (
         drops_scale_with_resistance,
         (resistive_plans(), st.sampled_from([0.5, 2.0, 10.0, 0.03])),
@@ -290,6 +325,9 @@ test_an_element_connected_to_nothing_changes_no_figure = _suite(
     "an unconnected element changes no figure"
 )
 test_scaling_every_resistance_scales_every_drop = _suite("drops scale with resistance")
+test_renamed_and_reordered_resistive_networks_give_the_same_figures_and_findings = _suite(
+    "resistive networks renamed and reordered: the same figures and findings"
+)
 
 
 def test_equal_shares_of_two_different_wires_are_named_alike_under_new_names():
@@ -301,3 +339,106 @@ def test_equal_shares_of_two_different_wires_are_named_alike_under_new_names():
     block = Block(((106, 6), (98, 38), (64, 4)), wires, (1, 2), (2, 0, 0), None)
     m = Mirrored("x", block, 4, 20.0, 3, False, False)
     renamed_and_reordered(m, Random(0))
+
+
+def _chain_plan(name=lambda s: s) -> str:
+    """Twelve 10 mΩ wires in series from n0 to n12, 100 mA at 100 Hz through them, a stage of 0 dB
+    across the whole chain: each wire's share of the hum is 10 mΩ × 100 mA = 1 mV (Ohm's law,
+    worked by hand), twelve equal shares of which the budget names ten."""
+    lines = ['plan "chain"'] + [f"point {name(f'n{i}')}: pad" for i in range(13)]
+    lines += [
+        f"wire {name(f'w{k:02d}')}: {name(f'n{k}')} to {name(f'n{k + 1}')}, 0.01 ohm, signal"
+        for k in range(12)
+    ]
+    lines += [
+        f"current {name('i')}: {name('n0')} to {name('n12')}, 100 mA 100 Hz",
+        f"stage {name('g')}: {name('n0')} to {name('n12')}, gain 0 dB, channel c",
+    ]
+    return "\n".join(lines) + "\n"
+
+
+def test_equal_hum_shares_are_named_alike_under_new_names():
+    """Found by the campaign: the ten equal shares named per source were taken by name, so renaming
+    the wires (their names' order reversed) named others; now by the network's canonical order."""
+    atoms: dict = {}
+
+    def name(s: str) -> str:
+        atoms[_renamed(s)] = s
+        return _renamed(s)
+
+    named = []
+    for text in (_chain_plan(), _chain_plan(name)):
+        h = analyze(load_text(text, "chain.gplan")).hum.channels["c"]
+        named.append(sorted(atoms.get(c["element"], c["element"]) for c in h.contributors))
+        shares = [c["volts"] for c in h.contributors if c["element"] != "other conductors"]
+        assert len(shares) == 10 and all(_close(v, 1e-3) for v in shares), shares
+    assert named[0] == named[1], named
+
+
+def test_a_chain_is_found_whatever_the_order_of_the_statements():
+    """Found by the campaign: t reaches star s in two hops through u (a stage's end) and through j
+    (a junction); the chain search took the one the star's adjacency met first, so the order of
+    the statements decided whether GC103 said "t reaches it through u". Every order of the six
+    statements gives one answer."""
+    head = ['plan "tie"', "point s: star", "point t: pad", "point u: pad", "point j: junction"]
+    body = [
+        "wire tu: t to u, 0.01 ohm, signal",
+        "wire us: u to s, 0.01 ohm, signal",
+        "wire tj: t to j, 0.01 ohm, signal",
+        "wire js: j to s, 0.01 ohm, signal",
+        "stage g1: t to s, gain 20 dB, channel a",
+        "stage g2: u to s, gain 20 dB, channel a",
+    ]
+    rnd, seen = Random(3), set()
+    for _ in range(40):
+        rnd.shuffle(body)
+        plan = load_text("\n".join(head + body) + "\n", "tie.gplan")
+        seen.add(tuple(sorted((f.code, f.elements) for f in rule_stars(AuditContext(plan)))))
+    assert len(seen) == 1, seen
+
+
+def test_a_source_that_misses_a_channels_stages_leaves_it_no_level():
+    """Found by the campaign: the ripple current runs from the supply to the protective stud, and
+    each channel's stage reads the drop of a wire that is a dead end (n1 hangs from n0 by w0
+    alone), which carries none of it (Kirchhoff's current law): no level. The solve left 1e-21 V
+    of rounding there in one writing and an exact zero in another, and the budget listed the
+    group in the first only."""
+    block = Block(((92, 4), (64, 4)), ((1, 0, 0, "0.5 mm2"),), (0,), (0, 1, 0), None)
+    m = Mirrored("x", block, 4, 20.0, 0, False, False)
+    levels = analyze(load_text(mirrored_text(m), "dead-end.gplan")).hum.levels
+    assert all("current:ripple" not in levels[ch] for ch in ("left", "right")), levels
+
+
+def test_the_bond_kept_is_the_same_whatever_the_order_of_two_protective_landings():
+    """The protective earth lands on two studs (pe_stud at 20,180 and stud2 at 280,20 mm), and the
+    signal ground is bonded to the chassis twice (bond1 at pe_stud, jstar through j's bolt at
+    250,30): the loop is opened at the crossing farthest from the landing, and which landing was
+    measured from followed the order of the two protective wires' statements (bond1 opened in one
+    order, jstar in the other). Every order now opens one and the same."""
+    head = [
+        'plan "two landings"',
+        "mains 230 V 50 Hz, fuse 1 A slow, line-conductor 0.75 mm2, inlet at 150,190",
+    ]
+    body = [
+        "metal deck: steel 1 mm, 300 x 200 mm, touchable",
+        "point pe_stud: stud, at 20,180 on deck",
+        "point stud2: stud, at 280,20 on deck",
+        "wire pe_lead: mains.pe to pe_stud, 140 mm, 1 mm2, protective",
+        "wire pe_b: mains.pe to stud2, 220 mm, 1 mm2, protective",
+        "bolt pe_nut: pe_stud to deck",
+        "bolt nut2: stud2 to deck",
+        "point star: star, at 150,100 on deck",
+        "point j: junction, at 250,30 on deck",
+        "wire bond1: star to pe_stud, 160 mm, 0.75 mm2, signal",
+        "wire jstar: j to star, 120 mm, 0.5 mm2, signal",
+        "bolt jn: j to deck",
+        "point k: pad, at 150,60 on deck",
+        "wire kw: k to star, 40 mm, 0.5 mm2, signal",
+        "stage v1: k to star, gain 20 dB",
+    ]
+    rnd, seen = Random(1), set()
+    for _ in range(20):
+        rnd.shuffle(body)
+        ctx = AuditContext(load_text("\n".join(head + body) + "\n", "landings.gplan"))
+        seen.add(tuple(sorted((i.closed_by, i.open_at) for i in ctx.loops)))
+    assert len(seen) == 1, seen

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import dataclasses
 import json
+import re
 
 import pytest
 
@@ -91,3 +92,15 @@ def test_kind_defaults_and_own_attributes_come_from_the_row(monkeypatch):
 
 def test_every_role_has_a_drawing_style():
     assert set(ROLE_STYLE) == set(ROLES)
+
+
+def test_every_kind_has_its_row_in_the_language_reference():
+    """Each row of the kinds table is a keyword the reference documents: the first cell of a table
+    row names it (the conductor table, or the installation's for a building `cable` and an
+    umbilical's `core`)."""
+    text = (ROOT / "docs" / "language.md").read_text(encoding="utf-8")
+    cells = [re.split(r"(?<!\\)\|", row)[1] for row in text.splitlines() if row.startswith("| `")]
+    missing = [
+        k for k in KINDS if not any(re.search(rf"`{re.escape(k)}( [^`]*)?`", c) for c in cells)
+    ]
+    assert not missing, missing

@@ -135,7 +135,7 @@ def _written_protective(ctx: ChangeContext, st, changes: list) -> list:
     for word in (r for r in ROLES if r != PROTECTIVE):
         ph = ctx.src.find(st, word)
         if ph and len(ph) == 1:
-            return changes + [(ph[0], "protective")]
+            return changes + [(ph[0], PROTECTIVE)]
     last = st.phrases[-1][-1]
     mine = dict((id(it), new) for it, new in changes)
     n, a, b = ctx.src.span(last)

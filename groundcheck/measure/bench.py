@@ -67,7 +67,7 @@ def mechanism_words(group: str, plan) -> str:
             "upper series)"
         )
     if kind == "field":
-        src = next((f for f in plan.fields if f.name == name), None)
+        src = plan.index.fields.get(name)
         if src is None or name.endswith(".wiring"):
             return "the heater wiring's field in a ground loop (the mains frequency)"
         return (

@@ -7,6 +7,7 @@ from __future__ import annotations
 from collections import deque
 from dataclasses import dataclass, field
 
+from .index import device_of
 from .kinds import in_device_ground, is_hookup, kind
 from ..core.errors import Location
 from .records import PE_POINT, Conductor
@@ -113,15 +114,9 @@ def separated_devices(plan) -> set[str]:
     """The devices plugged in behind an isolating transformer (on its floating secondary)."""
     if not any(t.isolating for t in plan.transformers):
         return set()
-    devices = {d.name: d for d in plan.devices}
+    devices = plan.index.devices
     feeds = transformer_feeds(plan.transformers, plan.conductors, devices)
     return {d.name for d in plan.devices if d.plugged in feeds and feeds[d.plugged].isolating}
-
-
-def device_of(point: str, devices: dict) -> str | None:
-    """The placed device a point belongs to (its name's prefix), or None."""
-    head = point.split(".", 1)[0]
-    return head if "." in point and head in devices else None
 
 
 def conductors_by_device(conductors, devices: dict) -> dict[str, list[Conductor]]:

@@ -9,9 +9,11 @@ front panel, looking down on the chassis).  Every record keeps the
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 
 from ..core.errors import Location
 from .construct import from_values, make
+from .index import PlanIndex
 from .kinds import CONDUCTOR_KINDS, ROLES, SIGNAL, can_open, shield_like
 from .sources import Current, FieldSource, Heater, Rectifier, Stage
 from .supplies import (
@@ -219,11 +221,17 @@ class Plan:
             return self.supply.frequency
         return self.device_supplies[0][2] if self.device_supplies else 50.0
 
+    @cached_property
+    def index(self) -> PlanIndex:
+        """The plan's elements by name and the placement each belongs to, built once
+        (:class:`~groundcheck.model.index.PlanIndex`)."""
+        return PlanIndex(self)
+
     def metal(self, name: str) -> Metal | None:
-        return next((m for m in self.metals if m.name == name), None)
+        return self.index.metals.get(name)
 
     def point(self, name: str) -> Point | None:
-        return next((p for p in self.points if p.name == name), None)
+        return self.index.points.get(name)
 
     @property
     def channels(self) -> tuple[str, ...]:

@@ -122,7 +122,7 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
             u, k = parent[v]
             route.add(k)
             v = u
-    conds = {c.name: c for c in plan.conductors}
+    conds = plan.index.conductors
     marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
     side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)

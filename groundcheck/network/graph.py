@@ -20,6 +20,7 @@ from .earthing import EARTH_TERMINAL_KINDS
 
 __all__ = [
     "build_graph",
+    "plan_ranks",
     "edges_of",
     "part_labels",
     "components",
@@ -44,6 +45,23 @@ def build_graph(plan: Plan) -> nx.MultiGraph:
         if c.connects:
             G.add_edge(c.a, c.b, key=c.name, conductor=c)
     return G
+
+
+def plan_ranks(plan: Plan) -> dict:
+    """The canonical ranks (:func:`~groundcheck.network.canonical.canonical_ranks`) of the plan's
+    network, worked out once per plan and kept in its index.
+
+    Parameters:
+        plan: the plan.
+    Returns:
+        element name -> rank (0 first), nodes and conductors in one numbering.
+    References:
+        see :mod:`groundcheck.network.canonical`.
+    """
+    memo = plan.index.derived
+    if "canonical_ranks" not in memo:
+        memo["canonical_ranks"] = canonical_ranks(build_graph(plan))
+    return memo["canonical_ranks"]
 
 
 def edges_of(G: nx.MultiGraph) -> list[tuple]:

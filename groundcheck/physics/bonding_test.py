@@ -211,7 +211,7 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
     if not tests:
         return None
     share, rpart = _shares(plan, protective_circuit(plan, route, circuit))
-    by_name = {c.name: c for c in plan.conductors}
+    by_name = plan.index.conductors
     rows: list[ConductorHeat] = []
     for test in tests:
         for name in sorted(share):

@@ -56,7 +56,7 @@ def build_circuit(plan: Plan, *, plates: bool = True) -> Circuit:
         1975).
     """
     bld = _Builder(plan)
-    metals = {m.name: m for m in plan.metals}
+    metals = plan.index.metals
     conductors = [c for c in plan.conductors if c.connects]
     fasteners = _fasteners(plan, metals, conductors)
     for name, m in metals.items():

@@ -20,8 +20,7 @@ from ..model.kinds import SIGNAL
 from ..core.errors import Location
 from .circuit import Circuit, Factored, Solution
 from .ranking import largest
-from ..network.canonical import canonical_ranks
-from ..network.graph import build_graph
+from ..network.graph import plan_ranks
 
 # the sources and their injections live in .sources; named here too, where the analyses import them
 from .sources import Source, channel_tests, pair_tests, plan_sources, source_injections
@@ -36,6 +35,7 @@ __all__ = [
     "channel_tests",
     "source_injections",
     "branch_owner",
+    "owner_ranks",
     "pair_path",
     "path_drop",
     "SHARE_THRESHOLD",
@@ -142,7 +142,7 @@ class SharedReturn:
         }
 
 
-def shared_returns(plan, circuit: Circuit, graph=None) -> list[SharedReturn]:
+def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     """Supply-return currents whose path shares conductors with a sensitive pair (resistive, DC):
     one row per (source, stage) pair that shares, naming the conductors that make up most of the
     coupling.
@@ -150,8 +150,6 @@ def shared_returns(plan, circuit: Circuit, graph=None) -> list[SharedReturn]:
     Parameters:
         plan: the plan.
         circuit: the circuit.
-        graph: the plan's network (:func:`groundcheck.network.graph.build_graph`), when the caller
-            has it (its canonical order is then not worked out again); built when not given.
     Returns:
         every supply-return current whose path shares conductors with a sensitive pair, with the
         shared conductors.
@@ -167,15 +165,24 @@ def shared_returns(plan, circuit: Circuit, graph=None) -> list[SharedReturn]:
     pairs = np.argwhere(transfer > LISTED_TRANSFER)
     if len(pairs) > MAX_SHARED_ROWS:  # the strongest rows, kept in their order
         pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
-    return _rows(plan, circuit, fac, (sources, stages), transfer, pairs, graph)
+    return _rows(plan, circuit, fac, (sources, stages), transfer, pairs)
 
 
-def _owner_rank(plan, owners: list[str], graph=None) -> np.ndarray:
+def owner_ranks(plan, owners: list[str]) -> np.ndarray:
     """Each branch's owner's place in the network's name- and order-free order
     (:func:`groundcheck.network.canonical.canonical_ranks`; an owner outside the network after
     every one in it, by name): equal shares are named in that order, so that neither renaming the
-    elements nor writing them in another order changes which are named."""
-    rank = canonical_ranks(build_graph(plan) if graph is None else graph)
+    elements nor writing them in another order changes which are named.
+
+    Parameters:
+        plan: the plan.
+        owners: each branch's owner (:func:`branch_owner`).
+    Returns:
+        each branch's place, 0 first (the branches of one owner in branch order).
+    References:
+        see :mod:`groundcheck.network.canonical`.
+    """
+    rank = plan_ranks(plan)
     keys = [(rank.get(o, len(rank)), o) for o in owners]
     order = sorted(range(len(owners)), key=keys.__getitem__)
     out = np.empty(len(owners), dtype=int)
@@ -183,7 +190,7 @@ def _owner_rank(plan, owners: list[str], graph=None) -> np.ndarray:
     return out
 
 
-def _rows(plan, circuit, fac, ends, transfer, pairs, graph=None) -> list[SharedReturn]:
+def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
     """One row per (stage, source) pair of ``pairs`` that shares a conductor, with the
     conductors that make up most of the coupling (``ends``: the sources and the stages)."""
     sources, stages = ends
@@ -198,7 +205,7 @@ def _rows(plan, circuit, fac, ends, transfer, pairs, graph=None) -> list[SharedR
     scol = {si: i for i, si in enumerate(used)}
     W = fac.solve(source_injections(circuit, [sources[i] for i in used], 0.0)).dv  # Z·I
     owners = branch_owner(circuit)
-    rank = _owner_rank(plan, owners, graph)
+    rank = owner_ranks(plan, owners)
     admittance = np.abs(fac.y)
     rows = []
     for k, si in pairs:

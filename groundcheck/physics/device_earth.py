@@ -53,10 +53,11 @@ def installation_earths(
     """
     class_ii = {d.name for d in plan.devices if d.equipment_class == "II"}  # no earth pin to check
     class_ii |= separated_devices(plan)  # on a floating secondary: no earth path by design
+    device_of = plan.index.device_of
     inlets = sorted(
         p.name
         for p in plan.points
-        if p.kind == "inlet" and p.name != PE_POINT and p.name.split(".", 1)[0] not in class_ii
+        if p.kind == "inlet" and p.name != PE_POINT and device_of(p.name) not in class_ii
     )
     mets = [p.name for p in plan.points if p.kind == "earthing-terminal"]
     if not inlets or not mets:

@@ -7,7 +7,8 @@ the rated output: per frequency, Σ over the channel's stages of (V_a − V_b)·
 amplitude, summed with signs as the crosstalk is (:mod:`groundcheck.physics.hum`).  The part read
 by the stages that do not end on the current's own points (an output stage measured across its
 own load return does; the input stages do not) is given beside it: it enters ahead of the
-channel's gain.  The hum budget computes both on its own factorisations, at 1 kHz and at every
+channel's gain.  The hum budget computes both on its own factorisations, at the signal frequency
+(:data:`groundcheck.physics.humsettings.SIGNAL_FREQUENCY`, 1 kHz) and at every
 frequency of the budget (the hum harmonics).
 
 References: common-impedance coupling (H. W. Ott, *Electromagnetic Compatibility Engineering*,
@@ -20,10 +21,7 @@ import numpy as np
 
 from ..core.units import db_of_ratio
 
-__all__ = ["FEEDBACK_AT", "FEEDBACK_FLOOR_DB", "feedback_sources", "own_feedback", "feedback_rows"]
-
-#: the signal frequency at which the feedback is always given, Hz (as the crosstalk)
-FEEDBACK_AT = 1000.0
+__all__ = ["FEEDBACK_FLOOR_DB", "feedback_sources", "own_feedback", "feedback_rows"]
 
 #: feedback is not shown below this (dB), as the crosstalk
 FEEDBACK_FLOOR_DB = -200.0

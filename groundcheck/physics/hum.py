@@ -33,9 +33,16 @@ from functools import partial
 import numpy as np
 
 from ..core.units import ratio_of_db
-from .feedback import FEEDBACK_AT, feedback_sources, own_feedback
-from .coupling import branch_owner, channel_tests, pair_path, path_drop, plan_sources
-from .humsettings import HumOptions
+from .feedback import feedback_sources, own_feedback
+from .coupling import (
+    branch_owner,
+    channel_tests,
+    owner_ranks,
+    pair_path,
+    path_drop,
+    plan_sources,
+)
+from .humsettings import SIGNAL_FREQUENCY, HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
 from .fieldhum import field_pickup
@@ -157,7 +164,8 @@ class HumBudget:
         self.sources = [*plan.fields, *(src for src, _ in self.pairs.values())]
         self.fields = {x.name: x for x in self.sources}
         self.owners = branch_owner(circuit)
-        self.owner_rank = np.argsort(np.argsort(np.array(self.owners, dtype=object)))
+        # equal shares are named in the network's name- and order-free order
+        self.owner_rank = owner_ranks(plan, self.owners)
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
         self._listening(plan.listening)
         self._stages(plan.stages)
@@ -224,14 +232,19 @@ class HumBudget:
         )
         self.freqs = freqs = [f for f in freqs if f <= max_frequency + 1e-9]
         self.xt_freqs = sorted(
-            {1000.0, min(freqs) if freqs else 2 * f0, max(freqs) if freqs else max_frequency}
+            {
+                SIGNAL_FREQUENCY,
+                min(freqs) if freqs else 2 * f0,
+                max(freqs) if freqs else max_frequency,
+            }
         )
         self.crosstalk_wanted = (
             bool(self.signal_sources) and len(self.channels) > 1 and bool(self.stages)
         )
-        # a channel's own signal currents read by its own stages: at 1 kHz and the hum harmonics
+        # a channel's own signal currents read by its own stages: at the signal frequency and the
+        # hum harmonics
         self.fb_sources = feedback_sources(self.signal_sources, self.stages)
-        self.fb_freqs = set(freqs) | {FEEDBACK_AT} if self.fb_sources else set()
+        self.fb_freqs = set(freqs) | {SIGNAL_FREQUENCY} if self.fb_sources else set()
         xt = set(self.xt_freqs) if self.crosstalk_wanted else set()
         self.solve_at = sorted(set(freqs) | xt | self.fb_freqs)
 

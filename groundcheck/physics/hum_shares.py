@@ -31,8 +31,9 @@ SOURCE_CHUNK = 128
 
 
 def _largest(mags, rank):
-    """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken by owner
-    name rather than by the order the plan writes its conductors in."""
+    """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken in the
+    owners' canonical order (``rank``: :func:`groundcheck.physics.coupling.owner_ranks`), neither
+    by their names nor by the order the plan writes its conductors in."""
     nb, k = mags.shape[1], min(mags.shape[1], TOP_SHARES + 8)
     near = np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
     rows = np.arange(len(mags))[:, None]

@@ -8,7 +8,30 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["HumOptions"]
+__all__ = ["HumOptions", "SIGNAL_FREQUENCY", "SIGNAL_FREQUENCY_TEXT", "at_signal_frequency"]
+
+#: the signal frequency at which the crosstalk between channels and each channel's feedback through
+#: the ground are always given, Hz (1 kHz: the reference frequency of audio measurements, IEC
+#: 60268-3, from memory); the one place it is written
+SIGNAL_FREQUENCY = 1000.0
+
+#: the same, as the findings and reports write it
+SIGNAL_FREQUENCY_TEXT = f"{SIGNAL_FREQUENCY / 1000:g} kHz"
+
+
+def at_signal_frequency(f: float) -> bool:
+    """Whether a row's frequency is :data:`SIGNAL_FREQUENCY` (to a billionth, not by the exact
+    float comparison: a frequency reached by arithmetic, 20 × 50 Hz say, may differ in its last
+    bit).
+
+    Parameters:
+        f: a frequency, Hz.
+    Returns:
+        True at the signal frequency.
+    References:
+        none (bookkeeping).
+    """
+    return abs(f - SIGNAL_FREQUENCY) <= 1e-9 * SIGNAL_FREQUENCY
 
 
 @dataclass(frozen=True)
@@ -18,7 +41,8 @@ class HumOptions:
     Parameters:
         max_frequency: highest harmonic analysed, Hz.
         contributor_level: contributors above this level at the output (dBV) become findings.
-        crosstalk_limit: crosstalk between channels at 1 kHz worse than this (dB) is a finding.
+        crosstalk_limit: crosstalk between channels at the signal frequency (SIGNAL_FREQUENCY)
+            worse than this (dB) is a finding.
     """
 
     max_frequency: float = 5000.0

@@ -202,7 +202,9 @@ class Merged:
 
     def levels(self) -> dict:
         """Each source group's worst-case level at each channel's output, V (see
-        :attr:`HumResult.levels`)."""
+        :attr:`HumResult.levels`); a group below FLOOR_V is left out, as a contributor is: a
+        source that reaches a channel in no conductor leaves rounding noise there (1e-22 V or
+        so), which one writing of the plan gives and another gives as an exact zero."""
         out: dict = {}
         for ch in self.b.channels:
             power: dict = defaultdict(float)
@@ -210,7 +212,7 @@ class Merged:
                 signed, worst = self.out[ch].get(f, {}), self.in_phase[ch].get(f, {})
                 for group in signed.keys() | worst.keys():
                     power[group] += max(abs(signed.get(group, 0.0)), worst.get(group, 0.0)) ** 2
-            out[ch] = {g: math.sqrt(p) for g, p in power.items()}
+            out[ch] = {g: math.sqrt(p) for g, p in power.items() if math.sqrt(p) >= FLOOR_V}
         return out
 
     def _contributors(self, ch: str) -> list[dict]:

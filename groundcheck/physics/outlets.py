@@ -112,7 +112,7 @@ def outlet_pairs(plan) -> tuple[list, list]:
     References:
         none (bookkeeping).
     """
-    devices = {d.name: d for d in plan.devices}
+    devices = plan.index.devices
     floating = separated_devices(plan)
     pairs, names = [], []
     for c in plan.conductors:
@@ -164,7 +164,7 @@ class OutletWork:
         self.plan, self.circuit = plan, circuit
         self.emfs, self.notes = [], []
         self.pairs, self.names, self.sources, self.freqs = [], [], [], []
-        devices = {d.name: d for d in plan.devices}
+        devices = plan.index.devices
         if not devices:
             return
         for c in plan.conductors:

@@ -150,7 +150,7 @@ def loop_passages(plan, circuit, loops) -> dict:
     References:
         none (geometry bookkeeping).
     """
-    metals = {m.name: m for m in plan.metals}
+    metals = plan.index.metals
     pos = {p.name: p.pos for p in plan.points if p.pos is not None}
     routed = {c.name for c in plan.conductors if c.route}
     out: dict = {}

@@ -19,6 +19,7 @@ from ..core.caution import CAUTION
 from ..core.errors import shown
 from ..core.plain import readable
 from ..core.units import db_of_ratio, dbv, format_si
+from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
 from .fieldtable import field_axes_table
@@ -217,17 +218,18 @@ def _hum_tables(result: Result, console: Console) -> None:
                 for c in h.contributors[:3]
             )
             console.print(f"  main contributors, {escape(ch)}: {top}")
-    xt = [r for r in result.hum.crosstalk if r["frequency_hz"] == 1000.0]
+    xt = [r for r in result.hum.crosstalk if at_signal_frequency(r["frequency_hz"])]
     for r in xt:
         console.print(
-            f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} at 1 kHz: "
+            f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} "
+            f"at {SIGNAL_FREQUENCY_TEXT}: "
             + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB")
         )
     for r in result.hum.feedback:
-        if r["frequency_hz"] == 1000.0 and r["input_db"] > -200:
+        if at_signal_frequency(r["frequency_hz"]) and r["input_db"] > -200:
             console.print(
                 f"  ground feedback of {escape(r['source'])} into its own "
-                f"{escape(str(r['channel']))} output at 1 kHz: {r['db']:.1f} dB "
+                f"{escape(str(r['channel']))} output at {SIGNAL_FREQUENCY_TEXT}: {r['db']:.1f} dB "
                 f"({r['input_db']:.1f} dB through its input stages)"
             )
     for note in result.hum.notes:

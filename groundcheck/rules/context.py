@@ -24,6 +24,7 @@ from ..model.kinds import (
     joins_devices,
     shield_like,
 )
+from ..model.index import outermost
 from ..model.records import PE_POINT, Conductor, Plan
 from ..network.canonical import canonical_ranks
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
@@ -94,7 +95,7 @@ class AuditContext:
 
     @cached_property
     def conductors(self) -> dict[str, Conductor]:
-        return {c.name: c for c in self.plan.conductors}
+        return self.plan.index.conductors
 
     @cached_property
     def metals(self) -> set[str]:
@@ -244,9 +245,8 @@ def node_channel(ctx: "AuditContext", name: str) -> str | None:
     References:
         none (bookkeeping).
     """
-    data = ctx.G.nodes[name] if name in ctx.G else {}
-    point = data.get("point")
-    return point.group.split(".", 1)[0] if point is not None and point.group else None
+    point = ctx.plan.point(name)
+    return outermost(point.group) if point is not None else None
 
 
 def open_at(ctx: AuditContext, lp: Loop, closed_by: str) -> str:
@@ -378,5 +378,7 @@ def pe_distance(ctx: AuditContext, node: str) -> float:
     here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
     if not pe or here is None:
         return 0.0
-    p = ctx.G.nodes[pe[0]]["pos"]
+    # of several landings (a second protective wire from the inlet), the first in the network's
+    # canonical order: not the one the plan happens to write first
+    p = ctx.G.nodes[min(pe, key=canonical_ranks(ctx.G).__getitem__)]["pos"]
     return ((p[0] - here[0]) ** 2 + (p[1] - here[1]) ** 2) ** 0.5

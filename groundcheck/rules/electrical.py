@@ -53,7 +53,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     References:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
-    plan_conductors = {c.name: c for c in s.plan.conductors}
+    plan_conductors = s.plan.index.conductors
     leak = {c.name for c in s.plan.currents if c.role == LEAKAGE}
     channels = {st.name: st.channel for st in s.plan.stages}
     out = []

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, PROTECTIVE, SIGNAL, carries_load, joins_devices
+from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from .catalogue import Finding
 from .context import AuditContext
 from .electrical import Solved
@@ -56,7 +57,7 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
     """GC301 for each conductor (or run in series), GC302 for each loop, whose share of a
     channel's hum is above the contributor level and at least a tenth of the total."""
     opts = s.options
-    conductors = {c.name: c for c in s.plan.conductors}
+    conductors = s.plan.index.conductors
     out = []
     for c in contributors:
         if c["dbv"] is None or c["dbv"] < opts.contributor_level or c["share_pct"] < 10:
@@ -96,11 +97,11 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
 
 
 def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
-    """GC304: crosstalk at 1 kHz between channels above the limit."""
+    """GC304: crosstalk at the signal frequency between channels above the limit."""
     out = []
     for row in s.hum.crosstalk:
         if (
-            row["frequency_hz"] == 1000.0
+            at_signal_frequency(row["frequency_hz"])
             and row["db"] is not None
             and row["db"] > s.options.crosstalk_limit
         ):
@@ -110,7 +111,7 @@ def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
                     "GC304",
                     "warning",
                     f"crosstalk from {row['from']} into {row['to']} is {row['db']:.1f} dB "
-                    "at 1 kHz",
+                    f"at {SIGNAL_FREQUENCY_TEXT}",
                     loc,
                     (str(row["from"]), row["to"]),
                     {"crosstalk_db": row["db"]},
@@ -281,7 +282,7 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
     """
     if s.hum is None:
         return []
-    fields = {f.name: f for f in s.plan.fields}
+    fields = s.plan.index.fields
     out = []
     for row in s.hum.loops:
         for name, entry in row["sources"].items():

@@ -83,10 +83,10 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     plan = ctx.plan
-    devices = {d.name: d for d in plan.devices}
+    devices = plan.index.devices
     if not devices:
         return []
-    metals = {m.name: m for m in plan.metals}
+    metals = plan.index.metals
     own = conductors_by_device(plan.conductors, devices)
     out = []
     for c in plan.conductors:

@@ -192,7 +192,7 @@ def plan_conductor(plan: Plan, name: str):
     References:
         none (lookup).
     """
-    return next((c for c in plan.conductors if c.name == name), None)
+    return plan.index.conductors.get(name)
 
 
 def _device_text(m) -> str:
@@ -308,7 +308,7 @@ def rule_device_earths(s: Solved) -> list[Finding]:
     if s.device_earths is None:
         return []
     out = []
-    points = {p.name: p for p in s.plan.points}
+    points = s.plan.index.points
     for d in s.device_earths:
         loc = points[d.inlet].location
         if d.resistance is None:

@@ -10,6 +10,8 @@ from __future__ import annotations
 import networkx as nx
 
 from ..model.kinds import is_fastening
+from ..network.canonical import canonical_ranks
+from .graph_search import bfs
 
 __all__ = ["only_return_end", "shield_fix", "supply_ends", "supply_meetings"]
 
@@ -100,6 +102,7 @@ def supply_meetings(ctx) -> list[tuple]:
     if not stars:
         return []
     H = nx.Graph((u, v) for u, v in ctx.G.edges() if not {u, v} & (stars | ctx.metals))
+    rank = canonical_ranks(ctx.G)
     out = []
     for r in ctx.plan.rectifiers:
         for x, y in ((r.b, r.a), (r.filter_point, r.a)):
@@ -107,14 +110,12 @@ def supply_meetings(ctx) -> list[tuple]:
                 continue
             if x in H and y in H and nx.has_path(H, x, y):
                 continue
-            try:
-                path = nx.shortest_path(ctx.G, x, y)
-            except nx.NetworkXNoPath:
-                continue
+            path = _shortest(ctx.adj, x, y, rank)
             star = next((n for n in path[1:-1] if n in stars), None)
             if star is None or any(n in ctx.metals for n in path):
                 continue
-            link = next(iter(ctx.G[path[0]][path[1]]))
+            # of two conductors side by side, the first by rank (not by the plan's order)
+            link = min(ctx.G[path[0]][path[1]], key=rank.__getitem__)
             out.append(
                 (
                     r.location,
@@ -127,3 +128,15 @@ def supply_meetings(ctx) -> list[tuple]:
                 )
             )
     return out
+
+
+def _shortest(adj: dict, x: str, y: str, rank: dict) -> list:
+    """A path of fewest hops from x to y (empty when none), of several such the one the network's
+    canonical order takes first: never the order the plan writes its statements in."""
+    _, parent = bfs(adj, [x], None, rank)
+    if y not in parent:
+        return []
+    path = [y]
+    while parent[path[-1]] is not None:
+        path.append(parent[path[-1]])
+    return path[::-1]

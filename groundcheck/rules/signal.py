@@ -6,6 +6,7 @@ from __future__ import annotations
 import networkx as nx
 
 from ..model.kinds import shield_like
+from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from .catalogue import Finding
 from .context import AuditContext
 from .graph_search import bfs
@@ -112,7 +113,7 @@ def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
     worst = max(rs, key=lambda r: (r["input_db"], -r["frequency_hz"]))
     if worst["input_db"] <= FEEDBACK_NOTE_DB:
         return None
-    at_1k = next((r for r in rs if r["frequency_hz"] == 1000.0), worst)
+    at_1k = next((r for r in rs if at_signal_frequency(r["frequency_hz"])), worst)
     severity = "fault" if worst["input_db"] > FEEDBACK_LIMIT_DB else "note"
     move = _return_wire(s, cur)
     ch = cur.channel
@@ -130,7 +131,7 @@ def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
         "GC306",
         severity,
         f"the {ch} channel's own current {cur.name} ({cur.a} → {cur.b}) flows in the ground its "
-        f"input reads: {at_1k['db']:.1f} dB of the output fed back at 1 kHz "
+        f"input reads: {at_1k['db']:.1f} dB of the output fed back at {SIGNAL_FREQUENCY_TEXT} "
         f"({at_1k['input_db']:.1f} dB through its input stages; worst {worst['input_db']:.1f} dB "
         f"at {worst['frequency_hz']:g} Hz)",
         s.ctx.conductors[move[0]].location if move else cur.location,
@@ -164,6 +165,6 @@ def rule_ground_feedback(s: Solved) -> list[Finding]:
     rows: dict[str, list[dict]] = {}
     for row in s.hum.feedback:
         rows.setdefault(row["source"], []).append(row)
-    currents = {c.name: c for c in s.plan.currents}
+    currents = s.plan.index.currents
     found = (_feedback_finding(s, currents[name], rs) for name, rs in rows.items())
     return [f for f in found if f is not None]

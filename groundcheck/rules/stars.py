@@ -8,6 +8,7 @@ Pure functions of an :class:`~groundcheck.rules.context.AuditContext`, registere
 
 from __future__ import annotations
 
+from ..network.canonical import canonical_ranks
 from .catalogue import Finding
 from .context import AuditContext
 from .graph_search import bfs
@@ -69,7 +70,9 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
     its nearest star; a chain is a terminal whose path passes another terminal."""
     terminals = {t for t in ctx.signal_points if t in ctx.G and t not in ctx.chassis_side}
     star_names = {s.name for s in stars}
-    dist, parent = bfs(ctx.adj, sorted(star_names), allowed)
+    # a terminal as near to two stars, or to its star over two paths, takes the one first in the
+    # network's canonical order: never the order the statements are written in
+    dist, parent = bfs(ctx.adj, star_names, allowed, canonical_ranks(ctx.G))
     chains: dict[str, list[tuple[str, str]]] = {}
     supplies = supply_ends(ctx.plan)
     for t in sorted(terminals - star_names):
@@ -118,7 +121,8 @@ def _stars_through_other_placements(
     placed = [s for s in stars if groups.get(s.name)]
     if not own or not placed:
         return []
-    _, parent = bfs(ctx.adj, own, allowed)
+    rank = canonical_ranks(ctx.G)
+    _, parent = bfs(ctx.adj, own, allowed, rank)
     out = []
     for s in placed:
         if s.name not in parent:
@@ -138,10 +142,9 @@ def _stars_through_other_placements(
         )
         if via is None:
             continue
-        root, link = (
-            path[-1],
-            next((k for k in ctx.G[s.name].get(via, {}) if path[1] == via), None),
-        )
+        # of two conductors side by side to the other star, the first by rank
+        links = sorted(ctx.G[s.name].get(via, {}), key=rank.__getitem__) if path[1] == via else []
+        root, link = path[-1], (links[0] if links else None)
         out.append(
             Finding(
                 "GC103",

@@ -108,7 +108,7 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     pos = {p.name: p.pos for p in ctx.plan.points if p.pos is not None}
-    placed = {p.name: (p.group or "").split(".", 1)[0] for p in ctx.plan.points}
+    placed = ctx.plan.index.placement_of
     out = []
     for c in ctx.plan.conductors:
         if (
@@ -125,7 +125,7 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
         )
         # a cable between two pieces of equipment, or an umbilical's core between two boxes, runs
         # as it likes: only too short counts
-        slack = math.inf if placed.get(c.a) != placed.get(c.b) or c.bundle else LENGTH_SLACK
+        slack = math.inf if placed(c.a) != placed(c.b) or c.bundle else LENGTH_SLACK
         if route > 0 and (
             c.length < route * (1 - LENGTH_SHORT) or c.length > slack * route + 0.05
         ):

@@ -19,7 +19,7 @@ __all__ = ["rule_supply_voltage", "rule_isolating_secondary", "rule_transformer_
 
 
 def _feeds(plan) -> dict:
-    devices = {d.name: d for d in plan.devices}
+    devices = plan.index.devices
     return transformer_feeds(plan.transformers, plan.conductors, devices)
 
 
