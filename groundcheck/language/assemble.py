@@ -202,6 +202,7 @@ def _check_sources(groups, nodes, check) -> None:
         check(st.reference, refs.get("reference", st.location), "point", nodes)
     for r, refs, *_ in groups[Rectifier]:
         check(r.filter_point, refs.get("filter_point", r.location), "point", nodes)
+        check(r.regulator_point, refs.get("regulator_point", r.location), "point", nodes)
     for h, refs, *_ in groups[Heater]:
         for f in ("a", "b", "reference"):
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)

@@ -350,6 +350,7 @@ def prefixed(p: Plan, prefix: str) -> Plan:
                 b=pre(r.b),
                 channel=chan(r.channel),
                 filter_point=pre(r.filter_point),
+                regulator_point=pre(r.regulator_point),
             )
             for r in p.rectifiers
         ),

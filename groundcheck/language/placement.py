@@ -128,6 +128,7 @@ def _rewired(record, st, prefix: str, tf: Transform, res):
             b=res(record.b),
             channel=record.channel if explicit else channel,
             filter_point=res(record.filter_point),
+            regulator_point=res(record.regulator_point),
         )
     if isinstance(record, Current):
         ch = record.channel if explicit else channel

@@ -81,6 +81,8 @@ def supply_ends(plan) -> set[frozenset]:
         out.add(frozenset((r.a, r.b)))
         if r.filter_point:
             out |= {frozenset((r.filter_point, r.a)), frozenset((r.filter_point, r.b))}
+        if r.regulator_point:
+            out |= {frozenset((r.regulator_point, r.a)), frozenset((r.regulator_point, r.b))}
     return out
 
 
@@ -102,7 +104,7 @@ def supply_meetings(ctx) -> list[tuple]:
     H = nx.Graph((u, v) for u, v in ctx.G.edges() if not {u, v} & (stars | ctx.metals))
     out = []
     for r in ctx.plan.rectifiers:
-        for x, y in ((r.b, r.a), (r.filter_point, r.a)):
+        for x, y in ((r.b, r.a), (r.filter_point, r.a), (r.regulator_point, r.a)):
             if not x or x not in ctx.G or y not in ctx.G:
                 continue
             if x in H and y in H and nx.has_path(H, x, y):
