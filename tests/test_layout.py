@@ -104,7 +104,6 @@ STILL_TO_SPLIT_FUNCTIONS = {
     "renderers/html.py:spectrum_svg",
     "renderers/html.py:html_report",
     "renderers/spice.py:to_spice",
-    "renderers/text.py:_summary",
     "renderers/text.py:_hum_tables",
 }
 

@@ -32,6 +32,7 @@ from .interconnects import interconnect_inputs
 from .limits import LIMITS
 from .stage_inputs import stage_inputs
 from .transformer import place_transformers
+from .twisting import twisted_pairs
 
 __all__ = ["assemble", "HEADER_KEYWORDS"]
 
@@ -198,10 +199,23 @@ def _check_sources(groups, nodes, check) -> None:
         for r, refs, *_ in groups[group]:
             check(r.a, refs.get("a", r.location), "point", nodes)
             check(r.b, refs.get("b", r.location), "point", nodes)
+    rectifiers = {r.name for r, *_ in groups[Rectifier]}
     for st, refs, *_ in groups[Stage]:
         check(st.reference, refs.get("reference", st.location), "point", nodes)
+        if st.supply is not None and st.supply not in rectifiers | check.ld.broken:
+            close = difflib.get_close_matches(st.supply, list(rectifiers), n=1)
+            check.ld.errors.append(
+                PlanError(
+                    f"stage {st.name} is fed from {st.supply!r}, which is no rectifier",
+                    refs.get("supply", st.location),
+                    f"did you mean {close[0]!r}?"
+                    if close
+                    else "name a rectifier of the plan ('rectifier NAME: ...')",
+                )
+            )
     for r, refs, *_ in groups[Rectifier]:
         check(r.filter_point, refs.get("filter_point", r.location), "point", nodes)
+        check(r.regulator_point, refs.get("regulator_point", r.location), "point", nodes)
     for h, refs, *_ in groups[Heater]:
         for f in ("a", "b", "reference"):
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)
@@ -319,6 +333,10 @@ def assemble(built: list, file: str, ld) -> Plan:
     check = _Resolver(ld)
     _check_points(groups, metals, check, ld.errors)
     conductors = _measured(_conductors(groups, nodes, check), points, ld.errors)
+    twist_refs = {
+        c.name: refs["twisted_with"] for c, refs, *_ in groups[Conductor] if "twisted_with" in refs
+    }
+    conductors = twisted_pairs(conductors, twist_refs, ld.errors)
     _check_sources(groups, nodes, check)
     stages = stage_inputs(
         _own_references(groups[Stage], ld.errors),

@@ -40,6 +40,7 @@ CONDUCTOR_NAMED = (
     "shield-to",
     "in",
     "capacitance",
+    "twisted",
 )
 #: where an interconnect's shield end can land
 SHIELD_LANDINGS = ("chassis", "signal")
@@ -100,6 +101,9 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
         )
     elif word == "in":
         kw["bundle"] = r.word("the umbilical's name")
+    elif word == "twisted":
+        r.expect("with")
+        kw["twisted_with"] = r.word("the conductor it is twisted with")
     elif word == "capacitance":
         kw["capacitance"] = check_quantity(
             r.next("the capacitor (capacitance)"), "capacitance", "capacitance"
@@ -137,6 +141,14 @@ def conductor(stmt: Statement):
                     first.loc,
                     _HINTS[first.value],
                 )
+            if first.value == "twisted":
+                refs["twisted_with"] = first.loc
+                if row.impedance != "round":
+                    raise PlanError(
+                        f"only a round conductor can be twisted, not {_a(kind)}",
+                        first.loc,
+                        "twist wires or cores: 'wire NAME: A to B, 0.3 mm2, twisted with OTHER'",
+                    )
             _named(r, r.word(), kw, a, b)
         else:
             raise unknown(
@@ -195,7 +207,7 @@ def attribute_words(kind: str) -> tuple[str, ...]:
         words += (
             ["width", "thickness", "copper"] if row.impedance == "strip" else ["diameter", "AWG"]
         )
-        words += ["insulation"] if row.impedance == "round" else []
+        words += ["insulation", "twisted"] if row.impedance == "round" else []
     if row.hookup:
         words += ["separate", "in-cable"]
     if row.contact is not None or row.impedance == "strip":

@@ -318,6 +318,15 @@ def _moved_in(sub: Plan, tf: Transform, groups: dict, metals: dict, points: dict
         groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
 
 
+def _renamed(record, pre, chan, *names: str):
+    """The record with the named fields prefixed and its channel, if it has one, as ``chan``
+    gives it."""
+    kw = {f: pre(getattr(record, f)) for f in names}
+    if hasattr(record, "channel"):
+        kw["channel"] = chan(record.channel)
+    return replace(record, **kw)
+
+
 def prefixed(p: Plan, prefix: str) -> Plan:
     """A device plan with every name prefixed (channels too, so each device keeps its own); a
     channel named as the device itself keeps that name, once (a compressor ``comp`` whose own
@@ -339,38 +348,16 @@ def prefixed(p: Plan, prefix: str) -> Plan:
             for x in p.points
         ),
         conductors=tuple(
-            replace(c, name=pre(c.name), a=pre(c.a), b=pre(c.b), channel=chan(c.channel))
-            for c in p.conductors
+            _renamed(c, pre, chan, "name", "a", "b", "twisted_with") for c in p.conductors
         ),
         rectifiers=tuple(
-            replace(
-                r,
-                name=pre(r.name),
-                a=pre(r.a),
-                b=pre(r.b),
-                channel=chan(r.channel),
-                filter_point=pre(r.filter_point),
-            )
+            _renamed(r, pre, chan, "name", "a", "b", "filter_point", "regulator_point")
             for r in p.rectifiers
         ),
-        currents=tuple(
-            replace(r, name=pre(r.name), a=pre(r.a), b=pre(r.b), channel=chan(r.channel))
-            for r in p.currents
-        ),
-        heaters=tuple(
-            replace(h, name=pre(h.name), a=pre(h.a), b=pre(h.b), reference=pre(h.reference))
-            for h in p.heaters
-        ),
+        currents=tuple(_renamed(r, pre, chan, "name", "a", "b") for r in p.currents),
+        heaters=tuple(_renamed(h, pre, chan, "name", "a", "b", "reference") for h in p.heaters),
         stages=tuple(
-            replace(
-                s,
-                name=pre(s.name),
-                a=pre(s.a),
-                b=pre(s.b),
-                channel=chan(s.channel),
-                reference=pre(s.reference),
-                named=pre(s.named),
-            )
+            _renamed(s, pre, chan, "name", "a", "b", "reference", "named", "supply")
             for s in p.stages
         ),
         fields=tuple(replace(f, name=pre(f.name)) for f in p.fields),

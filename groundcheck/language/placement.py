@@ -119,6 +119,7 @@ def _rewired(record, st, prefix: str, tf: Transform, res):
             b=res(record.b),
             route=tuple(tf(p) for p in record.route),
             channel=record.channel if explicit else channel,
+            twisted_with=res(record.twisted_with),
         )
     if isinstance(record, Rectifier):
         return replace(
@@ -128,6 +129,7 @@ def _rewired(record, st, prefix: str, tf: Transform, res):
             b=res(record.b),
             channel=record.channel if explicit else channel,
             filter_point=res(record.filter_point),
+            regulator_point=res(record.regulator_point),
         )
     if isinstance(record, Current):
         ch = record.channel if explicit else channel
@@ -141,6 +143,7 @@ def _rewired(record, st, prefix: str, tf: Transform, res):
             a=res(record.a),
             b=res(record.b),
             reference=res(record.reference),
+            supply=res(record.supply),
             channel=record.channel if explicit else channel,
         )
     if isinstance(record, Heater):

@@ -62,6 +62,7 @@ def rectifier(stmt: Statement):
             "rectifier needs its load", stmt.loc, "e.g. ', load 60 mA' or ', load 4.7 kohm'"
         )
     _check_choke_input(reading)
+    _check_regulator(reading)
     _check_can_deliver(kw, stmt)
     return Rectifier(name=name, a=a, b=b, location=stmt.loc, **kw), reading.refs
 
@@ -168,6 +169,27 @@ def _filter(r: Reader, reading: _Reading) -> None:
         )
 
 
+def _regulator(r: Reader, reading: _Reading) -> None:
+    """'regulator series 300 V to REG_RET' or 'regulator shunt 150 V 10 kohm to REG_RET': a
+    regulator after the reservoir, its load's current returning through the named point."""
+    kw = reading.kw
+    r.word()
+    kw["regulator"] = r.word("the regulator's kind (series or shunt)", ("series", "shunt"))
+    kw["regulator_voltage"] = r.quantity("voltage", "regulated output")
+    if kw["regulator"] == "shunt":
+        kw["regulator_resistance"] = r.quantity("resistance", "shunt regulator's feed resistor")
+    r.expect("to")
+    kw["regulator_point"], reading.refs["regulator_point"] = r.name(
+        "the point the regulator's load current returns through"
+    )
+
+
+def _rejection(r: Reader, reading: _Reading) -> None:
+    """'rejection 60 dB': the regulator's ripple rejection."""
+    r.word()
+    reading.kw["regulator_rejection"] = r.quantity("level", "ripple rejection", allow_zero=True)
+
+
 #: the first word of each phrase after the ends, and its reader
 _PHRASES = {
     **dict.fromkeys(("full-wave", "bridge", "half-wave"), _topology),
@@ -177,6 +199,8 @@ _PHRASES = {
     "leakage": _leakage,
     "choke": _choke,
     "filter": _filter,
+    "regulator": _regulator,
+    "rejection": _rejection,
     "valve": _valve,
     **dict.fromkeys(_ONE_QUANTITY, _one_quantity),
     "diode": _diode,
@@ -195,6 +219,40 @@ def _check_choke_input(reading: _Reading) -> None:
             "with a choke input the choke's current changes over between the windings through "
             "their leakage, which this model leaves out: remove 'leakage' (the choke's "
             "inductance is usually tens of times larger)",
+        )
+
+
+def _check_regulator(reading: _Reading) -> None:
+    """A regulator follows the reservoir directly (not a filter section), a rejection belongs to a
+    regulator, and a shunt regulator's feed resistor must pass its load at the secondary's peak
+    (less the rectifiers' drop at most)."""
+    kw, places = reading.kw, reading.places
+    if "regulator_rejection" in kw and "regulator" not in kw:
+        raise PlanError(
+            "a ripple rejection belongs to a regulator",
+            places["rejection"],
+            "add the regulator, e.g. ', regulator series 300 V to reg_ret', or remove it",
+        )
+    if "regulator" not in kw:
+        return
+    if "filter_capacitance" in kw or "choke_inductance" in kw:
+        raise PlanError(
+            "a regulator is modelled straight after the reservoir, not after a filter section "
+            "or with an input choke",
+            places["regulator"],
+            "remove the filter (or the choke), or leave the regulator out",
+        )
+    load = kw.get("load_current")
+    if load is None:
+        load = kw["regulator_voltage"] / kw["load_resistance"]
+    needed = kw["regulator_voltage"] + load * kw.get("regulator_resistance", 0.0)
+    peak = 2**0.5 * kw.get("secondary", 250.0)
+    if needed >= peak:
+        raise PlanError(
+            f"the secondary's {peak:.4g} V peak cannot feed a {kw['regulator_voltage']:g} V "
+            f"regulator: it needs {needed:.4g} V at its load",
+            places["regulator"],
+            "check the regulated voltage, the feed resistor, the load and their units",
         )
 
 

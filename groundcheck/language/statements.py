@@ -160,10 +160,33 @@ def stage(stmt: Statement):
         elif first.kind == "word" and first.value == "reference":
             r.word()
             kw["reference"], refs["reference"] = r.name("the input's reference point")
+        elif first.kind == "word" and first.value in ("fed", "rejection"):
+            _stage_supply(r, kw, refs)
         else:
-            raise unknown(stmt, first, ("gain", "channel", "reference"))
+            raise unknown(stmt, first, ("gain", "channel", "reference", "fed", "rejection"))
         r.finish()
+    if "supply_rejection" in kw and "supply" not in kw:
+        raise PlanError(
+            "a stage's supply rejection needs its supply",
+            refs["supply_rejection"],
+            "say which rectifier feeds it, e.g. ', fed from hv, rejection 20 dB'",
+        )
     return Stage(name=name, a=a, b=b, location=stmt.loc, **kw), refs
+
+
+def _stage_supply(r: Reader, kw: dict, refs: Refs) -> None:
+    """'fed from NAME' (the rail rectifier NAME feeds its load from), 'fed from NAME reservoir'
+    (its reservoir), or 'rejection 20 dB' (the stage's supply rejection, referred to its input)."""
+    first = r.peek()
+    r.word()
+    if first.value == "rejection":
+        refs["supply_rejection"] = first.loc
+        kw["supply_rejection"] = r.quantity("level", "supply rejection", allow_zero=True)
+        return
+    r.expect("from")
+    kw["supply"], refs["supply"] = r.name("the rectifier that feeds the stage")
+    if not r.done:
+        kw["supply_tap"] = r.word("which rail (reservoir)", ("reservoir",))
 
 
 def field_source(stmt: Statement):

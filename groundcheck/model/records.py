@@ -143,6 +143,8 @@ class Conductor:
     shield_ends: tuple[str, str] | None = None
     bundle: str | None = None  # umbilical cores: the umbilical (multi-core cable) they run in
     length_computed: bool = False  # no length stated: taken along its ends' positions and route
+    #: round conductors: the conductor it is twisted with (the pair runs along one line)
+    twisted_with: str | None = None
 
     @property
     def connects(self) -> bool:

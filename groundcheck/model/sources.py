@@ -45,6 +45,13 @@ class Rectifier:
     filter_inductance: float = 0.0  # ... series inductance (a choke), H
     filter_capacitance: float | None = None  # ... its capacitor, F (None: no filter section)
     filter_point: str | None = None  # ... the point its capacitor's negative lands on
+    #: a regulator after the reservoir: series (a pass element passing the load current) or shunt
+    #: (a feed resistor into a shunt element holding the output); None: no regulator
+    regulator: str | None = None
+    regulator_voltage: float = 0.0  # its regulated output, V
+    regulator_resistance: float = 0.0  # a shunt regulator's feed resistor, Ω
+    regulator_point: str | None = None  # the point its load's (and shunt's) current returns by
+    regulator_rejection: float | None = None  # its ripple rejection, dB (None: the default)
 
 
 @dataclass(frozen=True)
@@ -95,6 +102,9 @@ class Stage:
     across: str | None = None
     reference: str | None = None  # the input's reference (its sleeve): stated or inferred
     named: str | None = None  # with a reference (then a): the first point written
+    supply: str | None = None  # the rectifier whose rail feeds it, when stated
+    supply_tap: str = "output"  # output: the rail its load is fed from; reservoir: the reservoir
+    supply_rejection: float = 0.0  # its supply rejection, dB, referred to its input
 
 
 @dataclass(frozen=True)

@@ -111,6 +111,8 @@ def attachments(plan) -> dict[str, tuple]:
         add(r.a, "rectifier", "a", figures)
         add(r.b, "rectifier", "b", figures)
         add(r.filter_point, "rectifier", "filter", figures)
+        if r.regulator_point is not None:
+            add(r.regulator_point, "rectifier", "regulator", figures)
     for h in plan.heaters:
         add(h.a, "heater", "a", h.current, h.ac)
         add(h.b, "heater", "b", h.current, h.ac)

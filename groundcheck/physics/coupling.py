@@ -248,6 +248,13 @@ def _unit_sources(plan) -> list[Source]:
         if r.filter_point is not None
     ]
     sources += [
+        Source(
+            f"{r.name}.regulator", "rectifier", r.regulator_point, r.a, unit, r.channel, r.location
+        )
+        for r in plan.rectifiers
+        if r.regulator_point is not None
+    ]
+    sources += [
         Source(c.name, "current", c.a, c.b, unit, c.channel, c.location)
         for c in plan.currents
         if c.role != SIGNAL

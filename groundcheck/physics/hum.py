@@ -50,6 +50,7 @@ from .hum_shares import source_part
 from .orient import fixed_fluxes, source_fluxes
 from .pickup import min_distance
 from .plate_paths import loop_passages
+from .supplyhum import coverage, supply_shares
 from .sweep import run_tasks
 
 __all__ = [
@@ -300,7 +301,10 @@ class HumBudget:
         for f, part in sorted(parts, key=lambda fp: fp[0]):
             merged.add(f, part)
         axes = field_pickup(self, merged)
+        supply_shares(self, merged)
         channels = {ch: merged.channel(ch, axes.get(ch, [])) for ch in self.channels}
+        for ch, hum in channels.items():
+            hum.covers = coverage(self, ch)
         if len(self.channels) > 1 and not self.signal_sources:
             self.notes.append(
                 "no signal currents ('current NAME: A to B, 2 mA, signal'): crosstalk not computed"

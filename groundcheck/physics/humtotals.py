@@ -41,6 +41,8 @@ class ChannelHum:
     # V}; the spectra a bench recording is fitted on (not in the JSON: the contributors' rows
     # summarise it)
     lines: dict = field(default_factory=dict)
+    # what the figure covers (:func:`groundcheck.physics.supplyhum.coverage`)
+    covers: dict = field(default_factory=dict)
 
     @property
     def total_dbv(self) -> float:
@@ -64,6 +66,7 @@ class ChannelHum:
             "spectrum": self.spectrum,
             "contributors": self.contributors,
             "field_axes": self.field_axes,
+            "covers": self.covers,
         }
 
 

@@ -28,12 +28,13 @@ analysis of nonlinear circuits with periodic inputs", Proc. IEEE 60(1), 1972
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from ..core.errors import PlanError, PlanErrors
 from ..model.records import Rectifier
+from .regulator import regulated, reservoir_load
 
 __all__ = ["RectifierResult", "simulate", "harmonic_phasors", "STEPS_PER_PERIOD"]
 
@@ -66,8 +67,13 @@ class RectifierResult:
     filter_current: np.ndarray | None = (
         None  # a filter section's capacitor current, out of its negative, A
     )
-    output_dc: float | None = None  # the filter section's output, V
+    output_dc: float | None = None  # the filter section's or the regulator's output, V
     output_ripple_pp: float | None = None
+    #: the voltage of the rail the load is fed from over the period (the filter's or the
+    #: regulator's output; None: the reservoir itself), V
+    rail: np.ndarray | None = None
+    #: a regulator's load (and shunt) current, returned through its point, A
+    return_current: np.ndarray | None = None
 
     def as_dict(self) -> dict:
         out = {
@@ -85,7 +91,17 @@ class RectifierResult:
                 output_ripple_pp_v=round(self.output_ripple_pp, 6),
                 filter_rms_current_a=round(float(np.sqrt(np.mean(self.filter_current**2))), 6),
             )
+        if self.return_current is not None:
+            out.update(
+                regulated_dc_v=round(self.output_dc, 4),
+                regulated_ripple_pp_v=round(self.output_ripple_pp, 9),
+                regulator_return_dc_a=round(float(self.return_current.mean()), 6),
+            )
         return out
+
+    def rail_voltage(self) -> np.ndarray:
+        """The voltage of the rail the load is fed from over the period, V."""
+        return self.voltage if self.rail is None else self.rail
 
 
 def _source(r: Rectifier, t: np.ndarray, f: float) -> np.ndarray:
@@ -150,8 +166,24 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
     if key not in _SOLVED:
         if len(_SOLVED) >= _SOLVED_MAX:
             _SOLVED.pop(next(iter(_SOLVED)))
-        result = _checked(r, _simulate(r, frequency))
-        for a in (result.t, result.current, result.voltage, result.filter_current):
+        result = _checked(r, _simulate(reservoir_load(r), frequency))
+        if r.regulator is not None:
+            rail, back = regulated(r, result.voltage)
+            result = replace(
+                result,
+                output_dc=float(rail.mean()),
+                output_ripple_pp=float(rail.max() - rail.min()),
+                rail=rail,
+                return_current=back,
+            )
+        for a in (
+            result.t,
+            result.current,
+            result.voltage,
+            result.filter_current,
+            result.rail,
+            result.return_current,
+        ):
             if a is not None:
                 a.flags.writeable = False  # shared between analyses: nobody may change it in place
         _SOLVED[key] = result
@@ -241,6 +273,7 @@ def _result(
         i_filter,
         None if out is None else float(out.mean()),
         None if out is None else float(out.max() - out.min()),
+        out,
     )
 
 

@@ -73,8 +73,8 @@ def plan_sources(
 
 
 def _rectifier_sources(plan, rectifier_results: dict, max_frequency: float) -> list[Source]:
-    """Each rectifier's charging current and its filter capacitor's ripple current (no DC), as
-    spectra of their simulated waveforms."""
+    """Each rectifier's charging current, its filter capacitor's ripple current (no DC) and its
+    regulator's returned current, as spectra of their simulated waveforms."""
     from .rectifier import harmonic_phasors
 
     f0 = plan.frequency
@@ -105,6 +105,21 @@ def _rectifier_sources(plan, rectifier_results: dict, max_frequency: float) -> l
                     r.filter_point,
                     r.a,
                     ripple,
+                    r.channel,
+                    r.location,
+                )
+            )
+        if res.return_current is not None and r.regulator_point is not None:
+            # the regulator's load current (a shunt one's whole feed current) leaves its point
+            # and returns to the reservoir's negative, its DC with it
+            back = spectrum(res.return_current, 0)
+            out.append(
+                Source(
+                    f"{r.name}.regulator",
+                    "rectifier",
+                    r.regulator_point,
+                    r.a,
+                    back,
                     r.channel,
                     r.location,
                 )

@@ -48,7 +48,9 @@ def same_figures(r: Rectifier) -> Rectifier:
     References:
         none (bookkeeping).
     """
-    return replace(r, name="rectifier", a="", b="", channel=None, filter_point=None)
+    return replace(
+        r, name="rectifier", a="", b="", channel=None, filter_point=None, regulator_point=None
+    )
 
 
 def rectifier_steps(r: Rectifier) -> int:

@@ -19,6 +19,7 @@ from ..physics.hearing import threshold_of_hearing
 from ..core.caution import CAUTION
 from ..core.units import format_si
 from .text import driver_words, figure_words
+from .coverage import coverage_words
 
 __all__ = ["html_report", "spectrum_svg", "chart_frame", "plan_line_html"]
 
@@ -217,6 +218,11 @@ def html_report(
                 f"class=num>{_f(h.margin_db, '{:+.1f} dB')}</td><td>{e(top)}</td></tr>"
             )
         parts.append("</table>")
+        parts += [
+            f'<p class="covers">{e(ch)}: this figure {e(coverage_words(h.covers))}.</p>'
+            for ch, h in result.hum.channels.items()
+            if h.covers
+        ]
     _findings_section(result, parts, physical_svg, topology_svg, renderer, lines or {})
     _hum_section(result, parts)
     _protective_section(result, parts)

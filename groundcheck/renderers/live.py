@@ -23,6 +23,7 @@ from ..rules.results import Result
 from .dot import element_class
 from .html import _hum_section, _inline_svg, _installation_section, _protective_section
 from .text import figure_words
+from .coverage import coverage_words
 
 __all__ = ["live_state", "error_state", "status_line", "main_hum_line"]
 
@@ -99,6 +100,11 @@ def _summary(result: Result, e=escape) -> str:
                 f"class=num>{margin}</td></tr>"
             )
         out.append("</table>")
+        out += [
+            f'<p class="covers">{e(ch)}: this figure {e(coverage_words(h.covers))}.</p>'
+            for ch, h in result.hum.channels.items()
+            if h.covers
+        ]
     return "".join(out)
 
 

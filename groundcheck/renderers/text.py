@@ -22,6 +22,7 @@ from ..core.units import db_of_ratio, dbv, format_si
 from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from ..rules.results import Result
 from ..rules.catalogue import SEVERITIES
+from .coverage import coverage_words
 from .fieldtable import field_axes_table
 
 __all__ = ["print_report", "text_report", "figure_words", "CAUTION"]
@@ -130,14 +131,8 @@ def _summary(result: Result, console: Console, caution: bool) -> None:
                 + (f" (margin {h.margin_db:+.1f} dB)" if h.margin_db is not None else "")
                 + _signed_words(h)
             )
-        if result.rectifiers:
-            console.print(
-                Text(
-                    "  (ground-borne hum only: a supply's ripple through the stages' own supply "
-                    "rejection is not in these figures; see the rectifier table)",
-                    style="dim",
-                )
-            )
+            if h.covers:
+                console.print(Text(f"  (this figure {coverage_words(h.covers)})", style="dim"))
     if caution:
         console.print(Text(CAUTION, style="bold yellow"))
     console.print()

@@ -171,6 +171,7 @@ def series_runs(ctx: AuditContext) -> dict[str, tuple[str, ...]]:
     plan, G, cond = ctx.plan, ctx.G, ctx.conductors
     fed = {e for x in (*plan.currents, *plan.rectifiers, *plan.heaters) for e in (x.a, x.b)}
     fed |= {r.filter_point for r in plan.rectifiers}
+    fed |= {r.regulator_point for r in plan.rectifiers}
     fed |= {e for st in plan.stages for e in (st.a, st.b, st.named)}
     read = {st.across for st in plan.stages}
     joined: dict[str, set[str]] = {}

@@ -83,6 +83,8 @@ def supply_ends(plan) -> set[frozenset]:
         out.add(frozenset((r.a, r.b)))
         if r.filter_point:
             out |= {frozenset((r.filter_point, r.a)), frozenset((r.filter_point, r.b))}
+        if r.regulator_point:
+            out |= {frozenset((r.regulator_point, r.a)), frozenset((r.regulator_point, r.b))}
     return out
 
 
@@ -105,7 +107,7 @@ def supply_meetings(ctx) -> list[tuple]:
     rank = canonical_ranks(ctx.G)
     out = []
     for r in ctx.plan.rectifiers:
-        for x, y in ((r.b, r.a), (r.filter_point, r.a)):
+        for x, y in ((r.b, r.a), (r.filter_point, r.a), (r.regulator_point, r.a)):
             if not x or x not in ctx.G or y not in ctx.G:
                 continue
             if x in H and y in H and nx.has_path(H, x, y):
