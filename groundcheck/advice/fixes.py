@@ -17,10 +17,21 @@ import re
 
 from ..rules.catalogue import RULES
 
-__all__ = ["identity", "advised_fixes", "advised_result", "NONE_ACCEPTED", "SHOWN_BY_SUGGEST"]
+__all__ = [
+    "identity",
+    "advised_fixes",
+    "advised_result",
+    "NONE_ACCEPTED",
+    "NOT_TRIED",
+    "SHOWN_BY_SUGGEST",
+]
 
 #: how a fix line begins when every change the advisor considered for the finding was rejected
 NONE_ACCEPTED = "no change accepted by the advisor"
+
+#: the reason given for a candidate the time budget left untried (suggest's --budget, check's
+#: --advice-budget)
+NOT_TRIED = "not tried: the time budget ran out"
 
 #: what follows an accepted change's title in a fix line
 SHOWN_BY_SUGGEST = " (groundcheck suggest shows the change and its predicted effect)"
@@ -75,9 +86,20 @@ def _fix(f, clearing_by_key: dict, rejected_by_code: dict) -> str:
                 seen.add(i)
                 tried.append((i, ev))
     tried = [ev for _, ev in sorted(tried, key=lambda t: t[0])]
-    if tried:
-        why = "; ".join(f"{ev.candidate.title}: {ev.rejected}" for ev in tried[:3])
-        return f"{NONE_ACCEPTED} — considered and rejected: {why}"
+    rejected = [ev for ev in tried if ev.rejected != NOT_TRIED]
+    untried = [ev.candidate.title for ev in tried if ev.rejected == NOT_TRIED]
+    later = (
+        f"not tried in the time allowed: {'; '.join(untried[:3])} (groundcheck suggest, or a "
+        "larger --advice-budget, tries them)"
+        if untried
+        else ""
+    )
+    if rejected:
+        why = "; ".join(f"{ev.candidate.title}: {ev.rejected}" for ev in rejected[:3])
+        tail = f"; {later}" if later else ""
+        return f"{NONE_ACCEPTED} — considered and rejected: {why}{tail}"
+    if untried:
+        return f"{NONE_ACCEPTED} — {later}"
     return f.fix
 
 

@@ -27,6 +27,7 @@ from .budget import Clock
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
 from .evaluation import HUM_FLOOR_DBV, Evaluation, evaluate
+from .fixes import NOT_TRIED
 
 __all__ = [
     "Edit",
@@ -47,9 +48,6 @@ __all__ = [
 
 MAX_STEPS = 8
 
-
-#: the reason given for a candidate the time budget left untried
-NOT_TRIED = "not tried: the time budget ran out (raise --budget to try it)"
 
 #: the share of the budget (counted from the command's start) that trying the candidates may use;
 #: the combined set has the rest
