@@ -105,9 +105,9 @@ def test_a_poorly_bonded_panel_gets_a_protective_wire_of_its_own(tmp_path):
     wire = next(c for c in new.conductors if c.name == "front_pe_bond")
     assert wire.role == "protective" and wire.area >= new.mains.line_area
     # its length: the straight line between its two new studs plus the stated 20 %, to the
-    # millimetre
+    # millimetre, and never under 100 mm (slack to take the panel off: common practice)
     a, b = new.point("case_bond").pos, new.point("front_pe").pos
-    assert wire.length == pytest.approx(round(math.dist(a, b) * 1.2, 3), abs=1e-3)
+    assert wire.length == pytest.approx(max(round(math.dist(a, b) * 1.2, 3), 0.1), abs=1e-3)
     assert new.point("case_bond").on == "case" and new.point("front_pe").on == "front"
     front = next(p for p in analyze(new).safety.parts if p.part == "front")
     assert front.path_resistance < 0.1  # the default limit, 0.1 ohm

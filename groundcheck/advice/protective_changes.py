@@ -25,10 +25,10 @@ from .edits import Edit
 __all__ = ["own_stud", "bonding_wire", "thicker"]
 
 
-def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] | None:
+def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float, float] | None:
     """A place for a new stud on ``part`` near ``near``: on the part, outside every other part's
     outline and every field source's footprint, and at least STUD_CLEARANCE from the part's other
-    points."""
+    points and from the places in ``avoid``."""
     metal = ctx.plan.metal(part)
     area = abs(metal.size[0] * metal.size[1]) if metal.size else math.inf
     # parts mounted on it (smaller than it: a transformer frame, a bracket); a cover or bottom
@@ -38,7 +38,7 @@ def _stud_position(ctx: ChangeContext, part: str, near) -> tuple[float, float] |
         for m in ctx.plan.metals
         if m.name != part and m.size is not None and abs(m.size[0] * m.size[1]) < area
     ]
-    taken = [p.pos for p in ctx.plan.points if p.pos is not None]
+    taken = [p.pos for p in ctx.plan.points if p.pos is not None] + [q for q in avoid if q]
     sources = [s.pos for s in ctx.plan.fields]
     for r in (20e-3, 30e-3, 40e-3, 60e-3):
         for k in range(8):
@@ -167,7 +167,9 @@ def _bond_ends(ctx: ChangeContext, home: str, landing, part: str):
     """The new bonding stud beside the protective earth's landing on ``home`` and the new stud on
     ``part`` nearest it, with their names; None when either finds no room."""
     metal = ctx.plan.metal(part)
-    start = _stud_position(ctx, home, landing.pos)
+    # not where the protective earth's own new stud would go (GC202's fix): both may be made
+    own = _stud_position(ctx, home, landing.pos)
+    start = _stud_position(ctx, home, landing.pos, avoid=(own,))
     (x0, y0), (w, h) = metal.origin, metal.size
     near = (min(max(landing.pos[0], x0), x0 + w), min(max(landing.pos[1], y0), y0 + h))
     end = _stud_position(ctx, part, near)
@@ -176,6 +178,12 @@ def _bond_ends(ctx: ChangeContext, home: str, landing, part: str):
     a = _free_name(ctx, (f"{home}_bond", f"{home}_bond2", f"{home}_bond3"))
     b = _free_name(ctx, (f"{part}_pe", f"{part}_pe2", f"{part}_pe3"))
     return start, end, a, b
+
+
+#: the shortest bonding lead to another part: long enough to take the part off for service with
+#: its lead still on (a plan is flat: a bottom plate drawn under the stud is still a deck's depth
+#: away; common practice)
+SERVICE_SLACK = 0.1
 
 
 def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
@@ -199,7 +207,7 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     start, end, a, b = ends
     area = max(lead.area or 0.0, ctx.plan.mains.line_area or 0.0) * 1e6
     area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
-    length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), 10e-3) * 1e3
+    length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), SERVICE_SLACK) * 1e3
     mm = [round(v * 1e3) for v in (*start, *end)]
     extra = (
         f"point {a}: stud, at {mm[0]},{mm[1]} on {home}",
