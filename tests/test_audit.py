@@ -346,3 +346,25 @@ def test_headphone_crosstalk_against_a_hand_calculation():
     assert rows[("left", "right", 1000.0)]["db"] == pytest.approx(
         20 * math.log10(volts / 2.0), abs=0.1
     )
+
+
+def test_a_floating_ground_that_holds_a_mains_fed_supply_is_a_fault_in_class_i():
+    # common practice: in class I equipment the secondary circuits' ground is bonded to the
+    # protective earth; floating with a rectifier's return on it, a winding fault leaves the
+    # supply, its outputs and sockets live (GC106's fault variant); without a supply on it, or in
+    # class II equipment, a warning
+    floating = BASE.replace("wire bond: star to gnd, 120 mm, 0.75 mm2, signal\n", "")
+    supply = (
+        "point ct: centre-tap\npoint res: cap\nwire ct_w: ct to res, 30 mm, 0.5 mm2, return\n"
+        "wire res_w: res to star, 60 mm, 0.75 mm2, return\n"
+        "rectifier hv: res to ct, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, "
+        "load 50 mA\n"
+    )
+
+    def gc106(text):
+        (f,) = [f for f in audit(plan(text))[0] if f.code == "GC106"]
+        return f
+
+    assert gc106(floating).severity == "warning"
+    f = gc106(floating + supply)
+    assert f.severity == "fault" and "the return of hv" in f.message

@@ -104,6 +104,7 @@ def test_the_entries_that_make_more_than_one_severity():
     assert several == {
         "GC101": {"warning", "note"},
         "GC102": {"fault", "note"},
+        "GC106": {"warning", "fault"},
         "GC206": {"danger", "note"},
         "GC208": {"danger", "note"},
         "GC211": {"danger", "warning"},

@@ -94,9 +94,12 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "A signal-ground network with no connection to the chassis or the protective earth at "
         "all.",
         "A floating signal ground picks up leakage and electrostatic noise and can float to a "
-        "dangerous voltage.",
+        "dangerous voltage. A fault when it holds a mains-fed supply's return in class I "
+        "equipment: an insulation fault in the transformer would leave the secondary circuits, "
+        "their sockets and speaker terminals live.",
         "Bond the signal star to the chassis at one place, near the protective-earth stud, "
         "directly or through a lift network.",
+        variants=("warning", "fault"),
     ),
     entry(
         "GC107",

@@ -67,12 +67,20 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
             )
         elif not places:
             first = min(ctx.loc(n) for n in comp)
+            supplies = _supplies_in(ctx, comp)
+            live = (
+                f"; it holds the return of {', '.join(supplies)}: the supply and everything on "
+                "its ground (output windings, speaker terminals, sockets) have no path to the "
+                "protective earth, so an insulation fault in the transformer would leave them live"
+                if supplies
+                else ""
+            )
             out.append(
                 Finding(
                     "GC106",
-                    "warning",
+                    "fault" if supplies else "warning",
                     f"signal ground {name} is floating: it reaches neither the chassis nor the "
-                    "protective earth",
+                    f"protective earth{live}",
                     first,
                     tuple(comp[:12]),
                     {"points": len(comp)},
@@ -114,6 +122,18 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
         if set(comp) & ctx.signal_points:
             out.append((comp, {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}))
     return out
+
+
+def _supplies_in(ctx: AuditContext, comp: list[str]) -> list[str]:
+    """The rectifiers of class I equipment whose return lies in the signal-ground network
+    ``comp``: a mains-fed supply that floats with it (common practice: in class I equipment the
+    secondary circuits' ground is bonded to the protective earth, directly or through a lift
+    network)."""
+    mains = ctx.plan.mains
+    if mains is None or mains.equipment_class != "I":
+        return []
+    points = set(comp)
+    return sorted(r.name for r in ctx.plan.rectifiers if {r.a, r.b} & points)
 
 
 def _fastenings(ctx: AuditContext, points: set[str]) -> dict[str, list[str]]:
