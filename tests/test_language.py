@@ -404,3 +404,25 @@ def test_mirror_x_flips_about_the_blocks_own_origin_then_moves_it():
     at = {pt.name: tuple(round(v * 1e3, 6) for v in pt.pos) for pt in p.points if pt.pos}
     assert at["one.a"] == (300, 10) and at["one.b"] == (200, 20)
     assert at["two.a"] == (0, 140) and at["two.b"] == (100, 130)
+
+
+@pytest.mark.parametrize(
+    "words,message",
+    [
+        ("choke 10 H 150 ohm", "a choke input is not modelled yet"),
+        ("negative", "a negative rail is not modelled yet"),
+    ],
+)
+def test_supplies_the_model_cannot_hold_yet_are_located_errors(words, message):
+    # the reader knows the words; the model does not: a located error with what to write
+    # instead, never an internal error
+    text = (
+        'plan "x"\nmains 230 V 50 Hz\npoint a: cap\npoint b: centre-tap\n'
+        "wire w: a to b, 10 mm, 1 mm2\n"
+        f"rectifier r: a to b, full-wave, secondary 250 V, winding 100 ohm, {words}, "
+        "reservoir 47 uF, load 50 mA\n"
+    )
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "x.gplan")
+    (err,) = e.value.errors
+    assert message in err.one_line() and (err.location.line, err.location.column) == (6, 67)

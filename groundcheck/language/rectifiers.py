@@ -72,9 +72,18 @@ def _topology(r: Reader, reading: _Reading) -> None:
 
 
 def _polarity(r: Reader, reading: _Reading) -> None:
-    """'negative': the rectifier makes a rail below its reservoir's ground end (the diodes turned
-    round), so its charging current flows the other way round the ground system."""
-    reading.kw["polarity"] = r.word()
+    """'positive' (the default); 'negative' (a rail below the reservoir's ground end) is read but
+    not modelled yet: refused where it is written, with what to write instead."""
+    it = r.peek()
+    if r.word() == "positive":
+        return  # the default
+    raise PlanError(
+        "a negative rail is not modelled yet",
+        it.loc,
+        "remove 'negative': its charging current is a positive rail's flowing the other way, so "
+        "written from its reservoir's ground end to the centre tap its hum figures are the same "
+        "size (their phase against the positive rail's is not)",
+    )
 
 
 def _diode(r: Reader, reading: _Reading) -> None:
@@ -114,12 +123,14 @@ def _leakage(r: Reader, reading: _Reading) -> None:
 def _choke(r: Reader, reading: _Reading) -> None:
     """'choke 10 H 150 ohm': a choke between the rectifiers and the reservoir (choke input), its
     winding's resistance optional."""
+    it = r.peek()
     r.word()
-    reading.kw["choke_inductance"] = r.quantity("inductance", "input choke")
-    if not r.done:
-        reading.kw["choke_resistance"] = r.quantity(
-            "resistance", "input choke's resistance", allow_zero=True
-        )
+    raise PlanError(
+        "a choke input is not modelled yet",
+        it.loc,
+        "write a small reservoir (say 'reservoir 0.1 uF') and the choke as a filter section "
+        "after it: 'filter 10 H 150 ohm 47 uF to FILT_NEG'",
+    )
 
 
 def _load(r: Reader, reading: _Reading) -> None:
