@@ -66,27 +66,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
                 )
             )
         elif not places:
-            first = min(ctx.loc(n) for n in comp)
-            supplies = _supplies_in(ctx, comp)
-            live = (
-                f"; it holds the return of {', '.join(supplies)}: the supply and everything on "
-                "its ground (output windings, speaker terminals, sockets) have no path to the "
-                "protective earth, so an insulation fault in the transformer would leave them live"
-                if supplies
-                else ""
-            )
-            out.append(
-                Finding(
-                    "GC106",
-                    "fault" if supplies else "warning",
-                    f"signal ground {name} is floating: it reaches neither the chassis nor the "
-                    f"protective earth{live}",
-                    first,
-                    tuple(comp[:12]),
-                    {"points": len(comp)},
-                    _floating_fix(ctx, comp),
-                )
-            )
+            out.append(_floating(ctx, comp, name))
     return out
 
 
@@ -122,6 +102,30 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
         if set(comp) & ctx.signal_points:
             out.append((comp, {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}))
     return out
+
+
+def _floating(ctx: AuditContext, comp: list[str], name: str) -> Finding:
+    """GC106: signal-ground network ``comp`` reaches neither the chassis nor the protective earth;
+    a fault when it holds a mains-fed supply's return in class I equipment."""
+    first = min(ctx.loc(n) for n in comp)
+    supplies = _supplies_in(ctx, comp)
+    live = (
+        f"; it holds the return of {', '.join(supplies)}: the supply and everything on "
+        "its ground (output windings, speaker terminals, sockets) have no path to the "
+        "protective earth, so an insulation fault in the transformer would leave them live"
+        if supplies
+        else ""
+    )
+    return Finding(
+        "GC106",
+        "fault" if supplies else "warning",
+        f"signal ground {name} is floating: it reaches neither the chassis nor the "
+        f"protective earth{live}",
+        first,
+        tuple(comp[:12]),
+        {"points": len(comp)},
+        _floating_fix(ctx, comp),
+    )
 
 
 def _supplies_in(ctx: AuditContext, comp: list[str]) -> list[str]:
