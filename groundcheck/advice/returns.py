@@ -45,14 +45,14 @@ def _socket_end(c, ctx: ChangeContext) -> str | None:
     return pt.name if pt is not None and pt.kind in SOCKET_KINDS else None
 
 
-def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str):
+def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str, reason: str):
     if ctx.points[point].kind == "terminal":
         return delete_change(
             ctx,
             name,
             f"remove {name}, the bond of {point} (0 V) to {metal} (not protective: the protective "
             f"earth does not run through it), to open the loop closed by {closed_by}",
-            "GC101",
+            reason,
             "remove",
         )
     return delete_change(
@@ -60,12 +60,12 @@ def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: 
         name,
         f"insulate {name}: {point} off {metal} (an insulated socket or shoulder washers), keeping "
         f"its wired return, to open the loop closed by {closed_by}",
-        "GC101",
+        reason,
         "insulate",
     )
 
 
-def insulate_candidates(ctx: ChangeContext, add) -> None:
+def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
     """Every non-protective fastening of a socket, jack, pot or terminal in a loop: insulate it
     from the metal (a terminal carrying 0 V: remove its bond to the case).  In a block the change
     is made once for every placement; in a device's own plan, in that plan."""
@@ -81,7 +81,7 @@ def insulate_candidates(ctx: ChangeContext, add) -> None:
             if point is not None:
                 seen.add(name)
                 metal = c.a if c.a in ctx.metals else c.b
-                add(_insulate(ctx, name, point, metal, lp.closed_by))
+                add(_insulate(ctx, name, point, metal, lp.closed_by, reason))
 
 
 def refused_balanced(ctx: ChangeContext, c) -> str:
