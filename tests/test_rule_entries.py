@@ -10,14 +10,22 @@ from __future__ import annotations
 
 import ast
 import dataclasses
+import re
+import types
 from pathlib import Path
 
 import pytest
 
-from groundcheck.advice.candidates import AFTER_FINDINGS, BEFORE_FINDINGS, FINDING_GENERATORS
+from groundcheck.advice.candidates import (
+    AFTER_FINDINGS,
+    BEFORE_FINDINGS,
+    FINDING_GENERATORS,
+    answer,
+)
 from groundcheck.advice.fixes import identity
 from groundcheck.core.errors import Location
 from groundcheck.rules.catalogue import IDENTITIES, RULES, SEVERITIES, Finding
+from groundcheck.rules.rule_entry import REFUSALS, entry
 from groundcheck.rules.rule_families import FAMILIES, PROTECTIVE_EARTH
 
 PACKAGE = Path(__file__).resolve().parent.parent / "groundcheck"
@@ -161,3 +169,82 @@ def test_identity_reads_the_entry():
     assert identity(f) == ("GC102", "rect", "v1")
     g = dataclasses.replace(f, code="GC101", severity="warning")
     assert identity(g) == ("GC101", "c1", "c2", "rect", "v1")
+
+
+#: string literals of groundcheck/advice/ that may name a rule code, with the reason each must
+#: remain (none today: the advisor reads every rule's repair actions and refusals from its entry)
+ADVICE_CODE_ALLOWED: dict[tuple[str, str], str] = {}
+
+_CODE = re.compile(r"GC\d")
+
+
+def _docstrings(tree: ast.AST) -> set[int]:
+    """The ids of the docstring constants of a module, its classes and functions."""
+    out = set()
+    for node in ast.walk(tree):
+        body = getattr(node, "body", None)
+        if isinstance(body, list) and body and isinstance(body[0], ast.Expr):
+            value = body[0].value
+            if isinstance(value, ast.Constant) and isinstance(value.value, str):
+                out.add(id(value))
+    return out
+
+
+def _code_literals(path: Path) -> list[str]:
+    """Every string literal of a module (docstrings aside) that names a rule code or a code's
+    prefix ('GC1', 'GC208')."""
+    tree = ast.parse(path.read_text(encoding="utf-8"))
+    docs = _docstrings(tree)
+    return [
+        node.value
+        for node in ast.walk(tree)
+        if isinstance(node, ast.Constant)
+        and isinstance(node.value, str)
+        and id(node) not in docs
+        and _CODE.search(node.value)
+    ]
+
+
+def test_the_scan_for_code_literals_finds_what_it_looks_for(tmp_path):
+    probe = tmp_path / "probe.py"
+    probe.write_text(
+        '"""GC101 in a docstring is prose."""\n'
+        "def f(x):\n"
+        '    """GC202: prose too."""\n'
+        '    return x.code in ("GC106", "GC109") or x.code.startswith("GC2")  # GC3 comment\n',
+        encoding="utf-8",
+    )
+    assert sorted(_code_literals(probe)) == ["GC106", "GC109", "GC2"]
+
+
+def test_the_advisor_names_no_rule_code():
+    # the advisor picks generators by the actions a finding's entry names and refuses changes by
+    # the refusals an entry names: no list of codes of its own, no test of a code's prefix
+    found = {
+        (path.name, value)
+        for path in sorted((PACKAGE / "advice").glob("*.py"))
+        for value in _code_literals(path)
+    }
+    assert found <= set(ADVICE_CODE_ALLOWED), sorted(found - set(ADVICE_CODE_ALLOWED))
+
+
+def test_every_refusal_an_entry_names_is_one_the_advisor_raises():
+    named = {r for rule in RULES.values() for r in rule.refusals}
+    assert named == set(REFUSALS)
+    unconnected = {c for c, r in RULES.items() if "unconnected" in r.refusals}
+    assert unconnected == {"GC106", "GC109", "GC401"}
+    assert [c for c, r in RULES.items() if "through-star" in r.refusals] == ["GC103"]
+    with pytest.raises(ValueError, match="refusals"):
+        entry("GC999", "x", FAMILIES[0], "note", "c", "w", "f", refusals=("lift-the-earth",))
+
+
+def test_answer_takes_the_rules_naming_an_action_in_the_catalogues_order():
+    loc = Location("plan.gplan", 1, 1)
+    note = Finding("GC221", "note", "m", loc, ("mains",))
+    danger = Finding("GC208", "danger", "m", loc, ("mains",))
+    result = types.SimpleNamespace(findings=[note, danger])
+    a = answer(result, "rcd-at-socket")
+    assert a.codes == ("GC208", "GC221") and a.findings == (note, danger)
+    assert a.reason == "GC208"
+    assert answer(types.SimpleNamespace(findings=[note]), "rcd-at-socket").reason == "GC221"
+    assert answer(types.SimpleNamespace(findings=[]), "open-loop").reason == "GC101"

@@ -20,8 +20,8 @@ from __future__ import annotations
 from ..model.records import Plan
 from ..rules.catalogue import RULES
 from ..rules.results import Result
-from .changes import Candidate, ChangeContext, device_note
-from .installation_changes import installation_candidates, shield_to_chassis
+from .changes import Answer, Candidate, ChangeContext, device_note
+from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
 from .loop_changes import loop_candidates, second_bond, terminate_shield
 from .protective_changes import bonding_wire, own_stud, thicker
 from .routing_changes import (
@@ -30,9 +30,16 @@ from .routing_changes import (
     shared_return_candidates,
     star_candidates,
 )
-from .supply_changes import supply_candidates
+from .supply_changes import socket_rcd, tt_electrode
 
-__all__ = ["Candidate", "candidates", "FINDING_GENERATORS", "BEFORE_FINDINGS", "AFTER_FINDINGS"]
+__all__ = [
+    "Candidate",
+    "candidates",
+    "answer",
+    "FINDING_GENERATORS",
+    "BEFORE_FINDINGS",
+    "AFTER_FINDINGS",
+]
 
 
 def _finding_candidates(ctx: ChangeContext, add) -> None:
@@ -58,13 +65,23 @@ FINDING_GENERATORS = {
 }
 
 #: the generators of actions answered over the whole result (each loop of the loop list, each
-#: coupling row, the installation), called once: those before the findings' own, and after
+#: coupling row, the installation), called once with (context, :class:`Answer`, add): those
+#: before the findings' own, and after
 BEFORE_FINDINGS = {"open-loop": loop_candidates, "own-return": shared_return_candidates}
 AFTER_FINDINGS = {
     "between-devices": installation_candidates,
-    "installation-side": supply_candidates,
+    "earthed-outlet": earthed_outlets,
+    "rcd-at-socket": socket_rcd,
+    "tt-electrode": tt_electrode,
     "own-crosstalk-return": crosstalk_candidates,
 }
+
+
+def answer(result: Result, action: str) -> Answer:
+    """The rules whose entries name ``action`` (catalogue order) and their findings in
+    ``result``."""
+    codes = tuple(code for code, rule in RULES.items() if action in rule.actions)
+    return Answer(codes, tuple(f for f in result.findings if f.code in codes))
 
 
 def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
@@ -79,10 +96,10 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
             seen.add(c.edits)
             out.append(device_note(c, plan.file))
 
-    # a shared return's join before the star's: the same join answers GC102 first
-    for generate in BEFORE_FINDINGS.values():
-        generate(ctx, add)
+    # a shared return's join before the star's: the same join answers the shared return first
+    for action, generate in BEFORE_FINDINGS.items():
+        generate(ctx, answer(result, action), add)
     _finding_candidates(ctx, add)
-    for generate in AFTER_FINDINGS.values():
-        generate(ctx, add)
+    for action, generate in AFTER_FINDINGS.items():
+        generate(ctx, answer(result, action), add)
     return out

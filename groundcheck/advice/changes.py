@@ -18,6 +18,7 @@ from ..rules.results import Result
 from .edits import Edit, PlanTexts, shown_path
 
 __all__ = [
+    "Answer",
     "Candidate",
     "ChangeContext",
     "STUD_CLEARANCE",
@@ -87,6 +88,23 @@ class Candidate:
     action: str = ""  # what it does, in one word of :data:`ACTIONS`
     element: str = ""  # the element it changes (model name), or the one it answers
     refused: str = ""  # why it is considered, never tried (bought equipment, say)
+
+
+@dataclass(frozen=True)
+class Answer:
+    """What a generator of a repair action answers over the whole result: the rules whose
+    catalogue entries name the action (their codes, in the catalogue's order) and the result's
+    findings of those rules."""
+
+    codes: tuple[str, ...]
+    findings: tuple = ()
+
+    @property
+    def reason(self) -> str:
+        """The rule its candidates answer: the first (in the catalogue's order) with a finding,
+        else the first."""
+        found = {f.code for f in self.findings}
+        return next((c for c in self.codes if c in found), self.codes[0])
 
 
 class ChangeContext:

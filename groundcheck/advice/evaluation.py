@@ -177,7 +177,7 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
     # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the
     # signal ground
     if any(
-        k1[k].code in ("GC106", "GC109", "GC401")
+        "unconnected" in RULES[k1[k].code].refusals
         and not (cand.moves_plug and set(k1[k].elements) <= outlets)
         for k in new
     ):
@@ -239,7 +239,7 @@ def _through_star(cand: Candidate, after: Result) -> bool:
         return False
     c = next((c for c in after.plan.conductors if c.name == cand.element), None)
     return c is not None and any(
-        f.code == "GC103"
+        "through-star" in RULES[f.code].refusals
         and f.actions
         and f.actions[0][0] == "join"
         and {c.a, c.b} <= set(f.elements)

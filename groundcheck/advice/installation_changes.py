@@ -12,27 +12,27 @@ from ..model.installation import rated_voltage, shield_ends, suits, supply_at, t
 from ..model.records import Plan
 from ..rules.pe_figures import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
-from .changes import Candidate, ChangeContext, squeeze
+from .changes import Answer, Candidate, ChangeContext, squeeze
 from .edits import Edit
 from .returns import refuse, refused_balanced
 
-__all__ = ["installation_candidates", "shield_to_chassis"]
+__all__ = ["installation_candidates", "earthed_outlets", "shield_to_chassis"]
 
 
-def installation_candidates(ctx: ChangeContext, add) -> None:
-    """Every installation candidate of the plan, passed to ``add``.
+def installation_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
+    """The candidates between devices for loops through their interconnects, passed to ``add``.
 
     Parameters:
         ctx: the change context.
+        answer: the rules naming the action (their code is the candidates' reason).
         add: takes a candidate (or None).
     Returns:
         nothing (the candidates go to ``add``).
     References:
         common practice (the candidates' titles say what each does).
     """
-    _link_candidates(ctx, add)
-    _replug_candidates(ctx, add)
-    _earthed_outlet_candidates(ctx, add)
+    _link_candidates(ctx, answer.reason, add)
+    _replug_candidates(ctx, answer.reason, add)
 
 
 def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
@@ -55,7 +55,7 @@ def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
     return names
 
 
-def _link_candidates(ctx: ChangeContext, add) -> None:
+def _link_candidates(ctx: ChangeContext, reason: str, add) -> None:
     """Between pieces of equipment: a balanced interconnect, or a lift network on a device's signal
     side."""
     for name in sorted(_installation_interconnects(ctx.plan, ctx.result)):
@@ -70,7 +70,7 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
                 refuse(
                     Candidate(
                         f"use a balanced interconnect for {name}",
-                        "GC101",
+                        reason,
                         (edit,),
                         action="balance",
                         element=name,
@@ -99,7 +99,7 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
             lift = Candidate(
                 f"give {dev} a ground-lift network between its signal ground and chassis (never "
                 "the protective earth)",
-                "GC101",
+                reason,
                 (edit,),
                 action="device-lift",
                 element=dev,
@@ -113,7 +113,7 @@ def _link_candidates(ctx: ChangeContext, add) -> None:
             )
 
 
-def _replug_candidates(ctx: ChangeContext, add) -> None:
+def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
     """An interconnect in a loop through two outlets' earths: plug either device in where the other
     is (one outlet or strip for both), so that the loop no longer runs through the building's
     protective wiring."""
@@ -142,7 +142,7 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
                         f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for "
                         f"both, within its current rating: the loop of {name} no longer runs "
                         "through the building's earth wiring)",
-                        "GC101",
+                        reason,
                         (ctx.src.replace(st, [(ph[1], there)]),),
                         moves_plug=True,
                         action="replug",
@@ -151,11 +151,11 @@ def _replug_candidates(ctx: ChangeContext, add) -> None:
                 )
 
 
-def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
-    """GC215: a device whose earth pin does not reach the main earthing terminal (or only through a
-    high resistance): plug it in where a device with a sound earth path is plugged, its
-    interconnects' other devices first.  The broken path still needs repair; this takes the device
-    off it."""
+def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
+    """A device whose earth pin does not reach the main earthing terminal (or only through a
+    high resistance; the findings of ``answer``, GC215's): plug it in where a device with a sound
+    earth path is plugged, its interconnects' other devices first.  The broken path still needs
+    repair; this takes the device off it."""
     earths = ctx.result.device_earths or ()
     devices = {d.name: d for d in ctx.plan.devices}
     fits = _fits(ctx.plan)
@@ -167,8 +167,8 @@ def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
         and e.device in devices
         and devices[e.device].plugged
     ]
-    for f in ctx.result.findings:
-        if f.code != "GC215" or f.elements[0] not in devices:
+    for f in answer.findings:
+        if f.elements[0] not in devices:
             continue
         dev = devices[f.elements[0]]
         mates = [
@@ -188,7 +188,7 @@ def _earthed_outlet_candidates(ctx: ChangeContext, add) -> None:
                         f"plug {dev.name} in at {there}, whose earth path is sound (and have the "
                         f"protective connection of {dev.plugged} repaired before anything is "
                         "plugged into it)",
-                        "GC215",
+                        f.code,
                         (ctx.src.replace(st, [(ph[1], there)]),),
                         moves_plug=True,
                         action="replug",
@@ -243,7 +243,7 @@ def shield_to_chassis(ctx: ChangeContext, f):
     cand = Candidate(
         f"land the shield of {name} on the chassis where it enters, not on the signal ground at "
         f"{end}",
-        "GC113",
+        f.code,
         (edit,),
         action="shield-to-chassis",
         element=name,

@@ -6,15 +6,18 @@ terminated at the end its rule keeps instead, never removed."""
 from __future__ import annotations
 
 from ..model.kinds import is_fastening, is_hookup, joins_devices, shield_like
-from .changes import Candidate, ChangeContext, delete_change, local_name, rephrase
+from .changes import Answer, Candidate, ChangeContext, delete_change, local_name, rephrase
 from .edits import Edit
 from .returns import insulate_candidates
 
 __all__ = ["loop_candidates", "terminate_shield", "second_bond"]
 
 
-def loop_candidates(ctx: ChangeContext, add) -> None:
-    insulate_candidates(ctx, add)  # a fastened socket first: the same edit keeps its words
+def loop_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
+    """Each listed loop opened where its opener says (a fastened socket insulated first), passed
+    to ``add``; the candidates answer ``answer``'s rule."""
+    reason = answer.reason
+    insulate_candidates(ctx, reason, add)  # a fastened socket first: the same edit keeps its words
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure" or not lp.open_at:
             continue
@@ -28,7 +31,7 @@ def loop_candidates(ctx: ChangeContext, add) -> None:
                     lp.open_at,
                     f"insulate {lp.open_at} from the metal (insulated socket or shoulder washers) "
                     f"to open the loop closed by {lp.closed_by}",
-                    "GC101",
+                    reason,
                     "insulate",
                 )
             )
@@ -38,7 +41,7 @@ def loop_candidates(ctx: ChangeContext, add) -> None:
                     ctx,
                     lp.open_at,
                     f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
-                    "GC101",
+                    reason,
                 )
             )
         st = ctx.statement(c)
@@ -56,7 +59,7 @@ def loop_candidates(ctx: ChangeContext, add) -> None:
                 add(
                     Candidate(
                         f"replace {lp.open_at} by a lift network (10 Ω ∥ 47 nF)",
-                        "GC101",
+                        reason,
                         (edit,),
                         ctx.protective(c),
                         action="lift-network",

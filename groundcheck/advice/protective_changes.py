@@ -118,7 +118,7 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
         f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, "
         f"clear of other parts and fastenings): {pe.name}'s end moves there, its section and "
         "comment kept",
-        "GC202",
+        f.code,
         (edit,),
         touches_protective=False,
         action="own-stud",
@@ -264,7 +264,7 @@ def thicker(ctx: ChangeContext, f) -> Candidate | None:
     return Candidate(
         f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
         f"protective conductor {c.name}",
-        "GC204",
+        f.code,
         (edit,),
         touches_protective=False,
         action="thicken",

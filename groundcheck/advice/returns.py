@@ -45,14 +45,14 @@ def _socket_end(c, ctx: ChangeContext) -> str | None:
     return pt.name if pt is not None and pt.kind in SOCKET_KINDS else None
 
 
-def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str):
+def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str, reason: str):
     if ctx.points[point].kind == "terminal":
         return delete_change(
             ctx,
             name,
             f"remove {name}, the bond of {point} (0 V) to {metal} (not protective: the protective "
             f"earth does not run through it), to open the loop closed by {closed_by}",
-            "GC101",
+            reason,
             "remove",
         )
     return delete_change(
@@ -60,12 +60,12 @@ def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: 
         name,
         f"insulate {name}: {point} off {metal} (an insulated socket or shoulder washers), keeping "
         f"its wired return, to open the loop closed by {closed_by}",
-        "GC101",
+        reason,
         "insulate",
     )
 
 
-def insulate_candidates(ctx: ChangeContext, add) -> None:
+def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
     """Every non-protective fastening of a socket, jack, pot or terminal in a loop: insulate it
     from the metal (a terminal carrying 0 V: remove its bond to the case).  In a block the change
     is made once for every placement; in a device's own plan, in that plan."""
@@ -81,15 +81,15 @@ def insulate_candidates(ctx: ChangeContext, add) -> None:
             if point is not None:
                 seen.add(name)
                 metal = c.a if c.a in ctx.metals else c.b
-                one = _insulate(ctx, name, point, metal, lp.closed_by)
+                one = _insulate(ctx, name, point, metal, lp.closed_by, reason)
                 add(one)
                 if one is not None and one.action == "insulate":
                     panels.setdefault(metal, []).append((point, one))
     for metal, held in panels.items():
-        add(_insulate_all(metal, held))
+        add(_insulate_all(metal, held, reason))
 
 
-def _insulate_all(metal: str, held: list) -> Candidate | None:
+def _insulate_all(metal: str, held: list, reason: str) -> Candidate | None:
     """Every socket in a loop that ``metal`` holds, insulated at once: a panel of sockets bonded
     at each is one change for a builder (common practice), and insulating one alone can move the
     loop's current onto the others."""
@@ -100,7 +100,7 @@ def _insulate_all(metal: str, held: list) -> Candidate | None:
     return Candidate(
         f"insulate every socket on {metal} that closes a loop ({points}): each off {metal} (an "
         "insulated socket or shoulder washers), keeping its wired return",
-        "GC101",
+        reason,
         tuple(edits[n] for n in sorted(edits)),
         action="insulate",
         element=held[0][1].element,

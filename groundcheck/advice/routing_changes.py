@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from ..model.kinds import SIGNAL, is_fastening, shield_like
 from ..rules.catalogue import RULES
-from .changes import ChangeContext, delete_change, reroute
+from .changes import Answer, ChangeContext, delete_change, reroute
 
 __all__ = [
     "carried_actions",
@@ -103,7 +103,7 @@ def _fastened(ctx: ChangeContext, point: str) -> bool:
     return any(point in (c.a, c.b) and is_fastening(c, ctx.metals) for c in ctx.at(point))
 
 
-def _join_ends(ctx: ChangeContext, row, add) -> None:
+def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
     """A rectifier's return (its charging current, or its filter capacitor's ripple current) whose
     two ends are not joined by a conductor of their own: move the far end of a conductor leaving
     one end onto the other, so that the current circulates between them alone (common practice:
@@ -133,20 +133,20 @@ def _join_ends(ctx: ChangeContext, row, add) -> None:
                         end,
                         f"join {other} straight to {end} ({d.name}), so the {row.source} current "
                         f"stays between them and leaves {', '.join(row.shared)}",
-                        "GC102",
+                        reason,
                         "join",
                     )
                 )
 
 
-def shared_return_candidates(ctx: ChangeContext, add) -> None:
+def shared_return_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
     """Shared returns: join the rectifier's ends directly, and re-route the stage's reference to
     the star.  Each row names its source's two ends (a rectifier's, its filter's, or a stated
-    current's)."""
-    plan = ctx.plan
+    current's); the candidates answer ``answer``'s rule."""
+    plan, reason = ctx.plan, answer.reason
     for row in ctx.result.coupling:
         if row.kind == "rectifier":
-            _join_ends(ctx, row, add)
+            _join_ends(ctx, row, reason, add)
         stage = next((s for s in plan.stages if s.name == row.stage), None)
         if row.kind not in ("rectifier", "current") or stage is None:
             continue
@@ -168,7 +168,7 @@ def shared_return_candidates(ctx: ChangeContext, add) -> None:
                                     end,
                                     f"join {other} straight to {end} ({d.name}), so the "
                                     f"{row.source} current leaves {shared}",
-                                    "GC102",
+                                    reason,
                                     "join",
                                 )
                             )
@@ -185,17 +185,17 @@ def shared_return_candidates(ctx: ChangeContext, add) -> None:
                                     far,
                                     star,
                                     f"take {p} to {star} by its own wire ({d.name})",
-                                    "GC102",
+                                    reason,
                                 )
                             )
 
 
-def crosstalk_candidates(ctx: ChangeContext, add) -> None:
-    """GC304: a channel's signal return (its stated load current) that crosses another channel's
+def crosstalk_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
+    """A channel's signal return (its stated load current) that crosses another channel's
     reference: the wire leaving the return's far end is taken straight to where the current goes
     (its star), so the return no longer runs along the other channel's ground (common practice:
     each channel's load return to the star on a wire of its own)."""
-    talkers = {f.elements[0] for f in ctx.result.findings if f.code == "GC304" and f.elements}
+    talkers = {f.elements[0] for f in answer.findings if f.elements}
     for cur in ctx.plan.currents:
         if cur.role != SIGNAL or cur.channel not in talkers:
             continue
@@ -215,6 +215,6 @@ def crosstalk_candidates(ctx: ChangeContext, add) -> None:
                             goal,
                             f"take {cur.a} to {goal} by its own wire ({d.name}), so the "
                             f"{cur.channel} channel's return leaves the other channel's ground",
-                            "GC304",
+                            answer.reason,
                         )
                     )

@@ -14,10 +14,11 @@ from __future__ import annotations
 import math
 
 from ..physics.safety import TOUCH_LIMIT
-from .changes import Candidate, ChangeContext
+from ..rules.catalogue import RULES
+from .changes import Answer, Candidate, ChangeContext
 from .edits import Edit
 
-__all__ = ["supply_candidates", "RCD_RATINGS", "SOCKET_RCD", "electrode_target"]
+__all__ = ["socket_rcd", "tt_electrode", "RCD_RATINGS", "SOCKET_RCD", "electrode_target"]
 
 #: rated residual operating currents IΔn of general-type RCDs, A (IEC 61008-1's preferred values,
 #: from memory)
@@ -70,57 +71,71 @@ def _rcd(ctx: ChangeContext, st, rating: float, reason: str, why: str) -> Candid
     )
 
 
-def supply_candidates(ctx: ChangeContext, add) -> None:
-    """The installation-side candidates for the plan's GC208, GC220 and GC221 findings, passed to
-    ``add``.
+def _mains_statement(ctx: ChangeContext):
+    """The plan's own mains statement (None when the plan states none, or a device's plan does)."""
+    m = ctx.plan.mains
+    if m is None or m.location.file != ctx.plan.file:
+        return None
+    return ctx.src.statement(m.location.line)
+
+
+def socket_rcd(ctx: ChangeContext, answer: Answer, add) -> None:
+    """A fault not disconnected in time, or a TT supply protected by a fuse or breaker alone (the
+    findings of ``answer``, at their rules' own severity): the supply circuit protected by a
+    socket-outlet circuit's RCD, passed to ``add``.
 
     Parameters:
         ctx: the change context.
+        answer: the rules naming the action and their findings.
         add: takes a candidate.
     Returns:
         nothing (the candidates go to ``add``).
     References:
-        IEC 60364-4-41 411.3.3 and 411.5.3 (from memory); the ratings of :data:`RCD_RATINGS`.
+        IEC 60364-4-41 411.3.3 and 411.5.2 (from memory); :data:`SOCKET_RCD`.
     """
-    m = ctx.plan.mains
-    if m is None or m.location.file != ctx.plan.file:
+    # a finding at its rule's own severity: a disconnection-time note only says that no
+    # protective device is stated
+    found = tuple(f for f in answer.findings if f.severity == RULES[f.code].severity)
+    m, st = ctx.plan.mains, _mains_statement(ctx)
+    if st is None or not found or (m.rcd is not None and m.rcd <= SOCKET_RCD):
         return
-    st = ctx.src.statement(m.location.line)
-    codes = {
-        f.code
-        for f in ctx.result.findings
-        if f.code in ("GC208", "GC220", "GC221") and (f.code != "GC208" or f.severity == "danger")
-    }
-    if st is None or not codes:
+    why = "it disconnects a fault to the metal within the time allowed, whatever the fault loop"
+    add(_rcd(ctx, st, SOCKET_RCD, Answer(answer.codes, found).reason, why))
+
+
+def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
+    """A TT supply whose electrode times the RCD's rating exceeds the touch-voltage limit (the
+    findings of ``answer``): a more sensitive RCD, and the electrode improved to a target, passed
+    to ``add``.
+
+    Parameters:
+        ctx: the change context.
+        answer: the rules naming the action and their findings.
+        add: takes a candidate.
+    Returns:
+        nothing (the candidates go to ``add``).
+    References:
+        IEC 60364-4-41 411.5.3 (from memory); the ratings of :data:`RCD_RATINGS`.
+    """
+    m, st = ctx.plan.mains, _mains_statement(ctx)
+    if st is None or not answer.findings or m.rcd is None:
         return
-    if ("GC208" in codes or "GC221" in codes) and (m.rcd is None or m.rcd > SOCKET_RCD):
-        reason = "GC208" if "GC208" in codes else "GC221"
+    r_a = ctx.result.safety.supply.electrode if ctx.result.safety is not None else None
+    finer = [r for r in RCD_RATINGS if r < m.rcd and (r_a is None or r_a * r <= TOUCH_LIMIT)]
+    if finer:
+        why = f"electrode × rating within {TOUCH_LIMIT:g} V"
+        add(_rcd(ctx, st, finer[-1], answer.reason, why))
+    target = electrode_target(m.rcd)
+    if r_a is None or target < r_a:
         add(
-            _rcd(
-                ctx,
-                st,
-                SOCKET_RCD,
-                reason,
-                "it disconnects a fault to the metal within the time allowed, whatever the fault "
-                "loop",
+            Candidate(
+                "have the installation's earth electrode measured and improved to at most "
+                f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
+                f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states 'electrode "
+                f"{target:g} ohm'",
+                answer.reason,
+                (_set(ctx, st, "electrode", f"{target:g} ohm"),),
+                action="electrode",
+                element="mains",
             )
         )
-    if "GC220" in codes and m.rcd is not None:
-        r_a = ctx.result.safety.supply.electrode if ctx.result.safety is not None else None
-        finer = [r for r in RCD_RATINGS if r < m.rcd and (r_a is None or r_a * r <= TOUCH_LIMIT)]
-        if finer:
-            add(_rcd(ctx, st, finer[-1], "GC220", f"electrode × rating within {TOUCH_LIMIT:g} V"))
-        target = electrode_target(m.rcd)
-        if r_a is None or target < r_a:
-            add(
-                Candidate(
-                    "have the installation's earth electrode measured and improved to at most "
-                    f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
-                    f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states 'electrode "
-                    f"{target:g} ohm'",
-                    "GC220",
-                    (_set(ctx, st, "electrode", f"{target:g} ohm"),),
-                    action="electrode",
-                    element="mains",
-                )
-            )

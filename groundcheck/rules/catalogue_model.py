@@ -24,6 +24,7 @@ MODEL_ENTRIES: list[Rule] = [
         "Figures between points of different parts are undefined; usually a wire is missing "
         "from the plan.",
         "Connect the island, or confirm it is meant to float.",
+        refusals=("unconnected",),
     ),
     entry(
         "GC402",

@@ -124,7 +124,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "IEC 60364-4-41 Table 41.1; IEC 60127-2, IEC 60898-1 and IEC 61008-1 time-current limits "
         "(from memory)",
         variants=("danger", "note"),
-        actions=("installation-side",),
+        actions=("rcd-at-socket",),
     ),
     entry(
         "GC209",
@@ -224,7 +224,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "Plug the device into an earthed outlet and repair the broken protective connection named "
         "in the finding.",
         "IEC 60364-6 (continuity of protective conductors), from memory",
-        actions=("between-devices",),
+        actions=("earthed-outlet",),
     ),
     entry(
         "GC216",
@@ -311,7 +311,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "Improve the earth electrode (a qualified electrician measures and repairs it), or use a "
         "more sensitive RCD.",
         "IEC 60364-4-41 411.5.3 (R_A × IΔn ≤ 50 V), from memory",
-        actions=("installation-side",),
+        actions=("tt-electrode",),
     ),
     entry(
         "GC221",
@@ -324,7 +324,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "stays low.",
         "Protect the circuit with an RCD, as TT installations usually are.",
         "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory",
-        actions=("installation-side",),
+        actions=("rcd-at-socket",),
     ),
     entry(
         "GC222",

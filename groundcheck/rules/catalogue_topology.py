@@ -62,6 +62,8 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "channel's returns in the other's wiring.",
         "Run each return (or each channel's star) to the star by a wire of its own.",
         actions=("star-return",),
+        # its 'join' findings: a supply's two returns meeting only at the star
+        refusals=("through-star",),
     ),
     entry(
         "GC104",
@@ -100,6 +102,7 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "Bond the signal star to the chassis at one place, near the protective-earth stud, "
         "directly or through a lift network.",
         variants=("warning", "fault"),
+        refusals=("unconnected",),
     ),
     entry(
         "GC107",
@@ -130,6 +133,7 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "Points that reach neither a metal part nor the protective earth.",
         "Something is not wired: a point of the plan is left floating.",
         "Connect the point, or remove it from the plan.",
+        refusals=("unconnected",),
     ),
     entry(
         "GC110",

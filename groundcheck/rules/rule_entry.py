@@ -11,7 +11,7 @@ from dataclasses import dataclass
 
 from .rule_families import Family
 
-__all__ = ["SEVERITIES", "IDENTITIES", "Rule", "entry"]
+__all__ = ["SEVERITIES", "IDENTITIES", "REFUSALS", "Rule", "entry"]
 
 #: severities from the most to the least serious
 SEVERITIES = ("danger", "fault", "warning", "note")
@@ -20,13 +20,18 @@ SEVERITIES = ("danger", "fault", "warning", "note")
 #: two in order (a source and the stage it reaches, an element and its source)
 IDENTITIES = ("elements", "pair")
 
+#: the advisor's refusals a finding can raise when a change brings it about: part of the signal
+#: ground left unconnected; a supply's charging or ripple current sent through the star
+REFUSALS = ("unconnected", "through-star")
+
 
 @dataclass(frozen=True)
 class Rule:
     """A catalogue entry: the rule's words, and what follows from it — its family, the severities
     its findings may have (``variants``, the default first), what identifies a finding
     (:data:`IDENTITIES`) and the advisor's repair actions for it (``advice/candidates.py``
-    registers a generator under each; ``carried``: the finding's own structured actions)."""
+    registers a generator under each; ``carried``: the finding's own structured actions) and the
+    advisor's refusals its findings raise when a change brings one about (:data:`REFUSALS`)."""
 
     code: str
     name: str
@@ -39,6 +44,7 @@ class Rule:
     variants: tuple[str, ...] = ()
     identity: str = "elements"
     actions: tuple[str, ...] = ("carried",)
+    refusals: tuple[str, ...] = ()
 
 
 def entry(
@@ -54,6 +60,7 @@ def entry(
     variants=(),
     identity="elements",
     actions=("carried",),
+    refusals=(),
 ) -> Rule:
     """One catalogue entry, its declarations checked.
 
@@ -64,6 +71,8 @@ def entry(
             severity only).
         identity: what identifies a finding (one of :data:`IDENTITIES`).
         actions: the advisor's repair actions for its findings.
+        refusals: the advisor's refusals (:data:`REFUSALS`) a change that brings a finding of
+            it about meets.
     Returns:
         the entry.
     Raises:
@@ -77,8 +86,23 @@ def entry(
         variants[0] != severity
         or not set(variants) <= set(SEVERITIES)
         or identity not in IDENTITIES
+        or not set(refusals) <= set(REFUSALS)
     ):
-        raise ValueError(f"{code}: variants {variants} (default {severity}), identity {identity}")
+        raise ValueError(
+            f"{code}: variants {variants} (default {severity}), identity {identity}, "
+            f"refusals {refusals}"
+        )
     return Rule(
-        code, name, family, severity, checks, why, fix, references, variants, identity, actions
+        code,
+        name,
+        family,
+        severity,
+        checks,
+        why,
+        fix,
+        references,
+        variants,
+        identity,
+        actions,
+        refusals,
     )

@@ -1,0 +1,119 @@
+"""The never-offer lines every verdict of the field corpus shares, checked on every plan of it
+(tests/field/: the plans as written, never edited): no change offered (a suggestion or a step of
+the combined set) touches a conductor on the protective route, except the one move the docs allow
+(a protective wire's end to a stud of its own); none makes a channel louder without clearing a
+danger or a fault; none leaves part of the signal ground unconnected or sends a signal's return
+through the chassis; none is a load error; and every ``fix:`` line of ``check`` is a change the
+advisor accepted or says that none was (issue 29, items 2, 3, 4 and 6).
+"""
+
+from __future__ import annotations
+
+import functools
+from pathlib import Path
+
+import pytest
+
+from groundcheck import load
+from groundcheck.advice.fixes import NONE_ACCEPTED, SHOWN_BY_SUGGEST, advised_fixes, identity
+from groundcheck.advice.repair import greedy, suggest
+from groundcheck.analysis import Options
+from groundcheck.model.kinds import PROTECTIVE
+from groundcheck.rules.catalogue import RULES
+
+FIELD = Path(__file__).resolve().parent / "field"
+
+#: every plan of the corpus (device plans and include fragments aside: they are placed by these)
+PLANS = [
+    "balanced-preamp-rack/rack.gplan",
+    "dual-mono-class-ab/plan.gplan",
+    "guitar-combo-reverb/plan.gplan",
+    "headphone-se-valve-rectifier/plan.gplan",
+    "home-studio-step-down/home-studio.gplan",
+    "home-studio-step-down/home-studio-stepdown-as-strip.gplan",
+    "phono-two-box/hifi-bad.gplan",
+    "phono-two-box/hifi.gplan",
+    "push-pull-el84/plan.gplan",
+    "se-power-triode/plan.gplan",
+    "valve-phono-dc-heaters/plan.gplan",
+]
+
+#: findings a change must never bring about: part of the signal ground unconnected (GC106,
+#: GC109, GC401) or a signal returning through chassis metal (GC114)
+UNWIRED = {"GC106", "GC109", "GC114", "GC401"}
+
+
+def test_the_list_is_the_whole_corpus():
+    folders = {p.parent.name for p in FIELD.glob("*/verdict.md")}
+    assert {rel.split("/")[0] for rel in PLANS} == folders
+
+
+@functools.lru_cache(maxsize=None)
+def _advised(rel: str):
+    path = FIELD / rel
+    plan, text = load(path), path.read_text(encoding="utf-8")
+    root, resolved = path.resolve().parent, path.resolve()
+    before, evs = suggest(plan, text, Options(), root, resolved)
+    chosen, _, _ = greedy(plan, text, Options(), root, resolved, evs=evs, before=before)
+    return plan, before, evs, chosen, advised_fixes(before, evs)
+
+
+def _offered(rel: str):
+    _, _, evs, chosen, _ = _advised(rel)
+    return [e for e in evs if not e.rejected] + list(chosen)
+
+
+def _protective_lines(plan, before) -> set[tuple[str, int]]:
+    """The statements (file, line) of the conductors on the protective route, by topology or role
+    (a device's cord is written in its 'device' statement: plugging the device in elsewhere moves
+    the cord with it, so those are left out)."""
+    devices = {(d.location.file, d.location.line) for d in plan.devices}
+    return {
+        (c.location.file, c.location.line)
+        for c in plan.conductors
+        if (c.name in before.protective or c.role == PROTECTIVE)
+    } - devices
+
+
+@pytest.mark.parametrize("rel", PLANS)
+def test_no_change_offered_touches_the_protective_route_but_its_own_stud(rel):
+    plan, before, *_ = _advised(rel)
+    where = _protective_lines(plan, before)
+    assert where  # every plan of the corpus has a protective earth
+    bad, moved = [], []
+    for e in _offered(rel):
+        for ed in e.candidate.edits:
+            lines = range(ed.line, (ed.last or ed.line) + 1)
+            if any((ed.file or plan.file, n) in where for n in lines):
+                (moved if e.candidate.action == "own-stud" else bad).append(e.candidate.title)
+    assert bad == []
+    # the scan sees the one allowed move where a verdict asks for it
+    if rel.startswith(("guitar-combo-reverb", "push-pull-el84")):
+        assert moved
+
+
+@pytest.mark.parametrize("rel", PLANS)
+def test_no_change_offered_is_louder_unwires_the_signal_or_fails_to_load(rel):
+    _, _, evs, *_ = _advised(rel)
+    for e in _offered(rel):
+        louder = {ch: d for ch, d in e.hum_change_db.items() if d > 0.05}
+        if louder:  # only for a change that clears a danger or a fault on balance
+            assert e.net.get("danger", 0) > 0 or e.net.get("fault", 0) > 0, e.candidate.title
+        assert not [x for x in e.introduced if x.split()[0] in UNWIRED], e.candidate.title
+    assert not [e.candidate.title for e in evs if "does not load" in (e.rejected or "")]
+
+
+@pytest.mark.parametrize("rel", PLANS)
+def test_every_fix_line_names_an_accepted_change_or_says_none_was(rel):
+    _, before, evs, _, fixes = _advised(rel)
+    for f, fix in zip(before.findings, fixes):
+        if fix.endswith(SHOWN_BY_SUGGEST):
+            (ev,) = [e for e in evs if e.candidate.title == fix[: -len(SHOWN_BY_SUGGEST)]]
+            assert not ev.rejected and identity(f) in ev.cleared_keys, (f.code, fix)
+        elif fix.startswith(NONE_ACCEPTED):
+            assert all(e.rejected for e in evs if e.candidate.title in fix), (f.code, fix)
+        else:  # the rule's own line: a note on the model's reach, or no change cleared it
+            assert fix == f.fix, (f.code, fix)
+            assert not RULES[f.code].actions or not [
+                e for e in evs if not e.rejected and identity(f) in e.cleared_keys
+            ], (f.code, fix)
