@@ -154,3 +154,17 @@ def test_a_stage_fed_from_no_rectifier_is_a_located_error():
     with pytest.raises(PlanErrors) as err:
         _channel("stage v1: in_gnd to star, gain 30 dB, channel main, rejection 20 dB")
     assert "needs its supply" in str(err.value)
+
+
+def test_a_fed_stages_supply_ripple_is_no_loop_pickup():
+    # the supply share is not carried by a loop: no GC302 (loop-pickup) names it (whether the
+    # channel is audible with it is GC303's, with a listening verdict)
+    text = (
+        GROUND
+        + "stage v1: in_gnd to star, gain 30 dB, channel main, fed from hv, rejection 10 dB\n"
+        + RECTIFIER.format(extra="")
+    )
+    result = analyze(load_text(text, "fed.gplan"))
+    kinds = [c["kind"] for c in result.hum.channels["main"].contributors]
+    assert kinds == ["supply"]  # the channel's whole hum, -70 dBV or so: far above the level
+    assert not [f for f in result.findings if f.code == "GC302"]

@@ -80,7 +80,7 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
                     fix,
                 )
             )
-        else:
+        elif c["kind"] == "loop":  # (a fed stage's supply ripple is no loop: GC303 counts it)
             out.append(
                 Finding(
                     "GC302",
