@@ -20,13 +20,14 @@ import argparse
 import json
 import os
 import statistics
+import subprocess
 import sys
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
 sys.path.insert(0, str(HERE))
 
-from bench_startup import ANCHOR, timed  # noqa: E402
+from bench_startup import ANCHOR  # noqa: E402
 
 ROOT = HERE.parent
 PLANS = sorted(str(p.relative_to(ROOT)) for p in (ROOT / "examples").rglob("*.gplan"))
@@ -39,13 +40,25 @@ def _env(tree: Path) -> dict:
     return env
 
 
+def timed(argv: list[str], tree: Path) -> float:
+    """CPU s (user + system) of one process run in ``tree`` (``python -m`` puts the working
+    folder first on the path, before PYTHONPATH: the tree's own package is the one imported)."""
+    proc = subprocess.Popen(
+        argv, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=_env(tree), cwd=tree
+    )
+    _, status, usage = os.wait4(proc.pid, 0)
+    if os.waitstatus_to_exitcode(status) not in (0, 1):
+        raise SystemExit(f"{argv} exited with {os.waitstatus_to_exitcode(status)}")
+    return usage.ru_utime + usage.ru_stime
+
+
 def _check(tree: Path, plan: str, budget: str) -> list[str]:
     return [
         sys.executable,
         "-m",
         "groundcheck",
         "check",
-        str(tree / plan),
+        plan,
         "--format",
         "json",
         "--fail-on",
@@ -57,18 +70,17 @@ def _check(tree: Path, plan: str, budget: str) -> list[str]:
 
 def measure(trees: dict, rounds: int) -> dict:
     """{plan: {tree label: {budget: (median CPU s, median ratio to the anchor)}}}."""
-    anchor_env = _env(ROOT)
     for tree in trees.values():  # bytecode written, files in memory
-        timed(_check(tree, PLANS[0], "0"), _env(tree))
+        timed(_check(tree, PLANS[0], "0"), tree)
     out = {}
     for plan in PLANS:
         cpu = {(t, b): [] for t in trees for b in BUDGETS}
         ratio = {(t, b): [] for t in trees for b in BUDGETS}
         for _ in range(rounds):
-            _, anchor = timed(ANCHOR, anchor_env)
+            anchor = timed(ANCHOR, ROOT)
             for label, tree in trees.items():
                 for budget in BUDGETS:
-                    _, used = timed(_check(tree, plan, budget), _env(tree))
+                    used = timed(_check(tree, plan, budget), tree)
                     cpu[label, budget].append(used)
                     ratio[label, budget].append(used / anchor)
         out[plan] = {
