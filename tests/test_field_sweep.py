@@ -29,12 +29,15 @@ PLANS = [
     "dual-mono-class-ab/plan.gplan",
     "guitar-combo-reverb/plan.gplan",
     "headphone-se-valve-rectifier/plan.gplan",
+    "integrated-se-el84/plan.gplan",
     "home-studio-step-down/home-studio.gplan",
     "home-studio-step-down/home-studio-stepdown-as-strip.gplan",
     "phono-two-box/hifi-bad.gplan",
     "phono-two-box/hifi.gplan",
     "push-pull-el84/plan.gplan",
     "se-power-triode/plan.gplan",
+    "valve-mic-pre-rack/mic-pre.gplan",
+    "valve-mic-pre-rack/rack.gplan",
     "valve-phono-dc-heaters/plan.gplan",
 ]
 

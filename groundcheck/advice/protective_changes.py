@@ -87,6 +87,32 @@ def _shared_stud_wire(ctx: ChangeContext, f):
     return pe, old_pt
 
 
+def _main_part(ctx: ChangeContext, point) -> str | None:
+    """The part a protective earth's own new stud goes on: of the parts the old landing sits on or
+    is fastened to, the one joined to the most other metal parts — the chassis, not a lid or a
+    transformer's frame its fastening also holds (a lid comes off for service and would take the
+    earth with it; common practice); then the larger, then the part it sits on, then by name."""
+    parts = {
+        k.b if k.b in ctx.metals else k.a
+        for k in ctx.at(point.name)
+        if is_fastening(k, ctx.metals)
+    }
+    if point.on in ctx.metals:
+        parts.add(point.on)
+    if not parts:
+        return None
+    joined: dict[str, set] = {m: set() for m in parts}
+    for c in ctx.plan.conductors:
+        for m in {c.a, c.b} & parts:
+            joined[m] |= {c.a, c.b} & ctx.metals - {m}
+
+    def area(m: str) -> float:
+        size = ctx.plan.metal(m).size
+        return abs(size[0] * size[1]) if size else 0.0
+
+    return min(parts, key=lambda m: (-len(joined[m]), -area(m), m != point.on, m))
+
+
 def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     """GC202: the protective conductor moves to a new stud of its own, on the part the old stud
     sits on."""
@@ -94,7 +120,7 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     st = ctx.statement(pe) if pe is not None else None
     if st is None or old_pt is None or old_pt.pos is None:
         return None
-    part = old_pt.on if old_pt.on in ctx.metals else _fastened_to(ctx, old_pt.name)
+    part = _main_part(ctx, old_pt)
     ends = ctx.src.ends(st)
     where = _stud_position(ctx, part, old_pt.pos) if part is not None else None
     if where is None or ends is None:

@@ -42,8 +42,8 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
                     Finding(
                         "GC202",
                         "fault",
-                        f"the protective earth lands on {v}, which also takes "
-                        f"{_held(ctx, v, holds)}: servicing them loosens the earth",
+                        f"the protective earth lands on {v}, {_held(ctx, v, holds)}: "
+                        "servicing them loosens the earth",
                         c.location,
                         (c.name, v, *sorted(holds)),
                         {"other_items": len(holds)},
@@ -56,15 +56,19 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
 
 def _held(ctx: AuditContext, stud: str, holds: list[str]) -> str:
     """What else a protective stud takes, in words: each conductor with the point or part it goes
-    to, each clamped part by name."""
-    out = []
+    to, and each part its fastening clamps."""
+    out, clamps = [], []
     for h in sorted(holds):
         c = ctx.conductors.get(h)
         if c is None:
-            out.append(f"the part {h}")
+            clamps.append(h)
         else:
             out.append(f"{h} (to {c.b if c.a == stud else c.a})")
-    return ", ".join(out)
+    point = ctx.plan.point(stud)
+    on = f" to {point.on}" if point is not None and point.on else ""
+    words = [f"which also takes {', '.join(out)}"] if out else []
+    words += [f"whose fastening also clamps {m}{on}" for m in clamps]
+    return ", and ".join(words)
 
 
 def _clamped_part(ctx: AuditContext, stud: str, own: list) -> list[str]:
