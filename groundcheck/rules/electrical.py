@@ -74,7 +74,9 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
         if level is not None:
             if level > 0:
                 figures["level_dbv"] = round(dbv(level), 1)
-            if level <= 0 or dbv(level) < s.options.contributor_level:
+            # a level at the contributor level (to 1e-9 dB) is not below it: 1 mA through 10 mΩ
+            # read at 0 dB is exactly -100 dBV, and the last bit of the solve would decide
+            if level <= 0 or dbv(level) < s.options.contributor_level - 1e-9:
                 severity = "note"
                 heard = (
                     f"; the hum budget puts it at {dbv(level):.1f} dBV at the "
