@@ -210,7 +210,8 @@ BAD = [
     (
         "undefined",
         'plan "x"\npoint a: stud\nwire w: a to b, 10 mm, 1 mm2\n',
-        "bad.gplan:3:14: error: undefined point or metal part 'b' (define it with 'point b: ...')",
+        "bad.gplan:3:14: error: undefined point or metal part 'b' (define it with 'point b: ...' "
+        "or 'metal b: ...')",
     ),
     (
         "duplicate",

@@ -120,8 +120,11 @@ class _Resolver:
             hint = "declare the supply with 'mains 230 V 50 Hz, ...' to get the inlet's mains.pe"
         else:
             close = difflib.get_close_matches(name, list(pool), n=1)
+            ways = [f"'{k} {name}: ...'" for k in ("point", "metal") if k in what]
             hint = (
-                f"did you mean {close[0]!r}?" if close else f"define it with 'point {name}: ...'"
+                f"did you mean {close[0]!r}?"
+                if close
+                else f"define it with {' or '.join(ways or [repr(f'point {name}: ...')])}"
             )
         self.ld.errors.append(PlanError(f"undefined {what} {name!r}", loc, hint))
         return False
