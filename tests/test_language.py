@@ -427,3 +427,18 @@ def test_supplies_the_model_cannot_hold_yet_are_located_errors(words, message):
         load_text(text, "x.gplan")
     (err,) = e.value.errors
     assert message in err.one_line() and (err.location.line, err.location.column) == (6, 67)
+
+
+def test_a_rectifier_phrase_given_twice_is_a_located_error():
+    # the second filter section replaced the first without a word (outside builder's review)
+    text = (
+        'plan "x"\nmains 230 V 50 Hz\npoint a: cap\npoint b: centre-tap\npoint f1: cap\n'
+        "point f2: cap\nwire w: a to b, 10 mm, 1 mm2\n"
+        "rectifier r: a to b, full-wave, secondary 250 V, winding 100 ohm, reservoir 47 uF, "
+        "filter 2.2 kohm 100 uF to f1, filter 10 kohm 47 uF to f2, load 12 mA\n"
+    )
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "x.gplan")
+    (err,) = e.value.errors
+    assert "'filter' is given twice" in err.one_line() and err.location.line == 8
+    assert err.location.column == text.splitlines()[7].index("filter 10") + 1

@@ -53,6 +53,15 @@ def rectifier(stmt: Statement):
         read = _PHRASES.get(first.value) if first.kind == "word" else None
         if read is None:
             raise unknown(stmt, first, tuple(_PHRASES))
+        if first.value in reading.places:  # the second would replace the first without a word
+            raise PlanError(
+                f"'{first.value}' is given twice in one rectifier",
+                first.loc,
+                "keep one (a rectifier has one filter section: fold further RC cells into the "
+                "stage's supply rejection)"
+                if first.value == "filter"
+                else "keep one",
+            )
         reading.places[first.value] = first.loc
         read(r, reading)
         r.finish()
