@@ -9,31 +9,24 @@ element), and the fixes that must never be offered (in the suggestions, the comb
 from __future__ import annotations
 
 import math
-import functools
 import re
-from pathlib import Path
 
 import pytest
 
 from groundcheck import load
 from groundcheck.analysis import Options
-from groundcheck.advice.fixes import advised_fixes
-from groundcheck.advice.repair import HUM_FLOOR_DBV, greedy, suggest
+from groundcheck.advice.repair import HUM_FLOOR_DBV, suggest
 from groundcheck.rules.catalogue import RULES, severity_rank
 
-FIELD = Path(__file__).resolve().parent / "field"
+from fieldadvice import FIELD, GROUP, advised
+
+pytestmark = pytest.mark.xdist_group(GROUP)
 
 
-@functools.lru_cache(maxsize=None)
 def _advised(rel: str):
     """(plan, findings before, evaluations best first, combined set, result after it, fix lines)
-    of a field plan."""
-    path = FIELD / rel
-    plan, text = load(path), path.read_text(encoding="utf-8")
-    root, resolved = path.resolve().parent, path.resolve()
-    before, evs = suggest(plan, text, Options(), root, resolved)
-    chosen, final, _ = greedy(plan, text, Options(), root, resolved, evs=evs, before=before)
-    return plan, before, evs, chosen, final, advised_fixes(before, evs)
+    of a field plan, advised once per test process (fieldadvice.py)."""
+    return advised(rel)
 
 
 def _local(name: str | None) -> str:

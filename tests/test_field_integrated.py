@@ -10,8 +10,9 @@ from pathlib import Path
 import pytest
 
 from groundcheck import load
-from groundcheck.advice.repair import greedy, suggest
-from groundcheck.analysis import Options, analyze
+from groundcheck.analysis import analyze
+
+from fieldadvice import GROUP, advised as field_advised
 
 PLAN = Path(__file__).resolve().parent / "field" / "integrated-se-el84" / "plan.gplan"
 SOCKETS = {f"in{i}_{s}_nut" for i in (1, 2, 3) for s in "lr"}
@@ -22,12 +23,13 @@ def checked():
     return analyze(load(PLAN))
 
 
+pytestmark = pytest.mark.xdist_group(GROUP)
+
+
 @pytest.fixture(scope="module")
 def advised():
-    plan, text = load(PLAN), PLAN.read_text(encoding="utf-8")
-    before, evs = suggest(plan, text, Options(), PLAN.parent, PLAN)
-    chosen, final, _ = greedy(plan, text, Options(), PLAN.parent, PLAN, evs=evs, before=before)
-    return plan, (chosen, final), evs
+    a = field_advised("integrated-se-el84/plan.gplan")  # once per test process
+    return a.plan, (a.chosen, a.final), a.evs
 
 
 def test_every_must_find_is_found(checked):

@@ -9,8 +9,9 @@ from pathlib import Path
 import pytest
 
 from groundcheck import load
-from groundcheck.advice.repair import suggest
-from groundcheck.analysis import Options, analyze
+from groundcheck.analysis import analyze
+
+from fieldadvice import GROUP, advised as field_advised
 
 FOLDER = Path(__file__).resolve().parent / "field" / "valve-mic-pre-rack"
 PRE, RACK = FOLDER / "mic-pre.gplan", FOLDER / "rack.gplan"
@@ -22,10 +23,13 @@ def checked():
     return analyze(load(PRE))
 
 
+pytestmark = pytest.mark.xdist_group(GROUP)
+
+
 @pytest.fixture(scope="module")
 def advised():
-    plan = load(PRE)
-    return plan, suggest(plan, PRE.read_text(encoding="utf-8"), Options(), FOLDER, PRE)[1]
+    a = field_advised("valve-mic-pre-rack/mic-pre.gplan")  # once per test process
+    return a.plan, a.evs
 
 
 def test_the_earth_under_the_lid_screw_and_the_phantom_return_on_the_bus_are_found(checked):

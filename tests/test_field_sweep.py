@@ -9,19 +9,16 @@ advisor accepted or says that none was (issue 29, items 2, 3, 4 and 6).
 
 from __future__ import annotations
 
-import functools
-from pathlib import Path
 
 import pytest
 
-from groundcheck import load
-from groundcheck.advice.fixes import NONE_ACCEPTED, SHOWN_BY_SUGGEST, advised_fixes, identity
-from groundcheck.advice.repair import greedy, suggest
-from groundcheck.analysis import Options
+from groundcheck.advice.fixes import NONE_ACCEPTED, SHOWN_BY_SUGGEST, identity
 from groundcheck.model.kinds import PROTECTIVE
 from groundcheck.rules.catalogue import RULES
 
-FIELD = Path(__file__).resolve().parent / "field"
+from fieldadvice import FIELD, GROUP, advised
+
+pytestmark = pytest.mark.xdist_group(GROUP)
 
 #: every plan of the corpus (device plans and include fragments aside: they are placed by these)
 PLANS = [
@@ -51,14 +48,9 @@ def test_the_list_is_the_whole_corpus():
     assert {rel.split("/")[0] for rel in PLANS} == folders
 
 
-@functools.lru_cache(maxsize=None)
 def _advised(rel: str):
-    path = FIELD / rel
-    plan, text = load(path), path.read_text(encoding="utf-8")
-    root, resolved = path.resolve().parent, path.resolve()
-    before, evs = suggest(plan, text, Options(), root, resolved)
-    chosen, _, _ = greedy(plan, text, Options(), root, resolved, evs=evs, before=before)
-    return plan, before, evs, chosen, advised_fixes(before, evs)
+    a = advised(rel)  # once per test process (fieldadvice.py)
+    return a.plan, a.before, a.evs, a.chosen, a.fixes
 
 
 def _offered(rel: str):
