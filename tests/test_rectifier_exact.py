@@ -20,6 +20,10 @@ from helpers import needs_ngspice
 
 PERIODS = 5
 
+# ngspice's transients below: output every 1 µs, its largest step 4 µs (against a 1 µs largest
+# step, measured on the 250 V, 120 ohm, 47 uF, 25 mA case: the DC within 2e-9 and every even
+# harmonic to 2 kHz within 0.02 %, far inside these tests' tolerances; 3.5 times faster)
+
 
 def _last_periods(text: str, f: float) -> np.ndarray:
     """Run a netlist whose wrdata line writes to OUT; the rows of its last PERIODS mains periods (1
@@ -57,7 +61,7 @@ I1 out 0 DC {iload}
 .options temp=27
 .control
 set numdgt=12
-tran 1u {stop} {stop - PERIODS / f} 1u
+tran 1u {stop} {stop - PERIODS / f} 4u
 linearize
 wrdata OUT v(out) i(V1) i(V2)
 .endc
@@ -180,7 +184,7 @@ I1 v2 0 DC {iload}
 .options temp=27
 .control
 set numdgt=12
-tran 1u 2.4 {2.4 - PERIODS / f} 1u
+tran 1u 2.4 {2.4 - PERIODS / f} 4u
 linearize
 wrdata OUT v(v1) i(V1) i(V2) i(VC2) v(v2)
 .endc
@@ -264,7 +268,7 @@ C1 out 0 {c}
 I1 out 0 DC {iload}
 .control
 set numdgt=12
-tran 1u 1.6 {1.6 - PERIODS / f} 1u
+tran 1u 1.6 {1.6 - PERIODS / f} 4u
 linearize
 wrdata OUT v(out) i(V1) i(V2)
 .endc
@@ -351,7 +355,7 @@ I1 v2 0 DC {iload}
 .model dsharp D(IS=1e-20 N=0.05)
 .control
 set numdgt=12
-tran 1u 2 {2 - PERIODS / f} 1u
+tran 1u 2 {2 - PERIODS / f} 4u
 linearize
 wrdata OUT v(v1) v(v2)
 .endc

@@ -46,7 +46,7 @@ C1 out 0 {C1}
 .options temp=27
 .control
 set numdgt=12
-tran 1u 1.6 {1.6 - PERIODS / F} 1u
+tran 1u 1.6 {1.6 - PERIODS / F} 4u
 linearize
 wrdata OUT v(out) i(V1) i(V2) i(Vret)
 .endc
