@@ -122,8 +122,8 @@ def supply_meetings(ctx) -> list[tuple]:
                 (
                     r.location,
                     (star, x, y, link),
-                    f"the current of {r.name} between {x} and {y} flows through star {star}: they "
-                    "meet only there",
+                    f"the current of {r.name} between {x} and {y} flows through the star {star}: "
+                    "they meet only there",
                     f"join {x} to {y} by a short wire of their own ({link}), then one wire to "
                     f"{star}",
                     (("join", link, y),),

@@ -100,7 +100,7 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
             Finding(
                 "GC103",
                 "warning",
-                f"star {star} is partly a chain: {desc}",
+                f"the star {star} is partly a chain: {desc}",
                 first,
                 elements,
                 {"chained_returns": len(pairs)},
