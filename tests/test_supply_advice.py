@@ -124,3 +124,25 @@ def test_own_stud_is_accepted_when_the_old_stud_keeps_only_the_star_bond():
     chosen, after, _ = greedy(plan, text, OPTIONS, evs=evs, before=before)
     assert [ev.candidate.action for ev in chosen][:1] == ["own-stud"]
     assert "GC202" not in {f.code for f in after.findings}
+
+
+def test_a_fuse_below_the_prospective_current_is_offered_high_breaking():
+    # GC211: a 2 A glass fuse (low breaking, 35 A: IEC 60127-2, from memory) on a TN-S supply
+    # whose line-to-neutral short reaches about 200 A; the same rating in a high-breaking fuse
+    # (1500 A) clears the finding, the mains statement then stating it
+    text = (
+        'plan "supply"\nmains 230 V 50 Hz, fuse 2 A slow, line-conductor 0.75 mm2, '
+        "system TN-S, inlet at 10,100\n" + BODY
+    )
+    plan = load_text(text, "supply.gplan")
+    before, evs = suggest(plan, text, OPTIONS)
+    assert any(f.code == "GC211" for f in before.findings)
+    (ev,) = [e for e in evs if e.candidate.action == "fuse"]
+    assert not ev.rejected and ev.candidate.reason == "GC211"
+    after = load_text(apply_edits(text, ev.candidate.edits), "supply.gplan")
+    assert after.mains.breaking == "high" and after.mains.fuse == plan.mains.fuse
+    assert "GC211" in " ".join(ev.cleared)
+    # check's fix line is that change
+    fixes = advised_fixes(before, evs)
+    (line,) = [x for f, x in zip(before.findings, fixes) if f.code == "GC211"]
+    assert "high-breaking" in line and SHOWN_BY_SUGGEST in line

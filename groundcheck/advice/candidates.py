@@ -30,7 +30,7 @@ from .routing_changes import (
     shared_return_candidates,
     star_candidates,
 )
-from .supply_changes import socket_rcd, tt_electrode
+from .supply_changes import high_breaking, socket_rcd, tt_electrode
 
 __all__ = [
     "Candidate",
@@ -61,6 +61,7 @@ FINDING_GENERATORS = {
     "own-stud": lambda ctx, f, add: add(own_stud(ctx, f)),
     "thicken": lambda ctx, f, add: add(thicker(ctx, f)),
     "bond": lambda ctx, f, add: add(bonding_wire(ctx, f)),
+    "high-breaking": high_breaking,
     "carried": carried_actions,
 }
 

@@ -55,7 +55,8 @@ ROUTE_ALLOWANCE = 0.2
 #: the chassis; use a balanced link; give a device a ground-lift network; plug a device in
 #: elsewhere; give the protective earth its own stud; thicken a protective conductor; bond a part
 #: by a protective wire of its own; on the installation's side (a qualified electrician's work), an
-#: RCD on the supply circuit or a lower earth-electrode resistance
+#: RCD on the supply circuit or a lower earth-electrode resistance; a fuse of a higher breaking
+#: capacity
 ACTIONS = (
     "insulate",
     "remove",
@@ -72,6 +73,7 @@ ACTIONS = (
     "bond",
     "rcd",
     "electrode",
+    "fuse",
 )
 
 

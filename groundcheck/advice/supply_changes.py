@@ -6,7 +6,9 @@ that the work is a qualified electrician's, to the local wiring rules, and never
 protective earth of the equipment (none lifts, removes or thins a protective conductor).
 
 Answers: GC208 (a fault not disconnected in time), GC220 (TT: electrode × the RCD's rating over
-50 V), GC221 (TT protected by a fuse or breaker alone).
+50 V), GC221 (TT protected by a fuse or breaker alone); and in the equipment, GC211 (a fuse whose
+breaking capacity is below the prospective fault current: a high-breaking fuse of the same rating
+and characteristic, which the mains statement then states).
 """
 
 from __future__ import annotations
@@ -18,7 +20,14 @@ from ..rules.catalogue import RULES
 from .changes import Answer, Candidate, ChangeContext
 from .edits import Edit
 
-__all__ = ["socket_rcd", "tt_electrode", "RCD_RATINGS", "SOCKET_RCD", "electrode_target"]
+__all__ = [
+    "socket_rcd",
+    "tt_electrode",
+    "high_breaking",
+    "RCD_RATINGS",
+    "SOCKET_RCD",
+    "electrode_target",
+]
 
 #: rated residual operating currents IΔn of general-type RCDs, A (IEC 61008-1's preferred values,
 #: from memory)
@@ -139,3 +148,38 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
                 element="mains",
             )
         )
+
+
+def high_breaking(ctx: ChangeContext, f, add) -> None:
+    """A fuse whose breaking capacity is below the prospective current (finding ``f``): the same
+    rating and characteristic in a high-breaking (sand-filled ceramic) fuse, the mains statement
+    then stating ``breaking high``; passed to ``add``.  None for a breaker, a stated breaking
+    current or a fuse already high-breaking (the remedy is then the installation's).
+
+    Parameters:
+        ctx: the change context.
+        f: the finding answered.
+        add: takes a candidate.
+    Returns:
+        nothing (the candidate goes to ``add``).
+    References:
+        IEC 60127-2's breaking-capacity categories (from memory): high-breaking 1500 A.
+    """
+    m, st = ctx.plan.mains, _mains_statement(ctx)
+    if (
+        st is None
+        or m.fuse_kind.startswith("breaker")
+        or m.breaking == "high"
+        or m.breaking_current is not None
+    ):
+        return
+    add(
+        Candidate(
+            "use a high-breaking (sand-filled ceramic) fuse of the same rating and characteristic "
+            "in the equipment's fuse holder; the mains statement then states 'breaking high'",
+            f.code,
+            (_set(ctx, st, "breaking", "high"),),
+            action="fuse",
+            element="mains",
+        )
+    )

@@ -167,6 +167,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "('breaking high').",
         "IEC 60127-2 breaking-capacity categories (from memory)",
         variants=("danger", "warning"),
+        actions=("high-breaking",),
     ),
     entry(
         "GC212",
