@@ -58,29 +58,40 @@ def _agree(ours: np.ndarray, theirs: np.ndarray, floor: float) -> float:
     return worst
 
 
-def _choke_input(load: float, v0: float, stop: float) -> tuple[np.ndarray, np.ndarray]:
-    """ngspice's choke-input full-wave supply: a 300 V rms centre-tapped secondary (two 424.26 V
-    peak sines in antiphase), 50 Ω in each half-winding, two Shockley diodes into a 10 H choke
-    with 150 Ω of winding resistance, a 47 µF reservoir and a constant-current load, started at
-    the reservoir voltage v0 and the load's current in the choke, run to ``stop``; the reservoir
-    voltage and the choke's current (the current returned to the centre tap) over its last
-    periods."""
+def _choke_input(
+    topology: str, load: float, v0: float, stop: float
+) -> tuple[np.ndarray, np.ndarray]:
+    """ngspice's choke-input supply: a 300 V rms secondary (full-wave: a centre-tapped one, two
+    424.26 V peak sines in antiphase, 50 Ω in each half-winding and two Shockley diodes; bridge:
+    one winding with 50 Ω, four diodes, 1 GΩ from it to ground so that it never floats) into a
+    10 H choke with 150 Ω of winding resistance, a 47 µF reservoir and a constant-current load,
+    started at the reservoir voltage v0 and the load's current in the choke, run to ``stop``; the
+    reservoir voltage and the choke's current (the current returned to the rectifiers) over its
+    last periods."""
     vpk = 300 * math.sqrt(2)
+    if topology == "full-wave":
+        rectifiers = (
+            f"V1 a 0 SIN(0 {vpk} 50)\nV2 0 b SIN(0 {vpk} 50)\nR1 a a2 50\nR2 b b2 50\n"
+            "D1 a2 k dmod\nD2 b2 k dmod\n"
+        )
+    else:
+        rectifiers = (
+            f"V1 p q SIN(0 {vpk} 50)\nR1 p p2 50\nRF q 0 1e9\n"
+            "D1 p2 k dmod\nD2 q k dmod\nD3 0 p2 dmod\nD4 0 q dmod\n"
+        )
     circuit = (
-        f"V1 a 0 SIN(0 {vpk} 50)\nV2 0 b SIN(0 {vpk} 50)\nR1 a a2 50\nR2 b b2 50\n"
-        "D1 a2 k dmod\nD2 b2 k dmod\n"
-        f"L1 k m 10 ic={load}\nRL m out 150\nC1 out 0 47u ic={v0}\nI1 out 0 DC {load}"
+        f"{rectifiers}L1 k m 10 ic={load}\nRL m out 150\nC1 out 0 47u ic={v0}\nI1 out 0 DC {load}"
     )
     data = _ngspice(circuit, stop, "v(out) i(L1)")
     return data[:, 1], data[:, 3]
 
 
-def _rectifier(load: float) -> Rectifier:
+def _rectifier(topology: str, load: float) -> Rectifier:
     return Rectifier(
         "r",
         "a",
         "b",
-        "full-wave",
+        topology,
         300,
         50,
         0.7,
@@ -94,24 +105,26 @@ def _rectifier(load: float) -> Rectifier:
 
 @needs_ngspice
 @pytest.mark.parametrize(
-    "load,v0,stop,continuous",
+    "topology,load,v0,stop,continuous",
     [
         # 100 mA: about 249 V over 100 mA is 2.49 kΩ, L_crit = 2.49 kΩ/(3·2π·50 Hz) = 2.6 H,
         # below the 10 H choke: continuous; started at 0.9·300 V − 0.1 A·200 Ω − 0.7 V = 249 V,
         # run for 1 s (the choke and reservoir ring at 7 Hz, damped in about 0.1 s)
-        (0.1, 249.0, 1.0, True),
+        ("full-wave", 0.1, 249.0, 1.0, True),
         # 15 mA: about 306 V over 15 mA is 20 kΩ, L_crit = 22 H, above it: the current stops
         # each half-cycle; started at 306 V (read off a first, longer run)
-        (0.015, 306.0, 0.6, False),
+        ("full-wave", 0.015, 306.0, 0.6, False),
+        # the same as a bridge (two diodes in each path, one winding; started at 248 V)
+        ("bridge", 0.1, 248.0, 1.0, True),
     ],
 )
-def test_choke_input_against_ngspice(load, v0, stop, continuous):
-    ours = simulate(_rectifier(load), 50)
-    v, i = _choke_input(load, v0, stop)
+def test_choke_input_against_ngspice(topology, load, v0, stop, continuous):
+    ours = simulate(_rectifier(topology, load), 50)
+    v, i = _choke_input(topology, load, v0, stop)
     assert ours.dc_voltage == pytest.approx(v.mean(), rel=1e-3)
     worst = _agree(np.abs(harmonic_phasors(ours.current, 40)), _lines(i, 40), 1e-5)
     assert worst < 0.01
-    print(f"choke input, {load} A: worst line {worst:.2e}")
+    print(f"choke input, {topology}, {load} A: worst line {worst:.2e}")
     # the textbook condition worked by hand from ngspice's own mean voltage: L_crit = R/(3ω)
     # (Millman and Halkias, Integrated Electronics, 1972, the L-section filter; from memory)
     assert ours.critical_inductance == pytest.approx(
