@@ -248,7 +248,7 @@ def _rectifier_table(result: Result, console: Console) -> None:
             "rms A",
             "conduction °",
             *(("filter out V", "out ripple Vpp") if filters else ()),
-            *(("choke crit. H", "current") if chokes else ()),
+            *(("choke crit. H", "choke current") if chokes else ()),
         ):
             t.add_column(col, justify="right" if col != "rectifier" else "left")
         for r in result.rectifiers:
@@ -277,7 +277,7 @@ def _choke_cells(r) -> tuple[str, str]:
     """A choke input's critical inductance and whether its current is continuous."""
     if r.critical_inductance is None:
         return "–", "–"
-    return f"{r.critical_inductance:.3g}", "continuous" if r.continuous else "broken"
+    return f"{r.critical_inductance:.3g}", "continuous" if r.continuous else "intermittent"
 
 
 def axis_words(axis: list[float], stated: str) -> str:
