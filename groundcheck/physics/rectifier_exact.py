@@ -1,6 +1,9 @@
 """The exact rectifier model: Shockley diodes with series resistance, the transformer's leakage
-inductance, and an optional filter section after the reservoir (a resistor or a choke, then a
-second capacitor whose negative lands on a point of the ground system, the load at its output).
+inductance, an optional choke between the rectifiers and the reservoir (a choke input: in series
+with the winding's current, its resistance after the rectifiers, the two rectifier paths sharing
+its current near the source's zero crossing), and an optional filter section after the reservoir
+(a resistor or a choke, then a second capacitor whose negative lands on a point of the ground
+system, the load at its output).
 
 The linear part (reservoir, filter, load) is a state-space system dx/dt = A·x + B·i + s, integrated
 with the trapezoidal rule; at each step the winding's equation (source = R·i + diode + reservoir,
