@@ -407,26 +407,42 @@ def test_mirror_x_flips_about_the_blocks_own_origin_then_moves_it():
     assert at["two.a"] == (0, 140) and at["two.b"] == (100, 130)
 
 
-@pytest.mark.parametrize(
-    "words,message",
-    [
-        ("choke 10 H 150 ohm", "a choke input is not modelled yet"),
-        ("negative", "a negative rail is not modelled yet"),
-    ],
-)
-def test_supplies_the_model_cannot_hold_yet_are_located_errors(words, message):
-    # the reader knows the words; the model does not: a located error with what to write
-    # instead, never an internal error
-    text = (
+def _supply(words: str) -> str:
+    return (
         'plan "x"\nmains 230 V 50 Hz\npoint a: cap\npoint b: centre-tap\n'
         "wire w: a to b, 10 mm, 1 mm2\n"
         f"rectifier r: a to b, full-wave, secondary 250 V, winding 100 ohm, {words}, "
         "reservoir 47 uF, load 50 mA\n"
     )
+
+
+def test_a_choke_input_and_a_negative_rail_are_read_into_the_rectifier():
+    (r,) = load_text(_supply("choke 10 H 150 ohm"), "x.gplan").rectifiers
+    assert (r.choke_inductance, r.choke_resistance, r.polarity) == (10.0, 150.0, "positive")
+    (r,) = load_text(_supply("choke 5 H"), "x.gplan").rectifiers
+    assert (r.choke_inductance, r.choke_resistance) == (5.0, 0.0)
+    (r,) = load_text(_supply("negative"), "x.gplan").rectifiers
+    assert (r.polarity, r.choke_inductance) == ("negative", 0.0)
+
+
+@pytest.mark.parametrize(
+    "words,message,column",
+    [
+        (
+            "choke 10 H 150 ohm, leakage 0.1 H",
+            "a choke input and the transformer's leakage cannot be modelled together",
+            87,
+        ),
+        ("choke 10 H 150 ohm, half-wave", "not half-wave", 67),
+    ],
+)
+def test_choke_inputs_the_model_cannot_hold_are_located_errors(words, message, column):
+    # the transformer's leakage beside a choke input, and a half-wave choke input: a located
+    # error with what to write instead, never an internal error
     with pytest.raises(PlanErrors) as e:
-        load_text(text, "x.gplan")
+        load_text(_supply(words), "x.gplan")
     (err,) = e.value.errors
-    assert message in err.one_line() and (err.location.line, err.location.column) == (6, 67)
+    assert message in err.one_line() and (err.location.line, err.location.column) == (6, column)
 
 
 def test_a_rectifier_phrase_given_twice_is_a_located_error():

@@ -81,18 +81,10 @@ def _topology(r: Reader, reading: _Reading) -> None:
 
 
 def _polarity(r: Reader, reading: _Reading) -> None:
-    """'positive' (the default); 'negative' (a rail below the reservoir's ground end) is read but
-    not modelled yet: refused where it is written, with what to write instead."""
-    it = r.peek()
-    if r.word() == "positive":
-        return  # the default
-    raise PlanError(
-        "a negative rail is not modelled yet",
-        it.loc,
-        "remove 'negative': its charging current is a positive rail's flowing the other way, so "
-        "written from its reservoir's ground end to the centre tap its hum figures are the same "
-        "size (their phase against the positive rail's is not)",
-    )
+    """'negative': the rectifier makes a rail below its reservoir's ground end (the diodes turned
+    round), so its charging current flows the other way round the ground system; 'positive' is
+    the default."""
+    reading.kw["polarity"] = r.word()
 
 
 def _diode(r: Reader, reading: _Reading) -> None:
@@ -132,14 +124,12 @@ def _leakage(r: Reader, reading: _Reading) -> None:
 def _choke(r: Reader, reading: _Reading) -> None:
     """'choke 10 H 150 ohm': a choke between the rectifiers and the reservoir (choke input), its
     winding's resistance optional."""
-    it = r.peek()
     r.word()
-    raise PlanError(
-        "a choke input is not modelled yet",
-        it.loc,
-        "write a small reservoir (say 'reservoir 0.1 uF') and the choke as a filter section "
-        "after it: 'filter 10 H 150 ohm 47 uF to FILT_NEG'",
-    )
+    reading.kw["choke_inductance"] = r.quantity("inductance", "input choke")
+    if not r.done:
+        reading.kw["choke_resistance"] = r.quantity(
+            "resistance", "input choke's resistance", allow_zero=True
+        )
 
 
 def _load(r: Reader, reading: _Reading) -> None:
@@ -228,10 +218,18 @@ _PHRASES = {
 
 
 def _check_choke_input(reading: _Reading) -> None:
-    """A choke input is modelled after the rectifiers, all its current in one conducting path at
-    a time: the transformer's leakage, which shares the choke's current between the two paths
-    while it changes over, is refused beside it (the model would take it as part of the choke)."""
+    """A choke input is modelled after full-wave or bridge rectifiers (a half-wave one's choke
+    would drive its current back through the winding), the paths sharing its current through the
+    winding's resistance while it changes over: the transformer's leakage, which shares it through
+    its inductance, is refused beside it (the model would take it as part of the choke)."""
     kw = reading.kw
+    if kw.get("choke_inductance", 0.0) > 0 and kw.get("topology") == "half-wave":
+        raise PlanError(
+            "a choke input is modelled after full-wave or bridge rectifiers, not half-wave",
+            reading.places["choke"],
+            "write the rectifier full-wave or bridge, or put the choke in a filter section "
+            "after the reservoir ('filter 10 H 150 ohm 47 uF to FILT_NEG')",
+        )
     if kw.get("choke_inductance", 0.0) > 0 and kw.get("leakage", 0.0) > 0:
         raise PlanError(
             "a choke input and the transformer's leakage cannot be modelled together",

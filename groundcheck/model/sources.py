@@ -16,7 +16,8 @@ XY = tuple[float, float]
 
 @dataclass(frozen=True)
 class Rectifier:
-    """A capacitor-input rectifier whose charging current returns from ``a`` to ``b``.
+    """A capacitor-input or choke-input rectifier whose charging current returns from ``a`` to
+    ``b`` (a negative rail's from ``b`` to ``a``).
 
     topology: ``full-wave`` (centre-tapped secondary, one diode drop), ``bridge``
     (two diode drops) or ``half-wave``.  ``secondary`` is the rms voltage of
@@ -52,6 +53,12 @@ class Rectifier:
     regulator_resistance: float = 0.0  # a shunt regulator's feed resistor, Ω
     regulator_point: str | None = None  # the point its load's (and shunt's) current returns by
     regulator_rejection: float | None = None  # its ripple rejection, dB (None: the default)
+    #: a choke between the rectifiers and the reservoir (choke input): its inductance, H (0: none)
+    choke_inductance: float = 0.0
+    choke_resistance: float = 0.0  # ... its winding's resistance, Ω
+    #: positive (a rail above the reservoir's ground end) or negative (below it: the diodes turned
+    #: round, the charging current flowing the other way round the ground system)
+    polarity: str = "positive"
 
 
 @dataclass(frozen=True)

@@ -16,7 +16,10 @@ conducting (half-)winding has its leakage inductance in series, and the state
 (winding current, reservoir voltage) is integrated with the trapezoidal rule,
 the diode's equation solved by Newton's method at each step; the steady state
 is found by Newton's method on the winding current and the state at the
-source's zero crossing (see :mod:`groundcheck.physics.rectifier_exact`).
+source's zero crossing (see :mod:`groundcheck.physics.rectifier_exact`).  A choke
+input (a choke between the rectifiers and the reservoir) takes the exact model
+too, with its critical inductance; a negative rail is the positive one turned
+round.
 
 References: O. H. Schade, "Analysis of rectifier operation", Proc. IRE 31(7),
 1943; P. Horowitz, W. Hill, *The Art of Electronics*, 3rd ed., §1.6.3A (ripple
@@ -74,6 +77,10 @@ class RectifierResult:
     rail: np.ndarray | None = None
     #: a regulator's load (and shunt) current, returned through its point, A
     return_current: np.ndarray | None = None
+    #: a choke input's critical inductance (continuous conduction above it), H; None: no choke
+    critical_inductance: float | None = None
+    continuous: bool | None = None  # ... whether its current flows all the period round
+    negative: bool = False  # a negative rail: every waveform and mean turned round
 
     def as_dict(self) -> dict:
         out = {
@@ -91,6 +98,13 @@ class RectifierResult:
                 output_ripple_pp_v=round(self.output_ripple_pp, 6),
                 filter_rms_current_a=round(float(np.sqrt(np.mean(self.filter_current**2))), 6),
             )
+        if self.critical_inductance is not None:
+            out.update(
+                critical_inductance_h=round(self.critical_inductance, 5),
+                continuous_conduction=self.continuous,
+            )
+        if self.negative:
+            out.update(polarity="negative")
         if self.return_current is not None:
             out.update(
                 regulated_dc_v=round(self.output_dc, 4),
@@ -176,6 +190,9 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
                 rail=rail,
                 return_current=back,
             )
+        result = _choke_input(r, result)
+        if r.polarity == "negative":
+            result = _negative(r, result)
         for a in (
             result.t,
             result.current,
@@ -188,6 +205,48 @@ def simulate(r: Rectifier, frequency: float) -> RectifierResult:
                 a.flags.writeable = False  # shared between analyses: nobody may change it in place
         _SOLVED[key] = result
     return _SOLVED[key]
+
+
+def _choke_input(r: Rectifier, result: RectifierResult) -> RectifierResult:
+    """A choke input's critical inductance and whether its current is continuous (the simulated
+    current never falls to zero).  The critical inductance is the textbook condition for
+    full-wave and bridge rectifiers, L_crit = R/(3ω) with ω the mains' angular frequency and R the
+    load the choke feeds (the reservoir's mean voltage over its mean current): the rectified
+    wave's second-harmonic current, (4/3π)·V_peak/(2ωL), no larger than its mean, (2/π)·V_peak/R
+    (J. Millman, C. C. Halkias, *Integrated Electronics*, 1972, the L-section filter; from
+    memory)."""
+    if r.choke_inductance <= 0:
+        return result
+    load = result.dc_voltage / result.dc_current if result.dc_current > 0 else math.inf
+    on = result.current > 1e-9 * max(result.peak_current, 1e-30)
+    return replace(
+        result,
+        critical_inductance=load / (3 * 2 * math.pi * result.frequency),
+        continuous=bool(on.all()),
+    )
+
+
+def _negative(r: Rectifier, result: RectifierResult) -> RectifierResult:
+    """A negative rail: the positive rail's waveforms turned round (its charging current flowing
+    from b to a, its voltages below the ground end); a half-wave one's charging half a period later
+    (on the winding's other half-cycle), full-wave and bridge ones' at the same instants."""
+    shift = len(result.t) // 2 if r.topology == "half-wave" else 0
+
+    def turned(a):
+        return None if a is None else -np.roll(a, shift)
+
+    return replace(
+        result,
+        current=turned(result.current),
+        voltage=turned(result.voltage),
+        filter_current=turned(result.filter_current),
+        rail=turned(result.rail),
+        return_current=turned(result.return_current),
+        dc_voltage=-result.dc_voltage,
+        dc_current=-result.dc_current,
+        output_dc=None if result.output_dc is None else -result.output_dc,
+        negative=True,
+    )
 
 
 def _checked(r: Rectifier, result: RectifierResult) -> RectifierResult:
@@ -224,7 +283,12 @@ def _simulate(r: Rectifier, frequency: float) -> RectifierResult:
     T = 1.0 / frequency
     h = T / n
     t = np.arange(n) * h
-    if r.diode_law in ("shockley", "valve") or r.leakage > 0 or r.filter_capacitance is not None:
+    if (
+        r.diode_law in ("shockley", "valve")
+        or r.leakage > 0
+        or r.filter_capacitance is not None
+        or r.choke_inductance > 0
+    ):
         from .rectifier_exact import steady_state
 
         w = math.sqrt(2) * r.secondary * np.sin(2 * math.pi * frequency * t)

@@ -1,6 +1,9 @@
 """The exact rectifier model: Shockley diodes with series resistance, the transformer's leakage
-inductance, and an optional filter section after the reservoir (a resistor or a choke, then a
-second capacitor whose negative lands on a point of the ground system, the load at its output).
+inductance, an optional choke between the rectifiers and the reservoir (a choke input: in series
+with the winding's current, its resistance after the rectifiers, the two rectifier paths sharing
+its current near the source's zero crossing), and an optional filter section after the reservoir
+(a resistor or a choke, then a second capacitor whose negative lands on a point of the ground
+system, the load at its output).
 
 The linear part (reservoir, filter, load) is a state-space system dx/dt = A·x + B·i + s, integrated
 with the trapezoidal rule; at each step the winding's equation (source = R·i + diode + reservoir,
@@ -75,8 +78,14 @@ class _Model:
         self.k_valve = r.valve_current / r.valve_drop**1.5 if self.valve else 0.0
         self.rt = max(r.winding, 1e-3) + (nd * SHOCKLEY_RS if self.shockley else 0.0)
         self.nvt, self.drop, self.nd = nd * SHOCKLEY_N * THERMAL_VOLTAGE, nd * r.diode_drop, nd
-        self.lh = r.leakage / h
+        self.lh = (r.leakage + r.choke_inductance) / h
         self.r = r
+        # a choke input: its current shared between the rectifiers' two paths near the source's
+        # zero crossing (:func:`_paths`), its resistance after them
+        self.choke = r.choke_inductance > 0
+        if self.choke:
+            self.rw, self.rc = max(r.winding, 1e-3), r.choke_resistance
+            self.rt += r.choke_resistance
         self.m, self.n, self.k = self.M.tolist(), self.N.tolist(), self.K.tolist()
         self.n0, self.rows = self.n[0], range(len(self.n))
         self.linear = not (self.shockley or self.valve) and self.lh == 0
@@ -100,8 +109,12 @@ class _Model:
         rule, or with no leakage the winding's own equation (its drive across R, diode and
         reservoir is zero)."""
         c = self.n0
-        drive = s1 - self.rt * x - self.vd(x) - (base + c * x)
-        slope = self.rt + self.dvd(x) + c
+        if self.choke:
+            lost, dlost = self.loss(x, s1)
+            drive, slope = s1 - lost - (base + c * x), dlost + c
+        else:
+            drive = s1 - self.rt * x - self.vd(x) - (base + c * x)
+            slope = self.rt + self.dvd(x) + c
         if self.lh > 0:
             return self.lh * (x - i0) - 0.5 * (d0 + drive), self.lh + 0.5 * slope
         return -drive, slope
@@ -121,9 +134,13 @@ class _Model:
                 return 0.0, free, 0.0, 0.0, 0.0
             x = num / (self.rt + self.n0)
             return x, self.end(free, x), 0.0, 0.0, -1.0 / (self.rt + self.n0)
-        d0 = (
-            (s0 - self.rt * i0 - self.vd(i0) - x0[0]) if i0 > 0 else 0.0
-        )  # inductor voltage at the start
+        # the inductor's voltage at the start
+        if i0 <= 0:
+            d0 = 0.0
+        elif self.choke:
+            d0 = s0 - self.loss(i0, s0)[0] - x0[0]
+        else:
+            d0 = s0 - self.rt * i0 - self.vd(i0) - x0[0]
         if self.residual(0.0, i0, d0, s1, base)[0] >= 0.0:  # the diodes block
             return 0.0, free, 0.0, 0.0, 0.0
         x = max(i0, 1e-6)
@@ -140,7 +157,26 @@ class _Model:
             return x, end, 0.0, 0.0, -1.0 / df
         # implicit differentiation of the inductor's equation in x, i0, d0(i0, v1) and base
         b = -0.5 / df if i0 > 0 else 0.0
-        return x, end, self.lh / df + b * (self.rt + self.dvd(i0)), b, -0.5 / df
+        start = self.loss(i0, s0)[1] if self.choke else self.rt + self.dvd(i0)
+        return x, end, self.lh / df + b * start, b, -0.5 / df
+
+    def loss(self, x: float, e: float) -> tuple[float, float]:
+        """A choke input's voltage lost between the rectified source ``e`` and the reservoir at
+        the choke's current ``x`` (the rectifiers' paths and the choke's resistance), and its
+        slope in x."""
+        v, dv = _paths(x, e, self.rw, self.diode_one, self.nd == 2)
+        return e - v + self.rc * x, self.rc - dv
+
+    def diode_one(self, x: float) -> tuple[float, float]:
+        """One rectifier's drop at current x (with its series resistance) and its slope."""
+        if self.valve:
+            return self.vd(x) / self.nd, self.dvd(x) / self.nd
+        if self.shockley:
+            return (
+                SHOCKLEY_N * THERMAL_VOLTAGE * math.log1p(x / SHOCKLEY_IS) + SHOCKLEY_RS * x,
+                SHOCKLEY_N * THERMAL_VOLTAGE / (SHOCKLEY_IS + x) + SHOCKLEY_RS,
+            )
+        return self.drop / self.nd, 0.0
 
     def period(self, s: np.ndarray, z0: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """One period from the start z0 = (winding current, state): states (n+1 × dim), currents
@@ -204,6 +240,45 @@ class _Model:
         return steps[0]
 
 
+def _paths(i: float, e: float, rw: float, diode, bridge: bool) -> tuple[float, float]:
+    """The voltage at a choke input's rectifiers' output, and its slope in the choke's current i,
+    from the rectified source e (the conducting half-winding's, or the bridge's winding's).  One
+    path carries it all until the other's source, at zero current, rises above the output: near
+    the zero crossing both conduct, sharing i through the winding's resistance rw and the
+    rectifiers' drops (``diode``: one rectifier's drop and slope), the share found by Newton's
+    method kept inside its bracket.  Full-wave: the paths' outputs are e − rw·a − d(a) and
+    −e − rw·b − d(b), a + b = i; a bridge's, e − rw·(a − b) − 2·d(a) and −e + rw·(a − b) − 2·d(b)
+    (one winding carrying a − b)."""
+    d_i, g_i = diode(i)
+    d_0 = diode(0.0)[0]
+    if bridge:
+        single, other = e - rw * i - 2 * d_i, -e + rw * i - 2 * d_0
+    else:
+        single, other = e - rw * i - d_i, -e - d_0
+    if other <= single:
+        return single, -(rw + (2 if bridge else 1) * g_i)
+    k = 2.0 if bridge else 1.0  # the balance of the two paths' outputs, falling in a
+    lo, hi, a = 0.0, i, 0.5 * i
+    for _ in range(100):
+        (da, ga), (db, gb) = diode(a), diode(i - a)
+        f = 2 * e - k * (rw * (2 * a - i) + da - db)
+        if f > 0:
+            lo = a
+        else:
+            hi = a
+        a_new = a + f / (k * (2 * rw + ga + gb))
+        a_new = a_new if lo < a_new < hi else 0.5 * (lo + hi)
+        done = abs(a_new - a) <= 1e-15 + 1e-13 * i
+        a = a_new
+        if done:
+            break
+    (da, ga), (db, gb) = diode(a), diode(i - a)
+    par = (rw + ga) * (rw + gb) / (2 * rw + ga + gb)
+    if bridge:
+        return e - rw * (2 * a - i) - 2 * da, rw - 2 * par
+    return e - rw * a - da, -par
+
+
 def _affine(m: list, n: list, k: list):
     """The step's affine maps in plain floats, written out for the state's one to three numbers
     (a generic sum over rows and columns was half of the stepping's time): free(x0, i0) =
@@ -260,6 +335,9 @@ def _start(r: Rectifier, peak: float) -> np.ndarray:
     dim = 1 if r.filter_capacitance is None else (2 if r.filter_inductance <= 0 else 3)
     iload = r.load_current or 0.0
     v = 0.95 * peak
+    if r.choke_inductance > 0:
+        # a choke input holds the reservoir near the rectified source's mean, 2/π of its peak
+        v = 0.6 * peak
     if dim == 1:
         return np.array([v])
     out = max(v - iload * r.filter_resistance, 0.0)
@@ -282,6 +360,8 @@ def steady_state(r: Rectifier, s: np.ndarray, h: float):
     model = _Model(r, h)
     peak = float(s.max())
     z = np.concatenate([[0.0], _start(r, peak)])
+    if model.choke:  # the choke's current: the load's at the first guess
+        z[0] = (r.load_current or 0.0) + (z[-1] / r.load_resistance if r.load_resistance else 0.0)
     # the tolerance: 1e-9 of the peak for the voltages, and of the peak over the winding's
     # resistance for the current
     scale = max(1.0, peak) * np.concatenate([[1.0 / model.rt], np.ones(len(z) - 1)])

@@ -27,8 +27,8 @@ __all__ = ["check_devices", "check_work", "rectifier_steps", "same_figures"]
 
 #: periods integrated in the search for a steady state, an upper bound for the estimate: the
 #: constant-drop model converges in a few periods; the exact models (Shockley or valve diodes,
-#: leakage, a filter section) take about ten times the work (measured: 0.1 s against 1.0 s for one
-#: rectifier of the bombs' plan)
+#: leakage, a filter section, a choke input) take about ten times the work (measured: 0.1 s
+#: against 1.0 s for one rectifier of the bombs' plan)
 PERIODS = {"constant": 4, "exact": 40}
 
 #: a frequency's fixed cost (building and factorising the matrix, merging its part), in
@@ -64,7 +64,12 @@ def rectifier_steps(r: Rectifier) -> int:
     References:
         none (an estimate, calibrated by measurement).
     """
-    exact = r.diode_law != "constant" or r.leakage > 0 or r.filter_capacitance is not None
+    exact = (
+        r.diode_law != "constant"
+        or r.leakage > 0
+        or r.filter_capacitance is not None
+        or r.choke_inductance > 0
+    )
     return STEPS_PER_PERIOD * PERIODS["exact" if exact else "constant"]
 
 

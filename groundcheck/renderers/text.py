@@ -239,6 +239,7 @@ def _rectifier_table(result: Result, console: Console) -> None:
     if result.rectifiers:
         t = Table(title="Rectifiers (simulated to steady state)", title_justify="left")
         filters = any(r.filter_current is not None for r in result.rectifiers)
+        chokes = any(r.critical_inductance is not None for r in result.rectifiers)
         for col in (
             "rectifier",
             "DC V",
@@ -247,6 +248,7 @@ def _rectifier_table(result: Result, console: Console) -> None:
             "rms A",
             "conduction °",
             *(("filter out V", "out ripple Vpp") if filters else ()),
+            *(("choke crit. H", "choke current") if chokes else ()),
         ):
             t.add_column(col, justify="right" if col != "rectifier" else "left")
         for r in result.rectifiers:
@@ -265,9 +267,17 @@ def _rectifier_table(result: Result, console: Console) -> None:
                 f"{r.rms_current:.3g}",
                 f"{r.conduction_angle:.1f}",
                 *extra,
+                *(() if not chokes else _choke_cells(r)),
             )
         console.print(t)
         console.print()
+
+
+def _choke_cells(r) -> tuple[str, str]:
+    """A choke input's critical inductance and whether its current is continuous."""
+    if r.critical_inductance is None:
+        return "–", "–"
+    return f"{r.critical_inductance:.3g}", "continuous" if r.continuous else "intermittent"
 
 
 def axis_words(axis: list[float], stated: str) -> str:
