@@ -189,7 +189,8 @@ def test_library_entry_points():
 
 
 def test_jobs_on_one_plan_gives_the_same_document(cli):
-    # the advisor's budget is time: given all it needs, every fix line is the same on a loaded machine
+    # the advisor's budget is time: given all it needs, every fix line is the same on a loaded
+    # machine
     wide = ("--format", "json", "--advice-budget", "600")
     one = json.loads(cli("check", DUAL, *wide)[1])
     two = json.loads(cli("check", DUAL, *wide, "--jobs", "2")[1])
