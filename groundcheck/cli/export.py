@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from ..renderers.formats import NETLIST_FORMATS
 from .common import load_plan, quantity_type, write_output
-from .drawing import WRITE_EPILOG
+from .drawing import written_epilog
 from .registry import FORMAT, FormatOption, command, opt
 
 __all__ = ["cmd_export"]
@@ -16,7 +16,7 @@ __all__ = ["cmd_export"]
     help="write the ground network in another format",
     description="Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format "
     "spice -o ground.cir",
-    epilog=WRITE_EPILOG,
+    epilog=written_epilog("the netlist"),
     formats=NETLIST_FORMATS,
     options=(
         opt("plan", metavar="PLAN"),
@@ -27,12 +27,12 @@ __all__ = ["cmd_export"]
                 "(R, L, C and the plan's current sources; the default)"
             ),
         ),
-        opt("--spice", action="store_true", help="the same as --format spice"),
         opt(
             "--frequency",
             type=quantity_type("frequency", "Hz"),
             metavar="HZ",
-            help="AC analysis at this frequency (default: DC operating point)",
+            help="an AC netlist at this frequency, printing every node's voltage (default: a DC "
+            "operating point)",
         ),
         opt(
             "-o",
