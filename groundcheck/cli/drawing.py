@@ -24,7 +24,6 @@ from .registry import FormatOption, command, opt
 __all__ = ["cmd_draw", "cmd_report", "written_epilog", "RENDERER"]
 
 
-
 def written_epilog(what: str) -> str:
     """The exit statuses of a command that writes ``what`` and judges nothing (draw, export)."""
     return (
