@@ -15,6 +15,7 @@ from ..rules.catalogue import SEVERITIES
 from ..rules.results import Result
 from .htmlchart import chart_frame, spectrum_svg
 from .htmlparts import CSS, cell, plan_line_html
+from .htmltables import pickup_section, rectifier_section
 from .htmlsections import (
     findings_section,
     hum_section,
@@ -54,6 +55,8 @@ def html_report(
     _summary(result, parts)
     findings_section(result, parts, physical_svg, topology_svg, renderer, lines or {})
     hum_section(result, parts)
+    rectifier_section(result, parts)
+    pickup_section(result, parts)
     protective_section(result, parts)
     installation_section(result, parts)
     loops_section(result, parts)

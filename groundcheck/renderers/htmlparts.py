@@ -25,12 +25,14 @@ th{background:#f2f2f2}td.num{text-align:right;font-variant-numeric:tabular-nums}
 .warning{background:#b08800}.note{background:#1f6f8b}.fix{color:#225522}
 .fig{color:#555;font-size:.85em}
 .drawing svg{max-width:100%;height:auto}
-.drawing.natural{overflow:auto;max-height:90vh;border:1px solid #ddd}
-.drawing.natural svg{max-width:none}
+.drawing.fits{border:1px solid #ddd}
+.zoom:checked~.drawing.fits{overflow:auto;max-height:90vh}
+.zoom:checked~.drawing.fits svg{max-width:none}
 pre.planline{margin:.3em 0;padding:.2em .4em;background:#f7f7f2;white-space:pre-wrap;
 font-size:.85em}
 .ok{color:#227722}.bad{color:#b00020;font-weight:bold}
-@media print{body{margin:0;max-width:none}.drawing{page-break-inside:avoid}
+@media print{body{margin:0;max-width:none}.zoom,.zoom+label{display:none}
+.drawing{page-break-inside:avoid}
 h2{page-break-after:avoid}}
 """
 

@@ -62,8 +62,9 @@ def findings_section(
         f'id="physical">{inline_svg(physical_svg)}</div>'
     )
     parts.append(
-        '<h2>Topology</h2><p class="fig">At full size: scroll to see all of it.</p><div '
-        f'class="drawing natural" id="topology">{inline_svg(topology_svg)}</div>'
+        '<h2>Topology</h2><input type="checkbox" id="topology-zoom" class="zoom">'
+        '<label for="topology-zoom" class="fig"> at full size (scroll to see all of it)</label>'
+        f'<div class="drawing fits" id="topology">{inline_svg(topology_svg)}</div>'
     )
     if renderer:
         parts.append(f'<p class="fig">Drawings: {e(renderer)}.</p>')
