@@ -95,7 +95,7 @@ def physical_dot(result: Result) -> str:
     _points(plan, marks, positioned, P, lines)
     _conductors(result, marks, positioned, P, lines)
     _metal_loops(result, positioned, lines)
-    _fields(plan, P, lines)
+    _fields(plan, scale, P, lines)
     missing = physical_omissions(result)
     if any(missing):
         note = (
@@ -290,13 +290,20 @@ def _metal_loops(result, positioned, lines) -> None:
         )
 
 
-def _fields(plan, P, lines) -> None:
+#: the drawn diameter of a field source whose size the plan does not state, inches
+FIELD_MARK = 0.3
+
+
+def _fields(plan, scale: float, P, lines) -> None:
+    """Each field source as a double circle at its place: as wide as its stated size (at the
+    drawing's scale, ``scale`` points per metre), a small mark when none is stated."""
     for f in plan.fields:
         px, py = P(f.pos)
+        d = FIELD_MARK if f.size is None else f.size * scale / 72
         lines.append(
-            f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, "
-            "style=filled, "
-            'fillcolor="#fde3e3", color="#c04040", label="", '
+            f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width={d:.3f}, "
+            f"height={d:.3f}, fixedsize=true, style=filled, "
+            'fillcolor="#fde3e380", color="#c04040", label="", '
             f"xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
             f'pos="{px:.1f},{py:.1f}!"];'
         )

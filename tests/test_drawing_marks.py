@@ -1,0 +1,37 @@
+"""What the drawings show, measured in the SVG Graphviz writes: sizes at the drawing's own scale,
+and the legend with its caution whichever Graphviz drew it."""
+
+import re
+import shutil
+import xml.etree.ElementTree as ET
+
+import pytest
+
+from helpers import EXAMPLES
+
+NS = "{http://www.w3.org/2000/svg}"
+HEADPHONE = next(p for p in EXAMPLES if p.name == "headphone-amp-100v.gplan")
+
+
+def _nodes(svg_path) -> dict[str, ET.Element]:
+    root = ET.parse(svg_path).getroot()
+    return {
+        g.find(NS + "title").text: g
+        for g in root.iter(NS + "g")
+        if "node" in g.get("class", "").split() and g.find(NS + "title") is not None
+    }
+
+
+@pytest.mark.skipif(shutil.which("neato") is None, reason="needs Graphviz")
+def test_a_field_source_is_drawn_at_its_stated_size(cli, tmp_path):
+    # the headphone example's toroid is stated 70 mm across; the scale bar under the drawing
+    # gives points per millimetre (its two ends' centres and its label), so the inner circle's
+    # diameter read back in millimetres is 70 within 2 %
+    out = tmp_path / "d.svg"
+    assert cli("draw", str(HEADPHONE), "-o", str(out))[0] == 0
+    nodes = _nodes(out)
+    ends = [float(nodes[f"frame:bar{k}"].find(NS + "ellipse").get("cx")) for k in (0, 1)]
+    label = "".join(nodes["frame:barlabel"].find(NS + "text").itertext())
+    per_mm = (ends[1] - ends[0]) / float(re.fullmatch(r"([\d.]+) mm", label)[1])
+    inner = min(float(e.get("rx")) for e in nodes["field:toroid"].iter(NS + "ellipse"))
+    assert 2 * inner / per_mm == pytest.approx(70.0, rel=0.02)
