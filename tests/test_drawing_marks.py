@@ -35,3 +35,32 @@ def test_a_field_source_is_drawn_at_its_stated_size(cli, tmp_path):
     per_mm = (ends[1] - ends[0]) / float(re.fullmatch(r"([\d.]+) mm", label)[1])
     inner = min(float(e.get("rx")) for e in nodes["field:toroid"].iter(NS + "ellipse"))
     assert 2 * inner / per_mm == pytest.approx(70.0, rel=0.02)
+
+
+def _legend(svg_path) -> tuple[list[str], list[str]]:
+    """The legend's words and its swatches' colours, in order."""
+    g = _nodes(svg_path)["legend"]
+    words = ["".join(t.itertext()) for t in g.iter(NS + "text")]
+    colours = [p.get("fill") for p in g.iter(NS + "polygon") if p.get("fill") not in ("none",)]
+    return [w for w in words if w.strip()], colours
+
+
+@pytest.mark.skipif(shutil.which("neato") is None, reason="needs Graphviz")
+@pytest.mark.parametrize("view", ["physical", "topology"])
+def test_both_renderers_draw_the_same_legend_and_caution(cli, tmp_path, view):
+    from groundcheck.renderers.drawing import available_renderers
+    from groundcheck.renderers.dotbase import DRAWING_CAUTION, LEGEND_ROWS
+
+    if "wasm" not in available_renderers():
+        pytest.skip("no WebAssembly Graphviz")
+    drawn = {}
+    for renderer in ("system", "wasm"):
+        out = tmp_path / f"{renderer}.svg"
+        argv = ("draw", str(HEADPHONE), "-o", str(out), "--view", view, "--renderer", renderer)
+        assert cli(*argv)[0] == 0
+        drawn[renderer] = _legend(out)
+    assert drawn["wasm"] == drawn["system"]
+    words, colours = drawn["wasm"]
+    # every row's words and colour, and the whole caution, line by line
+    assert words == ["legend", *(w for _, w in LEGEND_ROWS), *DRAWING_CAUTION]
+    assert colours == [c for c, _ in LEGEND_ROWS]

