@@ -64,3 +64,38 @@ def test_both_renderers_draw_the_same_legend_and_caution(cli, tmp_path, view):
     # every row's words and colour, and the whole caution, line by line
     assert words == ["legend", *(w for _, w in LEGEND_ROWS), *DRAWING_CAUTION]
     assert colours == [c for c, _ in LEGEND_ROWS]
+
+
+INSTALLATIONS = [
+    *sorted((HEADPHONE.parent / "studio").glob("*.gplan")),
+    *sorted(
+        (HEADPHONE.parent.parent / "tests" / "field" / "home-studio-step-down").glob("*.gplan")
+    ),
+]
+
+
+@pytest.mark.parametrize("path", INSTALLATIONS, ids=lambda p: p.stem)
+def test_a_device_without_a_cord_line_says_why(path):
+    # an installation's drawing joins each device's box to its plug point by its cord's protective
+    # core; a class II device has none, and its box, the text report and the HTML report say so
+    from groundcheck import analyze, load
+    from groundcheck.renderers.dot import element_class, physical_dot
+    from groundcheck.renderers.html import html_report
+    from groundcheck.renderers.system import CLASS_II_CORD
+    from groundcheck.renderers.text import text_report
+    from groundcheck.renderers.textearth import CLASS_II_WORDS
+
+    result = analyze(load(path))
+    dot, text = physical_dot(result), text_report(result)
+    page = html_report(result, None, None)
+    quiet = []
+    for d in result.plan.devices:
+        box = re.search(rf'"device:{re.escape(d.name)}" \[[^\n]*label="([^"]*)"', dot)[1]
+        cord = re.search(rf'class="{element_class(d.name + ".cord")}"', dot)
+        if cord is None:
+            quiet += [] if CLASS_II_CORD in box else [d.name]
+            assert f"{d.name}: {CLASS_II_WORDS}" in text and f"{d.name}: {CLASS_II_WORDS}" in page
+        else:
+            assert CLASS_II_CORD not in box
+    assert quiet == []
+    assert any(d.equipment_class == "II" for d in result.plan.devices) == (CLASS_II_WORDS in text)

@@ -8,6 +8,7 @@ from ..core.units import format_si
 from ..rules.results import Result
 from .htmlchart import spectrum_svg
 from .htmlparts import cell, inline_svg, plan_line_html
+from .textearth import CLASS_II_WORDS, class_ii_devices
 from .textwords import driver_words, figure_words
 
 __all__ = [
@@ -152,6 +153,8 @@ def installation_section(result: Result, parts: list[str], e=escape) -> None:
                 f"<tr><td>{e(d.device)}</td><td>{e(d.inlet)}</td><td class=num>{shown}</td></tr>"
             )
         parts.append("</table>")
+    for d in class_ii_devices(result.plan):
+        parts.append(f"<p>{e(d)}: {e(CLASS_II_WORDS)}.</p>")
     o = result.outlets
     if o is not None and o.pairs:
         parts.append(

@@ -12,7 +12,23 @@ from ..core.units import format_si
 from ..rules.results import Result
 from .textwords import TABLE_BONDING, TABLE_OUTLETS, driver_words, escape, number
 
-__all__ = ["protective_tables", "bonding_table", "outlet_table"]
+__all__ = [
+    "protective_tables",
+    "bonding_table",
+    "outlet_table",
+    "class_ii_devices",
+    "CLASS_II_WORDS",
+]
+
+#: what the reports say of a class II device, which has no earth path to list
+CLASS_II_WORDS = (
+    "class II, its cord has no protective core: no earth path to check, none listed or drawn"
+)
+
+
+def class_ii_devices(plan) -> list[str]:
+    """The names of an installation's class II devices, in the plan's order."""
+    return [d.name for d in plan.devices if d.equipment_class == "II"]
 
 
 def _loop_origin(result: Result) -> str:
@@ -69,6 +85,10 @@ def protective_tables(result: Result, console: Console) -> None:
         console.print()
     if result.device_earths:
         _device_earth_table(result.device_earths, console)
+    for d in class_ii_devices(result.plan):
+        console.print(f"  {escape(d)}: {CLASS_II_WORDS}")
+    if class_ii_devices(result.plan):
+        console.print()
 
 
 def bonding_table(result: Result, console: Console) -> None:
