@@ -30,6 +30,7 @@ from ..model.kinds import (
 )
 from ..rules.results import Result
 from .dotbase import (
+    LEGEND_SIZE,
     LIFT_STYLE,
     LOOP_HALO,
     PROBLEM_HALO,
@@ -67,12 +68,22 @@ def physical_dot(result: Result) -> str:
         return system_dot(result)
     marks = _problems(result)
     positioned = {p.name: p.pos for p in plan.points if p.pos is not None}
-    xs = [q[0] for q in positioned.values()] + [
-        m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])
-    ]
-    ys = [q[1] for q in positioned.values()] + [
-        m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])
-    ]
+    # the extent: points, metal parts, the routes' waypoints and the field sources' circles, so
+    # that the legend beside it covers none of them
+    routes = [w for c in plan.conductors for w in c.route]
+    fields = [(f.pos, (f.size or 0) / 2) for f in plan.fields]
+    xs = (
+        [q[0] for q in positioned.values()]
+        + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
+        + [w[0] for w in routes]
+        + [q[0] + d for q, r in fields for d in (-r, r)]
+    )
+    ys = (
+        [q[1] for q in positioned.values()]
+        + [m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])]
+        + [w[1] for w in routes]
+        + [q[1] + d for q, r in fields for d in (-r, r)]
+    )
     if not xs:
         return topology_dot(result)
     x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
@@ -106,7 +117,8 @@ def physical_dot(result: Result) -> str:
             f'  {dot_quote("note:omitted")} [shape=note, fontsize=9, fontcolor="#a04000", '
             f'color="#a04000", label={dot_quote(note)}, pos="{20:.1f},{-30:.1f}!"];'
         )
-    lines.append(_legend((x1 - x0) * scale + 150, 80))
+    # the legend clear of the drawing and of the labels Graphviz puts beside its right edge
+    lines.append(_legend((x1 - x0) * scale + 20 + 90 + LEGEND_SIZE[0] / 2, 80))
     lines.append("}")
     return "\n".join(lines) + "\n"
 
