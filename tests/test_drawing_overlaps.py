@@ -22,9 +22,6 @@ PLANS = [
     *sorted((ROOT / "tests" / "field").glob("*/*.gplan")),
 ]
 AREAS = ("metal:", "field:", "device:", "note:", "legend", "frame:", "lane:")
-#: a plan whose physical drawing is still too crowded: its footswitch box 2.5 m away shrinks the
-#: 480 mm chassis to 136 points across, too narrow for its thirty labels
-CROWDED = {"tests/field/guitar-combo-reverb/plan.gplan"}
 
 
 def boxes(svg: bytes):
@@ -82,7 +79,6 @@ def test_the_measure_finds_an_overlap():
 @pytest.mark.parametrize("path", PLANS, ids=lambda p: str(p.relative_to(ROOT)))
 def test_no_label_overlaps_a_label_or_a_mark(path):
     result = analyze(load(path))
-    crowded = str(path.relative_to(ROOT)) in CROWDED
     found = {}
     for renderer in [r for r in ("system", "wasm") if r in available_renderers()]:
         for view, source, engine in (
@@ -90,9 +86,6 @@ def test_no_label_overlaps_a_label_or_a_mark(path):
             ("topology", topology_dot(result), "dot"),
         ):
             hits = overlaps(render_dot(source, "svg", engine, renderer)[0])
-            if hits and not (crowded and view == "physical"):
+            if hits:
                 found[f"{view} by {renderer}"] = hits
-            elif crowded and view == "physical":
-                # the crowded drawing still overlaps; the day it does not, it leaves CROWDED
-                assert hits, f"{path} no longer crowded: take it off CROWDED"
     assert found == {}

@@ -88,6 +88,10 @@ def physical_dot(result: Result) -> str:
         return topology_dot(result)
     x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
     extent = max(x1 - x0, y1 - y0, 1e-3)
+    if y1 - y0 > 3 * (x1 - x0):
+        # a part far behind the rest (a footswitch on its cable) would squeeze the chassis into a
+        # strip too narrow for its labels: the drawing grows tall instead, up to 30 in
+        extent = max(x1 - x0, (y1 - y0) / 3, 1e-3)
     scale = 720.0 / extent  # points per metre: the drawing is about 10 in across
 
     def P(q):
