@@ -68,25 +68,10 @@ def physical_dot(result: Result) -> str:
         return system_dot(result)
     marks = _problems(result)
     positioned = {p.name: p.pos for p in plan.points if p.pos is not None}
-    # the extent: points, metal parts, the routes' waypoints and the field sources' circles, so
-    # that the legend beside it covers none of them
-    routes = [w for c in plan.conductors for w in c.route]
-    fields = [(f.pos, (f.size or 0) / 2) for f in plan.fields]
-    xs = (
-        [q[0] for q in positioned.values()]
-        + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
-        + [w[0] for w in routes]
-        + [q[0] + d for q, r in fields for d in (-r, r)]
-    )
-    ys = (
-        [q[1] for q in positioned.values()]
-        + [m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])]
-        + [w[1] for w in routes]
-        + [q[1] + d for q, r in fields for d in (-r, r)]
-    )
-    if not xs:
+    box = _extent(plan, positioned)
+    if box is None:
         return topology_dot(result)
-    x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
+    x0, x1, y0, y1 = box
     extent = max(x1 - x0, y1 - y0, 1e-3)
     if y1 - y0 > 3 * (x1 - x0):
         # a part far behind the rest (a footswitch on its cable) would squeeze the chassis into a
@@ -125,6 +110,29 @@ def physical_dot(result: Result) -> str:
     lines.append(_legend((x1 - x0) * scale + 20 + 90 + LEGEND_SIZE[0] / 2, 80))
     lines.append("}")
     return "\n".join(lines) + "\n"
+
+
+def _extent(plan, positioned: dict):
+    """(x0, x1, y0, y1) in metres: the points, metal parts, the routes' waypoints and the field
+    sources' circles, so that the legend beside them covers none; None without a point or part
+    placed."""
+    routes = [w for c in plan.conductors for w in c.route]
+    fields = [(f.pos, (f.size or 0) / 2) for f in plan.fields]
+    xs = (
+        [q[0] for q in positioned.values()]
+        + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
+        + [w[0] for w in routes]
+        + [q[0] + d for q, r in fields for d in (-r, r)]
+    )
+    ys = (
+        [q[1] for q in positioned.values()]
+        + [m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])]
+        + [w[1] for w in routes]
+        + [q[1] + d for q, r in fields for d in (-r, r)]
+    )
+    if not positioned and not any(m.size for m in plan.metals):
+        return None
+    return min(xs), max(xs), min(ys), max(ys)
 
 
 #: scale bar lengths to choose from, m

@@ -67,7 +67,8 @@ def pickup_section(result: Result, parts: list[str], e=escape) -> None:
         "<h2>Loop pickup</h2><p>The EMF each field source induces around each ground loop (rms, "
         "per harmonic) and the current it drives round the loop; the loop numbers are those of "
         'the ground-loop table.</p><table id="pickup"><tr><th>loop</th><th>area</th>'
-        "<th>source</th><th>model</th><th>direction</th><th>closest</th><th>frequency</th><th>EMF</th>"
+        "<th>source</th><th>model</th><th>direction</th><th>closest</th><th>frequency</th>"
+        "<th>EMF</th>"
         "<th>loop current</th></tr>"
     )
     for row, name, s in rows:
