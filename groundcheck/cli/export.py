@@ -14,8 +14,10 @@ __all__ = ["cmd_export"]
 @command(
     "export",
     help="write the ground network in another format",
-    description="Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format "
-    "spice -o ground.cir",
+    description="The plan's ground network (each conductor's resistance, inductance and "
+    "capacitance, and the plan's current sources) as a netlist a circuit simulator reads.\n\n"
+    "Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format spice -o "
+    "ground.cir",
     epilog=written_epilog("the netlist"),
     formats=NETLIST_FORMATS,
     options=(
