@@ -209,7 +209,7 @@ def _sources_for(p, c):
 @pytest.mark.parametrize("freq", [None, 100.0, 2500.0])
 def test_examples_match_ngspice(path, freq):
     """groundcheck's nodal solve of every example against ngspice (.op, and .ac at 100 Hz and 2.5
-    kHz) on the netlist `groundcheck export --spice` writes: node voltages agree to 1e-6 of the
+    kHz) on the netlist `groundcheck export` writes: node voltages agree to 1e-6 of the
     largest."""
     p = load(path)
     c = build_circuit(p)
@@ -251,7 +251,7 @@ def test_random_networks_match_ngspice(seed):
 
 @needs_ngspice
 def test_exported_netlist_reproduces_the_rectifier_hum_in_ngspice(cli, tmp_path):
-    """`groundcheck export --spice --frequency 100` of the dual-mono example carries the
+    """`groundcheck export --frequency 100` of the dual-mono example carries the
     rectifiers' simulated 100 Hz charging currents (magnitude and phase): ngspice's AC solve of
     that file gives groundcheck's node voltages for the same currents to 1e-6 of the largest."""
     path = next(e for e in EXAMPLES if e.name.startswith("dual-mono"))

@@ -258,7 +258,9 @@ def test_html_report_shows_each_findings_plan_line_coloured(tmp_path, cli):
     )
     # the drawings' note names the program of each view
     assert "the physical view by" in text and "the topology by" in text and "(dot)" in text
-    assert 'class="drawing natural" id="topology"' in text  # the topology at full size, scrolled
+    # the topology fits the column, and a box shows it at full size (scrolled;
+    # tests/test_html_tables.py measures both in a browser)
+    assert 'class="drawing fits" id="topology"' in text and 'id="topology-zoom"' in text
 
 
 def test_compare_page_has_totals_charts_and_both_drawings(tmp_path, cli):

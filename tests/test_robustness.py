@@ -235,7 +235,7 @@ def test_refuses_every_output_over_the_plan(cli, tmp_path):
         ["check", str(p), "--format", "sarif", "-o", str(p)],
         ["draw", str(p), "-o", str(tmp_path / "p.gplan.svg")],
         ["report", str(p), "-o", str(p)],
-        ["export", str(p), "--spice", "-o", str(p)],
+        ["export", str(p), "--format", "spice", "-o", str(p)],
     ):
         cli(*argv)
     assert p.read_bytes() == before

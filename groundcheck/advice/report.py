@@ -113,23 +113,7 @@ def suggestions_text(
     if not useful:
         out.append("No change found that improves the plan.")
     for i, e in enumerate(useful, 1):
-        hum = "; ".join(
-            _hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch])
-            for ch in e.hum_change_db
-        )
-        out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
-        cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")
-        out.append(
-            f"   predicted: {hum or 'no hum figures'}; {cleared}"
-            + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else "")
-        )
-        out.append(
-            "   "
-            + unified_diff(text, e.candidate.edits, name, _base(plan))
-            .replace("\n", "\n   ")
-            .rstrip()
-        )
-        out.append("")
+        out += _suggestion_lines(i, e, plan, text, name)
     if rejected:
         out.append("Considered and rejected:")
         out.extend(f"  - {e.candidate.title}: {e.rejected}" for e in rejected)
@@ -141,6 +125,33 @@ def suggestions_text(
             + "; ".join(e.candidate.title for e in untried[:3])
         )
         out.append("")
+    out += _combined_lines(chosen, final)
+    return "\n".join(out) + "\n"
+
+
+def _suggestion_lines(i: int, e: Evaluation, plan: Plan, text: str, name: str) -> list[str]:
+    """Suggestion ``i``: its title, its predicted effect and its diff."""
+    out = []
+    hum = "; ".join(
+        _hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch]) for ch in e.hum_change_db
+    )
+    out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
+    cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")
+    out.append(
+        f"   predicted: {hum or 'no hum figures'}; {cleared}"
+        + (f"; introduces: {', '.join(e.introduced)}" if e.introduced else "")
+    )
+    out.append(
+        "   "
+        + unified_diff(text, e.candidate.edits, name, _base(plan)).replace("\n", "\n   ").rstrip()
+    )
+    out.append("")
+    return out
+
+
+def _combined_lines(chosen: list[Evaluation], final: Result) -> list[str]:
+    """The combined set: its changes, the findings it leaves, the verdict and hum after."""
+    out = []
     n = len(chosen)
     out.append(
         f"Combined (best first, each re-checked on the plan as changed so far): {n} change"
@@ -160,4 +171,4 @@ def suggestions_text(
         out.append(
             "  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items())
         )
-    return "\n".join(out) + "\n"
+    return out

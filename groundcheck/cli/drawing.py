@@ -19,12 +19,25 @@ from .common import (
     load_plan,
     options_of,
 )
-from .registry import EPILOG, FormatOption, command, opt
+from .registry import FormatOption, command, opt
 
-__all__ = ["cmd_draw", "cmd_report", "WRITE_EPILOG", "RENDERER"]
+__all__ = ["cmd_draw", "cmd_report", "written_epilog", "RENDERER"]
 
-#: commands that write a file and judge nothing (draw, export)
-WRITE_EPILOG = "Exit status: 0 the file was written, 2 the plan or the command could not be used."
+
+def written_epilog(what: str) -> str:
+    """The exit statuses of a command that writes ``what`` and judges nothing (draw, export)."""
+    return (
+        f"Exit status: 0 {what} was written, 2 the plan or the command could not be used (nothing "
+        "written)."
+    )
+
+
+#: the report's exit statuses: it judges the plan as check does
+REPORT_EPILOG = (
+    "Exit status: 0 the report was written and no finding reaches --fail-on, 1 the report was "
+    "written and a finding reaches --fail-on, 2 the plan or the command could not be used (no "
+    "report written)."
+)
 
 #: which Graphviz draws (draw, report, watch)
 RENDERER = opt(
@@ -41,7 +54,7 @@ RENDERER = opt(
     description="Draw the physical view (metal parts, points at their positions, conductors "
     "by role, loops and problems marked) or the topology view.\n\nExample:\n  groundcheck "
     "draw examples/headphone-amp-100v.gplan -o ground.svg",
-    epilog=WRITE_EPILOG,
+    epilog=written_epilog("the drawing"),
     formats=DRAWING_FORMATS,
     options=(
         opt("plan", metavar="PLAN"),
@@ -122,9 +135,9 @@ def _drawing_format(fmt: str, output: str) -> str:
     "report",
     help="write a self-contained HTML report",
     description="One HTML file with the summary, findings, drawings, hum spectrum and "
-    "protective-earth table; no network fetches.\n\nExample:\n  groundcheck report "
-    "examples/dual-mono-phono-stage.gplan -o report.html",
-    epilog=EPILOG,
+    "protective-earth, rectifier and loop-pickup tables; no network fetches.\n\nExample:\n  "
+    "groundcheck report examples/dual-mono-phono-stage.gplan -o report.html",
+    epilog=REPORT_EPILOG,
     options=(
         opt("plan", metavar="PLAN"),
         opt(

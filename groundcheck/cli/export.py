@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from ..renderers.formats import NETLIST_FORMATS
 from .common import load_plan, quantity_type, write_output
-from .drawing import WRITE_EPILOG
+from .drawing import written_epilog
 from .registry import FORMAT, FormatOption, command, opt
 
 __all__ = ["cmd_export"]
@@ -14,9 +14,11 @@ __all__ = ["cmd_export"]
 @command(
     "export",
     help="write the ground network in another format",
-    description="Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format "
-    "spice -o ground.cir",
-    epilog=WRITE_EPILOG,
+    description="The plan's ground network (each conductor's resistance, inductance and "
+    "capacitance, and the plan's current sources) as a netlist a circuit simulator reads.\n\n"
+    "Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format spice -o "
+    "ground.cir",
+    epilog=written_epilog("the netlist"),
     formats=NETLIST_FORMATS,
     options=(
         opt("plan", metavar="PLAN"),
@@ -27,12 +29,12 @@ __all__ = ["cmd_export"]
                 "(R, L, C and the plan's current sources; the default)"
             ),
         ),
-        opt("--spice", action="store_true", help="the same as --format spice"),
         opt(
             "--frequency",
             type=quantity_type("frequency", "Hz"),
             metavar="HZ",
-            help="AC analysis at this frequency (default: DC operating point)",
+            help="an AC netlist at this frequency, printing every node's voltage (default: a DC "
+            "operating point)",
         ),
         opt(
             "-o",

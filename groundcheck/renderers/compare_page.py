@@ -14,7 +14,8 @@ from ..core.units import format_si
 from ..core.version import __version__
 from ..rules.catalogue import SEVERITIES
 from ..rules.results import Result
-from .html import CSS, _f, _inline_svg, chart_frame
+from .htmlchart import chart_frame
+from .htmlparts import CSS, cell, inline_svg
 
 __all__ = ["compare_page", "pair_chart"]
 
@@ -165,6 +166,22 @@ def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None 
                 f'<h3>{e(ch)}</h3><div class="chart">'
                 f"{pair_chart(ch, h['spectrum'], after.options.max_frequency)}</div>"
             )
+    _earth_and_outlets(d, parts)
+    if drawings:
+        parts.append(
+            '<h2>Physical drawings</h2><div style="display:flex;gap:1em;flex-wrap:wrap">'
+            f'<div class="drawing" id="before" style="flex:1 1 400px"><h3>before</h3>'
+            f"{inline_svg(drawings[0])}</div>"
+            f'<div class="drawing" id="after" style="flex:1 1 400px"><h3>after</h3>'
+            f"{inline_svg(drawings[1])}</div></div>"
+        )
+    parts.append("</body></html>")
+    return "\n".join(parts) + "\n"
+
+
+def _earth_and_outlets(d: dict, parts: list[str], e=escape) -> None:
+    """The protective-earth paths and the voltage between the outlets each interconnect joins,
+    before and after."""
     parts.append(
         '<h2>Protective earth</h2><table id="protective-earth"><tr><th>part</th><th>path '
         "before</th>"
@@ -174,8 +191,9 @@ def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None 
         ohms = [_ohms(p[k]) for k in ("before_ohm", "after_ohm")]
         parts.append(
             f"<tr><td>{e(p['part'])}</td><td class=num>{ohms[0]}</td><td "
-            f"class=num>{ohms[1]}</td><td class=num>{_f(p['touch_before_v'], '{:.3g} V')}</td><td "
-            f"class=num>{_f(p['touch_after_v'], '{:.3g} V')}</td></tr>"
+            f"class=num>{ohms[1]}</td><td "
+            f"class=num>{cell(p['touch_before_v'], '{:.3g} V')}</td><td "
+            f"class=num>{cell(p['touch_after_v'], '{:.3g} V')}</td></tr>"
         )
     parts.append("</table>")
     if d.get("outlets"):
@@ -199,13 +217,3 @@ def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None 
                 f"<tr><td>{e(o['interconnect'])}</td><td>{e(o['between'])}</td>{cells}</tr>"
             )
         parts.append("</table>")
-    if drawings:
-        parts.append(
-            '<h2>Physical drawings</h2><div style="display:flex;gap:1em;flex-wrap:wrap">'
-            f'<div class="drawing" id="before" style="flex:1 1 400px"><h3>before</h3>'
-            f"{_inline_svg(drawings[0])}</div>"
-            f'<div class="drawing" id="after" style="flex:1 1 400px"><h3>after</h3>'
-            f"{_inline_svg(drawings[1])}</div></div>"
-        )
-    parts.append("</body></html>")
-    return "\n".join(parts) + "\n"

@@ -30,6 +30,7 @@ from ..model.kinds import (
 )
 from ..rules.results import Result
 from .dotbase import (
+    LEGEND_SIZE,
     LIFT_STYLE,
     LOOP_HALO,
     PROBLEM_HALO,
@@ -40,6 +41,7 @@ from .dotbase import (
     legend as _legend,
     problems as _problems,
 )
+from .dottopology import topology_dot
 from .system import system_dot
 
 __all__ = [
@@ -66,16 +68,15 @@ def physical_dot(result: Result) -> str:
         return system_dot(result)
     marks = _problems(result)
     positioned = {p.name: p.pos for p in plan.points if p.pos is not None}
-    xs = [q[0] for q in positioned.values()] + [
-        m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])
-    ]
-    ys = [q[1] for q in positioned.values()] + [
-        m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])
-    ]
-    if not xs:
+    box = _extent(plan, positioned)
+    if box is None:
         return topology_dot(result)
-    x0, x1, y0, y1 = min(xs), max(xs), min(ys), max(ys)
+    x0, x1, y0, y1 = box
     extent = max(x1 - x0, y1 - y0, 1e-3)
+    if y1 - y0 > 3 * (x1 - x0):
+        # a part far behind the rest (a footswitch on its cable) would squeeze the chassis into a
+        # strip too narrow for its labels: the drawing grows tall instead, up to 30 in
+        extent = max(x1 - x0, (y1 - y0) / 3, 1e-3)
     scale = 720.0 / extent  # points per metre: the drawing is about 10 in across
 
     def P(q):
@@ -94,7 +95,7 @@ def physical_dot(result: Result) -> str:
     _points(plan, marks, positioned, P, lines)
     _conductors(result, marks, positioned, P, lines)
     _metal_loops(result, positioned, lines)
-    _fields(plan, P, lines)
+    _fields(plan, scale, P, lines)
     missing = physical_omissions(result)
     if any(missing):
         note = (
@@ -105,9 +106,33 @@ def physical_dot(result: Result) -> str:
             f'  {dot_quote("note:omitted")} [shape=note, fontsize=9, fontcolor="#a04000", '
             f'color="#a04000", label={dot_quote(note)}, pos="{20:.1f},{-30:.1f}!"];'
         )
-    lines.append(_legend((x1 - x0) * scale + 150, 80))
+    # the legend clear of the drawing and of the labels Graphviz puts beside its right edge
+    lines.append(_legend((x1 - x0) * scale + 20 + 90 + LEGEND_SIZE[0] / 2, 80))
     lines.append("}")
     return "\n".join(lines) + "\n"
+
+
+def _extent(plan, positioned: dict):
+    """(x0, x1, y0, y1) in metres: the points, metal parts, the routes' waypoints and the field
+    sources' circles, so that the legend beside them covers none; None without a point or part
+    placed."""
+    routes = [w for c in plan.conductors for w in c.route]
+    fields = [(f.pos, (f.size or 0) / 2) for f in plan.fields]
+    xs = (
+        [q[0] for q in positioned.values()]
+        + [m.origin[0] + d for m in plan.metals if m.size for d in (0, m.size[0])]
+        + [w[0] for w in routes]
+        + [q[0] + d for q, r in fields for d in (-r, r)]
+    )
+    ys = (
+        [q[1] for q in positioned.values()]
+        + [m.origin[1] + d for m in plan.metals if m.size for d in (0, m.size[1])]
+        + [w[1] for w in routes]
+        + [q[1] + d for q, r in fields for d in (-r, r)]
+    )
+    if not positioned and not any(m.size for m in plan.metals):
+        return None
+    return min(xs), max(xs), min(ys), max(ys)
 
 
 #: scale bar lengths to choose from, m
@@ -289,27 +314,23 @@ def _metal_loops(result, positioned, lines) -> None:
         )
 
 
-def _fields(plan, P, lines) -> None:
+#: the drawn diameter of a field source whose size the plan does not state, inches
+FIELD_MARK = 0.3
+
+
+def _fields(plan, scale: float, P, lines) -> None:
+    """Each field source as a double circle at its place: as wide as its stated size (at the
+    drawing's scale, ``scale`` points per metre), a small mark when none is stated."""
     for f in plan.fields:
         px, py = P(f.pos)
+        d = FIELD_MARK if f.size is None else f.size * scale / 72
         lines.append(
-            f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width=0.3, height=0.3, "
-            "style=filled, "
-            'fillcolor="#fde3e3", color="#c04040", label="", '
+            f"  {dot_quote('field:' + f.name)} [shape=doublecircle, width={d:.3f}, "
+            f"height={d:.3f}, fixedsize=true, style=filled, "
+            'fillcolor="#fde3e380", color="#c04040", label="", '
             f"xlabel={dot_quote(f.name + ' (' + f.kind + ')')}, "
             f'pos="{px:.1f},{py:.1f}!"];'
         )
-
-
-def _clusters(plan) -> dict[str, str]:
-    """Each point or metal part placed by a device or block placement -> that placement's name."""
-    out = {p.name: p.group.split(".", 1)[0] for p in plan.points if p.group}
-    groups = set(out.values())
-    for m in plan.metals:
-        head = m.name.split(".", 1)[0]
-        if "." in m.name and head in groups:
-            out[m.name] = head
-    return out
 
 
 def physical_omissions(result: Result) -> tuple[int, int]:
@@ -329,78 +350,3 @@ def physical_omissions(result: Result) -> tuple[int, int]:
         if not is_fastening_kind(c.kind) and not (c.a in positioned and c.b in positioned)
     )
     return points, conductors
-
-
-def topology_dot(result: Result) -> str:
-    """The topology view, laid out automatically: every point, part and conductor, for plans
-    without positions."""
-    plan = result.plan
-    marks = _problems(result)
-    lines = [
-        "graph topology {",
-        f"  graph [label={dot_quote(plan.title)}, labelloc=t, fontsize=14, fontname=Helvetica, "
-        "rankdir=LR, overlap=false];",
-        "  node [fontname=Helvetica, fontsize=9];",
-        "  edge [fontname=Helvetica, fontsize=8];",
-    ]
-    clusters = _clusters(plan)
-    node_lines: dict[str | None, list[str]] = {}
-    for m in plan.metals:
-        style = {
-            "shape": "box",
-            "style": "rounded,filled",
-            "fillcolor": "#f3f0e8",
-            "label": m.name,
-            "color": "#e03030" if m.name in marks else "#9a9a9a",
-            "class": element_class(m.name),
-        }
-        node_lines.setdefault(clusters.get(m.name), []).append(
-            f"  {dot_quote(m.name)} [{_attrs(style)}];"
-        )
-    for p in plan.points:
-        label = p.name + (f" [{', '.join(marks[p.name])}]" if p.name in marks else "")
-        style = {"shape": "ellipse", "label": label, "class": element_class(p.name)}
-        if p.kind == "star":
-            style.update(
-                shape="star",
-                width="0.4",
-                height="0.4",
-                fixedsize="true",
-                label="",
-                xlabel=label,
-                style="filled",
-                fillcolor="#ffd54f",
-            )
-        elif p.name == "mains.pe":
-            style.update(shape="triangle", style="filled", fillcolor="#bfe3c0")
-        if p.name in marks:
-            style.update(color="#e03030", penwidth="2")
-        node_lines.setdefault(clusters.get(p.name), []).append(
-            f"  {dot_quote(p.name)} [{_attrs(style)}];"
-        )
-    for key in sorted(node_lines, key=lambda k: (k is not None, k or "")):
-        if key is None:
-            lines.extend(node_lines[key])
-            continue
-        # each device or block placement in a box of its own
-        lines.append(
-            f"  subgraph {dot_quote('cluster_' + key)} {{ label={dot_quote(key)}; style=rounded; "
-            'color="#b0b0b0"; fontcolor="#606060"; fontsize=11;'
-        )
-        lines.extend("  " + x for x in node_lines[key])
-        lines.append("  }")
-    for c in plan.conductors:
-        style = dict(LIFT_STYLE if is_lift(c) else ROLE_STYLE.get(c.role, ROLE_STYLE[SIGNAL]))
-        style["label"] = c.name + (
-            " [" + ", ".join(marks[c.name]) + "]" if c.name in marks else ""
-        )
-        style["class"] = element_class(c.name)
-        if not c.connects:
-            style["style"] = "dotted"
-        if c.name in marks:
-            style["fontcolor"] = "#b00000"
-            style["color"] = f"{PROBLEM_HALO}:{style['color']}:{PROBLEM_HALO}"
-        lines.append(f"  {dot_quote(c.a)} -- {dot_quote(c.b)} [{_attrs(style)}];")
-    lines.append(_legend(0, 0).replace(', pos="0.0,0.0!"', ""))
-    lines.append("}")
-    return "\n".join(lines) + "\n"

@@ -21,6 +21,8 @@ __all__ = [
     "attrs",
     "problems",
     "legend",
+    "LEGEND_ROWS",
+    "LEGEND_SIZE",
 ]
 
 ROLE_STYLE = {
@@ -77,19 +79,27 @@ def problems(result: Result):
     return {k: sorted(v) for k, v in marks.items()}
 
 
+#: the legend's rows: a swatch's colour and what it stands for (both renderers draw these)
+LEGEND_ROWS = (
+    ("#2f7d32", "protective earth (green-and-yellow)"),
+    ("#d2691e", "supply return"),
+    ("#1f5fa8", "signal reference"),
+    ("#7a7a7a", "shield (dashed)"),
+    ("#404040", "fastening (dotted)"),
+    ("#7b3fa0", "lift network (dashed)"),
+    ("#f5a800", "ground loop (band)"),
+    ("#e03030", "problem (halo, codes)"),
+)
+#: the legend's size in points as Graphviz lays out its table (the node asks for as much, so that a
+#: Graphviz without HTML labels leaves the same room; :func:`~.drawing.draw_legend` fills it)
+LEGEND_SIZE = (245.0, 194.0)
+
+
 def legend(x: float, y: float) -> str:
-    rows = [
-        ("#2f7d32", "protective earth (green-and-yellow)"),
-        ("#d2691e", "supply return"),
-        ("#1f5fa8", "signal reference"),
-        ("#7a7a7a", "shield (dashed)"),
-        ("#404040", "fastening (dotted)"),
-        ("#7b3fa0", "lift network (dashed)"),
-        ("#f5a800", "ground loop (band)"),
-        ("#e03030", "problem (halo, codes)"),
-    ]
+    """The legend node: a table of swatches and the drawing's caution, at (x, y) points."""
     cells = "".join(
-        f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>' for c, t in rows
+        f'<TR><TD BGCOLOR="{c}" WIDTH="18"> </TD><TD ALIGN="LEFT">{t}</TD></TR>'
+        for c, t in LEGEND_ROWS
     )
     caution = "<BR/>".join(escape(x) for x in DRAWING_CAUTION)
     label = (
@@ -97,4 +107,9 @@ def legend(x: float, y: float) -> str:
         f'COLSPAN="2"><B>legend</B></TD></TR>{cells}<TR><TD COLSPAN="2" ALIGN="LEFT"><FONT '
         f'COLOR="#8a4b00">{caution}</FONT></TD></TR></TABLE>>'
     )
-    return f'  legend [shape=plaintext, fontsize=9, pos="{x:.1f},{y:.1f}!", label={label}];'
+    # a little under the table's size: the table decides it where HTML labels are read
+    w, h = (v / 72 - 0.005 for v in LEGEND_SIZE)
+    return (
+        f"  legend [shape=plaintext, fontsize=9, width={w:.3f}, height={h:.3f}, "
+        f'pos="{x:.1f},{y:.1f}!", label={label}];'
+    )

