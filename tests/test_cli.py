@@ -122,7 +122,7 @@ def test_the_caution_is_in_every_output(cli, tmp_path):
 
 def test_export_spice(cli, tmp_path):
     out_file = tmp_path / "g.cir"
-    code, out, _ = cli("export", DUAL, "--spice", "-o", str(out_file))
+    code, out, _ = cli("export", DUAL, "--format", "spice", "-o", str(out_file))
     assert code == 0
     text = out_file.read_text()
     assert (
@@ -344,3 +344,17 @@ def test_each_command_states_only_exit_statuses_it_can_give(cli, tmp_path):
     assert cli("export", HEADPHONE, "-o", str(tmp_path / "g.cir"))[0] == 0
     assert cli("draw", HEADPHONE, "-o", str(tmp_path / "g.dot"))[0] == 0
     assert cli("check", HEADPHONE)[0] == 1  # the same plan has faults
+    # the report judges the plan as check does: written either way, 1 when a finding reaches
+    # --fail-on
+    assert re.findall(r"(?:: |, )(\d) ", sub.choices["report"].epilog) == ["0", "1", "2"]
+    assert cli("report", HEADPHONE, "-o", str(tmp_path / "r.html"))[0] == 1
+    assert (tmp_path / "r.html").exists()
+
+
+def test_export_has_no_option_that_does_nothing(cli):
+    # --spice once said the same as --format spice, the only format and the default
+    code, _, err = cli("export", HEADPHONE, "--spice")
+    assert code == 2 and "--spice" in err
+    plain, at_dc = cli("export", HEADPHONE)[1], cli("export", HEADPHONE, "--format", "spice")[1]
+    assert plain == at_dc and ".op" in plain
+    assert ".ac lin 1 100 100" in cli("export", HEADPHONE, "--frequency", "100")[1]

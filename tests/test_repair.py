@@ -192,7 +192,8 @@ def test_loop_closed_by_the_protective_earth_gets_no_suggestion_touching_it(tmp_
     # for opening
     assert {"pe_a", "pe_b", "n1", "n2"} <= result.protective
     assert [lp.open_at for lp in result.loops] == [""]
-    assert candidates(plan, result, PE_ONLY_LOOP) == []
+    # (its glass fuse is GC211's: a high-breaking fuse is offered, an edit of the mains statement)
+    assert [c for c in candidates(plan, result, PE_ONLY_LOOP) if c.action != "fuse"] == []
     protective = {"pe_a", "pe_b"}
     for c in candidates(plan, result, PE_ONLY_LOOP):
         lines = {e.line for e in c.edits}

@@ -243,7 +243,7 @@ OTHER_VOCABULARIES = {
     ("rules/catalogue_pe.py", "bond"): "repair action names",
     ("advice/compare.py", "interconnect"): "a key of the outlet rows (physics/outlets.py)",
     ("renderers/compare_page.py", "interconnect"): "a key of the outlet rows",
-    ("renderers/text.py", "interconnect"): "a heading of the outlet table",
+    ("renderers/textearth.py", "interconnect"): "a heading of the outlet table",
     ("renderers/jsondoc.py", "interconnect"): "a key of the JSON document's outlet rows",
     ("renderers/jsondoc.py", "cable"): "a key of the JSON document's cable rows",
     ("renderers/live.py", "protective"): "a section of the live page",

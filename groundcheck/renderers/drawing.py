@@ -134,15 +134,18 @@ def _meet(a, b, gap: float = 0.5) -> bool:
 
 #: where a label may move, tried in turn: (share of its width sideways, lines down); down first,
 #: then up, then half its width to either side
-_MOVES = [(0.0, k) for k in (0, 1, -1, 2, -2, 3, -3, 4, -4, 5, 6, 7, 8)] + [
-    (side, k) for k in (0, 1, -1, 2, -2) for side in (0.55, -0.55)
-]
+_MOVES = (
+    [(0.0, k) for k in (0, 1, -1, 2, -2, 3, -3, 4, -4, 5, 6, 7, 8)]
+    + [(side, k) for k in (0, 1, -1, 2, -2) for side in (0.55, -0.55)]
+    + [(side, k) for k in (0, 1, -1, 2, -2, 3, -3, 4) for side in (1.1, -1.1)]
+)
 
 
 def declutter_svg(svg: bytes) -> bytes:
     """Move a label down or up, a line at a time (down first), until its box meets no other
     label's and no other node's mark (a small overlap-removal pass after Graphviz's own placement;
-    each label moves at most four lines up or eight down, or half its width sideways)."""
+    each label moves at most four lines up or eight down, or half or a whole width sideways; with
+    no room anywhere, where it meets the fewest)."""
     owner = {}  # where each text starts -> the title of its node or edge
     for g in _GROUP.finditer(svg):
         for t in _TEXT.finditer(svg, g.start(3), g.end(3)):
@@ -156,13 +159,19 @@ def declutter_svg(svg: bytes) -> bytes:
         others = [b for name, boxes in marks.items() if name != mine for b in boxes]
         size = _size(m)
         width = _box(m)[2] - _box(m)[0]
+        best = None  # no room anywhere: the move that meets the fewest
         for dx, step in _MOVES:
             dx, dy = dx * width, step * size * 1.1
             box = _box(m, dy, dx)
-            if not m.group(5).strip() or not any(_meet(box, b) for b in (*placed, *others)):
+            if not m.group(5).strip():
                 break
+            meets = sum(_meet(box, b) for b in (*placed, *others))
+            if not meets:
+                break
+            if best is None or meets < best[0]:
+                best = (meets, dx, dy)
         else:
-            dx, dy = 0.0, 8 * size * 1.1  # no room within eight lines: as far down as it goes
+            _, dx, dy = best
         placed.append(_box(m, dy, dx))
         if dy or dx:
             shifts[k] = (dx, dy)
