@@ -62,7 +62,7 @@ def _stop(proc, how=signal.SIGTERM) -> str:
     """A signal (SIGTERM, or SIGINT as Ctrl-C sends), then everything it wrote to standard error
     not read yet."""
     proc.send_signal(how)
-    proc.wait(20)
+    proc.wait(45)  # a bound, not a timing (well under a second here)
     proc.reader.join(10)
     out = []
     while not proc.lines.empty():
