@@ -2,6 +2,7 @@
 SARIF."""
 
 import json
+from pathlib import Path
 from urllib.parse import unquote
 import re
 import shutil
@@ -279,3 +280,12 @@ def test_compare_page_has_totals_charts_and_both_drawings(tmp_path, cli):
     assert 'id="before"' in page and 'id="after"' in page and page.count("<svg") >= 4
     assert "<td class=num>4 Ω</td>" in page  # the front panel's 4 ohm contact
     assert "Never lift the protective earth" in page
+
+
+def test_the_earth_line_names_protective_findings_a_path_within_its_limit_does_not_show(cli):
+    # the field plan push-pull-el84: its protective path is a few milliohms, but the protective
+    # earth shares the transformer's stud (GC202); the summary line says so
+    plan = Path(__file__).resolve().parent / "field" / "push-pull-el84" / "plan.gplan"
+    _, out, _ = cli("check", str(plan), "--advice-budget", "0")
+    line = next(x for x in out.splitlines() if x.startswith("Protective earth:"))
+    assert "within limit, but see GC202 below" in line

@@ -17,7 +17,8 @@ from rich.text import Text
 from ..core.caution import CAUTION
 from ..core.errors import shown
 from ..rules.results import Result
-from ..rules.catalogue import SEVERITIES
+from ..rules.catalogue import RULES, SEVERITIES
+from ..rules.rule_families import PROTECTIVE_EARTH
 from .coverage import coverage_words
 from .textearth import bonding_table, outlet_table, protective_tables
 from .texthum import axis_words, hum_tables, rectifier_table, signed_words
@@ -90,12 +91,22 @@ def _earth_line(result: Result, console: Console) -> None:
     if result.safety is not None and result.safety.parts:
         worst_pe = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = worst_pe.path_resistance <= result.safety.limit
+        # a path within its limit says nothing of a shared stud or a slow fuse: those are named
+        others = sorted(
+            {
+                f.code
+                for f in result.open_findings()
+                if RULES[f.code].family == PROTECTIVE_EARTH and f.severity in ("danger", "fault")
+            }
+        )
+        verdict = "within limit" if ok else "OVER LIMIT"
+        if ok and others:
+            verdict += f", but see {', '.join(others)} below"
         console.print(
             Text(
                 f"Protective earth: worst path {worst_pe.path_resistance * 1e3:.2f} mΩ to "
-                f"{worst_pe.part} (limit {result.safety.limit * 1e3:.0f} mΩ) — "
-                + ("within limit" if ok else "OVER LIMIT"),
-                style="green" if ok else "bold red",
+                f"{worst_pe.part} (limit {result.safety.limit * 1e3:.0f} mΩ) — {verdict}",
+                style="green" if ok and not others else "bold red",
             )
         )
     elif plan.mains is None and result.device_earths:
