@@ -15,6 +15,7 @@ from .model.records import Plan
 from .physics.bonding_test import bonding_figures
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
+from .rules.signal_bonds import floating_signal_grounds
 from .physics.hum import HumBudget, HumOptions
 from .physics.outlets import OutletWork
 from .physics.protection import STANDARD_PE_LIMIT
@@ -83,6 +84,7 @@ def _analyze(plan: Plan, options: Options) -> Result:
     rr = _simulated(plan) if options.hum else {}
     result.rectifiers = list(rr.values())
     _solve(plan, ctx, circuit, rr, options, result)
+    _no_verdict_when_floating(plan, ctx, result)
     solved = Solved(
         plan,
         ctx,
@@ -97,6 +99,24 @@ def _analyze(plan: Plan, options: Options) -> Result:
     for r in functions("solve"):
         findings.extend(r.func(solved))
     return _finish(result)
+
+
+def _no_verdict_when_floating(plan: Plan, ctx, result: Result) -> None:
+    """A channel whose stages read points of a floating signal ground (GC106) gets no audibility
+    verdict: what a floating ground picks up (capacitively, from the mains wiring and the
+    transformer) is not in the model, so its computed hum says nothing of what is heard."""
+    if result.hum is None:
+        return
+    floating = set().union(*floating_signal_grounds(ctx))
+    for ch, h in result.hum.channels.items():
+        stages = [s for s in plan.stages if s.channel == ch]
+        if any({s.a, s.b, s.reference} & floating for s in stages):
+            h.audible, h.margin_db = None, None
+            result.hum.notes.append(
+                f"{ch}: no audibility verdict: its signal ground floats (GC106), and the hum a "
+                "floating ground picks up from the mains wiring and the transformer is not in "
+                "the model"
+            )
 
 
 def _simulated(plan: Plan) -> dict:

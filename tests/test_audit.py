@@ -368,3 +368,15 @@ def test_a_floating_ground_that_holds_a_mains_fed_supply_is_a_fault_in_class_i()
     assert gc106(floating).severity == "warning"
     f = gc106(floating + supply)
     assert f.severity == "fault" and "the return of hv" in f.message
+
+
+def test_a_channel_on_a_floating_ground_gets_no_audibility_verdict():
+    # what a floating ground picks up capacitively is not modelled: its computed hum (none here)
+    # says nothing of what is heard, so the channel gets no verdict and a note says why
+    floating = BASE.replace("wire bond: star to gnd, 120 mm, 0.75 mm2, signal\n", "")
+    header = "listening output 1 V, speaker 90 dB, distance 2 m, impedance 8 ohm\n"
+    bonded, loose = analyze(plan(header + BASE)), analyze(plan(header + floating))
+    assert bonded.hum.channels["main"].audible is False
+    assert loose.hum.channels["main"].audible is None
+    assert any("floats (GC106)" in n for n in loose.hum.notes)
+    assert not any(f.code == "GC303" for f in loose.findings)

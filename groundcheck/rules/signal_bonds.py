@@ -18,7 +18,7 @@ from .graph_search import bfs
 from .floating import floating_fix as _floating_fix
 from .registry import rule
 
-__all__ = ["rule_signal_bonds"]
+__all__ = ["rule_signal_bonds", "floating_signal_grounds"]
 
 
 @rule("GC105", "GC106")
@@ -68,6 +68,20 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
         elif not places:
             out.append(_floating(ctx, comp, name))
     return out
+
+
+def floating_signal_grounds(ctx: AuditContext) -> list[set[str]]:
+    """The points of each signal-ground network that reaches neither the chassis nor the
+    protective earth (GC106's networks).
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        one set of point names per floating network.
+    References:
+        see :func:`rule_signal_bonds`.
+    """
+    return [set(comp) for comp, places in _signal_grounds(ctx) if not places]
 
 
 def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
