@@ -376,3 +376,26 @@ def test_without_the_hum_figures_the_verdict_names_the_rules_it_could_not_judge(
         plan, Options(hum=False, only_rules=("GC2",), only_rules_origin="--only-rules")
     )
     assert not any("--no-hum" in n.why for n in chosen.not_checked)
+
+
+def test_a_loop_with_no_area_gets_no_near_source_note():
+    # two wires side by side between the same two points: a loop of no area, which nothing
+    # threads however near the transformer it runs (GC305 said it was 'inside its size'); the same
+    # pair with one wire routed round 40 mm away has an area and keeps its note
+    base = """plan "near"
+mains 230 V 50 Hz, fuse 1 A slow, breaking high
+metal deck: aluminium 2 mm, 200 x 120 mm
+point a: junction, at 60,60 on deck
+point b: junction, at 140,60 on deck
+point k: pad, at 160,60 on deck
+wire k_w: k to b, 20 mm, 0.5 mm2, signal
+wire w1: a to b, 80 mm, 0.5 mm2, signal
+wire w2: a to b, 80 mm, 0.5 mm2, signal{route}
+stage s: a to k, gain 30 dB, channel main
+field t: transformer, at 100,60, 50 uT at 5 cm, size 80 mm
+"""
+    flat = analyze(load_text(base.format(route=""), "near.gplan"))
+    looped = analyze(load_text(base.format(route=", via 60,100 140,100"), "near.gplan"))
+    assert flat.hum.loops and flat.hum.loops[0]["area_mm2"] == 0
+    assert not [f for f in flat.findings if f.code == "GC305"]
+    assert [f for f in looped.findings if f.code == "GC305"]

@@ -286,6 +286,9 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
     fields = s.plan.index.fields
     out = []
     for row in s.hum.loops:
+        area = row.get("area_mm2")
+        if area is not None and area < 0.01:  # a loop with no area (two conductors side by
+            continue  # side, a chassis-only loop) picks nothing up wherever it passes
         for name, entry in row["sources"].items():
             src = fields.get(name)
             if src is None:  # an AC heater pair: no size to be inside
