@@ -40,52 +40,6 @@ def compare(before: Result, after: Result) -> dict:
     """What changed from ``before`` to ``after`` (plain data)."""
     matched = _matched(before.findings, after.findings)
     row = lambda f: {"code": f.code, "severity": f.severity, "message": f.message}  # noqa: E731
-    lb = {frozenset(lp.loop.edges): lp for lp in before.loops}
-    la = {frozenset(lp.loop.edges): lp for lp in after.loops}
-    hum = {}
-    chans = sorted(
-        set(before.hum.channels if before.hum else ())
-        | set(after.hum.channels if after.hum else ())
-    )
-    for ch in chans:
-        hb = before.hum.channels.get(ch) if before.hum else None
-        ha = after.hum.channels.get(ch) if after.hum else None
-        sb = {r["frequency_hz"]: r["volts"] for r in (hb.spectrum if hb else [])}
-        sa = {r["frequency_hz"]: r["volts"] for r in (ha.spectrum if ha else [])}
-        rows = []
-        for f in sorted(set(sb) | set(sa)):
-            b, a = _db(sb.get(f)), _db(sa.get(f))
-            if b is None and a is None:
-                continue
-            rows.append(
-                {
-                    "frequency_hz": f,
-                    "before_dbv": b,
-                    "after_dbv": a,
-                    "change_db": None if b is None or a is None else a - b,
-                }
-            )
-        tb, ta = _db(hb.total_v) if hb else None, _db(ha.total_v) if ha else None
-        hum[ch] = {
-            "before_dbv": tb,
-            "after_dbv": ta,
-            "change_db": None if tb is None or ta is None else ta - tb,
-            "audible_before": hb.audible if hb else None,
-            "audible_after": ha.audible if ha else None,
-            "spectrum": rows,
-        }
-    pb = {p.part: p for p in (before.safety.parts if before.safety else ())}
-    pa = {p.part: p for p in (after.safety.parts if after.safety else ())}
-    pe = [
-        {
-            "part": k,
-            "before_ohm": pb[k].path_resistance if k in pb else None,
-            "after_ohm": pa[k].path_resistance if k in pa else None,
-            "touch_before_v": pb[k].touch_voltage if k in pb else None,
-            "touch_after_v": pa[k].touch_voltage if k in pa else None,
-        }
-        for k in sorted(set(pb) | set(pa))
-    ]
     return clean(
         {
             "caution": CAUTION,
@@ -98,17 +52,77 @@ def compare(before: Result, after: Result) -> dict:
             },
             "notices": {"before": list(before.notices), "after": list(after.notices)},
             "findings": {k: [row(f) for f in v] for k, v in matched.items()},
-            "loops": {
-                "removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
-                "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
-                "total_before": before.loop_total,
-                "total_after": after.loop_total,
-            },
-            "hum": hum,
-            "protective_earth": pe,
+            "loops": _loops(before, after),
+            "hum": {ch: _channel(before, after, ch) for ch in _channels(before, after)},
+            "protective_earth": _protective(before, after),
             "outlets": _outlets(before, after),
         }
     )
+
+
+def _loops(before: Result, after: Result) -> dict:
+    """The loops removed and added (each by its conductors) and the totals."""
+    lb = {frozenset(lp.loop.edges): lp for lp in before.loops}
+    la = {frozenset(lp.loop.edges): lp for lp in after.loops}
+    return {
+        "removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
+        "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
+        "total_before": before.loop_total,
+        "total_after": after.loop_total,
+    }
+
+
+def _channels(before: Result, after: Result) -> list[str]:
+    return sorted(
+        set(before.hum.channels if before.hum else ())
+        | set(after.hum.channels if after.hum else ())
+    )
+
+
+def _channel(before: Result, after: Result, ch: str) -> dict:
+    """One channel's hum before and after: the totals, the verdicts, the spectrum line by line."""
+    hb = before.hum.channels.get(ch) if before.hum else None
+    ha = after.hum.channels.get(ch) if after.hum else None
+    sb = {r["frequency_hz"]: r["volts"] for r in (hb.spectrum if hb else [])}
+    sa = {r["frequency_hz"]: r["volts"] for r in (ha.spectrum if ha else [])}
+    rows = []
+    for f in sorted(set(sb) | set(sa)):
+        b, a = _db(sb.get(f)), _db(sa.get(f))
+        if b is None and a is None:
+            continue
+        rows.append(
+            {
+                "frequency_hz": f,
+                "before_dbv": b,
+                "after_dbv": a,
+                "change_db": None if b is None or a is None else a - b,
+            }
+        )
+    tb, ta = _db(hb.total_v) if hb else None, _db(ha.total_v) if ha else None
+    return {
+        "before_dbv": tb,
+        "after_dbv": ta,
+        "change_db": None if tb is None or ta is None else ta - tb,
+        "audible_before": hb.audible if hb else None,
+        "audible_after": ha.audible if ha else None,
+        "spectrum": rows,
+    }
+
+
+def _protective(before: Result, after: Result) -> list[dict]:
+    """Each part's protective path and touch voltage, before and after."""
+    pb = {p.part: p for p in (before.safety.parts if before.safety else ())}
+    pa = {p.part: p for p in (after.safety.parts if after.safety else ())}
+    return [
+        {
+            "part": k,
+            "before_ohm": pb[k].path_resistance if k in pb else None,
+            "after_ohm": pa[k].path_resistance if k in pa else None,
+            "touch_before_v": pb[k].touch_voltage if k in pb else None,
+            "touch_after_v": pa[k].touch_voltage if k in pa else None,
+        }
+        for k in sorted(set(pb) | set(pa))
+    ]
 
 
 def _outlets(before: Result, after: Result) -> list[dict]:
