@@ -102,21 +102,30 @@ def _analyze(plan: Plan, options: Options) -> Result:
 
 
 def _no_verdict_when_floating(plan: Plan, ctx, result: Result) -> None:
-    """A channel whose stages read points of a floating signal ground (GC106) gets no audibility
-    verdict: what a floating ground picks up (capacitively, from the mains wiring and the
-    transformer) is not in the model, so its computed hum says nothing of what is heard."""
+    """A channel whose stages read points of a floating signal ground (GC106) gets no verdict of
+    'inaudible': what a floating ground picks up (capacitively, from the mains wiring and the
+    transformer) is not in the model, so a quiet computed hum says nothing of what is heard. A
+    computed hum already audible stays audible (the pickup only adds), with a note."""
     if result.hum is None:
         return
     floating = set().union(*floating_signal_grounds(ctx))
     for ch, h in result.hum.channels.items():
         stages = [s for s in plan.stages if s.channel == ch]
-        if any({s.a, s.b, s.reference} & floating for s in stages):
-            h.audible, h.margin_db = None, None
+        if not any({s.a, s.b, s.reference} & floating for s in stages):
+            continue
+        if h.audible:
             result.hum.notes.append(
-                f"{ch}: no audibility verdict: its signal ground floats (GC106), and the hum a "
-                "floating ground picks up from the mains wiring and the transformer is not in "
-                "the model"
+                f"{ch}: its signal ground floats (GC106); the hum a floating ground picks up from "
+                "the mains wiring and the transformer is not in the model, so the real hum is "
+                "likely louder than computed"
             )
+            continue
+        h.audible, h.margin_db = None, None
+        result.hum.notes.append(
+            f"{ch}: no audibility verdict: its signal ground floats (GC106), and the hum a "
+            "floating ground picks up from the mains wiring and the transformer is not in "
+            "the model"
+        )
 
 
 def _simulated(plan: Plan) -> dict:

@@ -380,3 +380,15 @@ def test_a_channel_on_a_floating_ground_gets_no_audibility_verdict():
     assert loose.hum.channels["main"].audible is None
     assert any("floats (GC106)" in n for n in loose.hum.notes)
     assert not any(f.code == "GC303" for f in loose.findings)
+
+
+def test_a_floating_ground_keeps_an_audible_verdict_the_computed_hum_already_earns():
+    # the unmodelled pickup only adds to the hum: a channel whose computed hum is already above
+    # the threshold stays audible, with a note that the real hum is likely louder
+    from test_listening import PLAN
+
+    from groundcheck import load_text
+
+    r = analyze(load_text(PLAN.format(chain="headphones 110 dB per V"), "phones.gplan"))
+    assert r.hum.channels["phones"].audible is True
+    assert any("likely louder" in n for n in r.hum.notes)
