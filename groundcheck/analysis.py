@@ -15,6 +15,7 @@ from .model.records import Plan
 from .physics.bonding_test import bonding_figures
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
+from .rules.hum_rules import series_runs
 from .rules.signal_bonds import floating_signal_grounds
 from .physics.hum import HumBudget, HumOptions
 from .physics.outlets import OutletWork
@@ -160,6 +161,7 @@ def _solve(
             rr,
             HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
             outlets.pairs if outlets is not None else (),
+            series_runs(ctx),
         )
         hum_tasks, hum_costs = budget.tasks(options.jobs)
         tasks += hum_tasks

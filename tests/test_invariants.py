@@ -386,7 +386,8 @@ def test_equal_shares_of_two_different_wires_are_named_alike_under_new_names():
 def _chain_plan(name=lambda s: s) -> str:
     """Twelve 10 mΩ wires in series from n0 to n12, 100 mA at 100 Hz through them, a stage of 0 dB
     across the whole chain: each wire's share of the hum is 10 mΩ × 100 mA = 1 mV (Ohm's law,
-    worked by hand), twelve equal shares of which the budget names ten."""
+    worked by hand), twelve equal shares of which the budget names ten.  A stage of another
+    channel reads each joint, so the wires are twelve contributors, not one run in series."""
     lines = ['plan "chain"'] + [f"point {name(f'n{i}')}: pad" for i in range(13)]
     lines += [
         f"wire {name(f'w{k:02d}')}: {name(f'n{k}')} to {name(f'n{k + 1}')}, 0.01 ohm, signal"
@@ -395,6 +396,10 @@ def _chain_plan(name=lambda s: s) -> str:
     lines += [
         f"current {name('i')}: {name('n0')} to {name('n12')}, 100 mA 100 Hz",
         f"stage {name('g')}: {name('n0')} to {name('n12')}, gain 0 dB, channel c",
+    ]
+    lines += [
+        f"stage {name(f't{k:02d}')}: {name(f'n{k}')} to {name('n0')}, gain 0 dB, channel d"
+        for k in range(1, 12)
     ]
     return "\n".join(lines) + "\n"
 

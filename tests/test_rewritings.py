@@ -281,11 +281,6 @@ test_a_protective_conductor_gets_the_same_verdicts_written_or_not = _suite(
 test_a_resistor_split_in_two_changes_no_figure = _suite("a resistor split in two")
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="open: GC301 judges each source's ten largest conductor "
-    "shares (physics/hum_shares.TOP_SHARES); a wire written in two pieces takes two places",
-)
 def test_a_split_wire_leaves_every_contributor_finding():
     """Found by the split property: `right_link` written as two halves takes two of the ten places
     the hum budget names per source, and the smallest named contributor of each channel goes into
@@ -333,3 +328,19 @@ def test_equal_shares_are_named_in_the_order_of_their_names_whatever_the_plan_wr
         assert close(row.transfer, 0.01 / 6)
         (found,) = [f for f in result.findings if f.code == "GC102"]
         assert found.elements == ("i", "g", "wp", "wq", "wr", "ws", "wt")
+
+
+def test_twelve_wires_in_series_are_one_contributor_named_whole():
+    """Twelve 10 mΩ wires in series carry 100 mA at 100 Hz to a 0 dB stage across them: each drops
+    10 mΩ × 100 mA = 1 mV, 12 mV in all, −38.42 dBV (Ohm's law, worked by hand). As one run they
+    take one of the ten places the budget names per source, so all twelve are named and one GC301
+    names the whole run (before runs were ranked as one, two of them went into 'other')."""
+    lines = ['plan "chain"'] + [f"point n{i}: pad" for i in range(13)]
+    lines += [f"wire w{k:02d}: n{k} to n{k + 1}, 0.01 ohm, signal" for k in range(12)]
+    lines += ["current i: n0 to n12, 100 mA 100 Hz", "stage g: n0 to n12, gain 0 dB, channel c"]
+    r = _run("\n".join(lines) + "\n")
+    named = {c["element"] for c in r.hum.channels["c"].contributors}
+    assert named == {f"w{k:02d}" for k in range(12)}
+    found = [f for f in r.findings if f.code == "GC301"]
+    assert len(found) == 1 and "(in series)" in found[0].message
+    assert found[0].figures["level_dbv"] == pytest.approx(-38.42, abs=0.01)

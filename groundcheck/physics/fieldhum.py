@@ -23,7 +23,7 @@ from .hearing import heard_threshold
 from .humtotals import FLOOR_V
 from .orient import AXES, channel_objective, stated_axis, worst_axis
 
-__all__ = ["field_pickup", "MEASURE_WEIGHTED", "MEASURE_RMS"]
+__all__ = ["field_pickup", "pickup_columns", "MEASURE_WEIGHTED", "MEASURE_RMS"]
 
 #: what the worst direction maximises, as the JSON names it
 MEASURE_WEIGHTED = "threshold-weighted total"
@@ -227,3 +227,33 @@ def _quadratic_worst(model, parts) -> np.ndarray | None:
     m = V[:, int(np.argmax(w))]
     k = int(np.argmax(np.abs(m)))
     return m if m[k] > 0 else -m
+
+
+def pickup_columns(circuit, loops, names) -> tuple[list, np.ndarray, np.ndarray]:
+    """The loops that take a series EMF (an outline, and a chord that is a branch): their indices,
+    each one's chord branch and the EMF's sign along it (+1 when the branch runs the loop's way).
+
+    Parameters:
+        circuit: the circuit.
+        loops: the independent loops.
+        names: conductor name -> branch index.
+    Returns:
+        (loop indices, chord branches, signs).
+    References:
+        Faraday's law (the loop's EMF in series with its chord).
+    """
+    cols, branch, sign = [], [], []
+    for li, info in enumerate(loops):
+        if info.polygon is None:
+            continue
+        lp = info.loop
+        bi = names.get(lp.edges[lp.chord])
+        if bi is None:
+            continue
+        b = circuit.branches[bi]
+        start = lp.nodes[lp.chord]
+        forward = b.n1 == circuit.point_node.get(start) or b.n1 in circuit.nodes_of_metal(start)
+        cols.append(li)
+        branch.append(bi)
+        sign.append(1.0 if forward else -1.0)
+    return cols, np.array(branch, dtype=int), np.array(sign)

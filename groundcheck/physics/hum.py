@@ -45,8 +45,8 @@ from .coupling import (
 from .humsettings import SIGNAL_FREQUENCY, HumOptions
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
-from .fieldhum import field_pickup
-from .hum_shares import source_part
+from .fieldhum import field_pickup, pickup_columns
+from .hum_shares import run_columns, source_part
 from .orient import fixed_fluxes, source_fluxes
 from .pickup import min_distance
 from .plate_paths import loop_passages
@@ -64,28 +64,6 @@ __all__ = [
 
 #: sources of one frequency per task when several processes share the budget (see HumBudget.tasks)
 TASK_SOURCES = 512
-
-
-def _pickup_columns(circuit, loops, names) -> tuple[list, np.ndarray, np.ndarray]:
-    """The loops that take a series EMF (an outline, and a chord that is a branch): their indices,
-    each one's chord branch and the EMF's sign along it (+1 when the branch runs the loop's way).
-
-    ``names``: conductor name -> branch index."""
-    cols, branch, sign = [], [], []
-    for li, info in enumerate(loops):
-        if info.polygon is None:
-            continue
-        lp = info.loop
-        bi = names.get(lp.edges[lp.chord])
-        if bi is None:
-            continue
-        b = circuit.branches[bi]
-        start = lp.nodes[lp.chord]
-        forward = b.n1 == circuit.point_node.get(start) or b.n1 in circuit.nodes_of_metal(start)
-        cols.append(li)
-        branch.append(bi)
-        sign.append(1.0 if forward else -1.0)
-    return cols, np.array(branch, dtype=int), np.array(sign)
 
 
 @dataclass
@@ -114,6 +92,7 @@ def hum_budget(
     options: HumOptions = HumOptions(),
     jobs: int = 1,
     probes=(),
+    runs: dict | None = None,
 ) -> HumResult:
     """Per-channel hum and buzz at the output, contributors, loop pickup and crosstalk.
 
@@ -131,13 +110,14 @@ def hum_budget(
         probes: (point, point) pairs whose voltage from the sources is wanted too (an
         installation's outlet
             pairs): read from the same solves, as the power sum over the sources per frequency.
+        runs: conductors in series (each -> its run), ranked as one contributor.
     Returns:
         the HumResult: per channel the spectrum, total, contributors and audibility; loop pickup;
         crosstalk; the probes' power sums.
     References:
         ISO 226:2003 (threshold); reciprocity (Penfield, Spence, Duinker, 1970); Faraday's law.
     """
-    b = HumBudget(plan, circuit, loops, rectifier_results, options, probes)
+    b = HumBudget(plan, circuit, loops, rectifier_results, options, probes, runs)
     tasks, costs = b.tasks(jobs)
     return b.result(run_tasks(tasks, jobs, costs))
 
@@ -151,7 +131,14 @@ class HumBudget:
     them among its other solves."""
 
     def __init__(
-        self, plan, circuit, loops, rectifier_results: dict, options: HumOptions, probes=()
+        self,
+        plan,
+        circuit,
+        loops,
+        rectifier_results: dict,
+        options: HumOptions,
+        probes=(),
+        runs: dict | None = None,
     ):
         self.plan, self.circuit, self.loops = plan, circuit, loops
         self.rectifier_results = rectifier_results
@@ -167,11 +154,13 @@ class HumBudget:
         self.owners = branch_owner(circuit)
         # equal shares are named in the network's name- and order-free order
         self.owner_rank = owner_ranks(plan, self.owners)
+        # conductors in series ranked as one contributor (a wire written in two pieces)
+        self.runs = run_columns(self.owners, runs or {})
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
         self._listening(plan.listening)
         self._stages(plan.stages)
         self._frequencies(options.max_frequency)
-        self.pick_loops, self.pick_branch, self.pick_sign = _pickup_columns(
+        self.pick_loops, self.pick_branch, self.pick_sign = pickup_columns(
             circuit, loops, self.branch_index
         )
         self.models = (

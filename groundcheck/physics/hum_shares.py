@@ -18,7 +18,7 @@ import numpy as np
 from .coupling import channel_tests, source_injections
 from .ranking import largest
 
-__all__ = ["source_part", "TOP_SHARES", "NETWORK_ROWS", "SOURCE_CHUNK"]
+__all__ = ["source_part", "run_columns", "TOP_SHARES", "NETWORK_ROWS", "SOURCE_CHUNK"]
 
 #: conductors named per source and stage as hum contributors (the rest are summed)
 TOP_SHARES = 10
@@ -28,6 +28,35 @@ NETWORK_ROWS = 50
 
 #: sources solved together in the hum budget (their branches × sources arrays bound the memory)
 SOURCE_CHUNK = 128
+
+
+def run_columns(owners: list[str], runs: dict) -> tuple | None:
+    """The branches of conductors in series (``runs``: each conductor of a run -> the run's
+    conductors) as one column each run, so that a conductor written in two pieces takes one of the
+    TOP_SHARES places, as it is one contributor; ``None`` when no run joins two branches.
+
+    Parameters:
+        owners: each branch's owner.
+        runs: the runs in series (:func:`groundcheck.rules.hum_rules.series_runs`).
+    Returns:
+        (single branches, run members' branches, each member's run index, the runs' members as
+        lists of branch indices), or ``None``.
+    References:
+        Kirchhoff's current law (a run carries one current).
+    """
+    keyed: dict[tuple, list[int]] = {}
+    for bi, o in enumerate(owners):
+        run = runs.get(o)
+        if run is not None:
+            keyed.setdefault(run, []).append(bi)
+    groups = [sorted(m) for m in keyed.values() if len(m) > 1]
+    if not groups:
+        return None
+    grouped = {bi for m in groups for bi in m}
+    singles = np.array([bi for bi in range(len(owners)) if bi not in grouped], dtype=int)
+    members = np.array([bi for m in groups for bi in m], dtype=int)
+    which = np.array([g for g, m in enumerate(groups) for _ in m], dtype=int)
+    return singles, members, which, groups
 
 
 def _largest(mags, rank):
@@ -105,32 +134,81 @@ def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
 def _shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
     """Each source's output in one channel and its largest conductor shares (``mags_all``:
     sources × branches, each branch's |share|; the share itself is zi·tc, ``zi`` branches ×
-    sources); the rest, each below the tenth largest, summed as other."""
-    owners = b.owners
+    sources); the rest, each below the tenth largest, summed as other.  Conductors in series
+    (``b.runs``, :func:`run_columns`) are ranked as one, by the size of their summed share."""
+    if b.runs is not None:
+        _run_shares(b, ch, mags_all, zi, tc, v_all, groups, part)
+        return
     nb = mags_all.shape[1]
-    if nb > TOP_SHARES:
-        tops = _largest(mags_all, b.owner_rank)
-    else:
-        tops = np.broadcast_to(np.arange(nb), (len(groups), nb))
     rows = np.arange(len(groups))[:, None]
-    top_mags = mags_all[rows, tops]
-    # the largest share is among the tops
-    peak = top_mags.max(axis=1) if nb else np.zeros(len(groups))
+    tops = _tops(mags_all, b.owner_rank, len(groups))
     top_shares = zi[tops, rows] * tc[tops]  # sources × TOP_SHARES
+    _emit(b, ch, mags_all[rows, tops], top_shares, tops, None, v_all, groups, part, nb)
+
+
+def _run_shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
+    """:func:`_shares` with the runs in series as one column each: the single branches' |share|
+    and each run's |Σ share| side by side, ranked together."""
+    singles, members, which, runs = b.runs
+    run_sum = np.zeros((len(runs), len(groups)), dtype=complex)
+    np.add.at(run_sum, which, zi[members, :] * tc[members, None])
+    run_sum = run_sum.T  # sources × runs
+    mags = np.concatenate([mags_all[:, singles], np.abs(run_sum)], axis=1)
+    rank = np.concatenate(
+        [b.owner_rank[singles], [min(b.owner_rank[m] for m in r) for r in runs]]
+    ).astype(int)
+    rows = np.arange(len(groups))[:, None]
+    tops = _tops(mags, rank, len(groups))
+    ns = len(singles)
+    row_of = np.broadcast_to(rows, tops.shape)
+    single = tops < ns
+    top_shares = np.empty(tops.shape, dtype=complex)
+    picked = singles[tops[single]]
+    top_shares[single] = zi[picked, row_of[single]] * tc[picked]
+    top_shares[~single] = run_sum[row_of[~single], tops[~single] - ns]
+    cols = [[int(bi)] for bi in singles] + [list(r) for r in runs]
+    each = {bi: zi[bi, :] * tc[bi] for r in runs for bi in r}  # a member's own share per source
+    _emit(
+        b, ch, mags[rows, tops], top_shares, tops, cols, v_all, groups, part, mags.shape[1], each
+    )
+
+
+def _tops(mags, rank, n):
+    """The columns of the TOP_SHARES largest per row (all, when there are no more)."""
+    nb = mags.shape[1]
+    if nb > TOP_SHARES:
+        return _largest(mags, rank)
+    return np.broadcast_to(np.arange(nb), (n, nb))
+
+
+def _emit(b, ch, top_mags, top_shares, tops, cols, v_all, groups, part, ncols, each=None):
+    """Each source's output and its named shares (a column's branches each under its owner, a
+    run's members with their own shares; ``cols`` ``None``: each column is its branch) into
+    ``part``; the rest as other conductors."""
+    owners = b.owners
+    # the largest share is among the tops
+    peak = top_mags.max(axis=1) if ncols else np.zeros(len(groups))
     kept = top_mags > 1e-3 * np.maximum(peak, 1e-300)[:, None]
     rests = (v_all - np.where(kept, top_shares, 0).sum(axis=1)).tolist()
     # plain Python numbers from here: the merge adds tens of thousands of them one by one
     v_list, tops_list = v_all.tolist(), tops.tolist()
     shares_list, kept_list = top_shares.tolist(), kept.tolist()
-    many = nb > TOP_SHARES
+    many = ncols > TOP_SHARES
     for si, group in enumerate(groups):
         v_out = v_list[si]
         if v_out == 0:
             continue
         part.out.append((ch, group, v_out))
-        for bi, share, keep in zip(tops_list[si], shares_list[si], kept_list[si]):
-            if keep:
+        for col, share, keep in zip(tops_list[si], shares_list[si], kept_list[si]):
+            if not keep:
+                continue
+            if cols is None or len(cols[col]) == 1:
+                bi = col if cols is None else cols[col][0]
                 part.contrib.append((ch, ("conductor", owners[bi], group), share))
+                continue
+            for bi in cols[col]:
+                own = complex(each[bi][si])
+                part.contrib.append((ch, ("conductor", owners[bi], group), own))
         rest = rests[si]
         if many and abs(rest) > 1e-3 * abs(v_out):
             part.contrib.append((ch, ("conductor", "other conductors", group), rest))
