@@ -326,27 +326,27 @@ def drops_scale_with_resistance(r, k) -> None:
 #: each property, its strategies and how many plans the default suite gives it (the campaign,
 #: benchmarks/fuzz_campaign.py --invariants N, gives each N)
 PROPERTIES = {
-    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 100),
-    "names change no figure": (names_change_nothing, (mirrored_plans(rectifiers=False),), 100),
+    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 200),
+    "names change no figure": (names_change_nothing, (mirrored_plans(rectifiers=False),), 200),
     "renamed and reordered: the same loops, findings and figures": (
         renamed_and_reordered,
         (mirrored_plans(rectifiers=False), st.randoms()),
-        100,
+        200,
     ),
     "an unconnected element changes no figure": (
         unconnected_changes_nothing,
         (mirrored_plans(rectifiers=False), st.sampled_from(["point alone: pad\n", ISLAND])),
-        100,
+        200,
     ),
     "resistive networks renamed and reordered: the same figures and findings": (
         resistive_renamed_and_reordered,
         (resistive_plans(most=14, stars=True, ohms=[0.01, 0.022, 0.047]), st.randoms()),
-        100,
+        200,
     ),
     "drops scale with resistance": (
         drops_scale_with_resistance,
         (resistive_plans(), st.sampled_from([0.5, 2.0, 10.0, 0.03])),
-        100,
+        200,
     ),
 }
 
