@@ -151,6 +151,18 @@ def test_mirrored_fastenings_have_mirrored_resistances():
     assert all(_close(x, r[0]) for x in r[1:]), r
 
 
+def test_overlapping_discs_mirrored_about_a_fastening_between_them_are_alike():
+    """Found by the campaign: fastenings at (4, 26) and (4, 34) mm, mirrored about one at (4, 30)
+    whose disc both overlap (4 mm radius). A grid edge entered by two discs at one place, their
+    centres equally near its middle, went to whichever centre was nearer by the last bit of a
+    rounded position: 274 kS to one side and 324 kS to the other (18 % apart)."""
+    contacts = [(0.004, 0.030), (0.004, 0.026), (0.004, 0.034)]
+    g = reduce_plate(
+        0.12, 0.06, 2e-3, 2.65e-8, contacts, ["axis", "low", "high"], estimate_error=False
+    ).conductance
+    assert _close(g[0, 1], g[0, 2]) and _close(g[1, 1], g[2, 2]), g
+
+
 def mirrored_channels_are_equal(m) -> None:
     result = analyze(load_text(mirrored_text(m), "mirrored.gplan"))
     left = _channel_figures(result, "left")

@@ -125,7 +125,7 @@ def _disc_spans(X, Y, A, B, contacts, radius, hx, hy):
     mx, my = (X[A] + X[B]) / 2, (Y[A] + Y[B]) / 2
     first_d = np.full(A.size, np.inf)
     last_d = np.full(A.size, np.inf)
-    tol = SPAN_TIE
+    tol, dtol = SPAN_TIE, ON_CIRCLE * min(hx, hy)
     for j, (cx, cy) in enumerate(contacts):
         near = np.flatnonzero(
             (np.abs(X[A] - cx) <= radius + 1.01 * hx) & (np.abs(Y[A] - cy) <= radius + 1.01 * hy)
@@ -136,9 +136,15 @@ def _disc_spans(X, Y, A, B, contacts, radius, hx, hy):
         # discs entered (or left) at the same place to rounding: the one whose centre is nearer the
         # edge's middle, a choice of geometry, not of the order the plan names its fastenings in
         dc = np.hypot(mx[e] - cx, my[e] - cy)
-        nearer = (s0 < first_s[e] - tol) | ((np.abs(s0 - first_s[e]) <= tol) & (dc < first_d[e]))
+        # (centres as near to rounding — a few ulps of the positions — are as near: the first in
+        # the contacts' canonical order keeps the edge, alike for mirror images)
+        nearer = (s0 < first_s[e] - tol) | (
+            (np.abs(s0 - first_s[e]) <= tol) & (dc < first_d[e] - dtol)
+        )
         first_s[e[nearer]], first_k[e[nearer]], first_d[e[nearer]] = s0[nearer], j, dc[nearer]
-        later = (s1 > last_s[e] + tol) | ((np.abs(s1 - last_s[e]) <= tol) & (dc < last_d[e]))
+        later = (s1 > last_s[e] + tol) | (
+            (np.abs(s1 - last_s[e]) <= tol) & (dc < last_d[e] - dtol)
+        )
         last_s[e[later]], last_k[e[later]], last_d[e[later]] = s1[later], j, dc[later]
     return first_k, first_s, last_k, last_s
 
