@@ -41,56 +41,95 @@ _LOOP = re.compile(r"^loop (\d+)$")
 def canonical(obj, loops=(), rename=lambda s: s, skip=frozenset()):
     """``obj`` (a result or any part of one) as nested tuples of words and numbers; fields and
     keys in :data:`SKIP` and in ``skip`` left out."""
-    skip = SKIP | set(skip)
+    return _Canon(loops, rename, SKIP | set(skip)).walk(obj)[0]
 
-    def walk(x):
+
+class _Canon:
+    """One walk of a result: each node returned with its words (numbers left out) and its numbers
+    rounded to 7 significant digits, built once from its children's, which order the lists (a list
+    is compared as a sorted collection, ordered by its words first)."""
+
+    def __init__(self, loops, rename, skip):
+        self.loops, self.rename, self.skip = loops, rename, skip
+
+    def walk(self, x):
         if isinstance(x, bool) or x is None:
-            return x
+            return x, repr(x), x
         if isinstance(x, (int, float, np.floating, np.integer)):
-            return float(x)
+            return float(x), "", _rounded(float(x))
         if isinstance(x, (complex, np.complexfloating)):
-            return ("complex", float(x.real), float(x.imag))
+            re_, im = float(x.real), float(x.imag)
+            return (
+                ("complex", re_, im),
+                ("complex", "", ""),
+                ("complex", _rounded(re_), _rounded(im)),
+            )
         if isinstance(x, str):
             m = _LOOP.match(x)
-            if m and 0 < int(m[1]) <= len(loops):
-                return ("loop", tuple(sorted(rename(e) for e in loops[int(m[1]) - 1])))
-            return rename(x)
+            if m and 0 < int(m[1]) <= len(self.loops):
+                names = tuple(sorted(self.rename(e) for e in self.loops[int(m[1]) - 1]))
+                return ("loop", names), ("loop", names), ("loop", names)
+            r = self.rename(x)
+            return r, r, r
         if isinstance(x, np.ndarray):
-            return tuple(walk(v) for v in x.ravel())
+            if x.dtype.kind not in "iuf":
+                parts = [self.walk(v) for v in x.ravel()]
+                return (
+                    tuple(p[0] for p in parts),
+                    tuple(p[1] for p in parts),
+                    tuple(p[2] for p in parts),
+                )
+            return _array(x)
         if dataclasses.is_dataclass(x):
-            return tuple(
-                (f.name, walk(getattr(x, f.name)))
+            parts = [
+                (f.name, self.walk(getattr(x, f.name)))
                 for f in dataclasses.fields(x)
-                if f.name not in skip
+                if f.name not in self.skip
+            ]
+            return (
+                tuple((n, p[0]) for n, p in parts),
+                tuple((n, p[1]) for n, p in parts),
+                tuple((n, p[2]) for n, p in parts),
             )
         if isinstance(x, dict):
-            items = [
-                (walk(k), walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v))
-                for k, v in x.items()
-                if k not in skip
-            ]
-            return ("dict", tuple(sorted(items, key=_order)))
+            items = []
+            for k, v in x.items():
+                if k in self.skip:
+                    continue
+                kk = self.walk(k)
+                vv = self.walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v)
+                items.append(((kk[0], vv[0]), (kk[1], vv[1]), (kk[2], vv[2])))
+            return self._seq(items, "dict")
         if isinstance(x, (list, tuple, set, frozenset)):
-            return ("list", tuple(sorted((walk(v) for v in x), key=_order)))
-        return ("object", type(x).__name__)
+            return self._seq([self.walk(v) for v in x], "list")
+        name = ("object", type(x).__name__)
+        return name, name, name
 
-    return walk(obj)
+    @staticmethod
+    def _seq(parts, tag):
+        """A sequence of walked nodes: as it stands (``tag`` None), or sorted and tagged."""
+        if tag is not None:
+            parts = sorted(parts, key=lambda p: (repr(p[1]), repr(p[2])))
+        nodes = tuple(p[0] for p in parts)
+        words = tuple(p[1] for p in parts)
+        rounded = tuple(p[2] for p in parts)
+        if tag is None:
+            return nodes, words, rounded
+        return (tag, nodes), (tag, words), (tag, rounded)
 
 
-def _words(x):
-    """The words of a canonical structure, numbers left out (what orders a list)."""
-    if isinstance(x, tuple):
-        return tuple(_words(v) for v in x)
-    return "" if isinstance(x, float) else (x if isinstance(x, str) else repr(x))
-
-
-def _order(x):
-    return (repr(_words(x)), repr(_rounded(x)))
+def _array(x):
+    """A numeric array's node, words and rounded numbers at once (numpy rounds them as
+    :func:`_rounded` does one number: to 7 significant digits)."""
+    a = x.ravel().astype(float)
+    r = a.copy()
+    ok = np.isfinite(a) & (a != 0)
+    digits = 6 - np.floor(np.log10(np.abs(a[ok])))
+    r[ok] = np.round(a[ok] * 10.0**digits) / 10.0**digits
+    return tuple(a.tolist()), ("",) * len(a), tuple(r.tolist())
 
 
 def _rounded(x):
-    if isinstance(x, tuple):
-        return tuple(_rounded(v) for v in x)
     if isinstance(x, float) and math.isfinite(x) and x:
         return round(x, 6 - int(math.floor(math.log10(abs(x)))))
     return x
