@@ -75,19 +75,34 @@ def _hankel_ratio(x: np.ndarray) -> np.ndarray:
 
 
 def _agm(m: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """(AGM(1, √(1 − m)), Σ 2ⁿ⁻¹ cₙ²) of the arithmetic-geometric mean, for K and E."""
+    """(AGM(1, √(1 − m)), Σ 2ⁿ⁻¹ cₙ²) of the arithmetic-geometric mean, for K and E.
+
+    The steps run in place, and convergence is read at the largest m alone: cₙ/aₙ grows with m,
+    so when the largest m's has converged every other has."""
+    shape = np.shape(m)
+    m = np.atleast_1d(m)
     a = np.ones_like(m)
     b = np.sqrt(1.0 - m)
-    c2 = m.copy()  # c₀² = m
-    total = 0.5 * c2
+    total = 0.5 * m  # c₀² = m, times 2⁻¹
     power = 0.5
+    worst = int(np.argmax(m)) if m.size else 0
+    c, ab = np.empty_like(m), np.empty_like(m)
     for _ in range(60):  # converges quadratically: 6 steps at m = 1 − 1e-15
-        a, b, c = 0.5 * (a + b), np.sqrt(a * b), 0.5 * (a - b)
+        np.subtract(a, b, out=c)
+        c *= 0.5
+        np.multiply(a, b, out=ab)
+        a += b
+        a *= 0.5
+        np.sqrt(ab, out=b)
         power *= 2.0
-        total = total + power * c * c
-        if np.all(np.abs(c) <= 4e-16 * a):  # a few units in the last place: no step changes K or E
+        # a few units in the last place: no step changes K or E
+        done = m.size == 0 or abs(c[worst]) <= 4e-16 * a[worst]
+        c *= c
+        c *= power  # a power of two: exact
+        total += c
+        if done:
             break
-    return a, total
+    return a.reshape(shape), total.reshape(shape)
 
 
 def ellipke(m):
