@@ -85,6 +85,9 @@ def test_format_si():
     assert format_si(0.0123, "Ω") == "12.3 mΩ"
     assert format_si(4.7e-6, "F") == "4.7 µF"
     assert format_si(-0.0, "Ω") == "0 Ω" and format_si(float("nan"), "V") == "not computed"
+    # the prefix follows the figure as printed: 999.96 µA to three digits is 1 mA, not "1e+03 µA"
+    assert format_si(0.00099996, "A") == "1 mA" and format_si(-999.96, "V") == "-1 kV"
+    assert format_si(0.0009994, "A") == "999 µA" and format_si(2.2e12, "Ω") == "2.2 TΩ"
 
 
 def test_figures_for_a_reader_never_show_a_signed_zero_or_a_python_value():

@@ -198,7 +198,9 @@ def format_si(value: float, unit: str, digits: int = 3) -> str:
         return "not computed"
     if value == 0:
         return f"0 {unit}"  # a negative zero reads as zero
-    exp = int(math.floor(math.log10(abs(value)) / 3.0) * 3)
-    exp = max(-12, min(9, exp))
-    prefix = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}[exp]
+    # the prefix of the value as it is printed (rounded to ``digits``): 999.96 µA is 1 mA
+    shown = float(f"{value:.{digits}g}")
+    exp = int(math.floor(math.log10(abs(shown)) / 3.0) * 3)
+    exp = max(-12, min(12, exp))
+    prefix = {-12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}[exp]
     return f"{value / 10**exp:.{digits}g} {prefix}{unit}"

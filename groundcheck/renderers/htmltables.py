@@ -112,5 +112,4 @@ def _si(x, unit: str) -> str:
         return "–"
     if 0 < abs(x) < 1e-12:  # below the smallest prefix: a rounding residue, not a figure
         return f"below 1 p{unit}"
-    # rounded first, so that 999.6 µ reads 1 m and never "1e+03 µ"
-    return format_si(float(f"{x:.3g}"), unit)
+    return format_si(x, unit)
