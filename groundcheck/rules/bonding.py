@@ -85,8 +85,8 @@ def _drops(s: Solved) -> list[Finding]:
                 (p.part,),
                 {
                     "test": p.test,
-                    "current_a": round(t.current, 4),
-                    "path_voltage_v": round(p.voltage, 4),
+                    "current_a": t.current,
+                    "path_voltage_v": p.voltage,
                     "limit_v": p.limit,
                 },
                 f"lower the path's resistance to {p.limit / t.current * 1e3:.3g} mΩ or less: "

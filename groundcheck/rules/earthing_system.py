@@ -50,7 +50,7 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
                         "electrode_ohm": r_a,
                         "rcd_a": m.rcd,
                         "touch_limit_v": TOUCH_LIMIT,
-                        "electrode_times_rcd_v": round(u, 3),
+                        "electrode_times_rcd_v": u,
                     },
                     _tt_fix(r_a, m.rcd),
                 )

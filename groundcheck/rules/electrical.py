@@ -73,7 +73,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             )
         if level is not None:
             if level > 0:
-                figures["level_dbv"] = round(dbv(level), 1)
+                figures["level_dbv"] = dbv(level)
             # a level at the contributor level (to 1e-9 dB) is not below it: 1 mA through 10 mΩ
             # read at 0 dB is exactly -100 dBV, and the last bit of the solve would decide
             if level <= 0 or dbv(level) < s.options.contributor_level - 1e-9:

@@ -261,9 +261,9 @@ def _audible(ch: str, h, loc) -> Finding:
         loc,
         (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
         {
-            "margin_db": round(h.margin_db, 2),
-            "total_dbv": round(h.total_dbv, 2),
-            "signal_to_hum_db": round(h.signal_to_hum, 2),
+            "margin_db": h.margin_db,
+            "total_dbv": h.total_dbv,
+            "signal_to_hum_db": h.signal_to_hum,
         },
         "fix the main contributors first: " + "; ".join(top),
     )
@@ -323,7 +323,7 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
                     f"{name}, {what}",
                     src.location,
                     (f"loop {row['loop']}", name),
-                    {"closest_mm": entry["closest_mm"], "limit_mm": round(limit * 1e3, 3)},
+                    {"closest_mm": entry["closest_mm"], "limit_mm": limit * 1e3},
                     fix,
                 )
             )

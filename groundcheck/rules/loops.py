@@ -37,7 +37,7 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
             continue
         figures = {"conductors": len(info.loop.edges)}
         if info.area is not None:
-            figures["area_mm2"] = round(info.area * 1e6, 1)
+            figures["area_mm2"] = info.area * 1e6
         fix, actions = _loop_fix(info, ctx.conductors.get(info.open_at), ctx)
         out.append(
             Finding(

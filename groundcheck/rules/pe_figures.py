@@ -59,7 +59,7 @@ def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
     ``--pe-limit`` passed it)."""
     part = plan.metal(p.part)
     figs = {
-        "path_resistance_mohm": round(p.path_resistance * 1e3, 3),
+        "path_resistance_mohm": p.path_resistance * 1e3,
         "limit_mohm": safety.limit * 1e3,
     }
     if p.path_resistance > safety.limit:
@@ -169,9 +169,9 @@ def _breaking(plan: Plan, sup) -> list[Finding]:
                 m.location,
                 ("mains",),
                 {
-                    "fault_current_a": round(worst, 2),
-                    "earth_fault_a": round(sup.earth_fault_max, 2),
-                    "short_circuit_a": round(sup.short_circuit, 2),
+                    "fault_current_a": worst,
+                    "earth_fault_a": sup.earth_fault_max,
+                    "short_circuit_a": sup.short_circuit,
                     "breaking_capacity_a": sup.breaking_capacity,
                 },
                 "use a fuse of a higher breaking capacity (a sand-filled ceramic, high-breaking "
@@ -213,8 +213,8 @@ def _disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
     part = plan.metal(p.part)
     limit = sup.max_time
     figs = {
-        "fault_current_a": round(p.fault_current, 3),
-        "touch_voltage_v": round(p.touch_voltage, 2),
+        "fault_current_a": p.fault_current,
+        "touch_voltage_v": p.touch_voltage,
         "max_disconnection_s": limit,
     }
     system = "TT" if sup.system == "TT" else "TN"
@@ -246,7 +246,7 @@ def _disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
                 "meanwhile",
                 part.location,
                 (p.part,),
-                {**figs, "clear_time_s": round(p.clear_time, 6)},
+                {**figs, "clear_time_s": p.clear_time},
                 "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the "
                 "fuse rating so that the fuse clears within the limit",
             )
@@ -334,7 +334,7 @@ def rule_device_earths(s: Solved) -> list[Finding]:
                     f"{d.resistance:.3g} Ω",
                     loc,
                     (d.device, d.inlet),
-                    {"resistance_ohm": round(d.resistance, 4)},
+                    {"resistance_ohm": d.resistance},
                     "find and repair the high-resistance joint on the path (cord, strip or "
                     "building run)",
                 )

@@ -167,7 +167,7 @@ def _pe_sections(ctx: AuditContext) -> list[Finding]:
                     f"line conductor ({line * 1e6:.3g} mm²{'' if stated else ', the mains cord'})",
                     c.location,
                     (c.name,),
-                    {"area_mm2": round(area * 1e6, 4), "line_area_mm2": round(line * 1e6, 4)},
+                    {"area_mm2": area * 1e6, "line_area_mm2": line * 1e6},
                     f"use at least {line * 1e6:.3g} mm² (IEC 60364-5-54 Table 54.2)",
                 )
             )

@@ -138,7 +138,7 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
                     f"{route * 1e3:.0f} mm between its ends",
                     c.location,
                     (c.name,),
-                    {"length_mm": round(c.length * 1e3, 1), "route_mm": round(route * 1e3, 1)},
+                    {"length_mm": c.length * 1e3, "route_mm": route * 1e3},
                     f"measure the route of {c.name} again and correct its length",
                 )
             )
