@@ -242,13 +242,15 @@ class Merged:
                     "element": name,
                     "source": group.split(":", 1)[-1],
                     "volts": lvl,
-                    "dbv": rounded(dbv(lvl)),
+                    "dbv": dbv(lvl),  # unrounded: the rules' thresholds read it
                     "_proj": proj,
                 }
             )
         total = sum(abs(p) ** 2 for groups in out.values() for p in groups.values()) or 1.0
         for c in clist:
-            share = round(100 * c.pop("_proj") / total, 1)
+            # unrounded (the JSON writer rounds): a run's pieces are summed, and GC301's tenth is a
+            # threshold, which a rounded share meets or misses by its last digit
+            share = 100 * c.pop("_proj") / total
             c["share_pct"] = share if abs(share) >= 0.05 else 0.0
         clist.sort(key=lambda c: (-c["volts"], c["element"]))
         if any(c["share_pct"] < 0 for c in clist):

@@ -208,8 +208,8 @@ def _by_run(contributors: list[dict], runs: dict) -> list[dict]:
             m = merged[key]
             m["parts"].append(c)
             m["volts"] += c["volts"]
-            m["share_pct"] = round(m["share_pct"] + c["share_pct"], 1)
-            m["dbv"] = round(dbv(m["volts"]), 2)  # as the hum budget gives a level
+            m["share_pct"] = m["share_pct"] + c["share_pct"]
+            m["dbv"] = dbv(m["volts"])
     return out
 
 
