@@ -19,6 +19,9 @@ from .registry import rule
 
 __all__ = ["rule_hum", "rule_loop_near_source", "series_runs"]
 
+#: a contributor's least share of its channel's hum power for GC301/GC302, %, less rounding
+TENTH = 10.0 - 1e-9
+
 
 @rule("GC301", "GC302", "GC303", "GC304", needs="solve", hum=True)
 def rule_hum(s: Solved) -> list[Finding]:
@@ -60,7 +63,8 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
     conductors = s.plan.index.conductors
     out = []
     for c in contributors:
-        if c["dbv"] is None or c["dbv"] < opts.contributor_level or c["share_pct"] < 10:
+        # (to rounding: a share of exactly a tenth, split in two pieces, still meets it)
+        if c["dbv"] is None or c["dbv"] < opts.contributor_level - 1e-9 or c["share_pct"] < TENTH:
             continue
         if c["kind"] == "conductor":
             cond = conductors.get(c["element"])
