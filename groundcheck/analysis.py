@@ -25,6 +25,7 @@ from .physics.device_earth import installation_earths
 from .physics.safety import protective_figures
 from .physics.sweep import run_tasks
 from .physics.workload import check_devices, check_work, same_figures
+from .rules.placed_supply import placed_supply_findings
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext
 from .rules.electrical import Solved
@@ -99,6 +100,7 @@ def _analyze(plan: Plan, options: Options) -> Result:
     )
     for r in functions("solve"):
         findings.extend(r.func(solved))
+    findings.extend(placed_supply_findings(plan, options, analyze))
     return _finish(result)
 
 

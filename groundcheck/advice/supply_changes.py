@@ -70,8 +70,10 @@ def _set(ctx: ChangeContext, st, word: str, value: str) -> Edit:
 
 def _rcd(ctx: ChangeContext, st, rating: float, reason: str, why: str) -> Candidate:
     ma = f"{rating * 1e3:g} mA"
+    word = _stated(ctx)[1]
+    circuit = "supply circuit" if word == "mains" else "installation's outlets"
     return Candidate(
-        f"have the supply circuit protected by a {ma} RCD ({why}): {_DEFER}; the mains statement "
+        f"have the {circuit} protected by a {ma} RCD ({why}): {_DEFER}; the {word} statement "
         f"then states 'rcd {ma}'",
         reason,
         (_set(ctx, st, "rcd", ma),),
@@ -81,11 +83,18 @@ def _rcd(ctx: ChangeContext, st, rating: float, reason: str, why: str) -> Candid
 
 
 def _mains_statement(ctx: ChangeContext):
-    """The plan's own mains statement (None when the plan states none, or a device's plan does)."""
-    m = ctx.plan.mains
+    """The plan's own mains statement, or an installation's supply statement, whose RCD and
+    electrode protect the devices plugged into it (None when the plan states neither, or a
+    device's plan does)."""
+    m = ctx.plan.mains or ctx.plan.supply
     if m is None or m.location.file != ctx.plan.file:
         return None
     return ctx.src.statement(m.location.line)
+
+
+def _stated(ctx: ChangeContext):
+    """The record the installation-side change edits, and its statement's word."""
+    return (ctx.plan.mains, "mains") if ctx.plan.mains else (ctx.plan.supply, "supply")
 
 
 def socket_rcd(ctx: ChangeContext, answer: Answer, add) -> None:
@@ -105,7 +114,7 @@ def socket_rcd(ctx: ChangeContext, answer: Answer, add) -> None:
     # a finding at its rule's own severity: a disconnection-time note only says that no
     # protective device is stated
     found = tuple(f for f in answer.findings if f.severity == RULES[f.code].severity)
-    m, st = ctx.plan.mains, _mains_statement(ctx)
+    m, st = _stated(ctx)[0], _mains_statement(ctx)
     if st is None or not found or (m.rcd is not None and m.rcd <= SOCKET_RCD):
         return
     why = "it disconnects a fault to the metal within the time allowed, whatever the fault loop"
@@ -126,10 +135,10 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
     References:
         IEC 60364-4-41 411.5.3 (from memory); the ratings of :data:`RCD_RATINGS`.
     """
-    m, st = ctx.plan.mains, _mains_statement(ctx)
+    (m, word), st = _stated(ctx), _mains_statement(ctx)
     if st is None or not answer.findings or m.rcd is None:
         return
-    r_a = ctx.result.safety.supply.electrode if ctx.result.safety is not None else None
+    r_a = ctx.result.safety.supply.electrode if ctx.result.safety is not None else m.electrode
     finer = [r for r in RCD_RATINGS if r < m.rcd and (r_a is None or r_a * r <= TOUCH_LIMIT)]
     if finer:
         why = f"electrode × rating within {TOUCH_LIMIT:g} V"
@@ -140,7 +149,7 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
             Candidate(
                 "have the installation's earth electrode measured and improved to at most "
                 f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
-                f"{TOUCH_LIMIT:g} V): {_DEFER}; the mains statement then states 'electrode "
+                f"{TOUCH_LIMIT:g} V): {_DEFER}; the {word} statement then states 'electrode "
                 f"{target:g} ohm'",
                 answer.reason,
                 (_set(ctx, st, "electrode", f"{target:g} ohm"),),

@@ -272,20 +272,23 @@ def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) 
 def _merge_devices(devices: list, ld, library_dirs: list, groups, metals, points, names):
     """Every placed device's elements merged in (see :func:`~.devices.merge_device`): the
     devices' own supplies ``((name, V, Hz), location)`` and the device placements with their
-    protection class settled."""
+    protection class settled, and their own plans as loaded (name -> Plan)."""
     supplies = []
     classes: dict = {}
+    own_plans: dict = {}
     for dev, refs in devices:
         if len(groups[Rectifier]) > LIMITS["rectifiers"]:
             break  # over the limit (said by _rectifier_limit): no more devices merged
-        supply = merge_device(dev, refs, ld, library_dirs, groups, metals, points, names, classes)
+        supply = merge_device(
+            dev, refs, ld, library_dirs, groups, metals, points, names, classes, own_plans
+        )
         if supply is not None:
             supplies.append((supply, dev.location))
     placed = {
         d.name: replace(d, equipment_class=classes.get(d.name, d.equipment_class))
         for d, _ in devices
     }
-    return supplies, placed
+    return supplies, placed, own_plans
 
 
 def _check_outlets(devices: list, groups, nodes: set, ld) -> None:
@@ -316,6 +319,17 @@ def _rectifier_limit(groups, errors: list) -> None:
         )
 
 
+def _stages(groups, points: dict, conductors: list, ld) -> list:
+    """The stages with their inputs' references settled, and the interconnects' input stages."""
+    stages = stage_inputs(
+        _own_references(groups[Stage], ld.errors),
+        points,
+        conductors,
+        [r for g in (Current, Rectifier) for r, *_ in groups[g]],
+    )
+    return stages + interconnect_inputs(conductors)
+
+
 def assemble(built: list, file: str, ld) -> Plan:
     """The plan of a file's built ``(statement, record, refs)`` list; errors are added to
     ``ld.errors``."""
@@ -325,7 +339,9 @@ def assemble(built: list, file: str, ld) -> Plan:
     points = {p.name: p for p, *_ in groups[Point]}
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
-    supplies, placed = _merge_devices(devices, ld, library_dirs, groups, metals, points, names)
+    supplies, placed, own = _merge_devices(
+        devices, ld, library_dirs, groups, metals, points, names
+    )
     check_supplies(supplies, mains, header.get("supply"), ld.errors)
     transformers = _transformers_and_leakage(
         groups, header.get("supply"), points, placed, supplies, ld.errors
@@ -341,13 +357,7 @@ def assemble(built: list, file: str, ld) -> Plan:
     }
     conductors = twisted_pairs(conductors, twist_refs, ld.errors)
     _check_sources(groups, nodes, check)
-    stages = stage_inputs(
-        _own_references(groups[Stage], ld.errors),
-        points,
-        conductors,
-        [r for g in (Current, Rectifier) for r, *_ in groups[g]],
-    )
-    stages += interconnect_inputs(conductors)
+    stages = _stages(groups, points, conductors, ld)
     if placed:
         conductors = land_shields(conductors, placed, metals, ld.errors)
     check_bundles(conductors, ld.errors)
@@ -373,4 +383,5 @@ def assemble(built: list, file: str, ld) -> Plan:
         supply=header.get("supply"),
         devices=tuple(placed.values()),
         transformers=tuple(transformers),
+        device_plans=tuple(own.items()),
     )

@@ -229,15 +229,19 @@ def merge_device(
     points: dict,
     names: dict,
     classes: dict,
+    own_plans: dict | None = None,
 ) -> tuple | None:
     """Add a device's elements to the installation, prefixed with its name and moved to its place.
     Returns the device's supply (name, volts, hertz) when its plan states one; a device whose own
     plan is class II is entered in ``classes`` (device name -> "II") and gets no protective
-    conductor in its cord."""
+    conductor in its cord; a device's own plan, as loaded, goes into ``own_plans`` under its
+    name."""
     got = _device_elements(dev, ld, library_dirs, classes)
     if got is None:
         return None
-    sub, cord_default, supply = got
+    sub, cord_default, supply, own = got
+    if own is not None and own_plans is not None:
+        own_plans[dev.name] = own  # its protective earth is checked on the installation's supply
     taken = [
         x.name
         for x in (*sub.metals, *sub.points, *sub.conductors)
@@ -260,31 +264,40 @@ def merge_device(
         metals,
         points,
     )
-    pe = f"{dev.name}.{PE_POINT}"
-    if (
-        dev.plugged is not None
-        and pe in points
-        and classes.get(dev.name, dev.equipment_class) == "I"
-    ):
-        cord = Conductor(
-            f"{dev.name}.cord",
-            CORD_KIND,
-            pe,
-            dev.plugged,
-            role=PROTECTIVE,
-            length=dev.cord_length or cord_default[0],
-            area=dev.cord_area or cord_default[1],
-            location=dev.location,
-        )
+    cord = _cord(dev, points, classes, cord_default)
+    if cord is not None:
         groups[Conductor].append((cord, {}))
     return supply
 
 
+def _cord(dev: Device, points: dict, classes: dict, cord_default) -> Conductor | None:
+    """The protective conductor of a plugged class I device's cord, from its protective terminal
+    to the outlet (None for a class II device or one plugged nowhere)."""
+    pe = f"{dev.name}.{PE_POINT}"
+    if (
+        dev.plugged is None
+        or pe not in points
+        or classes.get(dev.name, dev.equipment_class) != "I"
+    ):
+        return None
+    return Conductor(
+        f"{dev.name}.cord",
+        CORD_KIND,
+        pe,
+        dev.plugged,
+        role=PROTECTIVE,
+        length=dev.cord_length or cord_default[0],
+        area=dev.cord_area or cord_default[1],
+        location=dev.location,
+    )
+
+
 def _device_elements(dev: Device, ld, library_dirs: list[str], classes: dict):
-    """A device's plan with its names prefixed, the cord its plan gives (length, area), and its
-    supply (name, volts, hertz) or None; None when its plan does not load (the error said)."""
+    """A device's plan with its names prefixed, the cord its plan gives (length, area), its
+    supply (name, volts, hertz) or None, and its own plan as loaded (None for a simple device);
+    None when its plan does not load (the error said)."""
     if dev.source == "simple":
-        return simple_device(dev), DEFAULT_CORD, None
+        return simple_device(dev), DEFAULT_CORD, None, None
     loaded = _device_plan(dev, ld, library_dirs)
     if loaded is None:
         return None
@@ -294,7 +307,7 @@ def _device_elements(dev: Device, ld, library_dirs: list[str], classes: dict):
     if m is not None and m.equipment_class == "II":
         # its cord has no protective conductor, as a class II simple device's
         classes[dev.name] = "II"
-    return prefixed(loaded, dev.name + "."), cord_default, supply
+    return prefixed(loaded, dev.name + "."), cord_default, supply, loaded
 
 
 def _moved_in(sub: Plan, tf: Transform, groups: dict, metals: dict, points: dict) -> None:

@@ -211,14 +211,22 @@ def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
 
 
 def supply(stmt: Statement):
-    """An installation's supply: 'supply 230 V 50 Hz, system TN-S'."""
+    """An installation's supply: 'supply 230 V 50 Hz, system TT, electrode 120 ohm, rcd 30 mA' (the
+    electrode and the RCD that protects its outlets, as a device's own ``mains`` states them)."""
 
     def attribute(r: Reader, ph, kw: dict) -> None:
-        if r.word("an attribute") != "system":
-            raise unknown(stmt, ph[0], ("230 V 50 Hz", "system"))
-        kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+        word = r.word("an attribute")
+        if word == "system":
+            kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+        elif word in ("electrode", "rcd"):
+            field, what, kind = MAINS_ATTRIBUTES[word]
+            kw[field] = r.rating(word, what) if word in PLAUSIBLE else r.quantity(kind, what)
+        else:
+            raise unknown(stmt, ph[0], ("230 V 50 Hz", "system", "electrode", "rcd"))
 
-    return Supply(location=stmt.loc, **_supply_statement(stmt, attribute)), {}
+    kw = _supply_statement(stmt, attribute)
+    _check_earth_electrode(stmt, kw)
+    return Supply(location=stmt.loc, **kw), {}
 
 
 def current(stmt: Statement):

@@ -211,6 +211,9 @@ class Plan:
     supply: Supply | None = None  # an installation's stated supply
     devices: tuple[Device, ...] = ()  # the devices an installation places
     transformers: tuple = ()  # an installation's (model.installation.Transformer)
+    #: placed devices' own plans as loaded, (name, Plan): their protective earth is checked on the
+    #: installation's supply
+    device_plans: tuple = field(default=(), compare=False, repr=False)
 
     @property
     def frequency(self) -> float:

@@ -3,7 +3,7 @@ the listening chain where hum ends up.  SI units, as every record of :mod:`.reco
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from ..core.errors import Location
 
@@ -79,6 +79,32 @@ class Supply:
     frequency: float
     system: str = "TN-S"
     location: Location = field(default=Location("<plan>"), compare=False)
+    electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
+    rcd: float | None = None  # the RCD that protects its outlets, rated IΔn, A
+
+    def for_device(self, m: Mains | None) -> Mains:
+        """A placed device's mains as the installation supplies it: the device's own statement
+        (its fuse, cord, circuit) on this supply's earthing system, with this supply's electrode
+        and RCD where it states them (the building's, whatever the device's plan assumed).
+
+        Parameters:
+            m: the device's own mains statement, or None.
+        Returns:
+            the Mains the device's protective earth is checked with in this installation.
+        """
+        base = m if m is not None else Mains(self.voltage, self.frequency)
+        electrode = self.electrode if self.electrode is not None else base.electrode
+        return replace(
+            base,
+            system=self.system,
+            electrode=electrode if self.system == "TT" else None,
+            rcd=self.rcd if self.rcd is not None else base.rcd,
+            loop_impedance=(
+                base.loop_impedance
+                if self.system == base.system and self.electrode is None
+                else None
+            ),
+        )
 
 
 @dataclass(frozen=True)

@@ -88,17 +88,17 @@ def _earth_line(result: Result, console: Console) -> None:
     """The summary's protective-earth line: the worst path, an installation's device earth paths,
     or why it was not checked."""
     plan = result.plan
+    # a path within its limit says nothing of a shared stud or a slow fuse: those are named
+    others = sorted(
+        {
+            f.code
+            for f in result.open_findings()
+            if RULES[f.code].family == PROTECTIVE_EARTH and f.severity in ("danger", "fault")
+        }
+    )
     if result.safety is not None and result.safety.parts:
         worst_pe = max(result.safety.parts, key=lambda p: p.path_resistance)
         ok = worst_pe.path_resistance <= result.safety.limit
-        # a path within its limit says nothing of a shared stud or a slow fuse: those are named
-        others = sorted(
-            {
-                f.code
-                for f in result.open_findings()
-                if RULES[f.code].family == PROTECTIVE_EARTH and f.severity in ("danger", "fault")
-            }
-        )
         verdict = "within limit" if ok else "OVER LIMIT"
         if ok and others:
             verdict += f", but see {', '.join(others)} below"
@@ -113,12 +113,18 @@ def _earth_line(result: Result, console: Console) -> None:
         broken = [d for d in result.device_earths if d.resistance is None or d.resistance > 1.0]
         n = len(result.device_earths)
         paths = "1 device's earth path" if n == 1 else f"{n} devices' earth paths"
+        own = (
+            f"each device's own wiring is checked with its own plan on this {plan.supply.system} "
+            "supply"
+            if plan.supply is not None
+            else "each device's own wiring is checked with its own plan"
+        )
+        see = f"; see {', '.join(others)} below" if others else ""
         console.print(
             Text(
                 f"Protective earth: installation — {paths} to the main earthing terminal, "
-                f"{len(broken)} broken or over 1 Ω (each device's own wiring is checked with its "
-                "own plan)",
-                style="bold red" if broken else "green",
+                f"{len(broken)} broken or over 1 Ω ({own}){see}",
+                style="bold red" if broken or others else "green",
             )
         )
     elif plan.mains is None:

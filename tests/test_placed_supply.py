@@ -1,0 +1,84 @@
+"""A device plugged into a TT building is checked on the building's supply, not on the TN-S its own
+plan assumes (an outside builder's review: a bass head written without a `system` passed in a
+rehearsal room on a 300 Ω electrode with no RCD).
+
+Hand figures, IEC 60364-4-41 411.5: the fault loop of a TT supply runs through the installation's
+electrode R_A and the supply's own part (1 Ω: line and source earth, from memory), so with
+R_A = 300 Ω it is at least 301 Ω and at most 301 Ω plus the cables (a 4 A fuse's cold resistance,
+a 2 m cord and the 10 m final circuit of the plan below add well under 1.5 Ω at 70 °C):
+230 V / 302.5 Ω = 0.760 A ≤ I ≤ 230 V / 301 Ω = 0.764 A — far below what opens a 4 A slow fuse
+within 0.2 s, so the chassis stays live (GC208).  A 30 mA RCD sees 25 × IΔn and opens within
+40 ms (IEC 61008-1's 5 × IΔn row, from memory), and R_A × IΔn = 300 × 0.03 = 9 V ≤ 50 V."""
+
+import pytest
+
+from groundcheck import PlanErrors, load
+from groundcheck.analysis import analyze
+from groundcheck.advice.repair import suggest
+from groundcheck.analysis import Options
+
+AMP = """plan "amp"
+mains 230 V 50 Hz, fuse 4 A slow, cord 2 m 0.75 mm2, circuit 10 m 2.5 mm2, inlet at 10,10
+metal chassis: steel 1.5 mm, 300 x 200 mm, touchable
+point pe_stud: stud, at 20,10 on chassis
+wire pe_lead: mains.pe to pe_stud, 40 mm, 1.5 mm2, protective
+bolt pe_bolt: pe_stud to chassis, protective
+"""
+
+ROOM = """plan "room"
+supply 230 V 50 Hz, {supply}
+point met: earthing-terminal
+point wall: outlet
+cable run: met to wall, 12 m, 2.5 mm2, cores L-N-PE
+device amp: "amp.gplan", plugged wall
+"""
+
+
+def _room(tmp_path, supply: str):
+    (tmp_path / "amp.gplan").write_text(AMP)
+    (tmp_path / "room.gplan").write_text(ROOM.format(supply=supply))
+    return load(tmp_path / "room.gplan")
+
+
+def _placed(result):
+    return [f for f in result.findings if f.message.startswith("amp, plugged into")]
+
+
+def test_a_tn_s_plan_in_a_tt_building_without_an_rcd_is_a_danger(tmp_path):
+    r = analyze(_room(tmp_path, "system TT, electrode 300 ohm"), Options(hum=False))
+    dangers = [f for f in _placed(r) if f.code == "GC208"]
+    assert dangers and all(f.severity == "danger" for f in dangers)
+    f = dangers[0]
+    assert 0.760 <= f.figures["fault_current_a"] <= 0.764, f.figures
+    assert "TT supply, electrode 300 Ω, no RCD; its own plan assumes TN-S" in f.message
+    assert f.elements[0].startswith("amp.") and f.location.file.endswith("amp.gplan")
+    assert any(f.code == "GC221" for f in _placed(r))
+
+
+def test_the_buildings_rcd_clears_it(tmp_path):
+    r = analyze(_room(tmp_path, "system TT, electrode 300 ohm, rcd 30 mA"), Options(hum=False))
+    assert not [f for f in _placed(r) if f.severity in ("danger", "fault")], _placed(r)
+
+
+def test_a_device_written_for_the_buildings_own_supply_adds_nothing(tmp_path):
+    (tmp_path / "amp.gplan").write_text(
+        AMP.replace("inlet at", "system TT, electrode 300 ohm, rcd 30 mA, inlet at")
+    )
+    (tmp_path / "room.gplan").write_text(ROOM.format(supply="system TT"))
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    assert not _placed(r)
+
+
+def test_suggest_offers_the_buildings_rcd_first(tmp_path):
+    plan = _room(tmp_path, "system TT, electrode 300 ohm")
+    text = (tmp_path / "room.gplan").read_text()
+    _, evs = suggest(plan, text, Options(hum=False), tmp_path, tmp_path / "room.gplan")
+    first = evs[0].candidate
+    assert first.action == "rcd" and "installation's outlets" in first.title
+    assert "rcd 30 mA" in first.edits[0].new
+
+
+def test_an_electrode_on_a_tn_supply_is_an_error(tmp_path):
+    with pytest.raises(PlanErrors) as e:
+        _room(tmp_path, "system TN-S, electrode 30 ohm")
+    assert "an earth electrode is stated for a TN-S supply" in str(e.value)
