@@ -23,6 +23,8 @@ pytestmark = pytest.mark.xdist_group(GROUP)
 #: every plan of the corpus (device plans and include fragments aside: they are placed by these)
 PLANS = [
     "balanced-preamp-rack/rack.gplan",
+    "bass-head-tt/bass-head.gplan",
+    "bass-head-tt/room.gplan",
     "dual-mono-class-ab/plan.gplan",
     "guitar-combo-reverb/plan.gplan",
     "headphone-se-valve-rectifier/plan.gplan",

@@ -50,7 +50,9 @@ class Evaluation:
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), protective-earth faults
         cleared (net: a bond that can loosen comes before the hum), faults cleared (net), hum gain,
-        findings introduced, size of the change (statements edited, then metres of wire laid)."""
+        findings introduced, size of the change (statements edited, then metres of wire laid),
+        then warnings and notes cleared (net: of two joins alike in all that, the one that also
+        takes a load's return off the bus), and only then the title."""
         gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(
             max(0.0, d) for d in self.hum_change_db.values()
         )
@@ -63,6 +65,8 @@ class Evaluation:
             len(self.introduced),
             len(self.candidate.edits),
             round(self.candidate.wire, 4),
+            -self.net.get("warning", 0),
+            -self.net.get("note", 0),
             self.candidate.title,
         )
 
