@@ -82,3 +82,19 @@ def test_an_electrode_on_a_tn_supply_is_an_error(tmp_path):
     with pytest.raises(PlanErrors) as e:
         _room(tmp_path, "system TN-S, electrode 30 ohm")
     assert "an earth electrode is stated for a TN-S supply" in str(e.value)
+
+
+def test_a_simple_device_in_a_tt_building_without_an_rcd_is_a_note_the_rcd_answers(tmp_path):
+    # a simple device has no fuse or wiring of its own to check: the supply says it rests on that
+    # fuse alone, and the building's RCD (the advice) answers it
+    (tmp_path / "amp.gplan").write_text(AMP)
+    room = ROOM.format(supply="system TT, electrode 300 ohm") + (
+        "device desk: simple, plugged wall, cord 2 m 0.75 mm2\n"
+    )
+    (tmp_path / "room.gplan").write_text(room)
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    (note,) = [f for f in r.findings if f.code == "GC221" and "desk" in f.elements]
+    assert note.severity == "note" and "electrode (300 Ω)" in note.message
+    (tmp_path / "room.gplan").write_text(room.replace("300 ohm", "300 ohm, rcd 30 mA"))
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    assert not [f for f in r.findings if f.code == "GC221"]
