@@ -41,6 +41,10 @@ def _hum_change_words(ch: str, before: float, after: float) -> str:
 def _hum_words(ch: str, h) -> str:
     level = f"{dbv(h.total_v):.1f} dBV" if h.total_v > 0 else "no hum (below 1 pV)"
     verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
+    ripple = (h.covers or {}).get("supply_ripple")
+    # as check says: a figure without the rails' own ripple says nothing of it
+    if ripple and ripple != "included":
+        verdict += f"; supply ripple {ripple}"
     return f"{ch} {level} ({verdict})"
 
 
