@@ -8,6 +8,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING
 
 from ..physics.safety import TOUCH_LIMIT
+from ..model.records import Plan
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -21,7 +22,8 @@ __all__ = ["rule_tt_supply", "rule_signal_only_metal"]
 @rule("GC220", "GC221", needs="solve")
 def rule_tt_supply(s: Solved) -> list[Finding]:
     """GC220: a TT supply whose electrode R_A times the RCD's IΔn exceeds 50 V (IEC 60364-4-41
-    411.5.3); GC221: a TT supply protected by a fuse or breaker alone.
+    411.5.3); GC221: a TT supply protected by a fuse or breaker alone (an installation's: one that
+    feeds simple devices, whose own fuse nothing here can check).
 
     Parameters:
         s: the solved network with its context.
@@ -30,6 +32,8 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
     References:
         IEC 60364-4-41 411.5 (TT systems), from memory.
     """
+    if s.plan.supply is not None:  # an installation (it states no mains of its own)
+        return _unchecked_in_tt(s.plan)
     m = s.plan.mains
     if s.safety is None or m is None or m.system != "TT" or not s.safety.parts:
         return []
@@ -70,6 +74,37 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
             {"external_loop_ohm": s.safety.supply.ze},
             "protect the circuit with an RCD (30 mA for socket outlets), as TT installations "
             "usually are; have the loop measured by a qualified electrician",
+        )
+    ]
+
+
+def _unchecked_in_tt(plan: Plan) -> list[Finding]:
+    """GC221 at a TT supply with no RCD stated when it feeds class I devices that have no plan of
+    their own to check (simple devices): a fault in one is disconnected only if its own fuse opens
+    on the current the earth electrode lets through, which nothing here can tell."""
+    supply = plan.supply
+    own = {name for name, p in plan.device_plans if p.mains is not None}
+    simple = sorted(
+        d.name
+        for d in plan.devices
+        if d.name not in own and d.equipment_class == "I" and d.plugged is not None
+    )
+    if supply.system != "TT" or supply.rcd is not None or not simple:
+        return []
+    electrode = f"{supply.electrode:g} Ω" if supply.electrode is not None else "not stated"
+    return [
+        Finding(
+            "GC221",
+            "note",
+            f"TT supply with no RCD stated for its outlets: {', '.join(simple)} "
+            f"{'has' if len(simple) == 1 else 'have'} no plan of its own to check, and a fault "
+            "to its metal is disconnected only if its own fuse opens on the current the earth "
+            f"electrode ({electrode}) lets through",
+            supply.location,
+            ("supply", *simple),
+            {} if supply.electrode is None else {"electrode_ohm": supply.electrode},
+            "protect the installation's outlets with an RCD (30 mA for socket outlets), as TT "
+            "installations usually are; have the electrode measured by a qualified electrician",
         )
     ]
 

@@ -43,7 +43,7 @@ def placed_supply_findings(
         return []
     quick = replace(options, hum=False, jobs=1)
     done: dict = {}
-    out = _unchecked_in_tt(plan)
+    out: list[Finding] = []
     for name, own in plan.device_plans:
         m = own.mains
         if m is None or m.equipment_class == "II":
@@ -62,37 +62,6 @@ def placed_supply_findings(
             ]
         out += [_placed(f, name, placed, m) for f in done[key]]
     return out
-
-
-def _unchecked_in_tt(plan: Plan) -> list[Finding]:
-    """GC221 at a TT supply with no RCD stated when it feeds class I devices that have no plan of
-    their own to check (simple devices): a fault in one is disconnected only if its own fuse opens
-    on the current the earth electrode lets through, which nothing here can tell."""
-    supply = plan.supply
-    own = {name for name, p in plan.device_plans if p.mains is not None}
-    simple = sorted(
-        d.name
-        for d in plan.devices
-        if d.name not in own and d.equipment_class == "I" and d.plugged is not None
-    )
-    if supply.system != "TT" or supply.rcd is not None or not simple:
-        return []
-    electrode = f"{supply.electrode:g} Ω" if supply.electrode is not None else "not stated"
-    return [
-        Finding(
-            "GC221",
-            "note",
-            f"TT supply with no RCD stated for its outlets: {', '.join(simple)} "
-            f"{'has' if len(simple) == 1 else 'have'} no plan of its own to check, and a fault "
-            "to its metal is disconnected only if its own fuse opens on the current the earth "
-            f"electrode ({electrode}) lets through",
-            supply.location,
-            ("supply", *simple),
-            {} if supply.electrode is None else {"electrode_ohm": supply.electrode},
-            "protect the installation's outlets with an RCD (30 mA for socket outlets), as TT "
-            "installations usually are; have the electrode measured by a qualified electrician",
-        )
-    ]
 
 
 def _placed(f: Finding, name: str, placed, own) -> Finding:
