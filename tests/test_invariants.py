@@ -545,3 +545,24 @@ def test_the_conductors_named_for_most_of_a_coupling_do_not_follow_the_order():
         (row,) = analyze(load_text(text, "ninety.gplan")).coupling
         named.add(row.shared)
     assert len(named) == 1 and len(next(iter(named))) == 3, named
+
+
+def test_a_return_with_a_clear_route_as_short_is_no_chain():
+    """Found by the campaign: t reached its star s in two hops through u (a stage's end) and
+    through j (a plain junction); which route the search took was decided by the network's
+    canonical order, which a wire split in two changes, and with it GC103. A return is chained
+    only when every shortest route passes another return."""
+    head = 'plan "tie"\npoint s: star\npoint t: pad\npoint u: pad\npoint j: junction\n'
+    body = (
+        "wire tu: t to u, 0.01 ohm, signal\nwire us: u to s, 0.01 ohm, signal\n"
+        "stage g1: t to s, gain 20 dB, channel a\nstage g2: u to s, gain 20 dB, channel a\n"
+    )
+    clear = "wire tj: t to j, 0.01 ohm, signal\nwire js: j to s, 0.01 ohm, signal\n"
+    chained = [
+        f
+        for f in rule_stars(AuditContext(load_text(head + body, "tie.gplan")))
+        if f.code == "GC103"
+    ]
+    assert len(chained) == 1 and "t reaches it through u" in chained[0].message
+    both = rule_stars(AuditContext(load_text(head + body + clear, "tie.gplan")))
+    assert not [f for f in both if f.code == "GC103"]

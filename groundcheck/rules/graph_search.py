@@ -14,7 +14,7 @@ from collections import deque
 __all__ = ["bfs"]
 
 
-def bfs(adj: dict, sources, allowed=None, rank: dict | None = None):
+def bfs(adj: dict, sources, allowed=None, rank: dict | None = None, joints=frozenset()):
     """Hop distances and parents from any of ``sources`` over nodes passing ``allowed``
     (``adj``: node -> neighbours).
 
@@ -24,10 +24,13 @@ def bfs(adj: dict, sources, allowed=None, rank: dict | None = None):
         allowed: which nodes may be passed.
         rank: node -> its canonical rank; when given, the sources and each node's neighbours are
             taken in that order (the parents are then free of the plan's order and names).
+        joints: nodes passed without a hop (a wire's joint between its two pieces: a wire
+            written in two pieces is as near as the whole).
     Returns:
         (hop distance of each reached node, its parent).
     References:
-        breadth-first search (Cormen et al., *Introduction to Algorithms*).
+        breadth-first search, and its 0-1 form for joints (Cormen et al., *Introduction to
+        Algorithms*).
     """
     dist, parent = {}, {}
     q = deque()
@@ -36,10 +39,17 @@ def bfs(adj: dict, sources, allowed=None, rank: dict | None = None):
     for s in sources:
         dist[s], parent[s] = 0, None
         q.append(s)
+    done = set()
     while q:
         u = q.popleft()
+        if u in done:
+            continue
+        done.add(u)
         for v in adj[u] if rank is None else sorted(adj[u], key=rank.__getitem__):
-            if v not in dist and (allowed is None or allowed(v)):
-                dist[v], parent[v] = dist[u] + 1, u
-                q.append(v)
+            if allowed is not None and not allowed(v):
+                continue
+            step = 0 if v in joints else 1
+            if dist[u] + step < dist.get(v, float("inf")):
+                dist[v], parent[v] = dist[u] + step, u
+                q.appendleft(v) if step == 0 else q.append(v)
     return dist, parent

@@ -72,7 +72,19 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
     star_names = {s.name for s in stars}
     # a terminal as near to two stars, or to its star over two paths, takes the one first in the
     # network's canonical order: never the order the statements are written in
-    dist, parent = bfs(ctx.adj, star_names, allowed, canonical_ranks(ctx.G))
+    # a junction that only joins two pieces of one run is no hop: a wire split in two at a
+    # junction reaches as the whole does
+    joints = {
+        p.name
+        for p in ctx.plan.points
+        if p.kind == "junction" and p.name in ctx.G and len(ctx.adj[p.name]) == 2
+    } - terminals
+    rank = canonical_ranks(ctx.G)
+    dist, parent = bfs(ctx.adj, star_names, allowed, rank, joints)
+    # a return is chained only when every shortest route to its star passes another return: with
+    # one clear route as short, which one the search took is no fact of the wiring (and a wire
+    # split in two, or renamed, would decide it)
+    clear, _ = bfs(ctx.adj, star_names, lambda v: allowed(v) and v not in terminals, rank, joints)
     chains: dict[str, list[tuple[str, str]]] = {}
     supplies = supply_ends(ctx.plan)
     for t in sorted(terminals - star_names):
@@ -89,7 +101,7 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
             for n in path[1:-1]
             if n in terminals and frozenset((t, n)) not in ctx.source_pairs | supplies
         ]
-        if via:
+        if via and _clear_distance(ctx.adj, clear, t, joints) > dist[t]:
             chains.setdefault(star, []).append((t, via[0]))
     out = []
     for star, pairs in sorted(chains.items()):
@@ -108,6 +120,13 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
             )
         )
     return out
+
+
+def _clear_distance(adj: dict, clear: dict, t: str, joints) -> float:
+    """The hops from ``t``'s nearest star along a route that passes no other return (``clear``:
+    the distances over the nodes that are no returns)."""
+    step = 0 if t in joints else 1
+    return min((clear[u] + step for u in adj[t] if u in clear), default=float("inf"))
 
 
 def _stars_through_other_placements(
