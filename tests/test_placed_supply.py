@@ -98,3 +98,17 @@ def test_a_simple_device_in_a_tt_building_without_an_rcd_is_a_note_the_rcd_answe
     (tmp_path / "room.gplan").write_text(room.replace("300 ohm", "300 ohm, rcd 30 mA"))
     r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
     assert not [f for f in r.findings if f.code == "GC221"]
+
+
+def test_a_device_behind_a_transformer_is_not_checked_on_the_buildings_supply(tmp_path):
+    # its supply is the transformer's secondary (here an isolating one: no earth fault loop at
+    # all), not the building's TT wiring
+    (tmp_path / "amp.gplan").write_text(AMP)
+    room = ROOM.format(supply="system TT, electrode 300 ohm").replace(
+        'device amp: "amp.gplan", plugged wall\n',
+        "transformer iso: plugged wall, primary 230 V, secondary 230 V, rating 500 VA, isolating\n"
+        'device amp: "amp.gplan", plugged iso\n',
+    )
+    (tmp_path / "room.gplan").write_text(room)
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    assert not _placed(r)

@@ -16,6 +16,7 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import Callable
 
+from ..model.installation import transformer_feeds
 from ..model.records import Plan
 from .catalogue import Finding, protective_earth_rule
 from .results import Options, Result
@@ -44,9 +45,12 @@ def placed_supply_findings(
     quick = replace(options, hum=False, jobs=1)
     done: dict = {}
     out: list[Finding] = []
+    # a device behind a transformer is supplied by its secondary, not by the building
+    behind = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
+    plugged = {d.name: d.plugged for d in plan.devices}
     for name, own in plan.device_plans:
         m = own.mains
-        if m is None or m.equipment_class == "II":
+        if m is None or m.equipment_class == "II" or plugged.get(name) in behind:
             continue
         placed = supply.for_device(m)
         if placed == m:
