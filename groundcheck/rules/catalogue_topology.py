@@ -54,7 +54,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "star-chain",
         TOPOLOGY,
         "warning",
-        "Returns that reach a star through each other: a chain that only looks like a star. "
+        "Returns that reach a star through each other (every shortest route of one passes "
+        "another; a junction that only joins two pieces of a wire is no step): a chain that "
+        "only looks like a star. "
         "Also a channel's star (a block placement's) that reaches the plan's own star only "
         "through another channel's star.",
         "Each return in a chain carries the currents of those behind it, so their drops add "
