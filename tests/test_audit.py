@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from groundcheck import load
+from groundcheck import PlanErrors, load
 from groundcheck.analysis import analyze
 from groundcheck.analysis import audit
 from groundcheck.network.graph import edges_of, fundamental_loops, loop_count
@@ -392,3 +392,37 @@ def test_a_floating_ground_keeps_an_audible_verdict_the_computed_hum_already_ear
     r = analyze(load_text(PLAN.format(chain="headphones 110 dB per V"), "phones.gplan"))
     assert r.hum.channels["phones"].audible is True
     assert any("likely louder" in n for n in r.hum.notes)
+
+
+RECT_FILAMENT = """plan "rectifier filament"
+point star: star
+point ct: centre-tap
+point res_neg: cap
+wire ct_lead: ct to star, 50 mm, 0.5 mm2, return
+wire res_lead: res_neg to star, 30 mm, 0.5 mm2, return
+rectifier hv: res_neg to ct, full-wave, secondary 330 V, winding 120 ohm, valve 50 V at 125 mA, \
+reservoir 20 uF, load 80 mA
+heater htr: 6.3 V, 1.95 A, ac, reference star
+heater rect_fil: 5 V, 2 A, ac, floating{extra}
+"""
+
+
+def test_a_valve_rectifiers_filament_winding_is_never_advised_to_ground():
+    # an outside reviewer's combo: GC107 told him to reference the 5Y3's filament winding, which
+    # is the HT supply's cathode at some 345 V: grounding it shorts the supply
+    from groundcheck import load_text
+
+    plain = load_text(RECT_FILAMENT.format(extra=""), "c.gplan")
+    (f,) = [x for x in audit(plain)[0] if x.code == "GC107"]
+    assert "must never be referenced to ground" in f.fix and "'rectifier hv'" in f.fix
+    named = load_text(RECT_FILAMENT.format(extra=", rectifier hv"), "c.gplan")
+    assert not [x for x in audit(named)[0] if x.code == "GC107"]
+    with pytest.raises(PlanErrors) as e:
+        load_text(
+            RECT_FILAMENT.format(extra=", rectifier hv").replace("floating", "reference star"),
+            "c.gplan",
+        )
+    assert "sits at the HT" in str(e.value)
+    with pytest.raises(PlanErrors) as e:
+        load_text(RECT_FILAMENT.format(extra=", rectifier htr"), "c.gplan")
+    assert "which is no valve rectifier" in str(e.value)

@@ -219,9 +219,19 @@ def _check_sources(groups, nodes, check) -> None:
     for r, refs, *_ in groups[Rectifier]:
         check(r.filter_point, refs.get("filter_point", r.location), "point", nodes)
         check(r.regulator_point, refs.get("regulator_point", r.location), "point", nodes)
+    valves = {r.name for r, *_ in groups[Rectifier] if r.diode_law == "valve"}
     for h, refs, *_ in groups[Heater]:
         for f in ("a", "b", "reference"):
             check(getattr(h, f), refs.get(f, h.location), "point", nodes)
+        if h.rectifier is not None and h.rectifier not in valves | check.ld.broken:
+            check.ld.errors.append(
+                PlanError(
+                    f"heater {h.name} heats {h.rectifier!r}, which is no valve rectifier",
+                    refs.get("rectifier", h.location),
+                    "name a rectifier of the plan written with 'valve …' (a solid-state "
+                    "rectifier has no filament)",
+                )
+            )
 
 
 def _own_references(stages, errors) -> list[Stage]:

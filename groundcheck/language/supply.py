@@ -278,6 +278,13 @@ def heater(stmt: Statement):
         r.finish()
     if "current" not in kw:
         raise PlanError("heater needs its current", stmt.loc, "e.g. ', 2.4 A'")
+    if kw.get("rectifier") and (kw.get("reference") or "a" in kw):
+        raise PlanError(
+            "a valve rectifier's filament winding sits at the HT: it has no reference and no "
+            "return in the ground system",
+            refs["rectifier"],
+            "write it 'floating' (or leave out the reference and 'A to B'); never ground it",
+        )
     return Heater(name=name, location=stmt.loc, **kw), refs
 
 
@@ -332,7 +339,14 @@ def _heater_twisted(r: Reader, first, kw: dict, refs: Refs) -> None:
 
 
 #: the heater's phrases that open with a word, and their readers
+def _heater_rectifier(r: Reader, first, kw: dict, refs: Refs) -> None:
+    """'rectifier NAME': the winding heats that valve rectifier's filament, which is its HT."""
+    r.word()
+    kw["rectifier"], refs["rectifier"] = r.name("the valve rectifier it heats")
+
+
 _HEATER_PHRASES = {
+    "rectifier": _heater_rectifier,
     "ac": _heater_kind,
     "dc": _heater_kind,
     "reference": _heater_reference,

@@ -93,6 +93,9 @@ class Heater:
     spacing: float | None = None  # the distance between the pair's two wires, m
     wiring_height: float | None = None  # the pair's height above the deck, m
     twisted: bool = False  # a twisted pair: no field source
+    #: the valve rectifier whose filament (its cathode) this winding heats: it sits at that
+    #: rectifier's HT and is never referenced to ground
+    rectifier: str | None = None
 
 
 @dataclass(frozen=True)

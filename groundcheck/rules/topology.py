@@ -34,6 +34,16 @@ def rule_heaters(ctx: AuditContext) -> list[Finding]:
     References:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
+    valves = sorted(r.name for r in ctx.plan.rectifiers if r.diode_law == "valve")
+    # a valve rectifier's filament is its cathode, at the HT: grounding its winding shorts the
+    # supply, so with a valve rectifier in the plan the advice says which winding never to ground
+    caution = (
+        f"; but if it heats the valve rectifier ({', '.join(valves)}), leave it floating and "
+        f"write 'rectifier {valves[0]}' on it: that filament is the HT and must never be "
+        "referenced to ground"
+        if valves
+        else ""
+    )
     return [
         Finding(
             "GC107",
@@ -43,10 +53,10 @@ def rule_heaters(ctx: AuditContext) -> list[Finding]:
             (h.name,),
             {"current_a": h.current},
             "reference it: centre tap or two equal resistors to ground, or an elevated DC "
-            "reference",
+            "reference" + caution,
         )
         for h in ctx.plan.heaters
-        if h.reference is None
+        if h.reference is None and h.rectifier is None
     ]
 
 
