@@ -87,6 +87,13 @@ def _analyze(plan: Plan, options: Options) -> Result:
     result.rectifiers = list(rr.values())
     _solve(plan, ctx, circuit, rr, options, result)
     _no_verdict_when_floating(plan, ctx, result)
+    if result.hum is not None:
+        result.hum.notes += [
+            f"stage {st.name} reads its input from {st.a}, the socket wired to {st.named} "
+            f"(inferred: write 'reference {st.named}' on it to keep the pair as written)"
+            for st in plan.stages
+            if st.inferred
+        ]
     solved = Solved(
         plan,
         ctx,

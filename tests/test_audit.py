@@ -426,3 +426,32 @@ def test_a_valve_rectifiers_filament_winding_is_never_advised_to_ground():
     with pytest.raises(PlanErrors) as e:
         load_text(RECT_FILAMENT.format(extra=", rectifier htr"), "c.gplan")
     assert "which is no valve rectifier" in str(e.value)
+
+
+def test_a_stage_at_the_far_end_of_a_lead_keeps_its_reference_and_an_inferred_one_is_said():
+    # an outside reviewer's combo: 'stage v1b: pan_out_gnd to v1b_k' (the reverb pan's output
+    # transducer, on the pan, at the far end of the return lead) was silently re-read from the
+    # amplifier's socket, leaving the lead's screen out of the input (-54 dB of feedback instead
+    # of the -41 dB he worked by hand)
+    from groundcheck import load_text
+
+    text = (
+        'plan "far end"\nmetal chassis: steel 1 mm, 200 x 100 mm\n'
+        "metal pan: steel 1 mm, 200 x 50 mm, at 0,200, signal-only\n"
+        "point star: star, at 10,10 on chassis\nbolt sb: star to chassis\n"
+        "point sock: sleeve, at 100,90 on chassis\npoint k: pad, at 50,50\n"
+        "point lug: lug, at 100,220 on pan\nbolt lb: lug to pan\n"
+        "wire sw: sock to star, 100 mm, 0.5 mm2, signal\n"
+        "wire kw: k to star, 50 mm, 0.5 mm2, signal\n"
+        "shield sh: sock to lug, 600 mm, 0.5 mm2, terminated both\n"
+        "stage v: lug to k, gain 40 dB, channel c\n"
+    )
+    (st,) = load_text(text, "f.gplan").stages
+    assert st.a == "lug" and not st.inferred
+    near = text.replace("at 100,220 on pan", "at 100,60").replace("bolt lb: lug to pan\n", "")
+    (st,) = load_text(near, "f.gplan").stages
+    assert st.a == "sock" and st.named == "lug" and st.inferred
+    r = analyze(load_text(near, "f.gplan"))
+    assert any(
+        "stage v reads its input from sock, the socket wired to lug" in n for n in r.hum.notes
+    )

@@ -20,6 +20,13 @@ __all__ = ["stage_inputs", "SOCKET_KINDS"]
 SOCKET_KINDS = ("sleeve", "jack")
 
 
+def _far_end(first: Point, socket: Point) -> bool:
+    """The stage's first point sits on another metal part than the socket: it is the source's own
+    ground at the far end of the lead (a reverb pan's transducer, a footswitch), so the stage
+    already names its input's reference and the socket is no nearer the source."""
+    return first.on is not None and socket.on is not None and first.on != socket.on
+
+
 def _inferred(stages, points: dict[str, Point], conductors, taken: set[str]) -> dict[int, str]:
     """Stage index -> its inferred reference: the one socket point (sleeve or jack) of the stage's
     own block joined to the stage's first point by a conductor of its own (a wire, or a lead's
@@ -36,6 +43,7 @@ def _inferred(stages, points: dict[str, Point], conductors, taken: set[str]) -> 
                 and py is not None
                 and py.kind in SOCKET_KINDS
                 and py.group == px.group
+                and not _far_end(px, py)
             ):
                 joined.setdefault(x, set()).add(y)
     claims: dict[int, str] = {}
@@ -91,5 +99,7 @@ def stage_inputs(
         elif ref == st.a:
             out.append(replace(st, reference=None))
         else:
-            out.append(replace(st, a=ref, reference=ref, named=st.a))
+            out.append(
+                replace(st, a=ref, reference=ref, named=st.a, inferred=st.reference is None)
+            )
     return out

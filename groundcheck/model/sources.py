@@ -112,6 +112,7 @@ class Stage:
     across: str | None = None
     reference: str | None = None  # the input's reference (its sleeve): stated or inferred
     named: str | None = None  # with a reference (then a): the first point written
+    inferred: bool = False  # the reference was inferred (a socket wired to the point written)
     supply: str | None = None  # the rectifier whose rail feeds it, when stated
     supply_tap: str = "output"  # output: the rail its load is fed from; reservoir: the reservoir
     supply_rejection: float = 0.0  # its supply rejection, dB, referred to its input
