@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 
-from ..model.kinds import PROTECTIVE, is_fastening, joins_devices
+from ..model.kinds import bonds_metal, PROTECTIVE, is_fastening, joins_devices
 from ..model.records import PE_POINT
 from ..network.graph import part_labels
 from .catalogue import Finding
@@ -84,11 +84,28 @@ def floating_signal_grounds(ctx: AuditContext) -> list[set[str]]:
     return [set(comp) for comp, places in _signal_grounds(ctx) if not places]
 
 
+def _chassis_proper(ctx: AuditContext) -> set[str]:
+    """The chassis side less metal written signal-only (a reverb pan, a footswitch box) and the
+    points fastened to nothing else: such metal is part of the signal circuit it carries, and
+    a ground that reaches only it reaches neither the chassis nor the protective earth."""
+    only = {m.name for m in ctx.plan.metals if m.signal_only}
+    if not only:
+        return ctx.chassis_side
+    held: dict[str, set[str]] = {}
+    for c in ctx.plan.conductors:
+        if c.connects and bonds_metal(c):
+            for x, y in ((c.a, c.b), (c.b, c.a)):
+                if x in ctx.metals:
+                    held.setdefault(y, set()).add(x)
+    out = {n for n in ctx.chassis_side if n not in only}
+    return {n for n in out if not (n in held and held[n] <= only)}
+
+
 def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
     """Each signal-ground network (a connected part of the graph without the chassis side and
     protective conductors that holds a signal point): its points, and its bonds to the chassis side
     by chassis point."""
-    G, side = ctx.G, ctx.chassis_side
+    G, side = ctx.G, _chassis_proper(ctx)
     order = list(G.nodes)
     idx = {n: i for i, n in enumerate(order)}
     rows, cols = [], []
