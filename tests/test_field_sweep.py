@@ -25,6 +25,7 @@ PLANS = [
     "balanced-preamp-rack/rack.gplan",
     "bass-head-tt/bass-head.gplan",
     "bass-head-tt/room.gplan",
+    "vintage-combo-120v/combo.gplan",
     "dual-mono-class-ab/plan.gplan",
     "guitar-combo-reverb/plan.gplan",
     "headphone-se-valve-rectifier/plan.gplan",

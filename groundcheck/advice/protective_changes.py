@@ -26,9 +26,9 @@ __all__ = ["own_stud", "bonding_wire", "thicker"]
 
 
 def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float, float] | None:
-    """A place for a new stud on ``part`` near ``near``: on the part, outside every other part's
-    outline and every field source's footprint, and at least STUD_CLEARANCE from the part's other
-    points and from the places in ``avoid``."""
+    """A place for a new stud on ``part`` near ``near``: on the part, at least STUD_CLEARANCE
+    outside every other part's outline, outside every field source's footprint, and at least
+    STUD_CLEARANCE from the part's other points and from the places in ``avoid``."""
     metal = ctx.plan.metal(part)
     area = abs(metal.size[0] * metal.size[1]) if metal.size else math.inf
     # parts mounted on it (smaller than it: a transformer frame, a bracket); a cover or bottom
@@ -44,7 +44,15 @@ def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float
         for k in range(8):
             a = math.pi / 4 * k
             q = (near[0] + r * math.cos(a), near[1] + r * math.sin(a))
-            if not metal.contains(q) or any(m.contains(q) for m in others):
+            # clear of the other parts' outlines too, by the room a nut and its lug take
+            near_q = [q] + [
+                (
+                    q[0] + STUD_CLEARANCE * math.cos(math.pi / 4 * j),
+                    q[1] + STUD_CLEARANCE * math.sin(math.pi / 4 * j),
+                )
+                for j in range(8)
+            ]
+            if not metal.contains(q) or any(m.contains(x) for m in others for x in near_q):
                 continue
             if any(math.dist(q, t) < STUD_CLEARANCE for t in taken) or any(
                 math.dist(q, s) < SOURCE_CLEARANCE for s in sources
@@ -137,7 +145,7 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     x, y = where[0] * 1e3, where[1] * 1e3
     extra = (
         f"point {new_pt}: stud, at {x:.0f},{y:.0f} on {part}",
-        f"bolt {new_pt}_nut: {new_pt} to {part}",
+        f"bolt {new_pt}_nut: {new_pt} to {part}, protective",
     )
     edit = Edit(edit.line, edit.new, extra, edit.last, edit.file)
     return Candidate(

@@ -38,11 +38,18 @@ SOCKET_KINDS = ("sleeve", "jack", "pot", "terminal")
 
 
 def _socket_end(c, ctx: ChangeContext) -> str | None:
-    """The point a fastening holds to the metal, when it is a socket, jack, pot or terminal."""
+    """The point a fastening holds to the metal, when it is a socket, jack, pot or terminal, or
+    a lug on metal written signal-only."""
     if not is_fastening(c, ctx.metals):
         return None
+    metal = c.a if c.a in ctx.metals else c.b
     pt = ctx.points.get(c.b if c.a in ctx.metals else c.a)
-    return pt.name if pt is not None and pt.kind in SOCKET_KINDS else None
+    if pt is None:
+        return None
+    # a transducer's lug on signal-only metal (a reverb pan): insulated from the frame as the
+    # pan's own makers do on its output side
+    lug = pt.kind == "lug" and metal in ctx.metals and ctx.plan.metal(metal).signal_only
+    return pt.name if pt.kind in SOCKET_KINDS or lug else None
 
 
 def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str, reason: str):
@@ -86,7 +93,10 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
                 if one is not None and one.action == "insulate":
                     panels.setdefault(metal, []).append((point, one))
     for metal, held in panels.items():
-        add(_insulate_all(metal, held, reason))
+        # metal written signal-only (a reverb pan) is bonded by its lugs alone: insulating
+        # every one of them leaves its frame connected to nothing
+        if not ctx.plan.metal(metal).signal_only:
+            add(_insulate_all(metal, held, reason))
 
 
 def _insulate_all(metal: str, held: list, reason: str) -> Candidate | None:

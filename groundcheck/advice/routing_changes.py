@@ -35,6 +35,8 @@ def carried_actions(ctx: ChangeContext, f, add) -> None:
         if c is None or f.code not in RULES:
             continue
         if verb in ("reroute", "move", "join") and where and where[0] in ctx.G:
+            if is_fastening(c, ctx.metals):
+                continue  # a bolt holds a point to the metal under it: it runs nowhere else
             near, far = _near_far(nx.single_source_shortest_path_length(ctx.G, where[0]), c)
             title = f"take {far} to {where[0]} by its own wire ({name})"
             add(
