@@ -138,6 +138,13 @@ _MOVES = (
     [(0.0, k) for k in (0, 1, -1, 2, -2, 3, -3, 4, -4, 5, 6, 7, 8)]
     + [(side, k) for k in (0, 1, -1, 2, -2) for side in (0.55, -0.55)]
     + [(side, k) for k in (0, 1, -1, 2, -2, 3, -3, 4) for side in (1.1, -1.1)]
+    # a crowded drawing (a part far off shrinks the rest): further down and up, and wider
+    + [(0.0, k) for k in (9, 10, 11, 12, -5, -6, -7, -8)]
+    + [
+        (side, k)
+        for k in (0, 1, -1, 2, -2, 3, -3, 4, -4, 5, -5, 6, -6)
+        for side in (0.55, -0.55, 1.1, -1.1, 1.65, -1.65, 2.2, -2.2)
+    ]
 )
 
 

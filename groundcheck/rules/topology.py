@@ -72,10 +72,15 @@ def rule_shields(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     out = []
+    # a shield in no loop (its far end on an isolated footswitch box, say) carries no loop current
+    # whatever its ends: terminating both is then no finding
+    looped = {e for info in ctx.loops for e in info.loop.edges}
+    if len(ctx.loops) < ctx.loop_total:  # not every loop listed: membership is not known
+        looped = {c.name for c in ctx.plan.conductors}
     both = [
         c
         for c in ctx.plan.conductors
-        if shield_like(c) and not joins_devices(c) and c.terminated == "both"
+        if shield_like(c) and not joins_devices(c) and c.terminated == "both" and c.name in looped
     ]
     if not both:
         return out
