@@ -62,7 +62,7 @@ def protective_tables(result: Result, console: Console) -> None:
             "touch V to earth",
             "cleared by",
             "in",
-            "I²t A²s",
+            "I²t A²s (bound)",
         ):
             t.add_column(col, justify="right" if col not in ("part", "cleared by") else "left")
         for p in result.safety.parts:
