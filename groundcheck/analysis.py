@@ -199,7 +199,9 @@ def _coupling_cost(plan: Plan, circuit) -> float:
 def _notices(plan: Plan, options: Options) -> list[str]:
     """What this run relaxed or skipped, said in every output format."""
     out = []
-    if options.pe_limit > STANDARD_PE_LIMIT * (1 + 1e-9) and plan.mains is not None:
+    # an installation's devices are checked on its supply with the same limit
+    earthed = plan.mains is not None or any(p.mains for _, p in plan.device_plans)
+    if options.pe_limit > STANDARD_PE_LIMIT * (1 + 1e-9) and earthed:
         out.append(
             f"protective-path limit relaxed to {options.pe_limit * 1e3:g} mΩ by --pe-limit (the "
             f"product-safety limit is {STANDARD_PE_LIMIT * 1e3:g} mΩ; paths over it are listed as "

@@ -112,3 +112,10 @@ def test_a_device_behind_a_transformer_is_not_checked_on_the_buildings_supply(tm
     (tmp_path / "room.gplan").write_text(room)
     r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
     assert not _placed(r)
+
+
+def test_a_relaxed_path_limit_is_announced_in_an_installation_whose_devices_it_judges(tmp_path):
+    # the devices are checked on the building's supply with the run's limit: relaxing it must be
+    # said, as it is for one piece of equipment
+    r = analyze(_room(tmp_path, "system TT, electrode 300 ohm"), Options(hum=False, pe_limit=1.0))
+    assert any("--pe-limit" in n for n in r.notices)

@@ -86,7 +86,7 @@ def _mains_statement(ctx: ChangeContext):
     """The plan's own mains statement, or an installation's supply statement, whose RCD and
     electrode protect the devices plugged into it (None when the plan states neither, or a
     device's plan does)."""
-    m = ctx.plan.mains or ctx.plan.supply
+    m = _stated(ctx)[0]
     if m is None or m.location.file != ctx.plan.file:
         return None
     return ctx.src.statement(m.location.line)
