@@ -209,44 +209,86 @@ def _sources_for(p, c):
 @pytest.mark.parametrize("freq", [None, 100.0, 2500.0])
 def test_examples_match_ngspice(path, freq):
     """groundcheck's nodal solve of every example against ngspice (.op, and .ac at 100 Hz and 2.5
-    kHz) on the netlist `groundcheck export` writes: node voltages agree to 1e-6 of the
-    largest."""
+    kHz) on a netlist written in this test from the circuit's branches (their impedance at the
+    frequency, skin effect included), and on the netlist `groundcheck export` writes: node
+    voltages agree to 1e-6 of the largest."""
     p = load(path)
     c = build_circuit(p)
     sources = _sources_for(p, c)
     analysis = "ac" if freq else "op"
-    net = to_spice(c, p.title, sources, frequency=freq or 0.0, analysis=analysis)
     J = np.zeros((len(c.nodes), 1), complex)
     for _, a, b, amps in sources:
         J[c.point_node[a], 0] += amps
         J[c.point_node[b], 0] -= amps
     sol = c.solve(freq or 0.0, J)
     main_ref = int(c.references[c.components[1][c.point_node["mains.pe"]]])
-    ours = {}
-    for i in range(len(c.nodes)):
-        if i == main_ref:
-            continue
-        v = sol.V[i, 0]
-        ours[f"n{i}"] = v * (math.sqrt(2) if freq else 1.0)  # SPICE AC sources are peak amplitudes
-    _compare(c, net, f"ac lin 1 {freq} {freq}" if freq else "op", ours)
+    ours = {f"n{i}": sol.V[i, 0] for i in range(len(c.nodes)) if i != main_ref}
+    control = f"ac lin 1 {freq} {freq}" if freq else "op"
+    by_hand = [(c.point_node[a], c.point_node[b], amps) for _, a, b, amps in sources]
+    z = c.impedance(freq) if freq else None
+    _compare(c, _netlist_by_hand(c, by_hand, freq or 0.0, main_ref, z), control, ours)
+    net = to_spice(c, p.title, sources, frequency=freq or 0.0, analysis=analysis)
+    peak = math.sqrt(2) if freq else 1.0  # the export's AC sources are peak amplitudes
+    _compare(c, net, control, {k: v * peak for k, v in ours.items()})
+
+
+def _g(x) -> str:
+    """A number as SPICE reads it, to the last digit."""
+    return f"{float(x):.17g}"
+
+
+def _netlist_by_hand(c, sources, freq, ground=0, z=None):
+    """A SPICE netlist written here from the circuit's element values alone (not the project's
+    writer): each branch a resistor, in series with its inductor at an AC analysis, or a resistor
+    with its capacitor across it (a lift network); node ``ground`` is SPICE's 0 and every other
+    island's reference node is held to it by 1 GΩ. ``sources``: (into, out of, amperes), each
+    driving its current (amplitude) into the first node and out of the second. ``z``: the
+    branches' impedances at ``freq`` where they are not r + jωl (skin effect), else None."""
+
+    def node(i):
+        return "0" if i == ground else f"n{i}"
+
+    w = 2 * math.pi * freq
+    lines = ["independent netlist"]
+    for k, b in enumerate(c.branches):
+        a, e = node(b.n1), node(b.n2)
+        r, l = (b.r, b.l) if z is None or not freq else (z[k].real, z[k].imag / w)
+        if b.cap is not None and freq:
+            lines += [f"R{k} {a} {e} {_g(b.r)}", f"C{k} {a} {e} {_g(b.cap)}"]
+        elif l > 0 and freq:
+            lines += [f"R{k} {a} m{k} {_g(r)}", f"L{k} m{k} {e} {_g(l)}"]
+        else:
+            lines.append(f"R{k} {a} {e} {_g(max(r, 1e-9))}")
+    for k, ref in enumerate(sorted({int(x) for x in c.references} - {ground})):
+        lines.append(f"RI{k} {node(ref)} 0 1e9")
+    for k, (into, out, amps) in enumerate(sources):
+        # SPICE: a current source's current flows from its first node through it to its second
+        lines.append(f"I{k} {node(out)} {node(into)} DC {_g(amps)} AC {_g(amps)}")
+    return "\n".join(lines) + "\n.end\n"
 
 
 @needs_ngspice
 @pytest.mark.parametrize("seed", range(4))
 def test_random_networks_match_ngspice(seed):
+    """The nodal solve of random R-L(-C) networks against ngspice, on a netlist written in this
+    test from the element values (so a fault in the project's writer cannot hide one in the
+    solve); the project's own export of the same network is checked the same way."""
     rng = np.random.default_rng(seed)
     c = _random_circuit(rng, 30, 25)
     c.point_node.update({"mains.pe": 0})
-    net = to_spice(c, "random", [("s", "p3", "p17", 1.0)], frequency=1000.0, analysis="ac")
     J = np.zeros((30, 1), complex)
     J[3] = 1
     J[17] = -1
     sol = c.solve(1000.0, J)
-    ours = {f"n{i}": sol.V[i, 0] * math.sqrt(2) for i in range(1, 30)}
-    _compare(c, net, "ac lin 1 1000 1000", ours)
-    net_op = to_spice(c, "random", [("s", "p3", "p17", 1.0)])
+    ours = {f"n{i}": sol.V[i, 0] for i in range(1, 30)}
+    _compare(c, _netlist_by_hand(c, [(3, 17, 1.0)], 1000.0), "ac lin 1 1000 1000", ours)
     sol0 = c.solve(0.0, J)
-    _compare(c, net_op, "op", {f"n{i}": sol0.V[i, 0] for i in range(1, 30)})
+    ours0 = {f"n{i}": sol0.V[i, 0] for i in range(1, 30)}
+    _compare(c, _netlist_by_hand(c, [(3, 17, 1.0)], 0.0), "op", ours0)
+    # the exported netlist (SPICE AC sources at peak amplitude: √2 × the rms current)
+    net = to_spice(c, "random", [("s", "p3", "p17", 1.0)], frequency=1000.0, analysis="ac")
+    _compare(c, net, "ac lin 1 1000 1000", {k: v * math.sqrt(2) for k, v in ours.items()})
+    _compare(c, to_spice(c, "random", [("s", "p3", "p17", 1.0)]), "op", ours0)
 
 
 @needs_ngspice
