@@ -100,6 +100,25 @@ def test_series_regulator_draws_its_load_current_against_ngspice():
 
 
 @needs_ngspice
+def test_series_regulators_quiescent_current_against_ngspice():
+    # the same regulator drawing 6 mA of its own beside the 25 mA load, out of its common terminal
+    # into the regulator's point: in ngspice a constant 31 mA from the reservoir into 'ret'
+    r = _rectifier(
+        load_current=0.025,
+        regulator="series",
+        regulator_voltage=250.0,
+        regulator_point="ret",
+        regulator_quiescent=0.006,
+    )
+    ours = simulate(r, F)
+    v, i, back = _ngspice("I1 out ret DC 0.031\nVret ret 0 DC 0")
+    assert ours.dc_voltage == pytest.approx(v.mean(), rel=0.01)
+    assert _within_1pct(ours.current, _lines(i)) >= 10
+    assert float(ours.return_current.mean()) == pytest.approx(back.mean(), rel=1e-3)
+    assert back.mean() == pytest.approx(0.031, rel=1e-3)  # the circuit's own current, by KCL
+
+
+@needs_ngspice
 def test_shunt_regulator_feed_current_against_ngspice():
     # a 250 V shunt regulator fed through 2 kΩ, 25 mA load: the reservoir's load is the resistor
     # to a fixed 250 V; the whole feed current returns through the regulator's point
@@ -162,6 +181,11 @@ def test_the_regulators_return_is_a_source_through_its_point():
         (", regulator series 400 V to reg_ret", "cannot feed a 400 V regulator"),
         (", regulator shunt 300 V 10 kohm to reg_ret", "cannot feed a 300 V regulator"),
         (", regulator series 250 V to nowhere", "nowhere"),
+        (", dropout 3 V", "a dropout belongs to a regulator"),
+        (", quiescent 5 mA", "a quiescent belongs to a regulator"),
+        (", regulator shunt 250 V 2 kohm to reg_ret, dropout 3 V", "a shunt regulator has no"),
+        (", regulator series 250 V to reg_ret, dropout -3 V", "dropout"),
+        (", regulator series 300 V to reg_ret, dropout 60 V", "cannot feed a 300 V regulator"),
     ],
 )
 def test_regulator_mistakes_are_located_errors(words, message):
@@ -177,3 +201,26 @@ def test_a_series_regulator_above_the_reservoirs_trough_is_refused():
     with pytest.raises(PlanErrors) as err:
         analyze(load_text(_plan(", regulator series 331 V to reg_ret"), "reg.gplan"))
     assert "too low for its series regulator" in str(err.value)
+
+
+def test_a_series_regulators_dropout_is_held_against_the_reservoirs_trough():
+    # the trough of this reservoir is 330 V to the volt (ngspice, the series case above): a 320 V
+    # regulator with a 5 V dropout keeps regulating; with 12 V it drops out at the trough
+    ok = analyze(load_text(_plan(", regulator series 320 V to reg_ret, dropout 5 V"), "r.gplan"))
+    assert ok.hum.rectifiers[0].as_dict()["regulated_dc_v"] == 320.0
+    with pytest.raises(PlanErrors) as err:
+        analyze(load_text(_plan(", regulator series 320 V to reg_ret, dropout 12 V"), "r.gplan"))
+    assert "too low for its series regulator to hold 320 V and its 12 V dropout" in str(err.value)
+    assert "r.gplan:" in str(err.value)
+
+
+def test_a_shunt_elements_least_current_is_held_at_the_trough():
+    # fed through 2 kΩ from a reservoir of 330–334 V to 250 V: at the trough (330 − 250)/2000 =
+    # 40 mA; a 25 mA load leaves the shunt element 15 mA, so a 10 mA least current is met and 20 mA
+    # is not (the trough from ngspice, the series case above; the feed resistor's load raises it a
+    # little, which only helps the first)
+    good = ", regulator shunt 250 V 2 kohm to reg_ret, quiescent 10 mA"
+    assert analyze(load_text(_plan(good), "r.gplan")).hum.rectifiers
+    with pytest.raises(PlanErrors) as err:
+        analyze(load_text(_plan(good.replace("10 mA", "20 mA")), "r.gplan"))
+    assert "too low for its shunt regulator" in str(err.value)

@@ -200,6 +200,20 @@ def _rejection(r: Reader, reading: _Reading) -> None:
     reading.kw["regulator_rejection"] = r.quantity("level", "ripple rejection", allow_zero=True)
 
 
+def _dropout(r: Reader, reading: _Reading) -> None:
+    """'dropout 3 V': a series regulator's least drop across its pass element."""
+    r.word()
+    reading.kw["regulator_dropout"] = r.quantity("voltage", "regulator's dropout", allow_zero=True)
+
+
+def _quiescent(r: Reader, reading: _Reading) -> None:
+    """'quiescent 5 mA': a series regulator's own current, or a shunt element's least current."""
+    r.word()
+    reading.kw["regulator_quiescent"] = r.quantity(
+        "current", "regulator's quiescent current", allow_zero=True
+    )
+
+
 #: the first word of each phrase after the ends, and its reader
 _PHRASES = {
     **dict.fromkeys(("full-wave", "bridge", "half-wave"), _topology),
@@ -211,6 +225,8 @@ _PHRASES = {
     "filter": _filter,
     "regulator": _regulator,
     "rejection": _rejection,
+    "dropout": _dropout,
+    "quiescent": _quiescent,
     "valve": _valve,
     **dict.fromkeys(_ONE_QUANTITY, _one_quantity),
     "diode": _diode,
@@ -245,14 +261,25 @@ def _check_regulator(reading: _Reading) -> None:
     regulator, and a shunt regulator's feed resistor must pass its load at the secondary's peak
     (less the rectifiers' drop at most)."""
     kw, places = reading.kw, reading.places
-    if "regulator_rejection" in kw and "regulator" not in kw:
-        raise PlanError(
-            "a ripple rejection belongs to a regulator",
-            places["rejection"],
-            "add the regulator, e.g. ', regulator series 300 V to reg_ret', or remove it",
-        )
+    for key, word in (
+        ("regulator_rejection", "rejection"),
+        ("regulator_dropout", "dropout"),
+        ("regulator_quiescent", "quiescent"),
+    ):
+        if key in kw and "regulator" not in kw:
+            raise PlanError(
+                f"a {'ripple rejection' if word == 'rejection' else word} belongs to a regulator",
+                places[word],
+                "add the regulator, e.g. ', regulator series 300 V to reg_ret', or remove it",
+            )
     if "regulator" not in kw:
         return
+    if "regulator_dropout" in kw and kw["regulator"] == "shunt":
+        raise PlanError(
+            "a shunt regulator has no dropout: its feed resistor sets what it needs",
+            places["dropout"],
+            "remove 'dropout'; state the shunt element's least current with 'quiescent 5 mA'",
+        )
     if "filter_capacitance" in kw or "choke_inductance" in kw:
         raise PlanError(
             "a regulator is modelled straight after the reservoir, not after a filter section "
@@ -263,7 +290,12 @@ def _check_regulator(reading: _Reading) -> None:
     load = kw.get("load_current")
     if load is None:
         load = kw["regulator_voltage"] / kw["load_resistance"]
-    needed = kw["regulator_voltage"] + load * kw.get("regulator_resistance", 0.0)
+    load += kw.get("regulator_quiescent", 0.0)
+    needed = (
+        kw["regulator_voltage"]
+        + kw.get("regulator_dropout", 0.0)
+        + load * kw.get("regulator_resistance", 0.0)
+    )
     peak = 2**0.5 * kw.get("secondary", 250.0)
     if needed >= peak:
         raise PlanError(

@@ -53,6 +53,12 @@ class Rectifier:
     regulator_resistance: float = 0.0  # a shunt regulator's feed resistor, Ω
     regulator_point: str | None = None  # the point its load's (and shunt's) current returns by
     regulator_rejection: float | None = None  # its ripple rejection, dB (None: the default)
+    #: a series regulator's dropout: the least drop across its pass element that keeps it
+    #: regulating, V (0: none stated)
+    regulator_dropout: float = 0.0
+    #: a series regulator's quiescent current (drawn from the reservoir beside the load's and
+    #: returned with it through its point), or a shunt element's least current for regulation, A
+    regulator_quiescent: float = 0.0
     #: a choke between the rectifiers and the reservoir (choke input): its inductance, H (0: none)
     choke_inductance: float = 0.0
     choke_resistance: float = 0.0  # ... its winding's resistance, Ω

@@ -9,8 +9,10 @@ load's and the shunt element's currents, together the whole feed current, return
 regulator's named point. The output's ripple is the reservoir's reduced by the regulator's ripple
 rejection (stated, or the default of its kind).
 
-The regulator's quiescent current and its dropout are left out: the reservoir's lowest voltage is
-only required to stay above the regulated voltage (series) or to feed the load through the resistor
+A series regulator's quiescent current (stated; none by default) is drawn from the reservoir
+beside the load's and leaves by its common terminal, so it returns through the named point with
+the load's. The reservoir's lowest voltage must stay above the regulated voltage plus the stated
+dropout (series), or feed the load and the shunt element's least current through the resistor
 (shunt).
 
 References: P. Horowitz, W. Hill, *The Art of Electronics*, 3rd ed., §9.1–9.3 (series pass and
@@ -83,7 +85,8 @@ def reservoir_load(r: Rectifier) -> Rectifier:
         return r
     plain = replace(r, regulator=None, regulator_point=None, regulator_rejection=None)
     if r.regulator == "series":
-        return replace(plain, load_current=load_current(r), load_resistance=None)
+        drawn = load_current(r) + r.regulator_quiescent
+        return replace(plain, load_current=drawn, load_resistance=None)
     feed = r.regulator_resistance
     return replace(plain, load_current=-r.regulator_voltage / feed, load_resistance=feed)
 
@@ -105,16 +108,22 @@ def regulated(r: Rectifier, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     i_load = load_current(r)
     if r.regulator == "series":
         back = np.full_like(v, i_load) if r.load_current is not None else out / r.load_resistance
-        short = float(v.min()) <= r.regulator_voltage
+        back = back + r.regulator_quiescent
+        short = float(v.min()) <= r.regulator_voltage + r.regulator_dropout
     else:
         back = (v - r.regulator_voltage) / r.regulator_resistance
-        short = float(back.min()) < i_load
+        short = float(back.min()) < i_load + r.regulator_quiescent
     if short:
+        needs = (
+            f" and its {r.regulator_dropout:g} V dropout"
+            if r.regulator == "series" and r.regulator_dropout
+            else ""
+        )
         raise PlanErrors(
             [
                 PlanError(
                     f"rectifier {r.name}: the reservoir falls to {float(v.min()):.4g} V, too low "
-                    f"for its {r.regulator} regulator to hold {r.regulator_voltage:g} V",
+                    f"for its {r.regulator} regulator to hold {r.regulator_voltage:g} V{needs}",
                     r.location,
                     "a series regulator needs the reservoir's trough above its output (and its "
                     "dropout); a shunt one needs the feed resistor to pass the load current at "

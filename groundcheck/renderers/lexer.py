@@ -54,6 +54,8 @@ ATTRIBUTE_WORDS = ROLES + (
     "series",
     "shunt",
     "rejection",
+    "dropout",
+    "quiescent",
     "fed",
     "shockley",
     "height",
