@@ -36,7 +36,7 @@ from .rules.catalogue import RULES
 from .rules.results import Options, Result
 from .rules.selection import NotChecked, UnknownRule, codes_of, rule_codes
 
-__all__ = ["Options", "Result", "analyze", "audit"]
+__all__ = ["Options", "Result", "analyze", "audit", "netlist_of"]
 
 
 def audit(plan: Plan, ctx: AuditContext | None = None):
@@ -56,6 +56,46 @@ def analyze(plan: Plan, options: Options = Options()) -> Result:
     caller's setting is back when it returns."""
     with no_gc(), one_blas_thread():
         return _analyze(plan, options)
+
+
+def netlist_of(plan: Plan, frequency: float, group: str | None = None, channel: str | None = None):
+    """The plan's circuit and what a netlist at ``frequency`` holds besides it: the hum budget's
+    currents, its loops' EMFs for the field directions it uses for ``channel``, and the stages'
+    readings (:mod:`groundcheck.physics.hum_netlist`).
+
+    Parameters:
+        plan: the plan.
+        frequency: Hz (0: DC).
+        group: one source group, or None for all (an unknown one: a ValueError naming them).
+        channel: the channel whose directions and stages (None: the first).
+    Returns:
+        (circuit, NetlistSources).
+    References:
+        the module's description.
+    """
+    from .physics.hum_netlist import netlist_sources, source_groups
+
+    with no_gc(), one_blas_thread():
+        check_devices(plan)
+        _, ctx = audit(plan)
+        circuit = build_circuit(plan)
+        top = max(Options().max_frequency, frequency)
+        check_work(plan, ctx.loops, circuit, top, True)
+        budget = HumBudget(
+            plan, circuit, ctx.loops, _simulated(plan), HumOptions(top), (), series_runs(ctx)
+        )
+        if channel is not None and channel not in budget.channels:
+            raise ValueError(f"no channel {channel!r} (the plan's: {', '.join(budget.channels)})")
+        groups = source_groups(budget, frequency)
+        if group is not None and group not in groups:
+            raise ValueError(
+                f"no source {group!r} with a line at {frequency:g} Hz (there: "
+                f"{', '.join(groups) or 'none'})"
+            )
+        if budget.models and frequency > 0:  # the field directions: chosen as the budget merges
+            tasks, _ = budget.tasks(1)
+            budget.result(run_tasks(tasks, 1, None))
+        return circuit, netlist_sources(budget, frequency, group, channel)
 
 
 def _analyze(plan: Plan, options: Options) -> Result:

@@ -4,7 +4,7 @@ by the format registry from the loaded plan."""
 from __future__ import annotations
 
 from ..renderers.formats import NETLIST_FORMATS
-from .common import load_plan, quantity_type, write_output
+from .common import UsageError, load_plan, quantity_type, write_output
 from .drawing import written_epilog
 from .registry import FORMAT, FormatOption, command, opt
 
@@ -15,9 +15,12 @@ __all__ = ["cmd_export"]
     "export",
     help="write the ground network in another format",
     description="The plan's ground network (each conductor's resistance, inductance and "
-    "capacitance, and the plan's current sources) as a netlist a circuit simulator reads.\n\n"
-    "Example:\n  groundcheck export examples/dual-mono-phono-stage.gplan --format spice -o "
-    "ground.cir",
+    "capacitance) with the hum budget's sources at one frequency (the stated and simulated "
+    "currents, each loop's induced EMF in series with the conductor that closes it) and each "
+    "stage's reading (a node whose voltage is the drop the stage reads), as a netlist a circuit "
+    "simulator reads.\n\n"
+    "Example:\n  groundcheck export examples/guitar-head.gplan --frequency 50Hz --source ptx "
+    "-o ptx-50.cir",
     epilog=written_epilog("the netlist"),
     formats=NETLIST_FORMATS,
     options=(
@@ -37,6 +40,20 @@ __all__ = ["cmd_export"]
             "operating point)",
         ),
         opt(
+            "--source",
+            metavar="NAME",
+            help="one source group alone: 'rectifiers' (every rectifier's charging current), "
+            "a current's, field source's or heater pair's name (default: every source at the "
+            "frequency; groundcheck adds the groups by power, so export each to reproduce its "
+            "figures)",
+        ),
+        opt(
+            "--channel",
+            metavar="NAME",
+            help="the channel whose field directions the loop EMFs take and whose stages are "
+            "read (default: the first channel by name)",
+        ),
+        opt(
             "-o",
             "--output",
             metavar="FILE",
@@ -45,6 +62,12 @@ __all__ = ["cmd_export"]
     ),
 )
 def cmd_export(args) -> int:
-    text = NETLIST_FORMATS[args.format].render(load_plan(args.plan), args.frequency)
+    plan = load_plan(args.plan)
+    try:
+        text = NETLIST_FORMATS[args.format].render(
+            plan, args.frequency, args.source, args.channel
+        )
+    except ValueError as e:
+        raise UsageError(str(e)) from None
     write_output(text, args.output, [args.plan])
     return 0

@@ -23,16 +23,26 @@ from .hearing import heard_threshold
 from .humtotals import FLOOR_V
 from .orient import AXES, channel_objective, stated_axis, worst_axis
 
-__all__ = ["field_pickup", "pickup_columns", "MEASURE_WEIGHTED", "MEASURE_RMS"]
+__all__ = ["field_pickup", "pickup_columns", "source_lines", "MEASURE_WEIGHTED", "MEASURE_RMS"]
 
 #: what the worst direction maximises, as the JSON names it
 MEASURE_WEIGHTED = "threshold-weighted total"
 MEASURE_RMS = "rms total"
 
 
-def _spectrum(src, f0: float, freqs) -> list[tuple[float, float]]:
-    """(frequency, level relative to the fundamental) of the source's lines among the solved
-    frequencies."""
+def source_lines(src, f0: float, freqs) -> list[tuple[float, float]]:
+    """(frequency, level relative to the fundamental) of a field source's lines among the given
+    frequencies.
+
+    Parameters:
+        src: the field source (or AC heater pair).
+        f0: the mains frequency, Hz.
+        freqs: the frequencies, Hz.
+    Returns:
+        (frequency, ratio to the fundamental) of each line found among them.
+    References:
+        none (bookkeeping).
+    """
     scale = {1: 1.0, **{n: ratio for n, ratio in src.harmonics}}
     return [(f, ratio) for n, ratio in scale.items() for f in freqs if abs(n * f0 - f) <= 1e-9]
 
@@ -66,7 +76,7 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
     }
     for name, model in b.models.items():
         src = b.fields[name]
-        spectrum = _spectrum(src, b.f0, freqs)
+        spectrum = source_lines(src, b.f0, freqs)
         if not spectrum:
             continue
         for ch, ks in stages.items():
@@ -82,6 +92,7 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
                 ):  # below, the source puts nothing at this output
                     out[ch].append(row)
                 phi = model.fluxes(m)[0]
+                b.directions[(ch, name)] = m
             else:
                 phi = model.fixed
             _apply(

@@ -166,6 +166,9 @@ class HumBudget:
         self.models = (
             self._flux_models(plan, circuit, loops) if self.pick_loops and self.sources else {}
         )
+        #: (channel, field source) -> the direction used for it, set when the budget's result is
+        #: merged (:func:`groundcheck.physics.fieldhum.field_pickup`)
+        self.directions: dict = {}
 
     def _listening(self, listening) -> None:
         """The rated output the levels are against, and the notes when no verdict can be given."""

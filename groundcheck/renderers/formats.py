@@ -224,35 +224,44 @@ SUGGESTION_FORMATS: dict[str, Format] = {
 }
 
 
-def _spice(plan, frequency: float | None = None) -> str:
-    """The plan's ground network as a SPICE netlist with the plan's current sources at
-    ``frequency`` (an AC analysis there; None or 0: the DC operating point)."""
-    from ..physics.circuit import build_circuit
-    from ..physics.coupling import plan_sources
-    from ..physics.rectifier import simulate
+def _spice(plan, frequency: float | None = None, group=None, channel=None) -> str:
+    """The plan's ground network as a SPICE netlist with the hum budget's sources at
+    ``frequency`` (an AC analysis there; None or 0: the DC operating point): its currents, its
+    loops' EMFs (the field directions it uses for ``channel``) and its stages' readings; ``group``
+    one source group alone (:func:`groundcheck.analysis.netlist_of`)."""
+    from ..analysis import netlist_of
     from .spice import to_spice
 
-    circuit = build_circuit(plan)
     f = frequency or 0.0
-    results = {r.name: simulate(r, plan.frequency) for r in plan.rectifiers}
-    sources = [
-        (s.name, s.a, s.b, s.parts[f])
-        for s in plan_sources(plan, results, max(f, plan.frequency), circuit)
-        if abs(s.parts.get(f, 0)) > 0
+    circuit, ns = netlist_of(plan, f, group, channel)
+    notes = [
+        f"sources at {f:g} Hz: {', '.join(ns.groups) or 'none'}; "
+        + (f"this netlist holds {ns.group} alone" if ns.group else "this netlist holds them all")
+        + (f"; loop EMFs for the field directions of channel {ns.channel}" if ns.emfs else ""),
+        "groundcheck adds the groups by power (their phases are unrelated): export each with "
+        "--source and add its stages' readings as docs/language.md says",
     ]
-    if frequency:
-        return to_spice(circuit, plan.title, sources, frequency=f, analysis="ac")
-    return to_spice(circuit, plan.title, sources)
+    sources = [(name, a, b, amps) for name, a, b, amps in ns.currents]
+    return to_spice(
+        circuit,
+        plan.title,
+        sources,
+        frequency=f,
+        analysis="ac" if frequency else "op",
+        emfs=ns.emfs,
+        readings=ns.readings,
+        notes=notes,
+    )
 
 
-#: the ground network of a plan: render(plan, frequency)
+#: the ground network of a plan: render(plan, frequency, source group, channel)
 NETLIST_FORMATS: dict[str, Format] = {
     "spice": Format(
         "spice",
         _spice,
         False,
-        "a plain SPICE netlist, elements named after the plan's conductors (R, L, C and the "
-        "plan's current sources)",
+        "a plain SPICE netlist, elements named after the plan's conductors (R, L, C, the "
+        "plan's current sources, its loops' EMFs and its stages' readings)",
     )
 }
 
