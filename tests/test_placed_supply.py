@@ -50,7 +50,10 @@ def test_a_tn_s_plan_in_a_tt_building_without_an_rcd_is_a_danger(tmp_path):
     assert dangers and all(f.severity == "danger" for f in dangers)
     f = dangers[0]
     assert 0.760 <= f.figures["fault_current_a"] <= 0.764, f.figures
-    assert "TT supply, electrode 300 Ω, no RCD; its own plan assumes TN-S" in f.message
+    assert (
+        "TT supply, electrode 300 Ω, no RCD, its fault loop through run; its own plan assumes TN-S"
+        in f.message
+    )
     assert f.elements[0].startswith("amp.") and f.location.file.endswith("amp.gplan")
     assert any(f.code == "GC221" for f in _placed(r))
 
@@ -117,5 +120,62 @@ def test_a_device_behind_a_transformer_is_not_checked_on_the_buildings_supply(tm
 def test_a_relaxed_path_limit_is_announced_in_an_installation_whose_devices_it_judges(tmp_path):
     # the devices are checked on the building's supply with the run's limit: relaxing it must be
     # said, as it is for one piece of equipment
-    r = analyze(_room(tmp_path, "system TT, electrode 300 ohm"), Options(hum=False, pe_limit=1.0))
+    r = analyze(_room(tmp_path, "system TT, electrode 300 ohm"), Options(hum=False, pe_limit=0.5))
     assert any("--pe-limit" in n for n in r.notices)
+
+
+HEAD = """plan "head"
+mains 230 V 50 Hz, breaker 16 A B, system TN-C-S, cord 2 m 0.75 mm2, inlet at 10,10
+metal chassis: aluminium 1.5 mm, 300 x 200 mm, touchable
+point pe_stud: stud, at 20,10 on chassis
+wire pe_lead: mains.pe to pe_stud, 40 mm, 1.5 mm2, protective
+bolt pe_bolt: pe_stud to chassis, protective
+"""
+
+STAGE = """plan "stage"
+supply 230 V 50 Hz, system TN-C-S
+point met: earthing-terminal
+point wall: outlet
+point reel_out: outlet
+cable radial: met to wall, 20 m, 2.5 mm2, cores L-N-PE
+cable reel: wall to reel_out, 50 m, 1.0 mm2, cores round
+device head: "head.gplan", plugged {outlet}
+"""
+
+
+def _stage(tmp_path, outlet: str):
+    (tmp_path / "head.gplan").write_text(HEAD)
+    (tmp_path / "stage.gplan").write_text(STAGE.format(outlet=outlet))
+    return analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
+
+
+def test_a_long_reel_in_a_tn_fault_loop_is_a_danger(tmp_path):
+    # An outside reviewer's stage: the device's own plan assumed 20 m of final circuit; plugged at
+    # the end of a 50 m reel of 1 mm² flex its fault loop is, by hand at 70 °C (IEC 60228 maxima
+    # × (230 + 70)/250 = 1.2; Ze 0.35 Ω, TN-C-S's default): radial 2 × 20 m × 7.41 Ω/km × 1.2 =
+    # 0.3557 Ω, reel 2 × 50 m × 19.5 Ω/km × 1.2 = 2.34 Ω, cord 2 × 2 m × 26 Ω/km × 1.2 = 0.1248
+    # Ω: 3.1705 Ω before the breaker and the head's own 40 mm lead, so I ≤ 230 / 3.1705 = 72.54 A,
+    # under the 80 A (5 × In) that trips a type B 16 A breaker at once (IEC 60898-1): not within
+    # 0.4 s (IEC 60364-4-41 Table 41.1, TN at 230 V) — a danger.
+    r = _stage(tmp_path, "reel_out")
+    (f, *_) = [x for x in r.findings if x.code == "GC208" and x.message.startswith("head,")]
+    assert f.severity == "danger"
+    assert 68.0 <= f.figures["fault_current_a"] <= 72.545, f.figures
+    assert "its fault loop through radial, reel" in f.message
+    # at the wall the loop is 0.35 + 0.3557 + 0.1248 = 0.83 Ω: about 277 A, tripped at once
+    assert not [x for x in _stage(tmp_path, "wall").findings if x.code == "GC208"]
+
+
+def test_a_devices_own_protective_earth_danger_is_the_installations_too(tmp_path):
+    # the head's own plan with its protective lead far too long and thin: its own plan finds the
+    # path over the limit, and so does the installation, under the device's name
+    (tmp_path / "head.gplan").write_text(
+        HEAD.replace("40 mm, 1.5 mm2, protective", "4 m, 0.2 mm2, protective")
+    )
+    (tmp_path / "stage.gplan").write_text(STAGE.format(outlet="wall"))
+    alone = analyze(load(tmp_path / "head.gplan"), Options(hum=False))
+    assert [f for f in alone.findings if f.code == "GC206" and f.severity == "danger"]
+    r = analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
+    (f,) = [x for x in r.findings if x.code == "GC206"]
+    assert f.severity == "danger" and f.elements[0].startswith("head.")
+    assert f.message.startswith("head's own wiring (its own plan finds it too)")

@@ -38,6 +38,11 @@ class Mains:
     frequency: float
     fuse: float | None = None  # rating, A
     fuse_kind: str = "slow"  # slow | fast | breaker-B | breaker-C | breaker-D
+    #: the supply circuit's breaker when the plan states it beside the equipment's fuse: rating,
+    #: A, and kind (breaker-B, -C, -D); a fault at the inlet, ahead of the fuse, is cleared by it
+    #: alone
+    breaker: float | None = None
+    breaker_kind: str = "breaker-B"
     fuse_i2t: float | None = None  # let-through I²t, A²s, when the plan states it
     clear_time: float | None = None  # clearing time, s, when the plan states it
     line_area: float | None = None  # line-conductor cross-section, m²
@@ -51,6 +56,10 @@ class Mains:
     circuit_length: float | None = None  # final circuit from the origin to the socket, m
     circuit_area: float | None = None  # its line conductor, m²
     cpc_area: float | None = None  # its circuit protective conductor, m² (default: circuit_area)
+    #: a placed device's path through an installation, from the socket it is plugged into to the
+    #: origin, in place of ``circuit``: (name, length m, line area m², protective area m²,
+    #: flexible) of each conductor in series
+    route: tuple[tuple[str, float, float, float, bool], ...] | None = None
     electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
     equipment_class: str = "I"  # I | II
     breaking: str | None = None  # low | enhanced | high (IEC 60127 categories)

@@ -93,13 +93,20 @@ def external_loop(m) -> tuple[float, float]:
 
 def _cables(m, temperature: float) -> tuple[float, float, float]:
     """(circuit line, circuit protective conductor, cord core) resistances at ``temperature``,
-    Ω."""
+    Ω; the circuit is a placed device's route through its installation when it has one."""
+    cord = cable_resistance(m.cord_length, m.cord_section, True, temperature)
+    if m.route is not None:  # a placed device: the installation's conductors to the origin
+        return (
+            sum(cable_resistance(ln, a, flex, temperature) for _, ln, a, _, flex in m.route),
+            sum(cable_resistance(ln, pe, flex, temperature) for _, ln, _, pe, flex in m.route),
+            cord,
+        )
     c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]
     c_area = m.circuit_area or DEFAULT_CIRCUIT[1]
     return (
         cable_resistance(c_len, c_area, False, temperature),
         cable_resistance(c_len, m.cpc_area or c_area, False, temperature),
-        cable_resistance(m.cord_length, m.cord_section, True, temperature),
+        cord,
     )
 
 
@@ -122,7 +129,9 @@ def supply_figures(plan: Plan) -> Supply:
     line, cpc, cord = _cables(m, hot_t)
     ze, electrode = external_loop(m)
     fuse_r = 0.0
-    if m.fuse is not None:
+    if m.breaker is not None:  # the fault at the inlet, ahead of the equipment's fuse
+        fuse_r = fuse_cold_resistance(m.breaker_kind, m.breaker)
+    elif m.fuse is not None:
         fuse_r = (
             m.fuse_resistance
             if m.fuse_resistance is not None

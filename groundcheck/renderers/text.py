@@ -114,8 +114,9 @@ def _earth_line(result: Result, console: Console) -> None:
         n = len(result.device_earths)
         paths = "1 device's earth path" if n == 1 else f"{n} devices' earth paths"
         own = (
-            f"each device's own wiring is checked with its own plan on this {plan.supply.system} "
-            "supply"
+            f"each device with a plan of its own is checked on this {plan.supply.system} supply, "
+            "its fault loop through the wiring to where it is plugged in; simple devices' "
+            "disconnection is not checked"
             if plan.supply is not None
             else "each device's own wiring is checked with its own plan"
         )

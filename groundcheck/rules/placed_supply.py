@@ -8,7 +8,16 @@ Each device whose own plan states a mains is therefore analysed once more with t
 installation's supply (:meth:`groundcheck.model.supplies.Supply.for_device`); the protective-earth
 findings this gives that its own plan does not are the installation's, under the device's name.
 
-References: IEC 60364-4-41 411.4 (TN) and 411.5 (TT: the fault loop through the electrode, RCDs).
+Its fault loop runs through the installation as written: the conductors from the outlet it is
+plugged into to the main earthing terminal (cables, whose protective core's area is stated and
+whose line core is taken as the same, and protective wires, whose line conductor is taken to run
+beside them at the same size), in place of the final circuit its own plan assumes.  A reel of 50 m
+of 1 mm² flex puts over 3 Ω in the loop, which no 16 A breaker clears in 0.4 s.  Cables with round
+cores (cords, reels) and protective wires are taken at IEC 60228 class 5 (flexible), flat cables
+at class 1/2.
+
+References: IEC 60364-4-41 411.4 (TN) and 411.5 (TT: the fault loop through the electrode, RCDs);
+IEC 60228 (conductor resistance).
 """
 
 from __future__ import annotations
@@ -16,9 +25,12 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import Callable
 
+import networkx as nx
+
 from ..model.installation import transformer_feeds
+from ..model.kinds import PROTECTIVE, can_carry_protective, kind
 from ..model.records import Plan
-from .catalogue import Finding, protective_earth_rule
+from .catalogue import Finding, protective_earth_rule, severity_rank
 from .results import Options, Result
 
 __all__ = ["placed_supply_findings"]
@@ -44,41 +56,102 @@ def placed_supply_findings(
         return []
     quick = replace(options, hum=False, jobs=1)
     done: dict = {}
+    alone: dict = {}
     out: list[Finding] = []
     # a device behind a transformer is supplied by its secondary, not by the building
     behind = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
     plugged = {d.name: d.plugged for d in plan.devices}
+    graph = _building(plan)
     for name, own in plan.device_plans:
         m = own.mains
         if m is None or m.equipment_class == "II" or plugged.get(name) in behind:
             continue
         placed = supply.for_device(m)
-        if placed == m:
-            continue  # its own check is the installation's
+        route = _route(plan, graph, plugged.get(name))
+        if route is not None:
+            placed = replace(placed, route=route)
+        if id(own) not in alone:
+            alone[id(own)] = analyze(own, quick).findings
         key = (id(own), placed)
         if key not in done:
-            alone = {(f.code, f.elements) for f in analyze(own, quick).findings}
-            there = analyze(replace(own, mains=placed), quick).findings
+            mine = {(f.code, f.elements) for f in alone[id(own)]}
+            there = (
+                analyze(replace(own, mains=placed), quick).findings
+                if placed != m
+                else alone[id(own)]
+            )
+            # new on this supply, and the device's own dangers and faults: the installation's too
             done[key] = [
-                f
+                (f, (f.code, f.elements) in mine)
                 for f in there
-                if protective_earth_rule(f.code) and (f.code, f.elements) not in alone
+                if protective_earth_rule(f.code)
+                and (
+                    (f.code, f.elements) not in mine
+                    or severity_rank(f.severity) <= severity_rank("fault")
+                )
             ]
-        out += [_placed(f, name, placed, m) for f in done[key]]
+        out += [_placed(f, name, placed, m, its_own) for f, its_own in done[key]]
     return out
 
 
-def _placed(f: Finding, name: str, placed, own) -> Finding:
-    """A device's finding as the installation reports it."""
+def _cable(c) -> bool:
+    """Whether ``c`` is a building cable (line and neutral cores beside its protective core)."""
+    return kind(c.kind).carries_load
+
+
+def _building(plan: Plan) -> nx.Graph:
+    """The installation's own protective wiring (cables and protective wires outside every
+    device), each edge weighted by its resistance per resistivity, L/A."""
+    device_of = plan.index.device_of
+    g = nx.Graph()
+    for c in plan.conductors:
+        if device_of(c.name) is not None or not can_carry_protective(c):
+            continue
+        if not (_cable(c) or c.role == PROTECTIVE) or not (c.length and c.area):
+            continue
+        weight = c.length / c.area
+        if not g.has_edge(c.a, c.b) or g[c.a][c.b]["weight"] > weight:
+            g.add_edge(c.a, c.b, weight=weight, conductor=c)
+    return g
+
+
+def _route(plan: Plan, graph: nx.Graph, outlet: str | None):
+    """The conductors from ``outlet`` to the main earthing terminal along the least resistance,
+    as the fault loop takes them: (name, length, line area, protective area, flexible); None when
+    the outlet reaches no earthing terminal through them (GC215 reports that)."""
+    mets = [p.name for p in plan.points if p.kind == "earthing-terminal" and p.name in graph]
+    if outlet is None or outlet not in graph or not mets:
+        return None
+    try:
+        _, path = nx.multi_source_dijkstra(graph, set(mets), outlet, weight="weight")
+    except nx.NetworkXNoPath:
+        return None
+    out = []
+    for a, b in zip(path, path[1:]):
+        c = graph[a][b]["conductor"]
+        flexible = not _cable(c) or c.cores == "round"
+        out.append((c.name, c.length, c.area, c.area, flexible))
+    return tuple(out)
+
+
+def _placed(f: Finding, name: str, placed, own, its_own: bool = False) -> Finding:
+    """A device's finding as the installation reports it (``its_own``: its own plan finds it
+    too)."""
     said = [f"{placed.system} supply"]
     if placed.electrode is not None:
         said.append(f"electrode {placed.electrode:g} Ω")
     said.append(f"RCD {placed.rcd * 1e3:g} mA" if placed.rcd is not None else "no RCD")
+    if placed.route:
+        said.append("its fault loop through " + ", ".join(r[0] for r in placed.route))
+    where = (
+        f"{name}'s own wiring (its own plan finds it too), plugged into this installation"
+        if its_own
+        else f"{name}, plugged into this installation"
+    )
     return replace(
         f,
         message=(
-            f"{name}, plugged into this installation ({', '.join(said)}; its own plan assumes "
-            f"{own.system}): {f.message}"
+            f"{where} ({', '.join(said)}; its own plan assumes {own.system}): {f.message}"
         ),
         elements=tuple(f"{name}.{e}" for e in f.elements),
     )

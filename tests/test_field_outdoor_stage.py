@@ -1,0 +1,70 @@
+"""An outside reviewer's outdoor stage (tests/field/outdoor-stage-reels, copied as written): a
+hall's TN-C-S socket feeding two 50 m reels, a valve head with its own plan on the thin reel, a
+bass amp through an adapter whose earth pin goes nowhere, a speaker whose cord's earth is cut. His
+verdict: the thin reel's fault loop cannot trip the breaker in time (a danger the installation
+check missed: the reel never entered any fault loop), the two broken earths, the head's own
+protective-earth dangers shown by the installation too, and the broken earths restored in the
+combined set.
+
+Hand figures for the reel (IEC 60228 maxima at 70 °C, × (230 + 70)/250 = 1.2; Ze 0.35 Ω, TN-C-S's
+default; the line conductor taken at its protective conductor's size, as the model does where the
+plan gives none): circuit_cpc 2 × 20 m × 13.3 Ω/km × 1.2 = 0.6384 Ω (a protective wire: class 5),
+reel2 2 × 50 m × 19.5 Ω/km × 1.2 = 2.34 Ω, strip2_lead 2 × 1.5 m × 19.5 Ω/km × 1.2 = 0.0702 Ω, the
+head's cord 2 × 3 m × 19.5 Ω/km × 1.2 = 0.1404 Ω: 3.539 Ω before the breaker and the head's own
+lead, so I ≤ 230 / 3.539 = 65.0 A, under the 80 A that trips a type B 16 A breaker at once (IEC
+60898-1): not within 0.4 s (IEC 60364-4-41 Table 41.1). The reviewer's 68–71 A took the hall's line
+conductor at 2.5 mm², which the plan does not state."""
+
+from functools import lru_cache
+from pathlib import Path
+
+from groundcheck import load
+from groundcheck.analysis import Options, analyze
+from groundcheck.advice.repair import greedy
+
+FIELD = Path(__file__).parent / "field" / "outdoor-stage-reels"
+STAGE = FIELD / "outdoor-stage.gplan"
+
+
+@lru_cache(maxsize=1)
+def _checked():
+    return analyze(load(STAGE), Options(hum=False))
+
+
+def test_the_thin_reels_fault_loop_is_a_danger():
+    found = [
+        f
+        for f in _checked().findings
+        if f.code == "GC208" and f.message.startswith("gtr, plugged into this installation")
+    ]
+    assert found and all(f.severity == "danger" for f in found)
+    chassis = next(f for f in found if "line-to-chassis" in f.message)
+    assert 63.0 <= chassis.figures["fault_current_a"] <= 65.0, chassis.figures
+    assert "its fault loop through circuit_cpc, reel2, strip2_lead" in chassis.message
+    assert chassis.location.file.endswith("valve-head.gplan")
+
+
+def test_the_broken_earths_and_the_heads_own_dangers_are_reported():
+    r = _checked()
+    broken = {f.elements[0] for f in r.findings if f.code == "GC215" and f.severity == "danger"}
+    assert {"bass", "spk_r"} <= broken
+    own = {
+        f.code
+        for f in r.findings
+        if f.severity == "danger" and f.message.startswith("gtr's own wiring")
+    }
+    assert {"GC206", "GC223"} <= own
+
+
+def test_the_combined_set_restores_every_broken_earth_and_clears_every_danger():
+    plan = load(STAGE)
+    chosen, final, _ = greedy(plan, STAGE.read_text(), root=FIELD, resolved=STAGE.resolve())
+    titles = [e.candidate.title for e in chosen]
+    assert any(t.startswith("plug bass in at strip1") for t in titles)
+    assert any(t.startswith("plug spk_r in at strip1") for t in titles)
+    assert not [f for f in final.findings if f.severity == "danger"], [
+        (f.code, f.elements) for f in final.findings if f.severity == "danger"
+    ]
+    # never: lifting a protective earth, or a lift network on a link whose shield is the only
+    # thing holding an unearthed chassis near earth
+    assert not [t for t in titles if "lift" in t]
