@@ -406,8 +406,11 @@ def test_protective_fixes_are_proposed_and_applied(tmp_path):
     )
     assert "GC202" not in _codes_after(useful["GC202"])
     assert all(p.path_resistance < 0.1 for p in useful["GC202"].result.safety.parts)
-    # panel_lead is protective by topology: never removed, whatever else is tried
-    assert all("panel_lead" not in e.candidate.title or e.candidate.reason == "GC204" for e in evs)
+    # panel_lead is protective by topology: never removed, whatever else is tried (only made
+    # thicker: to the line conductor's size, GC204, or to what passes the bonding test, GC223)
+    assert all(
+        "panel_lead" not in e.candidate.title or e.candidate.action == "thicken" for e in evs
+    )
 
 
 @pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])

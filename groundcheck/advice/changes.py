@@ -306,7 +306,7 @@ def rephrase(
     if not ph:
         return None
     edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
-    edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
+    edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
     touches = ctx.protective(c) if protective is None else protective
     return Candidate(title, reason, (edit,), touches, action=action, element=c.name)
 

@@ -29,6 +29,8 @@ from .returns import lost_wired_returns
 
 #: the key of :attr:`Evaluation.net` that counts protective-earth faults (among the faults)
 PE_FAULT = "protective-earth fault"
+#: the rejection of a change that brings a danger (the combined set tries it again last)
+ADDS_DANGER = "it would add a danger finding"
 
 __all__ = ["Evaluation", "evaluate", "HUM_FLOOR_DBV", "LOUDER_DB", "PE_TOLERANCE"]
 
@@ -175,7 +177,7 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
             if f.severity == "fault" and RULES[f.code].family == PROTECTIVE_EARTH:
                 ev.net[PE_FAULT] = ev.net.get(PE_FAULT, 0) + sign
     if any(k1[k].severity == "danger" for k in new):
-        ev.rejected = "it would add a danger finding"
+        ev.rejected = ADDS_DANGER
         return ev
     outlets = {p.name for p in after.plan.points if p.kind == "outlet"}
     # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the
@@ -265,9 +267,16 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
     score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
     ev.score = score
     louder = {ch: d for ch, d in ev.hum_change_db.items() if d > LOUDER_DB}
-    if louder and ev.net.get("danger", 0) <= 0 and ev.net.get("fault", 0) <= 0:
+    safety = ev.net.get("danger", 0) > 0 or (
+        ev.net.get("danger", 0) == 0 and ev.net.get(PE_FAULT, 0) > 0
+    )
+    if louder and not safety and ev.net.get("fault", 0) <= 0:
         # advice that makes a channel hum more is no advice, unless it clears a danger or a fault
         ch, d = max(louder.items(), key=lambda kv: kv[1])
         ev.rejected = f"it would make the {ch} hum {d:.1f} dB louder"
+    elif score <= 1e-9 and safety:
+        # a danger or a protective-earth fault cleared (and no danger brought) is never "no
+        # gain", whatever hum findings it moves
+        ev.score = 1e-6
     elif score <= 1e-9:
         ev.rejected = "no predicted gain: no hum removed and no finding cleared on balance"

@@ -217,7 +217,7 @@ def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
     edit = ctx.src.replace(st, [])
     rows = edit.new.split("\n")
     rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
-    return Edit(edit.line, "\n".join(rows), (), edit.last)
+    return Edit(edit.line, "\n".join(rows), (), edit.last, edit.file)
 
 
 def shield_to_chassis(ctx: ChangeContext, f):

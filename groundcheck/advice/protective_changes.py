@@ -18,6 +18,7 @@ from .changes import (
     STUD_CLEARANCE,
     Candidate,
     ChangeContext,
+    local_name,
     squeeze,
 )
 from .edits import Edit
@@ -133,9 +134,15 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     where = _stud_position(ctx, part, old_pt.pos) if part is not None else None
     if where is None or ends is None:
         return None
-    new_pt = _free_name(ctx, ("pe_stud", "pe_stud2", "pe_stud3", "pe_stud4"))
+    # inside a block or a device's own plan the statement names its points without the prefix
+    prefix = pe.name[: len(pe.name) - len(st.label or "")] if st.label else ""
+    new_pt = _free_name(ctx, tuple(prefix + n for n in ("pe_stud", "pe_stud2", "pe_stud3")))
+
+    def local(name: str) -> str:
+        return local_name(pe.name, st.label or "", name)
+
     item = ends[1] if pe.b == old_pt.name else ends[0]
-    changes = [(item, new_pt)]
+    changes = [(item, local(new_pt))]
     other = ctx.points.get(pe.a if pe.b == old_pt.name else pe.b)
     old_len = ctx.src.quantity(st, "length")
     if other is not None and other.pos is not None and old_len is not None:
@@ -144,8 +151,8 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     edit = ctx.src.replace(st, _written_protective(ctx, st, changes))  # its comment stays
     x, y = where[0] * 1e3, where[1] * 1e3
     extra = (
-        f"point {new_pt}: stud, at {x:.0f},{y:.0f} on {part}",
-        f"bolt {new_pt}_nut: {new_pt} to {part}, protective",
+        f"point {local(new_pt)}: stud, at {x:.0f},{y:.0f} on {local(part)}",
+        f"bolt {local(new_pt)}_nut: {local(new_pt)} to {local(part)}, protective",
     )
     edit = Edit(edit.line, edit.new, extra, edit.last, edit.file)
     return Candidate(
@@ -177,20 +184,36 @@ def _written_protective(ctx: ChangeContext, st, changes: list) -> list:
     return [c for c in changes if c[0] is not last] + [(last, text + ", protective")]
 
 
-def _protective_lead(ctx: ChangeContext):
-    """The mains cord's protective lead (a hook-up wire from the protective-earth point), the
-    point it lands on and its statement; None when the plan has none of them."""
+def equipment_mains(ctx: ChangeContext, element: str | None):
+    """The mains record that feeds ``element``'s equipment and the prefix of its names: the plan's
+    own (prefix ""), or in an installation the placed device's own plan's (prefix "DEVICE.");
+    (None, "") when there is none."""
+    if ctx.plan.mains is not None:
+        return ctx.plan.mains, ""
+    dev = ctx.plan.index.device_of(element) if element else None
+    own = dict(ctx.plan.device_plans).get(dev) if dev else None
+    if own is None or own.mains is None:
+        return None, ""
+    return own.mains, f"{dev}."
+
+
+def _protective_lead(ctx: ChangeContext, element: str | None = None):
+    """The mains cord's protective lead (a hook-up wire from the protective-earth point) of
+    ``element``'s equipment, the point it lands on and its statement; None when the plan has none
+    of them."""
+    mains, prefix = equipment_mains(ctx, element)
+    pe = prefix + PE_POINT
     lead = next(
         (
             c
             for c in ctx.plan.conductors
-            if PE_POINT in (c.a, c.b) and is_hookup(c) and ctx.protective(c)
+            if pe in (c.a, c.b) and is_hookup(c) and ctx.protective(c)
         ),
         None,
     )
-    if lead is None or ctx.plan.mains is None:
+    if lead is None or mains is None:
         return None
-    landing = ctx.points.get(lead.b if lead.a == PE_POINT else lead.a)
+    landing = ctx.points.get(lead.b if lead.a == pe else lead.a)
     st = ctx.statement(lead)
     if landing is None or landing.pos is None or st is None:
         return None
@@ -227,7 +250,7 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     to a new stud on the part (common practice: each touchable part bonded by a conductor, never
     through its fixings)."""
     part = next((e for e in f.elements if e in ctx.metals), None)
-    found = _protective_lead(ctx) if part is not None else None
+    found = _protective_lead(ctx, part) if part is not None else None
     metal = ctx.plan.metal(part) if found is not None else None
     if found is None or metal is None or metal.size is None:
         return None
@@ -239,16 +262,25 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     if ends is None:
         return None
     start, end, a, b = ends
-    area = max(lead.area or 0.0, ctx.plan.mains.line_area or 0.0) * 1e6
+    needs = [
+        x.figures.get("thicker_mm2") or 0.0  # a bonding test's smallest passing size
+        for x in ctx.result.findings
+        if lead.name in x.elements
+    ]
+    mains, prefix = equipment_mains(ctx, part)
+    line = mains.line_area if mains is not None else None
+    area = max([(lead.area or 0.0) * 1e6, (line or 0.0) * 1e6, *needs])
     area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
     length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), SERVICE_SLACK) * 1e3
     mm = [round(v * 1e3) for v in (*start, *end)]
+    # in a device's own plan its names are written without the device's prefix
+    n = {x: x[len(prefix) :] if st.loc.file != ctx.plan.file else x for x in (a, b, home, part)}
     extra = (
-        f"point {a}: stud, at {mm[0]},{mm[1]} on {home}",
-        f"bolt {a}_nut: {a} to {home}",
-        f"point {b}: stud, at {mm[2]},{mm[3]} on {part}",
-        f"bolt {b}_nut: {b} to {part}",
-        f"wire {b}_bond: {a} to {b}, {length:.0f} mm, {area:g} mm2, protective",
+        f"point {n[a]}: stud, at {mm[0]},{mm[1]} on {n[home]}",
+        f"bolt {n[a]}_nut: {n[a]} to {n[home]}",
+        f"point {n[b]}: stud, at {mm[2]},{mm[3]} on {n[part]}",
+        f"bolt {n[b]}_nut: {n[b]} to {n[part]}",
+        f"wire {n[b]}_bond: {n[a]} to {n[b]}, {length:.0f} mm, {area:g} mm2, protective",
     )
     return Candidate(
         f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud "
@@ -275,14 +307,23 @@ def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
 
 
 def thicker(ctx: ChangeContext, f) -> Candidate | None:
-    """GC204: the protective conductor at the line conductor's cross-section (a change that only
-    strengthens it)."""
-    c = ctx.cond[f.elements[0]]
-    st = ctx.statement(c)
-    if st is None or ctx.plan.mains is None or ctx.plan.mains.line_area is None:
+    """GC204: the protective conductor at the line conductor's cross-section; GC223: at the
+    smallest standard size that passes the bonding test (each a change that only strengthens
+    it)."""
+    c = ctx.cond.get(f.elements[0]) if f.elements else None
+    st = ctx.statement(c) if c is not None else None
+    passes = f.figures.get("thicker_mm2")  # GC223: the smallest size that passes the test
+    if st is None:
         return None
-    line = ctx.plan.mains.line_area * 1e6
-    area = next((a for a in STANDARD_SECTIONS_MM2 if a >= line * (1 - 1e-9)), line)
+    if passes is not None:
+        area = passes
+        why = "the smallest standard size that passes the bonding test"
+    elif ctx.plan.mains is None or ctx.plan.mains.line_area is None:
+        return None
+    else:
+        line = ctx.plan.mains.line_area * 1e6
+        area = next((a for a in STANDARD_SECTIONS_MM2 if a >= line * (1 - 1e-9)), line)
+        why = f"the standard size at least the line conductor's {line:.3g} mm²"
     new = f"{area:g} mm2"
     item = ctx.src.quantity(st, "area")
     if item is not None:
@@ -294,10 +335,9 @@ def thicker(ctx: ChangeContext, f) -> Candidate | None:
         if not ph:
             return None
         edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
-        edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last)
+        edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
     return Candidate(
-        f"use {area:g} mm² (the standard size at least the line conductor's {line:.3g} mm²) for "
-        f"protective conductor {c.name}",
+        f"use {area:g} mm² ({why}) for protective conductor {c.name}",
         f.code,
         (edit,),
         touches_protective=False,

@@ -26,7 +26,7 @@ from ..rules.catalogue import RULES, severity_rank
 from .budget import Clock
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
-from .evaluation import HUM_FLOOR_DBV, Evaluation, evaluate
+from .evaluation import ADDS_DANGER, HUM_FLOOR_DBV, Evaluation, evaluate
 from .fixes import NOT_TRIED
 
 __all__ = [
@@ -136,8 +136,10 @@ def advise(
 
 
 def _overlaps(edits, more) -> bool:
-    taken = {n for e in edits for n in range(e.line, (e.last or e.line) + 1)}
-    return any(n in taken for e in more for n in range(e.line, (e.last or e.line) + 1))
+    """Whether any of ``more`` edits a line of a file that ``edits`` already edit (lines of a
+    device's own plan and of the main plan are apart)."""
+    taken = {(e.file, n) for e in edits for n in range(e.line, (e.last or e.line) + 1)}
+    return any((e.file, n) in taken for e in more for n in range(e.line, (e.last or e.line) + 1))
 
 
 def greedy(
@@ -166,6 +168,9 @@ def greedy(
     chosen: list[Evaluation] = []
     edits: list = []
     useful = [e for e in evs if not e.rejected and e.score > 1e-9]
+    # a change that brought a danger on the plan as it was may not on the plan as changed (a bond
+    # whose wire could not survive a fault the installation's RCD now clears): tried last
+    useful += [e for e in evs if (e.rejected or "").startswith(ADDS_DANGER)]
     for i, e in enumerate(useful):
         if len(chosen) >= MAX_STEPS or not current.findings or not clock.fits():
             break

@@ -18,6 +18,7 @@ import math
 from ..physics.safety import TOUCH_LIMIT
 from ..rules.catalogue import RULES
 from .changes import Answer, Candidate, ChangeContext
+from .protective_changes import equipment_mains
 from .edits import Edit
 
 __all__ = [
@@ -57,7 +58,7 @@ def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
     rows = edit.new.split("\n")
     row = rows[n - st.loc.line]
     rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
-    return Edit(edit.line, "\n".join(rows), (), edit.last)
+    return Edit(edit.line, "\n".join(rows), (), edit.last, edit.file)
 
 
 def _set(ctx: ChangeContext, st, word: str, value: str) -> Edit:
@@ -175,8 +176,12 @@ def high_breaking(ctx: ChangeContext, f, add) -> None:
         IEC 60127-2's breaking-capacity categories (from memory): high-breaking 1500 A.
     """
     m, st = ctx.plan.mains, _mains_statement(ctx)
+    if m is None:  # an installation: the fuse is in the device's own plan
+        m, _ = equipment_mains(ctx, f.elements[0] if f.elements else None)
+        st = ctx.src.statement(m.location.line, m.location.file) if m is not None else None
     if (
-        st is None
+        m is None
+        or st is None
         or m.fuse_kind.startswith("breaker")
         or m.breaking == "high"
         or m.breaking_current is not None

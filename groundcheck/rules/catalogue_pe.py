@@ -84,14 +84,14 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         PROTECTIVE_EARTH,
         "danger",
         "Resistance of the protective path from the inlet's earth terminal to each touchable "
-        "part, against a limit (default 0.1 Ω). A limit relaxed with --pe-limit is reported in "
-        "every output, and a path over 0.1 Ω is still listed as a note.",
+        "part, against a limit (default 0.1 Ω). A limit relaxed with --pe-limit (at most 0.5 Ω) "
+        "is reported in every output, and a path over 0.1 Ω is still listed as a warning.",
         "A high protective-path resistance raises the touch voltage during a fault and may keep "
         "the fuse from opening quickly.",
         "Shorten or thicken the protective conductor, clean and tighten its fastenings.",
         "IEC 62368-1 5.6.6.2 (from memory); IEC 61010-1 6.5.2.4; IEC 60335-1 27.5 (0.1 Ω, supply "
         "cord excluded)",
-        variants=("danger", "note"),
+        variants=("danger", "warning"),
         actions=("bond",),
     ),
     entry(
@@ -360,5 +360,6 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "IEC 60065 15.2 and IEC 61010-1 6.5.2.4 (25 A, 1 min); IEC 60950-1:2005 2.6.3.4 (200 %, 2 "
         "min); IEC 60335-1 27.5 and IEC 62368-1 5.6.6.2 (from memory); IEC 60949 (adiabatic "
         "temperature); IEC 60364-5-54 Annex A (final temperatures)",
+        actions=("thicken",),
     ),
 ]
