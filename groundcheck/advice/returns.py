@@ -20,7 +20,7 @@ import networkx as nx
 
 from ..model.installation import device_of
 from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
-from ..model.records import PE_POINT, Plan
+from ..model.records import PE_POINT, SOCKET_KINDS, Plan
 from .changes import Candidate, ChangeContext, delete_change
 
 __all__ = [
@@ -31,10 +31,6 @@ __all__ = [
     "lost_wired_returns",
     "refuse",
 ]
-
-#: point kinds of a socket or part mounted through the metal: insulated from it by an insulated
-#: socket or shoulder washers (common practice)
-SOCKET_KINDS = ("sleeve", "jack", "pot", "terminal")
 
 
 def _socket_end(c, ctx: ChangeContext) -> str | None:

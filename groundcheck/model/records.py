@@ -55,6 +55,10 @@ __all__ = [
 #: the implicit point of the mains inlet's protective-earth terminal
 PE_POINT = "mains.pe"
 
+#: points that are a socket's, jack's, pot's or terminal's own ground: fastened to the metal, they
+#: are a bond to insulate, never the one to keep
+SOCKET_KINDS = ("sleeve", "jack", "pot", "terminal")
+
 XY = tuple[float, float]
 
 #: how a building cable's three cores lie (see :mod:`groundcheck.physics.induction`): flat with the

@@ -25,8 +25,9 @@ from ..model.kinds import (
     shield_like,
 )
 from ..model.index import outermost
-from ..model.records import PE_POINT, Conductor, Plan
+from ..model.records import SOCKET_KINDS, Conductor, Plan
 from ..network.canonical import canonical_ranks
+from .pe_places import pe_distance
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
 from ..network.graph import (
     Loop,
@@ -329,8 +330,7 @@ def _second_bond(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | 
         x for r in ctx.plan.currents for x in (r.a, r.b)
     }
     # a socket, jack, pot or terminal fastened to the metal too: insulating it keeps its return
-    sockets = ("sleeve", "jack", "pot", "terminal")
-    ends |= {p.name for p in ctx.plan.points if p.kind in sockets}
+    ends |= {p.name for p in ctx.plan.points if p.kind in SOCKET_KINDS}
     bolt = next(
         (
             c
@@ -360,25 +360,3 @@ _OPENERS = {
     "channel-returns": _channel_tie,
     "second-chassis-bond": _second_bond,
 }
-
-
-def pe_distance(ctx: AuditContext, node: str) -> float:
-    """Straight-line distance from a chassis-side point to the protective-earth landing (0 when
-    unknown).
-
-    Parameters:
-        ctx: the audit context.
-        node: a chassis-side point.
-    Returns:
-        the straight-line distance to the protective-earth landing, m.
-    References:
-        elementary geometry.
-    """
-    pe = [v for v in ctx.G.adj.get(PE_POINT, {}) if ctx.G.nodes[v].get("pos") is not None]
-    here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
-    if not pe or here is None:
-        return 0.0
-    # of several landings (a second protective wire from the inlet), the first in the network's
-    # canonical order: not the one the plan happens to write first
-    p = ctx.G.nodes[min(pe, key=canonical_ranks(ctx.G).__getitem__)]["pos"]
-    return ((p[0] - here[0]) ** 2 + (p[1] - here[1]) ** 2) ** 0.5

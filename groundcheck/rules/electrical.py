@@ -57,38 +57,23 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     leak = {c.name for c in s.plan.currents if c.role == LEAKAGE}
     channels = {st.name: st.channel for st in s.plan.stages}
     out = []
+    # devices whose earth pin reaches no main earthing terminal (GC215): their leakage returns by
+    # the shields that hold their chassis near earth
+    unearthed = {d.device for d in (s.device_earths or ()) if d.resistance is None}
     for row in s.coupling:
         fix = _shared_fix(row, plan_conductors, leak)
+        dev = s.plan.index.device_of(row.source) if row.source in leak else None
+        if dev in unearthed:
+            fix = _unearthed_fix(dev, row, plan_conductors)
         figures = {
             "transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"),
             "stage_gain_db": row.stage_gain,
         }
-        severity, heard = "fault", ""
-        level = _source_level(s, row, channels.get(row.stage))
-        if level is None and not s.options.hum:
-            heard = (
-                "; not weighed against the hum budget (the hum figures were not computed: "
-                "--no-hum), so it stays a fault; without --no-hum the budget says whether it is "
-                "heard"
-            )
-        if level is not None:
-            if level > 0:
-                figures["level_dbv"] = dbv(level)
-            # a level at the contributor level (to 1e-9 dB) is not below it: 1 mA through 10 mΩ
-            # read at 0 dB is exactly -100 dBV, and the last bit of the solve would decide
-            if level <= 0 or dbv(level) < s.options.contributor_level - 1e-9:
-                severity = "note"
-                heard = (
-                    f"; the hum budget puts it at {dbv(level):.1f} dBV at the "
-                    f"{channels[row.stage]} output, below the {s.options.contributor_level:g} dBV "
-                    "contributor level"
-                    if level > 0
-                    else f"; the hum budget finds none of it at the {channels[row.stage]} output"
-                )
+        below, heard = _weighed(s, row, channels.get(row.stage), figures)
         out.append(
             Finding(
                 "GC102",
-                severity,
+                "note" if below else "fault",
                 f"{'leakage current' if row.source in leak else f'{row.kind} return'} "
                 f"{row.source} ({row.a} → {row.b}) shares {', '.join(row.shared)} with stage "
                 f"{row.stage} ({row.stage_a} – {row.stage_b}){heard}",
@@ -99,6 +84,49 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             )
         )
     return out
+
+
+def _weighed(s: Solved, row, channel: str | None, figures: dict) -> tuple[bool, str]:
+    """Whether a shared return is below the contributor level (a note; otherwise, and when the
+    budget was not run, a fault), and what the hum budget says of it; its level goes into
+    ``figures``."""
+    level = _source_level(s, row, channel)
+    if level is None:
+        if s.options.hum:
+            return False, ""
+        return False, (
+            "; not weighed against the hum budget (the hum figures were not computed: "
+            "--no-hum), so it stays a fault; without --no-hum the budget says whether it is "
+            "heard"
+        )
+    if level > 0:
+        figures["level_dbv"] = dbv(level)
+    # a level at the contributor level (to 1e-9 dB) is not below it: 1 mA through 10 mΩ read at
+    # 0 dB is exactly -100 dBV, and the last bit of the solve would decide
+    if level > 0 and dbv(level) >= s.options.contributor_level - 1e-9:
+        return False, ""
+    return True, (
+        f"; the hum budget puts it at {dbv(level):.1f} dBV at the {channel} output, below the "
+        f"{s.options.contributor_level:g} dBV contributor level"
+        if level > 0
+        else f"; the hum budget finds none of it at the {channel} output"
+    )
+
+
+def _unearthed_fix(dev: str, row, plan_conductors: dict) -> str:
+    """A leakage current of a device with no earth path: its own earth comes first; the shields
+    it flows by are what holds its chassis near earth meanwhile."""
+    via = [x for x in row.shared if x in plan_conductors and joins_devices(plan_conductors[x])]
+    held = (
+        f"; the shield of {', '.join(via)} is what holds {dev}'s chassis near earth meanwhile: "
+        "never lift it or put a ground-lift network in it"
+        if via
+        else ""
+    )
+    return (
+        f"restore {dev}'s protective earth first (its earth pin reaches no main earthing "
+        f"terminal, GC215){held}; never lift a protective earth"
+    )
 
 
 def _shared_fix(row, plan_conductors: dict, leak: set) -> str:

@@ -7,11 +7,13 @@ A pure function of an :class:`~groundcheck.rules.context.AuditContext`, register
 
 from __future__ import annotations
 
-from ..model.kinds import is_fastening, joins_devices
+from ..model.kinds import is_fastening, joins_devices, shield_like
 from ..network.graph import Loop
 from .catalogue import Finding
+from ..model.records import SOCKET_KINDS
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext
 from .registry import rule
+from .repairs import only_return_end
 
 __all__ = ["rule_loops"]
 
@@ -86,6 +88,12 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
             "into one outlet or strip, or use an input of better rejection; never lift the "
             "protective earth"
         ), ()
+    if opener is not None and info.closed_by == "shield-both-ends":
+        if joins_devices(opener) and not opener.balanced:  # its shield is the link's return
+            return _own_return_fix(info, opener, f"the unbalanced link {opener.name}", ctx)
+        alone = only_return_end(ctx, opener) if shield_like(opener) else None
+        if alone is not None:
+            return _own_return_fix(info, opener, alone, ctx)
     if opener is not None and is_fastening(opener, ctx.metals):
         where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
         actions = (("insulate", info.open_at),)
@@ -101,3 +109,30 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
         "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal "
         "side; never lift the protective earth)",
     }.get(info.closed_by, ""), actions
+
+
+def _own_return_fix(info, shield, alone: str, ctx: AuditContext) -> tuple[str, tuple]:
+    """A loop through a shield that is a socket's only return: the shield keeps both ends (opened,
+    the socket would float and the signal lose its return: full-scale buzz); the loop opens at a
+    socket fastened to the metal on it, insulated, else it is kept small."""
+    keep = f"keep both ends of {shield.name}: it is the only return of {alone}"
+    if alone.startswith("the unbalanced link"):
+        keep = f"keep both ends of {shield.name}: its shield is the signal's return"
+    for name in info.loop.edges:
+        c = ctx.conductors.get(name)
+        if c is None or not is_fastening(c, ctx.metals):
+            continue
+        point = c.b if c.a in ctx.metals else c.a
+        p = ctx.plan.point(point)
+        # a socket's own ground, not a deliberate bond
+        if p is not None and p.kind in SOCKET_KINDS:
+            return (
+                f"{keep}; insulate {point} from the metal instead (insulated socket or "
+                "shoulder washers), so that the loop opens there",
+                (("insulate", point),),
+            )
+    return (
+        f"{keep}; run the loop's leads together so that it encloses little area, or join their "
+        "returns at one point",
+        (),
+    )

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import networkx as nx
 
-from ..model.kinds import is_fastening
+from ..model.kinds import is_fastening, joins_devices
 from ..network.canonical import canonical_ranks
 from .graph_search import bfs
 
@@ -23,7 +23,9 @@ def only_return_end(ctx, c) -> str | None:
         ctx: the audit context.
         c: a shield conductor.
     Returns:
-        the end with no other conductor than the shield (fastenings to metal aside), or None.
+        the end with no other conductor than the shield (fastenings to metal aside, and
+        interconnects to other equipment, which bring the signal in and return it to the other
+        equipment, not to this one's circuit), or None.
     References:
         common practice (a screen that is a socket's only return carries its signal).
     """
@@ -33,7 +35,9 @@ def only_return_end(ctx, c) -> str | None:
         others = [
             k
             for _, _, k in ctx.G.edges(end, keys=True)
-            if k != c.name and not is_fastening(ctx.conductors[k], ctx.metals)
+            if k != c.name
+            and not is_fastening(ctx.conductors[k], ctx.metals)
+            and (joins_devices(c) or not joins_devices(ctx.conductors[k]))
         ]
         if not others:
             return end

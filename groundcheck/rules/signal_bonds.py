@@ -13,7 +13,9 @@ from ..model.kinds import bonds_metal, PROTECTIVE, is_fastening, joins_devices
 from ..model.records import PE_POINT
 from ..network.graph import part_labels
 from .catalogue import Finding
+from ..model.records import SOCKET_KINDS
 from .context import AuditContext
+from .pe_places import pe_point
 from .graph_search import bfs
 from .floating import floating_fix as _floating_fix
 from .registry import rule
@@ -42,7 +44,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
             )
             bonds = sorted(places)
             # keep the bond nearest the protective earth
-            keep = _nearest_pe(ctx, bonds)
+            keep, why = _nearest_pe(ctx, bonds)
             others = [b for b in bonds if b != keep]
             first_other = places[others[0]][0]
             actions = _unbond_actions(ctx, others, places)
@@ -61,7 +63,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
                     ctx.loc(first_other),
                     tuple(k for p in bonds for k in places[p]),
                     {"bonds": len(places)},
-                    f"keep the bond at {keep}, nearest the protective earth; {words}",
+                    f"keep the bond at {keep}{why}; {words}",
                     actions,
                 )
             )
@@ -110,6 +112,7 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
     idx = {n: i for i, n in enumerate(order)}
     rows, cols = [], []
     crossing = []  # (signal-side node, chassis-side node, conductor): the bonds
+    linked = []  # signal-side nodes an interconnect joins to another equipment's chassis side
     for u, v, k, d in ctx.edges:
         us, vs = u in side, v in side
         if not us and not vs:
@@ -118,6 +121,8 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
                 cols.append(idx[v])
         elif us != vs and not joins_devices(d["conductor"]):
             crossing.append((v, u, k) if us else (u, v, k))
+        elif us != vs:
+            linked.append(v if us else u)
     n = len(order)
     _, labels = part_labels(n, rows, cols)
     members: dict[int, list[str]] = {}
@@ -127,12 +132,24 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
     bonds_of: dict[int, dict[str, list[str]]] = {}
     for node, chassis, k in crossing:
         bonds_of.setdefault(int(labels[idx[node]]), {}).setdefault(chassis, []).append(k)
+    # a class II device's ground is referenced through its links to the equipment it feeds: it
+    # floats by design, never "floating" (its own box has no chassis bond to make)
+    by_link = {int(labels[idx[node]]) for node in linked if _class_ii(ctx, node)}
     out = []
     for label in sorted(members, key=lambda k: min(members[k])):
         comp = sorted(members[label])
+        if label in by_link and label not in bonds_of:
+            continue
         if set(comp) & ctx.signal_points:
             out.append((comp, {c: sorted(ks) for c, ks in bonds_of.get(label, {}).items()}))
     return out
+
+
+def _class_ii(ctx: AuditContext, node: str) -> bool:
+    """Whether ``node`` belongs to a placed class II device."""
+    dev = ctx.plan.index.device_of(node)
+    record = ctx.plan.index.devices.get(dev) if dev else None
+    return record is not None and record.equipment_class == "II"
 
 
 def _floating(ctx: AuditContext, comp: list[str], name: str) -> Finding:
@@ -215,10 +232,15 @@ def _component_name(ctx: AuditContext, comp: list[str]) -> str:
     return "at " + ", ".join(comp[:3]) + ("…" if len(comp) > 3 else "")
 
 
-def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
-    if PE_POINT not in ctx.G:
-        return candidates[0]
-    dist, _ = bfs(ctx.adj, [PE_POINT], lambda v: v in ctx.chassis_side)
+def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> tuple[str, str]:
+    """The bond to keep, and why: a deliberate one (not a socket's own ground fastened to the
+    metal) before a socket's, then the nearest the equipment's protective earth."""
+    sockets = {p.name for p in ctx.plan.points if p.kind in SOCKET_KINDS}
+    pe = pe_point(ctx, candidates[0])
+    if pe not in ctx.G:
+        keep = min(candidates, key=lambda c: (c in sockets, c))
+        return keep, "" if keep in sockets else " (not a socket's own ground)"
+    dist, _ = bfs(ctx.adj, [pe], lambda v: v in ctx.chassis_side)
     # equal hop counts (two studs on the same plate, say) are told apart by the distance on the
     # plate from the protective earth's own landing point, then by name
     landings = [q.pos for q in ctx.plan.points if q.pos is not None and dist.get(q.name) == 1]
@@ -230,4 +252,8 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> str:
             return math.inf
         return min(math.dist(pos, q) for q in landings)
 
-    return min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))
+    keep = min(candidates, key=lambda c: (c in sockets, dist.get(c, 10**9), metres(c), c))
+    nearest = min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))
+    if keep == nearest:
+        return keep, ", nearest the protective earth"
+    return keep, " (not a socket's own ground)"
