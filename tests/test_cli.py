@@ -204,7 +204,7 @@ def test_jobs_must_be_a_whole_number_from_one(cli, value):
 
 def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
     # a 150 mΩ fastening: over the 0.1 Ω bonding limit (IEC 61010-1 6.5.2.4), passed only under
-    # --pe-limit 10
+    # --pe-limit 0.5 (and still a warning)
     p = tmp_path / "loose.gplan"
     p.write_text(
         'plan "c"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.75 mm2\n'
@@ -213,15 +213,15 @@ def test_relaxed_pe_limit_is_said_in_every_format(cli, tmp_path):
         "mohm\n"
     )
     assert cli("check", str(p))[0] == 1
-    code, out, _ = cli("check", str(p), "--pe-limit", "10 ohm")
+    code, out, _ = cli("check", str(p), "--pe-limit", "0.5 ohm", "--fail-on", "fault")
     assert code == 0 and "Notice: protective-path limit relaxed" in out and "GC206" in out
-    doc = json.loads(cli("check", str(p), "--pe-limit", "10 ohm", "--format", "json")[1])
+    doc = json.loads(cli("check", str(p), "--pe-limit", "0.5 ohm", "--format", "json")[1])
     assert doc["summary"]["notices"] and doc["protective_earth"]["limit_relaxed"] is True
-    assert [f["severity"] for f in doc["findings"] if f["code"] == "GC206"] == ["note"]
-    sarif = json.loads(cli("check", str(p), "--pe-limit", "10 ohm", "--format", "sarif")[1])
+    assert [f["severity"] for f in doc["findings"] if f["code"] == "GC206"] == ["warning"]
+    sarif = json.loads(cli("check", str(p), "--pe-limit", "0.5 ohm", "--format", "sarif")[1])
     assert any("relaxed" in n for n in sarif["runs"][0]["properties"]["notices"])
     html = tmp_path / "r.html"
-    cli("report", str(p), "--pe-limit", "10 ohm", "-o", str(html))
+    cli("report", str(p), "--pe-limit", "0.5 ohm", "-o", str(html))
     assert 'class="notice"' in html.read_text() and "relaxed" in html.read_text()
 
 
@@ -240,6 +240,8 @@ def test_option_values_are_checked(cli):
     for args in (
         ("--max-frequency", "-100"),
         ("--pe-limit", "0"),
+        ("--pe-limit", "0.6 ohm"),  # at most 0.5 Ω: a path above it is no bond
+        ("--pe-limit", "1000"),
         ("--hum-level", "nan"),
         ("--max-frequency", "1e309"),
     ):

@@ -12,6 +12,7 @@ from ..core.errors import GroundcheckError, shown
 from ..core.units import UnitError, parse_quantity
 from ..language.loader import load
 from ..renderers.output import write_atomic
+from ..physics.protection import MAX_PE_LIMIT
 from ..rules.results import FAIL_LEVELS, Options
 from ..rules.selection import UnknownRule, codes_of
 from ..language.fragments import resolved as _resolved
@@ -129,15 +130,27 @@ FAIL_HELP = (
 _DEFAULT = Options()
 
 
+def _pe_limit(text: str) -> float:
+    """--pe-limit: a resistance more than 0 and at most MAX_PE_LIMIT."""
+    value = quantity_type("resistance", "ohm")(text)
+    if value > MAX_PE_LIMIT:
+        raise argparse.ArgumentTypeError(
+            f"{text!r}: the protective-path limit is at most {MAX_PE_LIMIT:g} ohm (a path above "
+            "it is no bond by any equipment standard's measure)"
+        )
+    return value
+
+
 def add_analysis_options(p):
     g = p.add_argument_group("analysis")
     g.add_argument(
         "--pe-limit",
-        type=quantity_type("resistance", "ohm"),
+        type=_pe_limit,
         default=_DEFAULT.pe_limit,
         metavar="OHM",
         help=f"protective-path resistance limit (default {_DEFAULT.pe_limit:g} ohm, the usual "
-        "product-safety bonding limit)",
+        f"product-safety bonding limit; at most {MAX_PE_LIMIT:g} ohm: a relaxed limit is said in "
+        "every output and a path over 0.1 ohm stays a warning)",
     )
     g.add_argument(
         "--max-frequency",

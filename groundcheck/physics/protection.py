@@ -40,6 +40,10 @@ from ..model.records import CABLE_OPERATING_TEMPERATURE, SYSTEMS
 #: protective bonding limit, Ω, supply cord excluded (IEC 62368-1 5.6.6.2, from memory; IEC 61010-1
 #: 6.5.2.4; IEC 60335-1 27.5)
 STANDARD_PE_LIMIT = 0.1
+#: Ω, the most ``--pe-limit`` may relax the protective-path limit to: five times the product
+#: standards' 0.1 Ω (their limits are 0.1–0.2 Ω, from memory); a path above it is a danger
+#: whatever the run's limit (IEC 60364-4-41's fault-loop check, GC208, is made beside it)
+MAX_PE_LIMIT = 0.5
 
 #: default external earth-fault loop impedance Ze at the origin of the installation, Ω: typical
 #: maximum values declared by distributors (TN-S 0.8 Ω, TN-C-S 0.35 Ω, TT 21 Ω including the

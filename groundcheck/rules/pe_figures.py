@@ -55,7 +55,7 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
 
 
 def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
-    """GC206: the protective path to a part over the limit (a note when only a relaxed
+    """GC206: the protective path to a part over the limit (a warning when only a relaxed
     ``--pe-limit`` passed it)."""
     part = plan.metal(p.part)
     figs = {
@@ -80,7 +80,7 @@ def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
         return [
             Finding(
                 "GC206",
-                "note",
+                "warning",
                 f"protective path to {p.part} is {p.path_resistance * 1e3:.1f} mΩ, over the "
                 f"{STANDARD_PE_LIMIT * 1e3:.0f} mΩ product-safety limit; passed only because "
                 f"--pe-limit relaxed the limit to {safety.limit * 1e3:.0f} mΩ",
@@ -197,9 +197,10 @@ def plan_conductor(plan: Plan, name: str):
 
 def _device_text(m) -> str:
     parts = []
-    if m.fuse is not None:
-        what = " breaker" if m.fuse_kind.startswith("breaker") else " fuse"
-        parts.append(f"{m.fuse:g} A {m.fuse_kind.replace('breaker-', 'type ') + what}")
+    rating, kind = (m.breaker, m.breaker_kind) if m.breaker is not None else (m.fuse, m.fuse_kind)
+    if rating is not None:
+        what = " breaker" if kind.startswith("breaker") else " fuse"
+        parts.append(f"{rating:g} A {kind.replace('breaker-', 'type ') + what}")
     if m.rcd is not None:
         parts.append(f"{m.rcd * 1e3:g} mA RCD")
     return " and ".join(parts) or "stated clearing"

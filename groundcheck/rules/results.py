@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING
 
 from ..model.records import Plan
 from ..physics.humsettings import HumOptions
-from ..physics.protection import STANDARD_PE_LIMIT
+from ..physics.protection import MAX_PE_LIMIT, STANDARD_PE_LIMIT
 from .catalogue import Finding, severity_rank
 from .selection import NotChecked, codes_of
 
@@ -47,6 +47,11 @@ class Options:
     leave_out_origin: str = "leave_out"  # where leave_out came from
 
     def __post_init__(self):
+        if not 0 < self.pe_limit <= MAX_PE_LIMIT:
+            raise ValueError(
+                f"pe_limit {self.pe_limit:g} Ω: the protective-path limit is more than 0 and at "
+                f"most {MAX_PE_LIMIT:g} Ω"
+            )
         for words, origin in (
             (self.only_rules, self.only_rules_origin),
             (self.leave_out, self.leave_out_origin),
