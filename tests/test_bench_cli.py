@@ -91,6 +91,18 @@ def test_a_bond_far_above_plan_names_the_joint_and_a_protective_one_over_the_lim
     assert code == 1 and doc["worst"] == "danger"
 
 
+def test_a_part_over_the_limit_by_design_is_bonded_not_its_joints_re_made(bench, tmp_path):
+    # an outside reviewer's front panel held by screws only: the plan's own path (the cover's
+    # 2 mΩ contact made 500 mΩ here) is over the 100 mΩ limit as designed, so re-making the
+    # screws cannot pass; the fix is a protective wire of its own
+    # (the fixture wrote the plan when it was set up; the measurements are written per run)
+    (tmp_path / "amp.gplan").write_text(PLAN.replace("contact 2 mohm", "contact 500 mohm"))
+    _, out, _ = bench("pe_stud to cover: 480 mohm at 25 A\n", "--format", "json")
+    (f,) = [x for x in json.loads(out)["findings"] if x["code"] == "GC403"]
+    assert "over the limit as designed" in f["fix"] and "protective wire of its own" in f["fix"]
+    assert "re-make the protective bond" not in f["fix"]
+
+
 @pytest.mark.parametrize(
     "text,where,message",
     [

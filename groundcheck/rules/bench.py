@@ -98,6 +98,23 @@ def _ohm(x: float) -> str:
     return format_si(x, "Ω")
 
 
+def _over_fix(b, joints: str) -> str:
+    """GC403's fix: re-make the joints when the plan's own path is within the limit; when the plan
+    itself is over it (a part bonded only through its fixings, say), no joint re-made will do: a
+    protective wire of its own, as `check` proposes."""
+    if b.planned is not None and b.limit is not None and b.planned > b.limit:
+        return (
+            f"the plan's own path is {_ohm(b.planned)}, over the limit as designed: re-making "
+            f"its joints{f' ({joints})' if joints else ''} will not bring it within the limit; "
+            f"bond {b.b} by a protective wire of its own (groundcheck check PLAN proposes one), "
+            "then measure again; have it checked by a qualified person"
+        )
+    return (
+        f"re-make the protective bond{f' ({joints})' if joints else ''} and measure again; have "
+        "it checked by a qualified person"
+    )
+
+
 @rule("GC402", "GC403", "GC404", needs="bench")
 def rule_bonds(facts: BenchFacts) -> list[Finding]:
     """GC402 a measured bond above its plan, GC403 a protective bond over the limit, GC404
@@ -125,8 +142,7 @@ def rule_bonds(facts: BenchFacts) -> list[Finding]:
                     b.location,
                     pair + b.joints[:3],
                     figures,
-                    f"re-make the protective bond{f' ({joints})' if joints else ''} and measure "
-                    "again; have it checked by a qualified person",
+                    _over_fix(b, joints),
                 )
             )
         elif verdict == "not in plan":
