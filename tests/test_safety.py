@@ -325,8 +325,10 @@ def test_relaxed_limit_is_said():
     )
     strict = analyze(p)
     assert [f.severity for f in strict.findings if f.code == "GC206"] == ["danger"]
-    relaxed = analyze(p, Options(pe_limit=10.0))
-    assert [f.severity for f in relaxed.findings if f.code == "GC206"] == ["note"]
+    relaxed = analyze(p, Options(pe_limit=0.5))
+    assert [f.severity for f in relaxed.findings if f.code == "GC206"] == ["warning"]
+    with pytest.raises(ValueError, match="at most 0.5"):
+        Options(pe_limit=1.0)
     assert relaxed.safety.relaxed and any("--pe-limit" in n for n in relaxed.notices)
 
 
@@ -348,3 +350,37 @@ def test_class_ii():
     # memory): a note
     (f,) = [f for f in analyze(p).findings if f.code == "GC212"]
     assert f.severity == "note" and "functional earth" in f.message
+
+
+def _fuse_and_breaker(mains: str):
+    return analyze(plan(f'plan "t"\n{mains}\n' + PE_PLAN, header=False), Options(hum=False))
+
+
+def test_an_equipment_fuse_beside_the_circuits_breaker():
+    # an outside reviewer's head states its 1 A fuse and the building's 16 A type B breaker: the
+    # fault at the inlet, ahead of the fuse, is the breaker's alone (the fuse is not in its loop,
+    # whatever resistance is stated for it), the fuse's breaking capacity is still checked
+    # (GC211), and the long bonding test is at twice the breaker's rating (IEC 60950-1 2.6.3.4,
+    # 200 % of the building installation's protective rating, from memory)
+    base = "mains 230 V 50 Hz, line-conductor 0.75 mm2"
+    alone = _fuse_and_breaker(f"{base}, breaker 16 A B")
+    both = _fuse_and_breaker(f"{base}, fuse 1 A slow, breaker 16 A B")
+    said = _fuse_and_breaker(f"{base}, fuse 1 A slow, breaker 16 A B, fuse-resistance 1 ohm")
+    for r in (both, said):
+        assert r.safety.parts[0].fault_current == alone.safety.parts[0].fault_current
+        assert r.safety.parts[0].device == "breaker"
+    assert "GC211" in {f.code for f in both.findings}  # a 1 A glass fuse against ~200 A
+    assert [t.current for t in both.bonding.tests if t.name == "long"] == [32.0]
+    # the fuse alone clears a fault after it, its resistance in the loop
+    fuse = _fuse_and_breaker(f"{base}, fuse 1 A slow")
+    assert fuse.safety.parts[0].device == "fuse"
+    assert fuse.safety.parts[0].fault_current < alone.safety.parts[0].fault_current
+
+
+@pytest.mark.parametrize("twice", ["fuse 1 A slow, fuse 2 A slow", "cord 2 m, cord 3 m"])
+def test_a_mains_attribute_given_twice_is_a_located_error(twice):
+    from groundcheck import PlanErrors
+
+    with pytest.raises(PlanErrors) as e:
+        plan(f'plan "t"\nmains 230 V 50 Hz, {twice}\n' + PE_PLAN, header=False)
+    assert "is given twice" in str(e.value) and ":2:" in str(e.value)

@@ -112,8 +112,24 @@ def _supply_statement(stmt: Statement, attribute) -> dict:
     return kw
 
 
+def _devices(kw: dict) -> None:
+    """The protective devices stated: a fuse (the equipment's) or a breaker (the supply
+    circuit's) alone is the one device that clears a fault; both: the fuse is the equipment's
+    (its breaking capacity, the bonding test's rating) and the breaker clears a fault at the
+    inlet, ahead of the fuse."""
+    kw.pop("_said", None)
+    fuse = (kw.pop("_fuse", None), kw.pop("_fuse_kind", None))
+    breaker = (kw.pop("_breaker", None), kw.pop("_breaker_kind", None))
+    first = fuse if fuse[0] is not None else breaker
+    if first[0] is not None:
+        kw["fuse"], kw["fuse_kind"] = first
+    if fuse[0] is not None and breaker[0] is not None:
+        kw["breaker"], kw["breaker_kind"] = breaker
+
+
 def mains(stmt: Statement):
     kw = _supply_statement(stmt, lambda r, ph, kw: _mains_attribute(stmt, r, ph, kw))
+    _devices(kw)
     _check_earth_electrode(stmt, kw)
     _check_cable_temperature(stmt, kw)
     return Mains(location=stmt.loc, **kw), {}
@@ -168,14 +184,22 @@ def _phrase_loc(stmt: Statement, word: str):
 
 def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
     word = r.word("an attribute")
-    if word in ("fuse", "breaker"):
-        kw["fuse"] = r.rating(word, f"{word} rating")
-        if word == "fuse":
-            kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
-            kw["fuse_kind"] = FUSE_KINDS[kind]
-        else:
-            kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
-            kw["fuse_kind"] = f"breaker-{kind}"
+    said = kw.setdefault("_said", set())
+    if word in said:
+        raise PlanError(
+            f"{stmt.keyword}: '{word}' is given twice",
+            ph[0].loc,
+            "the second would replace the first without a word: give it once",
+        )
+    said.add(word)
+    if word == "fuse":
+        kw["_fuse"] = r.rating(word, "fuse rating")
+        kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
+        kw["_fuse_kind"] = FUSE_KINDS[kind]
+    elif word == "breaker":
+        kw["_breaker"] = r.rating(word, "breaker rating")
+        kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
+        kw["_breaker_kind"] = f"breaker-{kind}"
     elif word in MAINS_ATTRIBUTES:
         field, what, kind = MAINS_ATTRIBUTES[word]
         if word in PLAUSIBLE:

@@ -144,15 +144,18 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
             "protective device's rating, for 1 min"
         )
     tests = [BondTest("short", amps, secs, basis)]
-    if m.fuse is not None:
+    # the long test's rating is the protective device's ahead of the equipment: the supply
+    # circuit's breaker when the plan states it beside the fuse, else the one device stated
+    rating = m.breaker if m.breaker is not None else m.fuse
+    if rating is not None:
         mult, dur = LONG_TEST
         tests.append(
             BondTest(
                 "long",
-                mult * m.fuse,
+                mult * rating,
                 dur,
                 "IEC 60950-1:2005 2.6.3.4, IEC 62368-1 5.6.6.2 (from memory): 200 % of the "
-                f"{m.fuse:g} A rating for 2 min",
+                f"{rating:g} A rating for 2 min",
             )
         )
     return tuple(tests)
@@ -237,7 +240,9 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
                     )
                 )
     rating, volts = DROP_LIMIT
-    big = plan.mains.fuse is not None and plan.mains.fuse > rating
+    m = plan.mains
+    ahead = m.breaker if m.breaker is not None else m.fuse
+    big = ahead is not None and ahead > rating
     parts = tuple(
         PartDrop(p, t.name, t.current * r, volts if big and t.name == "long" else None)
         for t in tests

@@ -182,10 +182,13 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
     assured)."""
     m = plan.mains
     options: list[tuple[Clearing, str]] = []
-    if m.fuse is not None:
-        cl = device_clearing(m.fuse_kind, m.fuse, current, m.frequency)
+    # with the supply circuit's breaker stated beside the equipment's fuse, the fault is taken at
+    # the inlet, ahead of the fuse: the breaker (or an RCD) clears it alone
+    rating, kind = (m.breaker, m.breaker_kind) if m.breaker is not None else (m.fuse, m.fuse_kind)
+    if rating is not None:
+        cl = device_clearing(kind, rating, current, m.frequency)
         if cl is not None:
-            options.append((cl, "breaker" if m.fuse_kind.startswith("breaker") else "fuse"))
+            options.append((cl, "breaker" if kind.startswith("breaker") else "fuse"))
     if m.rcd is not None:
         cl = rcd_clearing(m.rcd, current)
         if cl is not None:
