@@ -79,3 +79,18 @@ def test_fail_on_introduced_sees_a_second_finding_of_the_same_identity(cli, tmp_
         "compare", str(before), str(before), "--format", "json", "--fail-on", "introduced"
     )
     assert code == 0 and json.loads(out)["findings"]["introduced"] == []
+
+
+def test_a_channels_audible_hum_is_the_same_finding_whatever_its_contributors():
+    # an outside reviewer's fix took a channel from 22.8 dB over the threshold to 3.5 dB: its
+    # GC303 named other contributors after, and compare called it fixed and introduced at once
+    # (failing --fail-on introduced on a plan 10 dB quieter); a channel's verdict is its channel
+    from groundcheck.advice.fixes import identity
+    from groundcheck.core.errors import Location
+    from groundcheck.rules.catalogue import Finding
+
+    loc = Location("p.gplan", 1, 1)
+    before = Finding("GC303", "fault", "by 22.8 dB", loc, ("left", "bus", "res_lead"), {})
+    after = Finding("GC303", "fault", "by 3.5 dB", loc, ("left", "pi_gnd"), {})
+    other = Finding("GC303", "fault", "by 3.5 dB", loc, ("right", "pi_gnd"), {})
+    assert identity(before) == identity(after) != identity(other)

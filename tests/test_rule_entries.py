@@ -163,7 +163,9 @@ def test_every_repair_action_an_entry_names_has_one_generator():
 def test_identity_reads_the_entry():
     loc = Location("plan.gplan", 1, 1)
     pair = [c for c, r in RULES.items() if r.identity == "pair"]
-    assert set(pair) == {"GC102", "GC301", "GC302", "GC303", "GC304"}  # GC304: from, into
+    assert set(pair) == {"GC102", "GC301", "GC302", "GC304"}  # GC304: from, into
+    # a channel's audible hum is its channel, whatever contributors it names
+    assert [c for c, r in RULES.items() if r.identity == "first"] == ["GC303"]
     assert {r.identity for r in RULES.values()} <= set(IDENTITIES)
     f = Finding("GC102", "fault", "m", loc, ("rect", "v1", "c2", "c1"))
     assert identity(f) == ("GC102", "rect", "v1")

@@ -41,12 +41,15 @@ def identity(f) -> tuple:
     """What makes a finding the same finding before and after a change, as its rule's entry
     states (``Rule.identity``): a loop is its conductors (in any order); a shared return or a
     contributor its (source, stage) or (element, source) pair, and the channel it reaches when it
-    names one; crosstalk its (from, into) pair; anything else its elements."""
-    key = (
-        (f.code, *f.elements[:2])
-        if RULES[f.code].identity == "pair"
-        else (f.code, *sorted(f.elements))
-    )
+    names one; crosstalk its (from, into) pair; a channel's verdict its channel alone; anything
+    else its elements."""
+    kind = RULES[f.code].identity
+    if kind == "first":  # a channel's verdict: the channel, whatever its contributors now are
+        key = (f.code, *f.elements[:1])
+    elif kind == "pair":
+        key = (f.code, *f.elements[:2])
+    else:
+        key = (f.code, *sorted(f.elements))
     channel = f.figures.get("channel") if f.figures else None
     return (*key, ("channel", channel)) if channel else key  # one element's share at each output
 

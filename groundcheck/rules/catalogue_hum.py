@@ -48,7 +48,7 @@ HUM_ENTRIES: list[Rule] = [
         "quiet room.",
         "Fix the main contributors named in the finding.",
         "ISO 226:2003 threshold of hearing",
-        identity="pair",
+        identity="first",
     ),
     entry(
         "GC304",

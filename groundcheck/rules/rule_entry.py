@@ -18,7 +18,7 @@ SEVERITIES = ("danger", "fault", "warning", "note")
 
 #: what identifies a finding before and after a change: its elements in any order, or the first
 #: two in order (a source and the stage it reaches, an element and its source)
-IDENTITIES = ("elements", "pair")
+IDENTITIES = ("elements", "pair", "first")
 
 #: the advisor's refusals a finding can raise when a change brings it about: part of the signal
 #: ground left unconnected; a supply's charging or ripple current sent through the star
