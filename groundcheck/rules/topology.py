@@ -12,7 +12,7 @@ from __future__ import annotations
 
 import math
 
-from ..model.kinds import is_fastening_kind, joins_devices, shield_like
+from ..model.kinds import is_fastening_kind, joins_devices, kind, shield_like
 from ..model.records import PE_POINT
 from .catalogue import Finding
 from .context import AuditContext
@@ -138,9 +138,11 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
         route = sum(
             ((x1 - x0) ** 2 + (y1 - y0) ** 2) ** 0.5 for (x0, y0), (x1, y1) in zip(path, path[1:])
         )
-        # a cable between two pieces of equipment, or an umbilical's core between two boxes, runs
-        # as it likes: only too short counts
-        slack = math.inf if placed(c.a) != placed(c.b) or c.bundle else LENGTH_SLACK
+        # a cable between two pieces of equipment, an umbilical's core between two boxes, or a
+        # building cable (it runs in walls and under floors) runs as it likes: only too short
+        # counts
+        free = placed(c.a) != placed(c.b) or c.bundle or kind(c.kind).carries_load
+        slack = math.inf if free else LENGTH_SLACK
         if route > 0 and (
             c.length < route * (1 - LENGTH_SHORT) or c.length > slack * route + 0.05
         ):
