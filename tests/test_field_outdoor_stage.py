@@ -68,3 +68,19 @@ def test_the_combined_set_restores_every_broken_earth_and_clears_every_danger():
     # never: lifting a protective earth, or a lift network on a link whose shield is the only
     # thing holding an unearthed chassis near earth
     assert not [t for t in titles if "lift" in t]
+
+
+def test_the_heads_channel_is_heard_through_its_own_cabinet():
+    # the reviewer: the installation judged the head's hum with the PA's listening (63 V, two
+    # speakers at 10 m, a 35 dB background: margin +1.4 dB) where the head alone, through its own
+    # cabinet at 2 m, gives +16.9 dB; the same channel alone and placed must agree (to the
+    # installation's own small additions: its leakage currents put a little at 50 Hz)
+    import pytest
+
+    from groundcheck.analysis import Options, analyze
+
+    placed = analyze(load(STAGE), Options()).hum.channels["gtr"]
+    alone = analyze(load(FIELD / "valve-head.gplan"), Options()).hum.channels
+    (own,) = alone.values()
+    assert placed.margin_db == pytest.approx(own.margin_db, abs=0.01)
+    assert placed.rated_output == own.rated_output == 12.0  # its own 12 V, not the PA's 63 V

@@ -65,11 +65,16 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
     if not merged.pickup or not b.models:
         return out
     freqs = sorted(merged.pickup)
-    verdict = b.listening is not None and b.listening.verdict
-    weight = {
-        f: 10 ** (-heard_threshold(f, b.listening.background) / 10) if verdict else 1.0
-        for f in freqs
-    }
+
+    def weights(ch: str) -> tuple[bool, dict]:
+        listening = b.listening_of(ch)
+        verdict = listening is not None and listening.verdict
+        return verdict, {
+            f: 10 ** (-heard_threshold(f, listening.background) / 10) if verdict else 1.0
+            for f in freqs
+        }
+
+    weighed = {ch: weights(ch) for ch in b.channels}
     stages = {
         ch: [k for k, st in enumerate(b.stages) if b.valid_stage[k] and st.channel == ch]
         for ch in b.channels
@@ -80,6 +85,7 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
         if not spectrum:
             continue
         for ch, ks in stages.items():
+            verdict, weight = weighed[ch]
             parts = [(ratio * merged.pickup[f][0][ks], weight[f]) for f, ratio in spectrum]
             if model.oriented and not any(np.any(G) for G, _ in parts):
                 continue  # no stage of the channel reads any loop: nothing to add

@@ -159,6 +159,7 @@ class HumBudget:
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
         self._listening(plan.listening)
         self._stages(plan.stages)
+        self.listenings = _channel_listenings(plan, self.stages, self.channels)
         self._frequencies(options.max_frequency)
         self.pick_loops, self.pick_branch, self.pick_sign = pickup_columns(
             circuit, loops, self.branch_index
@@ -169,6 +170,11 @@ class HumBudget:
         #: (channel, field source) -> the direction used for it, set when the budget's result is
         #: merged (:func:`groundcheck.physics.fieldhum.field_pickup`)
         self.directions: dict = {}
+
+    def listening_of(self, ch: str):
+        """Where channel ``ch``'s hum ends up: a placed device's own listening when every stage of
+        the channel is inside that device and its plan states one, else the plan's."""
+        return self.listenings.get(ch, self.listening)
 
     def _listening(self, listening) -> None:
         """The rated output the levels are against, and the notes when no verdict can be given."""
@@ -386,3 +392,17 @@ class HumBudget:
                     part.crosstalk.append(
                         (s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k])
                     )
+
+
+def _channel_listenings(plan, stages, channels) -> dict:
+    """Each channel's listening context: in an installation, a channel whose stages are all inside
+    one placed device whose own plan states a ``listening`` is heard through that device's own
+    chain (a guitar head through its own cabinet, not the installation's PA); every other channel
+    through the plan's."""
+    own = {name: p.listening for name, p in plan.device_plans if p.listening is not None}
+    out = {}
+    for ch in channels:
+        devices = {plan.index.device_of(s.name) for s in stages if s.channel == ch}
+        dev = next(iter(devices)) if len(devices) == 1 else None
+        out[ch] = own.get(dev, plan.listening) if dev is not None else plan.listening
+    return out

@@ -158,7 +158,7 @@ class Merged:
         """A channel's spectrum (power sum of its groups per frequency), total, contributors and
         verdict; ``axes``: each field source's direction for the channel
         (:func:`groundcheck.physics.fieldhum.field_pickup`)."""
-        listening = self.b.listening
+        listening = self.b.listening_of(ch)
         spectrum = []
         total2 = signed2 = 0.0
         worst = None
@@ -194,7 +194,7 @@ class Merged:
             ch,
             spectrum,
             total,
-            self.b.rated,
+            listening.rated_output if listening is not None else self.b.rated,
             clist,
             audible,
             worst,

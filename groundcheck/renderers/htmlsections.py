@@ -74,10 +74,11 @@ def findings_section(
 def hum_section(result: Result, parts: list[str], e=escape) -> None:
     """The hum tables and spectrum charts of each channel."""
     if result.hum is not None and result.hum.channels:
-        plan = result.plan
-        listening = plan.listening is not None and plan.listening.verdict
         parts.append("<h2>Hum and buzz spectrum</h2>")
         for ch, h in result.hum.channels.items():
+            # a channel heard through a placed device's own listening may have a verdict when
+            # the plan's listening has none, and the other way round
+            listening = any("spl_db" in r for r in h.spectrum)
             parts.append(
                 f"<h3>{e(ch)}</h3><div "
                 f'class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>'
