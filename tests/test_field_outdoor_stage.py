@@ -18,12 +18,17 @@ conductor at 2.5 mm², which the plan does not state."""
 from functools import lru_cache
 from pathlib import Path
 
+import pytest
+
 from groundcheck import load
 from groundcheck.analysis import Options, analyze
-from groundcheck.advice.repair import greedy
+
+from fieldadvice import GROUP, advised
 
 FIELD = Path(__file__).parent / "field" / "outdoor-stage-reels"
 STAGE = FIELD / "outdoor-stage.gplan"
+
+pytestmark = pytest.mark.xdist_group(GROUP)
 
 
 @lru_cache(maxsize=1)
@@ -57,8 +62,8 @@ def test_the_broken_earths_and_the_heads_own_dangers_are_reported():
 
 
 def test_the_combined_set_restores_every_broken_earth_and_clears_every_danger():
-    plan = load(STAGE)
-    chosen, final, _ = greedy(plan, STAGE.read_text(), root=FIELD, resolved=STAGE.resolve())
+    a = advised("outdoor-stage-reels/outdoor-stage.gplan")  # once per test process
+    chosen, final = a.chosen, a.final
     titles = [e.candidate.title for e in chosen]
     assert any(t.startswith("plug bass in at strip1") for t in titles)
     assert any(t.startswith("plug spk_r in at strip1") for t in titles)
@@ -75,9 +80,6 @@ def test_the_heads_channel_is_heard_through_its_own_cabinet():
     # speakers at 10 m, a 35 dB background: margin +1.4 dB) where the head alone, through its own
     # cabinet at 2 m, gives +16.9 dB; the same channel alone and placed must agree (to the
     # installation's own small additions: its leakage currents put a little at 50 Hz)
-    import pytest
-
-    from groundcheck.analysis import Options, analyze
 
     placed = analyze(load(STAGE), Options()).hum.channels["gtr"]
     alone = analyze(load(FIELD / "valve-head.gplan"), Options()).hum.channels
