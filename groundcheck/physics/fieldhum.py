@@ -65,16 +65,7 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
     if not merged.pickup or not b.models:
         return out
     freqs = sorted(merged.pickup)
-
-    def weights(ch: str) -> tuple[bool, dict]:
-        listening = b.listening_of(ch)
-        verdict = listening is not None and listening.verdict
-        return verdict, {
-            f: 10 ** (-heard_threshold(f, listening.background) / 10) if verdict else 1.0
-            for f in freqs
-        }
-
-    weighed = {ch: weights(ch) for ch in b.channels}
+    weighed = {ch: _weights(b.listening_of(ch), freqs) for ch in b.channels}
     stages = {
         ch: [k for k, st in enumerate(b.stages) if b.valid_stage[k] and st.channel == ch]
         for ch in b.channels
@@ -112,6 +103,17 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
             )
         _loop_rows(b, merged, model, spectrum)
     return out
+
+
+def _weights(listening, freqs) -> tuple[bool, dict]:
+    """Whether a channel's hum gets a verdict, and each frequency's weight in its worst
+    direction's measure: 1 over the threshold of hearing's power (through its own listening),
+    else 1."""
+    verdict = listening is not None and listening.verdict
+    return verdict, {
+        f: 10 ** (-heard_threshold(f, listening.background) / 10) if verdict else 1.0
+        for f in freqs
+    }
 
 
 def _level(model, parts, m) -> float:

@@ -42,7 +42,7 @@ from .coupling import (
     path_drop,
     plan_sources,
 )
-from .humsettings import SIGNAL_FREQUENCY, HumOptions
+from .humsettings import SIGNAL_FREQUENCY, HumOptions, channel_listenings
 from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
 from .fieldhum import field_pickup, pickup_columns
@@ -159,7 +159,7 @@ class HumBudget:
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
         self._listening(plan.listening)
         self._stages(plan.stages)
-        self.listenings = _channel_listenings(plan, self.stages, self.channels)
+        self.listenings = channel_listenings(plan, self.stages, self.channels)
         self._frequencies(options.max_frequency)
         self.pick_loops, self.pick_branch, self.pick_sign = pickup_columns(
             circuit, loops, self.branch_index
@@ -393,16 +393,3 @@ class HumBudget:
                         (s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k])
                     )
 
-
-def _channel_listenings(plan, stages, channels) -> dict:
-    """Each channel's listening context: in an installation, a channel whose stages are all inside
-    one placed device whose own plan states a ``listening`` is heard through that device's own
-    chain (a guitar head through its own cabinet, not the installation's PA); every other channel
-    through the plan's."""
-    own = {name: p.listening for name, p in plan.device_plans if p.listening is not None}
-    out = {}
-    for ch in channels:
-        devices = {plan.index.device_of(s.name) for s in stages if s.channel == ch}
-        dev = next(iter(devices)) if len(devices) == 1 else None
-        out[ch] = own.get(dev, plan.listening) if dev is not None else plan.listening
-    return out

@@ -8,7 +8,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-__all__ = ["HumOptions", "SIGNAL_FREQUENCY", "SIGNAL_FREQUENCY_TEXT", "at_signal_frequency"]
+__all__ = [
+    "HumOptions",
+    "SIGNAL_FREQUENCY",
+    "SIGNAL_FREQUENCY_TEXT",
+    "at_signal_frequency",
+    "channel_listenings",
+]
 
 #: the signal frequency at which the crosstalk between channels and each channel's feedback through
 #: the ground are always given, Hz (1 kHz: the reference frequency of audio measurements, IEC
@@ -48,3 +54,31 @@ class HumOptions:
     max_frequency: float = 5000.0
     contributor_level: float = -100.0
     crosstalk_limit: float = -60.0
+
+
+def channel_listenings(plan, stages, channels) -> dict:
+    """Each channel's listening context: in an installation, a channel whose stages are all inside
+    one placed device whose own plan states a whole listening chain (a speaker or headphones) is
+    heard through it (a guitar head through its own cabinet, not the installation's PA); every
+    other channel through the plan's.
+
+    Parameters:
+        plan: the plan.
+        stages: its stages.
+        channels: its channels.
+    Returns:
+        channel -> its Listening (or None).
+    References:
+        none (which chain a channel is heard through).
+    """
+    own = {
+        name: p.listening
+        for name, p in plan.device_plans
+        if p.listening is not None and p.listening.verdict
+    }
+    out = {}
+    for ch in channels:
+        devices = {plan.index.device_of(s.name) for s in stages if s.channel == ch}
+        dev = next(iter(devices)) if len(devices) == 1 else None
+        out[ch] = own.get(dev, plan.listening) if dev is not None else plan.listening
+    return out
