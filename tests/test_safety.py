@@ -211,10 +211,11 @@ def test_glass_fuse_beyond_its_breaking_capacity():
     )
     (f,) = [f for f in r.findings if f.code == "GC211"]
     assert f.severity == "danger" and f.figures["breaking_capacity_a"] == 35.0
-    # the prospective current, cables cold (20 °C): a line-to-protective fault at the inlet, and a
-    # line-to-neutral short, whose external loop is taken as Ze in TN (both loops hold the same
-    # cores here, so they are equal)
-    z = 0.35 + 0.2 / 0.5 + CIRCUIT_15 + CORD_075 + CORD_075 + CIRCUIT_15
+    # the prospective current, cables cold (20 °C), the fuse replaced by a link of negligible
+    # impedance (the current its breaking capacity is rated against, IEC 60127-1): a
+    # line-to-protective fault at the inlet, and a line-to-neutral short, whose external loop is
+    # taken as Ze in TN (both loops hold the same cores here, so they are equal)
+    z = 0.35 + CIRCUIT_15 + CORD_075 + CORD_075 + CIRCUIT_15
     assert f.figures["fault_current_a"] == pytest.approx(230 / z, rel=1e-4)
     assert f.figures["short_circuit_a"] == pytest.approx(230 / z, rel=1e-4)
     r = analyze(

@@ -71,6 +71,17 @@ def test_tt_electrode_over_the_rcd_gets_a_finer_rcd_or_an_electrode_target():
     assert fix.endswith(SHOWN_BY_SUGGEST) and "qualified electrician" in fix
 
 
+def test_an_electrode_target_is_never_above_a_stable_electrode():
+    # an outside electrician's garden studio: 650 Ω with a 100 mA RCD (65 V, over 50 V): 50 / 0.1
+    # = 500 Ω would sit exactly on the limit, on an electrode above the 200 Ω beyond which one may
+    # not stay as measured (common practice, docs/language.md); the target is 200 Ω, and a 30 mA
+    # RCD (650 x 0.03 = 19.5 V) is offered beside it
+    text, before, evs = _suggest("system TT, electrode 650 ohm, rcd 100 mA")
+    rows = {ev.candidate.action: _mains_line(text, ev) for ev in _accepted(evs)[:2]}
+    assert "electrode 200 ohm" in rows["electrode"]
+    assert "rcd 30 mA" in rows["rcd"]
+
+
 def test_tt_on_a_fuse_alone_gets_a_30_ma_rcd():
     # worked by hand: the fault loop is R_A + 1 Ω = 201 Ω (the default supply part,
     # docs/language.md), so a line-to-deck fault draws 230 / 201 = 1.14 A, under the 2 A slow

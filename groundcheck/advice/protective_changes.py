@@ -150,13 +150,14 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
         changes.append((old_len, f"{max(length, 10e-3) * 1e3:.0f} mm"))
     edit = ctx.src.replace(st, _written_protective(ctx, st, changes))  # its comment stays
     x, y = where[0] * 1e3, where[1] * 1e3
+    lx, ly = (v * 1e3 for v in device_frame(ctx, pe.name, where))  # as its own plan writes it
     extra = (
-        f"point {local(new_pt)}: stud, at {x:.0f},{y:.0f} on {local(part)}",
+        f"point {local(new_pt)}: stud, at {lx:.0f},{ly:.0f} on {local(part)}",
         f"bolt {local(new_pt)}_nut: {local(new_pt)} to {local(part)}, protective",
     )
     edit = Edit(edit.line, edit.new, extra, edit.last, edit.file)
     return Candidate(
-        f"give the protective earth a stud of its own ({new_pt} at {x:.0f},{y:.0f} on {part}, "
+        f"give the protective earth a stud of its own ({new_pt} at {lx:.0f},{ly:.0f} on {part}, "
         f"clear of other parts and fastenings): {pe.name}'s end moves there, its section and "
         "comment kept",
         f.code,
@@ -195,6 +196,18 @@ def equipment_mains(ctx: ChangeContext, element: str | None):
     if own is None or own.mains is None:
         return None, ""
     return own.mains, f"{dev}."
+
+
+def device_frame(ctx: ChangeContext, element: str | None, xy: tuple[float, float]):
+    """A position of the installation's drawing (m) in the frame of the device ``element``
+    belongs to, where its own plan writes it (the placement's ``at`` taken off, its ``mirror``
+    undone); the position itself outside a placed device."""
+    dev = ctx.plan.index.device_of(element) if element else None
+    record = ctx.plan.index.devices.get(dev) if dev else None
+    if record is None or record.source == "simple":
+        return xy
+    ox, oy = record.at
+    return xy[0] - ox, (xy[1] - oy) * (-1.0 if record.mirror else 1.0)
 
 
 def _protective_lead(ctx: ChangeContext, element: str | None = None):
@@ -272,7 +285,8 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     area = max([(lead.area or 0.0) * 1e6, (line or 0.0) * 1e6, *needs])
     area = next((x for x in STANDARD_SECTIONS_MM2 if x >= area * (1 - 1e-9)), area)
     length = max(math.dist(start, end) * (1 + ROUTE_ALLOWANCE), SERVICE_SLACK) * 1e3
-    mm = [round(v * 1e3) for v in (*start, *end)]
+    here = device_frame(ctx, part, start) + device_frame(ctx, part, end)
+    mm = [round(v * 1e3) for v in here]  # as the plan the new statements go in writes them
     # in a device's own plan its names are written without the device's prefix
     n = {x: x[len(prefix) :] if st.loc.file != ctx.plan.file else x for x in (a, b, home, part)}
     extra = (

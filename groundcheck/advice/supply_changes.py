@@ -43,12 +43,19 @@ _DEFER = (
 )
 
 
+#: Ω, the electrode resistance above which an electrode may not stay as measured through the
+#: seasons (common practice; docs/language.md's range of plausible ratings says the same)
+STABLE_ELECTRODE = 200.0
+
+
 def electrode_target(rcd: float) -> float:
-    """The largest electrode resistance R_A, Ω, at two significant figures rounded down, for which
-    R_A × IΔn stays within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A × IΔn ≤ 50 V)."""
+    """The electrode resistance R_A, Ω, to aim for: the largest at two significant figures rounded
+    down for which R_A × IΔn stays within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A ×
+    IΔn ≤ 50 V), and never above :data:`STABLE_ELECTRODE` (a 500 Ω target for a 100 mA RCD sat
+    exactly on the limit, on an electrode that soil and season move)."""
     r = TOUCH_LIMIT / rcd
     step = 10.0 ** (math.floor(math.log10(r)) - 1)
-    return math.floor(r / step + 1e-9) * step
+    return min(math.floor(r / step + 1e-9) * step, STABLE_ELECTRODE)
 
 
 def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
@@ -150,8 +157,8 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
             Candidate(
                 "have the installation's earth electrode measured and improved to at most "
                 f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
-                f"{TOUCH_LIMIT:g} V): {_DEFER}; the {word} statement then states 'electrode "
-                f"{target:g} ohm'",
+                f"{TOUCH_LIMIT:g} V, and an electrode above {STABLE_ELECTRODE:g} Ω may not stay "
+                f"so): {_DEFER}; the {word} statement then states 'electrode {target:g} ohm'",
                 answer.reason,
                 (_set(ctx, st, "electrode", f"{target:g} ohm"),),
                 action="electrode",
