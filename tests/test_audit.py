@@ -428,6 +428,28 @@ def test_a_valve_rectifiers_filament_winding_is_never_advised_to_ground():
     assert "which is no valve rectifier" in str(e.value)
 
 
+def test_a_valve_rectifiers_filament_winding_in_a_placed_device(tmp_path):
+    # an outside electrician's garden studio placed his amp, whose rectifier's filament winding
+    # names its rectifier, as a device: the heater's 'rectifier ht' was not given the device's
+    # prefix and the installation refused the amp's own plan
+    from groundcheck import load
+
+    (tmp_path / "amp.gplan").write_text(
+        RECT_FILAMENT.format(extra=", rectifier hv").replace(
+            'plan "rectifier filament"', 'plan "amp"\nmains 230 V 50 Hz, fuse 1 A slow'
+        )
+    )
+    (tmp_path / "room.gplan").write_text(
+        'plan "room"\nsupply 230 V 50 Hz\npoint met: earthing-terminal\npoint wall: outlet\n'
+        "cable run: met to wall, 10 m, 2.5 mm2, cores L-N-PE\n"
+        'device amp: "amp.gplan", plugged wall\n'
+    )
+    room = load(tmp_path / "room.gplan")
+    (fil,) = [h for h in room.heaters if h.name == "amp.rect_fil"]
+    assert fil.rectifier == "amp.hv"
+    assert not [x for x in audit(room)[0] if x.code == "GC107"]
+
+
 def test_a_stage_at_the_far_end_of_a_lead_keeps_its_reference_and_an_inferred_one_is_said():
     # an outside reviewer's combo: 'stage v1b: pan_out_gnd to v1b_k' (the reverb pan's output
     # transducer, on the pan, at the far end of the return lead) was silently re-read from the

@@ -87,17 +87,23 @@ def test_an_electrode_on_a_tn_supply_is_an_error(tmp_path):
     assert "an earth electrode is stated for a TN-S supply" in str(e.value)
 
 
-def test_a_simple_device_in_a_tt_building_without_an_rcd_is_a_note_the_rcd_answers(tmp_path):
-    # a simple device has no fuse or wiring of its own to check: the supply says it rests on that
-    # fuse alone, and the building's RCD (the advice) answers it
+def test_a_simple_device_in_a_tt_building_without_an_rcd_the_rcd_answers(tmp_path):
+    # a simple device has no fuse or wiring of its own to check: on a 300 Ω electrode its fault
+    # draws at most 230 / 301 = 0.76 A, which trips no breaker at once (a danger); on a 5 Ω one
+    # at most 230 / 6 = 38 A, over the 30 A that trips a 6 A type B breaker at once, so the supply
+    # only says it rests on an overcurrent device (a note); the building's RCD answers both
     (tmp_path / "amp.gplan").write_text(AMP)
     room = ROOM.format(supply="system TT, electrode 300 ohm") + (
         "device desk: simple, plugged wall, cord 2 m 0.75 mm2\n"
     )
     (tmp_path / "room.gplan").write_text(room)
     r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    (found,) = [f for f in r.findings if f.code == "GC221" and "desk" in f.elements]
+    assert found.severity == "danger" and "electrode (300 Ω)" in found.message
+    (tmp_path / "room.gplan").write_text(room.replace("300 ohm", "5 ohm"))
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
     (note,) = [f for f in r.findings if f.code == "GC221" and "desk" in f.elements]
-    assert note.severity == "note" and "electrode (300 Ω)" in note.message
+    assert note.severity == "note" and "electrode (5 Ω)" in note.message
     (tmp_path / "room.gplan").write_text(room.replace("300 ohm", "300 ohm, rcd 30 mA"))
     r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
     assert not [f for f in r.findings if f.code == "GC221"]
@@ -179,3 +185,39 @@ def test_a_devices_own_protective_earth_danger_is_the_installations_too(tmp_path
     (f,) = [x for x in r.findings if x.code == "GC206"]
     assert f.severity == "danger" and f.elements[0].startswith("head.")
     assert f.message.startswith("head's own wiring (its own plan finds it too)")
+
+
+SIMPLE_ROOM = """plan "studio"
+supply 230 V 50 Hz, system TT, {supply}
+point met: earthing-terminal
+point wall: outlet
+cable run: met to wall, 12 m, 2.5 mm2, cores L-N-PE
+device mon: simple, plugged wall, cord 2 m 0.75 mm2, signal-ground chassis
+"""
+
+
+def _simple(tmp_path, supply: str):
+    (tmp_path / "studio.gplan").write_text(SIMPLE_ROOM.format(supply=supply))
+    return analyze(load(tmp_path / "studio.gplan"), Options(hum=False)).findings
+
+
+def test_bought_devices_on_a_tt_supply_with_no_rcd_are_a_danger(tmp_path):
+    # an outside electrician's garden studio with bought equipment only, on a 200 Ω rod and no RCD:
+    # a fault to a monitor's metal draws at most 230 / (200 + 1) = 1.144 A (the supply's own part
+    # 1 Ω, docs/language.md; the cables only add), far below the 30 A at which even a 6 A type B
+    # breaker trips at once (5 × In, IEC 60898-1, from memory): only an RCD clears it, and the
+    # metal stays at 230 × 200 / 201 = 228.9 V against earth
+    (f,) = [x for x in _simple(tmp_path, "electrode 200 ohm") if x.code == "GC221"]
+    assert f.severity == "danger"
+    assert f.figures["fault_current_max_a"] == pytest.approx(230 / 201, rel=1e-12)
+    assert f.figures["touch_voltage_v"] == pytest.approx(230 * 200 / 201, rel=1e-12)
+    assert not [x for x in _simple(tmp_path, "electrode 200 ohm, rcd 30 mA") if x.code == "GC221"]
+
+
+def test_a_tt_electrode_over_its_rcd_is_the_installations_danger_at_its_supply(tmp_path):
+    # the same studio on a 650 Ω rod behind a 100 mA RCD: 650 × 0.1 = 65 V, over 50 V (IEC
+    # 60364-4-41 411.5.3, from memory), whatever is plugged in; at 500 Ω it is 50 V, within it
+    (f,) = [x for x in _simple(tmp_path, "electrode 650 ohm, rcd 100 mA") if x.code == "GC220"]
+    assert f.severity == "danger" and f.elements == ("supply",)
+    assert f.figures["electrode_times_rcd_v"] == pytest.approx(65.0)
+    assert not [x for x in _simple(tmp_path, "electrode 500 ohm, rcd 100 mA") if x.code == "GC220"]

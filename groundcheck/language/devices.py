@@ -368,7 +368,9 @@ def prefixed(p: Plan, prefix: str) -> Plan:
             for r in p.rectifiers
         ),
         currents=tuple(_renamed(r, pre, chan, "name", "a", "b") for r in p.currents),
-        heaters=tuple(_renamed(h, pre, chan, "name", "a", "b", "reference") for h in p.heaters),
+        heaters=tuple(
+            _renamed(h, pre, chan, "name", "a", "b", "reference", "rectifier") for h in p.heaters
+        ),
         stages=tuple(
             _renamed(s, pre, chan, "name", "a", "b", "reference", "named", "supply")
             for s in p.stages

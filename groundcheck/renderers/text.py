@@ -115,8 +115,8 @@ def _earth_line(result: Result, console: Console) -> None:
         paths = "1 device's earth path" if n == 1 else f"{n} devices' earth paths"
         own = (
             f"each device with a plan of its own is checked on this {plan.supply.system} supply, "
-            "its fault loop through the wiring to where it is plugged in; simple devices' "
-            "disconnection is not checked"
+            "its fault loop through the wiring to where it is plugged in; a simple device's own "
+            "fuse is not known (GC221 says what a TT supply's electrode lets through)"
             if plan.supply is not None
             else "each device's own wiring is checked with its own plan"
         )

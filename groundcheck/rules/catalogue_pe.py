@@ -319,12 +319,16 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "tt-overcurrent-only",
         PROTECTIVE_EARTH,
         "note",
-        "A TT supply whose disconnection rests on a fuse or breaker alone, with no RCD.",
+        "A TT supply whose disconnection rests on a fuse or breaker alone, with no RCD: a danger "
+        "when it feeds devices with no plan of their own and the electrode lets through less than "
+        "trips even a 6 A breaker at once (30 A).",
         "The fault loop of a TT supply runs through the earth electrodes, whose resistance "
         "changes with soil and season; an overcurrent device alone clears only while that loop "
         "stays low.",
         "Protect the circuit with an RCD, as TT installations usually are.",
-        "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory",
+        "IEC 60364-4-41 411.5.2 (RCDs preferred in TT systems), from memory; IEC 60898-1 (a type "
+        "B breaker trips at once from 5 × In), from memory",
+        variants=("note", "danger"),
         actions=("rcd-at-socket",),
     ),
     entry(

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
+from ..physics.protection import DEFAULT_ZE, TT_SOURCE_LOOP
 from ..physics.safety import TOUCH_LIMIT
 from ..model.records import Plan
 from .catalogue import Finding
@@ -16,7 +17,12 @@ from .registry import rule
 if TYPE_CHECKING:
     from .electrical import Solved
 
-__all__ = ["rule_tt_supply", "rule_signal_only_metal"]
+__all__ = ["rule_tt_supply", "rule_signal_only_metal", "INSTANT_TRIP_FLOOR"]
+
+#: A, the least fault current that trips the smallest circuit breaker a socket circuit has at once:
+#: a 6 A type B breaker's instantaneous band starts at 5 × In (IEC 60898-1, from memory); below it a
+#: TT fault through the electrode is cleared by nothing but an RCD or a device's own small fuse
+INSTANT_TRIP_FLOOR = 30.0
 
 
 @rule("GC220", "GC221", needs="solve")
@@ -33,7 +39,7 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
         IEC 60364-4-41 411.5 (TT systems), from memory.
     """
     if s.plan.supply is not None:  # an installation (it states no mains of its own)
-        return _unchecked_in_tt(s.plan)
+        return _electrode_in_tt(s.plan) + _unchecked_in_tt(s.plan)
     m = s.plan.mains
     if s.safety is None or m is None or m.system != "TT" or not s.safety.parts:
         return []
@@ -78,6 +84,38 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
     ]
 
 
+def _electrode_in_tt(plan: Plan) -> list[Finding]:
+    """GC220 at an installation's TT supply whose stated electrode times its RCD's rating is over
+    50 V, when it feeds any class I device: the building's own breach, at its supply line (each
+    device with a plan of its own also gets it under its name)."""
+    supply = plan.supply
+    class_i = [d for d in plan.devices if d.equipment_class == "I" and d.plugged is not None]
+    if supply.system != "TT" or supply.rcd is None or supply.electrode is None or not class_i:
+        return []
+    u = supply.electrode * supply.rcd
+    if u <= TOUCH_LIMIT:
+        return []
+    return [
+        Finding(
+            "GC220",
+            "danger",
+            f"TT supply: the earth electrode ({supply.electrode:g} Ω) times the RCD's rated "
+            f"residual current ({supply.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a "
+            "fault below the RCD's rating can leave the metal of every class I device above the "
+            "touch-voltage limit",
+            supply.location,
+            ("supply",),
+            {
+                "electrode_ohm": supply.electrode,
+                "rcd_a": supply.rcd,
+                "touch_limit_v": TOUCH_LIMIT,
+                "electrode_times_rcd_v": u,
+            },
+            _tt_fix(supply.electrode, supply.rcd),
+        )
+    ]
+
+
 def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     """GC221 at a TT supply with no RCD stated when it feeds class I devices that have no plan of
     their own to check (simple devices): a fault in one is disconnected only if its own fuse opens
@@ -91,20 +129,44 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     )
     if supply.system != "TT" or supply.rcd is not None or not simple:
         return []
-    electrode = f"{supply.electrode:g} Ω" if supply.electrode is not None else "not stated"
+    r_a = supply.electrode if supply.electrode is not None else DEFAULT_ZE["TT"]
+    electrode = f"{r_a:g} Ω" if supply.electrode is not None else f"not stated: {r_a:g} Ω taken"
+    # at most: the cables, cord and device only add to the loop (IEC 60364-4-41 411.5)
+    most = supply.voltage / (r_a + TT_SOURCE_LOOP)
+    figures = {"electrode_ohm": r_a, "fault_current_max_a": most}
+    fix = (
+        "protect the installation's outlets with an RCD (30 mA for socket outlets), as TT "
+        "installations usually are; have the electrode measured by a qualified electrician"
+    )
+    who = f"{', '.join(simple)} {'has' if len(simple) == 1 else 'have'} no plan of its own to check"
+    if most < INSTANT_TRIP_FLOOR:
+        touch = supply.voltage * r_a / (r_a + TT_SOURCE_LOOP)
+        return [
+            Finding(
+                "GC221",
+                "danger",
+                f"TT supply with no RCD stated for its outlets: a fault to the metal of a class "
+                f"I device draws at most {most:.3g} A through the earth electrode ({electrode}), "
+                f"below the {INSTANT_TRIP_FLOOR:g} A that trips even a 6 A type B breaker at once; "
+                f"{who}, so nothing known clears it, and about {touch:.0f} V against earth would "
+                "stay on its metal",
+                supply.location,
+                ("supply", *simple),
+                {**figures, "touch_voltage_v": touch},
+                fix,
+            )
+        ]
     return [
         Finding(
             "GC221",
             "note",
-            f"TT supply with no RCD stated for its outlets: {', '.join(simple)} "
-            f"{'has' if len(simple) == 1 else 'have'} no plan of its own to check, and a fault "
-            "to its metal is disconnected only if its own fuse opens on the current the earth "
-            f"electrode ({electrode}) lets through",
+            f"TT supply with no RCD stated for its outlets: {who}, and a fault to its metal is "
+            "disconnected only if its own fuse opens on the current the earth electrode "
+            f"({electrode}) lets through",
             supply.location,
             ("supply", *simple),
-            {} if supply.electrode is None else {"electrode_ohm": supply.electrode},
-            "protect the installation's outlets with an RCD (30 mA for socket outlets), as TT "
-            "installations usually are; have the electrode measured by a qualified electrician",
+            figures,
+            fix,
         )
     ]
 
