@@ -147,7 +147,12 @@ def _analyze(plan: Plan, options: Options) -> Result:
     )
     for r in functions("solve"):
         findings.extend(r.func(solved))
-    findings.extend(placed_supply_findings(plan, options, analyze))
+    faults: dict = {}
+    findings.extend(placed_supply_findings(plan, options, analyze, faults))
+    if faults and result.device_earths:
+        result.device_earths = tuple(
+            replace(d, fault=faults.get(d.device)) for d in result.device_earths
+        )
     return _finish(result)
 
 

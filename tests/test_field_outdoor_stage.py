@@ -86,3 +86,17 @@ def test_the_heads_channel_is_heard_through_its_own_cabinet():
     (own,) = alone.values()
     assert placed.margin_db == pytest.approx(own.margin_db, abs=0.01)
     assert placed.rated_output == own.rated_output == 12.0  # its own 12 V, not the PA's 63 V
+
+
+def test_the_heads_fault_figures_are_in_the_installations_own_outputs(cli):
+    # the reviewer: the installation's JSON had protective_earth null and no text showed the
+    # placed device's fault figures; its device earth row now carries its worst part's fault on
+    # this supply, through the reels (the breaker's 60 s thermal band: never within 0.4 s)
+    import json
+
+    code, out, _ = cli("check", str(STAGE), "--advice-budget", "0", "--format", "json")
+    (gtr,) = [d for d in json.loads(out)["device_earths"] if d["device"] == "gtr"]
+    assert 60.0 <= gtr["fault"]["fault_current_a"] <= 65.0
+    assert gtr["fault"]["clear_time_s"] == 60.0 and gtr["fault"]["device"] == "breaker"
+    _, text, _ = cli("check", str(STAGE), "--advice-budget", "0")
+    assert "in up to 60 s by the breaker" in text

@@ -23,13 +23,19 @@ class DeviceEarth:
     device: str
     inlet: str
     resistance: float | None  # Ω, None when the path is broken
+    #: a device with a plan of its own, checked on the installation's supply: its worst part's
+    #: line-to-part fault (:class:`groundcheck.physics.safety.PartFigures`), None otherwise
+    fault: object = None
 
     def as_dict(self) -> dict:
-        return {
+        out = {
             "device": self.device,
             "inlet": self.inlet,
             "resistance_ohm": None if self.resistance is None else round(self.resistance, 6),
         }
+        if self.fault is not None:
+            out["fault"] = self.fault.as_dict()
+        return out
 
 
 #: devices' earth paths solved together (each a column of nodes)

@@ -110,6 +110,19 @@ def _cables(m, temperature: float) -> tuple[float, float, float]:
     )
 
 
+def _device_resistance(m) -> float:
+    """The protective device's resistance in the fault loop, Ω: the supply circuit's breaker's
+    when the plan states one beside the equipment's fuse (the fault at the inlet, ahead of the
+    fuse), else the one device's (a stated fuse resistance, or the rough default), else 0."""
+    if m.breaker is not None:
+        return fuse_cold_resistance(m.breaker_kind, m.breaker)
+    if m.fuse is None:
+        return 0.0
+    if m.fuse_resistance is not None:
+        return m.fuse_resistance
+    return fuse_cold_resistance(m.fuse_kind, m.fuse)
+
+
 def supply_figures(plan: Plan) -> Supply:
     """The fault loop outside the equipment's protective path, from the mains statement and
     defaults: the installation's cables at their operating temperature, and the prospective
@@ -128,15 +141,7 @@ def supply_figures(plan: Plan) -> Supply:
     cold_t = min(plan.ambient, 20.0)
     line, cpc, cord = _cables(m, hot_t)
     ze, electrode = external_loop(m)
-    fuse_r = 0.0
-    if m.breaker is not None:  # the fault at the inlet, ahead of the equipment's fuse
-        fuse_r = fuse_cold_resistance(m.breaker_kind, m.breaker)
-    elif m.fuse is not None:
-        fuse_r = (
-            m.fuse_resistance
-            if m.fuse_resistance is not None
-            else fuse_cold_resistance(m.fuse_kind, m.fuse)
-        )
+    fuse_r = _device_resistance(m)
     cap = (
         breaking_capacity(m.fuse_kind, m.fuse, m.breaking, m.breaking_current)
         if m.fuse is not None
@@ -145,10 +150,8 @@ def supply_figures(plan: Plan) -> Supply:
     c_line, c_cpc, c_cord = _cables(m, cold_t)
     cold_outside, cold_return = ze + fuse_r + c_line + c_cord, c_cord + c_cpc
     zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
-    # prospective currents: with the device replaced by a link of negligible impedance (the
-    # definition its breaking capacity is rated against, IEC 60127-1 / IEC 60269-1): its own
-    # resistance is not in them (an outside reviewer's 0.4 Ω fuse turned 166 A into 96 A and
-    # passed an enhanced-breaking fuse that cannot break it)
+    # prospective currents: the device replaced by a link of negligible impedance (IEC 60127-1,
+    # IEC 60269-1: what breaking capacities are rated against), its own resistance not in them
     short = m.voltage / (zln + 2 * c_line + 2 * c_cord)
     if m.short_circuit is not None:  # a stated current may only make the check stricter
         short = max(short, m.short_circuit)

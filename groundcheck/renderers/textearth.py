@@ -149,20 +149,44 @@ def _device_earth_table(earths, console: Console) -> None:
         ]
         title += f" (broken and highest first, {TABLE_OUTLETS} of {len(earths)})"
     t = Table(title=title, title_justify="left", min_width=len(title))  # the title on one line
-    for col in ("device", "earth pin", "resistance"):
+    faults = any(d.fault is not None for d in shown)
+    cols = ("device", "earth pin", "resistance")
+    if faults:  # devices with plans of their own, checked on this supply
+        cols += ("fault (worst part)", "touch", "cleared")
+    for col in cols:
         t.add_column(col)
     for d in shown:
-        t.add_row(
+        row = [
             escape(d.device),
             escape(d.inlet),
-            "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ",
-        )
+            "BROKEN" if d.resistance is None else format_si(d.resistance, "Ω"),
+        ]
+        if faults:
+            row += _fault_cells(d.fault)
+        t.add_row(*row)
     console.print(t)
     if len(earths) > len(shown):
         console.print(
             f"  {len(earths) - len(shown)} more devices not listed here (all are in --format json)"
         )
     console.print()
+
+
+def _fault_cells(p) -> list[str]:
+    """A placed device's worst line-to-part fault: current at the part, touch voltage, and what
+    clears it how fast (or never)."""
+    if p is None:
+        return ["–", "–", "–"]
+    cleared = (
+        "never (nothing opens)"
+        if p.clear_time is None
+        else f"in up to {p.clear_time:.3g} s by the {p.device}"
+    )
+    return [
+        f"{p.fault_current:.3g} A at {escape(p.part)}",
+        f"{p.touch_voltage:.3g} V" if p.touch_voltage is not None else "–",
+        cleared,
+    ]
 
 
 def outlet_table(result: Result, console: Console) -> None:

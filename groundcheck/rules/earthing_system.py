@@ -20,8 +20,8 @@ if TYPE_CHECKING:
 __all__ = ["rule_tt_supply", "rule_signal_only_metal", "INSTANT_TRIP_FLOOR"]
 
 #: A, the least fault current that trips the smallest circuit breaker a socket circuit has at once:
-#: a 6 A type B breaker's instantaneous band starts at 5 × In (IEC 60898-1, from memory); below it a
-#: TT fault through the electrode is cleared by nothing but an RCD or a device's own small fuse
+#: a 6 A type B breaker's instantaneous band starts at 5 × In (IEC 60898-1, from memory); below it
+#: a TT fault through the electrode is cleared by nothing but an RCD or a device's own small fuse
 INSTANT_TRIP_FLOOR = 30.0
 
 
@@ -138,7 +138,8 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
         "protect the installation's outlets with an RCD (30 mA for socket outlets), as TT "
         "installations usually are; have the electrode measured by a qualified electrician"
     )
-    who = f"{', '.join(simple)} {'has' if len(simple) == 1 else 'have'} no plan of its own to check"
+    has = "has" if len(simple) == 1 else "have"
+    who = f"{', '.join(simple)} {has} no plan of its own to check"
     if most < INSTANT_TRIP_FLOOR:
         touch = supply.voltage * r_a / (r_a + TT_SOURCE_LOOP)
         return [
@@ -147,7 +148,8 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
                 "danger",
                 f"TT supply with no RCD stated for its outlets: a fault to the metal of a class "
                 f"I device draws at most {most:.3g} A through the earth electrode ({electrode}), "
-                f"below the {INSTANT_TRIP_FLOOR:g} A that trips even a 6 A type B breaker at once; "
+                f"below the {INSTANT_TRIP_FLOOR:g} A that trips even a 6 A type B breaker at "
+                "once; "
                 f"{who}, so nothing known clears it, and about {touch:.0f} V against earth would "
                 "stay on its metal",
                 supply.location,

@@ -336,8 +336,9 @@ def rule_device_earths(s: Solved) -> list[Finding]:
                     loc,
                     (d.device, d.inlet),
                     {"resistance_ohm": d.resistance},
-                    "find and repair the high-resistance joint on the path (cord, strip or "
-                    "building run)",
+                    "a long or thin lead on the path (a reel, an extension, a strip's cord) or a "
+                    "high-resistance joint: use a shorter or heavier lead, or find and repair the "
+                    "joint, and have the path's continuity measured",
                 )
             )
     return out

@@ -37,7 +37,7 @@ __all__ = ["placed_supply_findings"]
 
 
 def placed_supply_findings(
-    plan: Plan, options: Options, analyze: Callable[[Plan, Options], Result]
+    plan: Plan, options: Options, analyze: Callable[[Plan, Options], Result], faults=None
 ) -> list[Finding]:
     """The protective-earth findings each placed device gets on the installation's supply and not
     on the mains its own plan states.
@@ -46,6 +46,8 @@ def placed_supply_findings(
         plan: an installation.
         options: the run's settings (the hum budget is not run for these checks).
         analyze: the analysis (:func:`groundcheck.analysis.analyze`).
+        faults: a dict that receives, per device, its worst part's fault figures on this supply
+            (the part whose fault is cleared last, or never).
     Returns:
         the findings, elements prefixed with the device's name, each message saying which supply.
     References:
@@ -57,6 +59,7 @@ def placed_supply_findings(
     quick = replace(options, hum=False, jobs=1)
     done: dict = {}
     alone: dict = {}
+    worst: dict = {}
     out: list[Finding] = []
     # a device behind a transformer is supplied by its secondary, not by the building
     behind = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
@@ -71,15 +74,13 @@ def placed_supply_findings(
         if route is not None:
             placed = replace(placed, route=route)
         if id(own) not in alone:
-            alone[id(own)] = analyze(own, quick).findings
+            alone[id(own)] = analyze(own, quick)
         key = (id(own), placed)
         if key not in done:
-            mine = {(f.code, f.elements) for f in alone[id(own)]}
-            there = (
-                analyze(replace(own, mains=placed), quick).findings
-                if placed != m
-                else alone[id(own)]
-            )
+            mine = {(f.code, f.elements) for f in alone[id(own)].findings}
+            result = analyze(replace(own, mains=placed), quick) if placed != m else alone[id(own)]
+            there = result.findings
+            worst[key] = _worst_part(result)
             # new on this supply, and the device's own dangers and faults: the installation's too
             done[key] = [
                 (f, (f.code, f.elements) in mine)
@@ -91,7 +92,22 @@ def placed_supply_findings(
                 )
             ]
         out += [_placed(f, name, placed, m, its_own) for f, its_own in done[key]]
+        if faults is not None and worst.get(key) is not None:
+            faults[name] = worst[key]
     return out
+
+
+def _worst_part(result: Result | None):
+    """A result's line-to-part fault that is cleared last (never, first), then the highest touch
+    voltage; None without figures."""
+    safety = result.safety if result is not None else None
+    parts = [p for p in (safety.parts if safety is not None else ()) if p.fault_current]
+    if not parts:
+        return None
+    return max(
+        parts,
+        key=lambda p: (p.clear_time is None, p.clear_time or 0.0, p.touch_voltage or 0.0, p.part),
+    )
 
 
 def _cable(c) -> bool:
