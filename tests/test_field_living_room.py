@@ -65,3 +65,20 @@ def test_a_building_cable_runs_as_it_likes():
 
     r = analyze(load(SYSTEM), Options(hum=False))
     assert not [f for f in r.findings if f.code == "GC112" and f.elements[0] in ("run_a", "run_b")]
+
+
+def test_a_shared_returns_level_is_its_own_not_its_sources_whole():
+    # the reviewer: the filter capacitor's ripple current (55 µA by his hand Fourier estimate,
+    # verdict.md) through 1.118 mΩ shared with the left cathode follower (gain 0 dB) is about
+    # 20·log10(55e-6 × 1.118e-3) = -144.2 dBV, yet GC102 showed the whole rectifiers' -66 dBV
+    # and called it a fault
+    from groundcheck.analysis import analyze
+
+    r = analyze(load(FIELD / "preamp.gplan"))
+    (f,) = [
+        x
+        for x in r.findings
+        if x.code == "GC102" and x.elements[:2] == ("ht.filter", "cf_l")
+    ]
+    assert f.severity == "note"
+    assert f.figures["level_dbv"] == pytest.approx(-144.2, abs=1.0)

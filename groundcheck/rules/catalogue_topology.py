@@ -36,9 +36,10 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "fault",
         "A conductor that carries a supply-return current (rectifier charging, DC load, "
         "heater, leakage) and also lies between the two points of a sensitive pair. A note "
-        "instead of a fault when the hum budget puts that source's worst-case level at the "
-        "stage's channel output below the contributor level ('--hum-level', -100 dBV by "
-        "default).",
+        "instead of a fault when what it puts at the stage's output — the source's AC current "
+        "times the transfer resistance to the stage's pair times the stage's gain, at most the "
+        "hum budget's worst-case level of the source at the channel — is below the contributor "
+        "level ('--hum-level', -100 dBV by default).",
         "The current's voltage drop across the shared conductor appears at the stage's input "
         "as if it were signal: rectifier charging current gives hum at twice the mains "
         "frequency and a buzz of its harmonics.",

@@ -4,11 +4,13 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, joins_devices
+from ..physics.sources import plan_sources
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -60,6 +62,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     # devices whose earth pin reaches no main earthing terminal (GC215): their leakage returns by
     # the shields that hold their chassis near earth
     unearthed = {d.device for d in (s.device_earths or ()) if d.resistance is None}
+    amps = _ac_currents(s)
     for row in s.coupling:
         fix = _shared_fix(row, plan_conductors, leak)
         dev = s.plan.index.device_of(row.source) if row.source in leak else None
@@ -69,7 +72,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             "transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"),
             "stage_gain_db": row.stage_gain,
         }
-        below, heard = _weighed(s, row, channels.get(row.stage), figures)
+        below, heard = _weighed(s, row, channels.get(row.stage), figures, amps)
         out.append(
             Finding(
                 "GC102",
@@ -86,11 +89,11 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     return out
 
 
-def _weighed(s: Solved, row, channel: str | None, figures: dict) -> tuple[bool, str]:
+def _weighed(s: Solved, row, channel: str | None, figures: dict, amps: dict) -> tuple[bool, str]:
     """Whether a shared return is below the contributor level (a note; otherwise, and when the
     budget was not run, a fault), and what the hum budget says of it; its level goes into
     ``figures``."""
-    level = _source_level(s, row, channel)
+    level = _source_level(s, row, channel, amps)
     if level is None:
         if s.options.hum:
             return False, ""
@@ -106,8 +109,9 @@ def _weighed(s: Solved, row, channel: str | None, figures: dict) -> tuple[bool, 
     if level > 0 and dbv(level) >= s.options.contributor_level - 1e-9:
         return False, ""
     return True, (
-        f"; the hum budget puts it at {dbv(level):.1f} dBV at the {channel} output, below the "
-        f"{s.options.contributor_level:g} dBV contributor level"
+        f"; through this stage it puts about {dbv(level):.1f} dBV at the {channel} output "
+        f"(its current × the transfer resistance × the gain, at most the hum budget's figure for "
+        f"it), below the {s.options.contributor_level:g} dBV contributor level"
         if level > 0
         else f"; the hum budget finds none of it at the {channel} output"
     )
@@ -160,13 +164,32 @@ def _shared_fix(row, plan_conductors: dict, leak: set) -> str:
     return fix
 
 
-def _source_level(s: Solved, row, channel: str | None) -> float | None:
-    """The worst-case level (V) that a shared return's source puts at its stage's channel output,
-    from the hum budget; None without one (no hum budget, or the channel not in it)."""
+def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | None:
+    """The level (V) this shared return puts at its stage's output: the source's AC current (rms
+    over its hum lines) times the transfer resistance to the stage's pair times the stage's gain,
+    and never above what the hum budget finds of the source's whole group at the channel; None
+    without a hum budget (or the channel not in it)."""
     if s.hum is None or channel not in s.hum.levels:
         return None
     group = "rectifier charging" if row.kind == "rectifier" else f"{row.kind}:{row.source}"
-    return s.hum.levels[channel].get(group, 0.0)
+    whole = s.hum.levels[channel].get(group, 0.0)
+    current = amps.get(row.source)
+    if current is None:
+        return whole
+    return min(whole, current * abs(row.transfer) * 10 ** (row.stage_gain / 20))
+
+
+def _ac_currents(s: Solved) -> dict:
+    """Each hum source's AC current, rms over its lines, A ({} without the rectifiers' figures)."""
+    if s.hum is None:
+        return {}
+    results = {r.name: r for r in s.hum.rectifiers}
+    if not all(r.name in results for r in s.plan.rectifiers):
+        return {}
+    return {
+        src.name: math.sqrt(sum(abs(i) ** 2 for f, i in src.parts.items() if f > 0))
+        for src in plan_sources(s.plan, results, s.options.max_frequency)
+    }
 
 
 @rule("GC401", needs="solve")
