@@ -116,7 +116,12 @@ def _earth_line(result: Result, console: Console) -> None:
         own = (
             f"each device with a plan of its own is checked on this {plan.supply.system} supply, "
             "its fault loop through the wiring to where it is plugged in; a simple device's own "
-            "fuse is not known (GC221 says what a TT supply's electrode lets through)"
+            "fuse is not known"
+            + (
+                " (GC221 says what the electrode lets through)"
+                if plan.supply.system == "TT"
+                else ""
+            )
             if plan.supply is not None
             else "each device's own wiring is checked with its own plan"
         )
