@@ -100,3 +100,18 @@ def test_the_heads_fault_figures_are_in_the_installations_own_outputs(cli):
     assert gtr["fault"]["clear_time_s"] == 60.0 and gtr["fault"]["device"] == "breaker"
     _, text, _ = cli("check", str(STAGE), "--advice-budget", "0")
     assert "in up to 60 s by the breaker" in text
+
+
+def test_the_reels_own_earth_core_would_not_survive_the_heads_fault():
+    # a re-review: the reel's 1 mm² protective core carries the head's fault for up to 60 s (the
+    # breaker's thermal band) and nothing checked it. By hand, adiabatic (IEC 60364-5-54
+    # 543.1.2, k = 115 for a PVC-insulated core): at least 62 A (the hot loop's current) for 60 s
+    # needs √(62² × 60)/115 = 4.2 mm², so the 1 mm² reel core and strip lead fail
+    found = {
+        f.elements[0]: f
+        for f in _checked().findings
+        if f.code == "GC207" and "the installation's" in f.message
+    }
+    assert {"reel2", "strip2_lead"} <= set(found)
+    assert all(f.severity == "danger" for f in found.values())
+    assert found["reel2"].figures["required_mm2"] >= (62**2 * 60) ** 0.5 / 115

@@ -221,3 +221,18 @@ def test_a_tt_electrode_over_its_rcd_is_the_installations_danger_at_its_supply(t
     assert f.severity == "danger" and f.elements == ("supply",)
     assert f.figures["electrode_times_rcd_v"] == pytest.approx(65.0)
     assert not [x for x in _simple(tmp_path, "electrode 500 ohm, rcd 100 mA") if x.code == "GC220"]
+
+
+def test_the_cord_the_installation_states_is_in_the_fault_loop(tmp_path):
+    # a re-review: a device line's 'cord 50 m 0.75 mm2' was in the earth path but not in the fault
+    # loop, which kept the device plan's own 2 m cord. By hand at 70 °C: radial 2 × 20 m × 7.41
+    # Ω/km × 1.2 = 0.3557 Ω, cord 2 × 50 m × 26 Ω/km × 1.2 = 3.12 Ω (IEC 60228 class 5, 0.75 mm²),
+    # Ze 0.35 Ω: I ≤ 230 / 3.8257 = 60.12 A, under the 80 A that trips a 16 A type B breaker at
+    # once
+    (tmp_path / "head.gplan").write_text(HEAD)
+    (tmp_path / "stage.gplan").write_text(
+        STAGE.format(outlet="wall").replace('plugged wall', 'plugged wall, cord 50 m 0.75 mm2')
+    )
+    r = analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
+    (f, *_) = [x for x in r.findings if x.code == "GC208" and x.message.startswith("head,")]
+    assert f.severity == "danger" and 55.0 <= f.figures["fault_current_a"] <= 60.12

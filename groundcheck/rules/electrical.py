@@ -66,8 +66,16 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     for row in s.coupling:
         fix = _shared_fix(row, plan_conductors, leak)
         dev = s.plan.index.device_of(row.source) if row.source in leak else None
+        holding, held = _holding(s, row, plan_conductors, unearthed)
         if dev in unearthed:
-            fix = _unearthed_fix(dev, row, plan_conductors)
+            fix = _unearthed_fix(dev, holding, held)
+        elif holding:
+            fix = (
+                f"the shield of {', '.join(holding)} is what holds the chassis of "
+                f"{', '.join(held)} (no earth path of its own) near earth: restore its protective "
+                "earth first, and never lift that shield or put a ground-lift network in it; "
+                "never lift a protective earth"
+            )
         figures = {
             "transfer_resistance_mohm": float(f"{row.transfer * 1e3:.6g}"),
             "stage_gain_db": row.stage_gain,
@@ -117,14 +125,30 @@ def _weighed(s: Solved, row, channel: str | None, figures: dict, amps: dict) -> 
     )
 
 
-def _unearthed_fix(dev: str, row, plan_conductors: dict) -> str:
+def _holding(s: Solved, row, plan_conductors: dict, unearthed: set):
+    """The interconnects among a shared return's conductors that have an unearthed device at an
+    end (their shields are what hold its chassis near earth), and those devices."""
+    device_of = s.plan.index.device_of
+    holding, held = [], set()
+    for x in row.shared:
+        c = plan_conductors.get(x)
+        if c is None or not joins_devices(c):
+            continue
+        ends = {device_of(c.a), device_of(c.b)} & unearthed
+        if ends:
+            holding.append(x)
+            held |= ends
+    return holding, sorted(held)
+
+
+def _unearthed_fix(dev: str, holding: list[str], devices: list[str]) -> str:
     """A leakage current of a device with no earth path: its own earth comes first; the shields
-    it flows by are what holds its chassis near earth meanwhile."""
-    via = [x for x in row.shared if x in plan_conductors and joins_devices(plan_conductors[x])]
+    of its links are what hold its chassis near earth meanwhile."""
     held = (
-        f"; the shield of {', '.join(via)} is what holds {dev}'s chassis near earth meanwhile: "
-        "never lift it or put a ground-lift network in it"
-        if via
+        f"; the shield of {', '.join(holding)} is what holds the chassis of "
+        f"{', '.join(devices)} near earth meanwhile: never lift it or put a ground-lift "
+        "network in it"
+        if holding
         else ""
     )
     return (

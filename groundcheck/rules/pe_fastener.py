@@ -47,8 +47,8 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
                         c.location,
                         (c.name, v, *sorted(holds)),
                         {"other_items": len(holds)},
-                        "give the protective earth a stud of its own; move "
-                        f"{', '.join(sorted(holds))} to another fastener",
+                        "give the protective earth a stud of its own, with nothing else on it "
+                        f"({', '.join(sorted(holds))} stay on the fastening they share now)",
                     )
                 )
     return out

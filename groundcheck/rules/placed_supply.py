@@ -25,11 +25,14 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import Callable
 
+import math
+
 import networkx as nx
 
 from ..model.installation import transformer_feeds
 from ..model.kinds import PROTECTIVE, can_carry_protective, kind
 from ..model.records import Plan
+from ..physics.safety import adiabatic_k
 from .catalogue import Finding, protective_earth_rule, severity_rank
 from .results import Options, Result
 
@@ -53,13 +56,13 @@ def placed_supply_findings(
     References:
         the module's description.
     """
-    supply = plan.supply
-    if supply is None:
+    if plan.supply is None:
         return []
     quick = replace(options, hum=False, jobs=1)
     done: dict = {}
     alone: dict = {}
     worst: dict = {}
+    needs: dict = {}  # the installation's conductor -> (area it needs, device, k)
     out: list[Finding] = []
     # a device behind a transformer is supplied by its secondary, not by the building
     behind = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
@@ -69,10 +72,7 @@ def placed_supply_findings(
         m = own.mains
         if m is None or m.equipment_class == "II" or plugged.get(name) in behind:
             continue
-        placed = supply.for_device(m)
-        route = _route(plan, graph, plugged.get(name))
-        if route is not None:
-            placed = replace(placed, route=route)
+        placed, route = _as_placed(plan, graph, name, m)
         if id(own) not in alone:
             alone[id(own)] = analyze(own, quick)
         key = (id(own), placed)
@@ -94,6 +94,66 @@ def placed_supply_findings(
         out += [_placed(f, name, placed, m, its_own) for f, its_own in done[key]]
         if faults is not None and worst.get(key) is not None:
             faults[name] = worst[key]
+        if route is not None and worst.get(key) is not None:
+            _route_survival(plan, name, route, worst[key], needs)
+    return out + _route_findings(plan, needs)
+
+
+def _as_placed(plan: Plan, graph: nx.Graph, name: str, m):
+    """A placed device's mains as the installation supplies it, and its route to the origin: the
+    supply's earthing system, electrode and RCD, the cables from its outlet in place of its own
+    circuit, and the cord the installation states for it (as its earth path has it)."""
+    device = plan.index.devices[name]
+    placed = plan.supply.for_device(m)
+    route = _route(plan, graph, device.plugged)
+    if route is not None:
+        placed = replace(placed, route=route)
+    if device.cord_length is not None:
+        area = device.cord_area or placed.cord_area
+        placed = replace(placed, cord_length=device.cord_length, cord_area=area)
+    return placed, route
+
+
+def _route_survival(plan: Plan, device: str, route, part, needs: dict) -> None:
+    """The cross-section each of the installation's protective conductors on a device's fault
+    loop needs to survive the device's worst fault until it is cleared (adiabatic, IEC 60364-5-54
+    543.1.2: S ≥ √(I²t)/k, k of a PVC-insulated core of a cable, Annex A), kept per conductor at
+    the largest device's."""
+    if part.i2t is None:
+        return
+    k = adiabatic_k("pvc", True)
+    need = math.sqrt(part.i2t) / k * 1e-6  # m²
+    for cond, _, _, pe_area, _ in route:
+        if pe_area < need and need > needs.get(cond, (0.0, None))[0]:
+            needs[cond] = (need, device, k)
+
+
+def _route_findings(plan: Plan, needs: dict) -> list[Finding]:
+    """GC207 for the installation's own protective conductors that a placed device's fault would
+    melt before it is cleared (a reel's 1 mm² core on a 16 A breaker's 60 s band)."""
+    out = []
+    for cond, (need, device, k) in sorted(needs.items()):
+        c = plan.index.conductors[cond]
+        out.append(
+            Finding(
+                "GC207",
+                "danger",
+                f"{cond} ({c.area * 1e6:.4g} mm², the installation's, in the fault loop of "
+                f"{device}) would not survive that device's fault until it is cleared: it needs "
+                f"{need * 1e6:.4g} mm² (k = {k:g})",
+                c.location,
+                (cond,),
+                {
+                    "conductor": cond,
+                    "area_mm2": c.area * 1e6,
+                    "k": k,
+                    "required_mm2": need * 1e6,
+                    "survives": False,
+                },
+                "protect the outlets by a 30 mA RCD (it clears the fault at once), or use a "
+                "shorter or heavier lead so that the breaker clears within its instantaneous band",
+            )
+        )
     return out
 
 

@@ -35,15 +35,27 @@ def rule_heaters(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     valves = sorted(r.name for r in ctx.plan.rectifiers if r.diode_law == "valve")
-    # a valve rectifier's filament is its cathode, at the HT: grounding its winding shorts the
-    # supply, so with a valve rectifier in the plan the advice says which winding never to ground
-    caution = (
-        f"; but if it heats the valve rectifier ({', '.join(valves)}), leave it floating and "
-        f"write 'rectifier {valves[0]}' on it: that filament is the HT and must never be "
-        "referenced to ground"
-        if valves
-        else ""
-    )
+    device_of = ctx.plan.index.device_of
+
+    def fix(h) -> str:
+        # a valve rectifier's filament is its cathode, at the HT: grounding its winding shorts
+        # the supply, so with a valve rectifier beside it the advice says that first; the name is
+        # written as the heater's own plan writes it (a placed device's, without its prefix)
+        dev = device_of(h.name)
+        mine = [v for v in valves if device_of(v) == dev]
+        if not mine:
+            return (
+                "reference it: centre tap or two equal resistors to ground, or an elevated DC "
+                "reference"
+            )
+        local = mine[0][len(dev) + 1 :] if dev else mine[0]
+        return (
+            f"if it heats the valve rectifier ({', '.join(mine)}), leave it floating and write "
+            f"'rectifier {local}' on it: that filament is the HT and must never be referenced to "
+            "ground; otherwise reference it: centre tap or two equal resistors to ground, or an "
+            "elevated DC reference"
+        )
+
     return [
         Finding(
             "GC107",
@@ -52,8 +64,7 @@ def rule_heaters(ctx: AuditContext) -> list[Finding]:
             h.location,
             (h.name,),
             {"current_a": h.current},
-            "reference it: centre tap or two equal resistors to ground, or an elevated DC "
-            "reference" + caution,
+            fix(h),
         )
         for h in ctx.plan.heaters
         if h.reference is None and h.rectifier is None
