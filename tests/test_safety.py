@@ -385,3 +385,17 @@ def test_a_mains_attribute_given_twice_is_a_located_error(twice):
     with pytest.raises(PlanErrors) as e:
         plan(f'plan "t"\nmains 230 V 50 Hz, {twice}\n' + PE_PLAN, header=False)
     assert "is given twice" in str(e.value) and ":2:" in str(e.value)
+
+
+@pytest.mark.parametrize(
+    "marking,hint", [("T250mA", "fuse 250 mA slow"), ("F2A", "fuse 2 A fast")]
+)
+def test_a_fuse_written_as_it_is_marked_is_told_how_to_write_it(marking, hint):
+    # an outside reviewer wrote 'fuse T250mA', the marking on a fuse's cap, and got only
+    # "expected fuse rating (current)"
+    from groundcheck import PlanErrors
+
+    with pytest.raises(PlanErrors) as e:
+        plan(f'plan "t"\nmains 230 V 50 Hz, fuse {marking}\n' + PE_PLAN, header=False)
+    assert "is a fuse's marking" in str(e.value) and hint in str(e.value)
+    assert ":2:25:" in str(e.value)

@@ -185,9 +185,10 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
             if ph and len(ph) == 2 and there != dev.plugged and fits(dev, there):
                 add(
                     Candidate(
-                        f"plug {dev.name} in at {there}, whose earth path is sound (and have the "
-                        f"protective connection of {dev.plugged} repaired before anything is "
-                        "plugged into it)",
+                        f"plug {dev.name} in at {there}, whose earth path is sound (and take "
+                        f"{dev.plugged} out of use until a qualified person has repaired its "
+                        "protective connection; an adaptor or cord without an earth is thrown "
+                        "away)",
                         f.code,
                         (ctx.src.replace(st, [(ph[1], there)]),),
                         moves_plug=True,

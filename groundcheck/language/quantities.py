@@ -3,6 +3,8 @@ ratings within the range a real installation can have, refused where they are wr
 
 from __future__ import annotations
 
+import re
+
 from ..core.errors import Location, PlanError
 
 __all__ = [
@@ -12,6 +14,7 @@ __all__ = [
     "RANGES",
     "PLAUSIBLE",
     "MIN_TEMPERATURE",
+    "fuse_marking",
 ]
 
 
@@ -188,3 +191,31 @@ def _example_unit(kind: str) -> str:
         "resistance per length": "mohm/m",
         "apparent power": "VA or kVA",
     }.get(kind, "a unit")
+
+
+#: a fuse's marking as printed on its end cap: T (time-lag) or F (quick-acting) and its rating
+_MARKING = re.compile(r"^([TtFf])(\d+(?:\.\d+)?)(m?)A$")
+
+
+def fuse_marking(r) -> None:
+    """A fuse written as it is marked ('T250mA'): a located error that says how to write it.
+
+    Parameters:
+        r: the phrase's reader, at the fuse's rating.
+    Returns:
+        nothing: raises the PlanError when the next word is a marking.
+    References:
+        IEC 60127-1 (a miniature fuse's marking: T time-lag, F quick-acting, then its rating).
+    """
+    it = r.peek()
+    m = _MARKING.match(str(it.value)) if it is not None and it.kind == "word" else None
+    if m is None:
+        return
+    kind = "slow" if m.group(1) in "Tt" else "fast"
+    unit = "mA" if m.group(3) else "A"
+    raise PlanError(
+        f"'{it.value}' is a fuse's marking, not its rating",
+        it.loc,
+        f"write 'fuse {m.group(2)} {unit} {kind}' ({m.group(1).upper()}: "
+        f"{'time-lag' if kind == 'slow' else 'quick-acting'})",
+    )

@@ -14,6 +14,7 @@ from ..model.records import (
     Supply,
 )
 from .phrases import PLAUSIBLE, Reader, Statement, check_quantity
+from .quantities import fuse_marking
 from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
 from .rectifiers import rectifier
 
@@ -193,6 +194,7 @@ def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
         )
     said.add(word)
     if word == "fuse":
+        fuse_marking(r)
         kw["_fuse"] = r.rating(word, "fuse rating")
         kind = r.word("fuse type (slow or fast)", tuple(FUSE_KINDS)) if not r.done else "slow"
         kw["_fuse_kind"] = FUSE_KINDS[kind]

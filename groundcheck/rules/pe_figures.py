@@ -21,7 +21,13 @@ if TYPE_CHECKING:
     from ..physics.safety import SafetyResult
     from .electrical import Solved
 
-__all__ = ["rule_protective_figures", "rule_device_earths", "plan_conductor", "DEVICE_EARTH_LIMIT"]
+__all__ = [
+    "rule_protective_figures",
+    "rule_device_earths",
+    "plan_conductor",
+    "installation_survival",
+    "DEVICE_EARTH_LIMIT",
+]
 
 
 @rule("GC206", "GC207", "GC208", "GC211", "GC214", needs="solve")
@@ -341,4 +347,43 @@ def rule_device_earths(s: Solved) -> list[Finding]:
                     "joint, and have the path's continuity measured",
                 )
             )
+    return out
+
+
+def installation_survival(plan: Plan, needs: dict) -> list[Finding]:
+    """GC207 for the installation's own protective conductors that a placed device's fault would
+    melt before it is cleared (a reel's 1 mm² core on a 16 A breaker's 60 s band).
+
+    Parameters:
+        plan: the installation.
+        needs: conductor -> (the area it needs, m², the device whose fault, k), from
+            :mod:`groundcheck.rules.placed_supply`.
+    Returns:
+        GC207 findings.
+    References:
+        IEC 60364-5-54 543.1.2 (adiabatic equation and k values).
+    """
+    out = []
+    for cond, (need, device, k) in sorted(needs.items()):
+        c = plan.index.conductors[cond]
+        out.append(
+            Finding(
+                "GC207",
+                "danger",
+                f"{cond} ({c.area * 1e6:.4g} mm², the installation's, in the fault loop of "
+                f"{device}) would not survive that device's fault until it is cleared: it needs "
+                f"{need * 1e6:.4g} mm² (k = {k:g})",
+                c.location,
+                (cond,),
+                {
+                    "conductor": cond,
+                    "area_mm2": c.area * 1e6,
+                    "k": k,
+                    "required_mm2": need * 1e6,
+                    "survives": False,
+                },
+                "protect the outlets by a 30 mA RCD (it clears the fault at once), or use a "
+                "shorter or heavier lead so that the breaker clears within its instantaneous band",
+            )
+        )
     return out

@@ -33,6 +33,7 @@ from ..model.installation import transformer_feeds
 from ..model.kinds import PROTECTIVE, can_carry_protective, kind
 from ..model.records import Plan
 from ..physics.safety import adiabatic_k
+from .pe_figures import installation_survival
 from .catalogue import Finding, protective_earth_rule, severity_rank
 from .results import Options, Result
 
@@ -96,7 +97,7 @@ def placed_supply_findings(
             faults[name] = worst[key]
         if route is not None and worst.get(key) is not None:
             _route_survival(plan, name, route, worst[key], needs)
-    return out + _route_findings(plan, needs)
+    return out + installation_survival(plan, needs)
 
 
 def _as_placed(plan: Plan, graph: nx.Graph, name: str, m):
@@ -126,35 +127,6 @@ def _route_survival(plan: Plan, device: str, route, part, needs: dict) -> None:
     for cond, _, _, pe_area, _ in route:
         if pe_area < need and need > needs.get(cond, (0.0, None))[0]:
             needs[cond] = (need, device, k)
-
-
-def _route_findings(plan: Plan, needs: dict) -> list[Finding]:
-    """GC207 for the installation's own protective conductors that a placed device's fault would
-    melt before it is cleared (a reel's 1 mm² core on a 16 A breaker's 60 s band)."""
-    out = []
-    for cond, (need, device, k) in sorted(needs.items()):
-        c = plan.index.conductors[cond]
-        out.append(
-            Finding(
-                "GC207",
-                "danger",
-                f"{cond} ({c.area * 1e6:.4g} mm², the installation's, in the fault loop of "
-                f"{device}) would not survive that device's fault until it is cleared: it needs "
-                f"{need * 1e6:.4g} mm² (k = {k:g})",
-                c.location,
-                (cond,),
-                {
-                    "conductor": cond,
-                    "area_mm2": c.area * 1e6,
-                    "k": k,
-                    "required_mm2": need * 1e6,
-                    "survives": False,
-                },
-                "protect the outlets by a 30 mA RCD (it clears the fault at once), or use a "
-                "shorter or heavier lead so that the breaker clears within its instantaneous band",
-            )
-        )
-    return out
 
 
 def _worst_part(result: Result | None):
