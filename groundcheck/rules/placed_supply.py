@@ -26,6 +26,7 @@ from dataclasses import replace
 from typing import Callable
 
 import math
+from collections import OrderedDict
 
 import networkx as nx
 
@@ -75,11 +76,15 @@ def placed_supply_findings(
             continue
         placed, route = _as_placed(plan, graph, name, m)
         if id(own) not in alone:
-            alone[id(own)] = analyze(own, quick)
+            alone[id(own)] = _analysed(analyze, own, quick)
         key = (id(own), placed)
         if key not in done:
             mine = {(f.code, f.elements) for f in alone[id(own)].findings}
-            result = analyze(replace(own, mains=placed), quick) if placed != m else alone[id(own)]
+            result = (
+                _analysed(analyze, replace(own, mains=placed), quick)
+                if placed != m
+                else alone[id(own)]
+            )
             there = result.findings
             worst[key] = _worst_part(result)
             # new on this supply, and the device's own dangers and faults: the installation's too
@@ -98,6 +103,25 @@ def placed_supply_findings(
         if route is not None and worst.get(key) is not None:
             _route_survival(plan, name, route, worst[key], needs)
     return out + installation_survival(plan, needs)
+
+
+#: a device's own plan analysed for the installation, kept by the plan's content: the advisor
+#: re-analyses the installation for every candidate, most of which leave the device's plan alone
+_ANALYSED: OrderedDict = OrderedDict()
+_ANALYSED_MAX = 16
+
+
+def _analysed(analyze, own: Plan, options: Options) -> Result:
+    key = (own, options)
+    try:
+        hit = _ANALYSED.get(key)
+    except TypeError:  # a plan that cannot be hashed is analysed each time
+        return analyze(own, options)
+    if hit is None:
+        hit = _ANALYSED[key] = analyze(own, options)
+        if len(_ANALYSED) > _ANALYSED_MAX:
+            _ANALYSED.popitem(last=False)
+    return hit
 
 
 def _as_placed(plan: Plan, graph: nx.Graph, name: str, m):
