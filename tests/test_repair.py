@@ -622,7 +622,10 @@ def test_a_device_on_an_unwired_outlet_is_plugged_in_where_the_earth_path_is_sou
     best = evs[0]
     assert not best.rejected and best.candidate.reason == "GC215" and best.candidate.moves_plug
     assert best.candidate.title.startswith("plug amp in at wall, whose earth path is sound")
-    assert "take spare out of use until a qualified person has repaired its protective connection" in best.candidate.title
+    assert (
+        "take spare out of use until a qualified person has repaired its protective connection"
+        in best.candidate.title
+    )
     assert "GC215" not in _codes_after(best) and best.hum_change_db["main"] < 0
     # the outlet left empty is still reported as unwired, as an outlet
     (left,) = [f for f in best.result.findings if f.code == "GC109"]

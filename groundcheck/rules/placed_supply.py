@@ -79,24 +79,13 @@ def placed_supply_findings(
             alone[id(own)] = _analysed(analyze, own, quick)
         key = (id(own), placed)
         if key not in done:
-            mine = {(f.code, f.elements) for f in alone[id(own)].findings}
             result = (
                 _analysed(analyze, replace(own, mains=placed), quick)
                 if placed != m
                 else alone[id(own)]
             )
-            there = result.findings
             worst[key] = _worst_part(result)
-            # new on this supply, and the device's own dangers and faults: the installation's too
-            done[key] = [
-                (f, (f.code, f.elements) in mine)
-                for f in there
-                if protective_earth_rule(f.code)
-                and (
-                    (f.code, f.elements) not in mine
-                    or severity_rank(f.severity) <= severity_rank("fault")
-                )
-            ]
+            done[key] = _reported(result.findings, alone[id(own)].findings)
         out += [_placed(f, name, placed, m, its_own) for f, its_own in done[key]]
         if faults is not None and worst.get(key) is not None:
             faults[name] = worst[key]
@@ -109,6 +98,22 @@ def placed_supply_findings(
 #: re-analyses the installation for every candidate, most of which leave the device's plan alone
 _ANALYSED: OrderedDict = OrderedDict()
 _ANALYSED_MAX = 16
+
+
+def _reported(there, alone) -> list[tuple[Finding, bool]]:
+    """The protective-earth findings a device gets on the installation's supply that its own
+    plan does not give, and its own dangers and faults (the installation's too): each with
+    whether its own plan finds it too."""
+    mine = {(f.code, f.elements) for f in alone}
+    return [
+        (f, (f.code, f.elements) in mine)
+        for f in there
+        if protective_earth_rule(f.code)
+        and (
+            (f.code, f.elements) not in mine
+            or severity_rank(f.severity) <= severity_rank("fault")
+        )
+    ]
 
 
 def _analysed(analyze, own: Plan, options: Options) -> Result:
