@@ -41,6 +41,7 @@ PLANS = [
     "valve-phono-dc-heaters/plan.gplan",
     "outdoor-stage-reels/outdoor-stage.gplan",
     "living-room-preamp/system.gplan",
+    "garden-studio-tt/studio-original.gplan",
 ]
 
 #: findings a change must never bring about: part of the signal ground unconnected (GC106,

@@ -90,6 +90,9 @@ class Candidate:
     action: str = ""  # what it does, in one word of :data:`ACTIONS`
     element: str = ""  # the element it changes (model name), or the one it answers
     refused: str = ""  # why it is considered, never tried (bought equipment, say)
+    #: work beyond its edits and wire, in the same rank as wire's metres: an earth electrode
+    #: improved (rods driven, re-measured through the seasons) is more than an RCD fitted
+    work: float = 0.0
 
 
 @dataclass(frozen=True)

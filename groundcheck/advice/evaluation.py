@@ -66,7 +66,7 @@ class Evaluation:
             -round(gain, 1),
             len(self.introduced),
             len(self.candidate.edits),
-            round(self.candidate.wire, 4),
+            round(self.candidate.wire + self.candidate.work, 4),
             -self.net.get("warning", 0),
             -self.net.get("note", 0),
             self.candidate.title,

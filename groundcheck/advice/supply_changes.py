@@ -43,6 +43,10 @@ _DEFER = (
 )
 
 
+#: the work of improving an earth electrode, ranked as metres of wire laid (see Candidate.work):
+#: more than fitting an RCD, which an electrician does in the board (common practice)
+ELECTRODE_WORK = 10.0
+
 #: Ω, the electrode resistance above which an electrode may not stay as measured through the
 #: seasons (common practice; docs/language.md's range of plausible ratings says the same)
 STABLE_ELECTRODE = 200.0
@@ -163,6 +167,7 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
                 (_set(ctx, st, "electrode", f"{target:g} ohm"),),
                 action="electrode",
                 element="mains",
+                work=ELECTRODE_WORK,
             )
         )
 
