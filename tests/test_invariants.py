@@ -18,6 +18,7 @@ import re
 from random import Random
 
 import numpy as np
+import pytest
 from hypothesis import HealthCheck, Phase, given, settings, strategies as st
 
 from groundcheck import analyze, load_text
@@ -566,3 +567,19 @@ def test_a_return_with_a_clear_route_as_short_is_no_chain():
     assert len(chained) == 1 and "t reaches it through u" in chained[0].message
     both = rule_stars(AuditContext(load_text(head + body + clear, "tie.gplan")))
     assert not [f for f in both if f.code == "GC103"]
+
+
+@pytest.mark.xfail(
+    strict=True,
+    reason="found by the 1,000-plan campaign (and at the session's first commit too): the two "
+    "mirrored channels' hum totals are equal, but each channel's loops come from a different "
+    "cycle basis, so the share named per loop differs; a canonical basis (by geometry or a "
+    "name-free key) is the fix, left for the planners",
+)
+def test_a_mirrored_placement_names_the_same_loops_in_both_channels():
+    from pathlib import Path
+
+    text = (Path(__file__).parent / "plans" / "mirror-basis" / "mirrored.gplan").read_text()
+    result = analyze(load_text(text, "mirrored.gplan"))
+    left = _channel_figures(result, "left")
+    assert not _same(_channel_figures(result, "right", _swap), left)
