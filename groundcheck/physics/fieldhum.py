@@ -181,7 +181,7 @@ def _loop_rows(b, merged, model, spectrum) -> None:
                 "loop": li + 1,
                 "members": list(info.loop.nodes),
                 "closed_by": info.closed_by,
-                "area_mm2": None if info.area is None else round(info.area * 1e6, 2),
+                "area_mm2": None if info.area is None else info.area * 1e6,
                 "sources": {},
             },
         )
