@@ -399,3 +399,14 @@ def test_a_fuse_written_as_it_is_marked_is_told_how_to_write_it(marking, hint):
         plan(f'plan "t"\nmains 230 V 50 Hz, fuse {marking}\n' + PE_PLAN, header=False)
     assert "is a fuse's marking" in str(e.value) and hint in str(e.value)
     assert ":2:25:" in str(e.value)
+
+
+def test_a_mistake_on_the_mains_line_is_said_once():
+    # an outside reviewer: after any error on the mains line a second error said 'undefined point
+    # mains.pe (declare the supply with mains ...)', a statement he had written
+    from groundcheck import PlanErrors
+
+    with pytest.raises(PlanErrors) as e:
+        plan('plan "t"\nmains 230 V 50 Hz, fuse 1 A slw\n' + PE_PLAN, header=False)
+    said = str(e.value)
+    assert "unknown fuse type" in said and "mains.pe" not in said

@@ -6,6 +6,7 @@ however many placements repeat it."""
 from __future__ import annotations
 
 from ..core.errors import LimitError, PlanError
+from ..model.records import PE_POINT
 from .assemble import HEADER_KEYWORDS
 from .limits import LIMITS
 from .phrases import Statement
@@ -124,6 +125,8 @@ class Expander:
         if st.broken:
             if st.label:
                 self.broken.add(prefix + st.label)
+            if st.keyword == "mains":  # its inlet's terminal: nothing else complains of it
+                self.broken.add(prefix + PE_POINT)
             return
         if prefix and st.keyword in HEADER_KEYWORDS:
             raise PlanError(
@@ -160,5 +163,7 @@ class Expander:
             self.errors.append(e)
         if st.label:
             self.broken.add(prefix + st.label)
+        if st.keyword == "mains":  # its inlet's terminal: nothing else complains of it
+            self.broken.add(prefix + PE_POINT)
         if isinstance(e, LimitError):
             self.stopped = True
