@@ -31,7 +31,7 @@ from .rules.context import AuditContext
 from .rules.electrical import Solved
 from .rules.registry import functions, hum_codes
 from .rules.acceptance import apply_acceptances
-from .core.errors import Location, PlanError, PlanErrors
+from .core.errors import Location, PlanError, PlanErrors, UnknownChoice
 from .rules.catalogue import RULES
 from .rules.results import Options, Result
 from .rules.selection import NotChecked, UnknownRule, codes_of, rule_codes
@@ -66,7 +66,7 @@ def netlist_of(plan: Plan, frequency: float, group: str | None = None, channel: 
     Parameters:
         plan: the plan.
         frequency: Hz (0: DC).
-        group: one source group, or None for all (an unknown one: a ValueError naming them).
+        group: one source group, or None for all (an unknown one: an UnknownChoice naming them).
         channel: the channel whose directions and stages (None: the first).
     Returns:
         (circuit, NetlistSources).
@@ -85,10 +85,12 @@ def netlist_of(plan: Plan, frequency: float, group: str | None = None, channel: 
             plan, circuit, ctx.loops, _simulated(plan), HumOptions(top), (), series_runs(ctx)
         )
         if channel is not None and channel not in budget.channels:
-            raise ValueError(f"no channel {channel!r} (the plan's: {', '.join(budget.channels)})")
+            raise UnknownChoice(
+                f"no channel {channel!r} (the plan's: {', '.join(budget.channels)})"
+            )
         groups = source_groups(budget, frequency)
         if group is not None and group not in groups:
-            raise ValueError(
+            raise UnknownChoice(
                 f"no source {group!r} with a line at {frequency:g} Hz (there: "
                 f"{', '.join(groups) or 'none'})"
             )

@@ -149,7 +149,6 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
         length = math.dist(other.pos, where) * (1 + ROUTE_ALLOWANCE)
         changes.append((old_len, f"{max(length, 10e-3) * 1e3:.0f} mm"))
     edit = ctx.src.replace(st, _written_protective(ctx, st, changes))  # its comment stays
-    x, y = where[0] * 1e3, where[1] * 1e3
     lx, ly = (v * 1e3 for v in device_frame(ctx, pe.name, where))  # as its own plan writes it
     extra = (
         f"point {local(new_pt)}: stud, at {lx:.0f},{ly:.0f} on {local(part)}",

@@ -4,7 +4,7 @@ by the format registry from the loaded plan."""
 from __future__ import annotations
 
 from ..renderers.formats import NETLIST_FORMATS
-from .common import UsageError, load_plan, quantity_type, write_output
+from .common import load_plan, quantity_type, write_output
 from .drawing import written_epilog
 from .registry import FORMAT, FormatOption, command, opt
 
@@ -63,11 +63,7 @@ __all__ = ["cmd_export"]
 )
 def cmd_export(args) -> int:
     plan = load_plan(args.plan)
-    try:
-        text = NETLIST_FORMATS[args.format].render(
-            plan, args.frequency, args.source, args.channel
-        )
-    except ValueError as e:
-        raise UsageError(str(e)) from None
+    # an unknown --source or --channel is an UnknownChoice: one line, exit 2, like any other
+    text = NETLIST_FORMATS[args.format].render(plan, args.frequency, args.source, args.channel)
     write_output(text, args.output, [args.plan])
     return 0

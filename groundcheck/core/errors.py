@@ -7,6 +7,7 @@ from typing import NamedTuple
 __all__ = [
     "Location",
     "GroundcheckError",
+    "UnknownChoice",
     "PlanError",
     "PlanErrors",
     "LimitError",
@@ -31,6 +32,11 @@ class Location(NamedTuple):
 
 class GroundcheckError(Exception):
     """Root of every error groundcheck raises on purpose."""
+
+
+class UnknownChoice(GroundcheckError):
+    """A name given to a command (a channel, a source group) that the plan does not have; the
+    message lists the ones it has."""
 
 
 class PlanError(GroundcheckError):

@@ -28,6 +28,12 @@ DEFAULT_CORD = (2.0, 0.75e-6)
 CABLE_OPERATING_TEMPERATURE = 70.0
 
 
+#: a device's earth path to the main earthing terminal over this is reported (GC215), Ω: a final
+#: circuit's protective conductor of 40 m of 1.5 mm² (about 0.5 Ω) plus a cord — a broken or
+#: corroded path, not a long one (common practice)
+DEVICE_EARTH_LIMIT = 1.0
+
+
 @dataclass(frozen=True)
 class Mains:
     """The mains supply: nominal voltage U0 (V rms), frequency (Hz), earthing system, protection,
@@ -70,6 +76,15 @@ class Mains:
     #: A, prospective line-to-neutral short-circuit current at the origin
     short_circuit: float | None = None
     location: Location = field(default=Location("<plan>"), compare=False)
+
+    @property
+    def inlet_device(self) -> tuple[float | None, str]:
+        """(rating A, kind) of the device that clears a fault at the inlet: the supply circuit's
+        breaker when the plan states one beside the equipment's fuse (the fault is ahead of the
+        fuse), else the one device stated (rating None when none is)."""
+        if self.breaker is not None:
+            return self.breaker, self.breaker_kind
+        return self.fuse, self.fuse_kind
 
     @property
     def cord_section(self) -> float:

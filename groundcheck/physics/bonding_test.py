@@ -146,7 +146,7 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
     tests = [BondTest("short", amps, secs, basis)]
     # the long test's rating is the protective device's ahead of the equipment: the supply
     # circuit's breaker when the plan states it beside the fuse, else the one device stated
-    rating = m.breaker if m.breaker is not None else m.fuse
+    rating, _ = m.inlet_device
     if rating is not None:
         mult, dur = LONG_TEST
         tests.append(
@@ -241,7 +241,7 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
                 )
     rating, volts = DROP_LIMIT
     m = plan.mains
-    ahead = m.breaker if m.breaker is not None else m.fuse
+    ahead, _ = m.inlet_device
     big = ahead is not None and ahead > rating
     parts = tuple(
         PartDrop(p, t.name, t.current * r, volts if big and t.name == "long" else None)

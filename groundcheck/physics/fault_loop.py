@@ -114,13 +114,12 @@ def _device_resistance(m) -> float:
     """The protective device's resistance in the fault loop, Ω: the supply circuit's breaker's
     when the plan states one beside the equipment's fuse (the fault at the inlet, ahead of the
     fuse), else the one device's (a stated fuse resistance, or the rough default), else 0."""
-    if m.breaker is not None:
-        return fuse_cold_resistance(m.breaker_kind, m.breaker)
-    if m.fuse is None:
+    rating, kind = m.inlet_device
+    if rating is None:
         return 0.0
-    if m.fuse_resistance is not None:
+    if m.breaker is None and m.fuse_resistance is not None:  # the stated one is the fuse's
         return m.fuse_resistance
-    return fuse_cold_resistance(m.fuse_kind, m.fuse)
+    return fuse_cold_resistance(kind, rating)
 
 
 def supply_figures(plan: Plan) -> Supply:
@@ -148,7 +147,8 @@ def supply_figures(plan: Plan) -> Supply:
         else None
     )
     c_line, c_cpc, c_cord = _cables(m, cold_t)
-    cold_outside, cold_return = ze + fuse_r + c_line + c_cord, c_cord + c_cpc
+    linked = ze + c_line + c_cord  # the device replaced by a link (the prospective currents)
+    cold_outside, cold_return = linked + fuse_r, c_cord + c_cpc
     zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
     # prospective currents: the device replaced by a link of negligible impedance (IEC 60127-1,
     # IEC 60269-1: what breaking capacities are rated against), its own resistance not in them
@@ -169,7 +169,7 @@ def supply_figures(plan: Plan) -> Supply:
         cap,
         hot_t,
         cold_t,
-        m.voltage / (cold_outside - fuse_r + cold_return),
+        m.voltage / (linked + cold_return),
         short,
         m.short_circuit is not None,
         cold_outside,

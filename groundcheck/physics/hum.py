@@ -392,4 +392,3 @@ class HumBudget:
                     part.crosstalk.append(
                         (s.channel, st.channel, sol.between(st.a, st.b)[si] * gains[k])
                     )
-

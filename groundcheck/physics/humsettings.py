@@ -80,5 +80,5 @@ def channel_listenings(plan, stages, channels) -> dict:
     for ch in channels:
         devices = {plan.index.device_of(s.name) for s in stages if s.channel == ch}
         dev = next(iter(devices)) if len(devices) == 1 else None
-        out[ch] = own.get(dev, plan.listening) if dev is not None else plan.listening
+        out[ch] = own.get(dev, plan.listening)
     return out

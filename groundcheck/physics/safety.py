@@ -184,7 +184,7 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
     options: list[tuple[Clearing, str]] = []
     # with the supply circuit's breaker stated beside the equipment's fuse, the fault is taken at
     # the inlet, ahead of the fuse: the breaker (or an RCD) clears it alone
-    rating, kind = (m.breaker, m.breaker_kind) if m.breaker is not None else (m.fuse, m.fuse_kind)
+    rating, kind = m.inlet_device
     if rating is not None:
         cl = device_clearing(kind, rating, current, m.frequency)
         if cl is not None:

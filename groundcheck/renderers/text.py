@@ -16,6 +16,7 @@ from rich.text import Text
 
 from ..core.caution import CAUTION
 from ..core.errors import shown
+from ..model.supplies import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
 from ..rules.catalogue import RULES, SEVERITIES
 from ..rules.rule_families import PROTECTIVE_EARTH
@@ -110,7 +111,11 @@ def _earth_line(result: Result, console: Console) -> None:
             )
         )
     elif plan.mains is None and result.device_earths:
-        broken = [d for d in result.device_earths if d.resistance is None or d.resistance > 1.0]
+        broken = [
+            d
+            for d in result.device_earths
+            if d.resistance is None or d.resistance > DEVICE_EARTH_LIMIT
+        ]
         n = len(result.device_earths)
         paths = "1 device's earth path" if n == 1 else f"{n} devices' earth paths"
         own = (
@@ -129,7 +134,7 @@ def _earth_line(result: Result, console: Console) -> None:
         console.print(
             Text(
                 f"Protective earth: installation — {paths} to the main earthing terminal, "
-                f"{len(broken)} broken or over 1 Ω ({own}){see}",
+                f"{len(broken)} broken or over {DEVICE_EARTH_LIMIT:g} Ω ({own}){see}",
                 style="bold red" if broken or others else "green",
             )
         )

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from ..physics.protection import DEFAULT_ZE, TT_SOURCE_LOOP
+from ..physics.fault_loop import external_loop
 from ..physics.safety import TOUCH_LIMIT
 from ..model.records import Plan
 from .catalogue import Finding
@@ -43,29 +43,8 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
     m = s.plan.mains
     if s.safety is None or m is None or m.system != "TT" or not s.safety.parts:
         return []
-    r_a = s.safety.supply.electrode
     if m.rcd is not None:
-        u = r_a * m.rcd
-        if u > TOUCH_LIMIT:
-            return [
-                Finding(
-                    "GC220",
-                    "danger",
-                    f"TT supply: the earth electrode ({r_a:g} Ω) times the RCD's rated residual "
-                    f"current ({m.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a fault "
-                    "below the RCD's rating can leave the metal above the touch-voltage limit",
-                    m.location,
-                    ("mains",),
-                    {
-                        "electrode_ohm": r_a,
-                        "rcd_a": m.rcd,
-                        "touch_limit_v": TOUCH_LIMIT,
-                        "electrode_times_rcd_v": u,
-                    },
-                    _tt_fix(r_a, m.rcd),
-                )
-            ]
-        return []
+        return _electrode_over_rcd(s.safety.supply.electrode, m.rcd, m.location, "mains", "metal")
     if m.fuse is None:
         return []
     return [
@@ -84,6 +63,32 @@ def rule_tt_supply(s: Solved) -> list[Finding]:
     ]
 
 
+def _electrode_over_rcd(r_a: float, rcd: float, location, element: str, metal: str):
+    """GC220 when the electrode R_A times the RCD's IΔn is over 50 V (IEC 60364-4-41 411.5.3),
+    at the statement that states them; nothing otherwise."""
+    u = r_a * rcd
+    if u <= TOUCH_LIMIT:
+        return []
+    return [
+        Finding(
+            "GC220",
+            "danger",
+            f"TT supply: the earth electrode ({r_a:g} Ω) times the RCD's rated residual current "
+            f"({rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a fault below the RCD's "
+            f"rating can leave the {metal} above the touch-voltage limit",
+            location,
+            (element,),
+            {
+                "electrode_ohm": r_a,
+                "rcd_a": rcd,
+                "touch_limit_v": TOUCH_LIMIT,
+                "electrode_times_rcd_v": u,
+            },
+            _tt_fix(r_a, rcd),
+        )
+    ]
+
+
 def _electrode_in_tt(plan: Plan) -> list[Finding]:
     """GC220 at an installation's TT supply whose stated electrode times its RCD's rating is over
     50 V, when it feeds any class I device: the building's own breach, at its supply line (each
@@ -92,28 +97,9 @@ def _electrode_in_tt(plan: Plan) -> list[Finding]:
     class_i = [d for d in plan.devices if d.equipment_class == "I" and d.plugged is not None]
     if supply.system != "TT" or supply.rcd is None or supply.electrode is None or not class_i:
         return []
-    u = supply.electrode * supply.rcd
-    if u <= TOUCH_LIMIT:
-        return []
-    return [
-        Finding(
-            "GC220",
-            "danger",
-            f"TT supply: the earth electrode ({supply.electrode:g} Ω) times the RCD's rated "
-            f"residual current ({supply.rcd * 1e3:g} mA) is {u:.3g} V, over {TOUCH_LIMIT:g} V: a "
-            "fault below the RCD's rating can leave the metal of every class I device above the "
-            "touch-voltage limit",
-            supply.location,
-            ("supply",),
-            {
-                "electrode_ohm": supply.electrode,
-                "rcd_a": supply.rcd,
-                "touch_limit_v": TOUCH_LIMIT,
-                "electrode_times_rcd_v": u,
-            },
-            _tt_fix(supply.electrode, supply.rcd),
-        )
-    ]
+    return _electrode_over_rcd(
+        supply.electrode, supply.rcd, supply.location, "supply", "metal of every class I device"
+    )
 
 
 def _unchecked_in_tt(plan: Plan) -> list[Finding]:
@@ -129,10 +115,12 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     )
     if supply.system != "TT" or supply.rcd is not None or not simple:
         return []
-    r_a = supply.electrode if supply.electrode is not None else DEFAULT_ZE["TT"]
+    # the external loop as a device's fault loop takes it (the stated electrode and the supply's
+    # own part, or the TT default loop); at most its current: the cables, cord and device only
+    # add to the loop (IEC 60364-4-41 411.5)
+    loop, r_a = external_loop(supply.for_device(None))
     electrode = f"{r_a:g} Ω" if supply.electrode is not None else f"not stated: {r_a:g} Ω taken"
-    # at most: the cables, cord and device only add to the loop (IEC 60364-4-41 411.5)
-    most = supply.voltage / (r_a + TT_SOURCE_LOOP)
+    most = supply.voltage / loop
     figures = {"electrode_ohm": r_a, "fault_current_max_a": most}
     fix = (
         "protect the installation's outlets with an RCD (30 mA for socket outlets), as TT "
@@ -141,7 +129,7 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     has = "has" if len(simple) == 1 else "have"
     who = f"{', '.join(simple)} {has} no plan of its own to check"
     if most < INSTANT_TRIP_FLOOR:
-        touch = supply.voltage * r_a / (r_a + TT_SOURCE_LOOP)
+        touch = supply.voltage * r_a / loop
         return [
             Finding(
                 "GC221",

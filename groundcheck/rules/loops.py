@@ -8,9 +8,9 @@ A pure function of an :class:`~groundcheck.rules.context.AuditContext`, register
 from __future__ import annotations
 
 from ..model.kinds import is_fastening, joins_devices, shield_like
+from ..model.records import SOCKET_KINDS
 from ..network.graph import Loop
 from .catalogue import Finding
-from ..model.records import SOCKET_KINDS
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext
 from .registry import rule
 from .repairs import only_return_end
@@ -90,10 +90,12 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
         ), ()
     if opener is not None and info.closed_by == "shield-both-ends":
         if joins_devices(opener) and not opener.balanced:  # its shield is the link's return
-            return _own_return_fix(info, opener, f"the unbalanced link {opener.name}", ctx)
+            keep = f"keep both ends of {opener.name}: its shield is the signal's return"
+            return _own_return_fix(info, keep, ctx)
         alone = only_return_end(ctx, opener) if shield_like(opener) else None
         if alone is not None:
-            return _own_return_fix(info, opener, alone, ctx)
+            keep = f"keep both ends of {opener.name}: it is the only return of {alone}"
+            return _own_return_fix(info, keep, ctx)
     if opener is not None and is_fastening(opener, ctx.metals):
         where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
         actions = (("insulate", info.open_at),)
@@ -111,13 +113,10 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
     }.get(info.closed_by, ""), actions
 
 
-def _own_return_fix(info, shield, alone: str, ctx: AuditContext) -> tuple[str, tuple]:
-    """A loop through a shield that is a socket's only return: the shield keeps both ends (opened,
-    the socket would float and the signal lose its return: full-scale buzz); the loop opens at a
-    socket fastened to the metal on it, insulated, else it is kept small."""
-    keep = f"keep both ends of {shield.name}: it is the only return of {alone}"
-    if alone.startswith("the unbalanced link"):
-        keep = f"keep both ends of {shield.name}: its shield is the signal's return"
+def _own_return_fix(info, keep: str, ctx: AuditContext) -> tuple[str, tuple]:
+    """A loop through a shield that is a signal's only return: the shield keeps both ends
+    (``keep`` says why: opened, the signal would lose its return, full-scale buzz); the loop opens
+    at a socket fastened to the metal on it, insulated, else it is kept small."""
     for name in info.loop.edges:
         c = ctx.conductors.get(name)
         if c is None or not is_fastening(c, ctx.metals):

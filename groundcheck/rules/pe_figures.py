@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
+from ..model.supplies import DEVICE_EARTH_LIMIT
 from ..model.records import Plan
 from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
 from ..physics.safety import supply_figures
@@ -203,7 +204,7 @@ def plan_conductor(plan: Plan, name: str):
 
 def _device_text(m) -> str:
     parts = []
-    rating, kind = (m.breaker, m.breaker_kind) if m.breaker is not None else (m.fuse, m.fuse_kind)
+    rating, kind = m.inlet_device
     if rating is not None:
         what = " breaker" if kind.startswith("breaker") else " fuse"
         parts.append(f"{rating:g} A {kind.replace('breaker-', 'type ') + what}")
@@ -294,10 +295,6 @@ def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
     return out
 
 
-#: a device's earth path to the main earthing terminal over this is reported, Ω: a final circuit's
-#: protective conductor of 40 m of 1.5 mm² (about 0.5 Ω) plus a cord — a broken or corroded path,
-#: not a long one (common practice)
-DEVICE_EARTH_LIMIT = 1.0
 
 
 @rule("GC215", needs="solve")

@@ -22,11 +22,10 @@ IEC 60228 (conductor resistance).
 
 from __future__ import annotations
 
-from dataclasses import replace
-from typing import Callable
-
 import math
 from collections import OrderedDict
+from dataclasses import replace
+from typing import Callable
 
 import networkx as nx
 
@@ -39,6 +38,12 @@ from .catalogue import Finding, protective_earth_rule, severity_rank
 from .results import Options, Result
 
 __all__ = ["placed_supply_findings"]
+
+#: a device's own plan analysed for the installation, kept by the plan's content: the advisor
+#: re-analyses the installation for every candidate, most of which leave the device's plan alone
+_ANALYSED: OrderedDict = OrderedDict()
+_ANALYSED_MAX = 16
+
 
 
 def placed_supply_findings(
@@ -92,12 +97,6 @@ def placed_supply_findings(
         if route is not None and worst.get(key) is not None:
             _route_survival(plan, name, route, worst[key], needs)
     return out + installation_survival(plan, needs)
-
-
-#: a device's own plan analysed for the installation, kept by the plan's content: the advisor
-#: re-analyses the installation for every candidate, most of which leave the device's plan alone
-_ANALYSED: OrderedDict = OrderedDict()
-_ANALYSED_MAX = 16
 
 
 def _reported(there, alone) -> list[tuple[Finding, bool]]:

@@ -10,13 +10,12 @@ from __future__ import annotations
 import math
 
 from ..model.kinds import bonds_metal, PROTECTIVE, is_fastening, joins_devices
-from ..model.records import PE_POINT
+from ..model.records import SOCKET_KINDS
 from ..network.graph import part_labels
 from .catalogue import Finding
-from ..model.records import SOCKET_KINDS
 from .context import AuditContext
-from .pe_places import pe_point
 from .graph_search import bfs
+from .pe_places import pe_point
 from .floating import floating_fix as _floating_fix
 from .registry import rule
 
