@@ -71,6 +71,27 @@ def test_real_render_to_svg(renderer, tmp_path):
     assert ("WebAssembly" in how) == (renderer == "wasm")
 
 
+def test_the_report_draws_both_views_with_the_webassembly_renderer_without_aborting():
+    # the report draws its two views side by side in threads; two threads inside the WebAssembly
+    # runtime at once aborted the whole process (found when the system Graphviz was missing).
+    # Run in a child process, so that an abort is a failure here, not a lost test worker.
+    if "wasm" not in available_renderers():
+        pytest.skip("WebAssembly Graphviz renderer not available here")
+    code = (
+        "from groundcheck import load\n"
+        "from groundcheck.analysis import analyze\n"
+        "from groundcheck.renderers.formats import both_views\n"
+        f"r = analyze(load({str(EXAMPLES[1])!r}))\n"
+        "for _ in range(3):\n"
+        "    views, problems = both_views(r, 'wasm')\n"
+        "    assert not problems and all(v is not None for v in views), problems\n"
+    )
+    import sys
+
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, timeout=300)
+    assert proc.returncode == 0, proc.stderr.decode(errors="replace")[-2000:]
+
+
 def test_draw_command(cli, tmp_path):
     out = tmp_path / "m.svg"
     code, _, err = cli("draw", str(EXAMPLES[1]), "-o", str(out))

