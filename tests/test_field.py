@@ -349,7 +349,7 @@ GC = "guitar-combo-reverb/plan.gplan"
 
 
 def test_guitar_combo_finds_the_protective_earth_under_the_transformer_bolt():
-    assert _finds(GC, "GC202", "pe_lead", "ptx_bolt", worst="fault")
+    assert _finds(GC, "GC202", "pe_lead", "ptx_bolt", worst="danger")
 
 
 def test_guitar_combo_first_fix_gives_the_protective_earth_a_stud_of_its_own():

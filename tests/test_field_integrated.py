@@ -56,8 +56,12 @@ def test_protective_figures_as_worked_by_hand(checked):
 def test_the_dangers_and_the_earth_stud_come_before_the_hum(advised):
     _, _, evs = advised
     useful = [e.candidate for e in evs if not e.rejected]
-    assert (useful[0].action, useful[0].reason) == ("bond", "GC206") or "bottom" in useful[0].title
-    assert (useful[1].action, useful[1].element) == ("own-stud", "pe_lead")
+    # both are dangers (the bottom plate's touch voltage; the earth under the transformer's bolt,
+    # which the verdict rates a danger too): either may come first, both before any hum fix
+    first_two = {(c.action, c.reason) for c in useful[:2]}
+    assert ("own-stud", "GC202") in first_two and any(
+        c.reason == "GC206" or "bottom" in c.title for c in useful[:2]
+    ), [c.title for c in useful[:3]]
 
 
 def test_the_bridge_negative_goes_straight_to_the_reservoir(advised):

@@ -113,6 +113,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC101": {"warning", "note"},
         "GC102": {"fault", "note"},
         "GC106": {"warning", "fault"},
+        "GC202": {"fault", "danger"},
         "GC206": {"danger", "warning"},
         "GC208": {"danger", "note"},
         "GC211": {"danger", "warning"},

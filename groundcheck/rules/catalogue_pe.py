@@ -33,12 +33,15 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "fault",
         "The protective conductor lands on a fastener that also holds something else.",
         "Servicing the other part loosens the protective bond; a shared fastener also invites "
-        "signal returns onto the protective path.",
+        "signal returns onto the protective path. A danger when the stud also holds a part (a "
+        "transformer's foot, a bracket) and is the metal's only protective bond: taking the part "
+        "out for service unearths the chassis.",
         "Give the protective earth a stud of its own, with a lock washer and a second nut; "
         "nothing else under it.",
         "common practice; IEC 60335-1 cl. 28 (protective connections not used to fix other "
         "parts), from memory",
         actions=("own-stud",),
+        variants=("fault", "danger"),
     ),
     entry(
         "GC203",

@@ -1,8 +1,16 @@
 """GC202: the protective conductor from the inlet lands on a fastener that holds something else —
 another conductor, or a part its own fastening clamps (a stud on the chassis through a
-transformer's foot)."""
+transformer's foot).
+
+A fault when the stud also takes other wires; a danger when it also holds a part (a transformer's
+foot, a bracket) and nothing else of the protective route earths the metal once that stud is
+loosened: whoever takes the part out for service unearths the chassis without touching an earth
+wire (common practice; product-safety standards forbid a protective connection that also fixes
+another part — IEC 60335-1 cl. 28, IEC 62368-1, from memory)."""
 
 from __future__ import annotations
+
+import networkx as nx
 
 from ..model.kinds import is_fastening
 from ..model.records import PE_POINT
@@ -38,15 +46,21 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
             holds = [kk for kk in others if kk not in fastenings[:1]]
             holds += _clamped_part(ctx, v, fastenings[:1])
             if holds:
+                parts = _parts_held(ctx, v, holds, fastenings[:1])
+                danger = bool(parts) and not _earthed_without(ctx, v)
+                why = (
+                    f"servicing {' or '.join(parts)} undoes the metal's only protective bond"
+                    if danger
+                    else "servicing them loosens the earth"
+                )
                 out.append(
                     Finding(
                         "GC202",
-                        "fault",
-                        f"the protective earth lands on {v}, {_held(ctx, v, holds)}: "
-                        "servicing them loosens the earth",
+                        "danger" if danger else "fault",
+                        f"the protective earth lands on {v}, {_held(ctx, v, holds)}: {why}",
                         c.location,
                         (c.name, v, *sorted(holds)),
-                        {"other_items": len(holds)},
+                        {"other_items": len(holds), "holds_part": danger},
                         "give the protective earth a stud of its own, with nothing else on it "
                         f"({', '.join(sorted(holds))} stay on the fastening they share now)",
                     )
@@ -81,3 +95,35 @@ def _clamped_part(ctx: AuditContext, stud: str, own: list) -> list[str]:
     c = ctx.conductors[own[0]]
     part = c.b if c.a == stud else c.a
     return [part] if part in ctx.metals and part != point.on else []
+
+
+def _parts_held(ctx: AuditContext, stud: str, holds: list[str], own: list[str]) -> list[str]:
+    """The metal parts whose servicing undoes a protective stud: a part its fastening clamps (with
+    the part the stud sits on: the one fastening holds both), or a part another fastening bolts on
+    through the stud (a transformer's foot)."""
+    point = ctx.plan.point(stud)
+    base = {point.on} if point is not None and point.on else set()
+    for k in own:
+        c = ctx.conductors[k]
+        base.add(c.b if c.a == stud else c.a)
+    out = set()
+    for h in holds:
+        c = ctx.conductors.get(h)
+        if c is None:  # a clamped part: the fastening holds it and the part the stud is on
+            out |= {h, *(base & {point.on})}
+        elif is_fastening(c, ctx.metals):
+            out |= {c.b if c.a == stud else c.a} - base
+    return sorted(out)
+
+
+def _earthed_without(ctx: AuditContext, stud: str) -> bool:
+    """Whether the protective route still reaches a metal part from the earth terminal with
+    ``stud`` taken away (a second protective bond of its own keeps the metal earthed)."""
+    G = nx.Graph()
+    for u, w, k in ctx.G.edges(keys=True):
+        if k in ctx.route.keep and stud not in (u, w):
+            G.add_edge(u, w)
+    if PE_POINT not in G:
+        return False
+    reach = nx.node_connected_component(G, PE_POINT)
+    return bool(reach & ctx.metals)
