@@ -477,3 +477,36 @@ def test_a_stage_at_the_far_end_of_a_lead_keeps_its_reference_and_an_inferred_on
     assert any(
         "stage v reads its input from sock, the socket wired to lug" in n for n in r.hum.notes
     )
+
+
+# GC202's two severities: a protective stud that also holds a part (a transformer's foot bolted
+# through it) is a danger while it is the deck's only protective bond — taking the transformer out
+# unearths the deck (common practice; IEC 60335-1 cl. 28, from memory); with a second protective
+# bond of its own, or when the stud only takes another wire, it is a fault
+TRANSFORMER_FOOT = BASE + (
+    "metal tx: steel 1 mm, 80 x 60 mm, at 100,120\n"
+    "bolt tx_foot: tx to pe_stud\n"
+)
+
+
+def _gc202(text):
+    return [f.severity for f in audit(plan(text))[0] if f.code == "GC202"]
+
+
+def test_a_protective_stud_through_a_transformers_foot_is_a_danger():
+    assert _gc202(TRANSFORMER_FOOT) == ["danger"]
+
+
+def test_a_second_protective_bond_makes_the_shared_stud_a_fault():
+    second = (
+        "point pe_stud2: stud, at 30,10 on deck\n"
+        "wire pe_lead2: mains.pe to pe_stud2, 60 mm, 1.0 mm2, protective\n"
+        "bolt pe_bolt2: pe_stud2 to deck\n"
+    )
+    assert _gc202(TRANSFORMER_FOOT + second) == ["fault"]
+
+
+def test_a_protective_stud_that_only_takes_another_wire_is_a_fault():
+    assert _gc202(BASE.replace("wire bond: star to gnd", "wire bond: star to pe_stud")) == [
+        "fault"
+    ]
