@@ -26,6 +26,7 @@ from .physics.safety import protective_figures
 from .physics.sweep import run_tasks
 from .physics.workload import check_devices, check_work, same_figures
 from .rules.placed_supply import placed_supply_findings
+from .rules.simple_disconnection import simple_device_disconnection
 from .rules import families  # noqa: F401 - every family of rules registers itself
 from .rules.context import AuditContext
 from .rules.electrical import Solved
@@ -151,6 +152,7 @@ def _analyze(plan: Plan, options: Options) -> Result:
         findings.extend(r.func(solved))
     faults: dict = {}
     findings.extend(placed_supply_findings(plan, options, analyze, faults))
+    findings.extend(simple_device_disconnection(plan, faults))
     if faults and result.device_earths:
         result.device_earths = tuple(
             replace(d, fault=faults.get(d.device)) for d in result.device_earths

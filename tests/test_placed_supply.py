@@ -236,3 +236,99 @@ def test_the_cord_the_installation_states_is_in_the_fault_loop(tmp_path):
     r = analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
     (f, *_) = [x for x in r.findings if x.code == "GC208" and x.message.startswith("head,")]
     assert f.severity == "danger" and 55.0 <= f.figures["fault_current_a"] <= 60.12
+
+
+# ---- the installation's breaker and loop impedance (supply …, breaker, loop-impedance) ----------
+
+BOUGHT = """plan "stage"
+supply 230 V 50 Hz, system TN-C-S, {supply}
+point met: earthing-terminal
+point wall: outlet
+point reel_out: outlet
+cable radial: met to wall, 20 m, 2.5 mm2, cores L-N-PE
+cable reel: wall to reel_out, 50 m, 1.0 mm2, cores round
+device keys: simple, plugged {outlet}, cord 2 m 0.75 mm2, signal-ground chassis
+"""
+
+
+def _bought(tmp_path, supply: str, outlet: str):
+    (tmp_path / "stage.gplan").write_text(BOUGHT.format(supply=supply, outlet=outlet))
+    r = analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
+    return [f for f in r.findings if f.code == "GC208"], r
+
+
+def test_a_bought_device_at_the_end_of_a_reel_is_not_disconnected_in_time(tmp_path):
+    # a keyboard amplifier with no plan of its own, at the end of the 50 m reel of 1 mm² flex: by
+    # hand, as for the head above (IEC 60228 maxima × 1.2 at 70 °C): Ze 0.35 Ω (stated) + radial
+    # 0.3557 + reel 2.34 + cord 0.1248 = 3.1705 Ω before the breaker's own resistance, so
+    # I ≤ 230 / 3.1705 = 72.54 A, under the 80 A (5 × In) that trips a 16 A type B breaker at once
+    # (IEC 60898-1): not cleared within 0.4 s (IEC 60364-4-41 Table 41.1, TN at 230 V)
+    found, r = _bought(tmp_path, "loop-impedance 0.35 ohm, breaker 16 A B", "reel_out")
+    (f,) = found
+    assert f.severity == "danger" and f.elements == ("keys",)
+    assert 68.0 <= f.figures["fault_current_a"] <= 72.545, f.figures
+    assert "radial, reel" in f.message and "16 A type B breaker" in f.message
+    assert f.location.line == 8  # the device's own line
+    # the device earth table carries the same fault
+    (row,) = [d for d in r.device_earths if d.device == "keys"]
+    assert row.fault.fault_current == pytest.approx(f.figures["fault_current_a"], rel=1e-12)
+    # at the wall: 0.35 + 0.3557 + 0.1248 = 0.8305 Ω, about 277 A, tripped at once
+    assert _bought(tmp_path, "loop-impedance 0.35 ohm, breaker 16 A B", "wall")[0] == []
+
+
+def test_the_supplys_loop_impedance_is_the_loop_a_bought_device_is_checked_on(tmp_path):
+    # at the wall with a stated Ze of 2.5 Ω: 2.5 + 0.3557 + 0.1248 = 2.98 Ω, I ≤ 77.2 A < 80 A: a
+    # danger; with 1.2 Ω: 1.68 Ω, I ≤ 136.9 A, tripped at once by the type B breaker
+    assert _bought(tmp_path, "loop-impedance 2.5 ohm, breaker 16 A B", "wall")[0]
+    assert not _bought(tmp_path, "loop-impedance 1.2 ohm, breaker 16 A B", "wall")[0]
+    # a 30 mA RCD clears any such fault within 0.3 s (IEC 61008-1 at IΔn; 40 ms at 5 IΔn)
+    assert not _bought(tmp_path, "loop-impedance 2.5 ohm, breaker 16 A B, rcd 30 mA", "wall")[0]
+
+
+def test_without_a_breaker_or_rcd_a_bought_devices_disconnection_is_not_judged(tmp_path):
+    assert _bought(tmp_path, "loop-impedance 2.5 ohm", "reel_out")[0] == []
+
+
+def test_the_buildings_breaker_replaces_the_one_a_devices_plan_assumed(tmp_path):
+    # the head's own plan assumes a 16 A type B breaker: 277 A at the wall trips it at once. The
+    # building has 32 A type C: 277 A is 8.7 × In, under the 10 × In at which type C trips at once
+    # (IEC 60898-1), so only its thermal release acts, in seconds: over 0.4 s, a danger
+    (tmp_path / "head.gplan").write_text(HEAD)
+    stage = STAGE.replace("system TN-C-S", "system TN-C-S, breaker 32 A C")
+    (tmp_path / "stage.gplan").write_text(stage.format(outlet="wall"))
+    r = analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
+    (f, *_) = [x for x in r.findings if x.code == "GC208" and x.message.startswith("head,")]
+    assert f.severity == "danger" and "32 A type C breaker" in f.message
+    assert 250.0 <= f.figures["fault_current_a"] <= 277.0, f.figures
+    assert not [x for x in _stage(tmp_path, "wall").findings if x.code == "GC208"]
+
+
+def test_a_tt_supplys_breaker_makes_the_bought_devices_disconnection_a_figure(tmp_path):
+    # TT, 200 Ω electrode, no RCD, a 16 A breaker stated: 230 / (200 + 1 + cables) < 1.15 A, which
+    # no breaker clears; the finding is GC208 at the device (its figures), not GC221's bound
+    (tmp_path / "studio.gplan").write_text(
+        SIMPLE_ROOM.format(supply="electrode 200 ohm, breaker 16 A B")
+    )
+    found = analyze(load(tmp_path / "studio.gplan"), Options(hum=False)).findings
+    (f,) = [x for x in found if x.code == "GC208"]
+    assert f.severity == "danger" and f.elements == ("mon",)
+    assert f.figures["fault_current_a"] < 230 / 201 and "too little" in f.message
+    assert not [x for x in found if x.code == "GC221"]
+
+
+@pytest.mark.parametrize(
+    "supply, says",
+    [
+        ("breaker 16 A B, breaker 20 A B", "'breaker' is given twice"),
+        ("fuse 2 A", "loop-impedance"),
+        ("breaker 16 A E", "breaker curve"),
+    ],
+)
+def test_the_supplys_new_attributes_are_read_with_clear_errors(tmp_path, supply, says):
+    from groundcheck.core.errors import PlanErrors
+
+    (tmp_path / "stage.gplan").write_text(BOUGHT.format(supply=supply, outlet="wall"))
+    with pytest.raises(PlanErrors) as e:
+        load(tmp_path / "stage.gplan")
+    (err,) = e.value.errors
+    assert says in str(err) and err.location.line == 2

@@ -32,7 +32,8 @@ from .reading import (
     need_label,
     unknown,
 )
-from .supply import current, heater, mains, rectifier, supply
+from .heaters import heater
+from .supply import current, mains, rectifier, supply
 from .transformer import transformer
 
 __all__ = ["BUILDERS", "KEYWORDS", "build", "builder_of", "MAX_PART_SIDE"]

@@ -1,5 +1,5 @@
-"""The supply statements: the mains supply and its protection, rectifiers, stated currents and
-heaters."""
+"""The supply statements: the mains supply and its protection, an installation's supply, rectifiers
+and stated currents (heaters: :mod:`.heaters`)."""
 
 from __future__ import annotations
 
@@ -9,13 +9,12 @@ from ..model.records import (
     CABLE_OPERATING_TEMPERATURE,
     SYSTEMS,
     Current,
-    Heater,
     Mains,
     Supply,
 )
 from .phrases import PLAUSIBLE, Reader, Statement, check_quantity
 from .quantities import fuse_marking
-from .reading import FUSE_KINDS, Refs, ends, first_phrase_ends, need_label, no_label, unknown
+from .reading import FUSE_KINDS, Refs, first_phrase_ends, need_label, no_label, unknown
 from .rectifiers import rectifier
 
 #: mains frequencies accepted, Hz: 50 and 60 Hz supplies, 16.7 Hz railway and 400 Hz aircraft
@@ -28,7 +27,6 @@ __all__ = [
     "supply",
     "rectifier",
     "current",
-    "heater",
     "MAINS_ATTRIBUTES",
     "MAINS_WORDS",
 ]
@@ -185,14 +183,7 @@ def _phrase_loc(stmt: Statement, word: str):
 
 def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
     word = r.word("an attribute")
-    said = kw.setdefault("_said", set())
-    if word in said:
-        raise PlanError(
-            f"{stmt.keyword}: '{word}' is given twice",
-            ph[0].loc,
-            "the second would replace the first without a word: give it once",
-        )
-    said.add(word)
+    _once(stmt, ph, kw, word)
     if word == "fuse":
         fuse_marking(r)
         kw["_fuse"] = r.rating(word, "fuse rating")
@@ -242,17 +233,42 @@ def supply(stmt: Statement):
 
     def attribute(r: Reader, ph, kw: dict) -> None:
         word = r.word("an attribute")
+        _once(stmt, ph, kw, word)
         if word == "system":
             kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
-        elif word in ("electrode", "rcd"):
+        elif word in ("electrode", "rcd", "loop-impedance"):
             field, what, kind = MAINS_ATTRIBUTES[word]
-            kw[field] = r.rating(word, what) if word in PLAUSIBLE else r.quantity(kind, what)
+            if word in PLAUSIBLE:
+                kw[field] = r.rating(word, what)
+            else:
+                kw[field] = r.quantity(kind, what, allow_zero=kind == "resistance")
+        elif word == "breaker":
+            kw["breaker"] = r.rating(word, "breaker rating")
+            kind = r.word("breaker curve (B, C or D)", ("B", "C", "D")) if not r.done else "B"
+            kw["breaker_kind"] = f"breaker-{kind}"
         else:
-            raise unknown(stmt, ph[0], ("230 V 50 Hz", "system", "electrode", "rcd"))
+            raise unknown(stmt, ph[0], SUPPLY_WORDS)
 
     kw = _supply_statement(stmt, attribute)
+    kw.pop("_said", None)
     _check_earth_electrode(stmt, kw)
     return Supply(location=stmt.loc, **kw), {}
+
+
+#: the attributes of an installation's supply
+SUPPLY_WORDS = ("230 V 50 Hz", "system", "electrode", "rcd", "loop-impedance", "breaker")
+
+
+def _once(stmt: Statement, ph, kw: dict, word: str) -> None:
+    """An attribute given twice is an error: the second would replace the first silently."""
+    said = kw.setdefault("_said", set())
+    if word in said:
+        raise PlanError(
+            f"{stmt.keyword}: '{word}' is given twice",
+            ph[0].loc,
+            "the second would replace the first without a word: give it once",
+        )
+    said.add(word)
 
 
 def current(stmt: Statement):
@@ -281,104 +297,3 @@ def current(stmt: Statement):
             "current needs its size", stmt.loc, "e.g. ', 20 mA 100 Hz' (no frequency means DC)"
         )
     return Current(name=name, a=a, b=b, parts=tuple(parts), location=stmt.loc, **kw), refs
-
-
-def heater(stmt: Statement):
-    """'heater NAME: [A to B,] 6.3 V, 2.4 A, ac, reference POINT, wiring X,Y X,Y ...'."""
-    name = need_label(stmt)
-    refs: Refs = {}
-    kw: dict = {}
-    phrases = stmt.phrases
-    if phrases and any(it.kind == "word" and it.value == "to" for it in phrases[0]):
-        kw["a"], kw["b"] = ends(stmt, Reader(phrases[0], stmt), refs)
-        phrases = phrases[1:]
-    for ph in phrases:
-        r = Reader(ph, stmt)
-        first = r.peek()
-        if first.kind == "qty":
-            _heater_size(r, first, kw)
-        elif first.kind == "word" and first.value in _HEATER_PHRASES:
-            _HEATER_PHRASES[first.value](r, first, kw, refs)
-        else:
-            raise unknown(stmt, first, (*_HEATER_PHRASES, "A to B", "2.4 A"))
-        r.finish()
-    if "current" not in kw:
-        raise PlanError("heater needs its current", stmt.loc, "e.g. ', 2.4 A'")
-    if kw.get("rectifier") and (kw.get("reference") or "a" in kw):
-        raise PlanError(
-            "a valve rectifier's filament winding sits at the HT: it has no reference and no "
-            "return in the ground system",
-            refs["rectifier"],
-            "write it 'floating' (or leave out the reference and 'A to B'); never ground it",
-        )
-    return Heater(name=name, location=stmt.loc, **kw), refs
-
-
-def _heater_size(r: Reader, first, kw: dict) -> None:
-    """The heater's voltage (read, for the reader of the plan) or its current."""
-    if first.qkind == "voltage":
-        r.quantity("voltage", "heater voltage")
-    else:
-        kw["current"] = r.quantity("current", "heater current")
-
-
-def _heater_kind(r: Reader, first, kw: dict, refs: Refs) -> None:
-    kw["ac"] = r.word() == "ac"
-
-
-def _heater_reference(r: Reader, first, kw: dict, refs: Refs) -> None:
-    r.word()
-    kw["reference"], refs["reference"] = r.name("the reference point")
-
-
-def _heater_floating(r: Reader, first, kw: dict, refs: Refs) -> None:
-    r.word()
-    kw["reference"] = None
-
-
-def _heater_wiring(r: Reader, first, kw: dict, refs: Refs) -> None:
-    """'wiring X,Y X,Y ...': the pair's centre line, from the winding to the filament."""
-    r.word()
-    pts = [r.coord()]
-    while not r.done:
-        pts.append(r.coord())
-    if len(pts) < 2:
-        raise PlanError(
-            "heater wiring needs at least two points",
-            first.loc,
-            "e.g. 'wiring 40,150 200,150'",
-        )
-    kw["route"] = tuple(pts)
-
-
-def _heater_geometry(r: Reader, first, kw: dict, refs: Refs) -> None:
-    """'spacing 3 mm' (between the pair's wires) or 'height 5 mm' (above the deck)."""
-    r.word()
-    kw["spacing" if first.value == "spacing" else "wiring_height"] = r.quantity(
-        "length", f"heater wiring {first.value}", allow_zero=first.value == "height"
-    )
-
-
-def _heater_twisted(r: Reader, first, kw: dict, refs: Refs) -> None:
-    r.word()
-    kw["twisted"] = True
-
-
-#: the heater's phrases that open with a word, and their readers
-def _heater_rectifier(r: Reader, first, kw: dict, refs: Refs) -> None:
-    """'rectifier NAME': the winding heats that valve rectifier's filament, which is its HT."""
-    r.word()
-    kw["rectifier"], refs["rectifier"] = r.name("the valve rectifier it heats")
-
-
-_HEATER_PHRASES = {
-    "rectifier": _heater_rectifier,
-    "ac": _heater_kind,
-    "dc": _heater_kind,
-    "reference": _heater_reference,
-    "floating": _heater_floating,
-    "wiring": _heater_wiring,
-    "spacing": _heater_geometry,
-    "height": _heater_geometry,
-    "twisted": _heater_twisted,
-}

@@ -105,11 +105,17 @@ class Supply:
     location: Location = field(default=Location("<plan>"), compare=False)
     electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
     rcd: float | None = None  # the RCD that protects its outlets, rated IΔn, A
+    #: the external earth-fault loop impedance Ze at the origin, Ω (TT: through the electrode)
+    loop_impedance: float | None = None
+    #: the breaker of the final circuits that feed its outlets: rating, A, and curve
+    breaker: float | None = None
+    breaker_kind: str = "breaker-B"
 
     def for_device(self, m: Mains | None) -> Mains:
         """A placed device's mains as the installation supplies it: the device's own statement
-        (its fuse, cord, circuit) on this supply's earthing system, with this supply's electrode
-        and RCD where it states them (the building's, whatever the device's plan assumed).
+        (its fuse, cord, circuit) on this supply's earthing system, with this supply's electrode,
+        RCD, loop impedance and breaker where it states them (the building's, whatever the
+        device's plan assumed).
 
         Parameters:
             m: the device's own mains statement, or None.
@@ -118,17 +124,31 @@ class Supply:
         """
         base = m if m is not None else Mains(self.voltage, self.frequency)
         electrode = self.electrode if self.electrode is not None else base.electrode
-        return replace(
+        if self.loop_impedance is not None:
+            loop = self.loop_impedance
+        elif self.system == base.system and self.electrode is None:
+            loop = base.loop_impedance
+        else:
+            loop = None
+        if electrode is not None and loop is not None and electrode > loop:
+            loop = None  # the device's own loop cannot hold the building's electrode
+        placed = replace(
             base,
             system=self.system,
             electrode=electrode if self.system == "TT" else None,
             rcd=self.rcd if self.rcd is not None else base.rcd,
-            loop_impedance=(
-                base.loop_impedance
-                if self.system == base.system and self.electrode is None
-                else None
-            ),
+            loop_impedance=loop,
         )
+        return self._with_breaker(placed)
+
+    def _with_breaker(self, m: Mains) -> Mains:
+        """The building's breaker in place of the one a device's plan assumed: beside the device's
+        own fuse it clears a fault at the inlet; alone (no fuse stated) it is the one device."""
+        if self.breaker is None:
+            return m
+        if m.breaker is not None or (m.fuse is not None and not m.fuse_kind.startswith("breaker")):
+            return replace(m, breaker=self.breaker, breaker_kind=self.breaker_kind)
+        return replace(m, fuse=self.breaker, fuse_kind=self.breaker_kind, breaker=None)
 
 
 @dataclass(frozen=True)

@@ -46,6 +46,7 @@ __all__ = [
     "STANDARD_PE_LIMIT",
     "TOUCH_LIMIT",
     "supply_figures",
+    "line_to_part",
 ]
 
 DEFAULT_PE_LIMIT = STANDARD_PE_LIMIT
@@ -288,6 +289,23 @@ def _stricter(stated: float | None, computed: float | None, assured: bool) -> fl
     if computed is None:
         return stated if assured else None
     return computed if stated is None else max(stated, computed)
+
+
+def line_to_part(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
+    """A line-to-part fault at a part whose protective path inside the equipment is ``r`` Ω, on
+    the plan's mains and the loop ``sup`` outside the equipment (:func:`supply_figures`).
+
+    Parameters:
+        plan: the plan (its ``mains`` and ambient temperature are read).
+        sup: the fault loop outside the equipment.
+        name: the part's name, kept in the figures.
+        r: the protective path's resistance inside the equipment, Ω.
+    Returns:
+        the fault current, touch voltage, clearing time and let-through I²t.
+    References:
+        IEC 60364-4-41 411.4 and 411.5 (the fault loop and its disconnection).
+    """
+    return _part_figures(plan, sup, name, r)
 
 
 def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:

@@ -119,14 +119,7 @@ def _earth_line(result: Result, console: Console) -> None:
         n = len(result.device_earths)
         paths = "1 device's earth path" if n == 1 else f"{n} devices' earth paths"
         own = (
-            f"each device with a plan of its own is checked on this {plan.supply.system} supply, "
-            "its fault loop through the wiring to where it is plugged in; a simple device's own "
-            "fuse is not known"
-            + (
-                " (GC221 says what the electrode lets through)"
-                if plan.supply.system == "TT"
-                else ""
-            )
+            _placed_words(plan.supply)
             if plan.supply is not None
             else "each device's own wiring is checked with its own plan"
         )
@@ -224,3 +217,18 @@ def text_report(result: Result, width: int | None = None, color: bool = False) -
     )
     print_report(result, console)
     return "\n".join(line.rstrip() for line in buf.getvalue().split("\n"))
+
+
+def _placed_words(supply) -> str:
+    """How an installation's devices are checked on its supply, in words."""
+    head = (
+        f"each device with a plan of its own is checked on this {supply.system} supply, its fault "
+        "loop through the wiring to where it is plugged in"
+    )
+    if supply.breaker is not None or supply.rcd is not None:
+        return head + ", and a simple class I device on the supply's breaker or RCD"
+    tail = " (GC221 says what the electrode lets through)" if supply.system == "TT" else ""
+    return (
+        head + "; a simple device's own fuse is not known: state the supply's breaker to check "
+        "it" + tail
+    )

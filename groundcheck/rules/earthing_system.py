@@ -105,7 +105,9 @@ def _electrode_in_tt(plan: Plan) -> list[Finding]:
 def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     """GC221 at a TT supply with no RCD stated when it feeds class I devices that have no plan of
     their own to check (simple devices): a fault in one is disconnected only if its own fuse opens
-    on the current the earth electrode lets through, which nothing here can tell."""
+    on the current the earth electrode lets through, which nothing here can tell. With the
+    supply's breaker stated each device's disconnection is checked instead (GC208,
+    :mod:`.simple_disconnection`)."""
     supply = plan.supply
     own = {name for name, p in plan.device_plans if p.mains is not None}
     simple = sorted(
@@ -113,7 +115,7 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
         for d in plan.devices
         if d.name not in own and d.equipment_class == "I" and d.plugged is not None
     )
-    if supply.system != "TT" or supply.rcd is not None or not simple:
+    if supply.system != "TT" or supply.rcd is not None or supply.breaker is not None or not simple:
         return []
     # the external loop as a device's fault loop takes it (the stated electrode and the supply's
     # own part, or the TT default loop); at most its current: the cables, cord and device only

@@ -16,6 +16,7 @@ from ..model.records import Plan
 from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
 from ..physics.safety import supply_figures
 from .catalogue import Finding
+from .disconnection import device_text, disconnection, no_clearing_device
 from .registry import rule
 
 if TYPE_CHECKING:
@@ -53,8 +54,8 @@ def rule_protective_figures(s: Solved) -> list[Finding]:
     out = []
     for p in safety.parts:
         out.extend(_path_resistance(plan, safety, p))
-        out.extend(_disconnection(plan, safety, p))
-    out.extend(_no_clearing_device(plan, safety))
+        out.extend(disconnection(plan, safety, p))
+    out.extend(no_clearing_device(plan, safety))
     out.extend(_breaking(plan, safety.supply))
     out.extend(_stated_contradictions(plan, safety))
     out.extend(_survival(plan, safety))
@@ -96,24 +97,6 @@ def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
                 {**figs, "standard_limit_mohm": STANDARD_PE_LIMIT * 1e3},
                 "shorten or thicken the protective conductor; clean and tighten the "
                 "fastenings on its path",
-            )
-        ]
-    return []
-
-
-def _no_clearing_device(plan: Plan, safety: SafetyResult) -> list[Finding]:
-    """GC208 (a note): no fuse, breaker or RCD stated, so disconnection is not checked."""
-    m = plan.mains
-    if m.fuse is None and m.clear_time is None and m.rcd is None and safety.parts:
-        return [
-            Finding(
-                "GC208",
-                "note",
-                "no fuse, breaker or RCD in the mains statement: disconnection not checked",
-                m.location,
-                ("mains",),
-                {},
-                "add e.g. ', fuse 2 A slow' to the mains statement",
             )
         ]
     return []
@@ -202,66 +185,6 @@ def plan_conductor(plan: Plan, name: str):
     return plan.index.conductors.get(name)
 
 
-def _device_text(m) -> str:
-    parts = []
-    rating, kind = m.inlet_device
-    if rating is not None:
-        what = " breaker" if kind.startswith("breaker") else " fuse"
-        parts.append(f"{rating:g} A {kind.replace('breaker-', 'type ') + what}")
-    if m.rcd is not None:
-        parts.append(f"{m.rcd * 1e3:g} mA RCD")
-    return " and ".join(parts) or "stated clearing"
-
-
-def _disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
-    """GC208: the protective device does not disconnect within IEC 60364-4-41's maximum time."""
-    m, sup = plan.mains, safety.supply
-    if m.fuse is None and m.clear_time is None and m.rcd is None:
-        return []
-    part = plan.metal(p.part)
-    limit = sup.max_time
-    figs = {
-        "fault_current_a": p.fault_current,
-        "touch_voltage_v": p.touch_voltage,
-        "max_disconnection_s": limit,
-    }
-    system = "TT" if sup.system == "TT" else "TN"
-    where = f"{system} at {m.voltage:g} V"
-    if p.clear_time is None:
-        return [
-            Finding(
-                "GC208",
-                "danger",
-                f"a line-to-{p.part} fault draws {p.fault_current:.3g} A, too little to be sure "
-                f"of opening the {_device_text(m)}; {p.touch_voltage:.0f} V against earth would "
-                f"stay on {p.part}",
-                part.location,
-                (p.part,),
-                figs,
-                "add a 30 mA RCD to the supply, or lower the fault loop's resistance or the fuse "
-                "rating the equipment allows",
-            )
-        ]
-    if limit is not None and p.clear_time > limit:
-        stated = " (stated in plan)" if p.device == "stated" else ""
-        return [
-            Finding(
-                "GC208",
-                "danger",
-                f"a line-to-{p.part} fault ({p.fault_current:.3g} A) is cleared by the "
-                f"{_device_text(m)} in up to {p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows "
-                f"{limit:g} s ({where}), and {p.touch_voltage:.0f} V against earth is on {p.part} "
-                "meanwhile",
-                part.location,
-                (p.part,),
-                {**figs, "clear_time_s": p.clear_time},
-                "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the "
-                "fuse rating so that the fuse clears within the limit",
-            )
-        ]
-    return []
-
-
 def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
     """GC214: a clearing time or I²t stated in the plan that the fuse table contradicts by more
     than 2×."""
@@ -283,7 +206,7 @@ def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
                 Finding(
                     "GC214",
                     "warning",
-                    f"the plan states a {what} of {stated:.3g} {unit}; the {_device_text(m)}'s "
+                    f"the plan states a {what} of {stated:.3g} {unit}; the {device_text(m)}'s "
                     f"time-current limits give {tab} at {p.fault_current:.3g} A",
                     m.location,
                     ("mains",),

@@ -37,7 +37,7 @@ from .pe_figures import installation_survival
 from .catalogue import Finding, protective_earth_rule, severity_rank
 from .results import Options, Result
 
-__all__ = ["placed_supply_findings"]
+__all__ = ["placed_supply_findings", "as_placed", "building_graph"]
 
 #: a device's own plan analysed for the installation, kept by the plan's content: the advisor
 #: re-analyses the installation for every candidate, most of which leave the device's plan alone
@@ -74,12 +74,12 @@ def placed_supply_findings(
     # a device behind a transformer is supplied by its secondary, not by the building
     behind = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
     plugged = {d.name: d.plugged for d in plan.devices}
-    graph = _building(plan)
+    graph = building_graph(plan)
     for name, own in plan.device_plans:
         m = own.mains
         if m is None or m.equipment_class == "II" or plugged.get(name) in behind:
             continue
-        placed, route = _as_placed(plan, graph, name, m)
+        placed, route = as_placed(plan, graph, name, m)
         if id(own) not in alone:
             alone[id(own)] = _analysed(analyze, own, quick)
         key = (id(own), placed)
@@ -128,10 +128,22 @@ def _analysed(analyze, own: Plan, options: Options) -> Result:
     return hit
 
 
-def _as_placed(plan: Plan, graph: nx.Graph, name: str, m):
+def as_placed(plan: Plan, graph: nx.Graph, name: str, m):
     """A placed device's mains as the installation supplies it, and its route to the origin: the
-    supply's earthing system, electrode and RCD, the cables from its outlet in place of its own
-    circuit, and the cord the installation states for it (as its earth path has it)."""
+    supply's earthing system, electrode, RCD, loop impedance and breaker, the cables from its
+    outlet in place of its own circuit, and the cord the installation states for it (as its earth
+    path has it).
+
+    Parameters:
+        plan: the installation.
+        graph: its own protective wiring (:func:`building_graph`).
+        name: the device's name.
+        m: the device's own mains statement, or None (a device with no plan of its own).
+    Returns:
+        (the Mains it is checked with, its route or None).
+    References:
+        IEC 60364-4-41 411.4, 411.5 (the fault loop).
+    """
     device = plan.index.devices[name]
     placed = plan.supply.for_device(m)
     route = _route(plan, graph, device.plugged)
@@ -175,9 +187,17 @@ def _cable(c) -> bool:
     return kind(c.kind).carries_load
 
 
-def _building(plan: Plan) -> nx.Graph:
+def building_graph(plan: Plan) -> nx.Graph:
     """The installation's own protective wiring (cables and protective wires outside every
-    device), each edge weighted by its resistance per resistivity, L/A."""
+    device), each edge weighted by its resistance per resistivity, L/A.
+
+    Parameters:
+        plan: the installation.
+    Returns:
+        the graph, each edge with its ``conductor``.
+    References:
+        none (bookkeeping: the route's least resistance is found on it).
+    """
     device_of = plan.index.device_of
     g = nx.Graph()
     for c in plan.conductors:
