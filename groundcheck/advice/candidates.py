@@ -30,7 +30,7 @@ from .routing_changes import (
     shared_return_candidates,
     star_candidates,
 )
-from .supply_changes import high_breaking, socket_rcd, tt_electrode
+from .supply_changes import high_breaking, socket_rcd, tt_electrode, twist_heater
 
 __all__ = [
     "Candidate",
@@ -62,6 +62,7 @@ FINDING_GENERATORS = {
     "thicken": lambda ctx, f, add: add(thicker(ctx, f)),
     "bond": lambda ctx, f, add: add(bonding_wire(ctx, f)),
     "high-breaking": high_breaking,
+    "twist": twist_heater,
     "carried": carried_actions,
 }
 

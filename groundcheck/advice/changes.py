@@ -56,7 +56,7 @@ ROUTE_ALLOWANCE = 0.2
 #: elsewhere; give the protective earth its own stud; thicken a protective conductor; bond a part
 #: by a protective wire of its own; on the installation's side (a qualified electrician's work), an
 #: RCD on the supply circuit or a lower earth-electrode resistance; a fuse of a higher breaking
-#: capacity
+#: capacity; twist an AC heater pair
 ACTIONS = (
     "insulate",
     "remove",
@@ -74,6 +74,7 @@ ACTIONS = (
     "rcd",
     "electrode",
     "fuse",
+    "twist",
 )
 
 

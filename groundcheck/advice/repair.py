@@ -28,6 +28,7 @@ from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
 from .evaluation import ADDS_DANGER, HUM_FLOOR_DBV, Evaluation, evaluate
 from .fixes import NOT_TRIED
+from .merge import merge_into
 
 __all__ = [
     "Edit",
@@ -82,10 +83,14 @@ def suggest(
     if before is None:
         before = clock.timed(analyze, plan, options)
         clock.first = clock.spent.pop()
-    # answers to the most serious rules first (their catalogue severity), so a short budget tries
-    # them
+    # answers to the most serious findings first (the worst severity their rule found in this
+    # plan, else the catalogue's), so a short budget tries them
+    found: dict[str, int] = {}
+    for f in before.findings:
+        found[f.code] = min(found.get(f.code, 9), severity_rank(f.severity))
     cands = sorted(
-        candidates(plan, before, text), key=lambda c: severity_rank(RULES[c.reason].severity)
+        candidates(plan, before, text),
+        key=lambda c: found.get(c.reason, severity_rank(RULES[c.reason].severity)),
     )
     free_left = sum(1 for c in cands if _free(c))
     left, late, evs = len(cands) - free_left, False, []
@@ -142,6 +147,17 @@ def _overlaps(edits, more) -> bool:
     return any((e.file, n) in taken for e in more for n in range(e.line, (e.last or e.line) + 1))
 
 
+def _take_merged(chosen: list[Evaluation], before: list, after: list) -> None:
+    """The chosen changes whose edit a merge replaced carry the merged edit (each kept edit is one
+    chosen change's: the combined set's diff is the chosen changes' edits, none twice)."""
+    swapped = {id(a): b for a, b in zip(before, after) if a is not b}
+    if not swapped:
+        return
+    for ev in chosen:
+        edits = tuple(swapped.get(id(x), x) for x in ev.candidate.edits)
+        ev.candidate = dataclasses.replace(ev.candidate, edits=edits)
+
+
 def greedy(
     plan: Plan,
     text: str,
@@ -160,7 +176,9 @@ def greedy(
     :func:`evaluate`), until :data:`MAX_STEPS` are kept, nothing is left, or the ``budget``
     (seconds) or the ``clock`` runs out (a step is started only when the slowest analysis so far
     fits).  Candidates' edits all refer to the original text, so the kept ones are applied to it
-    together; overlapping ones are skipped.  ``progress(done, total)`` follows the steps tried."""
+    together; one that edits a statement a kept one edits is merged into it when they change
+    different words (:mod:`.merge`), and skipped when they conflict.  ``progress(done, total)``
+    follows the steps tried."""
     clock = clock or Clock.of(budget)
     if evs is None:
         before, evs = suggest(plan, text, options, root, resolved, before=before, clock=clock)
@@ -174,17 +192,25 @@ def greedy(
     for i, e in enumerate(useful):
         if len(chosen) >= MAX_STEPS or not current.findings or not clock.fits():
             break
-        if _overlaps(edits, e.candidate.edits):
-            continue
+        kept, own = edits, e.candidate.edits
+        if _overlaps(edits, own):
+            # a second change to a statement already changed (an RCD and a high-breaking fuse,
+            # both in the mains statement): merged into the kept edit when they touch different
+            # words of it, left out when they conflict
+            merged = merge_into(edits, own, text)
+            if merged is None:
+                continue
+            kept, own = merged
         # the candidate's own action and element, with the kept edits before its own
-        combined = dataclasses.replace(e.candidate, edits=tuple(edits) + e.candidate.edits)
+        combined = dataclasses.replace(e.candidate, edits=tuple(kept) + own)
         ev = clock.timed(evaluate, text, plan, current, combined, options, root, resolved)
         if progress is not None:
             progress(i + 1, i + 1 + clock.reachable(len(useful) - i - 1))
         if ev.rejected or ev.score <= 1e-9:
             continue
-        ev.candidate = e.candidate
+        _take_merged(chosen, edits, kept)
+        ev.candidate = dataclasses.replace(e.candidate, edits=own)
         chosen.append(ev)
-        edits.extend(e.candidate.edits)
+        edits = list(kept) + list(own)
         current = ev.result
     return chosen, current, apply_edits(text, edits)

@@ -17,6 +17,7 @@ import math
 
 from ..physics.safety import TOUCH_LIMIT
 from ..rules.catalogue import RULES
+from ..physics.heater_field import source_heater
 from .changes import Answer, Candidate, ChangeContext
 from .protective_changes import equipment_mains
 from .edits import Edit
@@ -207,5 +208,38 @@ def high_breaking(ctx: ChangeContext, f, add) -> None:
             (_set(ctx, st, "breaking", "high"),),
             action="fuse",
             element="mains",
+        )
+    )
+
+
+def twist_heater(ctx: ChangeContext, f, add) -> None:
+    """An AC heater pair run open (a field source, finding ``f`` its loop pickup, GC302): the pair
+    twisted along its run, the heater statement then saying ``twisted``; passed to ``add``.
+
+    Parameters:
+        ctx: the change context.
+        f: the finding answered (its second element is the field source).
+        add: takes a candidate.
+    Returns:
+        nothing (the candidate goes to ``add``).
+    References:
+        common practice: a twisted pair's field falls off within a few lay lengths
+        (docs/language.md, heater).
+    """
+    h = source_heater(ctx.plan.heaters, f.elements[1]) if len(f.elements) > 1 else None
+    if h is None or not h.ac or h.twisted or not h.route:
+        return
+    st = ctx.src.statement(h.location.line, h.location.file)
+    if st is None or h.location.file != ctx.plan.file:
+        return
+    add(
+        Candidate(
+            f"twist the heater pair {h.name} tightly along its whole run, from the winding to the "
+            "valve (its field then stays within a few twists of the pair); the heater statement "
+            "then says 'twisted'",
+            f.code,
+            (_appended(ctx, st, "twisted"),),
+            action="twist",
+            element=h.name,
         )
     )

@@ -25,6 +25,7 @@ import math
 import numpy as np
 
 __all__ = [
+    "source_heater",
     "pair_wires",
     "pair_circuit",
     "pair_path_flux",
@@ -172,6 +173,26 @@ def pair_geometry(heater) -> tuple[float, float]:
     )
 
 
+#: the suffix of an AC heater pair's field source: ``NAME.wiring``
+WIRING = ".wiring"
+
+
+def source_heater(heaters, source: str):
+    """The heater whose open pair is the field source named ``source`` (None for another source).
+
+    Parameters:
+        heaters: the plan's Heater records.
+        source: a field source's name, as the hum budget gives it.
+    Returns:
+        the Heater, or None.
+    References:
+        none (naming: :func:`pair_sources`).
+    """
+    if not source.endswith(WIRING):
+        return None
+    return next((h for h in heaters if h.name == source[: -len(WIRING)]), None)
+
+
 def pair_sources(heaters) -> list:
     """The AC heater pairs with a stated route that are not twisted, as field sources of the hum
     budget, each with its heater: (FieldSource named ``NAME.wiring``, kind ``heater-wiring``, at
@@ -189,7 +210,7 @@ def pair_sources(heaters) -> list:
     return [
         (
             FieldSource(
-                f"{h.name}.wiring",
+                f"{h.name}{WIRING}",
                 "heater-wiring",
                 h.route[0],
                 0.0,

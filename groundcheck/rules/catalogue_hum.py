@@ -34,8 +34,10 @@ HUM_ENTRIES: list[Rule] = [
         "level at a channel's output.",
         "Faraday's law: EMF = 2πfBA drives current round the loop; its drop across a "
         "sensitive pair is amplified.",
-        "Open the loop, or make it smaller and move it away from the transformer.",
+        "Open the loop, or make it smaller and move it away from the transformer; an AC heater "
+        "pair run open is twisted along its whole run.",
         identity="pair",
+        actions=("twist",),
     ),
     entry(
         "GC303",

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, PROTECTIVE, SIGNAL, carries_load, joins_devices
+from ..physics.heater_field import source_heater
 from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from .catalogue import Finding
 from .context import AuditContext
@@ -94,10 +95,21 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
                     loc,
                     (c["element"], c["source"]),
                     {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
-                    "open the loop, or make it smaller and move it away from the field source",
+                    _pickup_fix(s.plan, c["source"]),
                 )
             )
     return out
+
+
+def _pickup_fix(plan, source: str) -> str:
+    """GC302's fix line: an open AC heater pair is twisted first (common practice)."""
+    h = source_heater(plan.heaters, source)
+    if h is not None and h.ac and not h.twisted and h.route:
+        return (
+            f"twist the heater pair {h.name} tightly along its whole run; or open the loop, or "
+            "make it smaller and move it away from the pair"
+        )
+    return "open the loop, or make it smaller and move it away from the field source"
 
 
 def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
