@@ -20,6 +20,7 @@ from ..model.kinds import (
     PROTECTIVE_ROLES,
     SIGNAL,
     bonds_metal,
+    is_fastening,
     is_fastening_kind,
     joins_devices,
     shield_like,
@@ -28,6 +29,7 @@ from ..model.index import outermost
 from ..model.records import SOCKET_KINDS, Conductor, Plan
 from ..network.canonical import canonical_ranks
 from .pe_places import pe_distance
+from .repairs import signal_shield
 from ..network.earthing import ProtectiveRoute, earth_terminals, protective_route, signal_points
 from ..network.graph import (
     Loop,
@@ -304,8 +306,21 @@ def _interconnect(ctx: AuditContext, candidates: list[Conductor]) -> Conductor |
 
 
 def _shield(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:
-    """A shield terminated at both ends opens at the shield."""
-    return next((c for c in candidates if shield_like(c)), None)
+    """A shield terminated at both ends opens at the shield — unless it carries a signal (an
+    unbalanced link's screen, a socket's only return: :func:`.repairs.signal_shield`); then at a
+    socket's fastening to the metal on the loop, insulated (GC101's fix says the same)."""
+    shields = [c for c in candidates if shield_like(c)]
+    free = next((c for c in shields if signal_shield(ctx, c) is None), None)
+    if free is not None or not shields:
+        return free
+    sockets = [
+        c
+        for c in candidates
+        if is_fastening(c, ctx.metals)
+        and (p := ctx.plan.point(c.b if c.a in ctx.metals else c.a)) is not None
+        and p.kind in SOCKET_KINDS
+    ]
+    return sockets[0] if sockets else shields[0]
 
 
 def _channel_tie(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:

@@ -13,7 +13,7 @@ from ..network.graph import Loop
 from .catalogue import Finding
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext
 from .registry import rule
-from .repairs import only_return_end
+from .repairs import signal_shield
 
 __all__ = ["rule_loops"]
 
@@ -88,13 +88,13 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
             "into one outlet or strip, or use an input of better rejection; never lift the "
             "protective earth"
         ), ()
-    if opener is not None and info.closed_by == "shield-both-ends":
-        if joins_devices(opener) and not opener.balanced:  # its shield is the link's return
-            keep = f"keep both ends of {opener.name}: its shield is the signal's return"
-            return _own_return_fix(info, keep, ctx)
-        alone = only_return_end(ctx, opener) if shield_like(opener) else None
-        if alone is not None:
-            keep = f"keep both ends of {opener.name}: it is the only return of {alone}"
+    if info.closed_by == "shield-both-ends":
+        # the loop's shield, when it carries a signal, keeps both ends (the loop opens at a
+        # socket's fastening instead, which the loop table names too)
+        found = (ctx.conductors.get(e) for e in info.loop.edges)
+        shields = [c for c in found if c is not None and shield_like(c)]
+        keep = next((k for c in shields if (k := signal_shield(ctx, c))), None)
+        if keep is not None:
             return _own_return_fix(info, keep, ctx)
     if opener is not None and is_fastening(opener, ctx.metals):
         where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"

@@ -13,7 +13,7 @@ from ..model.kinds import is_fastening, joins_devices
 from ..network.canonical import canonical_ranks
 from .graph_search import bfs
 
-__all__ = ["only_return_end", "shield_fix", "supply_ends", "supply_meetings"]
+__all__ = ["only_return_end", "shield_fix", "signal_shield", "supply_ends", "supply_meetings"]
 
 
 def only_return_end(ctx, c) -> str | None:
@@ -41,6 +41,27 @@ def only_return_end(ctx, c) -> str | None:
         ]
         if not others:
             return end
+    return None
+
+
+def signal_shield(ctx, c) -> str | None:
+    """Why a shield must keep both ends, in words, or None when it may be opened: an unbalanced
+    link's shield is the signal's return, and a shield that is the only return of one end carries
+    that end's signal.
+
+    Parameters:
+        ctx: the audit context.
+        c: a shield or interconnect.
+    Returns:
+        "keep both ends of …: …", or None.
+    References:
+        common practice (an unbalanced screen is the signal return).
+    """
+    if joins_devices(c) and not c.balanced:
+        return f"keep both ends of {c.name}: its shield is the signal's return"
+    alone = only_return_end(ctx, c)
+    if alone is not None:
+        return f"keep both ends of {c.name}: it is the only return of {alone}"
     return None
 
 
