@@ -236,6 +236,23 @@ def test_compare_fails_a_review_when_the_after_plan_introduces_findings(cli, tmp
     assert cli("compare", HEADPHONE, HEADPHONE, "--fail-on", "introduced")[0] == 0
 
 
+def test_compare_fails_a_review_when_a_kept_finding_gets_worse(cli, tmp_path):
+    # the shared return made three times as long: GC102 is kept and louder (the drop in a wire is
+    # I·R, R ∝ length); nothing is introduced, yet a review must not pass it
+    text = open(HEADPHONE).read()
+    old = "wire in_gnd: in_gnd_pad to star, 120 mm, 24 AWG, signal"
+    assert old in text
+    longer = tmp_path / "longer.gplan"
+    longer.write_text(text.replace(old, old.replace("120 mm", "360 mm")))
+    code, out, _ = cli("compare", HEADPHONE, str(longer), "--fail-on", "worse")
+    assert code == 1, out
+    assert "kept, and worse: level dbv" in out
+    doc = json.loads(cli("compare", HEADPHONE, str(longer), "--format", "json")[1])
+    worse = [f for f in doc["findings"]["worse"] if f["code"] == "GC102"]
+    assert worse and all(f["severity_before"] == "fault" for f in worse)
+    assert cli("compare", HEADPHONE, HEADPHONE, "--fail-on", "worse")[0] == 0
+
+
 def test_option_values_are_checked(cli):
     for args in (
         ("--max-frequency", "-100"),

@@ -9,6 +9,7 @@ from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean, readable
 from ..core.units import dbv
+from ..rules.catalogue import severity_rank
 from .fixes import identity
 
 __all__ = ["compare", "compare_text", "compare_json"]
@@ -23,13 +24,49 @@ def _matched(before: list, after: list) -> dict[str, list]:
     for side, findings in ((0, before), (1, after)):
         for f in findings:
             groups.setdefault(identity(f), ([], []))[side].append(f)
-    out: dict[str, list] = {"fixed": [], "kept": [], "introduced": []}
+    out: dict[str, list] = {"fixed": [], "kept": [], "introduced": [], "worse": []}
     for key in sorted(groups, key=repr):
         b, a = groups[key]
         out["kept"] += a[: len(b)]
         out["fixed"] += b[len(a) :]
         out["introduced"] += a[len(b) :]
+        out["worse"] += [(x, y, w) for x, y in zip(b, a) if (w := _worsened(x, y))]
     return out
+
+
+#: figures that grow as a finding gets worse: hum and feedback levels (dB), and the protective
+#: earth's path resistance, touch voltage and clearing time
+_WORSE_WHEN_HIGHER = (
+    "level_dbv",
+    "total_dbv",
+    "feedback_db",
+    "crosstalk_db",
+    "input_db",
+    "worst_input_db",
+    "touch_voltage_v",
+    "path_resistance_mohm",
+    "resistance_ohm",
+    "transfer_resistance_mohm",
+    "clear_time_s",
+)
+
+
+def _worsened(before, after) -> str:
+    """How a finding kept from ``before`` to ``after`` got worse, in words ('' when it did not): a
+    severer severity, a level 0.5 dB or more higher, or another figure of
+    :data:`_WORSE_WHEN_HIGHER` 5 % or more higher."""
+    if severity_rank(after.severity) < severity_rank(before.severity):
+        return f"{before.severity} → {after.severity}"
+    for key in _WORSE_WHEN_HIGHER:
+        x, y = before.figures.get(key), after.figures.get(key)
+        if not isinstance(x, (int, float)) or not isinstance(y, (int, float)):
+            continue
+        if key.endswith("_db") or key.endswith("_dbv"):
+            if y - x >= 0.5:
+                return f"{key.replace('_', ' ')} {x:.1f} → {y:.1f} (+{y - x:.1f})"
+        elif x > 0 and y >= x * 1.05:
+            return f"{key.replace('_', ' ')} {x:.3g} → {y:.3g}"
+    return ""
 
 
 def _db(v):
@@ -51,7 +88,13 @@ def compare(before: Result, after: Result) -> dict:
                 "after": [n.as_dict() for n in after.not_checked],
             },
             "notices": {"before": list(before.notices), "after": list(after.notices)},
-            "findings": {k: [row(f) for f in v] for k, v in matched.items()},
+            "findings": {
+                **{k: [row(f) for f in v] for k, v in matched.items() if k != "worse"},
+                "worse": [
+                    {**row(a), "severity_before": b.severity, "how": how}
+                    for b, a, how in matched["worse"]
+                ],
+            },
             "loops": _loops(before, after),
             "hum": {ch: _channel(before, after, ch) for ch in _channels(before, after)},
             "protective_earth": _protective(before, after),
@@ -175,12 +218,14 @@ def compare_text(d: dict) -> str:
     out.append("")
     fnd = d["findings"]
     out.append(
-        f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept, {len(fnd['introduced'])} "
-        "introduced"
+        f"Findings: {len(fnd['fixed'])} fixed, {len(fnd['kept'])} kept "
+        f"({len(fnd.get('worse', []))} of them worse), {len(fnd['introduced'])} introduced"
     )
     for tag in ("fixed", "introduced", "kept"):
         for f in fnd[tag]:
             out.append(f"  {tag:<10} {f['code']} {f['severity']:<8} {f['message']}")
+    for f in fnd.get("worse", []):
+        out.append(f"  {'worse':<10} {f['code']} {f['severity']:<8} kept, and worse: {f['how']}")
     lp = d["loops"]
     out.append(
         f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, "

@@ -185,8 +185,9 @@ def _write(applied, path: Path, target: Path) -> None:
             "--fail-on",
             choices=("never", "introduced", "worse"),
             default="never",
-            help="exit 1 when the after-plan introduces a finding (introduced) or a finding at "
-            "least as severe as the worst before (worse); default never",
+            help="exit 1 when the after-plan introduces a finding (introduced), or introduces "
+            "one at least as severe as the worst before or makes a kept one worse (worse); "
+            "default never",
         ),
         add_analysis_options,
     ),
@@ -209,7 +210,7 @@ def _warn(text: str) -> None:
 
 def _compare_fails(d: dict, fail_on: str) -> bool:
     """Whether the comparison fails a review pipeline: a finding introduced, or one introduced that
-    is at least as severe as the worst finding before."""
+    is at least as severe as the worst finding before or a kept one made worse."""
     from ..rules.catalogue import severity_rank
 
     new = d["findings"]["introduced"]
@@ -220,5 +221,7 @@ def _compare_fails(d: dict, fail_on: str) -> bool:
         worst = min(
             (severity_rank(s) for s in before), default=len(("danger", "fault", "warning", "note"))
         )
-        return any(severity_rank(f["severity"]) <= worst for f in new)
+        return any(severity_rank(f["severity"]) <= worst for f in new) or bool(
+            d["findings"].get("worse")
+        )
     return False

@@ -151,8 +151,10 @@ def compare_page(d: dict, before: Result, after: Result, drawings: tuple | None 
         '<h2>Findings</h2><table id="changes"><tr><th>change</th><th>severity</th><th>code</th>'
         "<th>finding</th></tr>"
     )
-    for tag in ("introduced", "fixed", "kept"):
-        for f in d["findings"][tag]:
+    for tag in ("introduced", "worse", "fixed", "kept"):
+        for f in d["findings"].get(tag, []):
+            if tag == "worse":
+                f = {**f, "message": f"kept, and worse: {f['how']}"}
             parts.append(
                 f'<tr><td>{tag}</td><td><span class="sev '
                 f'{e(f["severity"])}">{e(f["severity"])}</span></td>'
