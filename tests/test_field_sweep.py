@@ -42,6 +42,7 @@ PLANS = [
     "outdoor-stage-reels/outdoor-stage.gplan",
     "living-room-preamp/system.gplan",
     "garden-studio-tt/studio-original.gplan",
+    "reverb-combo-barn/combo-tt.gplan",
 ]
 
 #: findings a change must never bring about: part of the signal ground unconnected (GC106,

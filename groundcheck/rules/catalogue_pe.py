@@ -135,7 +135,8 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         PROTECTIVE_EARTH,
         "warning",
         "A conductor the protective earth relies on (on the route from the inlet's earth terminal "
-        "to a metal part) that the plan does not write as protective.",
+        "to a metal part) that the plan does not write as protective (or, for a bolt or strap, "
+        "as a bond: a fastening on the route is judged by GC206 and GC202).",
         "Whatever the plan calls it, it carries fault current: it must be a green-and-yellow "
         "protective conductor of at least the line conductor's size, and nobody may remove it to "
         "cure hum. groundcheck treats it as protective.",

@@ -1,0 +1,59 @@
+"""An outside builder's 50 W reverb combo (tests/field/reverb-combo-barn, copied as written), on a
+TN-C-S house and in a TT rehearsal barn with a 150 Ω rod and no RCD. His verdict: the protective
+earth under a transformer bolt (the chassis' only bond) is a danger; the anodised faceplate bonded
+by nuts, the thin back-panel lead and the glass fuse are dangers; in the barn, an RCD first, then
+as in the house; the reverb send lead's screen is the driver's return and is never lifted; the
+open heater pair is twisted."""
+
+from pathlib import Path
+
+import pytest
+
+from groundcheck import load
+from groundcheck.analysis import Options, analyze
+
+from fieldadvice import GROUP, advised
+
+FIELD = Path(__file__).parent / "field" / "reverb-combo-barn"
+
+pytestmark = pytest.mark.xdist_group(GROUP)
+
+
+@pytest.fixture(scope="module")
+def house():
+    return analyze(load(FIELD / "combo-tn.gplan"))
+
+
+def test_the_dangers_of_the_verdict_are_found(house):
+    danger = {(f.code, f.elements[0]) for f in house.findings if f.severity == "danger"}
+    assert ("GC202", "pe_lead") in danger  # P1: the lug holds the transformer, the only bond
+    assert ("GC206", "faceplate") in danger  # P2: 3 Ω through anodised nuts
+    assert ("GC204", "bp_lead") in danger  # P3: 0.25 mm² under the 0.75 mm² line conductor
+    assert any(code == "GC211" for code, _ in danger)  # P4: a glass fuse against some 300 A
+
+
+def test_the_reverb_send_screen_is_never_where_a_loop_opens(house):
+    # never-offer 3: the send lead's screen is the driver's return; the loop through the tank's
+    # can opens at a socket's fastening, and GC101 keeps both ends of the screen
+    assert not [lp for lp in house.loops if lp.open_at in ("send_lead", "ret_lead")]
+    for f in house.findings:
+        if f.code in ("GC101", "GC108") and "send_lead" in f.elements:
+            assert "keep both ends of send_lead" in f.fix or "terminate" not in f.fix, f.fix
+
+
+def test_the_open_heater_pair_is_twisted_first(house):
+    pickups = [f for f in house.findings if f.code == "GC302" and f.elements[1] == "h.wiring"]
+    assert pickups and all(f.fix.startswith("twist the heater pair h") for f in pickups)
+
+
+def test_in_the_barn_the_rcd_comes_first_and_the_combined_set_keeps_the_fuse():
+    a = advised("reverb-combo-barn/combo-tt.gplan")
+    useful = [e.candidate for e in a.evs if not e.rejected]
+    assert useful[0].action == "rcd"
+    # the RCD and the high-breaking fuse edit one mains statement: both are in the combined set,
+    # merged into one edit, and no GC211 is left
+    actions = [e.candidate.action for e in a.chosen]
+    assert "rcd" in actions and "fuse" in actions, [e.candidate.title for e in a.chosen]
+    assert not [f for f in a.final.findings if f.code == "GC211"]
+    mains = [x for e in a.chosen for x in e.candidate.edits if (x.new or "").startswith("mains ")]
+    assert len(mains) == 1 and "rcd 30 mA" in mains[0].new and "breaking high" in mains[0].new
