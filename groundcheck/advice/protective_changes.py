@@ -26,6 +26,11 @@ from .edits import Edit
 __all__ = ["own_stud", "bonding_wire", "thicker"]
 
 
+#: how far a new stud stays inside its part's edge, m: the radius of an M4 or M5 washer and a
+#: little metal beyond it (common practice)
+EDGE_CLEARANCE = 6e-3
+
+
 def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float, float] | None:
     """A place for a new stud on ``part`` near ``near``: on the part, at least STUD_CLEARANCE
     outside every other part's outline, outside every field source's footprint, and at least
@@ -41,10 +46,18 @@ def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float
     ]
     taken = [p.pos for p in ctx.plan.points if p.pos is not None] + [q for q in avoid if q]
     sources = [s.pos for s in ctx.plan.fields]
-    for r in (20e-3, 30e-3, 40e-3, 60e-3):
+    # a nut and its washer need metal all round the hole: places clear of the part's edge first,
+    # then (a narrow strip) any place on it
+    rings = [(r, edge) for edge in (EDGE_CLEARANCE, 0.0) for r in (20e-3, 30e-3, 40e-3, 60e-3)]
+    for r, edge in rings:
         for k in range(8):
             a = math.pi / 4 * k
             q = (near[0] + r * math.cos(a), near[1] + r * math.sin(a))
+            if edge and not all(
+                metal.contains((q[0] + dx, q[1] + dy))
+                for dx, dy in ((edge, 0), (-edge, 0), (0, edge), (0, -edge))
+            ):
+                continue
             # clear of the other parts' outlines too, by the room a nut and its lug take
             near_q = [q] + [
                 (
