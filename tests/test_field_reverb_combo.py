@@ -57,3 +57,23 @@ def test_in_the_barn_the_rcd_comes_first_and_the_combined_set_keeps_the_fuse():
     assert not [f for f in a.final.findings if f.code == "GC211"]
     mains = [x for e in a.chosen for x in e.candidate.edits if (x.new or "").startswith("mains ")]
     assert len(mains) == 1 and "rcd 30 mA" in mains[0].new and "breaking high" in mains[0].new
+
+
+def test_the_faceplates_new_stud_has_metal_all_round_it():
+    # the faceplate is 480 x 40 mm at 0,-40 (the plan): a washer needs some 6 mm of metal round
+    # the hole (common practice), so the stud lies at least that far inside every edge
+    import re
+
+    a = advised("reverb-combo-barn/combo-tt.gplan")
+    lines = [
+        x
+        for e in a.evs
+        if e.candidate.action == "bond"
+        for ed in e.candidate.edits
+        for x in ed.extra
+        if re.match(r"point \w+: stud, at .* on faceplate", x)
+    ]
+    assert lines
+    for line in lines:
+        x, y = map(float, re.search(r"at (-?[\d.]+),(-?[\d.]+)", line).groups())
+        assert 6 <= x <= 480 - 6 and -40 + 6 <= y <= -6, line
