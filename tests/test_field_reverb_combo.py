@@ -70,7 +70,7 @@ def test_the_faceplates_new_stud_has_metal_all_round_it():
         for e in a.evs
         if e.candidate.action == "bond"
         for ed in e.candidate.edits
-        for x in ed.extra
+        for x in [*(ed.new or "").split("\n"), *ed.extra]
         if re.match(r"point \w+: stud, at .* on faceplate", x)
     ]
     assert lines
