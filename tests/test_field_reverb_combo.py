@@ -77,3 +77,15 @@ def test_the_faceplates_new_stud_has_metal_all_round_it():
     for line in lines:
         x, y = map(float, re.search(r"at (-?[\d.]+),(-?[\d.]+)", line).groups())
         assert 6 <= x <= 480 - 6 and -40 + 6 <= y <= -6, line
+
+
+def test_each_fix_line_is_a_change_made_for_its_own_rule_where_one_clears_it():
+    # the builder: every fix line read "insulate every socket", even GC102's, whose own change
+    # (the filter's return joined straight to the reservoir's) clears it; the heater pair's
+    # pickup is answered by twisting the pair
+    a = advised("reverb-combo-barn/combo-tt.gplan")
+    lines = {(f.code, fix.split(" (groundcheck")[0]) for f, fix in zip(a.before.findings, a.fixes)}
+    shared = [fix for code, fix in lines if code == "GC102"]
+    pickup = [fix for code, fix in lines if code == "GC302"]
+    assert shared and all(fix.startswith("join filt_neg") for fix in shared), shared
+    assert pickup and all(fix.startswith("twist the heater pair h") for fix in pickup), pickup

@@ -76,9 +76,17 @@ def _fix(f, clearing_by_key: dict, rejected_by_code: dict) -> str:
     if not RULES[f.code].actions:  # a note on the model's reach: its own text is the answer
         return f.fix
     clearing = clearing_by_key.get(identity(f), [])
-    # best a change after which no finding of the same rule lands on one of its elements (a chain
-    # that grew by another branch is cleared by identity only); else the best that clears it
-    for ev in [ev for ev in clearing if not _reappears(f, ev)] + clearing:
+    # best a change made for the finding's own rule (a shared return's own wire, not the socket
+    # panel that clears it on the way), then any; in each, first one after which no finding of
+    # the same rule lands on one of its elements (a chain that grew by another branch is cleared
+    # by identity only)
+    own = [ev for ev in clearing if f.code in ev.candidate.reason.split(",")]
+    for ev in [
+        *(ev for ev in own if not _reappears(f, ev)),
+        *own,
+        *(ev for ev in clearing if not _reappears(f, ev)),
+        *clearing,
+    ]:
         return ev.candidate.title + SHOWN_BY_SUGGEST
     # a candidate made for the finding: it answers its rule and names one of its elements (a change
     # in a block is made once for every placement: it answers each one's)
