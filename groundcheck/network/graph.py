@@ -8,7 +8,6 @@ names and each edge holds its :class:`~groundcheck.model.records.Conductor` as
 
 from __future__ import annotations
 
-from collections import deque
 from dataclasses import dataclass
 
 import networkx as nx
@@ -16,7 +15,7 @@ import numpy as np
 
 from ..model.records import Plan
 from .canonical import attachments, canonical_ranks
-from .earthing import EARTH_TERMINAL_KINDS
+from .forest import spanning_forest
 
 __all__ = [
     "build_graph",
@@ -162,7 +161,7 @@ def fundamental_loops(
     cycles of a graph", Comm. ACM 12(9), 1969.
     """
     rank = canonical_ranks(G)
-    parent, parent_edge, depth, tree_edges = _spanning_forest(G, rank)
+    parent, parent_edge, depth, tree_edges = spanning_forest(G, rank)
     loops: list[Loop] = []
     chords = sorted(
         (e for e in (edges_of(G) if edges is None else edges) if e[2] not in tree_edges),
@@ -189,39 +188,6 @@ def fundamental_loops(
         if limit is not None and len(loops) >= limit:
             break
     return loops
-
-
-def _spanning_forest(G: nx.MultiGraph, rank: dict) -> tuple[dict, dict, dict, set]:
-    """A breadth-first spanning forest grown in rank order: (parent, the conductor to it, depth,
-    the forest's conductors)."""
-    parent: dict = {}
-    parent_edge: dict = {}
-    depth: dict = {}
-    tree_edges = set()
-    adj = dict(G.adjacency())  # plain dicts: node -> neighbour -> key -> data
-    for root in sorted(adj, key=lambda n: (_outermost(G.nodes[n]), rank[n])):
-        if root in parent:
-            continue
-        parent[root], depth[root], parent_edge[root] = None, 0, None
-        q = deque([root])
-        while q:
-            u = q.popleft()
-            for v in sorted(adj[u], key=rank.__getitem__):
-                if v in parent:
-                    continue
-                key = min(adj[u][v], key=rank.__getitem__)
-                parent[v], depth[v], parent_edge[v] = u, depth[u] + 1, key
-                tree_edges.add(key)
-                q.append(v)
-    return parent, parent_edge, depth, tree_edges
-
-
-def _outermost(data: dict) -> int:
-    """Where a node stands among the earth terminals, outermost first (others last): the tree of
-    each part grows from its outermost earth, as the protective route does."""
-    point = data.get("point")
-    kind = point.kind if point is not None else None
-    return EARTH_TERMINAL_KINDS.index(kind) if kind in EARTH_TERMINAL_KINDS else 3
 
 
 def _climb(x, parent, parent_edge, nodes, edges):
