@@ -21,7 +21,7 @@ from ..language.loader import load_text, substituted
 from ..model.kinds import is_fastening_kind
 from ..model.records import Plan
 from ..rules.catalogue import RULES, severity_rank
-from ..rules.rule_families import PROTECTIVE_EARTH
+from ..rules.rule_families import HUM, PROTECTIVE_EARTH
 from .changes import Candidate
 from .edits import apply_edits, edited_texts
 from .fixes import identity
@@ -32,7 +32,15 @@ PE_FAULT = "protective-earth fault"
 #: the rejection of a change that brings a danger (the combined set tries it again last)
 ADDS_DANGER = "it would add a danger finding"
 
-__all__ = ["Evaluation", "evaluate", "HUM_FLOOR_DBV", "LOUDER_DB", "PE_TOLERANCE"]
+__all__ = [
+    "Evaluation",
+    "evaluate",
+    "far_below_hearing",
+    "HUM_FLOOR_DBV",
+    "LOUDER_DB",
+    "PE_TOLERANCE",
+    "QUIET_MARGIN_DB",
+]
 
 
 @dataclass
@@ -94,6 +102,34 @@ HUM_FLOOR_DBV = -140.0
 #: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding),
 #: clearing no danger or fault, is rejected
 LOUDER_DB = 0.05
+
+#: a channel whose hum stays this far below the threshold of hearing at the listener's seat (dB,
+#: at every harmonic) after a change is not made louder by it in any way that matters: the model's
+#: figures are estimates, and 20 dB is the project's own margin for them (an outside reviewer's
+#: pin-1-to-chassis fix was refused for 0.1 dB on a channel 60 dB below hearing)
+QUIET_MARGIN_DB = 20.0
+
+
+def far_below_hearing(result: Result, channel: str) -> bool:
+    """Whether ``channel``'s hum in ``result`` is judged inaudible at the listener's seat with at
+    least :data:`QUIET_MARGIN_DB` to spare (False without a listening verdict).
+
+    Parameters:
+        result: an analysis.
+        channel: a channel's name.
+    Returns:
+        True when a rise of its hum is of no consequence.
+    References:
+        ISO 226:2003 (the threshold the margin is read against).
+    """
+    h = result.hum.channels.get(channel) if result.hum is not None else None
+    return (
+        h is not None
+        and h.audible is False
+        and h.margin_db is not None
+        and h.margin_db <= -QUIET_MARGIN_DB
+    )
+
 
 #: a protective path may change by this much (relative) before a change counts as weakening it: the
 #: plate model's own accuracy (see groundcheck.plate)
@@ -253,6 +289,19 @@ def _through_star(cand: Candidate, after: Result) -> bool:
     )
 
 
+def _faults_not_of_hum(k0: dict, k1: dict) -> int:
+    """Faults cleared less faults brought, counting only rules that are no hum mechanism (not the
+    hum family's, not a shared return's)."""
+
+    def counts(f) -> bool:
+        rule = RULES[f.code]
+        return f.severity == "fault" and not (rule.family is HUM or rule.hum_mechanism)
+
+    cleared = sum(1 for k in k0.keys() - k1.keys() if counts(k0[k]))
+    brought = sum(1 for k in k1.keys() - k0.keys() if counts(k1[k]))
+    return cleared - brought
+
+
 def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:
     """The hum change and score of a candidate that passed the safety checks; rejected when it
     makes a channel louder without clearing a danger or fault, or gains nothing."""
@@ -266,12 +315,18 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
     score += sum(weight[severity_rank(k0[k].severity)] for k in k0.keys() - k1.keys())
     score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
     ev.score = score
-    louder = {ch: d for ch, d in ev.hum_change_db.items() if d > LOUDER_DB}
+    louder = {
+        ch: d
+        for ch, d in ev.hum_change_db.items()
+        if d > LOUDER_DB and not far_below_hearing(after, ch)
+    }
     safety = ev.net.get("danger", 0) > 0 or (
         ev.net.get("danger", 0) == 0 and ev.net.get(PE_FAULT, 0) > 0
     )
-    if louder and not safety and ev.net.get("fault", 0) <= 0:
+    if louder and not safety and _faults_not_of_hum(k0, k1) <= 0:
         # advice that makes a channel hum more is no advice, unless it clears a danger or a fault
+        # that is no hum mechanism (a shared return 'cleared' while the channel gets louder is
+        # no gain: an outside builder was offered a socket panel 3.8 dB louder for one GC102)
         ch, d = max(louder.items(), key=lambda kv: kv[1])
         ev.rejected = f"it would make the {ch} hum {d:.1f} dB louder"
     elif score <= 1e-9 and safety:

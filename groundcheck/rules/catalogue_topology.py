@@ -49,6 +49,7 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         variants=("fault", "note"),
         identity="pair",
         actions=("own-return",),
+        hum_mechanism=True,
     ),
     entry(
         "GC103",
@@ -185,8 +186,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "chassis, and its drop there is added to every stage referenced to that wiring, "
         "however good the link's own rejection.",
         "Land the shield on the chassis at the entry and keep the signal ground's one bond to "
-        "the chassis; an unbalanced link's shield is its signal return: use a balanced link, "
-        "or a ground-lift network on the signal side. Never lift the protective earth.",
+        "the chassis; an unbalanced link's shield is its signal return and stays where it is: "
+        "plug the devices it joins into one outlet or strip (a balanced link only between "
+        "balanced sockets). Never lift the protective earth.",
         "AES48-2005, interconnections and grounding of shields in audio equipment: a shield "
         "terminates on the enclosure at its point of entry (from memory); common-impedance "
         "coupling (see GC102).",

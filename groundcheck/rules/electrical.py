@@ -169,10 +169,14 @@ def _shared_fix(row, plan_conductors: dict, leak: set) -> str:
             "the signal side; never lift the protective earth"
         )
     elif via_ic:
+        # an unbalanced link's shield is its signal's return: it stays, and bought or
+        # unbalanced equipment takes no balanced link or lift network (the advisor refuses both)
         fix = (
-            f"the current reaches the stage through the shield of {', '.join(via_ic)}: use a "
-            "balanced interconnect, or a ground-lift network on the signal side; never lift the "
-            "protective earth"
+            f"the current reaches the stage through the shield of {', '.join(via_ic)}, the "
+            "signal's return on an unbalanced link, which stays: plug the devices it joins into "
+            "one outlet or strip, so the current has a short way home, or use a link with a "
+            "heavier shield; a balanced link only between balanced sockets, a ground-lift "
+            "network only in equipment of your own build; never lift the protective earth"
         )
     elif row.kind == "current" and row.source in leak:
         fix = (

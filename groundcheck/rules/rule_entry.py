@@ -45,6 +45,9 @@ class Rule:
     identity: str = "elements"
     actions: tuple[str, ...] = ("carried",)
     refusals: tuple[str, ...] = ()
+    #: its findings are a hum mechanism (a shared return): a change that makes a channel louder
+    #: is not excused by clearing one (the hum family's findings are such by their family)
+    hum_mechanism: bool = False
 
 
 def entry(
@@ -61,6 +64,7 @@ def entry(
     identity="elements",
     actions=("carried",),
     refusals=(),
+    hum_mechanism=False,
 ) -> Rule:
     """One catalogue entry, its declarations checked.
 
@@ -73,6 +77,7 @@ def entry(
         actions: the advisor's repair actions for its findings.
         refusals: the advisor's refusals (:data:`REFUSALS`) a change that brings a finding of
             it about meets.
+        hum_mechanism: its findings are a hum mechanism (see :class:`Rule`).
     Returns:
         the entry.
     Raises:
@@ -92,17 +97,7 @@ def entry(
             f"{code}: variants {variants} (default {severity}), identity {identity}, "
             f"refusals {refusals}"
         )
+    words = (checks, why, fix, references)
     return Rule(
-        code,
-        name,
-        family,
-        severity,
-        checks,
-        why,
-        fix,
-        references,
-        variants,
-        identity,
-        actions,
-        refusals,
+        code, name, family, severity, *words, variants, identity, actions, refusals, hum_mechanism
     )
