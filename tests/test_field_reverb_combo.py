@@ -10,7 +10,7 @@ from pathlib import Path
 import pytest
 
 from groundcheck import load
-from groundcheck.analysis import Options, analyze
+from groundcheck.analysis import analyze
 
 from fieldadvice import GROUP, advised
 

@@ -50,9 +50,15 @@ PLANS = [
 UNWIRED = {"GC106", "GC109", "GC114", "GC401"}
 
 
+#: folders of the corpus whose advice is too slow for the suite (each plan's whole candidate set
+#: takes 30–46 s on a 2-core machine); their own tests check what their verdict asks of the
+#: analysis and the rules' fix lines, without the advisor
+NOT_SWEPT = {"lounge-line-preamp"}
+
+
 def test_the_list_is_the_whole_corpus():
     folders = {p.parent.name for p in FIELD.glob("*/verdict.md")}
-    assert {rel.split("/")[0] for rel in PLANS} == folders
+    assert {rel.split("/")[0] for rel in PLANS} | NOT_SWEPT == folders
 
 
 def _advised(rel: str):
@@ -106,11 +112,20 @@ def _unwired(plan, label: str) -> bool:
     return point is None or point.kind != "outlet"
 
 
+def _quiet(result, ch: str) -> bool:
+    """Whether a channel stays 20 dB or more below hearing after a change (the margin README.md
+    documents): a rise there is no louder channel in the advisor's sense."""
+    h = result.hum.channels.get(ch) if result is not None and result.hum is not None else None
+    return h is not None and h.audible is False and (h.margin_db or 0.0) <= -20.0
+
+
 @pytest.mark.parametrize("rel", PLANS)
 def test_no_change_offered_is_louder_unwires_the_signal_or_fails_to_load(rel):
     plan, _, evs, *_ = _advised(rel)
     for e in _offered(rel):
-        louder = {ch: d for ch, d in e.hum_change_db.items() if d > 0.05}
+        louder = {
+            ch: d for ch, d in e.hum_change_db.items() if d > 0.05 and not _quiet(e.result, ch)
+        }
         if louder:  # only for a change that clears a danger or a fault on balance
             assert e.net.get("danger", 0) > 0 or e.net.get("fault", 0) > 0, e.candidate.title
         assert not [x for x in e.introduced if _unwired(plan, x)], e.candidate.title
