@@ -268,6 +268,7 @@ def test_a_bought_device_at_the_end_of_a_reel_is_not_disconnected_in_time(tmp_pa
     assert f.severity == "danger" and f.elements == ("keys",)
     assert 68.0 <= f.figures["fault_current_a"] <= 72.545, f.figures
     assert "radial, reel" in f.message and "16 A type B breaker" in f.message
+    assert "RCD" in f.fix and "nearer the board" in f.fix  # on TN a shorter lead helps too
     assert f.location.line == 8  # the device's own line
     # the device earth table carries the same fault
     (row,) = [d for d in r.device_earths if d.device == "keys"]
@@ -314,6 +315,8 @@ def test_a_tt_supplys_breaker_makes_the_bought_devices_disconnection_a_figure(tm
     assert f.severity == "danger" and f.elements == ("mon",)
     assert f.figures["fault_current_a"] < 230 / 201 and "too little" in f.message
     assert not [x for x in found if x.code == "GC221"]
+    # on TT the electrode, not the lead, limits the current: the fix is the RCD alone
+    assert "RCD" in f.fix and "nearer the board" not in f.fix
 
 
 @pytest.mark.parametrize(

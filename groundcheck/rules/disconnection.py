@@ -169,7 +169,17 @@ def late_simple_device(device, m, limit, part, route) -> list[Finding]:
             device.location,
             (device.name,),
             figs,
-            "protect the outlets with a 30 mA RCD (have a qualified electrician fit it), or "
-            "plug the device in nearer the board: a shorter or thicker lead lowers the loop",
+            _late_fix(m),
         )
     ]
+
+
+def _late_fix(m) -> str:
+    """The fix for a bought device's fault not cleared in time: an RCD; on TN also a shorter or
+    thicker lead (on TT the earth electrode, not the lead, limits the fault current)."""
+    rcd = "protect the outlets with a 30 mA RCD (have a qualified electrician fit it)"
+    if m.system == "TT":
+        return rcd + ": on a TT supply the earth electrode, not the lead, limits the fault current"
+    return (
+        rcd + ", or plug the device in nearer the board: a shorter or thicker lead lowers the loop"
+    )

@@ -62,7 +62,8 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
                         (c.name, v, *sorted(holds)),
                         {"other_items": len(holds), "holds_part": danger},
                         "give the protective earth a stud of its own, with nothing else on it "
-                        f"({', '.join(sorted(holds))} stay on the fastening they share now)",
+                        f"(only the protective earth moves: {', '.join(sorted(holds))} "
+                        f"{'stays as it is' if len(holds) == 1 else 'stay as they are'})",
                     )
                 )
     return out
