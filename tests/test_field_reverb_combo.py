@@ -89,3 +89,12 @@ def test_each_fix_line_is_a_change_made_for_its_own_rule_where_one_clears_it():
     pickup = [fix for code, fix in lines if code == "GC302"]
     assert shared and all(fix.startswith("join filt_neg") for fix in shared), shared
     assert pickup and all(fix.startswith("twist the heater pair h") for fix in pickup), pickup
+
+
+def test_twisting_the_heater_pair_is_offered_and_brings_no_contributor_of_its_own():
+    # 6 dB off the total; the rectifier's contributors then pass a tenth of what is left, but
+    # none of them is louder than before: they are no findings the change brought
+    a = advised("reverb-combo-barn/combo-tt.gplan")
+    (twist,) = [e for e in a.evs if e.candidate.action == "twist"]
+    assert not twist.rejected, twist.rejected
+    assert twist.hum_change_db["main"] < -5.0 and twist.introduced == []

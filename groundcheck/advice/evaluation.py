@@ -25,6 +25,13 @@ from ..rules.rule_families import HUM, PROTECTIVE_EARTH
 from .changes import Candidate
 from .edits import apply_edits, edited_texts
 from .fixes import identity
+from .hearing import (
+    HUM_FLOOR_DBV,
+    QUIET_MARGIN_DB,
+    far_below_hearing,
+    heard_changes,
+    share_only,
+)
 from .returns import lost_wired_returns
 
 #: the key of :attr:`Evaluation.net` that counts protective-earth faults (among the faults)
@@ -56,6 +63,14 @@ class Evaluation:
     hum_after_dbv: dict = field(default_factory=dict)
     net: dict = field(default_factory=dict)  # severity -> findings cleared less those introduced
     cleared_keys: set = field(default_factory=set)  # identities it clears (fixes.identity)
+    #: channel -> change of how far its hum stands above hearing (dB, :func:`heard_level`), for
+    #: the channels with a listening verdict: what the ranking and the louder test read there
+    heard_change_db: dict = field(default_factory=dict)
+
+    def judged_change_db(self) -> dict:
+        """Each channel's change as the advice judges it: above hearing where the plan has a
+        listening verdict, else its total level."""
+        return {ch: self.heard_change_db.get(ch, d) for ch, d in self.hum_change_db.items()}
 
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), protective-earth faults
@@ -63,9 +78,8 @@ class Evaluation:
         findings introduced, size of the change (statements edited, then metres of wire laid),
         then warnings and notes cleared (net: of two joins alike in all that, the one that also
         takes a load's return off the bus), and only then the title."""
-        gain = sum(max(0.0, -d) for d in self.hum_change_db.values()) - sum(
-            max(0.0, d) for d in self.hum_change_db.values()
-        )
+        judged = self.judged_change_db().values()
+        gain = sum(max(0.0, -d) for d in judged) - sum(max(0.0, d) for d in judged)
         return (
             bool(self.rejected),
             -self.net.get("danger", 0),
@@ -89,6 +103,7 @@ class Evaluation:
             "element": c.element,
             "score": round(self.score, 3),
             "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
+            "heard_change_db": {k: round(v, 2) for k, v in self.heard_change_db.items()},
             "findings_cleared": self.cleared,
             "findings_introduced": self.introduced,
             "rejected": self.rejected or None,
@@ -96,40 +111,9 @@ class Evaluation:
         }
 
 
-#: hum totals are compared down to this level, dBV: below it a change is of no consequence
-HUM_FLOOR_DBV = -140.0
-
 #: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding),
 #: clearing no danger or fault, is rejected
 LOUDER_DB = 0.05
-
-#: a channel whose hum stays this far below the threshold of hearing at the listener's seat (dB,
-#: at every harmonic) after a change is not made louder by it in any way that matters: the model's
-#: figures are estimates, and 20 dB is the project's own margin for them (an outside reviewer's
-#: pin-1-to-chassis fix was refused for 0.1 dB on a channel 60 dB below hearing)
-QUIET_MARGIN_DB = 20.0
-
-
-def far_below_hearing(result: Result, channel: str) -> bool:
-    """Whether ``channel``'s hum in ``result`` is judged inaudible at the listener's seat with at
-    least :data:`QUIET_MARGIN_DB` to spare (False without a listening verdict).
-
-    Parameters:
-        result: an analysis.
-        channel: a channel's name.
-    Returns:
-        True when a rise of its hum is of no consequence.
-    References:
-        ISO 226:2003 (the threshold the margin is read against).
-    """
-    h = result.hum.channels.get(channel) if result.hum is not None else None
-    return (
-        h is not None
-        and h.audible is False
-        and h.margin_db is not None
-        and h.margin_db <= -QUIET_MARGIN_DB
-    )
-
 
 #: a protective path may change by this much (relative) before a change counts as weakening it: the
 #: plate model's own accuracy (see groundcheck.plate)
@@ -202,6 +186,9 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
     if ev.rejected:
         return ev
     k0, k1 = _keys(before), _keys(after)
+    # a contributor that only crossed its share's line because the rest of the hum fell is no
+    # finding the change brought: it was there, no louder, before
+    k1 = {k: f for k, f in k1.items() if k in k0 or not share_only(f, before)}
     ev.cleared_keys = set(k0.keys() - k1.keys())
     ev.cleared = sorted(_label(k0[k]) for k in ev.cleared_keys)
     ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
@@ -308,17 +295,15 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
     h0, h1 = _hum_db(before), _hum_db(after)
     ev.hum_before_dbv, ev.hum_after_dbv = h0, {ch: h1.get(ch, HUM_FLOOR_DBV) for ch in h0}
     ev.hum_change_db = {ch: ev.hum_after_dbv[ch] - h0[ch] for ch in h0}
+    ev.heard_change_db = heard_changes(before, after, h0)
+    judged = ev.judged_change_db()
     weight = {0: 30.0, 1: 10.0, 2: 3.0, 3: 0.5}
-    score = sum(max(0.0, -d) for d in ev.hum_change_db.values()) - sum(
-        max(0.0, d) for d in ev.hum_change_db.values()
-    )
+    score = sum(max(0.0, -d) for d in judged.values()) - sum(max(0.0, d) for d in judged.values())
     score += sum(weight[severity_rank(k0[k].severity)] for k in k0.keys() - k1.keys())
     score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
     ev.score = score
     louder = {
-        ch: d
-        for ch, d in ev.hum_change_db.items()
-        if d > LOUDER_DB and not far_below_hearing(after, ch)
+        ch: d for ch, d in judged.items() if d > LOUDER_DB and not far_below_hearing(after, ch)
     }
     safety = ev.net.get("danger", 0) > 0 or (
         ev.net.get("danger", 0) == 0 and ev.net.get(PE_FAULT, 0) > 0

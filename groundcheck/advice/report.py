@@ -23,8 +23,17 @@ def _level(dbv: float) -> str:
     return f"below {HUM_FLOOR_DBV:.0f} dBV" if dbv <= HUM_FLOOR_DBV else f"{dbv:.1f} dBV"
 
 
-def _hum_change_words(ch: str, before: float, after: float) -> str:
-    """'left: −47.1 → −96.3 dBV (49.2 dB quieter)': real levels, and the change in words."""
+def _hum_change_words(ch: str, before: float, after: float, heard: float | None = None) -> str:
+    """'left: −47.1 → −96.3 dBV (49.2 dB quieter)': real levels, and the change in words; with
+    ``heard`` (the change of how far it stands above hearing) when that tells another story."""
+    words = _total_change_words(ch, before, after)
+    if heard is not None and abs(heard - (after - before)) >= 1.0 and after > HUM_FLOOR_DBV:
+        how = f"{-heard:.1f} dB less" if heard < 0 else f"{heard:.1f} dB more"
+        words += f" [{how} above hearing at the seat]"
+    return words
+
+
+def _total_change_words(ch: str, before: float, after: float) -> str:
     if before <= HUM_FLOOR_DBV and after <= HUM_FLOOR_DBV:
         return f"hum {ch}: none above {HUM_FLOOR_DBV:.0f} dBV before or after"
     d = after - before
@@ -137,7 +146,8 @@ def _suggestion_lines(i: int, e: Evaluation, plan: Plan, text: str, name: str) -
     """Suggestion ``i``: its title, its predicted effect and its diff."""
     out = []
     hum = "; ".join(
-        _hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch]) for ch in e.hum_change_db
+        _hum_change_words(ch, e.hum_before_dbv[ch], e.hum_after_dbv[ch], e.heard_change_db.get(ch))
+        for ch in e.hum_change_db
     )
     out.append(f"{i}. {e.candidate.title}  [answers {e.candidate.reason}]")
     cleared = f"clears {len(e.cleared)} finding" + ("" if len(e.cleared) == 1 else "s")

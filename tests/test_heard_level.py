@@ -1,0 +1,41 @@
+"""How far a channel's hum stands above hearing, as the advice judges a change
+(groundcheck/advice/hearing.heard_level): the power sum of its lines' margins over the
+threshold, worked by hand here."""
+
+import math
+from types import SimpleNamespace
+
+import pytest
+
+from groundcheck.advice.hearing import heard_level
+from groundcheck.advice.report import _hum_change_words
+
+
+def _result(*margins):
+    rows = [{"frequency_hz": 50.0 * (i + 1), "margin_db": m} for i, m in enumerate(margins)]
+    channel = SimpleNamespace(spectrum=rows)
+    return SimpleNamespace(hum=SimpleNamespace(channels={"left": channel}))
+
+
+def test_two_lines_10_db_over_hearing_stand_13_db_over_it_together():
+    # 10·log10(10^1 + 10^1) = 10 + 10·log10(2) = 13.0103 dB; a line with no hum counts nothing
+    assert heard_level(_result(10.0, 10.0, None), "left") == pytest.approx(10 + 10 * math.log10(2))
+
+
+def test_a_line_far_below_hearing_barely_moves_the_level():
+    # 10·log10(10^2 + 10^-4) = 20.0000043 dB
+    assert heard_level(_result(20.0, -40.0), "left") == pytest.approx(20.0000043, abs=1e-6)
+
+
+def test_without_a_listening_verdict_there_is_no_level():
+    assert heard_level(_result(None, None), "left") is None
+    assert heard_level(SimpleNamespace(hum=None), "left") is None
+
+
+def test_the_suggestion_says_when_what_is_heard_changes_more_than_the_total():
+    # an outside technician's reservoir-return fix: 0.7 dB off the total, 23 dB off what is heard
+    words = _hum_change_words("left", -61.8, -62.5, -23.2)
+    assert words == (
+        "hum left: -61.8 dBV → -62.5 dBV (0.7 dB quieter) [23.2 dB less above hearing at the seat]"
+    )
+    assert "above hearing" not in _hum_change_words("left", -61.8, -62.5, -0.9)
