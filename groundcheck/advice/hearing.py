@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import math
 
+from ..physics.humsettings import QUIET_MARGIN_DB
+from ..physics.humsettings import far_below_hearing as _far_below
 from ..rules.catalogue import RULES
 from ..rules.results import Result
 from ..rules.rule_families import HUM
@@ -25,16 +27,9 @@ __all__ = [
 HUM_FLOOR_DBV = -140.0
 
 
-#: a channel whose hum stays this far below the threshold of hearing at the listener's seat (dB,
-#: at every harmonic) after a change is not made louder by it in any way that matters: the model's
-#: figures are estimates, and 20 dB is the project's own margin for them (an outside reviewer's
-#: pin-1-to-chassis fix was refused for 0.1 dB on a channel 60 dB below hearing)
-QUIET_MARGIN_DB = 20.0
-
-
 def far_below_hearing(result: Result, channel: str) -> bool:
-    """Whether ``channel``'s hum in ``result`` is judged inaudible at the listener's seat with at
-    least :data:`QUIET_MARGIN_DB` to spare (False without a listening verdict).
+    """Whether ``channel``'s hum in ``result`` is far below hearing at the seat
+    (:func:`groundcheck.physics.humsettings.far_below_hearing`).
 
     Parameters:
         result: an analysis.
@@ -44,13 +39,7 @@ def far_below_hearing(result: Result, channel: str) -> bool:
     References:
         ISO 226:2003 (the threshold the margin is read against).
     """
-    h = result.hum.channels.get(channel) if result.hum is not None else None
-    return (
-        h is not None
-        and h.audible is False
-        and h.margin_db is not None
-        and h.margin_db <= -QUIET_MARGIN_DB
-    )
+    return _far_below(result.hum, channel)
 
 
 def heard_level(result: Result, channel: str) -> float | None:

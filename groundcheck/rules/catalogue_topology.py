@@ -39,7 +39,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "instead of a fault when what it puts at the stage's output — the source's AC current "
         "times the transfer resistance to the stage's pair times the stage's gain, at most the "
         "hum budget's worst-case level of the source at the channel — is below the contributor "
-        "level ('--hum-level', -100 dBV by default).",
+        "level ('--hum-level', -100 dBV by default), and for a leakage current when the "
+        "channel's hum stays 20 dB or more below hearing at the listener's seat (a device's "
+        "leakage going home through the links is the installation's, not a wiring mistake).",
         "The current's voltage drop across the shared conductor appears at the stage's input "
         "as if it were signal: rectifier charging current gives hum at twice the mains "
         "frequency and a buzz of its harmonics.",

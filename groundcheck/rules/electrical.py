@@ -11,6 +11,7 @@ from typing import TYPE_CHECKING
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, joins_devices
 from ..physics.sources import plan_sources
+from ..physics.humsettings import QUIET_MARGIN_DB, far_below_hearing
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -81,6 +82,12 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             "stage_gain_db": row.stage_gain,
         }
         below, heard = _weighed(s, row, channels.get(row.stage), figures, amps)
+        if not below and row.source in leak and far_below_hearing(s.hum, channels.get(row.stage)):
+            # a leakage current's way home through the links is the installation's, not a wiring
+            # mistake of the equipment; heard nowhere, it is a note
+            ch = channels.get(row.stage)
+            below = True
+            heard = f"; the {ch} channel's hum stays {QUIET_MARGIN_DB:g} dB or more below hearing"
         out.append(
             Finding(
                 "GC102",
