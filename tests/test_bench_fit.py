@@ -138,6 +138,16 @@ def test_a_line_nothing_in_the_plan_makes_is_unexplained(tmp_path):
     assert "150 Hz (none planned)" in finding.message
 
 
+def test_an_unplanned_line_far_below_the_contributor_level_is_no_finding(tmp_path):
+    # a line nothing in the plan makes, at 1e-8 V (-160 dBV, far below the -100 dBV contributor
+    # level: a quantisation product of a 24-bit file), is reported in the rows but makes no GC405
+    result = _result("guitar-head.gplan")
+    hum = result.hum.channels["guitar"]
+    spectrum = _spectrum(hum, {}, False)
+    rec = _record(tmp_path, result, "guitar", spectrum, extra={150.0: 1e-8})
+    assert not [f for f in rec.findings if f.code == "GC405" and "150 Hz" in f.message]
+
+
 def test_the_fit_is_the_weighted_least_squares_worked_by_hand(tmp_path):
     # the guitar head's two mechanisms have lines of their own (50 Hz; 100 Hz and up), so each
     # scale is the relative-weighted least-squares solution of one column: a = Σ(p/m) / Σ(p/m)²

@@ -15,7 +15,7 @@ import numpy as np
 
 from ..core.caution import CAUTION
 from ..core.errors import Location
-from ..core.units import db_of_ratio
+from ..core.units import db_of_ratio, dbv
 from ..physics.hearing import heard_threshold, spl_of
 from ..rules.bench import HUM_MARGIN_DB, BenchFacts, MeasuredHum, bond_verdict
 from ..rules.registry import functions
@@ -242,13 +242,15 @@ def compare_channel(result, meas: Measured, channel: str) -> ChannelBench:
     )
 
 
-def _hum_facts(ch: ChannelBench, meas: Measured) -> MeasuredHum:
+def _hum_facts(ch: ChannelBench, meas: Measured, floor_dbv: float) -> MeasuredHum:
+    """A channel's recorded lines above the plan; a line the plan predicts nothing at counts only
+    from ``floor_dbv`` (the contributor level: a quantisation product at -149 dBV is no hum)."""
     above = []
     for r in ch.rows:
         if not r.above_noise:
             continue
         if r.predicted is None or r.predicted <= 0:
-            if r.unexplained:
+            if r.unexplained and r.measured > 0 and dbv(r.measured) >= floor_dbv:
                 above.append((round(r.frequency_hz, 2), None))
         elif db_of_ratio(r.measured / r.predicted) > HUM_MARGIN_DB:
             above.append(
@@ -284,7 +286,7 @@ def bench_record(result, meas: Measured | None, channel: str | None, bonds=()) -
     if meas is not None:
         ch = compare_channel(result, meas, channel)
         channels.append(ch)
-        hum_facts = (_hum_facts(ch, meas),)
+        hum_facts = (_hum_facts(ch, meas, result.options.contributor_level),)
         notes += _recording_notes(result, meas)
     facts = BenchFacts(tuple(bonds), hum_facts)
     findings = [f for r in functions("bench") for f in r.func(facts)]

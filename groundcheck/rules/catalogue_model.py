@@ -81,8 +81,9 @@ MODEL_ENTRIES: list[Rule] = [
         MODEL,
         "warning",
         "A channel's recorded hum (the bench command) at a harmonic of the mains more than 6 "
-        "dB above the plan's prediction, with the mechanism the fit of the plan's spectra "
-        "points at.",
+        "dB above the plan's prediction (a line the plan predicts nothing at, from the "
+        "contributor level, -100 dBV by default), with the mechanism the fit of the plan's "
+        "spectra points at.",
         "The build differs from the plan: a conductor or joint is not as planned, a loop "
         "exists that the plan does not describe, or a field source is closer than planned.",
         "Inspect the conductors the finding names first (the fit's suspect), re-measure their "
