@@ -38,8 +38,12 @@ from .returns import lost_wired_returns
 PE_FAULT = "protective-earth fault"
 #: the rejection of a change that brings a danger (the combined set tries it again last)
 ADDS_DANGER = "it would add a danger finding"
+#: how a rejection for a louder channel begins (the combined set tries such changes again last: on
+#: the plan as changed they may no longer be louder)
+MAKES_LOUDER = "it would make the "
 
 __all__ = [
+    "MAKES_LOUDER",
     "Evaluation",
     "evaluate",
     "far_below_hearing",
@@ -313,7 +317,7 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
         # that is no hum mechanism (a shared return 'cleared' while the channel gets louder is
         # no gain: an outside builder was offered a socket panel 3.8 dB louder for one GC102)
         ch, d = max(louder.items(), key=lambda kv: kv[1])
-        ev.rejected = f"it would make the {ch} hum {d:.1f} dB louder"
+        ev.rejected = f"{MAKES_LOUDER}{ch} hum {d:.1f} dB louder"
     elif score <= 1e-9 and safety:
         # a danger or a protective-earth fault cleared (and no danger brought) is never "no
         # gain", whatever hum findings it moves

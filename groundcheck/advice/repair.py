@@ -26,7 +26,7 @@ from ..rules.catalogue import RULES, severity_rank
 from .budget import Clock
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
-from .evaluation import ADDS_DANGER, HUM_FLOOR_DBV, Evaluation, evaluate
+from .evaluation import ADDS_DANGER, HUM_FLOOR_DBV, MAKES_LOUDER, Evaluation, evaluate
 from .fixes import NOT_TRIED
 from .merge import merge_into
 
@@ -189,6 +189,9 @@ def greedy(
     # a change that brought a danger on the plan as it was may not on the plan as changed (a bond
     # whose wire could not survive a fault the installation's RCD now clears): tried last
     useful += [e for e in evs if (e.rejected or "").startswith(ADDS_DANGER)]
+    # a change that was louder on the plan as it was may help on the plan as changed (sockets
+    # insulated once the supply's return no longer runs on the bus they bypassed): tried after
+    useful += [e for e in evs if (e.rejected or "").startswith(MAKES_LOUDER)]
     for i, e in enumerate(useful):
         if len(chosen) >= MAX_STEPS or not current.findings or not clock.fits():
             break
