@@ -54,3 +54,32 @@ def test_the_builders_fixed_lounge_has_no_fault_left_for_leakage_heard_nowhere()
     # an audible channel stays a fault
     first = analyze(load(FIELD / "lounge-system.gplan"), Options())
     assert [f for f in first.findings if f.code == "GC102" and f.severity == "fault"]
+
+
+def test_sockets_louder_before_the_return_fix_are_insulated_after_it():
+    # the preamp's bolted sockets carry part of the supplies' return currents past the bus, so
+    # insulating them alone makes the hum louder (rejected); once those returns are wired as the
+    # trade wires them (the reservoir's to the centre tap, the right bus to the star by its own
+    # wire, the heater's return to its own reservoir) they only close loops, and the combined set
+    # takes them
+    from groundcheck.advice.candidates import candidates
+    from groundcheck.advice.evaluation import MAKES_LOUDER, evaluate
+    from groundcheck.advice.repair import greedy
+
+    path = FIELD / "valve-line-pre.gplan"
+    plan, text = load(path), path.read_text(encoding="utf-8")
+    before = analyze(plan, Options())
+    picked = [
+        c
+        for c in candidates(plan, before, text)
+        if c.title.startswith(("join ht_ct straight", "take bus_r to star by its own wire (bus2)"))
+        or c.title.startswith(("join htr_ret straight to h_res_neg", "insulate every socket"))
+    ]
+    evs = [evaluate(text, plan, before, c, Options(), path.parent, path) for c in picked]
+    panel = [e for e in evs if e.candidate.title.startswith("insulate every socket")]
+    join = [e for e in evs if e.candidate.element == "ct_lead"]
+    assert panel and join and panel[0].rejected.startswith(MAKES_LOUDER), panel[0].rejected
+    assert not join[0].rejected
+    chosen, final, _ = greedy(plan, text, Options(), path.parent, path, evs=evs, before=before)
+    titles = [e.candidate.title for e in chosen]
+    assert join[0].candidate.title in titles and titles[-1] == panel[0].candidate.title, titles
