@@ -98,3 +98,16 @@ def test_twisting_the_heater_pair_is_offered_and_brings_no_contributor_of_its_ow
     (twist,) = [e for e in a.evs if e.candidate.action == "twist"]
     assert not twist.rejected, twist.rejected
     assert twist.hum_change_db["main"] < -5.0 and twist.introduced == []
+
+
+def test_compare_names_the_lifted_send_screen_worse_and_nothing_else_by_a_loop_number():
+    # the builder's probe (his never-offer 3, done by hand): the send screen lifted at the
+    # amplifier. The reverb's feedback is 6 dB worse; the loops are numbered anew in the probe, so
+    # a finding named 'loop 2' in one plan is another loop's in the other: compared by members,
+    # no pickup finding is called worse by its number alone
+    from groundcheck.advice.compare import compare
+
+    a = analyze(load(FIELD / "combo-tn.gplan"))
+    b = analyze(load(FIELD / "probe-lift-send-screen.gplan"))
+    worse = compare(a, b)["findings"]["worse"]
+    assert [f["code"] for f in worse] == ["GC306"], worse

@@ -39,3 +39,16 @@ def test_the_suggestion_says_when_what_is_heard_changes_more_than_the_total():
         "hum left: -61.8 dBV → -62.5 dBV (0.7 dB quieter) [23.2 dB less above hearing at the seat]"
     )
     assert "above hearing" not in _hum_change_words("left", -61.8, -62.5, -0.9)
+
+
+def test_a_change_rejected_as_louder_says_what_got_louder():
+    # judged where it is heard, the words say so and give the total's own change beside it (a
+    # reviewer read '5.2 dB louder' for a change whose total got 0.2 dB quieter)
+    from groundcheck.advice.evaluation import _louder_words
+
+    said = _louder_words("left", 5.2, -0.2, True)
+    assert said == (
+        "it would make the left hum louder where it is heard: 5.2 dB more above hearing at the "
+        "seat (its total 0.2 dB quieter)"
+    )
+    assert _louder_words("left", 0.7, 0.7, False) == "it would make the left hum 0.7 dB louder"

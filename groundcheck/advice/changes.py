@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from functools import cached_property
 from pathlib import Path
 
-from ..model.kinds import PROTECTIVE, joins_devices, shield_like
+from ..model.kinds import PROTECTIVE, is_fastening_kind, joins_devices, shield_like
 from ..model.records import Plan
 from ..rules.results import Result
 from .edits import Edit, PlanTexts, shown_path
@@ -255,6 +255,8 @@ def reroute(
     st = ctx.statement(c) if c is not None else None
     if c is None or st is None or shield_like(c) or to == end:
         return None
+    if is_fastening_kind(c.kind):
+        return None  # a bolt holds a point to the metal under it: it runs nowhere else
     if not ctx.same_file(st, to):
         return None
     items = ctx.src.ends(st)

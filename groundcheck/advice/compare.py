@@ -3,7 +3,9 @@ and an installation's outlet-pair voltages."""
 
 from __future__ import annotations
 
+import dataclasses
 import json
+import re
 
 from ..rules.results import Result
 from ..core.caution import CAUTION
@@ -14,16 +16,29 @@ from .fixes import identity
 
 __all__ = ["compare", "compare_text", "compare_json"]
 
+_LOOP = re.compile(r"^loop (\d+)$")
 
-def _matched(before: list, after: list) -> dict[str, list]:
+
+def _by_members(f, loops: list):
+    """``f`` with each 'loop N' it names written as the loop's conductors: loops are numbered as
+    each plan lists them, so loop 2 of one plan may be loop 3 of the other."""
+    names = []
+    for e in f.elements:
+        m = _LOOP.match(e)
+        n = int(m[1]) if m else 0
+        names.append(f"loop of {', '.join(sorted(loops[n - 1]))}" if 0 < n <= len(loops) else e)
+    return dataclasses.replace(f, elements=tuple(names)) if names != list(f.elements) else f
+
+
+def _matched(before: list, after: list, loops_before=(), loops_after=()) -> dict[str, list]:
     """Findings fixed, kept and introduced, each keyed by its stable identity (``fixes.identity``:
     code, elements, their roles, the channel).  Findings that share one identity are counted, never
     merged: two before and one after is one kept and one fixed, so an introduced finding cannot
     hide behind a fixed one of the same key."""
     groups: dict[tuple, tuple[list, list]] = {}
-    for side, findings in ((0, before), (1, after)):
+    for side, findings, loops in ((0, before, loops_before), (1, after, loops_after)):
         for f in findings:
-            groups.setdefault(identity(f), ([], []))[side].append(f)
+            groups.setdefault(identity(_by_members(f, loops)), ([], []))[side].append(f)
     out: dict[str, list] = {"fixed": [], "kept": [], "introduced": [], "worse": []}
     for key in sorted(groups, key=repr):
         b, a = groups[key]
@@ -75,7 +90,12 @@ def _db(v):
 
 def compare(before: Result, after: Result) -> dict:
     """What changed from ``before`` to ``after`` (plain data)."""
-    matched = _matched(before.findings, after.findings)
+    matched = _matched(
+        before.findings,
+        after.findings,
+        [info.loop.edges for info in before.loops],
+        [info.loop.edges for info in after.loops],
+    )
     row = lambda f: {"code": f.code, "severity": f.severity, "message": f.message}  # noqa: E731
     return clean(
         {

@@ -293,6 +293,22 @@ def _faults_not_of_hum(k0: dict, k1: dict) -> int:
     return cleared - brought
 
 
+def _louder_words(ch: str, d: float, total: float, heard: bool) -> str:
+    """Why a change is rejected as louder: the total's change, or, where the plan judges what is
+    heard, how much more the hum stands above hearing, with the total's change beside it."""
+    if not heard:
+        return f"{MAKES_LOUDER}{ch} hum {d:.1f} dB louder"
+    said = (
+        "unchanged"
+        if abs(total) < 0.05
+        else (f"{total:.1f} dB louder" if total > 0 else f"{-total:.1f} dB quieter")
+    )
+    return (
+        f"{MAKES_LOUDER}{ch} hum louder where it is heard: {d:.1f} dB more above hearing at the "
+        f"seat (its total {said})"
+    )
+
+
 def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) -> None:
     """The hum change and score of a candidate that passed the safety checks; rejected when it
     makes a channel louder without clearing a danger or fault, or gains nothing."""
@@ -317,7 +333,7 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
         # that is no hum mechanism (a shared return 'cleared' while the channel gets louder is
         # no gain: an outside builder was offered a socket panel 3.8 dB louder for one GC102)
         ch, d = max(louder.items(), key=lambda kv: kv[1])
-        ev.rejected = f"{MAKES_LOUDER}{ch} hum {d:.1f} dB louder"
+        ev.rejected = _louder_words(ch, d, ev.hum_change_db[ch], ch in ev.heard_change_db)
     elif score <= 1e-9 and safety:
         # a danger or a protective-earth fault cleared (and no danger brought) is never "no
         # gain", whatever hum findings it moves

@@ -22,7 +22,7 @@ from pathlib import Path
 
 from ..analysis import Options, Result, analyze
 from ..model.records import Plan
-from ..rules.catalogue import RULES, severity_rank
+from ..rules.catalogue import RULES, protective_earth_rule, severity_rank
 from .budget import Clock
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
@@ -84,14 +84,18 @@ def suggest(
         before = clock.timed(analyze, plan, options)
         clock.first = clock.spent.pop()
     # answers to the most serious findings first (the worst severity their rule found in this
-    # plan, else the catalogue's), so a short budget tries them
+    # plan, else the catalogue's; of one severity, the protective earth's first), so a short
+    # budget tries them
     found: dict[str, int] = {}
     for f in before.findings:
         found[f.code] = min(found.get(f.code, 9), severity_rank(f.severity))
-    cands = sorted(
-        candidates(plan, before, text),
-        key=lambda c: found.get(c.reason, severity_rank(RULES[c.reason].severity)),
-    )
+
+    def urgency(c: Candidate) -> tuple:
+        code = c.reason.split(",")[0]
+        rank = found.get(code, severity_rank(RULES[code].severity))
+        return rank, not protective_earth_rule(code)
+
+    cands = sorted(candidates(plan, before, text), key=urgency)
     free_left = sum(1 for c in cands if _free(c))
     left, late, evs = len(cands) - free_left, False, []
     for i, c in enumerate(cands):
