@@ -83,3 +83,38 @@ def test_sockets_louder_before_the_return_fix_are_insulated_after_it():
     chosen, final, _ = greedy(plan, text, Options(), path.parent, path, evs=evs, before=before)
     titles = [e.candidate.title for e in chosen]
     assert join[0].candidate.title in titles and titles[-1] == panel[0].candidate.title, titles
+
+
+def test_the_preamps_own_glass_fuse_warning_is_the_lounges_too():
+    # GC211 (breaking capacity not stated, a warning in the preamp's own plan) was lost in the
+    # lounge: only the device's dangers and faults were carried
+    r = analyze(load(FIELD / "lounge-system.gplan"), Options(hum=False))
+    (f,) = [f for f in r.findings if f.code == "GC211"]
+    assert f.severity == "warning" and f.message.startswith("pre's own wiring")
+
+
+def test_no_candidate_runs_a_bolt_across_the_case():
+    # an outside reviewer was offered 'take pre.l_out_sleeve to pre.star by its own wire
+    # (pre.l_out_nut)': its diff moved the socket's bolt 214 mm onto the star tag, with no wire
+    from groundcheck.advice.candidates import candidates
+    from groundcheck.model.kinds import is_fastening_kind
+
+    path = FIELD / "lounge-system.gplan"
+    plan = load(path)
+    before = analyze(plan, Options())
+    kinds = {c.name: c.kind for c in plan.conductors}
+    moved = [
+        c.title
+        for c in candidates(plan, before, path.read_text(encoding="utf-8"))
+        if c.action in ("move", "join") and is_fastening_kind(kinds.get(c.element, "wire"))
+    ]
+    assert moved == []
+
+
+def test_no_contributor_fix_line_offers_a_balanced_link_or_a_lift_to_this_lounge():
+    # the recheck found GC301 on the computer's cord still advising 'balanced interconnect or
+    # ground-lift network' for bought, unbalanced equipment
+    r = analyze(load(FIELD / "lounge-fixed-by-builder.gplan"), Options())
+    lines = [f.fix for f in r.findings if f.code == "GC301"]
+    assert [x for x in lines if "pc.cord" in x]
+    assert not [x for x in lines if "balanced interconnect" in x or "break the loop" in x], lines

@@ -234,8 +234,9 @@ def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
     if cond is not None and cond.role == PROTECTIVE:
         return (
             f"the drop along protective conductor {element} reaches the stage through a loop: "
-            "break the loop on the signal side (balanced interconnect or ground-lift network); "
-            "never lift the protective earth"
+            "plug the devices the loop's links join into one outlet or strip, so that it no "
+            "longer runs through the building's earth wiring (a balanced link only between "
+            "balanced sockets); never lift the protective earth"
         )
     if source in loop_driven and cond is not None and joins_devices(cond):
         if cond.balanced:
@@ -245,16 +246,17 @@ def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
                 "that it stays out of the signal grounds; never lift the protective earth"
             )
         return (
-            f"{source} drives current round the loop along the shield of {element}: use a "
-            "balanced interconnect (its shield on the chassis where it enters), or a ground-lift "
-            "network on the signal side; never lift the protective earth"
+            f"{source} drives current round the loop along the shield of {element}, the signal's "
+            "return on an unbalanced link, which stays: plug the devices it joins into one outlet "
+            "or strip (a balanced link only between balanced sockets, a ground-lift network only "
+            "in equipment of your own build); never lift the protective earth"
         )
     if source in loop_driven:
         return (
             f"{source} drives current round a loop through {element}, between an interconnect's "
-            "shield and the protective earth: land that shield on the chassis where it enters "
-            "('shield-to chassis'), or break the loop on the signal side; never lift the "
-            "protective earth"
+            "shield and the protective earth: plug the devices it joins into one outlet or strip, "
+            "or, on a balanced link, land its shield on the chassis where it enters "
+            "('shield-to chassis'); never lift the protective earth"
         )
     return f"move the {source} current off {element}: give it a return path of its own"
 

@@ -101,8 +101,9 @@ def placed_supply_findings(
 
 def _reported(there, alone) -> list[tuple[Finding, bool]]:
     """The protective-earth findings a device gets on the installation's supply that its own
-    plan does not give, and its own dangers and faults (the installation's too): each with
-    whether its own plan finds it too."""
+    plan does not give, and its own dangers, faults and warnings (the installation's too: a glass
+    fuse whose breaking capacity is not stated was lost in the installation): each with whether its
+    own plan finds it too."""
     mine = {(f.code, f.elements) for f in alone}
     return [
         (f, (f.code, f.elements) in mine)
@@ -110,7 +111,7 @@ def _reported(there, alone) -> list[tuple[Finding, bool]]:
         if protective_earth_rule(f.code)
         and (
             (f.code, f.elements) not in mine
-            or severity_rank(f.severity) <= severity_rank("fault")
+            or severity_rank(f.severity) <= severity_rank("warning")
         )
     ]
 
