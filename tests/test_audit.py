@@ -510,3 +510,15 @@ def test_a_protective_stud_that_only_takes_another_wire_is_a_fault():
     assert _gc202(BASE.replace("wire bond: star to gnd", "wire bond: star to pe_stud")) == [
         "fault"
     ]
+
+
+def test_a_lid_bonded_on_its_own_does_not_keep_the_deck_earthed():
+    # the lid has a protective wire of its own from the inlet, the deck only the stud through the
+    # transformer's foot: taking the transformer out still unearths the deck, a danger
+    lid = (
+        "metal lid: steel 1 mm, 300 x 200 mm, touchable\n"
+        "point lid_stud: stud, at 20,20 on lid\n"
+        "wire lid_pe: mains.pe to lid_stud, 300 mm, 1.0 mm2, protective\n"
+        "bolt lid_nut: lid_stud to lid\n"
+    )
+    assert _gc202(TRANSFORMER_FOOT + lid) == ["danger"]

@@ -335,3 +335,33 @@ def test_the_supplys_new_attributes_are_read_with_clear_errors(tmp_path, supply,
         load(tmp_path / "stage.gplan")
     (err,) = e.value.errors
     assert says in str(err) and err.location.line == 2
+
+
+def test_a_bought_device_behind_a_transformer_keeps_gc221_when_the_breaker_is_stated(tmp_path):
+    # the stated breaker checks the devices on the building's outlets (GC208 at each); one behind
+    # a step-down transformer is not checked by it, so GC221 still names it: stating a breaker must
+    # not silence a TT supply with no RCD
+    room = (
+        'plan "studio"\n'
+        "supply 230 V 50 Hz, system TT, electrode 200 ohm, breaker 16 A B\n"
+        "point met: earthing-terminal\npoint wall: outlet\n"
+        "cable run: met to wall, 12 m, 2.5 mm2, cores L-N-PE\n"
+        "transformer sd: plugged wall, primary 230 V, secondary 120 V\n"
+        "device old: simple, plugged sd, cord 2 m 0.75 mm2, signal-ground chassis\n"
+    )
+    (tmp_path / "studio.gplan").write_text(room)
+    found = analyze(load(tmp_path / "studio.gplan"), Options(hum=False)).findings
+    (f,) = [x for x in found if x.code == "GC221"]
+    assert f.severity == "danger" and "old" in f.elements
+
+
+def test_the_bought_devices_touch_voltage_is_its_return_path_times_its_fault_current(tmp_path):
+    # the keyboard amplifier at the end of the reel, as above: the fault current returns through
+    # its cord's protective core, the reel's and the radial's (IEC 60228 maxima x 1.2 at 70 C):
+    # 2 m x 26 + 50 m x 19.5 + 20 m x 7.41 mohm/m, x 1.2 = 0.0624 + 1.17 + 0.17784 = 1.41024 ohm.
+    # Its touch voltage is that times its current (TN: no electrode in it), at most
+    # 230 x 1.41024 / 3.1705 = 102.30 V (the loop by hand, above)
+    (f,) = _bought(tmp_path, "loop-impedance 0.35 ohm, breaker 16 A B", "reel_out")[0]
+    touch, current = f.figures["touch_voltage_v"], f.figures["fault_current_a"]
+    assert touch / current == pytest.approx(1.41024, rel=1e-3)
+    assert 95.0 <= touch <= 102.31

@@ -9,6 +9,7 @@ from typing import TYPE_CHECKING
 
 from ..physics.fault_loop import external_loop
 from ..physics.safety import TOUCH_LIMIT
+from ..model.installation import transformer_feeds
 from ..model.records import Plan
 from .catalogue import Finding
 from .context import AuditContext
@@ -102,6 +103,22 @@ def _electrode_in_tt(plan: Plan) -> list[Finding]:
     )
 
 
+def _unchecked_devices(plan: Plan) -> list[str]:
+    """The class I devices with no plan of their own whose disconnection nothing checks: all of
+    them, or with the supply's breaker stated those behind a transformer (GC208 checks the rest
+    at each device, :mod:`.simple_disconnection`)."""
+    own = {name for name, p in plan.device_plans if p.mains is not None}
+    simple = [
+        d
+        for d in plan.devices
+        if d.name not in own and d.equipment_class == "I" and d.plugged is not None
+    ]
+    if plan.supply.breaker is not None:
+        behind = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
+        simple = [d for d in simple if d.plugged in behind]
+    return sorted(d.name for d in simple)
+
+
 def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     """GC221 at a TT supply with no RCD stated when it feeds class I devices that have no plan of
     their own to check (simple devices): a fault in one is disconnected only if its own fuse opens
@@ -109,13 +126,8 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     supply's breaker stated each device's disconnection is checked instead (GC208,
     :mod:`.simple_disconnection`)."""
     supply = plan.supply
-    own = {name for name, p in plan.device_plans if p.mains is not None}
-    simple = sorted(
-        d.name
-        for d in plan.devices
-        if d.name not in own and d.equipment_class == "I" and d.plugged is not None
-    )
-    if supply.system != "TT" or supply.rcd is not None or supply.breaker is not None or not simple:
+    simple = _unchecked_devices(plan)
+    if supply.system != "TT" or supply.rcd is not None or not simple:
         return []
     # the external loop as a device's fault loop takes it (the stated electrode and the supply's
     # own part, or the TT default loop); at most its current: the cables, cord and device only

@@ -47,7 +47,7 @@ def pe_fastener(ctx: AuditContext) -> list[Finding]:
             holds += _clamped_part(ctx, v, fastenings[:1])
             if holds:
                 parts = _parts_held(ctx, v, holds, fastenings[:1])
-                danger = bool(parts) and not _earthed_without(ctx, v)
+                danger = bool(parts) and not _earthed_without(ctx, v, _removed(ctx, parts))
                 why = (
                     f"servicing {' or '.join(parts)} undoes the metal's only protective bond"
                     if danger
@@ -117,14 +117,32 @@ def _parts_held(ctx: AuditContext, stud: str, holds: list[str], own: list[str]) 
     return sorted(out)
 
 
-def _earthed_without(ctx: AuditContext, stud: str) -> bool:
-    """Whether the protective route still reaches a metal part from the earth terminal with
-    ``stud`` taken away (a second protective bond of its own keeps the metal earthed)."""
-    G = nx.Graph()
-    for u, w, k in ctx.G.edges(keys=True):
-        if k in ctx.route.keep and stud not in (u, w):
-            G.add_edge(u, w)
-    if PE_POINT not in G:
-        return False
-    reach = nx.node_connected_component(G, PE_POINT)
-    return bool(reach & ctx.metals)
+def _removed(ctx: AuditContext, parts: list[str]) -> list[str]:
+    """Of the parts a stud holds together, those taken out for service: all but the largest (the
+    chassis a transformer's foot or a bracket is bolted to)."""
+    if len(parts) < 2:
+        return parts
+
+    def area(name: str) -> float:
+        m = ctx.plan.metal(name)
+        return abs(m.size[0] * m.size[1]) if m is not None and m.size else 0.0
+
+    largest = max(parts, key=lambda n: (area(n), n))
+    return [n for n in parts if n != largest]
+
+
+def _earthed_without(ctx: AuditContext, stud: str, serviced: list[str]) -> bool:
+    """Whether every metal part the protective route reaches from the earth terminal, but the
+    ``serviced`` ones (taken out with the stud's nut), is still reached with ``stud`` taken away (a
+    second protective bond of its own keeps it earthed); a part earthed only through the stud is
+    lost with it, whatever else stays earthed."""
+
+    def reached(skip) -> set:
+        G = nx.Graph()
+        G.add_node(PE_POINT)
+        for u, w, k in ctx.G.edges(keys=True):
+            if k in ctx.route.keep and skip not in (u, w):
+                G.add_edge(u, w)
+        return nx.node_connected_component(G, PE_POINT) & ctx.metals
+
+    return reached(stud) >= reached(None) - set(serviced)
