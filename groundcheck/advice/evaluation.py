@@ -20,18 +20,13 @@ from ..core.units import dbv
 from ..language.loader import load_text, substituted
 from ..model.kinds import is_fastening_kind
 from ..model.records import Plan
+from ..physics.humsettings import far_below_hearing
 from ..rules.catalogue import RULES, severity_rank
 from ..rules.rule_families import HUM, PROTECTIVE_EARTH
 from .changes import Candidate
 from .edits import apply_edits, edited_texts
 from .fixes import identity
-from .hearing import (
-    HUM_FLOOR_DBV,
-    QUIET_MARGIN_DB,
-    far_below_hearing,
-    heard_changes,
-    share_only,
-)
+from .hearing import HUM_FLOOR_DBV, heard_changes, share_only
 from .returns import lost_wired_returns
 
 #: the key of :attr:`Evaluation.net` that counts protective-earth faults (among the faults)
@@ -46,11 +41,9 @@ __all__ = [
     "MAKES_LOUDER",
     "Evaluation",
     "evaluate",
-    "far_below_hearing",
     "HUM_FLOOR_DBV",
     "LOUDER_DB",
     "PE_TOLERANCE",
-    "QUIET_MARGIN_DB",
 ]
 
 
@@ -323,7 +316,7 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
     score -= sum(weight[severity_rank(k1[k].severity)] for k in k1.keys() - k0.keys())
     ev.score = score
     louder = {
-        ch: d for ch, d in judged.items() if d > LOUDER_DB and not far_below_hearing(after, ch)
+        ch: d for ch, d in judged.items() if d > LOUDER_DB and not far_below_hearing(after.hum, ch)
     }
     safety = ev.net.get("danger", 0) > 0 or (
         ev.net.get("danger", 0) == 0 and ev.net.get(PE_FAULT, 0) > 0

@@ -1,23 +1,20 @@
 """How the advice judges a change's hum: how far a channel stands above hearing at the
-listener's seat (the power sum of its lines' margins over the threshold), a channel far enough
-below hearing that a rise there is of no consequence, and a contributor that only crossed its
-share's line because the rest of the hum fell.
+listener's seat (the power sum of its lines' margins over the threshold), and a contributor that
+only crossed its share's line because the rest of the hum fell.  (A channel far enough below
+hearing that a rise there is of no consequence:
+:func:`groundcheck.physics.humsettings.far_below_hearing`.)
 """
 
 from __future__ import annotations
 
 import math
 
-from ..physics.humsettings import QUIET_MARGIN_DB
-from ..physics.humsettings import far_below_hearing as _far_below
 from ..rules.catalogue import RULES
 from ..rules.results import Result
 from ..rules.rule_families import HUM
 
 __all__ = [
     "HUM_FLOOR_DBV",
-    "QUIET_MARGIN_DB",
-    "far_below_hearing",
     "heard_level",
     "heard_changes",
     "share_only",
@@ -25,21 +22,6 @@ __all__ = [
 
 #: hum totals are compared down to this level, dBV: below it a change is of no consequence
 HUM_FLOOR_DBV = -140.0
-
-
-def far_below_hearing(result: Result, channel: str) -> bool:
-    """Whether ``channel``'s hum in ``result`` is far below hearing at the seat
-    (:func:`groundcheck.physics.humsettings.far_below_hearing`).
-
-    Parameters:
-        result: an analysis.
-        channel: a channel's name.
-    Returns:
-        True when a rise of its hum is of no consequence.
-    References:
-        ISO 226:2003 (the threshold the margin is read against).
-    """
-    return _far_below(result.hum, channel)
 
 
 def heard_level(result: Result, channel: str) -> float | None:

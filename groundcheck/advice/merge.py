@@ -13,7 +13,7 @@ import difflib
 
 from .edits import Edit
 
-__all__ = ["merge_into"]
+__all__ = ["merge_into", "overlap"]
 
 
 def merge_into(kept: list[Edit], more, text: str) -> tuple[list[Edit], tuple[Edit, ...]] | None:
@@ -35,7 +35,7 @@ def merge_into(kept: list[Edit], more, text: str) -> tuple[list[Edit], tuple[Edi
     rest = []
     lines = text.split("\n")
     for m in more:
-        hits = [i for i, k in enumerate(out) if _overlap(k, m)]
+        hits = [i for i, k in enumerate(out) if overlap(k, m)]
         if not hits:
             rest.append(m)
             continue
@@ -54,7 +54,8 @@ def merge_into(kept: list[Edit], more, text: str) -> tuple[list[Edit], tuple[Edi
     return out, tuple(rest)
 
 
-def _overlap(a: Edit, b: Edit) -> bool:
+def overlap(a: Edit, b: Edit) -> bool:
+    """Whether two edits touch a line in common (of one file)."""
     return a.file == b.file and a.line <= (b.last or b.line) and b.line <= (a.last or a.line)
 
 

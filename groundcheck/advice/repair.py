@@ -28,7 +28,7 @@ from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
 from .evaluation import ADDS_DANGER, HUM_FLOOR_DBV, MAKES_LOUDER, Evaluation, evaluate
 from .fixes import NOT_TRIED
-from .merge import merge_into
+from .merge import merge_into, overlap
 
 __all__ = [
     "Edit",
@@ -147,8 +147,7 @@ def advise(
 def _overlaps(edits, more) -> bool:
     """Whether any of ``more`` edits a line of a file that ``edits`` already edit (lines of a
     device's own plan and of the main plan are apart)."""
-    taken = {(e.file, n) for e in edits for n in range(e.line, (e.last or e.line) + 1)}
-    return any((e.file, n) in taken for e in more for n in range(e.line, (e.last or e.line) + 1))
+    return any(overlap(e, m) for e in edits for m in more)
 
 
 def _take_merged(chosen: list[Evaluation], before: list, after: list) -> None:
