@@ -224,41 +224,53 @@ def polygon_area(pts) -> float:
 
 def _slab_area(a: np.ndarray) -> float:
     """:func:`polygon_area` of an outline that crosses itself: by vertical slabs cut at every
-    vertex and crossing, the trapezoids between neighbouring edges weighted by |winding|."""
-    edges = [
-        (a[k], a[(k + 1) % len(a)]) for k in range(len(a)) if a[k][0] != a[(k + 1) % len(a)][0]
-    ]
-    xs = set(a[:, 0].tolist())
-    for i in range(len(edges)):
-        for j in range(i + 1, len(edges)):
-            x = _crossing_x(edges[i], edges[j])
-            if x is not None:
-                xs.add(x)
-    cuts = sorted(xs)
+    vertex and crossing, the trapezoids between neighbouring edges weighted by |winding| (the
+    slabs taken in blocks, every edge of a block's slabs at once)."""
+    q = np.roll(a, -1, axis=0)
+    keep = a[:, 0] != q[:, 0]
+    p, q = a[keep], q[keep]
+    cuts = np.unique(np.concatenate([a[:, 0], _crossings_x(p, q)]))
+    x0, x1 = cuts[:-1], cuts[1:]
+    x0, x1 = x0[x1 > x0], x1[x1 > x0]
+    dx, dy = q[:, 0] - p[:, 0], q[:, 1] - p[:, 1]
+    lo, hi = np.minimum(p[:, 0], q[:, 0]), np.maximum(p[:, 0], q[:, 0])
+    sense = np.where(dx > 0, 1, -1)
     total = 0.0
-    for x0, x1 in zip(cuts, cuts[1:]):
-        if x1 - x0 <= 0:
-            continue
-        xm = 0.5 * (x0 + x1)
-        rows = []
-        for p, q in edges:
-            lo, hi = min(p[0], q[0]), max(p[0], q[0])
-            if lo <= xm <= hi:
-                t0, t1 = (x0 - p[0]) / (q[0] - p[0]), (x1 - p[0]) / (q[0] - p[0])
-                rows.append(
-                    (
-                        p[1] + (q[1] - p[1]) * 0.5 * (t0 + t1),
-                        p[1] + (q[1] - p[1]) * t0,
-                        p[1] + (q[1] - p[1]) * t1,
-                        1 if q[0] > p[0] else -1,
-                    )
-                )
-        rows.sort()
-        w = 0
-        for (_, a0, a1, d), (_, b0, b1, _) in zip(rows, rows[1:]):
-            w += d
-            total += abs(w) * (x1 - x0) * ((b0 - a0) + (b1 - a1)) / 2
+    block = max(1, 400_000 // max(1, len(p)))
+    for s in range(0, len(x0), block):
+        total += _slab_block(p, dx, dy, lo, hi, sense, x0[s : s + block], x1[s : s + block])
     return float(total)
+
+
+def _slab_block(p, dx, dy, lo, hi, sense, x0, x1) -> float:
+    """The |winding|-weighted area of the slabs [x0, x1): in each, the edges through it sorted by
+    height; an edge not through a slab sorts last there with no sense (the senses of the edges
+    through a slab add up to nought, so the winding is nought past the last of them)."""
+    xm = 0.5 * (x0 + x1)
+    through = (lo[None, :] <= xm[:, None]) & (xm[:, None] <= hi[None, :])
+    t0 = (x0[:, None] - p[None, :, 0]) / dx[None, :]
+    t1 = (x1[:, None] - p[None, :, 0]) / dx[None, :]
+    y0 = np.where(through, p[None, :, 1] + dy[None, :] * t0, 0.0)
+    y1 = np.where(through, p[None, :, 1] + dy[None, :] * t1, 0.0)
+    mid = np.where(through, p[None, :, 1] + dy[None, :] * 0.5 * (t0 + t1), np.inf)
+    order = np.argsort(mid, axis=1, kind="stable")
+    y0, y1 = np.take_along_axis(y0, order, 1), np.take_along_axis(y1, order, 1)
+    w = np.cumsum(np.take_along_axis(np.where(through, sense[None, :], 0), order, 1), axis=1)
+    gaps = (y0[:, 1:] - y0[:, :-1]) + (y1[:, 1:] - y1[:, :-1])
+    return float(np.sum(np.abs(w[:, :-1]) * gaps * ((x1 - x0) / 2)[:, None]))
+
+
+def _crossings_x(p: np.ndarray, q: np.ndarray) -> np.ndarray:
+    """The x of every crossing of two of the segments p→q inside both (all pairs at once)."""
+    d = q - p
+    r = p[None, :, :] - p[:, None, :]  # r[i, j] = p_j − p_i
+    den = d[:, None, 0] * d[None, :, 1] - d[:, None, 1] * d[None, :, 0]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = (r[..., 0] * d[None, :, 1] - r[..., 1] * d[None, :, 0]) / den
+        u = (r[..., 0] * d[:, None, 1] - r[..., 1] * d[:, None, 0]) / den
+    inside = (den != 0) & (t > 1e-12) & (t < 1 - 1e-12) & (u > 1e-12) & (u < 1 - 1e-12)
+    i, j = np.nonzero(np.triu(inside, 1))
+    return p[i, 0] + t[i, j] * d[i, 0]
 
 
 #: polygons with at most this many corners are checked for crossings with plain floats
