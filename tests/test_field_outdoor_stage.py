@@ -54,11 +54,11 @@ def test_the_broken_earths_and_the_heads_own_dangers_are_reported():
     broken = {f.elements[0] for f in r.findings if f.code == "GC215" and f.severity == "danger"}
     assert {"bass", "spk_r"} <= broken
     own = {
-        f.code
-        for f in r.findings
-        if f.severity == "danger" and f.message.startswith("gtr's own wiring")
+        (f.code, f.severity) for f in r.findings if f.message.startswith("gtr's own wiring")
     }
-    assert {"GC206", "GC223"} <= own
+    # the head's 1 mm² inlet lead passes PVC's 160 °C only in the long bonding test (2 × the
+    # building's 16 A for 2 min): its path stays whole, a fault (GC223's catalogue entry)
+    assert {("GC206", "danger"), ("GC223", "fault")} <= own
 
 
 def test_the_combined_set_restores_every_broken_earth_and_clears_every_danger():

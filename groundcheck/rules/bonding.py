@@ -1,7 +1,12 @@
 """The product bonding test's verdict (GC223): a conductor of the protective path that would pass
 its insulation's short-time temperature limit carrying the test current, and a path whose voltage
 at the long test's current is over IEC 60950-1's limit for a protective device above 16 A (figures
-from :mod:`groundcheck.physics.bonding_test`)."""
+from :mod:`groundcheck.physics.bonding_test`).
+
+A danger when a conductor would melt in either test (the protective path opens) or passes its
+limit at the short test's 25 A minute, which every class I product must carry; a fault when only
+the long test's bound passes it (200 % of the breaker's or fuse's rating for two minutes: the path
+stays whole, its insulation may be damaged).  A path over 2.5 V at the long test is a danger."""
 
 from __future__ import annotations
 
@@ -14,6 +19,12 @@ if TYPE_CHECKING:
     from .electrical import Solved
 
 __all__ = ["rule_bonding_test"]
+
+#: what the temperature figure is (see physics.bonding_heat)
+_BOUND = (
+    " (a bound: the smaller of the rise with no cooling and the steady state in still air; a wire "
+    "cooled through its ends or given time by its insulation's warming stays cooler)"
+)
 
 INSULATION_WORDS = {
     "pvc": "of its PVC insulation",
@@ -41,9 +52,8 @@ def rule_bonding_test(s: Solved) -> list[Finding]:
     out = []
     for row in s.bonding.failures():
         t = tests[row.test]
-        reached = (
-            "would melt" if row.reached == float("inf") else f"would reach {row.reached:.0f} °C"
-        )
+        melts = row.reached == float("inf")
+        reached = "would melt" if melts else f"may reach up to {row.reached:.0f} °C"
         size = (
             f"use at least {row.thicker * 1e6:g} mm²"
             if row.thicker is not None
@@ -52,10 +62,11 @@ def rule_bonding_test(s: Solved) -> list[Finding]:
         out.append(
             Finding(
                 "GC223",
-                "danger",
+                "danger" if melts or row.test == "short" else "fault",
                 f"{row.conductor} ({row.area * 1e6:.3g} mm²) {reached} in the {t.name} bonding "
                 f"test ({row.current:.3g} A for {t.duration:g} s), over the {row.limit:g} °C "
-                f"short-time limit {INSULATION_WORDS.get(row.insulation, row.insulation)}",
+                f"short-time limit {INSULATION_WORDS.get(row.insulation, row.insulation)}"
+                + ("" if melts else _BOUND),
                 where.get(row.conductor, s.plan.mains.location),
                 (row.conductor,),
                 {k: v for k, v in row.as_dict().items() if v is not None and k != "conductor"},

@@ -354,13 +354,18 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "GC223",
         "pe-bonding-test",
         PROTECTIVE_EARTH,
-        "danger",
+        "fault",
         "Whether every conductor of the protective path carries the product standard's "
         "bonding-test current without passing its insulation's short-time temperature limit: 25 A "
-        "for 60 s (or 1.5 × the fuse rating when more), and 200 % of the fuse's rating for 120 s. "
-        "The temperature is bounded by the smaller of the adiabatic rise and the steady state in "
-        "still air. With a protective device above 16 A, the path's voltage at the long test's "
-        "current is held to 2.5 V.",
+        "for 60 s (or 1.5 × the fuse rating when more), and 200 % of the rating of the protective "
+        "device ahead of the equipment for 120 s (the supply's breaker when the plan or its "
+        "installation states one, since a fault ahead of the fuse is the breaker's to clear; "
+        "else the fuse). The temperature is bounded by the smaller of the adiabatic rise and the "
+        "steady state in still air. A fault when only the long test's bound passes the limit (the "
+        "path stays whole, its insulation may be damaged); a danger when a conductor would melt "
+        "in either test (the path opens) or passes its limit at the 25 A minute every class I "
+        "product must carry. With a protective device above 16 A, the path's voltage at the long "
+        "test's current is held to 2.5 V (a danger).",
         "A protective conductor that overheats in the bonding test can damage its insulation or "
         "open, and would do the same carrying a real fault current until the fuse opens.",
         "Use a thicker protective conductor (the finding names the smallest nominal size that "
@@ -368,6 +373,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "IEC 60065 15.2 and IEC 61010-1 6.5.2.4 (25 A, 1 min); IEC 60950-1:2005 2.6.3.4 (200 %, 2 "
         "min); IEC 60335-1 27.5 and IEC 62368-1 5.6.6.2 (from memory); IEC 60949 (adiabatic "
         "temperature); IEC 60364-5-54 Annex A (final temperatures)",
+        variants=("fault", "danger"),
         actions=("thicken",),
     ),
 ]
