@@ -131,9 +131,10 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
     bonds_of: dict[int, dict[str, list[str]]] = {}
     for node, chassis, k in crossing:
         bonds_of.setdefault(int(labels[idx[node]]), {}).setdefault(chassis, []).append(k)
-    # a class II device's ground is referenced through its links to the equipment it feeds: it
-    # floats by design, never "floating" (its own box has no chassis bond to make)
-    by_link = {int(labels[idx[node]]) for node in linked if _class_ii(ctx, node)}
+    # a class II or unplugged device's ground (a turntable, a passive step-up box) is referenced
+    # through its links to the equipment it feeds: it floats by design, never "floating" (its own
+    # box has no chassis bond to make)
+    by_link = {int(labels[idx[node]]) for node in linked if _referenced_by_links(ctx, node)}
     out = []
     for label in sorted(members, key=lambda k: min(members[k])):
         comp = sorted(members[label])
@@ -144,11 +145,17 @@ def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[s
     return out
 
 
-def _class_ii(ctx: AuditContext, node: str) -> bool:
-    """Whether ``node`` belongs to a placed class II device."""
+def _referenced_by_links(ctx: AuditContext, node: str) -> bool:
+    """Whether ``node`` belongs to a placed device whose ground is referenced by its links alone:
+    class II, or with no mains of its own and plugged into no outlet (a turntable whose motor has
+    its own supply, a passive step-up box: no protective earth to bond to)."""
     dev = ctx.plan.index.device_of(node)
     record = ctx.plan.index.devices.get(dev) if dev else None
-    return record is not None and record.equipment_class == "II"
+    if record is None:
+        return False
+    own = dict(ctx.plan.device_plans).get(dev)
+    unpowered = record.plugged is None and (own is None or own.mains is None)
+    return record.equipment_class == "II" or unpowered
 
 
 def _floating(ctx: AuditContext, comp: list[str], name: str) -> Finding:
