@@ -11,7 +11,8 @@ from typing import TYPE_CHECKING
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, joins_devices
 from ..physics.sources import plan_sources
-from ..physics.humsettings import QUIET_MARGIN_DB, far_below_hearing
+from ..physics.hearing import heard_threshold, spl_of
+from ..physics.humsettings import QUIET_MARGIN_DB, channel_listenings, far_below_hearing
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -82,12 +83,16 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             "stage_gain_db": row.stage_gain,
         }
         below, heard = _weighed(s, row, channels.get(row.stage), figures, amps)
-        if not below and row.source in leak and far_below_hearing(s.hum, channels.get(row.stage)):
+        ch = channels.get(row.stage)
+        if not below and row.source in leak and far_below_hearing(s.hum, ch):
             # a leakage current's way home through the links is the installation's, not a wiring
             # mistake of the equipment; heard nowhere, it is a note
-            ch = channels.get(row.stage)
             below = True
             heard = f"; the {ch} channel's hum stays {QUIET_MARGIN_DB:g} dB or more below hearing"
+        elif not below and row.source in leak:
+            quiet = _quiet_share(s, row, ch, amps)
+            if quiet is not None:
+                below, heard = True, quiet
         out.append(
             Finding(
                 "GC102",
@@ -212,6 +217,41 @@ def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | No
     if current is None:
         return whole
     return min(whole, current * abs(row.transfer) * 10 ** (row.stage_gain / 20))
+
+
+def _quiet_share(s: Solved, row, channel: str | None, amps: dict) -> str | None:
+    """Why a leakage current's share is of no consequence, or None: the level it puts at the
+    channel's output, at the listener's seat, stays :data:`QUIET_MARGIN_DB` or more below the
+    threshold of hearing at every frequency it has a line at (the lowest threshold of them taken,
+    as if all of it were there), whatever else the channel hears."""
+    level = _source_level(s, row, channel, amps)
+    listening = channel_listenings(s.plan, s.plan.stages, [channel]).get(channel)
+    lines = _lines(s).get(row.source)
+    if not level or listening is None or not listening.verdict or not lines:
+        return None
+    margin = spl_of(level, listening) - min(
+        heard_threshold(f, listening.background) for f in lines
+    )
+    if margin > -QUIET_MARGIN_DB:
+        return None
+    return (
+        f"; it puts about {dbv(level):.1f} dBV at the {channel} output, {-margin:.0f} dB below "
+        f"hearing at the seat, past the {QUIET_MARGIN_DB:g} dB margin the project keeps for its "
+        "estimates: heard nowhere, a note"
+    )
+
+
+def _lines(s: Solved) -> dict:
+    """Each hum source's frequencies with a line, Hz ({} without the rectifiers' figures)."""
+    if s.hum is None:
+        return {}
+    results = {r.name: r for r in s.hum.rectifiers}
+    if not all(r.name in results for r in s.plan.rectifiers):
+        return {}
+    return {
+        src.name: tuple(sorted(f for f, i in src.parts.items() if f > 0 and abs(i) > 0))
+        for src in plan_sources(s.plan, results, s.options.max_frequency)
+    }
 
 
 def _ac_currents(s: Solved) -> dict:
