@@ -136,6 +136,15 @@ class ChangeContext:
         p = self.points.get(point)
         return p is not None and p.location.file == st.loc.file
 
+    def file_name(self, name: str, st) -> str:
+        """``name`` as the file of statement ``st`` sees it: without the device's prefix when the
+        statement is in a placed device's own plan (a block inside it still shows its
+        placement's)."""
+        if st.loc.file == self.plan.file:
+            return name
+        dev = self.plan.index.device_of(name)
+        return name[len(dev) + 1 :] if dev and name.startswith(dev + ".") else name
+
     def statement(self, c):
         """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan
         (its name carries the device's prefix); None in an included file (edited in place it would
@@ -191,10 +200,22 @@ class ChangeContext:
 
 def local_name(model_name: str, label: str, target: str) -> str:
     """How ``target`` is written inside the statement whose element is ``model_name`` (local label
-    ``label``)."""
+    ``label``): relative to the innermost placement (or device) that holds both.
+
+    >>> local_name("phono.right.in_gnd", "in_gnd", "phono.star")
+    'star'
+    >>> local_name("right.in_gnd", "in_gnd", "right.k1")
+    'k1'
+    >>> local_name("right.in_gnd", "in_gnd", "star")
+    'star'
+    """
+    # the innermost scope that holds the target: the block placement's prefix, then each
+    # enclosing one (a device's own plan names its points without the device's prefix)
     prefix = model_name[: len(model_name) - len(label)]
-    if prefix and target.startswith(prefix):
-        return target[len(prefix) :]
+    while prefix:
+        if target.startswith(prefix):
+            return target[len(prefix) :]
+        prefix = prefix[: prefix.rstrip(".").rfind(".") + 1]
     return target
 
 
@@ -225,7 +246,7 @@ def delete_change(
     st = ctx.statement(c) if c is not None else None
     if c is None or joins_devices(c) or st is None or st.keyword != c.kind:
         return None  # (a conductor a 'device ...: simple' statement makes: bought equipment's)
-    note = block_note(c.name, st.label or "") if st.loc.file == ctx.plan.file else ""
+    note = block_note(ctx.file_name(c.name, st), st.label or "")
     return Candidate(
         title + note, reason, (ctx.src.delete(st),), ctx.protective(c), action=action, element=name
     )
@@ -284,7 +305,7 @@ def reroute(
     edit = ctx.src.replace(st, changes, drop_comment=True)
     if via:
         edit = dataclasses.replace(edit, new=re.sub(rf",\s*{_GONE}[ \t]*", "", edit.new))
-    note = block_note(c.name, label) if st.loc.file == ctx.plan.file else ""
+    note = block_note(ctx.file_name(c.name, st), label)
     return Candidate(
         title + note,
         reason,

@@ -30,7 +30,7 @@ def loop_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
                     ctx,
                     lp.open_at,
                     f"insulate {lp.open_at} from the metal (insulated socket or shoulder washers) "
-                    f"to open the loop closed by {lp.closed_by}",
+                    "so that no ground loop closes through it",
                     reason,
                     "insulate",
                 )
@@ -40,7 +40,7 @@ def loop_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
                 delete_change(
                     ctx,
                     lp.open_at,
-                    f"remove {lp.open_at} to open the loop closed by {lp.closed_by}",
+                    f"remove {lp.open_at} (it closes a ground loop)",
                     reason,
                 )
             )

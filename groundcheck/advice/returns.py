@@ -48,13 +48,13 @@ def _socket_end(c, ctx: ChangeContext) -> str | None:
     return pt.name if pt.kind in SOCKET_KINDS or lug else None
 
 
-def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: str, reason: str):
+def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, reason: str):
     if ctx.points[point].kind == "terminal":
         return delete_change(
             ctx,
             name,
             f"remove {name}, the bond of {point} (0 V) to {metal} (not protective: the protective "
-            f"earth does not run through it), to open the loop closed by {closed_by}",
+            "earth does not run through it), so that no ground loop closes through it",
             reason,
             "remove",
         )
@@ -62,7 +62,7 @@ def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, closed_by: 
         ctx,
         name,
         f"insulate {name}: {point} off {metal} (an insulated socket or shoulder washers), keeping "
-        f"its wired return, to open the loop closed by {closed_by}",
+        "its wired return, so that no ground loop closes through the fastening",
         reason,
         "insulate",
     )
@@ -84,7 +84,7 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
             if point is not None:
                 seen.add(name)
                 metal = c.a if c.a in ctx.metals else c.b
-                one = _insulate(ctx, name, point, metal, lp.closed_by, reason)
+                one = _insulate(ctx, name, point, metal, reason)
                 add(one)
                 if one is not None and one.action == "insulate":
                     panels.setdefault(metal, []).append((point, one))
@@ -181,6 +181,34 @@ def _guarded(plan: Plan, after: Plan) -> set[str]:
 
 def _components(G: nx.Graph) -> dict[str, frozenset]:
     return {n: comp for comp in map(frozenset, nx.connected_components(G)) for n in comp}
+
+
+def _earthed_metals(plan: Plan) -> set[str]:
+    """The metal parts joined, by any conductor (a lift network too), to the protective earth: a
+    plan's inlet earth, an installation's outlets and earthing terminal."""
+    G = nx.Graph()
+    for c in plan.conductors:
+        if c.connects and not can_open(c):
+            G.add_edge(c.a, c.b)
+    refs = {
+        p.name
+        for p in plan.points
+        if p.kind in ("outlet", "earthing-terminal")
+        or p.name == PE_POINT
+        or p.name.endswith("." + PE_POINT)
+    } | ({PE_POINT} if plan.mains is not None else set())
+    reached: set[str] = set()
+    for r in refs & set(G.nodes):
+        if r not in reached:
+            reached |= nx.node_connected_component(G, r)
+    return {m.name for m in plan.metals} & reached
+
+
+def metals_cut_loose(before: Plan, after: Plan) -> list[str]:
+    """Metal parts joined to the protective earth (through the signal ground or the links, say)
+    before a change and to nothing earthed after it: a screen or box left floating (a step-up box
+    whose every socket is insulated from it), which picks up what it should keep out."""
+    return sorted(_earthed_metals(before) - _earthed_metals(after))
 
 
 def lost_wired_returns(before: Plan, after: Plan) -> list[str]:
