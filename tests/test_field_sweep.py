@@ -43,6 +43,8 @@ PLANS = [
     "living-room-preamp/system.gplan",
     "garden-studio-tt/studio-original.gplan",
     "reverb-combo-barn/combo-tt.gplan",
+    "mc-phono-chain/chain.gplan",
+    "mc-phono-chain/phono.gplan",
 ]
 
 #: findings a change must never bring about: part of the signal ground unconnected (GC106,

@@ -51,3 +51,15 @@ def test_apply_writes_a_changed_copy_and_never_the_device_plan(cli, tmp_path):
     out.unlink()
     code, _, err = cli("suggest", str(path), "--apply", str(out))
     assert code == 2 and "fixed.supply-box.gplan exists" in err and not out.exists()
+
+
+def test_a_device_plan_statement_names_points_without_the_devices_prefix():
+    # a wire inside a block placed in a device's own plan, moved to the device's star: written
+    # "star" there (the device's prefix and the placement's dropped), never "phono.star", which
+    # that file does not know (the advisor once offered such edits as load errors)
+    from groundcheck.advice.changes import local_name
+
+    assert local_name("phono.right.in_gnd", "in_gnd", "phono.star") == "star"
+    assert local_name("phono.right.in_gnd", "in_gnd", "phono.right.k1") == "k1"
+    assert local_name("right.in_gnd", "in_gnd", "star") == "star"
+    assert local_name("in_gnd", "in_gnd", "star") == "star"
