@@ -2,6 +2,7 @@
 ngspice or a hand calculation here, or named where it is checked; and no Python value, exponent or
 empty cell in them on any example or field plan."""
 
+import functools
 import math
 import re
 from html.parser import HTMLParser
@@ -123,11 +124,25 @@ def test_the_pickup_table_of_a_loop_solved_by_hand():
     assert _value(row["loop current"]) == pytest.approx(emf / 0.040, rel=5e-3)
 
 
+@functools.lru_cache(maxsize=None)
+def _analysed(path):
+    """A plan's analysis and its report's two tables, once per test process (two tests read
+    them)."""
+    result = analyze(load(path))
+    page = html_report(result, None, None)
+    return result, {t: table(page, t) for t in ("rectifiers", "pickup")}
+
+
 def _tables(path) -> dict[str, list[dict]]:
-    page = html_report(analyze(load(path)), None, None)
-    return {t: table(page, t) for t in ("rectifiers", "pickup")}
+    return _analysed(path)[1]
 
 
+#: the tests that read each plan's tables run in one process, so each plan is analysed and
+#: rendered once
+SHARED = pytest.mark.xdist_group("html-tables")
+
+
+@SHARED
 @pytest.mark.parametrize(
     "path", [*EXAMPLES, *STUDIO, *FIELD], ids=lambda p: str(p.relative_to(ROOT))
 )
@@ -137,11 +152,11 @@ def test_the_tables_show_no_python_value_exponent_or_empty_cell(path):
     assert [c for c in cells if PYTHON.search(c) or re.search(r"\de[+-]?\d", c) or not c] == []
 
 
+@SHARED
 def test_every_plan_with_a_rectifier_or_a_loop_has_its_table():
     # one row per rectifier; one row per loop, field source and harmonic in the analysis's figures
     for path in [*EXAMPLES, *FIELD]:
-        result = analyze(load(path))
-        tables = _tables(path)
+        result, tables = _analysed(path)
         assert len(tables["rectifiers"]) == len(result.rectifiers), path
         expected = sum(
             max(1, len(s["per_frequency"]))
