@@ -262,13 +262,7 @@ def _slab_block(p, dx, dy, lo, hi, sense, x0, x1) -> float:
 
 def _crossings_x(p: np.ndarray, q: np.ndarray) -> np.ndarray:
     """The x of every crossing of two of the segments p→q inside both (all pairs at once)."""
-    d = q - p
-    r = p[None, :, :] - p[:, None, :]  # r[i, j] = p_j − p_i
-    den = d[:, None, 0] * d[None, :, 1] - d[:, None, 1] * d[None, :, 0]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        t = (r[..., 0] * d[None, :, 1] - r[..., 1] * d[None, :, 0]) / den
-        u = (r[..., 0] * d[:, None, 1] - r[..., 1] * d[:, None, 0]) / den
-    inside = (den != 0) & (t > 1e-12) & (t < 1 - 1e-12) & (u > 1e-12) & (u < 1 - 1e-12)
+    inside, t, d = _crossing_pairs(p, q)
     i, j = np.nonzero(np.triu(inside, 1))
     return p[i, 0] + t[i, j] * d[i, 0]
 
@@ -291,7 +285,12 @@ def _crosses_itself_small(pts) -> bool:
 
 def _crosses_itself(a: np.ndarray) -> bool:
     """Whether any two edges of the closed polygon cross inside both (all pairs at once)."""
-    p, q = a, np.roll(a, -1, axis=0)
+    return bool(_crossing_pairs(a, np.roll(a, -1, axis=0))[0].any())
+
+
+def _crossing_pairs(p: np.ndarray, q: np.ndarray):
+    """For every pair of the segments p→q: whether they cross inside both, and the crossing's
+    parameter t along the first (t[i, j] on segment i), with the segments' directions."""
     d = q - p
     r = p[None, :, :] - p[:, None, :]  # r[i, j] = p_j − p_i
     den = d[:, None, 0] * d[None, :, 1] - d[:, None, 1] * d[None, :, 0]
@@ -299,7 +298,7 @@ def _crosses_itself(a: np.ndarray) -> bool:
         t = (r[..., 0] * d[None, :, 1] - r[..., 1] * d[None, :, 0]) / den
         u = (r[..., 0] * d[:, None, 1] - r[..., 1] * d[:, None, 0]) / den
     inside = (den != 0) & (t > 1e-12) & (t < 1 - 1e-12) & (u > 1e-12) & (u < 1 - 1e-12)
-    return bool(inside.any())
+    return inside, t, d
 
 
 def _crossing_x(e, f) -> float | None:

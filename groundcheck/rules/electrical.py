@@ -65,6 +65,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     # the shields that hold their chassis near earth
     unearthed = {d.device for d in (s.device_earths or ()) if d.resistance is None}
     amps = _ac_currents(s)
+    lines = _lines(s) if leak else {}
     for row in s.coupling:
         fix = _shared_fix(row, plan_conductors, leak)
         dev = s.plan.index.device_of(row.source) if row.source in leak else None
@@ -90,7 +91,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             below = True
             heard = f"; the {ch} channel's hum stays {QUIET_MARGIN_DB:g} dB or more below hearing"
         elif not below and row.source in leak:
-            quiet = _quiet_share(s, row, ch, amps)
+            quiet = _quiet_share(s, row, ch, amps, lines.get(row.source))
             if quiet is not None:
                 below, heard = True, quiet
         out.append(
@@ -219,14 +220,13 @@ def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | No
     return min(whole, current * abs(row.transfer) * 10 ** (row.stage_gain / 20))
 
 
-def _quiet_share(s: Solved, row, channel: str | None, amps: dict) -> str | None:
+def _quiet_share(s: Solved, row, channel: str | None, amps: dict, lines) -> str | None:
     """Why a leakage current's share is of no consequence, or None: the level it puts at the
     channel's output, at the listener's seat, stays :data:`QUIET_MARGIN_DB` or more below the
     threshold of hearing at every frequency it has a line at (the lowest threshold of them taken,
     as if all of it were there), whatever else the channel hears."""
     level = _source_level(s, row, channel, amps)
     listening = channel_listenings(s.plan, s.plan.stages, [channel]).get(channel)
-    lines = _lines(s).get(row.source)
     if not level or listening is None or not listening.verdict or not lines:
         return None
     margin = spl_of(level, listening) - min(
@@ -243,28 +243,29 @@ def _quiet_share(s: Solved, row, channel: str | None, amps: dict) -> str | None:
 
 def _lines(s: Solved) -> dict:
     """Each hum source's frequencies with a line, Hz ({} without the rectifiers' figures)."""
-    if s.hum is None:
-        return {}
-    results = {r.name: r for r in s.hum.rectifiers}
-    if not all(r.name in results for r in s.plan.rectifiers):
-        return {}
     return {
         src.name: tuple(sorted(f for f, i in src.parts.items() if f > 0 and abs(i) > 0))
-        for src in plan_sources(s.plan, results, s.options.max_frequency)
+        for src in _sources(s)
     }
 
 
 def _ac_currents(s: Solved) -> dict:
     """Each hum source's AC current, rms over its lines, A ({} without the rectifiers' figures)."""
-    if s.hum is None:
-        return {}
-    results = {r.name: r for r in s.hum.rectifiers}
-    if not all(r.name in results for r in s.plan.rectifiers):
-        return {}
     return {
         src.name: math.sqrt(sum(abs(i) ** 2 for f, i in src.parts.items() if f > 0))
-        for src in plan_sources(s.plan, results, s.options.max_frequency)
+        for src in _sources(s)
     }
+
+
+def _sources(s: Solved) -> list:
+    """The plan's hum sources with their lines ([] without the hum budget or the rectifiers'
+    figures)."""
+    if s.hum is None:
+        return []
+    results = {r.name: r for r in s.hum.rectifiers}
+    if not all(r.name in results for r in s.plan.rectifiers):
+        return []
+    return list(plan_sources(s.plan, results, s.options.max_frequency))
 
 
 @rule("GC401", needs="solve")
