@@ -137,6 +137,15 @@ def _analyze(plan: Plan, options: Options) -> Result:
             for st in plan.stages
             if st.inferred
         ]
+    # the placed devices' faults on the installation's supply first: GC215 reads whether a long
+    # earth path still clears in time
+    faults: dict = {}
+    placed = placed_supply_findings(plan, options, analyze, faults)
+    placed += simple_device_disconnection(plan, faults)
+    if faults and result.device_earths:
+        result.device_earths = tuple(
+            replace(d, fault=faults.get(d.device)) for d in result.device_earths
+        )
     solved = Solved(
         plan,
         ctx,
@@ -150,13 +159,7 @@ def _analyze(plan: Plan, options: Options) -> Result:
     )
     for r in functions("solve"):
         findings.extend(r.func(solved))
-    faults: dict = {}
-    findings.extend(placed_supply_findings(plan, options, analyze, faults))
-    findings.extend(simple_device_disconnection(plan, faults))
-    if faults and result.device_earths:
-        result.device_earths = tuple(
-            replace(d, fault=faults.get(d.device)) for d in result.device_earths
-        )
+    findings.extend(placed)
     return _finish(result)
 
 

@@ -256,3 +256,32 @@ current leak: a to b, 10 mA 5000 Hz, leakage
     r = analyze(load_text(text, "lead.gplan"))
     row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 5000.0)
     assert row["volts"] == pytest.approx(0.05, rel=1e-6)
+
+
+REEL = """plan "reel"
+supply 230 V 50 Hz, system TN-C-S, loop-impedance 0.35 ohm, breaker 16 A B{rcd}
+point met: earthing-terminal
+point sock: outlet
+point reel_out: outlet
+cable circ: met to sock, 10 m, 2.5 mm2, cores round
+cable reel: sock to reel_out, 60 m, 1.0 mm2, cores round
+device amp: simple, plugged reel_out, cord 2 m 0.75 mm2
+"""
+
+
+@pytest.mark.parametrize("rcd, severity", [(", rcd 30 mA", "fault"), ("", "danger")])
+def test_a_long_earth_path_is_a_danger_only_when_its_fault_is_not_cleared_in_time(
+    tmp_path, rcd, severity
+):
+    # the earth path: copper at 1/58 Ω·mm²/m (IEC 60028) over 10 m of 2.5 mm², 60 m of 1 mm² and
+    # the 2 m cord's 0.75 mm²: 0.017241 × (4 + 60 + 2.667) = 1.1494 Ω, over the 1 Ω of GC215.
+    # With a 30 mA RCD a fault to the amplifier's metal (some 66 A) clears in 40 ms (IEC 61008-1
+    # at 5 × IΔn), within the 0.4 s of IEC 60364-4-41: a fault to repair.  Without it the 16 A
+    # type B breaker needs 80 A to trip at once and takes up to 60 s: a danger (GC208 too).
+    f = tmp_path / "reel.gplan"
+    f.write_text(REEL.format(rcd=rcd))
+    r = analyze(load(f))
+    (found,) = [x for x in r.findings if x.code == "GC215"]
+    assert found.severity == severity and "1.15 Ω" in found.message
+    assert ("0.4 s" in found.message) == (severity == "fault")
+    assert any(x.code == "GC208" for x in r.findings) == (severity == "danger")

@@ -117,6 +117,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC206": {"danger", "warning"},
         "GC208": {"danger", "note"},
         "GC211": {"danger", "warning"},
+        "GC215": {"danger", "fault"},
         "GC218": {"danger", "warning", "note"},
         "GC221": {"note", "danger"},
         "GC223": {"fault", "danger"},

@@ -223,12 +223,15 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "danger",
         "In an installation, whether each device's earth pin reaches the main earthing terminal "
         "through its mains cord, power strips and the building's protective wiring, and the "
-        "resistance of that path.",
+        "resistance of that path (over 1 Ω, common practice for a broken or corroded path). A "
+        "broken path is a danger; a long one too, unless a fault to the device's metal through "
+        "it is still cleared within IEC 60364-4-41's time (an RCD, say): then a fault.",
         "A device whose protective path is broken has no protective earth at all, whatever its "
         "own wiring.",
         "Plug the device into an earthed outlet and repair the broken protective connection named "
         "in the finding.",
         "IEC 60364-6 (continuity of protective conductors), from memory",
+        variants=("danger", "fault"),
         actions=("earthed-outlet",),
     ),
     entry(

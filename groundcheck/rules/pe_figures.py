@@ -13,7 +13,7 @@ from typing import TYPE_CHECKING
 
 from ..model.supplies import DEVICE_EARTH_LIMIT
 from ..model.records import Plan
-from ..physics.protection import STANDARD_PE_LIMIT, device_clearing
+from ..physics.protection import STANDARD_PE_LIMIT, device_clearing, max_disconnection_time
 from ..physics.safety import supply_figures
 from .catalogue import Finding
 from .disconnection import device_text, disconnection, no_clearing_device
@@ -253,12 +253,13 @@ def rule_device_earths(s: Solved) -> list[Finding]:
                 )
             )
         elif d.resistance > DEVICE_EARTH_LIMIT:
+            cleared = _cleared_in_time(s.plan, d)
             out.append(
                 Finding(
                     "GC215",
-                    "danger",
+                    "fault" if cleared else "danger",
                     f"device {d.device}: its earth path to the main earthing terminal is "
-                    f"{d.resistance:.3g} Ω",
+                    f"{d.resistance:.3g} Ω{cleared}",
                     loc,
                     (d.device, d.inlet),
                     {"resistance_ohm": d.resistance},
@@ -268,6 +269,22 @@ def rule_device_earths(s: Solved) -> list[Finding]:
                 )
             )
     return out
+
+
+def _cleared_in_time(plan: Plan, d) -> str:
+    """Why a device's long earth path is no danger (empty when it is one, or not known): its
+    worst line-to-part fault, worked on the installation's supply through that path, is cleared
+    within IEC 60364-4-41's time (by an RCD, say) — the path stays a fault to repair."""
+    p, supply = d.fault, plan.supply
+    if p is None or p.clear_time is None or supply is None:
+        return ""
+    limit = max_disconnection_time(supply.voltage, supply.system)
+    if limit is None or p.clear_time > limit:
+        return ""
+    return (
+        f"; a fault to its metal through it is still cleared in up to {p.clear_time:.3g} s by the "
+        f"{p.device} (IEC 60364-4-41 allows {limit:g} s), so it is a fault to repair, not a danger"
+    )
 
 
 def installation_survival(plan: Plan, needs: dict) -> list[Finding]:
