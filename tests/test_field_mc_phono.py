@@ -120,3 +120,12 @@ def test_in_the_room_no_change_is_a_load_error_and_the_sockets_come_before_the_p
     # the combined set insulates the phono stage's sockets and leaves no audible hum
     assert any(e.candidate.element == "phono.left.in_nut" for e in a.chosen)
     assert all(h.audible is False for h in a.final.hum.channels.values())
+
+
+def test_the_device_table_says_its_faults_are_ahead_of_the_fuse(room):
+    # his §5.8: "212 A at base" is the fault at the inlet, ahead of the phono stage's own fuse
+    # (the room states its 16 A breaker); the table says so beside it
+    from groundcheck.renderers.text import text_report
+
+    text = " ".join(text_report(room).split())
+    assert "212 A at base" in text and "ahead of its own fuse" in text

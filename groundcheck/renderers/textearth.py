@@ -84,7 +84,7 @@ def protective_tables(result: Result, console: Console) -> None:
         console.print(t)
         console.print()
     if result.device_earths:
-        _device_earth_table(result.device_earths, console)
+        _device_earth_table(result.device_earths, console, _ahead_of_fuse(result))
     for d in class_ii_devices(result.plan):
         console.print(f"  {escape(d)}: {CLASS_II_WORDS}")
     if class_ii_devices(result.plan):
@@ -138,7 +138,14 @@ def _deg(x) -> str:
     return "–" if x is None else ("melts" if math.isinf(x) else f"{x:.0f}")
 
 
-def _device_earth_table(earths, console: Console) -> None:
+def _ahead_of_fuse(result: Result) -> bool:
+    """Whether the placed devices' fault figures are for a fault ahead of their own fuse: the
+    installation states its breaker, which alone clears a fault at a device's inlet."""
+    supply = result.plan.supply
+    return supply is not None and supply.breaker is not None
+
+
+def _device_earth_table(earths, console: Console, ahead: bool = False) -> None:
     """Each device's earth-pin path: all of them, or the broken and the highest first when there
     are many."""
     title = "Device earth paths to the main earthing terminal"
@@ -165,6 +172,12 @@ def _device_earth_table(earths, console: Console) -> None:
             row += _fault_cells(d.fault)
         t.add_row(*row)
     console.print(t)
+    if ahead and faults:
+        console.print(
+            "  A device's fault is taken at its inlet, ahead of its own fuse, reaching its worst "
+            "part: the supply's breaker or RCD alone clears it (a fault behind the fuse draws "
+            "less and the fuse clears it; the device's own plan checks that one)."
+        )
     if len(earths) > len(shown):
         console.print(
             f"  {len(earths) - len(shown)} more devices not listed here (all are in --format json)"
