@@ -159,6 +159,10 @@ def _analyze(plan: Plan, options: Options) -> Result:
     )
     for r in functions("solve"):
         findings.extend(r.func(solved))
+    # a placed device's own finding, carried with what its installation adds, replaces the same
+    # finding found again on the installation's network
+    carried = {(f.code, f.elements) for f in placed}
+    findings[:] = [f for f in findings if (f.code, f.elements) not in carried]
     findings.extend(placed)
     return _finish(result)
 

@@ -15,3 +15,30 @@ def cli(capsys):
         return code, out.out, out.err
 
     return run
+
+
+#: the modules whose tests take longest (`--durations` on a 2-core machine), collected first so
+#: that the processes share the long ones out early and finish together (a long test last keeps
+#: the other process idle); the rest keep their order
+LONG_FIRST = (
+    "test_field",
+    "test_rewritings",
+    "test_invariants",
+    "test_html_tables",
+    "test_hostile_round2",
+    "test_robustness",
+    "test_repair_properties",
+    "test_rectifier_exact",
+    "test_watch",
+    "test_drawing_overlaps",
+    "test_reports",
+    "test_plain_words",
+)
+
+
+def pytest_collection_modifyitems(items):
+    def rank(item) -> int:
+        name = item.module.__name__ if item.module is not None else ""
+        return next((k for k, p in enumerate(LONG_FIRST) if name.startswith(p)), len(LONG_FIRST))
+
+    items.sort(key=rank)  # stable: each module's tests keep their order

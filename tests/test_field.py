@@ -191,7 +191,9 @@ def test_phono_first_fix_removes_the_supply_boxs_own_bond_in_its_own_plan():
     # the tool's own compare, as the reviewer ran it)
     assert round(first.hum_before_dbv["amp"], 1) == -63.9
     assert first.hum_after_dbv["amp"] <= HUM_FLOOR_DBV and first.introduced == []
-    assert len(first.cleared) == 5
+    # his five, and the ripple's share of the cords' protective conductors (GC224, a rule added
+    # after his review: the supply box's second bond sent 17 % of it through them)
+    assert len(first.cleared) == 6 and any(c.startswith("GC224 ripple") for c in first.cleared)
 
 
 def test_phono_never_touches_the_bought_amplifier_its_sockets_or_the_protective_earth():

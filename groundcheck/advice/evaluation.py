@@ -205,6 +205,14 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
     if any(k1[k].severity == "danger" for k in new):
         ev.rejected = ADDS_DANGER
         return ev
+    # a protective conductor made thicker takes a larger share of a return that runs there: the
+    # protective fix stands (the return is the other finding's to fix)
+    pe_fix = RULES[cand.reason.split(",")[0]].family == PROTECTIVE_EARTH
+    if not pe_fix and _more_pe_current(before, after):
+        ev.rejected = (
+            "it would send more of a supply's working current through a protective conductor"
+        )
+        return ev
     outlets = {p.name for p in after.plan.points if p.kind == "outlet"}
     # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the
     # signal ground
@@ -217,6 +225,21 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
         return ev
     _score(ev, before, after, k0, k1)
     return ev
+
+
+def _more_pe_current(before: Result, after: Result) -> bool:
+    """Whether a change sends a larger share of some supply's working current through protective
+    conductors (the findings whose rule refuses that, GC224, by source: their largest share)."""
+
+    def shares(r: Result) -> dict:
+        out: dict = {}
+        for f in r.findings:
+            if "pe-current" in RULES[f.code].refusals:
+                out[f.elements[0]] = max(out.get(f.elements[0], 0.0), f.figures.get("share", 1.0))
+        return out
+
+    was = shares(before)
+    return any(x > was.get(src, 0.0) + 0.005 for src, x in shares(after).items())
 
 
 def _protective_harm(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result) -> str:

@@ -379,4 +379,24 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         variants=("fault", "danger"),
         actions=("thicken",),
     ),
+    entry(
+        "GC224",
+        "pe-working-current",
+        PROTECTIVE_EARTH,
+        "fault",
+        "Whether a conductor of the protective route carries part of a rectifier's return current "
+        "or of a stated return, load or heater current (1 % or more of it, by a DC solve of the "
+        "ground network): the signal ground bonded to the chassis twice with the protective path "
+        "closing a second way between the return's ends (an umbilical's earth core beside its "
+        "0 V core), or the return's own wire missing.",
+        "A protective conductor carries no current in normal operation: one that carries a "
+        "supply's return makes the equipment work on its protective path, so a break in it goes "
+        "unnoticed, and the return's current flows through the chassis and the mains cord's "
+        "earth.",
+        "Give the supply's return a wire of its own and bond the signal ground to the chassis at "
+        "one place; never remove or lift the protective conductor.",
+        "IEC 60364-5-54 543.5 (protective conductors carry no operating current, a PEN aside), "
+        "from memory",
+        refusals=("pe-current",),
+    ),
 ]

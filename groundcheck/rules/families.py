@@ -9,6 +9,7 @@ from . import (  # noqa: F401 - imported for their registrations
     hum_rules,
     installation,
     protective,
+    pe_current,
     pe_figures,
     signal,
     loops,

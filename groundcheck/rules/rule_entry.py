@@ -21,8 +21,9 @@ SEVERITIES = ("danger", "fault", "warning", "note")
 IDENTITIES = ("elements", "pair", "first")
 
 #: the advisor's refusals a finding can raise when a change brings it about: part of the signal
-#: ground left unconnected; a supply's charging or ripple current sent through the star
-REFUSALS = ("unconnected", "through-star")
+#: ground left unconnected; a supply's charging or ripple current sent through the star; a supply's
+#: working current sent through a protective conductor
+REFUSALS = ("unconnected", "through-star", "pe-current")
 
 
 @dataclass(frozen=True)

@@ -14,6 +14,7 @@ from ..model.records import SOCKET_KINDS
 from ..network.graph import part_labels
 from .catalogue import Finding
 from .context import AuditContext
+from .equipment import equipment_of
 from .graph_search import bfs
 from .pe_places import pe_point
 from .floating import floating_fix as _floating_fix
@@ -34,40 +35,88 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     out = []
+    equipment = equipment_of(ctx)
     for comp, places in _signal_grounds(ctx):
         name = _component_name(ctx, comp)
-        if len(places) > 1:
-            held = _fastenings(ctx, set(places))
-            desc = ", ".join(
-                f"{p} (by {', '.join(ks + held.get(p, []))})" for p, ks in sorted(places.items())
-            )
-            bonds = sorted(places)
-            # keep the bond nearest the protective earth
-            keep, why = _nearest_pe(ctx, bonds)
-            others = [b for b in bonds if b != keep]
-            first_other = places[others[0]][0]
-            actions = _unbond_actions(ctx, others, places)
-            words = "; ".join(
-                ("insulate " + k + " from the metal (insulated socket or shoulder washers)")
-                if verb == "insulate"
-                else f"remove {k}"
-                for verb, k in actions
-            )
-            out.append(
-                Finding(
-                    "GC105",
-                    "warning",
-                    f"signal ground {name} is bonded to the chassis at {len(places)} places: "
-                    f"{desc}",
-                    ctx.loc(first_other),
-                    tuple(k for p in bonds for k in places[p]),
-                    {"bonds": len(places)},
-                    f"keep the bond at {keep}{why}; {words}",
-                    actions,
-                )
-            )
-        elif not places:
+        if not places:
             out.append(_floating(ctx, comp, name))
+            continue
+        # bonds counted per piece of equipment: each class I box of its own keeps one
+        groups: dict = {}
+        for p, ks in places.items():
+            key = equipment.get(ctx.plan.index.device_of(p))
+            groups.setdefault(key, {})[p] = ks
+        out += [_twice(ctx, name, group, comp) for group in groups.values() if len(group) > 1]
+        out += _held_by_links(ctx, comp, name, set(groups), equipment)
+    return out
+
+
+def _twice(ctx: AuditContext, name: str, places: dict, comp=()) -> Finding:
+    """GC105: one piece of equipment's signal ground bonded to its chassis at several places:
+    which bond to keep (nearest the protective earth) and how to undo the others."""
+    held = _fastenings(ctx, set(places))
+    desc = ", ".join(
+        f"{p} (by {', '.join(ks + held.get(p, []))})" for p, ks in sorted(places.items())
+    )
+    bonds = sorted(places)
+    keep, why = _nearest_pe(ctx, bonds, comp)
+    others = [b for b in bonds if b != keep]
+    actions = _unbond_actions(ctx, others, places)
+    words = "; ".join(
+        ("insulate " + k + " from the metal (insulated socket or shoulder washers)")
+        if verb == "insulate"
+        else f"remove {k}"
+        for verb, k in actions
+    )
+    return Finding(
+        "GC105",
+        "warning",
+        f"signal ground {name} is bonded to the chassis at {len(places)} places: {desc}",
+        ctx.loc(places[others[0]][0]),
+        tuple(k for p in bonds for k in places[p]),
+        {"bonds": len(places)},
+        f"keep the bond at {keep}{why}; {words}",
+        actions,
+    )
+
+
+def _held_by_links(ctx: AuditContext, comp: list, name: str, bonded: set, equipment: dict):
+    """GC106: a class I piece of equipment plugged into the mains whose signal ground holds its
+    own supply's return but is bonded to no chassis of its own: it reaches the protective earth
+    only through its links to other equipment (their shields would carry a fault in its own
+    transformer)."""
+    device_of, devices = ctx.plan.index.device_of, ctx.plan.index.devices
+    points = set(comp)
+    out = []
+    for key in sorted(set(equipment.values()) - bonded):
+        members = sorted(d for d, k in equipment.items() if k == key)
+        powered = any(
+            devices[d].plugged is not None and devices[d].equipment_class == "I" for d in members
+        )
+        supplies = sorted(
+            r.name
+            for r in ctx.plan.rectifiers
+            if device_of(r.name) in members and {r.a, r.b} & points
+        )
+        if not (powered and supplies):
+            continue
+        own = sorted(p for p in comp if device_of(p) in members)
+        out.append(
+            Finding(
+                "GC106",
+                "fault",
+                f"signal ground {name} of {', '.join(members)} reaches the protective earth only "
+                f"through its links to other equipment: it holds the return of "
+                f"{', '.join(supplies)}, and an insulation fault in that transformer would send "
+                "its current down the links' shields; a class I box keeps a bond of its own",
+                min(ctx.loc(n) for n in own),
+                tuple(own[:12]),
+                {"points": len(own)},
+                f"bond {', '.join(members)}'s signal ground to its own chassis at one place near "
+                "its protective-earth stud (directly or through a ground-lift network); never "
+                "rely on a link's shield for it",
+            )
+        )
     return out
 
 
@@ -238,10 +287,21 @@ def _component_name(ctx: AuditContext, comp: list[str]) -> str:
     return "at " + ", ".join(comp[:3]) + ("…" if len(comp) > 3 else "")
 
 
-def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> tuple[str, str]:
+def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str, str]:
     """The bond to keep, and why: a deliberate one (not a socket's own ground fastened to the
-    metal) before a socket's, then the nearest the equipment's protective earth."""
+    metal) before a socket's, then one on the box that holds the signal star (of two boxes, the
+    supply box's bond goes: common practice), then the nearest the equipment's protective
+    earth."""
     sockets = {p.name for p in ctx.plan.points if p.kind in SOCKET_KINDS}
+    star_box = {
+        box
+        for n in comp
+        if (p := ctx.plan.point(n)) is not None and p.kind == "star"
+        for box in _boxes(ctx, p)
+    }
+    boxes = {c: next(iter(_boxes(ctx, ctx.plan.point(c))), None) for c in candidates}
+    away = {c for c in candidates if star_box and len(set(boxes.values())) > 1}
+    away = {c for c in away if boxes[c] not in star_box}
     pe = pe_point(ctx, candidates[0])
     if pe not in ctx.G:
         keep = min(candidates, key=lambda c: (c in sockets, c))
@@ -258,8 +318,24 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str]) -> tuple[str, str]:
             return math.inf
         return min(math.dist(pos, q) for q in landings)
 
-    keep = min(candidates, key=lambda c: (c in sockets, dist.get(c, 10**9), metres(c), c))
+    keep = min(
+        candidates, key=lambda c: (c in sockets, c in away, dist.get(c, 10**9), metres(c), c)
+    )
     nearest = min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))
     if keep == nearest:
         return keep, ", nearest the protective earth"
+    if nearest in away and keep not in away:
+        return keep, ", on the box that holds the signal star"
     return keep, " (not a socket's own ground)"
+
+
+def _boxes(ctx: AuditContext, p) -> set:
+    """The metal part a point sits on: the one it is written ``on``, else the ones whose outline
+    holds its position (none for a point without either)."""
+    if p is None:
+        return set()
+    if p.on:
+        return {p.on}
+    if p.pos is None:
+        return set()
+    return {m.name for m in ctx.plan.metals if m.size is not None and m.contains(p.pos)}
