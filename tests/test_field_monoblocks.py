@@ -1,7 +1,8 @@
-"""An outside builder's hi-fi room on a TT supply (tests/field/monoblocks-tt, copied as written): two
-push-pull monoblocks of his own, each with a 10 Ω hum-loop breaker between its signal ground and
-chassis; a two-box valve preamplifier whose supply box and amplifier box both bond 0 V to their
-case, joined by an umbilical with a 0.5 mm² earth core; a bought streamer and subwoofer.
+"""An outside builder's hi-fi room on a TT supply (tests/field/monoblocks-tt, copied as
+written): two push-pull monoblocks of his own, each with a 10 Ω hum-loop breaker between its
+signal ground and chassis; a two-box valve preamplifier whose supply box and amplifier box both
+bond 0 V to their case, joined by an umbilical with a 0.5 mm² earth core; a bought streamer and
+subwoofer.
 
 His verdict: the speaker return on the input ground (GC306) and the double 0 V bond found; never
 remove a monoblock's own bond to its chassis (its speaker posts would reach earth only through an
@@ -42,7 +43,8 @@ def test_each_monoblock_keeps_its_own_bond_in_the_room(room):
     # the umbilical); the monoblocks, joined by signal links, keep theirs
     bonds = [f for f in room.findings if f.code == "GC105"]
     assert len(bonds) == 1 and all(e.startswith("pre.") for e in bonds[0].elements)
-    assert "keep the bond at pre.pre_gnd_tag, on the box that holds the signal star" in bonds[0].fix
+    kept = "keep the bond at pre.pre_gnd_tag, on the box that holds the signal star"
+    assert kept in bonds[0].fix
     assert "remove pre.psu_bond" in bonds[0].fix
     assert not [f for f in room.findings if f.code in ("GC105", "GC106") and "hum_break" in str(f)]
 
