@@ -63,3 +63,24 @@ def test_a_device_plan_statement_names_points_without_the_devices_prefix():
     assert local_name("phono.right.in_gnd", "in_gnd", "phono.right.k1") == "k1"
     assert local_name("right.in_gnd", "in_gnd", "star") == "star"
     assert local_name("in_gnd", "in_gnd", "star") == "star"
+
+
+def test_a_change_to_a_plan_placed_twice_names_both_placements(tmp_path):
+    # two monoblocks placed from one plan: the change in that plan is made in each, and the title
+    # says so (a builder told of mono_l alone would rewire one amplifier)
+    from types import SimpleNamespace
+
+    from groundcheck.advice.changes import Candidate, device_note
+    from groundcheck.advice.edits import Edit
+
+    own = str(tmp_path / "monoblock.gplan")
+    plan = SimpleNamespace(
+        device_plans=(
+            ("mono_l", SimpleNamespace(file=own)),
+            ("mono_r", SimpleNamespace(file=own)),
+            ("pre", SimpleNamespace(file=str(tmp_path / "preamp.gplan"))),
+        )
+    )
+    c = Candidate("take mono_l.spk_com to mono_l.star", "GC306", (Edit(3, "x", (), 3, own),), False)
+    title = device_note(c, str(tmp_path / "room.gplan"), plan).title
+    assert "placed as mono_l and mono_r: the change is made in each" in title

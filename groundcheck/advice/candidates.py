@@ -96,7 +96,7 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     def add(c):
         if c is not None and c.edits not in seen:
             seen.add(c.edits)
-            out.append(device_note(c, plan.file))
+            out.append(device_note(c, plan.file, plan))
 
     # a shared return's join before the star's: the same join answers the shared return first
     for action, generate in BEFORE_FINDINGS.items():

@@ -225,16 +225,25 @@ def block_note(model_name: str, label: str) -> str:
     return f" — in its block, so for every placement ({label})" if model_name != label else ""
 
 
-def device_note(c: "Candidate", main: str) -> "Candidate":
+def device_note(c: "Candidate", main: str, plan=None) -> "Candidate":
     """A candidate that edits a device's own plan says so: a separate diff, a changed copy on
-    --apply."""
+    --apply; a plan placed as several devices (two monoblocks) names them all, since the change is
+    made in each."""
     files = sorted({e.file for e in c.edits if e.file is not None})
     if not files:
         return c
     where = ", ".join(shown_path(f, Path(main).parent) for f in files)
+    placed = sorted(
+        name for name, own in (plan.device_plans if plan is not None else ()) if own.file in files
+    )
+    every = (
+        f", placed as {' and '.join(placed)}: the change is made in each"
+        if len(placed) > 1
+        else ""
+    )
     return dataclasses.replace(
         c,
-        title=c.title + f" — in the device's own plan {where} (a separate diff; "
+        title=c.title + f" — in the device's own plan {where}{every} (a separate diff; "
         "--apply writes a changed copy beside the new plan, never the original)",
     )
 

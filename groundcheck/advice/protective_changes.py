@@ -341,9 +341,20 @@ def thicker(ctx: ChangeContext, f) -> Candidate | None:
     passes = f.figures.get("thicker_mm2")  # GC223: the smallest size that passes the test
     if st is None:
         return None
+    if passes is not None:  # the size that passes every test the conductor fails, not one alone
+        passes = max(
+            [passes]
+            + [
+                g.figures["thicker_mm2"]
+                for g in ctx.result.findings
+                if g.code == f.code
+                and g.elements[:1] == f.elements[:1]
+                and g.figures.get("thicker_mm2") is not None
+            ]
+        )
     if passes is not None:
         area = passes
-        why = "the smallest standard size that passes the bonding test"
+        why = "the smallest standard size that passes the bonding tests"
     elif ctx.plan.mains is None or ctx.plan.mains.line_area is None:
         return None
     else:
