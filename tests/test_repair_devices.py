@@ -81,6 +81,7 @@ def test_a_change_to_a_plan_placed_twice_names_both_placements(tmp_path):
             ("pre", SimpleNamespace(file=str(tmp_path / "preamp.gplan"))),
         )
     )
-    c = Candidate("take mono_l.spk_com to mono_l.star", "GC306", (Edit(3, "x", (), 3, own),), False)
+    edit = Edit(3, "x", (), 3, own)
+    c = Candidate("take mono_l.spk_com to mono_l.star", "GC306", (edit,), False)
     title = device_note(c, str(tmp_path / "room.gplan"), plan).title
     assert "placed as mono_l and mono_r: the change is made in each" in title
