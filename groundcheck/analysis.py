@@ -139,13 +139,7 @@ def _analyze(plan: Plan, options: Options) -> Result:
         ]
     # the placed devices' faults on the installation's supply first: GC215 reads whether a long
     # earth path still clears in time
-    faults: dict = {}
-    placed = placed_supply_findings(plan, options, analyze, faults)
-    placed += simple_device_disconnection(plan, faults)
-    if faults and result.device_earths:
-        result.device_earths = tuple(
-            replace(d, fault=faults.get(d.device)) for d in result.device_earths
-        )
+    placed = _placed_devices(plan, options, result)
     solved = Solved(
         plan,
         ctx,
@@ -165,6 +159,20 @@ def _analyze(plan: Plan, options: Options) -> Result:
     findings[:] = [f for f in findings if (f.code, f.elements) not in carried]
     findings.extend(placed)
     return _finish(result)
+
+
+def _placed_devices(plan: Plan, options: Options, result: Result) -> list:
+    """The findings of each placed device checked on the installation's supply (its own plan's
+    protective-earth findings carried, a bought device's disconnection), its worst fault set on
+    its row of the device earth table."""
+    faults: dict = {}
+    placed = placed_supply_findings(plan, options, analyze, faults)
+    placed += simple_device_disconnection(plan, faults)
+    if faults and result.device_earths:
+        result.device_earths = tuple(
+            replace(d, fault=faults.get(d.device)) for d in result.device_earths
+        )
+    return placed
 
 
 def _no_verdict_when_floating(plan: Plan, ctx, result: Result) -> None:

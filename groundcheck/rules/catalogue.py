@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 
 from ..core.errors import Location
 from .catalogue_hum import HUM_ENTRIES
+from .catalogue_installation import INSTALLATION_ENTRIES
 from .catalogue_model import MODEL_ENTRIES
 from .catalogue_pe import PROTECTIVE_ENTRIES
 from .catalogue_topology import TOPOLOGY_ENTRIES
@@ -112,5 +113,12 @@ class Finding:
 
 #: every rule by its code, family after family (topology, protective earth, hum, electrical model)
 RULES: dict[str, Rule] = {
-    r.code: r for r in (*TOPOLOGY_ENTRIES, *PROTECTIVE_ENTRIES, *HUM_ENTRIES, *MODEL_ENTRIES)
+    r.code: r
+    for r in (
+        *TOPOLOGY_ENTRIES,
+        # the equipment's and the installation's, in the order of their codes
+        *sorted((*PROTECTIVE_ENTRIES, *INSTALLATION_ENTRIES), key=lambda r: r.code),
+        *HUM_ENTRIES,
+        *MODEL_ENTRIES,
+    )
 }

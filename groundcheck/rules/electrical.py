@@ -84,16 +84,9 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
             "stage_gain_db": row.stage_gain,
         }
         below, heard = _weighed(s, row, channels.get(row.stage), figures, amps)
-        ch = channels.get(row.stage)
-        if not below and row.source in leak and far_below_hearing(s.hum, ch):
-            # a leakage current's way home through the links is the installation's, not a wiring
-            # mistake of the equipment; heard nowhere, it is a note
-            below = True
-            heard = f"; the {ch} channel's hum stays {QUIET_MARGIN_DB:g} dB or more below hearing"
-        elif not below and row.source in leak:
-            quiet = _quiet_share(s, row, ch, amps, lines.get(row.source))
-            if quiet is not None:
-                below, heard = True, quiet
+        if not below and row.source in leak:
+            quiet = _quiet_leakage(s, row, channels.get(row.stage), amps, lines.get(row.source))
+            below, heard = (True, quiet) if quiet is not None else (below, heard)
         out.append(
             Finding(
                 "GC102",
@@ -218,6 +211,15 @@ def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | No
     if current is None:
         return whole
     return min(whole, current * abs(row.transfer) * 10 ** (row.stage_gain / 20))
+
+
+def _quiet_leakage(s: Solved, row, ch: str | None, amps: dict, lines) -> str | None:
+    """Why a leakage current's shared return is a note (None when it is not): a leakage current's
+    way home through the links is the installation's, not a wiring mistake of the equipment, and
+    heard nowhere — the whole channel far below hearing, or this source's own share."""
+    if far_below_hearing(s.hum, ch):
+        return f"; the {ch} channel's hum stays {QUIET_MARGIN_DB:g} dB or more below hearing"
+    return _quiet_share(s, row, ch, amps, lines)
 
 
 def _quiet_share(s: Solved, row, channel: str | None, amps: dict, lines) -> str | None:

@@ -17,8 +17,15 @@ __all__ = ["equipment_of", "signal_link"]
 
 
 def signal_link(c) -> bool:
-    """Whether a link between devices carries a signal: a gain (its receiving input is a stage), a
-    balanced pair, or a channel stated."""
+    """Whether a link between devices carries a signal.
+
+    Parameters:
+        c: a conductor record (an interconnect).
+    Returns:
+        True with a gain (its receiving input is a stage), a balanced pair or a channel stated.
+    References:
+        none (what the plan states).
+    """
     return c.gain is not None or c.balanced or c.channel is not None
 
 

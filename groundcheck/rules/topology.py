@@ -152,7 +152,10 @@ def rule_lengths(ctx: AuditContext) -> list[Finding]:
         # a cable between two pieces of equipment, an umbilical's core between two boxes, or a
         # building cable (it runs in walls and under floors) runs as it likes: only too short
         # counts
-        free = placed(c.a) != placed(c.b) or c.bundle or kind(c.kind).carries_load
+        # and so does a lead between two outlets (a strip's cord, a reel): it lies on the floor
+        ends = (ctx.plan.point(c.a), ctx.plan.point(c.b))
+        outlets = all(p is not None and p.kind == "outlet" for p in ends)
+        free = placed(c.a) != placed(c.b) or c.bundle or kind(c.kind).carries_load or outlets
         slack = math.inf if free else LENGTH_SLACK
         if route > 0 and (
             c.length < route * (1 - LENGTH_SHORT) or c.length > slack * route + 0.05
