@@ -57,26 +57,24 @@ def _strings(node: ast.AST, scope: ast.AST, slot: int | None = None) -> set[str]
 
 
 def _constructions():
-    """(file:line, code, the severities the call can give) of every Finding(...) in the package."""
+    """(file:line, code, the severities the call can give) of every Finding(...) in the package
+    (one walk of each module, the innermost enclosing function kept as it goes)."""
     out = []
     for path in sorted(PACKAGE.rglob("*.py")):
         tree = ast.parse(path.read_text(encoding="utf-8"))
-        funcs = [
-            n for n in ast.walk(tree) if isinstance(n, (ast.FunctionDef, ast.AsyncFunctionDef))
-        ]
-        for call in ast.walk(tree):
-            if not (isinstance(call, ast.Call) and getattr(call.func, "id", "") == "Finding"):
-                continue
-            where = f"{path.relative_to(PACKAGE)}:{call.lineno}"
-            code, sev = call.args[0], call.args[1]
-            assert isinstance(code, ast.Constant), f"{where}: write the code as a literal"
-            scope = min(
-                (f for f in funcs if f.lineno <= call.lineno <= f.end_lineno),
-                key=lambda f: f.end_lineno - f.lineno,
-                default=tree,
-            )
-            out.append((where, code.value, _strings(sev, scope)))
-    return out
+        rel = path.relative_to(PACKAGE)
+        stack: list = [(tree, tree)]  # (node, its innermost enclosing function or the module)
+        while stack:
+            node, scope = stack.pop()
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                scope = node
+            if isinstance(node, ast.Call) and getattr(node.func, "id", "") == "Finding":
+                where = f"{rel}:{node.lineno}"
+                code, sev = node.args[0], node.args[1]
+                assert isinstance(code, ast.Constant), f"{where}: write the code as a literal"
+                out.append((where, code.value, _strings(sev, scope)))
+            stack.extend((child, scope) for child in ast.iter_child_nodes(node))
+    return sorted(out, key=lambda c: (c[0].split(":")[0], int(c[0].split(":")[1])))
 
 
 CONSTRUCTIONS = _constructions()
