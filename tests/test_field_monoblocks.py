@@ -93,3 +93,13 @@ def test_a_strips_cord_may_be_longer_than_the_gap_it_spans(room):
     # his 12th point: a strip's 1.5 m cord drawn 141 mm from its wall socket is no measuring slip
     # (a lead between two outlets lies on the floor as it likes; too short still counts)
     assert not [f for f in room.findings if f.code == "GC112" and "strip_cord" in f.elements]
+
+
+def test_an_input_wired_beside_its_valves_cathode_is_no_chain():
+    # his 8th point: the input socket's ground to the first stage's ground, then on to the star,
+    # is how the trade wires an input (GC103 once called it a chain); the speaker return landed on
+    # the input socket is one
+    r = analyze(load(FIELD / "monoblock.gplan"))
+    (chain,) = [f for f in r.findings if f.code == "GC103" and "partly a chain" in f.message]
+    assert "spk_com reaches it through in_sleeve" in chain.message
+    assert "in_sleeve reaches it through v1_gnd" not in chain.message

@@ -60,7 +60,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "warning",
         "Returns that reach a star through each other (every shortest route of one passes "
         "another; a junction that only joins two pieces of a wire is no step): a chain that "
-        "only looks like a star. "
+        "only looks like a star. An input socket wired to the ground of the stage that "
+        "amplifies it (the stage's own pair, with gain) is no chain: the trade wires an input's "
+        "ground beside its valve's cathode. "
         "Also a channel's star (a block placement's) that reaches the plan's own star only "
         "through another channel's star.",
         "Each return in a chain carries the currents of those behind it, so their drops add "

@@ -87,6 +87,11 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
     clear, _ = bfs(ctx.adj, star_names, lambda v: allowed(v) and v not in terminals, rank, joints)
     chains: dict[str, list[tuple[str, str]]] = {}
     supplies = supply_ends(ctx.plan)
+    # an input socket wired to the ground of the stage that amplifies it, which runs on to the
+    # star, is that stage's input pair as the trade wires it (the input's ground beside its
+    # valve's cathode): no chain.  An output socket read at 0 dB is not: the load's current
+    # returns through it
+    supplies |= {frozenset((st.a, st.b)) for st in ctx.plan.stages if st.gain > 0}
     for t in sorted(terminals - star_names):
         if t not in dist:
             continue
