@@ -44,7 +44,17 @@ def test_base_plan_is_clean():
 # (code, trigger plan, near miss); each pair differs by the mistake alone
 CASES = [
     ("GC101", BASE + "wire extra: sleeve to star, 150 mm, 0.5 mm2, signal\n", BASE),
-    ("GC103", BASE.replace("wire in_gnd: sleeve to star", "wire in_gnd: sleeve to k"), BASE),
+    (
+        # a return (a stated current's) reaching the star through the stage's cathode pad; the
+        # input sleeve wired to that pad is the stage's own pair, no chain
+        "GC103",
+        BASE
+        + "point r: pad, at 220,60 on deck\nwire r_gnd: r to k, 30 mm, 0.5 mm2, return\n"
+        + "current ret: r to star, 5 mA, return\n",
+        BASE.replace("wire in_gnd: sleeve to star", "wire in_gnd: sleeve to k")
+        + "point r: pad, at 220,60 on deck\nwire r_gnd: r to star, 90 mm, 0.5 mm2, return\n"
+        + "current ret: r to star, 5 mA, return\n",
+    ),
     (
         "GC104",
         BASE + "point lonely: star\nwire l: lonely to gnd, 10 mm, 0.5 mm2\n",

@@ -1,8 +1,7 @@
 """Fix lines on a plan of the project's own (tests/plans/valve-line-preamp.gplan: a stereo valve
 line preamplifier with a valve rectifier, its protective stud holding the transformer's foot, one
-input socket bolted to the chassis and wired to the star).  A change that clears a finding only by
-its identity -- the chain of GC103 growing by the other socket's branch once that socket is
-insulated -- is not that finding's fix; the change that answers it is."""
+input socket bolted to the chassis and wired to the star): each finding's fix line is the change
+that answers it."""
 
 from functools import cache
 from pathlib import Path
@@ -25,14 +24,15 @@ def _advised():
 def test_each_finding_gets_the_change_that_answers_it():
     r, evs = _advised()
     fix = {f.code: f.fix for f in r.findings}
-    assert {"GC202", "GC101", "GC105", "GC103", "GC107"} <= set(fix)
+    assert {"GC202", "GC101", "GC105", "GC107"} <= set(fix)
     assert fix["GC202"].startswith("give the protective earth a stud of its own")
     assert fix["GC101"].startswith("insulate in_r_nut: in_r off chassis")
-    # the sleeve's chain through the cathode pad: its own wire, not the other socket's insulation
-    # (after which a longer chain through both sockets is left at the same star)
-    assert fix["GC103"].startswith("run in_l to star by its own wire")
+    # each input sleeve wired to its stage's cathode pad, then on to the star, is that stage's
+    # input pair as the trade wires it, no chain (GC103 once asked for a wire of its own), before
+    # and after the other socket is insulated
+    assert "GC103" not in fix
     insulate = next(e for e in evs if e.candidate.title.startswith("insulate in_r_nut"))
-    assert any(f.code == "GC103" for f in insulate.result.findings)
+    assert not any(f.code == "GC103" for f in insulate.result.findings)
 
 
 def test_nothing_offered_touches_the_protective_earth_or_a_sockets_only_return():
