@@ -337,3 +337,30 @@ def test_the_long_tests_bound_past_the_limit_is_a_fault_and_the_short_tests_a_da
     long = [f for f in r.findings if f.code == "GC223" and "long" in f.message]
     assert rows[("pe_lead", "long")].reached == math.inf
     assert [f.severity for f in long] == ["danger"] and "would melt" in long[0].message
+
+
+def test_the_long_test_takes_the_breakers_rating_at_the_inlets_part_alone():
+    # A fault ahead of the fuse (the inlet's line pin, the fuse holder) lands on the part the inlet
+    # sits on and is the 16 A breaker's to clear: 200 % of 16 A, 32 A for 2 min, through the
+    # inlet's lead.  A fault on the lid, behind the 500 mA fuse, is the fuse's: 200 % of 0.5 A,
+    # 1 A through the lid's lead (IEC 60950-1:2005 2.6.3.4 and IEC 62368-1 5.6.6.2, the
+    # protective current rating of the circuit the part can meet, from memory).
+    text = (
+        'plan "t"\nmains 230 V 50 Hz, fuse 500 mA slow, breaking high, breaker 16 A B, '
+        "line-conductor 0.75 mm2, inlet at 20,20\n"
+        "metal chassis: aluminium 2 mm, 300 x 200 mm, touchable\n"
+        "metal lid: steel 1 mm, 300 x 200 mm, at 0,300, touchable\n"
+        "point pe_stud: stud, at 30,30 on chassis\n"
+        "wire pe_lead: mains.pe to pe_stud, 30 mm, 1 mm2, protective\n"
+        "bolt pe_bolt: pe_stud to chassis, protective\n"
+        "point lid_tag: tag, at 30,330 on lid\n"
+        "bolt lid_bolt: lid_tag to lid, protective\n"
+        "wire lid_lead: pe_stud to lid_tag, 300 mm, 0.75 mm2, protective\n"
+    )
+    r, rows = bonding(text, header=False)
+    assert rows[("pe_lead", "long")].current == pytest.approx(32.0, rel=1e-6)
+    assert rows[("lid_lead", "long")].current == pytest.approx(1.0, rel=1e-6)
+    assert rows[("lid_lead", "long")].passes
+    lid = next(p for p in r.bonding.parts if p.part == "lid" and p.test == "long")
+    short = next(p for p in r.bonding.parts if p.part == "lid" and p.test == "short")
+    assert lid.voltage == pytest.approx(short.voltage / 25.0, rel=1e-9)  # 1 A against 25 A

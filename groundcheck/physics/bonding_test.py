@@ -161,9 +161,31 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
     return tuple(tests)
 
 
-def _shares(plan: Plan, circ) -> tuple[dict[str, float], dict[str, float]]:
+def _behind_fuse(plan: Plan) -> float | None:
+    """The long test's current behind the equipment's fuse as a share of its current at the inlet
+    (the fuse's rating over the breaker's), or None when the plan states not both."""
+    m = plan.mains
+    if m.fuse is None or m.breaker is None or m.breaker <= 0:
+        return None
+    return min(1.0, m.fuse / m.breaker)
+
+
+def _inlet_part(plan: Plan, rpart: dict) -> str | None:
+    """The touchable part the inlet sits on: the one whose outline holds the mains statement's
+    ``inlet at`` position, else the one nearest the inlet's protective terminal (the least path
+    resistance): where a fault ahead of the fuse (the inlet's line pin, the fuse holder) lands."""
+    at = plan.mains.inlet
+    if at is not None:
+        for m in plan.metals:
+            if m.name in rpart and m.size is not None and m.contains(at):
+                return m.name
+    return min(rpart, key=lambda p: (rpart[p], p)) if rpart else None
+
+
+def _shares(plan: Plan, circ, weight=None) -> tuple[dict[str, float], dict[str, float]]:
     """Per unit of test current: each conductor's largest current over the touchable parts (each
-    spot of a part in turn), and each part's path resistance (its worst spot)."""
+    spot of a part in turn; ``weight``: part -> a factor on that part's test current), and each
+    part's path resistance (its worst spot)."""
     _, labels = circ.components
     pe = circ.point_node.get(PE_POINT)
     if pe is None:
@@ -188,7 +210,8 @@ def _shares(plan: Plan, circ) -> tuple[dict[str, float], dict[str, float]]:
     n1 = np.array([b.n1 for b in circ.branches], dtype=np.int64)
     n2 = np.array([b.n2 for b in circ.branches], dtype=np.int64)
     r = np.maximum(np.array([b.r for b in circ.branches]), 1e-9)
-    amps = np.max(np.abs(V[n1] - V[n2]), axis=1) / r if len(n1) else np.zeros(0)
+    w = np.array([1.0 if weight is None else weight(name) for name, _ in cols])
+    amps = np.max(np.abs(V[n1] - V[n2]) * w, axis=1) / r if len(n1) else np.zeros(0)
     share: dict[str, float] = {}
     for b, a in zip(circ.branches, amps):
         if b.conductor is not None and a > 1e-9:
@@ -213,39 +236,59 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
     tests = bonding_tests(plan)
     if not tests:
         return None
-    share, rpart = _shares(plan, protective_circuit(plan, route, circuit))
-    by_name = plan.index.conductors
-    rows: list[ConductorHeat] = []
-    for test in tests:
-        for name in sorted(share):
-            c, amps = by_name[name], share[name] * test.current
-            if section_checked(c) and cross_section(c) is not None:
-                rows.append(conductor_heat(c, test, amps, plan.ambient))
-            elif KINDS[c.kind].fastening:
-                r = conductor_resistance(c, plan.ambient)[0]
-                rows.append(
-                    ConductorHeat(
-                        name,
-                        test.name,
-                        amps,
-                        None,
-                        None,
-                        None,
-                        None,
-                        None,
-                        None,
-                        None,
-                        power=amps * amps * r,
-                        drop=amps * r,
-                    )
-                )
+    circ = protective_circuit(plan, route, circuit)
+    share, rpart = _shares(plan, circ)
+    inlet, behind = _inlet_part(plan, rpart), _behind_fuse(plan)
+    long_share = share
+    if inlet is not None and behind is not None:
+        # a fault ahead of the fuse is the breaker's, at the inlet's part alone: every other
+        # part's path carries 200 % of the fuse's rating
+        long_share, _ = _shares(plan, circ, lambda p: 1.0 if p == inlet else behind)
+    rows = [
+        row
+        for test in tests
+        for name, sh in sorted((long_share if test.name == "long" else share).items())
+        if (row := _row(plan, plan.index.conductors[name], test, sh * test.current)) is not None
+    ]
     rating, volts = DROP_LIMIT
     m = plan.mains
     ahead, _ = m.inlet_device
     big = ahead is not None and ahead > rating
+
+    def factor(t, p) -> float:  # a part behind the fuse carries the fuse's share in the long test
+        if t.name != "long" or inlet is None or behind is None or p == inlet:
+            return 1.0
+        return behind
+
     parts = tuple(
-        PartDrop(p, t.name, t.current * r, volts if big and t.name == "long" else None)
+        PartDrop(
+            p, t.name, t.current * r * factor(t, p), volts if big and t.name == "long" else None
+        )
         for t in tests
         for p, r in sorted(rpart.items())
     )
     return BondingResult(tests, tuple(rows), parts, plan.ambient)
+
+
+def _row(plan: Plan, c, test: BondTest, amps: float) -> ConductorHeat | None:
+    """One conductor's figures in one test: a wire's temperatures, a fastening's contact power and
+    voltage (it has no cross-section), None for anything else."""
+    if section_checked(c) and cross_section(c) is not None:
+        return conductor_heat(c, test, amps, plan.ambient)
+    if not KINDS[c.kind].fastening:
+        return None
+    r = conductor_resistance(c, plan.ambient)[0]
+    return ConductorHeat(
+        c.name,
+        test.name,
+        amps,
+        None,
+        None,
+        None,
+        None,
+        None,
+        None,
+        None,
+        power=amps * amps * r,
+        drop=amps * r,
+    )
