@@ -226,9 +226,10 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "for 60 s (or 1.5 × the fuse rating when more), and 200 % of the rating of the protective "
         "device ahead of the equipment for 120 s (the supply's breaker when the plan or its "
         "installation states one, at the part the inlet sits on, since a fault ahead of the fuse "
-        "is the breaker's to clear; the fuse's behind it). The temperature is bounded by the smaller of the adiabatic rise and the "
-        "steady state in still air. A fault when only the long test's bound passes the limit (the "
-        "path stays whole, its insulation may be damaged); a danger when a conductor would melt "
+        "is the breaker's to clear; the fuse's behind it). The temperature is bounded by the "
+        "smaller of the adiabatic rise and the steady state in still air. A fault when only the "
+        "long test's bound passes the limit (the path stays whole, its insulation may be "
+        "damaged); a danger when a conductor would melt "
         "in either test (the path opens) or passes its limit at the 25 A minute every class I "
         "product must carry. With a protective device above 16 A, the path's voltage at the long "
         "test's current is held to 2.5 V (a danger).",
