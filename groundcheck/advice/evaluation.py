@@ -27,7 +27,7 @@ from .changes import Candidate
 from .edits import apply_edits, edited_texts
 from .fixes import identity
 from .hearing import HUM_FLOOR_DBV, heard_changes, share_only
-from .returns import lost_wired_returns, metals_cut_loose
+from .returns import lost_circuit, lost_wired_returns, metals_cut_loose
 
 #: the key of :attr:`Evaluation.net` that counts protective-earth faults (among the faults)
 PE_FAULT = "protective-earth fault"
@@ -171,6 +171,12 @@ def _edited_plan(base_text: str, plan: Plan, cand: Candidate, root, resolved) ->
         return (
             f"it would leave {', '.join(unwired[:3])} without "
             "a wired return (the signal would return through the chassis, or not at all)"
+        )
+    cut = lost_circuit(plan, p)
+    if cut:
+        return (
+            f"it would leave {', '.join(cut[:3])} joined to none of its circuit (its signal "
+            "would have to return through other equipment and the mains)"
         )
     loose = metals_cut_loose(plan, p)
     if loose:

@@ -69,7 +69,7 @@ def _link_candidates(ctx: ChangeContext, reason: str, add) -> None:
             add(
                 refuse(
                     Candidate(
-                        f"use a balanced interconnect for {name}",
+                        f"use a balanced interconnect for {name}" + _own_ends(ctx, c),
                         reason,
                         (edit,),
                         action="balance",
@@ -257,4 +257,23 @@ def shield_to_chassis(ctx: ChangeContext, f):
         "ground it returns to"
         if not c.balanced
         else "",
+    )
+
+
+def _own_ends(ctx: ChangeContext, c) -> str:
+    """What a balanced link asks of the builder's own equipment at its ends: a balanced output
+    (a transformer or a balanced driver) and a balanced input, not the cable alone."""
+    own = sorted(
+        {
+            dev
+            for end in (c.a, c.b)
+            if (dev := ctx.plan.index.device_of(end)) is not None
+            and dev in dict(ctx.plan.device_plans)
+        }
+    )
+    if not own:
+        return ""
+    return (
+        f" — with a balanced socket and circuit at its end in {', '.join(own)} (an output "
+        "transformer or a balanced driver and input), not the cable alone"
     )

@@ -21,6 +21,7 @@ import networkx as nx
 from ..model.installation import device_of
 from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
 from ..model.records import PE_POINT, SOCKET_KINDS, Plan
+from ..rules.equipment import ELV_LIMIT
 from .changes import Candidate, ChangeContext, delete_change
 
 __all__ = [
@@ -80,6 +81,10 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
             c = ctx.cond.get(name)
             if c is None or name in seen or ctx.protective(c):
                 continue
+            if _elv_bond(ctx, c):
+                seen.add(name)
+                add(_remove_elv_bond(ctx, c, reason))
+                continue
             point = _socket_end(c, ctx)
             if point is not None:
                 seen.add(name)
@@ -93,6 +98,40 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
         # every one of them leaves its frame connected to nothing
         if not ctx.plan.metal(metal).signal_only:
             add(_insulate_all(metal, held, reason))
+
+
+def _elv_bond(ctx: ChangeContext, c) -> bool:
+    """Whether ``c`` is a wire joining a circuit's 0 V to a stud or tag fastened to the case, in a
+    device (or plan) whose every supply is extra-low voltage: a functional bond, not a protective
+    one, which a builder may take away (the outputs then float, as a class II supply's do)."""
+    if is_fastening(c, ctx.metals) or c.role == PROTECTIVE:
+        return False
+    fastened = {
+        p for d in ctx.plan.conductors if is_fastening(d, ctx.metals) for p in (d.a, d.b)
+    } - ctx.metals
+    if len({c.a, c.b} & fastened) != 1:
+        return False
+    device_of = ctx.plan.index.device_of
+    own = device_of(c.name)
+    rects = [r for r in ctx.plan.rectifiers if device_of(r.name) == own]
+    return bool(rects) and all(r.secondary <= ELV_LIMIT for r in rects)
+
+
+def _remove_elv_bond(ctx: ChangeContext, c, reason: str) -> Candidate | None:
+    volts = max(
+        r.secondary
+        for r in ctx.plan.rectifiers
+        if ctx.plan.index.device_of(r.name) == ctx.plan.index.device_of(c.name)
+    )
+    return delete_change(
+        ctx,
+        c.name,
+        f"remove {c.name}, the bond of an extra-low-voltage supply's 0 V to its case ({volts:g} V "
+        f"windings, under {ELV_LIMIT:g} V: not protective), so that its outputs float as a class "
+        "II supply's do and no ground loop closes through it",
+        reason,
+        "remove",
+    )
 
 
 def _insulate_all(metal: str, held: list, reason: str) -> Candidate | None:
@@ -209,6 +248,47 @@ def metals_cut_loose(before: Plan, after: Plan) -> list[str]:
     before a change and to nothing earthed after it: a screen or box left floating (a step-up box
     whose every socket is insulated from it), which picks up what it should keep out."""
     return sorted(_earthed_metals(before) - _earthed_metals(after))
+
+
+def _local_graph(plan: Plan) -> nx.Graph:
+    """Every conductor that joins two things inside one piece of equipment (wires, metal parts and
+    their fastenings; never a link between devices, the protective route or the mains)."""
+    outlets = {p.name for p in plan.points if p.kind == "outlet"}
+    G = nx.Graph()
+    G.add_nodes_from(p.name for p in plan.points)
+    for c in plan.conductors:
+        if (
+            c.connects
+            and not can_open(c)
+            and not joins_devices(c)
+            and c.role != PROTECTIVE
+            and not ({c.a, c.b} & outlets)
+            and not (c.a.endswith(PE_POINT) or c.b.endswith(PE_POINT))
+        ):
+            G.add_edge(c.a, c.b)
+    return G
+
+
+def lost_circuit(before: Plan, after: Plan) -> list[str]:
+    """Sockets joined to their circuit (a pad, a star, a stage's ground: any point that is neither
+    a socket nor metal) inside their equipment before a change, by wires or through the metal
+    they are fastened to, and to none after it: an output jack whose ground reaches the board
+    only through the box and the input jack's nut, say, once that nut is insulated."""
+    metals = {m.name for m in before.metals}
+    kinds = {p.name: p.kind for p in (*before.points, *after.points)}
+    hardware = {*SOCKET_KINDS, "stud", "tag", "lug", "inlet", "outlet", "earthing-terminal"}
+
+    def circuit(comp) -> bool:  # a point of the circuit itself, not a socket or the case's studs
+        return any(n not in metals and kinds.get(n, "junction") not in hardware for n in comp)
+
+    c0, c1 = _components(_local_graph(before)), _components(_local_graph(after))
+    return [
+        p.name
+        for p in before.points
+        if p.kind in SOCKET_KINDS
+        and circuit(c0.get(p.name, ()))
+        and not circuit(c1.get(p.name, ()))
+    ]
 
 
 def lost_wired_returns(before: Plan, after: Plan) -> list[str]:

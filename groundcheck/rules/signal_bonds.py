@@ -14,7 +14,7 @@ from ..model.records import SOCKET_KINDS
 from ..network.graph import part_labels
 from .catalogue import Finding
 from .context import AuditContext
-from .equipment import equipment_of
+from .equipment import ELV_LIMIT, equipment_of
 from .graph_search import bfs
 from .pe_places import pe_point
 from .floating import floating_fix as _floating_fix
@@ -93,10 +93,11 @@ def _held_by_links(ctx: AuditContext, comp: list, name: str, bonded: set, equipm
         powered = any(
             devices[d].plugged is not None and devices[d].equipment_class == "I" for d in members
         )
+        # an extra-low-voltage supply's outputs may float (a pedal supply's, as a class II one's)
         supplies = sorted(
             r.name
             for r in ctx.plan.rectifiers
-            if device_of(r.name) in members and {r.a, r.b} & points
+            if device_of(r.name) in members and {r.a, r.b} & points and r.secondary > ELV_LIMIT
         )
         if not (powered and supplies):
             continue

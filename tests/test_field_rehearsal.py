@@ -1,0 +1,66 @@
+"""An outside builder's 120 V rehearsal room (tests/field/rehearsal-room-120v, copied as
+written): a valve guitar head of his own, a pedal supply of his own whose 0 V is wired to its
+earthed case, two bought pedals (die-cast boxes, both jacks bolted to the box, the board's ground
+wired to the input jack alone), a bought mixer and bass combo on another circuit.
+
+His verdict: the first fix is to take the pedal supply's 0 V bond away (a 12 V supply's outputs
+float, as a class II supply's do); never open the bought pedals, and never insulate a jack whose
+nut is the other jack's only way to the board.  The room's advice takes some 20 s, so it is left
+out of the suite's sweep: the candidates and the two evaluations his verdict turns on are checked
+here, and the device plans are swept."""
+
+from pathlib import Path
+
+import pytest
+
+from groundcheck import load
+from groundcheck.advice.candidates import candidates
+from groundcheck.advice.evaluation import evaluate
+from groundcheck.analysis import Options, analyze
+
+from fieldadvice import GROUP
+
+FIELD = Path(__file__).parent / "field" / "rehearsal-room-120v"
+ROOM = FIELD / "room.gplan"
+
+pytestmark = pytest.mark.xdist_group(GROUP)
+
+
+@pytest.fixture(scope="module")
+def room():
+    plan = load(ROOM)
+    before = analyze(plan)
+    text = ROOM.read_text(encoding="utf-8")
+    return plan, before, text, {(c.action, c.element): c for c in candidates(plan, before, text)}
+
+
+def _evaluated(room, action: str, element: str):
+    plan, before, text, cands = room
+    cand = cands[(action, element)]
+    return evaluate(text, plan, before, cand, Options(), ROOM.parent, ROOM.resolve())
+
+
+def test_the_pedal_supplys_own_bond_is_offered_and_clears_the_current_on_the_earth(room):
+    ev = _evaluated(room, "remove", "psu.zv_bond")
+    assert not ev.rejected
+    assert "extra-low-voltage supply's 0 V" in ev.candidate.title
+    cleared = {c.split(" ")[0] for c in ev.cleared}
+    # his compare: the pedals' DC off the protective conductors (GC224) and the shared stud
+    assert "GC224" in cleared and not [f for f in ev.result.findings if f.code == "GC224"]
+
+
+def test_a_pedals_input_nut_is_never_insulated(room):
+    # the output jack reaches the board only through the box and the input jack's nut
+    ev = _evaluated(room, "insulate", "delay.in_nut")
+    assert "delay.out_j joined to none of its circuit" in ev.rejected
+
+
+def test_his_hand_figures(room):
+    _, before, _, _ = room
+    earths = {d.device: d for d in before.device_earths}
+    # H5: the head's earth path, 2 m of 18 AWG, 1.8 m of 14 AWG, 18 m of 12 AWG at ρ = 0.017241
+    # Ω·mm²/m (AWG areas by ASTM B258): 150.6 mΩ
+    assert earths["head"].resistance == pytest.approx(0.1506, rel=1e-3)
+    # H9: of the drive pedal's 10 mA, about 6 % (0.6 mA) in the cords' protective conductors
+    (f,) = [f for f in before.findings if f.code == "GC224" and f.elements[0] == "drive_dc"]
+    assert f.figures["current_a"] == pytest.approx(0.6e-3, rel=0.05)
