@@ -64,3 +64,15 @@ def test_his_hand_figures(room):
     # H9: of the drive pedal's 10 mA, about 6 % (0.6 mA) in the cords' protective conductors
     (f,) = [f for f in before.findings if f.code == "GC224" and f.elements[0] == "drive_dc"]
     assert f.figures["current_a"] == pytest.approx(0.6e-3, rel=0.05)
+
+
+def test_the_heads_channel_is_heard_through_its_own_cabinet(room):
+    # his 3rd and 4th points: the guitar lead's input into the head does not make the head's
+    # channel the PA's; through the head's own chain (18 V rated, 100 dB/W/m at 2 m) its hum is
+    # about 49.8 dB SPL, 10.9 dB above hearing (his hand figure), and its own speaker current
+    # feeds back -40.3 dB of its 18 V, not of the room's 1.23 V
+    _, before, _, _ = room
+    head = before.hum.channels["head"]
+    assert head.margin_db == pytest.approx(10.9, abs=0.2)
+    (f,) = [f for f in before.findings if f.code == "GC306"]
+    assert f.figures["feedback_db"] == pytest.approx(-40.3, abs=0.1)

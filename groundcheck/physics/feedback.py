@@ -86,13 +86,14 @@ def _db(v: float, rated: float) -> float:
     return max(FEEDBACK_FLOOR_DB, db_of_ratio(v / rated)) if v > 0 else FEEDBACK_FLOOR_DB
 
 
-def feedback_rows(raw: dict, rated: float) -> list[dict]:
+def feedback_rows(raw: dict, rated) -> list[dict]:
     """The feedback rows of the result, by source and frequency.
 
     Parameters:
         raw: (source, channel, frequency) -> (phasor from every stage, phasor from the input
             stages), V.
-        rated: the rated output, V.
+        rated: the rated output, V, or a function of the channel giving its own (a placed device's
+            channel heard through its own chain is against that chain's rated output).
     Returns:
         rows of source, channel, frequency_hz, volts, db (every stage's sum against the rated
         output), input_volts and input_db (the stages not at the current's own points); a source
@@ -100,10 +101,11 @@ def feedback_rows(raw: dict, rated: float) -> list[dict]:
     References:
         decibels of a voltage ratio, 20·log10 (IEC 60027-3).
     """
+    of = rated if callable(rated) else (lambda ch: rated)
     heard = {
         k[0]
         for k, (total, ahead) in raw.items()
-        if max(_db(abs(total), rated), _db(abs(ahead), rated)) > FEEDBACK_FLOOR_DB
+        if max(_db(abs(total), of(k[1])), _db(abs(ahead), of(k[1]))) > FEEDBACK_FLOOR_DB
     }
     rows = []
     for (name, ch, f), (total, ahead) in sorted(raw.items(), key=lambda kv: (kv[0][0], kv[0][2])):
@@ -115,9 +117,9 @@ def feedback_rows(raw: dict, rated: float) -> list[dict]:
                 "channel": ch,
                 "frequency_hz": f,
                 "volts": float(abs(total)),
-                "db": round(_db(abs(total), rated), 2),
+                "db": round(_db(abs(total), of(ch)), 2),
                 "input_volts": float(abs(ahead)),
-                "input_db": round(_db(abs(ahead), rated), 2),
+                "input_db": round(_db(abs(ahead), of(ch)), 2),
             }
         )
     return rows

@@ -87,9 +87,9 @@ class HumOptions:
 
 def channel_listenings(plan, stages, channels) -> dict:
     """Each channel's listening context: in an installation, a channel whose stages are all inside
-    one placed device whose own plan states a whole listening chain (a speaker or headphones) is
-    heard through it (a guitar head through its own cabinet, not the installation's PA); every
-    other channel through the plan's.
+    one placed device (beside the inputs of the installation's links) whose own plan states a
+    whole listening chain (a speaker or headphones) is heard through it (a guitar head through its
+    own cabinet, not the installation's PA); every other channel through the plan's.
 
     Parameters:
         plan: the plan.
@@ -107,7 +107,9 @@ def channel_listenings(plan, stages, channels) -> dict:
     }
     out = {}
     for ch in channels:
-        devices = {plan.index.device_of(s.name) for s in stages if s.channel == ch}
+        # the inputs of the installation's own links in the channel (a guitar lead into the head)
+        # are heard through the equipment they feed: they decide no chain
+        devices = {plan.index.device_of(s.name) for s in stages if s.channel == ch} - {None}
         dev = next(iter(devices)) if len(devices) == 1 else None
         out[ch] = own.get(dev, plan.listening)
     return out

@@ -261,7 +261,11 @@ class Merged:
         return clist
 
     def feedback(self) -> list[dict]:
-        return feedback_rows(self.feedback_raw, self.b.rated)
+        def rated(ch: str) -> float:  # each channel against its own chain's rated output
+            listening = self.b.listening_of(ch)
+            return listening.rated_output if listening else self.b.rated
+
+        return feedback_rows(self.feedback_raw, rated)
 
     def crosstalk(self) -> list[dict]:
         rated = self.b.rated
