@@ -46,3 +46,30 @@ def test_nothing_offered_touches_the_protective_earth_or_a_sockets_only_return()
         assert (
             e.candidate.element not in {"in_l_gnd", "in_r_gnd"} or e.candidate.action != "remove"
         )
+
+
+def test_a_findings_own_action_rejected_for_another_rule_is_its_fix_line():
+    # a second bond's socket (GC105's action) insulated by a change made for a loop (GC101) and
+    # rejected there: GC105's fix line says so, never its own "insulate" (an outside builder read
+    # both in one output)
+    from groundcheck.advice.changes import Candidate
+    from groundcheck.advice.evaluation import Evaluation
+    from groundcheck.advice.fixes import NONE_ACCEPTED, advised_fixes
+    from groundcheck.core.errors import Location
+    from groundcheck.rules.catalogue import Finding
+    from types import SimpleNamespace
+
+    f = Finding(
+        "GC105",
+        "warning",
+        "signal ground at k is bonded to the chassis at 2 places",
+        Location("p.gplan", 3, 1),
+        ("in_gnd", "star_bond"),
+        {"bonds": 2},
+        "keep the bond at star; insulate in_nut from the metal",
+        (("insulate", "in_nut"),),
+    )
+    cand = Candidate("insulate in_nut: in off chassis", "GC101", (), False, element="in_nut")
+    ev = Evaluation(cand, None, rejected="it would make the head hum louder")
+    (line,) = advised_fixes(SimpleNamespace(findings=[f]), [ev])
+    assert line.startswith(NONE_ACCEPTED) and "it would make the head hum louder" in line

@@ -91,8 +91,10 @@ def _fix(f, clearing_by_key: dict, rejected_by_code: dict) -> str:
     # a candidate made for the finding: it answers its rule and names one of its elements (a change
     # in a block is made once for every placement: it answers each one's)
     tried, seen = [], set()
-    for name in dict.fromkeys([*f.elements, *map(_local, f.elements)]):
-        for i, ev in rejected_by_code.get((f.code, name), []):
+    acted = [("", a[1]) for a in (f.actions or ()) if len(a) > 1]
+    keys = [(f.code, name) for name in dict.fromkeys([*f.elements, *map(_local, f.elements)])]
+    for key in [*keys, *acted]:
+        for i, ev in rejected_by_code.get(key, []):
             if i not in seen:
                 seen.add(i)
                 tried.append((i, ev))
@@ -124,6 +126,9 @@ def advised_fixes(result, evs) -> list[str]:
             for code in dict.fromkeys(ev.candidate.reason.split(",")):
                 for name in _names_in(ev):
                     rejected_by_code.setdefault((code, name), []).append((i, ev))
+            # and by the element it changes: a finding whose own action names that element (a
+            # second bond's socket to insulate) was answered by it, whichever rule it was made for
+            rejected_by_code.setdefault(("", ev.candidate.element), []).append((i, ev))
         else:
             for key in ev.cleared_keys:
                 clearing_by_key.setdefault(key, []).append(ev)
