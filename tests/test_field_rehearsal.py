@@ -76,3 +76,20 @@ def test_the_heads_channel_is_heard_through_its_own_cabinet(room):
     assert head.margin_db == pytest.approx(10.9, abs=0.2)
     (f,) = [f for f in before.findings if f.code == "GC306"]
     assert f.figures["feedback_db"] == pytest.approx(-40.3, abs=0.1)
+
+
+def test_a_120_v_glass_fuse_warning_asks_for_its_rating_at_that_voltage():
+    # his 7th point: the 35 A is IEC 60127's low-breaking figure at 250 V; a fuse rated at 125 V
+    # often breaks far more, so the warning asks for the data sheet's figure at 120 V
+    r = analyze(load(FIELD / "head.gplan"))
+    (f,) = [f for f in r.findings if f.code == "GC211"]
+    assert f.severity == "warning" and "at 250 V: on a 120 V supply" in f.message
+    # stated, it is checked instead: 10 kA at 125 V breaks the 196 A short, no finding
+    text = (FIELD / "head.gplan").read_text(encoding="utf-8").replace(
+        "fuse 2 A slow", "fuse 2 A slow, breaking 10000 A", 1
+    )
+    from groundcheck import load_text
+
+    assert "breaking 10000 A" in text
+    stated = analyze(load_text(text, str(FIELD / "head.gplan")))
+    assert not [f for f in stated.findings if f.code == "GC211"]

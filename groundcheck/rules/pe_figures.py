@@ -124,6 +124,11 @@ def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
     return out
 
 
+#: supplies at or below this (V) take fuses rated at 125 V, whose breaking capacity at their
+#: voltage is often far above IEC 60127's low-breaking 35 A at 250 V (UL 248-14, from memory)
+LOW_MAINS = 130.0
+
+
 def _breaking(plan: Plan, sup) -> list[Finding]:
     """GC211: a prospective current — a line-to-protective fault at the inlet or a line-to-neutral
     short inside the equipment, the cables cold — beyond what the fuse or breaker can break,
@@ -144,6 +149,13 @@ def _breaking(plan: Plan, sup) -> list[Finding]:
         assumed = (
             "" if stated else " (breaking capacity not stated: a low-breaking glass fuse assumed)"
         )
+        if not stated and m.voltage <= LOW_MAINS:
+            # IEC 60127's low-breaking figure is at 250 V; fuses rated at 125 V often break more
+            assumed += (
+                f"; that figure is IEC 60127's at 250 V: on a {m.voltage:g} V supply, state "
+                "your fuse's breaking rating at that voltage from its data sheet (', breaking "
+                "10000 A', say) to have it checked instead"
+            )
         what = (
             "a line-to-neutral short inside the equipment"
             if sup.short_circuit >= sup.earth_fault_max
