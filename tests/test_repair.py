@@ -396,12 +396,14 @@ wire panel_lead: pe_stud to back_panel, 150 mm, 22 AWG
 
 def test_protective_fixes_are_proposed_and_applied(tmp_path):
     # a role-less, thin bonding lead sharing the protective stud: the advisor thickens it to the
-    # next standard size (IEC 60228 series) at least the line conductor's, and gives the protective
+    # next size at least the line conductor's, and gives the protective
     # earth a stud of its own (the bonding path grows by a few milliohms, still far within the 0.1
     # ohm limit)
     before, evs = _evs(HEAD_PLAN, tmp_path, "head.gplan")
     useful = {e.candidate.reason: e for e in evs if not e.rejected}
-    assert "use 1 mm²" in useful["GC204"].candidate.title and "GC204" not in _codes_after(
+    # (the lead is written in AWG: the thinnest common gauge of at least the 18 AWG line
+    # conductor's 0.823 mm², by ASTM B258, is 18 AWG itself)
+    assert "use 18 AWG" in useful["GC204"].candidate.title and "GC204" not in _codes_after(
         useful["GC204"]
     )
     assert "GC202" not in _codes_after(useful["GC202"])
