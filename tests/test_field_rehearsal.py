@@ -99,7 +99,7 @@ def test_a_plan_in_awg_is_told_a_gauge():
     # his 7th point: "use 2.5 mm²" told a builder with 14 AWG in the drawer nothing; a plan that
     # writes AWG gets the thinnest common gauge of at least the size that passes (ASTM B258:
     # d = 0.127 mm × 92^((36 − n)/39); 14 AWG 2.08 mm² is less than 2.5, 12 AWG 3.31 mm² is not)
-    from groundcheck.advice.protective_changes import _awg_area, _gauge
+    from groundcheck.advice.thickening import _awg_area, _gauge
 
     assert _awg_area(14) == pytest.approx(2.081, rel=1e-3)
     assert _awg_area(12) == pytest.approx(3.309, rel=1e-3)

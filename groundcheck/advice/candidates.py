@@ -23,7 +23,8 @@ from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, device_note
 from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
 from .loop_changes import loop_candidates, second_bond, terminate_shield
-from .protective_changes import bonding_wire, own_stud, thicker
+from .protective_changes import bonding_wire, own_stud
+from .thickening import thicker
 from .routing_changes import (
     carried_actions,
     crosstalk_candidates,

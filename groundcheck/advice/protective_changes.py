@@ -19,11 +19,10 @@ from .changes import (
     Candidate,
     ChangeContext,
     local_name,
-    squeeze,
 )
 from .edits import Edit
 
-__all__ = ["own_stud", "bonding_wire", "thicker"]
+__all__ = ["own_stud", "bonding_wire"]
 
 
 #: how far a new stud stays inside its part's edge, m: the radius of an M4 or M5 washer and a
@@ -330,77 +329,3 @@ def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
     if lines[-1] == "":
         return Edit(n, "\n".join(extra) + "\n", (), n, file)
     return Edit(n, lines[-1], extra, n, file)
-
-
-#: the gauges of hook-up and cord wire in common use, thinnest first
-COMMON_GAUGES = (22, 20, 18, 16, 14, 12, 10, 8, 6, 4)
-
-
-def _awg_area(n: int) -> float:
-    """The area of an AWG gauge, mm²: d = 0.127 mm × 92^((36 − n)/39) (ASTM B258)."""
-    d = 0.127 * 92 ** ((36 - n) / 39)
-    return math.pi * d * d / 4
-
-
-def _gauge(area: float) -> int | None:
-    """The thinnest common AWG gauge of at least ``area`` mm² (None beyond the table)."""
-    return next((n for n in COMMON_GAUGES if _awg_area(n) >= area * (1 - 1e-9)), None)
-
-
-def thicker(ctx: ChangeContext, f) -> Candidate | None:
-    """GC204: the protective conductor at the line conductor's cross-section; GC223: at the
-    smallest standard size that passes the bonding test (each a change that only strengthens
-    it)."""
-    c = ctx.cond.get(f.elements[0]) if f.elements else None
-    st = ctx.statement(c) if c is not None else None
-    passes = f.figures.get("thicker_mm2")  # GC223: the smallest size that passes the test
-    if st is None:
-        return None
-    if passes is not None:  # the size that passes every test the conductor fails, not one alone
-        passes = max(
-            [passes]
-            + [
-                g.figures["thicker_mm2"]
-                for g in ctx.result.findings
-                if g.code == f.code
-                and g.elements[:1] == f.elements[:1]
-                and g.figures.get("thicker_mm2") is not None
-            ]
-        )
-    if passes is not None:
-        area = need = passes
-        why = "the smallest standard size that passes the bonding tests"
-    elif ctx.plan.mains is None or ctx.plan.mains.line_area is None:
-        return None
-    else:
-        need = ctx.plan.mains.line_area * 1e6
-        area = next((a for a in STANDARD_SECTIONS_MM2 if a >= need * (1 - 1e-9)), need)
-        why = f"the standard size at least the line conductor's {need:.3g} mm²"
-    new = f"{area:g} mm2"
-    item = ctx.src.quantity(st, "area")
-    gauge = _gauge(need) if item is not None and item.text.upper().endswith("AWG") else None
-    if gauge is not None:  # a plan written in AWG gets a gauge, the thinnest common one that does
-        new = f"{gauge} AWG"
-        what = "the line conductor's" if passes is None else "what passes the bonding tests,"
-        why = (
-            f"{_awg_area(gauge):.3g} mm², the thinnest common gauge of at least {what} "
-            f"{need:.3g} mm²"
-        )
-    if item is not None:
-        edit = ctx.src.replace(st, [(item, new)])
-    else:
-        # 'AWG 18' written word first; a trace, bus bar or strap given by its width is made wider
-        # by hand (the finding says so), never turned into a round wire by giving it an area
-        ph = ctx.src.find(st, "AWG")
-        if not ph:
-            return None
-        edit = ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
-        edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
-    return Candidate(
-        f"use {new.replace('mm2', 'mm²')} ({why}) for protective conductor {c.name}",
-        f.code,
-        (edit,),
-        touches_protective=False,
-        action="thicken",
-        element=c.name,
-    )
