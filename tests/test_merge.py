@@ -39,3 +39,21 @@ def test_edits_that_do_not_overlap_pass_through_and_a_removal_never_merges():
     kept, own = merge_into([a], (b,), TEXT)
     assert kept == [a] and own == (b,)
     assert merge_into([a], (Edit(4, None),), TEXT) is None
+
+
+def test_two_changes_to_one_statement_of_a_device_plan_merge(tmp_path):
+    # the thicker protective lead and its stud of its own, both in a placed device's own plan:
+    # merged against that file's text as it stands (GC202 had been left after the combined set)
+    from groundcheck.advice.edits import Edit
+    from groundcheck.advice.merge import merge_into
+
+    dev = tmp_path / "preamp.gplan"
+    dev.write_text("plan \"p\"\nwire pe_lead: mains.pe to psu_pe, 30 mm, 1.0 mm2, protective\n")
+    line = "wire pe_lead: mains.pe to psu_pe, 30 mm, 1.0 mm2, protective"
+    thicker = Edit(2, line.replace("1.0 mm2", "1.5 mm2"), (), 2, str(dev))
+    stud = Edit(2, line.replace("psu_pe,", "pe_stud,"), ("point pe_stud: stud",), 2, str(dev))
+    kept, rest = merge_into([thicker], (stud,), "plan \"room\"\n")
+    assert rest == () and kept[0].new == (
+        "wire pe_lead: mains.pe to pe_stud, 30 mm, 1.5 mm2, protective"
+    )
+    assert kept[0].extra == ("point pe_stud: stud",)

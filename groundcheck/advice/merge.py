@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+from pathlib import Path
 
 from .edits import Edit
 
@@ -19,8 +20,8 @@ __all__ = ["merge_into", "overlap"]
 def merge_into(kept: list[Edit], more, text: str) -> tuple[list[Edit], tuple[Edit, ...]] | None:
     """``kept`` with ``more`` merged in: (the kept edits, each one that ``more`` overlaps merged
     with it; the edits of ``more`` that overlap none).  None when an overlap cannot be merged (a
-    device plan's edit, different line spans, a removal, or the same characters changed both
-    ways).
+    device plan that cannot be read, different line spans, a removal, or the same characters
+    changed both ways).
 
     Parameters:
         kept: the combined set's edits so far (they do not overlap one another).
@@ -42,16 +43,27 @@ def merge_into(kept: list[Edit], more, text: str) -> tuple[list[Edit], tuple[Edi
         if len(hits) > 1:
             return None
         k = out[hits[0]]
-        if (k.file, k.line, k.last) != (m.file, m.line, m.last) or k.file is not None:
+        if (k.file, k.line, k.last) != (m.file, m.line, m.last):
             return None
         if k.new is None or m.new is None:
             return None
-        original = "\n".join(lines[k.line - 1 : (k.last or k.line)])
+        src = lines if k.file is None else _device_lines(k.file)
+        if src is None:
+            return None
+        original = "\n".join(src[k.line - 1 : (k.last or k.line)])
         merged = _three_way(original, k.new, m.new)
         if merged is None:
             return None
         out[hits[0]] = dataclasses.replace(k, new=merged, extra=k.extra + m.extra)
     return out, tuple(rest)
+
+
+def _device_lines(file: str) -> list[str] | None:
+    """A device's own plan as it stands on disk, which its edits refer to (None if unreadable)."""
+    try:
+        return Path(file).read_text(encoding="utf-8").split("\n")
+    except (OSError, UnicodeDecodeError):
+        return None
 
 
 def overlap(a: Edit, b: Edit) -> bool:
