@@ -104,3 +104,11 @@ def test_a_plan_in_awg_is_told_a_gauge():
     assert _awg_area(14) == pytest.approx(2.081, rel=1e-3)
     assert _awg_area(12) == pytest.approx(3.309, rel=1e-3)
     assert _gauge(2.5) == 12 and _gauge(2.0) == 14 and _gauge(0.8) == 18
+
+
+def test_the_heads_line_out_into_the_pa_is_no_crosstalk(room):
+    # his 7th misleading line: "crosstalk from head into pa_guitar" while pa_guitar is the head's
+    # own signal through its line out; a link that leaves a device whose stages are all one
+    # channel's carries that channel's signal
+    _, before, _, _ = room
+    assert not [f for f in before.findings if f.code == "GC304" and f.elements[0] == "head"]

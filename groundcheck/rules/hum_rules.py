@@ -115,11 +115,13 @@ def _pickup_fix(plan, source: str) -> str:
 def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
     """GC304: crosstalk at the signal frequency between channels above the limit."""
     out = []
+    fed = _fed_by(s)
     for row in s.hum.crosstalk:
         if (
             at_signal_frequency(row["frequency_hz"])
             and row["db"] is not None
             and row["db"] > s.options.crosstalk_limit
+            and (str(row["from"]), row["to"]) not in fed
         ):
             loc = stages_by_ch[row["to"]][0].location
             out.append(
@@ -134,6 +136,27 @@ def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
                     _crosstalk_fix(s, str(row["from"]), row["to"]),
                 )
             )
+    return out
+
+
+def _fed_by(s: Solved) -> set:
+    """(talker, listener) pairs where the listener channel carries the talker's own signal: its
+    stages read a link that leaves a device whose stages are all the talker's (a guitar head's
+    line out into the PA's channel): the talker's signal is meant to be there, so no crosstalk.
+    A device of two channels (a stereo preamplifier) never says which one a link carries."""
+    device_of = s.plan.index.device_of
+    channels: dict = {}
+    for st in s.plan.stages:
+        dev = device_of(st.name)
+        if dev is not None:
+            channels.setdefault(dev, set()).add(st.channel)
+    links = {c.name: c for c in s.plan.conductors if joins_devices(c)}
+    out = set()
+    for st in s.plan.stages:
+        c = links.get(st.name.removesuffix(".input"))
+        only = channels.get(device_of(c.a)) if c is not None else None
+        if only is not None and len(only) == 1 and st.channel not in only:
+            out.add((next(iter(only)), st.channel))
     return out
 
 
