@@ -57,7 +57,9 @@ HUM_ENTRIES: list[Rule] = [
         "crosstalk",
         HUM,
         "warning",
-        "Crosstalk between channels through shared return impedance, worse than −60 dB at 1 kHz.",
+        "Crosstalk between channels through shared return impedance, worse than −60 dB at 1 kHz "
+        "(not into a channel fed by the talker's own line out: a link leaving a device whose "
+        "stages are all the talker's).",
         "Shared return impedance lets one channel's signal current appear in the other's "
         "reference.",
         "Give each channel its own return to the star; join channels at one point only.",
