@@ -112,3 +112,13 @@ def test_the_heads_line_out_into_the_pa_is_no_crosstalk(room):
     # channel's carries that channel's signal
     _, before, _, _ = room
     assert not [f for f in before.findings if f.code == "GC304" and f.elements[0] == "head"]
+
+
+def test_a_speaker_current_with_its_own_return_is_told_where_it_leaks(room):
+    # his 4th point: GC306 asked for a speaker return wire the head already has (spk_gnd); the
+    # share that feeds back runs through the line out's wire off the speaker jack and the loop
+    # it closes through the PA and the mains cords
+    _, before, _, _ = room
+    (f,) = [f for f in before.findings if f.code == "GC306"]
+    assert "already returns by a wire of its own (head.spk_gnd)" in f.fix
+    assert "head.lo_w at head.spk_j" in f.fix and "give head.spk_load" not in f.fix

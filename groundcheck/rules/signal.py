@@ -108,6 +108,29 @@ def _return_wire(s: Solved, cur) -> tuple[str, str] | None:
     return (c.name, cur.b) if far != cur.b else None
 
 
+def _own_return_fix(s: Solved, cur, ch: str) -> str:
+    """GC306's fix when no single wire is to move: a return of its own; or, when the current
+    already has one (a wire straight between its two points), the parallel paths its share takes
+    into the input ground (a line out's shield and the loop it closes through other equipment)."""
+    own = [c.name for c in s.plan.conductors if {c.a, c.b} == {cur.a, cur.b} and c.connects]
+    if not own:
+        return (
+            f"give {cur.name} a return of its own to its star, sharing nothing with the {ch} "
+            "input ground"
+        )
+    parallel = sorted(
+        c.name
+        for c in s.plan.conductors
+        if cur.a in (c.a, c.b) and c.connects and c.name not in own
+    )
+    via = f" ({', '.join(parallel[:4])} at {cur.a})" if parallel else ""
+    return (
+        f"{cur.name} already returns by a wire of its own ({', '.join(own)}): the share that "
+        f"reaches the {ch} input runs in parallel paths{via} and the loop they close through the "
+        "rest of the ground system (GC101): open that loop, not the return wire"
+    )
+
+
 def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
     """GC306 for one signal current from its feedback rows (None when below the note level)."""
     worst = max(rs, key=lambda r: (r["input_db"], -r["frequency_hz"]))
@@ -123,10 +146,7 @@ def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
             f"it shares nothing with the {ch} input ground"
         )
     else:
-        fix = (
-            f"give {cur.name} a return of its own to its star, sharing nothing with the {ch} "
-            "input ground"
-        )
+        fix = _own_return_fix(s, cur, ch)
     return Finding(
         "GC306",
         severity,
