@@ -21,6 +21,7 @@ import networkx as nx
 from ..model.installation import device_of
 from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
 from ..model.records import PE_POINT, SOCKET_KINDS, Plan
+from ..network.earthing import earth_terminals
 from ..rules.equipment import ELV_LIMIT
 from .changes import Candidate, ChangeContext, delete_change
 
@@ -74,6 +75,10 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
     from the metal (a terminal carrying 0 V: remove its bond to the case).  In a block the change
     is made once for every placement; in a device's own plan, in that plan."""
     seen, panels = set(), {}
+    elv = _elv_supplies(ctx)
+    fastened = {
+        p for d in ctx.plan.conductors if is_fastening(d, ctx.metals) for p in (d.a, d.b)
+    } - ctx.metals
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure":
             continue
@@ -81,9 +86,10 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
             c = ctx.cond.get(name)
             if c is None or name in seen or ctx.protective(c):
                 continue
-            if _elv_bond(ctx, c):
+            volts = elv.get(ctx.plan.index.device_of(c.name), 0.0)
+            if volts and _zero_volt_bond(ctx, c, fastened):
                 seen.add(name)
-                add(_remove_elv_bond(ctx, c, reason))
+                add(_remove_elv_bond(ctx, c, volts, reason))
                 continue
             point = _socket_end(c, ctx)
             if point is not None:
@@ -100,29 +106,26 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
             add(_insulate_all(metal, held, reason))
 
 
-def _elv_bond(ctx: ChangeContext, c) -> bool:
-    """Whether ``c`` is a wire joining a circuit's 0 V to a stud or tag fastened to the case, in a
-    device (or plan) whose every supply is extra-low voltage: a functional bond, not a protective
-    one, which a builder may take away (the outputs then float, as a class II supply's do)."""
-    if is_fastening(c, ctx.metals) or c.role == PROTECTIVE:
-        return False
-    fastened = {
-        p for d in ctx.plan.conductors if is_fastening(d, ctx.metals) for p in (d.a, d.b)
-    } - ctx.metals
-    if len({c.a, c.b} & fastened) != 1:
-        return False
-    device_of = ctx.plan.index.device_of
-    own = device_of(c.name)
-    rects = [r for r in ctx.plan.rectifiers if device_of(r.name) == own]
-    return bool(rects) and all(r.secondary <= ELV_LIMIT for r in rects)
+def _elv_supplies(ctx: ChangeContext) -> dict:
+    """Each device (None: the plan's own) whose every supply is extra-low voltage, with its
+    highest winding voltage, V rms: its 0 V-to-case bond is functional, not protective."""
+    by: dict = {}
+    for r in ctx.plan.rectifiers:
+        by.setdefault(ctx.plan.index.device_of(r.name), []).append(r.secondary)
+    return {d: max(v) for d, v in by.items() if max(v) <= ELV_LIMIT}
 
 
-def _remove_elv_bond(ctx: ChangeContext, c, reason: str) -> Candidate | None:
-    volts = max(
-        r.secondary
-        for r in ctx.plan.rectifiers
-        if ctx.plan.index.device_of(r.name) == ctx.plan.index.device_of(c.name)
-    )
+def _zero_volt_bond(ctx: ChangeContext, c, fastened: set) -> bool:
+    """Whether ``c`` is a wire joining a circuit's 0 V to a stud or tag fastened to the case (one
+    end fastened, the other not), never a fastening or a protective conductor itself."""
+    if c.role == PROTECTIVE or is_fastening(c, ctx.metals):
+        return False
+    return len({c.a, c.b} & fastened) == 1
+
+
+def _remove_elv_bond(ctx: ChangeContext, c, volts: float, reason: str) -> Candidate | None:
+    """An extra-low-voltage supply's 0 V-to-case wire taken away: its outputs float as a class II
+    supply's do (a builder may; the protective earth does not run through it)."""
     return delete_change(
         ctx,
         c.name,
@@ -229,13 +232,7 @@ def _earthed_metals(plan: Plan) -> set[str]:
     for c in plan.conductors:
         if c.connects and not can_open(c):
             G.add_edge(c.a, c.b)
-    refs = {
-        p.name
-        for p in plan.points
-        if p.kind in ("outlet", "earthing-terminal")
-        or p.name == PE_POINT
-        or p.name.endswith("." + PE_POINT)
-    } | ({PE_POINT} if plan.mains is not None else set())
+    refs = {n for names in earth_terminals(plan).values() for n in names}
     reached: set[str] = set()
     for r in refs & set(G.nodes):
         if r not in reached:

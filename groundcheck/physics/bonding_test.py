@@ -182,14 +182,14 @@ def _inlet_part(plan: Plan, rpart: dict) -> str | None:
     return min(rpart, key=lambda p: (rpart[p], p)) if rpart else None
 
 
-def _shares(plan: Plan, circ, weight=None) -> tuple[dict[str, float], dict[str, float]]:
-    """Per unit of test current: each conductor's largest current over the touchable parts (each
-    spot of a part in turn; ``weight``: part -> a factor on that part's test current), and each
-    part's path resistance (its worst spot)."""
+def _part_solve(plan: Plan, circ):
+    """Per unit of test current from the inlet's protective terminal to each spot of each
+    touchable part in turn: the spots (part, node), the node voltages (one column per spot), and
+    each part's path resistance (its worst spot); None when no part is reached."""
     _, labels = circ.components
     pe = circ.point_node.get(PE_POINT)
     if pe is None:
-        return {}, {}
+        return None
     cols = [
         (p.name, s)
         for p in plan.metals
@@ -198,7 +198,7 @@ def _shares(plan: Plan, circ, weight=None) -> tuple[dict[str, float], dict[str, 
         if labels[s] == labels[pe]
     ]
     if not cols:
-        return {}, {}
+        return None
     J = np.zeros((len(circ.nodes), len(cols)))
     for k, (_, s) in enumerate(cols):
         J[s, k] += 1.0
@@ -207,6 +207,14 @@ def _shares(plan: Plan, circ, weight=None) -> tuple[dict[str, float], dict[str, 
     rpart: dict[str, float] = {}
     for k, (name, s) in enumerate(cols):
         rpart[name] = max(rpart.get(name, 0.0), float(abs(V[s, k] - V[pe, k])))
+    return cols, V, rpart
+
+
+def _shares(circ, cols, V, weight=None) -> dict[str, float]:
+    """Each conductor's largest current over the spots of :func:`_part_solve`, per unit of test
+    current (``weight``: part -> a factor on that part's test current)."""
+    if not cols:
+        return {}
     n1 = np.array([b.n1 for b in circ.branches], dtype=np.int64)
     n2 = np.array([b.n2 for b in circ.branches], dtype=np.int64)
     r = np.maximum(np.array([b.r for b in circ.branches]), 1e-9)
@@ -216,7 +224,7 @@ def _shares(plan: Plan, circ, weight=None) -> tuple[dict[str, float], dict[str, 
     for b, a in zip(circ.branches, amps):
         if b.conductor is not None and a > 1e-9:
             share[b.conductor] = max(share.get(b.conductor, 0.0), float(a))
-    return share, rpart
+    return share
 
 
 def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> BondingResult | None:
@@ -237,13 +245,16 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
     if not tests:
         return None
     circ = protective_circuit(plan, route, circuit)
-    share, rpart = _shares(plan, circ)
+    solved = _part_solve(plan, circ)
+    cols, V, rpart = solved if solved is not None else ([], None, {})
     inlet, behind = _inlet_part(plan, rpart), _behind_fuse(plan)
-    long_share = share
+    # a fault ahead of the fuse is the breaker's, at the inlet's part alone: in the long test
+    # every other part's path carries 200 % of the fuse's rating
+    weight = None
     if inlet is not None and behind is not None:
-        # a fault ahead of the fuse is the breaker's, at the inlet's part alone: every other
-        # part's path carries 200 % of the fuse's rating
-        long_share, _ = _shares(plan, circ, lambda p: 1.0 if p == inlet else behind)
+        weight = lambda p: 1.0 if p == inlet else behind  # noqa: E731
+    share = _shares(circ, cols, V)
+    long_share = _shares(circ, cols, V, weight) if weight else share
     rows = [
         row
         for test in tests
@@ -251,18 +262,14 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
         if (row := _row(plan, plan.index.conductors[name], test, sh * test.current)) is not None
     ]
     rating, volts = DROP_LIMIT
-    m = plan.mains
-    ahead, _ = m.inlet_device
+    ahead, _ = plan.mains.inlet_device
     big = ahead is not None and ahead > rating
-
-    def factor(t, p) -> float:  # a part behind the fuse carries the fuse's share in the long test
-        if t.name != "long" or inlet is None or behind is None or p == inlet:
-            return 1.0
-        return behind
-
     parts = tuple(
         PartDrop(
-            p, t.name, t.current * r * factor(t, p), volts if big and t.name == "long" else None
+            p,
+            t.name,
+            t.current * r * (weight(p) if weight and t.name == "long" else 1.0),
+            volts if big and t.name == "long" else None,
         )
         for t in tests
         for p, r in sorted(rpart.items())

@@ -11,6 +11,7 @@ links (common practice; IEC 61140's single fault, from memory)."""
 from __future__ import annotations
 
 from ..model.kinds import joins_devices
+from ..network.graph import part_labels
 from .context import AuditContext
 
 __all__ = ["equipment_of", "signal_link", "ELV_LIMIT"]
@@ -45,20 +46,18 @@ def equipment_of(ctx: AuditContext) -> dict[str, str]:
         common practice (one bond per piece of equipment).
     """
     devices = sorted(ctx.plan.index.devices)
-    parent = {d: d for d in devices}
-
-    def root(d: str) -> str:
-        while parent[d] != d:
-            parent[d] = parent[parent[d]]
-            d = parent[d]
-        return d
-
+    at = {d: k for k, d in enumerate(devices)}
     device_of = ctx.plan.index.device_of
+    rows, cols = [], []
     for c in ctx.plan.conductors:
         if joins_devices(c) and signal_link(c):
             continue
         a, b = device_of(c.a), device_of(c.b)
-        if a in parent and b in parent and a != b:
-            ra, rb = sorted((root(a), root(b)))
-            parent[rb] = ra
-    return {d: root(d) for d in devices}
+        if a in at and b in at and a != b:
+            rows.append(at[a])
+            cols.append(at[b])
+    _, labels = part_labels(len(devices), rows, cols)
+    first: dict = {}
+    for d in devices:  # each part named by its first device by name
+        first.setdefault(int(labels[at[d]]), d)
+    return {d: first[int(labels[at[d]])] for d in devices}

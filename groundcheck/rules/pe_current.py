@@ -17,6 +17,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ..model.kinds import HEATER, LOAD, RETURN
+from ..model.sources import Rectifier
 from .catalogue import Finding
 from .registry import rule
 
@@ -43,7 +44,7 @@ def rule_pe_working_current(s: Solved) -> list[Finding]:
     Parameters:
         s: the solved network with its context.
     Returns:
-        GC224 findings, one per conductor and rectifier.
+        GC224 findings, one per source, naming the protective conductors it runs through.
     References:
         IEC 60364-5-54 543.5 (a protective conductor carries no operating current; PEN aside),
         from memory; the rule catalogue (rules/catalogue.py).
@@ -85,7 +86,7 @@ def _finding(r, over: list[str], share: dict, dc: float | None, loc) -> Finding:
     """One source's finding: the protective conductors it runs through, the largest share first."""
     top = share[over[0]]
     amps = f", about {top * dc * 1e3:.3g} mA of its {dc * 1e3:.3g} mA DC" if dc else ""
-    what = "return current" if hasattr(r, "secondary") else f"stated {r.role} current"
+    what = "return current" if isinstance(r, Rectifier) else f"stated {r.role} current"
     names = ", ".join(over[:6]) + (f" and {len(over) - 6} more" if len(over) > 6 else "")
     return Finding(
         "GC224",
