@@ -67,9 +67,27 @@ def test_a_device_written_for_the_buildings_own_supply_adds_nothing(tmp_path):
     (tmp_path / "amp.gplan").write_text(
         AMP.replace("inlet at", "system TT, electrode 300 ohm, rcd 30 mA, inlet at")
     )
-    (tmp_path / "room.gplan").write_text(ROOM.format(supply="system TT"))
+    (tmp_path / "room.gplan").write_text(
+        ROOM.format(supply="system TT, electrode 300 ohm, rcd 30 mA")
+    )
     r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
     assert not _placed(r)
+
+
+def test_an_rcd_only_the_devices_own_plan_assumes_is_not_counted(tmp_path):
+    # an outside builder's village hall: the amplifier's own plan assumes a 100 mA RCD, the room's
+    # supply states none. On TT the fault loop runs through the electrodes: 230 V over some 300 Ω
+    # is under 1 A, which opens no breaker (IEC 60898-1: type B at once from 5 x In, from memory),
+    # so with no RCD in the building nothing clears it
+    (tmp_path / "amp.gplan").write_text(
+        AMP.replace("inlet at", "system TT, electrode 300 ohm, rcd 100 mA, inlet at")
+    )
+    (tmp_path / "room.gplan").write_text(ROOM.format(supply="system TT, electrode 300 ohm"))
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    dangers = [f for f in _placed(r) if f.severity == "danger" and f.code == "GC208"]
+    assert dangers, _placed(r)
+    assert "no RCD" in dangers[0].message
+    assert "an RCD of 100 mA, not counted here" in dangers[0].message
 
 
 def test_suggest_offers_the_buildings_rcd_first(tmp_path):
@@ -231,7 +249,7 @@ def test_the_cord_the_installation_states_is_in_the_fault_loop(tmp_path):
     # once
     (tmp_path / "head.gplan").write_text(HEAD)
     (tmp_path / "stage.gplan").write_text(
-        STAGE.format(outlet="wall").replace('plugged wall', 'plugged wall, cord 50 m 0.75 mm2')
+        STAGE.format(outlet="wall").replace("plugged wall", "plugged wall, cord 50 m 0.75 mm2")
     )
     r = analyze(load(tmp_path / "stage.gplan"), Options(hum=False))
     (f, *_) = [x for x in r.findings if x.code == "GC208" and x.message.startswith("head,")]

@@ -115,7 +115,9 @@ class Supply:
         """A placed device's mains as the installation supplies it: the device's own statement
         (its fuse, cord, circuit) on this supply's earthing system, with this supply's electrode,
         RCD, loop impedance and breaker where it states them (the building's, whatever the
-        device's plan assumed).
+        device's plan assumed). The RCD is the building's alone: a supply that states none has
+        none, whatever the device's own plan assumed (a device's plan describes where it was meant
+        to be plugged in, not a part of it).
 
         Parameters:
             m: the device's own mains statement, or None.
@@ -136,7 +138,7 @@ class Supply:
             base,
             system=self.system,
             electrode=electrode if self.system == "TT" else None,
-            rcd=self.rcd if self.rcd is not None else base.rcd,
+            rcd=self.rcd,
             loop_impedance=loop,
         )
         return self._with_breaker(placed)

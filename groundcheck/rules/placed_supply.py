@@ -44,6 +44,10 @@ __all__ = ["placed_supply_findings", "as_placed", "building_graph"]
 _ANALYSED: OrderedDict = OrderedDict()
 _ANALYSED_MAX = 16
 
+#: rules that judge only the supply a plan states, never what is plugged into it (the outlets'
+#: RCD): in an installation the supply is judged once, at its statement (a TT electrode against
+#: the RCD is told per device too: it is the touch voltage left on that device's metal)
+SUPPLY_RULES = frozenset({"GC225"})
 
 
 def placed_supply_findings(
@@ -91,8 +95,14 @@ def placed_supply_findings(
             )
             worst[key] = _worst_part(result)
             done[key] = _reported(result.findings, alone[id(own)].findings)
-        out += [_placed(f, name, placed, m, its_own) for f, its_own in done[key]]
-        if faults is not None and worst.get(key) is not None:
+        reported = done[key]
+        if route is None and plugged.get(name):
+            # plugged into an outlet whose earth reaches no main earthing terminal (GC215): no
+            # fault loop through the protective earth exists, so figures worked on the circuit its
+            # own plan assumed would describe a path it does not have
+            reported = [(f, its_own) for f, its_own in reported if its_own]
+        out += [_placed(f, name, placed, m, its_own) for f, its_own in reported]
+        if faults is not None and worst.get(key) is not None and (route or not plugged.get(name)):
             faults[name] = worst[key]
         if route is not None and worst.get(key) is not None:
             _route_survival(plan, name, route, worst[key], needs)
@@ -109,6 +119,7 @@ def _reported(there, alone) -> list[tuple[Finding, bool]]:
         (f, (f.code, f.elements) in mine)
         for f in there
         if protective_earth_rule(f.code)
+        and f.code not in SUPPLY_RULES
         and (
             (f.code, f.elements) not in mine
             or severity_rank(f.severity) <= severity_rank("warning")
@@ -245,10 +256,11 @@ def _placed(f: Finding, name: str, placed, own, its_own: bool = False) -> Findin
         if its_own
         else f"{name}, plugged into this installation"
     )
+    assumed = own.system
+    if own.rcd is not None and own.rcd != placed.rcd:
+        assumed += f" and an RCD of {own.rcd * 1e3:g} mA, not counted here"
     return replace(
         f,
-        message=(
-            f"{where} ({', '.join(said)}; its own plan assumes {own.system}): {f.message}"
-        ),
+        message=f"{where} ({', '.join(said)}; its own plan assumes {assumed}): {f.message}",
         elements=tuple(f"{name}.{e}" for e in f.elements),
     )
