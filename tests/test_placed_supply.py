@@ -383,3 +383,38 @@ def test_the_bought_devices_touch_voltage_is_its_return_path_times_its_fault_cur
     touch, current = f.figures["touch_voltage_v"], f.figures["fault_current_a"]
     assert touch / current == pytest.approx(1.41024, rel=1e-3)
     assert 95.0 <= touch <= 102.31
+
+
+@pytest.mark.parametrize(
+    "rcd, warned",
+    [("", False), (", rcd 30 mA", False), (", rcd 100 mA", True), (", rcd 0.3 A", True)],
+)
+def test_outlets_behind_an_rcd_above_30_ma_are_warned_once(tmp_path, rcd, warned):
+    # IEC 60364-4-41 411.3.3 (from memory): socket outlets for ordinary persons get additional
+    # protection by an RCD of at most 30 mA; a 100 mA or 300 mA one only protects against faults
+    # to earthed metal. Said once, at the building's supply, never again for the device plugged in
+    r = analyze(_room(tmp_path, f"system TT, electrode 30 ohm{rcd}"), Options(hum=False))
+    found = [f for f in r.findings if f.code == "GC225"]
+    assert len(found) == int(warned)
+    if warned:
+        assert found[0].severity == "warning" and found[0].elements == ("supply",)
+        assert found[0].location.file.endswith("room.gplan")
+    # the device's own plan assuming a 100 mA RCD is no finding of the room's
+    (tmp_path / "amp.gplan").write_text(AMP.replace("inlet at", "rcd 100 mA, inlet at"))
+    alone = analyze(load(tmp_path / "amp.gplan"), Options(hum=False))
+    assert [f.elements for f in alone.findings if f.code == "GC225"] == [("mains",)]
+    room = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    assert len([f for f in room.findings if f.code == "GC225"]) == int(warned)
+
+
+def test_no_outlet_no_rcd_warning(tmp_path):
+    text = ROOM.format(supply="system TT, electrode 30 ohm, rcd 100 mA").replace(
+        "point wall: outlet\n", "point wall: junction\n"
+    )
+    (tmp_path / "amp.gplan").write_text(AMP)
+    (tmp_path / "room.gplan").write_text(text)
+    try:
+        r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    except PlanErrors:
+        pytest.skip("a device must be plugged into an outlet")
+    assert not [f for f in r.findings if f.code == "GC225"]

@@ -248,7 +248,7 @@ def test_answer_takes_the_rules_naming_an_action_in_the_catalogues_order():
     danger = Finding("GC208", "danger", "m", loc, ("mains",))
     result = types.SimpleNamespace(findings=[note, danger])
     a = answer(result, "rcd-at-socket")
-    assert a.codes == ("GC208", "GC221") and a.findings == (note, danger)
+    assert a.codes == ("GC208", "GC221", "GC225") and a.findings == (note, danger)
     assert a.reason == "GC208"
     assert answer(types.SimpleNamespace(findings=[note]), "rcd-at-socket").reason == "GC221"
     assert answer(types.SimpleNamespace(findings=[]), "open-loop").reason == "GC101"

@@ -1,6 +1,7 @@
-"""The catalogue's protective-earth entries of an installation (GC215–GC222): each placed
-device's earth path, leakage, devices behind transformers, the TT supply's electrode and RCD, and
-metal written signal-only — what each rule checks, why, its fix and its sources.
+"""The catalogue's protective-earth entries of an installation (GC215–GC222, GC225): each placed
+device's earth path, leakage, devices behind transformers, the TT supply's electrode and RCD,
+metal written signal-only, and the outlets' RCD — what each rule checks, why, its fix and its
+sources.
 
 Kept apart from :mod:`groundcheck.rules.catalogue_pe` (the equipment's own protective earth) so
 that each module reads in one sitting; :mod:`groundcheck.rules.catalogue` takes them in its one
@@ -152,5 +153,20 @@ INSTALLATION_ENTRIES: list[Rule] = [
         "touchable part.",
         "IEC 61140 (protection against electric shock: a part that cannot become live needs no "
         "protective bonding), from memory",
+    ),
+    entry(
+        "GC225",
+        "outlet-rcd-sensitivity",
+        PROTECTIVE_EARTH,
+        "warning",
+        "The RCD stated for the outlets (an installation's supply, or the mains a piece of "
+        "equipment is plugged into) against the 30 mA of additional protection.",
+        "An RCD of 100 mA or more disconnects a fault to earthed metal, but a current through a "
+        "person who touches a live part can stay below its rating; socket outlets used by "
+        "ordinary persons are given a 30 mA RCD for that.",
+        "Have the outlets protected by a 30 mA RCD: installation work for a qualified "
+        "electrician, to the local wiring rules.",
+        "IEC 60364-4-41 411.3.3 (additional protection by an RCD of IΔn ≤ 30 mA), from memory",
+        actions=("rcd-at-socket",),
     ),
 ]

@@ -11,6 +11,7 @@ from . import (  # noqa: F401 - imported for their registrations
     protective,
     pe_current,
     pe_figures,
+    rcd_outlets,
     signal,
     loops,
     stars,
