@@ -230,8 +230,6 @@ def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
     return out
 
 
-
-
 @rule("GC215", needs="solve")
 def rule_device_earths(s: Solved) -> list[Finding]:
     """GC215: a placed device whose earth pin does not reach the main earthing terminal, or only
@@ -247,16 +245,20 @@ def rule_device_earths(s: Solved) -> list[Finding]:
     if s.device_earths is None:
         return []
     out = []
-    points = s.plan.index.points
+    devices = s.plan.index.devices
     for d in s.device_earths:
-        loc = points[d.inlet].location
+        # where the installation plugs it in, not its own plan's inlet: the break is on the way
+        # from there
+        dev = devices[d.device]
+        loc = dev.location
+        where = f" (plugged into {dev.plugged})" if dev.plugged else ""
         if d.resistance is None:
             out.append(
                 Finding(
                     "GC215",
                     "danger",
-                    f"device {d.device}: its earth pin does not reach the main earthing terminal "
-                    "through protective conductors",
+                    f"device {d.device}{where}: its earth pin does not reach the main earthing "
+                    "terminal through protective conductors",
                     loc,
                     (d.device, d.inlet),
                     {},
