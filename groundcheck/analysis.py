@@ -18,6 +18,7 @@ from .physics.coupling import shared_returns
 from .rules.hum_rules import series_runs
 from .rules.signal_bonds import floating_signal_grounds
 from .physics.hum import HumBudget, HumOptions
+from .physics.humsettings import spectrum_cut
 from .physics.outlets import OutletWork
 from .physics.protection import STANDARD_PE_LIMIT
 from .physics.rectifier import simulate
@@ -130,6 +131,7 @@ def _analyze(plan: Plan, options: Options) -> Result:
     result.rectifiers = list(rr.values())
     _solve(plan, ctx, circuit, rr, options, result)
     _no_verdict_when_floating(plan, ctx, result)
+    _no_verdict_when_cut(result, options)
     if result.hum is not None:
         result.hum.notes += [
             f"stage {st.name} reads its input from {st.a}, the socket wired to {st.named} "
@@ -200,6 +202,21 @@ def _no_verdict_when_floating(plan: Plan, ctx, result: Result) -> None:
             "floating ground picks up from the mains wiring and the transformer is not in "
             "the model"
         )
+
+
+def _no_verdict_when_cut(result: Result, options: Options) -> None:
+    """A channel found inaudible on hum lines computed only up to ``--max-frequency`` (below the
+    default) gets no verdict of 'inaudible': the lines left out may be the ones heard (a
+    full-wave rectifier has none below twice the mains frequency). An audible one stays audible."""
+    if result.hum is None or not spectrum_cut(options):
+        return
+    for ch, h in result.hum.channels.items():
+        if h.audible is False:
+            h.audible, h.margin_db = None, None
+            result.hum.notes.append(
+                f"{ch}: no audibility verdict: --max-frequency {options.max_frequency:g} Hz "
+                "leaves out the hum lines above it, which may be the ones heard"
+            )
 
 
 def _simulated(plan: Plan) -> dict:
@@ -280,10 +297,18 @@ def _notices(plan: Plan, options: Options) -> list[str]:
         )
     if not options.hum and plan.stages:
         out.append("hum and buzz budget skipped (--no-hum): no hum figures or hum findings")
-    elif plan.stages and options.max_frequency < plan.frequency:
+    elif plan.stages and spectrum_cut(options):
+        none = (
+            f"; that is below the mains frequency ({plan.frequency:g} Hz), so no hum line was "
+            "computed"
+            if options.max_frequency < plan.frequency
+            else ""
+        )
         out.append(
-            f"--max-frequency {options.max_frequency:g} Hz is below the mains frequency "
-            f"({plan.frequency:g} Hz): no hum line was computed"
+            f"hum lines computed up to {options.max_frequency:g} Hz only (--max-frequency; the "
+            f"default is {HumOptions.max_frequency:g} Hz){none}. No channel is judged inaudible "
+            "and no shared return is judged quiet on the lines left, so the hum findings keep "
+            "their full severity"
         )
     return out
 

@@ -33,6 +33,21 @@ SIGNAL_FREQUENCY_TEXT = f"{SIGNAL_FREQUENCY / 1000:g} kHz"
 QUIET_MARGIN_DB = 20.0
 
 
+def spectrum_cut(options) -> bool:
+    """Whether a run computes the hum lines only up to a frequency below the default (the
+    ``--max-frequency`` option): its figures then lack the lines above it, so a quiet figure is no
+    verdict of 'inaudible' and a share below the contributor level may not be.
+
+    Parameters:
+        options: the run's settings (anything with ``max_frequency``, Hz).
+    Returns:
+        True when lines the default range computes are left out.
+    References:
+        none (bookkeeping).
+    """
+    return options.max_frequency < HumOptions.max_frequency * (1 - 1e-12)
+
+
 def far_below_hearing(hum, channel: str) -> bool:
     """Whether ``channel``'s hum in a hum budget ``hum`` is judged inaudible at the listener's
     seat with at least :data:`QUIET_MARGIN_DB` to spare (False without a listening verdict).

@@ -12,7 +12,12 @@ from ..core.units import dbv
 from ..model.kinds import LEAKAGE, joins_devices
 from ..physics.sources import plan_sources
 from ..physics.hearing import heard_threshold, spl_of
-from ..physics.humsettings import QUIET_MARGIN_DB, channel_listenings, far_below_hearing
+from ..physics.humsettings import (
+    QUIET_MARGIN_DB,
+    channel_listenings,
+    far_below_hearing,
+    spectrum_cut,
+)
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -122,6 +127,11 @@ def _weighed(s: Solved, row, channel: str | None, figures: dict, amps: dict) -> 
     # 0 dB is exactly -100 dBV, and the last bit of the solve would decide
     if level > 0 and dbv(level) >= s.options.contributor_level - 1e-9:
         return False, ""
+    if spectrum_cut(s.options):
+        return False, (
+            f"; not weighed against the hum budget (--max-frequency {s.options.max_frequency:g} "
+            "Hz leaves out the lines above it), so it stays a fault"
+        )
     return True, (
         f"; through this stage it puts about {dbv(level):.1f} dBV at the {channel} output "
         f"(its current × the transfer resistance × the gain, at most the hum budget's figure for "
@@ -216,7 +226,10 @@ def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | No
 def _quiet_leakage(s: Solved, row, ch: str | None, amps: dict, lines) -> str | None:
     """Why a leakage current's shared return is a note (None when it is not): a leakage current's
     way home through the links is the installation's, not a wiring mistake of the equipment, and
-    heard nowhere — the whole channel far below hearing, or this source's own share."""
+    heard nowhere — the whole channel far below hearing, or this source's own share (never on
+    hum lines cut short by ``--max-frequency``)."""
+    if spectrum_cut(s.options):
+        return None
     if far_below_hearing(s.hum, ch):
         return f"; the {ch} channel's hum stays {QUIET_MARGIN_DB:g} dB or more below hearing"
     return _quiet_share(s, row, ch, amps, lines)
