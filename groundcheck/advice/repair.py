@@ -23,6 +23,7 @@ from pathlib import Path
 from ..analysis import Options, Result, analyze
 from ..model.records import Plan
 from ..rules.catalogue import RULES, protective_earth_rule, severity_rank
+from ..rules.selection import codes_of
 from .budget import Clock
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
@@ -55,6 +56,38 @@ MAX_STEPS = 8
 TRYING_SHARE = 0.7
 
 
+def judging(options: Options) -> Options:
+    """The settings the advisor judges changes with: the run's, with every protective-earth rule
+    and every rule that can find a danger put back when the rule selection left them out (a change
+    that adds a danger is refused whatever the run checks; ``check`` lists what it left out, the
+    advisor never looks away from it).
+
+    Parameters:
+        options: the run's settings.
+    Returns:
+        ``options`` itself when nothing is put back, else a copy with the selection widened.
+    References:
+        none (the safety rejections of :mod:`groundcheck.advice.evaluation`).
+    """
+    safety = {c for c, r in RULES.items() if protective_earth_rule(c) or "danger" in r.variants}
+    wanted = (
+        codes_of(options.only_rules, options.only_rules_origin) if options.only_rules else None
+    )
+    unwanted = codes_of(options.leave_out, options.leave_out_origin)
+    if (wanted is None or safety <= wanted) and not safety & unwanted:
+        return options
+    return dataclasses.replace(
+        options,
+        only_rules=tuple(sorted(wanted | safety)) if wanted is not None else (),
+        leave_out=tuple(sorted(unwanted - safety)),
+    )
+
+
+def _judged(plan: Plan, options: Options, before: Result | None) -> Result | None:
+    """``before`` when it was analysed with the advisor's settings, else None (to analyse)."""
+    return before if before is not None and before.options == options else None
+
+
 def _free(c: Candidate) -> bool:
     """A candidate refused before any analysis (it touches the protective earth, or is bought
     equipment's): considered whatever the time left."""
@@ -80,6 +113,8 @@ def suggest(
     total)`` is called after each evaluation, ``total`` the number the time left allows (by the
     candidates tried so far)."""
     clock = clock or Clock.of(budget)
+    options = judging(options)
+    before = _judged(plan, options, before)
     if before is None:
         before = clock.timed(analyze, plan, options)
         clock.first = clock.spent.pop()
@@ -132,6 +167,7 @@ def advise(
     result, the evaluations (:func:`suggest`), the combined set and its result (:func:`greedy`)."""
     start = time.monotonic() if started is None else started
     clock = Clock.of(budget, start)
+    asked, options = options, judging(options)
     before = clock.timed(analyze, plan, options)
     clock.first = clock.spent.pop()
     trying = clock.share(TRYING_SHARE, start)
@@ -141,7 +177,28 @@ def advise(
     chosen, final, _ = greedy(
         plan, text, options, root, resolved, evs=evs, before=before, clock=clock, progress=progress
     )
+    if options is not asked:
+        said = judged_notice(asked)
+        for r in {id(before): before, id(final): final}.values():
+            r.notices.append(said)
     return before, evs, chosen, final
+
+
+def judged_notice(asked: Options) -> str:
+    """What the advice says when the run's rule selection left out rules it judges with."""
+    origins = [
+        o
+        for words, o in (
+            (asked.only_rules, asked.only_rules_origin),
+            (asked.leave_out, asked.leave_out_origin),
+        )
+        if words
+    ]
+    return (
+        "the advice judges every change, and the plan before and after it, with every "
+        "protective-earth rule and every rule that can find a danger, whatever "
+        f"{' and '.join(origins)} leaves out: a change that adds a danger is never offered"
+    )
 
 
 def _overlaps(edits, more) -> bool:
@@ -183,9 +240,10 @@ def greedy(
     different words (:mod:`.merge`), and skipped when they conflict.  ``progress(done, total)``
     follows the steps tried."""
     clock = clock or Clock.of(budget)
+    options = judging(options)
     if evs is None:
         before, evs = suggest(plan, text, options, root, resolved, before=before, clock=clock)
-    current = before or analyze(plan, options)
+    current = _judged(plan, options, before) or analyze(plan, options)
     chosen: list[Evaluation] = []
     edits: list = []
     useful = [e for e in evs if not e.rejected and e.score > 1e-9]

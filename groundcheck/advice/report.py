@@ -82,6 +82,7 @@ def suggestions_document(
     return {
         "caution": CAUTION,
         "plan": plan.file,
+        "notices": list(final.notices),
         "suggestions": [
             e.as_dict(unified_diff(text, e.candidate.edits, name, _base(plan)))
             for e in evs
@@ -122,6 +123,7 @@ def suggestions_text(
         for n in final.not_checked
         if n.location is None
     ]
+    out += [f"Notice: {n}" for n in final.notices]
     out.append("")
     if not useful:
         out.append("No change found that improves the plan.")
