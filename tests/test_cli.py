@@ -41,6 +41,34 @@ def test_fail_on_threshold(cli):
     assert cli("check", HEADPHONE, "--fail-on", "danger")[0] == 1
 
 
+def test_a_danger_that_the_exit_status_lets_pass_is_said(cli, tmp_path, monkeypatch):
+    # a settings file in a folder above, or the option: the status is 0, the warning says why
+    assert cli("check", HEADPHONE, "--fail-on", "never", "--advice-budget", "0")[0] == 0
+    err = cli("check", HEADPHONE, "--fail-on", "never", "--advice-budget", "0")[2]
+    assert "danger finding" in err and "exit status is 0: --fail-on never" in err
+    (tmp_path / "pyproject.toml").write_text('[tool.groundcheck]\nfail-on = "never"\n')
+    (tmp_path / "inner").mkdir()
+    monkeypatch.chdir(tmp_path / "inner")
+    code, _, err = cli("check", HEADPHONE, "--advice-budget", "0")
+    assert code == 0 and f'fail-on = "never" in {tmp_path / "pyproject.toml"}' in err
+    # nothing said when the status fails on it, or when there is no danger
+    assert "exit status is 0" not in cli("check", HEADPHONE, "--fail-on", "danger")[2]
+    assert "exit status is 0" not in cli("check", DUAL, "--fail-on", "never")[2]
+
+
+def test_a_picked_change_is_judged_as_written(cli, tmp_path):
+    # --pick writes one change alone: the verdict said and the exit status are the written plan's,
+    # not the combined set's (a picked fuse change left the earth's dangers in the plan written)
+    import shutil as sh
+
+    sh.copy(HEADPHONE, tmp_path / "hp.gplan")
+    out = tmp_path / "one.gplan"
+    code, _, err = cli("suggest", str(tmp_path / "hp.gplan"), "--pick", "1", "--apply", str(out))
+    assert out.exists() and f"{out} as written (this one change alone):" in err
+    written = cli("check", str(out), "--advice-budget", "0", "--fail-on", "danger")[0]
+    assert code == written
+
+
 def test_clean_plan_exits_zero(cli, tmp_path):
     p = tmp_path / "clean.gplan"
     p.write_text(

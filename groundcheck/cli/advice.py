@@ -124,8 +124,29 @@ def cmd_suggest(args) -> int:
     sys.stdout.write(render(plan, text, path.name, evs, chosen, final))
     if target is not None:
         _write(application(plan, text, evs, chosen, target, args.pick, args.force), path, target)
-    # a danger left after the best combined set fails, as check fails on it
+        if args.pick is not None:
+            # the summary above is the combined set's: the plan written holds one change alone
+            final = _written(target, options_of(args))
+    # a danger left after the best combined set (or in the plan --pick wrote) fails, as check fails
+    # on it
     return 1 if final.fails("danger") else 0
+
+
+def _written(target: Path, options):
+    """The plan --pick wrote, checked again (the protective-earth and danger rules never left
+    out), its verdict said on standard error."""
+    from ..advice.repair import judging
+    from ..analysis import analyze
+
+    result = analyze(load_plan(str(target)), judging(options))
+    counts = ", ".join(
+        f"{n} {sev}" for sev in ("danger", "fault") if (n := result.counts().get(sev, 0))
+    )
+    sys.stderr.write(
+        f"groundcheck: {target} as written (this one change alone): {result.verdict()}"
+        f"{f' ({counts})' if counts else ''}\n"
+    )
+    return result
 
 
 def _apply_target(args) -> Path | None:

@@ -16,6 +16,7 @@ from .common import (
     FAIL_LEVELS,
     add_analysis_options,
     fail_on,
+    say_passed_dangers,
     load_plan,
     options_of,
     plan_paths,
@@ -226,6 +227,7 @@ def cmd_check(args) -> int:
             f"{', '.join(shown(p) for p, _ in failed)}; the others were checked\n"
         )
     failing = any(r.fails(fail_on(args)) for r in results)
+    say_passed_dangers(args, results)
     status = 2 if failed else 1 if failing else 0
     if args.format == "text" and not args.output and sys.stdout.isatty():
         from rich.console import Console

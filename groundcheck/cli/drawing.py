@@ -16,6 +16,7 @@ from .common import (
     UsageError,
     add_analysis_options,
     fail_on,
+    say_passed_dangers,
     load_plan,
     options_of,
 )
@@ -168,4 +169,5 @@ def cmd_report(args) -> int:
         sys.stderr.write(f"groundcheck: warning: {warning}\n")
     write_atomic(Path(args.output), html, protect=[Path(args.plan)])
     sys.stderr.write(f"groundcheck: wrote {args.output}\n")
+    say_passed_dangers(args, [result])
     return 1 if result.fails(fail_on(args)) else 0
