@@ -7,6 +7,8 @@ for the rest.
 
 from __future__ import annotations
 
+import math
+
 from ..model.kinds import is_fastening_kind, joins_devices
 from ..model.installation import rated_voltage, shield_ends, suits, supply_at, transformer_feeds
 from ..model.records import Plan
@@ -138,17 +140,55 @@ def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
             ph = ctx.src.find(st, "plugged") if st is not None else None
             if ph and len(ph) == 2 and fits(dev, there):
                 add(
-                    Candidate(
-                        f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip for "
-                        f"both, within its current rating: the loop of {name} no longer runs "
-                        "through the building's earth wiring)",
-                        reason,
-                        (ctx.src.replace(st, [(ph[1], there)]),),
-                        moves_plug=True,
-                        action="replug",
-                        element=dev.name,
+                    refuse(
+                        Candidate(
+                            f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip "
+                            f"for both, within its current rating: the loop of {name} no longer "
+                            "runs through the building's earth wiring)",
+                            reason,
+                            (ctx.src.replace(st, [(ph[1], there)]),),
+                            moves_plug=True,
+                            action="replug",
+                            element=dev.name,
+                        ),
+                        out_of_reach(ctx, dev, st, there),
                     )
                 )
+
+
+def out_of_reach(ctx: ChangeContext, dev, st, there: str) -> str:
+    """Why ``dev`` cannot be plugged in at outlet ``there`` as drawn (empty when it can, or when
+    the plan does not say where both are): its cord is shorter than the straight distance between
+    the device's stated position and the outlet's, and a lead to bridge it would be part of its
+    fault loop and is not in the plan.
+
+    Parameters:
+        ctx: the change context.
+        dev: the device.
+        st: its statement.
+        there: the outlet's name.
+    Returns:
+        the refusal, or "".
+    References:
+        none (geometry: a cord reaches no farther than its length).
+    """
+    outlet = ctx.points.get(there)
+    if st is None or outlet is None or outlet.pos is None or not ctx.src.find(st, "at"):
+        return ""
+    cord = dev.cord_length
+    if cord is None:
+        own = dict(ctx.plan.device_plans).get(dev.name)
+        cord = own.mains.cord_length if own is not None and own.mains is not None else None
+    if cord is None:
+        return ""
+    far = math.dist(dev.at, outlet.pos)
+    if far <= cord:
+        return ""
+    return (
+        f"{dev.name}'s cord ({cord:g} m) does not reach {there}, {far:.1f} m away as the plan "
+        "places them: the extension lead it would need is part of its fault loop and is not in "
+        "the plan (move the device, or write the lead and check again)"
+    )
 
 
 def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
@@ -184,16 +224,19 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
         for there in list(dict.fromkeys(near + sound))[:3]:
             if ph and len(ph) == 2 and there != dev.plugged and fits(dev, there):
                 add(
-                    Candidate(
-                        f"plug {dev.name} in at {there}, whose earth path is sound (and take "
-                        f"{dev.plugged} out of use until a qualified person has repaired its "
-                        "protective connection; an adaptor or cord without an earth is thrown "
-                        "away)",
-                        f.code,
-                        (ctx.src.replace(st, [(ph[1], there)]),),
-                        moves_plug=True,
-                        action="replug",
-                        element=dev.name,
+                    refuse(
+                        Candidate(
+                            f"plug {dev.name} in at {there}, whose earth path is sound (and take "
+                            f"{dev.plugged} out of use until a qualified person has repaired its "
+                            "protective connection; an adaptor or cord without an earth is thrown "
+                            "away)",
+                            f.code,
+                            (ctx.src.replace(st, [(ph[1], there)]),),
+                            moves_plug=True,
+                            action="replug",
+                            element=dev.name,
+                        ),
+                        out_of_reach(ctx, dev, st, there),
                     )
                 )
 
