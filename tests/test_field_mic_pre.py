@@ -72,7 +72,12 @@ def test_the_phantom_returns_are_joined_on_their_board_first(advised):
     _, evs = advised
     useful = [e for e in evs if not e.rejected]
     hum = [e.candidate for e in useful if e.candidate.reason == "GC102"]
-    assert hum and hum[0].action == "join" and hum[0].element == "ph_b_star"
+    # his fix: the reservoir's 0 V joined to the bridge negative on the phantom board, and one wire
+    # from the board to the star. Moving ph_0v does that (ph_b_star stays the board's wire to the
+    # star); moving ph_b_star instead would leave ph_0v, to the bus's input end, the board's link
+    assert hum and hum[0].action == "join" and hum[0].element == "ph_0v"
+    (other,) = [e for e in evs if e.candidate.title.startswith("join ph_bneg straight to ph_res")]
+    assert other.rejected and "at bus_end" in other.rejected
 
 
 def test_never_the_earth_the_grounds_bond_or_the_phantom_return(advised):

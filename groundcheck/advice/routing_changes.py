@@ -9,6 +9,7 @@ from __future__ import annotations
 from ..model.kinds import SIGNAL, is_fastening, shield_like
 from ..rules.catalogue import RULES
 from .changes import Answer, ChangeContext, delete_change, reroute
+from .returns import refuse
 
 __all__ = [
     "carried_actions",
@@ -110,11 +111,15 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
     two ends are not joined by a conductor of their own: move the far end of a conductor leaving
     one end onto the other, so that the current circulates between them alone (common practice:
     reservoir negative and centre tap or bridge negative joined directly; a filter capacitor's
-    negative to the reservoir's)."""
+    negative to the reservoir's). Of the ways to join them, one that leaves the supply's link to
+    the signal ground nearer the most sensitive stage than another way would is refused: the
+    stages' own return currents would run the length of the ground to it (common practice: the
+    supply meets the signal ground at the star or the output end, never the input's)."""
     if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
         return
     # never one of the shared conductors (moving it re-routes the ground itself), nor a wire to a
     # point fastened to metal (the ground's bond to the chassis: moving it takes the bond away)
+    ways = []
     for end, other in ((row.a, row.b), (row.b, row.a)):
         for d in ctx.at(other):
             far = d.b if d.a == other else d.a
@@ -127,18 +132,60 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
                 and d.name not in row.shared
                 and not _fastened(ctx, far)
             ):
-                add(
-                    reroute(
-                        ctx,
-                        d.name,
-                        far,
-                        end,
-                        f"join {other} straight to {end} ({d.name}), so the {row.source} current "
-                        f"stays between them and leaves {', '.join(row.shared)}",
-                        reason,
-                        "join",
-                    )
-                )
+                ways.append((end, other, d, far))
+    hops = _from_most_sensitive(ctx)
+    landing = [_landing(ctx, row, w[2], hops) for w in ways]
+    best = max((x[0] for x in landing if x[0] is not None), default=None)
+    for (end, other, d, far), (near, at) in zip(ways, landing):
+        c = reroute(
+            ctx,
+            d.name,
+            far,
+            end,
+            f"join {other} straight to {end} ({d.name}), so the {row.source} current "
+            f"stays between them and leaves {', '.join(row.shared)}",
+            reason,
+            "join",
+        )
+        if best is not None and near is not None and near < best:
+            c = refuse(
+                c,
+                f"it leaves the supply's link to the signal ground at {at}, nearer {hops[1]} "
+                f"(the most sensitive stage) than joining the other way does: every stage's "
+                "own return current would run along the ground to it",
+            )
+        add(c)
+
+
+def _from_most_sensitive(ctx: ChangeContext) -> tuple[dict, str | None]:
+    """Hops through the ground network from the points of the stage of highest gain, and its
+    name (({}, None) without stages)."""
+    import networkx as nx
+
+    stages = [s for s in ctx.plan.stages if s.a in ctx.G or s.b in ctx.G]
+    if not stages:
+        return {}, None
+    top = max(stages, key=lambda s: (s.gain, s.name))
+    sources = {p for p in (top.a, top.b, top.reference) if p in ctx.G}
+    return nx.multi_source_dijkstra_path_length(ctx.G, sources, weight=None), top.name
+
+
+def _landing(ctx: ChangeContext, row, moved, hops) -> tuple[int | None, str | None]:
+    """Where the supply's return ends meet the rest of the ground once ``moved`` joins them: the
+    nearest such point to the most sensitive stage (hops, point), (None, None) when unknown."""
+    dist = hops[0]
+    ends = {row.a, row.b}
+    meets = []
+    for e in ends:
+        for d in ctx.at(e):
+            if d is moved or {d.a, d.b} == ends or e not in (d.a, d.b):
+                continue
+            far = d.b if d.a == e else d.a
+            if far in dist:
+                meets.append((dist[far], far))
+    if not meets:
+        return None, None
+    return min(meets)
 
 
 def shared_return_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
