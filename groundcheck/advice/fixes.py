@@ -79,13 +79,13 @@ def _fix(f, clearing_by_key: dict, rejected_by_code: dict) -> str:
     # best a change made for the finding's own rule (a shared return's own wire, not the socket
     # panel that clears it on the way), then any; in each, first one after which no finding of
     # the same rule lands on one of its elements (a chain that grew by another branch is cleared
-    # by identity only)
+    # by identity only); a change made for another rule after which it reappears is never its fix
+    # (an earth moved to a stud of its own renames a loop through it, and opens nothing)
     own = [ev for ev in clearing if f.code in ev.candidate.reason.split(",")]
     for ev in [
         *(ev for ev in own if not _reappears(f, ev)),
         *own,
         *(ev for ev in clearing if not _reappears(f, ev)),
-        *clearing,
     ]:
         return ev.candidate.title + SHOWN_BY_SUGGEST
     # a candidate made for the finding: it answers its rule and names one of its elements (a change
