@@ -285,8 +285,14 @@ def _notices(plan: Plan, options: Options) -> list[str]:
     if options.pe_limit > STANDARD_PE_LIMIT * (1 + 1e-9) and earthed:
         out.append(
             f"protective-path limit relaxed to {options.pe_limit * 1e3:g} mΩ by --pe-limit (the "
-            f"product-safety limit is {STANDARD_PE_LIMIT * 1e3:g} mΩ; paths over it are listed as "
-            "notes)"
+            f"product-safety limit is {STANDARD_PE_LIMIT * 1e3:g} mΩ; a path over it stays a "
+            "warning, never a fault or a danger)"
+        )
+    if plan.stages and options.hum and options.contributor_level > HumOptions.contributor_level:
+        out.append(
+            f"contributor level raised to {options.contributor_level:g} dBV by --hum-level (the "
+            f"default is {HumOptions.contributor_level:g} dBV): a shared return or contributor "
+            "below it is a note, whatever the channel's verdict"
         )
     measured = [c for c in plan.conductors if c.length_computed]
     if measured:

@@ -45,40 +45,39 @@ def canonical(obj, loops=(), rename=lambda s: s, skip=frozenset()):
 
 
 class _Canon:
-    """One walk of a result: each node returned with its words (numbers left out) and its numbers
-    rounded to 7 significant digits, built once from its children's, which order the lists (a list
-    is compared as a sorted collection, ordered by its words first)."""
+    """One walk of a result: each node returned with its words (numbers left out), its numbers
+    rounded to 7 significant digits, and the two as sort keys (text), built once from its
+    children's, which order the lists (a list is compared as a sorted collection, ordered by its
+    words first): a parent's key is its children's keys joined, so no level writes out its whole
+    subtree again."""
 
     def __init__(self, loops, rename, skip):
         self.loops, self.rename, self.skip = loops, rename, skip
 
     def walk(self, x):
         if isinstance(x, bool) or x is None:
-            return x, repr(x), x
+            r = repr(x)
+            return x, r, x, r, r
         if isinstance(x, (int, float, np.floating, np.integer)):
-            return float(x), "", _rounded(float(x))
+            r = _rounded(float(x))
+            return float(x), "", r, "''", repr(r)
         if isinstance(x, (complex, np.complexfloating)):
             re_, im = float(x.real), float(x.imag)
-            return (
-                ("complex", re_, im),
-                ("complex", "", ""),
-                ("complex", _rounded(re_), _rounded(im)),
-            )
+            rr = ("complex", _rounded(re_), _rounded(im))
+            return (("complex", re_, im), ("complex", "", ""), rr, "complex''", repr(rr))
         if isinstance(x, str):
             m = _LOOP.match(x)
             if m and 0 < int(m[1]) <= len(self.loops):
                 names = tuple(sorted(self.rename(e) for e in self.loops[int(m[1]) - 1]))
-                return ("loop", names), ("loop", names), ("loop", names)
+                node = ("loop", names)
+                k = repr(node)
+                return node, node, node, k, k
             r = self.rename(x)
-            return r, r, r
+            k = repr(r)
+            return r, r, r, k, k
         if isinstance(x, np.ndarray):
             if x.dtype.kind not in "iuf":
-                parts = [self.walk(v) for v in x.ravel()]
-                return (
-                    tuple(p[0] for p in parts),
-                    tuple(p[1] for p in parts),
-                    tuple(p[2] for p in parts),
-                )
+                return self._seq([self.walk(v) for v in x.ravel()], None)
             return _array(x)
         if dataclasses.is_dataclass(x):
             parts = [
@@ -90,6 +89,8 @@ class _Canon:
                 tuple((n, p[0]) for n, p in parts),
                 tuple((n, p[1]) for n, p in parts),
                 tuple((n, p[2]) for n, p in parts),
+                "(" + ",".join(f"{n}:{p[3]}" for n, p in parts) + ")",
+                "(" + ",".join(f"{n}:{p[4]}" for n, p in parts) + ")",
             )
         if isinstance(x, dict):
             items = []
@@ -98,24 +99,35 @@ class _Canon:
                     continue
                 kk = self.walk(k)
                 vv = self.walk(f"loop {v}" if k == "loop" and isinstance(v, int) else v)
-                items.append(((kk[0], vv[0]), (kk[1], vv[1]), (kk[2], vv[2])))
+                items.append(
+                    (
+                        (kk[0], vv[0]),
+                        (kk[1], vv[1]),
+                        (kk[2], vv[2]),
+                        f"{kk[3]}={vv[3]}",
+                        f"{kk[4]}={vv[4]}",
+                    )
+                )
             return self._seq(items, "dict")
         if isinstance(x, (list, tuple, set, frozenset)):
             return self._seq([self.walk(v) for v in x], "list")
         name = ("object", type(x).__name__)
-        return name, name, name
+        k = repr(name)
+        return name, name, name, k, k
 
     @staticmethod
     def _seq(parts, tag):
         """A sequence of walked nodes: as it stands (``tag`` None), or sorted and tagged."""
         if tag is not None:
-            parts = sorted(parts, key=lambda p: (repr(p[1]), repr(p[2])))
+            parts = sorted(parts, key=lambda p: (p[3], p[4]))
         nodes = tuple(p[0] for p in parts)
         words = tuple(p[1] for p in parts)
         rounded = tuple(p[2] for p in parts)
+        kw = "[" + ",".join(p[3] for p in parts) + "]"
+        kr = "[" + ",".join(p[4] for p in parts) + "]"
         if tag is None:
-            return nodes, words, rounded
-        return (tag, nodes), (tag, words), (tag, rounded)
+            return nodes, words, rounded, kw, kr
+        return (tag, nodes), (tag, words), (tag, rounded), tag + kw, tag + kr
 
 
 def _array(x):
@@ -126,7 +138,8 @@ def _array(x):
     ok = np.isfinite(a) & (a != 0)
     digits = 6 - np.floor(np.log10(np.abs(a[ok])))
     r[ok] = np.round(a[ok] * 10.0**digits) / 10.0**digits
-    return tuple(a.tolist()), ("",) * len(a), tuple(r.tolist())
+    rounded = tuple(r.tolist())
+    return tuple(a.tolist()), ("",) * len(a), rounded, "''" * len(a), repr(rounded)
 
 
 def _rounded(x):

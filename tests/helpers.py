@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 import shutil
 import textwrap
 from pathlib import Path
@@ -27,3 +28,18 @@ def plan(text: str, header: bool = True, name: str = "t.gplan"):
     """A plan from inline text (with a mains header unless ``header`` is False)."""
     body = textwrap.dedent(text)
     return load_text((HEADER if header else "") + body, name)
+
+
+#: the tests that read a bundled or field plan's analysis with the default settings and only read
+#: it (its report's tables, its drawings) run in one process (``xdist_group(SHARED_ANALYSIS)``),
+#: so each plan is analysed once per suite
+SHARED_ANALYSIS = "html-tables"
+
+
+@functools.lru_cache(maxsize=None)
+def analysed(path):
+    """The analysis of the plan at ``path`` with the default settings, once per test process (the
+    result is shared: read it, never change it)."""
+    from groundcheck import analyze, load
+
+    return analyze(load(path))

@@ -10,10 +10,9 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from groundcheck import analyze, load
 from groundcheck.renderers.dot import physical_dot, topology_dot
 from groundcheck.renderers.drawing import available_renderers, render_dot
-from helpers import EXAMPLES, ROOT
+from helpers import EXAMPLES, ROOT, SHARED_ANALYSIS, analysed
 
 NS = "{http://www.w3.org/2000/svg}"
 PLANS = [
@@ -76,9 +75,10 @@ def test_the_measure_finds_an_overlap():
 
 
 @pytest.mark.skipif(shutil.which("neato") is None, reason="needs Graphviz")
+@pytest.mark.xdist_group(SHARED_ANALYSIS)  # each plan analysed once, with the report's tables
 @pytest.mark.parametrize("path", PLANS, ids=lambda p: str(p.relative_to(ROOT)))
 def test_no_label_overlaps_a_label_or_a_mark(path):
-    result = analyze(load(path))
+    result = analysed(path)
     found = {}
     for renderer in [r for r in ("system", "wasm") if r in available_renderers()]:
         for view, source, engine in (

@@ -475,7 +475,7 @@ def test_check_prints_the_advisors_fix_lines(cli):
     import json
 
     _, before, _, _, _, fixes = _advised(HP)
-    code, text, _ = cli("check", str(FIELD / HP), "--format", "json")
+    code, text, _ = cli("check", str(FIELD / HP), "--format", "json", "--advice-budget", "10")
     doc = json.loads(text)
     assert [f["fix"] for f in doc["findings"]] == fixes
     assert any(

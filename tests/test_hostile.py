@@ -187,17 +187,23 @@ def test_main_leaves_no_signal_handler_behind(tmp_path, monkeypatch):
     previous = signal.signal(signal.SIGTERM, signal.SIG_DFL)  # as a fresh process has it
     try:
         out = tmp_path / "report.json"
-        assert main(["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out)]) in (0, 1)
+        assert main(
+            ["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out), "--advice-budget", "0"]
+        ) in (0, 1)
         assert out.exists() and len(seen) == 1
         # held while the file was written, and gone afterwards
         assert seen[0] not in (signal.SIG_DFL, signal.SIG_IGN, None)
         assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL
-        main(["check", str(EXAMPLES[0]), "--format", "json"])  # to standard output: nothing held
+        main(
+            ["check", str(EXAMPLES[0]), "--format", "json", "--advice-budget", "0"]
+        )  # to standard output: nothing held
         assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL and len(seen) == 1
         # a caller's own handler is kept, during the write too
         own = lambda signum, frame: None  # noqa: E731
         signal.signal(signal.SIGTERM, own)
-        main(["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out)])
+        main(
+            ["check", str(EXAMPLES[0]), "--format", "json", "-o", str(out), "--advice-budget", "0"]
+        )
         assert seen[1] is own and signal.getsignal(signal.SIGTERM) is own
     finally:
         signal.signal(signal.SIGTERM, previous)

@@ -54,6 +54,8 @@ def test_jobs_never_write_over_an_included_plan(tmp_path, how):
             "other.gplan",
             "--jobs",
             jobs,
+            "--advice-budget",
+            "0",  # the output's guard is the test; the advisor's fix lines are not
             "-o",
             str(out),
             cwd=tmp_path,
@@ -121,7 +123,9 @@ def test_a_folder_check_reads_no_link_and_no_special_file(tmp_path):
     outside.mkdir()
     (outside / "secret.gplan").write_text("SECRET-LINE\n")
     (tmp_path / "linked").symlink_to(outside, target_is_directory=True)
-    code, out, err = _run("check", str(tmp_path), "--format", "json", timeout=120, limit_gb=3)
+    code, out, err = _run(
+        "check", str(tmp_path), "--format", "json", "--advice-budget", "0", timeout=120, limit_gb=3
+    )
     assert code in (0, 1) and "Traceback" not in err
     assert (
         "root:" not in out + err and "SECRET" not in out + err and "/etc/passwd" not in out + err

@@ -10,9 +10,9 @@ from html.parser import HTMLParser
 import numpy as np
 import pytest
 
-from groundcheck import analyze, load
+from groundcheck import analyze
 from groundcheck.renderers.html import html_report
-from helpers import EXAMPLES, ROOT, needs_ngspice, plan
+from helpers import EXAMPLES, ROOT, SHARED_ANALYSIS, analysed, needs_ngspice, plan
 from test_plain_words import PYTHON
 from test_rectifier_exact import _ngspice_bridge
 
@@ -71,7 +71,7 @@ def test_the_rectifier_table_of_the_phono_example_against_ngspice():
     # rms charging currents and the conduction angle are checked against an ngspice transient in
     # tests/test_hum.py::test_rectifier_against_ngspice_transient (same simulation).
     path = next(e for e in EXAMPLES if e.name.startswith("dual-mono"))
-    result = analyze(load(path))
+    result = analysed(path)
     r = next(x for x in result.plan.rectifiers if x.name == "hv")
     row = next(
         x for x in table(html_report(result, None, None), "rectifiers") if x["rectifier"] == "hv"
@@ -128,7 +128,7 @@ def test_the_pickup_table_of_a_loop_solved_by_hand():
 def _analysed(path):
     """A plan's analysis and its report's two tables, once per test process (two tests read
     them)."""
-    result = analyze(load(path))
+    result = analysed(path)
     page = html_report(result, None, None)
     return result, {t: table(page, t) for t in ("rectifiers", "pickup")}
 
@@ -139,7 +139,7 @@ def _tables(path) -> dict[str, list[dict]]:
 
 #: the tests that read each plan's tables run in one process, so each plan is analysed and
 #: rendered once
-SHARED = pytest.mark.xdist_group("html-tables")
+SHARED = pytest.mark.xdist_group(SHARED_ANALYSIS)
 
 
 @SHARED

@@ -69,7 +69,7 @@ def _outputs(cli, path, tmp_path) -> dict[str, str]:
     p = str(work / path.name)
     # the advisor's fix lines once (in the text; the other formats carry the same sentences), the
     # rules' own fix lines in the others
-    out = {"check text": cli("check", p)[1]}
+    out = {"check text": cli("check", p, "--advice-budget", "10")[1]}
     for f in ("json", "sarif"):
         out[f"check {f}"] = cli("check", p, "--format", f, "--advice-budget", "0")[1]
     out["check --no-hum"] = cli("check", p, "--no-hum", "--advice-budget", "0")[1]

@@ -50,11 +50,29 @@ def _plain(x) -> str:
     return repr(x)
 
 
+#: conductor keys already written, by the conductor (a frozen record: equal records have equal
+#: keys); the advisor and the watch re-analyse plans whose conductors are mostly the same
+_KEYS: dict = {}
+_KEYS_MAX = 1 << 16
+
+
 def _conductor_key(c) -> str:
     """What a conductor is; a shield or a link between devices sorts last, so that the spanning
     tree takes the wiring and such a conductor closes the loop it makes (and names it)."""
     if c is None:
         return ""
+    try:
+        key = _KEYS.get(c)
+    except TypeError:  # a record holding something unhashable: written each time
+        return _written_key(c)
+    if key is None:
+        if len(_KEYS) >= _KEYS_MAX:
+            _KEYS.clear()
+        key = _KEYS[c] = _written_key(c)
+    return key
+
+
+def _written_key(c) -> str:
     fields = getattr(c, "__dataclass_fields__", {})
     last = shield_like(c) or joins_devices(c)
     # a kind by what its row of the kinds table says, not by its word: two kinds whose rows
