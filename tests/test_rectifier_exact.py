@@ -22,7 +22,11 @@ PERIODS = 5
 
 # ngspice's transients below: output every 1 µs, its largest step 4 µs (against a 1 µs largest
 # step, measured on the 250 V, 120 ohm, 47 uF, 25 mA case: the DC within 2e-9 and every even
-# harmonic to 2 kHz within 0.02 %, far inside these tests' tolerances; 3.5 times faster)
+# harmonic to 2 kHz within 0.02 %, far inside these tests' tolerances; 3.5 times faster). A
+# capacitor-input supply without a filter section has settled after SETTLE seconds: the last
+# periods of a 0.8 s and a 1.6 s run of each case here agree to 2.3e-6 in the mean and the rms
+# of every trace (measured while writing this; the tests allow 1 % and more)
+SETTLE = 0.8
 
 
 def _last_periods(text: str, f: float) -> np.ndarray:
@@ -46,7 +50,7 @@ def _ngspice(vrms, rw, leak, c, iload, f, law):
         if law == "shockley"
         else "D(IS=1e-14 N=1)"
     )
-    stop = 1.6
+    stop = SETTLE
     leak_lines = f"L1 a a1 {leak}\nL2 b b1 {leak}\n" if leak else "R5 a a1 0\nR6 b b1 0\n"
     text = f"""exact rectifier
 V1 a 0 SIN(0 {vpk} {f})
@@ -268,7 +272,7 @@ C1 out 0 {c}
 I1 out 0 DC {iload}
 .control
 set numdgt=12
-tran 1u 1.6 {1.6 - PERIODS / f} 4u
+tran 1u {SETTLE} {SETTLE - PERIODS / f} 4u
 linearize
 wrdata OUT v(out) i(V1) i(V2)
 .endc
