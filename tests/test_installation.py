@@ -285,3 +285,32 @@ def test_a_long_earth_path_is_a_danger_only_when_its_fault_is_not_cleared_in_tim
     assert found.severity == severity and "1.15 Ω" in found.message
     assert ("0.4 s" in found.message) == (severity == "fault")
     assert any(x.code == "GC208" for x in r.findings) == (severity == "danger")
+
+
+def test_leakage_currents_add_in_phase():
+    # two leakage currents of 1 mA and 2 mA at 50 Hz down one 0.5 Ω shield, read at 20 dB: each
+    # flows from the one mains line through capacitance to earth, so they are in phase and the
+    # drop is (1 + 2) mA × 0.5 Ω × 10 = 15 mV, worked by hand (a power sum would give
+    # √(1² + 2²) mA × 0.5 Ω × 10 = 11.18 mV, 2.6 dB less; an outside reviewer's ngspice run of a
+    # venue's five leakages found the power sum 5.6 dB low). A stated load current beside them is
+    # of another mechanism and still adds in power.
+    from groundcheck import load_text
+    from groundcheck.analysis import analyze
+
+    text = """plan "two leakages down one shield (trial)"
+listening output 1 V
+point a: terminal
+point b: terminal
+interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, \
+gain 20 dB,
+    channel main
+current leak1: a to b, 1 mA 50 Hz, leakage
+current leak2: a to b, 2 mA 50 Hz, leakage
+{more}"""
+    r = analyze(load_text(text.format(more=""), "lead.gplan"))
+    row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 50.0)
+    assert row["volts"] == pytest.approx(0.015, rel=1e-6)
+    more = "current motor: a to b, 4 mA 50 Hz, load\n"
+    r = analyze(load_text(text.format(more=more), "lead.gplan"))
+    row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 50.0)
+    assert row["volts"] == pytest.approx((0.015**2 + 0.02**2) ** 0.5, rel=1e-6)  # 25 mV

@@ -17,6 +17,7 @@ from ..core.caution import CAUTION
 from ..core.errors import Location
 from ..core.units import db_of_ratio, dbv
 from ..physics.hearing import heard_threshold, spl_of
+from ..physics.sources import LEAKAGE_GROUP
 from ..rules.bench import HUM_MARGIN_DB, BenchFacts, MeasuredHum, bond_verdict
 from ..rules.registry import functions
 from .fit import fit, mechanisms
@@ -73,6 +74,11 @@ def mechanism_words(group: str, plan) -> str:
         return (
             f"magnetic pickup of the {src.kind} {name}'s field in a ground loop (the mains and "
             "its odd harmonics)"
+        )
+    if group == LEAKAGE_GROUP:
+        return (
+            "leakage currents of the equipment's mains filters and windings returning through "
+            "the ground system (the mains frequency, all in phase)"
         )
     if kind == "heater":
         return f"heater current of {name} in a shared return (the mains frequency)"

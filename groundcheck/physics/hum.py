@@ -82,6 +82,9 @@ class _FrequencyPart:
     crosstalk: list = field(default_factory=list)  # (from channel, to channel, phasor)
     feedback: list = field(default_factory=list)  # (source, channel, phasor, input part)
     probes: object = None  # per probe pair: Σ over sources of |V_a − V_b|², V²
+    #: per probe pair: Σ over the leakage currents of V_a − V_b (they are in phase: their sum's
+    #: power joins the others' once every source is solved)
+    probe_leak: object = None
 
 
 def hum_budget(
@@ -315,7 +318,7 @@ class HumBudget:
             self.freqs,
             merged.network_rows,
             self.notes,
-            merged.probes,
+            merged.probe_powers(),
             merged.levels(),
             merged.feedback(),
         )

@@ -23,7 +23,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..model.kinds import LEAKAGE
 from .fieldhum import source_lines
+from .sources import LEAKAGE_GROUP
 
 __all__ = ["RECTIFIERS", "Reading", "NetlistSources", "netlist_sources", "source_groups"]
 
@@ -62,8 +64,16 @@ class NetlistSources:
     channel: str | None
 
 
-def _group_of(source) -> str:
-    return RECTIFIERS if source.kind == "rectifier" else source.name
+def _group_of(source, leakage=frozenset()) -> str:
+    """A source's group in the exported netlists: the rectifiers together, the leakage currents
+    together (in phase, as the hum budget adds them), any other source alone."""
+    if source.kind == "rectifier":
+        return RECTIFIERS
+    return LEAKAGE_GROUP if source.name in leakage else source.name
+
+
+def _leakage(budget) -> set:
+    return {c.name for c in budget.plan.currents if c.role == LEAKAGE}
 
 
 def source_groups(budget, f: float) -> list[str]:
@@ -79,10 +89,10 @@ def source_groups(budget, f: float) -> list[str]:
     References:
         none (bookkeeping).
     """
-    out = []
+    out, leakage = [], _leakage(budget)
     for s in budget.hum_sources:
-        if abs(s.parts.get(f, 0)) > 0 and _group_of(s) not in out:
-            out.append(_group_of(s))
+        if abs(s.parts.get(f, 0)) > 0 and _group_of(s, leakage) not in out:
+            out.append(_group_of(s, leakage))
     for name in budget.models:
         if source_lines(budget.fields[name], budget.f0, [f]):
             out.append(name)
@@ -106,10 +116,11 @@ def netlist_sources(budget, f: float, group: str | None = None, channel: str | N
     groups = source_groups(budget, f)
     if channel is None and budget.channels:
         channel = budget.channels[0]
+    leakage = _leakage(budget)
     currents = tuple(
         (s.name, s.a, s.b, complex(s.parts[f]))
         for s in budget.hum_sources
-        if abs(s.parts.get(f, 0)) > 0 and group in (None, _group_of(s))
+        if abs(s.parts.get(f, 0)) > 0 and group in (None, _group_of(s, leakage))
     )
     per_branch: dict[int, complex] = {}
     if f > 0:

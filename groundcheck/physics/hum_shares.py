@@ -15,7 +15,9 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..model.kinds import LEAKAGE
 from .coupling import channel_tests, source_injections
+from .sources import source_group
 from .ranking import largest
 
 __all__ = ["source_part", "run_columns", "TOP_SHARES", "NETWORK_ROWS", "SOURCE_CHUNK"]
@@ -107,15 +109,18 @@ def source_part(b, f: float, fac, active: list, part) -> None:
 
 def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
     both = fac.solve(source_injections(b.circuit, active, f))
+    leakage = {c.name for c in b.plan.currents if c.role == LEAKAGE}
     if b.probe_a.size:
-        power = (np.abs(both.V[b.probe_a] - both.V[b.probe_b]) ** 2).sum(axis=1)
+        dv = both.V[b.probe_a] - both.V[b.probe_b]  # probes × sources
+        leak = np.array([s.name in leakage for s in active], dtype=bool)
+        power = (np.abs(dv[:, ~leak]) ** 2).sum(axis=1)
         part.probes = power if part.probes is None else part.probes + power
+        together = dv[:, leak].sum(axis=1)
+        part.probe_leak = together if part.probe_leak is None else part.probe_leak + together
     # each stage's own drop (node voltages of the source solves), for the worst case: every
     # stage in phase
     stage_v = np.abs(both.V[b.stage_a] - both.V[b.stage_b]) * np.abs(gains[b.valid_idx])[:, None]
-    groups = [
-        "rectifier charging" if s.kind == "rectifier" else f"{s.kind}:{s.name}" for s in active
-    ]
+    groups = [source_group(s.kind, s.name, leakage) for s in active]
     for ci, ch in enumerate(b.channels):
         worst = stage_v[b.stage_channel == ci].sum(axis=0)
         part.in_phase.extend((ch, g, float(w)) for g, w in zip(groups, worst))

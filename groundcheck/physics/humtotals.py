@@ -11,6 +11,8 @@ import math
 from collections import defaultdict
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from ..core.units import db_of_ratio, dbv
 from .feedback import feedback_rows
 from .hearing import heard_threshold, spl_of
@@ -132,6 +134,7 @@ class Merged:
         self.loop_rows: dict[int, dict] = {}
         self.network_rows: list[dict] = []
         self.probes: dict = {}
+        self.probe_leak: dict = {}
         self.crosstalk_raw = defaultdict(complex)
         self.feedback_raw: dict = {}
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
@@ -147,6 +150,8 @@ class Merged:
         self.network_rows.extend(part.network)
         if part.probes is not None:
             self.probes[f] = self.probes.get(f, 0.0) + part.probes
+        if part.probe_leak is not None:
+            self.probe_leak[f] = self.probe_leak.get(f, 0.0) + part.probe_leak
         if part.pickup is not None:
             self.pickup[f] = part.pickup
         for src_ch, dst_ch, v in part.crosstalk:
@@ -202,6 +207,14 @@ class Merged:
             list(axes),
             lines,
         )
+
+    def probe_powers(self) -> dict:
+        """Per frequency, each probe pair's Σ |V_a − V_b|² over the source groups: every source
+        alone but the leakage currents, which add as phasors first (in phase, one mains line)."""
+        out = dict(self.probes)
+        for f, v in self.probe_leak.items():
+            out[f] = out.get(f, 0.0) + np.abs(v) ** 2
+        return out
 
     def levels(self) -> dict:
         """Each source group's worst-case level at each channel's output, V (see

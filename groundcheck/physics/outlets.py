@@ -7,7 +7,8 @@ sources — the devices' leakage currents, the EMF that loaded cables induce in 
 cores, and any stated current — twice: with every interconnect unplugged (what a meter between the
 two earth pins reads before the cable is connected: the loop's driving voltage) and with the
 installation as planned.  Sources of unknown relative phase add in power, as in the hum budget
-(:mod:`groundcheck.physics.hum`).
+(:mod:`groundcheck.physics.hum`); the leakage currents, all driven by the one mains line through
+capacitance to earth, are in phase and add as phasors first.
 
 References: nodal analysis and superposition (common practice); the sources are those of
 :func:`groundcheck.physics.coupling.plan_sources`.
@@ -20,7 +21,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..model.kinds import carries_load, joins_devices
+from ..model.kinds import LEAKAGE, carries_load, joins_devices
 from ..model.installation import device_of, separated_devices
 from .coupling import plan_sources, source_injections
 from .ranking import largest
@@ -72,9 +73,10 @@ class OutletVoltages:
     notes: list = field(default_factory=list)
 
 
-def _pair_volts(circuit, sources, pairs, freqs) -> tuple[dict, dict]:
-    """Per (pair, frequency) the power sum over sources, and per (pair, source) each source's rms
-    voltage."""
+def _pair_volts(circuit, sources, pairs, freqs, leakage=frozenset()) -> tuple[dict, dict]:
+    """Per (pair, frequency) the power sum over sources (the leakage currents, named in
+    ``leakage``, added as phasors first: they are in phase), and per (pair, source) each source's
+    rms voltage."""
     _, labels = circuit.components
     idx = [(circuit.point_node[a], circuit.point_node[b]) for a, b in pairs]
     joined = np.array([labels[i] == labels[j] for i, j in idx], dtype=bool)
@@ -88,16 +90,20 @@ def _pair_volts(circuit, sources, pairs, freqs) -> tuple[dict, dict]:
             continue
         fac = circuit.at(f)
         power = np.zeros(len(pairs))
+        together = np.zeros(len(pairs), dtype=complex)  # the leakage currents, in phase
         rows, where = np.unique(np.concatenate([ia, ib]), return_inverse=True)
         wa, wb = where[: len(ia)], where[len(ia) :]
         for lo in range(0, len(active), CHUNK):
             cols = active[lo : lo + CHUNK]
             V = fac.voltages(source_injections(circuit, [sources[k] for k in cols], f), rows)
-            v2 = np.abs(V[wa] - V[wb]) ** 2  # pairs × chunk
-            v2[~joined] = 0.0
-            power += v2.sum(axis=1)
+            dv = V[wa] - V[wb]  # pairs × chunk
+            dv[~joined] = 0.0
+            v2 = np.abs(dv) ** 2
+            leak = np.array([sources[k].name in leakage for k in cols], dtype=bool)
+            power += v2[:, ~leak].sum(axis=1)
+            together += dv[:, leak].sum(axis=1)
             per_s[:, cols] += v2
-        per_f[f] = np.sqrt(power)
+        per_f[f] = np.sqrt(power + np.abs(together) ** 2)
     return per_f, np.sqrt(per_s)
 
 
@@ -190,6 +196,7 @@ class OutletWork:
         self.freqs = sorted(
             {f for s in self.sources for f in s.parts if 0 < f <= max_frequency + 1e-9}
         )
+        self.leakage = {c.name for c in plan.currents if c.role == LEAKAGE}
 
     def unplugged(self) -> tuple[dict, list]:
         """Every pair's voltage with the interconnects unplugged, per frequency, and its drivers:
@@ -205,7 +212,9 @@ class OutletWork:
         plan = self.plan
         wired = {c.name for c in plan.conductors if not joins_devices(c)}
         unplugged = self.circuit.restricted(wired)
-        open_f, open_s = _pair_volts(unplugged, self.sources, self.pairs, self.freqs)
+        open_f, open_s = _pair_volts(
+            unplugged, self.sources, self.pairs, self.freqs, self.leakage
+        )
         drivers = []
         for k in range(len(self.pairs)):
             drivers.append(
@@ -232,7 +241,7 @@ class OutletWork:
             )
             plan_f = {f: np.where(joined, np.sqrt(planned[f]), 0.0) for f in self.freqs}
         else:
-            plan_f, _ = _pair_volts(circuit, sources, pairs, self.freqs)
+            plan_f, _ = _pair_volts(circuit, sources, pairs, self.freqs, self.leakage)
         roles = {c.name: c.role for c in self.plan.currents}
         for k, ((a, b), name) in enumerate(zip(pairs, self.names)):
             named = tuple(

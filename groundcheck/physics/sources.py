@@ -15,11 +15,45 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..core.units import ratio_of_db
-from ..model.kinds import SIGNAL
+from ..model.kinds import LEAKAGE, SIGNAL
 from .circuit import Circuit
 from .induction import induced_currents
 
-__all__ = ["Source", "plan_sources", "pair_tests", "channel_tests", "source_injections"]
+__all__ = [
+    "Source",
+    "plan_sources",
+    "pair_tests",
+    "channel_tests",
+    "source_injections",
+    "source_group",
+    "LEAKAGE_GROUP",
+]
+
+#: the hum budget's group of every leakage current: they flow from the one mains line through the
+#: equipment's filter capacitors and windings to earth, so in phase with each other, and their
+#: drops add as phasors (their sum is what a meter and ngspice on the exported network read); other
+#: groups, of unrelated mechanisms, add in power
+LEAKAGE_GROUP = LEAKAGE
+
+
+def source_group(kind: str, name: str, leakage) -> str:
+    """The hum budget's group of a source: the rectifiers together, the leakage currents together
+    (:data:`LEAKAGE_GROUP`), any other source alone.
+
+    Parameters:
+        kind: the source's kind (rectifier, current, heater, signal, induced).
+        name: its name.
+        leakage: the names of the plan's leakage currents.
+    Returns:
+        the group's name.
+    References:
+        none (bookkeeping; the module's description of LEAKAGE_GROUP).
+    """
+    if kind == "rectifier":
+        return "rectifier charging"
+    if name in leakage:
+        return LEAKAGE_GROUP
+    return f"{kind}:{name}"
 
 
 @dataclass(frozen=True)

@@ -10,7 +10,7 @@ from typing import TYPE_CHECKING
 
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, joins_devices
-from ..physics.sources import plan_sources
+from ..physics.sources import plan_sources, source_group
 from ..physics.hearing import heard_threshold, spl_of
 from ..physics.humsettings import (
     QUIET_MARGIN_DB,
@@ -215,7 +215,8 @@ def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | No
     without a hum budget (or the channel not in it)."""
     if s.hum is None or channel not in s.hum.levels:
         return None
-    group = "rectifier charging" if row.kind == "rectifier" else f"{row.kind}:{row.source}"
+    leakage = {c.name for c in s.plan.currents if c.role == LEAKAGE}
+    group = source_group(row.kind, row.source, leakage)
     whole = s.hum.levels[channel].get(group, 0.0)
     current = amps.get(row.source)
     if current is None:

@@ -12,6 +12,7 @@ from __future__ import annotations
 from ..core.units import dbv
 from ..model.kinds import LEAKAGE, PROTECTIVE, SIGNAL, carries_load, joins_devices
 from ..physics.heater_field import source_heater
+from ..physics.sources import LEAKAGE_GROUP
 from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from .catalogue import Finding
 from .context import AuditContext
@@ -41,9 +42,12 @@ def rule_hum(s: Solved) -> list[Finding]:
     runs = series_runs(s.ctx)
     # currents that reach a stage only round a loop through the installation: leakage, and the EMF
     # of loaded cables
-    loop_driven = {c.name for c in plan.currents if c.role == LEAKAGE} | {
-        f"{c.name}.induced" for c in plan.conductors if carries_load(c)
-    }
+    leakage = {c.name for c in plan.currents if c.role == LEAKAGE}
+    loop_driven = (
+        leakage
+        | ({LEAKAGE_GROUP} if leakage else set())
+        | {f"{c.name}.induced" for c in plan.conductors if carries_load(c)}
+    )
     stages_by_ch: dict[str, list] = {}
     for st in plan.stages:
         stages_by_ch.setdefault(st.channel, []).append(st)
