@@ -346,6 +346,21 @@ def _finish(result: Result) -> Result:
             NotChecked(tuple(unheard), "judged from the hum figures, which --no-hum leaves out")
         )
         judged -= set(unheard)
+    withheld = [
+        ch
+        for ch, h in (result.hum.channels.items() if result.hum is not None else ())
+        if h.audible is None and spectrum_cut(opts)
+    ]
+    if withheld and "GC303" in judged:
+        result.not_checked.append(
+            NotChecked(
+                ("GC303",),
+                f"the audibility of {', '.join(withheld)}: judged from hum lines up to "
+                f"{opts.max_frequency:g} Hz only (--max-frequency), which may leave out the ones "
+                "heard",
+            )
+        )
+        judged.discard("GC303")
     findings = [f for f in result.findings if f.code in wanted and f.code not in unwanted]
     done = apply_acceptances(findings, result.plan.acceptances, opts.allow_accept_danger, judged)
     result.not_checked += done.not_checked

@@ -56,6 +56,16 @@ def test_a_danger_that_the_exit_status_lets_pass_is_said(cli, tmp_path, monkeypa
     assert "exit status is 0" not in cli("check", DUAL, "--fail-on", "never")[2]
 
 
+def test_leaving_out_rules_that_can_find_a_danger_is_said(cli):
+    # an outside builder: --leave-out GC2 --fail-on danger exited 0 on two earth dangers with
+    # nothing louder than the verdict's "not checked"
+    code, _, err = cli("check", HEADPHONE, "--leave-out", "GC2", "--fail-on", "danger")
+    assert code == 0
+    assert "rules that can find a danger were not checked (every GC2xx rule" in err
+    assert "left out by --leave-out GC2" in err
+    assert "can find a danger" not in cli("check", HEADPHONE, "--leave-out", "GC304")[2]
+
+
 def test_a_picked_change_is_judged_as_written(cli, tmp_path):
     # --pick writes one change alone: the verdict said and the exit status are the written plan's,
     # not the combined set's (a picked fuse change left the earth's dangers in the plan written)

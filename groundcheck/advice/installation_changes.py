@@ -35,6 +35,7 @@ def installation_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
     """
     _link_candidates(ctx, answer.reason, add)
     _replug_candidates(ctx, answer.reason, add)
+    _loop_replug_candidates(ctx, answer.reason, add)
 
 
 def _installation_interconnects(plan: Plan, result: Result) -> set[str]:
@@ -150,6 +151,50 @@ def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
                             moves_plug=True,
                             action="replug",
                             element=dev.name,
+                        ),
+                        out_of_reach(ctx, dev, st, there),
+                    )
+                )
+
+
+def _loop_replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
+    """A loop through mains cords whose devices are joined by a chain of links (a computer, a
+    bus-powered converter on its USB lead, the amplifier): each device plugged in on the loop is
+    offered the outlet of another device on it, so that the loop no longer runs through the
+    building's wiring (the pairs one interconnect joins are :func:`_replug_candidates`')."""
+    devices = {d.name: d for d in ctx.plan.devices}
+    device_of = ctx.plan.index.device_of
+    fits = _fits(ctx.plan)
+    for lp in ctx.result.loops:
+        if lp.closed_by != "mains-cords":
+            continue
+        on = [d for d in dict.fromkeys(device_of(e) for e in lp.loop.edges) if d in devices]
+        plugged = [d for d in on if devices[d].plugged]
+        for name in plugged:
+            dev = devices[name]
+            st = (
+                ctx.src.statement(dev.location.line)
+                if dev.location.file == ctx.plan.file
+                else None
+            )
+            ph = ctx.src.find(st, "plugged") if st is not None else None
+            if not ph or len(ph) != 2:
+                continue
+            for mate in plugged:
+                there = devices[mate].plugged
+                if there == dev.plugged or not fits(dev, there):
+                    continue
+                add(
+                    refuse(
+                        Candidate(
+                            f"plug {name} in at {there}, beside {mate} (one outlet or strip for "
+                            "both, within its current rating: the loop through "
+                            f"{', '.join(on)} no longer runs through the building's earth wiring)",
+                            reason,
+                            (ctx.src.replace(st, [(ph[1], there)]),),
+                            moves_plug=True,
+                            action="replug",
+                            element=name,
                         ),
                         out_of_reach(ctx, dev, st, there),
                     )

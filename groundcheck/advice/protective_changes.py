@@ -87,6 +87,34 @@ def _fastened_to(ctx: ChangeContext, point: str) -> str | None:
     )
 
 
+def _bonding_home(ctx: ChangeContext, landing, part: str) -> str | None:
+    """The metal a new bonding stud beside the protective earth's landing goes on: of the part the
+    landing sits on and the part its fastening holds it to, the larger — the chassis, never a
+    transformer's frame or bracket that a service takes out (the protective earth on a tag under a
+    transformer's foot sits on the chassis and is held to the frame, or the other way round: a bond
+    from the frame would hang on the transformer's screws, GC202's trap).
+
+    Parameters:
+        ctx: the change context.
+        landing: the point the protective earth's lead lands on.
+        part: the part to be bonded (never its own home).
+    Returns:
+        the metal part's name, or None.
+    References:
+        common practice (each bond from the main chassis, on a fixing of its own).
+    """
+    names = [landing.on, _fastened_to(ctx, landing.name)]
+    homes = [n for n in dict.fromkeys(names) if n in ctx.metals and n != part]
+    if not homes:
+        return None
+
+    def area(name: str) -> float:
+        m = ctx.plan.metal(name)
+        return m.size[0] * m.size[1] if m is not None and m.size is not None else 0.0
+
+    return max(homes, key=lambda n: (area(n), n == names[1]))
+
+
 def _free_name(ctx: ChangeContext, names) -> str:
     """The first of ``names`` that names no point of the plan yet."""
     return next(n for n in names if ctx.plan.point(n) is None)
@@ -279,7 +307,7 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     if found is None or metal is None or metal.size is None:
         return None
     lead, landing, st = found
-    home = _fastened_to(ctx, landing.name)
+    home = _bonding_home(ctx, landing, part)
     if home is None or home == part:
         return None  # the path is the part itself: GC206's own fix (fastenings, the lead)
     ends = _bond_ends(ctx, home, landing, part)

@@ -16,13 +16,13 @@ from .common import (
     FAIL_LEVELS,
     add_analysis_options,
     fail_on,
-    say_passed_dangers,
     load_plan,
     options_of,
     plan_paths,
     processes_type,
     write_output,
 )
+from .exit_status import say_passed_dangers
 from .registry import EPILOG, FORMAT, command, opt
 
 __all__ = [

@@ -264,25 +264,6 @@ def fail_on(args) -> str:
     return _setting(args, "fail-on", _config(args), "fault")
 
 
-def say_passed_dangers(args, results) -> None:
-    """A warning on standard error when the run found a danger and its exit status will not say
-    so (``fail-on never``, from the command line or a settings file found above the current
-    folder): a danger never passes without a word, whatever the output format."""
-    level = fail_on(args)
-    dangers = sum(1 for r in results for f in r.findings if f.severity == "danger")
-    if not dangers or any(r.fails(level) for r in results):
-        return
-    where = (
-        f"--fail-on {level}"
-        if getattr(args, "fail_on", None) is not None
-        else f"fail-on = {shown_value(level)} in {getattr(args, 'config_file', None)}"
-    )
-    sys.stderr.write(
-        f"groundcheck: warning: {dangers} danger finding{'s' if dangers != 1 else ''}, yet the "
-        f"exit status is 0: {where} (a danger is mains wiring that can kill; see the report)\n"
-    )
-
-
 def load_plan(path: str, jobs: int = 1):
     return load(path, jobs=jobs)
 

@@ -16,10 +16,10 @@ from .common import (
     UsageError,
     add_analysis_options,
     fail_on,
-    say_passed_dangers,
     load_plan,
     options_of,
 )
+from .exit_status import say_passed_dangers
 from .registry import FormatOption, command, opt
 
 __all__ = ["cmd_draw", "cmd_report", "written_epilog", "RENDERER"]

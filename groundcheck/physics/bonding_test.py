@@ -85,11 +85,15 @@ class PartDrop:
     test: str
     voltage: float
     limit: float | None = None
+    #: the test current its path carries, A: the test's own, or in the long test behind the
+    #: equipment's fuse 200 % of the fuse's rating
+    current: float | None = None
 
     def as_dict(self) -> dict:
         return {
             "part": self.part,
             "test": self.test,
+            "current_a": self.current,
             "path_voltage_v": round(self.voltage, 5),
             "limit_v": self.limit,
         }
@@ -264,12 +268,13 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
     rating, volts = DROP_LIMIT
     ahead, _ = plan.mains.inlet_device
     big = ahead is not None and ahead > rating
+
+    def amps(t, p) -> float:
+        return t.current * (weight(p) if weight and t.name == "long" else 1.0)
+
     parts = tuple(
         PartDrop(
-            p,
-            t.name,
-            t.current * r * (weight(p) if weight and t.name == "long" else 1.0),
-            volts if big and t.name == "long" else None,
+            p, t.name, amps(t, p) * r, volts if big and t.name == "long" else None, amps(t, p)
         )
         for t in tests
         for p, r in sorted(rpart.items())

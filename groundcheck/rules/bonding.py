@@ -85,22 +85,29 @@ def _drops(s: Solved) -> list[Finding]:
     out = []
     for p in s.bonding.drops_over():
         t = tests[p.test]
+        amps = p.current if p.current is not None else t.current
+        behind = (
+            f" (200 % of the {s.plan.mains.fuse:g} A fuse that protects it: a fault at it is "
+            "behind the fuse)"
+            if abs(amps - t.current) > 1e-9 * t.current and s.plan.mains.fuse is not None
+            else ""
+        )
         out.append(
             Finding(
                 "GC223",
                 "danger",
-                f"the protective path to {p.part} drops {p.voltage:.3g} V at the {t.name} bonding "
-                f"test's {t.current:.3g} A, over the {p.limit:g} V IEC 60950-1 allows for a "
+                f"the protective path to {p.part} drops {p.voltage:.3g} V at {amps:.3g} A in the "
+                f"{t.name} bonding test{behind}, over the {p.limit:g} V IEC 60950-1 allows for a "
                 "protective device above 16 A",
                 metals.get(p.part, s.plan.mains.location),
                 (p.part,),
                 {
                     "test": p.test,
-                    "current_a": t.current,
+                    "current_a": amps,
                     "path_voltage_v": p.voltage,
                     "limit_v": p.limit,
                 },
-                f"lower the path's resistance to {p.limit / t.current * 1e3:.3g} mΩ or less: "
+                f"lower the path's resistance to {p.limit / amps * 1e3:.3g} mΩ or less: "
                 "shorten or thicken the protective conductor, clean and tighten the fastenings "
                 "on its path",
             )
