@@ -235,6 +235,17 @@ def test_balanced_rejection_from_the_source_impedance_imbalance():
     assert gain("channel main") == pytest.approx(30 - 50, abs=1e-9)
 
 
+#: a 10 m lead whose 0.5 Ω shield is the only path between its ends, read at 20 dB
+LEAD = """plan "{title} (trial)"
+listening output 1 V
+point a: terminal
+point b: terminal
+interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, \
+gain 20 dB,
+    channel main
+"""
+
+
 def test_interconnect_input_reads_the_shield_transfer_impedance():
     # 10 mA at 5 kHz driven along a 10 m shield of 0.5 Ω (the only path between its ends): the
     # receiving input reads R·I = 5 mV, times its gain of 20 dB = 50 mV, worked by hand; the
@@ -244,15 +255,9 @@ def test_interconnect_input_reads_the_shield_transfer_impedance():
     from groundcheck import load_text
     from groundcheck.analysis import analyze
 
-    text = """plan "a long shield above its cut-off (trial)"
-listening output 1 V
-point a: terminal
-point b: terminal
-interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, \
-gain 20 dB,
-    channel main
-current leak: a to b, 10 mA 5000 Hz, leakage
-"""
+    text = LEAD.format(title="a long shield above its cut-off") + (
+        "current leak: a to b, 10 mA 5000 Hz, leakage\n"
+    )
     r = analyze(load_text(text, "lead.gplan"))
     row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 5000.0)
     assert row["volts"] == pytest.approx(0.05, rel=1e-6)
@@ -297,20 +302,13 @@ def test_leakage_currents_add_in_phase():
     from groundcheck import load_text
     from groundcheck.analysis import analyze
 
-    text = """plan "two leakages down one shield (trial)"
-listening output 1 V
-point a: terminal
-point b: terminal
-interconnect lead: a to b, 10 m, 0.05 mm2, resistance 0.5 ohm, terminated both, unbalanced, \
-gain 20 dB,
-    channel main
-current leak1: a to b, 1 mA 50 Hz, leakage
-current leak2: a to b, 2 mA 50 Hz, leakage
-{more}"""
-    r = analyze(load_text(text.format(more=""), "lead.gplan"))
+    text = LEAD.format(title="two leakages down one shield") + (
+        "current leak1: a to b, 1 mA 50 Hz, leakage\ncurrent leak2: a to b, 2 mA 50 Hz, leakage\n"
+    )
+    r = analyze(load_text(text, "lead.gplan"))
     row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 50.0)
     assert row["volts"] == pytest.approx(0.015, rel=1e-6)
     more = "current motor: a to b, 4 mA 50 Hz, load\n"
-    r = analyze(load_text(text.format(more=more), "lead.gplan"))
+    r = analyze(load_text(text + more, "lead.gplan"))
     row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 50.0)
     assert row["volts"] == pytest.approx((0.015**2 + 0.02**2) ** 0.5, rel=1e-6)  # 25 mV
