@@ -310,3 +310,12 @@ def test_the_earth_line_names_protective_findings_a_path_within_its_limit_does_n
     _, out, _ = cli("check", str(plan), "--advice-budget", "0")
     line = next(x for x in out.splitlines() if x.startswith("Protective earth:"))
     assert "within limit, but see GC202 below" in line
+
+
+def test_a_loop_table_never_asks_to_cut_an_unbalanced_links_screen(cli):
+    # an outside builder read "open at │ sub_link" as "cut the sub's RCA screen", the signal's
+    # return; the cell says how such a loop opens
+    flat = Path(__file__).parent / "field" / "flat-hifi-lift" / "flat.gplan"
+    out = cli("check", str(flat), "--no-hum")[1]
+    rows = [x for x in out.splitlines() if "mains-cords" in x and "sub_link" in x]
+    assert rows and all("never cut its screen" in x for x in rows), rows

@@ -9,7 +9,7 @@ from ..rules.results import Result
 from .htmlchart import spectrum_svg
 from .htmlparts import cell, inline_svg, plan_line_html
 from .textearth import CLASS_II_WORDS, class_ii_devices
-from .textwords import driver_words, figure_words
+from .textwords import driver_words, figure_words, opening_words
 
 __all__ = [
     "findings_section",
@@ -190,7 +190,7 @@ def loops_section(result: Result, parts: list[str], e=escape) -> None:
             area = cell(None if lp.area is None else lp.area * 1e6, "{:.0f} mm²")
             parts.append(
                 f"<tr><td>{i}</td><td>{e(lp.closed_by)}</td><td class=num>{area}</td>"
-                f"<td>{e(lp.open_at or 'protective: keep closed')}</td>"
+                f"<td>{e(opening_words(result, lp))}</td>"
                 f"<td>{e(' → '.join(lp.loop.nodes))}</td></tr>"
             )
         parts.append("</table>")

@@ -31,6 +31,7 @@ from .textwords import (
     escape,
     figure_words,
     number,
+    opening_words,
 )
 
 __all__ = [
@@ -192,7 +193,7 @@ def _loop_table(result: Result, console: Console) -> None:
             str(i),
             lp.closed_by,
             "–" if lp.area is None else f"{lp.area * 1e6:.0f}",
-            escape(lp.open_at or "protective: keep closed"),
+            escape(opening_words(result, lp)),
             escape(" → ".join(lp.loop.nodes)),
         )
     console.print(t)

@@ -100,3 +100,27 @@ def figure_words(figures: dict) -> str:
             words = str(value)
         out.append(f"{name.replace('_', ' ')} {words}{' ' + unit if unit else ''}")
     return ", ".join(out)
+
+
+def opening_words(result, lp) -> str:
+    """A listed loop's "open at" cell: the conductor to open, with what opening means when it is
+    an unbalanced link between devices (its screen is the signal's return: the loop opens by a
+    balanced link or both devices on one outlet, never by cutting the screen), or that it stays
+    closed when only protective conductors close it.
+
+    Parameters:
+        result: the analysis.
+        lp: one of its listed loops.
+    Returns:
+        the cell's words.
+    References:
+        common practice (an unbalanced link's screen carries its signal's return).
+    """
+    from ..model.kinds import joins_devices
+
+    if not lp.open_at:
+        return "protective: keep closed"
+    c = result.plan.index.conductors.get(lp.open_at)
+    if c is not None and joins_devices(c) and not getattr(c, "balanced", False):
+        return f"{lp.open_at} (balanced, or both ends on one outlet; never cut its screen)"
+    return lp.open_at
