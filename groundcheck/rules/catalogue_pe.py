@@ -263,4 +263,22 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "from memory",
         refusals=("pe-current",),
     ),
+    entry(
+        "GC226",
+        "lift-fault-path",
+        PROTECTIVE_EARTH,
+        "warning",
+        "Whether class I equipment's signal ground reaches its chassis only through ground-lift "
+        "networks (a resistor beside a capacitor): then the lift is the signal ground's "
+        "protective path.",
+        "A fault from a mains or high-voltage winding onto the signal ground drives amperes "
+        "through the lift's resistor, which burns open before a slow fuse opens, and leaves the "
+        "sockets and screens on the signal ground at the fault's voltage.",
+        "Bridge the resistor with anti-parallel power diodes (or a bridge rectifier) rated for "
+        "the fault current, unless the transformer separates its windings by reinforced "
+        "insulation; the plan cannot state the diodes: accept the finding in the plan once they "
+        "are fitted.",
+        "common practice; IEC 61140 (parts that can become live under a single fault are bonded "
+        "to the protective earth), from memory",
+    ),
 ]

@@ -8,6 +8,7 @@ from . import (  # noqa: F401 - imported for their registrations
     electrical,
     hum_rules,
     installation,
+    lift_fault,
     protective,
     pe_current,
     pe_figures,

@@ -20,7 +20,7 @@ from .pe_places import pe_point
 from .floating import floating_fix as _floating_fix
 from .registry import rule
 
-__all__ = ["rule_signal_bonds", "floating_signal_grounds"]
+__all__ = ["rule_signal_bonds", "floating_signal_grounds", "signal_grounds"]
 
 
 @rule("GC105", "GC106")
@@ -150,6 +150,19 @@ def _chassis_proper(ctx: AuditContext) -> set[str]:
                     held.setdefault(y, set()).add(x)
     out = {n for n in ctx.chassis_side if n not in only}
     return {n for n in out if not (n in held and held[n] <= only)}
+
+
+def signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
+    """Each signal-ground network and its bonds to the chassis side (:func:`_signal_grounds`).
+
+    Parameters:
+        ctx: the audit context.
+    Returns:
+        (its points, its bonds' conductors by chassis point) per network.
+    References:
+        none (bookkeeping).
+    """
+    return _signal_grounds(ctx)
 
 
 def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
