@@ -543,13 +543,20 @@ def test_a_lid_bonded_on_its_own_does_not_keep_the_deck_earthed():
     assert _gc202(TRANSFORMER_FOOT + lid) == ["danger"]
 
 
-def test_a_lift_with_its_diodes_fitted_is_accepted_in_the_plan():
-    # the plan cannot state the diodes across the lift's resistor: the builder accepts GC226 on the
-    # lift's line once they are fitted, and the run says so
-    text = BASE.replace(
-        "wire bond: star to gnd, 120 mm, 0.75 mm2, signal",
-        "lift bond: star to gnd, 10 ohm, 47 nF  # accept GC226: 35 A bridge rectifier across it",
-    )
-    r = analyze(plan(text))
+def test_a_lift_with_its_diodes_stated_or_its_reason_accepted():
+    # 'diodes' on the lift: a fault passes them until the fuse opens, no finding; a transformer
+    # whose windings are separated by reinforced insulation needs none: accepted with the reason
+    lifted = "lift bond: star to gnd, 10 ohm, 47 nF"
+    base = BASE.replace("wire bond: star to gnd, 120 mm, 0.75 mm2, signal", lifted)
+    assert "GC226" not in codes(base.replace(lifted, lifted + ", diodes"))
+    r = analyze(plan(base.replace(lifted, lifted + "  # accept GC226: reinforced insulation")))
     (f,) = [f for f in r.findings if f.code == "GC226"]
-    assert f.accepted is not None and "bridge rectifier" in f.accepted
+    assert f.accepted is not None and "reinforced" in f.accepted
+
+
+def test_diodes_belong_to_a_lift_alone():
+    from groundcheck import PlanErrors
+
+    with pytest.raises(PlanErrors) as e:
+        plan(BASE.replace("signal\nstage", "signal, diodes\nstage"))
+    assert "diodes is an attribute of a lift" in str(e.value)

@@ -43,6 +43,7 @@ def test_a_lift_error_lists_only_what_a_lift_takes():
         "channel",
         "via",
         "capacitance",
+        "diodes",
     }
     assert "', 10 ohm, 47 nF'" in line
     wire = _error(LIFT + "wire w: a to b, 10 mm, 1 mm2, capacitance 4 nF\n")

@@ -41,6 +41,7 @@ CONDUCTOR_NAMED = (
     "in",
     "capacitance",
     "twisted",
+    "diodes",
 )
 #: where an interconnect's shield end can land
 SHIELD_LANDINGS = ("chassis", "signal")
@@ -104,6 +105,8 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
     elif word == "twisted":
         r.expect("with")
         kw["twisted_with"] = r.word("the conductor it is twisted with")
+    elif word == "diodes":
+        kw["diodes"] = True
     elif word == "capacitance":
         kw["capacitance"] = check_quantity(
             r.next("the capacitor (capacitance)"), "capacitance", "capacitance"
@@ -232,6 +235,8 @@ _HINTS = {
     "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
     "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'",
     "capacitance": "a ground-lift network: 'lift NAME: A to B, 10 ohm, 47 nF'",
+    "diodes": "a ground-lift network's fault-current diodes: 'lift NAME: A to B, 10 ohm, 47 nF, "
+    "diodes'",
 }
 
 

@@ -204,7 +204,7 @@ KINDS: dict[str, Kind] = {
             False,
             False,
             lifts=True,
-            attributes=frozenset({"capacitance"}),
+            attributes=frozenset({"capacitance", "diodes"}),
         ),
         Kind("switch", SIGNAL, (), "switch", False, False, switched=True),
     )

@@ -127,6 +127,9 @@ class Conductor:
     resistance: float | None = None  # Ω, stated (overrides geometry)
     contact: float | None = None  # Ω, contact resistance (bolts, straps, switches)
     capacitance: float | None = None  # F, lift networks
+    #: lift networks: anti-parallel power diodes (or a bridge) across the resistor, rated for a
+    #: fault current (GC226)
+    diodes: bool = False
     closed: bool = True  # switches
     terminated: str = "both"  # shields: a | b | both
     insulation: str = "pvc"  # pvc | xlpe | bare

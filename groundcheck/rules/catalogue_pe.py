@@ -276,8 +276,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "sockets and screens on the signal ground at the fault's voltage.",
         "Bridge the resistor with anti-parallel power diodes (or a bridge rectifier) rated for "
         "the fault current, unless the transformer separates its windings by reinforced "
-        "insulation; the plan cannot state the diodes: accept the finding in the plan once they "
-        "are fitted.",
+        "insulation; the lift then says 'diodes' ('lift NAME: A to B, 10 ohm, 47 nF, diodes').",
         "common practice; IEC 61140 (parts that can become live under a single fault are bonded "
         "to the protective earth), from memory",
     ),

@@ -8,9 +8,9 @@ open the fuse. A 10 Ω resistor alone passes some 23 A at 230 V and burns open w
 fuse opens, leaving the sockets, pot shafts and every screen on the signal ground at the fault's
 voltage. The trade bridges the resistor with anti-parallel power diodes (or a bridge rectifier)
 rated for the fault current: they pass nothing at the hum's millivolts and carry a fault until the
-fuse opens (common practice). The plan cannot state the diodes, so the finding says so and is
-accepted in the plan once they are fitted; equipment whose transformer separates its windings by
-reinforced insulation needs none.
+fuse opens (common practice); the plan states them with the word ``diodes`` on the lift.
+Equipment whose transformer separates its windings by reinforced insulation needs none (accept the
+finding in the plan with that reason).
 """
 
 from __future__ import annotations
@@ -45,6 +45,8 @@ def rule_lift_fault_path(ctx: AuditContext) -> list[Finding]:
         lifts = [ctx.conductors.get(k) for k in names]
         if not lifts or not all(c is not None and is_lift(c) for c in lifts):
             continue
+        if any(c.diodes for c in lifts):
+            continue  # a fault passes the stated diodes until the fuse opens
         first = lifts[0]
         out.append(
             Finding(
@@ -59,11 +61,9 @@ def rule_lift_fault_path(ctx: AuditContext) -> list[Finding]:
                 {},
                 "bridge the resistor with anti-parallel power diodes (or a bridge rectifier) "
                 "rated for the fault current: they pass nothing at hum levels and carry a fault "
-                "until "
-                "the fuse opens (not needed where the transformer separates its windings by "
-                "reinforced insulation); the plan cannot state the diodes, so once they are "
-                "fitted accept this finding in the plan with that reason; never lift the "
-                "protective earth",
+                "until the fuse opens (not needed where the transformer separates its windings by "
+                "reinforced insulation); the lift then says 'diodes'; never lift the protective "
+                "earth",
             )
         )
     return out
