@@ -122,7 +122,7 @@ def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
     protective wiring."""
     from ..physics.outlets import outlet_pairs
 
-    devices = {d.name: d for d in ctx.plan.devices}
+    devices = ctx.plan.index.devices
     looped = {e for lp in ctx.result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges}
     pairs, names = outlet_pairs(ctx.plan)
     fits = _fits(ctx.plan)
@@ -133,28 +133,11 @@ def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
         for end, there, other in ((c.b, a, c.a), (c.a, b, c.b)):
             dev = devices.get(end.split(".", 1)[0])
             mate = other.split(".", 1)[0]
-            st = (
-                ctx.src.statement(dev.location.line)
-                if dev and dev.location.file == ctx.plan.file
-                else None
+            why = (
+                f"beside {mate} (one outlet or strip for both, within its current rating: the "
+                f"loop of {name} no longer runs through the building's earth wiring)"
             )
-            ph = ctx.src.find(st, "plugged") if st is not None else None
-            if ph and len(ph) == 2 and fits(dev, there):
-                add(
-                    refuse(
-                        Candidate(
-                            f"plug {dev.name} in at {there}, beside {mate} (one outlet or strip "
-                            f"for both, within its current rating: the loop of {name} no longer "
-                            "runs through the building's earth wiring)",
-                            reason,
-                            (ctx.src.replace(st, [(ph[1], there)]),),
-                            moves_plug=True,
-                            action="replug",
-                            element=dev.name,
-                        ),
-                        out_of_reach(ctx, dev, st, there),
-                    )
-                )
+            add(_plug_move(ctx, dev, there, why, reason, fits))
 
 
 def _loop_replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
@@ -162,7 +145,7 @@ def _loop_replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
     bus-powered converter on its USB lead, the amplifier): each device plugged in on the loop is
     offered the outlet of another device on it, so that the loop no longer runs through the
     building's wiring (the pairs one interconnect joins are :func:`_replug_candidates`')."""
-    devices = {d.name: d for d in ctx.plan.devices}
+    devices = ctx.plan.index.devices
     device_of = ctx.plan.index.device_of
     fits = _fits(ctx.plan)
     for lp in ctx.result.loops:
@@ -171,34 +154,49 @@ def _loop_replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
         on = [d for d in dict.fromkeys(device_of(e) for e in lp.loop.edges) if d in devices]
         plugged = [d for d in on if devices[d].plugged]
         for name in plugged:
-            dev = devices[name]
-            st = (
-                ctx.src.statement(dev.location.line)
-                if dev.location.file == ctx.plan.file
-                else None
-            )
-            ph = ctx.src.find(st, "plugged") if st is not None else None
-            if not ph or len(ph) != 2:
-                continue
             for mate in plugged:
-                there = devices[mate].plugged
-                if there == dev.plugged or not fits(dev, there):
-                    continue
-                add(
-                    refuse(
-                        Candidate(
-                            f"plug {name} in at {there}, beside {mate} (one outlet or strip for "
-                            "both, within its current rating: the loop through "
-                            f"{', '.join(on)} no longer runs through the building's earth wiring)",
-                            reason,
-                            (ctx.src.replace(st, [(ph[1], there)]),),
-                            moves_plug=True,
-                            action="replug",
-                            element=name,
-                        ),
-                        out_of_reach(ctx, dev, st, there),
-                    )
+                why = (
+                    f"beside {mate} (one outlet or strip for both, within its current rating: "
+                    f"the loop through {', '.join(on)} no longer runs through the building's "
+                    "earth wiring)"
                 )
+                add(_plug_move(ctx, devices[name], devices[mate].plugged, why, reason, fits))
+
+
+def _plug_move(ctx: ChangeContext, dev, there: str, why: str, reason: str, fits):
+    """The change that plugs ``dev`` in at ``there`` (its statement's 'plugged' word replaced),
+    titled with ``why``; refused when its cord does not reach; None when the device is written
+    elsewhere, is plugged there already, or the voltage there does not suit it.
+
+    Parameters:
+        ctx: the change context.
+        dev: the device (None: no candidate).
+        there: the outlet or strip.
+        why: the title's words after "plug DEV in at THERE, ".
+        reason: the rule the change answers.
+        fits: :func:`_fits` of the plan.
+    Returns:
+        the candidate, or None.
+    References:
+        none (bookkeeping).
+    """
+    if dev is None or dev.location.file != ctx.plan.file or there == dev.plugged:
+        return None
+    st = ctx.src.statement(dev.location.line)
+    ph = ctx.src.find(st, "plugged") if st is not None else None
+    if not ph or len(ph) != 2 or not fits(dev, there):
+        return None
+    return refuse(
+        Candidate(
+            f"plug {dev.name} in at {there}, {why}",
+            reason,
+            (ctx.src.replace(st, [(ph[1], there)]),),
+            moves_plug=True,
+            action="replug",
+            element=dev.name,
+        ),
+        out_of_reach(ctx, dev, st, there),
+    )
 
 
 def out_of_reach(ctx: ChangeContext, dev, st, there: str) -> str:
@@ -242,7 +240,7 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
     earth path is plugged, its interconnects' other devices first.  The broken path still needs
     repair; this takes the device off it."""
     earths = ctx.result.device_earths or ()
-    devices = {d.name: d for d in ctx.plan.devices}
+    devices = ctx.plan.index.devices
     fits = _fits(ctx.plan)
     sound = [
         devices[e.device].plugged
@@ -264,26 +262,13 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
             if y.split(".", 1)[0] == dev.name
         ]
         near = [devices[m].plugged for m in mates if m in devices and devices[m].plugged in sound]
-        st = ctx.src.statement(dev.location.line) if dev.location.file == ctx.plan.file else None
-        ph = ctx.src.find(st, "plugged") if st is not None else None
+        why = (
+            "whose earth path is sound (and take "
+            f"{dev.plugged} out of use until a qualified person has repaired its protective "
+            "connection; an adaptor or cord without an earth is thrown away)"
+        )
         for there in list(dict.fromkeys(near + sound))[:3]:
-            if ph and len(ph) == 2 and there != dev.plugged and fits(dev, there):
-                add(
-                    refuse(
-                        Candidate(
-                            f"plug {dev.name} in at {there}, whose earth path is sound (and take "
-                            f"{dev.plugged} out of use until a qualified person has repaired its "
-                            "protective connection; an adaptor or cord without an earth is thrown "
-                            "away)",
-                            f.code,
-                            (ctx.src.replace(st, [(ph[1], there)]),),
-                            moves_plug=True,
-                            action="replug",
-                            element=dev.name,
-                        ),
-                        out_of_reach(ctx, dev, st, there),
-                    )
-                )
+            add(_plug_move(ctx, dev, there, why, f.code, fits))
 
 
 def _fits(plan: Plan):

@@ -22,7 +22,7 @@ from pathlib import Path
 
 from ..analysis import Options, Result, analyze
 from ..model.records import Plan
-from ..rules.catalogue import RULES, protective_earth_rule, severity_rank
+from ..rules.catalogue import RULES, SAFETY_RULES, protective_earth_rule, severity_rank
 from ..rules.selection import codes_of
 from .budget import Clock
 from .candidates import Candidate, candidates
@@ -69,17 +69,16 @@ def judging(options: Options) -> Options:
     References:
         none (the safety rejections of :mod:`groundcheck.advice.evaluation`).
     """
-    safety = {c for c, r in RULES.items() if protective_earth_rule(c) or "danger" in r.variants}
     wanted = (
         codes_of(options.only_rules, options.only_rules_origin) if options.only_rules else None
     )
     unwanted = codes_of(options.leave_out, options.leave_out_origin)
-    if (wanted is None or safety <= wanted) and not safety & unwanted:
+    if (wanted is None or SAFETY_RULES <= wanted) and not SAFETY_RULES & unwanted:
         return options
     return dataclasses.replace(
         options,
-        only_rules=tuple(sorted(wanted | safety)) if wanted is not None else (),
-        leave_out=tuple(sorted(unwanted - safety)),
+        only_rules=tuple(sorted(wanted | SAFETY_RULES)) if wanted is not None else (),
+        leave_out=tuple(sorted(unwanted - SAFETY_RULES)),
     )
 
 

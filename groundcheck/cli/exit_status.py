@@ -14,14 +14,13 @@ __all__ = ["say_passed_dangers"]
 def _say_unchecked_dangers(results) -> None:
     """A warning on standard error when a rule selection left out rules that can find a danger:
     a danger they would find cannot fail the run, whatever --fail-on says."""
-    from ..rules.catalogue import RULES, protective_earth_rule
+    from ..rules.catalogue import SAFETY_RULES
     from ..rules.selection import rule_list
 
-    risky = {c for c, r in RULES.items() if protective_earth_rule(c) or "danger" in r.variants}
     left = {}
     for r in results:
         for n in r.not_checked:
-            codes = [c for c in n.codes if c in risky]
+            codes = [c for c in n.codes if c in SAFETY_RULES]
             if codes and n.location is None:
                 left.setdefault(n.why, set()).update(codes)
     for why, codes in left.items():

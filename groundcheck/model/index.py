@@ -13,6 +13,8 @@ from __future__ import annotations
 
 from functools import cached_property
 
+from .kinds import LEAKAGE
+
 __all__ = ["PlanIndex", "outermost", "device_of"]
 
 
@@ -79,6 +81,12 @@ class PlanIndex:
     def currents(self) -> dict:
         """Stated current name -> current."""
         return {c.name: c for c in self.plan.currents}
+
+    @cached_property
+    def leakage(self) -> frozenset:
+        """The names of the leakage currents (role leakage): they are in phase, one source group
+        of the hum budget, the outlet voltages and the export."""
+        return frozenset(c.name for c in self.plan.currents if c.role == LEAKAGE)
 
     @cached_property
     def fields(self) -> dict:

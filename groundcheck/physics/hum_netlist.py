@@ -23,7 +23,6 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..model.kinds import LEAKAGE
 from .fieldhum import source_lines
 from .sources import LEAKAGE_GROUP
 
@@ -72,8 +71,6 @@ def _group_of(source, leakage=frozenset()) -> str:
     return LEAKAGE_GROUP if source.name in leakage else source.name
 
 
-def _leakage(budget) -> set:
-    return {c.name for c in budget.plan.currents if c.role == LEAKAGE}
 
 
 def source_groups(budget, f: float) -> list[str]:
@@ -89,7 +86,7 @@ def source_groups(budget, f: float) -> list[str]:
     References:
         none (bookkeeping).
     """
-    out, leakage = [], _leakage(budget)
+    out, leakage = [], budget.plan.index.leakage
     for s in budget.hum_sources:
         if abs(s.parts.get(f, 0)) > 0 and _group_of(s, leakage) not in out:
             out.append(_group_of(s, leakage))
@@ -116,7 +113,7 @@ def netlist_sources(budget, f: float, group: str | None = None, channel: str | N
     groups = source_groups(budget, f)
     if channel is None and budget.channels:
         channel = budget.channels[0]
-    leakage = _leakage(budget)
+    leakage = budget.plan.index.leakage
     currents = tuple(
         (s.name, s.a, s.b, complex(s.parts[f]))
         for s in budget.hum_sources

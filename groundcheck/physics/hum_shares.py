@@ -15,7 +15,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..model.kinds import LEAKAGE
 from .coupling import channel_tests, source_injections
 from .sources import source_group
 from .ranking import largest
@@ -109,7 +108,7 @@ def source_part(b, f: float, fac, active: list, part) -> None:
 
 def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
     both = fac.solve(source_injections(b.circuit, active, f))
-    leakage = {c.name for c in b.plan.currents if c.role == LEAKAGE}
+    leakage = b.plan.index.leakage
     if b.probe_a.size:
         dv = both.V[b.probe_a] - both.V[b.probe_b]  # probes × sources
         leak = np.array([s.name in leakage for s in active], dtype=bool)

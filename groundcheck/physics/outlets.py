@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ..model.kinds import LEAKAGE, carries_load, joins_devices
+from ..model.kinds import carries_load, joins_devices
 from ..model.installation import device_of, separated_devices
 from .coupling import plan_sources, source_injections
 from .ranking import largest
@@ -196,7 +196,7 @@ class OutletWork:
         self.freqs = sorted(
             {f for s in self.sources for f in s.parts if 0 < f <= max_frequency + 1e-9}
         )
-        self.leakage = {c.name for c in plan.currents if c.role == LEAKAGE}
+        self.leakage = plan.index.leakage
 
     def unplugged(self) -> tuple[dict, list]:
         """Every pair's voltage with the interconnects unplugged, per frequency, and its drivers:

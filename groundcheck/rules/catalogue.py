@@ -26,6 +26,7 @@ __all__ = [
     "severity_rank",
     "IDENTITIES",
     "protective_earth_rule",
+    "SAFETY_RULES",
 ]
 
 
@@ -122,3 +123,12 @@ RULES: dict[str, Rule] = {
         *MODEL_ENTRIES,
     )
 }
+
+
+#: the rules a danger can come from: every protective-earth rule and any rule whose findings may
+#: be dangers (the advice judges every change with them, and leaving them out is said)
+SAFETY_RULES: frozenset[str] = frozenset(
+    code
+    for code, r in RULES.items()
+    if r.family == PROTECTIVE_EARTH or "danger" in r.variants
+)

@@ -9,7 +9,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from ..core.units import dbv
-from ..model.kinds import LEAKAGE, joins_devices
+from ..model.kinds import joins_devices
 from ..physics.sources import plan_sources, source_group
 from ..physics.hearing import heard_threshold, spl_of
 from ..physics.humsettings import (
@@ -63,7 +63,7 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
         the rule catalogue (rules/catalogue.py), which names each code's sources.
     """
     plan_conductors = s.plan.index.conductors
-    leak = {c.name for c in s.plan.currents if c.role == LEAKAGE}
+    leak = s.plan.index.leakage
     channels = {st.name: st.channel for st in s.plan.stages}
     out = []
     # devices whose earth pin reaches no main earthing terminal (GC215): their leakage returns by
@@ -215,8 +215,7 @@ def _source_level(s: Solved, row, channel: str | None, amps: dict) -> float | No
     without a hum budget (or the channel not in it)."""
     if s.hum is None or channel not in s.hum.levels:
         return None
-    leakage = {c.name for c in s.plan.currents if c.role == LEAKAGE}
-    group = source_group(row.kind, row.source, leakage)
+    group = source_group(row.kind, row.source, s.plan.index.leakage)
     whole = s.hum.levels[channel].get(group, 0.0)
     current = amps.get(row.source)
     if current is None:

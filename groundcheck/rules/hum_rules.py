@@ -10,7 +10,7 @@ under their codes (:mod:`groundcheck.rules.registry`); conductors in series are 
 from __future__ import annotations
 
 from ..core.units import dbv
-from ..model.kinds import LEAKAGE, PROTECTIVE, SIGNAL, carries_load, joins_devices
+from ..model.kinds import PROTECTIVE, SIGNAL, carries_load, joins_devices
 from ..physics.heater_field import source_heater
 from ..physics.sources import LEAKAGE_GROUP
 from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
@@ -42,7 +42,7 @@ def rule_hum(s: Solved) -> list[Finding]:
     runs = series_runs(s.ctx)
     # currents that reach a stage only round a loop through the installation: leakage, and the EMF
     # of loaded cables
-    leakage = {c.name for c in plan.currents if c.role == LEAKAGE}
+    leakage = plan.index.leakage
     loop_driven = (
         leakage
         | ({LEAKAGE_GROUP} if leakage else set())

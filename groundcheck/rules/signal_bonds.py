@@ -36,7 +36,7 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
     """
     out = []
     equipment = equipment_of(ctx)
-    for comp, places in _signal_grounds(ctx):
+    for comp, places in signal_grounds(ctx):
         name = _component_name(ctx, comp)
         if not places:
             out.append(_floating(ctx, comp, name))
@@ -132,7 +132,7 @@ def floating_signal_grounds(ctx: AuditContext) -> list[set[str]]:
     References:
         see :func:`rule_signal_bonds`.
     """
-    return [set(comp) for comp, places in _signal_grounds(ctx) if not places]
+    return [set(comp) for comp, places in signal_grounds(ctx) if not places]
 
 
 def _chassis_proper(ctx: AuditContext) -> set[str]:
@@ -153,7 +153,9 @@ def _chassis_proper(ctx: AuditContext) -> set[str]:
 
 
 def signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
-    """Each signal-ground network and its bonds to the chassis side (:func:`_signal_grounds`).
+    """Each signal-ground network (a connected part of the graph without the chassis side and
+    protective conductors that holds a signal point): its points, and its bonds to the chassis side
+    by chassis point.
 
     Parameters:
         ctx: the audit context.
@@ -162,13 +164,6 @@ def signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[st
     References:
         none (bookkeeping).
     """
-    return _signal_grounds(ctx)
-
-
-def _signal_grounds(ctx: AuditContext) -> list[tuple[list[str], dict[str, list[str]]]]:
-    """Each signal-ground network (a connected part of the graph without the chassis side and
-    protective conductors that holds a signal point): its points, and its bonds to the chassis side
-    by chassis point."""
     G, side = ctx.G, _chassis_proper(ctx)
     order = list(G.nodes)
     idx = {n: i for i, n in enumerate(order)}
