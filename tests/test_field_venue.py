@@ -76,3 +76,7 @@ def test_no_device_is_offered_an_outlet_its_cord_cannot_reach():
         if far == "foh_strip" or e.candidate.element == "mixer":
             assert e.rejected and "does not reach" in e.rejected, e.candidate.title
     assert not [e for e in chosen if e.candidate.action == "replug" and "foh" in e.candidate.title]
+    # by hand, from the plan's positions: pa_l at (1.0, 6.5) m, the strip at (8.5, 25.0) m:
+    # √(7.5² + 18.5²) = 19.96 m against its 2 m cord
+    (pa_l,) = [e for e in moves if e.candidate.title.startswith("plug pa_l in at foh_strip")]
+    assert "pa_l's cord (2 m) does not reach foh_strip, 20.0 m away" in pa_l.rejected
