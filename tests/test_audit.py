@@ -560,3 +560,46 @@ def test_diodes_belong_to_a_lift_alone():
     with pytest.raises(PlanErrors) as e:
         plan(BASE.replace("signal\nstage", "signal, diodes\nstage"))
     assert "diodes is an attribute of a lift" in str(e.value)
+
+
+def test_internal_written_on_the_wall_that_holds_the_sockets():
+    # 'internal' takes a part out of the protective-earth figures; the deck holds the input
+    # socket, so it is a wall of the case (common practice): a warning names the part and the
+    # socket, on the socket mounted on it or bolted to it alike; a bracket holding none is quiet
+    walled = BASE.replace("300 x 200 mm, touchable", "300 x 200 mm, internal")
+    (f,) = [f for f in analyze(plan(walled)).findings if f.code == "GC227"]
+    assert f.severity == "warning" and f.elements == ("deck", "sleeve")
+    bolted = walled.replace(
+        "point sleeve: sleeve, at 290,50 on deck", "point sleeve: sleeve\nbolt sb: sleeve to deck"
+    )
+    assert "GC227" in {f.code for f in analyze(plan(bolted)).findings}
+    bracket = BASE + "metal bracket: steel 1 mm, 40 x 40 mm, at 100,100, internal\n"
+    assert "GC227" not in {f.code for f in analyze(plan(bracket)).findings}
+    assert "GC227" not in {f.code for f in analyze(plan(BASE)).findings}
+
+
+def test_class_ii_written_over_a_protective_earth_is_a_warning():
+    # a class II plan skips every protective-earth check; a wire from the earth terminal to a stud
+    # bolted to the deck is how a protective earth is made, so the word is questioned (a
+    # warning); a functional earth to the signal ground's star stays a note (IEC 61140)
+    from helpers import HEADER
+
+    class_ii = HEADER.rstrip("\n") + ", class II\n"
+
+    def gc212(body):
+        return [
+            (f.severity, f.message)
+            for f in analyze(plan(class_ii + body, header=False)).findings
+            if f.code == "GC212"
+        ]
+
+    ((sev, text),) = gc212(BASE)
+    assert (
+        sev == "warning" and "written protective and landing on pe_stud, fastened to deck" in text
+    )
+    ((sev, text),) = gc212(BASE.replace(", protective", ""))
+    assert sev == "warning" and "landing on pe_stud, fastened to deck" in text
+    functional = BASE.replace("mains.pe to pe_stud", "mains.pe to star").replace(
+        ", protective", ""
+    )
+    assert [s for s, _ in gc212(functional)] == ["note"]

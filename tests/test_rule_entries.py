@@ -114,6 +114,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC202": {"fault", "danger"},
         "GC206": {"danger", "warning"},
         "GC208": {"danger", "note"},
+        "GC212": {"note", "warning"},
         "GC211": {"danger", "warning"},
         "GC215": {"danger", "fault"},
         "GC218": {"danger", "warning", "note"},

@@ -179,7 +179,8 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         PROTECTIVE_EARTH,
         "note",
         "A class II plan (double or reinforced insulation, no protective earth) with a conductor "
-        "on the inlet's earth terminal: a functional earth.",
+        "on the inlet's earth terminal: a functional earth; a warning when it is built as a "
+        "protective earth is (written protective, or landing on metal or a stud fastened to it).",
         "Class II equipment may have a functional earth (for screening or a signal reference, not "
         "for safety): its protection still rests on its insulation, so the earth conductor must "
         "not be counted on as protective, nor may a touchable part rely on it.",
@@ -188,6 +189,7 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "equipment is class I: give it a three-core cord and a protective earth to every "
         "touchable part.",
         "IEC 61140 (protection classes; functional earthing of class II equipment), from memory",
+        variants=("note", "warning"),
     ),
     entry(
         "GC213",
@@ -279,5 +281,21 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "insulation; the lift then says 'diodes' ('lift NAME: A to B, 10 ohm, 47 nF, diodes').",
         "common practice; IEC 61140 (parts that can become live under a single fault are bonded "
         "to the protective earth), from memory",
+    ),
+    entry(
+        "GC227",
+        "internal-part-holds-sockets",
+        PROTECTIVE_EARTH,
+        "warning",
+        "Metal of class I equipment written 'internal' that sockets, jacks or the mains inlet "
+        "sit on or are bolted to.",
+        "'internal' takes a part out of the protective-earth figures (its path resistance, touch "
+        "voltage and disconnection time); a part that holds sockets or the inlet is a wall of "
+        "the case, reached by a plug's shell or a hand, so the word would hide the checks it "
+        "needs.",
+        "Remove 'internal' from the part, so that it is checked as a part a hand can reach; if "
+        "it really is out of reach, accept the finding in the plan with the reason.",
+        "common practice (sockets and the inlet are mounted through the case's walls); IEC 61140 "
+        "(accessible conductive parts are bonded to the protective earth), from memory",
     ),
 ]

@@ -17,6 +17,7 @@ from . import (  # noqa: F401 - imported for their registrations
     loops,
     stars,
     signal_bonds,
+    stated_words,
     topology,
     transformers,
 )

@@ -10,7 +10,13 @@ from __future__ import annotations
 
 import networkx as nx
 
-from ..model.kinds import can_carry_protective, cross_section, section_checked
+from ..model.kinds import (
+    PROTECTIVE,
+    can_carry_protective,
+    cross_section,
+    is_fastening,
+    section_checked,
+)
 from ..model.records import PE_POINT
 from .catalogue import Finding
 from .context import AuditContext
@@ -204,21 +210,62 @@ def rule_class_ii(ctx: AuditContext) -> list[Finding]:
     ]
     if PE_POINT in ctx.G:
         for _, v, k in sorted(ctx.G.edges(PE_POINT, keys=True)):
-            c = ctx.conductors[k]
-            out.append(
-                Finding(
-                    "GC212",
-                    "note",
-                    f"{c.kind} {k} joins {v} to the earth terminal of class II equipment: a "
-                    "functional earth, not a protective one",
-                    c.location,
-                    (k, v),
-                    {},
-                    "keep it functional: the double or reinforced insulation must protect on its "
-                    "own; if the metal relies on this earth for safety, the equipment is class I",
-                )
-            )
+            out.append(_functional_earth(ctx, ctx.conductors[k], v))
     return out
+
+
+def _functional_earth(ctx: AuditContext, c, v: str) -> Finding:
+    """GC212 for one conductor on a class II plan's earth terminal: a note, or a warning when it
+    is built as a protective earth is — written ``protective``, or landing on metal directly or on
+    a stud fastened to it — since the plan's word 'class II' then skips the checks the metal may
+    rely on (common practice: a functional earth goes to the signal ground, not to a stud on the
+    case)."""
+    metals = {m.name for m in ctx.plan.metals}
+    held = sorted(
+        {
+            x.b if x.a == v else x.a
+            for x in ctx.plan.conductors
+            if v in (x.a, x.b) and is_fastening(x, metals)
+        }
+    )
+    landing = (
+        f"landing on {v}"
+        if v in metals
+        else f"landing on {v}, fastened to {held[0]}"
+        if held
+        else ""
+    )
+    shape = (
+        f"written protective{' and ' + landing if landing else ''}"
+        if c.role == PROTECTIVE
+        else landing
+    )
+    if not shape:
+        return Finding(
+            "GC212",
+            "note",
+            f"{c.kind} {c.name} joins {v} to the earth terminal of class II equipment: a "
+            "functional earth, not a protective one",
+            c.location,
+            (c.name, v),
+            {},
+            "keep it functional: the double or reinforced insulation must protect on its "
+            "own; if the metal relies on this earth for safety, the equipment is class I",
+        )
+    return Finding(
+        "GC212",
+        "warning",
+        f"{c.kind} {c.name} joins {v} to the earth terminal of equipment written class II, "
+        f"{shape}: that is how a protective earth is made, and class II skips every "
+        "protective-earth check (path resistance, touch voltage, disconnection time)",
+        c.location,
+        (c.name, v),
+        {},
+        "if the metal's safety relies on this earth (anything short of double or reinforced "
+        "insulation between it and mains), the equipment is class I: remove 'class II' from "
+        "the mains statement to have its protective earth checked; if the insulation is double "
+        "throughout, accept this finding in the plan with the reason",
+    )
 
 
 @rule("GC111")
