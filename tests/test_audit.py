@@ -12,7 +12,7 @@ from groundcheck.analysis import analyze
 from groundcheck.analysis import audit
 from groundcheck.network.graph import edges_of, fundamental_loops, loop_count
 
-from helpers import EXAMPLES, plan
+from helpers import EXAMPLES, HEADER, plan
 
 BASE = """
 metal deck: aluminium 2 mm, 300 x 200 mm, touchable
@@ -582,8 +582,6 @@ def test_class_ii_written_over_a_protective_earth_is_a_warning():
     # a class II plan skips every protective-earth check; a wire from the earth terminal to a stud
     # bolted to the deck is how a protective earth is made, so the word is questioned (a
     # warning); a functional earth to the signal ground's star stays a note (IEC 61140)
-    from helpers import HEADER
-
     class_ii = HEADER.rstrip("\n") + ", class II\n"
 
     def gc212(body):
@@ -603,3 +601,46 @@ def test_class_ii_written_over_a_protective_earth_is_a_warning():
         ", protective", ""
     )
     assert [s for s, _ in gc212(functional)] == ["note"]
+
+
+#: a bottom plate bonded by a wire from a tag on the transformer's frame, which is bolted to the
+#: deck (the part a service takes out); the near misses: the same wire from a stud on the deck, and
+#: a plate bolted onto the frame itself (it goes out with it)
+FRAME_BOND = """
+metal bottom: steel 1 mm, 300 x 200 mm, touchable
+metal pt_frame: steel 1 mm, 100 x 90 mm, at 160,100, internal
+bolt pt_feet: pt_frame to deck, via 250,180
+point frame_tag: stud, at 170,110 on pt_frame
+bolt frame_nut: frame_tag to pt_frame
+point bot_stud: stud, at 170,110 on bottom
+bolt bot_nut: bot_stud to bottom
+wire bot_bond: frame_tag to bot_stud, 100 mm, 1.0 mm2, protective
+"""
+
+
+def test_a_bond_that_starts_on_a_part_a_service_takes_out():
+    # IEC 60335-1 cl. 28 (from memory): a protective connection may not depend on a part's fixings
+    (f,) = [f for f in analyze(plan(BASE + FRAME_BOND)).findings if f.code == "GC228"]
+    assert f.severity == "danger" and f.elements == ("bottom", "pt_frame", "bot_bond")
+    assert "taking pt_frame out for service unearths bottom" in f.message
+    from_deck = FRAME_BOND.replace(
+        "point frame_tag: stud, at 170,110 on pt_frame\nbolt frame_nut: frame_tag to pt_frame",
+        "point frame_tag: stud, at 40,110 on deck\nbolt frame_nut: frame_tag to deck",
+    )
+    assert "GC228" not in {f.code for f in analyze(plan(BASE + from_deck)).findings}
+    on_frame = FRAME_BOND.replace(
+        "wire bot_bond: frame_tag to bot_stud, 100 mm, 1.0 mm2, protective",
+        "bolt bot_screw: frame_tag to bot_stud",
+    )
+    assert "GC228" not in {f.code for f in analyze(plan(BASE + on_frame)).findings}
+
+
+def test_the_bond_through_a_serviced_part_is_answered_by_a_bond_of_its_own():
+    from groundcheck.advice.repair import suggest
+
+    text = HEADER + BASE + FRAME_BOND
+    _, evs = suggest(plan(BASE + FRAME_BOND), text)
+    first = evs[0]
+    assert not first.rejected and first.candidate.reason == "GC228"
+    assert (first.candidate.action, first.candidate.element) == ("bond", "bottom")
+    assert "GC228" not in {f.code for f in first.result.findings}

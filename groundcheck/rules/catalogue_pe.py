@@ -298,4 +298,19 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "common practice (sockets and the inlet are mounted through the case's walls); IEC 61140 "
         "(accessible conductive parts are bonded to the protective earth), from memory",
     ),
+    entry(
+        "GC228",
+        "bond-through-serviced-part",
+        PROTECTIVE_EARTH,
+        "danger",
+        "Touchable metal whose only protective path runs through a smaller part bolted to a "
+        "larger one (a transformer's frame, a bracket), by a wire that starts on that part.",
+        "Taking the smaller part out for service takes the wire with it and leaves the metal "
+        "unearthed though nobody touched an earth wire: GC202's trap, one bond further on.",
+        "Bond the metal by a protective wire of its own from a stud on the chassis beside the "
+        "protective earth's, never from a part that a service takes out.",
+        "common practice; IEC 60335-1 cl. 28 and IEC 62368-1 (a protective connection may not "
+        "depend on a part's fixings), from memory",
+        actions=("bond",),
+    ),
 ]

@@ -12,6 +12,7 @@ from . import (  # noqa: F401 - imported for their registrations
     protective,
     pe_current,
     pe_figures,
+    pe_through_part,
     rcd_outlets,
     signal,
     loops,
