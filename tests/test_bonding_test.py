@@ -364,3 +364,27 @@ def test_the_long_test_takes_the_breakers_rating_at_the_inlets_part_alone():
     lid = next(p for p in r.bonding.parts if p.part == "lid" and p.test == "long")
     short = next(p for p in r.bonding.parts if p.part == "lid" and p.test == "short")
     assert lid.voltage == pytest.approx(short.voltage / 25.0, rel=1e-9)  # 1 A against 25 A
+
+
+def test_the_drop_limit_follows_the_device_that_protects_each_part():
+    # IEC 60950-1:2005 2.6.3.4 (REFERENCE.md, confirmed): 0.1 Ω when the protective device is
+    # 16 A or less, else 2.5 V at 200 % of its rating.  On a 32 A breaker with a 2 A fuse: the
+    # chassis the inlet sits on is the breaker's (2.5 V at 64 A); the lid, behind the fuse, is the
+    # fuse's, 2 A ≤ 16 A: no voltage limit, its 0.1 Ω is GC206's
+    text = (
+        'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, breaking high, breaker 32 A B, '
+        "line-conductor 1.5 mm2, inlet at 20,20\n"
+        "metal chassis: aluminium 2 mm, 300 x 200 mm, touchable\n"
+        "metal lid: steel 1 mm, 300 x 200 mm, at 0,300, touchable\n"
+        "point pe_stud: stud, at 30,30 on chassis\n"
+        "wire pe_lead: mains.pe to pe_stud, 30 mm, 1.5 mm2, protective\n"
+        "bolt pe_bolt: pe_stud to chassis, protective\n"
+        "point lid_tag: tag, at 30,330 on lid\n"
+        "bolt lid_bolt: lid_tag to lid, protective, contact 60 mohm\n"
+        "wire lid_lead: pe_stud to lid_tag, 300 mm, 1 mm2, protective\n"
+    )
+    r, _ = bonding(text, header=False)
+    long = {p.part: p for p in r.bonding.parts if p.test == "long"}
+    assert long["chassis"].limit == 2.5 and long["chassis"].current == pytest.approx(64.0)
+    assert long["lid"].limit is None and long["lid"].current == pytest.approx(4.0)
+    assert not [f for f in r.findings if f.code == "GC223" and "lid" in f.elements]

@@ -23,8 +23,9 @@ limit.
 Fastenings (bolts, screws) have no cross-section: the power their contact dissipates and the
 voltage across it are reported without a temperature verdict (there is no model of a joint's heat
 path). The voltage across each part's path at the test current is reported too, and for a
-protective device above 16 A held to 2.5 V at the long test's current (IEC 60950-1:2005 2.6.3.4,
-which sets that limit instead of 0.1 Ω there). IEC 60065 and IEC 60335-1 limit the test source's
+part whose own protective device is above 16 A held to 2.5 V at the long test's current (IEC
+60950-1:2005 2.6.3.4, which sets that limit instead of 0.1 Ω there): the breaker at the inlet's
+part, the equipment's fuse behind it (a part behind a fuse of 16 A or less keeps the 0.1 Ω). IEC 60065 and IEC 60335-1 limit the test source's
 open-circuit voltage to 12 V (from memory), a limit on the test set rather than on the equipment,
 which is not checked (the path's resistance is GC206's)."""
 
@@ -267,15 +268,21 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
     ]
     rating, volts = DROP_LIMIT
     ahead, _ = plan.mains.inlet_device
-    big = ahead is not None and ahead > rating
+
+    def protected_by(p) -> float | None:
+        # the device that clears a fault at the part: the breaker at the inlet's part, the
+        # equipment's fuse behind it (IEC 60950-1 takes the rating of the part's own device)
+        return plan.mains.fuse if weight and p != inlet else ahead
+
+    def limit(t, p) -> float | None:
+        device = protected_by(p)
+        return volts if t.name == "long" and device is not None and device > rating else None
 
     def amps(t, p) -> float:
         return t.current * (weight(p) if weight and t.name == "long" else 1.0)
 
     parts = tuple(
-        PartDrop(
-            p, t.name, amps(t, p) * r, volts if big and t.name == "long" else None, amps(t, p)
-        )
+        PartDrop(p, t.name, amps(t, p) * r, limit(t, p), amps(t, p))
         for t in tests
         for p, r in sorted(rpart.items())
     )
