@@ -418,3 +418,29 @@ def test_no_outlet_no_rcd_warning(tmp_path):
     except PlanErrors:
         pytest.skip("a device must be plugged into an outlet")
     assert not [f for f in r.findings if f.code == "GC225"]
+
+
+def test_a_twin_and_earth_cables_thinner_protective_core_is_in_the_loop(tmp_path):
+    # a flat cable of 2.5 mm² line and neutral cores beside a 1.5 mm² protective core (common
+    # practice for twin-and-earth), written with its protective core's area and 'line-cores': by
+    # hand at 70 °C (IEC 60228 class 1/2 maxima, 7.41 and 12.1 Ω/km, × (230 + 70)/250 = 1.2):
+    # Ze 0.35 + line 20 m × 7.41 Ω/km × 1.2 = 0.17784 + protective 20 m × 12.1 Ω/km × 1.2 =
+    # 0.2904 + the cord's 0.1248 = 0.94304 Ω, I = 230 / 0.94304 = 243.89 A; with both at 2.5 mm²
+    # 0.83048 Ω, 276.95 A (the test above)
+    supply = "loop-impedance 0.35 ohm, breaker 16 A B"
+    (tmp_path / "s.gplan").write_text(
+        BOUGHT.format(supply=supply, outlet="wall").replace(
+            "20 m, 2.5 mm2", "20 m, 1.5 mm2, line-cores 2.5 mm2"
+        )
+    )
+    r = analyze(load(tmp_path / "s.gplan"), Options(hum=False))
+    (row,) = [d for d in r.device_earths if d.device == "keys"]
+    assert row.fault.fault_current == pytest.approx(230 / 0.94304, rel=1e-6)
+    # the word is a cable's: on a wire it is a located error naming the kinds that take it
+    (tmp_path / "w.gplan").write_text(
+        AMP + "point p: stud, at 40,10 on chassis\n"
+        "wire w: pe_stud to p, 30 mm, 1 mm2, line-cores 2.5 mm2\n"
+    )
+    with pytest.raises(PlanErrors) as e:
+        load(tmp_path / "w.gplan")
+    assert "line-cores" in str(e.value) and "cable" in str(e.value)

@@ -37,6 +37,7 @@ CONDUCTOR_NAMED = (
     "common-mode",
     "load",
     "cores",
+    "line-cores",
     "shield-to",
     "in",
     "capacitance",
@@ -94,6 +95,8 @@ def _named(r: Reader, word: str, kw: dict, a: str, b: str) -> None:
         kw["loads"] = kw.get("loads", ()) + ((amps, hz),)
     elif word == "cores":
         kw["cores"] = r.word("how the cores lie (L-N-PE, L-PE-N or round)", CABLE_CORES)
+    elif word == "line-cores":
+        kw["line_area"] = r.quantity("area", "the line and neutral cores' area")
     elif word == "shield-to":
         first = r.word("where the shield lands (chassis or signal)", SHIELD_LANDINGS)
         kw["shield_ends"] = (
@@ -232,6 +235,7 @@ def _a(word: str) -> str:
 _HINTS = {
     "load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",
     "cores": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, cores L-N-PE'",
+    "line-cores": "a twin-and-earth cable: 'cable NAME: A to B, 15 m, 1.5 mm2, line-cores 2.5 mm2'",
     "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
     "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'",
     "capacitance": "a ground-lift network: 'lift NAME: A to B, 10 ohm, 47 nF'",

@@ -173,7 +173,7 @@ KINDS: dict[str, Kind] = {
             True,
             True,
             carries_load=True,
-            attributes=frozenset({"load", "cores"}),
+            attributes=frozenset({"load", "cores", "line-cores"}),
         ),
         Kind(
             "core",

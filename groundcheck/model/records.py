@@ -146,6 +146,9 @@ class Conductor:
     #: cables: (rms A, Hz; 0 = the mains frequency) in line and neutral
     loads: tuple[tuple[float, float], ...] = ()
     cores: str = "round"  # cables: how the cores lie (CABLE_CORES)
+    #: cables: the line and neutral cores' area, m², when it differs from the protective core's
+    #: (``area``): a twin-and-earth cable's 2.5 mm² beside its 1.5 mm²
+    line_area: float | None = None
     #: interconnects: where each end of the shield lands, as stated
     shield_ends: tuple[str, str] | None = None
     bundle: str | None = None  # umbilical cores: the umbilical (multi-core cable) they run in

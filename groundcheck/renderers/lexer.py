@@ -100,6 +100,7 @@ ATTRIBUTE_WORDS = ROLES + (
     "thickness",
     "library",
     "cores",
+    "line-cores",
     "shield-to",
     "chassis",
     "in",

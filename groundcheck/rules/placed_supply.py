@@ -10,7 +10,7 @@ findings this gives that its own plan does not are the installation's, under the
 
 Its fault loop runs through the installation as written: the conductors from the outlet it is
 plugged into to the main earthing terminal (cables, whose protective core's area is stated and
-whose line core is taken as the same, and protective wires, whose line conductor is taken to run
+whose line core is taken as the same unless ``line-cores`` gives its own, and protective wires, whose line conductor is taken to run
 beside them at the same size), in place of the final circuit its own plan assumes.  A reel of 50 m
 of 1 mm² flex puts over 3 Ω in the loop, which no 16 A breaker clears in 0.4 s.  Cables with round
 cores (cords, reels) and protective wires are taken at IEC 60228 class 5 (flexible), flat cables
@@ -238,7 +238,7 @@ def _route(plan: Plan, graph: nx.Graph, outlet: str | None):
     for a, b in zip(path, path[1:]):
         c = graph[a][b]["conductor"]
         flexible = not _cable(c) or c.cores == "round"
-        out.append((c.name, c.length, c.area, c.area, flexible))
+        out.append((c.name, c.length, c.line_area or c.area, c.area, flexible))
     return tuple(out)
 
 
