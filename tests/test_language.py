@@ -202,6 +202,13 @@ BAD = [
         "such as ohm or mohm)",
     ),
     (
+        "length for an area",
+        'plan "x"\nsupply 230 V 50 Hz\npoint met: earthing-terminal\npoint wall: outlet\n'
+        "cable c: met to wall, 10 m, 1.5 mm2, line-cores 3 m\n",
+        "bad.gplan:5:49: error: the line and neutral cores' area must be an area, not a length "
+        "(use an area unit such as mm2 or AWG)",
+    ),
+    (
         "length in ohms",
         'plan "x"\nmetal deck: aluminium 2 ohm\n',
         "bad.gplan:2:23: error: thickness must be a length, not a resistance (use a length unit "

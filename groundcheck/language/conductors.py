@@ -235,7 +235,7 @@ def _a(word: str) -> str:
 _HINTS = {
     "load": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, load 10 A'",
     "cores": "building wiring is a 'cable NAME: A to B, 15 m, 2.5 mm2, cores L-N-PE'",
-    "line-cores": "a twin-and-earth cable: 'cable NAME: A to B, 15 m, 1.5 mm2, line-cores 2.5 mm2'",
+    "line-cores": "twin and earth: 'cable NAME: A to B, 15 m, 1.5 mm2, line-cores 2.5 mm2'",
     "shield-to": "e.g. 'interconnect NAME: A to B, 3 m, 0.1 mm2, shield-to chassis'",
     "in": "an umbilical's core: 'core NAME: A to B, in UMBILICAL, 1.2 m, 0.5 mm2'",
     "capacitance": "a ground-lift network: 'lift NAME: A to B, 10 ohm, 47 nF'",

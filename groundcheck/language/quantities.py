@@ -18,6 +18,11 @@ __all__ = [
 ]
 
 
+def _a(word: str) -> str:
+    """The word with its indefinite article ("an area", "a length")."""
+    return f"{'an' if word[:1] in 'aeiou' else 'a'} {word}"
+
+
 def check_quantity(
     it, kind: str, what: str, positive: bool = True, allow_zero: bool = False
 ) -> float:
@@ -25,15 +30,15 @@ def check_quantity(
     :class:`PlanError` at the item."""
     if it.kind == "number":
         raise PlanError(
-            f"{what} needs a unit", it.loc, f"give a {kind}, e.g. with {_example_unit(kind)}"
+            f"{what} needs a unit", it.loc, f"give {_a(kind)}, e.g. with {_example_unit(kind)}"
         )
     if it.kind != "qty":
         raise PlanError(f"expected {what} ({kind}), found {it.text!r}", it.loc, "")
     if it.qkind != kind:
         raise PlanError(
-            f"{what} must be a {kind}, not a {it.qkind}",
+            f"{what} must be {_a(kind)}, not {_a(it.qkind)}",
             it.loc,
-            f"use a {kind} unit such as {_example_unit(kind)}",
+            f"use {_a(kind)} unit such as {_example_unit(kind)}",
         )
     v = it.value
     check_range(v, kind, what, it.loc, it.text)

@@ -22,12 +22,13 @@ limit.
 
 Fastenings (bolts, screws) have no cross-section: the power their contact dissipates and the
 voltage across it are reported without a temperature verdict (there is no model of a joint's heat
-path). The voltage across each part's path at the test current is reported too, and for a
-part whose own protective device is above 16 A held to 2.5 V at the long test's current (IEC
+path). The voltage across each part's path at the test current is reported too, and for a part
+whose own protective device is above 16 A held to 2.5 V at the long test's current (IEC
 60950-1:2005 2.6.3.4, which sets that limit instead of 0.1 Ω there): the breaker at the inlet's
-part, the equipment's fuse behind it (a part behind a fuse of 16 A or less keeps the 0.1 Ω). IEC 60065 and IEC 60335-1 limit the test source's
-open-circuit voltage to 12 V (from memory), a limit on the test set rather than on the equipment,
-which is not checked (the path's resistance is GC206's)."""
+part, the equipment's fuse behind it (a part behind a fuse of 16 A or less keeps the 0.1 Ω). IEC
+60065 and IEC 60335-1 limit the test source's open-circuit voltage to 12 V (from memory), a limit
+on the test set rather than on the equipment, which is not checked (the path's resistance is
+GC206's)."""
 
 from __future__ import annotations
 

@@ -10,11 +10,11 @@ findings this gives that its own plan does not are the installation's, under the
 
 Its fault loop runs through the installation as written: the conductors from the outlet it is
 plugged into to the main earthing terminal (cables, whose protective core's area is stated and
-whose line core is taken as the same unless ``line-cores`` gives its own, and protective wires, whose line conductor is taken to run
-beside them at the same size), in place of the final circuit its own plan assumes.  A reel of 50 m
-of 1 mm² flex puts over 3 Ω in the loop, which no 16 A breaker clears in 0.4 s.  Cables with round
-cores (cords, reels) and protective wires are taken at IEC 60228 class 5 (flexible), flat cables
-at class 1/2.
+whose line core is taken as the same unless ``line-cores`` gives its own, and protective wires,
+whose line conductor is taken to run beside them at the same size), in place of the final circuit
+its own plan assumes. A reel of 50 m of 1 mm² flex puts over 3 Ω in the loop, which no 16 A breaker
+clears in 0.4 s. Cables with round cores (cords, reels) and protective wires are taken at IEC 60228
+class 5 (flexible), flat cables at class 1/2.
 
 References: IEC 60364-4-41 411.4 (TN) and 411.5 (TT: the fault loop through the electrode, RCDs);
 IEC 60228 (conductor resistance).
