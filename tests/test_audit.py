@@ -644,3 +644,47 @@ def test_the_bond_through_a_serviced_part_is_answered_by_a_bond_of_its_own():
     assert not first.rejected and first.candidate.reason == "GC228"
     assert (first.candidate.action, first.candidate.element) == ("bond", "bottom")
     assert "GC228" not in {f.code for f in first.result.findings}
+
+
+#: an input jack and a volume pot, both bolted to the deck and wired to the star: the signal ground
+#: is bonded twice, by the jack's nut and by the pot's bushing
+POTS = """
+metal deck: aluminium 2 mm, 300 x 200 mm, touchable
+point pe_stud: stud, at 20,180 on deck
+wire pe_lead: mains.pe to pe_stud, 50 mm, 1.0 mm2, protective
+bolt pe_bolt: pe_stud to deck
+point star: star, at 150,100 on deck
+point jack_s: jack, at 290,50 on deck
+bolt jack_nut: jack_s to deck
+point vol: pot, at 30,20 on deck
+bolt vol_nut: vol to deck
+point k: pad, at 200,60 on deck
+wire in_gnd: jack_s to star, 150 mm, 0.5 mm2, signal
+wire vol_gnd: vol to star, 150 mm, 0.5 mm2, signal
+wire k_gnd: k to star, 60 mm, 0.5 mm2, signal
+stage v1: jack_s to k, gain 30 dB
+"""
+
+
+def test_a_pots_body_is_never_the_bond_kept():
+    # common practice: a pot's bushing through the panel loosens as the knob turns; the jack's
+    # fastening is kept, and the pot is insulated, its ground wire (its return) kept — never
+    # removed, which would send its return through the panel
+    (f,) = [f for f in analyze(plan(POTS)).findings if f.code == "GC105"]
+    assert f.fix.startswith("keep the bond at jack_s") and "insulate vol_nut" in f.fix
+    assert "remove vol_gnd" not in f.fix
+    # with the jack insulated the pot's body is the one bond left: a note that says so
+    alone = POTS.replace("bolt jack_nut: jack_s to deck\n", "")
+    (f,) = [f for f in analyze(plan(alone)).findings if f.code == "GC105"]
+    assert f.severity == "note" and "body of pot vol alone" in f.message
+    assert f.elements == ("vol_nut", "vol")
+
+
+def test_the_advisor_insulates_the_pot_before_the_jack():
+    from groundcheck.advice.repair import suggest
+
+    _, evs = suggest(plan(POTS), HEADER + POTS)
+    first = evs[0]
+    assert (first.candidate.action, first.candidate.element) == ("insulate", "vol_nut")
+    jack = next(e for e in evs if e.candidate.element == "jack_nut")
+    assert any(x.startswith("GC105 vol_nut") for x in jack.introduced)

@@ -388,3 +388,28 @@ def test_the_drop_limit_follows_the_device_that_protects_each_part():
     assert long["chassis"].limit == 2.5 and long["chassis"].current == pytest.approx(64.0)
     assert long["lid"].limit is None and long["lid"].current == pytest.approx(4.0)
     assert not [f for f in r.findings if f.code == "GC223" and "lid" in f.elements]
+
+
+def test_behind_a_fuse_above_16_a_the_part_keeps_the_drop_limit_at_its_fuses_current():
+    # a 20 A fuse behind a 32 A breaker: the lid is the fuse's, 20 A > 16 A, so 2.5 V at 40 A
+    # (IEC 60950-1:2005 2.6.3.4); its path: the 1 mm² lead, 300 mm at 20 °C, 1.7241e-8 × 0.3 /
+    # 1e-6 = 5.172 mΩ, and the lid's 60 mΩ screw: 40 A × 65.2 mΩ ≈ 2.61 V > 2.5 V — GC223 names
+    # the fuse
+    text = (
+        'plan "t"\nmains 230 V 50 Hz, fuse 20 A slow, breaking high, breaker 32 A B, '
+        "line-conductor 2.5 mm2, inlet at 20,20\n"
+        "metal chassis: aluminium 2 mm, 300 x 200 mm, touchable\n"
+        "metal lid: steel 1 mm, 300 x 200 mm, at 0,300, touchable\n"
+        "point pe_stud: stud, at 30,30 on chassis\n"
+        "wire pe_lead: mains.pe to pe_stud, 30 mm, 2.5 mm2, protective\n"
+        "bolt pe_bolt: pe_stud to chassis, protective\n"
+        "point lid_tag: tag, at 30,330 on lid\n"
+        "bolt lid_bolt: lid_tag to lid, protective, contact 60 mohm\n"
+        "wire lid_lead: pe_stud to lid_tag, 300 mm, 1 mm2, protective\n"
+    )
+    r, _ = bonding(text, header=False)
+    lid = next(p for p in r.bonding.parts if p.part == "lid" and p.test == "long")
+    assert lid.limit == 2.5 and lid.current == pytest.approx(40.0)
+    (f,) = [f for f in r.findings if f.code == "GC223" and f.elements == ("lid",)]
+    assert "200 % of the 20 A fuse that protects it" in f.message
+    assert 2.55 < f.figures["path_voltage_v"] < 2.7

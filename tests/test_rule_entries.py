@@ -110,6 +110,7 @@ def test_the_entries_that_make_more_than_one_severity():
     assert several == {
         "GC101": {"warning", "note"},
         "GC102": {"fault", "note"},
+        "GC105": {"warning", "note"},
         "GC106": {"warning", "fault"},
         "GC202": {"fault", "danger"},
         "GC206": {"danger", "warning"},

@@ -93,7 +93,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "Two bonds make the chassis part of a ground loop: chassis currents and induced "
         "current then flow in the signal ground.",
         "Keep one bond, near the protective-earth bond; isolate the other (insulated jack, "
-        "insulating washer).",
+        "insulating washer). A note when the one bond is a pot's body (a bushing that loosens "
+        "as the knob turns): bond at a stud of its own instead.",
+        variants=("warning", "note"),
         actions=("second-bond",),
     ),
     entry(

@@ -47,6 +47,11 @@ def rule_signal_bonds(ctx: AuditContext) -> list[Finding]:
             key = equipment.get(ctx.plan.index.device_of(p))
             groups.setdefault(key, {})[p] = ks
         out += [_twice(ctx, name, group, comp) for group in groups.values() if len(group) > 1]
+        out += [
+            f
+            for group in groups.values()
+            if (f := _pot_only(ctx, name, group, comp)) is not None
+        ]
         out += _held_by_links(ctx, comp, name, set(groups), equipment)
     return out
 
@@ -77,6 +82,35 @@ def _twice(ctx: AuditContext, name: str, places: dict, comp=()) -> Finding:
         {"bonds": len(places)},
         f"keep the bond at {keep}{why}; {words}",
         actions,
+    )
+
+
+def _pot_only(ctx: AuditContext, name: str, places: dict, comp: list) -> Finding | None:
+    """GC105, a note: a piece of equipment's signal ground bonded to its chassis by a pot's body
+    alone — a bushing through a panel, loosened by every turn of the knob, is the poorest bond
+    there is (common practice: the bond is a stud of its own near the protective earth).  Only a
+    network that holds a star: one without (an input's sleeve wired to the pot's lug) reaches the
+    star through the pot's wiring."""
+    kinds = ctx.plan.index.points
+    if len(places) != 1 or not any(n in kinds and kinds[n].kind == "star" for n in comp):
+        return None  # a network with no star (an input's sleeve wired to the pot) hangs on it
+    (p,) = places
+    point = ctx.plan.point(p)
+    held = _fastenings(ctx, {p}).get(p, [])
+    if point is None or point.kind != "pot" or not held:
+        return None
+    return Finding(
+        "GC105",
+        "note",
+        f"signal ground {name} is bonded to the chassis by the body of pot {p} alone "
+        f"({', '.join(held)}): a bushing through the panel, loosened by every turn of the knob, "
+        "is a poor bond",
+        ctx.loc(held[0]),
+        (*held, p),
+        {"bonds": 1},
+        f"bond the signal ground at a stud of its own near the protective earth, and insulate "
+        f"{p} from the metal (an insulated-bushing pot or shoulder washers)",
+        tuple(("insulate", k) for k in held),
     )
 
 
@@ -264,10 +298,12 @@ def _fastenings(ctx: AuditContext, points: set[str]) -> dict[str, list[str]]:
 
 
 def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple:
-    """How to undo each extra bond: a point of the signal circuit fastened to the metal (a socket)
-    is insulated from it, keeping its own ground wire; any other bond conductor is removed."""
+    """How to undo each extra bond: a point of the signal circuit or a socket, jack, pot or terminal
+    fastened to the metal is insulated from it, keeping its own ground wire (its return); any other
+    bond conductor is removed."""
     actions = []
-    wanted = {p for p in others if p in ctx.signal_points}
+    kinds = {p.name: p.kind for p in ctx.plan.points}
+    wanted = {p for p in others if p in ctx.signal_points or kinds.get(p) in SOCKET_KINDS}
     fastened: dict[str, list[str]] = {}
     if wanted:  # one pass over the conductors, not one per bond
         for c in ctx.plan.conductors:
@@ -298,10 +334,13 @@ def _component_name(ctx: AuditContext, comp: list[str]) -> str:
 
 def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str, str]:
     """The bond to keep, and why: a deliberate one (not a socket's own ground fastened to the
-    metal) before a socket's, then one on the box that holds the signal star (of two boxes, the
-    supply box's bond goes: common practice), then the nearest the equipment's protective
-    earth."""
+    metal) before a socket's, a socket's before a pot's body, then one on the box that holds the
+    signal star (of two boxes, the supply box's bond goes: common practice), then the nearest the
+    equipment's protective earth."""
     sockets = {p.name for p in ctx.plan.points if p.kind in SOCKET_KINDS}
+    # a pot's body is the poorest bond of all (a bushing through a painted panel, turned by
+    # every knob): kept only when nothing else is (common practice)
+    pots = {p.name for p in ctx.plan.points if p.kind == "pot"}
     star_box = {
         box
         for n in comp
@@ -313,7 +352,7 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str,
     away = {c for c in away if boxes[c] not in star_box}
     pe = pe_point(ctx, candidates[0])
     if pe not in ctx.G:
-        keep = min(candidates, key=lambda c: (c in sockets, c))
+        keep = min(candidates, key=lambda c: (c in sockets, c in pots, c))
         return keep, "" if keep in sockets else " (not a socket's own ground)"
     dist, _ = bfs(ctx.adj, [pe], lambda v: v in ctx.chassis_side)
     # equal hop counts (two studs on the same plate, say) are told apart by the distance on the
@@ -328,13 +367,16 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str,
         return min(math.dist(pos, q) for q in landings)
 
     keep = min(
-        candidates, key=lambda c: (c in sockets, c in away, dist.get(c, 10**9), metres(c), c)
+        candidates,
+        key=lambda c: (c in sockets, c in pots, c in away, dist.get(c, 10**9), metres(c), c),
     )
     nearest = min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))
     if keep == nearest:
         return keep, ", nearest the protective earth"
     if nearest in away and keep not in away:
         return keep, ", on the box that holds the signal star"
+    if keep in sockets:
+        return keep, " (a socket's fastening holds better than a pot's body)"
     return keep, " (not a socket's own ground)"
 
 
