@@ -298,9 +298,9 @@ def _fastenings(ctx: AuditContext, points: set[str]) -> dict[str, list[str]]:
 
 
 def _unbond_actions(ctx: AuditContext, others: list[str], places: dict) -> tuple:
-    """How to undo each extra bond: a point of the signal circuit or a socket, jack, pot or terminal
-    fastened to the metal is insulated from it, keeping its own ground wire (its return); any other
-    bond conductor is removed."""
+    """How to undo each extra bond: a point of the signal circuit or a socket, jack, pot or
+    terminal fastened to the metal is insulated from it, keeping its own ground wire (its return);
+    any other bond conductor is removed."""
     actions = []
     kinds = {p.name: p.kind for p in ctx.plan.points}
     wanted = {p for p in others if p in ctx.signal_points or kinds.get(p) in SOCKET_KINDS}
