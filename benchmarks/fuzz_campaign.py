@@ -108,7 +108,7 @@ def invariants(n: int, only: str = "") -> None:
     import test_invariants
     import test_rewritings
 
-    t = time.perf_counter()
+    t, failed = time.perf_counter(), []
     for name, (check, strategies, _) in {
         **test_invariants.PROPERTIES,
         **test_rewritings.PROPERTIES,
@@ -116,14 +116,21 @@ def invariants(n: int, only: str = "") -> None:
         if only not in name:
             continue
         run = given(*strategies)(_counted(check, name, t))
-        settings(
-            max_examples=n,
-            deadline=None,
-            database=None,
-            suppress_health_check=list(HealthCheck),
-            phases=[Phase.generate, Phase.shrink],
-        )(run)()
+        try:
+            settings(
+                max_examples=n,
+                deadline=None,
+                database=None,
+                suppress_health_check=list(HealthCheck),
+                phases=[Phase.generate, Phase.shrink],
+            )(run)()
+        except AssertionError as e:  # said, and the other properties still run
+            failed.append(name)
+            print(f"{name}: FAILED — {str(e)[:4000]}", flush=True)
+            continue
         print(f"{name}: {n} plans, no failure, {time.perf_counter() - t:.0f} s so far", flush=True)
+    if failed:
+        raise SystemExit(f"failed: {', '.join(failed)}")
 
 
 def advice(n: int) -> None:

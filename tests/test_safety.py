@@ -348,7 +348,15 @@ def test_class_ii():
         header=False,
     )
     # a conductor on a class II device's earth terminal is a functional earth (IEC 61140, from
-    # memory): a note
+    # memory): a note when it goes to the signal circuit; straight onto the touchable lid it is
+    # built as a protective earth is, and the word 'class II' is questioned (a warning)
+    (f,) = [f for f in analyze(p).findings if f.code == "GC212"]
+    assert f.severity == "warning" and "landing on lid" in f.message
+    p = plan(
+        'plan "t"\nmains 230 V 50 Hz, class II, fuse 1 A slow\nmetal lid: steel 1 mm, touchable\n'
+        "point a: pad\nwire w: mains.pe to a, 10 mm, 0.5 mm2\n",
+        header=False,
+    )
     (f,) = [f for f in analyze(p).findings if f.code == "GC212"]
     assert f.severity == "note" and "functional earth" in f.message
 
