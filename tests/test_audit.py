@@ -688,3 +688,61 @@ def test_the_advisor_insulates_the_pot_before_the_jack():
     assert (first.candidate.action, first.candidate.element) == ("insulate", "vol_nut")
     jack = next(e for e in evs if e.candidate.element == "jack_nut")
     assert any(x.startswith("GC105 vol_nut") for x in jack.introduced)
+
+
+#: a box on a 16 V adapter (written class II) that makes 150 V rms of high tension inside; its lid
+#: hangs on two 5 Ω screws through anodising, its tray is bonded to the star by a tag
+ELV_BOX = """plan "elv box"
+mains 16 V 50 Hz, class II, fuse 1 A slow, line-conductor 0.5 mm2
+metal tray: aluminium 2 mm, 200 x 150 mm, at 0,0, touchable
+metal lid: aluminium 1.5 mm, 200 x 150 mm, at 0,0, touchable
+bolt lid_a: lid to tray, contact 5 ohm, via 5,30
+bolt lid_b: lid to tray, contact 5 ohm, via 195,30
+point star: star, at 100,100 on tray
+point star_tag: stud, at 100,110 on tray
+bolt star_nut: star_tag to tray
+wire star_bond: star to star_tag, 10 mm, 0.5 mm2, signal
+point ht_res: cap, at 60,60
+point ht_neg: junction, at 60,70
+rectifier ht: ht_res to ht_neg, bridge, secondary 150 V, winding 120 ohm, reservoir 47 uF,
+  load 17 mA
+wire ht_w: ht_res to star, 60 mm, 0.5 mm2, return
+wire ht_b: ht_neg to ht_res, 10 mm, 0.5 mm2, return
+"""
+
+
+def _gc229(text):
+    return {
+        f.elements[0]: (f.severity, f.figures)
+        for f in analyze(plan(text, header=False)).findings
+        if f.code == "GC229"
+    }
+
+
+def test_high_tension_inside_a_box_on_a_low_voltage_adapter():
+    # common practice (IEC 61140's single fault, from memory): the case is tied to the high
+    # tension's return so that a chafed lead shorts that supply. By hand: the lid's two 5 Ω
+    # screws in parallel, 2.5 Ω, plus the tray's tag (0.5 mΩ, the default contact), the star
+    # bond 10 mm and the return 60 mm of 0.5 mm² copper (1.7241e-8 Ω·m × 0.07 m / 0.5e-6 m² =
+    # 2.41 mΩ at 20 °C): about 2.503 Ω, over the 0.1 Ω a bond is held to — a warning
+    found = _gc229(ELV_BOX)
+    assert set(found) == {"lid"} and found["lid"][0] == "warning"
+    assert found["lid"][1]["path_resistance_mohm"] == pytest.approx(2503, rel=1e-3)
+    # nothing ties the case to the return: both parts are dangers
+    floating = _gc229(ELV_BOX.replace("bolt star_nut: star_tag to tray\n", ""))
+    assert floating == {"tray": ("danger", {}), "lid": ("danger", {})}
+    # a box fed from the mains itself is class II proper (its insulation protects: GC213)
+    assert _gc229(ELV_BOX.replace("mains 16 V", "mains 230 V")) == {}
+    # a low-voltage supply inside makes no hazard
+    assert _gc229(ELV_BOX.replace("secondary 150 V", "secondary 24 V")) == {}
+
+
+def test_a_class_ii_boxs_own_dangers_are_the_installations(tmp_path):
+    (tmp_path / "box.gplan").write_text(ELV_BOX.replace("bolt star_nut: star_tag to tray\n", ""))
+    (tmp_path / "room.gplan").write_text(
+        'plan "room"\nsupply 230 V 50 Hz\npoint met: earthing-terminal\ndevice pre: "box.gplan"\n'
+    )
+    r = analyze(load(tmp_path / "room.gplan"))
+    found = [f for f in r.findings if f.code == "GC229"]
+    assert {f.elements[0] for f in found} == {"pre.tray", "pre.lid"}
+    assert all(f.severity == "danger" and "pre's own wiring" in f.message for f in found)

@@ -313,4 +313,22 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "depend on a part's fixings), from memory",
         actions=("bond",),
     ),
+    entry(
+        "GC229",
+        "elv-fed-high-tension",
+        PROTECTIVE_EARTH,
+        "danger",
+        "Touchable metal of a box fed at extra-low voltage (a low-voltage adapter's 'mains' of "
+        "50 V or less) that makes a supply above 50 V rms inside: whether each part is bonded to "
+        "that supply's return within 0.1 Ω.",
+        "The box has no protective earth; a chafed high-tension lead that touches its case makes "
+        "the case live unless the case is tied to the high tension's own return, which turns the "
+        "fault into a short of that supply. A screw through an anodised or painted finish is no "
+        "bond to count on.",
+        "Bond every touchable part to the high tension's return by a wire of its own on a stud "
+        "with a toothed washer on bare metal.",
+        "common practice; IEC 61140 (a part that can become live under a single fault), from "
+        "memory; IEC 60065 15.2 (0.1 Ω, REFERENCE.md)",
+        variants=("danger", "warning"),
+    ),
 ]

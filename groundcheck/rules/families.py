@@ -6,6 +6,7 @@ from . import (  # noqa: F401 - imported for their registrations
     bonding,
     earthing_system,
     electrical,
+    elv_fed_ht,
     hum_rules,
     installation,
     lift_fault,

@@ -81,7 +81,14 @@ def placed_supply_findings(
     graph = building_graph(plan)
     for name, own in plan.device_plans:
         m = own.mains
-        if m is None or m.equipment_class == "II" or plugged.get(name) in behind:
+        if m is not None and m.equipment_class == "II":
+            # no protective earth to check on this supply; its own plan's dangers are still the
+            # installation's (a box on a low-voltage adapter that makes its high tension inside)
+            if id(own) not in alone:
+                alone[id(own)] = _analysed(analyze, own, quick)
+            out += [_own(f, name) for f, _ in _reported(alone[id(own)].findings, [])]
+            continue
+        if m is None or plugged.get(name) in behind:
             continue
         placed, route = as_placed(plan, graph, name, m)
         if id(own) not in alone:
@@ -125,6 +132,15 @@ def _reported(there, alone) -> list[tuple[Finding, bool]]:
             or severity_rank(f.severity) <= severity_rank("warning")
         )
     ]
+
+
+def _own(f: Finding, name: str) -> Finding:
+    """A class II device's own protective-earth finding as the installation reports it."""
+    return replace(
+        f,
+        message=f"{name}'s own wiring (its own plan finds it too): {f.message}",
+        elements=tuple(f"{name}.{e}" for e in f.elements),
+    )
 
 
 def _analysed(analyze, own: Plan, options: Options) -> Result:
