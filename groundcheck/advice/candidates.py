@@ -23,6 +23,7 @@ from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, device_note
 from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
 from .loop_changes import loop_candidates, second_bond, terminate_shield
+from .ht_bond import ht_return_bond
 from .protective_changes import bonding_wire, own_stud
 from .thickening import thicker
 from .routing_changes import (
@@ -62,6 +63,7 @@ FINDING_GENERATORS = {
     "own-stud": lambda ctx, f, add: add(own_stud(ctx, f)),
     "thicken": lambda ctx, f, add: add(thicker(ctx, f)),
     "bond": lambda ctx, f, add: add(bonding_wire(ctx, f)),
+    "ht-bond": lambda ctx, f, add: add(ht_return_bond(ctx, f)),
     "high-breaking": high_breaking,
     "twist": twist_heater,
     "carried": carried_actions,

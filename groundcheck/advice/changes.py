@@ -71,6 +71,7 @@ ACTIONS = (
     "own-stud",
     "thicken",
     "bond",
+    "ht-bond",
     "rcd",
     "electrode",
     "fuse",

@@ -22,7 +22,7 @@ from .changes import (
 )
 from .edits import Edit
 
-__all__ = ["own_stud", "bonding_wire"]
+__all__ = ["own_stud", "bonding_wire", "fastened_to"]
 
 
 #: how far a new stud stays inside its part's edge, m: the radius of an M4 or M5 washer and a
@@ -75,7 +75,7 @@ def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float
     return None
 
 
-def _fastened_to(ctx: ChangeContext, point: str) -> str | None:
+def fastened_to(ctx: ChangeContext, point: str) -> str | None:
     """The metal part a fastening holds ``point`` to (None when no fastening holds it)."""
     return next(
         (
@@ -103,7 +103,7 @@ def _bonding_home(ctx: ChangeContext, landing, part: str) -> str | None:
     References:
         common practice (each bond from the main chassis, on a fixing of its own).
     """
-    names = [landing.on, _fastened_to(ctx, landing.name)]
+    names = [landing.on, fastened_to(ctx, landing.name)]
     homes = [n for n in dict.fromkeys(names) if n in ctx.metals and n != part]
     if not homes:
         return None

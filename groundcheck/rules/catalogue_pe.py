@@ -329,6 +329,6 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "with a toothed washer on bare metal.",
         "common practice; IEC 61140 (a part that can become live under a single fault), from "
         "memory; IEC 60065 15.2 (0.1 Ω, REFERENCE.md)",
-        variants=("danger", "warning"),
+        actions=("ht-bond",),
     ),
 ]

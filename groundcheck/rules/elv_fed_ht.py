@@ -38,8 +38,8 @@ def rule_elv_fed_high_tension(ctx: AuditContext) -> list[Finding]:
     Parameters:
         ctx: the audit context.
     Returns:
-        GC229 findings, one per touchable part: a danger when nothing joins it to the return, a
-        warning when the path is over 0.1 Ω.
+        GC229 findings, one per touchable part (dangers, as GC206's over the same limit in class I
+        equipment).
     References:
         the module's description (common practice; IEC 61140, from memory; IEC 60065 15.2).
     """
@@ -73,7 +73,7 @@ def rule_elv_fed_high_tension(ctx: AuditContext) -> list[Finding]:
         out.append(
             Finding(
                 "GC229",
-                "danger" if r is None else "warning",
+                "danger",
                 f"{part.name} is touchable metal of a box fed at {m.voltage:g} V that makes "
                 f"{supply.secondary:g} V rms inside ({supply.name}): {where}",
                 part.location,
