@@ -196,13 +196,15 @@ def _bought_without_balanced_socket(ctx: ChangeContext, c) -> list[str]:
 
 
 def wired_graph(plan: Plan) -> nx.Graph:
-    """The signal ground's wiring alone: conductors that join two points (never metal, the mains
-    earth, a lift network or a switch), shields only when they conduct at both ends."""
+    """The signal ground's wiring inside each piece of equipment: conductors that join two points
+    (never metal, the mains earth, a lift network, a switch or a link between devices: a return
+    that reaches its star only through another box's does not return when that box is unplugged),
+    shields only when they conduct at both ends."""
     metals = {m.name for m in plan.metals}
     G = nx.Graph()
     G.add_nodes_from(p.name for p in plan.points)
     for c in plan.conductors:
-        if c.a in metals or c.b in metals or PE_POINT in (c.a, c.b):
+        if c.a in metals or c.b in metals or PE_POINT in (c.a, c.b) or joins_devices(c):
             continue
         if not is_lift(c) and not can_open(c) and c.connects and c.role != PROTECTIVE:
             G.add_edge(c.a, c.b)
