@@ -91,14 +91,18 @@ def external_loop(m) -> tuple[float, float]:
     return DEFAULT_ZE["TT"], DEFAULT_ZE["TT"]
 
 
-def _cables(m, temperature: float) -> tuple[float, float, float]:
+def _cables(m, temperature: float, prospective: bool = False) -> tuple[float, float, float]:
     """(circuit line, circuit protective conductor, cord core) resistances at ``temperature``,
-    Ω; the circuit is a placed device's route through its installation when it has one."""
+    Ω; the circuit is a placed device's route through its installation when it has one.  For the
+    prospective currents (``prospective``) a round building cable is taken at class 1/2, the
+    lower resistance: the plan cannot say whether it is fixed wiring or a flexible reel, and the
+    breaking capacity is checked against the larger current."""
     cord = cable_resistance(m.cord_length, m.cord_section, True, temperature)
     if m.route is not None:  # a placed device: the installation's conductors to the origin
+        route = [(ln, a, pe, flex and not prospective) for _, ln, a, pe, flex in m.route]
         return (
-            sum(cable_resistance(ln, a, flex, temperature) for _, ln, a, _, flex in m.route),
-            sum(cable_resistance(ln, pe, flex, temperature) for _, ln, _, pe, flex in m.route),
+            sum(cable_resistance(ln, a, flex, temperature) for ln, a, _, flex in route),
+            sum(cable_resistance(ln, pe, flex, temperature) for ln, _, pe, flex in route),
             cord,
         )
     c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]
@@ -146,7 +150,7 @@ def supply_figures(plan: Plan) -> Supply:
         if m.fuse is not None
         else None
     )
-    c_line, c_cpc, c_cord = _cables(m, cold_t)
+    c_line, c_cpc, c_cord = _cables(m, cold_t, prospective=True)
     linked = ze + c_line + c_cord  # the device replaced by a link (the prospective currents)
     cold_outside, cold_return = linked + fuse_r, c_cord + c_cpc
     zln = ze if m.system != "TT" else min(ze, DEFAULT_LINE_NEUTRAL_LOOP)
