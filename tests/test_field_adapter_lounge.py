@@ -1,0 +1,71 @@
+"""An outside builder's lounge (tests/field/adapter-headphone-lounge, copied as written): a valve
+headphone amplifier and line preamplifier of his own on a double-insulated 16 V AC adapter (written
+as its class II `mains`), which steps the 16 V up to some 140 V of high tension inside an aluminium
+case whose anodised lid hangs on four screws (5 Ω each by his estimate); a class I valve power
+amplifier with a glass fuse and a class II streamer, on TN-C-S. His verdict: the lid is the one
+danger (a chafed high-tension lead with the screws' contact open puts the lid at the high tension;
+the first fix, a flying lead from the lid to the star-bond screw); the power amplifier's glass fuse
+faces some 259 A; never remove the star-to-case screw, never lift an unbalanced link's braid, and
+— from his review — never leave the right output transformer's return joined to its star only
+through the links to the power amplifier (an applied suggestion did: with the power amplifier
+unplugged the headphone channel had no return)."""
+
+from pathlib import Path
+
+import pytest
+
+from groundcheck import load
+from groundcheck.advice.candidates import candidates
+from groundcheck.advice.evaluation import evaluate
+from groundcheck.advice.returns import lost_wired_returns
+from groundcheck.analysis import Options, analyze
+
+FIELD = Path(__file__).parent / "field" / "adapter-headphone-lounge"
+BOX, ROOM = FIELD / "headamp.gplan", FIELD / "lounge.gplan"
+QUICK = Options(hum=False)
+
+
+def test_the_lid_over_the_high_tension_is_the_danger():
+    # by hand: the lid's four 5 Ω screws in parallel, 1.25 Ω, over the 0.1 Ω a bond is held to;
+    # the tray is tied to the high tension's return by the star's screw (no finding)
+    r = analyze(load(BOX), QUICK)
+    found = {f.elements[0]: f for f in r.findings if f.code == "GC229"}
+    assert set(found) == {"lid"} and found["lid"].severity == "danger"
+    assert found["lid"].figures["path_resistance_mohm"] == pytest.approx(1253, rel=2e-3)
+    room = analyze(load(ROOM), QUICK)
+    assert {"pre.lid"} == {f.elements[0] for f in room.findings if f.code == "GC229"}
+    # the power amplifier's stated glass fuse against the prospective short, by his hand: cables
+    # cold (the 18 m radial at IEC 60228 class 1/2, whether its cores are written round or flat),
+    # 0.890 Ω, 230 / 0.890 = 258.4 A against the glass fuse's 35 A
+    (fuse,) = [f for f in room.findings if f.code == "GC211"]
+    assert fuse.severity == "danger"
+    assert fuse.figures["fault_current_a"] == pytest.approx(230 / 0.890, rel=2e-3)
+
+
+def test_the_first_fix_is_the_lids_own_lead_to_the_star():
+    plan, text = load(BOX), BOX.read_text()
+    before = analyze(plan, QUICK)
+    (bond,) = [c for c in candidates(plan, before, text) if c.action == "ht-bond"]
+    assert bond.element == "lid" and "lid to star" in bond.title
+    ev = evaluate(text, plan, before, bond, QUICK, FIELD, BOX.resolve())
+    assert not ev.rejected and "GC229" not in {f.code for f in ev.result.findings}
+    # never offered: the star's screw to the case removed or insulated (the case would float
+    # round the high tension)
+    for c in candidates(plan, before, text):
+        assert not (c.action in ("remove", "insulate") and c.element == "star_bond"), c.title
+
+
+def test_a_return_that_reaches_its_star_only_through_another_box_is_refused(tmp_path):
+    # the builder's right output transformer: its cold end wired to the headphone jack, which is
+    # wired to the star; moving that wire's end to the star leaves the cold end joined only to the
+    # line-out socket, whose link reaches the power amplifier's star — not its own
+    text = BOX.read_text()
+    moved = text.replace("wire w_otr: ot_r_cold to hp_sleeve,", "wire w_otr: star to hp_sleeve,")
+    assert moved != text
+    for name in ("lounge.gplan", "poweramp.gplan"):
+        (tmp_path / name).write_text((FIELD / name).read_text())
+    (tmp_path / "headamp.gplan").write_text(text)
+    before = load(tmp_path / "lounge.gplan")
+    (tmp_path / "headamp.gplan").write_text(moved)
+    after = load(tmp_path / "lounge.gplan")
+    assert "pre.ot_r_cold" in lost_wired_returns(before, after)
