@@ -34,7 +34,7 @@ def ht_return_bond(ctx: ChangeContext, f) -> Candidate | None:
     rect = next((r for r in ctx.plan.rectifiers if r.name == supply), None)
     if metal is None or metal.size is None or rect is None:
         return None
-    flagged = {x.elements[0] for x in ctx.result.findings if x.code == "GC229"}
+    flagged = {x.elements[0] for x in ctx.result.findings if x.code == f.code}
     target = _target(ctx, part, flagged, rect.a)
     st = ctx.statement(next(c for c in ctx.plan.conductors if c.a == rect.a or c.b == rect.a))
     if target is None or st is None or not ctx.same_file(st, target.name):
@@ -65,7 +65,7 @@ def ht_return_bond(ctx: ChangeContext, f) -> Candidate | None:
 
 
 def _target(ctx: ChangeContext, part: str, flagged: set, ret: str):
-    """Where the bond goes: a stud fastened to a part of the case no GC229 names (the signal
+    """Where the bond goes: a stud fastened to a part of the case no such finding names (the signal
     ground's bond to the case), nearest ``part``'s centre; else the return's own point."""
     metal = ctx.plan.metal(part)
     centre = (metal.origin[0] + metal.size[0] / 2, metal.origin[1] + metal.size[1] / 2)

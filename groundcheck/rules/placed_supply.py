@@ -82,11 +82,7 @@ def placed_supply_findings(
     for name, own in plan.device_plans:
         m = own.mains
         if m is not None and m.equipment_class == "II":
-            # no protective earth to check on this supply; its own plan's dangers are still the
-            # installation's (a box on a low-voltage adapter that makes its high tension inside)
-            if id(own) not in alone:
-                alone[id(own)] = _analysed(analyze, own, quick)
-            out += [_own(f, name) for f, _ in _reported(alone[id(own)].findings, [])]
+            out += _class_ii_own(name, own, alone, analyze, quick)
             continue
         if m is None or plugged.get(name) in behind:
             continue
@@ -132,6 +128,15 @@ def _reported(there, alone) -> list[tuple[Finding, bool]]:
             or severity_rank(f.severity) <= severity_rank("warning")
         )
     ]
+
+
+def _class_ii_own(name: str, own: Plan, alone: dict, analyze, quick: Options) -> list[Finding]:
+    """A class II device has no protective earth to check on the installation's supply; its own
+    plan's protective-earth dangers, faults and warnings are still the installation's (a box on a
+    low-voltage adapter that makes its high tension inside)."""
+    if id(own) not in alone:
+        alone[id(own)] = _analysed(analyze, own, quick)
+    return [_own(f, name) for f, _ in _reported(alone[id(own)].findings, [])]
 
 
 def _own(f: Finding, name: str) -> Finding:
