@@ -125,6 +125,15 @@ def test_polygon_areas():
         3.0
     )  # L shape
     assert polygon_area([(0, 0), (1, 1), (2, 2)]) == 0.0  # collinear
+    # an outline along one line whose shoelace sum rounds to 2.7e-20 or 4.1e-20 m² by the vertex
+    # it starts at (found by the rename campaign): 0 from every start
+    line = [
+        (0.06996132757535453, -0.007415317352044395),
+        (0.018913345199306274, 0.002806428423811919),
+        (0.0486810128541249, -0.0031541897425684255),
+        (0.06722551014309679, -0.006867502747430055),
+    ]
+    assert {polygon_area(line[i:] + line[:i]) for i in range(4)} == {0.0}
 
 
 def test_faraday_worked_example():
