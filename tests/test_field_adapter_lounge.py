@@ -69,3 +69,20 @@ def test_a_return_that_reaches_its_star_only_through_another_box_is_refused(tmp_
     (tmp_path / "headamp.gplan").write_text(moved)
     after = load(tmp_path / "lounge.gplan")
     assert "pre.ot_r_cold" in lost_wired_returns(before, after)
+
+
+def test_a_star_named_star_is_said_once():
+    # the builder's review: "flows through the star star" in every GC103
+    r = analyze(load(BOX), QUICK)
+    chains = [f.message for f in r.findings if f.code == "GC103"]
+    assert chains and all("star star" not in m and "through the star:" in m for m in chains)
+
+
+def test_a_loop_that_encloses_nothing_in_plan_picks_up_no_printed_figure():
+    # the lid on the tray through its screws: loops of no area in plan, whose ring integral rounds
+    # to some 3e-15 µV; printed "below 1 pV" (as the HTML report does), never as a figure
+    from groundcheck.renderers.text import text_report
+
+    text = text_report(analyze(load(BOX)))
+    table = text[text.index("Loop pickup") :].split("\n\n")[0]
+    assert "below 1 pV" in table and "e-1" not in table

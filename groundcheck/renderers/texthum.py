@@ -158,6 +158,18 @@ def axis_words(axis: list[float], stated: str) -> str:
     return f"worst: {shown}" if stated == "worst" else shown
 
 
+#: an EMF below this (V) is the rounding of an outline that encloses nothing in plan (a lid on a
+#: tray through two screws), printed as such rather than as 3e-15 µV
+EMF_FLOOR = 1e-12
+
+
+def _emf_uv(volts: float | None) -> str:
+    """A loop's EMF in µV for the pickup table; "below 1 pV" under :data:`EMF_FLOOR`."""
+    if volts is not None and abs(volts) < EMF_FLOOR:
+        return "below 1 pV"
+    return number(None if volts is None else volts * 1e6, "", 3)
+
+
 def _pickup_table(result: Result, console: Console) -> None:
     t = Table(title="Loop pickup (EMF at the source's fundamental)", title_justify="left")
     for col in ("loop", "source", "height mm", "axis", "model", "closest mm", "EMF µV"):
@@ -173,7 +185,7 @@ def _pickup_table(result: Result, console: Console) -> None:
                 axis_words(e["axis"], e["axis_stated"]),
                 e["model"],
                 f"{e['closest_mm']:g}",
-                number(None if first is None else first * 1e6, "", 3),
+                _emf_uv(first),
             )
             rows += 1
     if rows:

@@ -147,7 +147,8 @@ def supply_meetings(ctx) -> list[tuple]:
                 (
                     r.location,
                     (star, x, y, link),
-                    f"the current of {r.name} between {x} and {y} flows through the star {star}: "
+                    f"the current of {r.name} between {x} and {y} flows through "
+                    f"{_the_star(star)}: "
                     "they meet only there",
                     f"join {x} to {y} by a short wire of their own ({link}), then one wire to "
                     f"{star}",
@@ -167,3 +168,11 @@ def _shortest(adj: dict, x: str, y: str, rank: dict) -> list:
     while parent[path[-1]] is not None:
         path.append(parent[path[-1]])
     return path[::-1]
+
+
+def _the_star(name: str) -> str:
+    """A star point in words: "the star" for one named star, "the star (pre.star)" in a device,
+    else "the star NAME" (never "the star star")."""
+    if name == "star":
+        return "the star"
+    return f"the star ({name})" if name.rsplit(".", 1)[-1] == "star" else f"the star {name}"
