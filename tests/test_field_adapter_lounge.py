@@ -86,3 +86,23 @@ def test_a_loop_that_encloses_nothing_in_plan_picks_up_no_printed_figure():
     text = text_report(analyze(load(BOX)))
     table = text[text.index("Loop pickup") :].split("\n\n")[0]
     assert "below 1 pV" in table and "e-1" not in table
+
+
+def test_the_heater_return_moves_off_the_cathode_never_the_cathode_off_the_star():
+    # his review: the heater regulator's return is on the left cathode's tag (kl); the trade
+    # moves the heater return to its reservoir (h_res) and leaves the cathode's wire to the star
+    plan, text = load(BOX), BOX.read_text()
+    before = analyze(plan, QUICK)
+    (chain,) = [f for f in before.findings if f.code == "GC103" and "kl" in f.elements]
+    assert "take the regulator's return off kl to h_res" in chain.fix
+    cands = candidates(plan, before, text)
+    (move,) = [c for c in cands if c.action == "return-to"]
+    assert move.element == "hsup" and "off kl to h_res" in move.title
+    ev = evaluate(text, plan, before, move, QUICK, FIELD, BOX.resolve())
+    assert not ev.rejected and not [
+        f for f in ev.result.findings if f.code == "GC103" and "kl" in f.elements
+    ]
+    # never: the cathode's own wire moved, nor the heater reservoir hung on the cathode's tag
+    assert not [c for c in cands if c.element == "w_kl" and not c.refused]
+    hung = [c for c in cands if c.action == "join" and "h_res straight to kl" in c.title]
+    assert hung and all(c.refused for c in hung)

@@ -63,6 +63,7 @@ ACTIONS = (
     "lift-network",
     "move",
     "join",
+    "return-to",
     "terminate-at",
     "shield-to-chassis",
     "balance",

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from ..model.kinds import SIGNAL, is_fastening, shield_like
 from ..rules.catalogue import RULES
-from .changes import Answer, ChangeContext, delete_change, reroute
+from .changes import Answer, Candidate, ChangeContext, delete_change, reroute
 from .returns import refuse
 
 __all__ = [
@@ -65,6 +65,9 @@ def _star_actions(ctx: ChangeContext, f, add) -> None:
     import networkx as nx
 
     for verb, name, *where in f.actions:
+        if verb == "return-to":
+            add(return_to(ctx, f, name, *where))
+            continue
         c = ctx.cond.get(name)
         if verb not in ("reroute", "join") or c is None or not where:
             continue
@@ -78,6 +81,29 @@ def _star_actions(ctx: ChangeContext, f, add) -> None:
         else:
             title = f"run {far} to {where[0]} by its own wire ({name})"
             add(reroute(ctx, name, near, where[0], title, f.code))
+
+
+def return_to(ctx: ChangeContext, f, supply: str, x: str, y: str) -> Candidate | None:
+    """A filter's or regulator's return moved off a stage's ground point ``x`` to the reservoir's
+    ``y``: the rectifier statement's ``… to X`` phrase names ``y`` (its cold end rewired there);
+    None when the statement cannot be edited here (an included file) or names another point."""
+    r = next((r for r in ctx.plan.rectifiers if r.name == supply), None)
+    st = ctx.src.statement(r.location.line, r.location.file) if r is not None else None
+    if st is None or not ctx.same_file(st, y):
+        return None
+    word = "regulator" if x == r.regulator_point else "filter"
+    ph = ctx.src.find(st, word)
+    last = ph[-1] if ph else None
+    if last is None or last.kind != "word" or last.value != ctx.file_name(x, st):
+        return None
+    return Candidate(
+        f"take {supply}'s {word} return off {x} to {y} (rewire its cold end there), so its "
+        f"current leaves {x}, a stage's ground, and the star",
+        f.code,
+        (ctx.src.replace(st, [(last, ctx.file_name(y, st))]),),
+        action="return-to",
+        element=supply,
+    )
 
 
 def _star_wires(ctx: ChangeContext, f, add) -> None:
@@ -134,6 +160,7 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
             ):
                 ways.append((end, other, d, far))
     hops = _from_most_sensitive(ctx)
+    stage_ends = {n for st in ctx.plan.stages for n in (st.a, st.b)}
     landing = [_landing(ctx, row, w[2], hops) for w in ways]
     best = max((x[0] for x in landing if x[0] is not None), default=None)
     for (end, other, d, far), (near, at) in zip(ways, landing):
@@ -147,7 +174,16 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
             reason,
             "join",
         )
-        if best is not None and near is not None and near < best:
+        if end in stage_ends and other not in stage_ends:
+            # a supply's return hung on a stage's own ground point: the stage's reference would
+            # carry it (common practice: the return goes to the supply, never to a stage)
+            c = refuse(
+                c,
+                f"it would hang {other}'s return on {end}, a stage's ground (its reference "
+                "would carry the supply's current): move the supply's return off the stage "
+                "instead",
+            )
+        elif best is not None and near is not None and near < best:
             c = refuse(
                 c,
                 f"it leaves the supply's link to the signal ground at {at}, nearer {hops[1]} "

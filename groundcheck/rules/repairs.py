@@ -129,6 +129,7 @@ def supply_meetings(ctx) -> list[tuple]:
     if not stars:
         return []
     H = nx.Graph((u, v) for u, v in ctx.G.edges() if not {u, v} & (stars | ctx.metals))
+    stage_ends = {n for st in ctx.plan.stages for n in (st.a, st.b)}
     rank = canonical_ranks(ctx.G)
     out = []
     for r in ctx.plan.rectifiers:
@@ -143,6 +144,9 @@ def supply_meetings(ctx) -> list[tuple]:
                 continue
             # of two conductors side by side, the first by rank (not by the plan's order)
             link = min(ctx.G[path[0]][path[1]], key=rank.__getitem__)
+            if x != r.b and x in stage_ends:
+                out.append(_return_on_stage(r, star, x, y, link))
+                continue
             out.append(
                 (
                     r.location,
@@ -168,6 +172,23 @@ def _shortest(adj: dict, x: str, y: str, rank: dict) -> list:
     while parent[path[-1]] is not None:
         path.append(parent[path[-1]])
     return path[::-1]
+
+
+def _return_on_stage(r, star: str, x: str, y: str, link: str) -> tuple:
+    """GC103 for a filter's or regulator's return landed on a stage's own ground point ``x``:
+    the fix moves that return's end to the reservoir's ``y`` (the heater string's or the load's
+    cold end rewired), never the stage's ground wire ``link``, which is the stage's reference
+    (common practice)."""
+    what = "regulator" if x == r.regulator_point else "filter"
+    return (
+        r.location,
+        (star, x, y, link),
+        f"the current of {r.name} between {x} and {y} flows through {_the_star(star)}: they meet "
+        f"only there, and its {what} return lands on {x}, a stage's ground",
+        f"take the {what}'s return off {x} to {y} (rewire its cold end there); {x} keeps its "
+        f"own wire ({link}) to {star}",
+        (("return-to", r.name, x, y),),
+    )
 
 
 def _the_star(name: str) -> str:
