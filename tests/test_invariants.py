@@ -32,6 +32,7 @@ from invariantplans import (
     AREAS,
     Block,
     Mirrored,
+    Resistive,
     mirrored_plans,
     mirrored_text,
     resistive_plans,
@@ -583,3 +584,25 @@ def test_a_mirrored_placement_names_the_same_loops_in_both_channels():
     result = analyze(load_text(text, "mirrored.gplan"))
     left = _channel_figures(result, "left")
     assert not _same(_channel_figures(result, "right", _swap), left)
+
+
+def test_a_balanced_bridge_lists_no_contributor_at_any_scale():
+    """Found by the campaign: c1's stage across a balanced bridge (n3 and n1 at one potential), its
+    four arms' shares cancelling exactly. With the resistances as written their sum rounded to
+    noise and four 12 µV contributors were listed; times ten it rounded to an exact zero and none
+    were: a listing that followed the last bit. Now none at every scale."""
+    bridge = Resistive(
+        n=4,
+        resistors=(
+            (1, 0, 0.047),
+            (2, 0, 0.0012),
+            (3, 2, 0.047),
+            (3, 0, 0.047),
+            (3, 1, 0.22),
+            (1, 2, 0.047),
+        ),
+        currents=((2, 0, 50.0, 100),),
+        stages=((0, 1, 0), (3, 1, 0)),
+    )
+    for k in (0.5, 2.0, 10.0, 0.03):
+        drops_scale_with_resistance(bridge, k)

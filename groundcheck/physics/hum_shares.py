@@ -185,6 +185,10 @@ def _tops(mags, rank, n):
     return np.broadcast_to(np.arange(nb), (n, nb))
 
 
+#: an output within this fraction of its largest share is the shares' rounding, not a figure
+CANCELLED = 64 * np.finfo(float).eps
+
+
 def _emit(b, ch, top_mags, top_shares, tops, cols, v_all, groups, part, ncols, each=None):
     """Each source's output and its named shares (a column's branches each under its owner, a
     run's members with their own shares; ``cols`` ``None``: each column is its branch) into
@@ -196,11 +200,13 @@ def _emit(b, ch, top_mags, top_shares, tops, cols, v_all, groups, part, ncols, e
     rests = (v_all - np.where(kept, top_shares, 0).sum(axis=1)).tolist()
     # plain Python numbers from here: the merge adds tens of thousands of them one by one
     v_list, tops_list = v_all.tolist(), tops.tolist()
-    shares_list, kept_list = top_shares.tolist(), kept.tolist()
+    shares_list, kept_list, peak_list = top_shares.tolist(), kept.tolist(), peak.tolist()
     many = ncols > TOP_SHARES
     for si, group in enumerate(groups):
         v_out = v_list[si]
-        if v_out == 0:
+        # shares that cancel to within their rounding (a balanced bridge) leave no output: the
+        # same whether the rounding leaves an exact zero or noise (resistances scaled by ten)
+        if abs(v_out) <= CANCELLED * peak_list[si]:
             continue
         part.out.append((ch, group, v_out))
         for col, share, keep in zip(tops_list[si], shares_list[si], kept_list[si]):
