@@ -344,3 +344,15 @@ def test_twelve_wires_in_series_are_one_contributor_named_whole():
     found = [f for f in r.findings if f.code == "GC301"]
     assert len(found) == 1 and "(in series)" in found[0].message
     assert found[0].figures["level_dbv"] == pytest.approx(-38.42, abs=0.01)
+
+
+def test_a_tie_between_a_return_and_its_own_currents_partner_is_no_chain():
+    text = (ROOT / "tests" / "plans" / "split-chain-tie.gplan").read_text(encoding="utf-8")
+    split = text.replace(
+        "  wire w0: n1 to n0, 3 mm, 0.5 mm2, signal",
+        "  point j: junction\n  wire w0: n1 to j, 1.5 mm, 0.5 mm2, signal\n"
+        "  wire w0b: j to n0, 1.5 mm, 0.5 mm2, signal",
+    )
+    assert split != text
+    codes = [sorted(f.code for f in _run(t).findings) for t in (text, split)]
+    assert codes[0] == codes[1] and "GC103" not in codes[0]

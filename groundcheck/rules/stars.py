@@ -101,11 +101,10 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
         star = path[-1]
         if groups.get(star) and groups.get(t) != groups.get(star):
             continue  # a star placed in a block or device gathers that placement's returns only
-        via = [
-            n
-            for n in path[1:-1]
-            if n in terminals and frozenset((t, n)) not in ctx.source_pairs | supplies
-        ]
+        pairs = ctx.source_pairs | supplies
+        if _partner_as_near(ctx.adj, dist, t, joints, pairs):
+            continue  # as near through its own current's other end: which route is no fact
+        via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in pairs]
         if via and _clear_distance(ctx.adj, clear, t, joints) > dist[t]:
             chains.setdefault(star, []).append((t, via[0]))
     out = []
@@ -125,6 +124,17 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
             )
         )
     return out
+
+
+def _partner_as_near(adj: dict, dist: dict, t: str, joints, pairs) -> bool:
+    """Whether a shortest route from ``t`` to its star starts at the other end of its own current
+    (a source's or supply's pair): then a tie decided which route the search kept, and a route
+    through another return is no chain of the wiring (a wire split at a junction, or renamed,
+    would decide the tie the other way)."""
+    step = 0 if t in joints else 1
+    return any(
+        frozenset((t, u)) in pairs and u in dist and dist[u] + step == dist[t] for u in adj[t]
+    )
 
 
 def _clear_distance(adj: dict, clear: dict, t: str, joints) -> float:
