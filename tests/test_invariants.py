@@ -18,7 +18,6 @@ import re
 from random import Random
 
 import numpy as np
-import pytest
 from hypothesis import HealthCheck, Phase, given, settings, strategies as st
 
 from groundcheck import analyze, load_text
@@ -570,14 +569,11 @@ def test_a_return_with_a_clear_route_as_short_is_no_chain():
     assert not [f for f in both if f.code == "GC103"]
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="found by the 1,000-plan campaign (and at the session's first commit too): the two "
-    "mirrored channels' hum totals are equal, but each channel's loops come from a different "
-    "cycle basis, so the share named per loop differs; a canonical basis (by geometry or a "
-    "name-free key) is the fix, left for the planners",
-)
 def test_a_mirrored_placement_names_the_same_loops_in_both_channels():
+    """Found by the 1,000-plan campaign: the two mirrored channels' hum totals were equal, but each
+    channel's loops came from a different cycle basis (positions in the canonical colours ordered
+    two points of one channel by where they lie, the other way round in its mirror image), so the
+    share named per loop differed. Positions now only break ties among elements alike."""
     from pathlib import Path
 
     text = (Path(__file__).parent / "plans" / "mirror-basis" / "mirrored.gplan").read_text()

@@ -33,6 +33,8 @@ MAX_ROUNDS = 12
 
 #: conductor fields that name something (or say where it is written): never part of its key
 _NAMING = {"name", "kind", "a", "b", "location", "channel", "bundle", "shield_ends"}
+#: where a conductor runs: a tie-break only, as a node's position is (see _place_key)
+_PLACING = {"route"}
 _CACHE = "canonical_ranks"
 
 
@@ -80,7 +82,7 @@ def _written_key(c) -> str:
     row = KINDS[c.kind]
     kind = _plain(tuple(getattr(row, f.name) for f in dataclasses.fields(row) if f.name != "name"))
     return f"{int(last)};{kind};" + ";".join(
-        f"{f}={_plain(getattr(c, f))}" for f in fields if f not in _NAMING
+        f"{f}={_plain(getattr(c, f))}" for f in fields if f not in _NAMING | _PLACING
     )
 
 
@@ -92,15 +94,25 @@ def _node_key(data: dict) -> str:
                 metal.material,
                 metal.thickness,
                 metal.size,
-                metal.origin,
                 metal.touchable,
                 metal.signal_only,
                 metal.permeability,
             )
         )
     if point is not None:
-        return "point;" + _plain((point.kind, point.pos, data.get("attached", ())))
+        return "point;" + _plain((point.kind, data.get("attached", ())))
     return ""
+
+
+def _place_key(data: dict) -> str:
+    """Where a node is (a metal part's corner, a point's position): only a tie-break among nodes
+    alike in everything else, so that a channel and its mirror image order their elements alike
+    (positions in the colour would order two different points of one channel by where they lie,
+    the other way round in the mirror image)."""
+    metal, point = data.get("metal"), data.get("point")
+    if metal is not None:
+        return _plain(metal.origin)
+    return _plain(point.pos) if point is not None else ""
 
 
 def attachments(plan) -> dict[str, tuple]:
@@ -190,9 +202,17 @@ def canonical_ranks(G: nx.MultiGraph) -> dict:
     conductors = list(ends)
     edge_colour = dict(zip(conductors, _ranked([ends[k][2] for k in conductors])))
     colour = _refined(nodes, adj, colour, edge_colour)
-    keyed = [((0, colour[n]), _name(n)) for n in nodes]
+    keyed = [((0, colour[n], _place_key(G.nodes[n])), _name(n)) for n in nodes]
     keyed += [
-        ((1, edge_colour[k], tuple(sorted((colour[ends[k][0]], colour[ends[k][1]])))), _name(k))
+        (
+            (
+                1,
+                edge_colour[k],
+                tuple(sorted((colour[ends[k][0]], colour[ends[k][1]]))),
+                _plain(getattr(adj[ends[k][0]][ends[k][1]][k].get("conductor"), "route", ())),
+            ),
+            _name(k),
+        )
         for k in conductors
     ]
     names = nodes + conductors
