@@ -150,8 +150,8 @@ def test_an_unplanned_line_far_below_the_contributor_level_is_no_finding(tmp_pat
 
 def test_the_fit_is_the_weighted_least_squares_worked_by_hand(tmp_path):
     # the guitar head's two mechanisms have lines of their own (50 Hz; 100 Hz and up), so each
-    # scale is the relative-weighted least-squares solution of one column: a = Σ(p/m) / Σ(p/m)²
-    # over its lines
+    # scale is the weighted least-squares solution of one column: a = Σ(p·w)(m·w) / Σ(p·w)² over
+    # its lines, w = 1 / max(m, 1 % of the strongest measured line) — relative weights over 40 dB
     result = _result("guitar-head.gplan")
     hum = result.hum.channels["guitar"]
     rng = np.random.default_rng(7)
@@ -167,8 +167,11 @@ def test_the_fit_is_the_weighted_least_squares_worked_by_hand(tmp_path):
     rows = [
         r for r in ch.rows if r.above_noise and r.plan_frequency_hz in planned and r.harmonic > 1
     ]
-    ratio = np.array([planned[r.plan_frequency_hz] / r.measured for r in rows])
-    hand = ratio.sum() / (ratio**2).sum()
+    top = max(r.measured for r in ch.rows if r.above_noise)
+    w = np.array([1 / max(r.measured, r.noise, 0.01 * top) for r in rows])
+    p = np.array([planned[r.plan_frequency_hz] for r in rows])
+    m = np.array([r.measured for r in rows])
+    hand = ((p * w) * (m * w)).sum() / ((p * w) ** 2).sum()
     [k_gnd] = [s for s in ch.suspects if s.members == ("conductor k_gnd",)]
     assert k_gnd.scale == pytest.approx(hand, rel=0.02)
 
@@ -195,3 +198,21 @@ def test_the_measured_hum_is_judged_at_the_listener(tmp_path):
     hand = 102 + 10 * math.log10((row.measured * gain) ** 2 / 32 / 1e-3)
     assert lst.phones == pytest.approx(102) and row.spl_db == pytest.approx(hand, abs=0.01)
     assert ch.audible == any(r.spl_db > r.threshold_db for r in ch.rows if r.spl_db is not None)
+
+
+def test_a_recording_of_the_main_lines_only_still_matches_their_mechanism(tmp_path):
+    # an outside builder's recording held the plan's two main lines (100 and 200 Hz, the high
+    # tension's ripple fed to the stage) and none of its small ones (300 Hz and up, 40–150 dB
+    # down): every relative weight on the absent lines had scaled the mechanism to -110 dB and the
+    # two lines were "not in the plan". The recorded lines are the plan's; the absent ones are said
+    result = analyze(
+        load(str(ROOT / "tests" / "field" / "adapter-headphone-lounge" / "headamp.gplan"))
+    )
+    full = _spectrum(result.hum.channels["left"], {}, False)
+    main = {f: v for f, v in full.items() if f in (100.0, 200.0)}
+    assert len(main) == 2
+    ch = _record(tmp_path, result, "left", main).channels[0]
+    assert not [r for r in ch.rows if r.unexplained]
+    (supply,) = [s for s in ch.suspects if "left" in s.members[0]]
+    assert 0.5 < supply.scale < 1.2  # within a few dB of the plan, not scaled away
+    assert any("does not show" in line for line in ch.summary)

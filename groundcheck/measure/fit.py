@@ -1,24 +1,18 @@
 """Which of the plan's mechanisms the measured hum looks like: a non-negative least-squares fit of
-the measured
-harmonic levels over the contributors' predicted spectra.
+the measured harmonic levels over the contributors' predicted spectra.
 
 The fit is on magnitudes: a recording's lines carry no phase relation to the plan's, so each
-mechanism's planned
-spectrum (its contributors' levels added in phase, the plan's own worst case) is scaled by a
-factor of its own,
-a ≥ 0, and Σ a_g·|P_g(f_k)| is fitted to the measured levels, each harmonic weighted by the
-inverse of its
-measured level (or of the noise, where the line is below it): a relative error, so a line 40 dB
-down counts as
-much as the fundamental.  A line below the noise is fitted to zero, so a mechanism whose planned
-lines the
-recording does not show is scaled down.
+mechanism's planned spectrum (its contributors' levels added in phase, the plan's own worst case)
+is scaled by a factor of its own, a ≥ 0, and Σ a_g·|P_g(f_k)| is fitted to the measured levels,
+each harmonic weighted by the inverse of its measured level (or of the noise, where the line is
+below it), down to 40 dB below the strongest measured line: a relative error, so a line 40 dB down
+counts as much as the fundamental, and a line further down, or one the plan predicts and the
+recording lacks, counts as one 40 dB down. A line below the noise is fitted to zero, so a mechanism
+whose planned lines the recording does not show is scaled down.
 
 Contributors whose spectra have the same shape (the conductors one source's current runs through,
-mostly
-resistive, give proportional spectra) cannot be told apart by any recording: they are one
-mechanism, its
-conductors listed largest planned first.
+mostly resistive, give proportional spectra) cannot be told apart by any recording: they are one
+mechanism, its conductors listed largest planned first.
 """
 
 from __future__ import annotations
@@ -34,6 +28,8 @@ __all__ = ["Mechanism", "mechanisms", "fit", "SAME_SHAPE", "RELEVANT"]
 SAME_SHAPE = 0.999
 #: contributors below this fraction of the channel's largest one (−80 dB) are left out of the fit
 RELEVANT = 1e-4
+#: the range of the relative weights, below the strongest measured line (40 dB)
+RANGE = 1e-2
 
 
 class Mechanism:
@@ -111,7 +107,11 @@ def fit(
 
     if not mechs:
         return [], np.zeros_like(measured)
-    weight = 1.0 / np.maximum(np.maximum(measured, noise), 1e-300)
+    # relative weights over the 40 dB below the strongest measured line; a line further down (or
+    # absent where the plan predicts one) counts as one 40 dB down, so that a few small planned
+    # lines the recording lacks cannot scale away a mechanism that matches its main lines
+    floor = RANGE * float(measured.max(initial=0.0))
+    weight = 1.0 / np.maximum(np.maximum(np.maximum(measured, noise), floor), 1e-300)
     A = np.column_stack([m.spectrum for m in mechs])
     try:
         scale, _ = nnls(A * weight[:, None], measured * weight, maxiter=50 * len(mechs) + 100)
