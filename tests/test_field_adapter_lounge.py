@@ -14,7 +14,7 @@ from pathlib import Path
 
 import pytest
 
-from groundcheck import load
+from groundcheck import load, load_text
 from groundcheck.advice.candidates import candidates
 from groundcheck.advice.evaluation import evaluate
 from groundcheck.advice.returns import lost_wired_returns
@@ -106,3 +106,20 @@ def test_the_heater_return_moves_off_the_cathode_never_the_cathode_off_the_star(
     assert not [c for c in cands if c.element == "w_kl" and not c.refused]
     hung = [c for c in cands if c.action == "join" and "h_res straight to kl" in c.title]
     assert hung and all(c.refused for c in hung)
+
+
+def test_a_supply_cut_off_from_the_star_is_told_to_be_wired_back():
+    # his variant: the only wire from the supply's tag to the star removed — the supplies' returns
+    # float as a network of their own; the fix wires them back (a class II box has no protective
+    # earth stud to bond near), and a floating star in that box is bonded "at one place"
+    text = BOX.read_text()
+    (cut,) = [line for line in text.splitlines() if line.startswith("wire w_psu:")]
+    r = analyze(load_text(text.replace(cut + "\n", ""), "v4.gplan"), QUICK)
+    (f,) = [f for f in r.findings if f.code == "GC106"]
+    assert f.fix.startswith("wire the supply's return to star (h_res") and "ht_res" in f.fix
+    floating = text.replace("bolt star_bond: star to tray\n", "").replace(
+        "bolt hp_nut: hp_sleeve to tray\n", ""
+    )
+    r = analyze(load_text(floating, "v2.gplan"), QUICK)
+    fixes = [f.fix for f in r.findings if f.code == "GC106"]
+    assert fixes and all("protective-earth stud" not in x for x in fixes)

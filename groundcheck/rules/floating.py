@@ -20,7 +20,22 @@ def floating_fix(ctx: AuditContext, comp) -> str:
     References:
         the rule catalogue (rules/catalogue.py), GC106.
     """
-    fix = "bond the signal star to the chassis at one place near the protective-earth stud"
+    m = ctx.plan.mains
+    earthed = m is not None and m.equipment_class == "I"
+    # a box with no protective earth (class II, or fed by a low-voltage adapter) has no stud to
+    # bond near: its case is tied to the signal ground (the high tension's return) at one place
+    fix = "bond the signal star to the chassis at one place" + (
+        " near the protective-earth stud" if earthed or m is None else ""
+    )
+    stars = [p.name for p in ctx.plan.points if p.kind == "star"]
+    supplies = [r for r in ctx.plan.rectifiers if r.a in comp]
+    if supplies and stars and not set(stars) & set(comp):
+        # a supply's return cut off from the circuit it feeds: its wire to the star is missing
+        ends = ", ".join(f"{r.a} ({r.name}'s return)" for r in supplies[:3])
+        fix = (
+            f"wire the supply's return to {stars[0]} ({ends}): its current has no way back to "
+            "the circuit it feeds"
+        )
     loose = sorted(p.name for p in ctx.plan.points if p.name in comp and p.on is not None)
     if not loose:
         return fix
