@@ -123,3 +123,20 @@ def test_a_supply_cut_off_from_the_star_is_told_to_be_wired_back():
     r = analyze(load_text(floating, "v2.gplan"), QUICK)
     fixes = [f.fix for f in r.findings if f.code == "GC106"]
     assert fixes and all("protective-earth stud" not in x for x in fixes)
+
+
+def test_a_class_i_box_behind_the_adapter_keeps_its_own_dangers(tmp_path):
+    # his variant: the box written class I (no earth in its cord) behind the isolating adapter;
+    # its case reaches the main earthing terminal through the line-out braids and the power
+    # amplifier, so the separation is lost (GC218's warning, as the docs say), and its own plan's
+    # dangers (no protective earth reaches its metal) are the room's too
+    text = BOX.read_text().replace("16 V 50 Hz, class II,", "16 V 50 Hz,")
+    assert text != BOX.read_text()
+    (tmp_path / "headamp.gplan").write_text(text)
+    for name in ("lounge.gplan", "poweramp.gplan"):
+        (tmp_path / name).write_text((FIELD / name).read_text())
+    r = analyze(load(tmp_path / "lounge.gplan"), QUICK)
+    (lost,) = [f for f in r.findings if f.code == "GC218"]
+    assert lost.severity == "warning" and lost.elements[0] == "pre"
+    own = {f.code for f in r.findings if f.message.startswith("pre's own wiring")}
+    assert {"GC201", "GC205"} <= own

@@ -81,10 +81,10 @@ def placed_supply_findings(
     graph = building_graph(plan)
     for name, own in plan.device_plans:
         m = own.mains
-        if m is not None and m.equipment_class == "II":
-            out += _class_ii_own(name, own, alone, analyze, quick)
+        if m is not None and (m.equipment_class == "II" or plugged.get(name) in behind):
+            out += _own_findings(name, own, alone, analyze, quick)
             continue
-        if m is None or plugged.get(name) in behind:
+        if m is None:
             continue
         placed, route = as_placed(plan, graph, name, m)
         if id(own) not in alone:
@@ -130,10 +130,12 @@ def _reported(there, alone) -> list[tuple[Finding, bool]]:
     ]
 
 
-def _class_ii_own(name: str, own: Plan, alone: dict, analyze, quick: Options) -> list[Finding]:
-    """A class II device has no protective earth to check on the installation's supply; its own
-    plan's protective-earth dangers, faults and warnings are still the installation's (a box on a
-    low-voltage adapter that makes its high tension inside)."""
+def _own_findings(name: str, own: Plan, alone: dict, analyze, quick: Options) -> list[Finding]:
+    """A class II device, or one behind a transformer (supplied by its secondary, not by the
+    building), is not checked on the installation's supply; its own plan's protective-earth
+    dangers, faults and warnings are still the installation's (a box on a low-voltage adapter that
+    makes its high tension inside; a class I box with no earth in its cord behind an isolating
+    transformer)."""
     if id(own) not in alone:
         alone[id(own)] = _analysed(analyze, own, quick)
     return [_own(f, name) for f, _ in _reported(alone[id(own)].findings, [])]

@@ -192,10 +192,23 @@ def rule_isolating_secondary(ctx: AuditContext) -> list[Finding]:
     order, labels, _ = ctx.parts
     label = dict(zip(order, labels.tolist()))
     mets = {label.get(p.name) for p in plan.points if p.kind == "earthing-terminal"}
+    metal: dict = {}
+    for m in plan.metals:
+        dev = plan.index.device_of(m.name)
+        if dev is not None:
+            metal.setdefault(dev, []).append(m.name)
     out = []
     for t in isolating:
         devs = [d for d in _behind(plan, t, feeds) if d.equipment_class == "I"]
-        earthed = [d for d in devs if label.get(f"{d.name}.{PE_POINT}", -1) in mets]
+        # its protective terminal or any of its metal (a cord with no earth in it: the chassis
+        # reached through the links' shields all the same)
+        earthed = [
+            d
+            for d in devs
+            if any(
+                label.get(n, -1) in mets for n in (f"{d.name}.{PE_POINT}", *metal.get(d.name, ()))
+            )
+        ]
         out += [_separation_lost(d, t, len(devs)) for d in earthed]
         if len(devs) >= 2:
             out.append(_shared(t, devs))
