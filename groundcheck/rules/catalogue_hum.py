@@ -20,9 +20,11 @@ HUM_ENTRIES: list[Rule] = [
         HUM,
         "warning",
         "A conductor whose shared impedance puts hum or buzz above the set level at a "
-        "channel's output.",
+        "channel's output (a note when the channel stays 20 dB or more below hearing at the "
+        "listener's seat).",
         "Common-impedance coupling: a supply current's drop appears across a sensitive pair.",
         "Move the supply return off the conductor named, as the fix says.",
+        variants=("warning", "note"),
         identity="pair",
     ),
     entry(
@@ -31,11 +33,13 @@ HUM_ENTRIES: list[Rule] = [
         HUM,
         "warning",
         "A ground loop in which a stray magnetic field induces a hum voltage above the set "
-        "level at a channel's output.",
+        "level at a channel's output (a note when the channel stays 20 dB or more below "
+        "hearing at the listener's seat).",
         "Faraday's law: EMF = 2πfBA drives current round the loop; its drop across a "
         "sensitive pair is amplified.",
         "Open the loop, or make it smaller and move it away from the transformer; an AC heater "
         "pair run open is twisted along its whole run.",
+        variants=("warning", "note"),
         identity="pair",
         actions=("twist",),
     ),

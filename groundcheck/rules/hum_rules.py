@@ -13,7 +13,11 @@ from ..core.units import dbv
 from ..model.kinds import PROTECTIVE, SIGNAL, carries_load, joins_devices
 from ..physics.heater_field import source_heater
 from ..physics.sources import LEAKAGE_GROUP
-from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
+from ..physics.humsettings import (
+    SIGNAL_FREQUENCY_TEXT,
+    at_signal_frequency,
+    far_below_hearing,
+)
 from .catalogue import Finding
 from .context import AuditContext
 from .electrical import Solved
@@ -66,6 +70,16 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
     channel's hum is above the contributor level and at least a tenth of the total."""
     opts = s.options
     conductors = s.plan.index.conductors
+    # a channel 20 dB or more below hearing at the listener's seat (the project's margin for an
+    # estimate): its contributors are said as notes, the margin with them
+    quiet = far_below_hearing(s.hum, ch)
+    sev = "note" if quiet else "warning"
+    heard = (
+        f"; the channel stays {-s.hum.channels[ch].margin_db:.1f} dB below hearing at the "
+        "listener's seat"
+        if quiet
+        else ""
+    )
     out = []
     for c in contributors:
         # (to rounding: a share of exactly a tenth, split in two pieces, still meets it)
@@ -79,10 +93,10 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
             out.append(
                 Finding(
                     "GC301",
-                    "warning",
+                    sev,
                     f"{what} {'puts' if len(run) == 1 else 'put'} {c['dbv']:.1f} dBV of "
                     f"{c['source']} hum and buzz at the {ch} output ({c['share_pct']:.0f} % "
-                    "of the channel's total)",
+                    f"of the channel's total){heard}",
                     cond.location if cond else loc,
                     (run[0], c["source"], *run[1:]),
                     {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
@@ -93,9 +107,9 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
             out.append(
                 Finding(
                     "GC302",
-                    "warning",
+                    sev,
                     f"{c['element']} picks up {c['dbv']:.1f} dBV from {c['source']} at the "
-                    f"{ch} output ({c['share_pct']:.0f} % of the channel's total)",
+                    f"{ch} output ({c['share_pct']:.0f} % of the channel's total){heard}",
                     loc,
                     (c["element"], c["source"]),
                     {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
