@@ -140,3 +140,20 @@ def test_a_class_i_box_behind_the_adapter_keeps_its_own_dangers(tmp_path):
     assert lost.severity == "warning" and lost.elements[0] == "pre"
     own = {f.code for f in r.findings if f.message.startswith("pre's own wiring")}
     assert {"GC201", "GC205"} <= own
+
+
+def test_contributions_far_below_hearing_are_notes():
+    # his review: eleven GC301/GC302 warnings for contributions in channels 20–47 dB below hearing
+    r = analyze(load(ROOM))
+    quiet = {
+        ch
+        for ch, h in r.hum.channels.items()
+        if h.audible is False and h.margin_db is not None and h.margin_db <= -20
+    }
+    found = [f for f in r.findings if f.code in ("GC301", "GC302")]
+    assert quiet and found
+    for f in found:
+        if f.figures["channel"] in quiet:
+            assert f.severity == "note" and "dB below hearing" in f.message
+        else:
+            assert f.severity == "warning"
