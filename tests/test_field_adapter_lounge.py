@@ -157,3 +157,10 @@ def test_contributions_far_below_hearing_are_notes():
             assert f.severity == "note" and "dB below hearing" in f.message
         else:
             assert f.severity == "warning"
+
+
+def test_audible_supply_ripple_is_answered_by_filtering_it():
+    # his review: GC303's fix named the stage ("left (ht, 100 %)"), not a remedy
+    r = analyze(load(BOX))
+    (left,) = [f for f in r.findings if f.code == "GC303" and f.elements[0] == "left"]
+    assert "filter ht further" in left.fix and "regulate it" in left.fix

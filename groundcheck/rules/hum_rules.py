@@ -308,6 +308,11 @@ def _audible(ch: str, h, loc) -> Finding:
     top: list[str] = []
     for c in h.contributors:
         label = f"{c['element']} ({c['source']}, {c['share_pct']:.0f} %)"
+        if c["kind"] == "supply":  # a stage fed from a supply: its ripple, not a conductor
+            label = (
+                f"the ripple of {c['source']} fed to stage {c['element']} ({c['share_pct']:.0f} "
+                f"%): filter {c['source']} further (another RC or choke section) or regulate it"
+            )
         if c["element"] not in [t.split(" (")[0] for t in top]:
             top.append(label)
         if len(top) == 3:
