@@ -62,13 +62,19 @@ UNWIRED = {"GC106", "GC109", "GC114", "GC401"}
 #: folders of the corpus whose advice is too slow for the suite (each plan's whole candidate set
 #: takes 30–46 s on a 2-core machine); their own tests check what their verdict asks of the
 #: analysis and the rules' fix lines, without the advisor
-NOT_SWEPT = {"lounge-line-preamp", "flat-hifi-lift", "adapter-headphone-lounge"}
+NOT_SWEPT = {
+    "lounge-line-preamp",
+    "flat-hifi-lift",
+    "adapter-headphone-lounge",
+    "live-chassis-radio",
+}
 # (the rooms of monoblocks-tt and rehearsal-room-120v are left out of PLANS for the same reason,
 # 20-25 s each: their devices' plans are swept, and tests/test_field_monoblocks.py and
 # tests/test_field_rehearsal.py check what their advice rests on; flat-hifi-lift's amplifier takes
 # 8 s and its flat 20 s: tests/test_field_flat_hifi.py evaluates the decisive candidates alone;
 # adapter-headphone-lounge's box takes 3 s and its lounge 9 s: tests/test_field_adapter_lounge.py
-# does the same)
+# does the same; live-chassis-radio's verdict rests on a word the language gained after it was
+# written: tests/test_field_live_chassis.py reads it as written and with that word)
 
 
 def test_the_list_is_the_whole_corpus():

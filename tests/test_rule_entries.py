@@ -121,6 +121,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC218": {"danger", "warning", "note"},
         "GC221": {"note", "danger"},
         "GC223": {"fault", "danger"},
+        "GC230": {"danger", "warning"},
         "GC301": {"warning", "note"},
         "GC302": {"warning", "note"},
         "GC306": {"fault", "note"},

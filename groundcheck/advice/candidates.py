@@ -25,6 +25,7 @@ from .installation_changes import earthed_outlets, installation_candidates, shie
 from .loop_changes import loop_candidates, second_bond, terminate_shield
 from .ht_bond import ht_return_bond
 from .protective_changes import bonding_wire, own_stud
+from .returns import refuse
 from .thickening import thicker
 from .routing_changes import (
     carried_actions,
@@ -107,4 +108,41 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     _finding_candidates(ctx, add)
     for action, generate in AFTER_FINDINGS.items():
         generate(ctx, answer(result, action), add)
-    return out
+    return _on_live_metal(ctx, result, out)
+
+
+#: the live-chassis rule's code, read from the catalogue by its name (no code spelled here)
+_LIVE = next(code for code, r in RULES.items() if r.name == "live-chassis")
+
+
+def _on_live_metal(ctx: ChangeContext, result: Result, out: list[Candidate]) -> list[Candidate]:
+    """On a set whose chassis is on a pole of the mains, a change that insulates or lifts a socket
+    or a bond of that network is considered, never tried: the socket's sleeve stays joined to the
+    live chassis through its wiring, so the change makes nothing safe and would read as if it did
+    (common practice: such a set is made safe by an isolating transformer first)."""
+    import networkx as nx
+
+    poles = [f.elements[1] for f in result.findings if f.code == _LIVE]
+    if not poles:
+        return out
+    live: set = set()
+    for pole in poles:
+        if pole in ctx.G:
+            live |= nx.node_connected_component(ctx.G, pole)
+    why = (
+        f"the set's chassis is on a pole of the mains ({_LIVE}): every socket and bond of its "
+        "ground stays live through its wiring, so no change to them makes it safe — an isolating "
+        "transformer comes first"
+    )
+    return [
+        refuse(c, why)
+        if c.action in ("insulate", "lift-network", "remove", "terminate-at")
+        and (c.element in live or any(e in live for e in _ends(ctx, c.element)))
+        else c
+        for c in out
+    ]
+
+
+def _ends(ctx: ChangeContext, name: str) -> tuple:
+    c = ctx.cond.get(name)
+    return () if c is None else (c.a, c.b)

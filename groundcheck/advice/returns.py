@@ -275,7 +275,16 @@ def lost_circuit(before: Plan, after: Plan) -> list[str]:
     only through the box and the input jack's nut, say, once that nut is insulated."""
     metals = {m.name for m in before.metals}
     kinds = {p.name: p.kind for p in (*before.points, *after.points)}
-    hardware = {*SOCKET_KINDS, "stud", "tag", "lug", "inlet", "outlet", "earthing-terminal"}
+    hardware = {
+        *SOCKET_KINDS,
+        "stud",
+        "tag",
+        "lug",
+        "inlet",
+        "outlet",
+        "earthing-terminal",
+        "mains-pole",
+    }
 
     def circuit(comp) -> bool:  # a point of the circuit itself, not a socket or the case's studs
         return any(n not in metals and kinds.get(n, "junction") not in hardware for n in comp)

@@ -51,6 +51,7 @@ POINT_KINDS = (
     "lug",
     "outlet",
     "earthing-terminal",
+    "mains-pole",
 )
 FIELD_KINDS = ("transformer", "toroid", "choke", "mains-wiring", "motor", "other")
 FUSE_KINDS = {

@@ -106,6 +106,7 @@ ATTRIBUTE_WORDS = ROLES + (
     "in",
     "y-capacitor",
     "earthing-terminal",
+    "mains-pole",
     "outlet",
     "L-N-PE",
     "L-PE-N",

@@ -331,4 +331,22 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "memory; IEC 60065 15.2 (0.1 Ω, REFERENCE.md)",
         actions=("ht-bond",),
     ),
+    entry(
+        "GC230",
+        "live-chassis",
+        PROTECTIVE_EARTH,
+        "danger",
+        "Metal joined to a pole of the mains (a point of kind 'mains-pole': a transformerless "
+        "set's chassis on one conductor of its cord), whatever the protection class written; a "
+        "warning when the part is out of reach.",
+        "With an unpolarised plug the chassis is at line voltage in half the sockets: a hand on "
+        "it, or on an input socket or knob joined to it, carries a current that nothing "
+        "disconnects. Bonding it to the protective earth would short line to earth, or run the "
+        "neutral's current in the protective conductor.",
+        "Never bond it to the protective earth: give the set an isolating transformer of its own, "
+        "its chassis on the floating secondary, or keep it in its insulated cabinet with nothing "
+        "metal reachable and any signal input isolated; work for a qualified person.",
+        "common practice; IEC 60479-1 (effects of current through the body), from memory",
+        variants=("danger", "warning"),
+    ),
 ]

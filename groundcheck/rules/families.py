@@ -10,6 +10,7 @@ from . import (  # noqa: F401 - imported for their registrations
     hum_rules,
     installation,
     lift_fault,
+    live_chassis,
     protective,
     pe_current,
     pe_figures,

@@ -20,6 +20,7 @@ from ..model.kinds import (
 from ..model.records import PE_POINT
 from .catalogue import Finding
 from .context import AuditContext
+from .live_chassis import live_metals
 from .pe_fastener import pe_fastener as _pe_fastener
 from .registry import rule
 
@@ -42,15 +43,18 @@ def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
         return []
     route = ctx.route
     bonded = route.reached & ctx.metals
+    # metal on a pole of the mains (GC230) is never to be bonded to the protective earth: no
+    # finding here may ask for it
+    live = set(live_metals(ctx))
     out: list[Finding] = []
-    if not bonded:
+    if not bonded and not live:
         out.append(_pe_not_reaching(ctx))
     out.extend(_pe_fastener(ctx))
     out.extend(_pe_terminal_other_use(ctx))
     out.extend(_pe_unmarked(ctx))
     out.extend(_pe_sections(ctx))
     for m in plan.metals:
-        if m.touchable and not m.signal_only and m.name not in bonded:
+        if m.touchable and not m.signal_only and m.name not in bonded | live:
             out.append(
                 Finding(
                     "GC205",
@@ -81,7 +85,9 @@ def _pe_not_reaching(ctx: AuditContext) -> Finding:
             (PE_POINT,),
             {},
             "run a green-and-yellow protective conductor from the inlet's earth terminal straight "
-            "to a chassis stud of its own",
+            "to a chassis stud of its own — unless the chassis is joined to a pole of the mains "
+            "(a transformerless set): then never, and write that point as a 'mains-pole' (GC230 "
+            "says what the set needs)",
         )
     target = sorted(reach)[0]
     path = nx.shortest_path(G, PE_POINT, target)
