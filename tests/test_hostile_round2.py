@@ -393,7 +393,7 @@ def test_a_signal_stops_a_jobs_run_and_its_workers(tmp_path, how):
     deadline = time.monotonic() + 120
     while len(children()) < 2 and proc.poll() is None and time.monotonic() < deadline:
         time.sleep(0.1)
-    time.sleep(1.0)  # the workers busy and tasks queued behind them
+    time.sleep(0.5)  # the workers busy and tasks queued behind them
     workers = children()
     if proc.poll() is not None or len(workers) < 2:
         pytest.skip("the run ended before its workers started")
