@@ -105,6 +105,17 @@ def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
 def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
     """GC207: a conductor on the fault's path too thin to survive until the fault is cleared."""
     out = []
+    worst = max(
+        (p for p in safety.parts if p.i2t is not None), key=lambda p: p.i2t, default=None
+    )
+    # the fault ahead of the equipment's fuse is the breaker's: no fuse of its own shortens it
+    fix = (
+        "use a thicker protective conductor: the worst fault (at the inlet, ahead of the "
+        "equipment's fuse) is the breaker's to clear, which no faster fuse shortens"
+        if worst is not None and worst.device == "breaker" and plan.mains.fuse is not None
+        else "use a thicker protective conductor, or a faster or lower-rated fuse the "
+        "equipment allows"
+    )
     for row in safety.conductors:
         if not row.survives:
             c = plan_conductor(plan, row.conductor)
@@ -117,8 +128,7 @@ def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
                     c.location if c else plan.mains.location,
                     (row.conductor,),
                     row.as_dict(),
-                    "use a thicker protective conductor, or a faster or lower-rated fuse the "
-                    "equipment allows",
+                    fix,
                 )
             )
     return out
