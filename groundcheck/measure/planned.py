@@ -5,35 +5,12 @@ the limit."""
 
 from __future__ import annotations
 
-import numpy as np
-
 from ..model.kinds import is_fastening_kind
 from ..model.records import PE_POINT
+from ..physics.dc_paths import dc_resistance, element_nodes
 from ..rules.bench import MeasuredBond
 
 __all__ = ["planned_bonds"]
-
-
-def _nodes(circuit, name: str) -> tuple[int, ...]:
-    if name in circuit.point_node:
-        return (circuit.point_node[name],)
-    return tuple(circuit.nodes_of_metal(name))
-
-
-def _resistance(circuit, a: tuple[int, ...], b: tuple[int, ...]) -> float | None:
-    """The largest DC resistance between a node of a and a node of b (the worst spot a probe may
-    touch), None when
-    they are not joined."""
-    _, labels = circuit.components
-    pairs = [(i, j) for i in a for j in b if labels[i] == labels[j]]
-    if not pairs:
-        return None
-    J = np.zeros((len(circuit.nodes), len(pairs)), dtype=complex)
-    for k, (i, j) in enumerate(pairs):
-        J[i, k] += 1.0
-        J[j, k] -= 1.0
-    sol = circuit.at(0.0).solve(J, currents=False)
-    return max(float(abs(sol.V[i, k] - sol.V[j, k])) for k, (i, j) in enumerate(pairs))
 
 
 def _joints(plan, circuit, a: int, b: int) -> tuple[str, ...]:
@@ -98,8 +75,8 @@ def planned_bonds(result, measurements) -> tuple[MeasuredBond, ...]:
     )
     out = []
     for m in measurements:
-        na, nb = _nodes(circuit, m.a), _nodes(circuit, m.b)
-        planned = _resistance(circuit, na, nb) if na and nb else None
+        na, nb = element_nodes(circuit, m.a), element_nodes(circuit, m.b)
+        planned = dc_resistance(circuit, na, nb) if na and nb else None
         joints = _joints(plan, circuit, na[0], nb[0]) if planned is not None else ()
         protective = limit is not None and _protective(plan, result, m.a, m.b)
         out.append(

@@ -15,35 +15,29 @@ rms); the box is fed at extra-low voltage when its ``mains`` is 50 V or less.
 
 from __future__ import annotations
 
-import networkx as nx
-
-from ..physics.impedance import conductor_resistance
+from ..physics.dc_paths import dc_resistance, element_nodes
 from ..physics.safety import STANDARD_PE_LIMIT
 from .catalogue import Finding
-from .context import AuditContext
+from .electrical import Solved
 from .equipment import ELV_LIMIT
 from .registry import rule
 
 __all__ = ["rule_elv_fed_high_tension"]
 
-#: a joint of no resistance is kept in the network as this, Ω (a solve needs finite conductances)
-_SHORT = 1e-9
-
-
-@rule("GC229")
-def rule_elv_fed_high_tension(ctx: AuditContext) -> list[Finding]:
+@rule("GC229", needs="solve")
+def rule_elv_fed_high_tension(s: Solved) -> list[Finding]:
     """GC229: in a box fed at extra-low voltage, touchable metal not bonded within 0.1 Ω to the
     return of a supply above the extra-low-voltage limit.
 
     Parameters:
-        ctx: the audit context.
+        s: the solved network with its context (the plan's circuit: each part's worst spot).
     Returns:
         GC229 findings, one per touchable part (dangers, as GC206's over the same limit in class I
         equipment).
     References:
         the module's description (common practice; IEC 61140, from memory; IEC 60065 15.2).
     """
-    plan = ctx.plan
+    plan = s.plan
     m = plan.mains
     if m is None or m.voltage > ELV_LIMIT:
         return []
@@ -54,12 +48,13 @@ def rule_elv_fed_high_tension(ctx: AuditContext) -> list[Finding]:
     parts = [x for x in plan.metals if x.touchable and not x.signal_only]
     if not ht or not parts:
         return []
-    G = _resistive_graph(ctx)
     supply = ht[0]
     peak = supply.secondary * 2**0.5
+    ret = element_nodes(s.circuit, supply.a)
     out = []
     for part in parts:
-        r = _resistance(G, part.name, supply.a)
+        spots = element_nodes(s.circuit, part.name)
+        r = dc_resistance(s.circuit, spots, ret) if spots and ret else None
         if r is not None and r <= STANDARD_PE_LIMIT:
             continue
         where = (
@@ -86,27 +81,3 @@ def rule_elv_fed_high_tension(ctx: AuditContext) -> list[Finding]:
             )
         )
     return out
-
-
-def _resistive_graph(ctx: AuditContext) -> nx.Graph:
-    """The plan's conductors as a graph of resistances, parallel conductors combined."""
-    G = nx.Graph()
-    for c in ctx.plan.conductors:
-        if not c.connects:
-            continue
-        r = max(conductor_resistance(c, ctx.plan.ambient)[0], _SHORT)
-        if G.has_edge(c.a, c.b):
-            G[c.a][c.b]["r"] = 1.0 / (1.0 / G[c.a][c.b]["r"] + 1.0 / r)
-        elif c.a != c.b:
-            G.add_edge(c.a, c.b, r=r)
-    return G
-
-
-def _resistance(G: nx.Graph, a: str, b: str) -> float | None:
-    """The DC resistance between ``a`` and ``b``, Ω, or None when nothing joins them."""
-    if a not in G or b not in G or not nx.has_path(G, a, b):
-        return None
-    if a == b:
-        return 0.0
-    H = G.subgraph(nx.node_connected_component(G, a))
-    return float(nx.resistance_distance(H, a, b, weight="r", invert_weight=True))
