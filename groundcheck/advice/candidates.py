@@ -19,6 +19,7 @@ from __future__ import annotations
 
 from ..model.records import Plan
 from ..rules.catalogue import RULES
+from ..rules.live_chassis import live_network
 from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, device_note
 from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
@@ -120,15 +121,9 @@ def _on_live_metal(ctx: ChangeContext, result: Result, out: list[Candidate]) -> 
     or a bond of that network is considered, never tried: the socket's sleeve stays joined to the
     live chassis through its wiring, so the change makes nothing safe and would read as if it did
     (common practice: such a set is made safe by an isolating transformer first)."""
-    import networkx as nx
-
-    poles = [f.elements[1] for f in result.findings if f.code == _LIVE]
-    if not poles:
+    if not any(f.code == _LIVE for f in result.findings):
         return out
-    live: set = set()
-    for pole in poles:
-        if pole in ctx.G:
-            live |= nx.node_connected_component(ctx.G, pole)
+    live = set(live_network(ctx.plan, ctx.G))
     why = (
         f"the set's chassis is on a pole of the mains ({_LIVE}): every socket and bond of its "
         "ground stays live through its wiring, so no change to them makes it safe — an isolating "

@@ -23,12 +23,30 @@ from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
 
-__all__ = ["rule_live_chassis", "live_metals"]
+__all__ = ["rule_live_chassis", "live_metals", "live_network"]
+
+
+def live_network(plan, G) -> dict[str, str]:
+    """Every node joined, by conductors that connect, to a point of kind ``mains-pole``: node ->
+    the pole (the first by name).
+
+    Parameters:
+        plan: the plan.
+        G: its ground graph.
+    Returns:
+        the live nodes (points and metal parts).
+    References:
+        none (connectivity).
+    """
+    out: dict[str, str] = {}
+    for pole in sorted(p.name for p in plan.points if p.kind == "mains-pole" and p.name in G):
+        if pole not in out:
+            out.update(dict.fromkeys(nx.node_connected_component(G, pole), pole))
+    return out
 
 
 def live_metals(ctx: AuditContext) -> dict[str, str]:
-    """Each metal part joined, by conductors that connect, to a point of kind ``mains-pole``: part
-    -> the pole point (the first by name).
+    """Each metal part on a pole of the mains (:func:`live_network`): part -> the pole.
 
     Parameters:
         ctx: the audit context.
@@ -37,13 +55,7 @@ def live_metals(ctx: AuditContext) -> dict[str, str]:
     References:
         none (connectivity).
     """
-    poles = sorted(p.name for p in ctx.plan.points if p.kind == "mains-pole" and p.name in ctx.G)
-    out: dict[str, str] = {}
-    for pole in poles:
-        for n in nx.node_connected_component(ctx.G, pole):
-            if n in ctx.metals:
-                out.setdefault(n, pole)
-    return out
+    return {n: pole for n, pole in live_network(ctx.plan, ctx.G).items() if n in ctx.metals}
 
 
 @rule("GC230")
@@ -57,16 +69,13 @@ def rule_live_chassis(ctx: AuditContext) -> list[Finding]:
     References:
         the module's description (common practice; IEC 60479-1, from memory).
     """
-    live = live_metals(ctx)
+    net = live_network(ctx.plan, ctx.G)
+    live = {n: pole for n, pole in net.items() if n in ctx.metals}
     if not live:
         return []
     # the sockets on that network are live too: a plug's sleeve is in reach whatever the cabinet
     sockets = sorted(
-        p.name
-        for p in ctx.plan.points
-        if p.kind in ("sleeve", "jack")
-        and p.name in ctx.G
-        and any(n in live for n in nx.node_connected_component(ctx.G, p.name))
+        p.name for p in ctx.plan.points if p.kind in ("sleeve", "jack") and p.name in net
     )
     also = (
         ""
