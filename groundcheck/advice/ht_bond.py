@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 
 from .changes import ROUTE_ALLOWANCE, Candidate, ChangeContext
-from .protective_changes import _at_end, _free_name, _stud_position, device_frame, fastened_to
+from .protective_changes import at_end, free_name, stud_position, device_frame, fastened_to
 
 __all__ = ["ht_return_bond"]
 
@@ -39,10 +39,10 @@ def ht_return_bond(ctx: ChangeContext, f) -> Candidate | None:
     st = ctx.statement(next(c for c in ctx.plan.conductors if c.a == rect.a or c.b == rect.a))
     if target is None or st is None or not ctx.same_file(st, target.name):
         return None
-    here = _stud_position(ctx, part, target.pos)
+    here = stud_position(ctx, part, target.pos)
     if here is None:
         return None
-    stud = _free_name(ctx, (f"{part}_ht_bond", f"{part}_ht_bond2", f"{part}_ht_bond3"))
+    stud = free_name(ctx, (f"{part}_ht_bond", f"{part}_ht_bond2", f"{part}_ht_bond3"))
     length = max(math.dist(here, target.pos) * (1 + ROUTE_ALLOWANCE), 0.1) * 1e3
     xy = [round(v * 1e3) for v in device_frame(ctx, part, here)]
     n = {x: ctx.file_name(x, st) for x in (stud, part, target.name)}
@@ -57,7 +57,7 @@ def ht_return_bond(ctx: ChangeContext, f) -> Candidate | None:
         f"a new stud {stud} on {part}, a toothed washer on bare metal), so that a chafed "
         f"high-tension lead shorts {supply} instead of making {part} live",
         f.code,
-        (_at_end(ctx, st, extra),),
+        (at_end(ctx, st, extra),),
         wire=length / 1e3,
         action="ht-bond",
         element=part,

@@ -22,7 +22,7 @@ from .changes import (
 )
 from .edits import Edit
 
-__all__ = ["own_stud", "bonding_wire", "fastened_to"]
+__all__ = ["own_stud", "bonding_wire", "fastened_to", "stud_position", "free_name", "at_end"]
 
 
 #: how far a new stud stays inside its part's edge, m: the radius of an M4 or M5 washer and a
@@ -30,7 +30,7 @@ __all__ = ["own_stud", "bonding_wire", "fastened_to"]
 EDGE_CLEARANCE = 6e-3
 
 
-def _stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float, float] | None:
+def stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float, float] | None:
     """A place for a new stud on ``part`` near ``near``: on the part, at least STUD_CLEARANCE
     outside every other part's outline, outside every field source's footprint, and at least
     STUD_CLEARANCE from the part's other points and from the places in ``avoid``."""
@@ -115,7 +115,7 @@ def _bonding_home(ctx: ChangeContext, landing, part: str) -> str | None:
     return max(homes, key=lambda n: (area(n), n == names[1]))
 
 
-def _free_name(ctx: ChangeContext, names) -> str:
+def free_name(ctx: ChangeContext, names) -> str:
     """The first of ``names`` that names no point of the plan yet."""
     return next(n for n in names if ctx.plan.point(n) is None)
 
@@ -171,12 +171,12 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
         return None
     part = _main_part(ctx, old_pt)
     ends = ctx.src.ends(st)
-    where = _stud_position(ctx, part, old_pt.pos) if part is not None else None
+    where = stud_position(ctx, part, old_pt.pos) if part is not None else None
     if where is None or ends is None:
         return None
     # inside a block or a device's own plan the statement names its points without the prefix
     prefix = pe.name[: len(pe.name) - len(st.label or "")] if st.label else ""
-    new_pt = _free_name(ctx, tuple(prefix + n for n in ("pe_stud", "pe_stud2", "pe_stud3")))
+    new_pt = free_name(ctx, tuple(prefix + n for n in ("pe_stud", "pe_stud2", "pe_stud3")))
 
     def local(name: str) -> str:
         return local_name(pe.name, st.label or "", name)
@@ -277,15 +277,15 @@ def _bond_ends(ctx: ChangeContext, home: str, landing, part: str):
     ``part`` nearest it, with their names; None when either finds no room."""
     metal = ctx.plan.metal(part)
     # not where the protective earth's own new stud would go (GC202's fix): both may be made
-    own = _stud_position(ctx, home, landing.pos)
-    start = _stud_position(ctx, home, landing.pos, avoid=(own,))
+    own = stud_position(ctx, home, landing.pos)
+    start = stud_position(ctx, home, landing.pos, avoid=(own,))
     (x0, y0), (w, h) = metal.origin, metal.size
     near = (min(max(landing.pos[0], x0), x0 + w), min(max(landing.pos[1], y0), y0 + h))
-    end = _stud_position(ctx, part, near)
+    end = stud_position(ctx, part, near)
     if start is None or end is None:
         return None
-    a = _free_name(ctx, (f"{home}_bond", f"{home}_bond2", f"{home}_bond3"))
-    b = _free_name(ctx, (f"{part}_pe", f"{part}_pe2", f"{part}_pe3"))
+    a = free_name(ctx, (f"{home}_bond", f"{home}_bond2", f"{home}_bond3"))
+    b = free_name(ctx, (f"{part}_pe", f"{part}_pe2", f"{part}_pe3"))
     return start, end, a, b
 
 
@@ -340,7 +340,7 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
         f"{a} on {home} beside {landing.name} to a new stud {b} on {part}; bare metal under "
         "toothed washers)",
         f.code,
-        (_at_end(ctx, st, extra),),
+        (at_end(ctx, st, extra),),
         touches_protective=False,
         wire=length / 1e3,
         action="bond",
@@ -348,7 +348,7 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     )
 
 
-def _at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
+def at_end(ctx: ChangeContext, st, extra: tuple[str, ...]) -> Edit:
     """New statements at the end of the file ``st`` is in (top level), so that they never share
     lines with another change's edit (the combined set keeps both)."""
     lines = ctx.src.lines_of(st.loc.file)
