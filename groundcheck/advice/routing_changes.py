@@ -160,7 +160,7 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
             ):
                 ways.append((end, other, d, far))
     hops = _from_most_sensitive(ctx)
-    stage_ends = {n for st in ctx.plan.stages for n in (st.a, st.b)}
+    stage_ends = ctx.plan.index.stage_ends
     landing = [_landing(ctx, row, w[2], hops) for w in ways]
     best = max((x[0] for x in landing if x[0] is not None), default=None)
     for (end, other, d, far), (near, at) in zip(ways, landing):

@@ -89,6 +89,12 @@ class PlanIndex:
         return frozenset(c.name for c in self.plan.currents if c.role == LEAKAGE)
 
     @cached_property
+    def stage_ends(self) -> frozenset:
+        """The points every stage reads between (its two ends): a stage's reference, never a
+        supply's return to hang on."""
+        return frozenset(n for st in self.plan.stages for n in (st.a, st.b))
+
+    @cached_property
     def fields(self) -> dict:
         """Field source name -> field source."""
         return {f.name: f for f in self.plan.fields}

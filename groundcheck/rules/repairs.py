@@ -129,7 +129,7 @@ def supply_meetings(ctx) -> list[tuple]:
     if not stars:
         return []
     H = nx.Graph((u, v) for u, v in ctx.G.edges() if not {u, v} & (stars | ctx.metals))
-    stage_ends = {n for st in ctx.plan.stages for n in (st.a, st.b)}
+    stage_ends = ctx.plan.index.stage_ends
     rank = canonical_ranks(ctx.G)
     out = []
     for r in ctx.plan.rectifiers:
