@@ -341,9 +341,7 @@ def _channel_tie(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | 
 def _second_bond(ctx: AuditContext, candidates: list[Conductor]) -> Conductor | None:
     """A second bond of the signal ground: a signal point fastened to the metal (an uninsulated
     jack, say) is the bond to remove; otherwise the crossing farthest from the protective earth."""
-    ends = set(ctx.plan.index.stage_ends) | {
-        x for r in ctx.plan.currents for x in (r.a, r.b)
-    }
+    ends = set(ctx.plan.index.stage_ends) | {x for r in ctx.plan.currents for x in (r.a, r.b)}
     # a socket, jack, pot or terminal fastened to the metal too: insulating it keeps its return
     ends |= {p.name for p in ctx.plan.points if p.kind in SOCKET_KINDS}
     bolt = next(
