@@ -747,3 +747,22 @@ def test_a_class_ii_boxs_own_dangers_are_the_installations(tmp_path):
     found = [f for f in r.findings if f.code == "GC229"]
     assert {f.elements[0] for f in found} == {"pre.tray", "pre.lid"}
     assert all(f.severity == "danger" and "pre's own wiring" in f.message for f in found)
+
+
+def test_a_lid_nobody_called_internal_is_touchable_in_a_box_that_makes_high_tension():
+    # the safe default (docs/language.md): a part nobody wrote as internal is checked as one a
+    # hand can reach — class I, and a box on a low-voltage adapter that makes its high tension
+    # inside; without it, a lid written with neither word had no GC229 at all. 'signal-only' on
+    # it exempts it, and GC222 says so in every output
+    unwritten = ELV_BOX.replace("150 mm, at 0,0, touchable", "150 mm, at 0,0")
+    assert unwritten != ELV_BOX
+    assert _gc229(unwritten)["lid"][0] == "danger"
+    lid = "metal lid: aluminium 1.5 mm, 200 x 150 mm, at 0,0, touchable"
+    exempt = ELV_BOX.replace(lid, lid + ", signal-only")
+    assert exempt != ELV_BOX
+    found = analyze(plan(exempt, header=False)).findings
+    assert "lid" not in {f.elements[0] for f in found if f.code == "GC229"}
+    assert [f.elements for f in found if f.code == "GC222"] == [("lid",)]
+    # a box with no high tension inside keeps the old default (internal, no finding)
+    low = unwritten.replace("secondary 150 V", "secondary 24 V")
+    assert _gc229(low) == {}

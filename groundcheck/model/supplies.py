@@ -7,6 +7,32 @@ from dataclasses import dataclass, field, replace
 
 from ..core.errors import Location
 
+#: the extra-low-voltage limit, V rms: a supply whose windings stay at or below it needs no
+#: protective bond for its outputs (IEC 61140 and IEC 60364-4-41 414, ELV 50 V AC, from memory)
+ELV_LIMIT = 50.0
+
+
+def elv_fed_high_tension(mains, rectifiers) -> bool:
+    """Whether equipment fed at extra-low voltage (its ``mains`` of 50 V or less: a low-voltage
+    adapter's) makes a supply above that limit inside (a rectifier whose winding is above it): its
+    metal is then held to that supply's return (GC229), and a part nobody wrote as internal is
+    touchable.
+
+    Parameters:
+        mains: the plan's mains record (None: none).
+        rectifiers: its rectifier records.
+    Returns:
+        True for such equipment.
+    References:
+        IEC 61140 (extra-low voltage, from memory).
+    """
+    return (
+        mains is not None
+        and mains.voltage <= ELV_LIMIT
+        and any((r.secondary or 0.0) > ELV_LIMIT for r in rectifiers)
+    )
+
+
 __all__ = [
     "Mains",
     "Supply",

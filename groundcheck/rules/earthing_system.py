@@ -11,6 +11,7 @@ from ..physics.fault_loop import external_loop
 from ..physics.safety import TOUCH_LIMIT
 from ..model.installation import transformer_feeds
 from ..model.records import Plan
+from ..model.supplies import elv_fed_high_tension
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -209,7 +210,9 @@ def rule_signal_only_metal(ctx: AuditContext) -> list[Finding]:
         bonding), from memory.
     """
     m = ctx.plan.mains
-    if m is None or m.equipment_class != "I":
+    # held to bonding: class I equipment, and a box on a low-voltage adapter that makes its high
+    # tension inside (GC229)
+    if m is None or not (m.equipment_class == "I" or elv_fed_high_tension(m, ctx.plan.rectifiers)):
         return []
     return [
         Finding(

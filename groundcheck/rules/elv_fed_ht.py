@@ -15,6 +15,7 @@ rms); the box is fed at extra-low voltage when its ``mains`` is 50 V or less.
 
 from __future__ import annotations
 
+from ..model.supplies import elv_fed_high_tension
 from ..physics.dc_paths import dc_resistance, element_nodes
 from ..physics.safety import STANDARD_PE_LIMIT
 from .catalogue import Finding
@@ -23,6 +24,7 @@ from .equipment import ELV_LIMIT
 from .registry import rule
 
 __all__ = ["rule_elv_fed_high_tension"]
+
 
 @rule("GC229", needs="solve")
 def rule_elv_fed_high_tension(s: Solved) -> list[Finding]:
@@ -39,7 +41,7 @@ def rule_elv_fed_high_tension(s: Solved) -> list[Finding]:
     """
     plan = s.plan
     m = plan.mains
-    if m is None or m.voltage > ELV_LIMIT:
+    if not elv_fed_high_tension(m, plan.rectifiers):
         return []
     ht = sorted(
         (r for r in plan.rectifiers if r.secondary is not None and r.secondary > ELV_LIMIT),

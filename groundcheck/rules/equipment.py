@@ -11,14 +11,12 @@ links (common practice; IEC 61140's single fault, from memory)."""
 from __future__ import annotations
 
 from ..model.kinds import joins_devices
+from ..model.supplies import ELV_LIMIT
 from ..network.graph import part_labels
 from .context import AuditContext
 
 __all__ = ["equipment_of", "signal_link", "ELV_LIMIT"]
 
-#: the extra-low-voltage limit, V rms: a supply whose windings stay at or below it needs no
-#: protective bond for its outputs (IEC 61140 and IEC 60364-4-41 414, ELV 50 V AC, from memory)
-ELV_LIMIT = 50.0
 
 
 def signal_link(c) -> bool:
