@@ -63,6 +63,13 @@ def test_writing_the_live_set_down_as_class_ii_hides_nothing():
     class_ii = text.replace(mains, mains + ", class II")
     r = analyze(load_text(class_ii, str(LIVE)), QUICK)
     assert [f.severity for f in r.findings if f.code == "GC230"] == ["danger"]
+    # nor does leaving out 'touchable' (class II metal is internal unless written; a part on a
+    # mains pole is touchable unless written internal)
+    (chassis,) = [line for line in class_ii.splitlines() if line.startswith("metal chassis")]
+    bare = class_ii.replace(chassis, chassis.replace(", touchable", ""))
+    assert bare != class_ii
+    r = analyze(load_text(bare, str(LIVE)), QUICK)
+    assert [f.severity for f in r.findings if f.code == "GC230"] == ["danger"]
 
 
 def test_the_converted_set_is_clean_of_dangers():

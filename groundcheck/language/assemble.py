@@ -250,16 +250,18 @@ def _own_references(stages, errors) -> list[Stage]:
     return [st if st.reference != st.b else replace(st, reference=None) for st, *_ in stages]
 
 
-def _exposed(m: Metal, mains, elv_fed: bool) -> Metal:
+def _exposed(m: Metal, mains, elv_fed: bool, pole: bool = False) -> Metal:
     """A metal part with its accessibility settled: as written, else touchable in class I equipment
-    with a mains supply and in a box fed at extra-low voltage that makes a supply above it inside
-    (``elv_fed``: GC229 holds its metal to that supply's return) — a part nobody wrote as
-    ``internal`` is treated as one a hand can reach, the safe default — and internal elsewhere; a
-    ``signal-only`` part is never held to protective bonding, so it defaults to internal."""
+    with a mains supply and in a box fed at extra-low voltage that makes a supply above it
+    inside (``elv_fed``: GC229 holds its metal to that supply's return), or with a conductor of
+    the mains landing in it (``pole``, a transformerless set: GC230), whatever class it is
+    written — a part nobody wrote as ``internal`` is treated as one a hand can reach, the safe
+    default — and internal elsewhere; a ``signal-only`` part is never held to protective
+    bonding, so it defaults to internal."""
     if m.touchable is not None:
         return m
     class_i = mains is not None and mains.equipment_class == "I"
-    return replace(m, touchable=(class_i or elv_fed) and not m.signal_only)
+    return replace(m, touchable=(class_i or elv_fed or pole) and not m.signal_only)
 
 
 def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) -> list:
@@ -348,7 +350,8 @@ def assemble(built: list, file: str, ld) -> Plan:
     header, groups, names, devices, library_dirs = _collect(built, ld)
     mains = header.get("mains")
     elv_fed = elv_fed_high_tension(mains, [r for r, *_ in groups[Rectifier]])
-    metals = {m.name: _exposed(m, mains, elv_fed) for m, *_ in groups[Metal]}
+    pole = any(p.kind == "mains-pole" for p, *_ in groups[Point])
+    metals = {m.name: _exposed(m, mains, elv_fed, pole) for m, *_ in groups[Metal]}
     points = {p.name: p for p, *_ in groups[Point]}
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
