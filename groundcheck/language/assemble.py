@@ -13,7 +13,6 @@ from pathlib import Path
 from ..core.errors import LimitError, Location, PlanError
 from ..model.kinds import joins_devices
 from ..model.installation import Transformer, transformer_feeds
-from ..model.supplies import elv_fed_high_tension
 from ..model.records import (
     PE_POINT,
     Conductor,
@@ -27,6 +26,7 @@ from ..model.records import (
     Stage,
 )
 from .acceptances import acceptances
+from .exposure import settled_metals
 from .devices import merge_device
 from .installation import check_bundles, check_supplies, land_shields, leakage_currents
 from .interconnects import interconnect_inputs
@@ -250,20 +250,6 @@ def _own_references(stages, errors) -> list[Stage]:
     return [st if st.reference != st.b else replace(st, reference=None) for st, *_ in stages]
 
 
-def _exposed(m: Metal, mains, elv_fed: bool, pole: bool = False) -> Metal:
-    """A metal part with its accessibility settled: as written, else touchable in class I equipment
-    with a mains supply and in a box fed at extra-low voltage that makes a supply above it
-    inside (``elv_fed``: GC229 holds its metal to that supply's return), or with a conductor of
-    the mains landing in it (``pole``, a transformerless set: GC230), whatever class it is
-    written — a part nobody wrote as ``internal`` is treated as one a hand can reach, the safe
-    default — and internal elsewhere; a ``signal-only`` part is never held to protective
-    bonding, so it defaults to internal."""
-    if m.touchable is not None:
-        return m
-    class_i = mains is not None and mains.equipment_class == "I"
-    return replace(m, touchable=(class_i or elv_fed or pole) and not m.signal_only)
-
-
 def _transformers_and_leakage(groups, supply, points, placed, supplies, errors) -> list:
     """The installation's transformers placed (their outlets and cords), and each device's leakage
     current at the supply where it is plugged in (added to the currents)."""
@@ -349,9 +335,12 @@ def assemble(built: list, file: str, ld) -> Plan:
     ``ld.errors``."""
     header, groups, names, devices, library_dirs = _collect(built, ld)
     mains = header.get("mains")
-    elv_fed = elv_fed_high_tension(mains, [r for r, *_ in groups[Rectifier]])
-    pole = any(p.kind == "mains-pole" for p, *_ in groups[Point])
-    metals = {m.name: _exposed(m, mains, elv_fed, pole) for m, *_ in groups[Metal]}
+    metals = settled_metals(
+        [m for m, *_ in groups[Metal]],
+        mains,
+        [r for r, *_ in groups[Rectifier]],
+        [p for p, *_ in groups[Point]],
+    )
     points = {p.name: p for p, *_ in groups[Point]}
     if mains is not None:
         points[PE_POINT] = Point(PE_POINT, kind="inlet", pos=mains.inlet, location=mains.location)
