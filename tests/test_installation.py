@@ -252,15 +252,19 @@ def test_interconnect_input_reads_the_shield_transfer_impedance():
     # shield's own inductance (about 22 µH, 0.7 Ω of reactance at 5 kHz) cancels against the centre
     # conductor's mutual inductance and adds nothing (a coaxial cable's transfer impedance at low
     # frequency is its shield's resistance)
-    from groundcheck import load_text
-    from groundcheck.analysis import analyze
-
     text = LEAD.format(title="a long shield above its cut-off") + (
         "current leak: a to b, 10 mA 5000 Hz, leakage\n"
     )
+    assert _lead_volts(text, 5000.0) == pytest.approx(0.05, rel=1e-6)
+
+
+def _lead_volts(text: str, hz: float) -> float:
+    """The lead plan's hum at its output at ``hz``, V."""
+    from groundcheck import load_text
+    from groundcheck.analysis import analyze
+
     r = analyze(load_text(text, "lead.gplan"))
-    row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 5000.0)
-    assert row["volts"] == pytest.approx(0.05, rel=1e-6)
+    return next(x["volts"] for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == hz)
 
 
 REEL = """plan "reel"
@@ -299,16 +303,10 @@ def test_leakage_currents_add_in_phase():
     # √(1² + 2²) mA × 0.5 Ω × 10 = 11.18 mV, 2.6 dB less; an outside reviewer's ngspice run of a
     # venue's five leakages found the power sum 5.6 dB low). A stated load current beside them is
     # of another mechanism and still adds in power.
-    from groundcheck import load_text
-    from groundcheck.analysis import analyze
-
     text = LEAD.format(title="two leakages down one shield") + (
         "current leak1: a to b, 1 mA 50 Hz, leakage\ncurrent leak2: a to b, 2 mA 50 Hz, leakage\n"
     )
-    r = analyze(load_text(text, "lead.gplan"))
-    row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 50.0)
-    assert row["volts"] == pytest.approx(0.015, rel=1e-6)
+    assert _lead_volts(text, 50.0) == pytest.approx(0.015, rel=1e-6)
     more = "current motor: a to b, 4 mA 50 Hz, load\n"
-    r = analyze(load_text(text + more, "lead.gplan"))
-    row = next(x for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == 50.0)
-    assert row["volts"] == pytest.approx((0.015**2 + 0.02**2) ** 0.5, rel=1e-6)  # 25 mV
+    # 25 mV
+    assert _lead_volts(text + more, 50.0) == pytest.approx((0.015**2 + 0.02**2) ** 0.5, rel=1e-6)
