@@ -78,7 +78,7 @@ def test_tt_electrode_is_in_the_fault_loop():
             "230 V 50 Hz, system TT, loop-impedance 21 ohm, electrode 200 ohm",
             "larger than the whole external loop",
         ),
-        ("230 V 50 Hz, system TN-S, electrode 20 ohm", "of a TT supply only"),
+        ("230 V 50 Hz, system TN-S, electrode 20 ohm", "of a TT or an IT supply only"),
     ],
 )
 def test_an_electrode_that_cannot_be_is_a_located_error(text, where):

@@ -122,6 +122,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC221": {"note", "danger"},
         "GC223": {"fault", "danger"},
         "GC230": {"danger", "warning"},
+        "GC231": {"danger", "note"},
         "GC301": {"warning", "note"},
         "GC302": {"warning", "note"},
         "GC306": {"fault", "note"},

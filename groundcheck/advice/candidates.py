@@ -34,7 +34,7 @@ from .routing_changes import (
     shared_return_candidates,
     star_candidates,
 )
-from .supply_changes import high_breaking, socket_rcd, tt_electrode, twist_heater
+from .supply_changes import high_breaking, it_electrode, socket_rcd, tt_electrode, twist_heater
 
 __all__ = [
     "Candidate",
@@ -80,6 +80,7 @@ AFTER_FINDINGS = {
     "earthed-outlet": earthed_outlets,
     "rcd-at-socket": socket_rcd,
     "tt-electrode": tt_electrode,
+    "it-electrode": it_electrode,
     "own-crosstalk-return": crosstalk_candidates,
 }
 

@@ -6,7 +6,8 @@ that the work is a qualified electrician's, to the local wiring rules, and never
 protective earth of the equipment (none lifts, removes or thins a protective conductor).
 
 Answers: GC208 (a fault not disconnected in time), GC220 (TT: electrode × the RCD's rating over
-50 V), GC221 (TT protected by a fuse or breaker alone); and in the equipment, GC211 (a fuse whose
+50 V), GC231 (IT: electrode × the first-fault current over 50 V), GC221 (TT protected by a fuse
+or breaker alone); and in the equipment, GC211 (a fuse whose
 breaking capacity is below the prospective fault current: a high-breaking fuse of the same rating
 and characteristic, which the mains statement then states).
 """
@@ -25,6 +26,7 @@ from .edits import Edit
 __all__ = [
     "socket_rcd",
     "tt_electrode",
+    "it_electrode",
     "high_breaking",
     "RCD_RATINGS",
     "SOCKET_RCD",
@@ -53,12 +55,13 @@ ELECTRODE_WORK = 10.0
 STABLE_ELECTRODE = 200.0
 
 
-def electrode_target(rcd: float) -> float:
+def electrode_target(current: float) -> float:
     """The electrode resistance R_A, Ω, to aim for: the largest at two significant figures rounded
-    down for which R_A × IΔn stays within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A ×
-    IΔn ≤ 50 V), and never above :data:`STABLE_ELECTRODE` (a 500 Ω target for a 100 mA RCD sat
+    down for which R_A × the current (an RCD's IΔn, an IT supply's first-fault current I_d) stays
+    within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A × IΔn ≤ 50 V; 411.6.2: R_A × I_d
+    ≤ 50 V), and never above :data:`STABLE_ELECTRODE` (a 500 Ω target for a 100 mA RCD sat
     exactly on the limit, on an electrode that soil and season move)."""
-    r = TOUCH_LIMIT / rcd
+    r = TOUCH_LIMIT / current
     step = 10.0 ** (math.floor(math.log10(r)) - 1)
     return min(math.floor(r / step + 1e-9) * step, STABLE_ELECTRODE)
 
@@ -171,6 +174,41 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
                 work=ELECTRODE_WORK,
             )
         )
+
+
+def it_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
+    """An IT supply whose electrode times its first-fault current exceeds the touch-voltage limit
+    (GC231's dangers in ``answer``): the electrode improved to a target, passed to ``add``.
+
+    Parameters:
+        ctx: the change context.
+        answer: the rules naming the action and their findings.
+        add: takes a candidate.
+    Returns:
+        nothing (the candidate goes to ``add``).
+    References:
+        IEC 60364-4-41 411.6.2 (from memory).
+    """
+    (m, word), st = _stated(ctx), _mains_statement(ctx)
+    dangers = [f for f in answer.findings if f.severity == "danger"]
+    if st is None or not dangers or m.first_fault is None or m.electrode is None:
+        return
+    target = electrode_target(m.first_fault)
+    if target >= m.electrode:
+        return
+    add(
+        Candidate(
+            "have the installation's earth electrode measured and improved to at most "
+            f"{target:g} Ω (a target: {target:g} Ω × {m.first_fault:g} A is within "
+            f"{TOUCH_LIMIT:g} V): {_DEFER}; the {word} statement then states "
+            f"'electrode {target:g} ohm'",
+            Answer(answer.codes, tuple(dangers)).reason,
+            (_set(ctx, st, "electrode", f"{target:g} ohm"),),
+            action="electrode",
+            element="mains",
+            work=ELECTRODE_WORK,
+        )
+    )
 
 
 def high_breaking(ctx: ChangeContext, f, add) -> None:

@@ -100,7 +100,8 @@ PLAUSIBLE = {
         3.0,
         "current",
         "A",
-        "residual-current devices trip from 4-6 mA (UL 943 class A) to 30 mA, 100 mA, 300 mA, 500 "
+        "residual-current devices trip from 4-6 mA (North American ground-fault interrupters) to "
+        "30 mA, 100 mA, 300 mA, 500 "
         "mA and a few A (IEC 61008-1, IEC 60947-2 Annex B; from memory)",
     ),
     "loop-impedance": (
@@ -118,6 +119,14 @@ PLAUSIBLE = {
         "Ω",
         "an earth electrode is 0.1 Ω (a foundation electrode) to tens of kΩ (dry rock); over 200 "
         "Ω may not be stable (common practice)",
+    ),
+    "first-fault": (
+        1e-3,
+        100.0,
+        "current",
+        "A",
+        "an IT supply's first-fault current is its capacitive and leakage current to earth: some "
+        "mA for a small isolated system, up to tens of A for a large public network (from memory)",
     ),
     "leakage": (
         0.0,

@@ -7,6 +7,7 @@ from ..core.errors import PlanError
 from ..model.kinds import CURRENT_ROLES
 from ..model.records import (
     CABLE_OPERATING_TEMPERATURE,
+    EARTHED_LOCALLY,
     SYSTEMS,
     Current,
     Mains,
@@ -40,6 +41,7 @@ MAINS_ATTRIBUTES = {
     "rcd": ("rcd", "RCD rated residual current", "current"),
     "cpc": ("cpc_area", "circuit protective conductor area", "area"),
     "electrode": ("electrode", "earth-electrode resistance", "resistance"),
+    "first-fault": ("first_fault", "first-fault current", "current"),
     "fuse-resistance": ("fuse_resistance", "fuse cold resistance", "resistance"),
     "cable-temperature": (
         "cable_temperature",
@@ -135,20 +137,28 @@ def mains(stmt: Statement):
 
 
 def _check_earth_electrode(stmt: Statement, kw: dict) -> None:
-    """An earth electrode belongs to a TT supply, and lies inside the external loop that a TT plan
-    states."""
+    """An earth electrode belongs to a TT or IT supply, and lies inside the external loop that a
+    TT plan states; a first-fault current belongs to an IT supply."""
+    system = kw.get("system", "TN-S")
+    if kw.get("first_fault") is not None and system != "IT":
+        raise PlanError(
+            f"a first-fault current is stated for a {system} supply",
+            _phrase_loc(stmt, "first-fault"),
+            "only an IT supply (no point of it earthed, or earthed through a high impedance) "
+            "stays on at a first fault: add 'system IT', or remove 'first-fault'",
+        )
     electrode, loop = kw.get("electrode"), kw.get("loop_impedance")
     if electrode is None:
         return
     loc = _phrase_loc(stmt, "electrode")
-    if kw.get("system", "TN-S") != "TT":
+    if system not in EARTHED_LOCALLY:
         raise PlanError(
-            f"an earth electrode is stated for a {kw.get('system', 'TN-S')} supply",
+            f"an earth electrode is stated for a {system} supply",
             loc,
-            "the installation's own electrode is in the fault loop of a TT supply only: add "
-            "'system TT', or remove 'electrode'",
+            "the installation's own electrode earths the metal of a TT or an IT supply only: add "
+            "'system TT' (or 'system IT'), or remove 'electrode'",
         )
-    if loop is not None and electrode > loop * (1 + 1e-12):
+    if system == "TT" and loop is not None and electrode > loop * (1 + 1e-12):
         raise PlanError(
             f"the earth electrode ({electrode:g} Ω) is larger than the whole external loop "
             f"({loop:g} Ω) that includes it",
@@ -208,7 +218,7 @@ def _mains_attribute(stmt: Statement, r: Reader, ph, kw: dict) -> None:
         if not r.done:
             kw["circuit_area"] = r.quantity("area", "final-circuit line-conductor area")
     elif word == "system":
-        kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
+        kw["system"] = r.word("an earthing system (TN-S, TN-C-S, TT or IT)", SYSTEMS)
     elif word == "class":
         kw["equipment_class"] = r.word("a protection class (I or II)", ("I", "II"))
     elif word == "breaking":
@@ -235,8 +245,8 @@ def supply(stmt: Statement):
         word = r.word("an attribute")
         _once(stmt, ph, kw, word)
         if word == "system":
-            kw["system"] = r.word("an earthing system (TN-S, TN-C-S or TT)", SYSTEMS)
-        elif word in ("electrode", "rcd", "loop-impedance"):
+            kw["system"] = r.word("an earthing system (TN-S, TN-C-S, TT or IT)", SYSTEMS)
+        elif word in ("electrode", "rcd", "loop-impedance", "first-fault"):
             field, what, kind = MAINS_ATTRIBUTES[word]
             if word in PLAUSIBLE:
                 kw[field] = r.rating(word, what)
@@ -256,7 +266,15 @@ def supply(stmt: Statement):
 
 
 #: the attributes of an installation's supply
-SUPPLY_WORDS = ("230 V 50 Hz", "system", "electrode", "rcd", "loop-impedance", "breaker")
+SUPPLY_WORDS = (
+    "230 V 50 Hz",
+    "system",
+    "electrode",
+    "first-fault",
+    "rcd",
+    "loop-impedance",
+    "breaker",
+)
 
 
 def _once(stmt: Statement, ph, kw: dict, word: str) -> None:

@@ -19,6 +19,7 @@ from .sources import Current, FieldSource, Heater, Rectifier, Stage
 from .supplies import (
     CABLE_OPERATING_TEMPERATURE,
     DEFAULT_CORD,
+    EARTHED_LOCALLY,
     SYSTEMS,
     Listening,
     Mains,
@@ -48,6 +49,7 @@ __all__ = [
     "CONDUCTOR_KINDS",
     "DEFAULT_CORD",
     "SYSTEMS",
+    "EARTHED_LOCALLY",
     "make",
     "from_values",
 ]

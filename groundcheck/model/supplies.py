@@ -38,6 +38,7 @@ __all__ = [
     "Supply",
     "Listening",
     "SYSTEMS",
+    "EARTHED_LOCALLY",
     "DEFAULT_CORD",
     "CABLE_OPERATING_TEMPERATURE",
 ]
@@ -45,7 +46,12 @@ __all__ = [
 XY = tuple[float, float]
 
 #: earthing systems, IEC 60364-1 terms
-SYSTEMS = ("TN-S", "TN-C-S", "TT")
+SYSTEMS = ("TN-S", "TN-C-S", "TT", "IT")
+
+#: the systems whose exposed metal is earthed by the installation's own electrode (IEC 60364-1
+#: 312.2.2 and 312.2.3): the electrode's resistance R_A means something only in them
+EARTHED_LOCALLY = ("TT", "IT")
+
 
 #: the mains cord when neither plan nor device says: 2 m of 0.75 mm² (common practice up to 6 A,
 #: IEC 60335-1)
@@ -83,7 +89,7 @@ class Mains:
     #: mains cord conductor area, m² (default: line_area, else DEFAULT_CORD)
     cord_area: float | None = None
     inlet: XY | None = None
-    system: str = "TN-S"  # TN-S | TN-C-S | TT (IEC 60364-1)
+    system: str = "TN-S"  # TN-S | TN-C-S | TT | IT (IEC 60364-1)
     rcd: float | None = None  # rated residual operating current IΔn, A
     circuit_length: float | None = None  # final circuit from the origin to the socket, m
     circuit_area: float | None = None  # its line conductor, m²
@@ -92,7 +98,9 @@ class Mains:
     #: origin, in place of ``circuit``: (name, length m, line area m², protective area m²,
     #: flexible) of each conductor in series
     route: tuple[tuple[str, float, float, float, bool], ...] | None = None
-    electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
+    electrode: float | None = None  # TT, IT: the installation's earth-electrode resistance R_A, Ω
+    #: IT: the supply's earth-fault current at a first fault of negligible impedance I_d, A
+    first_fault: float | None = None
     equipment_class: str = "I"  # I | II
     breaking: str | None = None  # low | enhanced | high (IEC 60127 categories)
     breaking_current: float | None = None  # stated breaking capacity, A
@@ -129,8 +137,10 @@ class Supply:
     frequency: float
     system: str = "TN-S"
     location: Location = field(default=Location("<plan>"), compare=False)
-    electrode: float | None = None  # TT: the installation's earth-electrode resistance R_A, Ω
+    electrode: float | None = None  # TT, IT: the installation's earth-electrode resistance R_A, Ω
     rcd: float | None = None  # the RCD that protects its outlets, rated IΔn, A
+    #: IT: the supply's earth-fault current at a first fault I_d, A
+    first_fault: float | None = None
     #: the external earth-fault loop impedance Ze at the origin, Ω (TT: through the electrode)
     loop_impedance: float | None = None
     #: the breaker of the final circuits that feed its outlets: rating, A, and curve
@@ -163,7 +173,12 @@ class Supply:
         placed = replace(
             base,
             system=self.system,
-            electrode=electrode if self.system == "TT" else None,
+            electrode=electrode if self.system in EARTHED_LOCALLY else None,
+            first_fault=(
+                (self.first_fault if self.first_fault is not None else base.first_fault)
+                if self.system == "IT"
+                else None
+            ),
             rcd=self.rcd,
             loop_impedance=loop,
         )

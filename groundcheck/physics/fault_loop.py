@@ -6,7 +6,10 @@ The cables' resistances in the fault loop are at their operating temperature (IE
 52.1, PVC 70 °C, unless the plan states it); the prospective currents, which the device must be
 able to break, are taken with the cables at the lowest temperature (the plan's ambient, at most
 20 °C).  In a TT system the fault current returns through the installation's earth electrode R_A
-(IEC 60364-4-41 411.5).  The equipment's own part of the loop is
+(IEC 60364-4-41 411.5).  In an IT system a first fault lets no current flow that a fuse sees;
+the loop checked is the second fault's, on the other line, through the protective conductors
+that join the two faulty parts: half the supply's voltage drives it round this circuit's loop
+(411.6.4: Zs ≤ U / (2 Ia)).  The equipment's own part of the loop is
 :mod:`groundcheck.physics.safety`'s.
 """
 
@@ -27,7 +30,23 @@ from .protection import (
     max_disconnection_time,
 )
 
-__all__ = ["Supply", "external_loop", "supply_figures"]
+__all__ = ["Supply", "external_loop", "supply_figures", "fault_emf"]
+
+
+def fault_emf(m) -> float:
+    """The voltage that drives a fault to the equipment's metal round its loop, V: the supply's,
+    or half of it in an IT supply — a second fault on the other line closes the loop through both
+    faulty parts' protective conductors, each circuit's half of it taken as this one's.
+
+    Parameters:
+        m: the mains record (its voltage: between line and neutral, or between the two lines of
+            an IT supply without a neutral, as the equipment is connected).
+    Returns:
+        the driving voltage, V.
+    References:
+        IEC 60364-4-41 411.6.4 (Zs ≤ U/(2 Ia), neutral not distributed; Z's ≤ U0/(2 Ia) with it).
+    """
+    return m.voltage / 2.0 if m.system == "IT" else m.voltage
 
 
 @dataclass(frozen=True)
@@ -173,7 +192,7 @@ def supply_figures(plan: Plan) -> Supply:
         cap,
         hot_t,
         cold_t,
-        m.voltage / (linked + cold_return),
+        fault_emf(m) / (linked + cold_return),
         short,
         m.short_circuit is not None,
         cold_outside,

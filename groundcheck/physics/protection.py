@@ -47,8 +47,9 @@ MAX_PE_LIMIT = 0.5
 
 #: default external earth-fault loop impedance Ze at the origin of the installation, Ω: typical
 #: maximum values declared by distributors (TN-S 0.8 Ω, TN-C-S 0.35 Ω, TT 21 Ω including the
-#: installation's own earth electrode) — from memory
-DEFAULT_ZE = {"TN-S": 0.8, "TN-C-S": 0.35, "TT": 21.0}
+#: installation's own earth electrode) — from memory; IT: the loop a second fault closes through
+#: the protective conductors, taken as TN-S's
+DEFAULT_ZE = {"TN-S": 0.8, "TN-C-S": 0.35, "TT": 21.0, "IT": 0.8}
 
 #: TT: the supply's own part of the fault loop (the line from the source and the source's earth
 #: electrode R_B) when the plan states the installation's electrode R_A but not the whole loop, Ω —
@@ -235,11 +236,14 @@ def max_disconnection_time(voltage: float, system: str) -> float | None:
 
     Parameters:
         voltage: U0, V.
-        system: TN-S, TN-C-S or TT.
+        system: TN-S, TN-C-S, TT or IT (an IT supply's second fault takes TN's time, its
+            metal being joined by protective conductors: 411.6.4 a); the voltage stated is
+            taken as U0, which for an IT supply without a neutral is the line-to-line voltage,
+            the stricter row).
     Returns:
         the maximum disconnection time, s (None below 50 V).
     References:
-        IEC 60364-4-41, Table 41.1.
+        IEC 60364-4-41, Table 41.1 and 411.6.4.
     """
     if voltage <= 50.0:
         return None

@@ -14,7 +14,9 @@ parts)::
 
 The touch voltage against earth is I_f times the protective path from the part to the main earthing
 terminal (R_path + R_cord,PE + R_circuit,PE); in a TT system the installation's earth electrode R_A
-is added (by default the whole external loop impedance, the worst case).  The protective device —
+is added (by default the whole external loop impedance, the worst case).  In an IT system U0 is
+replaced by U/2, the second fault's share (411.6.4; the first fault is GC231's, R_A × I_d).  The
+protective device —
 fuse (pre-arcing plus arcing), breaker or RCD, whichever opens first — must disconnect within the
 maximum time of IEC 60364-4-41 Table 41.1 for the supply voltage and earthing system; the fuse must
 be able to break the prospective current; each protective conductor must survive the let-through
@@ -32,7 +34,7 @@ from .circuit import build_circuit
 from ..network.earthing import ProtectiveRoute
 from ..model.kinds import PROTECTIVE_ROLES, can_carry_protective, cross_section, section_checked
 from ..model.records import PE_POINT, Plan
-from .fault_loop import Supply, supply_figures
+from .fault_loop import Supply, fault_emf, supply_figures
 from .protection import STANDARD_PE_LIMIT, Clearing, device_clearing, rcd_clearing
 
 __all__ = [
@@ -314,10 +316,11 @@ def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
     hot and the cold case."""
     m = plan.mains
     outside = sup.ze + sup.fuse_resistance + sup.circuit_line + sup.cord_line
-    i_f = m.voltage / (outside + r + sup.cord_pe + sup.circuit_cpc)
+    emf = fault_emf(m)  # half the voltage at an IT supply's second fault
+    i_f = emf / (outside + r + sup.cord_pe + sup.circuit_cpc)
     touch = i_f * (r + sup.cord_pe + sup.circuit_cpc + sup.electrode)
     cl, device = _first_to_open(plan, i_f)
-    cl_cold, _ = _first_to_open(plan, m.voltage / (sup.cold_outside + r + sup.cold_return))
+    cl_cold, _ = _first_to_open(plan, emf / (sup.cold_outside + r + sup.cold_return))
     no_device = m.fuse is None and m.rcd is None
     t = _stricter(m.clear_time, cl.time if cl else None, no_device)
     i2t = max(cl.i2t, cl_cold.i2t if cl_cold is not None else 0.0) if cl is not None else None

@@ -1,7 +1,7 @@
-"""The catalogue's protective-earth entries of an installation (GC215–GC222, GC225): each placed
-device's earth path, leakage, devices behind transformers, the TT supply's electrode and RCD,
-metal written signal-only, and the outlets' RCD — what each rule checks, why, its fix and its
-sources.
+"""The catalogue's protective-earth entries of an installation (GC215–GC222, GC225, GC231): each
+placed device's earth path, leakage, devices behind transformers, the TT supply's electrode and
+RCD, metal written signal-only, the outlets' RCD and an IT supply's first fault — what each rule
+checks, why, its fix and its sources.
 
 Kept apart from :mod:`groundcheck.rules.catalogue_pe` (the equipment's own protective earth) so
 that each module reads in one sitting; :mod:`groundcheck.rules.catalogue` takes them in its one
@@ -168,5 +168,25 @@ INSTALLATION_ENTRIES: list[Rule] = [
         "electrician, to the local wiring rules.",
         "IEC 60364-4-41 411.3.3 (additional protection by an RCD of IΔn ≤ 30 mA), from memory",
         actions=("rcd-at-socket",),
+    ),
+    entry(
+        "GC231",
+        "it-first-fault",
+        PROTECTIVE_EARTH,
+        "danger",
+        "In an IT supply (no point of it earthed, or earthed through a high impedance), whether "
+        "the touch voltage a first fault leaves on earthed metal — the installation's electrode "
+        "R_A times the supply's first-fault current I_d — stays within 50 V; a note when the plan "
+        "does not state both.",
+        "A first fault from a line to the metal is not disconnected: the supply runs on, and the "
+        "metal stays at R_A × I_d against earth until an insulation monitor's alarm has the fault "
+        "found and mended. Above 50 V that is a dangerous touch voltage that nothing clears.",
+        "Improve the installation's earth electrode (a qualified electrician measures and repairs "
+        "it) so that R_A × I_d stays within 50 V, and keep the insulation monitor that signals "
+        "the first fault.",
+        "IEC 60364-4-41 411.6.2 (R_A × I_d ≤ 50 V) and 411.6.3 (insulation monitoring), from "
+        "memory",
+        variants=("danger", "note"),
+        actions=("it-electrode",),
     ),
 ]

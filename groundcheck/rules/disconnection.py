@@ -12,7 +12,44 @@ from .catalogue import Finding
 if TYPE_CHECKING:
     from ..physics.safety import SafetyResult
 
-__all__ = ["device_text", "disconnection", "no_clearing_device", "late_simple_device"]
+__all__ = [
+    "time_row",
+    "second_fault",
+    "device_text",
+    "disconnection",
+    "no_clearing_device",
+    "late_simple_device",
+]
+
+
+def time_row(system: str) -> str:
+    """The column of IEC 60364-4-41 Table 41.1 a system's faults are timed by, in words.
+
+    Parameters:
+        system: the earthing system.
+    Returns:
+        TT's, or TN's (an IT supply's second fault takes TN's, said as such).
+    References:
+        IEC 60364-4-41 411.6.4 a) (an IT supply's metal joined by protective conductors).
+    """
+    return {"TT": "TT", "IT": "IT, second fault, as TN"}.get(system, "TN")
+
+
+def second_fault(system: str, fault: str) -> str:
+    """A fault in words, said as the second fault an IT supply needs before a current flows that
+    a protective device sees (the first is GC231's).
+
+    Parameters:
+        system: the earthing system.
+        fault: the fault in words ("a line-to-deck fault").
+    Returns:
+        the words, unchanged for other systems.
+    References:
+        IEC 60364-4-41 411.6.4.
+    """
+    if system != "IT":
+        return fault
+    return f"{fault} with a first fault on the other line (an IT supply)"
 
 
 def device_text(m) -> str:
@@ -58,14 +95,14 @@ def disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
         "touch_voltage_v": p.touch_voltage,
         "max_disconnection_s": limit,
     }
-    system = "TT" if sup.system == "TT" else "TN"
-    where = f"{system} at {m.voltage:g} V"
+    where = f"{time_row(sup.system)} at {m.voltage:g} V"
+    fault = second_fault(sup.system, f"a line-to-{p.part} fault")
     if p.clear_time is None:
         return [
             Finding(
                 "GC208",
                 "danger",
-                f"a line-to-{p.part} fault draws {p.fault_current:.3g} A, too little to be sure "
+                f"{fault} draws {p.fault_current:.3g} A, too little to be sure "
                 f"of opening the {device_text(m)}; {p.touch_voltage:.0f} V against earth would "
                 f"stay on {p.part}",
                 part.location,
@@ -81,7 +118,7 @@ def disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
             Finding(
                 "GC208",
                 "danger",
-                f"a line-to-{p.part} fault ({p.fault_current:.3g} A) is cleared by the "
+                f"{fault} ({p.fault_current:.3g} A) is cleared by the "
                 f"{device_text(m)} in up to {p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows "
                 f"{limit:g} s ({where}), and {p.touch_voltage:.0f} V against earth is on {p.part} "
                 "meanwhile",
@@ -140,8 +177,8 @@ def late_simple_device(device, m, limit, part, route) -> list[Finding]:
     if part.clear_time is not None and (limit is None or part.clear_time <= limit):
         return []
     through = ", ".join(r[0] for r in route) if route else "the supply's default final circuit"
-    clears = device_text(m).replace(' and ', ' or ')
-    system = "TT" if m.system == "TT" else "TN"
+    clears = device_text(m).replace(" and ", " or ")
+    system = time_row(m.system)
     figs = {
         "fault_current_a": part.fault_current,
         "touch_voltage_v": part.touch_voltage,
@@ -149,7 +186,8 @@ def late_simple_device(device, m, limit, part, route) -> list[Finding]:
     }
     head = (
         f"{device.name}, a class I device with no plan of its own plugged into {device.plugged}: "
-        f"a fault to its metal draws {part.fault_current:.3g} A through {through} and its cord "
+        f"{second_fault(m.system, 'a fault to its metal')} draws {part.fault_current:.3g} A "
+        f"through {through} and its cord "
         "(its own earth path taken as nothing, the best case)"
     )
     if part.clear_time is None:

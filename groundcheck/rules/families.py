@@ -9,6 +9,7 @@ from . import (  # noqa: F401 - imported for their registrations
     elv_fed_ht,
     hum_rules,
     installation,
+    it_supply,
     lift_fault,
     live_chassis,
     protective,

@@ -135,7 +135,8 @@ def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
 
 
 #: supplies at or below this (V) take fuses rated at 125 V, whose breaking capacity at their
-#: voltage is often far above IEC 60127's low-breaking 35 A at 250 V (UL 248-14, from memory)
+#: voltage is often far above IEC 60127's low-breaking 35 A at 250 V (the North American
+#: miniature-fuse standard for 125 V fuses, from memory)
 LOW_MAINS = 130.0
 
 
