@@ -102,3 +102,16 @@ def test_figures_for_a_reader_never_show_a_signed_zero_or_a_python_value():
         == "0.0 dB, 0.00 dB, 0 V, -0.05 dB, x-0.0"
     )
     assert math.isfinite(parse_quantity("1e-3", "V")[0])
+
+
+@pytest.mark.parametrize(
+    "alloy,iacs",
+    [
+        # electrical conductivity in % IACS of the tempers sheet is sold in (ASM Handbook vol. 2,
+        # from memory): 5052-H32 35 %, 6061-T6 43 %; 100 % IACS is 1.7241e-8 Ω·m (IEC 60028)
+        ("aluminium-5052", 35.0),
+        ("aluminium-6061", 43.0),
+    ],
+)
+def test_aluminium_alloys_against_their_conductivity(alloy, iacs):
+    assert resistivity(alloy) == pytest.approx(1.7241e-8 / (iacs / 100), rel=0.02)

@@ -6,6 +6,8 @@ from __future__ import annotations
 import difflib
 
 from ..core.errors import Location, PlanError
+from ..model.materials import MATERIAL_ALIASES
+from ..model.materials import MATERIALS as MATERIAL_TABLE
 from .phrases import Reader, Statement
 
 __all__ = [
@@ -23,16 +25,8 @@ __all__ = [
     "material",
 ]
 
-MATERIALS = (
-    "copper",
-    "aluminium",
-    "aluminum",
-    "brass",
-    "steel",
-    "stainless",
-    "tinned-copper",
-    "silver",
-)
+#: the material words: every material of the physics' table, and its other spellings
+MATERIALS = (*MATERIAL_TABLE, *MATERIAL_ALIASES)
 POINT_KINDS = (
     "junction",
     "stud",
@@ -121,4 +115,4 @@ def it_number(it) -> float:
 
 
 def material(word: str) -> str:
-    return {"aluminum": "aluminium", "tinned-copper": "copper"}.get(word, word)
+    return MATERIAL_ALIASES.get(word, word)
