@@ -6,6 +6,7 @@ terminated at the end its rule keeps instead, never removed."""
 from __future__ import annotations
 
 from ..model.kinds import is_fastening, is_hookup, joins_devices, shield_like
+from ..model.records import insulating_means
 from .changes import Answer, Candidate, ChangeContext, delete_change, local_name, rephrase
 from .edits import Edit
 from .returns import insulate_candidates
@@ -29,8 +30,8 @@ def loop_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
                 delete_change(
                     ctx,
                     lp.open_at,
-                    f"insulate {lp.open_at} from the metal (insulated socket or shoulder washers) "
-                    "so that no ground loop closes through it",
+                    f"insulate {lp.open_at} from the metal ({_means(ctx, c)}) so that no ground "
+                    "loop closes through it",
                     reason,
                     "insulate",
                 )
@@ -97,9 +98,15 @@ def second_bond(ctx: ChangeContext, f, add) -> None:
         if c is None or shield_like(c):
             continue
         what = (
-            "insulate {e} from the metal (insulated socket or shoulder washers)"
+            f"insulate {e} from the metal ({_means(ctx, c)})"
             if verb == "insulate"
-            else "remove the second chassis bond {e}"
+            else f"remove the second chassis bond {e}"
         )
         action = "insulate" if verb == "insulate" else "remove"
-        add(delete_change(ctx, e, what.format(e=e), f.code, action))
+        add(delete_change(ctx, e, what, f.code, action))
+
+
+def _means(ctx, c) -> str:
+    """How the fastening ``c`` is insulated from its metal, by the kind of the point it holds."""
+    point = ctx.points.get(c.b if c.a in ctx.metals else c.a)
+    return insulating_means(point.kind if point is not None else None)

@@ -11,6 +11,7 @@ import math
 
 from ..model.kinds import PROTECTIVE, ROLES, is_fastening, is_fastening_kind, is_hookup
 from ..model.records import PE_POINT
+from ..rules.protective import shafts_holding
 from .changes import (
     ROUTE_ALLOWANCE,
     SOURCE_CLEARANCE,
@@ -302,6 +303,8 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     to a new stud on the part (common practice: each touchable part bonded by a conductor, never
     through its fixings)."""
     part = next((e for e in f.elements if e in ctx.metals), None)
+    if part is not None and shafts_holding(ctx.plan, part):
+        return None  # a knob turns: no wire is fixed to it (the rule's own fix says what to do)
     found = _protective_lead(ctx, part) if part is not None else None
     metal = ctx.plan.metal(part) if found is not None else None
     if found is None or metal is None or metal.size is None:

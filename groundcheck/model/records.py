@@ -45,6 +45,8 @@ __all__ = [
     "CABLE_CORES",
     "CABLE_OPERATING_TEMPERATURE",
     "PE_POINT",
+    "SOCKET_KINDS",
+    "insulating_means",
     "ROLES",
     "CONDUCTOR_KINDS",
     "DEFAULT_CORD",
@@ -60,6 +62,22 @@ PE_POINT = "mains.pe"
 #: points that are a socket's, jack's, pot's or terminal's own ground: fastened to the metal, they
 #: are a bond to insulate, never the one to keep
 SOCKET_KINDS = ("sleeve", "jack", "pot", "terminal")
+
+
+def insulating_means(kind: str | None) -> str:
+    """How a point of ``kind`` fastened to metal is insulated from it, in words (common practice):
+    a socket or jack by an insulated one or shoulder washers; a pot the same, and since its shaft
+    is then no longer earthed by the panel, with an insulated shaft or knobs with no metal a
+    finger can reach; a tag, lug or stud by an insulating spacer and shoulder washers."""
+    if kind in ("sleeve", "jack"):
+        return "an insulated socket or shoulder washers"
+    if kind == "pot":
+        return (
+            "an insulated-bushing pot or shoulder washers, and an insulated shaft or knobs with "
+            "no metal a finger can reach: the panel no longer earths its shaft"
+        )
+    return "an insulating spacer and shoulder washers"
+
 
 XY = tuple[float, float]
 

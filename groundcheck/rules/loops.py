@@ -8,7 +8,7 @@ A pure function of an :class:`~groundcheck.rules.context.AuditContext`, register
 from __future__ import annotations
 
 from ..model.kinds import is_fastening, joins_devices, shield_like
-from ..model.records import SOCKET_KINDS
+from ..model.records import SOCKET_KINDS, insulating_means
 from ..network.graph import Loop
 from .catalogue import Finding
 from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext
@@ -97,7 +97,9 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
         if keep is not None:
             return _own_return_fix(info, keep, ctx)
     if opener is not None and is_fastening(opener, ctx.metals):
-        where = f"insulate {info.open_at} from the metal (insulated socket or shoulder washers)"
+        held = ctx.plan.point(opener.b if opener.a in ctx.metals else opener.a)
+        means = insulating_means(held.kind if held is not None else None)
+        where = f"insulate {info.open_at} from the metal ({means})"
         actions = (("insulate", info.open_at),)
     elif opener is not None:
         where, actions = f"open the loop at {info.open_at}", (("open", info.open_at),)

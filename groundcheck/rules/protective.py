@@ -24,7 +24,12 @@ from .live_chassis import live_metals
 from .pe_fastener import pe_fastener as _pe_fastener
 from .registry import rule
 
-__all__ = ["rule_mains_not_described", "rule_protective_earth", "rule_class_ii"]
+__all__ = [
+    "rule_mains_not_described",
+    "rule_protective_earth",
+    "rule_class_ii",
+    "shafts_holding",
+]
 
 
 @rule("GC201", "GC202", "GC203", "GC204", "GC205", "GC209", "GC210")
@@ -64,11 +69,49 @@ def rule_protective_earth(ctx: AuditContext) -> list[Finding]:
                     m.location,
                     (m.name,),
                     {},
-                    f"bond {m.name} to the protective-earth stud with a protective conductor or a "
-                    "fastening rated for it",
+                    _bond_fix(plan, m.name),
                 )
             )
     return out
+
+
+def shafts_holding(plan, part: str) -> list[str]:
+    """The pots whose shafts alone hold a metal part (a knob): the points of kind ``pot`` its
+    fastenings join, when it has fastenings and every one of them goes to a pot; else none.
+
+    Parameters:
+        plan: the plan.
+        part: a metal part's name.
+    Returns:
+        the pots' point names, sorted (empty when anything else holds the part).
+    References:
+        none (the plan's own statements).
+    """
+    metals = {m.name for m in plan.metals}
+    held = [
+        c.b if c.a == part else c.a
+        for c in plan.conductors
+        if part in (c.a, c.b) and is_fastening(c, metals)
+    ]
+    kinds = {getattr(plan.point(p), "kind", None) for p in held}
+    return sorted(held) if held and kinds == {"pot"} else []
+
+
+def _bond_fix(plan, part: str) -> str:
+    """GC205's fix: a protective conductor to the part — or, for a part held only on a pot's
+    shaft (a metal knob), its pot's bushing fastened to bonded metal, since no wire can be fixed
+    to a part that turns."""
+    held = shafts_holding(plan, part)
+    if held:
+        return (
+            f"{part} turns on the shaft of {', '.join(sorted(held))}, where no wire can be "
+            "fixed: fasten the pot's bushing to bonded metal with its nut (never on insulating "
+            "washers), or fit a knob with no metal a finger can reach"
+        )
+    return (
+        f"bond {part} to the protective-earth stud with a protective conductor or a fastening "
+        "rated for it"
+    )
 
 
 def _pe_not_reaching(ctx: AuditContext) -> Finding:
