@@ -31,8 +31,10 @@ def test_second_fault_is_driven_by_half_the_voltage_by_hand():
     fuse_r = 0.2 / 2.0  # the documented cold-resistance fit of a fuse (from memory)
     z = 0.8 + fuse_r + CIRCUIT_15_HOT + CORD_075_HOT + R_PATH + CORD_075_HOT + CIRCUIT_15_HOT
     assert deck.fault_current == pytest.approx(230 / 2 / z, rel=1e-9)
+    # between this part and the other faulty one, whose circuit is taken as this one's mirror:
+    # the current through both circuits' protective conductors
     assert deck.touch_voltage == pytest.approx(
-        230 / 2 / z * (R_PATH + CORD_075_HOT + CIRCUIT_15_HOT), rel=1e-9
+        2 * 230 / 2 / z * (R_PATH + CORD_075_HOT + CIRCUIT_15_HOT), rel=1e-9
     )
     # TN's column of Table 41.1 for the second fault (411.6.4 a): 0.4 s at 230 V
     assert s.supply.max_time == 0.4 and s.supply.electrode == 0.0
@@ -51,10 +53,36 @@ def test_a_breaker_that_trips_at_once_on_tn_is_late_on_it():
     (f,) = _codes(it, "GC208")
     assert f.severity == "danger" and f.figures["max_disconnection_s"] == 0.4
     assert "first fault on the other line" in f.message and "IT, second fault" in f.message
-    # an RCD clears the second fault as it clears a TN fault
-    assert not _codes(
+    # an RCD is not counted: the second fault leaves on one line and comes back on the other, so
+    # one RCD ahead of both faulty circuits sees no residual current (an outside builder's point)
+    (f,) = _codes(
         analyze(mains_plan(base + ", system IT, rcd 30 mA"), Options(hum=False)), "GC208"
     )
+    assert f.severity == "danger" and f.figures["max_disconnection_s"] == 0.4
+
+
+def test_a_placed_device_on_it_takes_the_buildings_loop_and_its_electrode_stays_out_of_it(
+    tmp_path,
+):
+    # an outside builder's room: the supply states Ze 1.2 Ω and an electrode of 25 Ω; the
+    # electrode is no part of an IT second fault's loop, so the stated loop stands (it had been
+    # dropped as "smaller than the electrode", a TT rule, and the 0.8 Ω default taken).  His hand
+    # method, I = U / (2 × (Ze + line path + protective path)), here for a simple device on 10 m
+    # of 1.5 mm² (IEC 60228 12.1 Ω/km) and a 2 m 0.75 mm² cord (26 Ω/km), both at 70 °C (× 1.2):
+    # 0.1452 + 0.0624 = 0.2076 Ω each way, I = 230 / (2 × (1.2 + 2 × 0.2076)) = 71.20 A, below
+    # the 80 A (5 In) a 16 A type B breaker needs to trip at once (IEC 60898-1, from memory)
+    room = tmp_path / "room.gplan"
+    room.write_text(
+        'plan "room"\nsupply 230 V 50 Hz, system IT, electrode 25 ohm, first-fault 1.5 A, '
+        "loop-impedance 1.2 ohm, breaker 16 A B\npoint met: earthing-terminal\n"
+        "point wall: outlet\ncable run: met to wall, 10 m, 1.5 mm2, cores L-N-PE\n"
+        "device sub: simple, plugged wall, cord 2 m 0.75 mm2, signal-ground chassis\n"
+    )
+    from groundcheck import load
+
+    (f,) = _codes(analyze(load(str(room)), Options(hum=False)), "GC208")
+    assert f.severity == "danger"
+    assert f.figures["fault_current_a"] == pytest.approx(230 / (2 * (1.2 + 2 * 0.2076)), rel=1e-4)
 
 
 @pytest.mark.parametrize(

@@ -168,7 +168,7 @@ class Supply:
             loop = base.loop_impedance
         else:
             loop = None
-        if electrode is not None and loop is not None and electrode > loop:
+        if self.system == "TT" and electrode is not None and loop is not None and electrode > loop:
             loop = None  # the device's own loop cannot hold the building's electrode
         placed = replace(
             base,

@@ -30,7 +30,22 @@ from .protection import (
     max_disconnection_time,
 )
 
-__all__ = ["Supply", "external_loop", "supply_figures", "fault_emf"]
+__all__ = ["Supply", "external_loop", "supply_figures", "fault_emf", "first_fault_touch"]
+
+
+def first_fault_touch(m) -> float | None:
+    """An IT supply's first fault on earthed metal: the touch voltage it leaves.
+
+    Parameters:
+        m: the mains record.
+    Returns:
+        R_A × I_d, V; None outside IT or when the plan does not state both.
+    References:
+        IEC 60364-4-41 411.6.2.
+    """
+    if m.system != "IT" or m.electrode is None or m.first_fault is None:
+        return None
+    return m.electrode * m.first_fault
 
 
 def fault_emf(m) -> float:
@@ -78,6 +93,9 @@ class Supply:
     short_circuit_stated: bool = False
     cold_outside: float = 0.0  # Ω, cables cold: external loop, fuse, circuit line and cord line
     cold_return: float = 0.0  # Ω, cables cold: cord and circuit protective conductors
+    #: V, an IT supply's first fault on the metal: the stated electrode R_A times the stated
+    #: first-fault current I_d (GC231's figure), None elsewhere or when either is not stated
+    first_fault_v: float | None = None
 
     @property
     def prospective(self) -> float:
@@ -197,4 +215,5 @@ def supply_figures(plan: Plan) -> Supply:
         m.short_circuit is not None,
         cold_outside,
         cold_return,
+        first_fault_touch(m),
     )

@@ -169,6 +169,7 @@ class SafetyResult:
             "cord_pe_ohm": r(s.cord_pe),
             "fuse_resistance_ohm": r(s.fuse_resistance),
             "electrode_ohm": r(s.electrode),
+            "first_fault_v": r(s.first_fault_v),
             "max_disconnection_s": s.max_time,
             "cable_temperature_c": s.cable_temperature,
             "earth_fault_max_a": r(s.earth_fault_max, 3),
@@ -192,7 +193,10 @@ def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | N
         cl = device_clearing(kind, rating, current, m.frequency)
         if cl is not None:
             options.append((cl, "breaker" if kind.startswith("breaker") else "fuse"))
-    if m.rcd is not None:
+    # an IT supply's second fault leaves on one line and comes back on the other: behind one RCD
+    # with the other faulty circuit it leaves no residual current, so only the overcurrent device
+    # is counted (IEC 60364-4-41 411.6.4; one RCD per circuit is the installation's own choice)
+    if m.rcd is not None and m.system != "IT":
         cl = rcd_clearing(m.rcd, current)
         if cl is not None:
             options.append((cl, "rcd"))
@@ -319,6 +323,8 @@ def _part_figures(plan: Plan, sup: Supply, name: str, r: float) -> PartFigures:
     emf = fault_emf(m)  # half the voltage at an IT supply's second fault
     i_f = emf / (outside + r + sup.cord_pe + sup.circuit_cpc)
     touch = i_f * (r + sup.cord_pe + sup.circuit_cpc + sup.electrode)
+    if m.system == "IT":  # between this part and the other faulty one, its circuit's mirror
+        touch *= 2.0
     cl, device = _first_to_open(plan, i_f)
     cl_cold, _ = _first_to_open(plan, emf / (sup.cold_outside + r + sup.cold_return))
     no_device = m.fuse is None and m.rcd is None

@@ -45,6 +45,17 @@ def _loop_origin(result: Result) -> str:
     return " by default"
 
 
+def _first_fault(sup) -> str:
+    """An IT supply's first fault in words, for the table's title ("" elsewhere)."""
+    if sup.system != "IT":
+        return ""
+    if sup.first_fault_v is None:
+        return "; IT: second fault shown, first fault not worked (GC231)"
+    return (
+        f"; IT: second fault shown, first fault R_A × I_d {sup.first_fault_v:.3g} V (limit 50 V)"
+    )
+
+
 def protective_tables(result: Result, console: Console) -> None:
     if result.safety is not None and result.safety.parts:
         sup = result.safety.supply
@@ -52,7 +63,7 @@ def protective_tables(result: Result, console: Console) -> None:
         t = Table(
             title=f"Protective earth (line-to-part fault; {sup.system}, external loop "
             f"{sup.ze:.4g} Ω{_loop_origin(result)}; cables at {sup.cable_temperature:g} °C; "
-            f"disconnection limit {limit})",
+            f"disconnection limit {limit}{_first_fault(sup)})",
             title_justify="left",
         )
         for col in (

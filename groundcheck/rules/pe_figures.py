@@ -105,9 +105,7 @@ def _path_resistance(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
 def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
     """GC207: a conductor on the fault's path too thin to survive until the fault is cleared."""
     out = []
-    worst = max(
-        (p for p in safety.parts if p.i2t is not None), key=lambda p: p.i2t, default=None
-    )
+    worst = max((p for p in safety.parts if p.i2t is not None), key=lambda p: p.i2t, default=None)
     # the fault ahead of the equipment's fuse is the breaker's: no fuse of its own shortens it
     fix = (
         "use a thicker protective conductor: the worst fault (at the inlet, ahead of the "
@@ -168,7 +166,8 @@ def _breaking(plan: Plan, sup) -> list[Finding]:
                 "10000 A', say) to have it checked instead"
             )
         what = (
-            "a line-to-neutral short inside the equipment"
+            f"a {'line-to-line' if m.system == 'IT' else 'line-to-neutral'} short inside the "
+            "equipment"
             if sup.short_circuit >= sup.earth_fault_max
             else "a line-to-protective fault at the inlet"
         )
