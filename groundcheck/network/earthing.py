@@ -126,6 +126,7 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     marked = {c.name for c in plan.conductors if c.role == PROTECTIVE and can_carry_protective(c)}
     marked_reach = frozenset(t for t in targets if dist[t] == 0)
     side = _without_dead_ends(done - (blocked - set(roots)), targets | set(roots), adj, cost)
+    side = _without_dead_blocks(side, targets | set(roots), adj, cost)
     # every conductor between two nodes of the protective side carries fault current, whatever role
     # the plan writes: the route is found from the network, the role only documents it
     keep = route | {
@@ -199,3 +200,30 @@ def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:
                 if v not in ends and degree[v] <= 1:
                     stack.append(v)
     return side
+
+
+def _without_dead_blocks(side: set, ends: set, adj: dict, cost: dict) -> set:
+    """The protective side less the blocks that hang off it at one point and hold no metal part
+    or earth terminal of their own: two sockets fastened to one panel and wired to each other
+    form a ring through the panel that no fault current to any part has to pass (every way from
+    the earth to a part runs through the panel itself), so the wire between them is no protective
+    conductor; pruned until none is left (a dead end is such a block of one conductor)."""
+    import networkx as nx
+
+    side = set(side)
+    while True:
+        G = nx.Graph()
+        G.add_nodes_from(side)
+        for u in side:
+            for v, keys in adj[u].items():
+                if v in side and v != u and any(k in cost for k in keys):
+                    G.add_edge(u, v)
+        cuts = set(nx.articulation_points(G))
+        dead = set()
+        for block in nx.biconnected_components(G):
+            joint = block & cuts
+            if len(joint) == 1 and not (block - joint) & ends:
+                dead |= block - joint
+        if not dead:
+            return side
+        side -= dead
