@@ -14,6 +14,7 @@ from pathlib import Path
 
 from ..model.kinds import PROTECTIVE, is_fastening_kind, joins_devices, shield_like
 from ..model.records import Plan
+from ..network.earthing import earth_terminals
 from ..rules.results import Result
 from .edits import Edit, PlanTexts, shown_path
 
@@ -34,6 +35,8 @@ __all__ = [
     "reroute",
     "rephrase",
     "squeeze",
+    "appended",
+    "NO_TOOL",
 ]
 
 #: a new stud keeps at least this distance from every other fastening and point of the part, m
@@ -60,6 +63,7 @@ ROUTE_ALLOWANCE = 0.2
 ACTIONS = (
     "insulate",
     "remove",
+    "throw",
     "lift-network",
     "move",
     "join",
@@ -94,8 +98,14 @@ class Candidate:
     element: str = ""  # the element it changes (model name), or the one it answers
     refused: str = ""  # why it is considered, never tried (bought equipment, say)
     #: work beyond its edits and wire, in the same rank as wire's metres: an earth electrode
-    #: improved (rods driven, re-measured through the seasons) is more than an RCD fitted
+    #: improved (rods driven, re-measured through the seasons) is more than an RCD fitted; below
+    #: zero for a change made with no tool at all (:data:`NO_TOOL`)
     work: float = 0.0
+
+
+#: a change made with no tool (a switch thrown) ranks before any change of the same gain made
+#: with one, as if it saved this much wire, m (common practice: use the lift before unbolting)
+NO_TOOL = -0.01
 
 
 @dataclass(frozen=True)
@@ -287,6 +297,8 @@ def reroute(
     st = ctx.statement(c) if c is not None else None
     if c is None or st is None or shield_like(c) or to == end:
         return None
+    if to in earth_terminals(ctx.plan)["inlet"] and not ctx.protective(c):
+        return None  # an inlet's protective terminal takes the protective conductor alone
     if is_fastening_kind(c.kind):
         return None  # a bolt holds a point to the metal under it: it runs nowhere else
     if not ctx.same_file(st, to):
@@ -362,3 +374,13 @@ def squeeze(text: str, new: str) -> str:
     if k == len(text) or text[k] in ",#\n":
         return text[:j] + (" " if k < len(text) and text[k] == "#" else "") + text[k:]
     return text
+
+
+def appended(ctx: ChangeContext, st, phrase: str) -> Edit:
+    """The statement ``st`` with ``, phrase`` after its last item (before any comment)."""
+    n, _, b = ctx.src.span(st.phrases[-1][-1])
+    edit = ctx.src.replace(st, [])
+    rows = edit.new.split("\n")
+    row = rows[n - st.loc.line]
+    rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
+    return Edit(edit.line, "\n".join(rows), (), edit.last, edit.file)

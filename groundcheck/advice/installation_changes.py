@@ -14,7 +14,7 @@ from ..model.installation import rated_voltage, shield_ends, suits, supply_at, t
 from ..model.records import Plan
 from ..rules.pe_figures import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
-from .changes import Answer, Candidate, ChangeContext, squeeze
+from .changes import Answer, Candidate, ChangeContext, appended, squeeze
 from .edits import Edit
 from .returns import refuse, refused_balanced
 
@@ -95,7 +95,7 @@ def _link_candidates(ctx: ChangeContext, reason: str, add) -> None:
             edit = (
                 ctx.src.replace(dst, [(ph[1], "lift")])
                 if ph and len(ph) > 1
-                else _appended(ctx, dst, "signal-ground lift")
+                else appended(ctx, dst, "signal-ground lift")
             )
             # a device placed by a 'device ...: simple' statement is bought equipment: its inside
             # is its maker's
@@ -284,16 +284,6 @@ def _fits(plan: Plan):
     )
 
 
-def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
-    """An edit of statement ``st`` with ``, phrase`` after its last item (before any comment)."""
-    n, _, b = ctx.src.span(st.phrases[-1][-1])
-    row = ctx.src.lines[n - 1]
-    edit = ctx.src.replace(st, [])
-    rows = edit.new.split("\n")
-    rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
-    return Edit(edit.line, "\n".join(rows), (), edit.last, edit.file)
-
-
 def shield_to_chassis(ctx: ChangeContext, f):
     """GC113: land the interconnect's shield on the chassis at the end where it lands on a signal
     ground."""
@@ -311,7 +301,7 @@ def shield_to_chassis(ctx: ChangeContext, f):
     edit = (
         ctx.src.replace(st, [(ph[0], new)] + [(it, "") for it in ph[1:]])
         if ph
-        else _appended(ctx, st, new)
+        else appended(ctx, st, new)
     )
     edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
     cand = Candidate(

@@ -1,13 +1,23 @@
 """Opening a ground loop (common practice): insulate the fastening that closes it from the metal
 (an insulated socket or shoulder washers), remove a second chassis bond or the wire that closes
-it, or turn a second bond into a lift network (10 Ω ∥ 47 nF); a shield grounded at both ends is
+it, or turn a second bond into a lift network (10 Ω ∥ 47 nF); a closed switch in a loop (a
+ground-lift switch) is thrown open, the cheapest change there is; a shield grounded at both ends is
 terminated at the end its rule keeps instead, never removed."""
 
 from __future__ import annotations
 
-from ..model.kinds import is_fastening, is_hookup, joins_devices, shield_like
+from ..model.kinds import can_open, is_fastening, is_hookup, joins_devices, shield_like
 from ..model.records import insulating_means
-from .changes import Answer, Candidate, ChangeContext, delete_change, local_name, rephrase
+from .changes import (
+    Answer,
+    Candidate,
+    ChangeContext,
+    NO_TOOL,
+    appended,
+    delete_change,
+    local_name,
+    rephrase,
+)
 from .edits import Edit
 from .returns import insulate_candidates
 
@@ -19,6 +29,7 @@ def loop_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
     to ``add``; the candidates answer ``answer``'s rule."""
     reason = answer.reason
     insulate_candidates(ctx, reason, add)  # a fastened socket first: the same edit keeps its words
+    _throw_switches(ctx, reason, add)
     for lp in ctx.result.loops:
         if lp.closed_by == "chassis-structure" or not lp.open_at:
             continue
@@ -110,3 +121,29 @@ def _means(ctx, c) -> str:
     """How the fastening ``c`` is insulated from its metal, by the kind of the point it holds."""
     point = ctx.points.get(c.b if c.a in ctx.metals else c.a)
     return insulating_means(point.kind if point is not None else None)
+
+
+def _throw_switches(ctx: ChangeContext, reason: str, add) -> None:
+    """Every closed switch in a listed loop (a ground-lift switch left closed) thrown open: the
+    builder put it there to be used.  Never one the protective earth runs through."""
+    seen: set[str] = set()
+    for lp in ctx.result.loops:
+        for name in lp.loop.edges:
+            c = ctx.cond.get(name)
+            if name in seen or c is None or not can_open(c) or not c.closed:
+                continue
+            seen.add(name)
+            st = ctx.statement(c)
+            if st is None or ctx.protective(c):
+                continue
+            title = f"throw {name} open (its lift), so that no ground loop closes through it"
+            if ctx.src.find(st, "closed"):
+                ph = ctx.src.find(st, "closed")
+                edit = ctx.src.replace(st, [(ph[0], "open")])
+            else:
+                edit = appended(ctx, st, "open")
+            add(
+                Candidate(
+                    title, reason, (edit,), False, action="throw", element=name, work=NO_TOOL
+                )
+            )

@@ -20,7 +20,7 @@ import networkx as nx
 
 from ..model.installation import device_of
 from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
-from ..model.records import PE_POINT, SOCKET_KINDS, Plan
+from ..model.records import PE_POINT, SOCKET_KINDS, Plan, insulating_means
 from ..network.earthing import earth_terminals
 from ..rules.equipment import ELV_LIMIT
 from .changes import Candidate, ChangeContext, delete_change
@@ -63,8 +63,8 @@ def _insulate(ctx: ChangeContext, name: str, point: str, metal: str, reason: str
     return delete_change(
         ctx,
         name,
-        f"insulate {name}: {point} off {metal} (an insulated socket or shoulder washers), keeping "
-        "its wired return, so that no ground loop closes through the fastening",
+        f"insulate {name}: {point} off {metal} ({insulating_means(ctx.points[point].kind)}), "
+        "keeping its wired return, so that no ground loop closes through the fastening",
         reason,
         "insulate",
     )

@@ -19,7 +19,7 @@ import math
 from ..physics.safety import TOUCH_LIMIT
 from ..rules.catalogue import RULES
 from ..physics.heater_field import source_heater
-from .changes import Answer, Candidate, ChangeContext
+from .changes import Answer, Candidate, ChangeContext, appended
 from .protective_changes import equipment_mains
 from .edits import Edit
 
@@ -66,22 +66,12 @@ def electrode_target(current: float) -> float:
     return min(math.floor(r / step + 1e-9) * step, STABLE_ELECTRODE)
 
 
-def _appended(ctx: ChangeContext, st, phrase: str) -> Edit:
-    """The statement with ``, phrase`` after its last item (before any comment)."""
-    n, _, b = ctx.src.span(st.phrases[-1][-1])
-    edit = ctx.src.replace(st, [])
-    rows = edit.new.split("\n")
-    row = rows[n - st.loc.line]
-    rows[n - st.loc.line] = row[:b] + ", " + phrase + row[b:]
-    return Edit(edit.line, "\n".join(rows), (), edit.last, edit.file)
-
-
 def _set(ctx: ChangeContext, st, word: str, value: str) -> Edit:
     """The statement's ``word`` phrase given ``value`` (added when the statement has none)."""
     ph = ctx.src.find(st, word)
     if ph and len(ph) == 2:
         return ctx.src.replace(st, [(ph[1], value)])
-    return _appended(ctx, st, f"{word} {value}")
+    return appended(ctx, st, f"{word} {value}")
 
 
 def _rcd(ctx: ChangeContext, st, rating: float, reason: str, why: str) -> Candidate:
@@ -276,7 +266,7 @@ def twist_heater(ctx: ChangeContext, f, add) -> None:
             "valve (its field then stays within a few twists of the pair); the heater statement "
             "then says 'twisted'",
             f.code,
-            (_appended(ctx, st, "twisted"),),
+            (appended(ctx, st, "twisted"),),
             action="twist",
             element=h.name,
         )

@@ -216,4 +216,20 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "socket from the chassis (an insulated socket or shoulder washers); the chassis keeps "
         "its one bond to the signal ground.",
     ),
+    entry(
+        "GC115",
+        "lift-bypassed",
+        TOPOLOGY,
+        "warning",
+        "A ground lift — a switch written open, or a lift network — whose two ends are joined "
+        "without it inside the same equipment: a socket's fastening to the case, a tag bolted "
+        "to the metal, a second wire.",
+        "The lift was put there to open a loop or to let one end float; joined around it, it "
+        "lifts nothing, and the builder who throws it to cure a hum hears no change and may "
+        "reach for the protective earth instead.",
+        "Insulate the fastening that bypasses it (an insulated socket, or shoulder washers), or "
+        "move the lift to where it alone joins the two (a box's pin 1 to its case); never lift "
+        "the protective earth.",
+        "common practice",
+    ),
 ]

@@ -11,6 +11,7 @@ from . import (  # noqa: F401 - imported for their registrations
     installation,
     it_supply,
     lift_fault,
+    lifts,
     live_chassis,
     protective,
     pe_current,

@@ -9,7 +9,15 @@ from __future__ import annotations
 from collections import deque
 
 from ..model.installation import conductors_by_device, device_chassis, device_of, shield_ends
-from ..model.kinds import LEAKAGE, PROTECTIVE_ROLES, in_device_ground, is_fastening, joins_devices
+from ..model.kinds import (
+    LEAKAGE,
+    PROTECTIVE_ROLES,
+    can_open,
+    in_device_ground,
+    is_fastening,
+    is_lift,
+    joins_devices,
+)
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -98,7 +106,7 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
             if chassis is None:
                 continue
             path = signal_ground_path(own.get(dev, []), end, chassis, dev, metals)
-            if not path:
+            if not path or _through_a_lift(own.get(dev, []), path):
                 continue
             advice = (
                 "land the shield on the chassis where the cable enters ('shield-to chassis'), "
@@ -118,6 +126,14 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
                 )
             )
     return out
+
+
+def _through_a_lift(conductors, path: list[str]) -> bool:
+    """Whether the shield's way to the chassis runs through a ground-lift switch or network: the
+    builder's own lift (a box's pin 1 to its case through a switch), which a shield landed on the
+    chassis would bypass."""
+    by_name = {c.name: c for c in conductors}
+    return any(n in by_name and (can_open(by_name[n]) or is_lift(by_name[n])) for n in path)
 
 
 @rule("GC216")
