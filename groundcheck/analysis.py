@@ -16,7 +16,7 @@ from .physics.bonding_test import bonding_figures
 from .physics.circuit import build_circuit
 from .physics.coupling import shared_returns
 from .rules.hum_rules import series_runs
-from .rules.signal_bonds import floating_signal_grounds
+from .rules.signal_networks import floating_signal_grounds
 from .physics.hum import HumBudget, HumOptions
 from .physics.humsettings import spectrum_cut
 from .physics.outlets import OutletWork

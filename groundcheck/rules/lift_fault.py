@@ -19,7 +19,7 @@ from ..model.kinds import is_lift
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
-from .signal_bonds import signal_grounds
+from .signal_networks import signal_grounds
 
 __all__ = ["rule_lift_fault_path"]
 
