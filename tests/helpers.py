@@ -43,3 +43,17 @@ def analysed(path):
     from groundcheck import analyze, load
 
     return analyze(load(path))
+
+
+def field_rooms() -> list[Path]:
+    """The field corpus's plans that no other plan of their folder places as a device: each
+    folder's rooms and lone plans.  A device's own plan is analysed inside its room (its findings,
+    tables and figures are the room's too), so the renderers' checks over the corpus read the
+    rooms; the sweep and each folder's own tests read the device plans."""
+    out = []
+    for folder in sorted((ROOT / "tests" / "field").iterdir()):
+        plans = sorted(folder.glob("*.gplan"))
+        texts = {p: p.read_text(encoding="utf-8") for p in plans}
+        placed = {q.name for q in plans for t in texts.values() if f'"{q.name}"' in t}
+        out += [p for p in plans if p.name not in placed]
+    return out

@@ -12,11 +12,12 @@ import pytest
 
 from groundcheck import analyze
 from groundcheck.renderers.html import html_report
-from helpers import EXAMPLES, ROOT, SHARED_ANALYSIS, analysed, needs_ngspice, plan
+from helpers import EXAMPLES, ROOT, SHARED_ANALYSIS, analysed, field_rooms, needs_ngspice, plan
 from test_plain_words import PYTHON
 from test_rectifier_exact import _ngspice_bridge
 
-FIELD = sorted((ROOT / "tests" / "field").glob("*/*.gplan"))
+#: the field corpus's rooms and lone plans (a device's own plan is rendered inside its room)
+FIELD = field_rooms()
 STUDIO = sorted((ROOT / "examples" / "studio").glob("*.gplan"))
 
 

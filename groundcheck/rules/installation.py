@@ -105,6 +105,8 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
             chassis = device_chassis(dev, own.get(dev, []), metals, end) if dev else None
             if chassis is None:
                 continue
+            if not _amplifies(plan, dev, devices):
+                continue  # a passive box (a transformer DI, a step-up): no circuit ground to cross
             path = signal_ground_path(own.get(dev, []), end, chassis, dev, metals)
             if not path or _through_a_lift(own.get(dev, []), path):
                 continue
@@ -126,6 +128,12 @@ def rule_shield_on_signal_ground(ctx: AuditContext) -> list[Finding]:
                 )
             )
     return out
+
+
+def _amplifies(plan, dev: str, devices) -> bool:
+    """Whether device ``dev`` holds a stage of its own (a circuit whose ground a shield's current
+    would add to its signal); a passive box has none."""
+    return any(device_of(s.a, devices) == dev == device_of(s.b, devices) for s in plan.stages)
 
 
 def _through_a_lift(conductors, path: list[str]) -> bool:
