@@ -151,19 +151,26 @@ def tt_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
         add(_rcd(ctx, st, finer[-1], answer.reason, why))
     target = electrode_target(m.rcd)
     if r_a is None or target < r_a:
-        add(
-            Candidate(
-                "have the installation's earth electrode measured and improved to at most "
-                f"{target:g} Ω (a target: {target:g} Ω × {m.rcd * 1e3:g} mA is within "
-                f"{TOUCH_LIMIT:g} V, and an electrode above {STABLE_ELECTRODE:g} Ω may not stay "
-                f"so): {_DEFER}; the {word} statement then states 'electrode {target:g} ohm'",
-                answer.reason,
-                (_set(ctx, st, "electrode", f"{target:g} ohm"),),
-                action="electrode",
-                element="mains",
-                work=ELECTRODE_WORK,
-            )
+        why = (
+            f"{target:g} Ω × {m.rcd * 1e3:g} mA is within {TOUCH_LIMIT:g} V, and an electrode "
+            f"above {STABLE_ELECTRODE:g} Ω may not stay so"
         )
+        add(_electrode(ctx, st, word, target, why, answer.reason))
+
+
+def _electrode(ctx: ChangeContext, st, word: str, target: float, why: str, reason: str):
+    """The installation's earth electrode improved to ``target`` Ω: the statement ``st`` (of
+    ``word``, mains or supply) then states it."""
+    return Candidate(
+        f"have the installation's earth electrode measured and improved to at most {target:g} Ω "
+        f"(a target: {why}): {_DEFER}; the {word} statement then states 'electrode {target:g} "
+        "ohm'",
+        reason,
+        (_set(ctx, st, "electrode", f"{target:g} ohm"),),
+        action="electrode",
+        element="mains",
+        work=ELECTRODE_WORK,
+    )
 
 
 def it_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
@@ -186,19 +193,8 @@ def it_electrode(ctx: ChangeContext, answer: Answer, add) -> None:
     target = electrode_target(m.first_fault)
     if target >= m.electrode:
         return
-    add(
-        Candidate(
-            "have the installation's earth electrode measured and improved to at most "
-            f"{target:g} Ω (a target: {target:g} Ω × {m.first_fault:g} A is within "
-            f"{TOUCH_LIMIT:g} V): {_DEFER}; the {word} statement then states "
-            f"'electrode {target:g} ohm'",
-            Answer(answer.codes, tuple(dangers)).reason,
-            (_set(ctx, st, "electrode", f"{target:g} ohm"),),
-            action="electrode",
-            element="mains",
-            work=ELECTRODE_WORK,
-        )
-    )
+    why = f"{target:g} Ω × {m.first_fault:g} A is within {TOUCH_LIMIT:g} V"
+    add(_electrode(ctx, st, word, target, why, Answer(answer.codes, tuple(dangers)).reason))
 
 
 def high_breaking(ctx: ChangeContext, f, add) -> None:
