@@ -180,10 +180,13 @@ def _edited_plan(base_text: str, plan: Plan, cand: Candidate, root, resolved) ->
         )
     loose = metals_cut_loose(plan, p)
     if loose:
-        return (
-            f"it would leave {', '.join(loose[:3])} joined to no earth at all (a screen or box "
-            "that floats picks up the hum it should keep out)"
+        touchable = [m for m in loose if plan.metal(m) is not None and plan.metal(m).touchable]
+        why = (
+            "touchable metal earthed by nothing: a fault inside would leave it live"
+            if touchable
+            else "a screen or box that floats picks up the hum it should keep out"
         )
+        return f"it would leave {', '.join(loose[:3])} joined to no earth at all ({why})"
     return p
 
 

@@ -228,11 +228,11 @@ def _components(G: nx.Graph) -> dict[str, frozenset]:
 
 
 def _earthed_metals(plan: Plan) -> set[str]:
-    """The metal parts joined, by any conductor (a lift network too), to the protective earth: a
-    plan's inlet earth, an installation's outlets and earthing terminal."""
+    """The metal parts joined, by any conductor (a lift network, a closed switch too), to the
+    protective earth: a plan's inlet earth, an installation's outlets and earthing terminal."""
     G = nx.Graph()
     for c in plan.conductors:
-        if c.connects and not can_open(c):
+        if c.connects:
             G.add_edge(c.a, c.b)
     refs = {n for names in earth_terminals(plan).values() for n in names}
     reached: set[str] = set()
