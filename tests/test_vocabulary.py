@@ -240,6 +240,7 @@ OTHER_VOCABULARIES = {
     ("advice/candidates.py", "bond"): "repair action names (rules/catalogue_*.py actions)",
     ("advice/changes.py", "bond"): "repair action names",
     ("advice/protective_changes.py", "bond"): "repair action names",
+    ("advice/live_changes.py", "bond"): "repair action names",
     ("rules/catalogue_pe.py", "bond"): "repair action names",
     ("advice/compare.py", "interconnect"): "a key of the outlet rows (physics/outlets.py)",
     ("renderers/compare_page.py", "interconnect"): "a key of the outlet rows",

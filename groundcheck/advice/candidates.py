@@ -34,6 +34,7 @@ from .routing_changes import (
     shared_return_candidates,
     star_candidates,
 )
+from .live_changes import unlive
 from .supply_changes import high_breaking, it_electrode, socket_rcd, tt_electrode, twist_heater
 
 __all__ = [
@@ -66,6 +67,7 @@ FINDING_GENERATORS = {
     "thicken": lambda ctx, f, add: add(thicker(ctx, f)),
     "bond": lambda ctx, f, add: add(bonding_wire(ctx, f)),
     "ht-bond": lambda ctx, f, add: add(ht_return_bond(ctx, f)),
+    "unlive": unlive,
     "high-breaking": high_breaking,
     "twist": twist_heater,
     "carried": carried_actions,
@@ -127,12 +129,13 @@ def _on_live_metal(ctx: ChangeContext, result: Result, out: list[Candidate]) -> 
     live = set(live_network(ctx.plan, ctx.G))
     why = (
         f"the set's chassis is on a pole of the mains ({_LIVE}): every socket and bond of its "
-        "ground stays live through its wiring, so no change to them makes it safe — an isolating "
-        "transformer comes first"
+        "ground stays live through its wiring, so no change to them makes it safe — the tie to "
+        f"the mains comes out first ({_LIVE}'s fix says how)"
     )
     return [
         refuse(c, why)
-        if c.action in ("insulate", "lift-network", "remove", "terminate-at")
+        if c.reason.split(",")[0] != _LIVE
+        and c.action in ("insulate", "lift-network", "remove", "terminate-at")
         and (c.element in live or any(e in live for e in _ends(ctx, c.element)))
         else c
         for c in out

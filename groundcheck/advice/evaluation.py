@@ -190,6 +190,14 @@ def _edited_plan(base_text: str, plan: Plan, cand: Candidate, root, resolved) ->
     return p
 
 
+def _unlives(cand: Candidate, after: Result) -> bool:
+    """Whether ``cand`` answers the live-chassis rule and leaves no metal on the mains: the
+    protective-earth checks the live metal kept from being made (its earth path, its cord) then
+    apply for the first time — their findings are listed, not held against the change."""
+    live = next(code for code, r in RULES.items() if r.name == "live-chassis")
+    return cand.reason.split(",")[0] == live and not any(f.code == live for f in after.findings)
+
+
 def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result) -> Evaluation:
     """The evaluation of candidate ``cand`` whose edited plan ``p`` analyses to ``after``: the
     protective earth's checks first, then the findings cleared and introduced, then the score."""
@@ -205,13 +213,16 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
     ev.cleared = sorted(_label(k0[k]) for k in ev.cleared_keys)
     ev.introduced = sorted(_label(k1[k]) for k in k1.keys() - k0.keys())
     new = k1.keys() - k0.keys()
+    unlive = _unlives(cand, after)
     for sign, keys, found in ((1, k0.keys() - k1.keys(), k0), (-1, new, k1)):
         for k in keys:  # the findings' own severities, not their rules' defaults
             f = found[k]
+            if sign < 0 and unlive and RULES[f.code].family == PROTECTIVE_EARTH:
+                continue  # a check the live metal kept from being made: listed, not counted
             ev.net[f.severity] = ev.net.get(f.severity, 0) + sign
             if f.severity == "fault" and RULES[f.code].family == PROTECTIVE_EARTH:
                 ev.net[PE_FAULT] = ev.net.get(PE_FAULT, 0) + sign
-    if any(k1[k].severity == "danger" for k in new):
+    if not unlive and any(k1[k].severity == "danger" for k in new):
         ev.rejected = ADDS_DANGER
         return ev
     # a protective conductor made thicker takes a larger share of a return that runs there: the

@@ -301,10 +301,12 @@ def lost_circuit(before: Plan, after: Plan) -> list[str]:
 
 def lost_wired_returns(before: Plan, after: Plan) -> list[str]:
     """Sockets and stage ends wired to another point before a change and to none after it, or
-    wired to a star before and to none after (their signal would return through the chassis, or
-    not at all)."""
+    wired to a star or a supply's reservoir return before and to none after (their signal would
+    return through the chassis, or not at all: a ground bus whose one wire to the reservoir is
+    moved elsewhere reaches it through jack nuts and pot bushings)."""
     c0, c1 = _components(wired_graph(before)), _components(wired_graph(after))
     stars = {p.name for p in (*before.points, *after.points) if p.kind == "star"}
+    stars |= {r.a for r in before.rectifiers}
     lost = []
     for p in sorted(_guarded(before, after)):
         if p not in c0 or len(c0[p]) < 2:

@@ -348,5 +348,6 @@ PROTECTIVE_ENTRIES: list[Rule] = [
         "metal reachable and any signal input isolated; work for a qualified person.",
         "common practice; IEC 60479-1 (effects of current through the body), from memory",
         variants=("danger", "warning"),
+        actions=("unlive",),
     ),
 ]

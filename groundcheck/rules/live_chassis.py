@@ -17,7 +17,11 @@ qualified person (common practice).
 
 from __future__ import annotations
 
+import math
+
 import networkx as nx
+
+from ..model.kinds import can_open, is_lift
 
 from .catalogue import Finding
 from .context import AuditContext
@@ -90,6 +94,10 @@ def rule_live_chassis(ctx: AuditContext) -> list[Finding]:
     for name in sorted(live):
         part = ctx.plan.metal(name)
         reach = part.touchable
+        removable = _through_removable(ctx, name)
+        if removable is not None:
+            out.append(_tied_by_a_part(ctx, name, live[name], removable, reach, also))
+            continue
         out.append(
             Finding(
                 "GC230",
@@ -115,3 +123,55 @@ def rule_live_chassis(ctx: AuditContext) -> list[Finding]:
             )
         )
     return out
+
+
+def _through_removable(ctx: AuditContext, part: str) -> list | None:
+    """The lift networks and switches (a capacitor or a "ground switch" from the mains to the
+    chassis) without which ``part`` would reach no pole of the mains: the conductors of its
+    shortest way to a pole that are such parts, or None when it is tied to a pole by wire."""
+    poles = {p.name for p in ctx.plan.points if p.kind == "mains-pole" and p.name in ctx.G}
+    parts = {c.name: c for c in ctx.plan.conductors if is_lift(c) or can_open(c)}
+    H = nx.Graph()
+    for u, v, _, d in ctx.edges:
+        if d["conductor"].name not in parts:
+            H.add_edge(u, v)
+    if part in H and any(p in H and nx.has_path(H, part, p) for p in poles):
+        return None
+    G = nx.Graph()
+    for u, v, _, d in ctx.edges:
+        G.add_edge(u, v, name=d["conductor"].name)
+    pole = min((p for p in poles if p in G and nx.has_path(G, part, p)), key=str)
+    path = nx.shortest_path(G, part, pole)
+    names = [G[u][v]["name"] for u, v in zip(path, path[1:])]
+    return [parts[n] for n in names if n in parts]
+
+
+def _tied_by_a_part(ctx: AuditContext, name: str, pole: str, parts: list, reach: bool, also: str):
+    """GC230 for metal tied to a pole of the mains only through a capacitor or a switch (a vintage
+    set's "ground switch" and its capacitor): the fix is to take that part out and earth the
+    metal, which its power transformer allows; the current a lift's capacitor passes is given."""
+    m = ctx.plan.mains
+    names = ", ".join(c.name for c in parts)
+    figures, current = {}, ""
+    lifts = [c for c in parts if is_lift(c)]
+    if m is not None and len(lifts) == 1:
+        c = lifts[0]
+        y = math.hypot(
+            1.0 / c.resistance if c.resistance else 0.0,
+            2 * math.pi * m.frequency * (c.capacitance or 0.0),
+        )
+        figures = {"current_ma": m.voltage * y * 1e3}
+        current = f"; {c.name} passes {m.voltage * y * 1e3:.3g} mA from the mains to it"
+    return Finding(
+        "GC230",
+        "danger" if reach else "warning",
+        f"{name} is joined to a pole of the mains ({pole}) through {names}, a part between the "
+        f"mains and the metal{current} — and a shorted capacitor puts the line on it{also}",
+        ctx.plan.metal(name).location,
+        (name, pole, *(c.name for c in parts)),
+        figures,
+        f"take {names} out (nothing belongs between the mains and the metal), then earth the "
+        "metal: a three-core cord whose protective conductor lands on a stud of its own — never "
+        f"bond it while {names} is in place; work for a qualified person",
+        tuple(("remove", c.name) for c in parts),
+    )

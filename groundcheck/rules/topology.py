@@ -202,6 +202,8 @@ def _unreached(ctx: AuditContext) -> list[Finding]:
     # it should be
     idle = {f"{d.name}.{PE_POINT}" for d in ctx.plan.devices if d.equipment_class == "II"}
     idle |= {t.name for t in ctx.plan.transformers if t.isolating}  # floating secondaries
+    # a conductor of the mains cord itself (a pole a switch leaves open): mains, not ground
+    idle |= {p.name for p in ctx.plan.points if p.kind == "mains-pole"}
     outlets = {p.name for p in ctx.plan.points if p.kind == "outlet"}
     for comp in members.values():
         if comp & ctx.metals or PE_POINT in comp or comp & ctx.signal_points or comp <= idle:
