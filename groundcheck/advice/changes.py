@@ -297,8 +297,11 @@ def reroute(
     st = ctx.statement(c) if c is not None else None
     if c is None or st is None or shield_like(c) or to == end:
         return None
-    if to in earth_terminals(ctx.plan)["inlet"] and not ctx.protective(c):
+    terminals = earth_terminals(ctx.plan)
+    if to in terminals["inlet"] and not ctx.protective(c):
         return None  # an inlet's protective terminal takes the protective conductor alone
+    if to in terminals["earthing-terminal"]:
+        title += " — work at the main earthing terminal, for a qualified electrician"
     if is_fastening_kind(c.kind):
         return None  # a bolt holds a point to the metal under it: it runs nowhere else
     if not ctx.same_file(st, to):

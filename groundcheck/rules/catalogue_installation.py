@@ -189,4 +189,22 @@ INSTALLATION_ENTRIES: list[Rule] = [
         variants=("danger", "note"),
         actions=("it-electrode",),
     ),
+    entry(
+        "GC232",
+        "earth-through-other-equipment",
+        PROTECTIVE_EARTH,
+        "danger",
+        "In an installation, whether each class I device's own cord and outlet reach the main "
+        "earthing terminal: a device whose outlet does not (its plug's earth cut, an adapter "
+        "without one) but whose metal is earthed through a bonding wire to another device's "
+        "chassis and that device's cord.",
+        "Its protective earth then hangs on equipment that is unplugged, moved or serviced "
+        "without a thought for it: unplug the other device, or unbolt the bond, and the metal is "
+        "earthed by nothing while its own mains cord still feeds it.",
+        "Restore the device's own earth: a plug and outlet whose protective conductor reaches the "
+        "main earthing terminal (work for a qualified person); a bond between chassis is never "
+        "a device's protective earth.",
+        "IEC 60364-5-54 (protective conductors), common practice",
+        actions=("earthed-outlet",),
+    ),
 ]

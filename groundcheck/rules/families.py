@@ -4,6 +4,7 @@
 from . import (  # noqa: F401 - imported for their registrations
     bench,
     bonding,
+    borrowed_earth,
     earthing_system,
     electrical,
     elv_fed_ht,
