@@ -1,8 +1,8 @@
 """An outside technician's 1960s-style 120 V guitar amplifier
 (tests/field/vintage-120v-ground-switch, copied as written): as it came in — a two-prong cord
 and a "ground switch" that puts a 47 nF capacitor from a cord conductor onto the chassis, a 5 A
-glass fuse, the bus bonded at the jacks and the pot — and as he restored it, with two mistakes of his own left in (the face plate bonded by its
-nuts only, the original metal input jack).
+glass fuse, the bus bonded at the jacks and the pot — and as he restored it, with two mistakes of
+his own left in (the face plate bonded by its nuts only, the original metal input jack).
 
 His verdict: as received, the capacitor from the mains to the chassis is the danger, and the fix
 is to take it out and earth the chassis (a three-core cord, the protective conductor on a stud of
