@@ -4,7 +4,6 @@ empty cell in them on any example or field plan."""
 
 import functools
 import math
-import os
 import re
 from html.parser import HTMLParser
 
@@ -17,29 +16,8 @@ from helpers import EXAMPLES, ROOT, SHARED_ANALYSIS, analysed, field_rooms, need
 from test_plain_words import PYTHON
 from test_rectifier_exact import _ngspice_bridge
 
-#: field rooms that between them hold every kind of table (TN, TT and IT supplies, a live chassis,
-#: a reel, a transformer, a lift, plates, rectifiers of every kind); GROUNDCHECK_FULL_FIELD=1 reads
-#: every room and lone plan of the corpus (a device's own plan is rendered inside its room) — the
-#: suite's time is kept under three minutes, and the corpus grows with each outside build
-SAMPLE = (
-    "it-home-integrated/living-room.gplan",
-    "garage-studio-rod/garage-studio.gplan",
-    "monoblocks-tt/room.gplan",
-    "outdoor-stage-reels/outdoor-stage.gplan",
-    "vintage-120v-ground-switch/combo-as-received.gplan",
-    "live-chassis-radio/room-live.gplan",
-    "adapter-headphone-lounge/lounge.gplan",
-    "pub-bass-di-tt/room.gplan",
-    "home-studio-step-down/home-studio.gplan",
-    "se-power-triode/plan.gplan",
-    "valve-phono-dc-heaters/plan.gplan",
-    "flat-hifi-lift/flat.gplan",
-)
-FIELD = (
-    field_rooms()
-    if os.environ.get("GROUNDCHECK_FULL_FIELD")
-    else [ROOT / "tests" / "field" / rel for rel in SAMPLE]
-)
+#: the field corpus's rooms and lone plans (a device's own plan is rendered inside its room)
+FIELD = field_rooms()
 STUDIO = sorted((ROOT / "examples" / "studio").glob("*.gplan"))
 
 
