@@ -6,9 +6,12 @@ remove, insulate) carried out as written."""
 
 from __future__ import annotations
 
+import math
+
 from ..model.kinds import SIGNAL, is_fastening, shield_like
 from ..rules.catalogue import RULES
-from .changes import Answer, Candidate, ChangeContext, delete_change, reroute
+from .changes import ROUTE_ALLOWANCE, Answer, Candidate, ChangeContext, delete_change, reroute
+from .protective_changes import at_end, free_name
 from .returns import refuse
 
 __all__ = [
@@ -193,6 +196,67 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
         add(c)
 
 
+def _own_wire(ctx: ChangeContext, row, reason: str, off_metal: bool = False) -> Candidate | None:
+    """A short wire of its own between a supply return's two ends (reservoir negative and bridge
+    negative), beside whatever joins them now: the rule's own fix, for a return that runs through
+    a plate or a bus with no wire of its own to move.  With ``off_metal``, the fastening that
+    lands one end on a plate (a bridge negative bolted to a ground plane) comes off in the same
+    change, so the current has no other way.  Both ends in the plan's own file, with positions;
+    the wire as thick as the thickest non-protective wire at either end (0.5 mm², a hook-up wire,
+    when none says: common practice)."""
+    if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
+        return None  # joined by a conductor of their own already
+    pa, pb = ctx.points.get(row.a), ctx.points.get(row.b)
+    if pa is None or pb is None or pa.pos is None or pb.pos is None:
+        return None
+    if "." in row.a + row.b:
+        return None  # inside a block or a device: a new statement there is the block's own
+    if {pa.location.file, pb.location.file} != {ctx.plan.file}:
+        return None
+    areas = [
+        d.area
+        for e in (row.a, row.b)
+        for d in ctx.at(e)
+        if d.area and not ctx.protective(d) and not shield_like(d)
+    ]
+    area = max(areas, default=0.5e-6) * 1e6
+    length = max(math.dist(pa.pos, pb.pos) * (1 + ROUTE_ALLOWANCE), 10e-3) * 1e3
+    name = free_name(ctx, (f"{row.b}_ret", f"{row.b}_ret2", f"{row.b}_ret3"))
+    st = ctx.statement(next(iter(ctx.at(row.a)), None)) if ctx.at(row.a) else None
+    if st is None or st.loc.file != ctx.plan.file:
+        return None
+    extra = (f"wire {name}: {row.a} to {row.b}, {length:.0f} mm, {area:g} mm2, return",)
+    edits, off = [at_end(ctx, st, extra)], ""
+    if off_metal:
+        if row.source not in {r.name for r in ctx.plan.rectifiers}:
+            return None  # a filter's or regulator's return: the reservoir keeps its place
+        # the rectifiers' end (bridge negative, centre tap) comes off; the reservoir keeps its
+        # link to the ground
+        held = [
+            (row.b, d)
+            for d in ctx.at(row.b)
+            if is_fastening(d, ctx.metals) and not ctx.protective(d)
+        ]
+        if len(held) != 1:
+            return None
+        ((end, bolt),) = held
+        gone = ctx.statement(bolt)
+        if gone is None or gone.loc.file != ctx.plan.file:
+            return None
+        edits.insert(0, ctx.src.delete(gone))
+        off = f", and {end} off the metal ({bolt.name} out)"
+    return Candidate(
+        f"join {row.a} and {row.b} by a short wire of their own ({name}, {length:.0f} mm, "
+        f"{area:g} mm²){off}, so the {row.source} current stays between them and leaves "
+        f"{', '.join(row.shared)}",
+        reason,
+        tuple(edits),
+        action="join",
+        element=name,
+        wire=length / 1e3,
+    )
+
+
 def _from_most_sensitive(ctx: ChangeContext) -> tuple[dict, str | None]:
     """Hops through the ground network from the points of the stage of highest gain, and its
     name (({}, None) without stages)."""
@@ -232,6 +296,8 @@ def shared_return_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
     for row in ctx.result.coupling:
         if row.kind == "rectifier":
             _join_ends(ctx, row, reason, add)
+            add(_own_wire(ctx, row, reason))
+            add(_own_wire(ctx, row, reason, off_metal=True))
         stage = next((s for s in plan.stages if s.name == row.stage), None)
         if row.kind not in ("rectifier", "current") or stage is None:
             continue
