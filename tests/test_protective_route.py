@@ -50,3 +50,15 @@ def test_a_wire_that_joins_two_parts_stays_on_the_route():
         + "metal lid: aluminium 1 mm, 400 x 280 mm, touchable\n"
     )
     assert {"link", "in2_nut"} <= AuditContext(p).route.conductors
+
+
+def test_a_ground_plane_written_signal_only_holds_no_protective_conductor():
+    # an outside builder's board: a copper plane screwed to the case at its standoffs; written as
+    # plain metal its standoffs were protective conductors (a heater return "written as return but
+    # carrying the protective earth"); written signal-only they are the signal ground's bonds
+    text = SOCKETS + (
+        "metal plane: copper 0.035 mm, 120 x 80 mm, at 150,100, signal-only\n"
+        "bolt mh1: plane to deck, via 160,110\nbolt mh2: plane to deck, via 260,170\n"
+    )
+    route = AuditContext(plan(text)).route.conductors
+    assert not {"mh1", "mh2"} & route and "pe_lead" in route

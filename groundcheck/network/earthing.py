@@ -105,7 +105,9 @@ def protective_route(plan: Plan, adj: dict) -> ProtectiveRoute:
     roots = next((terms[k] for k in EARTH_TERMINAL_KINDS if terms[k]), [])
     roots = [r for r in roots if r in adj]
     blocked = signal_points(plan)
-    metals = {m.name for m in plan.metals}
+    # metal written signal-only (a reverb pan, a board's ground plane) is no part the protective
+    # earth must reach: the conductors that join it are the signal ground's, never protective
+    metals = {m.name for m in plan.metals if not m.signal_only}
     # each conductor's cost once: 0 marked protective, 1 any other kind that may carry protective
     # current
     cost = {
