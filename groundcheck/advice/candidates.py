@@ -19,7 +19,7 @@ from __future__ import annotations
 
 from ..model.records import Plan
 from ..rules.catalogue import RULES
-from ..rules.live_chassis import live_network
+from ..rules.live_chassis import LIVE_CHASSIS as _LIVE, live_network
 from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, device_note
 from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
@@ -113,10 +113,6 @@ def candidates(plan: Plan, result: Result, text: str) -> list[Candidate]:
     for action, generate in AFTER_FINDINGS.items():
         generate(ctx, answer(result, action), add)
     return _on_live_metal(ctx, result, out)
-
-
-#: the live-chassis rule's code, read from the catalogue by its name (no code spelled here)
-_LIVE = next(code for code, r in RULES.items() if r.name == "live-chassis")
 
 
 def _on_live_metal(ctx: ChangeContext, result: Result, out: list[Candidate]) -> list[Candidate]:

@@ -22,6 +22,7 @@ from ..model.kinds import is_fastening_kind
 from ..model.records import Plan
 from ..physics.humsettings import far_below_hearing
 from ..rules.catalogue import RULES, severity_rank
+from ..rules.live_chassis import LIVE_CHASSIS
 from ..rules.rule_families import HUM, PROTECTIVE_EARTH
 from .changes import Candidate
 from .edits import apply_edits, edited_texts
@@ -194,8 +195,9 @@ def _unlives(cand: Candidate, after: Result) -> bool:
     """Whether ``cand`` answers the live-chassis rule and leaves no metal on the mains: the
     protective-earth checks the live metal kept from being made (its earth path, its cord) then
     apply for the first time — their findings are listed, not held against the change."""
-    live = next(code for code, r in RULES.items() if r.name == "live-chassis")
-    return cand.reason.split(",")[0] == live and not any(f.code == live for f in after.findings)
+    return cand.reason.split(",")[0] == LIVE_CHASSIS and not any(
+        f.code == LIVE_CHASSIS for f in after.findings
+    )
 
 
 def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result) -> Evaluation:

@@ -137,11 +137,8 @@ def _throw_switches(ctx: ChangeContext, reason: str, add) -> None:
             if st is None or ctx.protective(c):
                 continue
             title = f"throw {name} open (its lift), so that no ground loop closes through it"
-            if ctx.src.find(st, "closed"):
-                ph = ctx.src.find(st, "closed")
-                edit = ctx.src.replace(st, [(ph[0], "open")])
-            else:
-                edit = appended(ctx, st, "open")
+            ph = ctx.src.find(st, "closed")
+            edit = ctx.src.replace(st, [(ph[0], "open")]) if ph else appended(ctx, st, "open")
             add(
                 Candidate(
                     title, reason, (edit,), False, action="throw", element=name, work=NO_TOOL

@@ -44,18 +44,20 @@ def rule_borrowed_earth(s: Solved) -> list[Finding]:
         dev = index.devices.get(e.device)
         if e.resistance is None or dev is None or not dev.plugged or dev.plugged not in G:
             continue
-        own = [n for n in G if index.device_of(n) == dev.name] + [e.inlet]
+        own = {n for n in G if index.device_of(n) == dev.name} | {e.inlet}
         H = G.subgraph(n for n in G if n not in own)
         if dev.plugged in H and any(m in H and nx.has_path(H, dev.plugged, m) for m in mets):
             continue
-        cord = f"{dev.name}.cord"
-        via = sorted(
-            {G[u][v]["name"] for u in own if u in G for v in G[u] if v not in own} - {cord}
-        )
-        ends = [v for u in own if u in G for v in G[u] if v not in own and v != dev.plugged]
-        near = set().union(*(nx.node_connected_component(H, v) for v in ends if v in H))
+        # what leaves the device other than its own cord (which lands on its outlet)
+        leaving = [
+            (G[u][v]["name"], v)
+            for u in own & G.nodes
+            for v in G[u]
+            if v not in own and v != dev.plugged
+        ]
+        near = set().union(*(nx.node_connected_component(H, v) for _, v in leaving))
         others = sorted({index.device_of(n) for n in near} - {None, dev.name})
-        out.append(_borrowed(dev, e, via, others))
+        out.append(_borrowed(dev, e, sorted({k for k, _ in leaving}), others))
     return out
 
 

@@ -8,7 +8,7 @@ from __future__ import annotations
 import networkx as nx
 
 from ..model.kinds import can_open, is_fastening, is_lift, joins_devices
-from ..model.records import SOCKET_KINDS
+from ..model.records import SOCKET_KINDS, insulating_means
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
@@ -35,21 +35,21 @@ def rule_lift_bypassed(ctx: AuditContext) -> list[Finding]:
     ]
     if not lifts:
         return []
-    index = ctx.plan.index
+    device_of = ctx.plan.index.device_of
+    # inside one piece of equipment: no link between devices, no conductor between two of them
+    inside = nx.subgraph_view(
+        ctx.G,
+        filter_edge=lambda u, v, k: (
+            not joins_devices(ctx.conductors[k]) and device_of(u) == device_of(v)
+        ),
+    )
     out = []
     for c in lifts:
-        own = index.device_of(c.a)
-        H = nx.Graph()
-        for u, v, _, d in ctx.edges:
-            k = d["conductor"]
-            if k.name == c.name or joins_devices(k):
-                continue
-            if index.device_of(u) == own and index.device_of(v) == own:
-                H.add_edge(u, v, name=k.name)
-        if c.a not in H or c.b not in H or not nx.has_path(H, c.a, c.b):
+        around_it = nx.subgraph_view(inside, filter_edge=lambda u, v, k, c=c: k != c.name)
+        if c.a not in ctx.G or c.b not in ctx.G or not nx.has_path(around_it, c.a, c.b):
             continue
-        path = nx.shortest_path(H, c.a, c.b)
-        around = [H[u][v]["name"] for u, v in zip(path, path[1:])]
+        path = nx.shortest_path(around_it, c.a, c.b)
+        around = [next(iter(around_it[u][v])) for u, v in zip(path, path[1:])]
         out.append(_bypassed(ctx, c, around))
     return out
 
@@ -58,17 +58,16 @@ def _bypassed(ctx: AuditContext, c, around: list[str]) -> Finding:
     """The finding for lift ``c`` joined around by the conductors ``around``: each fastening
     there that holds a socket or jack is one to insulate."""
     what = "is open" if can_open(c) else "is a lift network"
-    sockets = [
-        k
+    held = {
+        k: kind
         for k in around
         if is_fastening(ctx.conductors[k], ctx.metals)
-        and any(
-            getattr(ctx.plan.point(p), "kind", None) in SOCKET_KINDS
-            for p in (ctx.conductors[k].a, ctx.conductors[k].b)
-        )
-    ]
+        for p in (ctx.conductors[k].a, ctx.conductors[k].b)
+        if (kind := getattr(ctx.plan.point(p), "kind", None)) in SOCKET_KINDS
+    }
+    sockets = list(held)
     fix = (
-        f"insulate {', '.join(sockets)} (an insulated socket or shoulder washers) so that only "
+        f"insulate {', '.join(sockets)} ({insulating_means(held[sockets[0]])}) so that only "
         f"{c.name} joins {c.a} and {c.b}"
         if sockets
         else f"move {c.name} to where it alone joins the two, or undo {', '.join(around)}"

@@ -23,11 +23,14 @@ import networkx as nx
 
 from ..model.kinds import can_open, is_lift
 
-from .catalogue import Finding
+from .catalogue import RULES, Finding
 from .context import AuditContext
 from .registry import rule
 
-__all__ = ["rule_live_chassis", "live_metals", "live_network"]
+__all__ = ["rule_live_chassis", "live_metals", "live_network", "LIVE_CHASSIS"]
+
+#: the live-chassis rule's code, read from the catalogue by its name (the advisor asks for it here)
+LIVE_CHASSIS = next(code for code, r in RULES.items() if r.name == "live-chassis")
 
 
 def live_network(plan, G) -> dict[str, str]:
@@ -129,21 +132,15 @@ def _through_removable(ctx: AuditContext, part: str) -> list | None:
     """The lift networks and switches (a capacitor or a "ground switch" from the mains to the
     chassis) without which ``part`` would reach no pole of the mains: the conductors of its
     shortest way to a pole that are such parts, or None when it is tied to a pole by wire."""
-    poles = {p.name for p in ctx.plan.points if p.kind == "mains-pole" and p.name in ctx.G}
+    G = ctx.G
+    poles = {p.name for p in ctx.plan.points if p.kind == "mains-pole" and p.name in G}
     parts = {c.name: c for c in ctx.plan.conductors if is_lift(c) or can_open(c)}
-    H = nx.Graph()
-    for u, v, _, d in ctx.edges:
-        if d["conductor"].name not in parts:
-            H.add_edge(u, v)
-    if part in H and any(p in H and nx.has_path(H, part, p) for p in poles):
+    wired = nx.subgraph_view(G, filter_edge=lambda u, v, k: k not in parts)
+    if any(nx.has_path(wired, part, p) for p in poles):
         return None
-    G = nx.Graph()
-    for u, v, _, d in ctx.edges:
-        G.add_edge(u, v, name=d["conductor"].name)
-    pole = min((p for p in poles if p in G and nx.has_path(G, part, p)), key=str)
+    pole = min((p for p in poles if nx.has_path(G, part, p)), key=str)
     path = nx.shortest_path(G, part, pole)
-    names = [G[u][v]["name"] for u, v in zip(path, path[1:])]
-    return [parts[n] for n in names if n in parts]
+    return [parts[k] for u, v in zip(path, path[1:]) for k in G[u][v] if k in parts]
 
 
 def _tied_by_a_part(ctx: AuditContext, name: str, pole: str, parts: list, reach: bool, also: str):
