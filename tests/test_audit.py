@@ -11,6 +11,7 @@ from groundcheck import PlanErrors, load
 from groundcheck.analysis import analyze
 from groundcheck.analysis import audit
 from groundcheck.network.graph import edges_of, fundamental_loops, loop_count
+from groundcheck.renderers.json_results import hum_json
 
 from helpers import EXAMPLES, HEADER, plan
 
@@ -359,7 +360,7 @@ def test_headphone_crosstalk_against_a_hand_calculation():
     r = 84.22e-3 * 0.120
     volts = 0.060 * r * 10 ** (12 / 20)
     mb = analyze(load(next(p for p in EXAMPLES if p.name == "headphone-amp-100v.gplan")))
-    rows = {(x["from"], x["to"], x["frequency_hz"]): x for x in mb.hum.as_dict()["crosstalk"]}
+    rows = {(x["from"], x["to"], x["frequency_hz"]): x for x in hum_json(mb.hum)["crosstalk"]}
     # at 120 Hz the wire's reactance is negligible: the resistive figure within 0.5 %
     assert rows[("left", "right", 120.0)]["volts"] == pytest.approx(volts, rel=5e-3)
     # at 1 kHz its inductance (about 0.1 uH, 0.7 mohm of reactance) adds a few hundredths of a dB

@@ -32,9 +32,7 @@ def _ngspice(netlist: str) -> tuple[dict[str, complex], str]:
     with tempfile.TemporaryDirectory() as d:
         out, cir = Path(d) / "out.txt", Path(d) / "net.cir"
         body = netlist.replace(".end\n", "")
-        cir.write_text(
-            body + f".control\nset numdgt=12\nrun\nprint all > {out}\n.endc\n.end\n"
-        )
+        cir.write_text(body + f".control\nset numdgt=12\nrun\nprint all > {out}\n.endc\n.end\n")
         said = subprocess.run(
             ["ngspice", "-b", str(cir)], capture_output=True, text=True, timeout=120
         )

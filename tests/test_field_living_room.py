@@ -78,10 +78,6 @@ def test_a_shared_returns_level_is_its_own_not_its_sources_whole():
     from groundcheck.analysis import analyze
 
     r = analyze(load(FIELD / "preamp.gplan"))
-    (f,) = [
-        x
-        for x in r.findings
-        if x.code == "GC102" and x.elements[:2] == ("ht.filter", "cf_l")
-    ]
+    (f,) = [x for x in r.findings if x.code == "GC102" and x.elements[:2] == ("ht.filter", "cf_l")]
     assert f.severity == "note"
     assert f.figures["level_dbv"] == pytest.approx(-144.2, abs=1.0)

@@ -15,7 +15,7 @@ FIELD = Path(__file__).parent / "field" / "lounge-line-preamp"
 
 def _line(result, channel: str, hz: float) -> float:
     rows = result.hum.channels[channel].spectrum
-    return next(r["dbv"] for r in rows if abs(r["frequency_hz"] - hz) < 1e-9)
+    return next(r.dbv for r in rows if abs(r.frequency - hz) < 1e-9)
 
 
 def test_the_preamps_own_pickup_is_the_same_placed_in_the_lounge():

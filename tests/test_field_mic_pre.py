@@ -55,8 +55,8 @@ def test_the_phantom_hum_as_worked_by_hand(checked):
     # 1.03 mohm), times 46 dB: -47.7 dBV at each output at 100 Hz; within 1 dB (the reviewer's
     # 20 mA is an estimate from the DC current, the tool's 20.9 mA simulated)
     for ch in ("left", "right"):
-        line = next(r for r in checked.hum.channels[ch].spectrum if r["frequency_hz"] == 100.0)
-        assert line["dbv"] == pytest.approx(-47.7, abs=1.0)
+        line = next(r for r in checked.hum.channels[ch].spectrum if r.frequency == 100.0)
+        assert line.dbv == pytest.approx(-47.7, abs=1.0)
 
 
 def test_the_earths_own_stud_goes_on_the_case_never_on_the_lid(advised):

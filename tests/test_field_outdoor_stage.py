@@ -53,9 +53,7 @@ def test_the_broken_earths_and_the_heads_own_dangers_are_reported():
     r = _checked()
     broken = {f.elements[0] for f in r.findings if f.code == "GC215" and f.severity == "danger"}
     assert {"bass", "spk_r"} <= broken
-    own = {
-        (f.code, f.severity) for f in r.findings if f.message.startswith("gtr's own wiring")
-    }
+    own = {(f.code, f.severity) for f in r.findings if f.message.startswith("gtr's own wiring")}
     # the head's 1 mm² inlet lead passes PVC's 160 °C only in the long bonding test (2 × the
     # building's 16 A for 2 min): its path stays whole, a fault (GC223's catalogue entry)
     assert {("GC206", "danger"), ("GC223", "fault")} <= own
@@ -94,9 +92,7 @@ def test_the_heads_fault_figures_are_in_the_installations_own_outputs(cli):
     # this supply, through the reels (the breaker's 60 s thermal band: never within 0.4 s)
     import json
 
-    code, out, _ = cli(
-        "check", str(STAGE), "--advice-budget", "0", "--no-hum", "--format", "json"
-    )
+    code, out, _ = cli("check", str(STAGE), "--advice-budget", "0", "--no-hum", "--format", "json")
     (gtr,) = [d for d in json.loads(out)["device_earths"] if d["device"] == "gtr"]
     assert 60.0 <= gtr["fault"]["fault_current_a"] <= 65.0
     assert gtr["fault"]["clear_time_s"] == 60.0 and gtr["fault"]["device"] == "breaker"

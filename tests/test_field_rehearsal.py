@@ -85,8 +85,10 @@ def test_a_120_v_glass_fuse_warning_asks_for_its_rating_at_that_voltage():
     (f,) = [f for f in r.findings if f.code == "GC211"]
     assert f.severity == "warning" and "at 250 V: on a 120 V supply" in f.message
     # stated, it is checked instead: 10 kA at 125 V breaks the 196 A short, no finding
-    text = (FIELD / "head.gplan").read_text(encoding="utf-8").replace(
-        "fuse 2 A slow", "fuse 2 A slow, breaking 10000 A", 1
+    text = (
+        (FIELD / "head.gplan")
+        .read_text(encoding="utf-8")
+        .replace("fuse 2 A slow", "fuse 2 A slow, breaking 10000 A", 1)
     )
     from groundcheck import load_text
 

@@ -35,7 +35,7 @@ def test_the_plans_as_they_are_run_the_compressor_at_the_supply_frequency(name):
     (hv,) = [x for x in r.rectifiers if x.name == "comp.hv"]
     assert hv.frequency == 50.0  # not 60 Hz: the step-down passes the supply's frequency
     # every hum line is a multiple of the 50 Hz supply's frequency, none of 60 Hz alone
-    lines = {x["frequency_hz"] for ch in r.hum.channels.values() for x in ch.spectrum}
+    lines = {x.frequency for ch in r.hum.channels.values() for x in ch.spectrum}
     assert lines and all(f % 50 == 0 for f in lines)
     # must find: the unbalanced synth link between outlets of one ring
     assert any("synth_in" in f.elements for f in r.findings)

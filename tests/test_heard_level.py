@@ -9,10 +9,15 @@ import pytest
 
 from groundcheck.advice.hearing import heard_level
 from groundcheck.advice.report import _hum_change_words
+from groundcheck.physics.hum_rows import SpectrumLine
 
 
 def _result(*margins):
-    rows = [{"frequency_hz": 50.0 * (i + 1), "margin_db": m} for i, m in enumerate(margins)]
+    # each line's SPL over a threshold of 0 dB is its margin (None: no listening verdict)
+    rows = [
+        SpectrumLine(50.0 * (i + 1), 1e-3, 1e-3, m, None if m is None else 0.0)
+        for i, m in enumerate(margins)
+    ]
     channel = SimpleNamespace(spectrum=rows)
     return SimpleNamespace(hum=SimpleNamespace(channels={"left": channel}))
 

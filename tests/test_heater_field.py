@@ -132,7 +132,7 @@ def test_an_ac_heater_pair_is_a_source_in_the_hum_budget():
     # closest approach, worked by hand: the loop's top edge (y = 80 mm) to the nearer wire (y = 100
     # − 2.5 mm, 5 mm up): √(17.5² + 5²) = 18.20 mm
     assert entry["closest_mm"] == pytest.approx(18.2, abs=0.05) and entry["size_mm"] is None
-    assert any(c["source"] == "htr.wiring" for c in r.hum.channels["main"].contributors)
+    assert any(c.source == "htr.wiring" for c in r.hum.channels["main"].contributors)
     twisted = analyze(load_text(PLAN.format(route="10,100 250,100", extra=", twisted"), "h.gplan"))
     assert not twisted.hum.loops or "htr.wiring" not in twisted.hum.loops[0]["sources"]
 

@@ -222,12 +222,10 @@ def test_crosstalk_through_a_shared_return_by_hand():
         """)
     r = analyze(p)
     row = next(
-        x
-        for x in r.hum.crosstalk
-        if x["from"] == "a" and x["to"] == "b" and x["frequency_hz"] == 1000.0
+        x for x in r.hum.crosstalk if x.source == "a" and x.to == "b" and x.frequency == 1000.0
     )
-    assert row["volts"] == pytest.approx(0.010 * 0.020 * 100, rel=1e-9)
-    assert row["db"] == pytest.approx(20 * math.log10(0.010 * 0.020 * 100 / 2.0), abs=0.01)
+    assert row.volts == pytest.approx(0.010 * 0.020 * 100, rel=1e-9)
+    assert row.db == pytest.approx(20 * math.log10(0.010 * 0.020 * 100 / 2.0), abs=0.01)
 
 
 def test_levels():
@@ -272,7 +270,7 @@ def test_symmetric_dual_mono_gives_identical_channels():
     left, right = r.hum.channels["left"], r.hum.channels["right"]
     assert left.total_v > 0 and left.total_v == pytest.approx(right.total_v, rel=1e-9)
     for a, b in zip(left.spectrum, right.spectrum):
-        assert a["volts"] == pytest.approx(b["volts"], rel=1e-6, abs=1e-15)
+        assert a.volts == pytest.approx(b.volts, rel=1e-6, abs=1e-15)
 
 
 @pytest.mark.parametrize("path", EXAMPLES, ids=[e.name for e in EXAMPLES])
@@ -281,7 +279,7 @@ def test_examples_report_budget_with_contributors_and_verdict(path):
     assert r.hum is not None and r.hum.channels
     for ch in r.hum.channels.values():
         assert ch.spectrum and ch.contributors and ch.audible in (True, False)
-        assert all(math.isfinite(x["volts"]) for x in ch.spectrum)
+        assert all(math.isfinite(x.volts) for x in ch.spectrum)
 
 
 def test_audible_hum_is_a_fault_with_contributors():
@@ -315,19 +313,19 @@ stage s2: m to b, gain 20 dB, channel out
 """
     r = analyze(load_text(text, "two.gplan"))
     h = r.hum.channels["out"]
-    row = next(x for x in h.spectrum if x["frequency_hz"] == 100.0)
+    row = next(x for x in h.spectrum if x.frequency == 100.0)
     # by symmetry the rectifier current leaves a and returns at b: both stages see the same drop,
     # in phase (a→m and m→b), so here the worst case equals the signed sum and every share is
     # positive
-    assert row["volts"] == pytest.approx(row["volts_signed"], rel=1e-9)
-    assert sum(c["share_pct"] for c in h.contributors) == pytest.approx(100.0, abs=0.5)
+    assert row.volts == pytest.approx(row.volts_signed, rel=1e-9)
+    assert sum(c.share for c in h.contributors) == pytest.approx(100.0, abs=0.5)
     flipped = analyze(load_text(text.replace("stage s2: m to b", "stage s2: b to m"), "two.gplan"))
     h2 = flipped.hum.channels["out"]
-    row2 = next(x for x in h2.spectrum if x["frequency_hz"] == 100.0)
+    row2 = next(x for x in h2.spectrum if x.frequency == 100.0)
     # s2 now reads the same drop with the opposite sign: the signed sum cancels to nothing, the
     # worst case is the same as before (magnitudes)
-    assert row2["volts"] == pytest.approx(row["volts"], rel=1e-9)
-    assert row2["volts_signed"] < 1e-6 * row["volts"]
+    assert row2.volts == pytest.approx(row.volts, rel=1e-9)
+    assert row2.volts_signed < 1e-6 * row.volts
     from groundcheck.renderers.text import text_report
 
     assert "with every stage non-inverting" in text_report(flipped)  # the summary says both

@@ -29,7 +29,7 @@ def test_studio_loop_through_two_cords_and_a_shield_is_found_and_quantified():
     mon = r.hum.channels["monitors"]
     assert mon.audible is True and mon.contributors
     # the leakage current's odd harmonics are in the spectrum
-    assert {150.0, 250.0} <= {x["frequency_hz"] for x in mon.spectrum if x["volts"] > 0}
+    assert {150.0, 250.0} <= {x.frequency for x in mon.spectrum if x.volts > 0}
     assert any(f.code == "GC102" and "mix_out" in f.elements for f in r.findings)
 
 
@@ -54,8 +54,8 @@ def test_device_reuse_gives_the_same_figures_as_alone(tmp_path):
     placed = analyze(load(inst))
     a, b = alone.hum.channels["main"], placed.hum.channels["pre.main"]
     assert b.total_v == pytest.approx(a.total_v, rel=1e-9, abs=1e-15)
-    assert [x["volts"] for x in b.spectrum] == pytest.approx(
-        [x["volts"] for x in a.spectrum], rel=1e-9, abs=1e-15
+    assert [x.volts for x in b.spectrum] == pytest.approx(
+        [x.volts for x in a.spectrum], rel=1e-9, abs=1e-15
     )
     assert placed.loop_total == alone.loop_total
     expected = sorted(f.code for f in alone.findings if f.rule.family != PROTECTIVE_EARTH)
@@ -264,7 +264,7 @@ def _lead_volts(text: str, hz: float) -> float:
     from groundcheck.analysis import analyze
 
     r = analyze(load_text(text, "lead.gplan"))
-    return next(x["volts"] for x in r.hum.channels["main"].spectrum if x["frequency_hz"] == hz)
+    return next(x.volts for x in r.hum.channels["main"].spectrum if x.frequency == hz)
 
 
 REEL = """plan "reel"

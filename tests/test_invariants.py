@@ -90,8 +90,8 @@ def _channel_figures(result, ch: str, swap=lambda s: s) -> dict:
         return swap(name)
 
     out = {"total": h.total_v, "signed": h.signed_v}
-    out |= {("f", s["frequency_hz"]): s["volts"] for s in h.spectrum}
-    out |= {("c", element(c["element"]), swap(c["source"])): c["volts"] for c in h.contributors}
+    out |= {("f", s.frequency): s.volts for s in h.spectrum}
+    out |= {("c", element(c.element), swap(c.source)): c.volts for c in h.contributors}
     out |= {("g", _group(g, swap)): v for g, v in result.hum.levels[ch].items()}
     out |= {
         ("t", swap(c.stage), swap(c.source)): c.transfer
@@ -108,8 +108,8 @@ def _all_figures(result) -> list[float]:
     for h in result.hum.channels.values():
         out += (
             [h.total_v, h.signed_v]
-            + [s["volts"] for s in h.spectrum]
-            + [c["volts"] for c in h.contributors]
+            + [s.volts for s in h.spectrum]
+            + [c.volts for c in h.contributors]
         )
     out += [c.transfer for c in result.coupling]
     if result.safety is not None:
@@ -429,8 +429,8 @@ def test_equal_hum_shares_are_named_alike_under_new_names():
     named = []
     for text in (_chain_plan(), _chain_plan(name)):
         h = analyze(load_text(text, "chain.gplan")).hum.channels["c"]
-        named.append(sorted(atoms.get(c["element"], c["element"]) for c in h.contributors))
-        shares = [c["volts"] for c in h.contributors if c["element"] != "other conductors"]
+        named.append(sorted(atoms.get(c.element, c.element) for c in h.contributors))
+        shares = [c.volts for c in h.contributors if c.element != "other conductors"]
         assert len(shares) == 10 and all(_close(v, 1e-3) for v in shares), shares
     assert named[0] == named[1], named
 

@@ -65,8 +65,8 @@ load 200 mA
 def test_the_hum_budget_uses_the_stated_chain(chain):
     r = analyze(load_text(PLAN.format(chain=chain), "phones.gplan"))
     h = r.hum.channels["phones"]
-    row = next(x for x in h.spectrum if x["frequency_hz"] == 100.0)
-    v = row["volts"]
+    row = next(x for x in h.spectrum if x.frequency == 100.0)
+    v = row.volts
     assert v > 0 and h.audible is not None
     # the level at the ear from the output voltage, by the definitions written out here (not
     # groundcheck's own functions): per mW, 100 + 10·log10(v²/32 Ω / 1 mW); per V, 110 + 20·log10(v
@@ -80,8 +80,8 @@ def test_the_hum_budget_uses_the_stated_chain(chain):
         expected = (
             88.0 + 10 * math.log10(v * v / 8.0) - 20 * math.log10(3.0) + 20 * math.log10(2) + 3.0
         )
-    assert row["spl_db"] == pytest.approx(expected, abs=0.01)
-    assert row["margin_db"] == pytest.approx(expected - 26.5, abs=0.01)
+    assert row.spl == pytest.approx(expected, abs=0.01)
+    assert row.margin == pytest.approx(expected - 26.5, abs=0.01)
 
 
 def test_a_chain_with_both_speaker_and_headphones_is_refused():
@@ -106,6 +106,6 @@ def test_background_noise_masks_hum_below_it():
         )
     )
     for q, n in zip(quiet.hum.channels["phones"].spectrum, noisy.hum.channels["phones"].spectrum):
-        if "spl_db" in q:
-            assert n["threshold_db"] == pytest.approx(max(q["threshold_db"], 36.0), abs=1e-9)
-            assert n["margin_db"] == pytest.approx(n["spl_db"] - n["threshold_db"], abs=0.011)
+        if q.threshold is not None:
+            assert n.threshold == pytest.approx(max(q.threshold, 36.0), abs=1e-9)
+            assert n.margin == pytest.approx(n.spl - n.threshold, abs=0.011)

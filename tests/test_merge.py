@@ -48,11 +48,11 @@ def test_two_changes_to_one_statement_of_a_device_plan_merge(tmp_path):
     from groundcheck.advice.merge import merge_into
 
     dev = tmp_path / "preamp.gplan"
-    dev.write_text("plan \"p\"\nwire pe_lead: mains.pe to psu_pe, 30 mm, 1.0 mm2, protective\n")
+    dev.write_text('plan "p"\nwire pe_lead: mains.pe to psu_pe, 30 mm, 1.0 mm2, protective\n')
     line = "wire pe_lead: mains.pe to psu_pe, 30 mm, 1.0 mm2, protective"
     thicker = Edit(2, line.replace("1.0 mm2", "1.5 mm2"), (), 2, str(dev))
     stud = Edit(2, line.replace("psu_pe,", "pe_stud,"), ("point pe_stud: stud",), 2, str(dev))
-    kept, rest = merge_into([thicker], (stud,), "plan \"room\"\n")
+    kept, rest = merge_into([thicker], (stud,), 'plan "room"\n')
     assert rest == () and kept[0].new == (
         "wire pe_lead: mains.pe to pe_stud, 30 mm, 1.5 mm2, protective"
     )

@@ -448,12 +448,10 @@ def test_with_harmonics_the_worst_direction_maximises_the_threshold_weighted_tot
 
     def weighted(axis):
         h = analyze(load_text(text.format(axis=axis), "w.gplan")).hum.channels["main"]
-        return sum(
-            10 ** (row["margin_db"] / 10) for row in h.spectrum if row.get("margin_db") is not None
-        ), h
+        return sum(10 ** (row.margin / 10) for row in h.spectrum if row.margin is not None), h
 
     worst, h = weighted("")
     assert h.field_axes[0]["measure"] == "threshold-weighted total"
-    assert [row["frequency_hz"] for row in h.spectrum] == [50.0, 150.0]
+    assert [row.frequency for row in h.spectrum] == [50.0, 150.0]
     for axis in (", axis x", ", axis y", ", axis z"):
         assert worst >= weighted(axis)[0] * (1 - 3e-3)  # the margins are rounded to 0.01 dB

@@ -16,6 +16,7 @@ from groundcheck.model.records import Rectifier
 from groundcheck.physics.rectifier import harmonic_phasors, simulate
 from groundcheck.physics.rectifier_exact import SHOCKLEY_IS, SHOCKLEY_N, SHOCKLEY_RS
 from groundcheck.physics.sources import plan_sources
+from groundcheck.renderers.json_results import rectifier_json
 
 from helpers import needs_ngspice
 
@@ -131,7 +132,7 @@ def test_choke_input_against_ngspice(topology, load, v0, stop, continuous):
         v.mean() / load / (3 * 2 * math.pi * 50), 1e-3
     )
     assert ours.continuous is continuous and bool(i.min() > 0.5 * load) is continuous
-    figures = ours.as_dict()
+    figures = rectifier_json(ours)
     assert figures["continuous_conduction"] is continuous and "critical_inductance_h" in figures
 
 

@@ -249,7 +249,7 @@ reservoir 47 uF,
     from groundcheck.analysis import analyze
 
     result = analyze(load_text(text, "crc.gplan"))
-    assert "k_gnd" in {c["element"] for c in result.hum.channels["main"].contributors}
+    assert "k_gnd" in {c.element for c in result.hum.channels["main"].contributors}
     rows = [row for row in result.coupling if row.source == "hv.filter"]
     assert rows and "k_gnd" in rows[0].shared
     assert any(f.code == "GC102" and "hv.filter" in f.message for f in result.findings)

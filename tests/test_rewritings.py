@@ -172,7 +172,7 @@ def a_wire_split_in_two(text: str, before, rnd: Random) -> None:
     same = joined == _basis(before)
     got, want = _dc_figures(after, same), _dc_figures(before, same)
     if any(
-        c["element"] == "other conductors"
+        c.element == "other conductors"
         for r in (before, after)
         for h in r.hum.channels.values()
         for c in h.contributors
@@ -198,7 +198,7 @@ def a_resistor_split_in_two(r, rnd: Random) -> None:
         a = after.hum.channels[ch]
         assert close(a.total_v, h.total_v) and close(a.signed_v, h.signed_v), (text, name)
         for s, t in zip(a.spectrum, h.spectrum):
-            assert close(s["volts"], t["volts"]), (text, name, s, t)
+            assert close(s.volts, t.volts), (text, name, s, t)
     was = {(c.stage, c.source): c.transfer for c in before.coupling}
     now = {(c.stage, c.source): c.transfer for c in after.coupling}
     assert was.keys() == now.keys() and all(close(now[k], was[k]) for k in was), (text, name)
@@ -339,7 +339,7 @@ def test_twelve_wires_in_series_are_one_contributor_named_whole():
     lines += [f"wire w{k:02d}: n{k} to n{k + 1}, 0.01 ohm, signal" for k in range(12)]
     lines += ["current i: n0 to n12, 100 mA 100 Hz", "stage g: n0 to n12, gain 0 dB, channel c"]
     r = _run("\n".join(lines) + "\n")
-    named = {c["element"] for c in r.hum.channels["c"].contributors}
+    named = {c.element for c in r.hum.channels["c"].contributors}
     assert named == {f"w{k:02d}" for k in range(12)}
     found = [f for f in r.findings if f.code == "GC301"]
     assert len(found) == 1 and "(in series)" in found[0].message

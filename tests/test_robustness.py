@@ -336,11 +336,11 @@ def test_mirroring_swaps_channel_figures():
     la, ra_ = ra.hum.channels["left"], ra.hum.channels["right"]
     lb, rb_ = rb.hum.channels["left"], rb.hum.channels["right"]
     # the field source off the symmetry line makes the channels differ at the mains frequency
-    assert la.spectrum[0]["volts"] != pytest.approx(ra_.spectrum[0]["volts"], rel=1e-2)
+    assert la.spectrum[0].volts != pytest.approx(ra_.spectrum[0].volts, rel=1e-2)
     for x, y in ((lb, ra_), (rb_, la)):
         assert x.total_v == pytest.approx(y.total_v, rel=1e-9)
         for u, v in zip(x.spectrum, y.spectrum):
-            assert u["volts"] == pytest.approx(v["volts"], rel=1e-9, abs=1e-15)
+            assert u.volts == pytest.approx(v.volts, rel=1e-9, abs=1e-15)
 
 
 def _rename(p, fn):

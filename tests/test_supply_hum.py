@@ -165,6 +165,6 @@ def test_a_fed_stages_supply_ripple_is_no_loop_pickup():
         + RECTIFIER.format(extra="")
     )
     result = analyze(load_text(text, "fed.gplan"))
-    kinds = [c["kind"] for c in result.hum.channels["main"].contributors]
+    kinds = [c.kind for c in result.hum.channels["main"].contributors]
     assert kinds == ["supply"]  # the channel's whole hum, -70 dBV or so: far above the level
     assert not [f for f in result.findings if f.code == "GC302"]

@@ -20,6 +20,7 @@ from groundcheck.core.errors import PlanErrors
 from groundcheck.model.records import Rectifier
 from groundcheck.physics.rectifier import harmonic_phasors, simulate
 from groundcheck.physics.rectifier_exact import SHOCKLEY_IS, SHOCKLEY_N, SHOCKLEY_RS
+from groundcheck.renderers.json_results import rectifier_json
 
 from helpers import needs_ngspice
 
@@ -172,7 +173,7 @@ def test_the_regulators_return_is_a_source_through_its_point():
     assert float(rect.return_current.mean()) == pytest.approx(
         (rect.dc_voltage - 250.0) / 2000.0, rel=1e-6
     )
-    assert rect.as_dict()["regulated_dc_v"] == 250.0
+    assert rectifier_json(rect)["regulated_dc_v"] == 250.0
 
 
 @pytest.mark.parametrize(
@@ -208,7 +209,7 @@ def test_a_series_regulators_dropout_is_held_against_the_reservoirs_trough():
     # the trough of this reservoir is 330 V to the volt (ngspice, the series case above): a 320 V
     # regulator with a 5 V dropout keeps regulating; with 12 V it drops out at the trough
     ok = analyze(load_text(_plan(", regulator series 320 V to reg_ret, dropout 5 V"), "r.gplan"))
-    assert ok.hum.rectifiers[0].as_dict()["regulated_dc_v"] == 320.0
+    assert rectifier_json(ok.hum.rectifiers[0])["regulated_dc_v"] == 320.0
     with pytest.raises(PlanErrors) as err:
         analyze(load_text(_plan(", regulator series 320 V to reg_ret, dropout 12 V"), "r.gplan"))
     assert "too low for its series regulator to hold 320 V and its 12 V dropout" in str(err.value)

@@ -98,15 +98,15 @@ def test_a_60_hz_device_behind_a_step_down_hums_at_120_hz_multiples(tmp_path):
         'device amp: "amp.gplan", plugged sd\n',
         devices={"amp.gplan": dev},
     )
-    lines = [x["frequency_hz"] for x in r.hum.channels["amp.main"].spectrum if x["volts"] > 0]
+    lines = [x.frequency for x in r.hum.channels["amp.main"].spectrum if x.volts > 0]
     assert lines[:3] == [120.0, 240.0, 360.0]
     assert all(f % 120 == 0 for f in lines) and not any(f % 100 == 0 and f % 120 for f in lines)
     assert not any(f.code == "GC217" for f in r.findings)
     # the same device alone (its own 120 V 60 Hz mains): the same lines and levels
     (tmp_path / "alone.gplan").write_text(dev)
     alone = analyze(load(tmp_path / "alone.gplan")).hum.channels["main"]
-    assert [x["volts"] for x in r.hum.channels["amp.main"].spectrum] == pytest.approx(
-        [x["volts"] for x in alone.spectrum], rel=1e-9, abs=1e-15
+    assert [x.volts for x in r.hum.channels["amp.main"].spectrum] == pytest.approx(
+        [x.volts for x in alone.spectrum], rel=1e-9, abs=1e-15
     )
 
 

@@ -146,8 +146,8 @@ def _channel(before: Result, after: Result, ch: str) -> dict:
     """One channel's hum before and after: the totals, the verdicts, the spectrum line by line."""
     hb = before.hum.channels.get(ch) if before.hum else None
     ha = after.hum.channels.get(ch) if after.hum else None
-    sb = {r["frequency_hz"]: r["volts"] for r in (hb.spectrum if hb else [])}
-    sa = {r["frequency_hz"]: r["volts"] for r in (ha.spectrum if ha else [])}
+    sb = {r.frequency: r.volts for r in (hb.spectrum if hb else [])}
+    sa = {r.frequency: r.volts for r in (ha.spectrum if ha else [])}
     rows = []
     for f in sorted(set(sb) | set(sa)):
         b, a = _db(sb.get(f)), _db(sa.get(f))

@@ -40,9 +40,9 @@ def heard_level(result: Result, channel: str) -> float | None:
     """
     h = result.hum.channels.get(channel) if result.hum is not None else None
     margins = [
-        r["margin_db"]
+        r.margin
         for r in (h.spectrum if h is not None else ())
-        if r.get("margin_db") is not None
+        if r.margin is not None and math.isfinite(r.margin)
     ]
     if not margins:
         return None
@@ -73,6 +73,6 @@ def share_only(f, before: Result) -> bool:
         return False
     h = before.hum.channels.get(ch) if before.hum is not None else None
     return h is not None and any(
-        c["element"] == f.elements[0] and c["source"] == f.elements[1] and c["dbv"] >= level - 0.05
+        c.element == f.elements[0] and c.source == f.elements[1] and c.dbv >= level - 0.05
         for c in h.contributors
     )

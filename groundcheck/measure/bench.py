@@ -117,7 +117,7 @@ def pick_channel(result, wanted: str | None) -> str:
 
 
 def _rows(meas: Measured, hum, plan_f0: float, fitted, lines, listening) -> list[HarmonicRow]:
-    predicted = {row["frequency_hz"]: row["volts"] for row in hum.spectrum}
+    predicted = {row.frequency: row.volts for row in hum.spectrum}
     rows = []
     for i, ln in enumerate(meas.lines):
         pf = ln.harmonic * plan_f0

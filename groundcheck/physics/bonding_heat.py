@@ -53,14 +53,6 @@ class BondTest:
     duration: float
     basis: str
 
-    def as_dict(self) -> dict:
-        return {
-            "test": self.name,
-            "current_a": round(self.current, 4),
-            "duration_s": self.duration,
-            "basis": self.basis,
-        }
-
 
 @dataclass(frozen=True)
 class ConductorHeat:
@@ -90,31 +82,6 @@ class ConductorHeat:
         if self.reached is None or self.limit is None:
             return None
         return self.reached <= self.limit
-
-    def as_dict(self) -> dict:
-        def deg(x):
-            return None if x is None or math.isinf(x) else round(x, 1)
-
-        def mm2(x):
-            return None if x is None else round(x * 1e6, 4)
-
-        return {
-            "conductor": self.conductor,
-            "test": self.test,
-            "current_a": round(self.current, 4),
-            "area_mm2": mm2(self.area),
-            "insulation": self.insulation,
-            "adiabatic_c": deg(self.adiabatic),
-            "steady_state_c": deg(self.steady),
-            "reached_c": deg(self.reached),
-            "melts": self.reached is not None and math.isinf(self.reached),
-            "limit_c": self.limit,
-            "continuous_limit_c": self.continuous_limit,
-            "passes": self.passes,
-            "contact_power_w": None if self.power is None else round(self.power, 4),
-            "contact_drop_v": None if self.drop is None else round(self.drop, 5),
-            "thicker_mm2": mm2(self.thicker),
-        }
 
 
 def _geometry(c, area: float) -> tuple[float, float]:

@@ -91,15 +91,6 @@ class PartDrop:
     #: equipment's fuse 200 % of the fuse's rating
     current: float | None = None
 
-    def as_dict(self) -> dict:
-        return {
-            "part": self.part,
-            "test": self.test,
-            "current_a": self.current,
-            "path_voltage_v": round(self.voltage, 5),
-            "limit_v": self.limit,
-        }
-
 
 @dataclass(frozen=True)
 class BondingResult:
@@ -115,14 +106,6 @@ class BondingResult:
 
     def drops_over(self) -> list[PartDrop]:
         return [p for p in self.parts if p.limit is not None and p.voltage > p.limit]
-
-    def as_dict(self) -> dict:
-        return {
-            "ambient_c": self.ambient,
-            "tests": [t.as_dict() for t in self.tests],
-            "conductors": [c.as_dict() for c in self.conductors],
-            "parts": [p.as_dict() for p in self.parts],
-        }
 
 
 def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:

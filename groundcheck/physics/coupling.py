@@ -133,14 +133,6 @@ class SharedReturn:
     transfer: float  # Ω: the stage's pair voltage per ampere of the source
     shared: tuple[str, ...]  # the conductors (or metal parts) that make up most of it
 
-    def as_dict(self) -> dict:
-        return {
-            "source": self.source,
-            "stage": self.stage,
-            "transfer_ohm": self.transfer,
-            "shared": list(self.shared),
-        }
-
 
 def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     """Supply-return currents whose path shares conductors with a sensitive pair (resistive, DC):

@@ -27,16 +27,6 @@ class DeviceEarth:
     #: line-to-part fault (:class:`groundcheck.physics.safety.PartFigures`), None otherwise
     fault: object = None
 
-    def as_dict(self) -> dict:
-        out = {
-            "device": self.device,
-            "inlet": self.inlet,
-            "resistance_ohm": None if self.resistance is None else round(self.resistance, 6),
-        }
-        if self.fault is not None:
-            out["fault"] = self.fault.as_dict()
-        return out
-
 
 #: devices' earth paths solved together (each a column of nodes)
 EARTH_COLUMNS = 64

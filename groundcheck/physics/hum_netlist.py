@@ -71,8 +71,6 @@ def _group_of(source, leakage=frozenset()) -> str:
     return LEAKAGE_GROUP if source.name in leakage else source.name
 
 
-
-
 def source_groups(budget, f: float) -> list[str]:
     """The source groups with a line at f: the rectifiers (together), each stated or simulated
     current, each field source and AC heater pair whose lines include f (and that takes an EMF in
@@ -133,9 +131,7 @@ def netlist_sources(budget, f: float, group: str | None = None, channel: str | N
                     emf = -1j * w * budget.pick_sign[col] * ratio * complex(phi[col])
                     if emf != 0:
                         per_branch[int(bi)] = per_branch.get(int(bi), 0) + emf
-    emfs = tuple(
-        (budget.circuit.branches[bi].name, bi, v) for bi, v in sorted(per_branch.items())
-    )
+    emfs = tuple((budget.circuit.branches[bi].name, bi, v) for bi, v in sorted(per_branch.items()))
     return NetlistSources(
         f, currents, emfs, _readings(budget, f, emfs, channel), tuple(groups), group, channel
     )

@@ -16,8 +16,9 @@ import numpy as np
 from ..core.units import db_of_ratio, dbv
 from .feedback import feedback_rows
 from .hearing import heard_threshold, spl_of
+from .hum_rows import Contributor, CrosstalkLine, SpectrumLine
 
-__all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB", "rounded"]
+__all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB"]
 
 #: output voltages below this (V) are numerical noise and shown as zero (−240 dBV)
 FLOOR_V = 1e-12
@@ -29,10 +30,10 @@ CROSSTALK_FLOOR_DB = -200.0
 @dataclass
 class ChannelHum:
     channel: str
-    spectrum: list[dict]  # per frequency: volts, dbv, spl, threshold, margin
+    spectrum: list[SpectrumLine]
     total_v: float
     rated_output: float
-    contributors: list[dict]
+    contributors: list[Contributor]
     audible: bool | None
     margin_db: float | None  # worst SPL − threshold, dB (positive: audible)
     signed_v: float = 0.0  # the network's own sum, every stage taken as non-inverting
@@ -51,43 +52,12 @@ class ChannelHum:
         return dbv(self.total_v)
 
     @property
+    def signed_dbv(self) -> float:
+        return dbv(self.signed_v)
+
+    @property
     def signal_to_hum(self) -> float:
         return math.inf if self.total_v <= 0 else db_of_ratio(self.rated_output / self.total_v)
-
-    def as_dict(self) -> dict:
-        return {
-            "channel": self.channel,
-            "total_v": self.total_v,
-            "total_dbv": rounded(self.total_dbv),
-            "total_signed_v": self.signed_v,
-            "total_signed_dbv": rounded(dbv(self.signed_v)),
-            "signal_to_hum_db": rounded(self.signal_to_hum),
-            "rated_output_v": self.rated_output,
-            "audible": self.audible,
-            "margin_db": rounded(self.margin_db),
-            "spectrum": self.spectrum,
-            "contributors": self.contributors,
-            "field_axes": self.field_axes,
-            "covers": self.covers,
-        }
-
-
-def rounded(x, d=2):
-    """A figure rounded for the budget's rows, None for none or a non-finite value.
-
-    Parameters:
-        x: a number or None.
-        d: decimals.
-    Returns:
-        the rounded float, or None.
-    References:
-        none (presentation).
-    """
-    if x is None:
-        return None
-    if isinstance(x, float) and not math.isfinite(x):
-        return None
-    return round(float(x), d)
 
 
 @dataclass
@@ -95,7 +65,7 @@ class HumResult:
     channels: dict[str, ChannelHum]
     rectifiers: list
     loops: list[dict]
-    crosstalk: list[dict]
+    crosstalk: list[CrosstalkLine]
     frequencies: list[float]
     network: list[dict] = field(default_factory=list)  # per source: conductor currents and drops
     notes: list[str] = field(default_factory=list)
@@ -108,17 +78,6 @@ class HumResult:
     levels: dict = field(default_factory=dict)
     # per signal current and frequency: its own channel's stages reading it (physics/feedback.py)
     feedback: list[dict] = field(default_factory=list)
-
-    def as_dict(self) -> dict:
-        return {
-            "frequencies_hz": self.frequencies,
-            "channels": {k: v.as_dict() for k, v in self.channels.items()},
-            "rectifiers": [r.as_dict() for r in self.rectifiers],
-            "loops": self.loops,
-            "crosstalk": self.crosstalk,
-            "feedback": self.feedback,
-            "notes": self.notes,
-        }
 
 
 class Merged:
@@ -178,14 +137,13 @@ class Merged:
             )  # the worst case: every stage's drop in phase
             total2 += v * v
             signed2 += signed * signed
-            row = {"frequency_hz": f, "volts": v, "dbv": rounded(dbv(v)), "volts_signed": signed}
+            spl = thr = None
             if listening is not None and listening.verdict:
                 spl = spl_of(v, listening)
                 thr = heard_threshold(f, listening.background)
-                row.update(spl_db=rounded(spl), threshold_db=thr, margin_db=rounded(spl - thr))
                 if math.isfinite(spl) and (worst is None or spl - thr > worst):
                     worst = spl - thr
-            spectrum.append(row)
+            spectrum.append(SpectrumLine(f, v, signed, spl, thr))
         total = math.sqrt(total2)
         clist = self._contributors(ch)
         audible = None if worst is None else worst > 0
@@ -231,7 +189,7 @@ class Merged:
             out[ch] = {g: math.sqrt(p) for g, p in power.items() if math.sqrt(p) >= FLOOR_V}
         return out
 
-    def _contributors(self, ch: str) -> list[dict]:
+    def _contributors(self, ch: str) -> list[Contributor]:
         """The channel's contributors with their level and their signed share of the channel's
         (signed) hum power: the projection of each one's phasors on its group's total, so that the
         shares add up to 100 % and a contribution that cancels part of the others has a negative
@@ -249,24 +207,15 @@ class Merged:
             lvl = sqrt(power)
             if lvl < FLOOR_V:
                 continue
-            clist.append(
-                {
-                    "kind": kind,
-                    "element": name,
-                    "source": group.split(":", 1)[-1],
-                    "volts": lvl,
-                    "dbv": dbv(lvl),  # unrounded: the rules' thresholds read it
-                    "_proj": proj,
-                }
-            )
+            clist.append(Contributor(kind, name, group.split(":", 1)[-1], lvl, proj))
         total = sum(abs(p) ** 2 for groups in out.values() for p in groups.values()) or 1.0
         for c in clist:
             # unrounded (the JSON writer rounds): a run's pieces are summed, and GC301's tenth is a
             # threshold, which a rounded share meets or misses by its last digit
-            share = 100 * c.pop("_proj") / total
-            c["share_pct"] = share if abs(share) >= 0.05 else 0.0
-        clist.sort(key=lambda c: (-c["volts"], c["element"]))
-        if any(c["share_pct"] < 0 for c in clist):
+            share = 100 * c.share / total  # (the projection until here)
+            c.share = share if abs(share) >= 0.05 else 0.0
+        clist.sort(key=lambda c: (-c.volts, c.element))
+        if any(c.share < 0 for c in clist):
             self.b.notes.append(
                 f"in {ch}, some contributions have negative shares: their drops oppose the "
                 "others' along the stage's path and cancel part of them"
@@ -280,21 +229,17 @@ class Merged:
 
         return feedback_rows(self.feedback_raw, rated)
 
-    def crosstalk(self) -> list[dict]:
+    def crosstalk(self) -> list[CrosstalkLine]:
         rated = self.b.rated
         out = []
         for (src_ch, dst_ch, f), v in sorted(
             self.crosstalk_raw.items(), key=lambda kv: (str(kv[0][0]), kv[0][1], kv[0][2])
         ):
-            out.append(
-                {
-                    "from": src_ch,
-                    "to": dst_ch,
-                    "frequency_hz": f,
-                    "volts": float(abs(v)),
-                    "db": rounded(max(CROSSTALK_FLOOR_DB, db_of_ratio(abs(v) / rated)))
-                    if abs(v) > 0
-                    else CROSSTALK_FLOOR_DB,
-                }
+            level = float(abs(v))
+            db = (
+                max(CROSSTALK_FLOOR_DB, db_of_ratio(level / rated))
+                if level > 0
+                else CROSSTALK_FLOOR_DB
             )
+            out.append(CrosstalkLine(src_ch, dst_ch, f, level, db))
         return out

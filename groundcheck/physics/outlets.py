@@ -212,9 +212,7 @@ class OutletWork:
         plan = self.plan
         wired = {c.name for c in plan.conductors if not joins_devices(c)}
         unplugged = self.circuit.restricted(wired)
-        open_f, open_s = _pair_volts(
-            unplugged, self.sources, self.pairs, self.freqs, self.leakage
-        )
+        open_f, open_s = _pair_volts(unplugged, self.sources, self.pairs, self.freqs, self.leakage)
         drivers = []
         for k in range(len(self.pairs)):
             drivers.append(

@@ -82,36 +82,12 @@ class RectifierResult:
     continuous: bool | None = None  # ... whether its current flows all the period round
     negative: bool = False  # a negative rail: every waveform and mean turned round
 
-    def as_dict(self) -> dict:
-        out = {
-            "name": self.name,
-            "dc_voltage_v": round(self.dc_voltage, 4),
-            "ripple_pp_v": round(self.ripple_pp, 5),
-            "peak_current_a": round(self.peak_current, 5),
-            "rms_current_a": round(self.rms_current, 5),
-            "dc_current_a": round(self.dc_current, 6),
-            "conduction_angle_deg": round(self.conduction_angle, 2),
-        }
-        if self.filter_current is not None:
-            out.update(
-                output_dc_v=round(self.output_dc, 4),
-                output_ripple_pp_v=round(self.output_ripple_pp, 6),
-                filter_rms_current_a=round(float(np.sqrt(np.mean(self.filter_current**2))), 6),
-            )
-        if self.critical_inductance is not None:
-            out.update(
-                critical_inductance_h=round(self.critical_inductance, 5),
-                continuous_conduction=self.continuous,
-            )
-        if self.negative:
-            out.update(polarity="negative")
-        if self.return_current is not None:
-            out.update(
-                regulated_dc_v=round(self.output_dc, 4),
-                regulated_ripple_pp_v=round(self.output_ripple_pp, 9),
-                regulator_return_dc_a=round(float(self.return_current.mean()), 6),
-            )
-        return out
+    @property
+    def filter_rms(self) -> float | None:
+        """The filter section's capacitor current, rms, A (None without a filter)."""
+        if self.filter_current is None:
+            return None
+        return float(np.sqrt(np.mean(self.filter_current**2)))
 
     def rail_voltage(self) -> np.ndarray:
         """The voltage of the rail the load is fed from over the period, V."""

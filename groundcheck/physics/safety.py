@@ -94,21 +94,6 @@ class PartFigures:
     arcing: float | None = None  # s, the fuse's arcing part
     stated: tuple[str, ...] = ()  # figures taken from the plan rather than computed
 
-    def as_dict(self) -> dict:
-        r = lambda x, d=6: None if x is None else round(x, d)  # noqa: E731
-        return {
-            "part": self.part,
-            "path_resistance_ohm": r(self.path_resistance, 7),
-            "fault_current_a": r(self.fault_current, 3),
-            "touch_voltage_v": r(self.touch_voltage, 3),
-            "clear_time_s": r(self.clear_time, 6),
-            "i2t_a2s": r(self.i2t, 3),
-            "device": self.device,
-            "prearc_s": r(self.prearc, 6),
-            "arcing_s": r(self.arcing, 6),
-            "stated_in_plan": list(self.stated),
-        }
-
 
 @dataclass(frozen=True)
 class ConductorCheck:
@@ -122,15 +107,6 @@ class ConductorCheck:
     @property
     def survives(self) -> bool:
         return self.area >= self.required
-
-    def as_dict(self) -> dict:
-        return {
-            "conductor": self.conductor,
-            "area_mm2": round(self.area * 1e6, 4),
-            "k": self.k,
-            "required_mm2": round(self.required * 1e6, 4),
-            "survives": self.survives,
-        }
 
 
 @dataclass(frozen=True)
@@ -149,36 +125,14 @@ class SafetyResult:
         return self.supply.cord_pe
 
     @property
+    def standard_limit(self) -> float:
+        """The product-safety limit on the protective path, Ω."""
+        return STANDARD_PE_LIMIT
+
+    @property
     def relaxed(self) -> bool:
         """Whether the resistance limit in use is above the product-safety limit."""
         return self.limit > STANDARD_PE_LIMIT * (1 + 1e-9)
-
-    def as_dict(self) -> dict:
-        s = self.supply
-        r = lambda x, d=6: None if x is None else round(x, d)  # noqa: E731
-        return {
-            "limit_ohm": self.limit,
-            "standard_limit_ohm": STANDARD_PE_LIMIT,
-            "limit_relaxed": self.relaxed,
-            "system": s.system,
-            "external_loop_ohm": r(s.ze),
-            "external_loop_stated": s.ze_stated,
-            "circuit_line_ohm": r(s.circuit_line),
-            "circuit_protective_ohm": r(s.circuit_cpc),
-            "cord_line_ohm": r(s.cord_line),
-            "cord_pe_ohm": r(s.cord_pe),
-            "fuse_resistance_ohm": r(s.fuse_resistance),
-            "electrode_ohm": r(s.electrode),
-            "first_fault_v": r(s.first_fault_v),
-            "max_disconnection_s": s.max_time,
-            "cable_temperature_c": s.cable_temperature,
-            "earth_fault_max_a": r(s.earth_fault_max, 3),
-            "short_circuit_a": r(s.short_circuit, 3),
-            "short_circuit_stated": s.short_circuit_stated,
-            "breaking_capacity_a": r(s.breaking_capacity, 3),
-            "parts": [p.as_dict() for p in self.parts],
-            "conductors": [c.as_dict() for c in self.conductors],
-        }
 
 
 def _first_to_open(plan: Plan, current: float) -> tuple[Clearing | None, str | None]:

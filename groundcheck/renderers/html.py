@@ -97,7 +97,7 @@ def _summary(result: Result, parts: list[str], e=escape) -> None:
         )
         for ch, h in result.hum.channels.items():
             verdict = {True: "audible", False: "inaudible", None: "no verdict"}[h.audible]
-            top = h.contributors[0]["element"] if h.contributors else "–"
+            top = h.contributors[0].element if h.contributors else "–"
             parts.append(
                 f"<tr><td>{e(ch)}</td><td class=num>{cell(h.total_dbv, '{:.1f} dBV')}</td><td "
                 f"class=num>{cell(h.signal_to_hum, '{:.1f} dB')}</td><td>{verdict}</td><td "

@@ -32,15 +32,20 @@ def chart_frame(box: tuple, X, hi_f: float, label: str) -> list[str]:
     return out
 
 
+def _level(r, listening: bool) -> float | None:
+    """A spectrum line's stem height: dB SPL at the listener, or dBV at the output."""
+    x = r.spl if listening else r.dbv
+    return x if x is not None and math.isfinite(x) else None
+
+
 def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
     """A chart of one channel's hum: a stem per harmonic, and the threshold of hearing as a line.
 
     With a listening context the axis is dB SPL at the listener; otherwise dBV at the output.
     """
     W, H, L, R, T, B = 640, 260, 50, 10, 15, 35
-    rows = [r for r in channel.spectrum if r["volts"] > 0]
-    key = "spl_db" if listening else "dbv"
-    vals = [r[key] for r in rows if r.get(key) is not None]
+    rows = [r for r in channel.spectrum if r.volts > 0]
+    vals = [_level(r, listening) for r in rows if _level(r, listening) is not None]
     thr = [threshold_of_hearing(f) for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000)]
     lo_f, hi_f = 20.0, max(1000.0, max_freq * 1.2)
     if listening:
@@ -78,12 +83,12 @@ def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
         f'<text x="12" y="{(H - B + T) / 2:.0f}" font-size="11" text-anchor="middle" '
         f'transform="rotate(-90 12 {(H - B + T) / 2:.0f})">{axis}</text>'
     )
-    out += _marks(rows, key, listening, X, Y, (lo_f, hi_f, bottom), (W, R, T))
+    out += _marks(rows, listening, X, Y, (lo_f, hi_f, bottom), (W, R, T))
     out.append("</svg>")
     return "".join(out)
 
 
-def _marks(rows, key, listening, X, Y, span, box) -> list[str]:
+def _marks(rows, listening, X, Y, span, box) -> list[str]:
     """The threshold of hearing as a line (with a listening context) and a stem per harmonic;
     ``span``: the lowest and highest frequency and the lowest level; ``box``: the width and the
     right and top margins."""
@@ -101,15 +106,16 @@ def _marks(rows, key, listening, X, Y, span, box) -> list[str]:
             "hearing (ISO 226)</text>"
         )
     for r in rows:
-        if r.get(key) is None:
+        y = _level(r, listening)
+        if y is None:
             continue
-        audible = listening and r.get("margin_db") is not None and r["margin_db"] > 0
+        audible = listening and r.audible
         color = "#c0392b" if audible else "#2c6fbb"
         out.append(
-            f'<line x1="{X(r["frequency_hz"]):.1f}" y1="{Y(bottom):.1f}" '
-            f'x2="{X(r["frequency_hz"]):.1f}" '
-            f'y2="{Y(r[key]):.1f}" stroke="{color}" stroke-width="3"><title>{r["frequency_hz"]:g} '
+            f'<line x1="{X(r.frequency):.1f}" y1="{Y(bottom):.1f}" '
+            f'x2="{X(r.frequency):.1f}" '
+            f'y2="{Y(y):.1f}" stroke="{color}" stroke-width="3"><title>{r.frequency:g} '
             "Hz: "
-            f"{r[key]:.1f}{' dB SPL' if listening else ' dBV'}</title></line>"
+            f"{y:.1f}{' dB SPL' if listening else ' dBV'}</title></line>"
         )
     return out

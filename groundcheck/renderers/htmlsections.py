@@ -78,23 +78,23 @@ def hum_section(result: Result, parts: list[str], e=escape) -> None:
         for ch, h in result.hum.channels.items():
             # a channel heard through a placed device's own listening may have a verdict when
             # the plan's listening has none, and the other way round
-            listening = any("spl_db" in r for r in h.spectrum)
+            listening = any(r.threshold is not None for r in h.spectrum)
             parts.append(
                 f"<h3>{e(ch)}</h3><div "
                 f'class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>'
             )
-            rows = [r for r in h.spectrum if r["volts"] > 0]  # every harmonic the chart shows
+            rows = [r for r in h.spectrum if r.volts > 0]  # every harmonic the chart shows
             parts.append(
                 '<table class="spectrum"><tr><th>Hz</th><th>dBV</th><th>dB '
                 "SPL</th><th>threshold</th><th>margin</th></tr>"
             )
             for r in rows:
                 parts.append(
-                    f"<tr><td class=num>{r['frequency_hz']:g}</td><td "
-                    f"class=num>{cell(r['dbv'], '{:.1f}')}</td><td "
-                    f"class=num>{cell(r.get('spl_db'), '{:.1f}')}</td><td "
-                    f"class=num>{cell(r.get('threshold_db'), '{:.1f}')}</td><td "
-                    f"class=num>{cell(r.get('margin_db'), '{:+.1f}')}</td></tr>"
+                    f"<tr><td class=num>{r.frequency:g}</td><td "
+                    f"class=num>{cell(r.dbv, '{:.1f}')}</td><td "
+                    f"class=num>{cell(r.spl, '{:.1f}')}</td><td "
+                    f"class=num>{cell(r.threshold, '{:.1f}')}</td><td "
+                    f"class=num>{cell(r.margin, '{:+.1f}')}</td></tr>"
                 )
             parts.append("</table>")
 

@@ -10,6 +10,15 @@ import json
 from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean
+from .json_results import (
+    bonding_json,
+    coupling_json,
+    device_earth_json,
+    hum_json,
+    loop_json,
+    rectifier_json,
+    safety_json,
+)
 
 __all__ = ["result_document", "render_json", "errors_document", "clean", "SCHEMA_VERSION"]
 
@@ -65,15 +74,15 @@ def result_document(result: Result) -> dict:
             "not_checked": [n.as_dict() for n in result.not_checked],
         },
         "findings": [f.as_dict() for f in result.findings],
-        "loops": [lp.as_dict() for lp in result.loops],
-        "protective_earth": None if result.safety is None else result.safety.as_dict(),
-        "hum": None if result.hum is None else result.hum.as_dict(),
-        "rectifiers": [r.as_dict() for r in result.rectifiers],
-        "coupling": [row.as_dict() for row in result.coupling],
-        "bonding_test": None if result.bonding is None else result.bonding.as_dict(),
+        "loops": [loop_json(lp) for lp in result.loops],
+        "protective_earth": None if result.safety is None else safety_json(result.safety),
+        "hum": None if result.hum is None else hum_json(result.hum),
+        "rectifiers": [rectifier_json(r) for r in result.rectifiers],
+        "coupling": [coupling_json(row) for row in result.coupling],
+        "bonding_test": None if result.bonding is None else bonding_json(result.bonding),
         "device_earths": None
         if result.device_earths is None
-        else [d.as_dict() for d in result.device_earths],
+        else [device_earth_json(d) for d in result.device_earths],
         "outlets": None if result.outlets is None else _outlets(result.outlets),
         "network": None,
     }

@@ -35,9 +35,9 @@ def main_hum_line(result: Result) -> float | None:
         r
         for h in (result.hum.channels.values() if result.hum else ())
         for r in h.spectrum
-        if r["volts"] > 0
+        if r.volts > 0
     ]
-    return max(rows, key=lambda r: r["volts"])["frequency_hz"] if rows else None
+    return max(rows, key=lambda r: r.volts).frequency if rows else None
 
 
 def _verdict(result: Result) -> str:
@@ -173,11 +173,9 @@ def conductor_figures(result: Result) -> dict[str, dict]:
                 )
     for ch, h in hum.channels.items() if hum else ():
         for c in h.contributors:
-            entry = out.get(element_class(c["element"])) if c["kind"] == "conductor" else None
-            if entry is not None and c.get("share_pct") is not None:
-                entry["rows"].append(
-                    [f"share of {ch}'s hum ({c['source']})", f"{c['share_pct']:.3g} %"]
-                )
+            entry = out.get(element_class(c.element)) if c.kind == "conductor" else None
+            if entry is not None:
+                entry["rows"].append([f"share of {ch}'s hum ({c.source})", f"{c.share:.3g} %"])
     return out
 
 

@@ -33,21 +33,19 @@ def hum_tables(result: Result, console: Console) -> None:
         t.add_column(col, justify="right" if col != "channel" else "left")
     left_out = {}
     for ch, h in result.hum.channels.items():
-        rows = [r for r in h.spectrum if r["volts"] > 0]
+        rows = [r for r in h.spectrum if r.volts > 0]
         # every harmonic above the threshold is shown; the others up to TABLE_ROWS, the rest
         # counted
-        shown_rows = [
-            r for i, r in enumerate(rows) if i < TABLE_ROWS or (r.get("margin_db") or -1) > 0
-        ]
+        shown_rows = [r for i, r in enumerate(rows) if i < TABLE_ROWS or r.audible]
         left_out[ch] = len(rows) - len(shown_rows)
         for r in shown_rows:
             t.add_row(
                 escape(ch),
-                f"{r['frequency_hz']:g}",
-                number(r["dbv"], "", 4),
-                number(r.get("spl_db"), "", 3),
-                number(r.get("threshold_db"), "", 3),
-                number(r.get("margin_db"), "", 3),
+                f"{r.frequency:g}",
+                number(r.dbv, "", 4),
+                number(r.spl, "", 3),
+                number(r.threshold, "", 3),
+                number(r.margin, "", 3),
             )
         t.add_row(
             escape(ch),
@@ -78,16 +76,16 @@ def _hum_notes(result: Result, left_out: dict, console: Console) -> None:
     for ch, h in result.hum.channels.items():
         if h.contributors:
             top = "; ".join(
-                f"{escape(c['element'])} ({escape(c['source'])}) {c['share_pct']:.0f} %"
+                f"{escape(c.element)} ({escape(c.source)}) {c.share:.0f} %"
                 for c in h.contributors[:3]
             )
             console.print(f"  main contributors, {escape(ch)}: {top}")
-    xt = [r for r in result.hum.crosstalk if at_signal_frequency(r["frequency_hz"])]
+    xt = [r for r in result.hum.crosstalk if at_signal_frequency(r.frequency)]
     for r in xt:
         console.print(
-            f"  crosstalk {escape(str(r['from']))} → {escape(str(r['to']))} "
+            f"  crosstalk {escape(str(r.source))} → {escape(str(r.to))} "
             f"at {SIGNAL_FREQUENCY_TEXT}: "
-            + ("below −200 dB" if r["db"] is None or r["db"] <= -200 else f"{r['db']:.1f} dB")
+            + ("below −200 dB" if r.db <= -200 else f"{r.db:.1f} dB")
         )
     for r in result.hum.feedback:
         if at_signal_frequency(r["frequency_hz"]) and r["input_db"] > -200:

@@ -10,6 +10,8 @@ stays whole, its insulation may be damaged).  A path over 2.5 V at the long test
 
 from __future__ import annotations
 
+import math
+
 from typing import TYPE_CHECKING
 
 from .catalogue import Finding
@@ -69,13 +71,40 @@ def rule_bonding_test(s: Solved) -> list[Finding]:
                 + ("" if melts else _BOUND),
                 where.get(row.conductor, s.plan.mains.location),
                 (row.conductor,),
-                {k: v for k, v in row.as_dict().items() if v is not None and k != "conductor"},
+                _heat_figures(row),
                 f"{size} for {row.conductor}, so that it carries the test current ({t.basis}) "
                 "within its limit",
             )
         )
     out.extend(_drops(s))
     return out
+
+
+def _heat_figures(row) -> dict:
+    """GC223's figures: the conductor's current, size and temperatures in the test (°C; a
+    melting conductor's temperatures are left out), the contact's power and drop for a
+    fastening."""
+    figures = {
+        "test": row.test,
+        "current_a": row.current,
+        "area_mm2": None if row.area is None else row.area * 1e6,
+        "insulation": row.insulation,
+        "adiabatic_c": row.adiabatic,
+        "steady_state_c": row.steady,
+        "reached_c": row.reached,
+        "melts": row.reached is not None and math.isinf(row.reached),
+        "limit_c": row.limit,
+        "continuous_limit_c": row.continuous_limit,
+        "passes": row.passes,
+        "contact_power_w": row.power,
+        "contact_drop_v": row.drop,
+        "thicker_mm2": None if row.thicker is None else row.thicker * 1e6,
+    }
+    return {
+        k: v
+        for k, v in figures.items()
+        if v is not None and not (isinstance(v, float) and math.isinf(v))
+    }
 
 
 def _drops(s: Solved) -> list[Finding]:

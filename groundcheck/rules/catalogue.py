@@ -128,7 +128,5 @@ RULES: dict[str, Rule] = {
 #: the rules a danger can come from: every protective-earth rule and any rule whose findings may
 #: be dangers (the advice judges every change with them, and leaving them out is said)
 SAFETY_RULES: frozenset[str] = frozenset(
-    code
-    for code, r in RULES.items()
-    if r.family == PROTECTIVE_EARTH or "danger" in r.variants
+    code for code, r in RULES.items() if r.family == PROTECTIVE_EARTH or "danger" in r.variants
 )

@@ -75,15 +75,6 @@ class LoopInfo:
     open_at: str  # the conductor to open to break it
     polygon: tuple | None = None
 
-    def as_dict(self) -> dict:
-        return {
-            "members": list(self.loop.nodes),
-            "conductors": list(self.loop.edges),
-            "closed_by": self.closed_by,
-            "area_mm2": None if self.area is None else round(self.area * 1e6, 3),
-            "open_at": self.open_at,
-        }
-
 
 @dataclass
 class AuditContext:

@@ -18,7 +18,6 @@ from .context import AuditContext
 __all__ = ["equipment_of", "signal_link", "ELV_LIMIT"]
 
 
-
 def signal_link(c) -> bool:
     """Whether a link between devices carries a signal.
 

@@ -9,9 +9,11 @@ under their codes (:mod:`groundcheck.rules.registry`); conductors in series are 
 
 from __future__ import annotations
 
-from ..core.units import dbv
+from dataclasses import replace
+
 from ..model.kinds import PROTECTIVE, SIGNAL, carries_load, joins_devices
 from ..physics.heater_field import source_heater
+from ..physics.hum_rows import Contributor
 from ..physics.sources import LEAKAGE_GROUP
 from ..physics.humsettings import (
     SIGNAL_FREQUENCY_TEXT,
@@ -83,37 +85,37 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
     out = []
     for c in contributors:
         # (to rounding: a share of exactly a tenth, split in two pieces, still meets it)
-        if c["dbv"] is None or c["dbv"] < opts.contributor_level - 1e-9 or c["share_pct"] < TENTH:
+        if c.dbv < opts.contributor_level - 1e-9 or c.share < TENTH:
             continue
-        if c["kind"] == "conductor":
-            cond = conductors.get(c["element"])
-            fix = _contributor_fix(c["element"], c["source"], cond, loop_driven)
-            run = c.get("run", (c["element"],))
+        if c.kind == "conductor":
+            cond = conductors.get(c.element)
+            fix = _contributor_fix(c.element, c.source, cond, loop_driven)
+            run = c.run or (c.element,)
             what = run[0] if len(run) == 1 else f"{', '.join(run)} (in series)"
             out.append(
                 Finding(
                     "GC301",
                     sev,
-                    f"{what} {'puts' if len(run) == 1 else 'put'} {c['dbv']:.1f} dBV of "
-                    f"{c['source']} hum and buzz at the {ch} output ({c['share_pct']:.0f} % "
+                    f"{what} {'puts' if len(run) == 1 else 'put'} {c.dbv:.1f} dBV of "
+                    f"{c.source} hum and buzz at the {ch} output ({c.share:.0f} % "
                     f"of the channel's total){heard}",
                     cond.location if cond else loc,
-                    (run[0], c["source"], *run[1:]),
-                    {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
+                    (run[0], c.source, *run[1:]),
+                    {"level_dbv": c.dbv, "share_pct": c.share, "channel": ch},
                     fix,
                 )
             )
-        elif c["kind"] == "loop":  # (a fed stage's supply ripple is no loop: GC303 counts it)
+        elif c.kind == "loop":  # (a fed stage's supply ripple is no loop: GC303 counts it)
             out.append(
                 Finding(
                     "GC302",
                     sev,
-                    f"{c['element']} picks up {c['dbv']:.1f} dBV from {c['source']} at the "
-                    f"{ch} output ({c['share_pct']:.0f} % of the channel's total){heard}",
+                    f"{c.element} picks up {c.dbv:.1f} dBV from {c.source} at the "
+                    f"{ch} output ({c.share:.0f} % of the channel's total){heard}",
                     loc,
-                    (c["element"], c["source"]),
-                    {"level_dbv": c["dbv"], "share_pct": c["share_pct"], "channel": ch},
-                    _pickup_fix(s.plan, c["source"]),
+                    (c.element, c.source),
+                    {"level_dbv": c.dbv, "share_pct": c.share, "channel": ch},
+                    _pickup_fix(s.plan, c.source),
                 )
             )
     return out
@@ -136,22 +138,21 @@ def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
     fed = _fed_by(s)
     for row in s.hum.crosstalk:
         if (
-            at_signal_frequency(row["frequency_hz"])
-            and row["db"] is not None
-            and row["db"] > s.options.crosstalk_limit
-            and (str(row["from"]), row["to"]) not in fed
+            at_signal_frequency(row.frequency)
+            and row.db > s.options.crosstalk_limit
+            and (str(row.source), row.to) not in fed
         ):
-            loc = stages_by_ch[row["to"]][0].location
+            loc = stages_by_ch[row.to][0].location
             out.append(
                 Finding(
                     "GC304",
                     "warning",
-                    f"crosstalk from {row['from']} into {row['to']} is {row['db']:.1f} dB "
+                    f"crosstalk from {row.source} into {row.to} is {row.db:.1f} dB "
                     f"at {SIGNAL_FREQUENCY_TEXT}",
                     loc,
-                    (str(row["from"]), row["to"]),
-                    {"crosstalk_db": row["db"]},
-                    _crosstalk_fix(s, str(row["from"]), row["to"]),
+                    (str(row.source), row.to),
+                    {"crosstalk_db": row.db},
+                    _crosstalk_fix(s, str(row.source), row.to),
                 )
             )
     return out
@@ -246,27 +247,26 @@ def series_runs(ctx: AuditContext) -> dict[str, tuple[str, ...]]:
     return {k: tuple(sorted(run)) for k, run in joined.items()}
 
 
-def _by_run(contributors: list[dict], runs: dict) -> list[dict]:
+def _by_run(contributors: list[Contributor], runs: dict) -> list[Contributor]:
     """The contributors with those of one run and one source merged into one (at the place of the
     first): levels and shares added — exact for pieces of one kind and size, whose drops are in
     phase, an upper bound on the level otherwise."""
-    out: list[dict] = []
-    merged: dict[tuple, dict] = {}
+    out: list[Contributor] = []
+    merged: dict[tuple, Contributor] = {}
     for c in contributors:
-        run = runs.get(c["element"]) if c["kind"] == "conductor" else None
+        run = runs.get(c.element) if c.kind == "conductor" else None
         if run is None:
             out.append(c)
             continue
-        key = (run, c["source"])
+        key = (run, c.source)
         if key not in merged:
-            merged[key] = dict(c, element=run[0], run=run, parts=[c])
+            merged[key] = replace(c, element=run[0], run=run, parts=[c])
             out.append(merged[key])
         else:
             m = merged[key]
-            m["parts"].append(c)
-            m["volts"] += c["volts"]
-            m["share_pct"] = m["share_pct"] + c["share_pct"]
-            m["dbv"] = dbv(m["volts"])
+            m.parts.append(c)
+            m.volts += c.volts
+            m.share += c.share
     return out
 
 
@@ -307,13 +307,13 @@ def _audible(ch: str, h, loc) -> Finding:
     contributors."""
     top: list[str] = []
     for c in h.contributors:
-        label = f"{c['element']} ({c['source']}, {c['share_pct']:.0f} %)"
-        if c["kind"] == "supply":  # a stage fed from a supply: its ripple, not a conductor
+        label = f"{c.element} ({c.source}, {c.share:.0f} %)"
+        if c.kind == "supply":  # a stage fed from a supply: its ripple, not a conductor
             label = (
-                f"the ripple of {c['source']} fed to stage {c['element']} ({c['share_pct']:.0f} "
-                f"%): filter {c['source']} further (another RC or choke section) or regulate it"
+                f"the ripple of {c.source} fed to stage {c.element} ({c.share:.0f} "
+                f"%): filter {c.source} further (another RC or choke section) or regulate it"
             )
-        if c["element"] not in [t.split(" (")[0] for t in top]:
+        if c.element not in [t.split(" (")[0] for t in top]:
             top.append(label)
         if len(top) == 3:
             break
@@ -323,7 +323,7 @@ def _audible(ch: str, h, loc) -> Finding:
         f"hum in the {ch} channel is above the ISO 226 threshold of hearing at the listener's "
         f"seat by {h.margin_db:.1f} dB (total {h.total_dbv:.1f} dBV at the output)",
         loc,
-        (ch, *dict.fromkeys(c["element"] for c in h.contributors[:3])),
+        (ch, *dict.fromkeys(c.element for c in h.contributors[:3])),
         {
             "margin_db": h.margin_db,
             "total_dbv": h.total_dbv,

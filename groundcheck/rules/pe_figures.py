@@ -125,7 +125,13 @@ def _survival(plan: Plan, safety: SafetyResult) -> list[Finding]:
                     f"until it is cleared: it needs {row.required * 1e6:.4g} mm² (k = {row.k:g})",
                     c.location if c else plan.mains.location,
                     (row.conductor,),
-                    row.as_dict(),
+                    {
+                        "conductor": row.conductor,
+                        "area_mm2": row.area * 1e6,
+                        "k": row.k,
+                        "required_mm2": row.required * 1e6,
+                        "survives": row.survives,
+                    },
                     fix,
                 )
             )

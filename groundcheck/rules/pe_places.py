@@ -39,9 +39,7 @@ def pe_distance(ctx, node: str) -> float:
         elementary geometry.
     """
     pe = [
-        v
-        for v in ctx.G.adj.get(pe_point(ctx, node), {})
-        if ctx.G.nodes[v].get("pos") is not None
+        v for v in ctx.G.adj.get(pe_point(ctx, node), {}) if ctx.G.nodes[v].get("pos") is not None
     ]
     here = ctx.G.nodes[node].get("pos") if node in ctx.G else None
     if not pe or here is None:

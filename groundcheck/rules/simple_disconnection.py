@@ -45,12 +45,7 @@ def simple_device_disconnection(plan: Plan, faults: dict | None = None) -> list[
     graph = building_graph(plan)
     out = []
     for d in plan.devices:
-        if (
-            d.name in own
-            or d.equipment_class != "I"
-            or d.plugged is None
-            or d.plugged in behind
-        ):
+        if d.name in own or d.equipment_class != "I" or d.plugged is None or d.plugged in behind:
             continue
         placed, route = as_placed(plan, graph, d.name, None)
         as_plan = replace(plan, mains=placed)
