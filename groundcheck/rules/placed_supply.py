@@ -29,7 +29,7 @@ from typing import Callable
 
 import networkx as nx
 
-from ..model.installation import transformer_feeds
+from ..model.installation import suits, transformer_feeds
 from ..model.kinds import PROTECTIVE, can_carry_protective, kind
 from ..model.records import Plan
 from ..physics.safety import adiabatic_k
@@ -37,7 +37,7 @@ from .pe_figures import installation_survival
 from .catalogue import Finding, protective_earth_rule, severity_rank
 from .results import Options, Result
 
-__all__ = ["placed_supply_findings", "as_placed", "building_graph"]
+__all__ = ["placed_supply_findings", "as_placed", "building_graph", "gives_own_supply"]
 
 #: a device's own plan analysed for the installation, kept by the plan's content: the advisor
 #: re-analyses the installation for every candidate, most of which leave the device's plan alone
@@ -81,7 +81,9 @@ def placed_supply_findings(
     graph = building_graph(plan)
     for name, own in plan.device_plans:
         m = own.mains
-        if m is not None and (m.equipment_class == "II" or plugged.get(name) in behind):
+        if m is not None and (
+            m.equipment_class == "II" or gives_own_supply(behind.get(plugged.get(name)), plan)
+        ):
             out += _own_findings(name, own, alone, analyze, quick)
             continue
         if m is None:
@@ -98,18 +100,47 @@ def placed_supply_findings(
             )
             worst[key] = _worst_part(result)
             done[key] = _reported(result.findings, alone[id(own)].findings)
-        reported = done[key]
-        if route is None and plugged.get(name):
-            # plugged into an outlet whose earth reaches no main earthing terminal (GC215): no
-            # fault loop through the protective earth exists, so figures worked on the circuit its
-            # own plan assumed would describe a path it does not have
-            reported = [(f, its_own) for f, its_own in reported if its_own]
-        out += [_placed(f, name, placed, m, its_own) for f, its_own in reported]
+        out += _as_reported(
+            done[key], name, placed, m, unreached=route is None and plugged.get(name)
+        )
         if faults is not None and worst.get(key) is not None and (route or not plugged.get(name)):
             faults[name] = worst[key]
         if route is not None and worst.get(key) is not None:
             _route_survival(plan, name, route, worst[key], needs)
     return out + installation_survival(plan, needs)
+
+
+def _as_reported(reported, name: str, placed, own, unreached) -> list[Finding]:
+    """A device's findings on the installation's supply as reported there; ``unreached``: it is
+    plugged into an outlet whose earth reaches no main earthing terminal (GC215), where no fault
+    loop through the protective earth exists, so figures worked on the circuit its own plan
+    assumed would describe a path it does not have: only its own findings are kept."""
+    if unreached:
+        reported = [(f, its_own) for f, its_own in reported if its_own]
+    return [_placed(f, name, placed, own, its_own) for f, its_own in reported]
+
+
+def gives_own_supply(t, plan: Plan) -> bool:
+    """Whether a device plugged in behind transformer ``t`` (None: on the building's outlets) is
+    on a supply of the transformer's own rather than the building's: behind an isolating one (its
+    secondary floats) or one that changes the voltage. Behind an earthed transformer at the
+    supply's voltage (a 1:1 or variable autotransformer at full output) a fault to the device's
+    metal is the building's: its current flows out on the supply's line and back through the
+    protective conductors, so the building's RCD and breaker see it, and the fault loop runs
+    through the transformer's cord (its winding's own resistance left out, the best case).
+
+    Parameters:
+        t: the transformer the device is behind, or None.
+        plan: the installation.
+    Returns:
+        True when the device is checked on its own plan's mains only.
+    References:
+        IEC 60364-4-41 411.4, 411.5 (the fault loop); IEC 60038 (the ±10 % a supply may vary,
+        from memory).
+    """
+    if t is None:
+        return False
+    return t.isolating or not suits(t.secondary, (plan.supply.voltage, plan.supply.frequency))
 
 
 def _reported(there, alone) -> list[tuple[Finding, bool]]:
