@@ -14,9 +14,9 @@ and characteristic, which the mains statement then states).
 
 from __future__ import annotations
 
-import math
 
 from ..physics.safety import TOUCH_LIMIT
+from ..rules.earthing_system import STABLE_ELECTRODE, electrode_target
 from ..rules.catalogue import RULES
 from ..physics.heater_field import source_heater
 from .changes import Answer, Candidate, ChangeContext, appended
@@ -49,21 +49,6 @@ _DEFER = (
 #: the work of improving an earth electrode, ranked as metres of wire laid (see Candidate.work):
 #: more than fitting an RCD, which an electrician does in the board (common practice)
 ELECTRODE_WORK = 10.0
-
-#: Ω, the electrode resistance above which an electrode may not stay as measured through the
-#: seasons (common practice; docs/language.md's range of plausible ratings says the same)
-STABLE_ELECTRODE = 200.0
-
-
-def electrode_target(current: float) -> float:
-    """The electrode resistance R_A, Ω, to aim for: the largest at two significant figures rounded
-    down for which R_A × the current (an RCD's IΔn, an IT supply's first-fault current I_d) stays
-    within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A × IΔn ≤ 50 V; 411.6.2: R_A × I_d
-    ≤ 50 V), and never above :data:`STABLE_ELECTRODE` (a 500 Ω target for a 100 mA RCD sat
-    exactly on the limit, on an electrode that soil and season move)."""
-    r = TOUCH_LIMIT / current
-    step = 10.0 ** (math.floor(math.log10(r)) - 1)
-    return min(math.floor(r / step + 1e-9) * step, STABLE_ELECTRODE)
 
 
 def _set(ctx: ChangeContext, st, word: str, value: str) -> Edit:

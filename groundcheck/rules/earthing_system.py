@@ -5,6 +5,8 @@ overcurrent device alone (GC221), and metal written ``signal-only`` (GC222).
 
 from __future__ import annotations
 
+import math
+
 from typing import TYPE_CHECKING
 
 from ..physics.fault_loop import external_loop
@@ -176,24 +178,60 @@ def _unchecked_in_tt(plan: Plan) -> list[Finding]:
     ]
 
 
+#: Ω, the electrode resistance above which an electrode may not stay as measured through the
+#: seasons (common practice; docs/language.md's range of plausible ratings says the same)
+STABLE_ELECTRODE = 200.0
+
+
+def electrode_target(current: float) -> float:
+    """The electrode resistance R_A, Ω, to aim for: the largest at two significant figures rounded
+    down for which R_A × the current (an RCD's IΔn, an IT supply's first-fault current I_d) stays
+    within the touch-voltage limit (IEC 60364-4-41 411.5.3: R_A × IΔn ≤ 50 V; 411.6.2: R_A × I_d
+    ≤ 50 V), and never above :data:`STABLE_ELECTRODE` (a 500 Ω target for a 100 mA RCD sat
+    exactly on the limit, on an electrode that soil and season move).
+
+    Parameters:
+        current: the RCD's rated residual current or the first-fault current, A.
+    Returns:
+        the target, Ω.
+    References:
+        IEC 60364-4-41 411.5.3 and 411.6.2.
+    """
+    r = TOUCH_LIMIT / current
+    step = 10.0 ** (math.floor(math.log10(r)) - 1)
+    return min(math.floor(r / step + 1e-9) * step, STABLE_ELECTRODE)
+
+
 #: rated residual currents of general-purpose RCDs, A (IEC 61008-1 preferred values, from memory)
 RCD_RATINGS = (0.006, 0.01, 0.03, 0.1, 0.3, 0.5)
 
 
 def _tt_fix(r_a: float, rated: float) -> str:
-    """GC220's fix: the electrode to reach with this RCD, and the largest standard RCD rating that
-    the electrode as it is allows (none when even 6 mA does not)."""
-    fix = (
-        f"have the installation's earth electrode improved to at most {TOUCH_LIMIT / rated:.4g} Ω "
-        "(a qualified electrician measures and repairs it)"
-    )
+    """GC220's fix: a 30 mA RCD first when the electrode as it is allows it (it is also the
+    additional protection socket outlets need, GC225), else the electrode to reach with this
+    RCD (:func:`electrode_target`) and the largest standard RCD rating the electrode allows (none
+    when even 6 mA does not)."""
     fits = [x for x in RCD_RATINGS if x < rated and r_a * x <= TOUCH_LIMIT]
-    if fits:
-        fix += (
-            f", or protect the circuit with a {max(fits) * 1e3:g} mA RCD ({r_a * max(fits):.3g} V "
-            "at its rating)"
+    rcd = 0.03 if 0.03 in fits else max(fits, default=None)
+    target = electrode_target(rated)
+    electrode = (
+        f"have the installation's earth electrode improved to at most {target:g} Ω (a qualified "
+        "electrician measures and repairs it"
+        + (
+            f"; an electrode above {STABLE_ELECTRODE:g} Ω may not stay so through the seasons)"
+            if target >= STABLE_ELECTRODE
+            else ")"
         )
-    return fix + "; follow local electrical codes"
+    )
+    if rcd is None:
+        return electrode + "; follow local electrical codes"
+    with_rcd = (
+        f"protect the circuit with a {rcd * 1e3:g} mA RCD ({r_a * rcd:.3g} V at its rating"
+        + ("; the additional protection socket outlets need too)" if rcd == 0.03 else ")")
+    )
+    if rcd == 0.03:
+        return f"{with_rcd}, or {electrode}; follow local electrical codes"
+    return f"{electrode}, or {with_rcd}; follow local electrical codes"
 
 
 @rule("GC222")

@@ -15,6 +15,7 @@ from ..physics.safety import TOUCH_LIMIT
 from .catalogue import Finding
 from .context import AuditContext
 from .registry import rule
+from .earthing_system import electrode_target
 
 __all__ = ["rule_it_first_fault"]
 
@@ -88,7 +89,7 @@ def _over_the_limit(record, element: str, r_a: float, i_d: float) -> list[Findin
                 "electrode_times_first_fault_v": u,
             },
             f"have the installation's earth electrode improved to at most "
-            f"{TOUCH_LIMIT / i_d:.3g} Ω (a qualified electrician measures and repairs it); keep "
+            f"{electrode_target(i_d):g} Ω (a qualified electrician measures and repairs it); keep "
             "the insulation monitor that signals a first fault; follow local electrical codes",
         )
     ]
