@@ -13,7 +13,14 @@ from ..model.kinds import is_fastening, joins_devices
 from ..network.canonical import canonical_ranks
 from .graph_search import bfs
 
-__all__ = ["only_return_end", "shield_fix", "signal_shield", "supply_ends", "supply_meetings"]
+__all__ = [
+    "only_return_end",
+    "service_entry",
+    "shield_fix",
+    "signal_shield",
+    "supply_ends",
+    "supply_meetings",
+]
 
 
 def only_return_end(ctx, c) -> str | None:
@@ -65,6 +72,26 @@ def signal_shield(ctx, c) -> str | None:
     return None
 
 
+def service_entry(ctx, c) -> str | None:
+    """The end of a shield that is a cable entering the building (an aerial or cable-network
+    feed): in an installation, an end outside every device while the other is in one.
+
+    Parameters:
+        ctx: the audit context.
+        c: a shield.
+    Returns:
+        the building's end, or None.
+    References:
+        common practice (an incoming cable's screen is bonded where it enters, to the local
+        wiring rules).
+    """
+    if ctx.plan.supply is None:
+        return None
+    device_of = ctx.plan.index.device_of
+    outside = [e for e in (c.a, c.b) if device_of(e) is None]
+    return outside[0] if len(outside) == 1 else None
+
+
 def shield_fix(ctx, c, keep: str, lift: str) -> tuple[str, tuple]:
     """GC108's fix line and actions for a shield terminated at both ends.
 
@@ -79,6 +106,17 @@ def shield_fix(ctx, c, keep: str, lift: str) -> tuple[str, tuple]:
     References:
         common practice (a screened pair whose second core is the return, screen at one end).
     """
+    entry = service_entry(ctx, c)
+    if entry is not None:
+        inside = c.b if entry == c.a else c.a
+        return (
+            f"keep both ends: {c.name}'s screen is bonded to the building's earth at {entry}, "
+            "where the cable enters (the wiring rules' bonding of an incoming service, never "
+            "undone, and never replaced by another cable); break the loop at the equipment "
+            "instead: a galvanic isolator (an aerial isolator, capacitors in series with the "
+            f"inner and the screen) at {inside}",
+            (),
+        )
     alone = only_return_end(ctx, c)
     if alone is None:
         return (
