@@ -180,7 +180,10 @@ def _plug_move(ctx: ChangeContext, dev, there: str, why: str, reason: str, fits)
     References:
         none (bookkeeping).
     """
-    if dev is None or dev.location.file != ctx.plan.file or there == dev.plugged:
+    if dev is None or dev.location.file != ctx.plan.file:
+        return None
+    there, why = _supply_side(ctx.plan, dev, there, why)
+    if there == dev.plugged:
         return None
     st = ctx.src.statement(dev.location.line)
     ph = ctx.src.find(st, "plugged") if st is not None else None
@@ -271,6 +274,22 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
             add(_plug_move(ctx, dev, there, why, f.code, fits))
 
 
+def _supply_side(plan: Plan, dev, there: str, why: str) -> tuple[str, str]:
+    """Where a device moved to ``there`` is plugged in: never in behind a transformer it is not
+    behind already — a transformer serves what the plan puts behind it (a step-down for the unit
+    made for its voltage, a variable one for the device brought up slowly on it, an isolating one
+    for the one device it separates) — but at the outlet that feeds that transformer, which
+    joins the same earth; ``why`` then says so, its reason in brackets kept."""
+    feeds = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
+    own = feeds.get(dev.plugged)
+    t = feeds.get(there)
+    while t is not None and t is not own:
+        reason = why[why.index(" (") :] if " (" in why else ""
+        there, why = t.plugged, f"the outlet that feeds transformer {t.name}{reason}"
+        t = feeds.get(there)
+    return there, why
+
+
 def _fits(plan: Plan):
     """Whether a device may be plugged in at a point: the voltage there suits the one it is for
     (its own plan's, else where the plan plugs it in), within IEC 60038's ±10 %: never a 230 V
@@ -279,8 +298,9 @@ def _fits(plan: Plan):
     feeds = transformer_feeds(plan.transformers, plan.conductors, devices)
     if not feeds:
         return lambda dev, there: True
-    return lambda dev, there: suits(
-        rated_voltage(plan, dev, feeds), supply_at(there, feeds, plan.supply)
+    return lambda dev, there: (
+        (feeds.get(there) is None or feeds.get(there) is feeds.get(dev.plugged))
+        and suits(rated_voltage(plan, dev, feeds), supply_at(there, feeds, plan.supply))
     )
 
 
