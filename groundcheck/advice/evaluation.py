@@ -37,9 +37,14 @@ ADDS_DANGER = "it would add a danger finding"
 #: how a rejection for a louder channel begins (the combined set tries such changes again last: on
 #: the plan as changed they may no longer be louder)
 MAKES_LOUDER = "it would make the "
+#: the rejection of a change that sends more working current through protective conductors (the
+#: combined set tries it again last: once a kept change takes the return off the shared path, it
+#: may send none)
+MORE_PE_CURRENT = "it would send more of a supply's working current through a protective conductor"
 
 __all__ = [
     "MAKES_LOUDER",
+    "MORE_PE_CURRENT",
     "Evaluation",
     "evaluate",
     "HUM_FLOOR_DBV",
@@ -231,9 +236,7 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
     # protective fix stands (the return is the other finding's to fix)
     pe_fix = RULES[cand.reason.split(",")[0]].family == PROTECTIVE_EARTH
     if not pe_fix and _more_pe_current(before, after):
-        ev.rejected = (
-            "it would send more of a supply's working current through a protective conductor"
-        )
+        ev.rejected = MORE_PE_CURRENT
         return ev
     outlets = {p.name for p in after.plan.points if p.kind == "outlet"}
     # a device plugged in elsewhere may leave an unwired outlet on its own: that is no part of the

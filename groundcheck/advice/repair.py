@@ -27,7 +27,14 @@ from ..rules.selection import codes_of
 from .budget import Clock
 from .candidates import Candidate, candidates
 from .edits import Edit, apply_edits, text_diff, unified_diff
-from .evaluation import ADDS_DANGER, HUM_FLOOR_DBV, MAKES_LOUDER, Evaluation, evaluate
+from .evaluation import (
+    ADDS_DANGER,
+    HUM_FLOOR_DBV,
+    MAKES_LOUDER,
+    MORE_PE_CURRENT,
+    Evaluation,
+    evaluate,
+)
 from .fixes import NOT_TRIED
 from .merge import merge_into, overlap
 
@@ -200,6 +207,10 @@ def judged_notice(asked: Options) -> str:
     )
 
 
+#: the actions that move a supply's return off a shared path
+RETURN_MOVES = frozenset({"join", "return-to"})
+
+
 def _overlaps(edits, more) -> bool:
     """Whether any of ``more`` edits a line of a file that ``edits`` already edit (lines of a
     device's own plan and of the main plan are apart)."""
@@ -215,6 +226,30 @@ def _take_merged(chosen: list[Evaluation], before: list, after: list) -> None:
     for ev in chosen:
         edits = tuple(swapped.get(id(x), x) for x in ev.candidate.edits)
         ev.candidate = dataclasses.replace(ev.candidate, edits=edits)
+
+
+def _queue(evs: list[Evaluation]) -> tuple[list[Evaluation], list[Evaluation]]:
+    """The combined set's candidates in the order tried, and those waiting for a return to move.
+
+    The useful ones best first; then a change that brought a danger on the plan as it was (a bond
+    whose wire could not survive a fault the installation's RCD now clears), and one that was
+    louder (sockets insulated once the supply's return no longer runs on the bus they bypassed);
+    last, one that sent working current through a protective conductor while a return still ran
+    on the path it opened (an input socket insulated before the reservoir's return is moved),
+    which is tried next as soon as a kept change moves a return."""
+    useful = [e for e in evs if not e.rejected and e.score > 1e-9]
+    useful += [e for e in evs if (e.rejected or "").startswith(ADDS_DANGER)]
+    useful += [e for e in evs if (e.rejected or "").startswith(MAKES_LOUDER)]
+    waiting = [e for e in evs if e.rejected == MORE_PE_CURRENT]
+    return useful + waiting, waiting
+
+
+def _growing(items: list):
+    """(index, item) over a list that may be reordered after the current index while walked."""
+    i = 0
+    while i < len(items):
+        yield i, items[i]
+        i += 1
 
 
 def greedy(
@@ -245,21 +280,12 @@ def greedy(
     current = _judged(plan, options, before) or analyze(plan, options)
     chosen: list[Evaluation] = []
     edits: list = []
-    useful = [e for e in evs if not e.rejected and e.score > 1e-9]
-    # a change that brought a danger on the plan as it was may not on the plan as changed (a bond
-    # whose wire could not survive a fault the installation's RCD now clears): tried last
-    useful += [e for e in evs if (e.rejected or "").startswith(ADDS_DANGER)]
-    # a change that was louder on the plan as it was may help on the plan as changed (sockets
-    # insulated once the supply's return no longer runs on the bus they bypassed): tried after
-    useful += [e for e in evs if (e.rejected or "").startswith(MAKES_LOUDER)]
-    for i, e in enumerate(useful):
+    useful, waiting = _queue(evs)
+    for i, e in _growing(useful):
         if len(chosen) >= MAX_STEPS or not current.findings or not clock.fits():
             break
         kept, own = edits, e.candidate.edits
-        if _overlaps(edits, own):
-            # a second change to a statement already changed (an RCD and a high-breaking fuse,
-            # both in the mains statement): merged into the kept edit when they touch different
-            # words of it, left out when they conflict
+        if _overlaps(edits, own):  # merged into a kept edit of the same statement, or left out
             merged = merge_into(edits, own, text)
             if merged is None:
                 continue
@@ -274,6 +300,10 @@ def greedy(
         _take_merged(chosen, edits, kept)
         ev.candidate = dataclasses.replace(e.candidate, edits=own)
         chosen.append(ev)
+        if waiting and e.candidate.action in RETURN_MOVES:
+            ids = {id(x) for x in waiting}
+            useful[i + 1 :] = waiting + [x for x in useful[i + 1 :] if id(x) not in ids]
+            waiting = []
         edits = list(kept) + list(own)
         current = ev.result
     return chosen, current, apply_edits(text, edits)
