@@ -48,10 +48,12 @@ def stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float,
     sources = [s.pos for s in ctx.plan.fields]
     # a nut and its washer need metal all round the hole: places clear of the part's edge first,
     # then (a narrow strip) any place on it
-    rings = [(r, edge) for edge in (EDGE_CLEARANCE, 0.0) for r in (20e-3, 30e-3, 40e-3, 60e-3)]
-    for r, edge in rings:
-        for k in range(8):
-            a = math.pi / 4 * k
+    # (farther rings, in finer steps, for a corner crowded by a transformer's frame and its field)
+    rings = [(r, edge, 8) for edge in (EDGE_CLEARANCE, 0.0) for r in (20e-3, 30e-3, 40e-3, 60e-3)]
+    rings += [(r, EDGE_CLEARANCE, 16) for r in (80e-3, 100e-3, 120e-3)]
+    for r, edge, steps in rings:
+        for k in range(steps):
+            a = 2 * math.pi / steps * k
             q = (near[0] + r * math.cos(a), near[1] + r * math.sin(a))
             if edge and not all(
                 metal.contains((q[0] + dx, q[1] + dy))
@@ -296,6 +298,15 @@ def _bond_ends(ctx: ChangeContext, home: str, landing, part: str):
 SERVICE_SLACK = 0.1
 
 
+def _beside(q, landing) -> str:
+    """Where a new stud is said to be: beside the landing, or how far from it when a crowded
+    corner put it farther than the nearest places looked at."""
+    d = math.dist(q, landing.pos)
+    return (
+        f"beside {landing.name}" if d <= 60e-3 + 1e-9 else f"{d * 1e3:.0f} mm from {landing.name}"
+    )
+
+
 def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     """GC205, GC206: a touchable part with no protective path, or one through a poor contact
     (hinges, paint, anodised threads), gets a protective wire of its own from a new bonding stud
@@ -340,7 +351,7 @@ def bonding_wire(ctx: ChangeContext, f) -> Candidate | None:
     )
     return Candidate(
         f"bond {part} by a protective wire of its own ({b}_bond, {area:g} mm², from a new stud "
-        f"{a} on {home} beside {landing.name} to a new stud {b} on {part}; bare metal under "
+        f"{a} on {home} {_beside(start, landing)} to a new stud {b} on {part}; bare metal under "
         "toothed washers)",
         f.code,
         (at_end(ctx, st, extra),),
