@@ -11,7 +11,8 @@ from ..rules.results import Result
 from ..core.caution import CAUTION
 from ..core.plain import clean, readable
 from ..core.units import dbv
-from ..rules.catalogue import severity_rank
+from ..model.kinds import PROTECTIVE, is_fastening
+from ..rules.catalogue import RULES, severity_rank
 from .fixes import identity
 
 __all__ = ["compare", "compare_text", "compare_json"]
@@ -30,7 +31,43 @@ def _by_members(f, loops: list):
     return dataclasses.replace(f, elements=tuple(names)) if names != list(f.elements) else f
 
 
-def _matched(before: list, after: list, loops_before=(), loops_after=()) -> dict[str, list]:
+def _renamed(fixed: list, introduced: list, protective: set) -> list[tuple]:
+    """Pairs of a fixed and an introduced finding of one rule that name the same elements but for
+    protective conductors and fastenings (``protective``: their names in either plan): a loop
+    through the protective earth whose earth moved to a stud of its own is the same loop, its
+    closing links and cords unchanged."""
+    pairs = []
+    for f in list(fixed):
+        for g in introduced:
+            a, b = set(f.elements), set(g.elements)
+            if (
+                f.code == g.code
+                and RULES[f.code].identity == "elements"
+                and a != b
+                and len(a & b) >= 3
+                and (a ^ b) <= protective
+            ):
+                pairs.append((f, g))
+                fixed.remove(f)
+                introduced.remove(g)
+                break
+    return pairs
+
+
+def _protective_names(*results) -> set[str]:
+    """The protective conductors' and fastenings' names of the results' plans."""
+    out = set()
+    for r in results:
+        metals = r.plan.index.metals
+        out |= {
+            c.name for c in r.plan.conductors if c.role == PROTECTIVE or is_fastening(c, metals)
+        }
+    return out
+
+
+def _matched(
+    before: list, after: list, loops_before=(), loops_after=(), protective=frozenset()
+) -> dict[str, list]:
     """Findings fixed, kept and introduced, each keyed by its stable identity (``fixes.identity``:
     code, elements, their roles, the channel).  Findings that share one identity are counted, never
     merged: two before and one after is one kept and one fixed, so an introduced finding cannot
@@ -46,6 +83,10 @@ def _matched(before: list, after: list, loops_before=(), loops_after=()) -> dict
         out["fixed"] += b[len(a) :]
         out["introduced"] += a[len(b) :]
         out["worse"] += [(x, y, w) for x, y in zip(b, a) if (w := _worsened(x, y))]
+    for b, a in _renamed(out["fixed"], out["introduced"], set(protective)):
+        out["kept"].append(a)
+        if w := _worsened(b, a):
+            out["worse"].append((b, a, w))
     return out
 
 
@@ -95,6 +136,7 @@ def compare(before: Result, after: Result) -> dict:
         after.findings,
         [info.loop.edges for info in before.loops],
         [info.loop.edges for info in after.loops],
+        _protective_names(before, after),
     )
     row = lambda f: {"code": f.code, "severity": f.severity, "message": f.message}  # noqa: E731
     return clean(
@@ -125,11 +167,20 @@ def compare(before: Result, after: Result) -> dict:
 
 def _loops(before: Result, after: Result) -> dict:
     """The loops removed and added (each by its conductors) and the totals."""
-    lb = {frozenset(lp.loop.edges): lp for lp in before.loops}
-    la = {frozenset(lp.loop.edges): lp for lp in after.loops}
+    lb = {frozenset(lp.loop.edges) for lp in before.loops}
+    la = {frozenset(lp.loop.edges) for lp in after.loops}
+    removed, added = sorted(lb - la, key=sorted), sorted(la - lb, key=sorted)
+    # a loop whose protective conductors or fastenings were renamed (an earth moved to a stud of
+    # its own) is the same loop
+    protective = _protective_names(before, after)
+    for k in list(removed):
+        same = next((x for x in added if len(k & x) >= 3 and (k ^ x) <= protective), None)
+        if same is not None:
+            removed.remove(k)
+            added.remove(same)
     return {
-        "removed": [sorted(k) for k in sorted(lb.keys() - la.keys(), key=sorted)],
-        "added": [sorted(k) for k in sorted(la.keys() - lb.keys(), key=sorted)],
+        "removed": [sorted(k) for k in removed],
+        "added": [sorted(k) for k in added],
         "total_before": before.loop_total,
         "total_after": after.loop_total,
     }
