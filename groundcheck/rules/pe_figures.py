@@ -323,23 +323,38 @@ def installation_survival(plan: Plan, needs: dict) -> list[Finding]:
 
     Parameters:
         plan: the installation.
-        needs: conductor -> (the area it needs, m², the device whose fault, k), from
-            :mod:`groundcheck.rules.placed_supply`.
+        needs: conductor -> (the area it needs, m², the device whose fault, k, the part's
+            fault figures), from :mod:`groundcheck.rules.placed_supply`.
     Returns:
         GC207 findings.
     References:
         IEC 60364-5-54 543.1.2 (adiabatic equation and k values).
     """
     out = []
-    for cond, (need, device, k) in sorted(needs.items()):
+    for cond, (need, device, k, part) in sorted(needs.items(), key=lambda kv: kv[0]):
         c = plan.index.conductors[cond]
+        fix = (
+            "protect the outlets by a 30 mA RCD (it clears the fault at once), or use a "
+            "shorter or heavier lead so that the breaker clears within its instantaneous band"
+        )
+        slow = part.path_resistance > STANDARD_PE_LIMIT
+        if slow:
+            # the fault is slow because the device's own path is poor: mend that, not the building
+            fix = (
+                f"the fault is slow to clear because {device}'s {part.part} reaches the "
+                f"protective earth through {part.path_resistance * 1e3:.4g} mΩ inside the device "
+                f"(its own GC206): bond {part.part} properly there first, and {cond} needs no "
+                "change; or "
+                "protect the outlets by a 30 mA RCD"
+            )
         out.append(
             Finding(
                 "GC207",
                 "danger",
                 f"{cond} ({c.area * 1e6:.4g} mm², the installation's, in the fault loop of "
                 f"{device}) would not survive that device's fault until it is cleared: it needs "
-                f"{need * 1e6:.4g} mm² (k = {k:g})",
+                f"{need * 1e6:.4g} mm² (k = {k:g})"
+                + (f", because {device}'s own path to {part.part} is poor" if slow else ""),
                 c.location,
                 (cond,),
                 {
@@ -349,8 +364,7 @@ def installation_survival(plan: Plan, needs: dict) -> list[Finding]:
                     "required_mm2": need * 1e6,
                     "survives": False,
                 },
-                "protect the outlets by a 30 mA RCD (it clears the fault at once), or use a "
-                "shorter or heavier lead so that the breaker clears within its instantaneous band",
+                fix,
             )
         )
     return out

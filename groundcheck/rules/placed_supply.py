@@ -232,7 +232,7 @@ def _route_survival(plan: Plan, device: str, route, part, needs: dict) -> None:
     need = math.sqrt(part.i2t) / k * 1e-6  # m²
     for cond, _, _, pe_area, _ in route:
         if pe_area < need and need > needs.get(cond, (0.0, None))[0]:
-            needs[cond] = (need, device, k)
+            needs[cond] = (need, device, k, part)
 
 
 def _worst_part(result: Result | None):
