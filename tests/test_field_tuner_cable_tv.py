@@ -55,3 +55,22 @@ def test_the_front_panel_gets_its_bond_wire_wherever_his_new_stud_sits():
         bond = [e for e in evs if e.candidate.title.startswith("bond front by a protective wire")]
         assert bond and not bond[0].rejected, name
         assert "GC206" in bond[0].candidate.reason
+
+
+def test_a_building_cable_a_slow_fault_would_melt_names_the_devices_own_path():
+    # the front panel's 2.5 Ω makes the tuner's fault slow to clear (60 s on the 20 A breaker), so
+    # the radial's 1.5 mm² core "needs 4.5 mm²": the cure is the bond wire inside the tuner, not
+    # the house's wiring, and the finding says so
+    room = analyze(load(ROOM), QUICK)
+    radial = [f for f in room.findings if f.code == "GC207" and f.elements == ("radial",)]
+    assert radial and "because tuner's own path to front is poor" in radial[0].message
+    assert "bond front properly there first" in radial[0].fix
+
+
+def test_a_return_wire_that_closes_a_new_loop_is_not_offered_beside_a_clean_join():
+    # his tuner alone: the centre tap joined straight to the reservoir clears the shared return
+    # and introduces nothing; a wire of its own between them also closes a loop and a new shared
+    # return (GC101, GC102): it is rejected, naming the better change
+    _, evs = suggest(load(TUNER), TUNER.read_text(), Options(), FIELD.resolve(), TUNER.resolve())
+    own = next(e for e in evs if "(ht_ct_ret," in e.candidate.title)
+    assert own.rejected.startswith("join ht_ct straight to res_neg (ct_lead)")

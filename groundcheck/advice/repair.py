@@ -152,8 +152,38 @@ def suggest(
             evs.append(clock.timed(evaluate, text, plan, before, c, options, root, resolved))
         if progress is not None:
             progress(i + 1, i + 1 + free_left + (0 if late else clock.reachable(left)))
+    _dominated(evs)
     evs.sort(key=lambda e: e.rank_key())
     return before, evs
+
+
+def _dominated(evs: list[Evaluation]) -> None:
+    """Rejects a change that introduces findings when another change for the same finding clears
+    all it clears, introduces none and ranks before it (a return's own wire that closes a new loop
+    beside a join of the same return that closes none)."""
+    ok = [e for e in evs if not e.rejected and e.result is not None]
+    for a in ok:
+        if not a.introduced:
+            continue
+        code = a.candidate.reason.split(",")[0]
+        better = next(
+            (
+                b
+                for b in ok
+                if b is not a
+                and not b.introduced
+                and not b.rejected
+                and b.candidate.reason.split(",")[0] == code
+                and b.cleared_keys >= a.cleared_keys
+                and b.rank_key() < a.rank_key()
+            ),
+            None,
+        )
+        if better is not None:
+            a.rejected = (
+                f"{better.candidate.title} answers the same finding, clears all it clears and "
+                "introduces nothing"
+            )
 
 
 def advise(
