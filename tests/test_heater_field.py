@@ -127,14 +127,14 @@ def test_an_ac_heater_pair_is_a_source_in_the_hum_budget():
         )
     )
     (row,) = r.hum.loops
-    entry = row["sources"]["htr.wiring"]
-    assert entry["model"] == "two-wire line" and entry["per_frequency"][0]["frequency_hz"] == 50
+    entry = row.sources["htr.wiring"]
+    assert entry.model == "two-wire line" and entry.lines[0].frequency == 50
     # closest approach, worked by hand: the loop's top edge (y = 80 mm) to the nearer wire (y = 100
     # − 2.5 mm, 5 mm up): √(17.5² + 5²) = 18.20 mm
-    assert entry["closest_mm"] == pytest.approx(18.2, abs=0.05) and entry["size_mm"] is None
+    assert entry.closest * 1e3 == pytest.approx(18.2, abs=0.05) and entry.size is None
     assert any(c.source == "htr.wiring" for c in r.hum.channels["main"].contributors)
     twisted = analyze(load_text(PLAN.format(route="10,100 250,100", extra=", twisted"), "h.gplan"))
-    assert not twisted.hum.loops or "htr.wiring" not in twisted.hum.loops[0]["sources"]
+    assert not twisted.hum.loops or "htr.wiring" not in twisted.hum.loops[0].sources
 
 
 @pytest.mark.parametrize("route", ["10,100 250,100", "60,95 120,95", "150,90 40,110 40,160"])
@@ -146,7 +146,7 @@ def test_the_loops_emf_is_that_of_the_closed_heater_circuit(route):
     r = analyze(
         load_text(PLAN.format(route=route, extra=", spacing 5 mm, height 5 mm"), "h.gplan")
     )
-    got = r.hum.loops[0]["sources"]["htr.wiring"]["per_frequency"][0]["emf_v"]
+    got = r.hum.loops[0].sources["htr.wiring"].lines[0].emf
     pts = [tuple(float(v) / 1000 for v in p.split(",")) for p in route.split()]
     closed = _circuit(pts, 0.005, 0.005)
     by_area = 2 * math.pi * 50 * abs(_biot_savart_flux(closed, 3.0, (0.03, 0.03, 0.17, 0.08)))

@@ -160,9 +160,9 @@ def test_every_plan_with_a_rectifier_or_a_loop_has_its_table():
         result, tables = _analysed(path)
         assert len(tables["rectifiers"]) == len(result.rectifiers), path
         expected = sum(
-            max(1, len(s["per_frequency"]))
+            max(1, len(s.lines))
             for row in (result.hum.loops if result.hum else [])[:200]
-            for s in row["sources"].values()
+            for s in row.sources.values()
         )
         assert len(tables["pickup"]) == expected, path
 

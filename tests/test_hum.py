@@ -196,12 +196,10 @@ def test_single_loop_solved_by_hand():
     v_out = i * 0.010 * 10
     ch = r.hum.channels["main"]
     assert ch.total_v == pytest.approx(v_out, rel=1e-6)
-    loop = r.hum.loops[0]["sources"]["t"]["per_frequency"][0]
-    assert loop["emf_v"] == pytest.approx(e, rel=1e-6) and loop["current_a"] == pytest.approx(
-        i, rel=1e-6
-    )
-    assert r.hum.loops[0]["sources"]["t"]["axis"] == [0.0, 0.0, 1.0]
-    assert ch.field_axes[0]["axis"] == [0.0, 0.0, 1.0]
+    loop = r.hum.loops[0].sources["t"].lines[0]
+    assert loop.emf == pytest.approx(e, rel=1e-6) and loop.current == pytest.approx(i, rel=1e-6)
+    assert r.hum.loops[0].sources["t"].axis == (0.0, 0.0, 1.0)
+    assert ch.field_axes[0].axis == (0.0, 0.0, 1.0)
 
 
 def test_crosstalk_through_a_shared_return_by_hand():
@@ -404,6 +402,6 @@ field t: transformer, at 100,60, 50 uT at 5 cm, size 80 mm
 """
     flat = analyze(load_text(base.format(route=""), "near.gplan"))
     looped = analyze(load_text(base.format(route=", via 60,100 140,100"), "near.gplan"))
-    assert flat.hum.loops and flat.hum.loops[0]["area_mm2"] == 0
+    assert flat.hum.loops and flat.hum.loops[0].area == 0
     assert not [f for f in flat.findings if f.code == "GC305"]
     assert [f for f in looped.findings if f.code == "GC305"]

@@ -199,21 +199,19 @@ def test_the_default_orientation_is_the_worst_at_the_output():
     assert h.total_v == pytest.approx(_independent_worst(), rel=2e-3)
     (row,) = h.field_axes
     assert (
-        row["chosen"] == "worst at the output"
-        and row["axis_stated"] == "worst"
-        and row["model"] == "ring"
+        row.chosen == "worst at the output" and row.axis_stated == "worst" and row.model == "ring"
     )
-    assert row["level_v"] == pytest.approx(h.total_v, rel=1e-9)
+    assert row.level == pytest.approx(h.total_v, rel=1e-9)
     for word, v in stated.items():
-        assert row["axes_v"][word] == pytest.approx(v, rel=1e-9)
-    assert row["measure"] == "rms total"  # no speaker or headphones: no threshold to weigh by
+        assert row.axes[word] == pytest.approx(v, rel=1e-9)
+    assert row.measure == "rms total"  # no speaker or headphones: no threshold to weigh by
     xr = (
         analyze(load_text(WORST.format(axis=", axis x"), "w.gplan"))
         .hum.channels["main"]
         .field_axes[0]
     )
-    assert xr["chosen"] == "stated" and xr["axis"] == [1.0, 0.0, 0.0]
-    assert xr["worst_level_v"] == pytest.approx(h.total_v, rel=1e-6)
+    assert xr.chosen == "stated" and xr.axis == (1.0, 0.0, 0.0)
+    assert xr.worst_level == pytest.approx(h.total_v, rel=1e-6)
 
 
 def test_no_jump_where_a_loop_crosses_the_size():
@@ -231,8 +229,8 @@ def test_no_jump_where_a_loop_crosses_the_size():
             "height 35 mm", "height 11 mm"
         )
         r = analyze(load_text(text.replace("{axis}", ", axis z"), "w.gplan"))
-        row = next(x for x in r.hum.loops if "b" in x["members"])
-        emfs.append(row["sources"]["t"]["per_frequency"][0]["emf_v"])
+        row = next(x for x in r.hum.loops if "b" in x.members)
+        emfs.append(row.sources["t"].lines[0].emf)
         expected = (
             2 * math.pi * 50 * abs(_neumann_flux((0.05, y * 1e-3, 0.011), (0, 0, 1), 0.03, RECT1))
         )
@@ -287,8 +285,8 @@ def test_loops_near_a_source_are_noted_with_the_model_used():
     assert {f.elements[1] for f in notes} == {"ptx", "choke"} and all(
         "ring model" in f.message for f in notes
     )
-    entry = next(row for row in r.hum.loops if row["loop"] == 1)["sources"]["choke"]
-    assert entry["model"] == "ring" and entry["height_mm"] == 30 and entry["closest_mm"] < 50
+    entry = next(row for row in r.hum.loops if row.loop == 1).sources["choke"]
+    assert entry.model == "ring" and entry.height == pytest.approx(0.030) and entry.closest < 0.050
     bare = analyze(load_text(text.replace(", size 50 mm", ""), str(head)))
     (note,) = [f for f in bare.findings if f.code == "GC305" and f.elements[1] == "choke"]
     assert "state the size of choke" in note.fix
@@ -409,7 +407,7 @@ field t: transformer, at 100,70, 40 uT at 5 cm, axis z
 """
     r = analyze(load_text(text, "deck.gplan"))
     (row,) = r.hum.loops
-    got = row["sources"]["t"]["per_frequency"][0]["emf_v"] / (2 * math.pi * 50)
+    got = row.sources["t"].lines[0].emf / (2 * math.pi * 50)
     assert got == pytest.approx(expected, rel=0.05)
     t = (np.arange(20000) + 0.5) / 20000  # back along the straight chord from stud 2 to stud 1
     back = float(
@@ -451,7 +449,7 @@ def test_with_harmonics_the_worst_direction_maximises_the_threshold_weighted_tot
         return sum(10 ** (row.margin / 10) for row in h.spectrum if row.margin is not None), h
 
     worst, h = weighted("")
-    assert h.field_axes[0]["measure"] == "threshold-weighted total"
+    assert h.field_axes[0].measure == "threshold-weighted total"
     assert [row.frequency for row in h.spectrum] == [50.0, 150.0]
     for axis in (", axis x", ", axis y", ", axis z"):
         assert worst >= weighted(axis)[0] * (1 - 3e-3)  # the margins are rounded to 0.01 dB

@@ -101,7 +101,7 @@ def test_tt_electrode_times_residual_current_over_50_v_is_a_danger(rcd_ma, elect
     # advisor's target) and a 30 mA RCD where the electrode allows it (the additional protection
     # socket outlets need too), else the largest preferred rating it allows (IEC 61008-1's 10,
     # 30, 100, 300 mA, from memory): 2 kΩ → 10 mA, 600 Ω → 30 mA, 200 Ω → 30 mA
-    assert f"at most { {30: 200, 100: 200, 300: 160}[rcd_ma]} Ω" in f.fix
+    assert f"at most { {30: 200, 100: 200, 300: 160}[rcd_ma] } Ω" in f.fix
     assert {30: "10 mA RCD", 100: "30 mA RCD", 300: "30 mA RCD"}[rcd_ma] in f.fix
     if rcd_ma != 30:  # the RCD first, and once
         assert f.fix.startswith("protect the circuit with a 30 mA RCD")

@@ -179,9 +179,9 @@ def test_a_speaker_return_on_the_input_ground_is_a_fault_by_hand():
     assert f.figures["feedback_db"] == pytest.approx(_db(total, 20), abs=0.01)
     assert f.figures["input_db"] == pytest.approx(_db(ahead, 20), abs=0.01)
     assert f.actions == (("reroute", "spk_ret", "star"),)
-    row = next(x for x in r.hum.feedback if x["frequency_hz"] == 1000.0)
-    assert row["volts"] == pytest.approx(total, rel=1e-6)
-    assert row["input_volts"] == pytest.approx(ahead, rel=1e-6)
+    row = next(x for x in r.hum.feedback if x.frequency == 1000.0)
+    assert row.volts == pytest.approx(total, rel=1e-6)
+    assert row.input_volts == pytest.approx(ahead, rel=1e-6)
 
 
 def test_a_small_ground_feedback_is_a_note_and_its_own_return_none():
@@ -241,11 +241,9 @@ def test_the_dual_mono_feedback_against_ngspice():
     total = sum((v(st.a) - v(st.b)) * 10 ** (st.gain / 20) for st in right)
     spice_db = _db(abs(total), 28.0)
     ours = next(
-        x
-        for x in analyze(p).hum.feedback
-        if x["source"] == "right_spk_i" and x["frequency_hz"] == 1000.0
+        x for x in analyze(p).hum.feedback if x.source == "right_spk_i" and x.frequency == 1000.0
     )
-    assert ours["db"] == pytest.approx(spice_db, abs=0.01)
+    assert ours.db == pytest.approx(spice_db, abs=0.01)
     assert spice_db == pytest.approx(-41.7, abs=0.1)  # the verdict's figure
 
 

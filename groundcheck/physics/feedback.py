@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..core.units import db_of_ratio
+from .hum_rows import FeedbackLine
 
 __all__ = ["FEEDBACK_FLOOR_DB", "feedback_sources", "own_feedback", "feedback_rows"]
 
@@ -112,14 +113,14 @@ def feedback_rows(raw: dict, rated) -> list[dict]:
         if name not in heard:  # nothing of it reaches its own channel's stages
             continue
         rows.append(
-            {
-                "source": name,
-                "channel": ch,
-                "frequency_hz": f,
-                "volts": float(abs(total)),
-                "db": round(_db(abs(total), of(ch)), 2),
-                "input_volts": float(abs(ahead)),
-                "input_db": round(_db(abs(ahead), of(ch)), 2),
-            }
+            FeedbackLine(
+                name,
+                ch,
+                f,
+                float(abs(total)),
+                _db(abs(total), of(ch)),
+                float(abs(ahead)),
+                _db(abs(ahead), of(ch)),
+            )
         )
     return rows

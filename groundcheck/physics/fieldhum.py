@@ -20,6 +20,7 @@ import math
 import numpy as np
 
 from .hearing import heard_threshold
+from .hum_rows import FieldAxis, LoopPickup, PickupLine, SourcePickup
 from .humtotals import FLOOR_V
 from .orient import AXES, channel_objective, stated_axis, worst_axis
 
@@ -84,9 +85,7 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
                 m, row = _channel_axis(
                     model, parts, src, MEASURE_WEIGHTED if verdict else MEASURE_RMS
                 )
-                if (
-                    row["worst_level_v"] >= FLOOR_V
-                ):  # below, the source puts nothing at this output
+                if row.worst_level >= FLOOR_V:  # below, the source puts nothing at this output
                     out[ch].append(row)
                 phi = model.fluxes(m)[0]
                 b.directions[(ch, name)] = m
@@ -135,18 +134,22 @@ def _channel_axis(model, parts, src, measure_name: str) -> tuple[np.ndarray, dic
         axes[word] = (
             _level(model, parts, v) if np.allclose(model.admit(v[None, :])[0], v) else None
         )
-    return used, {
-        "source": src.name,
-        "model": model.model,
-        "axis_stated": src.axis,
-        "axis": [round(float(x), 4) for x in used],
-        "chosen": "stated" if stated is not None else "worst at the output",
-        "measure": measure_name,
-        "level_v": _level(model, parts, used),
-        "worst_axis": [round(float(x), 4) for x in worst],
-        "worst_level_v": _level(model, parts, worst),
-        "axes_v": axes,
-    }
+    return used, FieldAxis(
+        src.name,
+        model.model,
+        src.axis,
+        _vector(used),
+        "stated" if stated is not None else "worst at the output",
+        measure_name,
+        _level(model, parts, used),
+        _vector(worst),
+        _level(model, parts, worst),
+        axes,
+    )
+
+
+def _vector(m) -> tuple[float, float, float]:
+    return (float(m[0]), float(m[1]), float(m[2]))
 
 
 def _apply(b, merged, ch: str, ks: list, group: str, spectrum, phi: np.ndarray) -> None:
@@ -176,35 +179,26 @@ def _loop_rows(b, merged, model, spectrum) -> None:
             phi = float(model.fluxes(m)[0, col])
         info = b.loops[li]
         row = merged.loop_rows.setdefault(
-            li,
-            {
-                "loop": li + 1,
-                "members": list(info.loop.nodes),
-                "closed_by": info.closed_by,
-                "area_mm2": None if info.area is None else info.area * 1e6,
-                "sources": {},
-            },
+            li, LoopPickup(li + 1, list(info.loop.nodes), info.closed_by, info.area)
         )
-        row["sources"][src.name] = {
+        row.sources[src.name] = SourcePickup(
             # a loop of no area to speak of (its conductors in line) has no mean flux density
-            "flux_density_equiv_t": abs(phi) / info.area
-            if (info.area or 0) > AREA_FLOOR
-            else None,
-            "closest_mm": round(b.closest(src.name, info.polygon) * 1e3, 1),
-            "height_mm": round(src.height * 1e3, 3),
-            "axis": [round(float(x), 4) for x in m],
-            "axis_stated": src.axis,
-            "model": model.model,
-            "size_mm": None if src.size is None else round(src.size * 1e3, 3),
-            "per_frequency": [
-                {
-                    "frequency_hz": f,
-                    "emf_v": 2 * math.pi * f * abs(ratio * phi),
-                    "current_a": float(abs(ratio * phi * merged.pickup[f][1][col])),
-                }
+            abs(phi) / info.area if (info.area or 0) > AREA_FLOOR else None,
+            b.closest(src.name, info.polygon),
+            src.height,
+            _vector(m),
+            src.axis,
+            model.model,
+            src.size,
+            tuple(
+                PickupLine(
+                    f,
+                    2 * math.pi * f * abs(ratio * phi),
+                    float(abs(ratio * phi * merged.pickup[f][1][col])),
+                )
                 for f, ratio in spectrum
-            ],
-        }
+            ),
+        )
 
 
 #: a loop's outline enclosing less than this (m²: 1 µm², rounding on collinear conductors) has

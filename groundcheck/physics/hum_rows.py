@@ -11,7 +11,16 @@ from dataclasses import dataclass, field
 
 from ..core.units import dbv
 
-__all__ = ["SpectrumLine", "Contributor", "CrosstalkLine"]
+__all__ = [
+    "SpectrumLine",
+    "Contributor",
+    "CrosstalkLine",
+    "FeedbackLine",
+    "FieldAxis",
+    "PickupLine",
+    "SourcePickup",
+    "LoopPickup",
+]
 
 
 @dataclass(frozen=True)
@@ -69,3 +78,66 @@ class CrosstalkLine:
     frequency: float  # Hz
     volts: float  # V rms at the receiving output for the rated signal
     db: float  # dB below the rated output (the floor when nothing reaches it)
+
+
+@dataclass(frozen=True)
+class FeedbackLine:
+    """What a signal current puts back into its own channel's output at one frequency."""
+
+    source: str  # the signal current
+    channel: str
+    frequency: float  # Hz
+    volts: float  # V rms, every stage of the channel (summed with signs)
+    db: float  # dB against the channel's rated output
+    input_volts: float  # V rms, the stages that do not end on the current's own points
+    input_db: float  # dB against the rated output
+
+
+@dataclass(frozen=True)
+class FieldAxis:
+    """One field source's direction for one channel's figures, and the hum it gives there."""
+
+    source: str
+    model: str  # "dipole" or "ring"
+    axis_stated: str  # the plan's word ("worst" when it states none)
+    axis: tuple[float, float, float]  # the unit vector used
+    chosen: str  # "stated" or "worst at the output"
+    measure: str  # what the worst direction maximises
+    level: float  # V rms at the output with the direction used
+    worst_axis: tuple[float, float, float]
+    worst_level: float  # V rms with the worst direction
+    axes: dict  # "x", "y", "z" -> V rms (None: that axis would take a ring through the deck)
+
+
+@dataclass(frozen=True)
+class PickupLine:
+    """A loop's pickup from one source at one frequency."""
+
+    frequency: float  # Hz
+    emf: float  # V rms around the loop
+    current: float  # A rms the EMF drives round the loop
+
+
+@dataclass(frozen=True)
+class SourcePickup:
+    """One field source's pickup in one loop."""
+
+    flux_density: float | None  # T, the flux over the loop's area (None: no area)
+    closest: float  # m, the loop's closest approach to the source's centre
+    height: float  # m, the source's centre above the deck
+    axis: tuple[float, float, float]  # the direction of this row
+    axis_stated: str
+    model: str  # "dipole", "ring" or "two-wire line"
+    size: float | None  # m, the source's stated size
+    lines: tuple[PickupLine, ...]
+
+
+@dataclass
+class LoopPickup:
+    """A ground loop's pickup from every field source."""
+
+    loop: int  # its number in the loop table
+    members: list
+    closed_by: str
+    area: float | None  # m²
+    sources: dict = field(default_factory=dict)  # source name -> SourcePickup

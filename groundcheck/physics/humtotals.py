@@ -16,7 +16,7 @@ import numpy as np
 from ..core.units import db_of_ratio, dbv
 from .feedback import feedback_rows
 from .hearing import heard_threshold, spl_of
-from .hum_rows import Contributor, CrosstalkLine, SpectrumLine
+from .hum_rows import Contributor, CrosstalkLine, FeedbackLine, LoopPickup, SpectrumLine
 
 __all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB"]
 
@@ -64,7 +64,7 @@ class ChannelHum:
 class HumResult:
     channels: dict[str, ChannelHum]
     rectifiers: list
-    loops: list[dict]
+    loops: list[LoopPickup]
     crosstalk: list[CrosstalkLine]
     frequencies: list[float]
     network: list[dict] = field(default_factory=list)  # per source: conductor currents and drops
@@ -77,7 +77,7 @@ class HumResult:
     # ('rectifier charging' or 'KIND:NAME', as in the contributors)
     levels: dict = field(default_factory=dict)
     # per signal current and frequency: its own channel's stages reading it (physics/feedback.py)
-    feedback: list[dict] = field(default_factory=list)
+    feedback: list[FeedbackLine] = field(default_factory=list)
 
 
 class Merged:
@@ -90,7 +90,7 @@ class Merged:
         self.contrib = {
             ch: defaultdict(lambda: defaultdict(complex)) for ch in b.channels
         }  # (label) -> f -> phasor
-        self.loop_rows: dict[int, dict] = {}
+        self.loop_rows: dict[int, LoopPickup] = {}
         self.network_rows: list[dict] = []
         self.probes: dict = {}
         self.probe_leak: dict = {}
@@ -222,7 +222,7 @@ class Merged:
             )
         return clist
 
-    def feedback(self) -> list[dict]:
+    def feedback(self) -> list[FeedbackLine]:
         def rated(ch: str) -> float:  # each channel against its own chain's rated output
             listening = self.b.listening_of(ch)
             return listening.rated_output if listening else self.b.rated

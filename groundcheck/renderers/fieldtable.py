@@ -26,7 +26,7 @@ def _uv(x) -> str:
 def direction_words(axis: list[float]) -> str:
     """'x', 'y', 'z' for an axis, else the unit vector's components."""
     named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(
-        tuple(abs(x) for x in axis)
+        tuple(abs(round(x, 4)) for x in axis)
     )
     return named or "(" + ", ".join(readable(x, ".2g") for x in axis) + ")"
 
@@ -69,16 +69,16 @@ def field_axes_table(channels: dict, console: Console) -> None:
             else "right",
         )
     for ch, r in rows:
-        chosen = "stated" if r["chosen"] == "stated" else f"worst ({r['measure']})"
+        chosen = "stated" if r.chosen == "stated" else f"worst ({r.measure})"
         t.add_row(
             _escape(shown(ch)),
-            _escape(shown(r["source"])),
-            direction_words(r["axis"]),
+            _escape(shown(r.source)),
+            direction_words(r.axis),
             chosen,
-            _uv(r["level_v"]),
-            _uv(r["worst_level_v"]),
-            direction_words(r["worst_axis"]),
-            *(_uv(r["axes_v"][a]) for a in "xyz"),
+            _uv(r.level),
+            _uv(r.worst_level),
+            direction_words(r.worst_axis),
+            *(_uv(r.axes[a]) for a in "xyz"),
         )
     console.print(t)
     console.print()

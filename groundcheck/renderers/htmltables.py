@@ -71,7 +71,7 @@ def pickup_section(result: Result, parts: list[str], e=escape) -> None:
     """Each loop's pickup: per field source the model and direction its figures use, and per
     harmonic the EMF around the loop and the current it drives there."""
     loops = [] if result.hum is None else result.hum.loops[:TABLE_PICKUP_LOOPS]
-    rows = [(row, name, s) for row in loops for name, s in row["sources"].items()]
+    rows = [(row, name, s) for row in loops for name, s in row.sources.items()]
     if not rows:
         return
     parts.append(
@@ -83,19 +83,20 @@ def pickup_section(result: Result, parts: list[str], e=escape) -> None:
         "<th>loop current</th></tr>"
     )
     for row, name, s in rows:
+        area = None if row.area is None else row.area * 1e6
         head = (
-            f"<td>{row['loop']}</td><td class=num>{cell(row.get('area_mm2'), '{:.0f} mm²')}</td>"
-            f"<td>{e(name)}</td><td>{e(s['model'])}</td>"
-            f"<td>{e(axis_words(s['axis'], s['axis_stated']))}</td>"
-            f"<td class=num>{cell(s['closest_mm'], '{:g} mm')}</td>"
+            f"<td>{row.loop}</td><td class=num>{cell(area, '{:.0f} mm²')}</td>"
+            f"<td>{e(name)}</td><td>{e(s.model)}</td>"
+            f"<td>{e(axis_words(s.axis, s.axis_stated))}</td>"
+            f"<td class=num>{cell(round(s.closest * 1e3, 1), '{:g} mm')}</td>"
         )
-        for h in s["per_frequency"] or [None]:
+        for h in s.lines or [None]:
             tail = (
                 "<td class=num>–</td>" * 3
                 if h is None
-                else f"<td class=num>{cell(h['frequency_hz'], '{:g} Hz')}</td>"
-                f"<td class=num>{_si(h['emf_v'], 'V')}</td>"
-                f"<td class=num>{_si(h.get('current_a'), 'A')}</td>"
+                else f"<td class=num>{cell(h.frequency, '{:g} Hz')}</td>"
+                f"<td class=num>{_si(h.emf, 'V')}</td>"
+                f"<td class=num>{_si(h.current, 'A')}</td>"
             )
             parts.append(f"<tr>{head}{tail}</tr>")
     parts.append("</table>")

@@ -68,7 +68,7 @@ def channel_json(h) -> dict:
         "margin_db": rounded(h.margin_db),
         "spectrum": [_spectrum_line(r) for r in h.spectrum],
         "contributors": [_contributor(c) for c in h.contributors],
-        "field_axes": h.field_axes,
+        "field_axes": [_field_axis(a) for a in h.field_axes],
         "covers": h.covers,
     }
 
@@ -83,15 +83,71 @@ def _crosstalk_line(x) -> dict:
     }
 
 
+def _vector(v) -> list:
+    return [round(float(x), 4) for x in v]
+
+
+def _field_axis(a) -> dict:
+    return {
+        "source": a.source,
+        "model": a.model,
+        "axis_stated": a.axis_stated,
+        "axis": _vector(a.axis),
+        "chosen": a.chosen,
+        "measure": a.measure,
+        "level_v": a.level,
+        "worst_axis": _vector(a.worst_axis),
+        "worst_level_v": a.worst_level,
+        "axes_v": dict(a.axes),
+    }
+
+
+def _source_pickup(s) -> dict:
+    return {
+        "flux_density_equiv_t": s.flux_density,
+        "closest_mm": round(s.closest * 1e3, 1),
+        "height_mm": round(s.height * 1e3, 3),
+        "axis": _vector(s.axis),
+        "axis_stated": s.axis_stated,
+        "model": s.model,
+        "size_mm": None if s.size is None else round(s.size * 1e3, 3),
+        "per_frequency": [
+            {"frequency_hz": x.frequency, "emf_v": x.emf, "current_a": x.current} for x in s.lines
+        ],
+    }
+
+
+def _loop_pickup(lp) -> dict:
+    return {
+        "loop": lp.loop,
+        "members": lp.members,
+        "closed_by": lp.closed_by,
+        "area_mm2": None if lp.area is None else lp.area * 1e6,
+        "sources": {name: _source_pickup(s) for name, s in lp.sources.items()},
+    }
+
+
+def _feedback_line(x) -> dict:
+    return {
+        "source": x.source,
+        "channel": x.channel,
+        "frequency_hz": x.frequency,
+        "volts": x.volts,
+        "db": rounded(x.db),
+        "input_volts": x.input_volts,
+        "input_db": rounded(x.input_db),
+    }
+
+
 def hum_json(hum) -> dict:
     """The hum budget (:class:`groundcheck.physics.humtotals.HumResult`)."""
     return {
         "frequencies_hz": hum.frequencies,
         "channels": {k: channel_json(v) for k, v in hum.channels.items()},
         "rectifiers": [rectifier_json(r) for r in hum.rectifiers],
-        "loops": hum.loops,
+        "loops": [_loop_pickup(lp) for lp in hum.loops],
         "crosstalk": [_crosstalk_line(x) for x in hum.crosstalk],
-        "feedback": hum.feedback,
+        "feedback": [_feedback_line(x) for x in hum.feedback],
         "notes": hum.notes,
     }
 

@@ -88,11 +88,11 @@ def _hum_notes(result: Result, left_out: dict, console: Console) -> None:
             + ("below −200 dB" if r.db <= -200 else f"{r.db:.1f} dB")
         )
     for r in result.hum.feedback:
-        if at_signal_frequency(r["frequency_hz"]) and r["input_db"] > -200:
+        if at_signal_frequency(r.frequency) and r.input_db > -200:
             console.print(
-                f"  ground feedback of {escape(r['source'])} into its own "
-                f"{escape(str(r['channel']))} output at {SIGNAL_FREQUENCY_TEXT}: {r['db']:.1f} dB "
-                f"({r['input_db']:.1f} dB through its input stages)"
+                f"  ground feedback of {escape(r.source)} into its own "
+                f"{escape(str(r.channel))} output at {SIGNAL_FREQUENCY_TEXT}: {r.db:.1f} dB "
+                f"({r.input_db:.1f} dB through its input stages)"
             )
     for note in result.hum.notes:
         console.print(Text(f"  note: {note}", style="dim"))
@@ -150,7 +150,7 @@ def axis_words(axis: list[float], stated: str) -> str:
     if stated == "pair":
         return "heater pair"
     named = {(1.0, 0.0, 0.0): "x", (0.0, 1.0, 0.0): "y", (0.0, 0.0, 1.0): "z"}.get(
-        tuple(abs(x) for x in axis)
+        tuple(abs(round(x, 4)) for x in axis)
     )
     shown = named or "(" + ", ".join(f"{x:.2g}" for x in axis) + ")"
     return f"worst: {shown}" if stated == "worst" else shown
@@ -174,15 +174,15 @@ def _pickup_table(result: Result, console: Console) -> None:
         t.add_column(col, justify="left" if col in ("source", "axis", "model") else "right")
     rows = 0
     for row in result.hum.loops[:TABLE_LOOPS]:
-        for name, e in row["sources"].items():
-            first = e["per_frequency"][0]["emf_v"] if e["per_frequency"] else None
+        for name, e in row.sources.items():
+            first = e.lines[0].emf if e.lines else None
             t.add_row(
-                str(row["loop"]),
+                str(row.loop),
                 escape(name),
-                f"{e['height_mm']:g}",
-                axis_words(e["axis"], e["axis_stated"]),
-                e["model"],
-                f"{e['closest_mm']:g}",
+                f"{round(e.height * 1e3, 3):g}",
+                axis_words(e.axis, e.axis_stated),
+                e.model,
+                f"{round(e.closest * 1e3, 1):g}",
                 _emf_uv(first),
             )
             rows += 1

@@ -350,15 +350,15 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
     fields = s.plan.index.fields
     out = []
     for row in s.hum.loops:
-        area = row.get("area_mm2")
-        if area is not None and area < 0.01:  # a loop with no area (two conductors side by
+        area = row.area
+        if area is not None and area < 1e-8:  # a loop with no area (two conductors side by
             continue  # side, a chassis-only loop) picks nothing up wherever it passes
-        for name, entry in row["sources"].items():
+        for name, entry in row.sources.items():
             src = fields.get(name)
             if src is None:  # an AC heater pair: no size to be inside
                 continue
             limit = src.size if src.size is not None else src.r_ref
-            if entry["closest_mm"] * 1e-3 >= limit:
+            if entry.closest >= limit:
                 continue
             if src.size is not None:
                 what = (
@@ -366,7 +366,7 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
                     "model, exact at any distance for a round source"
                 )
                 fix = (
-                    f"nothing to correct in the figure; to lower loop {row['loop']}'s pickup, "
+                    f"nothing to correct in the figure; to lower loop {row.loop}'s pickup, "
                     f"route its conductors away from {name} or open it (the loop's own findings "
                     "say where)"
                 )
@@ -383,11 +383,11 @@ def rule_loop_near_source(s: Solved) -> list[Finding]:
                 Finding(
                     "GC305",
                     "note",
-                    f"loop {row['loop']} passes {entry['closest_mm']:g} mm from the centre of "
-                    f"{name}, {what}",
+                    f"loop {row.loop} passes {round(entry.closest * 1e3, 1):g} mm from the centre "
+                    f"of {name}, {what}",
                     src.location,
-                    (f"loop {row['loop']}", name),
-                    {"closest_mm": entry["closest_mm"], "limit_mm": limit * 1e3},
+                    (f"loop {row.loop}", name),
+                    {"closest_mm": entry.closest * 1e3, "limit_mm": limit * 1e3},
                     fix,
                 )
             )

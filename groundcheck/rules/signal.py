@@ -131,13 +131,13 @@ def _own_return_fix(s: Solved, cur, ch: str) -> str:
     )
 
 
-def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
+def _feedback_finding(s: Solved, cur, rs: list) -> Finding | None:
     """GC306 for one signal current from its feedback rows (None when below the note level)."""
-    worst = max(rs, key=lambda r: (r["input_db"], -r["frequency_hz"]))
-    if worst["input_db"] <= FEEDBACK_NOTE_DB:
+    worst = max(rs, key=lambda r: (r.input_db, -r.frequency))
+    if worst.input_db <= FEEDBACK_NOTE_DB:
         return None
-    at_1k = next((r for r in rs if at_signal_frequency(r["frequency_hz"])), worst)
-    severity = "fault" if worst["input_db"] > FEEDBACK_LIMIT_DB else "note"
+    at_1k = next((r for r in rs if at_signal_frequency(r.frequency)), worst)
+    severity = "fault" if worst.input_db > FEEDBACK_LIMIT_DB else "note"
     move = _return_wire(s, cur)
     ch = cur.channel
     if move:
@@ -151,16 +151,16 @@ def _feedback_finding(s: Solved, cur, rs: list[dict]) -> Finding | None:
         "GC306",
         severity,
         f"the {ch} channel's own current {cur.name} ({cur.a} → {cur.b}) flows in the ground its "
-        f"input reads: {at_1k['db']:.1f} dB of the output fed back at {SIGNAL_FREQUENCY_TEXT} "
-        f"({at_1k['input_db']:.1f} dB through its input stages; worst {worst['input_db']:.1f} dB "
-        f"at {worst['frequency_hz']:g} Hz)",
+        f"input reads: {at_1k.db:.1f} dB of the output fed back at {SIGNAL_FREQUENCY_TEXT} "
+        f"({at_1k.input_db:.1f} dB through its input stages; worst {worst.input_db:.1f} dB "
+        f"at {worst.frequency:g} Hz)",
         s.ctx.conductors[move[0]].location if move else cur.location,
         (*((move[0],) if move else ()), cur.name),
         {
-            "feedback_db": at_1k["db"],
-            "input_db": at_1k["input_db"],
-            "worst_input_db": worst["input_db"],
-            "worst_frequency_hz": worst["frequency_hz"],
+            "feedback_db": at_1k.db,
+            "input_db": at_1k.input_db,
+            "worst_input_db": worst.input_db,
+            "worst_frequency_hz": worst.frequency,
             "channel": ch,
         },
         fix,
@@ -182,9 +182,9 @@ def rule_ground_feedback(s: Solved) -> list[Finding]:
     """
     if s.hum is None:
         return []
-    rows: dict[str, list[dict]] = {}
+    rows: dict[str, list] = {}
     for row in s.hum.feedback:
-        rows.setdefault(row["source"], []).append(row)
+        rows.setdefault(row.source, []).append(row)
     currents = s.plan.index.currents
     found = (_feedback_finding(s, currents[name], rs) for name, rs in rows.items())
     return [f for f in found if f is not None]
