@@ -204,17 +204,25 @@ def test_protective_conductor_sized_against_the_cord_when_no_line_conductor_is_s
 
 
 def test_breaker_let_through_matches_the_clearing_time_it_reports():
-    # B16 at ≥ 5 In opens within 0.1 s (IEC 60898-1, from memory): I²t taken over those 0.1 s; cold
-    # case worst
-    r = run("230 V 50 Hz, breaker 16 A B", area="0.2 mm2")
-    i_cold = 230 / (0.8 + 2 * CIRCUIT + 2 * CORD + r_path(0.2))
+    # B16 at ≥ 5 In opens within 0.1 s (IEC 60898-1, from memory), the time reported; from 1.5 × 5
+    # In = 120 A on, its let-through is I² over one period of the mains, 20 ms (the magnetic
+    # release's milliseconds, from memory); cold case worst
+    r = run("230 V 50 Hz, breaker 16 A B", area="0.1 mm2")
+    i_cold = 230 / (0.8 + 2 * CIRCUIT + 2 * CORD + r_path(0.1))
+    assert i_cold > 120
     row = next(c for c in r.safety.conductors if c.conductor == "pe_lead")
     assert r.safety.parts[0].clear_time == 0.1
-    assert row.required * 1e6 == pytest.approx(math.sqrt(i_cold**2 * 0.1) / 115, rel=1e-6)
+    assert row.required * 1e6 == pytest.approx(math.sqrt(i_cold**2 * 0.02) / 115, rel=1e-6)
     assert not row.survives
-    # 0.5 mm² survives: √(I²·0.1)/115 ≈ 0.45 mm²
-    r = run("230 V 50 Hz, breaker 16 A B", area="0.5 mm2")
+    # 0.2 mm² survives: √(I²·0.02)/115 ≈ 0.18 mm²
+    r = run("230 V 50 Hz, breaker 16 A B", area="0.2 mm2")
     assert next(c for c in r.safety.conductors if c.conductor == "pe_lead").survives
+    # near the band's edge (a 1.7 Ω loop: about 92 A, 5.8 In, under 120 A) the 0.1 s bound stays
+    r = run("230 V 50 Hz, breaker 16 A B, loop-impedance 1.7 ohm", area="0.2 mm2")
+    i = r.safety.parts[0].fault_current
+    assert 80 < i < 120
+    row = next(c for c in r.safety.conductors if c.conductor == "pe_lead")
+    assert row.required * 1e6 == pytest.approx(math.sqrt(i**2 * 0.1) / 115, rel=0.05)
 
 
 def test_fault_loop_at_the_cables_operating_temperature():

@@ -93,6 +93,17 @@ def test_breakers_and_rcds():
         lo, hi = ref[curve]
         assert protection.breaker_clearing(curve, 16.0, 16.0 * hi).time == ref["time"]
         assert protection.breaker_clearing(curve, 16.0, 16.0 * lo * 0.99).time > ref["time"]
+    # the let-through: I² over the 0.1 s bound at the band's edge; I² over one period of the mains
+    # from 1.5 times it on (worked by hand: 16 A B, 5 In = 80 A: 80² × 0.1 = 640 A²s; 300 A at
+    # 50 Hz: 300² × 0.02 = 1800 A²s, at 60 Hz 300² / 60 = 1500 A²s)
+    assert protection.breaker_clearing("B", 16.0, 80.0).i2t == pytest.approx(640.0)
+    assert protection.breaker_clearing("B", 16.0, 119.0).i2t == pytest.approx(119.0**2 * 0.1)
+    assert protection.breaker_clearing("B", 16.0, 300.0).i2t == pytest.approx(1800.0)
+    assert protection.breaker_clearing("B", 16.0, 300.0, 60.0).i2t == pytest.approx(1500.0)
+    assert protection.breaker_clearing("B", 16.0, 300.0).time == ref["time"]
+    # an outside builder's 0.75 mm² cord on a 32 A type B circuit, about 300 A of fault current:
+    # S = √(I²t)/k = √1800 / 115 = 0.369 mm² (IEC 60364-5-54 543.1.2), within 0.75 mm²
+    assert math.sqrt(protection.breaker_clearing("B", 32.0, 300.0).i2t) / 115 < 0.75
     for m, t in REF["rcd"]["times"]:
         assert protection.rcd_clearing(0.03, 0.03 * m).time == t
     assert protection.rcd_clearing(0.03, 0.02) is None

@@ -88,6 +88,13 @@ BREAKER_THERMAL = ((2.55, 60.0), (1.45, 3600.0))
 #: its let-through as I² over that same time — consistent with the clearing time reported, and on
 #: the safe side (real breakers of an energy-limiting class let through much less, from memory)
 BREAKER_INSTANT_TIME = 0.1
+#: well inside the instantaneous region (at least this multiple of the band's upper limit) the
+#: magnetic release opens within milliseconds — manufacturers' time-current curves fall below 10 ms
+#: there (from memory) — and the let-through is taken as I² over one period of the mains (on the
+#: safe side of those curves); the clearing time reported stays the standard's 0.1 s. Over the
+#: 0.1 s an ordinary 0.75 mm² cord on a 32 A type B circuit "needed" 0.84 mm² (three outside
+#: builders' plans), where one period asks 0.37 mm²
+BREAKER_MAGNETIC_MARGIN = 1.5
 
 #: RCD maximum break times, general type, IEC 61008-1 / 61009-1 (from memory): (multiple of IΔn, s)
 RCD_TIMES = ((5.0, 0.04), (2.0, 0.15), (1.0, 0.3))
@@ -173,21 +180,27 @@ def fuse_clearing(kind: str, rating: float, current: float, frequency: float) ->
     return Clearing(prearc + arcing, prearc_i2t + current * current * arcing, prearc, arcing)
 
 
-def breaker_clearing(curve: str, rating: float, current: float) -> Clearing | None:
+def breaker_clearing(
+    curve: str, rating: float, current: float, frequency: float = 50.0
+) -> Clearing | None:
     """Worst-case tripping of a miniature breaker of curve B, C or D (IEC 60898-1, from memory).
 
     Parameters:
         curve: B, C or D.
         rating: In, A.
         current: prospective current, A.
+        frequency: the mains frequency, Hz (one period is the let-through time well inside the
+            instantaneous region, :data:`BREAKER_MAGNETIC_MARGIN`).
     Returns:
         the worst-case Clearing (time in s, let-through I²t in A²s); None when it may not trip.
     References:
         IEC 60898-1 (time-current bands of curves B, C, D; from memory).
     """
     m = current / rating
-    if m >= BREAKER_INSTANT.get(curve, 5.0):
-        return Clearing(BREAKER_INSTANT_TIME, current * current * BREAKER_INSTANT_TIME)
+    band = BREAKER_INSTANT.get(curve, 5.0)
+    if m >= band:
+        t = 1.0 / frequency if m >= BREAKER_MAGNETIC_MARGIN * band else BREAKER_INSTANT_TIME
+        return Clearing(BREAKER_INSTANT_TIME, current * current * min(t, BREAKER_INSTANT_TIME))
     for mm, t in BREAKER_THERMAL:
         if m >= mm:
             return Clearing(t, current * current * t)
@@ -209,7 +222,7 @@ def device_clearing(kind: str, rating: float, current: float, frequency: float) 
         IEC 60127-2; IEC 60898-1.
     """
     if kind.startswith("breaker"):
-        return breaker_clearing(kind.split("-", 1)[1], rating, current)
+        return breaker_clearing(kind.split("-", 1)[1], rating, current, frequency)
     return fuse_clearing(kind, rating, current, frequency)
 
 
