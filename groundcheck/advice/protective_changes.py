@@ -49,8 +49,10 @@ def stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float,
     # a nut and its washer need metal all round the hole: places clear of the part's edge first,
     # then (a narrow strip) any place on it
     # (farther rings, in finer steps, for a corner crowded by a transformer's frame and its field)
-    rings = [(r, edge, 8) for edge in (EDGE_CLEARANCE, 0.0) for r in (20e-3, 30e-3, 40e-3, 60e-3)]
-    rings += [(r, EDGE_CLEARANCE, 16) for r in (80e-3, 100e-3, 120e-3)]
+    radii = [(r, 8) for r in (20e-3, 30e-3, 40e-3, 60e-3)] + [
+        (r, 16) for r in (80e-3, 100e-3, 120e-3)
+    ]
+    rings = [(r, edge, n) for edge in (EDGE_CLEARANCE, 0.0) for r, n in radii]
     for r, edge, steps in rings:
         for k in range(steps):
             a = 2 * math.pi / steps * k
@@ -174,7 +176,13 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
         return None
     part = _main_part(ctx, old_pt)
     ends = ctx.src.ends(st)
-    where = stud_position(ctx, part, old_pt.pos) if part is not None else None
+    # beside the inlet when the lead comes from it (the shortest lead), else beside the old stud
+    ends_pe = [e for e in (pe.a, pe.b) if e == PE_POINT or e.endswith("." + PE_POINT)]
+    inlet = ctx.points.get(ends_pe[0]) if ends_pe else None
+    near = [q.pos for q in (inlet, old_pt) if q is not None and q.pos is not None]
+    where = None
+    for q in near if part is not None else ():
+        where = where or stud_position(ctx, part, q)
     if where is None or ends is None:
         return None
     # inside a block or a device's own plan the statement names its points without the prefix
@@ -188,7 +196,8 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     changes = [(item, local(new_pt))]
     other = ctx.points.get(pe.a if pe.b == old_pt.name else pe.b)
     old_len = ctx.src.quantity(st, "length")
-    if other is not None and other.pos is not None and old_len is not None:
+    # (a core of a multi-core cable keeps its length: the cable runs its whole length)
+    if other is not None and other.pos is not None and old_len is not None and not pe.bundle:
         length = math.dist(other.pos, where) * (1 + ROUTE_ALLOWANCE)
         changes.append((old_len, f"{max(length, 10e-3) * 1e3:.0f} mm"))
     edit = ctx.src.replace(st, _written_protective(ctx, st, changes))  # its comment stays
@@ -201,7 +210,8 @@ def own_stud(ctx: ChangeContext, f) -> Candidate | None:
     return Candidate(
         f"give the protective earth a stud of its own ({new_pt} at {lx:.0f},{ly:.0f} on {part}, "
         f"clear of other parts and fastenings): {pe.name}'s end moves there, its section and "
-        "comment kept",
+        "comment kept; bare metal under a toothed washer, a nut and a lock nut, nothing else on "
+        "it",
         f.code,
         (edit,),
         touches_protective=False,

@@ -1,6 +1,7 @@
 """GC202: the protective conductor from the inlet lands on a fastener that holds something else —
 another conductor, or a part its own fastening clamps (a stud on the chassis through a
-transformer's foot).
+transformer's foot); or another protective conductor (a second box's earth core) lands on a stud
+that also takes a conductor that is not protective (a signal ground's bond) or clamps a part.
 
 A fault when the stud also takes other wires; a danger when it also holds a part (a transformer's
 foot, a bracket) and nothing else of the protective route earths the metal once that stud is
@@ -21,52 +22,73 @@ __all__ = ["pe_fastener"]
 
 
 def pe_fastener(ctx: AuditContext) -> list[Finding]:
-    """GC202: the protective conductor from the inlet lands on a fastener that holds something
-    else.
+    """GC202: a protective conductor lands on a fastener that holds something else — the lead from
+    the inlet on a stud that takes other wires or clamps a part; any other protective conductor
+    (a bond to a second box, an umbilical's earth core) on a stud that also takes a conductor
+    that is not protective (a signal ground's bond) or clamps a part.
 
     Parameters:
         ctx: the audit context.
     Returns:
-        GC202 findings.
+        GC202 findings, one per stud.
     References:
         the rule catalogue (rules/catalogue_pe.py), which names the code's sources.
     """
-    out = []
+    out, seen = [], set()
     G = ctx.G
     for v, keys in G.adj[PE_POINT].items():
         for k in keys:
-            c = G.edges[PE_POINT, v, k]["conductor"]
-            if k not in ctx.route or v in ctx.metals:
+            if k in ctx.route and v not in ctx.metals and v not in seen:
+                found = _landing(ctx, G.edges[PE_POINT, v, k]["conductor"], v, inlet=True)
+                seen.add(v)
+                out += [found] if found else []
+    for c in ctx.plan.conductors:
+        if c.name not in ctx.route or is_fastening(c, ctx.metals) or PE_POINT in (c.a, c.b):
+            continue
+        for v in (c.a, c.b):
+            if v in ctx.metals or v in seen or v not in G:
                 continue
-            others = [kk for _, w, kk in G.edges(v, keys=True) if kk != k]
-            # the stud's own fastening to the metal, whatever role the plan writes for it
-            fastenings = sorted(
-                kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals)
-            )
-            holds = [kk for kk in others if kk not in fastenings[:1]]
-            holds += _clamped_part(ctx, v, fastenings[:1])
-            if holds:
-                parts = _parts_held(ctx, v, holds, fastenings[:1])
-                danger = bool(parts) and not _earthed_without(ctx, v, _removed(ctx, parts))
-                why = (
-                    f"servicing {' or '.join(parts)} undoes the metal's only protective bond"
-                    if danger
-                    else "servicing them loosens the earth"
-                )
-                out.append(
-                    Finding(
-                        "GC202",
-                        "danger" if danger else "fault",
-                        f"the protective earth lands on {v}, {_held(ctx, v, holds)}: {why}",
-                        c.location,
-                        (c.name, v, *sorted(holds)),
-                        {"other_items": len(holds), "holds_part": danger},
-                        "give the protective earth a stud of its own, with nothing else on it "
-                        f"(only the protective earth moves: {', '.join(sorted(holds))} "
-                        f"{'stays as it is' if len(holds) == 1 else 'stay as they are'})",
-                    )
-                )
+            seen.add(v)
+            found = _landing(ctx, c, v, inlet=False)
+            out += [found] if found else []
     return out
+
+
+def _landing(ctx: AuditContext, c, v: str, inlet: bool) -> Finding | None:
+    """GC202 for protective conductor ``c`` landing on ``v``: what else the stud takes (for the
+    inlet's lead anything; for another protective conductor what is not protective) and the
+    part its fastening clamps; None when nothing."""
+    k = c.name
+    others = [kk for _, w, kk in ctx.G.edges(v, keys=True) if kk != k]
+    # the stud's own fastening to the metal, whatever role the plan writes for it
+    fastenings = sorted(kk for kk in others if is_fastening(ctx.conductors[kk], ctx.metals))
+    if not fastenings:
+        return None  # a wire joined to wires: no stud on the metal
+    holds = [kk for kk in others if kk not in fastenings[:1]]
+    if not inlet:
+        holds = [kk for kk in holds if kk not in ctx.route]
+    holds += _clamped_part(ctx, v, fastenings[:1])
+    if not holds:
+        return None
+    parts = _parts_held(ctx, v, holds, fastenings[:1])
+    danger = bool(parts) and not _earthed_without(ctx, v, _removed(ctx, parts))
+    why = (
+        f"servicing {' or '.join(parts)} undoes the metal's only protective bond"
+        if danger
+        else "servicing them loosens the earth"
+    )
+    what = "the protective earth" if inlet else f"protective conductor {k}"
+    return Finding(
+        "GC202",
+        "danger" if danger else "fault",
+        f"{what} lands on {v}, {_held(ctx, v, holds)}: {why}",
+        c.location,
+        (k, v, *sorted(holds)),
+        {"other_items": len(holds), "holds_part": danger},
+        f"give {what} a stud of its own, with nothing else on it "
+        f"(only {what if inlet else k} moves: {', '.join(sorted(holds))} "
+        f"{'stays as it is' if len(holds) == 1 else 'stay as they are'})",
+    )
 
 
 def _held(ctx: AuditContext, stud: str, holds: list[str]) -> str:
