@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import functools
+import os
 import shutil
 import textwrap
 from pathlib import Path
@@ -43,6 +44,22 @@ def analysed(path):
     from groundcheck import analyze, load
 
     return analyze(load(path))
+
+
+#: the renderers' checks over the field corpus (the report's tables, the drawings' overlaps) read
+#: every second folder in name order in the suite, and every folder with GROUNDCHECK_WHOLE_CORPUS=1
+#: (benchmarks/README.md): each plan costs 1-3 s of analysis and drawing, the corpus grows with
+#: every outside build, and each folder's own tests read its plans whatever the sample
+WHOLE_CORPUS = os.environ.get("GROUNDCHECK_WHOLE_CORPUS") == "1"
+
+
+def corpus_sample(paths) -> list[Path]:
+    """``paths`` (plans of the field corpus, or any others) with those of every second field folder
+    left out, unless the whole corpus is asked for."""
+    folders = sorted(p.name for p in (ROOT / "tests" / "field").iterdir() if p.is_dir())
+    kept = set(folders if WHOLE_CORPUS else folders[::2])
+    field = ROOT / "tests" / "field"
+    return [p for p in paths if field not in p.parents or p.relative_to(field).parts[0] in kept]
 
 
 def field_rooms() -> list[Path]:
