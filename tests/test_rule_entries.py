@@ -117,7 +117,7 @@ def test_the_entries_that_make_more_than_one_severity():
         "GC208": {"danger", "note"},
         "GC212": {"note", "warning"},
         "GC211": {"danger", "warning"},
-        "GC215": {"danger", "fault"},
+        "GC215": {"danger", "fault", "warning"},
         "GC218": {"danger", "warning", "note"},
         "GC221": {"note", "danger"},
         "GC223": {"fault", "danger"},

@@ -229,8 +229,9 @@ def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result)
             ev.net[f.severity] = ev.net.get(f.severity, 0) + sign
             if f.severity == "fault" and RULES[f.code].family == PROTECTIVE_EARTH:
                 ev.net[PE_FAULT] = ev.net.get(PE_FAULT, 0) + sign
-    if not unlive and any(k1[k].severity == "danger" for k in new):
-        ev.rejected = ADDS_DANGER
+    added = sorted(k1[k].code for k in new if k1[k].severity == "danger")
+    if not unlive and added:
+        ev.rejected = f"{ADDS_DANGER} ({', '.join(dict.fromkeys(added))})"
         return ev
     # a protective conductor made thicker takes a larger share of a return that runs there: the
     # protective fix stands (the return is the other finding's to fix)

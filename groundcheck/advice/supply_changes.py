@@ -41,8 +41,8 @@ RCD_RATINGS = (0.01, 0.03, 0.1, 0.3, 0.5)
 SOCKET_RCD = 0.03
 
 _DEFER = (
-    "installation work for a qualified electrician, to the local wiring rules; the equipment's "
-    "protective earth stays as it is"
+    "installation work for a qualified electrician, to the local wiring rules; it does not mend "
+    "the equipment's own protective earth, whose findings keep their own fixes"
 )
 
 

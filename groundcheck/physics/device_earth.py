@@ -7,6 +7,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..network.building_earth import building_graph, isolators_on
+
 from ..model.installation import separated_devices
 from ..model.records import PE_POINT, Plan
 from ..network.earthing import ProtectiveRoute
@@ -26,6 +28,9 @@ class DeviceEarth:
     #: a device with a plan of its own, checked on the installation's supply: its worst part's
     #: line-to-part fault (:class:`groundcheck.physics.safety.PartFigures`), None otherwise
     fault: object = None
+    #: the galvanic isolators (lift networks with diodes at the installation's level) its earth
+    #: reaches the main earthing terminal through, and only through
+    through: tuple[str, ...] = ()
 
 
 #: devices' earth paths solved together (each a column of nodes)
@@ -76,4 +81,12 @@ def installation_earths(
         for k, n in enumerate(part):
             R[n] = float(abs(sol.V[circ.point_node[n], k] - sol.V[met, k]))
     group = {p.name: p.group for p in plan.points}
-    return tuple(DeviceEarth(group.get(n) or n, n, R.get(n)) for n in inlets)
+    graph = building_graph(plan)
+    devices = plan.index.devices
+    out = []
+    for n in inlets:
+        name = group.get(n) or n
+        dev = devices.get(name)
+        through = tuple(isolators_on(plan, graph, dev.plugged)) if dev is not None else ()
+        out.append(DeviceEarth(name, n, R.get(n), through=through))
+    return tuple(out)

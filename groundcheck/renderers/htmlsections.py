@@ -149,7 +149,13 @@ def installation_section(result: Result, parts: list[str], e=escape) -> None:
             "<th>path to the main earthing terminal</th></tr>"
         )
         for d in result.device_earths:
-            shown = "BROKEN" if d.resistance is None else f"{d.resistance * 1e3:.3g} mΩ"
+            shown = (
+                f"through isolator {', '.join(d.through)}"
+                if d.through and d.resistance is None
+                else "BROKEN"
+                if d.resistance is None
+                else f"{d.resistance * 1e3:.3g} mΩ"
+            )
             parts.append(
                 f"<tr><td>{e(d.device)}</td><td>{e(d.inlet)}</td><td class=num>{shown}</td></tr>"
             )

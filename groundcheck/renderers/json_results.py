@@ -306,6 +306,8 @@ def device_earth_json(d) -> dict:
     }
     if d.fault is not None:
         out["fault"] = _part_figures(d.fault)
+    if d.through:
+        out["through_isolators"] = list(d.through)
     return out
 
 

@@ -177,7 +177,13 @@ def _device_earth_table(earths, console: Console, ahead: bool = False) -> None:
         row = [
             escape(d.device),
             escape(d.inlet),
-            "BROKEN" if d.resistance is None else format_si(d.resistance, "Ω"),
+            (
+                f"through isolator {', '.join(d.through)}"
+                if d.through and d.resistance is None
+                else "BROKEN"
+                if d.resistance is None
+                else format_si(d.resistance, "Ω")
+            ),
         ]
         if faults:
             row += _fault_cells(d.fault)

@@ -26,13 +26,17 @@ INSTALLATION_ENTRIES: list[Rule] = [
         "through its mains cord, power strips and the building's protective wiring, and the "
         "resistance of that path (over 1 Ω, common practice for a broken or corroded path). A "
         "broken path is a danger; a long one too, unless a fault to the device's metal through "
-        "it is still cleared within IEC 60364-4-41's time (an RCD, say): then a fault.",
+        "it is still cleared within IEC 60364-4-41's time (an RCD, say): then a fault. A path "
+        "that reaches the terminal only through a lift network with diodes at the installation's "
+        "level (a galvanic isolator in a shore or supply earth) is a warning: its diodes carry a "
+        "fault's current and the fault loop is checked through it, but a low-voltage continuity "
+        "test reads it open.",
         "A device whose protective path is broken has no protective earth at all, whatever its "
         "own wiring.",
         "Plug the device into an earthed outlet and repair the broken protective connection named "
         "in the finding.",
         "IEC 60364-6 (continuity of protective conductors), from memory",
-        variants=("danger", "fault"),
+        variants=("danger", "fault", "warning"),
         actions=("earthed-outlet",),
     ),
     entry(

@@ -72,6 +72,41 @@ def device_text(m) -> str:
     return " and ".join(parts) or "stated clearing"
 
 
+#: GC208's fix on an IT supply, where an RCD over both faulty circuits sees no residual current
+IT_FIX = (
+    "on an IT supply a second fault's current goes out on one line and back on the other, so an "
+    "RCD over both circuits does not see it: lower the fault loop's resistance or the rating of "
+    "the device that must open, so that it clears within the limit; for a portable generator of "
+    "the installation's own, have a qualified person link its neutral to its frame and earth "
+    "(a TN-S supply of its own, whose RCD then disconnects an earth fault); follow local "
+    "electrical codes"
+)
+
+
+#: GC208's fix for a fault too small to be sure of opening the device, and for one cleared late
+NEVER_FIX = (
+    "add a 30 mA RCD to the supply, or lower the fault loop's resistance or the fuse rating the "
+    "equipment allows"
+)
+LATE_FIX = (
+    "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the fuse "
+    "rating so that the fuse clears within the limit"
+)
+
+
+def _ahead(m) -> str:
+    """Beside the equipment's fuse the breaker clears a fault at the inlet, ahead of the fuse: the
+    words that say so after the device's name."""
+    if m.fuse is not None and m.breaker is not None:
+        return " (a fault at the inlet, ahead of the equipment's fuse)"
+    return ""
+
+
+def _fix(system: str, fix: str) -> str:
+    """GC208's fix line: ``fix``, or on an IT supply :data:`IT_FIX`."""
+    return IT_FIX if system == "IT" else fix
+
+
 def disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
     """GC208: the protective device does not disconnect a fault at one part within IEC
     60364-4-41's maximum time.
@@ -97,19 +132,19 @@ def disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
     }
     where = f"{time_row(sup.system)} at {m.voltage:g} V"
     fault = second_fault(sup.system, f"a line-to-{p.part} fault")
+    ahead = _ahead(m)
     if p.clear_time is None:
         return [
             Finding(
                 "GC208",
                 "danger",
-                f"{fault} draws {p.fault_current:.3g} A, too little to be sure "
-                f"of opening the {device_text(m)}; {p.touch_voltage:.0f} V against earth would "
-                f"stay on {p.part}",
+                f"{fault} draws {p.fault_current:.3g} A, too little to be sure of opening the "
+                f"{device_text(m)}{ahead}; {p.touch_voltage:.0f} V against earth would stay on "
+                f"{p.part}",
                 part.location,
                 (p.part,),
                 figs,
-                "add a 30 mA RCD to the supply, or lower the fault loop's resistance or the fuse "
-                "rating the equipment allows",
+                _fix(sup.system, NEVER_FIX),
             )
         ]
     if limit is not None and p.clear_time > limit:
@@ -118,15 +153,13 @@ def disconnection(plan: Plan, safety: SafetyResult, p) -> list[Finding]:
             Finding(
                 "GC208",
                 "danger",
-                f"{fault} ({p.fault_current:.3g} A) is cleared by the "
-                f"{device_text(m)} in up to {p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows "
-                f"{limit:g} s ({where}), and {p.touch_voltage:.0f} V against earth is on {p.part} "
-                "meanwhile",
+                f"{fault} ({p.fault_current:.3g} A) is cleared by the {device_text(m)}{ahead} in "
+                f"up to {p.clear_time:.3g} s{stated}; IEC 60364-4-41 allows {limit:g} s "
+                f"({where}), and {p.touch_voltage:.0f} V against earth is on {p.part} meanwhile",
                 part.location,
                 (p.part,),
                 {**figs, "clear_time_s": p.clear_time},
-                "protect the supply with a 30 mA RCD, or lower the fault loop's resistance or the "
-                "fuse rating so that the fuse clears within the limit",
+                _fix(sup.system, LATE_FIX),
             )
         ]
     return []
@@ -214,8 +247,11 @@ def late_simple_device(device, m, limit, part, route) -> list[Finding]:
 
 def _late_fix(m) -> str:
     """The fix for a bought device's fault not cleared in time: an RCD; on TN also a shorter or
-    thicker lead (on TT the earth electrode, not the lead, limits the fault current)."""
+    thicker lead (on TT the earth electrode, not the lead, limits the fault current); on IT
+    :data:`IT_FIX` (an RCD does not see a second fault)."""
     rcd = "protect the outlets with a 30 mA RCD (have a qualified electrician fit it)"
+    if m.system == "IT":
+        return IT_FIX
     if m.system == "TT":
         return rcd + ": on a TT supply the earth electrode, not the lead, limits the fault current"
     return (

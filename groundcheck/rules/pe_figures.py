@@ -246,6 +246,27 @@ def _stated_contradictions(plan: Plan, safety: SafetyResult) -> list[Finding]:
     return out
 
 
+def _through_isolator(device: str, where: str, isolators: list, loc, inlet: str) -> Finding:
+    """GC215 (a warning) for a device whose earth reaches the main earthing terminal only through
+    galvanic isolators: their diodes carry a fault's current (the fault loop is checked through
+    them), their resistor and capacitor read open to a continuity tester."""
+    names = ", ".join(isolators)
+    return Finding(
+        "GC215",
+        "warning",
+        f"device {device}{where}: its earth pin reaches the main earthing terminal only through "
+        f"{names}, a lift network with diodes (a galvanic isolator): its diodes carry a fault's "
+        "current, and its fault loop is checked through it, but a continuity test at a low "
+        "voltage reads the path open",
+        loc,
+        (device, inlet),
+        {"isolators": len(isolators)},
+        f"fit {names} of a fail-safe type rated for the supply's fault current, with a status "
+        "indicator, and have the path's continuity tested across it by a qualified person (its "
+        "maker's test link) — never bypass it in use, and never take the earth off",
+    )
+
+
 @rule("GC215", needs="solve")
 def rule_device_earths(s: Solved) -> list[Finding]:
     """GC215: a placed device whose earth pin does not reach the main earthing terminal, or only
@@ -268,7 +289,9 @@ def rule_device_earths(s: Solved) -> list[Finding]:
         dev = devices[d.device]
         loc = dev.location
         where = f" (plugged into {dev.plugged})" if dev.plugged else ""
-        if d.resistance is None:
+        if d.through and (d.resistance is None or d.resistance > DEVICE_EARTH_LIMIT):
+            out.append(_through_isolator(d.device, where, list(d.through), loc, d.inlet))
+        elif d.resistance is None:
             out.append(
                 Finding(
                     "GC215",

@@ -30,7 +30,7 @@ from typing import Callable
 import networkx as nx
 
 from ..model.installation import suits, transformer_feeds
-from ..model.kinds import PROTECTIVE, can_carry_protective, kind
+from ..network.building_earth import building_graph, galvanic_isolator, is_cable
 from ..model.records import Plan
 from ..physics.safety import adiabatic_k
 from .pe_figures import installation_survival
@@ -248,35 +248,6 @@ def _worst_part(result: Result | None):
     )
 
 
-def _cable(c) -> bool:
-    """Whether ``c`` is a building cable (line and neutral cores beside its protective core)."""
-    return kind(c.kind).carries_load
-
-
-def building_graph(plan: Plan) -> nx.Graph:
-    """The installation's own protective wiring (cables and protective wires outside every
-    device), each edge weighted by its resistance per resistivity, L/A.
-
-    Parameters:
-        plan: the installation.
-    Returns:
-        the graph, each edge with its ``conductor``.
-    References:
-        none (bookkeeping: the route's least resistance is found on it).
-    """
-    device_of = plan.index.device_of
-    g = nx.Graph()
-    for c in plan.conductors:
-        if device_of(c.name) is not None or not can_carry_protective(c):
-            continue
-        if not (_cable(c) or c.role == PROTECTIVE) or not (c.length and c.area):
-            continue
-        weight = c.length / c.area
-        if not g.has_edge(c.a, c.b) or g[c.a][c.b]["weight"] > weight:
-            g.add_edge(c.a, c.b, weight=weight, conductor=c)
-    return g
-
-
 def _route(plan: Plan, graph: nx.Graph, outlet: str | None):
     """The conductors from ``outlet`` to the main earthing terminal along the least resistance,
     as the fault loop takes them: (name, length, line area, protective area, flexible); None when
@@ -291,7 +262,9 @@ def _route(plan: Plan, graph: nx.Graph, outlet: str | None):
     out = []
     for a, b in zip(path, path[1:]):
         c = graph[a][b]["conductor"]
-        flexible = not _cable(c) or c.cores == "round"
+        if galvanic_isolator(c):
+            continue  # no length, no section: its diodes' drop is left out of the loop
+        flexible = not is_cable(c) or c.cores == "round"
         out.append((c.name, c.length, c.line_area or c.area, c.area, flexible))
     return tuple(out)
 
