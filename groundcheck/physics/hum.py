@@ -76,9 +76,10 @@ class _FrequencyPart:
     # loop's current)
     pickup: tuple | None = None
     network: list = field(default_factory=list)  # rows of the JSON ``network`` section
-    in_phase: list = field(
-        default_factory=list
-    )  # (channel, source group, Σ|stage drop·gain|): the worst case
+    in_phase: list = field(default_factory=list)  # (channel, group, Σ|stage drop·gain|)
+    #: source group -> each stage's drop from its sources (their phasors added) × |gain|, V:
+    #: folded into the worst case once every part of the frequency is in (Merged.fold)
+    stage_drops: dict = field(default_factory=dict)
     crosstalk: list = field(default_factory=list)  # (from channel, to channel, phasor)
     feedback: list = field(default_factory=list)  # (source, channel, phasor, input part)
     probes: object = None  # per probe pair: Σ over sources of |V_a − V_b|², V²
@@ -301,6 +302,7 @@ class HumBudget:
         merged = Merged(self)
         for f, part in sorted(parts, key=lambda fp: fp[0]):
             merged.add(f, part)
+        merged.fold()
         axes = field_pickup(self, merged)
         supply_shares(self, merged)
         channels = {ch: merged.channel(ch, axes.get(ch, [])) for ch in self.channels}

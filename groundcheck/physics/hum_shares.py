@@ -116,13 +116,15 @@ def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
         part.probes = power if part.probes is None else part.probes + power
         together = dv[:, leak].sum(axis=1)
         part.probe_leak = together if part.probe_leak is None else part.probe_leak + together
-    # each stage's own drop (node voltages of the source solves), for the worst case: every
-    # stage in phase
-    stage_v = np.abs(both.V[b.stage_a] - both.V[b.stage_b]) * np.abs(gains[b.valid_idx])[:, None]
+    # each stage's own drop (node voltages of the source solves) from each group, its sources'
+    # phasors added (the rectifiers, the leakage currents: one mains line), for the worst case:
+    # every stage in phase (folded in once the frequency is whole, Merged.fold)
+    stage_v = (both.V[b.stage_a] - both.V[b.stage_b]) * np.abs(gains[b.valid_idx])[:, None]
     groups = [source_group(s.kind, s.name, leakage) for s in active]
-    for ci, ch in enumerate(b.channels):
-        worst = stage_v[b.stage_channel == ci].sum(axis=0)
-        part.in_phase.extend((ch, g, float(w)) for g, w in zip(groups, worst))
+    at = part.stage_drops
+    for g in dict.fromkeys(groups):
+        v = stage_v[:, [j for j, x in enumerate(groups) if x == g]].sum(axis=1)
+        at[g] = at[g] + v if g in at else v
     # by reciprocity a branch's share of a channel is its drop Z_b·I_b(s) (both.dv: no EMF
     # here) times the channel's test current in it; each source's output is their sum (one
     # product for every source and channel)

@@ -98,10 +98,14 @@ class Merged:
         self.feedback_raw: dict = {}
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
         self.pickup: dict = {}  # frequency -> the loops' drops and currents per unit flux
+        self.stage_drops: dict = {}  # frequency -> group -> each stage's drop (phasors), V
 
     def add(self, f: float, part) -> None:
         for ch, group, mag in part.in_phase:
             self.in_phase[ch][f][group] += mag
+        at = self.stage_drops.setdefault(f, {})
+        for g, v in part.stage_drops.items():  # a frequency's sources may come in several parts
+            at[g] = at[g] + v if g in at else v
         for ch, group, v in part.out:
             self.out[ch][f][group] += v
         for ch, label, v in part.contrib:
@@ -117,6 +121,16 @@ class Merged:
             self.crosstalk_raw[(src_ch, dst_ch, f)] += v
         for name, ch, total, ahead in part.feedback:
             self.feedback_raw[(name, ch, f)] = (total, ahead)
+
+    def fold(self) -> None:
+        """Each stage's drop from each source group into the worst case (every stage in phase:
+        Σ over a channel's stages of |drop|), once every part is in."""
+        for f, groups in self.stage_drops.items():
+            for ci, ch in enumerate(self.b.channels):
+                rows = self.b.stage_channel == ci
+                for g, v in groups.items():
+                    self.in_phase[ch][f][g] += float(np.abs(v[rows]).sum())
+        self.stage_drops = {}
 
     def channel(self, ch: str, axes=()) -> ChannelHum:
         """A channel's spectrum (power sum of its groups per frequency), total, contributors and
