@@ -46,18 +46,21 @@ def analysed(path):
     return analyze(load(path))
 
 
-#: the renderers' checks over the field corpus (the report's tables, the drawings' overlaps) read
-#: every second folder in name order in the suite, and every folder with GROUNDCHECK_WHOLE_CORPUS=1
-#: (benchmarks/README.md): each plan costs 1-3 s of analysis and drawing, the corpus grows with
-#: every outside build, and each folder's own tests read its plans whatever the sample
+#: the checks that sweep the field corpus (the report's tables, the drawings' overlaps, the
+#: advisor's promises) read every third folder in name order in the suite, and every folder with
+#: GROUNDCHECK_WHOLE_CORPUS=1 (benchmarks/README.md), which also runs the slower variants of a few
+#: checks (every example in a browser, Ctrl-C as well as SIGTERM to a run): each plan costs 1-3 s
+#: of analysis and drawing, the corpus grows with every outside build, and each folder's own tests
+#: read its plans whatever the sample
 WHOLE_CORPUS = os.environ.get("GROUNDCHECK_WHOLE_CORPUS") == "1"
+CORPUS_STEP = 3
 
 
 def corpus_sample(paths) -> list[Path]:
-    """``paths`` (plans of the field corpus, or any others) with those of every second field folder
-    left out, unless the whole corpus is asked for."""
+    """``paths`` (plans of the field corpus, or any others) with those of all but every
+    :data:`CORPUS_STEP`-th field folder left out, unless the whole corpus is asked for."""
     folders = sorted(p.name for p in (ROOT / "tests" / "field").iterdir() if p.is_dir())
-    kept = set(folders if WHOLE_CORPUS else folders[::2])
+    kept = set(folders if WHOLE_CORPUS else folders[::CORPUS_STEP])
     field = ROOT / "tests" / "field"
     return [p for p in paths if field not in p.parents or p.relative_to(field).parts[0] in kept]
 
