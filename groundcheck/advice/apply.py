@@ -79,8 +79,9 @@ def applied_files(text: str, edits, plan: Plan, target: Path) -> list[tuple[Path
     if copies:
         by_device = {}
         for x in (*plan.conductors, *plan.points, *plan.metals):
-            if x.location.file in copies and "." in x.name:
-                by_device[x.name.split(".", 1)[0]] = x.location.file
+            dev = plan.index.device_of(x.name)
+            if x.location.file in copies and dev is not None:
+                by_device[dev] = x.location.file
         src = PlanTexts(new_text, plan.file)
         repoint = []
         for st in src.main.by_line.values():

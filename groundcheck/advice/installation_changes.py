@@ -11,6 +11,7 @@ import math
 
 from ..model.kinds import is_fastening_kind, joins_devices
 from ..model.installation import rated_voltage, shield_ends, suits, supply_at, transformer_feeds
+from ..model.index import outermost
 from ..model.records import Plan
 from ..rules.pe_figures import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
@@ -85,7 +86,7 @@ def _link_candidates(ctx: ChangeContext, reason: str, add) -> None:
             pt = ctx.plan.point(end)
             if pt is None or not pt.group:
                 continue
-            dev = pt.group.split(".", 1)[0]
+            dev = outermost(pt.group)
             bond = ctx.cond.get(f"{dev}.gnd_bond")
             fastened = bond is not None and is_fastening_kind(bond.kind)
             dst = ctx.statement(bond) if fastened else None
@@ -131,8 +132,8 @@ def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
         if name not in looped:
             continue
         for end, there, other in ((c.b, a, c.a), (c.a, b, c.b)):
-            dev = devices.get(end.split(".", 1)[0])
-            mate = other.split(".", 1)[0]
+            dev = devices.get(ctx.plan.index.device_of(end))
+            mate = ctx.plan.index.device_of(other) or other
             why = (
                 f"beside {mate} (one outlet or strip for both, within its current rating: the "
                 f"loop of {name} no longer runs through the building's earth wiring)"
@@ -257,12 +258,13 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
         if f.elements[0] not in devices:
             continue
         dev = devices[f.elements[0]]
+        device_of = ctx.plan.index.device_of
         mates = [
-            x.split(".", 1)[0]
+            device_of(x)
             for c in ctx.plan.conductors
             if joins_devices(c)
             for x, y in ((c.a, c.b), (c.b, c.a))
-            if y.split(".", 1)[0] == dev.name
+            if device_of(y) == dev.name
         ]
         near = [devices[m].plugged for m in mates if m in devices and devices[m].plugged in sound]
         why = (

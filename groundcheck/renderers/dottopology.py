@@ -4,6 +4,7 @@ each device or block placement in a box of its own; the visual scheme is the phy
 
 from __future__ import annotations
 
+from ..model.index import outermost
 from ..model.kinds import SIGNAL, is_lift
 from ..rules.results import Result
 from .dotbase import (
@@ -102,7 +103,7 @@ def _topology_nodes(plan, marks, lines: list[str]) -> None:
 
 def _clusters(plan) -> dict[str, str]:
     """Each point or metal part placed by a device or block placement -> that placement's name."""
-    out = {p.name: p.group.split(".", 1)[0] for p in plan.points if p.group}
+    out = {p.name: outermost(p.group) for p in plan.points if p.group}
     groups = set(out.values())
     for m in plan.metals:
         head = m.name.split(".", 1)[0]
