@@ -97,22 +97,6 @@ class Evaluation:
             self.candidate.title,
         )
 
-    def as_dict(self, diff: str = "") -> dict:
-        c = self.candidate
-        return {
-            "title": c.title,
-            "answers": c.reason,
-            "action": c.action,
-            "element": c.element,
-            "score": round(self.score, 3),
-            "hum_change_db": {k: round(v, 2) for k, v in self.hum_change_db.items()},
-            "heard_change_db": {k: round(v, 2) for k, v in self.heard_change_db.items()},
-            "findings_cleared": self.cleared,
-            "findings_introduced": self.introduced,
-            "rejected": self.rejected or None,
-            "diff": diff,
-        }
-
 
 #: a change that makes a channel's hum louder by more than this (dB: the figures' own rounding),
 #: clearing no danger or fault, is rejected

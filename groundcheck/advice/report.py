@@ -84,11 +84,11 @@ def suggestions_document(
         "plan": plan.file,
         "notices": list(final.notices),
         "suggestions": [
-            e.as_dict(unified_diff(text, e.candidate.edits, name, _base(plan)))
+            evaluation_json(e, unified_diff(text, e.candidate.edits, name, _base(plan)))
             for e in evs
             if not e.rejected
         ],
-        "rejected": [e.as_dict() for e in evs if e.rejected and e.rejected != NOT_TRIED],
+        "rejected": [evaluation_json(e) for e in evs if e.rejected and e.rejected != NOT_TRIED],
         "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
         "combined": {
             "search": "useful changes best first, each re-analysed on the plan as changed so far "
@@ -188,3 +188,22 @@ def _combined_lines(chosen: list[Evaluation], final: Result) -> list[str]:
             "  hum after: " + ", ".join(_hum_words(ch, h) for ch, h in final.hum.channels.items())
         )
     return out
+
+
+def evaluation_json(ev, diff: str = "") -> dict:
+    """A change's entry in the suggestions' JSON document: its title, what it answers, its
+    predicted effect (rounded here, and nowhere else) and its diff."""
+    c = ev.candidate
+    return {
+        "title": c.title,
+        "answers": c.reason,
+        "action": c.action,
+        "element": c.element,
+        "score": round(ev.score, 3),
+        "hum_change_db": {k: round(v, 2) for k, v in ev.hum_change_db.items()},
+        "heard_change_db": {k: round(v, 2) for k, v in ev.heard_change_db.items()},
+        "findings_cleared": ev.cleared,
+        "findings_introduced": ev.introduced,
+        "rejected": ev.rejected or None,
+        "diff": diff,
+    }
