@@ -12,6 +12,7 @@ from dataclasses import dataclass
 from functools import cached_property
 from pathlib import Path
 
+from ..model.installation import transformer_feeds
 from ..model.kinds import PROTECTIVE, is_fastening_kind, joins_devices, shield_like
 from ..model.records import Plan
 from ..network.earthing import earth_terminals
@@ -134,6 +135,13 @@ class ChangeContext:
         self.metals = {m.name for m in plan.metals}
         self.points = {p.name: p for p in plan.points}
         self._nearest: dict[str, str | None] = {}
+
+    @cached_property
+    def feeds(self) -> dict:
+        """Each point on a transformer's secondary side -> that transformer
+        (:func:`groundcheck.model.installation.transformer_feeds`), found once per plan."""
+        plan = self.plan
+        return transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
 
     def protective(self, c) -> bool:
         """Protective by topology or by role (groundcheck.network.earthing): never removed,

@@ -10,7 +10,7 @@ from __future__ import annotations
 import math
 
 from ..model.kinds import is_fastening_kind, joins_devices
-from ..model.installation import rated_voltage, shield_ends, suits, supply_at, transformer_feeds
+from ..model.installation import rated_voltage, shield_ends, suits, supply_at
 from ..model.index import outermost
 from ..model.records import Plan
 from ..rules.pe_figures import DEVICE_EARTH_LIMIT
@@ -126,7 +126,7 @@ def _replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
     devices = ctx.plan.index.devices
     looped = {e for lp in ctx.result.loops if lp.closed_by == "mains-cords" for e in lp.loop.edges}
     pairs, names = outlet_pairs(ctx.plan)
-    fits = _fits(ctx.plan)
+    fits = _fits(ctx)
     for (a, b), name in zip(pairs, names):
         c = ctx.cond[name]
         if name not in looped:
@@ -148,7 +148,7 @@ def _loop_replug_candidates(ctx: ChangeContext, reason: str, add) -> None:
     building's wiring (the pairs one interconnect joins are :func:`_replug_candidates`')."""
     devices = ctx.plan.index.devices
     device_of = ctx.plan.index.device_of
-    fits = _fits(ctx.plan)
+    fits = _fits(ctx)
     for lp in ctx.result.loops:
         if lp.closed_by != "mains-cords":
             continue
@@ -183,7 +183,7 @@ def _plug_move(ctx: ChangeContext, dev, there: str, why: str, reason: str, fits)
     """
     if dev is None or dev.location.file != ctx.plan.file:
         return None
-    there, why = _supply_side(ctx.plan, dev, there, why)
+    there, why = _supply_side(ctx.feeds, dev, there, why)
     if there == dev.plugged:
         return None
     st = ctx.src.statement(dev.location.line)
@@ -245,7 +245,7 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
     repair; this takes the device off it."""
     earths = ctx.result.device_earths or ()
     devices = ctx.plan.index.devices
-    fits = _fits(ctx.plan)
+    fits = _fits(ctx)
     sound = [
         devices[e.device].plugged
         for e in earths
@@ -276,13 +276,13 @@ def earthed_outlets(ctx: ChangeContext, answer: Answer, add) -> None:
             add(_plug_move(ctx, dev, there, why, f.code, fits))
 
 
-def _supply_side(plan: Plan, dev, there: str, why: str) -> tuple[str, str]:
+def _supply_side(feeds: dict, dev, there: str, why: str) -> tuple[str, str]:
     """Where a device moved to ``there`` is plugged in: never in behind a transformer it is not
     behind already — a transformer serves what the plan puts behind it (a step-down for the unit
     made for its voltage, a variable one for the device brought up slowly on it, an isolating one
     for the one device it separates) — but at the outlet that feeds that transformer, which
-    joins the same earth; ``why`` then says so, its reason in brackets kept."""
-    feeds = transformer_feeds(plan.transformers, plan.conductors, plan.index.devices)
+    joins the same earth; ``why`` then says so, its reason in brackets kept (``feeds``:
+    :attr:`ChangeContext.feeds`)."""
     own = feeds.get(dev.plugged)
     t = feeds.get(there)
     while t is not None and t is not own:
@@ -292,17 +292,16 @@ def _supply_side(plan: Plan, dev, there: str, why: str) -> tuple[str, str]:
     return there, why
 
 
-def _fits(plan: Plan):
+def _fits(ctx: ChangeContext):
     """Whether a device may be plugged in at a point: the voltage there suits the one it is for
     (its own plan's, else where the plan plugs it in), within IEC 60038's ±10 %: never a 230 V
-    device behind a 120 V transformer, nor the reverse."""
-    devices = {d.name: d for d in plan.devices}
-    feeds = transformer_feeds(plan.transformers, plan.conductors, devices)
+    device behind a 120 V transformer, nor the reverse (a point behind a transformer the device is
+    not behind is never offered: :func:`_supply_side` moves it to the outlet that feeds it)."""
+    plan, feeds = ctx.plan, ctx.feeds
     if not feeds:
         return lambda dev, there: True
-    return lambda dev, there: (
-        (feeds.get(there) is None or feeds.get(there) is feeds.get(dev.plugged))
-        and suits(rated_voltage(plan, dev, feeds), supply_at(there, feeds, plan.supply))
+    return lambda dev, there: suits(
+        rated_voltage(plan, dev, feeds), supply_at(there, feeds, plan.supply)
     )
 
 
