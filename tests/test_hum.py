@@ -405,3 +405,29 @@ field t: transformer, at 100,60, 50 uT at 5 cm, size 80 mm
     assert flat.hum.loops and flat.hum.loops[0].area == 0
     assert not [f for f in flat.findings if f.code == "GC305"]
     assert [f for f in looped.findings if f.code == "GC305"]
+
+
+def test_one_stages_leakage_currents_add_as_phasors_in_the_worst_case():
+    # two leakage currents (one mains line: in phase) cross the one wire a single stage reads, in
+    # opposite directions: 1.0 mA a → m and 0.6 mA m → a. Worked by hand: the wire is 80 mm of
+    # 0.2 mm² copper, R = 1.724e-8 × 0.080 / 0.2e-6 = 6.896 mΩ; the stage reads (1.0 − 0.6) mA × R
+    # = 2.758 µV at 50 Hz (gain 0 dB; the wire's 50 Hz reactance is far below its resistance).
+    # "Every stage in phase" has one stage to add: the two currents' drops are not added in
+    # magnitude, which would give (1.0 + 0.6) mA × R = 11.03 µV
+    from groundcheck.analysis import analyze
+
+    text = """plan "one stage, two opposing leakage currents"
+listening output 1 V
+metal deck: aluminium 2 mm, 200 x 120 mm
+point a: pad, at 20,60 on deck
+point m: star, at 100,60 on deck
+wire w1: a to m, 80 mm, 0.2 mm2, return
+current la: a to m, 1 mA 50 Hz, leakage
+current lb: m to a, 0.6 mA 50 Hz, leakage
+stage s: a to m, gain 0 dB, channel out
+"""
+    r = analyze(load_text(text, "leak.gplan"))
+    row = next(x for x in r.hum.channels["out"].spectrum if x.frequency == 50.0)
+    by_hand = (1.0e-3 - 0.6e-3) * 1.724e-8 * 0.080 / 0.2e-6
+    assert by_hand == pytest.approx(2.758e-6, rel=1e-3)
+    assert row.volts == pytest.approx(by_hand, rel=0.01)
