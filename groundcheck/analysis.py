@@ -60,7 +60,13 @@ def analyze(plan: Plan, options: Options = Options()) -> Result:
         return _analyze(plan, options)
 
 
-def netlist_of(plan: Plan, frequency: float, group: str | None = None, channel: str | None = None):
+def netlist_of(
+    plan: Plan,
+    frequency: float,
+    group: str | None = None,
+    channel: str | None = None,
+    plate_current: str = HumOptions.plate_current,
+):
     """The plan's circuit and what a netlist at ``frequency`` holds besides it: the hum budget's
     currents, its loops' EMFs for the field directions it uses for ``channel``, and the stages'
     readings (:mod:`groundcheck.physics.hum_netlist`).
@@ -70,6 +76,7 @@ def netlist_of(plan: Plan, frequency: float, group: str | None = None, channel: 
         frequency: Hz (0: DC).
         group: one source group, or None for all (an unknown one: an UnknownChoice naming them).
         channel: the channel whose directions and stages (None: the first).
+        plate_current: how loop currents cross plates (``HumOptions.plate_current``).
     Returns:
         (circuit, NetlistSources).
     References:
@@ -83,9 +90,8 @@ def netlist_of(plan: Plan, frequency: float, group: str | None = None, channel: 
         circuit = build_circuit(plan)
         top = max(Options().max_frequency, frequency)
         check_work(plan, ctx.loops, circuit, top, True)
-        budget = HumBudget(
-            plan, circuit, ctx.loops, _simulated(plan), HumOptions(top), (), series_runs(ctx)
-        )
+        opts = HumOptions(top, plate_current=plate_current)
+        budget = HumBudget(plan, circuit, ctx.loops, _simulated(plan), opts, (), series_runs(ctx))
         if channel is not None and channel not in budget.channels:
             raise UnknownChoice(
                 f"no channel {channel!r} (the plan's: {', '.join(budget.channels)})"
@@ -249,7 +255,7 @@ def _solve(
             circuit,
             ctx.loops,
             rr,
-            HumOptions(options.max_frequency, options.contributor_level, options.crosstalk_limit),
+            HumOptions.of(options),
             outlets.pairs if outlets is not None else (),
             series_runs(ctx),
         )

@@ -12,6 +12,7 @@ from ..core.errors import GroundcheckError, shown
 from ..core.units import UnitError, parse_quantity
 from ..language.loader import load
 from ..renderers.output import write_atomic
+from ..physics.humsettings import PLATE_CURRENTS
 from ..physics.protection import MAX_PE_LIMIT
 from ..rules.results import FAIL_LEVELS, Options
 from ..rules.selection import UnknownRule, codes_of
@@ -141,6 +142,17 @@ def _pe_limit(text: str) -> float:
     return value
 
 
+def _plate_current_option(g) -> None:
+    g.add_argument(
+        "--plate-current",
+        choices=PLATE_CURRENTS,
+        default=_DEFAULT.plate_current,
+        help="how a loop's current crosses a chassis plate in the stray-field pickup: resistive "
+        "(spread as at DC, the default) or inductive (crowding under the loop's wire at each "
+        "line's frequency; slower; steel plates stay resistive)",
+    )
+
+
 def add_analysis_options(p):
     g = p.add_argument_group("analysis")
     g.add_argument(
@@ -167,6 +179,7 @@ def add_analysis_options(p):
         help="report hum contributors above this level at the output (default "
         f"{_DEFAULT.contributor_level:g} dBV)",
     )
+    _plate_current_option(g)
     g.add_argument(
         "--no-hum",
         action="store_true",
@@ -249,6 +262,7 @@ def options_of(args):
         pe_limit=args.pe_limit,
         max_frequency=args.max_frequency,
         contributor_level=args.hum_level,
+        plate_current=args.plate_current,
         hum=not args.no_hum,
         jobs=getattr(args, "jobs", 1),
         only_rules=only,

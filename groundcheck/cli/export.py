@@ -3,6 +3,7 @@ by the format registry from the loaded plan."""
 
 from __future__ import annotations
 
+from ..physics.humsettings import PLATE_CURRENTS
 from ..renderers.formats import NETLIST_FORMATS
 from .common import load_plan, quantity_type, write_output
 from .drawing import written_epilog
@@ -54,6 +55,13 @@ __all__ = ["cmd_export"]
             "read (default: the first channel by name)",
         ),
         opt(
+            "--plate-current",
+            choices=PLATE_CURRENTS,
+            default=PLATE_CURRENTS[0],
+            help="how a loop's current crosses a chassis plate in the loops' EMFs: resistive "
+            "(the default) or inductive, as for check",
+        ),
+        opt(
             "-o",
             "--output",
             metavar="FILE",
@@ -64,6 +72,8 @@ __all__ = ["cmd_export"]
 def cmd_export(args) -> int:
     plan = load_plan(args.plan)
     # an unknown --source or --channel is an UnknownChoice: one line, exit 2, like any other
-    text = NETLIST_FORMATS[args.format].render(plan, args.frequency, args.source, args.channel)
+    text = NETLIST_FORMATS[args.format].render(
+        plan, args.frequency, args.source, args.channel, args.plate_current
+    )
     write_output(text, args.output, [args.plan])
     return 0

@@ -19,12 +19,23 @@ import math
 
 import numpy as np
 
+from .impedance import resistivity
 from .hearing import heard_threshold
+from .heater_field import pair_geometry, pair_path_flux
 from .hum_rows import FieldAxis, LoopPickup, PickupLine, SourcePickup
 from .humtotals import FLOOR_V
-from .orient import AXES, channel_objective, stated_axis, worst_axis
+from .orient import AXES, channel_objective, fixed_fluxes, source_fluxes, stated_axis, worst_axis
+from .plate_paths import loop_passages
 
-__all__ = ["field_pickup", "pickup_columns", "source_lines", "MEASURE_WEIGHTED", "MEASURE_RMS"]
+__all__ = [
+    "at_line",
+    "field_pickup",
+    "flux_models",
+    "pickup_columns",
+    "source_lines",
+    "MEASURE_WEIGHTED",
+    "MEASURE_RMS",
+]
 
 #: what the worst direction maximises, as the JSON names it
 MEASURE_WEIGHTED = "threshold-weighted total"
@@ -46,6 +57,46 @@ def source_lines(src, f0: float, freqs) -> list[tuple[float, float]]:
     """
     scale = {1: 1.0, **{n: ratio for n, ratio in src.harmonics}}
     return [(f, ratio) for n, ratio in scale.items() for f in freqs if abs(n * f0 - f) <= 1e-9]
+
+
+def flux_models(b, plan, circuit, loops) -> dict:
+    """Each field source's and AC heater pair's flux through the loops that take an EMF, as a
+    function of its direction (:mod:`groundcheck.physics.orient`); with the inductive plate spread
+    (``b.plate_current``), per line of each source (:mod:`groundcheck.physics.plate_spread`).
+
+    Parameters:
+        b: the hum budget (its loops taking an EMF, field sources, AC heater pairs, frequencies).
+        plan, circuit, loops: the plan, its circuit and its independent loops.
+    Returns:
+        source name -> its LoopFluxes.
+    References:
+        :mod:`groundcheck.physics.orient`; :mod:`groundcheck.physics.heater_field`.
+    """
+    closed = {li: [*loops[li].polygon, loops[li].polygon[0]] for li in b.pick_loops}
+    passages = loop_passages(plan, circuit, loops)
+    if b.plate_current == "inductive":
+        from .plate_spread import line_fluxes
+
+        rho = lambda metal: resistivity(metal.material, plan.ambient)
+        models = {
+            src.name: line_fluxes(
+                src, closed, passages, [f for f, _ in source_lines(src, b.f0, b.freqs)], rho
+            )
+            for src in plan.fields
+        }
+    else:
+        models = {src.name: source_fluxes(src, closed, passages) for src in plan.fields}
+    for name, (_, h) in b.pairs.items():
+        spacing, height = pair_geometry(h)
+        models[name] = fixed_fluxes(
+            b.fields[name],
+            b.pick_loops,
+            [
+                pair_path_flux(h.route, spacing, height, h.current, closed[li])
+                for li in b.pick_loops
+            ],
+        )
+    return models
 
 
 def field_pickup(b, merged) -> dict[str, list[dict]]:
@@ -78,7 +129,10 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
             continue
         for ch, ks in stages.items():
             verdict, weight = weighed[ch]
-            parts = [(ratio * merged.pickup[f][0][ks], weight[f]) for f, ratio in spectrum]
+            parts = [
+                (ratio * _on_columns(model, f, merged.pickup[f][0][ks]), weight[f])
+                for f, ratio in spectrum
+            ]
             if model.oriented and not any(np.any(G) for G, _ in parts):
                 continue  # no stage of the channel reads any loop: nothing to add
             if model.oriented:
@@ -97,8 +151,7 @@ def field_pickup(b, merged) -> dict[str, list[dict]]:
                 ch,
                 ks,
                 f"field:{name}",
-                [(f, r, merged.pickup[f][0]) for f, r in spectrum],
-                phi,
+                [(f, r, merged.pickup[f][0], at_line(model, f, phi)) for f, r in spectrum],
             )
         _loop_rows(b, merged, model, spectrum)
     return out
@@ -152,10 +205,31 @@ def _vector(m) -> tuple[float, float, float]:
     return (float(m[0]), float(m[1]), float(m[2]))
 
 
-def _apply(b, merged, ch: str, ks: list, group: str, spectrum, phi: np.ndarray) -> None:
-    """Add a source's drops, for the fluxes phi, to the channel's output group, worst case and
-    contributors."""
-    for f, ratio, D in spectrum:
+def _on_columns(model, f: float, G: np.ndarray) -> np.ndarray:
+    """The drops per unit flux of the loops (stages × loops) as drops per unit flux of the model's
+    columns at the line f (the same, but for a model whose columns differ by line)."""
+    return G if model.combine is None else G @ model.combine[f].T
+
+
+def at_line(model, f: float, phi: np.ndarray) -> np.ndarray:
+    """The loops' fluxes at a line from the model's columns' fluxes.
+
+    Parameters:
+        model: a source's LoopFluxes.
+        f: the line's frequency, Hz.
+        phi: the fluxes of the model's columns (the last axis), Wb.
+    Returns:
+        the loops' fluxes at the line (complex where the model's columns differ by line), Wb.
+    References:
+        none (bookkeeping of the inductive plate spread's columns).
+    """
+    return phi if model.combine is None else phi @ model.combine[f]
+
+
+def _apply(b, merged, ch: str, ks: list, group: str, spectrum) -> None:
+    """Add a source's drops, for each line's fluxes phi, to the channel's output group, worst case
+    and contributors."""
+    for f, ratio, D, phi in spectrum:
         drops = ratio * D[ks] * phi[None, :]  # the channel's stages × loops
         per_stage = drops.sum(axis=1)
         merged.out[ch][f][group] += complex(per_stage.sum())
@@ -171,19 +245,21 @@ def _loop_rows(b, merged, model, spectrum) -> None:
     the direction that puts the most flux through that loop alone (or the stated axis)."""
     src = b.fields[model.src.name]
     stated = stated_axis(src) if model.oriented else None
-    for col, li in enumerate(model.loops):
+    first = spectrum[0][0]
+    for col, li in enumerate(b.pick_loops if model.combine is not None else model.loops):
         if not model.oriented:
-            m, phi = np.zeros(3), float(model.fixed[col])
+            m, phis = np.zeros(3), np.full(len(spectrum), float(model.fixed[col]))
         else:
-            m = stated if stated is not None else _loop_worst(model, col)
-            phi = float(model.fluxes(m)[0, col])
+            m = stated if stated is not None else _loop_worst(model, col, first)
+            all_cols = model.fluxes(m)[0]
+            phis = np.array([at_line(model, f, all_cols)[col] for f, _ in spectrum])
         info = b.loops[li]
         row = merged.loop_rows.setdefault(
             li, LoopPickup(li + 1, list(info.loop.nodes), info.closed_by, info.area)
         )
         row.sources[src.name] = SourcePickup(
             # a loop of no area to speak of (its conductors in line) has no mean flux density
-            abs(phi) / info.area if (info.area or 0) > AREA_FLOOR else None,
+            abs(phis[0]) / info.area if (info.area or 0) > AREA_FLOOR else None,
             b.closest(src.name, info.polygon),
             src.height,
             _vector(m),
@@ -196,7 +272,7 @@ def _loop_rows(b, merged, model, spectrum) -> None:
                     2 * math.pi * f * abs(ratio * phi),
                     float(abs(ratio * phi * merged.pickup[f][1][col])),
                 )
-                for f, ratio in spectrum
+                for (f, ratio), phi in zip(spectrum, phis)
             ),
         )
 
@@ -210,9 +286,15 @@ AREA_FLOOR = 1e-12
 FLUX_FLOOR = 1e-15
 
 
-def _loop_worst(model, col: int) -> np.ndarray:
-    """The direction that puts the most flux through one loop: for the dipole F/|F|
-    (Cauchy–Schwarz, the flux being F·m̂), for the ring the search."""
+def _loop_worst(model, col: int, line: float) -> np.ndarray:
+    """The direction that puts the most flux through one loop (at the source's first line where
+    the fluxes differ by line): for the dipole F/|F| (Cauchy–Schwarz, the flux being F·m̂), for the
+    ring the search."""
+    if model.combine is not None:
+        c = model.combine[line][:, col]
+        cols = np.flatnonzero(c)
+        m, top = worst_axis(model.only(cols), lambda p: np.abs(p @ c[cols]) ** 2)
+        return m if math.sqrt(max(top, 0.0)) > FLUX_FLOOR else np.array([0.0, 0.0, 1.0])
     if model.F is None:
         m, top = worst_axis(model.only(col), lambda p: p[:, 0] ** 2)
         # a loop with no flux to speak of has no worst direction: its search meets rounding only

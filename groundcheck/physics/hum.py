@@ -44,12 +44,10 @@ from .coupling import (
 )
 from .humsettings import SIGNAL_FREQUENCY, HumOptions, channel_listenings
 from .humtotals import ChannelHum, HumResult, Merged
-from .heater_field import pair_closest, pair_geometry, pair_path_flux, pair_sources
-from .fieldhum import field_pickup, pickup_columns
+from .heater_field import pair_closest, pair_sources
+from .fieldhum import field_pickup, flux_models, pickup_columns
 from .hum_shares import run_columns, source_part
-from .orient import fixed_fluxes, source_fluxes
 from .pickup import min_distance
-from .plate_paths import loop_passages
 from .supplyhum import coverage, supply_shares
 from .sweep import run_tasks
 
@@ -168,9 +166,15 @@ class HumBudget:
         self.pick_loops, self.pick_branch, self.pick_sign = pickup_columns(
             circuit, loops, self.branch_index
         )
+        self.plate_current = options.plate_current
         self.models = (
-            self._flux_models(plan, circuit, loops) if self.pick_loops and self.sources else {}
+            flux_models(self, plan, circuit, loops) if self.pick_loops and self.sources else {}
         )
+        if self.models and self.plate_current == "inductive":
+            self.notes.append(
+                "stray-field pickup with the inductive spread of loop currents in non-magnetic "
+                "plates, at each line's frequency (--plate-current inductive)"
+            )
         #: (channel, field source) -> the direction used for it, set when the budget's result is
         #: merged (:func:`groundcheck.physics.fieldhum.field_pickup`)
         self.directions: dict = {}
@@ -250,24 +254,6 @@ class HumBudget:
         self.fb_freqs = set(freqs) | {SIGNAL_FREQUENCY} if self.fb_sources else set()
         xt = set(self.xt_freqs) if self.crosstalk_wanted else set()
         self.solve_at = sorted(set(freqs) | xt | self.fb_freqs)
-
-    def _flux_models(self, plan, circuit, loops) -> dict:
-        """Each field source's and AC heater pair's flux through the loops that take an EMF, as a
-        function of its direction (:mod:`groundcheck.physics.orient`)."""
-        closed = {li: [*loops[li].polygon, loops[li].polygon[0]] for li in self.pick_loops}
-        passages = loop_passages(plan, circuit, loops)
-        models = {src.name: source_fluxes(src, closed, passages) for src in plan.fields}
-        for name, (_, h) in self.pairs.items():
-            spacing, height = pair_geometry(h)
-            models[name] = fixed_fluxes(
-                self.fields[name],
-                self.pick_loops,
-                [
-                    pair_path_flux(h.route, spacing, height, h.current, closed[li])
-                    for li in self.pick_loops
-                ],
-            )
-        return models
 
     def closest(self, name: str, polygon) -> float:
         """A loop's closest approach to a field source's centre, or to an AC heater pair's wires,

@@ -23,7 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .fieldhum import source_lines
+from .fieldhum import at_line, source_lines
 from .sources import LEAKAGE_GROUP
 
 __all__ = ["RECTIFIERS", "Reading", "NetlistSources", "netlist_sources", "source_groups"]
@@ -123,7 +123,7 @@ def netlist_sources(budget, f: float, group: str | None = None, channel: str | N
             if group not in (None, name):
                 continue
             for _, ratio in source_lines(budget.fields[name], budget.f0, [f]):
-                phi = _fluxes(budget, model, name, channel)
+                phi = _fluxes(budget, model, name, channel, f)
                 if phi is None:
                     continue
                 w = 2 * math.pi * f
@@ -137,13 +137,13 @@ def netlist_sources(budget, f: float, group: str | None = None, channel: str | N
     )
 
 
-def _fluxes(budget, model, name: str, channel: str | None):
-    """The source's flux through each loop that takes an EMF, for the channel's direction (None
-    when the channel reads no loop and the direction was never chosen)."""
+def _fluxes(budget, model, name: str, channel: str | None, f: float):
+    """The source's flux through each loop that takes an EMF at its line f, for the channel's
+    direction (None when the channel reads no loop and the direction was never chosen)."""
     if not model.oriented:
         return model.fixed
     m = budget.directions.get((channel, name))
-    return None if m is None else model.fluxes(m)[0]
+    return None if m is None else at_line(model, f, model.fluxes(m)[0])
 
 
 def _readings(budget, f: float, emfs, channel) -> tuple[Reading, ...]:

@@ -9,6 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 __all__ = [
+    "PLATE_CURRENTS",
     "QUIET_MARGIN_DB",
     "far_below_hearing",
     "HumOptions",
@@ -17,6 +18,9 @@ __all__ = [
     "at_signal_frequency",
     "channel_listenings",
 ]
+
+#: how a loop's current may be taken across a plate (``--plate-current``)
+PLATE_CURRENTS = ("resistive", "inductive")
 
 #: the signal frequency at which the crosstalk between channels and each channel's feedback through
 #: the ground are always given, Hz (1 kHz: the reference frequency of audio measurements, IEC
@@ -93,11 +97,19 @@ class HumOptions:
         contributor_level: contributors above this level at the output (dBV) become findings.
         crosstalk_limit: crosstalk between channels at the signal frequency (SIGNAL_FREQUENCY)
             worse than this (dB) is a finding.
+        plate_current: how a loop's current crosses a plate: ``resistive`` (spread as at DC) or
+            ``inductive`` (the sheet solve at each field line's frequency).
     """
 
     max_frequency: float = 5000.0
     contributor_level: float = -100.0
     crosstalk_limit: float = -60.0
+    plate_current: str = "resistive"
+
+    @classmethod
+    def of(cls, options) -> "HumOptions":
+        """The hum budget's settings of an analysis run's (its fields of the same names)."""
+        return cls(*(getattr(options, k) for k in cls.__dataclass_fields__))
 
 
 def channel_listenings(plan, stages, channels) -> dict:

@@ -90,6 +90,9 @@ class LoopFluxes:
     _digest: bytes | None = None
     _parts: list | None = None  # each loop's points' digest (ring_memo.loop_digest)
     _seen: dict | None = None
+    #: line frequency -> columns × loops: the loops' complex fluxes at the line from the columns'
+    #: (inductive plate spread, :mod:`groundcheck.physics.plate_spread`); None: every line alike
+    combine: dict | None = None
 
     def grid(self) -> tuple[np.ndarray, np.ndarray]:
         """The starting directions (admitted) and the fluxes there, computed once for every
@@ -114,38 +117,37 @@ class LoopFluxes:
             self._seen = {}
         keys = [tuple(row) for row in M.tolist()]
         new = [k for k in dict.fromkeys(keys) if k not in self._seen]
-        if (
-            new
-        ):  # the same directions are asked for again (the axes, the one found): each computed once
+        # the same directions are asked for again (the axes, the one found): each computed once
+        if new:
             values = memo_ring_fluxes(
                 self.digest(), self.src, self.X, self.W, np.array(new), self.group, len(self.loops)
             )
             self._seen.update(zip(new, values))
         return np.array([self._seen[k] for k in keys])
 
-    def only(self, column: int) -> "LoopFluxes":
-        """The same source through one of the loops."""
+    def only(self, column) -> "LoopFluxes":
+        """The same source through one of the loops (a column index), or through several."""
+        cols = np.atleast_1d(column)
+        loops = [self.loops[c] for c in cols]
         if self.fixed is not None:
-            return LoopFluxes(
-                self.src, [self.loops[column]], self.model, fixed=self.fixed[column : column + 1]
-            )
+            return LoopFluxes(self.src, loops, self.model, fixed=self.fixed[cols])
         if self.F is not None:
-            return LoopFluxes(
-                self.src, [self.loops[column]], self.model, F=self.F[column : column + 1]
-            )
-        keep = self.group == column
+            return LoopFluxes(self.src, loops, self.model, F=self.F[cols])
+        keep = np.isin(self.group, cols)
+        new = np.zeros(len(self.loops), dtype=int)
+        new[cols] = np.arange(len(cols))
         one = LoopFluxes(
             self.src,
-            [self.loops[column]],
+            loops,
             self.model,
             X=self.X[keep],
             W=self.W[keep],
-            group=np.zeros(int(keep.sum()), dtype=int),
+            group=new[self.group[keep]],
         )
-        if self._grid is not None:
-            one._grid = (self._grid[0], self._grid[1][:, column : column + 1])
-        if self._parts is not None:
-            one._parts = [self._parts[column]]
+        if self._grid is not None and len(cols) == 1:
+            one._grid = (self._grid[0], self._grid[1][:, cols])
+        if self._parts is not None and len(cols) == 1:
+            one._parts = [self._parts[int(cols[0])]]
         return one
 
     def digest(self) -> bytes:

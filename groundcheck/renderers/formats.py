@@ -224,16 +224,19 @@ SUGGESTION_FORMATS: dict[str, Format] = {
 }
 
 
-def _spice(plan, frequency: float | None = None, group=None, channel=None) -> str:
+def _spice(
+    plan, frequency: float | None = None, group=None, channel=None, plate_current="resistive"
+) -> str:
     """The plan's ground network as a SPICE netlist with the hum budget's sources at
     ``frequency`` (an AC analysis there; None or 0: the DC operating point): its currents, its
     loops' EMFs (the field directions it uses for ``channel``) and its stages' readings; ``group``
-    one source group alone (:func:`groundcheck.analysis.netlist_of`)."""
+    one source group alone; ``plate_current`` how loop currents cross plates
+    (:func:`groundcheck.analysis.netlist_of`)."""
     from ..analysis import netlist_of
     from .spice import to_spice
 
     f = frequency or 0.0
-    circuit, ns = netlist_of(plan, f, group, channel)
+    circuit, ns = netlist_of(plan, f, group, channel, plate_current)
     notes = [
         f"sources at {f:g} Hz: {', '.join(ns.groups) or 'none'}; "
         + (f"this netlist holds {ns.group} alone" if ns.group else "this netlist holds them all")

@@ -9,7 +9,7 @@ from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 from ..model.records import Plan
-from ..physics.humsettings import HumOptions
+from ..physics.humsettings import PLATE_CURRENTS, HumOptions
 from ..physics.protection import MAX_PE_LIMIT, STANDARD_PE_LIMIT
 from .catalogue import Finding, severity_rank
 from .selection import NotChecked, codes_of
@@ -38,6 +38,7 @@ class Options:
     max_frequency: float = HumOptions.max_frequency  # Hz
     contributor_level: float = HumOptions.contributor_level  # dBV at the output
     crosstalk_limit: float = HumOptions.crosstalk_limit  # dB
+    plate_current: str = HumOptions.plate_current  # resistive or inductive spread in plates
     hum: bool = True  # run the electrical hum budget
     jobs: int = 1  # processes for the hum budget's frequencies
     only_rules: tuple[str, ...] = ()  # rule codes, families or names to check (empty: all)
@@ -59,6 +60,10 @@ class Options:
             if isinstance(words, str):
                 raise TypeError(f"{origin}: a tuple of rule words, not one string")
             codes_of(words, origin)  # a word that names no rule is an error, never nothing
+        if self.plate_current not in PLATE_CURRENTS:
+            raise ValueError(
+                f"plate_current {self.plate_current!r}: one of {', '.join(PLATE_CURRENTS)}"
+            )
 
 
 @dataclass
