@@ -88,6 +88,13 @@ PLAUSIBLE = {
         "miniature fuses (IEC 60127) start at a few mA; a final circuit's fuse is at most 125 A "
         "(from memory)",
     ),
+    "plug-fuse": (
+        1.0,
+        16.0,
+        "current",
+        "A",
+        "fused plugs take cartridge fuses of 1 to 13 A; none is made above 16 A (from memory)",
+    ),
     "breaker": (
         0.5,
         125.0,

@@ -43,6 +43,7 @@ MAINS_ATTRIBUTES = {
     "electrode": ("electrode", "earth-electrode resistance", "resistance"),
     "first-fault": ("first_fault", "first-fault current", "current"),
     "fuse-resistance": ("fuse_resistance", "fuse cold resistance", "resistance"),
+    "plug-fuse": ("plug_fuse", "plug fuse rating", "current"),
     "cable-temperature": (
         "cable_temperature",
         "installation cables' operating temperature",

@@ -105,6 +105,8 @@ class Mains:
     breaking: str | None = None  # low | enhanced | high (IEC 60127 categories)
     breaking_current: float | None = None  # stated breaking capacity, A
     fuse_resistance: float | None = None  # stated cold resistance of the fuse, Ω
+    #: the rating of the fuse in the mains plug, A (a fused plug's), when the plan states one
+    plug_fuse: float | None = None
     #: °C, the installation cables' operating temperature (default 70 °C)
     cable_temperature: float | None = None
     #: A, prospective line-to-neutral short-circuit current at the origin
@@ -119,6 +121,16 @@ class Mains:
         if self.breaker is not None:
             return self.breaker, self.breaker_kind
         return self.fuse, self.fuse_kind
+
+    @property
+    def protective_rating(self) -> float | None:
+        """The rating of the overcurrent device ahead of the equipment (A), which the long bonding
+        test takes: the plug's fuse when the plan states one and it is the smaller, else the device
+        that clears a fault at the inlet (None when none is stated)."""
+        rating, _ = self.inlet_device
+        if self.plug_fuse is None:
+            return rating
+        return self.plug_fuse if rating is None else min(rating, self.plug_fuse)
 
     @property
     def cord_section(self) -> float:

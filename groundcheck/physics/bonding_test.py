@@ -8,8 +8,12 @@ The tests (figures in :data:`SHORT_TEST`, :data:`LONG_TEST` and :func:`bonding_t
   states no rated current, so the rating of the mains statement's fuse or breaker stands in for it:
   a fuse is rated at or above the current the equipment draws, which keeps the test current
   cautious.
-* **long**: 200 % of the protective device's rating for 120 s — IEC 60950-1:2005 2.6.3.4; IEC
-  62368-1 5.6.6.2 (from memory) — run when the mains statement names a fuse or breaker.
+* **long**: 200 % of the protective device's rating for 120 s, longer above 30 A (4 min to 60 A,
+  6 to 100 A, 8 to 200 A, else 10) — IEC 60950-1:2005 2.6.3.4 and Table 2E; IEC 62368-1 5.6.6.2
+  (from memory) — run when the mains statement names a fuse, breaker or plug fuse.  The rating is
+  that of the overcurrent device ahead of the equipment: the plug's fuse when the plan states one
+  (``plug-fuse``: IEC 60950-1 2.6.3.3 counts the device in the mains plug, from memory), else the
+  supply circuit's breaker, else the equipment's own fuse.
 
 The current flows from the inlet's protective terminal to each touchable part in turn (the supply
 cord is not part of the test, as in IEC 60335-1 27.5 and IEC 61010-1 6.5.2.4).  Each conductor
@@ -73,6 +77,9 @@ SHORT_TEST = (25.0, 60.0, 1.5)
 #: 2.6.3.4; IEC 62368-1 5.6.6.2 from memory)
 LONG_TEST = (2.0, 120.0)
 
+#: the long test's duration above 16 A: (rating at most, A; minutes), IEC 60950-1:2005 Table 2E
+LONG_DURATIONS = ((30.0, 2.0), (60.0, 4.0), (100.0, 6.0), (200.0, 8.0), (float("inf"), 10.0))
+
 #: above this protective-device rating (A), IEC 60950-1:2005 2.6.3.4 limits the path's voltage
 #: (V) at the long test's current instead of its resistance
 DROP_LIMIT = (16.0, 2.5)
@@ -114,11 +121,13 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
     Parameters:
         plan: the plan.
     Returns:
-        the short test (25 A, or 1.5 × the fuse rating when more, 60 s) and, with a fuse or
-        breaker, the long test (2 × its rating, 120 s).
+        the short test (25 A, or 1.5 × the fuse rating when more, 60 s) and, with a fuse, breaker
+        or plug fuse, the long test (2 × the rating ahead of the equipment, 120 s; longer above
+        30 A).
     References:
         IEC 60065 15.2 and IEC 61010-1 6.5.2.4 (25 A, 1 min); IEC 60335-1 27.5 (1.5 × rated
-        current, from memory); IEC 60950-1:2005 2.6.3.4 (200 % of the protective rating, 2 min);
+        current, from memory); IEC 60950-1:2005 2.6.3.4 and Table 2E (200 % of the protective
+        rating, 2 min up to 30 A);
         IEC 62368-1 5.6.6.2 (from memory).
     """
     m = plan.mains
@@ -133,18 +142,22 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
             "protective device's rating, for 1 min"
         )
     tests = [BondTest("short", amps, secs, basis)]
-    # the long test's rating is the protective device's ahead of the equipment: the supply
-    # circuit's breaker when the plan states it beside the fuse, else the one device stated
-    rating, _ = m.inlet_device
+    # the long test's rating is the protective device's ahead of the equipment: the plug's fuse
+    # when stated and smaller, else the supply circuit's breaker when the plan states it beside
+    # the fuse, else the one device stated
+    rating = m.protective_rating
     if rating is not None:
         mult, dur = LONG_TEST
+        if rating > DROP_LIMIT[0]:
+            dur = 60.0 * next(mins for top, mins in LONG_DURATIONS if rating <= top)
+        which = "plug fuse's " if rating == m.plug_fuse else ""
         tests.append(
             BondTest(
                 "long",
                 mult * rating,
                 dur,
-                "IEC 60950-1:2005 2.6.3.4, IEC 62368-1 5.6.6.2 (from memory): 200 % of the "
-                f"{rating:g} A rating for 2 min",
+                "IEC 60950-1:2005 2.6.3.4 and Table 2E, IEC 62368-1 5.6.6.2 (from memory): 200 % "
+                f"of the {which}{rating:g} A rating for {dur / 60:g} min",
             )
         )
     return tuple(tests)
@@ -152,11 +165,13 @@ def bonding_tests(plan: Plan) -> tuple[BondTest, ...]:
 
 def _behind_fuse(plan: Plan) -> float | None:
     """The long test's current behind the equipment's fuse as a share of its current at the inlet
-    (the fuse's rating over the breaker's), or None when the plan states not both."""
+    (the fuse's rating over the rating ahead of it: the breaker's, or a smaller plug fuse's), or
+    None when the plan states not both."""
     m = plan.mains
-    if m.fuse is None or m.breaker is None or m.breaker <= 0:
+    ahead = m.protective_rating
+    if m.fuse is None or m.breaker is None or not ahead:
         return None
-    return min(1.0, m.fuse / m.breaker)
+    return min(1.0, m.fuse / ahead)
 
 
 def _inlet_part(plan: Plan, rpart: dict) -> str | None:
@@ -251,7 +266,7 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
         if (row := _row(plan, plan.index.conductors[name], test, sh * test.current)) is not None
     ]
     rating, volts = DROP_LIMIT
-    ahead, _ = plan.mains.inlet_device
+    ahead = plan.mains.protective_rating
 
     def protected_by(p) -> float | None:
         # the device that clears a fault at the part: the breaker at the inlet's part, the
