@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import math
 
+from ..rules.catalogue import RULES
 from .changes import STANDARD_SECTIONS_MM2, Candidate, ChangeContext, squeeze
 from .edits import Edit
 
@@ -34,29 +35,12 @@ def thicker(ctx: ChangeContext, f) -> Candidate | None:
     it)."""
     c = ctx.cond.get(f.elements[0]) if f.elements else None
     st = ctx.statement(c) if c is not None else None
-    passes = f.figures.get("thicker_mm2")  # GC223: the smallest size that passes the test
     if st is None:
         return None
-    if passes is not None:  # the size that passes every test the conductor fails, not one alone
-        passes = max(
-            [passes]
-            + [
-                g.figures["thicker_mm2"]
-                for g in ctx.result.findings
-                if g.code == f.code
-                and g.elements[:1] == f.elements[:1]
-                and g.figures.get("thicker_mm2") is not None
-            ]
-        )
-    if passes is not None:
-        area = need = passes
-        why = "the smallest standard size that passes the bonding tests"
-    elif ctx.plan.mains is None or ctx.plan.mains.line_area is None:
+    size = _size(ctx, f)
+    if size is None:
         return None
-    else:
-        need = ctx.plan.mains.line_area * 1e6
-        area = next((a for a in STANDARD_SECTIONS_MM2 if a >= need * (1 - 1e-9)), need)
-        why = f"the standard size at least the line conductor's {need:.3g} mm²"
+    area, need, why, passes = size
     new = f"{area:g} mm2"
     item = ctx.src.quantity(st, "area")
     gauge = _gauge(need) if item is not None and item.text.upper().endswith("AWG") else None
@@ -85,3 +69,39 @@ def thicker(ctx: ChangeContext, f) -> Candidate | None:
         action="thicken",
         element=c.name,
     )
+
+
+def _size(ctx: ChangeContext, f):
+    """(area, the size it is the standard step at or above, why, the bonding tests' size or
+    None) for a protective conductor's thickening, or None when nothing says what it needs."""
+    # the size that passes every bonding test the conductor fails (a finding with the size that
+    # passes), and at least the line conductor's (a thickening finding without one): one size
+    # answers both, so neither fix line leaves the other finding
+    mine = [
+        g
+        for g in ctx.result.findings
+        if g.elements[:1] == f.elements[:1] and "thicken" in RULES[g.code].actions
+    ]
+    tests = [g.figures["thicker_mm2"] for g in [f, *mine] if g.figures.get("thicker_mm2")]
+    passes = max(tests) if tests else None
+    line = None
+    if (
+        ctx.plan.mains is not None
+        and ctx.plan.mains.line_area is not None
+        and any(not g.figures.get("thicker_mm2") for g in [f, *mine])
+    ):
+        line = ctx.plan.mains.line_area * 1e6
+    if passes is None and line is None:
+        return None
+    line_std = (
+        None
+        if line is None
+        else next((a for a in STANDARD_SECTIONS_MM2 if a >= line * (1 - 1e-9)), line)
+    )
+    if passes is not None and (line_std is None or passes >= line_std):
+        area = need = passes
+        why = "the smallest standard size that passes the bonding tests"
+    else:
+        area, need = line_std, line
+        why = f"the standard size at least the line conductor's {need:.3g} mm²"
+    return area, need, why, passes
