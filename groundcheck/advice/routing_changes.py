@@ -160,6 +160,7 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
                 and d.role != SIGNAL
                 and d.name not in row.shared
                 and not _fastened(ctx, far)
+                and any(x.name != d.name for x in ctx.at(far))  # never leaves far wired to nothing
             ):
                 ways.append((end, other, d, far))
     hops = _from_most_sensitive(ctx)
@@ -172,7 +173,7 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
             d.name,
             far,
             end,
-            f"join {other} straight to {end} ({d.name}), so the {row.source} current "
+            f"join {other} straight to {end} ({d.name}), so the supply's return current "
             f"stays between them and leaves {', '.join(row.shared)}",
             reason,
             "join",
@@ -247,7 +248,7 @@ def _own_wire(ctx: ChangeContext, row, reason: str, off_metal: bool = False) -> 
         off = f", and {end} off the metal ({bolt.name} out)"
     return Candidate(
         f"join {row.a} and {row.b} by a short wire of their own ({name}, {length:.0f} mm, "
-        f"{area:g} mm²){off}, so the {row.source} current stays between them and leaves "
+        f"{area:g} mm²){off}, so the supply's return current stays between them and leaves "
         f"{', '.join(row.shared)}",
         reason,
         tuple(edits),
