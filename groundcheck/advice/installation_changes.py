@@ -12,7 +12,7 @@ import math
 from ..model.kinds import is_fastening_kind, joins_devices
 from ..model.installation import rated_voltage, shield_ends, suits, supply_at
 from ..model.index import outermost
-from ..model.records import Plan
+from ..model.records import DEFAULT_CORD, Plan
 from ..rules.pe_figures import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, appended, squeeze
@@ -226,8 +226,8 @@ def out_of_reach(ctx: ChangeContext, dev, st, there: str) -> str:
     if cord is None:
         own = dict(ctx.plan.device_plans).get(dev.name)
         cord = own.mains.cord_length if own is not None and own.mains is not None else None
-    if cord is None:
-        return ""
+    if cord is None:  # the cord its fault loop is checked with (a simple device's, unstated)
+        cord = DEFAULT_CORD[0]
     far = math.dist(dev.at, outlet.pos)
     if far <= cord:
         return ""
