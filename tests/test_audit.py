@@ -739,6 +739,21 @@ def test_high_tension_inside_a_box_on_a_low_voltage_adapter():
     assert _gc229(ELV_BOX.replace("secondary 150 V", "secondary 24 V")) == {}
 
 
+def test_a_centre_tapped_winding_is_judged_end_to_end():
+    # 30-0-30 V for split rails is 60 V across the winding, over ELV's 50 V (IEC 61140 reads it
+    # between any two conductors, from memory); 24-0-24 V is 48 V, within it
+    thirty = ELV_BOX.replace("bridge, secondary 150 V", "full-wave, secondary 30 V")
+    assert set(_gc229(thirty)) == {"lid"}
+    assert _gc229(thirty.replace("secondary 30 V", "secondary 24 V")) == {}
+    # a bridge on a centre tap that also feeds a negative rail spans the whole winding too
+    pair = ELV_BOX.replace("secondary 150 V", "secondary 30 V") + (
+        "rectifier neg: ht_res to ht_neg, bridge, negative, secondary 30 V, winding 120 ohm,\n"
+        "  reservoir 47 uF, load 17 mA\n"
+    )
+    assert set(_gc229(pair)) == {"lid"}
+    assert _gc229(pair.replace("negative, ", "")) == {}
+
+
 def test_a_class_ii_boxs_own_dangers_are_the_installations(tmp_path):
     (tmp_path / "box.gplan").write_text(ELV_BOX.replace("bolt star_nut: star_tag to tray\n", ""))
     (tmp_path / "room.gplan").write_text(

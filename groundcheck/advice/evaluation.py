@@ -28,7 +28,7 @@ from .changes import Candidate
 from .edits import apply_edits, edited_texts
 from .fixes import identity
 from .hearing import HUM_FLOOR_DBV, heard_changes, share_only
-from .returns import lost_circuit, lost_wired_returns, metals_cut_loose
+from .returns import dead_screen_ends, lost_circuit, lost_wired_returns, metals_cut_loose
 
 #: the key of :attr:`Evaluation.net` that counts protective-earth faults (among the faults)
 PE_FAULT = "protective-earth fault"
@@ -177,6 +177,12 @@ def _edited_plan(base_text: str, plan: Plan, cand: Candidate, root, resolved) ->
             else "a screen or box that floats picks up the hum it should keep out"
         )
         return f"it would leave {', '.join(loose[:3])} joined to no earth at all ({why})"
+    dead = dead_screen_ends(plan, p)
+    if dead:
+        return (
+            f"it would leave the shield of {', '.join(dead[:3])} going on to nothing: the "
+            "return of an unbalanced link, which the signal needs"
+        )
     return p
 
 

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from ..model.kinds import can_open, is_fastening, is_hookup, joins_devices, shield_like
 from ..model.records import insulating_means
+from ..rules.context import STRUCTURAL
 from .changes import (
     Answer,
     Candidate,
@@ -31,7 +32,7 @@ def loop_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
     insulate_candidates(ctx, reason, add)  # a fastened socket first: the same edit keeps its words
     _throw_switches(ctx, reason, add)
     for lp in ctx.result.loops:
-        if lp.closed_by == "chassis-structure" or not lp.open_at:
+        if lp.closed_by in STRUCTURAL or not lp.open_at:
             continue
         c = ctx.cond[lp.open_at]
         if lp.closed_by == "shield-both-ends" and shield_like(c) and not joins_devices(c):

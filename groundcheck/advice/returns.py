@@ -22,6 +22,8 @@ from ..model.installation import device_of
 from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
 from ..model.records import PE_POINT, SOCKET_KINDS, Plan, insulating_means
 from ..network.earthing import earth_terminals
+from ..model.supplies import winding_span
+from ..rules.context import STRUCTURAL
 from ..rules.equipment import ELV_LIMIT
 from .changes import Candidate, ChangeContext, delete_change
 
@@ -31,6 +33,7 @@ __all__ = [
     "refused_balanced",
     "wired_graph",
     "lost_wired_returns",
+    "dead_screen_ends",
     "refuse",
 ]
 
@@ -80,7 +83,7 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
         p for d in ctx.plan.conductors if is_fastening(d, ctx.metals) for p in (d.a, d.b)
     } - ctx.metals
     for lp in ctx.result.loops:
-        if lp.closed_by == "chassis-structure":
+        if lp.closed_by in STRUCTURAL:
             continue
         for name in lp.loop.edges:
             c = ctx.cond.get(name)
@@ -108,10 +111,12 @@ def insulate_candidates(ctx: ChangeContext, reason: str, add) -> None:
 
 def _elv_supplies(ctx: ChangeContext) -> dict:
     """Each device (None: the plan's own) whose every supply is extra-low voltage, with its
-    highest winding voltage, V rms: its 0 V-to-case bond is functional, not protective."""
+    highest winding voltage end to end, V rms: its 0 V-to-case bond is functional, not
+    protective."""
     by: dict = {}
-    for r in ctx.plan.rectifiers:
-        by.setdefault(ctx.plan.index.device_of(r.name), []).append(r.secondary)
+    rects = ctx.plan.rectifiers
+    for r in rects:
+        by.setdefault(ctx.plan.index.device_of(r.name), []).append(winding_span(r, rects))
     return {d: max(v) for d, v in by.items() if max(v) <= ELV_LIMIT}
 
 
@@ -129,9 +134,9 @@ def _remove_elv_bond(ctx: ChangeContext, c, volts: float, reason: str) -> Candid
     return delete_change(
         ctx,
         c.name,
-        f"remove {c.name}, the bond of an extra-low-voltage supply's 0 V to its case ({volts:g} V "
-        f"windings, under {ELV_LIMIT:g} V: not protective), so that its outputs float as a class "
-        "II supply's do and no ground loop closes through it",
+        f"remove {c.name}, the bond of an extra-low-voltage supply's 0 V to its case (windings "
+        f"of {volts:g} V end to end, under {ELV_LIMIT:g} V: not protective), so that its outputs "
+        "float as a class II supply's do and no ground loop closes through it",
         reason,
         "remove",
     )
@@ -315,6 +320,41 @@ def lost_wired_returns(before: Plan, after: Plan) -> list[str]:
         if len(comp) < 2 or (c0[p] & stars and not comp & stars):
             lost.append(p)
     return lost
+
+
+def dead_screen_ends(before: Plan, after: Plan) -> list[str]:
+    """The ends of unbalanced links whose shield went on to another conductor before a change and
+    to none after it, at a junction rather than a socket: the shield is the signal's return, and
+    the box it ends in (a passive wall box's pin 1, bolted to its plate) passes it on only through
+    what the change took away.
+
+    Parameters:
+        before, after: the plan before and after the change.
+    Returns:
+        "LINK at POINT" for each such end.
+    References:
+        common practice (an unbalanced link's screen is its signal return).
+    """
+
+    def degree(plan: Plan) -> dict:
+        count: dict = {}
+        for c in plan.conductors:
+            if c.connects and c.a != c.b:
+                for end in (c.a, c.b):
+                    count[end] = count.get(end, 0) + 1
+        return count
+
+    d0, d1 = degree(before), degree(after)
+    # a socket has its own circuit behind it (a step-up transformer's winding, which the plan
+    # does not draw): only a bare junction, a wall box's pin, passes the shield on
+    sockets = {p.name for p in after.points if p.kind in ("sleeve", "jack")}
+    return [
+        f"{c.name} at {end}"
+        for c in after.conductors
+        if joins_devices(c) and not c.balanced and c.connects
+        for end in (c.a, c.b)
+        if end not in sockets and d0.get(end, 0) > 1 and d1.get(end, 0) <= 1
+    ]
 
 
 def refuse(c: Candidate | None, why: str) -> Candidate | None:

@@ -12,6 +12,27 @@ from ..core.errors import Location
 ELV_LIMIT = 50.0
 
 
+def winding_span(rect, rectifiers) -> float:
+    """The rms voltage across the whole winding that feeds a rectifier, end to end: a centre-tapped
+    winding's (a full-wave rectifier's, or a bridge's whose centre tap also feeds a rail of the
+    other polarity: split ± rails) is twice its half's, ``secondary``.
+
+    Parameters:
+        rect: the rectifier record.
+        rectifiers: every rectifier of the plan (to find a ± pair on one centre tap).
+    Returns:
+        the winding's voltage, V rms.
+    References:
+        common practice (a centre-tapped winding's two halves in series); IEC 61140 reads ELV
+        between any two conductors (from memory).
+    """
+    v = rect.secondary or 0.0
+    paired = rect.topology == "bridge" and any(
+        o is not rect and o.b == rect.b and o.polarity != rect.polarity for o in rectifiers
+    )
+    return 2 * v if rect.topology == "full-wave" or paired else v
+
+
 def elv_fed_high_tension(mains, rectifiers) -> bool:
     """Whether equipment fed at extra-low voltage (its ``mains`` of 50 V or less: a low-voltage
     adapter's) makes a supply above that limit inside (a rectifier whose winding is above it): its
@@ -29,7 +50,7 @@ def elv_fed_high_tension(mains, rectifiers) -> bool:
     return (
         mains is not None
         and mains.voltage <= ELV_LIMIT
-        and any((r.secondary or 0.0) > ELV_LIMIT for r in rectifiers)
+        and any(winding_span(r, rectifiers) > ELV_LIMIT for r in rectifiers)
     )
 
 
@@ -41,6 +62,9 @@ __all__ = [
     "EARTHED_LOCALLY",
     "DEFAULT_CORD",
     "CABLE_OPERATING_TEMPERATURE",
+    "ELV_LIMIT",
+    "elv_fed_high_tension",
+    "winding_span",
 ]
 
 XY = tuple[float, float]

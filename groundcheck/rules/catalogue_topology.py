@@ -20,7 +20,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         TOPOLOGY,
         "warning",
         "Every independent loop of the ground network (one per conductor outside a spanning "
-        "tree; their number is E − V + C), classified by what closes it.",
+        "tree; their number is E − V + C), classified by what closes it. A loop of metal parts "
+        "and their fastenings alone, or of protective conductors alone (a ring circuit's), is "
+        "the protective earth's own structure: listed, never reported.",
         "A loop lets a changing magnetic field drive current round it (hum at the mains "
         "frequency) and lets a return current split between two paths, one of which may be a "
         "signal reference.",

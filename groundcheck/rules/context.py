@@ -54,6 +54,9 @@ __all__ = [
 #: how many loops are listed one by one (the count is always exact)
 LOOP_LIST_LIMIT = 500
 
+#: loops that are the structure of the protective earth itself: never a finding, nothing to open
+STRUCTURAL = ("chassis-structure", "protective-wiring")
+
 LOOP_CLASSES = {
     "mains-cords": "an interconnect shield and the protective earth through two mains cords",
     "shield-both-ends": "a shield terminated at both ends",
@@ -61,6 +64,7 @@ LOOP_CLASSES = {
     "second-chassis-bond": "a second bond of the signal ground to a metal part",
     "metal-return": "a metal part used as a return path",
     "chassis-structure": "metal parts and their fastenings only",
+    "protective-wiring": "protective conductors only (a ring circuit's, by design)",
     "parallel-wiring": "two wires in parallel",
 }
 
@@ -219,8 +223,8 @@ def classify_loop(ctx: AuditContext, lp: Loop) -> str:
         return "channel-returns"
     # a conductor the protective earth relies on is protective whatever role the plan writes
     carried = {PROTECTIVE if c.name in ctx.protective_path else c.role for c in cs}
-    if has_metal and carried <= set(PROTECTIVE_ROLES):
-        return "chassis-structure"
+    if carried <= set(PROTECTIVE_ROLES):
+        return "chassis-structure" if has_metal else "protective-wiring"
     if has_metal and SIGNAL in carried:
         return "second-chassis-bond"
     if has_metal:

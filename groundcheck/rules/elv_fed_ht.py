@@ -15,7 +15,7 @@ rms); the box is fed at extra-low voltage when its ``mains`` is 50 V or less.
 
 from __future__ import annotations
 
-from ..model.supplies import elv_fed_high_tension
+from ..model.supplies import elv_fed_high_tension, winding_span
 from ..physics.dc_paths import dc_resistance, element_nodes
 from ..physics.safety import STANDARD_PE_LIMIT
 from .catalogue import Finding
@@ -44,7 +44,7 @@ def rule_elv_fed_high_tension(s: Solved) -> list[Finding]:
     if not elv_fed_high_tension(m, plan.rectifiers):
         return []
     ht = sorted(
-        (r for r in plan.rectifiers if r.secondary is not None and r.secondary > ELV_LIMIT),
+        (r for r in plan.rectifiers if winding_span(r, plan.rectifiers) > ELV_LIMIT),
         key=lambda r: (-r.secondary, r.name),
     )
     parts = [x for x in plan.metals if x.touchable and not x.signal_only]

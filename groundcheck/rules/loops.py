@@ -11,7 +11,7 @@ from ..model.kinds import is_fastening, joins_devices, shield_like
 from ..model.records import SOCKET_KINDS, insulating_means
 from ..network.graph import Loop
 from .catalogue import Finding
-from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, AuditContext
+from .context import LOOP_CLASSES, LOOP_LIST_LIMIT, STRUCTURAL, AuditContext
 from .registry import rule
 from .repairs import signal_shield
 
@@ -35,7 +35,7 @@ def rule_loops(ctx: AuditContext) -> list[Finding]:
     """
     out = []
     for info in ctx.loops:
-        if info.closed_by == "chassis-structure":
+        if info.closed_by in STRUCTURAL:
             continue
         figures = {"conductors": len(info.loop.edges)}
         if info.area is not None:

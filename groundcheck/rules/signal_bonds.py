@@ -13,6 +13,7 @@ from ..model.kinds import PROTECTIVE, is_fastening, joins_devices
 from ..model.records import SOCKET_KINDS
 from .catalogue import Finding
 from .context import AuditContext
+from ..model.supplies import winding_span
 from .equipment import ELV_LIMIT, equipment_of
 from .graph_search import bfs
 from .pe_places import pe_point
@@ -152,7 +153,9 @@ def _held_by_links(ctx: AuditContext, comp: list, name: str, bonded: set, equipm
         supplies = sorted(
             r.name
             for r in ctx.plan.rectifiers
-            if device_of(r.name) in members and {r.a, r.b} & points and r.secondary > ELV_LIMIT
+            if device_of(r.name) in members
+            and {r.a, r.b} & points
+            and winding_span(r, ctx.plan.rectifiers) > ELV_LIMIT
         )
         if not (powered and supplies):
             continue
