@@ -143,8 +143,9 @@ def test_no_change_offered_touches_the_protective_route_but_its_own_stud(rel):
         for ed in e.candidate.edits:
             lines = range(ed.line, (ed.last or ed.line) + 1)
             if any((ed.file or plan.file, n) in where for n in lines):
-                # the one move allowed (the earth's own stud), and a conductor made thicker
-                allowed = e.candidate.action in ("own-stud", "thicken")
+                # the moves allowed (the earth's own stud; a mains-less source's earth wire to the
+                # box its signal goes to, its metal earthed there), and a conductor made thicker
+                allowed = e.candidate.action in ("own-stud", "earth-wire", "thicken")
                 (moved if allowed else bad).append(e.candidate.title)
     assert bad == []
     # the scan sees the one allowed move where a verdict asks for it

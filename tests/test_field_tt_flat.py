@@ -48,3 +48,25 @@ def test_the_cage_bond_is_given_a_size_that_passes_both_of_its_findings():
         if f.code in ("GC204", "GC223") and f.elements[0] == "cage_bond"
     ]
     assert len(fixes) == 2 and all(fix.startswith("use 0.75 mm²") for fix in fixes)
+
+
+def test_the_turntables_earth_wire_is_offered_the_phono_stages_post_with_its_trade_off():
+    # his first fix for the roar (+15.8 dBV on tt_left): tt_gnd from the amplifier's post to the
+    # phono stage's own post. Alone it leaves the mains loop through the phono stage's leads and
+    # makes ph_left 2.2 dB louder (his variant room-ttfix: -29.0 against -31.2 dBV), so the
+    # advisor names it and says both sides; the turntable, with no mains, stays earthed there
+    from groundcheck.advice.changes import ChangeContext
+    from groundcheck.advice.earth_wires import earth_wire_moves
+    from groundcheck.advice.evaluation import evaluate
+
+    room = FIELD / "room.gplan"
+    plan, text = load(room), room.read_text()
+    before = analyze(plan)
+    found = []
+    earth_wire_moves(ChangeContext(plan, before, text), "GC101", found.append)
+    (cand,) = [c for c in found if c is not None]
+    assert cand.action == "earth-wire" and not cand.touches_protective
+    assert "tt.arm_gnd to phono.tt_post" in cand.edits[0].new
+    ev = evaluate(text, plan, before, cand, Options(), FIELD.resolve(), room.resolve())
+    assert "ph_left hum louder" in ev.rejected and "tt_left would be" in ev.rejected
+    assert ev.hum_change_db["tt_left"] < -30 and 2.0 < ev.hum_change_db["ph_left"] < 2.5

@@ -289,9 +289,10 @@ def _protective_harm(cand: Candidate, plan: Plan, p: Plan, before: Result, after
 
 
 def _left_stud(cand: Candidate, plan: Plan, after: Plan) -> set[str]:
-    """The fastenings of the stud a protective wire left for a stud of its own (GC202's fix): the
-    wire no longer runs through them, and its new stud's own fastening carries it instead."""
-    if cand.action != "own-stud":
+    """The fastenings of the stud a protective wire left for a stud of its own (GC202's fix), or
+    of the post a source's earth wire left for the box its signal goes to: the wire no longer
+    runs through them, and its new stud's or post's own fastening carries it instead."""
+    if cand.action not in ("own-stud", "earth-wire"):
         return set()
     c0, c1 = (
         next((c for c in x.conductors if c.name == cand.element), None) for x in (plan, after)
@@ -372,6 +373,9 @@ def _score(ev: Evaluation, before: Result, after: Result, k0: dict, k1: dict) ->
         # no gain: an outside builder was offered a socket panel 3.8 dB louder for one GC102)
         ch, d = max(louder.items(), key=lambda kv: kv[1])
         ev.rejected = _louder_words(ch, d, ev.hum_change_db[ch], ch in ev.heard_change_db)
+        qch, qd = min(judged.items(), key=lambda kv: kv[1])
+        if qd < -LOUDER_DB:  # what it would gain elsewhere: a step to make with another, not alone
+            ev.rejected += f", though {qch} would be {-qd:.1f} dB quieter"
     elif score <= 1e-9 and safety:
         # a danger or a protective-earth fault cleared (and no danger brought) is never "no
         # gain", whatever hum findings it moves

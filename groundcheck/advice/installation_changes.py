@@ -16,6 +16,7 @@ from ..model.records import DEFAULT_CORD, Plan
 from ..rules.pe_figures import DEVICE_EARTH_LIMIT
 from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, appended, squeeze
+from .earth_wires import earth_wire_moves
 from .edits import Edit
 from .returns import refuse, refused_balanced
 
@@ -35,6 +36,7 @@ def installation_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
         common practice (the candidates' titles say what each does).
     """
     _link_candidates(ctx, answer.reason, add)
+    earth_wire_moves(ctx, answer.reason, add)
     _replug_candidates(ctx, answer.reason, add)
     _loop_replug_candidates(ctx, answer.reason, add)
 
