@@ -122,6 +122,9 @@ class Mains:
     #: origin, in place of ``circuit``: (name, length m, line area m², protective area m²,
     #: flexible) of each conductor in series
     route: tuple[tuple[str, float, float, float, bool], ...] | None = None
+    #: the installation's line and protective resistance between its earthing terminal and the
+    #: outlet over the route's own (1 on a single path; less where cables run in parallel, a ring)
+    route_factors: tuple[float, float] = (1.0, 1.0)
     electrode: float | None = None  # TT, IT: the installation's earth-electrode resistance R_A, Ω
     #: IT: the supply's earth-fault current at a first fault of negligible impedance I_d, A
     first_fault: float | None = None

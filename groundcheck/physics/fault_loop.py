@@ -137,9 +137,11 @@ def _cables(m, temperature: float, prospective: bool = False) -> tuple[float, fl
     cord = cable_resistance(m.cord_length, m.cord_section, True, temperature)
     if m.route is not None:  # a placed device: the installation's conductors to the origin
         route = [(ln, a, pe, flex and not prospective) for _, ln, a, pe, flex in m.route]
+        # the least-resistance path, scaled to the whole wiring's resistance (a ring's two legs)
+        line, pe = m.route_factors
         return (
-            sum(cable_resistance(ln, a, flex, temperature) for ln, a, _, flex in route),
-            sum(cable_resistance(ln, pe, flex, temperature) for ln, _, pe, flex in route),
+            line * sum(cable_resistance(ln, a, flex, temperature) for ln, a, _, flex in route),
+            pe * sum(cable_resistance(ln, pe, flex, temperature) for ln, _, pe, flex in route),
             cord,
         )
     c_len = m.circuit_length if m.circuit_length is not None else DEFAULT_CIRCUIT[0]

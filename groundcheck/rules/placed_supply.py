@@ -30,7 +30,7 @@ from typing import Callable
 import networkx as nx
 
 from ..model.installation import suits, transformer_feeds
-from ..network.building_earth import building_graph, galvanic_isolator, is_cable
+from ..network.building_earth import building_graph, galvanic_isolator, is_cable, route_factors
 from ..model.records import Plan
 from ..physics.safety import adiabatic_k
 from .pe_figures import installation_survival
@@ -214,7 +214,9 @@ def as_placed(plan: Plan, graph: nx.Graph, name: str, m):
     placed = plan.supply.for_device(m)
     route = _route(plan, graph, device.plugged)
     if route is not None:
-        placed = replace(placed, route=route)
+        placed = replace(
+            placed, route=route, route_factors=route_factors(plan, device.plugged, route)
+        )
     if device.cord_length is not None:
         area = device.cord_area or placed.cord_area
         placed = replace(placed, cord_length=device.cord_length, cord_area=area)
