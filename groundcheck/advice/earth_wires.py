@@ -23,9 +23,9 @@ _POSTS = ("terminal", "stud")
 
 def earth_wire_moves(ctx: ChangeContext, reason: str, add) -> None:
     """For each wire between two devices that carries no signal of its own, from a device whose
-    signal links all go to one other device: the wire's far end moved to that device's free
-    ground post (a terminal or stud fastened to its metal with nothing else on it), else its
-    star.
+    signal links all go from it to one other device (written from the source, the signal's way):
+    the wire's far end moved to that device's free ground post (a terminal or stud fastened to its
+    metal with nothing else on it), else its star, else a simple device's chassis.
 
     Parameters:
         ctx: the change context.
@@ -45,12 +45,11 @@ def earth_wire_moves(ctx: ChangeContext, reason: str, add) -> None:
         if None in ends or ends[0] == ends[1]:
             continue
         for src, there, other in ((ends[0], c.b, ends[1]), (ends[1], c.a, ends[0])):
-            dests = {
-                device_of(e)
-                for link in links
-                if src in (device_of(link.a), device_of(link.b))
-                for e in (link.a, link.b)
-            } - {src, None}
+            mine = [k for k in links if src in (device_of(k.a), device_of(k.b))]
+            # a source sends: every link of its is written from it (A to B, the signal's way)
+            if not mine or any(device_of(k.a) != src for k in mine):
+                continue
+            dests = {device_of(k.b) for k in mine} - {src, None}
             if len(dests) != 1 or other in dests:
                 continue
             (dest,) = dests
@@ -73,21 +72,32 @@ def _moved(ctx, c, there: str, post: str, src: str, dest: str, reason: str):
     )
     if cand is None or not cand.touches_protective:
         return cand
-    # the route reaches the source's metal through the wire; a source with no mains of its own
-    # holds nothing that can make it live, and the box it moves to is earthed by its own cord:
+    # the route reaches the source's metal through the wire; a source with no mains of its own (or
+    # a class II one) needs no protective earth, and the box it moves to is earthed by its cord:
     # the wire is a functional earth, and its metal stays earthed (the one other move of a
     # conductor on the protective route, docs/language.md)
-    devices = ctx.plan.index.devices
     own = dict(ctx.plan.device_plans).get(src)
-    if (
-        c.role != PROTECTIVE
-        and devices[src].plugged is None
-        and (own is None or own.mains is None)
-        and devices[dest].plugged is not None
-        and devices[dest].equipment_class == "I"
-    ):
+    mainsless = ctx.plan.index.devices[src].plugged is None and (own is None or own.mains is None)
+    if c.role != PROTECTIVE and (mainsless or _class_ii(ctx, src)) and _earthed_by_cord(ctx, dest):
         return dataclasses.replace(cand, touches_protective=False)
     return cand
+
+
+def _class_ii(ctx, dev: str) -> bool:
+    """Whether a device is class II (its own plan's mains, or a simple device's word)."""
+    own = dict(ctx.plan.device_plans).get(dev)
+    if own is not None and own.mains is not None:
+        return own.mains.equipment_class == "II"
+    return ctx.plan.index.devices[dev].equipment_class == "II"
+
+
+def _earthed_by_cord(ctx, dev: str) -> bool:
+    """Whether a device is plugged in by a cord with a protective conductor (class I)."""
+    own = dict(ctx.plan.device_plans).get(dev)
+    plugged = ctx.plan.index.devices[dev].plugged is not None
+    if own is not None:
+        return plugged and own.mains is not None and own.mains.equipment_class == "I"
+    return plugged and ctx.plan.index.devices[dev].equipment_class == "I"
 
 
 def _post(ctx: ChangeContext, dev: str) -> str | None:
@@ -100,4 +110,7 @@ def _post(ctx: ChangeContext, dev: str) -> str | None:
         at = ctx.at(p.name)
         if at and all(is_fastening(d, ctx.metals) and not ctx.protective(d) for d in at):
             return p.name
-    return next((p.name for p in pts if p.kind == "star"), None)
+    star = next((p.name for p in pts if p.kind == "star"), None)
+    # a simple device's earth post is its chassis itself
+    chassis = f"{dev}.chassis"
+    return star if star is not None or chassis not in ctx.metals else chassis

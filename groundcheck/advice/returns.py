@@ -291,16 +291,24 @@ def lost_circuit(before: Plan, after: Plan) -> list[str]:
         "mains-pole",
     }
 
-    def circuit(comp) -> bool:  # a point of the circuit itself, not a socket or the case's studs
-        return any(n not in metals and kinds.get(n, "junction") not in hardware for n in comp)
+    device_of = before.index.device_of
+
+    def circuit(comp, socket: str) -> bool:
+        # a point of the socket's own box's circuit, not a socket or the case's studs (another
+        # box's circuit, reached by a wire between the boxes, is not the socket's)
+        own = device_of(socket)
+        return any(
+            n not in metals and kinds.get(n, "junction") not in hardware and device_of(n) == own
+            for n in comp
+        )
 
     c0, c1 = _components(_local_graph(before)), _components(_local_graph(after))
     return [
         p.name
         for p in before.points
         if p.kind in SOCKET_KINDS
-        and circuit(c0.get(p.name, ()))
-        and not circuit(c1.get(p.name, ()))
+        and circuit(c0.get(p.name, ()), p.name)
+        and not circuit(c1.get(p.name, ()), p.name)
     ]
 
 
