@@ -284,7 +284,10 @@ def test_compare_fails_a_review_when_a_kept_finding_gets_worse(cli, tmp_path):
     longer.write_text(text.replace(old, old.replace("120 mm", "360 mm")))
     code, out, _ = cli("compare", HEADPHONE, str(longer), "--fail-on", "worse")
     assert code == 1, out
-    assert "kept, and worse: level dbv" in out
+    # the line names its finding and writes the figure with its unit (I·R three times: +9.5 dB)
+    (line,) = [ln for ln in out.splitlines() if "kept, and worse" in ln and "GC102" in ln][:1]
+    assert "kept, and worse (level " in line and " dBV (+9.5 dB)): " in line and "in_gnd" in line
+    assert "dbv" not in line
     doc = json.loads(cli("compare", HEADPHONE, str(longer), "--format", "json")[1])
     worse = [f for f in doc["findings"]["worse"] if f["code"] == "GC102"]
     assert worse and all(f["severity_before"] == "fault" for f in worse)

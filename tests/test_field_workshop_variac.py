@@ -63,7 +63,10 @@ def test_the_advice_keeps_test_instruments_off_the_variac_and_insulates_the_jack
     assert not [t for t in titles if t.startswith("plug") and " at variac" in t]
     assert any(t.startswith("plug scope in at bench_strip") for t in titles)
     taken = [e.candidate.title for e in chosen]
-    assert taken[0].startswith("have the installation's outlets protected by a 30 mA RCD")
+    # his first fix, the head's earth (its core thicker: the short and the long bonding test are
+    # two dangers, with the thin-wire one three), then the installation's 30 mA RCD
+    assert taken[0].startswith("use 1.5 mm²") and "head.pe_core" in taken[0]
+    assert taken[1].startswith("have the installation's outlets protected by a 30 mA RCD")
     assert any(t.startswith("insulate head.in_nut") for t in taken)
     assert not [f for f in final.findings if f.severity == "danger"]
     assert not [

@@ -107,6 +107,25 @@ _WORSE_WHEN_HIGHER = (
 )
 
 
+#: a figure key's unit suffix and how it is written
+_UNIT_OF = (
+    ("_mohm", "mΩ"),
+    ("_ohm", "Ω"),
+    ("_dbv", "dBV"),
+    ("_db", "dB"),
+    ("_v", "V"),
+    ("_s", "s"),
+)
+
+
+def _named(key: str) -> tuple[str, str]:
+    """A figure key as words and its unit: 'level_dbv' -> ('level', 'dBV')."""
+    for suffix, unit in _UNIT_OF:
+        if key.endswith(suffix):
+            return key[: -len(suffix)].replace("_", " "), unit
+    return key.replace("_", " "), ""
+
+
 def _worsened(before, after) -> str:
     """How a finding kept from ``before`` to ``after`` got worse, in words ('' when it did not): a
     severer severity, a level 0.5 dB or more higher, or another figure of
@@ -117,11 +136,12 @@ def _worsened(before, after) -> str:
         x, y = before.figures.get(key), after.figures.get(key)
         if not isinstance(x, (int, float)) or not isinstance(y, (int, float)):
             continue
+        name, unit = _named(key)
         if key.endswith("_db") or key.endswith("_dbv"):
             if y - x >= 0.5:
-                return f"{key.replace('_', ' ')} {x:.1f} → {y:.1f} (+{y - x:.1f})"
+                return f"{name} {x:.1f} → {y:.1f} {unit} (+{y - x:.1f} dB)"
         elif x > 0 and y >= x * 1.05:
-            return f"{key.replace('_', ' ')} {x:.3g} → {y:.3g}"
+            return f"{name} {x:.3g} → {y:.3g} {unit}".rstrip()
     return ""
 
 
@@ -244,10 +264,14 @@ def _outlets(before: Result, after: Result) -> list[dict]:
     (installations)."""
     ob = {p.interconnect: p for p in (before.outlets.pairs if before.outlets else ())}
     oa = {p.interconnect: p for p in (after.outlets.pairs if after.outlets else ())}
+    pair = lambda p: None if p is None else f"{p.a} – {p.b}"  # noqa: E731
     return [
         {
             "interconnect": k,
-            "between": f"{(oa.get(k) or ob[k]).a} – {(oa.get(k) or ob[k]).b}",
+            "between": pair(oa.get(k) or ob[k]),
+            # a device plugged in elsewhere spans other outlets after: each figure with its own
+            "between_before": pair(ob.get(k)),
+            "between_after": pair(oa.get(k)),
             "unplugged_before_v": ob[k].open_total if k in ob else None,
             "unplugged_after_v": oa[k].open_total if k in oa else None,
             "planned_before_v": ob[k].planned_total if k in ob else None,
@@ -257,8 +281,9 @@ def _outlets(before: Result, after: Result) -> list[dict]:
     ]
 
 
-def _f(x, fmt):
-    return readable(x, fmt[2:-1], missing="absent")
+def _u(x, unit: str) -> str:
+    """A figure with its unit, or 'absent' (no unit) when there is none."""
+    return "absent" if x is None else f"{readable(x, '.3g')} {unit}"
 
 
 #: a channel's verdict in words (None: no verdict could be reached, e.g. no listening statement)
@@ -296,7 +321,10 @@ def compare_text(d: dict) -> str:
         for f in fnd[tag]:
             out.append(f"  {tag:<10} {f['code']} {f['severity']:<8} {f['message']}")
     for f in fnd.get("worse", []):
-        out.append(f"  {'worse':<10} {f['code']} {f['severity']:<8} kept, and worse: {f['how']}")
+        out.append(
+            f"  {'worse':<10} {f['code']} {f['severity']:<8} kept, and worse ({f['how']}): "
+            f"{f['message']}"
+        )
     lp = d["loops"]
     out.append(
         f"Loops: {lp['total_before']} → {lp['total_after']} ({len(lp['removed'])} removed, "
@@ -317,16 +345,19 @@ def compare_text(d: dict) -> str:
     for p in d["protective_earth"]:
         out.append(
             f"Protective path to {p['part']}: "
-            f"{_f(p['before_ohm'] and p['before_ohm'] * 1e3, '{:.3g}')} → "
-            f"{_f(p['after_ohm'] and p['after_ohm'] * 1e3, '{:.3g}')} mΩ; touch voltage "
-            f"{_f(p['touch_before_v'], '{:.3g}')} → {_f(p['touch_after_v'], '{:.3g}')} V"
+            f"{_u(p['before_ohm'] and p['before_ohm'] * 1e3, 'mΩ')} → "
+            f"{_u(p['after_ohm'] and p['after_ohm'] * 1e3, 'mΩ')}; touch voltage "
+            f"{_u(p['touch_before_v'], 'V')} → {_u(p['touch_after_v'], 'V')}"
         )
     for o in d.get("outlets", []):
-        mv = lambda v: _f(None if v is None else v * 1e3, "{:.3g}")  # noqa: E731
+        mv = lambda v: _u(None if v is None else v * 1e3, "mV")  # noqa: E731
+        where = o["between"]
+        if o.get("between_before") and o["between_before"] != o.get("between_after"):
+            where = f"{o['between_before']} before, {o['between_after'] or 'none'} after"
         out.append(
-            f"Outlet voltage across {o['interconnect']} ({o['between']}): unplugged "
-            f"{mv(o['unplugged_before_v'])} → {mv(o['unplugged_after_v'])} mV, as planned "
-            f"{mv(o['planned_before_v'])} → {mv(o['planned_after_v'])} mV"
+            f"Outlet voltage across {o['interconnect']} ({where}): unplugged "
+            f"{mv(o['unplugged_before_v'])} → {mv(o['unplugged_after_v'])}, as planned "
+            f"{mv(o['planned_before_v'])} → {mv(o['planned_after_v'])}"
         )
     return "\n".join(out) + "\n"
 

@@ -42,7 +42,7 @@ def identity(f) -> tuple:
     states (``Rule.identity``): a loop is its conductors (in any order); a shared return or a
     contributor its (source, stage) or (element, source) pair, and the channel it reaches when it
     names one; crosstalk its (from, into) pair; a channel's verdict its channel alone; anything
-    else its elements."""
+    else its elements; a bonding test's finding its test too (short or long)."""
     kind = RULES[f.code].identity
     if kind == "first":  # a channel's verdict: the channel, whatever its contributors now are
         key = (f.code, *f.elements[:1])
@@ -51,7 +51,9 @@ def identity(f) -> tuple:
     else:
         key = (f.code, *sorted(f.elements))
     channel = f.figures.get("channel") if f.figures else None
-    return (*key, ("channel", channel)) if channel else key  # one element's share at each output
+    key = (*key, ("channel", channel)) if channel else key  # one element's share at each output
+    test = f.figures.get("test") if f.figures else None
+    return (*key, ("test", test)) if test else key  # one conductor in each bonding test
 
 
 def _local(name: str) -> str:

@@ -192,21 +192,24 @@ def _plug_move(ctx: ChangeContext, dev, there: str, why: str, reason: str, fits)
     ph = ctx.src.find(st, "plugged") if st is not None else None
     if not ph or len(ph) != 2 or not fits(dev, there):
         return None
+    reach = out_of_reach(ctx, dev, st, there)
+    # a plan that places them nowhere cannot say the cord reaches: the title says so
+    unsure = "" if reach is not None else " — if its cord reaches (the plan does not say where)"
     return refuse(
         Candidate(
-            f"plug {dev.name} in at {there}, {why}",
+            f"plug {dev.name} in at {there}, {why}{unsure}",
             reason,
             (ctx.src.replace(st, [(ph[1], there)]),),
             moves_plug=True,
             action="replug",
             element=dev.name,
         ),
-        out_of_reach(ctx, dev, st, there),
+        reach or "",
     )
 
 
-def out_of_reach(ctx: ChangeContext, dev, st, there: str) -> str:
-    """Why ``dev`` cannot be plugged in at outlet ``there`` as drawn (empty when it can, or when
+def out_of_reach(ctx: ChangeContext, dev, st, there: str) -> str | None:
+    """Why ``dev`` cannot be plugged in at outlet ``there`` as drawn (empty when it can, None when
     the plan does not say where both are): its cord is shorter than the straight distance between
     the device's stated position and the outlet's, and a lead to bridge it would be part of its
     fault loop and is not in the plan.
@@ -217,13 +220,13 @@ def out_of_reach(ctx: ChangeContext, dev, st, there: str) -> str:
         st: its statement.
         there: the outlet's name.
     Returns:
-        the refusal, or "".
+        the refusal, "" when the cord reaches, or None when the plan cannot say.
     References:
         none (geometry: a cord reaches no farther than its length).
     """
     outlet = ctx.points.get(there)
     if st is None or outlet is None or outlet.pos is None or not ctx.src.find(st, "at"):
-        return ""
+        return None
     cord = dev.cord_length
     if cord is None:
         own = dict(ctx.plan.device_plans).get(dev.name)

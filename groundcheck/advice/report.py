@@ -77,12 +77,14 @@ def suggestions_document(
     evs: list[Evaluation],
     chosen: list[Evaluation],
     final: Result,
+    notices=None,
 ) -> dict:
-    """The suggestions as plain data (``groundcheck suggest --format json``)."""
+    """The suggestions as plain data (``groundcheck suggest --format json``); ``notices`` those of
+    the plan as written (default: the combined set's)."""
     return {
         "caution": CAUTION,
         "plan": plan.file,
-        "notices": list(final.notices),
+        "notices": list(final.notices if notices is None else notices),
         "suggestions": [
             evaluation_json(e, unified_diff(text, e.candidate.edits, name, _base(plan)))
             for e in evs
@@ -112,8 +114,10 @@ def suggestions_text(
     chosen: list[Evaluation],
     final: Result,
     caution: str,
+    notices=None,
 ) -> str:
-    """The suggestions as the terminal shows them: each with its predicted effect and its diff."""
+    """The suggestions as the terminal shows them: each with its predicted effect and its diff;
+    ``notices`` those of the plan as written (default: the combined set's)."""
     useful = [e for e in evs if not e.rejected]
     rejected = [e for e in evs if e.rejected and e.rejected != NOT_TRIED]
     untried = [e for e in evs if e.rejected == NOT_TRIED]
@@ -123,7 +127,7 @@ def suggestions_text(
         for n in final.not_checked
         if n.location is None
     ]
-    out += [f"Notice: {n}" for n in final.notices]
+    out += [f"Notice: {n}" for n in (final.notices if notices is None else notices)]
     out.append("")
     if not useful:
         out.append("No change found that improves the plan.")

@@ -121,7 +121,8 @@ def cmd_suggest(args) -> int:
             progress=progress,
         )
     render = SUGGESTION_FORMATS[args.format].render
-    sys.stdout.write(render(plan, text, path.name, evs, chosen, final))
+    # the notices of the plan as written (lengths measured on it), not of the combined set
+    sys.stdout.write(render(plan, text, path.name, evs, chosen, final, before.notices))
     if target is not None:
         _write(application(plan, text, evs, chosen, target, args.pick, args.force), path, target)
         if args.pick is not None:

@@ -9,7 +9,7 @@ from ..rules.results import Result
 from .htmlchart import spectrum_svg
 from .htmlparts import cell, inline_svg, plan_line_html
 from .textearth import CLASS_II_WORDS, class_ii_devices
-from .textwords import driver_words, figure_words, opening_words
+from .textwords import driver_words, earth_volts, figure_words, opening_words
 
 __all__ = [
     "findings_section",
@@ -172,8 +172,8 @@ def installation_section(result: Result, parts: list[str], e=escape) -> None:
         for p in o.pairs:
             parts.append(
                 f"<tr><td>{e(p.interconnect)}</td><td>{e(p.a)} – {e(p.b)}</td>"
-                f"<td class=num>{format_si(p.open_total, 'V')}</td>"
-                f"<td class=num>{format_si(p.planned_total, 'V')}</td>"
+                f"<td class=num>{earth_volts(p.open_total)}</td>"
+                f"<td class=num>{earth_volts(p.planned_total)}</td>"
                 f"<td>{e(driver_words(p))}</td></tr>"
             )
         parts.append("</table>")

@@ -10,7 +10,7 @@ from rich.table import Table
 
 from ..core.units import format_si
 from ..rules.results import Result
-from .textwords import TABLE_BONDING, TABLE_OUTLETS, driver_words, escape, number
+from .textwords import TABLE_BONDING, TABLE_OUTLETS, driver_words, earth_volts, escape, number
 
 __all__ = [
     "protective_tables",
@@ -242,8 +242,8 @@ def outlet_table(result: Result, console: Console) -> None:
             t.add_row(
                 escape(p.interconnect),
                 escape(f"{p.a} – {p.b}"),
-                format_si(p.open_total, "V"),
-                format_si(p.planned_total, "V"),
+                earth_volts(p.open_total),
+                earth_volts(p.planned_total),
                 escape(driver_words(p)),
             )
         console.print(t)

@@ -54,9 +54,29 @@ def number(x, unit="", digits=3) -> str:
     return f"{readable(x, f'.{digits}g')}{unit}"
 
 
+#: a voltage between outlets' earths below this (V) is the solve's rounding, shown as such
+VOLTS_FLOOR = 1e-12
+
+
+def earth_volts(v: float) -> str:
+    """A voltage between outlets' earths in words: its SI figure, or 'below 1 pV' for rounding
+    (two outlets of one circuit, say).
+
+    Parameters:
+        v: the voltage, V.
+    Returns:
+        the words.
+    References:
+        none (formatting).
+    """
+    return format_si(v, "V") if v >= VOLTS_FLOOR else "below 1 pV"
+
+
 def driver_words(pair) -> str:
-    """An outlet pair's drivers in words: 'run_rack.induced 12.7 mV; desk.leakage 28.2 µV'."""
-    return "; ".join(f"{n} {format_si(v, 'V')}" for n, _, v in pair.drivers) or "none"
+    """An outlet pair's drivers in words: 'run_rack.induced 12.7 mV; desk.leakage 28.2 µV' (those
+    below 1 pV left out)."""
+    said = [f"{n} {format_si(v, 'V')}" for n, _, v in pair.drivers if v >= VOLTS_FLOOR]
+    return "; ".join(said) or "none"
 
 
 #: unit suffixes of figure keys and how they are shown
