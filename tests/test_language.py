@@ -190,6 +190,26 @@ BAD = [
         "bad.gplan:2:1: error: unknown keyword 'wier' (did you mean 'wire'?)",
     ),
     (
+        "a word of the trade for a point",
+        'plan "x"\npoint s: strip\n',
+        "bad.gplan:2:10: error: point: no point kind 'strip' (a mains strip (a power strip) is an "
+        "'outlet' point, joined to the outlet it is plugged into by a 'wire … protective')",
+    ),
+    (
+        "an RCD's type letter",
+        'plan "x"\nsupply 230 V 50 Hz, rcd 100 mA S\n',
+        "bad.gplan:2:32: error: supply: unexpected 'S' (an RCD is written by its rated residual "
+        "current alone ('rcd 100 mA'); its type is not modelled (a time-delayed one: check its "
+        "delay against the disconnection time by hand))",
+    ),
+    (
+        "a value without its word",
+        'plan "x"\nsupply 230 V 50 Hz\npoint m: earthing-terminal\npoint o: outlet\n'
+        "cable c: m to o, 14 m, 2.5 mm2, round\n",
+        "bad.gplan:5:33: error: cable: 'round' needs its attribute (write 'cores round': how the "
+        "cores lie, one of L-N-PE, L-PE-N, round)",
+    ),
+    (
         "unit",
         'plan "x"\npoint a: stud\npoint b: stud\nwire w: a to b, 10 mmm, 1 mm2\n',
         "bad.gplan:4:20: error: unknown unit 'mmm' (units: mm, cm, m, in; mm2, AWG; ohm, mohm; A, "

@@ -156,6 +156,12 @@ def conductor(stmt: Statement):
                         "twist wires or cores: 'wire NAME: A to B, 0.3 mm2, twisted with OTHER'",
                     )
             _named(r, r.word(), kw, a, b)
+        elif first.value in CABLE_CORES:  # the value without its word: 'round' for 'cores round'
+            raise PlanError(
+                f"{stmt.keyword}: {first.text!r} needs its attribute",
+                first.loc,
+                f"write 'cores {first.text}': how the cores lie, one of {', '.join(CABLE_CORES)}",
+            )
         else:
             raise unknown(
                 stmt, first, attribute_words(kind), _UNKNOWN_HINTS.get(row.impedance, "")

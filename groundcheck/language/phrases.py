@@ -320,8 +320,13 @@ class Reader:
     def finish(self) -> None:
         if self.i < len(self.items):
             it = self.items[self.i]
-            raise PlanError(
-                f"{self.stmt.keyword}: unexpected {it.text!r}",
-                it.loc,
-                "separate attributes with commas",
-            )
+            head = self.items[0]
+            hint = "separate attributes with commas"
+            if head.kind == "word" and head.value == "rcd" and it.kind == "word":
+                # a type letter after the rating (time-delayed S, or A, F, B)
+                hint = (
+                    "an RCD is written by its rated residual current alone ('rcd 100 mA'); its "
+                    "type is not modelled (a time-delayed one: check its delay against the "
+                    "disconnection time by hand)"
+                )
+            raise PlanError(f"{self.stmt.keyword}: unexpected {it.text!r}", it.loc, hint)

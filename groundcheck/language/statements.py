@@ -138,10 +138,22 @@ def point(stmt: Statement):
         elif first.kind == "word" and first.value in POINT_KINDS:
             kw["kind"] = {"center-tap": "centre-tap"}.get(first.value, first.value)
             r.next("")
+        elif str(first.value) in _POINT_WORDS:
+            raise PlanError(
+                f"point: no point kind {first.text!r}", first.loc, _POINT_WORDS[str(first.value)]
+            )
         else:
             raise unknown(stmt, first, POINT_KINDS + ("at", "on"))
         r.finish()
     return make(Point, name=name, location=stmt.loc, **kw), refs
+
+
+#: words of the trade for points the language writes another way
+_POINT_WORDS = {
+    "strip": "a mains strip (a power strip) is an 'outlet' point, joined to the outlet it is "
+    "plugged into by a 'wire … protective'",
+    "socket": "a mains socket is an 'outlet' point; a signal socket a 'sleeve' or 'jack'",
+}
 
 
 def stage(stmt: Statement):
