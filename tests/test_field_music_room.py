@@ -88,3 +88,29 @@ def test_the_long_bonding_test_on_a_ring_and_behind_a_fused_plug():
         120.0,
     )
     assert not [f for f in fused.findings if f.code == "GC223"]
+
+
+def test_compare_keeps_the_short_and_the_long_bonding_test_apart():
+    # his first fix, a 1 mm² lead: the short test's danger is fixed, the long test's fault kept
+    # (the ring's 32 A, no plug fuse stated) — not the short test's danger shown as kept
+    from groundcheck.advice.compare import compare
+
+    d = compare(
+        analyze(load(FIELD / "combo.gplan"), QUICK),
+        analyze(load(FIELD / "variants" / "first-fix" / "combo.gplan"), QUICK),
+    )
+    fixed = [f for f in d["findings"]["fixed"] if f["code"] == "GC223"]
+    kept = [f for f in d["findings"]["kept"] if f["code"] == "GC223"]
+    assert [f["severity"] for f in fixed] == ["danger"] and "short bonding test" in fixed[0][
+        "message"
+    ]
+    assert [f["severity"] for f in kept] == ["fault"] and "long bonding test" in kept[0]["message"]
+
+
+def test_suggest_says_the_lengths_of_the_plan_as_written(cli):
+    # the notice of lengths measured from positions is the written plan's, as check says it, not
+    # the combined set's (which moved ct_lead)
+    _, checked, _ = cli("check", str(AMP), "--advice-budget", "0")
+    _, suggested, _ = cli("suggest", str(AMP))
+    notice = [x for x in checked.splitlines() if "lengths not stated" in x]
+    assert notice and notice[0] in suggested.splitlines()
