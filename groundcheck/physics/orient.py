@@ -34,7 +34,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .pickup import AXES, path_vector, ring_quadrature
+from .pickup import AXES, cross3, hemisphere, path_vector, ring_quadrature
 from .plate_paths import passage_flow, passage_vector
 from .ring_memo import (
     derived_digest,
@@ -90,6 +90,7 @@ class LoopFluxes:
     _digest: bytes | None = None
     _parts: list | None = None  # each loop's points' digest (ring_memo.loop_digest)
     _seen: dict | None = None
+    _in_order: bool | None = None
     #: line frequency -> columns × loops: the loops' complex fluxes at the line from the columns'
     #: (inductive plate spread, :mod:`groundcheck.physics.plate_spread`); None: every line alike
     combine: dict | None = None
@@ -98,7 +99,7 @@ class LoopFluxes:
         """The starting directions (admitted) and the fluxes there, computed once for every
         search."""
         if self._grid is None:
-            cand = self.admit(_grid(GRID))
+            cand = self.admit(hemisphere(GRID))
             self._grid = (cand, self.fluxes(cand))
         return self._grid
 
@@ -133,7 +134,13 @@ class LoopFluxes:
             return LoopFluxes(self.src, loops, self.model, fixed=self.fixed[cols])
         if self.F is not None:
             return LoopFluxes(self.src, loops, self.model, F=self.F[cols])
-        keep = np.isin(self.group, cols)
+        g = self.group
+        if self._in_order is None:  # points kept loop by loop, in column order (as built)
+            self._in_order = bool(np.all(g[1:] >= g[:-1]))
+        if len(cols) == 1 and self._in_order:  # the loop's own run of points, as a view
+            keep = slice(*np.searchsorted(g, [cols[0], cols[0] + 1]))
+        else:
+            keep = np.isin(g, cols)
         new = np.zeros(len(self.loops), dtype=int)
         new[cols] = np.arange(len(cols))
         one = LoopFluxes(
@@ -164,11 +171,9 @@ class LoopFluxes:
         return self._digest
 
     def coarse(self) -> "LoopFluxes":
-        """The same source with a ring's quadrature points merged where they are dense (a plate
-        passage's cells, thousands of them): the points of each cell of a grid, its side an eighth
-        of the source's radius within two radii of the centre and half a radius beyond, become one
-        at their mean with their elements' sum. Only the search for the worst direction reads it;
-        every figure is computed with every point."""
+        """The same source with a ring's dense quadrature points (a plate passage's cells) merged:
+        those of each cell of a grid (side a/8 within 2a of the centre, a/2 beyond) become one at
+        their mean with their elements' sum. Only the worst direction's search reads it."""
         if self.X is None or len(self.X) <= COARSE_POINTS:
             return self
         if self._coarse is None:
@@ -314,26 +319,8 @@ def channel_objective(parts) -> callable:
     return measure
 
 
-def _grid(n: int) -> np.ndarray:
-    """n directions spread evenly over the upper hemisphere (a Fibonacci lattice), with the three
-    axes."""
-    k = np.arange(n) + 0.5
-    z = 1 - k / n
-    r = np.sqrt(1 - z * z)
-    phi = math.pi * (3 - math.sqrt(5)) * k
-    return np.vstack([np.column_stack([r * np.cos(phi), r * np.sin(phi), z]), np.eye(3)])
-
-
 #: relative difference within which an axis counts as reaching the search's maximum
 TIE = 1e-9
-
-
-def _cross(a, b) -> np.ndarray:
-    """a × b of two 3-vectors: the products and differences of numpy's ``cross``, in the same
-    order (so to the same last bit), without its set-up for arrays of vectors."""
-    a0, a1, a2 = float(a[0]), float(a[1]), float(a[2])
-    b0, b1, b2 = float(b[0]), float(b[1]), float(b[2])
-    return np.array([a1 * b2 - a2 * b1, a2 * b0 - a0 * b2, a0 * b1 - a1 * b0])
 
 
 def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
@@ -356,9 +343,9 @@ def worst_axis(model: LoopFluxes, measure) -> tuple[np.ndarray, float]:
     for _ in range(400):
         if step < STEP_MIN:
             break
-        u = _cross(m, (1.0, 0.0, 0.0) if abs(m[0]) < 0.9 else (0.0, 1.0, 0.0))
+        u = cross3(m, (1.0, 0.0, 0.0) if abs(m[0]) < 0.9 else (0.0, 1.0, 0.0))
         u /= np.linalg.norm(u)
-        v = _cross(m, u)
+        v = cross3(m, u)
         trial = m[None, :] + step * np.array([u, -u, v, -v])
         trial = search.admit(trial / np.linalg.norm(trial, axis=1)[:, None])
         tv = measure(search.fluxes(trial))

@@ -41,6 +41,8 @@ __all__ = [
     "ring_fluxes",
     "ring_terms",
     "ring_path_flux",
+    "hemisphere",
+    "cross3",
     "AXES",
 ]
 
@@ -350,3 +352,38 @@ def min_distance(src: FieldSource, polygon) -> float:
     centre = np.array([src.pos[0], src.pos[1], src.height])
     pts = [np.array([p[0], p[1], 0.0]) - centre for p in polygon]
     return min((_segment_distance(p, q) for p, q in zip(pts, pts[1:] + pts[:1])), default=math.inf)
+
+
+def hemisphere(n: int) -> np.ndarray:
+    """n directions spread evenly over the upper hemisphere (a Fibonacci lattice), with the three
+    axes.
+
+    Parameters:
+        n: the lattice's directions.
+    Returns:
+        (n + 3) × 3 unit vectors.
+    References:
+        Á. González, "Measurement of areas on a sphere using Fibonacci and latitude–longitude
+        lattices", Math. Geosci. 42 (2010) 49 (from memory).
+    """
+    k = np.arange(n) + 0.5
+    z = 1 - k / n
+    r = np.sqrt(1 - z * z)
+    phi = math.pi * (3 - math.sqrt(5)) * k
+    return np.vstack([np.column_stack([r * np.cos(phi), r * np.sin(phi), z]), np.eye(3)])
+
+
+def cross3(a, b) -> np.ndarray:
+    """a × b of two 3-vectors: the products and differences of numpy's ``cross``, in the same
+    order (so to the same last bit), without its set-up for arrays of vectors.
+
+    Parameters:
+        a, b: 3-vectors.
+    Returns:
+        their cross product.
+    References:
+        none (the cross product's components).
+    """
+    a0, a1, a2 = float(a[0]), float(a[1]), float(a[2])
+    b0, b1, b2 = float(b[0]), float(b[1]), float(b[2])
+    return np.array([a1 * b2 - a2 * b1, a2 * b0 - a0 * b2, a0 * b1 - a1 * b0])
