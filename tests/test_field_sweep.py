@@ -1,10 +1,12 @@
 """The never-offer lines every verdict of the field corpus shares, checked on every plan of it
 (tests/field/: the plans as written, never edited): no change offered (a suggestion or a step of
-the combined set) touches a conductor on the protective route, except the one move the docs allow
-(a protective wire's end to a stud of its own); none makes a channel louder without clearing a
-danger or a fault; none leaves part of the signal ground unconnected or sends a signal's return
-through the chassis; none is a load error; and every ``fix:`` line of ``check`` is a change the
-advisor accepted or says that none was (issue 29, items 2, 3, 4 and 6).
+the combined set) touches a conductor on the protective route, except the moves the docs allow
+(a protective wire's end to a stud of its own, the other bonds on that stud to a second; a
+mains-less or class II source's earth wire to the box its signal goes to); none makes a channel
+louder without clearing a danger or a fault; none leaves part of the signal ground unconnected
+or sends a signal's return through the chassis; none is a load error; and every ``fix:`` line of
+``check`` is a change the advisor accepted or says that none was (issue 29, items 2, 3, 4 and
+6).
 """
 
 from __future__ import annotations

@@ -70,3 +70,12 @@ def test_the_turntables_earth_wire_is_offered_the_phono_stages_post_with_its_tra
     ev = evaluate(text, plan, before, cand, Options(), FIELD.resolve(), room.resolve())
     assert "ph_left hum louder" in ev.rejected and "tt_left would be" in ev.rejected
     assert ev.hum_change_db["tt_left"] < -30 and 2.0 < ev.hum_change_db["ph_left"] < 2.5
+
+
+def test_the_earths_own_stud_takes_the_cage_bond_off_the_transformer_bolt_too():
+    # his first fix: the earth lead on a stud of its own, and the cage bonded from another (the
+    # combined set had left the cage bond alone on the transformer's foot bolt, a GC202 of its own)
+    r, evs = suggest(load(AMP), AMP.read_text(), QUICK, FIELD.resolve(), AMP.resolve())
+    (own,) = [e for e in evs if e.candidate.action == "own-stud"]
+    assert not own.rejected and "cage_bond to a second stud of its own" in own.candidate.title
+    assert not [f for f in own.result.findings if f.code == "GC202"]

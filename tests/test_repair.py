@@ -410,10 +410,15 @@ def test_protective_fixes_are_proposed_and_applied(tmp_path):
     assert "GC202" not in _codes_after(useful["GC202"])
     assert all(p.path_resistance < 0.1 for p in useful["GC202"].result.safety.parts)
     # panel_lead is protective by topology: never removed, whatever else is tried (only made
-    # thicker: to the line conductor's size, GC204, or to what passes the bonding test, GC223)
+    # thicker: to the line conductor's size, GC204, or to what passes the bonding test, GC223; or,
+    # with the earth given its own stud, moved off the shared stud to a second one of its own)
     assert all(
-        "panel_lead" not in e.candidate.title or e.candidate.action == "thicken" for e in evs
+        "panel_lead" not in e.candidate.title or e.candidate.action in ("thicken", "own-stud")
+        for e in evs
     )
+    moved = useful["GC202"]
+    assert "panel_lead to a second stud of its own" in moved.candidate.title
+    assert "panel_lead" in {c.name for c in moved.result.plan.conductors}
 
 
 @pytest.mark.parametrize("path", [DUAL, HEADPHONE], ids=["dual", "headphone"])

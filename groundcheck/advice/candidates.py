@@ -25,7 +25,8 @@ from .changes import Answer, Candidate, ChangeContext, device_note
 from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
 from .loop_changes import loop_candidates, second_bond, terminate_shield
 from .ht_bond import ht_return_bond
-from .protective_changes import bonding_wire, own_stud
+from .own_stud import own_stud
+from .protective_changes import bonding_wire
 from .returns import refuse
 from .thickening import thicker
 from .routing_changes import (
