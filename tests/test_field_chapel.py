@@ -58,3 +58,15 @@ def test_his_fused_plug_lets_a_1_mm2_earth_lead_pass():
         (26.0, 120.0)
     ]
     assert not [f for f in fused.findings if f.code == "GC223" and "1 mm²" in f.message]
+
+
+def test_the_vestrys_hum_fix_says_what_opens_the_buildings_loop():
+    # his report: "fix … vestry_radial" named a building cable with no verb; the current is the
+    # radial's load-induced EMF round the loop through the installation
+    r = analyze(load(CHAPEL), Options())
+    (f,) = [f for f in r.findings if f.code == "GC303" and f.elements[0] == "vestry"]
+    assert f.fix.startswith("fix the main contributors first: vestry_radial")
+    assert "plug the devices the loop joins into one outlet or strip" in f.fix
+    # and no contributor of a rounded-away share is named
+    (g,) = [f for f in r.findings if f.code == "GC303" and f.elements[0] == "pa_amp.main"]
+    assert ", 0 %)" not in g.fix

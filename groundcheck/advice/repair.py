@@ -311,6 +311,7 @@ def greedy(
     chosen: list[Evaluation] = []
     edits: list = []
     useful, waiting = _queue(evs)
+    requeued: set = set()
     for i, e in _growing(useful):
         if len(chosen) >= MAX_STEPS or not current.findings or not clock.fits():
             break
@@ -326,12 +327,15 @@ def greedy(
         if progress is not None:
             progress(i + 1, i + 1 + clock.reachable(len(useful) - i - 1))
         if ev.rejected or ev.score <= 1e-9:
+            if ev.rejected == MORE_PE_CURRENT and id(e) in requeued:
+                waiting.append(e)  # another return may still run there: tried after the next move
             continue
         _take_merged(chosen, edits, kept)
         ev.candidate = dataclasses.replace(e.candidate, edits=own)
         chosen.append(ev)
         if waiting and e.candidate.action in RETURN_MOVES:
             ids = {id(x) for x in waiting}
+            requeued |= ids
             useful[i + 1 :] = waiting + [x for x in useful[i + 1 :] if id(x) not in ids]
             waiting = []
         edits = list(kept) + list(own)

@@ -46,8 +46,7 @@ def rule_hum(s: Solved) -> list[Finding]:
         return []
     plan = s.plan
     runs = series_runs(s.ctx)
-    # currents that reach a stage only round a loop through the installation: leakage, and the EMF
-    # of loaded cables
+    # currents reaching a stage only round a loop through the installation: leakage, cables' EMF
     leakage = plan.index.leakage
     loop_driven = (
         leakage
@@ -62,7 +61,7 @@ def rule_hum(s: Solved) -> list[Finding]:
         loc = stages_by_ch[ch][0].location
         out += _contributors(s, ch, _by_run(h.contributors, runs), loc, loop_driven)
         if h.audible:
-            out.append(_audible(ch, h, loc))
+            out.append(_audible(ch, h, loc, loop_driven))
     out += _crosstalk(s, stages_by_ch)
     return out
 
@@ -302,12 +301,19 @@ def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
     return f"move the {source} current off {element}: give it a return path of its own"
 
 
-def _audible(ch: str, h, loc) -> Finding:
+def _audible(ch: str, h, loc, loop_driven=frozenset()) -> Finding:
     """GC303: a channel whose hum is above the threshold of hearing, naming its three main
-    contributors."""
+    contributors (the first, when it comes round the installation, with what opens its loop)."""
     top: list[str] = []
     for c in h.contributors:
+        if top and abs(c.share) < 0.5:
+            continue  # a share that rounds to nothing names no conductor
         label = f"{c.element} ({c.source}, {c.share:.0f} %)"
+        if c.source in loop_driven and not top:
+            label += (
+                ": its current comes round a loop through the installation — plug the devices "
+                "the loop joins into one outlet or strip, or use a balanced link"
+            )
         if c.kind == "supply":  # a stage fed from a supply: its ripple, not a conductor
             label = (
                 f"the ripple of {c.source} fed to stage {c.element} ({c.share:.0f} "
