@@ -337,39 +337,12 @@ def test_loop_through_a_plate_follows_the_spread_current():
     each stud one node, scipy's sparse solver), the edge currents of 1 A from stud to stud, Σ
     I·A·dl over the edges plus ∫A·dl along the wire by a fine midpoint sum; the straight chord
     between the studs (the old outline) is visibly off."""
-    import scipy.sparse as sp
-    import scipy.sparse.linalg as spla
     from groundcheck.analysis import analyze
+    from sheet_reference import sheet_spread
 
-    W, D, h = 0.2, 0.12, 0.001
+    W, D = 0.2, 0.12
     s1, s2, src = (0.03, 0.03), (0.17, 0.03), (0.10, 0.07)
-    nx, ny = int(round(W / h)) + 1, int(round(D / h)) + 1
-    idx = np.arange(nx * ny).reshape(ny, nx)
-    a = np.concatenate([idx[:, :-1].ravel(), idx[:-1, :].ravel()])
-    b = np.concatenate([idx[:, 1:].ravel(), idx[1:, :].ravel()])
-    xs, ys = np.meshgrid(np.linspace(0, W, nx), np.linspace(0, D, ny))
-    X, Y = xs.ravel(), ys.ravel()
-    # unit sheet conductance; boundary edges own half a cell (the same law as any finite-volume
-    # grid)
-    wy = np.where((Y[a] == Y[b]) & ((Y[a] == 0) | (Y[a] == D)), 0.5, 1.0)
-    wx = np.where((X[a] == X[b]) & ((X[a] == 0) | (X[a] == W)), 0.5, 1.0)
-    g = wy * wx
-    n = nx * ny
-    G = sp.coo_matrix(
-        (
-            np.concatenate([g, g, -g, -g]),
-            (np.concatenate([a, b, a, b]), np.concatenate([a, b, b, a])),
-        ),
-        shape=(n, n),
-    ).tocsc()
-    k1 = int(np.argmin((X - s1[0]) ** 2 + (Y - s1[1]) ** 2))
-    k2 = int(np.argmin((X - s2[0]) ** 2 + (Y - s2[1]) ** 2))
-    keep = np.array([k for k in range(n) if k != k1])
-    rhs = np.zeros(n)
-    rhs[k2] = -1.0  # 1 A enters at stud 1 (the reference) and leaves at stud 2
-    phi = np.zeros(n)
-    phi[keep] = spla.spsolve(G[keep][:, keep], rhs[keep])
-    I = g * (phi[a] - phi[b])  # from a to b
+    X, Y, a, b, I = sheet_spread(W, D, s1, s2)  # from a to b
     K = 40e-6 * 0.05**3
 
     def a_dot(px, py, dx, dy):  # A·dl of a z-axis dipole at src, in the deck's plane

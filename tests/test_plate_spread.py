@@ -25,6 +25,7 @@ import pytest
 from groundcheck.analysis import analyze
 from groundcheck.language.loader import load_text
 from groundcheck.rules.results import Options
+from sheet_reference import sheet_spread
 
 W, D = 0.2, 0.12
 S1, S2, SRC = (0.03, 0.03), (0.17, 0.03), (0.10, 0.07)
@@ -56,35 +57,7 @@ def _line(pts) -> float:
 
 def _spread_flux() -> float:
     """Σ I·A·dl over a 1 mm finite-volume grid of the deck, 1 A in at stud 1, out at stud 2."""
-    import scipy.sparse as sp
-    import scipy.sparse.linalg as spla
-
-    h = 0.001
-    nx, ny = int(round(W / h)) + 1, int(round(D / h)) + 1
-    idx = np.arange(nx * ny).reshape(ny, nx)
-    a = np.concatenate([idx[:, :-1].ravel(), idx[:-1, :].ravel()])
-    b = np.concatenate([idx[:, 1:].ravel(), idx[1:, :].ravel()])
-    xs, ys = np.meshgrid(np.linspace(0, W, nx), np.linspace(0, D, ny))
-    X, Y = xs.ravel(), ys.ravel()
-    wy = np.where((Y[a] == Y[b]) & ((Y[a] == 0) | (Y[a] == D)), 0.5, 1.0)
-    wx = np.where((X[a] == X[b]) & ((X[a] == 0) | (X[a] == W)), 0.5, 1.0)
-    g = wy * wx
-    n = nx * ny
-    G = sp.coo_matrix(
-        (
-            np.concatenate([g, g, -g, -g]),
-            (np.concatenate([a, b, a, b]), np.concatenate([a, b, b, a])),
-        ),
-        shape=(n, n),
-    ).tocsc()
-    k1 = int(np.argmin((X - S1[0]) ** 2 + (Y - S1[1]) ** 2))
-    k2 = int(np.argmin((X - S2[0]) ** 2 + (Y - S2[1]) ** 2))
-    keep = np.array([k for k in range(n) if k != k1])
-    rhs = np.zeros(n)
-    rhs[k2] = -1.0
-    phi = np.zeros(n)
-    phi[keep] = spla.spsolve(G[keep][:, keep], rhs[keep])
-    current = g * (phi[a] - phi[b])
+    X, Y, a, b, current = sheet_spread(W, D, S1, S2)
     return float(
         np.sum(current * _a_dot((X[a] + X[b]) / 2, (Y[a] + Y[b]) / 2, X[b] - X[a], Y[b] - Y[a]))
     )
