@@ -203,6 +203,14 @@ BAD = [
         "delay against the disconnection time by hand))",
     ),
     (
+        "a supply's protection on a cable",
+        'plan "x"\nsupply 230 V 50 Hz\npoint m: earthing-terminal\npoint o: outlet\n'
+        "cable c: m to o, 14 m, 2.5 mm2, breaker 16 A\n",
+        "bad.gplan:5:33: error: cable: a breaker is no attribute of a cable (the installation's "
+        "breaker is written on its 'supply' statement (one for every outlet), e.g. 'supply 230 V "
+        "50 Hz, breaker 16 A B, rcd 30 mA')",
+    ),
+    (
         "a value without its word",
         'plan "x"\nsupply 230 V 50 Hz\npoint m: earthing-terminal\npoint o: outlet\n'
         "cable c: m to o, 14 m, 2.5 mm2, round\n",

@@ -282,8 +282,11 @@ def _outlets(before: Result, after: Result) -> list[dict]:
 
 
 def _u(x, unit: str) -> str:
-    """A figure with its unit, or 'absent' (no unit) when there is none."""
-    return "absent" if x is None else f"{readable(x, '.3g')} {unit}"
+    """A figure with its unit (three significant figures, never an exponent from 1 on: 8000,
+    not 8e+03), or 'absent' (no unit) when there is none."""
+    if x is None:
+        return "absent"
+    return f"{readable(x, '.0f' if abs(x) >= 1000 else '.3g')} {unit}"
 
 
 #: a channel's verdict in words (None: no verdict could be reached, e.g. no listening statement)

@@ -156,6 +156,13 @@ def conductor(stmt: Statement):
                         "twist wires or cores: 'wire NAME: A to B, 0.3 mm2, twisted with OTHER'",
                     )
             _named(r, r.word(), kw, a, b)
+        elif first.value in _SUPPLY_WORDS:  # protection belongs to the supply, not a cable
+            raise PlanError(
+                f"{stmt.keyword}: a {first.text} is no attribute of a {kind}",
+                first.loc,
+                f"the installation's {first.text} is written on its 'supply' statement (one for "
+                "every outlet), e.g. 'supply 230 V 50 Hz, breaker 16 A B, rcd 30 mA'",
+            )
         elif first.value in CABLE_CORES:  # the value without its word: 'round' for 'cores round'
             raise PlanError(
                 f"{stmt.keyword}: {first.text!r} needs its attribute",
@@ -207,6 +214,9 @@ def _awg(r: Reader, first, kw: dict) -> None:
 
 #: what a kind that reads its values as bare quantities says beside an unknown attribute
 _UNKNOWN_HINTS = {"lift": "a lift's resistor and capacitor are quantities: ', 10 ohm, 47 nF'"}
+
+#: protective devices, which a plan states on its supply, not on a conductor
+_SUPPLY_WORDS = ("breaker", "rcd")
 
 
 def attribute_words(kind: str) -> tuple[str, ...]:
