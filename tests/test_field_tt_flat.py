@@ -79,3 +79,18 @@ def test_the_earths_own_stud_takes_the_cage_bond_off_the_transformer_bolt_too():
     (own,) = [e for e in evs if e.candidate.action == "own-stud"]
     assert not own.rejected and "cage_bond to a second stud of its own" in own.candidate.title
     assert not [f for f in own.result.findings if f.code == "GC202"]
+
+
+def test_compare_of_the_room_gives_each_devices_earth_pin_path():
+    # an installation's compare shows each placed device's earth-pin path and its worst part's
+    # touch voltage before and after (a two-board studio's builder saw none)
+    from groundcheck.advice.compare import compare
+
+    d = compare(
+        analyze(load(FIELD / "room.gplan"), QUICK),
+        analyze(load(FIELD / "variants" / "room-fix.gplan"), QUICK),
+    )
+    rows = {r["part"]: r for r in d["protective_earth"]}
+    assert {"amp's earth pin", "phono's earth pin"} <= set(rows)
+    amp = rows["amp's earth pin"]
+    assert amp["before_ohm"] > 0 and amp["touch_before_v"] == pytest.approx(99.0, rel=0.01)

@@ -244,10 +244,12 @@ def _channel(before: Result, after: Result, ch: str) -> dict:
 
 
 def _protective(before: Result, after: Result) -> list[dict]:
-    """Each part's protective path and touch voltage, before and after."""
+    """Each part's protective path and touch voltage, before and after; in an installation each
+    placed device's earth pin's path to the main earthing terminal too, with its worst part's touch
+    voltage on the installation's supply."""
     pb = {p.part: p for p in (before.safety.parts if before.safety else ())}
     pa = {p.part: p for p in (after.safety.parts if after.safety else ())}
-    return [
+    rows = [
         {
             "part": k,
             "before_ohm": pb[k].path_resistance if k in pb else None,
@@ -256,6 +258,19 @@ def _protective(before: Result, after: Result) -> list[dict]:
             "touch_after_v": pa[k].touch_voltage if k in pa else None,
         }
         for k in sorted(set(pb) | set(pa))
+    ]
+    db = {d.device: d for d in before.device_earths or ()}
+    da = {d.device: d for d in after.device_earths or ()}
+    touch = lambda d: getattr(d.fault, "touch_voltage", None) if d else None  # noqa: E731
+    return rows + [
+        {
+            "part": f"{k}'s earth pin",
+            "before_ohm": db[k].resistance if k in db else None,
+            "after_ohm": da[k].resistance if k in da else None,
+            "touch_before_v": touch(db.get(k)),
+            "touch_after_v": touch(da.get(k)),
+        }
+        for k in sorted(set(db) | set(da))
     ]
 
 
