@@ -144,7 +144,7 @@ def suggestions_text(
             + "; ".join(e.candidate.title for e in untried[:3])
         )
         out.append("")
-    out += _combined_lines(chosen, final)
+    out += _combined_lines(chosen, final, {e.candidate.title for e in rejected})
     return "\n".join(out) + "\n"
 
 
@@ -169,14 +169,24 @@ def _suggestion_lines(i: int, e: Evaluation, plan: Plan, text: str, name: str) -
     return out
 
 
-def _combined_lines(chosen: list[Evaluation], final: Result) -> list[str]:
-    """The combined set: its changes, the findings it leaves, the verdict and hum after."""
+def _combined_lines(chosen: list[Evaluation], final: Result, alone=frozenset()) -> list[str]:
+    """The combined set: its changes (those rejected when tried alone, ``alone``, marked: kept
+    after the changes before them), the findings it leaves, the verdict and hum after."""
     out = []
     n = len(chosen)
+    said = [
+        e.candidate.title
+        + (
+            " (rejected alone above; it helps after the changes before it)"
+            if e.candidate.title in alone
+            else ""
+        )
+        for e in chosen
+    ]
     out.append(
         f"Combined (best first, each re-checked on the plan as changed so far): {n} change"
         + ("" if n == 1 else "s")
-        + (": " + "; ".join(e.candidate.title for e in chosen) if chosen else "")
+        + (": " + "; ".join(said) if chosen else "")
     )
     left = [f"{f.code} {f.severity}" for f in final.findings]
     partial = any(n.location is None for n in final.not_checked)
