@@ -3,7 +3,7 @@
 import pytest
 
 from groundcheck import PlanErrors, load, load_text
-from groundcheck.analysis import analyze
+from groundcheck.analysis import Options, analyze
 from groundcheck.rules.rule_families import PROTECTIVE_EARTH
 
 from helpers import ROOT
@@ -310,3 +310,43 @@ def test_leakage_currents_add_in_phase():
     more = "current motor: a to b, 4 mA 50 Hz, load\n"
     # 25 mV
     assert _lead_volts(text + more, 50.0) == pytest.approx((0.015**2 + 0.02**2) ** 0.5, rel=1e-6)
+
+
+def test_a_box_fed_by_an_umbilical_needs_the_supply_boxs_protective_earth(tmp_path):
+    # GC233: an amplifier box with no mains of its own, fed by cores from a class I supply box; its
+    # touchable case is bonded by a protective core (1.2 m of 0.5 mm²: 1.7241e-8 × 1.2 / 0.5e-6 =
+    # 41.4 mΩ at 20 °C, IEC 60028, plus the default 0.5 mΩ contacts: within 0.1 Ω), and without
+    # it reaches the supply box only through the 0 V core (a return: no protective earth)
+    psu = (
+        'plan "psu"\nmains 230 V 50 Hz, fuse 1 A slow, breaking high, line-conductor 0.5 mm2\n'
+        "metal case: steel 1 mm, 200 x 100 mm, touchable\npoint pe_stud: stud\n"
+        "wire pe_lead: mains.pe to pe_stud, 30 mm, 0.75 mm2, protective\n"
+        "bolt pe_nut: pe_stud to case, protective\npoint ub_pe: stud\n"
+        "bolt ub_pe_nut: ub_pe to case, protective\npoint zero: junction\n"
+        "point zero_stud: stud\nbolt zero_nut: zero_stud to case\n"
+        "wire zero_bond: zero to zero_stud, 20 mm, 0.5 mm2, bond\n"
+    )
+    amp = (
+        'plan "amp"\nmetal chassis: aluminium 2 mm, 300 x 200 mm, touchable\n'
+        "point ub_pe: stud\nbolt ub_pe_nut: ub_pe to chassis, protective\n"
+        "point star: star\npoint ub_0v: terminal\n"
+        "wire w0: ub_0v to star, 100 mm, 0.5 mm2, return\npoint star_stud: stud\n"
+        "bolt star_nut: star_stud to chassis\n"
+        "wire star_bond: star to star_stud, 10 mm, 0.5 mm2, bond\n"
+    )
+    room = (
+        'plan "room"\nsupply 230 V 50 Hz, system TN-S\npoint met: earthing-terminal\n'
+        "point wall: outlet\ncable run: met to wall, 10 m, 2.5 mm2\n"
+        'device psu: "psu.gplan", plugged wall\ndevice amp: "amp.gplan", at 300,0\n'
+        "core ub_0v: psu.zero to amp.ub_0v, in ub, 1.2 m, 0.5 mm2, return\n"
+        "core ub_pe: psu.ub_pe to amp.ub_pe, in ub, 1.2 m, 0.5 mm2, protective\n"
+    )
+    (tmp_path / "psu.gplan").write_text(psu)
+    (tmp_path / "amp.gplan").write_text(amp)
+    (tmp_path / "room.gplan").write_text(room)
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    assert not [f for f in r.findings if f.code == "GC233"]
+    (tmp_path / "room.gplan").write_text(room.replace("core ub_pe:", "# core ub_pe:"))
+    r = analyze(load(tmp_path / "room.gplan"), Options(hum=False))
+    (f,) = [f for f in r.findings if f.code == "GC233"]
+    assert f.severity == "danger" and f.elements == ("amp.chassis", "psu")

@@ -156,21 +156,8 @@ def conductor(stmt: Statement):
                         "twist wires or cores: 'wire NAME: A to B, 0.3 mm2, twisted with OTHER'",
                     )
             _named(r, r.word(), kw, a, b)
-        elif first.value in _SUPPLY_WORDS:  # protection belongs to the supply, not a cable
-            raise PlanError(
-                f"{stmt.keyword}: a {first.text} is no attribute of a {kind}",
-                first.loc,
-                f"the installation's {first.text} is written on its 'supply' statement (one for "
-                "every outlet), e.g. 'supply 230 V 50 Hz, breaker 16 A B, rcd 30 mA'",
-            )
-        elif first.value in CABLE_CORES:  # the value without its word: 'round' for 'cores round'
-            raise PlanError(
-                f"{stmt.keyword}: {first.text!r} needs its attribute",
-                first.loc,
-                f"write 'cores {first.text}': how the cores lie, one of {', '.join(CABLE_CORES)}",
-            )
         else:
-            raise unknown(
+            raise _misplaced(stmt, first, kind) or unknown(
                 stmt, first, attribute_words(kind), _UNKNOWN_HINTS.get(row.impedance, "")
             )
         r.finish()
@@ -217,6 +204,25 @@ _UNKNOWN_HINTS = {"lift": "a lift's resistor and capacitor are quantities: ', 10
 
 #: protective devices, which a plan states on its supply, not on a conductor
 _SUPPLY_WORDS = ("breaker", "rcd")
+
+
+def _misplaced(stmt: Statement, first, kind: str) -> PlanError | None:
+    """The error for a word that belongs elsewhere: a supply's protective device written on a
+    conductor, or a value written without its attribute ('round' for 'cores round')."""
+    if first.value in _SUPPLY_WORDS:  # protection belongs to the supply, not a cable
+        return PlanError(
+            f"{stmt.keyword}: a {first.text} is no attribute of a {kind}",
+            first.loc,
+            f"the installation's {first.text} is written on its 'supply' statement (one for "
+            "every outlet), e.g. 'supply 230 V 50 Hz, breaker 16 A B, rcd 30 mA'",
+        )
+    if first.value in CABLE_CORES:
+        return PlanError(
+            f"{stmt.keyword}: {first.text!r} needs its attribute",
+            first.loc,
+            f"write 'cores {first.text}': how the cores lie, one of {', '.join(CABLE_CORES)}",
+        )
+    return None
 
 
 def attribute_words(kind: str) -> tuple[str, ...]:

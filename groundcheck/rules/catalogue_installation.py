@@ -211,4 +211,20 @@ INSTALLATION_ENTRIES: list[Rule] = [
         "IEC 60364-5-54 (protective conductors), common practice",
         actions=("earthed-outlet",),
     ),
+    entry(
+        "GC233",
+        "umbilical-box-earth",
+        PROTECTIVE_EARTH,
+        "danger",
+        "In an installation, touchable metal of a placed box with no mains of its own that an "
+        "umbilical's cores join to a class I box with one (an amplifier and its outboard "
+        "supply): whether each part is bonded within 0.1 Ω to that box's protective earth.",
+        "The box takes its high tension and heaters by the umbilical and has no protective earth "
+        "of its own: a core chafing against its case, or a failed valve, makes the case live "
+        "unless it is bonded to the supply box's protective earth.",
+        "Bond the box's case to the supply box's protective earth by a protective core of the "
+        "umbilical, landed on a stud of its own with a toothed washer on bare metal at each end.",
+        "common practice; IEC 61140 (a part that can become live under a single fault), from "
+        "memory; IEC 60065 15.2 (0.1 Ω, REFERENCE.md)",
+    ),
 ]

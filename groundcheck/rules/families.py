@@ -26,6 +26,7 @@ from . import (  # noqa: F401 - imported for their registrations
     stated_words,
     topology,
     transformers,
+    umbilical_box,
 )
 
 __all__: list[str] = []
