@@ -105,7 +105,7 @@ NOT_SWEPT = {
 # plans but tt-flat-100v's 21 s room passed the whole sweep when they joined the corpus))
 
 
-#: the plans swept in the suite: those of every second folder (helpers.corpus_sample; all of
+#: the plans swept in the suite: those of every sixth folder (helpers.corpus_sample; all of
 #: them with GROUNDCHECK_WHOLE_CORPUS=1, benchmarks/README.md)
 SWEPT = [str(p.relative_to(FIELD)) for p in corpus_sample([FIELD / rel for rel in PLANS])]
 
