@@ -1,9 +1,9 @@
 """An outside builder's listening room on a 32 A ring with fused plugs
 (tests/field/listening-room-ring, copied as written, his variants and probes in variants/): a valve
 line preamp of his own in two boxes joined by an umbilical (the supply box carries the mains; the
-audio box's case is earthed only by the umbilical's 0.3 mm² braid), a valve phono stage of his own, a turntable
-whose earth wire runs to the preamp, a bought power amplifier, a class II streamer and a
-subwoofer across the room.
+audio box's case is earthed only by the umbilical's 0.3 mm² braid), a valve phono stage of his
+own, a turntable whose earth wire runs to the preamp, a bought power amplifier, a class II
+streamer and a subwoofer across the room.
 
 His verdict: the audio box's case needs a real protective bond to the supply box (the braid is
 thin, and the HT return shares it); never lift an earth; his probe with the braid deleted left a
