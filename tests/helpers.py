@@ -47,13 +47,13 @@ def analysed(path):
 
 
 #: the checks that sweep the field corpus (the report's tables, the drawings' overlaps, the
-#: advisor's promises) read every sixth folder in name order in the suite, and every folder with
+#: advisor's promises) read every eighth folder in name order in the suite, and every folder with
 #: GROUNDCHECK_WHOLE_CORPUS=1 (benchmarks/README.md), which also runs the slower variants of a few
 #: checks (every example in a browser, Ctrl-C as well as SIGTERM to a run): each plan costs 1-3 s
 #: of analysis and drawing, the corpus grows with every outside build, and each folder's own tests
 #: read its plans whatever the sample
 WHOLE_CORPUS = os.environ.get("GROUNDCHECK_WHOLE_CORPUS") == "1"
-CORPUS_STEP = 6
+CORPUS_STEP = 8
 
 
 def corpus_sample(paths) -> list[Path]:

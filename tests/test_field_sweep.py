@@ -107,7 +107,7 @@ NOT_SWEPT = {
 # listening-room-ring (tests/test_field_listening_ring.py))
 
 
-#: the plans swept in the suite: those of every sixth folder (helpers.corpus_sample; all of
+#: the plans swept in the suite: those of every eighth folder (helpers.corpus_sample; all of
 #: them with GROUNDCHECK_WHOLE_CORPUS=1, benchmarks/README.md)
 SWEPT = [str(p.relative_to(FIELD)) for p in corpus_sample([FIELD / rel for rel in PLANS])]
 
