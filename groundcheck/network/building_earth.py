@@ -7,6 +7,8 @@ earth paths (:mod:`groundcheck.physics.device_earth`, GC215)."""
 
 from __future__ import annotations
 
+import functools
+
 import networkx as nx
 import numpy as np
 
@@ -44,13 +46,14 @@ def _wiring(plan: Plan) -> list:
     return out
 
 
-def route_factors(plan: Plan, outlet: str, route) -> tuple[float, float]:
+def route_factors(graph: nx.Graph, outlet: str, route) -> tuple[float, float]:
     """The installation's line and protective resistance between its earthing terminals (joined)
     and ``outlet`` over the same along ``route`` alone: each conductor's L/A, every one of them in
     the network (a ring's two legs, written as two cables between the same points, in parallel).
+    The wiring's two networks are factorised once per graph and each outlet solved once.
 
     Parameters:
-        plan: the installation.
+        graph: :func:`building_graph` of the installation.
         outlet: the plug point.
         route: the least-resistance path's (name, length, line area, protective area, flexible).
     Returns:
@@ -58,34 +61,58 @@ def route_factors(plan: Plan, outlet: str, route) -> tuple[float, float]:
     References:
         Kirchhoff's laws (a nodal solve of the wiring's conductances).
     """
-    wiring = _wiring(plan)
-    mets = {p.name for p in plan.points if p.kind == "earthing-terminal"}
-    nodes = sorted({x for c in wiring for x in (c.a, c.b)} - mets)
-    if outlet not in nodes or not route:
-        return 1.0, 1.0
-    at = {n: i for i, n in enumerate(nodes)}
+    solved = graph.graph["outlets"]
+    if outlet not in solved:
+        solved[outlet] = _effective(graph.graph["solver"](), outlet)
     out = []
-    for col in (3, 2):  # the protective cores, then the line cores
+    for col, eff in zip((2, 3), solved[outlet]):  # the line cores, then the protective cores
         path = sum(r[1] / r[col] for r in route if r[col])
-        G = np.zeros((len(nodes), len(nodes)))
+        out.append(min(1.0, eff / path) if path > 0 and eff and eff > 0 else 1.0)
+    return out[0], out[1]
+
+
+def _effective(solver, outlet: str) -> tuple[float | None, float | None]:
+    """The outlet's L/A to the earthing terminals over the line and the protective network."""
+    at, lus = solver
+    if outlet not in at:
+        return None, None
+    out = []
+    for lu in lus:
+        J = np.zeros(len(at))
+        J[at[outlet]] = 1.0
+        out.append(float(lu.solve(J)[at[outlet]]))
+    return out[0], out[1]
+
+
+def _solver(plan: Plan, wiring: list):
+    """The wiring's nodes that reach an earthing terminal (the terminals joined as the reference)
+    and the sparse LU of its line and its protective network's conductances (L/A's inverse)."""
+    import scipy.sparse as sp
+    import scipy.sparse.linalg as spla
+
+    mets = {p.name for p in plan.points if p.kind == "earthing-terminal"}
+    reach = nx.Graph((c.a, c.b) for c in wiring)
+    nodes = sorted(
+        {n for comp in nx.connected_components(reach) if comp & mets for n in comp} - mets
+    )
+    at = {n: i for i, n in enumerate(nodes)}
+    lus = []
+    for line in (True, False):
+        rows, cols, vals = [], [], []
         for c in wiring:
-            area = c.area if col == 3 or galvanic_isolator(c) else (c.line_area or c.area)
+            area = c.area if not line or galvanic_isolator(c) else (c.line_area or c.area)
             g = 1e12 if galvanic_isolator(c) else area / c.length
             ends = [at.get(x) for x in (c.a, c.b)]
             for i in ends:
                 if i is not None:
-                    G[i, i] += g
+                    rows.append(i), cols.append(i), vals.append(g)
             if None not in ends:
-                G[ends[0], ends[1]] -= g
-                G[ends[1], ends[0]] -= g
-        J = np.zeros(len(nodes))
-        J[at[outlet]] = 1.0
-        try:
-            eff = float(np.linalg.lstsq(G, J, rcond=None)[0][at[outlet]])
-        except np.linalg.LinAlgError:
-            eff = path
-        out.append(min(1.0, eff / path) if path > 0 and eff > 0 else 1.0)
-    return out[1], out[0]
+                rows += ends
+                cols += ends[::-1]
+                vals += [-g, -g]
+        G = sp.csc_matrix((vals, (rows, cols)), shape=(len(nodes), len(nodes)))
+        lus.append(spla.splu(G) if nodes else None)
+    return at, lus
 
 
 def building_graph(plan: Plan) -> nx.Graph:
@@ -99,20 +126,19 @@ def building_graph(plan: Plan) -> nx.Graph:
     References:
         none (bookkeeping: the route's least resistance is found on it).
     """
-    device_of = plan.index.device_of
     g = nx.Graph()
-    for c in plan.conductors:
-        if device_of(c.name) is None and galvanic_isolator(c):
+    wiring = _wiring(plan)
+    for c in wiring:
+        if galvanic_isolator(c):
             # its diodes carry a fault's current (a drop of a volt or two, left out)
             g.add_edge(c.a, c.b, weight=0.0, conductor=c)
-            continue
-        if device_of(c.name) is not None or not can_carry_protective(c):
-            continue
-        if not (is_cable(c) or c.role == PROTECTIVE) or not (c.length and c.area):
             continue
         weight = c.length / c.area
         if not g.has_edge(c.a, c.b) or g[c.a][c.b]["weight"] > weight:
             g.add_edge(c.a, c.b, weight=weight, conductor=c)
+    # the whole wiring's factorised networks, made when a fault loop first asks (route_factors)
+    g.graph["solver"] = functools.cache(lambda: _solver(plan, wiring))
+    g.graph["outlets"] = {}
     return g
 
 

@@ -215,7 +215,7 @@ def as_placed(plan: Plan, graph: nx.Graph, name: str, m):
     route = _route(plan, graph, device.plugged)
     if route is not None:
         placed = replace(
-            placed, route=route, route_factors=route_factors(plan, device.plugged, route)
+            placed, route=route, route_factors=route_factors(graph, device.plugged, route)
         )
     if device.cord_length is not None:
         area = device.cord_area or placed.cord_area
