@@ -26,7 +26,6 @@ References: ISO 226:2003 (threshold of hearing); see :mod:`groundcheck.physics.c
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 from functools import partial
 
@@ -39,7 +38,6 @@ from .coupling import (
     channel_tests,
     owner_ranks,
     pair_path,
-    path_drop,
     plan_sources,
 )
 from .humsettings import SIGNAL_FREQUENCY, HumOptions, channel_listenings
@@ -47,6 +45,7 @@ from .humtotals import ChannelHum, HumResult, Merged
 from .heater_field import pair_closest, pair_sources
 from .fieldhum import field_pickup, flux_models, pickup_columns
 from .hum_shares import run_columns, source_part
+from .loop_columns import loop_pickup
 from .pickup import min_distance
 from .supplyhum import coverage, supply_shares
 from .sweep import run_tasks
@@ -358,16 +357,10 @@ class HumBudget:
         frequencies are merged (:func:`groundcheck.physics.fieldhum.field_pickup`)."""
         if not self.models or not self.pick_loops:
             return
-        circuit, n = self.circuit, len(self.pick_loops)
-        E = np.zeros((len(circuit.branches), n), dtype=complex)
-        E[self.pick_branch, np.arange(n)] = -1j * 2 * math.pi * f * self.pick_sign
-        sol = fac.solve(np.zeros((len(circuit.nodes), n)), emf=E)
-        drops = np.zeros((len(self.stages), n), dtype=complex)
-        gains = self.gains_at(fac)
-        for k in range(len(self.stages)):
-            if self.valid_stage[k]:
-                drops[k] = path_drop(fac, sol, self.paths[k]) * gains[k]
-        part.pickup = (drops, sol.I[self.pick_branch, np.arange(n)])
+        paths = [p if ok else None for p, ok in zip(self.paths, self.valid_stage)]
+        part.pickup = loop_pickup(
+            fac, f, self.pick_branch, self.pick_sign, paths, self.gains_at(fac)
+        )
 
     def _crosstalk(self, fac, part) -> None:
         circuit, gains = self.circuit, self.gains_at(fac)
