@@ -16,14 +16,17 @@ LIMITS = {
 }
 
 #: work limits of one analysis, estimated before the work starts (groundcheck/physics/workload.py):
-#: the rectifiers' time steps (their steady states searched), loop pickups (listed loops × field
-#: lines × branches: the EMF columns), the hum budget's solves (frequencies × nodes × columns, a
-#: fixed cost a frequency) and the devices' earth paths (devices × points)
+#: the rectifiers' time steps (their steady states searched), the sized field sources' searches
+#: (quadrature points × searches), the hum budget's solves (frequencies × nodes × columns, a fixed
+#: cost a frequency, the loops' EMF columns at each field line) and the devices' earth paths
+#: (devices × points)
 LIMITS.update(
     {
         "rectifier_steps": 4096 * 240,
-        "loop_pickups": 12_000_000,
+        "field_search": 1_500_000,
         "solve_work": 50_000_000,
+        # or this many solves of the whole network, when more (a large plan's work in proportion)
+        "solve_columns": 3_000,
         "device_work": 100_000_000,
     }
 )

@@ -26,6 +26,7 @@ from .hum_rows import FieldAxis, LoopPickup, PickupLine, SourcePickup
 from .humtotals import FLOOR_V
 from .orient import AXES, channel_objective, fixed_fluxes, source_fluxes, stated_axis, worst_axis
 from .plate_paths import loop_passages
+from .workload import check_search
 
 __all__ = [
     "at_line",
@@ -78,14 +79,15 @@ def flux_models(b, plan, circuit, loops) -> dict:
         from .plate_spread import line_fluxes
 
         rho = lambda metal: resistivity(metal.material, plan.ambient)
-        models = {
-            src.name: line_fluxes(
-                src, closed, passages, [f for f, _ in source_lines(src, b.f0, b.freqs)], rho
-            )
-            for src in plan.fields
-        }
+        build = lambda src: line_fluxes(
+            src, closed, passages, [f for f, _ in source_lines(src, b.f0, b.freqs)], rho
+        )
     else:
-        models = {src.name: source_fluxes(src, closed, passages) for src in plan.fields}
+        build = lambda src: source_fluxes(src, closed, passages)
+    models, searched = {}, 0
+    for src in plan.fields:  # a sized source's searches counted before any of them runs
+        models[src.name] = build(src)
+        searched = check_search(src, models[src.name], len(b.channels), searched)
     for name, (_, h) in b.pairs.items():
         spacing, height = pair_geometry(h)
         models[name] = fixed_fluxes(

@@ -17,13 +17,23 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+
 from ..core.errors import LimitError, PlanErrors
 from ..language.limits import LIMITS
 from ..model.records import Plan, Rectifier
+from .orient import COARSE_POINTS
 from .heater_field import pair_sources
 from .rectifier import STEPS_PER_PERIOD
 
-__all__ = ["check_devices", "check_work", "rectifier_steps", "same_figures"]
+__all__ = [
+    "check_devices",
+    "check_search",
+    "check_work",
+    "rectifier_steps",
+    "same_figures",
+    "solve_limit",
+]
 
 #: periods integrated in the search for a steady state, an upper bound for the estimate: the
 #: constant-drop model converges in a few periods; the exact models (Shockley or valve diodes,
@@ -76,23 +86,43 @@ def rectifier_steps(r: Rectifier) -> int:
 #: what each work limit counts
 UNITS = {
     "rectifier_steps": "time steps",
-    "loop_pickups": "EMF entries (loops × field lines × branches)",
+    "field_search": "quadrature points searched (a sized source's points, once for the loops' "
+    "own directions and, merged, once for each channel's)",
     "solve_work": "node-solves",
     "device_work": "node-solves",
 }
 
 
-def _refuse(what: str, total: int, limit: str, loc, hint: str) -> None:
+def _refuse(what: str, total: int, limit: str, loc, hint: str, nodes: int = 0) -> None:
+    bound, per_node = LIMITS[limit], ""
+    if limit == "solve_work" and solve_limit(nodes) > bound:
+        bound = solve_limit(nodes)
+        per_node = f", {LIMITS['solve_columns']:,} columns of {nodes:,} nodes"
     raise PlanErrors(
         [
             LimitError(
                 f"{what}: about {total:,} {UNITS[limit]}, over the work limit of "
-                f"{LIMITS[limit]:,} (estimated before the work starts)",
+                f"{bound:,}{per_node} (estimated before the work starts)",
                 loc,
                 hint,
             )
         ]
     )
+
+
+def solve_limit(nodes: int) -> int:
+    """The hum budget's node-solves allowed on a network of ``nodes`` nodes: :data:`LIMITS`
+    ``solve_work``, or ``solve_columns`` solves of the whole network when that is more (a large
+    plan's work in proportion to its size: its harmonics, channels and listed loops' EMF columns).
+
+    Parameters:
+        nodes: the network's nodes.
+    Returns:
+        node-solves.
+    References:
+        none (a limit, calibrated by measurement: benchmarks/README.md).
+    """
+    return max(LIMITS["solve_work"], LIMITS["solve_columns"] * nodes)
 
 
 def check_devices(plan: Plan) -> None:
@@ -123,9 +153,9 @@ def check_devices(plan: Plan) -> None:
 
 
 def check_work(plan: Plan, loops, circuit, max_frequency: float, hum: bool) -> None:
-    """The rectifiers' time steps, the loop pickups (loops × field lines × branches) and the hum
-    budget's solves (frequencies × nodes × columns), each against its limit, at the statement that
-    passes it.
+    """The rectifiers' time steps and the hum budget's solves (frequencies × nodes × columns, the
+    loops' EMF columns at each field line among them), each against its limit, at the statement
+    that passes it.
 
     Parameters:
         plan: the plan.
@@ -158,24 +188,14 @@ def check_work(plan: Plan, loops, circuit, max_frequency: float, hum: bool) -> N
                     "or check the installation in parts",
                 )
     listed = sum(1 for info in loops if info.polygon is not None)
-    branches, nodes = len(circuit.branches), len(circuit.nodes)
+    nodes = len(circuit.nodes)
     sources = [*plan.fields, *(src for src, _ in pair_sources(plan.heaters))]
     f0 = plan.frequency
-    lines, pickup = {}, 0
+    lines = {}  # the loops' EMF columns: one solve each at each line of any source
     for src in sources if plan.stages and listed else ():
         for n in (1, *(h for h, _ in src.harmonics)):
             if n * f0 <= max_frequency + 1e-9:
-                lines[n * f0] = lines.get(n * f0, 0) + listed
-                pickup += listed * branches
-        if pickup > LIMITS["loop_pickups"]:
-            _refuse(
-                f"field {src.name}: {len(sources):,} field sources against {listed:,} loops of "
-                f"{branches:,} branches",
-                pickup,
-                "loop_pickups",
-                src.location,
-                "describe the strongest field sources only, or check the plan in parts",
-            )
+                lines[n * f0] = listed
     _check_solves(plan, lines, nodes, max_frequency)
 
 
@@ -200,22 +220,65 @@ def _check_solves(plan: Plan, lines: dict, nodes: int, max_frequency: float) -> 
     for c in plan.currents:
         for _, f in c.parts:
             total += add(f)
-            if total > LIMITS["solve_work"]:
+            if total > solve_limit(nodes):
                 _refuse(
-                    f"current {c.name}: {len(freqs):,} frequencies solved on {nodes:,} nodes",
+                    f"current {c.name}: {_frequencies(freqs)} solved on {nodes:,} nodes",
                     total,
                     "solve_work",
                     c.location,
                     "state the few frequencies that matter (the hum budget solves each one on its "
                     "own)",
+                    nodes,
                 )
     total += sum(v * nodes for f, v in lines.items())
-    if total > LIMITS["solve_work"]:
+    if total > solve_limit(nodes):
         first = next(iter(plan.fields or plan.rectifiers or plan.heaters or plan.currents))
         _refuse(
-            f"{len(freqs):,} frequencies solved on {nodes:,} nodes",
+            f"{_frequencies(freqs)} solved on {nodes:,} nodes",
             total,
             "solve_work",
             first.location,
             "lower --max-frequency, or check the plan in parts",
+            nodes,
         )
+
+
+def _frequencies(freqs) -> str:
+    return f"{len(freqs):,} frequenc{'y' if len(freqs) == 1 else 'ies'}"
+
+
+def check_search(src, model, channels: int, searched: int) -> int:
+    """A sized field source's worst directions are searched over its quadrature points: once for
+    each loop's own direction (the pickup table; a loop of more than COARSE_POINTS points on its
+    merged points) and, on the source's merged points, once for each channel's (the flux of a
+    direction read at every point, about 200 directions a search).  Counted as each source's
+    points are laid, before any search: the source at which the running total passes
+    :data:`LIMITS` ``field_search`` is refused (a point dipole's closed form is not counted).
+
+    Parameters:
+        src: the field source.
+        model: its :class:`groundcheck.physics.orient.LoopFluxes`, as built.
+        channels: the channels whose worst direction is searched.
+        searched: the total of the sources before it.
+    Returns:
+        the running total; raises PlanErrors with one LimitError.
+    References:
+        none (an estimate, calibrated by measurement: benchmarks/README.md, Resource bombs).
+    """
+    if model.X is None:
+        return searched
+    own = np.bincount(model.group, minlength=len(model.loops))
+    # a loop's own search reads its points, merged above COARSE_POINTS; a channel's reads the
+    # source's merged points (orient.LoopFluxes.coarse, kept for the search itself)
+    total = searched + int(np.minimum(own, COARSE_POINTS).sum()) + len(model.coarse().X) * channels
+    if total > LIMITS["field_search"]:
+        _refuse(
+            f"field {src.name}: its quadrature points along {len(model.loops):,} loops, searched "
+            f"for each loop's own direction and for {channels:,} "
+            f"channel{'' if channels == 1 else 's'} (with the sized sources before it)",
+            total,
+            "field_search",
+            src.location,
+            "give the far sources no size (the point dipole), or check the plan in parts",
+        )
+    return total
