@@ -99,3 +99,31 @@ def test_a_device_without_a_cord_line_says_why(path):
             assert CLASS_II_CORD not in box
     assert quiet == []
     assert any(d.equipment_class == "II" for d in result.plan.devices) == (CLASS_II_WORDS in text)
+
+
+def test_the_label_grid_counts_what_comparing_with_every_box_counts():
+    # the overlap pass keeps boxes in cells (renderers/drawing._Boxes); on random boxes of label
+    # and mark sizes, some touching within the 0.5-point gap, some on cell boundaries, its count
+    # of the boxes a box meets equals the count over every box, by the comparison itself
+    import random
+
+    from groundcheck.renderers.drawing import _Boxes, _meet
+
+    rng = random.Random(5)
+    for _ in range(200):
+        kept, boxes = [], _Boxes()
+        for _ in range(rng.randint(1, 60)):
+            x, y = (
+                rng.choice([rng.uniform(-100, 300), 32.0 * rng.randint(-3, 9)]),
+                rng.uniform(-100, 300),
+            )
+            box = (x, y, x + rng.uniform(0, 80), y + rng.uniform(0, 12))
+            owner = rng.choice([None, "a", "b"])
+            kept.append((box, owner))
+            boxes.add(box, owner)
+        for _ in range(20):
+            x, y = rng.uniform(-120, 320), rng.uniform(-120, 320)
+            probe = (x, y, x + rng.uniform(0, 90), y + rng.uniform(0, 15))
+            mine = rng.choice([None, "a", "b"])
+            brute = sum(_meet(probe, b) for b, o in kept if mine is None or o != mine)
+            assert boxes.meeting(probe, mine) == brute

@@ -385,3 +385,31 @@ def test_a_page_opened_on_a_broken_plan_shows_the_last_good_result_and_updates_s
             browser.close()
         err = _stop(proc)
     assert proc.returncode == 0 and "Traceback" not in err
+
+
+def test_a_save_that_changes_no_statement_is_not_analysed_again(tmp_path, monkeypatch):
+    # a comment added (the same statements at the same places): the last result and drawings are
+    # published again at once; a changed figure is analysed again
+    import io
+
+    import groundcheck.analysis as analysis
+    from groundcheck.analysis import Options
+    from groundcheck.cli.watch import LiveView
+
+    plan = tmp_path / "head.gplan"
+    plan.write_text(EXAMPLE.read_text())
+    calls = []
+    real = analysis.analyze
+    monkeypatch.setattr(analysis, "analyze", lambda p, o: calls.append(1) or real(p, o))
+    log = io.StringIO()
+    view = LiveView(str(plan), Options(), log=log)
+    view.refresh()
+    plan.write_text(plan.read_text() + "# checked with the builder\n")
+    first = json.loads(view.state)
+    view.refresh()
+    again = json.loads(view.state)
+    assert len(calls) == 1 and "the plan's content unchanged" in log.getvalue()
+    assert view.version == 2 and again["sections"]["findings"] == first["sections"]["findings"]
+    _edit(plan, MISTAKE, MENDED)
+    view.refresh()
+    assert len(calls) == 2 and "GC102" not in log.getvalue().splitlines()[-1]

@@ -45,6 +45,7 @@ class LiveView:
         self.path = Path(plan).absolute()  # the name watched: a link swapped in for it is seen
         self._good_result = None
         self._good_state: dict | None = None
+        self._drawn: tuple | None = None  # the last result's two drawings
         #: when the analysis under way started (time.monotonic()), None when none is; ``busy``
         #: counts the analyses started, so each event stream announces each one once
         self.busy_since: float | None = None
@@ -62,7 +63,8 @@ class LiveView:
         try:
             self._check_still_a_plan()
             plan = load_plan(self.plan)
-            result = analyze(plan, self.options)
+            kept = self._kept(plan)
+            result = kept[0] if kept else analyze(plan, self.options)
         except PlanErrors as e:
             # the files the errors are in are watched too (a device plan broken since the start,
             # say)
@@ -88,14 +90,29 @@ class LiveView:
             return
         read = (*plan.files, *plan.device_files)
         self.files = {Path(f).resolve() for f in read} | {Path(self.plan).resolve()}
-        physical, topology = self._drawings(result)
+        physical, topology = kept[1] if kept else self._drawings(result)
+        self._drawn = (physical, topology)
         seconds = time.perf_counter() - t0
         state = live_state(
             result, physical, topology, self._good_result, source_lines(plan), seconds
         )
         self._good_result, self._good_state = result, state
         self._publish(state)
-        self._say(status_line(result, seconds))
+        same = "; the plan's content unchanged" if kept else ""
+        self._say(status_line(result, seconds) + same)
+
+    def _kept(self, plan) -> tuple | None:
+        """The last result and drawings when the plan as read is the one they were made from (a
+        save that changed a comment, blank lines or nothing: the same statements at the same
+        places, in every file read), else None: an analysis is a function of the plan and the
+        options, which a session keeps."""
+        last = self._good_result
+        if last is None or self._drawn is None:
+            return None
+        try:
+            return (last, self._drawn) if plan == last.plan else None
+        except (TypeError, ValueError):  # a field that does not compare: analyse again
+            return None
 
     def _check_still_a_plan(self) -> None:
         """The watched file is still a regular file inside the plan's folder: a link swapped in for
