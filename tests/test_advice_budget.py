@@ -109,3 +109,19 @@ def test_a_budget_spent_before_the_first_candidate_tries_none_and_still_consider
     reasons = sorted(e.rejected for e in evs)
     assert reasons.count(NOT_TRIED) == len(evs) - 1
     assert "bought equipment: not opened" in reasons
+
+
+def test_progress_reaches_a_pipe_as_plain_lines_for_both_phases(cli, monkeypatch):
+    # standard error is not a terminal here: the advice's progress is a plain line at most every
+    # PIPE_EVERY seconds (set to 0: one at every step), the candidates' phase then the combined
+    # set's, each with what the time left allows
+    from groundcheck.cli import advice as cli_advice
+
+    monkeypatch.setattr(cli_advice._progress, "PIPE_EVERY", 0.0)
+    code, out, err = cli("suggest", str(HEADPHONE), "--budget", "60")
+    lines = err.splitlines()
+    trying = [x for x in lines if x.startswith("groundcheck: trying candidate changes: ")]
+    combining = [x for x in lines if x.startswith(f"groundcheck: {repair.COMBINING}: ")]
+    assert code in (0, 1) and trying and combining
+    assert lines.index(trying[-1]) < lines.index(combining[0])
+    assert all(" of about " in x and x.endswith(" s)") for x in trying + combining)

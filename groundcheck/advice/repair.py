@@ -200,7 +200,9 @@ def advise(
     """The whole advice under one ``budget`` (seconds) counted from ``started``
     (``time.monotonic()``, default now): the first analysis, every candidate (until
     :data:`TRYING_SHARE` of the budget) and the combined set (the rest).  Returns the plan's
-    result, the evaluations (:func:`suggest`), the combined set and its result (:func:`greedy`)."""
+    result, the evaluations (:func:`suggest`), the combined set and its result (:func:`greedy`).
+    ``progress(done, total)`` follows the candidates tried, then ``progress(done, total,
+    COMBINING)`` the combined set's steps."""
     start = time.monotonic() if started is None else started
     clock = Clock.of(budget, start)
     asked, options = options, judging(options)
@@ -210,14 +212,19 @@ def advise(
     before, evs = suggest(
         plan, text, options, root, resolved, before=before, clock=trying, progress=progress
     )
+    step = None if progress is None else (lambda d, n: progress(d, n, COMBINING))
     chosen, final, _ = greedy(
-        plan, text, options, root, resolved, evs=evs, before=before, clock=clock, progress=progress
+        plan, text, options, root, resolved, evs=evs, before=before, clock=clock, progress=step
     )
     if options is not asked:
         said = judged_notice(asked)
         for r in {id(before): before, id(final): final}.values():
             r.notices.append(said)
     return before, evs, chosen, final
+
+
+#: the phase :func:`advise` names to its progress once the candidates are tried
+COMBINING = "combining the accepted changes"
 
 
 def judged_notice(asked: Options) -> str:

@@ -34,11 +34,15 @@ COMPARE_EPILOG = (
 
 
 class _progress:
-    """A progress bar on an interactive terminal (nothing otherwise): ``with _progress(what) as
-    step: step(i, n)``."""
+    """Progress of the advice: a bar on an interactive terminal; elsewhere (a pipe, a log) a plain
+    line every PIPE_EVERY seconds. ``with _progress(what) as step: step(done, total[, phase])``,
+    ``total`` what the time left allows."""
+
+    PIPE_EVERY = 5.0  # s between plain lines
 
     def __init__(self, what: str):
         self.what, self.bar, self.task = what, None, None
+        self.started = self.said = time.monotonic()
 
     def __enter__(self):
         if sys.stderr.isatty():
@@ -50,9 +54,18 @@ class _progress:
             self.task = self.bar.add_task(self.what, total=None)
         return self.step
 
-    def step(self, done: int, total: int) -> None:
+    def step(self, done: int, total: int, phase: str | None = None) -> None:
+        what = phase or self.what
         if self.bar is not None:
-            self.bar.update(self.task, completed=done, total=total)
+            self.bar.update(self.task, completed=done, total=total, description=what)
+            return
+        now = time.monotonic()
+        if now - self.said >= self.PIPE_EVERY:
+            self.said = now
+            sys.stderr.write(
+                f"groundcheck: {what}: {done} of about {total} ({now - self.started:.0f} s)\n"
+            )
+            sys.stderr.flush()
 
     def __exit__(self, *exc):
         if self.bar is not None:
