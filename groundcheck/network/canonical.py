@@ -56,6 +56,8 @@ def _plain(x) -> str:
 #: keys); the advisor and the watch re-analyse plans whose conductors are mostly the same
 _KEYS: dict = {}
 _KEYS_MAX = 1 << 16
+#: each kind's row of the kinds table as its key (the table is fixed)
+_KIND_KEYS: dict = {}
 
 
 def _conductor_key(c) -> str:
@@ -79,8 +81,12 @@ def _written_key(c) -> str:
     last = shield_like(c) or joins_devices(c)
     # a kind by what its row of the kinds table says, not by its word: two kinds whose rows
     # differ in nothing but the word are one
-    row = KINDS[c.kind]
-    kind = _plain(tuple(getattr(row, f.name) for f in dataclasses.fields(row) if f.name != "name"))
+    kind = _KIND_KEYS.get(c.kind)
+    if kind is None:
+        row = KINDS[c.kind]
+        kind = _KIND_KEYS[c.kind] = _plain(
+            tuple(getattr(row, f.name) for f in dataclasses.fields(row) if f.name != "name")
+        )
     return f"{int(last)};{kind};" + ";".join(
         f"{f}={_plain(getattr(c, f))}" for f in fields if f not in _NAMING | _PLACING
     )
