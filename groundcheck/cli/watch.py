@@ -344,15 +344,17 @@ def serve(args) -> int:
         threading.Thread(target=server.serve_forever, kwargs={"poll_interval": 0.2}, daemon=True),
         threading.Thread(target=_watch_files, args=(view, stop), daemon=True),
     ]
-    for t in threads:  # watching before the first analysis: a save during it is not missed
-        t.start()
-    view.refresh()
-    if args.open:
-        import webbrowser
-
-        webbrowser.open(url)
-    previous = signal.signal(signal.SIGTERM, lambda *_: stop.set())
+    # SIGTERM stops the view as Ctrl-C does, from the first analysis on (a page can show its
+    # result before that analysis has returned)
+    previous = signal.signal(signal.SIGTERM, _interrupt)
     try:
+        for t in threads:  # watching before the first analysis: a save during it is not missed
+            t.start()
+        view.refresh()
+        if args.open:
+            import webbrowser
+
+            webbrowser.open(url)
         while not stop.wait(0.5):
             pass
     except KeyboardInterrupt:
@@ -366,3 +368,7 @@ def serve(args) -> int:
         signal.signal(signal.SIGTERM, previous)
     sys.stderr.write("groundcheck: live view stopped\n")
     return 0
+
+
+def _interrupt(*_) -> None:
+    raise KeyboardInterrupt

@@ -87,11 +87,19 @@ class FileReader:
         if target is None:
             return []
         try:
-            text = read_plan_file(target, str(target.relative_to(self.root)))
+            text = read_plan_file(target, self._shown(target))
         except PlanErrors as e:
             self.errors.extend(e.errors)
             return []
-        return self.read_items(text, str(target.relative_to(self.root)), stack + (target,))
+        return self.read_items(text, self._shown(target), stack + (target,))
+
+    def _shown(self, target: Path) -> str:
+        """An included file's name as its findings and errors show it: beside the main plan as the
+        user named it (``plan/psu.gplan`` for ``plan/mixer.gplan``), so that the name leads to the
+        file from where the command ran; relative to the plan's folder for a plan read as text."""
+        rel = target.relative_to(self.root)
+        shown_root = getattr(self, "shown_root", None)
+        return str(rel) if shown_root is None else str(shown_root / rel)
 
     def _may_read(self, item, stack: tuple[Path, ...]) -> bool:
         """Whether one more include is within the depth limit and the count of files read."""

@@ -139,6 +139,8 @@ def _load_text(
 ) -> Plan:
     root = (root or Path.cwd()).resolve()
     ld = _Loader(root)
+    # a plan read from a file: its includes are named beside it, as the user named it
+    ld.shown_root = Path(file).parent if _resolved is not None else None
     ld.libraries = tuple(libraries)
     ld.device_stack = _devices + ((_resolved,) if _resolved is not None else ())
     stack = (_resolved,) if _resolved is not None else ()
@@ -152,6 +154,7 @@ def _load_text(
         # bigfile.py)
         fresh = _Loader(root)
         fresh.libraries, fresh.device_stack = ld.libraries, ld.device_stack
+        fresh.shown_root = ld.shown_root
         from .bigfile import read_split
 
         built = read_split(ld, text, file, at, fresh, Transform, LIMITS["elements"])
