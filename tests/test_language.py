@@ -332,6 +332,23 @@ def test_include_errors(tmp_path, monkeypatch, cli):
     )
 
 
+def test_an_included_file_is_named_beside_the_plan_as_the_user_named_it(
+    tmp_path, monkeypatch, cli
+):
+    # run from the folder above the plan's: an error in the include says plan/b.gplan, a name that
+    # leads to the file from there (it said b.gplan); the include cycle's chain too
+    monkeypatch.chdir(tmp_path)
+    Path("plan").mkdir()
+    Path("plan/a.gplan").write_text('plan "a"\ninclude "parts/b.gplan"\n')
+    Path("plan/parts").mkdir()
+    Path("plan/parts/b.gplan").write_text("point p: stud\nwire w: p to\n")
+    code, _, err = cli("check", "plan/a.gplan")
+    assert code == 2 and err.startswith("plan/parts/b.gplan:2:")
+    assert Path(err.split(":")[0]).is_file()
+    code, _, err = cli("check", str(tmp_path / "plan" / "a.gplan"))
+    assert code == 2 and err.startswith(f"{tmp_path / 'plan' / 'parts' / 'b.gplan'}:2:")
+
+
 def test_not_utf8(tmp_path, monkeypatch, cli):
     monkeypatch.chdir(tmp_path)
     Path("l.gplan").write_bytes(b'plan "x"\npoint caf\xe9: stud\n')
