@@ -16,7 +16,7 @@ from ..rules.results import Result
 from .edits import unified_diff
 from .repair import HUM_FLOOR_DBV, NOT_TRIED, Evaluation
 
-__all__ = ["suggestions_document", "suggestions_text"]
+__all__ = ["in_included_files", "suggestions_document", "suggestions_text"]
 
 
 def _level(dbv: float) -> str:
@@ -92,6 +92,15 @@ def suggestions_document(
         ],
         "rejected": [evaluation_json(e) for e in evs if e.rejected and e.rejected != NOT_TRIED],
         "untried": [e.candidate.title for e in evs if e.rejected == NOT_TRIED],
+        "left_in_included_files": [
+            {
+                "code": f.code,
+                "severity": f.severity,
+                "location": str(f.location),
+                "fix": f.fix,
+            }
+            for f in in_included_files(plan, final)
+        ],
         "combined": {
             "search": "useful changes best first, each re-analysed on the plan as changed so far "
             "and kept if it still helps",
@@ -128,9 +137,19 @@ def suggestions_text(
         if n.location is None
     ]
     out += [f"Notice: {n}" for n in (final.notices if notices is None else notices)]
+    shared = in_included_files(plan, final)
+    out += [
+        f"DANGER left in an included file, which the advisor does not change: {f.code} at "
+        f"{f.location} (see the end)"
+        for f in shared
+        if f.severity == "danger"
+    ]
     out.append("")
     if not useful:
-        out.append("No change found that improves the plan.")
+        out.append(
+            "No change found that improves the plan"
+            + (" in the files the advisor changes." if shared else ".")
+        )
     for i, e in enumerate(useful, 1):
         out += _suggestion_lines(i, e, plan, text, name)
     if rejected:
@@ -145,7 +164,35 @@ def suggestions_text(
         )
         out.append("")
     out += _combined_lines(chosen, final, {e.candidate.title for e in rejected})
+    if shared:
+        out.append("")
+        out.append(
+            f"Left in included files ({len(shared)}): the advisor changes the main plan and "
+            "placed devices' own plans, never an included file (other plans may include it); "
+            "check's fix lines:"
+        )
+        out.extend(
+            f"  - {f.code} {f.severity} at {f.location}: {f.fix or f.message}" for f in shared
+        )
     return "\n".join(out) + "\n"
+
+
+def in_included_files(plan: Plan, result: Result) -> list:
+    """The findings ``result`` leaves in files the plan includes (the advisor edits none of them),
+    worst first.
+
+    Parameters:
+        plan: the plan as written.
+        result: the combined set's result.
+    Returns:
+        the findings whose place is an included file.
+    References:
+        none (bookkeeping).
+    """
+    included = set(plan.files) - {plan.file}
+    return sorted(
+        (f for f in result.findings if f.location.file in included), key=lambda f: f.sort_key()
+    )
 
 
 def _suggestion_lines(i: int, e: Evaluation, plan: Plan, text: str, name: str) -> list[str]:
