@@ -65,6 +65,18 @@ def corpus_sample(paths) -> list[Path]:
     return [p for p in paths if field not in p.parents or p.relative_to(field).parts[0] in kept]
 
 
+def not_included(paths) -> list[Path]:
+    """``paths`` without the include fragments among them: a file another plan of its folder
+    names in an ``include`` statement is read as part of that plan, not alone (it names points the
+    plan defines)."""
+    out = []
+    for p in paths:
+        others = [q for q in p.parent.glob("*.gplan") if q != p]
+        if not any(f'include "{p.name}"' in q.read_text(encoding="utf-8") for q in others):
+            out.append(p)
+    return out
+
+
 def field_rooms() -> list[Path]:
     """The field corpus's plans that no other plan of their folder places as a device: each
     folder's rooms and lone plans.  A device's own plan is analysed inside its room (its findings,
