@@ -17,7 +17,7 @@ from pathlib import Path
 import pytest
 
 from groundcheck import load
-from groundcheck.analysis import analyze
+from groundcheck.analysis import Options, analyze
 
 FIELD = Path(__file__).parent / "field" / "valve-mixer-desk"
 
@@ -72,3 +72,15 @@ def test_suggest_names_the_danger_it_leaves_in_the_included_file(cli, monkeypatc
     assert {"code": "GC202", "severity": "danger", "location": "psu.gplan:13:1"}.items() <= (
         left[0].items()
     )
+
+
+def test_the_signal_grounds_bond_is_never_kept_on_the_centre_taps_lead():
+    # his v2b: the centre tap joined to the reservoir's negative by a wire of its own, its old lead
+    # to a tag under a transformer screw left in place. GC105 kept that tag as the signal ground's
+    # one bond ("nearest the protective earth") and offered to cut the bus from its intended bond
+    # tag (b0): unbolt the transformer and the signal ground floats. A bond made by a wire from a
+    # rectifier's winding side is kept last: the tag's lead goes
+    plan = load(FIELD / "variants" / "v2b_parallel" / "mixer_ctret.gplan")
+    (f,) = [f for f in analyze(plan, Options(hum=False)).findings if f.code == "GC105"]
+    assert f.fix.startswith("keep the bond at bus_gt (the bond at ct_tag is a supply's own lead")
+    assert ("remove", "ctlead") in f.actions and ("remove", "b0") not in f.actions

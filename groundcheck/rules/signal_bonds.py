@@ -86,7 +86,17 @@ def _twice(ctx: AuditContext, name: str, places: dict, comp=()) -> Finding:
         f"{p} (by {', '.join(ks + held.get(p, []))})" for p, ks in sorted(places.items())
     )
     bonds = sorted(places)
-    keep, why = _nearest_pe(ctx, bonds, comp)
+    # a bond made by a supply's own lead (a wire from the winding's side of a rectifier, where its
+    # return current goes back into the winding: a centre tap wired to a tag) is kept last; the
+    # reservoir's side wired to the bond is the usual star bond, not this
+    ends = {r.b for r in ctx.plan.rectifiers}
+    supply = {
+        p
+        for p in bonds
+        for k in places[p]
+        if (c := ctx.plan.index.conductors.get(k)) is not None and {c.a, c.b} & ends
+    }
+    keep, why = _nearest_pe(ctx, bonds, comp, supply)
     others = [b for b in bonds if b != keep]
     actions = _unbond_actions(ctx, others, places)
     words = "; ".join(
@@ -261,8 +271,12 @@ def _component_name(ctx: AuditContext, comp: list[str]) -> str:
     return "at " + ", ".join(comp[:3]) + ("…" if len(comp) > 3 else "")
 
 
-def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str, str]:
-    """The bond to keep, and why: a deliberate one (not a socket's own ground fastened to the
+def _nearest_pe(
+    ctx: AuditContext, candidates: list[str], comp=(), supply=frozenset()
+) -> tuple[str, str]:
+    """The bond to keep, and why: any before one made by a supply's own lead (``supply``: a
+    rectifier's end wired to a tag, whose removal for service or a loose transformer screw would
+    leave the signal ground floating), a deliberate one (not a socket's own ground fastened to the
     metal) before a socket's, a socket's before a pot's body, then one on the box that holds the
     signal star (of two boxes, the supply box's bond goes: common practice), then the nearest the
     equipment's protective earth."""
@@ -281,7 +295,7 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str,
     away = {c for c in away if boxes[c] not in star_box}
     pe = pe_point(ctx, candidates[0])
     if pe not in ctx.G:
-        keep = min(candidates, key=lambda c: (c in sockets, c in pots, c))
+        keep = min(candidates, key=lambda c: (c in supply, c in sockets, c in pots, c))
         return keep, "" if keep in sockets else " (not a socket's own ground)"
     dist, _ = bfs(ctx.adj, [pe], lambda v: v in ctx.chassis_side)
     # equal hop counts (two studs on the same plate, say) are told apart by the distance on the
@@ -297,9 +311,23 @@ def _nearest_pe(ctx: AuditContext, candidates: list[str], comp=()) -> tuple[str,
 
     keep = min(
         candidates,
-        key=lambda c: (c in sockets, c in pots, c in away, dist.get(c, 10**9), metres(c), c),
+        key=lambda c: (
+            c in supply,
+            c in sockets,
+            c in pots,
+            c in away,
+            dist.get(c, 10**9),
+            metres(c),
+            c,
+        ),
     )
     nearest = min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))
+    unweighed = min(
+        candidates,
+        key=lambda c: (c in sockets, c in pots, c in away, dist.get(c, 10**9), metres(c), c),
+    )
+    if keep != unweighed:
+        return keep, f" (the bond at {unweighed} is a supply's own lead, a winding's side)"
     if keep == nearest:
         return keep, ", nearest the protective earth"
     if nearest in away and keep not in away:
