@@ -135,6 +135,9 @@ def test_explain(cli):
     assert code == 2 and "unknown rule 'GC999'" in err
     code, out, _ = cli("explain", "shared-return")
     assert code == 0 and out.startswith("GC102 shared-return")
+    # a rule that finds dangers too says so beside its usual severity
+    code, out, _ = cli("explain", "GC202")
+    assert out.startswith("GC202 pe-shared-fastener (fault; its findings may also be danger)")
 
 
 def test_the_caution_is_in_every_output(cli, tmp_path):

@@ -32,7 +32,11 @@ def cmd_explain(args) -> int:
         return 0
     code = codes[0]
     r = RULES[code]
-    print(f"{r.code} {r.name} ({r.severity})\n")
+    # a rule whose findings may be of another severity than its usual one says which (an outside
+    # builder read "(fault)" above a danger the rule had found)
+    others = [v for v in r.variants if v != r.severity]
+    also = f"; its findings may also be {' or '.join(others)}" if others else ""
+    print(f"{r.code} {r.name} ({r.severity}{also})\n")
     print(f"Checks:  {r.checks}\n")
     print(f"Why:     {r.why}\n")
     print(f"Fix:     {r.fix}\n")
