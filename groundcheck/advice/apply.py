@@ -1,6 +1,7 @@
 """Writing a chosen set of changes: the main plan as a new file and, when a change is inside a
-device's own plan, a changed copy of that plan beside it, which the new plan's ``device`` statement
-then names.  Nothing the user wrote is changed: the originals are only read."""
+device's own plan or a file the plan includes, a changed copy of that file beside it, which the new
+plan's ``device`` or ``include`` statement then names.  Nothing the user wrote is changed: the
+originals are only read."""
 
 from __future__ import annotations
 
@@ -9,7 +10,7 @@ from pathlib import Path
 
 from ..core.errors import GroundcheckError
 from ..model.records import Plan
-from .edits import PlanTexts, apply_edits, edited_texts
+from .edits import PlanTexts, apply_edits, direct_includes, edited_texts
 
 __all__ = [
     "Application",
@@ -54,8 +55,8 @@ def application(
     for out, _ in files[1:]:
         if out.exists() and not force:
             raise ApplyRefused(
-                f"{out} exists; --apply writes a changed copy of a device plan there (add "
-                "--force to replace it)"
+                f"{out} exists; --apply writes a changed copy of a device plan or an included "
+                "file there (add --force to replace it)"
             )
     originals = [
         Path(plan.file),
@@ -76,7 +77,22 @@ def applied_files(text: str, edits, plan: Plan, target: Path) -> list[tuple[Path
     (a comment says so)."""
     new_text = apply_edits(text, edits)
     copies = {f: (device_copy_path(target, f), t) for f, t in edited_texts(edits).items()}
-    if copies:
+    includes = direct_includes(plan, PlanTexts(text, plan.file))
+    if copies.keys() & includes.keys():  # an include statement names the changed copy
+        src = PlanTexts(new_text, plan.file)
+        repoint = []
+        for f in copies.keys() & includes.keys():
+            st = src.main.by_line[includes[f].loc.line]
+            edit = src.replace(st, [(st.phrases[0][0], f'"{copies[f][0].name}"')])
+            repoint.append(
+                dataclasses.replace(
+                    edit,
+                    new=f"{edit.new}   # changed copy of {st.phrases[0][0].value}, written by "
+                    "groundcheck suggest",
+                )
+            )
+        new_text = apply_edits(new_text, repoint)
+    if copies.keys() - includes.keys():
         by_device = {}
         for x in (*plan.conductors, *plan.points, *plan.metals):
             dev = plan.index.device_of(x.name)

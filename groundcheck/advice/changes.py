@@ -17,7 +17,7 @@ from ..model.kinds import PROTECTIVE, is_fastening_kind, joins_devices, shield_l
 from ..model.records import Plan
 from ..network.earthing import earth_terminals
 from ..rules.results import Result
-from .edits import Edit, PlanTexts, shown_path
+from .edits import Edit, PlanTexts, direct_includes, shown_path
 
 __all__ = [
     "Answer",
@@ -149,9 +149,9 @@ class ChangeContext:
         return c.name in self.result.protective or c.role == PROTECTIVE
 
     def same_file(self, st, point: str) -> bool:
-        """Whether point ``point`` can be named in statement ``st``: any point in the main plan;
-        in a device's own plan, only a point written in that plan."""
-        if st.loc.file == self.plan.file:
+        """Whether point ``point`` can be named in statement ``st``: any in the main plan or its
+        includes (one namespace); in a device's own plan, only a point written in it."""
+        if st.loc.file == self.plan.file or st.loc.file in self.included:
             return True
         p = self.points.get(point)
         return p is not None and p.location.file == st.loc.file
@@ -166,15 +166,18 @@ class ChangeContext:
         return name[len(dev) + 1 :] if dev and name.startswith(dev + ".") else name
 
     def statement(self, c):
-        """The statement that wrote ``c``: in the main plan file, or in a placed device's own plan
-        (its name carries the device's prefix); None in an included file (edited in place it would
-        change other plans)."""
+        """The statement that wrote ``c``: in the main plan, a file it includes (changed as a copy:
+        :mod:`.apply`) or a placed device's own plan (its name prefixed); else None."""
         f = c.location.file
         if f == self.plan.file:
             return self.src.statement(c.location.line)
-        if f in self.plan.files or "." not in c.name:
-            return None
-        return self.src.statement(c.location.line, f)
+        if f in self.included or (f not in self.plan.files and "." in c.name):
+            return self.src.statement(c.location.line, f)
+        return None
+
+    @cached_property
+    def included(self) -> dict:  # the files the main plan's include statements name
+        return direct_includes(self.plan, self.src)
 
     @cached_property
     def _ends(self) -> dict[str, list]:
@@ -256,14 +259,12 @@ def device_note(c: "Candidate", main: str, plan=None) -> "Candidate":
     placed = sorted(
         name for name, own in (plan.device_plans if plan is not None else ()) if own.file in files
     )
-    every = (
-        f", placed as {' and '.join(placed)}: the change is made in each"
-        if len(placed) > 1
-        else ""
-    )
+    each = f", placed as {' and '.join(placed)}: the change is made in each"
+    every = each if len(placed) > 1 else ""
+    what = "the device's own plan" if placed else "the included file"
     return dataclasses.replace(
         c,
-        title=c.title + f" — in the device's own plan {where}{every} (a separate diff; "
+        title=c.title + f" — in {what} {where}{every} (a separate diff; "
         "--apply writes a changed copy beside the new plan, never the original)",
     )
 

@@ -266,3 +266,31 @@ def _without_comment(row: str) -> str:
         elif ch == "#" and not quoted:
             return row[:i].rstrip()
     return row
+
+
+def direct_includes(plan, src: "PlanTexts") -> dict[str, object]:
+    """The files the main plan's own ``include`` statements name, as the loader shows them (beside
+    the main plan as it was named) -> the statement; none for a plan read as text.
+
+    Parameters:
+        plan: the plan.
+        src: its texts.
+    Returns:
+        shown file name -> its include statement in the main plan.
+    References:
+        none (bookkeeping).
+    """
+    main = Path(plan.file)
+    if not main.is_file():
+        return {}
+    root, out = main.resolve().parent, {}
+    for st in src.main.by_line.values():
+        if st.keyword != "include" or not st.phrases or st.phrases[0][0].kind != "string":
+            continue
+        try:
+            rel = (root / st.phrases[0][0].value).resolve().relative_to(root)
+        except (ValueError, OSError, RuntimeError):
+            continue
+        if str(main.parent / rel) in plan.files:
+            out[str(main.parent / rel)] = st
+    return out

@@ -78,9 +78,12 @@ def suggestions_document(
     chosen: list[Evaluation],
     final: Result,
     notices=None,
+    before: Result | None = None,
 ) -> dict:
     """The suggestions as plain data (``groundcheck suggest --format json``); ``notices`` those of
-    the plan as written (default: the combined set's)."""
+    the plan as written (default: ``before``'s, else the combined set's)."""
+    if notices is None and before is not None:
+        notices = before.notices
     return {
         "caution": CAUTION,
         "plan": plan.file,
@@ -99,7 +102,7 @@ def suggestions_document(
                 "location": str(f.location),
                 "fix": f.fix,
             }
-            for f in in_included_files(plan, final)
+            for f in in_included_files(plan, final, before)
         ],
         "combined": {
             "search": "useful changes best first, each re-analysed on the plan as changed so far "
@@ -124,9 +127,12 @@ def suggestions_text(
     final: Result,
     caution: str,
     notices=None,
+    before: Result | None = None,
 ) -> str:
     """The suggestions as the terminal shows them: each with its predicted effect and its diff;
-    ``notices`` those of the plan as written (default: the combined set's)."""
+    ``notices`` those of the plan as written (default: ``before``'s, else the combined set's)."""
+    if notices is None and before is not None:
+        notices = before.notices
     useful = [e for e in evs if not e.rejected]
     rejected = [e for e in evs if e.rejected and e.rejected != NOT_TRIED]
     untried = [e for e in evs if e.rejected == NOT_TRIED]
@@ -137,10 +143,9 @@ def suggestions_text(
         if n.location is None
     ]
     out += [f"Notice: {n}" for n in (final.notices if notices is None else notices)]
-    shared = in_included_files(plan, final)
+    shared = in_included_files(plan, final, before)
     out += [
-        f"DANGER left in an included file, which the advisor does not change: {f.code} at "
-        f"{f.location} (see the end)"
+        f"DANGER left in an included file: {f.code} at {f.location} (see the end)"
         for f in shared
         if f.severity == "danger"
     ]
@@ -167,9 +172,7 @@ def suggestions_text(
     if shared:
         out.append("")
         out.append(
-            f"Left in included files ({len(shared)}): the advisor changes the main plan and "
-            "placed devices' own plans, never an included file (other plans may include it); "
-            "check's fix lines:"
+            f"Left in included files after the combined set ({len(shared)}); check's fix lines:"
         )
         out.extend(
             f"  - {f.code} {f.severity} at {f.location}: {f.fix or f.message}" for f in shared
@@ -177,22 +180,32 @@ def suggestions_text(
     return "\n".join(out) + "\n"
 
 
-def in_included_files(plan: Plan, result: Result) -> list:
-    """The findings ``result`` leaves in files the plan includes (the advisor edits none of them),
-    worst first.
+def in_included_files(plan: Plan, result: Result, before: Result | None = None) -> list:
+    """The findings ``result`` leaves in files the plan includes, worst first: as the plan as
+    written (``before``) has them, so that their lines are the user's own (a change the combined
+    set made in an include moves the lines of its copy).
 
     Parameters:
         plan: the plan as written.
         result: the combined set's result.
+        before: the plan as written's result (None: ``result``'s own findings).
     Returns:
         the findings whose place is an included file.
     References:
         none (bookkeeping).
     """
     included = set(plan.files) - {plan.file}
-    return sorted(
-        (f for f in result.findings if f.location.file in included), key=lambda f: f.sort_key()
-    )
+    left = [f for f in result.findings if f.location.file in included]
+    if before is not None:
+        # the same rule about the same first element (a shared return's source, a bond's
+        # conductor): its other elements may have moved with the changes
+        still = {(f.code, f.elements[:1]) for f in left}
+        left = [
+            f
+            for f in before.findings
+            if f.location.file in included and (f.code, f.elements[:1]) in still
+        ]
+    return sorted(left, key=lambda f: f.sort_key())
 
 
 def _suggestion_lines(i: int, e: Evaluation, plan: Plan, text: str, name: str) -> list[str]:

@@ -135,7 +135,7 @@ def cmd_suggest(args) -> int:
         )
     render = SUGGESTION_FORMATS[args.format].render
     # the notices of the plan as written (lengths measured on it), not of the combined set
-    sys.stdout.write(render(plan, text, path.name, evs, chosen, final, before.notices))
+    sys.stdout.write(render(plan, text, path.name, evs, chosen, final, before))
     if target is not None:
         _write(application(plan, text, evs, chosen, target, args.pick, args.force), path, target)
         if args.pick is not None:
@@ -194,8 +194,9 @@ def _write(applied, path: Path, target: Path) -> None:
         )
     for out, _ in applied.files[1:]:
         sys.stderr.write(
-            f"groundcheck: wrote a changed copy of a device plan to {out} (the new plan names "
-            "it; the original is unchanged)\n"
+            f"groundcheck: wrote a changed copy of {out.name.removeprefix(target.stem + '.')} to "
+            f"{out} (the new plan "
+            "names it; the original is unchanged)\n"
         )
 
 

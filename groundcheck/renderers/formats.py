@@ -199,23 +199,23 @@ COMPARISON_FORMATS: dict[str, Format] = {
 }
 
 
-def _suggestions_text(plan, text: str, name: str, evs, chosen, final, notices=None) -> str:
+def _suggestions_text(plan, text: str, name: str, evs, chosen, final, before=None) -> str:
     from ..advice.report import suggestions_text
     from ..core.caution import CAUTION
 
-    return suggestions_text(plan, text, name, evs, chosen, final, CAUTION, notices)
+    return suggestions_text(plan, text, name, evs, chosen, final, CAUTION, before=before)
 
 
-def _suggestions_json(plan, text: str, name: str, evs, chosen, final, notices=None) -> str:
+def _suggestions_json(plan, text: str, name: str, evs, chosen, final, before=None) -> str:
     from ..advice.report import suggestions_document
     from ..core.plain import clean
 
-    doc = suggestions_document(plan, text, name, evs, chosen, final, notices)
+    doc = suggestions_document(plan, text, name, evs, chosen, final, before=before)
     return json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n"
 
 
 #: the advisor's suggestions: render(plan, plan text, file name, evaluations, chosen set, result,
-#: the notices of the plan as written)
+#: the result of the plan as written)
 SUGGESTION_FORMATS: dict[str, Format] = {
     f.name: f
     for f in (

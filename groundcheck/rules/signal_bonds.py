@@ -309,23 +309,12 @@ def _nearest_pe(
             return math.inf
         return min(math.dist(pos, q) for q in landings)
 
-    keep = min(
-        candidates,
-        key=lambda c: (
-            c in supply,
-            c in sockets,
-            c in pots,
-            c in away,
-            dist.get(c, 10**9),
-            metres(c),
-            c,
-        ),
-    )
+    def order(c: str) -> tuple:
+        return (c in sockets, c in pots, c in away, dist.get(c, 10**9), metres(c), c)
+
+    keep = min(candidates, key=lambda c: (c in supply, *order(c)))
     nearest = min(candidates, key=lambda c: (dist.get(c, 10**9), metres(c), c))
-    unweighed = min(
-        candidates,
-        key=lambda c: (c in sockets, c in pots, c in away, dist.get(c, 10**9), metres(c), c),
-    )
+    unweighed = min(candidates, key=order)
     if keep != unweighed:
         return keep, f" (the bond at {unweighed} is a supply's own lead, a winding's side)"
     if keep == nearest:
