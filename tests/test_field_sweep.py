@@ -109,7 +109,8 @@ NOT_SWEPT = {
 # (tests/test_field_mixer_desk.py; its advice takes 10 s))
 
 
-#: the plans swept in the suite: those of every eighth folder (helpers.corpus_sample; all of
+#: the plans swept in the suite: those of about an eighth of the folders, each chosen by its
+#: name (helpers.corpus_sample; all of
 #: them with GROUNDCHECK_WHOLE_CORPUS=1, benchmarks/README.md)
 SWEPT = [str(p.relative_to(FIELD)) for p in corpus_sample([FIELD / rel for rel in PLANS])]
 
