@@ -72,53 +72,43 @@ def device_copy_path(target: Path, device_file: str) -> Path:
 
 
 def applied_files(text: str, edits, plan: Plan, target: Path) -> list[tuple[Path, str]]:
-    """(path, text) of every file to write: the new plan first, then each changed device plan's
-    copy.  In the new plan, each ``device`` statement placing a changed plan names its copy instead
-    (a comment says so)."""
+    """(path, text) of every file to write: the new plan first, then each changed device plan's or
+    included file's copy.  In the new plan, each ``device`` statement placing a changed plan and
+    each ``include`` statement naming a changed file names its copy instead (a comment says so)."""
     new_text = apply_edits(text, edits)
     copies = {f: (device_copy_path(target, f), t) for f, t in edited_texts(edits).items()}
-    includes = direct_includes(plan, PlanTexts(text, plan.file))
-    if copies.keys() & includes.keys():  # an include statement names the changed copy
-        src = PlanTexts(new_text, plan.file)
-        repoint = []
-        for f in copies.keys() & includes.keys():
-            st = src.main.by_line[includes[f].loc.line]
-            edit = src.replace(st, [(st.phrases[0][0], f'"{copies[f][0].name}"')])
-            repoint.append(
-                dataclasses.replace(
-                    edit,
-                    new=f"{edit.new}   # changed copy of {st.phrases[0][0].value}, written by "
-                    "groundcheck suggest",
-                )
+    if not copies:
+        return [(target, new_text)]
+    # each include statement by the path it names (the edits may have moved its line)
+    includes = {
+        st.phrases[0][0].value: f
+        for f, st in direct_includes(plan, PlanTexts(text, plan.file)).items()
+    }
+    by_device = {}
+    for x in (*plan.conductors, *plan.points, *plan.metals):
+        dev = plan.index.device_of(x.name)
+        if x.location.file in copies and dev is not None:
+            by_device[dev] = x.location.file
+    src = PlanTexts(new_text, plan.file)
+    repoint = []
+    for st in src.main.by_line.values():
+        if not st.phrases or st.phrases[0][0].kind != "string":
+            continue
+        item = st.phrases[0][0]
+        if st.keyword == "device" and st.label in by_device:
+            copy = copies[by_device[st.label]][0]
+        elif st.keyword == "include" and includes.get(item.value) in copies:
+            copy = copies[includes[item.value]][0]
+        else:
+            continue
+        edit = src.replace(st, [(item, f'"{copy.name}"')])
+        repoint.append(
+            dataclasses.replace(
+                edit,
+                new=f"{edit.new}   # changed copy of {item.value}, written by groundcheck suggest",
             )
-        new_text = apply_edits(new_text, repoint)
-    if copies.keys() - includes.keys():
-        by_device = {}
-        for x in (*plan.conductors, *plan.points, *plan.metals):
-            dev = plan.index.device_of(x.name)
-            if x.location.file in copies and dev is not None:
-                by_device[dev] = x.location.file
-        src = PlanTexts(new_text, plan.file)
-        repoint = []
-        for st in src.main.by_line.values():
-            if (
-                st.keyword == "device"
-                and st.label in by_device
-                and st.phrases
-                and st.phrases[0][0].kind == "string"
-            ):
-                item = st.phrases[0][0]
-                copy = copies[by_device[st.label]][0]
-                edit = src.replace(st, [(item, f'"{copy.name}"')])
-                repoint.append(
-                    dataclasses.replace(
-                        edit,
-                        new=f"{edit.new}   # changed copy of {item.value}, "
-                        "written by groundcheck suggest",
-                    )
-                )
-        new_text = apply_edits(new_text, repoint)
-    return [(target, new_text), *copies.values()]
+        )
+    return [(target, apply_edits(new_text, repoint)), *copies.values()]
 
 
 def moved_references(text: str, file: str, target: Path) -> list[str]:
