@@ -36,6 +36,11 @@ def test_the_shared_transformer_screw_is_the_danger_named_in_the_included_file(d
     # protective lead (thicker than the 0.75 mm² line conductor), the ceramic fuse
     assert not {"GC204", "GC206", "GC207", "GC211"} & {f.code for f in desk.findings}
     assert not [f for f in desk.findings if "rh" in f.elements]
+    # his plan has a ground bus and no star: the shared returns' fixes say where a return goes
+    # without sending him to a star he has not got
+    shared = [f for f in desk.findings if f.code == "GC102"]
+    assert shared and all("star" not in f.fix for f in shared)
+    assert "then one wire to the signal ground's common point" in shared[0].fix
 
 
 def test_the_charging_currents_100_hz_line_is_his_ladder_estimate(desk):

@@ -71,8 +71,14 @@ def rule_shared_returns(s: Solved) -> list[Finding]:
     unearthed = {d.device for d in (s.device_earths or ()) if d.resistance is None}
     amps = _ac_currents(s)
     lines = _lines(s) if leak else {}
+    # where a return goes: the star, or in a plan without one (a ground bus) its common point
+    star = (
+        "the star"
+        if any(p.kind == "star" for p in s.plan.points)
+        else "the signal ground's common point"
+    )
     for row in s.coupling:
-        fix = _shared_fix(row, plan_conductors, leak)
+        fix = _shared_fix(row, plan_conductors, leak, star)
         dev = s.plan.index.device_of(row.source) if row.source in leak else None
         holding, held = _holding(s, row, plan_conductors, unearthed)
         if dev in unearthed:
@@ -173,7 +179,7 @@ def _unearthed_fix(dev: str, holding: list[str], devices: list[str]) -> str:
     )
 
 
-def _shared_fix(row, plan_conductors: dict, leak: set) -> str:
+def _shared_fix(row, plan_conductors: dict, leak: set, star: str = "the star") -> str:
     """What to do about one shared return: by where its current meets the stage (an interconnect's
     shield, balanced or not; a leakage current; a supply return)."""
     via_ic = [x for x in row.shared if x in plan_conductors and joins_devices(plan_conductors[x])]
@@ -201,9 +207,10 @@ def _shared_fix(row, plan_conductors: dict, leak: set) -> str:
         )
     else:
         fix = (
-            f"join {row.a} and {row.b} by a short wire of their own, then one wire to the star; "
-            f"take {row.stage_b} and {row.stage_a} to the signal star by wires that carry no "
-            "supply current"
+            f"join {row.a} and {row.b} by a short wire of their own, then one wire to {star}; "
+            f"take {row.stage_b} and {row.stage_a} to "
+            f"{'the signal star' if star == 'the star' else star} by wires that carry no supply "
+            "current"
         )
     return fix
 
