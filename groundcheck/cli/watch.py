@@ -360,6 +360,7 @@ def serve(args) -> int:
     except KeyboardInterrupt:
         pass
     finally:
+        signal.signal(signal.SIGTERM, lambda *_: None)  # a second one while stopping: no matter
         stop.set()
         with view.changed:
             view.changed.notify_all()
