@@ -113,12 +113,16 @@ def test_the_signal_grounds_bond_is_never_kept_on_the_centre_taps_lead():
     assert ("remove", "ctlead") in f.actions and ("remove", "b0") not in f.actions
 
 
-def test_the_hum_table_prints_no_rounding_as_a_figure(cli, desk):
+def test_the_hum_table_prints_no_rounding_as_a_figure(cli, desk, tmp_path):
     # a full-wave supply puts nothing at 250 Hz: its line there is the rounding of a sum that
-    # cancels, −214 dBV, 177 dB under the 50 Hz line; the text table leaves it out (the JSON keeps
+    # cancels, −214 dBV, 177 dB under the 50 Hz line; the reports leave it out (the JSON keeps
     # every line)
     line = next(x for x in desk.hum.channels["mix"].spectrum if x.frequency == 250.0)
     assert line.dbv < -200
     code, out, _ = cli("check", str(FIELD / "mixer.gplan"))
     table = out[out.index("Hum and buzz at the output") :]
     assert "│   250 │" not in table and "│   300 │" in table
+    # the HTML report's spectrum table and chart alike (ChannelHum.spectrum_shown)
+    code, _, _ = cli("report", str(FIELD / "mixer.gplan"), "-o", str(tmp_path / "r.html"))
+    page = (tmp_path / "r.html").read_text()
+    assert "<td class=num>250</td>" not in page and "<td class=num>300</td>" in page

@@ -18,10 +18,12 @@ from .feedback import feedback_rows
 from .hearing import heard_threshold, spl_of
 from .hum_rows import Contributor, CrosstalkLine, FeedbackLine, LoopPickup, SpectrumLine
 
-__all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "CROSSTALK_FLOOR_DB"]
+__all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "ROUNDING", "CROSSTALK_FLOOR_DB"]
 
 #: output voltages below this (V) are numerical noise and shown as zero (−240 dBV)
 FLOOR_V = 1e-12
+#: a spectrum line under this fraction of its channel's largest is rounding, not a figure (−160 dB)
+ROUNDING = 1e-8
 
 #: crosstalk is not shown below this (dB)
 CROSSTALK_FLOOR_DB = -200.0
@@ -54,6 +56,14 @@ class ChannelHum:
     @property
     def signed_dbv(self) -> float:
         return dbv(self.signed_v)
+
+    @property
+    def spectrum_shown(self) -> list:
+        """The lines a report shows as figures: above zero and above :data:`ROUNDING` of the
+        largest (a line 160 dB under it is the rounding of a sum that cancels, as a full-wave
+        supply's odd harmonics; the JSON keeps every line)."""
+        top = max((r.volts for r in self.spectrum), default=0.0)
+        return [r for r in self.spectrum if r.volts > 0 and r.volts > ROUNDING * top]
 
     @property
     def signal_to_hum(self) -> float:

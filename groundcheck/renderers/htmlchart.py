@@ -44,7 +44,7 @@ def spectrum_svg(channel, listening: bool, max_freq: float) -> str:
     With a listening context the axis is dB SPL at the listener; otherwise dBV at the output.
     """
     W, H, L, R, T, B = 640, 260, 50, 10, 15, 35
-    rows = [r for r in channel.spectrum if r.volts > 0]
+    rows = channel.spectrum_shown
     vals = [_level(r, listening) for r in rows if _level(r, listening) is not None]
     thr = [threshold_of_hearing(f) for f in (20, 50, 100, 200, 500, 1000, 2000, 5000, 10000)]
     lo_f, hi_f = 20.0, max(1000.0, max_freq * 1.2)

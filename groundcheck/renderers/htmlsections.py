@@ -83,7 +83,7 @@ def hum_section(result: Result, parts: list[str], e=escape) -> None:
                 f"<h3>{e(ch)}</h3><div "
                 f'class="chart">{spectrum_svg(h, listening, result.options.max_frequency)}</div>'
             )
-            rows = [r for r in h.spectrum if r.volts > 0]  # every harmonic the chart shows
+            rows = h.spectrum_shown  # every harmonic the chart shows
             parts.append(
                 '<table class="spectrum"><tr><th>Hz</th><th>dBV</th><th>dB '
                 "SPL</th><th>threshold</th><th>margin</th></tr>"

@@ -13,9 +13,6 @@ from ..rules.results import Result
 from .fieldtable import field_axes_table
 from .textwords import TABLE_LOOPS, TABLE_ROWS, escape, number
 
-#: a harmonic under this fraction of its channel's largest is rounding, not listed (−160 dB)
-ROUNDING = 1e-8
-
 __all__ = ["hum_tables", "rectifier_table", "axis_words", "signed_words"]
 
 
@@ -36,10 +33,7 @@ def hum_tables(result: Result, console: Console) -> None:
         t.add_column(col, justify="right" if col != "channel" else "left")
     left_out = {}
     for ch, h in result.hum.channels.items():
-        # a line 160 dB under the channel's largest is the rounding of a sum that cancels (a
-        # full-wave supply's odd harmonics): not a figure to print
-        top = max((r.volts for r in h.spectrum), default=0.0)
-        rows = [r for r in h.spectrum if r.volts > ROUNDING * top]
+        rows = h.spectrum_shown  # rounding (160 dB under the largest) is no figure
         # every harmonic above the threshold is shown; the others up to TABLE_ROWS, the rest
         # counted
         shown_rows = [r for i, r in enumerate(rows) if i < TABLE_ROWS or r.audible]
