@@ -8,6 +8,7 @@
     python benchmarks/fuzz_campaign.py --advice 1000          # the advisor's promises, N plans
     python benchmarks/fuzz_campaign.py --hostile 10000        # the hostile families, N cases each
     python benchmarks/fuzz_campaign.py --hostile 200 --family signals  # one family
+    python benchmarks/fuzz_campaign.py --hostile 10000 --family signals --streams 2  # two at once
 
 Every input must end in a result or in PlanErrors with FILE:LINE:COL messages; anything else is a
 crash to record as a regression test in tests/test_robustness.py.  The invariant properties of
@@ -161,34 +162,51 @@ def advice(n: int) -> None:
     )
 
 
-def hostile(n: int, families: list[str], seed: int = 11) -> int:
+def hostile(n: int, families: list[str], seed: int = 11, streams: int = 1) -> int:
     """``n`` cases of each hostile family: outcomes, failures (the first case of each kind), the
-    slowest case and the process's peak memory; returns the number of failures."""
+    slowest case, the longest stop after a signal and the process's peak memory; returns the
+    number of failures.  The signals family may run ``streams`` cases at once (each is a process
+    of its own; case ``i`` draws from its own seed, so a failure is re-run alone by its number)."""
     import random
     import resource
     from collections import Counter
+    from concurrent.futures import ThreadPoolExecutor
 
     from hostile_families import FAMILIES
 
     failed = 0
     for name in families:
-        rng = random.Random(f"{seed}-{name}")
         seen: Counter = Counter()
         kinds: dict[str, int] = {}
-        slowest = (0.0, -1)
+        slowest, stop = (0.0, -1), (0.0, -1)
         t0 = time.perf_counter()
-        for i in range(n):
+        shared = random.Random(f"{seed}-{name}")
+
+        def case(i: int, name: str = name, shared: random.Random = shared):
+            rng = random.Random(f"{seed}-{name}-{i}") if name == "signals" else shared
             s = time.perf_counter()
             try:
-                seen[FAMILIES[name](rng).split(" in ")[0]] += 1
+                return i, FAMILIES[name](rng), None, time.perf_counter() - s
             except Exception as e:  # noqa: BLE001 - every failure is recorded
-                kinds.setdefault(f"{type(e).__name__}: {str(e)[:160]}", i)
-                failed += 1
-            slowest = max(slowest, (time.perf_counter() - s, i))
+                return i, "", f"{type(e).__name__}: {str(e)[:160]}", time.perf_counter() - s
+
+        width = streams if name == "signals" else 1
+        with ThreadPoolExecutor(width) as pool:
+            for i, outcome, failure, took in pool.map(case, range(n)):
+                if failure:
+                    kinds.setdefault(failure, i)
+                    failed += 1
+                seen[outcome.split(" in ")[0]] += 1
+                slowest = max(slowest, (took, i))
+                if " stopped in " in outcome:
+                    stop = max(stop, (float(outcome.split(" stopped in ")[1].split()[0]), i))
+                if (i + 1) % 500 == 0:
+                    print(f"  {name}: {i + 1} cases, {failed} failed", flush=True)
         peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
         print(
             f"{name}: {n} cases in {time.perf_counter() - t0:.0f} s, {len(kinds)} kinds of "
-            f"failure, slowest {slowest[0]:.2f} s (case {slowest[1]}), peak {peak:.0f} MiB; "
+            f"failure, slowest {slowest[0]:.2f} s (case {slowest[1]}), longest stop after a "
+            f"signal {stop[0]:.2f} s (case {stop[1]}), peak {peak:.0f} MiB; "
             f"{dict(seen.most_common(8))}",
             flush=True,
         )
@@ -233,10 +251,17 @@ def main() -> None:
         choices=["structural", "files", "unicode", "signals"],
         help="only this hostile family (repeatable)",
     )
+    ap.add_argument(
+        "--streams",
+        type=int,
+        default=1,
+        metavar="K",
+        help="with --hostile: K signal cases at once (each a process of its own)",
+    )
     args, rest = ap.parse_known_args()
     if args.hostile:
         families = args.family or ["structural", "files", "unicode", "signals"]
-        sys.exit(1 if hostile(args.hostile, families) else 0)
+        sys.exit(1 if hostile(args.hostile, families, streams=args.streams) else 0)
     if args.advice:
         advice(args.advice)
         return
