@@ -196,6 +196,7 @@ def hostile(n: int, families: list[str], seed: int = 11, streams: int = 1) -> in
                 if failure:
                     kinds.setdefault(failure, i)
                     failed += 1
+                    print(f"  {name} case {i} failed: {failure}", flush=True)
                 seen[outcome.split(" in ")[0]] += 1
                 slowest = max(slowest, (took, i))
                 if " stopped in " in outcome:
