@@ -52,12 +52,25 @@ def _plain(x) -> str:
     return repr(x)
 
 
-#: conductor keys already written, by the conductor (a frozen record: equal records have equal
-#: keys); the advisor and the watch re-analyse plans whose conductors are mostly the same
+#: conductor keys already written, by what they are written from (the record's type, its kind and
+#: the values of its fields that name nothing): the advisor and the watch re-analyse plans whose
+#: conductors are mostly the same, and a large plan holds many conductors alike but for their names
 _KEYS: dict = {}
 _KEYS_MAX = 1 << 16
 #: each kind's row of the kinds table as its key (the table is fixed)
 _KIND_KEYS: dict = {}
+#: each record type's fields that a key is written from
+_KEY_FIELDS: dict = {}
+_SKIPPED = _NAMING | _PLACING
+
+
+def _key_fields(c) -> tuple[str, ...]:
+    fields = _KEY_FIELDS.get(type(c))
+    if fields is None:
+        fields = _KEY_FIELDS[type(c)] = tuple(
+            f for f in getattr(c, "__dataclass_fields__", {}) if f not in _SKIPPED
+        )
+    return fields
 
 
 def _conductor_key(c) -> str:
@@ -65,19 +78,20 @@ def _conductor_key(c) -> str:
     tree takes the wiring and such a conductor closes the loop it makes (and names it)."""
     if c is None:
         return ""
+    fields = _key_fields(c)
+    values = (type(c), c.kind, *(getattr(c, f) for f in fields))
     try:
-        key = _KEYS.get(c)
+        key = _KEYS.get(values)
     except TypeError:  # a record holding something unhashable: written each time
-        return _written_key(c)
+        return _written_key(c, fields)
     if key is None:
         if len(_KEYS) >= _KEYS_MAX:
             _KEYS.clear()
-        key = _KEYS[c] = _written_key(c)
+        key = _KEYS[values] = _written_key(c, fields)
     return key
 
 
-def _written_key(c) -> str:
-    fields = getattr(c, "__dataclass_fields__", {})
+def _written_key(c, fields: tuple[str, ...]) -> str:
     last = shield_like(c) or joins_devices(c)
     # a kind by what its row of the kinds table says, not by its word: two kinds whose rows
     # differ in nothing but the word are one
@@ -87,9 +101,7 @@ def _written_key(c) -> str:
         kind = _KIND_KEYS[c.kind] = _plain(
             tuple(getattr(row, f.name) for f in dataclasses.fields(row) if f.name != "name")
         )
-    return f"{int(last)};{kind};" + ";".join(
-        f"{f}={_plain(getattr(c, f))}" for f in fields if f not in _NAMING | _PLACING
-    )
+    return f"{int(last)};{kind};" + ";".join(f"{f}={_plain(getattr(c, f))}" for f in fields)
 
 
 def _node_key(data: dict) -> str:

@@ -46,12 +46,14 @@ def build_graph(plan: Plan) -> nx.MultiGraph:
     return G
 
 
-def plan_ranks(plan: Plan) -> dict:
+def plan_ranks(plan: Plan, G: nx.MultiGraph | None = None) -> dict:
     """The canonical ranks (:func:`~groundcheck.network.canonical.canonical_ranks`) of the plan's
     network, worked out once per plan and kept in its index.
 
     Parameters:
         plan: the plan.
+        G: the plan's network as :func:`build_graph` gives it, when the caller has built it (its
+            ranks are then the ones kept, and the graph holds them too).
     Returns:
         element name -> rank (0 first), nodes and conductors in one numbering.
     References:
@@ -59,7 +61,9 @@ def plan_ranks(plan: Plan) -> dict:
     """
     memo = plan.index.derived
     if "canonical_ranks" not in memo:
-        memo["canonical_ranks"] = canonical_ranks(build_graph(plan))
+        memo["canonical_ranks"] = canonical_ranks(build_graph(plan) if G is None else G)
+    elif G is not None:
+        G.graph.setdefault("canonical_ranks", memo["canonical_ranks"])
     return memo["canonical_ranks"]
 
 

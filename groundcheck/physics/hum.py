@@ -156,7 +156,7 @@ class HumBudget:
         # equal shares are named in the network's name- and order-free order
         self.owner_rank = owner_ranks(plan, self.owners)
         # conductors in series ranked as one contributor (a wire written in two pieces)
-        self.runs = run_columns(self.owners, runs or {})
+        self.runs = run_columns(self.owners, runs or {}, self.owner_rank)
         self.branch_index = {b.conductor: i for i, b in enumerate(circuit.branches) if b.conductor}
         self._listening(plan.listening)
         self._stages(plan.stages)

@@ -13,13 +13,23 @@ References: reciprocity (Penfield, Spence, Duinker, *Tellegen's Theorem and Elec
 
 from __future__ import annotations
 
+from typing import NamedTuple
+
 import numpy as np
 
 from .coupling import channel_tests, source_injections
 from .sources import source_group
 from .ranking import largest
 
-__all__ = ["source_part", "run_columns", "TOP_SHARES", "NETWORK_ROWS", "SOURCE_CHUNK"]
+__all__ = [
+    "source_part",
+    "run_columns",
+    "Runs",
+    "TOP_SHARES",
+    "NETWORK_ROWS",
+    "SOURCE_CHUNK",
+    "CANDIDATES",
+]
 
 #: conductors named per source and stage as hum contributors (the rest are summed)
 TOP_SHARES = 10
@@ -31,7 +41,25 @@ NETWORK_ROWS = 50
 SOURCE_CHUNK = 128
 
 
-def run_columns(owners: list[str], runs: dict) -> tuple | None:
+class Runs(NamedTuple):
+    """Conductors in series as one column each (:func:`run_columns`)."""
+
+    #: the branches in no run
+    singles: np.ndarray
+    #: the runs' branches, run by run
+    members: np.ndarray
+    #: each run's branches as a list
+    groups: list
+    #: runs × members, a one where the member belongs to the run: Σ of a run's shares by one
+    #: sparse product
+    gather: object
+    #: each column's place in the canonical order: the single branches', then each run's first
+    rank: np.ndarray
+    #: each column's branches: a single branch's alone, then each run's
+    cols: list
+
+
+def run_columns(owners: list[str], runs: dict, rank: np.ndarray) -> Runs | None:
     """The branches of conductors in series (``runs``: each conductor of a run -> the run's
     conductors) as one column each run, so that a conductor written in two pieces takes one of the
     TOP_SHARES places, as it is one contributor; ``None`` when no run joins two branches.
@@ -39,12 +67,15 @@ def run_columns(owners: list[str], runs: dict) -> tuple | None:
     Parameters:
         owners: each branch's owner.
         runs: the runs in series (:func:`groundcheck.rules.hum_rules.series_runs`).
+        rank: each branch's place in the canonical order
+            (:func:`groundcheck.physics.coupling.owner_ranks`).
     Returns:
-        (single branches, run members' branches, each member's run index, the runs' members as
-        lists of branch indices), or ``None``.
+        the :class:`Runs`, or ``None``.
     References:
         Kirchhoff's current law (a run carries one current).
     """
+    from scipy.sparse import csr_matrix
+
     keyed: dict[tuple, list[int]] = {}
     for bi, o in enumerate(owners):
         run = runs.get(o)
@@ -57,19 +88,59 @@ def run_columns(owners: list[str], runs: dict) -> tuple | None:
     singles = np.array([bi for bi in range(len(owners)) if bi not in grouped], dtype=int)
     members = np.array([bi for m in groups for bi in m], dtype=int)
     which = np.array([g for g, m in enumerate(groups) for _ in m], dtype=int)
-    return singles, members, which, groups
+    gather = csr_matrix(
+        (np.ones(len(members)), (which, np.arange(len(members)))),
+        shape=(len(groups), len(members)),
+    )
+    order = np.concatenate([rank[singles], [min(rank[m] for m in r) for r in groups]])
+    cols = [[int(bi)] for bi in singles] + groups
+    return Runs(singles, members, groups, gather, order.astype(int), cols)
+
+
+#: columns kept as candidates for each row's largest (those of the largest column maxima)
+CANDIDATES = 256
 
 
 def _largest(mags, rank):
     """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken in the
     owners' canonical order (``rank``: :func:`groundcheck.physics.coupling.owner_ranks`), neither
     by their names nor by the order the plan writes its conductors in."""
-    nb, k = mags.shape[1], min(mags.shape[1], TOP_SHARES + 8)
-    near = np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
+    nb = mags.shape[1]
+    near = _near(mags, min(nb, TOP_SHARES + 8))
     rows = np.arange(len(mags))[:, None]
-    q = np.round(mags[rows, near] / np.maximum(mags.max(axis=1), 1e-300)[:, None], 9)
-    order = np.lexsort((rank[near], -q), axis=1)[:, :TOP_SHARES]
-    return near[rows, order]
+    peak = np.maximum(mags.max(axis=1), 1e-300)[:, None]
+    q = np.round(mags[rows, near] / peak, 9)
+    order = np.lexsort((rank[near], -q), axis=1)
+    out = near[rows, order[:, :TOP_SHARES]]
+    if near.shape[1] < nb:
+        # a row whose tenth share ties with the last one sought may have more equal ones
+        # outside them: chosen among the whole row (shares under a thousandth of the largest
+        # are never named, so their ties do not matter)
+        ends = np.take_along_axis(q, order[:, [TOP_SHARES - 1, -1]], axis=1)
+        for r in np.flatnonzero((ends[:, 0] == ends[:, 1]) & (ends[:, 0] >= 1e-3)):
+            qr = np.round(mags[r] / peak[r], 9)
+            out[r] = np.lexsort((rank, -qr))[:TOP_SHARES]
+    return out
+
+
+def _near(mags, k: int) -> np.ndarray:
+    """The columns of each row's ``k`` largest.  On a wide array they are sought first among the
+    CANDIDATES columns of the largest maxima: a row whose k-th largest there is above every other
+    column's maximum has them all there; the other rows are searched whole."""
+    nb = mags.shape[1]
+    if nb <= 4 * CANDIDATES:
+        return np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
+    colmax = mags.max(axis=0)
+    cut = np.argpartition(colmax, nb - CANDIDATES - 1)
+    cols, bound = cut[nb - CANDIDATES :], colmax[cut[nb - CANDIDATES - 1]]
+    sub = mags[:, cols]
+    pick = np.argpartition(sub, CANDIDATES - k, axis=1)[:, CANDIDATES - k :]
+    near = cols[pick]
+    kth = np.take_along_axis(sub, pick, axis=1).min(axis=1)
+    whole = np.flatnonzero(~(kth > bound))
+    if whole.size:
+        near[whole] = np.argpartition(mags[whole], nb - k, axis=1)[:, nb - k :]
+    return near
 
 
 def source_part(b, f: float, fac, active: list, part) -> None:
@@ -155,14 +226,10 @@ def _shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
 def _run_shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
     """:func:`_shares` with the runs in series as one column each: the single branches' |share|
     and each run's |Σ share| side by side, ranked together."""
-    singles, members, which, runs = b.runs
-    run_sum = np.zeros((len(runs), len(groups)), dtype=complex)
-    np.add.at(run_sum, which, zi[members, :] * tc[members, None])
-    run_sum = run_sum.T  # sources × runs
+    singles, members, _, gather, rank, cols = b.runs
+    # each run's Σ share per source, its members' shares added in their order
+    run_sum = np.asarray(gather @ (zi[members, :] * tc[members, None])).T  # sources × runs
     mags = np.concatenate([mags_all[:, singles], np.abs(run_sum)], axis=1)
-    rank = np.concatenate(
-        [b.owner_rank[singles], [min(b.owner_rank[m] for m in r) for r in runs]]
-    ).astype(int)
     rows = np.arange(len(groups))[:, None]
     tops = _tops(mags, rank, len(groups))
     ns = len(singles)
@@ -172,10 +239,18 @@ def _run_shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
     picked = singles[tops[single]]
     top_shares[single] = zi[picked, row_of[single]] * tc[picked]
     top_shares[~single] = run_sum[row_of[~single], tops[~single] - ns]
-    cols = [[int(bi)] for bi in singles] + [list(r) for r in runs]
-    each = {bi: zi[bi, :] * tc[bi] for r in runs for bi in r}  # a member's own share per source
     _emit(
-        b, ch, mags[rows, tops], top_shares, tops, cols, v_all, groups, part, mags.shape[1], each
+        b,
+        ch,
+        mags[rows, tops],
+        top_shares,
+        tops,
+        cols,
+        v_all,
+        groups,
+        part,
+        mags.shape[1],
+        (zi, tc),
     )
 
 
@@ -218,8 +293,9 @@ def _emit(b, ch, top_mags, top_shares, tops, cols, v_all, groups, part, ncols, e
                 bi = col if cols is None else cols[col][0]
                 part.contrib.append((ch, ("conductor", owners[bi], group), share))
                 continue
+            zi, tc = each  # a member's own share
             for bi in cols[col]:
-                own = complex(each[bi][si])
+                own = complex(zi[bi, si] * tc[bi])
                 part.contrib.append((ch, ("conductor", owners[bi], group), own))
         rest = rests[si]
         if many and abs(rest) > 1e-3 * abs(v_out):

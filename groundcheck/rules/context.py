@@ -34,6 +34,7 @@ from ..network.earthing import ProtectiveRoute, earth_terminals, protective_rout
 from ..network.graph import (
     Loop,
     build_graph,
+    plan_ranks,
     components,
     edges_of,
     fundamental_loops,
@@ -89,7 +90,10 @@ class AuditContext:
 
     def __post_init__(self):
         if self.G is None:
+            # the plan's own network: its canonical ranks, worked out once, serve the loops here
+            # and the hum budget's named shares (network.graph.plan_ranks)
             self.G = build_graph(self.plan)
+            plan_ranks(self.plan, self.G)
 
     @cached_property
     def conductors(self) -> dict[str, Conductor]:
