@@ -11,8 +11,6 @@ The figures are estimates from the plan, not a substitute for measurement.
 """
 
 from .core.errors import GroundcheckError, Location, PlanError, PlanErrors
-from .language.loader import load, load_text
-
 from .core.version import __version__
 
 __all__ = [
@@ -26,6 +24,17 @@ __all__ = [
     "Location",
     "__version__",
 ]
+
+
+def __getattr__(name: str):
+    """``load`` and ``load_text`` (:mod:`groundcheck.language.loader`), imported when first asked
+    for: the ``groundcheck`` command's first step, its signal handler, runs before the parser is
+    imported."""
+    if name in ("load", "load_text"):
+        from .language import loader
+
+        return getattr(loader, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def analyze(plan, options=None):

@@ -329,18 +329,30 @@ def signal_case(rng: random.Random) -> str:
         for k in left:
             os.kill(k, signal.SIGKILL)
         assert not left, f"{sig.name}: workers {left} left"
-        if (
-            "Traceback" in err
-            and err.rstrip().endswith("KeyboardInterrupt")
-            and "groundcheck/cli" not in err
-        ):
-            # before any of ours runs
-            return f"{sig.name} while Python imported the package (its own traceback)"
-        assert "Traceback" not in err, err[-3000:]
+        if _before_ours(err):
+            return f"{sig.name} while Python started, before the command's handler (its traceback)"
+        assert "Traceback" not in err and "Exception ignored" not in err, err[-3000:]
         finished = proc.returncode in (0, 1)
         assert finished or not out.exists(), f"{sig.name}: partial output"
         assert not list(Path(tmp).glob(".groundcheck-*"))
         return f"{sig.name} {'finished first' if finished else f'stopped in {took:.2f} s'}"
+
+
+#: the files a run goes through before the command's signal handler is installed
+#: (groundcheck/__main__.py's first step)
+_FIRST_STEPS = re.compile(r"groundcheck/(__init__|__main__|core/(runtime|errors|version))\.py")
+
+
+def _before_ours(err: str) -> bool:
+    """Whether a traceback is Python's own, from before the command's handler: a signal while the
+    interpreter starts (site's ``.pth`` processing) or imports the first modules."""
+    if "Traceback" not in err:
+        return False
+    if re.search(r"Error processing line \d+ of \S+\.pth", err) and "groundcheck/" not in err:
+        return True
+    files = set(re.findall(r'File "([^"]+)"', err))
+    ours = {f for f in files if "groundcheck/" in f}
+    return err.rstrip().endswith("KeyboardInterrupt") and all(_FIRST_STEPS.search(f) for f in ours)
 
 
 def _ctrl_c_default() -> None:

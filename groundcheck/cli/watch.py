@@ -347,6 +347,7 @@ def serve(args) -> int:
     # SIGTERM stops the view as Ctrl-C does, from the first analysis on (a page can show its
     # result before that analysis has returned)
     previous = signal.signal(signal.SIGTERM, _interrupt)
+    previous_int = signal.signal(signal.SIGINT, signal.default_int_handler)
     try:
         for t in threads:  # watching before the first analysis: a save during it is not missed
             t.start()
@@ -367,6 +368,7 @@ def serve(args) -> int:
         server.shutdown()
         server.server_close()
         signal.signal(signal.SIGTERM, previous)
+        signal.signal(signal.SIGINT, previous_int)
     sys.stderr.write("groundcheck: live view stopped\n")
     return 0
 

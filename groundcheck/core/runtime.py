@@ -26,6 +26,8 @@ __all__ = [
     "note_read",
     "files_read",
     "terminate_as_exit",
+    "stop_at_once",
+    "TEMPORARY",
 ]
 
 #: every plan file this process has read (resolved): outputs may never be written over one of them
@@ -205,7 +207,11 @@ def quiet_child() -> None:
 
 def die_with_parent() -> None:
     """Linux: this worker gets SIGTERM when the process that started it ends (a SIGTERM or Ctrl-C
-    to the run stops its workers within a moment instead of leaving them to finish their queue)."""
+    to the run stops its workers within a moment instead of leaving them to finish their queue).
+    Ctrl-C, which a terminal sends to the whole process group, is the parent's to answer: the
+    worker ignores it; SIGTERM ends it at once, even inside a long numerical call."""
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
     parent = os.getppid()
     try:
         import ctypes
@@ -220,6 +226,42 @@ def die_with_parent() -> None:
 
 def _exit_on_signal(signum, frame):
     raise SystemExit(128 + signum)
+
+
+#: temporary files being written (``renderers.output``): removed by :func:`stop_at_once`'s handler
+TEMPORARY: set[str] = set()
+#: the process whose command installed :func:`stop_at_once`'s handler
+_STOPPING: list[int] = []
+
+
+def _stop(signum, frame) -> None:
+    if os.getpid() not in _STOPPING:  # a worker forked before its own start-up: gone quietly
+        os._exit(128 + signum)
+    for tmp in list(TEMPORARY):
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+    if signum == signal.SIGINT:
+        try:
+            os.write(2, b"groundcheck: interrupted\n")
+        except OSError:
+            pass
+    os._exit(128 + signum)
+
+
+def stop_at_once() -> None:
+    """For the ``groundcheck`` command alone (never the library, nor :func:`cli.main`): Ctrl-C and
+    SIGTERM end the process at once, with status 130 or 143, after removing a half-written
+    output's temporary file; the workers follow (:func:`die_with_parent`).
+
+    An exception raised by a signal can land in a callback the interpreter only reports — a
+    weakref's, a fork hook's, a C library's — where it prints a traceback and the run goes on;
+    ending the process from the handler leaves nothing half done that anything else would
+    finish."""
+    _STOPPING[:] = [os.getpid()]
+    signal.signal(signal.SIGINT, _stop)
+    signal.signal(signal.SIGTERM, _stop)
 
 
 @contextmanager

@@ -23,7 +23,6 @@ from __future__ import annotations
 
 import gc
 import multiprocessing
-import signal
 from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from functools import partial
@@ -48,10 +47,7 @@ _LIMIT_THREADS: Callable | None = None
 
 
 def _start_worker() -> None:
-    quiet_child()
-    signal.signal(
-        signal.SIGINT, signal.SIG_IGN
-    )  # Ctrl-C is the parent's to answer: it ends the workers
+    quiet_child()  # Ctrl-C ignored, SIGTERM at once: the parent answers, its workers follow
     gc.disable()
     if _LIMIT_THREADS is not None:
         _LIMIT_THREADS()

@@ -7,7 +7,7 @@ import tempfile
 from pathlib import Path
 
 from ..core.errors import GroundcheckError
-from ..core.runtime import files_read, terminate_as_exit
+from ..core.runtime import TEMPORARY, files_read, terminate_as_exit
 
 __all__ = ["write_atomic", "OutputError"]
 
@@ -66,6 +66,7 @@ def _umask() -> int:
 def _write_through_temporary(target: Path, folder: Path, data: str | bytes) -> None:
     mode = "wb" if isinstance(data, bytes) else "w"
     fd, tmp = tempfile.mkstemp(prefix=".groundcheck-", dir=folder)
+    TEMPORARY.add(tmp)
     try:
         with os.fdopen(
             fd, mode, **({} if isinstance(data, bytes) else {"encoding": "utf-8", "newline": "\n"})
@@ -79,3 +80,5 @@ def _write_through_temporary(target: Path, folder: Path, data: str | bytes) -> N
         except OSError:
             pass
         raise
+    finally:
+        TEMPORARY.discard(tmp)

@@ -1,0 +1,84 @@
+"""Ctrl-C and SIGTERM end the ``groundcheck`` command at once, wherever they land (the signals
+family of the hostile campaign found a Ctrl-C swallowed with a traceback printed: inside a fork
+hook, a weakref callback, a C library's callback, a worker before its start-up)."""
+
+import os
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+from helpers import EXAMPLES
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _command_with_a_slow_fork_hook(tmp_path: Path) -> subprocess.Popen:
+    """The command checking two plans with two workers, each fork of the parent held up in a hook
+    the interpreter only reports from (as logging's lock release is)."""
+    code = (
+        "import os, sys, time\n"
+        "os.register_at_fork(after_in_parent=lambda: time.sleep(2))\n"
+        "import groundcheck.__main__ as m\n"
+        f"sys.argv = ['groundcheck', 'check', {str(EXAMPLES[0])!r}, {str(EXAMPLES[1])!r}, "
+        f"'--jobs', '2', '--format', 'json', '-o', {str(tmp_path / 'out.json')!r}]\n"
+        "sys.exit(m.run())\n"
+    )
+    return subprocess.Popen(
+        [sys.executable, "-c", code],
+        stderr=subprocess.PIPE,
+        text=True,
+        start_new_session=True,
+        env={**os.environ, "PYTHONPATH": str(ROOT)},
+    )
+
+
+def _children(pid: int) -> list[int]:
+    try:
+        return [int(x) for x in Path(f"/proc/{pid}/task/{pid}/children").read_text().split()]
+    except OSError:
+        return []
+
+
+def test_a_ctrl_c_inside_a_fork_hook_ends_the_run_without_a_traceback(tmp_path):
+    proc = _command_with_a_slow_fork_hook(tmp_path)
+    deadline = time.monotonic() + 60
+    while not _children(proc.pid) and time.monotonic() < deadline:
+        time.sleep(0.01)
+    assert _children(proc.pid), "no worker was started"
+    os.killpg(proc.pid, signal.SIGINT)  # as a terminal's Ctrl-C: the run and its workers
+    _, err = proc.communicate(timeout=10)
+    assert proc.returncode == 130, err
+    assert "Traceback" not in err and "Exception ignored" not in err, err
+    assert err.strip().endswith("groundcheck: interrupted")
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_sigterm_ends_the_command_with_its_status_and_no_output(tmp_path):
+    proc = _command_with_a_slow_fork_hook(tmp_path)
+    deadline = time.monotonic() + 60
+    while not _children(proc.pid) and time.monotonic() < deadline:
+        time.sleep(0.01)
+    kids = _children(proc.pid)
+    proc.send_signal(signal.SIGTERM)
+    _, err = proc.communicate(timeout=10)
+    assert proc.returncode == 128 + signal.SIGTERM and err.strip() == "", err
+    time.sleep(0.5)
+    assert not [k for k in kids if Path(f"/proc/{k}").exists() and _running(k)]
+
+
+def _running(pid: int) -> bool:
+    try:
+        return Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()[0] != "Z"
+    except (OSError, IndexError):
+        return False
+
+
+def test_the_library_and_main_keep_the_callers_signal_handlers(tmp_path):
+    from groundcheck.cli import main
+
+    before = signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)
+    out = str(tmp_path / "out.json")
+    assert main(["check", str(EXAMPLES[0]), "--format", "json", "-o", out]) in (0, 1)
+    assert (signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)) == before
