@@ -28,7 +28,6 @@ __all__ = [
     "TOP_SHARES",
     "NETWORK_ROWS",
     "SOURCE_CHUNK",
-    "CANDIDATES",
 ]
 
 #: conductors named per source and stage as hum contributors (the rest are summed)
@@ -97,16 +96,13 @@ def run_columns(owners: list[str], runs: dict, rank: np.ndarray) -> Runs | None:
     return Runs(singles, members, groups, gather, order.astype(int), cols)
 
 
-#: columns kept as candidates for each row's largest (those of the largest column maxima)
-CANDIDATES = 256
-
-
 def _largest(mags, rank):
     """The TOP_SHARES largest of each row, equal ones (to 1e-9 of the row's largest) taken in the
     owners' canonical order (``rank``: :func:`groundcheck.physics.coupling.owner_ranks`), neither
     by their names nor by the order the plan writes its conductors in."""
     nb = mags.shape[1]
-    near = _near(mags, min(nb, TOP_SHARES + 8))
+    k = min(nb, TOP_SHARES + 8)
+    near = np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
     rows = np.arange(len(mags))[:, None]
     peak = np.maximum(mags.max(axis=1), 1e-300)[:, None]
     q = np.round(mags[rows, near] / peak, 9)
@@ -121,26 +117,6 @@ def _largest(mags, rank):
             qr = np.round(mags[r] / peak[r], 9)
             out[r] = np.lexsort((rank, -qr))[:TOP_SHARES]
     return out
-
-
-def _near(mags, k: int) -> np.ndarray:
-    """The columns of each row's ``k`` largest.  On a wide array they are sought first among the
-    CANDIDATES columns of the largest maxima: a row whose k-th largest there is above every other
-    column's maximum has them all there; the other rows are searched whole."""
-    nb = mags.shape[1]
-    if nb <= 4 * CANDIDATES:
-        return np.argpartition(mags, nb - k, axis=1)[:, nb - k :]
-    colmax = mags.max(axis=0)
-    cut = np.argpartition(colmax, nb - CANDIDATES - 1)
-    cols, bound = cut[nb - CANDIDATES :], colmax[cut[nb - CANDIDATES - 1]]
-    sub = mags[:, cols]
-    pick = np.argpartition(sub, CANDIDATES - k, axis=1)[:, CANDIDATES - k :]
-    near = cols[pick]
-    kth = np.take_along_axis(sub, pick, axis=1).min(axis=1)
-    whole = np.flatnonzero(~(kth > bound))
-    if whole.size:
-        near[whole] = np.argpartition(mags[whole], nb - k, axis=1)[:, nb - k :]
-    return near
 
 
 def source_part(b, f: float, fac, active: list, part) -> None:
