@@ -130,9 +130,47 @@ def _star_wires(ctx: ChangeContext, f, add) -> None:
             add(reroute(ctx, c.name, near, stars[0], title, f.code))
 
 
+def _bonded_without(ctx: ChangeContext, point: str, wire) -> bool:
+    """Whether ``point`` reaches a metal part through the plan's conductors without ``wire``."""
+    import networkx as nx
+
+    G = nx.restricted_view(ctx.G, [], [(wire.a, wire.b, wire.name)])
+    if point not in G:
+        return False
+    return any(n in ctx.metals for n in nx.node_connected_component(G, point))
+
+
 def _fastened(ctx: ChangeContext, point: str) -> bool:
     """Whether ``point`` is held on a metal part by a fastening (a lug, stud or bolted socket)."""
     return any(point in (c.a, c.b) and is_fastening(c, ctx.metals) for c in ctx.at(point))
+
+
+def _join_ways(ctx: ChangeContext, row) -> list[tuple]:
+    """The conductors whose far end may move to join a return's two ends: (end, other, conductor,
+    far) each."""
+    # never one of the shared conductors (moving it re-routes the ground itself), nor a wire to a
+    # point fastened to metal (the ground's bond to the chassis: moving it takes the bond away) —
+    # unless it is the winding's own lead to a tag (a centre tap under a transformer screw) and
+    # the ground keeps a bond without it: the builder's fix, the winding straight to the reservoir
+    winding = {r.b for r in ctx.plan.rectifiers}
+    ways = []
+    for end, other in ((row.a, row.b), (row.b, row.a)):
+        for d in ctx.at(other):
+            far = d.b if d.a == other else d.a
+            # a wire written 'signal' is a stage's reference, never a supply's return to join
+            if (
+                other in (d.a, d.b)
+                and not shield_like(d)
+                and not ctx.protective(d)
+                and d.role != SIGNAL
+                and d.name not in row.shared
+                and (
+                    not _fastened(ctx, far) or (other in winding and _bonded_without(ctx, end, d))
+                )
+                and any(x.name != d.name for x in ctx.at(far))  # never leaves far wired to nothing
+            ):
+                ways.append((end, other, d, far))
+    return ways
 
 
 def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
@@ -146,23 +184,7 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
     supply meets the signal ground at the star or the output end, never the input's)."""
     if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
         return
-    # never one of the shared conductors (moving it re-routes the ground itself), nor a wire to a
-    # point fastened to metal (the ground's bond to the chassis: moving it takes the bond away)
-    ways = []
-    for end, other in ((row.a, row.b), (row.b, row.a)):
-        for d in ctx.at(other):
-            far = d.b if d.a == other else d.a
-            # a wire written 'signal' is a stage's reference, never a supply's return to join
-            if (
-                other in (d.a, d.b)
-                and not shield_like(d)
-                and not ctx.protective(d)
-                and d.role != SIGNAL
-                and d.name not in row.shared
-                and not _fastened(ctx, far)
-                and any(x.name != d.name for x in ctx.at(far))  # never leaves far wired to nothing
-            ):
-                ways.append((end, other, d, far))
+    ways = _join_ways(ctx, row)
     hops = _from_most_sensitive(ctx)
     stage_ends = ctx.plan.index.stage_ends
     landing = [_landing(ctx, row, w[2], hops) for w in ways]
@@ -273,7 +295,9 @@ def _from_most_sensitive(ctx: ChangeContext) -> tuple[dict, str | None]:
 
 def _landing(ctx: ChangeContext, row, moved, hops) -> tuple[int | None, str | None]:
     """Where the supply's return ends meet the rest of the ground once ``moved`` joins them: the
-    nearest such point to the most sensitive stage (hops, point), (None, None) when unknown."""
+    nearest such point to the most sensitive stage (hops, point), (None, None) when unknown.  A
+    point fastened to metal is no wired meeting (the current would reach the ground through the
+    chassis): never the better way to compare with."""
     dist = hops[0]
     ends = {row.a, row.b}
     meets = []
@@ -282,7 +306,7 @@ def _landing(ctx: ChangeContext, row, moved, hops) -> tuple[int | None, str | No
             if d is moved or {d.a, d.b} == ends or e not in (d.a, d.b):
                 continue
             far = d.b if d.a == e else d.a
-            if far in dist:
+            if far in dist and not _fastened(ctx, far):
                 meets.append((dist[far], far))
     if not meets:
         return None, None
