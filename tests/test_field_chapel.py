@@ -65,7 +65,9 @@ def test_the_vestrys_hum_fix_says_what_opens_the_buildings_loop():
     # radial's load-induced EMF round the loop through the installation
     r = analyze(load(CHAPEL), Options())
     (f,) = [f for f in r.findings if f.code == "GC303" and f.elements[0] == "vestry"]
-    assert f.fix.startswith("fix the main contributors first: vestry_radial")
+    assert f.fix.startswith(
+        "fix the main contributors first (shares of the output's hum voltage): vestry_radial"
+    )
     assert "plug the devices the loop joins into one outlet or strip" in f.fix
     # and no contributor of a rounded-away share is named
     (g,) = [f for f in r.findings if f.code == "GC303" and f.elements[0] == "pa_amp.main"]

@@ -335,7 +335,7 @@ def _audible(ch: str, h, loc, loop_driven=frozenset()) -> Finding:
             "total_dbv": h.total_dbv,
             "signal_to_hum_db": h.signal_to_hum,
         },
-        "fix the main contributors first: " + "; ".join(top),
+        "fix the main contributors first (shares of the output's hum voltage): " + "; ".join(top),
     )
 
 
