@@ -12,6 +12,8 @@ from pathlib import Path
 from helpers import EXAMPLES
 
 ROOT = Path(__file__).resolve().parent.parent
+#: a plan whose check takes tens of seconds: it is still running when the signal comes
+LONG_PLAN = ROOT / "tests" / "hostile" / "round2" / "09-sigterm-jobs" / "jobsplan.gplan"
 
 
 def _command_with_a_slow_fork_hook(tmp_path: Path) -> subprocess.Popen:
@@ -82,3 +84,48 @@ def test_the_library_and_main_keep_the_callers_signal_handlers(tmp_path):
     out = str(tmp_path / "out.json")
     assert main(["check", str(EXAMPLES[0]), "--format", "json", "-o", out]) in (0, 1)
     assert (signal.getsignal(signal.SIGINT), signal.getsignal(signal.SIGTERM)) == before
+
+
+def test_ctrl_c_on_a_terminal_shows_the_cursor_its_progress_line_hid(tmp_path):
+    import pty
+
+    main_fd, term = pty.openpty()
+    proc = subprocess.Popen(
+        [
+            sys.executable,
+            "-m",
+            "groundcheck",
+            "check",
+            str(LONG_PLAN),
+            "-o",
+            str(tmp_path / "out.txt"),
+        ],
+        stdin=subprocess.DEVNULL,
+        stdout=subprocess.DEVNULL,
+        stderr=term,
+        start_new_session=True,
+        env={**os.environ, "PYTHONPATH": str(ROOT)},
+    )
+    os.close(term)
+    seen = b""
+    deadline = time.monotonic() + 60
+    while b"\x1b[?25l" not in seen and time.monotonic() < deadline:  # the spinner hid it
+        try:
+            seen += os.read(main_fd, 4096)
+        except OSError:
+            break
+    os.killpg(proc.pid, signal.SIGINT)
+    proc.wait(timeout=10)
+    while True:
+        try:
+            chunk = os.read(main_fd, 4096)
+        except OSError:
+            break
+        if not chunk:
+            break
+        seen += chunk
+    os.close(main_fd)
+    assert proc.returncode == 130
+    if b"\x1b[?25l" in seen:
+        assert seen.rindex(b"\x1b[?25h") > seen.rindex(b"\x1b[?25l")
+    assert seen.rstrip().endswith(b"groundcheck: interrupted")

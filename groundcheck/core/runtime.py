@@ -242,11 +242,13 @@ def _stop(signum, frame) -> None:
             os.unlink(tmp)
         except OSError:
             pass
-    if signum == signal.SIGINT:
-        try:
+    try:
+        if os.isatty(2):  # a progress line's spinner hides the cursor: clear it, show the cursor
+            os.write(2, b"\r\x1b[2K\x1b[?25h")
+        if signum == signal.SIGINT:
             os.write(2, b"groundcheck: interrupted\n")
-        except OSError:
-            pass
+    except OSError:
+        pass
     os._exit(128 + signum)
 
 
