@@ -528,3 +528,32 @@ def test_every_material_the_reference_lists_is_accepted_and_keeps_its_resistivit
             "t.gplan",
         )
         assert w.conductors[0].material == word
+
+
+@pytest.mark.parametrize(
+    "attributes, what, second",
+    [
+        ("60 mm, 0.5 mm, 0.5 mm2", "length given twice", "0.5 mm,"),  # a typo typed over
+        ("60 mm, 0.5 mm2, AWG 20", "cross-section (an area or AWG size) given twice", "AWG"),
+        ("60 mm, 0.5 mm2, return, signal", "role given twice", "signal"),
+        ("60 mm, 0.5 mm2, 5 mohm, 7 mohm", "resistance given twice", "7 mohm"),
+    ],
+)
+def test_a_wires_figure_given_twice_is_a_located_error(attributes, what, second):
+    # an outside builder's typo: 'wire g12: k1 to k2, 60 mm, 0.5 mm, 0.5 mm2' took the wire as
+    # 0.5 mm long and changed the hum by 2.3 dB without a word
+    text = f'plan "x"\npoint a: pad\npoint b: pad\nwire w: a to b, {attributes}\n'
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "x.gplan")
+    (err,) = e.value.errors
+    assert f"wire: {what}" in err.message
+    # at the second one: 'wire w: a to b, ' is 16 characters
+    assert (err.location.line, err.location.column) == (4, 17 + attributes.index(second))
+
+
+def test_a_cables_loads_may_be_given_one_by_one():
+    text = (
+        'plan "x"\nsupply 230 V 50 Hz\npoint t: terminal\npoint o: outlet\n'
+        "cable c: o to t, 10 m, 2.5 mm2, load 3 A, load 2 A\n"
+    )
+    load_text(text, "x.gplan")

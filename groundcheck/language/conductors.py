@@ -128,14 +128,18 @@ def conductor(stmt: Statement):
         kw["thickness"] = row.thickness
     only = owners()  # the attribute words that belong to some kinds only
     named = CONDUCTOR_NAMED
+    said: dict = {}  # each figure or word given, where: a second one is an error
     for ph in stmt.phrases[1:]:
         r = Reader(ph, stmt)
         first = ph[0]  # phrases are never empty
         if first.kind == "qty":
+            _once(said, _CONDUCTOR_QTY.get(first.qkind), first, kind)
             _bare_quantity(r, kind, row, only, kw)
         elif first.kind == "word" and first.value.upper() == "AWG":
+            _once(said, "area", first, kind)
             _awg(r, first, kw)
         elif first.kind == "word" and first.value in ROLES:
+            _once(said, "role", first, kind)
             kw["role"] = r.word()
         elif first.kind == "word" and first.value in MATERIALS and len(ph) == 1:
             kw["material"] = material(r.word())
@@ -155,6 +159,7 @@ def conductor(stmt: Statement):
                         first.loc,
                         "twist wires or cores: 'wire NAME: A to B, 0.3 mm2, twisted with OTHER'",
                     )
+            _once(said, first.value, first, kind)
             _named(r, r.word(), kw, a, b)
         else:
             raise _misplaced(stmt, first, kind) or unknown(
@@ -165,6 +170,27 @@ def conductor(stmt: Statement):
     return make(
         Conductor, name=stmt.label or "", kind=kind, a=a, b=b, location=stmt.loc, **kw
     ), refs
+
+
+#: what a second one of each is called in the error
+_TWICE = {"area": "cross-section (an area or AWG size)", "role": "role"}
+#: attributes a statement may give several times, each adding to the others (a cable's loads)
+_REPEATABLE = {"load"}
+
+
+def _once(said: dict, what: str | None, tok, kind: str) -> None:
+    """A figure or attribute given a second time in one statement is an error: the second would
+    replace the first without a word (a typo corrected by typing on)."""
+    if what is None or what in _REPEATABLE:
+        return
+    if what in said:
+        _, col = said[what]
+        raise PlanError(
+            f"{kind}: {_TWICE.get(what, what)} given twice (first at column {col})",
+            tok.loc,
+            "give it once: the second would replace the first without a word",
+        )
+    said[what] = (tok.loc.line, tok.loc.column)
 
 
 def _bare_quantity(r: Reader, kind: str, row, only: dict, kw: dict) -> None:
