@@ -321,13 +321,18 @@ def signal_case(rng: random.Random) -> str:
             proc.wait()
             raise AssertionError(f"{sig.name}: still running 5 s after the signal") from None
         took = time.monotonic() - sent
-        err = proc.stderr.read().decode("utf-8", "replace")
+        # every process of the run's session, a worker its parent left behind included (one that
+        # outlives it keeps the error stream open: it is stopped before the stream is read)
         deadline = time.monotonic() + 2
-        while any(_alive(k) for k in kids) and time.monotonic() < deadline:
+        while _session(proc.pid) and time.monotonic() < deadline:
             time.sleep(0.05)
-        left = [k for k in kids if _alive(k)]
+        left = sorted(set(_session(proc.pid)) | {k for k in kids if _alive(k)})
         for k in left:
-            os.kill(k, signal.SIGKILL)
+            try:
+                os.kill(k, signal.SIGKILL)
+            except ProcessLookupError:
+                pass
+        err = proc.stderr.read().decode("utf-8", "replace")
         assert not left, f"{sig.name}: workers {left} left"
         if _before_ours(err):
             return f"{sig.name} while Python started, before the command's handler (its traceback)"
@@ -366,6 +371,20 @@ def _children(pid: int) -> list[int]:
         return [int(x) for x in Path(f"/proc/{pid}/task/{pid}/children").read_text().split()]
     except OSError:
         return []
+
+
+def _session(sid: int) -> list[int]:
+    """The running processes of session ``sid`` (a run started in a session of its own)."""
+    out = []
+    for d in Path("/proc").iterdir():
+        if d.name.isdigit():
+            try:
+                fields = (d / "stat").read_text().rsplit(")", 1)[1].split()
+            except (OSError, IndexError):
+                continue
+            if int(fields[3]) == sid and fields[0] != "Z":
+                out.append(int(d.name))
+    return out
 
 
 def _alive(pid: int) -> bool:

@@ -129,3 +129,47 @@ def test_ctrl_c_on_a_terminal_shows_the_cursor_its_progress_line_hid(tmp_path):
     if b"\x1b[?25l" in seen:
         assert seen.rindex(b"\x1b[?25h") > seen.rindex(b"\x1b[?25l")
     assert seen.rstrip().endswith(b"groundcheck: interrupted")
+
+
+def _in_session(sid: int) -> list[int]:
+    """The processes of session ``sid`` still running."""
+    out = []
+    for d in Path("/proc").iterdir():
+        if d.name.isdigit():
+            try:
+                fields = (d / "stat").read_text().rsplit(")", 1)[1].split()
+            except OSError:
+                continue
+            if int(fields[3]) == sid and fields[0] != "Z":
+                out.append(int(d.name))
+    return out
+
+
+def test_a_worker_whose_parent_ended_before_its_start_up_ends_too():
+    # the signals campaign found a worker left running for ever: its parent ended between the fork
+    # and the worker's first step, which then read init as its parent and waited on the work queue
+    code = (
+        "import os, sys, time\n"
+        "from concurrent.futures import ProcessPoolExecutor\n"
+        "import multiprocessing\n"
+        "from groundcheck.core.runtime import die_with_parent\n"
+        "os.register_at_fork(after_in_child=lambda: time.sleep(1.0))\n"
+        "pool = ProcessPoolExecutor(1, mp_context=multiprocessing.get_context('fork'), "
+        "initializer=die_with_parent)\n"
+        "pool.submit(time.sleep, 60)\n"
+        "os._exit(0)\n"
+    )
+    proc = subprocess.Popen(
+        [sys.executable, "-c", code],
+        start_new_session=True,
+        env={**os.environ, "PYTHONPATH": str(ROOT)},
+        stderr=subprocess.DEVNULL,
+    )
+    proc.wait(timeout=30)
+    deadline = time.monotonic() + 5
+    while _in_session(proc.pid) and time.monotonic() < deadline:
+        time.sleep(0.1)
+    left = _in_session(proc.pid)
+    for pid in left:
+        os.kill(pid, signal.SIGKILL)
+    assert not left, f"workers {left} outlived their parent"

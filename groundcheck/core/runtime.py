@@ -205,6 +205,31 @@ def quiet_child() -> None:
     die_with_parent()
 
 
+#: the process a worker was forked from, set in the parent just before each fork: a worker whose
+#: parent ended before the worker asked to be told (its parent is then init, or a subreaper) must
+#: see that it is an orphan, which ``os.getppid()`` read in the worker cannot tell it
+_FORKED_FROM: list[int] = []
+#: the C library's handle, opened in the parent before the first fork: a worker asks for its
+#: parent-death signal without importing or loading anything (a module or loader lock held by
+#: another of the parent's threads at the fork would never be released in the child)
+_LIBC: list = []
+
+
+def _before_fork() -> None:
+    _FORKED_FROM[:] = [os.getpid()]
+    if not _LIBC and sys.platform.startswith("linux"):
+        try:
+            import ctypes
+
+            _LIBC.append(ctypes.CDLL(None, use_errno=True))
+        except OSError:  # pragma: no cover - no C library to open
+            _LIBC.append(None)
+
+
+if hasattr(os, "register_at_fork"):
+    os.register_at_fork(before=_before_fork)
+
+
 def die_with_parent() -> None:
     """Linux: this worker gets SIGTERM when the process that started it ends (a SIGTERM or Ctrl-C
     to the run stops its workers within a moment instead of leaving them to finish their queue).
@@ -212,11 +237,14 @@ def die_with_parent() -> None:
     worker ignores it; SIGTERM ends it at once, even inside a long numerical call."""
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     signal.signal(signal.SIGTERM, signal.SIG_DFL)
-    parent = os.getppid()
+    parent = _FORKED_FROM[0] if _FORKED_FROM else os.getppid()
     try:
-        import ctypes
+        if _LIBC:
+            libc = _LIBC[0]
+        else:  # a worker started otherwise than by a fork of this process
+            import ctypes
 
-        libc = ctypes.CDLL(None, use_errno=True)
+            libc = ctypes.CDLL(None, use_errno=True)
         libc.prctl(1, signal.SIGTERM, 0, 0, 0)  # PR_SET_PDEATHSIG
     except (OSError, AttributeError):  # pragma: no cover - not Linux
         return
