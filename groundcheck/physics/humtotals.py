@@ -65,6 +65,29 @@ class ChannelHum:
         top = max((r.volts for r in self.spectrum), default=0.0)
         return [r for r in self.spectrum if r.volts > 0 and r.volts > ROUNDING * top]
 
+    def heard_alone(self, kind: str, elements: tuple[str, ...], source: str) -> float | None:
+        """How far a contributor alone (the lines of ``elements`` of ``kind`` from ``source``,
+        added as phasors per frequency) is above the threshold of hearing at the listener's seat,
+        dB at its worst line (positive: heard on its own, whatever the rest); None without a
+        verdict.  A line's level at the seat moves with 20·log10 of its voltage, so each line's
+        margin is the channel's at that frequency plus its ratio to the channel's line."""
+        rows = {r.frequency: r for r in self.spectrum}
+        per_f: dict = {}
+        for (k, name, group), lines in self.lines.items():
+            if k == kind and name in elements and group.split(":", 1)[-1] == source:
+                for f, v in lines.items():
+                    per_f[f] = per_f.get(f, 0) + v
+        worst = None
+        for f, v in per_f.items():
+            r = rows.get(f)
+            if r is None or r.spl is None or r.threshold is None or r.volts <= 0 or abs(v) <= 0:
+                continue
+            if not math.isfinite(r.spl):
+                continue
+            m = r.spl - r.threshold + db_of_ratio(abs(v) / r.volts)
+            worst = m if worst is None else max(worst, m)
+        return worst
+
     @property
     def signal_to_hum(self) -> float:
         return math.inf if self.total_v <= 0 else db_of_ratio(self.rated_output / self.total_v)

@@ -11,8 +11,7 @@ from __future__ import annotations
 
 from dataclasses import replace
 
-from ..model.kinds import PROTECTIVE, SIGNAL, carries_load, joins_devices
-from ..physics.heater_field import source_heater
+from ..model.kinds import SIGNAL, carries_load, joins_devices
 from ..physics.hum_rows import Contributor
 from ..physics.sources import LEAKAGE_GROUP
 from ..physics.humsettings import (
@@ -21,6 +20,7 @@ from ..physics.humsettings import (
     far_below_hearing,
 )
 from .catalogue import Finding
+from .hum_fixes import contributor_fix, pickup_fix
 from .context import AuditContext
 from .electrical import Solved
 from .registry import rule
@@ -59,17 +59,18 @@ def rule_hum(s: Solved) -> list[Finding]:
     out = []
     for ch, h in s.hum.channels.items():
         loc = stages_by_ch[ch][0].location
-        out += _contributors(s, ch, _by_run(h.contributors, runs), loc, loop_driven)
+        out += _contributors(s, h, _by_run(h.contributors, runs), loc, loop_driven)
         if h.audible:
             out.append(_audible(ch, h, loc, loop_driven))
     out += _crosstalk(s, stages_by_ch)
     return out
 
 
-def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> list[Finding]:
+def _contributors(s: Solved, h, contributors, loc, loop_driven: set) -> list[Finding]:
     """GC301 for each conductor (or run in series), GC302 for each loop, whose share of a
-    channel's hum is above the contributor level and at least a tenth of the total."""
-    opts = s.options
+    channel's hum is above the contributor level and at least a tenth of the total; GC302 also
+    for a loop heard on its own at the listener's seat (a 60 Hz pickup under a 120 Hz buzz)."""
+    opts, ch = s.options, h.channel
     conductors = s.plan.index.conductors
     # a channel 20 dB or more below hearing at the listener's seat (the project's margin for an
     # estimate): its contributors are said as notes, the margin with them
@@ -84,11 +85,14 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
     out = []
     for c in contributors:
         # (to rounding: a share of exactly a tenth, split in two pieces, still meets it)
-        if c.dbv < opts.contributor_level - 1e-9 or c.share < TENTH:
+        if c.dbv < opts.contributor_level - 1e-9:
+            continue
+        share = _share_words(h, c)
+        if share is None:
             continue
         if c.kind == "conductor":
             cond = conductors.get(c.element)
-            fix = _contributor_fix(c.element, c.source, cond, loop_driven)
+            fix = contributor_fix(c.element, c.source, cond, loop_driven)
             run = c.run or (c.element,)
             what = run[0] if len(run) == 1 else f"{', '.join(run)} (in series)"
             out.append(
@@ -96,8 +100,7 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
                     "GC301",
                     sev,
                     f"{what} {'puts' if len(run) == 1 else 'put'} {c.dbv:.1f} dBV of "
-                    f"{c.source} hum and buzz at the {ch} output ({c.share:.0f} % "
-                    f"of the channel's total){heard}",
+                    f"{c.source} hum and buzz at the {ch} output ({share}){heard}",
                     cond.location if cond else loc,
                     (run[0], c.source, *run[1:]),
                     {"level_dbv": c.dbv, "share_pct": c.share, "channel": ch},
@@ -110,25 +113,30 @@ def _contributors(s: Solved, ch: str, contributors, loc, loop_driven: set) -> li
                     "GC302",
                     sev,
                     f"{c.element} picks up {c.dbv:.1f} dBV from {c.source} at the "
-                    f"{ch} output ({c.share:.0f} % of the channel's total){heard}",
+                    f"{ch} output ({share}){heard}",
                     loc,
                     (c.element, c.source),
                     {"level_dbv": c.dbv, "share_pct": c.share, "channel": ch},
-                    _pickup_fix(s.plan, c.source),
+                    pickup_fix(s.plan, c.source),
                 )
             )
     return out
 
 
-def _pickup_fix(plan, source: str) -> str:
-    """GC302's fix line: an open AC heater pair is twisted first (common practice)."""
-    h = source_heater(plan.heaters, source)
-    if h is not None and h.ac and not h.twisted and h.route:
-        return (
-            f"twist the heater pair {h.name} tightly along its whole run; or open the loop, or "
-            "make it smaller and move it away from the pair"
-        )
-    return "open the loop, or make it smaller and move it away from the field source"
+def _share_words(h, c) -> str | None:
+    """How a contributor's part of the channel is said, or None when it is no finding: a tenth of
+    the total or more; a loop's pickup is a source of its own and is said also when heard alone
+    (a 60 Hz line under a louder 120 Hz buzz has a share of nothing); a conductor's drop is one
+    piece of its source's path, and one that cancels part of the rest is never one to remove."""
+    share = f"{c.share:.0f} % of the channel's total"
+    if c.share >= TENTH:
+        return share
+    if c.kind != "loop" or c.share < 0:
+        return None
+    alone = h.heard_alone(c.kind, c.run or (c.element,), c.source)
+    if alone is None or alone <= 0:
+        return None
+    return share + f", heard on its own at the listener's seat by {alone:.1f} dB"
 
 
 def _crosstalk(s: Solved, stages_by_ch: dict) -> list[Finding]:
@@ -269,45 +277,13 @@ def _by_run(contributors: list[Contributor], runs: dict) -> list[Contributor]:
     return out
 
 
-def _contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
-    """What to do about a conductor that carries a hum source's current to a stage (GC301)."""
-    if cond is not None and cond.role == PROTECTIVE:
-        return (
-            f"the drop along protective conductor {element} reaches the stage through a loop: "
-            "plug the devices the loop's links join into one outlet or strip, so that it no "
-            "longer runs through the building's earth wiring (a balanced link only between "
-            "balanced sockets); never lift the protective earth"
-        )
-    if source in loop_driven and cond is not None and joins_devices(cond):
-        if cond.balanced:
-            return (
-                f"{source} drives current round the loop along the shield of {element}: land the "
-                "shield on the chassis where it enters at both ends ('shield-to chassis'), so "
-                "that it stays out of the signal grounds; never lift the protective earth"
-            )
-        return (
-            f"{source} drives current round the loop along the shield of {element}, the signal's "
-            "return on an unbalanced link, which stays: plug the devices it joins into one outlet "
-            "or strip (a balanced link only between balanced sockets, a ground-lift network only "
-            "in equipment of your own build); never lift the protective earth"
-        )
-    if source in loop_driven:
-        return (
-            f"{source} drives current round a loop through {element}, between an interconnect's "
-            "shield and the protective earth: plug the devices it joins into one outlet or strip, "
-            "or, on a balanced link, land its shield on the chassis where it enters "
-            "('shield-to chassis'); never lift the protective earth"
-        )
-    return f"move the {source} current off {element}: give it a return path of its own"
-
-
 def _audible(ch: str, h, loc, loop_driven=frozenset()) -> Finding:
     """GC303: a channel whose hum is above the threshold of hearing, naming its three main
     contributors (the first, when it comes round the installation, with what opens its loop)."""
     top: list[str] = []
     for c in h.contributors:
-        if top and abs(c.share) < 0.5:
-            continue  # a share that rounds to nothing names no conductor
+        if c.share < 0 or (top and c.share < 0.5):
+            continue  # one that cancels part of the hum, or rounds to nothing, is not to fix
         label = f"{c.element} ({c.source}, {c.share:.0f} %)"
         if c.source in loop_driven and not top:
             label += (
