@@ -104,7 +104,7 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
         pairs = ctx.source_pairs | supplies
         if _partner_as_near(ctx.adj, dist, t, joints, pairs):
             continue  # as near through its own current's other end: which route is no fact
-        via = [n for n in path[1:-1] if n in terminals and frozenset((t, n)) not in pairs]
+        via = _via(path, t, terminals, pairs)
         if via and _clear_distance(ctx.adj, clear, t, joints) > dist[t]:
             chains.setdefault(star, []).append((t, via[0]))
     out = []
@@ -124,6 +124,15 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
             )
         )
     return out
+
+
+def _via(path: list, t: str, terminals: set, pairs) -> list:
+    """The other returns a return's route to its star passes before the other end of its own pair
+    (an input read beside its stage's ground, a head coil's return at the first stage's cathode):
+    beyond that end the route is that end's, judged as its own."""
+    inner = path[1:-1]
+    own = next((i for i, n in enumerate(inner) if frozenset((t, n)) in pairs), len(inner))
+    return [n for n in inner[:own] if n in terminals]
 
 
 def _partner_as_near(adj: dict, dist: dict, t: str, joints, pairs) -> bool:
