@@ -209,6 +209,10 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
                 "would carry the supply's current): move the supply's return off the stage "
                 "instead",
             )
+        elif at in stage_ends and any(x[1] not in stage_ends for x in landing if x[1]):
+            # a bridge negative's lead to the first stage's tag kept, the other way leaves none
+            why = f"it leaves the supply's only link to the signal ground on {at}, a stage's"
+            c = refuse(c, why + " ground, where joining the other way takes it off the stages")
         elif best is not None and near is not None and near < best:
             c = refuse(
                 c,
