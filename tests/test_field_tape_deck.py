@@ -104,3 +104,26 @@ def test_the_head_coils_return_is_never_sent_to_the_star():
     # return to the star by a wire of its own: the star's drops in series with a 0.7 mV head
     result = analyze(load(FIELD / "variants" / "fixed_twocore.gplan"))
     assert not [f for f in result.findings if f.code == "GC103" and "left.coil" in f.fix]
+
+
+def test_heard_on_its_own_is_the_lines_margin_less_the_loops_ratio_to_the_line(deck):
+    # a level at the seat moves with 20·log10 of the voltage (the same speaker chain): the loop's
+    # margin alone is its 60 Hz line's margin (its level at the seat less the ISO 226 threshold)
+    # plus 20·log10 of its share of that line's voltage, worked here from the printed figures
+    import math
+
+    h = deck.hum.channels["left"]
+    (row,) = [r for r in h.spectrum if abs(r.frequency - 60.0) < 1e-9]
+    ((key, lines),) = [
+        (k, v)
+        for k, v in h.lines.items()
+        if k[:2] == ("loop", "loop 2") and k[2].endswith("capstan")
+    ]
+    v = abs(lines[60.0])
+    expected = row.spl - row.threshold + 20 * math.log10(v / row.volts)
+    (f,) = [
+        f
+        for f in deck.findings
+        if f.code == "GC302" and f.elements == ("loop 2", "capstan") and "left" in f.message
+    ]
+    assert f"by {expected:.1f} dB" in f.message
