@@ -19,7 +19,7 @@ import dataclasses
 import networkx as nx
 
 from ..model.installation import device_of
-from ..model.kinds import PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
+from ..model.kinds import KINDS, PROTECTIVE, can_open, is_fastening, is_lift, joins_devices
 from ..model.records import PE_POINT, SOCKET_KINDS, Plan, insulating_means
 from ..network.earthing import earth_terminals
 from ..model.supplies import winding_span
@@ -303,13 +303,28 @@ def lost_circuit(before: Plan, after: Plan) -> list[str]:
         )
 
     c0, c1 = _components(_local_graph(before)), _components(_local_graph(after))
+    used = _used_sockets(before)
     return [
         p.name
         for p in before.points
         if p.kind in SOCKET_KINDS
+        and p.name in used
         and circuit(c0.get(p.name, ()), p.name)
         and not circuit(c1.get(p.name, ()), p.name)
     ]
+
+
+def _used_sockets(plan: Plan) -> set:
+    """The points a circuit of the plan uses: a stage's end or reference, a current's end, or an
+    end of a wire (not a fastening, nor a screen).  A head can or a terminal held only by its
+    mounting, with a screen left open at it, has no circuit the plan describes to be cut from
+    (what joined it to one was another socket's loop)."""
+    used = set(plan.index.stage_ends) | {st.reference for st in plan.stages if st.reference}
+    used |= {e for c in plan.currents for e in (c.a, c.b)}
+    for c in plan.conductors:
+        if not KINDS[c.kind].fastening and not KINDS[c.kind].shield_like and c.connects:
+            used |= {c.a, c.b}
+    return used
 
 
 def lost_wired_returns(before: Plan, after: Plan) -> list[str]:
