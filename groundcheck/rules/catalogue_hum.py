@@ -33,8 +33,8 @@ HUM_ENTRIES: list[Rule] = [
         HUM,
         "warning",
         "A ground loop in which a stray magnetic field induces a hum voltage above the set "
-        "level at a channel's output (a note when the channel stays 20 dB or more below "
-        "hearing at the listener's seat).",
+        "level at a channel's output, a tenth of its hum or more, or heard on its own at the "
+        "listener's seat (a note when the channel stays 20 dB or more below hearing there).",
         "Faraday's law: EMF = 2πfBA drives current round the loop; its drop across a "
         "sensitive pair is amplified.",
         "Open the loop, or make it smaller and move it away from the transformer; an AC heater "
