@@ -10,6 +10,7 @@ import time
 from pathlib import Path
 
 from helpers import EXAMPLES
+from hostile_families import _alive, _children, _session
 
 ROOT = Path(__file__).resolve().parent.parent
 #: a plan whose check takes tens of seconds: it is still running when the signal comes
@@ -36,13 +37,6 @@ def _command_with_a_slow_fork_hook(tmp_path: Path) -> subprocess.Popen:
     )
 
 
-def _children(pid: int) -> list[int]:
-    try:
-        return [int(x) for x in Path(f"/proc/{pid}/task/{pid}/children").read_text().split()]
-    except OSError:
-        return []
-
-
 def test_a_ctrl_c_inside_a_fork_hook_ends_the_run_without_a_traceback(tmp_path):
     proc = _command_with_a_slow_fork_hook(tmp_path)
     deadline = time.monotonic() + 60
@@ -67,14 +61,7 @@ def test_sigterm_ends_the_command_with_its_status_and_no_output(tmp_path):
     _, err = proc.communicate(timeout=10)
     assert proc.returncode == 128 + signal.SIGTERM and err.strip() == "", err
     time.sleep(0.5)
-    assert not [k for k in kids if Path(f"/proc/{k}").exists() and _running(k)]
-
-
-def _running(pid: int) -> bool:
-    try:
-        return Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()[0] != "Z"
-    except (OSError, IndexError):
-        return False
+    assert not [k for k in kids if Path(f"/proc/{k}").exists() and _alive(k)]
 
 
 def test_the_library_and_main_keep_the_callers_signal_handlers(tmp_path):
@@ -131,20 +118,6 @@ def test_ctrl_c_on_a_terminal_shows_the_cursor_its_progress_line_hid(tmp_path):
     assert seen.rstrip().endswith(b"groundcheck: interrupted")
 
 
-def _in_session(sid: int) -> list[int]:
-    """The processes of session ``sid`` still running."""
-    out = []
-    for d in Path("/proc").iterdir():
-        if d.name.isdigit():
-            try:
-                fields = (d / "stat").read_text().rsplit(")", 1)[1].split()
-            except OSError:
-                continue
-            if int(fields[3]) == sid and fields[0] != "Z":
-                out.append(int(d.name))
-    return out
-
-
 def test_a_worker_whose_parent_ended_before_its_start_up_ends_too():
     # the signals campaign found a worker left running for ever: its parent ended between the fork
     # and the worker's first step, which then read init as its parent and waited on the work queue
@@ -167,9 +140,9 @@ def test_a_worker_whose_parent_ended_before_its_start_up_ends_too():
     )
     proc.wait(timeout=30)
     deadline = time.monotonic() + 5
-    while _in_session(proc.pid) and time.monotonic() < deadline:
+    while _session(proc.pid) and time.monotonic() < deadline:
         time.sleep(0.1)
-    left = _in_session(proc.pid)
+    left = _session(proc.pid)
     for pid in left:
         os.kill(pid, signal.SIGKILL)
     assert not left, f"workers {left} outlived their parent"
