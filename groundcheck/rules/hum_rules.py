@@ -136,6 +136,8 @@ def _share_words(h, c) -> str | None:
     alone = h.heard_alone(c.kind, c.run or (c.element,), c.source)
     if alone is None or alone <= 0:
         return None
+    if c.share < 0.5:
+        share = "under 1 % of the channel's total"
     return share + f", heard on its own at the listener's seat by {alone:.1f} dB"
 
 
