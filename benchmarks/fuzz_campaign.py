@@ -253,6 +253,12 @@ def main() -> None:
         help="only this hostile family (repeatable)",
     )
     ap.add_argument(
+        "--seed",
+        type=int,
+        default=11,
+        help="with --hostile: the seed of the cases (another seed, other cases)",
+    )
+    ap.add_argument(
         "--streams",
         type=int,
         default=1,
@@ -262,7 +268,7 @@ def main() -> None:
     args, rest = ap.parse_known_args()
     if args.hostile:
         families = args.family or ["structural", "files", "unicode", "signals"]
-        sys.exit(1 if hostile(args.hostile, families, streams=args.streams) else 0)
+        sys.exit(1 if hostile(args.hostile, families, seed=args.seed, streams=args.streams) else 0)
     if args.advice:
         advice(args.advice)
         return
