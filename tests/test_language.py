@@ -551,6 +551,15 @@ def test_a_wires_figure_given_twice_is_a_located_error(attributes, what, second)
     assert (err.location.line, err.location.column) == (4, 17 + attributes.index(second))
 
 
+def test_a_figure_given_again_on_a_continued_line_names_the_first_ones_line():
+    text = 'plan "x"\npoint a: pad\npoint b: pad\nwire w: a to b, 60 mm,\n    0.5 mm2, 70 mm\n'
+    with pytest.raises(PlanErrors) as e:
+        load_text(text, "x.gplan")
+    (err,) = e.value.errors
+    assert (err.location.line, err.location.column) == (5, 14)
+    assert "length given twice (first at line 4, column 17)" in err.message
+
+
 def test_a_cables_loads_may_be_given_one_by_one():
     text = (
         'plan "x"\nsupply 230 V 50 Hz\npoint t: terminal\npoint o: outlet\n'

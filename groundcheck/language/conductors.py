@@ -184,9 +184,10 @@ def _once(said: dict, what: str | None, tok, kind: str) -> None:
     if what is None or what in _REPEATABLE:
         return
     if what in said:
-        _, col = said[what]
+        line, col = said[what]
+        at = f"column {col}" if line == tok.loc.line else f"line {line}, column {col}"
         raise PlanError(
-            f"{kind}: {_TWICE.get(what, what)} given twice (first at column {col})",
+            f"{kind}: {_TWICE.get(what, what)} given twice (first at {at})",
             tok.loc,
             "give it once: the second would replace the first without a word",
         )

@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 from collections import defaultdict
 from dataclasses import dataclass, field
+from functools import cached_property
 
 import numpy as np
 
@@ -73,8 +74,8 @@ class ChannelHum:
         margin is the channel's at that frequency plus its ratio to the channel's line."""
         rows = {r.frequency: r for r in self.spectrum}
         per_f: dict = {}
-        for (k, name, group), lines in self.lines.items():
-            if k == kind and name in elements and group.split(":", 1)[-1] == source:
+        for name in elements:
+            for lines in self._lines_of.get((kind, name, source), ()):
                 for f, v in lines.items():
                     per_f[f] = per_f.get(f, 0) + v
         worst = None
@@ -87,6 +88,15 @@ class ChannelHum:
             m = r.spl - r.threshold + db_of_ratio(abs(v) / r.volts)
             worst = m if worst is None else max(worst, m)
         return worst
+
+    @cached_property
+    def _lines_of(self) -> dict:
+        """Each contributor's lines by (kind, element, source): a group's prefix dropped, as the
+        contributors' rows name their source."""
+        out: dict = {}
+        for (kind, name, group), lines in self.lines.items():
+            out.setdefault((kind, name, group.split(":", 1)[-1]), []).append(lines)
+        return out
 
     @property
     def signal_to_hum(self) -> float:
