@@ -43,11 +43,8 @@ def carried_actions(ctx: ChangeContext, f, add) -> None:
                 continue  # a bolt holds a point to the metal under it: it runs nowhere else
             near, far = _near_far(nx.single_source_shortest_path_length(ctx.G, where[0]), c)
             title = f"take {far} to {where[0]} by its own wire ({name})"
-            add(
-                reroute(
-                    ctx, name, near, where[0], title, f.code, "join" if verb == "join" else "move"
-                )
-            )
+            verb = "join" if verb == "join" else "move"
+            add(reroute(ctx, name, near, where[0], title, f.code, verb))
         elif verb in ("remove", "insulate"):
             add(delete_change(ctx, name, f"{verb} {name}", f.code, verb))
 
@@ -173,7 +170,7 @@ def _join_ways(ctx: ChangeContext, row) -> list[tuple]:
     return ways
 
 
-def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
+def _join_ends(ctx: ChangeContext, row, reason: str, add, hops) -> None:
     """A rectifier's return (its charging current, or its filter capacitor's ripple current) whose
     two ends are not joined by a conductor of their own: move the far end of a conductor leaving
     one end onto the other, so that the current circulates between them alone (common practice:
@@ -181,11 +178,11 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add) -> None:
     negative to the reservoir's). Of the ways to join them, one that leaves the supply's link to
     the signal ground nearer the most sensitive stage than another way would is refused: the
     stages' own return currents would run the length of the ground to it (common practice: the
-    supply meets the signal ground at the star or the output end, never the input's)."""
+    supply meets the signal ground at the star or the output end, never the input's; ``hops``:
+    :func:`_from_most_sensitive`, found once for every row)."""
     if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
         return
     ways = _join_ways(ctx, row)
-    hops = _from_most_sensitive(ctx)
     stage_ends = ctx.plan.index.stage_ends
     landing = [_landing(ctx, row, w[2], hops) for w in ways]
     best = max((x[0] for x in landing if x[0] is not None), default=None)
@@ -322,9 +319,11 @@ def shared_return_candidates(ctx: ChangeContext, answer: Answer, add) -> None:
     the star.  Each row names its source's two ends (a rectifier's, its filter's, or a stated
     current's); the candidates answer ``answer``'s rule."""
     plan, reason = ctx.plan, answer.reason
+    hops = None
     for row in ctx.result.coupling:
         if row.kind == "rectifier":
-            _join_ends(ctx, row, reason, add)
+            hops = _from_most_sensitive(ctx) if hops is None else hops
+            _join_ends(ctx, row, reason, add, hops)
             add(_own_wire(ctx, row, reason))
             add(_own_wire(ctx, row, reason, off_metal=True))
         stage = next((s for s in plan.stages if s.name == row.stage), None)
