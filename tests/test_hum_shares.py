@@ -33,3 +33,34 @@ def test_the_largest_are_those_of_a_search_of_every_column(nb):
     for row, ours, full in zip(mags, _largest(mags, rank), _full(mags, rank)):
         named = row > 1e-3 * row.max()
         assert [j for j in ours if named[j]] == [j for j in full if named[j]]
+
+
+def test_a_groups_conductor_share_is_its_whole_share_not_each_sources_ten_largest():
+    # a chain of 13 wires, w_k of k mΩ, between p0 and p13; the stage reads p0 to p13 (gain 0 dB),
+    # so its 1 A test current runs through every wire and a wire's share of the output is its
+    # drop (reciprocity). Two leakage currents (one mains line, in phase): 1 mA p0 → p13 through
+    # every wire, and 1 mA p0 → p3 through w1–w3. Worked by hand (Ohm's law): w3 carries 2 mA and
+    # drops 2 mA × 3 mΩ = 6 µV; w13 1 mA × 13 mΩ = 13 µV; w1 2 µV, the group's twelfth; the
+    # output (1 + … + 13) µV + (1 + 2 + 3) µV = 97 µV. The first current's ten largest shares are
+    # w4–w13: a sum of each source's ten would give w3 only the second current's 3 µV
+    from groundcheck.analysis import analyze
+    from groundcheck.language.loader import load_text
+
+    lines = ['plan "a chain read end to end"', "listening output 1 V"]
+    lines += [f"point p{k}: pad, at {10 * k},0" for k in range(14)]
+    lines += [f"wire w{k}: p{k - 1} to p{k}, 10 mm, resistance {k} mohm" for k in range(1, 14)]
+    # a spur at each joint, carrying nothing, so that the wires are not one run in series
+    lines += [f"point q{k}: pad, at {10 * k},10" for k in range(1, 13)]
+    lines += [f"wire d{k}: p{k} to q{k}, 10 mm, 0.5 mm2" for k in range(1, 13)]
+    lines += [
+        "current la: p0 to p13, 1 mA 50 Hz, leakage",
+        "current lb: p0 to p3, 1 mA 50 Hz, leakage",
+        "stage s: p0 to p13, gain 0 dB, channel out",
+    ]
+    r = analyze(load_text("\n".join(lines) + "\n", "chain.gplan"))
+    ch = r.hum.channels["out"]
+    named = {c.element: c.volts for c in ch.contributors if c.kind == "conductor"}
+    assert ch.total_v == pytest.approx(97e-6, rel=1e-3)
+    assert named["w13"] == pytest.approx(13e-6, rel=1e-3)
+    assert named["w3"] == pytest.approx(6e-6, rel=1e-3)
+    assert "w1" not in named  # among other conductors

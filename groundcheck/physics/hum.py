@@ -83,6 +83,10 @@ class _FrequencyPart:
     #: per probe pair: Σ over the leakage currents of V_a − V_b (they are in phase: their sum's
     #: power joins the others' once every source is solved)
     probe_leak: object = None
+    #: source group -> its sources' branch drops summed, V (ranked into shares once the frequency
+    #: is whole: :func:`groundcheck.physics.hum_shares.pooled_shares`)
+    pooled: dict = field(default_factory=dict)
+    tests: object = None  # the channels' test currents in each branch (branches × channels)
 
 
 def hum_budget(

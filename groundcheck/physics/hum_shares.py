@@ -3,9 +3,10 @@ channel's output, its largest conductor shares, and the JSON ``network`` section
 
 By reciprocity a branch's share of a channel is its drop Z_b·I_b under the source times the
 channel's test current in that branch (every stage's 1 A test weighted by its gain); a source's
-output is the sum of its shares.  The ten largest shares are named per source and channel, the
-rest summed as "other conductors" (see :mod:`groundcheck.physics.hum` for how the parts are
-combined).
+output is the sum of its shares.  A group's sources (the rectifiers, the leakage currents: one
+mains line, their phasors added) have their drops summed first, so a conductor's share of the
+group is exact; the ten largest shares are named per group and channel, the rest summed as "other
+conductors" (see :mod:`groundcheck.physics.hum` for how the parts are combined).
 
 References: reciprocity (Penfield, Spence, Duinker, *Tellegen's Theorem and Electrical Networks*,
 1970).
@@ -23,6 +24,7 @@ from .ranking import largest
 
 __all__ = [
     "source_part",
+    "pooled_shares",
     "run_columns",
     "Runs",
     "TOP_SHARES",
@@ -120,8 +122,9 @@ def _largest(mags, rank):
 
 
 def source_part(b, f: float, fac, active: list, part) -> None:
-    """Each stated or simulated current's voltage at each channel's output, with the conductors'
-    shares, added to ``part``; the sources are solved SOURCE_CHUNK at a time, so a large
+    """Each stated or simulated current's branch drops, summed per source group into ``part``
+    (their outputs and conductor shares follow once the frequency is whole:
+    :func:`pooled_shares`); the sources are solved SOURCE_CHUNK at a time, so a large
     installation's branches × sources arrays stay small (the channels' test currents are solved
     once).
 
@@ -130,8 +133,8 @@ def source_part(b, f: float, fac, active: list, part) -> None:
         f: the frequency, Hz.
         fac: the circuit factorised at f.
         active: the sources with a part at f.
-        part: the frequency's part, filled in (outputs, contributors, worst case, network rows,
-            probes).
+        part: the frequency's part, filled in (group drops, test currents, worst case,
+            network rows, probes).
     Returns:
         None.
     References:
@@ -172,22 +175,49 @@ def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
     for g in dict.fromkeys(groups):
         v = stage_v[:, [j for j, x in enumerate(groups) if x == g]].sum(axis=1)
         at[g] = at[g] + v if g in at else v
-    # by reciprocity a branch's share of a channel is its drop Z_b·I_b(s) (both.dv: no EMF
-    # here) times the channel's test current in it; each source's output is their sum (one
-    # product for every source and channel)
-    drops = np.ascontiguousarray(np.abs(both.dv).T)  # |Z_b·I_b|, sources × branches
-    _network_rows(b, f, fac, active, both, drops, part)
-    v_all = both.dv.T @ TC  # sources × channels
+    _network_rows(b, f, fac, active, both, part)
+    # by reciprocity a branch's share of a channel is its drop Z_b·I_b (both.dv: no EMF here)
+    # times the channel's test current in it: a group's drops are summed here (its sources'
+    # phasors added) and its shares ranked once the frequency is whole (:func:`pooled_shares`),
+    # so that a conductor's share of a group is its whole share, not a sum of each source's ten
+    # largest
+    pooled = part.pooled
+    for g in dict.fromkeys(groups):
+        cols = [j for j, x in enumerate(groups) if x == g]
+        z = both.dv[:, cols].sum(axis=1) if len(cols) > 1 else both.dv[:, cols[0]]
+        pooled[g] = pooled[g] + z if g in pooled else z.copy()
+    part.tests = TC
+
+
+def pooled_shares(b, pooled: dict, TC, sink) -> None:
+    """Each source group's output in each channel and its largest conductor shares, once a
+    frequency's sources are all solved: added to ``sink`` (its ``out`` and ``contrib`` lists).
+
+    Parameters:
+        b: the hum budget (:class:`groundcheck.physics.hum.HumBudget`).
+        pooled: each group -> its sources' branch drops Z_b·I_b summed (their phasors added), V.
+        TC: the channels' test currents in each branch (branches × channels), A per A.
+        sink: filled in (``out``: (channel, group, phasor); ``contrib``: (channel, label,
+            phasor)).
+    Returns:
+        None.
+    References:
+        reciprocity (Penfield, Spence, Duinker, 1970); the module's description.
+    """
+    groups = list(pooled)
+    zi = np.column_stack([pooled[g] for g in groups])  # branches × groups
+    drops = np.ascontiguousarray(np.abs(zi).T)
+    v_all = zi.T @ TC  # groups × channels
     mags = np.empty_like(drops)
     for ci, ch in enumerate(b.channels):
         np.multiply(drops, np.abs(TC[:, ci])[None, :], out=mags)
-        _shares(b, ch, mags, both.dv, TC[:, ci], v_all[:, ci], groups, part)
+        _shares(b, ch, mags, zi, TC[:, ci], v_all[:, ci], groups, sink)
 
 
 def _shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
-    """Each source's output in one channel and its largest conductor shares (``mags_all``:
-    sources × branches, each branch's |share|; the share itself is zi·tc, ``zi`` branches ×
-    sources); the rest, each below the tenth largest, summed as other.  Conductors in series
+    """Each group's output in one channel and its largest conductor shares (``mags_all``:
+    groups × branches, each branch's |share|; the share itself is zi·tc, ``zi`` branches ×
+    groups); the rest, each below the tenth largest, summed as other.  Conductors in series
     (``b.runs``, :func:`run_columns`) are ranked as one, by the size of their summed share."""
     if b.runs is not None:
         _run_shares(b, ch, mags_all, zi, tc, v_all, groups, part)
@@ -195,7 +225,7 @@ def _shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
     nb = mags_all.shape[1]
     rows = np.arange(len(groups))[:, None]
     tops = _tops(mags_all, b.owner_rank, len(groups))
-    top_shares = zi[tops, rows] * tc[tops]  # sources × TOP_SHARES
+    top_shares = zi[tops, rows] * tc[tops]  # groups × TOP_SHARES
     _emit(b, ch, mags_all[rows, tops], top_shares, tops, None, v_all, groups, part, nb)
 
 
@@ -203,8 +233,8 @@ def _run_shares(b, ch, mags_all, zi, tc, v_all, groups, part) -> None:
     """:func:`_shares` with the runs in series as one column each: the single branches' |share|
     and each run's |Σ share| side by side, ranked together."""
     singles, members, _, gather, rank, cols = b.runs
-    # each run's Σ share per source, its members' shares added in their order
-    run_sum = np.asarray(gather @ (zi[members, :] * tc[members, None])).T  # sources × runs
+    # each run's Σ share per group, its members' shares added in their order
+    run_sum = np.asarray(gather @ (zi[members, :] * tc[members, None])).T  # groups × runs
     mags = np.concatenate([mags_all[:, singles], np.abs(run_sum)], axis=1)
     rows = np.arange(len(groups))[:, None]
     tops = _tops(mags, rank, len(groups))
@@ -243,7 +273,7 @@ CANCELLED = 64 * np.finfo(float).eps
 
 
 def _emit(b, ch, top_mags, top_shares, tops, cols, v_all, groups, part, ncols, each=None):
-    """Each source's output and its named shares (a column's branches each under its owner, a
+    """Each group's output and its named shares (a column's branches each under its owner, a
     run's members with their own shares; ``cols`` ``None``: each column is its branch) into
     ``part``; the rest as other conductors."""
     owners = b.owners
@@ -278,16 +308,16 @@ def _emit(b, ch, top_mags, top_shares, tops, cols, v_all, groups, part, ncols, e
             part.contrib.append((ch, ("conductor", "other conductors", group), rest))
 
 
-def _network_rows(b, f, fac, active, both, drops, part) -> None:
+def _network_rows(b, f, fac, active, both, part) -> None:
     """The JSON network section's rows: each source's largest branch currents at its first
-    frequency (``drops``: sources × branches, |Z·I|)."""
+    frequency."""
     circuit = b.circuit
     admittance = np.abs(fac.y)
     for si, s in enumerate(active):
         first = abs(f - 2 * b.f0) < 1e-9 if s.kind == "rectifier" else f == min(s.parts)
         if not first:
             continue
-        mags = drops[si] * admittance  # |I|
+        mags = np.abs(both.dv[:, si]) * admittance  # |I|
         sig = np.flatnonzero(mags > 1e-3 * abs(s.parts[f]))
         sig = sig[largest(mags[sig], NETWORK_ROWS)]
         I = both.dv[sig, si] * fac.y[sig]

@@ -11,12 +11,14 @@ import math
 from collections import defaultdict
 from dataclasses import dataclass, field
 from functools import cached_property
+from types import SimpleNamespace
 
 import numpy as np
 
 from ..core.units import db_of_ratio, dbv
 from .feedback import feedback_rows
 from .hearing import heard_threshold, spl_of
+from .hum_shares import pooled_shares
 from .hum_rows import Contributor, CrosstalkLine, FeedbackLine, LoopPickup, SpectrumLine
 
 __all__ = ["ChannelHum", "HumResult", "Merged", "FLOOR_V", "ROUNDING", "CROSSTALK_FLOOR_DB"]
@@ -142,6 +144,8 @@ class Merged:
         self.in_phase = {ch: defaultdict(lambda: defaultdict(float)) for ch in b.channels}
         self.pickup: dict = {}  # frequency -> the loops' drops and currents per unit flux
         self.stage_drops: dict = {}  # frequency -> group -> each stage's drop (phasors), V
+        self.pooled: dict = {}  # frequency -> group -> its sources' branch drops summed, V
+        self.tests: dict = {}  # frequency -> the channels' test currents in each branch
 
     def add(self, f: float, part) -> None:
         for ch, group, mag in part.in_phase:
@@ -149,10 +153,11 @@ class Merged:
         at = self.stage_drops.setdefault(f, {})
         for g, v in part.stage_drops.items():  # a frequency's sources may come in several parts
             at[g] = at[g] + v if g in at else v
-        for ch, group, v in part.out:
-            self.out[ch][f][group] += v
-        for ch, label, v in part.contrib:
-            self.contrib[ch][label][f] += v
+        pooled = self.pooled.setdefault(f, {}) if part.pooled else {}
+        for g, z in part.pooled.items():
+            pooled[g] = pooled[g] + z if g in pooled else z
+        if part.tests is not None:
+            self.tests[f] = part.tests
         self.network_rows.extend(part.network)
         if part.probes is not None:
             self.probes[f] = self.probes.get(f, 0.0) + part.probes
@@ -166,8 +171,17 @@ class Merged:
             self.feedback_raw[(name, ch, f)] = (total, ahead)
 
     def fold(self) -> None:
-        """Each stage's drop from each source group into the worst case (every stage in phase:
-        Σ over a channel's stages of |drop|), once every part is in."""
+        """Each source group's output and conductor shares (:func:`pooled_shares`), and each
+        stage's drop from each group into the worst case (every stage in phase: Σ over a
+        channel's stages of |drop|), once every part is in."""
+        for f, pooled in self.pooled.items():
+            sink = SimpleNamespace(out=[], contrib=[])
+            pooled_shares(self.b, pooled, self.tests[f], sink)
+            for ch, group, v in sink.out:
+                self.out[ch][f][group] += v
+            for ch, label, v in sink.contrib:
+                self.contrib[ch][label][f] += v
+        self.pooled = {}
         for f, groups in self.stage_drops.items():
             for ci, ch in enumerate(self.b.channels):
                 rows = self.b.stage_channel == ci
