@@ -235,10 +235,17 @@ def test_the_reports_show_the_outlet_voltages(cli, tmp_path):
 def test_the_advice_plugs_the_desk_in_beside_the_preamp_then_lands_the_shield_on_the_chassis(cli):
     code, out, _ = cli("suggest", str(ROOM))
     first = out.split("\n2. ")[0]
-    # the case's own fix (pin 1 to the chassis, AES48) is among the next two; the other is the
-    # output's own return wire in the preamp's plan, which also removes its hum
-    blocks = [out.split(f"\n{i}. ")[1].split(f"\n{i + 1}. ")[0] for i in (2, 3)]
-    (second,) = [b for b in blocks if b.startswith("land the shield of pre_out")]
+    # the case's own fix (pin 1 to the chassis, AES48) comes next; the output's pin 1 run to the
+    # preamp's star by a wire of its own, while the shield lands there, is refused: the shield's
+    # current would cross the box to the star (a balanced shield goes to the chassis at the entry)
+    second = out.split("\n2. ")[1].split("\n3. ")[0]
+    refused = out.split("Considered and rejected:")[1]
+    assert "\n3. " not in out.split("Considered and rejected:")[0]
+    assert (
+        "run micpre.out_pin1 to micpre.star by its own wire (micpre.out_gnd)" in refused
+        and "micpre.out_pin1 is where the shield of pre_out lands (a balanced socket's pin 1)"
+        in refused
+    )
     assert "1. plug desk in at strip, beside micpre" in first and "[answers GC101]" in first
     assert (
         "-device desk: simple, plugged wall_desk" in first

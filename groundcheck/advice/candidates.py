@@ -23,6 +23,7 @@ from ..rules.live_chassis import LIVE_CHASSIS as _LIVE, live_network
 from ..rules.results import Result
 from .changes import Answer, Candidate, ChangeContext, device_note
 from .installation_changes import earthed_outlets, installation_candidates, shield_to_chassis
+from .shield_landings import shields_together
 from .loop_changes import loop_candidates, second_bond, terminate_shield
 from .ht_bond import ht_return_bond
 from .own_stud import own_stud
@@ -63,7 +64,6 @@ FINDING_GENERATORS = {
     "star-return": star_candidates,
     "second-bond": second_bond,
     "terminate-shield": terminate_shield,
-    "shield-to-chassis": lambda ctx, f, add: add(shield_to_chassis(ctx, f)),
     "own-stud": lambda ctx, f, add: add(own_stud(ctx, f)),
     "thicken": lambda ctx, f, add: add(thicker(ctx, f)),
     "bond": lambda ctx, f, add: add(bonding_wire(ctx, f)),
@@ -85,6 +85,7 @@ AFTER_FINDINGS = {
     "tt-electrode": tt_electrode,
     "it-electrode": it_electrode,
     "own-crosstalk-return": crosstalk_candidates,
+    "shield-to-chassis": lambda ctx, a, add: shields_together(ctx, a, add, shield_to_chassis),
 }
 
 

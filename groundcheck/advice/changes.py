@@ -17,7 +17,7 @@ from ..model.kinds import PROTECTIVE, is_fastening_kind, joins_devices, shield_l
 from ..model.records import Plan
 from ..network.earthing import earth_terminals
 from ..rules.results import Result
-from .edits import Edit, PlanTexts, direct_includes, shown_path
+from .edits import Edit, PlanTexts, direct_includes, shown_path, squeeze
 
 __all__ = [
     "Answer",
@@ -341,6 +341,9 @@ def reroute(
     if via:
         edit = dataclasses.replace(edit, new=re.sub(rf",\s*{_GONE}[ \t]*", "", edit.new))
     note = block_note(ctx.file_name(c.name, st), label)
+    from .shield_landings import off_the_entry
+
+    why = off_the_entry(ctx, c, end, to)  # a balanced shield's landing kept at the entry
     return Candidate(
         title + note,
         reason,
@@ -349,6 +352,7 @@ def reroute(
         wire=length or 0.0,
         action=action,
         element=name,
+        refused=why,
     )
 
 
@@ -371,21 +375,6 @@ def rephrase(
     edit = Edit(edit.line, squeeze(edit.new, new), edit.extra, edit.last, edit.file)
     touches = ctx.protective(c) if protective is None else protective
     return Candidate(title, reason, (edit,), touches, action=action, element=c.name)
-
-
-def squeeze(text: str, new: str) -> str:
-    """Blanks left by items replaced with nothing after ``new`` are removed (``terminated a`` not
-    ``terminated a  ``)."""
-    i = text.find(new)
-    if i < 0:
-        return text
-    j = i + len(new)
-    k = j
-    while k < len(text) and text[k] in " \t":
-        k += 1
-    if k == len(text) or text[k] in ",#\n":
-        return text[:j] + (" " if k < len(text) and text[k] == "#" else "") + text[k:]
-    return text
 
 
 def appended(ctx: ChangeContext, st, phrase: str) -> Edit:

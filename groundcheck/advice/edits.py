@@ -21,6 +21,7 @@ from ..language.syntax import parse_text
 
 __all__ = [
     "Edit",
+    "squeeze",
     "apply_edits",
     "edited_texts",
     "file_text",
@@ -294,3 +295,18 @@ def direct_includes(plan, src: "PlanTexts") -> dict[str, object]:
         if str(main.parent / rel) in plan.files:
             out[str(main.parent / rel)] = st
     return out
+
+
+def squeeze(text: str, new: str) -> str:
+    """Blanks left by items replaced with nothing after ``new`` are removed (``terminated a`` not
+    ``terminated a  ``)."""
+    i = text.find(new)
+    if i < 0:
+        return text
+    j = i + len(new)
+    k = j
+    while k < len(text) and text[k] in " \t":
+        k += 1
+    if k == len(text) or text[k] in ",#\n":
+        return text[:j] + (" " if k < len(text) and text[k] == "#" else "") + text[k:]
+    return text
