@@ -26,6 +26,7 @@ from ..rules.live_chassis import LIVE_CHASSIS
 from ..rules.rule_families import HUM, PROTECTIVE_EARTH
 from .changes import Candidate
 from .edits import apply_edits, edited_texts
+from .supply_paths import supply_on_signal
 from .fixes import identity
 from .hearing import HUM_FLOOR_DBV, heard_changes, share_only
 from .returns import dead_screen_ends, lost_circuit, lost_wired_returns, metals_cut_loose
@@ -78,8 +79,9 @@ class Evaluation:
     def rank_key(self):
         """Sort key, best first: dangers cleared (net of those introduced), protective-earth faults
         cleared (net: a bond that can loosen comes before the hum), faults cleared (net), hum gain,
-        findings introduced, size of the change (statements edited, then metres of wire laid),
-        then warnings and notes cleared (net: of two joins alike in all that, the one that also
+        findings introduced, size of the change (statements edited), the supplies' current it
+        leaves on signal wiring (to the mA: :func:`supply_on_signal`), metres of wire laid, then
+        warnings and notes cleared (net: of two joins alike in all that, the one that also
         takes a load's return off the bus), and only then the title."""
         judged = self.judged_change_db().values()
         gain = sum(max(0.0, -d) for d in judged) - sum(max(0.0, d) for d in judged)
@@ -91,6 +93,7 @@ class Evaluation:
             -round(gain, 1),
             len(self.introduced),
             len(self.candidate.edits),
+            round(supply_on_signal(self.result), 3),
             round(self.candidate.wire + self.candidate.work, 4),
             -self.net.get("warning", 0),
             -self.net.get("note", 0),
