@@ -51,6 +51,7 @@ from .bonding_heat import (
     ConductorHeat,
     conductor_heat,
 )
+from .bonding_placed import placed_bonding
 from .impedance import conductor_resistance
 from .safety import protective_circuit
 
@@ -233,7 +234,9 @@ def _shares(circ, cols, V, weight=None) -> dict[str, float]:
 
 def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> BondingResult | None:
     """Each protective conductor's temperature and each fastening's contact power in every bonding
-    test, and each touchable part's path voltage; None without a mains statement or for class II.
+    test, and each touchable part's path voltage; for an installation, each placed device's
+    (:func:`groundcheck.physics.bonding_placed.placed_bonding`); None for class II, or with
+    neither.
 
     Parameters:
         plan: the plan.
@@ -247,7 +250,9 @@ def bonding_figures(plan: Plan, route: ProtectiveRoute, circuit=None) -> Bonding
     """
     tests = bonding_tests(plan)
     if not tests:
-        return None
+        # an installation: each placed device's own plan, tested with what the building puts
+        # ahead of it
+        return placed_bonding(plan, bonding_figures) if plan.mains is None else None
     circ = protective_circuit(plan, route, circuit)
     solved = _part_solve(plan, circ)
     cols, V, rpart = solved if solved is not None else ([], None, {})

@@ -14,6 +14,7 @@ import math
 
 from typing import TYPE_CHECKING
 
+from ..physics.bonding_test import LONG_TEST
 from .catalogue import Finding
 from .registry import rule
 
@@ -69,7 +70,7 @@ def rule_bonding_test(s: Solved) -> list[Finding]:
                 f"test ({row.current:.3g} A for {t.duration:g} s), over the {row.limit:g} °C "
                 f"short-time limit {INSULATION_WORDS.get(row.insulation, row.insulation)}"
                 + ("" if melts else _BOUND),
-                where.get(row.conductor, s.plan.mains.location),
+                where.get(row.conductor, _plan_location(s)),
                 (row.conductor,),
                 _heat_figures(row),
                 f"{size} for {row.conductor}, so that it carries the test current ({t.basis}) "
@@ -116,9 +117,9 @@ def _drops(s: Solved) -> list[Finding]:
         t = tests[p.test]
         amps = p.current if p.current is not None else t.current
         behind = (
-            f" (200 % of the {s.plan.mains.fuse:g} A fuse that protects it: a fault at it is "
+            f" (200 % of the {amps / LONG_TEST[0]:g} A fuse that protects it: a fault at it is "
             "behind the fuse)"
-            if abs(amps - t.current) > 1e-9 * t.current and s.plan.mains.fuse is not None
+            if abs(amps - t.current) > 1e-9 * t.current
             else ""
         )
         out.append(
@@ -128,7 +129,7 @@ def _drops(s: Solved) -> list[Finding]:
                 f"the protective path to {p.part} drops {p.voltage:.3g} V at {amps:.3g} A in the "
                 f"{t.name} bonding test{behind}, over the {p.limit:g} V IEC 60950-1 allows for a "
                 "protective device above 16 A",
-                metals.get(p.part, s.plan.mains.location),
+                metals.get(p.part, _plan_location(s)),
                 (p.part,),
                 {
                     "test": p.test,
@@ -142,3 +143,12 @@ def _drops(s: Solved) -> list[Finding]:
             )
         )
     return out
+
+
+def _plan_location(s: Solved):
+    """Where a bonding finding with no statement of its own is reported: the plan's mains, else
+    its supply."""
+    for stated in (s.plan.mains, s.plan.supply):
+        if stated is not None:
+            return stated.location
+    return s.plan.location
