@@ -34,6 +34,12 @@ def _analysed(path: Path):
     return plan, analyze(plan), path.read_text()
 
 
+@pytest.fixture(scope="module")
+def amp():
+    """The amplifier alone, as planted."""
+    return _analysed(FIELD / "esl-amp.gplan")
+
+
 def test_pin_one_on_its_chassis_lug_is_never_moved_to_the_star():
     # his corrected desk: pin 1 on a 15 mm wire to a lug bolted to the deck at the entry (AES48);
     # the advisor offered to run it 233 mm to the signal star (his problem 1)
@@ -60,12 +66,12 @@ def test_a_stereo_pair_of_shields_is_landed_on_the_chassis_together():
     assert sum(f.startswith("GC113") for f in ev.cleared) == 2
 
 
-def test_the_supply_return_moved_ranks_before_the_stage_that_reads_it():
+def test_the_supply_return_moved_ranks_before_the_stage_that_reads_it(amp):
     # M1: both changes clear the left channel's shared return alike; the grid return moved to the
     # star leaves the −400 V rail's charging current on l_b0v_lead, a wire written as signal
     # ground; the rail's 0 V joined to the centre tap takes it off (his problem 3)
     path = FIELD / "esl-amp.gplan"
-    plan, r, text = _analysed(path)
+    plan, r, text = amp
     cands = {c.element: c for c in candidates(plan, r, text)}
     patch = evaluate(text, plan, r, cands["l_gret_tr"], Options(), FIELD, path.resolve())
     join = evaluate(text, plan, r, cands["neg_0v_lead"], Options(), FIELD, path.resolve())
@@ -93,3 +99,19 @@ def test_the_desk_shows_the_amplifiers_bonding_test_at_the_desks_breaker():
         c for c in r.bonding.conductors if (c.conductor, c.test) == ("amp.pe_lead", "amp long")
     ]
     assert 115 <= lead.reached <= 130 and lead.passes
+
+
+def test_the_supplies_returns_gathered_at_their_0v_are_no_chain(amp):
+    # fixed: the −400 V reservoir's 0 V and the bias supply's on wires of their own to the supply
+    # board's 0 V, where the centre tap lands, and one link from there to the star (common
+    # practice; the advisor itself refuses running them to the star: the charging current would
+    # cross it). His problem 5: a GC103 warning no correct build could clear
+    _, fixed, _ = _analysed(FIELD / "variants" / "fixed" / "esl-amp.gplan")
+    assert not [f for f in fixed.findings if f.code == "GC103"]
+    # as planted, the −400 V rail's 0 V meets its centre tap only through the star and the left
+    # board's 0 V: still GC103
+    assert any(
+        f.code == "GC103"
+        and "the current of hvn between ct and neg_0v flows through the star" in f.message
+        for f in amp[1].findings
+    )

@@ -64,7 +64,9 @@ TOPOLOGY_ENTRIES: list[Rule] = [
         "another; a junction that only joins two pieces of a wire is no step): a chain that "
         "only looks like a star. An input socket wired to the ground of the stage that "
         "amplifies it (the stage's own pair, with gain) is no chain: the trade wires an input's "
-        "ground beside its valve's cathode. "
+        "ground beside its valve's cathode. Nor are the supplies' own return points "
+        "(reservoir and filter negatives, centre taps) gathered at one supply's 0 V and taken "
+        "to the star by one link: the ± rails' reservoirs meet at their centre tap. "
         "Also a channel's star (a block placement's) that reaches the plan's own star only "
         "through another channel's star.",
         "Each return in a chain carries the currents of those behind it, so their drops add "

@@ -87,6 +87,10 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
     clear, _ = bfs(ctx.adj, star_names, lambda v: allowed(v) and v not in terminals, rank, joints)
     chains: dict[str, list[tuple[str, str]]] = {}
     supplies = supply_ends(ctx.plan)
+    # the supplies' own return points (reservoir, centre tap, filter and regulator returns): met
+    # at one supply's 0 V and taken to the star by one link, they are gathered, not chained
+    # (common practice: the ± rails' reservoirs meet at their centre tap)
+    gathered = {p for pair in supplies for p in pair}
     # an input socket wired to the ground of the stage that amplifies it, which runs on to the
     # star, is that stage's input pair as the trade wires it (the input's ground beside its
     # valve's cathode): no chain.  An output socket read at 0 dB is not: the load's current
@@ -105,6 +109,8 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
         if _partner_as_near(ctx.adj, dist, t, joints, pairs):
             continue  # as near through its own current's other end: which route is no fact
         via = _via(path, t, terminals, pairs)
+        if via and t in gathered and set(via) <= gathered:
+            continue  # a supply's return gathered with the others' at a supply's 0 V, one link on
         if via and _clear_distance(ctx.adj, clear, t, joints) > dist[t]:
             chains.setdefault(star, []).append((t, via[0]))
     out = []
