@@ -355,9 +355,22 @@ def _before_ours(err: str) -> bool:
         return False
     if re.search(r"Error processing line \d+ of \S+\.pth", err) and "groundcheck/" not in err:
         return True
+    ignored = _SWALLOWED.search(err)
+    if ignored and "Traceback" not in err[: ignored.start()] + err[ignored.end() :]:
+        # Ctrl-C in a module lock's callback while the first modules are imported: the
+        # interpreter reports it ("Exception ignored") and goes on, before any handler of ours
+        frames = re.findall(r'File "([^"]+)"', ignored.group(1))
+        return all("<frozen " in f or _FIRST_STEPS.search(f) for f in frames)
     files = set(re.findall(r'File "([^"]+)"', err))
     ours = {f for f in files if "groundcheck/" in f}
     return err.rstrip().endswith("KeyboardInterrupt") and all(_FIRST_STEPS.search(f) for f in ours)
+
+
+#: an exception the interpreter reports and goes on from: a KeyboardInterrupt in a callback
+_SWALLOWED = re.compile(
+    r"Exception ignored in: [^\n]*\nTraceback \(most recent call last\):\n"
+    r"((?:  File [^\n]*\n(?:    [^\n]*\n)*)+)KeyboardInterrupt: ?\n?"
+)
 
 
 def _ctrl_c_default() -> None:

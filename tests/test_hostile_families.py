@@ -48,3 +48,24 @@ def test_an_unreadable_plan_with_its_own_name_as_output(cli, tmp_path):
     assert (
         code == 2 and "refusing to write over" in err and not (tmp_path / "nowhere.gplan").exists()
     )
+
+
+def test_a_ctrl_c_the_interpreter_swallowed_before_our_handler_is_told_from_ours():
+    # found by the signals family (1 case in 10,000, reproduced by signalling `python -m
+    # groundcheck --version` in its first 120 ms): a Ctrl-C that lands in a module lock's callback
+    # while site and the first modules are imported is reported by the interpreter and the run
+    # goes on; the command's handler is not yet installed (about 27 ms of start-up, 3 ms of it
+    # ours). Any frame of ours past the first steps, or another traceback, is still a failure
+    from hostile_families import _before_ours
+
+    swallowed = (
+        "Exception ignored in: <function _get_module_lock.<locals>.cb at 0x7f7ba03eb4c0>\n"
+        "Traceback (most recent call last):\n"
+        '  File "<frozen importlib._bootstrap>", line 198, in cb\n'
+        "KeyboardInterrupt: \n"
+    )
+    assert _before_ours(swallowed)
+    later = swallowed.replace("<frozen importlib._bootstrap>", "/x/groundcheck/physics/hum.py")
+    assert not _before_ours(later)
+    other = 'Traceback (most recent call last):\n  File "/x/groundcheck/cli/a.py"\nValueError\n'
+    assert not _before_ours(swallowed + other)
