@@ -254,6 +254,7 @@ OTHER_VOCABULARIES = {
     ("renderers/lexer.py", "lift"): "plan-language keywords of other statements",
     ("model/installation.py", "signal"): "where a shield lands (chassis or signal)",
     ("rules/installation.py", "signal"): "where a shield lands (chassis or signal)",
+    ("advice/pin_one.py", "signal"): "where a shield lands (chassis or signal)",
     ("measure/bench.py", "heater"): "a hum source's kind (physics/sources.py)",
     ("measure/bench.py", "signal"): "a hum source's kind",
     ("physics/coupling.py", "heater"): "a hum source's kind",

@@ -18,6 +18,7 @@ from ..model.records import Plan
 from ..network.earthing import earth_terminals
 from ..rules.results import Result
 from .edits import Edit, PlanTexts, direct_includes, shown_path, squeeze
+from .pin_one import off_the_entry
 
 __all__ = [
     "Answer",
@@ -341,8 +342,6 @@ def reroute(
     if via:
         edit = dataclasses.replace(edit, new=re.sub(rf",\s*{_GONE}[ \t]*", "", edit.new))
     note = block_note(ctx.file_name(c.name, st), label)
-    from .shield_landings import off_the_entry
-
     why = off_the_entry(ctx, c, end, to)  # a balanced shield's landing kept at the entry
     return Candidate(
         title + note,

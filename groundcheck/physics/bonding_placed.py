@@ -31,12 +31,11 @@ def placed_bonding(plan: Plan, figures):
     """
     from ..network.earthing import protective_route
     from ..network.graph import build_graph
-    from .bonding_test import BondingResult
 
     supply = plan.supply
     if plan.mains is not None or supply is None or not plan.device_plans:
         return None
-    tests, rows, parts, done = [], [], [], {}
+    tests, rows, parts, done, made = [], [], [], {}, None
     for dev, own in plan.device_plans:
         if own.mains is None or own.mains.equipment_class == "II":
             continue
@@ -48,12 +47,13 @@ def placed_bonding(plan: Plan, figures):
         b = done[id(own)]
         if b is None:
             continue
+        made = type(b)  # the BondingResult (its module calls this one)
         tests += [replace(t, name=f"{dev} {t.name}") for t in b.tests]
         rows += [
             replace(c, conductor=f"{dev}.{c.conductor}", test=f"{dev} {c.test}")
             for c in b.conductors
         ]
         parts += [replace(p, part=f"{dev}.{p.part}", test=f"{dev} {p.test}") for p in b.parts]
-    if not tests:
+    if made is None:
         return None
-    return BondingResult(tuple(tests), tuple(rows), tuple(parts), plan.ambient)
+    return made(tuple(tests), tuple(rows), tuple(parts), plan.ambient)

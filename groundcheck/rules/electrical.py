@@ -188,7 +188,8 @@ def _shared_fix(row, plan_conductors: dict, leak: set, star: str = "the star") -
             f"the current reaches the stage along the shield of {', '.join(via_ic)}, which the "
             "balanced input rejects by its common-mode rejection (the hum budget gives what is "
             "left); if it is heard, use an input of better rejection or a ground-lift network on "
-            "the signal side; never lift the protective earth"
+            "the signal side, with power diodes across it rated for a fault (GC226); never lift "
+            "the protective earth"
         )
     elif via_ic:
         # an unbalanced link's shield is its signal's return: it stays, and bought or

@@ -42,7 +42,8 @@ def contributor_fix(element: str, source: str, cond, loop_driven: set) -> str:
             f"{source} drives current round the loop along the shield of {element}, the signal's "
             "return on an unbalanced link, which stays: plug the devices it joins into one outlet "
             "or strip (a balanced link only between balanced sockets, a ground-lift network only "
-            "in equipment of your own build); never lift the protective earth"
+            "in equipment of your own build, with power diodes across it rated for a fault); "
+            "never lift the protective earth"
         )
     if source in loop_driven:
         return (

@@ -111,7 +111,8 @@ def _loop_fix(info, opener, ctx: AuditContext) -> tuple[str, tuple]:
         "second-chassis-bond": " (keep one bond of the signal ground to the chassis)",
         "metal-return": " (return currents by wire, not through the metal)",
         "mains-cords": " (use a balanced interconnect or a ground-lift network on the signal "
-        "side; never lift the protective earth)",
+        "side, with power diodes across it rated for a fault (GC226); never lift the protective "
+        "earth)",
     }.get(info.closed_by, ""), actions
 
 

@@ -113,6 +113,11 @@ def _chains(ctx: AuditContext, stars, groups: dict, allowed) -> list[Finding]:
             continue  # a supply's return gathered with the others' at a supply's 0 V, one link on
         if via and _clear_distance(ctx.adj, clear, t, joints) > dist[t]:
             chains.setdefault(star, []).append((t, via[0]))
+    return _chain_findings(ctx, chains)
+
+
+def _chain_findings(ctx: AuditContext, chains: dict) -> list[Finding]:
+    """GC103, one per star: ``chains`` maps each star to its (return, return passed) pairs."""
     out = []
     for star, pairs in sorted(chains.items()):
         desc = "; ".join(f"{t} reaches it through {u}" for t, u in pairs)
