@@ -115,3 +115,15 @@ def test_figures_for_a_reader_never_show_a_signed_zero_or_a_python_value():
 )
 def test_aluminium_alloys_against_their_conductivity(alloy, iacs):
     assert resistivity(alloy) == pytest.approx(1.7241e-8 / (iacs / 100), rel=0.02)
+
+
+def test_a_new_wires_size_is_written_as_its_gauge_or_to_three_figures():
+    # ASTM B258: d = 0.127 mm × 92^((36 − n)/39), worked here by hand for 20 AWG (0.8118 mm,
+    # 0.5176 mm²); a size that is no gauge is shown to three significant figures
+    from groundcheck.core.units import wire_size
+
+    d = 0.127e-3 * 92 ** ((36 - 20) / 39)
+    assert d == pytest.approx(0.8118e-3, rel=1e-4)
+    assert wire_size(math.pi * d * d / 4) == ("20 AWG", "20 AWG")
+    assert wire_size(0.5e-6) == ("0.5 mm2", "0.5 mm²")
+    assert wire_size(0.5176e-6) == ("0.518 mm2", "0.518 mm²")

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 
+from ..core.units import wire_size
 from ..model.kinds import SIGNAL, is_fastening, shield_like
 from ..rules.catalogue import RULES
 from .changes import ROUTE_ALLOWANCE, Answer, Candidate, ChangeContext, delete_change, reroute
@@ -178,8 +179,7 @@ def _join_ends(ctx: ChangeContext, row, reason: str, add, hops) -> None:
     negative to the reservoir's). Of the ways to join them, one that leaves the supply's link to
     the signal ground nearer the most sensitive stage than another way would is refused: the
     stages' own return currents would run the length of the ground to it (common practice: the
-    supply meets the signal ground at the star or the output end, never the input's; ``hops``:
-    :func:`_from_most_sensitive`, found once for every row)."""
+    supply meets the signal ground at the star or the output end, never the input's)."""
     if any({d.a, d.b} == {row.a, row.b} for d in ctx.at(row.a)):
         return
     ways = _join_ways(ctx, row)
@@ -249,7 +249,8 @@ def _own_wire(ctx: ChangeContext, row, reason: str, off_metal: bool = False) -> 
     st = ctx.statement(next(iter(ctx.at(row.a)), None)) if ctx.at(row.a) else None
     if st is None or st.loc.file != ctx.plan.file:
         return None
-    extra = (f"wire {name}: {row.a} to {row.b}, {length:.0f} mm, {area:g} mm2, return",)
+    size, shown = wire_size(area / 1e6)
+    extra = (f"wire {name}: {row.a} to {row.b}, {length:.0f} mm, {size}, return",)
     edits, off = [at_end(ctx, st, extra)], ""
     if off_metal:
         if row.source not in {r.name for r in ctx.plan.rectifiers}:
@@ -271,7 +272,7 @@ def _own_wire(ctx: ChangeContext, row, reason: str, off_metal: bool = False) -> 
         off = f", and {end} off the metal ({bolt.name} out)"
     return Candidate(
         f"join {row.a} and {row.b} by a short wire of their own ({name}, {length:.0f} mm, "
-        f"{area:g} mm²){off}, so the supply's return current stays between them and leaves "
+        f"{shown}){off}, so the supply's return current stays between them and leaves "
         f"{', '.join(row.shared)}",
         reason,
         tuple(edits),

@@ -19,6 +19,7 @@ __all__ = [
     "KINDS",
     "UnitError",
     "parse_quantity",
+    "wire_size",
     "awg_diameter",
     "awg_area",
     "unit_kind",
@@ -158,6 +159,25 @@ def awg_area(n: float) -> float:
     """Cross-section of solid round wire of AWG size ``n``, in m² (π d²/4, ASTM B258)."""
     d = awg_diameter(n)
     return math.pi * d * d / 4.0
+
+
+def wire_size(area: float) -> tuple[str, str]:
+    """A wire's cross-section as a plan writes it and as a report shows it: its AWG size when it is
+    one (a new wire as thick as a 20 AWG one is written '20 AWG', not '0.517619 mm2'), else mm² to
+    three significant figures.
+
+    Parameters:
+        area: the cross-section, m².
+    Returns:
+        (plan text, shown text), e.g. ("20 AWG", "20 AWG") or ("0.5 mm2", "0.5 mm²").
+    References:
+        ASTM B258 (:func:`awg_area`).
+    """
+    for n in range(-3, 41):
+        if abs(awg_area(n) - area) <= 1e-6 * area:
+            return f"{n} AWG", f"{n} AWG"
+    mm2 = f"{area * 1e6:.3g}"
+    return f"{mm2} mm2", f"{mm2} mm²"
 
 
 @lru_cache(maxsize=8192)
