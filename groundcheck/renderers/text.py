@@ -9,6 +9,7 @@ protective-earth ones in :mod:`.textearth`, what they share in :mod:`.textwords`
 from __future__ import annotations
 
 import io
+import os
 
 from rich.console import Console
 from rich.table import Table
@@ -168,7 +169,7 @@ def _findings(result: Result, console: Console) -> None:
         console.print(Text(f"{label} ({len(group)})", style=style))
         for f in group:
             head = Text(f"  {f.code} ", style="bold")
-            head.append(f"{shown(f.location)}  ", style="dim")
+            head.append(f"{shown(_where(f.location))}  ", style="dim")
             head.append(shown(f.message))
             console.print(head)
             if f.figures:
@@ -233,3 +234,15 @@ def _placed_words(supply) -> str:
         head + "; a simple device's own fuse is not known: state the supply's breaker to check "
         "it" + tail
     )
+
+
+def _where(loc) -> str:
+    """A finding's place as the plan's own are shown: a device's plan, read by its full path, under
+    the folder the command runs in is shown from there (``devices/amp.gplan:43:1``, as the plan
+    that places it is), any other as read."""
+    f = loc.file
+    if os.path.isabs(f):
+        rel = os.path.relpath(f)
+        if not rel.startswith(".."):
+            return str(loc).replace(f, rel, 1)
+    return str(loc)
