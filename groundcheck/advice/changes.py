@@ -13,12 +13,12 @@ from functools import cached_property
 from pathlib import Path
 
 from ..model.installation import transformer_feeds
-from ..model.kinds import PROTECTIVE, is_fastening_kind, joins_devices, shield_like
+from ..model.kinds import PROTECTIVE, is_fastening, is_fastening_kind, joins_devices, shield_like
 from ..model.records import Plan
 from ..network.earthing import earth_terminals
 from ..rules.results import Result
 from .edits import Edit, PlanTexts, direct_includes, shown_path, squeeze
-from .pin_one import off_the_entry
+from .pin_one import off_the_entry, shield_landings
 
 __all__ = [
     "Answer",
@@ -191,6 +191,18 @@ class ChangeContext:
     def at(self, point: str) -> list:
         """The conductors with an end on ``point``, in the plan's order."""
         return self._ends.get(point, [])
+
+    def fastened_to(self, point: str) -> str | None:
+        """The metal part a fastening holds ``point`` to (a lug, stud or bolted socket; the first
+        in the plan's order), None when no fastening holds it."""
+        held = (k for k in self.at(point) if point in (k.a, k.b) and is_fastening(k, self.metals))
+        k = next(held, None)
+        return None if k is None else (k.b if k.b in self.metals else k.a)
+
+    @cached_property
+    def shield_landings(self) -> dict[str, str]:
+        """Where balanced links' shields land on a signal ground (:mod:`.pin_one`), once."""
+        return shield_landings(self.plan)
 
     @cached_property
     def G(self):

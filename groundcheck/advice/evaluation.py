@@ -70,6 +70,8 @@ class Evaluation:
     #: channel -> change of how far its hum stands above hearing (dB, :func:`heard_level`), for
     #: the channels with a listening verdict: what the ranking and the louder test read there
     heard_change_db: dict = field(default_factory=dict)
+    #: the supplies' current the change leaves on signal wiring, A (:func:`supply_on_signal`)
+    on_signal: float = 0.0
 
     def judged_change_db(self) -> dict:
         """Each channel's change as the advice judges it: above hearing where the plan has a
@@ -93,7 +95,7 @@ class Evaluation:
             -round(gain, 1),
             len(self.introduced),
             len(self.candidate.edits),
-            round(supply_on_signal(self.result), 3),
+            round(self.on_signal, 3),
             round(self.candidate.wire + self.candidate.work, 4),
             -self.net.get("warning", 0),
             -self.net.get("note", 0),
@@ -201,7 +203,7 @@ def _unlives(cand: Candidate, after: Result) -> bool:
 def _judged(cand: Candidate, plan: Plan, p: Plan, before: Result, after: Result) -> Evaluation:
     """The evaluation of candidate ``cand`` whose edited plan ``p`` analyses to ``after``: the
     protective earth's checks first, then the findings cleared and introduced, then the score."""
-    ev = Evaluation(cand, after)
+    ev = Evaluation(cand, after, on_signal=supply_on_signal(after))
     ev.rejected = _protective_harm(cand, plan, p, before, after)
     if ev.rejected:
         return ev

@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 
 from .changes import ROUTE_ALLOWANCE, Candidate, ChangeContext
-from .protective_changes import at_end, free_name, stud_position, device_frame, fastened_to
+from .protective_changes import at_end, free_name, stud_position, device_frame
 
 __all__ = ["ht_return_bond"]
 
@@ -74,7 +74,7 @@ def _target(ctx: ChangeContext, part: str, flagged: set, ret: str):
         for p in ctx.plan.points
         if p.pos is not None
         and p.kind in ("stud", "tag", "lug", "star")
-        and (home := fastened_to(ctx, p.name)) is not None
+        and (home := ctx.fastened_to(p.name)) is not None
         and home != part
         and home not in flagged
         and home in ctx.metals

@@ -6,33 +6,30 @@ never to the signal ground; AES48-2005, from memory)."""
 from __future__ import annotations
 
 from ..model.installation import shield_ends
-from ..model.kinds import is_fastening, joins_devices
+from ..model.kinds import joins_devices
 
-__all__ = ["off_the_entry"]
+__all__ = ["off_the_entry", "shield_landings"]
 
 
-def _landings(ctx) -> dict[str, str]:
+def shield_landings(plan) -> dict[str, str]:
     """Each point where a balanced link's shield lands on a signal ground (``shield-to … signal``
-    at that end) -> the link's name."""
-    got = ctx.__dict__.get("_shield_landings")
-    if got is None:
-        got = {}
-        for c in ctx.plan.conductors:
-            if joins_devices(c) and c.connects and c.balanced:
-                for end, landing in zip((c.a, c.b), shield_ends(c)):
-                    if landing == "signal":
-                        got.setdefault(end, c.name)
-        ctx.__dict__["_shield_landings"] = got
+    at that end) -> the link's name.
+
+    Parameters:
+        plan: the plan.
+    Returns:
+        the points, each with its link.
+    References:
+        AES48-2005 (from memory), the landings :func:`groundcheck.model.installation.shield_ends`
+        reads.
+    """
+    got: dict[str, str] = {}
+    for c in plan.conductors:
+        if joins_devices(c) and c.connects and c.balanced:
+            for end, landing in zip((c.a, c.b), shield_ends(c)):
+                if landing == "signal":
+                    got.setdefault(end, c.name)
     return got
-
-
-def _on_chassis(ctx, point: str) -> bool:
-    """Whether ``point`` is metal, or fastened to metal by a bolt or strap."""
-    if point in ctx.metals:
-        return True
-    return any(
-        is_fastening(d, ctx.metals) and ({d.a, d.b} - {point}) & ctx.metals for d in ctx.at(point)
-    )
 
 
 def off_the_entry(ctx, c, end: str, to: str) -> str:
@@ -52,8 +49,8 @@ def off_the_entry(ctx, c, end: str, to: str) -> str:
         AES48-2005 (from memory): a balanced shield terminates on the enclosure at the entry.
     """
     stay = c.b if end == c.a else c.a
-    link = _landings(ctx).get(stay)
-    if link is None or (to not in ctx.stars and _on_chassis(ctx, to)):
+    link = ctx.shield_landings.get(stay)
+    if link is None or (to not in ctx.stars and (to in ctx.metals or ctx.fastened_to(to))):
         return ""  # a lug on the chassis keeps it there; a star bolted down is the signal ground
     return (
         f"{stay} is where the shield of {link} lands (a balanced socket's pin 1): moved to {to}, "

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 
-from ..model.kinds import is_fastening, is_hookup
+from ..model.kinds import is_hookup
 from ..model.records import PE_POINT
 from ..rules.protective import shafts_holding
 from .changes import (
@@ -24,7 +24,6 @@ from .edits import Edit
 
 __all__ = [
     "bonding_wire",
-    "fastened_to",
     "stud_position",
     "free_name",
     "at_end",
@@ -87,18 +86,6 @@ def stud_position(ctx: ChangeContext, part: str, near, avoid=()) -> tuple[float,
     return None
 
 
-def fastened_to(ctx: ChangeContext, point: str) -> str | None:
-    """The metal part a fastening holds ``point`` to (None when no fastening holds it)."""
-    return next(
-        (
-            k.b if k.b in ctx.metals else k.a
-            for k in ctx.plan.conductors
-            if is_fastening(k, ctx.metals) and point in (k.a, k.b)
-        ),
-        None,
-    )
-
-
 def _bonding_home(ctx: ChangeContext, landing, part: str) -> str | None:
     """The metal a new bonding stud beside the protective earth's landing goes on: of the part the
     landing sits on and the part its fastening holds it to, the larger — the chassis, never a
@@ -115,7 +102,7 @@ def _bonding_home(ctx: ChangeContext, landing, part: str) -> str | None:
     References:
         common practice (each bond from the main chassis, on a fixing of its own).
     """
-    names = [landing.on, fastened_to(ctx, landing.name)]
+    names = [landing.on, ctx.fastened_to(landing.name)]
     homes = [n for n in dict.fromkeys(names) if n in ctx.metals and n != part]
     if not homes:
         return None

@@ -140,7 +140,7 @@ def _bonded_without(ctx: ChangeContext, point: str, wire) -> bool:
 
 def _fastened(ctx: ChangeContext, point: str) -> bool:
     """Whether ``point`` is held on a metal part by a fastening (a lug, stud or bolted socket)."""
-    return any(point in (c.a, c.b) and is_fastening(c, ctx.metals) for c in ctx.at(point))
+    return ctx.fastened_to(point) is not None
 
 
 def _join_ways(ctx: ChangeContext, row) -> list[tuple]:

@@ -15,16 +15,16 @@ def shields_together(ctx: ChangeContext, answer: Answer, add, one) -> None:
     :class:`Candidate` or None), and where two or more links land their shields on one piece of
     equipment's signal ground, one change that lands them all (a stereo pair rewired one socket
     at a time moves the loop's current into the other: each alone may read worse)."""
-    by_device: dict[str, list] = {}
+    by_device: dict[str, dict] = {}  # device -> link -> its own change
     for f in answer.findings:
-        add(one(ctx, f))
+        c = one(ctx, f)
+        add(c)
         ((_, name, end),) = f.actions
         dev = ctx.plan.index.device_of(end)
-        if dev is not None and all(g.actions[0][1] != name for g in by_device.get(dev, [])):
-            by_device.setdefault(dev, []).append(f)
-    for dev, found in by_device.items():
-        singles = [one(ctx, f) for f in found]
-        singles = [c for c in singles if c is not None and not c.refused]
+        if dev is not None and c is not None and not c.refused:
+            by_device.setdefault(dev, {}).setdefault(name, c)  # a link's first end at dev
+    for dev, each in by_device.items():
+        singles = list(each.values())
         if len(singles) < 2:
             continue
         names = [c.element for c in singles]
