@@ -19,7 +19,7 @@ from typing import NamedTuple
 import numpy as np
 
 from .coupling import channel_tests, source_injections
-from .sources import source_group
+from .sources import LEAKAGE_GROUP, source_group
 from .ranking import largest
 
 __all__ = [
@@ -157,11 +157,18 @@ def source_part(b, f: float, fac, active: list, part) -> None:
 
 
 def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
-    both = fac.solve(source_injections(b.circuit, active, f))
     leakage = b.plan.index.leakage
+    alone, summed = _columns(b, f, active, leakage)
+    J = source_injections(b.circuit, alone, f)
+    if summed:
+        J = np.column_stack([J, _summed_injection(b.circuit, summed, f)])
+    both = fac.solve(J)
+    # each column's group: a source's own, then the leakage currents summed (one mains line)
+    groups = [source_group(s.kind, s.name, leakage) for s in alone]
+    leak = np.array([s.name in leakage for s in alone] + [True] * bool(summed), dtype=bool)
+    groups += [LEAKAGE_GROUP] * bool(summed)
     if b.probe_a.size:
-        dv = both.V[b.probe_a] - both.V[b.probe_b]  # probes × sources
-        leak = np.array([s.name in leakage for s in active], dtype=bool)
+        dv = both.V[b.probe_a] - both.V[b.probe_b]  # probes × columns
         power = (np.abs(dv[:, ~leak]) ** 2).sum(axis=1)
         part.probes = power if part.probes is None else part.probes + power
         together = dv[:, leak].sum(axis=1)
@@ -170,12 +177,11 @@ def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
     # phasors added (the rectifiers, the leakage currents: one mains line), for the worst case:
     # every stage in phase (folded in once the frequency is whole, Merged.fold)
     stage_v = (both.V[b.stage_a] - both.V[b.stage_b]) * np.abs(gains[b.valid_idx])[:, None]
-    groups = [source_group(s.kind, s.name, leakage) for s in active]
     at = part.stage_drops
     for g in dict.fromkeys(groups):
         v = stage_v[:, [j for j, x in enumerate(groups) if x == g]].sum(axis=1)
         at[g] = at[g] + v if g in at else v
-    _network_rows(b, f, fac, active, both, part)
+    _network_rows(b, f, fac, alone, both, part)
     # by reciprocity a branch's share of a channel is its drop Z_b·I_b (both.dv: no EMF here)
     # times the channel's test current in it: a group's drops are summed here (its sources'
     # phasors added) and its shares ranked once the frequency is whole (:func:`pooled_shares`),
@@ -187,6 +193,30 @@ def _source_chunk(b, f, fac, active, gains, TC, part) -> None:
         z = both.dv[:, cols].sum(axis=1) if len(cols) > 1 else both.dv[:, cols[0]]
         pooled[g] = pooled[g] + z if g in pooled else z.copy()
     part.tests = TC
+
+
+def _summed_injection(circuit, sources, f: float) -> np.ndarray:
+    """The sum of the sources' injected currents at f (a node's entries added in the sources'
+    order), A."""
+    j = np.zeros(len(circuit.nodes), dtype=complex)
+    for s in sources:
+        i = s.parts.get(f, 0)
+        j[circuit.point_node[s.a]] += i
+        j[circuit.point_node[s.b]] -= i
+    return j
+
+
+def _columns(b, f, active, leakage) -> tuple[list, list]:
+    """The sources solved each in a column of its own, and the leakage currents solved as one
+    column of their sum: at a frequency past a leakage current's first, nothing is read of it
+    alone (its network rows are read at its first frequency, :func:`_network_rows`) and all that
+    is read of the group — its stages' drops, its branches' drops, its probes' voltage — adds
+    (superposition)."""
+    alone, summed = [], []
+    for s in active:
+        later = s.kind != "rectifier" and s.name in leakage and f != min(s.parts)
+        (summed if later else alone).append(s)
+    return alone, summed
 
 
 def pooled_shares(b, pooled: dict, TC, sink) -> None:
