@@ -64,3 +64,35 @@ def test_a_groups_conductor_share_is_its_whole_share_not_each_sources_ten_larges
     assert named["w13"] == pytest.approx(13e-6, rel=1e-3)
     assert named["w3"] == pytest.approx(6e-6, rel=1e-3)
     assert "w1" not in named  # among other conductors
+
+
+def test_leakage_currents_past_their_first_frequency_solved_as_one_sum():
+    # the chain above with a second line on each leakage current: la 0.5 mA and lb 2 mA at
+    # 150 Hz. At 150 Hz (past both currents' first frequency) the two are solved as one column
+    # of their sum; what is read of them there must be what each alone gives, added. Worked by
+    # hand (Ohm's law, the wires' resistance): the 150 Hz line is 0.5 mA × 91 mΩ + 2 mA × 6 mΩ
+    # = 57.5 µV; w3 carries 2.5 mA there and drops 7.5 µV; w2 2.5 mA × 2 mΩ = 5 µV. Each current
+    # keeps its own network rows, at 50 Hz
+    from groundcheck.analysis import analyze
+    from groundcheck.language.loader import load_text
+
+    lines = ['plan "a chain read end to end, two lines"', "listening output 1 V"]
+    lines += [f"point p{k}: pad, at {10 * k},0" for k in range(14)]
+    lines += [f"wire w{k}: p{k - 1} to p{k}, 10 mm, resistance {k} mohm" for k in range(1, 14)]
+    lines += [f"point q{k}: pad, at {10 * k},10" for k in range(1, 13)]
+    lines += [f"wire d{k}: p{k} to q{k}, 10 mm, 0.5 mm2" for k in range(1, 13)]
+    lines += [
+        "current la: p0 to p13, 1 mA 50 Hz, 0.5 mA 150 Hz, leakage",
+        "current lb: p0 to p3, 1 mA 50 Hz, 2 mA 150 Hz, leakage",
+        "stage s: p0 to p13, gain 0 dB, channel out",
+    ]
+    r = analyze(load_text("\n".join(lines) + "\n", "chain2.gplan"))
+    ch = r.hum.channels["out"]
+    line = {s.frequency: s.volts for s in ch.spectrum}
+    assert line[50.0] == pytest.approx(97e-6, rel=1e-3)
+    assert line[150.0] == pytest.approx(57.5e-6, rel=1e-3)
+    at150 = {k[1]: abs(v[150.0]) for k, v in ch.lines.items() if 150.0 in v}
+    assert at150["w3"] == pytest.approx(7.5e-6, rel=1e-3)
+    assert at150["w2"] == pytest.approx(5e-6, rel=1e-3)
+    rows = {(n["source"], n["frequency_hz"]) for n in r.hum.network}
+    assert rows == {("la", 50.0), ("lb", 50.0)}
