@@ -21,6 +21,7 @@ step of a canonical labelling).
 from __future__ import annotations
 
 import dataclasses
+from operator import attrgetter
 
 import networkx as nx
 
@@ -64,13 +65,18 @@ _KEY_FIELDS: dict = {}
 _SKIPPED = _NAMING | _PLACING
 
 
-def _key_fields(c) -> tuple[str, ...]:
-    fields = _KEY_FIELDS.get(type(c))
-    if fields is None:
-        fields = _KEY_FIELDS[type(c)] = tuple(
-            f for f in getattr(c, "__dataclass_fields__", {}) if f not in _SKIPPED
+def _key_fields(c) -> tuple[tuple[str, ...], object]:
+    """The record type's fields a key is written from, and a getter of their values (a tuple)."""
+    known = _KEY_FIELDS.get(type(c))
+    if known is None:
+        fields = tuple(f for f in getattr(c, "__dataclass_fields__", {}) if f not in _SKIPPED)
+        got = (
+            attrgetter(*fields)
+            if len(fields) > 1
+            else (lambda r: tuple(getattr(r, f) for f in fields))
         )
-    return fields
+        known = _KEY_FIELDS[type(c)] = (fields, got)
+    return known
 
 
 def _conductor_key(c) -> str:
@@ -78,8 +84,8 @@ def _conductor_key(c) -> str:
     tree takes the wiring and such a conductor closes the loop it makes (and names it)."""
     if c is None:
         return ""
-    fields = _key_fields(c)
-    values = (type(c), c.kind, *(getattr(c, f) for f in fields))
+    fields, got = _key_fields(c)
+    values = (type(c), c.kind, got(c))
     try:
         key = _KEYS.get(values)
     except TypeError:  # a record holding something unhashable: written each time
@@ -176,25 +182,23 @@ def _ranked(keys: list) -> list[int]:
 def _refined(nodes: list, adj: dict, colour: dict, edge_colour: dict) -> dict:
     """Colour refinement until the classes stop splitting (or :data:`MAX_ROUNDS`)."""
     classes = len(set(colour.values()))
+    if classes == len(nodes):
+        return colour
+    # each node's conductors as (conductor's colour, neighbour's place), written once; the
+    # colours a list by place
+    place = {u: i for i, u in enumerate(nodes)}
+    around = [
+        [(edge_colour[k], place[v]) for v, keys in adj[u].items() for k in keys] for u in nodes
+    ]
+    col = [colour[u] for u in nodes]
     for _ in range(MAX_ROUNDS):
-        if classes == len(nodes):
-            break
-        sig = [
-            (
-                colour[u],
-                tuple(
-                    sorted((edge_colour[k], colour[v]) for v, keys in adj[u].items() for k in keys)
-                ),
-            )
-            for u in nodes
-        ]
-        new = dict(zip(nodes, _ranked(sig)))
-        count = len(set(new.values()))
-        colour = new
-        if count == classes:
+        sig = [(c, tuple(sorted([(e, col[v]) for e, v in ends]))) for c, ends in zip(col, around)]
+        col = _ranked(sig)
+        count = len(set(col))
+        if count == classes or count == len(nodes):
             break
         classes = count
-    return colour
+    return dict(zip(nodes, col))
 
 
 def canonical_ranks(G: nx.MultiGraph) -> dict:
