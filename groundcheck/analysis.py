@@ -14,7 +14,7 @@ from .core.runtime import no_gc, one_blas_thread
 from .model.records import Plan
 from .physics.bonding_test import bonding_figures
 from .physics.circuit import build_circuit
-from .physics.coupling import shared_returns
+from .physics.coupling import rows_cost, shared_returns, transfer_tasks
 from .rules.hum_rules import series_runs
 from .rules.signal_networks import floating_signal_grounds
 from .physics.hum import HumBudget, HumOptions
@@ -242,11 +242,13 @@ def _solve(
 ) -> None:
     """The shared returns, the hum budget and the outlet voltages: their solves as one set of
     independent tasks, so that with ``jobs`` > 1 the processes share all of them (the costliest
-    first), not only the hum budget's frequencies.  The results are the same for any number of
+    first), not only the hum budget's frequencies; the shared returns' transfers first, in slices,
+    as the rows they list depend on them all.  The results are the same for any number of
     processes."""
     budget = outlets = None
-    tasks = [partial(shared_returns, plan, circuit)]
-    costs = [_coupling_cost(plan, circuit)]
+    listed = run_tasks(transfer_tasks(plan, circuit, options.jobs), options.jobs)
+    tasks = [partial(shared_returns, plan, circuit, listed)]
+    costs = [rows_cost(plan, circuit)]
     if options.hum and plan.devices:
         outlets = OutletWork(plan, circuit, rr, options.max_frequency)
     if options.hum and plan.stages:
@@ -273,14 +275,6 @@ def _solve(
         result.outlets = outlets.result(
             done[-1], result.hum.probes if result.hum is not None else None
         )
-
-
-def _coupling_cost(plan: Plan, circuit) -> float:
-    """The shared-return test's cost, in the hum budget's unit (sources × nodes): one real solve
-    per source."""
-    return (
-        (len(plan.rectifiers) + len(plan.currents) + len(plan.heaters)) * len(circuit.nodes) * 1.5
-    )
 
 
 def _notices(plan: Plan, options: Options) -> list[str]:

@@ -80,15 +80,16 @@ def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_proc
     monkeypatch,
 ):
     """With every frequency's sources cut into slices of one (as a large installation's are cut
-    into slices of TASK_SOURCES), the shared returns, the hum budget and the outlet voltages, run
-    as tasks of two processes, give the one-process figures (the recording room: leakage, a cable's
+    into slices of TASK_SOURCES, and the shared returns' transfers into slices of TRANSFER_SLICE),
+    the shared returns, the hum budget and the outlet voltages, run as tasks of two processes, give the one-process figures (the recording room: leakage, a cable's
     EMF and a rectifier)."""
     from groundcheck import analysis
-    from groundcheck.physics import hum
+    from groundcheck.physics import coupling, hum
 
     plan = load(ROOM)
     one = json.loads(render_json(analyze(plan, Options(jobs=1))))
     monkeypatch.setattr(hum, "TASK_SOURCES", 1)
+    monkeypatch.setattr(coupling, "TRANSFER_SLICE", 1)
     counted = []
 
     def counting(tasks, jobs=1, costs=None):
@@ -97,7 +98,9 @@ def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_proc
 
     monkeypatch.setattr(analysis, "run_tasks", counting)
     two = json.loads(render_json(analyze(plan, Options(jobs=2))))
-    assert counted[0] > 10  # the shared returns, the outlets and many slices of the budget
+    # the shared returns' transfers a slice per source, then their rows, the outlets and many
+    # slices of the budget
+    assert counted[0] > 1 and counted[1] > 10
     _close(one, two)
 
 

@@ -13,6 +13,7 @@ MIT Press, 1970 (reciprocity and the sensitivity of a network to each branch).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import partial
 
 import numpy as np
 
@@ -28,6 +29,8 @@ from .sources import Source, channel_tests, pair_tests, plan_sources, source_inj
 __all__ = [
     "SharedReturn",
     "shared_returns",
+    "transfer_tasks",
+    "rows_cost",
     "MAX_SHARED_ROWS",
     "Source",
     "plan_sources",
@@ -134,7 +137,7 @@ class SharedReturn:
     shared: tuple[str, ...]  # the conductors (or metal parts) that make up most of it
 
 
-def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
+def shared_returns(plan, circuit: Circuit, listed: list | None = None) -> list[SharedReturn]:
     """Supply-return currents whose path shares conductors with a sensitive pair (resistive, DC):
     one row per (source, stage) pair that shares, naming the conductors that make up most of the
     coupling.
@@ -142,6 +145,8 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     Parameters:
         plan: the plan.
         circuit: the circuit.
+        listed: what :func:`transfer_tasks`' tasks returned, when the processes worked out the
+            transfers (None: worked out here).
     Returns:
         every supply-return current whose path shares conductors with a sensitive pair, with the
         shared conductors.
@@ -152,12 +157,72 @@ def shared_returns(plan, circuit: Circuit) -> list[SharedReturn]:
     stages = list(plan.stages)
     if not sources or not stages:
         return []
-    fac = circuit.dc()
-    transfer = _transfers(circuit, fac, sources, stages)
-    pairs = np.argwhere(transfer > LISTED_TRANSFER)
-    if len(pairs) > MAX_SHARED_ROWS:  # the strongest rows, kept in their order
-        pairs = pairs[np.sort(largest(transfer[pairs[:, 0], pairs[:, 1]], MAX_SHARED_ROWS))]
-    return _rows(plan, circuit, fac, (sources, stages), transfer, pairs)
+    if listed is None:
+        listed = [task() for task in transfer_tasks(plan, circuit, 1)]
+    pairs = np.concatenate([p for p, _ in listed]) if listed else np.zeros((0, 2), dtype=int)
+    values = np.concatenate([v for _, v in listed]) if listed else np.zeros(0)
+    # the strongest rows (equal ones stage by stage, each stage's sources in order), listed in
+    # that order: each slice's strongest hold them all
+    key = pairs[:, 0] * len(sources) + pairs[:, 1]
+    keep = np.lexsort((key, -values))[:MAX_SHARED_ROWS]
+    keep = keep[np.argsort(key[keep])]
+    pairs, values = pairs[keep], values[keep]
+    return _rows(plan, circuit, circuit.dc(), (sources, stages), values, pairs)
+
+
+#: unit sources whose transfers one task works out (each process takes slices of the test)
+TRANSFER_SLICE = 256
+
+
+def transfer_tasks(plan, circuit: Circuit, jobs: int) -> list:
+    """The shared-return test's transfers as independent tasks: with ``jobs`` > 1, slices of
+    TRANSFER_SLICE sources, so that the processes share them; each returns the (stage, source)
+    pairs above LISTED_TRANSFER with their transfers.
+
+    Parameters:
+        plan: the plan.
+        circuit: the circuit.
+        jobs: processes.
+    Returns:
+        functions of no arguments (:func:`groundcheck.physics.sweep.run_tasks`).
+    References:
+        none (bookkeeping).
+    """
+    n = len(_unit_sources(plan)) if plan.stages else 0
+    step = TRANSFER_SLICE if jobs > 1 else max(n, 1)
+    return [partial(_listed, plan, circuit, lo, lo + step) for lo in range(0, n, step)]
+
+
+def rows_cost(plan, circuit: Circuit) -> float:
+    """The cost of the shared-return rows after their transfers (:func:`shared_returns`), in the
+    hum budget's unit (sources × nodes): a real solve for each source and each stage of a listed
+    row, at most MAX_SHARED_ROWS of each.
+
+    Parameters:
+        plan: the plan.
+        circuit: the circuit.
+    Returns:
+        the estimate (for the processes' order of work).
+    References:
+        none (bookkeeping).
+    """
+    sources = len(plan.rectifiers) + len(plan.currents) + len(plan.heaters)
+    return (min(sources, MAX_SHARED_ROWS) + min(len(plan.stages), MAX_SHARED_ROWS)) * len(
+        circuit.nodes
+    )
+
+
+def _listed(plan, circuit: Circuit, lo: int, hi: int) -> tuple[np.ndarray, np.ndarray]:
+    """The (stage, source) pairs of sources lo:hi whose transfer is above LISTED_TRANSFER, the
+    MAX_SHARED_ROWS strongest (equal ones stage by stage, each stage's sources in order), and
+    their transfers (V per A)."""
+    transfer = _transfers(circuit, circuit.dc(), _unit_sources(plan)[lo:hi], list(plan.stages))
+    pairs = np.argwhere(transfer > LISTED_TRANSFER)  # stage by stage, its sources in order
+    values = transfer[pairs[:, 0], pairs[:, 1]]
+    keep = largest(values, MAX_SHARED_ROWS)  # equal ones in that order
+    pairs, values = pairs[keep], values[keep]
+    pairs[:, 1] += lo
+    return pairs, values
 
 
 def owner_ranks(plan, owners: list[str]) -> np.ndarray:
@@ -182,9 +247,10 @@ def owner_ranks(plan, owners: list[str]) -> np.ndarray:
     return out
 
 
-def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
+def _rows(plan, circuit, fac, ends, values, pairs) -> list[SharedReturn]:
     """One row per (stage, source) pair of ``pairs`` that shares a conductor, with the
-    conductors that make up most of the coupling (``ends``: the sources and the stages)."""
+    conductors that make up most of the coupling (``ends``: the sources and the stages;
+    ``values``: each pair's transfer)."""
     sources, stages = ends
     # test currents only for the stages that share (not one column for every stage of a large
     # installation)
@@ -200,7 +266,7 @@ def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
     rank = owner_ranks(plan, owners)
     admittance = np.abs(fac.y)
     rows = []
-    for k, si in pairs:
+    for (k, si), value in zip(pairs, values):
         drops, t_k = W[:, scol[int(si)]], test.I[:, column[int(k)]]
         carrying = (np.abs(drops) * admittance >= SHARE_THRESHOLD) & (
             np.abs(t_k) >= SHARE_THRESHOLD
@@ -220,7 +286,7 @@ def _rows(plan, circuit, fac, ends, transfer, pairs) -> list[SharedReturn]:
                     st.b,
                     st.gain,
                     st.location,
-                    float(transfer[k, si]),
+                    float(value),
                     shared,
                 )
             )
