@@ -4,7 +4,7 @@ and an installation's outlet-pair voltages."""
 from __future__ import annotations
 
 import dataclasses
-import json
+from ..core.jsontext import dumps as json_text
 import re
 
 from ..rules.results import Result
@@ -381,4 +381,4 @@ def compare_text(d: dict) -> str:
 
 
 def compare_json(d: dict) -> str:
-    return json.dumps(d, indent=2, ensure_ascii=False) + "\n"
+    return json_text(d) + "\n"

@@ -124,7 +124,7 @@ def with_errors(results: list, errors: list, fmt: str) -> str:
     """JSON or SARIF of several plans, some of which could not be read: JSON ``{"plans": [...],
     "plan_errors": [...]}`` (each an error document), SARIF one run with a plan-error result per
     error."""
-    import json
+    from ..core.jsontext import dumps as json_text
 
     errs = [err for e in errors for err in e.errors]
     if fmt == "json":
@@ -141,7 +141,7 @@ def with_errors(results: list, errors: list, fmt: str) -> str:
         run = doc["runs"][0]
         run["results"] += sarif_errors(errs)["runs"][0]["results"]
         run["invocations"][0]["executionSuccessful"] = False
-    return json.dumps(doc, indent=2, ensure_ascii=False) + "\n"
+    return json_text(doc) + "\n"
 
 
 #: --advice-budget: the time the advisor may take to check each finding's fix line (check, report)
@@ -252,14 +252,14 @@ def errors_output(e: PlanErrors, args) -> None:
     errors themselves are on standard error already)."""
     if args.command != "check" or getattr(args, "format", None) not in ("sarif", "json"):
         return
-    import json
+    from ..core.jsontext import dumps as json_text
     from ..renderers.jsondoc import errors_document
     from ..renderers.sarif import sarif_errors
 
     doc = (sarif_errors if args.format == "sarif" else errors_document)(e.errors)
     try:
         write_output(
-            json.dumps(doc, indent=2, ensure_ascii=False) + "\n",
+            json_text(doc) + "\n",
             args.output,
             [p for p in args.plans if p != "-"],
         )

@@ -16,6 +16,22 @@ _SIGNED_ZERO = re.compile(r"(?<![\w.])[-+](0(?:\.0+)?)(?![\w.])")
 def clean(x, digits: int = 9):
     """JSON-safe copy: numpy scalars to Python, non-finite floats to None, floats to ``digits``
     significant digits."""
+    # the plain types first, by their exact type (a large document holds millions of them)
+    t = type(x)
+    if t is float:
+        return float(format(x, f".{digits}g")) if math.isfinite(x) else None
+    if t is dict:
+        return {k if type(k) is str else str(k): clean(v, digits) for k, v in x.items()}
+    if t is list or t is tuple:
+        return [clean(v, digits) for v in x]
+    if t is str or t is int or t is bool or x is None:
+        return x
+    return _clean_other(x, digits)
+
+
+def _clean_other(x, digits: int):
+    """:func:`clean` of anything but the plain types themselves (subclasses, numpy scalars,
+    complex numbers)."""
     if isinstance(x, dict):
         return {str(k): clean(v, digits) for k, v in x.items()}
     if isinstance(x, (list, tuple)):

@@ -6,7 +6,8 @@ Reads :class:`groundcheck.measure.records.BenchRecord` only; no numeric library.
 
 from __future__ import annotations
 
-import json
+
+from ..core.jsontext import dumps as json_text
 import math
 
 from ..core.errors import shown
@@ -169,7 +170,7 @@ def bench_document(record) -> dict:
 
 
 def render_bench_json(record) -> str:
-    return json.dumps(bench_document(record), indent=2, ensure_ascii=False) + "\n"
+    return json_text(bench_document(record)) + "\n"
 
 
 def _f(x, spec=".1f") -> str:

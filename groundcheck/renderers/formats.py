@@ -10,7 +10,8 @@ imported only when its format is asked for.
 
 from __future__ import annotations
 
-import json
+
+from ..core.jsontext import dumps as json_text
 from dataclasses import dataclass
 from typing import Callable
 
@@ -51,10 +52,7 @@ def _json(results: list[Result]) -> str:
 
     if len(results) == 1:
         return render_json(results[0])
-    return (
-        json.dumps({"plans": [result_document(r) for r in results]}, indent=2, ensure_ascii=False)
-        + "\n"
-    )
+    return json_text({"plans": [result_document(r) for r in results]}) + "\n"
 
 
 def _sarif(results: list[Result]) -> str:
@@ -211,7 +209,7 @@ def _suggestions_json(plan, text: str, name: str, evs, chosen, final, before=Non
     from ..core.plain import clean
 
     doc = suggestions_document(plan, text, name, evs, chosen, final, before=before)
-    return json.dumps(clean(doc), indent=2, ensure_ascii=False) + "\n"
+    return json_text(clean(doc)) + "\n"
 
 
 #: the advisor's suggestions: render(plan, plan text, file name, evaluations, chosen set, result,

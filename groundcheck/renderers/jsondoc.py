@@ -5,7 +5,8 @@ The layout is documented in ``docs/json.md``.
 
 from __future__ import annotations
 
-import json
+
+from ..core.jsontext import dumps as json_text
 
 from ..rules.results import Result
 from ..core.caution import CAUTION
@@ -125,7 +126,7 @@ def _outlets(o) -> dict:
 
 
 def render_json(result: Result) -> str:
-    return json.dumps(result_document(result), indent=2, ensure_ascii=False) + "\n"
+    return json_text(result_document(result)) + "\n"
 
 
 def errors_document(errors) -> dict:

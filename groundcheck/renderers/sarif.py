@@ -7,7 +7,8 @@ References: OASIS *Static Analysis Results Interchange Format (SARIF) Version
 
 from __future__ import annotations
 
-import json
+
+from ..core.jsontext import dumps as json_text
 from pathlib import Path
 from urllib.parse import quote
 
@@ -212,4 +213,4 @@ def _invocation(results: list[Result]) -> dict:
 
 
 def render_sarif(results: list[Result]) -> str:
-    return json.dumps(sarif_document(results), indent=2, ensure_ascii=False) + "\n"
+    return json_text(sarif_document(results)) + "\n"

@@ -1,0 +1,84 @@
+"""Work cut into slices for the processes, and the JSON text written without the standard
+library's generators: each must give what the whole, or the standard library, gives. The expected
+values are the unsliced selection written out plainly (a stable sort of every pair) and
+``json.dumps`` itself."""
+
+import json
+import sys
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from groundcheck.core.jsontext import dumps
+from groundcheck.language.loader import load_text
+from groundcheck.physics import coupling
+from groundcheck.physics.circuit import build_circuit
+
+from helpers import ROOT
+
+
+def _installation(n):
+    sys.path.insert(0, str(ROOT / "benchmarks"))
+    from generate import installation
+
+    return load_text(installation(n), "inst.gplan")
+
+
+def test_shared_return_rows_from_slices_are_those_of_the_whole(monkeypatch):
+    plan = _installation(40)
+    circuit = build_circuit(plan)
+    sources = coupling._unit_sources(plan)
+    assert len(sources) > 6
+    # every pair above the listed level, the strongest first, equal ones stage by stage and each
+    # stage's sources in order (a stable sort of the whole matrix), the kept ones listed in that
+    # order
+    whole = coupling._transfers(circuit, circuit.dc(), sources, list(plan.stages))
+    pairs = np.argwhere(whole > coupling.LISTED_TRANSFER)
+    values = whole[pairs[:, 0], pairs[:, 1]]
+    for rows in (3, 10, 10_000):
+        monkeypatch.setattr(coupling, "MAX_SHARED_ROWS", rows)
+        keep = np.sort(np.argsort(-values, kind="stable")[:rows])
+        expected = [(int(k), int(s)) for k, s in pairs[keep]]
+        for slice_ in (1, 2, 5, 256):
+            monkeypatch.setattr(coupling, "TRANSFER_SLICE", slice_)
+            listed = [task() for task in coupling.transfer_tasks(plan, circuit, 2)]
+            got = coupling.shared_returns(plan, circuit, listed)
+            names = [(r.stage, r.source) for r in got]
+            want = [(plan.stages[k].name, sources[s].name) for k, s in expected]
+            # a kept pair is listed when it shares a conductor (here every one does)
+            assert names == [w for w in want if w in names] and len(names) == len(want)
+
+
+_plain = st.recursive(
+    st.none()
+    | st.booleans()
+    | st.integers(-(10**20), 10**20)
+    | st.floats(allow_nan=True, allow_infinity=True)
+    | st.text(),
+    lambda inner: st.lists(inner, max_size=4)
+    | st.tuples(inner, inner)
+    | st.dictionaries(st.text(max_size=6), inner, max_size=4),
+    max_leaves=30,
+)
+
+
+@settings(max_examples=80, deadline=None)
+@given(_plain)
+def test_json_text_is_the_standard_librarys(doc):
+    assert dumps(doc) == json.dumps(doc, indent=2, ensure_ascii=False)
+
+
+@pytest.mark.parametrize(
+    "doc",
+    [{1: "a", None: [2]}, {"x": np.float64(0.1)}, [np.int64(3)], {"a": {"b": ()}}, "é\u2028"],
+)
+def test_json_text_leaves_anything_else_to_the_standard_library(doc):
+    try:
+        want = json.dumps(doc, indent=2, ensure_ascii=False)
+    except TypeError:
+        with pytest.raises(TypeError):
+            dumps(doc)
+        return
+    assert dumps(doc) == want
