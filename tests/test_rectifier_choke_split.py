@@ -151,7 +151,6 @@ diode shockley, reservoir 4700 uF, load 1 A
 """
 
 
-@needs_ngspice
 def _returned(text: str) -> tuple[dict, np.ndarray]:
     """The plan's rectifiers' steady states and the magnitudes of harmonics 0 … 40 of the current
     from res to ct: every source of the plan (both rails'), added as phasors."""
@@ -165,6 +164,7 @@ def _returned(text: str) -> tuple[dict, np.ndarray]:
     return results, np.array([abs(back.get(k * 50.0, 0)) for k in range(41)])
 
 
+@needs_ngspice
 def test_split_rails_centre_tap_return_against_ngspice():
     results, ours = _returned(SPLIT)
     vpk = 35 * math.sqrt(2)
