@@ -81,8 +81,8 @@ def test_a_budget_cut_into_slices_of_sources_among_processes_equals_the_one_proc
 ):
     """With every frequency's sources cut into slices of one (as a large installation's are cut
     into slices of TASK_SOURCES, and the shared returns' transfers into slices of TRANSFER_SLICE),
-    the shared returns, the hum budget and the outlet voltages, run as tasks of two processes, give the one-process figures (the recording room: leakage, a cable's
-    EMF and a rectifier)."""
+    the shared returns, the hum budget and the outlet voltages, run as tasks of two processes,
+    give the one-process figures (the recording room: leakage, a cable's EMF and a rectifier)."""
     from groundcheck import analysis
     from groundcheck.physics import coupling, hum
 
