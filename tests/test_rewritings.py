@@ -256,7 +256,7 @@ PROPERTIES = {
     "rewritings change nothing": (
         rewritings_change_nothing,
         (mirrored_plans(rectifiers=False), st.randoms()),
-        200,
+        120,
     ),
     "protective written or not": (
         protective_written_or_not,
