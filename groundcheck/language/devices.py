@@ -13,6 +13,7 @@ from pathlib import Path
 
 from ..core.errors import PlanError, PlanErrors
 from ..model.kinds import BOND, CORD_KIND, DEVICE_BOND_KIND, KINDS, LIFT_KIND, PROTECTIVE
+from ..model.construct import altered
 from ..model.records import (
     DEFAULT_CORD,
     PE_POINT,
@@ -314,21 +315,21 @@ def _moved_in(sub: Plan, tf: Transform, groups: dict, metals: dict, points: dict
     """A device plan's elements moved to the device's place and added to the installation's."""
     for x in sub.metals:
         size = None if x.size is None else (x.size[0], x.size[1] * tf.sy)
-        metals[x.name] = replace(x, origin=tf(x.origin), size=size)
+        metals[x.name] = altered(x, origin=tf(x.origin), size=size)
     for x in sub.points:
-        points[x.name] = replace(x, pos=tf(x.pos))
+        points[x.name] = altered(x, pos=tf(x.pos))
     for x in sub.conductors:
-        groups[Conductor].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
+        groups[Conductor].append((altered(x, route=tuple(tf(q) for q in x.route)), {}))
     for x in sub.rectifiers:
         groups[Rectifier].append((x, {}))
     for x in sub.currents:
         groups[Current].append((x, {}))
     for x in sub.heaters:
-        groups[Heater].append((replace(x, route=tuple(tf(q) for q in x.route)), {}))
+        groups[Heater].append((altered(x, route=tuple(tf(q) for q in x.route)), {}))
     for x in sub.stages:
         groups[Stage].append((x, {}))
     for x in sub.fields:
-        groups[FieldSource].append((replace(x, pos=tf(x.pos)), {}))
+        groups[FieldSource].append((altered(x, pos=tf(x.pos)), {}))
 
 
 def _renamed(record, pre, chan, *names: str):
@@ -337,7 +338,7 @@ def _renamed(record, pre, chan, *names: str):
     kw = {f: pre(getattr(record, f)) for f in names}
     if hasattr(record, "channel"):
         kw["channel"] = chan(record.channel)
-    return replace(record, **kw)
+    return altered(record, **kw)
 
 
 def prefixed(p: Plan, prefix: str) -> Plan:
