@@ -82,3 +82,21 @@ def test_json_text_leaves_anything_else_to_the_standard_library(doc):
             dumps(doc)
         return
     assert dumps(doc) == want
+
+
+def test_an_altered_record_is_the_one_replace_makes():
+    from dataclasses import replace
+
+    from groundcheck.model.construct import altered
+
+    plan = _installation(3)
+    for record in (*plan.conductors[:5], *plan.points[:5], *plan.metals[:2]):
+        field = "route" if hasattr(record, "route") else "pos" if hasattr(record, "pos") else None
+        changes = {field: ((1.0, 2.0),) if field == "route" else (1.0, 2.0)} if field else {}
+        a, b = altered(record, **changes), replace(record, **changes)
+        assert a == b and a.__dict__ == b.__dict__ and type(a) is type(b)
+        with pytest.raises(TypeError):
+            altered(record, no_such_field=1)
+    # what a plan keeps beside its fields (its index, a cached property) is not carried over
+    plan.index
+    assert "index" not in altered(plan, title="other").__dict__

@@ -22,13 +22,7 @@ def make(cls, **values):
     Unknown or missing fields raise :class:`TypeError` as the constructor would.  None of the
     records has ``__post_init__``.
     """
-    layout = _LAYOUT.get(cls)
-    if layout is None:
-        fs = fields(cls)
-        defaults = {f.name: f.default for f in fs if f.default is not MISSING}
-        factories = any(f.default_factory is not MISSING for f in fs)
-        layout = _LAYOUT[cls] = (defaults, frozenset(f.name for f in fs), factories)
-    defaults, names, factories = layout
+    defaults, names, factories = _layout(cls)
     if factories or not names.issuperset(values) or not values.keys() >= names - defaults.keys():
         return cls(**values)  # fresh default objects, or let the constructor name the bad field
     obj = object.__new__(cls)
@@ -36,6 +30,17 @@ def make(cls, **values):
     d.update(defaults)
     d.update(values)
     return obj
+
+
+def _layout(cls) -> tuple[dict, frozenset, bool]:
+    """A record class's defaults, field names and whether a field has a default factory."""
+    layout = _LAYOUT.get(cls)
+    if layout is None:
+        fs = fields(cls)
+        defaults = {f.name: f.default for f in fs if f.default is not MISSING}
+        factories = any(f.default_factory is not MISSING for f in fs)
+        layout = _LAYOUT[cls] = (defaults, frozenset(f.name for f in fs), factories)
+    return layout
 
 
 def from_values(cls, names: tuple[str, ...], values: tuple):
@@ -57,10 +62,7 @@ def altered(record, **changes):
     ``dataclasses.replace``, which names the bad field; what is kept beside the fields (a cached
     property's value) is not carried over, as ``replace`` does not carry it.
     """
-    layout = _LAYOUT.get(type(record))
-    if layout is None:
-        make(type(record), **record.__dict__)  # its layout, worked out once
-        layout = _LAYOUT[type(record)]
+    layout = _layout(type(record))
     if layout[2] or not layout[1].issuperset(changes):
         return replace(record, **changes)
     obj = object.__new__(type(record))
