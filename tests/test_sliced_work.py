@@ -100,3 +100,45 @@ def test_an_altered_record_is_the_one_replace_makes():
     # what a plan keeps beside its fields (its index, a cached property) is not carried over
     plan.index
     assert "index" not in altered(plan, title="other").__dict__
+
+
+def _plain_refinement(nodes, adj, colour, edge_colour, rounds):
+    """Colour refinement written out plainly: each node's signature its colour and the sorted
+    (conductor colour, neighbour colour) pairs, as tuples; new colours the signatures' ranks."""
+    col = dict(colour)
+    classes = len(set(col.values()))
+    for _ in range(rounds):
+        if classes == len(nodes):
+            break
+        sig = {
+            u: (col[u], tuple(sorted((edge_colour[k], col[v]) for v in adj[u] for k in adj[u][v])))
+            for u in nodes
+        }
+        order = {s: i for i, s in enumerate(sorted(set(sig.values())))}
+        col = {u: order[sig[u]] for u in nodes}
+        count = len(set(col.values()))
+        if count == classes:
+            break
+        classes = count
+    return col
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.integers(1, 40), st.integers(0, 90), st.integers(1, 4), st.integers(1, 3), st.randoms())
+def test_refinement_gives_the_colours_of_the_plain_tuple_refinement(n, m, kinds, starts, rnd):
+    import networkx as nx
+
+    from groundcheck.network.canonical import MAX_ROUNDS, _refined
+
+    G = nx.MultiGraph()
+    G.add_nodes_from(f"n{i}" for i in range(n))
+    for j in range(m):  # parallel conductors and conductors from a node to itself among them
+        G.add_edge(f"n{rnd.randrange(n)}", f"n{rnd.randrange(n)}", key=f"c{j}")
+    nodes = list(G.nodes)
+    adj = dict(G.adjacency())
+    colour = {u: rnd.randrange(starts) for u in nodes}
+    ranks = {c: i for i, c in enumerate(sorted(set(colour.values())))}
+    colour = {u: ranks[c] for u, c in colour.items()}
+    edge_colour = {f"c{j}": rnd.randrange(kinds) for j in range(m)}
+    want = _plain_refinement(nodes, adj, colour, edge_colour, MAX_ROUNDS)
+    assert _refined(nodes, adj, colour, edge_colour) == want

@@ -24,6 +24,7 @@ import dataclasses
 from operator import attrgetter
 
 import networkx as nx
+import numpy as np
 
 from ..model.kinds import KINDS, joins_devices, shield_like
 
@@ -180,25 +181,50 @@ def _ranked(keys: list) -> list[int]:
 
 
 def _refined(nodes: list, adj: dict, colour: dict, edge_colour: dict) -> dict:
-    """Colour refinement until the classes stop splitting (or :data:`MAX_ROUNDS`)."""
+    """Colour refinement until the classes stop splitting (or :data:`MAX_ROUNDS`).
+
+    A node's new colour is its rank among the signatures (its colour, the sorted (conductor's
+    colour, neighbour's colour) pairs of its conductors), compared as tuples. Each signature is
+    written as bytes that compare as the tuple does: every number a big-endian unsigned 8-byte
+    word, a pair as the one number conductor colour × (nodes + 1) + neighbour colour (the
+    neighbour's colour is below nodes + 1, so the pairs keep their order), a shorter signature
+    before a longer one it begins, as a shorter tuple is. The sorting is then numpy's and bytes
+    comparison's, not a tuple's element by element."""
     classes = len(set(colour.values()))
-    if classes == len(nodes):
+    n = len(nodes)
+    if classes == n:
         return colour
-    # each node's conductors as (conductor's colour, neighbour's place), written once; the
-    # colours a list by place
     place = {u: i for i, u in enumerate(nodes)}
-    around = [
-        [(edge_colour[k], place[v]) for v, keys in adj[u].items() for k in keys] for u in nodes
-    ]
-    col = [colour[u] for u in nodes]
+    owner, ecol, nbr = [], [], []  # each node's conductors, node by node
+    for i, u in enumerate(nodes):
+        for v, keys in adj[u].items():
+            pv = place[v]
+            for k in keys:
+                owner.append(i)
+                ecol.append(edge_colour[k])
+                nbr.append(pv)
+    owner_a = np.array(owner, dtype=np.int64)
+    ecol_a = np.array(ecol, dtype=np.int64) * (n + 1)
+    nbr_a = np.array(nbr, dtype=np.int64)
+    # the signatures one after the other: a node's colour, then its pairs
+    ends = np.cumsum(np.bincount(owner_a, minlength=n) + 1)
+    head = ends - np.bincount(owner_a, minlength=n) - 1
+    spots = np.arange(len(owner)) + owner_a + 1
+    cuts = list(zip((8 * head).tolist(), (8 * ends).tolist()))
+    col = np.array([colour[u] for u in nodes], dtype=np.int64)
+    seq = np.empty(n + len(owner), dtype=np.int64)
     for _ in range(MAX_ROUNDS):
-        sig = [(c, tuple(sorted([(e, col[v]) for e, v in ends]))) for c, ends in zip(col, around)]
-        col = _ranked(sig)
-        count = len(set(col))
-        if count == classes or count == len(nodes):
+        pairs = ecol_a + col[nbr_a]
+        seq[head] = col
+        seq[spots] = pairs[np.lexsort((pairs, owner_a))]
+        words = seq.astype(">u8").tobytes()
+        new = _ranked([words[a:b] for a, b in cuts])
+        col = np.array(new, dtype=np.int64)
+        count = max(new) + 1
+        if count == classes or count == n:
             break
         classes = count
-    return dict(zip(nodes, col))
+    return dict(zip(nodes, col.tolist()))
 
 
 def canonical_ranks(G: nx.MultiGraph) -> dict:
