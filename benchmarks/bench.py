@@ -9,9 +9,10 @@ parse (text -> model) in one process and with --jobs (a large flat file is cut i
 (graph + electrical network), audit (topology rules), solve at ten frequencies (one factorisation
 each; as the hum budget solves: every rectifier and one gain-weighted test column per channel) in
 one process and in --jobs processes, the sum of parse, network, audit and solve with --jobs, the
-full check (everything, hum budget included) where the size allows, peak memory, and ngspice's
-operating point on the exported netlist timed as a whole process, with the ratio of groundcheck's
-one solve to it. Each stage runs --repeat times and the fastest run is reported (the machine is
+full check (everything, hum budget included: ``analyze()`` in a fresh process, and the whole
+``check --format json`` command with --jobs and with one process) where the size allows, peak
+memory, and ngspice's operating point on the exported netlist timed as a whole process, with the
+ratio of groundcheck's one solve to it. Each stage runs --repeat times and the fastest run is reported (the machine is
 shared and noisy); all run with Python's cyclic garbage collector paused, as load() and analyze()
 run them.
 """
@@ -66,7 +67,6 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
     import numpy as np
 
     from groundcheck import load_text
-    from groundcheck.analysis import Options, analyze
     from groundcheck.analysis import audit
     from groundcheck.rules.context import AuditContext
     from groundcheck.physics.circuit import build_circuit
@@ -110,7 +110,7 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
         row["parse_jobs_s"] + row["network_s"] + row["audit_s"] + row["solve10_jobs_s"]
     )
     if size <= full_limit:
-        row["check_s"], _ = _best(1, lambda: analyze(plan, Options(jobs=jobs)))
+        _fresh_checks(row, text, repeat, jobs)
     pairs = [(s.a, s.b) for s in stages] + [(r.a, r.b) for r in plan.rectifiers]
     if ngspice and shutil.which("ngspice"):
         net = to_spice(circuit, "bench", [("s", pairs[0][0], pairs[0][1], 1.0)] if pairs else [])
@@ -120,6 +120,37 @@ def _stages(row, text, size, ngspice, full_limit, repeat, jobs):
             t = time.perf_counter()
             subprocess.run(["ngspice", "-b", str(cir)], capture_output=True, timeout=3600)
             row["ngspice_op_s"] = time.perf_counter() - t
+
+
+#: a fresh process that loads a plan and times ``analyze()`` alone, as ``check --jobs N`` runs it
+_TIMED_ANALYSIS = """
+import sys, time
+import groundcheck
+from groundcheck.analysis import Options, analyze
+plan = groundcheck.load(sys.argv[1])
+t = time.perf_counter()
+analyze(plan, Options(jobs=int(sys.argv[2])))
+print(time.perf_counter() - t)
+"""
+
+
+def _fresh_checks(row: dict, text: str, repeat: int, jobs: int) -> None:
+    """The full check, each run in a fresh process (a worker forked from a process that has done
+    the other stages copies a larger heap): ``analyze()`` alone with ``jobs`` processes, and the
+    whole ``groundcheck check --format json`` command (start-up, reading, the JSON document
+    written) with ``jobs`` processes and with one."""
+    with tempfile.TemporaryDirectory() as d:
+        plan = Path(d) / "bench.gplan"
+        plan.write_text(text, encoding="utf-8")
+        run = lambda cmd: subprocess.run(cmd, capture_output=True, text=True)
+        row["check_s"] = min(
+            float(run([sys.executable, "-c", _TIMED_ANALYSIS, str(plan), str(jobs)]).stdout)
+            for _ in range(max(1, repeat))
+        )
+        for key, n in (("command_s", jobs), ("command_1_s", 1)):
+            check = [sys.executable, "-m", "groundcheck", "check", str(plan), "--format", "json"]
+            check += ["--advice-budget", "0", "--jobs", str(n), "-o", str(Path(d) / "out.json")]
+            row[key], _ = _best(repeat, lambda cmd=check: run(cmd))
 
 
 def main() -> None:
@@ -197,6 +228,8 @@ def main() -> None:
         f"solve ×10, {args.jobs} processes s",
         "parse+audit+solve s",
         "full check s",
+        f"check command, {args.jobs} processes s",
+        "check command, 1 process s",
         "peak MiB",
         "ngspice .op s",
         "one solve / ngspice",
@@ -218,13 +251,15 @@ def main() -> None:
                     "solve10_jobs_s",
                     "total_s",
                     "check_s",
+                    "command_s",
+                    "command_1_s",
                     "peak_mib",
                     "ngspice_op_s",
                 )
             ]
             + [ratio]
         )
-        cells[12] = f"{r['peak_mib']:.0f}"
+        cells[14] = f"{r['peak_mib']:.0f}"
         print("| " + " | ".join(cells) + " |")
 
 
