@@ -104,6 +104,26 @@ def _box(m, dy: float = 0.0, dx: float = 0.0) -> tuple[float, float, float, floa
     return x0, y - 0.8 * size, x0 + width, y + 0.2 * size
 
 
+class _Label:
+    """A text element's place, read once: its box moved by (dx, dy) as :func:`_box` gives it."""
+
+    def __init__(self, m):
+        attrs = m.group(1) + m.group(4)
+        self.size = size = _size(m)
+        self.chars = CHAR_WIDTH * size * len(m.group(5).decode("utf-8", "replace"))
+        self.x, self.y = float(m.group(2)), float(m.group(3))
+        self.anchor = (re.search(rb'text-anchor="(\w+)"', attrs) or [b"", b"start"])[1]
+        unmoved = self.box()
+        self.width = unmoved[2] - unmoved[0]  # as the box gives it (its rounding)
+
+    def box(self, dy: float = 0.0, dx: float = 0.0) -> tuple[float, float, float, float]:
+        width, size = self.chars, self.size
+        x, y = self.x + dx, self.y + dy
+        anchor = self.anchor
+        x0 = x - width / 2 if anchor == b"middle" else (x - width if anchor == b"end" else x)
+        return x0, y - 0.8 * size, x0 + width, y + 0.2 * size
+
+
 #: a node or edge of Graphviz's SVG: its title and what it draws (Graphviz nests no groups there)
 _GROUP = re.compile(
     rb'<g id="(node|edge)\d+" class="[^"]*">\s*<title>([^<]*)</title>(.*?)</g>', re.S
@@ -166,16 +186,25 @@ class _Boxes:
         for cell in self._cells(box, 0.0):
             self.cells.setdefault(cell, []).append(k)
 
-    def meeting(self, box, mine) -> int:
-        """How many boxes ``box`` meets (:func:`_meet`), the marks of the node ``mine`` aside."""
+    def meeting(self, box, mine, enough: int | None = None) -> int:
+        """How many boxes ``box`` meets (:func:`_meet`, written out here), the marks of the node
+        ``mine`` aside; counting stops at ``enough`` (a count that high is not wanted)."""
         seen: set = set()
+        cells = self.cells
         for cell in self._cells(box, 1.0):  # the gap of _meet, and room for rounding
-            seen.update(self.cells.get(cell, ()))
-        return sum(
-            1
-            for k in seen
-            if (mine is None or self.owner[k] != mine) and _meet(box, self.boxes[k])
-        )
+            seen.update(cells.get(cell, ()))
+        x0, y0, x1, y1 = box
+        owner, boxes = self.owner, self.boxes
+        count = 0
+        for k in seen:
+            if mine is not None and owner[k] == mine:
+                continue
+            b = boxes[k]
+            if x0 < b[2] + 0.5 and b[0] < x1 + 0.5 and y0 < b[3] + 0.5 and b[1] < y1 + 0.5:
+                count += 1
+                if count == enough:
+                    break
+        return count
 
 
 #: where a label may move, tried in turn: (share of its width sideways, lines down); down first,
@@ -211,22 +240,22 @@ def declutter_svg(svg: bytes) -> bytes:
     shifts = {}
     for k, m in enumerate(matches):
         mine = owner.get(m.start())
-        size = _size(m)
-        width = _box(m)[2] - _box(m)[0]
+        place = _Label(m)
+        size, width = place.size, place.width
         best = None  # no room anywhere: the move that meets the fewest
         for dx, step in _MOVES:
             dx, dy = dx * width, step * size * 1.1
-            box = _box(m, dy, dx)
+            box = place.box(dy, dx)
             if not m.group(5).strip():
                 break
-            meets = boxes.meeting(box, mine)
+            meets = boxes.meeting(box, mine, None if best is None else best[0])
             if not meets:
                 break
             if best is None or meets < best[0]:
                 best = (meets, dx, dy)
         else:
             _, dx, dy = best
-        boxes.add(_box(m, dy, dx))
+        boxes.add(place.box(dy, dx))
         if dy or dx:
             shifts[k] = (dx, dy)
     if not shifts:
