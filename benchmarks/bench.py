@@ -12,9 +12,9 @@ one process and in --jobs processes, the sum of parse, network, audit and solve 
 full check (everything, hum budget included: ``analyze()`` in a fresh process, and the whole
 ``check --format json`` command with --jobs and with one process) where the size allows, peak
 memory, and ngspice's operating point on the exported netlist timed as a whole process, with the
-ratio of groundcheck's one solve to it. Each stage runs --repeat times and the fastest run is reported (the machine is
-shared and noisy); all run with Python's cyclic garbage collector paused, as load() and analyze()
-run them.
+ratio of groundcheck's one solve to it. Each stage runs --repeat times and the fastest run is
+reported (the machine is shared and noisy); all run with Python's cyclic garbage collector paused,
+as load() and analyze() run them.
 """
 
 from __future__ import annotations
