@@ -261,9 +261,9 @@ PROPERTIES = {
     "protective written or not": (
         protective_written_or_not,
         (protective_plans(), st.randoms()),
-        200,
+        150,
     ),
-    "a resistor split in two": (a_resistor_split_in_two, (resistive_plans(), st.randoms()), 200),
+    "a resistor split in two": (a_resistor_split_in_two, (resistive_plans(), st.randoms()), 150),
 }
 
 

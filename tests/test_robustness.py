@@ -259,7 +259,7 @@ for path in sys.argv[1:]:
 def test_same_bytes_across_runs_and_hash_seeds():
     # every example in one process per seed (a process's start costs more than an example)
     outs = set()
-    for seed in ("0", "1", "12345"):
+    for seed in ("0", "12345"):
         env = {**os.environ, "PYTHONHASHSEED": seed}
         outs.add(
             subprocess.run(
