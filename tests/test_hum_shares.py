@@ -35,14 +35,9 @@ def test_the_largest_are_those_of_a_search_of_every_column(nb):
         assert [j for j in ours if named[j]] == [j for j in full if named[j]]
 
 
-def test_a_groups_conductor_share_is_its_whole_share_not_each_sources_ten_largest():
-    # a chain of 13 wires, w_k of k mΩ, between p0 and p13; the stage reads p0 to p13 (gain 0 dB),
-    # so its 1 A test current runs through every wire and a wire's share of the output is its
-    # drop (reciprocity). Two leakage currents (one mains line, in phase): 1 mA p0 → p13 through
-    # every wire, and 1 mA p0 → p3 through w1–w3. Worked by hand (Ohm's law): w3 carries 2 mA and
-    # drops 2 mA × 3 mΩ = 6 µV; w13 1 mA × 13 mΩ = 13 µV; w1 2 µV, the group's twelfth; the
-    # output (1 + … + 13) µV + (1 + 2 + 3) µV = 97 µV. The first current's ten largest shares are
-    # w4–w13: a sum of each source's ten would give w3 only the second current's 3 µV
+def _chain(la: str, lb: str):
+    """The chain of 13 wires, w_k of k mΩ, between p0 and p13, read end to end by a stage of
+    0 dB, with two leakage currents of the spectra given: la from p0 to p13, lb from p0 to p3."""
     from groundcheck.analysis import analyze
     from groundcheck.language.loader import load_text
 
@@ -53,11 +48,22 @@ def test_a_groups_conductor_share_is_its_whole_share_not_each_sources_ten_larges
     lines += [f"point q{k}: pad, at {10 * k},10" for k in range(1, 13)]
     lines += [f"wire d{k}: p{k} to q{k}, 10 mm, 0.5 mm2" for k in range(1, 13)]
     lines += [
-        "current la: p0 to p13, 1 mA 50 Hz, leakage",
-        "current lb: p0 to p3, 1 mA 50 Hz, leakage",
+        f"current la: p0 to p13, {la}, leakage",
+        f"current lb: p0 to p3, {lb}, leakage",
         "stage s: p0 to p13, gain 0 dB, channel out",
     ]
-    r = analyze(load_text("\n".join(lines) + "\n", "chain.gplan"))
+    return analyze(load_text("\n".join(lines) + "\n", "chain.gplan"))
+
+
+def test_a_groups_conductor_share_is_its_whole_share_not_each_sources_ten_largest():
+    # a chain of 13 wires, w_k of k mΩ, between p0 and p13; the stage reads p0 to p13 (gain 0 dB),
+    # so its 1 A test current runs through every wire and a wire's share of the output is its
+    # drop (reciprocity). Two leakage currents (one mains line, in phase): 1 mA p0 → p13 through
+    # every wire, and 1 mA p0 → p3 through w1–w3. Worked by hand (Ohm's law): w3 carries 2 mA and
+    # drops 2 mA × 3 mΩ = 6 µV; w13 1 mA × 13 mΩ = 13 µV; w1 2 µV, the group's twelfth; the
+    # output (1 + … + 13) µV + (1 + 2 + 3) µV = 97 µV. The first current's ten largest shares are
+    # w4–w13: a sum of each source's ten would give w3 only the second current's 3 µV
+    r = _chain("1 mA 50 Hz", "1 mA 50 Hz")
     ch = r.hum.channels["out"]
     named = {c.element: c.volts for c in ch.contributors if c.kind == "conductor"}
     assert ch.total_v == pytest.approx(97e-6, rel=1e-3)
@@ -73,20 +79,7 @@ def test_leakage_currents_past_their_first_frequency_solved_as_one_sum():
     # hand (Ohm's law, the wires' resistance): the 150 Hz line is 0.5 mA × 91 mΩ + 2 mA × 6 mΩ
     # = 57.5 µV; w3 carries 2.5 mA there and drops 7.5 µV; w2 2.5 mA × 2 mΩ = 5 µV. Each current
     # keeps its own network rows, at 50 Hz
-    from groundcheck.analysis import analyze
-    from groundcheck.language.loader import load_text
-
-    lines = ['plan "a chain read end to end, two lines"', "listening output 1 V"]
-    lines += [f"point p{k}: pad, at {10 * k},0" for k in range(14)]
-    lines += [f"wire w{k}: p{k - 1} to p{k}, 10 mm, resistance {k} mohm" for k in range(1, 14)]
-    lines += [f"point q{k}: pad, at {10 * k},10" for k in range(1, 13)]
-    lines += [f"wire d{k}: p{k} to q{k}, 10 mm, 0.5 mm2" for k in range(1, 13)]
-    lines += [
-        "current la: p0 to p13, 1 mA 50 Hz, 0.5 mA 150 Hz, leakage",
-        "current lb: p0 to p3, 1 mA 50 Hz, 2 mA 150 Hz, leakage",
-        "stage s: p0 to p13, gain 0 dB, channel out",
-    ]
-    r = analyze(load_text("\n".join(lines) + "\n", "chain2.gplan"))
+    r = _chain("1 mA 50 Hz, 0.5 mA 150 Hz", "1 mA 50 Hz, 2 mA 150 Hz")
     ch = r.hum.channels["out"]
     line = {s.frequency: s.volts for s in ch.spectrum}
     assert line[50.0] == pytest.approx(97e-6, rel=1e-3)
