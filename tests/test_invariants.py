@@ -338,30 +338,30 @@ def drops_scale_with_resistance(r, k) -> None:
 
 #: each property, its strategies and how many plans the default suite gives it (the campaign,
 #: benchmarks/fuzz_campaign.py --invariants N, gives each N: 10,000 each, benchmarks/README.md);
-#: the mirrored plans' four take 120 each (an analysis each, or two), to keep the suite within its
+#: the mirrored plans' four take 80 each (an analysis each, or two), to keep the suite within its
 #: three minutes
 PROPERTIES = {
-    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 120),
-    "names change no figure": (names_change_nothing, (mirrored_plans(rectifiers=False),), 120),
+    "mirrored channels are equal": (mirrored_channels_are_equal, (mirrored_plans(),), 80),
+    "names change no figure": (names_change_nothing, (mirrored_plans(rectifiers=False),), 80),
     "renamed and reordered: the same loops, findings and figures": (
         renamed_and_reordered,
         (mirrored_plans(rectifiers=False), st.randoms()),
-        120,
+        80,
     ),
     "an unconnected element changes no figure": (
         unconnected_changes_nothing,
         (mirrored_plans(rectifiers=False), st.sampled_from(["point alone: pad\n", ISLAND])),
-        120,
+        80,
     ),
     "resistive networks renamed and reordered: the same figures and findings": (
         resistive_renamed_and_reordered,
         (resistive_plans(most=14, stars=True, ohms=[0.01, 0.022, 0.047]), st.randoms()),
-        150,
+        100,
     ),
     "drops scale with resistance": (
         drops_scale_with_resistance,
         (resistive_plans(), st.sampled_from([0.5, 2.0, 10.0, 0.03])),
-        150,
+        100,
     ),
 }
 

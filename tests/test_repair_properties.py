@@ -94,7 +94,7 @@ def _shape(c):
 
 
 @settings(
-    max_examples=30, deadline=None, suppress_health_check=[HealthCheck.too_slow], derandomize=True
+    max_examples=20, deadline=None, suppress_health_check=[HealthCheck.too_slow], derandomize=True
 )
 @given(chassis_plans())
 def test_no_suggestion_changes_a_protective_conductor(text):
@@ -236,7 +236,7 @@ def advisor_promises(text: str) -> None:
 
 
 @settings(
-    max_examples=40, deadline=None, suppress_health_check=[HealthCheck.too_slow], derandomize=True
+    max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow], derandomize=True
 )
 @given(chassis_plans())
 def test_the_advisors_promises_hold_on_generated_plans(text):

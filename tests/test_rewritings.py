@@ -256,14 +256,14 @@ PROPERTIES = {
     "rewritings change nothing": (
         rewritings_change_nothing,
         (mirrored_plans(rectifiers=False), st.randoms()),
-        120,
+        80,
     ),
     "protective written or not": (
         protective_written_or_not,
         (protective_plans(), st.randoms()),
-        150,
+        100,
     ),
-    "a resistor split in two": (a_resistor_split_in_two, (resistive_plans(), st.randoms()), 150),
+    "a resistor split in two": (a_resistor_split_in_two, (resistive_plans(), st.randoms()), 100),
 }
 
 
