@@ -47,13 +47,13 @@ def _outcome(text):
     return out
 
 
-@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=80, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(valid_plans())
 def test_fuzz_valid_plans(text):
     _outcome(text)
 
 
-@settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(mutated_plans())
 def test_fuzz_mutated_plans(text):
     _outcome(text)

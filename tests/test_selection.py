@@ -474,7 +474,7 @@ def _errors_only(out: str) -> bool:
     return "summary" not in doc and bool(doc["errors"]) and "caution" in doc
 
 
-@settings(max_examples=120, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@settings(max_examples=80, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(runs())
 def test_no_selection_settings_or_acceptance_turns_a_danger_into_clean(r):
     with tempfile.TemporaryDirectory() as tmp:

@@ -73,7 +73,7 @@ def test_same_statements_and_errors_on_chosen_text(text, monkeypatch):
     assert fast == slow
 
 
-@settings(max_examples=150, deadline=None, suppress_health_check=list(HealthCheck))
+@settings(max_examples=100, deadline=None, suppress_health_check=list(HealthCheck))
 @given(st.one_of(valid_plans(), mutated_plans()))
 def test_same_statements_and_errors_on_generated_plans(text):
     with pytest.MonkeyPatch.context() as mp:
