@@ -127,3 +127,6 @@ def test_the_label_grid_counts_what_comparing_with_every_box_counts():
             mine = rng.choice([None, "a", "b"])
             brute = sum(_meet(probe, b) for b, o in kept if mine is None or o != mine)
             assert boxes.meeting(probe, mine) == brute
+            # asked to stop at a count no longer wanted: that count when it is reached
+            enough = rng.randint(1, 4)
+            assert boxes.meeting(probe, mine, enough) == min(brute, enough)

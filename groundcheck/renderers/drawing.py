@@ -94,18 +94,10 @@ def _size(m) -> float:
     return float((re.search(rb'font-size="([\d.]+)"', m.group(1) + m.group(4)) or [b"", b"8"])[1])
 
 
-def _box(m, dy: float = 0.0, dx: float = 0.0) -> tuple[float, float, float, float]:
-    attrs = m.group(1) + m.group(4)
-    size = _size(m)
-    width = CHAR_WIDTH * size * len(m.group(5).decode("utf-8", "replace"))
-    x, y = float(m.group(2)) + dx, float(m.group(3)) + dy
-    anchor = (re.search(rb'text-anchor="(\w+)"', attrs) or [b"", b"start"])[1]
-    x0 = x - width / 2 if anchor == b"middle" else (x - width if anchor == b"end" else x)
-    return x0, y - 0.8 * size, x0 + width, y + 0.2 * size
-
-
 class _Label:
-    """A text element's place, read once: its box moved by (dx, dy) as :func:`_box` gives it."""
+    """A text element's place, read once (its size, width and anchor), and its box moved by
+    (dx, dy): a Helvetica character taken as CHAR_WIDTH of the font size wide, the box from 0.8 of
+    the size above the baseline to 0.2 below."""
 
     def __init__(self, m):
         attrs = m.group(1) + m.group(4)
