@@ -126,4 +126,10 @@ def test_a_new_wires_size_is_written_as_its_gauge_or_to_three_figures():
     assert d == pytest.approx(0.8118e-3, rel=1e-4)
     assert wire_size(math.pi * d * d / 4) == ("20 AWG", "20 AWG")
     assert wire_size(0.5e-6) == ("0.5 mm2", "0.5 mm²")
+    # 00 AWG (2/0): 0.3648 in, 67.4 mm² (ASTM B258 table); a wire as thick as the one read is
+    # written as the trade writes it, not as "-1 AWG"
+    area00 = parse_quantity("00", "AWG")[0]
+    assert area00 == pytest.approx(67.4e-6, rel=1e-3)
+    assert wire_size(area00) == ("00 AWG", "00 AWG")
+    assert wire_size(math.pi * (0.46 * 25.4e-3) ** 2 / 4)[0] == "0000 AWG"  # 0.4600 in
     assert wire_size(0.5176e-6) == ("0.518 mm2", "0.518 mm²")

@@ -175,7 +175,9 @@ def wire_size(area: float) -> tuple[str, str]:
     """
     for n in range(-3, 41):
         if abs(awg_area(n) - area) <= 1e-6 * area:
-            return f"{n} AWG", f"{n} AWG"
+            # the sizes above 0 AWG as the trade writes them: 00, 000, 0000 (-1, -2, -3)
+            word = "0" * (1 - n) if n <= 0 else str(n)
+            return f"{word} AWG", f"{word} AWG"
     mm2 = f"{area * 1e6:.3g}"
     return f"{mm2} mm2", f"{mm2} mm²"
 
