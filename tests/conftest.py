@@ -1,5 +1,9 @@
 """Fixtures shared by the tests."""
 
+import os
+import shutil
+import tempfile
+
 import pytest
 
 from groundcheck.cli import main
@@ -52,3 +56,24 @@ def pytest_collection_modifyitems(items):
         return next((k for k, p in enumerate(LONG_FIRST) if name.startswith(p)), len(LONG_FIRST))
 
     items.sort(key=rank)  # stable: each module's tests keep their order
+
+
+#: set (to the folder) in the test run's first process; its worker processes inherit it
+RUN_CACHE = "GROUNDCHECK_TEST_RUN_CACHE"
+
+
+def pytest_configure(config):
+    """The run's own cache folder (the compiled grammar, the plates' stored reductions), shared by
+    its processes and removed at the end: a test never reads what an earlier run or the user's own
+    checks left, and leaves nothing in the user's cache folder."""
+    if RUN_CACHE not in os.environ:
+        folder = tempfile.mkdtemp(prefix="groundcheck-test-cache-")
+        os.environ[RUN_CACHE] = folder
+        os.environ["XDG_CACHE_HOME"] = folder
+        config.run_cache = folder
+
+
+def pytest_unconfigure(config):
+    folder = getattr(config, "run_cache", None)
+    if folder:
+        shutil.rmtree(folder, ignore_errors=True)

@@ -12,40 +12,11 @@ into (the file is a pickle), means no cache, silently, and the grammar is compil
 from __future__ import annotations
 
 import hashlib
-import os
 import sys
-from pathlib import Path
+
+from ..core.cache import cache_folder, is_private
 
 __all__ = ["cache_folder", "cached_grammar_file"]
-
-#: the folder's name inside the user's cache folder
-FOLDER = "groundcheck"
-
-
-def cache_folder() -> Path | None:
-    """The user's cache folder for groundcheck (made, private to the user, on first use), or None
-    when there is none that can be used safely."""
-    base = os.environ.get("XDG_CACHE_HOME", "")
-    try:
-        # the XDG specification: a relative XDG_CACHE_HOME is invalid and ignored
-        root = Path(base) if os.path.isabs(base) else Path.home() / ".cache"
-        folder = root / FOLDER
-        folder.mkdir(mode=0o700, parents=True, exist_ok=True)
-        st = folder.stat()
-    except (
-        OSError,
-        RuntimeError,
-    ):  # no home folder, a read-only or full file system, a file in the way
-        return None
-    if not _private(st):
-        return None
-    return folder
-
-
-def _private(st: os.stat_result) -> bool:
-    """Owned by this user and writable by no one else (a pickle from elsewhere could run code)."""
-    getuid = getattr(os, "getuid", None)
-    return (getuid is None or st.st_uid == getuid()) and not st.st_mode & 0o022
 
 
 def cached_grammar_file(grammar: str, plugin: str) -> str | None:
@@ -68,6 +39,6 @@ def cached_grammar_file(grammar: str, plugin: str) -> str | None:
         return str(final)
     except OSError:
         return None
-    if not final.is_file() or final.is_symlink() or not _private(st):
+    if not final.is_file() or final.is_symlink() or not is_private(st):
         return None
     return str(final)

@@ -33,6 +33,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from ..core.runtime import blas_loaded
+from ..core.stored import stored
 
 from .impedance import FASTENER_RADIUS, MU0
 from .plate_mesh import plate_mesh
@@ -351,7 +352,17 @@ def _reduced(
     """The reduction itself, kept for the same plate and fastenings: the repair advisor re-analyses
     a plan once per candidate, and most candidates leave every plate as it was (the matrix is
     returned read-only)."""
-    sheet_g = thickness / rho
+    red, used, err = stored(
+        "plate-reduction",
+        (width, depth, thickness, rho, contacts, radius, step, estimate_error),
+        (__name__, plate_mesh.__module__),
+        lambda: _reduction(width, depth, thickness / rho, contacts, radius, step, estimate_error),
+    )
+    red.setflags(write=False)
+    return red, used, err
+
+
+def _reduction(width, depth, sheet_g, contacts, radius, step, estimate_error):
     if step is None:
         step = grid_step(width, depth, radius)
     red, used = _reduce(width, depth, sheet_g, contacts, radius, step)
@@ -362,8 +373,7 @@ def _reduced(
             red, err = _extrapolated(red, coarse, used_c / used)
         else:
             err = _extrapolated(red, coarse, used_c / used)[1] * ((used_c / used) ** 2 - 1)
-    red.setflags(write=False)
-    return red, used, err
+    return red, float(used), float(err)
 
 
 def _extrapolated(fine: np.ndarray, coarse: np.ndarray, ratio: float) -> tuple[np.ndarray, float]:

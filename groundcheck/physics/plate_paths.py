@@ -22,6 +22,7 @@ from functools import lru_cache
 import numpy as np
 
 from ..core.runtime import blas_loaded
+from ..core.stored import stored
 
 from .impedance import FASTENER_RADIUS
 from .plate import canonical_order, contact_groups, grid_step, quantised
@@ -52,7 +53,13 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
     """
     width, depth, contacts = quantised(width, depth, contacts)
     order = canonical_order(width, depth, contacts)
-    mids, vecs, flow = _plate_flow(width, depth, tuple(contacts[i] for i in order), radius)
+    placed = tuple(contacts[i] for i in order)
+    mids, vecs, flow = stored(
+        "plate-flow",
+        (width, depth, placed, radius),
+        (__name__, plate_mesh.__module__, canonical_order.__module__),
+        lambda: _plate_flow(width, depth, placed, radius),
+    )
     # the flow for a unit current in at contact j and out at contact 0, by superposition of the
     # canonical columns (in at i, out at the canonical first)
     pos = np.argsort(order)
