@@ -5,7 +5,9 @@ import math
 import pytest
 
 from groundcheck.physics.impedance import resistivity
+from groundcheck.core.errors import PlanErrors
 from groundcheck.core.units import UnitError, awg_area, awg_diameter, format_si, parse_quantity
+from groundcheck.language.loader import load_text
 
 # ASTM B258 diameters and areas (NBS Handbook 100, *Copper Wire Tables*, agrees within 0.1 %),
 # typed here from the published table.
@@ -133,3 +135,18 @@ def test_a_new_wires_size_is_written_as_its_gauge_or_to_three_figures():
     assert wire_size(area00) == ("00 AWG", "00 AWG")
     assert wire_size(math.pi * (0.46 * 25.4e-3) ** 2 / 4)[0] == "0000 AWG"  # 0.4600 in
     assert wire_size(0.5176e-6) == ("0.518 mm2", "0.518 mm²")
+
+
+def test_awg_written_either_way_is_one_size_and_five_zeros_is_none():
+    """'00 AWG' and 'AWG 00' are both 2/0 (0.3648 in, 67.4 mm², ASTM B258 table); 'AWG 00' was
+    read as the number 0 (53.5 mm²).  '00000' is no gauge: a located error, not 0 AWG."""
+    head = 'plan "t"\nmetal ch: aluminium 1 mm, 100 x 100 mm\npoint a: stud, on ch\n'
+    for size in ("00 AWG", "AWG 00"):
+        plan = load_text(head + f"wire w: a to ch, 10 mm, {size}\n", "t.gplan")
+        assert plan.conductors[0].area * 1e6 == pytest.approx(67.4, rel=2e-3), size
+    for size in ("00000 AWG", "AWG 00000"):
+        with pytest.raises(PlanErrors) as e:
+            load_text(head + f"wire w: a to ch, 10 mm, {size}\n", "t.gplan")
+        err = e.value.errors[0]
+        assert "00000 is no gauge" in err.message and err.location.line == 4
+        assert "0000 (4/0)" in err.hint

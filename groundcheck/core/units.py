@@ -22,6 +22,7 @@ __all__ = [
     "wire_size",
     "awg_diameter",
     "awg_area",
+    "awg_number",
     "unit_kind",
     "db_of_ratio",
     "ratio_of_db",
@@ -155,6 +156,33 @@ def awg_diameter(n: float) -> float:
     return 0.127e-3 * 92.0 ** ((36.0 - n) / 39.0)
 
 
+def awg_number(text: str) -> float:
+    """The gauge number of an AWG size as written: 0, 00, 000 and 0000 (the trade's 1/0 to 4/0)
+    are 0, −1, −2 and −3; otherwise a whole number from −3 to 46.
+
+    Parameters:
+        text: the size as the plan writes it ("18", "00", "-2").
+    Returns:
+        the gauge number n of :func:`awg_diameter`.
+    Raises:
+        UnitError: no such gauge (a fraction, a size beyond the table, more than four zeros).
+    References:
+        ASTM B258 (the sizes 0000 to 46 and how they are written).
+    """
+    t = text.strip()
+    if t and set(t) == {"0"}:
+        if len(t) > 4:
+            raise UnitError(
+                f"AWG size {t} is no gauge",
+                "the thickest gauge is 0000 (4/0): write 0, 00, 000 or 0000",
+            )
+        return float(1 - len(t))
+    value = float(t)
+    if not math.isfinite(value) or value != int(value) or not -3 <= value <= 46:
+        raise UnitError(f"AWG size {t} is not a whole gauge", "use a size from 0000 (-3) to 46")
+    return value
+
+
 def awg_area(n: float) -> float:
     """Cross-section of solid round wire of AWG size ``n``, in m² (π d²/4, ASTM B258)."""
     d = awg_diameter(n)
@@ -190,15 +218,9 @@ def parse_quantity(number: str, unit: str) -> tuple[float, str]:
     kept in °C (``K`` is converted).  Raises :class:`UnitError` for a word
     that is not a unit, with a hint naming the closest unit.
     """
-    value = float(number)
     if unit.upper() == "AWG":
-        if number.strip() in ("00", "000", "0000"):  # 2/0, 3/0, 4/0 written as repeated zeros
-            value = -(len(number.strip()) - 1)
-        if not math.isfinite(value) or value != int(value) or not -3 <= value <= 46:
-            raise UnitError(
-                f"AWG size {number} is not a whole gauge", "use a size from 0000 (-3) to 46"
-            )
-        return awg_area(value), "area"
+        return awg_area(awg_number(number)), "area"
+    value = float(number)
     if unit == "K":
         return value - 273.15, "temperature"
     if unit in _TABLE:

@@ -5,7 +5,7 @@ lift, switch): one builder for every kind, the geometry each kind needs coming f
 from __future__ import annotations
 
 from ..core.errors import PlanError
-from ..core.units import awg_diameter
+from ..core.units import UnitError, awg_diameter, awg_number
 from ..model.kinds import KINDS, ROLES, default_role, owners
 from ..model.records import CABLE_CORES, Conductor, make
 from .phrases import Reader, Statement, check_quantity
@@ -215,13 +215,12 @@ def _bare_quantity(r: Reader, kind: str, row, only: dict, kw: dict) -> None:
 def _awg(r: Reader, first, kw: dict) -> None:
     """``AWG 20``: a whole gauge from 0000 (-3) to 46, its area and diameter."""
     r.next("")
-    n = r.number("an AWG size")
-    if n != int(n) or not -3 <= n <= 46:
-        raise PlanError(
-            f"AWG size {n:g} is not a whole gauge",
-            first.loc,
-            "use a size from 0000 (-3) to 46",
-        )
+    it = r.peek()
+    r.number("an AWG size")
+    try:
+        n = awg_number(it.text)
+    except UnitError as e:
+        raise PlanError(str(e), first.loc, e.hint) from None
     d = awg_diameter(n)
     kw["area"], kw["diameter"] = 3.141592653589793 * d * d / 4, d
 
