@@ -36,6 +36,7 @@ from .evaluation import (
     evaluate,
 )
 from .fixes import NOT_TRIED
+from .trying import tried
 from .merge import merge_into, overlap
 
 __all__ = [
@@ -94,12 +95,6 @@ def _judged(plan: Plan, options: Options, before: Result | None) -> Result | Non
     return before if before is not None and before.options == options else None
 
 
-def _free(c: Candidate) -> bool:
-    """A candidate refused before any analysis (it touches the protective earth, or is bought
-    equipment's): considered whatever the time left."""
-    return c.touches_protective or bool(c.refused)
-
-
 def suggest(
     plan: Plan,
     text: str,
@@ -117,7 +112,8 @@ def suggest(
     first analysis included) or a ``clock``, a candidate is started only when the slowest analysis
     so far still fits before the deadline; those left are listed as untried.  ``progress(done,
     total)`` is called after each evaluation, ``total`` the number the time left allows (by the
-    candidates tried so far)."""
+    candidates tried so far).  With ``options.jobs`` > 1 that many candidates are tried at once
+    (:mod:`groundcheck.advice.trying`)."""
     clock = clock or Clock.of(budget)
     options = judging(options)
     before = _judged(plan, options, before)
@@ -137,21 +133,11 @@ def suggest(
         return rank, not protective_earth_rule(code)
 
     cands = sorted(candidates(plan, before, text), key=urgency)
-    free_left = sum(1 for c in cands if _free(c))
-    left, late, evs = len(cands) - free_left, False, []
-    for i, c in enumerate(cands):
-        if _free(c):
-            evs.append(evaluate(text, plan, before, c, options, root, resolved))
-            free_left -= 1
-        else:
-            left -= 1
-            late = late or not clock.fits()
-            if late:
-                evs.append(Evaluation(c, None, rejected=NOT_TRIED))
-                continue
-            evs.append(clock.timed(evaluate, text, plan, before, c, options, root, resolved))
-        if progress is not None:
-            progress(i + 1, i + 1 + free_left + (0 if late else clock.reachable(left)))
+
+    def judge(c: Candidate) -> Evaluation:
+        return evaluate(text, plan, before, c, options, root, resolved)
+
+    evs = tried(cands, judge, clock, options.jobs, progress)
     _dominated(evs)
     evs.sort(key=lambda e: e.rank_key())
     return before, evs

@@ -14,6 +14,7 @@ from .common import (
     add_analysis_options,
     load_plan,
     options_of,
+    processes_type,
     seconds_type,
     write_output,
 )
@@ -107,6 +108,14 @@ class _progress:
             metavar="SECONDS",
             help="time for trying candidates and combining them (default 25 s); what is not "
             "tried is listed",
+        ),
+        opt(
+            "--jobs",
+            type=processes_type,
+            default=1,
+            metavar="N",
+            help="use N processes: N candidates are tried at once, and each analysis's solves "
+            "are shared among N (Linux; default 1; at most the processors available)",
         ),
         FORMAT,
         add_analysis_options,

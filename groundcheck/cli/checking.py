@@ -208,9 +208,9 @@ def advised(result, path: str, budget: float):
             default=1,
             metavar="N",
             help="use N processes: several plans are checked side by side; for one plan, a large "
-            "flat file is read by two and the solves (the hum budget's frequencies, the shared "
-            "returns, the outlet voltages) are shared among N (Linux; default 1; at most the "
-            "processors available)",
+            "flat file is read by two, the solves (the hum budget's frequencies, the shared "
+            "returns, the outlet voltages) are shared among N and the advisor tries N fixes at "
+            "once (Linux; default 1; at most the processors available)",
         ),
         ADVICE_BUDGET,
         add_analysis_options,

@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import gc
 import multiprocessing
-from concurrent.futures import ProcessPoolExecutor
+from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
 from functools import partial
 from typing import Callable, Sequence, TypeVar
@@ -31,7 +31,7 @@ from typing import Callable, Sequence, TypeVar
 from ..core.errors import GroundcheckError
 from ..core.runtime import can_fork, quiet_child, single_threaded_blas
 
-__all__ = ["map_frequencies", "run_tasks", "WorkerError"]
+__all__ = ["map_frequencies", "run_tasks", "run_while", "WorkerError"]
 
 T = TypeVar("T")
 
@@ -45,8 +45,14 @@ class WorkerError(GroundcheckError):
 
 _LIMIT_THREADS: Callable | None = None
 
+#: set in a worker: the work it is given runs there, in one process (two processes on two cores
+#: already; workers of workers would only compete)
+_WORKER = False
+
 
 def _start_worker() -> None:
+    global _WORKER
+    _WORKER = True
     quiet_child()  # Ctrl-C ignored, SIGTERM at once: the parent answers, its workers follow
     gc.disable()
     if _LIMIT_THREADS is not None:
@@ -79,7 +85,7 @@ def run_tasks(
     """
     tasks = list(tasks)
     jobs = min(max(1, int(jobs)), len(tasks))
-    if jobs <= 1 or not can_fork():
+    if jobs <= 1 or _WORKER or not can_fork():
         return [task() for task in tasks]
     global _TASKS, _LIMIT_THREADS
     _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
@@ -113,6 +119,89 @@ def run_tasks(
     finally:
         _TASKS = ()
     return out
+
+
+def run_while(
+    tasks: Sequence[Callable[[], T]],
+    jobs: int,
+    may_start: Callable[[], bool],
+    finished: Callable[[int, T], None],
+) -> list[int]:
+    """The tasks run in their order by up to ``jobs`` processes, each started only while
+    ``may_start()`` is true (a deadline); ``finished(index, result)`` is called in this process as
+    each one ends.  Once ``may_start()`` is false no further task starts.
+
+    Parameters:
+        tasks: functions of no arguments, independent of each other (their results picklable).
+        jobs: processes.
+        may_start: asked before each task is started.
+        finished: told each task's result, in the order they end.
+    Returns:
+        the indices of the tasks never started.
+    References:
+        none (process pool).
+    """
+    tasks = list(tasks)
+    jobs = min(max(1, int(jobs)), len(tasks))
+    ended: set = set()
+
+    def end(i: int, result) -> None:
+        ended.add(i)
+        finished(i, result)
+
+    if jobs <= 1 or _WORKER or not can_fork():
+        return _in_turn(tasks, ended, may_start, end)
+    global _TASKS, _LIMIT_THREADS
+    _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
+    try:
+        pool = ProcessPoolExecutor(
+            jobs, mp_context=multiprocessing.get_context("fork"), initializer=_start_worker
+        )
+        try:
+            left = _share_out(pool, len(tasks), jobs, may_start, end)
+        except BaseException:
+            _stop(pool)
+            raise
+        pool.shutdown()
+        return left
+    except OSError:  # no process could be started (a process limit): the rest in this one
+        return _in_turn(tasks, ended, may_start, end)
+    except BrokenProcessPool:
+        raise WorkerError(
+            "a worker process of --jobs died before it finished (killed, or out of memory); run "
+            "with --jobs 1"
+        ) from None
+    finally:
+        _TASKS = ()
+
+
+def _in_turn(tasks, ended: set, may_start, end) -> list[int]:
+    """The tasks not yet ended, one after the other in this process, while new ones may start."""
+    todo = [i for i in range(len(tasks)) if i not in ended]
+    for k, i in enumerate(todo):
+        if not may_start():
+            return todo[k:]
+        end(i, tasks[i]())
+    return []
+
+
+def _share_out(pool, count: int, jobs: int, may_start, finished) -> list[int]:
+    """:func:`run_while`'s loop: keep ``jobs`` tasks running while new ones may start."""
+    running: dict = {}
+    nxt, stopped = 0, False
+    while nxt < count or running:
+        while nxt < count and len(running) < jobs and not stopped:
+            if not may_start():
+                stopped = True
+                break
+            running[pool.submit(_run, nxt)] = nxt
+            nxt += 1
+        if not running:
+            break
+        done, _ = wait(running, return_when=FIRST_COMPLETED)
+        for fut in sorted(done, key=running.get):
+            finished(running.pop(fut), fut.result())
+    return list(range(nxt, count))
 
 
 def _stop(pool: ProcessPoolExecutor) -> None:
