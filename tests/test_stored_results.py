@@ -118,3 +118,49 @@ def test_plate_reduction_and_flow_read_back_alike(folder, monkeypatch):
         assert x.tobytes() == y.tobytes()
     plate._reduced.cache_clear()
     plate_paths.plate_flow.cache_clear()
+
+
+def test_the_spread_reads_the_reductions_factorisation(monkeypatch):
+    """The current spread over a plate whose reduction this process has made factorises nothing
+    again, and equals the spread solved directly on the grounded grid (Kirchhoff's laws on the same
+    network, SuperLU on the whole Laplacian) to 1e-10 of its largest edge current."""
+    import scipy.sparse.linalg as spla
+
+    from groundcheck.physics.plate_mesh import plate_mesh
+
+    monkeypatch.setattr(store, "store_folder", lambda: None)
+    width, depth = 0.24, 0.17
+    contacts = ((0.02, 0.03), (0.2, 0.04), (0.11, 0.14), (0.04, 0.15))
+    plate._GRIDS.clear()
+    plate._reduced.cache_clear()
+    plate_paths.plate_flow.cache_clear()
+    plate.reduce_plate(width, depth, 0.002, 2.8e-8, list(contacts), ["a", "b", "c", "d"])
+    calls = []
+    real = spla.splu
+    monkeypatch.setattr(spla, "splu", lambda *a, **k: calls.append(1) or real(*a, **k))
+    w, d, placed = plate.quantised(width, depth, contacts)
+    order = plate.canonical_order(w, d, placed)
+    ordered = tuple(placed[i] for i in order)
+    mids, vecs, flow = plate_paths._plate_flow(w, d, ordered, plate.FASTENER_RADIUS)
+    assert calls == []
+    # the same grid solved directly: contact 0 grounded, 1 A in at each other contact
+    step = plate.grid_step(w, d, plate.FASTENER_RADIUS)
+    nx, ny = int(round(w / step)) + 1, int(round(d / step)) + 1
+    X, Y = (v.ravel() for v in np.meshgrid(np.linspace(0, w, nx), np.linspace(0, d, ny)))
+    group = plate.contact_groups(
+        X, Y, ordered, plate.FASTENER_RADIUS, min(w / (nx - 1), d / (ny - 1))
+    )
+    mesh = plate_mesh(w, d, 1.0, ordered, plate.FASTENER_RADIUS, nx, ny, group)
+    rhs = np.zeros((mesh.n - 1, mesh.k))
+    rhs[np.arange(mesh.k - 1), np.arange(1, mesh.k)] = 1.0
+    phi = np.zeros((mesh.n, mesh.k))
+    phi[1:] = real(mesh.laplacian()[1:, 1:].tocsc()).solve(rhs)
+    direct = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])
+    assert np.abs(flow - direct).max() <= 1e-10 * np.abs(direct).max()
+    # Kirchhoff: the currents leaving contact j's disc sum to the 1 A injected there
+    for j in range(1, mesh.k):
+        out = flow[mesh.a == j, j].sum() - flow[mesh.b == j, j].sum()
+        assert out == pytest.approx(1.0, rel=1e-9)
+    plate._GRIDS.clear()
+    plate._reduced.cache_clear()
+    plate_paths.plate_flow.cache_clear()

@@ -26,6 +26,7 @@ Heat Transfer and Fluid Flow*, 1980, ch. 4.
 from __future__ import annotations
 
 import math
+from collections import OrderedDict
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -223,25 +224,65 @@ def contact_groups(X: np.ndarray, Y: np.ndarray, contacts, radius: float, h: flo
 def _reduce(width, depth, sheet_g, contacts, radius, step):
     nx = max(3, int(round(width / step)) + 1)
     ny = max(3, int(round(depth / step)) + 1)
-    X, Y = (v.ravel() for v in np.meshgrid(np.linspace(0, width, nx), np.linspace(0, depth, ny)))
-    group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
-    mesh = plate_mesh(width, depth, sheet_g, contacts, radius, nx, ny, group)
+    mesh, response = grid_response(width, depth, tuple(contacts), radius, nx, ny)
     k = mesh.k
     Lm = mesh.laplacian()
-    Lff = Lm[:k, :k].toarray()
+    red = Lm[:k, :k].toarray()
+    if response is not None:
+        red = red - Lm[:k, k:] @ response
+    red = sheet_g * red  # the unit sheet's reduction scaled: the network is linear in it
+    return 0.5 * (red + red.T), (max(mesh.hx, mesh.hy) if response is not None else step)
+
+
+#: the unit-sheet grids of the latest plates with their free nodes' response to the contacts
+#: (L_ii⁻¹·L_if), by (width, depth, contacts, radius, nx, ny): the plate's reduction and the
+#: current spread over it (:func:`groundcheck.physics.plate_paths.plate_flow`) read one
+#: factorisation
+_GRIDS: OrderedDict = OrderedDict()
+#: grids kept (a few MB each)
+KEPT_GRIDS = 6
+
+
+def grid_response(width, depth, contacts: tuple, radius, nx, ny):
+    """A plate's grid for a sheet of 1 S and its free nodes' response to the contacts'
+    potentials, L_ii⁻¹·L_if (free nodes × contacts; None when every node is a contact's).
+
+    Parameters:
+        width, depth: the plate's size, m (quantised).
+        contacts: the fastenings in the mesh's order, m (quantised).
+        radius: a fastener's contact radius, m.
+        nx, ny: the grid's nodes along x and y.
+    Returns:
+        (the :class:`~groundcheck.physics.plate_mesh.PlateMesh`, the response).
+    References:
+        G. Kron, *Tensor Analysis of Networks*, 1939 (the Schur complement's blocks).
+    """
+    key = (width, depth, contacts, radius, nx, ny)
+    got = _GRIDS.get(key)
+    if got is None:
+        got = _grid_response(*key)
+        _GRIDS[key] = got
+        while len(_GRIDS) > KEPT_GRIDS:
+            _GRIDS.popitem(last=False)
+    return got
+
+
+def _grid_response(width, depth, contacts, radius, nx, ny):
+    X, Y = (v.ravel() for v in np.meshgrid(np.linspace(0, width, nx), np.linspace(0, depth, ny)))
+    group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
+    mesh = plate_mesh(width, depth, 1.0, contacts, radius, nx, ny, group)
+    k = mesh.k
     if mesh.n == k:
-        return Lff, step
+        return mesh, None
     import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
 
     blas_loaded()  # its BLAS under the analysis's one-thread limit
 
-    Lfi = Lm[:k, k:]
+    Lm = mesh.laplacian()
     solve = spla.splu(
         Lm[k:, k:].tocsc(), permc_spec="MMD_AT_PLUS_A"
     )  # half the fill of the default on a grid
-    X_ = solve.solve(Lfi.T.toarray())
-    red = Lff - (Lfi @ X_)
-    return 0.5 * (red + red.T), max(mesh.hx, mesh.hy)
+    return mesh, solve.solve(Lm[:k, k:].T.toarray())
 
 
 def reduce_plate(
@@ -338,6 +379,10 @@ def quantised(width: float, depth: float, contacts) -> tuple[float, float, tuple
     return q(width), q(depth), tuple((q(x), q(y)) for x, y in contacts)
 
 
+#: the modules whose code a plate's stored results come from (:mod:`groundcheck.core.stored`)
+PLATE_CODE = (__name__, plate_mesh.__module__)
+
+
 @lru_cache(maxsize=64)
 def _reduced(
     width: float,
@@ -355,7 +400,7 @@ def _reduced(
     red, used, err = stored(
         "plate-reduction",
         (width, depth, thickness, rho, contacts, radius, step, estimate_error),
-        (__name__, plate_mesh.__module__),
+        PLATE_CODE,
         lambda: _reduction(width, depth, thickness / rho, contacts, radius, step, estimate_error),
     )
     red.setflags(write=False)

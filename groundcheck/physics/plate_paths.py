@@ -21,12 +21,10 @@ from functools import lru_cache
 
 import numpy as np
 
-from ..core.runtime import blas_loaded
 from ..core.stored import stored
 
 from .impedance import FASTENER_RADIUS
-from .plate import canonical_order, contact_groups, grid_step, quantised
-from .plate_mesh import plate_mesh
+from .plate import PLATE_CODE, canonical_order, grid_response, grid_step, quantised
 
 __all__ = ["plate_flow", "passage_flow", "passage_vector", "loop_passages", "MAX_PLATE_CONTACTS"]
 
@@ -57,7 +55,7 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
     mids, vecs, flow = stored(
         "plate-flow",
         (width, depth, placed, radius),
-        (__name__, plate_mesh.__module__, canonical_order.__module__),
+        (__name__, *PLATE_CODE),
         lambda: _plate_flow(width, depth, placed, radius),
     )
     # the flow for a unit current in at contact j and out at contact 0, by superposition of the
@@ -70,23 +68,32 @@ def _plate_flow(width: float, depth: float, contacts: tuple, radius: float):
     step = grid_step(width, depth, radius)
     nx = max(3, int(round(width / step)) + 1)
     ny = max(3, int(round(depth / step)) + 1)
-    X, Y = (v.ravel() for v in np.meshgrid(np.linspace(0, width, nx), np.linspace(0, depth, ny)))
-    k = len(contacts)
-    group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
-    mesh = plate_mesh(width, depth, 1.0, contacts, radius, nx, ny, group)
-    # ground contact 0, inject 1 A at each other contact
-    rhs = np.zeros((mesh.n - 1, k))
-    rhs[np.arange(k - 1), np.arange(1, k)] = 1.0
-    phi = np.zeros((mesh.n, k))
-    import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
-
-    blas_loaded()  # its BLAS under the analysis's one-thread limit
-
-    phi[1:] = spla.splu(mesh.laplacian()[1:, 1:].tocsc()).solve(rhs)
+    # the grid and its factorisation the plate's reduction made (or makes now)
+    mesh, response = grid_response(width, depth, contacts, radius, nx, ny)
+    phi = np.zeros((mesh.n, mesh.k))
+    if mesh.k > 1:
+        phi = _potentials(mesh, response)
     currents = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])  # from a to b
     mids = (mesh.start + mesh.end) / 2
     vecs = mesh.end - mesh.start
     return mids, vecs, currents
+
+
+def _potentials(mesh, response) -> np.ndarray:
+    """The node potentials (n × k) for 1 A in at each contact and out at contact 0 (grounded;
+    column 0 zero), from the grid's response L_ii⁻¹·L_if: the contacts' potentials from the reduced
+    matrix S = L_ff − L_fi·L_ii⁻¹·L_if, the free nodes' −L_ii⁻¹·L_if times them."""
+    k = mesh.k
+    L = mesh.laplacian()
+    S = L[:k, :k].toarray()
+    if response is not None:
+        S = S - L[:k, k:] @ response
+    S = 0.5 * (S + S.T)
+    phi = np.zeros((mesh.n, k))
+    phi[1:k, 1:] = np.linalg.solve(S[1:, 1:], np.eye(k - 1))
+    if response is not None:
+        phi[k:] = -(response @ phi[:k])
+    return phi
 
 
 def _potential_dot(src, mids: np.ndarray, vecs: np.ndarray) -> np.ndarray:
