@@ -12,6 +12,12 @@ itself; every figure is the ratio of a process's wall time to the anchor's in th
 is reported with the smallest and largest.  The CPU time of each process (user + system, from
 ``wait4``) is given beside it, since it depends much less on the other work of the machine.
 
+The children use a cache folder of the benchmark's own (``XDG_CACHE_HOME``: the compiled grammar
+and the plates' stored reductions and current spreads, :mod:`groundcheck.core.stored`); the first
+run of each plan writes them and the rounds read them, as when a plan is checked again;
+``--cold-results`` removes the stored results before each ``check`` (a plan never checked before).
+``--jobs N`` runs ``check --jobs N`` (the advisor's fixes tried N at a time).
+
 By default the children cache the bytecode of this tree's modules in a temporary folder
 (``PYTHONPYCACHEPREFIX``), as an installed package has it; ``--from-source`` compiles them on
 every run instead (``PYTHONDONTWRITEBYTECODE``), which costs a fixed extra that an installation
@@ -30,6 +36,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import shutil
 import statistics
 import subprocess
 import sys
@@ -125,11 +132,15 @@ def _summary(values: list[float]) -> dict:
     return {"median": statistics.median(values), "min": min(values), "max": max(values)}
 
 
-def measure(plan: str, rounds: int, env: dict, scratch: Path) -> dict:
+def measure(
+    plan: str, rounds: int, env: dict, scratch: Path, cold: bool = False, jobs: int = 1
+) -> dict:
     names = modules_of(plan, env)
     script = scratch / f"imports_{Path(plan).stem}.py"
     script.write_text("import importlib\nfor m in %r:\n    importlib.import_module(m)\n" % names)
     check = [sys.executable, "-m", "groundcheck", "check", plan, "--fail-on", "never"]
+    check += ["--jobs", str(jobs)] if jobs > 1 else []
+    stored = Path(env["XDG_CACHE_HOME"]) / "groundcheck" / "results"
     for argv in (ANCHOR, [sys.executable, str(script)], check):
         timed(
             argv, env
@@ -140,6 +151,8 @@ def measure(plan: str, rounds: int, env: dict, scratch: Path) -> dict:
         anchor_wall, anchor_cpu = timed(ANCHOR, env)
         cpu["anchor"].append(anchor_cpu)
         for key, argv in (("imports", [sys.executable, str(script)]), ("check", check)):
+            if cold and key == "check":
+                shutil.rmtree(stored, ignore_errors=True)  # no plate's reduction kept
             wall, used = timed(argv, env)
             ratios[key].append(wall / anchor_wall)
             cpu[key].append(used)
@@ -258,6 +271,13 @@ def main(argv: list[str] | None = None) -> None:
         "(PYTHONDONTWRITEBYTECODE) instead of caching their bytecode as an installation does",
     )
     ap.add_argument(
+        "--cold-results",
+        action="store_true",
+        help="remove the stored plate reductions before each check (a plan never checked "
+        "before); by default they are kept from the first run, as for a plan checked again",
+    )
+    ap.add_argument("--jobs", type=int, default=1, help="check with --jobs N (default 1)")
+    ap.add_argument(
         "--solver",
         nargs="*",
         type=int,
@@ -276,7 +296,11 @@ def main(argv: list[str] | None = None) -> None:
     load = os.getloadavg()
     with tempfile.TemporaryDirectory() as tmp:
         env = _env(None if args.from_source else Path(tmp) / "bytecode")
-        rows = [measure(p, args.rounds, env, Path(tmp)) for p in args.plans]
+        env["XDG_CACHE_HOME"] = str(Path(tmp) / "cache")  # the benchmark's own cache folder
+        rows = [
+            measure(p, args.rounds, env, Path(tmp), args.cold_results, args.jobs)
+            for p in args.plans
+        ]
     after = os.getloadavg()
     print(table(rows))
     print(
@@ -287,6 +311,12 @@ def main(argv: list[str] | None = None) -> None:
             if args.from_source
             else "bytecode cached, as installed"
         )
+        + (
+            "; plate reductions computed in every check"
+            if args.cold_results
+            else "; plate reductions kept from the first run"
+        )
+        + (f"; check --jobs {args.jobs}" if args.jobs > 1 else "")
     )
     if args.json:
         Path(args.json).write_text(

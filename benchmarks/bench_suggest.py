@@ -3,6 +3,7 @@ evaluated, candidates per second, and the time of one full analysis for comparis
 
     python benchmarks/bench_suggest.py                 # examples, 1k and 3k conductors
     python benchmarks/bench_suggest.py --sizes 1000 3000 10000 --budget 25
+    python benchmarks/bench_suggest.py --sizes 3000 --jobs 2     # candidates tried two at a time
 """
 
 from __future__ import annotations
@@ -22,20 +23,21 @@ from groundcheck.advice.repair import NOT_TRIED, greedy, suggest  # noqa: E402
 from groundcheck.analysis import Options, analyze  # noqa: E402
 
 
-def run(path: Path, budget: float) -> dict:
+def run(path: Path, budget: float, jobs: int = 1) -> dict:
     plan = load(path)
     text = path.read_text()
+    options = Options(jobs=jobs)
     t0 = time.perf_counter()
-    before = analyze(plan, Options())
+    before = analyze(plan, options)
     t1 = time.perf_counter()
     _, evs = suggest(
-        plan, text, Options(), path.parent, path.resolve(), budget=budget * 0.7, before=before
+        plan, text, options, path.parent, path.resolve(), budget=budget * 0.7, before=before
     )
     t2 = time.perf_counter()
     chosen, _, _ = greedy(
         plan,
         text,
-        Options(),
+        options,
         path.parent,
         path.resolve(),
         evs=evs,
@@ -63,6 +65,7 @@ def main() -> None:
     )
     ap.add_argument("--sizes", type=int, nargs="*", default=[1000, 3000])
     ap.add_argument("--budget", type=float, default=25.0)
+    ap.add_argument("--jobs", type=int, default=1, help="processes trying candidates at once")
     args = ap.parse_args()
     paths = sorted((HERE.parent / "examples").glob("*.gplan"))
     with tempfile.TemporaryDirectory() as tmp:
@@ -82,7 +85,7 @@ def main() -> None:
             f"{'suggest':>8} {'combine':>8} {'kept':>5}"
         )
         for p in paths:
-            r = run(p, args.budget)
+            r = run(p, args.budget, args.jobs)
             print(
                 f"{r['plan']:28} {r['conductors']:6d} {r['analysis_s']:8.2f}s "
                 f"{r['candidates']:6d} {r['tried']:6d} {r['per_second']:6.1f} "
