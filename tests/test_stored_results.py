@@ -5,7 +5,7 @@ import numpy as np
 import pytest
 
 from groundcheck.core import stored as store
-from groundcheck.physics import plate, plate_paths
+from groundcheck.physics import plate, plate_grid, plate_paths
 
 MODULES = (plate.__name__,)
 
@@ -131,7 +131,7 @@ def test_the_spread_reads_the_reductions_factorisation(monkeypatch):
     monkeypatch.setattr(store, "store_folder", lambda: None)
     width, depth = 0.24, 0.17
     contacts = ((0.02, 0.03), (0.2, 0.04), (0.11, 0.14), (0.04, 0.15))
-    plate._GRIDS.clear()
+    plate_grid._GRIDS.clear()
     plate._reduced.cache_clear()
     plate_paths.plate_flow.cache_clear()
     plate.reduce_plate(width, depth, 0.002, 2.8e-8, list(contacts), ["a", "b", "c", "d"])
@@ -161,6 +161,6 @@ def test_the_spread_reads_the_reductions_factorisation(monkeypatch):
     for j in range(1, mesh.k):
         out = flow[mesh.a == j, j].sum() - flow[mesh.b == j, j].sum()
         assert out == pytest.approx(1.0, rel=1e-9)
-    plate._GRIDS.clear()
+    plate_grid._GRIDS.clear()
     plate._reduced.cache_clear()
     plate_paths.plate_flow.cache_clear()

@@ -26,17 +26,16 @@ Heat Transfer and Fluid Flow*, 1980, ch. 4.
 from __future__ import annotations
 
 import math
-from collections import OrderedDict
 from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
 import scipy.sparse as sp
 
-from ..core.runtime import blas_loaded
 from ..core.stored import stored
 
 from .impedance import FASTENER_RADIUS, MU0
+from .plate_grid import contact_groups, grid_response
 from .plate_mesh import plate_mesh
 
 __all__ = [
@@ -176,51 +175,6 @@ def grid_step(width: float, depth: float, radius: float) -> float:
     )
 
 
-#: a grid node this share of the grid step (or less) outside a contact's circle is on it: the
-#: nodes on the circle are taken whatever the rounding of their coordinates, so that mirrored
-#: contacts take mirrored nodes
-ON_CIRCLE = 1e-6
-
-
-def contact_groups(X: np.ndarray, Y: np.ndarray, contacts, radius: float, h: float) -> np.ndarray:
-    """Which contact each grid node belongs to (-1: none): a node within a contact's radius belongs
-    to the nearest such contact (one as near as another belongs to neither, whatever their order);
-    a contact whose disc keeps no node takes the free nodes nearest its centre (all of them when
-    several are as near).
-
-    Parameters:
-        X, Y: the grid nodes' coordinates, m.
-        contacts: the fastenings' centres, m.
-        radius: a fastener's contact radius, m.
-        h: the grid step, m (nodes within ON_CIRCLE of a step of the circle are on it).
-    Returns:
-        per node, the index of its contact or -1.
-    References:
-        none (bookkeeping: symmetric geometry meshes symmetrically, whatever the contacts' order).
-    """
-    tol = ON_CIRCLE * h
-    group = np.full(X.size, -1)
-    best = np.full(X.size, np.inf)
-    tie = np.zeros(X.size, dtype=bool)
-    for k, (cx, cy) in enumerate(contacts):
-        d = np.hypot(X - cx, Y - cy)
-        inside = d <= radius + tol
-        closer = inside & (d < best - tol)
-        tie |= inside & ~closer & (d <= best + tol)
-        tie[closer] = False
-        group[closer] = k
-        best[closer] = d[closer]
-    group[tie] = -1
-    for k in sorted(set(range(len(contacts))) - set(group.tolist())):
-        cx, cy = contacts[k]
-        d = np.hypot(X - cx, Y - cy)
-        free = group < 0
-        near = d[free].min() if free.any() else d.min()
-        inside = np.flatnonzero((d <= near + tol) & free)
-        group[inside if inside.size else [int(np.argmin(d))]] = k
-    return group
-
-
 def _reduce(width, depth, sheet_g, contacts, radius, step):
     nx = max(3, int(round(width / step)) + 1)
     ny = max(3, int(round(depth / step)) + 1)
@@ -232,57 +186,6 @@ def _reduce(width, depth, sheet_g, contacts, radius, step):
         red = red - Lm[:k, k:] @ response
     red = sheet_g * red  # the unit sheet's reduction scaled: the network is linear in it
     return 0.5 * (red + red.T), (max(mesh.hx, mesh.hy) if response is not None else step)
-
-
-#: the unit-sheet grids of the latest plates with their free nodes' response to the contacts
-#: (L_ii⁻¹·L_if), by (width, depth, contacts, radius, nx, ny): the plate's reduction and the
-#: current spread over it (:func:`groundcheck.physics.plate_paths.plate_flow`) read one
-#: factorisation
-_GRIDS: OrderedDict = OrderedDict()
-#: grids kept (a few MB each)
-KEPT_GRIDS = 6
-
-
-def grid_response(width, depth, contacts: tuple, radius, nx, ny):
-    """A plate's grid for a sheet of 1 S and its free nodes' response to the contacts'
-    potentials, L_ii⁻¹·L_if (free nodes × contacts; None when every node is a contact's).
-
-    Parameters:
-        width, depth: the plate's size, m (quantised).
-        contacts: the fastenings in the mesh's order, m (quantised).
-        radius: a fastener's contact radius, m.
-        nx, ny: the grid's nodes along x and y.
-    Returns:
-        (the :class:`~groundcheck.physics.plate_mesh.PlateMesh`, the response).
-    References:
-        G. Kron, *Tensor Analysis of Networks*, 1939 (the Schur complement's blocks).
-    """
-    key = (width, depth, contacts, radius, nx, ny)
-    got = _GRIDS.get(key)
-    if got is None:
-        got = _grid_response(*key)
-        _GRIDS[key] = got
-        while len(_GRIDS) > KEPT_GRIDS:
-            _GRIDS.popitem(last=False)
-    return got
-
-
-def _grid_response(width, depth, contacts, radius, nx, ny):
-    X, Y = (v.ravel() for v in np.meshgrid(np.linspace(0, width, nx), np.linspace(0, depth, ny)))
-    group = contact_groups(X, Y, contacts, radius, min(width / (nx - 1), depth / (ny - 1)))
-    mesh = plate_mesh(width, depth, 1.0, contacts, radius, nx, ny, group)
-    k = mesh.k
-    if mesh.n == k:
-        return mesh, None
-    import scipy.sparse.linalg as spla  # only for a plate: plans without one never need it
-
-    blas_loaded()  # its BLAS under the analysis's one-thread limit
-
-    Lm = mesh.laplacian()
-    solve = spla.splu(
-        Lm[k:, k:].tocsc(), permc_spec="MMD_AT_PLUS_A"
-    )  # half the fill of the default on a grid
-    return mesh, solve.solve(Lm[:k, k:].T.toarray())
 
 
 def reduce_plate(
@@ -380,7 +283,7 @@ def quantised(width: float, depth: float, contacts) -> tuple[float, float, tuple
 
 
 #: the modules whose code a plate's stored results come from (:mod:`groundcheck.core.stored`)
-PLATE_CODE = (__name__, plate_mesh.__module__)
+PLATE_CODE = (__name__, grid_response.__module__, plate_mesh.__module__)
 
 
 @lru_cache(maxsize=64)

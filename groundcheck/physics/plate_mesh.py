@@ -1,17 +1,17 @@
 """The plate's grid with its fastenings' contact discs cut into it.
 
 A plate is a node-centred finite-volume grid of sheet conductance
-(:func:`groundcheck.physics.plate.grid_laplacian`: boundary nodes own half a cell).  Each fastening
-is an equipotential disc.  A grid node inside a disc belongs to it
-(:func:`groundcheck.physics.plate.contact_groups`); a grid edge that crosses a disc's circle is cut
-there: the part of the edge outside the disc keeps the sheet between the node and the circle, so
-its conductance is the edge's divided by the share of its length that lies outside (the boundary
-treatment of Shortley and Weller).  A node approaching the circle is therefore joined ever more
-strongly to the disc and the network changes continuously as a fastening moves — a node no longer
-jumps into or out of a staircase outline — and mirrored fastenings cut mirrored edges.  Against an
-exact solve (the rectangle's Neumann Green's function, contacts as equipotential discs) the plate
-resistance on the default grid (half the contact radius) is within 0.6 %, converging as the square
-of the step.
+(:func:`groundcheck.physics.plate.grid_laplacian`: boundary nodes own half a cell). Each fastening
+is an equipotential disc. A grid node inside a disc belongs to it
+(:func:`groundcheck.physics.plate_grid.contact_groups`); a grid edge that crosses a disc's circle
+is cut there: the part of the edge outside the disc keeps the sheet between the node and the
+circle, so its conductance is the edge's divided by the share of its length that lies outside (the
+boundary treatment of Shortley and Weller). A node approaching the circle is therefore joined ever
+more strongly to the disc and the network changes continuously as a fastening moves — a node no
+longer jumps into or out of a staircase outline — and mirrored fastenings cut mirrored edges.
+Against an exact solve (the rectangle's Neumann Green's function, contacts as equipotential discs)
+the plate resistance on the default grid (half the contact radius) is within 0.6 %, converging as
+the square of the step.
 
 References: G. H. Shortley and R. Weller, "The numerical solution of Laplace's equation", *J. Appl.
 Phys.* 9 (1938) 334 (irregular boundaries cutting grid lines); S. V. Patankar, *Numerical Heat
@@ -24,8 +24,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-#: as in :data:`groundcheck.physics.plate.ON_CIRCLE`: a node this share of a step outside a circle
-#: is on it
+#: as in :data:`groundcheck.physics.plate_grid.ON_CIRCLE`: a node this share of a step outside a
+#: circle is on it
 ON_CIRCLE = 1e-6
 
 __all__ = ["PlateMesh", "plate_mesh", "grid_edges", "MIN_SHARE"]
