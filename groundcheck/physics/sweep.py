@@ -63,6 +63,18 @@ def _run(index: int):
     return _TASKS[index]()
 
 
+def _run_and_collect(index: int):
+    """A task of :func:`run_while`, then the cycles it left collected: a worker runs with the
+    collector paused (so as not to touch what it inherited), and one that runs many tasks (the
+    advisor's candidates, a whole analysis each) would otherwise keep every task's garbage.  Its
+    new objects are all in the youngest generation, which is collected without reading the
+    inherited ones."""
+    try:
+        return _TASKS[index]()
+    finally:
+        gc.collect(0)
+
+
 def run_tasks(
     tasks: Sequence[Callable[[], T]], jobs: int = 1, costs: Sequence[float] | None = None
 ) -> list[T]:
@@ -194,7 +206,7 @@ def _share_out(pool, count: int, jobs: int, may_start, finished) -> list[int]:
             if not may_start():
                 stopped = True
                 break
-            running[pool.submit(_run, nxt)] = nxt
+            running[pool.submit(_run_and_collect, nxt)] = nxt
             nxt += 1
         if not running:
             break
