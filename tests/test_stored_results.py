@@ -164,3 +164,21 @@ def test_the_spread_reads_the_reductions_factorisation(monkeypatch):
     plate_grid._GRIDS.clear()
     plate._reduced.cache_clear()
     plate_paths.plate_flow.cache_clear()
+
+
+def test_a_module_without_readable_source_stores_nothing(folder, monkeypatch):
+    monkeypatch.setattr(store, "_code", lambda modules: None)  # as for a module with no source
+    compute, calls = counted((np.ones(1),))
+    store.stored("trial", (1,), MODULES, compute)
+    store.stored("trial", (1,), MODULES, compute)
+    assert len(calls) == 2 and not list(folder.glob("*.npz"))
+
+
+def test_a_write_that_fails_leaves_no_part_file_and_the_result_stands(folder, monkeypatch):
+    def full(*a, **k):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(np, "savez", full)
+    out = store.stored("trial", (2,), MODULES, lambda: (np.arange(3.0),))
+    assert out[0].tolist() == [0.0, 1.0, 2.0]
+    assert not list(folder.glob("*"))

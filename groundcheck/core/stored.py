@@ -57,12 +57,15 @@ def store_folder() -> Path | None:
 
 
 @lru_cache(maxsize=None)
-def _code(modules: tuple[str, ...]) -> str:
-    """A digest of the named modules' source text and of the libraries the arrays come from."""
+def _code(modules: tuple[str, ...]) -> str | None:
+    """A digest of the named modules' source text and of the libraries the arrays come from (None
+    when a module's source cannot be read: nothing is then stored)."""
     h = hashlib.sha256()
     for name in modules:
-        module = sys.modules[name]
-        h.update(Path(module.__file__).read_bytes())
+        try:
+            h.update(Path(sys.modules[name].__file__).read_bytes())
+        except (KeyError, AttributeError, TypeError, OSError):
+            return None
     import scipy
 
     h.update(
@@ -87,10 +90,10 @@ def stored(
     References:
         none (bookkeeping).
     """
-    folder = store_folder()
-    if folder is None:
+    folder, code = store_folder(), _code(modules)
+    if folder is None or code is None:
         return compute()
-    key = f"{kind}\0{args!r}\0{_code(modules)}"
+    key = f"{kind}\0{args!r}\0{code}"
     path = folder / f"{kind}-{hashlib.sha256(key.encode()).hexdigest()[:40]}.npz"
     got = _read(path, key)
     if got is not None:
@@ -131,7 +134,7 @@ def _write(folder: Path, path: Path, key: str, out: tuple) -> None:
             os.unlink(tmp)
             raise
         _trim(folder)
-    except OSError:
+    except (OSError, ValueError):  # a full disk, say: the result is only not kept
         return
 
 
