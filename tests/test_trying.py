@@ -132,3 +132,30 @@ def test_a_free_candidate_is_judged_whatever_the_time(headphone):
     evs = tried([cands[0], refused], lambda c: Evaluation(c, None, rejected="judged"), clock, 2)
     assert [e.rejected for e in evs] == [NOT_TRIED, "judged"]
     assert evs[1].candidate is refused
+
+
+@forking
+def test_an_interrupt_ends_the_workers_at_once():
+    """Ctrl-C while candidates are being tried (here an alarm half a second in, while the parent
+    waits for its workers): the run stops without waiting for the tasks they run, and no worker is
+    left behind."""
+    import multiprocessing
+    import signal
+
+    def interrupt(signum, frame):
+        raise KeyboardInterrupt
+
+    old = signal.signal(signal.SIGALRM, interrupt)
+    t = time.monotonic()
+    try:
+        signal.setitimer(signal.ITIMER_REAL, 0.5)
+        with pytest.raises(KeyboardInterrupt):
+            sweep.run_while([lambda: time.sleep(5)] * 4, 2, lambda: True, lambda i, r: None)
+    finally:
+        signal.setitimer(signal.ITIMER_REAL, 0)
+        signal.signal(signal.SIGALRM, old)
+    assert time.monotonic() - t < 3.0
+    deadline = time.monotonic() + 3.0
+    while multiprocessing.active_children() and time.monotonic() < deadline:
+        time.sleep(0.05)
+    assert not multiprocessing.active_children()
