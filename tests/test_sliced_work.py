@@ -193,3 +193,20 @@ def test_clean_is_the_plain_copy(doc, digits):
 
     got, want = clean(doc, digits), _plain_clean(doc, digits)
     assert json.dumps(got, allow_nan=False) == json.dumps(want, allow_nan=False)
+
+
+def test_cut_vertices_from_blocks_are_networkx_articulation_points():
+    """The protective route's pruning reads cut vertices off the blocks (a node in two blocks or
+    more) instead of a second depth-first pass: the same set as networkx's own articulation
+    points on random graphs, isolated nodes, bridges and several components included."""
+    import random
+
+    import networkx as nx
+
+    from groundcheck.network.earthing import cut_vertices
+
+    for seed in range(200):
+        r = random.Random(seed)
+        G = nx.gnm_random_graph(r.randint(1, 40), r.randint(0, 60), seed=seed)
+        blocks = list(nx.biconnected_components(G))
+        assert cut_vertices(blocks) == set(nx.articulation_points(G)), seed

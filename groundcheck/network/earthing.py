@@ -27,6 +27,7 @@ from ..model.records import PE_POINT, Plan
 __all__ = [
     "EARTH_TERMINAL_KINDS",
     "ProtectiveRoute",
+    "cut_vertices",
     "earth_terminals",
     "protective_route",
     "signal_points",
@@ -204,6 +205,25 @@ def _without_dead_ends(side: set, ends: set, adj: dict, cost: dict) -> set:
     return side
 
 
+def cut_vertices(blocks: list) -> set:
+    """The cut vertices of a graph from its blocks (biconnected components): the nodes in two
+    blocks or more, so one depth-first pass gives both.
+
+    Parameters:
+        blocks: the graph's blocks, as sets of nodes.
+    Returns:
+        its cut vertices (articulation points).
+    References:
+        F. Harary, *Graph Theory*, 1969, ch. 3 (a cut vertex lies in more than one block).
+    """
+    seen: set = set()
+    cuts: set = set()
+    for block in blocks:
+        cuts |= block & seen
+        seen |= block
+    return cuts
+
+
 def _without_dead_blocks(side: set, ends: set, adj: dict, cost: dict) -> set:
     """The protective side less the blocks that hang off it at one point and hold no metal part
     or earth terminal of their own: two sockets fastened to one panel and wired to each other
@@ -220,9 +240,10 @@ def _without_dead_blocks(side: set, ends: set, adj: dict, cost: dict) -> set:
             for v, keys in adj[u].items():
                 if v in side and v != u and any(k in cost for k in keys):
                     G.add_edge(u, v)
-        cuts = set(nx.articulation_points(G))
+        blocks = list(nx.biconnected_components(G))
+        cuts = cut_vertices(blocks)
         dead = set()
-        for block in nx.biconnected_components(G):
+        for block in blocks:
             joint = block & cuts
             if len(joint) == 1 and not (block - joint) & ends:
                 dead |= block - joint

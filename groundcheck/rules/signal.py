@@ -29,19 +29,39 @@ FEEDBACK_LIMIT_DB = -60.0
 FEEDBACK_NOTE_DB = -100.0
 
 
-def _metal_route(ctx: AuditContext, a: str, b: str) -> list[str] | None:
+def _metal_route(ctx: AuditContext, a: str, b: str, barred: set, wired: dict) -> list[str] | None:
     """The route from a to b when every route between them passes through a metal part or an
-    earth terminal (None when a wired route exists, or none at all)."""
+    earth terminal (None when a wired route exists, or none at all); ``barred`` holds the metal
+    parts and earth terminals, ``wired`` each other node's part of the network without them."""
     if a not in ctx.G or b not in ctx.G or a == b:
         return None
-    barred = ctx.metals | set(ctx.earth_terminals)
-    near, _ = bfs(ctx.adj, [a], lambda n: n not in barred)
-    if b in near:
+    if a in barred:
+        near, _ = bfs(ctx.adj, [a], lambda n: n not in barred)
+        if b in near:
+            return None
+    elif b not in barred and wired[a] == wired[b]:
         return None
     try:
         return nx.shortest_path(ctx.G, a, b)
     except nx.NetworkXNoPath:
         return None
+
+
+def _parts_without(adj: dict, barred: set) -> dict:
+    """Each node not in ``barred`` labelled by its connected part of the network without the
+    barred nodes (one search for every stage, where a search per stage found the same)."""
+    label: dict = {}
+    for s in adj:
+        if s in barred or s in label:
+            continue
+        label[s] = s
+        stack = [s]
+        while stack:
+            for v in adj[stack.pop()]:
+                if v not in barred and v not in label:
+                    label[v] = s
+                    stack.append(v)
+    return label
 
 
 @rule("GC114")
@@ -57,10 +77,12 @@ def rule_return_through_metal(ctx: AuditContext) -> list[Finding]:
         ground.
     """
     out = []
+    barred = ctx.metals | set(ctx.earth_terminals)
+    wired = _parts_without(ctx.adj, barred) if ctx.plan.stages else {}
     for st in ctx.plan.stages:
         if st.across is not None:  # an interconnect's input: its shield is the return
             continue
-        route = _metal_route(ctx, st.a, st.b)
+        route = _metal_route(ctx, st.a, st.b, barred, wired)
         if route is None:
             continue
         fastenings = [
