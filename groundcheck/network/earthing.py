@@ -233,13 +233,13 @@ def _without_dead_blocks(side: set, ends: set, adj: dict, cost: dict) -> set:
     import networkx as nx
 
     side = set(side)
+    G = nx.Graph()
+    G.add_nodes_from(side)
+    for u in side:
+        for v, keys in adj[u].items():
+            if v in side and v != u and any(k in cost for k in keys):
+                G.add_edge(u, v)
     while True:
-        G = nx.Graph()
-        G.add_nodes_from(side)
-        for u in side:
-            for v, keys in adj[u].items():
-                if v in side and v != u and any(k in cost for k in keys):
-                    G.add_edge(u, v)
         blocks = list(nx.biconnected_components(G))
         cuts = cut_vertices(blocks)
         dead = set()
@@ -250,3 +250,4 @@ def _without_dead_blocks(side: set, ends: set, adj: dict, cost: dict) -> set:
         if not dead:
             return side
         side -= dead
+        G.remove_nodes_from(dead)  # the graph on what is left, as built from it
