@@ -182,3 +182,18 @@ def test_a_write_that_fails_leaves_no_part_file_and_the_result_stands(folder, mo
     out = store.stored("trial", (2,), MODULES, lambda: (np.arange(3.0),))
     assert out[0].tolist() == [0.0, 1.0, 2.0]
     assert not list(folder.glob("*"))
+
+
+def test_the_grids_kept_stay_within_their_bytes(monkeypatch):
+    """Each plate's grid and response are kept for its spread, the latest first, within
+    KEPT_BYTES: a large plate with many fastenings does not hold tens of MB per grid for ever."""
+    monkeypatch.setattr(store, "store_folder", lambda: None)
+    monkeypatch.setattr(plate_grid, "KEPT_BYTES", 3 * 2**20)
+    plate_grid._GRIDS.clear()
+    for i in range(4):
+        contacts = ((0.02, 0.03), (0.2 + 0.005 * i, 0.04), (0.11, 0.14))
+        plate_grid.grid_response(0.24, 0.17, contacts, plate.FASTENER_RADIUS, 120, 86)
+    sizes = [plate_grid._size(g) for g in plate_grid._GRIDS.values()]
+    assert 1 <= len(sizes) < 4 and sum(sizes) <= 3 * 2**20
+    assert list(plate_grid._GRIDS)[-1][2] == contacts  # the latest is kept
+    plate_grid._GRIDS.clear()

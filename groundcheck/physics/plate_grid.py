@@ -15,7 +15,7 @@ import numpy as np
 from ..core.runtime import blas_loaded
 from .plate_mesh import plate_mesh
 
-__all__ = ["ON_CIRCLE", "contact_groups", "grid_response", "KEPT_GRIDS"]
+__all__ = ["ON_CIRCLE", "contact_groups", "grid_response", "KEPT_GRIDS", "KEPT_BYTES"]
 
 
 #: a grid node this share of the grid step (or less) outside a contact's circle is on it: the
@@ -68,8 +68,10 @@ def contact_groups(X: np.ndarray, Y: np.ndarray, contacts, radius: float, h: flo
 #: current spread over it (:func:`groundcheck.physics.plate_paths.plate_flow`) read one
 #: factorisation
 _GRIDS: OrderedDict = OrderedDict()
-#: grids kept (a few MB each)
+#: grids kept at most, and their arrays' bytes at most (a large plate with many fastenings has a
+#: response of tens of MB)
 KEPT_GRIDS = 6
+KEPT_BYTES = 64 * 2**20
 
 
 def grid_response(width, depth, contacts: tuple, radius, nx, ny):
@@ -91,9 +93,17 @@ def grid_response(width, depth, contacts: tuple, radius, nx, ny):
     if got is None:
         got = _grid_response(*key)
         _GRIDS[key] = got
-        while len(_GRIDS) > KEPT_GRIDS:
+        while len(_GRIDS) > 1 and (
+            len(_GRIDS) > KEPT_GRIDS or sum(map(_size, _GRIDS.values())) > KEPT_BYTES
+        ):
             _GRIDS.popitem(last=False)
     return got
+
+
+def _size(grid) -> int:
+    mesh, response = grid
+    arrays = (mesh.a, mesh.b, mesh.g, mesh.start, mesh.end, response)
+    return sum(x.nbytes for x in arrays if x is not None)
 
 
 def _grid_response(width, depth, contacts, radius, nx, ny):
