@@ -210,3 +210,18 @@ def test_cut_vertices_from_blocks_are_networkx_articulation_points():
         G = nx.gnm_random_graph(r.randint(1, 40), r.randint(0, 60), seed=seed)
         blocks = list(nx.biconnected_components(G))
         assert cut_vertices(blocks) == set(nx.articulation_points(G)), seed
+
+
+def test_the_ring_factor_without_gathering_is_the_same_to_the_bit():
+    """Where no point is near the ring's axis the ring factor is worked on the whole arrays: the
+    same bits as the path that gathers the elliptic points apart (here made to run by one point
+    on the axis, dropped afterwards)."""
+    import numpy as np
+
+    from groundcheck.physics.pickup import _ring_factor
+
+    r = np.random.default_rng(5)
+    rho, z = r.uniform(0.03, 0.6, 5000), r.uniform(-0.1, 0.2, 5000)
+    whole = _ring_factor(rho, z, 0.04, 1.3e-6)
+    gathered = _ring_factor(np.append(rho, 1e-9), np.append(z, 0.0), 0.04, 1.3e-6)[:-1]
+    assert whole.tobytes() == gathered.tobytes()
