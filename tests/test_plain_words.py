@@ -7,6 +7,7 @@ reader sees."""
 import json
 import re
 import shutil
+from pathlib import Path
 from html.parser import HTMLParser
 
 import pytest
@@ -147,3 +148,12 @@ def test_the_search_finds_what_it_looks_for():
     assert _seen(
         "<p>ok <b>None</b></p><style>x{}</style><svg><title>True</title></svg>"
     ).split() == ["ok", "None", "True"]
+
+
+def test_a_tiny_negative_share_is_written_without_its_sign(cli):
+    """A contributor that cancels a hair of the hum (a share of -0.3 %) rounds to "0 %", not
+    "-0 %" (an outside builder's plan showed "r_sl (rectifier charging) -0 %")."""
+    plan = Path(__file__).parent / "plans" / "line-preamp-anodised-facia.gplan"
+    _, out, _ = cli("check", str(plan), "--fail-on", "never")
+    lines = [x for x in out.splitlines() if "main contributors" in x]
+    assert lines and _hits("check text", "\n".join(lines)) == []

@@ -7,6 +7,7 @@ from rich.console import Console
 from rich.table import Table
 from rich.text import Text
 
+from ..core.plain import unsigned_zero
 from ..core.units import db_of_ratio, dbv
 from ..physics.humsettings import SIGNAL_FREQUENCY_TEXT, at_signal_frequency
 from ..rules.results import Result
@@ -76,7 +77,7 @@ def _hum_notes(result: Result, left_out: dict, console: Console) -> None:
     for ch, h in result.hum.channels.items():
         if h.contributors:
             top = "; ".join(
-                f"{escape(c.element)} ({escape(c.source)}) {c.share:.0f} %"
+                f"{escape(c.element)} ({escape(c.source)}) {unsigned_zero(f'{c.share:.0f}')} %"
                 for c in h.contributors[:3]
             )
             console.print(f"  main contributors, {escape(ch)}: {top}")
