@@ -466,3 +466,17 @@ def test_a_plug_fuse_out_of_its_range_is_a_located_error():
     text = 'plan "t"\nmains 230 V 50 Hz, fuse 2 A slow, plug-fuse 32 A\n'
     with pytest.raises(PlanErrors, match=r"1 A to 16 A|16 A"):
         plan(text + BOX.format(area="1.0 mm2"), header=False)
+
+
+def test_the_text_names_the_fastenings_that_dissipate_most(cli):
+    """docs/language.md: a fastening's contact power and voltage are reported, not judged — in the
+    text too, under the bonding table. Worked by hand for the outside builder's line preamp: its
+    front panel hangs on two 5 Ω screws in parallel, so the 25 A short test puts 12.5 A through
+    each: 12.5 A × 5 Ω = 62.5 V and 12.5² × 5 = 781 W."""
+    from pathlib import Path
+
+    plan = Path(__file__).parent / "plans" / "line-preamp-anodised-facia.gplan"
+    _, out, _ = cli("check", str(plan), "--fail-on", "never", "--no-hum")
+    (line,) = [x for x in out.splitlines() if x.startswith("  fastenings (contact voltage")]
+    assert "facia_l (short) 62.5 V, 781 W at 12.5 A" in line
+    assert "facia_r (short) 62.5 V, 781 W at 12.5 A" in line

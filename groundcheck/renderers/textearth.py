@@ -103,11 +103,37 @@ def protective_tables(result: Result, console: Console) -> None:
 
 
 def bonding_table(result: Result, console: Console) -> None:
-    """The product bonding test: the conductors closest to their temperature limit, per test."""
+    """The product bonding test: the conductors closest to their temperature limit, per test, and
+    the fastenings whose contacts dissipate most."""
     b = result.bonding
     rows = [] if b is None else [c for c in b.conductors if c.passes is not None]
     if not rows:
         return
+    _bonding_rows(b, rows, console)
+    joints = sorted(
+        (c for c in b.conductors if c.passes is None and c.power is not None),
+        key=lambda c: -c.power,
+    )
+    if joints:
+        shown = "; ".join(
+            f"{escape(c.conductor)} ({c.test}) {number(c.drop, ' V', 3)}, "
+            f"{number(c.power, ' W', 3)} at {number(c.current, ' A', 3)}"
+            for c in joints[:TABLE_JOINTS]
+        )
+        more = f" and {len(joints) - TABLE_JOINTS} more" if len(joints) > TABLE_JOINTS else ""
+        console.print(
+            f"  fastenings (contact voltage and power, not judged): {shown}{more} (all are in "
+            "--format json)"
+        )
+    console.print()
+
+
+#: fastenings named under the bonding table, the most dissipating first
+TABLE_JOINTS = 3
+
+
+def _bonding_rows(b, rows: list, console: Console) -> None:
+    """The bonding table's rows: the conductors closest to their temperature limit."""
     tests = {t.name: t for t in b.tests}
     said = "; ".join(f"{t.name} {t.current:.3g} A for {t.duration:g} s" for t in b.tests)
     title = f"Bonding test ({said}; from {b.ambient:g} °C)"
@@ -142,7 +168,6 @@ def bonding_table(result: Result, console: Console) -> None:
         console.print(
             f"  {len(rows) - TABLE_BONDING} more rows not listed here (all are in --format json)"
         )
-    console.print()
 
 
 def _deg(x) -> str:
