@@ -197,3 +197,16 @@ def test_the_grids_kept_stay_within_their_bytes(monkeypatch):
     assert 1 <= len(sizes) < 4 and sum(sizes) <= 3 * 2**20
     assert list(plate_grid._GRIDS)[-1][2] == contacts  # the latest is kept
     plate_grid._GRIDS.clear()
+
+
+def test_a_part_file_an_interrupted_write_left_is_cleared_later(folder):
+    import os
+    import time
+
+    store.stored("trial", (3,), MODULES, lambda: (np.ones(1),))
+    old, fresh = folder / "gone.part", folder / "writing.part"
+    old.write_bytes(b"x")
+    fresh.write_bytes(b"x")
+    os.utime(old, (time.time() - 7200, time.time() - 7200))
+    store.stored("trial", (4,), MODULES, lambda: (np.ones(1),))  # a write trims
+    assert not old.exists() and fresh.exists()

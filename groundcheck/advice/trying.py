@@ -57,17 +57,18 @@ def tried(cands: list[Candidate], judge, clock: Clock, jobs: int = 1, progress=N
         if is_free(c):
             out[i] = judge(c)
     rest = [i for i, c in enumerate(cands) if not is_free(c)]
-    count = {"done": len(cands) - len(rest)}
+    done = len(cands) - len(rest)
 
     def finished(k: int, got: tuple[Evaluation, float]) -> None:
+        nonlocal done
         ev, spent = got
         clock.spent.append(spent)
         ev.candidate = cands[rest[k]]  # the caller's own candidate, not the worker's copy
         out[rest[k]] = ev
-        count["done"] += 1
+        done += 1
         if progress is not None:
-            left = len(cands) - count["done"]
-            progress(count["done"], count["done"] + min(left, clock.reachable(left) * jobs))
+            left = len(cands) - done
+            progress(done, done + min(left, clock.reachable(left) * jobs))
 
     never = run_while([partial(_timed, judge, cands[i]) for i in rest], jobs, clock.fits, finished)
     for k in never:

@@ -24,6 +24,7 @@ import os
 import platform
 import sys
 import tempfile
+import time
 import zipfile
 from functools import lru_cache
 from pathlib import Path
@@ -139,7 +140,15 @@ def _write(folder: Path, path: Path, key: str, out: tuple) -> None:
 
 
 def _trim(folder: Path) -> None:
-    """The oldest entries removed while the store is over :data:`BUDGET`."""
+    """The oldest entries removed while the store is over :data:`BUDGET`, and part files an
+    interrupted write left more than an hour ago."""
+    stale = time.time() - 3600
+    for p in folder.glob("*.part"):
+        try:
+            if p.stat().st_mtime < stale:
+                p.unlink()
+        except OSError:
+            continue
     entries = []
     for p in folder.glob("*.npz"):
         try:

@@ -35,7 +35,7 @@ import scipy.sparse as sp
 from ..core.stored import stored
 
 from .impedance import FASTENER_RADIUS, MU0
-from .plate_grid import contact_groups, grid_response
+from .plate_grid import contact_groups, grid_nodes, grid_response
 from .plate_mesh import plate_mesh
 
 __all__ = [
@@ -176,8 +176,7 @@ def grid_step(width: float, depth: float, radius: float) -> float:
 
 
 def _reduce(width, depth, sheet_g, contacts, radius, step):
-    nx = max(3, int(round(width / step)) + 1)
-    ny = max(3, int(round(depth / step)) + 1)
+    nx, ny = grid_nodes(width, depth, step)
     mesh, response = grid_response(width, depth, tuple(contacts), radius, nx, ny)
     k = mesh.k
     Lm = mesh.laplacian()

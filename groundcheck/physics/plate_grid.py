@@ -15,7 +15,14 @@ import numpy as np
 from ..core.runtime import blas_loaded
 from .plate_mesh import plate_mesh
 
-__all__ = ["ON_CIRCLE", "contact_groups", "grid_response", "KEPT_GRIDS", "KEPT_BYTES"]
+__all__ = [
+    "ON_CIRCLE",
+    "contact_groups",
+    "grid_nodes",
+    "grid_response",
+    "KEPT_GRIDS",
+    "KEPT_BYTES",
+]
 
 
 #: a grid node this share of the grid step (or less) outside a contact's circle is on it: the
@@ -72,6 +79,20 @@ _GRIDS: OrderedDict = OrderedDict()
 #: response of tens of MB)
 KEPT_GRIDS = 6
 KEPT_BYTES = 64 * 2**20
+
+
+def grid_nodes(width: float, depth: float, step: float) -> tuple[int, int]:
+    """The nodes of a plate's grid along x and y for a step (three at the least).
+
+    Parameters:
+        width, depth: the plate's size, m.
+        step: the grid step asked for, m.
+    Returns:
+        (nx, ny).
+    References:
+        none (bookkeeping).
+    """
+    return max(3, int(round(width / step)) + 1), max(3, int(round(depth / step)) + 1)
 
 
 def grid_response(width, depth, contacts: tuple, radius, nx, ny):

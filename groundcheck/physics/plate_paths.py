@@ -24,7 +24,8 @@ import numpy as np
 from ..core.stored import stored
 
 from .impedance import FASTENER_RADIUS
-from .plate import PLATE_CODE, canonical_order, grid_response, grid_step, quantised
+from .plate import PLATE_CODE, canonical_order, grid_step, quantised
+from .plate_grid import grid_nodes, grid_response
 
 __all__ = ["plate_flow", "passage_flow", "passage_vector", "loop_passages", "MAX_PLATE_CONTACTS"]
 
@@ -65,14 +66,10 @@ def plate_flow(width: float, depth: float, contacts: tuple, radius: float = FAST
 
 
 def _plate_flow(width: float, depth: float, contacts: tuple, radius: float):
-    step = grid_step(width, depth, radius)
-    nx = max(3, int(round(width / step)) + 1)
-    ny = max(3, int(round(depth / step)) + 1)
+    nx, ny = grid_nodes(width, depth, grid_step(width, depth, radius))
     # the grid and its factorisation the plate's reduction made (or makes now)
     mesh, response = grid_response(width, depth, contacts, radius, nx, ny)
-    phi = np.zeros((mesh.n, mesh.k))
-    if mesh.k > 1:
-        phi = _potentials(mesh, response)
+    phi = _potentials(mesh, response) if mesh.k > 1 else np.zeros((mesh.n, mesh.k))
     currents = mesh.g[:, None] * (phi[mesh.a] - phi[mesh.b])  # from a to b
     mids = (mesh.start + mesh.end) / 2
     vecs = mesh.end - mesh.start

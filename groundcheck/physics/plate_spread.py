@@ -26,7 +26,8 @@ import numpy as np
 from .impedance import FASTENER_RADIUS
 from .orient import LoopFluxes, source_fluxes
 from .pickup import path_vector, ring_quadrature
-from .plate import contact_groups, permeability
+from .plate import permeability
+from .plate_grid import contact_groups, grid_nodes
 from .plate_inductive import solve_sheet
 from .plate_paths import _potential_dot
 from .ring_memo import loop_digest
@@ -99,8 +100,7 @@ def inductive_passage(metal, rho: float, spots, enter: int, leave: int, frequenc
 @lru_cache(maxsize=64)
 def _sheet(width, depth, thickness, rho, contacts, enter, leave, frequency, route):
     step = max(FASTENER_RADIUS / 2, math.sqrt(width * depth / SHEET_NODES))
-    nx = max(3, int(round(width / step)) + 1)
-    ny = max(3, int(round(depth / step)) + 1)
+    nx, ny = grid_nodes(width, depth, step)
     xs, ys = np.linspace(0, width, nx), np.linspace(0, depth, ny)
     X, Y = (v.ravel() for v in np.meshgrid(xs, ys))
     hx, hy = xs[1] - xs[0], ys[1] - ys[0]

@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import gc
 import multiprocessing
+from contextlib import contextmanager
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
 from concurrent.futures.process import BrokenProcessPool
 from functools import partial
@@ -99,8 +100,6 @@ def run_tasks(
     jobs = min(max(1, int(jobs)), len(tasks))
     if jobs <= 1 or _WORKER or not can_fork():
         return [task() for task in tasks]
-    global _TASKS, _LIMIT_THREADS
-    _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
     order = (
         sorted(range(len(tasks)), key=lambda i: -costs[i])
         if costs is not None
@@ -108,17 +107,31 @@ def run_tasks(
     )
     out: list = [None] * len(tasks)
     try:
-        # a process pool that notices a worker dying (killed, out of memory) instead of waiting for
-        # it for ever
+        with _workers(tasks, jobs) as pool:
+            futures = {i: pool.submit(_run, i) for i in order}
+            for i, fut in futures.items():
+                out[i] = fut.result()
+    except OSError:  # no process could be started (a process limit): one process does it all
+        out = [task() for task in tasks]
+    return out
+
+
+@contextmanager
+def _workers(tasks: list, jobs: int):
+    """A pool of ``jobs`` forked workers that inherit ``tasks``, single-threaded: stopped at once
+    (the queue not worked through) on any error or Ctrl-C in the caller, shut down in order
+    otherwise.  A worker that dies (killed, out of memory) is a :class:`WorkerError`, never a wait;
+    an ``OSError`` (no process could be started) is the caller's to answer."""
+    global _TASKS, _LIMIT_THREADS
+    _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
+    try:
         pool = ProcessPoolExecutor(
             jobs, mp_context=multiprocessing.get_context("fork"), initializer=_start_worker
         )
         try:
-            futures = {i: pool.submit(_run, i) for i in order}
-            for i, fut in futures.items():
-                out[i] = fut.result()
+            yield pool
         except BaseException:
-            _stop(pool)  # Ctrl-C or an error: the queue is not worked through first
+            _stop(pool)
             raise
         pool.shutdown()
     except BrokenProcessPool:
@@ -126,11 +139,8 @@ def run_tasks(
             "a worker process of --jobs died before it finished (killed, or out of memory); run "
             "with --jobs 1"
         ) from None
-    except OSError:  # no process could be started (a process limit): one process does it all
-        out = [task() for task in tasks]
     finally:
         _TASKS = ()
-    return out
 
 
 def run_while(
@@ -163,28 +173,11 @@ def run_while(
 
     if jobs <= 1 or _WORKER or not can_fork():
         return _in_turn(tasks, ended, may_start, end)
-    global _TASKS, _LIMIT_THREADS
-    _TASKS, _LIMIT_THREADS = tasks, single_threaded_blas()
     try:
-        pool = ProcessPoolExecutor(
-            jobs, mp_context=multiprocessing.get_context("fork"), initializer=_start_worker
-        )
-        try:
-            left = _share_out(pool, len(tasks), jobs, may_start, end)
-        except BaseException:
-            _stop(pool)
-            raise
-        pool.shutdown()
-        return left
+        with _workers(tasks, jobs) as pool:
+            return _share_out(pool, len(tasks), jobs, may_start, end)
     except OSError:  # no process could be started (a process limit): the rest in this one
         return _in_turn(tasks, ended, may_start, end)
-    except BrokenProcessPool:
-        raise WorkerError(
-            "a worker process of --jobs died before it finished (killed, or out of memory); run "
-            "with --jobs 1"
-        ) from None
-    finally:
-        _TASKS = ()
 
 
 def _in_turn(tasks, ended: set, may_start, end) -> list[int]:
